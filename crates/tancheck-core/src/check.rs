@@ -1,0 +1,233 @@
+//! A tangent check along a path: the pipeline driver → schemes → comparison → report.
+
+use crate::compare::{compare, compare_dtemp};
+use crate::driver::{Direction, Driver, PointState};
+use crate::path::Path;
+use crate::report::{
+    CallCounts, CallRecord, CheckOutcome, FaultRecord, IncrementResult, Report, RoutineSummary, SchemeCheck,
+    SchemeSummary, Verdict, CAUTIONS,
+};
+use crate::routine::{provides, Caller, Fault};
+use crate::schemes::Scheme;
+use crate::settings::Settings;
+
+/// Check the routine behind `caller` along `path` from `start`.
+///
+/// Errors are bad input (wrong sizes, bad settings); a crashing or failing routine is a
+/// [`Verdict::RoutineFault`] in the report, not an error.
+pub fn run(
+    caller: &mut Caller<'_>,
+    props: &[f64],
+    start: PointState,
+    path: &Path,
+    settings: &Settings,
+) -> Result<Report, String> {
+    settings.validate()?;
+    path.validate()?;
+    let info = caller.info().clone();
+    let conv = info.convention.clone();
+    let n = conv.ncomp();
+    let mut driver = Driver::new(&info, props, start)?;
+    let has_twin = caller.has_complex();
+    let mut notes = Vec::new();
+    if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
+        notes.push(format!(
+            "complex-step checks skipped: {} has no complex twin (build it with `tancheck build`, \
+             which compiles the same source with TC_COMPLEX and exports <symbol>_cx)",
+            info.name
+        ));
+    }
+    let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
+    let mut numerical = vec![0.0; n * n];
+    let mut dtemp_num = vec![0.0; n];
+    let mut dstrain = vec![0.0; n];
+    let mut increments = Vec::with_capacity(path.increments.len());
+
+    for (k, inc) in path.increments.iter().enumerate() {
+        conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
+        driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
+        if let Err(fault) = driver.base_call(caller) {
+            increments.push(IncrementResult {
+                index: k + 1,
+                reported_branch: None,
+                state_changed: false,
+                strain: driver.start().strain.clone(),
+                stress: driver.start().stress.clone(),
+                checks: Vec::new(),
+                fault: Some(fault_record(&fault, &driver, None)),
+            });
+            break;
+        }
+        let returned = driver.base.tangent.clone();
+        let returned_dtemp =
+            driver.base.outcome.provides(provides::DSTRESS_DTEMP).then(|| driver.base.dstress_dtemp.clone());
+        let reported = driver.base.outcome.branch;
+        let state_changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
+        let h_strain_scale = driver.strain_scale(settings.step_floor);
+        let h_temp_scale = driver.temp_scale(settings.temp_floor);
+        let mut checks = Vec::with_capacity(settings.schemes.len());
+        for &scheme in &settings.schemes {
+            let ss = settings.scheme(scheme);
+            let h = ss.rel_step * h_strain_scale;
+            if scheme == Scheme::ComplexStep && !has_twin {
+                checks.push(SchemeCheck {
+                    scheme,
+                    step: h,
+                    tangent: CheckOutcome::Skipped { reason: "no complex twin".into() },
+                    dstress_dtemp: None,
+                });
+                continue;
+            }
+            let mut tangent = None;
+            for j in 0..n {
+                if let Err(f) = scheme.column(
+                    &mut driver,
+                    caller,
+                    Direction::Strain(j),
+                    h,
+                    &mut numerical[j * n..(j + 1) * n],
+                ) {
+                    let what = format!(
+                        "dstrain[{j}] {} {h:.3e}",
+                        if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
+                    );
+                    tangent = Some(CheckOutcome::Fault(fault_record(&f, &driver, Some(what))));
+                    break;
+                }
+            }
+            let tangent = tangent.unwrap_or_else(|| {
+                CheckOutcome::Compared(compare(
+                    &conv,
+                    &returned,
+                    &numerical,
+                    ss.tol,
+                    settings.entry_floor,
+                    settings.worst_entries,
+                ))
+            });
+            let dstress_dtemp = returned_dtemp.as_ref().map(|ret| {
+                let ht = ss.rel_step * h_temp_scale;
+                match scheme.column(&mut driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
+                    Ok(()) => CheckOutcome::Compared(compare_dtemp(
+                        &conv,
+                        ret,
+                        &dtemp_num,
+                        ss.tol,
+                        settings.entry_floor,
+                        settings.worst_entries,
+                    )),
+                    Err(f) => {
+                        CheckOutcome::Fault(fault_record(&f, &driver, Some(format!("dtemp ± {ht:.3e}"))))
+                    }
+                }
+            });
+            checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
+        }
+        driver.advance();
+        increments.push(IncrementResult {
+            index: k + 1,
+            reported_branch: (reported >= 0).then_some(reported),
+            state_changed,
+            strain: driver.start().strain.clone(),
+            stress: driver.start().stress.clone(),
+            checks,
+            fault: None,
+        });
+    }
+
+    let summary = summarise(&increments, settings);
+    let fault = increments.iter().any(|i| {
+        i.fault.is_some()
+            || i.checks.iter().any(|c| {
+                matches!(c.tangent, CheckOutcome::Fault(_))
+                    || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+            })
+    });
+    let verdict = if fault {
+        Verdict::RoutineFault
+    } else if increments.iter().all(IncrementResult::passed) {
+        Verdict::Pass
+    } else {
+        Verdict::TangentFailure
+    };
+    Ok(Report {
+        tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        routine: RoutineSummary {
+            name: info.name.clone(),
+            kind: conv.kind().name().into(),
+            order: conv.order().iter().map(|c| c.label().to_string()).collect(),
+            shear: match conv.shear() {
+                crate::ShearMeasure::Engineering => "engineering".into(),
+                crate::ShearMeasure::Tensor => "tensor".into(),
+            },
+            nstate: info.nstate,
+            nprop: info.nprop,
+            complex_twin: has_twin,
+        },
+        path: path.name.clone(),
+        settings: settings.clone(),
+        increments,
+        summary,
+        calls: CallCounts { real: caller.real_calls - real0, complex: caller.complex_calls - cplx0 },
+        verdict,
+        notes,
+        cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
+    })
+}
+
+fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
+    let s = d.start();
+    FaultRecord {
+        message: f.to_string(),
+        signal: match f {
+            Fault::Crashed { signal, .. } => Some(*signal),
+            _ => None,
+        },
+        call: CallRecord {
+            increment: d.increment(),
+            perturbation,
+            props: d.props().to_vec(),
+            strain: s.strain.clone(),
+            dstrain: d.dstrain().to_vec(),
+            temp: s.temp,
+            dtemp: d.dtemp(),
+            stress0: s.stress.clone(),
+            state0: s.state.clone(),
+            time: s.time,
+            dtime: d.dtime(),
+        },
+    }
+}
+
+fn summarise(increments: &[IncrementResult], settings: &Settings) -> Vec<SchemeSummary> {
+    settings
+        .schemes
+        .iter()
+        .map(|&scheme| {
+            let mut s = SchemeSummary {
+                scheme,
+                checks: 0,
+                failed: 0,
+                skipped: 0,
+                worst_norm_error: 0.0,
+                worst_entry_error: 0.0,
+                tol: settings.scheme(scheme).tol,
+            };
+            for c in increments.iter().flat_map(|i| &i.checks).filter(|c| c.scheme == scheme) {
+                match &c.tangent {
+                    CheckOutcome::Compared(cmp) => {
+                        s.checks += 1;
+                        s.worst_norm_error = s.worst_norm_error.max(cmp.norm_error);
+                        s.worst_entry_error = s.worst_entry_error.max(cmp.worst_entry_error);
+                    }
+                    CheckOutcome::Skipped { .. } => s.skipped += 1,
+                    CheckOutcome::Fault(_) => s.checks += 1,
+                }
+                if !c.passed() {
+                    s.failed += 1;
+                }
+            }
+            s
+        })
+        .collect()
+}

@@ -1,0 +1,282 @@
+//! The material-point driver: holds the start state of an increment and every buffer a
+//! check needs, makes the base call and the perturbed calls, and advances along a path.
+//!
+//! All buffers are allocated once, when the driver is made. A perturbed call copies the
+//! increment into a scratch buffer, perturbs one entry and calls the routine with the same
+//! read-only start state; outputs go to scratch buffers. Nothing is allocated per call.
+
+use num_complex::Complex64;
+
+use crate::routine::{CallInput, CallOutput, Caller, Fault, Outcome, RoutineInfo};
+
+/// The state of a material point at the start of an increment, in the routine's convention.
+#[derive(Clone, Debug, PartialEq)]
+pub struct PointState {
+    pub strain: Vec<f64>,
+    pub stress: Vec<f64>,
+    pub state: Vec<f64>,
+    pub temp: f64,
+    pub time: f64,
+}
+
+impl PointState {
+    /// A virgin point: zero strain, stress and state.
+    pub fn zero(info: &RoutineInfo, temp: f64) -> PointState {
+        let n = info.convention.ncomp();
+        PointState {
+            strain: vec![0.0; n],
+            stress: vec![0.0; n],
+            state: vec![0.0; info.nstate],
+            temp,
+            time: 0.0,
+        }
+    }
+}
+
+/// Which input a perturbation moves.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Direction {
+    /// Component j of the strain increment.
+    Strain(usize),
+    /// The temperature increment.
+    Temperature,
+}
+
+/// Outputs of one call.
+#[derive(Clone, Debug)]
+pub struct Outputs<S> {
+    pub stress: Vec<S>,
+    pub state: Vec<S>,
+    pub tangent: Vec<S>,
+    pub dstress_dtemp: Vec<S>,
+    pub energy: [S; 2],
+    pub outcome: Outcome,
+}
+
+impl<S: Copy> Outputs<S> {
+    fn new(n: usize, nstate: usize, fill: S) -> Self {
+        Outputs {
+            stress: vec![fill; n],
+            state: vec![fill; nstate],
+            tangent: vec![fill; n * n],
+            dstress_dtemp: vec![fill; n],
+            energy: [fill; 2],
+            outcome: Outcome::default(),
+        }
+    }
+
+    fn view(&mut self) -> CallOutput<'_, S> {
+        CallOutput {
+            stress: &mut self.stress,
+            state: &mut self.state,
+            tangent: &mut self.tangent,
+            dstress_dtemp: &mut self.dstress_dtemp,
+            energy: &mut self.energy,
+            outcome: &mut self.outcome,
+        }
+    }
+}
+
+/// Complex copies of the start state for the complex-step twin.
+#[derive(Clone, Debug)]
+struct ComplexInputs {
+    props: Vec<Complex64>,
+    strain: Vec<Complex64>,
+    dstrain: Vec<Complex64>,
+    stress0: Vec<Complex64>,
+    state0: Vec<Complex64>,
+}
+
+/// The driver of one material point.
+#[derive(Clone, Debug)]
+pub struct Driver {
+    n: usize,
+    props: Vec<f64>,
+    start: PointState,
+    dstrain: Vec<f64>,
+    dtemp: f64,
+    dtime: f64,
+    increment: i32,
+    /// Outputs of the base call (the unperturbed increment).
+    pub base: Outputs<f64>,
+    /// Outputs of the last `+h` perturbed call.
+    pub plus: Outputs<f64>,
+    /// Outputs of the last `−h` perturbed call.
+    pub minus: Outputs<f64>,
+    /// Outputs of the last complex call.
+    pub cplx: Outputs<Complex64>,
+    scratch_dstrain: Vec<f64>,
+    cin: ComplexInputs,
+}
+
+impl Driver {
+    /// A driver for `info`'s routine with the given properties and start state.
+    pub fn new(info: &RoutineInfo, props: &[f64], start: PointState) -> Result<Driver, String> {
+        let n = info.convention.ncomp();
+        if props.len() != info.nprop {
+            return Err(format!(
+                "{} properties given; the routine is declared with {}",
+                props.len(),
+                info.nprop
+            ));
+        }
+        if start.strain.len() != n || start.stress.len() != n {
+            return Err(format!("the start strain and stress need {n} components"));
+        }
+        if start.state.len() != info.nstate {
+            return Err(format!(
+                "{} state variables given; the routine is declared with {}",
+                start.state.len(),
+                info.nstate
+            ));
+        }
+        let cz = Complex64::new(0.0, 0.0);
+        Ok(Driver {
+            n,
+            props: props.to_vec(),
+            dstrain: vec![0.0; n],
+            dtemp: 0.0,
+            dtime: 0.0,
+            increment: 0,
+            base: Outputs::new(n, info.nstate, f64::NAN),
+            plus: Outputs::new(n, info.nstate, f64::NAN),
+            minus: Outputs::new(n, info.nstate, f64::NAN),
+            cplx: Outputs::new(n, info.nstate, cz),
+            scratch_dstrain: vec![0.0; n],
+            cin: ComplexInputs {
+                props: props.iter().map(|&p| Complex64::new(p, 0.0)).collect(),
+                strain: vec![cz; n],
+                dstrain: vec![cz; n],
+                stress0: vec![cz; n],
+                state0: vec![cz; info.nstate],
+            },
+            start,
+        })
+    }
+
+    pub fn ncomp(&self) -> usize {
+        self.n
+    }
+    pub fn start(&self) -> &PointState {
+        &self.start
+    }
+    pub fn props(&self) -> &[f64] {
+        &self.props
+    }
+    pub fn dstrain(&self) -> &[f64] {
+        &self.dstrain
+    }
+    pub fn dtemp(&self) -> f64 {
+        self.dtemp
+    }
+    pub fn dtime(&self) -> f64 {
+        self.dtime
+    }
+    pub fn increment(&self) -> i32 {
+        self.increment
+    }
+
+    /// Set the next increment (the start state stays).
+    pub fn set_increment(&mut self, dstrain: &[f64], dtemp: f64, dtime: f64) {
+        self.dstrain.copy_from_slice(dstrain);
+        self.dtemp = dtemp;
+        self.dtime = dtime;
+        self.increment += 1;
+        for i in 0..self.n {
+            self.cin.strain[i] = Complex64::new(self.start.strain[i], 0.0);
+            self.cin.stress0[i] = Complex64::new(self.start.stress[i], 0.0);
+        }
+        for (c, &s) in self.cin.state0.iter_mut().zip(&self.start.state) {
+            *c = Complex64::new(s, 0.0);
+        }
+    }
+
+    /// Scale of strain in this increment: max(|ε + Δε|∞, |Δε|∞, floor).
+    pub fn strain_scale(&self, floor: f64) -> f64 {
+        let mut s = floor;
+        for i in 0..self.n {
+            s = s.max((self.start.strain[i] + self.dstrain[i]).abs()).max(self.dstrain[i].abs());
+        }
+        s
+    }
+
+    /// Scale of temperature in this increment: max(|T|, |ΔT|, floor).
+    pub fn temp_scale(&self, floor: f64) -> f64 {
+        floor.max(self.start.temp.abs()).max(self.dtemp.abs())
+    }
+
+    /// The call with the unperturbed increment; results in `self.base`.
+    pub fn base_call(&mut self, caller: &mut Caller<'_>) -> Result<(), Fault> {
+        let input = CallInput {
+            props: &self.props,
+            strain: &self.start.strain,
+            dstrain: &self.dstrain,
+            temp: [self.start.temp, self.dtemp],
+            stress0: &self.start.stress,
+            state0: &self.start.state,
+            time: [self.start.time, self.dtime],
+            increment: self.increment,
+            want_tangent: true,
+        };
+        caller.call(&input, &mut self.base.view())
+    }
+
+    /// A real call with the increment moved by `h` along `dir`; results in `self.plus` when
+    /// `h > 0`, else in `self.minus`.
+    pub fn perturbed_call(&mut self, caller: &mut Caller<'_>, dir: Direction, h: f64) -> Result<(), Fault> {
+        self.scratch_dstrain.copy_from_slice(&self.dstrain);
+        let mut dtemp = self.dtemp;
+        match dir {
+            Direction::Strain(j) => self.scratch_dstrain[j] += h,
+            Direction::Temperature => dtemp += h,
+        }
+        let out = if h > 0.0 { &mut self.plus } else { &mut self.minus };
+        let input = CallInput {
+            props: &self.props,
+            strain: &self.start.strain,
+            dstrain: &self.scratch_dstrain,
+            temp: [self.start.temp, dtemp],
+            stress0: &self.start.stress,
+            state0: &self.start.state,
+            time: [self.start.time, self.dtime],
+            increment: self.increment,
+            want_tangent: false,
+        };
+        caller.call(&input, &mut out.view())
+    }
+
+    /// A complex call with imaginary part `h` along `dir`; results in `self.cplx`.
+    pub fn complex_call(&mut self, caller: &mut Caller<'_>, dir: Direction, h: f64) -> Result<(), Fault> {
+        for i in 0..self.n {
+            self.cin.dstrain[i] = Complex64::new(self.dstrain[i], 0.0);
+        }
+        let mut dtemp = Complex64::new(self.dtemp, 0.0);
+        match dir {
+            Direction::Strain(j) => self.cin.dstrain[j].im = h,
+            Direction::Temperature => dtemp.im = h,
+        }
+        let input = CallInput {
+            props: &self.cin.props,
+            strain: &self.cin.strain,
+            dstrain: &self.cin.dstrain,
+            temp: [Complex64::new(self.start.temp, 0.0), dtemp],
+            stress0: &self.cin.stress0,
+            state0: &self.cin.state0,
+            time: [self.start.time, self.dtime],
+            increment: self.increment,
+            want_tangent: false,
+        };
+        caller.call_complex(&input, &mut self.cplx.view())
+    }
+
+    /// Accept the base call: its end state becomes the next start state.
+    pub fn advance(&mut self) {
+        for i in 0..self.n {
+            self.start.strain[i] += self.dstrain[i];
+        }
+        self.start.stress.copy_from_slice(&self.base.stress);
+        self.start.state.copy_from_slice(&self.base.state);
+        self.start.temp += self.dtemp;
+        self.start.time += self.dtime;
+    }
+}

@@ -1,0 +1,28 @@
+//! The core of tancheck: conventions, routine capabilities, the path driver, derivative
+//! schemes, comparison, and the report model. Nothing here knows about libraries, files or
+//! terminals; front ends and reporters sit on top.
+//!
+//! Pipeline: [`path`] → [`driver`] (calls through [`routine::Caller`]) → [`schemes`] →
+//! [`compare`] → [`report`]; [`check::run`] ties them together.
+
+pub mod check;
+pub mod compare;
+pub mod convention;
+pub mod driver;
+pub mod path;
+pub mod report;
+pub mod routine;
+pub mod scalar;
+pub mod schemes;
+pub mod settings;
+
+pub use convention::{Component, Convention, PointKind, ShearMeasure};
+pub use driver::{Direction, Driver, PointState};
+pub use path::{Path, PathIncrement, Shape};
+pub use report::{Report, Verdict};
+pub use routine::{
+    CallInput, CallOutput, Caller, ComplexRoutine, Fault, Model, ModelRoutine, Outcome, Routine, RoutineInfo,
+};
+pub use scalar::Scalar;
+pub use schemes::Scheme;
+pub use settings::{SchemeSettings, Settings};

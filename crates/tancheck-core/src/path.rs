@@ -1,0 +1,132 @@
+//! Load paths: sequences of increments in canonical components.
+//!
+//! Canonical components are tensor strains 11, 22, 33, 23, 13, 12 for solids (or opening,
+//! slip 1, slip 2 for cohesive points). The driver converts them to each routine's order and
+//! shear measure; components a kind lacks are dropped (plane strain keeps ε33 = 0 because
+//! no built-in direction moves it for that kind).
+
+use serde::{Deserialize, Serialize};
+
+/// One increment of a path.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct PathIncrement {
+    /// Canonical strain increment.
+    pub dstrain: [f64; 6],
+    #[serde(default)]
+    pub dtemp: f64,
+    #[serde(default = "one")]
+    pub dtime: f64,
+}
+
+fn one() -> f64 {
+    1.0
+}
+
+/// A named path.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Path {
+    pub name: String,
+    pub increments: Vec<PathIncrement>,
+}
+
+/// Built-in path shapes: a direction in canonical components.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Shape {
+    /// ε11 only.
+    UniaxialStrain,
+    /// ε12 only (tensor shear).
+    Shear12,
+    /// ε11 = ε22.
+    Biaxial,
+    /// ε11 = ε22 = ε33.
+    Hydrostatic,
+    /// ε11 with ε12 = ε11/2 and ε23 = −ε11/4: every column of a 3D tangent is exercised.
+    TensionShear,
+}
+
+impl Shape {
+    pub const ALL: [Shape; 5] =
+        [Shape::UniaxialStrain, Shape::Shear12, Shape::Biaxial, Shape::Hydrostatic, Shape::TensionShear];
+
+    pub fn name(self) -> &'static str {
+        match self {
+            Shape::UniaxialStrain => "uniaxial-strain",
+            Shape::Shear12 => "shear-12",
+            Shape::Biaxial => "biaxial",
+            Shape::Hydrostatic => "hydrostatic",
+            Shape::TensionShear => "tension-shear",
+        }
+    }
+
+    pub fn direction(self) -> [f64; 6] {
+        match self {
+            Shape::UniaxialStrain => [1.0, 0.0, 0.0, 0.0, 0.0, 0.0],
+            Shape::Shear12 => [0.0, 0.0, 0.0, 0.0, 0.0, 1.0],
+            Shape::Biaxial => [1.0, 1.0, 0.0, 0.0, 0.0, 0.0],
+            Shape::Hydrostatic => [1.0, 1.0, 1.0, 0.0, 0.0, 0.0],
+            Shape::TensionShear => [1.0, 0.0, 0.0, -0.25, 0.0, 0.5],
+        }
+    }
+
+    pub fn from_name(s: &str) -> Result<Shape, String> {
+        Shape::ALL.into_iter().find(|x| x.name() == s).ok_or_else(|| {
+            let names: Vec<_> = Shape::ALL.iter().map(|x| x.name()).collect();
+            format!("unknown path shape `{s}`; expected one of {}", names.join(", "))
+        })
+    }
+}
+
+impl Path {
+    /// Load along `shape` to `peak` (the size of the direction's leading component) in
+    /// `steps_out` equal increments, then back to zero in `steps_back` increments.
+    pub fn ramp(shape: Shape, peak: f64, steps_out: usize, steps_back: usize) -> Path {
+        let d = shape.direction();
+        let mut increments = Vec::with_capacity(steps_out + steps_back);
+        for k in 0..steps_out + steps_back {
+            let s = if k < steps_out { peak / steps_out as f64 } else { -peak / steps_back as f64 };
+            increments.push(PathIncrement { dstrain: d.map(|x| x * s), dtemp: 0.0, dtime: 1.0 });
+        }
+        let name = if steps_back > 0 {
+            format!("{} to {peak:e} and back ({steps_out}+{steps_back} increments)", shape.name())
+        } else {
+            format!("{} to {peak:e} ({steps_out} increments)", shape.name())
+        };
+        Path { name, increments }
+    }
+
+    pub fn validate(&self) -> Result<(), String> {
+        if self.increments.is_empty() {
+            return Err("the path has no increments".into());
+        }
+        for (k, inc) in self.increments.iter().enumerate() {
+            if inc.dstrain.iter().any(|x| !x.is_finite()) || !inc.dtemp.is_finite() || !inc.dtime.is_finite()
+            {
+                return Err(format!(
+                    "increment {} of the path has a value that is not a finite number",
+                    k + 1
+                ));
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_ramp_returns_to_zero() {
+        let p = Path::ramp(Shape::TensionShear, 4e-3, 8, 5);
+        assert_eq!(p.increments.len(), 13);
+        let mut sum = [0.0; 6];
+        for inc in &p.increments {
+            for k in 0..6 {
+                sum[k] += inc.dstrain[k];
+            }
+        }
+        assert!(sum.iter().all(|s| s.abs() < 1e-18), "{sum:?}");
+        assert!(Shape::from_name("nope").unwrap_err().contains("uniaxial-strain"));
+    }
+}

@@ -1,0 +1,203 @@
+//! The report model: one structure that every reporter (terminal, JSON, ...) renders.
+
+use serde::{Deserialize, Serialize};
+
+use crate::compare::Comparison;
+use crate::schemes::Scheme;
+use crate::settings::Settings;
+
+/// The cautions every report carries.
+pub const CAUTIONS: [&str; 2] = [
+    "A consistent tangent shows that the routine differentiates its own stress update; it does \
+     not validate the material model against test data.",
+    "Structural use of any material model follows the applicable codes and licensed engineering \
+     judgement.",
+];
+
+/// The overall verdict, which sets the exit code.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Verdict {
+    /// Every check passed.
+    Pass,
+    /// At least one tangent check failed.
+    TangentFailure,
+    /// The routine crashed, or reported that it could not compute an increment.
+    RoutineFault,
+}
+
+impl Verdict {
+    /// Exit code: 0 pass, 1 tangent failure, 3 the routine crashed or failed
+    /// (2 is bad input or usage, decided before a report exists).
+    pub fn exit_code(self) -> i32 {
+        match self {
+            Verdict::Pass => 0,
+            Verdict::TangentFailure => 1,
+            Verdict::RoutineFault => 3,
+        }
+    }
+
+    pub fn word(self) -> &'static str {
+        match self {
+            Verdict::Pass => "PASS",
+            Verdict::TangentFailure => "FAIL",
+            Verdict::RoutineFault => "FAULT",
+        }
+    }
+}
+
+/// What was checked.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct RoutineSummary {
+    pub name: String,
+    pub kind: String,
+    pub order: Vec<String>,
+    pub shear: String,
+    pub nstate: usize,
+    pub nprop: usize,
+    pub complex_twin: bool,
+}
+
+/// The inputs of one call, kept when the call went wrong so it can be rerun.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CallRecord {
+    pub increment: i32,
+    /// Which input was perturbed, and by how much, if any: e.g. "dstrain[3] + 1.2e-9".
+    pub perturbation: Option<String>,
+    pub props: Vec<f64>,
+    pub strain: Vec<f64>,
+    pub dstrain: Vec<f64>,
+    pub temp: f64,
+    pub dtemp: f64,
+    pub stress0: Vec<f64>,
+    pub state0: Vec<f64>,
+    pub time: f64,
+    pub dtime: f64,
+}
+
+/// A call that produced no usable result.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FaultRecord {
+    pub message: String,
+    /// The signal number when the routine crashed.
+    pub signal: Option<i32>,
+    pub call: CallRecord,
+}
+
+/// The outcome of one scheme at one increment.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case", tag = "outcome")]
+pub enum CheckOutcome {
+    Compared(Comparison),
+    Skipped { reason: String },
+    Fault(FaultRecord),
+}
+
+/// One scheme at one increment: the tangent and, when the routine returns it, ∂σ/∂T.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SchemeCheck {
+    pub scheme: Scheme,
+    /// Absolute step in strain units.
+    pub step: f64,
+    pub tangent: CheckOutcome,
+    pub dstress_dtemp: Option<CheckOutcome>,
+}
+
+impl SchemeCheck {
+    pub fn passed(&self) -> bool {
+        let ok = |o: &CheckOutcome| match o {
+            CheckOutcome::Compared(c) => c.pass,
+            CheckOutcome::Skipped { .. } => true,
+            CheckOutcome::Fault(_) => false,
+        };
+        ok(&self.tangent) && self.dstress_dtemp.as_ref().is_none_or(ok)
+    }
+}
+
+/// One increment of the path.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct IncrementResult {
+    /// 1-based.
+    pub index: usize,
+    /// The branch the routine reported (its own id), if it reported one.
+    pub reported_branch: Option<i32>,
+    /// Whether the state variables changed in this increment.
+    pub state_changed: bool,
+    /// Strain at the end of the increment, routine order.
+    pub strain: Vec<f64>,
+    /// Stress at the end of the increment, routine order.
+    pub stress: Vec<f64>,
+    pub checks: Vec<SchemeCheck>,
+    /// The base call failed: the path stopped here.
+    pub fault: Option<FaultRecord>,
+}
+
+impl IncrementResult {
+    pub fn branch_label(&self) -> String {
+        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
+        match self.reported_branch {
+            Some(b) => format!("#{b} ({changed})"),
+            None => changed.to_string(),
+        }
+    }
+
+    pub fn passed(&self) -> bool {
+        self.fault.is_none() && self.checks.iter().all(SchemeCheck::passed)
+    }
+}
+
+/// Number of routine calls made.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+pub struct CallCounts {
+    pub real: u64,
+    pub complex: u64,
+}
+
+/// Best (largest) error seen per scheme, over the whole path.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SchemeSummary {
+    pub scheme: Scheme,
+    pub checks: usize,
+    pub failed: usize,
+    pub skipped: usize,
+    pub worst_norm_error: f64,
+    pub worst_entry_error: f64,
+    pub tol: f64,
+}
+
+/// The whole report of one check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Report {
+    pub tool: String,
+    pub routine: RoutineSummary,
+    pub path: String,
+    pub settings: Settings,
+    pub increments: Vec<IncrementResult>,
+    pub summary: Vec<SchemeSummary>,
+    pub calls: CallCounts,
+    pub verdict: Verdict,
+    /// Things the user should know that are not failures (e.g. a scheme skipped).
+    pub notes: Vec<String>,
+    pub cautions: Vec<String>,
+}
+
+impl Report {
+    pub fn exit_code(&self) -> i32 {
+        self.verdict.exit_code()
+    }
+
+    /// The first fault anywhere in the report.
+    pub fn first_fault(&self) -> Option<&FaultRecord> {
+        self.increments.iter().find_map(|inc| {
+            inc.fault.as_ref().or_else(|| {
+                inc.checks.iter().find_map(|c| match &c.tangent {
+                    CheckOutcome::Fault(f) => Some(f),
+                    _ => match &c.dstress_dtemp {
+                        Some(CheckOutcome::Fault(f)) => Some(f),
+                        _ => None,
+                    },
+                })
+            })
+        })
+    }
+}

@@ -1,0 +1,262 @@
+//! What a material routine is to tancheck: capabilities, one call's inputs and outputs.
+//!
+//! The required capability is [`Routine`]: a real stress update that returns a tangent.
+//! A routine that can also run in complex arithmetic (a Rust model, or a library that
+//! exports the complex-step twin) offers [`ComplexRoutine`] through [`Routine::complex`].
+//! A loaded library offers only what it actually exports.
+//!
+//! Every call from the checker goes through [`Caller`], which counts calls.
+
+use num_complex::Complex64;
+
+use crate::convention::Convention;
+use crate::scalar::Scalar;
+
+/// Length of the routine's message buffer (matches `TC_MESSAGE_LEN` of the C header).
+pub const MESSAGE_LEN: usize = 96;
+
+/// Bits of [`Outcome::provides`] (match `TC_PROVIDES_*`).
+pub mod provides {
+    pub const DSTRESS_DTEMP: i32 = 1;
+    pub const ENERGY: i32 = 2;
+}
+
+/// Status codes a routine returns (match `TC_STATUS_*`).
+pub mod status {
+    pub const OK: i32 = 0;
+    pub const CUTBACK: i32 = 1;
+    pub const FAILED: i32 = 2;
+}
+
+/// The read-only inputs of one call, in the routine's convention.
+#[derive(Clone, Copy, Debug)]
+pub struct CallInput<'a, S> {
+    pub props: &'a [S],
+    /// Strain at the start of the increment.
+    pub strain: &'a [S],
+    /// Strain increment.
+    pub dstrain: &'a [S],
+    /// Temperature at the start, and its increment.
+    pub temp: [S; 2],
+    pub stress0: &'a [S],
+    pub state0: &'a [S],
+    /// Time at the start, and the time increment.
+    pub time: [f64; 2],
+    /// Increment number along the path, from 1.
+    pub increment: i32,
+    /// The caller uses the tangent of this call.
+    pub want_tangent: bool,
+}
+
+/// What the routine reports besides its arrays (the `tc_report` struct of the C ABI).
+#[derive(Clone, Copy, Debug)]
+#[repr(C)]
+pub struct Outcome {
+    pub status: i32,
+    pub branch: i32,
+    pub provides: i32,
+    pub reserved: i32,
+    pub step_ratio: f64,
+    pub message: [u8; MESSAGE_LEN],
+}
+
+impl Default for Outcome {
+    fn default() -> Self {
+        Outcome {
+            status: status::OK,
+            branch: -1,
+            provides: 0,
+            reserved: 0,
+            step_ratio: 1.0,
+            message: [0; MESSAGE_LEN],
+        }
+    }
+}
+
+impl Outcome {
+    /// The routine's message as text (up to the first NUL).
+    pub fn message_text(&self) -> String {
+        let end = self.message.iter().position(|&b| b == 0).unwrap_or(MESSAGE_LEN);
+        String::from_utf8_lossy(&self.message[..end]).trim_end().to_string()
+    }
+
+    /// Set the message (truncated to fit, NUL-terminated).
+    pub fn set_message(&mut self, text: &str) {
+        self.message = [0; MESSAGE_LEN];
+        let b = text.as_bytes();
+        let n = b.len().min(MESSAGE_LEN - 1);
+        self.message[..n].copy_from_slice(&b[..n]);
+    }
+
+    pub fn provides(&self, bit: i32) -> bool {
+        self.provides & bit != 0
+    }
+}
+
+/// The outputs of one call. The caller fills them with NaN before the call.
+#[derive(Debug)]
+pub struct CallOutput<'a, S> {
+    pub stress: &'a mut [S],
+    pub state: &'a mut [S],
+    /// Column-major, entry (i, j) = ∂σᵢ/∂Δεⱼ.
+    pub tangent: &'a mut [S],
+    pub dstress_dtemp: &'a mut [S],
+    /// Stored and dissipated energy density at the end of the increment.
+    pub energy: &'a mut [S; 2],
+    pub outcome: &'a mut Outcome,
+}
+
+/// Sizes and conventions of a routine.
+#[derive(Clone, Debug)]
+pub struct RoutineInfo {
+    /// A name for reports: a model's name, or `library:symbol`.
+    pub name: String,
+    pub convention: Convention,
+    pub nstate: usize,
+    pub nprop: usize,
+}
+
+/// Why a call produced no usable result.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum Fault {
+    /// The routine set a nonzero status.
+    #[error("the routine returned status {status}{}", if .message.is_empty() { String::new() } else { format!(": {}", .message) })]
+    Status { status: i32, message: String, step_ratio: f64 },
+    /// The routine crashed (a signal caught by the guarded shim).
+    #[error("the routine crashed: {what}")]
+    Crashed { signal: i32, what: String },
+    /// The routine cannot run in this configuration.
+    #[error("{0}")]
+    Unsupported(String),
+}
+
+/// Required capability: a real stress update that also returns the tangent.
+pub trait Routine {
+    fn info(&self) -> &RoutineInfo;
+
+    /// One call. Implementations must not allocate: this is the hot path.
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault>;
+
+    /// The complex-arithmetic twin, when there is one.
+    fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
+        None
+    }
+}
+
+/// Optional capability: the same stress update in complex arithmetic, for complex-step
+/// derivatives.
+pub trait ComplexRoutine {
+    fn call_complex(
+        &mut self,
+        input: &CallInput<'_, Complex64>,
+        output: &mut CallOutput<'_, Complex64>,
+    ) -> Result<(), Fault>;
+}
+
+/// A material model written once over [`Scalar`]. Wrap it in [`ModelRoutine`] to check it.
+pub trait Model {
+    fn info(&self) -> &RoutineInfo;
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault>;
+}
+
+/// A [`Model`] as a [`Routine`] with its complex twin.
+#[derive(Clone, Debug)]
+pub struct ModelRoutine<M>(pub M);
+
+impl<M: Model> Routine for ModelRoutine<M> {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.0.evaluate(input, output)?;
+        status_fault(output.outcome)
+    }
+    fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
+        Some(self)
+    }
+}
+
+impl<M: Model> ComplexRoutine for ModelRoutine<M> {
+    fn call_complex(
+        &mut self,
+        input: &CallInput<'_, Complex64>,
+        output: &mut CallOutput<'_, Complex64>,
+    ) -> Result<(), Fault> {
+        self.0.evaluate(input, output)?;
+        status_fault(output.outcome)
+    }
+}
+
+/// A nonzero status as a [`Fault`]. Allocates only on the failure path.
+pub fn status_fault(o: &Outcome) -> Result<(), Fault> {
+    if o.status == status::OK {
+        Ok(())
+    } else {
+        Err(Fault::Status { status: o.status, message: o.message_text(), step_ratio: o.step_ratio })
+    }
+}
+
+/// The one way the checker calls a routine: counts every call.
+pub struct Caller<'r> {
+    routine: &'r mut dyn Routine,
+    /// Real calls made so far.
+    pub real_calls: u64,
+    /// Complex calls made so far.
+    pub complex_calls: u64,
+}
+
+impl<'r> Caller<'r> {
+    pub fn new(routine: &'r mut dyn Routine) -> Self {
+        Caller { routine, real_calls: 0, complex_calls: 0 }
+    }
+
+    pub fn info(&self) -> &RoutineInfo {
+        self.routine.info()
+    }
+
+    pub fn has_complex(&mut self) -> bool {
+        self.routine.complex().is_some()
+    }
+
+    /// A real call, outputs pre-filled with NaN and the outcome reset.
+    #[inline]
+    pub fn call(
+        &mut self,
+        input: &CallInput<'_, f64>,
+        output: &mut CallOutput<'_, f64>,
+    ) -> Result<(), Fault> {
+        self.real_calls += 1;
+        prefill(output, f64::NAN);
+        self.routine.call(input, output)
+    }
+
+    /// A complex call, outputs pre-filled with NaN. `Fault::Unsupported` without a twin.
+    #[inline]
+    pub fn call_complex(
+        &mut self,
+        input: &CallInput<'_, Complex64>,
+        output: &mut CallOutput<'_, Complex64>,
+    ) -> Result<(), Fault> {
+        let Some(twin) = self.routine.complex() else {
+            return Err(Fault::Unsupported("the routine has no complex-step twin".into()));
+        };
+        self.complex_calls += 1;
+        prefill(output, Complex64::new(f64::NAN, f64::NAN));
+        twin.call_complex(input, output)
+    }
+}
+
+fn prefill<S: Copy>(o: &mut CallOutput<'_, S>, nan: S) {
+    o.stress.fill(nan);
+    o.state.fill(nan);
+    o.tangent.fill(nan);
+    o.dstress_dtemp.fill(nan);
+    o.energy[0] = nan;
+    o.energy[1] = nan;
+    *o.outcome = Outcome::default();
+}
