@@ -9,6 +9,7 @@ use serde::{Deserialize, Serialize};
 
 /// One increment of a path.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
 pub struct PathIncrement {
     /// Canonical strain increment.
     pub dstrain: [f64; 6],
@@ -122,8 +123,8 @@ mod tests {
         assert_eq!(p.increments.len(), 13);
         let mut sum = [0.0; 6];
         for inc in &p.increments {
-            for k in 0..6 {
-                sum[k] += inc.dstrain[k];
+            for (s, d) in sum.iter_mut().zip(inc.dstrain) {
+                *s += d;
             }
         }
         assert!(sum.iter().all(|s| s.abs() < 1e-18), "{sum:?}");

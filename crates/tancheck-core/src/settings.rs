@@ -88,7 +88,7 @@ impl Settings {
                 return Err(format!("the {} tolerance must be a positive number, got {}", s.name(), c.tol));
             }
         }
-        if !(self.step_floor > 0.0) || !(self.temp_floor > 0.0) || !(self.entry_floor > 0.0) {
+        if [self.step_floor, self.temp_floor, self.entry_floor].iter().any(|&x| x.is_nan() || x <= 0.0) {
             return Err("step_floor, temp_floor and entry_floor must be positive".into());
         }
         Ok(())

@@ -159,7 +159,7 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
             if (converged) {
                 break; /* the extra iteration is done */
             }
-            if (fabs(tc_re(step)) <= J2_STEP_TOL * fabs(tc_re(dgamma))) {
+            if (fabs(tc_re(step)) <= J2_STEP_TOL * tc_re(norm) / (2.0 * tc_re(mu))) {
                 converged = 1;
             } else if (iter >= J2_MAX_ITER) {
                 break;

@@ -1,0 +1,121 @@
+//! Reference material models of tancheck, written once over [`Scalar`] so that the same
+//! code gives the ordinary stress update (`f64`), complex-step derivatives (`Complex64`) and
+//! exact forward-mode derivatives (num-dual's `Dual64`).
+//!
+//! - [`Elastic`]: linear isotropic elasticity, any solid kind of point.
+//! - [`J2`]: small-strain J2 plasticity by radial return with isotropic (linear + Voce) and
+//!   linear kinematic hardening; with [`J2Tangent::Continuum`] it is the flawed
+//!   `j2-continuum` routine.
+//!
+//! All models use the default component order of their kind and engineering shear strain;
+//! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
+//! by name with [`reference`] or [`AnyModel::new`].
+
+mod call;
+pub mod elastic;
+pub mod j2;
+mod tensor;
+
+#[cfg(test)]
+mod alloc_check;
+#[cfg(test)]
+mod checks;
+#[cfg(test)]
+mod testing;
+
+pub use elastic::Elastic;
+pub use j2::{J2Tangent, J2};
+
+use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
+
+/// Names of the reference models, as [`reference`] accepts them.
+pub const NAMES: [&str; 3] = [Elastic::NAME, J2::NAME, J2::CONTINUUM_NAME];
+
+/// A model that cannot be built.
+#[derive(Clone, Debug, PartialEq, Eq, thiserror::Error)]
+#[non_exhaustive]
+pub enum ModelError {
+    #[error("model `{model}` has no {kind} form; it supports {supported}")]
+    UnsupportedKind { model: &'static str, kind: PointKind, supported: &'static str },
+    #[error("no reference model is called `{name}`; the reference models are elastic, j2, j2-continuum")]
+    UnknownName { name: String },
+}
+
+/// One of the reference models, chosen at run time.
+#[derive(Clone, Debug)]
+pub enum AnyModel {
+    Elastic(Elastic),
+    J2(J2),
+}
+
+impl AnyModel {
+    /// The model called `name` (one of [`NAMES`]) for a kind of point.
+    pub fn new(name: &str, kind: PointKind) -> Result<AnyModel, ModelError> {
+        match name {
+            Elastic::NAME => Ok(AnyModel::Elastic(Elastic::new(kind)?)),
+            J2::NAME => Ok(AnyModel::J2(J2::new(kind)?)),
+            J2::CONTINUUM_NAME => Ok(AnyModel::J2(J2::continuum(kind)?)),
+            _ => Err(ModelError::UnknownName { name: name.to_string() }),
+        }
+    }
+
+    /// Meaning of each property, in order.
+    pub fn prop_names(&self) -> &'static [&'static str] {
+        match self {
+            AnyModel::Elastic(_) => &Elastic::PROP_NAMES,
+            AnyModel::J2(_) => &J2::PROP_NAMES,
+        }
+    }
+}
+
+impl Model for AnyModel {
+    fn info(&self) -> &RoutineInfo {
+        match self {
+            AnyModel::Elastic(m) => m.info(),
+            AnyModel::J2(m) => m.info(),
+        }
+    }
+
+    #[inline]
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        match self {
+            AnyModel::Elastic(m) => m.evaluate(input, output),
+            AnyModel::J2(m) => m.evaluate(input, output),
+        }
+    }
+}
+
+/// The reference model called `name` for a kind of point, as a routine the checker can call
+/// (with its complex-step twin).
+pub fn reference(name: &str, kind: PointKind) -> Result<ModelRoutine<AnyModel>, ModelError> {
+    AnyModel::new(name, kind).map(ModelRoutine)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use tancheck_core::Routine;
+
+    #[test]
+    fn models_are_found_by_name_with_their_sizes() {
+        let r = reference("j2", PointKind::PlaneStrain).unwrap();
+        assert_eq!(r.info().name, "j2");
+        assert_eq!((r.info().nstate, r.info().nprop, r.info().convention.ncomp()), (9, 7, 4));
+        let r = reference("j2-continuum", PointKind::Solid3d).unwrap();
+        assert_eq!((r.info().name.as_str(), r.info().nstate), ("j2-continuum", 13));
+        let r = reference("elastic", PointKind::PlaneStress).unwrap();
+        assert_eq!((r.info().nstate, r.info().nprop, r.info().convention.ncomp()), (0, 2, 3));
+        assert_eq!(r.0.prop_names(), &["E", "nu"]);
+        let e = reference("j2", PointKind::PlaneStress).unwrap_err();
+        assert!(e.to_string().contains("no plane-stress form"), "{e}");
+        let e = reference("nope", PointKind::Solid3d).unwrap_err();
+        assert!(e.to_string().contains("elastic, j2, j2-continuum"), "{e}");
+        for name in NAMES {
+            assert!(AnyModel::new(name, PointKind::Solid3d).is_ok());
+        }
+    }
+}

@@ -1,0 +1,174 @@
+//! Test support: one call of a model with owned arrays, in any scalar type, and the
+//! derivative of the stress by forward-mode dual numbers (num-dual) or the complex step.
+
+use num_complex::Complex64;
+use num_dual::Dual64;
+use tancheck_core::{CallInput, CallOutput, Convention, Fault, Model, Outcome, Scalar};
+
+/// The real inputs of one call.
+#[derive(Clone, Debug)]
+pub(crate) struct Point {
+    pub props: Vec<f64>,
+    pub strain: Vec<f64>,
+    pub dstrain: Vec<f64>,
+    pub stress0: Vec<f64>,
+    pub state0: Vec<f64>,
+}
+
+impl Point {
+    /// Zero strain, increment, stress and state.
+    pub fn new(props: &[f64], ncomp: usize, nstate: usize) -> Point {
+        Point {
+            props: props.to_vec(),
+            strain: vec![0.0; ncomp],
+            dstrain: vec![0.0; ncomp],
+            stress0: vec![0.0; ncomp],
+            state0: vec![0.0; nstate],
+        }
+    }
+    pub fn strain(mut self, v: &[f64]) -> Point {
+        self.strain = v.to_vec();
+        self
+    }
+    pub fn dstrain(mut self, v: &[f64]) -> Point {
+        self.dstrain = v.to_vec();
+        self
+    }
+    pub fn stress0(mut self, v: &[f64]) -> Point {
+        self.stress0 = v.to_vec();
+        self
+    }
+    pub fn state0(mut self, v: &[f64]) -> Point {
+        self.state0 = v.to_vec();
+        self
+    }
+}
+
+/// The outputs of one call.
+#[derive(Clone, Debug)]
+pub(crate) struct Out<S> {
+    pub stress: Vec<S>,
+    pub state: Vec<S>,
+    pub tangent: Vec<S>,
+    pub dstress_dtemp: Vec<S>,
+    pub energy: [S; 2],
+    pub outcome: Outcome,
+}
+
+/// One call in scalar type `S`, outputs pre-filled with NaN as the checker does. The sizes
+/// of the outputs follow the model's info and the length of `strain`.
+pub(crate) fn run_scalar<S: Scalar, M: Model>(
+    m: &M,
+    props: &[S],
+    strain: &[S],
+    dstrain: &[S],
+    stress0: &[S],
+    state0: &[S],
+) -> Result<Out<S>, Fault> {
+    let n = strain.len();
+    let nan = S::cst(f64::NAN);
+    let nstate = m.info().nstate;
+    let mut out = Out {
+        stress: vec![nan; n],
+        state: vec![nan; nstate],
+        tangent: vec![nan; n * n],
+        dstress_dtemp: vec![nan; n],
+        energy: [nan; 2],
+        outcome: Outcome::default(),
+    };
+    let input = CallInput {
+        props,
+        strain,
+        dstrain,
+        temp: [S::cst(293.15), S::zero()],
+        stress0,
+        state0,
+        time: [0.0, 1.0],
+        increment: 1,
+        want_tangent: true,
+    };
+    let mut output = CallOutput {
+        stress: &mut out.stress,
+        state: &mut out.state,
+        tangent: &mut out.tangent,
+        dstress_dtemp: &mut out.dstress_dtemp,
+        energy: &mut out.energy,
+        outcome: &mut out.outcome,
+    };
+    m.evaluate(&input, &mut output)?;
+    Ok(out)
+}
+
+fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
+    v.iter().map(|&x| S::cst(x)).collect()
+}
+
+/// One real call.
+pub(crate) fn run<M: Model>(m: &M, p: &Point) -> Result<Out<f64>, Fault> {
+    run_scalar(m, &p.props, &p.strain, &p.dstrain, &p.stress0, &p.state0)
+}
+
+/// ∂σ/∂Δε by num-dual: one call per column j with Δεⱼ carrying the unit dual part.
+/// Column-major like a routine tangent. Also returns the branch of each call.
+pub(crate) fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
+    let n = p.strain.len();
+    let mut t = vec![0.0; n * n];
+    let mut branches = Vec::with_capacity(n);
+    for j in 0..n {
+        let de: Vec<Dual64> = p
+            .dstrain
+            .iter()
+            .enumerate()
+            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
+            .collect();
+        let out = run_scalar(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0), &lift(&p.state0))
+            .expect("dual call");
+        assert_eq!(out.outcome.status, 0, "dual call failed: {}", out.outcome.message_text());
+        for i in 0..n {
+            t[i + j * n] = out.stress[i].eps;
+        }
+        branches.push(out.outcome.branch);
+    }
+    (t, branches)
+}
+
+/// ∂σ/∂Δε by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998).
+pub(crate) fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
+    let n = p.strain.len();
+    let mut t = vec![0.0; n * n];
+    for j in 0..n {
+        let de: Vec<Complex64> = p
+            .dstrain
+            .iter()
+            .enumerate()
+            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
+            .collect();
+        let out = run_scalar(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0), &lift(&p.state0))
+            .expect("complex call");
+        assert_eq!(out.outcome.status, 0, "complex call failed: {}", out.outcome.message_text());
+        for i in 0..n {
+            t[i + j * n] = out.stress[i].im / h;
+        }
+    }
+    t
+}
+
+/// Relative errors of a tangent against a reference, in Mandel form (so the Frobenius norm
+/// is that of the fourth-order tensor): the whole matrix, and the worst column.
+pub(crate) fn mandel_errors(conv: &Convention, got: &[f64], reference: &[f64]) -> (f64, f64) {
+    let n = conv.ncomp();
+    let mut a = got.to_vec();
+    let mut b = reference.to_vec();
+    conv.tangent_to_mandel(&mut a);
+    conv.tangent_to_mandel(&mut b);
+    let norm = |v: &mut dyn Iterator<Item = f64>| v.map(|x| x * x).sum::<f64>().sqrt();
+    let whole = norm(&mut a.iter().zip(&b).map(|(x, y)| x - y)) / norm(&mut b.iter().copied());
+    let mut worst: f64 = 0.0;
+    for j in 0..n {
+        let col = j * n..(j + 1) * n;
+        let d = norm(&mut a[col.clone()].iter().zip(&b[col.clone()]).map(|(x, y)| x - y));
+        let r = norm(&mut b[col].iter().copied());
+        worst = worst.max(d / r);
+    }
+    (whole, worst)
+}
