@@ -1,0 +1,21 @@
+//! The routine ABI of tancheck, from the Rust side.
+//!
+//! - [`Library`] loads a shared library of material routines and finds a routine and its
+//!   complex-step twin (`symbol_cx`); [`LibraryRoutine`] is such a routine as a
+//!   [`tancheck_core::Routine`].
+//! - Every call goes through the guarded trampoline of `fortran-shim/src/guard.c` ([`guard`]),
+//!   which turns a crash inside the routine (SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT) into a
+//!   [`tancheck_core::Fault::Crashed`] instead of ending the process.
+//! - [`build_library`] compiles C and Fortran sources into such a library, with the twin.
+
+pub mod compile;
+pub mod error;
+pub mod guard;
+pub mod library;
+
+pub use compile::{
+    build_library, c_available, fortran_available, write_shim_files, BuildCommand, BuildLog, BuildOptions,
+};
+pub use error::{BuildError, LoadError, TrapError};
+pub use guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};
+pub use library::{Library, LibraryRoutine};

@@ -1,0 +1,206 @@
+//! Loading errors say what is wrong and what to do.
+
+mod common;
+
+use std::path::Path;
+use std::process::Command;
+
+use common::*;
+use tancheck_abi::{build_library, BuildOptions, Library, LoadError};
+
+#[test]
+fn a_missing_file_is_named() {
+    let e = Library::open("/nonexistent/dir/libmodel.so").unwrap_err();
+    assert!(matches!(e, LoadError::NotFound { .. }), "{e:?}");
+    let m = e.to_string();
+    assert!(m.starts_with("no file `/nonexistent/dir/libmodel.so`"), "{m}");
+    assert!(m.contains("tancheck build"), "{m}");
+}
+
+#[test]
+fn a_text_file_is_not_a_library() {
+    let dir = scratch("text");
+    let p = dir.join("libmodel.so");
+    std::fs::write(&p, "E = 210000\nnu = 0.3\n").unwrap();
+    let e = Library::open(&p).unwrap_err();
+    assert!(matches!(e, LoadError::NotALibrary { .. }), "{e:?}");
+    let m = e.to_string();
+    assert!(m.contains("is not a shared library: it is a text file"), "{m}");
+    assert!(m.contains("tancheck build"), "{m}");
+
+    let e = Library::open(&dir).unwrap_err();
+    assert!(e.to_string().contains("it is a directory"), "{e}");
+}
+
+#[test]
+fn an_object_file_is_not_a_library() {
+    if !tancheck_abi::c_available() {
+        eprintln!("SKIPPED an_object_file_is_not_a_library: no C compiler (set CC or install gcc)");
+        return;
+    }
+    let dir = scratch("object");
+    let o = dir.join("misbehave.o");
+    let status = Command::new("cc")
+        .arg("-c")
+        .arg("-I")
+        .arg(shim().join("include"))
+        .arg(shim().join("examples/c/misbehave.c"))
+        .arg("-o")
+        .arg(&o)
+        .status()
+        .unwrap();
+    assert!(status.success());
+    let m = Library::open(&o).unwrap_err().to_string();
+    assert!(m.contains("it is an object file (.o)"), "{m}");
+    assert!(m.contains("-shared"), "{m}");
+}
+
+/// The same library with its ELF machine field set to another architecture.
+#[test]
+fn a_library_for_another_machine_is_refused_with_both_names() {
+    if !cfg!(target_os = "linux") {
+        eprintln!("SKIPPED a_library_for_another_machine_is_refused_with_both_names: needs ELF");
+        return;
+    }
+    let data = std::fs::read(misbehave_library()).unwrap();
+    let little = data[5] == 1;
+    let (machine, name): (u16, &str) =
+        if cfg!(target_arch = "aarch64") { (62, "x86-64") } else { (183, "64-bit ARM (aarch64)") };
+    let mut foreign = data.clone();
+    let bytes = if little { machine.to_le_bytes() } else { machine.to_be_bytes() };
+    foreign[18..20].copy_from_slice(&bytes); // e_machine
+    let dir = scratch("foreign");
+    let p = dir.join("libforeign.so");
+    std::fs::write(&p, &foreign).unwrap();
+    let e = Library::open(&p).unwrap_err();
+    assert!(matches!(e, LoadError::WrongArchitecture { .. }), "{e:?}");
+    let m = e.to_string();
+    assert!(m.contains(&format!("is a library for {name}")), "{m}");
+    assert!(m.contains("this tancheck runs on"), "{m}");
+}
+
+#[test]
+fn a_missing_symbol_lists_the_near_names() {
+    let lib = Library::open(misbehave_library()).unwrap();
+    let e = lib.routine("bad_null_derf", elastic_info("x")).unwrap_err();
+    let LoadError::SymbolMissing { near, .. } = &e else { panic!("{e:?}") };
+    assert_eq!(near.first().map(String::as_str), Some("bad_null_deref"), "{near:?}");
+    assert!(near.len() <= 5);
+    let m = e.to_string();
+    assert!(m.contains("exports no symbol `bad_null_derf`"), "{m}");
+    assert!(m.contains("`bad_null_deref`"), "{m}");
+    assert!(m.contains("gfortran appends an underscore"), "{m}");
+    assert!(m.contains("extern \"C\""), "{m}");
+    assert!(m.contains("looked up as `bad_null_derf_cx`"), "{m}");
+
+    // Case is ignored when ranking.
+    let e = lib.routine("BAD_ABORT", elastic_info("x")).unwrap_err();
+    let LoadError::SymbolMissing { near, .. } = &e else { panic!("{e:?}") };
+    assert_eq!(near[0], "bad_abort");
+    assert!(e.to_string().contains("differs only in case"), "{e}");
+}
+
+fn write(dir: &Path, name: &str, text: &str) -> std::path::PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+/// A routine compiled by gfortran without bind(C) is exported with a trailing underscore; a
+/// module procedure as __module_MOD_name. The message says so.
+#[test]
+fn fortran_decorations_are_explained() {
+    if !tancheck_abi::fortran_available() {
+        eprintln!(
+            "SKIPPED fortran_decorations_are_explained: no Fortran compiler (set FC or install gfortran)"
+        );
+        return;
+    }
+    let dir = scratch("decorated");
+    let src = write(
+        &dir,
+        "decorated.f90",
+        "subroutine hardening(x)\n  implicit none\n  double precision, intent(inout) :: x\n  x = 2 * x\n\
+         end subroutine hardening\n\
+         module materials\n  implicit none\ncontains\n  subroutine softening(x)\n    \
+         double precision, intent(inout) :: x\n    x = x / 2\n  end subroutine softening\n\
+         end module materials\n",
+    );
+    let out = dir.join("libdecorated.so");
+    let mut opts = BuildOptions::new([&src], &out);
+    opts.twin = false;
+    build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
+    let lib = Library::open(&out).unwrap();
+
+    let m = lib.routine("hardening", elastic_info("x")).unwrap_err().to_string();
+    assert!(m.contains("The library exports `hardening_`: that is how gfortran names"), "{m}");
+    assert!(m.contains("bind(C, name=\"hardening\")"), "{m}");
+
+    let m = lib.routine("softening", elastic_info("x")).unwrap_err().to_string();
+    assert!(m.contains("`__materials_MOD_softening`"), "{m}");
+    assert!(m.contains("module `materials`"), "{m}");
+
+    // Asked with the underscore, the decorated name is found.
+    let r = lib.routine("hardening_", elastic_info("x"));
+    assert!(r.is_ok(), "{:?}", r.err());
+}
+
+#[test]
+fn without_the_twin_there_is_no_complex_capability() {
+    let dir = scratch("no-twin");
+    let out = dir.join("libmisbehave-real.so");
+    let mut opts = BuildOptions::new([shim().join("examples/c/misbehave.c")], &out);
+    opts.twin = false;
+    build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
+    let lib = Library::open(&out).unwrap();
+    assert!(lib.has_symbol("bad_abort"));
+    assert!(!lib.has_symbol("bad_abort_cx"));
+    let mut r = lib.routine("bad_abort", elastic_info("bad_abort")).unwrap();
+    assert!(!r.has_twin());
+    use tancheck_core::Routine;
+    assert!(r.complex().is_none());
+    let mut b = Real::new();
+    b.call(&mut r, 1).unwrap();
+    b.assert_elastic();
+    let funcs = lib.exported_functions().unwrap();
+    assert_eq!(
+        funcs,
+        vec!["bad_abort", "bad_deep_recursion", "bad_divide_by_zero", "bad_exit", "bad_null_deref"]
+    );
+}
+
+/// A library with an unresolved name fails at load time (all names are bound then), with
+/// a hint, not at the first call.
+#[test]
+fn an_unresolved_name_is_reported_at_load() {
+    if !tancheck_abi::c_available() {
+        eprintln!("SKIPPED an_unresolved_name_is_reported_at_load: no C compiler (set CC or install gcc)");
+        return;
+    }
+    let dir = scratch("unresolved");
+    let src = write(&dir, "u.c", "void flow_rule_(double *);\nvoid r(double *x) { flow_rule_(x); }\n");
+    let out = dir.join("libunresolved.so");
+    // By hand, without -z defs, as a user might.
+    let status = Command::new("cc").args(["-shared", "-fPIC", "-o"]).arg(&out).arg(&src).status().unwrap();
+    assert!(status.success());
+    let e = Library::open(&out).unwrap_err();
+    assert!(matches!(e, LoadError::Open { .. }), "{e:?}");
+    let m = e.to_string();
+    assert!(m.contains("undefined symbol: flow_rule_"), "{m}");
+    assert!(m.contains("The library uses `flow_rule_`"), "{m}");
+    assert!(m.contains("gfortran names an external procedure"), "{m}");
+}
+
+#[test]
+fn the_library_outlives_its_handle() {
+    let r = {
+        let lib = Library::open(misbehave_library()).unwrap();
+        lib.routine("bad_divide_by_zero", elastic_info("d")).unwrap()
+    };
+    // The Library value is gone; the routine keeps the code loaded.
+    let mut r = r;
+    let mut b = Real::new();
+    b.call(&mut r, 1).unwrap();
+    b.assert_elastic();
+    assert!(r.library().path().is_absolute());
+}

@@ -1,0 +1,140 @@
+//! One call through the guarded shim allocates nothing: the hot path of every check.
+//! A counting global allocator counts per thread, so other test threads do not interfere.
+
+mod common;
+
+use std::alloc::{GlobalAlloc, Layout, System};
+use std::cell::Cell;
+
+use common::*;
+use num_complex::Complex64;
+use tancheck_core::{CallInput, CallOutput, Caller, Outcome};
+
+struct Counting;
+
+thread_local! {
+    static ALLOCATIONS: Cell<usize> = const { Cell::new(0) };
+}
+
+fn count() {
+    let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
+}
+
+// SAFETY: forwards to the system allocator; counting touches only a const thread-local.
+unsafe impl GlobalAlloc for Counting {
+    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
+        count();
+        unsafe { System.alloc(l) }
+    }
+    unsafe fn alloc_zeroed(&self, l: Layout) -> *mut u8 {
+        count();
+        unsafe { System.alloc_zeroed(l) }
+    }
+    unsafe fn realloc(&self, p: *mut u8, l: Layout, new: usize) -> *mut u8 {
+        count();
+        unsafe { System.realloc(p, l, new) }
+    }
+    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
+        unsafe { System.dealloc(p, l) }
+    }
+}
+
+#[global_allocator]
+static GLOBAL: Counting = Counting;
+
+fn allocations() -> usize {
+    ALLOCATIONS.with(Cell::get)
+}
+
+#[test]
+fn the_counter_counts() {
+    let before = allocations();
+    let v = std::hint::black_box(vec![1u8; 100]);
+    assert_eq!(allocations(), before + 1);
+    drop(v);
+}
+
+#[test]
+fn a_guarded_call_allocates_nothing() {
+    // Everything that may allocate happens before: building, loading, buffers.
+    let mut r = load("bad_divide_by_zero");
+    let mut b = Real::new();
+    let cprops = [Complex64::new(E, 0.0), Complex64::new(NU, 0.0)];
+    let mut cstrain = [Complex64::new(0.0, 0.0); 6];
+    cstrain[0].im = 1e-30;
+    let czero = [Complex64::new(0.0, 0.0); 6];
+    let mut cstress = [Complex64::new(0.0, 0.0); 6];
+    let mut ctangent = [Complex64::new(0.0, 0.0); 36];
+    let mut cdsdt = [Complex64::new(0.0, 0.0); 6];
+    let mut cenergy = [Complex64::new(0.0, 0.0); 2];
+    let mut coutcome = Outcome::default();
+
+    let before = allocations();
+    // The routine's first call on this thread, then many more; plain and through Caller.
+    for inc in [1, 1, 1] {
+        b.call(&mut r, inc).unwrap();
+    }
+    {
+        let input = CallInput {
+            props: &b.props,
+            strain: &b.strain,
+            dstrain: &b.dstrain,
+            temp: [293.0, 0.0],
+            stress0: &b.stress0,
+            state0: &[],
+            time: [0.0, 1.0],
+            increment: 1,
+            want_tangent: true,
+        };
+        let mut output = CallOutput {
+            stress: &mut b.stress,
+            state: &mut [],
+            tangent: &mut b.tangent,
+            dstress_dtemp: &mut b.dstress_dtemp,
+            energy: &mut b.energy,
+            outcome: &mut b.outcome,
+        };
+        let mut caller = Caller::new(&mut r);
+        for _ in 0..100 {
+            caller.call(&input, &mut output).unwrap();
+        }
+        let cinput = CallInput {
+            props: &cprops,
+            strain: &czero,
+            dstrain: &cstrain,
+            temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
+            stress0: &czero,
+            state0: &[],
+            time: [0.0, 1.0],
+            increment: 1,
+            want_tangent: true,
+        };
+        let mut coutput = CallOutput {
+            stress: &mut cstress,
+            state: &mut [],
+            tangent: &mut ctangent,
+            dstress_dtemp: &mut cdsdt,
+            energy: &mut cenergy,
+            outcome: &mut coutcome,
+        };
+        for _ in 0..100 {
+            caller.call_complex(&cinput, &mut coutput).unwrap();
+        }
+        assert_eq!(caller.real_calls, 100);
+        assert_eq!(caller.complex_calls, 100);
+    }
+    // With traps on as well, on the normal path.
+    r.set_fp_traps(tancheck_abi::guard::fp_traps_available()).unwrap();
+    b.call(&mut r, 1).unwrap();
+    let after = allocations();
+    assert_eq!(after - before, 0, "the guarded calls allocated {} times", after - before);
+    b.assert_elastic();
+    assert!((cstress[0].im / 1e-30 - b.tangent[0]).abs() <= 1e-9 * b.tangent[0]);
+
+    // Only the failure path describes the crash, and that allocates: the counter sees it.
+    if r.fp_traps() {
+        let before = allocations();
+        assert!(b.call(&mut r, 2).is_err());
+        assert!(allocations() > before);
+    }
+}

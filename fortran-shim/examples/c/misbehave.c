@@ -1,0 +1,184 @@
+/*
+ * misbehave.c -- routines that misbehave on purpose, for testing the guarded trampoline.
+ *
+ * Each routine is linear isotropic elasticity (properties [E, nu], no state, ncomp 6, 4, 3
+ * or 1, engineering shear, sigma = sigma0 + C dstrain) in increment 1, so its normal path
+ * gives real, checkable values. From increment 2 on it misbehaves:
+ *
+ *   bad_null_deref      writes through a null pointer             -> SIGSEGV at address 0
+ *   bad_divide_by_zero  stress[0] = (a computed value) / (a computed zero):
+ *                       with floating-point traps on -> SIGFPE (division by zero);
+ *                       without traps -> stress[0] is infinite and the call returns normally
+ *   bad_abort           calls abort()                              -> SIGABRT
+ *   bad_exit            calls exit(0), as a Fortran STOP does      -> the process ends
+ *   bad_deep_recursion  recurses without end, 4 KiB a frame        -> SIGSEGV, stack overflow
+ *
+ * Build: cc -I fortran-shim/include -c misbehave.c               (bad_*)
+ *        cc -I fortran-shim/include -DTC_COMPLEX -c misbehave.c  (bad_*_cx)
+ */
+
+#include <stdlib.h>
+
+#include "tancheck_routine.h"
+
+/* Elastic stiffness, column-major c[i + j*n], engineering shear columns (Hughes 2000,
+ * The Finite Element Method, ch. 2). Returns 0 for an ncomp it does not know. */
+static int misbehave_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
+{
+    if (n != 6 && n != 4 && n != 3 && n != 1) {
+        return 0;
+    }
+    for (int k = 0; k < n * n; ++k) {
+        c[k] = 0.0;
+    }
+    if (n == 1) {
+        c[0] = e;
+    } else if (n == 3) {
+        tc_real f = e / (1.0 - nu * nu);
+        c[0 + 0 * 3] = f;
+        c[1 + 1 * 3] = f;
+        c[0 + 1 * 3] = f * nu;
+        c[1 + 0 * 3] = f * nu;
+        c[2 + 2 * 3] = f * (1.0 - nu) / 2.0;
+    } else {
+        tc_real mu = e / (2.0 * (1.0 + nu));
+        tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
+        for (int i = 0; i < 3; ++i) {
+            for (int j = 0; j < 3; ++j) {
+                c[i + j * n] = lambda;
+            }
+            c[i + i * n] = lambda + 2.0 * mu;
+        }
+        for (int i = 3; i < n; ++i) {
+            c[i + i * n] = mu;
+        }
+    }
+    return 1;
+}
+
+static void misbehave_message(tc_report *report, const char *text)
+{
+    int k = 0;
+    for (const char *c = text; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
+        report->message[k++] = *c;
+    }
+    report->message[k] = '\0';
+}
+
+/* The well-behaved part shared by all routines. Returns 0 when it reported a failure. */
+static int misbehave_elastic(const tc_call *call, const tc_real *props, const tc_real *dstrain,
+                             const tc_real *stress0, const tc_real *state0, tc_real *stress,
+                             tc_real *state, tc_real *tangent, tc_report *report)
+{
+    const int n = call->ncomp;
+    if (call->nprop < 2) {
+        report->status = TC_STATUS_FAILED;
+        misbehave_message(report, "misbehave: needs 2 properties [E, nu]");
+        return 0;
+    }
+    if (!misbehave_stiffness(n, props[0], props[1], tangent)) {
+        report->status = TC_STATUS_FAILED;
+        misbehave_message(report, "misbehave: ncomp must be 6, 4, 3 or 1");
+        return 0;
+    }
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) {
+            s += tangent[i + j * n] * dstrain[j];
+        }
+        stress[i] = s;
+    }
+    for (int k = 0; k < call->nstate; ++k) {
+        state[k] = state0[k];
+    }
+    report->branch = 0;
+    report->status = TC_STATUS_OK;
+    return 1;
+}
+
+#define MISBEHAVE_UNUSED                                                                      \
+    (void)strain;                                                                            \
+    (void)temp;                                                                              \
+    (void)dstress_dtemp;                                                                     \
+    (void)energy
+
+TC_ROUTINE(bad_null_deref)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        /* Both volatile: the pointer's value is unknown to the compiler, and the store to
+         * it cannot be dropped as dead. */
+        volatile tc_real *volatile nowhere = NULL;
+        *nowhere = stress[0];
+    }
+}
+
+TC_ROUTINE(bad_divide_by_zero)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        /* E - E is zero at run time; volatile keeps the compiler from folding anything. */
+        volatile double e = props[0];
+        double zero = e - e;
+        stress[0] = stress[0] + e / zero;
+    }
+}
+
+TC_ROUTINE(bad_abort)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        abort();
+    }
+}
+
+TC_ROUTINE(bad_exit)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        exit(0);
+    }
+}
+
+/* One 4 KiB frame per level; the sum after the call keeps it from being a tail call, and
+ * volatile keeps the frame from being optimised away. */
+static double misbehave_descend(const volatile double *above, long depth)
+{
+    volatile double frame[512];
+    if (above[0] < 0.0) {
+        return 0.0; /* never: the values only grow; the compiler cannot know that */
+    }
+    frame[0] = above[0] + (double)depth;
+    frame[511] = frame[0];
+    return misbehave_descend(frame, depth + 1) + frame[511];
+}
+
+TC_ROUTINE(bad_deep_recursion)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        volatile double seed = 0.0;
+        double r = misbehave_descend(&seed, 0);
+        stress[0] = r; /* never reached */
+    }
+}

@@ -1,0 +1,497 @@
+/*
+ * guard.c -- the guarded trampoline through which tancheck calls a material routine.
+ *
+ * A routine that crashes (writes through a bad pointer, traps on a floating-point
+ * exception, calls abort, runs out of stack) should end one call, not the whole check.
+ * Every call into a loaded routine goes through tc_guard_call_real or tc_guard_call_complex.
+ * The trampoline marks the thread as "inside a guarded call", sets a jump point with
+ * sigsetjmp in its own frame and calls the routine. When SIGSEGV, SIGBUS, SIGFPE, SIGILL or
+ * SIGABRT arrives on that thread while the mark is set, the handler records the signal and
+ * jumps back to the trampoline, which returns a filled tc_guard_result. The jump crosses only
+ * the routine's frames (C or Fortran), never a Rust frame.
+ *
+ * A signal that arrives outside a guarded call goes to the handler that was installed before
+ * ours (for SIGSEGV and SIGBUS that is normally the Rust runtime's stack-overflow reporter),
+ * or gets the default action. Handlers run on the alternate signal stack; the trampoline
+ * gives a thread one when it has none, so that a stack overflow inside a routine is caught.
+ *
+ * Optionally the call runs with floating-point traps for invalid operation, division by
+ * zero and overflow. After the call, however it ended, the exception flags are cleared and
+ * the caller's trap mask (and, after a caught signal, its rounding mode) is restored.
+ *
+ * A routine that calls exit() during a guarded call (a Fortran STOP or ERROR STOP, a
+ * failed run-time check of the Fortran library) cannot be turned into a status: the process
+ * is going away. The guard then writes a message naming the routine to stderr and ends the
+ * process with TC_GUARD_EXIT_STATUS, so that a STOP can never look like a successful check.
+ *
+ * The hot path allocates nothing and makes no system call: sigsetjmp saves no signal mask,
+ * handlers are installed once per process and the alternate stack once per thread.
+ */
+#define _GNU_SOURCE
+#include <errno.h>
+#include <fenv.h>
+#include <pthread.h>
+#include <setjmp.h>
+#include <signal.h>
+#include <stddef.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/mman.h>
+#include <unistd.h>
+
+#include "tancheck_routine.h"
+
+/* Exit status of a process whose routine called exit() during a guarded call. */
+#define TC_GUARD_EXIT_STATUS 70
+
+/* Portable kinds of caught signal (the numbers differ between systems). */
+#define TC_GUARD_SEGV 1
+#define TC_GUARD_BUS 2
+#define TC_GUARD_FPE 3
+#define TC_GUARD_ILL 4
+#define TC_GUARD_ABRT 5
+
+/* Portable details of a caught signal, from si_code. 0 is "nothing more known". */
+#define TC_GUARD_SEGV_MAPERR 1 /* address not mapped */
+#define TC_GUARD_SEGV_ACCERR 2 /* mapped, but not with that access */
+#define TC_GUARD_SEGV_STACK 3  /* the address lies in the thread's stack guard region */
+#define TC_GUARD_BUS_ADRALN 1
+#define TC_GUARD_BUS_ADRERR 2
+#define TC_GUARD_BUS_OBJERR 3
+#define TC_GUARD_FPE_INTDIV 1
+#define TC_GUARD_FPE_INTOVF 2
+#define TC_GUARD_FPE_FLTDIV 3
+#define TC_GUARD_FPE_FLTOVF 4
+#define TC_GUARD_FPE_FLTUND 5
+#define TC_GUARD_FPE_FLTRES 6
+#define TC_GUARD_FPE_FLTINV 7
+#define TC_GUARD_FPE_FLTSUB 8
+#define TC_GUARD_ILL_OPCODE 1 /* illegal opcode or operand, e.g. a compiler-inserted trap */
+#define TC_GUARD_ILL_PRIV 2   /* privileged instruction or register */
+#define TC_GUARD_ILL_OTHER 3
+
+/* The arguments of one routine call, in ABI order, plus the guard's own options.
+ * Mirrored by GuardArgs in crates/tancheck-abi/src/guard.rs. */
+typedef struct tc_guard_args {
+    const tc_call *call;
+    const void *props;
+    const void *strain;
+    const void *dstrain;
+    const void *temp;
+    const void *stress0;
+    const void *state0;
+    void *stress;
+    void *state;
+    void *tangent;
+    void *dstress_dtemp;
+    void *energy;
+    tc_report *report;
+    const char *label; /* NUL-terminated routine name for the exit() message, or NULL */
+    int32_t fp_traps;  /* nonzero: trap FE_INVALID, FE_DIVBYZERO, FE_OVERFLOW in the call */
+    int32_t reserved;
+} tc_guard_args;
+
+/* How a guarded call ended. Mirrored by GuardResult in guard.rs. */
+typedef struct tc_guard_result {
+    int32_t caught; /* 0: the routine returned; 1: a signal ended the call */
+    int32_t signal; /* the signal number */
+    int32_t kind;   /* TC_GUARD_SEGV ... */
+    int32_t detail; /* TC_GUARD_*_* from si_code */
+    int32_t code;   /* raw si_code */
+    int32_t reserved;
+    uint64_t address; /* si_addr for SIGSEGV, SIGBUS, SIGFPE and SIGILL; else 0 */
+} tc_guard_result;
+
+typedef void (*tc_guard_cx_fn)(const tc_call *call, const _Complex double *props,
+                               const _Complex double *strain, const _Complex double *dstrain,
+                               const _Complex double *temp, const _Complex double *stress0,
+                               const _Complex double *state0, _Complex double *stress,
+                               _Complex double *state, _Complex double *tangent,
+                               _Complex double *dstress_dtemp, _Complex double *energy,
+                               tc_report *report);
+
+/* ---- per-thread state -------------------------------------------------------------- */
+
+typedef struct guard_thread {
+    sigjmp_buf *volatile jump;      /* where the handler lands; valid while inside != 0 */
+    volatile sig_atomic_t inside;   /* nonzero during the routine call */
+    const char *volatile label;     /* routine name of the current call */
+    volatile int sig, code;
+    void *volatile addr;
+    int prepared;                   /* alternate stack and stack bounds are set up */
+    uintptr_t stack_lo;             /* lowest usable address of this thread's stack, or 0 */
+} guard_thread;
+
+/* initial-exec: the handler must reach the variable without a lazy allocation. */
+static __thread guard_thread tc_thread __attribute__((tls_model("initial-exec")));
+
+#define GUARD_FENCE() __atomic_signal_fence(__ATOMIC_SEQ_CST)
+
+/* ---- process-wide state ------------------------------------------------------------ */
+
+static const int guarded_signals[] = {SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT};
+#define N_GUARDED ((int)(sizeof guarded_signals / sizeof guarded_signals[0]))
+
+static struct sigaction previous[N_GUARDED]; /* handlers in place before ours */
+static pthread_once_t install_once = PTHREAD_ONCE_INIT;
+static pthread_key_t altstack_key;
+static int install_error; /* errno of a failed sigaction, 0 when all went well */
+
+static int slot_of(int sig) {
+    for (int i = 0; i < N_GUARDED; i++)
+        if (guarded_signals[i] == sig) return i;
+    return -1;
+}
+
+static void write_stderr(const char *s) {
+    size_t n = strlen(s);
+    while (n > 0) {
+        ssize_t w = write(2, s, n);
+        if (w <= 0) {
+            if (w < 0 && errno == EINTR) continue;
+            return;
+        }
+        s += w;
+        n -= (size_t)w;
+    }
+}
+
+/* Hand a signal that is not ours to whoever had it before, or apply the default action. */
+static void chain(int sig, siginfo_t *info, void *context) {
+    int slot = slot_of(sig);
+    const struct sigaction *old = slot >= 0 ? &previous[slot] : NULL;
+    int fault = info != NULL && info->si_code > 0; /* raised by the CPU, not sent */
+
+    if (old != NULL && old->sa_handler != SIG_DFL && old->sa_handler != SIG_IGN) {
+        if (old->sa_flags & SA_SIGINFO)
+            old->sa_sigaction(sig, info, context);
+        else
+            old->sa_handler(sig);
+        return;
+    }
+    if (old != NULL && old->sa_handler == SIG_IGN && !fault) return;
+
+    /* Default action: put it back and let the signal happen again. A fault re-executes
+     * the faulting instruction on return; a sent signal is raised anew. */
+    struct sigaction dfl;
+    memset(&dfl, 0, sizeof dfl);
+    dfl.sa_handler = SIG_DFL;
+    sigemptyset(&dfl.sa_mask);
+    sigaction(sig, &dfl, NULL);
+    if (!fault) raise(sig);
+}
+
+static int detail_of(int sig, int code, uintptr_t addr, uintptr_t stack_lo) {
+    switch (sig) {
+    case SIGSEGV:
+        /* The guard page (or gap) lies just below the lowest usable stack address. A
+         * stack overflow faults there or, with a large frame, up to a few MiB below. */
+        if (stack_lo != 0 && addr < stack_lo + 4096 && addr + (8u << 20) >= stack_lo)
+            return TC_GUARD_SEGV_STACK;
+        if (code == SEGV_MAPERR) return TC_GUARD_SEGV_MAPERR;
+        if (code == SEGV_ACCERR) return TC_GUARD_SEGV_ACCERR;
+        return 0;
+    case SIGBUS:
+        if (code == BUS_ADRALN) return TC_GUARD_BUS_ADRALN;
+        if (code == BUS_ADRERR) return TC_GUARD_BUS_ADRERR;
+        if (code == BUS_OBJERR) return TC_GUARD_BUS_OBJERR;
+        return 0;
+    case SIGFPE:
+        switch (code) {
+        case FPE_INTDIV: return TC_GUARD_FPE_INTDIV;
+        case FPE_INTOVF: return TC_GUARD_FPE_INTOVF;
+        case FPE_FLTDIV: return TC_GUARD_FPE_FLTDIV;
+        case FPE_FLTOVF: return TC_GUARD_FPE_FLTOVF;
+        case FPE_FLTUND: return TC_GUARD_FPE_FLTUND;
+        case FPE_FLTRES: return TC_GUARD_FPE_FLTRES;
+        case FPE_FLTINV: return TC_GUARD_FPE_FLTINV;
+        case FPE_FLTSUB: return TC_GUARD_FPE_FLTSUB;
+        default: return 0;
+        }
+    case SIGILL:
+        if (code == ILL_ILLOPC || code == ILL_ILLOPN) return TC_GUARD_ILL_OPCODE;
+        if (code == ILL_PRVOPC || code == ILL_PRVREG) return TC_GUARD_ILL_PRIV;
+        return code > 0 ? TC_GUARD_ILL_OTHER : 0;
+    default:
+        return 0;
+    }
+}
+
+static void guard_handler(int sig, siginfo_t *info, void *context) {
+    guard_thread *t = &tc_thread;
+    if (t->inside && t->jump != NULL) {
+        /* Ours only when raised by this call: a CPU fault, or a signal this process sent
+         * to itself (abort, raise). A signal sent from elsewhere keeps its meaning. */
+        int sent = info != NULL && info->si_code == SI_USER;
+#ifdef SI_TKILL
+        sent = sent || (info != NULL && info->si_code == SI_TKILL);
+#endif
+        int own = info == NULL || info->si_code > 0 || (sent && info->si_pid == getpid());
+        if (own) {
+            t->inside = 0;
+            t->sig = sig;
+            t->code = info != NULL ? info->si_code : 0;
+            t->addr = (info != NULL && info->si_code > 0) ? info->si_addr : NULL;
+            GUARD_FENCE();
+            siglongjmp(*t->jump, 1);
+        }
+    }
+    chain(sig, info, context);
+}
+
+/* exit() during a guarded call: the routine ended the process. Say so, and make sure the
+ * exit status cannot be mistaken for a successful check. */
+static void guard_at_exit(void) {
+    guard_thread *t = &tc_thread;
+    if (!t->inside) return;
+    write_stderr("tancheck: the material routine ");
+    if (t->label != NULL) {
+        write_stderr("`");
+        write_stderr(t->label);
+        write_stderr("` ");
+    }
+    write_stderr("ended the process by calling exit() during a call (a Fortran STOP or "
+                 "ERROR STOP, or a failed run-time check such as an array bound, does this). "
+                 "A routine must report failure through report->status instead. See the "
+                 "routine's own message above.\n");
+    _exit(TC_GUARD_EXIT_STATUS);
+}
+
+
+/* ---- installation ------------------------------------------------------------------ */
+
+static size_t page_size = 4096;
+static size_t altstack_size = 64 * 1024;
+
+static void free_altstack(void *mem) {
+    stack_t cur;
+    if (sigaltstack(NULL, &cur) == 0 && cur.ss_sp == (char *)mem + page_size) {
+        stack_t off;
+        memset(&off, 0, sizeof off);
+        off.ss_flags = SS_DISABLE;
+        sigaltstack(&off, NULL);
+    }
+    munmap(mem, page_size + altstack_size);
+}
+
+static void install(void) {
+    long page = sysconf(_SC_PAGESIZE);
+    if (page > 0) page_size = (size_t)page;
+    size_t want = 64 * 1024;
+#ifdef _SC_SIGSTKSZ
+    long sys = sysconf(_SC_SIGSTKSZ);
+    if (sys > 0 && 4 * (size_t)sys > want) want = 4 * (size_t)sys;
+#endif
+    altstack_size = (want + page_size - 1) / page_size * page_size;
+    if (pthread_key_create(&altstack_key, free_altstack) != 0) install_error = EAGAIN;
+
+    struct sigaction sa;
+    memset(&sa, 0, sizeof sa);
+    sa.sa_sigaction = guard_handler;
+    sa.sa_flags = SA_SIGINFO | SA_ONSTACK | SA_NODEFER;
+    sigemptyset(&sa.sa_mask);
+    for (int i = 0; i < N_GUARDED; i++) {
+        if (sigaction(guarded_signals[i], &sa, &previous[i]) != 0) {
+            install_error = errno;
+            continue;
+        }
+        /* Never chain to ourselves (a second copy of this file in the process). */
+        if ((previous[i].sa_flags & SA_SIGINFO) && previous[i].sa_sigaction == guard_handler) {
+            memset(&previous[i], 0, sizeof previous[i]);
+            previous[i].sa_handler = SIG_DFL;
+        }
+    }
+    if (atexit(guard_at_exit) != 0 && install_error == 0) install_error = ENOMEM;
+}
+
+/* Once per thread: an alternate signal stack when the thread has none, and the stack's
+ * lower bound for recognising a stack overflow. */
+static void prepare_thread(guard_thread *t) {
+    pthread_once(&install_once, install);
+    stack_t cur;
+    if (sigaltstack(NULL, &cur) != 0 || (cur.ss_flags & SS_DISABLE) ||
+        cur.ss_size < (size_t)MINSIGSTKSZ) {
+        void *mem = mmap(NULL, page_size + altstack_size, PROT_READ | PROT_WRITE,
+                         MAP_PRIVATE | MAP_ANONYMOUS, -1, 0);
+        if (mem != MAP_FAILED) {
+            mprotect(mem, page_size, PROT_NONE); /* guard page below the signal stack */
+            stack_t ss;
+            memset(&ss, 0, sizeof ss);
+            ss.ss_sp = (char *)mem + page_size;
+            ss.ss_size = altstack_size;
+            if (sigaltstack(&ss, NULL) == 0)
+                pthread_setspecific(altstack_key, mem);
+            else
+                munmap(mem, page_size + altstack_size);
+        }
+    }
+#if defined(__GLIBC__) || defined(__linux__)
+    pthread_attr_t attr;
+    if (pthread_getattr_np(pthread_self(), &attr) == 0) {
+        void *lo;
+        size_t size;
+        if (pthread_attr_getstack(&attr, &lo, &size) == 0) t->stack_lo = (uintptr_t)lo;
+        pthread_attr_destroy(&attr);
+    }
+#endif
+    t->prepared = 1;
+}
+
+/* Install the handlers (once) and prepare the calling thread. Returns 0, or the errno of
+ * the step that failed. Calling it is optional: the trampolines prepare lazily. */
+int32_t tc_guard_prepare(void) {
+    guard_thread *t = &tc_thread;
+    if (!t->prepared) prepare_thread(t);
+    return install_error;
+}
+
+/* Nonzero when this thread has an alternate signal stack (after tc_guard_prepare). */
+int32_t tc_guard_has_altstack(void) {
+    stack_t cur;
+    return sigaltstack(NULL, &cur) == 0 && !(cur.ss_flags & SS_DISABLE);
+}
+
+/* Drop the calling thread's alternate signal stack, as a thread made outside Rust has none.
+ * For tests of the guard only; call it before the thread's first guarded call. */
+int32_t tc_guard_drop_altstack(void) {
+    stack_t off;
+    memset(&off, 0, sizeof off);
+    off.ss_flags = SS_DISABLE;
+    return sigaltstack(&off, NULL) == 0 ? 0 : errno;
+}
+
+/* ---- floating-point traps ---------------------------------------------------------- */
+
+#define GUARD_TRAPS (FE_INVALID | FE_DIVBYZERO | FE_OVERFLOW)
+
+/* Nonzero when this machine can trap the three exceptions. */
+int32_t tc_guard_fp_traps_available(void) {
+#if defined(__GLIBC__) && defined(FE_INVALID) && defined(FE_DIVBYZERO) && defined(FE_OVERFLOW)
+    int before = fegetexcept();
+    int ok = feenableexcept(GUARD_TRAPS) != -1 && (fegetexcept() & GUARD_TRAPS) == GUARD_TRAPS;
+    fedisableexcept(FE_ALL_EXCEPT);
+    if (before > 0) feenableexcept(before);
+    return ok;
+#else
+    return 0;
+#endif
+}
+
+typedef struct guard_fp {
+    int mask;  /* trap mask before the call, or -1 */
+    int round; /* rounding mode before the call */
+} guard_fp;
+
+static inline guard_fp fp_enter(int traps) {
+    guard_fp fp = {-1, 0};
+#if defined(__GLIBC__) && defined(FE_INVALID) && defined(FE_DIVBYZERO) && defined(FE_OVERFLOW)
+    fp.mask = fegetexcept();
+    fp.round = fegetround();
+    if (traps) {
+        feclearexcept(FE_ALL_EXCEPT);
+        feenableexcept(GUARD_TRAPS);
+    }
+#else
+    (void)traps;
+#endif
+    return fp;
+}
+
+/* After the call: clear the flags, restore the trap mask (and the rounding mode when a
+ * signal handler ran, since the kernel starts handlers with a fresh floating-point state). */
+static inline void fp_leave(int traps, int caught, guard_fp fp) {
+#if defined(__GLIBC__) && defined(FE_INVALID) && defined(FE_DIVBYZERO) && defined(FE_OVERFLOW)
+    if (traps || caught) {
+        feclearexcept(FE_ALL_EXCEPT);
+        fedisableexcept(FE_ALL_EXCEPT);
+        if (fp.mask > 0) feenableexcept(fp.mask);
+    }
+    if (caught) fesetround(fp.round);
+#else
+    (void)traps;
+    (void)caught;
+    (void)fp;
+#endif
+}
+
+/* ---- the trampolines --------------------------------------------------------------- */
+
+static int kind_of(int sig) {
+    switch (sig) {
+    case SIGSEGV: return TC_GUARD_SEGV;
+    case SIGBUS: return TC_GUARD_BUS;
+    case SIGFPE: return TC_GUARD_FPE;
+    case SIGILL: return TC_GUARD_ILL;
+    case SIGABRT: return TC_GUARD_ABRT;
+    default: return 0;
+    }
+}
+
+static void fill_caught(const guard_thread *t, tc_guard_result *r) {
+    r->caught = 1;
+    r->signal = t->sig;
+    r->kind = kind_of(t->sig);
+    r->code = t->code;
+    r->address = (uint64_t)(uintptr_t)t->addr;
+    r->detail = detail_of(t->sig, t->code, (uintptr_t)t->addr, t->stack_lo);
+}
+
+/* One trampoline per element type. Everything that must survive the jump is either set
+ * before sigsetjmp and never changed afterwards, or lives in the thread state. */
+#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T)                                            \
+    int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                   \
+        guard_thread *t = &tc_thread;                                                      \
+        if (!t->prepared) prepare_thread(t);                                               \
+        sigjmp_buf *const outer_jump = t->jump;                                            \
+        const sig_atomic_t outer_inside = t->inside;                                       \
+        const char *const outer_label = t->label;                                          \
+        const int traps = a->fp_traps != 0;                                                \
+        sigjmp_buf here;                                                                   \
+        memset(r, 0, sizeof *r);                                                           \
+        const guard_fp fp = fp_enter(traps);                                               \
+        if (sigsetjmp(here, 0) == 0) {                                                     \
+            t->label = a->label;                                                           \
+            t->jump = &here;                                                               \
+            GUARD_FENCE();                                                                 \
+            t->inside = 1;                                                                 \
+            GUARD_FENCE();                                                                 \
+            fn(a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,               \
+               (const REAL_T *)a->dstrain, (const REAL_T *)a->temp,                        \
+               (const REAL_T *)a->stress0, (const REAL_T *)a->state0, (REAL_T *)a->stress, \
+               (REAL_T *)a->state, (REAL_T *)a->tangent, (REAL_T *)a->dstress_dtemp,       \
+               (REAL_T *)a->energy, a->report);                                            \
+            GUARD_FENCE();                                                                 \
+            t->inside = 0;                                                                 \
+            GUARD_FENCE();                                                                 \
+        } else {                                                                           \
+            fill_caught(t, r);                                                             \
+        }                                                                                  \
+        fp_leave(traps, r->caught, fp);                                                    \
+        t->jump = outer_jump;                                                              \
+        t->label = outer_label;                                                            \
+        GUARD_FENCE();                                                                     \
+        t->inside = outer_inside;                                                          \
+        return r->caught;                                                                  \
+    }
+
+TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double)
+TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double)
+
+/* ---- layout and constants, for the Rust side's checks ------------------------------ */
+
+/* Sizes and offsets of the structs both sides share; see guard.rs. */
+void tc_guard_layout(uint64_t out[12]) {
+    out[0] = sizeof(tc_call);
+    out[1] = offsetof(tc_call, time);
+    out[2] = offsetof(tc_call, dtime);
+    out[3] = sizeof(tc_report);
+    out[4] = offsetof(tc_report, step_ratio);
+    out[5] = offsetof(tc_report, message);
+    out[6] = sizeof(tc_guard_args);
+    out[7] = offsetof(tc_guard_args, label);
+    out[8] = offsetof(tc_guard_args, fp_traps);
+    out[9] = sizeof(tc_guard_result);
+    out[10] = offsetof(tc_guard_result, address);
+    out[11] = TC_GUARD_EXIT_STATUS;
+}
