@@ -14,6 +14,7 @@ use std::str::FromStr;
 #[serde(rename_all = "kebab-case")]
 pub enum PointKind {
     /// Three-dimensional solid: 11, 22, 33, 23, 13, 12.
+    #[serde(rename = "solid-3d")]
     Solid3d,
     /// Plane strain: 11, 22, 33, 12 with ε33 held at zero by the driver.
     PlaneStrain,
@@ -24,8 +25,10 @@ pub enum PointKind {
     /// Uniaxial: 11.
     Uniaxial,
     /// Cohesive interface in 3D: opening, first slip, second slip.
+    #[serde(rename = "cohesive-3d")]
     Cohesive3d,
     /// Cohesive interface in 2D: opening, slip.
+    #[serde(rename = "cohesive-2d")]
     Cohesive2d,
 }
 
@@ -489,6 +492,15 @@ mod tests {
             prop_assert!((fro(&ta) - fro(&entries)).abs() <= 1e-13 * fro(&entries));
             a.tangent_from_mandel(&mut ta);
             for k in 0..36 { prop_assert!((ta[k] - orig_a[k]).abs() <= 1e-13 * orig_a[k].abs().max(1e-12)); }
+        }
+    }
+
+    #[test]
+    fn kind_names_are_the_same_in_files_and_on_the_command_line() {
+        for k in PointKind::ALL {
+            let json = serde_json::to_string(&k).unwrap();
+            assert_eq!(json, format!("\"{}\"", k.name()));
+            assert_eq!(k.name().parse::<PointKind>().unwrap(), k);
         }
     }
 

@@ -1,0 +1,235 @@
+//! Argument parsing and the commands.
+
+use std::io::Write;
+use std::path::PathBuf;
+
+use anyhow::{bail, Context, Result};
+use clap::{Args, Parser, Subcommand};
+
+use tancheck_core::path::{Path, Shape};
+use tancheck_core::{check, Caller, PointKind, Report, Scheme};
+
+use crate::exit;
+use crate::load::{load, start_state};
+use crate::manifest::{parse_path_arg, Manifest};
+use crate::report::json::Json;
+use crate::report::terminal::{Detail, Terminal};
+use crate::report::{write_atomic, Reporter};
+
+#[derive(Parser, Debug)]
+#[command(
+    name = "tancheck",
+    version,
+    about = "Checks that a material routine's tangent is the derivative of its own stress update",
+    after_help = "Exit codes: 0 pass, 1 tangent failure, 2 bad input or usage, 3 the routine crashed or failed."
+)]
+struct Cli {
+    #[command(subcommand)]
+    command: Command,
+}
+
+#[derive(Subcommand, Debug)]
+enum Command {
+    /// Check one routine described by a manifest file.
+    Check(CheckArgs),
+    /// Compile C and Fortran sources into a shared library, with the complex-step twin.
+    Build(BuildArgs),
+    /// Build the bundled example routines and check them.
+    Demo(DemoArgs),
+    /// List the built-in reference models and their properties.
+    Models,
+}
+
+#[derive(Args, Debug)]
+struct CheckArgs {
+    /// The manifest (JSON) that names the routine, its properties and the path.
+    manifest: PathBuf,
+    /// Path to walk instead of the manifest's: SHAPE:PEAK:STEPS[:BACK]
+    /// (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic, tension-shear).
+    #[arg(long, value_name = "SPEC")]
+    path: Option<String>,
+    /// Scheme to run (repeat for several): forward, central, complex-step.
+    #[arg(long = "scheme", value_name = "NAME")]
+    schemes: Vec<String>,
+    /// Tolerance of a scheme, e.g. --tol central=1e-7 (repeatable).
+    #[arg(long = "tol", value_name = "SCHEME=VALUE")]
+    tols: Vec<String>,
+    /// Relative step of a scheme, e.g. --step central=1e-5 (repeatable).
+    #[arg(long = "step", value_name = "SCHEME=VALUE")]
+    steps: Vec<String>,
+    /// Write the JSON report to FILE (`-` for standard output, replacing the readable report).
+    #[arg(long, value_name = "FILE")]
+    json: Option<PathBuf>,
+    /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
+    #[arg(long)]
+    fp_traps: bool,
+    /// Print only failures and the verdict.
+    #[arg(short, long, conflicts_with = "verbose")]
+    quiet: bool,
+    /// Print the details of every check.
+    #[arg(short, long)]
+    verbose: bool,
+}
+
+#[derive(Args, Debug)]
+struct BuildArgs {
+    /// C (.c) and Fortran (.f, .f90, .F90, ...) sources.
+    #[arg(required = true)]
+    sources: Vec<PathBuf>,
+    /// The shared library to write.
+    #[arg(short, long, value_name = "LIB")]
+    output: PathBuf,
+    /// Debug build: bounds checks, floating-point traps, backtraces, signaling-NaN reals.
+    #[arg(long)]
+    debug: bool,
+    /// Do not build the complex-step twin.
+    #[arg(long)]
+    no_twin: bool,
+    /// Print every compiler command.
+    #[arg(short, long)]
+    verbose: bool,
+}
+
+#[derive(Args, Debug)]
+pub struct DemoArgs {
+    /// Keep the built libraries and manifests in this folder.
+    #[arg(long, value_name = "DIR")]
+    pub keep: Option<PathBuf>,
+    /// Print the full report of every routine.
+    #[arg(short, long)]
+    pub verbose: bool,
+}
+
+/// Run the command line; returns the exit code.
+pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32 {
+    let cli = match Cli::try_parse_from(args) {
+        Ok(c) => c,
+        Err(e) => {
+            let _ = e.print();
+            return if e.use_stderr() { exit::BAD_INPUT } else { exit::PASS };
+        }
+    };
+    let result = match cli.command {
+        Command::Check(a) => cmd_check(a),
+        Command::Build(a) => cmd_build(a),
+        Command::Demo(a) => crate::demo::run(&a),
+        Command::Models => cmd_models(),
+    };
+    match result {
+        Ok(code) => code,
+        Err(e) => {
+            eprintln!("tancheck: {e:#}");
+            exit::BAD_INPUT
+        }
+    }
+}
+
+fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
+    let Some((name, v)) = s.split_once('=') else {
+        bail!("--{what} takes SCHEME=VALUE, e.g. central=1e-7; got `{s}`");
+    };
+    let scheme: Scheme = name.parse().map_err(anyhow::Error::msg)?;
+    let value: f64 = v.parse().with_context(|| format!("--{what}: `{v}` is not a number"))?;
+    Ok((scheme, value))
+}
+
+/// The default path: into the inelastic range of typical metals and back.
+pub fn default_path(kind: PointKind) -> Path {
+    let shape = if kind == PointKind::Uniaxial { Shape::UniaxialStrain } else { Shape::TensionShear };
+    Path::ramp(shape, 4e-3, 8, 4)
+}
+
+fn cmd_check(a: CheckArgs) -> Result<i32> {
+    let (mut m, dir) = Manifest::load(&a.manifest)?;
+    if !a.schemes.is_empty() {
+        m.check.schemes =
+            a.schemes.iter().map(|s| s.parse()).collect::<Result<_, String>>().map_err(anyhow::Error::msg)?;
+    }
+    for t in &a.tols {
+        let (s, v) = scheme_value(t, "tol")?;
+        m.check.scheme_mut(s).tol = v;
+    }
+    for t in &a.steps {
+        let (s, v) = scheme_value(t, "step")?;
+        m.check.scheme_mut(s).rel_step = v;
+    }
+    m.check.validate().map_err(anyhow::Error::msg)?;
+    m.fp_traps |= a.fp_traps;
+    let path = match &a.path {
+        Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
+        None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
+    };
+    let report = run_manifest(&m, &dir, &path)?;
+    let detail = if a.quiet {
+        Detail::Quiet
+    } else if a.verbose {
+        Detail::Verbose
+    } else {
+        Detail::Normal
+    };
+    emit(&report, detail, a.json.as_deref())?;
+    Ok(report.exit_code())
+}
+
+/// Load and check the routine a manifest names.
+pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<Report> {
+    let mut loaded = load(m, dir)?;
+    let routine = loaded.routine();
+    let start = start_state(m, routine.info())?;
+    let mut caller = Caller::new(routine);
+    check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg)
+}
+
+/// Print the readable report and/or write the JSON one.
+pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> Result<()> {
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    match json {
+        Some(p) if p.as_os_str() == "-" => Json.write(report, &mut out)?,
+        other => {
+            Terminal { detail }.write(report, &mut out)?;
+            if let Some(p) = other {
+                let mut buf = Vec::new();
+                Json.write(report, &mut buf)?;
+                write_atomic(p, &buf)
+                    .with_context(|| format!("writing the JSON report to {}", p.display()))?;
+            }
+            if detail != Detail::Quiet {
+                for c in &report.cautions {
+                    writeln!(out, "   caution: {c}")?;
+                }
+            }
+        }
+    }
+    Ok(())
+}
+
+fn cmd_build(a: BuildArgs) -> Result<i32> {
+    let opts = tancheck_abi::compile::BuildOptions {
+        sources: a.sources,
+        output: a.output,
+        debug: a.debug,
+        twin: !a.no_twin,
+        ..Default::default()
+    };
+    let log = tancheck_abi::compile::build_library(&opts)?;
+    if a.verbose {
+        for c in &log.commands {
+            println!("{}", c.command_line());
+        }
+    }
+    println!(
+        "built {}{}",
+        opts.output.display(),
+        if opts.twin { " (with complex-step twins, suffix _cx)" } else { "" }
+    );
+    Ok(exit::PASS)
+}
+
+fn cmd_models() -> Result<i32> {
+    for name in tancheck_models::NAMES {
+        let m = tancheck_models::AnyModel::new(name, PointKind::Solid3d)?;
+        println!("{name:<14} properties: {}", m.prop_names().join(", "));
+    }
+    Ok(exit::PASS)
+}

@@ -1,0 +1,22 @@
+//! The `tancheck` command line: manifests, routines, reporters and the commands
+//! `check`, `build`, `demo` and `models`.
+
+pub mod cli;
+pub mod demo;
+pub mod load;
+pub mod manifest;
+pub mod report;
+
+pub use cli::main_with_args;
+
+/// Exit codes of the command line. Fixed numbers, never renumbered.
+pub mod exit {
+    /// Every check passed.
+    pub const PASS: i32 = 0;
+    /// A tangent check failed.
+    pub const TANGENT_FAILURE: i32 = 1;
+    /// Bad input or usage: manifest, library, symbol, arguments.
+    pub const BAD_INPUT: i32 = 2;
+    /// The routine crashed or reported that it could not compute an increment.
+    pub const ROUTINE_FAULT: i32 = 3;
+}

@@ -1,0 +1,88 @@
+//! Turning a manifest into a routine to check: a built-in model or a loaded library.
+
+use std::path::Path as FsPath;
+
+use anyhow::{bail, Context, Result};
+use tancheck_abi::{Library, LibraryRoutine};
+use tancheck_core::{PointState, Routine, RoutineInfo};
+use tancheck_models::{reference, AnyModel};
+
+use crate::manifest::Manifest;
+
+/// A routine named by a manifest.
+pub enum Loaded {
+    Model(tancheck_core::ModelRoutine<AnyModel>),
+    Library(Box<LibraryRoutine>),
+}
+
+impl Loaded {
+    pub fn routine(&mut self) -> &mut dyn Routine {
+        match self {
+            Loaded::Model(m) => m,
+            Loaded::Library(l) => l.as_mut(),
+        }
+    }
+}
+
+/// Load what the manifest names. `dir` is the manifest's folder (relative library paths).
+pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
+    let r = &m.routine;
+    let conv = m.convention().map_err(anyhow::Error::msg)?;
+    if let Some(name) = &r.model {
+        let model = reference(name, r.kind)?;
+        let info = model.info();
+        if info.convention != conv {
+            bail!(
+                "the built-in model `{name}` works in the default component order with engineering shear; \
+                 remove routine.order and routine.shear from the manifest"
+            );
+        }
+        if r.properties.len() != info.nprop {
+            bail!(
+                "the model `{name}` takes {} properties; the manifest gives {}",
+                info.nprop,
+                r.properties.len()
+            );
+        }
+        if let Some(n) = r.states {
+            if n != info.nstate {
+                bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
+            }
+        }
+        return Ok(Loaded::Model(model));
+    }
+    let lib_path = r.library.as_ref().expect("validated: library or model");
+    let lib_path = if lib_path.is_relative() { dir.join(lib_path) } else { lib_path.clone() };
+    let symbol = r.symbol.as_ref().expect("validated: symbol with library");
+    let lib = Library::open(&lib_path)?;
+    let info = RoutineInfo {
+        name: format!("{}:{symbol}", lib_path.file_name().map(|f| f.to_string_lossy()).unwrap_or_default()),
+        convention: conv,
+        nstate: r.states.expect("validated: states with library"),
+        nprop: r.properties.len(),
+    };
+    let mut routine = lib.routine(symbol, info)?;
+    if m.fp_traps {
+        routine.set_fp_traps(true).context("switching floating-point traps on")?;
+    }
+    Ok(Loaded::Library(Box::new(routine)))
+}
+
+/// The start state from the manifest (zero where it says nothing).
+pub fn start_state(m: &Manifest, info: &RoutineInfo) -> Result<PointState> {
+    let mut s = PointState::zero(info, m.start.temperature);
+    let n = info.convention.ncomp();
+    for (what, given, want, dst) in [
+        ("start.strain", &m.start.strain, n, &mut s.strain),
+        ("start.stress", &m.start.stress, n, &mut s.stress),
+        ("start.state", &m.start.state, info.nstate, &mut s.state),
+    ] {
+        if let Some(v) = given {
+            if v.len() != want {
+                bail!("{what} has {} entries; the routine needs {want}", v.len());
+            }
+            dst.copy_from_slice(v);
+        }
+    }
+    Ok(s)
+}

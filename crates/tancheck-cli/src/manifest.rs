@@ -1,0 +1,240 @@
+//! The manifest: a JSON file that describes one routine and how to check it.
+//!
+//! ```json
+//! {
+//!   "routine": {
+//!     "library": "libj2.so", "symbol": "c_j2",
+//!     "kind": "solid-3d", "order": ["11","22","33","23","13","12"], "shear": "engineering",
+//!     "states": 13, "properties": [200000, 0.3, 250, 1000, 0, 0, 500]
+//!   },
+//!   "start": { "temperature": 20 },
+//!   "path": { "shape": "tension-shear", "peak": 0.004, "steps": 8, "back": 4 },
+//!   "check": { "schemes": ["central", "complex-step"], "central": { "rel_step": 6e-6, "tol": 1e-6 } },
+//!   "fp_traps": false
+//! }
+//! ```
+//! Instead of `library` and `symbol`, `"model": "j2"` picks a built-in Rust model. A relative
+//! library path is relative to the manifest's folder. Unknown fields are errors.
+
+use serde::Deserialize;
+use std::path::{Path as FsPath, PathBuf};
+
+use tancheck_core::path::{Path, PathIncrement, Shape};
+use tancheck_core::{Convention, PointKind, Settings, ShearMeasure};
+
+/// A manifest as read from a file.
+#[derive(Clone, Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct Manifest {
+    pub routine: RoutineSpec,
+    #[serde(default)]
+    pub start: StartSpec,
+    #[serde(default)]
+    pub path: Option<PathSpec>,
+    #[serde(default)]
+    pub check: Settings,
+    #[serde(default)]
+    pub fp_traps: bool,
+}
+
+#[derive(Clone, Debug, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct RoutineSpec {
+    /// Shared library with the routine.
+    pub library: Option<PathBuf>,
+    /// Exported symbol name.
+    pub symbol: Option<String>,
+    /// A built-in Rust model instead of a library: "elastic", "j2", "j2-continuum".
+    pub model: Option<String>,
+    pub kind: PointKind,
+    /// Component order as labels; default: the kind's default order.
+    pub order: Option<Vec<String>>,
+    #[serde(default)]
+    pub shear: ShearMeasure,
+    /// Number of state variables (for a library; a model knows its own).
+    pub states: Option<usize>,
+    pub properties: Vec<f64>,
+}
+
+#[derive(Clone, Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct StartSpec {
+    pub strain: Option<Vec<f64>>,
+    pub stress: Option<Vec<f64>>,
+    pub state: Option<Vec<f64>>,
+    #[serde(default)]
+    pub temperature: f64,
+}
+
+/// Either a built-in shape loaded to `peak` in `steps` increments and back to zero in
+/// `back`, or `increments` given one by one (canonical tensor components 11, 22, 33, 23,
+/// 13, 12).
+#[derive(Clone, Debug, Default, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct PathSpec {
+    pub shape: Option<String>,
+    pub peak: Option<f64>,
+    pub steps: Option<usize>,
+    #[serde(default)]
+    pub back: usize,
+    pub name: Option<String>,
+    pub increments: Option<Vec<PathIncrement>>,
+}
+
+/// A ramp along a built-in shape.
+#[derive(Clone, Debug)]
+pub struct RampSpec {
+    pub shape: String,
+    pub peak: f64,
+    pub steps: usize,
+    pub back: usize,
+}
+
+/// A manifest that cannot be used, with where and why.
+#[derive(Debug, thiserror::Error)]
+#[non_exhaustive]
+pub enum ManifestError {
+    #[error("cannot read manifest {path}: {source}")]
+    Read { path: PathBuf, source: std::io::Error },
+    #[error("{path}:{line}:{column}: {message}")]
+    Parse { path: PathBuf, line: usize, column: usize, message: String },
+    #[error("{path}: {message}")]
+    Invalid { path: PathBuf, message: String },
+}
+
+impl Manifest {
+    pub fn load(path: &FsPath) -> Result<(Manifest, PathBuf), ManifestError> {
+        let text = std::fs::read_to_string(path)
+            .map_err(|source| ManifestError::Read { path: path.into(), source })?;
+        let m = Manifest::parse(&text, path)?;
+        let dir = path.parent().map(FsPath::to_path_buf).unwrap_or_default();
+        Ok((m, dir))
+    }
+
+    pub fn parse(text: &str, path: &FsPath) -> Result<Manifest, ManifestError> {
+        let m: Manifest = serde_json::from_str(text).map_err(|e| ManifestError::Parse {
+            path: path.into(),
+            line: e.line(),
+            column: e.column(),
+            message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
+        })?;
+        m.validate().map_err(|message| ManifestError::Invalid { path: path.into(), message })?;
+        Ok(m)
+    }
+
+    fn validate(&self) -> Result<(), String> {
+        let r = &self.routine;
+        match (&r.library, &r.symbol, &r.model) {
+            (Some(_), Some(_), None) | (None, None, Some(_)) => {}
+            (Some(_), None, None) => return Err("routine.library is given but routine.symbol is not".into()),
+            _ => {
+                return Err("give routine.library and routine.symbol (a compiled routine) or routine.model \
+                            (a built-in model), not both"
+                    .into())
+            }
+        }
+        if r.library.is_some() && r.states.is_none() {
+            return Err("routine.states (the number of state variables) is required for a library".into());
+        }
+        if r.properties.iter().any(|p| !p.is_finite()) {
+            return Err("routine.properties must be finite numbers".into());
+        }
+        self.convention()?;
+        self.check.validate()?;
+        self.path_or(Path { name: String::new(), increments: Vec::new() })?;
+        Ok(())
+    }
+
+    pub fn convention(&self) -> Result<Convention, String> {
+        let r = &self.routine;
+        match &r.order {
+            None => Ok(Convention::new(r.kind, r.shear)),
+            Some(labels) => {
+                let l: Vec<&str> = labels.iter().map(String::as_str).collect();
+                Convention::from_labels(r.kind, &l, r.shear).map_err(|e| format!("routine.order: {e}"))
+            }
+        }
+    }
+
+    /// The path from the manifest, or `default` when it has none.
+    pub fn path_or(&self, default: Path) -> Result<Path, String> {
+        let Some(p) = &self.path else { return Ok(default) };
+        match (&p.increments, &p.shape) {
+            (Some(incs), None) if p.peak.is_none() && p.steps.is_none() => Ok(Path {
+                name: p.name.clone().unwrap_or_else(|| "increments from the manifest".into()),
+                increments: incs.clone(),
+            }),
+            (None, Some(shape)) => ramp(&RampSpec {
+                shape: shape.clone(),
+                peak: p.peak.ok_or("path.peak is required with path.shape")?,
+                steps: p.steps.ok_or("path.steps is required with path.shape")?,
+                back: p.back,
+            }),
+            _ => Err("path: give either shape, peak, steps (and back), or increments".into()),
+        }
+    }
+}
+
+/// Build a ramp path, checking its numbers.
+pub fn ramp(r: &RampSpec) -> Result<Path, String> {
+    let shape = Shape::from_name(&r.shape)?;
+    if r.steps == 0 {
+        return Err("path.steps must be at least 1".into());
+    }
+    if !r.peak.is_finite() || r.peak == 0.0 {
+        return Err("path.peak must be a nonzero number".into());
+    }
+    Ok(Path::ramp(shape, r.peak, r.steps, r.back))
+}
+
+/// Parse a path given on the command line: `SHAPE:PEAK:STEPS[:BACK]`.
+pub fn parse_path_arg(s: &str) -> Result<Path, String> {
+    let parts: Vec<&str> = s.split(':').collect();
+    if !(3..=4).contains(&parts.len()) {
+        return Err(format!("--path takes SHAPE:PEAK:STEPS[:BACK], e.g. tension-shear:0.004:8:4; got `{s}`"));
+    }
+    let peak = parts[1].parse::<f64>().map_err(|_| format!("--path: `{}` is not a number", parts[1]))?;
+    let steps = parts[2].parse::<usize>().map_err(|_| format!("--path: `{}` is not a count", parts[2]))?;
+    let back = match parts.get(3) {
+        Some(b) => b.parse::<usize>().map_err(|_| format!("--path: `{b}` is not a count"))?,
+        None => 0,
+    };
+    ramp(&RampSpec { shape: parts[0].into(), peak, steps, back })
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = r#"{
+  "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+  "path": { "shape": "uniaxial-strain", "peak": 0.004, "steps": 8, "back": 4 }
+}"#;
+
+    #[test]
+    fn a_good_manifest_reads() {
+        let m = Manifest::parse(GOOD, FsPath::new("m.json")).unwrap();
+        assert_eq!(m.routine.kind, PointKind::Solid3d);
+        assert_eq!(m.path_or(Path::ramp(Shape::Shear12, 1.0, 1, 0)).unwrap().increments.len(), 12);
+    }
+
+    #[test]
+    fn unknown_fields_name_line_and_column() {
+        let bad = GOOD.replace("\"kind\"", "\"knd\"");
+        let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
+        assert!(e.starts_with("m.json:2:"), "{e}");
+        assert!(e.contains("knd"), "{e}");
+    }
+
+    #[test]
+    fn inconsistent_routines_are_explained() {
+        let bad = GOOD.replace("\"model\": \"j2\"", "\"library\": \"x.so\"");
+        let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
+        assert!(e.contains("routine.symbol"), "{e}");
+        let bad = GOOD.replace("\"kind\": \"solid-3d\"", "\"kind\": \"solid-3d\", \"order\": [\"11\"]");
+        let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
+        assert!(e.contains("routine.order"), "{e}");
+        assert!(parse_path_arg("tension-shear:0.004").is_err());
+        assert_eq!(parse_path_arg("tension-shear:0.004:8:4").unwrap().increments.len(), 12);
+    }
+}

@@ -1,0 +1,3 @@
+fn main() {
+    std::process::exit(tancheck_cli::main_with_args(std::env::args_os()));
+}
