@@ -233,6 +233,24 @@ pub fn fortran_available() -> bool {
     compiler_runs(Language::Fortran)
 }
 
+/// For tests that need Fortran: `true` when a Fortran compiler runs. Without one, such a test
+/// is skipped loudly (a `SKIPPED` line on stderr naming the test), unless the environment
+/// sets `TANCHECK_REQUIRE_FORTRAN=1` (as CI does), where a missing compiler is a failure.
+pub fn fortran_for_test(test: &str) -> bool {
+    if fortran_available() {
+        return true;
+    }
+    if std::env::var("TANCHECK_REQUIRE_FORTRAN").is_ok_and(|v| v == "1") {
+        panic!(
+            "{test}: no Fortran compiler, and TANCHECK_REQUIRE_FORTRAN=1 makes the Fortran tests required"
+        );
+    }
+    eprintln!(
+        "SKIPPED {test}: no Fortran compiler (set FC, or install gfortran with the system package manager)"
+    );
+    false
+}
+
 /// Whether a C compiler (`$CC`, default `cc`) can be run.
 pub fn c_available() -> bool {
     compiler_runs(Language::C)

@@ -14,7 +14,8 @@ pub mod guard;
 pub mod library;
 
 pub use compile::{
-    build_library, c_available, fortran_available, write_shim_files, BuildCommand, BuildLog, BuildOptions,
+    build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,
+    BuildLog, BuildOptions,
 };
 pub use error::{BuildError, LoadError, TrapError};
 pub use guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};

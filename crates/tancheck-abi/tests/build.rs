@@ -8,13 +8,7 @@ use common::*;
 use tancheck_abi::{build_library, BuildError, BuildOptions, Library};
 
 fn no_fortran(test: &str) -> bool {
-    if tancheck_abi::fortran_available() {
-        return false;
-    }
-    eprintln!(
-        "SKIPPED {test}: no Fortran compiler (set FC, or install gfortran with the system package manager)"
-    );
-    true
+    !tancheck_abi::fortran_for_test(test)
 }
 
 fn fortran_example(name: &str) -> PathBuf {

@@ -110,10 +110,7 @@ fn write(dir: &Path, name: &str, text: &str) -> std::path::PathBuf {
 /// module procedure as __module_MOD_name. The message says so.
 #[test]
 fn fortran_decorations_are_explained() {
-    if !tancheck_abi::fortran_available() {
-        eprintln!(
-            "SKIPPED fortran_decorations_are_explained: no Fortran compiler (set FC or install gfortran)"
-        );
+    if !tancheck_abi::fortran_for_test("fortran_decorations_are_explained") {
         return;
     }
     let dir = scratch("decorated");

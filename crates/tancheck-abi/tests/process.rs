@@ -155,10 +155,7 @@ end subroutine f_bounds
 /// the process through exit(); the guard names the routine and fixes the exit status.
 #[test]
 fn fortran_run_time_error_is_reported() {
-    if !tancheck_abi::fortran_available() {
-        eprintln!(
-            "SKIPPED fortran_run_time_error_is_reported: no Fortran compiler (set FC or install gfortran)"
-        );
+    if !tancheck_abi::fortran_for_test("fortran_run_time_error_is_reported") {
         return;
     }
     let dir = scratch("bounds");

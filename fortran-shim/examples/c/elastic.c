@@ -37,7 +37,7 @@ static void elastic_fail(tc_report *report, const char *text)
  * Elastic stiffness in Voigt form, column-major c[i + j*n], engineering shear columns.
  * Lame constants lambda = E nu / ((1 + nu)(1 - 2 nu)), mu = E / (2 (1 + nu)); plane stress
  * reduces to E / (1 - nu^2) [[1, nu, 0], [nu, 1, 0], [0, 0, (1 - nu)/2]]
- * (Hughes 2000, The Finite Element Method, ch. 2).
+ * (Hughes 2000, The Finite Element Method, ch. 2; chapter from memory).
  */
 static void elastic_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
 {

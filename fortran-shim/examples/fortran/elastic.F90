@@ -59,7 +59,7 @@ subroutine f_elastic(callinfo, props, strain, dstrain, temp, stress0, state0, st
   ! Elastic stiffness in Voigt form, engineering shear columns. Lame constants
   ! lambda = E nu / ((1 + nu)(1 - 2 nu)), mu = E / (2 (1 + nu)); plane stress reduces to
   ! E / (1 - nu^2) [[1, nu, 0], [nu, 1, 0], [0, 0, (1 - nu)/2]]
-  ! (Hughes 2000, The Finite Element Method, ch. 2).
+  ! (Hughes 2000, The Finite Element Method, ch. 2; chapter from memory).
   ! The tangent buffer holds the stiffness: written in full here, then only read.
   tangent = 0.0_c_double
   select case (n)

@@ -57,7 +57,7 @@ pub fn load(symbol: &str) -> LibraryRoutine {
 pub const E: f64 = 210_000.0;
 pub const NU: f64 = 0.3;
 
-/// Isotropic elastic stiffness in Voigt form with engineering shear (Hughes 2000, ch. 2):
+/// Isotropic elastic stiffness in Voigt form with engineering shear (Hughes 2000, ch. 2; chapter from memory):
 /// λ + 2μ on the normal diagonal, λ off it, μ on the shear diagonal. Column-major 6×6.
 pub fn elastic_stiffness(e: f64, nu: f64) -> [f64; 36] {
     let mu = e / (2.0 * (1.0 + nu));

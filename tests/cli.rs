@@ -1,0 +1,160 @@
+//! End-to-end tests of the `tancheck` binary: exit codes, reports, and crashing routines.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::OnceLock;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-cli-test-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+/// misbehave.c built with `tancheck build`, once.
+fn misbehave() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let d = scratch("misbehave");
+        let lib = d.join("libmisbehave.so");
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+        let o = bin().arg("build").arg(&src).arg("-o").arg(&lib).output().unwrap();
+        assert!(o.status.success(), "{}", text(&o));
+        lib
+    })
+}
+
+fn manifest(dir: &Path, name: &str, body: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, body).unwrap();
+    p
+}
+
+fn elastic_manifest(lib: &Path, symbol: &str, extra: &str) -> String {
+    format!(
+        r#"{{
+  "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 4 }}{extra}
+}}"#,
+        lib.display()
+    )
+}
+
+#[test]
+fn demo_shows_correct_routines_passing_and_the_flawed_one_failing() {
+    let o = bin().arg("demo").output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    assert!(t.contains("J2 plasticity, C"), "{t}");
+    assert!(t.contains("expected FAIL, got FAIL"), "{t}");
+    assert!(!t.contains("NOT AS EXPECTED"), "{t}");
+    // The flawed routine's wrong entries are named by component labels.
+    assert!(t.contains("wrong entries (row/column)"), "{t}");
+    assert!(t.contains("caution: A consistent tangent"), "{t}");
+}
+
+#[test]
+fn a_null_dereference_is_a_crash_with_exit_3_and_the_report_is_finished() {
+    let d = scratch("null");
+    let json = d.join("report.json");
+    let m = manifest(&d, "m.json", &elastic_manifest(misbehave(), "bad_null_deref", ""));
+    let o = bin().arg("check").arg(&m).arg("--json").arg(&json).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(3), "{t}");
+    assert!(t.contains("SIGSEGV"), "{t}");
+    assert!(t.contains("inputs of that call (increment 2)"), "{t}");
+    assert!(t.contains("verdict: FAULT"), "{t}");
+    let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    assert_eq!(r["verdict"], "routine-fault");
+    assert_eq!(r["increments"][1]["fault"]["signal"], 11);
+    // Increment 1 was checked normally before the crash.
+    assert_eq!(r["increments"][0]["checks"][0]["tangent"]["pass"], true);
+}
+
+#[test]
+fn division_by_zero_with_traps_on_is_a_crash() {
+    let d = scratch("fpe");
+    let m = manifest(
+        &d,
+        "m.json",
+        &elastic_manifest(misbehave(), "bad_divide_by_zero", ",\n  \"fp_traps\": true"),
+    );
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(3), "{t}");
+    assert!(t.contains("SIGFPE"), "{t}");
+    assert!(t.contains("division by zero"), "{t}");
+    // Without traps the same routine returns an infinite stress: no crash, and the check
+    // of that increment fails instead.
+    let m = manifest(&d, "m2.json", &elastic_manifest(misbehave(), "bad_divide_by_zero", ""));
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    assert_ne!(o.status.code(), Some(3), "{}", text(&o));
+    assert_ne!(o.status.code(), Some(0), "{}", text(&o));
+}
+
+#[test]
+fn bad_input_exits_2_with_file_line_and_column() {
+    let d = scratch("bad");
+    let m = manifest(
+        &d,
+        "m.json",
+        "{\n  \"routine\": { \"model\": \"j2\", \"kind\": \"solid-3d\", \"propertys\": [] }\n}\n",
+    );
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("m.json:2:"), "{t}");
+    assert!(t.contains("propertys"), "{t}");
+    let o = bin().arg("check").arg(d.join("missing.json")).output().unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    let o = bin().arg("check").output().unwrap();
+    assert_eq!(o.status.code(), Some(2), "usage error");
+}
+
+#[test]
+fn a_misspelt_symbol_lists_the_near_names() {
+    let d = scratch("sym");
+    let m = manifest(&d, "m.json", &elastic_manifest(misbehave(), "bad_null_derf", ""));
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("bad_null_deref"), "{t}");
+}
+
+#[test]
+fn json_on_stdout_has_the_verdict_and_the_continuum_tangent_fails_with_exit_1() {
+    let d = scratch("json");
+    let m = manifest(
+        &d,
+        "m.json",
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
+    );
+    let o = bin().arg("check").arg(&m).arg("--json").arg("-").output().unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let r: serde_json::Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(r["verdict"], "tangent-failure");
+    assert!(r["cautions"][0].as_str().unwrap().contains("does not validate the material model"));
+    let m = manifest(
+        &d,
+        "ok.json",
+        r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
+    );
+    let o = bin()
+        .arg("check")
+        .arg(&m)
+        .arg("--scheme")
+        .arg("forward")
+        .arg("--scheme")
+        .arg("complex-step")
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+}
