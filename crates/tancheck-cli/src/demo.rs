@@ -234,6 +234,12 @@ fn summary(out: &mut dyn Write, r: &Report) -> Result<()> {
                 }
             }
         }
+        if let Some(d) = &inc.diagnosis {
+            writeln!(out, "   diagnosis: {}", d.reason)?;
+            if let Some(h) = d.causes.iter().find(|h| h.explains) {
+                writeln!(out, "   likely cause: {} — {}", h.cause.name(), h.detail)?;
+            }
+        }
         if let Some(f) = r.first_fault() {
             writeln!(out, "   fault: {}", f.message)?;
         }

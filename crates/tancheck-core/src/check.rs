@@ -1,6 +1,7 @@
 //! A tangent check along a path: the pipeline driver → schemes → comparison → report.
 
 use crate::compare::{compare, compare_dtemp};
+use crate::diagnose::{self, Context};
 use crate::driver::{Direction, Driver, PointState};
 use crate::path::Path;
 use crate::report::{
@@ -41,6 +42,9 @@ pub fn run(
     let mut numerical = vec![0.0; n * n];
     let mut dtemp_num = vec![0.0; n];
     let mut dstrain = vec![0.0; n];
+    // The best numerical tangent at the end of the previous increment (the tangent at the
+    // start of this one), for the stale-tangent hypothesis.
+    let mut previous: Option<Vec<f64>> = None;
     let mut increments = Vec::with_capacity(path.increments.len());
 
     for (k, inc) in path.increments.iter().enumerate() {
@@ -54,6 +58,7 @@ pub fn run(
                 strain: driver.start().strain.clone(),
                 stress: driver.start().stress.clone(),
                 checks: Vec::new(),
+                diagnosis: None,
                 fault: Some(fault_record(&fault, &driver, None)),
             });
             break;
@@ -66,6 +71,8 @@ pub fn run(
         let h_strain_scale = driver.strain_scale(settings.step_floor);
         let h_temp_scale = driver.temp_scale(settings.temp_floor);
         let mut checks = Vec::with_capacity(settings.schemes.len());
+        let mut best_numerical: Option<(Scheme, Vec<f64>)> = None;
+        let mut failed_dtemp: Option<Vec<f64>> = None;
         for &scheme in &settings.schemes {
             let ss = settings.scheme(scheme);
             let h = ss.rel_step * h_strain_scale;
@@ -95,34 +102,89 @@ pub fn run(
                     break;
                 }
             }
-            let tangent = tangent.unwrap_or_else(|| {
-                CheckOutcome::Compared(compare(
-                    &conv,
-                    &returned,
-                    &numerical,
-                    ss.tol,
-                    settings.entry_floor,
-                    settings.worst_entries,
-                ))
-            });
-            let dstress_dtemp = returned_dtemp.as_ref().map(|ret| {
-                let ht = ss.rel_step * h_temp_scale;
-                match scheme.column(&mut driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
-                    Ok(()) => CheckOutcome::Compared(compare_dtemp(
+            let tangent = match tangent {
+                Some(t) => t,
+                None => {
+                    let better = match &best_numerical {
+                        None => true,
+                        Some((s, _)) => {
+                            scheme == Scheme::ComplexStep
+                                || (*s != Scheme::ComplexStep && scheme.order() > s.order())
+                        }
+                    };
+                    if better {
+                        best_numerical = Some((scheme, numerical.clone()));
+                    }
+                    CheckOutcome::Compared(compare(
                         &conv,
-                        ret,
-                        &dtemp_num,
+                        &returned,
+                        &numerical,
                         ss.tol,
                         settings.entry_floor,
                         settings.worst_entries,
-                    )),
-                    Err(f) => {
-                        CheckOutcome::Fault(fault_record(&f, &driver, Some(format!("dtemp ± {ht:.3e}"))))
-                    }
+                    ))
                 }
-            });
+            };
+            let dstress_dtemp = match &returned_dtemp {
+                None => None,
+                Some(ret) => {
+                    let ht = ss.rel_step * h_temp_scale;
+                    Some(
+                        match scheme.column(&mut driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
+                            Ok(()) => {
+                                let c = compare_dtemp(
+                                    &conv,
+                                    ret,
+                                    &dtemp_num,
+                                    ss.tol,
+                                    settings.entry_floor,
+                                    settings.worst_entries,
+                                );
+                                if !c.pass && failed_dtemp.is_none() {
+                                    failed_dtemp = Some(dtemp_num.clone());
+                                }
+                                CheckOutcome::Compared(c)
+                            }
+                            Err(f) => CheckOutcome::Fault(fault_record(
+                                &f,
+                                &driver,
+                                Some(format!("dtemp ± {ht:.3e}")),
+                            )),
+                        },
+                    )
+                }
+            };
             checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
         }
+        let any_fault = checks.iter().any(|c| {
+            matches!(c.tangent, CheckOutcome::Fault(_))
+                || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+        });
+        let mut diagnosis = None;
+        let mut fault = None;
+        if settings.diagnose && !any_fault && !checks.iter().all(SchemeCheck::passed) {
+            let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
+            let complex_pass =
+                checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
+                    CheckOutcome::Compared(x) => Some(x.pass),
+                    _ => None,
+                });
+            let ctx = Context {
+                returned: &returned,
+                dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
+                complex_pass,
+                tangent_checks_pass: checks.iter().all(tangent_ok),
+                previous: previous.as_deref(),
+                state_changed,
+                reported_branch: reported,
+                has_twin,
+            };
+            match diagnose::run(&mut driver, caller, &conv, &ctx, settings) {
+                Ok(d) => diagnosis = Some(d),
+                Err(f) => fault = Some(fault_record(&f, &driver, Some("a call of the diagnosis".into()))),
+            }
+        }
+        previous = best_numerical.map(|(_, t)| t);
         driver.advance();
         increments.push(IncrementResult {
             index: k + 1,
@@ -131,8 +193,12 @@ pub fn run(
             strain: driver.start().strain.clone(),
             stress: driver.start().stress.clone(),
             checks,
-            fault: None,
+            diagnosis,
+            fault,
         });
+        if increments.last().is_some_and(|i| i.fault.is_some()) {
+            break;
+        }
     }
 
     let summary = summarise(&increments, settings);

@@ -94,6 +94,8 @@ pub struct Driver {
     props: Vec<f64>,
     start: PointState,
     dstrain: Vec<f64>,
+    /// The increment as set, before any rescaling.
+    full_dstrain: Vec<f64>,
     dtemp: f64,
     dtime: f64,
     increment: i32,
@@ -135,6 +137,7 @@ impl Driver {
             n,
             props: props.to_vec(),
             dstrain: vec![0.0; n],
+            full_dstrain: vec![0.0; n],
             dtemp: 0.0,
             dtime: 0.0,
             increment: 0,
@@ -179,6 +182,7 @@ impl Driver {
     /// Set the next increment (the start state stays).
     pub fn set_increment(&mut self, dstrain: &[f64], dtemp: f64, dtime: f64) {
         self.dstrain.copy_from_slice(dstrain);
+        self.full_dstrain.copy_from_slice(dstrain);
         self.dtemp = dtemp;
         self.dtime = dtime;
         self.increment += 1;
@@ -188,6 +192,14 @@ impl Driver {
         }
         for (c, &s) in self.cin.state0.iter_mut().zip(&self.start.state) {
             *c = Complex64::new(s, 0.0);
+        }
+    }
+
+    /// Scale the strain increment to `s` times the one set by [`Driver::set_increment`]
+    /// (the start state stays). `rescale(1.0)` restores it; the base call must be made again.
+    pub fn rescale(&mut self, s: f64) {
+        for (d, f) in self.dstrain.iter_mut().zip(&self.full_dstrain) {
+            *d = s * f;
         }
     }
 

@@ -8,6 +8,7 @@
 pub mod check;
 pub mod compare;
 pub mod convention;
+pub mod diagnose;
 pub mod driver;
 pub mod path;
 pub mod report;

@@ -3,6 +3,7 @@
 use serde::{Deserialize, Serialize};
 
 use crate::compare::Comparison;
+use crate::diagnose::Diagnosis;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
@@ -128,7 +129,9 @@ pub struct IncrementResult {
     /// Stress at the end of the increment, routine order.
     pub stress: Vec<f64>,
     pub checks: Vec<SchemeCheck>,
-    /// The base call failed: the path stopped here.
+    /// The closer look taken when a check failed: kink, step studies, ranked causes.
+    pub diagnosis: Option<Diagnosis>,
+    /// The base call (or a call of the diagnosis) failed: the path stopped here.
     pub fault: Option<FaultRecord>,
 }
 
@@ -141,8 +144,23 @@ impl IncrementResult {
         }
     }
 
+    /// The verdict of the increment: every check passed, or the diagnosis cleared it (a
+    /// kink with the returned tangent on one side, or a step the default missed).
     pub fn passed(&self) -> bool {
-        self.fault.is_none() && self.checks.iter().all(SchemeCheck::passed)
+        self.fault.is_none()
+            && match &self.diagnosis {
+                Some(d) => d.pass,
+                None => self.checks.iter().all(SchemeCheck::passed),
+            }
+    }
+
+    /// What the diagnosis found (`none` when the increment passed).
+    pub fn finding(&self) -> &str {
+        match &self.diagnosis {
+            Some(d) => &d.finding,
+            None if self.passed() => "none",
+            None => "undiagnosed",
+        }
     }
 }
 

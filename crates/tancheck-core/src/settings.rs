@@ -27,7 +27,10 @@ pub struct SchemeSettings {
 pub struct Settings {
     pub schemes: Vec<Scheme>,
     pub forward: SchemeSettings,
+    pub backward: SchemeSettings,
     pub central: SchemeSettings,
+    pub central4: SchemeSettings,
+    pub richardson: SchemeSettings,
     pub complex_step: SchemeSettings,
     /// The strain scale of an increment is max(|ε + Δε|∞, |Δε|∞, step_floor); the step of a
     /// scheme is its `rel_step` times that scale. The floor keeps the step finite at zero strain.
@@ -40,6 +43,8 @@ pub struct Settings {
     pub entry_floor: f64,
     /// How many of the worst entries a report lists per check.
     pub worst_entries: usize,
+    /// When a check fails, take a closer look: kink probe, step studies, cause hypotheses.
+    pub diagnose: bool,
 }
 
 impl Default for Settings {
@@ -47,12 +52,16 @@ impl Default for Settings {
         Settings {
             schemes: vec![Scheme::Central, Scheme::ComplexStep],
             forward: SchemeSettings { rel_step: 1.5e-8, tol: 1e-4 },
+            backward: SchemeSettings { rel_step: 1.5e-8, tol: 1e-4 },
             central: SchemeSettings { rel_step: 6e-6, tol: 1e-6 },
+            central4: SchemeSettings { rel_step: 1e-3, tol: 1e-6 },
+            richardson: SchemeSettings { rel_step: 1e-3, tol: 1e-6 },
             complex_step: SchemeSettings { rel_step: 1e-20, tol: 1e-10 },
             step_floor: 1e-6,
             temp_floor: 1.0,
             entry_floor: 1e-2,
             worst_entries: 4,
+            diagnose: true,
         }
     }
 }
@@ -61,7 +70,10 @@ impl Settings {
     pub fn scheme(&self, s: Scheme) -> SchemeSettings {
         match s {
             Scheme::Forward => self.forward,
+            Scheme::Backward => self.backward,
             Scheme::Central => self.central,
+            Scheme::Central4 => self.central4,
+            Scheme::Richardson => self.richardson,
             Scheme::ComplexStep => self.complex_step,
         }
     }
@@ -69,7 +81,10 @@ impl Settings {
     pub fn scheme_mut(&mut self, s: Scheme) -> &mut SchemeSettings {
         match s {
             Scheme::Forward => &mut self.forward,
+            Scheme::Backward => &mut self.backward,
             Scheme::Central => &mut self.central,
+            Scheme::Central4 => &mut self.central4,
+            Scheme::Richardson => &mut self.richardson,
             Scheme::ComplexStep => &mut self.complex_step,
         }
     }
@@ -77,9 +92,9 @@ impl Settings {
     /// Settings that cannot work, explained.
     pub fn validate(&self) -> Result<(), String> {
         if self.schemes.is_empty() {
-            return Err("no derivative scheme selected; choose forward, central or complex-step".into());
+            return Err("no derivative scheme selected; choose from forward, backward, central, central4, richardson, complex-step".into());
         }
-        for s in [Scheme::Forward, Scheme::Central, Scheme::ComplexStep] {
+        for s in Scheme::ALL {
             let c = self.scheme(s);
             if !(c.rel_step > 0.0 && c.rel_step.is_finite()) {
                 return Err(format!("the {} step must be a positive number, got {}", s.name(), c.rel_step));

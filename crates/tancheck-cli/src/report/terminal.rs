@@ -3,6 +3,7 @@
 use std::io::{self, Write};
 
 use super::{sci, Reporter};
+use tancheck_core::diagnose::{Behaviour, Diagnosis, Hypothesis};
 use tancheck_core::report::{CheckOutcome, FaultRecord, IncrementResult, SchemeCheck};
 use tancheck_core::{Report, Verdict};
 
@@ -49,7 +50,14 @@ impl Reporter for Terminal {
             if !show {
                 continue;
             }
-            let cells: Vec<String> = inc.checks.iter().map(|c| format!("{:<22}", cell(c))).collect();
+            let mut cells: Vec<String> = inc.checks.iter().map(|c| format!("{:<22}", cell(c))).collect();
+            if let Some(d) = &inc.diagnosis {
+                cells.push(if d.pass {
+                    "-> ok on a closer look".into()
+                } else {
+                    format!("-> {}", d.finding)
+                });
+            }
             if self.detail == Detail::Quiet {
                 writeln!(out, "   increment {} ({}): {}", inc.index, inc.branch_label(), cells.join(""))?;
             } else {
@@ -59,8 +67,15 @@ impl Reporter for Terminal {
                 fault(out, f)?;
             }
             for c in &inc.checks {
-                if !c.passed() || self.detail == Detail::Verbose {
+                if !inc.passed() && !c.passed() || self.detail == Detail::Verbose {
                     details(out, inc, c)?;
+                }
+            }
+            if let Some(d) = &inc.diagnosis {
+                if !d.pass || self.detail == Detail::Verbose {
+                    diagnosis(out, d)?;
+                } else {
+                    writeln!(out, "        cleared on a closer look: {}", d.reason)?;
                 }
             }
         }
@@ -160,6 +175,71 @@ fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::R
             CheckOutcome::Fault(f) => fault(out, f)?,
         }
     }
+    Ok(())
+}
+
+/// The closer look: verdict, kink, step studies, ranked causes.
+pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
+    writeln!(out, "        diagnosis: {}", d.reason)?;
+    if let Some(k) = &d.kink {
+        if k.detected {
+            writeln!(
+                out,
+                "          kink: forward and backward derivatives differ by {} to {}; returned vs forward {}, vs backward {}",
+                sci(k.gaps.iter().cloned().fold(f64::INFINITY, f64::min)),
+                sci(k.gaps.iter().cloned().fold(0.0, f64::max)),
+                sci(k.forward_error),
+                sci(k.backward_error)
+            )?;
+        }
+    }
+    for s in &d.studies {
+        let slope = s.slope.map_or("-".to_string(), |x| format!("{x:.2}"));
+        let what = match s.behaviour {
+            Behaviour::Converges => "converges".to_string(),
+            Behaviour::Plateau => format!("plateau at {}", sci(s.plateau.unwrap_or(f64::NAN))),
+            Behaviour::Inconclusive => "inconclusive".to_string(),
+        };
+        writeln!(
+            out,
+            "          step study {:<8} best error {} at relative step {:.0e}, slope {slope} (order {}), noise floor {}: {what}",
+            s.scheme.name(),
+            sci(s.best_error),
+            s.best_rel_step,
+            s.scheme.order(),
+            sci(s.noise_floor)
+        )?;
+    }
+    if let Some(r) = &d.refinement {
+        let e: Vec<String> =
+            r.fractions.iter().zip(&r.errors).map(|(f, e)| format!("{f}×: {}", sci(*e))).collect();
+        writeln!(
+            out,
+            "          refined increments: {}{}",
+            e.join(", "),
+            if r.same_branch { "" } else { " (not all in the same branch)" }
+        )?;
+    }
+    let list = |out: &mut dyn Write, title: &str, hs: &[Hypothesis]| -> io::Result<()> {
+        if hs.is_empty() {
+            return Ok(());
+        }
+        writeln!(out, "          {title} (error left after the correction):")?;
+        for (k, h) in hs.iter().take(4).enumerate() {
+            writeln!(
+                out,
+                "            {}. {:<18} {:<10} {}{}",
+                k + 1,
+                h.cause.name(),
+                sci(h.error_left),
+                h.detail,
+                if h.explains { "" } else { "  (does not explain it)" }
+            )?;
+        }
+        Ok(())
+    };
+    list(out, "likely causes", &d.causes)?;
+    list(out, "likely causes of the ∂σ/∂T error", &d.dtemp_causes)?;
     Ok(())
 }
 

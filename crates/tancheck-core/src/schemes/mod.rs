@@ -11,9 +11,12 @@ use std::str::FromStr;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 
+pub mod backward;
 pub mod central;
+pub mod central4;
 pub mod complex_step;
 pub mod forward;
+pub mod richardson;
 
 /// A derivative scheme.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
@@ -21,19 +24,49 @@ pub mod forward;
 pub enum Scheme {
     /// (f(x + h) − f(x)) / h: error O(h).
     Forward,
+    /// (f(x) − f(x − h)) / h: error O(h).
+    Backward,
     /// (f(x + h) − f(x − h)) / 2h: error O(h²).
     Central,
+    /// Five-point central difference: error O(h⁴).
+    Central4,
+    /// Richardson extrapolation of the central difference at h and h/2: error O(h⁴).
+    Richardson,
     /// Im f(x + ih) / h: error O(h²) with no subtractive cancellation (Squire & Trapp 1998).
     ComplexStep,
 }
 
 impl Scheme {
-    pub const ALL: [Scheme; 3] = [Scheme::Forward, Scheme::Central, Scheme::ComplexStep];
+    pub const ALL: [Scheme; 6] = [
+        Scheme::Forward,
+        Scheme::Backward,
+        Scheme::Central,
+        Scheme::Central4,
+        Scheme::Richardson,
+        Scheme::ComplexStep,
+    ];
+
+    /// Order of the truncation error in h.
+    pub fn order(self) -> f64 {
+        match self {
+            Scheme::Forward | Scheme::Backward => 1.0,
+            Scheme::Central | Scheme::ComplexStep => 2.0,
+            Scheme::Central4 | Scheme::Richardson => 4.0,
+        }
+    }
+
+    /// Whether the scheme needs the complex twin.
+    pub fn needs_twin(self) -> bool {
+        self == Scheme::ComplexStep
+    }
 
     pub fn name(self) -> &'static str {
         match self {
             Scheme::Forward => "forward",
+            Scheme::Backward => "backward",
             Scheme::Central => "central",
+            Scheme::Central4 => "central4",
+            Scheme::Richardson => "richardson",
             Scheme::ComplexStep => "complex-step",
         }
     }
@@ -49,7 +82,10 @@ impl Scheme {
     ) -> Result<(), Fault> {
         match self {
             Scheme::Forward => forward::column(driver, caller, dir, h, col),
+            Scheme::Backward => backward::column(driver, caller, dir, h, col),
             Scheme::Central => central::column(driver, caller, dir, h, col),
+            Scheme::Central4 => central4::column(driver, caller, dir, h, col),
+            Scheme::Richardson => richardson::column(driver, caller, dir, h, col),
             Scheme::ComplexStep => complex_step::column(driver, caller, dir, h, col),
         }
     }
@@ -67,7 +103,7 @@ impl FromStr for Scheme {
         Scheme::ALL
             .into_iter()
             .find(|x| x.name() == s)
-            .ok_or_else(|| format!("unknown scheme `{s}`; expected forward, central or complex-step"))
+            .ok_or_else(|| format!("unknown scheme `{s}`; expected forward, backward, central, central4, richardson or complex-step"))
     }
 }
 

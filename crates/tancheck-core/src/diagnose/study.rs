@@ -1,0 +1,170 @@
+//! Step studies: how the discrepancy between the returned tangent and a difference
+//! approximation behaves as the step shrinks.
+//!
+//! For a consistent tangent the discrepancy falls like hᵖ (p = 1 one-sided, 2 central, 4 for
+//! the higher-order schemes) until rounding and the routine's own inner tolerances take over
+//! (the noise floor), where it scatters or grows like 1/h. For an inconsistent tangent it
+//! levels off at a plateau: the size of the error in the tangent.
+
+use serde::{Deserialize, Serialize};
+
+use crate::compare::compare;
+use crate::convention::Convention;
+use crate::driver::{Direction, Driver};
+use crate::routine::{Caller, Fault};
+use crate::schemes::Scheme;
+
+/// Relative steps of a study: decades from 1e-2 to 1e-12, each with its half.
+pub fn ladder() -> Vec<f64> {
+    let mut v = Vec::with_capacity(22);
+    for k in 2..=12 {
+        let h = 10f64.powi(-k);
+        v.push(h);
+        v.push(0.5 * h);
+    }
+    v
+}
+
+/// How the discrepancy behaved.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Behaviour {
+    /// Fell with the scheme's order to at most the tolerance.
+    Converges,
+    /// Levelled off above the tolerance: the tangent is not the derivative.
+    Plateau,
+    /// Neither: scattered (noisy inner solves) or the scheme broke down.
+    Inconclusive,
+}
+
+/// One point of a study.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StudyPoint {
+    pub rel_step: f64,
+    pub step: f64,
+    /// max(norm error, worst entry error) of the returned tangent against this approximation.
+    pub error: f64,
+}
+
+/// A step study of one scheme at one increment.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct StepStudy {
+    pub scheme: Scheme,
+    pub points: Vec<StudyPoint>,
+    /// Smallest error reached, and the relative step that reached it.
+    pub best_error: f64,
+    pub best_rel_step: f64,
+    /// Observed order: slope of log(error) against log(step) one to two decades above the
+    /// best step (about the scheme's order where truncation dominates; about 0 on a plateau).
+    pub slope: Option<f64>,
+    /// Estimated noise floor: the scatter of the errors at steps smaller than the best one
+    /// (rounding and inner tolerances), or the best error when there are none.
+    pub noise_floor: f64,
+    /// The plateau level when the discrepancy levels off.
+    pub plateau: Option<f64>,
+    pub behaviour: Behaviour,
+}
+
+/// Run a study: the returned tangent `returned` against `scheme` at every ladder step.
+#[allow(clippy::too_many_arguments)]
+pub fn run(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    conv: &Convention,
+    returned: &[f64],
+    scheme: Scheme,
+    scale: f64,
+    tol: f64,
+    entry_floor: f64,
+) -> Result<StepStudy, Fault> {
+    let n = conv.ncomp();
+    let mut num = vec![0.0; n * n];
+    let mut points = Vec::new();
+    for rel in ladder() {
+        let h = rel * scale;
+        for j in 0..n {
+            scheme.column(driver, caller, Direction::Strain(j), h, &mut num[j * n..(j + 1) * n])?;
+        }
+        let c = compare(conv, returned, &num, tol, entry_floor, 0);
+        points.push(StudyPoint { rel_step: rel, step: h, error: c.norm_error.max(c.worst_entry_error) });
+    }
+    Ok(analyse(scheme, points, tol))
+}
+
+/// Classify a study from its points (ordered from large to small steps).
+pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
+    let finite: Vec<&StudyPoint> = points.iter().filter(|p| p.error.is_finite()).collect();
+    let (best_error, best_rel_step, best_idx) = finite
+        .iter()
+        .enumerate()
+        .map(|(i, p)| (p.error, p.rel_step, i))
+        .min_by(|a, b| a.0.total_cmp(&b.0))
+        .unwrap_or((f64::INFINITY, f64::NAN, 0));
+    let lg = |x: f64| x.max(1e-300).log10();
+    // Slope over a decade of steps above the best one, where truncation dominates: from
+    // two decades to one decade above it (or the decade just above when that is all).
+    let slope = if best_idx >= 2 {
+        let (ia, ib) = if best_idx >= 4 { (best_idx - 4, best_idx - 2) } else { (best_idx - 2, best_idx) };
+        let a = finite[ia];
+        let b = finite[ib];
+        let s = (lg(a.error) - lg(b.error)) / (lg(a.step) - lg(b.step));
+        s.is_finite().then_some(s)
+    } else {
+        None
+    };
+    let below: Vec<f64> = finite[best_idx..].iter().map(|p| p.error).collect();
+    let noise_floor = if below.len() >= 3 {
+        let m = below.iter().map(|e| lg(*e)).sum::<f64>() / below.len() as f64;
+        10f64.powf(m).min(below.iter().cloned().fold(f64::INFINITY, f64::min) * 10.0).max(best_error)
+    } else {
+        best_error
+    };
+    // A plateau: at least four consecutive points (two decades) within a factor 2 of their
+    // median, above the tolerance.
+    let mut plateau = None;
+    for w in finite.windows(4) {
+        let mut e: Vec<f64> = w.iter().map(|p| p.error).collect();
+        e.sort_by(f64::total_cmp);
+        let med = 0.5 * (e[1] + e[2]);
+        if med > tol && e[0] >= 0.5 * med && e[3] <= 2.0 * med {
+            plateau = Some(med);
+            break;
+        }
+    }
+    let behaviour = if best_error <= tol {
+        Behaviour::Converges
+    } else if plateau.is_some() {
+        Behaviour::Plateau
+    } else {
+        Behaviour::Inconclusive
+    };
+    StepStudy { scheme, points, best_error, best_rel_step, slope, noise_floor, plateau, behaviour }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn pts(f: impl Fn(f64) -> f64) -> Vec<StudyPoint> {
+        ladder().into_iter().map(|h| StudyPoint { rel_step: h, step: h, error: f(h) }).collect()
+    }
+
+    // Truncation c·h² plus rounding ε/h: the textbook error balance of the central
+    // difference (Nocedal & Wright 2006, §8.1); the study finds order 2 and the floor.
+    #[test]
+    fn a_consistent_tangent_converges_with_the_scheme_order() {
+        let s = analyse(Scheme::Central, pts(|h| 0.3 * h * h + 1e-16 / h), 1e-6);
+        assert_eq!(s.behaviour, Behaviour::Converges);
+        assert!((s.slope.unwrap() - 2.0).abs() < 0.2, "{:?}", s.slope);
+        assert!(s.best_error < 1e-10 && s.best_error > 1e-12, "{}", s.best_error);
+        assert!(s.noise_floor >= s.best_error);
+    }
+
+    #[test]
+    fn an_inconsistent_tangent_shows_a_plateau() {
+        let s = analyse(Scheme::Central, pts(|h| 3e-3 + 0.3 * h * h + 1e-16 / h), 1e-6);
+        assert_eq!(s.behaviour, Behaviour::Plateau);
+        assert!((s.plateau.unwrap() / 3e-3 - 1.0).abs() < 0.1);
+        assert!(s.slope.unwrap().abs() < 0.1);
+    }
+}
