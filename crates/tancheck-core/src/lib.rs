@@ -5,6 +5,7 @@
 //! Pipeline: [`path`] → [`driver`] (calls through [`routine::Caller`]) → [`schemes`] →
 //! [`compare`] → [`report`]; [`check::run`] ties them together.
 
+pub mod adapt;
 pub mod check;
 pub mod compare;
 pub mod convention;
