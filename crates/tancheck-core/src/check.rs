@@ -58,6 +58,7 @@ pub fn run(
                 strain: driver.start().strain.clone(),
                 stress: driver.start().stress.clone(),
                 checks: Vec::new(),
+                non_finite: Vec::new(),
                 diagnosis: None,
                 fault: Some(fault_record(&fault, &driver, None)),
             });
@@ -160,9 +161,25 @@ pub fn run(
             matches!(c.tangent, CheckOutcome::Fault(_))
                 || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
         });
+        let mut non_finite = Vec::new();
+        for (what, v) in [
+            ("stress", &driver.base.stress),
+            ("state", &driver.base.state),
+            ("tangent", &driver.base.tangent),
+        ] {
+            if let Some(i) = v.iter().position(|x| !x.is_finite()) {
+                let count = v.iter().filter(|x| !x.is_finite()).count();
+                non_finite.push(format!(
+                    "{what}[{i}] = {}{}",
+                    v[i],
+                    if count > 1 { format!(" and {} more", count - 1) } else { String::new() }
+                ));
+            }
+        }
         let mut diagnosis = None;
         let mut fault = None;
-        if settings.diagnose && !any_fault && !checks.iter().all(SchemeCheck::passed) {
+        if settings.diagnose && non_finite.is_empty() && !any_fault && !checks.iter().all(SchemeCheck::passed)
+        {
             let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
             let complex_pass =
                 checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
@@ -193,6 +210,7 @@ pub fn run(
             strain: driver.start().strain.clone(),
             stress: driver.start().stress.clone(),
             checks,
+            non_finite,
             diagnosis,
             fault,
         });

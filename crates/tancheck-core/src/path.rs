@@ -42,7 +42,8 @@ pub enum Shape {
     Biaxial,
     /// ε11 = ε22 = ε33.
     Hydrostatic,
-    /// ε11 with ε12 = ε11/2 and ε23 = −ε11/4: every column of a 3D tangent is exercised.
+    /// ε11 with ε12 = ε11/2, ε13 = 0.15 ε11 and ε23 = −ε11/4: every column of a 3D tangent is
+    /// exercised, and the flow direction has no zero shear component.
     TensionShear,
 }
 
@@ -66,7 +67,7 @@ impl Shape {
             Shape::Shear12 => [0.0, 0.0, 0.0, 0.0, 0.0, 1.0],
             Shape::Biaxial => [1.0, 1.0, 0.0, 0.0, 0.0, 0.0],
             Shape::Hydrostatic => [1.0, 1.0, 1.0, 0.0, 0.0, 0.0],
-            Shape::TensionShear => [1.0, 0.0, 0.0, -0.25, 0.0, 0.5],
+            Shape::TensionShear => [1.0, 0.0, 0.0, -0.25, 0.15, 0.5],
         }
     }
 

@@ -129,6 +129,9 @@ pub struct IncrementResult {
     /// Stress at the end of the increment, routine order.
     pub stress: Vec<f64>,
     pub checks: Vec<SchemeCheck>,
+    /// Outputs of the base call that are not finite numbers, e.g. "stress[0]" (the
+    /// increment fails whatever the derivatives say).
+    pub non_finite: Vec<String>,
     /// The closer look taken when a check failed: kink, step studies, ranked causes.
     pub diagnosis: Option<Diagnosis>,
     /// The base call (or a call of the diagnosis) failed: the path stopped here.
@@ -148,6 +151,7 @@ impl IncrementResult {
     /// kink with the returned tangent on one side, or a step the default missed).
     pub fn passed(&self) -> bool {
         self.fault.is_none()
+            && self.non_finite.is_empty()
             && match &self.diagnosis {
                 Some(d) => d.pass,
                 None => self.checks.iter().all(SchemeCheck::passed),
@@ -202,6 +206,46 @@ pub struct Report {
 impl Report {
     pub fn exit_code(&self) -> i32 {
         self.verdict.exit_code()
+    }
+
+    /// What the report found, in one word: `none` when it passed, `routine-fault` when the
+    /// routine crashed or failed, else the cause that explains the most failing increments
+    /// (ties go to the more specific cause; `kink-neither-side` and `dtemp` count as causes),
+    /// or `unexplained`.
+    pub fn finding(&self) -> String {
+        use crate::diagnose::{Cause, Side};
+        match self.verdict {
+            Verdict::Pass => return "none".into(),
+            Verdict::RoutineFault => return "routine-fault".into(),
+            Verdict::TangentFailure => {}
+        }
+        let mut counts: Vec<(String, usize, usize)> = Vec::new();
+        let mut add = |name: &str, rank: usize| match counts.iter_mut().find(|c| c.0 == name) {
+            Some(c) => c.1 += 1,
+            None => counts.push((name.to_string(), 1, rank)),
+        };
+        for inc in self.increments.iter().filter(|i| !i.passed()) {
+            if !inc.non_finite.is_empty() {
+                add("non-finite-output", 0);
+            }
+            let Some(d) = &inc.diagnosis else { continue };
+            if d.kink.as_ref().is_some_and(|k| k.detected && k.returned_matches == Side::Neither) {
+                add("kink-neither-side", 0);
+            }
+            if d.finding == "dtemp" {
+                add("dtemp", 0);
+            }
+            let mut seen = Vec::new();
+            for h in d.causes.iter().filter(|h| h.explains) {
+                if !seen.contains(&h.cause) {
+                    seen.push(h.cause);
+                    let rank = 1 + Cause::BY_SPECIFICITY.iter().position(|&c| c == h.cause).unwrap_or(99);
+                    add(h.cause.name(), rank);
+                }
+            }
+        }
+        counts.sort_by(|a, b| b.1.cmp(&a.1).then(a.2.cmp(&b.2)));
+        counts.first().map_or_else(|| "unexplained".to_string(), |c| c.0.clone())
     }
 
     /// The first fault anywhere in the report.

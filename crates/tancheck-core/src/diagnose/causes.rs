@@ -53,8 +53,8 @@ impl Cause {
         Cause::StaleTangent,
         Cause::Secant,
         Cause::CouplingMissing,
-        Cause::OneRow,
         Cause::OneColumn,
+        Cause::OneRow,
         Cause::ContinuumTangent,
         Cause::RankOneTerm,
     ];
