@@ -5,8 +5,8 @@ use crate::diagnose::{self, Context};
 use crate::driver::{Direction, Driver, PointState};
 use crate::path::Path;
 use crate::report::{
-    CallCounts, CallRecord, CheckOutcome, FaultRecord, IncrementResult, Report, RoutineSummary, SchemeCheck,
-    SchemeSummary, Verdict, CAUTIONS,
+    BranchSummary, CallCounts, CallRecord, CheckOutcome, FaultRecord, IncrementResult, Report,
+    RoutineSummary, SchemeCheck, SchemeSummary, Verdict, CAUTIONS,
 };
 use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
@@ -45,11 +45,15 @@ pub fn run(
     // The best numerical tangent at the end of the previous increment (the tangent at the
     // start of this one), for the stale-tangent hypothesis.
     let mut previous: Option<Vec<f64>> = None;
+    // Whether some increment's strain increment opposed the stress at its start (unloading).
+    let mut unloaded = false;
     let mut increments = Vec::with_capacity(path.increments.len());
 
     for (k, inc) in path.increments.iter().enumerate() {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
+        let work: f64 = (0..n).map(|i| driver.start().stress[i] * dstrain[i]).sum();
+        unloaded |= work < 0.0;
         if let Err(fault) = driver.base_call(caller) {
             increments.push(IncrementResult {
                 index: k + 1,
@@ -220,6 +224,22 @@ pub fn run(
     }
 
     let summary = summarise(&increments, settings);
+    let branches = branch_summary(&increments);
+    let mut coverage = Vec::new();
+    if !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
+        coverage.push(
+            "the path never changed the state variables: only the elastic (or stateless) branch was checked; \
+             load further, or start from an inelastic state"
+                .to_string(),
+        );
+    }
+    if !unloaded && increments.len() > 1 {
+        coverage.push(
+            "the path never unloaded (the strain increment never opposed the stress): tangents after a load \
+             reversal were not checked"
+                .to_string(),
+        );
+    }
     let fault = increments.iter().any(|i| {
         i.fault.is_some()
             || i.checks.iter().any(|c| {
@@ -252,6 +272,8 @@ pub fn run(
         settings: settings.clone(),
         increments,
         summary,
+        branches,
+        coverage,
         calls: CallCounts { real: caller.real_calls - real0, complex: caller.complex_calls - cplx0 },
         verdict,
         notes,
@@ -281,6 +303,32 @@ fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRec
             dtime: d.dtime(),
         },
     }
+}
+
+fn branch_summary(increments: &[IncrementResult]) -> Vec<BranchSummary> {
+    let mut out: Vec<BranchSummary> = Vec::new();
+    for inc in increments {
+        let label = inc.branch_label();
+        let worst = inc
+            .checks
+            .iter()
+            .filter_map(|c| match &c.tangent {
+                CheckOutcome::Compared(x) => Some(x.norm_error.max(x.worst_entry_error)),
+                _ => None,
+            })
+            .fold(0.0, f64::max);
+        let b = match out.iter_mut().position(|b| b.branch == label) {
+            Some(k) => &mut out[k],
+            None => {
+                out.push(BranchSummary { branch: label, increments: 0, failed: 0, worst_error: 0.0 });
+                out.last_mut().expect("just pushed")
+            }
+        };
+        b.increments += 1;
+        b.failed += (!inc.passed()) as usize;
+        b.worst_error = b.worst_error.max(worst);
+    }
+    out
 }
 
 fn summarise(increments: &[IncrementResult], settings: &Settings) -> Vec<SchemeSummary> {

@@ -187,6 +187,17 @@ pub struct SchemeSummary {
     pub tol: f64,
 }
 
+/// The tangent error per branch over the path.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct BranchSummary {
+    /// The branch label of [`IncrementResult::branch_label`].
+    pub branch: String,
+    pub increments: usize,
+    pub failed: usize,
+    /// The largest error of any compared tangent in this branch.
+    pub worst_error: f64,
+}
+
 /// The whole report of one check.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct Report {
@@ -196,6 +207,10 @@ pub struct Report {
     pub settings: Settings,
     pub increments: Vec<IncrementResult>,
     pub summary: Vec<SchemeSummary>,
+    pub branches: Vec<BranchSummary>,
+    /// Warnings about what the path did not reach (never left the elastic branch, never
+    /// unloaded): the blind spots of many hand-written tangent tests.
+    pub coverage: Vec<String>,
     pub calls: CallCounts,
     pub verdict: Verdict,
     /// Things the user should know that are not failures (e.g. a scheme skipped).

@@ -1,0 +1,46 @@
+//! Branch coverage: a path that never leaves the elastic branch, or never unloads, is
+//! flagged; the default path (into the plastic range and back) is not. Per-branch summaries
+//! count increments and failures.
+
+use tancheck::core::path::{Path, Shape};
+use tancheck::core::{check, Caller, PointKind, PointState, Report, Routine, Settings};
+use tancheck::models::reference;
+
+fn run(model: &str, path: &Path) -> Report {
+    let mut r = reference(model, PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let props: Vec<f64> = if model == "elastic" {
+        vec![200000.0, 0.3]
+    } else {
+        vec![200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0]
+    };
+    let mut caller = Caller::new(&mut r);
+    check::run(&mut caller, &props, PointState::zero(&info, 20.0), path, &Settings::default()).unwrap()
+}
+
+#[test]
+fn an_elastic_only_uniaxial_path_is_flagged() {
+    // Uniaxial strain to 5e-4 stays below yield (about 1.6e-3 for these properties).
+    let r = run("j2", &Path::ramp(Shape::UniaxialStrain, 5e-4, 4, 0));
+    assert!(r.coverage.iter().any(|c| c.contains("never changed the state")), "{:?}", r.coverage);
+    assert!(r.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", r.coverage);
+}
+
+#[test]
+fn the_default_path_reaches_plastic_flow_and_unloading() {
+    let r = run("j2", &tancheck::cli::cli::default_path(PointKind::Solid3d));
+    assert!(r.coverage.is_empty(), "{:?}", r.coverage);
+    assert!(r.branches.len() >= 2, "{:?}", r.branches);
+    let total: usize = r.branches.iter().map(|b| b.increments).sum();
+    assert_eq!(total, r.increments.len());
+    assert!(r.branches.iter().all(|b| b.failed == 0));
+}
+
+#[test]
+fn failures_are_counted_per_branch() {
+    let r = run("j2-continuum", &tancheck::cli::cli::default_path(PointKind::Solid3d));
+    let plastic = r.branches.iter().find(|b| b.branch.starts_with("#1")).expect("a plastic branch");
+    let elastic = r.branches.iter().find(|b| b.branch.starts_with("#0")).expect("an elastic branch");
+    assert_eq!(plastic.failed, plastic.increments, "{plastic:?}");
+    assert_eq!(elastic.failed, 0, "{elastic:?}");
+}
