@@ -158,3 +158,21 @@ fn json_on_stdout_has_the_verdict_and_the_continuum_tangent_fails_with_exit_1() 
         .unwrap();
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
 }
+
+#[test]
+fn selftest_gets_every_zoo_row_right() {
+    let o = bin().arg("selftest").output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    assert!(!t.contains(" NO"), "{t}");
+    // Flawed rows are flagged with their cause, and the kinked correct routine passes.
+    assert!(
+        t.lines()
+            .any(|l| l.starts_with("j2-continuum ") && l.contains("continuum-tangent") && l.ends_with("yes")),
+        "{t}"
+    );
+    assert!(t.lines().any(|l| l.starts_with("bimodulus ") && l.contains("PASS")), "{t}");
+    if tancheck::abi::fortran_for_test("selftest_gets_every_zoo_row_right (Fortran rows)") {
+        assert!(t.contains("Fortran"), "{t}");
+    }
+}

@@ -38,6 +38,12 @@ enum Command {
     Demo(DemoArgs),
     /// List the built-in reference models and their properties.
     Models,
+    /// Run the zoo of routines with known flaws and show what the checker finds.
+    Selftest {
+        /// Print the full report of every routine.
+        #[arg(short, long)]
+        verbose: bool,
+    },
 }
 
 #[derive(Args, Debug)]
@@ -114,6 +120,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Build(a) => cmd_build(a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
+        Command::Selftest { verbose } => crate::selftest::run(verbose),
     };
     match result {
         Ok(code) => code,

@@ -6,6 +6,7 @@ pub mod demo;
 pub mod load;
 pub mod manifest;
 pub mod report;
+pub mod selftest;
 
 pub use cli::main_with_args;
 

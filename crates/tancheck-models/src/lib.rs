@@ -11,10 +11,14 @@
 //! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
 //! by name with [`reference`] or [`AnyModel::new`].
 
+pub mod bimodulus;
 mod call;
+pub mod cohesive;
 pub mod elastic;
 pub mod j2;
 mod tensor;
+pub mod thermo;
+pub mod zoo;
 
 #[cfg(test)]
 mod alloc_check;
@@ -23,8 +27,12 @@ mod checks;
 #[cfg(test)]
 mod testing;
 
+pub use bimodulus::Bimodulus;
+pub use cohesive::{Cohesive, CohesiveFlaw};
 pub use elastic::Elastic;
 pub use j2::{J2Tangent, J2};
+pub use thermo::{Thermo, ThermoFlaw};
+pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
 
 use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
 
@@ -46,6 +54,8 @@ pub enum ModelError {
 pub enum AnyModel {
     Elastic(Elastic),
     J2(J2),
+    Thermo(Thermo),
+    Cohesive(Cohesive),
 }
 
 impl AnyModel {
@@ -55,6 +65,16 @@ impl AnyModel {
             Elastic::NAME => Ok(AnyModel::Elastic(Elastic::new(kind)?)),
             J2::NAME => Ok(AnyModel::J2(J2::new(kind)?)),
             J2::CONTINUUM_NAME => Ok(AnyModel::J2(J2::continuum(kind)?)),
+            Thermo::NAME => Ok(AnyModel::Thermo(Thermo::new(kind)?)),
+            Thermo::DTEMP_SIGN_NAME => Ok(AnyModel::Thermo(Thermo::dtemp_sign(kind)?)),
+            Cohesive::NAME => Ok(AnyModel::Cohesive(Cohesive::new(kind)?)),
+            Cohesive::SECANT_NAME => Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Secant)?)),
+            Cohesive::NO_COUPLING_NAME => {
+                Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::NoCoupling)?))
+            }
+            Cohesive::TRANSPOSED_NAME => {
+                Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))
+            }
             _ => Err(ModelError::UnknownName { name: name.to_string() }),
         }
     }
@@ -64,6 +84,8 @@ impl AnyModel {
         match self {
             AnyModel::Elastic(_) => &Elastic::PROP_NAMES,
             AnyModel::J2(_) => &J2::PROP_NAMES,
+            AnyModel::Thermo(_) => &Thermo::PROP_NAMES,
+            AnyModel::Cohesive(_) => &Cohesive::PROP_NAMES,
         }
     }
 }
@@ -73,6 +95,8 @@ impl Model for AnyModel {
         match self {
             AnyModel::Elastic(m) => m.info(),
             AnyModel::J2(m) => m.info(),
+            AnyModel::Thermo(m) => m.info(),
+            AnyModel::Cohesive(m) => m.info(),
         }
     }
 
@@ -85,6 +109,8 @@ impl Model for AnyModel {
         match self {
             AnyModel::Elastic(m) => m.evaluate(input, output),
             AnyModel::J2(m) => m.evaluate(input, output),
+            AnyModel::Thermo(m) => m.evaluate(input, output),
+            AnyModel::Cohesive(m) => m.evaluate(input, output),
         }
     }
 }

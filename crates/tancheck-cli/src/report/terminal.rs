@@ -66,6 +66,9 @@ impl Reporter for Terminal {
             if let Some(f) = &inc.fault {
                 fault(out, f)?;
             }
+            for nf in &inc.non_finite {
+                writeln!(out, "        the routine returned a value that is not a finite number: {nf}")?;
+            }
             for c in &inc.checks {
                 if !inc.passed() && !c.passed() || self.detail == Detail::Verbose {
                     details(out, inc, c)?;
@@ -95,6 +98,29 @@ impl Reporter for Terminal {
                 sci(s.worst_entry_error),
                 sci(s.tol)
             )?;
+        }
+        for b in &r.branches {
+            if b.failed > 0 {
+                writeln!(
+                    out,
+                    "   branch {}: failed at {} of {} increments, worst {}",
+                    b.branch,
+                    b.failed,
+                    b.increments,
+                    sci(b.worst_error)
+                )?;
+            } else {
+                writeln!(
+                    out,
+                    "   branch {}: passed at {} increments (worst {})",
+                    b.branch,
+                    b.increments,
+                    sci(b.worst_error)
+                )?;
+            }
+        }
+        for c in &r.coverage {
+            writeln!(out, "   coverage warning: {c}")?;
         }
         for n in &r.notes {
             writeln!(out, "   note: {n}")?;

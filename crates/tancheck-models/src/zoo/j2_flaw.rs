@@ -1,0 +1,441 @@
+//! Flawed J2 variants: the stress update of [`J2`] unchanged, the returned tangent spoiled in
+//! one documented way each.
+//!
+//! Every variant calls the consistent [`J2`] model for stress, state and tangent, then
+//! changes the tangent only. Where a flaw needs a quantity of the return map (the flow
+//! direction n, the hardening slope, θ), it is recomputed from the call's inputs and outputs
+//! with the same formulas as J2 (Simo & Hughes 1998, Box 3.2):
+//!
+//! - n = ξ_tr/‖ξ_tr‖, ξ_tr = dev C:(ε + Δε − εp_n) − β_n, the same operations as J2's trial
+//!   state, so n has the same bits;
+//! - Δγ = (α_{n+1} − α_n)/√(2/3), θ = 1 − 2μΔγ/‖ξ_tr‖, θ̄ = 1/(1 + (K' + H_kin)/(3μ)) − (1 − θ)
+//!   with K' = K'(α_{n+1}).
+//!
+//! Only `j2-stale` changes the state layout: two entries appended (see [`J2Flaw::Stale`]).
+
+use tancheck_core::routine::status;
+use tancheck_core::{
+    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
+};
+
+use crate::call::check_sizes;
+use crate::tensor::{
+    deviator, is_shear_slot, isotropic_matrix, lame, norm_sq, sqrt_2_3, strain_to_tensor, stress_to_tensor,
+    trace, write_tangent, SLOTS_4, SLOTS_6,
+};
+use crate::{ModelError, J2};
+
+/// Solid-3d only: the flaw needs the 23 and 13 components.
+const KINDS_3D: [PointKind; 1] = [PointKind::Solid3d];
+
+/// Canonical slots in the order 11, 22, 33, 12, 13, 23: the shear order `j2-shear-permuted`
+/// writes its tangent in.
+const PERMUTED_SLOTS: [usize; 6] = [0, 1, 2, 5, 4, 3];
+
+/// The routine index of the 13 shear component in the 6-component order (11, 22, 33, 23, 13, 12).
+const COLUMN_13: usize = 4;
+
+/// One way of spoiling the consistent J2 tangent. The stress update is J2's in every variant.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash)]
+pub enum J2Flaw {
+    /// `j2-shear-factor`: every shear column of the tangent divided by 2, as if the tangent
+    /// were written for tensor shear strain while the strain is engineering (γ = 2ε). Wrong in
+    /// both branches. Expected finding: `shear-factor`.
+    ShearFactor,
+    /// `j2-shear-permuted`: the tangent written with the shear rows and columns in the order
+    /// 12, 13, 23 while stress and strain use 23, 13, 12 (entry (i, j) holds C of components
+    /// p(i), p(j) with p swapping 23 and 12). The isotropic elastic tangent does not change
+    /// under that swap, so only the plastic branch is wrong (when n23 ≠ n12). Solid-3d only.
+    /// Expected finding: `shear-permutation`.
+    ShearPermuted,
+    /// `j2-elastic-first-plastic`: the elastic tangent in the first plastic increment (branch
+    /// 1 with α_n = 0 exactly: plastic flow starts from a virgin state), the consistent tangent
+    /// otherwise. Expected finding: `elastic-tangent`.
+    ElasticFirstPlastic,
+    /// `j2-stale`: the tangent of the previous increment. State: J2's 2·ncomp + 1 entries,
+    /// then [1 − θ, θ̄] of the consistent tangent at the end of this increment (0, 0 when it
+    /// is elastic), 2·ncomp + 3 entries in all. The tangent returned is
+    /// κ 1⊗1 + 2μθ_s(I − ⅓1⊗1) − 2μθ̄_s n_s⊗n_s with θ_s, θ̄_s read from the start state and
+    /// n_s the flow direction of the start state, ξ_n/‖ξ_n‖ with ξ_n = dev C:(ε − εp_n) − β_n
+    /// (n_s = 0 when ξ_n = 0). After a plastic increment ξ_n is parallel to that increment's
+    /// flow direction, so this is exactly the consistent tangent the previous increment
+    /// returned; a zero start (no previous increment) gives the elastic tangent. The tangent
+    /// therefore does not depend on Δε. Right only when the previous and the present
+    /// increment have the same derivative (elastic after elastic). Expected finding:
+    /// `stale-tangent`.
+    Stale,
+    /// `j2-no-kinematic`: the consistent tangent with H_kin left out of θ̄,
+    /// θ̄ = 1/(1 + K'/(3μ)) − (1 − θ), while the stress update keeps H_kin: the plastic
+    /// correction 2μθ̄ n⊗n has the wrong size. Right in the elastic branch and when
+    /// H_kin = 0. Expected finding: `rank-one-term`.
+    NoKinematic,
+    /// `j2-unit-factor`: the consistent tangent times [`UNIT_FACTOR`] (1000, a modulus in MPa
+    /// with stress in kPa). Wrong in both branches. Expected finding: `uniform-scale`.
+    UnitFactor,
+    /// `j2-one-column`: the consistent tangent with its 13 shear column taken from the elastic
+    /// tangent (the plastic term missing for one strain direction). Right in the elastic
+    /// branch. Solid-3d only. Expected finding: `one-column`.
+    OneColumn,
+}
+
+/// Factor of `j2-unit-factor`.
+pub const UNIT_FACTOR: f64 = 1e3;
+
+impl J2Flaw {
+    /// Every flaw, in the order of the zoo.
+    pub const ALL: [J2Flaw; 7] = [
+        J2Flaw::ShearFactor,
+        J2Flaw::ShearPermuted,
+        J2Flaw::ElasticFirstPlastic,
+        J2Flaw::Stale,
+        J2Flaw::NoKinematic,
+        J2Flaw::UnitFactor,
+        J2Flaw::OneColumn,
+    ];
+
+    /// The variant's stable name.
+    pub fn name(self) -> &'static str {
+        match self {
+            J2Flaw::ShearFactor => "j2-shear-factor",
+            J2Flaw::ShearPermuted => "j2-shear-permuted",
+            J2Flaw::ElasticFirstPlastic => "j2-elastic-first-plastic",
+            J2Flaw::Stale => "j2-stale",
+            J2Flaw::NoKinematic => "j2-no-kinematic",
+            J2Flaw::UnitFactor => "j2-unit-factor",
+            J2Flaw::OneColumn => "j2-one-column",
+        }
+    }
+
+    /// The flaw by its name.
+    pub fn from_name(name: &str) -> Option<J2Flaw> {
+        J2Flaw::ALL.into_iter().find(|f| f.name() == name)
+    }
+
+    /// Kinds of point the variant supports.
+    pub fn kinds(self) -> &'static [PointKind] {
+        match self {
+            J2Flaw::ShearPermuted | J2Flaw::OneColumn => &KINDS_3D,
+            _ => &J2::KINDS,
+        }
+    }
+
+    fn supported(self) -> &'static str {
+        match self {
+            J2Flaw::ShearPermuted | J2Flaw::OneColumn => "solid-3d",
+            _ => "solid-3d, plane-strain, axisymmetric",
+        }
+    }
+
+    /// State entries the variant adds after J2's 2·ncomp + 1.
+    pub fn extra_state(self) -> usize {
+        if self == J2Flaw::Stale {
+            2
+        } else {
+            0
+        }
+    }
+}
+
+/// A J2 model whose tangent is spoiled by one [`J2Flaw`].
+#[derive(Clone, Debug)]
+pub struct FlawedJ2 {
+    base: J2,
+    flaw: J2Flaw,
+    info: RoutineInfo,
+    slots: &'static [usize],
+}
+
+impl FlawedJ2 {
+    /// The variant with `flaw` for one kind of point (default order, engineering shear).
+    pub fn new(flaw: J2Flaw, kind: PointKind) -> Result<FlawedJ2, ModelError> {
+        if !flaw.kinds().contains(&kind) {
+            return Err(ModelError::UnsupportedKind {
+                model: flaw.name(),
+                kind,
+                supported: flaw.supported(),
+            });
+        }
+        let base = J2::new(kind)?;
+        let slots: &'static [usize] = if kind.ncomp() == 6 { &SLOTS_6 } else { &SLOTS_4 };
+        let info = RoutineInfo {
+            name: flaw.name().to_string(),
+            convention: Convention::new(kind, ShearMeasure::Engineering),
+            nstate: base.info().nstate + flaw.extra_state(),
+            nprop: base.info().nprop,
+        };
+        Ok(FlawedJ2 { base, flaw, info, slots })
+    }
+
+    /// The flaw of this variant.
+    pub fn flaw(&self) -> J2Flaw {
+        self.flaw
+    }
+}
+
+/// The relative stress ξ = dev C:(ε + Δε − εp) − β in canonical tensor components, by the
+/// operations of J2's trial state (Simo & Hughes 1998, Box 3.2). Without `dstrain`, the
+/// relative stress of the start state.
+fn relative_stress<S: Scalar>(
+    lambda: S,
+    mu: S,
+    strain: &[S],
+    dstrain: Option<&[S]>,
+    eps_p: &[S],
+    beta: &[S],
+    slots: &[usize],
+) -> [S; 6] {
+    let n = slots.len();
+    let mut v = [S::zero(); 6];
+    for i in 0..n {
+        v[i] = match dstrain {
+            Some(d) => strain[i] + d[i] - eps_p[i],
+            None => strain[i] - eps_p[i],
+        };
+    }
+    let ee = strain_to_tensor(&v[..n], slots);
+    let tr = trace(&ee);
+    let mut sigma = [S::zero(); 6];
+    for (k, s) in sigma.iter_mut().enumerate() {
+        *s = ee[k] * (mu * 2.0);
+        if k < 3 {
+            *s += lambda * tr;
+        }
+    }
+    let b = stress_to_tensor(beta, slots);
+    let dev = deviator(&sigma);
+    let mut xi = [S::zero(); 6];
+    for k in 0..6 {
+        xi[k] = dev[k] - b[k];
+    }
+    xi
+}
+
+/// ξ/‖ξ‖ and ‖ξ‖; the zero tensor when ‖ξ‖ = 0.
+fn direction<S: Scalar>(xi: &[S; 6]) -> ([S; 6], S) {
+    let norm = norm_sq(xi).sqrt_or_zero();
+    let mut n = [S::zero(); 6];
+    if norm.re() > 0.0 {
+        for k in 0..6 {
+            n[k] = xi[k] / norm;
+        }
+    }
+    (n, norm)
+}
+
+/// C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n in canonical components (engineering-shear columns:
+/// ½ on the shear diagonal of the symmetric identity), the J2 tangent of Simo & Hughes (1998),
+/// Box 3.2.
+fn j2_matrix<S: Scalar>(kappa: S, mu: S, theta: S, theta_bar: S, nrm: &[S; 6]) -> [[S; 6]; 6] {
+    let two_mu = mu * 2.0;
+    let shear_mod = two_mu * theta;
+    let mut c = [[S::zero(); 6]; 6];
+    for (a, row) in c.iter_mut().enumerate() {
+        for (b, x) in row.iter_mut().enumerate() {
+            let mut v = -two_mu * theta_bar * nrm[a] * nrm[b];
+            if a < 3 && b < 3 {
+                v += kappa - shear_mod / 3.0;
+            }
+            if a == b {
+                v += if a < 3 { shear_mod } else { shear_mod * 0.5 };
+            }
+            *x = v;
+        }
+    }
+    c
+}
+
+/// K'(α) = H_iso + Q b exp(−b α) from the J2 properties.
+fn hardening_slope<S: Scalar>(props: &[S], alpha: S) -> S {
+    props[3] + props[4] * props[5] * (-props[5] * alpha).exp()
+}
+
+impl Model for FlawedJ2 {
+    fn info(&self) -> &RoutineInfo {
+        &self.info
+    }
+
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        check_sizes(&self.info, input, output)?;
+        let slots = self.slots;
+        let n = slots.len();
+        let m = 2 * n + 1;
+        {
+            let j2_input = CallInput { state0: &input.state0[..m], ..*input };
+            let mut j2_output = CallOutput {
+                stress: &mut *output.stress,
+                state: &mut output.state[..m],
+                tangent: &mut *output.tangent,
+                dstress_dtemp: &mut *output.dstress_dtemp,
+                energy: &mut *output.energy,
+                outcome: &mut *output.outcome,
+            };
+            self.base.evaluate(&j2_input, &mut j2_output)?;
+        }
+        if output.outcome.status != status::OK {
+            // J2 has filled its part with NaN and written the message.
+            output.state[m..].fill(S::cst(f64::NAN));
+            return Ok(());
+        }
+        let plastic = output.outcome.branch == 1;
+        let p = input.props;
+        let (lambda, mu) = lame(p[0], p[1]);
+        let h_kin = p[6];
+        let tangent = &mut *output.tangent;
+        let alpha_n = input.state0[n];
+        let (eps_p_n, beta_n) = (&input.state0[..n], &input.state0[n + 1..m]);
+        match self.flaw {
+            J2Flaw::ShearFactor => {
+                for (j, &sj) in slots.iter().enumerate() {
+                    if is_shear_slot(sj) {
+                        for t in &mut tangent[j * n..(j + 1) * n] {
+                            *t = *t * 0.5;
+                        }
+                    }
+                }
+            }
+            J2Flaw::ShearPermuted => {
+                let mut c = [S::zero(); 36];
+                c.copy_from_slice(tangent);
+                for (j, &pj) in PERMUTED_SLOTS.iter().enumerate() {
+                    for (i, &pi) in PERMUTED_SLOTS.iter().enumerate() {
+                        tangent[i + 6 * j] = c[pi + 6 * pj];
+                    }
+                }
+            }
+            J2Flaw::ElasticFirstPlastic => {
+                if plastic && alpha_n.re() == 0.0 {
+                    write_tangent(&isotropic_matrix(lambda, mu), slots, tangent);
+                }
+            }
+            J2Flaw::Stale => {
+                // The returned tangent: the moduli kept by the previous increment, with the
+                // flow direction of the start state.
+                let xi_n = relative_stress(lambda, mu, input.strain, None, eps_p_n, beta_n, slots);
+                let (n_start, _) = direction(&xi_n);
+                let theta_s = S::one() - input.state0[m];
+                let theta_bar_s = input.state0[m + 1];
+                let kappa = lambda + mu * (2.0 / 3.0);
+                write_tangent(&j2_matrix(kappa, mu, theta_s, theta_bar_s, &n_start), slots, tangent);
+                // The moduli of this increment, for the next one.
+                let (one_minus_theta, theta_bar) = if plastic {
+                    let xi_tr = relative_stress(
+                        lambda,
+                        mu,
+                        input.strain,
+                        Some(input.dstrain),
+                        eps_p_n,
+                        beta_n,
+                        slots,
+                    );
+                    let (_, norm) = direction(&xi_tr);
+                    let alpha = output.state[n];
+                    let dgamma = (alpha - alpha_n) / sqrt_2_3();
+                    let one_minus_theta = mu * 2.0 * dgamma / norm;
+                    let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + 1.0);
+                    (one_minus_theta, ratio - one_minus_theta)
+                } else {
+                    (S::zero(), S::zero())
+                };
+                output.state[m] = one_minus_theta;
+                output.state[m + 1] = theta_bar;
+            }
+            J2Flaw::NoKinematic => {
+                if plastic {
+                    // θ̄ without H_kin minus θ̄ with it; the (1 − θ) parts cancel.
+                    let slope = hardening_slope(p, output.state[n]);
+                    let with_kin = S::one() / ((slope + h_kin) / (mu * 3.0) + 1.0);
+                    let without_kin = S::one() / (slope / (mu * 3.0) + 1.0);
+                    let shift = mu * 2.0 * (without_kin - with_kin);
+                    let xi_tr = relative_stress(
+                        lambda,
+                        mu,
+                        input.strain,
+                        Some(input.dstrain),
+                        eps_p_n,
+                        beta_n,
+                        slots,
+                    );
+                    let (nrm, _) = direction(&xi_tr);
+                    for (j, &sj) in slots.iter().enumerate() {
+                        for (i, &si) in slots.iter().enumerate() {
+                            tangent[i + j * n] -= shift * nrm[si] * nrm[sj];
+                        }
+                    }
+                }
+            }
+            J2Flaw::UnitFactor => {
+                for t in tangent.iter_mut() {
+                    *t = *t * UNIT_FACTOR;
+                }
+            }
+            J2Flaw::OneColumn => {
+                if plastic {
+                    let c = isotropic_matrix(lambda, mu);
+                    for i in 0..n {
+                        tangent[i + COLUMN_13 * n] = c[slots[i]][slots[COLUMN_13]];
+                    }
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::testing::{run, Point};
+
+    /// The worked case of REFERENCES.md (J2 plasticity): E = 200 GPa, ν = 0.3, σy0 = 250 MPa,
+    /// H_iso = 1000 MPa, H_kin = 500 MPa, one increment ε = diag(0.003, 0, 0) from the virgin
+    /// state.
+    const WORKED: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+
+    // The flaws leave the stress update alone: σ11 = 667.5774 MPa in the worked case
+    // (derived from the closed form of Simo & Hughes 1998, Box 3.2; REFERENCES.md), the same
+    // bits as J2, and the state of J2 in its first 2·ncomp + 1 entries.
+    #[test]
+    fn every_flaw_keeps_the_j2_stress_update() {
+        let j2 = J2::new(PointKind::Solid3d).unwrap();
+        let de = [0.003, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let reference = run(&j2, &Point::new(&WORKED, 6, 13).dstrain(&de)).unwrap();
+        assert!((reference.stress[0] - 667.5774).abs() <= 5e-5);
+        for flaw in J2Flaw::ALL {
+            let m = FlawedJ2::new(flaw, PointKind::Solid3d).unwrap();
+            let nstate = m.info().nstate;
+            let out = run(&m, &Point::new(&WORKED, 6, nstate).dstrain(&de)).unwrap();
+            assert_eq!(out.outcome.branch, 1, "{}", flaw.name());
+            assert_eq!(out.stress, reference.stress, "{}", flaw.name());
+            assert_eq!(out.state[..13], reference.state[..], "{}", flaw.name());
+            assert!(out.tangent.iter().all(|x| x.is_finite()), "{}", flaw.name());
+        }
+    }
+
+    #[test]
+    fn kinds_and_sizes() {
+        assert!(FlawedJ2::new(J2Flaw::ShearPermuted, PointKind::PlaneStrain).is_err());
+        assert!(FlawedJ2::new(J2Flaw::OneColumn, PointKind::Axisymmetric).is_err());
+        assert!(FlawedJ2::new(J2Flaw::Stale, PointKind::PlaneStress).is_err());
+        let m = FlawedJ2::new(J2Flaw::Stale, PointKind::PlaneStrain).unwrap();
+        assert_eq!((m.info().nstate, m.info().nprop), (11, 7));
+        for flaw in J2Flaw::ALL {
+            assert_eq!(J2Flaw::from_name(flaw.name()), Some(flaw));
+        }
+    }
+
+    // A failed J2 call stays failed, with every output NaN (also the extra state).
+    #[test]
+    fn failures_pass_through() {
+        let m = FlawedJ2::new(J2Flaw::Stale, PointKind::Solid3d).unwrap();
+        let mut props = WORKED;
+        props[2] = -1.0;
+        let out = run(&m, &Point::new(&props, 6, 15)).unwrap();
+        assert_eq!(out.outcome.status, status::FAILED);
+        assert!(out.outcome.message_text().contains("sy0"));
+        assert!(out.state.iter().chain(&out.tangent).all(|x| x.is_nan()));
+    }
+}
