@@ -21,6 +21,8 @@ fn conventions(kind: PointKind) -> Vec<Convention> {
             vec![vec!["11", "22", "33", "12"], vec!["12", "33", "22", "11"]]
         }
         PointKind::PlaneStress => vec![vec!["11", "22", "12"], vec!["12", "11", "22"]],
+        PointKind::Cohesive3d => vec![vec!["n", "s1", "s2"], vec!["s2", "n", "s1"]],
+        PointKind::Cohesive2d => vec![vec!["n", "s1"], vec!["s1", "n"]],
         _ => vec![kind.default_components().iter().map(|c| c.label()).collect()],
     };
     let mut v = Vec::new();
@@ -43,6 +45,23 @@ fn run(
     amp: f64,
     seed: u64,
 ) -> (usize, usize) {
+    run_with(model, kind, props, paths, len, amp, 0.0, seed).0
+}
+
+/// As `run`, with temperature increments up to `dtemp_amp` (heating on average); also
+/// returns the branch ids the routine reported.
+#[allow(clippy::too_many_arguments)]
+fn run_with(
+    model: &str,
+    kind: PointKind,
+    props: &[f64],
+    paths: usize,
+    len: usize,
+    amp: f64,
+    dtemp_amp: f64,
+    seed: u64,
+) -> ((usize, usize), Vec<i32>) {
+    let mut branches_seen = Vec::new();
     let mut rng = StdRng::seed_from_u64(seed);
     let convs = conventions(kind);
     let settings = Settings::default();
@@ -74,9 +93,14 @@ fn run(
             );
             total += 1;
             changed += inc.state_changed as usize;
+            if let Some(b) = inc.reported_branch {
+                if !branches_seen.contains(&b) {
+                    branches_seen.push(b);
+                }
+            }
         }
     }
-    (total, changed)
+    ((total, changed), branches_seen)
 }
 
 // Property sets inside each model's valid range; the check is the absence of false alarms.
@@ -101,5 +125,29 @@ fn elasticity_in_every_kind_has_no_false_alarms() {
     for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::PlaneStress, PointKind::Uniaxial] {
         let (total, _) = run("elastic", kind, &[68900.0, 0.33], 100, 10, 2e-3, 5);
         assert!(total >= 1000);
+    }
+}
+
+#[test]
+fn thermo_elasticity_has_no_false_alarms() {
+    // E20, ν0, ν1, EN 1993-1-2 Table 3.1 modulus, EN 1993-1-2 elongation, α (unused); random
+    // heating paths from 20 °C through several ranges of both laws (the checks include ∂σ/∂T).
+    let props = [210000.0, 0.3, 2e-5, 1.0, 1.0, 0.0];
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::PlaneStress, PointKind::Uniaxial] {
+        let ((total, _), _) = run_with("thermo", kind, &props, 100, 10, 1e-3, 23.7, 31);
+        assert!(total >= 1000);
+    }
+}
+
+#[test]
+fn the_cohesive_law_has_no_false_alarms_in_any_branch() {
+    // K (N/mm³), N, S (MPa), G_Ic, G_IIc (N/mm), η: demo values of an interface.
+    let props = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
+    for kind in [PointKind::Cohesive3d, PointKind::Cohesive2d] {
+        let ((total, changed), branches) = run_with("cohesive", kind, &props, 100, 12, 1.2e-3, 0.0, 41);
+        assert!(total >= 1000 && changed >= 100, "{total} {changed}");
+        for b in [0, 1, 2, 3] {
+            assert!(branches.contains(&b), "{kind}: branch {b} reached ({branches:?})");
+        }
     }
 }
