@@ -18,6 +18,7 @@ fn random_walk(n: usize) -> Path {
             dstrain: std::array::from_fn(|_| rng.gen_range(-4e-4..4e-4)),
             dtemp: 0.0,
             dtime: 1.0,
+            hold_stress: None,
         })
         .collect();
     Path { name: "random walk".into(), increments }

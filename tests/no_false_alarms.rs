@@ -77,6 +77,7 @@ fn run_with(
                 dstrain: std::array::from_fn(|_| rng.gen_range(-a..a)),
                 dtemp: 0.0,
                 dtime: 1.0,
+                hold_stress: None,
             })
             .collect();
         let path = Path { name: format!("random path {p}"), increments };

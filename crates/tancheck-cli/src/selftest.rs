@@ -39,6 +39,7 @@ fn path_for(e: &ZooEntry) -> Path {
             dstrain: [-5e-4, 0.0, 0.0, 0.0, 0.0, 0.0],
             dtemp: 0.0,
             dtime: 1.0,
+            hold_stress: None,
         });
         p.name = "uniaxial strain out to 1e-3, back through 0 (the kink) to -5e-4".into();
         p
@@ -60,6 +61,7 @@ fn path_for(e: &ZooEntry) -> Path {
                 dstrain: [s * 4e-4, s * 3e-4, s * 1.5e-4, 0.0, 0.0, 0.0],
                 dtemp: 0.0,
                 dtime: 1.0,
+                hold_stress: None,
             });
         }
         p

@@ -3,6 +3,7 @@
 use crate::compare::{compare, compare_dtemp};
 use crate::diagnose::{self, Context};
 use crate::driver::{Direction, Driver, PointState};
+use crate::mixed;
 use crate::path::Path;
 use crate::report::{
     BranchSummary, CallCounts, CallRecord, CheckOutcome, FaultRecord, IncrementResult, Report,
@@ -52,9 +53,32 @@ pub fn run(
     for (k, inc) in path.increments.iter().enumerate() {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
-        let work: f64 = (0..n).map(|i| driver.start().stress[i] * dstrain[i]).sum();
+        let mut solve_log = None;
+        let base = match &inc.hold_stress {
+            None => driver.base_call(caller),
+            Some(hold) => {
+                let (controlled, targets) = held_components(&conv, hold);
+                match mixed::solve(&mut driver, caller, &controlled, &targets, &settings.mixed, true) {
+                    Ok(log) => {
+                        solve_log = Some(log);
+                        Ok(())
+                    }
+                    Err(f) => Err(f),
+                }
+            }
+        };
+        let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
         unloaded |= work < 0.0;
-        if let Err(fault) = driver.base_call(caller) {
+        if let Some(log) = &solve_log {
+            if !log.converged {
+                notes.push(format!(
+                    "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
+                    k + 1,
+                    log.residuals
+                ));
+            }
+        }
+        if let Err(fault) = base {
             increments.push(IncrementResult {
                 index: k + 1,
                 reported_branch: None,
@@ -63,6 +87,7 @@ pub fn run(
                 stress: driver.start().stress.clone(),
                 checks: Vec::new(),
                 non_finite: Vec::new(),
+                solve: solve_log,
                 diagnosis: None,
                 fault: Some(fault_record(&fault, &driver, None)),
             });
@@ -215,6 +240,7 @@ pub fn run(
             stress: driver.start().stress.clone(),
             checks,
             non_finite,
+            solve: solve_log,
             diagnosis,
             fault,
         });
@@ -303,6 +329,19 @@ fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRec
             dtime: d.dtime(),
         },
     }
+}
+
+/// Routine positions and targets of the stress components a mixed-control increment holds.
+pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
+    let mut controlled = Vec::new();
+    let mut targets = Vec::new();
+    for (i, c) in conv.order().iter().enumerate() {
+        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
+            controlled.push(i);
+            targets.push(t);
+        }
+    }
+    (controlled, targets)
 }
 
 fn branch_summary(increments: &[IncrementResult]) -> Vec<BranchSummary> {

@@ -195,6 +195,12 @@ impl Driver {
         }
     }
 
+    /// Replace the strain increment (the start state stays; the base call must be made again).
+    pub fn set_dstrain(&mut self, dstrain: &[f64]) {
+        self.dstrain.copy_from_slice(dstrain);
+        self.full_dstrain.copy_from_slice(dstrain);
+    }
+
     /// Scale the strain increment to `s` times the one set by [`Driver::set_increment`]
     /// (the start state stays). `rescale(1.0)` restores it; the base call must be made again.
     pub fn rescale(&mut self, s: f64) {

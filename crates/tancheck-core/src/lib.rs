@@ -11,6 +11,7 @@ pub mod compare;
 pub mod convention;
 pub mod diagnose;
 pub mod driver;
+pub mod mixed;
 pub mod path;
 pub mod report;
 pub mod routine;

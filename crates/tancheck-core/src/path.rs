@@ -17,6 +17,18 @@ pub struct PathIncrement {
     pub dtemp: f64,
     #[serde(default = "one")]
     pub dtime: f64,
+    /// Mixed control: canonical stress components held at these values at the end of the
+    /// increment (`null` for a strain-controlled component, whose `dstrain` applies); the
+    /// strain increments of held components are solved for.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hold_stress: Option<[Option<f64>; 6]>,
+}
+
+impl PathIncrement {
+    /// A strain-controlled increment.
+    pub fn strain(dstrain: [f64; 6]) -> PathIncrement {
+        PathIncrement { dstrain, dtemp: 0.0, dtime: 1.0, hold_stress: None }
+    }
 }
 
 fn one() -> f64 {
@@ -87,7 +99,7 @@ impl Path {
         let mut increments = Vec::with_capacity(steps_out + steps_back);
         for k in 0..steps_out + steps_back {
             let s = if k < steps_out { peak / steps_out as f64 } else { -peak / steps_back as f64 };
-            increments.push(PathIncrement { dstrain: d.map(|x| x * s), dtemp: 0.0, dtime: 1.0 });
+            increments.push(PathIncrement::strain(d.map(|x| x * s)));
         }
         let name = if steps_back > 0 {
             format!("{} to {peak:e} and back ({steps_out}+{steps_back} increments)", shape.name())
@@ -95,6 +107,17 @@ impl Path {
             format!("{} to {peak:e} ({steps_out} increments)", shape.name())
         };
         Path { name, increments }
+    }
+
+    /// Uniaxial stress: ε11 prescribed out to `peak` in `steps_out` increments and back in
+    /// `steps_back`, every other stress component held at zero.
+    pub fn uniaxial_stress(peak: f64, steps_out: usize, steps_back: usize) -> Path {
+        let mut p = Path::ramp(Shape::UniaxialStrain, peak, steps_out, steps_back);
+        for inc in &mut p.increments {
+            inc.hold_stress = Some([None, Some(0.0), Some(0.0), Some(0.0), Some(0.0), Some(0.0)]);
+        }
+        p.name = p.name.replace("uniaxial-strain", "uniaxial stress");
+        p
     }
 
     pub fn validate(&self) -> Result<(), String> {

@@ -132,6 +132,9 @@ pub struct IncrementResult {
     /// Outputs of the base call that are not finite numbers, e.g. "stress[0]" (the
     /// increment fails whatever the derivatives say).
     pub non_finite: Vec<String>,
+    /// The mixed-control solve of this increment, when it holds some stresses.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub solve: Option<crate::mixed::SolveLog>,
     /// The closer look taken when a check failed: kink, step studies, ranked causes.
     pub diagnosis: Option<Diagnosis>,
     /// The base call (or a call of the diagnosis) failed: the path stopped here.

@@ -45,6 +45,8 @@ pub struct Settings {
     pub worst_entries: usize,
     /// When a check fails, take a closer look: kink probe, step studies, cause hypotheses.
     pub diagnose: bool,
+    /// The Newton solve of mixed-control increments.
+    pub mixed: crate::mixed::MixedSettings,
 }
 
 impl Default for Settings {
@@ -62,6 +64,7 @@ impl Default for Settings {
             entry_floor: 1e-2,
             worst_entries: 4,
             diagnose: true,
+            mixed: crate::mixed::MixedSettings::default(),
         }
     }
 }

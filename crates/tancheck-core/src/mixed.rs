@@ -1,0 +1,148 @@
+//! Mixed control at the material point: some strain components prescribed, the stresses of
+//! the others held at targets (e.g. uniaxial stress: ε11 prescribed, every other stress zero),
+//! solved by Newton's method with the routine's own tangent, falling back to a numerical
+//! (central-difference) tangent when the routine's does not converge.
+
+use serde::{Deserialize, Serialize};
+
+use crate::driver::{Direction, Driver};
+use crate::routine::{Caller, Fault};
+use crate::schemes::Scheme;
+
+/// Settings of the mixed-control solve.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct MixedSettings {
+    /// Converged when every controlled stress is within `stress_tol` × max(1, ‖σ‖∞).
+    pub stress_tol: f64,
+    pub max_iterations: usize,
+}
+
+impl Default for MixedSettings {
+    fn default() -> Self {
+        MixedSettings { stress_tol: 1e-10, max_iterations: 25 }
+    }
+}
+
+/// How the solve went.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SolveLog {
+    /// Residual norm (controlled stresses minus targets) before each iteration and at the end.
+    pub residuals: Vec<f64>,
+    pub converged: bool,
+    /// The routine's tangent did not converge and a numerical one was used.
+    pub numerical_fallback: bool,
+}
+
+impl SolveLog {
+    /// Observed orders p_k = ln(r_{k+1}/r_k) / ln(r_k/r_{k−1}) (a standard result of Newton's
+    /// method: → 2 with the exact Jacobian, ≈ 1 with an approximate one).
+    pub fn orders(&self) -> Vec<f64> {
+        let r = &self.residuals;
+        (1..r.len().saturating_sub(1))
+            .filter(|&k| r[k + 1] > 0.0 && r[k] > 0.0 && r[k - 1] > 0.0 && r[k] < r[k - 1])
+            .map(|k| (r[k + 1] / r[k]).ln() / (r[k] / r[k - 1]).ln())
+            .collect()
+    }
+}
+
+/// Solve the current increment of `driver` so that the stresses of the components in
+/// `controlled` (routine order) reach `targets`; the other components keep their strain
+/// increments. On return the base call holds the converged state.
+pub fn solve(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    controlled: &[usize],
+    targets: &[f64],
+    settings: &MixedSettings,
+    use_routine_tangent: bool,
+) -> Result<SolveLog, Fault> {
+    let m = controlled.len();
+    let n = driver.ncomp();
+    let mut dstrain = driver.dstrain().to_vec();
+    let mut residuals = Vec::new();
+    let mut numerical_fallback = !use_routine_tangent;
+    let mut jac = vec![0.0; n * n];
+    for attempt in 0..2 {
+        if attempt == 1 {
+            if numerical_fallback {
+                break;
+            }
+            numerical_fallback = true;
+            residuals.clear();
+        }
+        for _ in 0..settings.max_iterations {
+            driver.set_dstrain(&dstrain);
+            driver.base_call(caller)?;
+            let scale = driver.base.stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
+            let r: Vec<f64> = (0..m).map(|k| driver.base.stress[controlled[k]] - targets[k]).collect();
+            let norm = r.iter().map(|x| x * x).sum::<f64>().sqrt();
+            residuals.push(norm);
+            if norm <= settings.stress_tol * scale {
+                return Ok(SolveLog { residuals, converged: true, numerical_fallback });
+            }
+            if numerical_fallback {
+                let h = 1e-6 * driver.strain_scale(1e-6);
+                for j in 0..n {
+                    Scheme::Central.column(
+                        driver,
+                        caller,
+                        Direction::Strain(j),
+                        h,
+                        &mut jac[j * n..(j + 1) * n],
+                    )?;
+                }
+            } else {
+                jac.copy_from_slice(&driver.base.tangent);
+            }
+            // Solve J_cc δ = −r on the controlled block.
+            let mut a = vec![0.0; m * m];
+            for (p, &i) in controlled.iter().enumerate() {
+                for (q, &j) in controlled.iter().enumerate() {
+                    a[p + q * m] = jac[i + j * n];
+                }
+            }
+            let Some(delta) = solve_dense(&a, &r.iter().map(|x| -x).collect::<Vec<_>>(), m) else { break };
+            for (q, &j) in controlled.iter().enumerate() {
+                dstrain[j] += delta[q];
+            }
+        }
+        // Restart from the prescribed increment with the numerical tangent.
+        dstrain.copy_from_slice(driver.dstrain());
+        for &j in controlled {
+            dstrain[j] = 0.0;
+        }
+    }
+    Ok(SolveLog { residuals, converged: false, numerical_fallback })
+}
+
+/// Gaussian elimination with partial pivoting; `a` column-major m×m. None when singular.
+fn solve_dense(a: &[f64], b: &[f64], m: usize) -> Option<Vec<f64>> {
+    let mut a = a.to_vec();
+    let mut x = b.to_vec();
+    for c in 0..m {
+        let p = (c..m).max_by(|&i, &j| a[i + c * m].abs().total_cmp(&a[j + c * m].abs()))?;
+        if a[p + c * m].abs() < 1e-300 {
+            return None;
+        }
+        for k in 0..m {
+            a.swap(c + k * m, p + k * m);
+        }
+        x.swap(c, p);
+        for i in c + 1..m {
+            let f = a[i + c * m] / a[c + c * m];
+            for k in c..m {
+                a[i + k * m] -= f * a[c + k * m];
+            }
+            x[i] -= f * x[c];
+        }
+    }
+    for c in (0..m).rev() {
+        let mut s = x[c];
+        for k in c + 1..m {
+            s -= a[c + k * m] * x[k];
+        }
+        x[c] = s / a[c + c * m];
+    }
+    Some(x)
+}

@@ -1,0 +1,88 @@
+//! Mixed control at the material point: uniaxial stress on J2 with linear hardening
+//! reproduces the elastoplastic modulus E·h/(E + h), h = H_iso + H_kin (REFERENCES.md:
+//! 1488.834 MPa for E = 200 GPa, h = 1500 MPa, derived from the J2 closed form of Simo &
+//! Taylor 1985); Newton's method with the consistent tangent converges quadratically and with
+//! the continuum tangent only linearly (a standard result of Newton's method, REFERENCES.md).
+
+use tancheck::core::path::{Path, PathIncrement};
+use tancheck::core::{check, Caller, PointKind, PointState, Report, Routine, Settings};
+use tancheck::models::reference;
+
+fn run(model: &str, props: &[f64], path: &Path) -> Report {
+    let mut r = reference(model, PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    check::run(&mut caller, props, PointState::zero(&info, 20.0), path, &Settings::default()).unwrap()
+}
+
+#[test]
+fn uniaxial_stress_gives_the_elastoplastic_modulus() {
+    let (e, h) = (200000.0, 1500.0);
+    let props = [e, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+    let path = Path::uniaxial_stress(6e-3, 12, 0);
+    let r = run("j2", &props, &path);
+    assert_eq!(r.verdict, tancheck::core::Verdict::Pass);
+    for inc in &r.increments {
+        let log = inc.solve.as_ref().expect("a mixed-control increment");
+        assert!(log.converged, "{log:?}");
+        // The lateral stresses are held at zero.
+        for s in &inc.stress[1..] {
+            assert!(s.abs() < 1e-7, "{:?}", inc.stress);
+        }
+    }
+    let et = e * h / (e + h);
+    assert!((et - 1488.834).abs() < 5e-4);
+    // After yield (about ε11 = σy/E = 1.25e-3), the slope of σ11 against ε11 is E_t.
+    let plastic: Vec<_> = r.increments.iter().filter(|i| i.state_changed).collect();
+    assert!(plastic.len() >= 8);
+    for w in plastic.windows(2) {
+        let slope = (w[1].stress[0] - w[0].stress[0]) / (w[1].strain[0] - w[0].strain[0]);
+        assert!((slope / et - 1.0).abs() < 1e-8, "slope {slope}, E_t {et}");
+    }
+    // Before yield it is E.
+    let first = &r.increments[0];
+    assert!((first.stress[0] / first.strain[0] / e - 1.0).abs() < 1e-10);
+}
+
+/// Tension with the lateral stresses held at zero, then shear at fixed ε11: the flow direction
+/// turns, so the difference between the continuum and the consistent tangent acts on the
+/// held components (in proportional uniaxial stress it does not).
+fn tension_then_shear() -> Path {
+    let hold = Some([None, Some(0.0), Some(0.0), Some(0.0), Some(0.0), None]);
+    let mut increments = Vec::new();
+    for k in 0..8 {
+        let d = if k < 4 { [1e-3, 0.0, 0.0, 0.0, 0.0, 0.0] } else { [0.0, 0.0, 0.0, 0.0, 0.0, 1e-3] };
+        increments.push(PathIncrement { hold_stress: hold, ..PathIncrement::strain(d) });
+    }
+    Path { name: "tension, then shear at fixed tension strain".into(), increments }
+}
+
+fn newton_orders(model: &str) -> Vec<f64> {
+    // Voce hardening makes the plastic response nonlinear, so Newton needs several iterations.
+    let props = [200000.0, 0.3, 250.0, 500.0, 300.0, 30.0, 0.0];
+    let r = run(model, &props, &tension_then_shear());
+    let mut orders = Vec::new();
+    for inc in r.increments.iter().filter(|i| i.state_changed) {
+        let log = inc.solve.as_ref().unwrap();
+        assert!(log.converged && !log.numerical_fallback, "{model}: {log:?}");
+        // Orders from residuals well above the rounding floor.
+        let scale = inc.stress[0].abs().max(1.0);
+        let r: Vec<f64> = log.residuals.iter().cloned().filter(|&x| x > 1e-13 * scale).collect();
+        let l = tancheck::core::mixed::SolveLog { residuals: r, converged: true, numerical_fallback: false };
+        orders.extend(l.orders());
+    }
+    orders
+}
+
+#[test]
+fn newton_converges_quadratically_with_the_consistent_tangent_only() {
+    let consistent = newton_orders("j2");
+    assert!(!consistent.is_empty());
+    let best = consistent.iter().cloned().fold(0.0, f64::max);
+    assert!(best >= 1.9, "consistent orders {consistent:?}");
+    let continuum = newton_orders("j2-continuum");
+    assert!(!continuum.is_empty());
+    for p in &continuum {
+        assert!((p - 1.0).abs() < 0.25, "continuum orders {continuum:?}");
+    }
+}
