@@ -75,7 +75,7 @@ fn run_with(
         let increments = (0..len)
             .map(|_| PathIncrement {
                 dstrain: std::array::from_fn(|_| rng.gen_range(-a..a)),
-                dtemp: 0.0,
+                dtemp: if dtemp_amp > 0.0 { rng.gen_range(-0.3 * dtemp_amp..dtemp_amp) } else { 0.0 },
                 dtime: 1.0,
                 hold_stress: None,
             })
