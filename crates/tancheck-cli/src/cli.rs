@@ -32,6 +32,8 @@ struct Cli {
 enum Command {
     /// Check one routine described by a manifest file.
     Check(CheckArgs),
+    /// Run a probe suite (tangent, symmetry, energy, hidden state, ...) on one routine.
+    Probe(ProbeArgs),
     /// Compile C and Fortran sources into a shared library, with the complex-step twin.
     Build(BuildArgs),
     /// Build the bundled example routines and check them.
@@ -78,6 +80,28 @@ struct CheckArgs {
 }
 
 #[derive(Args, Debug)]
+struct ProbeArgs {
+    /// The manifest (JSON) that names the routine.
+    manifest: PathBuf,
+    /// The suite file; default: the built-in suite for the routine's kind
+    /// (probes/solid.json, probes/thermal.json with --thermal, probes/cohesive.json).
+    #[arg(long, value_name = "FILE")]
+    suite: Option<PathBuf>,
+    /// Use the thermal default suite (heating along the path).
+    #[arg(long)]
+    thermal: bool,
+    /// Path to walk instead of the suite's: SHAPE:PEAK:STEPS[:BACK].
+    #[arg(long, value_name = "SPEC")]
+    path: Option<String>,
+    /// Write the JSON report to FILE (`-` for standard output).
+    #[arg(long, value_name = "FILE")]
+    json: Option<PathBuf>,
+    /// Print the details of every probe.
+    #[arg(short, long)]
+    verbose: bool,
+}
+
+#[derive(Args, Debug)]
 struct BuildArgs {
     /// C (.c) and Fortran (.f, .f90, .F90, ...) sources.
     #[arg(required = true)]
@@ -118,6 +142,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     let result = match cli.command {
         Command::Check(a) => cmd_check(a),
         Command::Build(a) => cmd_build(a),
+        Command::Probe(a) => cmd_probe(a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
         Command::Selftest { verbose } => crate::selftest::run(verbose),
@@ -209,6 +234,81 @@ pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> 
         }
     }
     Ok(())
+}
+
+fn cmd_probe(a: ProbeArgs) -> Result<i32> {
+    let (m, dir) = Manifest::load(&a.manifest)?;
+    let suite = match &a.suite {
+        Some(f) => crate::suite::Suite::load(f)?,
+        None => crate::suite::Suite::default_for(m.routine.kind, a.thermal),
+    };
+    if !suite.kinds.is_empty() && !suite.kinds.contains(&m.routine.kind) {
+        eprintln!(
+            "tancheck: warning: suite `{}` is meant for {:?}, the routine is {}",
+            suite.suite, suite.kinds, m.routine.kind
+        );
+    }
+    let path = match &a.path {
+        Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
+        None => suite.path().map_err(anyhow::Error::msg)?,
+    };
+    let mut loaded = load(&m, &dir)?;
+    let routine = loaded.routine();
+    let start = start_state(&m, routine.info())?;
+    let mut caller = Caller::new(routine);
+    let report = tancheck_core::probe::run_suite(
+        &mut caller,
+        &suite.suite,
+        &suite.probes,
+        &m.routine.properties,
+        &start,
+        &path,
+        &m.check,
+    )
+    .map_err(anyhow::Error::msg)?;
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    let to_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
+    if let Some(p) = &a.json {
+        let text = serde_json::to_vec_pretty(&report)?;
+        if to_stdout {
+            out.write_all(&text)?;
+            writeln!(out)?;
+        } else {
+            write_atomic(p, &text).with_context(|| format!("writing {}", p.display()))?;
+        }
+    }
+    if !to_stdout {
+        writeln!(out, "== {} — suite {} ==", report.routine, report.suite)?;
+        writeln!(
+            out,
+            "   path: {}
+",
+            report.path
+        )?;
+        for r in &report.results {
+            writeln!(out, "   {:<15} {:<8} {}", r.probe, r.status.word(), r.summary)?;
+            if a.verbose || r.status == tancheck_core::probe::ProbeStatus::Fail {
+                for d in &r.details {
+                    writeln!(out, "                            {d}")?;
+                }
+            }
+        }
+        let failed =
+            report.results.iter().filter(|r| r.status == tancheck_core::probe::ProbeStatus::Fail).count();
+        writeln!(
+            out,
+            "\n   verdict: {} — {} of {} probes failed (exit {})",
+            if report.pass { "PASS" } else { "FAIL" },
+            failed,
+            report.results.len(),
+            if report.pass { 0 } else { 1 }
+        )?;
+        for c in &report.cautions {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
+    Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
 }
 
 fn cmd_build(a: BuildArgs) -> Result<i32> {

@@ -7,6 +7,7 @@ pub mod load;
 pub mod manifest;
 pub mod report;
 pub mod selftest;
+pub mod suite;
 
 pub use cli::main_with_args;
 

@@ -77,6 +77,8 @@ pub struct PathSpec {
     pub steps: Option<usize>,
     #[serde(default)]
     pub back: usize,
+    /// Temperature increment of every increment of a ramp.
+    pub dtemp: Option<f64>,
     pub name: Option<String>,
     pub increments: Option<Vec<PathIncrement>>,
 }
@@ -88,6 +90,7 @@ pub struct RampSpec {
     pub peak: f64,
     pub steps: usize,
     pub back: usize,
+    pub dtemp: f64,
 }
 
 /// A manifest that cannot be used, with where and why.
@@ -158,7 +161,16 @@ impl Manifest {
 
     /// The path from the manifest, or `default` when it has none.
     pub fn path_or(&self, default: Path) -> Result<Path, String> {
-        let Some(p) = &self.path else { return Ok(default) };
+        match &self.path {
+            None => Ok(default),
+            Some(p) => path_from_spec(p),
+        }
+    }
+}
+
+/// A path from its spec (manifest or suite file).
+pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
+    {
         match (&p.increments, &p.shape) {
             (Some(incs), None) if p.peak.is_none() && p.steps.is_none() => Ok(Path {
                 name: p.name.clone().unwrap_or_else(|| "increments from the manifest".into()),
@@ -169,22 +181,42 @@ impl Manifest {
                 peak: p.peak.ok_or("path.peak is required with path.shape")?,
                 steps: p.steps.ok_or("path.steps is required with path.shape")?,
                 back: p.back,
+                dtemp: p.dtemp.unwrap_or(0.0),
             }),
             _ => Err("path: give either shape, peak, steps (and back), or increments".into()),
         }
     }
 }
 
-/// Build a ramp path, checking its numbers.
+/// Build a ramp path, checking its numbers. Besides the built-in shapes, `uniaxial-stress`
+/// prescribes ε11 and holds every other stress at zero.
 pub fn ramp(r: &RampSpec) -> Result<Path, String> {
-    let shape = Shape::from_name(&r.shape)?;
     if r.steps == 0 {
         return Err("path.steps must be at least 1".into());
     }
     if !r.peak.is_finite() || r.peak == 0.0 {
         return Err("path.peak must be a nonzero number".into());
     }
-    Ok(Path::ramp(shape, r.peak, r.steps, r.back))
+    if !r.dtemp.is_finite() {
+        return Err("path.dtemp must be a finite number".into());
+    }
+    let mut p = if r.shape == "uniaxial-stress" {
+        Path::uniaxial_stress(r.peak, r.steps, r.back)
+    } else {
+        Path::ramp(
+            Shape::from_name(&r.shape).map_err(|e| format!("{e}, uniaxial-stress"))?,
+            r.peak,
+            r.steps,
+            r.back,
+        )
+    };
+    if r.dtemp != 0.0 {
+        for inc in &mut p.increments {
+            inc.dtemp = r.dtemp;
+        }
+        p.name = format!("{}, ΔT = {} per increment", p.name, r.dtemp);
+    }
+    Ok(p)
 }
 
 /// Parse a path given on the command line: `SHAPE:PEAK:STEPS[:BACK]`.
@@ -199,7 +231,7 @@ pub fn parse_path_arg(s: &str) -> Result<Path, String> {
         Some(b) => b.parse::<usize>().map_err(|_| format!("--path: `{b}` is not a count"))?,
         None => 0,
     };
-    ramp(&RampSpec { shape: parts[0].into(), peak, steps, back })
+    ramp(&RampSpec { shape: parts[0].into(), peak, steps, back, dtemp: 0.0 })
 }
 
 #[cfg(test)]

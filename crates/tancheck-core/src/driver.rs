@@ -195,6 +195,14 @@ impl Driver {
         }
     }
 
+    /// Replace the strain and temperature increments without counting a new increment (for
+    /// probes that call around the current one; the base call must be made again).
+    pub fn set_increment_keep_count(&mut self, dstrain: &[f64], dtemp: f64) {
+        self.dstrain.copy_from_slice(dstrain);
+        self.full_dstrain.copy_from_slice(dstrain);
+        self.dtemp = dtemp;
+    }
+
     /// Replace the strain increment (the start state stays; the base call must be made again).
     pub fn set_dstrain(&mut self, dstrain: &[f64]) {
         self.dstrain.copy_from_slice(dstrain);

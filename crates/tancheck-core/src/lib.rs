@@ -6,6 +6,7 @@
 //! [`compare`] → [`report`]; [`check::run`] ties them together.
 
 pub mod adapt;
+pub mod bisect; pub mod case;
 pub mod check;
 pub mod compare;
 pub mod convention;
@@ -13,6 +14,7 @@ pub mod diagnose;
 pub mod driver;
 pub mod mixed;
 pub mod path;
+pub mod probe;
 pub mod report;
 pub mod routine;
 pub mod scalar;

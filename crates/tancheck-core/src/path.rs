@@ -57,11 +57,20 @@ pub enum Shape {
     /// ε11 with ε12 = ε11/2, ε13 = 0.15 ε11 and ε23 = −ε11/4: every column of a 3D tangent is
     /// exercised, and the flow direction has no zero shear component.
     TensionShear,
+    /// Slots 0, 1, 2 as 1, 0.75, 0.375: for cohesive points an opening with both slips (mixed
+    /// mode); for solids a triaxial normal strain.
+    MixedMode,
 }
 
 impl Shape {
-    pub const ALL: [Shape; 5] =
-        [Shape::UniaxialStrain, Shape::Shear12, Shape::Biaxial, Shape::Hydrostatic, Shape::TensionShear];
+    pub const ALL: [Shape; 6] = [
+        Shape::UniaxialStrain,
+        Shape::Shear12,
+        Shape::Biaxial,
+        Shape::Hydrostatic,
+        Shape::TensionShear,
+        Shape::MixedMode,
+    ];
 
     pub fn name(self) -> &'static str {
         match self {
@@ -70,6 +79,7 @@ impl Shape {
             Shape::Biaxial => "biaxial",
             Shape::Hydrostatic => "hydrostatic",
             Shape::TensionShear => "tension-shear",
+            Shape::MixedMode => "mixed-mode",
         }
     }
 
@@ -80,6 +90,7 @@ impl Shape {
             Shape::Biaxial => [1.0, 1.0, 0.0, 0.0, 0.0, 0.0],
             Shape::Hydrostatic => [1.0, 1.0, 1.0, 0.0, 0.0, 0.0],
             Shape::TensionShear => [1.0, 0.0, 0.0, -0.25, 0.15, 0.5],
+            Shape::MixedMode => [1.0, 0.75, 0.375, 0.0, 0.0, 0.0],
         }
     }
 

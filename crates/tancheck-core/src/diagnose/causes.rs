@@ -355,6 +355,9 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
         for (x, y) in d.iter_mut().zip(&m) {
             *x -= y;
         }
+        if d.iter().chain(&m).any(|x| !x.is_finite()) {
+            return finish(hs);
+        }
         let dm = nalgebra::DMatrix::from_column_slice(n, n, &d);
         let sv = dm.singular_values();
         let mut s: Vec<f64> = sv.iter().cloned().collect();
@@ -370,6 +373,12 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
         }
     }
 
+    finish(hs)
+}
+
+/// Rank: explaining hypotheses first, the more specific before the more general; then by the
+/// error left.
+fn finish(mut hs: Vec<Hypothesis>) -> Vec<Hypothesis> {
     hs.sort_by(|a, b| {
         b.explains
             .cmp(&a.explains)

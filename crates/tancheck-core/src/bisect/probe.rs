@@ -1,0 +1,252 @@
+//! The check of one call on its own: the tangent the routine returns at the driver's current
+//! increment against each scheme's derivative, the outputs that are not finite numbers, and the
+//! diagnosis when a check fails.
+//!
+//! This is the per-increment judgement of [`crate::check::run`], made available for a single
+//! call so that a bisection can judge a scaled increment and a replay can judge a saved call
+//! with the same rules.
+
+use serde::{Deserialize, Serialize};
+
+use crate::compare::{compare, compare_dtemp};
+use crate::diagnose::{self, Context, Diagnosis};
+use crate::driver::{Direction, Driver};
+use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck};
+use crate::routine::{provides, Caller, Fault};
+use crate::schemes::Scheme;
+use crate::settings::Settings;
+
+/// The judgement of one call.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct CallCheck {
+    /// The branch the routine reported, if it reported one.
+    pub reported_branch: Option<i32>,
+    /// Whether the state variables changed in the call.
+    pub state_changed: bool,
+    pub checks: Vec<SchemeCheck>,
+    /// Outputs of the call that are not finite numbers, e.g. "stress[0] = NaN".
+    pub non_finite: Vec<String>,
+    pub diagnosis: Option<Diagnosis>,
+    /// The best numerical tangent measured (complex step when it ran, else the highest
+    /// order), with its scheme: what the next increment's stale-tangent hypothesis needs.
+    pub best: Option<(Scheme, Vec<f64>)>,
+}
+
+impl CallCheck {
+    /// The verdict of the call, by the rule of [`crate::report::IncrementResult::passed`].
+    pub fn passed(&self) -> bool {
+        self.non_finite.is_empty()
+            && match &self.diagnosis {
+                Some(d) => d.pass,
+                None => self.checks.iter().all(SchemeCheck::passed),
+            }
+    }
+
+    /// The largest tangent error of any comparison (0 when none ran).
+    pub fn worst_error(&self) -> f64 {
+        self.checks
+            .iter()
+            .filter_map(|c| match &c.tangent {
+                CheckOutcome::Compared(x) => Some(x.norm_error.max(x.worst_entry_error)),
+                _ => None,
+            })
+            .fold(0.0, f64::max)
+    }
+
+    /// Whether a perturbed call faulted.
+    pub fn faulted(&self) -> bool {
+        self.checks.iter().any(|c| {
+            matches!(c.tangent, CheckOutcome::Fault(_)) || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+        })
+    }
+
+    /// What the diagnosis found: `none` when the call passed, `undiagnosed` when it failed
+    /// without a diagnosis.
+    pub fn finding(&self) -> &str {
+        match &self.diagnosis {
+            Some(d) => &d.finding,
+            None if self.passed() => "none",
+            None => "undiagnosed",
+        }
+    }
+}
+
+/// The inputs of the driver's current call, with the perturbation named.
+pub fn call_record(d: &Driver, perturbation: Option<String>) -> CallRecord {
+    let s = d.start();
+    CallRecord {
+        increment: d.increment(),
+        perturbation,
+        props: d.props().to_vec(),
+        strain: s.strain.clone(),
+        dstrain: d.dstrain().to_vec(),
+        temp: s.temp,
+        dtemp: d.dtemp(),
+        stress0: s.stress.clone(),
+        state0: s.state.clone(),
+        time: s.time,
+        dtime: d.dtime(),
+    }
+}
+
+fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
+    FaultRecord {
+        message: f.to_string(),
+        signal: match f {
+            Fault::Crashed { signal, .. } => Some(*signal),
+            _ => None,
+        },
+        call: call_record(d, perturbation),
+    }
+}
+
+/// Check the driver's current increment (as set, or rescaled): the base call, every scheme of
+/// `settings`, and the diagnosis when a check fails and `settings.diagnose` is on. `previous`
+/// is the best numerical tangent at the end of the previous increment, if known.
+///
+/// A fault of the base call or of a call of the diagnosis is the error; a fault of a
+/// perturbed call is a [`CheckOutcome::Fault`] in the result. The base outputs stay in
+/// `driver.base`.
+pub fn check_call(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+    previous: Option<&[f64]>,
+) -> Result<CallCheck, Fault> {
+    let conv = caller.info().convention.clone();
+    let n = conv.ncomp();
+    let has_twin = caller.has_complex();
+    driver.base_call(caller)?;
+    let returned = driver.base.tangent.clone();
+    let returned_dtemp =
+        driver.base.outcome.provides(provides::DSTRESS_DTEMP).then(|| driver.base.dstress_dtemp.clone());
+    let reported = driver.base.outcome.branch;
+    let state_changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
+    let h_strain_scale = driver.strain_scale(settings.step_floor);
+    let h_temp_scale = driver.temp_scale(settings.temp_floor);
+    let mut numerical = vec![0.0; n * n];
+    let mut dtemp_num = vec![0.0; n];
+    let mut checks = Vec::with_capacity(settings.schemes.len());
+    let mut best: Option<(Scheme, Vec<f64>)> = None;
+    let mut failed_dtemp: Option<Vec<f64>> = None;
+    for &scheme in &settings.schemes {
+        let ss = settings.scheme(scheme);
+        let h = ss.rel_step * h_strain_scale;
+        if scheme == Scheme::ComplexStep && !has_twin {
+            checks.push(SchemeCheck {
+                scheme,
+                step: h,
+                tangent: CheckOutcome::Skipped { reason: "no complex twin".into() },
+                dstress_dtemp: None,
+            });
+            continue;
+        }
+        let mut tangent = None;
+        for j in 0..n {
+            if let Err(f) =
+                scheme.column(driver, caller, Direction::Strain(j), h, &mut numerical[j * n..(j + 1) * n])
+            {
+                let what =
+                    format!("dstrain[{j}] {} {h:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
+                tangent = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
+                break;
+            }
+        }
+        let tangent = match tangent {
+            Some(t) => t,
+            None => {
+                let better = match &best {
+                    None => true,
+                    Some((s, _)) => {
+                        scheme == Scheme::ComplexStep || (*s != Scheme::ComplexStep && scheme.order() > s.order())
+                    }
+                };
+                if better {
+                    best = Some((scheme, numerical.clone()));
+                }
+                CheckOutcome::Compared(compare(
+                    &conv,
+                    &returned,
+                    &numerical,
+                    ss.tol,
+                    settings.entry_floor,
+                    settings.worst_entries,
+                ))
+            }
+        };
+        let dstress_dtemp = match &returned_dtemp {
+            None => None,
+            Some(ret) => {
+                let ht = ss.rel_step * h_temp_scale;
+                Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
+                    Ok(()) => {
+                        let c =
+                            compare_dtemp(&conv, ret, &dtemp_num, ss.tol, settings.entry_floor, settings.worst_entries);
+                        if !c.pass && failed_dtemp.is_none() {
+                            failed_dtemp = Some(dtemp_num.clone());
+                        }
+                        CheckOutcome::Compared(c)
+                    }
+                    Err(f) => {
+                        CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}"))))
+                    }
+                })
+            }
+        };
+        checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
+    }
+    let mut non_finite = Vec::new();
+    for (what, v) in [("stress", &driver.base.stress), ("state", &driver.base.state), ("tangent", &driver.base.tangent)]
+    {
+        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
+            let count = v.iter().filter(|x| !x.is_finite()).count();
+            non_finite.push(format!(
+                "{what}[{i}] = {}{}",
+                v[i],
+                if count > 1 { format!(" and {} more", count - 1) } else { String::new() }
+            ));
+        }
+    }
+    let mut out =
+        CallCheck { reported_branch: (reported >= 0).then_some(reported), state_changed, checks, non_finite, diagnosis: None, best };
+    if settings.diagnose && out.non_finite.is_empty() && !out.faulted() && !out.checks.iter().all(SchemeCheck::passed) {
+        let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
+        let complex_pass = out.checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
+            CheckOutcome::Compared(x) => Some(x.pass),
+            _ => None,
+        });
+        let ctx = Context {
+            returned: &returned,
+            dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
+            complex_pass,
+            tangent_checks_pass: out.checks.iter().all(tangent_ok),
+            previous,
+            state_changed,
+            reported_branch: reported,
+            has_twin,
+        };
+        out.diagnosis = Some(diagnose::run(driver, caller, &conv, &ctx, settings)?);
+    }
+    Ok(out)
+}
+
+/// `settings` reduced to the one scheme that judges a call most sharply: the complex step when
+/// the routine has a twin and the settings run it, else the highest-order scheme they run
+/// (central when they run none of those); no diagnosis. A bisection judges many calls with it.
+pub fn sharpest(settings: &Settings, has_twin: bool) -> Settings {
+    let mut s = settings.clone();
+    let pick = if has_twin && settings.schemes.contains(&Scheme::ComplexStep) {
+        Scheme::ComplexStep
+    } else {
+        settings
+            .schemes
+            .iter()
+            .copied()
+            .filter(|x| *x != Scheme::ComplexStep)
+            .max_by(|a, b| a.order().total_cmp(&b.order()))
+            .unwrap_or(Scheme::Central)
+    };
+    s.schemes = vec![pick];
+    s.diagnose = false;
+    s
+}

@@ -1,0 +1,334 @@
+//! Shrinking a failing path: the shortest, plainest path found that still fails the same way.
+//!
+//! The invariant of the loop: the current path fails, with the verdict and the first
+//! increment's finding of the original. Every candidate is checked with [`crate::check::run`]
+//! and replaces the current path only when it keeps the invariant; a path that fails is cut
+//! after its first failing increment (the increments after it change nothing before it).
+//! Two phases, repeated while either changes something:
+//! 1. fewer increments: drop runs of increments (halving the run length down to one), then
+//!    merge neighbours into one increment (their sum);
+//! 2. plainer increments: each component, the temperature increment and the time increment
+//!    toward zero (zero, then halving), then rounded to one, two or three significant digits.
+//!
+//! The search stops when neither phase finds a smaller failing path, or at
+//! [`ShrinkLimits::max_iterations`] checks or [`ShrinkLimits::max_seconds`] seconds; then the
+//! result says which limit stopped it, so the caller can name the setting that raises it.
+
+use std::time::Instant;
+
+use serde::{Deserialize, Serialize};
+
+use crate::check;
+use crate::driver::PointState;
+use crate::path::{Path, PathIncrement};
+use crate::report::{Report, Verdict};
+use crate::routine::Caller;
+use crate::settings::Settings;
+
+/// Bounds of a shrink.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields, default)]
+pub struct ShrinkLimits {
+    /// Candidate paths checked at most.
+    pub max_iterations: usize,
+    /// Wall-clock seconds at most (checked before each candidate).
+    pub max_seconds: f64,
+}
+
+impl Default for ShrinkLimits {
+    fn default() -> Self {
+        ShrinkLimits { max_iterations: 2000, max_seconds: 120.0 }
+    }
+}
+
+/// Why the shrink stopped.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case", tag = "stop")]
+pub enum ShrinkStop {
+    /// No smaller candidate fails the same way: the path is as small as this search makes it.
+    Done,
+    /// The iteration limit was reached; a larger one may shrink further.
+    IterationLimit { limit: usize },
+    /// The time limit was reached; a larger one may shrink further.
+    TimeLimit { seconds: f64 },
+}
+
+/// The result of a shrink.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct Shrunk {
+    /// The smallest failing path found; its last increment is its first failing one.
+    pub path: Path,
+    /// The check of that path.
+    pub report: Report,
+    pub original_increments: usize,
+    /// The failure kept: the verdict and the finding of the first failing increment.
+    pub verdict: Verdict,
+    pub finding: String,
+    /// Candidates checked, and how many of them were kept.
+    pub iterations: usize,
+    pub accepted: usize,
+    pub seconds: f64,
+    pub stop: ShrinkStop,
+}
+
+struct Shrinker<'a, 'r> {
+    caller: &'a mut Caller<'r>,
+    props: &'a [f64],
+    start: &'a PointState,
+    settings: &'a Settings,
+    name: &'a str,
+    verdict: Verdict,
+    finding: String,
+    limits: ShrinkLimits,
+    t0: Instant,
+    iterations: usize,
+    accepted: usize,
+    stop: Option<ShrinkStop>,
+    current: Vec<PathIncrement>,
+    report: Report,
+}
+
+/// The verdict and the first failing increment's finding, and its index; `None` for a pass.
+fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
+    let f = super::first_failure(r)?;
+    Some((r.verdict, f.finding().to_string(), f.index))
+}
+
+impl Shrinker<'_, '_> {
+    fn path(&self, incs: Vec<PathIncrement>) -> Path {
+        Path { name: format!("{} (shrunk to {} increments)", self.name, incs.len()), increments: incs }
+    }
+
+    /// Check a candidate; keep it (cut after its first failure) when it fails the same way.
+    fn attempt(&mut self, candidate: Vec<PathIncrement>) -> bool {
+        if self.stop.is_some() || candidate.is_empty() {
+            return false;
+        }
+        if self.iterations >= self.limits.max_iterations {
+            self.stop = Some(ShrinkStop::IterationLimit { limit: self.limits.max_iterations });
+            return false;
+        }
+        if self.t0.elapsed().as_secs_f64() >= self.limits.max_seconds {
+            self.stop = Some(ShrinkStop::TimeLimit { seconds: self.limits.max_seconds });
+            return false;
+        }
+        self.iterations += 1;
+        let path = self.path(candidate);
+        let Ok(r) = check::run(self.caller, self.props, self.start.clone(), &path, self.settings) else {
+            return false;
+        };
+        match signature(&r) {
+            Some((v, f, index)) if v == self.verdict && f == self.finding => {
+                let mut incs = path.increments;
+                incs.truncate(index);
+                let report = if index == r.increments.len() {
+                    r
+                } else {
+                    match check::run(self.caller, self.props, self.start.clone(), &self.path(incs.clone()), self.settings)
+                    {
+                        Ok(r) => r,
+                        Err(_) => return false,
+                    }
+                };
+                self.current = incs;
+                self.report = report;
+                self.accepted += 1;
+                true
+            }
+            _ => false,
+        }
+    }
+
+    fn drop_runs(&mut self) -> bool {
+        let mut changed = false;
+        let mut size = (self.current.len() / 2).max(1);
+        loop {
+            let mut i = 0;
+            while i + size <= self.current.len() && self.current.len() > 1 && self.stop.is_none() {
+                let mut c = self.current.clone();
+                c.drain(i..i + size);
+                if self.attempt(c) {
+                    changed = true;
+                } else {
+                    i += if size == 1 { 1 } else { size };
+                }
+            }
+            if size == 1 || self.stop.is_some() {
+                return changed;
+            }
+            size /= 2;
+        }
+    }
+
+    fn merge_neighbours(&mut self) -> bool {
+        let mut changed = false;
+        let mut i = 0;
+        while i + 1 < self.current.len() && self.stop.is_none() {
+            let mut c = self.current.clone();
+            let b = c.remove(i + 1);
+            let a = &mut c[i];
+            for (x, y) in a.dstrain.iter_mut().zip(b.dstrain) {
+                *x += y;
+            }
+            a.dtemp += b.dtemp;
+            a.dtime += b.dtime;
+            if self.attempt(c) {
+                changed = true;
+            } else {
+                i += 1;
+            }
+        }
+        changed
+    }
+
+    /// Slot `k` of an increment: 0–5 the strain components, 6 dtemp, 7 dtime.
+    fn get(inc: &PathIncrement, k: usize) -> f64 {
+        match k {
+            0..=5 => inc.dstrain[k],
+            6 => inc.dtemp,
+            _ => inc.dtime,
+        }
+    }
+
+    fn with(&self, i: usize, k: usize, v: f64) -> Vec<PathIncrement> {
+        let mut c = self.current.clone();
+        match k {
+            0..=5 => c[i].dstrain[k] = v,
+            6 => c[i].dtemp = v,
+            _ => c[i].dtime = v,
+        }
+        c
+    }
+
+    fn simplify_values(&mut self) -> bool {
+        let mut changed = false;
+        let mut i = 0;
+        while i < self.current.len() && self.stop.is_none() {
+            for k in 0..8 {
+                if i >= self.current.len() {
+                    break;
+                }
+                let x = Self::get(&self.current[i], k);
+                if x == 0.0 {
+                    continue;
+                }
+                // The time increment moves toward 1 (the default), the others toward 0.
+                let goal = if k == 7 { 1.0 } else { 0.0 };
+                if x != goal && self.attempt(self.with(i, k, goal)) {
+                    changed = true;
+                    continue;
+                }
+                let mut y = x;
+                for _ in 0..16 {
+                    let half = goal + 0.5 * (y - goal);
+                    if i < self.current.len() && self.attempt(self.with(i, k, half)) {
+                        y = half;
+                        changed = true;
+                    } else {
+                        break;
+                    }
+                }
+                for digits in 1..=3 {
+                    if i >= self.current.len() {
+                        break;
+                    }
+                    let r = round_to(y, digits);
+                    if r == y {
+                        break;
+                    }
+                    if self.attempt(self.with(i, k, r)) {
+                        changed = true;
+                        break;
+                    }
+                }
+            }
+            i += 1;
+        }
+        changed
+    }
+}
+
+/// `x` rounded to `digits` significant decimal digits (through its decimal form, so the
+/// result prints short).
+fn round_to(x: f64, digits: usize) -> f64 {
+    format!("{:.*e}", digits.saturating_sub(1), x).parse().unwrap_or(x)
+}
+
+/// Shrink `path` (checked from `start` in `report`) to the smallest path found that still fails
+/// with the report's verdict and the finding of its first failing increment. `None` when the
+/// report has no failing increment.
+pub fn shrink(
+    caller: &mut Caller<'_>,
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    report: &Report,
+    settings: &Settings,
+    limits: ShrinkLimits,
+) -> Result<Option<Shrunk>, String> {
+    if !(limits.max_seconds > 0.0) {
+        return Err(format!("the time limit of a shrink must be positive, got {}", limits.max_seconds));
+    }
+    let Some((verdict, finding, index)) = signature(report) else { return Ok(None) };
+    let t0 = Instant::now();
+    let original_increments = path.increments.len();
+    let mut incs = path.increments.clone();
+    incs.truncate(index);
+    let report = if index == report.increments.len() {
+        report.clone()
+    } else {
+        let cut = Path { name: path.name.clone(), increments: incs.clone() };
+        check::run(caller, props, start.clone(), &cut, settings)?
+    };
+    let mut s = Shrinker {
+        caller,
+        props,
+        start,
+        settings,
+        name: &path.name,
+        verdict,
+        finding: finding.clone(),
+        limits,
+        t0,
+        iterations: 0,
+        accepted: 0,
+        stop: None,
+        current: incs,
+        report,
+    };
+    loop {
+        let mut changed = s.drop_runs();
+        changed |= s.merge_neighbours();
+        changed |= s.simplify_values();
+        if !changed || s.stop.is_some() {
+            break;
+        }
+    }
+    let stop = s.stop.unwrap_or(ShrinkStop::Done);
+    let path = s.path(s.current.clone());
+    let mut report = s.report;
+    report.path = path.name.clone();
+    Ok(Some(Shrunk {
+        path,
+        report,
+        original_increments,
+        verdict,
+        finding,
+        iterations: s.iterations,
+        accepted: s.accepted,
+        seconds: s.t0.elapsed().as_secs_f64(),
+        stop,
+    }))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::round_to;
+
+    #[test]
+    fn rounding_keeps_the_leading_digits() {
+        assert_eq!(round_to(3.7416e-4, 1), 4e-4);
+        assert_eq!(round_to(-3.7416e-4, 2), -3.7e-4);
+        assert_eq!(round_to(0.0, 3), 0.0);
+    }
+}

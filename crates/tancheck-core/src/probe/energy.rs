@@ -1,0 +1,175 @@
+//! The energy probe.
+//! - A closed elastic cycle (a small loop in the first two components from the start state)
+//!   does no net work: |∮σ·dε| ≤ 1e-10 of the work done on the way (trapezoid rule, exact for a
+//!   linear response).
+//! - Dissipation is never negative (Clausius–Duhem): the dissipated energy a routine reports
+//!   never decreases along the path.
+//! - Reported energies agree with the work: ΔΨ + ΔD = ∫σ·dε over each increment (Simpson's
+//!   rule over the increment's own straight strain path from its start; default tolerance
+//!   1e-4 of the energy scale), at isothermal increments.
+//!
+//! Work uses the work-conjugate dot product of the routine's convention (a tensor shear
+//! component counts twice).
+
+use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::driver::Driver;
+use crate::routine::{provides, Caller, Fault};
+use crate::ShearMeasure;
+
+pub struct Energy;
+
+fn dot(w: &[f64], s: &[f64], e: &[f64]) -> f64 {
+    w.iter().zip(s).zip(e).map(|((w, s), e)| w * s * e).sum()
+}
+
+/// ∫₀¹ σ(s·Δε)·Δε ds over the current increment by Simpson's rule (calls from the start).
+fn work_along(d: &mut Driver, c: &mut Caller<'_>, w: &[f64]) -> Result<f64, Fault> {
+    let n = 16;
+    let full = d.dstrain().to_vec();
+    let mut sum = 0.0;
+    for k in 0..=n {
+        let s = k as f64 / n as f64;
+        let part: Vec<f64> = full.iter().map(|x| s * x).collect();
+        d.set_increment_keep_count(&part, d.dtemp());
+        d.base_call(c)?;
+        let f = dot(w, &d.base.stress, &full);
+        let weight = if k == 0 || k == n {
+            1.0
+        } else if k % 2 == 1 {
+            4.0
+        } else {
+            2.0
+        };
+        sum += weight * f;
+    }
+    d.set_increment_keep_count(&full, d.dtemp());
+    d.base_call(c)?;
+    Ok(sum / (3.0 * n as f64))
+}
+
+impl Probe for Energy {
+    fn name(&self) -> &'static str {
+        "energy"
+    }
+    fn needs(&self) -> &'static str {
+        "the stress update; the energy outputs for the dissipation and energy-balance parts"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        let info = caller.info().clone();
+        let conv = info.convention.clone();
+        let n = conv.ncomp();
+        let w: Vec<f64> = conv
+            .order()
+            .iter()
+            .map(|c| if c.is_shear() && conv.shear() == ShearMeasure::Tensor { 2.0 } else { 1.0 })
+            .collect();
+        let mut details = Vec::new();
+        let mut fail: Option<(usize, String)> = None;
+
+        // 1. The closed elastic cycle from the start state.
+        let a = env.spec.amplitude.unwrap_or(1e-5);
+        let mut d = Driver::new(&info, env.props, env.start.clone())?;
+        let (mut net, mut gross) = (0.0, 0.0);
+        let legs = [(0usize, 1.0), (1, 1.0), (0, -1.0), (1, -1.0)];
+        let steps = 8;
+        for (comp, sign) in legs {
+            let mut canon = [0.0; 6];
+            canon[comp] = sign * a / steps as f64;
+            let mut de = vec![0.0; n];
+            conv.strain_from_canonical(&canon, &mut de);
+            for _ in 0..steps {
+                d.set_increment(&de, 0.0, 1.0);
+                if let Err(f) = d.base_call(caller) {
+                    return Ok(faulted("energy", 0, &f));
+                }
+                let s0 = d.start().stress.clone();
+                let dw = 0.5 * (dot(&w, &s0, &de) + dot(&w, &d.base.stress, &de));
+                net += dw;
+                gross += dw.abs();
+                d.advance();
+            }
+        }
+        let cycle = if gross > 0.0 { net.abs() / gross } else { 0.0 };
+        details
+            .push(format!("closed elastic cycle of amplitude {a:e}: net work {cycle:.2e} of the work done"));
+        if cycle > 1e-10 {
+            fail = Some((
+                0,
+                format!("a closed elastic cycle does net work {cycle:.2e} of the work done on the way"),
+            ));
+        }
+
+        // 2 and 3. Along the path.
+        let tol = env.spec.tol.unwrap_or(1e-4);
+        let mut reports = true;
+        let mut prev_diss: Option<f64> = None;
+        let mut prev_stored: Option<f64> = None;
+        let mut worst_balance = 0.0f64;
+        let mut scale = 0.0f64;
+        let walked = walk(caller, env, |k, d, c| {
+            if !d.base.outcome.provides(provides::ENERGY) {
+                reports = false;
+                return Ok(());
+            }
+            let (stored, diss) = (d.base.energy[0], d.base.energy[1]);
+            scale = scale.max(stored.abs()).max(diss.abs());
+            if let Some(p) = prev_diss {
+                if diss < p - 1e-12 * scale.max(1e-300) && fail.is_none() {
+                    fail = Some((
+                        k,
+                        format!("the dissipated energy decreases at increment {k}: {p:e} to {diss:e}"),
+                    ));
+                }
+            }
+            // The balance holds for isothermal increments; heating changes the stored energy
+            // without mechanical work.
+            if env.spec.runs_at(k) && d.dtemp() == 0.0 {
+                let work = work_along(d, c, &w)?;
+                if let (Some(s0), Some(d0)) = (prev_stored, prev_diss) {
+                    let bal = (stored - s0 + diss - d0 - work).abs();
+                    worst_balance = worst_balance.max(bal);
+                }
+            }
+            prev_diss = Some(diss);
+            prev_stored = Some(stored);
+            Ok(())
+        });
+        if let Err((k, f)) = walked {
+            return Ok(faulted("energy", k, &f));
+        }
+        if reports {
+            let rel = worst_balance / scale.max(1e-300);
+            details.push(format!(
+                "energy balance ΔΨ + ΔD = ∫σ·dε: worst mismatch {rel:.2e} of the energy scale"
+            ));
+            if rel > tol && fail.is_none() {
+                fail = Some((
+                    0,
+                    format!("reported energies disagree with the work by {rel:.2e} of the energy scale"),
+                ));
+            }
+        } else {
+            details
+                .push("the routine reports no energies: dissipation and energy balance not checked".into());
+        }
+        let mut r = match &fail {
+            None => ProbeResult::new(
+                "energy",
+                ProbeStatus::Pass,
+                if reports {
+                    format!("closed cycle {cycle:.1e}; dissipation never negative; energies match the work")
+                } else {
+                    format!("closed cycle {cycle:.1e}; no energies reported (dissipation not checked)")
+                },
+            ),
+            Some((k, why)) => {
+                let mut r = ProbeResult::new("energy", ProbeStatus::Fail, why.clone());
+                r.increment = (*k > 0).then_some(*k);
+                r
+            }
+        };
+        r.value = Some(cycle);
+        r.details = details;
+        Ok(r)
+    }
+}

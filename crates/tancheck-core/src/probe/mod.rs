@@ -1,0 +1,240 @@
+//! Probes: checks of a routine beyond the tangent, each in its own file, each saying what it
+//! needs from the routine. A probe walks the suite's path (or makes calls of its own around
+//! it) and returns a [`ProbeResult`].
+
+use serde::{Deserialize, Serialize};
+
+use crate::check::held_components;
+use crate::driver::{Driver, PointState};
+use crate::mixed;
+use crate::path::Path;
+use crate::routine::{Caller, Fault};
+use crate::settings::Settings;
+
+pub mod determinism;
+pub mod energy;
+pub mod hidden_state;
+pub mod immutability;
+pub mod refinement;
+pub mod symmetry;
+pub mod tangent;
+pub mod zero_increment;
+
+/// One probe of a suite, as written in a suite file.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct ProbeSpec {
+    /// The probe's name, e.g. "symmetry".
+    pub probe: String,
+    /// The probe's tolerance (each probe documents its default).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub tol: Option<f64>,
+    /// Increments (1-based) at which the probe runs; all when absent.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub at: Option<Vec<usize>>,
+    /// symmetry: the model is declared symmetric (an unsymmetric tangent then fails).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub symmetric: Option<bool>,
+    /// energy: strain amplitude of the closed elastic cycle; frame: rotation angle (rad).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub amplitude: Option<f64>,
+    /// refinement: the largest number of sub-increments (a power of 2).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub subdivisions: Option<usize>,
+    /// frame: property indices (0-based) of material axis vectors, three entries each, that
+    /// rotate with the frame (anisotropic models); absent for isotropic models.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub axes: Option<Vec<usize>>,
+    /// frame: the model is anisotropic; without `axes` the probe is skipped with that reason.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub anisotropic: Option<bool>,
+}
+
+impl ProbeSpec {
+    pub fn named(name: &str) -> ProbeSpec {
+        ProbeSpec { probe: name.into(), ..Default::default() }
+    }
+
+    /// Whether the probe runs at increment `k` (1-based).
+    pub fn runs_at(&self, k: usize) -> bool {
+        self.at.as_ref().is_none_or(|a| a.contains(&k))
+    }
+}
+
+/// A probe's verdict.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum ProbeStatus {
+    Pass,
+    Fail,
+    /// Not applicable, with the reason in the summary.
+    Skipped,
+}
+
+impl ProbeStatus {
+    pub fn word(self) -> &'static str {
+        match self {
+            ProbeStatus::Pass => "pass",
+            ProbeStatus::Fail => "FAIL",
+            ProbeStatus::Skipped => "skipped",
+        }
+    }
+}
+
+/// What a probe found.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ProbeResult {
+    pub probe: String,
+    pub status: ProbeStatus,
+    /// One line for the table.
+    pub summary: String,
+    /// The probe's measured number (its meaning in `summary`), e.g. the worst asymmetry.
+    pub value: Option<f64>,
+    pub tol: Option<f64>,
+    /// The first increment where the probe failed, if it did.
+    pub increment: Option<usize>,
+    /// More lines for the detailed view.
+    pub details: Vec<String>,
+}
+
+impl ProbeResult {
+    pub fn new(probe: &str, status: ProbeStatus, summary: impl Into<String>) -> ProbeResult {
+        ProbeResult {
+            probe: probe.into(),
+            status,
+            summary: summary.into(),
+            value: None,
+            tol: None,
+            increment: None,
+            details: Vec::new(),
+        }
+    }
+
+    pub fn skipped(probe: &str, reason: impl Into<String>) -> ProbeResult {
+        ProbeResult::new(probe, ProbeStatus::Skipped, reason)
+    }
+}
+
+/// What a probe runs with.
+pub struct ProbeEnv<'a> {
+    pub props: &'a [f64],
+    pub start: &'a PointState,
+    pub path: &'a Path,
+    pub settings: &'a Settings,
+    pub spec: &'a ProbeSpec,
+}
+
+/// A probe.
+pub trait Probe {
+    fn name(&self) -> &'static str;
+    /// What it needs from the routine, in words.
+    fn needs(&self) -> &'static str;
+    /// Run it. Errors are bad input; a crashing routine is a failed probe with the fault.
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String>;
+}
+
+/// Every probe this build knows, by name.
+pub fn registry() -> Vec<Box<dyn Probe>> {
+    vec![
+        Box::new(tangent::Tangent),
+        Box::new(symmetry::Symmetry),
+        Box::new(zero_increment::ZeroIncrement),
+        Box::new(determinism::Determinism),
+        Box::new(hidden_state::HiddenState),
+        Box::new(immutability::Immutability),
+        Box::new(refinement::Refinement),
+        Box::new(energy::Energy),
+    ]
+}
+
+/// The probe called `name`.
+pub fn by_name(name: &str) -> Option<Box<dyn Probe>> {
+    registry().into_iter().find(|p| p.name() == name)
+}
+
+/// Walk the path: for each increment set it on a driver (solving held stress components),
+/// make the base call, hand the driver to `each` (1-based increment number), then advance.
+pub fn walk(
+    caller: &mut Caller<'_>,
+    env: &ProbeEnv<'_>,
+    mut each: impl FnMut(usize, &mut Driver, &mut Caller<'_>) -> Result<(), Fault>,
+) -> Result<(), (usize, Fault)> {
+    let info = caller.info().clone();
+    let conv = info.convention.clone();
+    let mut driver =
+        Driver::new(&info, env.props, env.start.clone()).map_err(|e| (0, Fault::Unsupported(e)))?;
+    let mut dstrain = vec![0.0; conv.ncomp()];
+    for (k, inc) in env.path.increments.iter().enumerate() {
+        conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
+        driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
+        let r = match &inc.hold_stress {
+            None => driver.base_call(caller),
+            Some(hold) => {
+                let (c, t) = held_components(&conv, hold);
+                mixed::solve(&mut driver, caller, &c, &t, &env.settings.mixed, true).map(|_| ())
+            }
+        };
+        r.map_err(|f| (k + 1, f))?;
+        each(k + 1, &mut driver, caller).map_err(|f| (k + 1, f))?;
+        driver.advance();
+    }
+    Ok(())
+}
+
+/// A probe result for a routine that failed during the probe.
+pub fn faulted(probe: &str, at: usize, f: &Fault) -> ProbeResult {
+    let mut r =
+        ProbeResult::new(probe, ProbeStatus::Fail, format!("the routine failed at increment {at}: {f}"));
+    r.increment = Some(at);
+    r
+}
+
+/// Relative difference ‖a − b‖ / max(‖b‖, floor).
+pub fn rel_diff(a: &[f64], b: &[f64], floor: f64) -> f64 {
+    let d = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
+    let n = b.iter().map(|y| y * y).sum::<f64>().sqrt();
+    d / n.max(floor)
+}
+
+/// The report of a probe suite.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct SuiteReport {
+    pub tool: String,
+    pub suite: String,
+    pub routine: String,
+    pub path: String,
+    pub results: Vec<ProbeResult>,
+    pub pass: bool,
+    pub cautions: Vec<String>,
+}
+
+/// Run probes on a routine.
+pub fn run_suite(
+    caller: &mut Caller<'_>,
+    suite: &str,
+    specs: &[ProbeSpec],
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    settings: &Settings,
+) -> Result<SuiteReport, String> {
+    let mut results = Vec::new();
+    for spec in specs {
+        let probe = by_name(&spec.probe).ok_or_else(|| {
+            let names: Vec<_> = registry().iter().map(|p| p.name()).collect();
+            format!("unknown probe `{}`; known probes: {}", spec.probe, names.join(", "))
+        })?;
+        let env = ProbeEnv { props, start, path, settings, spec };
+        results.push(probe.run(caller, &env)?);
+    }
+    let pass = results.iter().all(|r| r.status != ProbeStatus::Fail);
+    Ok(SuiteReport {
+        tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        suite: suite.into(),
+        routine: caller.info().name.clone(),
+        path: path.name.clone(),
+        results,
+        pass,
+        cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
+    })
+}

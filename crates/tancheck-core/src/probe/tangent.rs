@@ -1,0 +1,54 @@
+//! The tangent probe: the returned tangent against the derivative of the stress update
+//! (the check of [`crate::check`], with its diagnosis), at every increment of the path.
+
+use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::check;
+use crate::routine::Caller;
+use crate::Verdict;
+
+pub struct Tangent;
+
+impl Probe for Tangent {
+    fn name(&self) -> &'static str {
+        "tangent"
+    }
+    fn needs(&self) -> &'static str {
+        "the stress update and its tangent (the complex twin for complex-step checks)"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        let mut settings = env.settings.clone();
+        if let Some(t) = env.spec.tol {
+            for s in crate::Scheme::ALL {
+                settings.scheme_mut(s).tol = t;
+            }
+        }
+        let report = check::run(caller, env.props, env.start.clone(), env.path, &settings)?;
+        let checked: Vec<_> = report.increments.iter().filter(|i| env.spec.runs_at(i.index)).collect();
+        let failed: Vec<_> = checked.iter().filter(|i| !i.passed()).collect();
+        let worst =
+            report.summary.iter().map(|s| s.worst_norm_error.max(s.worst_entry_error)).fold(0.0, f64::max);
+        let status = match report.verdict {
+            Verdict::RoutineFault => ProbeStatus::Fail,
+            _ if failed.is_empty() => ProbeStatus::Pass,
+            _ => ProbeStatus::Fail,
+        };
+        let summary = if failed.is_empty() {
+            format!("consistent at {} increments (worst error {worst:.2e})", checked.len())
+        } else {
+            format!(
+                "wrong at {} of {} increments; finding: {}",
+                failed.len(),
+                checked.len(),
+                report.finding()
+            )
+        };
+        let mut r = ProbeResult::new("tangent", status, summary);
+        r.value = Some(worst);
+        r.increment = failed.first().map(|i| i.index);
+        for b in &report.branches {
+            r.details.push(format!("branch {}: {} failed of {}", b.branch, b.failed, b.increments));
+        }
+        r.details.extend(report.coverage.iter().map(|c| format!("coverage warning: {c}")));
+        Ok(r)
+    }
+}

@@ -1,0 +1,63 @@
+//! The zero-increment probe: Δε = 0 (and ΔT = 0) from the start of each increment returns the
+//! start stress and a finite tangent (default tolerance 1e-12 of the stress scale).
+
+use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::routine::Caller;
+
+pub struct ZeroIncrement;
+
+impl Probe for ZeroIncrement {
+    fn name(&self) -> &'static str {
+        "zero-increment"
+    }
+    fn needs(&self) -> &'static str {
+        "the stress update"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        let tol = env.spec.tol.unwrap_or(1e-12);
+        let mut worst = (0.0f64, 0usize, true);
+        let walked = walk(caller, env, |k, d, c| {
+            if !env.spec.runs_at(k) {
+                return Ok(());
+            }
+            let full = d.dstrain().to_vec();
+            let dtemp = d.dtemp();
+            let zero = vec![0.0; full.len()];
+            d.set_increment_keep_count(&zero, 0.0);
+            let r = d.base_call(c);
+            let out = (d.base.stress.clone(), d.base.tangent.iter().all(|x| x.is_finite()));
+            d.set_increment_keep_count(&full, dtemp);
+            d.base_call(c)?;
+            r?;
+            let scale = d.start().stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
+            let diff =
+                out.0.iter().zip(&d.start().stress).fold(0.0f64, |a, (x, y)| a.max((x - y).abs())) / scale;
+            if diff > worst.0 || !out.1 {
+                worst = (diff, k, out.1 && worst.2);
+            }
+            Ok(())
+        });
+        if let Err((k, f)) = walked {
+            return Ok(faulted("zero-increment", k, &f));
+        }
+        let ok = worst.0 <= tol && worst.2;
+        let mut r = ProbeResult::new(
+            "zero-increment",
+            if ok { ProbeStatus::Pass } else { ProbeStatus::Fail },
+            if ok {
+                format!("returns the start stress (worst change {:.2e}) and a finite tangent", worst.0)
+            } else if !worst.2 {
+                format!("a zero increment gives a tangent that is not finite (increment {})", worst.1)
+            } else {
+                format!(
+                    "a zero increment changes the stress by {:.2e} of its scale (increment {})",
+                    worst.0, worst.1
+                )
+            },
+        );
+        r.value = Some(worst.0);
+        r.tol = Some(tol);
+        r.increment = (!ok).then_some(worst.1);
+        Ok(r)
+    }
+}

@@ -1,0 +1,70 @@
+//! The default probe suites run on every reference model with every probe passing where the
+//! physics says it must; a flawed tangent fails the tangent probe and nothing else.
+
+use tancheck::cli::suite::Suite;
+use tancheck::core::probe::{run_suite, ProbeStatus, SuiteReport};
+use tancheck::core::{Caller, PointKind, PointState, Routine, Settings};
+use tancheck::models::reference;
+
+fn run(model: &str, kind: PointKind, props: &[f64], thermal: bool) -> SuiteReport {
+    let suite = Suite::default_for(kind, thermal);
+    let mut r = reference(model, kind).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    run_suite(
+        &mut caller,
+        &suite.suite,
+        &suite.probes,
+        props,
+        &start,
+        &suite.path().unwrap(),
+        &Settings::default(),
+    )
+    .unwrap()
+}
+
+fn assert_all_pass(r: &SuiteReport) {
+    for p in &r.results {
+        assert_ne!(p.status, ProbeStatus::Fail, "{} on {}: {:#?}", p.probe, r.routine, p);
+    }
+    assert!(r.pass);
+}
+
+// Demo properties inside each model's valid range.
+const J2_SETS: [[f64; 7]; 3] = [
+    [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0],
+    [210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0],
+    [70000.0, 0.33, 120.0, 0.0, 0.0, 0.0, 900.0],
+];
+
+#[test]
+fn every_reference_model_passes_its_default_suite() {
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::Axisymmetric] {
+        for props in &J2_SETS {
+            assert_all_pass(&run("j2", kind, props, false));
+        }
+    }
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::PlaneStress, PointKind::Uniaxial] {
+        assert_all_pass(&run("elastic", kind, &[68900.0, 0.33], false));
+        // E20, ν0, ν1, EN 1993-1-2 modulus table, EN 1993-1-2 elongation, α unused.
+        assert_all_pass(&run("thermo", kind, &[210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0], true));
+    }
+    for kind in [PointKind::Cohesive3d, PointKind::Cohesive2d] {
+        let r = run("cohesive", kind, &[1e5, 60.0, 90.0, 0.3, 0.9, 2.0], false);
+        assert_all_pass(&r);
+        // The cohesive law reports its energies, so dissipation and the energy balance ran.
+        let e = r.results.iter().find(|p| p.probe == "energy").unwrap();
+        assert!(e.summary.contains("dissipation never negative"), "{e:?}");
+    }
+}
+
+#[test]
+fn the_continuum_tangent_fails_the_tangent_probe_only() {
+    let r = run("j2-continuum", PointKind::Solid3d, &J2_SETS[1], false);
+    for p in &r.results {
+        let want = if p.probe == "tangent" { ProbeStatus::Fail } else { ProbeStatus::Pass };
+        assert_eq!(p.status, want, "{p:#?}");
+    }
+    assert!(r.results[0].summary.contains("continuum-tangent"), "{:?}", r.results[0]);
+}
