@@ -6,11 +6,15 @@
 //! - Every call goes through the guarded trampoline of `fortran-shim/src/guard.c` ([`guard`]),
 //!   which turns a crash inside the routine (SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT) into a
 //!   [`tancheck_core::Fault::Crashed`] instead of ending the process.
+//! - The memory guards ([`guards`]) around every call report writes past the end of an
+//!   array, writes to read-only inputs, outputs left unwritten and (at [`GuardLevel::Full`])
+//!   reads past the end of the inputs, as [`GuardFinding`]s of the routine.
 //! - [`build_library`] compiles C and Fortran sources into such a library, with the twin.
 
 pub mod compile;
 pub mod error;
 pub mod guard;
+pub mod guards;
 pub mod library;
 
 pub use compile::{
@@ -19,4 +23,5 @@ pub use compile::{
 };
 pub use error::{BuildError, LoadError, TrapError};
 pub use guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};
+pub use guards::{FindingKind, GuardFinding, GuardLevel, GuardedArray};
 pub use library::{Library, LibraryRoutine};

@@ -16,6 +16,7 @@ use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Outcome, Routi
 
 use crate::error::{LoadError, TrapError};
 use crate::guard::{self, ComplexFn, GuardArgs, RealFn, TcCall, ABI_VERSION, TWIN_SUFFIX, WANT_TANGENT};
+use crate::guards::{Findings, GuardBuffers, GuardFinding, GuardLevel};
 
 /// A loaded shared library.
 #[derive(Clone)]
@@ -98,36 +99,11 @@ impl Library {
         if symbol.contains('\0') {
             return Err(LoadError::BadSymbolName { symbol: symbol.into(), why: "it contains a NUL byte" });
         }
-        let ncomp = info.convention.ncomp();
-        let size = |what: &'static str, value: usize| -> Result<i32, LoadError> {
-            i32::try_from(value).map_err(|_| LoadError::SizeTooLarge {
-                routine: info.name.clone(),
-                what,
-                value,
-                max: i32::MAX,
-            })
-        };
-        let call_sizes = (size("ncomp", ncomp)?, size("nstate", info.nstate)?, size("nprop", info.nprop)?);
-        size("ncomp * ncomp", ncomp * ncomp)?;
-
+        let call_sizes = call_sizes(&info)?;
         let real = self.lookup::<RealFn>(symbol).ok_or_else(|| self.missing_symbol(symbol))?;
         let twin = self.lookup::<ComplexFn>(&format!("{symbol}{TWIN_SUFFIX}"));
-        guard::prepare().map_err(|source| LoadError::Guard { source })?;
-        let label = CString::new(format!("{}:{symbol}", self.path.display()))
-            .expect("checked: no NUL in the symbol, and paths have none");
-        Ok(LibraryRoutine {
-            ncomp,
-            nstate: info.nstate,
-            nprop: info.nprop,
-            call_sizes,
-            info,
-            symbol: symbol.to_string(),
-            real,
-            twin,
-            fp_traps: false,
-            label,
-            library: self.clone(),
-        })
+        let label = format!("{}:{symbol}", self.path.display());
+        LibraryRoutine::assemble(info, call_sizes, symbol, real, twin, label, Some(self.clone()))
     }
 
     fn lookup<T: Copy>(&self, name: &str) -> Option<T> {
@@ -143,6 +119,22 @@ impl Library {
         let hint = decoration_hint(symbol, &exports);
         LoadError::SymbolMissing { library: self.path.clone(), symbol: symbol.into(), near, hint }
     }
+}
+
+/// ncomp, nstate and nprop as the ABI's 32-bit fields; `ncomp * ncomp` must fit too.
+fn call_sizes(info: &RoutineInfo) -> Result<(i32, i32, i32), LoadError> {
+    let size = |what: &'static str, value: usize| -> Result<i32, LoadError> {
+        i32::try_from(value).map_err(|_| LoadError::SizeTooLarge {
+            routine: info.name.clone(),
+            what,
+            value,
+            max: i32::MAX,
+        })
+    };
+    let ncomp = info.convention.ncomp();
+    let sizes = (size("ncomp", ncomp)?, size("nstate", info.nstate)?, size("nprop", info.nprop)?);
+    size("ncomp * ncomp", ncomp * ncomp)?;
+    Ok(sizes)
 }
 
 #[cfg(unix)]
@@ -485,9 +477,14 @@ pub(crate) fn decoration_hint(symbol: &str, exports: &[String]) -> String {
     String::new()
 }
 
-/// One routine of a loaded library, callable as a [`Routine`] through the guarded trampoline.
+/// One routine of a loaded library (or given by its function pointers), callable as a
+/// [`Routine`] through the guarded trampoline and the memory guards of [`crate::guards`].
 ///
-/// It keeps the library loaded as long as it lives.
+/// It keeps the library loaded as long as it lives. Every call, real or complex, goes through
+/// the same path: the lengths are checked, the memory guards (at the routine's
+/// [`GuardLevel`], [`GuardLevel::Light`] unless set otherwise) copy the arrays into the
+/// guarded block made with the routine, and the trampoline makes the call. What the guards
+/// find is collected in [`LibraryRoutine::findings`].
 pub struct LibraryRoutine {
     info: RoutineInfo,
     symbol: String,
@@ -500,29 +497,82 @@ pub struct LibraryRoutine {
     twin: Option<ComplexFn>,
     fp_traps: bool,
     label: CString,
-    library: Library,
+    library: Option<Library>,
+    guard_level: GuardLevel,
+    real_guards: GuardBuffers<f64>,
+    complex_guards: Option<GuardBuffers<Complex64>>,
+    findings: Findings,
 }
 
 impl std::fmt::Debug for LibraryRoutine {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         f.debug_struct("LibraryRoutine")
-            .field("library", &self.library.path)
+            .field("library", &self.library.as_ref().map(|l| &l.path))
             .field("symbol", &self.symbol)
             .field("twin", &self.twin.is_some())
             .field("fp_traps", &self.fp_traps)
+            .field("guard_level", &self.guard_level)
             .finish()
     }
 }
 
 impl LibraryRoutine {
-    /// The symbol this routine was loaded from.
+    /// A routine given by its entry points instead of a library's symbols: a routine linked
+    /// into this process (the C API's way in). `info.name` names it in reports and in the
+    /// guard's message when the routine calls exit().
+    ///
+    /// # Safety
+    /// `real` must have the routine ABI's real signature and `twin`, when given, the complex
+    /// one (`tc_real` = `double _Complex`); both must stay callable while the routine lives.
+    pub unsafe fn from_fn_pointers(
+        info: RoutineInfo,
+        real: RealFn,
+        twin: Option<ComplexFn>,
+    ) -> Result<LibraryRoutine, LoadError> {
+        let call_sizes = call_sizes(&info)?;
+        let name = info.name.replace('\0', " ");
+        LibraryRoutine::assemble(info, call_sizes, &name, real, twin, name.clone(), None)
+    }
+
+    fn assemble(
+        info: RoutineInfo,
+        call_sizes: (i32, i32, i32),
+        symbol: &str,
+        real: RealFn,
+        twin: Option<ComplexFn>,
+        label: String,
+        library: Option<Library>,
+    ) -> Result<LibraryRoutine, LoadError> {
+        guard::prepare().map_err(|source| LoadError::Guard { source })?;
+        let label = CString::new(label.replace('\0', " ")).expect("NUL bytes were replaced");
+        let (ncomp, nstate, nprop) = (info.convention.ncomp(), info.nstate, info.nprop);
+        Ok(LibraryRoutine {
+            ncomp,
+            nstate,
+            nprop,
+            call_sizes,
+            info,
+            symbol: symbol.to_string(),
+            real,
+            twin,
+            fp_traps: false,
+            label,
+            library,
+            guard_level: GuardLevel::default(),
+            real_guards: GuardBuffers::new(ncomp, nstate, nprop),
+            complex_guards: twin.map(|_| GuardBuffers::new(ncomp, nstate, nprop)),
+            findings: Findings::default(),
+        })
+    }
+
+    /// The symbol this routine was loaded from (for one made from function pointers: its name).
     pub fn symbol(&self) -> &str {
         &self.symbol
     }
 
-    /// The library it lives in.
-    pub fn library(&self) -> &Library {
-        &self.library
+    /// The library it lives in; `None` for a routine made from function pointers.
+    pub fn library(&self) -> Option<&Library> {
+        self.library.as_ref()
     }
 
     /// Whether the library exports the complex-step twin `symbol_cx`.
@@ -538,12 +588,42 @@ impl LibraryRoutine {
     /// Run the following calls with traps for invalid operation, division by zero and
     /// overflow, so that the first such operation stops the call with a SIGFPE
     /// ([`Fault::Crashed`]) instead of leaving inf or NaN in the results.
+    ///
+    /// With guards on, the outputs arrive filled with a signalling NaN: a routine that does
+    /// arithmetic on an output before writing it (`stress[i] += ...`) then traps too.
     pub fn set_fp_traps(&mut self, on: bool) -> Result<(), TrapError> {
         if on && !guard::fp_traps_available() {
             return Err(TrapError::Unavailable { arch: std::env::consts::ARCH });
         }
         self.fp_traps = on;
         Ok(())
+    }
+
+    /// How much the memory guards check in every call.
+    pub fn guard_level(&self) -> GuardLevel {
+        self.guard_level
+    }
+
+    /// Set the guard level for the following calls. [`GuardLevel::Full`] makes every call
+    /// twice; the extra calls are counted in [`LibraryRoutine::guard_calls`].
+    pub fn set_guard_level(&mut self, level: GuardLevel) {
+        self.guard_level = level;
+    }
+
+    /// What the guards found so far: one entry per kind and array, with the first call that
+    /// showed it and how many calls did.
+    pub fn findings(&self) -> &[GuardFinding] {
+        self.findings.list()
+    }
+
+    /// The findings so far, leaving none.
+    pub fn take_findings(&mut self) -> Vec<GuardFinding> {
+        self.findings.take()
+    }
+
+    /// Calls the guards made besides the caller's (reruns of [`GuardLevel::Full`]).
+    pub fn guard_calls(&self) -> u64 {
+        self.findings.extra_calls
     }
 
     fn tc_call<S>(&self, input: &CallInput<'_, S>) -> TcCall {
@@ -615,6 +695,17 @@ fn reset_outcome(o: &mut Outcome) {
     o.reserved = 0;
 }
 
+impl LibraryRoutine {
+    /// A guard finding first seen in the call that just returned ends that call with
+    /// [`Fault::Misbehaved`], so the report keeps the call's inputs. (Allocates only then.)
+    fn new_finding(&self, known: usize) -> Result<(), Fault> {
+        match self.findings.list().get(known) {
+            None => Ok(()),
+            Some(f) => Err(Fault::Misbehaved { what: f.to_string() }),
+        }
+    }
+}
+
 impl Routine for LibraryRoutine {
     fn info(&self) -> &RoutineInfo {
         &self.info
@@ -624,11 +715,33 @@ impl Routine for LibraryRoutine {
         self.check_lengths(input, output);
         reset_outcome(output.outcome);
         let call = self.tc_call(input);
-        let temp = input.temp;
-        let args = self.args(&call, &temp, input, output);
-        // SAFETY: `real` has the ABI's real signature (looked up by name); every array has the
-        // length announced in `call` (check_lengths), and `call`, `temp` outlive the call.
-        unsafe { guard::call_real(self.real, &args) }.map_err(guard::Crash::into_fault)?;
+        let real = self.real;
+        let known = self.findings.list().len();
+        if self.guard_level == GuardLevel::Off {
+            let temp = input.temp;
+            let args = self.args(&call, &temp, input, output);
+            // SAFETY: `real` has the ABI's real signature (looked up by name, or promised by
+            // the caller of `from_fn_pointers`); every array has the length announced in
+            // `call` (check_lengths), and `call`, `temp` outlive the call.
+            unsafe { guard::call_real(real, &args) }.map_err(guard::Crash::into_fault)?;
+        } else {
+            self.real_guards
+                .call(
+                    self.guard_level,
+                    &call,
+                    self.label.as_ptr(),
+                    self.fp_traps,
+                    false,
+                    input,
+                    output,
+                    &mut self.findings,
+                    // SAFETY: as above; the guarded block holds every array at the announced
+                    // length, each followed by its zone.
+                    |args| unsafe { guard::call_real(real, args) },
+                )
+                .map_err(guard::Crash::into_fault)?;
+        }
+        self.new_finding(known)?;
         status_fault(output.outcome)
     }
 
@@ -657,11 +770,34 @@ impl ComplexRoutine for LibraryRoutine {
         self.check_lengths(input, output);
         reset_outcome(output.outcome);
         let call = self.tc_call(input);
-        let temp = input.temp;
-        let args = self.args(&call, &temp, input, output);
-        // SAFETY: as in `call`, with the twin's complex signature; Complex64 is repr(C) and
-        // laid out as C's double _Complex.
-        unsafe { guard::call_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
+        let known = self.findings.list().len();
+        match (self.guard_level, self.complex_guards.as_mut()) {
+            (GuardLevel::Light | GuardLevel::Full, Some(guards)) => {
+                guards
+                    .call(
+                        self.guard_level,
+                        &call,
+                        self.label.as_ptr(),
+                        self.fp_traps,
+                        true,
+                        input,
+                        output,
+                        &mut self.findings,
+                        // SAFETY: as in `call`, with the twin's complex signature; Complex64 is
+                        // repr(C) and laid out as C's double _Complex.
+                        |args| unsafe { guard::call_complex(twin, args) },
+                    )
+                    .map_err(guard::Crash::into_fault)?;
+            }
+            _ => {
+                let temp = input.temp;
+                let args = self.args(&call, &temp, input, output);
+                // SAFETY: as in `call`, with the twin's complex signature; Complex64 is
+                // repr(C) and laid out as C's double _Complex.
+                unsafe { guard::call_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
+            }
+        }
+        self.new_finding(known)?;
         status_fault(output.outcome)
     }
 }

@@ -162,7 +162,19 @@ fn without_the_twin_there_is_no_complex_capability() {
     let funcs = lib.exported_functions().unwrap();
     assert_eq!(
         funcs,
-        vec!["bad_abort", "bad_deep_recursion", "bad_divide_by_zero", "bad_exit", "bad_null_deref"]
+        vec![
+            "bad_abort",
+            "bad_deep_recursion",
+            "bad_divide_by_zero",
+            "bad_exit",
+            "bad_hidden_state",
+            "bad_infinite_loop",
+            "bad_null_deref",
+            "bad_props_overread",
+            "bad_state_overrun",
+            "bad_tangent_hole",
+            "bad_writes_strain",
+        ]
     );
 }
 
@@ -199,5 +211,5 @@ fn the_library_outlives_its_handle() {
     let mut b = Real::new();
     b.call(&mut r, 1).unwrap();
     b.assert_elastic();
-    assert!(r.library().path().is_absolute());
+    assert!(r.library().expect("loaded from a library").path().is_absolute());
 }

@@ -138,3 +138,60 @@ fn a_guarded_call_allocates_nothing() {
         assert!(allocations() > before);
     }
 }
+
+/// The memory guards allocate their buffers when the routine is made, not per call: at the
+/// full level (which reruns every call) and for the twin too. A finding allocates, once.
+#[test]
+fn guarded_calls_allocate_nothing_at_any_level() {
+    use tancheck_abi::GuardLevel;
+    use tancheck_core::Routine;
+    let mut r = load("bad_tangent_hole");
+    let mut b = Real::new();
+    let cprops = [Complex64::new(E, 0.0), Complex64::new(NU, 0.0)];
+    let czero = [Complex64::new(0.0, 0.0); 6];
+    let mut cstress = [Complex64::new(0.0, 0.0); 6];
+    let mut ctangent = [Complex64::new(0.0, 0.0); 36];
+    let mut cdsdt = [Complex64::new(0.0, 0.0); 6];
+    let mut cenergy = [Complex64::new(0.0, 0.0); 2];
+    let mut coutcome = Outcome::default();
+    let cinput = CallInput {
+        props: &cprops,
+        strain: &czero,
+        dstrain: &czero,
+        temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
+        stress0: &czero,
+        state0: &[],
+        time: [0.0, 1.0],
+        increment: 1,
+        want_tangent: true,
+    };
+    for level in GuardLevel::ALL {
+        r.set_guard_level(level);
+        let before = allocations();
+        for _ in 0..20 {
+            b.call(&mut r, 1).unwrap();
+            let mut coutput = CallOutput {
+                stress: &mut cstress,
+                state: &mut [],
+                tangent: &mut ctangent,
+                dstress_dtemp: &mut cdsdt,
+                energy: &mut cenergy,
+                outcome: &mut coutcome,
+            };
+            r.complex().unwrap().call_complex(&cinput, &mut coutput).unwrap();
+        }
+        assert_eq!(allocations() - before, 0, "guard level {level}");
+        b.assert_elastic();
+    }
+    assert!(r.findings().is_empty());
+    // The first tangent hole is a finding (allocates, and ends its call with a fault naming
+    // it); the same again only counts.
+    r.set_guard_level(GuardLevel::Light);
+    assert!(matches!(b.call(&mut r, 2), Err(tancheck_core::Fault::Misbehaved { .. })));
+    let before = allocations();
+    for _ in 0..20 {
+        b.call(&mut r, 2).unwrap();
+    }
+    assert_eq!(allocations() - before, 0, "a repeated finding only counts");
+    assert_eq!(r.findings()[0].calls, 21);
+}

@@ -129,6 +129,12 @@ pub enum Fault {
     /// The routine cannot run in this configuration.
     #[error("{0}")]
     Unsupported(String),
+    /// The routine misbehaved in a call that otherwise returned normally: the memory guards
+    /// of a loaded routine saw it write past the end of an array, write to a read-only input,
+    /// leave an output unwritten, or (at the full guard level) read past the end of an input.
+    /// `what` is the finding's sentence, e.g. "wrote past the end of state: state[13], ...".
+    #[error("the routine misbehaved: {what}")]
+    Misbehaved { what: String },
 }
 
 /// Required capability: a real stress update that also returns the tangent.

@@ -1,0 +1,161 @@
+//! Running one check for the C API, and its result.
+
+use std::ffi::CString;
+use std::fmt::Write as _;
+
+use serde_json::{json, Value};
+use tancheck_abi::guard::{ComplexFn, RealFn};
+use tancheck_abi::{GuardFinding, GuardLevel, LibraryRoutine, LoadError};
+use tancheck_core::{Caller, Report, Verdict};
+
+use crate::options::Plan;
+use crate::status::{code, Failure};
+
+/// The twin as the header passes it: a generic function pointer.
+pub type TwinFn = unsafe extern "C" fn();
+
+/// `tck_result`: what one check gave, with its strings ready for C.
+#[derive(Debug)]
+pub struct CheckResult {
+    pub report: Report,
+    pub findings: Vec<GuardFinding>,
+    pub guard_level: GuardLevel,
+    pub guard_calls: u64,
+    pub(crate) json: CString,
+    pub(crate) summary: CString,
+    pub(crate) finding_texts: Vec<CString>,
+}
+
+impl CheckResult {
+    pub fn verdict(&self) -> Verdict {
+        self.report.verdict
+    }
+
+    pub fn json(&self) -> &str {
+        self.json.to_str().expect("made from a String")
+    }
+
+    pub fn summary(&self) -> &str {
+        self.summary.to_str().expect("made from a String")
+    }
+}
+
+fn c_string(s: String) -> CString {
+    CString::new(s.replace('\0', " ")).expect("NUL bytes were replaced")
+}
+
+/// Check the routine at `real` (and its twin) as `plan` says.
+///
+/// # Safety
+/// `real` must have the routine ABI's real signature and `twin`, when given, the complex one.
+pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<CheckResult, Failure> {
+    // SAFETY: the caller promises the twin's complex signature; fn pointers have one size.
+    let twin = twin.map(|t| unsafe { std::mem::transmute::<TwinFn, ComplexFn>(t) });
+    // SAFETY: the caller's contract on both pointers.
+    let mut routine =
+        unsafe { LibraryRoutine::from_fn_pointers(plan.info, real, twin) }.map_err(|e| match e {
+            LoadError::Guard { .. } => Failure::new(code::ERROR_GUARD, e.to_string()),
+            other => Failure::invalid(other.to_string()),
+        })?;
+    routine.set_guard_level(plan.guard_level);
+    if plan.fp_traps {
+        routine.set_fp_traps(true).map_err(|e| Failure::invalid(format!("tck_options.fp_traps: {e}")))?;
+    }
+    let report = {
+        let mut caller = Caller::new(&mut routine);
+        tancheck_core::check::run(&mut caller, &plan.props, plan.start, &plan.path, &plan.settings)
+            .map_err(Failure::invalid)?
+    };
+    let findings = routine.take_findings();
+    Ok(finish(report, findings, plan.guard_level, routine.guard_calls()))
+}
+
+/// The result: guard findings make the verdict a routine fault (the report's own verdict
+/// cannot say so yet) and are listed in the notes and in the JSON's "guard" object.
+pub fn finish(
+    mut report: Report,
+    findings: Vec<GuardFinding>,
+    level: GuardLevel,
+    guard_calls: u64,
+) -> CheckResult {
+    if !findings.is_empty() {
+        report.verdict = Verdict::RoutineFault;
+        for f in &findings {
+            report.notes.push(format!("memory guard: {f}"));
+        }
+    }
+    let mut value = serde_json::to_value(&report).expect("the report model serialises");
+    let guard = json!({
+        "level": level.name(),
+        "extra_calls": guard_calls,
+        "findings": findings.iter().map(finding_json).collect::<Vec<_>>(),
+    });
+    if let Value::Object(map) = &mut value {
+        map.insert("guard".into(), guard);
+    }
+    let json = serde_json::to_string_pretty(&value).expect("a JSON value prints");
+    let summary = summary(&report, &findings);
+    CheckResult {
+        finding_texts: findings.iter().map(|f| c_string(f.to_string())).collect(),
+        json: c_string(json),
+        summary: c_string(summary),
+        report,
+        findings,
+        guard_level: level,
+        guard_calls,
+    }
+}
+
+fn finding_json(f: &GuardFinding) -> Value {
+    use tancheck_abi::FindingKind as K;
+    json!({
+        "kind": match f.kind {
+            K::Overrun => "overrun",
+            K::InputWritten => "input-written",
+            K::Unwritten => "unwritten",
+            K::OverRead => "over-read",
+            K::Unrepeatable => "unrepeatable",
+        },
+        "array": f.array.name(),
+        "length": f.len,
+        "index": f.first,
+        "entries": f.entries,
+        "increment": f.increment,
+        "complex": f.complex,
+        "calls": f.calls,
+        "message": f.to_string(),
+    })
+}
+
+/// One line: verdict, routine, each scheme's result, the first fault or finding.
+fn summary(report: &Report, findings: &[GuardFinding]) -> String {
+    let mut s = format!("{} {}", report.verdict.word(), report.routine.name);
+    let mut parts = Vec::new();
+    for sc in &report.summary {
+        let mut p = format!("{}: {} of {} checks failed", sc.scheme.name(), sc.failed, sc.checks);
+        if sc.checks > 0 {
+            let _ = write!(
+                p,
+                ", worst error {:.2e} (tol {:.0e})",
+                sc.worst_norm_error.max(sc.worst_entry_error),
+                sc.tol
+            );
+        }
+        if sc.skipped > 0 {
+            let _ = write!(p, ", {} skipped", sc.skipped);
+        }
+        parts.push(p);
+    }
+    if !parts.is_empty() {
+        let _ = write!(s, ": {}", parts.join("; "));
+    }
+    if let Some(f) = report.first_fault() {
+        let _ = write!(s, "; fault in increment {}: {}", f.call.increment, f.message);
+    }
+    if let Some(f) = findings.first() {
+        let more =
+            if findings.len() > 1 { format!(" (and {} more)", findings.len() - 1) } else { String::new() };
+        let _ = write!(s, "; memory guard{more}: {f}");
+    }
+    s
+}
