@@ -5,20 +5,19 @@ use std::path::Path as FsPath;
 use anyhow::{bail, Context, Result};
 use tancheck_abi::{Library, LibraryRoutine};
 use tancheck_core::{PointState, Routine, RoutineInfo};
-use tancheck_models::{reference, AnyModel};
 
 use crate::manifest::Manifest;
 
 /// A routine named by a manifest.
 pub enum Loaded {
-    Model(tancheck_core::ModelRoutine<AnyModel>),
+    Model(Box<dyn Routine>),
     Library(Box<LibraryRoutine>),
 }
 
 impl Loaded {
     pub fn routine(&mut self) -> &mut dyn Routine {
         match self {
-            Loaded::Model(m) => m,
+            Loaded::Model(m) => m.as_mut(),
             Loaded::Library(l) => l.as_mut(),
         }
     }
@@ -29,14 +28,8 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
     let r = &m.routine;
     let conv = m.convention().map_err(anyhow::Error::msg)?;
     if let Some(name) = &r.model {
-        let model = reference(name, r.kind)?;
-        let info = model.info();
-        if info.convention != conv {
-            bail!(
-                "the built-in model `{name}` works in the default component order with engineering shear; \
-                 remove routine.order and routine.shear from the manifest"
-            );
-        }
+        let model = tancheck_models::zoo::zoo_model(name, r.kind)?;
+        let info = model.info().clone();
         if r.properties.len() != info.nprop {
             bail!(
                 "the model `{name}` takes {} properties; the manifest gives {}",
@@ -49,7 +42,12 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
                 bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
             }
         }
-        return Ok(Loaded::Model(model));
+        // A built-in model in another component order or shear measure is presented in it.
+        if info.convention != conv {
+            let relabelled = tancheck_core::adapt::Relabel::new(model, conv).map_err(anyhow::Error::msg)?;
+            return Ok(Loaded::Model(Box::new(relabelled)));
+        }
+        return Ok(Loaded::Model(Box::new(model)));
     }
     let lib_path = r.library.as_ref().expect("validated: library or model");
     let lib_path = if lib_path.is_relative() { dir.join(lib_path) } else { lib_path.clone() };
@@ -65,6 +63,11 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
     if m.fp_traps {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
     }
+    routine.set_guard_level(match m.guards {
+        crate::manifest::Guards::Off => tancheck_abi::GuardLevel::Off,
+        crate::manifest::Guards::Light => tancheck_abi::GuardLevel::Light,
+        crate::manifest::Guards::Full => tancheck_abi::GuardLevel::Full,
+    });
     Ok(Loaded::Library(Box::new(routine)))
 }
 

@@ -35,6 +35,19 @@ pub struct Manifest {
     pub check: Settings,
     #[serde(default)]
     pub fp_traps: bool,
+    /// Memory guards around every call of a loaded routine: `off`, `light` (default) or `full`.
+    #[serde(default)]
+    pub guards: Guards,
+}
+
+/// Guard level of a manifest.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Guards {
+    Off,
+    #[default]
+    Light,
+    Full,
 }
 
 #[derive(Clone, Debug, Deserialize)]
@@ -188,11 +201,17 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
     }
 }
 
+/// The most increments a path may have.
+pub const MAX_INCREMENTS: usize = 1_000_000;
+
 /// Build a ramp path, checking its numbers. Besides the built-in shapes, `uniaxial-stress`
 /// prescribes ε11 and holds every other stress at zero.
 pub fn ramp(r: &RampSpec) -> Result<Path, String> {
     if r.steps == 0 {
         return Err("path.steps must be at least 1".into());
+    }
+    if r.steps.saturating_add(r.back) > MAX_INCREMENTS {
+        return Err(format!("path.steps + path.back must be at most {MAX_INCREMENTS}"));
     }
     if !r.peak.is_finite() || r.peak == 0.0 {
         return Err("path.peak must be a nonzero number".into());

@@ -12,6 +12,16 @@
  *   bad_abort           calls abort()                              -> SIGABRT
  *   bad_exit            calls exit(0), as a Fortran STOP does      -> the process ends
  *   bad_deep_recursion  recurses without end, 4 KiB a frame        -> SIGSEGV, stack overflow
+ *   bad_infinite_loop   never returns                               -> only a time limit helps
+ *
+ * and these misbehave quietly, for the memory guards to find (crates/tancheck-abi/src/guards.rs):
+ *
+ *   bad_state_overrun   writes state[nstate], one past the end     -> "wrote past the end of state"
+ *   bad_props_overread  adds props[nprop] to stress[0]              -> "reads beyond its N properties"
+ *   bad_tangent_hole    leaves tangent[1] unwritten                 -> "left tangent[1] unwritten"
+ *   bad_writes_strain   writes strain[0] (casting const away)       -> "wrote to its read-only input"
+ *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
+ *                                                                      identical calls"
  *
  * Build: cc -I fortran-shim/include -c misbehave.c               (bad_*)
  *        cc -I fortran-shim/include -DTC_COMPLEX -c misbehave.c  (bad_*_cx)
@@ -22,7 +32,7 @@
 #include "tancheck_routine.h"
 
 /* Elastic stiffness, column-major c[i + j*n], engineering shear columns (Hughes 2000,
- * The Finite Element Method, ch. 2). Returns 0 for an ncomp it does not know. */
+ * The Finite Element Method, ch. 2; chapter from memory). Returns 0 for an ncomp it does not know. */
 static int misbehave_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
 {
     if (n != 6 && n != 4 && n != 3 && n != 1) {
@@ -102,6 +112,13 @@ static int misbehave_elastic(const tc_call *call, const tc_real *props, const tc
     (void)dstress_dtemp;                                                                     \
     (void)energy
 
+/* The elastic part, then `misbehaving` only from increment 2 on. */
+#define MISBEHAVE_FROM_INCREMENT_2                                                            \
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,      \
+                           report) ||                                                         \
+        call->increment < 2)                                                                  \
+    return
+
 TC_ROUTINE(bad_null_deref)
 {
     MISBEHAVE_UNUSED;
@@ -169,6 +186,21 @@ static double misbehave_descend(const volatile double *above, long depth)
     return misbehave_descend(frame, depth + 1) + frame[511];
 }
 
+TC_ROUTINE(bad_infinite_loop)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        volatile unsigned long spin = 0;
+        for (;;) {
+            spin = spin + 1;
+        }
+    }
+}
+
 TC_ROUTINE(bad_deep_recursion)
 {
     MISBEHAVE_UNUSED;
@@ -181,4 +213,58 @@ TC_ROUTINE(bad_deep_recursion)
         double r = misbehave_descend(&seed, 0);
         stress[0] = r; /* never reached */
     }
+}
+
+TC_ROUTINE(bad_state_overrun)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* An off-by-one loop bound: state[nstate] is one past the end. */
+    for (int k = 0; k <= call->nstate; ++k) {
+        state[k] = (k < call->nstate) ? state0[k] : 0.0;
+    }
+}
+
+TC_ROUTINE(bad_props_overread)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* Reads one property more than it was given: whatever lies there shifts the stress. */
+    stress[0] = stress[0] + props[call->nprop];
+}
+
+TC_ROUTINE(bad_tangent_hole)
+{
+    MISBEHAVE_UNUSED;
+    /* The elastic update with the stiffness in a local array, copied into the tangent entry by
+     * entry; from increment 2 on the copy skips entry 1 (row 2, column 1), which keeps what
+     * arrived there. */
+    tc_real c[36];
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, c, report)) {
+        return;
+    }
+    const int n = call->ncomp;
+    for (int k = 0; k < n * n; ++k) {
+        if (k != 1 || call->increment < 2) {
+            tangent[k] = c[k];
+        }
+    }
+}
+
+TC_ROUTINE(bad_writes_strain)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* Uses the strain as scratch space, as if it were its own. */
+    ((tc_real *)strain)[0] = 0.0;
+}
+
+TC_ROUTINE(bad_hidden_state)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* A call counter kept between calls: every call gives another stress. */
+    static long calls = 0;
+    calls += 1;
+    stress[0] = stress[0] + (double)calls;
 }

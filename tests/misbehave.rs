@@ -1,0 +1,103 @@
+//! A zoo of misbehaving compiled routines, each reported with the right finding and the
+//! documented exit code (3: the routine crashed, misbehaved or failed; 70: it ended the
+//! process itself, without --isolate), and the tool never hangs or dies.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::OnceLock;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-misbehave-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn build(name: &str, src: &str) -> PathBuf {
+    let d = scratch(name);
+    let lib = d.join(format!("lib{name}.so"));
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join(src);
+    let o = bin().arg("build").arg(&src).arg("-o").arg(&lib).output().unwrap();
+    assert!(o.status.success(), "{}", text(&o));
+    lib
+}
+
+fn c_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("misbehave_c", "fortran-shim/examples/c/misbehave.c"))
+}
+
+fn check(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, String) {
+    let d = scratch(symbol);
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    let o = bin().arg("check").arg(&m).args(flags).output().unwrap();
+    (o.status.code(), text(&o))
+}
+
+fn expect(symbol: &str, flags: &[&str], code: i32, finding: &str) {
+    let (c, t) = check(c_lib(), symbol, flags);
+    assert_eq!(c, Some(code), "{symbol} {flags:?}: {t}");
+    assert!(t.contains(finding), "{symbol} {flags:?}: expected `{finding}` in\n{t}");
+}
+
+#[test]
+fn memory_misbehaviour_is_reported_by_the_guards() {
+    expect("bad_state_overrun", &[], 3, "wrote past the end of state");
+    expect("bad_props_overread", &["--guards", "full"], 3, "reads beyond its 2 properties");
+    expect("bad_tangent_hole", &[], 3, "left tangent[1] unwritten");
+    expect("bad_writes_strain", &[], 3, "wrote to its read-only input strain");
+}
+
+#[test]
+fn crashes_are_faults_with_the_inputs_of_the_call() {
+    expect("bad_null_deref", &[], 3, "SIGSEGV");
+    expect("bad_divide_by_zero", &["--fp-traps"], 3, "SIGFPE");
+    expect("bad_abort", &[], 3, "SIGABRT");
+    expect("bad_deep_recursion", &[], 3, "stack");
+    expect("bad_null_deref", &[], 3, "inputs of that call (increment 2)");
+}
+
+#[test]
+fn an_infinite_loop_needs_isolation_and_is_then_reported() {
+    expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "did not return within 2 s");
+    expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "during increment 2");
+}
+
+#[test]
+fn exit_ends_the_process_without_isolation_and_is_reported_with_it() {
+    expect("bad_exit", &[], 70, "ended the process");
+    expect("bad_exit", &["--isolate"], 3, "ended the worker process");
+    // A crash under isolation is still the worker's own report.
+    expect("bad_null_deref", &["--isolate"], 3, "SIGSEGV");
+}
+
+#[test]
+fn a_fortran_stop_is_reported_under_isolation() {
+    if !tancheck::abi::fortran_for_test("a_fortran_stop_is_reported_under_isolation") {
+        return;
+    }
+    let lib = build("misbehave_f", "fortran-shim/examples/fortran/misbehave.F90");
+    let (c, t) = check(&lib, "f_bad_stop", &["--isolate"]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("ended the worker process"), "{t}");
+    assert!(t.contains("during increment 2"), "{t}");
+    let (c, t) = check(&lib, "f_bad_stop", &[]);
+    assert_eq!(c, Some(70), "without --isolate a STOP ends tancheck with the documented code 70: {t}");
+}
