@@ -13,7 +13,8 @@
 //! g(Δγ) = ‖ξ_tr‖ − (2μ + ⅔H_kin)Δγ − √(2/3) K(α_n + √(2/3)Δγ) from Δγ = 0 (stopping rule
 //! at [`STEP_TOLERANCE`]), then
 //! σ = σ_tr − 2μΔγ n, β = β_n + ⅔H_kin Δγ n, α = α_n + √(2/3)Δγ, εp = εp_n + Δγ n with
-//! n = ξ_tr/‖ξ_tr‖. The consistent tangent is
+//! n = ξ_tr/‖ξ_tr‖; the step fails (status 2) when softening takes K(α_{n+1}) to zero or
+//! below. The consistent tangent is
 //! C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n, θ = 1 − 2μΔγ/‖ξ_tr‖,
 //! θ̄ = 1/(1 + (K'(α_{n+1}) + H_kin)/(3μ)) − (1 − θ).
 //!
@@ -266,6 +267,12 @@ impl Model for J2 {
             nrm[k] = xi[k] / norm;
         }
         let alpha = alpha_n + dgamma * r23;
+        // With softening (K' < 0) a large step can take K(α_{n+1}) to zero or below: then
+        // ξ_{n+1} = √(2/3) K(α_{n+1}) n would point against n, and the root of g is no return.
+        if !positive(p.yield_stress(alpha).re()) {
+            fail(output, "j2: softening takes the yield stress K(alpha) to zero in this increment");
+            return Ok(());
+        }
         for (i, &slot) in slots.iter().enumerate() {
             output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
             // Engineering shear: the plastic shear strain γp = 2 εp.

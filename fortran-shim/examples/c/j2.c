@@ -168,6 +168,10 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
 
         /* Radial return (Simo & Hughes 1998, Box 3.2), n = xi_tr / |xi_tr|. */
         const tc_real alpha_new = alpha_n + sqrt23 * dgamma;
+        if (!(tc_re(j2_yield(props, alpha_new)) > 0.0)) {
+            j2_fail(report, "softening takes the yield stress K(alpha) to zero in this increment");
+            return;
+        }
         for (int i = 0; i < n; ++i) {
             n_dir[i] = xi[i] / norm;
             stress[i] = sigma_tr[i] - 2.0 * mu * dgamma * n_dir[i];

@@ -13,9 +13,12 @@ use crate::settings::Settings;
 
 pub mod determinism;
 pub mod energy;
+pub mod frame;
 pub mod hidden_state;
 pub mod immutability;
+pub mod newton;
 pub mod refinement;
+pub mod stability;
 pub mod symmetry;
 pub mod tangent;
 pub mod zero_increment;
@@ -144,6 +147,9 @@ pub fn registry() -> Vec<Box<dyn Probe>> {
         Box::new(immutability::Immutability),
         Box::new(refinement::Refinement),
         Box::new(energy::Energy),
+        Box::new(stability::Stability),
+        Box::new(newton::NewtonRate),
+        Box::new(frame::Frame),
     ]
 }
 

@@ -32,7 +32,9 @@ impl Probe for Tangent {
             _ if failed.is_empty() => ProbeStatus::Pass,
             _ => ProbeStatus::Fail,
         };
-        let summary = if failed.is_empty() {
+        let summary = if let Some(f) = report.first_fault() {
+            format!("the routine failed at increment {}: {}", f.call.increment, f.message)
+        } else if failed.is_empty() {
             format!("consistent at {} increments (worst error {worst:.2e})", checked.len())
         } else {
             format!(

@@ -1,0 +1,238 @@
+//! The Newton-rate probe: does the returned tangent make Newton's method converge
+//! quadratically, as the derivative of the stress update must?
+//!
+//! At each probed increment the path's own call fixes a reference: the strain increment Δε
+//! and the stress σ it reached. The probe then solves a mixed-control version of the same
+//! increment ([`mixed::solve`] with the routine's tangent): the first component (routine
+//! order) keeps its strain increment, every other component starts from a zero strain
+//! increment (from −Δε₁/2 when zero is the reference increment itself, as on a path that
+//! moves only the first component) and is driven by Newton's method until its stress is the
+//! reference stress. The
+//! stress update is a function of the increment, so Newton is looking for Δε itself, and the
+//! iteration is Newton's method on the routine's own map with the routine's Jacobian. Holding
+//! the reached stresses rather than zero works on any path, mixed or strain controlled, and
+//! makes every column of the tangent but the first take part.
+//!
+//! From the residual norms r_k (controlled stresses minus targets) the observed orders
+//! p_k = ln(r_{k+1}/r_k) / ln(r_k/r_{k−1}) are reported: they tend to 2 with the exact
+//! Jacobian and stay near 1 with an approximate one, such as a continuum tangent after yield
+//! (a standard result of Newton's method). Residuals at the rounding floor,
+//! r ≤ 1e-13 · max(1, ‖σ‖∞, max|C_ij| ‖ε + Δε‖∞), are left out; the solve itself stops at
+//! 1e-12 · max(1, ‖σ‖∞) within at most max(100, the path's `mixed.max_iterations`)
+//! iterations.
+//!
+//! The order of an increment is its last observed order, from its three smallest usable
+//! residuals: the asymptotic rate. Earlier orders come from iterates far from the solution
+//! (often on the other side of the elastic–plastic kink) and scatter widely, above 2 as well
+//! as below, with either tangent; they are listed in the details but not judged.
+//!
+//! Verdict: FAIL when Newton with the routine's tangent does not converge at some probed
+//! increment (or the routine fails during it), or when an increment with at least three
+//! usable residuals has an order below `tol` (default 1.5). An increment that converges in
+//! one iteration has a linear response and no order to measure. Value: the lowest order over
+//! the measured increments. A point with a single component has nothing to solve for and is
+//! skipped.
+
+use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::mixed::{self, MixedSettings, SolveLog};
+use crate::routine::Caller;
+
+pub struct NewtonRate;
+
+/// Default lowest acceptable order.
+pub const DEFAULT_MIN_ORDER: f64 = 1.5;
+/// Residuals at most this times the scale of the stress are at the rounding floor.
+pub const FLOOR: f64 = 1e-13;
+/// The probe's solves stop at this residual relative to max(1, ‖σ‖∞).
+pub const STRESS_TOL: f64 = 1e-12;
+
+/// The Newton solve of one increment.
+#[derive(Clone, Debug, PartialEq)]
+pub struct IncrementSolve {
+    pub increment: usize,
+    /// The path's call changed the state variables (an inelastic step).
+    pub state_changed: bool,
+    /// The solve's log; `converged` is false when the routine's tangent did not converge (or
+    /// a call failed), whatever a numerical fallback then did.
+    pub log: SolveLog,
+    /// The routine failed during the solve.
+    pub failure: Option<String>,
+    /// Residuals above the rounding floor.
+    pub usable: Vec<f64>,
+    /// Observed orders from the usable residuals.
+    pub orders: Vec<f64>,
+}
+
+impl IncrementSolve {
+    /// Newton iterations made (calls after the first).
+    pub fn iterations(&self) -> usize {
+        self.log.residuals.len().saturating_sub(1)
+    }
+    /// The order of the increment: the last observed one (the asymptotic rate), when there
+    /// is one.
+    pub fn order(&self) -> Option<f64> {
+        self.orders.last().copied()
+    }
+    /// Converged with the routine's own tangent.
+    pub fn converged(&self) -> bool {
+        self.failure.is_none() && self.log.converged && !self.log.numerical_fallback
+    }
+}
+
+/// Solve every probed increment of the path as described in the module documentation.
+/// Errors are faults of the path's own calls, with the increment.
+pub fn study(
+    caller: &mut Caller<'_>,
+    env: &ProbeEnv<'_>,
+) -> Result<Vec<IncrementSolve>, (usize, crate::routine::Fault)> {
+    let n = caller.info().convention.ncomp();
+    let controlled: Vec<usize> = (1..n).collect();
+    let settings =
+        MixedSettings { stress_tol: STRESS_TOL, max_iterations: env.settings.mixed.max_iterations.max(100) };
+    let mut out = Vec::new();
+    walk(caller, env, |k, d, c| {
+        if !env.spec.runs_at(k) {
+            return Ok(());
+        }
+        let targets: Vec<f64> = controlled.iter().map(|&i| d.base.stress[i]).collect();
+        let state_changed =
+            d.base.state.iter().zip(&d.start().state).any(|(a, b)| a.to_bits() != b.to_bits());
+        let sig = d.base.stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
+        let cmax = d.base.tangent.iter().fold(0.0f64, |a, x| a.max(x.abs()));
+        let emax = (0..n).fold(0.0f64, |a, i| a.max((d.start().strain[i] + d.dstrain()[i]).abs()));
+        let scale = sig.max(cmax * emax);
+        let mut t = d.clone();
+        let mut de = d.dstrain().to_vec();
+        // From zero, unless zero is the reference increment itself (a path that moves only
+        // the first component): then from −Δε₁/2, so that there is something to solve.
+        let start = if controlled.iter().all(|&i| de[i] == 0.0) { -0.5 * de[0] } else { 0.0 };
+        for &i in &controlled {
+            de[i] = start;
+        }
+        t.set_dstrain(&de);
+        let (log, failure) = match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+            Ok(log) => (log, None),
+            Err(f) => (
+                SolveLog { residuals: Vec::new(), converged: false, numerical_fallback: false },
+                Some(f.to_string()),
+            ),
+        };
+        // The residuals of the routine's tangent only: after a fallback they are the
+        // numerical tangent's, and they are not used.
+        let usable: Vec<f64> = if log.numerical_fallback {
+            Vec::new()
+        } else {
+            log.residuals.iter().cloned().filter(|&r| r > FLOOR * scale).collect()
+        };
+        let orders =
+            SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
+        out.push(IncrementSolve { increment: k, state_changed, log, failure, usable, orders });
+        Ok(())
+    })?;
+    Ok(out)
+}
+
+fn list(v: &[f64], prec: usize) -> String {
+    let items: Vec<String> = v.iter().map(|x| format!("{x:.prec$e}")).collect();
+    format!("[{}]", items.join(", "))
+}
+
+impl Probe for NewtonRate {
+    fn name(&self) -> &'static str {
+        "newton"
+    }
+    fn needs(&self) -> &'static str {
+        "the stress update and the tangent"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        if caller.info().convention.ncomp() < 2 {
+            return Ok(ProbeResult::skipped(
+                "newton",
+                "a point with one component has no component to solve for by Newton's method",
+            ));
+        }
+        let min_order = env.spec.tol.unwrap_or(DEFAULT_MIN_ORDER);
+        let solves = match study(caller, env) {
+            Ok(s) => s,
+            Err((k, f)) => return Ok(faulted("newton", k, &f)),
+        };
+        if solves.is_empty() {
+            return Ok(ProbeResult::skipped("newton", "no increment of the path is probed (see `at`)"));
+        }
+        let details: Vec<String> = solves
+            .iter()
+            .map(|s| {
+                let mut line = format!(
+                    "increment {}{}: {} iteration(s), residuals {}",
+                    s.increment,
+                    if s.state_changed { " (inelastic)" } else { "" },
+                    s.iterations(),
+                    list(&s.log.residuals, 2)
+                );
+                if !s.orders.is_empty() {
+                    let o: Vec<String> = s.orders.iter().map(|p| format!("{p:.2}")).collect();
+                    line.push_str(&format!(", orders [{}]", o.join(", ")));
+                }
+                if s.log.numerical_fallback {
+                    line.push_str(", the routine's tangent did not converge (numerical fallback)");
+                }
+                if let Some(f) = &s.failure {
+                    line.push_str(&format!(", {f}"));
+                }
+                line
+            })
+            .collect();
+        let measured: Vec<(usize, f64)> =
+            solves.iter().filter_map(|s| s.order().map(|p| (s.increment, p))).collect();
+        let worst = measured.iter().cloned().min_by(|a, b| a.1.total_cmp(&b.1));
+        let iters = solves.iter().map(IncrementSolve::iterations);
+        let (lo, hi) = (iters.clone().min().unwrap_or(0), iters.max().unwrap_or(0));
+        let span = if lo == hi {
+            format!("{lo} iteration{}", if lo == 1 { "" } else { "s" })
+        } else {
+            format!("{lo}–{hi} iterations")
+        };
+        let unconverged = solves.iter().find(|s| !s.converged());
+        let slow = solves.iter().find(|s| s.order().is_some_and(|p| p < min_order));
+        let mut r = if let Some(s) = unconverged {
+            let why = match &s.failure {
+                Some(f) => format!("the routine failed during the solve: {f}"),
+                None => format!(
+                    "Newton with the routine's tangent did not converge in {} iterations",
+                    env.settings.mixed.max_iterations.max(100)
+                ),
+            };
+            let mut r =
+                ProbeResult::new("newton", ProbeStatus::Fail, format!("increment {}: {why}", s.increment));
+            r.increment = Some(s.increment);
+            r
+        } else if let Some(s) = slow {
+            let p = s.order().unwrap_or(f64::NAN);
+            let mut r = ProbeResult::new(
+                "newton",
+                ProbeStatus::Fail,
+                format!(
+                    "Newton converges with order {p:.2} at increment {} (below {min_order}): the tangent is not the derivative of the stress update{}",
+                    s.increment,
+                    if s.state_changed { " (a continuum tangent after yield?)" } else { "" }
+                ),
+            );
+            r.increment = Some(s.increment);
+            r
+        } else {
+            let summary = match worst {
+                Some((k, p)) => format!(
+                    "Newton with the routine's tangent: order {p:.2} or more at every measured increment (lowest at increment {k}); {span}"
+                ),
+                None => format!(
+                    "Newton with the routine's tangent converged in {span} at every probed increment: no order to measure"
+                ),
+            };
+            ProbeResult::new("newton", ProbeStatus::Pass, summary)
+        };
+        r.value = worst.map(|w| w.1);
+        r.tol = Some(min_order);
+        r.details = details;
+        Ok(r)
+    }
+}

@@ -1,0 +1,240 @@
+/*
+ * orthotropic.c -- linear orthotropic elasticity with material axes among the properties, the
+ * reference routine "orthotropic" in C.
+ *
+ * Layout (DEVELOPERS.md, "Reference models"): ncomp 6 (11, 22, 33, 23, 13, 12) or 4
+ * (11, 22, 33, 12: plane strain / axisymmetric, the matching rows and columns of the 3D
+ * stiffness), engineering shear strain, no state (entries passed are carried through).
+ *   properties [E1, E2, E3, nu12, nu13, nu23, G12, G13, G23, a1x, a1y, a1z, a2x, a2y, a2z]:
+ *     engineering constants in the material frame (nu_ij / E_i = nu_ji / E_j), then the
+ *     directions of material axes 1 and 2 in the global frame. Gram-Schmidt makes them
+ *     orthonormal: e1 = a1/|a1|, e2 = the part of a2 normal to e1, normalised; e3 = e1 x e2.
+ * Incremental form sigma = sigma0 + C dstrain with C the material stiffness (the inverse of
+ * the orthotropic compliance, Jones, Mechanics of Composite Materials, 2nd ed. 1999, ch. 2;
+ * from memory) turned into the global frame, C_ijkl = R_ia R_jb R_kc R_ld C'_abcd with
+ * R = [e1 e2 e3]; the turn is done in Mandel form, where it is an orthogonal 6x6 matrix.
+ * Energy: stored = 1/2 sigma . (strain + dstrain), dissipated = 0. Branch 0.
+ *
+ * Build: cc -I fortran-shim/include -c orthotropic.c               exports c_orthotropic
+ *        cc -I fortran-shim/include -DTC_COMPLEX -c orthotropic.c  exports c_orthotropic_cx
+ */
+#include <math.h>
+
+#include "tancheck_cstep.h"
+#include "tancheck_routine.h"
+
+enum { OR_E1, OR_E2, OR_E3, OR_NU12, OR_NU13, OR_NU23, OR_G12, OR_G13, OR_G23, OR_A1 = 9,
+       OR_A2 = 12, OR_NPROP = 15 };
+
+/* Below this |a2 - (a2.e1) e1| / |a2| the two axes count as parallel. */
+#define OR_PARALLEL_TOL 1e-8
+
+/* Tensor indices (i, j) of the canonical slots 11, 22, 33, 23, 13, 12. */
+static const int or_pairs[6][2] = {{0, 0}, {1, 1}, {2, 2}, {1, 2}, {0, 2}, {0, 1}};
+
+static void or_fail(tc_report *report, const char *text)
+{
+    report->status = TC_STATUS_FAILED;
+    /* "<model>: <text>" into the report's message, cut to fit and NUL-terminated. */
+    const char *parts[2] = {"orthotropic: ", text};
+    int k = 0;
+    for (int p = 0; p < 2; ++p) {
+        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
+            report->message[k++] = *c;
+        }
+    }
+    report->message[k] = '\0';
+}
+
+/* Mandel weight of a canonical slot: 1 normal, sqrt(2) shear. */
+static double or_weight(int slot) { return slot < 3 ? 1.0 : sqrt(2.0); }
+
+/* The orthonormal material axes as the columns of r (r[i][a] = component i of axis a).
+ * Returns 0 after reporting a failure. */
+static int or_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
+{
+    const tc_real *a1 = props + OR_A1;
+    const tc_real *a2 = props + OR_A2;
+    int finite = 1;
+    for (int k = 0; k < 3; ++k) {
+        finite = finite && isfinite(tc_re(a1[k])) && isfinite(tc_re(a2[k]));
+    }
+    const tc_real n1 = a1[0] * a1[0] + a1[1] * a1[1] + a1[2] * a1[2];
+    if (!finite || !(tc_re(n1) > 0.0)) {
+        or_fail(report, "axis 1 (props[9..12]) must be a finite nonzero vector");
+        return 0;
+    }
+    const tc_real l1 = tc_sqrt(n1);
+    tc_real e1[3], b[3], e2[3];
+    for (int k = 0; k < 3; ++k) {
+        e1[k] = a1[k] / l1;
+    }
+    const tc_real p = a2[0] * e1[0] + a2[1] * e1[1] + a2[2] * e1[2];
+    for (int k = 0; k < 3; ++k) {
+        b[k] = a2[k] - p * e1[k];
+    }
+    const tc_real nb = b[0] * b[0] + b[1] * b[1] + b[2] * b[2];
+    const double n2 = tc_re(a2[0] * a2[0] + a2[1] * a2[1] + a2[2] * a2[2]);
+    if (!(tc_re(nb) > 0.0) || tc_re(nb) <= OR_PARALLEL_TOL * OR_PARALLEL_TOL * n2) {
+        or_fail(report, "axis 2 (props[12..15]) must be nonzero and not parallel to axis 1");
+        return 0;
+    }
+    const tc_real lb = tc_sqrt(nb);
+    for (int k = 0; k < 3; ++k) {
+        e2[k] = b[k] / lb;
+    }
+    const tc_real e3[3] = {e1[1] * e2[2] - e1[2] * e2[1], e1[2] * e2[0] - e1[0] * e2[2],
+                           e1[0] * e2[1] - e1[1] * e2[0]};
+    for (int i = 0; i < 3; ++i) {
+        r[i][0] = e1[i];
+        r[i][1] = e2[i];
+        r[i][2] = e3[i];
+    }
+    return 1;
+}
+
+/* The material stiffness in canonical Voigt order, engineering-shear columns: the inverse of
+ * the compliance [[1/E1, -nu12/E1, -nu13/E1], [., 1/E2, -nu23/E2], [., ., 1/E3]] (symmetric)
+ * with shear diagonal G23, G13, G12. Returns 0 after reporting a failure. */
+static int or_material(const tc_real *props, tc_real c[6][6], tc_report *report)
+{
+    const int moduli[6] = {OR_E1, OR_E2, OR_E3, OR_G12, OR_G13, OR_G23};
+    for (int k = 0; k < 6; ++k) {
+        const double x = tc_re(props[moduli[k]]);
+        if (!(x > 0.0 && isfinite(x))) {
+            or_fail(report, "E1, E2, E3, G12, G13, G23 (props[0..3], props[6..9]) must be positive");
+            return 0;
+        }
+    }
+    for (int k = OR_NU12; k <= OR_NU23; ++k) {
+        if (!isfinite(tc_re(props[k]))) {
+            or_fail(report, "nu12, nu13, nu23 (props[3..6]) must be finite");
+            return 0;
+        }
+    }
+    const tc_real s11 = 1.0 / props[OR_E1];
+    const tc_real s22 = 1.0 / props[OR_E2];
+    const tc_real s33 = 1.0 / props[OR_E3];
+    const tc_real s12 = -props[OR_NU12] / props[OR_E1];
+    const tc_real s13 = -props[OR_NU13] / props[OR_E1];
+    const tc_real s23 = -props[OR_NU23] / props[OR_E2];
+    /* Cofactors; positive definite when the leading minors are (Sylvester). */
+    const tc_real c11 = s22 * s33 - s23 * s23;
+    const tc_real c12 = s13 * s23 - s12 * s33;
+    const tc_real c13 = s12 * s23 - s13 * s22;
+    const tc_real c22 = s11 * s33 - s13 * s13;
+    const tc_real c23 = s12 * s13 - s11 * s23;
+    const tc_real c33 = s11 * s22 - s12 * s12;
+    const tc_real det = s11 * c11 + s12 * c12 + s13 * c13;
+    if (!(tc_re(c33) > 0.0 && tc_re(det) > 0.0)) {
+        or_fail(report, "the compliance is not positive definite (check the Poisson ratios "
+                        "against the moduli)");
+        return 0;
+    }
+    for (int a = 0; a < 6; ++a) {
+        for (int b = 0; b < 6; ++b) {
+            c[a][b] = 0.0;
+        }
+    }
+    c[0][0] = c11 / det;
+    c[1][1] = c22 / det;
+    c[2][2] = c33 / det;
+    c[0][1] = c[1][0] = c12 / det;
+    c[0][2] = c[2][0] = c13 / det;
+    c[1][2] = c[2][1] = c23 / det;
+    c[3][3] = props[OR_G23];
+    c[4][4] = props[OR_G13];
+    c[5][5] = props[OR_G12];
+    return 1;
+}
+
+/* The global stiffness (canonical Voigt order, engineering-shear columns). With I = (i, j),
+ * K = (k, l), the Mandel rotation is Q_IK = (w_I / w_K)(R_ik R_jl + [k != l] R_il R_jk), and
+ * C^M = Q C'^M Q^T with C^M_IJ = w_I C_IJ w_J. Returns 0 after reporting a failure. */
+static int or_global(const tc_real *props, tc_real c[6][6], tc_report *report)
+{
+    tc_real cmat[6][6], r[3][3], q[6][6], qc[6][6];
+    if (!or_material(props, cmat, report) || !or_axes(props, r, report)) {
+        return 0;
+    }
+    for (int bi = 0; bi < 6; ++bi) {
+        const int i = or_pairs[bi][0], j = or_pairs[bi][1];
+        for (int bk = 0; bk < 6; ++bk) {
+            const int k = or_pairs[bk][0], l = or_pairs[bk][1];
+            tc_real v = r[i][k] * r[j][l];
+            if (k != l) {
+                v += r[i][l] * r[j][k];
+            }
+            q[bi][bk] = v * (or_weight(bi) / or_weight(bk));
+        }
+    }
+    for (int a = 0; a < 6; ++a) {
+        for (int b = 0; b < 6; ++b) {
+            cmat[a][b] = cmat[a][b] * (or_weight(a) * or_weight(b));
+        }
+    }
+    for (int a = 0; a < 6; ++a) {
+        for (int b = 0; b < 6; ++b) {
+            tc_real s = 0.0;
+            for (int k = 0; k < 6; ++k) {
+                s += q[a][k] * cmat[k][b];
+            }
+            qc[a][b] = s;
+        }
+    }
+    for (int a = 0; a < 6; ++a) {
+        for (int b = 0; b < 6; ++b) {
+            tc_real s = 0.0;
+            for (int k = 0; k < 6; ++k) {
+                s += qc[a][k] * q[b][k];
+            }
+            c[a][b] = s / (or_weight(a) * or_weight(b));
+        }
+    }
+    return 1;
+}
+
+TC_ROUTINE(c_orthotropic)
+{
+    (void)temp;
+    (void)dstress_dtemp;
+
+    static const int slots6[6] = {0, 1, 2, 3, 4, 5};
+    static const int slots4[4] = {0, 1, 2, 5};
+    const int n = call->ncomp;
+    if (n != 6 && n != 4) {
+        or_fail(report, "ncomp must be 6 or 4");
+        return;
+    }
+    if (call->nprop < OR_NPROP) {
+        or_fail(report, "needs 15 properties [E1, E2, E3, nu12, nu13, nu23, G12, G13, G23, a1, a2]");
+        return;
+    }
+    const int *slots = n == 6 ? slots6 : slots4;
+
+    tc_real c[6][6];
+    if (!or_global(props, c, report)) {
+        return;
+    }
+
+    tc_real stored = 0.0;
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) {
+            const tc_real cij = c[slots[i]][slots[j]];
+            tangent[i + j * n] = cij;
+            s += cij * dstrain[j];
+        }
+        stress[i] = s;
+        stored += s * (strain[i] + dstrain[i]);
+    }
+    for (int k = 0; k < call->nstate; ++k) {
+        state[k] = state0[k];
+    }
+
+    energy[0] = 0.5 * stored;
+    energy[1] = 0.0;
+    report->provides = TC_PROVIDES_ENERGY;
+    report->branch = 0;
+    report->status = TC_STATUS_OK;
+}

@@ -1,0 +1,198 @@
+//! The frame probe: isotropic laws (elasticity, J2 with every hardening of the model) rotate
+//! their stress and tangent with the strain, σ(R ε Rᵀ) = R σ(ε) Rᵀ — frame indifference of an
+//! isotropic law at small strain, a standard result (the J2 update depends on the strain only
+//! through isotropic tensor functions: Simo & Hughes 1998, Computational Inelasticity, Box 3.2,
+//! from memory) — while a law that singles out the global axes does not. An orthotropic law
+//! passes only when its material axes are rotated too.
+
+use tancheck::core::path::{Path, PathIncrement, Shape};
+use tancheck::core::probe::frame::{rotate_sym, rotation, Frame};
+use tancheck::core::probe::{Probe, ProbeEnv, ProbeResult, ProbeSpec, ProbeStatus};
+use tancheck::core::{
+    CallInput, CallOutput, Caller, Fault, PointKind, PointState, Routine, RoutineInfo, Settings,
+};
+use tancheck::models::reference;
+
+const ELASTIC: [f64; 2] = [200000.0, 0.3];
+/// Linear isotropic, Voce and linear kinematic hardening at once.
+const J2_ALL: [f64; 7] = [200000.0, 0.3, 250.0, 1000.0, 300.0, 30.0, 500.0];
+
+fn run(routine: &mut dyn Routine, props: &[f64], path: &Path, spec: &ProbeSpec) -> ProbeResult {
+    let info = routine.info().clone();
+    let mut caller = Caller::new(routine);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let env = ProbeEnv { props, start: &start, path, settings: &settings, spec };
+    let r = Frame.run(&mut caller, &env).unwrap();
+    eprintln!("{}: {} — {}", info.name, r.status.word(), r.summary);
+    r
+}
+
+fn paths() -> Vec<Path> {
+    vec![
+        Path::ramp(Shape::TensionShear, 4e-3, 8, 4),
+        Path::uniaxial_stress(4e-3, 8, 4),
+        Path::ramp(Shape::Shear12, 5e-3, 5, 5),
+    ]
+}
+
+#[test]
+fn isotropic_laws_rotate_with_the_frame() {
+    let spec = ProbeSpec::named("frame");
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::Axisymmetric] {
+        for path in paths() {
+            for (model, props) in
+                [("elastic", &ELASTIC[..]), ("j2", &J2_ALL[..]), ("j2-continuum", &J2_ALL[..])]
+            {
+                let mut r = reference(model, kind).unwrap();
+                let res = run(&mut r, props, &path, &spec);
+                assert_eq!(res.status, ProbeStatus::Pass, "{model} {kind} {}: {res:?}", path.name);
+                assert!(res.value.unwrap() <= 1e-12, "{model} {kind}: {res:?}");
+            }
+        }
+    }
+    // Plane stress elasticity, rotated about axis 3.
+    let mut r = reference("elastic", PointKind::PlaneStress).unwrap();
+    assert_eq!(run(&mut r, &ELASTIC, &paths()[0], &spec).status, ProbeStatus::Pass);
+    // Any angle: a larger one, given as `amplitude`.
+    let spec = ProbeSpec { amplitude: Some(2.1), ..ProbeSpec::named("frame") };
+    let mut r = reference("j2", PointKind::Solid3d).unwrap();
+    assert_eq!(run(&mut r, &J2_ALL, &paths()[0], &spec).status, ProbeStatus::Pass);
+}
+
+/// Isotropic elasticity plus c·(ε11 − ε22) on σ11 (total strain), with the matching tangent
+/// entries: the returned tangent is still the derivative, but the law singles out axes 1, 2.
+struct Skewed {
+    inner: tancheck::core::ModelRoutine<tancheck::models::AnyModel>,
+    c: f64,
+}
+
+impl Routine for Skewed {
+    fn info(&self) -> &RoutineInfo {
+        self.inner.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.inner.call(input, output)?;
+        let n = self.inner.info().convention.ncomp();
+        let d = input.strain[0] + input.dstrain[0] - input.strain[1] - input.dstrain[1];
+        output.stress[0] += self.c * d;
+        output.tangent[0] += self.c;
+        output.tangent[n] -= self.c;
+        Ok(())
+    }
+}
+
+#[test]
+fn a_law_that_singles_out_axes_fails() {
+    let spec = ProbeSpec::named("frame");
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
+        for (model, props) in [("elastic", &ELASTIC[..]), ("j2", &J2_ALL[..])] {
+            // c = 1% of E: far above rounding, small beside the elastic moduli.
+            let mut r = Skewed { inner: reference(model, kind).unwrap(), c: 2000.0 };
+            let res = run(&mut r, props, &paths()[0], &spec);
+            assert_eq!(res.status, ProbeStatus::Fail, "{model} {kind}: {res:?}");
+            assert_eq!(res.increment, Some(1), "{res:?}");
+            assert!(res.value.unwrap() > 1e-4, "{res:?}");
+            assert!(res.summary.contains("not frame indifferent"), "{}", res.summary);
+        }
+    }
+    // The same term with c = 0 passes: the failure is the term's.
+    let mut r = Skewed { inner: reference("elastic", PointKind::Solid3d).unwrap(), c: 0.0 };
+    assert_eq!(run(&mut r, &ELASTIC, &paths()[0], &spec).status, ProbeStatus::Pass);
+}
+
+/// Orthotropic inputs (any valid set would do; these follow the T300/914C ply of
+/// REFERENCES.md with E3 = E2, G13 = G12, ν13 = ν12 and ν23 = 0.4 assumed), material axes
+/// a1 = (1, 1, 0), a2 = (−1, 1, 0.5) at properties 9..12 and 12..15.
+const ORTHO: [f64; 15] =
+    [138000.0, 11000.0, 11000.0, 0.28, 0.28, 0.4, 5500.0, 5500.0, 3928.57, 1.0, 1.0, 0.0, -1.0, 1.0, 0.5];
+
+#[test]
+fn anisotropic_laws_need_their_axes_rotated() {
+    let path = &paths()[0];
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
+        let mut props = ORTHO;
+        if kind != PointKind::Solid3d {
+            // In-plane axes for a plane point: the rotation about axis 3 keeps them in-plane.
+            props[14] = 0.0;
+        }
+        let with_axes =
+            ProbeSpec { anisotropic: Some(true), axes: Some(vec![9, 12]), ..ProbeSpec::named("frame") };
+        let mut r = reference("orthotropic", kind).unwrap();
+        let res = run(&mut r, &props, path, &with_axes);
+        assert_eq!(res.status, ProbeStatus::Pass, "{kind}: {res:?}");
+        assert!(res.summary.contains("material axes rotated"), "{}", res.summary);
+        // Treated as isotropic, it is not frame indifferent.
+        let res = run(&mut r, &props, path, &ProbeSpec::named("frame"));
+        assert_eq!(res.status, ProbeStatus::Fail, "{kind}: {res:?}");
+        // Declared anisotropic without axes: skipped with the reason.
+        let no_axes = ProbeSpec { anisotropic: Some(true), ..ProbeSpec::named("frame") };
+        let res = run(&mut r, &props, path, &no_axes);
+        assert_eq!(res.status, ProbeStatus::Skipped);
+        assert!(res.summary.contains("axes"), "{}", res.summary);
+    }
+}
+
+#[test]
+fn what_cannot_be_rotated_is_skipped() {
+    let spec = ProbeSpec::named("frame");
+    let path =
+        Path { name: "one".into(), increments: vec![PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 0.0])] };
+    let mut r = reference("elastic", PointKind::Uniaxial).unwrap();
+    assert_eq!(run(&mut r, &ELASTIC, &path, &spec).status, ProbeStatus::Skipped);
+    // A start with stress: skipped with the reason.
+    let mut r = reference("elastic", PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let mut start = PointState::zero(&info, 20.0);
+    start.stress[0] = 10.0;
+    let settings = Settings::default();
+    let env = ProbeEnv { props: &ELASTIC, start: &start, path: &path, settings: &settings, spec: &spec };
+    let res = Frame.run(&mut caller, &env).unwrap();
+    assert_eq!(res.status, ProbeStatus::Skipped);
+    assert!(res.summary.contains("nonzero"), "{}", res.summary);
+}
+
+// The rotation helpers agree with a rotation worked by hand: 90° about axis 3 maps e₁ to e₂,
+// so a uniaxial tensor along 1 becomes one along 2 and a 12 shear changes sign.
+#[test]
+fn a_quarter_turn_about_axis_3() {
+    let r = rotation([0.0, 0.0, 1.0], std::f64::consts::FRAC_PI_2);
+    let b = rotate_sym(&r, &[1.0, 0.0, 0.0, 0.0, 0.0, 0.0]);
+    let want = [0.0, 1.0, 0.0, 0.0, 0.0, 0.0];
+    for i in 0..6 {
+        assert!((b[i] - want[i]).abs() < 1e-15, "{b:?}");
+    }
+    let b = rotate_sym(&r, &[0.0, 0.0, 0.0, 0.0, 0.0, 1.0]);
+    assert!((b[5] + 1.0).abs() < 1e-15, "{b:?}");
+}
+
+// pz_not_objective of fortran-shim/examples/c/probe_zoo.c (elasticity plus an energy term in
+// (ε11 − ε22)²), compiled and loaded through the guarded shim, fails the probe; compiled
+// isotropic J2 (c_j2, same file set) passes.
+#[test]
+fn the_compiled_non_objective_routine_fails() {
+    use tancheck::abi::{build_library, BuildOptions, Library};
+    use tancheck::core::{Convention, ShearMeasure};
+    let examples = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+    let src = examples.join("probe_zoo.c");
+    let dir = std::env::temp_dir().join(format!("tancheck-frame-probe-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let out = dir.join("libframe_probe.so");
+    build_library(&BuildOptions::new([src], &out)).unwrap_or_else(|e| panic!("building probe_zoo.c: {e}"));
+    let lib = Library::open(&out).unwrap();
+    let spec = ProbeSpec::named("frame");
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
+        let info = RoutineInfo {
+            name: "pz_not_objective".into(),
+            convention: Convention::new(kind, ShearMeasure::Engineering),
+            nstate: 0,
+            nprop: 2,
+        };
+        let mut r = lib.routine("pz_not_objective", info).unwrap();
+        let res = run(&mut r, &ELASTIC, &paths()[0], &spec);
+        assert_eq!(res.status, ProbeStatus::Fail, "{kind}: {res:?}");
+        assert_eq!(res.increment, Some(1));
+    }
+    let _ = std::fs::remove_dir_all(&dir);
+}

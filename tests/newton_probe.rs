@@ -1,0 +1,130 @@
+//! The Newton-rate probe: with the consistent J2 tangent (the derivative of the radial-return
+//! update, Simo & Taylor 1985, CMAME 48:101–118) Newton's method converges quadratically, with
+//! the continuum tangent only linearly — observed orders p_k = ln(r_{k+1}/r_k)/ln(r_k/r_{k−1})
+//! → 2 and ≈ 1 (REFERENCES.md "Numerical tangents": common practice, a standard result of
+//! Newton's method).
+//!
+//! The path turns the flow direction (tension with the lateral stresses held at zero, then
+//! shear at fixed tension strain), as in tests/uniaxial_stress.rs: under proportional loading
+//! the two tangents differ only in directions the iteration does not visit. Voce hardening
+//! makes the plastic response nonlinear, so Newton needs several iterations.
+
+use tancheck::core::path::{Path, PathIncrement, Shape};
+use tancheck::core::probe::newton::{self, IncrementSolve, NewtonRate};
+use tancheck::core::probe::{Probe, ProbeEnv, ProbeResult, ProbeSpec, ProbeStatus};
+use tancheck::core::{Caller, PointKind, PointState, Routine, Settings};
+use tancheck::models::reference;
+
+const VOCE: [f64; 7] = [200000.0, 0.3, 250.0, 500.0, 300.0, 30.0, 0.0];
+
+fn tension_then_shear() -> Path {
+    let hold = Some([None, Some(0.0), Some(0.0), Some(0.0), Some(0.0), None]);
+    let mut increments = Vec::new();
+    for k in 0..8 {
+        let d = if k < 4 { [1e-3, 0.0, 0.0, 0.0, 0.0, 0.0] } else { [0.0, 0.0, 0.0, 0.0, 0.0, 1e-3] };
+        increments.push(PathIncrement { hold_stress: hold, ..PathIncrement::strain(d) });
+    }
+    Path { name: "tension, then shear at fixed tension strain".into(), increments }
+}
+
+fn probe(model: &str, kind: PointKind, props: &[f64], path: &Path) -> (Vec<IncrementSolve>, ProbeResult) {
+    let mut r = reference(model, kind).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("newton");
+    let env = ProbeEnv { props, start: &start, path, settings: &settings, spec: &spec };
+    let solves = newton::study(&mut caller, &env).unwrap();
+    let result = NewtonRate.run(&mut caller, &env).unwrap();
+    for s in &solves {
+        eprintln!(
+            "{model} increment {}{}: {} iterations, orders {:?}",
+            s.increment,
+            if s.state_changed { " (inelastic)" } else { "" },
+            s.iterations(),
+            s.orders
+        );
+    }
+    eprintln!("{model}: {} — {}", result.status.word(), result.summary);
+    (solves, result)
+}
+
+#[test]
+fn the_consistent_tangent_converges_quadratically() {
+    let (solves, result) = probe("j2", PointKind::Solid3d, &VOCE, &tension_then_shear());
+    assert_eq!(result.status, ProbeStatus::Pass, "{result:?}");
+    let inelastic: Vec<_> = solves.iter().filter(|s| s.state_changed).collect();
+    assert!(inelastic.len() >= 6);
+    let mut measured = 0;
+    for s in &inelastic {
+        assert!(s.converged(), "{s:?}");
+        if let Some(p) = s.order() {
+            measured += 1;
+            assert!(p >= 1.9, "increment {}: orders {:?}", s.increment, s.orders);
+        }
+    }
+    assert!(measured >= 4, "{solves:?}");
+    assert!(result.value.unwrap() >= 1.9);
+}
+
+#[test]
+fn the_continuum_tangent_converges_linearly_and_fails() {
+    let (solves, result) = probe("j2-continuum", PointKind::Solid3d, &VOCE, &tension_then_shear());
+    assert_eq!(result.status, ProbeStatus::Fail, "{result:?}");
+    let mut orders: Vec<f64> = Vec::new();
+    let mut measured = 0;
+    for s in solves.iter().filter(|s| s.state_changed) {
+        assert!(s.converged(), "{s:?}");
+        orders.extend(&s.orders);
+        if let Some(p) = s.order() {
+            measured += 1;
+            assert!((p - 1.0).abs() < 0.25, "increment {}: orders {:?}", s.increment, s.orders);
+        }
+    }
+    assert!(measured >= 4, "{solves:?}");
+    // Linear from the start but for the first few iterates of each increment.
+    let near_one = orders.iter().filter(|p| (*p - 1.0).abs() < 0.25).count();
+    assert!(near_one as f64 >= 0.8 * orders.len() as f64, "continuum orders {orders:?}");
+    // Under proportional tension (increments 2–4) the two tangents agree on the directions
+    // Newton visits and it converges in two iterations; the first shear increment, where the
+    // flow direction turns, is the first to fail.
+    for s in &solves[1..4] {
+        assert!(s.state_changed && s.iterations() <= 2 && s.order().is_none(), "{s:?}");
+    }
+    assert_eq!(result.increment, Some(5));
+    assert!(result.summary.contains("below 1.5"), "{}", result.summary);
+}
+
+// No false alarm on the strain-controlled tension-with-shear ramp of the default suite, in
+// 3D and plane strain, with every hardening of the model; an elastic path has nothing to
+// measure.
+#[test]
+fn no_false_alarm_on_strain_control_and_elastic_paths() {
+    let all = [200000.0, 0.3, 250.0, 1000.0, 300.0, 30.0, 500.0];
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
+        let (solves, result) = probe("j2", kind, &all, &path);
+        assert_eq!(result.status, ProbeStatus::Pass, "{kind}: {result:?}");
+        assert!(solves.iter().any(|s| s.order().is_some()), "{kind}: nothing measured");
+    }
+    let (_, result) = probe("elastic", PointKind::Solid3d, &[200000.0, 0.3], &path);
+    assert_eq!(result.status, ProbeStatus::Pass, "{result:?}");
+    assert!(result.summary.contains("no order to measure"), "{}", result.summary);
+    assert_eq!(result.value, None);
+    // A uniaxial-strain path moves only the first component: the probe starts the others
+    // away from the answer, so J2 still has iterations to show.
+    let (solves, result) =
+        probe("j2", PointKind::Solid3d, &all, &Path::ramp(Shape::UniaxialStrain, 4e-3, 8, 0));
+    assert_eq!(result.status, ProbeStatus::Pass, "{result:?}");
+    assert!(solves.iter().filter(|s| s.state_changed).all(|s| s.iterations() >= 2), "{solves:?}");
+    let mut u = reference("elastic", PointKind::Uniaxial).unwrap();
+    let info = u.info().clone();
+    let mut caller = Caller::new(&mut u);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("newton");
+    let env =
+        ProbeEnv { props: &[200000.0, 0.3], start: &start, path: &path, settings: &settings, spec: &spec };
+    assert_eq!(NewtonRate.run(&mut caller, &env).unwrap().status, ProbeStatus::Skipped);
+}

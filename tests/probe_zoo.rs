@@ -1,0 +1,93 @@
+//! Compiled routines with one flaw each beyond the tangent (fortran-shim/examples/c/
+//! probe_zoo.c) are caught by the probe that targets them: a saved variable by hidden-state,
+//! a write to the strain input by immutability, a response that does not rotate with the frame
+//! by frame, negative dissipation by energy.
+
+use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
+
+use tancheck::abi::{build_library, BuildOptions, GuardLevel, Library};
+use tancheck::cli::suite::Suite;
+use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus, SuiteReport};
+use tancheck::core::{Caller, Convention, PointKind, PointState, RoutineInfo, Settings, ShearMeasure};
+
+fn lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let d = std::env::temp_dir().join(format!("tancheck-probe-zoo-{}", std::process::id()));
+        std::fs::create_dir_all(&d).unwrap();
+        let out = d.join("libprobe_zoo.so");
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/probe_zoo.c");
+        build_library(&BuildOptions::new([src], &out)).unwrap();
+        out
+    })
+}
+
+fn run(symbol: &str, nstate: usize, guards: GuardLevel, extra: &[ProbeSpec]) -> SuiteReport {
+    let info = RoutineInfo {
+        name: symbol.into(),
+        convention: Convention::new(PointKind::Solid3d, ShearMeasure::Engineering),
+        nstate,
+        nprop: 2,
+    };
+    let library = Library::open(lib()).unwrap();
+    let mut r = library.routine(symbol, info.clone()).unwrap();
+    r.set_guard_level(guards);
+    let suite = Suite::default_for(PointKind::Solid3d, false);
+    let mut probes = suite.probes.clone();
+    probes.extend_from_slice(extra);
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    run_suite(
+        &mut caller,
+        "solid+",
+        &probes,
+        &[210000.0, 0.3],
+        &start,
+        &suite.path().unwrap(),
+        &Settings::default(),
+    )
+    .unwrap()
+}
+
+fn status(r: &SuiteReport, probe: &str) -> ProbeStatus {
+    r.results.iter().find(|p| p.probe == probe).unwrap_or_else(|| panic!("no {probe} in {r:#?}")).status
+}
+
+#[test]
+fn a_saved_variable_is_caught_by_the_hidden_state_probe() {
+    let r = run("pz_saved_state", 0, GuardLevel::Light, &[]);
+    assert_eq!(status(&r, "hidden-state"), ProbeStatus::Fail, "{r:#?}");
+    assert_eq!(status(&r, "symmetry"), ProbeStatus::Pass);
+}
+
+#[test]
+fn a_write_to_the_strain_input_is_caught_by_immutability_and_by_the_guards() {
+    // Without guards the routine writes into the caller's strain: the probe sees it.
+    let r = run("pz_writes_strain", 0, GuardLevel::Off, &[]);
+    let p = r.results.iter().find(|p| p.probe == "immutability").unwrap();
+    assert_eq!(p.status, ProbeStatus::Fail, "{p:#?}");
+    assert!(p.summary.contains("strain["), "{p:?}");
+    // With guards (the default), the guard reports it at the first call.
+    let r = run("pz_writes_strain", 0, GuardLevel::Light, &[]);
+    let t = r.results.iter().find(|p| p.probe == "tangent").unwrap();
+    assert_eq!(t.status, ProbeStatus::Fail);
+    assert!(r.results.iter().any(|p| p.summary.contains("read-only input strain")), "{r:#?}");
+}
+
+#[test]
+fn a_response_that_does_not_rotate_is_caught_by_the_frame_probe() {
+    let r = run("pz_not_objective", 0, GuardLevel::Light, &[ProbeSpec::named("frame")]);
+    assert_eq!(status(&r, "frame"), ProbeStatus::Fail, "{r:#?}");
+    // Its tangent is exact: the tangent probe passes.
+    assert_eq!(status(&r, "tangent"), ProbeStatus::Pass, "{r:#?}");
+}
+
+#[test]
+fn negative_dissipation_is_caught_by_the_energy_probe() {
+    let r = run("pz_negative_dissipation", 1, GuardLevel::Light, &[]);
+    let e = r.results.iter().find(|p| p.probe == "energy").unwrap();
+    assert_eq!(e.status, ProbeStatus::Fail, "{e:#?}");
+    assert!(e.summary.contains("dissipated energy decreases"), "{e:?}");
+    assert_eq!(status(&r, "tangent"), ProbeStatus::Pass);
+}
