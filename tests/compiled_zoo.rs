@@ -256,13 +256,18 @@ fn compare(lib: &Library, entry: &ZooEntry, symbol: &str, seed: u64) -> usize {
             assert_close(&got.stress, &want.stress, TOL, 1.0, &format!("{what}: stress"));
             assert_close(&got.tangent, &want.tangent, TOL, 1.0, &format!("{what}: tangent"));
             if info.nprop == 7 {
-                // State blocks of J2: εp, α, β, then the kept moduli of j2-stale.
-                for (lo, hi, name) in [(0, n, "eps_p"), (n, n + 1, "alpha"), (n + 1, 2 * n + 1, "beta")] {
+                // State blocks of J2: εp, α, β, then the kept moduli of j2-stale. Each block is
+                // compared relative to its size or a floor of its own units (1e-3 strain, 1 MPa),
+                // so a barely plastic step (εp ~ 1e-8, where the radial return's last digits
+                // cancel) is judged on absolute agreement to 1e-15 rather than relative.
+                for (lo, hi, name, floor) in
+                    [(0, n, "eps_p", 1e-3), (n, n + 1, "alpha", 1e-3), (n + 1, 2 * n + 1, "beta", 1.0)]
+                {
                     assert_close(
                         &got.state[lo..hi],
                         &want.state[lo..hi],
                         TOL,
-                        1e-12,
+                        floor,
                         &format!("{what}: {name}"),
                     );
                 }

@@ -34,6 +34,11 @@ enum Command {
     Check(CheckArgs),
     /// Run a probe suite (tangent, symmetry, energy, hidden state, ...) on one routine.
     Probe(ProbeArgs),
+    /// Point at the first failure: increment, branch, fraction of the increment; shrink the
+    /// path and write the failing calls as case files.
+    Bisect(crate::cmd_bisect::BisectArgs),
+    /// Rerun the call saved in a case file and print its outputs and check.
+    Replay(crate::cmd_replay::ReplayArgs),
     /// Compile C and Fortran sources into a shared library, with the complex-step twin.
     Build(BuildArgs),
     /// Build the bundled example routines and check them.
@@ -71,6 +76,24 @@ struct CheckArgs {
     /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
     #[arg(long)]
     fp_traps: bool,
+    /// Memory guards: off, light (default: canaries, input compare, unwritten outputs) or
+    /// full (also reads past the end of inputs; twice the calls).
+    #[arg(long, value_name = "LEVEL")]
+    guards: Option<String>,
+    /// A folder of case files (written by `tancheck bisect`) to replay first, as a regression
+    /// suite counted separately; a broken case file is a warning.
+    #[arg(long, value_name = "DIR")]
+    cases: Option<PathBuf>,
+    /// Run the routine in a child worker process with time limits, so an infinite loop, an
+    /// exit or STOP, or heap corruption becomes a reported fault.
+    #[arg(long)]
+    isolate: bool,
+    /// Time limit per call with --isolate, in seconds.
+    #[arg(long, value_name = "SECONDS", default_value_t = 10.0)]
+    call_timeout: f64,
+    /// Time limit for the whole check with --isolate, in seconds.
+    #[arg(long, value_name = "SECONDS", default_value_t = 600.0)]
+    suite_timeout: f64,
     /// Print only failures and the verdict.
     #[arg(short, long, conflicts_with = "verbose")]
     quiet: bool,
@@ -143,6 +166,8 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Check(a) => cmd_check(a),
         Command::Build(a) => cmd_build(a),
         Command::Probe(a) => cmd_probe(a),
+        Command::Bisect(a) => crate::cmd_bisect::run(&a),
+        Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
         Command::Selftest { verbose } => crate::selftest::run(verbose),
@@ -172,6 +197,32 @@ pub fn default_path(kind: PointKind) -> Path {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
+    if a.isolate {
+        // The same check in a worker: the arguments as given, without --isolate and --json.
+        let mut args: Vec<std::ffi::OsString> = Vec::new();
+        let mut it = std::env::args_os().skip(1).peekable();
+        while let Some(x) = it.next() {
+            if x == "--isolate" {
+                continue;
+            }
+            if x == "--json" {
+                it.next();
+                continue;
+            }
+            if x.to_string_lossy().starts_with("--json=") {
+                continue;
+            }
+            args.push(x);
+        }
+        return crate::isolate::run_isolated(&args, a.json.as_deref(), a.call_timeout, a.suite_timeout);
+    }
+    let mut case_code = exit::PASS;
+    if let Some(cases) = &a.cases {
+        let r = crate::cmd_replay::run_case_folder(cases);
+        let stdout = std::io::stdout();
+        r.write_summary(cases, &mut stdout.lock())?;
+        case_code = r.exit_code();
+    }
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     if !a.schemes.is_empty() {
         m.check.schemes =
@@ -187,6 +238,14 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     }
     m.check.validate().map_err(anyhow::Error::msg)?;
     m.fp_traps |= a.fp_traps;
+    if let Some(g) = &a.guards {
+        m.guards = match g.as_str() {
+            "off" => crate::manifest::Guards::Off,
+            "light" => crate::manifest::Guards::Light,
+            "full" => crate::manifest::Guards::Full,
+            other => bail!("--guards takes off, light or full; got `{other}`"),
+        };
+    }
     let path = match &a.path {
         Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
         None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
@@ -200,7 +259,12 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         Detail::Normal
     };
     emit(&report, detail, a.json.as_deref())?;
-    Ok(report.exit_code())
+    // The worse of the cases' and the check's outcome (a fault before a failure).
+    Ok(match (case_code, report.exit_code()) {
+        (3, _) | (_, 3) => exit::ROUTINE_FAULT,
+        (1, _) | (_, 1) => exit::TANGENT_FAILURE,
+        (c, r) => c.max(r),
+    })
 }
 
 /// Load and check the routine a manifest names.
@@ -208,6 +272,15 @@ pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<
     let mut loaded = load(m, dir)?;
     let routine = loaded.routine();
     let start = start_state(m, routine.info())?;
+    // In an isolated worker, every call leaves a heartbeat for the parent.
+    let mut beating;
+    let routine: &mut dyn tancheck_core::Routine = match std::env::var_os(crate::isolate::HEARTBEAT_ENV) {
+        Some(hb) => {
+            beating = crate::isolate::Heartbeat::new(routine, std::path::Path::new(&hb))?;
+            &mut beating
+        }
+        None => routine,
+    };
     let mut caller = Caller::new(routine);
     check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg)
 }

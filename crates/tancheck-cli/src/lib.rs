@@ -2,7 +2,10 @@
 //! `check`, `build`, `demo` and `models`.
 
 pub mod cli;
+pub mod cmd_bisect;
+pub mod cmd_replay;
 pub mod demo;
+pub mod isolate;
 pub mod load;
 pub mod manifest;
 pub mod report;

@@ -25,15 +25,18 @@ use std::fmt;
 
 use serde::{Deserialize, Serialize};
 
-use crate::bisect::probe::{self, CallCheck};
+use crate::bisect::judge::{self, CallCheck};
 use crate::bisect::{Crossing, Inside};
 use crate::convention::{Convention, PointKind, ShearMeasure};
 use crate::driver::{Driver, PointState};
 use crate::path::{Path, PathIncrement};
 use crate::report::CheckOutcome;
-use crate::routine::{Caller, RoutineInfo};
+use crate::routine::{Caller, Fault, RoutineInfo};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
+
+/// The finding of a case whose call crashed or returned a failed status.
+pub const FAULT_FINDING: &str = "routine-fault";
 
 /// The version of the case format this code writes and reads.
 pub const FORMAT: u32 = 1;
@@ -114,9 +117,13 @@ pub struct CaseRoutine {
     /// A built-in model (and the zoo's variants), by name.
     #[serde(default)]
     pub model: Option<String>,
-    /// A shared library: its path as written (relative to the case file's folder, or absolute).
+    /// A shared library: its path relative to the case file's folder (or absolute).
     #[serde(default)]
     pub library: Option<String>,
+    /// The library's absolute path when the case was written (tried when `library` is not
+    /// found, e.g. after the case file was moved).
+    #[serde(default)]
+    pub library_absolute: Option<String>,
     /// SHA-256 of the library file when the case was written, 64 hex digits.
     #[serde(default)]
     pub library_sha256: Option<String>,
@@ -143,6 +150,7 @@ impl CaseRoutine {
             name: info.name.clone(),
             model: None,
             library: None,
+            library_absolute: None,
             library_sha256: None,
             symbol: None,
             kind: conv.kind(),
@@ -161,7 +169,12 @@ impl CaseRoutine {
     }
 
     pub fn info(&self) -> Result<RoutineInfo, String> {
-        Ok(RoutineInfo { name: self.name.clone(), convention: self.convention()?, nstate: self.nstate, nprop: self.nprop })
+        Ok(RoutineInfo {
+            name: self.name.clone(),
+            convention: self.convention()?,
+            nstate: self.nstate,
+            nprop: self.nprop,
+        })
     }
 }
 
@@ -319,7 +332,12 @@ pub struct CaseCrossing {
 impl CaseCrossing {
     pub fn of(c: &Crossing) -> CaseCrossing {
         let class = |k: &crate::bisect::CallClass| format!("branch {}, {}", k.branch_label(), k.word());
-        CaseCrossing { below: c.below, above: c.above, class_below: class(&c.class_below), class_above: class(&c.class_above) }
+        CaseCrossing {
+            below: c.below,
+            above: c.above,
+            class_below: class(&c.class_below),
+            class_above: class(&c.class_above),
+        }
     }
 }
 
@@ -352,6 +370,18 @@ impl CaseOrigin {
     }
 }
 
+/// One increment of a [`CasePath`].
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct CaseIncrement {
+    /// [dstrain 11, 22, 33, 23, 13, 12 (tensor components), dtemp, dtime].
+    pub values: Numbers,
+    /// Mixed control: the canonical stress components held (NaN, written `null`, where the
+    /// strain is prescribed).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub hold_stress: Option<Numbers>,
+}
+
 /// A path that leads to the call: a start state and increments in canonical components.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -361,8 +391,7 @@ pub struct CasePath {
     pub state: Numbers,
     /// [temperature, time] at the start.
     pub temp_time: Numbers,
-    /// Each increment as [dstrain 11, 22, 33, 23, 13, 12 (tensor), dtemp, dtime].
-    pub increments: Vec<Numbers>,
+    pub increments: Vec<CaseIncrement>,
 }
 
 /// A case file.
@@ -450,11 +479,12 @@ fn place(text: &str, keys: &[&str]) -> (usize, usize) {
 
 impl Case {
     /// A case of the call the driver holds: its increment as set, the base outputs in
-    /// `driver.base` (as [`probe::check_call`] leaves them), and `check` its judgement.
+    /// `driver.base` (as [`judge::check_call`] leaves them), and `judged` its judgement, or
+    /// the fault of the call.
     pub fn capture(
         routine: CaseRoutine,
         driver: &Driver,
-        check: &CallCheck,
+        judged: Result<&CallCheck, &Fault>,
         previous: Option<&[f64]>,
         settings: &Settings,
         origin: CaseOrigin,
@@ -487,15 +517,27 @@ impl Case {
                 tangent: Numbers::of(&b.tangent),
                 dstress_dtemp: provides_dtemp.then(|| Numbers::of(&b.dstress_dtemp)),
             },
-            probe: CaseProbe {
-                settings: settings.clone(),
-                checks: ProbeCheck::list(check),
-                best_scheme: check.best.as_ref().map(|(s, _)| *s),
-                best_numerical: check.best.as_ref().map(|(_, t)| Numbers::of(t)),
-                previous: previous.map(Numbers::of),
-                pass: check.passed(),
-                finding: check.finding().to_string(),
-                reason: check.diagnosis.as_ref().map(|d| d.reason.clone()),
+            probe: match judged {
+                Ok(check) => CaseProbe {
+                    settings: settings.clone(),
+                    checks: ProbeCheck::list(check),
+                    best_scheme: check.best.as_ref().map(|(s, _)| *s),
+                    best_numerical: check.best.as_ref().map(|(_, t)| Numbers::of(t)),
+                    previous: previous.map(Numbers::of),
+                    pass: check.passed(),
+                    finding: check.finding().to_string(),
+                    reason: check.diagnosis.as_ref().map(|d| d.reason.clone()),
+                },
+                Err(fault) => CaseProbe {
+                    settings: settings.clone(),
+                    checks: Vec::new(),
+                    best_scheme: None,
+                    best_numerical: None,
+                    previous: previous.map(Numbers::of),
+                    pass: false,
+                    finding: FAULT_FINDING.to_string(),
+                    reason: Some(fault.to_string()),
+                },
             },
             origin,
             path: path.map(|(start, p)| CasePath {
@@ -510,16 +552,22 @@ impl Case {
                         let mut v = i.dstrain.to_vec();
                         v.push(i.dtemp);
                         v.push(i.dtime);
-                        Numbers::of(&v)
+                        CaseIncrement {
+                            values: Numbers::of(&v),
+                            hold_stress: i
+                                .hold_stress
+                                .map(|h| Numbers::of(&h.map(|x| x.unwrap_or(f64::NAN)))),
+                        }
                     })
                     .collect(),
             }),
         }
     }
 
-    /// The case as pretty-printed JSON, ending in a newline.
+    /// The case as pretty-printed JSON with every array of plain values on one line, ending
+    /// in a newline.
     pub fn to_json(&self) -> String {
-        let mut s = serde_json::to_string_pretty(self).expect("a case serialises");
+        let mut s = compact_arrays(&serde_json::to_string_pretty(self).expect("a case serialises"));
         s.push('\n');
         s
     }
@@ -555,19 +603,30 @@ impl Case {
         }
         let n = conv.ncomp();
         let mut warnings = Vec::new();
-        let mut num = |section: &str, key: &str, x: &Numbers, len: Option<usize>| -> Result<Vec<f64>, CaseError> {
-            let mut w = Vec::new();
-            let what = format!("{section}.{key}");
-            let v = x.decode(&what, &mut w).map_err(|m| err(&[section, key], m))?;
-            let (line, _) = place(text, &[section, key]);
-            warnings.extend(w.into_iter().map(|m| format!("line {line}: {m}")));
-            if let Some(len) = len {
-                if v.len() != len {
-                    return Err(err(&[section, key], format!("{what} has {} entries; the routine needs {len}", v.len())));
+        let mut num =
+            |section: &str, key: &str, x: &Numbers, len: Option<usize>| -> Result<Vec<f64>, CaseError> {
+                let mut w = Vec::new();
+                let what = format!("{section}.{key}");
+                let v = x.decode(&what, &mut w).map_err(|m| {
+                    let e = err(&[section, key, "bits"], m.clone());
+                    if e.line == 0 {
+                        err(&[section, key], m)
+                    } else {
+                        e
+                    }
+                })?;
+                let (line, _) = place(text, &[section, key]);
+                warnings.extend(w.into_iter().map(|m| format!("line {line}: {m}")));
+                if let Some(len) = len {
+                    if v.len() != len {
+                        return Err(err(
+                            &[section, key],
+                            format!("{what} has {} entries; the routine needs {len}", v.len()),
+                        ));
+                    }
                 }
-            }
-            Ok(v)
-        };
+                Ok(v)
+            };
         let c = &case.call;
         let props = num("call", "props", &c.props, Some(r.nprop))?;
         let strain = num("call", "strain", &c.strain, Some(n))?;
@@ -597,7 +656,10 @@ impl Case {
         }
         case.probe.settings.validate().map_err(|m| err(&["probe", "settings"], m))?;
         if c.increment < 1 {
-            return Err(err(&["call", "increment"], format!("call.increment is {}; it counts from 1", c.increment)));
+            return Err(err(
+                &["call", "increment"],
+                format!("call.increment is {}; it counts from 1", c.increment),
+            ));
         }
         let path = match &case.path {
             None => None,
@@ -612,13 +674,30 @@ impl Case {
                 let tt = num("path", "temp_time", &p.temp_time, Some(2))?;
                 let mut increments = Vec::with_capacity(p.increments.len());
                 for (k, inc) in p.increments.iter().enumerate() {
-                    let v = num("path", "increments", inc, Some(8))
-                        .map_err(|e| CaseError { message: format!("increment {}: {}", k + 1, e.message), ..e })?;
+                    let at = |e: CaseError| CaseError {
+                        message: format!("increment {}: {}", k + 1, e.message),
+                        ..e
+                    };
+                    let v = num("path", "increments", &inc.values, Some(8)).map_err(at)?;
                     let mut dstrain = [0.0; 6];
                     dstrain.copy_from_slice(&v[..6]);
-                    increments.push(PathIncrement { dstrain, dtemp: v[6], dtime: v[7] });
+                    let hold_stress = match &inc.hold_stress {
+                        None => None,
+                        Some(h) => {
+                            let h = num("path", "hold_stress", h, Some(6)).map_err(at)?;
+                            let mut a = [None; 6];
+                            for (x, y) in a.iter_mut().zip(h) {
+                                *x = y.is_finite().then_some(y);
+                            }
+                            Some(a)
+                        }
+                    };
+                    increments.push(PathIncrement { dstrain, dtemp: v[6], dtime: v[7], hold_stress });
                 }
-                let path = Path { name: format!("the path of the case ({} increments)", increments.len()), increments };
+                let path = Path {
+                    name: format!("the path of the case ({} increments)", increments.len()),
+                    increments,
+                };
                 path.validate().map_err(|m| err(&["path"], m))?;
                 Some((PointState { temp: tt[0], time: tt[1], ..start }, path))
             }
@@ -633,6 +712,67 @@ impl Case {
         };
         Ok(ParsedCase { case, call, outputs, previous, path, warnings })
     }
+}
+
+/// Pretty JSON with each array that holds no object or array written on one line.
+fn compact_arrays(pretty: &str) -> String {
+    let b = pretty.as_bytes();
+    let mut out: Vec<u8> = Vec::with_capacity(b.len());
+    let mut i = 0;
+    let mut in_str = false;
+    while i < b.len() {
+        let c = b[i];
+        if in_str {
+            out.push(c);
+            if c == b'\\' && i + 1 < b.len() {
+                out.push(b[i + 1]);
+                i += 2;
+                continue;
+            }
+            in_str = c != b'"';
+            i += 1;
+            continue;
+        }
+        if c == b'"' {
+            in_str = true;
+        } else if c == b'[' {
+            // Find the closing bracket; give up on a nested array or object. JSON strings
+            // hold no raw newline, so items end at ",\n".
+            let mut j = i + 1;
+            let mut s = false;
+            let mut flat = true;
+            while j < b.len() {
+                let d = b[j];
+                if s {
+                    if d == b'\\' {
+                        j += 1;
+                    } else if d == b'"' {
+                        s = false;
+                    }
+                } else if d == b'"' {
+                    s = true;
+                } else if d == b'[' || d == b'{' {
+                    flat = false;
+                    break;
+                } else if d == b']' {
+                    break;
+                }
+                j += 1;
+            }
+            if flat && j < b.len() {
+                let items: Vec<&str> =
+                    pretty[i + 1..j].split(",\n").map(str::trim).filter(|x| !x.is_empty()).collect();
+                out.push(b'[');
+                out.extend_from_slice(items.join(", ").as_bytes());
+                out.push(b']');
+                i = j + 1;
+                continue;
+            }
+        }
+        out.push(c);
+        i += 1;
+    }
+    String::from_utf8(out).expect("only ASCII whitespace was removed")
 }
 
 /// A driver holding exactly the call of a case: its start state, increment and increment
@@ -677,12 +817,17 @@ fn differences(now: &DecodedOutputs, then: &DecodedOutputs) -> Vec<String> {
     if now.branch != then.branch {
         out.push(format!("branch: {} now, {} in the case", now.branch, then.branch));
     }
-    let mut arrays = vec![("stress", &now.stress, &then.stress), ("state", &now.state, &then.state), ("tangent", &now.tangent, &then.tangent)];
+    let mut arrays = vec![
+        ("stress", &now.stress, &then.stress),
+        ("state", &now.state, &then.state),
+        ("tangent", &now.tangent, &then.tangent),
+    ];
     if let (Some(a), Some(b)) = (&now.dstress_dtemp, &then.dstress_dtemp) {
         arrays.push(("dstress_dtemp", a, b));
     }
     for (what, a, b) in arrays {
-        let diff: Vec<usize> = (0..a.len().min(b.len())).filter(|&i| a[i].to_bits() != b[i].to_bits()).collect();
+        let diff: Vec<usize> =
+            (0..a.len().min(b.len())).filter(|&i| a[i].to_bits() != b[i].to_bits()).collect();
         if let Some(&i) = diff.first() {
             out.push(format!(
                 "{what}[{i}]: {:e} now, {:e} in the case{}",
@@ -710,12 +855,15 @@ pub fn replay(caller: &mut Caller<'_>, case: &ParsedCase, walk_path: bool) -> Re
         stress: b.stress.clone(),
         state: b.state.clone(),
         tangent: b.tangent.clone(),
-        dstress_dtemp: b.outcome.provides(crate::routine::provides::DSTRESS_DTEMP).then(|| b.dstress_dtemp.clone()),
+        dstress_dtemp: b
+            .outcome
+            .provides(crate::routine::provides::DSTRESS_DTEMP)
+            .then(|| b.dstress_dtemp.clone()),
     };
     let mut fault = base.as_ref().err().map(|f| f.to_string());
     let diffs = differences(&outputs, &case.outputs);
     let check = if fault.is_none() {
-        match probe::check_call(&mut driver, caller, &case.case.probe.settings, case.previous.as_deref()) {
+        match judge::check_call(&mut driver, caller, &case.case.probe.settings, case.previous.as_deref()) {
             Ok(c) => Some(c),
             Err(f) => {
                 fault = Some(format!("a call of the check: {f}"));
@@ -726,13 +874,22 @@ pub fn replay(caller: &mut Caller<'_>, case: &ParsedCase, walk_path: bool) -> Re
         None
     };
     let path_leads_here = match (&case.path, walk_path) {
-        (Some((start, path)), true) => Some(walk(caller, &info, &case.call, start, path)),
+        (Some((start, path)), true) => {
+            Some(walk(caller, &info, &case.case.probe.settings, &case.call, start, path))
+        }
         _ => None,
     };
     Ok(Replay { outputs, fault, differences: diffs, check, path_leads_here })
 }
 
-fn walk(caller: &mut Caller<'_>, info: &RoutineInfo, call: &DecodedCall, start: &PointState, path: &Path) -> Result<(), String> {
+fn walk(
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    settings: &Settings,
+    call: &DecodedCall,
+    start: &PointState,
+    path: &Path,
+) -> Result<(), String> {
     let last = path.increments.len();
     let mut d = Driver::new(info, &call.props, start.clone())?;
     let conv = &info.convention;
@@ -741,13 +898,19 @@ fn walk(caller: &mut Caller<'_>, info: &RoutineInfo, call: &DecodedCall, start: 
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         d.set_increment(&dstrain, inc.dtemp, inc.dtime);
         if k + 1 == last {
+            if inc.hold_stress.is_some() {
+                crate::bisect::base_call_of(&mut d, caller, inc, settings)
+                    .map_err(|f| format!("increment {} of the path: {f}", k + 1))?;
+            }
             break;
         }
-        d.base_call(caller).map_err(|f| format!("increment {} of the path: {f}", k + 1))?;
+        crate::bisect::base_call_of(&mut d, caller, inc, settings)
+            .map_err(|f| format!("increment {} of the path: {f}", k + 1))?;
         d.advance();
     }
     let s = d.start();
-    let same = |a: &[f64], b: &[f64]| a.len() == b.len() && a.iter().zip(b).all(|(x, y)| x.to_bits() == y.to_bits());
+    let same =
+        |a: &[f64], b: &[f64]| a.len() == b.len() && a.iter().zip(b).all(|(x, y)| x.to_bits() == y.to_bits());
     let mut off = Vec::new();
     for (what, a, b) in [
         ("strain", &s.strain, &call.start.strain),
@@ -772,5 +935,203 @@ fn walk(caller: &mut Caller<'_>, info: &RoutineInfo, call: &DecodedCall, start: 
         Ok(())
     } else {
         Err(format!("the path's last increment does not reach the call: {} differ", off.join(", ")))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+    use crate::bisect::testing::{Bar, PROPS};
+    use crate::bisect::{self, BisectSettings};
+    use crate::routine::Model;
+
+    #[test]
+    fn numbers_keep_every_bit() {
+        let v = [0.1 + 0.2, 1e-310, -0.0, f64::MAX, f64::MIN_POSITIVE, 1.0 / 3.0, f64::NAN, f64::INFINITY];
+        let n = Numbers::of(&v);
+        let text = serde_json::to_string(&n).unwrap();
+        let back: Numbers = serde_json::from_str(&text).unwrap();
+        let mut w = Vec::new();
+        let d = back.decode("x", &mut w).unwrap();
+        assert!(w.is_empty(), "{w:?}");
+        for (a, b) in v.iter().zip(&d) {
+            assert_eq!(a.to_bits(), b.to_bits());
+        }
+        // NaN and infinity have no decimal; their bits carry them.
+        assert!(text.contains("null,null"), "{text}");
+    }
+
+    #[test]
+    fn decimals_alone_and_decimals_that_disagree() {
+        let n: Numbers = serde_json::from_str(r#"{ "values": [1.5, -2e-3] }"#).unwrap();
+        let mut w = Vec::new();
+        assert_eq!(n.decode("a", &mut w).unwrap(), vec![1.5, -2e-3]);
+        let n: Numbers =
+            serde_json::from_str(r#"{ "values": [1.5], "bits": ["3ff0000000000000"] }"#).unwrap();
+        assert_eq!(n.decode("a", &mut w).unwrap(), vec![1.0]);
+        assert!(w[0].contains("a[0]") && w[0].contains("the bits are used"), "{w:?}");
+        let n: Numbers = serde_json::from_str(r#"{ "values": [1.5], "bits": ["3ff00000"] }"#).unwrap();
+        assert!(n.decode("a", &mut w).unwrap_err().contains("16 hex digits"));
+        let n: Numbers =
+            serde_json::from_str(r#"{ "values": [1.5, 2], "bits": ["3ff0000000000000"] }"#).unwrap();
+        assert!(n.decode("a", &mut w).unwrap_err().contains("2 values and 1 bit"));
+    }
+
+    #[test]
+    fn compacting_keeps_the_json_value() {
+        let v = serde_json::json!({
+            "a": [1, 2.5, null], "b": {"c": [[1, 2], [3]], "d": "x, [y]\n\"z\"", "e": []},
+            "f": ["∂σ/∂ε", "q"]
+        });
+        let pretty = serde_json::to_string_pretty(&v).unwrap();
+        let compact = compact_arrays(&pretty);
+        assert!(compact.lines().count() < pretty.lines().count());
+        assert!(compact.contains("[1, 2.5, null]"), "{compact}");
+        assert_eq!(serde_json::from_str::<serde_json::Value>(&compact).unwrap(), v);
+    }
+
+    /// A case of the flawed bar's first failing call (increment 3 of increments of 5e-4).
+    fn bar_case() -> (Case, crate::bisect::Located) {
+        let mut bar = Bar::new(true);
+        let info = bar.0.info().clone();
+        let mut caller = Caller::new(&mut bar);
+        let path = Path {
+            name: "bar".into(),
+            increments: vec![PathIncrement::strain([5e-4, 0.0, 0.0, 0.0, 0.0, 0.0]); 5],
+        };
+        let settings = Settings::default();
+        let start = PointState::zero(&info, 20.0);
+        let report = crate::check::run(&mut caller, &PROPS, start.clone(), &path, &settings).unwrap();
+        let l = bisect::locate(
+            &mut caller,
+            &PROPS,
+            start.clone(),
+            &path,
+            &report,
+            &settings,
+            &BisectSettings::default(),
+        )
+        .unwrap()
+        .unwrap();
+        let (mut d, previous) =
+            bisect::driver_at(&mut caller, &PROPS, start.clone(), &path, 3, &settings).unwrap();
+        let check = judge::check_call(&mut d, &mut caller, &settings, previous.as_deref()).unwrap();
+        assert!(!check.passed());
+        let origin = CaseOrigin {
+            manifest: None,
+            path: path.name.clone(),
+            increment: 3,
+            of: 5,
+            branch: l.branch.clone(),
+            crossing: CaseOrigin::crossing_of(&l.inside),
+            shrunk_from: None,
+        };
+        let prefix = Path { name: "bar".into(), increments: path.increments[..3].to_vec() };
+        let mut r = CaseRoutine::from_info(&info, true);
+        r.model = Some("bar".into());
+        let case =
+            Case::capture(r, &d, Ok(&check), previous.as_deref(), &settings, origin, Some((&start, &prefix)));
+        (case, l)
+    }
+
+    #[test]
+    fn a_case_replays_bit_for_bit_with_the_same_numbers() {
+        let (case, l) = bar_case();
+        let text = case.to_json();
+        let parsed = Case::parse(&text).unwrap();
+        assert!(parsed.warnings.is_empty(), "{:?}", parsed.warnings);
+        // Every bit pattern survives the file. (The decimals need not: serde_json's default
+        // parser reads the stress 252.38095238095238 written here back one unit in the last
+        // place off, which is why the bits are kept.)
+        fn all_bits(v: &serde_json::Value, out: &mut Vec<String>) {
+            match v {
+                serde_json::Value::Object(m) => {
+                    for (k, x) in m {
+                        if k == "bits" {
+                            out.push(x.to_string());
+                        } else {
+                            all_bits(x, out);
+                        }
+                    }
+                }
+                serde_json::Value::Array(a) => a.iter().for_each(|x| all_bits(x, out)),
+                _ => {}
+            }
+        }
+        let (mut a, mut b) = (Vec::new(), Vec::new());
+        all_bits(&serde_json::to_value(&case).unwrap(), &mut a);
+        all_bits(&serde_json::to_value(&parsed.case).unwrap(), &mut b);
+        assert!(a.len() > 10);
+        assert_eq!(a, b);
+        assert_eq!(parsed.outputs.stress[0].to_bits(), 0x406f8c30c30c30c3);
+        assert_eq!(parsed.call.increment, 3);
+        assert_eq!(parsed.call.start.strain, vec![1e-3]);
+        assert_eq!(parsed.call.start.temp, 20.0);
+        assert_eq!(parsed.outputs.branch, 1);
+        assert_eq!(l.call.dstrain, parsed.call.dstrain);
+        let crossing = case.origin.crossing.as_ref().unwrap();
+        assert!(crossing.below <= 0.5 && 0.5 <= crossing.above);
+        let mut bar = Bar::new(true);
+        let mut caller = Caller::new(&mut bar);
+        let r = replay(&mut caller, &parsed, true).unwrap();
+        assert!(r.identical(), "{:?}", r.differences);
+        assert_eq!(r.outputs.stress[0].to_bits(), parsed.outputs.stress[0].to_bits());
+        assert_eq!(r.outputs.tangent[0], PROPS[0]);
+        assert_eq!(r.path_leads_here, Some(Ok(())));
+        let c = r.check.unwrap();
+        assert!(!c.passed());
+        assert_eq!(ProbeCheck::list(&c), case.probe.checks);
+        assert_eq!(c.finding(), case.probe.finding);
+        // The consistent bar gives other outputs for the same inputs, and passes.
+        let mut good = Bar::new(false);
+        let mut caller = Caller::new(&mut good);
+        let r = replay(&mut caller, &parsed, false).unwrap();
+        assert!(!r.identical());
+        assert!(r.differences.iter().any(|d| d.starts_with("tangent[0]")), "{:?}", r.differences);
+        assert!(r.check.unwrap().passed());
+        assert_eq!(r.path_leads_here, None);
+    }
+
+    #[test]
+    fn a_path_that_does_not_lead_to_the_call_is_named() {
+        let (mut case, _) = bar_case();
+        let p = case.path.as_mut().unwrap();
+        p.increments.remove(0);
+        let parsed = Case::parse(&case.to_json()).unwrap();
+        let mut bar = Bar::new(true);
+        let mut caller = Caller::new(&mut bar);
+        let r = replay(&mut caller, &parsed, true).unwrap();
+        let e = r.path_leads_here.unwrap().unwrap_err();
+        assert!(e.contains("strain") && e.contains("increment number"), "{e}");
+    }
+
+    #[test]
+    fn broken_cases_name_line_and_column() {
+        let (case, _) = bar_case();
+        let text = case.to_json();
+        let e = Case::parse(&text[..text.len() / 2]).unwrap_err();
+        assert!(e.line > 1 && e.message.contains("EOF"), "{e}");
+        let bad = text.replacen("\"increment\": 3", "\"incremnt\": 3", 1);
+        let e = Case::parse(&bad).unwrap_err();
+        assert!(e.message.contains("incremnt"), "{e}");
+        // Values and bits that do not pair up are reported at the line of the bits; a wrong
+        // length at the field's line.
+        let strain_line = text.lines().position(|l| l.contains("\"strain\"")).unwrap() + 1;
+        let bad = text.replacen("\"values\": [0.001]", "\"values\": [0.001, 0.0]", 1);
+        let e = Case::parse(&bad).unwrap_err();
+        assert_eq!(e.line, strain_line + 2, "{e}");
+        assert!(e.message.contains("call.strain has 2 values and 1 bit patterns"), "{e}");
+        let bad = text.replacen("\"values\": [0.001]", "\"values\": [0.001, 0.0]", 1).replacen(
+            "\"bits\": [\"3f50624dd2f1a9fc\"]",
+            "\"bits\": [\"3f50624dd2f1a9fc\", \"0000000000000000\"]",
+            1,
+        );
+        let e = Case::parse(&bad).unwrap_err();
+        assert_eq!(e.line, strain_line, "{e}");
+        assert!(e.message.contains("call.strain has 2 entries; the routine needs 1"), "{e}");
+        let bad = text.replacen("\"format\": 1", "\"format\": 7", 1);
+        let e = Case::parse(&bad).unwrap_err();
+        assert_eq!(e.line, 3, "{e}");
+        assert!(e.to_string().starts_with("3:"), "{e}");
     }
 }

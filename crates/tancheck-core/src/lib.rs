@@ -6,7 +6,8 @@
 //! [`compare`] → [`report`]; [`check::run`] ties them together.
 
 pub mod adapt;
-pub mod bisect; pub mod case;
+pub mod bisect;
+pub mod case;
 pub mod check;
 pub mod compare;
 pub mod convention;

@@ -6,6 +6,7 @@
 //! - [`J2`]: small-strain J2 plasticity by radial return with isotropic (linear + Voce) and
 //!   linear kinematic hardening; with [`J2Tangent::Continuum`] it is the flawed
 //!   `j2-continuum` routine.
+//! - [`Orthotropic`]: linear orthotropic elasticity with material axes among the properties.
 //!
 //! All models use the default component order of their kind and engineering shear strain;
 //! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
@@ -16,6 +17,7 @@ mod call;
 pub mod cohesive;
 pub mod elastic;
 pub mod j2;
+pub mod orthotropic;
 mod tensor;
 pub mod thermo;
 pub mod zoo;
@@ -31,6 +33,7 @@ pub use bimodulus::Bimodulus;
 pub use cohesive::{Cohesive, CohesiveFlaw};
 pub use elastic::Elastic;
 pub use j2::{J2Tangent, J2};
+pub use orthotropic::Orthotropic;
 pub use thermo::{Thermo, ThermoFlaw};
 pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
 
@@ -56,6 +59,7 @@ pub enum AnyModel {
     J2(J2),
     Thermo(Thermo),
     Cohesive(Cohesive),
+    Orthotropic(Orthotropic),
 }
 
 impl AnyModel {
@@ -75,6 +79,7 @@ impl AnyModel {
             Cohesive::TRANSPOSED_NAME => {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))
             }
+            Orthotropic::NAME => Ok(AnyModel::Orthotropic(Orthotropic::new(kind)?)),
             _ => Err(ModelError::UnknownName { name: name.to_string() }),
         }
     }
@@ -86,6 +91,7 @@ impl AnyModel {
             AnyModel::J2(_) => &J2::PROP_NAMES,
             AnyModel::Thermo(_) => &Thermo::PROP_NAMES,
             AnyModel::Cohesive(_) => &Cohesive::PROP_NAMES,
+            AnyModel::Orthotropic(_) => &Orthotropic::PROP_NAMES,
         }
     }
 }
@@ -97,6 +103,7 @@ impl Model for AnyModel {
             AnyModel::J2(m) => m.info(),
             AnyModel::Thermo(m) => m.info(),
             AnyModel::Cohesive(m) => m.info(),
+            AnyModel::Orthotropic(m) => m.info(),
         }
     }
 
@@ -111,6 +118,7 @@ impl Model for AnyModel {
             AnyModel::J2(m) => m.evaluate(input, output),
             AnyModel::Thermo(m) => m.evaluate(input, output),
             AnyModel::Cohesive(m) => m.evaluate(input, output),
+            AnyModel::Orthotropic(m) => m.evaluate(input, output),
         }
     }
 }

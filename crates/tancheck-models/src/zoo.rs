@@ -74,7 +74,7 @@ pub struct ZooEntry {
     pub fortran_symbol: Option<&'static str>,
 }
 
-const J2_ROWS: [ZooEntry; 9] = [
+const J2_ROWS: [ZooEntry; 10] = [
     ZooEntry {
         name: J2::NAME,
         description: "J2 plasticity with the consistent tangent (the reference the variants spoil)",
@@ -148,6 +148,15 @@ const J2_ROWS: [ZooEntry; 9] = [
         kinds: &[PointKind::Solid3d],
         c_symbol: Some("c_j2_one_column"),
         fortran_symbol: Some("f_j2_one_column"),
+    },
+    ZooEntry {
+        name: "j2-reversal",
+        description: "plastic correction of the tangent with the wrong sign, only in yielding after a load \
+                      reversal (the last flow direction kept in ncomp extra state entries)",
+        expected: "rank-one-term",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_reversal"),
+        fortran_symbol: None,
     },
 ];
 

@@ -17,6 +17,9 @@
  *   c_j2_unit_factor            consistent tangent times 1000
  *   c_j2_one_column             13 column of the tangent taken from the elastic tangent
  *                               (ncomp 6 only)
+ *   c_j2_reversal               plastic correction with the wrong sign (+2 mu theta_bar n(x)n),
+ *                               only in a plastic increment that reverses the previous flow
+ *                               (ncomp extra state entries, see below)
  *
  * Layout (DEVELOPERS.md, "Reference models", j2): ncomp 6 (11, 22, 33, 23, 13, 12) or 4
  * (11, 22, 33, 12), engineering shear strain; properties [E, nu, sigma_y0, H_iso, Q, b, H_kin];
@@ -29,6 +32,11 @@
  *   relative stress xi_n = dev C:(strain - eps_p_n) - beta_n (0 when xi_n = 0). After a plastic
  *   increment xi_n is parallel to that increment's flow direction, so this is the consistent
  *   tangent the previous increment returned; a zero start gives the elastic tangent.
+ * c_j2_reversal uses ncomp more, 3 ncomp + 1 in all: state[2n+1 .. 3n] = n_last, the flow
+ *   direction of the latest plastic increment (tensor components: a shear entry is n_ij; zero
+ *   before any plastic flow). A plastic increment stores its n there, an elastic one carries
+ *   n_last. When the increment is plastic and n : n_last < 0 (shear entries counted twice) it
+ *   returns kappa 1(x)1 + 2 mu theta (I - 1/3 1(x)1) + 2 mu theta_bar n(x)n.
  * Branch 0 elastic, 1 plastic. No energy output.
  *
  * Complex-step safety (Martins, Sturdza & Alonso 2003): branch tests on real parts only, norms
@@ -55,7 +63,8 @@ typedef enum {
     ZJ_STALE,
     ZJ_NO_KINEMATIC,
     ZJ_UNIT_FACTOR_FLAW,
-    ZJ_ONE_COLUMN
+    ZJ_ONE_COLUMN,
+    ZJ_REVERSAL
 } zj_flaw;
 
 /* K(alpha) = sigma_y0 + H_iso alpha + Q (1 - exp(-b alpha)). */
@@ -140,7 +149,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     const int n = call->ncomp;
     const int needs_3d = flaw == ZJ_SHEAR_PERMUTED || flaw == ZJ_ONE_COLUMN;
     const int nj2 = 2 * n + 1;
-    const int nstate = flaw == ZJ_STALE ? nj2 + 2 : nj2;
+    const int nstate = flaw == ZJ_STALE ? nj2 + 2 : flaw == ZJ_REVERSAL ? nj2 + n : nj2;
     if (needs_3d ? n != 6 : (n != 6 && n != 4)) {
         zj_fail(report, name, needs_3d ? "ncomp must be 6" : "ncomp must be 6 or 4");
         return;
@@ -151,8 +160,9 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     }
     if (call->nstate < nstate) {
         zj_fail(report, name,
-                flaw == ZJ_STALE ? "needs 2*ncomp+3 state variables [eps_p, alpha, beta, 1-theta, theta_bar]"
-                                 : "needs 2*ncomp+1 state variables [eps_p, alpha, beta]");
+                flaw == ZJ_STALE      ? "needs 2*ncomp+3 state variables [eps_p, alpha, beta, 1-theta, theta_bar]"
+                : flaw == ZJ_REVERSAL ? "needs 3*ncomp+1 state variables [eps_p, alpha, beta, n_last]"
+                                      : "needs 2*ncomp+1 state variables [eps_p, alpha, beta]");
         return;
     }
 
@@ -298,6 +308,24 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
             }
         }
         break;
+    case ZJ_REVERSAL:
+        if (plastic) {
+            tc_real dot = 0.0;
+            for (int i = 0; i < n; ++i) {
+                dot += (i < 3 ? 1.0 : 2.0) * n_dir[i] * state0[nj2 + i];
+            }
+            if (tc_re(dot) < 0.0) {
+                zj_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
+            }
+            for (int i = 0; i < n; ++i) {
+                state[nj2 + i] = n_dir[i];
+            }
+        } else {
+            for (int i = 0; i < n; ++i) {
+                state[nj2 + i] = state0[nj2 + i];
+            }
+        }
+        break;
     }
     if (report->status != TC_STATUS_FAILED) {
         report->status = TC_STATUS_OK;
@@ -323,3 +351,4 @@ ZJ_ROUTINE(c_j2_stale, "j2-stale", ZJ_STALE)
 ZJ_ROUTINE(c_j2_no_kinematic, "j2-no-kinematic", ZJ_NO_KINEMATIC)
 ZJ_ROUTINE(c_j2_unit_factor, "j2-unit-factor", ZJ_UNIT_FACTOR_FLAW)
 ZJ_ROUTINE(c_j2_one_column, "j2-one-column", ZJ_ONE_COLUMN)
+ZJ_ROUTINE(c_j2_reversal, "j2-reversal", ZJ_REVERSAL)

@@ -96,12 +96,14 @@ fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
 
 impl Shrinker<'_, '_> {
     fn path(&self, incs: Vec<PathIncrement>) -> Path {
-        Path { name: format!("{} (shrunk to {} increments)", self.name, incs.len()), increments: incs }
+        let n = incs.len();
+        let name = format!("{} (shrunk to {n} increment{})", self.name, if n == 1 { "" } else { "s" });
+        Path { name, increments: incs }
     }
 
     /// Check a candidate; keep it (cut after its first failure) when it fails the same way.
     fn attempt(&mut self, candidate: Vec<PathIncrement>) -> bool {
-        if self.stop.is_some() || candidate.is_empty() {
+        if self.stop.is_some() || candidate.is_empty() || candidate == self.current {
             return false;
         }
         if self.iterations >= self.limits.max_iterations {
@@ -124,8 +126,13 @@ impl Shrinker<'_, '_> {
                 let report = if index == r.increments.len() {
                     r
                 } else {
-                    match check::run(self.caller, self.props, self.start.clone(), &self.path(incs.clone()), self.settings)
-                    {
+                    match check::run(
+                        self.caller,
+                        self.props,
+                        self.start.clone(),
+                        &self.path(incs.clone()),
+                        self.settings,
+                    ) {
                         Ok(r) => r,
                         Err(_) => return false,
                     }
@@ -172,6 +179,8 @@ impl Shrinker<'_, '_> {
             }
             a.dtemp += b.dtemp;
             a.dtime += b.dtime;
+            // The merged increment ends where the second one did.
+            a.hold_stress = b.hold_stress;
             if self.attempt(c) {
                 changed = true;
             } else {
@@ -209,19 +218,19 @@ impl Shrinker<'_, '_> {
                     break;
                 }
                 let x = Self::get(&self.current[i], k);
-                if x == 0.0 {
-                    continue;
-                }
                 // The time increment moves toward 1 (the default), the others toward 0.
                 let goal = if k == 7 { 1.0 } else { 0.0 };
-                if x != goal && self.attempt(self.with(i, k, goal)) {
+                if x == goal || x == 0.0 {
+                    continue;
+                }
+                if self.attempt(self.with(i, k, goal)) {
                     changed = true;
                     continue;
                 }
                 let mut y = x;
                 for _ in 0..16 {
                     let half = goal + 0.5 * (y - goal);
-                    if i < self.current.len() && self.attempt(self.with(i, k, half)) {
+                    if half != y && i < self.current.len() && self.attempt(self.with(i, k, half)) {
                         y = half;
                         changed = true;
                     } else {
@@ -266,7 +275,7 @@ pub fn shrink(
     settings: &Settings,
     limits: ShrinkLimits,
 ) -> Result<Option<Shrunk>, String> {
-    if !(limits.max_seconds > 0.0) {
+    if limits.max_seconds.is_nan() || limits.max_seconds <= 0.0 {
         return Err(format!("the time limit of a shrink must be positive, got {}", limits.max_seconds));
     }
     let Some((verdict, finding, index)) = signature(report) else { return Ok(None) };

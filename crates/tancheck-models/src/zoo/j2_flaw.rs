@@ -11,7 +11,8 @@
 //! - Δγ = (α_{n+1} − α_n)/√(2/3), θ = 1 − 2μΔγ/‖ξ_tr‖, θ̄ = 1/(1 + (K' + H_kin)/(3μ)) − (1 − θ)
 //!   with K' = K'(α_{n+1}).
 //!
-//! Only `j2-stale` changes the state layout: two entries appended (see [`J2Flaw::Stale`]).
+//! Two variants change the state layout: `j2-stale` appends two entries (see
+//! [`J2Flaw::Stale`]) and `j2-reversal` appends ncomp (see [`J2Flaw::Reversal`]).
 
 use tancheck_core::routine::status;
 use tancheck_core::{
@@ -76,6 +77,17 @@ pub enum J2Flaw {
     /// tangent (the plastic term missing for one strain direction). Right in the elastic
     /// branch. Solid-3d only. Expected finding: `one-column`.
     OneColumn,
+    /// `j2-reversal`: the consistent tangent, except in a plastic increment that reverses the
+    /// direction of the previous plastic flow, where the plastic correction has the wrong sign:
+    /// κ 1⊗1 + 2μθ(I − ⅓1⊗1) + 2μθ̄ n⊗n. State: J2's 2·ncomp + 1 entries, then the flow
+    /// direction n_last of the latest plastic increment (ncomp entries, routine order, tensor
+    /// components, so a shear entry is n_ij, not 2 n_ij; zero before any plastic flow),
+    /// 3·ncomp + 1 entries in all. A plastic increment sets n_last to its n; an elastic one
+    /// carries it. The increment reverses the flow when n : n_last < 0 (the double
+    /// contraction, shear entries counted twice). Right in the elastic branch, on the first
+    /// plastic loading and while the flow keeps its sense; wrong in reversed (Bauschinger)
+    /// yielding only. Expected finding: `rank-one-term`.
+    Reversal,
 }
 
 /// Factor of `j2-unit-factor`.
@@ -83,7 +95,7 @@ pub const UNIT_FACTOR: f64 = 1e3;
 
 impl J2Flaw {
     /// Every flaw, in the order of the zoo.
-    pub const ALL: [J2Flaw; 7] = [
+    pub const ALL: [J2Flaw; 8] = [
         J2Flaw::ShearFactor,
         J2Flaw::ShearPermuted,
         J2Flaw::ElasticFirstPlastic,
@@ -91,6 +103,7 @@ impl J2Flaw {
         J2Flaw::NoKinematic,
         J2Flaw::UnitFactor,
         J2Flaw::OneColumn,
+        J2Flaw::Reversal,
     ];
 
     /// The variant's stable name.
@@ -103,6 +116,7 @@ impl J2Flaw {
             J2Flaw::NoKinematic => "j2-no-kinematic",
             J2Flaw::UnitFactor => "j2-unit-factor",
             J2Flaw::OneColumn => "j2-one-column",
+            J2Flaw::Reversal => "j2-reversal",
         }
     }
 
@@ -126,12 +140,12 @@ impl J2Flaw {
         }
     }
 
-    /// State entries the variant adds after J2's 2·ncomp + 1.
-    pub fn extra_state(self) -> usize {
-        if self == J2Flaw::Stale {
-            2
-        } else {
-            0
+    /// State entries the variant adds after J2's 2·ncomp + 1, for `ncomp` components.
+    pub fn extra_state(self, ncomp: usize) -> usize {
+        match self {
+            J2Flaw::Stale => 2,
+            J2Flaw::Reversal => ncomp,
+            _ => 0,
         }
     }
 }
@@ -160,7 +174,7 @@ impl FlawedJ2 {
         let info = RoutineInfo {
             name: flaw.name().to_string(),
             convention: Convention::new(kind, ShearMeasure::Engineering),
-            nstate: base.info().nstate + flaw.extra_state(),
+            nstate: base.info().nstate + flaw.extra_state(kind.ncomp()),
             nprop: base.info().nprop,
         };
         Ok(FlawedJ2 { base, flaw, info, slots })
@@ -380,6 +394,40 @@ impl Model for FlawedJ2 {
                     }
                 }
             }
+            J2Flaw::Reversal => {
+                if plastic {
+                    let xi_tr = relative_stress(
+                        lambda,
+                        mu,
+                        input.strain,
+                        Some(input.dstrain),
+                        eps_p_n,
+                        beta_n,
+                        slots,
+                    );
+                    let (nrm, norm) = direction(&xi_tr);
+                    // n : n_last, shear entries counted twice (tensor components).
+                    let mut dot = S::zero();
+                    for (i, &si) in slots.iter().enumerate() {
+                        let w = if is_shear_slot(si) { 2.0 } else { 1.0 };
+                        dot += nrm[si] * input.state0[m + i] * w;
+                    }
+                    if dot.re() < 0.0 {
+                        let alpha = output.state[n];
+                        let dgamma = (alpha - alpha_n) / sqrt_2_3();
+                        let theta = S::one() - mu * 2.0 * dgamma / norm;
+                        let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + S::one());
+                        let theta_bar = ratio - (S::one() - theta);
+                        let kappa = lambda + mu * (2.0 / 3.0);
+                        write_tangent(&j2_matrix(kappa, mu, theta, -theta_bar, &nrm), slots, tangent);
+                    }
+                    for (i, &si) in slots.iter().enumerate() {
+                        output.state[m + i] = nrm[si];
+                    }
+                } else {
+                    output.state[m..].copy_from_slice(&input.state0[m..]);
+                }
+            }
         }
         Ok(())
     }
@@ -422,9 +470,84 @@ mod tests {
         assert!(FlawedJ2::new(J2Flaw::Stale, PointKind::PlaneStress).is_err());
         let m = FlawedJ2::new(J2Flaw::Stale, PointKind::PlaneStrain).unwrap();
         assert_eq!((m.info().nstate, m.info().nprop), (11, 7));
+        let m = FlawedJ2::new(J2Flaw::Reversal, PointKind::PlaneStrain).unwrap();
+        assert_eq!(m.info().nstate, 13);
+        let m = FlawedJ2::new(J2Flaw::Reversal, PointKind::Solid3d).unwrap();
+        assert_eq!(m.info().nstate, 19);
         for flaw in J2Flaw::ALL {
             assert_eq!(J2Flaw::from_name(flaw.name()), Some(flaw));
         }
+    }
+
+    // j2-reversal: uniaxial strain ε11 = 0.003 from the virgin state of the worked case
+    // (plastic, flow n along +dev e11), then ε11 back by 0.006 (reversed yielding). The first
+    // increment returns J2's tangent and keeps its n; the second differs from J2's consistent
+    // tangent by exactly +4μθ̄ n⊗n (the sign of the plastic correction flipped), which num-dual's
+    // exact derivative confirms is the wrong one.
+    #[test]
+    fn reversal_flips_the_plastic_correction_only_after_a_reversal() {
+        let j2 = J2::new(PointKind::Solid3d).unwrap();
+        let m = FlawedJ2::new(J2Flaw::Reversal, PointKind::Solid3d).unwrap();
+        let de = [0.003, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let first = run(&m, &Point::new(&WORKED, 6, 19).dstrain(&de)).unwrap();
+        let reference = run(&j2, &Point::new(&WORKED, 6, 13).dstrain(&de)).unwrap();
+        assert_eq!(first.tangent, reference.tangent);
+        // n of a uniaxial strain: (2, −1, −1)/√6, no shear.
+        let s6 = 6f64.sqrt();
+        for (k, want) in [2.0 / s6, -1.0 / s6, -1.0 / s6, 0.0, 0.0, 0.0].into_iter().enumerate() {
+            assert!((first.state[13 + k] - want).abs() < 1e-15, "{k}: {:?}", &first.state[13..]);
+        }
+        // Carried through an elastic increment.
+        let small = [-1e-5, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let elastic =
+            run(&m, &Point::new(&WORKED, 6, 19).strain(&de).state0(&first.state).dstrain(&small)).unwrap();
+        assert_eq!(elastic.outcome.branch, 0);
+        assert_eq!(elastic.state[13..], first.state[13..]);
+        // Reversed yielding.
+        let back = [-0.006, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let p =
+            Point::new(&WORKED, 6, 19).strain(&de).stress0(&first.stress).state0(&first.state).dstrain(&back);
+        let rev = run(&m, &p).unwrap();
+        assert_eq!(rev.outcome.branch, 1);
+        let pj = Point::new(&WORKED, 6, 13)
+            .strain(&de)
+            .stress0(&first.stress)
+            .state0(&first.state[..13])
+            .dstrain(&back);
+        let consistent = run(&j2, &pj).unwrap();
+        assert_eq!(rev.stress, consistent.stress);
+        let (exact, _) = crate::testing::dual_tangent(&j2, &pj);
+        let (_, mu) = lame(WORKED[0], WORKED[1]);
+        let dgamma = (rev.state[6] - first.state[6]) / sqrt_2_3();
+        // ξ_tr of the reversed step is along −n: n_rev = −n.
+        let nrev: Vec<f64> = rev.state[13..].to_vec();
+        assert!((nrev[0] + 2.0 / s6).abs() < 1e-15, "{nrev:?}");
+        let norm_tr = {
+            let xi = relative_stress(
+                lame(WORKED[0], WORKED[1]).0,
+                mu,
+                &de,
+                Some(&back),
+                &first.state[..6],
+                &first.state[7..13],
+                &SLOTS_6,
+            );
+            norm_sq(&xi).sqrt()
+        };
+        let theta = 1.0 - 2.0 * mu * dgamma / norm_tr;
+        let theta_bar = 1.0 / (1.0 + (WORKED[3] + WORKED[6]) / (3.0 * mu)) - (1.0 - theta);
+        let mut worst_flip = 0.0f64;
+        let mut worst_exact = 0.0f64;
+        for j in 0..6 {
+            for i in 0..6 {
+                let d = rev.tangent[i + 6 * j] - consistent.tangent[i + 6 * j];
+                worst_flip = worst_flip.max((d - 4.0 * mu * theta_bar * nrev[i] * nrev[j]).abs());
+                worst_exact = worst_exact.max((consistent.tangent[i + 6 * j] - exact[i + 6 * j]).abs());
+            }
+        }
+        assert!(worst_flip < 1e-9 * mu, "{worst_flip}");
+        assert!(worst_exact < 1e-9 * mu, "{worst_exact}");
+        assert!(4.0 * mu * theta_bar / 6.0 > 1e3, "the flipped term is large: {theta_bar}");
     }
 
     // A failed J2 call stays failed, with every output NaN (also the extra state).

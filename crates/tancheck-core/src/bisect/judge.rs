@@ -56,7 +56,8 @@ impl CallCheck {
     /// Whether a perturbed call faulted.
     pub fn faulted(&self) -> bool {
         self.checks.iter().any(|c| {
-            matches!(c.tangent, CheckOutcome::Fault(_)) || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+            matches!(c.tangent, CheckOutcome::Fault(_))
+                || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
         })
     }
 
@@ -100,7 +101,8 @@ fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRec
     }
 }
 
-/// Check the driver's current increment (as set, or rescaled): the base call, every scheme of
+/// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
+/// the base call (made again, with the driver's strain increment), every scheme of
 /// `settings`, and the diagnosis when a check fails and `settings.diagnose` is on. `previous`
 /// is the best numerical tangent at the end of the previous increment, if known.
 ///
@@ -146,8 +148,10 @@ pub fn check_call(
             if let Err(f) =
                 scheme.column(driver, caller, Direction::Strain(j), h, &mut numerical[j * n..(j + 1) * n])
             {
-                let what =
-                    format!("dstrain[{j}] {} {h:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
+                let what = format!(
+                    "dstrain[{j}] {} {h:.3e}",
+                    if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
+                );
                 tangent = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
                 break;
             }
@@ -158,7 +162,8 @@ pub fn check_call(
                 let better = match &best {
                     None => true,
                     Some((s, _)) => {
-                        scheme == Scheme::ComplexStep || (*s != Scheme::ComplexStep && scheme.order() > s.order())
+                        scheme == Scheme::ComplexStep
+                            || (*s != Scheme::ComplexStep && scheme.order() > s.order())
                     }
                 };
                 if better {
@@ -180,8 +185,14 @@ pub fn check_call(
                 let ht = ss.rel_step * h_temp_scale;
                 Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
                     Ok(()) => {
-                        let c =
-                            compare_dtemp(&conv, ret, &dtemp_num, ss.tol, settings.entry_floor, settings.worst_entries);
+                        let c = compare_dtemp(
+                            &conv,
+                            ret,
+                            &dtemp_num,
+                            ss.tol,
+                            settings.entry_floor,
+                            settings.worst_entries,
+                        );
                         if !c.pass && failed_dtemp.is_none() {
                             failed_dtemp = Some(dtemp_num.clone());
                         }
@@ -196,7 +207,8 @@ pub fn check_call(
         checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
     }
     let mut non_finite = Vec::new();
-    for (what, v) in [("stress", &driver.base.stress), ("state", &driver.base.state), ("tangent", &driver.base.tangent)]
+    for (what, v) in
+        [("stress", &driver.base.stress), ("state", &driver.base.state), ("tangent", &driver.base.tangent)]
     {
         if let Some(i) = v.iter().position(|x| !x.is_finite()) {
             let count = v.iter().filter(|x| !x.is_finite()).count();
@@ -207,14 +219,25 @@ pub fn check_call(
             ));
         }
     }
-    let mut out =
-        CallCheck { reported_branch: (reported >= 0).then_some(reported), state_changed, checks, non_finite, diagnosis: None, best };
-    if settings.diagnose && out.non_finite.is_empty() && !out.faulted() && !out.checks.iter().all(SchemeCheck::passed) {
+    let mut out = CallCheck {
+        reported_branch: (reported >= 0).then_some(reported),
+        state_changed,
+        checks,
+        non_finite,
+        diagnosis: None,
+        best,
+    };
+    if settings.diagnose
+        && out.non_finite.is_empty()
+        && !out.faulted()
+        && !out.checks.iter().all(SchemeCheck::passed)
+    {
         let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
-        let complex_pass = out.checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
-            CheckOutcome::Compared(x) => Some(x.pass),
-            _ => None,
-        });
+        let complex_pass =
+            out.checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
+                CheckOutcome::Compared(x) => Some(x.pass),
+                _ => None,
+            });
         let ctx = Context {
             returned: &returned,
             dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),

@@ -1,0 +1,616 @@
+//! `tancheck replay CASE`: rerun the call saved in a case file with exactly its inputs, show
+//! that the outputs are the saved ones bit for bit, print the stress, the tangent and the
+//! numbers of the check, and the command that reruns it under a debugger. Also the
+//! regression runner over a folder of cases ([`run_case_folder`]) and the routine opener that
+//! `tancheck bisect` shares ([`open_for_manifest`]).
+
+use std::io::Write;
+use std::path::{Component as PathPart, Path as FsPath, PathBuf};
+
+use anyhow::{bail, Context, Result};
+use clap::Args;
+use serde::Serialize;
+use sha2::{Digest, Sha256};
+
+use tancheck_abi::{GuardLevel, Library, LibraryRoutine};
+use tancheck_core::case::{self, Case, CaseError, CaseRoutine, Numbers, ParsedCase, ProbeCheck};
+use tancheck_core::{Caller, ModelRoutine, Routine, RoutineInfo};
+use tancheck_models::zoo::{zoo_model, ZooModel};
+
+use crate::exit;
+use crate::manifest::{Guards, Manifest};
+
+#[derive(Args, Debug)]
+pub struct ReplayArgs {
+    /// The case file (JSON) written by `tancheck bisect`.
+    pub case: PathBuf,
+    /// Write what the replay found as JSON to FILE (`-` for standard output, replacing the
+    /// readable output).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Do not walk the case's path to see that it still leads to the saved call.
+    #[arg(long)]
+    pub no_walk: bool,
+}
+
+/// A routine opened for a bisection or a replay: a built-in model (the zoo's variants
+/// included) or a loaded library.
+pub enum Opened {
+    Model(Box<ModelRoutine<ZooModel>>),
+    Library(Box<LibraryRoutine>),
+}
+
+impl Opened {
+    pub fn routine(&mut self) -> &mut dyn Routine {
+        match self {
+            Opened::Model(m) => m.as_mut(),
+            Opened::Library(l) => l.as_mut(),
+        }
+    }
+}
+
+/// SHA-256 of a file, as 64 hex digits.
+pub fn sha256_file(path: &FsPath) -> std::io::Result<String> {
+    let bytes = std::fs::read(path)?;
+    Ok(Sha256::digest(&bytes).iter().map(|b| format!("{b:02x}")).collect())
+}
+
+fn sha256_text(text: &str) -> String {
+    Sha256::digest(text.as_bytes()).iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// The routine a manifest names, and the routine part of a case about it (the library's
+/// path absolute; [`write_case`] makes it relative to the case folder). Built-in models are
+/// looked up among the zoo's, which include every reference model.
+pub fn open_for_manifest(m: &Manifest, dir: &FsPath) -> Result<(Opened, CaseRoutine)> {
+    let r = &m.routine;
+    if let Some(name) = &r.model {
+        let model = zoo_model(name, r.kind)?;
+        let info = model.info().clone();
+        let conv = m.convention().map_err(anyhow::Error::msg)?;
+        if info.convention != conv {
+            bail!(
+                "the built-in model `{name}` works in the default component order with engineering shear; \
+                 remove routine.order and routine.shear from the manifest"
+            );
+        }
+        if r.properties.len() != info.nprop {
+            bail!(
+                "the model `{name}` takes {} properties; the manifest gives {}",
+                info.nprop,
+                r.properties.len()
+            );
+        }
+        if let Some(n) = r.states {
+            if n != info.nstate {
+                bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
+            }
+        }
+        let mut spec = CaseRoutine::from_info(&info, true);
+        spec.model = Some(name.clone());
+        return Ok((Opened::Model(Box::new(model)), spec));
+    }
+    let loaded = crate::load::load(m, dir)?;
+    let crate::load::Loaded::Library(mut lib) = loaded else {
+        bail!("the manifest names a library, but a model was loaded");
+    };
+    let lib_path = r.library.as_ref().expect("validated: library or model");
+    let lib_path = if lib_path.is_relative() { dir.join(lib_path) } else { lib_path.clone() };
+    let lib_path = std::path::absolute(&lib_path).unwrap_or(lib_path);
+    let mut spec = CaseRoutine::from_info(lib.info(), lib.has_twin());
+    spec.library = Some(lib_path.display().to_string());
+    spec.library_sha256 =
+        Some(sha256_file(&lib_path).with_context(|| format!("reading {} to hash it", lib_path.display()))?);
+    spec.symbol = r.symbol.clone();
+    spec.fp_traps = m.fp_traps;
+    if m.guards == Guards::Off {
+        lib.set_guard_level(GuardLevel::Off);
+    }
+    Ok((Opened::Library(lib), spec))
+}
+
+/// `target` relative to the folder `base` when they share more than the root, else `target`.
+fn relative_to(target: &FsPath, base: &FsPath) -> PathBuf {
+    let (Ok(t), Ok(b)) = (target.canonicalize(), base.canonicalize()) else { return target.to_path_buf() };
+    let tc: Vec<PathPart> = t.components().collect();
+    let bc: Vec<PathPart> = b.components().collect();
+    let common = tc.iter().zip(&bc).take_while(|(x, y)| x == y).count();
+    if common <= 1 {
+        return t;
+    }
+    let mut out = PathBuf::new();
+    for _ in common..bc.len() {
+        out.push("..");
+    }
+    for p in &tc[common..] {
+        out.push(p);
+    }
+    out
+}
+
+/// A file name for a case: the routine's name, the increment, and 12 hex digits of a hash of
+/// the call's bits (the same call gives the same name, so writing it again replaces it).
+pub fn case_file_name(case: &Case) -> String {
+    let name: String = case
+        .routine
+        .name
+        .chars()
+        .map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '-' })
+        .collect();
+    let c = &case.call;
+    let key = format!(
+        "{:?}{:?}{:?}{:?}{:?}{:?}{:?}{:?}{}",
+        c.props.bits,
+        c.strain.bits,
+        c.dstrain.bits,
+        c.stress0.bits,
+        c.state0.bits,
+        c.temp.bits,
+        c.time.bits,
+        case.routine.symbol,
+        c.increment
+    );
+    format!("{}-inc{}-{}.json", name.trim_matches('-'), c.increment, &sha256_text(&key)[..12])
+}
+
+/// Write `case` into `dir` (created when missing), the library path made relative to `dir`.
+pub fn write_case(dir: &FsPath, case: &Case) -> Result<PathBuf> {
+    std::fs::create_dir_all(dir).with_context(|| format!("creating the case folder {}", dir.display()))?;
+    let mut case = case.clone();
+    if let Some(lib) = case.routine.library.clone() {
+        case.routine.library = Some(relative_to(FsPath::new(&lib), dir).display().to_string());
+        case.routine.library_absolute = Some(lib);
+    }
+    let file = dir.join(case_file_name(&case));
+    crate::report::write_atomic(&file, case.to_json().as_bytes())
+        .with_context(|| format!("writing the case {}", file.display()))?;
+    Ok(file)
+}
+
+/// A case file that cannot be used, as `file:line:column: why`.
+fn broken(file: &FsPath, e: &CaseError) -> String {
+    format!("{}:{}:{}: {}", file.display(), e.line.max(1), e.column.max(1), e.message)
+}
+
+/// Line of the first `"key"` in `text` (1 when absent), for warnings about a field.
+fn line_of(text: &str, key: &str) -> usize {
+    text.find(&format!("\"{key}\"")).map_or(1, |p| text[..p].matches('\n').count() + 1)
+}
+
+/// The routine a case names, opened; warnings (a changed library) are added to `warnings`.
+fn open_for_case(
+    file: &FsPath,
+    text: &str,
+    r: &CaseRoutine,
+    warnings: &mut Vec<String>,
+) -> Result<Opened, String> {
+    let info = r.info().map_err(|m| format!("{}:{}: {m}", file.display(), line_of(text, "order")))?;
+    let at = |key: &str, m: String| format!("{}:{}: {m}", file.display(), line_of(text, key));
+    if let Some(name) = &r.model {
+        let model = zoo_model(name, r.kind).map_err(|e| at("model", e.to_string()))?;
+        let mi = model.info();
+        if (mi.nstate, mi.nprop) != (r.nstate, r.nprop) || mi.convention != info.convention {
+            return Err(at(
+                "model",
+                format!(
+                    "the model `{name}` now has {} state variables and {} properties; the case was written for {} and {}",
+                    mi.nstate, mi.nprop, r.nstate, r.nprop
+                ),
+            ));
+        }
+        return Ok(Opened::Model(Box::new(model)));
+    }
+    let lib = r.library.as_deref().expect("parsed: library with symbol");
+    let lib = PathBuf::from(lib);
+    let folder = file.parent().unwrap_or(FsPath::new("."));
+    let mut lib_path = if lib.is_relative() { folder.join(&lib) } else { lib };
+    if let (false, Some(abs)) = (lib_path.exists(), &r.library_absolute) {
+        if FsPath::new(abs).exists() {
+            warnings.push(at(
+                "library",
+                format!(
+                    "the library is not at {} (relative to the case); using {abs}, where it was when the case was \
+                     written",
+                    lib_path.display()
+                ),
+            ));
+            lib_path = PathBuf::from(abs);
+        }
+    }
+    match (&r.library_sha256, sha256_file(&lib_path)) {
+        (_, Err(e)) => return Err(at("library", format!("cannot read the library {}: {e}", lib_path.display()))),
+        (Some(then), Ok(now)) if *then != now => warnings.push(at(
+            "library_sha256",
+            format!(
+                "the library {} changed since the case was written (SHA-256 {} then, {} now): the call may not \
+                 reproduce",
+                lib_path.display(),
+                &then[..then.len().min(12)],
+                &now[..12]
+            ),
+        )),
+        _ => {}
+    }
+    let library = Library::open(&lib_path).map_err(|e| at("library", e.to_string()))?;
+    let symbol = r.symbol.as_deref().expect("parsed: symbol with library");
+    let mut routine = library
+        .routine(symbol, RoutineInfo { name: r.name.clone(), ..info })
+        .map_err(|e| at("symbol", e.to_string()))?;
+    if r.fp_traps {
+        routine.set_fp_traps(true).map_err(|e| at("fp_traps", e.to_string()))?;
+    }
+    if r.complex_twin && !routine.has_twin() {
+        warnings.push(at(
+            "complex_twin",
+            "the case was written with a complex-step twin; the library has none now".into(),
+        ));
+    }
+    Ok(Opened::Library(Box::new(routine)))
+}
+
+/// What a replay found, as printed and as JSON.
+#[derive(Clone, Debug, Serialize)]
+pub struct ReplayReport {
+    pub case: String,
+    pub routine: String,
+    /// Where the call was met: the path, the increment, its branch.
+    pub origin: String,
+    pub warnings: Vec<String>,
+    /// Stress, state, tangent, status and branch are those of the case, bit for bit.
+    pub identical: bool,
+    pub differences: Vec<String>,
+    pub fault: Option<String>,
+    pub status: i32,
+    pub branch: i32,
+    pub stress: Numbers,
+    pub state: Numbers,
+    pub tangent: Numbers,
+    pub checks: Vec<ProbeCheck>,
+    /// The verdict of the call now, and what the diagnosis found; the finding of the case.
+    pub pass: bool,
+    pub finding: String,
+    pub recorded_finding: String,
+    /// "yes" when walking the case's path reaches the call bit for bit, else why not.
+    pub path_leads_here: Option<String>,
+    /// The command that reruns the case under a debugger, as a shell line and as words.
+    pub debugger: String,
+    pub debugger_args: Vec<String>,
+    pub exit_code: i32,
+}
+
+/// A case read and opened, or why it cannot be run.
+struct Prepared {
+    parsed: ParsedCase,
+    routine: Opened,
+    warnings: Vec<String>,
+}
+
+fn prepare(file: &FsPath) -> Result<Prepared, String> {
+    let text = std::fs::read_to_string(file)
+        .map_err(|e| format!("{}:1:1: cannot read the case: {e}", file.display()))?;
+    let parsed = Case::parse(&text).map_err(|e| broken(file, &e))?;
+    let mut warnings: Vec<String> =
+        parsed.warnings.iter().map(|w| format!("{}: {w}", file.display())).collect();
+    let routine = open_for_case(file, &text, &parsed.case.routine, &mut warnings)?;
+    Ok(Prepared { parsed, routine, warnings })
+}
+
+/// The debugger command for a case, as words (`gdb`, its options, then `--args`, this
+/// program, `replay`, the case): with a routine's symbol, a breakpoint on it that waits for
+/// the library to load.
+fn debugger_words(file: &FsPath, symbol: Option<&str>) -> Vec<String> {
+    let exe = std::env::current_exe().map(|p| p.display().to_string()).unwrap_or_else(|_| "tancheck".into());
+    let file = std::path::absolute(file).unwrap_or_else(|_| file.to_path_buf());
+    let mut w = vec!["gdb".to_string()];
+    if let Some(s) = symbol {
+        for x in ["set breakpoint pending on".to_string(), format!("break {s}"), "run".to_string()] {
+            w.push("-ex".into());
+            w.push(x);
+        }
+    }
+    w.extend(["--args".to_string(), exe, "replay".to_string(), file.display().to_string()]);
+    w
+}
+
+/// The words as one shell command line (words with spaces in single quotes).
+fn shell_line(words: &[String]) -> String {
+    words
+        .iter()
+        .map(
+            |w| {
+                if w.contains([' ', '\'', '"']) {
+                    format!("'{}'", w.replace('\'', "'\\''"))
+                } else {
+                    w.clone()
+                }
+            },
+        )
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayReport, String> {
+    let case = &p.parsed.case;
+    let symbol = case.routine.symbol.clone();
+    let routine_name = match (&case.routine.model, &case.routine.library) {
+        (Some(m), _) => format!("{m} (built-in model)"),
+        (_, Some(l)) => format!("{} in {l}", symbol.as_deref().unwrap_or("?")),
+        _ => case.routine.name.clone(),
+    };
+    let o = &case.origin;
+    let origin = format!(
+        "increment {} of {} on the path \"{}\", branch {}{}",
+        o.increment,
+        o.of,
+        o.path,
+        o.branch,
+        o.shrunk_from.map_or(String::new(), |n| format!(" (shrunk from {n} increments)"))
+    );
+    let recorded_finding = case.probe.finding.clone();
+    let routine = p.routine.routine();
+    let mut caller = Caller::new(routine);
+    let r = case::replay(&mut caller, &p.parsed, walk).map_err(|m| format!("{}: {m}", file.display()))?;
+    let (pass, finding, checks) = match &r.check {
+        Some(c) => (c.passed() && r.fault.is_none(), c.finding().to_string(), ProbeCheck::list(c)),
+        None => (false, "routine-fault".to_string(), Vec::new()),
+    };
+    let exit_code = if r.fault.is_some() {
+        exit::ROUTINE_FAULT
+    } else if pass {
+        exit::PASS
+    } else {
+        exit::TANGENT_FAILURE
+    };
+    Ok(ReplayReport {
+        case: file.display().to_string(),
+        routine: routine_name,
+        origin,
+        warnings: p.warnings,
+        identical: r.identical(),
+        differences: r.differences.clone(),
+        fault: r.fault.clone(),
+        status: r.outputs.status,
+        branch: r.outputs.branch,
+        stress: Numbers::of(&r.outputs.stress),
+        state: Numbers::of(&r.outputs.state),
+        tangent: Numbers::of(&r.outputs.tangent),
+        checks,
+        pass,
+        finding,
+        recorded_finding,
+        path_leads_here: r.path_leads_here.map(|x| match x {
+            Ok(()) => "yes".to_string(),
+            Err(m) => m,
+        }),
+        debugger: shell_line(&debugger_words(file, symbol.as_deref())),
+        debugger_args: debugger_words(file, symbol.as_deref()),
+        exit_code,
+    })
+}
+
+/// Replay one case file. `Err` is a case that cannot be run (`file:line:column: why`).
+pub fn replay_file(file: &FsPath, walk: bool) -> Result<ReplayReport, String> {
+    let p = prepare(file)?;
+    replay_prepared(file, p, walk)
+}
+
+fn numbers_line(v: &Numbers) -> String {
+    v.bits
+        .iter()
+        .map(|b| format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0))))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Print a replay for the terminal.
+pub fn write_replay(r: &ReplayReport, n: usize, out: &mut dyn Write) -> std::io::Result<()> {
+    writeln!(out, "== replay of {} ==", r.case)?;
+    writeln!(out, "   routine: {}", r.routine)?;
+    writeln!(out, "   call: {}", r.origin)?;
+    for w in &r.warnings {
+        writeln!(out, "   warning: {w}")?;
+    }
+    if let Some(f) = &r.fault {
+        writeln!(out, "   the call faulted: {f}")?;
+    }
+    if r.identical {
+        writeln!(
+            out,
+            "   outputs: the same as in the case, bit for bit (status, branch, stress, state, tangent)"
+        )?;
+    } else {
+        writeln!(out, "   outputs DIFFER from the case:")?;
+        for d in &r.differences {
+            writeln!(out, "     {d}")?;
+        }
+    }
+    writeln!(out, "   status {}, branch {}", r.status, r.branch)?;
+    writeln!(out, "   stress  {}", numbers_line(&r.stress))?;
+    writeln!(out, "   tangent (row i: ∂σ_i/∂Δε_j, j = 1 … {n})")?;
+    for i in 0..n {
+        let row: Vec<String> = (0..n)
+            .map(|j| {
+                let b = r.tangent.bits.get(i + j * n).map(String::as_str).unwrap_or("0");
+                format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0)))
+            })
+            .collect();
+        writeln!(out, "     {}", row.join(" "))?;
+    }
+    for c in &r.checks {
+        match c.outcome.as_str() {
+            "compared" => writeln!(
+                out,
+                "   {:<13} {}  norm error {:e}, worst entry error {:e} (tolerance {:e}){}",
+                c.scheme.name(),
+                if c.pass { "agrees " } else { "DIFFERS" },
+                c.norm_error.unwrap_or(f64::NAN),
+                c.worst_entry_error.unwrap_or(f64::NAN),
+                c.tol.unwrap_or(f64::NAN),
+                c.worst
+                    .iter()
+                    .filter(|e| !c.pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
+                    .take(2)
+                    .map(|e| format!(
+                        "; {} returned {:e}, derivative {:e}",
+                        e.label,
+                        e.returned.unwrap_or(f64::NAN),
+                        e.numerical.unwrap_or(f64::NAN)
+                    ))
+                    .collect::<String>()
+            )?,
+            other => {
+                writeln!(out, "   {:<13} {other}: {}", c.scheme.name(), c.detail.as_deref().unwrap_or(""))?
+            }
+        }
+    }
+    writeln!(out, "   finding: {} (the case recorded {})", r.finding, r.recorded_finding)?;
+    if let Some(p) = &r.path_leads_here {
+        if p == "yes" {
+            writeln!(out, "   path: walking the case's path reaches this call bit for bit")?;
+        } else {
+            writeln!(out, "   path: {p}")?;
+        }
+    }
+    let what = match r.exit_code {
+        exit::PASS => "PASS — the returned tangent is the derivative at this call now",
+        exit::TANGENT_FAILURE => "FAIL — the returned tangent still differs from the derivative at this call",
+        _ => "FAULT — the routine crashed or failed at this call",
+    };
+    writeln!(out, "   verdict: {what} (exit {})", r.exit_code)?;
+    writeln!(out, "   to rerun it under a debugger: {}", r.debugger)?;
+    Ok(())
+}
+
+/// `tancheck replay`.
+pub fn run(a: &ReplayArgs) -> Result<i32> {
+    let report = match replay_file(&a.case, !a.no_walk) {
+        Ok(r) => r,
+        Err(m) => {
+            eprintln!("tancheck: {m}");
+            return Ok(exit::BAD_INPUT);
+        }
+    };
+    let n = report.stress.bits.len();
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    match &a.json {
+        Some(p) if p.as_os_str() == "-" => {
+            serde_json::to_writer_pretty(&mut out, &report)?;
+            writeln!(out)?;
+        }
+        other => {
+            write_replay(&report, n, &mut out)?;
+            if let Some(p) = other {
+                let mut buf = serde_json::to_vec_pretty(&report)?;
+                buf.push(b'\n');
+                crate::report::write_atomic(p, &buf).with_context(|| format!("writing {}", p.display()))?;
+            }
+        }
+    }
+    Ok(report.exit_code)
+}
+
+/// One case of a folder, replayed.
+#[derive(Clone, Debug, Serialize)]
+pub struct CaseRun {
+    pub file: PathBuf,
+    pub report: ReplayReport,
+}
+
+/// A folder of cases run as a regression suite: the cases whose call passes its check now,
+/// those that still fail (or fault), and the files that could not be run, as warnings with
+/// file and line. Other warnings (a changed library, a decimal that does not match its bits)
+/// are in `warnings`.
+#[derive(Clone, Debug, Default, Serialize)]
+pub struct CaseFolderResult {
+    pub passed: Vec<CaseRun>,
+    pub failed: Vec<CaseRun>,
+    pub broken: Vec<String>,
+    pub warnings: Vec<String>,
+}
+
+impl CaseFolderResult {
+    /// 0 when no case failed, 1 when one still fails its check, 3 when one faults (broken
+    /// files only warn).
+    pub fn exit_code(&self) -> i32 {
+        if self.failed.iter().any(|c| c.report.exit_code == exit::ROUTINE_FAULT) {
+            exit::ROUTINE_FAULT
+        } else if self.failed.is_empty() {
+            exit::PASS
+        } else {
+            exit::TANGENT_FAILURE
+        }
+    }
+
+    /// A summary for the terminal: one line per case, then the counts.
+    pub fn write_summary(&self, dir: &FsPath, out: &mut dyn Write) -> std::io::Result<()> {
+        writeln!(out, "== cases in {} ==", dir.display())?;
+        for c in self.failed.iter().chain(&self.passed) {
+            let r = &c.report;
+            writeln!(
+                out,
+                "   {} {}: {}{}",
+                if r.pass {
+                    "pass"
+                } else if r.exit_code == exit::ROUTINE_FAULT {
+                    "FAULT"
+                } else {
+                    "FAIL"
+                },
+                c.file.file_name().map(|f| f.to_string_lossy()).unwrap_or_default(),
+                r.finding,
+                if r.identical { String::new() } else { " (outputs differ from the case)".into() }
+            )?;
+        }
+        for b in &self.broken {
+            writeln!(out, "   warning: broken case {b}")?;
+        }
+        for w in &self.warnings {
+            writeln!(out, "   warning: {w}")?;
+        }
+        writeln!(
+            out,
+            "   cases: {} pass, {} fail, {} broken",
+            self.passed.len(),
+            self.failed.len(),
+            self.broken.len()
+        )
+    }
+}
+
+/// Run every `*.json` case in `dir` (sorted by name), before the paths of a check. Nothing
+/// here fails the run: an unreadable folder or a broken file is a warning in `broken`.
+pub fn run_case_folder(dir: &FsPath) -> CaseFolderResult {
+    let mut result = CaseFolderResult::default();
+    let entries = match std::fs::read_dir(dir) {
+        Ok(e) => e,
+        Err(e) => {
+            result.broken.push(format!("{}: cannot read the case folder: {e}", dir.display()));
+            return result;
+        }
+    };
+    let mut files: Vec<PathBuf> = entries
+        .filter_map(|e| e.ok().map(|e| e.path()))
+        .filter(|p| p.extension().is_some_and(|x| x == "json") && p.is_file())
+        .collect();
+    files.sort();
+    for file in files {
+        match prepare(&file).and_then(|p| replay_prepared(&file, p, true)) {
+            Err(m) => result.broken.push(m),
+            Ok(mut report) => {
+                result.warnings.append(&mut report.warnings.clone());
+                report.warnings.clear();
+                if let Some(p) = report.path_leads_here.as_ref().filter(|p| *p != "yes") {
+                    result.warnings.push(format!("{}: {p}", file.display()));
+                }
+                let run = CaseRun { file, report };
+                if run.report.pass {
+                    result.passed.push(run);
+                } else {
+                    result.failed.push(run);
+                }
+            }
+        }
+    }
+    result
+}
