@@ -4,7 +4,8 @@
 //! 60) mutates the corpus and feeds the parsers, saving any input that panics into the corpus.
 //!
 //! Run it for ten minutes a parser with
-//! `TANCHECK_FUZZ_SECONDS=600 cargo test --release --test fuzz_parsers -- --ignored --nocapture`.
+//! `TANCHECK_FUZZ_SECONDS=600 cargo test --release --test fuzz_parsers -- --ignored --nocapture`
+//! (`TANCHECK_FUZZ_ONLY=manifest|suite|case` for one parser).
 
 use std::panic::{catch_unwind, AssertUnwindSafe};
 use std::path::{Path, PathBuf};
@@ -23,8 +24,16 @@ fn parse_suite(s: &str) -> bool {
     tancheck::cli::suite::Suite::parse(s, Path::new("fuzz.json")).is_ok()
 }
 
+fn parse_case(s: &str) -> bool {
+    tancheck::core::case::Case::parse(s).is_ok()
+}
+
 fn parsers() -> Vec<(&'static str, Parser)> {
-    vec![("manifest", parse_manifest as Parser), ("suite", parse_suite as Parser)]
+    vec![
+        ("manifest", parse_manifest as Parser),
+        ("suite", parse_suite as Parser),
+        ("case", parse_case as Parser),
+    ]
 }
 
 fn corpus_dir(name: &str) -> PathBuf {
@@ -128,8 +137,10 @@ fn mutate(rng: &mut StdRng, seed: &str) -> String {
 fn fuzz_parsers_for_a_while() {
     let seconds: f64 =
         std::env::var("TANCHECK_FUZZ_SECONDS").ok().and_then(|s| s.parse().ok()).unwrap_or(60.0);
+    // TANCHECK_FUZZ_ONLY=case (say) fuzzes one parser.
+    let only = std::env::var("TANCHECK_FUZZ_ONLY").ok();
     std::panic::set_hook(Box::new(|_| {}));
-    for (name, parse) in parsers() {
+    for (name, parse) in parsers().into_iter().filter(|(n, _)| only.as_deref().is_none_or(|o| o == *n)) {
         let seeds = corpus(name);
         let mut rng = StdRng::seed_from_u64(0x7a11 ^ name.len() as u64);
         let t0 = Instant::now();
