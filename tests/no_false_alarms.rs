@@ -145,9 +145,12 @@ fn the_cohesive_law_has_no_false_alarms_in_any_branch() {
     // K (N/mm³), N, S (MPa), G_Ic, G_IIc (N/mm), η: demo values of an interface.
     let props = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
     for kind in [PointKind::Cohesive3d, PointKind::Cohesive2d] {
-        let ((total, changed), branches) = run_with("cohesive", kind, &props, 100, 12, 1.2e-3, 0.0, 41);
+        let ((total, changed), mut branches) = run_with("cohesive", kind, &props, 100, 12, 1.2e-3, 0.0, 41);
         assert!(total >= 1000 && changed >= 100, "{total} {changed}");
-        for b in [0, 1, 2, 3] {
+        // Large separations as well, to take points to complete failure (branch 4).
+        let (_, more) = run_with("cohesive", kind, &props, 20, 12, 6e-3, 0.0, 43);
+        branches.extend(more);
+        for b in [0, 1, 2, 3, 4] {
             assert!(branches.contains(&b), "{kind}: branch {b} reached ({branches:?})");
         }
     }

@@ -29,6 +29,9 @@ fn assert_all_pass(r: &SuiteReport) {
         assert_ne!(p.status, ProbeStatus::Fail, "{} on {}: {:#?}", p.probe, r.routine, p);
     }
     assert!(r.pass);
+    // The default suites reach the inelastic branch and unload: no coverage warning.
+    let t = r.results.iter().find(|p| p.probe == "tangent").unwrap();
+    assert!(!t.details.iter().any(|d| d.contains("coverage warning")), "{}: {:?}", r.routine, t.details);
 }
 
 // Demo properties inside each model's valid range.

@@ -252,7 +252,8 @@ pub fn run(
     let summary = summarise(&increments, settings);
     let branches = branch_summary(&increments);
     let mut coverage = Vec::new();
-    if !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
+    // A routine without state variables has no inelastic branch to reach.
+    if info.nstate > 0 && !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
         coverage.push(
             "the path never changed the state variables: only the elastic (or stateless) branch was checked; \
              load further, or start from an inelastic state"
