@@ -1,15 +1,15 @@
-//! A tangent check along a path: the pipeline driver → schemes → comparison → report.
+//! A tangent check along a path: the pipeline driver → schemes → comparison → report. Each
+//! increment is checked by [`judge::check_call`], the same per-call check bisection uses.
 
-use crate::compare::{compare, compare_dtemp};
-use crate::diagnose::{self, Context};
-use crate::driver::{Direction, Driver, PointState};
+use crate::bisect::judge;
+use crate::driver::{Driver, PointState};
 use crate::mixed;
 use crate::path::Path;
 use crate::report::{
-    BranchSummary, CallCounts, CallRecord, CheckOutcome, FaultRecord, IncrementResult, Report,
-    RoutineSummary, SchemeCheck, SchemeSummary, Verdict, CAUTIONS,
+    BranchSummary, CallCounts, CheckOutcome, IncrementResult, Report, RoutineSummary, SchemeSummary, Verdict,
+    CAUTIONS,
 };
-use crate::routine::{provides, Caller, Fault};
+use crate::routine::Caller;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
@@ -40,8 +40,6 @@ pub fn run(
         ));
     }
     let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-    let mut numerical = vec![0.0; n * n];
-    let mut dtemp_num = vec![0.0; n];
     let mut dstrain = vec![0.0; n];
     // The best numerical tangent at the end of the previous increment (the tangent at the
     // start of this one), for the stale-tangent hypothesis.
@@ -53,199 +51,62 @@ pub fn run(
     for (k, inc) in path.increments.iter().enumerate() {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
+        // Mixed control first: the held stresses decide the strain increment to check.
         let mut solve_log = None;
-        let base = match &inc.hold_stress {
-            None => driver.base_call(caller),
-            Some(hold) => {
-                let (controlled, targets) = held_components(&conv, hold);
-                match mixed::solve(&mut driver, caller, &controlled, &targets, &settings.mixed, true) {
-                    Ok(log) => {
-                        solve_log = Some(log);
-                        Ok(())
+        let mut solved = Ok(());
+        if let Some(hold) = &inc.hold_stress {
+            let (controlled, targets) = held_components(&conv, hold);
+            match mixed::solve(&mut driver, caller, &controlled, &targets, &settings.mixed, true) {
+                Ok(log) => {
+                    if !log.converged {
+                        notes.push(format!(
+                            "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
+                            k + 1,
+                            log.residuals
+                        ));
                     }
-                    Err(f) => Err(f),
+                    solve_log = Some(log);
                 }
+                Err(f) => solved = Err(f),
             }
-        };
+        }
         let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
         unloaded |= work < 0.0;
-        if let Some(log) = &solve_log {
-            if !log.converged {
-                notes.push(format!(
-                    "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
-                    k + 1,
-                    log.residuals
-                ));
-            }
-        }
-        if let Err(fault) = base {
-            increments.push(IncrementResult {
-                index: k + 1,
-                reported_branch: None,
-                state_changed: false,
-                strain: driver.start().strain.clone(),
-                stress: driver.start().stress.clone(),
-                checks: Vec::new(),
-                non_finite: Vec::new(),
-                solve: solve_log,
-                diagnosis: None,
-                fault: Some(fault_record(&fault, &driver, None)),
-            });
-            break;
-        }
-        let returned = driver.base.tangent.clone();
-        let returned_dtemp =
-            driver.base.outcome.provides(provides::DSTRESS_DTEMP).then(|| driver.base.dstress_dtemp.clone());
-        let reported = driver.base.outcome.branch;
-        let state_changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
-        let h_strain_scale = driver.strain_scale(settings.step_floor);
-        let h_temp_scale = driver.temp_scale(settings.temp_floor);
-        let mut checks = Vec::with_capacity(settings.schemes.len());
-        let mut best_numerical: Option<(Scheme, Vec<f64>)> = None;
-        let mut failed_dtemp: Option<Vec<f64>> = None;
-        for &scheme in &settings.schemes {
-            let ss = settings.scheme(scheme);
-            let h = ss.rel_step * h_strain_scale;
-            if scheme == Scheme::ComplexStep && !has_twin {
-                checks.push(SchemeCheck {
-                    scheme,
-                    step: h,
-                    tangent: CheckOutcome::Skipped { reason: "no complex twin".into() },
-                    dstress_dtemp: None,
+        // The base call, every scheme, and the diagnosis of a failure: one call's check.
+        let checked =
+            solved.and_then(|()| judge::check_call(&mut driver, caller, settings, previous.as_deref()));
+        match checked {
+            Err(fault) => {
+                increments.push(IncrementResult {
+                    index: k + 1,
+                    reported_branch: None,
+                    state_changed: false,
+                    strain: driver.start().strain.clone(),
+                    stress: driver.start().stress.clone(),
+                    checks: Vec::new(),
+                    non_finite: Vec::new(),
+                    solve: solve_log,
+                    diagnosis: None,
+                    fault: Some(judge::fault_record(&fault, &driver, None)),
                 });
-                continue;
+                break;
             }
-            let mut tangent = None;
-            for j in 0..n {
-                if let Err(f) = scheme.column(
-                    &mut driver,
-                    caller,
-                    Direction::Strain(j),
-                    h,
-                    &mut numerical[j * n..(j + 1) * n],
-                ) {
-                    let what = format!(
-                        "dstrain[{j}] {} {h:.3e}",
-                        if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
-                    );
-                    tangent = Some(CheckOutcome::Fault(fault_record(&f, &driver, Some(what))));
-                    break;
-                }
-            }
-            let tangent = match tangent {
-                Some(t) => t,
-                None => {
-                    let better = match &best_numerical {
-                        None => true,
-                        Some((s, _)) => {
-                            scheme == Scheme::ComplexStep
-                                || (*s != Scheme::ComplexStep && scheme.order() > s.order())
-                        }
-                    };
-                    if better {
-                        best_numerical = Some((scheme, numerical.clone()));
-                    }
-                    CheckOutcome::Compared(compare(
-                        &conv,
-                        &returned,
-                        &numerical,
-                        ss.tol,
-                        settings.entry_floor,
-                        settings.worst_entries,
-                    ))
-                }
-            };
-            let dstress_dtemp = match &returned_dtemp {
-                None => None,
-                Some(ret) => {
-                    let ht = ss.rel_step * h_temp_scale;
-                    Some(
-                        match scheme.column(&mut driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
-                            Ok(()) => {
-                                let c = compare_dtemp(
-                                    &conv,
-                                    ret,
-                                    &dtemp_num,
-                                    ss.tol,
-                                    settings.entry_floor,
-                                    settings.worst_entries,
-                                );
-                                if !c.pass && failed_dtemp.is_none() {
-                                    failed_dtemp = Some(dtemp_num.clone());
-                                }
-                                CheckOutcome::Compared(c)
-                            }
-                            Err(f) => CheckOutcome::Fault(fault_record(
-                                &f,
-                                &driver,
-                                Some(format!("dtemp ± {ht:.3e}")),
-                            )),
-                        },
-                    )
-                }
-            };
-            checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
-        }
-        let any_fault = checks.iter().any(|c| {
-            matches!(c.tangent, CheckOutcome::Fault(_))
-                || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
-        });
-        let mut non_finite = Vec::new();
-        for (what, v) in [
-            ("stress", &driver.base.stress),
-            ("state", &driver.base.state),
-            ("tangent", &driver.base.tangent),
-        ] {
-            if let Some(i) = v.iter().position(|x| !x.is_finite()) {
-                let count = v.iter().filter(|x| !x.is_finite()).count();
-                non_finite.push(format!(
-                    "{what}[{i}] = {}{}",
-                    v[i],
-                    if count > 1 { format!(" and {} more", count - 1) } else { String::new() }
-                ));
-            }
-        }
-        let mut diagnosis = None;
-        let mut fault = None;
-        if settings.diagnose && non_finite.is_empty() && !any_fault && !checks.iter().all(SchemeCheck::passed)
-        {
-            let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
-            let complex_pass =
-                checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
-                    CheckOutcome::Compared(x) => Some(x.pass),
-                    _ => None,
+            Ok(cc) => {
+                previous = cc.best.map(|(_, t)| t);
+                driver.advance();
+                increments.push(IncrementResult {
+                    index: k + 1,
+                    reported_branch: cc.reported_branch,
+                    state_changed: cc.state_changed,
+                    strain: driver.start().strain.clone(),
+                    stress: driver.start().stress.clone(),
+                    checks: cc.checks,
+                    non_finite: cc.non_finite,
+                    solve: solve_log,
+                    diagnosis: cc.diagnosis,
+                    fault: None,
                 });
-            let ctx = Context {
-                returned: &returned,
-                dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
-                complex_pass,
-                tangent_checks_pass: checks.iter().all(tangent_ok),
-                previous: previous.as_deref(),
-                state_changed,
-                reported_branch: reported,
-                has_twin,
-            };
-            match diagnose::run(&mut driver, caller, &conv, &ctx, settings) {
-                Ok(d) => diagnosis = Some(d),
-                Err(f) => fault = Some(fault_record(&f, &driver, Some("a call of the diagnosis".into()))),
             }
-        }
-        previous = best_numerical.map(|(_, t)| t);
-        driver.advance();
-        increments.push(IncrementResult {
-            index: k + 1,
-            reported_branch: (reported >= 0).then_some(reported),
-            state_changed,
-            strain: driver.start().strain.clone(),
-            stress: driver.start().stress.clone(),
-            checks,
-            non_finite,
-            solve: solve_log,
-            diagnosis,
-            fault,
-        });
-        if increments.last().is_some_and(|i| i.fault.is_some()) {
-            break;
         }
     }
 
@@ -306,30 +167,6 @@ pub fn run(
         notes,
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
     })
-}
-
-fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
-    let s = d.start();
-    FaultRecord {
-        message: f.to_string(),
-        signal: match f {
-            Fault::Crashed { signal, .. } => Some(*signal),
-            _ => None,
-        },
-        call: CallRecord {
-            increment: d.increment(),
-            perturbation,
-            props: d.props().to_vec(),
-            strain: s.strain.clone(),
-            dstrain: d.dstrain().to_vec(),
-            temp: s.temp,
-            dtemp: d.dtemp(),
-            stress0: s.stress.clone(),
-            state0: s.state.clone(),
-            time: s.time,
-            dtime: d.dtime(),
-        },
-    }
 }
 
 /// Routine positions and targets of the stress components a mixed-control increment holds.

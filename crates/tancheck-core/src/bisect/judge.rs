@@ -90,7 +90,8 @@ pub fn call_record(d: &Driver, perturbation: Option<String>) -> CallRecord {
     }
 }
 
-fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
+/// A fault with the inputs of the driver's current call.
+pub fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
     FaultRecord {
         message: f.to_string(),
         signal: match f {
