@@ -58,6 +58,8 @@ fn demo_shows_correct_routines_passing_and_the_flawed_one_failing() {
     assert!(!t.contains("NOT AS EXPECTED"), "{t}");
     // The flawed routine's wrong entries are named by component labels.
     assert!(t.contains("wrong entries (row/column)"), "{t}");
+    // And the cause is named.
+    assert!(t.contains("finding over the path: continuum-tangent"), "{t}");
     assert!(t.contains("caution: A consistent tangent"), "{t}");
 }
 

@@ -240,6 +240,11 @@ fn summary(out: &mut dyn Write, r: &Report) -> Result<()> {
                 writeln!(out, "   likely cause: {} — {}", h.cause.name(), h.detail)?;
             }
         }
+        writeln!(
+            out,
+            "   finding over the path: {} (the cause that explains the most failing increments)",
+            r.finding()
+        )?;
         if let Some(f) = r.first_fault() {
             writeln!(out, "   fault: {}", f.message)?;
         }
