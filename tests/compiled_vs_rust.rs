@@ -168,6 +168,13 @@ fn compare_model(
                 assert!(rel(&b.state, &a.state) <= 1e-12, "{symbol} state at step {step}");
             }
             assert_eq!(a.outcome.branch, b.outcome.branch, "{symbol} branch");
+            assert_eq!(a.outcome.provides, b.outcome.provides, "{symbol} provides");
+            if a.outcome.provides & tancheck::core::routine::provides::ENERGY != 0 {
+                let scale = a.energy[0].abs().max(a.energy[1].abs()).max(1e-12);
+                for k in 0..2 {
+                    assert!((a.energy[k] - b.energy[k]).abs() <= 1e-12 * scale, "{symbol} energy {k}");
+                }
+            }
             if a.state == c.state0 {
                 elastic += 1;
             } else {

@@ -17,9 +17,10 @@ use crate::manifest::Manifest;
 use crate::report::sci;
 use crate::report::terminal::Detail;
 
-const C_SOURCES: [(&str, &str); 2] = [
+const C_SOURCES: [(&str, &str); 3] = [
     ("elastic.c", include_str!("../../../fortran-shim/examples/c/elastic.c")),
     ("j2.c", include_str!("../../../fortran-shim/examples/c/j2.c")),
+    ("j2_energy.h", include_str!("../../../fortran-shim/examples/c/j2_energy.h")),
 ];
 const FORTRAN_SOURCES: [(&str, &str); 3] = [
     ("elastic.F90", include_str!("../../../fortran-shim/examples/fortran/elastic.F90")),
@@ -98,7 +99,8 @@ fn build(dir: &FsPath, name: &str, sources: &[(&str, &str)]) -> Result<PathBuf> 
     for (file, text) in sources {
         let p = src_dir.join(file);
         std::fs::write(&p, text)?;
-        if !file.ends_with(".inc") {
+        // Included files are written beside the sources, not compiled on their own.
+        if !file.ends_with(".inc") && !file.ends_with(".h") {
             paths.push(p);
         }
     }

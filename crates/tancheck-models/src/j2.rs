@@ -230,8 +230,8 @@ impl Model for J2 {
             output.state.copy_from_slice(input.state0);
             let c = isotropic_matrix(p.lambda, p.mu);
             write_tangent(&c, slots, output.tangent);
-            finish(output);
-            succeed(output, 0, 0);
+            finish(output, &p, input);
+            succeed(output, 0, tancheck_core::routine::provides::ENERGY);
             return Ok(());
         }
 
@@ -307,17 +307,45 @@ impl Model for J2 {
             }
         }
         write_tangent(&c, slots, output.tangent);
-        finish(output);
-        succeed(output, 1, 0);
+        finish(output, &p, input);
+        succeed(output, 1, tancheck_core::routine::provides::ENERGY);
         Ok(())
     }
 }
 
-/// Outputs J2 has no use for: no temperature dependence, no energy reported.
-fn finish<S: Scalar>(output: &mut CallOutput<'_, S>) {
+/// No temperature dependence; the energies at the end of the increment, from the end state.
+///
+/// The backward-Euler radial return of associative J2 plasticity is the stationarity condition
+/// of an incremental potential (the variational structure of the return mapping, e.g. Ortiz &
+/// Stainier 1999, CMAME 171:419–444; from memory), with the stored energy
+/// Ψ = ½ σ:εₑ + ½H_iso α² + Q(α − (1 − e^{−bα})/b) + (3/(4H_kin)) β:β and the dissipation
+/// D = σy0 α (the dissipation rate of associative J2 flow is σy0 α̇). So ΔΨ + ΔD equals the
+/// work ∫σ:dε along each increment, and D never decreases.
+fn finish<S: Scalar>(output: &mut CallOutput<'_, S>, p: &Props<S>, input: &CallInput<'_, S>) {
     output.dstress_dtemp.fill(S::zero());
-    output.energy[0] = S::zero();
-    output.energy[1] = S::zero();
+    let n = output.stress.len();
+    let (state, stress) = (&*output.state, &*output.stress);
+    let mut psi = S::zero();
+    for i in 0..n {
+        // Engineering shear in ε and εp: σ·(ε − εp) is the tensor contraction σ:εₑ.
+        psi += stress[i] * (input.strain[i] + input.dstrain[i] - state[i]) * 0.5;
+    }
+    let alpha = state[n];
+    psi += p.h_iso * alpha * alpha * 0.5;
+    if p.b.re() > 0.0 {
+        psi += p.q * (alpha - (S::one() - (-p.b * alpha).exp()) / p.b);
+    }
+    if p.h_kin.re() > 0.0 {
+        let mut bb = S::zero();
+        for i in 0..n {
+            // β holds tensor components: shear ones count twice in β:β.
+            let w = if i < 3 { 1.0 } else { 2.0 };
+            bb += state[n + 1 + i] * state[n + 1 + i] * w;
+        }
+        psi += bb * 0.75 / p.h_kin;
+    }
+    output.energy[0] = psi;
+    output.energy[1] = p.sy0 * alpha;
 }
 
 #[cfg(test)]

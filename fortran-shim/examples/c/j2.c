@@ -14,7 +14,7 @@
  *     linear kinematic hardening modulus H_kin;
  *   state [eps_p (ncomp, engineering shear), alpha, beta (ncomp, back stress)], 2 ncomp + 1
  *     entries; entries past these are carried through unchanged.
- * Branch 0 elastic, 1 plastic. No energy output.
+ * Branch 0 elastic, 1 plastic. Energies from the end state (j2_energy.h).
  *
  * Complex-step safety (Martins, Sturdza & Alonso 2003): the yield test and the Newton stop test
  * look at real parts only, the norm is sqrt(sum x_i^2) without conjugation, and the Newton loop
@@ -28,6 +28,8 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
+
+#include "j2_energy.h"
 
 /* Property indices. */
 enum { J2_E, J2_NU, J2_SIGMA_Y0, J2_H_ISO, J2_Q, J2_B, J2_H_KIN, J2_NPROP };
@@ -227,9 +229,9 @@ TC_ROUTINE(c_j2)
     (void)temp;
     (void)stress0;
     (void)dstress_dtemp;
-    (void)energy;
     j2_update(call, props, strain, dstrain, state0, stress, state, tangent, report,
               J2_TANGENT_CONSISTENT);
+    j2_energy(call, props, strain, dstrain, stress, state, energy, report);
 }
 
 TC_ROUTINE(c_j2_continuum)
@@ -237,7 +239,7 @@ TC_ROUTINE(c_j2_continuum)
     (void)temp;
     (void)stress0;
     (void)dstress_dtemp;
-    (void)energy;
     j2_update(call, props, strain, dstrain, state0, stress, state, tangent, report,
               J2_TANGENT_CONTINUUM);
+    j2_energy(call, props, strain, dstrain, stress, state, energy, report);
 }

@@ -37,7 +37,7 @@
  *   before any plastic flow). A plastic increment stores its n there, an elastic one carries
  *   n_last. When the increment is plastic and n : n_last < 0 (shear entries counted twice) it
  *   returns kappa 1(x)1 + 2 mu theta (I - 1/3 1(x)1) + 2 mu theta_bar n(x)n.
- * Branch 0 elastic, 1 plastic. No energy output.
+ * Branch 0 elastic, 1 plastic. Energies from the end state (j2_energy.h).
  *
  * Complex-step safety (Martins, Sturdza & Alonso 2003): branch tests on real parts only, norms
  * as sqrt(sum x_i^2) without conjugation, one Newton iteration after convergence.
@@ -49,6 +49,8 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
+
+#include "j2_energy.h"
 
 enum { ZJ_E, ZJ_NU, ZJ_SIGMA_Y0, ZJ_H_ISO, ZJ_Q, ZJ_B, ZJ_H_KIN, ZJ_NPROP };
 
@@ -332,16 +334,16 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     }
 }
 
-/* One exported routine per flaw; none reads temp or stress0 or writes dstress_dtemp, energy. */
+/* One exported routine per flaw; none reads temp or stress0 or writes dstress_dtemp. */
 #define ZJ_ROUTINE(symbol, label, flaw)                                                        \
     TC_ROUTINE(symbol)                                                                         \
     {                                                                                          \
         (void)temp;                                                                            \
         (void)stress0;                                                                         \
         (void)dstress_dtemp;                                                                   \
-        (void)energy;                                                                          \
         zj_update(label, flaw, call, props, strain, dstrain, state0, stress, state, tangent,   \
                   report);                                                                     \
+        j2_energy(call, props, strain, dstrain, stress, state, energy, report);                \
     }
 
 ZJ_ROUTINE(c_j2_shear_factor, "j2-shear-factor", ZJ_SHEAR_FACTOR)

@@ -13,7 +13,7 @@
 !     linear kinematic hardening modulus H_kin;
 !   state [eps_p (ncomp, engineering shear), alpha, beta (ncomp, back stress)], 2 ncomp + 1
 !     entries; entries past these are carried through unchanged.
-! Branch 0 elastic, 1 plastic. No energy output.
+! Branch 0 elastic, 1 plastic. Energies from the end state (j2_energy in j2_return_map.inc).
 !
 ! Both routines share one stress update, j2_return_map.inc, included as an internal procedure
 ! of each: external procedures (not module procedures) keep the real and the complex build
@@ -31,7 +31,7 @@ subroutine f_j2(callinfo, props, strain, dstrain, temp, stress0, state0, stress,
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_j2"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -48,10 +48,11 @@ subroutine f_j2(callinfo, props, strain, dstrain, temp, stress0, state0, stress,
   ! stress0 and writes neither dstress_dtemp nor energy. Naming them in a namelist that is
   ! never read or written tells gfortran -Wall (-Wunused-dummy-argument) that this is
   ! deliberate; it generates no code.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call j2_return_map(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, .true.)
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -65,7 +66,7 @@ subroutine f_j2_continuum(callinfo, props, strain, dstrain, temp, stress0, state
                           bind(C, name="f_j2_continuum"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -79,10 +80,11 @@ subroutine f_j2_continuum(callinfo, props, strain, dstrain, temp, stress0, state
   type(tc_report), intent(inout) :: report
 
   ! See f_j2.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call j2_return_map(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, .false.)
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 

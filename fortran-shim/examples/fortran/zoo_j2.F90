@@ -32,7 +32,7 @@ subroutine f_j2_shear_factor(callinfo, props, strain, dstrain, temp, stress0, &
                              bind(C, name="f_j2_shear_factor"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -46,10 +46,11 @@ subroutine f_j2_shear_factor(callinfo, props, strain, dstrain, temp, stress0, &
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, "shear-factor")
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -64,7 +65,7 @@ subroutine f_j2_shear_permuted(callinfo, props, strain, dstrain, temp, stress0, 
                                bind(C, name="f_j2_shear_permuted"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -78,10 +79,11 @@ subroutine f_j2_shear_permuted(callinfo, props, strain, dstrain, temp, stress0, 
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, "shear-permuted")
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -97,7 +99,7 @@ subroutine f_j2_elastic_first_plastic(callinfo, props, strain, dstrain, temp, st
                                       bind(C, name="f_j2_elastic_first_plastic"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -111,10 +113,11 @@ subroutine f_j2_elastic_first_plastic(callinfo, props, strain, dstrain, temp, st
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, "elastic-first-plastic")
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -129,7 +132,7 @@ subroutine f_j2_unit_factor(callinfo, props, strain, dstrain, temp, stress0, &
                             bind(C, name="f_j2_unit_factor"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -143,10 +146,11 @@ subroutine f_j2_unit_factor(callinfo, props, strain, dstrain, temp, stress0, &
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, "unit-factor")
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -161,7 +165,7 @@ subroutine f_j2_one_column(callinfo, props, strain, dstrain, temp, stress0, &
                            bind(C, name="f_j2_one_column"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
-                              tc_status_failed
+                              tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
@@ -175,10 +179,11 @@ subroutine f_j2_one_column(callinfo, props, strain, dstrain, temp, stress0, &
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp, energy
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
 
   call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
                      report, "one-column")
+  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
 
 contains
 
