@@ -250,3 +250,14 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
     assert!(t.contains("verdict: PASS"), "{t}");
     assert_eq!(o.status.code(), Some(1), "{t}");
 }
+
+#[test]
+fn models_lists_every_built_in_model_with_its_properties() {
+    let o = bin().arg("models").output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    for name in ["j2 ", "elastic ", "thermo ", "cohesive ", "orthotropic ", "bimodulus "] {
+        assert!(t.lines().any(|l| l.starts_with(name)), "{name} missing:\n{t}");
+    }
+    assert!(t.contains("properties: K, N, S, G_Ic, G_IIc, eta"), "{t}");
+}

@@ -21,7 +21,7 @@ use crate::report::{write_atomic, Reporter};
     name = "tancheck",
     version,
     about = "Checks that a material routine's tangent is the derivative of its own stress update",
-    after_help = "Exit codes: 0 pass, 1 tangent failure, 2 bad input or usage, 3 the routine crashed or failed."
+    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, hung or failed, 70 the routine ended the process (without --isolate)."
 )]
 struct Cli {
     #[command(subcommand)]
@@ -407,9 +407,27 @@ fn cmd_build(a: BuildArgs) -> Result<i32> {
 }
 
 fn cmd_models() -> Result<i32> {
-    for name in tancheck_models::NAMES {
-        let m = tancheck_models::AnyModel::new(name, PointKind::Solid3d)?;
-        println!("{name:<14} properties: {}", m.prop_names().join(", "));
+    let stdout = std::io::stdout();
+    let mut out = stdout.lock();
+    writeln!(
+        out,
+        "Built-in models (\"model\": NAME in a manifest); the flawed ones are the selftest's zoo.\n"
+    )?;
+    let mut rows: Vec<(String, String, String, String)> = Vec::new();
+    for e in tancheck_models::zoo::zoo() {
+        let m = tancheck_models::zoo::ZooModel::new(e.name, e.kinds[0])?;
+        let kinds: Vec<_> = e.kinds.iter().map(|k| k.name()).collect();
+        rows.push((e.name.into(), kinds.join(" "), m.prop_names().join(", "), e.description.into()));
+    }
+    let o = tancheck_models::AnyModel::new("orthotropic", PointKind::Solid3d)?;
+    rows.push((
+        "orthotropic".into(),
+        "solid-3d plane-strain axisymmetric".into(),
+        o.prop_names().join(", "),
+        "linear orthotropic elasticity with material axes among the properties".into(),
+    ));
+    for (name, kinds, props, what) in rows {
+        writeln!(out, "{name:<26} {what}\n{:<26} kinds: {kinds}\n{:<26} properties: {props}", "", "")?;
     }
     Ok(exit::PASS)
 }
