@@ -446,7 +446,7 @@ fn debug_builds_run_clean_under_fp_traps() {
     }
     let traps = tancheck::abi::guard::fp_traps_available();
     if !traps {
-        eprintln!("debug_builds_run_clean_under_fp_traps: no FP traps on this machine; comparing only");
+        eprintln!("SKIPPED debug_builds_run_clean_under_fp_traps (trapping half): no FP traps on this machine; comparing only");
     }
     let mut rng = StdRng::seed_from_u64(0x7c0e_0003);
     for (path, prefix) in libs {

@@ -1,5 +1,6 @@
 //! The default probe suites run on every reference model with every probe passing where the
-//! physics says it must; a flawed tangent fails the tangent probe and nothing else.
+//! physics says it must; a flawed tangent fails the tangent and Newton-rate probes and nothing
+//! else.
 
 use tancheck::cli::suite::Suite;
 use tancheck::core::probe::{run_suite, ProbeStatus, SuiteReport};
@@ -76,4 +77,47 @@ fn the_continuum_tangent_fails_the_tangent_and_newton_probes_only() {
         assert_eq!(p.status, want, "{p:#?}");
     }
     assert!(r.results[0].summary.contains("continuum-tangent"), "{:?}", r.results[0]);
+}
+
+/// A routine whose stress is not a finite number fails the probes that look at the stress or
+/// tangent, instead of slipping through comparisons that ignore NaN.
+struct NanStress(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for NanStress {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        output.stress[0] = f64::NAN;
+        output.tangent[0] = f64::NAN;
+        Ok(())
+    }
+}
+
+#[test]
+fn non_finite_outputs_fail_the_probes_that_read_them() {
+    let suite = Suite::default_for(PointKind::Solid3d, false);
+    let mut r = NanStress(reference("elastic", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let rep = run_suite(
+        &mut caller,
+        "solid",
+        &suite.probes,
+        &[200000.0, 0.3],
+        &start,
+        &suite.path().unwrap(),
+        &Settings::default(),
+    )
+    .unwrap();
+    for probe in ["tangent", "symmetry", "zero-increment", "refinement"] {
+        let p = rep.results.iter().find(|p| p.probe == probe).unwrap();
+        assert_eq!(p.status, ProbeStatus::Fail, "{p:#?}");
+    }
 }

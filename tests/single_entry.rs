@@ -79,3 +79,25 @@ fn the_same_routine_without_the_flaw_passes() {
         check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
     assert_eq!(report.verdict, Verdict::Pass);
 }
+
+/// Without the complex step, a 1e-5 error must not be cleared by a step study that only
+/// reaches the forward scheme's looser tolerance: the central check's tolerance decides.
+#[test]
+fn without_the_complex_step_the_central_tolerance_decides() {
+    let props = [200000.0, 0.3, 250.0, 1000.0, 50.0, 20.0, 500.0];
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 0);
+    let settings = Settings { schemes: vec![tancheck::core::Scheme::Central], ..Settings::default() };
+    for (row, col) in [(0, 0), (1, 0), (5, 5), (3, 4), (0, 5)] {
+        let mut r = OneEntryOff { inner: reference("j2", PointKind::Solid3d).unwrap(), row, col, size: 1e-5 };
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let report =
+            check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &settings).unwrap();
+        assert_eq!(
+            report.verdict,
+            Verdict::TangentFailure,
+            "entry ({row}, {col}) cleared without the complex step"
+        );
+        assert!(report.increments.iter().all(|i| !i.passed()));
+    }
+}

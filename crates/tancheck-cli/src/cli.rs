@@ -57,11 +57,13 @@ enum Command {
 struct CheckArgs {
     /// The manifest (JSON) that names the routine, its properties and the path.
     manifest: PathBuf,
-    /// Path to walk instead of the manifest's: SHAPE:PEAK:STEPS[:BACK]
-    /// (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic, tension-shear).
+    /// Path to walk instead of the manifest's: SHAPE:PEAK:STEPS[:BACK] (shapes: uniaxial-strain,
+    /// shear-12, biaxial, hydrostatic, tension-shear, mixed-mode, and uniaxial-stress, which
+    /// holds every stress but 11 at zero).
     #[arg(long, value_name = "SPEC")]
     path: Option<String>,
-    /// Scheme to run (repeat for several): forward, central, complex-step.
+    /// Scheme to run (repeat for several): forward, backward, central, central4, richardson,
+    /// complex-step.
     #[arg(long = "scheme", value_name = "NAME")]
     schemes: Vec<String>,
     /// Tolerance of a scheme, e.g. --tol central=1e-7 (repeatable).

@@ -368,6 +368,9 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         }
         other => {
             write_outcome(&outcome, &mut out)?;
+            for c in tancheck_core::report::CAUTIONS {
+                writeln!(out, "   caution: {c}")?;
+            }
             if let Some(p) = other {
                 let mut buf = serde_json::to_vec_pretty(&outcome)?;
                 buf.push(b'\n');

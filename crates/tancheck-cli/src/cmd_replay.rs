@@ -507,6 +507,11 @@ pub fn run(a: &ReplayArgs) -> Result<i32> {
             }
         }
     }
+    if a.json.as_ref().is_none_or(|p| p.as_os_str() != "-") {
+        for c in tancheck_core::report::CAUTIONS {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
     Ok(report.exit_code)
 }
 

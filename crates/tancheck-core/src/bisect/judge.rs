@@ -248,6 +248,14 @@ pub fn check_call(
             state_changed,
             reported_branch: reported,
             has_twin,
+            failed_tol: out
+                .checks
+                .iter()
+                .filter_map(|c| match &c.tangent {
+                    CheckOutcome::Compared(x) if !x.pass => Some(x.tol),
+                    _ => None,
+                })
+                .fold(f64::INFINITY, f64::min),
         };
         out.diagnosis = Some(diagnose::run(driver, caller, &conv, &ctx, settings)?);
     }

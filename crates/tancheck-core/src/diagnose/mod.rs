@@ -58,6 +58,10 @@ pub struct Context<'a> {
     pub state_changed: bool,
     pub reported_branch: i32,
     pub has_twin: bool,
+    /// The smallest tolerance among the tangent checks that failed: a step study clears the
+    /// increment only when it reaches that (a forward study at its own, looser tolerance must
+    /// not clear a failed central check).
+    pub failed_tol: f64,
 }
 
 fn tangent(
@@ -91,7 +95,8 @@ pub fn run(
         let tol = settings.scheme(scheme).tol;
         studies.push(study::run(driver, caller, conv, ctx.returned, scheme, scale, tol, ef)?);
     }
-    let fd_converges = studies.iter().any(|s| s.behaviour == Behaviour::Converges);
+    let clears = |s: &StepStudy| s.behaviour == Behaviour::Converges && s.best_error <= ctx.failed_tol;
+    let fd_converges = studies.iter().any(clears);
 
     let (mut pass, mut reason) = if kink.detected {
         match kink.returned_matches {
@@ -109,7 +114,7 @@ pub fn run(
             ),
         }
     } else if fd_converges && ctx.complex_pass != Some(false) {
-        let s = studies.iter().find(|s| s.behaviour == Behaviour::Converges).expect("one converges");
+        let s = studies.iter().find(|s| clears(s)).expect("one converges");
         (true, format!("the {} difference converges to the returned tangent (error {:.2e} at relative step {:.0e}); the default step was poor for this routine", s.scheme.name(), s.best_error, s.best_rel_step))
     } else if fd_converges {
         (false, "finite differences converge to the returned tangent but the complex twin disagrees: is the twin complex-step safe (real-part comparisons, no conjugates, abs/max/min on real parts)?".to_string())

@@ -44,17 +44,25 @@ impl Probe for Refinement {
             let mut m = 2;
             while m <= max_m {
                 let s = end_stress(d, c, m)?;
-                let e = s.iter().zip(&prev).fold(0.0f64, |a, (x, y)| a.max((x - y).abs())) / scale;
+                // A stress that is not finite is a change no subdivision can shrink.
+                let e = if s.iter().chain(&prev).all(|x| x.is_finite()) {
+                    s.iter().zip(&prev).fold(0.0f64, |a, (x, y)| a.max((x - y).abs())) / scale
+                } else {
+                    f64::INFINITY
+                };
                 changes.push(e);
                 prev = s;
                 m *= 2;
+            }
+            if changes.iter().any(|c| !c.is_finite()) {
+                bad = Some((k, changes.clone()));
             }
             for w in changes.windows(2) {
                 if w[0] > floor && w[1] > floor {
                     orders.push((w[0] / w[1]).log2());
                 }
                 // Changes must shrink once above the rounding floor.
-                if w[1] > floor && w[1] > 1.05 * w[0] {
+                if !w[1].is_finite() || (w[1] > floor && w[1] > 1.05 * w[0]) {
                     bad = Some((k, changes.clone()));
                 }
             }

@@ -21,7 +21,11 @@ impl Probe for Symmetry {
         let tol = env.spec.tol.unwrap_or(1e-10);
         let declared = env.spec.symmetric.unwrap_or(false);
         let mut worst = (0.0f64, 0usize);
+        let mut non_finite: Option<usize> = None;
         let walked = walk(caller, env, |k, d, _| {
+            if env.spec.runs_at(k) && non_finite.is_none() && d.base.tangent.iter().any(|x| !x.is_finite()) {
+                non_finite = Some(k);
+            }
             if env.spec.runs_at(k) {
                 let mut m = d.base.tangent.clone();
                 conv.tangent_to_mandel(&mut m);
@@ -41,6 +45,15 @@ impl Probe for Symmetry {
         });
         if let Err((k, f)) = walked {
             return Ok(faulted("symmetry", k, &f));
+        }
+        if let Some(k) = non_finite {
+            let mut r = ProbeResult::new(
+                "symmetry",
+                ProbeStatus::Fail,
+                format!("the tangent has entries that are not finite numbers at increment {k}"),
+            );
+            r.increment = Some(k);
+            return Ok(r);
         }
         let (status, summary) = match (worst.0 > tol, declared) {
             (false, _) => (ProbeStatus::Pass, format!("symmetric (worst asymmetry {:.2e})", worst.0)),

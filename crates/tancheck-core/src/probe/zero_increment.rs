@@ -25,7 +25,8 @@ impl Probe for ZeroIncrement {
             let zero = vec![0.0; full.len()];
             d.set_increment_keep_count(&zero, 0.0);
             let r = d.base_call(c);
-            let out = (d.base.stress.clone(), d.base.tangent.iter().all(|x| x.is_finite()));
+            let out =
+                (d.base.stress.clone(), d.base.tangent.iter().chain(&d.base.stress).all(|x| x.is_finite()));
             d.set_increment_keep_count(&full, dtemp);
             d.base_call(c)?;
             r?;
@@ -47,7 +48,10 @@ impl Probe for ZeroIncrement {
             if ok {
                 format!("returns the start stress (worst change {:.2e}) and a finite tangent", worst.0)
             } else if !worst.2 {
-                format!("a zero increment gives a tangent that is not finite (increment {})", worst.1)
+                format!(
+                    "a zero increment gives a stress or tangent that is not finite (increment {})",
+                    worst.1
+                )
             } else {
                 format!(
                     "a zero increment changes the stress by {:.2e} of its scale (increment {})",
