@@ -3,9 +3,6 @@
 //! 2003; Benzeggagh & Kenane 1996; REFERENCES.md, "Cohesive zone") and num-dual /
 //! complex-step derivatives of its own update, branch by branch.
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::cell::Cell;
-
 use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
@@ -18,33 +15,8 @@ use tancheck_models::{AnyModel, Cohesive, CohesiveFlaw};
 // ---------------------------------------------------------------------------------------
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
-struct Counting;
-
-thread_local! {
-    static ALLOCATIONS: Cell<usize> = const { Cell::new(0) };
-}
-
-// SAFETY: forwards to the system allocator; the counter is a const-initialized thread-local
-// Cell, which never allocates.
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
-        let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
-        // SAFETY: same contract as the caller's.
-        unsafe { System.alloc(layout) }
-    }
-    unsafe fn dealloc(&self, ptr: *mut u8, layout: Layout) {
-        // SAFETY: same contract as the caller's.
-        unsafe { System.dealloc(ptr, layout) }
-    }
-    unsafe fn realloc(&self, ptr: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
-        let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
-        // SAFETY: same contract as the caller's.
-        unsafe { System.realloc(ptr, layout, new_size) }
-    }
-}
-
-#[global_allocator]
-static GLOBAL: Counting = Counting;
+mod common;
+use common::ALLOCATIONS;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.

@@ -5,7 +5,6 @@
 //! 48:101–118 and Simo & Hughes (1998), Box 3.2 (REFERENCES.md, "J2 plasticity"); elastic
 //! constants follow REFERENCES.md "Relations".
 
-use std::alloc::{GlobalAlloc, Layout, System};
 use std::cell::Cell;
 
 use num_dual::Dual64;
@@ -809,33 +808,8 @@ fn every_zoo_entry_builds_for_its_kinds() {
     }
 }
 
-struct Counting;
-
-thread_local! {
-    static ALLOCATIONS: Cell<usize> = const { Cell::new(0) };
-}
-
-// SAFETY: forwards to the system allocator; the counter is a const-initialized thread-local
-// Cell that never allocates.
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, layout: Layout) -> *mut u8 {
-        let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
-        // SAFETY: same contract as the caller's.
-        unsafe { System.alloc(layout) }
-    }
-    unsafe fn dealloc(&self, ptr: *mut u8, layout: Layout) {
-        // SAFETY: same contract as the caller's.
-        unsafe { System.dealloc(ptr, layout) }
-    }
-    unsafe fn realloc(&self, ptr: *mut u8, layout: Layout, new_size: usize) -> *mut u8 {
-        let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
-        // SAFETY: same contract as the caller's.
-        unsafe { System.realloc(ptr, layout, new_size) }
-    }
-}
-
-#[global_allocator]
-static GLOBAL: Counting = Counting;
+mod common;
+use common::ALLOCATIONS;
 
 /// Allocations made by ten calls of `m` in scalar type S (buffers made beforehand).
 fn allocations_of<S: Scalar>(m: &ZooModel, props: &[f64], dstrain: &[f64]) -> usize {
