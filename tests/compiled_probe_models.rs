@@ -24,9 +24,7 @@ use tancheck::abi::{
     build_library, fortran_for_test, BuildOptions, FindingKind, GuardLevel, GuardedArray, Library,
 };
 use tancheck::core::routine::{provides, status};
-use tancheck::core::{
-    CallInput, CallOutput, Convention, Fault, Outcome, PointKind, Routine, RoutineInfo, ShearMeasure,
-};
+use tancheck::core::{CallInput, Convention, Fault, PointKind, Routine, RoutineInfo, ShearMeasure};
 use tancheck::models::reference;
 
 fn examples() -> PathBuf {
@@ -74,37 +72,8 @@ impl Call {
     }
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    dsdt: Vec<S>,
-    energy: [S; 2],
-    outcome: Outcome,
-}
-
-impl<S: Copy> Out<S> {
-    fn new(n: usize, ns: usize, z: S) -> Self {
-        Out {
-            stress: vec![z; n],
-            state: vec![z; ns],
-            tangent: vec![z; n * n],
-            dsdt: vec![z; n],
-            energy: [z; 2],
-            outcome: Outcome::default(),
-        }
-    }
-    fn view(&mut self) -> CallOutput<'_, S> {
-        CallOutput {
-            stress: &mut self.stress,
-            state: &mut self.state,
-            tangent: &mut self.tangent,
-            dstress_dtemp: &mut self.dsdt,
-            energy: &mut self.energy,
-            outcome: &mut self.outcome,
-        }
-    }
-}
+/// Output buffers of one call (the driver's own, NaN-filled).
+use tancheck::core::driver::Outputs as Out;
 
 fn try_call(r: &mut dyn Routine, c: &Call) -> (Result<(), Fault>, Out<f64>) {
     let mut o = Out::new(c.strain.len(), c.state0.len(), f64::NAN);

@@ -12,7 +12,7 @@ use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
 use tancheck::abi::{build_library, fortran_for_test, BuildOptions, Library};
-use tancheck::core::{CallInput, CallOutput, Outcome, PointKind, Routine};
+use tancheck::core::{CallInput, PointKind, Routine};
 use tancheck::models::reference;
 
 fn shim() -> PathBuf {
@@ -47,37 +47,8 @@ struct Call {
     state0: Vec<f64>,
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    dsdt: Vec<S>,
-    energy: [S; 2],
-    outcome: Outcome,
-}
-
-impl<S: Copy> Out<S> {
-    fn new(n: usize, ns: usize, z: S) -> Self {
-        Out {
-            stress: vec![z; n],
-            state: vec![z; ns],
-            tangent: vec![z; n * n],
-            dsdt: vec![z; n],
-            energy: [z; 2],
-            outcome: Outcome::default(),
-        }
-    }
-    fn view(&mut self) -> CallOutput<'_, S> {
-        CallOutput {
-            stress: &mut self.stress,
-            state: &mut self.state,
-            tangent: &mut self.tangent,
-            dstress_dtemp: &mut self.dsdt,
-            energy: &mut self.energy,
-            outcome: &mut self.outcome,
-        }
-    }
-}
+/// Output buffers of one call (the driver's own, NaN-filled).
+use tancheck::core::driver::Outputs as Out;
 
 fn call(r: &mut dyn Routine, c: &Call) -> Out<f64> {
     let mut o = Out::new(c.strain.len(), c.state0.len(), f64::NAN);

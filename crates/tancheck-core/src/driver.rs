@@ -54,7 +54,9 @@ pub struct Outputs<S> {
 }
 
 impl<S: Copy> Outputs<S> {
-    fn new(n: usize, nstate: usize, fill: S) -> Self {
+    /// Buffers for a routine with `n` components and `nstate` state variables, filled with
+    /// `fill` (NaN, so that unwritten entries show).
+    pub fn new(n: usize, nstate: usize, fill: S) -> Self {
         Outputs {
             stress: vec![fill; n],
             state: vec![fill; nstate],
@@ -65,7 +67,8 @@ impl<S: Copy> Outputs<S> {
         }
     }
 
-    fn view(&mut self) -> CallOutput<'_, S> {
+    /// The buffers as the outputs of one call.
+    pub fn view(&mut self) -> CallOutput<'_, S> {
         CallOutput {
             stress: &mut self.stress,
             state: &mut self.state,
