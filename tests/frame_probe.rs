@@ -84,7 +84,9 @@ impl Routine for Skewed {
 
 #[test]
 fn a_law_that_singles_out_axes_fails() {
-    let spec = ProbeSpec::named("frame");
+    // Declared isotropic: a response that singles out axes fails. (Undeclared, the same
+    // response is anisotropic without axes: skipped, see below.)
+    let spec = ProbeSpec { anisotropic: Some(false), ..ProbeSpec::named("frame") };
     for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
         for (model, props) in [("elastic", &ELASTIC[..]), ("j2", &J2_ALL[..])] {
             // c = 1% of E: far above rounding, small beside the elastic moduli.
@@ -122,9 +124,15 @@ fn anisotropic_laws_need_their_axes_rotated() {
         let res = run(&mut r, &props, path, &with_axes);
         assert_eq!(res.status, ProbeStatus::Pass, "{kind}: {res:?}");
         assert!(res.summary.contains("material axes rotated"), "{}", res.summary);
-        // Treated as isotropic, it is not frame indifferent.
-        let res = run(&mut r, &props, path, &ProbeSpec::named("frame"));
+        // Declared isotropic, it is not frame indifferent.
+        let isotropic = ProbeSpec { anisotropic: Some(false), ..ProbeSpec::named("frame") };
+        let res = run(&mut r, &props, path, &isotropic);
         assert_eq!(res.status, ProbeStatus::Fail, "{kind}: {res:?}");
+        // Nothing declared: its elastic response is anisotropic and no axes are given, so the
+        // probe is skipped with that reason, not failed (a correct routine).
+        let res = run(&mut r, &props, path, &ProbeSpec::named("frame"));
+        assert_eq!(res.status, ProbeStatus::Skipped, "{kind}: {res:?}");
+        assert!(res.summary.contains("anisotropic") && res.summary.contains("`axes`"), "{}", res.summary);
         // Declared anisotropic without axes: skipped with the reason.
         let no_axes = ProbeSpec { anisotropic: Some(true), ..ProbeSpec::named("frame") };
         let res = run(&mut r, &props, path, &no_axes);
@@ -181,7 +189,8 @@ fn the_compiled_non_objective_routine_fails() {
     let out = dir.join("libframe_probe.so");
     build_library(&BuildOptions::new([src], &out)).unwrap_or_else(|e| panic!("building probe_zoo.c: {e}"));
     let lib = Library::open(&out).unwrap();
-    let spec = ProbeSpec::named("frame");
+    // It claims isotropy: declared so, it fails.
+    let spec = ProbeSpec { anisotropic: Some(false), ..ProbeSpec::named("frame") };
     for kind in [PointKind::Solid3d, PointKind::PlaneStrain] {
         let info = RoutineInfo {
             name: "pz_not_objective".into(),

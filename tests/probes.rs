@@ -121,3 +121,90 @@ fn non_finite_outputs_fail_the_probes_that_read_them() {
         assert_eq!(p.status, ProbeStatus::Fail, "{p:#?}");
     }
 }
+
+/// A routine whose zero increment gives NaN once the strain is nonzero (a direction normalised
+/// without a guard): the zero-increment probe names the first increment where it appeared.
+struct NanOnZero(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for NanOnZero {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        if input.dstrain.iter().all(|&x| x == 0.0) && input.strain.iter().any(|&x| x != 0.0) {
+            output.stress[0] = f64::NAN;
+        }
+        Ok(())
+    }
+}
+
+#[test]
+fn the_zero_increment_probe_names_the_first_increment_with_the_fault() {
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::{Path, Shape};
+    let mut r = NanOnZero(reference("elastic", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let rep = run_suite(
+        &mut caller,
+        "zero",
+        &[ProbeSpec::named("zero-increment")],
+        &[200000.0, 0.3],
+        &start,
+        &Path::ramp(Shape::UniaxialStrain, 1e-3, 5, 0),
+        &Settings::default(),
+    )
+    .unwrap();
+    let p = &rep.results[0];
+    assert_eq!(p.status, ProbeStatus::Fail, "{p:#?}");
+    // Increment 1 starts at zero strain; from increment 2 on the start strain is nonzero.
+    assert_eq!(p.increment, Some(2), "{p:#?}");
+    assert!(p.summary.contains("first at increment 2"), "{}", p.summary);
+}
+
+/// A correct but stiff cohesive law (penalty 1e8 N/mm³: onset separations below 1e-6 mm) with
+/// separations of order 1e-7 mm: the energy probe's closed elastic cycle stays elastic and
+/// the probe passes.
+#[test]
+fn a_stiff_cohesive_law_passes_the_energy_probe() {
+    use tancheck::core::path::PathIncrement;
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::Path;
+    for kind in [PointKind::Cohesive3d, PointKind::Cohesive2d] {
+        let mut r = reference("cohesive", kind).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let start = PointState::zero(&info, 20.0);
+        let mut path = Path { name: "stiff mixed mode".into(), increments: Vec::new() };
+        for k in 0..12 {
+            let s = if k < 8 { 1.0 } else { -1.0 };
+            path.increments.push(PathIncrement {
+                dstrain: [s * 4e-7, s * 3e-7, s * 1.5e-7, 0.0, 0.0, 0.0],
+                dtemp: 0.0,
+                dtime: 1.0,
+                hold_stress: None,
+            });
+        }
+        let suite = Suite::default_for(kind, false);
+        let energy: Vec<ProbeSpec> = suite.probes.iter().filter(|p| p.probe == "energy").cloned().collect();
+        let energy = if energy.is_empty() { vec![ProbeSpec::named("energy")] } else { energy };
+        let rep = run_suite(
+            &mut caller,
+            "stiff",
+            &energy,
+            &[1e8, 60.0, 90.0, 0.3, 0.9, 2.0],
+            &start,
+            &path,
+            &Settings::default(),
+        )
+        .unwrap();
+        let p = &rep.results[0];
+        assert_eq!(p.status, ProbeStatus::Pass, "{kind}: {p:#?}");
+    }
+}

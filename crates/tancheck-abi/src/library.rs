@@ -499,6 +499,8 @@ pub struct LibraryRoutine {
     label: CString,
     library: Option<Library>,
     guard_level: GuardLevel,
+    /// The next real call runs at [`GuardLevel::Full`] (see `guard_next_call_fully`).
+    full_next: bool,
     real_guards: GuardBuffers<f64>,
     complex_guards: Option<GuardBuffers<Complex64>>,
     findings: Findings,
@@ -559,6 +561,7 @@ impl LibraryRoutine {
             label,
             library,
             guard_level: GuardLevel::default(),
+            full_next: false,
             real_guards: GuardBuffers::new(ncomp, nstate, nprop),
             complex_guards: twin.map(|_| GuardBuffers::new(ncomp, nstate, nprop)),
             findings: Findings::default(),
@@ -717,7 +720,8 @@ impl Routine for LibraryRoutine {
         let call = self.tc_call(input);
         let real = self.real;
         let known = self.findings.list().len();
-        if self.guard_level == GuardLevel::Off {
+        let level = if std::mem::take(&mut self.full_next) { GuardLevel::Full } else { self.guard_level };
+        if level == GuardLevel::Off {
             let temp = input.temp;
             let args = self.args(&call, &temp, input, output);
             // SAFETY: `real` has the ABI's real signature (looked up by name, or promised by
@@ -727,7 +731,7 @@ impl Routine for LibraryRoutine {
         } else {
             self.real_guards
                 .call(
-                    self.guard_level,
+                    level,
                     &call,
                     self.label.as_ptr(),
                     self.fp_traps,
@@ -751,6 +755,13 @@ impl Routine for LibraryRoutine {
         } else {
             None
         }
+    }
+
+    /// With the guards on (light or full), the next real call runs at the full level; with
+    /// them off, nothing changes.
+    fn guard_next_call_fully(&mut self) -> bool {
+        self.full_next = self.guard_level != GuardLevel::Off;
+        self.full_next
     }
 }
 

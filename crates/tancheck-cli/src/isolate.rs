@@ -72,6 +72,9 @@ impl Routine for Heartbeat<'_> {
         self.beat(input);
         self.inner.call(input, output)
     }
+    fn guard_next_call_fully(&mut self) -> bool {
+        self.inner.guard_next_call_fully()
+    }
     fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
         if self.inner.complex().is_some() {
             Some(self)

@@ -3,6 +3,7 @@
 
 use crate::bisect::judge;
 use crate::driver::{Driver, PointState};
+use crate::first_calls;
 use crate::mixed;
 use crate::path::Path;
 use crate::report::{
@@ -47,8 +48,24 @@ pub fn run(
     // Whether some increment's strain increment opposed the stress at its start (unloading).
     let mut unloaded = false;
     let mut increments = Vec::with_capacity(path.increments.len());
+    // Cheap looks at first calls (see `first_calls`): a zero increment, full guards per branch.
+    let mut reached = first_calls::Branches::default();
+    if settings.first_calls {
+        let dtime = path.increments.first().map_or(1.0, |i| i.dtime);
+        if let Some(r) = first_calls::zero_increment(caller, &info, props, driver.start(), dtime)? {
+            notes.push(
+                "increment 0 is a zero strain increment from the start state (made by every default check)"
+                    .into(),
+            );
+            increments.push(r);
+        }
+    }
+    let mut conventions_seen = false;
 
     for (k, inc) in path.increments.iter().enumerate() {
+        if increments.last().is_some_and(|i| i.fault.is_some()) {
+            break;
+        }
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
         // Mixed control first: the held stresses decide the strain increment to check.
@@ -92,6 +109,45 @@ pub fn run(
                 break;
             }
             Ok(cc) => {
+                let guarded = if settings.first_calls && reached.first(cc.reported_branch, cc.state_changed) {
+                    first_calls::full_guard(&mut driver, caller).err()
+                } else {
+                    None
+                };
+                // The first elastic increment's numerical tangent tells a wrong declared
+                // convention, at no cost in calls.
+                if !conventions_seen && !cc.state_changed {
+                    conventions_seen = true;
+                    if let Some((_, t)) = &cc.best {
+                        let f = crate::probe::conventions::analyse(
+                            &conv,
+                            t,
+                            crate::probe::conventions::DEFAULT_TOL,
+                        );
+                        if f.mismatch() {
+                            notes.push(format!(
+                                "conventions warning: the elastic response {}; the tangent check cannot see a wrong \
+                                 declaration (the `conventions` probe shows the evidence)",
+                                f.sentence()
+                            ));
+                        }
+                    }
+                }
+                if let Some(fault) = guarded {
+                    increments.push(IncrementResult {
+                        index: k + 1,
+                        reported_branch: cc.reported_branch,
+                        state_changed: cc.state_changed,
+                        strain: driver.start().strain.clone(),
+                        stress: driver.start().stress.clone(),
+                        checks: cc.checks,
+                        non_finite: cc.non_finite,
+                        solve: solve_log,
+                        diagnosis: cc.diagnosis,
+                        fault: Some(fault),
+                    });
+                    break;
+                }
                 previous = cc.best.map(|(_, t)| t);
                 driver.advance();
                 increments.push(IncrementResult {
@@ -113,15 +169,24 @@ pub fn run(
     let summary = summarise(&increments, settings);
     let branches = branch_summary(&increments);
     let mut coverage = Vec::new();
+    // A path that stopped at a fault says nothing about what the rest would have reached.
+    let stopped = increments.iter().find(|i| i.fault.is_some()).map(|i| i.index);
+    if let Some(k) = stopped {
+        coverage.push(format!(
+            "the path stopped at a fault at increment {k} of {}: the increments after it were not checked",
+            path.increments.len()
+        ));
+    }
+    let stopped = stopped.is_some();
     // A routine without state variables has no inelastic branch to reach.
-    if info.nstate > 0 && !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
+    if info.nstate > 0 && !stopped && !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
         coverage.push(
             "the path never changed the state variables: only the elastic (or stateless) branch was checked; \
              load further, or start from an inelastic state"
                 .to_string(),
         );
     }
-    if !unloaded && increments.len() > 1 {
+    if !unloaded && !stopped && increments.len() > 1 {
         coverage.push(
             "the path never unloaded (the strain increment never opposed the stress): tangents after a load \
              reversal were not checked"

@@ -13,6 +13,7 @@ pub mod compare;
 pub mod convention;
 pub mod diagnose;
 pub mod driver;
+pub mod first_calls;
 pub mod mixed;
 pub mod path;
 pub mod probe;

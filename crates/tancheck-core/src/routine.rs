@@ -148,6 +148,13 @@ pub trait Routine {
     fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
         None
     }
+
+    /// Run the next real call under the full memory guards (reads past the end of the inputs;
+    /// the call repeated and compared bit for bit), if this routine has guards and they are
+    /// on. Returns whether it will. A routine without guards (a Rust model) ignores it.
+    fn guard_next_call_fully(&mut self) -> bool {
+        false
+    }
 }
 
 /// Optional capability: the same stress update in complex arithmetic, for complex-step
@@ -227,6 +234,11 @@ impl<'r> Caller<'r> {
 
     pub fn has_complex(&mut self) -> bool {
         self.routine.complex().is_some()
+    }
+
+    /// See [`Routine::guard_next_call_fully`].
+    pub fn guard_next_call_fully(&mut self) -> bool {
+        self.routine.guard_next_call_fully()
     }
 
     /// A real call, outputs pre-filled with NaN and the outcome reset.

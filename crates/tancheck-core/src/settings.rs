@@ -47,6 +47,10 @@ pub struct Settings {
     pub diagnose: bool,
     /// The Newton solve of mixed-control increments.
     pub mixed: crate::mixed::MixedSettings,
+    /// Look harder at first calls, cheaply: a zero increment from the start state (outputs
+    /// must be finite), and the full memory guards (reads past the end of the inputs; the call
+    /// repeated and compared bit for bit) on the first call of each newly reached branch.
+    pub first_calls: bool,
 }
 
 impl Default for Settings {
@@ -65,6 +69,7 @@ impl Default for Settings {
             worst_entries: 4,
             diagnose: true,
             mixed: crate::mixed::MixedSettings::default(),
+            first_calls: true,
         }
     }
 }

@@ -13,13 +13,15 @@
 //! stress), which keeps the components they lack at zero. Uniaxial and cohesive points have
 //! no frame to turn and are skipped, as are starts with nonzero strain, stress or state
 //! (their rotation would need the meaning of each state variable) and anisotropic models
-//! without `axes`.
+//! without `axes`: declared so (`anisotropic: true`), or, when nothing is declared, seen to be
+//! so (the elastic tangent at the start is not isotropic). `anisotropic: false` declares the
+//! law isotropic: then a response that does not rotate fails.
 //!
 //! Mismatches are Mandel (Frobenius) norms relative to the largest stress (tangent) norm
 //! along the path; both must stay within `tol` (default 1e-10) at every probed increment.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
-use crate::convention::{canonical_slot, Convention, PointKind};
+use crate::convention::{canonical_slot, PointKind};
 use crate::driver::Driver;
 use crate::routine::Caller;
 
@@ -106,20 +108,7 @@ fn mandel_norm(a: &[f64; 6]) -> f64 {
     (a[0] * a[0] + a[1] * a[1] + a[2] * a[2] + 2.0 * (a[3] * a[3] + a[4] * a[4] + a[5] * a[5])).sqrt()
 }
 
-/// A routine tangent as a canonical 6×6 Mandel matrix (row-major; rows and columns of the
-/// components the kind lacks are zero).
-fn canonical_mandel(conv: &Convention, tangent: &[f64]) -> [[f64; 6]; 6] {
-    let n = conv.ncomp();
-    let mut m = tangent.to_vec();
-    conv.tangent_to_mandel(&mut m);
-    let mut out = [[0.0; 6]; 6];
-    for (p, cp) in conv.order().iter().enumerate() {
-        for (q, cq) in conv.order().iter().enumerate() {
-            out[canonical_slot(*cp)][canonical_slot(*cq)] = m[p + q * n];
-        }
-    }
-    out
-}
+use super::conventions::canonical_mandel;
 
 fn fro6(m: &[[f64; 6]; 6]) -> f64 {
     m.iter().flatten().map(|x| x * x).sum::<f64>().sqrt()
@@ -159,6 +148,29 @@ impl Probe for Frame {
             ));
         }
         let anisotropic = env.spec.anisotropic.unwrap_or(false) || env.spec.axes.is_some();
+        if env.spec.anisotropic.is_none() && env.spec.axes.is_none() {
+            // Nothing declared: an anisotropic elastic response without material axes to rotate
+            // cannot be judged, so the probe is skipped with that reason rather than failed.
+            let t = match super::conventions::elastic_tangent(caller, env) {
+                Ok((t, _)) => t,
+                Err(f) => return Ok(faulted("frame", 1, &f)),
+            };
+            let present: Vec<usize> = conv.order().iter().map(|c| canonical_slot(*c)).collect();
+            let residual = super::conventions::isotropy_residual(&canonical_mandel(&conv, &t), &present);
+            if residual > super::conventions::DEFAULT_TOL {
+                let mut res = ProbeResult::skipped(
+                    "frame",
+                    format!(
+                        "the elastic response at the start is anisotropic (isotropy residual {residual:.1e}) and no \
+                         material axes are declared: give their property indices with `axes` to rotate them; \
+                         declare `\"anisotropic\": false` if the routine is meant to be isotropic (it then fails \
+                         here), and see the conventions probe for a wrong declared order or shear measure"
+                    ),
+                );
+                res.value = Some(residual);
+                return Ok(res);
+            }
+        }
         let mut props = env.props.to_vec();
         if anisotropic {
             let Some(axes) = &env.spec.axes else {

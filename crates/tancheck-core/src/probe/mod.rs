@@ -11,6 +11,7 @@ use crate::path::Path;
 use crate::routine::{Caller, Fault};
 use crate::settings::Settings;
 
+pub mod conventions;
 pub mod determinism;
 pub mod energy;
 pub mod frame;
@@ -48,7 +49,9 @@ pub struct ProbeSpec {
     /// rotate with the frame (anisotropic models); absent for isotropic models.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub axes: Option<Vec<usize>>,
-    /// frame: the model is anisotropic; without `axes` the probe is skipped with that reason.
+    /// frame: `true`, the model is anisotropic (without `axes` the probe is skipped with that
+    /// reason); `false`, it is isotropic (a response that does not rotate fails); absent, the
+    /// elastic response at the start decides (anisotropic without `axes`: skipped).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub anisotropic: Option<bool>,
 }
@@ -150,6 +153,7 @@ pub fn registry() -> Vec<Box<dyn Probe>> {
         Box::new(stability::Stability),
         Box::new(newton::NewtonRate),
         Box::new(frame::Frame),
+        Box::new(conventions::Conventions),
     ]
 }
 

@@ -15,7 +15,10 @@ impl Probe for ZeroIncrement {
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
         let tol = env.spec.tol.unwrap_or(1e-12);
-        let mut worst = (0.0f64, 0usize, true);
+        // The worst change of the stress, where it was; and the first increment where the
+        // fault appeared (a change beyond `tol`, or an output that is not finite), with what.
+        let mut worst = (0.0f64, 0usize);
+        let mut first: Option<(usize, bool, f64)> = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) {
                 return Ok(());
@@ -25,43 +28,47 @@ impl Probe for ZeroIncrement {
             let zero = vec![0.0; full.len()];
             d.set_increment_keep_count(&zero, 0.0);
             let r = d.base_call(c);
-            let out =
-                (d.base.stress.clone(), d.base.tangent.iter().chain(&d.base.stress).all(|x| x.is_finite()));
+            let stress = d.base.stress.clone();
+            let finite = d.base.tangent.iter().chain(&d.base.stress).all(|x| x.is_finite());
             d.set_increment_keep_count(&full, dtemp);
             d.base_call(c)?;
             r?;
             let scale = d.start().stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
             let diff =
-                out.0.iter().zip(&d.start().stress).fold(0.0f64, |a, (x, y)| a.max((x - y).abs())) / scale;
-            if diff > worst.0 || !out.1 {
-                worst = (diff, k, out.1 && worst.2);
+                stress.iter().zip(&d.start().stress).fold(0.0f64, |a, (x, y)| a.max((x - y).abs())) / scale;
+            let diff = if diff.is_nan() { f64::INFINITY } else { diff };
+            if diff > worst.0 {
+                worst = (diff, k);
+            }
+            if first.is_none() && (!finite || diff > tol) {
+                first = Some((k, finite, diff));
             }
             Ok(())
         });
         if let Err((k, f)) = walked {
             return Ok(faulted("zero-increment", k, &f));
         }
-        let ok = worst.0 <= tol && worst.2;
+        let ok = first.is_none();
         let mut r = ProbeResult::new(
             "zero-increment",
             if ok { ProbeStatus::Pass } else { ProbeStatus::Fail },
-            if ok {
-                format!("returns the start stress (worst change {:.2e}) and a finite tangent", worst.0)
-            } else if !worst.2 {
-                format!(
-                    "a zero increment gives a stress or tangent that is not finite (increment {})",
-                    worst.1
-                )
-            } else {
-                format!(
-                    "a zero increment changes the stress by {:.2e} of its scale (increment {})",
+            match first {
+                None => {
+                    format!("returns the start stress (worst change {:.2e}) and a finite tangent", worst.0)
+                }
+                Some((k, false, _)) => format!(
+                    "a zero increment gives a stress or tangent that is not finite, first at increment {k}"
+                ),
+                Some((k, true, diff)) => format!(
+                    "a zero increment changes the stress by {diff:.2e} of its scale, first at increment {k} \
+                     (worst {:.2e} at increment {})",
                     worst.0, worst.1
-                )
+                ),
             },
         );
         r.value = Some(worst.0);
         r.tol = Some(tol);
-        r.increment = (!ok).then_some(worst.1);
+        r.increment = first.map(|f| f.0);
         Ok(r)
     }
 }

@@ -1,0 +1,98 @@
+//! What a default check looks at besides the tangent, cheaply ([`Settings::first_calls`]):
+//!
+//! - one zero increment from the start state (Δε = 0, ΔT = 0), whose stress, state variables
+//!   and tangent must be finite numbers: a norm divided by itself, a direction normalised
+//!   without a guard, shows here (NaN on a zero increment);
+//! - the full memory guards on the first call of each newly reached branch (a branch is the
+//!   routine's own id with whether the state variables changed, as the report labels it):
+//!   the call is repeated with other poison after the end of every read-only array and the
+//!   results compared bit for bit, which finds reads past the end of the properties or state
+//!   variables and results that depend on the history of calls (saved variables).
+//!
+//! The cost is one call (two with the guards) at the start and two per branch, beside the
+//! dozens of calls each increment's schemes make.
+//!
+//! [`Settings::first_calls`]: crate::settings::Settings::first_calls
+
+use crate::bisect::judge::fault_record;
+use crate::driver::{Driver, PointState};
+use crate::report::{FaultRecord, IncrementResult};
+use crate::routine::{Caller, Fault, RoutineInfo};
+
+/// The index [`zero_increment`] gives its result in the report: before increment 1.
+pub const ZERO_INCREMENT_INDEX: usize = 0;
+
+/// The zero increment from `start`: `None` when it gave finite outputs; else an increment
+/// result (index 0) with the outputs that are not finite, or with the fault of the call.
+pub fn zero_increment(
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    props: &[f64],
+    start: &PointState,
+    dtime: f64,
+) -> Result<Option<IncrementResult>, String> {
+    let n = info.convention.ncomp();
+    let mut d = Driver::new(info, props, start.clone())?;
+    d.set_increment(&vec![0.0; n], 0.0, dtime);
+    // The first call of the check: the first branch reached.
+    caller.guard_next_call_fully();
+    let r = d.base_call(caller);
+    let mut result = IncrementResult {
+        index: ZERO_INCREMENT_INDEX,
+        reported_branch: (d.base.outcome.branch >= 0).then_some(d.base.outcome.branch),
+        state_changed: false,
+        strain: start.strain.clone(),
+        stress: start.stress.clone(),
+        checks: Vec::new(),
+        non_finite: Vec::new(),
+        solve: None,
+        diagnosis: None,
+        fault: None,
+    };
+    if let Err(f) = r {
+        result.fault = Some(fault_record(&f, &d, Some("zero increment from the start state".into())));
+        return Ok(Some(result));
+    }
+    for (what, v) in [("stress", &d.base.stress), ("state", &d.base.state), ("tangent", &d.base.tangent)] {
+        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
+            let count = v.iter().filter(|x| !x.is_finite()).count();
+            result.non_finite.push(format!(
+                "{what}[{i}] = {} for a zero increment from the start state{}",
+                v[i],
+                if count > 1 { format!(" (and {} more)", count - 1) } else { String::new() }
+            ));
+        }
+    }
+    Ok((!result.non_finite.is_empty()).then_some(result))
+}
+
+/// Branches reached so far, as (reported id, state changed).
+#[derive(Default)]
+pub struct Branches(Vec<(Option<i32>, bool)>);
+
+impl Branches {
+    /// Whether this branch is new (and remember it).
+    pub fn first(&mut self, reported: Option<i32>, state_changed: bool) -> bool {
+        let b = (reported, state_changed);
+        let new = !self.0.contains(&b);
+        if new {
+            self.0.push(b);
+        }
+        new
+    }
+}
+
+/// The driver's base call again, under the full memory guards: a fault when the routine reads
+/// past the end of an input or does not repeat itself.
+pub fn full_guard(driver: &mut Driver, caller: &mut Caller<'_>) -> Result<(), FaultRecord> {
+    if !caller.guard_next_call_fully() {
+        return Ok(());
+    }
+    driver.base_call(caller).map_err(|f: Fault| {
+        fault_record(
+            &f,
+            driver,
+            Some("the first call of a newly reached branch, under the full memory guards".into()),
+        )
+    })
+}
