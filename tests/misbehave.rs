@@ -65,6 +65,20 @@ fn memory_misbehaviour_is_reported_by_the_guards() {
     expect("bad_writes_strain", &[], 3, "wrote to its read-only input strain");
 }
 
+// A default check (no options) looks at first calls: the full guards on the first call of a
+// newly reached branch find a read past the properties there, and one zero increment from the
+// start finds a NaN of an unguarded normalisation.
+#[test]
+fn a_default_check_catches_misbehaviour_in_a_new_branch_and_on_a_zero_increment() {
+    expect("bad_branch_overread", &[], 3, "reads beyond its 2 properties");
+    expect("bad_branch_overread", &[], 3, "newly reached branch");
+    expect("bad_unguarded_norm", &[], 1, "stress[0] = NaN for a zero increment from the start state");
+    expect("bad_unguarded_norm", &[], 1, "increment 0 is a zero strain increment");
+    // With the guards off, the branch's over-read (a constant shift of the stress) goes unseen:
+    // the guards do the finding.
+    expect("bad_branch_overread", &["--guards", "off"], 0, "PASS");
+}
+
 #[test]
 fn crashes_are_faults_with_the_inputs_of_the_call() {
     expect("bad_null_deref", &[], 3, "SIGSEGV");

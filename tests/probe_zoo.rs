@@ -94,3 +94,30 @@ fn negative_dissipation_is_caught_by_the_energy_probe() {
     assert!(e.summary.contains("dissipated energy decreases"), "{e:?}");
     assert_eq!(status(&r, "tangent"), ProbeStatus::Pass);
 }
+
+// pz_saved_state under a default check (light guards, default settings): the full guards on
+// the first call of the first branch repeat that call and see another result. Without the
+// first-call looks the check does not say so.
+#[test]
+fn a_default_check_finds_results_that_depend_on_call_history() {
+    use tancheck::core::{check, Verdict};
+    let info = RoutineInfo {
+        name: "pz_saved_state".into(),
+        convention: Convention::new(PointKind::Solid3d, ShearMeasure::Engineering),
+        nstate: 0,
+        nprop: 2,
+    };
+    let library = Library::open(lib()).unwrap();
+    let path = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 1e-3, 3, 0);
+    let run = |settings: &Settings| {
+        let mut r = library.routine("pz_saved_state", info.clone()).unwrap();
+        let mut caller = Caller::new(&mut r);
+        check::run(&mut caller, &[210000.0, 0.3], PointState::zero(&info, 20.0), &path, settings).unwrap()
+    };
+    let rep = run(&Settings::default());
+    assert_eq!(rep.verdict, Verdict::RoutineFault, "{rep:#?}");
+    let f = rep.first_fault().unwrap();
+    assert!(f.message.contains("different results for two identical calls"), "{}", f.message);
+    let without = run(&Settings { first_calls: false, ..Settings::default() });
+    assert_ne!(without.verdict, Verdict::RoutineFault, "{without:#?}");
+}

@@ -164,6 +164,7 @@ fn without_the_twin_there_is_no_complex_capability() {
         funcs,
         vec![
             "bad_abort",
+            "bad_branch_overread",
             "bad_deep_recursion",
             "bad_divide_by_zero",
             "bad_exit",
@@ -173,6 +174,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_props_overread",
             "bad_state_overrun",
             "bad_tangent_hole",
+            "bad_unguarded_norm",
             "bad_writes_strain",
         ]
     );

@@ -144,7 +144,7 @@ pub fn run(
                         non_finite: cc.non_finite,
                         solve: solve_log,
                         diagnosis: cc.diagnosis,
-                        fault: Some(fault),
+                        fault: Some(*fault),
                     });
                     break;
                 }

@@ -83,16 +83,33 @@ impl Branches {
 }
 
 /// The driver's base call again, under the full memory guards: a fault when the routine reads
-/// past the end of an input or does not repeat itself.
-pub fn full_guard(driver: &mut Driver, caller: &mut Caller<'_>) -> Result<(), FaultRecord> {
+/// past the end of an input or does not repeat itself. The repeat is also compared bit for
+/// bit with the base call the check made (other calls came between them), which shows results
+/// that depend on the history of calls even when the guards' two calls in a row agree.
+pub fn full_guard(driver: &mut Driver, caller: &mut Caller<'_>) -> Result<(), Box<FaultRecord>> {
     if !caller.guard_next_call_fully() {
         return Ok(());
     }
-    driver.base_call(caller).map_err(|f: Fault| {
-        fault_record(
-            &f,
-            driver,
-            Some("the first call of a newly reached branch, under the full memory guards".into()),
-        )
-    })
+    let before: Vec<u64> = driver
+        .base
+        .stress
+        .iter()
+        .chain(&driver.base.state)
+        .chain(&driver.base.tangent)
+        .map(|x| x.to_bits())
+        .collect();
+    let why = "the first call of a newly reached branch, repeated under the full memory guards";
+    driver.base_call(caller).map_err(|f: Fault| Box::new(fault_record(&f, driver, Some(why.into()))))?;
+    let after =
+        driver.base.stress.iter().chain(&driver.base.state).chain(&driver.base.tangent).map(|x| x.to_bits());
+    if !before.into_iter().eq(after) {
+        let f = Fault::Misbehaved {
+            what:
+                "gave different results for two identical calls (the base call of an increment, made again \
+                   after other calls): its results depend on the history of calls (a static or SAVE variable)"
+                    .into(),
+        };
+        return Err(Box::new(fault_record(&f, driver, Some(why.into()))));
+    }
+    Ok(())
 }

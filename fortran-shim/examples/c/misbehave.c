@@ -23,12 +23,22 @@
  *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
  *                                                                      identical calls"
  *
+ * and these misbehave in every call of one branch, or of a zero increment, so that a default
+ * check (full guards on the first call of each new branch, one zero increment) finds them:
+ *
+ *   bad_branch_overread reports branch 0 while the end strain 11 is at most 5e-4, branch 1
+ *                       beyond, where it adds props[nprop] to stress[0]
+ *                                                                  -> "reads beyond its N properties"
+ *   bad_unguarded_norm  adds 0 * (dstrain / |dstrain|)[0] to stress[0]: a direction normalised
+ *                       without a guard, NaN for a zero increment    -> "stress[0] = NaN"
+ *
  * Build: cc -I fortran-shim/include -c misbehave.c               (bad_*)
  *        cc -I fortran-shim/include -DTC_COMPLEX -c misbehave.c  (bad_*_cx)
  */
 
 #include <stdlib.h>
 
+#include "tancheck_cstep.h"
 #include "tancheck_routine.h"
 
 /* Elastic stiffness, column-major c[i + j*n], engineering shear columns (Hughes 2000,
@@ -267,4 +277,32 @@ TC_ROUTINE(bad_hidden_state)
     static long calls = 0;
     calls += 1;
     stress[0] = stress[0] + (double)calls;
+}
+
+TC_ROUTINE(bad_branch_overread)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report)) {
+        return;
+    }
+    /* A second branch that reads one property more than it was given. */
+    if (tc_re(strain[0] + dstrain[0]) > 5e-4) {
+        report->branch = 1;
+        stress[0] = stress[0] + props[call->nprop];
+    }
+}
+
+TC_ROUTINE(bad_unguarded_norm)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report)) {
+        return;
+    }
+    /* The direction of the increment, normalised without a guard: 0/0 for a zero increment. */
+    tc_real norm2 = 0.0;
+    for (int i = 0; i < call->ncomp; ++i) {
+        norm2 += dstrain[i] * dstrain[i];
+    }
+    tc_real dir0 = dstrain[0] / tc_sqrt(norm2);
+    stress[0] = stress[0] + 0.0 * dir0;
 }

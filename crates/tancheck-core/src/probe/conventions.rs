@@ -170,10 +170,10 @@ pub fn isotropy_residual(m: &[[f64; 6]; 6], present: &[usize]) -> f64 {
 /// Relative asymmetry ‖M − Mᵀ‖ / ‖M‖ of a canonical Mandel matrix.
 pub fn asymmetry(m: &[[f64; 6]; 6]) -> f64 {
     let (mut d, mut n) = (0.0, 0.0);
-    for i in 0..6 {
-        for j in 0..6 {
-            d += (m[i][j] - m[j][i]).powi(2);
-            n += m[i][j] * m[i][j];
+    for (i, row) in m.iter().enumerate() {
+        for (j, &v) in row.iter().enumerate() {
+            d += (v - m[j][i]).powi(2);
+            n += v * v;
         }
     }
     if n == 0.0 {
