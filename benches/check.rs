@@ -47,6 +47,35 @@ fn bench(c: &mut Criterion) {
         })
     });
     g.finish();
+
+    // The cost of the first-call looks of a default check (a zero increment, full guards on
+    // the first call of each new branch) on a compiled routine through the guarded shim, along
+    // the default path: with them against without. The ratio of the two is the added cost.
+    let dir = std::env::temp_dir().join(format!("tancheck-bench-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let lib_path = dir.join("libj2_bench.so");
+    let src = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/j2.c");
+    tancheck::abi::build_library(&tancheck::abi::BuildOptions::new([src], &lib_path)).unwrap();
+    let lib = tancheck::abi::Library::open(&lib_path).unwrap();
+    let info = reference("j2", PointKind::Solid3d).unwrap().info().clone();
+    let path = tancheck::cli::cli::default_path(PointKind::Solid3d);
+    let mut g = c.benchmark_group("first calls");
+    for (name, on) in [
+        ("compiled j2, default path, default check", true),
+        ("compiled j2, default path, without first-call looks", false),
+    ] {
+        let settings = Settings { first_calls: on, ..Settings::default() };
+        let mut r =
+            lib.routine("c_j2", tancheck::core::RoutineInfo { name: "c_j2".into(), ..info.clone() }).unwrap();
+        g.bench_function(name, |b| {
+            b.iter(|| {
+                let mut caller = Caller::new(&mut r);
+                check::run(&mut caller, &PROPS, PointState::zero(&info, 20.0), &path, &settings).unwrap()
+            })
+        });
+    }
+    g.finish();
+    let _ = std::fs::remove_dir_all(&dir);
 }
 
 criterion_group!(benches, bench);
