@@ -11,7 +11,7 @@ use tancheck_core::{check, Caller, PointKind, Report, Scheme};
 
 use crate::exit;
 use crate::load::{load, start_state};
-use crate::manifest::{parse_path_arg, Manifest};
+use crate::manifest::{path_arg, Manifest};
 use crate::report::json::Json;
 use crate::report::terminal::{Detail, Terminal};
 use crate::report::{write_atomic, Reporter};
@@ -57,10 +57,10 @@ enum Command {
 struct CheckArgs {
     /// The manifest (JSON) that names the routine, its properties and the path.
     manifest: PathBuf,
-    /// Path to walk instead of the manifest's: SHAPE:PEAK:STEPS[:BACK] (shapes: uniaxial-strain,
-    /// shear-12, biaxial, hydrostatic, tension-shear, mixed-mode, and uniaxial-stress, which
-    /// holds every stress but 11 at zero).
-    #[arg(long, value_name = "SPEC")]
+    /// Path to walk instead of the manifest's: a path file (JSON, like a manifest's "path"), or
+    /// SHAPE:PEAK:STEPS[:BACK] (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic,
+    /// tension-shear, mixed-mode, and uniaxial-stress, which holds every stress but 11 at zero).
+    #[arg(long, value_name = "FILE|SPEC")]
     path: Option<String>,
     /// Scheme to run (repeat for several): forward, backward, central, central4, richardson,
     /// complex-step.
@@ -115,15 +115,36 @@ struct ProbeArgs {
     /// Use the thermal default suite (heating along the path).
     #[arg(long)]
     thermal: bool,
-    /// Path to walk instead of the suite's: SHAPE:PEAK:STEPS[:BACK].
-    #[arg(long, value_name = "SPEC")]
+    /// Path to walk instead of the manifest's: a path file (JSON, like a manifest's "path"), or
+    /// SHAPE:PEAK:STEPS[:BACK]. Without it, the manifest's path; the suite's when the manifest
+    /// has none or with --suite-path.
+    #[arg(long, value_name = "FILE|SPEC", conflicts_with = "suite_path")]
     path: Option<String>,
+    /// Walk the suite's path instead of the manifest's.
+    #[arg(long)]
+    suite_path: bool,
+    /// Memory guards: off, light (default) or full, as in `check`.
+    #[arg(long, value_name = "LEVEL")]
+    guards: Option<String>,
     /// Write the JSON report to FILE (`-` for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
+    /// Print only failed probes and the verdict.
+    #[arg(short, long, conflicts_with = "verbose")]
+    quiet: bool,
     /// Print the details of every probe.
     #[arg(short, long)]
     verbose: bool,
+}
+
+/// The level of `--guards`.
+fn guards_arg(g: &str) -> Result<crate::manifest::Guards> {
+    Ok(match g {
+        "off" => crate::manifest::Guards::Off,
+        "light" => crate::manifest::Guards::Light,
+        "full" => crate::manifest::Guards::Full,
+        other => bail!("--guards takes off, light or full; got `{other}`"),
+    })
 }
 
 #[derive(Args, Debug)]
@@ -241,15 +262,10 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     m.check.validate().map_err(anyhow::Error::msg)?;
     m.fp_traps |= a.fp_traps;
     if let Some(g) = &a.guards {
-        m.guards = match g.as_str() {
-            "off" => crate::manifest::Guards::Off,
-            "light" => crate::manifest::Guards::Light,
-            "full" => crate::manifest::Guards::Full,
-            other => bail!("--guards takes off, light or full; got `{other}`"),
-        };
+        m.guards = guards_arg(g)?;
     }
     let path = match &a.path {
-        Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
+        Some(p) => path_arg(p)?,
         None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
     };
     let report = run_manifest(&m, &dir, &path)?;
@@ -312,10 +328,13 @@ pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> 
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
-    let (m, dir) = Manifest::load(&a.manifest)?;
-    let suite = match &a.suite {
-        Some(f) => crate::suite::Suite::load(f)?,
-        None => crate::suite::Suite::default_for(m.routine.kind, a.thermal),
+    let (mut m, dir) = Manifest::load(&a.manifest)?;
+    if let Some(g) = &a.guards {
+        m.guards = guards_arg(g)?;
+    }
+    let (mut suite, suite_file) = match &a.suite {
+        Some(f) => (crate::suite::Suite::load(f)?, Some(f.clone())),
+        None => (crate::suite::Suite::default_for(m.routine.kind, a.thermal), None),
     };
     if !suite.kinds.is_empty() && !suite.kinds.contains(&m.routine.kind) {
         eprintln!(
@@ -323,10 +342,20 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
             suite.suite, suite.kinds, m.routine.kind
         );
     }
-    let path = match &a.path {
-        Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
-        None => suite.path().map_err(anyhow::Error::msg)?,
+    // The manifest's path, unless the user asks for another or for the suite's.
+    let path = match (&a.path, &m.path) {
+        (Some(p), _) => path_arg(p)?,
+        (None, Some(_)) if !a.suite_path => m
+            .path_or(suite.path().map_err(anyhow::Error::msg)?)
+            .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
+        _ => suite.path().map_err(anyhow::Error::msg)?,
     };
+    let mut notes = Vec::new();
+    match &suite_file {
+        // A suite file of the user's names increments the path must have.
+        Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,
+        None => notes.extend(suite.fit_at(&path)),
+    }
     let mut loaded = load(&m, &dir)?;
     let routine = loaded.routine();
     let start = start_state(&m, routine.info())?;
@@ -354,16 +383,28 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         }
     }
     if !to_stdout {
-        writeln!(out, "== {} — suite {} ==", report.routine, report.suite)?;
-        writeln!(
-            out,
-            "   path: {}
-",
-            report.path
-        )?;
+        let source = if a.path.is_some() {
+            "from --path"
+        } else if m.path.is_some() && !a.suite_path {
+            "the manifest's"
+        } else {
+            "the suite's"
+        };
+        if !a.quiet {
+            writeln!(out, "== {} — suite {} ==", report.routine, report.suite)?;
+            writeln!(out, "   path ({source}): {}", report.path)?;
+            for n in &notes {
+                writeln!(out, "   note: {n}")?;
+            }
+            writeln!(out)?;
+        }
         for r in &report.results {
+            let failed = r.status == tancheck_core::probe::ProbeStatus::Fail;
+            if a.quiet && !failed {
+                continue;
+            }
             writeln!(out, "   {:<15} {:<8} {}", r.probe, r.status.word(), r.summary)?;
-            if a.verbose || r.status == tancheck_core::probe::ProbeStatus::Fail {
+            if a.verbose || failed {
                 for d in &r.details {
                     writeln!(out, "                            {d}")?;
                 }
@@ -379,8 +420,10 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
             report.results.len(),
             if report.pass { 0 } else { 1 }
         )?;
-        for c in &report.cautions {
-            writeln!(out, "   caution: {c}")?;
+        if !a.quiet {
+            for c in &report.cautions {
+                writeln!(out, "   caution: {c}")?;
+            }
         }
     }
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })

@@ -239,10 +239,44 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
 }
 
 /// Parse a path given on the command line: `SHAPE:PEAK:STEPS[:BACK]`.
+/// A path file: a JSON object like a manifest's `path` (a shape with `peak` and `steps`, or
+/// `increments` one by one). Unknown fields are errors with file, line and column.
+pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
+    let text =
+        std::fs::read_to_string(file).map_err(|source| ManifestError::Read { path: file.into(), source })?;
+    let spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::Parse {
+        path: file.into(),
+        line: e.line(),
+        column: e.column(),
+        message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
+    })?;
+    let mut p =
+        path_from_spec(&spec).map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+    p.validate().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+    if spec.name.is_none() && spec.increments.is_some() {
+        p.name = format!("increments from {}", file.display());
+    }
+    Ok(p)
+}
+
+/// The argument of `--path`: a path file (an existing file, or a name ending in `.json`), or
+/// SHAPE:PEAK:STEPS[:BACK].
+pub fn path_arg(s: &str) -> anyhow::Result<Path> {
+    let f = FsPath::new(s);
+    if f.is_file() || s.ends_with(".json") {
+        Ok(load_path_file(f)?)
+    } else {
+        parse_path_arg(s).map_err(anyhow::Error::msg)
+    }
+}
+
 pub fn parse_path_arg(s: &str) -> Result<Path, String> {
     let parts: Vec<&str> = s.split(':').collect();
     if !(3..=4).contains(&parts.len()) {
-        return Err(format!("--path takes SHAPE:PEAK:STEPS[:BACK], e.g. tension-shear:0.004:8:4; got `{s}`"));
+        return Err(format!(
+            "--path takes a path file (JSON, like a manifest's \"path\") or SHAPE:PEAK:STEPS[:BACK], e.g. \
+             tension-shear:0.004:8:4; got `{s}`"
+        ));
     }
     let peak = parts[1].parse::<f64>().map_err(|_| format!("--path: `{}` is not a number", parts[1]))?;
     let steps = parts[2].parse::<usize>().map_err(|_| format!("--path: `{}` is not a count", parts[2]))?;

@@ -48,8 +48,62 @@ impl Suite {
                 });
             }
         }
-        s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        if s.probes.is_empty() {
+            return Err(ManifestError::Invalid {
+                path: file.into(),
+                message: "the suite has no probes; list at least one under \"probes\"".into(),
+            });
+        }
+        let path = s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        s.check_at(&path).map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
         Ok(s)
+    }
+
+    /// Every `at` of the suite names an increment of `path` (1 to its length).
+    pub fn check_at(&self, path: &Path) -> Result<(), String> {
+        let n = path.increments.len();
+        for p in &self.probes {
+            if let Some(at) = &p.at {
+                if at.is_empty() {
+                    return Err(format!("probe `{}`: `at` is empty, so the probe would never run", p.probe));
+                }
+                if let Some(k) = at.iter().find(|&&k| k == 0 || k > n) {
+                    return Err(format!(
+                        "probe `{}` runs at increment {k}, but the path ({}) has increments 1 to {n}",
+                        p.probe, path.name
+                    ));
+                }
+            }
+        }
+        Ok(())
+    }
+
+    /// A built-in suite on another path: `at` entries past the path are dropped (when none is
+    /// left, the probe runs at every increment). Returns what was changed, for the report.
+    pub fn fit_at(&mut self, path: &Path) -> Vec<String> {
+        let n = path.increments.len();
+        let mut notes = Vec::new();
+        for p in &mut self.probes {
+            if let Some(at) = &mut p.at {
+                let before = at.clone();
+                at.retain(|&k| k >= 1 && k <= n);
+                if at.len() != before.len() {
+                    if at.is_empty() {
+                        p.at = None;
+                        notes.push(format!(
+                            "probe `{}`: none of increments {before:?} is on this path of {n}; it runs at every increment",
+                            p.probe
+                        ));
+                    } else {
+                        notes.push(format!(
+                            "probe `{}`: runs at increments {at:?} of {before:?} (the path has {n})",
+                            p.probe
+                        ));
+                    }
+                }
+            }
+        }
+        notes
     }
 
     pub fn load(file: &FsPath) -> Result<Suite, ManifestError> {
@@ -98,5 +152,22 @@ mod tests {
         let bad = DEFAULT_SUITES[0].1.replace("\"determinism\"", "\"determinsm\"");
         let e = Suite::parse(&bad, FsPath::new("s.json")).unwrap_err().to_string();
         assert!(e.contains("unknown probe `determinsm`"), "{e}");
+    }
+
+    #[test]
+    fn a_suite_without_probes_or_whose_at_misses_its_path_is_an_error() {
+        let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3}, "probes": []}"#;
+        let e = Suite::parse(text, FsPath::new("s.json")).unwrap_err().to_string();
+        assert!(e.starts_with("s.json: the suite has no probes"), "{e}");
+        let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3},
+            "probes": [{"probe": "refinement", "at": [2, 9]}]}"#;
+        let e = Suite::parse(text, FsPath::new("s.json")).unwrap_err().to_string();
+        assert!(e.starts_with("s.json: probe `refinement` runs at increment 9"), "{e}");
+        // A built-in suite on a shorter path keeps what fits.
+        let mut s = Suite::default_for(tancheck_core::PointKind::Solid3d, false);
+        let short = tancheck_core::path::Path::ramp(tancheck_core::path::Shape::UniaxialStrain, 1e-3, 4, 0);
+        let notes = s.fit_at(&short);
+        assert!(s.check_at(&short).is_ok());
+        assert!(notes.iter().any(|n| n.contains("refinement")), "{notes:?}");
     }
 }

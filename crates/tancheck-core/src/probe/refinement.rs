@@ -61,8 +61,11 @@ impl Probe for Refinement {
                 if w[0] > floor && w[1] > floor {
                     orders.push((w[0] / w[1]).log2());
                 }
-                // Changes must shrink once above the rounding floor.
-                if !w[1].is_finite() || (w[1] > floor && w[1] > 1.05 * w[0]) {
+                // Changes must shrink once above the rounding floor. A change that rises from
+                // rounding level is no divergence: a one-step update exact for this increment
+                // (radial return under proportional loading) changes only once the
+                // sub-increment boundaries split a kink such as the yield point.
+                if !w[1].is_finite() || (w[0] > floor && w[1] > 1.05 * w[0]) {
                     bad = Some((k, changes.clone()));
                 }
             }

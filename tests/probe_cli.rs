@@ -1,0 +1,152 @@
+//! `tancheck probe` from the command line: the manifest's path unless asked otherwise, a path
+//! file with `--path FILE`, `--guards` and `-q` as in `check`, and suites that cannot run
+//! (no probes, `at` past the path) as errors naming the file (exit 2).
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-probe-cli-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn write(dir: &Path, name: &str, body: &str) -> PathBuf {
+    let p = dir.join(name);
+    std::fs::write(&p, body).unwrap();
+    p
+}
+
+/// Built-in J2 (demo properties) along uniaxial strain in 4 increments.
+const J2_MANIFEST: &str = r#"{
+  "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+  "path": { "shape": "uniaxial-strain", "peak": 0.004, "steps": 4 }
+}"#;
+
+fn probe(args: &[&str], dir: &Path) -> (Option<i32>, String) {
+    let o = bin().arg("probe").args(args).current_dir(dir).output().unwrap();
+    (o.status.code(), text(&o))
+}
+
+#[test]
+fn the_manifest_path_is_walked_unless_the_suites_is_asked_for() {
+    let d = scratch("paths");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let m = m.to_str().unwrap();
+    let (c, t) = probe(&[m], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("path (the manifest's): uniaxial-strain"), "{t}");
+    assert!(t.contains("consistent at 4 increments"), "{t}");
+    // The built-in suite's `at` entries past 4 increments are dropped, and said so.
+    assert!(t.contains("note: probe `refinement`"), "{t}");
+
+    let (c, t) = probe(&[m, "--suite-path"], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("path (the suite's): tension-shear"), "{t}");
+    assert!(t.contains("consistent at 12 increments"), "{t}");
+
+    // A path file.
+    let p = write(
+        &d,
+        "path.json",
+        r#"{ "increments": [ {"dstrain": [1e-3, 0, 0, 0, 0, 0]}, {"dstrain": [1e-3, 0, 0, 0, 0, 2e-4]}, {"dstrain": [-1e-3, 0, 0, 0, 0, 0]} ] }"#,
+    );
+    let (c, t) = probe(&[m, "--path", p.to_str().unwrap()], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("path (from --path)"), "{t}");
+    assert!(t.contains("consistent at 3 increments"), "{t}");
+    // The same file for `check`.
+    let o = bin().args(["check", m, "--path", p.to_str().unwrap()]).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+
+    // A broken path file: exit 2 with the file, line and column.
+    let bad =
+        write(&d, "bad.json", "{ \"increments\": [ {\"dstrain\": [1e-3, 0, 0, 0, 0, 0], \"dtemps\": 1} ] }");
+    let (c, t) = probe(&[m, "--path", bad.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("bad.json:1:"), "{t}");
+    assert!(t.contains("dtemps"), "{t}");
+}
+
+#[test]
+fn quiet_prints_only_failures_and_the_verdict() {
+    let d = scratch("quiet");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let (c, t) = probe(&[m.to_str().unwrap(), "-q"], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("verdict: PASS"), "{t}");
+    assert!(!t.contains("symmetry") && !t.contains("caution"), "{t}");
+    // A flawed tangent: the failed probes are listed.
+    let flawed = write(&d, "f.json", &J2_MANIFEST.replace("\"j2\"", "\"j2-continuum\""));
+    let (c, t) = probe(&[flawed.to_str().unwrap(), "-q"], &d);
+    assert_eq!(c, Some(1), "{t}");
+    assert!(t.contains("tangent") && t.contains("FAIL"), "{t}");
+    assert!(!t.contains("symmetry"), "{t}");
+}
+
+#[test]
+fn guards_are_set_as_in_check() {
+    let d = scratch("guards");
+    let lib = d.join("libmisbehave.so");
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+    let o = bin().arg("build").arg(&src).arg("-o").arg(&lib).output().unwrap();
+    assert!(o.status.success(), "{}", text(&o));
+    let m = write(
+        &d,
+        "m.json",
+        &format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_props_overread", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            lib.display()
+        ),
+    );
+    let m = m.to_str().unwrap();
+    let (_, t) = probe(&[m, "-q"], &d);
+    assert!(!t.contains("reads beyond"), "light guards cannot see a read: {t}");
+    let (c, t) = probe(&[m, "-q", "--guards", "full"], &d);
+    assert_eq!(c, Some(1), "{t}");
+    assert!(t.contains("reads beyond its 2 properties"), "{t}");
+    let (c, t) = probe(&[m, "--guards", "heavy"], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("off, light or full"), "{t}");
+}
+
+#[test]
+fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
+    let d = scratch("suites");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let m = m.to_str().unwrap();
+    let empty = write(
+        &d,
+        "empty.json",
+        r#"{"suite": "e", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3}, "probes": []}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", empty.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("empty.json") && t.contains("no probes"), "{t}");
+    assert!(!t.contains("PASS"), "{t}");
+
+    // Its `at` fits its own path of 10 increments but not the manifest's 4.
+    let far = write(
+        &d,
+        "far.json",
+        r#"{"suite": "f", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 10},
+            "probes": [{"probe": "zero-increment", "at": [9]}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", far.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("far.json") && t.contains("runs at increment 9"), "{t}");
+    assert!(!t.contains("PASS"), "{t}");
+    // On the suite's own path it runs.
+    let (c, t) = probe(&[m, "--suite", far.to_str().unwrap(), "--suite-path"], &d);
+    assert_eq!(c, Some(0), "{t}");
+}
