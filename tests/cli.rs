@@ -174,8 +174,30 @@ fn selftest_gets_every_zoo_row_right() {
         "{t}"
     );
     assert!(t.lines().any(|l| l.starts_with("bimodulus ") && l.contains("PASS")), "{t}");
-    if tancheck::abi::fortran_for_test("selftest_gets_every_zoo_row_right (Fortran rows)") {
-        assert!(t.contains("Fortran"), "{t}");
+    // Conventions rows: a correct anisotropic routine is not failed by the frame probe; a
+    // wrong declared order or shear measure is named (by the check and by the probe).
+    let languages: &[&str] =
+        if tancheck::abi::fortran_for_test("selftest_gets_every_zoo_row_right (Fortran rows)") {
+            assert!(t.contains("Fortran"), "{t}");
+            &["Rust", "C", "Fortran"]
+        } else {
+            &["Rust", "C"]
+        };
+    for lang in languages {
+        let row = |variant: &str, found: &str| {
+            t.lines().any(|l| {
+                l.starts_with(variant)
+                    && l.contains(&format!(" {lang} "))
+                    && l.contains(found)
+                    && l.ends_with("yes")
+            })
+        };
+        assert!(
+            row("orthotropic, frame probe", "frame skipped") || row("orthotropic, frame probe", "frame pass"),
+            "{t}"
+        );
+        assert!(row("elastic, wrong order", "mismatch named"), "{lang}: {t}");
+        assert!(row("elastic, wrong shear", "mismatch named"), "{lang}: {t}");
     }
 }
 

@@ -13,6 +13,8 @@ use tancheck_core::path::{Path, PathIncrement, Shape};
 use tancheck_core::{check, Caller, PointKind, PointState, Report, Routine, Settings, Verdict};
 use tancheck_models::zoo::{self, ZooEntry};
 
+mod conventions;
+
 /// Demo properties for a zoo entry.
 fn props(name: &str) -> Vec<f64> {
     if name.starts_with("j2") {
@@ -158,6 +160,7 @@ pub fn run(verbose: bool) -> Result<i32> {
             rows.push(row(e, language, &rep));
         }
     }
+    rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
     writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
