@@ -74,6 +74,28 @@ fn a_default_check_catches_misbehaviour_in_a_new_branch_and_on_a_zero_increment(
     expect("bad_branch_overread", &[], 3, "newly reached branch");
     expect("bad_unguarded_norm", &[], 1, "stress[0] = NaN for a zero increment from the start state");
     expect("bad_unguarded_norm", &[], 1, "increment 0 is a zero strain increment");
+    expect(
+        "bad_unguarded_norm",
+        &[],
+        1,
+        "verdict: FAIL — the routine returned values that are not finite numbers",
+    );
+    // Bisect works on the path's increments and says why it has nothing to do.
+    let d = scratch("bisect-zero");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_unguarded_norm", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            c_lib().display()
+        ),
+    )
+    .unwrap();
+    let o = bin().arg("bisect").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{t}");
+    assert!(t.contains("the zero increment from the start state"), "{t}");
     // With the guards off, the branch's over-read (a constant shift of the stress) goes unseen:
     // the guards do the finding.
     expect("bad_branch_overread", &["--guards", "off"], 0, "PASS");
@@ -86,6 +108,11 @@ fn crashes_are_faults_with_the_inputs_of_the_call() {
     expect("bad_abort", &[], 3, "SIGABRT");
     expect("bad_deep_recursion", &[], 3, "stack");
     expect("bad_null_deref", &[], 3, "inputs of that call (increment 2)");
+    // The path stopped at the crash: the coverage warning says so, and does not claim the path
+    // never changed the state variables (the manifest declares two).
+    let (_, t) = check(c_lib(), "bad_null_deref", &[]);
+    assert!(t.contains("the path stopped at a fault at increment 2 of 3"), "{t}");
+    assert!(!t.contains("never changed the state") && !t.contains("never unloaded"), "{t}");
 }
 
 #[test]

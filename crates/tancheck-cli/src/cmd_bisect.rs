@@ -215,8 +215,16 @@ pub fn write_outcome(o: &BisectOutcome, out: &mut dyn Write) -> std::io::Result<
     writeln!(out, "== bisect {} ==", o.routine)?;
     writeln!(out, "   path: {}", o.path)?;
     match &o.located {
-        None => {
+        None if o.verdict == Verdict::Pass => {
             writeln!(out, "   every increment passed: nothing to bisect")?;
+        }
+        None => {
+            // The check failed before the path: the zero increment from the start state.
+            writeln!(
+                out,
+                "   no increment of the path failed the check; the zero increment from the start state \
+                 (increment 0 of `tancheck check`) did, and it is not on the path: nothing to bisect"
+            )?;
         }
         Some(l) => {
             write_located(out, l, "   ")?;

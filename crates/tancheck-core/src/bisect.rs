@@ -210,9 +210,10 @@ pub struct Located {
     pub calls: u64,
 }
 
-/// The first increment of a report that did not pass.
+/// The first increment of the path that did not pass (the zero increment a default check makes
+/// from the start state, reported as increment 0, is not on the path and has nothing to bisect).
 pub fn first_failure(report: &Report) -> Option<&IncrementResult> {
-    report.increments.iter().find(|i| !i.passed())
+    report.increments.iter().find(|i| i.index != crate::first_calls::ZERO_INCREMENT_INDEX && !i.passed())
 }
 
 /// The base call of the increment the driver holds (set from `inc`), as [`crate::check::run`]

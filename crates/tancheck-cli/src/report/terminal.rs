@@ -132,6 +132,15 @@ impl Reporter for Terminal {
             Verdict::Pass => {
                 "the returned tangent is the derivative of the stress update at every increment checked"
             }
+            // Only outputs that are not finite numbers, no tangent mismatch.
+            Verdict::TangentFailure
+                if r.increments.iter().filter(|i| !i.passed()).all(|i| {
+                    !i.non_finite.is_empty()
+                        && i.checks.iter().all(tancheck_core::report::SchemeCheck::passed)
+                }) =>
+            {
+                "the routine returned values that are not finite numbers"
+            }
             Verdict::TangentFailure => {
                 "the returned tangent differs from the derivative of the stress update"
             }
