@@ -14,7 +14,8 @@
 //!   C44 = (C11 − C12)/2; Nye 1957, Physical Properties of Crystals, ch. VIII; from memory);
 //! - an anisotropic law with a stored energy has a symmetric Mandel tangent (major symmetry);
 //!   a wrong shear measure multiplies its normal/shear coupling by 2 on one side and ½ on the
-//!   other.
+//!   other. With engineering shear every choice of shear slots keeps a symmetric tangent
+//!   symmetric, so symmetry tells the shear measure, never the order.
 //!
 //! What the evidence cannot tell, the probe says instead of guessing:
 //!
@@ -270,45 +271,50 @@ pub fn analyse(conv: &Convention, tangent: &[f64], tol: f64) -> Finding {
         }
         let behaves = closest(|h| h.isotropy).expect("one reading fits");
         let evidence = format!(
-            "isotropic as {} (residual {:.1e}); as declared the residual is {:.1e}",
-            describe(&behaves.order, behaves.shear),
-            behaves.isotropy,
-            declared.isotropy
+            "isotropic in that reading, residual {:.1e}; as declared {:.1e}",
+            behaves.isotropy, declared.isotropy
         );
         return Finding::Other { behaves, declared, evidence };
     }
-    // Anisotropic: major symmetry is the only evidence, and it tells only when exactly one
-    // reading is symmetric.
+    // Anisotropic: major symmetry is the only evidence. With engineering shear every choice of
+    // shear slots keeps a symmetric tangent symmetric, so symmetry tells the shear measure
+    // (through the normal/shear coupling), not the order.
     let symmetric: Vec<&Hypothesis> = all.iter().filter(|h| h.asymmetry <= tol).collect();
     let aniso = format!("the elastic response is anisotropic (isotropy residual {best_iso:.1e})");
-    let unknown_order = "the order among the normal and among the shear components cannot be told from it";
-    match symmetric.as_slice() {
-        [] => Finding::Inconclusive { why: format!("{aniso} and unsymmetric in every reading") },
-        [one] if one.order == declared.order && one.shear == declared.shear => Finding::AsDeclared {
-            evidence: format!(
-                "{aniso}; symmetric only as declared ({:.1e}); {unknown_order}",
-                declared.asymmetry
-            ),
-        },
-        [one] => {
-            let behaves = (*one).clone();
-            let evidence = format!(
-                "{aniso}; symmetric only as {} ({:.1e}), not as declared ({:.1e}); {unknown_order}",
-                behaves.describe(),
-                behaves.asymmetry,
-                declared.asymmetry
-            );
-            Finding::Other { behaves, declared, evidence }
-        }
-        several => Finding::Inconclusive {
+    let unknown_order = "the order of the components cannot be told from it";
+    let Some(first) = symmetric.first() else {
+        return Finding::Inconclusive { why: format!("{aniso} and unsymmetric in every reading") };
+    };
+    if symmetric.iter().any(|h| h.shear != first.shear) {
+        return Finding::Inconclusive {
             why: format!(
-                "{aniso} and symmetric in {} readings{}: its coupling between normal and shear components is too \
-                 weak to tell the order or the shear measure",
-                several.len(),
-                if declared.asymmetry <= tol { ", the declared one among them" } else { " (not the declared one)" }
+                "{aniso} and symmetric with either shear measure: its coupling between normal and shear \
+                 components is too weak to tell the shear measure, and {unknown_order}"
             ),
-        },
+        };
     }
+    let measure = |m: ShearMeasure| match m {
+        ShearMeasure::Engineering => "engineering",
+        ShearMeasure::Tensor => "tensor",
+    };
+    if declared.asymmetry <= tol {
+        return Finding::AsDeclared {
+            evidence: format!(
+                "{aniso}, symmetric only with {} shear, as declared ({:.1e}); {unknown_order}",
+                measure(declared.shear),
+                declared.asymmetry
+            ),
+        };
+    }
+    let behaves = (*symmetric.iter().min_by_key(|h| distance(h, &declared)).expect("one fits")).clone();
+    let evidence = format!(
+        "{aniso}, symmetric only with {} shear ({:.1e}), not as declared ({:.1e}){}",
+        measure(behaves.shear),
+        behaves.asymmetry,
+        declared.asymmetry,
+        if symmetric.len() > 1 { format!("; {unknown_order}") } else { String::new() }
+    );
+    Finding::Other { behaves, declared, evidence }
 }
 
 /// The numerical elastic tangent at the start: around a zero increment, by the complex step
@@ -464,9 +470,17 @@ mod tests {
         let f = analyse(&declared, &coupled(&actual), DEFAULT_TOL);
         let Finding::Other { behaves, .. } = &f else { panic!("{f:?}") };
         assert_eq!(behaves.shear, ShearMeasure::Tensor);
-        assert!(f.sentence().contains("cannot be told"), "{}", f.sentence());
         let f = analyse(&actual, &coupled(&actual), DEFAULT_TOL);
         assert!(matches!(f, Finding::AsDeclared { .. }), "{f:?}");
+        // Engineering shear, declared so: symmetric in every choice of shear slots, so the
+        // measure is confirmed and the order is said to be unknown.
+        let f = analyse(&declared, &coupled(&declared), DEFAULT_TOL);
+        assert!(matches!(f, Finding::AsDeclared { .. }), "{f:?}");
+        assert!(f.sentence().contains("cannot be told"), "{}", f.sentence());
+        // Engineering shear declared as tensor: named.
+        let f = analyse(&actual, &coupled(&declared), DEFAULT_TOL);
+        let Finding::Other { behaves, .. } = &f else { panic!("{f:?}") };
+        assert_eq!(behaves.shear, ShearMeasure::Engineering);
 
         // Without coupling (axes along the global ones) it cannot tell.
         let mut t = isotropic(&actual, LAMBDA, MU);
