@@ -136,6 +136,10 @@ impl Reporter for Terminal {
                 "the returned tangent differs from the derivative of the stress update"
             }
             Verdict::RoutineFault => "the routine crashed or could not compute an increment",
+            Verdict::TwinNotSafe => {
+                "the returned tangent agrees with the real difference schemes, but the complex-step twin is \
+                 not complex-step safe (its results were set aside; see the diagnosis for the usual culprits)"
+            }
         };
         writeln!(out, "   verdict: {} — {what} (exit {})", r.verdict.word(), r.exit_code())?;
         Ok(())
@@ -146,11 +150,7 @@ impl Reporter for Terminal {
 fn cell(c: &SchemeCheck) -> String {
     let mut s = match &c.tangent {
         CheckOutcome::Compared(cmp) => {
-            format!(
-                "{} {}",
-                if cmp.pass { "ok" } else { "FAIL" },
-                sci(cmp.norm_error.max(cmp.worst_entry_error))
-            )
+            format!("{} {}", if cmp.pass { "ok" } else { "FAIL" }, sci(cmp.error()))
         }
         CheckOutcome::Skipped { reason } => format!("skipped ({reason})"),
         CheckOutcome::Fault(_) => "CRASH".into(),
@@ -179,6 +179,14 @@ fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::R
                     sci(cmp.worst_entry_error),
                     sci(cmp.tol)
                 )?;
+                if cmp.soft_error > cmp.tol {
+                    writeln!(
+                        out,
+                        "          along {}: error {} relative to the response in that direction",
+                        cmp.soft_direction,
+                        sci(cmp.soft_error)
+                    )?;
+                }
                 if cmp.non_finite_returned > 0 {
                     writeln!(
                         out,
@@ -217,6 +225,9 @@ pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
                 sci(k.forward_error),
                 sci(k.backward_error)
             )?;
+            if !k.columns.is_empty() {
+                writeln!(out, "          side matched per column: {}", k.sides)?;
+            }
         }
     }
     for s in &d.studies {
