@@ -15,7 +15,7 @@ use tancheck_models::zoo::{self, ZooEntry};
 
 /// Demo properties for a zoo entry.
 fn props(name: &str) -> Vec<f64> {
-    if name.starts_with("j2") {
+    if name.starts_with("j2") || name.starts_with("twin-") {
         vec![210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0]
     } else if name.starts_with("bimodulus") {
         vec![200000.0, 50000.0, 0.25]

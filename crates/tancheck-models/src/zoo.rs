@@ -12,14 +12,14 @@
 
 mod j2_flaw;
 
-pub use j2_flaw::{FlawedJ2, J2Flaw, UNIT_FACTOR};
+pub use j2_flaw::{FlawedJ2, J2Flaw, RANK_TWO_FACTOR, SINGLE_ENTRY_FACTOR, UNIT_FACTOR};
 
 use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
 
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
 /// Every finding an entry may expect. `none`: the routine is correct and must pass.
-pub const FINDINGS: [&str; 14] = [
+pub const FINDINGS: [&str; 22] = [
     "shear-factor",
     "shear-permutation",
     "transposed",
@@ -28,6 +28,14 @@ pub const FINDINGS: [&str; 14] = [
     "continuum-tangent",
     "stale-tangent",
     "rank-one-term",
+    "term-scaled",
+    "term-sign",
+    "term-missing",
+    "single-entry",
+    "symmetrized",
+    "rank-two",
+    "dtemp-partial",
+    "twin-not-complex-step-safe",
     "one-column",
     "kink-neither-side",
     "dtemp",
@@ -74,7 +82,7 @@ pub struct ZooEntry {
     pub fortran_symbol: Option<&'static str>,
 }
 
-const J2_ROWS: [ZooEntry; 10] = [
+const J2_ROWS: [ZooEntry; 15] = [
     ZooEntry {
         name: J2::NAME,
         description: "J2 plasticity with the consistent tangent (the reference the variants spoil)",
@@ -128,7 +136,7 @@ const J2_ROWS: [ZooEntry; 10] = [
         name: "j2-no-kinematic",
         description:
             "kinematic modulus left out of the plastic correction of the tangent, kept in the update",
-        expected: "rank-one-term",
+        expected: "term-scaled",
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_no_kinematic"),
         fortran_symbol: None,
@@ -153,10 +161,53 @@ const J2_ROWS: [ZooEntry; 10] = [
         name: "j2-reversal",
         description: "plastic correction of the tangent with the wrong sign, only in yielding after a load \
                       reversal (the last flow direction kept in ncomp extra state entries)",
-        expected: "rank-one-term",
+        expected: "term-sign",
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_reversal"),
         fortran_symbol: None,
+    },
+    ZooEntry {
+        name: "j2-single-entry",
+        description: "one entry of the tangent (33/22) off by 1e-4",
+        expected: "single-entry",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_single_entry"),
+        fortran_symbol: Some("f_j2_single_entry"),
+    },
+    ZooEntry {
+        name: "j2-plastic-sign",
+        description: "plastic correction of the tangent with the wrong sign in every plastic increment",
+        expected: "term-sign",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_plastic_sign"),
+        fortran_symbol: Some("f_j2_plastic_sign"),
+    },
+    ZooEntry {
+        name: "j2-rank-two",
+        description: "after yield, a spurious pressure coupling c(n⊗1 + 1⊗n) in the tangent (rank two)",
+        expected: "rank-two",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_rank_two"),
+        fortran_symbol: Some("f_j2_rank_two"),
+    },
+    ZooEntry {
+        name: "twin-real-sqrt",
+        description: "consistent J2 whose complex twin takes a real-only square root in the norm of the \
+                      flow direction (Rust: the norm's real part kept)",
+        expected: "twin-not-complex-step-safe",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_twin_real_sqrt"),
+        fortran_symbol: Some("f_twin_real_sqrt"),
+    },
+    ZooEntry {
+        name: "twin-conjugate",
+        description:
+            "consistent J2 whose complex twin takes the norm with a conjugate (C conj, Fortran \
+                      dot_product; Rust has no conjugate: the norm's real part kept, the same to first order)",
+        expected: "twin-not-complex-step-safe",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_twin_conjugate"),
+        fortran_symbol: Some("f_twin_conjugate"),
     },
 ];
 
