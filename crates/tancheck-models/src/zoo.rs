@@ -238,7 +238,7 @@ const ELASTIC_ROWS: [ZooEntry; 3] = [
     },
 ];
 
-const THERMO_ROWS: [ZooEntry; 2] = [
+const THERMO_ROWS: [ZooEntry; 3] = [
     ZooEntry {
         name: Thermo::NAME,
         description:
@@ -257,9 +257,18 @@ const THERMO_ROWS: [ZooEntry; 2] = [
         c_symbol: Some("c_thermo_dtemp_sign"),
         fortran_symbol: Some("f_thermo_dtemp_sign"),
     },
+    ZooEntry {
+        name: Thermo::PARTIAL_DTEMP_NAME,
+        description: "thermo-elasticity whose temperature derivative of the stress misses its \
+                      thermal-expansion term",
+        expected: "dtemp-partial",
+        kinds: &Thermo::KINDS,
+        c_symbol: Some("c_thermo_partial_dtemp"),
+        fortran_symbol: Some("f_thermo_partial_dtemp"),
+    },
 ];
 
-const COHESIVE_ROWS: [ZooEntry; 4] = [
+const COHESIVE_ROWS: [ZooEntry; 5] = [
     ZooEntry {
         name: Cohesive::NAME,
         description: "bilinear mixed-mode cohesive law with its consistent tangent (correct)",
@@ -291,6 +300,14 @@ const COHESIVE_ROWS: [ZooEntry; 4] = [
         kinds: &Cohesive::KINDS,
         c_symbol: Some("c_cohesive_transposed"),
         fortran_symbol: Some("f_cohesive_transposed"),
+    },
+    ZooEntry {
+        name: Cohesive::SYMMETRIZED_NAME,
+        description: "cohesive law returning the symmetric part of its unsymmetric mixed-mode tangent",
+        expected: "symmetrized",
+        kinds: &Cohesive::KINDS,
+        c_symbol: Some("c_cohesive_symmetrized"),
+        fortran_symbol: Some("f_cohesive_symmetrized"),
     },
 ];
 
