@@ -412,4 +412,69 @@ mod tests {
         assert_eq!(c.non_finite_returned, 1);
         assert!(c.worst_entry_error.is_infinite());
     }
+
+    // A returned zero ∂σ/∂T against rounding noise of a difference in the temperature is not a
+    // 100 % error: the floor is a stress scale per temperature scale. A genuine derivative of
+    // a thermo-elastic law (−C:1 α = −3κα ≈ −6.3 MPa/K for steel, K = E/(3(1 − 2ν)), E = 210 GPa, ν = 0.3,
+    // α = 12e-6/K: EN 1993-1-1 §3.2.6, memory) returned as zero still fails.
+    #[test]
+    fn dtemp_zero_against_noise_passes_and_against_a_real_derivative_fails() {
+        let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+        let stress = [300.0, 100.0, 100.0, 0.0, 0.0, 50.0];
+        let tangent = iso(121153.8, 80769.2, &conv);
+        let floor = dtemp_floor(&stress, &tangent, 2e-3, 20.0);
+        assert!(floor > 0.0);
+        let zero = [0.0; 6];
+        let noise = [3e-9, -2e-9, 1e-9, 0.0, 4e-10, 0.0];
+        let c = compare_dtemp_floor(&conv, &zero, &noise, 1e-6, 1e-2, 1, floor);
+        assert!(c.pass, "{c:?}");
+        assert!(!compare_dtemp(&conv, &zero, &noise, 1e-6, 1e-2, 1).pass, "without the floor: 100 %");
+        let k = 210000.0 / (3.0 * (1.0 - 2.0 * 0.3));
+        let real: [f64; 6] = [-3.0 * k * 12e-6, -3.0 * k * 12e-6, -3.0 * k * 12e-6, 0.0, 0.0, 0.0];
+        assert!((real[0] + 6.3).abs() < 0.01, "{}", real[0]);
+        assert!(!compare_dtemp_floor(&conv, &zero, &real, 1e-6, 1e-2, 1, floor).pass);
+    }
+
+    // The soft-direction error: the J2 worked case of REFERENCES.md (θ = 0.5446266,
+    // θ̄ = 0.5381686) with the plastic correction 2μθ̄ n⊗n off by 1 %: the norm sees it against
+    // the elastic scale, the softest direction n against its own modulus 2μ(θ − θ̄) (or the
+    // soft floor).
+    #[test]
+    fn an_error_in_the_soft_direction_is_measured_against_the_soft_modulus() {
+        let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+        let (e, nu) = (200000.0, 0.3);
+        let mu = e / (2.0 * (1.0 + nu));
+        let kappa = e / (3.0 * (1.0 - 2.0 * nu));
+        let (theta, theta_bar) = (0.5446266, 0.5381686);
+        let nv = [2.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), 0.0, 0.0, 0.0];
+        let make = |tb: f64| {
+            let mut c = vec![0.0; 36];
+            for j in 0..6 {
+                for i in 0..6 {
+                    let one = if i < 3 && j < 3 { 1.0 } else { 0.0 };
+                    let id = if i == j {
+                        if i < 3 {
+                            1.0
+                        } else {
+                            0.5
+                        }
+                    } else {
+                        0.0
+                    };
+                    c[i + 6 * j] =
+                        kappa * one + 2.0 * mu * theta * (id - one / 3.0) - 2.0 * mu * tb * nv[i] * nv[j];
+                }
+            }
+            c
+        };
+        let good = make(theta_bar);
+        let bad = make(theta_bar * 1.01);
+        let c = compare_along(&conv, &bad, &good, 1e-4, 1e-2, 1, Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
+        let soft_modulus = 2.0 * mu * (theta - theta_bar);
+        let want = 0.01 * 2.0 * mu * theta_bar / soft_modulus.max(SOFT_FLOOR * 4.0e5);
+        assert!(c.soft_error > 10.0 * c.norm_error, "{c:?}");
+        assert!(c.soft_error > 0.5 * want && c.soft_error < 2.0 * want, "{} vs {want}", c.soft_error);
+        assert!(!c.pass);
+        assert_eq!(compare_along(&conv, &good, &good, 1e-12, 1e-2, 1, None).soft_error, 0.0);
+    }
 }

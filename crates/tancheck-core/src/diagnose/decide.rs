@@ -13,7 +13,8 @@
 //!    ([`TWIN_FINDING`]), never "the tangent differs";
 //! 2. at a kink, an exact complex-step agreement stands (the complex step does not cross the
 //!    boundary); otherwise each column must equal its own forward or backward derivative;
-//! 3. away from a kink, an exact complex-step agreement passes;
+//! 3. near a kink (one within the default step), each column must equal the one-sided
+//!    derivatives below it; away from a kink, an exact complex-step agreement passes;
 //! 4. a study that converges with its order to the failed check's tolerance clears the
 //!    increment (the default step was poor);
 //! 5. a wrong ∂σ/∂T with a right tangent is its own finding;
@@ -36,6 +37,10 @@ instead of their real parts";
 /// A twin's real part this far (relative to the stress scale) from the real routine's
 /// outputs computes another stress: rounding stays near 1e-15.
 pub const REAL_PART_LEVEL: f64 = 1e-9;
+
+/// Near a branch boundary, the returned tangent must equal the one-sided derivatives at the
+/// smallest probe step (relative 1e-7, one-sided truncation about that size) this closely.
+pub const NEARBY_LEVEL: f64 = 1e-6;
 
 /// What the twin comparison found.
 #[derive(Clone, Copy, Debug, Default, PartialEq)]
@@ -182,6 +187,23 @@ pub fn decide(o: &Observed) -> Decision {
         }
         d.finding = "none".into();
         return with_dtemp(o, d);
+    }
+    // A branch boundary within the default step, not at the point: below it, the one-sided
+    // derivatives agree with each other and with the returned tangent, column by column.
+    if let Some(k) = o.kink.as_ref().filter(|k| k.nearby) {
+        let level = o.failed_tol.max(NEARBY_LEVEL);
+        if complex_pass != Some(false)
+            && !k.columns.is_empty()
+            && k.columns.iter().all(|c| c.forward_error.min(c.backward_error) <= level)
+        {
+            d.pass = true;
+            d.reason = format!(
+                "a branch boundary lies within the default step (the one-sided derivatives differ by {:.2e} at the largest probe step and agree at the smallest); there every column of the returned tangent equals them (within {level:.0e})",
+                k.gaps[0]
+            );
+            d.finding = "none".into();
+            return with_dtemp(o, d);
+        }
     }
     // 3. The complex step away from a kink.
     if complex_pass == Some(true) {

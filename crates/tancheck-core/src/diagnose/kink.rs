@@ -65,6 +65,10 @@ pub struct Kink {
     pub gaps: Vec<f64>,
     /// A kink in at least one column.
     pub detected: bool,
+    /// No kink at the point, but one within the largest probe step: the one-sided derivatives
+    /// differ at that step and agree at the smallest (a branch boundary close to the point).
+    #[serde(default)]
+    pub nearby: bool,
     /// Error of the returned tangent against the forward and the backward derivative at the
     /// smallest step (the whole matrix).
     pub forward_error: f64,
@@ -148,6 +152,7 @@ pub fn judge(
         })
         .collect();
     let detected = kinked(&gaps) || columns.iter().any(|c| c.detected);
+    let nearby = !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL;
     let whole = |c: &crate::compare::Comparison| c.error();
     let (fe, be) = (whole(&cf), whole(&cb));
     let returned_matches = if fe <= tol && fe <= be {
@@ -169,6 +174,7 @@ pub fn judge(
         gaps,
         sides,
         detected,
+        nearby,
         forward_error: fe,
         backward_error: be,
         returned_matches,

@@ -68,7 +68,7 @@ pub enum J2Flaw {
     /// `j2-no-kinematic`: the consistent tangent with H_kin left out of θ̄,
     /// θ̄ = 1/(1 + K'/(3μ)) − (1 − θ), while the stress update keeps H_kin: the plastic
     /// correction 2μθ̄ n⊗n has the wrong size. Right in the elastic branch and when
-    /// H_kin = 0. Expected finding: `rank-one-term`.
+    /// H_kin = 0. Expected finding: `term-scaled`.
     NoKinematic,
     /// `j2-unit-factor`: the consistent tangent times [`UNIT_FACTOR`] (1000, a modulus in MPa
     /// with stress in kPa). Wrong in both branches. Expected finding: `uniform-scale`.
@@ -86,7 +86,7 @@ pub enum J2Flaw {
     /// carries it. The increment reverses the flow when n : n_last < 0 (the double
     /// contraction, shear entries counted twice). Right in the elastic branch, on the first
     /// plastic loading and while the flow keeps its sense; wrong in reversed (Bauschinger)
-    /// yielding only. Expected finding: `rank-one-term`.
+    /// yielding only. Expected finding: `term-sign`.
     Reversal,
     /// `j2-single-entry`: the consistent tangent with one entry, ∂σ33/∂ε22 (row 33, column
     /// 22), times 1 + 1e-4 ([`SINGLE_ENTRY_FACTOR`]), in both branches. Expected finding:

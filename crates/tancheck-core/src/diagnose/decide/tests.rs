@@ -51,6 +51,7 @@ fn kink(cols: Vec<KinkColumn>, whole: Side) -> Kink {
         returned_matches: whole,
         columns: cols,
         sides,
+        nearby: false,
         forward: vec![],
         backward: vec![],
     }
@@ -186,6 +187,31 @@ fn rows() -> Vec<Row> {
             failed_tol: 1e-10,
             ..base()
         },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    });
+    // A yield surface 1e-9 from the point (J2 case above, ε11 = 0.001625 + 1e-9): the
+    // one-sided derivatives differ by 0.41 at the largest probe step and agree to 2.6e-9 at
+    // the smallest, where each column matches them to 4e-8 (measured).
+    let mut near = kink(vec![column(Side::Both, false, 1.1e-9, 1.5e-9); 6], Side::Forward);
+    near.detected = false;
+    near.nearby = true;
+    near.gaps = vec![0.24, 0.08, 5e-8];
+    rows.push(Row {
+        what: "a yield surface 1e-9 away, central straddling it, no twin",
+        observed: Observed { kink: Some(near.clone()), studies: plateau(1.0), ..base() },
+        pass: true,
+        finding: "none",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    let mut near_wrong = near;
+    near_wrong.columns[0] = column(Side::Neither, false, 0.05, 0.05);
+    rows.push(Row {
+        what: "the same with a column 5 % off",
+        observed: Observed { kink: Some(near_wrong), studies: plateau(1.0), ..base() },
         pass: false,
         finding: "unexplained",
         twin_unsafe: false,
