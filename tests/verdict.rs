@@ -30,6 +30,10 @@ fn run(routine: &mut dyn tancheck::core::Routine, props: &[f64], path: &Path, se
     check::run(&mut caller, props, PointState::zero(&info, 20.0), path, settings).unwrap()
 }
 
+fn only(scheme: Scheme) -> Settings {
+    Settings { schemes: vec![scheme], ..Settings::default() }
+}
+
 fn summary(r: &Report) -> String {
     r.increments
         .iter()
@@ -54,16 +58,14 @@ fn correct_j2_ending_on_the_yield_surface_and_around_it_passes() {
             run(&mut m, &PERFECT, &one([0.001625 + shift, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
         assert_eq!(r.verdict, Verdict::Pass, "shift {shift:e}:\n{}", summary(&r));
         // Without the twin (central differences only) each column must find its own side.
-        let mut s = Settings::default();
-        s.schemes = vec![Scheme::Central];
+        let s = only(Scheme::Central);
         let r = run(&mut m, &PERFECT, &one([0.001625 + shift, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
         assert_eq!(r.verdict, Verdict::Pass, "central only, shift {shift:e}:\n{}", summary(&r));
     }
     // On the surface the central check straddles the kink: the diagnosis found it and names
     // the side of each column (11 loads plastically forward, so it matches backward).
     let mut m = reference("j2", PointKind::Solid3d).unwrap();
-    let mut s = Settings::default();
-    s.schemes = vec![Scheme::Central];
+    let s = only(Scheme::Central);
     let r = run(&mut m, &PERFECT, &one([0.001625, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
     let d = r.increments[0].diagnosis.as_ref().expect("the central check straddled the kink");
     let k = d.kink.as_ref().unwrap();
@@ -133,8 +135,7 @@ fn the_straddling_difference_is_not_excused() {
         let r = run(&mut m, &props, &one([end, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
         assert_eq!(r.verdict, Verdict::TangentFailure, "at {end}:\n{}", summary(&r));
         assert_eq!(r.finding(), want, "at {end}:\n{}", summary(&r));
-        let mut s = Settings::default();
-        s.schemes = vec![Scheme::Central];
+        let s = only(Scheme::Central);
         let r = run(&mut m, &props, &one([end, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
         assert_eq!(r.verdict, Verdict::TangentFailure, "central only at {end}:\n{}", summary(&r));
     }
@@ -161,8 +162,7 @@ fn the_soft_direction_error_fails_every_scheme() {
     };
     for scheme in Scheme::ALL {
         let mut m = zoo_model("j2-no-kinematic", PointKind::Solid3d).unwrap();
-        let mut s = Settings::default();
-        s.schemes = vec![scheme];
+        let s = only(scheme);
         let r = run(&mut m, &props, &path, &s);
         assert_eq!(r.verdict, Verdict::TangentFailure, "{}:\n{}", scheme.name(), summary(&r));
         if scheme == Scheme::Forward {
@@ -177,8 +177,7 @@ fn the_soft_direction_error_fails_every_scheme() {
     // The consistent J2 passes with every scheme (the soft measure adds no false alarm).
     for scheme in Scheme::ALL {
         let mut m = reference("j2", PointKind::Solid3d).unwrap();
-        let mut s = Settings::default();
-        s.schemes = vec![scheme];
+        let s = only(scheme);
         let r = run(&mut m, &props, &path, &s);
         assert_eq!(r.verdict, Verdict::Pass, "{}:\n{}", scheme.name(), summary(&r));
     }

@@ -107,7 +107,7 @@ pub fn soft_error(r: &[f64], m: &[f64], n: usize, direction: Option<&[f64]>) -> 
         return (0.0, "");
     }
     let norm = m[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt();
-    if !(norm > 0.0) || !norm.is_finite() || r[..n * n].iter().any(|x| !x.is_finite()) {
+    if norm.is_nan() || norm <= 0.0 || !norm.is_finite() || r[..n * n].iter().any(|x| !x.is_finite()) {
         return (0.0, "");
     }
     let floor = SOFT_FLOOR * norm;

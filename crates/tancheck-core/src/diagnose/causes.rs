@@ -764,7 +764,7 @@ mod tests {
         assert_eq!(h[0].cause, Cause::Symmetrized, "{:?}", &h[..2]);
         let good = j2_like();
         let mut one = good.clone();
-        one[2 + 6 * 1] *= 1.0 + 1e-4;
+        one[2 + 6] *= 1.0 + 1e-4; // row 33, column 22
         let h = rank(&ev(&conv, &one, &good, &z));
         assert_eq!(h[0].cause, Cause::SingleEntry, "{:?}", &h[..2]);
         assert!(h[0].detail.contains("33/22"), "{}", h[0].detail);

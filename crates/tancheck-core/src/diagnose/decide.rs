@@ -91,7 +91,7 @@ pub struct Decision {
 }
 
 fn twin_real_part_differs(o: &Observed) -> bool {
-    o.twin.is_some_and(|t| !(t.real_part_gap <= REAL_PART_LEVEL))
+    o.twin.is_some_and(|t| t.real_part_gap.is_nan() || t.real_part_gap > REAL_PART_LEVEL)
 }
 
 /// Decide the finding of one increment from its evidence. No I/O, no routine calls.

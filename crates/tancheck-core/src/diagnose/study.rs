@@ -236,7 +236,7 @@ mod tests {
         // ... but a first-order fall is not the order of the central scheme.
         let c = analyse(Scheme::Central, pts(|h| 0.5 * h + 1e-16 / h), 1e-4);
         assert_ne!(c.behaviour, Behaviour::Converges, "{c:?}");
-        assert_eq!(classify(&[c.clone()], 1e-4), StepVerdict::Noise);
+        assert_eq!(classify(std::slice::from_ref(&c), 1e-4), StepVerdict::Noise);
         assert_eq!(classify(&[f.clone(), c], 1e-4), StepVerdict::Truncation);
         assert_eq!(classify(&[f], 1e-12), StepVerdict::Noise);
     }
