@@ -52,7 +52,9 @@ impl Reporter for Terminal {
             }
             let mut cells: Vec<String> = inc.checks.iter().map(|c| format!("{:<22}", cell(c))).collect();
             if let Some(d) = &inc.diagnosis {
-                cells.push(if d.pass {
+                cells.push(if d.twin_unsafe && d.pass {
+                    format!("-> tangent ok; {}", d.finding)
+                } else if d.pass {
                     "-> ok on a closer look".into()
                 } else {
                     format!("-> {}", d.finding)
@@ -77,6 +79,8 @@ impl Reporter for Terminal {
             if let Some(d) = &inc.diagnosis {
                 if !d.pass || self.detail == Detail::Verbose {
                     diagnosis(out, d)?;
+                } else if d.twin_unsafe {
+                    writeln!(out, "        tangent cleared, twin set aside: {}", d.reason)?;
                 } else {
                     writeln!(out, "        cleared on a closer look: {}", d.reason)?;
                 }

@@ -8,7 +8,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::compare;
+use crate::compare::compare_along;
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
@@ -87,7 +87,8 @@ pub fn run(
         for j in 0..n {
             scheme.column(driver, caller, Direction::Strain(j), h, &mut num[j * n..(j + 1) * n])?;
         }
-        let c = compare(conv, returned, &num, tol, entry_floor, 0);
+        // Along the increment's own direction too, as the check measured it.
+        let c = compare_along(conv, returned, &num, tol, entry_floor, 0, Some(driver.dstrain()));
         points.push(StudyPoint { rel_step: rel, step: h, error: c.error() });
     }
     Ok(analyse(scheme, points, tol))
