@@ -82,7 +82,7 @@ pub struct ZooEntry {
     pub fortran_symbol: Option<&'static str>,
 }
 
-const J2_ROWS: [ZooEntry; 15] = [
+const J2_ROWS: [ZooEntry; 16] = [
     ZooEntry {
         name: J2::NAME,
         description: "J2 plasticity with the consistent tangent (the reference the variants spoil)",
@@ -139,7 +139,7 @@ const J2_ROWS: [ZooEntry; 15] = [
         expected: "term-scaled",
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_no_kinematic"),
-        fortran_symbol: None,
+        fortran_symbol: Some("f_j2_no_kinematic"),
     },
     ZooEntry {
         name: "j2-unit-factor",
@@ -181,6 +181,14 @@ const J2_ROWS: [ZooEntry; 15] = [
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_plastic_sign"),
         fortran_symbol: Some("f_j2_plastic_sign"),
+    },
+    ZooEntry {
+        name: "j2-term-missing",
+        description: "after yield, the plastic correction 2μθ̄ n⊗n left out of the tangent (θ kept)",
+        expected: "term-missing",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_term_missing"),
+        fortran_symbol: Some("f_j2_term_missing"),
     },
     ZooEntry {
         name: "j2-rank-two",

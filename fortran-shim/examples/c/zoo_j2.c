@@ -23,6 +23,8 @@
  *   c_j2_single_entry           entry 33/22 of the consistent tangent times 1 + 1e-4
  *   c_j2_plastic_sign           plastic correction with the wrong sign in every plastic increment
  *   c_j2_rank_two               after yield, + c (n(x)1 + 1(x)n), c = 0.05 mu (rank two)
+ *   c_j2_term_missing           after yield, the plastic correction 2 mu theta_bar n(x)n left
+ *                               out (theta kept)
  *   c_twin_real_sqrt            tangent and real update correct; the complex twin takes the norm
  *                               of xi_tr with a real-only square root, sqrt(creal(x)): NOT
  *                               complex-step safe, on purpose
@@ -78,6 +80,7 @@ typedef enum {
     ZJ_SINGLE_ENTRY,
     ZJ_PLASTIC_SIGN,
     ZJ_RANK_TWO,
+    ZJ_TERM_MISSING,
     ZJ_TWIN_REAL_SQRT,
     ZJ_TWIN_CONJUGATE
 } zj_flaw;
@@ -362,6 +365,11 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
             zj_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
         }
         break;
+    case ZJ_TERM_MISSING:
+        if (plastic) {
+            zj_matrix(n, kappa, mu, theta, tc_cst(0.0), n_dir, tangent);
+        }
+        break;
     case ZJ_RANK_TWO:
         if (plastic) {
             const tc_real c = ZJ_RANK_TWO_FACTOR * mu;
@@ -408,3 +416,4 @@ ZJ_ROUTINE(c_j2_plastic_sign, "j2-plastic-sign", ZJ_PLASTIC_SIGN)
 ZJ_ROUTINE(c_j2_rank_two, "j2-rank-two", ZJ_RANK_TWO)
 ZJ_ROUTINE(c_twin_real_sqrt, "twin-real-sqrt", ZJ_TWIN_REAL_SQRT)
 ZJ_ROUTINE(c_twin_conjugate, "twin-conjugate", ZJ_TWIN_CONJUGATE)
+ZJ_ROUTINE(c_j2_term_missing, "j2-term-missing", ZJ_TERM_MISSING)

@@ -99,6 +99,9 @@ pub enum J2Flaw {
     /// c = [`RANK_TWO_FACTOR`]·μ (a pressure coupling a pressure-independent update does not
     /// have): a discrepancy of rank two. Expected finding: `rank-two`.
     RankTwo,
+    /// `j2-term-missing`: after yield, the plastic correction −2μθ̄ n⊗n left out of the
+    /// tangent (θ kept): κ 1⊗1 + 2μθ(I − ⅓1⊗1). Expected finding: `term-missing`.
+    TermMissing,
     /// `twin-real-sqrt`: J2 whose stress update, after yield, divides ξ_tr by a norm whose
     /// square root keeps only the real part (sqrt(Re x), the imaginary part dropped). The real
     /// build is J2 to the bit; the complex-step twin loses the derivative of the norm.
@@ -121,7 +124,7 @@ pub const UNIT_FACTOR: f64 = 1e3;
 
 impl J2Flaw {
     /// Every flaw, in the order of the zoo.
-    pub const ALL: [J2Flaw; 13] = [
+    pub const ALL: [J2Flaw; 14] = [
         J2Flaw::ShearFactor,
         J2Flaw::ShearPermuted,
         J2Flaw::ElasticFirstPlastic,
@@ -133,6 +136,7 @@ impl J2Flaw {
         J2Flaw::SingleEntry,
         J2Flaw::PlasticSign,
         J2Flaw::RankTwo,
+        J2Flaw::TermMissing,
         J2Flaw::TwinRealSqrt,
         J2Flaw::TwinConjugate,
     ];
@@ -151,6 +155,7 @@ impl J2Flaw {
             J2Flaw::SingleEntry => "j2-single-entry",
             J2Flaw::PlasticSign => "j2-plastic-sign",
             J2Flaw::RankTwo => "j2-rank-two",
+            J2Flaw::TermMissing => "j2-term-missing",
             J2Flaw::TwinRealSqrt => "twin-real-sqrt",
             J2Flaw::TwinConjugate => "twin-conjugate",
         }
@@ -434,7 +439,11 @@ impl Model for FlawedJ2 {
                 // Row 33 (index 2), column 22 (index 1): the same in 6 and 4 components.
                 tangent[2 + n] = tangent[2 + n] * SINGLE_ENTRY_FACTOR;
             }
-            J2Flaw::PlasticSign | J2Flaw::RankTwo | J2Flaw::TwinRealSqrt | J2Flaw::TwinConjugate
+            J2Flaw::PlasticSign
+            | J2Flaw::RankTwo
+            | J2Flaw::TermMissing
+            | J2Flaw::TwinRealSqrt
+            | J2Flaw::TwinConjugate
                 if plastic =>
             {
                 let xi_tr =
@@ -443,12 +452,14 @@ impl Model for FlawedJ2 {
                 let alpha = output.state[n];
                 let dgamma = (alpha - alpha_n) / sqrt_2_3();
                 match self.flaw {
-                    J2Flaw::PlasticSign => {
+                    J2Flaw::PlasticSign | J2Flaw::TermMissing => {
                         let theta = S::one() - mu * 2.0 * dgamma / norm;
                         let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + S::one());
                         let theta_bar = ratio - (S::one() - theta);
                         let kappa = lambda + mu * (2.0 / 3.0);
-                        write_tangent(&j2_matrix(kappa, mu, theta, -theta_bar, &nrm), slots, tangent);
+                        let returned_bar =
+                            if self.flaw == J2Flaw::TermMissing { S::zero() } else { -theta_bar };
+                        write_tangent(&j2_matrix(kappa, mu, theta, returned_bar, &nrm), slots, tangent);
                     }
                     J2Flaw::RankTwo => {
                         let c = mu * RANK_TWO_FACTOR;
@@ -471,7 +482,11 @@ impl Model for FlawedJ2 {
                     }
                 }
             }
-            J2Flaw::PlasticSign | J2Flaw::RankTwo | J2Flaw::TwinRealSqrt | J2Flaw::TwinConjugate => {}
+            J2Flaw::PlasticSign
+            | J2Flaw::RankTwo
+            | J2Flaw::TermMissing
+            | J2Flaw::TwinRealSqrt
+            | J2Flaw::TwinConjugate => {}
             J2Flaw::Reversal => {
                 if plastic {
                     let xi_tr = relative_stress(
