@@ -176,6 +176,23 @@ fn rows() -> Vec<Row> {
         twin_unsafe: true,
         needs_causes: false,
     });
+    // A twin that computes another stress and a tangent that is wrong as well (plateau at
+    // 1e-3): the tangent differs, judged without the twin, and the causes are tried against
+    // a real reference (`trust_twin` false, checked below).
+    rows.push(Row {
+        what: "twin real part off and the tangent wrong too",
+        observed: Observed {
+            studies: plateau(1e-3),
+            complex: Some((0.3, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 1e-3, derivative_gap: Some(0.3) }),
+            failed_tol: 1e-10,
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: true,
+        needs_causes: true,
+    });
     // A tangent off by 1e-7: central differences cannot see it (their tolerance is 1e-6) but
     // the twin agrees with Richardson to 1e-12: the tangent, not the twin, is wrong.
     rows.push(Row {
@@ -331,4 +348,7 @@ fn a_broken_twin_never_says_the_tangent_differs_and_names_the_culprits() {
     assert!(!d.reason.contains("differs from"), "{}", d.reason);
     assert!(d.reason.contains("dot_product") && d.reason.contains("sqrt"), "{}", d.reason);
     assert!(!d.trust_twin);
+    let r = rows().into_iter().find(|r| r.what.starts_with("twin real part off and")).unwrap();
+    let d = decide(&r.observed);
+    assert!(!d.trust_twin && d.reason.contains("real part differs"), "{}", d.reason);
 }
