@@ -292,7 +292,7 @@ fn j2_reversal(src: Source<'_>, dir: &Path) {
         serde_json::from_str(&std::fs::read_to_string(v["cases"][0].as_str().unwrap()).unwrap()).unwrap();
     let s_star = j2_reversal_fraction(&case, &J2_PROPS);
     assert!(s_star > 0.0 && s_star < 1.0, "{s_star}");
-    assert_located(&v, 12, "#1 (state changed)", "rank-one-term", s_star);
+    assert_located(&v, 12, "#1 (state changed)", "term-sign", s_star);
     let below = &v["located"]["inside"]["class_below"];
     assert_eq!(below["reported_branch"], 0, "elastic unloading below the crossing");
 }

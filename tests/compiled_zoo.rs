@@ -284,7 +284,10 @@ fn compare(lib: &Library, entry: &ZooEntry, symbol: &str, seed: u64) -> usize {
             if want.outcome.provides & 2 != 0 {
                 assert_close(&got.energy, &want.energy, TOL, 1e-12, &format!("{what}: energy"));
             }
-            if k % 10 == 0 {
+            // The broken twins (twin-*) are broken on purpose, and differently in each language
+            // (a conjugate or a real-only square root where each can write one): their real
+            // outputs are compared above, their complex steps are not.
+            if k % 10 == 0 && !entry.name.starts_with("twin-") {
                 let d_want = complex_step(model.complex().unwrap(), &info, &p);
                 let d_got = complex_step(compiled.complex().expect("the twin is built"), &info, &p);
                 assert_close(&d_got, &d_want, TWIN_TOL, 1.0, &format!("{what}: complex step"));

@@ -327,7 +327,7 @@ fn the_shrunk_case_carries_a_path_that_leads_to_its_call() {
     assert_eq!(code, 1);
     assert_eq!(r["identical"], true);
     assert_eq!(r["path_leads_here"], "yes");
-    assert_eq!(r["finding"], "rank-one-term");
+    assert_eq!(r["finding"], "term-sign");
 }
 
 #[test]

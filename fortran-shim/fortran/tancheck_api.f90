@@ -45,7 +45,8 @@ module tancheck_api
   public :: tck_scheme_forward, tck_scheme_backward, tck_scheme_central, tck_scheme_central4, &
             tck_scheme_richardson, tck_scheme_complex_step, tck_scheme_slots
   public :: tck_guard_off, tck_guard_light, tck_guard_full
-  public :: tck_verdict_pass, tck_verdict_tangent_failure, tck_verdict_routine_fault
+  public :: tck_verdict_pass, tck_verdict_tangent_failure, tck_verdict_routine_fault, &
+            tck_verdict_twin_not_safe
   public :: tck_init_options, tck_run_check, tck_free_result
   public :: tck_get_verdict, tck_get_summary, tck_get_json, tck_get_finding_count, &
             tck_get_finding
@@ -118,6 +119,8 @@ module tancheck_api
   integer, parameter :: tck_verdict_pass = 0
   integer, parameter :: tck_verdict_tangent_failure = 1
   integer, parameter :: tck_verdict_routine_fault = 3
+  !> The tangent agrees with the real differences; the complex-step twin is not safe.
+  integer, parameter :: tck_verdict_twin_not_safe = 4
 
   !> Everything about one check (struct tck_options). Fill it with tck_init_options. The
   !> pointer fields props, state0, strain0, stress0, order, increments and name are set by

@@ -13,6 +13,15 @@
 !   - no conjugation: a norm is cs_sqrt(sum(x*x)), never sqrt(sum(abs(x)**2));
 !   - the elementary functions use their first-order forms f(a + ib) = f(a) + i f'(a) b,
 !     which is what the complex step needs and is exact for tiny b.
+! The usual culprits of a twin that is not complex-step safe (tancheck reports it as its own
+! finding, exit 4, when the real differences agree with the returned tangent and the complex
+! step does not):
+!   - conjugating intrinsics: dot_product of complex arrays (it conjugates its first
+!     argument), conjg, and norms built from them;
+!   - complex abs: the intrinsic abs of a complex number is its modulus; use cs_abs;
+!   - real-only sqrt / abs / exp: sqrt(real(x)) or any real(x, c_double) inside the
+!     arithmetic keeps the value and drops the derivative;
+!   - comparisons of complex values: compare real(x, c_double) only.
 module tancheck_cstep
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   implicit none

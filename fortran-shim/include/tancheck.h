@@ -207,7 +207,9 @@ typedef struct tck_result tck_result;
 typedef enum tck_verdict {
     TCK_VERDICT_PASS = 0,            /* every check passed and the guards found nothing */
     TCK_VERDICT_TANGENT_FAILURE = 1, /* at least one tangent check failed */
-    TCK_VERDICT_ROUTINE_FAULT = 3    /* the routine crashed, failed, or misbehaved (guards) */
+    TCK_VERDICT_ROUTINE_FAULT = 3,   /* the routine crashed, failed, or misbehaved (guards) */
+    TCK_VERDICT_TWIN_NOT_SAFE = 4    /* the tangent agrees with the real differences, but the
+                                        complex-step twin is not complex-step safe */
 } tck_verdict;
 
 /*
@@ -225,7 +227,7 @@ void tck_result_free(tck_result *result);
 int tck_result_verdict(const tck_result *result);
 
 /* The exit code the tancheck command would give: 0 pass, 1 tangent failure, 3 routine
- * fault; 2 for a NULL result. */
+ * fault, 4 twin not complex-step safe; 2 for a NULL result. */
 int tck_result_exit_code(const tck_result *result);
 
 /* One line for people: the verdict word, the routine, each scheme's worst error and

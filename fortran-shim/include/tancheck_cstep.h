@@ -18,6 +18,15 @@
  *         f(a + ib) = f(a) + i f'(a) b,
  *     which is what the complex step needs and is exact for tiny b.
  *
+ * The usual culprits of a twin that is not complex-step safe (tancheck reports it as its own
+ * finding, exit 4, when the real differences agree with the returned tangent and the
+ * complex step does not):
+ *   - conjugating functions: conj(), or a norm as x*conj(x) or cabs(x)^2;
+ *   - complex abs: cabs() / fabs of a complex value (the modulus, not the signed real part);
+ *   - real-only sqrt / fabs / exp: a libm function of double applied to tc_real, or
+ *     sqrt(creal(x)), which keeps the value and drops the derivative;
+ *   - comparisons of complex values (a == b, or any test not on tc_re).
+ *
  * Pitfall in C: passing a tc_real to a libm function of double (fabs, sqrt, exp, ...) is
  * accepted silently and drops the imaginary part. Use these helpers instead; compiling the
  * twin with -Wconversion catches the mistake (a diagnostic about the discarded imaginary part).

@@ -35,6 +35,7 @@ pub mod verdict {
     pub const PASS: c_int = 0;
     pub const TANGENT_FAILURE: c_int = 1;
     pub const ROUTINE_FAULT: c_int = 3;
+    pub const TWIN_NOT_SAFE: c_int = 4;
 }
 
 /// The version of this library as text, NUL-terminated.

@@ -78,6 +78,7 @@ fn rust_constants() -> BTreeMap<String, i64> {
         ("TCK_VERDICT_PASS", verdict::PASS),
         ("TCK_VERDICT_TANGENT_FAILURE", verdict::TANGENT_FAILURE),
         ("TCK_VERDICT_ROUTINE_FAULT", verdict::ROUTINE_FAULT),
+        ("TCK_VERDICT_TWIN_NOT_SAFE", verdict::TWIN_NOT_SAFE),
     ] {
         put(n, i64::from(v));
     }

@@ -21,7 +21,7 @@ use crate::report::{write_atomic, Reporter};
     name = "tancheck",
     version,
     about = "Checks that a material routine's tangent is the derivative of its own stress update",
-    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, hung or failed, 70 the routine ended the process (without --isolate)."
+    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, hung or failed, 4 the tangent agrees with the real differences but the complex-step twin is not complex-step safe, 70 the routine ended the process (without --isolate)."
 )]
 struct Cli {
     #[command(subcommand)]

@@ -24,4 +24,7 @@ pub mod exit {
     pub const BAD_INPUT: i32 = 2;
     /// The routine crashed or reported that it could not compute an increment.
     pub const ROUTINE_FAULT: i32 = 3;
+    /// The tangent agrees with the real difference schemes, but the complex-step twin is not
+    /// complex-step safe.
+    pub const TWIN_NOT_SAFE: i32 = 4;
 }

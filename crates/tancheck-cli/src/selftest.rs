@@ -17,7 +17,7 @@ mod conventions;
 
 /// Demo properties for a zoo entry.
 fn props(name: &str) -> Vec<f64> {
-    if name.starts_with("j2") {
+    if name.starts_with("j2") || name.starts_with("twin-") {
         vec![210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0]
     } else if name.starts_with("bimodulus") {
         vec![200000.0, 50000.0, 0.25]
@@ -82,11 +82,63 @@ struct Row {
     right: bool,
 }
 
-fn check_one(routine: &mut dyn Routine, e: &ZooEntry) -> Result<Report> {
+/// Correct routines checked where an increment ends exactly on a branch boundary: each must
+/// pass (its complex step, or each column's own one-sided derivative, stands at the kink).
+struct Boundary {
+    variant: &'static str,
+    model: &'static str,
+    props: Vec<f64>,
+    path: Path,
+}
+
+fn boundaries() -> Vec<Boundary> {
+    // J2 in uniaxial strain ending on the yield surface: ε11 = σy/2μ = 0.001625 for
+    // E = 200 GPa, ν = 0.3, σy = 250 MPa (2μ = E/(1 + ν); the numbers of the worked case in
+    // REFERENCES.md, Simo & Hughes 1998, Box 3.2).
+    let j2 = Path {
+        name: "one increment of uniaxial strain 0.001625, ending on the yield surface".into(),
+        increments: vec![PathIncrement {
+            dstrain: [0.001625, 0.0, 0.0, 0.0, 0.0, 0.0],
+            dtemp: 0.0,
+            dtime: 1.0,
+            hold_stress: None,
+        }],
+    };
+    // The cohesive law at mixed-mode onset: opening = slip, λ = δ₀ₘ with
+    // δ₀ₘ = δ₀₃δ₀ₛ/√((1 − B)δ₀ₛ² + Bδ₀₃²), B = ½ (Camanho & Dávila 2002; DEVELOPERS.md).
+    let cp = props("cohesive");
+    let (d03, d0s) = (cp[1] / cp[0], cp[2] / cp[0]);
+    let d0m = d03 * d0s / (0.5 * d0s * d0s + 0.5 * d03 * d03).sqrt();
+    let c = d0m / 2f64.sqrt();
+    let cohesive = Path {
+        name: "one mixed-mode increment (opening = slip) ending at damage onset".into(),
+        increments: vec![PathIncrement {
+            dstrain: [c, c, 0.0, 0.0, 0.0, 0.0],
+            dtemp: 0.0,
+            dtime: 1.0,
+            hold_stress: None,
+        }],
+    };
+    vec![
+        Boundary {
+            variant: "j2@yield-surface",
+            model: "j2",
+            props: vec![200000.0, 0.3, 250.0, 0.0, 0.0, 0.0, 0.0],
+            path: j2,
+        },
+        Boundary { variant: "cohesive@mixed-onset", model: "cohesive", props: cp, path: cohesive },
+    ]
+}
+
+fn check_with(routine: &mut dyn Routine, props: &[f64], path: &Path) -> Result<Report> {
     let info = routine.info().clone();
     let mut caller = Caller::new(routine);
-    check::run(&mut caller, &props(e.name), PointState::zero(&info, 20.0), &path_for(e), &Settings::default())
+    check::run(&mut caller, props, PointState::zero(&info, 20.0), path, &Settings::default())
         .map_err(anyhow::Error::msg)
+}
+
+fn check_one(routine: &mut dyn Routine, e: &ZooEntry) -> Result<Report> {
+    check_with(routine, &props(e.name), &path_for(e))
 }
 
 fn row(e: &ZooEntry, language: &'static str, r: &Report) -> Row {
@@ -132,6 +184,13 @@ pub fn run(verbose: bool) -> Result<i32> {
         }
         rows.push(row(e, "Rust", &r));
     }
+    let bounds = boundaries();
+    for b in &bounds {
+        let e = zoo::zoo_entry(b.model).context("a boundary row's model is in the zoo")?;
+        let mut m = zoo::zoo_model(b.model, kind_of(&e))?;
+        let r = check_with(&mut m, &b.props, &b.path)?;
+        rows.push(Row { variant: b.variant.into(), ..row(&e, "Rust", &r) });
+    }
     let dir = std::env::temp_dir().join(format!("tancheck-selftest-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
     let root = repo_root();
@@ -159,6 +218,14 @@ pub fn run(verbose: bool) -> Result<i32> {
             let rep = check_one(&mut r, e)?;
             rows.push(row(e, language, &rep));
         }
+        for b in &bounds {
+            let e = zoo::zoo_entry(b.model).context("a boundary row's model is in the zoo")?;
+            let Some(sym) = symbol(&e) else { continue };
+            let info = zoo::zoo_model(b.model, kind_of(&e))?.info().clone();
+            let mut r = lib.routine(sym, tancheck_core::RoutineInfo { name: sym.into(), ..info })?;
+            let rep = check_with(&mut r, &b.props, &b.path)?;
+            rows.push(Row { variant: b.variant.into(), ..row(&e, language, &rep) });
+        }
     }
     rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
@@ -166,13 +233,13 @@ pub fn run(verbose: bool) -> Result<i32> {
     writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
     writeln!(
         out,
-        "{:<26} {:<8} {:<20} {:<7} {:<20} {:<6} right",
+        "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} right",
         "variant", "language", "expected", "verdict", "found", "at inc"
     )?;
     for r in &rows {
         writeln!(
             out,
-            "{:<26} {:<8} {:<20} {:<7} {:<20} {:<6} {}",
+            "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} {}",
             r.variant,
             r.language,
             r.expected,
@@ -187,6 +254,11 @@ pub fn run(verbose: bool) -> Result<i32> {
     for e in &entries {
         if verbose {
             writeln!(out, "  {:<26} {}", e.name, e.description)?;
+        }
+    }
+    if verbose {
+        for b in &bounds {
+            writeln!(out, "  {:<26} correct {}: {}", b.variant, b.model, b.path.name)?;
         }
     }
     Ok(if wrong == 0 { 0 } else { 1 })

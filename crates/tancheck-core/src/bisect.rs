@@ -18,7 +18,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::diagnose::study::{self, Behaviour, StepStudy};
+use crate::diagnose::study::{self, StepStudy};
 use crate::driver::{Driver, PointState};
 use crate::path::{Path, PathIncrement};
 use crate::report::{CallRecord, IncrementResult, Report};
@@ -153,17 +153,7 @@ pub enum Inside {
     Throughout { smallest: f64 },
 }
 
-/// What the step studies of the full increment say about the mismatch.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
-#[serde(rename_all = "kebab-case")]
-pub enum StepVerdict {
-    /// The discrepancy levels off as the step shrinks: the tangent is not the derivative.
-    Mismatch,
-    /// A difference converges to the returned tangent: the default step was poor.
-    Truncation,
-    /// Neither: the discrepancy scatters (noisy inner solves or rounding).
-    Noise,
-}
+pub use crate::diagnose::study::StepVerdict;
 
 /// The step studies of the failing call and what they show.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
@@ -175,14 +165,10 @@ pub struct StepFinding {
 }
 
 impl StepFinding {
-    fn from_studies(studies: Vec<StepStudy>) -> StepFinding {
-        let verdict = if studies.iter().any(|s| s.behaviour == Behaviour::Converges) {
-            StepVerdict::Truncation
-        } else if studies.iter().any(|s| s.behaviour == Behaviour::Plateau) {
-            StepVerdict::Mismatch
-        } else {
-            StepVerdict::Noise
-        };
+    /// Classify by the rule the check's diagnosis uses ([`study::classify`]) at the smallest
+    /// tolerance among the failed checks.
+    fn from_studies(studies: Vec<StepStudy>, failed_tol: f64) -> StepFinding {
+        let verdict = study::classify(&studies, failed_tol);
         let plateau = studies.iter().find_map(|s| s.plateau);
         StepFinding { verdict, plateau, studies }
     }
@@ -385,8 +371,24 @@ pub fn locate(
     // The step studies of the full increment.
     scale(&mut driver, &whole, 1.0);
     let conv = caller.info().convention.clone();
+    // The smallest tolerance among the failed checks: the level a study must reach to clear.
+    let failed_tol = failed
+        .checks
+        .iter()
+        .filter_map(|c| match &c.tangent {
+            crate::report::CheckOutcome::Compared(x) if !x.pass => Some(x.tol),
+            _ => None,
+        })
+        .fold(f64::INFINITY, f64::min);
+    let failed_tol = if failed_tol.is_finite() { failed_tol } else { settings.central.tol };
     let step = match driver.base_call(caller) {
         Err(_) => None,
+        // The check's own studies of this increment, when its diagnosis ran: the same
+        // evidence and the same classification give the same finding.
+        Ok(()) if failed.diagnosis.as_ref().is_some_and(|d| !d.studies.is_empty()) => {
+            let studies = failed.diagnosis.as_ref().map(|d| d.studies.clone()).unwrap_or_default();
+            Some(StepFinding::from_studies(studies, failed_tol))
+        }
         Ok(()) => {
             let returned = driver.base.tangent.clone();
             let strain_scale = driver.strain_scale(settings.step_floor);
@@ -407,7 +409,7 @@ pub fn locate(
                     studies.push(s);
                 }
             }
-            (!studies.is_empty()).then(|| StepFinding::from_studies(studies))
+            (!studies.is_empty()).then(|| StepFinding::from_studies(studies, failed_tol))
         }
     };
     scale(&mut driver, &whole, 1.0);

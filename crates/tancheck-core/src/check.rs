@@ -200,12 +200,15 @@ pub fn run(
                     || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
             })
     });
+    let twin_unsafe = increments.iter().any(|i| i.diagnosis.as_ref().is_some_and(|d| d.twin_unsafe));
     let verdict = if fault {
         Verdict::RoutineFault
-    } else if increments.iter().all(IncrementResult::passed) {
-        Verdict::Pass
-    } else {
+    } else if !increments.iter().all(IncrementResult::passed) {
         Verdict::TangentFailure
+    } else if twin_unsafe {
+        Verdict::TwinNotSafe
+    } else {
+        Verdict::Pass
     };
     Ok(Report {
         tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
@@ -255,7 +258,7 @@ fn branch_summary(increments: &[IncrementResult]) -> Vec<BranchSummary> {
             .checks
             .iter()
             .filter_map(|c| match &c.tangent {
-                CheckOutcome::Compared(x) => Some(x.norm_error.max(x.worst_entry_error)),
+                CheckOutcome::Compared(x) => Some(x.error()),
                 _ => None,
             })
             .fold(0.0, f64::max);

@@ -25,16 +25,21 @@ pub enum Verdict {
     TangentFailure,
     /// The routine crashed, or reported that it could not compute an increment.
     RoutineFault,
+    /// The tangent agrees with the real difference schemes, but the complex-step twin is not
+    /// complex-step safe (its results were set aside).
+    TwinNotSafe,
 }
 
 impl Verdict {
-    /// Exit code: 0 pass, 1 tangent failure, 3 the routine crashed or failed
-    /// (2 is bad input or usage, decided before a report exists).
+    /// Exit code: 0 pass, 1 tangent failure, 3 the routine crashed or failed, 4 the tangent
+    /// is right but the complex-step twin is not complex-step safe (2 is bad input or usage,
+    /// decided before a report exists).
     pub fn exit_code(self) -> i32 {
         match self {
             Verdict::Pass => 0,
             Verdict::TangentFailure => 1,
             Verdict::RoutineFault => 3,
+            Verdict::TwinNotSafe => 4,
         }
     }
 
@@ -43,6 +48,7 @@ impl Verdict {
             Verdict::Pass => "PASS",
             Verdict::TangentFailure => "FAIL",
             Verdict::RoutineFault => "FAULT",
+            Verdict::TwinNotSafe => "TWIN",
         }
     }
 }
@@ -231,10 +237,11 @@ impl Report {
     /// (ties go to the more specific cause; `kink-neither-side` and `dtemp` count as causes),
     /// or `unexplained`.
     pub fn finding(&self) -> String {
-        use crate::diagnose::{Cause, Side};
+        use crate::diagnose::Cause;
         match self.verdict {
             Verdict::Pass => return "none".into(),
             Verdict::RoutineFault => return "routine-fault".into(),
+            Verdict::TwinNotSafe => return crate::diagnose::TWIN_FINDING.into(),
             Verdict::TangentFailure => {}
         }
         let mut counts: Vec<(String, usize, usize)> = Vec::new();
@@ -247,11 +254,8 @@ impl Report {
                 add("non-finite-output", 0);
             }
             let Some(d) = &inc.diagnosis else { continue };
-            if d.kink.as_ref().is_some_and(|k| k.detected && k.returned_matches == Side::Neither) {
-                add("kink-neither-side", 0);
-            }
-            if d.finding == "dtemp" {
-                add("dtemp", 0);
+            if d.finding == "kink-neither-side" || d.finding.starts_with("dtemp") {
+                add(&d.finding, 0);
             }
             let mut seen = Vec::new();
             for h in d.causes.iter().filter(|h| h.explains) {

@@ -89,6 +89,9 @@ pub enum CohesiveFlaw {
     /// The transpose of the tangent. Expected finding: fails in branch 1 in mixed mode
     /// (opening > 0 and slip ≠ 0), where the tangent is unsymmetric; passes everywhere else.
     Transposed,
+    /// The symmetric part ½(C + Cᵀ) of the tangent. Expected finding: fails in branch 1 in
+    /// mixed mode, where the tangent is unsymmetric; passes everywhere else.
+    Symmetrized,
 }
 
 /// The bilinear mixed-mode cohesive law.
@@ -107,6 +110,8 @@ impl Cohesive {
     pub const NO_COUPLING_NAME: &'static str = "cohesive-no-coupling";
     /// Name of the model returning the transposed tangent.
     pub const TRANSPOSED_NAME: &'static str = "cohesive-transposed";
+    /// Name of the model returning the symmetric part of its tangent.
+    pub const SYMMETRIZED_NAME: &'static str = "cohesive-symmetrized";
     /// Meaning of each property, in order.
     pub const PROP_NAMES: [&'static str; 6] = ["K", "N", "S", "G_Ic", "G_IIc", "eta"];
     /// Meaning of each state variable, in order.
@@ -147,6 +152,7 @@ impl Cohesive {
             CohesiveFlaw::Secant => Self::SECANT_NAME,
             CohesiveFlaw::NoCoupling => Self::NO_COUPLING_NAME,
             CohesiveFlaw::Transposed => Self::TRANSPOSED_NAME,
+            CohesiveFlaw::Symmetrized => Self::SYMMETRIZED_NAME,
         }
     }
 
@@ -389,7 +395,7 @@ impl Model for Cohesive {
                 tangent[0][0] = k;
             }
             match self.flaw {
-                CohesiveFlaw::None | CohesiveFlaw::Transposed => {}
+                CohesiveFlaw::None | CohesiveFlaw::Transposed | CohesiveFlaw::Symmetrized => {}
                 CohesiveFlaw::Secant => {
                     for (i, row) in tangent.iter_mut().enumerate().take(n) {
                         *row = [S::zero(); 3];
@@ -410,7 +416,13 @@ impl Model for Cohesive {
         let transposed = self.flaw == CohesiveFlaw::Transposed;
         for (j, column) in output.tangent.chunks_exact_mut(n).enumerate() {
             for (i, x) in column.iter_mut().enumerate() {
-                *x = if transposed { tangent[j][i] } else { tangent[i][j] };
+                *x = if transposed {
+                    tangent[j][i]
+                } else if self.flaw == CohesiveFlaw::Symmetrized {
+                    (tangent[i][j] + tangent[j][i]) * 0.5
+                } else {
+                    tangent[i][j]
+                };
             }
         }
 

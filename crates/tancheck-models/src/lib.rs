@@ -71,10 +71,16 @@ impl AnyModel {
             J2::CONTINUUM_NAME => Ok(AnyModel::J2(J2::continuum(kind)?)),
             Thermo::NAME => Ok(AnyModel::Thermo(Thermo::new(kind)?)),
             Thermo::DTEMP_SIGN_NAME => Ok(AnyModel::Thermo(Thermo::dtemp_sign(kind)?)),
+            Thermo::PARTIAL_DTEMP_NAME => {
+                Ok(AnyModel::Thermo(Thermo::with_flaw(kind, crate::thermo::ThermoFlaw::PartialDtemp)?))
+            }
             Cohesive::NAME => Ok(AnyModel::Cohesive(Cohesive::new(kind)?)),
             Cohesive::SECANT_NAME => Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Secant)?)),
             Cohesive::NO_COUPLING_NAME => {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::NoCoupling)?))
+            }
+            Cohesive::SYMMETRIZED_NAME => {
+                Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Symmetrized)?))
             }
             Cohesive::TRANSPOSED_NAME => {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))

@@ -79,6 +79,9 @@ pub enum ThermoFlaw {
     /// ∂σ/∂ΔT is returned with the wrong sign. Expected finding: the tangent passes
     /// everywhere; ∂σ/∂T fails wherever it is not zero, with a relative error of exactly 2.
     DtempSign,
+    /// ∂σ/∂ΔT without its thermal-expansion term −C:1 ε_th′ (the stiffness term kept).
+    /// Expected finding: `dtemp-partial`.
+    PartialDtemp,
 }
 
 /// Linear thermo-elasticity with temperature-dependent E, ν and thermal strain.
@@ -93,6 +96,8 @@ impl Thermo {
     pub const NAME: &'static str = "thermo";
     /// Name of the model whose ∂σ/∂T has the wrong sign.
     pub const DTEMP_SIGN_NAME: &'static str = "thermo-dtemp-sign";
+    /// Name of the model whose ∂σ/∂T misses its thermal-expansion term.
+    pub const PARTIAL_DTEMP_NAME: &'static str = "thermo-partial-dtemp";
     /// Meaning of the fixed properties, in order (a user table follows them).
     pub const PROP_NAMES: [&'static str; 6] = ["E20", "nu0", "nu1", "modulus_law", "expansion_law", "alpha"];
     /// Properties before the user table.
@@ -121,6 +126,7 @@ impl Thermo {
         let name = match flaw {
             ThermoFlaw::None => Self::NAME,
             ThermoFlaw::DtempSign => Self::DTEMP_SIGN_NAME,
+            ThermoFlaw::PartialDtemp => Self::PARTIAL_DTEMP_NAME,
         };
         if !Self::KINDS.contains(&kind) {
             return Err(ModelError::UnsupportedKind {
@@ -382,9 +388,10 @@ impl Model for Thermo {
             }
         }
         // σ = E Ĉ ε_e; ∂σ/∂T = (E' Ĉ + E Ĉ' ν') ε_e − E Ĉ 1 ε_th'.
-        let sign = match self.flaw {
-            ThermoFlaw::None => 1.0,
-            ThermoFlaw::DtempSign => -1.0,
+        let (sign, expansion) = match self.flaw {
+            ThermoFlaw::None => (1.0, 1.0),
+            ThermoFlaw::DtempSign => (-1.0, 1.0),
+            ThermoFlaw::PartialDtemp => (1.0, 0.0),
         };
         let mut stored = S::zero();
         for i in 0..n {
@@ -398,7 +405,7 @@ impl Model for Thermo {
             }
             let s = s * e;
             output.stress[i] = s;
-            output.dstress_dtemp[i] = (ds_mech - c_one * e * deps_th) * sign;
+            output.dstress_dtemp[i] = (ds_mech - c_one * e * deps_th * expansion) * sign;
             stored += s * eps_e[i];
             for (j, cij) in c[i].iter().enumerate().take(n) {
                 output.tangent[i + j * n] = *cij * e;

@@ -12,14 +12,14 @@
 
 mod j2_flaw;
 
-pub use j2_flaw::{FlawedJ2, J2Flaw, UNIT_FACTOR};
+pub use j2_flaw::{FlawedJ2, J2Flaw, RANK_TWO_FACTOR, SINGLE_ENTRY_FACTOR, UNIT_FACTOR};
 
 use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
 
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
 /// Every finding an entry may expect. `none`: the routine is correct and must pass.
-pub const FINDINGS: [&str; 14] = [
+pub const FINDINGS: [&str; 22] = [
     "shear-factor",
     "shear-permutation",
     "transposed",
@@ -28,6 +28,14 @@ pub const FINDINGS: [&str; 14] = [
     "continuum-tangent",
     "stale-tangent",
     "rank-one-term",
+    "term-scaled",
+    "term-sign",
+    "term-missing",
+    "single-entry",
+    "symmetrized",
+    "rank-two",
+    "dtemp-partial",
+    "twin-not-complex-step-safe",
     "one-column",
     "kink-neither-side",
     "dtemp",
@@ -74,7 +82,7 @@ pub struct ZooEntry {
     pub fortran_symbol: Option<&'static str>,
 }
 
-const J2_ROWS: [ZooEntry; 10] = [
+const J2_ROWS: [ZooEntry; 16] = [
     ZooEntry {
         name: J2::NAME,
         description: "J2 plasticity with the consistent tangent (the reference the variants spoil)",
@@ -128,10 +136,10 @@ const J2_ROWS: [ZooEntry; 10] = [
         name: "j2-no-kinematic",
         description:
             "kinematic modulus left out of the plastic correction of the tangent, kept in the update",
-        expected: "rank-one-term",
+        expected: "term-scaled",
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_no_kinematic"),
-        fortran_symbol: None,
+        fortran_symbol: Some("f_j2_no_kinematic"),
     },
     ZooEntry {
         name: "j2-unit-factor",
@@ -153,10 +161,61 @@ const J2_ROWS: [ZooEntry; 10] = [
         name: "j2-reversal",
         description: "plastic correction of the tangent with the wrong sign, only in yielding after a load \
                       reversal (the last flow direction kept in ncomp extra state entries)",
-        expected: "rank-one-term",
+        expected: "term-sign",
         kinds: &J2::KINDS,
         c_symbol: Some("c_j2_reversal"),
         fortran_symbol: None,
+    },
+    ZooEntry {
+        name: "j2-single-entry",
+        description: "one entry of the tangent (33/22) off by 1e-4",
+        expected: "single-entry",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_single_entry"),
+        fortran_symbol: Some("f_j2_single_entry"),
+    },
+    ZooEntry {
+        name: "j2-plastic-sign",
+        description: "plastic correction of the tangent with the wrong sign in every plastic increment",
+        expected: "term-sign",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_plastic_sign"),
+        fortran_symbol: Some("f_j2_plastic_sign"),
+    },
+    ZooEntry {
+        name: "j2-term-missing",
+        description: "after yield, the plastic correction 2μθ̄ n⊗n left out of the tangent (θ kept)",
+        expected: "term-missing",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_term_missing"),
+        fortran_symbol: Some("f_j2_term_missing"),
+    },
+    ZooEntry {
+        name: "j2-rank-two",
+        description: "after yield, a spurious pressure coupling c(n⊗1 + 1⊗n) in the tangent (rank two)",
+        expected: "rank-two",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_j2_rank_two"),
+        fortran_symbol: Some("f_j2_rank_two"),
+    },
+    ZooEntry {
+        name: "twin-real-sqrt",
+        description: "consistent J2 whose complex twin takes a real-only square root in the norm of the \
+                      flow direction (Rust: the norm's real part kept)",
+        expected: "twin-not-complex-step-safe",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_twin_real_sqrt"),
+        fortran_symbol: Some("f_twin_real_sqrt"),
+    },
+    ZooEntry {
+        name: "twin-conjugate",
+        description:
+            "consistent J2 whose complex twin takes the norm with a conjugate (C conj, Fortran \
+                      dot_product; Rust has no conjugate: the norm's real part kept, the same to first order)",
+        expected: "twin-not-complex-step-safe",
+        kinds: &J2::KINDS,
+        c_symbol: Some("c_twin_conjugate"),
+        fortran_symbol: Some("f_twin_conjugate"),
     },
 ];
 
@@ -187,7 +246,7 @@ const ELASTIC_ROWS: [ZooEntry; 3] = [
     },
 ];
 
-const THERMO_ROWS: [ZooEntry; 2] = [
+const THERMO_ROWS: [ZooEntry; 3] = [
     ZooEntry {
         name: Thermo::NAME,
         description:
@@ -206,9 +265,18 @@ const THERMO_ROWS: [ZooEntry; 2] = [
         c_symbol: Some("c_thermo_dtemp_sign"),
         fortran_symbol: Some("f_thermo_dtemp_sign"),
     },
+    ZooEntry {
+        name: Thermo::PARTIAL_DTEMP_NAME,
+        description: "thermo-elasticity whose temperature derivative of the stress misses its \
+                      thermal-expansion term",
+        expected: "dtemp-partial",
+        kinds: &Thermo::KINDS,
+        c_symbol: Some("c_thermo_partial_dtemp"),
+        fortran_symbol: Some("f_thermo_partial_dtemp"),
+    },
 ];
 
-const COHESIVE_ROWS: [ZooEntry; 4] = [
+const COHESIVE_ROWS: [ZooEntry; 5] = [
     ZooEntry {
         name: Cohesive::NAME,
         description: "bilinear mixed-mode cohesive law with its consistent tangent (correct)",
@@ -240,6 +308,14 @@ const COHESIVE_ROWS: [ZooEntry; 4] = [
         kinds: &Cohesive::KINDS,
         c_symbol: Some("c_cohesive_transposed"),
         fortran_symbol: Some("f_cohesive_transposed"),
+    },
+    ZooEntry {
+        name: Cohesive::SYMMETRIZED_NAME,
+        description: "cohesive law returning the symmetric part of its unsymmetric mixed-mode tangent",
+        expected: "symmetrized",
+        kinds: &Cohesive::KINDS,
+        c_symbol: Some("c_cohesive_symmetrized"),
+        fortran_symbol: Some("f_cohesive_symmetrized"),
     },
 ];
 

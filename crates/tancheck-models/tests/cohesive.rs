@@ -602,13 +602,18 @@ fn diagonal(n: usize, tangent: &[f64]) -> Vec<f64> {
 // Each flawed variant against num-dual: it agrees (1e-12) on the branches and modes it does
 // not target, and where it is wrong its error is the one its flaw predicts from the exact
 // (num-dual) tangent D: secant ‖S − D‖/‖D‖, no coupling ‖diag-growth − D‖/‖D‖, transposed
-// ‖Dᵀ − D‖/‖D‖ — and large.
+// ‖Dᵀ − D‖/‖D‖, symmetrized ‖½(D + Dᵀ) − D‖/‖D‖ — and large.
 #[test]
 fn flawed_variants_are_wrong_where_they_should_be_only() {
     let mut rng = StdRng::seed_from_u64(0xc0e5_0002);
     for kind in Cohesive::KINDS {
         let n = kind.ncomp();
-        for flaw in [CohesiveFlaw::Secant, CohesiveFlaw::NoCoupling, CohesiveFlaw::Transposed] {
+        for flaw in [
+            CohesiveFlaw::Secant,
+            CohesiveFlaw::NoCoupling,
+            CohesiveFlaw::Transposed,
+            CohesiveFlaw::Symmetrized,
+        ] {
             let m = Cohesive::with_flaw(kind, flaw).unwrap();
             let good = Cohesive::new(kind).unwrap();
             let (mut wrong, mut right, mut large) = (0, 0, 0);
@@ -629,7 +634,7 @@ fn flawed_variants_are_wrong_where_they_should_be_only() {
                         && match flaw {
                             CohesiveFlaw::Secant => true,
                             CohesiveFlaw::NoCoupling => !single,
-                            CohesiveFlaw::Transposed => mode == Mode::Mixed,
+                            CohesiveFlaw::Transposed | CohesiveFlaw::Symmetrized => mode == Mode::Mixed,
                             CohesiveFlaw::None => false,
                         };
                     if !targeted {
@@ -642,6 +647,10 @@ fn flawed_variants_are_wrong_where_they_should_be_only() {
                     let flawed = match flaw {
                         CohesiveFlaw::Secant => sec,
                         CohesiveFlaw::NoCoupling => diagonal(n, &dual),
+                        CohesiveFlaw::Symmetrized => {
+                            let t = transpose(n, &dual);
+                            dual.iter().zip(&t).map(|(a, b)| 0.5 * (a + b)).collect()
+                        }
                         _ => transpose(n, &dual),
                     };
                     let predicted = tangent_error(n, &flawed, &dual);

@@ -8,6 +8,8 @@
  *   c_cohesive_secant       the secant (1 - d) K during damage growth (wrong in branch 1)
  *   c_cohesive_no_coupling  the damage-growth term kept on the diagonal only (wrong in branch 1
  *                           when two or more separation components are nonzero)
+ *   c_cohesive_symmetrized  the symmetric part of the tangent, 1/2 (C + C^T) (wrong in
+ *                           mixed-mode damage growth, where the tangent is unsymmetric)
  *   c_cohesive_transposed   the transposed tangent (wrong in mixed-mode damage growth, where
  *                           the tangent is unsymmetric)
  *
@@ -45,7 +47,7 @@ enum { CZ_K, CZ_N, CZ_S, CZ_GIC, CZ_GIIC, CZ_ETA, CZ_NPROP };
 /* Branch ids. */
 enum { CZ_ELASTIC, CZ_GROWTH, CZ_UNLOADING, CZ_CLOSED, CZ_FAILED };
 
-typedef enum { CZ_CONSISTENT, CZ_SECANT, CZ_NO_COUPLING, CZ_TRANSPOSED } cz_flaw;
+typedef enum { CZ_CONSISTENT, CZ_SECANT, CZ_NO_COUPLING, CZ_TRANSPOSED, CZ_SYMMETRIZED } cz_flaw;
 
 static void cz_fail(tc_report *report, const char *text)
 {
@@ -269,7 +271,9 @@ static void cz_update(const tc_call *call, const tc_real *props, const tc_real *
     }
     for (int j = 0; j < n; ++j) {
         for (int i = 0; i < n; ++i) {
-            tangent[i + j * n] = flaw == CZ_TRANSPOSED ? tan3[j][i] : tan3[i][j];
+            tangent[i + j * n] = flaw == CZ_TRANSPOSED    ? tan3[j][i]
+                                 : flaw == CZ_SYMMETRIZED ? 0.5 * (tan3[i][j] + tan3[j][i])
+                                                          : tan3[i][j];
         }
     }
 
@@ -319,4 +323,13 @@ TC_ROUTINE(c_cohesive_transposed)
     (void)dstress_dtemp;
     cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_TRANSPOSED);
+}
+
+TC_ROUTINE(c_cohesive_symmetrized)
+{
+    (void)temp;
+    (void)stress0;
+    (void)dstress_dtemp;
+    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+              CZ_SYMMETRIZED);
 }

@@ -3,6 +3,8 @@
  * thermal strain, the reference routines "thermo" and "thermo-dtemp-sign" in C.
  *
  *   c_thermo             the correct routine: stress, tangent and d stress / d temperature
+ *   c_thermo_partial_dtemp  the same update with d stress / d temperature missing its
+ *                        thermal-expansion term (deliberately flawed)
  *   c_thermo_dtemp_sign  the same update returning -d stress / d temperature: a deliberately
  *                        wrong temperature derivative, for tancheck to find (the tangent is
  *                        right; d stress / dT is off by a relative 2 wherever it is not zero)
@@ -167,7 +169,8 @@ static void th_unit_matrix(int n, tc_real nu, tc_real *c, tc_real *dc)
 static void th_update(const tc_call *call, const tc_real *props, const tc_real *strain,
                       const tc_real *dstrain, const tc_real *temp, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent, tc_real *dstress_dtemp,
-                      tc_real *energy, tc_report *report, double sign)
+                      tc_real *energy, tc_report *report, double sign,
+                      double expansion)
 {
     const int n = call->ncomp;
     if (n != 6 && n != 4 && n != 3 && n != 1) {
@@ -285,7 +288,7 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
         }
         s = s * e;
         stress[i] = s;
-        dstress_dtemp[i] = sign * (ds - c_one * e * deps_th);
+        dstress_dtemp[i] = sign * (ds - expansion * c_one * e * deps_th);
         stored += s * eps_e[i];
         for (int j = 0; j < n; ++j) {
             tangent[i + j * n] = c[i + j * n] * e;
@@ -305,12 +308,21 @@ TC_ROUTINE(c_thermo)
 {
     (void)stress0;
     th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
-              energy, report, 1.0);
+              energy, report, 1.0, 1.0);
 }
 
 TC_ROUTINE(c_thermo_dtemp_sign)
 {
     (void)stress0;
     th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
-              energy, report, -1.0);
+              energy, report, -1.0, 1.0);
+}
+
+/* A deliberately flawed routine: d stress / d temperature without its thermal-expansion term
+ * (-C:1 eps_th'), the stiffness term kept. */
+TC_ROUTINE(c_thermo_partial_dtemp)
+{
+    (void)stress0;
+    th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+              energy, report, 1.0, 0.0);
 }

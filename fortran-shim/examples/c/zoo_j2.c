@@ -20,6 +20,16 @@
  *   c_j2_reversal               plastic correction with the wrong sign (+2 mu theta_bar n(x)n),
  *                               only in a plastic increment that reverses the previous flow
  *                               (ncomp extra state entries, see below)
+ *   c_j2_single_entry           entry 33/22 of the consistent tangent times 1 + 1e-4
+ *   c_j2_plastic_sign           plastic correction with the wrong sign in every plastic increment
+ *   c_j2_rank_two               after yield, + c (n(x)1 + 1(x)n), c = 0.05 mu (rank two)
+ *   c_j2_term_missing           after yield, the plastic correction 2 mu theta_bar n(x)n left
+ *                               out (theta kept)
+ *   c_twin_real_sqrt            tangent and real update correct; the complex twin takes the norm
+ *                               of xi_tr with a real-only square root, sqrt(creal(x)): NOT
+ *                               complex-step safe, on purpose
+ *   c_twin_conjugate            the same with the norm as sum x*conj(x): NOT complex-step safe,
+ *                               on purpose
  *
  * Layout (DEVELOPERS.md, "Reference models", j2): ncomp 6 (11, 22, 33, 23, 13, 12) or 4
  * (11, 22, 33, 12), engineering shear strain; properties [E, nu, sigma_y0, H_iso, Q, b, H_kin];
@@ -66,8 +76,26 @@ typedef enum {
     ZJ_NO_KINEMATIC,
     ZJ_UNIT_FACTOR_FLAW,
     ZJ_ONE_COLUMN,
-    ZJ_REVERSAL
+    ZJ_REVERSAL,
+    ZJ_SINGLE_ENTRY,
+    ZJ_PLASTIC_SIGN,
+    ZJ_RANK_TWO,
+    ZJ_TERM_MISSING,
+    ZJ_TWIN_REAL_SQRT,
+    ZJ_TWIN_CONJUGATE
 } zj_flaw;
+
+#define ZJ_SINGLE_ENTRY_FACTOR (1.0 + 1e-4)
+#define ZJ_RANK_TWO_FACTOR 0.05
+
+/* The broken twins, on purpose: what not to write in a complex-step twin. */
+#ifdef TC_COMPLEX
+#define ZJ_CONJ(x) conj(x)
+#define ZJ_REAL_ONLY_SQRT(x) tc_cst(sqrt(creal(x)))
+#else
+#define ZJ_CONJ(x) (x)
+#define ZJ_REAL_ONLY_SQRT(x) sqrt(x)
+#endif
 
 /* K(alpha) = sigma_y0 + H_iso alpha + Q (1 - exp(-b alpha)). */
 static tc_real zj_yield(const tc_real *props, tc_real alpha)
@@ -100,9 +128,10 @@ static void zj_fail(tc_report *report, const char *name, const char *text)
  * given), with sigma = kappa tr(eps_e) 1 + 2 mu dev(eps_e); also sigma itself. Returns |xi|.
  * Each shear component stands for two equal tensor components in the norm.
  */
-static tc_real zj_relative_stress(int n, tc_real mu, tc_real kappa, const tc_real *strain,
-                                  const tc_real *dstrain, const tc_real *eps_p,
-                                  const tc_real *beta, tc_real *sigma, tc_real *xi)
+static tc_real zj_relative_stress(zj_flaw flaw, int n, tc_real mu, tc_real kappa,
+                                  const tc_real *strain, const tc_real *dstrain,
+                                  const tc_real *eps_p, const tc_real *beta, tc_real *sigma,
+                                  tc_real *xi)
 {
     tc_real eps_e[6];
     for (int i = 0; i < n; ++i) {
@@ -120,9 +149,9 @@ static tc_real zj_relative_stress(int n, tc_real mu, tc_real kappa, const tc_rea
         tc_real s = i < 3 ? 2.0 * mu * (eps_e[i] - trace / 3.0) : 2.0 * mu * eps_e[i];
         sigma[i] = i < 3 ? kappa * trace + s : s;
         xi[i] = s - beta[i];
-        norm2 += (i < 3 ? 1.0 : 2.0) * xi[i] * xi[i];
+        norm2 += (i < 3 ? 1.0 : 2.0) * xi[i] * (flaw == ZJ_TWIN_CONJUGATE ? ZJ_CONJ(xi[i]) : xi[i]);
     }
-    return tc_sqrt(norm2);
+    return flaw == ZJ_TWIN_REAL_SQRT ? ZJ_REAL_ONLY_SQRT(norm2) : tc_sqrt(norm2);
 }
 
 /* C = kappa 1(x)1 + 2 mu theta (I - 1/3 1(x)1) - 2 mu theta_bar n(x)n in Voigt form with
@@ -181,7 +210,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     /* Trial state (Simo & Hughes 1998, Box 3.2). */
     tc_real sigma_tr[6];
     tc_real xi[6];
-    const tc_real norm = zj_relative_stress(n, mu, kappa, strain, dstrain, eps_p_n, beta_n, sigma_tr, xi);
+    const tc_real norm = zj_relative_stress(flaw, n, mu, kappa, strain, dstrain, eps_p_n, beta_n, sigma_tr, xi);
     const tc_real f_trial = norm - sqrt23 * zj_yield(props, alpha_n);
 
     tc_real n_dir[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
@@ -285,7 +314,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         tc_real sigma_n[6];
         tc_real xi_n[6];
         tc_real n_start[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
-        const tc_real norm_n = zj_relative_stress(n, mu, kappa, strain, 0, eps_p_n, beta_n, sigma_n, xi_n);
+        const tc_real norm_n = zj_relative_stress(flaw, n, mu, kappa, strain, 0, eps_p_n, beta_n, sigma_n, xi_n);
         if (tc_re(norm_n) > 0.0) {
             for (int i = 0; i < n; ++i) {
                 n_start[i] = xi_n[i] / norm_n;
@@ -328,6 +357,34 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
             }
         }
         break;
+    case ZJ_SINGLE_ENTRY:
+        tangent[2 + 1 * n] = ZJ_SINGLE_ENTRY_FACTOR * tangent[2 + 1 * n];
+        break;
+    case ZJ_PLASTIC_SIGN:
+        if (plastic) {
+            zj_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
+        }
+        break;
+    case ZJ_TERM_MISSING:
+        if (plastic) {
+            zj_matrix(n, kappa, mu, theta, tc_cst(0.0), n_dir, tangent);
+        }
+        break;
+    case ZJ_RANK_TWO:
+        if (plastic) {
+            const tc_real c = ZJ_RANK_TWO_FACTOR * mu;
+            for (int j = 0; j < n; ++j) {
+                for (int i = 0; i < n; ++i) {
+                    const double one_i = i < 3 ? 1.0 : 0.0;
+                    const double one_j = j < 3 ? 1.0 : 0.0;
+                    tangent[i + j * n] += c * (n_dir[i] * one_j + one_i * n_dir[j]);
+                }
+            }
+        }
+        break;
+    case ZJ_TWIN_REAL_SQRT:
+    case ZJ_TWIN_CONJUGATE:
+        break; /* in the norm of zj_relative_stress */
     }
     if (report->status != TC_STATUS_FAILED) {
         report->status = TC_STATUS_OK;
@@ -354,3 +411,9 @@ ZJ_ROUTINE(c_j2_no_kinematic, "j2-no-kinematic", ZJ_NO_KINEMATIC)
 ZJ_ROUTINE(c_j2_unit_factor, "j2-unit-factor", ZJ_UNIT_FACTOR_FLAW)
 ZJ_ROUTINE(c_j2_one_column, "j2-one-column", ZJ_ONE_COLUMN)
 ZJ_ROUTINE(c_j2_reversal, "j2-reversal", ZJ_REVERSAL)
+ZJ_ROUTINE(c_j2_single_entry, "j2-single-entry", ZJ_SINGLE_ENTRY)
+ZJ_ROUTINE(c_j2_plastic_sign, "j2-plastic-sign", ZJ_PLASTIC_SIGN)
+ZJ_ROUTINE(c_j2_rank_two, "j2-rank-two", ZJ_RANK_TWO)
+ZJ_ROUTINE(c_twin_real_sqrt, "twin-real-sqrt", ZJ_TWIN_REAL_SQRT)
+ZJ_ROUTINE(c_twin_conjugate, "twin-conjugate", ZJ_TWIN_CONJUGATE)
+ZJ_ROUTINE(c_j2_term_missing, "j2-term-missing", ZJ_TERM_MISSING)

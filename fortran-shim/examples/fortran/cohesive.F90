@@ -7,6 +7,8 @@
 !   f_cohesive_secant       the secant (1 - d) K during damage growth (wrong in branch 1)
 !   f_cohesive_no_coupling  the damage-growth term kept on the diagonal only (wrong in branch 1
 !                           when two or more separation components are nonzero)
+!   f_cohesive_symmetrized  the symmetric part of the tangent, 1/2 (C + C^T) (wrong in
+!                           mixed-mode damage growth, where the tangent is unsymmetric)
 !   f_cohesive_transposed   the transposed tangent (wrong in mixed-mode damage growth, where
 !                           the tangent is unsymmetric)
 !
@@ -165,3 +167,35 @@ contains
 #include "cohesive_update.inc"
 
 end subroutine f_cohesive_transposed
+
+
+subroutine f_cohesive_symmetrized(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+                                  state, tangent, dstress_dtemp, energy, report) &
+                                  bind(C, name="f_cohesive_symmetrized"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
+  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+                              tc_status_failed, tc_provides_energy
+  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
+  implicit none
+  type(tc_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
+  TC_REAL, intent(in) :: temp(2)
+  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  type(tc_report), intent(inout) :: report
+
+  ! See f_cohesive.
+  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+
+  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+                       energy, report, 4)
+
+contains
+
+#include "cohesive_update.inc"
+
+end subroutine f_cohesive_symmetrized

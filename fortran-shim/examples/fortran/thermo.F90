@@ -2,6 +2,8 @@
 ! thermal strain, the reference routines "thermo" and "thermo-dtemp-sign" in Fortran.
 !
 !   f_thermo             the correct routine: stress, tangent and d stress / d temperature
+!   f_thermo_partial_dtemp  the same update with d stress / d temperature missing its
+!                        thermal-expansion term (deliberately flawed)
 !   f_thermo_dtemp_sign  the same update returning -d stress / d temperature: a deliberately
 !                        wrong temperature derivative, for tancheck to find (the tangent is
 !                        right; d stress / dT is off by a relative 2 wherever it is not zero)
@@ -56,7 +58,7 @@ subroutine f_thermo(callinfo, props, strain, dstrain, temp, stress0, state0, str
   namelist /unused_arguments/ stress0
 
   call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
-                     dstress_dtemp, energy, report, 1.0_c_double)
+                     dstress_dtemp, energy, report, 1.0_c_double, 1.0_c_double)
 
 contains
 
@@ -87,10 +89,41 @@ subroutine f_thermo_dtemp_sign(callinfo, props, strain, dstrain, temp, stress0, 
   namelist /unused_arguments/ stress0
 
   call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
-                     dstress_dtemp, energy, report, -1.0_c_double)
+                     dstress_dtemp, energy, report, -1.0_c_double, 1.0_c_double)
 
 contains
 
 #include "thermo_update.inc"
 
 end subroutine f_thermo_dtemp_sign
+
+
+subroutine f_thermo_partial_dtemp(callinfo, props, strain, dstrain, temp, stress0, state0, &
+                                  stress, state, tangent, dstress_dtemp, energy, report) &
+                                  bind(C, name="f_thermo_partial_dtemp"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
+  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+                              tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
+  implicit none
+  type(tc_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
+  TC_REAL, intent(in) :: temp(2)
+  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  type(tc_report), intent(inout) :: report
+
+  ! See f_thermo.
+  namelist /unused_arguments/ stress0
+
+  call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+                     dstress_dtemp, energy, report, 1.0_c_double, 0.0_c_double)
+
+contains
+
+#include "thermo_update.inc"
+
+end subroutine f_thermo_partial_dtemp

@@ -52,7 +52,9 @@ impl Reporter for Terminal {
             }
             let mut cells: Vec<String> = inc.checks.iter().map(|c| format!("{:<22}", cell(c))).collect();
             if let Some(d) = &inc.diagnosis {
-                cells.push(if d.pass {
+                cells.push(if d.twin_unsafe && d.pass {
+                    format!("-> tangent ok; {}", d.finding)
+                } else if d.pass {
                     "-> ok on a closer look".into()
                 } else {
                     format!("-> {}", d.finding)
@@ -77,6 +79,8 @@ impl Reporter for Terminal {
             if let Some(d) = &inc.diagnosis {
                 if !d.pass || self.detail == Detail::Verbose {
                     diagnosis(out, d)?;
+                } else if d.twin_unsafe {
+                    writeln!(out, "        tangent cleared, twin set aside: {}", d.reason)?;
                 } else {
                     writeln!(out, "        cleared on a closer look: {}", d.reason)?;
                 }
@@ -145,6 +149,10 @@ impl Reporter for Terminal {
                 "the returned tangent differs from the derivative of the stress update"
             }
             Verdict::RoutineFault => "the routine crashed or could not compute an increment",
+            Verdict::TwinNotSafe => {
+                "the returned tangent agrees with the real difference schemes, but the complex-step twin is \
+                 not complex-step safe (its results were set aside; see the diagnosis for the usual culprits)"
+            }
         };
         writeln!(out, "   verdict: {} — {what} (exit {})", r.verdict.word(), r.exit_code())?;
         Ok(())
@@ -155,11 +163,7 @@ impl Reporter for Terminal {
 fn cell(c: &SchemeCheck) -> String {
     let mut s = match &c.tangent {
         CheckOutcome::Compared(cmp) => {
-            format!(
-                "{} {}",
-                if cmp.pass { "ok" } else { "FAIL" },
-                sci(cmp.norm_error.max(cmp.worst_entry_error))
-            )
+            format!("{} {}", if cmp.pass { "ok" } else { "FAIL" }, sci(cmp.error()))
         }
         CheckOutcome::Skipped { reason } => format!("skipped ({reason})"),
         CheckOutcome::Fault(_) => "CRASH".into(),
@@ -188,6 +192,14 @@ fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::R
                     sci(cmp.worst_entry_error),
                     sci(cmp.tol)
                 )?;
+                if cmp.soft_error > cmp.tol {
+                    writeln!(
+                        out,
+                        "          along {}: error {} relative to the response in that direction",
+                        cmp.soft_direction,
+                        sci(cmp.soft_error)
+                    )?;
+                }
                 if cmp.non_finite_returned > 0 {
                     writeln!(
                         out,
@@ -226,6 +238,9 @@ pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
                 sci(k.forward_error),
                 sci(k.backward_error)
             )?;
+            if !k.columns.is_empty() {
+                writeln!(out, "          side matched per column: {}", k.sides)?;
+            }
         }
     }
     for s in &d.studies {

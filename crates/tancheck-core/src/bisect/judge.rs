@@ -8,7 +8,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::{compare, compare_dtemp};
+use crate::compare::{compare_along, compare_dtemp_floor, dtemp_floor};
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
 use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck};
@@ -47,7 +47,7 @@ impl CallCheck {
         self.checks
             .iter()
             .filter_map(|c| match &c.tangent {
-                CheckOutcome::Compared(x) => Some(x.norm_error.max(x.worst_entry_error)),
+                CheckOutcome::Compared(x) => Some(x.error()),
                 _ => None,
             })
             .fold(0.0, f64::max)
@@ -132,6 +132,15 @@ pub fn check_call(
     let mut checks = Vec::with_capacity(settings.schemes.len());
     let mut best: Option<(Scheme, Vec<f64>)> = None;
     let mut failed_dtemp: Option<Vec<f64>> = None;
+    // The twin's real part against the real stress, over every complex call (a running max:
+    // no allocation).
+    let mut twin_real_gap: Option<f64> = None;
+    let stress_scale = {
+        let s = driver.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt();
+        let c = returned.iter().filter(|x| x.is_finite()).map(|x| x * x).sum::<f64>().sqrt();
+        (s + c * h_strain_scale).max(1e-300)
+    };
+    let dtemp_abs_floor = dtemp_floor(&driver.base.stress, &returned, h_strain_scale, h_temp_scale);
     for &scheme in &settings.schemes {
         let ss = settings.scheme(scheme);
         let h = ss.rel_step * h_strain_scale;
@@ -146,9 +155,21 @@ pub fn check_call(
         }
         let mut tangent = None;
         for j in 0..n {
-            if let Err(f) =
-                scheme.column(driver, caller, Direction::Strain(j), h, &mut numerical[j * n..(j + 1) * n])
-            {
+            let r =
+                scheme.column(driver, caller, Direction::Strain(j), h, &mut numerical[j * n..(j + 1) * n]);
+            if r.is_ok() && scheme == Scheme::ComplexStep {
+                let gap = driver
+                    .cplx
+                    .stress
+                    .iter()
+                    .zip(&driver.base.stress)
+                    .map(|(c, b)| (c.re - b).abs())
+                    .fold(0.0, f64::max)
+                    / stress_scale;
+                twin_real_gap =
+                    Some(twin_real_gap.unwrap_or(0.0).max(if gap.is_nan() { f64::INFINITY } else { gap }));
+            }
+            if let Err(f) = r {
                 let what = format!(
                     "dstrain[{j}] {} {h:.3e}",
                     if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
@@ -170,13 +191,14 @@ pub fn check_call(
                 if better {
                     best = Some((scheme, numerical.clone()));
                 }
-                CheckOutcome::Compared(compare(
+                CheckOutcome::Compared(compare_along(
                     &conv,
                     &returned,
                     &numerical,
                     ss.tol,
                     settings.entry_floor,
                     settings.worst_entries,
+                    Some(driver.dstrain()),
                 ))
             }
         };
@@ -186,13 +208,14 @@ pub fn check_call(
                 let ht = ss.rel_step * h_temp_scale;
                 Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
                     Ok(()) => {
-                        let c = compare_dtemp(
+                        let c = compare_dtemp_floor(
                             &conv,
                             ret,
                             &dtemp_num,
                             ss.tol,
                             settings.entry_floor,
                             settings.worst_entries,
+                            dtemp_abs_floor,
                         );
                         if !c.pass && failed_dtemp.is_none() {
                             failed_dtemp = Some(dtemp_num.clone());
@@ -234,15 +257,19 @@ pub fn check_call(
         && !out.checks.iter().all(SchemeCheck::passed)
     {
         let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
-        let complex_pass =
+        let complex =
             out.checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| match &c.tangent {
-                CheckOutcome::Compared(x) => Some(x.pass),
+                CheckOutcome::Compared(x) => Some((
+                    if x.pass { x.error().min(x.tol) } else { x.error().max(x.tol * (1.0 + 1e-12)) },
+                    x.tol,
+                )),
                 _ => None,
             });
         let ctx = Context {
             returned: &returned,
             dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
-            complex_pass,
+            complex,
+            twin_real_gap,
             tangent_checks_pass: out.checks.iter().all(tangent_ok),
             previous,
             state_changed,

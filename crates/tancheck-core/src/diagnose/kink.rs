@@ -2,6 +2,11 @@
 //! when the forward and backward derivatives disagree and keep disagreeing as the step
 //! shrinks. A kink alone is not a failure; a returned tangent that matches neither one-sided
 //! derivative is.
+//!
+//! Each strain direction is judged on its own: at a multi-axial yield point the 11 column may
+//! load plastically on one side while the 22 and 33 columns load plastically on the other
+//! (and unload elastically on the side the returned tangent describes). A returned column
+//! passes when it equals the forward or the backward derivative of that column.
 
 use serde::{Deserialize, Serialize};
 
@@ -12,15 +17,45 @@ use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 
 /// Relative steps at which the one-sided derivatives are compared.
-const STEPS: [f64; 3] = [1e-5, 1e-6, 1e-7];
+pub const STEPS: [f64; 3] = [1e-5, 1e-6, 1e-7];
 
-/// Which one-sided derivative the returned tangent equals.
+/// A one-sided gap larger than this (relative to the column, or the matrix norm times the
+/// entry floor) is more than the one-sided truncation at the steps of [`STEPS`].
+pub const GAP_LEVEL: f64 = 1e-4;
+
+/// Which one-sided derivative the returned tangent (or one of its columns) equals.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Side {
     Forward,
     Backward,
+    /// No kink in this column: both sides agree and the returned column equals them.
+    Both,
     Neither,
+}
+
+impl Side {
+    pub fn word(self) -> &'static str {
+        match self {
+            Side::Forward => "forward",
+            Side::Backward => "backward",
+            Side::Both => "both",
+            Side::Neither => "neither",
+        }
+    }
+}
+
+/// What the kink probe found in one column (strain direction).
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct KinkColumn {
+    /// Gap ‖F_:j − B_:j‖ relative to the column (with the entry floor), per step of [`STEPS`].
+    pub gaps: Vec<f64>,
+    pub detected: bool,
+    /// Column error of the returned column against the forward and the backward column at
+    /// the smallest step.
+    pub forward_error: f64,
+    pub backward_error: f64,
+    pub matches: Side,
 }
 
 /// What the kink probe found.
@@ -28,15 +63,125 @@ pub enum Side {
 pub struct Kink {
     /// Relative gap ‖F − B‖/‖F‖ between the one-sided derivatives, per step of [`STEPS`].
     pub gaps: Vec<f64>,
+    /// A kink in at least one column.
     pub detected: bool,
+    /// No kink at the point, but one within the largest probe step: the one-sided derivatives
+    /// differ at that step and agree at the smallest (a branch boundary close to the point).
+    #[serde(default)]
+    pub nearby: bool,
     /// Error of the returned tangent against the forward and the backward derivative at the
-    /// smallest step.
+    /// smallest step (the whole matrix).
     pub forward_error: f64,
     pub backward_error: f64,
+    /// The side the whole returned tangent matches, or, when no single side does but every
+    /// column matches one of its own sides, the side of the first kinked column (see
+    /// [`Kink::columns`]); `Neither` when some column matches neither side.
     pub returned_matches: Side,
+    /// Per column, in routine order.
+    #[serde(default)]
+    pub columns: Vec<KinkColumn>,
+    /// Which side each column matched, in words, e.g. "11 backward, 22 forward, 23 both".
+    #[serde(default)]
+    pub sides: String,
     /// The one-sided derivatives at the smallest step (routine form, column-major).
     pub forward: Vec<f64>,
     pub backward: Vec<f64>,
+}
+
+impl Kink {
+    /// Every column equals one of its own one-sided derivatives.
+    pub fn every_column_matches(&self) -> bool {
+        !self.columns.is_empty() && self.columns.iter().all(|c| c.matches != Side::Neither)
+    }
+
+    /// The one-sided derivative column by column: each column from the side the returned
+    /// column matched (the closer side where it matched neither). The best reference at a kink.
+    pub fn closest_sides(&self, n: usize) -> Vec<f64> {
+        let mut out = self.forward.clone();
+        for (j, c) in self.columns.iter().enumerate() {
+            if c.backward_error < c.forward_error {
+                out[j * n..(j + 1) * n].copy_from_slice(&self.backward[j * n..(j + 1) * n]);
+            }
+        }
+        out
+    }
+}
+
+/// Judge the kink from the one-sided derivatives at each step of [`STEPS`] (`pairs[k]` =
+/// (forward, backward) at step k, routine form): no routine calls.
+pub fn judge(
+    conv: &Convention,
+    returned: &[f64],
+    pairs: &[(Vec<f64>, Vec<f64>)],
+    tol: f64,
+    entry_floor: f64,
+) -> Kink {
+    let n = conv.ncomp();
+    let mut gaps = Vec::with_capacity(pairs.len());
+    let mut col_gaps: Vec<Vec<f64>> = vec![Vec::with_capacity(pairs.len()); n];
+    for (f, b) in pairs {
+        let c = compare(conv, b, f, f64::INFINITY, entry_floor, 0);
+        gaps.push(c.norm_error);
+        for (j, g) in c.column_errors.iter().enumerate() {
+            col_gaps[j].push(*g);
+        }
+    }
+    let (f, b) = pairs.last().expect("at least one step");
+    // A gap that stays above the one-sided truncation level and does not shrink with h.
+    let kinked = |g: &[f64]| g.len() >= 2 && g.iter().all(|&x| x > GAP_LEVEL) && g[g.len() - 1] > 0.3 * g[0];
+    let cf = compare(conv, returned, f, tol, entry_floor, 0);
+    let cb = compare(conv, returned, b, tol, entry_floor, 0);
+    let columns: Vec<KinkColumn> = (0..n)
+        .map(|j| {
+            let (fe, be) = (cf.column_errors[j], cb.column_errors[j]);
+            let detected = kinked(&col_gaps[j]);
+            let matches = match (fe <= tol, be <= tol) {
+                (true, true) if !detected => Side::Both,
+                (true, true) => {
+                    if fe <= be {
+                        Side::Forward
+                    } else {
+                        Side::Backward
+                    }
+                }
+                (true, false) => Side::Forward,
+                (false, true) => Side::Backward,
+                (false, false) => Side::Neither,
+            };
+            KinkColumn { gaps: col_gaps[j].clone(), detected, forward_error: fe, backward_error: be, matches }
+        })
+        .collect();
+    let detected = kinked(&gaps) || columns.iter().any(|c| c.detected);
+    let nearby = !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL;
+    let whole = |c: &crate::compare::Comparison| c.error();
+    let (fe, be) = (whole(&cf), whole(&cb));
+    let returned_matches = if fe <= tol && fe <= be {
+        Side::Forward
+    } else if be <= tol {
+        Side::Backward
+    } else if columns.iter().all(|c| c.matches != Side::Neither) {
+        columns.iter().find(|c| c.detected).map_or(Side::Both, |c| c.matches)
+    } else {
+        Side::Neither
+    };
+    let sides = columns
+        .iter()
+        .enumerate()
+        .map(|(j, c)| format!("{} {}", conv.order()[j].label(), c.matches.word()))
+        .collect::<Vec<_>>()
+        .join(", ");
+    Kink {
+        gaps,
+        sides,
+        detected,
+        nearby,
+        forward_error: fe,
+        backward_error: be,
+        returned_matches,
+        columns,
+        forward: f.clone(),
+        backward: b.clone(),
+    }
 }
 
 /// Probe for a kink at the end of the current increment.
@@ -51,39 +196,16 @@ pub fn probe(
     entry_floor: f64,
 ) -> Result<Kink, Fault> {
     let n = conv.ncomp();
-    let mut f = vec![0.0; n * n];
-    let mut b = vec![0.0; n * n];
-    let mut gaps = Vec::with_capacity(STEPS.len());
+    let mut pairs = Vec::with_capacity(STEPS.len());
     for rel in STEPS {
         let h = rel * scale;
+        let mut f = vec![0.0; n * n];
+        let mut b = vec![0.0; n * n];
         for j in 0..n {
             Scheme::Forward.column(driver, caller, Direction::Strain(j), h, &mut f[j * n..(j + 1) * n])?;
             Scheme::Backward.column(driver, caller, Direction::Strain(j), h, &mut b[j * n..(j + 1) * n])?;
         }
-        let c = compare(conv, &b, &f, f64::INFINITY, entry_floor, 0);
-        gaps.push(c.norm_error);
+        pairs.push((f, b));
     }
-    // A gap that stays above the one-sided truncation level and does not shrink with h.
-    let detected = gaps.iter().all(|&g| g > 1e-4) && gaps[2] > 0.3 * gaps[0];
-    let err = |x: &[f64]| {
-        let c = compare(conv, returned, x, tol, entry_floor, 0);
-        c.norm_error.max(c.worst_entry_error)
-    };
-    let (fe, be) = (err(&f), err(&b));
-    let returned_matches = if fe <= tol && fe <= be {
-        Side::Forward
-    } else if be <= tol {
-        Side::Backward
-    } else {
-        Side::Neither
-    };
-    Ok(Kink {
-        gaps,
-        detected,
-        forward_error: fe,
-        backward_error: be,
-        returned_matches,
-        forward: f,
-        backward: b,
-    })
+    Ok(judge(conv, returned, &pairs, tol, entry_floor))
 }

@@ -4,8 +4,11 @@
 //! noisy inner solves. When a check fails, the diagnosis looks closer:
 //! 1. a kink probe: forward against backward derivatives at shrinking steps;
 //! 2. step studies: how the discrepancy behaves as the step shrinks;
-//! 3. the verdict of the increment from both;
+//! 3. the twin: its real part against the real outputs, its derivative against the real schemes;
 //! 4. for a failure, the usual causes tested one by one and ranked.
+//!
+//! The routine calls only collect evidence; [`decide::decide`] (no I/O, no routine calls)
+//! turns it into the finding.
 
 use serde::{Deserialize, Serialize};
 
@@ -17,11 +20,13 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 pub mod causes;
+pub mod decide;
 pub mod kink;
 pub mod study;
 
 pub use causes::{Cause, Hypothesis, Refinement};
-pub use kink::{Kink, Side};
+pub use decide::{decide, Decision, Observed, TwinEvidence, TWIN_FINDING};
+pub use kink::{Kink, KinkColumn, Side};
 pub use study::{Behaviour, StepStudy};
 
 /// Fractions of the increment used to show a continuum tangent.
@@ -41,8 +46,11 @@ pub struct Diagnosis {
     pub dtemp_causes: Vec<Hypothesis>,
     pub refinement: Option<Refinement>,
     /// One word for what was found: the first cause's name, `kink-neither-side`, `dtemp`,
-    /// or `none`.
+    /// `dtemp-partial`, `twin-not-complex-step-safe`, `unexplained` or `none`.
     pub finding: String,
+    /// The complex-step twin is not complex-step safe: its results were set aside.
+    #[serde(default)]
+    pub twin_unsafe: bool,
 }
 
 /// What the increment's checks already showed.
@@ -50,8 +58,11 @@ pub struct Context<'a> {
     pub returned: &'a [f64],
     /// ∂σ/∂T returned and its numerical estimate, when the ∂σ/∂T check failed.
     pub dtemp: Option<(&'a [f64], &'a [f64])>,
-    /// Whether the complex-step check ran and passed.
-    pub complex_pass: Option<bool>,
+    /// The complex-step check, when it ran: its error and tolerance.
+    pub complex: Option<(f64, f64)>,
+    /// The largest gap between the twin's real part and the real stress over the increment's
+    /// complex calls, relative to the stress scale.
+    pub twin_real_gap: Option<f64>,
     /// Whether every tangent check passed (the failure is only in ∂σ/∂T).
     pub tangent_checks_pass: bool,
     pub previous: Option<&'a [f64]>,
@@ -78,7 +89,8 @@ fn tangent(
     Ok(())
 }
 
-/// Diagnose the current increment of `driver` (its base call made).
+/// Diagnose the current increment of `driver` (its base call made): collect the evidence
+/// with routine calls, then let [`decide::decide`] find.
 pub fn run(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
@@ -95,134 +107,138 @@ pub fn run(
         let tol = settings.scheme(scheme).tol;
         studies.push(study::run(driver, caller, conv, ctx.returned, scheme, scale, tol, ef)?);
     }
-    let clears = |s: &StepStudy| s.behaviour == Behaviour::Converges && s.best_error <= ctx.failed_tol;
-    let fd_converges = studies.iter().any(clears);
-
-    let (mut pass, mut reason) = if kink.detected {
-        match kink.returned_matches {
-            Side::Neither => (
-                false,
-                "the point sits on a kink and the returned tangent matches neither one-sided derivative"
-                    .to_string(),
-            ),
-            side => (
-                true,
-                format!(
-                    "the point sits on a kink; the returned tangent is the {} derivative",
-                    if side == Side::Forward { "forward (right-hand)" } else { "backward (left-hand)" }
-                ),
-            ),
+    // The twin against the cleanest real reference (Richardson at a moderate step), away from
+    // a kink, when the complex step disagreed with the returned tangent.
+    let mut twin = None;
+    let mut richardson: Option<Vec<f64>> = None;
+    if ctx.has_twin && ctx.complex.is_some() {
+        let mut derivative_gap = None;
+        if !kink.detected && ctx.complex.is_some_and(|(e, tol)| e > tol) {
+            let mut cs = vec![0.0; n * n];
+            let mut rich = vec![0.0; n * n];
+            tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * scale, &mut cs)?;
+            tangent(driver, caller, Scheme::Richardson, settings.richardson.rel_step * scale, &mut rich)?;
+            derivative_gap = Some(compare(conv, &cs, &rich, 1.0, ef, 0).error());
+            richardson = Some(rich);
         }
-    } else if fd_converges && ctx.complex_pass != Some(false) {
-        let s = studies.iter().find(|s| clears(s)).expect("one converges");
-        (true, format!("the {} difference converges to the returned tangent (error {:.2e} at relative step {:.0e}); the default step was poor for this routine", s.scheme.name(), s.best_error, s.best_rel_step))
-    } else if fd_converges {
-        (false, "finite differences converge to the returned tangent but the complex twin disagrees: is the twin complex-step safe (real-part comparisons, no conjugates, abs/max/min on real parts)?".to_string())
-    } else {
-        let plateau = studies.iter().find_map(|s| s.plateau);
-        (false, match plateau {
-            Some(p) => format!("the discrepancy levels off at {p:.2e} as the step shrinks: the returned tangent is not the derivative"),
-            None => "no step brings the difference approximation to the returned tangent".to_string(),
-        })
+        twin = Some(decide::TwinEvidence { real_part_gap: ctx.twin_real_gap.unwrap_or(0.0), derivative_gap });
+    }
+    let dtemp_causes = match ctx.dtemp {
+        Some((ret, num)) => causes::rank_dtemp(conv, ret, num, &driver.base.stress, settings.central.tol, ef),
+        None => Vec::new(),
     };
-    if ctx.complex_pass == Some(true) && !kink.detected {
-        // The complex step is exact to rounding for complex-step-safe code.
-        pass = true;
-        reason = "the complex-step derivative equals the returned tangent".to_string();
-    }
-    let mut dtemp_causes = Vec::new();
-    if let Some((ret, num)) = ctx.dtemp {
-        dtemp_causes = causes::rank_dtemp(conv, ret, num, settings.central.tol, ef);
-        if ctx.tangent_checks_pass || pass {
-            pass = false;
-            reason =
-                "∂σ/∂T differs from the derivative of the stress with respect to the temperature increment"
-                    .into();
-        }
-    }
-
-    let mut causes = Vec::new();
+    let mut observed = decide::Observed {
+        kink: Some(kink),
+        studies,
+        complex: ctx.complex,
+        twin,
+        failed_tol: ctx.failed_tol,
+        tangent_checks_pass: ctx.tangent_checks_pass,
+        dtemp_failed: ctx.dtemp.is_some(),
+        dtemp_causes,
+        causes: None,
+    };
+    let mut decision = decide::decide(&observed);
     let mut refinement = None;
-    let only_dtemp = ctx.tangent_checks_pass && ctx.dtemp.is_some();
-    if !pass && !only_dtemp {
-        // The best numerical tangent at the full increment.
-        let mut num = vec![0.0; n * n];
-        if kink.detected {
-            num.copy_from_slice(if kink.forward_error <= kink.backward_error {
-                &kink.forward
-            } else {
-                &kink.backward
-            });
-        } else if ctx.has_twin {
-            tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * scale, &mut num)?;
-        } else {
-            let rel = studies[0].best_rel_step;
-            let rel = if rel.is_finite() { rel } else { settings.central.rel_step };
-            tangent(driver, caller, Scheme::Central, rel * scale, &mut num)?;
-        }
-        let best = |driver: &mut Driver, caller: &mut Caller<'_>, out: &mut [f64]| {
-            let sc = driver.strain_scale(settings.step_floor);
-            if ctx.has_twin {
-                tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * sc, out)
-            } else {
-                tangent(driver, caller, Scheme::Central, settings.central.rel_step * sc, out)
-            }
-        };
-        let strain_end: Vec<f64> =
-            driver.start().strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect();
-        let stress_end = driver.base.stress.clone();
-        // The elastic tangent: the derivative along an unloading step from the start state.
-        let mut elastic = vec![0.0; n * n];
-        driver.rescale(-0.5);
-        let elastic_ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut elastic).is_ok();
-        // The discrepancy at smaller increments.
-        let mut errors = Vec::new();
-        let mut same_branch = true;
-        let mut num_s = vec![0.0; n * n];
-        for s in REFINE {
-            driver.rescale(s);
-            if driver.base_call(caller).is_err() {
-                same_branch = false;
-                break;
-            }
-            let changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
-            same_branch &= driver.base.outcome.branch == ctx.reported_branch && changed == ctx.state_changed;
-            let ret = driver.base.tangent.clone();
-            if best(driver, caller, &mut num_s).is_err() {
-                same_branch = false;
-                break;
-            }
-            let c = compare(conv, &ret, &num_s, 1.0, ef, 0);
-            errors.push(c.norm_error.max(c.worst_entry_error));
-        }
-        driver.rescale(1.0);
-        driver.base_call(caller)?;
-        let rf = Refinement { fractions: REFINE[..errors.len()].to_vec(), errors, same_branch };
-        let tol = if ctx.has_twin { settings.complex_step.tol } else { settings.central.tol };
-        let ev = causes::Evidence {
-            conv,
-            returned: ctx.returned,
-            numerical: &num,
-            elastic: elastic_ok.then_some(&elastic[..]),
-            previous: ctx.previous,
-            refinement: Some(&rf),
-            strain_end: &strain_end,
-            stress_end: &stress_end,
-            state_changed: ctx.state_changed,
-            tol: tol.max(1e-9),
-            entry_floor: ef,
-        };
-        causes = causes::rank(&ev);
-        refinement = Some(rf);
+    if decision.needs_causes {
+        let (hs, rf) = cause_trials(driver, caller, conv, ctx, settings, &observed, &decision, richardson)?;
+        observed.causes = Some(hs);
+        refinement = rf;
+        decision = decide::decide(&observed);
     }
-    let finding = if pass {
-        "none".to_string()
-    } else if kink.detected && kink.returned_matches == Side::Neither {
-        "kink-neither-side".to_string()
-    } else if ctx.dtemp.is_some() && (ctx.tangent_checks_pass || causes.is_empty()) {
-        "dtemp".to_string()
+    let decide::Observed { kink, studies, causes, dtemp_causes, .. } = observed;
+    Ok(Diagnosis {
+        kink,
+        studies,
+        pass: decision.pass,
+        reason: decision.reason,
+        causes: causes.unwrap_or_default(),
+        dtemp_causes,
+        refinement,
+        finding: decision.finding,
+        twin_unsafe: decision.twin_unsafe,
+    })
+}
+
+/// The cause trials: the cleanest numerical tangent (the one-sided derivatives column by
+/// column at a kink; the complex step when the twin is trusted; else Richardson at a moderate
+/// step, never a tiny-step difference), the elastic tangent, refined increments.
+#[allow(clippy::too_many_arguments)]
+fn cause_trials(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    conv: &Convention,
+    ctx: &Context<'_>,
+    settings: &Settings,
+    observed: &decide::Observed,
+    decision: &decide::Decision,
+    richardson: Option<Vec<f64>>,
+) -> Result<(Vec<Hypothesis>, Option<Refinement>), Fault> {
+    let n = conv.ncomp();
+    let ef = settings.entry_floor;
+    let scale = driver.strain_scale(settings.step_floor);
+    let use_twin = ctx.has_twin && decision.trust_twin;
+    let kink = observed.kink.as_ref().filter(|k| k.detected);
+    let mut num = vec![0.0; n * n];
+    if let Some(k) = kink {
+        num = k.closest_sides(n);
+    } else if use_twin {
+        tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * scale, &mut num)?;
+    } else if let Some(r) = richardson {
+        num = r;
     } else {
-        causes.iter().find(|h| h.explains).map_or("unexplained".to_string(), |h| h.cause.name().to_string())
+        tangent(driver, caller, Scheme::Richardson, settings.richardson.rel_step * scale, &mut num)?;
+    }
+    let best = |driver: &mut Driver, caller: &mut Caller<'_>, out: &mut [f64]| {
+        let sc = driver.strain_scale(settings.step_floor);
+        if use_twin {
+            tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * sc, out)
+        } else {
+            tangent(driver, caller, Scheme::Richardson, settings.richardson.rel_step * sc, out)
+        }
     };
-    Ok(Diagnosis { kink: Some(kink), studies, pass, reason, causes, dtemp_causes, refinement, finding })
+    let strain_end: Vec<f64> =
+        driver.start().strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect();
+    let stress_end = driver.base.stress.clone();
+    // The elastic tangent: the derivative along an unloading step from the start state.
+    let mut elastic = vec![0.0; n * n];
+    driver.rescale(-0.5);
+    let elastic_ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut elastic).is_ok();
+    // The discrepancy at smaller increments.
+    let mut errors = Vec::new();
+    let mut same_branch = true;
+    let mut num_s = vec![0.0; n * n];
+    for s in REFINE {
+        driver.rescale(s);
+        if driver.base_call(caller).is_err() {
+            same_branch = false;
+            break;
+        }
+        let changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
+        same_branch &= driver.base.outcome.branch == ctx.reported_branch && changed == ctx.state_changed;
+        let ret = driver.base.tangent.clone();
+        if best(driver, caller, &mut num_s).is_err() {
+            same_branch = false;
+            break;
+        }
+        errors.push(compare(conv, &ret, &num_s, 1.0, ef, 0).error());
+    }
+    driver.rescale(1.0);
+    driver.base_call(caller)?;
+    let rf = Refinement { fractions: REFINE[..errors.len()].to_vec(), errors, same_branch };
+    let tol = if use_twin { settings.complex_step.tol } else { settings.central.tol };
+    let ev = causes::Evidence {
+        conv,
+        returned: ctx.returned,
+        numerical: &num,
+        elastic: elastic_ok.then_some(&elastic[..]),
+        previous: ctx.previous,
+        refinement: Some(&rf),
+        strain_end: &strain_end,
+        stress_end: &stress_end,
+        state_changed: ctx.state_changed,
+        tol: tol.max(1e-9),
+        entry_floor: ef,
+    };
+    Ok((causes::rank(&ev), Some(rf)))
 }

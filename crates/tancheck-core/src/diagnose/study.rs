@@ -8,7 +8,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::compare;
+use crate::compare::compare_along;
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
@@ -29,7 +29,9 @@ pub fn ladder() -> Vec<f64> {
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Behaviour {
-    /// Fell with the scheme's order to at most the tolerance.
+    /// Fell with the scheme's order (the observed slope near the theoretical one over at
+    /// least two consecutive steps) to at most the tolerance, or was within the tolerance
+    /// (at the noise floor) from the largest step on.
     Converges,
     /// Levelled off above the tolerance: the tangent is not the derivative.
     Plateau,
@@ -85,8 +87,9 @@ pub fn run(
         for j in 0..n {
             scheme.column(driver, caller, Direction::Strain(j), h, &mut num[j * n..(j + 1) * n])?;
         }
-        let c = compare(conv, returned, &num, tol, entry_floor, 0);
-        points.push(StudyPoint { rel_step: rel, step: h, error: c.norm_error.max(c.worst_entry_error) });
+        // Along the increment's own direction too, as the check measured it.
+        let c = compare_along(conv, returned, &num, tol, entry_floor, 0, Some(driver.dstrain()));
+        points.push(StudyPoint { rel_step: rel, step: h, error: c.error() });
     }
     Ok(analyse(scheme, points, tol))
 }
@@ -131,7 +134,11 @@ pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
             break;
         }
     }
-    let behaviour = if best_error <= tol {
+    let order_shown = shows_order(&finite[..=best_idx.min(finite.len().saturating_sub(1))], scheme.order());
+    // Already at the floor from the largest step on: a response linear over the ladder (no
+    // truncation to fall), every error within the tolerance.
+    let at_floor = !finite.is_empty() && finite[..=best_idx].iter().all(|p| p.error <= tol);
+    let behaviour = if best_error <= tol && (order_shown || at_floor) {
         Behaviour::Converges
     } else if plateau.is_some() {
         Behaviour::Plateau
@@ -139,6 +146,52 @@ pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
         Behaviour::Inconclusive
     };
     StepStudy { scheme, points, best_error, best_rel_step, slope, noise_floor, plateau, behaviour }
+}
+
+/// Whether the errors of `points` (large to small steps, down to the best one) fall with the
+/// order `p` over at least two consecutive steps: each local slope within [0.6p, 1.6p]
+/// (common practice: halving the step should cut the discrepancy by about 2ᵖ).
+pub fn shows_order(points: &[&StudyPoint], p: f64) -> bool {
+    let lg = |x: f64| x.max(1e-300).log10();
+    let good = |a: &StudyPoint, b: &StudyPoint| {
+        let s = (lg(a.error) - lg(b.error)) / (lg(a.step) - lg(b.step));
+        s.is_finite() && s >= 0.6 * p && s <= 1.6 * p
+    };
+    points.windows(3).any(|w| good(w[0], w[1]) && good(w[1], w[2]))
+}
+
+/// What a set of step studies of one increment says about a failed check at tolerance
+/// `failed_tol` (the smallest tolerance among the failed checks). The one classification
+/// `check` (through the diagnosis) and `bisect` share.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum StepVerdict {
+    /// The discrepancy levels off as the step shrinks: the tangent is not the derivative.
+    Mismatch,
+    /// A difference converges with its order to the returned tangent, within `failed_tol`:
+    /// the default step was poor (truncation).
+    Truncation,
+    /// Neither: the discrepancy scatters (noisy inner solves or rounding), or converges only
+    /// to a level above the failed check's tolerance.
+    Noise,
+}
+
+/// The study that clears a failed check, if one does: it converges with its order to at most
+/// `failed_tol`.
+pub fn clearing(studies: &[StepStudy], failed_tol: f64) -> Option<&StepStudy> {
+    studies.iter().find(|s| s.behaviour == Behaviour::Converges && s.best_error <= failed_tol)
+}
+
+/// Classify studies: truncation when one clears the failed tolerance, a mismatch when one
+/// shows a plateau, noise otherwise.
+pub fn classify(studies: &[StepStudy], failed_tol: f64) -> StepVerdict {
+    if clearing(studies, failed_tol).is_some() {
+        StepVerdict::Truncation
+    } else if studies.iter().any(|s| s.behaviour == Behaviour::Plateau) {
+        StepVerdict::Mismatch
+    } else {
+        StepVerdict::Noise
+    }
 }
 
 #[cfg(test)]
@@ -166,5 +219,26 @@ mod tests {
         assert_eq!(s.behaviour, Behaviour::Plateau);
         assert!((s.plateau.unwrap() / 3e-3 - 1.0).abs() < 0.1);
         assert!(s.slope.unwrap().abs() < 0.1);
+    }
+
+    // A wrong tangent whose discrepancy happens to dip under the tolerance at one step
+    // (scatter, no order) does not converge: the dip is noise, not truncation.
+    #[test]
+    fn a_dip_without_order_is_not_convergence() {
+        let s = analyse(
+            Scheme::Central,
+            pts(|h| if (h - 1e-7).abs() < 1e-12 { 5e-7 } else { 3e-3 * (1.0 + 0.5 * (1e3 * h).sin()) }),
+            1e-6,
+        );
+        assert_ne!(s.behaviour, Behaviour::Converges, "{s:?}");
+        // First order falling to the floor converges for the forward scheme (order 1).
+        let f = analyse(Scheme::Forward, pts(|h| 0.5 * h + 1e-16 / h), 1e-4);
+        assert_eq!(f.behaviour, Behaviour::Converges);
+        // ... but a first-order fall is not the order of the central scheme.
+        let c = analyse(Scheme::Central, pts(|h| 0.5 * h + 1e-16 / h), 1e-4);
+        assert_ne!(c.behaviour, Behaviour::Converges, "{c:?}");
+        assert_eq!(classify(std::slice::from_ref(&c), 1e-4), StepVerdict::Noise);
+        assert_eq!(classify(&[f.clone(), c], 1e-4), StepVerdict::Truncation);
+        assert_eq!(classify(&[f], 1e-12), StepVerdict::Noise);
     }
 }

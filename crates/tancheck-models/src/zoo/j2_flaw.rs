@@ -68,7 +68,7 @@ pub enum J2Flaw {
     /// `j2-no-kinematic`: the consistent tangent with H_kin left out of θ̄,
     /// θ̄ = 1/(1 + K'/(3μ)) − (1 − θ), while the stress update keeps H_kin: the plastic
     /// correction 2μθ̄ n⊗n has the wrong size. Right in the elastic branch and when
-    /// H_kin = 0. Expected finding: `rank-one-term`.
+    /// H_kin = 0. Expected finding: `term-scaled`.
     NoKinematic,
     /// `j2-unit-factor`: the consistent tangent times [`UNIT_FACTOR`] (1000, a modulus in MPa
     /// with stress in kPa). Wrong in both branches. Expected finding: `uniform-scale`.
@@ -86,16 +86,45 @@ pub enum J2Flaw {
     /// carries it. The increment reverses the flow when n : n_last < 0 (the double
     /// contraction, shear entries counted twice). Right in the elastic branch, on the first
     /// plastic loading and while the flow keeps its sense; wrong in reversed (Bauschinger)
-    /// yielding only. Expected finding: `rank-one-term`.
+    /// yielding only. Expected finding: `term-sign`.
     Reversal,
+    /// `j2-single-entry`: the consistent tangent with one entry, ∂σ33/∂ε22 (row 33, column
+    /// 22), times 1 + 1e-4 ([`SINGLE_ENTRY_FACTOR`]), in both branches. Expected finding:
+    /// `single-entry`.
+    SingleEntry,
+    /// `j2-plastic-sign`: the plastic correction with the wrong sign in every plastic
+    /// increment, κ 1⊗1 + 2μθ(I − ⅓1⊗1) + 2μθ̄ n⊗n. Expected finding: `term-sign`.
+    PlasticSign,
+    /// `j2-rank-two`: after yield, the consistent tangent plus c (n⊗1 + 1⊗n) with
+    /// c = [`RANK_TWO_FACTOR`]·μ (a pressure coupling a pressure-independent update does not
+    /// have): a discrepancy of rank two. Expected finding: `rank-two`.
+    RankTwo,
+    /// `j2-term-missing`: after yield, the plastic correction −2μθ̄ n⊗n left out of the
+    /// tangent (θ kept): κ 1⊗1 + 2μθ(I − ⅓1⊗1). Expected finding: `term-missing`.
+    TermMissing,
+    /// `twin-real-sqrt`: J2 whose stress update, after yield, divides ξ_tr by a norm whose
+    /// square root keeps only the real part (sqrt(Re x), the imaginary part dropped). The real
+    /// build is J2 to the bit; the complex-step twin loses the derivative of the norm.
+    /// The tangent is the consistent one. Expected finding: `twin-not-complex-step-safe`.
+    TwinRealSqrt,
+    /// `twin-conjugate`: as `twin-real-sqrt`, with the norm taken as Σ x·conj(x): to first
+    /// order in the complex step that is the real part of Σ x², so the Rust model (whose scalar
+    /// has no conjugate) keeps Re Σ x². Expected finding: `twin-not-complex-step-safe`.
+    TwinConjugate,
 }
+
+/// Factor of the entry `j2-single-entry` spoils.
+pub const SINGLE_ENTRY_FACTOR: f64 = 1.0 + 1e-4;
+
+/// c/μ of the rank-two term of `j2-rank-two`.
+pub const RANK_TWO_FACTOR: f64 = 0.05;
 
 /// Factor of `j2-unit-factor`.
 pub const UNIT_FACTOR: f64 = 1e3;
 
 impl J2Flaw {
     /// Every flaw, in the order of the zoo.
-    pub const ALL: [J2Flaw; 8] = [
+    pub const ALL: [J2Flaw; 14] = [
         J2Flaw::ShearFactor,
         J2Flaw::ShearPermuted,
         J2Flaw::ElasticFirstPlastic,
@@ -104,6 +133,12 @@ impl J2Flaw {
         J2Flaw::UnitFactor,
         J2Flaw::OneColumn,
         J2Flaw::Reversal,
+        J2Flaw::SingleEntry,
+        J2Flaw::PlasticSign,
+        J2Flaw::RankTwo,
+        J2Flaw::TermMissing,
+        J2Flaw::TwinRealSqrt,
+        J2Flaw::TwinConjugate,
     ];
 
     /// The variant's stable name.
@@ -117,6 +152,12 @@ impl J2Flaw {
             J2Flaw::UnitFactor => "j2-unit-factor",
             J2Flaw::OneColumn => "j2-one-column",
             J2Flaw::Reversal => "j2-reversal",
+            J2Flaw::SingleEntry => "j2-single-entry",
+            J2Flaw::PlasticSign => "j2-plastic-sign",
+            J2Flaw::RankTwo => "j2-rank-two",
+            J2Flaw::TermMissing => "j2-term-missing",
+            J2Flaw::TwinRealSqrt => "twin-real-sqrt",
+            J2Flaw::TwinConjugate => "twin-conjugate",
         }
     }
 
@@ -394,6 +435,58 @@ impl Model for FlawedJ2 {
                     }
                 }
             }
+            J2Flaw::SingleEntry => {
+                // Row 33 (index 2), column 22 (index 1): the same in 6 and 4 components.
+                tangent[2 + n] = tangent[2 + n] * SINGLE_ENTRY_FACTOR;
+            }
+            J2Flaw::PlasticSign
+            | J2Flaw::RankTwo
+            | J2Flaw::TermMissing
+            | J2Flaw::TwinRealSqrt
+            | J2Flaw::TwinConjugate
+                if plastic =>
+            {
+                let xi_tr =
+                    relative_stress(lambda, mu, input.strain, Some(input.dstrain), eps_p_n, beta_n, slots);
+                let (nrm, norm) = direction(&xi_tr);
+                let alpha = output.state[n];
+                let dgamma = (alpha - alpha_n) / sqrt_2_3();
+                match self.flaw {
+                    J2Flaw::PlasticSign | J2Flaw::TermMissing => {
+                        let theta = S::one() - mu * 2.0 * dgamma / norm;
+                        let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + S::one());
+                        let theta_bar = ratio - (S::one() - theta);
+                        let kappa = lambda + mu * (2.0 / 3.0);
+                        let returned_bar =
+                            if self.flaw == J2Flaw::TermMissing { S::zero() } else { -theta_bar };
+                        write_tangent(&j2_matrix(kappa, mu, theta, returned_bar, &nrm), slots, tangent);
+                    }
+                    J2Flaw::RankTwo => {
+                        let c = mu * RANK_TWO_FACTOR;
+                        for (j, &sj) in slots.iter().enumerate() {
+                            for (i, &si) in slots.iter().enumerate() {
+                                let one_i = if si < 3 { S::one() } else { S::zero() };
+                                let one_j = if sj < 3 { S::one() } else { S::zero() };
+                                tangent[i + n * j] += c * (nrm[si] * one_j + one_i * nrm[sj]);
+                            }
+                        }
+                    }
+                    _ => {
+                        // The broken norm: its real part only (what sqrt(Re x) or Σ x·conj(x)
+                        // leave to first order in the complex step).
+                        let broken = S::cst(norm.re());
+                        for (i, &si) in slots.iter().enumerate() {
+                            let nb = xi_tr[si] / broken;
+                            output.stress[i] += mu * 2.0 * dgamma * (nrm[si] - nb);
+                        }
+                    }
+                }
+            }
+            J2Flaw::PlasticSign
+            | J2Flaw::RankTwo
+            | J2Flaw::TermMissing
+            | J2Flaw::TwinRealSqrt
+            | J2Flaw::TwinConjugate => {}
             J2Flaw::Reversal => {
                 if plastic {
                     let xi_tr = relative_stress(

@@ -1,0 +1,283 @@
+//! The decision: one function, no I/O and no routine calls, that turns the evidence the
+//! routine calls collected about one increment into its finding.
+//!
+//! The evidence ([`Observed`]): the kink probe (one-sided derivatives per column), the step
+//! studies (with slopes), the complex-step check, the twin comparison (its real part against
+//! the real outputs; its derivative against a real reference), the ∂σ/∂T check, and the cause
+//! trials when they were made. [`decide`] applies the rules in this order:
+//!
+//! 1. a twin whose real part differs from the real routine's outputs, or whose derivative
+//!    disagrees with the real schemes while those agree with the returned tangent (with the
+//!    scheme's order shown in a step study), is not complex-step safe: its results are set
+//!    aside and, when the real schemes clear the tangent, that is the finding
+//!    ([`TWIN_FINDING`]), never "the tangent differs";
+//! 2. at a kink, an exact complex-step agreement stands (the complex step does not cross the
+//!    boundary); otherwise each column must equal its own forward or backward derivative;
+//! 3. near a kink (one within the default step), each column must equal the one-sided
+//!    derivatives below it; away from a kink, an exact complex-step agreement passes;
+//! 4. a study that converges with its order to the failed check's tolerance clears the
+//!    increment (the default step was poor);
+//! 5. a wrong ∂σ/∂T with a right tangent is its own finding;
+//! 6. otherwise the tangent differs: the first explaining cause names it, once the causes
+//!    were tried ([`Decision::needs_causes`] asks for them).
+
+use super::causes::{Cause, Hypothesis};
+use super::kink::{Kink, Side};
+use super::study::{self, Behaviour, StepStudy};
+
+/// The finding of an increment whose complex-step twin is not complex-step safe.
+pub const TWIN_FINDING: &str = "twin-not-complex-step-safe";
+
+/// The usual reasons a twin is not complex-step safe, for messages.
+pub const TWIN_CULPRITS: &str = "conjugating intrinsics (Fortran dot_product, conjg, C conj; a \
+norm as sqrt(sum |z|^2)), complex abs (cabs, Fortran abs of a complex), a real-only sqrt or \
+abs (the imaginary part dropped, e.g. sqrt(real(x))), or comparisons of complex values \
+instead of their real parts";
+
+/// A twin's real part this far (relative to the stress scale) from the real routine's
+/// outputs computes another stress: rounding stays near 1e-15.
+pub const REAL_PART_LEVEL: f64 = 1e-9;
+
+/// Near a branch boundary, the returned tangent must equal the one-sided derivatives at the
+/// smallest probe step (relative 1e-7, one-sided truncation about that size) this closely.
+pub const NEARBY_LEVEL: f64 = 1e-6;
+
+/// What the twin comparison found.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct TwinEvidence {
+    /// Largest gap between the twin's real part and the real routine's stress over the
+    /// complex calls of the increment, relative to the stress scale.
+    pub real_part_gap: f64,
+    /// Error of the complex-step derivative against the cleanest real reference (Richardson at
+    /// a moderate step), when measured away from a kink.
+    pub derivative_gap: Option<f64>,
+}
+
+/// Everything the routine calls showed about one failed increment.
+#[derive(Clone, Debug, Default)]
+pub struct Observed {
+    pub kink: Option<Kink>,
+    pub studies: Vec<StepStudy>,
+    /// The complex-step check, when it ran: its error (max of the measures) and tolerance.
+    pub complex: Option<(f64, f64)>,
+    pub twin: Option<TwinEvidence>,
+    /// The smallest tolerance among the failed tangent checks (infinite when none failed).
+    pub failed_tol: f64,
+    /// Every tangent check passed (a failure, if any, is in ∂σ/∂T only).
+    pub tangent_checks_pass: bool,
+    /// The ∂σ/∂T check failed, and the ranked causes of that.
+    pub dtemp_failed: bool,
+    pub dtemp_causes: Vec<Hypothesis>,
+    /// Ranked cause trials, when made.
+    pub causes: Option<Vec<Hypothesis>>,
+}
+
+/// The finding of an increment.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Decision {
+    /// The tangent is right (a set-aside twin does not make it wrong).
+    pub pass: bool,
+    pub reason: String,
+    /// One word: `none`, a cause name, `kink-neither-side`, `dtemp`, `dtemp-partial`,
+    /// [`TWIN_FINDING`], or `unexplained`.
+    pub finding: String,
+    /// The complex-step results of the increment are set aside.
+    pub twin_unsafe: bool,
+    /// The tangent differs and the cause trials were not made yet: make them and decide again.
+    pub needs_causes: bool,
+    /// Which reference the cause trials should use: the complex step only when the twin
+    /// is trusted.
+    pub trust_twin: bool,
+}
+
+fn twin_real_part_differs(o: &Observed) -> bool {
+    o.twin.is_some_and(|t| t.real_part_gap.is_nan() || t.real_part_gap > REAL_PART_LEVEL)
+}
+
+/// Decide the finding of one increment from its evidence. No I/O, no routine calls.
+pub fn decide(o: &Observed) -> Decision {
+    let kink = o.kink.as_ref().filter(|k| k.detected);
+    let complex_error = o.complex.map(|(e, _)| e);
+    let complex_pass = o.complex.map(|(e, tol)| e <= tol);
+    // Real schemes that agree with the returned tangent, with their order shown.
+    let real_agree = o
+        .studies
+        .iter()
+        .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
+        .find(|s| s.behaviour == Behaviour::Converges);
+    let clears = study::clearing(&o.studies, o.failed_tol);
+    // 1. The twin.
+    let real_part_differs = twin_real_part_differs(o);
+    let derivative_off = match (o.twin.and_then(|t| t.derivative_gap), complex_error) {
+        // The complex derivative is no closer to the real reference than the returned tangent
+        // is to the complex one: the twin, not the tangent, is off.
+        (Some(g), Some(e)) => g >= 0.5 * e,
+        _ => false,
+    };
+    let twin_unsafe = real_part_differs
+        || (complex_pass == Some(false) && kink.is_none() && real_agree.is_some() && derivative_off);
+    let complex_pass = if twin_unsafe { None } else { complex_pass };
+    let trust_twin = o.complex.is_some() && !twin_unsafe;
+    let mut d = Decision {
+        pass: false,
+        reason: String::new(),
+        finding: String::new(),
+        twin_unsafe,
+        needs_causes: false,
+        trust_twin,
+    };
+    let twin_text = |why: &str| {
+        format!(
+            "the complex-step twin is not complex-step safe ({why}); its results are set aside. Usual culprits: {TWIN_CULPRITS}"
+        )
+    };
+    if twin_unsafe {
+        let why = if real_part_differs {
+            format!(
+                "its real part differs from the real routine's stress by {:.2e} of the stress scale",
+                o.twin.map_or(f64::NAN, |t| t.real_part_gap)
+            )
+        } else {
+            let s = real_agree.expect("checked");
+            format!(
+                "the {} difference converges with order {:.0} to the returned tangent (error {:.2e}) while the complex step differs by {:.2e}",
+                s.scheme.name(),
+                s.scheme.order(),
+                s.best_error,
+                complex_error.unwrap_or(f64::NAN)
+            )
+        };
+        if real_agree.is_some() || o.tangent_checks_pass && o.complex.is_none() {
+            d.pass = true;
+            d.reason = twin_text(&why);
+            d.finding = TWIN_FINDING.into();
+            return with_dtemp(o, d);
+        }
+        d.reason = twin_text(&why);
+    }
+    // 2. A kink.
+    if let Some(k) = kink {
+        if complex_pass == Some(true) {
+            d.pass = true;
+            d.reason = format!(
+                "the point sits on a kink; the complex step (which does not cross it) equals the returned tangent; sides per column: {}",
+                k.sides
+            );
+        } else if k.every_column_matches() || matches!(k.returned_matches, Side::Forward | Side::Backward) {
+            d.pass = true;
+            d.reason = format!(
+                "the point sits on a kink; every column of the returned tangent equals one of its one-sided derivatives: {}",
+                k.sides
+            );
+        } else {
+            let bad: Vec<&str> = k
+                .columns
+                .iter()
+                .zip(k.sides.split(", "))
+                .filter(|(c, _)| c.matches == Side::Neither)
+                .map(|(_, s)| s.split(' ').next().unwrap_or(""))
+                .collect();
+            d.reason = format!(
+                "the point sits on a kink and the returned tangent matches neither one-sided derivative in column{} {}",
+                if bad.len() == 1 { "" } else { "s" },
+                bad.join(", ")
+            );
+            d.finding = "kink-neither-side".into();
+            return with_dtemp(o, d);
+        }
+        d.finding = "none".into();
+        return with_dtemp(o, d);
+    }
+    // A branch boundary within the default step, not at the point: below it, the one-sided
+    // derivatives agree with each other and with the returned tangent, column by column.
+    if let Some(k) = o.kink.as_ref().filter(|k| k.nearby) {
+        let level = o.failed_tol.max(NEARBY_LEVEL);
+        if complex_pass != Some(false)
+            && !k.columns.is_empty()
+            && k.columns.iter().all(|c| c.forward_error.min(c.backward_error) <= level)
+        {
+            d.pass = true;
+            d.reason = format!(
+                "a branch boundary lies within the default step (the one-sided derivatives differ by {:.2e} at the largest probe step and agree at the smallest); there every column of the returned tangent equals them (within {level:.0e})",
+                k.gaps[0]
+            );
+            d.finding = "none".into();
+            return with_dtemp(o, d);
+        }
+    }
+    // 3. The complex step away from a kink.
+    if complex_pass == Some(true) {
+        d.pass = true;
+        d.reason = "the complex-step derivative equals the returned tangent".into();
+        d.finding = "none".into();
+        return with_dtemp(o, d);
+    }
+    // 4. Truncation of the default step.
+    if let Some(s) = clears {
+        if complex_pass != Some(false) {
+            d.pass = true;
+            d.reason = format!(
+                "the {} difference converges with its order (slope {}) to the returned tangent (error {:.2e} at relative step {:.0e}); the default step was poor for this routine",
+                s.scheme.name(),
+                s.slope.map_or("-".into(), |x| format!("{x:.2}")),
+                s.best_error,
+                s.best_rel_step
+            );
+            d.finding = "none".into();
+            return with_dtemp(o, d);
+        }
+    }
+    if o.tangent_checks_pass {
+        d.pass = true;
+        d.finding = "none".into();
+        return with_dtemp(o, d);
+    }
+    // 6. The tangent differs.
+    if d.reason.is_empty() {
+        let plateau = o.studies.iter().find_map(|s| s.plateau);
+        d.reason = match plateau {
+            Some(p) => format!(
+                "the discrepancy levels off at {p:.2e} as the step shrinks: the returned tangent is not the derivative"
+            ),
+            None => "no step brings the difference approximation to the returned tangent".into(),
+        };
+    }
+    match &o.causes {
+        None => {
+            d.needs_causes = true;
+            d.finding = "unexplained".into();
+        }
+        Some(hs) => {
+            d.finding =
+                hs.iter().find(|h| h.explains).map_or("unexplained".into(), |h| h.cause.name().into());
+        }
+    }
+    if o.dtemp_failed && o.causes.as_ref().is_some_and(|c| c.is_empty()) {
+        d.finding = dtemp_finding(o);
+    }
+    d
+}
+
+fn dtemp_finding(o: &Observed) -> String {
+    match o.dtemp_causes.iter().find(|h| h.explains) {
+        Some(h) if h.cause == Cause::PartialDtemp => "dtemp-partial".into(),
+        _ => "dtemp".into(),
+    }
+}
+
+/// A wrong ∂σ/∂T with a right tangent fails the increment on its own.
+fn with_dtemp(o: &Observed, mut d: Decision) -> Decision {
+    if o.dtemp_failed && d.pass {
+        d.pass = false;
+        d.reason =
+            "∂σ/∂T differs from the derivative of the stress with respect to the temperature increment"
+                .into();
+        d.finding = dtemp_finding(o);
+        // The tangent itself is right: no tangent causes to try.
+        d.needs_causes = false;
+    }
+    d
+}
+
+#[cfg(test)]
+mod tests;

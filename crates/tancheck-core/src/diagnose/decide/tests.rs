@@ -1,0 +1,354 @@
+//! The decision as a table: one row per situation of the verdict, with the numbers that
+//! trigger it and, where there is one, the published source of the value.
+
+use super::*;
+use crate::diagnose::causes::Cause;
+use crate::diagnose::kink::KinkColumn;
+use crate::diagnose::study::{analyse, ladder, StudyPoint};
+use crate::schemes::Scheme;
+
+/// A study of `scheme` whose error at relative step h is `f(h)`.
+fn study(scheme: Scheme, tol: f64, f: impl Fn(f64) -> f64) -> StepStudy {
+    let pts = ladder().into_iter().map(|h| StudyPoint { rel_step: h, step: h, error: f(h) }).collect();
+    analyse(scheme, pts, tol)
+}
+
+/// Central and forward studies of a consistent tangent: truncation c·hᵖ plus rounding ε/h
+/// (Nocedal & Wright 2006, §8.1).
+fn consistent() -> Vec<StepStudy> {
+    vec![
+        study(Scheme::Central, 1e-6, |h| 0.3 * h * h + 1e-16 / h),
+        study(Scheme::Forward, 1e-4, |h| 0.3 * h + 1e-16 / h),
+    ]
+}
+
+/// Studies of a tangent off by `e` (a plateau).
+fn plateau(e: f64) -> Vec<StepStudy> {
+    vec![
+        study(Scheme::Central, 1e-6, |h| e + 0.3 * h * h + 1e-16 / h),
+        study(Scheme::Forward, 1e-4, |h| e + 0.3 * h + 1e-16 / h),
+    ]
+}
+
+fn column(matches: Side, detected: bool, fe: f64, be: f64) -> KinkColumn {
+    KinkColumn { gaps: vec![0.26; 3], detected, forward_error: fe, backward_error: be, matches }
+}
+
+/// A kink with per-column sides (6 columns 11 22 33 23 13 12).
+fn kink(cols: Vec<KinkColumn>, whole: Side) -> Kink {
+    let labels = ["11", "22", "33", "23", "13", "12"];
+    let sides = cols
+        .iter()
+        .zip(labels)
+        .map(|(c, l)| format!("{l} {}", c.matches.word()))
+        .collect::<Vec<_>>()
+        .join(", ");
+    Kink {
+        gaps: vec![0.259; 3],
+        detected: true,
+        forward_error: 1.79,
+        backward_error: 0.545,
+        returned_matches: whole,
+        columns: cols,
+        sides,
+        nearby: false,
+        forward: vec![],
+        backward: vec![],
+    }
+}
+
+fn base() -> Observed {
+    Observed { failed_tol: 1e-6, ..Observed::default() }
+}
+
+fn hyp(cause: Cause, explains: bool) -> Hypothesis {
+    Hypothesis { cause, detail: String::new(), error_left: if explains { 1e-12 } else { 0.3 }, explains }
+}
+
+struct Row {
+    what: &'static str,
+    observed: Observed,
+    pass: bool,
+    finding: &'static str,
+    twin_unsafe: bool,
+    needs_causes: bool,
+}
+
+fn rows() -> Vec<Row> {
+    // J2 ending exactly on the yield surface: uniaxial strain ε11 = σy/2μ = 0.001625 for
+    // E = 200 GPa, ν = 0.3, σy = 250 MPa (Simo & Hughes 1998, Box 3.2; the numbers are those of
+    // the worked case in REFERENCES.md). The forward and backward derivatives differ by 26 %
+    // (measured); the 11 column of the returned elastic tangent is the backward one, 22 and 33
+    // the forward ones; the complex step agrees to 2e-16; a central difference straddles.
+    let on_yield_cols = || {
+        vec![
+            column(Side::Backward, true, 0.5, 1e-9),
+            column(Side::Forward, true, 1e-9, 0.3),
+            column(Side::Forward, true, 1e-9, 0.3),
+            column(Side::Both, false, 1e-9, 1e-9),
+            column(Side::Both, false, 1e-9, 1e-9),
+            column(Side::Both, false, 1e-9, 1e-9),
+        ]
+    };
+    let mut rows = vec![
+        Row {
+            what: "J2 on the yield surface, complex step exact (2.2e-16), central straddles (0.235)",
+            observed: Observed {
+                kink: Some(kink(on_yield_cols(), Side::Neither)),
+                studies: plateau(0.235),
+                complex: Some((2.2e-16, 1e-10)),
+                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+                ..base()
+            },
+            pass: true,
+            finding: "none",
+            twin_unsafe: false,
+            needs_causes: false,
+        },
+        Row {
+            what: "J2 on the yield surface without a twin: each column matches one of its own sides",
+            observed: Observed {
+                kink: Some(kink(on_yield_cols(), Side::Backward)),
+                studies: plateau(0.235),
+                ..base()
+            },
+            pass: true,
+            finding: "none",
+            twin_unsafe: false,
+            needs_causes: false,
+        },
+    ];
+    // The straddle case of REFERENCES.md (derived): a central difference with h = 1e-2 across
+    // the yield kink of the worked J2 case is off by 9.9 %. A tangent equal to it matches
+    // neither side in its 11 column: the negative control.
+    let mut straddle = on_yield_cols();
+    straddle[0] = column(Side::Neither, true, 0.099, 0.099);
+    rows.push(Row {
+        what:
+            "a tangent off by 9.9 % (the straddling central difference) at a kink, complex step disagreeing",
+        observed: Observed {
+            kink: Some(kink(straddle.clone(), Side::Neither)),
+            studies: plateau(0.099),
+            complex: Some((0.099, 1e-10)),
+            ..base()
+        },
+        pass: false,
+        finding: "kink-neither-side",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "the same without a twin",
+        observed: Observed { kink: Some(kink(straddle, Side::Neither)), studies: plateau(0.099), ..base() },
+        pass: false,
+        finding: "kink-neither-side",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    // A broken twin (a conjugating dot product: the imaginary part of the norm lost): the
+    // complex derivative is off by 0.3 while central differences converge with order 2 to
+    // the returned tangent and Richardson agrees with it (Martins et al. 2003, §3–4).
+    rows.push(Row {
+        what: "broken twin: real schemes converge with their order, complex step off by 0.3",
+        observed: Observed {
+            studies: consistent(),
+            complex: Some((0.3, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 1e-17, derivative_gap: Some(0.3) }),
+            failed_tol: 1e-10,
+            ..base()
+        },
+        pass: true,
+        finding: TWIN_FINDING,
+        twin_unsafe: true,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "twin whose real part differs (1e-3 of the stress scale), real schemes converge",
+        observed: Observed {
+            studies: consistent(),
+            complex: Some((0.3, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 1e-3, derivative_gap: None }),
+            failed_tol: 1e-10,
+            ..base()
+        },
+        pass: true,
+        finding: TWIN_FINDING,
+        twin_unsafe: true,
+        needs_causes: false,
+    });
+    // A twin that computes another stress and a tangent that is wrong as well (plateau at
+    // 1e-3): the tangent differs, judged without the twin, and the causes are tried against
+    // a real reference (`trust_twin` false, checked below).
+    rows.push(Row {
+        what: "twin real part off and the tangent wrong too",
+        observed: Observed {
+            studies: plateau(1e-3),
+            complex: Some((0.3, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 1e-3, derivative_gap: Some(0.3) }),
+            failed_tol: 1e-10,
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: true,
+        needs_causes: true,
+    });
+    // A tangent off by 1e-7: central differences cannot see it (their tolerance is 1e-6) but
+    // the twin agrees with Richardson to 1e-12: the tangent, not the twin, is wrong.
+    rows.push(Row {
+        what: "tangent off by 1e-7, twin agreeing with Richardson (1e-12)",
+        observed: Observed {
+            studies: vec![study(Scheme::Central, 1e-6, |h| 1e-7 + 0.3 * h * h + 1e-16 / h)],
+            complex: Some((1e-7, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(1e-12) }),
+            failed_tol: 1e-10,
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    });
+    // A yield surface 1e-9 from the point (J2 case above, ε11 = 0.001625 + 1e-9): the
+    // one-sided derivatives differ by 0.41 at the largest probe step and agree to 2.6e-9 at
+    // the smallest, where each column matches them to 4e-8 (measured).
+    let mut near = kink(vec![column(Side::Both, false, 1.1e-9, 1.5e-9); 6], Side::Forward);
+    near.detected = false;
+    near.nearby = true;
+    near.gaps = vec![0.24, 0.08, 5e-8];
+    rows.push(Row {
+        what: "a yield surface 1e-9 away, central straddling it, no twin",
+        observed: Observed { kink: Some(near.clone()), studies: plateau(1.0), ..base() },
+        pass: true,
+        finding: "none",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    let mut near_wrong = near;
+    near_wrong.columns[0] = column(Side::Neither, false, 0.05, 0.05);
+    rows.push(Row {
+        what: "the same with a column 5 % off",
+        observed: Observed { kink: Some(near_wrong), studies: plateau(1.0), ..base() },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    });
+    rows.push(Row {
+        what: "truncation of the default step: central converges with order 2 to 1e-11, no twin",
+        observed: Observed { studies: consistent(), ..base() },
+        pass: true,
+        finding: "none",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "a dip under the tolerance without order is not truncation",
+        observed: Observed {
+            studies: vec![study(Scheme::Central, 1e-6, |h| {
+                if (h - 1e-7).abs() < 1e-12 {
+                    5e-7
+                } else {
+                    3e-3 * (1.0 + 0.5 * (1e3 * h).sin())
+                }
+            })],
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    });
+    rows.push(Row {
+        what: "a plateau at 1e-3 with the causes tried: the first explaining cause names it",
+        observed: Observed {
+            studies: plateau(1e-3),
+            causes: Some(vec![hyp(Cause::SingleEntry, true), hyp(Cause::TermScaled, true)]),
+            ..base()
+        },
+        pass: false,
+        finding: "single-entry",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "a plateau no cause explains",
+        observed: Observed {
+            studies: plateau(1e-3),
+            causes: Some(vec![hyp(Cause::RankTwo, false)]),
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "complex step exact away from a kink",
+        observed: Observed { studies: plateau(1e-3), complex: Some((1e-15, 1e-10)), ..base() },
+        pass: true,
+        finding: "none",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "∂σ/∂T wrong with the tangent right",
+        observed: Observed {
+            tangent_checks_pass: true,
+            dtemp_failed: true,
+            dtemp_causes: vec![hyp(Cause::UniformScale, true)],
+            failed_tol: f64::INFINITY,
+            ..base()
+        },
+        pass: false,
+        finding: "dtemp",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows.push(Row {
+        what: "∂σ/∂T missing its term along the stress",
+        observed: Observed {
+            tangent_checks_pass: true,
+            dtemp_failed: true,
+            dtemp_causes: vec![hyp(Cause::PartialDtemp, true)],
+            failed_tol: f64::INFINITY,
+            ..base()
+        },
+        pass: false,
+        finding: "dtemp-partial",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    rows
+}
+
+#[test]
+fn the_decision_table() {
+    let mut wrong = Vec::new();
+    for r in rows() {
+        let d = decide(&r.observed);
+        if d.pass != r.pass
+            || d.finding != r.finding
+            || d.twin_unsafe != r.twin_unsafe
+            || d.needs_causes != r.needs_causes
+        {
+            wrong.push(format!(
+                "{}: got pass {} finding {} twin {} needs causes {} ({})",
+                r.what, d.pass, d.finding, d.twin_unsafe, d.needs_causes, d.reason
+            ));
+        }
+    }
+    assert!(wrong.is_empty(), "{}", wrong.join("\n"));
+}
+
+#[test]
+fn a_broken_twin_never_says_the_tangent_differs_and_names_the_culprits() {
+    let r = rows().into_iter().find(|r| r.what.starts_with("broken twin")).unwrap();
+    let d = decide(&r.observed);
+    assert!(!d.reason.contains("differs from"), "{}", d.reason);
+    assert!(d.reason.contains("dot_product") && d.reason.contains("sqrt"), "{}", d.reason);
+    assert!(!d.trust_twin);
+    let r = rows().into_iter().find(|r| r.what.starts_with("twin real part off and")).unwrap();
+    let d = decide(&r.observed);
+    assert!(!d.trust_twin && d.reason.contains("real part differs"), "{}", d.reason);
+}

@@ -1,0 +1,200 @@
+//! Regression tests of the verdict (issue 9): no false alarm at a branch boundary, the
+//! straddling difference as the negative control, the soft-direction error, and the CLI exit
+//! code of a correct J2 increment ending on the yield surface.
+
+use tancheck::core::path::{Path, PathIncrement};
+use tancheck::core::{
+    check, CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, Report,
+    RoutineInfo, Scalar, Scheme, Settings, Verdict,
+};
+use tancheck::models::{reference, zoo_model, J2};
+
+/// E = 200 GPa, ν = 0.3, σy = 250 MPa, no hardening: the issue's J2 case. The yield point in
+/// uniaxial strain is ε11 = σy/2μ = 250/(2·76923.08) = 0.001625 (2μ = E/(1 + ν)).
+const PERFECT: [f64; 7] = [200000.0, 0.3, 250.0, 0.0, 0.0, 0.0, 0.0];
+
+/// The worked case of REFERENCES.md (Simo & Taylor 1985; Simo & Hughes 1998, Box 3.2):
+/// H_iso = 1000 MPa, H_kin = 500 MPa.
+const WORKED: [f64; 7] = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+
+fn one(dstrain: [f64; 6]) -> Path {
+    Path {
+        name: "one increment".into(),
+        increments: vec![PathIncrement { dstrain, dtemp: 0.0, dtime: 1.0, hold_stress: None }],
+    }
+}
+
+fn run(routine: &mut dyn tancheck::core::Routine, props: &[f64], path: &Path, settings: &Settings) -> Report {
+    let info = routine.info().clone();
+    let mut caller = Caller::new(routine);
+    check::run(&mut caller, props, PointState::zero(&info, 20.0), path, settings).unwrap()
+}
+
+fn only(scheme: Scheme) -> Settings {
+    Settings { schemes: vec![scheme], ..Settings::default() }
+}
+
+fn summary(r: &Report) -> String {
+    r.increments
+        .iter()
+        .map(|i| {
+            format!(
+                "inc {} passed {} finding {} reason {}",
+                i.index,
+                i.passed(),
+                i.finding(),
+                i.diagnosis.as_ref().map_or("-".to_string(), |d| d.reason.clone())
+            )
+        })
+        .collect::<Vec<_>>()
+        .join("\n")
+}
+
+#[test]
+fn correct_j2_ending_on_the_yield_surface_and_around_it_passes() {
+    for shift in [0.0, 1e-9, -1e-9] {
+        let mut m = reference("j2", PointKind::Solid3d).unwrap();
+        let r =
+            run(&mut m, &PERFECT, &one([0.001625 + shift, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
+        assert_eq!(r.verdict, Verdict::Pass, "shift {shift:e}:\n{}", summary(&r));
+        // Without the twin (central differences only) each column must find its own side.
+        let s = only(Scheme::Central);
+        let r = run(&mut m, &PERFECT, &one([0.001625 + shift, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
+        assert_eq!(r.verdict, Verdict::Pass, "central only, shift {shift:e}:\n{}", summary(&r));
+    }
+    // On the surface the central check straddles the kink: the diagnosis found it and names
+    // the side of each column (11 loads plastically forward, so it matches backward).
+    let mut m = reference("j2", PointKind::Solid3d).unwrap();
+    let s = only(Scheme::Central);
+    let r = run(&mut m, &PERFECT, &one([0.001625, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
+    let d = r.increments[0].diagnosis.as_ref().expect("the central check straddled the kink");
+    let k = d.kink.as_ref().unwrap();
+    assert!(k.detected, "{}", summary(&r));
+    assert!(k.sides.starts_with("11 backward, 22 forward, 33 forward"), "{}", k.sides);
+}
+
+#[test]
+fn correct_cohesive_law_at_mixed_mode_onset_passes() {
+    // K, N, S, G_Ic, G_IIc, η: the AS4/PEEK data of REFERENCES.md (memory), onset
+    // δ₀₃ = 8e-5 mm, δ₀ₛ = 1e-4 mm; at B = ½ δ₀ₘ = δ₀₃δ₀ₛ/√((1 − B)δ₀ₛ² + Bδ₀₃²).
+    let props = [1e6, 80.0, 100.0, 0.969, 1.719, 2.284];
+    let (d03, d0s) = (8e-5, 1e-4);
+    let d0m = d03 * d0s / (0.5 * d0s * d0s + 0.5 * d03 * d03).sqrt();
+    // β = 1 (opening = slip): REFERENCES gives δ₀ₘ = 8.8345e-5 mm for this mixity.
+    assert!((d0m / 8.8345e-5 - 1.0).abs() < 1e-4, "{d0m}");
+    for kind in [PointKind::Cohesive3d, PointKind::Cohesive2d] {
+        for f in [1.0, 1.0 + 1e-9, 1.0 - 1e-9] {
+            let c = f * d0m / 2f64.sqrt();
+            let mut m = reference("cohesive", kind).unwrap();
+            let r = run(&mut m, &props, &one([c, c, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
+            assert_eq!(r.verdict, Verdict::Pass, "{kind} at {f}:\n{}", summary(&r));
+        }
+    }
+}
+
+/// J2 whose returned 11/11 entry is a fixed value: the straddling central difference.
+#[derive(Clone, Debug)]
+struct Straddle {
+    base: J2,
+    c1111: f64,
+}
+
+impl Model for Straddle {
+    fn info(&self) -> &RoutineInfo {
+        self.base.info()
+    }
+
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        self.base.evaluate(input, output)?;
+        output.tangent[0] = S::cst(self.c1111);
+        Ok(())
+    }
+}
+
+// The negative control (REFERENCES.md, J2 worked case, derived): a central difference with
+// h = 1e-2 about ε11 = 0.003 straddles both yield points (±0.001625) and is off by 9.9 %. In
+// uniaxial strain the response is piecewise linear (elastic λ + 2μ, plastic C1111 =
+// 167329.028), so the straddled slope is the length-weighted mean of the two moduli. A
+// routine returning it must fail, on the yield surface (a kink: neither side) and off it.
+#[test]
+fn the_straddling_difference_is_not_excused() {
+    let (e, nu) = (200000.0, 0.3);
+    let elastic = e * (1.0 - nu) / ((1.0 + nu) * (1.0 - 2.0 * nu));
+    let plastic = 167329.028;
+    let (lo, hi, y) = (0.003 - 1e-2, 0.003 + 1e-2, 0.001625);
+    let straddle = (plastic * ((hi - y) + (-y - lo)) + elastic * 2.0 * y) / (hi - lo);
+    let off = straddle / plastic - 1.0;
+    assert!((off - 0.099).abs() < 5e-4, "the straddled difference is off by {off}");
+    for (end, want) in [(0.001625, "kink-neither-side"), (0.003, "single-entry")] {
+        let mut m = ModelRoutine(Straddle { base: J2::new(PointKind::Solid3d).unwrap(), c1111: straddle });
+        let props = if end == 0.001625 { PERFECT } else { WORKED };
+        let r = run(&mut m, &props, &one([end, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
+        assert_eq!(r.verdict, Verdict::TangentFailure, "at {end}:\n{}", summary(&r));
+        assert_eq!(r.finding(), want, "at {end}:\n{}", summary(&r));
+        let s = only(Scheme::Central);
+        let r = run(&mut m, &props, &one([end, 0.0, 0.0, 0.0, 0.0, 0.0]), &s);
+        assert_eq!(r.verdict, Verdict::TangentFailure, "central only at {end}:\n{}", summary(&r));
+    }
+}
+
+// J2 with a small kinematic modulus left out of the plastic correction (j2-no-kinematic with
+// H_kin = 30 MPa against H_iso = 100 MPa): the soft (plastic) modulus is off by about
+// H_kin/(H_iso + H_kin) ≈ 23 %, a few 1e-5 of the elastic scale. Every scheme, forward
+// included, fails at its default tolerance; the per-entry and norm errors alone miss it with
+// the forward scheme.
+#[test]
+fn the_soft_direction_error_fails_every_scheme() {
+    let props = [200000.0, 0.3, 250.0, 100.0, 0.0, 0.0, 30.0];
+    let path = Path {
+        name: "uniaxial strain into plastic flow".into(),
+        increments: (0..4)
+            .map(|_| PathIncrement {
+                dstrain: [1e-3, 0.0, 0.0, 0.0, 0.0, 0.0],
+                dtemp: 0.0,
+                dtime: 1.0,
+                hold_stress: None,
+            })
+            .collect(),
+    };
+    for scheme in Scheme::ALL {
+        let mut m = zoo_model("j2-no-kinematic", PointKind::Solid3d).unwrap();
+        let s = only(scheme);
+        let r = run(&mut m, &props, &path, &s);
+        assert_eq!(r.verdict, Verdict::TangentFailure, "{}:\n{}", scheme.name(), summary(&r));
+        if scheme == Scheme::Forward {
+            let plastic = r.increments.iter().find(|i| i.state_changed).unwrap();
+            let tancheck::core::report::CheckOutcome::Compared(c) = &plastic.checks[0].tangent else {
+                panic!("compared")
+            };
+            assert!(c.norm_error < c.tol && c.worst_entry_error < c.tol, "{c:?}");
+            assert!(c.soft_error > 10.0 * c.tol, "{c:?}");
+        }
+    }
+    // The consistent J2 passes with every scheme (the soft measure adds no false alarm).
+    for scheme in Scheme::ALL {
+        let mut m = reference("j2", PointKind::Solid3d).unwrap();
+        let s = only(scheme);
+        let r = run(&mut m, &props, &path, &s);
+        assert_eq!(r.verdict, Verdict::Pass, "{}:\n{}", scheme.name(), summary(&r));
+    }
+}
+
+#[test]
+fn the_issue_manifest_exits_zero() {
+    let dir = std::env::temp_dir().join(format!("tancheck-verdict-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let m = dir.join("m.json");
+    std::fs::write(
+        &m,
+        r#"{"routine":{"model":"j2","kind":"solid-3d","states":13,"properties":[200000,0.3,250,0,0,0,0]},"path":{"increments":[{"dstrain":[0.001625,0,0,0,0,0]}]}}"#,
+    )
+    .unwrap();
+    let out =
+        std::process::Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
+    let _ = std::fs::remove_dir_all(&dir);
+    assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stdout));
+}
