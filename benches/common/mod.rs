@@ -1,0 +1,122 @@
+//! What the benchmarks share: the example C routines compiled into one library (with their
+//! complex-step twins), manifests naming them as a user would, and the cyclic tension–shear
+//! path into the plastic range.
+#![allow(dead_code)] // each benchmark uses a part
+
+use std::path::{Path as FsPath, PathBuf};
+
+use tancheck::cli::load::{load, start_state, Loaded};
+use tancheck::cli::manifest::Manifest;
+use tancheck::core::path::{Path, PathIncrement, Shape};
+use tancheck::core::PointState;
+
+/// The J2 properties of the benchmarks [E, ν, σy0, H_iso, Q, b, H_kin] (MPa): steel-like
+/// numbers chosen for the benchmark, not test data. Without linear isotropic hardening the
+/// yield surface stops growing once the Voce term saturates, so every cycle yields again.
+pub const J2_PROPS: [f64; 7] = [210000.0, 0.3, 355.0, 0.0, 150.0, 12.0, 2500.0];
+/// Elastic properties [E, ν].
+pub const ELASTIC_PROPS: [f64; 2] = [210000.0, 0.3];
+
+/// A routine of the example library, with what its manifest needs.
+#[derive(Clone, Copy, Debug)]
+pub struct Example {
+    pub label: &'static str,
+    pub symbol: &'static str,
+    pub states: usize,
+    pub props: &'static [f64],
+}
+
+pub const J2: Example = Example { label: "j2", symbol: "c_j2", states: 13, props: &J2_PROPS };
+pub const ELASTIC: Example =
+    Example { label: "elastic", symbol: "c_elastic", states: 0, props: &ELASTIC_PROPS };
+
+/// Where the benchmarks keep what they build and write: `<target>/bench-inputs`.
+pub fn work_dir() -> PathBuf {
+    let target = std::env::var_os("CARGO_TARGET_DIR")
+        .map(PathBuf::from)
+        .unwrap_or_else(|| FsPath::new(env!("CARGO_MANIFEST_DIR")).join("target"));
+    let d = target.join("bench-inputs");
+    std::fs::create_dir_all(&d).expect("creating the benchmark folder");
+    d
+}
+
+fn repo(rel: &str) -> PathBuf {
+    FsPath::new(env!("CARGO_MANIFEST_DIR")).join(rel)
+}
+
+/// The example J2 and elastic C routines, optimised as `tancheck build` makes them, with
+/// their twins, in one library.
+pub fn routine_library(dir: &FsPath) -> PathBuf {
+    let out = dir.join("libexamples.so");
+    let sources = [repo("fortran-shim/examples/c/j2.c"), repo("fortran-shim/examples/c/elastic.c")];
+    tancheck::abi::build_library(&tancheck::abi::BuildOptions::new(sources, &out))
+        .unwrap_or_else(|e| panic!("building the example routines: {e}"));
+    out
+}
+
+/// A manifest of `ex` in `lib` with the given guard level, written to `dir` (so that the same
+/// check can be run with the `tancheck` binary) and parsed.
+pub fn manifest(dir: &FsPath, lib: &FsPath, ex: Example, guards: &str) -> (Manifest, PathBuf) {
+    let text = format!(
+        r#"{{ "routine": {{ "library": "{}", "symbol": "{}", "kind": "solid-3d", "states": {}, "properties": {:?} }},
+  "guards": "{guards}" }}
+"#,
+        lib.display(),
+        ex.symbol,
+        ex.states,
+        ex.props
+    );
+    let file = dir.join(format!("{}-{guards}.json", ex.label));
+    std::fs::write(&file, &text).expect("writing a manifest");
+    (Manifest::parse(&text, &file).expect("a valid manifest"), file)
+}
+
+/// The routine a manifest names, loaded as `tancheck check` loads it, with its start state.
+pub fn loaded(m: &Manifest, dir: &FsPath) -> (Loaded, PointState) {
+    let mut l = load(m, dir).expect("loading the routine");
+    let start = start_state(m, l.routine().info()).expect("the start state");
+    (l, start)
+}
+
+/// Strain step of the cyclic path (leading component ε11).
+pub const CYCLE_STEP: f64 = 2e-4;
+/// Amplitude of the cyclic path (ε11); yield in uniaxial strain is near 1.2e-3.
+pub const CYCLE_AMPLITUDE: f64 = 4e-3;
+
+/// `n` increments along the tension–shear direction (every column of a 3D tangent is
+/// exercised), cycling 0 → +amplitude → −amplitude → … in equal steps.
+pub fn cyclic_path(n: usize) -> Path {
+    let d = Shape::TensionShear.direction();
+    let per_leg = (CYCLE_AMPLITUDE / CYCLE_STEP).round() as usize; // 20 steps from 0 to the peak
+    let mut increments = Vec::with_capacity(n);
+    let mut k = 0;
+    while increments.len() < n {
+        // First leg 0 → +A, then alternating legs of 2A between the peaks.
+        let (sign, steps) = if k == 0 {
+            (1.0, per_leg)
+        } else if k % 2 == 1 {
+            (-1.0, 2 * per_leg)
+        } else {
+            (1.0, 2 * per_leg)
+        };
+        for _ in 0..steps {
+            if increments.len() == n {
+                break;
+            }
+            increments.push(PathIncrement::strain(d.map(|x| x * sign * CYCLE_STEP)));
+        }
+        k += 1;
+    }
+    Path {
+        name: format!(
+            "cyclic tension-shear, ±{CYCLE_AMPLITUDE:e} in steps of {CYCLE_STEP:e}, {n} increments"
+        ),
+        increments,
+    }
+}
+
+/// `path` as a path file (the JSON of a manifest's `path`), for `tancheck check --path FILE`.
+pub fn write_path_file(path: &Path, file: &FsPath) {
+    let value = serde_json::json!({ "name": path.name, "increments": path.increments });
+    std::fs::write(file, serde_json::to_vec(&value).unwrap()).expect("writing the path file");
+}
