@@ -21,8 +21,6 @@
 
 mod common;
 
-use std::cell::RefCell;
-use std::ffi::{c_char, c_int, CString};
 use std::rc::Rc;
 use std::time::{Duration, Instant};
 
@@ -34,103 +32,10 @@ use tancheck::cli::report::Reporter;
 use tancheck::core::path::Path;
 use tancheck::core::{check, Caller, Scheme, Verdict};
 
-use common::{Example, ELASTIC, J2};
+use common::{loop_library, stats, CLoop, Example, Times, ELASTIC, J2};
 
 /// Increments of the path.
 const INCREMENTS: usize = 20_000;
-
-#[repr(C)]
-#[derive(Debug, Default)]
-struct LoopResult {
-    real_calls: i64,
-    complex_calls: i64,
-    worst_central: f64,
-    worst_complex: f64,
-    failed_increment: c_int,
-}
-
-type LoopFn = unsafe extern "C" fn(
-    library: *const c_char,
-    symbol: *const c_char,
-    twin_symbol: *const c_char,
-    ncomp: c_int,
-    nstate: c_int,
-    nprop: c_int,
-    props: *const f64,
-    temp: f64,
-    nincr: c_int,
-    dstrain: *const f64,
-    dtime: f64,
-    rel_central: f64,
-    rel_complex: f64,
-    step_floor: f64,
-    entry_floor: f64,
-    out: *mut LoopResult,
-) -> c_int;
-
-/// The hand-written loop's entry point (its library stays loaded for the whole benchmark),
-/// with the inputs of one routine's walk.
-struct CLoop {
-    run: LoopFn,
-    library: CString,
-    symbol: CString,
-    twin: CString,
-    ncomp: usize,
-    nstate: usize,
-    props: Vec<f64>,
-    temp: f64,
-    /// The path's strain increments in the routine's order and shear measure, row by row.
-    dstrain: Vec<f64>,
-    rel_central: f64,
-    rel_complex: f64,
-    step_floor: f64,
-    entry_floor: f64,
-}
-
-impl CLoop {
-    fn walk(&self) -> LoopResult {
-        let mut out = LoopResult::default();
-        let nincr = self.dstrain.len() / self.ncomp;
-        // SAFETY: the arguments match loop_check_run's prototype; the arrays outlive the call
-        // and have the lengths the counts say.
-        let rc = unsafe {
-            (self.run)(
-                self.library.as_ptr(),
-                self.symbol.as_ptr(),
-                self.twin.as_ptr(),
-                self.ncomp as c_int,
-                self.nstate as c_int,
-                self.props.len() as c_int,
-                self.props.as_ptr(),
-                self.temp,
-                nincr as c_int,
-                self.dstrain.as_ptr(),
-                1.0,
-                self.rel_central,
-                self.rel_complex,
-                self.step_floor,
-                self.entry_floor,
-                &mut out,
-            )
-        };
-        assert_eq!(rc, 0, "the C loop could not load {:?}", self.library);
-        out
-    }
-}
-
-/// Compile benches/c/loop_check.c into a library and load it.
-fn loop_library(dir: &std::path::Path) -> (libloading::Library, LoopFn) {
-    let src = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/c/loop_check.c");
-    let out = dir.join("libloop_check.so");
-    let mut opts = tancheck::abi::BuildOptions::new([src], &out);
-    opts.twin = false;
-    tancheck::abi::build_library(&opts).unwrap_or_else(|e| panic!("building the C loop: {e}"));
-    // SAFETY: our own library, which runs no initialisers.
-    let lib = unsafe { libloading::Library::new(&out) }.expect("loading the C loop");
-    // SAFETY: the symbol has the LoopFn prototype (benches/c/loop_check.c).
-    let run = *unsafe { lib.get::<LoopFn>(b"loop_check_run\0") }.expect("the symbol loop_check_run");
-    (lib, run)
-}
 
 /// The check as `tancheck check` makes it, without the first-call looks; returns the report
 /// and the calls made (real, complex, extra calls of the guards).
@@ -155,15 +60,6 @@ fn settings() -> tancheck::core::Settings {
     tancheck::core::Settings { first_calls: false, ..Default::default() }
 }
 
-/// Per-iteration times of one benchmark, as criterion measured them.
-type Times = Rc<RefCell<Vec<f64>>>;
-
-fn stats(t: &Times) -> (f64, f64) {
-    let mut v = t.borrow().clone();
-    v.sort_by(f64::total_cmp);
-    (v[0], v[v.len() / 2])
-}
-
 fn bench(crit: &mut Criterion) {
     let dir = common::work_dir();
     let lib_path = common::routine_library(&dir);
@@ -180,28 +76,8 @@ fn bench(crit: &mut Criterion) {
             let (l, start) = common::loaded(&m, &dir);
             loaded.push((guards, l, start));
         }
-        // The C loop's inputs: the same path in the routine's own order and shear measure.
-        let conv = loaded[0].1.routine().info().convention.clone();
-        let n = conv.ncomp();
-        let mut dstrain = vec![0.0; n * path.increments.len()];
-        for (inc, row) in path.increments.iter().zip(dstrain.chunks_mut(n)) {
-            conv.strain_from_canonical(&inc.dstrain, row);
-        }
-        let c_loop = CLoop {
-            run,
-            library: CString::new(lib_path.to_str().unwrap()).unwrap(),
-            symbol: CString::new(ex.symbol).unwrap(),
-            twin: CString::new(format!("{}{}", ex.symbol, tancheck::abi::TWIN_SUFFIX)).unwrap(),
-            ncomp: n,
-            nstate: ex.states,
-            props: ex.props.to_vec(),
-            temp: loaded[0].2.temp,
-            dstrain,
-            rel_central: s.central.rel_step,
-            rel_complex: s.complex_step.rel_step,
-            step_floor: s.step_floor,
-            entry_floor: s.entry_floor,
-        };
+        let (conv, temp) = (loaded[0].1.routine().info().convention.clone(), loaded[0].2.temp);
+        let c_loop = CLoop::new(run, &lib_path, ex, &conv, temp, &path, &s);
 
         // The same work on both sides: the same routine calls, and both find the tangent
         // consistent along the whole path.

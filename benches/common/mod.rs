@@ -3,12 +3,15 @@
 //! path into the plastic range.
 #![allow(dead_code)] // each benchmark uses a part
 
+use std::cell::RefCell;
+use std::ffi::{c_char, c_int, CString};
 use std::path::{Path as FsPath, PathBuf};
+use std::rc::Rc;
 
 use tancheck::cli::load::{load, start_state, Loaded};
 use tancheck::cli::manifest::Manifest;
 use tancheck::core::path::{Path, PathIncrement, Shape};
-use tancheck::core::PointState;
+use tancheck::core::{Convention, PointState, Settings};
 
 /// The J2 properties of the benchmarks [E, ν, σy0, H_iso, Q, b, H_kin] (MPa): steel-like
 /// numbers chosen for the benchmark, not test data. Without linear isotropic hardening the
@@ -119,4 +122,141 @@ pub fn cyclic_path(n: usize) -> Path {
 pub fn write_path_file(path: &Path, file: &FsPath) {
     let value = serde_json::json!({ "name": path.name, "increments": path.increments });
     std::fs::write(file, serde_json::to_vec(&value).unwrap()).expect("writing the path file");
+}
+
+#[repr(C)]
+#[derive(Debug, Default)]
+pub struct LoopResult {
+    pub real_calls: i64,
+    pub complex_calls: i64,
+    pub worst_central: f64,
+    pub worst_complex: f64,
+    pub failed_increment: c_int,
+}
+
+pub type LoopFn = unsafe extern "C" fn(
+    library: *const c_char,
+    symbol: *const c_char,
+    twin_symbol: *const c_char,
+    ncomp: c_int,
+    nstate: c_int,
+    nprop: c_int,
+    props: *const f64,
+    temp: f64,
+    nincr: c_int,
+    dstrain: *const f64,
+    dtime: f64,
+    rel_central: f64,
+    rel_complex: f64,
+    step_floor: f64,
+    entry_floor: f64,
+    out: *mut LoopResult,
+) -> c_int;
+
+/// The hand-written loop's entry point (its library stays loaded for the whole benchmark),
+/// with the inputs of one routine's walk.
+pub struct CLoop {
+    pub run: LoopFn,
+    pub library: CString,
+    pub symbol: CString,
+    pub twin: CString,
+    pub ncomp: usize,
+    pub nstate: usize,
+    pub props: Vec<f64>,
+    pub temp: f64,
+    /// The path's strain increments in the routine's order and shear measure, row by row.
+    pub dstrain: Vec<f64>,
+    pub rel_central: f64,
+    pub rel_complex: f64,
+    pub step_floor: f64,
+    pub entry_floor: f64,
+}
+
+impl CLoop {
+    /// The loop over `path` (canonical components, turned into the routine's own order and
+    /// shear measure as tancheck's driver does) for `ex` in `library`, at the steps and entry
+    /// floor of `settings`.
+    pub fn new(
+        run: LoopFn,
+        library: &FsPath,
+        ex: Example,
+        conv: &Convention,
+        temp: f64,
+        path: &Path,
+        settings: &Settings,
+    ) -> CLoop {
+        let n = conv.ncomp();
+        let mut dstrain = vec![0.0; n * path.increments.len()];
+        for (inc, row) in path.increments.iter().zip(dstrain.chunks_mut(n)) {
+            conv.strain_from_canonical(&inc.dstrain, row);
+        }
+        CLoop {
+            run,
+            library: CString::new(library.to_str().expect("a UTF-8 path")).unwrap(),
+            symbol: CString::new(ex.symbol).unwrap(),
+            twin: CString::new(format!("{}{}", ex.symbol, tancheck::abi::TWIN_SUFFIX)).unwrap(),
+            ncomp: n,
+            nstate: ex.states,
+            props: ex.props.to_vec(),
+            temp,
+            dstrain,
+            rel_central: settings.central.rel_step,
+            rel_complex: settings.complex_step.rel_step,
+            step_floor: settings.step_floor,
+            entry_floor: settings.entry_floor,
+        }
+    }
+
+    pub fn walk(&self) -> LoopResult {
+        let mut out = LoopResult::default();
+        let nincr = self.dstrain.len() / self.ncomp;
+        // SAFETY: the arguments match loop_check_run's prototype; the arrays outlive the call
+        // and have the lengths the counts say.
+        let rc = unsafe {
+            (self.run)(
+                self.library.as_ptr(),
+                self.symbol.as_ptr(),
+                self.twin.as_ptr(),
+                self.ncomp as c_int,
+                self.nstate as c_int,
+                self.props.len() as c_int,
+                self.props.as_ptr(),
+                self.temp,
+                nincr as c_int,
+                self.dstrain.as_ptr(),
+                1.0,
+                self.rel_central,
+                self.rel_complex,
+                self.step_floor,
+                self.entry_floor,
+                &mut out,
+            )
+        };
+        assert_eq!(rc, 0, "the C loop could not load {:?}", self.library);
+        out
+    }
+}
+
+/// Compile benches/c/loop_check.c into a library and load it.
+pub fn loop_library(dir: &std::path::Path) -> (libloading::Library, LoopFn) {
+    let src = std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("benches/c/loop_check.c");
+    let out = dir.join("libloop_check.so");
+    let mut opts = tancheck::abi::BuildOptions::new([src], &out);
+    opts.twin = false;
+    tancheck::abi::build_library(&opts).unwrap_or_else(|e| panic!("building the C loop: {e}"));
+    // SAFETY: our own library, which runs no initialisers.
+    let lib = unsafe { libloading::Library::new(&out) }.expect("loading the C loop");
+    // SAFETY: the symbol has the LoopFn prototype (benches/c/loop_check.c).
+    let run = *unsafe { lib.get::<LoopFn>(b"loop_check_run\0") }.expect("the symbol loop_check_run");
+    (lib, run)
+}
+
+/// Per-iteration times of one benchmark, as its `iter_custom` measured them (warm-up included).
+pub type Times = Rc<RefCell<Vec<f64>>>;
+
+/// The fastest and the median of `t`, in seconds.
+pub fn stats(t: &Times) -> (f64, f64) {
+    let mut v = t.borrow().clone();
+    v.sort_by(f64::total_cmp);
+    (v[0], v[v.len() / 2])
 }
