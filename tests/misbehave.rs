@@ -142,3 +142,45 @@ fn a_fortran_stop_is_reported_under_isolation() {
     let (c, t) = check(&lib, "f_bad_stop", &[]);
     assert_eq!(c, Some(70), "without --isolate a STOP ends tancheck with the documented code 70: {t}");
 }
+
+/// The line of `needle` in a source file (1-based), so the test follows edits of the file.
+fn line_of(src: &str, needle: &str) -> usize {
+    let text = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join(src)).unwrap();
+    1 + text.lines().position(|l| l.contains(needle)).expect("the needle is in the source")
+}
+
+#[test]
+fn a_crash_names_the_function_file_and_line_when_the_library_has_debug_information() {
+    let src = "fortran-shim/examples/c/misbehave.c";
+    let d = scratch("debug-build");
+    let lib = d.join("libmisbehave_g.so");
+    let o = bin()
+        .arg("build")
+        .arg(Path::new(env!("CARGO_MANIFEST_DIR")).join(src))
+        .arg("-o")
+        .arg(&lib)
+        .arg("--debug")
+        .output()
+        .unwrap();
+    assert!(o.status.success(), "{}", text(&o));
+    let (c, t) = check(&lib, "bad_null_deref", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    // The store through the null pointer is the line after the declaration of `nowhere`.
+    let line = line_of(src, "volatile tc_real *volatile nowhere = NULL;") + 1;
+    let want = "in `bad_null_deref` at ";
+    assert!(t.contains(want), "expected `{want}` in\n{t}");
+    assert!(t.contains(&format!("misbehave.c:{line} (libmisbehave_g.so+0x")), "expected line {line} in\n{t}");
+    assert!(t.contains("address 0x0"), "the faulting address stays beside the place:\n{t}");
+    // The same under --isolate (the worker resolves it).
+    let (c, t) = check(&lib, "bad_null_deref", &["--isolate"]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains(&format!("misbehave.c:{line}")), "{t}");
+}
+
+#[test]
+fn without_debug_information_a_crash_names_the_exported_function_and_says_how_to_get_the_line() {
+    let (c, t) = check(c_lib(), "bad_null_deref", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("in `bad_null_deref` (libmisbehave_c.so+0x"), "{t}");
+    assert!(t.contains("no debug information for file and line"), "{t}");
+}
