@@ -40,7 +40,7 @@ enum Command {
     /// Rerun the call saved in a case file and print its outputs and check.
     Replay(crate::cmd_replay::ReplayArgs),
     /// Compile C and Fortran sources into a shared library, with the complex-step twin.
-    Build(BuildArgs),
+    Build(crate::cmd_build::BuildArgs),
     /// Build the bundled example routines and check them.
     Demo(DemoArgs),
     /// List the built-in reference models and their properties.
@@ -148,25 +148,6 @@ fn guards_arg(g: &str) -> Result<crate::manifest::Guards> {
 }
 
 #[derive(Args, Debug)]
-struct BuildArgs {
-    /// C (.c) and Fortran (.f, .f90, .F90, ...) sources.
-    #[arg(required = true)]
-    sources: Vec<PathBuf>,
-    /// The shared library to write.
-    #[arg(short, long, value_name = "LIB")]
-    output: PathBuf,
-    /// Debug build: bounds checks, floating-point traps, backtraces, signaling-NaN reals.
-    #[arg(long)]
-    debug: bool,
-    /// Do not build the complex-step twin.
-    #[arg(long)]
-    no_twin: bool,
-    /// Print every compiler command.
-    #[arg(short, long)]
-    verbose: bool,
-}
-
-#[derive(Args, Debug)]
 pub struct DemoArgs {
     /// Keep the built libraries and manifests in this folder.
     #[arg(long, value_name = "DIR")]
@@ -187,7 +168,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     };
     let result = match cli.command {
         Command::Check(a) => cmd_check(a),
-        Command::Build(a) => cmd_build(a),
+        Command::Build(a) => crate::cmd_build::run(a),
         Command::Probe(a) => cmd_probe(a),
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),
@@ -427,28 +408,6 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         }
     }
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
-}
-
-fn cmd_build(a: BuildArgs) -> Result<i32> {
-    let opts = tancheck_abi::compile::BuildOptions {
-        sources: a.sources,
-        output: a.output,
-        debug: a.debug,
-        twin: !a.no_twin,
-        ..Default::default()
-    };
-    let log = tancheck_abi::compile::build_library(&opts)?;
-    if a.verbose {
-        for c in &log.commands {
-            println!("{}", c.command_line());
-        }
-    }
-    println!(
-        "built {}{}",
-        opts.output.display(),
-        if opts.twin { " (with complex-step twins, suffix _cx)" } else { "" }
-    );
-    Ok(exit::PASS)
 }
 
 fn cmd_models() -> Result<i32> {

@@ -3,6 +3,7 @@
 
 pub mod cli;
 pub mod cmd_bisect;
+pub mod cmd_build;
 pub mod cmd_replay;
 pub mod demo;
 pub mod isolate;
