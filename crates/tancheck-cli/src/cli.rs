@@ -4,7 +4,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::{bail, Context, Result};
-use clap::{Args, Parser, Subcommand};
+use clap::{Args, CommandFactory, Parser, Subcommand};
 
 use tancheck_core::path::{Path, Shape};
 use tancheck_core::{check, Caller, PointKind, Report, Scheme};
@@ -51,6 +51,17 @@ enum Command {
         #[arg(short, long)]
         verbose: bool,
     },
+    /// Print a shell completion script (for packagers).
+    #[command(hide = true)]
+    Completions(crate::cmd_packaging::CompletionsArgs),
+    /// Print the man page, or write every page into a folder (for packagers).
+    #[command(hide = true)]
+    Man(crate::cmd_packaging::ManArgs),
+}
+
+/// The command line's definition (for generated completions and man pages).
+pub fn command() -> clap::Command {
+    Cli::command()
 }
 
 #[derive(Args, Debug)]
@@ -175,6 +186,8 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
         Command::Selftest { verbose } => crate::selftest::run(verbose),
+        Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
+        Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };
     match result {
         Ok(code) => code,
