@@ -521,13 +521,17 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
                      use, intrinsic :: iso_c_binding, only: c_int\n  implicit none\n  \
                      integer(c_int) :: r\n  r = 1_c_int\nend function tc_debug_marker\n"
                 ),
-                vec!["-J".to_string(), s(&marker_dir)],
+                opt_f
+                    .iter()
+                    .map(|a| a.to_string())
+                    .chain(["-J".to_string(), s(&marker_dir)])
+                    .collect::<Vec<_>>(),
             ),
             None => (
                 cc.as_ref().expect("there is at least one source"),
                 "debug_marker.c",
                 format!("int {DEBUG_MARKER}(void);\nint {DEBUG_MARKER}(void) {{ return 1; }}\n"),
-                Vec::new(),
+                opt_c.iter().map(|a| a.to_string()).collect(),
             ),
         };
         let src = marker_dir.join(file);
@@ -537,8 +541,9 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
             source,
         })?;
         let o = obj.join("debug-marker.o");
-        let mut args: Vec<String> = vec!["-fPIC".into(), "-c".into(), s(&src), "-o".into(), s(&o)];
+        let mut args: Vec<String> = vec!["-fPIC".into()];
         args.extend(extra);
+        args.extend(["-c".into(), s(&src), "-o".into(), s(&o)]);
         compiler.run("compiling the debug marker of tancheck".into(), args, &mut log, |_| String::new())?;
         objects.push(o);
     }
