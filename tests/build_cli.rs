@@ -80,6 +80,12 @@ fn a_compiler_error_fails_with_the_compilers_words_and_extra_c_flags_reach_the_c
     assert_eq!(o.status.code(), Some(0), "{so}{se}");
     assert!(se.contains("helper_nobody_calls"), "{se}");
     assert!(se.contains("the compiler said, compiling"), "{se}");
+    assert_eq!(
+        se.matches("helper_nobody_calls").count(),
+        1,
+        "the twin's identical warning is not repeated:\n{se}"
+    );
+    assert!(se.contains("the compiler said the same, compiling") && se.contains("complex-step twin"), "{se}");
     assert!(so.contains("2 compiler commands printed warnings"), "{so}");
     // The flags come after tancheck's own, on every C compilation.
     let c_lines: Vec<&str> = so.lines().filter(|l| l.contains(" -c ") && l.contains("flagged.c")).collect();

@@ -66,8 +66,15 @@ pub fn run(a: BuildArgs) -> Result<i32> {
         }
     }
     let warnings = log.warnings();
+    let mut shown: Vec<&str> = Vec::new();
     for (stage, text) in &warnings {
-        eprintln!("tancheck: the compiler said, {stage}:\n{}", text.trim_end());
+        if shown.contains(&text.as_str()) {
+            // The twin's compilation usually repeats the real one's warnings word for word.
+            eprintln!("tancheck: the compiler said the same, {stage}");
+        } else {
+            eprintln!("tancheck: the compiler said, {stage}:\n{}", text.trim_end());
+            shown.push(text);
+        }
     }
     println!(
         "built {}{}{}",
@@ -75,7 +82,10 @@ pub fn run(a: BuildArgs) -> Result<i32> {
         if opts.twin { " (with complex-step twins, suffix _cx)" } else { "" },
         match warnings.len() {
             0 => String::new(),
-            n => format!("; {n} compiler command{} printed warnings (above)", if n == 1 { "" } else { "s" }),
+            n => format!(
+                "; {n} compiler command{} printed warnings (on standard error)",
+                if n == 1 { "" } else { "s" }
+            ),
         }
     );
     if opts.debug {
