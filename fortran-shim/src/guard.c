@@ -38,7 +38,9 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/mman.h>
+#if defined(__linux__)
 #include <ucontext.h>
+#endif
 #include <unistd.h>
 
 #include "tancheck_routine.h"
@@ -224,7 +226,10 @@ static int detail_of(int sig, int code, uintptr_t addr, uintptr_t stack_lo) {
 /* The interrupted instruction, read from the signal context; only stored here (it is
  * turned into a function, file and line after the call, outside the handler). */
 static void *context_pc(void *context) {
+    (void)context;
+#if defined(__linux__)
     if (context == NULL) return NULL;
+#endif
 #if defined(__linux__) && defined(__x86_64__)
     return (void *)(uintptr_t)((ucontext_t *)context)->uc_mcontext.gregs[REG_RIP];
 #elif defined(__linux__) && defined(__aarch64__)
