@@ -35,6 +35,20 @@ fn c_lib() -> &'static Path {
     L.get_or_init(|| build("misbehave_c", "fortran-shim/examples/c/misbehave.c"))
 }
 
+/// misbehave.c built by `tancheck build --debug`.
+fn c_debug_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let d = scratch("debug-build");
+        let lib = d.join("libmisbehave_g.so");
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+        let o = bin().arg("build").arg(&src).arg("-o").arg(&lib).arg("--debug").output().unwrap();
+        assert!(o.status.success(), "{}", text(&o));
+        assert!(text(&o).contains("floating-point traps on"), "{}", text(&o));
+        lib
+    })
+}
+
 fn check(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, String) {
     let d = scratch(symbol);
     let m = d.join("m.json");
@@ -141,4 +155,56 @@ fn a_fortran_stop_is_reported_under_isolation() {
     assert!(t.contains("during increment 2"), "{t}");
     let (c, t) = check(&lib, "f_bad_stop", &[]);
     assert_eq!(c, Some(70), "without --isolate a STOP ends tancheck with the documented code 70: {t}");
+}
+
+/// The line of `needle` in a source file (1-based), so the test follows edits of the file.
+fn line_of(src: &str, needle: &str) -> usize {
+    let text = std::fs::read_to_string(Path::new(env!("CARGO_MANIFEST_DIR")).join(src)).unwrap();
+    1 + text.lines().position(|l| l.contains(needle)).expect("the needle is in the source")
+}
+
+#[test]
+fn a_crash_names_the_function_file_and_line_when_the_library_has_debug_information() {
+    let src = "fortran-shim/examples/c/misbehave.c";
+    let lib = c_debug_lib();
+    let (c, t) = check(lib, "bad_null_deref", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    // The store through the null pointer is the line after the declaration of `nowhere`.
+    let line = line_of(src, "volatile tc_real *volatile nowhere = NULL;") + 1;
+    let want = "in `bad_null_deref` at ";
+    assert!(t.contains(want), "expected `{want}` in\n{t}");
+    assert!(t.contains(&format!("misbehave.c:{line} (libmisbehave_g.so+0x")), "expected line {line} in\n{t}");
+    assert!(t.contains("address 0x0"), "the faulting address stays beside the place:\n{t}");
+    // The same under --isolate (the worker resolves it).
+    let (c, t) = check(lib, "bad_null_deref", &["--isolate"]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains(&format!("misbehave.c:{line}")), "{t}");
+}
+
+#[test]
+fn without_debug_information_a_crash_names_the_exported_function_and_says_how_to_get_the_line() {
+    let (c, t) = check(c_lib(), "bad_null_deref", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("in `bad_null_deref` (libmisbehave_c.so+0x"), "{t}");
+    assert!(t.contains("no debug information for file and line"), "{t}");
+}
+
+#[test]
+fn a_debug_build_runs_with_floating_point_traps_without_being_asked() {
+    if !tancheck::abi::guard::fp_traps_available() {
+        eprintln!("SKIPPED: this machine cannot trap floating-point exceptions");
+        return;
+    }
+    // Optimised build: the division by zero gives an infinite stress, no signal.
+    let (c, t) = check(c_lib(), "bad_divide_by_zero", &[]);
+    assert!(!t.contains("SIGFPE"), "{t}");
+    assert_ne!(c, Some(0), "{t}");
+    // Debug build: the same routine traps at the division, and the report names the line.
+    let src = "fortran-shim/examples/c/misbehave.c";
+    let (c, t) = check(c_debug_lib(), "bad_divide_by_zero", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("SIGFPE") && t.contains("division by zero"), "{t}");
+    assert!(t.contains("floating-point traps on") && t.contains("built with --debug"), "{t}");
+    let line = line_of(src, "stress[0] = stress[0] + e / zero;");
+    assert!(t.contains("in `bad_divide_by_zero` at ") && t.contains(&format!("misbehave.c:{line} ")), "{t}");
 }

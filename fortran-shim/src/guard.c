@@ -38,6 +38,9 @@
 #include <stdlib.h>
 #include <string.h>
 #include <sys/mman.h>
+#if defined(__linux__)
+#include <ucontext.h>
+#endif
 #include <unistd.h>
 
 #include "tancheck_routine.h"
@@ -101,6 +104,7 @@ typedef struct tc_guard_result {
     int32_t code;   /* raw si_code */
     int32_t reserved;
     uint64_t address; /* si_addr for SIGSEGV, SIGBUS, SIGFPE and SIGILL; else 0 */
+    uint64_t pc;      /* the interrupted instruction (from the signal context), or 0 */
 } tc_guard_result;
 
 typedef void (*tc_guard_cx_fn)(const tc_call *call, const _Complex double *props,
@@ -119,6 +123,7 @@ typedef struct guard_thread {
     const char *volatile label;     /* routine name of the current call */
     volatile int sig, code;
     void *volatile addr;
+    void *volatile pc;
     int prepared;                   /* alternate stack and stack bounds are set up */
     uintptr_t stack_lo;             /* lowest usable address of this thread's stack, or 0 */
 } guard_thread;
@@ -218,6 +223,24 @@ static int detail_of(int sig, int code, uintptr_t addr, uintptr_t stack_lo) {
     }
 }
 
+/* The interrupted instruction, read from the signal context; only stored here (it is
+ * turned into a function, file and line after the call, outside the handler). */
+static void *context_pc(void *context) {
+    (void)context;
+#if defined(__linux__)
+    if (context == NULL) return NULL;
+#endif
+#if defined(__linux__) && defined(__x86_64__)
+    return (void *)(uintptr_t)((ucontext_t *)context)->uc_mcontext.gregs[REG_RIP];
+#elif defined(__linux__) && defined(__aarch64__)
+    return (void *)(uintptr_t)((ucontext_t *)context)->uc_mcontext.pc;
+#elif defined(__linux__) && defined(__i386__)
+    return (void *)(uintptr_t)((ucontext_t *)context)->uc_mcontext.gregs[REG_EIP];
+#else
+    return NULL;
+#endif
+}
+
 static void guard_handler(int sig, siginfo_t *info, void *context) {
     guard_thread *t = &tc_thread;
     if (t->inside && t->jump != NULL) {
@@ -233,6 +256,7 @@ static void guard_handler(int sig, siginfo_t *info, void *context) {
             t->sig = sig;
             t->code = info != NULL ? info->si_code : 0;
             t->addr = (info != NULL && info->si_code > 0) ? info->si_addr : NULL;
+            t->pc = context_pc(context);
             GUARD_FENCE();
             siglongjmp(*t->jump, 1);
         }
@@ -434,6 +458,7 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
     r->kind = kind_of(t->sig);
     r->code = t->code;
     r->address = (uint64_t)(uintptr_t)t->addr;
+    r->pc = (uint64_t)(uintptr_t)t->pc;
     r->detail = detail_of(t->sig, t->code, (uintptr_t)t->addr, t->stack_lo);
 }
 
@@ -481,7 +506,7 @@ TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double)
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 
 /* Sizes and offsets of the structs both sides share; see guard.rs. */
-void tc_guard_layout(uint64_t out[12]) {
+void tc_guard_layout(uint64_t out[13]) {
     out[0] = sizeof(tc_call);
     out[1] = offsetof(tc_call, time);
     out[2] = offsetof(tc_call, dtime);
@@ -493,5 +518,6 @@ void tc_guard_layout(uint64_t out[12]) {
     out[8] = offsetof(tc_guard_args, fp_traps);
     out[9] = sizeof(tc_guard_result);
     out[10] = offsetof(tc_guard_result, address);
-    out[11] = TC_GUARD_EXIT_STATUS;
+    out[11] = offsetof(tc_guard_result, pc);
+    out[12] = TC_GUARD_EXIT_STATUS;
 }

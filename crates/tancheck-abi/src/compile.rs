@@ -8,7 +8,18 @@
 //!
 //! Compilers: `$CC` (default `cc`) for `.c`, `$FC` (default `gfortran`) for `.f`, `.f90`,
 //! `.F90`, `.f95`, `.f03`, `.f08`. A variable may hold a program and leading arguments, split
-//! at white space (`CC="ccache gcc"`).
+//! at white space (`CC="ccache gcc"`). The library is linked by the Fortran compiler when
+//! there is Fortran, by the C compiler otherwise. Extra flags for each language and for the
+//! link come from [`BuildOptions::cflags`], [`BuildOptions::fflags`] and
+//! [`BuildOptions::ldflags`], after tancheck's own (so `-O3` there wins over `-O2`).
+//!
+//! What a compiler prints while it succeeds (its warnings) is kept in the [`BuildLog`]
+//! ([`BuildLog::warnings`]); a failure carries the compiler's own words.
+//!
+//! A debug build also links a marker function, [`DEBUG_MARKER`], into the library: the
+//! floating-point traps that `-ffpe-trap` asks for act only in a program whose main program
+//! gfortran compiled, so tancheck switches its own traps on at check time for a library
+//! that carries the marker.
 
 use std::fmt;
 use std::path::{Path, PathBuf};
@@ -43,6 +54,12 @@ pub struct BuildOptions {
     pub debug: bool,
     /// Also compile every source with `TC_COMPLEX` defined (the complex-step twin).
     pub twin: bool,
+    /// Extra flags for every C compilation (split at white space by the command line).
+    pub cflags: Vec<String>,
+    /// Extra flags for every Fortran compilation, tancheck's modules included.
+    pub fflags: Vec<String>,
+    /// Extra flags for the link.
+    pub ldflags: Vec<String>,
     /// Where to put intermediate files. `None`: a fresh directory under the system's temporary
     /// directory, removed afterwards. A given directory is kept.
     pub build_dir: Option<PathBuf>,
@@ -63,10 +80,17 @@ impl BuildOptions {
             output: output.into(),
             debug: false,
             twin: true,
+            cflags: Vec::new(),
+            fflags: Vec::new(),
+            ldflags: Vec::new(),
             build_dir: None,
         }
     }
 }
+
+/// The function a debug build (`BuildOptions::debug`) links into the library, so that a check
+/// knows to switch the floating-point traps on. It takes nothing and returns 1.
+pub const DEBUG_MARKER: &str = "tancheck_built_for_debug";
 
 /// One command run during a build, with what it printed.
 #[derive(Clone, Debug, PartialEq, Eq)]
@@ -95,6 +119,27 @@ pub struct BuildLog {
     /// Where the intermediate files went (removed afterwards unless it was given).
     pub build_dir: PathBuf,
     pub commands: Vec<BuildCommand>,
+}
+
+impl BuildLog {
+    /// What the compilers printed in commands that succeeded (warnings, notes), by stage:
+    /// `(stage, text)`, in the order the commands ran.
+    pub fn warnings(&self) -> Vec<(&str, String)> {
+        self.commands
+            .iter()
+            .filter(|c| c.success)
+            .filter_map(|c| {
+                let mut t = String::new();
+                for text in [&c.stderr, &c.stdout] {
+                    if !text.trim().is_empty() {
+                        t.push_str(text.trim_end());
+                        t.push('\n');
+                    }
+                }
+                (!t.is_empty()).then_some((c.stage.as_str(), t))
+            })
+            .collect()
+    }
 }
 
 impl fmt::Display for BuildLog {
@@ -401,6 +446,7 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
             let o = obj.join(name.replace(".f90", ".o"));
             let mut args: Vec<String> = vec!["-cpp".into(), "-fPIC".into()];
             args.extend(opt_f.iter().map(|a| a.to_string()));
+            args.extend(opts.fflags.iter().cloned());
             args.extend([
                 "-J".into(),
                 s(&mods),
@@ -431,12 +477,14 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
                 Language::C => {
                     args.push("-fPIC".into());
                     args.extend(opt_c.iter().map(|a| a.to_string()));
+                    args.extend(opts.cflags.iter().cloned());
                     args.extend(["-I".into(), s(&include)]);
                     cc.as_ref().expect("a C compiler is set up when there is C")
                 }
                 Language::Fortran => {
                     args.extend(["-cpp".into(), "-fPIC".into()]);
                     args.extend(opt_f.iter().map(|a| a.to_string()));
+                    args.extend(opts.fflags.iter().cloned());
                     args.extend(["-I".into(), s(&include), "-I".into(), s(&mods), "-J".into(), s(&mod_out)]);
                     fc.as_ref().expect("a Fortran compiler is set up when there is Fortran")
                 }
@@ -454,6 +502,50 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
             compiler.run(stage, args, &mut log, |out| compile_hint(out, lang, complex))?;
             objects.push(o);
         }
+    }
+
+    if opts.debug {
+        // The marker, in the language of the linker (so no second compiler is needed).
+        let marker_dir = dir.join("marker");
+        std::fs::create_dir_all(&marker_dir).map_err(|source| BuildError::Io {
+            action: "create the build directory",
+            path: marker_dir.clone(),
+            source,
+        })?;
+        let (compiler, file, text, extra) = match &fc {
+            Some(fc) => (
+                fc,
+                "debug_marker.f90",
+                format!(
+                    "function tc_debug_marker() bind(C, name=\"{DEBUG_MARKER}\") result(r)\n  \
+                     use, intrinsic :: iso_c_binding, only: c_int\n  implicit none\n  \
+                     integer(c_int) :: r\n  r = 1_c_int\nend function tc_debug_marker\n"
+                ),
+                opt_f
+                    .iter()
+                    .map(|a| a.to_string())
+                    .chain(["-J".to_string(), s(&marker_dir)])
+                    .collect::<Vec<_>>(),
+            ),
+            None => (
+                cc.as_ref().expect("there is at least one source"),
+                "debug_marker.c",
+                format!("int {DEBUG_MARKER}(void);\nint {DEBUG_MARKER}(void) {{ return 1; }}\n"),
+                opt_c.iter().map(|a| a.to_string()).collect(),
+            ),
+        };
+        let src = marker_dir.join(file);
+        std::fs::write(&src, text).map_err(|source| BuildError::Io {
+            action: "write",
+            path: src.clone(),
+            source,
+        })?;
+        let o = obj.join("debug-marker.o");
+        let mut args: Vec<String> = vec!["-fPIC".into()];
+        args.extend(extra);
+        args.extend(["-c".into(), s(&src), "-o".into(), s(&o)]);
+        compiler.run("compiling the debug marker of tancheck".into(), args, &mut log, |_| String::new())?;
+        objects.push(o);
     }
 
     if let Some(parent) = opts.output.parent().filter(|p| !p.as_os_str().is_empty()) {
@@ -475,6 +567,7 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
         args.push("-Wl,-z,defs".into());
     }
     args.push("-lm".into());
+    args.extend(opts.ldflags.iter().cloned());
     let defines_modules =
         sources.iter().any(|(p, l)| *l == Language::Fortran && !fortran_modules(p).0.is_empty());
     let twin = opts.twin;

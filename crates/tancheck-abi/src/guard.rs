@@ -102,6 +102,7 @@ struct GuardResult {
     code: i32,
     reserved: i32,
     address: u64,
+    pc: u64,
 }
 
 extern "C" {
@@ -204,6 +205,9 @@ pub struct Crash {
     pub code: i32,
     /// The faulting address (SIGSEGV, SIGBUS; the instruction for SIGFPE and SIGILL).
     pub address: Option<u64>,
+    /// The interrupted instruction, from the signal context (where the routine was), when the
+    /// platform gives it. Resolved to a function, file and line by [`Crash::into_fault`].
+    pub pc: Option<u64>,
 }
 
 impl Crash {
@@ -240,7 +244,8 @@ impl Crash {
             _ if r.code > 0 => Some(r.address),
             _ => None,
         };
-        Crash { signal: r.signal, kind, detail, code: r.code, address }
+        let pc = (r.pc != 0).then_some(r.pc);
+        Crash { signal: r.signal, kind, detail, code: r.code, address, pc }
     }
 
     /// A plain description of what happened and what usually causes it.
@@ -343,9 +348,27 @@ impl Crash {
         s
     }
 
-    /// The crash as a [`Fault`]. Allocates (the description); only on the failure path.
+    /// Where the routine was when the signal arrived: the library and offset, the function,
+    /// and with debug information the source file and line. Reads the library's file.
+    pub fn location(&self) -> Option<crate::locate::CodeLocation> {
+        self.pc
+            .or(match self.kind {
+                // For these the signal's address is the instruction itself.
+                SignalKind::Arithmetic | SignalKind::IllegalInstruction => self.address,
+                _ => None,
+            })
+            .and_then(crate::locate::locate)
+    }
+
+    /// The crash as a [`Fault`], with the place it happened. Allocates (the description)
+    /// and reads the library's debug information: only on the failure path, after the
+    /// guarded call has returned (never in the signal handler).
     pub fn into_fault(self) -> Fault {
-        Fault::Crashed { signal: self.signal, what: self.describe() }
+        let mut what = self.describe();
+        if let Some(loc) = self.location() {
+            what = format!("{what}; the routine was {loc}");
+        }
+        Fault::Crashed { signal: self.signal, what }
     }
 }
 
@@ -388,7 +411,7 @@ mod tests {
     /// The structs shared with C have the same layout on both sides.
     #[test]
     fn layouts_match_the_c_side() {
-        let mut c = [0u64; 12];
+        let mut c = [0u64; 13];
         // SAFETY: the C side writes exactly 12 values.
         unsafe { tc_guard_layout(c.as_mut_ptr()) };
         let rust = [
@@ -403,6 +426,7 @@ mod tests {
             offset_of!(GuardArgs, fp_traps),
             size_of::<GuardResult>(),
             offset_of!(GuardResult, address),
+            offset_of!(GuardResult, pc),
             EXIT_STATUS_ROUTINE_EXITED as usize,
         ];
         let rust: Vec<u64> = rust.iter().map(|&v| v as u64).collect();
@@ -432,6 +456,7 @@ mod tests {
             detail: CrashDetail::Unmapped,
             code: 1,
             address: Some(0),
+            pc: None,
         };
         let d = segv.describe();
         assert!(d.starts_with("segmentation fault (SIGSEGV) at address 0x0: the routine read or wrote memory it does not own"), "{d}");
@@ -442,6 +467,7 @@ mod tests {
             detail: CrashDetail::FloatInvalid,
             code: 7,
             address: Some(0x1234),
+            pc: None,
         };
         assert!(fpe.describe().starts_with("floating-point exception (SIGFPE): invalid operation"));
         match fpe.into_fault() {

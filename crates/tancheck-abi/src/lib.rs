@@ -16,10 +16,11 @@ pub mod error;
 pub mod guard;
 pub mod guards;
 pub mod library;
+pub mod locate;
 
 pub use compile::{
     build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,
-    BuildLog, BuildOptions,
+    BuildLog, BuildOptions, DEBUG_MARKER,
 };
 pub use error::{BuildError, LoadError, TrapError};
 pub use guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};

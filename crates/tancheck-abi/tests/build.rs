@@ -63,6 +63,7 @@ fn c_and_fortran_link_into_one_library() {
     assert!(link.stage.starts_with("linking"), "{log}");
     let lib = Library::open(&out).unwrap();
     assert!(lib.has_symbol("bad_abort_cx") && lib.has_symbol("f_elastic_cx"));
+    assert!(!lib.has_symbol(tancheck_abi::DEBUG_MARKER), "only a debug build carries the marker");
     let mut r = lib.routine("bad_abort", elastic_info("bad_abort")).unwrap();
     let mut b = Real::new();
     b.call(&mut r, 1).unwrap();
@@ -107,7 +108,9 @@ fn debug_builds_use_the_debug_flags() {
             assert!(step.args.iter().any(|a| a == flag), "{flag} missing: {}", step.command_line());
         }
     }
-    let mut r = Library::open(&out).unwrap().routine("f_elastic", elastic_info("f")).unwrap();
+    let lib = Library::open(&out).unwrap();
+    assert!(lib.has_symbol(tancheck_abi::DEBUG_MARKER), "a debug build carries the marker");
+    let mut r = lib.routine("f_elastic", elastic_info("f")).unwrap();
     r.set_fp_traps(tancheck_abi::guard::fp_traps_available()).unwrap();
     let mut b = Real::new();
     b.call(&mut r, 1).unwrap();

@@ -4,7 +4,7 @@ use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::{bail, Context, Result};
-use clap::{Args, Parser, Subcommand};
+use clap::{Args, CommandFactory, Parser, Subcommand};
 
 use tancheck_core::path::{Path, Shape};
 use tancheck_core::{check, Caller, PointKind, Report, Scheme};
@@ -40,7 +40,7 @@ enum Command {
     /// Rerun the call saved in a case file and print its outputs and check.
     Replay(crate::cmd_replay::ReplayArgs),
     /// Compile C and Fortran sources into a shared library, with the complex-step twin.
-    Build(BuildArgs),
+    Build(crate::cmd_build::BuildArgs),
     /// Build the bundled example routines and check them.
     Demo(DemoArgs),
     /// List the built-in reference models and their properties.
@@ -51,6 +51,17 @@ enum Command {
         #[arg(short, long)]
         verbose: bool,
     },
+    /// Print a shell completion script (for packagers).
+    #[command(hide = true)]
+    Completions(crate::cmd_packaging::CompletionsArgs),
+    /// Print the man page, or write every page into a folder (for packagers).
+    #[command(hide = true)]
+    Man(crate::cmd_packaging::ManArgs),
+}
+
+/// The command line's definition (for generated completions and man pages).
+pub fn command() -> clap::Command {
+    Cli::command()
 }
 
 #[derive(Args, Debug)]
@@ -148,25 +159,6 @@ fn guards_arg(g: &str) -> Result<crate::manifest::Guards> {
 }
 
 #[derive(Args, Debug)]
-struct BuildArgs {
-    /// C (.c) and Fortran (.f, .f90, .F90, ...) sources.
-    #[arg(required = true)]
-    sources: Vec<PathBuf>,
-    /// The shared library to write.
-    #[arg(short, long, value_name = "LIB")]
-    output: PathBuf,
-    /// Debug build: bounds checks, floating-point traps, backtraces, signaling-NaN reals.
-    #[arg(long)]
-    debug: bool,
-    /// Do not build the complex-step twin.
-    #[arg(long)]
-    no_twin: bool,
-    /// Print every compiler command.
-    #[arg(short, long)]
-    verbose: bool,
-}
-
-#[derive(Args, Debug)]
 pub struct DemoArgs {
     /// Keep the built libraries and manifests in this folder.
     #[arg(long, value_name = "DIR")]
@@ -187,13 +179,15 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     };
     let result = match cli.command {
         Command::Check(a) => cmd_check(a),
-        Command::Build(a) => cmd_build(a),
+        Command::Build(a) => crate::cmd_build::run(a),
         Command::Probe(a) => cmd_probe(a),
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
         Command::Selftest { verbose } => crate::selftest::run(verbose),
+        Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
+        Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };
     match result {
         Ok(code) => code,
@@ -427,28 +421,6 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         }
     }
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
-}
-
-fn cmd_build(a: BuildArgs) -> Result<i32> {
-    let opts = tancheck_abi::compile::BuildOptions {
-        sources: a.sources,
-        output: a.output,
-        debug: a.debug,
-        twin: !a.no_twin,
-        ..Default::default()
-    };
-    let log = tancheck_abi::compile::build_library(&opts)?;
-    if a.verbose {
-        for c in &log.commands {
-            println!("{}", c.command_line());
-        }
-    }
-    println!(
-        "built {}{}",
-        opts.output.display(),
-        if opts.twin { " (with complex-step twins, suffix _cx)" } else { "" }
-    );
-    Ok(exit::PASS)
 }
 
 fn cmd_models() -> Result<i32> {

@@ -102,7 +102,8 @@ pub fn open_for_manifest(m: &Manifest, dir: &FsPath) -> Result<(Opened, CaseRout
     spec.library_sha256 =
         Some(sha256_file(&lib_path).with_context(|| format!("reading {} to hash it", lib_path.display()))?);
     spec.symbol = r.symbol.clone();
-    spec.fp_traps = m.fp_traps;
+    // As the routine runs (a library built with --debug switches the traps on itself).
+    spec.fp_traps = lib.fp_traps();
     if m.guards == Guards::Off {
         lib.set_guard_level(GuardLevel::Off);
     }

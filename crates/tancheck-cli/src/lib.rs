@@ -3,6 +3,8 @@
 
 pub mod cli;
 pub mod cmd_bisect;
+pub mod cmd_build;
+pub mod cmd_packaging;
 pub mod cmd_replay;
 pub mod demo;
 pub mod isolate;

@@ -62,6 +62,20 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
     let mut routine = lib.routine(symbol, info)?;
     if m.fp_traps {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
+    } else if lib.has_symbol(tancheck_abi::DEBUG_MARKER) {
+        // `tancheck build --debug` asked for traps; in a library only the caller can set them.
+        if tancheck_abi::guard::fp_traps_available() {
+            routine.set_fp_traps(true).context("switching floating-point traps on")?;
+            eprintln!(
+                "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
+                lib_path.display()
+            );
+        } else {
+            eprintln!(
+                "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
+                lib_path.display()
+            );
+        }
     }
     routine.set_guard_level(match m.guards {
         crate::manifest::Guards::Off => tancheck_abi::GuardLevel::Off,

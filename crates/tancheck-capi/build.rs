@@ -1,0 +1,24 @@
+//! Tells the install test (tests/install.rs) whether cmake and pkg-config run here: without
+//! them it is ignored ("needs cmake and pkg-config"), unless TANCHECK_REQUIRE_FORTRAN=1 (as
+//! CI sets), where it runs and a missing tool is a failure.
+
+fn runs(program: &str) -> bool {
+    std::process::Command::new(program)
+        .arg("--version")
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .status()
+        .is_ok_and(|s| s.success())
+}
+
+fn main() {
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_cmake)");
+    println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_FORTRAN");
+    println!("cargo::rerun-if-env-changed=PATH");
+    println!("cargo::rerun-if-changed=build.rs");
+    let required = std::env::var("TANCHECK_REQUIRE_FORTRAN").is_ok_and(|v| v == "1");
+    let tools = runs("cmake") && runs("pkg-config");
+    if !required && !tools {
+        println!("cargo::rustc-cfg=tancheck_no_cmake");
+    }
+}
