@@ -16,6 +16,7 @@ pub mod error;
 pub mod guard;
 pub mod guards;
 pub mod library;
+pub mod watch;
 
 pub use compile::{
     build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,

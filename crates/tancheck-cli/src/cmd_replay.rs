@@ -491,8 +491,7 @@ pub fn run(a: &ReplayArgs) -> Result<i32> {
         }
     };
     let n = report.stress.bits.len();
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     match &a.json {
         Some(p) if p.as_os_str() == "-" => {
             serde_json::to_writer_pretty(&mut out, &report)?;
