@@ -277,13 +277,17 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     }
     let path = match &a.path {
         Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
-        None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
+        None => m
+            .path_or(default_path(m.routine.kind))
+            .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
     };
-    let (mut opened, spec) = open_for_manifest(&m, &dir)?;
+    let file = a.manifest.display().to_string();
+    let (mut opened, spec) =
+        open_for_manifest(&m, &dir).with_context(|| format!("loading the routine of {file}"))?;
     crate::survive::checking(true);
     let routine = opened.routine();
     let info = routine.info().clone();
-    let start = start_state(&m, &info)?;
+    let start = start_state(&m, &info).with_context(|| file.clone())?;
     let props = m.routine.properties.clone();
     let settings = m.check.clone();
     let mut caller = Caller::new(routine);

@@ -85,6 +85,7 @@ pub fn run(
                     stress: driver.start().stress.clone(),
                     checks: Vec::new(),
                     non_finite: Vec::new(),
+                    non_finite_call: None,
                     solve: solve_log,
                     diagnosis: None,
                     fault: Some(judge::fault_record(&fault, &driver, None)),
@@ -93,6 +94,8 @@ pub fn run(
             }
             Ok(cc) => {
                 previous = cc.best.map(|(_, t)| t);
+                // Non-finite outputs carry the inputs of the call, as a crash does.
+                let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(&driver, None));
                 driver.advance();
                 increments.push(IncrementResult {
                     index: k + 1,
@@ -102,6 +105,7 @@ pub fn run(
                     stress: driver.start().stress.clone(),
                     checks: cc.checks,
                     non_finite: cc.non_finite,
+                    non_finite_call,
                     solve: solve_log,
                     diagnosis: cc.diagnosis,
                     fault: None,
