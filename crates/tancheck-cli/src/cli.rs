@@ -21,7 +21,7 @@ use crate::report::{write_atomic, Reporter};
     name = "tancheck",
     version,
     about = "Checks that a material routine's tangent is the derivative of its own stress update",
-    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, hung or failed, 70 the routine ended the process (without --isolate)."
+    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, corrupted the heap, hung or failed, 70 the routine, a thread of it or its library's constructor ended the process (without --isolate), 130/143 stopped by SIGINT/SIGTERM (the report says incomplete)."
 )]
 struct Cli {
     #[command(subcommand)]
@@ -161,8 +161,13 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     let cli = match Cli::try_parse_from(args) {
         Ok(c) => c,
         Err(e) => {
-            let _ = e.print();
-            return if e.use_stderr() { exit::BAD_INPUT } else { exit::PASS };
+            if e.use_stderr() {
+                let _ = e.print();
+                return exit::BAD_INPUT;
+            }
+            // Help and version: to tancheck's own standard output (descriptor 1 is stderr).
+            let _ = write!(crate::survive::stdout(), "{}", e.render());
+            return exit::PASS;
         }
     };
     let result = match cli.command {
