@@ -642,7 +642,11 @@ static void install(void) {
             previous[i].sa_handler = SIG_DFL;
         }
     }
-    if (atexit(guard_at_exit) != 0 && install_error == 0) install_error = ENOMEM;
+    /* Many copies: glibc hands each exiting thread the next handler of one shared list, so a
+     * second thread calling exit() at the same moment (two OpenMP threads meeting a STOP)
+     * must find a copy too, and wait there while the first says the last words. */
+    for (int i = 0; i < 64; i++)
+        if (atexit(guard_at_exit) != 0 && install_error == 0) install_error = ENOMEM;
 }
 
 /* Once per thread: an alternate signal stack when the thread has none, and the stack's
@@ -767,6 +771,16 @@ int32_t tc_guard_protect_stdout(void) {
     }
     tool_stdout = fd;
     return fd;
+}
+
+/* The program's own end with `status`: never racing a routine's thread that exits at the same
+ * moment. If last words are being said, they win (and end the process); otherwise any later
+ * exit() from a thread waits in the exit hook while this one ends the process with _exit. */
+void tc_guard_finish(int32_t status) {
+    if (__atomic_exchange_n(&dying, 1, __ATOMIC_ACQ_REL))
+        for (;;) pause();
+    fflush(NULL);
+    _exit(status);
 }
 
 /* A worker process follows its parent `parent`: when the parent dies, the worker gets

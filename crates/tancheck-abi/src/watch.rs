@@ -33,6 +33,7 @@ extern "C" {
     fn tc_guard_follow_parent(parent: i32) -> i32;
     fn tc_guard_watch(out: *mut u64);
     fn tc_guard_die(status: i32, what: *const c_char) -> !;
+    fn tc_guard_finish(status: i32) -> !;
 }
 
 /// What the program is doing, for the words "when it happened".
@@ -163,4 +164,12 @@ pub fn die(status: i32, what: &str) -> ! {
     let w = c(what);
     // SAFETY: a NUL-terminated string; the C side never returns.
     unsafe { tc_guard_die(status, w.as_ptr()) }
+}
+
+/// The program's own end with `status`, which never races a routine's thread calling `exit`
+/// at the same moment: last words already being said win; a later `exit` from a thread waits
+/// while this ends the process (`_exit`, after flushing the C library's streams).
+pub fn finish(status: i32) -> ! {
+    // SAFETY: the C side never returns.
+    unsafe { tc_guard_finish(status) }
 }

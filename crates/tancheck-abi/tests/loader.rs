@@ -167,12 +167,18 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_deep_recursion",
             "bad_divide_by_zero",
             "bad_exit",
+            "bad_heap_corruption",
+            "bad_helper_thread",
             "bad_hidden_state",
             "bad_infinite_loop",
+            "bad_late_exit",
             "bad_null_deref",
+            "bad_printf",
             "bad_props_overread",
+            "bad_sleep",
             "bad_state_overrun",
             "bad_tangent_hole",
+            "bad_thread_exit",
             "bad_writes_strain",
         ]
     );

@@ -198,7 +198,14 @@ pub fn run_isolated(
         std::fs::read(&report_json).ok().and_then(|b| serde_json::from_slice(&b).ok());
     let complete = worker_report.as_ref().is_some_and(|v| v["verdict"] != "incomplete");
     let last_words = worker_report.as_ref().filter(|v| v["last_words"] == true);
-    let finished = killed.is_none() && matches!(code, Some(0..=3)) && (code == Some(2) || complete);
+    // Last words end the worker with 3 or 70; with any other status they still mean a fault.
+    let finished = killed.is_none()
+        && match code {
+            Some(2) => true,
+            Some(3) => complete,
+            Some(0 | 1) => complete && last_words.is_none(),
+            _ => false,
+        };
     let json_to_stdout = json.is_some_and(|j| j.as_os_str() == "-");
     let result = if finished {
         if json_to_stdout {

@@ -42,9 +42,13 @@ pub fn init() {
     TOOL_STDOUT.get_or_init(watch::protect_stdout);
 }
 
-/// Disarm before the program exits by itself with `code`.
-pub fn finish() {
-    watch::set_phase(Phase::Off);
+/// End the program with `code`: its own exit, which a routine's thread calling `exit` at the
+/// same moment cannot turn into another status.
+pub fn finish(code: i32) -> ! {
+    if ARMED.load(Ordering::SeqCst) {
+        watch::finish(code);
+    }
+    std::process::exit(code)
 }
 
 /// tancheck's own standard output (the real one, whatever descriptor 1 is now).

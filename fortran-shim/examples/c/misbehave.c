@@ -308,19 +308,14 @@ TC_ROUTINE(bad_heap_corruption)
     free((void *)block);
 }
 
-/* Only the real build defines the thread bodies; the twin uses the same ones. */
-#ifndef TC_COMPLEX
-void *misbehave_exit_now(void *arg);
-void *misbehave_exit_soon(void *arg);
-void *misbehave_keep_busy(void *arg);
-
-void *misbehave_exit_now(void *arg)
+/* Thread bodies (static: each build, real and twin, has its own copy). */
+static void *misbehave_exit_now(void *arg)
 {
     (void)arg;
     exit(0);
 }
 
-void *misbehave_exit_soon(void *arg)
+static void *misbehave_exit_soon(void *arg)
 {
     (void)arg;
     struct timespec moment = {0, 1000 * 1000};
@@ -331,7 +326,7 @@ void *misbehave_exit_soon(void *arg)
 /* Runs the library's code for ever: if the library were unloaded, this thread would crash. */
 static volatile unsigned long misbehave_busy_count;
 
-void *misbehave_keep_busy(void *arg)
+static void *misbehave_keep_busy(void *arg)
 {
     (void)arg;
     for (;;) {
@@ -341,34 +336,27 @@ void *misbehave_keep_busy(void *arg)
     }
     return NULL;
 }
-#else
-void *misbehave_keep_busy(void *arg);
-#endif
 
 TC_ROUTINE(bad_thread_exit)
 {
     MISBEHAVE_UNUSED;
     MISBEHAVE_FROM_INCREMENT_2;
-#ifndef TC_COMPLEX
     pthread_t t;
     if (pthread_create(&t, NULL, misbehave_exit_now, NULL) == 0) {
         pthread_join(t, NULL); /* never returns: the thread ends the process */
     }
-#endif
 }
 
 TC_ROUTINE(bad_late_exit)
 {
     MISBEHAVE_UNUSED;
     MISBEHAVE_FROM_INCREMENT_2;
-#ifndef TC_COMPLEX
     static int started = 0;
     pthread_t t;
     if (!started && pthread_create(&t, NULL, misbehave_exit_soon, NULL) == 0) {
         started = 1;
         pthread_detach(t);
     }
-#endif
 }
 
 TC_ROUTINE(bad_helper_thread)
