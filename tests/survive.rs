@@ -209,6 +209,41 @@ fn exit_in_a_library_constructor_is_a_fault_during_the_load() {
 }
 
 #[test]
+fn a_library_constructor_that_hangs_is_stopped_by_the_call_time_limit() {
+    let lib = build("ctor-sleep", "fortran-shim/examples/c/misbehave_ctor.c");
+    let d = scratch("ctor-sleep-run");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "ctor_elastic", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    for (flags, words) in [
+        (&[][..], "did not finish loading within 1 s"),
+        (&["--isolate"][..], "did not reach the first routine call"),
+    ] {
+        let json = d.join("r.json");
+        let o = bin()
+            .arg("check")
+            .arg(&m)
+            .args(flags)
+            .args(["--call-timeout", "1", "--json"])
+            .arg(&json)
+            .env("MISBEHAVE_CTOR", "sleep")
+            .output()
+            .unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(3), "{flags:?}: {t}");
+        let v: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+        assert_eq!(v["verdict"], "routine-fault", "{v}");
+        assert!(v["fault"]["message"].as_str().unwrap().contains(words), "{flags:?}: {v}");
+    }
+}
+
+#[test]
 fn exit_during_a_call_writes_the_report_with_the_increment_and_its_inputs() {
     let r = check(misbehave(), "bad_exit", 3, &[]);
     assert_fault(&r, "in-process", 70, "exit()");

@@ -795,11 +795,13 @@ int32_t tc_guard_follow_parent(int32_t parent) {
 #endif
 }
 
-/* The watch for a watchdog thread: calls begun, calls ended, increment of the last call. */
-void tc_guard_watch(uint64_t out[3]) {
+/* The watch for a watchdog thread: calls begun, calls ended, increment of the last call, and
+ * the phase (TC_PHASE_*). */
+void tc_guard_watch(uint64_t out[4]) {
     out[0] = __atomic_load_n(&calls_begun, __ATOMIC_ACQUIRE);
     out[1] = __atomic_load_n(&calls_ended, __ATOMIC_ACQUIRE);
     out[2] = (uint64_t)(int64_t)__atomic_load_n(&current_increment, __ATOMIC_RELAXED);
+    out[3] = (uint64_t)__atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
 }
 
 /* Last words for a fault the program found (a call that does not return), then exit. */

@@ -141,6 +141,8 @@ pub struct Watch {
     pub calls_ended: u64,
     /// The increment of the last call begun (-1 before any).
     pub increment: i64,
+    /// Whether a library is being loaded (its constructors run).
+    pub loading: bool,
 }
 
 impl Watch {
@@ -152,10 +154,15 @@ impl Watch {
 
 /// Read the call counters.
 pub fn watch() -> Watch {
-    let mut out = [0u64; 3];
-    // SAFETY: a valid out-array of 3.
+    let mut out = [0u64; 4];
+    // SAFETY: a valid out-array of 4.
     unsafe { tc_guard_watch(out.as_mut_ptr()) };
-    Watch { calls_begun: out[0], calls_ended: out[1], increment: out[2] as i64 }
+    Watch {
+        calls_begun: out[0],
+        calls_ended: out[1],
+        increment: out[2] as i64,
+        loading: out[3] == Phase::Loading as u64,
+    }
 }
 
 /// Last words for a fault the program found (`what`, e.g. a call that never returns), with

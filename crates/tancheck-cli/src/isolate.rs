@@ -179,7 +179,12 @@ pub fn run_isolated(
             last_len = len;
             last_beat = Instant::now();
         }
-        if last_len > 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
+        if last_len == 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
+            killed = Some(format!(
+                "the worker did not reach the first routine call within {call_timeout} s (a library \
+                 constructor that hangs while it is being loaded?)"
+            ));
+        } else if last_len > 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
             killed = Some(format!("the routine did not return within {call_timeout} s (an infinite loop?)"));
         } else if started.elapsed() > Duration::from_secs_f64(suite_timeout) {
             killed = Some(format!("the check did not finish within {suite_timeout} s"));

@@ -185,14 +185,30 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
     let mut next_progress = started + every;
     // The call seen running, and since when.
     let mut seen: Option<(u64, Instant)> = None;
+    // Since when a library has been loading.
+    let mut loading: Option<Instant> = None;
     loop {
         std::thread::sleep(Duration::from_millis(50));
+        let w = watch::watch();
+        let now = Instant::now();
+        if w.loading {
+            let since = *loading.get_or_insert(now);
+            if now.duration_since(since).as_secs_f64() > call_timeout {
+                watch::die(
+                    crate::exit::ROUTINE_FAULT,
+                    &format!(
+                        "the library did not finish loading within {call_timeout} s (a constructor that \
+                         hangs?; --call-timeout sets the limit)"
+                    ),
+                );
+            }
+        } else {
+            loading = None;
+        }
         if !CHECKING.load(Ordering::SeqCst) {
             seen = None;
             continue;
         }
-        let w = watch::watch();
-        let now = Instant::now();
         if w.in_call() {
             match seen {
                 Some((begun, since)) if begun == w.calls_begun => {
