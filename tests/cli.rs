@@ -225,23 +225,114 @@ fn killing_tancheck_never_leaves_a_partial_report() {
     assert!(run().wait().unwrap().code().is_some());
     let full = t0.elapsed();
     assert!(json.exists());
-    let mut complete = 0;
+    let (mut complete, mut marked) = (0, 0);
     for k in 0..24 {
         let _ = std::fs::remove_file(&json);
         let mut child = run();
+        let pid = child.id();
         std::thread::sleep(full.mul_f64(k as f64 / 20.0));
-        let _ = child.kill();
+        // Odd runs are stopped with SIGTERM (which removes the temporary file), even ones
+        // killed with SIGKILL (which nothing can handle: no partial report all the same).
+        let term = k % 2 == 1;
+        if term {
+            let _ = Command::new("kill").arg("-TERM").arg(pid.to_string()).status();
+        } else {
+            let _ = child.kill();
+        }
         let _ = child.wait();
         if let Ok(bytes) = std::fs::read(&json) {
             let v: serde_json::Value = serde_json::from_slice(&bytes)
                 .unwrap_or_else(|e| panic!("kill {k}: a partial report was left: {e}"));
-            assert!(v["verdict"].is_string());
-            complete += 1;
+            // Either the finished report, or the marker that the run did not finish.
+            if v["verdict"] == "incomplete" {
+                marked += 1;
+            } else {
+                assert!(v["verdict"].is_string());
+                complete += 1;
+            }
         }
+        // After SIGTERM no temporary file of that run is left beside the report.
+        let tmp = d.join(format!(".report.json.tmp-{pid}"));
+        assert!(!term || !tmp.exists(), "kill {k}: {} is left", tmp.display());
     }
-    // The early kills came before any report was written (so the check above saw both cases
-    // whenever a later run got as far as its report; under load it may not).
-    assert!(complete < 24, "{complete} of 24 runs left a report");
+    // The early kills left the marker (or nothing, when they came before it).
+    assert!(complete < 24 && marked > 0, "{complete} complete, {marked} marked of 24 runs");
+}
+
+#[test]
+fn a_run_replaces_an_earlier_report_at_once() {
+    let d = scratch("stale");
+    let json = d.join("report.json");
+    std::fs::write(&json, r#"{ "verdict": "pass", "from": "yesterday" }"#).unwrap();
+    // A run that fails on bad input leaves the marker, never yesterday's verdict.
+    let m =
+        manifest(&d, "m.json", r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [1] } }"#);
+    let o = bin().arg("check").arg(&m).arg("--json").arg(&json).output().unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let v: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    assert_eq!(v["verdict"], "incomplete", "{v}");
+}
+
+#[test]
+fn time_limits_and_numbers_out_of_range_are_bad_input() {
+    let d = scratch("bounds");
+    let ok = manifest(
+        &d,
+        "ok.json",
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    );
+    for (flag, value) in [
+        ("--call-timeout", "1e30"),
+        ("--call-timeout", "0"),
+        ("--call-timeout", "-1"),
+        ("--call-timeout", "inf"),
+        ("--suite-timeout", "NaN"),
+        ("--suite-timeout", "-1"),
+        ("--suite-timeout", "86401"),
+    ] {
+        let o = bin().arg("check").arg(&ok).arg(format!("{flag}={value}")).output().unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{flag} {value}: {t}");
+        assert!(t.contains(flag) && t.contains("at most 86400"), "{flag} {value}: {t}");
+    }
+    // Numbers in a manifest: exit 2 with the file and the field.
+    for (body, field) in [
+        (
+            r#"{ "routine": { "library": "x.so", "symbol": "x", "kind": "solid-3d", "states": 2000000000, "properties": [1] } }"#,
+            "routine.states",
+        ),
+        (
+            r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] }, "path": { "increments": [ { "dstrain": [1e308, 0, 0, 0, 0, 0] } ] } }"#,
+            "path.increments",
+        ),
+        (
+            r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] }, "path": { "shape": "shear-12", "peak": 1e308, "steps": 2 } }"#,
+            "path.peak",
+        ),
+        (r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [1, 2] } }"#, "properties"),
+    ] {
+        let m = manifest(&d, "m.json", body);
+        let o = bin().arg("check").arg(&m).output().unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{field}: {t}");
+        assert!(t.contains("m.json") && t.contains(field), "{field}: {t}");
+    }
+    // A suite with 2e9 subdivisions is refused at once (it used to run for minutes).
+    let s = manifest(
+        &d,
+        "s.json",
+        r#"{ "suite": "s", "path": {"shape": "tension-shear", "peak": 0.004, "steps": 4},
+  "probes": [ {"probe": "refinement", "subdivisions": 2000000000} ] }"#,
+    );
+    let o = bin().arg("probe").arg(&ok).arg("--suite").arg(&s).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("s.json:2:") && t.contains("subdivisions"), "{t}");
+    // A --cases folder that does not exist is an error, not a warning.
+    let o = bin().arg("check").arg(&ok).arg("--cases").arg(d.join("no-such-folder")).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("no-such-folder"), "{t}");
 }
 
 #[test]

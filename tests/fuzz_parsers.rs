@@ -163,3 +163,63 @@ fn fuzz_parsers_for_a_while() {
     }
     let _ = std::panic::take_hook();
 }
+
+/// The exit code of the `tancheck` binary, or a panic naming the signal that killed it.
+fn cli_code(args: &[&std::ffi::OsStr], what: &Path) -> i32 {
+    let o = std::process::Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .args(args)
+        .stdin(std::process::Stdio::null())
+        .output()
+        .unwrap();
+    let text = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    let Some(code) = o.status.code() else {
+        use std::os::unix::process::ExitStatusExt;
+        panic!("{}: tancheck died of signal {:?}\n{text}", what.display(), o.status.signal());
+    };
+    assert_ne!(code, 101, "{}: tancheck panicked\n{text}", what.display());
+    assert!([0, 1, 2, 3].contains(&code), "{}: exit {code}\n{text}", what.display());
+    if code == 2 {
+        // Bad input: the message names the file.
+        let name = what.file_name().unwrap().to_string_lossy();
+        assert!(text.contains(name.as_ref()), "{}: the error does not name the file\n{text}", what.display());
+    }
+    code
+}
+
+/// Every input of the corpus, malformed ones included, through the command line: no panic
+/// (exit 101), no death by a signal, and every rejection names the file.
+#[test]
+fn the_command_line_survives_every_corpus_input() {
+    use std::ffi::OsStr;
+    let os = |s: &'static str| OsStr::new(s);
+    let mut rejected = 0;
+    for (p, _) in corpus("manifest") {
+        let args = [
+            os("check"),
+            p.as_os_str(),
+            os("-q"),
+            os("--call-timeout"),
+            os("20"),
+            os("--suite-timeout"),
+            os("300"),
+        ];
+        rejected += usize::from(cli_code(&args, &p) == 2);
+    }
+    let model = std::env::temp_dir().join(format!("tancheck-fuzz-cli-{}.json", std::process::id()));
+    std::fs::write(
+        &model,
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    for (p, _) in corpus("suite") {
+        let args = [os("probe"), model.as_os_str(), os("--suite"), p.as_os_str()];
+        rejected += usize::from(cli_code(&args, &p) == 2);
+    }
+    for (p, _) in corpus("case") {
+        let args = [os("replay"), p.as_os_str()];
+        rejected += usize::from(cli_code(&args, &p) == 2);
+    }
+    let _ = std::fs::remove_file(&model);
+    // The malformed files are there and were rejected.
+    assert!(rejected >= 30, "only {rejected} corpus inputs were rejected");
+}

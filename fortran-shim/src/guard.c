@@ -24,11 +24,22 @@
  * is going away. The guard then writes a message naming the routine to stderr and ends the
  * process with TC_GUARD_EXIT_STATUS, so that a STOP can never look like a successful check.
  *
+ * Armed by the tancheck program (tc_guard_arm), the guard also watches the whole process:
+ * an exit() from any thread, or from a library's constructor while it loads, a SIGABRT
+ * (heap corruption found by the C library, abort) inside a call, and a fatal signal outside
+ * a call all end the process with "last words": the fault line with the increment and the
+ * inputs of the call that was running, and a JSON report naming the fault, written from
+ * static buffers with plain write(2). A process-wide pair of call counters and the pointer
+ * to the current call's arguments let a watchdog thread see a call that never returns.
+ *
  * The hot path allocates nothing and makes no system call: sigsetjmp saves no signal mask,
- * handlers are installed once per process and the alternate stack once per thread.
+ * handlers are installed once per process and the alternate stack once per thread; the
+ * watch costs two relaxed atomic increments and two stores per call.
  */
 #define _GNU_SOURCE
 #include <errno.h>
+#include <fcntl.h>
+#include <stdio.h>
 #include <fenv.h>
 #include <pthread.h>
 #include <setjmp.h>
@@ -40,6 +51,7 @@
 #include <sys/mman.h>
 #if defined(__linux__)
 #include <ucontext.h>
+#include <sys/prctl.h>
 #endif
 #include <unistd.h>
 
@@ -162,6 +174,313 @@ static void write_stderr(const char *s) {
     }
 }
 
+/* ---- the watch: call counters, the current call, last words ------------------------ */
+
+/* What tancheck is doing, set by the program (tc_guard_set_phase); 0: not armed. */
+#define TC_PHASE_OFF 0
+#define TC_PHASE_STARTING 1
+#define TC_PHASE_LOADING 2
+#define TC_PHASE_CHECKING 3
+#define TC_PHASE_REPORTING 4
+
+#define LW_PATH 4352
+static int watch_phase;                        /* TC_PHASE_*, atomic */
+static uint64_t calls_begun, calls_ended;      /* atomic; a call runs while they differ */
+static const tc_guard_args *current_args;      /* the running call's arguments, atomic */
+static int current_complex;                    /* the running call is the complex twin */
+static int current_increment = -1;             /* increment of the last call begun */
+static int tool_stdout = -1;                   /* tancheck's own standard output */
+static char lw_label[512];                     /* routine name for messages outside calls */
+static char lw_head[16384];                    /* the JSON report's opening, from the program */
+static char lw_report[LW_PATH];                /* where the JSON report goes, "" for nowhere */
+static char lw_tmp[LW_PATH];                   /* its temporary name while it is written */
+static int lw_json_stdout;                     /* the JSON report goes to standard output */
+static char lw_remove[8][LW_PATH];             /* removed on SIGINT/SIGTERM (files, then folders) */
+static int lw_nremove;
+static volatile sig_atomic_t stop_signal;      /* a stop signal that arrived while deferred */
+static volatile sig_atomic_t defer_stop;       /* record stop signals instead of acting on them */
+static int dying;                              /* atomic: last words are being written */
+static char lw_buf[96 * 1024];                 /* the text, then the JSON of the last words */
+static size_t lw_len;
+
+static int tc_armed(void) { return __atomic_load_n(&watch_phase, __ATOMIC_RELAXED) != TC_PHASE_OFF; }
+
+static inline void watch_enter(const tc_guard_args *a, int complex_call) {
+    __atomic_store_n(&current_args, a, __ATOMIC_RELAXED);
+    __atomic_store_n(&current_complex, complex_call, __ATOMIC_RELAXED);
+    __atomic_store_n(&current_increment, a->call != NULL ? a->call->increment : -1, __ATOMIC_RELAXED);
+    __atomic_fetch_add(&calls_begun, 1, __ATOMIC_RELEASE);
+}
+
+static inline void watch_leave(void) { __atomic_fetch_add(&calls_ended, 1, __ATOMIC_RELEASE); }
+
+static void copy_string(char *dst, size_t cap, const char *src) {
+    size_t i = 0;
+    if (src != NULL)
+        for (; src[i] != '\0' && i + 1 < cap; i++) dst[i] = src[i];
+    dst[i] = '\0';
+}
+
+static void put(const char *s) {
+    while (s != NULL && *s != '\0' && lw_len + 1 < sizeof lw_buf) lw_buf[lw_len++] = *s++;
+    lw_buf[lw_len] = '\0';
+}
+
+/* A string inside JSON quotes. */
+static void put_escaped(const char *s) {
+    char one[8];
+    for (; s != NULL && *s != '\0'; s++) {
+        unsigned char c = (unsigned char)*s;
+        if (c == '"' || c == '\\') {
+            one[0] = '\\';
+            one[1] = (char)c;
+            one[2] = '\0';
+        } else if (c < 0x20) {
+            static const char hex[] = "0123456789abcdef";
+            one[0] = '\\';
+            one[1] = 'u';
+            one[2] = '0';
+            one[3] = '0';
+            one[4] = hex[c >> 4];
+            one[5] = hex[c & 15];
+            one[6] = '\0';
+        } else {
+            one[0] = (char)c;
+            one[1] = '\0';
+        }
+        put(one);
+    }
+}
+
+static void put_int(long long v) {
+    char d[24];
+    int n = 0;
+    unsigned long long u = v < 0 ? 0ull - (unsigned long long)v : (unsigned long long)v;
+    do {
+        d[n++] = (char)('0' + u % 10);
+        u /= 10;
+    } while (u > 0 && n < 22);
+    if (v < 0) put("-");
+    char out[24];
+    for (int i = 0; i < n; i++) out[i] = d[n - 1 - i];
+    out[n] = '\0';
+    put(out);
+}
+
+/* A number (JSON null when not finite). snprintf on a stack buffer: no allocation for %g. */
+static void put_real(double x) {
+    char b[40];
+    if (x != x || x - x != 0.0) {
+        put("null");
+        return;
+    }
+    snprintf(b, sizeof b, "%.17g", x);
+    put(b);
+}
+
+/* `n` values of a call's array: real, or the real parts of a complex one. */
+static void put_array(const void *p, long n, int complex_call) {
+    put("[");
+    for (long i = 0; p != NULL && i < n && i < 4096; i++) {
+        if (i > 0) put(", ");
+        put_real(complex_call ? ((const double *)p)[2 * i] : ((const double *)p)[i]);
+    }
+    put("]");
+}
+
+static void write_fd(int fd, const char *s, size_t n) {
+    while (n > 0) {
+        ssize_t w = write(fd, s, n);
+        if (w <= 0) {
+            if (w < 0 && errno == EINTR) continue;
+            return;
+        }
+        s += w;
+        n -= (size_t)w;
+    }
+}
+
+static const char *signal_name(int sig) {
+    switch (sig) {
+    case SIGSEGV: return "SIGSEGV";
+    case SIGBUS: return "SIGBUS";
+    case SIGFPE: return "SIGFPE";
+    case SIGILL: return "SIGILL";
+    case SIGABRT: return "SIGABRT";
+    default: return "a signal";
+    }
+}
+
+/* Last words: the fault line with when it happened and the inputs of the running call, and
+ * the JSON report naming the fault; then the process ends with `status`. `in_call` is 1 when
+ * the dying thread is inside a guarded call, 0 when not, -1 when unknown (another thread). */
+static void last_words(int status, int sig, int in_call, const char *what) __attribute__((noreturn));
+static void last_words(int status, int sig, int in_call, const char *what) {
+    if (__atomic_exchange_n(&dying, 1, __ATOMIC_ACQ_REL)) {
+        /* Another thread is saying them already; a second fault in the same thread ends. */
+        if (tc_thread.prepared == 2) _exit(status);
+        for (;;) pause();
+    }
+    tc_thread.prepared = 2;
+    const uint64_t begun = __atomic_load_n(&calls_begun, __ATOMIC_ACQUIRE);
+    const uint64_t ended = __atomic_load_n(&calls_ended, __ATOMIC_ACQUIRE);
+    const int running = in_call == 1 || begun != ended;
+    const int phase = __atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
+    const int increment = __atomic_load_n(&current_increment, __ATOMIC_RELAXED);
+    const tc_guard_args *a = running ? __atomic_load_n(&current_args, __ATOMIC_RELAXED) : NULL;
+    const int cx = __atomic_load_n(&current_complex, __ATOMIC_RELAXED);
+    const tc_call *c = a != NULL ? a->call : NULL;
+    const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label : lw_label;
+
+    /* When, in words (kept in its own buffer: it goes into the text and the JSON). */
+    char when[256];
+    lw_len = 0;
+    if (phase == TC_PHASE_LOADING) {
+        put("while the library was being loaded (in a constructor or initialiser)");
+    } else if (running && c != NULL) {
+        put("during a call of increment ");
+        put_int(c->increment);
+        if (cx) put(" (the complex-step twin)");
+        if (in_call == 0) put(", from another thread of the routine");
+    } else if (phase == TC_PHASE_REPORTING) {
+        put("after the check, while tancheck wrote the report (from a thread the routine left running?)");
+    } else if (phase == TC_PHASE_STARTING) {
+        put("before the routine's library was loaded");
+    } else {
+        put("between two calls, after ");
+        put_int((long long)ended);
+        put(" calls (the last in increment ");
+        put_int(increment);
+        put("): from a thread the routine left running?");
+    }
+    copy_string(when, sizeof when, lw_buf);
+
+    /* The text. */
+    lw_len = 0;
+    put("tancheck: FAULT: ");
+    put(what);
+    put(", ");
+    put(when);
+    put(".\n");
+    if (label[0] != '\0') {
+        put("   routine: ");
+        put(label);
+        put("\n");
+    }
+    if (c != NULL) {
+        put("   the inputs of that call (increment ");
+        put_int(c->increment);
+        put(cx ? ", real parts" : "");
+        put("):\n     strain   ");
+        put_array(a->strain, c->ncomp, cx);
+        put("\n     dstrain  ");
+        put_array(a->dstrain, c->ncomp, cx);
+        put("\n     stress0  ");
+        put_array(a->stress0, c->ncomp, cx);
+        put("\n     state0   ");
+        put_array(a->state0, c->nstate, cx);
+        put("\n     props    ");
+        put_array(a->props, c->nprop, cx);
+        put("\n     temp, dtemp ");
+        put_array(a->temp, 2, cx);
+        put("\n");
+    }
+    put("   verdict: FAULT (exit ");
+    put_int(status);
+    put(")");
+    if (lw_report[0] != '\0' || lw_json_stdout) put("; the JSON report names the fault");
+    put("\n");
+    int text_fd = (!lw_json_stdout && tool_stdout >= 0) ? tool_stdout : 2;
+    write_fd(text_fd, lw_buf, lw_len);
+
+    /* The JSON report. */
+    if (lw_head[0] != '\0' && (lw_report[0] != '\0' || lw_json_stdout)) {
+        lw_len = 0;
+        put(lw_head);
+        put(", \"verdict\": \"routine-fault\", \"last_words\": true, \"fault\": {\"message\": \"");
+        put_escaped(what);
+        put("\", \"when\": \"");
+        put_escaped(when);
+        put("\", \"exit_status\": ");
+        put_int(status);
+        put(", \"signal\": ");
+        if (sig > 0) put_int(sig); else put("null");
+        put(", \"increment\": ");
+        if (c != NULL) put_int(c->increment); else if (increment >= 0) put_int(increment); else put("null");
+        put(", \"calls\": ");
+        put_int((long long)begun);
+        put(", \"call\": ");
+        if (c != NULL) {
+            put("{\"increment\": ");
+            put_int(c->increment);
+            put(cx ? ", \"perturbation\": \"complex-step twin (real parts)\"" : ", \"perturbation\": null");
+            put(", \"props\": ");
+            put_array(a->props, c->nprop, cx);
+            put(", \"strain\": ");
+            put_array(a->strain, c->ncomp, cx);
+            put(", \"dstrain\": ");
+            put_array(a->dstrain, c->ncomp, cx);
+            const double *temp = (const double *)a->temp;
+            put(", \"temp\": ");
+            put_real(temp != NULL ? temp[0] : 0.0);
+            put(", \"dtemp\": ");
+            put_real(temp != NULL ? temp[cx ? 2 : 1] : 0.0);
+            put(", \"stress0\": ");
+            put_array(a->stress0, c->ncomp, cx);
+            put(", \"state0\": ");
+            put_array(a->state0, c->nstate, cx);
+            put(", \"time\": ");
+            put_real(c->time);
+            put(", \"dtime\": ");
+            put_real(c->dtime);
+            put("}");
+        } else {
+            put("null");
+        }
+        put("}}\n");
+        if (lw_json_stdout) {
+            write_fd(tool_stdout >= 0 ? tool_stdout : 1, lw_buf, lw_len);
+        } else {
+            int fd = open(lw_tmp, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
+            if (fd >= 0) {
+                write_fd(fd, lw_buf, lw_len);
+                close(fd);
+                if (rename(lw_tmp, lw_report) != 0) unlink(lw_tmp);
+            }
+        }
+    }
+    _exit(status);
+}
+
+static void last_words_signal(int sig, int in_call) {
+    if (in_call && sig == SIGABRT)
+        last_words(3, sig, 1,
+                   "the routine aborted (SIGABRT: the C library found the heap corrupted, or "
+                   "the routine called abort()); with the heap in doubt tancheck stops here");
+    lw_len = 0;
+    char what[256];
+    put("a fatal signal ");
+    put(signal_name(sig));
+    put(" arrived outside any routine call (a thread the routine left running, memory it "
+        "corrupted, or a fault in tancheck itself)");
+    copy_string(what, sizeof what, lw_buf);
+    last_words(3, sig, in_call, what);
+}
+
+/* SIGINT, SIGTERM, SIGHUP while armed: remove the temporary files, then die of the signal
+ * as usual; or, deferred, only record it for the program's own loop (the --isolate parent). */
+static void stop_handler(int sig) {
+    if (defer_stop) {
+        stop_signal = sig;
+        return;
+    }
+    if (lw_tmp[0] != '\0') unlink(lw_tmp);
+    for (int i = 0; i < lw_nremove; i++) unlink(lw_remove[i]);
+    for (int i = lw_nremove - 1; i >= 0; i--) rmdir(lw_remove[i]);
+    signal(sig, SIG_DFL);
+    raise(sig);
+}
+
 /* Hand a signal that is not ours to whoever had it before, or apply the default action. */
 static void chain(int sig, siginfo_t *info, void *context) {
     int slot = slot_of(sig);
@@ -241,8 +560,15 @@ static void *context_pc(void *context) {
 #endif
 }
 
+static void last_words_signal(int sig, int in_call);
+
 static void guard_handler(int sig, siginfo_t *info, void *context) {
     guard_thread *t = &tc_thread;
+    if (t->inside && t->jump != NULL && sig == SIGABRT && tc_armed()) {
+        /* abort() inside a call: most often the C library found the heap corrupted. The
+         * heap (and the allocator's locks) cannot be trusted any more: last words. */
+        last_words_signal(sig, 1);
+    }
     if (t->inside && t->jump != NULL) {
         /* Ours only when raised by this call: a CPU fault, or a signal this process sent
          * to itself (abort, raise). A signal sent from elsewhere keeps its meaning. */
@@ -261,27 +587,39 @@ static void guard_handler(int sig, siginfo_t *info, void *context) {
             siglongjmp(*t->jump, 1);
         }
     }
+    if (tc_armed() && (info == NULL || info->si_code > 0 || sig == SIGABRT)) {
+        /* A fault outside any call while tancheck runs: a thread the routine left running,
+         * memory it corrupted, or (rarely) tancheck itself. Say so before dying. */
+        last_words_signal(sig, 0);
+    }
     chain(sig, info, context);
 }
 
-/* exit() during a guarded call: the routine ended the process. Say so, and make sure the
- * exit status cannot be mistaken for a successful check. */
+/* exit() while tancheck runs (armed), from any thread, or during a guarded call: the
+ * routine or its library ended the process. Say so, and make sure the exit status cannot be
+ * mistaken for a successful check. */
 static void guard_at_exit(void) {
     guard_thread *t = &tc_thread;
-    if (!t->inside) return;
-    write_stderr("tancheck: the material routine ");
-    if (t->label != NULL) {
-        write_stderr("`");
-        write_stderr(t->label);
-        write_stderr("` ");
+    if (!t->inside && !tc_armed()) return;
+    if (!tc_armed()) {
+        /* Not armed (the C API): the short message of a guarded call. */
+        write_stderr("tancheck: the material routine ");
+        if (t->label != NULL) {
+            write_stderr("`");
+            write_stderr(t->label);
+            write_stderr("` ");
+        }
+        write_stderr("ended the process by calling exit() during a call (a Fortran STOP or "
+                     "ERROR STOP, or a failed run-time check such as an array bound, does this). "
+                     "A routine must report failure through report->status instead. See the "
+                     "routine's own message above.\n");
+        _exit(TC_GUARD_EXIT_STATUS);
     }
-    write_stderr("ended the process by calling exit() during a call (a Fortran STOP or "
-                 "ERROR STOP, or a failed run-time check such as an array bound, does this). "
-                 "A routine must report failure through report->status instead. See the "
-                 "routine's own message above.\n");
-    _exit(TC_GUARD_EXIT_STATUS);
+    last_words(TC_GUARD_EXIT_STATUS, 0, t->inside ? 1 : 0,
+               "the routine ended the process by calling exit() (a Fortran STOP or ERROR STOP, "
+               "or a failed run-time check such as an array bound, does this; a routine must "
+               "report failure through report->status instead)");
 }
-
 
 /* ---- installation ------------------------------------------------------------------ */
 
@@ -326,7 +664,11 @@ static void install(void) {
             previous[i].sa_handler = SIG_DFL;
         }
     }
-    if (atexit(guard_at_exit) != 0 && install_error == 0) install_error = ENOMEM;
+    /* Many copies: glibc hands each exiting thread the next handler of one shared list, so a
+     * second thread calling exit() at the same moment (two OpenMP threads meeting a STOP)
+     * must find a copy too, and wait there while the first says the last words. */
+    for (int i = 0; i < 64; i++)
+        if (atexit(guard_at_exit) != 0 && install_error == 0) install_error = ENOMEM;
 }
 
 /* Once per thread: an alternate signal stack when the thread has none, and the stack's
@@ -369,6 +711,123 @@ int32_t tc_guard_prepare(void) {
     if (!t->prepared) prepare_thread(t);
     return install_error;
 }
+
+/* ---- the program's side of the watch ----------------------------------------------- */
+
+/* Arm the watch (the tancheck program, not the C API): install the handlers, register the
+ * exit hook, catch SIGINT, SIGTERM and SIGHUP (unless ignored) to remove temporary files.
+ * From now on any exit() before tc_guard_set_phase(0) is a fault. */
+int32_t tc_guard_arm(void) {
+    tc_guard_prepare();
+    static const int stops[] = {SIGINT, SIGTERM, SIGHUP};
+    for (int i = 0; i < 3; i++) {
+        struct sigaction old;
+        if (sigaction(stops[i], NULL, &old) == 0 && old.sa_handler == SIG_DFL &&
+            !(old.sa_flags & SA_SIGINFO)) {
+            struct sigaction sa;
+            memset(&sa, 0, sizeof sa);
+            sa.sa_handler = stop_handler;
+            sigemptyset(&sa.sa_mask);
+            sigaction(stops[i], &sa, NULL);
+        }
+    }
+    __atomic_store_n(&watch_phase, TC_PHASE_STARTING, __ATOMIC_SEQ_CST);
+    return install_error;
+}
+
+/* TC_PHASE_*: 0 disarms (the program is about to exit by itself). */
+void tc_guard_set_phase(int32_t phase) { __atomic_store_n(&watch_phase, phase, __ATOMIC_SEQ_CST); }
+
+/* Around loading a library: while armed, the phase is TC_PHASE_LOADING (on != 0), then
+ * what it was before (on == 0). Unarmed (the C API), nothing. */
+void tc_guard_loading(int32_t on) {
+    static int before = TC_PHASE_STARTING;
+    if (!tc_armed()) return;
+    if (on) {
+        before = __atomic_exchange_n(&watch_phase, TC_PHASE_LOADING, __ATOMIC_SEQ_CST);
+    } else {
+        __atomic_store_n(&watch_phase, before, __ATOMIC_SEQ_CST);
+    }
+}
+
+/* The routine's name, for last words outside a call. */
+void tc_guard_set_label(const char *label) { copy_string(lw_label, sizeof lw_label, label); }
+
+/* Where the last words' JSON goes: `head` opens the report object (`{"tool": ...` without the
+ * closing brace), `report` is the file ("" for none), `tmp` its temporary name; to_stdout
+ * sends it to tancheck's standard output instead. Returns 0, or 1 when a string is too long. */
+int32_t tc_guard_set_report(const char *head, const char *report, const char *tmp, int32_t to_stdout) {
+    if (strlen(head) + 1 > sizeof lw_head || strlen(report) + 1 > LW_PATH || strlen(tmp) + 1 > LW_PATH)
+        return 1;
+    copy_string(lw_head, sizeof lw_head, head);
+    copy_string(lw_report, sizeof lw_report, report);
+    copy_string(lw_tmp, sizeof lw_tmp, tmp);
+    lw_json_stdout = to_stdout != 0;
+    return 0;
+}
+
+/* A file or folder to remove when a stop signal ends the process (files before folders:
+ * give a folder before the files in it). Returns 0, or 1 when full or too long. */
+int32_t tc_guard_remove_on_stop(const char *path) {
+    if (lw_nremove >= 8 || strlen(path) + 1 > LW_PATH) return 1;
+    copy_string(lw_remove[lw_nremove], LW_PATH, path);
+    lw_nremove++;
+    return 0;
+}
+
+/* Record stop signals instead of acting on them (on != 0); tc_guard_stop_signal says which. */
+void tc_guard_defer_stop(int32_t on) { defer_stop = on != 0; }
+int32_t tc_guard_stop_signal(void) { return stop_signal; }
+
+/* Keep the routine off tancheck's standard output: fd 1 becomes a copy of fd 2, and
+ * tancheck's own output goes to the returned descriptor (close-on-exec). Once per process;
+ * -1 when it could not be done. */
+int32_t tc_guard_protect_stdout(void) {
+    if (tool_stdout >= 0) return tool_stdout;
+    fflush(stdout);
+    int fd = fcntl(1, F_DUPFD_CLOEXEC, 3);
+    if (fd < 0) return -1;
+    if (dup2(2, 1) < 0) {
+        close(fd);
+        return -1;
+    }
+    tool_stdout = fd;
+    return fd;
+}
+
+/* The program's own end with `status`: never racing a routine's thread that exits at the same
+ * moment. If last words are being said, they win (and end the process); otherwise any later
+ * exit() from a thread waits in the exit hook while this one ends the process with _exit. */
+void tc_guard_finish(int32_t status) {
+    if (__atomic_exchange_n(&dying, 1, __ATOMIC_ACQ_REL))
+        for (;;) pause();
+    fflush(NULL);
+    _exit(status);
+}
+
+/* A worker process follows its parent `parent`: when the parent dies, the worker gets
+ * SIGTERM (whose handler removes the registered files). Returns 0, 1 when the parent is
+ * already gone, or -1 when the system cannot do it. */
+int32_t tc_guard_follow_parent(int32_t parent) {
+#ifdef __linux__
+    if (prctl(PR_SET_PDEATHSIG, SIGTERM) != 0) return -1;
+    return getppid() != parent ? 1 : 0; /* the parent died before the call */
+#else
+    return getppid() != parent ? 1 : -1;
+#endif
+}
+
+/* The watch for a watchdog thread: calls begun, calls ended, increment of the last call, and
+ * the phase (TC_PHASE_*). */
+void tc_guard_watch(uint64_t out[4]) {
+    out[0] = __atomic_load_n(&calls_begun, __ATOMIC_ACQUIRE);
+    out[1] = __atomic_load_n(&calls_ended, __ATOMIC_ACQUIRE);
+    out[2] = (uint64_t)(int64_t)__atomic_load_n(&current_increment, __ATOMIC_RELAXED);
+    out[3] = (uint64_t)__atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
+}
+
+/* Last words for a fault the program found (a call that does not return), then exit. */
+void tc_guard_die(int32_t status, const char *what) { last_words(status, 0, -1, what); }
 
 /* Nonzero when this thread has an alternate signal stack (after tc_guard_prepare). */
 int32_t tc_guard_has_altstack(void) {
@@ -464,7 +923,7 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
 
 /* One trampoline per element type. Everything that must survive the jump is either set
  * before sigsetjmp and never changed afterwards, or lives in the thread state. */
-#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T)                                            \
+#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T, IS_COMPLEX)                                          \
     int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                   \
         guard_thread *t = &tc_thread;                                                      \
         if (!t->prepared) prepare_thread(t);                                               \
@@ -473,6 +932,7 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
         const char *const outer_label = t->label;                                          \
         const int traps = a->fp_traps != 0;                                                \
         sigjmp_buf here;                                                                   \
+        watch_enter(a, IS_COMPLEX);                                                        \
         memset(r, 0, sizeof *r);                                                           \
         const guard_fp fp = fp_enter(traps);                                               \
         if (sigsetjmp(here, 0) == 0) {                                                     \
@@ -493,6 +953,7 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
             fill_caught(t, r);                                                             \
         }                                                                                  \
         fp_leave(traps, r->caught, fp);                                                    \
+        watch_leave();                                                                     \
         t->jump = outer_jump;                                                              \
         t->label = outer_label;                                                            \
         GUARD_FENCE();                                                                     \
@@ -500,8 +961,8 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
         return r->caught;                                                                  \
     }
 
-TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double)
-TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double)
+TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, 0)
+TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double, 1)
 
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 

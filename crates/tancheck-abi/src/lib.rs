@@ -17,6 +17,7 @@ pub mod guard;
 pub mod guards;
 pub mod library;
 pub mod locate;
+pub mod watch;
 
 pub use compile::{
     build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,

@@ -59,7 +59,12 @@ impl Library {
 
         // A name without a slash would make the loader search the system paths instead.
         let path = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
-        let lib = open_now(&path).map_err(|e| {
+        // Constructors run now: an exit() in one is reported as happening during the load.
+        guard::prepare().map_err(|source| LoadError::Guard { source })?;
+        crate::watch::loading(true);
+        let opened = open_now(&path);
+        crate::watch::loading(false);
+        let lib = opened.map_err(|e| {
             // The loader's own words are in the source; the top level only says "dlopen failed".
             let reason = match std::error::Error::source(&e) {
                 Some(s) => s.to_string(),
@@ -67,7 +72,12 @@ impl Library {
             };
             open_error(given, &reason)
         })?;
-        Ok(Library { path, inner: Arc::new(lib) })
+        let inner = Arc::new(lib);
+        // Never unloaded while the process lives: a thread the routine started (an OpenMP
+        // pool, a helper) may still run its code after the check, and the report is written
+        // after the routine is dropped. The loader is told so too (RTLD_NODELETE).
+        std::mem::forget(Arc::clone(&inner));
+        Ok(Library { path, inner })
     }
 
     /// The library's path (absolute).
@@ -140,8 +150,15 @@ fn call_sizes(info: &RoutineInfo) -> Result<(i32, i32, i32), LoadError> {
 #[cfg(unix)]
 fn open_now(path: &Path) -> Result<libloading::Library, libloading::Error> {
     use libloading::os::unix::{Library as UnixLibrary, RTLD_LOCAL, RTLD_NOW};
+    // RTLD_NODELETE: the library stays mapped even after its last handle is closed.
+    #[cfg(any(target_os = "linux", target_os = "android"))]
+    const RTLD_NODELETE: i32 = 0x1000;
+    #[cfg(target_vendor = "apple")]
+    const RTLD_NODELETE: i32 = 0x80;
+    #[cfg(not(any(target_os = "linux", target_os = "android", target_vendor = "apple")))]
+    const RTLD_NODELETE: i32 = 0;
     // SAFETY: loading runs the library's initialisers; documented on `Library::open`.
-    unsafe { UnixLibrary::open(Some(path), RTLD_NOW | RTLD_LOCAL) }.map(Into::into)
+    unsafe { UnixLibrary::open(Some(path), RTLD_NOW | RTLD_LOCAL | RTLD_NODELETE) }.map(Into::into)
 }
 
 #[cfg(not(unix))]

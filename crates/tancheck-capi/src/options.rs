@@ -264,6 +264,12 @@ impl Options {
         };
         let nprop = count("nprop", self.nprop, "properties")?;
         let nstate = count("nstate", self.nstate, "state variables")?;
+        const MAX_COUNT: usize = 100_000;
+        for (field, n) in [("nprop", nprop), ("nstate", nstate)] {
+            if n > MAX_COUNT {
+                return Err(Failure::invalid(format!("tck_options.{field} is {n}; at most {MAX_COUNT}")));
+            }
+        }
         // SAFETY: the caller's contract on `props`.
         let props = match unsafe { slice(self.props, nprop) } {
             Some(p) => p.to_vec(),
@@ -291,8 +297,10 @@ impl Options {
                 }
             }
         }
-        if !self.temperature.is_finite() {
-            return Err(Failure::invalid("tck_options.temperature must be a finite number"));
+        if !self.temperature.is_finite() || self.temperature.abs() > 1.0e5 {
+            return Err(Failure::invalid(
+                "tck_options.temperature must be a finite number at most 1e5 in magnitude",
+            ));
         }
 
         // SAFETY: the caller's contract on the increments.
@@ -312,6 +320,20 @@ impl Options {
     /// # Safety
     /// As [`Options::plan`].
     unsafe fn path(&self) -> Result<Path, Failure> {
+        // Every count with its array: a count without one is an error, never the default.
+        if self.increments.is_null() && self.nincrements != 0 {
+            return Err(Failure::invalid(format!(
+                "tck_options.nincrements is {} but increments is NULL; point increments at the \
+                 6 x nincrements strain increments, or set nincrements to 0 for the built-in path",
+                self.nincrements
+            )));
+        }
+        if self.increments.is_null() && (!self.increment_dtemp.is_null() || !self.increment_dtime.is_null()) {
+            return Err(Failure::invalid(
+                "tck_options.increment_dtemp or increment_dtime is given without increments; they \
+                 belong to explicit increments (give increments and nincrements too)",
+            ));
+        }
         if self.increments.is_null() {
             let shape = lookup(&SHAPES, self.shape).ok_or_else(|| {
                 Failure::invalid(format!(
@@ -334,7 +356,9 @@ impl Options {
                     self.peak
                 )));
             }
-            return Ok(Path::ramp(shape, self.peak, self.steps as usize, back));
+            let path = Path::ramp(shape, self.peak, self.steps as usize, back);
+            path.validate().map_err(|e| Failure::invalid(format!("tck_options (steps, back, peak): {e}")))?;
+            return Ok(path);
         }
         let n = count("nincrements", self.nincrements, "increments")?;
         if n == 0 {
@@ -427,7 +451,7 @@ mod tests {
     #[test]
     fn bad_values_name_the_field() {
         type Change = &'static dyn Fn(&mut Options);
-        let cases: [(Change, &str); 7] = [
+        let cases: [(Change, &str); 13] = [
             (&|o| o.kind = 9, "tck_options.kind is 9; use a tck_kind value (1, 2, 3, 4, 5, 6, 7)"),
             (&|o| o.version = 2, "tck_options.version is 2"),
             (&|o| o.nprop = 3, "nprop is 3 but props is NULL"),
@@ -435,6 +459,14 @@ mod tests {
             (&|o| o.schemes = 0, "no derivative scheme selected"),
             (&|o| o.steps = 0, "tck_options.steps is 0"),
             (&|o| o.guard_level = 5, "guard_level is 5"),
+            // Every count with a NULL array is an error, never the default path.
+            (&|o| o.nincrements = 3, "nincrements is 3 but increments is NULL"),
+            (&|o| o.norder = 6, "norder is 6 but order is NULL"),
+            (&|o| o.nincrements = -1, "nincrements is -1 but increments is NULL"),
+            // Numbers out of range.
+            (&|o| o.peak = 1e308, "out of range"),
+            (&|o| o.nstate = 2_000_000_000, "nstate is 2000000000; at most"),
+            (&|o| o.temperature = f64::INFINITY, "temperature must be a finite number"),
         ];
         for (change, want) in cases {
             let mut o = Options::default();
@@ -476,5 +508,17 @@ mod tests {
         // SAFETY: as above (4 of the 6).
         let e = unsafe { o.plan() }.unwrap_err();
         assert!(e.message.contains("has 4 entries"), "{}", e.message);
+
+        // A time increment without increments belongs to nothing.
+        let o = Options { increment_dtime: dtime.as_ptr(), ..Options::default() };
+        // SAFETY: as above.
+        let e = unsafe { o.plan() }.unwrap_err();
+        assert!(e.message.contains("without increments"), "{}", e.message);
+        // A strain increment of 1e308 is bad input, not a routine failure.
+        let huge = [1e308, 0.0, 0.0, 0.0, 0.0, 0.0];
+        let o = Options { increments: huge.as_ptr(), nincrements: 1, ..Options::default() };
+        // SAFETY: as above.
+        let e = unsafe { o.plan() }.unwrap_err();
+        assert!(e.message.contains("out of range"), "{}", e.message);
     }
 }

@@ -21,7 +21,7 @@ use crate::report::{write_atomic, Reporter};
     name = "tancheck",
     version,
     about = "Checks that a material routine's tangent is the derivative of its own stress update",
-    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, hung or failed, 4 the tangent agrees with the real differences but the complex-step twin is not complex-step safe, 70 the routine ended the process (without --isolate)."
+    after_help = "Exit codes: 0 pass, 1 tangent failure (or a failed probe), 2 bad input or usage, 3 the routine crashed, misbehaved, corrupted the heap, hung or failed, 4 the tangent agrees with the real differences but the complex-step twin is not complex-step safe, 70 the routine, a thread of it or its library's constructor ended the process (without --isolate), 130/143 stopped by SIGINT/SIGTERM (the report says incomplete)."
 )]
 struct Cli {
     #[command(subcommand)]
@@ -94,18 +94,19 @@ struct CheckArgs {
     #[arg(long, value_name = "LEVEL")]
     guards: Option<String>,
     /// A folder of case files (written by `tancheck bisect`) to replay first, as a regression
-    /// suite counted separately; a broken case file is a warning.
+    /// suite counted separately; a broken case file is a warning, a missing folder an error.
     #[arg(long, value_name = "DIR")]
     cases: Option<PathBuf>,
-    /// Run the routine in a child worker process with time limits, so an infinite loop, an
-    /// exit or STOP, or heap corruption becomes a reported fault.
+    /// Run the routine in a child worker process, so that also _exit, SIGKILL, and anything
+    /// that breaks the process beyond the guard become reported faults.
     #[arg(long)]
     isolate: bool,
-    /// Time limit per call with --isolate, in seconds.
-    #[arg(long, value_name = "SECONDS", default_value_t = 10.0)]
+    /// Time limit per routine call, in seconds (above 0, at most 86400): a call past it is a
+    /// fault (exit 3), with or without --isolate.
+    #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_CALL_TIMEOUT, value_parser = crate::survive::parse_seconds)]
     call_timeout: f64,
-    /// Time limit for the whole check with --isolate, in seconds.
-    #[arg(long, value_name = "SECONDS", default_value_t = 600.0)]
+    /// Time limit for the whole check, in seconds (above 0, at most 86400).
+    #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_SUITE_TIMEOUT, value_parser = crate::survive::parse_seconds)]
     suite_timeout: f64,
     /// Print only failures and the verdict.
     #[arg(short, long, conflicts_with = "verbose")]
@@ -173,8 +174,13 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     let cli = match Cli::try_parse_from(args) {
         Ok(c) => c,
         Err(e) => {
-            let _ = e.print();
-            return if e.use_stderr() { exit::BAD_INPUT } else { exit::PASS };
+            if e.use_stderr() {
+                let _ = e.print();
+                return exit::BAD_INPUT;
+            }
+            // Help and version: to tancheck's own standard output (descriptor 1 is stderr).
+            let _ = write!(crate::survive::stdout(), "{}", e.render());
+            return exit::PASS;
         }
     };
     let result = match cli.command {
@@ -214,6 +220,8 @@ pub fn default_path(kind: PointKind) -> Path {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
+    // An earlier report under the same name is replaced at once by an "incomplete" marker.
+    crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     if a.isolate {
         // The same check in a worker: the arguments as given, without --isolate and --json.
         let mut args: Vec<std::ffi::OsString> = Vec::new();
@@ -235,12 +243,23 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     }
     let mut case_code = exit::PASS;
     if let Some(cases) = &a.cases {
-        let r = crate::cmd_replay::run_case_folder(cases);
-        let stdout = std::io::stdout();
-        r.write_summary(cases, &mut stdout.lock())?;
-        case_code = r.exit_code();
+        if !cases.is_dir() {
+            bail!(
+                "--cases {}: {}",
+                cases.display(),
+                if cases.exists() { "is not a folder" } else { "no such folder (bisect writes one)" }
+            );
+        }
     }
     let (mut m, dir) = Manifest::load(&a.manifest)?;
+    let file = a.manifest.display().to_string();
+    crate::survive::set_routine(a.json.as_deref(), &routine_name(&m));
+    crate::survive::start_watchdog(a.call_timeout, Some(a.suite_timeout));
+    if let Some(cases) = &a.cases {
+        let r = crate::cmd_replay::run_case_folder(cases);
+        r.write_summary(cases, &mut crate::survive::stdout())?;
+        case_code = r.exit_code();
+    }
     if !a.schemes.is_empty() {
         m.check.schemes =
             a.schemes.iter().map(|s| s.parse()).collect::<Result<_, String>>().map_err(anyhow::Error::msg)?;
@@ -253,16 +272,16 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         let (s, v) = scheme_value(t, "step")?;
         m.check.scheme_mut(s).rel_step = v;
     }
-    m.check.validate().map_err(anyhow::Error::msg)?;
+    m.check.validate().map_err(|e| anyhow::anyhow!("{file} (with the command-line options): {e}"))?;
     m.fp_traps |= a.fp_traps;
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
     }
     let path = match &a.path {
         Some(p) => path_arg(p)?,
-        None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
+        None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
     };
-    let report = run_manifest(&m, &dir, &path)?;
+    let report = run_manifest(&m, &dir, &path).with_context(|| format!("checking the routine of {file}"))?;
     let detail = if a.quiet {
         Detail::Quiet
     } else if a.verbose {
@@ -279,8 +298,20 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     })
 }
 
+/// The routine a manifest names, for messages: the symbol or the model.
+pub fn routine_name(m: &Manifest) -> String {
+    match (&m.routine.library, &m.routine.symbol, &m.routine.model) {
+        (Some(l), Some(s), _) => format!("{}:{s}", l.display()),
+        (_, _, Some(model)) => format!("model {model}"),
+        _ => "the routine".into(),
+    }
+}
+
 /// Load and check the routine a manifest names.
 pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<Report> {
+    if let Some(hb) = std::env::var_os(crate::isolate::HEARTBEAT_ENV) {
+        crate::isolate::worker_follows_parent(std::path::Path::new(&hb))?;
+    }
     let mut loaded = load(m, dir)?;
     let routine = loaded.routine();
     let start = start_state(m, routine.info())?;
@@ -294,13 +325,16 @@ pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<
         None => routine,
     };
     let mut caller = Caller::new(routine);
-    check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg)
+    crate::survive::checking(true);
+    let report =
+        check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg);
+    crate::survive::checking(false);
+    report
 }
 
 /// Print the readable report and/or write the JSON one.
 pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> Result<()> {
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     match json {
         Some(p) if p.as_os_str() == "-" => Json.write(report, &mut out)?,
         other => {
@@ -322,7 +356,11 @@ pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> 
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
+    crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
+    let file = a.manifest.display().to_string();
+    crate::survive::set_routine(a.json.as_deref(), &routine_name(&m));
+    crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
     }
@@ -350,10 +388,11 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,
         None => notes.extend(suite.fit_at(&path)),
     }
-    let mut loaded = load(&m, &dir)?;
+    let mut loaded = load(&m, &dir).with_context(|| format!("loading the routine of {file}"))?;
     let routine = loaded.routine();
-    let start = start_state(&m, routine.info())?;
+    let start = start_state(&m, routine.info()).with_context(|| file.clone())?;
     let mut caller = Caller::new(routine);
+    crate::survive::checking(true);
     let report = tancheck_core::probe::run_suite(
         &mut caller,
         &suite.suite,
@@ -363,9 +402,10 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         &path,
         &m.check,
     )
-    .map_err(anyhow::Error::msg)?;
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    .map_err(anyhow::Error::msg);
+    crate::survive::checking(false);
+    let report = report?;
+    let mut out = crate::survive::stdout();
     let to_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
     if let Some(p) = &a.json {
         let text = serde_json::to_vec_pretty(&report)?;
@@ -424,8 +464,7 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
 }
 
 fn cmd_models() -> Result<i32> {
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     writeln!(
         out,
         "Built-in models (\"model\": NAME in a manifest); the flawed ones are the selftest's zoo.\n"

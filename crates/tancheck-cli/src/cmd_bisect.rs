@@ -267,21 +267,35 @@ pub fn write_outcome(o: &BisectOutcome, out: &mut dyn Write) -> std::io::Result<
 
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
+    crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
+    crate::survive::set_routine(a.json.as_deref(), &crate::cli::routine_name(&m));
+    crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     m.fp_traps |= a.fp_traps;
     let bs = BisectSettings { fraction_tol: a.fraction_tol, ..BisectSettings::default() };
     bs.validate().map_err(|e| anyhow::anyhow!("--fraction-tol: {e}"))?;
-    if a.max_shrink_seconds.is_nan() || a.max_shrink_seconds <= 0.0 {
-        anyhow::bail!("--max-shrink-seconds must be a positive number of seconds");
+    if !a.max_shrink_seconds.is_finite()
+        || a.max_shrink_seconds <= 0.0
+        || a.max_shrink_seconds > crate::survive::MAX_SECONDS
+    {
+        anyhow::bail!(
+            "--max-shrink-seconds must be a number of seconds above 0 and at most {}",
+            crate::survive::MAX_SECONDS
+        );
     }
     let path = match &a.path {
         Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
-        None => m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?,
+        None => m
+            .path_or(default_path(m.routine.kind))
+            .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
     };
-    let (mut opened, spec) = open_for_manifest(&m, &dir)?;
+    let file = a.manifest.display().to_string();
+    let (mut opened, spec) =
+        open_for_manifest(&m, &dir).with_context(|| format!("loading the routine of {file}"))?;
+    crate::survive::checking(true);
     let routine = opened.routine();
     let info = routine.info().clone();
-    let start = start_state(&m, &info)?;
+    let start = start_state(&m, &info).with_context(|| file.clone())?;
     let props = m.routine.properties.clone();
     let settings = m.check.clone();
     let mut caller = Caller::new(routine);
@@ -356,6 +370,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
             Err(e) => warnings.push(format!("{e:#}")),
         }
     }
+    crate::survive::checking(false);
     let outcome = BisectOutcome {
         routine: info.name.clone(),
         path: path.name.clone(),
@@ -367,8 +382,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         warnings,
         exit_code: report.exit_code(),
     };
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     match &a.json {
         Some(p) if p.as_os_str() == "-" => {
             serde_json::to_writer_pretty(&mut out, &outcome)?;

@@ -1,6 +1,7 @@
 //! `tancheck build`: compile C and Fortran sources into a shared library of routines, with
 //! their complex-step twins, showing what the compilers say.
 
+use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::Result;
@@ -60,9 +61,11 @@ pub fn run(a: BuildArgs) -> Result<i32> {
         ..Default::default()
     };
     let log = tancheck_abi::compile::build_library(&opts)?;
+    // tancheck's own standard output (descriptor 1 belongs to the routines: see `survive`).
+    let mut out = crate::survive::stdout();
     if a.verbose {
         for c in &log.commands {
-            println!("{}", c.command_line());
+            writeln!(out, "{}", c.command_line())?;
         }
     }
     let warnings = log.warnings();
@@ -76,7 +79,8 @@ pub fn run(a: BuildArgs) -> Result<i32> {
             shown.push(text);
         }
     }
-    println!(
+    writeln!(
+        out,
         "built {}{}{}",
         opts.output.display(),
         if opts.twin { " (with complex-step twins, suffix _cx)" } else { "" },
@@ -87,13 +91,14 @@ pub fn run(a: BuildArgs) -> Result<i32> {
                 if n == 1 { "" } else { "s" }
             ),
         }
-    );
+    )?;
     if opts.debug {
-        println!(
+        writeln!(
+            out,
             "debug build: `tancheck check` runs this library with floating-point traps on \
              (invalid, division by zero, overflow), so the first NaN or infinity is a reported crash \
              with its place"
-        );
+        )?;
     }
     Ok(exit::PASS)
 }

@@ -37,8 +37,7 @@ pub struct ManArgs {
 /// Print the completion script for a shell to standard output.
 pub fn completions(a: &CompletionsArgs, mut cmd: clap::Command) -> Result<i32> {
     use clap_complete::shells;
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     let name = "tancheck";
     match a.shell {
         Shell::Bash => clap_complete::generate(shells::Bash, &mut cmd, name, &mut out),
@@ -57,8 +56,7 @@ pub fn man(a: &ManArgs, cmd: clap::Command) -> Result<i32> {
         None => {
             let mut buf = Vec::new();
             clap_mangen::Man::new(cmd).render(&mut buf)?;
-            let stdout = std::io::stdout();
-            let mut out = stdout.lock();
+            let mut out = crate::survive::stdout();
             out.write_all(&buf)?;
             out.flush()?;
         }
@@ -66,7 +64,7 @@ pub fn man(a: &ManArgs, cmd: clap::Command) -> Result<i32> {
             std::fs::create_dir_all(dir).with_context(|| format!("creating {}", dir.display()))?;
             clap_mangen::generate_to(cmd, dir)
                 .with_context(|| format!("writing man pages into {}", dir.display()))?;
-            println!("man pages written to {}", dir.display());
+            writeln!(crate::survive::stdout(), "man pages written to {}", dir.display())?;
         }
     }
     Ok(exit::PASS)

@@ -484,16 +484,26 @@ pub fn write_replay(r: &ReplayReport, n: usize, out: &mut dyn Write) -> std::io:
 
 /// `tancheck replay`.
 pub fn run(a: &ReplayArgs) -> Result<i32> {
-    let report = match replay_file(&a.case, !a.no_walk) {
+    crate::survive::begin_report(a.json.as_deref(), &a.case.display().to_string())?;
+    crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
+    crate::survive::checking(true);
+    let replayed = replay_file(&a.case, !a.no_walk);
+    crate::survive::checking(false);
+    let report = match replayed {
         Ok(r) => r,
         Err(m) => {
-            eprintln!("tancheck: {m}");
+            // Every error names the case file.
+            let file = a.case.display().to_string();
+            if m.contains(&file) {
+                eprintln!("tancheck: {m}");
+            } else {
+                eprintln!("tancheck: {file}: {m}");
+            }
             return Ok(exit::BAD_INPUT);
         }
     };
     let n = report.stress.bits.len();
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     match &a.json {
         Some(p) if p.as_os_str() == "-" => {
             serde_json::to_writer_pretty(&mut out, &report)?;

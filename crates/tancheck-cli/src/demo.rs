@@ -124,8 +124,7 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
         .clone()
         .unwrap_or_else(|| std::env::temp_dir().join(format!("tancheck-demo-{}", std::process::id())));
     std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     writeln!(out, "tancheck demo: building the bundled example routines in {}", dir.display())?;
     let c_lib = build(&dir, "examples_c", &C_SOURCES)?;
     writeln!(out, "   built {} (C, with complex-step twins)", c_lib.display())?;
@@ -158,7 +157,7 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
         if a.verbose {
             drop(out);
             emit(&report, Detail::Normal, None)?;
-            out = stdout.lock();
+            out = crate::survive::stdout();
         } else {
             summary(&mut out, &report)?;
         }

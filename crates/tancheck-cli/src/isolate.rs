@@ -5,6 +5,10 @@
 //!
 //! The worker writes one byte to a heartbeat file before every routine call, and the inputs
 //! of each increment's base call to a second file; the parent watches both.
+//!
+//! The worker follows its parent: SIGTERM, SIGINT or SIGHUP to the parent ends the worker and
+//! removes the worker's folder before the parent dies of the signal (exit 128 + signal), and
+//! the parent's death sends the worker SIGTERM (Linux), whose handler removes the folder.
 
 use std::fs::File;
 use std::io::{Read, Write};
@@ -21,6 +25,28 @@ use crate::exit;
 
 /// Environment variable naming the worker's heartbeat file (the call file is `<it>.call`).
 pub const HEARTBEAT_ENV: &str = "TANCHECK_WORKER_HEARTBEAT";
+/// Environment variable with the parent's process id (the worker follows it).
+pub const PARENT_ENV: &str = "TANCHECK_WORKER_PARENT";
+
+/// In the worker, before the routine is loaded: die with the parent, and remove the worker's
+/// folder on SIGTERM, SIGINT or SIGHUP.
+pub fn worker_follows_parent(heartbeat: &Path) -> Result<()> {
+    use tancheck_abi::watch;
+    if let Some(dir) = heartbeat.parent() {
+        watch::remove_on_stop(dir);
+    }
+    let report = heartbeat.with_file_name("report.json");
+    for f in [heartbeat.to_path_buf(), call_file(heartbeat), crate::report::temporary_name(&report), report] {
+        watch::remove_on_stop(&f);
+    }
+    let parent = std::env::var(PARENT_ENV).ok().and_then(|p| p.parse::<u32>().ok());
+    if let Some(parent) = parent {
+        if !watch::follow_parent(parent) {
+            anyhow::bail!("the parent process {parent} of this worker is gone");
+        }
+    }
+    Ok(())
+}
 
 /// A routine that leaves a heartbeat before every call (in the worker).
 pub struct Heartbeat<'r> {
@@ -105,12 +131,18 @@ pub fn run_isolated(
 ) -> Result<i32> {
     let dir = std::env::temp_dir().join(format!("tancheck-worker-{}", std::process::id()));
     std::fs::create_dir_all(&dir)?;
+    // SIGINT, SIGTERM, SIGHUP now only set a flag that the loop below acts on.
+    tancheck_abi::watch::defer_stop(true);
     let heartbeat = dir.join("heartbeat");
     let report_json = dir.join("report.json");
     File::create(&heartbeat)?;
     let exe = std::env::current_exe().context("finding this program to start a worker")?;
     let mut cmd = Command::new(exe);
-    cmd.args(args).arg("--json").arg(&report_json).env(HEARTBEAT_ENV, &heartbeat);
+    cmd.args(args)
+        .arg("--json")
+        .arg(&report_json)
+        .env(HEARTBEAT_ENV, &heartbeat)
+        .env(PARENT_ENV, std::process::id().to_string());
     cmd.stdout(Stdio::piped()).stderr(Stdio::piped()).stdin(Stdio::null());
     let mut child = cmd.spawn().context("starting the worker process")?;
     let mut out = child.stdout.take().expect("piped");
@@ -133,12 +165,29 @@ pub fn run_isolated(
         if let Some(st) = child.try_wait()? {
             break st;
         }
+        let stop = tancheck_abi::watch::stop_signal();
+        if stop != 0 {
+            // Stopped from outside: the worker goes with us, and so does its folder.
+            let _ = child.kill();
+            let _ = child.wait();
+            let _ = std::fs::remove_dir_all(&dir);
+            if let Some(j) = json.filter(|j| j.as_os_str() != "-") {
+                let _ = std::fs::remove_file(crate::report::temporary_name(j));
+            }
+            eprintln!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
+            return Ok(128 + stop);
+        }
         let len = std::fs::metadata(&heartbeat).map(|m| m.len()).unwrap_or(0);
         if len != last_len {
             last_len = len;
             last_beat = Instant::now();
         }
-        if last_len > 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
+        if last_len == 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
+            killed = Some(format!(
+                "the worker did not reach the first routine call within {call_timeout} s (a library \
+                 constructor that hangs while it is being loaded?)"
+            ));
+        } else if last_len > 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
             killed = Some(format!("the routine did not return within {call_timeout} s (an infinite loop?)"));
         } else if started.elapsed() > Duration::from_secs_f64(suite_timeout) {
             killed = Some(format!("the check did not finish within {suite_timeout} s"));
@@ -152,16 +201,36 @@ pub fn run_isolated(
     let stdout = reader.join().unwrap_or_default();
     let stderr = err_reader.join().unwrap_or_default();
     let code = status.code();
-    let finished =
-        killed.is_none() && matches!(code, Some(0..=3)) && (code == Some(2) || report_json.exists());
+    // The worker's report: complete, last words, or only the "incomplete" marker.
+    let worker_report: Option<serde_json::Value> =
+        std::fs::read(&report_json).ok().and_then(|b| serde_json::from_slice(&b).ok());
+    let complete = worker_report.as_ref().is_some_and(|v| v["verdict"] != "incomplete");
+    let last_words = worker_report.as_ref().filter(|v| v["last_words"] == true);
+    // Last words end the worker with 3 or 70; with any other status they still mean a fault.
+    let finished = killed.is_none()
+        && match code {
+            Some(2) => true,
+            Some(3) => complete,
+            Some(0 | 1) => complete && last_words.is_none(),
+            _ => false,
+        };
+    let json_to_stdout = json.is_some_and(|j| j.as_os_str() == "-");
     let result = if finished {
-        std::io::stdout().write_all(&stdout)?;
+        if json_to_stdout {
+            // Only the JSON report goes to standard output.
+            std::io::stderr().write_all(&stdout)?;
+        } else {
+            crate::survive::stdout().write_all(&stdout)?;
+        }
         std::io::stderr().write_all(&stderr)?;
         if let Some(j) = json {
-            if j.as_os_str() == "-" {
-                std::io::stdout().write_all(&std::fs::read(&report_json)?)?;
-            } else if report_json.exists() {
-                crate::report::write_atomic(j, &std::fs::read(&report_json)?)?;
+            if complete {
+                let bytes = std::fs::read(&report_json)?;
+                if json_to_stdout {
+                    crate::survive::stdout().write_all(&bytes)?;
+                } else {
+                    crate::report::write_atomic(j, &bytes)?;
+                }
             }
         }
         code.unwrap_or(exit::ROUTINE_FAULT)
@@ -169,48 +238,86 @@ pub fn run_isolated(
         use std::os::unix::process::ExitStatusExt;
         let what = match (&killed, code, status.signal()) {
             (Some(k), _, _) => k.clone(),
-            (None, Some(70), _) => "the routine ended the worker process by calling exit() (a Fortran STOP or a run-time check?)".to_string(),
+            (None, Some(70), _) => match last_words.and_then(|v| v["fault"]["when"].as_str()) {
+                Some(when) => format!("the routine ended the worker process by calling exit() (a Fortran STOP or a run-time check?), {when}"),
+                None => "the routine ended the worker process by calling exit() (a Fortran STOP or a run-time check?)".to_string(),
+            },
             (None, Some(c), _) => format!("the worker process ended with status {c} before finishing the report (the routine called exit()?)"),
             (None, None, Some(s)) => format!("the worker process was killed by signal {s} (heap corruption or a stack overflow the guard could not catch?)"),
             (None, None, None) => "the worker process ended unexpectedly".to_string(),
         };
+        // The call that was running: from the worker's last words (exact), or the base call
+        // of the increment the heartbeat last saw.
         let call: Option<CallRecord> =
-            std::fs::read(call_file(&heartbeat)).ok().and_then(|b| serde_json::from_slice(&b).ok());
+            last_words.and_then(|v| serde_json::from_value(v["fault"]["call"].clone()).ok()).or_else(|| {
+                std::fs::read(call_file(&heartbeat)).ok().and_then(|b| serde_json::from_slice(&b).ok())
+            });
         let stdout_text = String::from_utf8_lossy(&stdout);
         let stderr_text = String::from_utf8_lossy(&stderr);
-        let mut o = std::io::stdout().lock();
+        let mut o = crate::survive::stdout();
         if !stdout_text.is_empty() {
-            writeln!(o, "{stdout_text}")?;
-        }
-        writeln!(o, "== isolated check ==")?;
-        writeln!(o, "   FAULT: {what}")?;
-        if let Some(c) = &call {
-            writeln!(o, "   during increment {} (the inputs of its base call):", c.increment)?;
-            writeln!(o, "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}", c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp)?;
-        } else {
-            writeln!(o, "   before the first routine call")?;
-        }
-        if !stderr_text.trim().is_empty() {
-            writeln!(o, "   the worker said: {}", stderr_text.trim())?;
-        }
-        writeln!(o, "   verdict: FAULT — the routine crashed, hung or ended the process (exit 3)")?;
-        if let Some(j) = json {
-            let v = serde_json::json!({
-                "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
-                "verdict": "routine-fault",
-                "isolated": true,
-                "fault": { "message": what, "call": call },
-                "cautions": tancheck_core::report::CAUTIONS,
-            });
-            let text = serde_json::to_vec_pretty(&v)?;
-            if j.as_os_str() == "-" {
-                o.write_all(&text)?;
+            if json_to_stdout {
+                eprintln!("{stdout_text}");
             } else {
-                crate::report::write_atomic(j, &text)?;
+                writeln!(o, "{stdout_text}")?;
             }
+        }
+        if json_to_stdout {
+            // The readable account goes to standard error; standard output is the JSON.
+            drop(o);
+            let mut e = std::io::stderr().lock();
+            account(&mut e, &what, call.as_ref(), &stderr_text)?;
+            let v = fault_json(&what, call.as_ref());
+            let mut text = serde_json::to_vec_pretty(&v)?;
+            text.push(b'\n');
+            crate::survive::stdout().write_all(&text)?;
+            let _ = std::fs::remove_dir_all(&dir);
+            return Ok(exit::ROUTINE_FAULT);
+        }
+        account(&mut o, &what, call.as_ref(), &stderr_text)?;
+        if let Some(j) = json {
+            let mut text = serde_json::to_vec_pretty(&fault_json(&what, call.as_ref()))?;
+            text.push(b'\n');
+            crate::report::write_atomic(j, &text)?;
         }
         exit::ROUTINE_FAULT
     };
     let _ = std::fs::remove_dir_all(&dir);
     Ok(result)
+}
+
+/// The readable account of a worker that did not finish.
+fn account(
+    o: &mut dyn Write,
+    what: &str,
+    call: Option<&CallRecord>,
+    stderr_text: &str,
+) -> std::io::Result<()> {
+    writeln!(o, "== isolated check ==")?;
+    writeln!(o, "   FAULT: {what}")?;
+    if let Some(c) = call {
+        writeln!(o, "   during increment {} (the inputs of that call):", c.increment)?;
+        writeln!(
+            o,
+            "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}",
+            c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp
+        )?;
+    } else {
+        writeln!(o, "   before the first routine call")?;
+    }
+    if !stderr_text.trim().is_empty() {
+        writeln!(o, "   the worker said: {}", stderr_text.trim())?;
+    }
+    writeln!(o, "   verdict: FAULT — the routine crashed, hung or ended the process (exit 3)")
+}
+
+/// The JSON report of a worker that did not finish.
+fn fault_json(what: &str, call: Option<&CallRecord>) -> serde_json::Value {
+    serde_json::json!({
+        "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        "verdict": "routine-fault",
+        "isolated": true,
+        "fault": { "message": what, "increment": call.map(|c| c.increment), "call": call },
+        "cautions": tancheck_core::report::CAUTIONS,
+    })
 }

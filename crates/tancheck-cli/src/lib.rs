@@ -13,6 +13,7 @@ pub mod manifest;
 pub mod report;
 pub mod selftest;
 pub mod suite;
+pub mod survive;
 
 pub use cli::main_with_args;
 
@@ -24,9 +25,13 @@ pub mod exit {
     pub const TANGENT_FAILURE: i32 = 1;
     /// Bad input or usage: manifest, library, symbol, arguments.
     pub const BAD_INPUT: i32 = 2;
-    /// The routine crashed or reported that it could not compute an increment.
+    /// The routine crashed, misbehaved, hung, or reported that it could not compute an
+    /// increment.
     pub const ROUTINE_FAULT: i32 = 3;
     /// The tangent agrees with the real difference schemes, but the complex-step twin is not
     /// complex-step safe.
     pub const TWIN_NOT_SAFE: i32 = 4;
+    /// The routine (or its library, or a thread it started) ended the process itself, with
+    /// exit, Fortran STOP or a run-time check, without --isolate. Said by the guard.
+    pub const ROUTINE_EXITED: i32 = 70;
 }

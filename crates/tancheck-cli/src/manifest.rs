@@ -155,6 +155,35 @@ impl Manifest {
         if r.properties.iter().any(|p| !p.is_finite()) {
             return Err("routine.properties must be finite numbers".into());
         }
+        if r.properties.len() > MAX_PROPERTIES {
+            return Err(format!(
+                "routine.properties has {} entries; at most {MAX_PROPERTIES}",
+                r.properties.len()
+            ));
+        }
+        if let Some(n) = r.states {
+            if n > MAX_STATES {
+                return Err(format!("routine.states is {n}; at most {MAX_STATES}"));
+            }
+        }
+        let st = &self.start;
+        for (what, values, max) in [
+            ("start.strain", &st.strain, tancheck_core::path::MAX_STRAIN),
+            ("start.stress", &st.stress, tancheck_core::path::MAX_STRESS),
+            ("start.state", &st.state, f64::MAX),
+        ] {
+            if let Some(x) = values.iter().flatten().find(|x| !x.is_finite() || x.abs() > max) {
+                return Err(format!(
+                    "{what} has {x}; every entry must be a finite number at most {max:e} in magnitude"
+                ));
+            }
+        }
+        if !st.temperature.is_finite() || st.temperature.abs() > MAX_TEMPERATURE {
+            return Err(format!(
+                "start.temperature is {}; it must be a finite number at most {MAX_TEMPERATURE:e} in magnitude",
+                st.temperature
+            ));
+        }
         self.convention()?;
         self.check.validate()?;
         self.path_or(Path { name: String::new(), increments: Vec::new() })?;
@@ -185,10 +214,14 @@ impl Manifest {
 pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
     {
         match (&p.increments, &p.shape) {
-            (Some(incs), None) if p.peak.is_none() && p.steps.is_none() => Ok(Path {
-                name: p.name.clone().unwrap_or_else(|| "increments from the manifest".into()),
-                increments: incs.clone(),
-            }),
+            (Some(incs), None) if p.peak.is_none() && p.steps.is_none() => {
+                let path = Path {
+                    name: p.name.clone().unwrap_or_else(|| "increments from the manifest".into()),
+                    increments: incs.clone(),
+                };
+                path.validate().map_err(|e| format!("path.increments: {e}"))?;
+                Ok(path)
+            }
             (None, Some(shape)) => ramp(&RampSpec {
                 shape: shape.clone(),
                 peak: p.peak.ok_or("path.peak is required with path.shape")?,
@@ -201,8 +234,13 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
     }
 }
 
-/// The most increments a path may have.
-pub const MAX_INCREMENTS: usize = 1_000_000;
+pub use tancheck_core::path::MAX_INCREMENTS;
+/// The most state variables a routine may declare.
+pub const MAX_STATES: usize = 100_000;
+/// The most properties a routine may take.
+pub const MAX_PROPERTIES: usize = 100_000;
+/// The largest start temperature accepted in magnitude.
+pub const MAX_TEMPERATURE: f64 = 1.0e5;
 
 /// Build a ramp path, checking its numbers. Besides the built-in shapes, `uniaxial-stress`
 /// prescribes ε11 and holds every other stress at zero.
@@ -213,11 +251,19 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
     if r.steps.saturating_add(r.back) > MAX_INCREMENTS {
         return Err(format!("path.steps + path.back must be at most {MAX_INCREMENTS}"));
     }
-    if !r.peak.is_finite() || r.peak == 0.0 {
-        return Err("path.peak must be a nonzero number".into());
+    let max = tancheck_core::path::MAX_STRAIN;
+    if !r.peak.is_finite() || r.peak == 0.0 || r.peak.abs() > max {
+        return Err(format!(
+            "path.peak is {}; it must be a nonzero number at most {max} in magnitude",
+            r.peak
+        ));
     }
-    if !r.dtemp.is_finite() {
-        return Err("path.dtemp must be a finite number".into());
+    let max = tancheck_core::path::MAX_DTEMP;
+    if !r.dtemp.is_finite() || r.dtemp.abs() > max {
+        return Err(format!(
+            "path.dtemp is {}; it must be a finite number at most {max} in magnitude",
+            r.dtemp
+        ));
     }
     let mut p = if r.shape == "uniaxial-stress" {
         Path::uniaxial_stress(r.peak, r.steps, r.back)
@@ -235,6 +281,7 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
         }
         p.name = format!("{}, ΔT = {} per increment", p.name, r.dtemp);
     }
+    p.validate()?;
     Ok(p)
 }
 

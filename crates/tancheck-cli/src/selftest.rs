@@ -169,8 +169,7 @@ fn repo_root() -> PathBuf {
 
 /// Run the zoo; exit 0 when every row is right.
 pub fn run(verbose: bool) -> Result<i32> {
-    let stdout = std::io::stdout();
-    let mut out = stdout.lock();
+    let mut out = crate::survive::stdout();
     let mut rows = Vec::new();
     let entries = zoo::zoo();
     for e in &entries {
@@ -180,7 +179,7 @@ pub fn run(verbose: bool) -> Result<i32> {
         if verbose {
             drop(out);
             crate::cli::emit(&r, crate::report::terminal::Detail::Normal, None)?;
-            out = stdout.lock();
+            out = crate::survive::stdout();
         }
         rows.push(row(e, "Rust", &r));
     }

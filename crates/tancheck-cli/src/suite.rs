@@ -40,13 +40,21 @@ impl Suite {
             message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
         })?;
         let known: Vec<_> = tancheck_core::probe::registry().iter().map(|p| p.name()).collect();
-        for p in &s.probes {
+        let at = |k: usize, name: &str, message: String| match probe_position(text, k, name) {
+            Some((line, column)) => ManifestError::Parse { path: file.into(), line, column, message },
+            None => ManifestError::Invalid { path: file.into(), message },
+        };
+        let path = s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        for (k, p) in s.probes.iter().enumerate() {
             if !known.contains(&p.probe.as_str()) {
-                return Err(ManifestError::Invalid {
-                    path: file.into(),
-                    message: format!("unknown probe `{}`; known probes: {}", p.probe, known.join(", ")),
-                });
+                return Err(at(
+                    k,
+                    &p.probe,
+                    format!("unknown probe `{}`; known probes: {}", p.probe, known.join(", ")),
+                ));
             }
+            check_numbers(p, path.increments.len())
+                .map_err(|m| at(k, &p.probe, format!("probe `{}`: {m}", p.probe)))?;
         }
         if s.probes.is_empty() {
             return Err(ManifestError::Invalid {
@@ -54,7 +62,6 @@ impl Suite {
                 message: "the suite has no probes; list at least one under \"probes\"".into(),
             });
         }
-        let path = s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
         s.check_at(&path).map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
         Ok(s)
     }
@@ -130,6 +137,67 @@ impl Suite {
     }
 }
 
+/// The most sub-increments the refinement probe may use.
+pub const MAX_SUBDIVISIONS: usize = 1024;
+
+/// The numbers of one suite entry, against the suite's path of `increments` increments.
+fn check_numbers(p: &ProbeSpec, increments: usize) -> Result<(), String> {
+    if let Some(t) = p.tol {
+        if !(t.is_finite() && t > 0.0) {
+            return Err(format!("tol is {t}; it must be a positive number"));
+        }
+    }
+    if let Some(n) = p.subdivisions {
+        if !(1..=MAX_SUBDIVISIONS).contains(&n) {
+            return Err(format!("subdivisions is {n}; it must be 1 to {MAX_SUBDIVISIONS}"));
+        }
+    }
+    if let Some(a) = p.amplitude {
+        let max = tancheck_core::path::MAX_STRAIN;
+        if !(a.is_finite() && a != 0.0 && a.abs() <= max) {
+            return Err(format!("amplitude is {a}; it must be a nonzero number at most {max} in magnitude"));
+        }
+    }
+    if let Some(at) = &p.at {
+        if let Some(k) = at.iter().find(|&&k| k == 0 || k > increments) {
+            return Err(format!("at names increment {k}; the path has increments 1 to {increments}"));
+        }
+    }
+    if let Some(axes) = &p.axes {
+        if let Some(i) = axes.iter().find(|&&i| i > crate::manifest::MAX_PROPERTIES) {
+            return Err(format!("axes names property {i}; at most {}", crate::manifest::MAX_PROPERTIES));
+        }
+    }
+    Ok(())
+}
+
+/// Line and column (1-based) of the `k`-th suite entry's probe name in `text`: the k-th
+/// `"probe": "<name>"` pair, found by scanning (the parser keeps no positions).
+fn probe_position(text: &str, k: usize, name: &str) -> Option<(usize, usize)> {
+    let quoted = serde_json::to_string(name).ok()?;
+    let mut seen = 0;
+    let mut from = 0;
+    while let Some(i) = text[from..].find("\"probe\"") {
+        let key = from + i;
+        let rest = text[key + 7..].trim_start();
+        from = key + 7;
+        let Some(rest) = rest.strip_prefix(':') else { continue };
+        let rest = rest.trim_start();
+        if seen == k {
+            if !rest.starts_with(&quoted) {
+                return None;
+            }
+            let value = text.len() - rest.len();
+            let before = &text[..value];
+            let line = before.matches('\n').count() + 1;
+            let column = before.rsplit('\n').next().map_or(0, |l| l.chars().count()) + 1;
+            return Some((line, column));
+        }
+        seen += 1;
+    }
+    None
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -152,6 +220,18 @@ mod tests {
         let bad = DEFAULT_SUITES[0].1.replace("\"determinism\"", "\"determinsm\"");
         let e = Suite::parse(&bad, FsPath::new("s.json")).unwrap_err().to_string();
         assert!(e.contains("unknown probe `determinsm`"), "{e}");
+        // With the line and column of the name.
+        let line = bad.lines().position(|l| l.contains("determinsm")).unwrap() + 1;
+        let column = bad.lines().nth(line - 1).unwrap().find("\"determinsm\"").unwrap() + 1;
+        assert!(e.starts_with(&format!("s.json:{line}:{column}:")), "{e}");
+    }
+
+    #[test]
+    fn numbers_out_of_range_are_errors_naming_the_file() {
+        let bad = DEFAULT_SUITES[0].1.replacen("\"subdivisions\": 8", "\"subdivisions\": 2000000000", 1);
+        assert_ne!(bad, DEFAULT_SUITES[0].1, "the solid suite sets subdivisions to 8");
+        let e = Suite::parse(&bad, FsPath::new("s.json")).unwrap_err().to_string();
+        assert!(e.starts_with("s.json:") && e.contains("subdivisions is 2000000000"), "{e}");
     }
 
     #[test]

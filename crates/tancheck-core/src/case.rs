@@ -635,6 +635,29 @@ impl Case {
         let state0 = num("call", "state0", &c.state0, Some(r.nstate))?;
         let temp = num("call", "temp", &c.temp, Some(2))?;
         let time = num("call", "time", &c.time, Some(2))?;
+        // The inputs must be numbers a routine can be asked about: out of range is bad input,
+        // not a routine failure.
+        {
+            use crate::path::{MAX_DTEMP, MAX_DTIME, MAX_STRAIN, MAX_STRESS};
+            for (key, values, max) in [
+                ("props", &props, f64::MAX),
+                ("strain", &strain, MAX_STRAIN),
+                ("dstrain", &dstrain, MAX_STRAIN),
+                ("stress0", &stress0, MAX_STRESS),
+                ("state0", &state0, f64::MAX),
+                ("temp", &vec![temp[0]], 1.0e5),
+                ("temp", &vec![temp[1]], MAX_DTEMP),
+                ("time", &vec![time[0]], f64::MAX),
+                ("time", &vec![time[1]], MAX_DTIME),
+            ] {
+                if let Some(x) = values.iter().find(|x| !x.is_finite() || x.abs() > max) {
+                    return Err(err(
+                        &["call", key],
+                        format!("call.{key} has {x:e}; every input must be a finite number at most {max:e} in magnitude"),
+                    ));
+                }
+            }
+        }
         let o = &case.outputs;
         let outputs = DecodedOutputs {
             status: o.status,

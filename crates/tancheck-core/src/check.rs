@@ -102,6 +102,7 @@ pub fn run(
                     stress: driver.start().stress.clone(),
                     checks: Vec::new(),
                     non_finite: Vec::new(),
+                    non_finite_call: None,
                     solve: solve_log,
                     diagnosis: None,
                     fault: Some(judge::fault_record(&fault, &driver, None)),
@@ -142,6 +143,7 @@ pub fn run(
                         stress: driver.start().stress.clone(),
                         checks: cc.checks,
                         non_finite: cc.non_finite,
+                        non_finite_call: None,
                         solve: solve_log,
                         diagnosis: cc.diagnosis,
                         fault: Some(*fault),
@@ -149,6 +151,8 @@ pub fn run(
                     break;
                 }
                 previous = cc.best.map(|(_, t)| t);
+                // Non-finite outputs carry the inputs of the call, as a crash does.
+                let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(&driver, None));
                 driver.advance();
                 increments.push(IncrementResult {
                     index: k + 1,
@@ -158,6 +162,7 @@ pub fn run(
                     stress: driver.start().stress.clone(),
                     checks: cc.checks,
                     non_finite: cc.non_finite,
+                    non_finite_call,
                     solve: solve_log,
                     diagnosis: cc.diagnosis,
                     fault: None,

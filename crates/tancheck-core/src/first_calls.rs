@@ -45,6 +45,7 @@ pub fn zero_increment(
         stress: start.stress.clone(),
         checks: Vec::new(),
         non_finite: Vec::new(),
+        non_finite_call: None,
         solve: None,
         diagnosis: None,
         fault: None,
@@ -63,7 +64,12 @@ pub fn zero_increment(
             ));
         }
     }
-    Ok((!result.non_finite.is_empty()).then_some(result))
+    if result.non_finite.is_empty() {
+        return Ok(None);
+    }
+    // Non-finite outputs carry the inputs of the call, as a crash does.
+    result.non_finite_call = Some(crate::bisect::judge::call_record(&d, None));
+    Ok(Some(result))
 }
 
 /// Branches reached so far, as (reported id, state changed).

@@ -7,6 +7,18 @@
 
 use serde::{Deserialize, Serialize};
 
+/// The most increments a path may have.
+pub const MAX_INCREMENTS: usize = 1_000_000;
+/// The largest strain component (increment, peak or start) accepted in magnitude: far beyond
+/// any small-strain routine's range; larger values are input errors, not routine failures.
+pub const MAX_STRAIN: f64 = 10.0;
+/// The largest temperature increment accepted in magnitude (K).
+pub const MAX_DTEMP: f64 = 1.0e4;
+/// The largest time increment accepted.
+pub const MAX_DTIME: f64 = 1.0e12;
+/// The largest held or start stress accepted in magnitude.
+pub const MAX_STRESS: f64 = 1.0e15;
+
 /// One increment of a path.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -135,6 +147,12 @@ impl Path {
         if self.increments.is_empty() {
             return Err("the path has no increments".into());
         }
+        if self.increments.len() > MAX_INCREMENTS {
+            return Err(format!(
+                "the path has {} increments; at most {MAX_INCREMENTS}",
+                self.increments.len()
+            ));
+        }
         for (k, inc) in self.increments.iter().enumerate() {
             if inc.dstrain.iter().any(|x| !x.is_finite()) || !inc.dtemp.is_finite() || !inc.dtime.is_finite()
             {
@@ -142,6 +160,34 @@ impl Path {
                     "increment {} of the path has a value that is not a finite number",
                     k + 1
                 ));
+            }
+            if let Some(x) = inc.dstrain.iter().find(|x| x.abs() > MAX_STRAIN) {
+                return Err(format!(
+                    "increment {}: a strain increment of {x} is out of range (at most {MAX_STRAIN} in magnitude)",
+                    k + 1
+                ));
+            }
+            if inc.dtemp.abs() > MAX_DTEMP {
+                return Err(format!(
+                    "increment {}: a temperature increment of {} is out of range (at most {MAX_DTEMP} in magnitude)",
+                    k + 1,
+                    inc.dtemp
+                ));
+            }
+            if !(0.0..=MAX_DTIME).contains(&inc.dtime) {
+                return Err(format!(
+                    "increment {}: a time increment of {} is out of range (0 to {MAX_DTIME})",
+                    k + 1,
+                    inc.dtime
+                ));
+            }
+            if let Some(hold) = &inc.hold_stress {
+                if let Some(x) = hold.iter().flatten().find(|x| !x.is_finite() || x.abs() > MAX_STRESS) {
+                    return Err(format!(
+                        "increment {}: a held stress of {x} is out of range (a finite number at most {MAX_STRESS:e} in magnitude)",
+                        k + 1
+                    ));
+                }
             }
         }
         Ok(())

@@ -138,6 +138,10 @@ pub struct IncrementResult {
     /// Outputs of the base call that are not finite numbers, e.g. "stress[0]" (the
     /// increment fails whatever the derivatives say).
     pub non_finite: Vec<String>,
+    /// The inputs of the base call when it returned values that are not finite numbers, so
+    /// that call can be rerun like a crash.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub non_finite_call: Option<CallRecord>,
     /// The mixed-control solve of this increment, when it holds some stresses.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub solve: Option<crate::mixed::SolveLog>,

@@ -104,15 +104,19 @@ impl Settings {
         }
         for s in Scheme::ALL {
             let c = self.scheme(s);
-            if !(c.rel_step > 0.0 && c.rel_step.is_finite()) {
-                return Err(format!("the {} step must be a positive number, got {}", s.name(), c.rel_step));
+            if !(c.rel_step > 0.0 && c.rel_step <= 1.0) {
+                return Err(format!(
+                    "the {} step must be a positive number at most 1 (relative to the strain scale), got {}",
+                    s.name(),
+                    c.rel_step
+                ));
             }
             if !(c.tol > 0.0 && c.tol.is_finite()) {
                 return Err(format!("the {} tolerance must be a positive number, got {}", s.name(), c.tol));
             }
         }
-        if [self.step_floor, self.temp_floor, self.entry_floor].iter().any(|&x| x.is_nan() || x <= 0.0) {
-            return Err("step_floor, temp_floor and entry_floor must be positive".into());
+        if [self.step_floor, self.temp_floor, self.entry_floor].iter().any(|&x| !x.is_finite() || x <= 0.0) {
+            return Err("step_floor, temp_floor and entry_floor must be positive finite numbers".into());
         }
         Ok(())
     }

@@ -13,6 +13,18 @@
  *   bad_exit            calls exit(0), as a Fortran STOP does      -> the process ends
  *   bad_deep_recursion  recurses without end, 4 KiB a frame        -> SIGSEGV, stack overflow
  *   bad_infinite_loop   never returns                               -> only a time limit helps
+ *   bad_sleep           sleeps for an hour                          -> only a time limit helps
+ *   bad_heap_corruption damages the size field of a block it then frees: the C library
+ *                       finds the heap corrupted and aborts          -> SIGABRT, heap in doubt
+ *   bad_thread_exit     a thread it starts calls exit(0) while the call waits for it
+ *                                                                    -> the process ends
+ *   bad_late_exit       a thread it starts calls exit(0) 1 ms after the call returned
+ *                                                                    -> the process ends later
+ *
+ * and these are correct (the elastic update at every increment) but unusual:
+ *
+ *   bad_helper_thread   leaves a thread running the library's code after every call
+ *   bad_printf          prints to standard output in every call (C printf)
  *
  * and these misbehave quietly, for the memory guards to find (crates/tancheck-abi/src/guards.rs):
  *
@@ -36,7 +48,11 @@
  *        cc -I fortran-shim/include -DTC_COMPLEX -c misbehave.c  (bad_*_cx)
  */
 
+#define _POSIX_C_SOURCE 200809L
+#include <pthread.h>
+#include <stdio.h>
 #include <stdlib.h>
+#include <time.h>
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
@@ -305,4 +321,98 @@ TC_ROUTINE(bad_unguarded_norm)
     }
     tc_real dir0 = dstrain[0] / tc_sqrt(norm2);
     stress[0] = stress[0] + 0.0 * dir0;
+}
+
+TC_ROUTINE(bad_sleep)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    struct timespec hour = {3600, 0};
+    while (nanosleep(&hour, &hour) != 0) {
+    }
+}
+
+TC_ROUTINE(bad_heap_corruption)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* A write just before a block (an index of -1) lands on the allocator's size field;
+     * free() then finds a size no block can have and the C library aborts. */
+    volatile size_t *volatile block = malloc(8 * sizeof(size_t));
+    if (block == NULL) {
+        return;
+    }
+    block[-1] = 0x11;
+    free((void *)block);
+}
+
+/* Thread bodies (static: each build, real and twin, has its own copy). */
+static void *misbehave_exit_now(void *arg)
+{
+    (void)arg;
+    exit(0);
+}
+
+static void *misbehave_exit_soon(void *arg)
+{
+    (void)arg;
+    struct timespec moment = {0, 1000 * 1000};
+    nanosleep(&moment, NULL);
+    exit(0);
+}
+
+/* Runs the library's code for ever: if the library were unloaded, this thread would crash. */
+static volatile unsigned long misbehave_busy_count;
+
+static void *misbehave_keep_busy(void *arg)
+{
+    (void)arg;
+    for (;;) {
+        struct timespec moment = {0, 1000 * 1000};
+        nanosleep(&moment, NULL);
+        misbehave_busy_count = misbehave_busy_count + 1;
+    }
+    return NULL;
+}
+
+TC_ROUTINE(bad_thread_exit)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    pthread_t t;
+    if (pthread_create(&t, NULL, misbehave_exit_now, NULL) == 0) {
+        pthread_join(t, NULL); /* never returns: the thread ends the process */
+    }
+}
+
+TC_ROUTINE(bad_late_exit)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    static int started = 0;
+    pthread_t t;
+    if (!started && pthread_create(&t, NULL, misbehave_exit_soon, NULL) == 0) {
+        started = 1;
+        pthread_detach(t);
+    }
+}
+
+TC_ROUTINE(bad_helper_thread)
+{
+    MISBEHAVE_UNUSED;
+    static int started = 0;
+    pthread_t t;
+    if (!started && pthread_create(&t, NULL, misbehave_keep_busy, NULL) == 0) {
+        started = 1;
+        pthread_detach(t);
+    }
+    misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report);
+}
+
+TC_ROUTINE(bad_printf)
+{
+    MISBEHAVE_UNUSED;
+    printf("bad_printf: increment %d, a line on standard output\n", call->increment);
+    puts("{ not json");
+    misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report);
 }

@@ -15,10 +15,9 @@ pub trait Reporter {
 
 /// Write `bytes` to `path` atomically: a temporary file in the same folder, then a rename,
 /// so an interrupted run never leaves a half-written report.
+/// A SIGINT or SIGTERM while it is written removes the temporary file (see [`temporary_name`]).
 pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
-    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
-    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "report".into());
-    let tmp = dir.join(format!(".{name}.tmp-{}", std::process::id()));
+    let tmp = temporary_name(path);
     let result = (|| {
         let mut f = std::fs::File::create(&tmp)?;
         f.write_all(bytes)?;
@@ -29,6 +28,14 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
         let _ = std::fs::remove_file(&tmp);
     }
     result
+}
+
+/// The temporary name [`write_atomic`] writes `path` under before the rename: a hidden file
+/// in the same folder, named after the process.
+pub fn temporary_name(path: &Path) -> std::path::PathBuf {
+    let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "report".into());
+    dir.join(format!(".{name}.tmp-{}", std::process::id()))
 }
 
 /// Compact number for tables: 3 significant digits in exponent form.

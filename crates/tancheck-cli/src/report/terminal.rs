@@ -73,6 +73,9 @@ impl Reporter for Terminal {
             for nf in &inc.non_finite {
                 writeln!(out, "        the routine returned a value that is not a finite number: {nf}")?;
             }
+            if let Some(c) = &inc.non_finite_call {
+                inputs(out, c)?;
+            }
             for c in &inc.checks {
                 if !inc.passed() && !c.passed() || self.detail == Detail::Verbose {
                     details(out, inc, c)?;
@@ -316,7 +319,10 @@ pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
 
 fn fault(out: &mut dyn Write, f: &FaultRecord) -> io::Result<()> {
     writeln!(out, "        {}", f.message)?;
-    let c = &f.call;
+    inputs(out, &f.call)
+}
+
+fn inputs(out: &mut dyn Write, c: &tancheck_core::report::CallRecord) -> io::Result<()> {
     writeln!(out, "          inputs of that call (increment {}):", c.increment)?;
     if let Some(p) = &c.perturbation {
         writeln!(out, "            perturbation  {p}")?;

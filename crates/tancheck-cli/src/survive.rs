@@ -1,0 +1,254 @@
+//! Surviving any routine: the program's side of the guard's watch (tancheck-abi `watch`).
+//!
+//! - [`init`] (first thing in `main`) arms the watch, so that an `exit()` from any thread or
+//!   from a library constructor is a reported fault, never a silent exit 0; and keeps
+//!   routines off standard output: descriptor 1 goes to standard error, and tancheck's own
+//!   output ([`stdout`]) to a saved copy of the real standard output, so `--json -` stays
+//!   parseable whatever the routine prints (C `printf`, Fortran `print *`). No system call
+//!   per routine call: the descriptors are swapped once.
+//! - [`begin_report`] replaces an earlier report at once with an "incomplete" marker, and
+//!   prepares the last words' JSON report for that file.
+//! - [`start_watchdog`] starts a thread that reads the guard's call counters (two atomic
+//!   increments per call, nothing else): a call that runs past the call time limit, or a
+//!   check past the whole-check limit, ends the process with the fault, the increment and its
+//!   inputs, and the JSON report (exit 3); a long check prints progress on standard error.
+
+use std::io::{LineWriter, Write};
+use std::mem::ManuallyDrop;
+use std::os::fd::FromRawFd;
+use std::path::Path;
+use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::OnceLock;
+use std::time::{Duration, Instant};
+
+use anyhow::{Context, Result};
+use tancheck_abi::watch::{self, Phase};
+
+/// The largest time limit accepted, in seconds (one day).
+pub const MAX_SECONDS: f64 = 86_400.0;
+/// Default time limit of one routine call, in seconds (with and without --isolate).
+pub const DEFAULT_CALL_TIMEOUT: f64 = 30.0;
+/// Default time limit of a whole check, in seconds.
+pub const DEFAULT_SUITE_TIMEOUT: f64 = 600.0;
+
+static TOOL_STDOUT: OnceLock<Option<i32>> = OnceLock::new();
+static CHECKING: AtomicBool = AtomicBool::new(false);
+static ARMED: AtomicBool = AtomicBool::new(false);
+static WATCHDOG: OnceLock<()> = OnceLock::new();
+
+/// Arm the watch and protect standard output. Call once, first thing in `main`.
+pub fn init() {
+    ARMED.store(watch::arm().is_ok(), Ordering::SeqCst);
+    TOOL_STDOUT.get_or_init(watch::protect_stdout);
+}
+
+/// End the program with `code`: its own exit, which a routine's thread calling `exit` at the
+/// same moment cannot turn into another status.
+pub fn finish(code: i32) -> ! {
+    if ARMED.load(Ordering::SeqCst) {
+        watch::finish(code);
+    }
+    std::process::exit(code)
+}
+
+/// tancheck's own standard output (the real one, whatever descriptor 1 is now).
+pub struct ToolStdout(ManuallyDrop<std::fs::File>);
+
+impl Write for ToolStdout {
+    fn write(&mut self, buf: &[u8]) -> std::io::Result<usize> {
+        self.0.write(buf)
+    }
+    fn flush(&mut self) -> std::io::Result<()> {
+        Ok(())
+    }
+}
+
+/// A line-buffered writer to tancheck's own standard output (flushed when dropped).
+pub fn stdout() -> LineWriter<ToolStdout> {
+    let fd = TOOL_STDOUT.get().copied().flatten().unwrap_or(1);
+    // SAFETY: `fd` is an open descriptor for the life of the process (the saved copy, or
+    // descriptor 1); ManuallyDrop keeps it from being closed.
+    LineWriter::new(ToolStdout(ManuallyDrop::new(unsafe { std::fs::File::from_raw_fd(fd) })))
+}
+
+/// The routine's calls begin (the watchdog times them) or are over (the report is written).
+pub fn checking(on: bool) {
+    CHECKING.store(on, Ordering::SeqCst);
+    // Only in the program (armed by `init`): a library using this crate keeps its exits.
+    if ARMED.load(Ordering::SeqCst) {
+        watch::set_phase(if on { Phase::Checking } else { Phase::Reporting });
+    }
+}
+
+fn head(routine: &str) -> String {
+    let v = serde_json::json!({
+        "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        "routine": routine,
+        "cautions": tancheck_core::report::CAUTIONS,
+    });
+    let mut s = v.to_string();
+    s.pop(); // the closing brace: the last words append the verdict and the fault
+    s
+}
+
+/// Before anything else of a run that writes a JSON report to `json`: replace an earlier
+/// report at once by an "incomplete" marker (so CI never reads yesterday's verdict, and a
+/// run that dies without last words leaves a report that says so), and point the last words
+/// at it. `routine` names the routine (for the marker and the last words).
+pub fn begin_report(json: Option<&Path>, routine: &str) -> Result<()> {
+    name_routine(json, routine, true)
+}
+
+/// Name the routine in the last words (once it is known), for the report at `json`.
+pub fn set_routine(json: Option<&Path>, routine: &str) {
+    let _ = name_routine(json, routine, false);
+}
+
+fn name_routine(json: Option<&Path>, routine: &str, marker: bool) -> Result<()> {
+    watch::set_label(routine);
+    match json {
+        None => {
+            watch::set_report(&head(routine), "", "", false);
+        }
+        Some(p) if p.as_os_str() == "-" => {
+            watch::set_report(&head(routine), "", "", true);
+        }
+        Some(p) => {
+            if marker {
+                write_marker(p, routine)?;
+            }
+            let tmp = crate::report::temporary_name(p);
+            watch::set_report(&head(routine), &p.to_string_lossy(), &tmp.to_string_lossy(), false);
+        }
+    }
+    Ok(())
+}
+
+fn write_marker(p: &Path, routine: &str) -> Result<()> {
+    {
+        {
+            let marker = serde_json::json!({
+                "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+                "routine": routine,
+                "verdict": "incomplete",
+                "message": "tancheck started this report and did not finish it: still running, or \
+                            ended from outside (killed); this is not a result",
+                "cautions": tancheck_core::report::CAUTIONS,
+            });
+            let mut text = serde_json::to_vec_pretty(&marker)?;
+            text.push(b'\n');
+            crate::report::write_atomic(p, &text)
+                .with_context(|| format!("replacing the report {} at the start of the run", p.display()))?;
+        }
+    }
+    Ok(())
+}
+
+/// Check a time limit given by the user (seconds): finite, above zero, at most [`MAX_SECONDS`].
+pub fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
+    let v: f64 = s.trim().parse().map_err(|_| format!("`{s}` is not a number of seconds"))?;
+    if !v.is_finite() || v <= 0.0 || v > MAX_SECONDS {
+        return Err(format!(
+            "`{s}`: a time limit must be a number of seconds above 0 and at most {MAX_SECONDS} (one day)"
+        ));
+    }
+    Ok(v)
+}
+
+/// How often a long check says it is still running: a third of the call time limit, between
+/// 1 and 10 seconds.
+fn progress_interval(call_timeout: f64) -> Duration {
+    Duration::from_secs_f64((call_timeout / 3.0).clamp(1.0, 10.0))
+}
+
+/// Start the watchdog (once per process; not in an --isolate worker, whose parent watches).
+/// `suite_timeout` limits the whole check when given.
+pub fn start_watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
+    if std::env::var_os(crate::isolate::HEARTBEAT_ENV).is_some() {
+        return;
+    }
+    WATCHDOG.get_or_init(|| {
+        let spawned = std::thread::Builder::new().name("tancheck-watchdog".into()).spawn(move || {
+            watchdog(call_timeout, suite_timeout);
+        });
+        if let Err(e) = spawned {
+            eprintln!(
+                "tancheck: warning: no watchdog thread ({e}): a routine that hangs will hang the check"
+            );
+        }
+    });
+}
+
+fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
+    let started = Instant::now();
+    let every = progress_interval(call_timeout);
+    let mut next_progress = started + every;
+    // The call seen running, and since when.
+    let mut seen: Option<(u64, Instant)> = None;
+    // Since when a library has been loading.
+    let mut loading: Option<Instant> = None;
+    loop {
+        std::thread::sleep(Duration::from_millis(50));
+        let w = watch::watch();
+        let now = Instant::now();
+        if w.loading {
+            let since = *loading.get_or_insert(now);
+            if now.duration_since(since).as_secs_f64() > call_timeout {
+                watch::die(
+                    crate::exit::ROUTINE_FAULT,
+                    &format!(
+                        "the library did not finish loading within {call_timeout} s (a constructor that \
+                         hangs?; --call-timeout sets the limit)"
+                    ),
+                );
+            }
+        } else {
+            loading = None;
+        }
+        if !CHECKING.load(Ordering::SeqCst) {
+            seen = None;
+            continue;
+        }
+        if w.in_call() {
+            match seen {
+                Some((begun, since)) if begun == w.calls_begun => {
+                    if now.duration_since(since).as_secs_f64() > call_timeout {
+                        watch::die(
+                            crate::exit::ROUTINE_FAULT,
+                            &format!(
+                                "the routine did not return within {call_timeout} s (an infinite loop, \
+                                 a deadlock or a long sleep?; --call-timeout sets the limit)"
+                            ),
+                        );
+                    }
+                }
+                _ => seen = Some((w.calls_begun, now)),
+            }
+        } else {
+            seen = None;
+        }
+        if let Some(limit) = suite_timeout {
+            if now.duration_since(started).as_secs_f64() > limit {
+                watch::die(
+                    crate::exit::ROUTINE_FAULT,
+                    &format!("the check did not finish within {limit} s (--suite-timeout sets the limit)"),
+                );
+            }
+        }
+        if now >= next_progress {
+            next_progress = now + every;
+            let running = match seen {
+                Some((_, since)) => {
+                    format!(", the current call running for {:.0} s", since.elapsed().as_secs_f64())
+                }
+                None => String::new(),
+            };
+            eprintln!(
+                "tancheck: still checking after {:.0} s: increment {}, {} routine calls so far{running}",
+                started.elapsed().as_secs_f64(),
+                w.increment,
+                w.calls_begun
+            );
+        }
+    }
+}

@@ -1,0 +1,410 @@
+//! tancheck survives any routine: every class of misbehaviour of `fortran-shim/examples/`
+//! (misbehave.c, misbehave_ctor.c, misbehave_omp.c, misbehave.F90) is reported with the
+//! documented exit code and a valid JSON report naming the fault, with and without
+//! --isolate; correct routines that leave threads running or print pass; nothing is left
+//! behind when tancheck is stopped. Every test uses short time limits.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output, Stdio};
+use std::sync::OnceLock;
+use std::time::{Duration, Instant};
+
+use serde_json::Value;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-survive-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn source(rel: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
+}
+
+fn build(name: &str, src: &str) -> PathBuf {
+    let lib = scratch(name).join(format!("lib{name}.so"));
+    let o = bin().arg("build").arg(source(src)).arg("-o").arg(&lib).output().unwrap();
+    assert!(o.status.success(), "{}", text(&o));
+    lib
+}
+
+fn misbehave() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("misbehave", "fortran-shim/examples/c/misbehave.c"))
+}
+
+/// misbehave_omp.c with -fopenmp (real and complex-step twin), built by the C compiler.
+fn openmp() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let d = scratch("omp");
+        let src = source("fortran-shim/examples/c/misbehave_omp.c");
+        let inc = source("fortran-shim/include");
+        let cc = std::env::var("CC").unwrap_or_else(|_| "cc".into());
+        let mut objs = Vec::new();
+        for (twin, obj) in [(None, "real.o"), (Some("-DTC_COMPLEX"), "cx.o")] {
+            let o = d.join(obj);
+            let out = Command::new(&cc)
+                .args(["-O2", "-fPIC", "-fopenmp", "-c"])
+                .args(twin)
+                .arg("-I")
+                .arg(&inc)
+                .arg(&src)
+                .arg("-o")
+                .arg(&o)
+                .output()
+                .unwrap();
+            assert!(out.status.success(), "{cc} -fopenmp: {}", text(&out));
+            objs.push(o);
+        }
+        let lib = d.join("libomp_elastic.so");
+        let out =
+            Command::new(&cc).args(["-shared", "-fopenmp"]).args(&objs).arg("-o").arg(&lib).output().unwrap();
+        assert!(out.status.success(), "{}", text(&out));
+        lib
+    })
+}
+
+struct Run {
+    code: Option<i32>,
+    text: String,
+    stderr: String,
+    json: Value,
+}
+
+/// `tancheck check` of `symbol` in `lib` (6 components, properties [E, nu], 2 state
+/// variables) along `steps` increments of uniaxial strain, with the JSON report in a file.
+fn check(lib: &Path, symbol: &str, steps: usize, flags: &[&str]) -> Run {
+    let d = scratch(&format!("{symbol}-{}", flags.join("").replace(['-', '/'], "")));
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": {steps} }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    let json = d.join("report.json");
+    let o = bin()
+        .arg("check")
+        .arg(&m)
+        .args(flags)
+        .arg("--json")
+        .arg(&json)
+        .stdin(Stdio::null())
+        .output()
+        .unwrap();
+    let t = text(&o);
+    let bytes =
+        std::fs::read(&json).unwrap_or_else(|e| panic!("{symbol} {flags:?}: no JSON report ({e})\n{t}"));
+    let value: Value = serde_json::from_slice(&bytes)
+        .unwrap_or_else(|e| panic!("{symbol} {flags:?}: the report is not JSON ({e})\n{t}"));
+    Run {
+        code: o.status.code(),
+        text: t,
+        stderr: String::from_utf8_lossy(&o.stderr).into_owned(),
+        json: value,
+    }
+}
+
+/// The check with `--json -`: standard output must be exactly one JSON report.
+fn check_json_stdout(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, Value) {
+    let d = scratch(&format!("{symbol}-stdout{}", flags.join("").replace('-', "")));
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    let o = bin().arg("check").arg(&m).args(flags).args(["--json", "-"]).output().unwrap();
+    let v = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
+        panic!(
+            "{symbol} {flags:?}: standard output is not one JSON report ({e}):\n{}",
+            String::from_utf8_lossy(&o.stdout)
+        )
+    });
+    (o.status.code(), v)
+}
+
+fn message(r: &Run) -> String {
+    r.json["fault"]["message"].as_str().unwrap_or_default().to_string()
+}
+
+fn assert_fault(r: &Run, what: &str, code: i32, words: &str) {
+    assert_eq!(r.code, Some(code), "{what}: {}", r.text);
+    assert_eq!(r.json["verdict"], "routine-fault", "{what}: {}", r.json);
+    assert!(message(r).contains(words), "{what}: the report's fault does not say `{words}`: {}", r.json);
+}
+
+/// The fault happened in increment 2 and the report has that call's inputs.
+fn assert_increment_2(r: &Run, what: &str) {
+    assert_eq!(r.json["fault"]["call"]["increment"], 2, "{what}: {}", r.json);
+    assert_eq!(r.json["fault"]["call"]["props"][0], 210000.0, "{what}: {}", r.json);
+}
+
+#[test]
+fn a_helper_thread_left_running_does_not_crash_tancheck() {
+    for flags in [&[][..], &["--isolate"][..]] {
+        let r = check(misbehave(), "bad_helper_thread", 4, flags);
+        assert_eq!(r.code, Some(0), "{flags:?}: {}", r.text);
+        assert_eq!(r.json["verdict"], "pass", "{flags:?}");
+    }
+}
+
+#[test]
+fn an_openmp_routine_passes_and_tancheck_ends_cleanly() {
+    for flags in [&["--scheme", "central", "--scheme", "complex-step"][..], &["--isolate"][..]] {
+        let r = check(openmp(), "omp_elastic", 4, flags);
+        assert_eq!(r.code, Some(0), "{flags:?}: {}", r.text);
+        assert_eq!(r.json["verdict"], "pass", "{flags:?}");
+        assert!(!r.text.contains("heap corruption"), "{}", r.text);
+    }
+}
+
+#[test]
+fn exit_from_a_thread_during_a_call_is_a_fault_never_a_pass() {
+    let r = check(misbehave(), "bad_thread_exit", 3, &[]);
+    assert_fault(&r, "in-process", 70, "exit()");
+    assert!(r.json["fault"]["when"].as_str().unwrap().contains("increment 2"), "{}", r.json);
+    assert_increment_2(&r, "in-process");
+    assert!(r.text.contains("tancheck: FAULT"), "{}", r.text);
+    let r = check(misbehave(), "bad_thread_exit", 3, &["--isolate"]);
+    assert_fault(&r, "isolated", 3, "exit()");
+    assert_increment_2(&r, "isolated");
+}
+
+#[test]
+fn exit_from_a_thread_between_calls_is_a_fault_never_a_pass() {
+    // The thread calls exit(0) 1 ms after the call of increment 2 returned: later in the
+    // check, or while the report is written; 400 increments take long enough either way.
+    let r = check(misbehave(), "bad_late_exit", 400, &["-q"]);
+    assert_fault(&r, "in-process", 70, "exit()");
+    let r = check(misbehave(), "bad_late_exit", 400, &["-q", "--isolate"]);
+    assert_fault(&r, "isolated", 3, "exit()");
+}
+
+#[test]
+fn exit_in_a_library_constructor_is_a_fault_during_the_load() {
+    let lib = build("ctor", "fortran-shim/examples/c/misbehave_ctor.c");
+    let r = check(&lib, "ctor_elastic", 2, &[]);
+    assert_fault(&r, "in-process", 70, "exit()");
+    assert!(r.json["fault"]["when"].as_str().unwrap().contains("loaded"), "{}", r.json);
+    let r = check(&lib, "ctor_elastic", 2, &["--isolate"]);
+    assert_fault(&r, "isolated", 3, "being loaded");
+}
+
+#[test]
+fn a_library_constructor_that_hangs_is_stopped_by_the_call_time_limit() {
+    let lib = build("ctor-sleep", "fortran-shim/examples/c/misbehave_ctor.c");
+    let d = scratch("ctor-sleep-run");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "ctor_elastic", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    for (flags, words) in [
+        (&[][..], "did not finish loading within 1 s"),
+        (&["--isolate"][..], "did not reach the first routine call"),
+    ] {
+        let json = d.join("r.json");
+        let o = bin()
+            .arg("check")
+            .arg(&m)
+            .args(flags)
+            .args(["--call-timeout", "1", "--json"])
+            .arg(&json)
+            .env("MISBEHAVE_CTOR", "sleep")
+            .output()
+            .unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(3), "{flags:?}: {t}");
+        let v: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+        assert_eq!(v["verdict"], "routine-fault", "{v}");
+        assert!(v["fault"]["message"].as_str().unwrap().contains(words), "{flags:?}: {v}");
+    }
+}
+
+#[test]
+fn exit_during_a_call_writes_the_report_with_the_increment_and_its_inputs() {
+    let r = check(misbehave(), "bad_exit", 3, &[]);
+    assert_fault(&r, "in-process", 70, "exit()");
+    assert_increment_2(&r, "in-process");
+    assert!(r.text.contains("the inputs of that call (increment 2)"), "{}", r.text);
+    let r = check(misbehave(), "bad_exit", 3, &["--isolate"]);
+    assert_fault(&r, "isolated", 3, "exit()");
+    assert_increment_2(&r, "isolated");
+}
+
+#[test]
+fn a_fortran_stop_writes_the_report_with_the_increment() {
+    if !tancheck::abi::fortran_for_test("a_fortran_stop_writes_the_report_with_the_increment") {
+        return;
+    }
+    let lib = build("fstop", "fortran-shim/examples/fortran/misbehave.F90");
+    let r = check(&lib, "f_bad_stop", 3, &[]);
+    assert_fault(&r, "in-process", 70, "exit()");
+    assert_increment_2(&r, "in-process");
+    let r = check(&lib, "f_bad_stop", 3, &["--isolate"]);
+    assert_fault(&r, "isolated", 3, "exit()");
+    assert_increment_2(&r, "isolated");
+}
+
+#[test]
+fn heap_corruption_is_a_fault_with_its_increment() {
+    for (flags, what) in [(&[][..], "in-process"), (&["--isolate"][..], "isolated")] {
+        let r = check(misbehave(), "bad_heap_corruption", 3, flags);
+        assert_fault(&r, what, 3, "heap");
+        assert_eq!(r.json["fault"]["signal"], 6, "{what}: {}", r.json);
+        assert_increment_2(&r, what);
+    }
+}
+
+#[test]
+fn a_sleeping_routine_is_stopped_by_the_call_time_limit() {
+    let t0 = Instant::now();
+    let r = check(misbehave(), "bad_sleep", 3, &["--call-timeout", "2"]);
+    assert_fault(&r, "in-process", 3, "did not return within 2 s");
+    assert_increment_2(&r, "in-process");
+    // While it hung, tancheck said it was still running.
+    assert!(r.stderr.contains("still checking"), "{}", r.stderr);
+    let r = check(misbehave(), "bad_sleep", 3, &["--call-timeout", "2", "--isolate"]);
+    assert_fault(&r, "isolated", 3, "did not return within 2 s");
+    assert_eq!(r.json["fault"]["increment"], 2, "{}", r.json);
+    assert!(t0.elapsed() < Duration::from_secs(60));
+}
+
+#[test]
+fn an_infinite_loop_is_stopped_without_isolation_too() {
+    let r = check(misbehave(), "bad_infinite_loop", 3, &["--call-timeout", "1"]);
+    assert_fault(&r, "in-process", 3, "did not return within 1 s");
+    assert_increment_2(&r, "in-process");
+}
+
+#[test]
+fn printing_routines_leave_the_json_on_standard_output_intact() {
+    for flags in [&[][..], &["--isolate"][..]] {
+        let (code, v) = check_json_stdout(misbehave(), "bad_printf", flags);
+        assert_eq!(code, Some(0), "{flags:?}: {v}");
+        assert_eq!(v["verdict"], "pass");
+    }
+    if !tancheck::abi::fortran_for_test(
+        "printing_routines_leave_the_json_on_standard_output_intact (Fortran)",
+    ) {
+        return;
+    }
+    let lib = build("fprint", "fortran-shim/examples/fortran/misbehave.F90");
+    for flags in [&[][..], &["--isolate"][..]] {
+        let (code, v) = check_json_stdout(&lib, "f_print", flags);
+        assert_eq!(code, Some(0), "{flags:?}: {v}");
+        assert_eq!(v["verdict"], "pass");
+    }
+}
+
+#[test]
+fn non_finite_outputs_carry_the_inputs_of_the_call() {
+    let r = check(misbehave(), "bad_divide_by_zero", 3, &[]);
+    assert_eq!(r.code, Some(1), "{}", r.text);
+    let inc = &r.json["increments"][1];
+    assert!(!inc["non_finite"].as_array().unwrap().is_empty(), "{inc}");
+    assert_eq!(inc["non_finite_call"]["increment"], 2, "{inc}");
+    assert_eq!(inc["non_finite_call"]["props"][0], 210000.0, "{inc}");
+    assert!(r.text.contains("inputs of that call (increment 2)"), "{}", r.text);
+}
+
+/// Processes whose environment says they are workers of `parent`.
+fn workers_of(parent: u32) -> Vec<u32> {
+    let want = format!("TANCHECK_WORKER_PARENT={parent}");
+    std::fs::read_dir("/proc")
+        .unwrap()
+        .filter_map(|e| e.ok()?.file_name().to_str()?.parse::<u32>().ok())
+        .filter(|pid| {
+            std::fs::read(format!("/proc/{pid}/environ"))
+                .map(|env| env.split(|&b| b == 0).any(|v| v == want.as_bytes()))
+                .unwrap_or(false)
+        })
+        .collect()
+}
+
+fn wait_until(what: &str, mut done: impl FnMut() -> bool) {
+    let t0 = Instant::now();
+    while !done() {
+        assert!(t0.elapsed() < Duration::from_secs(20), "timed out waiting: {what}");
+        std::thread::sleep(Duration::from_millis(50));
+    }
+}
+
+/// Start `tancheck check --isolate` on the sleeping routine and wait until its worker hangs.
+fn start_hanging_isolated(name: &str) -> (std::process::Child, PathBuf, PathBuf) {
+    let d = scratch(name);
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_sleep", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            misbehave().display()
+        ),
+    )
+    .unwrap();
+    let json = d.join("report.json");
+    let child = bin()
+        .arg("check")
+        .arg(&m)
+        .args(["--isolate", "--call-timeout", "600", "--json"])
+        .arg(&json)
+        .stdout(Stdio::null())
+        .stderr(Stdio::null())
+        .spawn()
+        .unwrap();
+    let folder = std::env::temp_dir().join(format!("tancheck-worker-{}", child.id()));
+    let pid = child.id();
+    wait_until("the worker starts", || !workers_of(pid).is_empty() && folder.join("heartbeat").exists());
+    std::thread::sleep(Duration::from_millis(300));
+    (child, folder, json)
+}
+
+#[test]
+fn stopping_the_parent_ends_the_worker_and_removes_its_folder() {
+    for (sig, code) in [("-TERM", 143), ("-INT", 130)] {
+        let (mut child, folder, json) = start_hanging_isolated(&format!("stop{sig}"));
+        let pid = child.id();
+        let s = Command::new("kill").arg(sig).arg(pid.to_string()).status().unwrap();
+        assert!(s.success());
+        let status = child.wait().unwrap();
+        assert_eq!(status.code(), Some(code), "{sig}");
+        wait_until("the worker ends", || workers_of(pid).is_empty());
+        assert!(!folder.exists(), "{sig}: the worker's folder {} is left", folder.display());
+        // The report says the run did not finish; it is never an earlier verdict.
+        let v: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+        assert_eq!(v["verdict"], "incomplete", "{v}");
+    }
+}
+
+#[test]
+fn the_worker_dies_with_its_parent() {
+    let (mut child, folder, _) = start_hanging_isolated("parent-death");
+    let pid = child.id();
+    child.kill().unwrap(); // SIGKILL: the parent has no last words
+    child.wait().unwrap();
+    wait_until("the worker follows its parent", || workers_of(pid).is_empty());
+    wait_until("the worker removes its folder", || !folder.exists());
+}
