@@ -74,6 +74,36 @@ fn openmp() -> &'static Path {
     })
 }
 
+/// Run `cmd` to its end, but never longer than two minutes: a hang fails the test instead of
+/// hanging the suite.
+fn output(cmd: &mut Command) -> Output {
+    let mut child = cmd.stdout(Stdio::piped()).stderr(Stdio::piped()).spawn().unwrap();
+    let (mut out, mut err) = (child.stdout.take().unwrap(), child.stderr.take().unwrap());
+    let o = std::thread::spawn(move || {
+        let mut b = Vec::new();
+        std::io::Read::read_to_end(&mut out, &mut b).ok();
+        b
+    });
+    let e = std::thread::spawn(move || {
+        let mut b = Vec::new();
+        std::io::Read::read_to_end(&mut err, &mut b).ok();
+        b
+    });
+    let t0 = Instant::now();
+    let status = loop {
+        if let Some(s) = child.try_wait().unwrap() {
+            break s;
+        }
+        if t0.elapsed() > Duration::from_secs(120) {
+            let _ = child.kill();
+            let _ = child.wait();
+            panic!("tancheck did not end within 120 s: {cmd:?}");
+        }
+        std::thread::sleep(Duration::from_millis(20));
+    };
+    Output { status, stdout: o.join().unwrap(), stderr: e.join().unwrap() }
+}
+
 struct Run {
     code: Option<i32>,
     text: String,
@@ -131,7 +161,7 @@ fn check_json_stdout(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, 
         ),
     )
     .unwrap();
-    let o = bin().arg("check").arg(&m).args(flags).args(["--json", "-"]).output().unwrap();
+    let o = output(bin().arg("check").arg(&m).args(flags).args(["--json", "-"]));
     let v = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
         panic!(
             "{symbol} {flags:?}: standard output is not one JSON report ({e}):\n{}",
@@ -226,15 +256,15 @@ fn a_library_constructor_that_hangs_is_stopped_by_the_call_time_limit() {
         (&["--isolate"][..], "did not reach the first routine call"),
     ] {
         let json = d.join("r.json");
-        let o = bin()
-            .arg("check")
-            .arg(&m)
-            .args(flags)
-            .args(["--call-timeout", "1", "--json"])
-            .arg(&json)
-            .env("MISBEHAVE_CTOR", "sleep")
-            .output()
-            .unwrap();
+        let o = output(
+            bin()
+                .arg("check")
+                .arg(&m)
+                .args(flags)
+                .args(["--call-timeout", "1", "--json"])
+                .arg(&json)
+                .env("MISBEHAVE_CTOR", "sleep"),
+        );
         let t = text(&o);
         assert_eq!(o.status.code(), Some(3), "{flags:?}: {t}");
         let v: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();

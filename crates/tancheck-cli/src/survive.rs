@@ -168,13 +168,24 @@ pub fn start_watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
         return;
     }
     WATCHDOG.get_or_init(|| {
+        let (ready, started) = std::sync::mpsc::channel();
         let spawned = std::thread::Builder::new().name("tancheck-watchdog".into()).spawn(move || {
+            // Everything the thread needs from the C library's loader (its thread-locals and
+            // their destructors) is set up now, before a library is loaded: a constructor
+            // that hangs holds the loader's lock, and the watchdog must still run then.
+            let _ = std::thread::current();
+            eprint!("");
+            let _ = Instant::now();
+            let _ = ready.send(());
             watchdog(call_timeout, suite_timeout);
         });
-        if let Err(e) = spawned {
-            eprintln!(
+        match spawned {
+            Ok(_) => {
+                let _ = started.recv_timeout(Duration::from_secs(10));
+            }
+            Err(e) => eprintln!(
                 "tancheck: warning: no watchdog thread ({e}): a routine that hangs will hang the check"
-            );
+            ),
         }
     });
 }
