@@ -1,7 +1,7 @@
 //! The C and Fortran Johnson–Cook point routines (fortran-shim/examples/c/jc.c,
-//! fortran/jc.F90: `*_jc` and the flawed `*_jc_no_rate_tangent`), compiled, loaded and called
+//! fortran/jc.F90: `*_jc` and the flawed `*_jc_no_rate_term`), compiled, loaded and called
 //! through the guarded shim, give the same stress, state, tangent and ∂σ/∂ΔT as the Rust models
-//! `johnson-cook` / `johnson-cook-no-rate-tangent`, and their complex twins the same
+//! `johnson-cook` / `johnson-cook-no-rate-term`, and their complex twins the same
 //! complex-step derivatives, along random walks with random time increments (rate floor to fast)
 //! and temperatures.
 //!
@@ -203,9 +203,7 @@ fn compare(
 fn check_language(lib: &Path, prefix: &str) {
     for kind in [PointKind::Solid3d, PointKind::PlaneStrain, PointKind::Axisymmetric] {
         for props in [STEEL, COPPER] {
-            for (model, sym) in
-                [("johnson-cook", "jc"), ("johnson-cook-no-rate-tangent", "jc_no_rate_tangent")]
-            {
+            for (model, sym) in [("johnson-cook", "jc"), ("johnson-cook-no-rate-term", "jc_no_rate_term")] {
                 let (e, p) = compare(model, kind, lib, &format!("{prefix}_{sym}"), &props, 14);
                 assert!(
                     e >= 20 && p >= 20,

@@ -176,7 +176,7 @@ impl JohnsonCook {
     /// Name of the model with the consistent tangent.
     pub const NAME: &'static str = "johnson-cook";
     /// Name of the model whose tangent leaves out the rate term.
-    pub const NO_RATE_TANGENT_NAME: &'static str = "johnson-cook-no-rate-tangent";
+    pub const NO_RATE_TERM_NAME: &'static str = "johnson-cook-no-rate-term";
     /// Meaning of each property, in order.
     pub const PROP_NAMES: [&'static str; 18] = [
         "E",
@@ -210,7 +210,7 @@ impl JohnsonCook {
     pub fn with_tangent(kind: PointKind, tangent: JcTangent) -> Result<JohnsonCook, ModelError> {
         let name = match tangent {
             JcTangent::Consistent => Self::NAME,
-            JcTangent::NoRateTerm => Self::NO_RATE_TANGENT_NAME,
+            JcTangent::NoRateTerm => Self::NO_RATE_TERM_NAME,
         };
         let slots: &'static [usize] = match kind {
             PointKind::Solid3d => &SLOTS_6,

@@ -92,7 +92,7 @@ impl AnyModel {
             }
             Orthotropic::NAME => Ok(AnyModel::Orthotropic(Orthotropic::new(kind)?)),
             JohnsonCook::NAME => Ok(AnyModel::JohnsonCook(JohnsonCook::new(kind)?)),
-            JohnsonCook::NO_RATE_TANGENT_NAME => {
+            JohnsonCook::NO_RATE_TERM_NAME => {
                 Ok(AnyModel::JohnsonCook(JohnsonCook::with_tangent(kind, JcTangent::NoRateTerm)?))
             }
             _ => Err(ModelError::UnknownName { name: name.to_string() }),

@@ -1,4 +1,4 @@
-//! The Johnson–Cook point model (`johnson-cook`, and the flawed `johnson-cook-no-rate-tangent`)
+//! The Johnson–Cook point model (`johnson-cook`, and the flawed `johnson-cook-no-rate-term`)
 //! against the published check values of REFERENCES.md ("Johnson–Cook": Johnson & Cook 1983
 //! flow stress, Johnson & Cook 1985 fracture strain, 4340 steel and OFHC copper), and its
 //! tangent and ∂σ/∂T against num-dual (an independent library) and the complex step of its own
@@ -326,7 +326,7 @@ fn plastic_steps_end_on_the_rate_dependent_yield_surface() {
 fn the_tangent_without_the_rate_term_is_wrong_only_above_the_floor() {
     let good = JohnsonCook::new(PointKind::PlaneStrain).unwrap();
     let bad = JohnsonCook::with_tangent(PointKind::PlaneStrain, JcTangent::NoRateTerm).unwrap();
-    assert_eq!(bad.info().name, "johnson-cook-no-rate-tangent");
+    assert_eq!(bad.info().name, "johnson-cook-no-rate-term");
     let mk = |dtime| Point {
         props: steel_4340(),
         strain: vec![0.0; 4],
@@ -416,7 +416,7 @@ fn bad_properties_and_kinds_are_refused() {
         assert!(out.outcome.message_text().contains(word), "{}", out.outcome.message_text());
     }
     assert!(JohnsonCook::new(PointKind::PlaneStress).is_err());
-    let any = AnyModel::new("johnson-cook-no-rate-tangent", PointKind::Axisymmetric).unwrap();
+    let any = AnyModel::new("johnson-cook-no-rate-term", PointKind::Axisymmetric).unwrap();
     assert_eq!((any.info().nstate, any.info().nprop), (7, 18));
 }
 

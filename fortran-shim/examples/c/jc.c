@@ -1,6 +1,6 @@
 /*
  * jc.c -- Johnson-Cook plasticity as a point routine, the reference routines "johnson-cook"
- * and "johnson-cook-no-rate-tangent" in C: small-strain J2 radial return (the trial state and
+ * and "johnson-cook-no-rate-term" in C: small-strain J2 radial return (the trial state and
  * tangent of j2.c, without back stress) with the flow stress of Johnson & Cook (1983), Proc.
  * 7th Int. Symp. Ballistics, 541-547,
  *   sigma_y = [A + B ep^n] [1 + C ln rate*] [1 - T*^m],  T* = (T - T_r) / (T_m - T_r),
@@ -8,7 +8,7 @@
  *   D += d(ep) / eps_f,  eps_f = [D1 + D2 exp(D3 s*)] [1 + D4 ln rate*] [1 + D5 T*].
  *
  *   c_jc                    the consistent tangent, rate term included
- *   c_jc_no_rate_tangent    the same update with the tangent missing the rate term: a
+ *   c_jc_no_rate_term    the same update with the tangent missing the rate term: a
  *                           deliberately wrong Jacobian, for tancheck to find
  *
  * Layout (DEVELOPERS.md, "Reference models"): ncomp 6 (11, 22, 33, 23, 13, 12) or 4
@@ -27,9 +27,9 @@
  * the norm is sqrt(sum x_i^2) without conjugation, and the last iteration of the return map
  * is a Newton correction of the derivative (imaginary) part only.
  *
- * Build: cc -I fortran-shim/include -c jc.c               exports c_jc, c_jc_no_rate_tangent
+ * Build: cc -I fortran-shim/include -c jc.c               exports c_jc, c_jc_no_rate_term
  *        cc -I fortran-shim/include -DTC_COMPLEX -c jc.c  exports c_jc_cx,
- *                                                          c_jc_no_rate_tangent_cx
+ *                                                          c_jc_no_rate_term_cx
  */
 #include <math.h>
 
@@ -314,7 +314,7 @@ TC_ROUTINE(c_jc)
               energy, report, 1);
 }
 
-TC_ROUTINE(c_jc_no_rate_tangent)
+TC_ROUTINE(c_jc_no_rate_term)
 {
     (void)stress0;
     jc_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,

@@ -1,10 +1,10 @@
 ! jc.F90 -- Johnson-Cook plasticity as a point routine, the reference routines "johnson-cook"
-! and "johnson-cook-no-rate-tangent" in Fortran: small-strain J2 radial return with the flow
+! and "johnson-cook-no-rate-term" in Fortran: small-strain J2 radial return with the flow
 ! stress of Johnson & Cook (1983), Proc. 7th Int. Symp. Ballistics, 541-547, and the damage
 ! indicator of Johnson & Cook (1985), Eng. Fract. Mech. 21(1):31-48.
 !
 !   f_jc                    the consistent tangent, rate term included
-!   f_jc_no_rate_tangent    the same update with the tangent missing the rate term: a
+!   f_jc_no_rate_term    the same update with the tangent missing the rate term: a
 !                           deliberately wrong Jacobian, for tancheck to find
 !
 ! Layout (DEVELOPERS.md, "Reference models"): ncomp 6 (11, 22, 33, 23, 13, 12) or 4
@@ -22,7 +22,7 @@
 !
 ! Build (after compiling the modules tancheck_routine and tancheck_cstep):
 !   gfortran -cpp -I fortran-shim/include -c jc.F90               exports f_jc,
-!                                                                  f_jc_no_rate_tangent
+!                                                                  f_jc_no_rate_term
 !   gfortran -cpp -I fortran-shim/include -DTC_COMPLEX -c jc.F90  exports the _cx twins
 
 #include "tancheck_twin.inc"
@@ -57,9 +57,9 @@ contains
 end subroutine f_jc
 
 
-subroutine f_jc_no_rate_tangent(callinfo, props, strain, dstrain, temp, stress0, state0, &
+subroutine f_jc_no_rate_term(callinfo, props, strain, dstrain, temp, stress0, state0, &
                                 stress, state, tangent, dstress_dtemp, energy, report) &
-                                bind(C, name="f_jc_no_rate_tangent"//TC_SUFFIX)
+                                bind(C, name="f_jc_no_rate_term"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp
@@ -85,4 +85,4 @@ contains
 
 #include "jc_update.inc"
 
-end subroutine f_jc_no_rate_tangent
+end subroutine f_jc_no_rate_term
