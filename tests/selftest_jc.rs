@@ -31,3 +31,35 @@ fn selftest_has_the_johnson_cook_rows_right() {
         assert!(row("johnson-cook-no-rate-term", "FAIL", "term-scaled"), "{lang}: {t}");
     }
 }
+
+/// The Johnson–Cook manifest of the README, as written there (fast increments, heated start).
+fn readme_manifest() -> String {
+    let readme = std::fs::read_to_string(concat!(env!("CARGO_MANIFEST_DIR"), "/README.md")).unwrap();
+    let i = readme.find("\"model\": \"johnson-cook\"").expect("the README has the Johnson–Cook manifest");
+    let a = readme[..i].rfind("```json").unwrap() + "```json".len();
+    let b = a + readme[a..].find("```").unwrap();
+    readme[a..b].to_string()
+}
+
+// `tancheck check` on the README's manifest: johnson-cook passes (exit 0); the same manifest
+// with johnson-cook-no-rate-term fails (exit 1) and names term-scaled.
+#[test]
+fn the_readme_manifest_checks_the_built_in_model() {
+    let dir = std::env::temp_dir().join(format!("tancheck-jc-manifest-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let good = dir.join("jc.json");
+    let bad = dir.join("jc-no-rate-term.json");
+    let m = readme_manifest();
+    std::fs::write(&good, &m).unwrap();
+    std::fs::write(&bad, m.replace("\"johnson-cook\"", "\"johnson-cook-no-rate-term\"")).unwrap();
+    let run = |p: &std::path::Path| {
+        let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(p).output().unwrap();
+        (o.status.code(), String::from_utf8_lossy(&o.stdout).into_owned())
+    };
+    let (code, t) = run(&good);
+    assert_eq!(code, Some(0), "{t}");
+    let (code, t) = run(&bad);
+    assert_eq!(code, Some(1), "{t}");
+    assert!(t.contains("-> term-scaled"), "{t}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
