@@ -25,8 +25,9 @@
 //! Guards, each a documented choice:
 //! - **Zero rate.** ln ε̇* → −∞ as ε̇* → 0. The rate factor uses max(ε̇*, 1) (common practice:
 //!   no rate effect below the reference rate; its derivative is zero there). The same floor is
-//!   used in the D4 term of ε_f. With Δt ≤ 0 the call has no rate information and the rate
-//!   factor is 1.
+//!   used in the D4 term of ε_f. With Δt ≤ 0 no time passes: when C > 0 the step is elastic
+//!   (the trial state), the limit Δt → 0⁺ in which the rate factor of any plastic step grows
+//!   without bound; with C = 0 the rate does not matter and the step is the usual one.
 //! - **Zero plastic strain.** d(Bε̄pⁿ)/dε̄p = nBε̄pⁿ⁻¹ is unbounded at ε̄p = 0 for n < 1. The
 //!   flow stress itself is finite there, so the yield test at the start state is exact; the
 //!   return mapping is a Newton iteration safeguarded by bisection in the bracket
@@ -348,7 +349,10 @@ impl Model for JohnsonCook {
         let kappa = p.lambda + p.mu * (2.0 / 3.0);
         output.energy.fill(S::zero());
 
-        if f_tr.re() <= 0.0 {
+        // No plastic flow in no time when the flow stress depends on the rate (see the guards).
+        let dt = input.time[1];
+        let no_time = dt <= 0.0 && p.law.c.re() > 0.0;
+        if f_tr.re() <= 0.0 || no_time {
             for (i, &slot) in slots.iter().enumerate() {
                 output.stress[i] = sigma_tr[slot];
             }
@@ -360,7 +364,6 @@ impl Model for JohnsonCook {
         }
 
         // ε̇* = Δε̄p / (Δt rate0) = rate_per_dgamma · Δγ; no rate information without Δt > 0.
-        let dt = input.time[1];
         let rate_per_dgamma = if dt > 0.0 { S::one() / (p.rate0 * dt) * r23 } else { S::zero() };
         let law = p.law;
         let radius = |dgamma: S| match law.flow(ebar_n + dgamma * r23, rate_per_dgamma * dgamma, temp) {

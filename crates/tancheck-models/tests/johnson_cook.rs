@@ -349,13 +349,15 @@ fn the_tangent_without_the_rate_term_is_wrong_only_above_the_floor() {
 }
 
 // Guards: a first plastic step from ε̄p = 0 (slope nBε̄pⁿ⁻¹ unbounded there), a zero and a
-// huge time increment (ln ε̇* at both ends), a temperature below T_r: finite outputs, exact
-// derivatives. At T_m the call fails with a message.
+// huge time increment (ln ε̇* at both ends; a zero one with C = 0, where the rate does not
+// matter), a temperature below T_r: finite outputs, exact derivatives. With C > 0 a zero time
+// increment is elastic (no plastic flow in no time); at T_m the call fails with a message.
 #[test]
 fn guards_keep_everything_finite() {
     let m = JohnsonCook::new(PointKind::Solid3d).unwrap();
-    let props = ofhc_copper();
-    // Barely past yield from the virgin state: ε11 of 1.01 × the yield strain in shear.
+    let mut props = ofhc_copper();
+    props[5] = 0.0; // C = 0 for the loop below
+                    // Barely past yield from the virgin state: ε11 of 1.01 × the yield strain in shear.
     let mu = props[0] / (2.0 * (1.0 + props[1]));
     let g_yield = props[2] / (3f64.sqrt() * mu);
     for (gamma, dtime, t0) in
@@ -382,6 +384,35 @@ fn guards_keep_everything_finite() {
         let (t_dual, _) = dual_derivatives(&m, &p);
         assert!(rel_err(&out.tangent, &t_dual) < 1e-8, "γ {gamma} dt {dtime}");
     }
+    // C > 0 and Δt = 0: the trial state, elastic tangent, state unchanged; and a zero
+    // increment over no time from a plastic state (above the static surface after a fast
+    // step) returns the start stress.
+    let props = ofhc_copper();
+    let fast = Point {
+        props: props.clone(),
+        strain: vec![0.0; 6],
+        dstrain: vec![0.0, 0.0, 0.0, 0.0, 0.0, 4.0 * g_yield],
+        state0: vec![0.0; 9],
+        temp: [293.0, 0.0],
+        dtime: 1e-6,
+    };
+    let first = run(&m, &fast);
+    assert_eq!(first.outcome.branch, 1);
+    let out = run(&m, &Point { dtime: 0.0, ..fast.clone() });
+    assert_eq!((out.outcome.status, out.outcome.branch), (status::OK, 0));
+    assert_eq!(out.state, vec![0.0; 9]);
+    let (t_dual, _) = dual_derivatives(&m, &Point { dtime: 0.0, ..fast.clone() });
+    assert!(rel_err(&out.tangent, &t_dual) < 1e-14);
+    let still = Point {
+        strain: fast.dstrain.clone(),
+        dstrain: vec![0.0; 6],
+        state0: first.state.clone(),
+        dtime: 0.0,
+        ..fast.clone()
+    };
+    let out = run(&m, &still);
+    assert_eq!(out.outcome.branch, 0);
+    assert!(rel_err(&out.stress, &first.stress) < 1e-12, "{:?} vs {:?}", out.stress, first.stress);
     let p = Point {
         props: props.clone(),
         strain: vec![0.0; 6],

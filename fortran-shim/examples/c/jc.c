@@ -18,7 +18,7 @@
  *   state [eps_p (ncomp, engineering shear), ep, D, dT_heat] (ncomp + 3); entries past these
  *     are carried through unchanged.
  * The model, its guards (rate floor rate* >= 1, bracketed Newton so the unbounded slope at
- * ep = 0 is never evaluated, T* <= 0 -> no softening, T* >= 1 fails, staggered adiabatic
+ * ep = 0 is never evaluated, dt <= 0 with C > 0 -> elastic, T* <= 0 -> no softening, T* >= 1 fails, staggered adiabatic
  * heating, damage without effect on the stress) and its tangent are those of the Rust model,
  * crates/tancheck-models/src/johnson_cook.rs, which documents each choice.
  * Branch 0 elastic, 1 plastic. Provides dstress_dtemp; no energies.
@@ -217,13 +217,15 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
     for (int k = n + 3; k < call->nstate; ++k) state[k] = state0[k];
     for (int i = 0; i < n; ++i) dstress_dtemp[i] = 0.0;
 
-    if (tc_re(f_trial) <= 0.0) {
+    /* No plastic flow in no time when the flow stress depends on the rate (dt <= 0, C > 0). */
+    const double dt = call->dtime;
+    const int no_time = dt <= 0.0 && tc_re(p[JC_C]) > 0.0;
+    if (tc_re(f_trial) <= 0.0 || no_time) {
         for (int i = 0; i < n; ++i) stress[i] = sigma_tr[i];
         for (int k = 0; k < n + 3; ++k) state[k] = state0[k];
         report->branch = 0;
     } else {
         /* rate* = d(ep) / (dt rate0) = rate_per_dg dg; no rate information without dt > 0. */
-        const double dt = call->dtime;
         const tc_real rate_per_dg = dt > 0.0 ? 1.0 / (p[JC_RATE0] * dt) * r23 : 0.0;
         /* Bracketed Newton on g(dg) = |xi_tr| - 2 mu dg - sqrt(2/3) sigma_y in (0, f_tr/(2mu)]
          * (as radial_return in crates/tancheck-models/src/j2.rs). */
