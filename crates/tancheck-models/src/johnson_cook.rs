@@ -39,10 +39,13 @@
 //! - **Temperature.** T* ≤ 0 (at or below T_r) gives the thermal factor 1 with zero slope
 //!   (common practice); T* ≥ 1 (at or above melting) fails the call (status 2) with a
 //!   message. For m < 1 the slope m T*ᵐ⁻¹ is unbounded as T* → 0⁺, as the law says.
-//! - **Adiabatic heating.** With taylor_quinney χ > 0, ΔT_heat grows by
-//!   χ σ_y Δε̄p / (density · heat_capacity) (χ ≈ 0.9 is common practice). It is staggered: the
-//!   heating of an increment softens the next increments, not the one that produced it, so
-//!   the tangent of this increment does not contain it. χ = 0 switches heating off.
+//! - **Adiabatic heating.** With taylor_quinney χ > 0 the step heats the point by
+//!   ΔT = χ σ_y(ε̄p_{n+1}, ε̇*, T_s) Δε̄p / (density · heat_capacity) (χ ≈ 0.9 is common
+//!   practice), the plastic work taken at the start temperature T_s so that ΔT is explicit in
+//!   Δε̄p, and the end stress lies on the yield surface at the end temperature T_s + ΔT: the
+//!   return mapping and the tangent include the heating of the step (a zero increment after it
+//!   returns the same stress). ΔT is added to ΔT_heat. χ = 0 switches heating off. A step whose
+//!   softening leaves no root in the bracket fails (status 2) with a message.
 //! - **Damage.** D has no effect on the stress in this point form, and no point is deleted;
 //!   the indicator reaching 1 marks damage initiation only (the block form of the model is
 //!   where deletion belongs). σ* is taken from the stress at the end of the increment and
@@ -50,9 +53,10 @@
 //!
 //! The consistent tangent is the J2 one, C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n, with
 //! θ̄ = 1/(1 + K'/(3μ)) − (1 − θ) and K' = dσ_y/dε̄p along the step:
-//! K' = ∂σ_y/∂ε̄p + ∂σ_y/∂ε̇* / (Δt · rate0) (the rate term, zero on the rate floor).
-//! [`JcTangent::NoRateTerm`] leaves the rate term out of K' (the stress update is unchanged):
-//! a routine flawed on purpose. ∂σ/∂ΔT = −2μ n dΔγ/dT, dΔγ/dT = −√(2/3) (∂σ_y/∂T)/(2μ + ⅔K')
+//! K' = ∂σ_y/∂ε̄p + ∂σ_y/∂ε̇* / (Δt · rate0) + ∂σ_y/∂T · dΔT/dε̄p (the rate term, zero on the
+//! rate floor, and the heating of the step).
+//! [`JcTangent::NoRateTerm`] leaves the rate terms out of K' (the stress update is unchanged):
+//! a routine flawed on purpose. ∂σ/∂ΔT = −2μ n dΔγ/dT, dΔγ/dT = −√(2/3) (dσ_y/dT_s)/(2μ + ⅔K')
 //! (`provides` DSTRESS_DTEMP); no energies are provided.
 
 use tancheck_core::routine::provides;
@@ -363,28 +367,35 @@ impl Model for JohnsonCook {
             return Ok(());
         }
 
-        // ε̇* = Δε̄p / (Δt rate0) = rate_per_dgamma · Δγ; no rate information without Δt > 0.
-        let rate_per_dgamma = if dt > 0.0 { S::one() / (p.rate0 * dt) * r23 } else { S::zero() };
+        // ε̇* = Δε̄p / (Δt rate0) = rate_per_alpha · Δε̄p (Δt > 0 here, or C = 0).
+        let rate_per_alpha = if dt > 0.0 { S::one() / (p.rate0 * dt) } else { S::zero() };
         let law = p.law;
-        let radius = |dgamma: S| match law.flow(ebar_n + dgamma * r23, rate_per_dgamma * dgamma, temp) {
-            Some(f) => (f.stress * r23, (f.d_strain * r23 + f.d_rate * rate_per_dgamma) * r23),
+        let heat = p.heat;
+        let radius = |dgamma: S| match heated_step(&law, heat, ebar_n, dgamma * r23, rate_per_alpha, temp) {
+            Some(st) => (st.stress * r23, st.slope * (2.0 / 3.0)),
             None => (S::cst(f64::NAN), S::cst(f64::NAN)),
         };
-        // The perfectly plastic step f_tr/(2μ) bounds the root from above: σ_y does not fall
-        // with Δγ (B ≥ 0, rate factor ≥ 1).
+        // The perfectly plastic step f_tr/(2μ) bounds the root from above when σ_y does not
+        // fall with Δγ (B ≥ 0, rate factor ≥ 1, no heating); with heating the bracket is
+        // checked and the step fails otherwise.
         let Some(dgamma) = radial_return(norm, two_mu, two_mu, Some(f_tr / two_mu), radius) else {
             fail(output, "johnson-cook: the return mapping did not converge in 200 iterations");
             return Ok(());
         };
         let ebar = ebar_n + dgamma * r23;
-        let rate_star = rate_per_dgamma * dgamma;
-        let flow = match law.flow(ebar, rate_star, temp) {
-            Some(f) if dgamma.re() > 0.0 && f.stress.re().is_finite() => f,
+        let rate_star = rate_per_alpha * dgamma * r23;
+        let step = match heated_step(&law, heat, ebar_n, dgamma * r23, rate_per_alpha, temp) {
+            Some(st) if dgamma.re() > 0.0 && st.stress.re().is_finite() && st.slope.re().is_finite() => st,
             _ => {
                 fail(output, "johnson-cook: the return mapping found no positive plastic step");
                 return Ok(());
             }
         };
+        let g_end = norm - two_mu * dgamma - step.stress * r23;
+        if g_end.re().abs() > 1e-8 * norm.re() {
+            fail(output, "johnson-cook: thermal softening in this increment leaves no plastic step on the yield surface");
+            return Ok(());
+        }
 
         let mut nrm = [S::zero(); 6];
         for k in 0..6 {
@@ -404,17 +415,17 @@ impl Model for JohnsonCook {
                 mean += output.stress[i];
             }
         }
-        let triax = mean / 3.0 / flow.stress;
-        let ef = law.fracture_strain(triax, rate_star, temp);
+        let triax = mean / 3.0 / step.stress;
+        let ef = law.fracture_strain(triax, rate_star, temp + step.heat);
         output.state[n + 1] = damage_n + dgamma * r23 / ef;
-        output.state[n + 2] = heat_n + p.heat * flow.stress * dgamma * r23;
+        output.state[n + 2] = heat_n + step.heat;
 
-        // Tangent: K' = dσ_y/dε̄p along the step, the rate term through ε̇* = Δε̄p/(Δt rate0).
-        let rate_term = flow.d_rate * rate_per_dgamma / r23;
-        let slope_full = flow.d_strain + rate_term;
+        // Tangent: K' = dσ_y/dε̄p along the step (strain, rate through ε̇* = Δε̄p/(Δt rate0),
+        // and the heating of the step).
+        let slope_full = step.slope;
         let slope = match self.tangent {
             JcTangent::Consistent => slope_full,
-            JcTangent::NoRateTerm => flow.d_strain,
+            JcTangent::NoRateTerm => step.slope - step.rate_slope,
         };
         let theta = S::one() - two_mu * dgamma / norm;
         let theta_bar = S::one() / (slope / (p.mu * 3.0) + 1.0) - (S::one() - theta);
@@ -422,11 +433,65 @@ impl Model for JohnsonCook {
         write_tangent(&c, slots, output.tangent);
 
         // ∂σ/∂ΔT through Δγ(T).
-        let ddgamma_dt = -flow.d_temp * r23 / (two_mu + slope_full * (2.0 / 3.0));
+        let ddgamma_dt = -step.d_temp0 * r23 / (two_mu + slope_full * (2.0 / 3.0));
         for (i, &slot) in slots.iter().enumerate() {
             output.dstress_dtemp[i] = -two_mu * nrm[slot] * ddgamma_dt;
         }
         succeed(output, 1, provides::DSTRESS_DTEMP);
         Ok(())
     }
+}
+
+/// The flow stress at the end of a plastic step Δε̄p from ε̄p_n, heated within the step.
+struct HeatedStep<S> {
+    /// σ_y(ε̄p_n + Δε̄p, ε̇*, T_s + ΔT).
+    stress: S,
+    /// dσ_y/dΔε̄p along the step, all terms.
+    slope: S,
+    /// The part of `slope` that comes from the rate.
+    rate_slope: S,
+    /// dσ_y/dT_s.
+    d_temp0: S,
+    /// ΔT = χ σ_y(T_s) Δε̄p / (ρ c), the heating of the step.
+    heat: S,
+}
+
+/// σ_y at the end of a step with the heating of the step: ΔT = h σ_y(ε̄p, ε̇*, T_s) Δε̄p
+/// (h = χ/(ρc); the plastic work rate taken at the start temperature, so that ΔT is explicit)
+/// and σ_y(ε̄p, ε̇*, T_s + ΔT), with its derivatives by the chain rule. `None` when either
+/// temperature is at or above T_m.
+#[inline]
+fn heated_step<S: Scalar>(
+    law: &JcLaw<S>,
+    h: S,
+    ebar_n: S,
+    dalpha: S,
+    rate_per_alpha: S,
+    t_start: S,
+) -> Option<HeatedStep<S>> {
+    let ebar = ebar_n + dalpha;
+    let rate = rate_per_alpha * dalpha;
+    let fs = law.flow(ebar, rate, t_start)?;
+    if h.re() == 0.0 {
+        let rate_slope = fs.d_rate * rate_per_alpha;
+        return Some(HeatedStep {
+            stress: fs.stress,
+            slope: fs.d_strain + rate_slope,
+            rate_slope,
+            d_temp0: fs.d_temp,
+            heat: S::zero(),
+        });
+    }
+    let heat = h * fs.stress * dalpha;
+    let fe = law.flow(ebar, rate, t_start + heat)?;
+    // dΔT/dΔε̄p = h [(∂σ_y/∂ε̄p + ∂σ_y/∂ε̇* ε̇*') Δε̄p + σ_y] at T_s.
+    let d_heat = h * ((fs.d_strain + fs.d_rate * rate_per_alpha) * dalpha + fs.stress);
+    let rate_slope = fe.d_rate * rate_per_alpha + fe.d_temp * h * fs.d_rate * rate_per_alpha * dalpha;
+    Some(HeatedStep {
+        stress: fe.stress,
+        slope: fe.d_strain + fe.d_rate * rate_per_alpha + fe.d_temp * d_heat,
+        rate_slope,
+        d_temp0: fe.d_temp * (S::one() + h * fs.d_temp * dalpha),
+        heat,
+    })
 }

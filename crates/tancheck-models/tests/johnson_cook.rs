@@ -282,8 +282,9 @@ fn tangent_is_the_derivative_of_the_update() {
     assert!(plastic > 300 && above_floor > 150, "plastic {plastic}, above the rate floor {above_floor}");
 }
 
-// Every plastic step ends on the yield surface of the law at the rate it took:
-// √(3/2)‖dev σ‖ = σ_y(ε̄p_{n+1}, Δε̄p/(Δt rate0), T) (the Johnson–Cook flow rule, 1983), and
+// Every plastic step ends on the yield surface of the law at the rate it took and the
+// temperature it reached: √(3/2)‖dev σ‖ = σ_y(ε̄p_{n+1}, Δε̄p/(Δt rate0), T + ΔT) (the
+// Johnson–Cook flow rule, 1983), and
 // the damage indicator grows by Δε̄p/ε_f (Johnson & Cook 1985) with ε_f from the end stress.
 #[test]
 fn plastic_steps_end_on_the_rate_dependent_yield_surface() {
@@ -310,13 +311,15 @@ fn plastic_steps_end_on_the_rate_dependent_yield_surface() {
         let seq = (3.0 * j2).sqrt();
         let ebar = out.state[6];
         let rate = ebar / (dtime * props[9]);
-        let flow = l.flow(ebar, rate, 420.0).unwrap().stress;
-        assert!((seq - flow).abs() <= 1e-9 * flow, "dt {dtime}: σ_eq {seq} vs σ_y {flow}");
-        let ef = l.fracture_strain(mean / seq, rate, 420.0);
-        assert!((out.state[7] - ebar / ef).abs() <= 1e-12, "damage {} vs {}", out.state[7], ebar / ef);
-        // Adiabatic heating χ σ_y Δε̄p / (ρ c).
-        let heat = props[12] * flow * ebar / (props[10] * props[11]);
+        // Adiabatic heating of the step χ σ_y(T_s) Δε̄p / (ρ c); the end stress on the surface
+        // at the end temperature T_s + ΔT.
+        let heat = props[12] * l.flow(ebar, rate, 420.0).unwrap().stress * ebar / (props[10] * props[11]);
         assert!((out.state[8] - heat).abs() <= 1e-9 * heat);
+        let t_end = 420.0 + heat;
+        let flow = l.flow(ebar, rate, t_end).unwrap().stress;
+        assert!((seq - flow).abs() <= 1e-9 * flow, "dt {dtime}: σ_eq {seq} vs σ_y {flow}");
+        let ef = l.fracture_strain(mean / seq, rate, t_end);
+        assert!((out.state[7] - ebar / ef).abs() <= 1e-12, "damage {} vs {}", out.state[7], ebar / ef);
     }
 }
 

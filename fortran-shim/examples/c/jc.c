@@ -18,8 +18,8 @@
  *   state [eps_p (ncomp, engineering shear), ep, D, dT_heat] (ncomp + 3); entries past these
  *     are carried through unchanged.
  * The model, its guards (rate floor rate* >= 1, bracketed Newton so the unbounded slope at
- * ep = 0 is never evaluated, dt <= 0 with C > 0 -> elastic, T* <= 0 -> no softening, T* >= 1 fails, staggered adiabatic
- * heating, damage without effect on the stress) and its tangent are those of the Rust model,
+ * ep = 0 is never evaluated, dt <= 0 with C > 0 -> elastic, T* <= 0 -> no softening,
+ * T* >= 1 fails, adiabatic heating within the step, damage without effect on the stress) and its tangent are those of the Rust model,
  * crates/tancheck-models/src/johnson_cook.rs, which documents each choice.
  * Branch 0 elastic, 1 plastic. Provides dstress_dtemp; no energies.
  *
@@ -110,19 +110,38 @@ static tc_real jc_fracture_strain(const tc_real *p, tc_real triax, tc_real rate_
     return tc_max(ef, JC_MIN_FRACTURE_STRAIN);
 }
 
-/* Radius sqrt(2/3) sigma_y of the yield surface after a step dg and its slope d/d(dg). */
-static void jc_radius(const tc_real *p, tc_real ep_n, tc_real rate_per_dg, tc_real temp,
-                      tc_real dg, tc_real *r, tc_real *dr)
+/* The flow stress at the end of a plastic step d(ep) = da from ep_n, heated within the step
+ * (as heated_step in crates/tancheck-models/src/johnson_cook.rs): dT = h sigma_y(T_s) da,
+ * sigma_y(T_s + dT); its total slope d/d(da), the rate part of that slope, d/dT_s and dT.
+ * 0 when either temperature is at or above T_m. */
+typedef struct {
+    tc_real stress, slope, rate_slope, d_temp0, heat;
+} jc_step;
+
+static int jc_heated_step(const tc_real *p, tc_real h, tc_real ep_n, tc_real da,
+                          tc_real rate_per_a, tc_real t_start, jc_step *st)
 {
-    const double r23 = sqrt(2.0 / 3.0);
-    jc_flow f;
-    if (!jc_flow_at(p, ep_n + dg * r23, rate_per_dg * dg, temp, &f)) {
-        *r = NAN;
-        *dr = NAN;
-        return;
+    const tc_real ep = ep_n + da;
+    const tc_real rate = rate_per_a * da;
+    jc_flow fs, fe;
+    if (!jc_flow_at(p, ep, rate, t_start, &fs)) return 0;
+    if (tc_re(h) == 0.0) {
+        st->stress = fs.stress;
+        st->rate_slope = fs.d_rate * rate_per_a;
+        st->slope = fs.d_strain + st->rate_slope;
+        st->d_temp0 = fs.d_temp;
+        st->heat = 0.0;
+        return 1;
     }
-    *r = f.stress * r23;
-    *dr = (f.d_strain * r23 + f.d_rate * rate_per_dg) * r23;
+    const tc_real heat = h * fs.stress * da;
+    if (!jc_flow_at(p, ep, rate, t_start + heat, &fe)) return 0;
+    const tc_real d_heat = h * ((fs.d_strain + fs.d_rate * rate_per_a) * da + fs.stress);
+    st->stress = fe.stress;
+    st->slope = fe.d_strain + fe.d_rate * rate_per_a + fe.d_temp * d_heat;
+    st->rate_slope = fe.d_rate * rate_per_a + fe.d_temp * h * fs.d_rate * rate_per_a * da;
+    st->d_temp0 = fe.d_temp * (1.0 + h * fs.d_temp * da);
+    st->heat = heat;
+    return 1;
 }
 
 static const char *jc_check_props(const tc_real *p)
@@ -225,16 +244,23 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
         for (int k = 0; k < n + 3; ++k) state[k] = state0[k];
         report->branch = 0;
     } else {
-        /* rate* = d(ep) / (dt rate0) = rate_per_dg dg; no rate information without dt > 0. */
-        const tc_real rate_per_dg = dt > 0.0 ? 1.0 / (p[JC_RATE0] * dt) * r23 : 0.0;
+        /* rate* = d(ep) / (dt rate0) = rate_per_a d(ep) (dt > 0 here, or C = 0). */
+        const tc_real rate_per_a = dt > 0.0 ? 1.0 / (p[JC_RATE0] * dt) : 0.0;
+        const tc_real h = tc_re(p[JC_TAYLOR_QUINNEY]) > 0.0
+                              ? p[JC_TAYLOR_QUINNEY] / (p[JC_DENSITY] * p[JC_HEAT_CAPACITY])
+                              : 0.0;
         /* Bracketed Newton on g(dg) = |xi_tr| - 2 mu dg - sqrt(2/3) sigma_y in (0, f_tr/(2mu)]
          * (as radial_return in crates/tancheck-models/src/j2.rs). */
         double lo = 0.0, hi = tc_re(f_trial / two_mu);
         tc_real dg = f_trial / two_mu;
         int iter = 0, extra = 0, done = 0;
+        jc_step st;
         while (iter < JC_MAX_ITER || extra) {
-            tc_real r, dr;
-            jc_radius(p, ep_n, rate_per_dg, t, dg, &r, &dr);
+            tc_real r = NAN, dr = NAN;
+            if (jc_heated_step(p, h, ep_n, dg * r23, rate_per_a, t, &st)) {
+                r = st.stress * r23;
+                dr = st.slope * (2.0 / 3.0);
+            }
             const tc_real g = norm - two_mu * dg - r;
             const tc_real slope = -two_mu - dr;
             tc_real step = -g / slope;
@@ -255,15 +281,19 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
             extra = (newton && fabs(tc_re(step)) <= JC_STEP_TOL * fabs(tc_re(dg))) ||
                     hi - lo <= 4e-16 * hi;
         }
-        jc_flow f;
         const tc_real ep = ep_n + dg * r23;
-        const tc_real rate_star = rate_per_dg * dg;
+        const tc_real rate_star = rate_per_a * dg * r23;
         if (!done) {
             jc_fail(report, "the return mapping did not converge in 200 iterations");
             return;
         }
-        if (!(tc_re(dg) > 0.0) || !jc_flow_at(p, ep, rate_star, t, &f) || !isfinite(tc_re(f.stress))) {
+        if (!(tc_re(dg) > 0.0) || !jc_heated_step(p, h, ep_n, dg * r23, rate_per_a, t, &st) ||
+            !isfinite(tc_re(st.stress)) || !isfinite(tc_re(st.slope))) {
             jc_fail(report, "the return mapping found no positive plastic step");
+            return;
+        }
+        if (fabs(tc_re(norm - two_mu * dg - st.stress * r23)) > 1e-8 * tc_re(norm)) {
+            jc_fail(report, "thermal softening in this increment leaves no plastic step on the yield surface");
             return;
         }
         tc_real mean = 0.0;
@@ -274,19 +304,17 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
             if (i < 3) mean += stress[i];
         }
         state[n] = ep;
-        const tc_real triax = mean / 3.0 / f.stress;
-        state[n + 1] = damage_n + dg * r23 / jc_fracture_strain(p, triax, rate_star, t);
-        const tc_real heat = tc_re(p[JC_TAYLOR_QUINNEY]) > 0.0
-                                 ? p[JC_TAYLOR_QUINNEY] / (p[JC_DENSITY] * p[JC_HEAT_CAPACITY])
-                                 : 0.0;
-        state[n + 2] = heat_n + heat * f.stress * dg * r23;
+        const tc_real triax = mean / 3.0 / st.stress;
+        state[n + 1] = damage_n + dg * r23 / jc_fracture_strain(p, triax, rate_star, t + st.heat);
+        state[n + 2] = heat_n + st.heat;
 
-        /* K' = d(sigma_y)/d(ep) along the step, the rate term through rate* = d(ep)/(dt rate0). */
-        const tc_real slope_full = f.d_strain + f.d_rate * rate_per_dg / r23;
-        const tc_real k_slope = with_rate_term ? slope_full : f.d_strain;
+        /* K' = d(sigma_y)/d(ep) along the step: strain, rate (rate* = d(ep)/(dt rate0)) and the
+         * heating of the step. */
+        const tc_real slope_full = st.slope;
+        const tc_real k_slope = with_rate_term ? slope_full : st.slope - st.rate_slope;
         theta = 1.0 - two_mu * dg / norm;
         theta_bar = 1.0 / (k_slope / (mu * 3.0) + 1.0) - (1.0 - theta);
-        const tc_real ddg_dt = -f.d_temp * r23 / (two_mu + slope_full * (2.0 / 3.0));
+        const tc_real ddg_dt = -st.d_temp0 * r23 / (two_mu + slope_full * (2.0 / 3.0));
         for (int i = 0; i < n; ++i) dstress_dtemp[i] = -two_mu * n_dir[i] * ddg_dt;
         report->branch = 1;
     }
