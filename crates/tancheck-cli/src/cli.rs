@@ -482,6 +482,13 @@ fn cmd_models() -> Result<i32> {
         o.prop_names().join(", "),
         "linear orthotropic elasticity with material axes among the properties".into(),
     ));
+    for (name, what) in [
+        ("johnson-cook", "J2 radial return with the Johnson–Cook flow stress (rate, thermal softening, adiabatic heating) and damage indicator"),
+        ("johnson-cook-no-rate-term", "johnson-cook with the rate term left out of the tangent (flawed on purpose)"),
+    ] {
+        let m = tancheck_models::AnyModel::new(name, PointKind::Solid3d)?;
+        rows.push((name.into(), "solid-3d plane-strain axisymmetric".into(), m.prop_names().join(", "), what.into()));
+    }
     for (name, kinds, props, what) in rows {
         writeln!(out, "{name:<26} {what}\n{:<26} kinds: {kinds}\n{:<26} properties: {props}", "", "")?;
     }

@@ -197,27 +197,9 @@ impl Model for J2 {
             return Ok(());
         }
 
-        // Trial state: σ_tr = λ tr(εe) 1 + 2μ εe with εe = ε + Δε − εp_n (tensor components).
-        let mut v = [S::zero(); 6];
-        for i in 0..n {
-            v[i] = input.strain[i] + input.dstrain[i] - eps_p_n[i];
-        }
-        let ee = strain_to_tensor(&v[..n], slots);
-        let tr = trace(&ee);
-        let mut sigma_tr = [S::zero(); 6];
-        for (k, s) in sigma_tr.iter_mut().enumerate() {
-            *s = ee[k] * (p.mu * 2.0);
-            if k < 3 {
-                *s += p.lambda * tr;
-            }
-        }
         let beta_n = stress_to_tensor(beta_n_v, slots);
-        let dev = deviator(&sigma_tr);
-        let mut xi = [S::zero(); 6];
-        for k in 0..6 {
-            xi[k] = dev[k] - beta_n[k];
-        }
-        let norm = norm_sq(&xi).sqrt_or_zero();
+        let (sigma_tr, xi, norm) =
+            trial_state(p.lambda, p.mu, input.strain, input.dstrain, eps_p_n, &beta_n, slots);
         let f_tr = norm - k_n * r23;
 
         let kappa = p.lambda + p.mu * (2.0 / 3.0);
@@ -237,30 +219,14 @@ impl Model for J2 {
 
         // Return mapping: Newton on g(Δγ) from Δγ = 0.
         let c_lin = two_mu + p.h_kin * (2.0 / 3.0);
-        let mut dgamma = S::zero();
-        let mut converged = false;
-        let mut extra = false;
-        let mut iterations = 0;
-        let step_tol = STEP_TOLERANCE * norm.re() / two_mu.re();
-        while iterations < MAX_ITERATIONS || extra {
+        let radius = |dgamma: S| {
             let alpha = alpha_n + dgamma * r23;
-            let g = norm - c_lin * dgamma - p.yield_stress(alpha) * r23;
-            let dg = -c_lin - p.hardening_slope(alpha) * (2.0 / 3.0);
-            let step = -g / dg;
-            dgamma += step;
-            iterations += 1;
-            if extra {
-                converged = true;
-                break;
-            }
-            if step.re().abs() <= step_tol {
-                extra = true;
-            }
-        }
-        if !converged {
+            (p.yield_stress(alpha) * r23, p.hardening_slope(alpha) * (2.0 / 3.0))
+        };
+        let Some(dgamma) = radial_return(norm, c_lin, two_mu, None, radius) else {
             fail(output, "j2: the return mapping did not converge in 50 Newton iterations");
             return Ok(());
-        }
+        };
 
         let mut nrm = [S::zero(); 6];
         for k in 0..6 {
@@ -291,26 +257,142 @@ impl Model for J2 {
             }
             J2Tangent::Continuum => (S::one(), base),
         };
-        let mut c = [[S::zero(); 6]; 6];
-        let shear_mod = two_mu * theta;
-        for (a, row) in c.iter_mut().enumerate() {
-            for (b, x) in row.iter_mut().enumerate() {
-                let mut v = -two_mu * theta_bar * nrm[a] * nrm[b];
-                if a < 3 && b < 3 {
-                    v += kappa - shear_mod / 3.0;
-                }
-                if a == b {
-                    // Symmetric identity: 1 on the normal diagonal, ½ on the shear diagonal.
-                    v += if a < 3 { shear_mod } else { shear_mod * 0.5 };
-                }
-                *x = v;
-            }
-        }
+        let c = return_tangent(kappa, two_mu, theta, theta_bar, &nrm);
         write_tangent(&c, slots, output.tangent);
         finish(output, &p, input);
         succeed(output, 1, tancheck_core::routine::provides::ENERGY);
         Ok(())
     }
+}
+
+/// Trial state of a radial return: σ_tr = λ tr(εe) 1 + 2μ εe with εe = ε + Δε − εp_n
+/// (routine vectors, engineering shear), ξ_tr = dev σ_tr − β_n and ‖ξ_tr‖, all canonical.
+#[inline]
+pub(crate) fn trial_state<S: Scalar>(
+    lambda: S,
+    mu: S,
+    strain: &[S],
+    dstrain: &[S],
+    eps_p_n: &[S],
+    beta_n: &[S; 6],
+    slots: &[usize],
+) -> ([S; 6], [S; 6], S) {
+    let n = slots.len();
+    let mut v = [S::zero(); 6];
+    for i in 0..n {
+        v[i] = strain[i] + dstrain[i] - eps_p_n[i];
+    }
+    let ee = strain_to_tensor(&v[..n], slots);
+    let tr = trace(&ee);
+    let mut sigma_tr = [S::zero(); 6];
+    for (k, s) in sigma_tr.iter_mut().enumerate() {
+        *s = ee[k] * (mu * 2.0);
+        if k < 3 {
+            *s += lambda * tr;
+        }
+    }
+    let dev = deviator(&sigma_tr);
+    let mut xi = [S::zero(); 6];
+    for k in 0..6 {
+        xi[k] = dev[k] - beta_n[k];
+    }
+    (sigma_tr, xi, norm_sq(&xi).sqrt_or_zero())
+}
+
+/// Newton on the radial-return condition g(Δγ) = ‖ξ_tr‖ − c_lin Δγ − R(Δγ) = 0, where
+/// `radius(Δγ)` gives (R, dR/dΔγ), R the radius √(2/3)·(flow stress) of the yield surface at
+/// the end of the step. `None` when it does not converge in [`MAX_ITERATIONS`] (four times
+/// that with a bracket).
+///
+/// Without `bracket` it is plain Newton from Δγ = 0 (the J2 model): it stops after the
+/// iteration whose step |δ| ≤ [`STEP_TOLERANCE`] · ‖ξ_tr‖/(2μ) (real parts) and then makes one
+/// more Newton iteration so that dual and complex parts converge too. With `bracket = Some(hi)`
+/// the root is known to lie in (0, hi] (g(0) > 0 ≥ g(hi), for flow stresses that do not fall
+/// with Δγ): Newton starts from `hi`, keeps the bracket up to date from the sign of g, and a
+/// step that leaves the bracket is replaced by bisection. Δγ = 0 itself is never evaluated,
+/// which matters for flow stresses whose slope is unbounded there, and kinks of the flow stress
+/// (a rate floor) cannot make it cycle. It stops when a Newton step is below
+/// [`STEP_TOLERANCE`] relative to Δγ or the bracket has closed to rounding; the last iteration
+/// then corrects only the dual/complex part by a Newton step (the real part stays in the
+/// bracket).
+#[inline]
+pub(crate) fn radial_return<S: Scalar>(
+    norm: S,
+    c_lin: S,
+    two_mu: S,
+    bracket: Option<S>,
+    radius: impl Fn(S) -> (S, S),
+) -> Option<S> {
+    let (mut lo, mut hi) = (0.0, bracket.map_or(f64::INFINITY, |h| h.re()));
+    let mut dgamma = bracket.unwrap_or(S::zero());
+    let mut extra = false;
+    let mut iterations = 0;
+    let step_tol = STEP_TOLERANCE * norm.re() / two_mu.re();
+    let limit = if bracket.is_some() { 4 * MAX_ITERATIONS } else { MAX_ITERATIONS };
+    while iterations < limit || extra {
+        let (r, dr) = radius(dgamma);
+        let g = norm - c_lin * dgamma - r;
+        let dg = -c_lin - dr;
+        let mut step = -g / dg;
+        iterations += 1;
+        if extra {
+            // Bracketed: the real part stays where the bracket put it; the Newton step
+            // corrects the dual/complex part only (g ≈ 0 there: the implicit derivative).
+            return Some(if bracket.is_some() { dgamma + step - S::cst(step.re()) } else { dgamma + step });
+        }
+        let mut newton = true;
+        if bracket.is_some() {
+            if g.re() > 0.0 {
+                lo = dgamma.re();
+            } else {
+                hi = dgamma.re();
+            }
+            let next = dgamma.re() + step.re();
+            if !(next > lo && next < hi && step.re().is_finite()) {
+                // Bisection: a step to the midpoint of the bracket.
+                step = S::cst(0.5 * (lo + hi)) - dgamma;
+                newton = false;
+            }
+        }
+        dgamma += step;
+        extra = match bracket {
+            None => step.re().abs() <= step_tol,
+            // Relative to Δγ, which can lie far below ‖ξ_tr‖/(2μ) when the slope of the flow
+            // stress is unbounded at Δγ = 0; or the bracket has closed to rounding.
+            Some(_) => {
+                (newton && step.re().abs() <= STEP_TOLERANCE * dgamma.re().abs()) || hi - lo <= 4e-16 * hi
+            }
+        };
+    }
+    None
+}
+
+/// The tangent of a radial return in canonical order (engineering shear strain):
+/// C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n.
+#[inline]
+pub(crate) fn return_tangent<S: Scalar>(
+    kappa: S,
+    two_mu: S,
+    theta: S,
+    theta_bar: S,
+    nrm: &[S; 6],
+) -> [[S; 6]; 6] {
+    let mut c = [[S::zero(); 6]; 6];
+    let shear_mod = two_mu * theta;
+    for (a, row) in c.iter_mut().enumerate() {
+        for (b, x) in row.iter_mut().enumerate() {
+            let mut v = -two_mu * theta_bar * nrm[a] * nrm[b];
+            if a < 3 && b < 3 {
+                v += kappa - shear_mod / 3.0;
+            }
+            if a == b {
+                // Symmetric identity: 1 on the normal diagonal, ½ on the shear diagonal.
+                v += if a < 3 { shear_mod } else { shear_mod * 0.5 };
+            }
+            *x = v;
+        }
+    }
+    c
 }
 
 /// No temperature dependence; the energies at the end of the increment, from the end state.

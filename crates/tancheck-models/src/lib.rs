@@ -7,6 +7,8 @@
 //!   linear kinematic hardening; with [`J2Tangent::Continuum`] it is the flawed
 //!   `j2-continuum` routine.
 //! - [`Orthotropic`]: linear orthotropic elasticity with material axes among the properties.
+//! - [`JohnsonCook`]: J2 radial return with the Johnson–Cook flow stress (rate, thermal
+//!   softening, adiabatic heating) and damage-initiation indicator.
 //!
 //! All models use the default component order of their kind and engineering shear strain;
 //! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
@@ -17,6 +19,7 @@ mod call;
 pub mod cohesive;
 pub mod elastic;
 pub mod j2;
+pub mod johnson_cook;
 pub mod orthotropic;
 mod tensor;
 pub mod thermo;
@@ -33,6 +36,7 @@ pub use bimodulus::Bimodulus;
 pub use cohesive::{Cohesive, CohesiveFlaw};
 pub use elastic::Elastic;
 pub use j2::{J2Tangent, J2};
+pub use johnson_cook::{JcTangent, JohnsonCook};
 pub use orthotropic::Orthotropic;
 pub use thermo::{Thermo, ThermoFlaw};
 pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
@@ -60,6 +64,7 @@ pub enum AnyModel {
     Thermo(Thermo),
     Cohesive(Cohesive),
     Orthotropic(Orthotropic),
+    JohnsonCook(JohnsonCook),
 }
 
 impl AnyModel {
@@ -86,6 +91,10 @@ impl AnyModel {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))
             }
             Orthotropic::NAME => Ok(AnyModel::Orthotropic(Orthotropic::new(kind)?)),
+            JohnsonCook::NAME => Ok(AnyModel::JohnsonCook(JohnsonCook::new(kind)?)),
+            JohnsonCook::NO_RATE_TERM_NAME => {
+                Ok(AnyModel::JohnsonCook(JohnsonCook::with_tangent(kind, JcTangent::NoRateTerm)?))
+            }
             _ => Err(ModelError::UnknownName { name: name.to_string() }),
         }
     }
@@ -98,6 +107,7 @@ impl AnyModel {
             AnyModel::Thermo(_) => &Thermo::PROP_NAMES,
             AnyModel::Cohesive(_) => &Cohesive::PROP_NAMES,
             AnyModel::Orthotropic(_) => &Orthotropic::PROP_NAMES,
+            AnyModel::JohnsonCook(_) => &JohnsonCook::PROP_NAMES,
         }
     }
 }
@@ -110,6 +120,7 @@ impl Model for AnyModel {
             AnyModel::Thermo(m) => m.info(),
             AnyModel::Cohesive(m) => m.info(),
             AnyModel::Orthotropic(m) => m.info(),
+            AnyModel::JohnsonCook(m) => m.info(),
         }
     }
 
@@ -125,6 +136,7 @@ impl Model for AnyModel {
             AnyModel::Thermo(m) => m.evaluate(input, output),
             AnyModel::Cohesive(m) => m.evaluate(input, output),
             AnyModel::Orthotropic(m) => m.evaluate(input, output),
+            AnyModel::JohnsonCook(m) => m.evaluate(input, output),
         }
     }
 }
