@@ -7,6 +7,8 @@
 //!   linear kinematic hardening; with [`J2Tangent::Continuum`] it is the flawed
 //!   `j2-continuum` routine.
 //! - [`Orthotropic`]: linear orthotropic elasticity with material axes among the properties.
+//! - [`Ply`]: composite ply damage (Hashin initiation, crack-band linear softening per mode,
+//!   optional viscous regularisation) with its flawed variants [`PlyFlaw`].
 //!
 //! All models use the default component order of their kind and engineering shear strain;
 //! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
@@ -18,6 +20,7 @@ pub mod cohesive;
 pub mod elastic;
 pub mod j2;
 pub mod orthotropic;
+pub mod ply;
 mod tensor;
 pub mod thermo;
 pub mod zoo;
@@ -34,6 +37,7 @@ pub use cohesive::{Cohesive, CohesiveFlaw};
 pub use elastic::Elastic;
 pub use j2::{J2Tangent, J2};
 pub use orthotropic::Orthotropic;
+pub use ply::{Ply, PlyFlaw};
 pub use thermo::{Thermo, ThermoFlaw};
 pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
 
@@ -60,6 +64,7 @@ pub enum AnyModel {
     Thermo(Thermo),
     Cohesive(Cohesive),
     Orthotropic(Orthotropic),
+    Ply(Ply),
 }
 
 impl AnyModel {
@@ -86,6 +91,12 @@ impl AnyModel {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))
             }
             Orthotropic::NAME => Ok(AnyModel::Orthotropic(Orthotropic::new(kind)?)),
+            Ply::NAME => Ok(AnyModel::Ply(Ply::new(kind)?)),
+            Ply::SECANT_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::Secant)?)),
+            Ply::NO_COUPLING_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::NoCoupling)?)),
+            Ply::VISCOUS_NO_FACTOR_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::ViscousNoFactor)?)),
+            Ply::LENGTH_DROPPED_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::LengthDropped)?)),
+            Ply::HEALING_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::Healing)?)),
             _ => Err(ModelError::UnknownName { name: name.to_string() }),
         }
     }
@@ -98,6 +109,7 @@ impl AnyModel {
             AnyModel::Thermo(_) => &Thermo::PROP_NAMES,
             AnyModel::Cohesive(_) => &Cohesive::PROP_NAMES,
             AnyModel::Orthotropic(_) => &Orthotropic::PROP_NAMES,
+            AnyModel::Ply(_) => &Ply::PROP_NAMES,
         }
     }
 }
@@ -110,6 +122,7 @@ impl Model for AnyModel {
             AnyModel::Thermo(m) => m.info(),
             AnyModel::Cohesive(m) => m.info(),
             AnyModel::Orthotropic(m) => m.info(),
+            AnyModel::Ply(m) => m.info(),
         }
     }
 
@@ -125,6 +138,7 @@ impl Model for AnyModel {
             AnyModel::Thermo(m) => m.evaluate(input, output),
             AnyModel::Cohesive(m) => m.evaluate(input, output),
             AnyModel::Orthotropic(m) => m.evaluate(input, output),
+            AnyModel::Ply(m) => m.evaluate(input, output),
         }
     }
 }
