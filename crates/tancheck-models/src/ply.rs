@@ -373,27 +373,35 @@ impl Model for Ply {
         let mut failed = false;
         let v = if viscous { S::cst(dt) / (eta + dt) } else { S::one() };
         let v_tangent = if self.flaw == PlyFlaw::ViscousNoFactor { S::one() } else { v };
-        for m in 0..4 {
-            let (xm, ckk) = match m {
-                mode::FT => (x[0], c[0][0]),
-                mode::FC => (x[1], c[0][0]),
-                mode::MT => (x[2], c[1][1]),
-                _ => (x[3], c[1][1]),
-            };
-            let len_used = if self.flaw == PlyFlaw::LengthDropped { S::one() } else { len };
-            let rf = g_c[m] * ckk * 2.0 / (xm * xm * len_used);
-            if rf.re() <= 1.0 {
-                let mut buf = Buf { bytes: [0; MESSAGE_LEN], len: 0 };
-                let lmax = g_c[m].re() * ckk.re() * 2.0 / (xm.re() * xm.re());
-                let _ = write!(
-                    buf,
-                    "ply: L snaps back in {}; largest admissible L = {:.6e}",
-                    mode::NAMES[m],
-                    lmax
-                );
-                fail(output, std::str::from_utf8(&buf.bytes[..buf.len]).unwrap_or("ply: L too large"));
-                return Ok(());
+        // Snap-back: every mode needs r_f > 1; among the modes that snap back the message
+        // names the one with the smallest admissible length (for the correct model the
+        // smallest of all modes), and that length.
+        let len_used = if self.flaw == PlyFlaw::LengthDropped { S::one() } else { len };
+        let strength_stiffness = |m: usize| match m {
+            mode::FT => (x[0], c[0][0]),
+            mode::FC => (x[1], c[0][0]),
+            mode::MT => (x[2], c[1][1]),
+            _ => (x[3], c[1][1]),
+        };
+        let mut rfs = [S::zero(); 4];
+        let mut worst: Option<(usize, f64)> = None;
+        for (m, rf) in rfs.iter_mut().enumerate() {
+            let (xm, ckk) = strength_stiffness(m);
+            *rf = g_c[m] * ckk * 2.0 / (xm * xm * len_used);
+            let lmax = g_c[m].re() * ckk.re() * 2.0 / (xm.re() * xm.re());
+            if rf.re() <= 1.0 && worst.is_none_or(|(_, l)| lmax < l) {
+                worst = Some((m, lmax));
             }
+        }
+        if let Some((m, lmax)) = worst {
+            let mut buf = Buf { bytes: [0; MESSAGE_LEN], len: 0 };
+            let _ =
+                write!(buf, "ply: L snaps back in {}; largest admissible L = {:.6e}", mode::NAMES[m], lmax);
+            fail(output, std::str::from_utf8(&buf.bytes[..buf.len]).unwrap_or("ply: L too large"));
+            return Ok(());
+        }
+        for m in 0..4 {
+            let rf = rfs[m];
             let (f, grad) = hashin(m, &st, &x);
             let r_trial = f.sqrt_or_zero();
             let r_old = input.state0[m];

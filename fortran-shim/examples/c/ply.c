@@ -264,19 +264,32 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
     const tc_real v = viscous ? dt / (eta + dt) : 1.0;
     const tc_real v_tangent = flaw == FLAW_VISCOUS_NO_FACTOR ? 1.0 : v;
     const tc_real *x = p + PL_XT;
+    /* Snap-back: every mode needs rf > 1; among the modes that snap back name the one with
+     * the smallest admissible length (for the correct routine the smallest of all). */
+    tc_real rfs[4];
+    int worst = -1;
+    double worst_l = 0.0;
     for (int m = 0; m < 4; ++m) {
         const tc_real xm = x[m];
         const tc_real ckk = m < 2 ? c[0][0] : c[1][1];
         const tc_real g_c = p[PL_G + m];
         const tc_real len = flaw == FLAW_LENGTH_DROPPED ? 1.0 : p[PL_L];
-        const tc_real rf = 2.0 * g_c * ckk / (xm * xm * len);
-        if (tc_re(rf) <= 1.0) {
-            char text[TC_MESSAGE_LEN];
-            snprintf(text, sizeof text, "L snaps back in %s; largest admissible L = %.6e",
-                     pl_mode_names[m], 2.0 * tc_re(g_c) * tc_re(ckk) / (tc_re(xm) * tc_re(xm)));
-            pl_fail(report, text);
-            return;
+        rfs[m] = 2.0 * g_c * ckk / (xm * xm * len);
+        const double lmax = 2.0 * tc_re(g_c) * tc_re(ckk) / (tc_re(xm) * tc_re(xm));
+        if (tc_re(rfs[m]) <= 1.0 && (worst < 0 || lmax < worst_l)) {
+            worst = m;
+            worst_l = lmax;
         }
+    }
+    if (worst >= 0) {
+        char text[TC_MESSAGE_LEN];
+        snprintf(text, sizeof text, "L snaps back in %s; largest admissible L = %.6e",
+                 pl_mode_names[worst], worst_l);
+        pl_fail(report, text);
+        return;
+    }
+    for (int m = 0; m < 4; ++m) {
+        const tc_real rf = rfs[m];
         tc_real grad[6];
         const tc_real f = pl_hashin(m, st, x, grad);
         const tc_real r_trial = tc_re(f) <= 0.0 ? tc_cst(0.0) : tc_sqrt(f);
