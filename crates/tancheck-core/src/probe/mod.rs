@@ -17,6 +17,7 @@ pub mod energy;
 pub mod frame;
 pub mod hidden_state;
 pub mod immutability;
+pub mod irreversibility;
 pub mod newton;
 pub mod refinement;
 pub mod stability;
@@ -54,6 +55,9 @@ pub struct ProbeSpec {
     /// elastic response at the start decides (anisotropic without `axes`: skipped).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub anisotropic: Option<bool>,
+    /// irreversibility: state indices (0-based) of damage variables, which must never fall.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub damage: Option<Vec<usize>>,
 }
 
 impl ProbeSpec {
@@ -154,6 +158,7 @@ pub fn registry() -> Vec<Box<dyn Probe>> {
         Box::new(newton::NewtonRate),
         Box::new(frame::Frame),
         Box::new(conventions::Conventions),
+        Box::new(irreversibility::Irreversibility),
     ]
 }
 
