@@ -2,7 +2,11 @@
 //! (must pass) and a flawed one (must fail with the probe's finding):
 //! - irreversibility: declared damage variables never fall along a path that loads, unloads
 //!   and reloads — the ply's `ply-healing` (damage from the current failure measure) and a
-//!   cohesive law that forgets its damage (written here) heal and fail.
+//!   cohesive law that forgets its damage (written here) heal and fail;
+//! - regularisation: along a path to full failure the dissipated energy per unit volume × L
+//!   is the fracture energy and does not change with L (Bažant & Oh 1983) — `ply-length-dropped`
+//!   fails; for the cohesive law (no length) the area under the traction–separation curve is
+//!   G_Ic (Camanho & Dávila 2002: G_c = ½ t₀ δ_f) — a law with its tractions scaled fails.
 
 use tancheck::core::path::{Path, PathIncrement};
 use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
@@ -147,4 +151,67 @@ fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_erro
     )
     .unwrap_err();
     assert!(e.contains("damage index 7"), "{e}");
+}
+
+/// The demo ply with ν12 = ν13 = 0, so that a path of transverse strain alone is a uniaxial
+/// stress in the material frame and the matrix-tension softening is exactly linear in it.
+fn ply_uncoupled() -> Vec<f64> {
+    let mut p = ply_props();
+    p[3] = 0.0;
+    p[4] = 0.0;
+    p
+}
+
+fn regularisation(length: Option<usize>, g: Option<f64>) -> ProbeSpec {
+    ProbeSpec { length, fracture_energy: g, ..ProbeSpec::named("regularisation") }
+}
+
+#[test]
+fn regularisation_passes_the_ply_and_fails_the_length_dropping_ply() {
+    // Transverse strain to 0.045, past ε_f = 2 G_mt/(Yt L) = 2·0.25/(27·0.5) = 0.0370 (derived).
+    let p = path("transverse tension to full failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 60)]);
+    let props = ply_uncoupled();
+    let mut good = ModelRoutine(Ply::new(PointKind::PlaneStress).unwrap());
+    let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Pass, "{} {:?}", r.summary, r.details);
+    let mut bad = ModelRoutine(Ply::with_flaw(PointKind::PlaneStress, PlyFlaw::LengthDropped).unwrap());
+    let r = probe(&mut bad, regularisation(Some(24), None), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
+    assert!(r.summary.contains("changes with L"), "{}", r.summary);
+    // A path that stops before failure is not judged.
+    let short = path("transverse tension, not to failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 10)]);
+    let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &short);
+    assert_eq!(r.status, ProbeStatus::Skipped, "{}", r.summary);
+}
+
+/// The cohesive law with every traction and tangent entry scaled by 1.2: its area is 1.2 G.
+#[derive(Clone, Debug)]
+struct StrongCohesive(Cohesive);
+
+impl Model for StrongCohesive {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        self.0.evaluate(input, output)?;
+        output.stress.iter_mut().chain(output.tangent.iter_mut()).for_each(|x| *x *= S::cst(1.2));
+        Ok(())
+    }
+}
+
+#[test]
+fn regularisation_passes_the_cohesive_law_and_fails_a_law_of_another_area() {
+    // Mode I opening to 0.0125 mm, past δ_f = 2 G_Ic/N = 0.01 mm (derived from G_c = ½ t₀ δ_f).
+    let p = path("mode I opening to full failure", &[([2.5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 50)]);
+    let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
+    let r = probe(&mut good, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
+    assert_eq!(r.status, ProbeStatus::Pass, "{} {:?}", r.summary, r.details);
+    let mut bad = ModelRoutine(StrongCohesive(Cohesive::new(PointKind::Cohesive3d).unwrap()));
+    let r = probe(&mut bad, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
+    assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
+    assert!(r.summary.contains("declared fracture energy"), "{}", r.summary);
 }
