@@ -67,7 +67,7 @@ impl Probe for Regularisation {
             return Ok(ProbeResult::skipped(name, "neither \"length\" nor \"fracture_energy\" declared"));
         }
         if let Some(i) = length {
-            if i >= env.props.len() || !(env.props[i] > 0.0) {
+            if i >= env.props.len() || !env.props[i].is_finite() || env.props[i] <= 0.0 {
                 return Err(format!("regularisation: \"length\" {i} is not a positive property"));
             }
         }
