@@ -205,6 +205,10 @@ fn selftest_gets_every_zoo_row_right() {
             assert!(row(&format!("ply-secant ({kind})"), "secant"), "{lang}: {t}");
             assert!(row(&format!("ply-no-coupling ({kind})"), "one-row"), "{lang}: {t}");
             assert!(row(&format!("ply-viscous-no-factor ({kind})"), "term-scaled"), "{lang}: {t}");
+            assert!(row(&format!("ply, irreversibility ({kind})"), "irreversibility pass"), "{lang}: {t}");
+            assert!(row(&format!("ply-healing ({kind})"), "irreversibility FAIL"), "{lang}: {t}");
+            assert!(row(&format!("ply, regularisation ({kind})"), "regularisation pass"), "{lang}: {t}");
+            assert!(row(&format!("ply-length-dropped ({kind})"), "regularisation FAIL"), "{lang}: {t}");
         }
     }
 }

@@ -1,14 +1,17 @@
 //! Selftest rows of the composite ply damage model, in Rust, C and Fortran: the correct
 //! routine (with and without viscous damage) must pass along a path through damage growth,
 //! unloading and reloading in plane stress and solid-3d; the flawed tangents must be caught
-//! with their finding. Properties are demo numbers (a made-up carbon/epoxy ply).
+//! with their finding; the healing and length-dropping variants, whose tangents are consistent
+//! with their own updates, must be caught by the irreversibility and regularisation probes.
+//! Properties are demo numbers (a made-up carbon/epoxy ply).
 
 use std::path::Path as FsPath;
 
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, BuildOptions, Library};
 use tancheck_core::path::{Path, PathIncrement};
-use tancheck_core::{check, Caller, Model, PointKind, PointState, Routine, RoutineInfo, Settings};
+use tancheck_core::probe::{run_suite, ProbeSpec, ProbeStatus};
+use tancheck_core::{check, Caller, Model, PointKind, PointState, Routine, RoutineInfo, Settings, Verdict};
 use tancheck_models::{Ply, PlyFlaw};
 
 use super::Row;
@@ -95,6 +98,72 @@ fn one(
     })
 }
 
+/// The softening probes' rows: (variant, flaw, probe, expected status). Irreversibility runs
+/// on the check's path (load, unload, reload) with the damage state [4..8] declared;
+/// regularisation on transverse strain to full failure of a ply with ν12 = ν13 = ν23 = 0
+/// (a uniaxial material stress in either kind), L at property 24, G_mt = 0.25 declared.
+const PROBE_ROWS: [(&str, PlyFlaw, &str, ProbeStatus); 4] = [
+    ("ply, irreversibility", PlyFlaw::None, "irreversibility", ProbeStatus::Pass),
+    ("ply-healing", PlyFlaw::Healing, "irreversibility", ProbeStatus::Fail),
+    ("ply, regularisation", PlyFlaw::None, "regularisation", ProbeStatus::Pass),
+    ("ply-length-dropped", PlyFlaw::LengthDropped, "regularisation", ProbeStatus::Fail),
+];
+
+fn probe_row(
+    routine: &mut dyn Routine,
+    language: &'static str,
+    variant: &str,
+    probe: &str,
+    expected: ProbeStatus,
+) -> Result<Row> {
+    let info = routine.info().clone();
+    let kind = info.convention.kind();
+    let (spec, props, path) = if probe == "irreversibility" {
+        (ProbeSpec { damage: Some(vec![4, 5, 6, 7]), ..ProbeSpec::named(probe) }, props(0.0, 0.0), path(1.0))
+    } else {
+        let mut p = props(0.0, 0.0);
+        p[3] = 0.0;
+        p[4] = 0.0;
+        p[5] = 0.0;
+        let mut to_failure =
+            Path { name: "transverse strain to full failure".into(), increments: Vec::new() };
+        for _ in 0..60 {
+            to_failure.increments.push(PathIncrement {
+                dstrain: [0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0],
+                dtemp: 0.0,
+                dtime: 1.0,
+                hold_stress: None,
+            });
+        }
+        (
+            ProbeSpec { length: Some(24), fracture_energy: Some(0.25), ..ProbeSpec::named(probe) },
+            p,
+            to_failure,
+        )
+    };
+    let mut caller = Caller::new(routine);
+    let rep = run_suite(
+        &mut caller,
+        "ply",
+        &[spec],
+        &props,
+        &PointState::zero(&info, 20.0),
+        &path,
+        &Settings::default(),
+    )
+    .map_err(anyhow::Error::msg)?;
+    let r = &rep.results[0];
+    Ok(Row {
+        variant: format!("{variant} ({})", if kind == PointKind::PlaneStress { "ps" } else { "3d" }),
+        language,
+        expected: format!("{probe} {}", expected.word()),
+        verdict: if rep.pass { Verdict::Pass } else { Verdict::TangentFailure },
+        found: format!("{probe} {}", r.status.word()),
+        first_increment: r.increment,
+        right: r.status == expected,
+    })
+}
+
 fn symbol(prefix: &str, flaw: PlyFlaw) -> String {
     format!("{prefix}_{}", Ply::name_of(flaw).replace('-', "_"))
 }
@@ -106,6 +175,10 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
         for (variant, flaw, eta, expected) in ROWS {
             let mut m = tancheck_core::ModelRoutine(Ply::with_flaw(kind, flaw)?);
             rows.push(one(&mut m, "Rust", variant, eta, expected)?);
+        }
+        for (variant, flaw, probe, expected) in PROBE_ROWS {
+            let mut m = tancheck_core::ModelRoutine(Ply::with_flaw(kind, flaw)?);
+            rows.push(probe_row(&mut m, "Rust", variant, probe, expected)?);
         }
     }
     let mut libs = vec![("C", "c", dir.join("libply_c.so"), "fortran-shim/examples/c/ply.c")];
@@ -122,6 +195,12 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
                 let info = Ply::with_flaw(kind, flaw)?.info().clone();
                 let mut r = lib.routine(&sym, RoutineInfo { name: sym.clone(), ..info })?;
                 rows.push(one(&mut r, language, variant, eta, expected)?);
+            }
+            for (variant, flaw, probe, expected) in PROBE_ROWS {
+                let sym = symbol(prefix, flaw);
+                let info = Ply::with_flaw(kind, flaw)?.info().clone();
+                let mut r = lib.routine(&sym, RoutineInfo { name: sym.clone(), ..info })?;
+                rows.push(probe_row(&mut r, language, variant, probe, expected)?);
             }
         }
     }
