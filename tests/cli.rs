@@ -198,6 +198,18 @@ fn selftest_gets_every_zoo_row_right() {
         );
         assert!(row("elastic, wrong order", "mismatch named"), "{lang}: {t}");
         assert!(row("elastic, wrong shear", "mismatch named"), "{lang}: {t}");
+        // Ply rows (selftest/ply.rs): correct passes, each flawed tangent with its finding.
+        for kind in ["3d", "ps"] {
+            assert!(row(&format!("ply ({kind})"), "none"), "{lang}: {t}");
+            assert!(row(&format!("ply, viscous ({kind})"), "none"), "{lang}: {t}");
+            assert!(row(&format!("ply-secant ({kind})"), "secant"), "{lang}: {t}");
+            assert!(row(&format!("ply-no-coupling ({kind})"), "one-row"), "{lang}: {t}");
+            assert!(row(&format!("ply-viscous-no-factor ({kind})"), "term-scaled"), "{lang}: {t}");
+            assert!(row(&format!("ply, irreversibility ({kind})"), "irreversibility pass"), "{lang}: {t}");
+            assert!(row(&format!("ply-healing ({kind})"), "irreversibility FAIL"), "{lang}: {t}");
+            assert!(row(&format!("ply, regularisation ({kind})"), "regularisation pass"), "{lang}: {t}");
+            assert!(row(&format!("ply-length-dropped ({kind})"), "regularisation FAIL"), "{lang}: {t}");
+        }
     }
 }
 

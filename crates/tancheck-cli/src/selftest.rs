@@ -15,6 +15,7 @@ use tancheck_models::zoo::{self, ZooEntry};
 
 mod conventions;
 mod jc;
+mod ply;
 
 /// Demo properties for a zoo entry.
 fn props(name: &str) -> Vec<f64> {
@@ -229,6 +230,7 @@ pub fn run(verbose: bool) -> Result<i32> {
     }
     rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     rows.extend(jc::rows(&dir, &root, fortran_available())?);
+    rows.extend(ply::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
     writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;

@@ -9,6 +9,8 @@
 //! - [`Orthotropic`]: linear orthotropic elasticity with material axes among the properties.
 //! - [`JohnsonCook`]: J2 radial return with the Johnson–Cook flow stress (rate, thermal
 //!   softening, adiabatic heating) and damage-initiation indicator.
+//! - [`Ply`]: composite ply damage (Hashin initiation, crack-band linear softening per mode,
+//!   optional viscous regularisation) with its flawed variants [`PlyFlaw`].
 //!
 //! All models use the default component order of their kind and engineering shear strain;
 //! the property and state layouts are those of DEVELOPERS.md ("Reference models"). Pick one
@@ -21,6 +23,7 @@ pub mod elastic;
 pub mod j2;
 pub mod johnson_cook;
 pub mod orthotropic;
+pub mod ply;
 mod tensor;
 pub mod thermo;
 pub mod zoo;
@@ -38,6 +41,7 @@ pub use elastic::Elastic;
 pub use j2::{J2Tangent, J2};
 pub use johnson_cook::{JcTangent, JohnsonCook};
 pub use orthotropic::Orthotropic;
+pub use ply::{Ply, PlyFlaw};
 pub use thermo::{Thermo, ThermoFlaw};
 pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
 
@@ -65,6 +69,7 @@ pub enum AnyModel {
     Cohesive(Cohesive),
     Orthotropic(Orthotropic),
     JohnsonCook(JohnsonCook),
+    Ply(Ply),
 }
 
 impl AnyModel {
@@ -95,6 +100,12 @@ impl AnyModel {
             JohnsonCook::NO_RATE_TERM_NAME => {
                 Ok(AnyModel::JohnsonCook(JohnsonCook::with_tangent(kind, JcTangent::NoRateTerm)?))
             }
+            Ply::NAME => Ok(AnyModel::Ply(Ply::new(kind)?)),
+            Ply::SECANT_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::Secant)?)),
+            Ply::NO_COUPLING_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::NoCoupling)?)),
+            Ply::VISCOUS_NO_FACTOR_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::ViscousNoFactor)?)),
+            Ply::LENGTH_DROPPED_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::LengthDropped)?)),
+            Ply::HEALING_NAME => Ok(AnyModel::Ply(Ply::with_flaw(kind, PlyFlaw::Healing)?)),
             _ => Err(ModelError::UnknownName { name: name.to_string() }),
         }
     }
@@ -108,6 +119,7 @@ impl AnyModel {
             AnyModel::Cohesive(_) => &Cohesive::PROP_NAMES,
             AnyModel::Orthotropic(_) => &Orthotropic::PROP_NAMES,
             AnyModel::JohnsonCook(_) => &JohnsonCook::PROP_NAMES,
+            AnyModel::Ply(_) => &Ply::PROP_NAMES,
         }
     }
 }
@@ -121,6 +133,7 @@ impl Model for AnyModel {
             AnyModel::Cohesive(m) => m.info(),
             AnyModel::Orthotropic(m) => m.info(),
             AnyModel::JohnsonCook(m) => m.info(),
+            AnyModel::Ply(m) => m.info(),
         }
     }
 
@@ -137,6 +150,7 @@ impl Model for AnyModel {
             AnyModel::Cohesive(m) => m.evaluate(input, output),
             AnyModel::Orthotropic(m) => m.evaluate(input, output),
             AnyModel::JohnsonCook(m) => m.evaluate(input, output),
+            AnyModel::Ply(m) => m.evaluate(input, output),
         }
     }
 }

@@ -174,7 +174,7 @@ fn weight(slot: usize) -> f64 {
 
 /// The 6×6 Mandel form of the rotation σ ↦ R σ Rᵀ of symmetric tensors: with I = (i, j) and
 /// K = (k, l), Q_IK = (w_I/w_K)(R_ik R_jl + [k ≠ l] R_il R_jk). Q is orthogonal.
-fn mandel_rotation<S: Scalar>(r: &[[S; 3]; 3]) -> [[S; 6]; 6] {
+pub(crate) fn mandel_rotation<S: Scalar>(r: &[[S; 3]; 3]) -> [[S; 6]; 6] {
     let mut q = [[S::zero(); 6]; 6];
     for (big_i, &(i, j)) in PAIRS.iter().enumerate() {
         for (big_k, &(k, l)) in PAIRS.iter().enumerate() {

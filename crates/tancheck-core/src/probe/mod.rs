@@ -17,8 +17,10 @@ pub mod energy;
 pub mod frame;
 pub mod hidden_state;
 pub mod immutability;
+pub mod irreversibility;
 pub mod newton;
 pub mod refinement;
+pub mod regularisation;
 pub mod stability;
 pub mod symmetry;
 pub mod tangent;
@@ -54,6 +56,15 @@ pub struct ProbeSpec {
     /// elastic response at the start decides (anisotropic without `axes`: skipped).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub anisotropic: Option<bool>,
+    /// irreversibility: state indices (0-based) of damage variables, which must never fall.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub damage: Option<Vec<usize>>,
+    /// regularisation: property index (0-based) of the characteristic length.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub length: Option<usize>,
+    /// regularisation: the fracture energy (per unit area) the path should dissipate.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub fracture_energy: Option<f64>,
 }
 
 impl ProbeSpec {
@@ -154,6 +165,8 @@ pub fn registry() -> Vec<Box<dyn Probe>> {
         Box::new(newton::NewtonRate),
         Box::new(frame::Frame),
         Box::new(conventions::Conventions),
+        Box::new(irreversibility::Irreversibility),
+        Box::new(regularisation::Regularisation),
     ]
 }
 

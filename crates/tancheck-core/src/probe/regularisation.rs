@@ -1,0 +1,140 @@
+//! The regularisation probe (crack band, Bažant & Oh 1983): along a path that takes the point
+//! to full failure, the work done per unit volume W = ∫ σ·dε (trapezoid rule; all of it
+//! dissipated once the stress is gone) times the characteristic length L equals the declared
+//! fracture energy, and does not change with L.
+//!
+//! Suite fields: `"length"`, the property index (0-based) of L — the probe reruns the path with
+//! L/2 and the strain increments doubled (the softening strain scales with 1/L) and compares
+//! W·L; `"fracture_energy"`, the energy per unit area the path should dissipate (compared with
+//! W·L, or with W alone when there is no `length`, as for a cohesive law whose strain is a
+//! separation). Tolerance `tol` (relative, default 2e-2: the trapezoid rule over kinks that
+//! fall inside increments). A path that does not reach full failure (final stress above 1e-6
+//! of the largest) is skipped with that reason.
+
+use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::convention::ShearMeasure;
+use crate::path::Path;
+use crate::routine::Caller;
+
+pub struct Regularisation;
+
+const DEFAULT_TOL: f64 = 2e-2;
+
+/// W along `path` with `props`, and whether the stress is gone at the end.
+fn work(
+    caller: &mut Caller<'_>,
+    env: &ProbeEnv<'_>,
+    props: &[f64],
+    path: &Path,
+) -> Result<(f64, bool), (usize, crate::routine::Fault)> {
+    let env2 = ProbeEnv { props, path, ..*env };
+    let conv = caller.info().convention.clone();
+    // σ·dε is the work with engineering shear; a tensor shear counts twice.
+    let weight: Vec<f64> = conv
+        .order()
+        .iter()
+        .map(|c| if c.is_shear() && conv.shear() == ShearMeasure::Tensor { 2.0 } else { 1.0 })
+        .collect();
+    let mut w = 0.0;
+    let (mut peak, mut last) = (0.0_f64, 0.0_f64);
+    walk(caller, &env2, |_, d, _| {
+        let s0 = &d.start().stress;
+        let s1 = &d.base.stress;
+        let de = d.dstrain();
+        let mut dw = 0.0;
+        for i in 0..s1.len() {
+            dw += 0.5 * (s0[i] + s1[i]) * de[i] * weight[i];
+        }
+        w += dw;
+        last = s1.iter().map(|x| x * x).sum::<f64>().sqrt();
+        peak = peak.max(last);
+        Ok(())
+    })?;
+    Ok((w, last <= 1e-6 * peak))
+}
+
+impl Probe for Regularisation {
+    fn name(&self) -> &'static str {
+        "regularisation"
+    }
+    fn needs(&self) -> &'static str {
+        "a path to full failure; the property index of the characteristic length (\"length\") and/or the fracture energy (\"fracture_energy\")"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        let name = self.name();
+        let (length, g) = (env.spec.length, env.spec.fracture_energy);
+        if length.is_none() && g.is_none() {
+            return Ok(ProbeResult::skipped(name, "neither \"length\" nor \"fracture_energy\" declared"));
+        }
+        if let Some(i) = length {
+            if i >= env.props.len() || !env.props[i].is_finite() || env.props[i] <= 0.0 {
+                return Err(format!("regularisation: \"length\" {i} is not a positive property"));
+            }
+        }
+        let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
+        let (w, failed) = match work(caller, env, env.props, env.path) {
+            Ok(x) => x,
+            Err((k, f)) => return Ok(faulted(name, k, &f)),
+        };
+        if !failed {
+            return Ok(ProbeResult::skipped(
+                name,
+                "the path does not take the point to full failure (the stress is not gone at its end)",
+            ));
+        }
+        let l = length.map_or(1.0, |i| env.props[i]);
+        let gl = w * l;
+        let mut details = vec![format!("W = {w:.6e} per unit volume, L = {l:.6e}: W·L = {gl:.6e}")];
+        let mut worst = 0.0_f64;
+        let mut what = String::new();
+        if let Some(i) = length {
+            let mut half = env.props.to_vec();
+            half[i] *= 0.5;
+            let mut doubled = env.path.clone();
+            for inc in &mut doubled.increments {
+                for x in &mut inc.dstrain {
+                    *x *= 2.0;
+                }
+            }
+            let (w2, failed2) = match work(caller, env, &half, &doubled) {
+                Ok(x) => x,
+                Err((k, f)) => return Ok(faulted(name, k, &f)),
+            };
+            let gl2 = w2 * half[i];
+            details.push(format!("with L/2 and the path doubled: W·L = {gl2:.6e}"));
+            if !failed2 {
+                return Ok(ProbeResult::skipped(
+                    name,
+                    "with L/2 the doubled path does not reach full failure",
+                ));
+            }
+            let r = (gl2 - gl).abs() / gl.abs().max(1e-300);
+            if r > worst {
+                worst = r;
+                what = format!("W·L changes with L: {gl:.6e} at L, {gl2:.6e} at L/2 (the length is not in the softening law)");
+            }
+        }
+        if let Some(g) = g {
+            let r = (gl - g).abs() / g.abs().max(1e-300);
+            if r > worst {
+                worst = r;
+                what = format!("W·L = {gl:.6e} but the declared fracture energy is {g:.6e}");
+            }
+        }
+        let mut res = if worst <= tol {
+            ProbeResult::new(
+                name,
+                ProbeStatus::Pass,
+                format!(
+                    "dissipated energy × L = {gl:.6e}, as declared and independent of L (within {worst:.1e})"
+                ),
+            )
+        } else {
+            ProbeResult::new(name, ProbeStatus::Fail, what)
+        };
+        res.value = Some(worst);
+        res.tol = Some(tol);
+        res.details = details;
+        Ok(res)
+    }
+}

@@ -1,0 +1,217 @@
+//! The softening probes on the ply model and the cohesive law, each with a correct routine
+//! (must pass) and a flawed one (must fail with the probe's finding):
+//! - irreversibility: declared damage variables never fall along a path that loads, unloads
+//!   and reloads — the ply's `ply-healing` (damage from the current failure measure) and a
+//!   cohesive law that forgets its damage (written here) heal and fail;
+//! - regularisation: along a path to full failure the dissipated energy per unit volume × L
+//!   is the fracture energy and does not change with L (Bažant & Oh 1983) — `ply-length-dropped`
+//!   fails; for the cohesive law (no length) the area under the traction–separation curve is
+//!   G_Ic (Camanho & Dávila 2002: G_c = ½ t₀ δ_f) — a law with its tractions scaled fails.
+
+use tancheck::core::path::{Path, PathIncrement};
+use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
+use tancheck::core::{
+    CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, RoutineInfo, Scalar,
+    Settings,
+};
+use tancheck::models::{Cohesive, Ply, PlyFlaw};
+
+/// Demo ply (MPa, N/mm, mm), 0° axes: only the roles of the numbers matter here.
+fn ply_props() -> Vec<f64> {
+    vec![
+        138000.0, 11000.0, 11000.0, 0.28, 0.28, 0.4, 5500.0, 5500.0, 3928.57, 1.0, 0.0, 0.0, 0.0, 1.0, 0.0,
+        1500.0, 900.0, 27.0, 200.0, 80.0, 90.0, 80.0, 0.25, 2.0, 0.5, 0.0,
+    ]
+}
+
+/// Demo interface [K, N, S, G_Ic, G_IIc, η].
+const COHESIVE: [f64; 6] = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
+
+fn path(name: &str, steps: &[([f64; 6], usize)]) -> Path {
+    let mut p = Path { name: name.into(), increments: Vec::new() };
+    for &(d, n) in steps {
+        for _ in 0..n {
+            p.increments.push(PathIncrement { dstrain: d, dtemp: 0.0, dtime: 1.0, hold_stress: None });
+        }
+    }
+    p
+}
+
+/// Load into damage growth, unload half way, reload past the largest load.
+fn ply_path() -> Path {
+    path(
+        "transverse tension + shear, unload, reload",
+        &[
+            ([1e-4, 6e-4, 0.0, 0.0, 0.0, 5e-4], 8),
+            ([0.0, -8e-4, 0.0, 0.0, 0.0, -5e-4], 3),
+            ([1e-4, 8e-4, 0.0, 0.0, 0.0, 6e-4], 5),
+        ],
+    )
+}
+
+fn cohesive_path() -> Path {
+    path(
+        "mixed-mode opening into growth, closing half way, reopening",
+        &[
+            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 8),
+            ([-3e-4, -2e-4, -1e-4, 0.0, 0.0, 0.0], 4),
+            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 6),
+        ],
+    )
+}
+
+fn probe(
+    routine: &mut dyn tancheck::core::Routine,
+    spec: ProbeSpec,
+    props: &[f64],
+    path: &Path,
+) -> tancheck::core::probe::ProbeResult {
+    let info = routine.info().clone();
+    let mut caller = Caller::new(routine);
+    let rep = run_suite(
+        &mut caller,
+        "softening",
+        &[spec],
+        props,
+        &PointState::zero(&info, 20.0),
+        path,
+        &Settings::default(),
+    )
+    .unwrap();
+    rep.results.into_iter().next().unwrap()
+}
+
+fn irreversibility(damage: &[usize]) -> ProbeSpec {
+    ProbeSpec { damage: Some(damage.to_vec()), ..ProbeSpec::named("irreversibility") }
+}
+
+/// The cohesive law with its history forgotten: every call starts from d = 0, so the damage is
+/// that of the current separation and heals when the interface closes.
+#[derive(Clone, Debug)]
+struct ForgetfulCohesive(Cohesive);
+
+impl Model for ForgetfulCohesive {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        let fresh = [S::zero(), S::zero()];
+        let forgetful = CallInput { state0: &fresh, ..*input };
+        self.0.evaluate(&forgetful, output)
+    }
+}
+
+#[test]
+fn irreversibility_passes_the_ply_and_fails_the_healing_ply() {
+    for kind in Ply::KINDS {
+        let mut good = ModelRoutine(Ply::new(kind).unwrap());
+        let r = probe(&mut good, irreversibility(&[4, 5, 6, 7]), &ply_props(), &ply_path());
+        assert_eq!(r.status, ProbeStatus::Pass, "{kind}: {}", r.summary);
+        assert!(r.summary.contains("grows"), "{kind}: the path must reach damage growth: {}", r.summary);
+        let mut bad = ModelRoutine(Ply::with_flaw(kind, PlyFlaw::Healing).unwrap());
+        let r = probe(&mut bad, irreversibility(&[4, 5, 6, 7]), &ply_props(), &ply_path());
+        assert_eq!(r.status, ProbeStatus::Fail, "{kind}: {}", r.summary);
+        // It heals on the first unloading increment (9).
+        assert_eq!(r.increment, Some(9), "{}", r.summary);
+        assert!(r.summary.contains("heals"), "{}", r.summary);
+    }
+}
+
+#[test]
+fn irreversibility_passes_the_cohesive_law_and_fails_a_forgetful_one() {
+    let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
+    let r = probe(&mut good, irreversibility(&[0]), &COHESIVE, &cohesive_path());
+    assert_eq!(r.status, ProbeStatus::Pass, "{}", r.summary);
+    assert!(r.summary.contains("grows"), "{}", r.summary);
+    let mut bad = ModelRoutine(ForgetfulCohesive(Cohesive::new(PointKind::Cohesive3d).unwrap()));
+    let r = probe(&mut bad, irreversibility(&[0]), &COHESIVE, &cohesive_path());
+    assert_eq!(r.status, ProbeStatus::Fail, "{}", r.summary);
+    assert_eq!(r.increment, Some(9), "{}", r.summary);
+}
+
+#[test]
+fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_error() {
+    let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
+    let r = probe(&mut good, ProbeSpec::named("irreversibility"), &COHESIVE, &cohesive_path());
+    assert_eq!(r.status, ProbeStatus::Skipped);
+    let info = good.0.info().clone();
+    let mut caller = Caller::new(&mut good);
+    let e = run_suite(
+        &mut caller,
+        "s",
+        &[irreversibility(&[7])],
+        &COHESIVE,
+        &PointState::zero(&info, 20.0),
+        &cohesive_path(),
+        &Settings::default(),
+    )
+    .unwrap_err();
+    assert!(e.contains("damage index 7"), "{e}");
+}
+
+/// The demo ply with ν12 = ν13 = 0, so that a path of transverse strain alone is a uniaxial
+/// stress in the material frame and the matrix-tension softening is exactly linear in it.
+fn ply_uncoupled() -> Vec<f64> {
+    let mut p = ply_props();
+    p[3] = 0.0;
+    p[4] = 0.0;
+    p
+}
+
+fn regularisation(length: Option<usize>, g: Option<f64>) -> ProbeSpec {
+    ProbeSpec { length, fracture_energy: g, ..ProbeSpec::named("regularisation") }
+}
+
+#[test]
+fn regularisation_passes_the_ply_and_fails_the_length_dropping_ply() {
+    // Transverse strain to 0.045, past ε_f = 2 G_mt/(Yt L) = 2·0.25/(27·0.5) = 0.0370 (derived).
+    let p = path("transverse tension to full failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 60)]);
+    let props = ply_uncoupled();
+    let mut good = ModelRoutine(Ply::new(PointKind::PlaneStress).unwrap());
+    let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Pass, "{} {:?}", r.summary, r.details);
+    let mut bad = ModelRoutine(Ply::with_flaw(PointKind::PlaneStress, PlyFlaw::LengthDropped).unwrap());
+    let r = probe(&mut bad, regularisation(Some(24), None), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
+    assert!(r.summary.contains("changes with L"), "{}", r.summary);
+    // A path that stops before failure is not judged.
+    let short = path("transverse tension, not to failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 10)]);
+    let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &short);
+    assert_eq!(r.status, ProbeStatus::Skipped, "{}", r.summary);
+}
+
+/// The cohesive law with every traction and tangent entry scaled by 1.2: its area is 1.2 G.
+#[derive(Clone, Debug)]
+struct StrongCohesive(Cohesive);
+
+impl Model for StrongCohesive {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        output: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        self.0.evaluate(input, output)?;
+        output.stress.iter_mut().chain(output.tangent.iter_mut()).for_each(|x| *x *= S::cst(1.2));
+        Ok(())
+    }
+}
+
+#[test]
+fn regularisation_passes_the_cohesive_law_and_fails_a_law_of_another_area() {
+    // Mode I opening to 0.0125 mm, past δ_f = 2 G_Ic/N = 0.01 mm (derived from G_c = ½ t₀ δ_f).
+    let p = path("mode I opening to full failure", &[([2.5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 50)]);
+    let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
+    let r = probe(&mut good, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
+    assert_eq!(r.status, ProbeStatus::Pass, "{} {:?}", r.summary, r.details);
+    let mut bad = ModelRoutine(StrongCohesive(Cohesive::new(PointKind::Cohesive3d).unwrap()));
+    let r = probe(&mut bad, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
+    assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
+    assert!(r.summary.contains("declared fracture energy"), "{}", r.summary);
+}
