@@ -206,6 +206,11 @@ impl Driver {
         self.dtemp = dtemp;
     }
 
+    /// Replace the time increment (the start state stays; the base call must be made again).
+    pub fn set_dtime_keep_count(&mut self, dtime: f64) {
+        self.dtime = dtime;
+    }
+
     /// Replace the strain increment (the start state stays; the base call must be made again).
     pub fn set_dstrain(&mut self, dstrain: &[f64]) {
         self.dstrain.copy_from_slice(dstrain);

@@ -14,6 +14,8 @@ fn end_stress(d: &Driver, c: &mut Caller<'_>, m: usize) -> Result<Vec<f64>, Faul
     let mut sub = d.clone();
     let part: Vec<f64> = d.dstrain().iter().map(|x| x / m as f64).collect();
     let dtemp = d.dtemp() / m as f64;
+    // Each sub-increment takes its share of the time too, so rates stay those of the path.
+    sub.set_dtime_keep_count(d.dtime() / m as f64);
     for _ in 0..m {
         sub.set_increment_keep_count(&part, dtemp);
         sub.base_call(c)?;

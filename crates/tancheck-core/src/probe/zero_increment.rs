@@ -1,4 +1,4 @@
-//! The zero-increment probe: Δε = 0 (and ΔT = 0) from the start of each increment returns the
+//! The zero-increment probe: Δε = 0 (and ΔT = 0, Δt = 0) from the start of each increment returns the
 //! start stress and a finite tangent (default tolerance 1e-12 of the stress scale).
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
@@ -25,12 +25,17 @@ impl Probe for ZeroIncrement {
             }
             let full = d.dstrain().to_vec();
             let dtemp = d.dtemp();
+            let dtime = d.dtime();
             let zero = vec![0.0; full.len()];
+            // Nothing happens: no strain, no temperature change and no time (over a positive
+            // time a rate-dependent or viscous routine rightly relaxes).
             d.set_increment_keep_count(&zero, 0.0);
+            d.set_dtime_keep_count(0.0);
             let r = d.base_call(c);
             let stress = d.base.stress.clone();
             let finite = d.base.tangent.iter().chain(&d.base.stress).all(|x| x.is_finite());
             d.set_increment_keep_count(&full, dtemp);
+            d.set_dtime_keep_count(dtime);
             d.base_call(c)?;
             r?;
             let scale = d.start().stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
