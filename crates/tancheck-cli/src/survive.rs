@@ -114,11 +114,13 @@ fn name_routine(json: Option<&Path>, routine: &str, marker: bool) -> Result<()> 
             watch::set_report(&head(routine), "", "", true);
         }
         Some(p) => {
+            // The temporary name is registered first, so a SIGINT or SIGTERM while the marker
+            // itself is written removes it too.
+            let tmp = crate::report::temporary_name(p);
+            watch::set_report(&head(routine), &p.to_string_lossy(), &tmp.to_string_lossy(), false);
             if marker {
                 write_marker(p, routine)?;
             }
-            let tmp = crate::report::temporary_name(p);
-            watch::set_report(&head(routine), &p.to_string_lossy(), &tmp.to_string_lossy(), false);
         }
     }
     Ok(())
