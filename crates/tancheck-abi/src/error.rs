@@ -157,7 +157,7 @@ pub enum BuildError {
         output: String,
         hint: String,
         /// Every command run until then, the failing one last.
-        log: Box<crate::compile::BuildLog>,
+        log: Box<crate::build_log::BuildLog>,
     },
 
     #[error("cannot {action} `{}`: {source}", path.display())]

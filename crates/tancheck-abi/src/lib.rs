@@ -11,6 +11,7 @@
 //!   reads past the end of the inputs, as [`GuardFinding`]s of the routine.
 //! - [`build_library`] compiles C and Fortran sources into such a library, with the twin.
 
+pub mod build_log;
 pub mod compile;
 pub mod error;
 pub mod guard;

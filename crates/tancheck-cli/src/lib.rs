@@ -12,6 +12,7 @@ pub mod load;
 pub mod manifest;
 pub mod report;
 pub mod selftest;
+pub mod session;
 pub mod suite;
 pub mod survive;
 

@@ -7,10 +7,12 @@
 
 pub mod adapt;
 pub mod bisect;
+pub mod call_check;
 pub mod case;
 pub mod check;
 pub mod compare;
 pub mod convention;
+pub mod convention_fit;
 pub mod diagnose;
 pub mod driver;
 pub mod first_calls;
