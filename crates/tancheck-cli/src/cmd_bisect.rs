@@ -16,7 +16,7 @@ use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
 use tancheck_core::path::Path;
 use tancheck_core::{check, Caller, PointState, Settings, Verdict};
 
-use crate::cmd_replay::{open_for_manifest, write_case};
+use crate::case_store::{open_for_manifest, write_case};
 use crate::exit;
 use crate::load::start_state;
 use crate::manifest::{parse_path_arg, Manifest};
