@@ -3,7 +3,7 @@
 //! For every crate (`crates/*/src` and the root `src`), each file's `crate::…`, `super::…`
 //! and `self::…` paths (in `use` trees, braces expanded, and in code) are resolved to the
 //! module file they name. An edge between two modules counts between the two siblings under
-//! their lowest common ancestor that contain them (so `check::walk` → `bisect::judge` is an
+//! their lowest common ancestor that contain them (so `walk::step` → `locate::find` is an
 //! edge `check` → `bisect` at the crate root); a module using its own parent or child is not
 //! an edge (a module and its submodules are one unit). Any strongly connected set of two or
 //! more siblings is a cycle, printed with the file and line of each import in it.
@@ -13,7 +13,7 @@
 use std::collections::{BTreeMap, BTreeSet};
 use std::path::{Path, PathBuf};
 
-/// A module path inside a crate: `[]` is the crate root, `["bisect", "judge"]` is bisect/judge.rs.
+/// A module path inside a crate: `[]` is the crate root, `["walk", "step"]` is walk/step.rs.
 type ModPath = Vec<String>;
 
 /// One import: the importing module, the module imported from, and where it is written.
