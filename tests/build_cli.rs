@@ -97,10 +97,8 @@ fn a_compiler_error_fails_with_the_compilers_words_and_extra_c_flags_reach_the_c
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn extra_fortran_flags_reach_every_fortran_compilation() {
-    if !tancheck::abi::fortran_for_test("extra_fortran_flags_reach_every_fortran_compilation") {
-        return;
-    }
     let d = scratch("f");
     let src = d.join("elastic.F90");
     std::fs::copy(

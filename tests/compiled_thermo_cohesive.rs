@@ -7,8 +7,8 @@
 //!
 //! The Rust models are tied to published values (EN 1993-1-2; Camanho & Dávila 2002) and to
 //! num-dual derivatives in crates/tancheck-models/tests/{thermo,cohesive}.rs. Without a
-//! Fortran compiler the Fortran halves are skipped loudly, or fail with
-//! TANCHECK_REQUIRE_FORTRAN=1 (tancheck::abi::fortran_for_test).
+//! Fortran compiler the Fortran halves are ignored ("needs gfortran", cfg set by build.rs);
+//! with TANCHECK_REQUIRE_FORTRAN=1 they run.
 
 use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
@@ -16,7 +16,7 @@ use std::sync::OnceLock;
 use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, fortran_for_test, BuildOptions, Library};
+use tancheck::abi::{build_library, BuildOptions, Library};
 use tancheck::core::routine::provides;
 use tancheck::core::{CallInput, Model, PointKind, Routine, RoutineInfo};
 use tancheck::models::cohesive::branch;
@@ -248,10 +248,8 @@ fn c_thermo_matches_the_rust_model() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_thermo_matches_the_rust_model() {
-    if !fortran_for_test("fortran_thermo_matches_the_rust_model") {
-        return;
-    }
     check_thermo(f_lib(), "f");
 }
 
@@ -386,10 +384,8 @@ fn c_cohesive_matches_the_rust_model() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_cohesive_matches_the_rust_model() {
-    if !fortran_for_test("fortran_cohesive_matches_the_rust_model") {
-        return;
-    }
     check_cohesive(f_lib(), "f");
 }
 
@@ -407,18 +403,27 @@ fn build_debug(name: &str, sources: &[&str]) -> PathBuf {
 // floating-point traps for invalid operation, division by zero and overflow, in every branch
 // and law: no trap fires, and the results are the Rust models' as above.
 #[test]
-fn debug_builds_run_clean_under_fp_traps() {
-    let mut libs = vec![(build_debug("thermo_cohesive_c_debug", &["c/thermo.c", "c/cohesive.c"]), "c")];
-    if fortran_for_test("debug_builds_run_clean_under_fp_traps (Fortran half)") {
-        libs.push((
-            build_debug("thermo_cohesive_f_debug", &["fortran/thermo.F90", "fortran/cohesive.F90"]),
-            "f",
-        ));
-    }
-    let traps = tancheck::abi::guard::fp_traps_available();
-    if !traps {
-        eprintln!("SKIPPED debug_builds_run_clean_under_fp_traps (trapping half): no FP traps on this machine; comparing only");
-    }
+#[cfg_attr(tancheck_no_fp_traps, ignore = "needs floating-point traps (this machine has none)")]
+fn c_debug_builds_run_clean_under_fp_traps() {
+    debug_builds_run_clean(vec![(
+        build_debug("thermo_cohesive_c_debug", &["c/thermo.c", "c/cohesive.c"]),
+        "c",
+    )]);
+}
+
+#[test]
+#[cfg_attr(
+    any(tancheck_no_fortran, tancheck_no_fp_traps),
+    ignore = "needs gfortran and floating-point traps"
+)]
+fn fortran_debug_builds_run_clean_under_fp_traps() {
+    debug_builds_run_clean(vec![(
+        build_debug("thermo_cohesive_f_debug", &["fortran/thermo.F90", "fortran/cohesive.F90"]),
+        "f",
+    )]);
+}
+
+fn debug_builds_run_clean(libs: Vec<(PathBuf, &str)>) {
     let mut rng = StdRng::seed_from_u64(0x7c0e_0003);
     for (path, prefix) in libs {
         let lib = Library::open(&path).unwrap();
@@ -429,7 +434,7 @@ fn debug_builds_run_clean_under_fp_traps() {
                 let model = Thermo::new(kind).unwrap().with_table_points(points);
                 let symbol = format!("{prefix}_thermo");
                 let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
-                r.set_fp_traps(traps).unwrap();
+                r.set_fp_traps(true).unwrap();
                 compare(&mut r, &model, &model, &c, &format!("debug {symbol} {kind} #{k} {c:?}"));
                 calls += 1;
             }
@@ -438,7 +443,7 @@ fn debug_builds_run_clean_under_fp_traps() {
             let model = Cohesive::new(kind).unwrap();
             let symbol = format!("{prefix}_cohesive");
             let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
-            r.set_fp_traps(traps).unwrap();
+            r.set_fp_traps(true).unwrap();
             for target in [branch::ELASTIC, branch::GROWTH, branch::UNLOADING, branch::CLOSED, branch::FAILED]
             {
                 for k in 0..20 {
@@ -449,70 +454,65 @@ fn debug_builds_run_clean_under_fp_traps() {
                 }
             }
         }
-        eprintln!("{prefix} debug build: {calls} states clean (traps {traps})");
+        eprintln!("{prefix} debug build: {calls} states clean (traps on)");
     }
 }
 
 // A compiled routine refuses what the Rust model refuses, with the same message.
 #[test]
-fn compiled_routines_refuse_bad_input_like_the_rust_models() {
-    let mut libs = vec![(c_lib(), "c")];
-    if fortran_for_test("compiled_routines_refuse_bad_input_like_the_rust_models (Fortran half)") {
-        libs.push((f_lib(), "f"));
-    }
-    for (path, prefix) in libs {
-        let lib = Library::open(path).unwrap();
-        let model = Cohesive::new(PointKind::Cohesive2d).unwrap();
-        let symbol = format!("{prefix}_cohesive");
-        let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
-        let c = Call {
-            props: vec![1e6, 80.0, 100.0, 0.969, 1.719, 0.5],
-            strain: vec![0.0; 2],
-            dstrain: vec![1e-5, 0.0],
-            temp: [20.0, 0.0],
-            state0: vec![0.0, 0.0],
-        };
-        let stress0 = [0.0; 2];
-        let input = CallInput {
-            props: &c.props,
-            strain: &c.strain,
-            dstrain: &c.dstrain,
-            temp: c.temp,
-            stress0: &stress0,
-            state0: &c.state0,
-            time: [0.0, 1.0],
-            increment: 1,
-            want_tangent: true,
-        };
-        let mut got = Out::new(2, 2, f64::NAN);
-        let mut want = Out::new(2, 2, f64::NAN);
-        let e_got = r.call(&input, &mut got.view()).unwrap_err().to_string();
-        let e_want = tancheck::core::ModelRoutine(model.clone())
-            .call(&input, &mut want.view())
-            .unwrap_err()
-            .to_string();
-        assert_eq!(e_got, e_want);
-        assert!(e_got.contains("eta (props[5])"), "{e_got}");
+fn compiled_c_routines_refuse_bad_input_like_the_rust_models() {
+    refuse_bad_input_like_the_rust_models(c_lib(), "c");
+}
 
-        let model = Thermo::new(PointKind::Solid3d).unwrap();
-        let symbol = format!("{prefix}_thermo");
-        let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
-        let props = [210_000.0, 0.3, 0.0, 2.0, 0.0, 12e-6];
-        let zeros = [0.0; 6];
-        let input = CallInput {
-            props: &props,
-            strain: &zeros,
-            dstrain: &zeros,
-            stress0: &zeros,
-            state0: &[],
-            ..input
-        };
-        let mut got = Out::new(6, 0, f64::NAN);
-        let mut want = Out::new(6, 0, f64::NAN);
-        let e_got = r.call(&input, &mut got.view()).unwrap_err().to_string();
-        let e_want =
-            tancheck::core::ModelRoutine(model).call(&input, &mut want.view()).unwrap_err().to_string();
-        assert_eq!(e_got, e_want);
-        assert!(e_got.contains("at least 2"), "{e_got}");
-    }
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn compiled_fortran_routines_refuse_bad_input_like_the_rust_models() {
+    refuse_bad_input_like_the_rust_models(f_lib(), "f");
+}
+
+fn refuse_bad_input_like_the_rust_models(path: &Path, prefix: &str) {
+    let lib = Library::open(path).unwrap();
+    let model = Cohesive::new(PointKind::Cohesive2d).unwrap();
+    let symbol = format!("{prefix}_cohesive");
+    let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
+    let c = Call {
+        props: vec![1e6, 80.0, 100.0, 0.969, 1.719, 0.5],
+        strain: vec![0.0; 2],
+        dstrain: vec![1e-5, 0.0],
+        temp: [20.0, 0.0],
+        state0: vec![0.0, 0.0],
+    };
+    let stress0 = [0.0; 2];
+    let input = CallInput {
+        props: &c.props,
+        strain: &c.strain,
+        dstrain: &c.dstrain,
+        temp: c.temp,
+        stress0: &stress0,
+        state0: &c.state0,
+        time: [0.0, 1.0],
+        increment: 1,
+        want_tangent: true,
+    };
+    let mut got = Out::new(2, 2, f64::NAN);
+    let mut want = Out::new(2, 2, f64::NAN);
+    let e_got = r.call(&input, &mut got.view()).unwrap_err().to_string();
+    let e_want =
+        tancheck::core::ModelRoutine(model.clone()).call(&input, &mut want.view()).unwrap_err().to_string();
+    assert_eq!(e_got, e_want);
+    assert!(e_got.contains("eta (props[5])"), "{e_got}");
+
+    let model = Thermo::new(PointKind::Solid3d).unwrap();
+    let symbol = format!("{prefix}_thermo");
+    let mut r = lib.routine(&symbol, info_for(&symbol, &model)).unwrap();
+    let props = [210_000.0, 0.3, 0.0, 2.0, 0.0, 12e-6];
+    let zeros = [0.0; 6];
+    let input =
+        CallInput { props: &props, strain: &zeros, dstrain: &zeros, stress0: &zeros, state0: &[], ..input };
+    let mut got = Out::new(6, 0, f64::NAN);
+    let mut want = Out::new(6, 0, f64::NAN);
+    let e_got = r.call(&input, &mut got.view()).unwrap_err().to_string();
+    let e_want = tancheck::core::ModelRoutine(model).call(&input, &mut want.view()).unwrap_err().to_string();
+    assert_eq!(e_got, e_want);
+    assert!(e_got.contains("at least 2"), "{e_got}");
 }

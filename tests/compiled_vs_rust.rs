@@ -11,7 +11,7 @@ use std::sync::OnceLock;
 use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, fortran_for_test, BuildOptions, Library};
+use tancheck::abi::{build_library, BuildOptions, Library};
 use tancheck::core::{CallInput, PointKind, Routine};
 use tancheck::models::reference;
 
@@ -196,9 +196,7 @@ fn c_examples_match_the_rust_models() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_examples_match_the_rust_models() {
-    if !fortran_for_test("fortran_examples_match_the_rust_models") {
-        return;
-    }
     check_language(f_lib(), "f");
 }

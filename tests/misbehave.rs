@@ -144,10 +144,8 @@ fn exit_ends_the_process_without_isolation_and_is_reported_with_it() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn a_fortran_stop_is_reported_under_isolation() {
-    if !tancheck::abi::fortran_for_test("a_fortran_stop_is_reported_under_isolation") {
-        return;
-    }
     let lib = build("misbehave_f", "fortran-shim/examples/fortran/misbehave.F90");
     let (c, t) = check(&lib, "f_bad_stop", &["--isolate"]);
     assert_eq!(c, Some(3), "{t}");
@@ -190,11 +188,8 @@ fn without_debug_information_a_crash_names_the_exported_function_and_says_how_to
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fp_traps, ignore = "needs floating-point traps (this machine has none)")]
 fn a_debug_build_runs_with_floating_point_traps_without_being_asked() {
-    if !tancheck::abi::guard::fp_traps_available() {
-        eprintln!("SKIPPED: this machine cannot trap floating-point exceptions");
-        return;
-    }
     // Optimised build: the division by zero gives an infinite stress, no signal.
     let (c, t) = check(c_lib(), "bad_divide_by_zero", &[]);
     assert!(!t.contains("SIGFPE"), "{t}");

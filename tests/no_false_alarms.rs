@@ -5,8 +5,8 @@
 
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::core::adapt::Relabel;
 use tancheck::core::path::{Path, PathIncrement};
+use tancheck::core::relabel::Relabel;
 use tancheck::core::{check, Caller, Convention, PointKind, PointState, Routine, Settings, ShearMeasure};
 use tancheck::models::reference;
 

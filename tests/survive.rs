@@ -285,10 +285,8 @@ fn exit_during_a_call_writes_the_report_with_the_increment_and_its_inputs() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn a_fortran_stop_writes_the_report_with_the_increment() {
-    if !tancheck::abi::fortran_for_test("a_fortran_stop_writes_the_report_with_the_increment") {
-        return;
-    }
     let lib = build("fstop", "fortran-shim/examples/fortran/misbehave.F90");
     let r = check(&lib, "f_bad_stop", 3, &[]);
     assert_fault(&r, "in-process", 70, "exit()");
@@ -336,11 +334,11 @@ fn printing_routines_leave_the_json_on_standard_output_intact() {
         assert_eq!(code, Some(0), "{flags:?}: {v}");
         assert_eq!(v["verdict"], "pass");
     }
-    if !tancheck::abi::fortran_for_test(
-        "printing_routines_leave_the_json_on_standard_output_intact (Fortran)",
-    ) {
-        return;
-    }
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn printing_fortran_routines_leave_the_json_on_standard_output_intact() {
     let lib = build("fprint", "fortran-shim/examples/fortran/misbehave.F90");
     for flags in [&[][..], &["--isolate"][..]] {
         let (code, v) = check_json_stdout(&lib, "f_print", flags);

@@ -91,7 +91,10 @@ fn missing_symbol_message(library: &std::path::Path, symbol: &str, near: &[Strin
          declared extern \"C\". Give the symbol as the library exports it, or export the \
          routine under a plain name with bind(C, name=\"...\") or extern \"C\".",
     );
-    m.push_str(&format!(" (The complex-step twin is looked up as `{symbol}{}`.)", crate::guard::TWIN_SUFFIX));
+    m.push_str(&format!(
+        " (The complex-step twin is looked up as `{symbol}{}`.)",
+        crate::signal_guard::TWIN_SUFFIX
+    ));
     m
 }
 
@@ -157,7 +160,7 @@ pub enum BuildError {
         output: String,
         hint: String,
         /// Every command run until then, the failing one last.
-        log: Box<crate::compile::BuildLog>,
+        log: Box<crate::build_log::BuildLog>,
     },
 
     #[error("cannot {action} `{}`: {source}", path.display())]

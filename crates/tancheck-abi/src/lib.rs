@@ -3,18 +3,23 @@
 //! - [`Library`] loads a shared library of material routines and finds a routine and its
 //!   complex-step twin (`symbol_cx`); [`LibraryRoutine`] is such a routine as a
 //!   [`tancheck_core::Routine`].
-//! - Every call goes through the guarded trampoline of `fortran-shim/src/guard.c` ([`guard`]),
+//! - Every call goes through the guarded trampoline of `fortran-shim/src/guard.c` ([`signal_guard`]),
 //!   which turns a crash inside the routine (SIGSEGV, SIGBUS, SIGFPE, SIGILL, SIGABRT) into a
 //!   [`tancheck_core::Fault::Crashed`] instead of ending the process.
-//! - The memory guards ([`guards`]) around every call report writes past the end of an
+//! - The memory guards ([`memory_guards`]) around every call report writes past the end of an
 //!   array, writes to read-only inputs, outputs left unwritten and (at [`GuardLevel::Full`])
 //!   reads past the end of the inputs, as [`GuardFinding`]s of the routine.
 //! - [`build_library`] compiles C and Fortran sources into such a library, with the twin.
 
+pub mod build_log;
 pub mod compile;
 pub mod error;
-pub mod guard;
-pub mod guards;
+pub mod memory_guards;
+pub mod signal_guard;
+
+// The modules' former names, for callers written before the rename.
+pub use memory_guards as guards;
+pub use signal_guard as guard;
 pub mod library;
 pub mod locate;
 pub mod watch;
@@ -24,6 +29,6 @@ pub use compile::{
     BuildLog, BuildOptions, DEBUG_MARKER,
 };
 pub use error::{BuildError, LoadError, TrapError};
-pub use guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};
-pub use guards::{FindingKind, GuardFinding, GuardLevel, GuardedArray};
 pub use library::{Library, LibraryRoutine};
+pub use memory_guards::{FindingKind, GuardFinding, GuardLevel, GuardedArray};
+pub use signal_guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};

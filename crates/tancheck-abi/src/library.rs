@@ -15,8 +15,10 @@ use tancheck_core::routine::status_fault;
 use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Outcome, Routine, RoutineInfo};
 
 use crate::error::{LoadError, TrapError};
-use crate::guard::{self, ComplexFn, GuardArgs, RealFn, TcCall, ABI_VERSION, TWIN_SUFFIX, WANT_TANGENT};
-use crate::guards::{Findings, GuardBuffers, GuardFinding, GuardLevel};
+use crate::memory_guards::{Findings, GuardBuffers, GuardFinding, GuardLevel};
+use crate::signal_guard::{
+    self as guard, ComplexFn, GuardArgs, RealFn, TcCall, ABI_VERSION, TWIN_SUFFIX, WANT_TANGENT,
+};
 
 /// A loaded shared library.
 #[derive(Clone)]

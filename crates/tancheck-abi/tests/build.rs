@@ -7,10 +7,6 @@ use std::path::PathBuf;
 use common::*;
 use tancheck_abi::{build_library, BuildError, BuildOptions, Library};
 
-fn no_fortran(test: &str) -> bool {
-    !tancheck_abi::fortran_for_test(test)
-}
-
 fn fortran_example(name: &str) -> PathBuf {
     shim().join("examples/fortran").join(name)
 }
@@ -18,10 +14,8 @@ fn fortran_example(name: &str) -> PathBuf {
 /// The Fortran reference routine, built with the shipped modules, gives the elastic response,
 /// and its twin gives the tangent by complex step.
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_sources_build_with_modules_and_twin() {
-    if no_fortran("fortran_sources_build_with_modules_and_twin") {
-        return;
-    }
     let dir = scratch("fortran");
     let out = dir.join("lib/libexamples.so"); // the lib/ folder does not exist yet
     let opts = BuildOptions::new([fortran_example("elastic.F90"), fortran_example("j2.F90")], &out);
@@ -48,10 +42,8 @@ fn fortran_sources_build_with_modules_and_twin() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn c_and_fortran_link_into_one_library() {
-    if no_fortran("c_and_fortran_link_into_one_library") {
-        return;
-    }
     let dir = scratch("mixed");
     let out = dir.join("libmixed.so");
     let log = build_library(&BuildOptions::new(
@@ -88,10 +80,12 @@ fn debug_builds_use_the_debug_flags() {
     b.assert_elastic();
     assert!(b.call(&mut r, 2).is_err());
     assert!(log.to_string().contains("$ cc "), "{log}");
+}
 
-    if no_fortran("the Fortran half of debug_builds_use_the_debug_flags") {
-        return;
-    }
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn fortran_debug_builds_use_the_debug_flags() {
+    let dir = scratch("debug-f");
     let out = dir.join("libelastic-debug.so");
     let mut opts = BuildOptions::new([fortran_example("elastic.F90")], &out);
     opts.debug = true;

@@ -33,11 +33,8 @@ fn a_text_file_is_not_a_library() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_cc, ignore = "needs a C compiler (set CC or install gcc)")]
 fn an_object_file_is_not_a_library() {
-    if !tancheck_abi::c_available() {
-        eprintln!("SKIPPED an_object_file_is_not_a_library: no C compiler (set CC or install gcc)");
-        return;
-    }
     let dir = scratch("object");
     let o = dir.join("misbehave.o");
     let status = Command::new("cc")
@@ -57,11 +54,8 @@ fn an_object_file_is_not_a_library() {
 
 /// The same library with its ELF machine field set to another architecture.
 #[test]
+#[cfg_attr(not(target_os = "linux"), ignore = "needs ELF")]
 fn a_library_for_another_machine_is_refused_with_both_names() {
-    if !cfg!(target_os = "linux") {
-        eprintln!("SKIPPED a_library_for_another_machine_is_refused_with_both_names: needs ELF");
-        return;
-    }
     let data = std::fs::read(misbehave_library()).unwrap();
     let little = data[5] == 1;
     let (machine, name): (u16, &str) =
@@ -109,10 +103,8 @@ fn write(dir: &Path, name: &str, text: &str) -> std::path::PathBuf {
 /// A routine compiled by gfortran without bind(C) is exported with a trailing underscore; a
 /// module procedure as __module_MOD_name. The message says so.
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_decorations_are_explained() {
-    if !tancheck_abi::fortran_for_test("fortran_decorations_are_explained") {
-        return;
-    }
     let dir = scratch("decorated");
     let src = write(
         &dir,
@@ -189,11 +181,8 @@ fn without_the_twin_there_is_no_complex_capability() {
 /// A library with an unresolved name fails at load time (all names are bound then), with
 /// a hint, not at the first call.
 #[test]
+#[cfg_attr(tancheck_no_cc, ignore = "needs a C compiler (set CC or install gcc)")]
 fn an_unresolved_name_is_reported_at_load() {
-    if !tancheck_abi::c_available() {
-        eprintln!("SKIPPED an_unresolved_name_is_reported_at_load: no C compiler (set CC or install gcc)");
-        return;
-    }
     let dir = scratch("unresolved");
     let src = write(&dir, "u.c", "void flow_rule_(double *);\nvoid r(double *x) { flow_rule_(x); }\n");
     let out = dir.join("libunresolved.so");

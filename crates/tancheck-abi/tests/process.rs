@@ -154,10 +154,8 @@ end subroutine f_bounds
 /// A failed run-time check of the Fortran library (here an array bound, with --debug) ends
 /// the process through exit(); the guard names the routine and fixes the exit status.
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_run_time_error_is_reported() {
-    if !tancheck_abi::fortran_for_test("fortran_run_time_error_is_reported") {
-        return;
-    }
     let dir = scratch("bounds");
     let src = dir.join("bounds.f90");
     std::fs::write(&src, BOUNDS_F90).unwrap();

@@ -232,10 +232,8 @@ fn c_and_rust_lay_out_the_options_alike() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_and_rust_lay_out_the_options_alike() {
-    if !tancheck_abi::compile::fortran_for_test("fortran_and_rust_lay_out_the_options_alike") {
-        return;
-    }
     let dir = scratch("layout-fortran");
     let mut src = String::from(
         "program layout\n  use, intrinsic :: iso_c_binding, only: c_loc, c_sizeof, c_intptr_t\n  \

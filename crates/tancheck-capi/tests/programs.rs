@@ -45,12 +45,8 @@ fn the_c_program_passes_the_consistent_j2_and_fails_the_continuum_one() {
 /// check_from_fortran.f90 with f_j2 and f_j2_continuum (j2.F90, real and complex twin) and
 /// the modules, linked with the shared library.
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn the_fortran_program_passes_the_consistent_j2_and_fails_the_continuum_one() {
-    if !tancheck_abi::compile::fortran_for_test(
-        "the_fortran_program_passes_the_consistent_j2_and_fails_the_continuum_one",
-    ) {
-        return;
-    }
     let lib = library_dir();
     let dir = scratch("fortran-program");
     let fortran = shim().join("fortran");
@@ -101,15 +97,8 @@ fn the_fortran_program_passes_the_consistent_j2_and_fails_the_continuum_one() {
 /// fortran-shim/tancheck.pc.in, filled in for an installation into a scratch prefix, gives
 /// the flags that build and link check_from_c.c against the shared library.
 #[test]
+#[cfg_attr(tancheck_no_pkg_config, ignore = "needs pkg-config (apt-get install pkg-config)")]
 fn the_pkg_config_file_builds_the_c_program() {
-    let probe = std::process::Command::new("pkg-config").arg("--version").output();
-    if !probe.is_ok_and(|o| o.status.success()) {
-        eprintln!(
-            "SKIPPED the_pkg_config_file_builds_the_c_program: no pkg-config on PATH (install it with \
-             the system package manager, e.g. `apt-get install pkg-config`)"
-        );
-        return;
-    }
     let lib = library_dir();
     let prefix = scratch("pkg-config-prefix");
     std::fs::create_dir_all(prefix.join("include")).unwrap();

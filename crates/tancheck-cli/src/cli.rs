@@ -6,15 +6,16 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 use clap::{Args, CommandFactory, Parser, Subcommand};
 
-use tancheck_core::path::{Path, Shape};
-use tancheck_core::{check, Caller, PointKind, Report, Scheme};
+use tancheck_core::{Caller, PointKind, Scheme};
 
 use crate::exit;
 use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
-use crate::report::json::Json;
-use crate::report::terminal::{Detail, Terminal};
-use crate::report::{write_atomic, Reporter};
+use crate::report::terminal::Detail;
+use crate::report::write_atomic;
+// Kept reachable here for older callers; their home is session.rs (and demo.rs for DemoArgs).
+pub use crate::demo::DemoArgs;
+pub use crate::session::{default_path, emit, routine_name, run_manifest};
 
 #[derive(Parser, Debug)]
 #[command(
@@ -159,16 +160,6 @@ fn guards_arg(g: &str) -> Result<crate::manifest::Guards> {
     })
 }
 
-#[derive(Args, Debug)]
-pub struct DemoArgs {
-    /// Keep the built libraries and manifests in this folder.
-    #[arg(long, value_name = "DIR")]
-    pub keep: Option<PathBuf>,
-    /// Print the full report of every routine.
-    #[arg(short, long)]
-    pub verbose: bool,
-}
-
 /// Run the command line; returns the exit code.
 pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32 {
     let cli = match Cli::try_parse_from(args) {
@@ -211,12 +202,6 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
     let scheme: Scheme = name.parse().map_err(anyhow::Error::msg)?;
     let value: f64 = v.parse().with_context(|| format!("--{what}: `{v}` is not a number"))?;
     Ok((scheme, value))
-}
-
-/// The default path: into the inelastic range of typical metals and back.
-pub fn default_path(kind: PointKind) -> Path {
-    let shape = if kind == PointKind::Uniaxial { Shape::UniaxialStrain } else { Shape::TensionShear };
-    Path::ramp(shape, 4e-3, 8, 4)
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
@@ -296,63 +281,6 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         (1, _) | (_, 1) => exit::TANGENT_FAILURE,
         (c, r) => c.max(r),
     })
-}
-
-/// The routine a manifest names, for messages: the symbol or the model.
-pub fn routine_name(m: &Manifest) -> String {
-    match (&m.routine.library, &m.routine.symbol, &m.routine.model) {
-        (Some(l), Some(s), _) => format!("{}:{s}", l.display()),
-        (_, _, Some(model)) => format!("model {model}"),
-        _ => "the routine".into(),
-    }
-}
-
-/// Load and check the routine a manifest names.
-pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<Report> {
-    if let Some(hb) = std::env::var_os(crate::isolate::HEARTBEAT_ENV) {
-        crate::isolate::worker_follows_parent(std::path::Path::new(&hb))?;
-    }
-    let mut loaded = load(m, dir)?;
-    let routine = loaded.routine();
-    let start = start_state(m, routine.info())?;
-    // In an isolated worker, every call leaves a heartbeat for the parent.
-    let mut beating;
-    let routine: &mut dyn tancheck_core::Routine = match std::env::var_os(crate::isolate::HEARTBEAT_ENV) {
-        Some(hb) => {
-            beating = crate::isolate::Heartbeat::new(routine, std::path::Path::new(&hb))?;
-            &mut beating
-        }
-        None => routine,
-    };
-    let mut caller = Caller::new(routine);
-    crate::survive::checking(true);
-    let report =
-        check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg);
-    crate::survive::checking(false);
-    report
-}
-
-/// Print the readable report and/or write the JSON one.
-pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> Result<()> {
-    let mut out = crate::survive::stdout();
-    match json {
-        Some(p) if p.as_os_str() == "-" => Json.write(report, &mut out)?,
-        other => {
-            Terminal { detail }.write(report, &mut out)?;
-            if let Some(p) = other {
-                let mut buf = Vec::new();
-                Json.write(report, &mut buf)?;
-                write_atomic(p, &buf)
-                    .with_context(|| format!("writing the JSON report to {}", p.display()))?;
-            }
-            if detail != Detail::Quiet {
-                for c in &report.cautions {
-                    writeln!(out, "   caution: {c}")?;
-                }
-            }
-        }
-    }
-    Ok(())
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {

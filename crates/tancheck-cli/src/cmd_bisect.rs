@@ -16,11 +16,11 @@ use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
 use tancheck_core::path::Path;
 use tancheck_core::{check, Caller, PointState, Settings, Verdict};
 
-use crate::cli::default_path;
-use crate::cmd_replay::{open_for_manifest, write_case};
+use crate::case_store::{open_for_manifest, write_case};
 use crate::exit;
 use crate::load::start_state;
 use crate::manifest::{parse_path_arg, Manifest};
+use crate::session::default_path;
 
 #[derive(Args, Debug)]
 pub struct BisectArgs {
@@ -269,7 +269,7 @@ pub fn write_outcome(o: &BisectOutcome, out: &mut dyn Write) -> std::io::Result<
 pub fn run(a: &BisectArgs) -> Result<i32> {
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
-    crate::survive::set_routine(a.json.as_deref(), &crate::cli::routine_name(&m));
+    crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     m.fp_traps |= a.fp_traps;
     let bs = BisectSettings { fraction_tol: a.fraction_tol, ..BisectSettings::default() };

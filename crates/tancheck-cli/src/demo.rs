@@ -8,14 +8,25 @@ use std::io::Write;
 use std::path::{Path as FsPath, PathBuf};
 
 use anyhow::{Context, Result};
+use clap::Args;
 use tancheck_abi::compile::{build_library, fortran_available, BuildOptions};
 use tancheck_core::report::CheckOutcome;
 use tancheck_core::{Report, Verdict};
 
-use crate::cli::{default_path, emit, run_manifest, DemoArgs};
 use crate::manifest::Manifest;
 use crate::report::sci;
 use crate::report::terminal::Detail;
+use crate::session::{default_path, emit, run_manifest};
+
+#[derive(Args, Debug)]
+pub struct DemoArgs {
+    /// Keep the built libraries and manifests in this folder.
+    #[arg(long, value_name = "DIR")]
+    pub keep: Option<PathBuf>,
+    /// Print the full report of every routine.
+    #[arg(short, long)]
+    pub verbose: bool,
+}
 
 const C_SOURCES: [(&str, &str); 3] = [
     ("elastic.c", include_str!("../../../fortran-shim/examples/c/elastic.c")),

@@ -23,8 +23,7 @@ use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Routine, Routi
 
 use crate::exit;
 
-/// Environment variable naming the worker's heartbeat file (the call file is `<it>.call`).
-pub const HEARTBEAT_ENV: &str = "TANCHECK_WORKER_HEARTBEAT";
+pub use crate::survive::HEARTBEAT_ENV;
 /// Environment variable with the parent's process id (the worker follows it).
 pub const PARENT_ENV: &str = "TANCHECK_WORKER_PARENT";
 

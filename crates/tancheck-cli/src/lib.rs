@@ -1,6 +1,7 @@
 //! The `tancheck` command line: manifests, routines, reporters and the commands
 //! `check`, `build`, `demo` and `models`.
 
+pub mod case_store;
 pub mod cli;
 pub mod cmd_bisect;
 pub mod cmd_build;
@@ -12,6 +13,7 @@ pub mod load;
 pub mod manifest;
 pub mod report;
 pub mod selftest;
+pub mod session;
 pub mod suite;
 pub mod survive;
 

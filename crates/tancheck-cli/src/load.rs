@@ -44,7 +44,7 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
         }
         // A built-in model in another component order or shear measure is presented in it.
         if info.convention != conv {
-            let relabelled = tancheck_core::adapt::Relabel::new(model, conv).map_err(anyhow::Error::msg)?;
+            let relabelled = tancheck_core::relabel::Relabel::new(model, conv).map_err(anyhow::Error::msg)?;
             return Ok(Loaded::Model(Box::new(relabelled)));
         }
         return Ok(Loaded::Model(Box::new(model)));

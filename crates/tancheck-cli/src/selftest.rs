@@ -180,7 +180,7 @@ pub fn run(verbose: bool) -> Result<i32> {
         let r = check_one(&mut m, e)?;
         if verbose {
             drop(out);
-            crate::cli::emit(&r, crate::report::terminal::Detail::Normal, None)?;
+            crate::session::emit(&r, crate::report::terminal::Detail::Normal, None)?;
             out = crate::survive::stdout();
         }
         rows.push(row(e, "Rust", &r));

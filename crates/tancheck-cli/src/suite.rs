@@ -242,8 +242,9 @@ mod tests {
         let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3},
             "probes": [{"probe": "refinement", "at": [2, 9]}]}"#;
         let e = Suite::parse(text, FsPath::new("s.json")).unwrap_err().to_string();
-        // Named with the line and column of the probe (the bounds check of its numbers).
-        assert!(e.starts_with("s.json:2:") && e.contains("`refinement`") && e.contains("increment 9"), "{e}");
+        // The error names the file, the line and column of the probe, the probe and the increment.
+        assert!(e.starts_with("s.json:2:") && e.contains("probe `refinement`"), "{e}");
+        assert!(e.contains("at names increment 9; the path has increments 1 to 3"), "{e}");
         // A built-in suite on a shorter path keeps what fits.
         let mut s = Suite::default_for(tancheck_core::PointKind::Solid3d, false);
         let short = tancheck_core::path::Path::ramp(tancheck_core::path::Shape::UniaxialStrain, 1e-3, 4, 0);

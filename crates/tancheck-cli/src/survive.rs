@@ -30,6 +30,9 @@ pub const MAX_SECONDS: f64 = 86_400.0;
 pub const DEFAULT_CALL_TIMEOUT: f64 = 30.0;
 /// Default time limit of a whole check, in seconds.
 pub const DEFAULT_SUITE_TIMEOUT: f64 = 600.0;
+/// Environment variable naming an --isolate worker's heartbeat file (the call file is
+/// `<it>.call`); set only in a worker, whose parent watches it (isolate.rs).
+pub const HEARTBEAT_ENV: &str = "TANCHECK_WORKER_HEARTBEAT";
 
 static TOOL_STDOUT: OnceLock<Option<i32>> = OnceLock::new();
 static CHECKING: AtomicBool = AtomicBool::new(false);
@@ -166,7 +169,7 @@ fn progress_interval(call_timeout: f64) -> Duration {
 /// Start the watchdog (once per process; not in an --isolate worker, whose parent watches).
 /// `suite_timeout` limits the whole check when given.
 pub fn start_watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
-    if std::env::var_os(crate::isolate::HEARTBEAT_ENV).is_some() {
+    if std::env::var_os(HEARTBEAT_ENV).is_some() {
         return;
     }
     WATCHDOG.get_or_init(|| {

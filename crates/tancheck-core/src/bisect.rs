@@ -26,10 +26,11 @@ use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
-pub mod judge;
+/// The per-call check, kept under its old name here (it lives in [`crate::call_check`]).
+pub use crate::call_check as judge;
 pub mod shrink;
 
-pub use judge::{check_call, CallCheck};
+pub use crate::call_check::{check_call, CallCheck};
 pub use shrink::{shrink, ShrinkLimits, ShrinkStop, Shrunk};
 
 /// How finely the inside of an increment is searched.
@@ -422,7 +423,7 @@ pub fn locate(
             failed.branch_label()
         },
         finding: if failed.fault.is_some() {
-            crate::case::FAULT_FINDING.to_string()
+            crate::call_check::FAULT_FINDING.to_string()
         } else {
             failed.finding().to_string()
         },

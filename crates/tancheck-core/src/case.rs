@@ -25,8 +25,8 @@ use std::fmt;
 
 use serde::{Deserialize, Serialize};
 
-use crate::bisect::judge::{self, CallCheck};
 use crate::bisect::{Crossing, Inside};
+use crate::call_check::{self as judge, CallCheck};
 use crate::convention::{Convention, PointKind, ShearMeasure};
 use crate::driver::{Driver, PointState};
 use crate::path::{Path, PathIncrement};
@@ -35,8 +35,7 @@ use crate::routine::{Caller, Fault, RoutineInfo};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
-/// The finding of a case whose call crashed or returned a failed status.
-pub const FAULT_FINDING: &str = "routine-fault";
+pub use crate::call_check::FAULT_FINDING;
 
 /// The version of the case format this code writes and reads.
 pub const FORMAT: u32 = 1;

@@ -1,7 +1,7 @@
 //! A tangent check along a path: the pipeline driver → schemes → comparison → report. Each
 //! increment is checked by [`judge::check_call`], the same per-call check bisection uses.
 
-use crate::bisect::judge;
+use crate::call_check as judge;
 use crate::driver::{Driver, PointState};
 use crate::first_calls;
 use crate::mixed;
@@ -120,11 +120,7 @@ pub fn run(
                 if !conventions_seen && !cc.state_changed {
                     conventions_seen = true;
                     if let Some((_, t)) = &cc.best {
-                        let f = crate::probe::conventions::analyse(
-                            &conv,
-                            t,
-                            crate::probe::conventions::DEFAULT_TOL,
-                        );
+                        let f = crate::convention_fit::analyse(&conv, t, crate::convention_fit::DEFAULT_TOL);
                         if f.mismatch() {
                             notes.push(format!(
                                 "conventions warning: the elastic response {}; the tangent check cannot see a wrong \

@@ -111,7 +111,7 @@ pub struct Driver {
     /// Outputs of the last complex call.
     pub cplx: Outputs<Complex64>,
     scratch_dstrain: Vec<f64>,
-    cin: ComplexInputs,
+    complex_inputs: ComplexInputs,
 }
 
 impl Driver {
@@ -149,7 +149,7 @@ impl Driver {
             minus: Outputs::new(n, info.nstate, f64::NAN),
             cplx: Outputs::new(n, info.nstate, cz),
             scratch_dstrain: vec![0.0; n],
-            cin: ComplexInputs {
+            complex_inputs: ComplexInputs {
                 props: props.iter().map(|&p| Complex64::new(p, 0.0)).collect(),
                 strain: vec![cz; n],
                 dstrain: vec![cz; n],
@@ -190,10 +190,10 @@ impl Driver {
         self.dtime = dtime;
         self.increment += 1;
         for i in 0..self.n {
-            self.cin.strain[i] = Complex64::new(self.start.strain[i], 0.0);
-            self.cin.stress0[i] = Complex64::new(self.start.stress[i], 0.0);
+            self.complex_inputs.strain[i] = Complex64::new(self.start.strain[i], 0.0);
+            self.complex_inputs.stress0[i] = Complex64::new(self.start.stress[i], 0.0);
         }
-        for (c, &s) in self.cin.state0.iter_mut().zip(&self.start.state) {
+        for (c, &s) in self.complex_inputs.state0.iter_mut().zip(&self.start.state) {
             *c = Complex64::new(s, 0.0);
         }
     }
@@ -282,20 +282,20 @@ impl Driver {
     /// A complex call with imaginary part `h` along `dir`; results in `self.cplx`.
     pub fn complex_call(&mut self, caller: &mut Caller<'_>, dir: Direction, h: f64) -> Result<(), Fault> {
         for i in 0..self.n {
-            self.cin.dstrain[i] = Complex64::new(self.dstrain[i], 0.0);
+            self.complex_inputs.dstrain[i] = Complex64::new(self.dstrain[i], 0.0);
         }
         let mut dtemp = Complex64::new(self.dtemp, 0.0);
         match dir {
-            Direction::Strain(j) => self.cin.dstrain[j].im = h,
+            Direction::Strain(j) => self.complex_inputs.dstrain[j].im = h,
             Direction::Temperature => dtemp.im = h,
         }
         let input = CallInput {
-            props: &self.cin.props,
-            strain: &self.cin.strain,
-            dstrain: &self.cin.dstrain,
+            props: &self.complex_inputs.props,
+            strain: &self.complex_inputs.strain,
+            dstrain: &self.complex_inputs.dstrain,
             temp: [Complex64::new(self.start.temp, 0.0), dtemp],
-            stress0: &self.cin.stress0,
-            state0: &self.cin.state0,
+            stress0: &self.complex_inputs.stress0,
+            state0: &self.complex_inputs.state0,
             time: [self.start.time, self.dtime],
             increment: self.increment,
             want_tangent: false,

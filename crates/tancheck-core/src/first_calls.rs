@@ -14,7 +14,7 @@
 //!
 //! [`Settings::first_calls`]: crate::settings::Settings::first_calls
 
-use crate::bisect::judge::fault_record;
+use crate::call_check::fault_record;
 use crate::driver::{Driver, PointState};
 use crate::report::{FaultRecord, IncrementResult};
 use crate::routine::{Caller, Fault, RoutineInfo};
@@ -68,7 +68,7 @@ pub fn zero_increment(
         return Ok(None);
     }
     // Non-finite outputs carry the inputs of the call, as a crash does.
-    result.non_finite_call = Some(crate::bisect::judge::call_record(&d, None));
+    result.non_finite_call = Some(crate::call_check::call_record(&d, None));
     Ok(Some(result))
 }
 

@@ -5,23 +5,28 @@
 //! Pipeline: [`path`] → [`driver`] (calls through [`routine::Caller`]) → [`schemes`] →
 //! [`compare`] → [`report`]; [`check::run`] ties them together.
 
-pub mod adapt;
 pub mod bisect;
+pub mod call_check;
 pub mod case;
 pub mod check;
 pub mod compare;
 pub mod convention;
+pub mod convention_fit;
 pub mod diagnose;
 pub mod driver;
 pub mod first_calls;
 pub mod mixed;
 pub mod path;
 pub mod probe;
+pub mod relabel;
 pub mod report;
 pub mod routine;
 pub mod scalar;
 pub mod schemes;
 pub mod settings;
+
+/// relabel.rs under its former name, for callers written before the rename.
+pub use relabel as adapt;
 
 pub use convention::{Component, Convention, PointKind, ShearMeasure};
 pub use driver::{Direction, Driver, PointState};

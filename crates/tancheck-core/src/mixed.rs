@@ -20,6 +20,10 @@ pub struct MixedSettings {
 
 impl Default for MixedSettings {
     fn default() -> Self {
+        // Why: 1e-10 of the largest stress is far below the 1e-6 a tangent check resolves but
+        // within reach of double precision; Newton with a consistent tangent needs well under
+        // 10 iterations, and 25 leaves room for the linear rate of an approximate one
+        // (common practice).
         MixedSettings { stress_tol: 1e-10, max_iterations: 25 }
     }
 }
@@ -82,6 +86,8 @@ pub fn solve(
                 return Ok(SolveLog { residuals, converged: true, numerical_fallback });
             }
             if numerical_fallback {
+                // Why 1e-6: near ε^(1/3) ≈ 6e-6, the step where central differences'
+                // truncation and round-off balance (common practice).
                 let h = 1e-6 * driver.strain_scale(1e-6);
                 for j in 0..n {
                     Scheme::Central.column(
@@ -122,6 +128,8 @@ fn solve_dense(a: &[f64], b: &[f64], m: usize) -> Option<Vec<f64>> {
     let mut x = b.to_vec();
     for c in 0..m {
         let p = (c..m).max_by(|&i, &j| a[i + c * m].abs().total_cmp(&a[j + c * m].abs()))?;
+        // Why 1e-300: a pivot that small is zero for stiffnesses of any physical size; dividing
+        // by it would only spread infinities.
         if a[p + c * m].abs() < 1e-300 {
             return None;
         }

@@ -169,6 +169,8 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     let n = ev.conv.ncomp();
     let r = ev.returned;
     let original = ev.error(r);
+    // Why: a hypothesis explains the failure when its corrected tangent passes with a margin
+    // (10 × tol) or removes all but 1e-3 of the original error (three digits of it).
     let explain_level = (10.0 * ev.tol).max(1e-3 * original);
     let mut hs: Vec<Hypothesis> = Vec::new();
     let mut push = |cause: Cause, detail: String, error_left: f64| {
@@ -298,6 +300,7 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
             res.sqrt() / sn
         };
         // Only a hypothesis when the true tangent is not itself a secant (a linear law).
+        // Why 1e-6: the check's own resolution; a secant closer than that is the tangent.
         if nsec_res > 1e-6 {
             push(
                 Cause::Secant,
@@ -333,6 +336,8 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
             }
         }
         let num_norm = ev.numerical.iter().map(|x| x * x).sum::<f64>().sqrt().max(1e-300);
+        // Why 1e-12: symmetric up to rounding of the products that built it (a few ulps of the
+        // norm); the skew part of the numerical one must be 10 × tol to count.
         let sym_r = (0..n).all(|j| (0..j).all(|i| (at(r, i, j) - at(r, j, i)).abs() <= 1e-12 * num_norm));
         if sym_r && skew_norm.sqrt() > 10.0 * ev.tol * num_norm {
             push(
@@ -414,6 +419,8 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
         if rf.same_branch && rf.errors.len() >= 3 {
             let e = &rf.errors;
             let ratio = |a: usize, b: usize| e[b] / e[a] / (rf.fractions[b] / rf.fractions[a]);
+            // Why 0.25: an error in proportion to the increment keeps this ratio at 1 up to the
+            // second-order term; 25% admits that term at the fractions used, never a constant.
             let linear = (0..e.len() - 1).all(|k| (ratio(k, k + 1) - 1.0).abs() < 0.25);
             let k = e.len() - 1;
             // Linear extrapolation of the discrepancy to a vanishing increment.
@@ -493,6 +500,8 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
             let sigma = (u.transpose() * &dm * &v)[(0, 0)];
             let factor = if tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
             let size = s[0] / norm;
+            // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
+            // bands admit the error the rank-one fit leaves, far from any plain scaling.
             let (cause, detail) = if (factor).abs() < 0.05 {
                 (
                     Cause::TermMissing,
@@ -556,6 +565,7 @@ pub fn rank_dtemp(
         x.error()
     };
     let original = err(returned);
+    // Why: as in `rank`, a pass with margin or three digits of the error removed.
     let level = (10.0 * tol).max(1e-3 * original);
     let mut hs = Vec::new();
     let neg: Vec<f64> = returned.iter().map(|x| -x).collect();

@@ -35,11 +35,13 @@ abs (the imaginary part dropped, e.g. sqrt(real(x))), or comparisons of complex 
 instead of their real parts";
 
 /// A twin's real part this far (relative to the stress scale) from the real routine's
-/// outputs computes another stress: rounding stays near 1e-15.
+/// outputs computes another stress: rounding stays near 1e-15, so 1e-9 leaves six digits of
+/// margin while any real change of the stress update shows.
 pub const REAL_PART_LEVEL: f64 = 1e-9;
 
 /// Near a branch boundary, the returned tangent must equal the one-sided derivatives at the
-/// smallest probe step (relative 1e-7, one-sided truncation about that size) this closely.
+/// smallest probe step (relative 1e-7, one-sided truncation about that size) this closely:
+/// ten times that truncation, so a correct one-sided tangent is never failed.
 pub const NEARBY_LEVEL: f64 = 1e-6;
 
 /// What the twin comparison found.
@@ -111,6 +113,8 @@ pub fn decide(o: &Observed) -> Decision {
     let derivative_off = match (o.twin.and_then(|t| t.derivative_gap), complex_error) {
         // The complex derivative is no closer to the real reference than the returned tangent
         // is to the complex one: the twin, not the tangent, is off.
+        // Why 0.5: the twin is blamed only when its own gap is of the same size as the tangent's
+        // discrepancy, not a small part of it.
         (Some(g), Some(e)) => g >= 0.5 * e,
         _ => false,
     };

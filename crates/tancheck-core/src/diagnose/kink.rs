@@ -16,11 +16,15 @@ use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 
-/// Relative steps at which the one-sided derivatives are compared.
+/// Relative steps at which the one-sided derivatives are compared. Why these: two decades over
+/// which a one-sided truncation (∝ h) falls 100-fold while round-off (≈ ε/h, 2e-9 at 1e-7)
+/// stays far below [`GAP_LEVEL`], so a gap that does not fall is a kink (common practice).
 pub const STEPS: [f64; 3] = [1e-5, 1e-6, 1e-7];
 
 /// A one-sided gap larger than this (relative to the column, or the matrix norm times the
-/// entry floor) is more than the one-sided truncation at the steps of [`STEPS`].
+/// entry floor) is more than the one-sided truncation at the steps of [`STEPS`]. Why 1e-4: that
+/// truncation is about h × the relative curvature, 1e-5 at the largest step for a smooth law,
+/// so 1e-4 leaves a factor 10 (common practice).
 pub const GAP_LEVEL: f64 = 1e-4;
 
 /// Which one-sided derivative the returned tangent (or one of its columns) equals.
@@ -127,7 +131,9 @@ pub fn judge(
         }
     }
     let (f, b) = pairs.last().expect("at least one step");
-    // A gap that stays above the one-sided truncation level and does not shrink with h.
+    // A gap that stays above the one-sided truncation level and does not shrink with h. Why
+    // 0.3: truncation falls 100-fold over STEPS, a kink's gap not at all; keeping 30% of the
+    // first gap at the last step tells them apart with room for round-off.
     let kinked = |g: &[f64]| g.len() >= 2 && g.iter().all(|&x| x > GAP_LEVEL) && g[g.len() - 1] > 0.3 * g[0];
     let cf = compare(conv, returned, f, tol, entry_floor, 0);
     let cb = compare(conv, returned, b, tol, entry_floor, 0);

@@ -14,7 +14,10 @@ use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 
-/// Relative steps of a study: decades from 1e-2 to 1e-12, each with its half.
+/// Relative steps of a study: decades from 1e-2 to 1e-12, each with its half. Why this range:
+/// from steps where truncation clearly dominates down past √ε ≈ 1.5e-8, where round-off takes
+/// over, so both the fall with the scheme's order and the noise floor show; the halves give
+/// two points a decade for the slope.
 pub fn ladder() -> Vec<f64> {
     let mut v = Vec::with_capacity(22);
     for k in 2..=12 {
@@ -118,12 +121,15 @@ pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
     let below: Vec<f64> = finite[best_idx..].iter().map(|p| p.error).collect();
     let noise_floor = if below.len() >= 3 {
         let m = below.iter().map(|e| lg(*e)).sum::<f64>() / below.len() as f64;
+        // Why ×10: round-off errors scatter over about a decade, so the geometric mean below the
+        // best step, capped at ten times their smallest, is their typical size.
         10f64.powf(m).min(below.iter().cloned().fold(f64::INFINITY, f64::min) * 10.0).max(best_error)
     } else {
         best_error
     };
     // A plateau: at least four consecutive points (two decades) within a factor 2 of their
-    // median, above the tolerance.
+    // median, above the tolerance. Why a factor 2: truncation changes by 10ᵖ a decade and never
+    // stays that flat over two; a wrong tangent's error does not depend on the step at all.
     let mut plateau = None;
     for w in finite.windows(4) {
         let mut e: Vec<f64> = w.iter().map(|p| p.error).collect();

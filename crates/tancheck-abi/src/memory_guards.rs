@@ -35,7 +35,7 @@ use num_complex::Complex64;
 use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, Outcome};
 
-use crate::guard::{Crash, GuardArgs, TcCall};
+use crate::signal_guard::{Crash, GuardArgs, TcCall};
 
 /// Guard entries after every array.
 pub const ZONE: usize = 8;

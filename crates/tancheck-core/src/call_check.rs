@@ -16,6 +16,9 @@ use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
+/// The finding of a case whose call crashed or returned a failed status.
+pub const FAULT_FINDING: &str = "routine-fault";
+
 /// The judgement of one call.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct CallCheck {

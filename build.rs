@@ -1,0 +1,40 @@
+//! Tells the integration tests under tests/ which tools run on this machine, so a test that
+//! needs a missing one is ignored with the reason (and counted as ignored by the test
+//! summary) instead of passing without running its body:
+//! - `tancheck_no_fortran`: no Fortran compiler (`$FC`, default `gfortran`), unless
+//!   TANCHECK_REQUIRE_FORTRAN=1 (as CI sets), where those tests run and a missing compiler fails;
+//! - `tancheck_no_gdb`: gdb is missing or may not trace a process here (ptrace refused);
+//! - `tancheck_no_fp_traps`: this machine cannot trap floating-point exceptions.
+
+fn gdb_can_trace() -> bool {
+    let Ok(out) = std::process::Command::new("gdb").args(["-batch", "-ex", "run", "--args", "true"]).output()
+    else {
+        return false;
+    };
+    let text = String::from_utf8_lossy(&out.stdout) + String::from_utf8_lossy(&out.stderr);
+    out.status.success() && !text.contains("not permitted") && !text.contains("Operation not permitted")
+}
+
+include!("crates/tancheck-abi/build_probe.rs");
+
+fn main() {
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_fortran)");
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_gdb)");
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_fp_traps)");
+    println!("cargo::rerun-if-env-changed=CC");
+    println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_FORTRAN");
+    println!("cargo::rerun-if-env-changed=FC");
+    println!("cargo::rerun-if-env-changed=PATH");
+    println!("cargo::rerun-if-changed=build.rs");
+    println!("cargo::rerun-if-changed=crates/tancheck-abi/build_probe.rs");
+    let required = std::env::var("TANCHECK_REQUIRE_FORTRAN").is_ok_and(|v| v == "1");
+    if !required && !tool_runs(&env_or("FC", "gfortran"), &["--version"]) {
+        println!("cargo::rustc-cfg=tancheck_no_fortran");
+    }
+    if !fp_traps_run() {
+        println!("cargo::rustc-cfg=tancheck_no_fp_traps");
+    }
+    if !gdb_can_trace() {
+        println!("cargo::rustc-cfg=tancheck_no_gdb");
+    }
+}

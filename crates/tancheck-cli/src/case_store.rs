@@ -1,0 +1,150 @@
+//! Case files on disk and the routine they are about: open the routine a manifest names (a
+//! built-in model or a loaded library) with the routine part of a case, name and write case
+//! files. Shared by `tancheck bisect` (writes cases) and `tancheck replay` (reads them).
+
+use std::path::{Component as PathPart, Path as FsPath, PathBuf};
+
+use anyhow::{bail, Context, Result};
+use sha2::{Digest, Sha256};
+
+use tancheck_abi::{GuardLevel, LibraryRoutine};
+use tancheck_core::case::{Case, CaseRoutine};
+use tancheck_core::{ModelRoutine, Routine};
+use tancheck_models::zoo::{zoo_model, ZooModel};
+
+use crate::manifest::{Guards, Manifest};
+
+/// A routine opened for a bisection or a replay: a built-in model (the zoo's variants
+/// included) or a loaded library.
+pub enum Opened {
+    Model(Box<ModelRoutine<ZooModel>>),
+    Library(Box<LibraryRoutine>),
+}
+
+impl Opened {
+    pub fn routine(&mut self) -> &mut dyn Routine {
+        match self {
+            Opened::Model(m) => m.as_mut(),
+            Opened::Library(l) => l.as_mut(),
+        }
+    }
+}
+
+/// SHA-256 of a file, as 64 hex digits.
+pub fn sha256_file(path: &FsPath) -> std::io::Result<String> {
+    let bytes = std::fs::read(path)?;
+    Ok(Sha256::digest(&bytes).iter().map(|b| format!("{b:02x}")).collect())
+}
+
+fn sha256_text(text: &str) -> String {
+    Sha256::digest(text.as_bytes()).iter().map(|b| format!("{b:02x}")).collect()
+}
+
+/// The routine a manifest names, and the routine part of a case about it (the library's
+/// path absolute; [`write_case`] makes it relative to the case folder). Built-in models are
+/// looked up among the zoo's, which include every reference model.
+pub fn open_for_manifest(m: &Manifest, dir: &FsPath) -> Result<(Opened, CaseRoutine)> {
+    let r = &m.routine;
+    if let Some(name) = &r.model {
+        let model = zoo_model(name, r.kind)?;
+        let info = model.info().clone();
+        let conv = m.convention().map_err(anyhow::Error::msg)?;
+        if info.convention != conv {
+            bail!(
+                "the built-in model `{name}` works in the default component order with engineering shear; \
+                 remove routine.order and routine.shear from the manifest"
+            );
+        }
+        if r.properties.len() != info.nprop {
+            bail!(
+                "the model `{name}` takes {} properties; the manifest gives {}",
+                info.nprop,
+                r.properties.len()
+            );
+        }
+        if let Some(n) = r.states {
+            if n != info.nstate {
+                bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
+            }
+        }
+        let mut spec = CaseRoutine::from_info(&info, true);
+        spec.model = Some(name.clone());
+        return Ok((Opened::Model(Box::new(model)), spec));
+    }
+    let loaded = crate::load::load(m, dir)?;
+    let crate::load::Loaded::Library(mut lib) = loaded else {
+        bail!("the manifest names a library, but a model was loaded");
+    };
+    let lib_path = r.library.as_ref().expect("validated: library or model");
+    let lib_path = if lib_path.is_relative() { dir.join(lib_path) } else { lib_path.clone() };
+    let lib_path = std::path::absolute(&lib_path).unwrap_or(lib_path);
+    let mut spec = CaseRoutine::from_info(lib.info(), lib.has_twin());
+    spec.library = Some(lib_path.display().to_string());
+    spec.library_sha256 =
+        Some(sha256_file(&lib_path).with_context(|| format!("reading {} to hash it", lib_path.display()))?);
+    spec.symbol = r.symbol.clone();
+    // As the routine runs (a library built with --debug switches the traps on itself).
+    spec.fp_traps = lib.fp_traps();
+    if m.guards == Guards::Off {
+        lib.set_guard_level(GuardLevel::Off);
+    }
+    Ok((Opened::Library(lib), spec))
+}
+
+/// `target` relative to the folder `base` when they share more than the root, else `target`.
+fn relative_to(target: &FsPath, base: &FsPath) -> PathBuf {
+    let (Ok(t), Ok(b)) = (target.canonicalize(), base.canonicalize()) else { return target.to_path_buf() };
+    let tc: Vec<PathPart> = t.components().collect();
+    let bc: Vec<PathPart> = b.components().collect();
+    let common = tc.iter().zip(&bc).take_while(|(x, y)| x == y).count();
+    if common <= 1 {
+        return t;
+    }
+    let mut out = PathBuf::new();
+    for _ in common..bc.len() {
+        out.push("..");
+    }
+    for p in &tc[common..] {
+        out.push(p);
+    }
+    out
+}
+
+/// A file name for a case: the routine's name, the increment, and 12 hex digits of a hash of
+/// the call's bits (the same call gives the same name, so writing it again replaces it).
+pub fn case_file_name(case: &Case) -> String {
+    let name: String = case
+        .routine
+        .name
+        .chars()
+        .map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '-' })
+        .collect();
+    let c = &case.call;
+    let key = format!(
+        "{:?}{:?}{:?}{:?}{:?}{:?}{:?}{:?}{}",
+        c.props.bits,
+        c.strain.bits,
+        c.dstrain.bits,
+        c.stress0.bits,
+        c.state0.bits,
+        c.temp.bits,
+        c.time.bits,
+        case.routine.symbol,
+        c.increment
+    );
+    format!("{}-inc{}-{}.json", name.trim_matches('-'), c.increment, &sha256_text(&key)[..12])
+}
+
+/// Write `case` into `dir` (created when missing), the library path made relative to `dir`.
+pub fn write_case(dir: &FsPath, case: &Case) -> Result<PathBuf> {
+    std::fs::create_dir_all(dir).with_context(|| format!("creating the case folder {}", dir.display()))?;
+    let mut case = case.clone();
+    if let Some(lib) = case.routine.library.clone() {
+        case.routine.library = Some(relative_to(FsPath::new(&lib), dir).display().to_string());
+        case.routine.library_absolute = Some(lib);
+    }
+    let file = dir.join(case_file_name(&case));
+    crate::report::write_atomic(&file, case.to_json().as_bytes())
+        .with_context(|| format!("writing the case {}", file.display()))?;
+    Ok(file)
+}
