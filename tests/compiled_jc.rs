@@ -15,7 +15,7 @@ use std::sync::OnceLock;
 use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, fortran_for_test, BuildOptions, Library};
+use tancheck::abi::{build_library, BuildOptions, Library};
 use tancheck::core::driver::Outputs as Out;
 use tancheck::core::{CallInput, PointKind, Routine};
 use tancheck::models::reference;
@@ -222,9 +222,7 @@ fn c_johnson_cook_matches_the_rust_model() {
 }
 
 #[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_johnson_cook_matches_the_rust_model() {
-    if !fortran_for_test("fortran_johnson_cook_matches_the_rust_model") {
-        return;
-    }
     check_language(f_lib(), "f");
 }
