@@ -110,8 +110,9 @@ pub struct RampSpec {
 #[derive(Debug, thiserror::Error)]
 #[non_exhaustive]
 pub enum ManifestError {
-    #[error("cannot read manifest {path}: {source}")]
-    Read { path: PathBuf, source: std::io::Error },
+    /// The reason is part of the message (not a chained source, which would print it twice).
+    #[error("cannot read {path}: {reason}")]
+    Read { path: PathBuf, reason: std::io::Error },
     #[error("{path}:{line}:{column}: {message}")]
     Parse { path: PathBuf, line: usize, column: usize, message: String },
     #[error("{path}: {message}")]
@@ -121,7 +122,7 @@ pub enum ManifestError {
 impl Manifest {
     pub fn load(path: &FsPath) -> Result<(Manifest, PathBuf), ManifestError> {
         let text = std::fs::read_to_string(path)
-            .map_err(|source| ManifestError::Read { path: path.into(), source })?;
+            .map_err(|reason| ManifestError::Read { path: path.into(), reason })?;
         let m = Manifest::parse(&text, path)?;
         let dir = path.parent().map(FsPath::to_path_buf).unwrap_or_default();
         Ok((m, dir))
@@ -290,7 +291,7 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
 /// `increments` one by one). Unknown fields are errors with file, line and column.
 pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
     let text =
-        std::fs::read_to_string(file).map_err(|source| ManifestError::Read { path: file.into(), source })?;
+        std::fs::read_to_string(file).map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
     let spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::Parse {
         path: file.into(),
         line: e.line(),

@@ -115,7 +115,7 @@ impl Suite {
 
     pub fn load(file: &FsPath) -> Result<Suite, ManifestError> {
         let text = std::fs::read_to_string(file)
-            .map_err(|source| ManifestError::Read { path: file.into(), source })?;
+            .map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
         Suite::parse(&text, file)
     }
 
