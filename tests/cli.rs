@@ -401,3 +401,31 @@ fn models_lists_every_built_in_model_with_its_properties() {
     }
     assert!(t.contains("properties: K, N, S, G_Ic, G_IIc, eta"), "{t}");
 }
+
+#[test]
+fn a_closed_pipe_ends_quietly_with_the_verdicts_code_and_the_report_written() {
+    let d = scratch("pipe");
+    let m = manifest(
+        &d,
+        "m.json",
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
+    );
+    let json = d.join("r.json");
+    let mut child = bin()
+        .arg("check")
+        .arg(&m)
+        .arg("--json")
+        .arg(&json)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    // The reader goes away before tancheck prints anything (as `| head -0` would).
+    drop(child.stdout.take());
+    let out = child.wait_with_output().unwrap();
+    let err = String::from_utf8_lossy(&out.stderr);
+    assert_eq!(out.status.code(), Some(1), "the flawed tangent's verdict, not a pipe error: {err}");
+    assert!(!err.contains("Broken pipe") && !err.contains("panicked"), "{err}");
+    let v: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+    assert_eq!(v["verdict"], "tangent-failure");
+}
