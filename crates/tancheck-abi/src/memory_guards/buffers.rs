@@ -1,0 +1,374 @@
+//! The guarded block itself: copying a call's arrays into it between fill patterns, making the
+//! call, and checking zones, inputs and outputs afterwards.
+
+use std::ffi::c_char;
+
+use num_complex::Complex64;
+use tancheck_core::routine::provides;
+use tancheck_core::{CallInput, CallOutput, Outcome};
+
+use crate::signal_guard::{Crash, GuardArgs, TcCall};
+
+use super::*;
+
+/// An element of a guarded array: real or complex.
+pub(crate) trait Element: Copy {
+    const PREFILL: Self;
+    const CANARY: Self;
+    const POISON: [Self; 2];
+    const QUIET_NAN: Self;
+    /// Bitwise equality (NaN payloads included).
+    fn same(self, other: Self) -> bool;
+}
+
+impl Element for f64 {
+    const PREFILL: f64 = f64::from_bits(PREFILL_BITS);
+    const CANARY: f64 = f64::from_bits(CANARY_BITS);
+    const POISON: [f64; 2] = POISON;
+    const QUIET_NAN: f64 = f64::NAN;
+    fn same(self, other: f64) -> bool {
+        self.to_bits() == other.to_bits()
+    }
+}
+
+impl Element for Complex64 {
+    const PREFILL: Complex64 = Complex64::new(f64::PREFILL, f64::PREFILL);
+    const CANARY: Complex64 = Complex64::new(f64::CANARY, f64::CANARY);
+    const POISON: [Complex64; 2] = [Complex64::new(POISON[0], 0.0), Complex64::new(POISON[1], 0.0)];
+    const QUIET_NAN: Complex64 = Complex64::new(f64::NAN, f64::NAN);
+    fn same(self, other: Complex64) -> bool {
+        self.re.same(other.re) && self.im.same(other.im)
+    }
+}
+
+/// The routine's report struct followed by its guard zone.
+#[derive(Clone, Copy)]
+#[repr(C)]
+struct ReportZone {
+    report: Outcome,
+    zone: [u8; REPORT_ZONE],
+}
+
+/// The block of guarded copies for one element type, made once per routine.
+pub(crate) struct GuardBuffers<E> {
+    pub(super) data: Vec<E>,
+    /// Start of each array of [`ARRAYS`] in `data`; its zone follows its `len` entries.
+    pub(super) start: [usize; 11],
+    pub(super) len: [usize; 11],
+    ncomp: usize,
+    report: ReportZone,
+    /// The caller's outcome as it was before the call (restored before a rerun).
+    report_before: Outcome,
+}
+
+/// Where a guarded call is: what a finding records besides the array.
+#[derive(Clone, Copy)]
+struct CallPlace {
+    increment: i32,
+    complex: bool,
+}
+
+impl<E: Element> GuardBuffers<E> {
+    /// Buffers for a routine with `ncomp` components, `nstate` state variables and `nprop`
+    /// properties.
+    pub(crate) fn new(ncomp: usize, nstate: usize, nprop: usize) -> Self {
+        let len = [nprop, ncomp, ncomp, 2, ncomp, nstate, ncomp, nstate, ncomp * ncomp, ncomp, 2];
+        let mut start = [0; 11];
+        let mut at = 0;
+        for (s, l) in start.iter_mut().zip(len) {
+            *s = at;
+            at += l + ZONE;
+        }
+        GuardBuffers {
+            data: vec![E::PREFILL; at],
+            start,
+            len,
+            ncomp,
+            report: ReportZone { report: Outcome::default(), zone: [REPORT_CANARY; REPORT_ZONE] },
+            report_before: Outcome::default(),
+        }
+    }
+
+    fn array(&self, k: usize) -> &[E] {
+        &self.data[self.start[k]..self.start[k] + self.len[k]]
+    }
+
+    fn zone(&self, k: usize) -> &[E] {
+        let z = self.start[k] + self.len[k];
+        &self.data[z..z + ZONE]
+    }
+
+    fn array_mut(&mut self, k: usize) -> &mut [E] {
+        let s = self.start[k];
+        &mut self.data[s..s + self.len[k]]
+    }
+
+    fn zone_mut(&mut self, k: usize) -> &mut [E] {
+        let z = self.start[k] + self.len[k];
+        &mut self.data[z..z + ZONE]
+    }
+
+    /// Copy the inputs in (poison `poison[k]` after input k), pre-fill the outputs and set
+    /// the canaries.
+    fn load(&mut self, input: &CallInput<'_, E>, poison: &[E; N_INPUTS]) {
+        let inputs: [&[E]; N_INPUTS] =
+            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
+        for (k, src) in inputs.iter().enumerate() {
+            self.array_mut(k).copy_from_slice(src);
+            self.zone_mut(k).fill(poison[k]);
+        }
+        for k in N_INPUTS..ARRAYS.len() {
+            self.array_mut(k).fill(E::PREFILL);
+            self.zone_mut(k).fill(E::CANARY);
+        }
+        self.report.report = self.report_before;
+        self.report.zone = [REPORT_CANARY; REPORT_ZONE];
+    }
+
+    /// The arguments pointing into the block. `call` is the caller's copy of `tc_call`, which
+    /// the routine might write to (it is compared afterwards).
+    fn args(&mut self, call: *mut TcCall, label: *const c_char, fp_traps: bool) -> GuardArgs {
+        let base = self.data.as_mut_ptr();
+        // SAFETY: every start is within `data` (made from the same lengths), so each pointer
+        // stays inside the allocation.
+        let at = |k: usize| unsafe { base.add(self.start[k]) }.cast::<std::ffi::c_void>();
+        GuardArgs {
+            call: call.cast_const(),
+            props: at(0),
+            strain: at(1),
+            dstrain: at(2),
+            temp: at(3),
+            stress0: at(4),
+            state0: at(5),
+            stress: at(6),
+            state: at(7),
+            tangent: at(8),
+            dstress_dtemp: at(9),
+            energy: at(10),
+            report: std::ptr::from_mut(&mut self.report.report),
+            label,
+            fp_traps: i32::from(fp_traps),
+            reserved: 0,
+        }
+    }
+
+    /// Which outputs the routine had to write in this call: all but the tangent when it was
+    /// not asked for, and the optional ones only when provided.
+    fn required(&self, k: usize, want_tangent: bool) -> bool {
+        let provided = self.report.report.provides;
+        match ARRAYS[k] {
+            GuardedArray::Tangent => want_tangent,
+            GuardedArray::DstressDtemp => provided & provides::DSTRESS_DTEMP != 0,
+            GuardedArray::Energy => provided & provides::ENERGY != 0,
+            _ => true,
+        }
+    }
+
+    /// The light checks of the call just made.
+    fn inspect(
+        &self,
+        input: &CallInput<'_, E>,
+        call_before: &TcCall,
+        call_after: &TcCall,
+        poison: &[E; N_INPUTS],
+        place: CallPlace,
+        findings: &mut Findings,
+    ) {
+        let finding = |kind, k: usize, first, entries| GuardFinding {
+            kind,
+            array: ARRAYS[k],
+            len: self.len[k],
+            first,
+            entries,
+            ncomp: self.ncomp,
+            increment: place.increment,
+            complex: place.complex,
+            calls: 1,
+        };
+        let inputs: [&[E]; N_INPUTS] =
+            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
+        for (k, original) in inputs.iter().enumerate() {
+            if let Some((first, n)) = mismatch(self.array(k), |i, v| v.same(original[i])) {
+                findings.record(finding(FindingKind::InputWritten, k, first, n));
+            }
+            if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(poison[k])) {
+                findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
+            }
+        }
+        let ok = self.report.report.status == tancheck_core::routine::status::OK;
+        for k in N_INPUTS..ARRAYS.len() {
+            if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(E::CANARY)) {
+                findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
+            }
+            if ok && self.required(k, input.want_tangent) {
+                if let Some((first, n)) = mismatch(self.array(k), |_, v| !v.same(E::PREFILL)) {
+                    findings.record(finding(FindingKind::Unwritten, k, first, n));
+                }
+            }
+        }
+        if let Some(first) = self.report.zone.iter().position(|&b| b != REPORT_CANARY) {
+            let n = self.report.zone.iter().filter(|&&b| b != REPORT_CANARY).count();
+            findings.record(GuardFinding {
+                kind: FindingKind::Overrun,
+                array: GuardedArray::Report,
+                len: tancheck_core::routine::MESSAGE_LEN,
+                first: tancheck_core::routine::MESSAGE_LEN + first,
+                entries: n,
+                ncomp: self.ncomp,
+                increment: place.increment,
+                complex: place.complex,
+                calls: 1,
+            });
+        }
+        if !same_call(call_before, call_after) {
+            findings.record(GuardFinding {
+                kind: FindingKind::InputWritten,
+                array: GuardedArray::Call,
+                len: 0,
+                first: 0,
+                entries: 1,
+                ncomp: self.ncomp,
+                increment: place.increment,
+                complex: place.complex,
+                calls: 1,
+            });
+        }
+    }
+
+    /// Copy the outputs to the caller; never-written entries become a quiet NaN.
+    fn store(&self, output: &mut CallOutput<'_, E>) {
+        let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
+        let outs: [&mut [E]; 5] = [
+            &mut *output.stress,
+            &mut *output.state,
+            &mut *output.tangent,
+            &mut *output.dstress_dtemp,
+            &mut output.energy[..],
+        ];
+        for (k, dst) in outs.into_iter().enumerate() {
+            for (d, &s) in dst.iter_mut().zip(self.array(N_INPUTS + k)) {
+                *d = quiet(s);
+            }
+        }
+        *output.outcome = self.report.report;
+    }
+
+    /// Whether the call just made gave other results than those stored in `output`.
+    fn differs(&self, output: &CallOutput<'_, E>, want_tangent: bool) -> bool {
+        let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
+        let r = &self.report.report;
+        let o = &*output.outcome;
+        if r.status != o.status
+            || r.branch != o.branch
+            || r.provides != o.provides
+            || r.step_ratio.to_bits() != o.step_ratio.to_bits()
+            || r.message != o.message
+        {
+            return true;
+        }
+        let outs: [&[E]; 5] =
+            [&*output.stress, &*output.state, &*output.tangent, &*output.dstress_dtemp, &output.energy[..]];
+        outs.iter().enumerate().any(|(k, stored)| {
+            let k = N_INPUTS + k;
+            let compared = ARRAYS[k] != GuardedArray::Tangent || want_tangent;
+            compared && self.array(k).iter().zip(stored.iter()).any(|(&a, &b)| !quiet(a).same(b))
+        })
+    }
+
+    /// One guarded call: load, call through `invoke`, check, store; at the full level the
+    /// reruns. A crash in the first call ends it with that crash.
+    #[allow(clippy::too_many_arguments)] // one call's whole context; a struct would only repackage it
+    pub(crate) fn call(
+        &mut self,
+        level: GuardLevel,
+        call: &TcCall,
+        label: *const c_char,
+        fp_traps: bool,
+        complex: bool,
+        input: &CallInput<'_, E>,
+        output: &mut CallOutput<'_, E>,
+        findings: &mut Findings,
+        mut invoke: impl FnMut(&GuardArgs) -> Result<(), Crash>,
+    ) -> Result<(), Crash> {
+        let place = CallPlace { increment: input.increment, complex };
+        let ncomp = self.ncomp;
+        let first = [E::POISON[0]; N_INPUTS];
+        self.report_before = *output.outcome;
+        let mut made = *call;
+        self.load(input, &first);
+        let args = self.args(&raw mut made, label, fp_traps);
+        invoke(&args)?;
+        self.inspect(input, call, &made, &first, place, findings);
+        self.store(output);
+        if level != GuardLevel::Full {
+            return Ok(());
+        }
+
+        // The rerun: every poison zone changed at once. Only when the results differ are the
+        // zones tried one at a time (the failure path).
+        let mut rerun = |this: &mut Self, poison: &[E; N_INPUTS], findings: &mut Findings| -> bool {
+            findings.extra_calls += 1;
+            made = *call;
+            this.load(input, poison);
+            let args = this.args(&raw mut made, label, fp_traps);
+            invoke(&args).is_err() || this.differs(output, input.want_tangent)
+        };
+        if !rerun(self, &[E::POISON[1]; N_INPUTS], findings) {
+            return Ok(());
+        }
+        let finding = |kind, array, len| GuardFinding {
+            kind,
+            array,
+            len,
+            first: len,
+            entries: 1,
+            ncomp,
+            increment: place.increment,
+            complex,
+            calls: 1,
+        };
+        if rerun(self, &first, findings) {
+            findings.record(finding(FindingKind::Unrepeatable, GuardedArray::Call, 0));
+            return Ok(());
+        }
+        let mut named = false;
+        for k in 0..N_INPUTS {
+            let mut one = first;
+            one[k] = E::POISON[1];
+            if rerun(self, &one, findings) {
+                let len = self.len[k];
+                findings.record(finding(FindingKind::OverRead, ARRAYS[k], len));
+                named = true;
+            }
+        }
+        if !named {
+            // Only all zones together change the results: no single array to name.
+            findings.record(finding(FindingKind::Unrepeatable, GuardedArray::Call, 0));
+        }
+        Ok(())
+    }
+}
+
+/// The first index where `ok` fails, and how many entries fail.
+pub(super) fn mismatch<E: Copy>(values: &[E], ok: impl Fn(usize, E) -> bool) -> Option<(usize, usize)> {
+    let mut first = None;
+    let mut n = 0;
+    for (i, &v) in values.iter().enumerate() {
+        if !ok(i, v) {
+            first.get_or_insert(i);
+            n += 1;
+        }
+    }
+    first.map(|f| (f, n))
+}
+
+fn same_call(a: &TcCall, b: &TcCall) -> bool {
+    a.abi_version == b.abi_version
+        && a.ncomp == b.ncomp
+        && a.nstate == b.nstate
+        && a.nprop == b.nprop
+        && a.increment == b.increment
+        && a.flags == b.flags
+        && a.time.to_bits() == b.time.to_bits()
+        && a.dtime.to_bits() == b.dtime.to_bits()
+}
