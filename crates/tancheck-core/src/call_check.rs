@@ -233,19 +233,7 @@ pub fn check_call(
         };
         checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
     }
-    let mut non_finite = Vec::new();
-    for (what, v) in
-        [("stress", &driver.base.stress), ("state", &driver.base.state), ("tangent", &driver.base.tangent)]
-    {
-        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
-            let count = v.iter().filter(|x| !x.is_finite()).count();
-            non_finite.push(format!(
-                "{what}[{i}] = {}{}",
-                v[i],
-                if count > 1 { format!(" and {} more", count - 1) } else { String::new() }
-            ));
-        }
-    }
+    let non_finite = non_finite_outputs(driver, "");
     let mut out = CallCheck {
         reported_branch: (reported >= 0).then_some(reported),
         state_changed,
@@ -311,4 +299,23 @@ pub fn sharpest(settings: &Settings, has_twin: bool) -> Settings {
     s.schemes = vec![pick];
     s.diagnose = false;
     s
+}
+
+/// The base call's outputs that are not finite numbers, one line per output array (the first
+/// such entry and how many more), followed by `context`.
+pub fn non_finite_outputs(driver: &Driver, context: &str) -> Vec<String> {
+    let mut lines = Vec::new();
+    for (what, v) in
+        [("stress", &driver.base.stress), ("state", &driver.base.state), ("tangent", &driver.base.tangent)]
+    {
+        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
+            let count = v.iter().filter(|x| !x.is_finite()).count();
+            lines.push(format!(
+                "{what}[{i}] = {}{}{context}",
+                v[i],
+                if count > 1 { format!(" and {} more", count - 1) } else { String::new() }
+            ));
+        }
+    }
+    lines
 }

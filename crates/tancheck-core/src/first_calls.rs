@@ -54,16 +54,8 @@ pub fn zero_increment(
         result.fault = Some(fault_record(&f, &d, Some("zero increment from the start state".into())));
         return Ok(Some(result));
     }
-    for (what, v) in [("stress", &d.base.stress), ("state", &d.base.state), ("tangent", &d.base.tangent)] {
-        if let Some(i) = v.iter().position(|x| !x.is_finite()) {
-            let count = v.iter().filter(|x| !x.is_finite()).count();
-            result.non_finite.push(format!(
-                "{what}[{i}] = {} for a zero increment from the start state{}",
-                v[i],
-                if count > 1 { format!(" (and {} more)", count - 1) } else { String::new() }
-            ));
-        }
-    }
+    result.non_finite =
+        crate::call_check::non_finite_outputs(&d, " for a zero increment from the start state");
     if result.non_finite.is_empty() {
         return Ok(None);
     }
