@@ -21,9 +21,12 @@ pub mod irreversibility;
 pub mod newton;
 pub mod refinement;
 pub mod regularisation;
+pub mod snap_back;
+pub mod softening;
 pub mod stability;
 pub mod symmetry;
 pub mod tangent;
+pub mod viscous_limit;
 pub mod zero_increment;
 
 /// One probe of a suite, as written in a suite file.
@@ -56,15 +59,19 @@ pub struct ProbeSpec {
     /// elastic response at the start decides (anisotropic without `axes`: skipped).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub anisotropic: Option<bool>,
-    /// irreversibility: state indices (0-based) of damage variables, which must never fall.
+    /// irreversibility, softening, snap-back: state indices (0-based) of damage variables,
+    /// which must never fall (their growth marks where softening is expected).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub damage: Option<Vec<usize>>,
-    /// regularisation: property index (0-based) of the characteristic length.
+    /// regularisation, snap-back: property index (0-based) of the characteristic length.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub length: Option<usize>,
-    /// regularisation: the fracture energy (per unit area) the path should dissipate.
+    /// regularisation, snap-back: the fracture energy (per unit area) the path should dissipate.
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub fracture_energy: Option<f64>,
+    /// viscous-limit: property index (0-based) of the viscosity.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub viscosity: Option<usize>,
 }
 
 impl ProbeSpec {
@@ -167,6 +174,9 @@ pub fn registry() -> Vec<Box<dyn Probe>> {
         Box::new(conventions::Conventions),
         Box::new(irreversibility::Irreversibility),
         Box::new(regularisation::Regularisation),
+        Box::new(softening::Softening),
+        Box::new(viscous_limit::ViscousLimit),
+        Box::new(snap_back::SnapBack),
     ]
 }
 

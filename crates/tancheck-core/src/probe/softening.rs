@@ -1,0 +1,153 @@
+//! The softening probe: softening is expected, not a failure, while declared damage grows.
+//! At each probed increment the symmetric part of the returned tangent (Mandel form) and the
+//! acoustic tensor are assessed with the stability probe's measures
+//! ([`super::stability::assess`]). A negative eigenvalue of the symmetric part in an increment
+//! where a declared damage variable (`"damage": [state indices]`) grows is reported as
+//! information; loss of ellipticity is reported with the band normal, as the stability probe
+//! does. A negative eigenvalue where no declared damage grows (elastic loading, unloading,
+//! reloading below the largest load, closure) fails: a damage law that does not grow is
+//! secant-like there, so softening means the tangent carries a growth term the update did
+//! not take (or damage that heals, which the irreversibility probe names).
+//!
+//! Negative means λ_min/s < −`tol` (default 1e-10; s the largest |eigenvalue| of the symmetric
+//! part): a zero eigenvalue, as in a fully failed mode whose stiffness is gone, is not
+//! softening. Without `damage`: skipped with that reason.
+
+use super::stability::{assess, Assessment};
+use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::routine::{Caller, Fault};
+
+pub struct Softening;
+
+const DEFAULT_TOL: f64 = 1e-10;
+
+fn vector(n: &[f64; 3]) -> String {
+    format!("({:.4}, {:.4}, {:.4})", n[0], n[1], n[2])
+}
+
+/// What the walk saw at one increment.
+struct Seen {
+    increment: usize,
+    growth: bool,
+    branch: i32,
+    assessment: Assessment,
+}
+
+impl Probe for Softening {
+    fn name(&self) -> &'static str {
+        "softening"
+    }
+    fn needs(&self) -> &'static str {
+        "the tangent and the state indices of the damage variables (\"damage\")"
+    }
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+        let name = self.name();
+        let Some(indices) = env.spec.damage.as_ref().filter(|v| !v.is_empty()) else {
+            return Ok(ProbeResult::skipped(
+                name,
+                "no damage variables declared (\"damage\": [state indices]), so softening is not expected anywhere",
+            ));
+        };
+        let nstate = caller.info().nstate;
+        if let Some(&bad) = indices.iter().find(|&&i| i >= nstate) {
+            return Err(format!(
+                "softening: damage index {bad} is not a state variable (the routine has {nstate})"
+            ));
+        }
+        let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
+        let conv = caller.info().convention.clone();
+        let mut seen: Vec<Seen> = Vec::new();
+        let walked = walk(caller, env, |k, d, _| {
+            if !env.spec.runs_at(k) {
+                return Ok(());
+            }
+            if let Some(i) = d.base.tangent.iter().position(|x| !x.is_finite()) {
+                return Err(Fault::Unsupported(format!(
+                    "the returned tangent has a non-finite entry ({} at position {i})",
+                    d.base.tangent[i]
+                )));
+            }
+            let growth = indices.iter().any(|&i| d.base.state[i] > d.start().state[i]);
+            seen.push(Seen {
+                increment: k,
+                growth,
+                branch: d.base.outcome.branch,
+                assessment: assess(&conv, &d.base.tangent),
+            });
+            Ok(())
+        });
+        if let Err((k, f)) = walked {
+            return Ok(faulted(name, k, &f));
+        }
+        if seen.is_empty() {
+            return Ok(ProbeResult::skipped(name, "no increment of the path is probed (see `at`)"));
+        }
+        let soft = |s: &&Seen| s.assessment.eigen_ratio() < -tol;
+        let expected: Vec<&Seen> = seen.iter().filter(|s| s.growth).filter(soft).collect();
+        let unexpected: Vec<&Seen> = seen.iter().filter(|s| !s.growth).filter(soft).collect();
+        let growth = seen.iter().filter(|s| s.growth).count();
+        let loss = seen.iter().find(|s| s.assessment.det_ratio().is_some_and(|q| q <= tol));
+        let mut parts = Vec::new();
+        match expected.first() {
+            Some(s) => parts.push(format!(
+                "softening during damage growth at {} of {growth} growth increment(s), from increment {} \
+                 (expected, not a failure)",
+                expected.len(),
+                s.increment
+            )),
+            None if growth > 0 => {
+                parts.push(format!("no softening in the {growth} increment(s) of damage growth"))
+            }
+            None => parts.push("declared damage does not grow on this path (a weak test)".into()),
+        }
+        if let Some(s) = loss {
+            let a = s.assessment.acoustic.expect("a loss has an acoustic tensor");
+            parts.push(format!(
+                "ellipticity lost at increment {}{}, band normal {} at {:.1}° from axis 1",
+                s.increment,
+                if s.growth { " (damage growth)" } else { "" },
+                vector(&a.normal),
+                a.angle_from_axis1()
+            ));
+        }
+        let mut r = match unexpected.first() {
+            None => {
+                parts.push("positive semi-definite wherever damage does not grow".into());
+                ProbeResult::new(name, ProbeStatus::Pass, parts.join("; "))
+            }
+            Some(s) => {
+                let mut r = ProbeResult::new(
+                    name,
+                    ProbeStatus::Fail,
+                    format!(
+                        "the tangent softens (λmin/s = {:.3e}) at increment {} (branch {}) where no declared \
+                         damage grows — {} such increment(s); {}",
+                        s.assessment.eigen_ratio(),
+                        s.increment,
+                        s.branch,
+                        unexpected.len(),
+                        parts.join("; ")
+                    ),
+                );
+                r.increment = Some(s.increment);
+                r
+            }
+        };
+        r.value = Some(seen.iter().map(|s| s.assessment.eigen_ratio()).fold(f64::INFINITY, f64::min));
+        r.tol = Some(tol);
+        for s in &seen {
+            let mut line = format!(
+                "increment {} (branch {}{}): λmin/s = {:.3e}",
+                s.increment,
+                s.branch,
+                if s.growth { ", damage grows" } else { "" },
+                s.assessment.eigen_ratio()
+            );
+            if let (Some(a), Some(q)) = (s.assessment.acoustic, s.assessment.det_ratio()) {
+                line.push_str(&format!(", min det Q/s^{} = {q:.3e} at n = {}", a.dim, vector(&a.normal)));
+            }
+            r.details.push(line);
+        }
+        Ok(r)
+    }
+}
