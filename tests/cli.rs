@@ -60,6 +60,13 @@ fn demo_shows_correct_routines_passing_and_the_flawed_one_failing() {
     assert!(t.contains("wrong entries (row/column)"), "{t}");
     // And the cause is named.
     assert!(t.contains("finding over the path: continuum-tangent"), "{t}");
+    // The bracket ply scenario: the ply routine passes, its secant variant is found as such.
+    assert!(t.contains("bracket ply: composite ply damage (Hashin modes, crack-band softening), C"), "{t}");
+    assert!(
+        t.contains("bracket ply: composite ply damage with the secant tangent (flawed on purpose), C"),
+        "{t}"
+    );
+    assert!(t.contains("finding over the path: secant"), "{t}");
     assert!(t.contains("caution: A consistent tangent"), "{t}");
 }
 

@@ -43,6 +43,115 @@ const FORTRAN_SOURCES: [(&str, &str); 3] = [
 const J2_PROPS: &str = "[210000, 0.3, 355, 1200, 150, 12, 2500]";
 const ELASTIC_PROPS: &str = "[70000, 0.33]";
 
+/// The ply scenario's sources (built as their own libraries, beside the examples above).
+const PLY_C_SOURCES: [(&str, &str); 1] = [("ply.c", include_str!("../../../fortran-shim/examples/c/ply.c"))];
+const PLY_FORTRAN_SOURCES: [(&str, &str); 2] = [
+    ("ply.F90", include_str!("../../../fortran-shim/examples/fortran/ply.F90")),
+    ("ply_update.inc", include_str!("../../../fortran-shim/examples/fortran/ply_update.inc")),
+];
+
+/// A made-up bracket flange ply (demo numbers, no real material): a glass/epoxy-like ply with
+/// its fibres at 30° in the 1-2 plane, plane stress, in MPa, N/mm and mm —
+/// [E1 E2 E3, ν12 ν13 ν23, G12 G13 G23, axis 1, axis 2, Xt Xc Yt Yc SL, fracture energies of
+/// fibre tension, fibre compression, matrix tension, matrix compression, L = 0.8 mm, η = 0].
+const BRACKET_PLY_PROPS: &str = "[40000, 9000, 9000, 0.27, 0.27, 0.4, 3800, 3800, 3200, \
+    0.866025, 0.5, 0, -0.5, 0.866025, 0, 1000, 600, 40, 140, 70, 40, 50, 0.3, 1.2, 0.8, 0]";
+
+/// The bracket's combined loading at the point: stretch along the bracket (11) with lateral
+/// contraction and in-plane shear, into matrix damage; half unloaded; reloaded past it.
+/// (tensor components 11 22 33 23 13 12 with engineering shear, increments.)
+const BRACKET_PATH: [([f64; 3], usize); 3] =
+    [([8e-4, -2e-4, -1.2e-3], 8), ([-1e-3, 2.5e-4, 1.5e-3], 3), ([8e-4, -2e-4, -1.2e-3], 6)];
+
+fn bracket_path() -> String {
+    let mut incs = Vec::new();
+    for ([e11, e22, g12], n) in BRACKET_PATH {
+        for _ in 0..n {
+            incs.push(format!(r#"{{"dstrain": [{e11:e}, {e22:e}, 0, 0, 0, {g12:e}], "dtime": 0.01}}"#));
+        }
+    }
+    format!(
+        r#"{{"name": "bracket ply: stretch, contraction and shear into matrix damage, unload, reload", "increments": [{}]}}"#,
+        incs.join(", ")
+    )
+}
+
+/// The ply scenario's cases: (title, manifest file, manifest text, expected verdict).
+fn ply_cases(c_lib: &str, f_lib: Option<&str>) -> Vec<(String, String, String, Verdict)> {
+    let mut libs = vec![("C", "c", c_lib)];
+    if let Some(l) = f_lib {
+        libs.push(("Fortran", "f", l));
+    }
+    let mut v = Vec::new();
+    for (language, prefix, lib) in libs {
+        for (symbol, what, expect) in [
+            ("ply", "composite ply damage (Hashin modes, crack-band softening)", Verdict::Pass),
+            (
+                "ply_secant",
+                "composite ply damage with the secant tangent (flawed on purpose)",
+                Verdict::TangentFailure,
+            ),
+        ] {
+            let text = format!(
+                "{{\n  \"routine\": {{ \"library\": \"{lib}\", \"symbol\": \"{prefix}_{symbol}\", \"kind\": \"plane-stress\", \
+                 \"states\": 8, \"properties\": {BRACKET_PLY_PROPS} }},\n  \"path\": {}\n}}\n",
+                bracket_path()
+            );
+            v.push((
+                format!("bracket ply: {what}, {language}"),
+                format!("{prefix}_bracket_{symbol}.json"),
+                text,
+                expect,
+            ));
+        }
+    }
+    v
+}
+
+/// Build the ply examples and check the bracket ply with them; true when every routine got
+/// the verdict it should.
+fn ply_scenario(dir: &FsPath, fortran: bool, verbose: bool) -> Result<bool> {
+    let mut out = crate::survive::stdout();
+    let c_lib = build(dir, "ply_c", &PLY_C_SOURCES)?;
+    writeln!(out, "   built {} (C ply, with complex-step twins)", c_lib.display())?;
+    let f_lib = if fortran {
+        let l = build(dir, "ply_fortran", &PLY_FORTRAN_SOURCES)?;
+        writeln!(out, "   built {} (Fortran ply, with complex-step twins)", l.display())?;
+        Some(l)
+    } else {
+        None
+    };
+    writeln!(out)?;
+    let name = |p: &PathBuf| p.file_name().unwrap().to_string_lossy().into_owned();
+    let mut all = true;
+    for (title, file, text, expect) in ply_cases(&name(&c_lib), f_lib.as_ref().map(name).as_deref()) {
+        let mpath = dir.join(&file);
+        std::fs::write(&mpath, &text)?;
+        let m = Manifest::parse(&text, &mpath)?;
+        let path = m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?;
+        let report = run_manifest(&m, dir, &path)?;
+        let ok = report.verdict == expect;
+        all &= ok;
+        writeln!(out, "-- {title} --")?;
+        writeln!(out, "   manifest: {}", mpath.display())?;
+        if verbose {
+            drop(out);
+            emit(&report, Detail::Normal, None)?;
+            out = crate::survive::stdout();
+        } else {
+            summary(&mut out, &report)?;
+        }
+        writeln!(
+            out,
+            "   expected {}, got {}: {}\n",
+            expect.word(),
+            report.verdict.word(),
+            if ok { "as it should be" } else { "NOT AS EXPECTED" }
+        )?;
+    }
+    Ok(all)
+}
+
 struct Case {
     title: &'static str,
     file: &'static str,
@@ -180,6 +289,9 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
             if ok { "as it should be" } else { "NOT AS EXPECTED" }
         )?;
     }
+    drop(out);
+    all_as_expected &= ply_scenario(&dir, f_lib.is_some(), a.verbose)?;
+    let mut out = crate::survive::stdout();
     for c in tancheck_core::report::CAUTIONS {
         writeln!(out, "caution: {c}")?;
     }
