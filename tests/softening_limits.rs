@@ -8,7 +8,7 @@
 //!   written here, correct, without the factor Δt/(η + Δt), and relaxing towards the damage of
 //!   the start of the increment);
 //! - snap-back: the largest admissible length L_max = 2 E G_f/σ₀² (crack band, Bažant & Oh
-//!   1983; REFERENCES.md, derived) per mode of the ply; a ply that silently shrinks a length
+//!   1983, from memory; the bound is derived in REFERENCES.md) per mode of the ply; a ply that silently shrinks a length
 //!   it cannot use; for the cohesive law the smallest admissible fracture energy t₀²/(2K)
 //!   (the bilinear law needs δ_f = 2 G_c/t₀ > δ₀ = t₀/K; Camanho & Dávila 2002).
 //!

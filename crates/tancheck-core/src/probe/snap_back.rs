@@ -1,6 +1,6 @@
 //! The snap-back probe: a characteristic length too large for the fracture energy.
 //!
-//! In a crack band (Bažant & Oh 1983) a softening point stands for a band of width L, and the
+//! In a crack band (Bažant & Oh 1983, from memory as REFERENCES.md lists it) a softening point stands for a band of width L, and the
 //! energy it dissipates per unit volume to full failure is G_f/L. The energy per unit volume
 //! already stored when softening starts, W₀ (½ σ₀ ε₀ for a linear response up to the peak), is
 //! a lower bound of that: with linear softening the stress falls to zero at the strain
