@@ -422,12 +422,13 @@ fn snap_back_gives_the_largest_admissible_length_of_each_ply_mode() {
         assert!((got / want - 1.0).abs() < 1e-5, "{mode}: L_max {got}, 2 E G/X² = {want}");
         assert!((r.value.unwrap() - 0.5 / want).abs() < 1e-5 * r.value.unwrap(), "{mode}: {:?}", r.value);
     }
-    // Solid-3d, fibre tension (ν = 0: C11 = E1).
-    let (_, p, x, e, g) = mode_paths().into_iter().next().unwrap();
-    let mut good = ModelRoutine(Ply::new(PointKind::Solid3d).unwrap());
-    let r = probe(&mut good, snap_back(&[4, 5, 6, 7], Some(24), g), &ply_uncoupled(), &p);
-    assert_eq!(r.status, ProbeStatus::Pass, "{} {:#?}", r.summary, r.details);
-    assert!((l_max_in(&r.summary) / (2.0 * e * g / (x * x)) - 1.0).abs() < 1e-5, "{}", r.summary);
+    // Solid-3d: with every ν = 0, C_kk = E_k and the same bounds.
+    for (mode, p, x, e, g) in mode_paths() {
+        let mut good = ModelRoutine(Ply::new(PointKind::Solid3d).unwrap());
+        let r = probe(&mut good, snap_back(&[4, 5, 6, 7], Some(24), g), &ply_uncoupled(), &p);
+        assert_eq!(r.status, ProbeStatus::Pass, "{mode}: {} {:#?}", r.summary, r.details);
+        assert!((l_max_in(&r.summary) / (2.0 * e * g / (x * x)) - 1.0).abs() < 1e-5, "{mode}: {}", r.summary);
+    }
 }
 
 #[test]
@@ -595,10 +596,14 @@ fn compiled(lib_path: &FsPath, prefix: &str) {
         assert!(r.summary.contains("softening during damage growth"), "{prefix} {kind}: {}", r.summary);
         let r = probe(&mut good, viscous(25), &ply_props(0.02), &ply_path(0.01));
         assert_eq!(r.status, ProbeStatus::Pass, "{prefix} {kind}: {}", r.summary);
-        let (_, p, x, e, g) = mode_paths().into_iter().nth(2).unwrap();
-        let r = probe(&mut good, snap_back(&[4, 5, 6, 7], Some(24), g), &ply_uncoupled(), &p);
-        assert_eq!(r.status, ProbeStatus::Pass, "{prefix} {kind}: {}", r.summary);
-        assert!((l_max_in(&r.summary) / (2.0 * e * g / (x * x)) - 1.0).abs() < 1e-5, "{}", r.summary);
+        // One uniaxial path per mode (every ν = 0, so C_kk = E_k in both kinds).
+        for (mode, p, x, e, g) in mode_paths() {
+            let r = probe(&mut good, snap_back(&[4, 5, 6, 7], Some(24), g), &ply_uncoupled(), &p);
+            assert_eq!(r.status, ProbeStatus::Pass, "{prefix} {kind} {mode}: {}", r.summary);
+            let want = 2.0 * e * g / (x * x);
+            assert!((l_max_in(&r.summary) / want - 1.0).abs() < 1e-5, "{mode}: {}", r.summary);
+        }
+        let (_, p, _, _, g) = mode_paths().into_iter().nth(2).unwrap();
         let mut props = ply_uncoupled();
         props[24] = 10.0;
         let r = probe(&mut good, snap_back(&[4, 5, 6, 7], Some(24), g), &props, &p);
