@@ -230,6 +230,12 @@ fn conventions_rows_are_right(t: &str, languages: &[&str]) {
             assert!(row(&format!("ply, irreversibility ({kind})"), "irreversibility pass"), "{lang}: {t}");
             assert!(row(&format!("ply-healing ({kind})"), "irreversibility FAIL"), "{lang}: {t}");
             assert!(row(&format!("ply, regularisation ({kind})"), "regularisation pass"), "{lang}: {t}");
+            assert!(row(&format!("ply, softening ({kind})"), "softening pass"), "{lang}: {t}");
+            assert!(row(&format!("ply-healing ({kind})"), "softening FAIL"), "{lang}: {t}");
+            assert!(row(&format!("ply, viscous limit ({kind})"), "viscous-limit pass"), "{lang}: {t}");
+            let no_factor = format!("ply-viscous-no-factor ({kind})");
+            assert!(row(&no_factor, "viscous-limit FAIL"), "{lang}: {t}");
+            assert!(row(&format!("ply, snap-back ({kind})"), "snap-back pass"), "{lang}: {t}");
             assert!(row(&format!("ply-length-dropped ({kind})"), "regularisation FAIL"), "{lang}: {t}");
         }
     }

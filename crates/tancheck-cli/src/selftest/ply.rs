@@ -102,11 +102,20 @@ fn one(
 /// on the check's path (load, unload, reload) with the damage state [4..8] declared;
 /// regularisation on transverse strain to full failure of a ply with ν12 = ν13 = ν23 = 0
 /// (a uniaxial material stress in either kind), L at property 24, G_mt = 0.25 declared.
-const PROBE_ROWS: [(&str, PlyFlaw, &str, ProbeStatus); 4] = [
+/// Softening runs where irreversibility does (the healing ply softens on unloading, where its
+/// damage falls); viscous-limit on the check's path with η = 0.02 and Δt = 0.01 (property 25);
+/// snap-back where regularisation does (the length is admissible, and the ply refuses
+/// 1.05 L_max).
+const PROBE_ROWS: [(&str, PlyFlaw, &str, ProbeStatus); 9] = [
     ("ply, irreversibility", PlyFlaw::None, "irreversibility", ProbeStatus::Pass),
     ("ply-healing", PlyFlaw::Healing, "irreversibility", ProbeStatus::Fail),
     ("ply, regularisation", PlyFlaw::None, "regularisation", ProbeStatus::Pass),
     ("ply-length-dropped", PlyFlaw::LengthDropped, "regularisation", ProbeStatus::Fail),
+    ("ply, softening", PlyFlaw::None, "softening", ProbeStatus::Pass),
+    ("ply-healing", PlyFlaw::Healing, "softening", ProbeStatus::Fail),
+    ("ply, viscous limit", PlyFlaw::None, "viscous-limit", ProbeStatus::Pass),
+    ("ply-viscous-no-factor", PlyFlaw::ViscousNoFactor, "viscous-limit", ProbeStatus::Fail),
+    ("ply, snap-back", PlyFlaw::None, "snap-back", ProbeStatus::Pass),
 ];
 
 fn probe_row(
@@ -118,8 +127,11 @@ fn probe_row(
 ) -> Result<Row> {
     let info = routine.info().clone();
     let kind = info.convention.kind();
-    let (spec, props, path) = if probe == "irreversibility" {
-        (ProbeSpec { damage: Some(vec![4, 5, 6, 7]), ..ProbeSpec::named(probe) }, props(0.0, 0.0), path(1.0))
+    let damage = Some(vec![4, 5, 6, 7]);
+    let (spec, props, path) = if probe == "irreversibility" || probe == "softening" {
+        (ProbeSpec { damage, ..ProbeSpec::named(probe) }, props(0.0, 0.0), path(1.0))
+    } else if probe == "viscous-limit" {
+        (ProbeSpec { viscosity: Some(25), ..ProbeSpec::named(probe) }, props(0.02, 0.0), path(0.01))
     } else {
         let mut p = props(0.0, 0.0);
         p[3] = 0.0;
@@ -135,8 +147,9 @@ fn probe_row(
                 hold_stress: None,
             });
         }
+        let damage = if probe == "snap-back" { damage } else { None };
         (
-            ProbeSpec { length: Some(24), fracture_energy: Some(0.25), ..ProbeSpec::named(probe) },
+            ProbeSpec { length: Some(24), fracture_energy: Some(0.25), damage, ..ProbeSpec::named(probe) },
             p,
             to_failure,
         )
