@@ -161,7 +161,7 @@ impl Probe for SnapBack {
         let Some(w0) = walked.onset_work.filter(|w| *w > 0.0) else {
             return Ok(ProbeResult::skipped(
                 name,
-                "the declared damage does not grow on this path: no onset of softening to measure",
+                "no onset of softening on this path to measure (the declared damage does not grow, or grows from its first call)",
             ));
         };
         let l_used = length.map_or(1.0, |i| props[i]);
