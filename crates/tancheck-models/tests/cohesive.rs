@@ -16,7 +16,7 @@ use tancheck_models::{AnyModel, Cohesive, CohesiveFlaw};
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::ALLOCATIONS;
+use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -679,10 +679,6 @@ fn flawed_variants_are_wrong_where_they_should_be_only() {
 }
 
 // ---------------------------------------------------------------------------------------
-
-fn allocations() -> usize {
-    ALLOCATIONS.with(|c| c.get())
-}
 
 fn count_allocations<S: Scalar>(m: &Cohesive, p: &Point) -> (usize, i32) {
     let n = p.strain.len();
