@@ -251,6 +251,28 @@ pub fn dual_tangent<M: Model>(m: &M, c: &Call) -> (Vec<f64>, Vec<i32>) {
     (t, branches)
 }
 
+/// ∂σ/∂Δε of a model by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998), one call
+/// per column; column-major.
+#[track_caller]
+pub fn model_complex_tangent<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
+    let n = c.strain.len();
+    let mut t = vec![0.0; n * n];
+    let temp = [Complex64::new(c.temp[0], 0.0), Complex64::new(c.temp[1], 0.0)];
+    for j in 0..n {
+        let de: Vec<Complex64> = c
+            .dstrain
+            .iter()
+            .enumerate()
+            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
+            .collect();
+        let out = model_call(m, c, &de, temp).expect("complex call");
+        for i in 0..n {
+            t[i + j * n] = out.stress[i].im / h;
+        }
+    }
+    t
+}
+
 /// Allocations made by `calls` evaluations of model `m` on `c` in scalar type `S` (every
 /// buffer made beforehand, so only the calls count), and the outcome of the last call. Needs
 /// [`counting_allocator!`](crate::counting_allocator) in the test binary.
