@@ -7,13 +7,12 @@
 //! library function; the Fortran half is ignored ("needs gfortran", cfg set
 //! by build.rs) without gfortran, and runs when TANCHECK_REQUIRE_FORTRAN=1 (as in CI).
 
-use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-use std::sync::OnceLock;
+use std::path::Path;
+use std::process::Command;
 
 use serde_json::Value;
-use tancheck::abi::{build_library, BuildOptions};
 use tancheck::models::zoo::{C_SOURCES, FORTRAN_SOURCES};
+use tancheck_testkit::libs::{build_once, output_text as text, scratch};
 
 /// The J2 properties of the zoo: E, ν, σy0, H_iso, Q, b, H_kin.
 const J2_PROPS: [f64; 7] = [210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0];
@@ -26,34 +25,12 @@ fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_tancheck"))
 }
 
-fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-bisect-test-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn text(o: &Output) -> String {
-    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
-}
-
-fn build(sources: &[&str], name: &str) -> PathBuf {
-    let d = scratch(&format!("lib-{name}"));
-    let out = d.join(format!("lib{name}.so"));
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| root.join(s)), &out))
-        .unwrap_or_else(|e| panic!("building the {name} zoo: {e}"));
-    out
-}
-
 fn c_library() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build(&C_SOURCES, "zoo-c"))
+    build_once("zoo-c", &C_SOURCES)
 }
 
 fn fortran_library() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build(&FORTRAN_SOURCES, "zoo-f"))
+    build_once("zoo-f", &FORTRAN_SOURCES)
 }
 
 /// Where the routine comes from.

@@ -9,16 +9,15 @@
 //! The Rust model is tied to the published Johnson–Cook values of REFERENCES.md and to num-dual
 //! in crates/tancheck-models/tests/johnson_cook.rs.
 
-use std::path::{Path, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path;
 
-use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, BuildOptions, Library};
-use tancheck::core::driver::Outputs as Out;
-use tancheck::core::{CallInput, PointKind, Routine};
+use tancheck::abi::Library;
+use tancheck::core::{PointKind, Routine};
 use tancheck::models::reference;
+use tancheck_testkit::call::{assert_outputs_agree, call, complex_column, rel, Call, Column};
+use tancheck_testkit::libs::build_examples;
 
 /// Agreement asked of the compiled routines (relative, whole array). Looser than the 1e-12 of
 /// the J2 comparison: the bracketed return map of a step barely past yield from ε̄p = 0 is
@@ -26,27 +25,12 @@ use tancheck::models::reference;
 /// nBε̄pⁿ⁻¹ of the law).
 const TOL: f64 = 1e-10;
 
-fn shim() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, sources: &[&str]) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-root-test-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| shim().join(s)), &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("jc_c", &["c/jc.c"]))
+    build_examples("jc_c", &["c/jc.c"])
 }
 
 fn f_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("jc_f", &["fortran/jc.F90"]))
+    build_examples("jc_f", &["fortran/jc.F90"])
 }
 
 /// 4340 steel of REFERENCES.md (Johnson–Cook constants, read, secondary) with typical E, ν,
@@ -60,71 +44,6 @@ const COPPER: [f64; 18] = [
     124_000.0, 0.34, 90.0, 292.0, 0.31, 0.025, 1.09, 293.0, 1356.0, 1.0, 8.96e-9, 3.83e8, 0.9, 0.54, 4.89,
     -3.03, 0.014, 1.12,
 ];
-
-struct Call {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    stress0: Vec<f64>,
-    state0: Vec<f64>,
-    temp: [f64; 2],
-    dtime: f64,
-}
-
-fn call(r: &mut dyn Routine, c: &Call) -> Out<f64> {
-    let mut o = Out::new(c.strain.len(), c.state0.len(), f64::NAN);
-    let input = CallInput {
-        props: &c.props,
-        strain: &c.strain,
-        dstrain: &c.dstrain,
-        temp: c.temp,
-        stress0: &c.stress0,
-        state0: &c.state0,
-        time: [0.0, c.dtime],
-        increment: 1,
-        want_tangent: true,
-    };
-    r.call(&input, &mut o.view()).expect("the call succeeds");
-    o
-}
-
-/// Complex-step column j of ∂σ/∂Δε (j < n) or ∂σ/∂ΔT (j = n) through the routine's twin.
-fn complex_column(r: &mut dyn Routine, c: &Call, j: usize) -> Vec<f64> {
-    let z = |v: &[f64]| v.iter().map(|&x| Complex64::new(x, 0.0)).collect::<Vec<_>>();
-    let (props, strain, stress0, state0) = (z(&c.props), z(&c.strain), z(&c.stress0), z(&c.state0));
-    let mut dstrain = z(&c.dstrain);
-    let h = 1e-30;
-    let mut temp = [Complex64::new(c.temp[0], 0.0), Complex64::new(c.temp[1], 0.0)];
-    if j < dstrain.len() {
-        dstrain[j].im = h;
-    } else {
-        temp[1].im = h;
-    }
-    let mut o = Out::new(c.strain.len(), c.state0.len(), Complex64::new(f64::NAN, 0.0));
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp,
-        stress0: &stress0,
-        state0: &state0,
-        time: [0.0, c.dtime],
-        increment: 1,
-        want_tangent: false,
-    };
-    r.complex().expect("twin").call_complex(&input, &mut o.view()).expect("the complex call succeeds");
-    o.stress.iter().map(|s| s.im / h).collect()
-}
-
-fn rel(a: &[f64], b: &[f64]) -> f64 {
-    let d: f64 = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
-    let n: f64 = b.iter().map(|y| y * y).sum::<f64>().sqrt();
-    if n == 0.0 {
-        d
-    } else {
-        d / n
-    }
-}
 
 /// Random walks of the Rust model; each call also goes to the compiled routine. Returns the
 /// (elastic, plastic) counts.
@@ -145,15 +64,7 @@ fn compare(
     let mut rng = StdRng::seed_from_u64(seed);
     let (mut elastic, mut plastic) = (0, 0);
     for _ in 0..30 {
-        let mut c = Call {
-            props: props.to_vec(),
-            strain: vec![0.0; n],
-            dstrain: vec![0.0; n],
-            stress0: vec![0.0; n],
-            state0: vec![0.0; info.nstate],
-            temp: [rng.gen_range(250.0..700.0), 0.0],
-            dtime: 1.0,
-        };
+        let mut c = Call::new(props, n, info.nstate).temp(rng.gen_range(250.0..700.0), 0.0);
         for step in 0..6 {
             if step > 0 && rng.gen_bool(0.4) {
                 // Unloading: a fifth of the last increment backwards (elastic after yield).
@@ -167,18 +78,12 @@ fn compare(
             }
             c.temp[1] = rng.gen_range(-10.0..10.0);
             // Now and then no time at all: elastic when C > 0 (no plastic flow in no time).
-            c.dtime = if rng.gen_bool(0.1) { 0.0 } else { 10f64.powf(rng.gen_range(-7.0..1.0)) };
+            c.time[1] = if rng.gen_bool(0.1) { 0.0 } else { 10f64.powf(rng.gen_range(-7.0..1.0)) };
             let a = call(&mut rust, &c);
             let b = call(&mut compiled, &c);
             assert_eq!(a.outcome.status, 0, "{}", a.outcome.message_text());
-            assert_eq!(b.outcome.status, 0, "{symbol}: {}", b.outcome.message_text());
-            assert_eq!(a.outcome.branch, b.outcome.branch, "{symbol} branch");
-            assert_eq!(a.outcome.provides, b.outcome.provides, "{symbol} provides");
             let what = format!("{symbol} {kind} step {step}");
-            assert!(rel(&b.stress, &a.stress) <= TOL, "{what} stress {:?} vs {:?}", b.stress, a.stress);
-            assert!(rel(&b.state, &a.state) <= TOL, "{what} state {:?} vs {:?}", b.state, a.state);
-            assert!(rel(&b.tangent, &a.tangent) <= TOL, "{what} tangent");
-            assert!(rel(&b.dstress_dtemp, &a.dstress_dtemp) <= TOL, "{what} ∂σ/∂ΔT");
+            assert_outputs_agree(&b, &a, TOL, &what);
             if a.outcome.branch == 1 {
                 plastic += 1;
             } else {
@@ -186,8 +91,9 @@ fn compare(
             }
             if step % 2 == 1 {
                 for j in 0..=n {
-                    let col = complex_column(&mut compiled, &c, j);
-                    let want = complex_column(&mut rust, &c, j);
+                    let column = if j < n { Column::Strain(j) } else { Column::Temperature };
+                    let col = complex_column(&mut compiled, &c, column, 1e-30);
+                    let want = complex_column(&mut rust, &c, column, 1e-30);
                     assert!(rel(&col, &want) <= TOL, "{what} complex-step column {j}");
                 }
             }

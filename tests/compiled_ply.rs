@@ -8,38 +8,22 @@
 //! Without a Fortran compiler the Fortran half is marked ignored ("needs gfortran"); with
 //! TANCHECK_REQUIRE_FORTRAN=1 it always runs.
 
-use std::path::{Path, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path;
 
 use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, BuildOptions, Library};
+use tancheck::abi::Library;
 use tancheck::core::routine::status;
 use tancheck::core::{CallInput, Model, PointKind, Routine, RoutineInfo};
 use tancheck::models::{Ply, PlyFlaw};
 
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, sources: &[&str]) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-ply-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| examples().join(s)), &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_c", &["c/ply.c"]))
+    build_examples("ply_c", &["c/ply.c"])
 }
 
 fn f_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_f", &["fortran/ply.F90"]))
+    build_examples("ply_f", &["fortran/ply.F90"])
 }
 
 #[derive(Clone, Debug)]
@@ -52,6 +36,7 @@ struct Call {
 }
 
 use tancheck::core::driver::Outputs as Out;
+use tancheck_testkit::libs::build_examples;
 
 fn call_real(r: &mut dyn Routine, c: &Call) -> Out<f64> {
     let n = c.strain.len();

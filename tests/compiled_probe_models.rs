@@ -14,38 +14,22 @@
 //! Without a Fortran compiler the Fortran halves are ignored ("needs gfortran", cfg set by
 //! build.rs); with TANCHECK_REQUIRE_FORTRAN=1 they run.
 
-use std::path::{Path, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path;
 
 use num_complex::Complex64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::{build_library, BuildOptions, FindingKind, GuardLevel, GuardedArray, Library};
+use tancheck::abi::{FindingKind, GuardLevel, GuardedArray, Library};
 use tancheck::core::routine::{provides, status};
 use tancheck::core::{CallInput, Convention, Fault, PointKind, Routine, RoutineInfo, ShearMeasure};
 use tancheck::models::reference;
 
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, sources: &[&str]) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-probe-models-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| examples().join(s)), &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("probe_models_c", &["c/orthotropic.c", "c/probe_zoo.c", "c/j2.c"]))
+    build_examples("probe_models_c", &["c/orthotropic.c", "c/probe_zoo.c", "c/j2.c"])
 }
 
 fn f_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("probe_models_f", &["fortran/orthotropic.F90", "fortran/j2.F90"]))
+    build_examples("probe_models_f", &["fortran/orthotropic.F90", "fortran/j2.F90"])
 }
 
 /// Owned inputs of one call.
@@ -72,6 +56,7 @@ impl Call {
 
 /// Output buffers of one call (the driver's own, NaN-filled).
 use tancheck::core::driver::Outputs as Out;
+use tancheck_testkit::libs::build_examples;
 
 fn try_call(r: &mut dyn Routine, c: &Call) -> (Result<(), Fault>, Out<f64>) {
     let mut o = Out::new(c.strain.len(), c.state0.len(), f64::NAN);

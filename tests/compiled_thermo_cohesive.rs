@@ -11,7 +11,6 @@
 //! with TANCHECK_REQUIRE_FORTRAN=1 they run.
 
 use std::path::{Path, PathBuf};
-use std::sync::OnceLock;
 
 use num_complex::Complex64;
 use rand::rngs::StdRng;
@@ -22,27 +21,12 @@ use tancheck::core::{CallInput, Model, PointKind, Routine, RoutineInfo};
 use tancheck::models::cohesive::branch;
 use tancheck::models::{Cohesive, CohesiveFlaw, Thermo, ThermoFlaw};
 
-fn examples() -> PathBuf {
-    Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, sources: &[&str]) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-thermo-cohesive-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| examples().join(s)), &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("thermo_cohesive_c", &["c/thermo.c", "c/cohesive.c"]))
+    build_examples("thermo_cohesive_c", &["c/thermo.c", "c/cohesive.c"])
 }
 
 fn f_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("thermo_cohesive_f", &["fortran/thermo.F90", "fortran/cohesive.F90"]))
+    build_examples("thermo_cohesive_f", &["fortran/thermo.F90", "fortran/cohesive.F90"])
 }
 
 /// Real inputs of one call.
@@ -57,6 +41,7 @@ struct Call {
 
 /// Output buffers of one call (the driver's own, NaN-filled).
 use tancheck::core::driver::Outputs as Out;
+use tancheck_testkit::libs::{build_examples, examples_dir, scratch};
 
 /// One real call of anything that is a `Routine`.
 fn call_real(r: &mut dyn Routine, c: &Call) -> Out<f64> {
@@ -390,10 +375,8 @@ fn fortran_cohesive_matches_the_rust_model() {
 }
 
 fn build_debug(name: &str, sources: &[&str]) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-thermo-cohesive-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    let mut opts = BuildOptions::new(sources.iter().map(|s| examples().join(s)), &out);
+    let out = scratch(name).join(format!("lib{name}.so"));
+    let mut opts = BuildOptions::new(sources.iter().map(|s| examples_dir().join(s)), &out);
     opts.debug = true;
     build_library(&opts).unwrap_or_else(|e| panic!("building {name}: {e}"));
     out

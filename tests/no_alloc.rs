@@ -2,40 +2,14 @@
 //! calls, through the counting `Caller`, into a Rust model and into a compiled routine through
 //! the guarded shim. A counting global allocator measures it.
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::cell::Cell;
 use std::path::Path;
 
 use tancheck::abi::{build_library, BuildOptions, Library};
 use tancheck::core::{Caller, Direction, Driver, PointState, Routine};
 use tancheck::models::reference;
 
-struct Counting;
-
-thread_local! {
-    static COUNT: Cell<u64> = const { Cell::new(0) };
-}
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.alloc(l) }
-    }
-    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
-        unsafe { System.dealloc(p, l) }
-    }
-    unsafe fn realloc(&self, p: *mut u8, l: Layout, n: usize) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.realloc(p, l, n) }
-    }
-}
-
-#[global_allocator]
-static A: Counting = Counting;
-
-fn allocations() -> u64 {
-    COUNT.with(Cell::get)
-}
+tancheck_testkit::counting_allocator!();
+use tancheck_testkit::alloc::allocations;
 
 const PROPS: [f64; 7] = [200000.0, 0.3, 250.0, 1000.0, 100.0, 10.0, 500.0];
 

@@ -9,8 +9,7 @@
 //! runs (failing if it cannot build) when TANCHECK_REQUIRE_FORTRAN=1 (as in CI).
 
 use std::path::{Path, PathBuf};
-use std::process::{Command, Output};
-use std::sync::OnceLock;
+use std::process::Command;
 
 use serde_json::Value;
 use tancheck::abi::{build_library, BuildOptions, Library};
@@ -19,6 +18,7 @@ use tancheck::core::{
     CallInput, CallOutput, Convention, Outcome, PointKind, Routine, RoutineInfo, ShearMeasure,
 };
 use tancheck::models::zoo::{zoo_model, C_SOURCES, FORTRAN_SOURCES};
+use tancheck_testkit::libs::{build_once, output_text as text, scratch};
 
 const J2_PROPS: &str = "[210000, 0.3, 355, 1200, 150, 12, 2500]";
 const COHESIVE_PROPS: &str = "[1e5, 60, 90, 0.3, 0.9, 2.0]";
@@ -29,34 +29,12 @@ fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_tancheck"))
 }
 
-fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-replay-test-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
-
-fn text(o: &Output) -> String {
-    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
-}
-
-fn build(sources: &[&str], name: &str) -> PathBuf {
-    let d = scratch(&format!("lib-{name}"));
-    let out = d.join(format!("lib{name}.so"));
-    let root = Path::new(env!("CARGO_MANIFEST_DIR"));
-    build_library(&BuildOptions::new(sources.iter().map(|s| root.join(s)), &out))
-        .unwrap_or_else(|e| panic!("building the {name} zoo: {e}"));
-    out
-}
-
 fn c_library() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build(&C_SOURCES, "zoo-c"))
+    build_once("zoo-c", &C_SOURCES)
 }
 
 fn fortran_library() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build(&FORTRAN_SOURCES, "zoo-f"))
+    build_once("zoo-f", &FORTRAN_SOURCES)
 }
 
 /// A routine of a test: a built-in model, or a library symbol with its state count.

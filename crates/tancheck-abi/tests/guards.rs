@@ -43,6 +43,44 @@ struct Point<S> {
     outcome: Outcome,
 }
 
+impl<S: Copy> Point<S> {
+    /// The call's inputs and outputs, pointing into the buffers (temperature and its increment
+    /// `temp`, unit time increment).
+    fn io(
+        &mut self,
+        temp: [S; 2],
+        increment: i32,
+        want_tangent: bool,
+    ) -> (CallInput<'_, S>, CallOutput<'_, S>) {
+        let Point {
+            props,
+            strain,
+            dstrain,
+            stress0,
+            state0,
+            stress,
+            state,
+            tangent,
+            dstress_dtemp,
+            energy,
+            outcome,
+        } = self;
+        let input = CallInput {
+            props,
+            strain,
+            dstrain,
+            temp,
+            stress0,
+            state0,
+            time: [0.0, 1.0],
+            increment,
+            want_tangent,
+        };
+        let output = CallOutput { stress, state, tangent, dstress_dtemp, energy, outcome };
+        (input, output)
+    }
+}
+
 impl Point<f64> {
     fn new() -> Self {
         let b = Real::new();
@@ -62,28 +100,19 @@ impl Point<f64> {
     }
 
     fn call(&mut self, r: &mut LibraryRoutine, increment: i32) -> Result<(), tancheck_core::Fault> {
+        self.call_wanting(r, increment, true)
+    }
+
+    fn call_wanting(
+        &mut self,
+        r: &mut LibraryRoutine,
+        increment: i32,
+        want_tangent: bool,
+    ) -> Result<(), tancheck_core::Fault> {
         self.stress = [f64::NAN; 6];
         self.tangent = [f64::NAN; 36];
         self.state = [f64::NAN; NSTATE];
-        let input = CallInput {
-            props: &self.props,
-            strain: &self.strain,
-            dstrain: &self.dstrain,
-            temp: [293.0, 0.0],
-            stress0: &self.stress0,
-            state0: &self.state0,
-            time: [0.0, 1.0],
-            increment,
-            want_tangent: true,
-        };
-        let mut output = CallOutput {
-            stress: &mut self.stress,
-            state: &mut self.state,
-            tangent: &mut self.tangent,
-            dstress_dtemp: &mut self.dstress_dtemp,
-            energy: &mut self.energy,
-            outcome: &mut self.outcome,
-        };
+        let (input, mut output) = self.io([293.0, 0.0], increment, want_tangent);
         r.call(&input, &mut output)
     }
 
@@ -176,29 +205,8 @@ fn a_tangent_entry_left_unwritten_is_named_by_index_row_and_column() {
 #[test]
 fn the_tangent_counts_only_when_asked_for() {
     let mut r = load_with_state("bad_tangent_hole", GuardLevel::Light);
-    let p = Point::new();
-    let (mut stress, mut state, mut tangent) = ([f64::NAN; 6], [f64::NAN; NSTATE], [f64::NAN; 36]);
-    let (mut dsdt, mut energy, mut outcome) = ([f64::NAN; 6], [f64::NAN; 2], Outcome::default());
-    let input = CallInput {
-        props: &p.props,
-        strain: &p.strain,
-        dstrain: &p.dstrain,
-        temp: [293.0, 0.0],
-        stress0: &p.stress0,
-        state0: &p.state0,
-        time: [0.0, 1.0],
-        increment: 2,
-        want_tangent: false,
-    };
-    let mut output = CallOutput {
-        stress: &mut stress,
-        state: &mut state,
-        tangent: &mut tangent,
-        dstress_dtemp: &mut dsdt,
-        energy: &mut energy,
-        outcome: &mut outcome,
-    };
-    r.call(&input, &mut output).unwrap();
+    let mut p = Point::new();
+    p.call_wanting(&mut r, 2, false).unwrap();
     assert!(r.findings().is_empty(), "{:#?}", r.findings());
 }
 
@@ -270,31 +278,22 @@ fn the_complex_twin_is_guarded_too() {
     let mut r = load_with_state("bad_tangent_hole", GuardLevel::Light);
     let p = Point::new();
     let cx = |v: &[f64]| -> Vec<Complex64> { v.iter().map(|&x| Complex64::new(x, 0.0)).collect() };
-    let (props, strain, mut dstrain, stress0, state0) =
-        (cx(&p.props), cx(&p.strain), cx(&p.dstrain), cx(&p.stress0), cx(&p.state0));
-    dstrain[0].im = 1e-30;
     let nan = Complex64::new(f64::NAN, f64::NAN);
-    let (mut stress, mut state, mut tangent) = ([nan; 6], [nan; NSTATE], [nan; 36]);
-    let (mut dsdt, mut energy, mut outcome) = ([nan; 6], [nan; 2], Outcome::default());
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
-        stress0: &stress0,
-        state0: &state0,
-        time: [0.0, 1.0],
-        increment: 2,
-        want_tangent: true,
+    let mut z = Point {
+        props: cx(&p.props).try_into().unwrap(),
+        strain: cx(&p.strain).try_into().unwrap(),
+        dstrain: cx(&p.dstrain).try_into().unwrap(),
+        stress0: cx(&p.stress0).try_into().unwrap(),
+        state0: cx(&p.state0).try_into().unwrap(),
+        stress: [nan; 6],
+        state: [nan; NSTATE],
+        tangent: [nan; 36],
+        dstress_dtemp: [nan; 6],
+        energy: [nan; 2],
+        outcome: Outcome::default(),
     };
-    let mut output = CallOutput {
-        stress: &mut stress,
-        state: &mut state,
-        tangent: &mut tangent,
-        dstress_dtemp: &mut dsdt,
-        energy: &mut energy,
-        outcome: &mut outcome,
-    };
+    z.dstrain[0].im = 1e-30;
+    let (input, mut output) = z.io([Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)], 2, true);
     r.complex()
         .expect("the twin was built")
         .call_complex(&input, &mut output)
@@ -305,7 +304,7 @@ fn the_complex_twin_is_guarded_too() {
     assert!(f.to_string().contains("complex-step twin"), "{f}");
     // The complex step still gives the tangent column in the imaginary part.
     let c = elastic_stiffness(E, NU);
-    assert!((stress[0].im / 1e-30 - c[0]).abs() <= 1e-9 * c[0]);
+    assert!((z.stress[0].im / 1e-30 - c[0]).abs() <= 1e-9 * c[0]);
 }
 
 const OVERLONG_MESSAGE_C: &str = r#"

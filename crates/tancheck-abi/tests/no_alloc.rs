@@ -3,48 +3,12 @@
 
 mod common;
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::cell::Cell;
-
 use common::*;
 use num_complex::Complex64;
 use tancheck_core::{CallInput, CallOutput, Caller, Outcome};
 
-struct Counting;
-
-thread_local! {
-    static ALLOCATIONS: Cell<usize> = const { Cell::new(0) };
-}
-
-fn count() {
-    let _ = ALLOCATIONS.try_with(|c| c.set(c.get() + 1));
-}
-
-// SAFETY: forwards to the system allocator; counting touches only a const thread-local.
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
-        count();
-        unsafe { System.alloc(l) }
-    }
-    unsafe fn alloc_zeroed(&self, l: Layout) -> *mut u8 {
-        count();
-        unsafe { System.alloc_zeroed(l) }
-    }
-    unsafe fn realloc(&self, p: *mut u8, l: Layout, new: usize) -> *mut u8 {
-        count();
-        unsafe { System.realloc(p, l, new) }
-    }
-    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
-        unsafe { System.dealloc(p, l) }
-    }
-}
-
-#[global_allocator]
-static GLOBAL: Counting = Counting;
-
-fn allocations() -> usize {
-    ALLOCATIONS.with(Cell::get)
-}
+tancheck_testkit::counting_allocator!();
+use tancheck_testkit::alloc::allocations;
 
 #[test]
 fn the_counter_counts() {

@@ -28,10 +28,11 @@ pub struct DemoArgs {
     pub verbose: bool,
 }
 
-const C_SOURCES: [(&str, &str); 3] = [
+const C_SOURCES: [(&str, &str); 4] = [
     ("elastic.c", include_str!("../../../fortran-shim/examples/c/elastic.c")),
     ("j2.c", include_str!("../../../fortran-shim/examples/c/j2.c")),
     ("j2_energy.h", include_str!("../../../fortran-shim/examples/c/j2_energy.h")),
+    ("j2_return_map.h", include_str!("../../../fortran-shim/examples/c/j2_return_map.h")),
 ];
 const FORTRAN_SOURCES: [(&str, &str); 3] = [
     ("elastic.F90", include_str!("../../../fortran-shim/examples/fortran/elastic.F90")),

@@ -118,31 +118,31 @@ impl J2 {
 }
 
 /// Material constants of one call.
-struct Props<S> {
-    lambda: S,
-    mu: S,
+pub(crate) struct Props<S> {
+    pub(crate) lambda: S,
+    pub(crate) mu: S,
     sy0: S,
     h_iso: S,
     q: S,
     b: S,
-    h_kin: S,
+    pub(crate) h_kin: S,
 }
 
 impl<S: Scalar> Props<S> {
     /// Yield stress K(α) = σy0 + H_iso α + Q (1 − exp(−b α)).
     #[inline]
-    fn yield_stress(&self, alpha: S) -> S {
+    pub(crate) fn yield_stress(&self, alpha: S) -> S {
         self.sy0 + self.h_iso * alpha + self.q * (S::one() - (-self.b * alpha).exp())
     }
     /// K'(α) = H_iso + Q b exp(−b α).
     #[inline]
-    fn hardening_slope(&self, alpha: S) -> S {
+    pub(crate) fn hardening_slope(&self, alpha: S) -> S {
         self.h_iso + self.q * self.b * (-self.b * alpha).exp()
     }
 }
 
 /// Read and check the properties; the message says which one is wrong.
-fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
+pub(crate) fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     let (e, nu, sy0, h_iso, q, b, h_kin) = (p[0], p[1], p[2], p[3], p[4], p[5], p[6]);
     if !positive(e.re()) {
         return Err("j2: E (properties[0]) must be positive");
@@ -248,14 +248,10 @@ impl Model for J2 {
         }
         output.state[n] = alpha;
 
-        let slope = p.hardening_slope(alpha);
-        let base = S::one() / ((slope + p.h_kin) / (p.mu * 3.0) + 1.0);
+        let hardening = p.hardening_slope(alpha) + p.h_kin;
         let (theta, theta_bar) = match self.tangent {
-            J2Tangent::Consistent => {
-                let theta = S::one() - two_mu * dgamma / norm;
-                (theta, base - (S::one() - theta))
-            }
-            J2Tangent::Continuum => (S::one(), base),
+            J2Tangent::Consistent => consistent_moduli(p.mu, hardening, dgamma, norm),
+            J2Tangent::Continuum => (S::one(), continuum_ratio(p.mu, hardening)),
         };
         let c = return_tangent(kappa, two_mu, theta, theta_bar, &nrm);
         write_tangent(&c, slots, output.tangent);
@@ -365,6 +361,21 @@ pub(crate) fn radial_return<S: Scalar>(
         };
     }
     None
+}
+
+/// θ̄ of the continuum elastoplastic tangent (θ = 1): 1/(1 + (K' + H_kin)/(3μ)), with
+/// `hardening` = K'(α_{n+1}) + H_kin (Simo & Hughes 1998, ch. 3).
+#[inline]
+pub(crate) fn continuum_ratio<S: Scalar>(mu: S, hardening: S) -> S {
+    S::one() / (hardening / (mu * 3.0) + 1.0)
+}
+
+/// θ = 1 − 2μΔγ/‖ξ_tr‖ and θ̄ = 1/(1 + (K' + H_kin)/(3μ)) − (1 − θ) of the consistent tangent
+/// (Simo & Taylor 1985; Simo & Hughes 1998, Box 3.2), `hardening` = K'(α_{n+1}) + H_kin.
+#[inline]
+pub(crate) fn consistent_moduli<S: Scalar>(mu: S, hardening: S, dgamma: S, norm: S) -> (S, S) {
+    let theta = S::one() - mu * 2.0 * dgamma / norm;
+    (theta, continuum_ratio(mu, hardening) - (S::one() - theta))
 }
 
 /// The tangent of a radial return in canonical order (engineering shear strain):

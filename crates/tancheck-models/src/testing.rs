@@ -1,8 +1,7 @@
 //! Test support: one call of a model with owned arrays, in any scalar type, and the
-//! derivative of the stress by forward-mode dual numbers (num-dual) or the complex step.
+//! derivative of the stress by forward-mode dual numbers (num-dual) or the complex step (both
+//! from tancheck-testkit).
 
-use num_complex::Complex64;
-use num_dual::Dual64;
 use tancheck_core::{CallInput, CallOutput, Convention, Fault, Model, Outcome, Scalar};
 
 /// The real inputs of one call.
@@ -99,58 +98,30 @@ pub(crate) fn run_scalar<S: Scalar, M: Model>(
     Ok(out)
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
 /// One real call.
 pub(crate) fn run<M: Model>(m: &M, p: &Point) -> Result<Out<f64>, Fault> {
     run_scalar(m, &p.props, &p.strain, &p.dstrain, &p.stress0, &p.state0)
 }
 
+/// The call as tancheck-testkit's (293.15 K, as [`run_scalar`]).
+fn testkit_call(p: &Point) -> tancheck_testkit::call::Call {
+    tancheck_testkit::call::Call::new(&p.props, p.strain.len(), p.state0.len())
+        .strain(&p.strain)
+        .dstrain(&p.dstrain)
+        .stress0(&p.stress0)
+        .state0(&p.state0)
+        .temp(293.15, 0.0)
+}
+
 /// ∂σ/∂Δε by num-dual: one call per column j with Δεⱼ carrying the unit dual part.
 /// Column-major like a routine tangent. Also returns the branch of each call.
 pub(crate) fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let mut branches = Vec::with_capacity(n);
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = run_scalar(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0), &lift(&p.state0))
-            .expect("dual call");
-        assert_eq!(out.outcome.status, 0, "dual call failed: {}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-        branches.push(out.outcome.branch);
-    }
-    (t, branches)
+    tancheck_testkit::call::dual_tangent(m, &testkit_call(p))
 }
 
 /// ∂σ/∂Δε by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998).
 pub(crate) fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = run_scalar(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0), &lift(&p.state0))
-            .expect("complex call");
-        assert_eq!(out.outcome.status, 0, "complex call failed: {}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    t
+    tancheck_testkit::call::model_complex_tangent(m, &testkit_call(p), h)
 }
 
 /// Relative errors of a tangent against a reference, in Mandel form (so the Frobenius norm

@@ -7,16 +7,17 @@ use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::{provides, status};
-use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Model, PointKind, Scalar};
 use tancheck_models::cohesive::{branch, mode_mix};
 use tancheck_models::{AnyModel, Cohesive, CohesiveFlaw};
+use tancheck_testkit::call::{model_allocations, model_call, model_complex_tangent, Call};
 
 // ---------------------------------------------------------------------------------------
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::ALLOCATIONS;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -36,97 +37,28 @@ impl Point {
     }
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    dtemp: Vec<S>,
-    energy: [S; 2],
-    outcome: Outcome,
+impl Point {
+    /// The call (stress0 zero: the total-form model does not read it), 20 °C.
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), 2)
+            .strain(&self.strain)
+            .dstrain(&self.dstrain)
+            .state0(&self.state0)
+    }
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar, M: Model>(m: &M, props: &[S], strain: &[S], dstrain: &[S], state0: &[S]) -> Out<S> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let stress0 = vec![nan; n]; // not read by a total-form model
-    let mut out = Out {
-        stress: vec![nan; n],
-        state: vec![nan; 2],
-        tangent: vec![nan; n * n],
-        dtemp: vec![nan; n],
-        energy: [nan; 2],
-        outcome: Outcome::default(),
-    };
-    let input = CallInput {
-        props,
-        strain,
-        dstrain,
-        temp: [S::cst(20.0), S::zero()],
-        stress0: &stress0,
-        state0,
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut out.state,
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut out.dtemp,
-        energy: &mut out.energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Out<f64> {
-    eval(m, &p.props, &p.strain, &p.dstrain, &p.state0)
+fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
 }
 
 /// ∂t/∂Δδ by num-dual (column-major), and the branch of every dual call.
 fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let mut branches = Vec::new();
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.state0));
-        assert_eq!(out.outcome.status, 0, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-        branches.push(out.outcome.branch);
-    }
-    (t, branches)
+    tancheck_testkit::call::dual_tangent(m, &p.call())
 }
 
 /// ∂t/∂Δδ by the complex step (Squire & Trapp 1998).
 fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.state0));
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    t
+    model_complex_tangent(m, &p.call(), h)
 }
 
 fn norm(v: impl Iterator<Item = f64>) -> f64 {
@@ -266,7 +198,7 @@ fn branches_change_at_the_printed_separations() {
 /// Drive a proportional path δ = s·dir (s from 0 to s_end in `steps` increments) and return
 /// the work ∫ t·dδ by the trapezoid rule and the last outputs; the energy balance and the
 /// monotone damage are checked at every step.
-fn proportional_path(kind: PointKind, dir: &[f64], s_end: f64, steps: usize) -> (f64, Out<f64>) {
+fn proportional_path(kind: PointKind, dir: &[f64], s_end: f64, steps: usize) -> (f64, Outputs<f64>) {
     let m = Cohesive::new(kind).unwrap();
     let n = kind.ncomp();
     let mut state = [0.0, 0.0];
@@ -680,44 +612,9 @@ fn flawed_variants_are_wrong_where_they_should_be_only() {
 
 // ---------------------------------------------------------------------------------------
 
-fn allocations() -> usize {
-    ALLOCATIONS.with(|c| c.get())
-}
-
 fn count_allocations<S: Scalar>(m: &Cohesive, p: &Point) -> (usize, i32) {
-    let n = p.strain.len();
-    let (props, strain, dstrain, state0) =
-        (lift::<S>(&p.props), lift::<S>(&p.strain), lift::<S>(&p.dstrain), lift::<S>(&p.state0));
-    let stress0 = vec![S::zero(); n];
-    let nan = S::cst(f64::NAN);
-    let (mut stress, mut state, mut tangent, mut dtemp) =
-        (vec![nan; n], vec![nan; 2], vec![nan; n * n], vec![nan; n]);
-    let mut energy = [nan; 2];
-    let mut outcome = Outcome::default();
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [S::zero(); 2],
-        stress0: &stress0,
-        state0: &state0,
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let before = allocations();
-    for _ in 0..5 {
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut state,
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-    }
-    (allocations() - before, outcome.branch)
+    let (made, outcome) = model_allocations::<S, _>(m, &p.call().temp(0.0, 0.0), 5);
+    (made, outcome.branch)
 }
 
 // One call allocates nothing, in every branch, every flaw, every scalar type, and on the

@@ -5,12 +5,13 @@
 //! of Rudnicki & Rice (1975) (REFERENCES.md, "Localization"), and the failed status of a step
 //! whose softening would take the yield stress to zero.
 
-use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
-use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Model, PointKind};
 use tancheck_models::J2;
+use tancheck_testkit::call::{model_call, Call};
 
 #[derive(Clone, Debug)]
 struct Point {
@@ -20,75 +21,20 @@ struct Point {
     state0: Vec<f64>,
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    outcome: Outcome,
+impl Point {
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), self.state0.len()).strain(&self.strain).state0(&self.state0)
+    }
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar>(m: &J2, props: &[S], strain: &[S], dstrain: &[S], state0: &[S]) -> Out<S> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let stress0 = vec![nan; n]; // total form: not read
-    let mut out = Out {
-        stress: vec![nan; n],
-        state: vec![nan; state0.len()],
-        tangent: vec![nan; n * n],
-        outcome: Outcome::default(),
-    };
-    let (mut dtemp, mut energy) = (vec![nan; n], [nan; 2]);
-    let input = CallInput {
-        props,
-        strain,
-        dstrain,
-        temp: [S::cst(20.0), S::zero()],
-        stress0: &stress0,
-        state0,
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut out.state,
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut dtemp,
-        energy: &mut energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
-fn run(m: &J2, p: &Point) -> Out<f64> {
-    eval(m, &p.props, &p.strain, &p.dstrain, &p.state0)
+/// One real call (stress0 zero: the total form does not read it).
+fn run(m: &J2, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
 }
 
 /// ∂σ/∂Δε by num-dual (column-major), and the branch of each call.
 fn dual_tangent(m: &J2, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let mut branches = Vec::new();
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.state0));
-        assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-        branches.push(out.outcome.branch);
-    }
-    (t, branches)
+    tancheck_testkit::call::dual_tangent(m, &p.call().dstrain(&p.dstrain))
 }
 
 /// Relative Mandel–Frobenius error (the fourth-order tensor's norm) of a tangent.
@@ -261,7 +207,7 @@ fn uniaxial_stress_step(
     strain: &[f64; 6],
     state: &[f64],
     d11: f64,
-) -> ([f64; 6], Out<f64>) {
+) -> ([f64; 6], Outputs<f64>) {
     let nu = props[1];
     let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
     for _ in 0..40 {

@@ -14,7 +14,7 @@ use tancheck_models::johnson_cook::JcLaw;
 use tancheck_models::{AnyModel, JcTangent, JohnsonCook};
 
 mod common;
-use common::ALLOCATIONS;
+use common::allocations;
 
 /// 4340 steel of REFERENCES.md (read, secondary copies): A 792 MPa, B 510 MPa, n 0.26,
 /// C 0.014, m 1.03, T_m 1793 K; D1..D5 = 0.05, 3.44, −2.12, 0.002, 0.61. E, ν, T_r, the
@@ -466,7 +466,7 @@ fn no_call_allocates() {
             (vec![S::zero(); n], vec![S::zero(); p.state0.len()], vec![S::zero(); n * n], vec![S::zero(); n]);
         let mut energy = [S::zero(); 2];
         let mut outcome = Outcome::default();
-        let before = ALLOCATIONS.with(|c| c.get());
+        let before = allocations();
         let input = CallInput {
             props: &props,
             strain: &strain,
@@ -487,7 +487,7 @@ fn no_call_allocates() {
             outcome: &mut outcome,
         };
         m.evaluate(&input, &mut output).unwrap();
-        ALLOCATIONS.with(|c| c.get()) - before
+        allocations() - before
     }
     let mut rng = StdRng::seed_from_u64(7);
     for kind in JohnsonCook::KINDS {

@@ -16,7 +16,7 @@ use tancheck_models::{Elastic, Orthotropic};
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::ALLOCATIONS;
+use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -512,10 +512,6 @@ fn bad_properties_fail_with_a_message() {
     }
     assert!(Orthotropic::new(PointKind::PlaneStress).is_err());
     assert!(Orthotropic::new(PointKind::Cohesive3d).is_err());
-}
-
-fn allocations() -> usize {
-    ALLOCATIONS.with(|c| c.get())
 }
 
 /// Allocations made by 10 evaluations in scalar type `S` (buffers made beforehand).

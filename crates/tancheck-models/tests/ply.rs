@@ -15,7 +15,7 @@ use tancheck_models::ply::{branch, mode};
 use tancheck_models::{Ply, PlyFlaw};
 
 mod common;
-use common::ALLOCATIONS;
+use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // Properties.
@@ -601,7 +601,7 @@ fn no_call_allocates_and_bad_input_is_refused() {
     let mut outcome = Outcome::default();
     let mut bad = p.props.clone();
     bad[24] = 1e6; // snaps back: the message is formatted without allocating
-    let before = ALLOCATIONS.with(|c| c.get());
+    let before = allocations();
     for props in [&p.props, &bad] {
         let input = CallInput {
             props,
@@ -624,7 +624,7 @@ fn no_call_allocates_and_bad_input_is_refused() {
         };
         m.evaluate(&input, &mut output).unwrap();
     }
-    assert_eq!(ALLOCATIONS.with(|c| c.get()) - before, 0);
+    assert_eq!(allocations() - before, 0);
     assert_eq!(outcome.status, status::FAILED);
     // Out-of-plane axes in plane stress, a negative strength, a negative viscosity.
     for (k, v, words) in [(11, 0.5, "1-2 plane"), (17, -1.0, "strengths"), (25, -1.0, "viscosity")] {

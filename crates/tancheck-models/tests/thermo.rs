@@ -15,7 +15,7 @@ use tancheck_models::{AnyModel, Thermo, ThermoFlaw};
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::ALLOCATIONS;
+use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -531,10 +531,6 @@ fn dtemp_sign_flaw_is_wrong_in_dtemp_only() {
 }
 
 // ---------------------------------------------------------------------------------------
-
-fn allocations() -> usize {
-    ALLOCATIONS.with(|c| c.get())
-}
 
 fn count_allocations<S: Scalar>(m: &Thermo, p: &Point) -> usize {
     let n = p.strain.len();

@@ -5,8 +5,6 @@
 //! 48:101–118 and Simo & Hughes (1998), Box 3.2 (REFERENCES.md, "J2 plasticity"); elastic
 //! constants follow REFERENCES.md "Relations".
 
-use std::cell::Cell;
-
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
@@ -809,45 +807,15 @@ fn every_zoo_entry_builds_for_its_kinds() {
 }
 
 mod common;
-use common::ALLOCATIONS;
+use tancheck_testkit::call::{model_allocations, Call};
 
 /// Allocations made by ten calls of `m` in scalar type S (buffers made beforehand).
 fn allocations_of<S: Scalar>(m: &ZooModel, props: &[f64], dstrain: &[f64]) -> usize {
     let info = m.info();
-    let n = info.convention.ncomp();
-    let (props, dstrain) = (lift::<S>(props), lift::<S>(dstrain));
-    let zeros = vec![S::zero(); n];
-    let state0 = vec![S::zero(); info.nstate];
-    let nan = S::cst(f64::NAN);
-    let (mut stress, mut state, mut tangent, mut dtemp) =
-        (vec![nan; n], vec![nan; info.nstate], vec![nan; n * n], vec![nan; n]);
-    let mut energy = [nan; 2];
-    let mut outcome = Outcome::default();
-    let input = CallInput {
-        props: &props,
-        strain: &zeros,
-        dstrain: &dstrain,
-        temp: [S::zero(); 2],
-        stress0: &zeros,
-        state0: &state0,
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let before = ALLOCATIONS.with(Cell::get);
-    for _ in 0..10 {
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut state,
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-    }
+    let c = Call::new(props, info.convention.ncomp(), info.nstate).dstrain(dstrain).temp(0.0, 0.0);
+    let (made, outcome) = model_allocations::<S, _>(m, &c, 10);
     assert_eq!(outcome.status, 0);
-    ALLOCATIONS.with(Cell::get) - before
+    made
 }
 
 // DEVELOPERS.md: one routine call is the hot path and does not allocate, on either branch,

@@ -61,11 +61,8 @@
 #include "tancheck_routine.h"
 
 #include "j2_energy.h"
+#include "j2_return_map.h"
 
-enum { ZJ_E, ZJ_NU, ZJ_SIGMA_Y0, ZJ_H_ISO, ZJ_Q, ZJ_B, ZJ_H_KIN, ZJ_NPROP };
-
-#define ZJ_MAX_ITER 50
-#define ZJ_STEP_TOL 1e-14
 #define ZJ_UNIT_FACTOR 1000.0
 
 typedef enum {
@@ -97,80 +94,17 @@ typedef enum {
 #define ZJ_REAL_ONLY_SQRT(x) sqrt(x)
 #endif
 
-/* K(alpha) = sigma_y0 + H_iso alpha + Q (1 - exp(-b alpha)). */
-static tc_real zj_yield(const tc_real *properties, tc_real alpha)
+/* |xi| as j2_norm makes it, or broken on purpose for the two twin flaws. */
+static tc_real zj_norm(zj_flaw flaw, int n, const tc_real *xi)
 {
-    return properties[ZJ_SIGMA_Y0] + properties[ZJ_H_ISO] * alpha +
-           properties[ZJ_Q] * (1.0 - tc_exp(-properties[ZJ_B] * alpha));
-}
-
-/* K'(alpha) = H_iso + Q b exp(-b alpha). */
-static tc_real zj_yield_slope(const tc_real *properties, tc_real alpha)
-{
-    return properties[ZJ_H_ISO] + properties[ZJ_Q] * properties[ZJ_B] * tc_exp(-properties[ZJ_B] * alpha);
-}
-
-static void zj_fail(tc_report *report, const char *name, const char *text)
-{
-    report->status = TC_STATUS_FAILED;
-    const char *parts[3] = {name, ": ", text};
-    int k = 0;
-    for (int p = 0; p < 3; ++p) {
-        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
-            report->message[k++] = *c;
-        }
+    if (flaw != ZJ_TWIN_CONJUGATE && flaw != ZJ_TWIN_REAL_SQRT) {
+        return j2_norm(n, xi);
     }
-    report->message[k] = '\0';
-}
-
-/*
- * Relative stress xi = dev(sigma) - beta of the elastic strain eps - eps_p (dstrain added when
- * given), with sigma = kappa tr(eps_e) 1 + 2 mu dev(eps_e); also sigma itself. Returns |xi|.
- * Each shear component stands for two equal tensor components in the norm.
- */
-static tc_real zj_relative_stress(zj_flaw flaw, int n, tc_real mu, tc_real kappa,
-                                  const tc_real *strain, const tc_real *dstrain,
-                                  const tc_real *eps_p, const tc_real *beta, tc_real *sigma,
-                                  tc_real *xi)
-{
-    tc_real eps_e[6];
-    for (int i = 0; i < n; ++i) {
-        eps_e[i] = strain[i] - eps_p[i];
-        if (dstrain != 0) {
-            eps_e[i] = strain[i] + dstrain[i] - eps_p[i];
-        }
-        if (i >= 3) {
-            eps_e[i] = 0.5 * eps_e[i];
-        }
-    }
-    const tc_real trace = eps_e[0] + eps_e[1] + eps_e[2];
     tc_real norm2 = 0.0;
     for (int i = 0; i < n; ++i) {
-        tc_real s = i < 3 ? 2.0 * mu * (eps_e[i] - trace / 3.0) : 2.0 * mu * eps_e[i];
-        sigma[i] = i < 3 ? kappa * trace + s : s;
-        xi[i] = s - beta[i];
         norm2 += (i < 3 ? 1.0 : 2.0) * xi[i] * (flaw == ZJ_TWIN_CONJUGATE ? ZJ_CONJ(xi[i]) : xi[i]);
     }
     return flaw == ZJ_TWIN_REAL_SQRT ? ZJ_REAL_ONLY_SQRT(norm2) : tc_sqrt(norm2);
-}
-
-/* C = kappa 1(x)1 + 2 mu theta (I - 1/3 1(x)1) - 2 mu theta_bar n(x)n in Voigt form with
- * engineering-shear columns (Simo & Hughes 1998, Box 3.2): a shear column holds C_ijkl,
- * I_klkl = 1/2 for k != l. Column-major. */
-static void zj_matrix(int n, tc_real kappa, tc_real mu, tc_real theta, tc_real theta_bar,
-                      const tc_real *n_dir, tc_real *tangent)
-{
-    for (int j = 0; j < n; ++j) {
-        for (int i = 0; i < n; ++i) {
-            tc_real c = 0.0;
-            if (i < 3 && j < 3) {
-                c = kappa + 2.0 * mu * theta * ((i == j ? 1.0 : 0.0) - 1.0 / 3.0);
-            } else if (i == j) {
-                c = mu * theta;
-            }
-            tangent[i + j * n] = c - 2.0 * mu * theta_bar * n_dir[i] * n_dir[j];
-        }
-    }
 }
 
 static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const tc_real *properties,
@@ -182,36 +116,37 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     const int nj2 = 2 * n + 1;
     const int nstate = flaw == ZJ_STALE ? nj2 + 2 : flaw == ZJ_REVERSAL ? nj2 + n : nj2;
     if (needs_3d ? n != 6 : (n != 6 && n != 4)) {
-        zj_fail(report, name, needs_3d ? "ncomp must be 6" : "ncomp must be 6 or 4");
+        j2_fail_as(report, name, needs_3d ? "ncomp must be 6" : "ncomp must be 6 or 4");
         return;
     }
-    if (call->nproperties < ZJ_NPROP) {
-        zj_fail(report, name, "needs 7 properties [E, nu, sy0, H_iso, Q, b, H_kin]");
+    if (call->nproperties < J2_NPROP) {
+        j2_fail_as(report, name, "needs 7 properties [E, nu, sy0, H_iso, Q, b, H_kin]");
         return;
     }
     if (call->nstate < nstate) {
-        zj_fail(report, name,
-                flaw == ZJ_STALE      ? "needs 2*ncomp+3 state variables [eps_p, alpha, beta, 1-theta, theta_bar]"
-                : flaw == ZJ_REVERSAL ? "needs 3*ncomp+1 state variables [eps_p, alpha, beta, n_last]"
-                                      : "needs 2*ncomp+1 state variables [eps_p, alpha, beta]");
+        j2_fail_as(report, name,
+                   flaw == ZJ_STALE      ? "needs 2*ncomp+3 state variables [eps_p, alpha, beta, 1-theta, theta_bar]"
+                   : flaw == ZJ_REVERSAL ? "needs 3*ncomp+1 state variables [eps_p, alpha, beta, n_last]"
+                                         : "needs 2*ncomp+1 state variables [eps_p, alpha, beta]");
         return;
     }
 
     const double sqrt23 = sqrt(2.0 / 3.0);
-    const tc_real e = properties[ZJ_E];
-    const tc_real nu = properties[ZJ_NU];
-    const tc_real h_kin = properties[ZJ_H_KIN];
+    const tc_real e = properties[J2_E];
+    const tc_real nu = properties[J2_NU];
+    const tc_real h_kin = properties[J2_H_KIN];
     const tc_real mu = e / (2.0 * (1.0 + nu));
     const tc_real kappa = e / (3.0 * (1.0 - 2.0 * nu));
     const tc_real *eps_p_n = state0;
     const tc_real alpha_n = state0[n];
     const tc_real *beta_n = state0 + n + 1;
 
-    /* Trial state (Simo & Hughes 1998, Box 3.2). */
+    /* Trial state and trial yield function (j2_return_map.h). */
     tc_real sigma_tr[6];
     tc_real xi[6];
-    const tc_real norm = zj_relative_stress(flaw, n, mu, kappa, strain, dstrain, eps_p_n, beta_n, sigma_tr, xi);
-    const tc_real f_trial = norm - sqrt23 * zj_yield(properties, alpha_n);
+    j2_trial(n, mu, kappa, strain, dstrain, eps_p_n, beta_n, sigma_tr, xi);
+    const tc_real norm = zj_norm(flaw, n, xi);
+    const tc_real f_trial = norm - sqrt23 * j2_yield(properties, alpha_n);
 
     tc_real n_dir[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
     tc_real theta = 1.0;
@@ -231,55 +166,21 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         }
         report->branch = 0;
     } else {
-        /* Return map: Newton on
-         *   g(dg) = |xi_tr| - (2 mu + 2/3 H_kin) dg - sqrt(2/3) K(alpha_n + sqrt(2/3) dg) = 0
-         * from dg = 0; after the step that meets the tolerance, one more step. */
-        const tc_real c_lin = 2.0 * mu + (2.0 / 3.0) * h_kin;
-        tc_real dgamma = 0.0;
-        int iter = 0;
-        int converged = 0;
-        for (;;) {
-            const tc_real alpha = alpha_n + sqrt23 * dgamma;
-            const tc_real g = norm - c_lin * dgamma - sqrt23 * zj_yield(properties, alpha);
-            const tc_real g_slope = -c_lin - (2.0 / 3.0) * zj_yield_slope(properties, alpha);
-            const tc_real step = -g / g_slope;
-            dgamma += step;
-            ++iter;
-            if (converged) {
-                break;
-            }
-            if (fabs(tc_re(step)) <= ZJ_STEP_TOL * tc_re(norm) / (2.0 * tc_re(mu))) {
-                converged = 1;
-            } else if (iter >= ZJ_MAX_ITER) {
-                break;
-            }
-        }
-
+        /* The radial return of j2.c; the flaw "no kinematic" drops H_kin from theta_bar. */
+        tc_real dgamma;
+        const int converged = j2_newton(properties, norm, mu, h_kin, alpha_n, &dgamma);
         const tc_real alpha_new = alpha_n + sqrt23 * dgamma;
-        for (int i = 0; i < n; ++i) {
-            n_dir[i] = xi[i] / norm;
-            stress[i] = sigma_tr[i] - 2.0 * mu * dgamma * n_dir[i];
-            state[i] = eps_p_n[i] + (i < 3 ? 1.0 : 2.0) * dgamma * n_dir[i];
-            state[n + 1 + i] = beta_n[i] + (2.0 / 3.0) * h_kin * dgamma * n_dir[i];
-        }
-        state[n] = alpha_new;
-
-        /* Consistent moduli (Simo & Taylor 1985; Simo & Hughes 1998, Box 3.2):
-         *   theta = 1 - 2 mu dg / |xi_tr|,
-         *   theta_bar = 1 / (1 + (K' + H_kin) / (3 mu)) - (1 - theta);
-         * the flaw "no kinematic" drops H_kin from theta_bar. */
-        const tc_real k_slope = zj_yield_slope(properties, alpha_new);
-        const tc_real h_tangent = flaw == ZJ_NO_KINEMATIC ? k_slope : k_slope + h_kin;
-        theta = 1.0 - 2.0 * mu * dgamma / norm;
-        theta_bar = 1.0 / (1.0 + h_tangent / (3.0 * mu)) - (1.0 - theta);
+        j2_radial_update(n, mu, h_kin, norm, dgamma, sigma_tr, xi, state0, n_dir, stress, state);
+        const tc_real k_slope = j2_yield_slope(properties, alpha_new);
+        j2_moduli(1, mu, flaw == ZJ_NO_KINEMATIC ? k_slope : k_slope + h_kin, dgamma, norm, &theta, &theta_bar);
         report->branch = 1;
         plastic = 1;
         if (!converged) {
-            zj_fail(report, name, "return map did not converge in 50 Newton iterations");
+            j2_fail_as(report, name, "return map did not converge in 50 Newton iterations");
         }
     }
 
-    zj_matrix(n, kappa, mu, theta, theta_bar, n_dir, tangent);
+    j2_matrix(n, kappa, mu, theta, theta_bar, n_dir, tangent);
 
     switch (flaw) {
     case ZJ_SHEAR_FACTOR:
@@ -306,7 +207,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     case ZJ_ELASTIC_FIRST_PLASTIC:
         if (plastic && tc_re(alpha_n) == 0.0) {
             const tc_real zero[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
-            zj_matrix(n, kappa, mu, tc_cst(1.0), tc_cst(0.0), zero, tangent);
+            j2_matrix(n, kappa, mu, tc_cst(1.0), tc_cst(0.0), zero, tangent);
         }
         break;
     case ZJ_STALE: {
@@ -314,13 +215,14 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         tc_real sigma_n[6];
         tc_real xi_n[6];
         tc_real n_start[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
-        const tc_real norm_n = zj_relative_stress(flaw, n, mu, kappa, strain, 0, eps_p_n, beta_n, sigma_n, xi_n);
+        j2_trial(n, mu, kappa, strain, 0, eps_p_n, beta_n, sigma_n, xi_n);
+        const tc_real norm_n = j2_norm(n, xi_n);
         if (tc_re(norm_n) > 0.0) {
             for (int i = 0; i < n; ++i) {
                 n_start[i] = xi_n[i] / norm_n;
             }
         }
-        zj_matrix(n, kappa, mu, 1.0 - state0[nj2], state0[nj2 + 1], n_start, tangent);
+        j2_matrix(n, kappa, mu, 1.0 - state0[nj2], state0[nj2 + 1], n_start, tangent);
         state[nj2] = plastic ? 1.0 - theta : tc_cst(0.0);
         state[nj2 + 1] = plastic ? theta_bar : tc_cst(0.0);
         break;
@@ -346,7 +248,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
                 dot += (i < 3 ? 1.0 : 2.0) * n_dir[i] * state0[nj2 + i];
             }
             if (tc_re(dot) < 0.0) {
-                zj_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
+                j2_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
             }
             for (int i = 0; i < n; ++i) {
                 state[nj2 + i] = n_dir[i];
@@ -362,12 +264,12 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         break;
     case ZJ_PLASTIC_SIGN:
         if (plastic) {
-            zj_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
+            j2_matrix(n, kappa, mu, theta, -theta_bar, n_dir, tangent);
         }
         break;
     case ZJ_TERM_MISSING:
         if (plastic) {
-            zj_matrix(n, kappa, mu, theta, tc_cst(0.0), n_dir, tangent);
+            j2_matrix(n, kappa, mu, theta, tc_cst(0.0), n_dir, tangent);
         }
         break;
     case ZJ_RANK_TWO:
@@ -384,7 +286,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         break;
     case ZJ_TWIN_REAL_SQRT:
     case ZJ_TWIN_CONJUGATE:
-        break; /* in the norm of zj_relative_stress */
+        break; /* in the norm of zj_norm */
     }
     if (report->status != TC_STATUS_FAILED) {
         report->status = TC_STATUS_OK;

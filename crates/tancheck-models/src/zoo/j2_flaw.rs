@@ -3,13 +3,12 @@
 //!
 //! Every variant calls the consistent [`J2`] model for stress, state and tangent, then
 //! changes the tangent only. Where a flaw needs a quantity of the return map (the flow
-//! direction n, the hardening slope, θ), it is recomputed from the call's inputs and outputs
-//! with the same formulas as J2 (Simo & Hughes 1998, Box 3.2):
+//! direction n, the hardening slope, θ), it comes from J2's own pieces (crate::j2: the
+//! properties, `trial_state`, `consistent_moduli`, `return_tangent`; Simo & Hughes 1998,
+//! Box 3.2) applied to the call's inputs and outputs:
 //!
-//! - n = ξ_tr/‖ξ_tr‖, ξ_tr = dev C:(ε + Δε − εp_n) − β_n, the same operations as J2's trial
-//!   state, so n has the same bits;
-//! - Δγ = (α_{n+1} − α_n)/√(2/3), θ = 1 − 2μΔγ/‖ξ_tr‖, θ̄ = 1/(1 + (K' + H_kin)/(3μ)) − (1 − θ)
-//!   with K' = K'(α_{n+1}).
+//! - n = ξ_tr/‖ξ_tr‖ from J2's trial state, so n has the same bits as J2's;
+//! - Δγ = (α_{n+1} − α_n)/√(2/3), θ and θ̄ from J2's consistent moduli with K' = K'(α_{n+1}).
 //!
 //! Two variants change the state layout: `j2-stale` appends two entries (see
 //! [`J2Flaw::Stale`]) and `j2-reversal` appends ncomp (see [`J2Flaw::Reversal`]).
@@ -20,9 +19,9 @@ use tancheck_core::{
 };
 
 use crate::call::check_sizes;
+use crate::j2::{consistent_moduli, continuum_ratio, read_props, return_tangent, trial_state, Props};
 use crate::tensor::{
-    deviator, is_shear_slot, isotropic_matrix, lame, norm_sq, sqrt_2_3, strain_to_tensor, stress_to_tensor,
-    trace, write_tangent, SLOTS_4, SLOTS_6,
+    is_shear_slot, isotropic_matrix, sqrt_2_3, stress_to_tensor, write_tangent, SLOTS_4, SLOTS_6,
 };
 use crate::{ModelError, J2};
 
@@ -227,81 +226,38 @@ impl FlawedJ2 {
     }
 }
 
-/// The relative stress ξ = dev C:(ε + Δε − εp) − β in canonical tensor components, by the
-/// operations of J2's trial state (Simo & Hughes 1998, Box 3.2). Without `dstrain`, the
-/// relative stress of the start state.
-fn relative_stress<S: Scalar>(
-    lambda: S,
-    mu: S,
+/// J2's trial state with the strain increment `dstrain` (zeros: the start state): the flow
+/// direction n = ξ/‖ξ‖ (the zero tensor when ‖ξ‖ = 0), ‖ξ‖ and ξ, canonical components.
+fn flow<S: Scalar>(
+    p: &Props<S>,
     strain: &[S],
-    dstrain: Option<&[S]>,
+    dstrain: &[S],
     eps_p: &[S],
     beta: &[S],
     slots: &[usize],
-) -> [S; 6] {
-    let n = slots.len();
-    let mut v = [S::zero(); 6];
-    for i in 0..n {
-        v[i] = match dstrain {
-            Some(d) => strain[i] + d[i] - eps_p[i],
-            None => strain[i] - eps_p[i],
-        };
-    }
-    let ee = strain_to_tensor(&v[..n], slots);
-    let tr = trace(&ee);
-    let mut sigma = [S::zero(); 6];
-    for (k, s) in sigma.iter_mut().enumerate() {
-        *s = ee[k] * (mu * 2.0);
-        if k < 3 {
-            *s += lambda * tr;
-        }
-    }
-    let b = stress_to_tensor(beta, slots);
-    let dev = deviator(&sigma);
-    let mut xi = [S::zero(); 6];
-    for k in 0..6 {
-        xi[k] = dev[k] - b[k];
-    }
-    xi
-}
-
-/// ξ/‖ξ‖ and ‖ξ‖; the zero tensor when ‖ξ‖ = 0.
-fn direction<S: Scalar>(xi: &[S; 6]) -> ([S; 6], S) {
-    let norm = norm_sq(xi).sqrt_or_zero();
+) -> ([S; 6], S, [S; 6]) {
+    let (_, xi, norm) =
+        trial_state(p.lambda, p.mu, strain, dstrain, eps_p, &stress_to_tensor(beta, slots), slots);
     let mut n = [S::zero(); 6];
     if norm.re() > 0.0 {
         for k in 0..6 {
             n[k] = xi[k] / norm;
         }
     }
-    (n, norm)
+    (n, norm, xi)
 }
 
-/// C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n in canonical components (engineering-shear columns:
-/// ½ on the shear diagonal of the symmetric identity), the J2 tangent of Simo & Hughes (1998),
-/// Box 3.2.
-fn j2_matrix<S: Scalar>(kappa: S, mu: S, theta: S, theta_bar: S, nrm: &[S; 6]) -> [[S; 6]; 6] {
-    let two_mu = mu * 2.0;
-    let shear_mod = two_mu * theta;
-    let mut c = [[S::zero(); 6]; 6];
-    for (a, row) in c.iter_mut().enumerate() {
-        for (b, x) in row.iter_mut().enumerate() {
-            let mut v = -two_mu * theta_bar * nrm[a] * nrm[b];
-            if a < 3 && b < 3 {
-                v += kappa - shear_mod / 3.0;
-            }
-            if a == b {
-                v += if a < 3 { shear_mod } else { shear_mod * 0.5 };
-            }
-            *x = v;
-        }
-    }
-    c
-}
-
-/// K'(α) = H_iso + Q b exp(−b α) from the J2 properties.
-fn hardening_slope<S: Scalar>(props: &[S], alpha: S) -> S {
-    props[3] + props[4] * props[5] * (-props[5] * alpha).exp()
+/// J2's tangent C = κ 1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n (`return_tangent`) in routine order.
+fn write_j2<S: Scalar>(
+    p: &Props<S>,
+    theta: S,
+    theta_bar: S,
+    nrm: &[S; 6],
+    slots: &[usize],
+    tangent: &mut [S],
+) {
+    let kappa = p.lambda + p.mu * (2.0 / 3.0);
+    write_tangent(&return_tangent(kappa, p.mu * 2.0, theta, theta_bar, nrm), slots, tangent);
 }
 
 impl Model for FlawedJ2 {
@@ -336,12 +292,19 @@ impl Model for FlawedJ2 {
             return Ok(());
         }
         let plastic = output.outcome.branch == 1;
-        let p = input.props;
-        let (lambda, mu) = lame(p[0], p[1]);
-        let h_kin = p[6];
+        // J2 accepted the properties, so they read.
+        let Ok(p) = read_props(input.props) else { return Ok(()) };
+        let (lambda, mu, h_kin) = (p.lambda, p.mu, p.h_kin);
         let tangent = &mut *output.tangent;
         let alpha_n = input.state0[n];
         let (eps_p_n, beta_n) = (&input.state0[..n], &input.state0[n + 1..m]);
+        let trial = || flow(&p, input.strain, input.dstrain, eps_p_n, beta_n, slots);
+        // Δγ and the consistent θ, θ̄ of a plastic increment, from its end state.
+        let moduli = |norm: S, alpha: S| {
+            let dgamma = (alpha - alpha_n) / sqrt_2_3();
+            let (theta, theta_bar) = consistent_moduli(mu, p.hardening_slope(alpha) + h_kin, dgamma, norm);
+            (dgamma, theta, theta_bar)
+        };
         match self.flaw {
             J2Flaw::ShearFactor => {
                 for (j, &sj) in slots.iter().enumerate() {
@@ -369,29 +332,15 @@ impl Model for FlawedJ2 {
             J2Flaw::Stale => {
                 // The returned tangent: the moduli kept by the previous increment, with the
                 // flow direction of the start state.
-                let xi_n = relative_stress(lambda, mu, input.strain, None, eps_p_n, beta_n, slots);
-                let (n_start, _) = direction(&xi_n);
+                let zeros = [S::zero(); 6];
+                let (n_start, _, _) = flow(&p, input.strain, &zeros[..n], eps_p_n, beta_n, slots);
                 let theta_s = S::one() - input.state0[m];
-                let theta_bar_s = input.state0[m + 1];
-                let kappa = lambda + mu * (2.0 / 3.0);
-                write_tangent(&j2_matrix(kappa, mu, theta_s, theta_bar_s, &n_start), slots, tangent);
+                write_j2(&p, theta_s, input.state0[m + 1], &n_start, slots, tangent);
                 // The moduli of this increment, for the next one.
                 let (one_minus_theta, theta_bar) = if plastic {
-                    let xi_tr = relative_stress(
-                        lambda,
-                        mu,
-                        input.strain,
-                        Some(input.dstrain),
-                        eps_p_n,
-                        beta_n,
-                        slots,
-                    );
-                    let (_, norm) = direction(&xi_tr);
-                    let alpha = output.state[n];
-                    let dgamma = (alpha - alpha_n) / sqrt_2_3();
-                    let one_minus_theta = mu * 2.0 * dgamma / norm;
-                    let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + 1.0);
-                    (one_minus_theta, ratio - one_minus_theta)
+                    let (_, norm, _) = trial();
+                    let (_, theta, theta_bar) = moduli(norm, output.state[n]);
+                    (S::one() - theta, theta_bar)
                 } else {
                     (S::zero(), S::zero())
                 };
@@ -401,20 +350,9 @@ impl Model for FlawedJ2 {
             J2Flaw::NoKinematic => {
                 if plastic {
                     // θ̄ without H_kin minus θ̄ with it; the (1 − θ) parts cancel.
-                    let slope = hardening_slope(p, output.state[n]);
-                    let with_kin = S::one() / ((slope + h_kin) / (mu * 3.0) + 1.0);
-                    let without_kin = S::one() / (slope / (mu * 3.0) + 1.0);
-                    let shift = mu * 2.0 * (without_kin - with_kin);
-                    let xi_tr = relative_stress(
-                        lambda,
-                        mu,
-                        input.strain,
-                        Some(input.dstrain),
-                        eps_p_n,
-                        beta_n,
-                        slots,
-                    );
-                    let (nrm, _) = direction(&xi_tr);
+                    let slope = p.hardening_slope(output.state[n]);
+                    let shift = mu * 2.0 * (continuum_ratio(mu, slope) - continuum_ratio(mu, slope + h_kin));
+                    let (nrm, _, _) = trial();
                     for (j, &sj) in slots.iter().enumerate() {
                         for (i, &si) in slots.iter().enumerate() {
                             tangent[i + j * n] -= shift * nrm[si] * nrm[sj];
@@ -446,20 +384,13 @@ impl Model for FlawedJ2 {
             | J2Flaw::TwinConjugate
                 if plastic =>
             {
-                let xi_tr =
-                    relative_stress(lambda, mu, input.strain, Some(input.dstrain), eps_p_n, beta_n, slots);
-                let (nrm, norm) = direction(&xi_tr);
-                let alpha = output.state[n];
-                let dgamma = (alpha - alpha_n) / sqrt_2_3();
+                let (nrm, norm, xi_tr) = trial();
+                let (dgamma, theta, theta_bar) = moduli(norm, output.state[n]);
                 match self.flaw {
                     J2Flaw::PlasticSign | J2Flaw::TermMissing => {
-                        let theta = S::one() - mu * 2.0 * dgamma / norm;
-                        let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + S::one());
-                        let theta_bar = ratio - (S::one() - theta);
-                        let kappa = lambda + mu * (2.0 / 3.0);
                         let returned_bar =
                             if self.flaw == J2Flaw::TermMissing { S::zero() } else { -theta_bar };
-                        write_tangent(&j2_matrix(kappa, mu, theta, returned_bar, &nrm), slots, tangent);
+                        write_j2(&p, theta, returned_bar, &nrm, slots, tangent);
                     }
                     J2Flaw::RankTwo => {
                         let c = mu * RANK_TWO_FACTOR;
@@ -489,16 +420,7 @@ impl Model for FlawedJ2 {
             | J2Flaw::TwinConjugate => {}
             J2Flaw::Reversal => {
                 if plastic {
-                    let xi_tr = relative_stress(
-                        lambda,
-                        mu,
-                        input.strain,
-                        Some(input.dstrain),
-                        eps_p_n,
-                        beta_n,
-                        slots,
-                    );
-                    let (nrm, norm) = direction(&xi_tr);
+                    let (nrm, norm, _) = trial();
                     // n : n_last, shear entries counted twice (tensor components).
                     let mut dot = S::zero();
                     for (i, &si) in slots.iter().enumerate() {
@@ -506,13 +428,8 @@ impl Model for FlawedJ2 {
                         dot += nrm[si] * input.state0[m + i] * w;
                     }
                     if dot.re() < 0.0 {
-                        let alpha = output.state[n];
-                        let dgamma = (alpha - alpha_n) / sqrt_2_3();
-                        let theta = S::one() - mu * 2.0 * dgamma / norm;
-                        let ratio = S::one() / ((hardening_slope(p, alpha) + h_kin) / (mu * 3.0) + S::one());
-                        let theta_bar = ratio - (S::one() - theta);
-                        let kappa = lambda + mu * (2.0 / 3.0);
-                        write_tangent(&j2_matrix(kappa, mu, theta, -theta_bar, &nrm), slots, tangent);
+                        let (_, theta, theta_bar) = moduli(norm, output.state[n]);
+                        write_j2(&p, theta, -theta_bar, &nrm, slots, tangent);
                     }
                     for (i, &si) in slots.iter().enumerate() {
                         output.state[m + i] = nrm[si];
@@ -529,6 +446,7 @@ impl Model for FlawedJ2 {
 #[cfg(test)]
 mod tests {
     use super::*;
+    use crate::tensor::lame;
     use crate::testing::{run, Point};
 
     /// The worked case of REFERENCES.md (J2 plasticity): E = 200 GPa, ν = 0.3, σy0 = 250 MPa,
@@ -616,16 +534,8 @@ mod tests {
         let nrev: Vec<f64> = rev.state[13..].to_vec();
         assert!((nrev[0] + 2.0 / s6).abs() < 1e-15, "{nrev:?}");
         let norm_tr = {
-            let xi = relative_stress(
-                lame(WORKED[0], WORKED[1]).0,
-                mu,
-                &de,
-                Some(&back),
-                &first.state[..6],
-                &first.state[7..13],
-                &SLOTS_6,
-            );
-            norm_sq(&xi).sqrt()
+            let beta = stress_to_tensor(&first.state[7..13], &SLOTS_6);
+            trial_state(lame(WORKED[0], WORKED[1]).0, mu, &de, &back, &first.state[..6], &beta, &SLOTS_6).2
         };
         let theta = 1.0 - 2.0 * mu * dgamma / norm_tr;
         let theta_bar = 1.0 / (1.0 + (WORKED[3] + WORKED[6]) / (3.0 * mu)) - (1.0 - theta);

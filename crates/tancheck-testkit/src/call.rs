@@ -1,0 +1,314 @@
+//! One call of a routine with owned buffers, and the derivatives tests compare a returned
+//! tangent with: the complex step through a routine's twin (Squire & Trapp 1998) and forward
+//! dual numbers through a model (num-dual, an independent library).
+
+use num_complex::Complex64;
+use num_dual::Dual64;
+use tancheck_core::driver::Outputs;
+use tancheck_core::{CallInput, Fault, Model, Outcome, Routine, Scalar};
+
+/// The real inputs of one call, owned. [`Call::new`] starts from zero strain, increment,
+/// stress and state at 20 °C with a unit time increment.
+#[derive(Clone, Debug, PartialEq)]
+pub struct Call {
+    pub props: Vec<f64>,
+    pub strain: Vec<f64>,
+    pub dstrain: Vec<f64>,
+    pub stress0: Vec<f64>,
+    pub state0: Vec<f64>,
+    /// Temperature at the start and its increment.
+    pub temp: [f64; 2],
+    /// Time at the start and the time increment.
+    pub time: [f64; 2],
+}
+
+impl Call {
+    pub fn new(props: &[f64], ncomp: usize, nstate: usize) -> Call {
+        Call {
+            props: props.to_vec(),
+            strain: vec![0.0; ncomp],
+            dstrain: vec![0.0; ncomp],
+            stress0: vec![0.0; ncomp],
+            state0: vec![0.0; nstate],
+            temp: [20.0, 0.0],
+            time: [0.0, 1.0],
+        }
+    }
+    pub fn strain(mut self, v: &[f64]) -> Call {
+        self.strain = v.to_vec();
+        self
+    }
+    pub fn dstrain(mut self, v: &[f64]) -> Call {
+        self.dstrain = v.to_vec();
+        self
+    }
+    pub fn stress0(mut self, v: &[f64]) -> Call {
+        self.stress0 = v.to_vec();
+        self
+    }
+    pub fn state0(mut self, v: &[f64]) -> Call {
+        self.state0 = v.to_vec();
+        self
+    }
+    pub fn temp(mut self, start: f64, increment: f64) -> Call {
+        self.temp = [start, increment];
+        self
+    }
+    pub fn dtime(mut self, dt: f64) -> Call {
+        self.time[1] = dt;
+        self
+    }
+
+    /// The call's inputs (increment 1).
+    pub fn input(&self, want_tangent: bool) -> CallInput<'_, f64> {
+        CallInput {
+            props: &self.props,
+            strain: &self.strain,
+            dstrain: &self.dstrain,
+            temp: self.temp,
+            stress0: &self.stress0,
+            state0: &self.state0,
+            time: self.time,
+            increment: 1,
+            want_tangent,
+        }
+    }
+
+    /// The inputs of the same call as complex numbers with zero imaginary parts.
+    pub fn complex(&self) -> ComplexCall {
+        let z = |v: &[f64]| v.iter().map(|&x| Complex64::new(x, 0.0)).collect::<Vec<_>>();
+        ComplexCall {
+            props: z(&self.props),
+            strain: z(&self.strain),
+            dstrain: z(&self.dstrain),
+            stress0: z(&self.stress0),
+            state0: z(&self.state0),
+            temp: [Complex64::new(self.temp[0], 0.0), Complex64::new(self.temp[1], 0.0)],
+            time: self.time,
+        }
+    }
+}
+
+/// The complex inputs of one call (the twin's), owned.
+#[derive(Clone, Debug, PartialEq)]
+pub struct ComplexCall {
+    pub props: Vec<Complex64>,
+    pub strain: Vec<Complex64>,
+    pub dstrain: Vec<Complex64>,
+    pub stress0: Vec<Complex64>,
+    pub state0: Vec<Complex64>,
+    pub temp: [Complex64; 2],
+    pub time: [f64; 2],
+}
+
+impl ComplexCall {
+    pub fn input(&self, want_tangent: bool) -> CallInput<'_, Complex64> {
+        CallInput {
+            props: &self.props,
+            strain: &self.strain,
+            dstrain: &self.dstrain,
+            temp: self.temp,
+            stress0: &self.stress0,
+            state0: &self.state0,
+            time: self.time,
+            increment: 1,
+            want_tangent,
+        }
+    }
+}
+
+/// One real call into NaN-filled buffers; the fault when the routine fails.
+pub fn try_call(r: &mut dyn Routine, c: &Call) -> Result<Outputs<f64>, Fault> {
+    let mut o = Outputs::new(c.strain.len(), c.state0.len(), f64::NAN);
+    r.call(&c.input(true), &mut o.view())?;
+    Ok(o)
+}
+
+/// One real call that must succeed.
+#[track_caller]
+pub fn call(r: &mut dyn Routine, c: &Call) -> Outputs<f64> {
+    try_call(r, c).unwrap_or_else(|f| panic!("{}: {f}", r.info().name))
+}
+
+/// What a complex-step column perturbs.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Column {
+    /// The strain increment's component j.
+    Strain(usize),
+    /// The temperature increment.
+    Temperature,
+}
+
+/// One complex call through the routine's twin, outputs NaN-filled.
+pub fn try_call_complex(r: &mut dyn Routine, c: &ComplexCall) -> Result<Outputs<Complex64>, Fault> {
+    let mut o = Outputs::new(c.strain.len(), c.state0.len(), Complex64::new(f64::NAN, 0.0));
+    let twin =
+        r.complex().ok_or_else(|| Fault::Unsupported("the routine has no complex-step twin".into()))?;
+    twin.call_complex(&c.input(false), &mut o.view())?;
+    Ok(o)
+}
+
+/// The complex-step derivative Im σ(x + i h e)/h of the stress along `column`, through the
+/// routine's twin (Squire & Trapp 1998).
+#[track_caller]
+pub fn complex_column(r: &mut dyn Routine, c: &Call, column: Column, h: f64) -> Vec<f64> {
+    let mut z = c.complex();
+    match column {
+        Column::Strain(j) => z.dstrain[j].im = h,
+        Column::Temperature => z.temp[1].im = h,
+    }
+    let o = try_call_complex(r, &z).unwrap_or_else(|f| panic!("{} (complex): {f}", r.info().name));
+    o.stress.iter().map(|s| s.im / h).collect()
+}
+
+/// ‖a − b‖ / ‖b‖ (Euclidean), or ‖a − b‖ when b = 0.
+pub fn rel(a: &[f64], b: &[f64]) -> f64 {
+    let d: f64 = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
+    let n: f64 = b.iter().map(|y| y * y).sum::<f64>().sqrt();
+    if n == 0.0 {
+        d
+    } else {
+        d / n
+    }
+}
+
+/// Panics unless two calls agree: the same status, branch and `provides` bits, and stress,
+/// state, tangent (and ∂σ/∂ΔT and the energies where provided) within `tol` relative
+/// ([`rel`]; energies relative to the larger of the two).
+#[track_caller]
+pub fn assert_outputs_agree(got: &Outputs<f64>, want: &Outputs<f64>, tol: f64, what: &str) {
+    use tancheck_core::routine::provides;
+    let (g, w) = (&got.outcome, &want.outcome);
+    assert_eq!(g.status, w.status, "{what} status: {} vs {}", g.message_text(), w.message_text());
+    assert_eq!(g.branch, w.branch, "{what} branch");
+    assert_eq!(g.provides, w.provides, "{what} provides");
+    assert!(rel(&got.stress, &want.stress) <= tol, "{what} stress {:?} vs {:?}", got.stress, want.stress);
+    assert!(rel(&got.state, &want.state) <= tol, "{what} state {:?} vs {:?}", got.state, want.state);
+    assert!(rel(&got.tangent, &want.tangent) <= tol, "{what} tangent");
+    if w.provides & provides::DSTRESS_DTEMP != 0 {
+        assert!(rel(&got.dstress_dtemp, &want.dstress_dtemp) <= tol, "{what} ∂σ/∂ΔT");
+    }
+    if w.provides & provides::ENERGY != 0 {
+        let scale = want.energy[0].abs().max(want.energy[1].abs()).max(1e-12);
+        for k in 0..2 {
+            assert!((got.energy[k] - want.energy[k]).abs() <= tol * scale, "{what} energy {k}");
+        }
+    }
+}
+
+fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
+    v.iter().map(|&x| S::cst(x)).collect()
+}
+
+/// One call of a model in scalar type `S` (every input lifted from `c`, `dstrain` given),
+/// outputs NaN-filled as the checker does.
+pub fn model_call<S: Scalar, M: Model>(
+    m: &M,
+    c: &Call,
+    dstrain: &[S],
+    temp: [S; 2],
+) -> Result<Outputs<S>, Fault> {
+    let (props, strain, stress0, state0) =
+        (lift(&c.props), lift(&c.strain), lift(&c.stress0), lift(&c.state0));
+    let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
+    let input = CallInput {
+        props: &props,
+        strain: &strain,
+        dstrain,
+        temp,
+        stress0: &stress0,
+        state0: &state0,
+        time: c.time,
+        increment: 1,
+        want_tangent: true,
+    };
+    m.evaluate(&input, &mut o.view())?;
+    Ok(o)
+}
+
+/// ∂σ/∂Δε of a model by num-dual: one call per column j with Δεⱼ carrying the unit dual
+/// part. Column-major like a routine tangent; also the branch of each call.
+#[track_caller]
+pub fn dual_tangent<M: Model>(m: &M, c: &Call) -> (Vec<f64>, Vec<i32>) {
+    let n = c.strain.len();
+    let mut t = vec![0.0; n * n];
+    let mut branches = Vec::with_capacity(n);
+    let temp = [Dual64::new(c.temp[0], 0.0), Dual64::new(c.temp[1], 0.0)];
+    for j in 0..n {
+        let de: Vec<Dual64> = c
+            .dstrain
+            .iter()
+            .enumerate()
+            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
+            .collect();
+        let out = model_call(m, c, &de, temp).expect("dual call");
+        assert_eq!(out.outcome.status, 0, "dual call failed: {}", out.outcome.message_text());
+        for i in 0..n {
+            t[i + j * n] = out.stress[i].eps;
+        }
+        branches.push(out.outcome.branch);
+    }
+    (t, branches)
+}
+
+/// ∂σ/∂Δε of a model by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998), one call
+/// per column; column-major.
+#[track_caller]
+pub fn model_complex_tangent<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
+    let n = c.strain.len();
+    let mut t = vec![0.0; n * n];
+    let temp = [Complex64::new(c.temp[0], 0.0), Complex64::new(c.temp[1], 0.0)];
+    for j in 0..n {
+        let de: Vec<Complex64> = c
+            .dstrain
+            .iter()
+            .enumerate()
+            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
+            .collect();
+        let out = model_call(m, c, &de, temp).expect("complex call");
+        for i in 0..n {
+            t[i + j * n] = out.stress[i].im / h;
+        }
+    }
+    t
+}
+
+/// Allocations made by `calls` evaluations of model `m` on `c` in scalar type `S` (every
+/// buffer made beforehand, so only the calls count), and the outcome of the last call. Needs
+/// [`counting_allocator!`](crate::counting_allocator) in the test binary.
+pub fn model_allocations<S: Scalar, M: Model>(m: &M, c: &Call, calls: usize) -> (usize, Outcome) {
+    let (props, strain, dstrain) = (lift::<S>(&c.props), lift::<S>(&c.strain), lift::<S>(&c.dstrain));
+    let (stress0, state0) = (lift::<S>(&c.stress0), lift::<S>(&c.state0));
+    let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
+    let input = CallInput {
+        props: &props,
+        strain: &strain,
+        dstrain: &dstrain,
+        temp: [S::cst(c.temp[0]), S::cst(c.temp[1])],
+        stress0: &stress0,
+        state0: &state0,
+        time: c.time,
+        increment: 1,
+        want_tangent: true,
+    };
+    let before = crate::alloc::allocations();
+    for _ in 0..calls {
+        m.evaluate(&input, &mut o.view()).expect("the sizes match");
+    }
+    (crate::alloc::allocations() - before, o.outcome)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rel_is_relative_to_the_second() {
+        assert_eq!(rel(&[1.0, 1.0], &[1.0, 1.0]), 0.0);
+        assert!((rel(&[2.0, 0.0], &[1.0, 0.0]) - 1.0).abs() < 1e-15);
+        let c = Call::new(&[1.0], 2, 1).dstrain(&[1e-3, 0.0]).temp(300.0, 5.0).dtime(0.5);
+        let z = c.complex();
+        assert_eq!(z.temp[1], Complex64::new(5.0, 0.0));
+        assert_eq!(c.input(true).time, [0.0, 0.5]);
+    }
+}

@@ -1,0 +1,70 @@
+//! The bundled routines (fortran-shim/examples), compiled with their complex-step twins once
+//! per test binary: every test of a binary that asks for the same library gets the same file.
+//! Also the scratch folders and command output that tests of the tancheck binary share.
+//!
+//! A build that fails panics with the compiler's words. A test that needs gfortran or a C
+//! compiler is marked with the cfgs of the build scripts (`tancheck_no_fortran`, ...), so it
+//! never reaches a build that cannot work.
+
+use std::collections::HashMap;
+use std::path::{Path, PathBuf};
+use std::process::Output;
+use std::sync::{Arc, Mutex, OnceLock};
+
+use tancheck_abi::{build_library, BuildOptions};
+
+/// The repository's root folder.
+pub fn repo_root() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
+}
+
+/// `fortran-shim/examples`: the example routines in C (`c/`) and Fortran (`fortran/`).
+pub fn examples_dir() -> PathBuf {
+    repo_root().join("fortran-shim/examples")
+}
+
+/// A fresh folder for this test process: `<tmp>/tancheck-<pid>-<name>`, emptied first.
+pub fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap_or_else(|e| panic!("creating {}: {e}", d.display()));
+    d
+}
+
+type Cell = Arc<OnceLock<&'static Path>>;
+/// Library name → its sources and its build.
+type Built = Mutex<HashMap<String, (Vec<String>, Cell)>>;
+
+/// The library `lib<name>.so` built from `sources` (paths relative to the repository root),
+/// twins included; built on the first request of this process and shared after. Asking for
+/// the same name with other sources panics.
+pub fn build_once(name: &str, sources: &[&str]) -> &'static Path {
+    static BUILT: OnceLock<Built> = OnceLock::new();
+    let wanted: Vec<String> = sources.iter().map(|s| s.to_string()).collect();
+    let cell = {
+        let mut built = BUILT.get_or_init(Mutex::default).lock().unwrap_or_else(|e| e.into_inner());
+        let (had, cell) = built.entry(name.to_string()).or_insert_with(|| (wanted.clone(), Cell::default()));
+        assert_eq!(*had, wanted, "library {name} asked for with other sources");
+        cell.clone()
+    };
+    // Built outside the lock: libraries of other names build meanwhile; the same name waits.
+    cell.get_or_init(|| {
+        let out = scratch(&format!("lib-{name}")).join(format!("lib{name}.so"));
+        let root = repo_root();
+        build_library(&BuildOptions::new(sources.iter().map(|s| root.join(s)), &out))
+            .unwrap_or_else(|e| panic!("building {name}: {e}"));
+        Box::leak(out.into_boxed_path())
+    })
+}
+
+/// [`build_once`] with sources relative to `fortran-shim/examples` (`"c/j2.c"`).
+pub fn build_examples(name: &str, sources: &[&str]) -> &'static Path {
+    let full: Vec<String> = sources.iter().map(|s| format!("fortran-shim/examples/{s}")).collect();
+    let refs: Vec<&str> = full.iter().map(String::as_str).collect();
+    build_once(name, &refs)
+}
+
+/// Standard output then standard error of a finished command, as text.
+pub fn output_text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
