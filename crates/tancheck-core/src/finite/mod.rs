@@ -1,0 +1,16 @@
+//! Finite strain: routines driven by the deformation gradient, the measures of their stress
+//! and tangent, numerical tangents made in each measure, paths in F, the check with its own
+//! causes, and the objectivity probes.
+//!
+//! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
+//! [`check`] → [`probe`].
+
+pub mod mat3;
+pub mod measure;
+pub mod numeric;
+pub mod routine;
+
+pub use measure::{StressMeasure, TangentMeasure};
+pub use routine::{
+    FiniteInfo, FiniteInput, FiniteModel, FiniteModelRoutine, FiniteOutput, FiniteRoutine, Frame,
+};
