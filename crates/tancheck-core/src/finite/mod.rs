@@ -5,12 +5,17 @@
 //! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
 //! [`check`] → [`probe`].
 
+pub mod causes;
+pub mod check;
 pub mod mat3;
 pub mod measure;
 pub mod numeric;
+pub mod path;
 pub mod routine;
 
+pub use check::{FiniteReport, FiniteSettings};
 pub use measure::{StressMeasure, TangentMeasure};
+pub use path::{FinitePath, FinitePathSpec};
 pub use routine::{
     FiniteInfo, FiniteInput, FiniteModel, FiniteModelRoutine, FiniteOutput, FiniteRoutine, Frame,
 };
