@@ -184,7 +184,7 @@ pub fn run(
                 None => counts.push((name.to_string(), 1)),
             }
         }
-        counts.sort_by(|a, b| b.1.cmp(&a.1));
+        counts.sort_by_key(|c| std::cmp::Reverse(c.1));
         report.finding = counts.first().map(|(n, _)| n.clone());
     }
     report

@@ -102,7 +102,7 @@ impl FinitePathSpec {
         };
         for (k, f) in gradients.iter().enumerate() {
             let j = mat3::det(f);
-            if !(j > 0.0) || !j.is_finite() {
+            if j.is_nan() || j <= 0.0 || !j.is_finite() {
                 return Err(format!("deformation gradient {k} has det F = {j}; it must be positive"));
             }
         }
