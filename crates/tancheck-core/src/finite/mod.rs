@@ -11,6 +11,7 @@ pub mod mat3;
 pub mod measure;
 pub mod numeric;
 pub mod path;
+pub mod probe;
 pub mod routine;
 
 pub use check::{FiniteReport, FiniteSettings};

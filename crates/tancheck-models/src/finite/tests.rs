@@ -258,3 +258,36 @@ fn finite_zoo_rows_reach_their_findings() {
         }
     }
 }
+
+// The probes: the neo-Hookean routine is objective and its simple-shear stress monotonic
+// (σ₁₂ = μγ); the hypoelastic Jaumann routine is objective and oscillates as Dienes (1979)
+// found; the one that never applies the rotation increment fails the rigid-increment and
+// stretch-rotate probes but not the superposed one (it is objective when the whole motion is
+// rotated, which is why both probes exist).
+#[test]
+fn probes_tell_objective_from_not() {
+    use tancheck_core::finite::probe::{run_all, ProbeOptions, ShearResponse};
+    use tancheck_core::finite::FiniteModelRoutine;
+    let path = super::zoo_path().build().unwrap();
+    let props = super::ZOO_PROPERTIES;
+    let verdicts = |r: &mut dyn tancheck_core::finite::FiniteRoutine, o: &ProbeOptions| {
+        run_all(r, &props, &[], &path, o)
+            .into_iter()
+            .map(|p| (p.name, p.passed, p.summary))
+            .collect::<Vec<_>>()
+    };
+    let nh = verdicts(
+        &mut FiniteModelRoutine(NeoHookean::new(StressMeasure::Cauchy, TangentMeasure::SigmaJaumann)),
+        &ProbeOptions::default(),
+    );
+    assert!(nh.iter().all(|p| p.1), "{nh:?}");
+    let osc = ProbeOptions { shear_response: ShearResponse::Oscillating, ..Default::default() };
+    let hy = verdicts(&mut FiniteModelRoutine(HypoJaumann::new()), &osc);
+    assert!(hy.iter().all(|p| p.1), "{hy:?}");
+    let hy_default = verdicts(&mut FiniteModelRoutine(HypoJaumann::new()), &ProbeOptions::default());
+    assert!(!hy_default[3].1 && hy_default[3].2.contains("oscillates"), "{hy_default:?}");
+    let bad = verdicts(&mut FiniteModelRoutine(HypoJaumann::without_rotation()), &osc);
+    let by = |n: &str| bad.iter().find(|p| p.0 == n).unwrap().1;
+    assert!(by("rotation-superposed"), "{bad:?}");
+    assert!(!by("rotation-increment") && !by("stretch-rotate"), "{bad:?}");
+}
