@@ -98,14 +98,16 @@ pub fn diagnose(
                 continue;
             }
             convert(m, o, f1, tau, reference, &mut x);
+            let mut other = o.name().to_string();
             if m.over_j() {
                 x[..36].iter_mut().for_each(|v| *v /= j);
+                other = o.j_partner().map_or(format!("{other} divided by J"), |p| p.name().to_string());
             }
             consider(
                 "other-rate",
                 format!(
                     "the routine returns the tangent of another rate ({}) where the {} is declared; they differ by {}",
-                    o.name(),
+                    other,
                     m.describe(),
                     difference_terms(m, o)
                 ),
