@@ -28,9 +28,10 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use crate::error::BuildError;
 
 /// The routine ABI's files, as shipped with this tancheck.
-const SHIM_INCLUDE: [(&str, &str); 3] = [
+const SHIM_INCLUDE: [(&str, &str); 4] = [
     ("tancheck_routine.h", include_str!("../../../fortran-shim/include/tancheck_routine.h")),
     ("tancheck_cstep.h", include_str!("../../../fortran-shim/include/tancheck_cstep.h")),
+    ("tancheck_finite.h", include_str!("../../../fortran-shim/include/tancheck_finite.h")),
     ("tancheck_twin.inc", include_str!("../../../fortran-shim/include/tancheck_twin.inc")),
 ];
 /// The Fortran modules, in the order they must be compiled.
