@@ -42,16 +42,7 @@
 #define TC_FINITE_ABI_VERSION 1
 
 #if TC_ROUTINE_ABI_VERSION < 2
-/* Before version 2 of tancheck_routine.h, which defines them: temperature {start, increment}
- * and energy density {stored, dissipated} at the end of the increment. */
-typedef struct tc_temperature {
-    tc_real start;
-    tc_real increment;
-} tc_temperature;
-typedef struct tc_energy {
-    tc_real stored;
-    tc_real dissipated;
-} tc_energy;
+#error "tancheck_finite.h needs tancheck_routine.h version 2 (tc_temperature, tc_energy)"
 #endif
 
 #define TC_STRESS_CAUCHY 0
