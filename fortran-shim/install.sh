@@ -60,7 +60,7 @@ done
 # --- the Fortran modules -------------------------------------------------------------------
 fc=${FC:-gfortran}
 fortran=0
-for m in tancheck_routine tancheck_cstep tancheck_api; do
+for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_api; do
     install -m 0644 "$here/fortran/$m.f90" "$prefix/share/tancheck/fortran/$m.f90"
 done
 # shellcheck disable=SC2086 # FC may hold a program and leading arguments
@@ -69,7 +69,7 @@ if $fc --version >/dev/null 2>&1; then
     trap 'rm -rf "$work"' EXIT
     mkdir -p "$moddir"
     objs=()
-    for m in tancheck_routine tancheck_cstep tancheck_api; do
+    for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_api; do
         # shellcheck disable=SC2086
         $fc -O2 -fPIC -J "$work" -c "$here/fortran/$m.f90" -o "$work/$m.o"
         objs+=("$work/$m.o")

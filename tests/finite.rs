@@ -241,3 +241,55 @@ fn command_line_runs_finite_manifests() {
     let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
     assert_eq!(v["finding"], "missing-over-j");
 }
+
+fn f_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let dir = std::env::temp_dir().join(format!("tancheck-finite-test-f-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let out = dir.join("libfinite_f.so");
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/fortran/finite_nh.F90");
+        build_library(&BuildOptions::new([src], &out)).unwrap_or_else(|e| panic!("building: {e}"));
+        out
+    })
+}
+
+// The Fortran neo-Hookean routine agrees with the Rust model (stress, tangent and its twin's
+// complex-step tangent) and passes the check in each measure it implements.
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn fortran_neo_hookean_matches_the_rust_model_and_passes() {
+    let f = general_f();
+    let p = start(mat3::identity());
+    let path =
+        FinitePathSpec::Biaxial { stretch: [1.3, 0.8], increments: 2, rotation: None }.build().unwrap();
+    for sm in StressMeasure::ALL {
+        for m in [TangentMeasure::TauJaumann, TangentMeasure::SigmaJaumann, TangentMeasure::SigmaTruesdell] {
+            let lib = Library::open(f_lib()).unwrap();
+            let info = FiniteInfo {
+                name: "f_nh".into(),
+                stress: sm,
+                tangent: m,
+                frame: Frame::None,
+                nstate: 0,
+                nproperties: 2,
+            };
+            let mut fr = lib.finite_routine("f_nh", info).unwrap();
+            assert!(fr.has_complex());
+            let mut rust = FiniteModelRoutine(NeoHookean::new(sm, m));
+            let mut ws = Workspace::new(0, 2);
+            let a = ws.call_full(&mut fr, &p, &f).unwrap();
+            let b = ws.call_full(&mut rust, &p, &f).unwrap();
+            let ts = b.tangent.iter().fold(0.0_f64, |s, x| s.max(x.abs()));
+            for k in 0..36 {
+                assert!((a.tangent[k] - b.tangent[k]).abs() <= 1e-12 * ts, "{sm:?} {m:?} tangent {k}");
+            }
+            for k in 0..6 {
+                assert!((a.stress[k] - b.stress[k]).abs() <= 1e-12 * ts, "{sm:?} {m:?} stress {k}");
+            }
+            let rep = run(&mut fr, &PROPS, &[], &path, FiniteSettings::default());
+            assert_eq!(rep.verdict, Verdict::Pass, "{sm:?} {m:?}");
+            assert!(rep.increments.iter().all(|i| i.error_complex.unwrap() < 1e-12));
+        }
+    }
+}

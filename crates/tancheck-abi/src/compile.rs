@@ -35,11 +35,12 @@ const SHIM_INCLUDE: [(&str, &str); 4] = [
     ("tancheck_twin.inc", include_str!("../../../fortran-shim/include/tancheck_twin.inc")),
 ];
 /// The Fortran modules, in the order they must be compiled.
-const SHIM_MODULES: [(&str, &str); 2] = [
+const SHIM_MODULES: [(&str, &str); 3] = [
     ("tancheck_routine.f90", include_str!("../../../fortran-shim/fortran/tancheck_routine.f90")),
     ("tancheck_cstep.f90", include_str!("../../../fortran-shim/fortran/tancheck_cstep.f90")),
+    ("tancheck_finite.f90", include_str!("../../../fortran-shim/fortran/tancheck_finite.f90")),
 ];
-const SHIM_MODULE_NAMES: [&str; 2] = ["tancheck_routine", "tancheck_cstep"];
+const SHIM_MODULE_NAMES: [&str; 3] = ["tancheck_routine", "tancheck_cstep", "tancheck_finite"];
 
 /// What to build.
 #[derive(Clone, Debug, PartialEq, Eq)]
