@@ -180,6 +180,9 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
             if ok { "as it should be" } else { "NOT AS EXPECTED" }
         )?;
     }
+    drop(out);
+    all_as_expected &= crate::demo_finite::run_scenario(&dir, a.verbose)?;
+    out = crate::survive::stdout();
     for c in tancheck_core::report::CAUTIONS {
         writeln!(out, "caution: {c}")?;
     }

@@ -9,6 +9,7 @@ pub mod cmd_finite;
 pub mod cmd_packaging;
 pub mod cmd_replay;
 pub mod demo;
+pub mod demo_finite;
 pub mod finite_load;
 pub mod isolate;
 pub mod load;
