@@ -205,7 +205,7 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
-    if crate::cmd_finite::FiniteManifest::detect(&a.manifest) {
+    if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), a.quiet);
     }
     // An earlier report under the same name is replaced at once by an "incomplete" marker.
@@ -287,7 +287,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
-    if crate::cmd_finite::FiniteManifest::detect(&a.manifest) {
+    if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::probe(&a.manifest, a.json.as_deref());
     }
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;

@@ -13,7 +13,7 @@ use tancheck_abi::{build_library, BuildOptions};
 use tancheck_core::finite::check::run;
 use tancheck_core::Verdict;
 
-use crate::cmd_finite::{open, FiniteManifest};
+use crate::finite_load::{open, FiniteManifest};
 
 const SOURCE: &str = include_str!("../../../fortran-shim/examples/c/finite_nh.c");
 
