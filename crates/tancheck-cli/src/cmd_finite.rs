@@ -108,6 +108,13 @@ pub fn emit_check(report: &FiniteReport, json: Option<&FsPath>, quiet: bool) -> 
             }
         }
     }
+    if let Some(k) = report.twin_not_safe {
+        writeln!(
+            out,
+            "   the complex-step twin disagrees with the central differences from increment {k} on: \
+             it is not complex-step safe, and was set aside"
+        )?;
+    }
     if let Some(f) = &report.fault {
         writeln!(out, "   fault: {f}")?;
     }

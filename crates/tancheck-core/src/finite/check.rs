@@ -48,7 +48,8 @@ pub struct FiniteIncrement {
     pub gradient: [f64; 9],
     /// Relative error against central differences.
     pub error_central: f64,
-    /// Relative error against the complex step, with a twin.
+    /// Relative error against the complex step, with a twin (set aside when the twin
+    /// disagrees with the central differences: see `FiniteReport::twin_not_safe`).
     pub error_complex: Option<f64>,
     pub passed: bool,
     pub worst: Option<WorstEntry>,
@@ -70,6 +71,9 @@ pub struct FiniteReport {
     pub finding: Option<String>,
     /// The routine failed or crashed at this increment.
     pub fault: Option<String>,
+    /// The first increment where the twin's complex-step tangent disagreed with the central
+    /// differences (the twin was set aside there).
+    pub twin_not_safe: Option<usize>,
     pub calls: u64,
     pub complex_calls: u64,
     pub cautions: Vec<String>,
@@ -98,6 +102,7 @@ pub fn run(
         verdict: Verdict::Pass,
         finding: None,
         fault: None,
+        twin_not_safe: None,
         calls: 0,
         complex_calls: 0,
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
@@ -130,12 +135,21 @@ pub fn run(
             break;
         }
         let complex_ask = ask(Difference::ComplexStep(settings.complex_step));
-        let with_twin = twin && numeric::tangent(r, &mut ws, &start, f1, complex_ask, &mut complex).is_ok();
+        let mut with_twin =
+            twin && numeric::tangent(r, &mut ws, &start, f1, complex_ask, &mut complex).is_ok();
+        // A twin whose complex-step tangent disagrees with the central differences is not
+        // complex-step safe: set it aside and judge with the central differences.
+        let twin_gap = with_twin.then(|| rel_error(&complex, &central));
+        if twin_gap.is_some_and(|g| g > settings.tolerance) {
+            with_twin = false;
+            report.twin_not_safe.get_or_insert(k);
+        }
         let (reference, reference_ask) =
             if with_twin { (&complex, complex_ask) } else { (&central, central_ask) };
         let error_central = rel_error(&base.tangent, &central);
-        let error_complex = with_twin.then(|| rel_error(&base.tangent, &complex));
-        let error = error_complex.unwrap_or(error_central);
+        let error_complex = twin_gap.map(|_| rel_error(&base.tangent, &complex));
+        let error_judged = if with_twin { error_complex } else { None };
+        let error = error_judged.unwrap_or(error_central);
         let passed = error <= settings.tolerance && base.tangent.iter().all(|x| x.is_finite());
         let worst = (0..n * n)
             .max_by(|&a, &b| {
@@ -186,6 +200,9 @@ pub fn run(
         }
         counts.sort_by_key(|c| std::cmp::Reverse(c.1));
         report.finding = counts.first().map(|(n, _)| n.clone());
+    } else if report.twin_not_safe.is_some() {
+        report.verdict = Verdict::TwinNotSafe;
+        report.finding = Some("twin-not-complex-step-safe".into());
     }
     report
 }

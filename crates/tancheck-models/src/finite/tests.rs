@@ -291,3 +291,42 @@ fn probes_tell_objective_from_not() {
     assert!(by("rotation-superposed"), "{bad:?}");
     assert!(!by("rotation-increment") && !by("stretch-rotate"), "{bad:?}");
 }
+
+// A twin that is not complex-step safe (here it halves the derivative part of its stress,
+// as a twin that drops an imaginary part in one term would) is set aside: the check judges
+// with central differences, passes the tangent, and says the twin is not safe (exit 4).
+#[test]
+fn a_broken_twin_is_set_aside() {
+    use num_complex::Complex64;
+    use tancheck_core::finite::check::run;
+    use tancheck_core::finite::{FiniteInfo, FiniteModelRoutine, FiniteRoutine, FiniteSettings};
+    use tancheck_core::{Fault, Verdict};
+    struct Broken(FiniteModelRoutine<NeoHookean>);
+    impl FiniteRoutine for Broken {
+        fn info(&self) -> &FiniteInfo {
+            self.0.info()
+        }
+        fn call(&mut self, i: &FiniteInput<'_, f64>, o: &mut FiniteOutput<'_, f64>) -> Result<(), Fault> {
+            self.0.call(i, o)
+        }
+        fn has_complex(&self) -> bool {
+            true
+        }
+        fn call_complex(
+            &mut self,
+            i: &FiniteInput<'_, Complex64>,
+            o: &mut FiniteOutput<'_, Complex64>,
+        ) -> Result<(), Fault> {
+            self.0.call_complex(i, o)?;
+            o.stress.iter_mut().for_each(|z| z.im *= 0.5);
+            Ok(())
+        }
+    }
+    let path = super::zoo_path().build().unwrap();
+    let mut r =
+        Broken(FiniteModelRoutine(NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann)));
+    let rep = run(&mut r, &super::ZOO_PROPERTIES, &[], &path, FiniteSettings::default());
+    assert_eq!(rep.verdict, Verdict::TwinNotSafe, "{rep:?}");
+    assert_eq!(rep.twin_not_safe, Some(1));
+    assert!(rep.increments.iter().all(|i| i.passed));
+}
