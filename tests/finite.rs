@@ -56,8 +56,9 @@ fn c_lib() -> &'static Path {
         let dir = std::env::temp_dir().join(format!("tancheck-finite-test-{}", std::process::id()));
         std::fs::create_dir_all(&dir).unwrap();
         let out = dir.join("libfinite_c.so");
-        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/finite_nh.c");
-        build_library(&BuildOptions::new([src], &out)).unwrap_or_else(|e| panic!("building: {e}"));
+        let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+        let srcs = [root.join("finite_nh.c"), root.join("finite_hypo.c")];
+        build_library(&BuildOptions::new(srcs, &out)).unwrap_or_else(|e| panic!("building: {e}"));
         out
     })
 }
@@ -291,5 +292,58 @@ fn fortran_neo_hookean_matches_the_rust_model_and_passes() {
             assert_eq!(rep.verdict, Verdict::Pass, "{sm:?} {m:?}");
             assert!(rep.increments.iter().all(|i| i.error_complex.unwrap() < 1e-12));
         }
+    }
+}
+
+// The C hypoelastic Jaumann routine: its tangent passes the check (tau-jaumann, Jaumann
+// frame), it agrees with the Rust model, it is objective, and it oscillates in simple shear
+// as Dienes (1979) found; the variant that never applies the rotation increment passes the
+// tangent check but fails the rigid-increment and stretch-rotate probes.
+#[test]
+fn c_hypoelastic_routine_and_its_rotation_flaw() {
+    use tancheck::core::finite::probe::{run_all, ProbeOptions, ShearResponse};
+    use tancheck::models::finite::HypoJaumann;
+    let lib = Library::open(c_lib()).unwrap();
+    let info = |s: &str| FiniteInfo {
+        name: s.into(),
+        stress: StressMeasure::Kirchhoff,
+        tangent: TangentMeasure::TauJaumann,
+        frame: Frame::Jaumann,
+        nstate: 0,
+        nproperties: 2,
+    };
+    let path = FinitePathSpec::SimpleShear {
+        amount: 0.8,
+        increments: 4,
+        rotation: Some(tancheck::core::finite::path::Superposed { axis: [1.0, 0.0, 1.0], angle: 0.7 }),
+    }
+    .build()
+    .unwrap();
+    let opts = ProbeOptions { shear_response: ShearResponse::Oscillating, ..Default::default() };
+    for (symbol, objective) in [("c_hypo", true), ("c_hypo_no_rotation", false)] {
+        let mut r = lib.finite_routine(symbol, info(symbol)).unwrap();
+        let rep = run(&mut r, &PROPS, &[], &path, FiniteSettings::default());
+        assert_eq!(rep.verdict, Verdict::Pass, "{symbol}");
+        let probes = run_all(&mut r, &PROPS, &[], &path, &opts);
+        let by = |n: &str| probes.iter().find(|p| p.name == n).unwrap().passed;
+        assert!(by("rotation-superposed"), "{symbol}");
+        assert_eq!(by("rotation-increment"), objective, "{symbol}");
+        assert_eq!(by("stretch-rotate"), objective, "{symbol}");
+        assert_eq!(by("simple-shear"), objective, "{symbol}");
+    }
+    // against the Rust model at a stressed start
+    let mut c = lib.finite_routine("c_hypo", info("c_hypo")).unwrap();
+    let mut rust = FiniteModelRoutine(HypoJaumann::new());
+    let mut p = start(general_f());
+    p.stress0 = [120.0, -40.0, 15.0, 30.0, -25.0, 60.0];
+    let f1 = mat3::add(&p.f0, &[[0.02, 0.05, -0.01], [0.03, -0.015, 0.02], [-0.02, 0.01, 0.01]]);
+    let mut ws = Workspace::new(0, 2);
+    let a = ws.call_full(&mut c, &p, &f1).unwrap();
+    let b = ws.call_full(&mut rust, &p, &f1).unwrap();
+    for k in 0..6 {
+        assert!((a.stress[k] - b.stress[k]).abs() < 1e-10, "stress {k}");
+    }
+    for k in 0..36 {
+        assert!((a.tangent[k] - b.tangent[k]).abs() < 1e-9, "tangent {k}");
     }
 }

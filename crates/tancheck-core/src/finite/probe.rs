@@ -106,6 +106,7 @@ fn walk(
         s.stress0 = res.stress;
         s.state0 = res.state;
     }
+    s.increment += 1;
     starts.push(s);
     Ok(starts)
 }
@@ -191,8 +192,9 @@ fn superposed(
             };
             let m = e.max(es).max(ee);
             if m > ROTATION_TOLERANCE {
+                let state = if s.state0.is_empty() { String::new() } else { format!(", state {es:.2e}") };
                 details.push(format!(
-                    "increment {}, rotation {angle} rad: stress {e:.2e}, state {es:.2e}, energy {ee:.2e}",
+                    "increment {}, rotation {angle} rad: stress {e:.2e}{state}, energy {ee:.2e}",
                     k + 1
                 ));
             }
@@ -229,8 +231,9 @@ fn increment(
                 / norm(&s.state0).max(1e-300);
             let m = e.max(es);
             if m > ROTATION_TOLERANCE {
+                let state = if s.state0.is_empty() { String::new() } else { format!(", state {es:.2e}") };
                 details.push(format!(
-                    "rigid increment of {angle} rad after increment {}: stress {e:.2e}, state {es:.2e}",
+                    "rigid increment of {angle} rad after increment {}: stress {e:.2e}{state}",
                     s.increment - 1
                 ));
             }
