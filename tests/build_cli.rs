@@ -132,6 +132,6 @@ fn extra_fortran_flags_reach_every_fortran_compilation() {
     let (so, se) = out(&o);
     assert_eq!(o.status.code(), Some(0), "{so}{se}");
     let f_lines: Vec<&str> = so.lines().filter(|l| l.contains(" -c ")).collect();
-    assert_eq!(f_lines.len(), 4, "two modules, the routine and its twin:\n{so}");
+    assert_eq!(f_lines.len(), 5, "three modules (routine, cstep, finite), the routine and its twin:\n{so}");
     assert!(f_lines.iter().all(|l| l.contains("-Wall -Wextra")), "{so}");
 }

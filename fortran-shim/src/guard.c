@@ -107,6 +107,24 @@ typedef struct tc_guard_args {
     int32_t reserved;
 } tc_guard_args;
 
+/* tc_guard_args.reserved of a finite-strain call (tancheck_finite.h): `call` then points at a
+ * tc_finite_call, and the arrays are properties, f0, f1 (in strain, dstrain), temperature,
+ * stress0, state0, stress, state, tangent, rotation (in dstress_dtemp), energy, report. */
+#define TC_GUARD_LAYOUT_FINITE 1
+
+/* The leading fields of tc_finite_call (tancheck_finite.h), mirrored here so that the guard
+ * does not depend on that header; tc_guard_layout reports its size for the Rust side. */
+typedef struct guard_finite_call {
+    int32_t abi_version, nstate, nproperties, increment, flags;
+    int32_t stress_measure, tangent_measure, frame, ntangent, reserved;
+    double time, dtime;
+} guard_finite_call;
+
+static inline const guard_finite_call *finite_call_of(const tc_guard_args *a) {
+    return (a != NULL && a->reserved == TC_GUARD_LAYOUT_FINITE) ? (const guard_finite_call *)(const void *)a->call
+                                                                : NULL;
+}
+
 /* How a guarded call ended. Mirrored by GuardResult in guard.rs. */
 typedef struct tc_guard_result {
     int32_t caught; /* 0: the routine returned; 1: a signal ended the call */
@@ -218,7 +236,9 @@ static int tc_armed(void) { return __atomic_load_n(&watch_phase, __ATOMIC_RELAXE
 static inline void watch_enter(const tc_guard_args *a, int complex_call) {
     __atomic_store_n(&current_args, a, __ATOMIC_RELAXED);
     __atomic_store_n(&current_complex, complex_call, __ATOMIC_RELAXED);
-    __atomic_store_n(&current_increment, a->call != NULL ? a->call->increment : -1, __ATOMIC_RELAXED);
+    const guard_finite_call *fc = finite_call_of(a);
+    __atomic_store_n(&current_increment,
+                     fc != NULL ? fc->increment : (a->call != NULL ? a->call->increment : -1), __ATOMIC_RELAXED);
     __atomic_fetch_add(&calls_begun, 1, __ATOMIC_RELEASE);
 }
 
@@ -339,7 +359,8 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     const int increment = __atomic_load_n(&current_increment, __ATOMIC_RELAXED);
     const tc_guard_args *a = running ? __atomic_load_n(&current_args, __ATOMIC_RELAXED) : NULL;
     const int cx = __atomic_load_n(&current_complex, __ATOMIC_RELAXED);
-    const tc_call *c = a != NULL ? a->call : NULL;
+    const guard_finite_call *fc = finite_call_of(a);
+    const tc_call *c = (a != NULL && fc == NULL) ? a->call : NULL;
     const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label : lw_label;
 
     /* When, in words (kept in its own buffer: it goes into the text and the JSON). */
@@ -350,6 +371,11 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     } else if (running && c != NULL) {
         put("during a call of increment ");
         put_int(c->increment);
+        if (cx) put(" (the complex-step twin)");
+        if (in_call == 0) put(", from another thread of the routine");
+    } else if (running && fc != NULL) {
+        put("during a finite-strain call of increment ");
+        put_int(fc->increment);
         if (cx) put(" (the complex-step twin)");
         if (in_call == 0) put(", from another thread of the routine");
     } else if (phase == TC_PHASE_REPORTING) {
@@ -395,6 +421,22 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put_array(a->temp, 2, cx);
         put("\n");
     }
+    if (fc != NULL) {
+        put("   the inputs of that call (increment ");
+        put_int(fc->increment);
+        put(cx ? ", real parts" : "");
+        put("):\n     F0 (column-major) ");
+        put_array(a->strain, 9, cx);
+        put("\n     F1 (column-major) ");
+        put_array(a->dstrain, 9, cx);
+        put("\n     stress0  ");
+        put_array(a->stress0, 6, cx);
+        put("\n     state0   ");
+        put_array(a->state0, fc->nstate, cx);
+        put("\n     properties ");
+        put_array(a->props, fc->nproperties, cx);
+        put("\n");
+    }
     put("   verdict: FAULT (exit ");
     put_int(status);
     put(")");
@@ -416,7 +458,7 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put(", \"signal\": ");
         if (sig > 0) put_int(sig); else put("null");
         put(", \"increment\": ");
-        if (c != NULL) put_int(c->increment); else if (increment >= 0) put_int(increment); else put("null");
+        if (c != NULL) put_int(c->increment); else if (fc != NULL) put_int(fc->increment); else if (increment >= 0) put_int(increment); else put("null");
         put(", \"calls\": ");
         put_int((long long)begun);
         put(", \"call\": ");
@@ -443,6 +485,25 @@ static void last_words(int status, int sig, int in_call, const char *what) {
             put_real(c->time);
             put(", \"dtime\": ");
             put_real(c->dtime);
+            put("}");
+        } else if (fc != NULL) {
+            put("{\"increment\": ");
+            put_int(fc->increment);
+            put(cx ? ", \"perturbation\": \"complex-step twin (real parts)\"" : ", \"perturbation\": null");
+            put(", \"properties\": ");
+            put_array(a->props, fc->nproperties, cx);
+            put(", \"f0\": ");
+            put_array(a->strain, 9, cx);
+            put(", \"f1\": ");
+            put_array(a->dstrain, 9, cx);
+            put(", \"stress0\": ");
+            put_array(a->stress0, 6, cx);
+            put(", \"state0\": ");
+            put_array(a->state0, fc->nstate, cx);
+            put(", \"time\": ");
+            put_real(fc->time);
+            put(", \"dtime\": ");
+            put_real(fc->dtime);
             put("}");
         } else {
             put("null");
@@ -974,6 +1035,67 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
 TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, tc_temperature, tc_energy, 0)
 TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double,
                     tc_guard_temperature_cx, tc_guard_energy_cx, 1)
+
+/* ---- the finite-strain trampolines (tancheck_finite.h) ------------------------------ */
+
+typedef void (*tc_guard_finite_fn)(const void *call, const double *properties, const double *f0,
+                                   const double *f1, const double *rotation, const void *temperature,
+                                   const double *stress0, const double *state0, double *stress,
+                                   double *state, double *tangent, void *energy, tc_report *report);
+typedef void (*tc_guard_finite_cx_fn)(const void *call, const _Complex double *properties,
+                                      const _Complex double *f0, const _Complex double *f1,
+                                      const _Complex double *rotation, const void *temperature,
+                                      const _Complex double *stress0, const _Complex double *state0,
+                                      _Complex double *stress, _Complex double *state,
+                                      _Complex double *tangent, void *energy, tc_report *report);
+
+/* The same as TC_GUARD_TRAMPOLINE, with the finite-strain argument list; `a->reserved` must be
+ * TC_GUARD_LAYOUT_FINITE (the last words then print F0 and F1). */
+#define TC_GUARD_FINITE_TRAMPOLINE(NAME, FN_T, REAL_T, IS_COMPLEX)                               \
+    int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                         \
+        guard_thread *t = &tc_thread;                                                            \
+        if (!t->prepared) prepare_thread(t);                                                     \
+        sigjmp_buf *const outer_jump = t->jump;                                                  \
+        const sig_atomic_t outer_inside = t->inside;                                             \
+        const char *const outer_label = t->label;                                                \
+        const int traps = a->fp_traps != 0;                                                      \
+        sigjmp_buf here;                                                                         \
+        watch_enter(a, IS_COMPLEX);                                                              \
+        memset(r, 0, sizeof *r);                                                                 \
+        const guard_fp fp = fp_enter(traps);                                                     \
+        if (sigsetjmp(here, 0) == 0) {                                                           \
+            t->label = a->label;                                                                 \
+            t->jump = &here;                                                                     \
+            GUARD_FENCE();                                                                       \
+            t->inside = 1;                                                                       \
+            GUARD_FENCE();                                                                       \
+            fn((const void *)a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,       \
+               (const REAL_T *)a->dstrain, (const REAL_T *)a->dstress_dtemp, a->temp,            \
+               (const REAL_T *)a->stress0, (const REAL_T *)a->state0, (REAL_T *)a->stress,       \
+               (REAL_T *)a->state, (REAL_T *)a->tangent, a->energy, a->report);                  \
+            GUARD_FENCE();                                                                       \
+            t->inside = 0;                                                                       \
+            GUARD_FENCE();                                                                       \
+        } else {                                                                                 \
+            fill_caught(t, r);                                                                   \
+        }                                                                                        \
+        fp_leave(traps, r->caught, fp);                                                          \
+        watch_leave();                                                                           \
+        t->jump = outer_jump;                                                                    \
+        t->label = outer_label;                                                                  \
+        GUARD_FENCE();                                                                           \
+        t->inside = outer_inside;                                                                \
+        return r->caught;                                                                        \
+    }
+
+TC_GUARD_FINITE_TRAMPOLINE(tc_guard_call_finite, tc_guard_finite_fn, double, 0)
+TC_GUARD_FINITE_TRAMPOLINE(tc_guard_call_finite_complex, tc_guard_finite_cx_fn, _Complex double, 1)
+
+/* Size of the finite call header and the offset of its time field, for the Rust side. */
+void tc_guard_finite_layout(uint64_t out[2]) {
+    out[0] = sizeof(guard_finite_call);
+    out[1] = offsetof(guard_finite_call, time);
+}
 
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 

@@ -129,6 +129,14 @@ extern "C" {
     fn tc_guard_fp_traps_available() -> i32;
     fn tc_guard_call_real(f: RealFn, args: *const GuardArgs, result: *mut GuardResult) -> i32;
     fn tc_guard_call_complex(f: ComplexFn, args: *const GuardArgs, result: *mut GuardResult) -> i32;
+    fn tc_guard_call_finite(f: FiniteFn, args: *const GuardArgs, result: *mut GuardResult) -> i32;
+    fn tc_guard_call_finite_complex(
+        f: FiniteComplexFn,
+        args: *const GuardArgs,
+        result: *mut GuardResult,
+    ) -> i32;
+    #[cfg(test)]
+    fn tc_guard_finite_layout(out: *mut u64);
     #[cfg(test)]
     fn tc_guard_layout(out: *mut u64);
     #[cfg(test)]
@@ -404,6 +412,84 @@ pub(crate) unsafe fn call_real(f: RealFn, args: &GuardArgs) -> Result<(), Crash>
     } else {
         Err(Crash::from_result(&r))
     }
+}
+
+/// A finite-strain routine's entry point (`tc_finite_fn` of tancheck_finite.h, real).
+pub type FiniteFn = unsafe extern "C" fn(
+    call: *const c_void,
+    properties: *const f64,
+    f0: *const f64,
+    f1: *const f64,
+    rotation: *const f64,
+    temperature: *const c_void,
+    stress0: *const f64,
+    state0: *const f64,
+    stress: *mut f64,
+    state: *mut f64,
+    tangent: *mut f64,
+    energy: *mut c_void,
+    report: *mut Outcome,
+);
+
+/// The finite-strain twin's entry point (`tc_real` = `double _Complex`).
+pub type FiniteComplexFn = unsafe extern "C" fn(
+    call: *const c_void,
+    properties: *const Complex64,
+    f0: *const Complex64,
+    f1: *const Complex64,
+    rotation: *const Complex64,
+    temperature: *const c_void,
+    stress0: *const Complex64,
+    state0: *const Complex64,
+    stress: *mut Complex64,
+    state: *mut Complex64,
+    tangent: *mut Complex64,
+    energy: *mut c_void,
+    report: *mut Outcome,
+);
+
+/// `tc_guard_args.reserved` of a finite-strain call (`TC_GUARD_LAYOUT_FINITE`).
+pub(crate) const LAYOUT_FINITE: i32 = 1;
+
+/// Call a finite-strain routine through the guard; `args` in the finite layout (properties,
+/// f0, f1 in strain and dstrain, the rotation in dstress_dtemp, `reserved` = LAYOUT_FINITE).
+///
+/// # Safety
+/// `f` must have the finite-strain real signature and every pointer of `args` the length
+/// its `tc_finite_call` announces.
+pub(crate) unsafe fn call_finite(f: FiniteFn, args: &GuardArgs) -> Result<(), Crash> {
+    let mut r = GuardResult::default();
+    // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
+    let caught = unsafe { tc_guard_call_finite(f, args, &mut r) };
+    if caught == 0 {
+        Ok(())
+    } else {
+        Err(Crash::from_result(&r))
+    }
+}
+
+/// As [`call_finite`], for the complex-step twin.
+///
+/// # Safety
+/// As [`call_finite`], with complex arrays.
+pub(crate) unsafe fn call_finite_complex(f: FiniteComplexFn, args: &GuardArgs) -> Result<(), Crash> {
+    let mut r = GuardResult::default();
+    // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
+    let caught = unsafe { tc_guard_call_finite_complex(f, args, &mut r) };
+    if caught == 0 {
+        Ok(())
+    } else {
+        Err(Crash::from_result(&r))
+    }
+}
+
+/// Size of the finite call header and offset of its time field, as the C side sees them.
+#[cfg(test)]
+pub(crate) fn finite_layout() -> [u64; 2] {
+    let mut out = [0u64; 2];
+    // SAFETY: writes two u64.
+    unsafe { tc_guard_finite_layout(out.as_mut_ptr()) };
+    out
 }
 
 /// Call a complex-step twin through the guard.

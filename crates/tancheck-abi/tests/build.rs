@@ -20,13 +20,14 @@ fn fortran_sources_build_with_modules_and_twin() {
     let out = dir.join("lib/libexamples.so"); // the lib/ folder does not exist yet
     let opts = BuildOptions::new([fortran_example("elastic.F90"), fortran_example("j2.F90")], &out);
     let log = build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
-    // The two modules first, then two sources twice, then the link.
-    assert_eq!(log.commands.len(), 2 + 2 * 2 + 1, "{log}");
+    // The three modules first, then two sources twice, then the link.
+    assert_eq!(log.commands.len(), 3 + 2 * 2 + 1, "{log}");
     assert!(log.commands[0].stage.contains("tancheck_routine.f90"), "{log}");
     assert!(log.commands[1].stage.contains("tancheck_cstep.f90"), "{log}");
+    assert!(log.commands[2].stage.contains("tancheck_finite.f90"), "{log}");
     assert!(log.commands.iter().filter(|s| s.args.iter().any(|a| a == "-DTC_COMPLEX")).count() == 2, "{log}");
     assert!(log.commands.iter().all(|s| s.success));
-    assert!(log.commands[..6].iter().all(|s| s.args.iter().any(|a| a == "-cpp")), "{log}");
+    assert!(log.commands[..7].iter().all(|s| s.args.iter().any(|a| a == "-cpp")), "{log}");
     assert!(!log.build_dir.exists(), "the temporary build directory is removed");
 
     let lib = Library::open(&out).unwrap();

@@ -292,6 +292,7 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
     }
     drop(out);
     all_as_expected &= ply_scenario(&dir, f_lib.is_some(), a.verbose)?;
+    all_as_expected &= crate::demo_finite::run_scenario(&dir, a.verbose)?;
     let mut out = crate::survive::stdout();
     for c in tancheck_core::report::CAUTIONS {
         writeln!(out, "caution: {c}")?;

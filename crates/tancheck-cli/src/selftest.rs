@@ -14,6 +14,7 @@ use tancheck_core::{check, Caller, PointKind, PointState, Report, Routine, Setti
 use tancheck_models::zoo::{self, ZooEntry};
 
 mod conventions;
+mod finite;
 mod jc;
 mod ply;
 
@@ -231,6 +232,7 @@ pub fn run(verbose: bool) -> Result<i32> {
     rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     rows.extend(jc::rows(&dir, &root, fortran_available())?);
     rows.extend(ply::rows(&dir, &root, fortran_available())?);
+    rows.extend(finite::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
     writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;

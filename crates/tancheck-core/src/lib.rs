@@ -14,6 +14,7 @@ pub mod convention;
 pub mod convention_fit;
 pub mod diagnose;
 pub mod driver;
+pub mod finite;
 pub mod first_calls;
 pub mod mixed;
 pub mod path;

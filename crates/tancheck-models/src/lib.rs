@@ -20,6 +20,7 @@ pub mod bimodulus;
 mod call;
 pub mod cohesive;
 pub mod elastic;
+pub mod finite;
 pub mod j2;
 pub mod johnson_cook;
 pub mod orthotropic;

@@ -15,10 +15,12 @@ use crate::error::LoadError;
 use crate::signal_guard::{self as guard, ComplexFn, RealFn, TWIN_SUFFIX};
 
 mod file_kind;
+mod finite;
 mod routine;
 mod symbols;
 
 use file_kind::inspect;
+pub use finite::{FiniteLibraryRoutine, TcFiniteCall, FINITE_ABI_VERSION};
 pub use routine::LibraryRoutine;
 use symbols::exported_functions;
 pub(crate) use symbols::{closest, decoration_hint};

@@ -1,0 +1,316 @@
+//! One finite-strain routine of a loaded library (tancheck_finite.h) as a
+//! [`FiniteRoutine`]: every real and complex call through the guarded finite-strain
+//! trampoline of the shim (signals, floating-point traps, the process watch and its last
+//! words), with light checks of its own: inputs compared bit for bit after the call, and
+//! outputs left unwritten (still NaN). A call allocates nothing (only a finding does).
+//!
+//! Not yet here: the canary zones and the read-past-the-end check of the point routine's
+//! memory guards (`memory_guards`), which are laid out for the small-strain arrays.
+
+use std::ffi::{c_void, CString};
+
+use num_complex::Complex64;
+use tancheck_core::finite::{
+    FiniteInfo, FiniteInput, FiniteOutput, FiniteRoutine, Frame, StressMeasure, TangentMeasure,
+};
+use tancheck_core::routine::status_fault;
+use tancheck_core::{Fault, Outcome};
+
+use crate::error::LoadError;
+use crate::signal_guard::{
+    self as guard, FiniteComplexFn, FiniteFn, GuardArgs, TcCall, LAYOUT_FINITE, TWIN_SUFFIX, WANT_TANGENT,
+};
+
+use super::Library;
+
+/// `TC_FINITE_ABI_VERSION`.
+pub const FINITE_ABI_VERSION: i32 = 1;
+
+/// `struct tc_finite_call`.
+#[derive(Clone, Copy, Debug)]
+#[repr(C)]
+pub struct TcFiniteCall {
+    pub abi_version: i32,
+    pub nstate: i32,
+    pub nproperties: i32,
+    pub increment: i32,
+    pub flags: i32,
+    pub stress_measure: i32,
+    pub tangent_measure: i32,
+    pub frame: i32,
+    pub ntangent: i32,
+    pub reserved: i32,
+    pub time: f64,
+    pub dtime: f64,
+}
+
+/// `TC_STRESS_*`.
+pub fn stress_code(m: StressMeasure) -> i32 {
+    match m {
+        StressMeasure::Cauchy => 0,
+        StressMeasure::Kirchhoff => 1,
+    }
+}
+
+/// `TC_TANGENT_*`: the position in [`TangentMeasure::ALL`].
+pub fn tangent_code(m: TangentMeasure) -> i32 {
+    TangentMeasure::ALL.iter().position(|x| *x == m).unwrap_or(0) as i32
+}
+
+/// `TC_FRAME_*`.
+pub fn frame_code(f: Frame) -> i32 {
+    Frame::ALL.iter().position(|x| *x == f).unwrap_or(0) as i32
+}
+
+/// A finite-strain routine of a loaded library.
+pub struct FiniteLibraryRoutine {
+    info: FiniteInfo,
+    symbol: String,
+    real: FiniteFn,
+    twin: Option<FiniteComplexFn>,
+    label: CString,
+    _library: Library,
+    checks: bool,
+    fp_traps: bool,
+    properties_copy: Vec<f64>,
+    state0_copy: Vec<f64>,
+    complex_properties_copy: Vec<Complex64>,
+    complex_state0_copy: Vec<Complex64>,
+}
+
+impl std::fmt::Debug for FiniteLibraryRoutine {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("FiniteLibraryRoutine")
+            .field("symbol", &self.symbol)
+            .field("twin", &self.twin.is_some())
+            .finish()
+    }
+}
+
+impl Library {
+    /// The finite-strain routine exported as `symbol`, with its twin `symbol_cx` when the
+    /// library exports one. The sizes in `info` are the lengths every call passes.
+    pub fn finite_routine(&self, symbol: &str, info: FiniteInfo) -> Result<FiniteLibraryRoutine, LoadError> {
+        if symbol.is_empty() || symbol.contains('\0') {
+            return Err(LoadError::BadSymbolName {
+                symbol: symbol.into(),
+                why: if symbol.is_empty() { "it is empty" } else { "it contains a NUL byte" },
+            });
+        }
+        let real = self.lookup::<FiniteFn>(symbol).ok_or_else(|| self.missing_symbol(symbol))?;
+        let twin = self.lookup::<FiniteComplexFn>(&format!("{symbol}{TWIN_SUFFIX}"));
+        guard::prepare().map_err(|source| LoadError::Guard { source })?;
+        let label = CString::new(format!("{}:{symbol}", self.path.display()).replace('\0', " "))
+            .expect("NUL bytes were replaced");
+        let (np, ns) = (info.nproperties, info.nstate);
+        Ok(FiniteLibraryRoutine {
+            info,
+            symbol: symbol.into(),
+            real,
+            twin,
+            label,
+            _library: self.clone(),
+            checks: true,
+            fp_traps: false,
+            properties_copy: vec![0.0; np],
+            state0_copy: vec![0.0; ns],
+            complex_properties_copy: vec![Complex64::new(0.0, 0.0); np],
+            complex_state0_copy: vec![Complex64::new(0.0, 0.0); ns],
+        })
+    }
+}
+
+/// Which input changed, if any (compared bit for bit).
+fn changed<S: Copy + PartialEq>(name: &'static str, before: &[S], after: &[S]) -> Option<&'static str> {
+    // bitwise for f64 would treat NaN == NaN; inputs are finite here, so == is enough
+    (before != after).then_some(name)
+}
+
+impl FiniteLibraryRoutine {
+    /// Switch the light checks (inputs compared, unwritten outputs) on or off.
+    pub fn set_checks(&mut self, on: bool) {
+        self.checks = on;
+    }
+
+    /// Run the calls with floating-point traps (invalid, division by zero, overflow).
+    pub fn set_fp_traps(&mut self, on: bool) {
+        self.fp_traps = on;
+    }
+
+    fn tc_call(&self, input_increment: i32, time: [f64; 2]) -> TcFiniteCall {
+        TcFiniteCall {
+            abi_version: FINITE_ABI_VERSION,
+            nstate: self.info.nstate as i32,
+            nproperties: self.info.nproperties as i32,
+            increment: input_increment,
+            flags: WANT_TANGENT,
+            stress_measure: stress_code(self.info.stress),
+            tangent_measure: tangent_code(self.info.tangent),
+            frame: frame_code(self.info.frame),
+            ntangent: self.info.tangent.size() as i32,
+            reserved: 0,
+            time: time[0],
+            dtime: time[1],
+        }
+    }
+
+    fn check_lengths<S>(&self, input: &FiniteInput<'_, S>, output: &FiniteOutput<'_, S>) {
+        let n = self.info.tangent.size();
+        assert!(
+            input.properties.len() == self.info.nproperties
+                && input.state0.len() == self.info.nstate
+                && output.state.len() == self.info.nstate
+                && output.tangent.len() == n * n,
+            "call to `{}` with arrays of the wrong length",
+            self.info.name
+        );
+    }
+
+    fn args<S>(
+        &self,
+        call: &TcFiniteCall,
+        input: &FiniteInput<'_, S>,
+        output: &mut FiniteOutput<'_, S>,
+        temperature: &[S; 2],
+    ) -> GuardArgs {
+        GuardArgs {
+            call: std::ptr::from_ref(call).cast::<TcCall>(),
+            props: input.properties.as_ptr().cast(),
+            strain: input.f0.as_ptr().cast(),
+            dstrain: input.f1.as_ptr().cast(),
+            temp: temperature.as_ptr().cast(),
+            stress0: input.stress0.as_ptr().cast(),
+            state0: input.state0.as_ptr().cast(),
+            stress: output.stress.as_mut_ptr().cast(),
+            state: output.state.as_mut_ptr().cast(),
+            tangent: output.tangent.as_mut_ptr().cast(),
+            dstress_dtemp: input.rotation.as_ptr().cast::<c_void>().cast_mut(),
+            energy: output.energy.as_mut_ptr().cast(),
+            report: std::ptr::from_mut::<Outcome>(output.outcome),
+            label: self.label.as_ptr(),
+            fp_traps: i32::from(self.fp_traps),
+            reserved: LAYOUT_FINITE,
+        }
+    }
+}
+
+fn reset(o: &mut Outcome) {
+    o.status = tancheck_core::routine::status::OK;
+    o.branch = -1;
+    o.provides = 0;
+}
+
+/// Copies of the inputs made before a call: properties, state0, f0, f1, rotation, stress0.
+type InputCopies<'a, S> = (&'a [S], &'a [S], [S; 9], [S; 9], [S; 9], [S; 6]);
+
+/// After a call: an input that changed, or an output left NaN.
+fn findings<S: Copy + PartialEq>(
+    input: &FiniteInput<'_, S>,
+    output: &FiniteOutput<'_, S>,
+    copies: InputCopies<'_, S>,
+    is_nan: impl Fn(S) -> bool,
+) -> Result<(), Fault> {
+    let (p, s0, f0, f1, rot, st0) = copies;
+    let which = changed("properties", p, input.properties)
+        .or_else(|| changed("state0", s0, input.state0))
+        .or_else(|| changed("f0", &f0, input.f0))
+        .or_else(|| changed("f1", &f1, input.f1))
+        .or_else(|| changed("rotation", &rot, input.rotation))
+        .or_else(|| changed("stress0", &st0, input.stress0));
+    if let Some(w) = which {
+        return Err(Fault::Misbehaved { what: format!("wrote to its read-only input {w}") });
+    }
+    if output.outcome.status != tancheck_core::routine::status::OK {
+        return Ok(());
+    }
+    for (name, arr) in
+        [("stress", &output.stress[..]), ("state", &output.state[..]), ("tangent", &output.tangent[..])]
+    {
+        if let Some(i) = arr.iter().position(|x| is_nan(*x)) {
+            return Err(Fault::Misbehaved { what: format!("left {name}[{i}] unwritten (still NaN)") });
+        }
+    }
+    Ok(())
+}
+
+impl FiniteRoutine for FiniteLibraryRoutine {
+    fn info(&self) -> &FiniteInfo {
+        &self.info
+    }
+
+    fn call(
+        &mut self,
+        input: &FiniteInput<'_, f64>,
+        output: &mut FiniteOutput<'_, f64>,
+    ) -> Result<(), Fault> {
+        self.check_lengths(input, output);
+        reset(output.outcome);
+        let call = self.tc_call(input.increment, input.time);
+        let temperature = input.temperature;
+        if self.checks {
+            self.properties_copy.copy_from_slice(input.properties);
+            self.state0_copy.copy_from_slice(input.state0);
+        }
+        let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
+        let args = self.args(&call, input, output, &temperature);
+        // SAFETY: `real` has the finite-strain signature (looked up by its name); every array
+        // has the length `call` announces (check_lengths: properties, state; the others are
+        // fixed-size arrays), and `call`, `temperature` outlive the call.
+        unsafe { guard::call_finite(self.real, &args) }.map_err(guard::Crash::into_fault)?;
+        if self.checks {
+            findings(
+                input,
+                output,
+                (&self.properties_copy, &self.state0_copy, f0, f1, rot, st0),
+                f64::is_nan,
+            )?;
+        }
+        status_fault(output.outcome)
+    }
+
+    fn has_complex(&self) -> bool {
+        self.twin.is_some()
+    }
+
+    fn call_complex(
+        &mut self,
+        input: &FiniteInput<'_, Complex64>,
+        output: &mut FiniteOutput<'_, Complex64>,
+    ) -> Result<(), Fault> {
+        let Some(twin) = self.twin else {
+            return Err(Fault::Unsupported(format!(
+                "the library exports no complex-step twin `{}{TWIN_SUFFIX}`",
+                self.symbol
+            )));
+        };
+        self.check_lengths(input, output);
+        reset(output.outcome);
+        let call = self.tc_call(input.increment, input.time);
+        let temperature = input.temperature;
+        if self.checks {
+            self.complex_properties_copy.copy_from_slice(input.properties);
+            self.complex_state0_copy.copy_from_slice(input.state0);
+        }
+        let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
+        let args = self.args(&call, input, output, &temperature);
+        // SAFETY: as in `call`, with the twin's complex signature; Complex64 is repr(C) and
+        // laid out as C's double _Complex.
+        unsafe { guard::call_finite_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
+        if self.checks {
+            let copies = (&self.complex_properties_copy[..], &self.complex_state0_copy[..], f0, f1, rot, st0);
+            findings(input, output, copies, |z: Complex64| z.re.is_nan() || z.im.is_nan())?;
+        }
+        status_fault(output.outcome)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    // The Rust mirror of tc_finite_call has the C layout the guard's last words read.
+    #[test]
+    fn finite_call_layout_matches_c() {
+        let c = crate::signal_guard::finite_layout();
+        assert_eq!(c[0] as usize, std::mem::size_of::<super::TcFiniteCall>());
+        assert_eq!(c[1] as usize, std::mem::offset_of!(super::TcFiniteCall, time));
+    }
+}

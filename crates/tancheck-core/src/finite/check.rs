@@ -1,0 +1,208 @@
+//! The finite-strain check: walk a path in F, and at every increment compare the routine's
+//! tangent with the numerical tangent made in its declared measure (complex step with the
+//! twin, central differences always); a failing increment gets a cause from `causes`.
+
+use serde::{Deserialize, Serialize};
+
+use super::causes::{diagnose, rel_error, FiniteCause};
+use super::mat3;
+use super::numeric::{self, Ask, Difference, Start, Workspace};
+use super::path::FinitePath;
+use super::routine::FiniteRoutine;
+use crate::report::{Verdict, CAUTIONS};
+
+/// Steps and tolerance of the finite-strain check.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[serde(default, deny_unknown_fields)]
+pub struct FiniteSettings {
+    /// Step of the central differences on the perturbation of F (dimensionless).
+    pub central_step: f64,
+    /// Step of the complex step.
+    pub complex_step: f64,
+    /// Largest relative (Frobenius) error of the tangent against the best numerical one.
+    pub tolerance: f64,
+}
+
+impl Default for FiniteSettings {
+    fn default() -> Self {
+        // common practice: central step near eps^(1/3) of a unit-size F, tolerance well
+        // above its truncation and rounding error (about 1e-10 here)
+        FiniteSettings { central_step: 1e-6, complex_step: 1e-20, tolerance: 1e-6 }
+    }
+}
+
+/// The largest difference of one entry.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct WorstEntry {
+    pub row: usize,
+    pub column: usize,
+    pub returned: f64,
+    pub numerical: f64,
+}
+
+/// One increment's verdict.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FiniteIncrement {
+    pub increment: usize,
+    /// F at the end of the increment, column-major.
+    pub gradient: [f64; 9],
+    /// Relative error against central differences.
+    pub error_central: f64,
+    /// Relative error against the complex step, with a twin (set aside when the twin
+    /// disagrees with the central differences: see `FiniteReport::twin_not_safe`).
+    pub error_complex: Option<f64>,
+    pub passed: bool,
+    pub worst: Option<WorstEntry>,
+    pub cause: Option<FiniteCause>,
+}
+
+/// The report of a finite-strain check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct FiniteReport {
+    pub routine: String,
+    pub stress_measure: String,
+    pub tangent_measure: String,
+    pub frame: String,
+    pub complex_twin: bool,
+    pub settings: FiniteSettings,
+    pub increments: Vec<FiniteIncrement>,
+    pub verdict: Verdict,
+    /// The cause of most failing increments (`unexplained` when none fits).
+    pub finding: Option<String>,
+    /// The routine failed or crashed at this increment.
+    pub fault: Option<String>,
+    /// The first increment where the twin's complex-step tangent disagreed with the central
+    /// differences (the twin was set aside there).
+    pub twin_not_safe: Option<usize>,
+    pub calls: u64,
+    pub complex_calls: u64,
+    pub cautions: Vec<String>,
+}
+
+/// Check `r` along `path` from `state0` (stress zero at the start).
+pub fn run(
+    r: &mut dyn FiniteRoutine,
+    properties: &[f64],
+    state0: &[f64],
+    path: &FinitePath,
+    settings: FiniteSettings,
+) -> FiniteReport {
+    let info = r.info().clone();
+    let twin = r.has_complex();
+    let n = info.tangent.size();
+    let mut ws = Workspace::new(info.nstate, info.nproperties);
+    let mut report = FiniteReport {
+        routine: info.name.clone(),
+        stress_measure: info.stress.name().into(),
+        tangent_measure: info.tangent.name().into(),
+        frame: info.frame.name().into(),
+        complex_twin: twin,
+        settings,
+        increments: Vec::new(),
+        verdict: Verdict::Pass,
+        finding: None,
+        fault: None,
+        twin_not_safe: None,
+        calls: 0,
+        complex_calls: 0,
+        cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
+    };
+    let mut start = Start {
+        properties: properties.to_vec(),
+        f0: path.gradients[0],
+        stress0: [0.0; 6],
+        state0: state0.to_vec(),
+        temperature: [20.0, 0.0],
+        time: [0.0, 1.0],
+        increment: 1,
+    };
+    let mut central = vec![0.0; n * n];
+    let mut complex = vec![0.0; n * n];
+    for (k, f1) in path.gradients.iter().enumerate().skip(1) {
+        start.increment = k as i32;
+        start.time = [(k - 1) as f64, 1.0];
+        let base = match ws.call_full(r, &start, f1) {
+            Ok(b) => b,
+            Err(e) => {
+                report.fault = Some(format!("increment {k}: {e}"));
+                break;
+            }
+        };
+        let ask = |how| Ask { measure: info.tangent, stress: info.stress, how };
+        let central_ask = ask(Difference::Central(settings.central_step));
+        if let Err(e) = numeric::tangent(r, &mut ws, &start, f1, central_ask, &mut central) {
+            report.fault = Some(format!("increment {k}, a perturbed call: {e}"));
+            break;
+        }
+        let complex_ask = ask(Difference::ComplexStep(settings.complex_step));
+        let mut with_twin =
+            twin && numeric::tangent(r, &mut ws, &start, f1, complex_ask, &mut complex).is_ok();
+        // A twin whose complex-step tangent disagrees with the central differences is not
+        // complex-step safe: set it aside and judge with the central differences.
+        let twin_gap = with_twin.then(|| rel_error(&complex, &central));
+        if twin_gap.is_some_and(|g| g > settings.tolerance) {
+            with_twin = false;
+            report.twin_not_safe.get_or_insert(k);
+        }
+        let (reference, reference_ask) =
+            if with_twin { (&complex, complex_ask) } else { (&central, central_ask) };
+        let error_central = rel_error(&base.tangent, &central);
+        let error_complex = twin_gap.map(|_| rel_error(&base.tangent, &complex));
+        let error_judged = if with_twin { error_complex } else { None };
+        let error = error_judged.unwrap_or(error_central);
+        let passed = error <= settings.tolerance && base.tangent.iter().all(|x| x.is_finite());
+        let worst = (0..n * n)
+            .max_by(|&a, &b| {
+                let da = (base.tangent[a] - reference[a]).abs();
+                let db = (base.tangent[b] - reference[b]).abs();
+                da.total_cmp(&db)
+            })
+            .map(|e| WorstEntry {
+                row: e % n,
+                column: e / n,
+                returned: base.tangent[e],
+                numerical: reference[e],
+            });
+        let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
+        let cause = if passed {
+            None
+        } else {
+            let reference = reference.clone();
+            diagnose(r, &mut ws, &start, f1, &tau, &base.tangent, &reference, reference_ask)
+        };
+        report.increments.push(FiniteIncrement {
+            increment: k,
+            gradient: mat3::to_flat(f1),
+            error_central,
+            error_complex,
+            passed,
+            worst,
+            cause,
+        });
+        start.f0 = *f1;
+        start.stress0 = base.stress;
+        start.state0.copy_from_slice(&base.state);
+    }
+    report.calls = ws.calls;
+    report.complex_calls = ws.complex_calls;
+    let failing: Vec<&FiniteIncrement> = report.increments.iter().filter(|i| !i.passed).collect();
+    if report.fault.is_some() {
+        report.verdict = Verdict::RoutineFault;
+    } else if !failing.is_empty() {
+        report.verdict = Verdict::TangentFailure;
+        let mut counts: Vec<(String, usize)> = Vec::new();
+        for inc in &failing {
+            let name = inc.cause.as_ref().map_or("unexplained", |c| c.name.as_str());
+            match counts.iter_mut().find(|(n, _)| n == name) {
+                Some((_, c)) => *c += 1,
+                None => counts.push((name.to_string(), 1)),
+            }
+        }
+        counts.sort_by_key(|c| std::cmp::Reverse(c.1));
+        report.finding = counts.first().map(|(n, _)| n.clone());
+    } else if report.twin_not_safe.is_some() {
+        report.verdict = Verdict::TwinNotSafe;
+        report.finding = Some("twin-not-complex-step-safe".into());
+    }
+    report
+}

@@ -1,0 +1,22 @@
+//! Finite strain: routines driven by the deformation gradient, the measures of their stress
+//! and tangent, numerical tangents made in each measure, paths in F, the check with its own
+//! causes, and the objectivity probes.
+//!
+//! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
+//! [`check`] → [`probe`].
+
+pub mod causes;
+pub mod check;
+pub mod mat3;
+pub mod measure;
+pub mod numeric;
+pub mod path;
+pub mod probe;
+pub mod routine;
+
+pub use check::{FiniteReport, FiniteSettings};
+pub use measure::{StressMeasure, TangentMeasure};
+pub use path::{FinitePath, FinitePathSpec};
+pub use routine::{
+    FiniteInfo, FiniteInput, FiniteModel, FiniteModelRoutine, FiniteOutput, FiniteRoutine, Frame,
+};
