@@ -235,7 +235,8 @@ impl Probe for NewtonRate {
         r.details = details;
         r.series = solves
             .iter()
-            .filter(|s| !s.log.residuals.is_empty())
+            // One iteration is a linear response: nothing to see in a residual history.
+            .filter(|s| s.iterations() >= 2)
             .map(|s| super::ProbeSeries {
                 name: match s.order() {
                     Some(p) => format!("increment {} (order {p:.2})", s.increment),

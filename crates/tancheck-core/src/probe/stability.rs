@@ -422,7 +422,7 @@ impl Probe for Stability {
         let curve = |name: &str, f: &dyn Fn(&Assessment) -> Option<f64>| super::ProbeSeries {
             name: name.into(),
             x: "increment".into(),
-            y: "relative to the stiffness scale".into(),
+            y: name.into(),
             log_y: false,
             points: s.increments.iter().filter_map(|(k, a)| f(a).map(|v| [*k as f64, v])).collect(),
         };

@@ -400,31 +400,17 @@ pub fn probe_page(report: &SuiteReport) -> String {
             badge(r.status.word())
         );
         let _ = writeln!(o, "<p>{}</p>", esc(&r.summary));
-        if !r.series.is_empty() {
-            let caption = match r.probe.as_str() {
-                "newton" => "Residual of the mixed-control Newton solve per iteration, with the routine's \
-                             tangent (log scale); the observed order of each increment is in its legend. \
-                             The exact derivative gives order 2."
-                    .to_string(),
-                "stability" => "The smallest determinant of the acoustic tensor over directions and the \
-                                smallest eigenvalue of the tangent's symmetric part, each relative to the \
-                                stiffness scale, per increment: ellipticity is lost where the determinant \
-                                reaches zero."
-                    .to_string(),
-                "energy" => {
-                    "Energy balance along the path: the work done (trapezoid rule over each increment) \
-                             beside the stored and dissipated energies the routine reports."
-                        .to_string()
-                }
-                other => format!("Curves measured by the {other} probe."),
-            };
-            let title = match r.probe.as_str() {
-                "newton" => "Newton residual history".to_string(),
-                "stability" => "minimum acoustic-tensor determinant along the path".to_string(),
-                "energy" => "energy balance along the path".to_string(),
-                other => format!("{other} probe"),
-            };
-            o.push_str(&figure(plots::probe_series(&title, &r.series), &caption, "wide"));
+        // One plot per quantity (series that share their y axis).
+        let mut axes: Vec<&str> = Vec::new();
+        for s in &r.series {
+            if !axes.contains(&s.y.as_str()) {
+                axes.push(&s.y);
+            }
+        }
+        for y in axes {
+            let group: Vec<_> = r.series.iter().filter(|s| s.y == y).cloned().collect();
+            let (title, caption) = probe_plot_words(&r.probe, y);
+            o.push_str(&figure(plots::probe_series(&title, &group), &caption, "wide"));
         }
         if !r.details.is_empty() {
             let _ = writeln!(o, "<ul class=\"plain\">");
@@ -436,6 +422,38 @@ pub fn probe_page(report: &SuiteReport) -> String {
     }
     o.push_str(&footer(&report.tool));
     page(&format!("tancheck probes: {} — {verdict}", report.routine), &o)
+}
+
+/// The title and caption of a plot of a probe's curves of quantity `y`.
+fn probe_plot_words(probe: &str, y: &str) -> (String, String) {
+    match probe {
+        "newton" => (
+            "Newton residual history".into(),
+            "Residual of the mixed-control Newton solve per iteration with the routine's tangent (log \
+             scale), for each increment that needed more than one iteration; its observed order is in the \
+             legend. The exact derivative gives order 2."
+                .into(),
+        ),
+        "stability" if y.starts_with("min det") => (
+            "minimum acoustic-tensor determinant along the path".into(),
+            "The smallest determinant of the acoustic tensor Q(n) over directions n, relative to the \
+             stiffness scale s, per increment: ellipticity is lost where it reaches zero."
+                .into(),
+        ),
+        "stability" => (
+            "smallest eigenvalue of the tangent's symmetric part along the path".into(),
+            "The smallest eigenvalue of the tangent's symmetric part relative to the stiffness scale, per \
+             increment: negative values mean softening."
+                .into(),
+        ),
+        "energy" => (
+            "energy balance along the path".into(),
+            "The work done along the path (trapezoid rule over each increment) beside the stored and \
+             dissipated energies the routine reports."
+                .into(),
+        ),
+        other => (format!("{other} probe: {y}"), format!("Curves measured by the {other} probe.")),
+    }
 }
 
 /// What a bisection found, for [`bisect_page`]: the check it started from, the first failing

@@ -173,9 +173,16 @@ fn log_range(values: impl Iterator<Item = f64>) -> std::ops::Range<f64> {
     if !lo.is_finite() || hi <= 0.0 {
         return 1e-16..1.0;
     }
-    // Whole decades around the data.
-    let lo = 10f64.powf(lo.log10().floor() - 0.2).max(LOG_FLOOR / 10.0);
-    let hi = 10f64.powf(hi.log10().ceil() + 0.2);
+    // Whole decades around the data, at least three (fewer crowd the axis with labels
+    // inside one decade).
+    let (mut a, mut b) = (lo.log10().floor(), hi.log10().ceil());
+    if b - a < 3.0 {
+        let grow = 3.0 - (b - a);
+        a -= (grow / 2.0).ceil();
+        b += (grow / 2.0).floor();
+    }
+    let lo = 10f64.powf(a - 0.2).max(LOG_FLOOR / 10.0);
+    let hi = 10f64.powf(b + 0.4);
     lo..hi
 }
 
@@ -554,7 +561,8 @@ pub fn response_curves(report: &Report) -> Option<String> {
 pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
     let pts = || series.iter().flat_map(|s| s.points.iter());
     pts().next()?;
-    let log = series.iter().all(|s| s.log_y) && pts().all(|p| p[1] > 0.0);
+    // On a log axis, points at zero (a residual at the rounding floor) are left out.
+    let log = series.iter().all(|s| s.log_y) && pts().any(|p| p[1] > 0.0);
     let xr = lin_range(pts().map(|p| p[0]));
     let (xd, yd) = (series[0].x.clone(), series[0].y.clone());
     svg_with_legend(title, |root, legend| {
@@ -573,7 +581,12 @@ pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
                     .draw()?;
                 for (k, s) in series.iter().enumerate() {
                     let colour = CURVES[k % CURVES.len()];
-                    let p: Vec<(f64, f64)> = s.points.iter().map(|p| (p[0], p[1])).collect();
+                    let p: Vec<(f64, f64)> = s
+                        .points
+                        .iter()
+                        .filter(|p| p[0].is_finite() && p[1].is_finite() && (!log || p[1] > 0.0))
+                        .map(|p| (p[0], p[1]))
+                        .collect();
                     $chart.draw_series(LineSeries::new(p.clone(), colour.stroke_width(2)))?;
                     $chart.draw_series(p.iter().map(|&q| Circle::new(q, 3, colour.filled())))?;
                     legend.add(Mark::Line(colour), s.name.clone());
@@ -581,7 +594,7 @@ pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
             }};
         }
         if log {
-            let yr = log_range(pts().map(|p| p[1]));
+            let yr = log_range(pts().map(|p| p[1]).filter(|y| *y > 0.0));
             let mut chart = builder.build_cartesian_2d(xr.clone(), yr.log_scale())?;
             let desc = format!("{yd} (log scale)");
             body!(chart, &exp_label, desc.as_str());
