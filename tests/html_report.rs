@@ -275,7 +275,7 @@ fn the_pages_render_in_headless_chromium() {
             "entry errors",
         ],
         &shot,
-        1500,
+        1420,
     );
     render(
         probe,
@@ -288,5 +288,26 @@ fn the_pages_render_in_headless_chromium() {
         let docs = Path::new(env!("CARGO_MANIFEST_DIR")).join("docs");
         std::fs::create_dir_all(&docs).unwrap();
         std::fs::copy(&shot, docs.join("html-report.png")).unwrap();
+    }
+}
+
+#[test]
+fn an_output_folder_that_does_not_exist_is_bad_input_before_the_run() {
+    let d = out_dir();
+    let m = d.join("folder-check.json");
+    std::fs::write(&m, FAILING).unwrap();
+    for (cmd, opt) in [("check", "--html"), ("check", "--junit"), ("probe", "--html"), ("bisect", "--html")] {
+        let missing = d.join("no-such-folder").join("r.out");
+        let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+            .arg(cmd)
+            .arg(&m)
+            .arg(opt)
+            .arg(&missing)
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(2), "{cmd} {opt}: {}", text(&o));
+        let t = text(&o);
+        assert!(t.contains(&format!("{opt} {}", missing.display())) && t.contains("does not exist"), "{t}");
+        assert!(!t.contains("verdict"), "the routine did not run: {t}");
     }
 }

@@ -7,9 +7,20 @@ use std::process::Command;
 
 #[test]
 fn selftest_has_the_johnson_cook_rows_right() {
-    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("selftest").output().unwrap();
+    // The JUnit file of the same run (its validity: tests/junit_report.rs).
+    let junit = std::env::temp_dir().join(format!("tancheck-selftest-{}.xml", std::process::id()));
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("selftest")
+        .arg("--junit")
+        .arg(&junit)
+        .output()
+        .unwrap();
     let t = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
     assert_eq!(o.status.code(), Some(0), "{t}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    let _ = std::fs::remove_file(&junit);
+    assert!(xml.contains(r#"<testcase name="johnson-cook-no-rate-term" classname="selftest.C"/>"#), "{xml}");
+    assert!(!xml.contains("<failure"), "every row right: {xml}");
     // Without gfortran (cfg set by the build script) the selftest skips its Fortran rows.
     let languages: &[&str] =
         if !cfg!(tancheck_no_fortran) { &["Rust", "C", "Fortran"] } else { &["Rust", "C"] };

@@ -386,6 +386,17 @@ mod tests {
         assert!(c.worst_entry_error > 1e-4);
         assert_eq!(c.worst[0].label, "11/12");
         assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).pass);
+        // Every entry's error is kept for a failing comparison (the HTML heatmap), column-major
+        // in routine order: the wrong one is row 0 (11), column 5 (12), and only it is off.
+        assert_eq!(c.entry_errors.len(), 36);
+        assert_eq!(c.entry_errors[5 * 6], c.worst_entry_error);
+        assert!(
+            c.entry_errors.iter().enumerate().all(|(k, &e)| k == 5 * 6 || e == 0.0),
+            "{:?}",
+            c.entry_errors
+        );
+        // ... and dropped when it passes.
+        assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).entry_errors.is_empty());
     }
 
     #[test]
