@@ -54,6 +54,9 @@ enum Command {
         /// Write JUnit XML to FILE: a test case per row.
         #[arg(long, value_name = "FILE")]
         junit: Option<PathBuf>,
+        /// Write the table as an HTML page to FILE.
+        #[arg(long, value_name = "FILE")]
+        html: Option<PathBuf>,
     },
     /// Print a shell completion script (for packagers).
     #[command(hide = true)]
@@ -197,7 +200,9 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
-        Command::Selftest { verbose, junit } => crate::selftest::run_with(verbose, junit.as_deref()),
+        Command::Selftest { verbose, junit, html } => {
+            crate::selftest::run_with(verbose, junit.as_deref(), html.as_deref())
+        }
         Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
         Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };

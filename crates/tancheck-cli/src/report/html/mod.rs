@@ -10,6 +10,8 @@ use tancheck_core::probe::{ProbeStatus, SuiteReport};
 use tancheck_core::report::{CheckOutcome, IncrementResult, CAUTIONS};
 use tancheck_core::{Report, Verdict};
 
+use super::junit::KnownRow;
+
 pub mod plots;
 
 /// Failing increments shown in full (step-size curve, heatmap, worst entries); the others are
@@ -544,6 +546,63 @@ pub fn bisect_page(v: &BisectView<'_>) -> String {
     page(&format!("tancheck bisect: {}", report.routine.name), &o)
 }
 
+/// The HTML page of the selftest: every row with its expected and found finding, the wrong
+/// ones first.
+pub fn selftest_page(rows: &[KnownRow], tool: &str) -> String {
+    let mut o = String::new();
+    let wrong = rows.iter().filter(|r| !r.right).count();
+    let _ = writeln!(
+        o,
+        "<header>\n<h1>Selftest: routines with known flaws, and correct ones that must pass</h1>\n<p class=\"sub\">{}</p>\n</header>",
+        esc(tool)
+    );
+    let _ = writeln!(o, "<dl class=\"summary\">");
+    let _ = writeln!(
+        o,
+        "<dt>verdict</dt><dd>{}{} of {} rows right (exit {})</dd>",
+        badge(if wrong == 0 { "PASS" } else { "FAIL" }),
+        rows.len() - wrong,
+        rows.len(),
+        if wrong == 0 { 0 } else { 1 }
+    );
+    let mut groups: Vec<&str> = Vec::new();
+    for r in rows {
+        if !groups.contains(&r.group.as_str()) {
+            groups.push(&r.group);
+        }
+    }
+    for g in &groups {
+        let n = rows.iter().filter(|r| r.group == *g).count();
+        let w = rows.iter().filter(|r| r.group == *g && !r.right).count();
+        let _ = writeln!(o, "<dt>{}</dt><dd>{} of {n} rows right</dd>", esc(g), n - w);
+    }
+    let _ = writeln!(o, "</dl>");
+    o.push_str(&cautions(&[]));
+    let _ = writeln!(
+        o,
+        "<h2>Rows</h2>\n<table>\n<tr><th>variant</th><th>language</th><th>expected</th><th>verdict</th><th>found</th><th>first failing increment</th><th>right</th></tr>"
+    );
+    let mut ordered: Vec<&KnownRow> = rows.iter().filter(|r| !r.right).collect();
+    ordered.extend(rows.iter().filter(|r| r.right));
+    for r in ordered {
+        let _ = writeln!(
+            o,
+            "<tr{}><td><code>{}</code></td><td>{}</td><td><code>{}</code></td><td>{}</td><td><code>{}</code></td><td class=\"num\">{}</td><td>{}</td></tr>",
+            if r.right { "" } else { " class=\"bad\"" },
+            esc(&r.variant),
+            esc(&r.group),
+            esc(&r.expected),
+            esc(r.verdict.word()),
+            esc(&r.found),
+            r.first_increment.map_or("-".to_string(), |i| i.to_string()),
+            if r.right { "yes" } else { "NO" }
+        );
+    }
+    let _ = writeln!(o, "</table>");
+    o.push_str(&footer(tool));
+    page(&format!("tancheck selftest — {}", if wrong == 0 { "PASS" } else { "FAIL" }), &o)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -551,5 +610,23 @@ mod tests {
     #[test]
     fn text_is_escaped() {
         assert_eq!(esc("a<b & \"c\""), "a&lt;b &amp; &quot;c&quot;");
+    }
+
+    #[test]
+    fn the_selftest_page_puts_wrong_rows_first() {
+        let row = |variant: &str, right| KnownRow {
+            group: "C".into(),
+            variant: variant.into(),
+            expected: "shear-factor".into(),
+            verdict: Verdict::TangentFailure,
+            found: if right { "shear-factor".into() } else { "uniform-scale".into() },
+            first_increment: Some(3),
+            right,
+        };
+        let page = selftest_page(&[row("good-row", true), row("bad<row>", false)], "tancheck test");
+        assert!(page.contains("1 of 2 rows right (exit 1)"), "{page}");
+        let (bad, good) = (page.find("bad&lt;row&gt;").unwrap(), page.find("good-row").unwrap());
+        assert!(bad < good, "the wrong row first");
+        assert!(page.contains("licensed engineering judgement"));
     }
 }
