@@ -18,6 +18,9 @@ type Drawn = Result<(), DrawingAreaErrorKind<std::io::Error>>;
 /// Plot size in SVG units (the page scales it to its column).
 const W: u32 = 760;
 const H: u32 = 380;
+/// Curves with more points than this are drawn as lines only (no marker per point), so a
+/// long path keeps the page small.
+const MARKERS_UP_TO: usize = 400;
 /// Errors below this are drawn at it on a log axis (an exact agreement is 0).
 const LOG_FLOOR: f64 = 1e-17;
 
@@ -322,7 +325,9 @@ pub fn error_along_path(report: &Report) -> Option<String> {
                 colour.mix(0.8).stroke_width(1),
             ))?;
             chart.draw_series(LineSeries::new(pts.iter().map(|p| (p.0, p.1)), colour.stroke_width(2)))?;
-            chart.draw_series(pts.iter().map(|p| Circle::new((p.0, p.1), 3, colour.filled())))?;
+            if pts.len() <= MARKERS_UP_TO {
+                chart.draw_series(pts.iter().map(|p| Circle::new((p.0, p.1), 3, colour.filled())))?;
+            }
             chart.draw_series(
                 pts.iter().filter(|p| !p.2).map(|p| Cross::new((p.0, p.1), 6, FAIL.stroke_width(2))),
             )?;
@@ -547,7 +552,9 @@ pub fn response_curves(report: &Report) -> Option<String> {
             let pts: Vec<(f64, f64)> = strain(i).into_iter().zip(stress(i)).collect();
             let label = &report.routine.order[i];
             chart.draw_series(LineSeries::new(pts.clone(), colour.stroke_width(2)))?;
-            chart.draw_series(pts.iter().map(|&p| Circle::new(p, 3, colour.filled())))?;
+            if pts.len() <= MARKERS_UP_TO {
+                chart.draw_series(pts.iter().map(|&p| Circle::new(p, 3, colour.filled())))?;
+            }
             legend.add(
                 Mark::Line(colour),
                 if cohesive { format!("component {label}") } else { format!("σ{label} against ε{label}") },
