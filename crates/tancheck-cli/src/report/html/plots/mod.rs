@@ -12,8 +12,12 @@ use tancheck_core::probe::ProbeSeries;
 use tancheck_core::report::CheckOutcome;
 use tancheck_core::{Report, Scheme};
 
-type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
-type Drawn = Result<(), DrawingAreaErrorKind<std::io::Error>>;
+mod heatmap;
+
+pub use heatmap::entry_heatmap;
+
+pub(super) type Area<'a> = DrawingArea<SVGBackend<'a>, Shift>;
+pub(super) type Drawn = Result<(), DrawingAreaErrorKind<std::io::Error>>;
 
 /// Plot size in SVG units (the page scales it to its column).
 const W: u32 = 760;
@@ -24,7 +28,7 @@ const MARKERS_UP_TO: usize = 400;
 /// Errors below this are drawn at it on a log axis (an exact agreement is 0).
 const LOG_FLOOR: f64 = 1e-17;
 
-const FONT: &str = "sans-serif";
+pub(super) const FONT: &str = "sans-serif";
 
 /// A colour per scheme, the same in every plot.
 pub fn scheme_colour(s: Scheme) -> RGBColor {
@@ -144,7 +148,11 @@ fn svg(title: &str, draw: impl FnOnce(&Area<'_>) -> Drawn) -> Option<String> {
     svg_sized(title, (W, H), draw)
 }
 
-fn svg_sized(title: &str, size: (u32, u32), draw: impl FnOnce(&Area<'_>) -> Drawn) -> Option<String> {
+pub(super) fn svg_sized(
+    title: &str,
+    size: (u32, u32),
+    draw: impl FnOnce(&Area<'_>) -> Drawn,
+) -> Option<String> {
     let mut buf = String::new();
     {
         let root = SVGBackend::with_string(&mut buf, size).into_drawing_area();
@@ -400,108 +408,7 @@ pub fn step_studies(studies: &[StepStudy], tol: Option<f64>, increment: usize) -
     })
 }
 
-/// Cell colour of an entry error: pale within the tolerance; above it, yellow at `lo` to dark
-/// red at `hi` on a log scale (the range of the errors above the tolerance), so the pattern
-/// of the wrong entries shows.
-fn heat(err: f64, tol: f64, lo: f64, hi: f64) -> RGBColor {
-    if !err.is_finite() {
-        return RGBColor(90, 0, 20);
-    }
-    if err <= tol {
-        return RGBColor(236, 244, 250);
-    }
-    heat_at(heat_t(err, lo, hi))
-}
-
-fn heat_t(err: f64, lo: f64, hi: f64) -> f64 {
-    if hi > lo {
-        ((err / lo).ln() / (hi / lo).ln()).clamp(0.0, 1.0)
-    } else {
-        1.0
-    }
-}
-
-fn heat_at(t: f64) -> RGBColor {
-    let (a, b) = ((255.0, 224.0, 110.0), (150.0, 10.0, 30.0));
-    let mix = |x: f64, y: f64| (x + (y - x) * t).round() as u8;
-    RGBColor(mix(a.0, b.0), mix(a.1, b.1), mix(a.2, b.2))
-}
-
-/// A heatmap of the entry errors of one failing comparison: rows are stress components,
-/// columns strain components (routine order), each cell labelled with its error, and a colour
-/// scale beside it.
-pub fn entry_heatmap(c: &Comparison, order: &[String], scheme: Scheme, increment: usize) -> Option<String> {
-    let n = order.len();
-    if n == 0 || c.entry_errors.len() != n * n {
-        return None;
-    }
-    let tol = c.tol;
-    let above: Vec<f64> = c.entry_errors.iter().cloned().filter(|e| e.is_finite() && *e > tol).collect();
-    let hi = above.iter().cloned().fold(tol, f64::max);
-    let lo = above.iter().cloned().fold(hi, f64::min).min(hi / 10.0).max(tol);
-    let cell = 64i32;
-    let (left, top) = (96i32, 16i32);
-    let grid = cell * n as i32;
-    let size = ((left + grid + 190) as u32, (top + grid + 76) as u32);
-    let title = format!("entry errors of increment {increment} against {}", scheme.name());
-    svg_sized(&title, size, |root| {
-        let label = TextStyle::from((FONT, 16).into_font()).color(&BLACK);
-        let small = TextStyle::from((FONT, 14).into_font()).color(&BLACK);
-        for (i, name) in order.iter().enumerate() {
-            for j in 0..n {
-                let e = c.entry_errors[i + j * n];
-                let (x, y) = (left + j as i32 * cell, top + i as i32 * cell);
-                root.draw(&Rectangle::new([(x, y), (x + cell, y + cell)], heat(e, tol, lo, hi).filled()))?;
-                root.draw(&Rectangle::new([(x, y), (x + cell, y + cell)], WHITE.stroke_width(1)))?;
-                let dark = !e.is_finite() || (e > tol && heat_t(e, lo, hi) > 0.45);
-                let ink = if dark { WHITE } else { BLACK };
-                let text = if e == 0.0 { "0".to_string() } else { format!("{e:.1e}") };
-                root.draw(&Text::new(
-                    text,
-                    (x + cell / 2, y + cell / 2),
-                    (FONT, 13).into_font().color(&ink).pos(text_centre()),
-                ))?;
-            }
-            root.draw(&Text::new(
-                format!("σ{name}"),
-                (left - 10, top + i as i32 * cell + cell / 2),
-                label.pos(plotters::style::text_anchor::Pos::new(
-                    plotters::style::text_anchor::HPos::Right,
-                    plotters::style::text_anchor::VPos::Center,
-                )),
-            ))?;
-            root.draw(&Text::new(
-                format!("Δε{name}"),
-                (left + i as i32 * cell + cell / 2, top + grid + 16),
-                label.pos(text_centre()),
-            ))?;
-        }
-        root.draw(&Text::new(
-            "row: stress component; column: strain component",
-            (left + grid / 2, top + grid + 46),
-            small.pos(text_centre()),
-        ))?;
-        // The colour scale.
-        let (bx, bh) = (left + grid + 28, grid.min(300));
-        let steps = 24;
-        for k in 0..steps {
-            let t = 1.0 - k as f64 / steps as f64;
-            let y0 = top + bh * k / steps;
-            let y1 = top + bh * (k + 1) / steps;
-            root.draw(&Rectangle::new([(bx, y0), (bx + 18, y1)], heat_at(t).filled()))?;
-        }
-        root.draw(&Rectangle::new([(bx, top), (bx + 18, top + bh)], RGBColor(150, 150, 150)))?;
-        let pale = top + bh + 14;
-        root.draw(&Rectangle::new([(bx, pale), (bx + 18, pale + 18)], RGBColor(236, 244, 250).filled()))?;
-        root.draw(&Rectangle::new([(bx, pale), (bx + 18, pale + 18)], RGBColor(150, 150, 150)))?;
-        root.draw(&Text::new(format!("{hi:.1e}"), (bx + 26, top + 6), small.clone()))?;
-        root.draw(&Text::new(format!("{lo:.1e}"), (bx + 26, top + bh - 10), small.clone()))?;
-        root.draw(&Text::new(format!("≤ tolerance {tol:.0e}"), (bx + 26, pale + 3), small.clone()))?;
-        Ok(())
-    })
-}
-
-fn text_centre() -> plotters::style::text_anchor::Pos {
+pub(super) fn text_centre() -> plotters::style::text_anchor::Pos {
     use plotters::style::text_anchor::{HPos, Pos, VPos};
     Pos::new(HPos::Center, VPos::Center)
 }
