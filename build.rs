@@ -4,7 +4,10 @@
 //! - `tancheck_no_fortran`: no Fortran compiler (`$FC`, default `gfortran`), unless
 //!   TANCHECK_REQUIRE_FORTRAN=1 (as CI sets), where those tests run and a missing compiler fails;
 //! - `tancheck_no_gdb`: gdb is missing or may not trace a process here (ptrace refused);
-//! - `tancheck_no_fp_traps`: this machine cannot trap floating-point exceptions.
+//! - `tancheck_no_fp_traps`: this machine cannot trap floating-point exceptions;
+//! - `tancheck_no_chromium`: no headless browser (`$TANCHECK_CHROMIUM`, default `chromium`)
+//!   for the HTML report's browser test, unless TANCHECK_REQUIRE_CHROMIUM=1 (as CI sets),
+//!   where that test runs and a missing browser fails it.
 
 fn gdb_can_trace() -> bool {
     let Ok(out) = std::process::Command::new("gdb").args(["-batch", "-ex", "run", "--args", "true"]).output()
@@ -21,6 +24,9 @@ fn main() {
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_fortran)");
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_gdb)");
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_fp_traps)");
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_chromium)");
+    println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_CHROMIUM");
+    println!("cargo::rerun-if-env-changed=TANCHECK_CHROMIUM");
     println!("cargo::rerun-if-env-changed=CC");
     println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_FORTRAN");
     println!("cargo::rerun-if-env-changed=FC");
@@ -33,6 +39,10 @@ fn main() {
     }
     if !fp_traps_run() {
         println!("cargo::rustc-cfg=tancheck_no_fp_traps");
+    }
+    let chromium_required = std::env::var("TANCHECK_REQUIRE_CHROMIUM").is_ok_and(|v| v == "1");
+    if !chromium_required && !tool_runs(&env_or("TANCHECK_CHROMIUM", "chromium"), &["--version"]) {
+        println!("cargo::rustc-cfg=tancheck_no_chromium");
     }
     if !gdb_can_trace() {
         println!("cargo::rustc-cfg=tancheck_no_gdb");

@@ -7,9 +7,27 @@ use std::process::Command;
 
 #[test]
 fn selftest_has_the_johnson_cook_rows_right() {
-    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("selftest").output().unwrap();
+    // The JUnit file and the HTML page of the same run (the JUnit file's validity:
+    // tests/junit_report.rs).
+    let junit = std::env::temp_dir().join(format!("tancheck-selftest-{}.xml", std::process::id()));
+    let html = junit.with_extension("html");
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("selftest")
+        .arg("--junit")
+        .arg(&junit)
+        .arg("--html")
+        .arg(&html)
+        .output()
+        .unwrap();
     let t = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
     assert_eq!(o.status.code(), Some(0), "{t}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    let _ = std::fs::remove_file(&junit);
+    assert!(xml.contains(r#"<testcase name="johnson-cook-no-rate-term" classname="selftest.C"/>"#), "{xml}");
+    assert!(!xml.contains("<failure"), "every row right: {xml}");
+    let page = std::fs::read_to_string(&html).unwrap();
+    let _ = std::fs::remove_file(&html);
+    assert!(page.contains("<code>johnson-cook-no-rate-term</code>") && page.contains("rows right (exit 0)"));
     // Without gfortran (cfg set by the build script) the selftest skips its Fortran rows.
     let languages: &[&str] =
         if !cfg!(tancheck_no_fortran) { &["Rust", "C", "Fortran"] } else { &["Rust", "C"] };

@@ -12,7 +12,7 @@ use crate::exit;
 use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
 use crate::report::terminal::Detail;
-use crate::report::write_atomic;
+use crate::report::{files, html, junit, write_atomic};
 // Kept reachable here for older callers; their home is session.rs (and demo.rs for DemoArgs).
 pub use crate::demo::DemoArgs;
 pub use crate::session::{default_path, emit, routine_name, run_manifest};
@@ -51,6 +51,12 @@ enum Command {
         /// Print the full report of every routine.
         #[arg(short, long)]
         verbose: bool,
+        /// Write JUnit XML to FILE: a test case per row.
+        #[arg(long, value_name = "FILE")]
+        junit: Option<PathBuf>,
+        /// Write the table as an HTML page to FILE.
+        #[arg(long, value_name = "FILE")]
+        html: Option<PathBuf>,
     },
     /// Print a shell completion script (for packagers).
     #[command(hide = true)]
@@ -87,6 +93,12 @@ struct CheckArgs {
     /// Write the JSON report to FILE (`-` for standard output, replacing the readable report).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
+    /// Write the HTML report to FILE: one self-contained page with the summary and plots.
+    #[arg(long, value_name = "FILE")]
+    html: Option<PathBuf>,
+    /// Write JUnit XML to FILE: a test case per scheme and one for the verdict.
+    #[arg(long, value_name = "FILE")]
+    junit: Option<PathBuf>,
     /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
     #[arg(long)]
     fp_traps: bool,
@@ -142,6 +154,12 @@ struct ProbeArgs {
     /// Write the JSON report to FILE (`-` for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
+    /// Write the HTML report to FILE: one self-contained page with the probes' plots.
+    #[arg(long, value_name = "FILE")]
+    html: Option<PathBuf>,
+    /// Write JUnit XML to FILE: a test case per probe.
+    #[arg(long, value_name = "FILE")]
+    junit: Option<PathBuf>,
     /// Print only failed probes and the verdict.
     #[arg(short, long, conflicts_with = "verbose")]
     quiet: bool,
@@ -182,7 +200,9 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models => cmd_models(),
-        Command::Selftest { verbose } => crate::selftest::run(verbose),
+        Command::Selftest { verbose, junit, html } => {
+            crate::selftest::run_with(verbose, junit.as_deref(), html.as_deref())
+        }
         Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
         Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };
@@ -205,6 +225,8 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
+    files::check_output(a.html.as_deref(), "--html")?;
+    files::check_output(a.junit.as_deref(), "--junit")?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), a.quiet);
     }
@@ -278,6 +300,8 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         Detail::Normal
     };
     emit(&report, detail, a.json.as_deref())?;
+    files::write_report(a.html.as_deref(), "the HTML report", || Ok(html::check_page(&report)))?;
+    files::write_report(a.junit.as_deref(), "the JUnit report", || junit::check_junit([&report]))?;
     // The worse of the cases' and the check's outcome (a fault before a failure).
     Ok(match (case_code, report.exit_code()) {
         (3, _) | (_, 3) => exit::ROUTINE_FAULT,
@@ -287,6 +311,8 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
+    files::check_output(a.html.as_deref(), "--html")?;
+    files::check_output(a.junit.as_deref(), "--junit")?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::probe(&a.manifest, a.json.as_deref());
     }
@@ -394,6 +420,8 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
             }
         }
     }
+    files::write_report(a.html.as_deref(), "the HTML report", || Ok(html::probe_page(&report)))?;
+    files::write_report(a.junit.as_deref(), "the JUnit report", || junit::probe_junit([&report]))?;
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
 }
 

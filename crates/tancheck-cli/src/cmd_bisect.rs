@@ -45,6 +45,10 @@ pub struct BisectArgs {
     /// Write the result as JSON to FILE (`-` for standard output, replacing the readable one).
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
+    /// Write the HTML report to FILE: where inside the increment the class changes, with the
+    /// check's plots.
+    #[arg(long, value_name = "FILE")]
+    pub html: Option<PathBuf>,
     /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
     #[arg(long)]
     pub fp_traps: bool,
@@ -267,6 +271,7 @@ pub fn write_outcome(o: &BisectOutcome, out: &mut dyn Write) -> std::io::Result<
 
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
+    crate::report::files::check_output(a.html.as_deref(), "--html")?;
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
@@ -371,6 +376,13 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         }
     }
     crate::survive::checking(false);
+    let page = a.html.as_ref().map(|_| {
+        crate::report::html::bisect_page(&crate::report::html::BisectView {
+            report: &report,
+            located: located.as_ref(),
+            shrunk: shrunk.as_ref().and_then(|s| s.located.as_ref().map(|l| (l, s.original_increments))),
+        })
+    });
     let outcome = BisectOutcome {
         routine: info.name.clone(),
         path: path.name.clone(),
@@ -400,6 +412,11 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
             }
         }
     }
+    crate::report::files::write_report(
+        a.html.as_deref(),
+        "the HTML report",
+        || Ok(page.unwrap_or_default()),
+    )?;
     Ok(if outcome.located.is_none() && outcome.exit_code == exit::PASS {
         exit::PASS
     } else {

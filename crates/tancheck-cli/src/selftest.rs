@@ -172,6 +172,18 @@ fn repo_root() -> PathBuf {
 
 /// Run the zoo; exit 0 when every row is right.
 pub fn run(verbose: bool) -> Result<i32> {
+    run_with(verbose, None, None)
+}
+
+/// [`run`], also writing JUnit XML (a test case per row) to `junit` and the table as an HTML
+/// page to `html`.
+pub fn run_with(
+    verbose: bool,
+    junit: Option<&std::path::Path>,
+    html: Option<&std::path::Path>,
+) -> Result<i32> {
+    crate::report::files::check_output(junit, "--junit")?;
+    crate::report::files::check_output(html, "--html")?;
     let mut out = crate::survive::stdout();
     let mut rows = Vec::new();
     let entries = zoo::zoo();
@@ -266,5 +278,23 @@ pub fn run(verbose: bool) -> Result<i32> {
             writeln!(out, "  {:<26} correct {}: {}", b.variant, b.model, b.path.name)?;
         }
     }
+    let known: Vec<_> = rows
+        .iter()
+        .map(|r| crate::report::junit::KnownRow {
+            group: r.language.into(),
+            variant: r.variant.clone(),
+            expected: r.expected.clone(),
+            verdict: r.verdict,
+            found: r.found.clone(),
+            first_increment: r.first_increment,
+            right: r.right,
+        })
+        .collect();
+    crate::report::files::write_report(junit, "the JUnit report", || {
+        crate::report::junit::selftest_junit(&known)
+    })?;
+    crate::report::files::write_report(html, "the HTML report", || {
+        Ok(crate::report::html::selftest_page(&known, &format!("tancheck {}", env!("CARGO_PKG_VERSION"))))
+    })?;
     Ok(if wrong == 0 { 0 } else { 1 })
 }

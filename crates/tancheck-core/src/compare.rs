@@ -44,6 +44,11 @@ pub struct Comparison {
     pub column_errors: Vec<f64>,
     /// The worst entries, worst first.
     pub worst: Vec<EntryDiff>,
+    /// Every entry's error (the entry measure above), column-major in the routine's order,
+    /// kept only when the comparison fails (for the heatmap of the HTML report); empty when
+    /// it passes.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub entry_errors: Vec<f64>,
     /// The returned tangent has entries that are not finite.
     pub non_finite_returned: usize,
     pub tol: f64,
@@ -95,6 +100,9 @@ pub fn compare_along(
     c.soft_error = e;
     c.soft_direction = what.to_string();
     c.pass &= e <= tol;
+    if c.pass {
+        c.entry_errors = Vec::new();
+    }
     c
 }
 
@@ -211,6 +219,7 @@ pub fn compare_dtemp_floor(
         soft_direction: String::new(),
         column_errors: vec![norm_error],
         worst: entries,
+        entry_errors: Vec::new(),
         non_finite_returned: non_finite,
         tol,
         pass: non_finite == 0 && norm_error <= tol && worst_entry_error <= tol,
@@ -299,6 +308,7 @@ fn measure(
             });
         }
     }
+    let entry_errors: Vec<f64> = entries.iter().map(|e| e.error).collect();
     entries.sort_by(|a, b| b.error.total_cmp(&a.error));
     let worst_entry_error = entries.first().map_or(0.0, |e| e.error);
     entries.truncate(keep_worst);
@@ -310,6 +320,7 @@ fn measure(
         soft_direction: String::new(),
         column_errors,
         worst: entries,
+        entry_errors: if pass { Vec::new() } else { entry_errors },
         non_finite_returned: non_finite,
         tol,
         pass,
@@ -375,6 +386,17 @@ mod tests {
         assert!(c.worst_entry_error > 1e-4);
         assert_eq!(c.worst[0].label, "11/12");
         assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).pass);
+        // Every entry's error is kept for a failing comparison (the HTML heatmap), column-major
+        // in routine order: the wrong one is row 0 (11), column 5 (12), and only it is off.
+        assert_eq!(c.entry_errors.len(), 36);
+        assert_eq!(c.entry_errors[5 * 6], c.worst_entry_error);
+        assert!(
+            c.entry_errors.iter().enumerate().all(|(k, &e)| k == 5 * 6 || e == 0.0),
+            "{:?}",
+            c.entry_errors
+        );
+        // ... and dropped when it passes.
+        assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).entry_errors.is_empty());
     }
 
     #[test]

@@ -1,11 +1,15 @@
-//! Reporters: views of one [`Report`] for the terminal and as JSON.
+//! Reporters: views of one [`Report`] for the terminal, as JSON, as an HTML page and as
+//! JUnit XML.
 
 use std::io::{self, Write};
 use std::path::Path;
 
 use tancheck_core::Report;
 
+pub mod files;
+pub mod html;
 pub mod json;
+pub mod junit;
 pub mod terminal;
 
 /// A view of a report.

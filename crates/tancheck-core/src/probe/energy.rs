@@ -150,12 +150,20 @@ impl Probe for Energy {
         let mut prev_stored: Option<f64> = None;
         let mut worst_balance = 0.0f64;
         let mut scale = 0.0f64;
+        // For the plot: the work done along the path (trapezoid rule over each increment, no
+        // extra calls) beside the reported stored and dissipated energies.
+        let (mut work, mut work_curve, mut stored_curve, mut diss_curve) =
+            (0.0, Vec::new(), Vec::new(), Vec::new());
         let walked = walk(caller, env, |k, d, c| {
+            work += 0.5 * (dot(&w, &d.start().stress, d.dstrain()) + dot(&w, &d.base.stress, d.dstrain()));
+            work_curve.push([k as f64, work]);
             if !d.base.outcome.provides(provides::ENERGY) {
                 reports = false;
                 return Ok(());
             }
             let (stored, diss) = (d.base.energy[0], d.base.energy[1]);
+            stored_curve.push([k as f64, stored]);
+            diss_curve.push([k as f64, diss]);
             scale = scale.max(stored.abs()).max(diss.abs());
             if let Some(p) = prev_diss {
                 if diss < p - 1e-12 * scale.max(1e-300) && fail.is_none() {
@@ -220,6 +228,22 @@ impl Probe for Energy {
         };
         r.value = Some(cycle);
         r.details = details;
+        let curve = |name: &str, points: Vec<[f64; 2]>| super::ProbeSeries {
+            name: name.into(),
+            x: "increment".into(),
+            y: "energy per unit volume".into(),
+            log_y: false,
+            points,
+        };
+        if reports && !stored_curve.is_empty() && !work_curve.is_empty() {
+            // The start energies are not reported: match the sum to the work at increment 1.
+            let offset = work_curve[0][1] - stored_curve[0][1] - diss_curve[0][1];
+            let total: Vec<[f64; 2]> =
+                stored_curve.iter().zip(&diss_curve).map(|(s, d)| [s[0], s[1] + d[1] + offset]).collect();
+            r.series.push(curve("Ψ + D reported (matched to the work at increment 1)", total));
+            r.series.push(curve("dissipated D reported", diss_curve));
+        }
+        r.series.push(curve("work ∫σ·dε (trapezoid rule along the path)", work_curve));
         Ok(r)
     }
 }

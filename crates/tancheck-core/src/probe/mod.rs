@@ -119,6 +119,23 @@ pub struct ProbeResult {
     pub increment: Option<usize>,
     /// More lines for the detailed view.
     pub details: Vec<String>,
+    /// Curves the probe measured along the path, for plots (e.g. Newton residuals per
+    /// iteration, the acoustic determinant per increment, the energies per increment).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub series: Vec<ProbeSeries>,
+}
+
+/// One curve a probe measured: points (x, y) with both axes named.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+pub struct ProbeSeries {
+    /// What the curve is, e.g. "increment 5 (order 1.98)".
+    pub name: String,
+    /// The quantities on the axes, e.g. "iteration" and "residual".
+    pub x: String,
+    pub y: String,
+    /// The y values span decades (residuals): read on a log scale.
+    pub log_y: bool,
+    pub points: Vec<[f64; 2]>,
 }
 
 impl ProbeResult {
@@ -131,6 +148,7 @@ impl ProbeResult {
             tol: None,
             increment: None,
             details: Vec::new(),
+            series: Vec::new(),
         }
     }
 

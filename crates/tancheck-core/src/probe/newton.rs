@@ -233,6 +233,21 @@ impl Probe for NewtonRate {
         r.value = worst.map(|w| w.1);
         r.tol = Some(min_order);
         r.details = details;
+        r.series = solves
+            .iter()
+            // One iteration is a linear response: nothing to see in a residual history.
+            .filter(|s| s.iterations() >= 2)
+            .map(|s| super::ProbeSeries {
+                name: match s.order() {
+                    Some(p) => format!("increment {} (order {p:.2})", s.increment),
+                    None => format!("increment {}", s.increment),
+                },
+                x: "iteration".into(),
+                y: "residual".into(),
+                log_y: true,
+                points: s.log.residuals.iter().enumerate().map(|(i, &r)| [i as f64, r]).collect(),
+            })
+            .collect();
         Ok(r)
     }
 }

@@ -419,6 +419,17 @@ impl Probe for Stability {
             }
             r.details.push(line);
         }
+        let curve = |name: &str, f: &dyn Fn(&Assessment) -> Option<f64>| super::ProbeSeries {
+            name: name.into(),
+            x: "increment".into(),
+            y: name.into(),
+            log_y: false,
+            points: s.increments.iter().filter_map(|(k, a)| f(a).map(|v| [*k as f64, v])).collect(),
+        };
+        if has_acoustic {
+            r.series.push(curve("min det Q(n) / s^d", &|a| a.det_ratio()));
+        }
+        r.series.push(curve("λmin / s", &|a| Some(a.eigen_ratio())));
         Ok(r)
     }
 }

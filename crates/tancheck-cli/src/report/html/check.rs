@@ -1,0 +1,242 @@
+//! The check's page: summary, schemes, branches and coverage, the plots along the path, and
+//! each failing increment with its step-size curve and heatmap.
+
+use std::fmt::Write as _;
+
+use tancheck_core::report::{CheckOutcome, IncrementResult};
+use tancheck_core::Report;
+
+use super::{badge, cautions, esc, figure, footer, page, plots, sci, DETAILED_FAILURES};
+
+/// The summary, plots and failing increments of one check report.
+pub(super) fn check_sections(report: &Report, o: &mut String) {
+    let finding = report.finding();
+    let failing: Vec<&IncrementResult> = report.increments.iter().filter(|i| !i.passed()).collect();
+    let r = &report.routine;
+    let _ = writeln!(o, "<dl class=\"summary\">");
+    let _ = writeln!(
+        o,
+        "<dt>verdict</dt><dd>{}exit code {}</dd>",
+        badge(report.verdict.word()),
+        report.exit_code()
+    );
+    let _ = writeln!(o, "<dt>finding</dt><dd><code>{}</code></dd>", esc(&finding));
+    let first = failing.first().map_or("none".to_string(), |i| {
+        format!("increment {} of {} (branch {})", i.index, report.increments.len(), i.branch_label())
+    });
+    let _ = writeln!(o, "<dt>first failing increment</dt><dd>{}</dd>", esc(&first));
+    let _ = writeln!(
+        o,
+        "<dt>routine</dt><dd>{} — {}, order {}, {} shear, {} state variables, {} properties{}</dd>",
+        esc(&r.name),
+        esc(&r.kind),
+        esc(&r.order.join(" ")),
+        esc(&r.shear),
+        r.nstate,
+        r.nprop,
+        if r.complex_twin { ", complex-step twin" } else { ", no complex-step twin" }
+    );
+    let _ = writeln!(o, "<dt>path</dt><dd>{}</dd>", esc(&report.path));
+    let _ = writeln!(
+        o,
+        "<dt>routine calls</dt><dd>{} real, {} complex</dd>",
+        report.calls.real, report.calls.complex
+    );
+    let _ = writeln!(o, "</dl>");
+    o.push_str(&cautions(&report.cautions));
+
+    let _ = writeln!(o, "<h2>Schemes</h2>\n<table>\n<tr><th>scheme</th><th>checks</th><th>failed</th><th>skipped</th><th>worst norm error</th><th>worst entry error</th><th>tolerance</th></tr>");
+    for s in &report.summary {
+        let _ = writeln!(
+            o,
+            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            if s.failed > 0 { " class=\"bad\"" } else { "" },
+            s.scheme.name(),
+            s.checks,
+            s.failed,
+            s.skipped,
+            sci(s.worst_norm_error),
+            sci(s.worst_entry_error),
+            sci(s.tol)
+        );
+    }
+    let _ = writeln!(o, "</table>");
+    let _ = writeln!(o, "<h2>Branches and coverage</h2>\n<table>\n<tr><th>branch</th><th>increments</th><th>failed</th><th>worst error</th></tr>");
+    for b in &report.branches {
+        let _ = writeln!(
+            o,
+            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            if b.failed > 0 { " class=\"bad\"" } else { "" },
+            esc(&b.branch),
+            b.increments,
+            b.failed,
+            sci(b.worst_error)
+        );
+    }
+    let _ = writeln!(o, "</table>");
+    if report.coverage.is_empty() {
+        let _ = writeln!(o, "<p class=\"note\">Coverage: no warnings.</p>");
+    } else {
+        let _ = writeln!(o, "<ul class=\"plain\">");
+        for c in &report.coverage {
+            let _ = writeln!(o, "<li>coverage: {}</li>", esc(c));
+        }
+        let _ = writeln!(o, "</ul>");
+    }
+    if !report.notes.is_empty() {
+        let _ = writeln!(o, "<ul class=\"plain\">");
+        for n in &report.notes {
+            let _ = writeln!(o, "<li>note: {}</li>", esc(n));
+        }
+        let _ = writeln!(o, "</ul>");
+    }
+
+    let _ = writeln!(o, "<h2>Along the path</h2>");
+    o.push_str(&figure(
+        plots::error_along_path(report),
+        "Relative error of the returned tangent per increment and scheme (the largest of the norm, \
+         worst-entry and soft-direction errors; log scale). Dashed: each scheme's tolerance. \
+         Crosses: failed checks. Background bands: the branch the routine reported.",
+        "wide",
+    ));
+    o.push_str(&figure(
+        plots::response_curves(report),
+        "The routine's response at the end of each increment, per component that moves.",
+        "wide",
+    ));
+
+    if let Some(f) = report.first_fault() {
+        let _ = writeln!(o, "<h2>Fault</h2>\n<p>At increment {}: {}</p>", f.call.increment, esc(&f.message));
+    }
+    if failing.is_empty() {
+        return;
+    }
+    let _ = writeln!(o, "<h2>Failing increments</h2>");
+    for inc in failing.iter().take(DETAILED_FAILURES) {
+        failing_increment(report, inc, o);
+    }
+    if failing.len() > DETAILED_FAILURES {
+        let _ = writeln!(
+            o,
+            "<p class=\"note\">{} more failing increments:</p>\n<ul class=\"plain\">",
+            failing.len() - DETAILED_FAILURES
+        );
+        for inc in &failing[DETAILED_FAILURES..] {
+            let _ = writeln!(
+                o,
+                "<li>increment {} (branch {}): {}</li>",
+                inc.index,
+                esc(&inc.branch_label()),
+                esc(inc.finding())
+            );
+        }
+        let _ = writeln!(o, "</ul>");
+    }
+}
+
+fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
+    let _ = writeln!(
+        o,
+        "<h3 id=\"increment-{}\">Increment {} — branch {} — finding <code>{}</code></h3>",
+        inc.index,
+        inc.index,
+        esc(&inc.branch_label()),
+        esc(inc.finding())
+    );
+    if let Some(d) = &inc.diagnosis {
+        let _ = writeln!(o, "<p>{}</p>", esc(&d.reason));
+        let explaining: Vec<_> = d.causes.iter().filter(|h| h.explains).collect();
+        if !explaining.is_empty() {
+            let _ = writeln!(o, "<ul class=\"plain\">");
+            for h in explaining {
+                let _ = writeln!(
+                    o,
+                    "<li>cause <code>{}</code>: {} (error left {})</li>",
+                    h.cause.name(),
+                    esc(&h.detail),
+                    sci(h.error_left)
+                );
+            }
+            let _ = writeln!(o, "</ul>");
+        }
+    }
+    if !inc.non_finite.is_empty() {
+        let _ = writeln!(o, "<p>Outputs that are not finite: {}</p>", esc(&inc.non_finite.join(", ")));
+    }
+    if let Some(f) = &inc.fault {
+        let _ = writeln!(o, "<p>Fault: {}</p>", esc(&f.message));
+    }
+    // The worst failing comparison of the increment.
+    let worst = inc
+        .checks
+        .iter()
+        .filter_map(|c| match &c.tangent {
+            CheckOutcome::Compared(cmp) if !cmp.pass => Some((c.scheme, cmp)),
+            _ => None,
+        })
+        .max_by(|a, b| a.1.error().total_cmp(&b.1.error()));
+    if let Some((scheme, cmp)) = worst {
+        let _ = writeln!(
+            o,
+            "<p>Against {}: norm error {}, worst entry {}, {} error {} (tolerance {}).</p>",
+            scheme.name(),
+            sci(cmp.norm_error),
+            sci(cmp.worst_entry_error),
+            if cmp.soft_direction.is_empty() {
+                "soft-direction".to_string()
+            } else {
+                esc(&cmp.soft_direction)
+            },
+            sci(cmp.soft_error),
+            sci(cmp.tol)
+        );
+        let _ = writeln!(
+            o,
+            "<table>\n<tr><th>entry (row/column)</th><th>returned</th><th>numerical</th><th>error</th></tr>"
+        );
+        for e in &cmp.worst {
+            let _ = writeln!(
+                o,
+                "<tr><td><code>{}</code></td><td class=\"num\">{:.6e}</td><td class=\"num\">{:.6e}</td><td class=\"num\">{}</td></tr>",
+                esc(&e.label),
+                e.returned,
+                e.numerical,
+                sci(e.error)
+            );
+        }
+        let _ = writeln!(o, "</table>");
+    }
+    if let Some(d) = &inc.diagnosis {
+        let tol = worst.map(|w| w.1.tol);
+        o.push_str(&figure(
+            plots::step_studies(&d.studies, tol, inc.index),
+            "Discrepancy between the returned tangent and each scheme as the relative step shrinks \
+             (log–log). A consistent tangent follows the dashed slope of the scheme's order down to \
+             the rounding floor; a wrong one levels off at the size of its error.",
+            "wide",
+        ));
+    }
+    if let Some((scheme, cmp)) = worst {
+        o.push_str(&figure(
+            plots::entry_heatmap(cmp, &report.routine.order, scheme, inc.index),
+            "Relative error of each tangent entry ∂σ(row)/∂Δε(column), routine order. Pale: within the \
+             tolerance; yellow to dark red: from the smallest to the largest error above it (log scale).",
+            "square",
+        ));
+    }
+}
+
+/// The HTML page of a check report.
+pub fn check_page(report: &Report) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "<header>\n<h1>Tangent check: {}</h1>\n<p class=\"sub\">{} · {}</p>\n</header>",
+        esc(&report.routine.name),
+        esc(&report.path),
+        esc(&report.tool)
+    );
+    check_sections(report, &mut o);
+    o.push_str(&footer(&report.tool));
+    page(&format!("tancheck: {} — {}", report.routine.name, report.verdict.word()), &o)
+}

@@ -1,0 +1,220 @@
+//! JUnit XML for CI dashboards, written with the quick-junit crate: pure functions of the
+//! report data. A check gives one test suite per routine with a test case per scheme (the
+//! tangent against that scheme along the whole path) and one for the routine's verdict; a
+//! probe suite one test case per probe; the selftest one test case per row. A failure's
+//! message carries the finding.
+
+use std::io;
+
+use quick_junit::{NonSuccessKind, Property, Report as JReport, TestCase, TestCaseStatus, TestSuite};
+
+use tancheck_core::probe::{ProbeStatus, SuiteReport};
+use tancheck_core::report::CheckOutcome;
+use tancheck_core::{Report, Verdict};
+
+/// The XML of a report. quick-junit writes a `skipped` count on the root `testsuites`
+/// element, which the JUnit schema CI dashboards read (see tests/junit_report.rs) does not
+/// declare there (it is declared on each `testsuite`, where it stays): it is left out.
+fn to_string(r: &JReport) -> io::Result<String> {
+    let xml = r.to_string().map_err(io::Error::other)?;
+    Ok(drop_root_skipped(&xml))
+}
+
+fn drop_root_skipped(xml: &str) -> String {
+    let Some(start) = xml.find("<testsuites") else { return xml.to_string() };
+    let Some(len) = xml[start..].find('>') else { return xml.to_string() };
+    let tag = &xml[start..start + len];
+    let Some(at) = tag.find(" skipped=\"") else { return xml.to_string() };
+    let Some(close) = tag[at + 10..].find('"') else { return xml.to_string() };
+    let cut = (start + at)..(start + at + 10 + close + 1);
+    format!("{}{}", &xml[..cut.start], &xml[cut.end..])
+}
+
+fn failure(message: String, kind: NonSuccessKind, description: Option<String>) -> TestCaseStatus {
+    let mut s = TestCaseStatus::non_success(kind);
+    s.set_message(message.clone());
+    s.set_type(match kind {
+        NonSuccessKind::Failure => "tangent-finding",
+        NonSuccessKind::Error => "routine-fault",
+    });
+    s.set_description(description.unwrap_or(message));
+    s
+}
+
+/// The test suite of one check report.
+fn check_suite(report: &Report) -> TestSuite {
+    let routine = &report.routine.name;
+    let mut suite = TestSuite::new(format!("tancheck check {routine}"));
+    suite.add_property(Property::new("path", report.path.as_str()));
+    suite.add_property(Property::new("finding", report.finding()));
+    suite.add_property(Property::new("verdict", report.verdict.word()));
+    for s in &report.summary {
+        let name = format!("tangent against {}", s.scheme.name());
+        // The increments where this scheme's check failed.
+        let failed: Vec<usize> = report
+            .increments
+            .iter()
+            .filter(|i| {
+                i.checks.iter().any(|c| {
+                    c.scheme == s.scheme && matches!(&c.tangent, CheckOutcome::Compared(cmp) if !cmp.pass)
+                }) && !i.passed()
+            })
+            .map(|i| i.index)
+            .collect();
+        // Failed checks the diagnosis cleared (a kink, a poor default step) are no failure.
+        let status = if failed.is_empty() {
+            TestCaseStatus::success()
+        } else {
+            let first = report.increments.iter().find(|i| i.index == failed[0]);
+            let msg = format!(
+                "finding {}: {} of {} increments fail against {}, first at increment {}{}; worst norm error {:.2e}, worst entry error {:.2e}, tolerance {:.1e}",
+                report.finding(),
+                failed.len(),
+                report.increments.len(),
+                s.scheme.name(),
+                failed[0],
+                first.map_or(String::new(), |i| format!(
+                    " (branch {}, where the diagnosis says {})",
+                    i.branch_label(),
+                    i.finding()
+                )),
+                s.worst_norm_error,
+                s.worst_entry_error,
+                s.tol
+            );
+            failure(msg, NonSuccessKind::Failure, None)
+        };
+        let mut case = TestCase::new(name, status);
+        case.set_classname(routine.as_str());
+        suite.add_test_case(case);
+    }
+    let status = match report.verdict {
+        Verdict::Pass => TestCaseStatus::success(),
+        Verdict::RoutineFault => {
+            let why =
+                report.first_fault().map_or_else(|| "the routine faulted".to_string(), |f| f.message.clone());
+            failure(format!("finding routine-fault: {why}"), NonSuccessKind::Error, None)
+        }
+        v => {
+            let first = report.increments.iter().find(|i| !i.passed());
+            failure(
+                format!(
+                    "finding {}: verdict {} (exit {}){}",
+                    report.finding(),
+                    v.word(),
+                    v.exit_code(),
+                    first.map_or(String::new(), |i| format!(", first failing increment {}", i.index))
+                ),
+                NonSuccessKind::Failure,
+                None,
+            )
+        }
+    };
+    let mut case = TestCase::new("verdict", status);
+    case.set_classname(routine.as_str());
+    suite.add_test_case(case);
+    suite
+}
+
+/// JUnit XML of check reports: one test suite per routine.
+pub fn check_junit<'a>(reports: impl IntoIterator<Item = &'a Report>) -> io::Result<String> {
+    let mut r = JReport::new("tancheck check");
+    for rep in reports {
+        r.add_test_suite(check_suite(rep));
+    }
+    to_string(&r)
+}
+
+/// JUnit XML of probe suite reports: one test suite per routine, a test case per probe
+/// (a skipped probe is skipped, with its reason).
+pub fn probe_junit<'a>(reports: impl IntoIterator<Item = &'a SuiteReport>) -> io::Result<String> {
+    let mut r = JReport::new("tancheck probe");
+    for rep in reports {
+        let mut suite = TestSuite::new(format!("tancheck probe {} ({})", rep.routine, rep.suite));
+        suite.add_property(Property::new("path", rep.path.as_str()));
+        for p in &rep.results {
+            let status = match p.status {
+                ProbeStatus::Pass => TestCaseStatus::success(),
+                ProbeStatus::Skipped => {
+                    let mut s = TestCaseStatus::skipped();
+                    s.set_message(p.summary.as_str());
+                    s
+                }
+                ProbeStatus::Fail => failure(
+                    format!("probe {}: {}", p.probe, p.summary),
+                    NonSuccessKind::Failure,
+                    (!p.details.is_empty()).then(|| p.details.join("\n")),
+                ),
+            };
+            let mut case = TestCase::new(p.probe.as_str(), status);
+            case.set_classname(rep.routine.as_str());
+            suite.add_test_case(case);
+        }
+        r.add_test_suite(suite);
+    }
+    to_string(&r)
+}
+
+/// One row of the selftest: a routine with a known verdict and what the check found.
+#[derive(Clone, Debug)]
+pub struct KnownRow {
+    /// The group the row belongs to (the language: Rust, C, Fortran).
+    pub group: String,
+    pub variant: String,
+    pub expected: String,
+    pub verdict: Verdict,
+    pub found: String,
+    pub first_increment: Option<usize>,
+    pub right: bool,
+}
+
+/// JUnit XML of the selftest: one test suite per language, a test case per row; a row whose
+/// finding is not the expected one fails, naming both.
+pub fn selftest_junit(rows: &[KnownRow]) -> io::Result<String> {
+    let mut r = JReport::new("tancheck selftest");
+    let mut groups: Vec<&str> = Vec::new();
+    for row in rows {
+        if !groups.contains(&row.group.as_str()) {
+            groups.push(&row.group);
+        }
+    }
+    for g in groups {
+        let mut suite = TestSuite::new(format!("tancheck selftest {g}"));
+        for row in rows.iter().filter(|r| r.group == g) {
+            let status = if row.right {
+                TestCaseStatus::success()
+            } else {
+                failure(
+                    format!(
+                        "expected finding {}, found {} (verdict {}{})",
+                        row.expected,
+                        row.found,
+                        row.verdict.word(),
+                        row.first_increment
+                            .map_or(String::new(), |i| format!(", first failing increment {i}"))
+                    ),
+                    NonSuccessKind::Failure,
+                    None,
+                )
+            };
+            let mut case = TestCase::new(row.variant.as_str(), status);
+            case.set_classname(format!("selftest.{g}"));
+            suite.add_test_case(case);
+        }
+        r.add_test_suite(suite);
+    }
+    to_string(&r)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_root_loses_only_its_skipped_count() {
+        let xml = "<?xml version=\"1.0\"?>\n<testsuites name=\"a\" tests=\"2\" skipped=\"0\" failures=\"1\" errors=\"0\">\n<testsuite name=\"s\" tests=\"2\" skipped=\"0\" errors=\"0\" failures=\"1\">";
+        let out = drop_root_skipped(xml);
+        assert!(out.contains("<testsuites name=\"a\" tests=\"2\" failures=\"1\" errors=\"0\">"), "{out}");
+        assert!(out.contains("<testsuite name=\"s\" tests=\"2\" skipped=\"0\""), "{out}");
+    }
+}
