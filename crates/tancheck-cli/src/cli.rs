@@ -46,7 +46,11 @@ enum Command {
     /// Build the bundled example routines and check them.
     Demo(DemoArgs),
     /// List the built-in reference models and their properties.
-    Models,
+    Models {
+        /// Print the names only.
+        #[arg(short, long)]
+        quiet: bool,
+    },
     /// Run the zoo of routines with known flaws and show what the checker finds.
     Selftest(SelftestArgs),
     /// Print a shell completion script (for packagers).
@@ -105,8 +109,8 @@ struct CheckArgs {
     /// beside it). Only the cases of the routine this manifest names run; the others are
     /// listed and set aside (--all-cases runs them too). A broken case file is a warning, a
     /// missing folder an error.
-    #[arg(long, value_name = "DIR", num_args = 0..=1, default_missing_value = "")]
-    cases: Option<PathBuf>,
+    #[arg(long, value_name = "DIR", num_args = 0..=1)]
+    cases: Option<Option<PathBuf>>,
     /// With --cases: replay every case in the folder, whatever routine it was written for.
     #[arg(long, requires = "cases")]
     all_cases: bool,
@@ -185,7 +189,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
-        Command::Models => cmd_models(),
+        Command::Models { quiet } => cmd_models(quiet),
         Command::Selftest(a) => crate::selftest::run_with(&a.output, a.json.as_deref()),
         Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
         Command::Man(a) => crate::cmd_packaging::man(&a, command()),
@@ -234,12 +238,9 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     let file = a.manifest.display().to_string();
     // `--cases` without a folder: the manifest's own.
-    let cases = a.cases.as_ref().map(|c| {
-        if c.as_os_str().is_empty() {
-            crate::case_store::default_case_dir(&a.manifest, &dir)
-        } else {
-            c.clone()
-        }
+    let cases = a.cases.as_ref().map(|c| match c {
+        Some(c) => c.clone(),
+        None => crate::case_store::default_case_dir(&a.manifest, &dir),
     });
     if let Some(cases) = &cases {
         if !cases.is_dir() {
@@ -370,8 +371,17 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
 }
 
-fn cmd_models() -> Result<i32> {
+fn cmd_models(quiet: bool) -> Result<i32> {
     let mut out = crate::survive::stdout();
+    if quiet {
+        for e in tancheck_models::zoo::zoo() {
+            writeln!(out, "{}", e.name)?;
+        }
+        for name in ["orthotropic", "johnson-cook", "johnson-cook-no-rate-term"] {
+            writeln!(out, "{name}")?;
+        }
+        return Ok(exit::PASS);
+    }
     writeln!(
         out,
         "Built-in models (\"model\": NAME in a manifest); the flawed ones are the selftest's zoo.\n"
