@@ -99,6 +99,8 @@ pub fn checking(on: bool) {
 
 fn head(routine: &str) -> String {
     let v = serde_json::json!({
+        "format": tancheck_core::report::document::FORMAT,
+        "version": tancheck_core::report::document::VERSION,
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         "routine": routine,
         "cautions": tancheck_core::report::CAUTIONS,
@@ -147,6 +149,8 @@ fn write_marker(p: &Path, routine: &str) -> Result<()> {
     {
         {
             let marker = serde_json::json!({
+                "format": tancheck_core::report::document::FORMAT,
+                "version": tancheck_core::report::document::VERSION,
                 "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
                 "routine": routine,
                 "verdict": "incomplete",

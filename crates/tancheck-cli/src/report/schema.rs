@@ -23,7 +23,7 @@ enum Format {
 /// The body of a report file, by its `kind`.
 #[derive(JsonSchema)]
 #[serde(tag = "kind", rename_all = "kebab-case")]
-#[allow(dead_code)] // only its schema is used
+#[allow(dead_code, clippy::large_enum_variant)] // only its schema is used, never a value
 enum Body {
     Check(Report),
     ProbeSuite(SuiteReport),
