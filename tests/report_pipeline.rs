@@ -71,8 +71,8 @@ fn the_c_api_and_the_command_line_write_the_same_json() {
     // SAFETY: a valid struct to write to.
     assert_eq!(unsafe { tancheck_capi::tck_options_init(&mut o) }, 0);
     o.name = name.as_ptr();
-    o.nprop = common::J2_PROPS.len() as i32;
-    o.props = common::J2_PROPS.as_ptr();
+    o.nproperties = common::J2_PROPS.len() as i32;
+    o.properties = common::J2_PROPS.as_ptr();
     o.nstate = common::J2.states as i32;
     o.temperature = cli_start_temperature();
     let mut r = std::ptr::null_mut();

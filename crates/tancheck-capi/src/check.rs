@@ -66,7 +66,7 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
         // detail of the failing ones.
         tancheck_core::check::run_with(
             &mut caller,
-            &plan.props,
+            &plan.properties,
             plan.start,
             &plan.path,
             &plan.settings,
