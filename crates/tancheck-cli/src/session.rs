@@ -63,7 +63,7 @@ pub fn reporters(output: &OutputArgs, json: Option<&std::path::Path>) -> Fanout<
         f.push(Box::new(output.terminal()));
     }
     if let Some(p) = json {
-        f.push(Box::new(Json::new(p)));
+        f.push(Box::new(Json::new(p, crate::survive::stdout())));
     }
     f
 }

@@ -13,15 +13,17 @@ use tancheck_core::Report;
 use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
 use super::{write_atomic_with, Reporter};
 
-/// Writes each report it gets as a JSON document to a file (atomically), or to standard
-/// output for `-`.
-pub struct Json {
+/// Writes each report it gets as a JSON document to a file (atomically), or to `stdout` for
+/// `-`.
+pub struct Json<'a> {
     target: PathBuf,
+    stdout: Box<dyn Write + 'a>,
 }
 
-impl Json {
-    pub fn new(target: &Path) -> Json {
-        Json { target: target.to_path_buf() }
+impl<'a> Json<'a> {
+    /// `stdout` is where `-` writes (tancheck's own standard output).
+    pub fn new(target: &Path, stdout: impl Write + 'a) -> Json<'a> {
+        Json { target: target.to_path_buf(), stdout: Box::new(stdout) }
     }
 
     /// Whether the document goes to standard output (replacing the readable report).
@@ -31,9 +33,8 @@ impl Json {
 
     fn put<T: Serialize>(&mut self, kind: Kind, body: &T) -> io::Result<()> {
         if Json::to_stdout(&self.target) {
-            let mut out = crate::survive::stdout();
-            document::write(&mut out, kind, body)?;
-            out.flush()
+            document::write(&mut self.stdout, kind, body)?;
+            self.stdout.flush()
         } else {
             write_atomic_with(&self.target, |w| document::write(w, kind, body)).map_err(|e| {
                 io::Error::new(e.kind(), format!("writing the JSON report to {}: {e}", self.target.display()))
@@ -47,7 +48,7 @@ pub fn write_check(report: &Report, out: &mut dyn Write) -> io::Result<()> {
     document::write(out, Kind::Check, report)
 }
 
-impl Reporter for Json {
+impl Reporter for Json<'_> {
     fn check(&mut self, report: &Report) -> io::Result<()> {
         self.put(Kind::Check, report)
     }
