@@ -284,9 +284,9 @@ fn a_changed_library_is_a_warning_and_the_readable_replay_has_the_numbers() {
         J2_PATH,
     );
     let case = cases_of(&m, false).remove(0);
-    // The library path in the case is relative to the case folder.
+    // The library path in the case is relative to the case folder (tancheck-cases/m/).
     let c = read(&case);
-    assert_eq!(c["routine"]["library"], "../libcopy.so");
+    assert_eq!(c["routine"]["library"], "../../libcopy.so");
     let o = bin().arg("replay").arg(&case).output().unwrap();
     let t = text(&o);
     assert_eq!(o.status.code(), Some(1), "{t}");
