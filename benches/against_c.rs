@@ -26,7 +26,6 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion, SamplingMode};
 use tancheck::cli::load::Loaded;
-use tancheck::cli::report::json::Json;
 use tancheck::cli::report::terminal::{Detail, Terminal};
 use tancheck::cli::report::Reporter;
 use tancheck::core::path::Path;
@@ -166,9 +165,9 @@ fn bench(crit: &mut Criterion) {
                     for _ in 0..iters {
                         let (report, ..) = tancheck_walk(l, start, ex, &path);
                         let mut text = std::io::sink();
-                        Terminal { detail: Detail::Normal }.write(&report, &mut text).unwrap();
+                        Terminal::new(Detail::Normal, &mut text).check(&report).unwrap();
                         let mut json = Vec::new();
-                        Json.write(&report, &mut json).unwrap();
+                        tancheck::cli::report::json::write_check(&report, &mut json).unwrap();
                         std::hint::black_box(json.len());
                     }
                     let e = begin.elapsed();

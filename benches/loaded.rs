@@ -20,7 +20,6 @@ use std::time::{Duration, Instant};
 
 use criterion::{criterion_group, criterion_main, Criterion, SamplingMode};
 use tancheck::cli::load::Loaded;
-use tancheck::cli::report::json::Json;
 use tancheck::cli::report::terminal::{Detail, Terminal};
 use tancheck::cli::report::Reporter;
 use tancheck::cli::suite::Suite;
@@ -136,9 +135,9 @@ fn bench(c: &mut Criterion) {
                     let mut caller = Caller::new(l.routine());
                     let report = check::run(&mut caller, J2.props, start.clone(), &path, &settings).unwrap();
                     assert_eq!(report.verdict, Verdict::Pass);
-                    Terminal { detail: Detail::Normal }.write(&report, &mut std::io::sink()).unwrap();
+                    Terminal::new(Detail::Normal, std::io::sink()).check(&report).unwrap();
                     let mut json = Vec::new();
-                    Json.write(&report, &mut json).unwrap();
+                    tancheck::cli::report::json::write_check(&report, &mut json).unwrap();
                     json.len()
                 })
             },

@@ -262,6 +262,6 @@ pub fn failure_message(report: &Report) -> String {
 fn readable(report: &Report) -> String {
     let mut buf = Vec::new();
     // Writing into a Vec cannot fail.
-    let _ = Terminal { detail: Detail::Quiet }.write(report, &mut buf);
+    let _ = Terminal::new(Detail::Quiet, &mut buf).check(report);
     String::from_utf8_lossy(&buf).into_owned()
 }

@@ -83,9 +83,13 @@ fn a_null_dereference_is_a_crash_with_exit_3_and_the_report_is_finished() {
     assert!(t.contains("verdict: FAULT"), "{t}");
     let r: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
     assert_eq!(r["verdict"], "routine-fault");
-    assert_eq!(r["increments"][1]["fault"]["signal"], 11);
+    // The compact report: full detail for the faulted increment, a record for each.
+    let faulted = r["increments"].as_array().unwrap().iter().find(|i| i["fault"].is_object()).unwrap();
+    assert_eq!(faulted["index"], 2);
+    assert_eq!(faulted["fault"]["signal"], 11);
     // Increment 1 was checked normally before the crash.
-    assert_eq!(r["increments"][0]["checks"][0]["tangent"]["pass"], true);
+    assert_eq!(r["records"][0]["index"], 1);
+    assert_eq!(r["records"][0]["pass"], true);
 }
 
 #[test]
@@ -395,7 +399,12 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
         "ok.json",
         r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
     );
+    // The cases are another routine's: set aside unless asked for.
     let o = bin().arg("check").arg(&ok).arg("--cases").arg(&cases).output().unwrap();
+    let t = text(&o);
+    assert!(t.contains("of other routines"), "{t}");
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    let o = bin().arg("check").arg(&ok).arg("--cases").arg(&cases).arg("--all-cases").output().unwrap();
     let t = text(&o);
     assert!(t.contains("== cases in"), "{t}");
     assert!(t.contains("broken.json"), "{t}");

@@ -262,9 +262,9 @@ fn a_changed_library_is_a_warning_and_the_readable_replay_has_the_numbers() {
         J2_PATH,
     );
     let case = cases_of(&m, false).remove(0);
-    // The library path in the case is relative to the case folder.
+    // The library path in the case is relative to the case folder (tancheck-cases/m/).
     let c = read(&case);
-    assert_eq!(c["routine"]["library"], "../libcopy.so");
+    assert_eq!(c["routine"]["library"], "../../libcopy.so");
     let o = bin().arg("replay").arg(&case).output().unwrap();
     let t = text(&o);
     assert_eq!(o.status.code(), Some(1), "{t}");
@@ -313,7 +313,8 @@ fn a_folder_of_cases_is_a_regression_suite_and_broken_files_are_warnings() {
     let cases = cases_of(&m, true);
     assert_eq!(cases.len(), 2);
     let dir = cases[0].parent().unwrap().to_path_buf();
-    assert_eq!(dir, d.join("tancheck-cases"));
+    // Each manifest has its own case folder.
+    assert_eq!(dir, d.join("tancheck-cases").join("m"));
     // The fix: the consistent J2 model has the same layout; its tangent passes at that call.
     let text0 = std::fs::read_to_string(&cases[0]).unwrap();
     let fixed = text0.replace("\"model\": \"j2-elastic-first-plastic\"", "\"model\": \"j2\"");
@@ -345,7 +346,14 @@ fn a_folder_of_cases_is_a_regression_suite_and_broken_files_are_warnings() {
     assert!(bits_warning.contains("16 hex digits"), "{bits_warning}");
     assert!(r.broken.iter().any(|b| b.contains("cut.json") && b.contains("EOF")), "{:#?}", r.broken);
     let mut out = Vec::new();
-    r.write_summary(&dir, &mut out).unwrap();
+    {
+        use tancheck::cli::report::Reporter;
+        let mut t = tancheck::cli::report::terminal::Terminal::new(
+            tancheck::cli::report::terminal::Detail::Normal,
+            &mut out,
+        );
+        t.cases(&r).unwrap();
+    }
     let s = String::from_utf8(out).unwrap();
     assert!(s.contains("cases: 1 pass, 2 fail, 3 broken"), "{s}");
     // A missing folder is a warning too, not a crash.

@@ -3,7 +3,6 @@
 use std::ffi::CString;
 use std::fmt::Write as _;
 
-use serde_json::{json, Value};
 use tancheck_abi::guard::{ComplexFn, RealFn};
 use tancheck_abi::{GuardFinding, GuardLevel, LibraryRoutine, LoadError};
 use tancheck_core::{Caller, Report, Verdict};
@@ -63,8 +62,18 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
     }
     let report = {
         let mut caller = Caller::new(&mut routine);
-        tancheck_core::check::run(&mut caller, &plan.properties, plan.start, &plan.path, &plan.settings)
-            .map_err(Failure::invalid)?
+        // The compact report, as the command line writes it: a record per increment, the full
+        // detail of the failing ones.
+        tancheck_core::check::run_with(
+            &mut caller,
+            &plan.properties,
+            plan.start,
+            &plan.path,
+            &plan.settings,
+            tancheck_core::report::Keep::Failures,
+            &mut |_| {},
+        )
+        .map_err(Failure::invalid)?
     };
     let findings = routine.take_findings();
     Ok(finish(report, findings, plan.guard_level, routine.guard_calls()))
@@ -78,22 +87,9 @@ pub fn finish(
     level: GuardLevel,
     guard_calls: u64,
 ) -> CheckResult {
-    if !findings.is_empty() {
-        report.verdict = Verdict::RoutineFault;
-        for f in &findings {
-            report.notes.push(format!("memory guard: {f}"));
-        }
-    }
-    let mut value = serde_json::to_value(&report).expect("the report model serialises");
-    let guard = json!({
-        "level": level.name(),
-        "extra_calls": guard_calls,
-        "findings": findings.iter().map(finding_json).collect::<Vec<_>>(),
-    });
-    if let Value::Object(map) = &mut value {
-        map.insert("guard".into(), guard);
-    }
-    let json = serde_json::to_string_pretty(&value).expect("a JSON value prints");
+    tancheck_abi::memory_guards::report::add_to_report(&mut report, level, guard_calls, &findings);
+    let json =
+        tancheck_core::report::document::to_string(tancheck_core::report::document::Kind::Check, &report);
     let summary = summary(&report, &findings);
     CheckResult {
         finding_texts: findings.iter().map(|f| c_string(f.to_string())).collect(),
@@ -104,27 +100,6 @@ pub fn finish(
         guard_level: level,
         guard_calls,
     }
-}
-
-fn finding_json(f: &GuardFinding) -> Value {
-    use tancheck_abi::FindingKind as K;
-    json!({
-        "kind": match f.kind {
-            K::Overrun => "overrun",
-            K::InputWritten => "input-written",
-            K::Unwritten => "unwritten",
-            K::OverRead => "over-read",
-            K::Unrepeatable => "unrepeatable",
-        },
-        "array": f.array.name(),
-        "length": f.len,
-        "index": f.first,
-        "entries": f.entries,
-        "increment": f.increment,
-        "complex": f.complex,
-        "calls": f.calls,
-        "message": f.to_string(),
-    })
 }
 
 /// One line: verdict, routine, each scheme's result, the first fault or finding.

@@ -143,7 +143,10 @@ fn a_consistent_routine_passes() {
         assert_eq!(j["guard"]["level"], "light");
         assert_eq!(j["guard"]["findings"].as_array().unwrap().len(), 0);
         assert_eq!(j["routine"]["nprop"], 2);
-        assert_eq!(j["increments"].as_array().unwrap().len(), 12);
+        assert_eq!(j["format"], "tancheck-report");
+        assert_eq!(j["version"], 1);
+        assert_eq!(j["kind"], "check");
+        assert_eq!(j["records"].as_array().unwrap().len(), 12);
         tck_result_free(r);
     }
 }

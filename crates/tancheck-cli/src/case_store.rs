@@ -148,3 +148,18 @@ pub fn write_case(dir: &FsPath, case: &Case) -> Result<PathBuf> {
         .with_context(|| format!("writing the case {}", file.display()))?;
     Ok(file)
 }
+
+/// The default case folder of a manifest: `tancheck-cases/<manifest file name without
+/// extension>/` in the manifest's folder `dir`, so the cases of manifests side by side (one
+/// routine each) never mix.
+pub fn default_case_dir(manifest: &FsPath, dir: &FsPath) -> PathBuf {
+    let stem =
+        manifest.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "manifest".into());
+    dir.join("tancheck-cases").join(stem)
+}
+
+/// The routine part of a case about the routine a manifest names (to pick its cases out of
+/// a folder).
+pub fn case_routine_of(m: &Manifest, dir: &FsPath) -> Result<CaseRoutine> {
+    open_for_manifest(m, dir).map(|(_, spec)| spec)
+}

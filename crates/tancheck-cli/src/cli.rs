@@ -11,8 +11,9 @@ use tancheck_core::{Caller, PointKind, Scheme};
 use crate::exit;
 use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
-use crate::report::terminal::Detail;
-use crate::report::{files, html, junit, write_atomic};
+use crate::report::model::SuiteContext;
+use crate::report::Reporter;
+use tancheck_core::report::Keep;
 // Kept reachable here for older callers; their home is session.rs (and demo.rs for DemoArgs).
 pub use crate::demo::DemoArgs;
 pub use crate::session::{default_path, emit, routine_name, run_manifest};
@@ -45,25 +46,28 @@ enum Command {
     /// Build the bundled example routines and check them.
     Demo(DemoArgs),
     /// List the built-in reference models and their properties.
-    Models,
-    /// Run the zoo of routines with known flaws and show what the checker finds.
-    Selftest {
-        /// Print the full report of every routine.
+    Models {
+        /// Print the names only.
         #[arg(short, long)]
-        verbose: bool,
-        /// Write JUnit XML to FILE: a test case per row.
-        #[arg(long, value_name = "FILE")]
-        junit: Option<PathBuf>,
-        /// Write the table as an HTML page to FILE.
-        #[arg(long, value_name = "FILE")]
-        html: Option<PathBuf>,
+        quiet: bool,
     },
+    /// Run the zoo of routines with known flaws and show what the checker finds.
+    Selftest(SelftestArgs),
     /// Print a shell completion script (for packagers).
     #[command(hide = true)]
     Completions(crate::cmd_packaging::CompletionsArgs),
     /// Print the man page, or write every page into a folder (for packagers).
     #[command(hide = true)]
     Man(crate::cmd_packaging::ManArgs),
+}
+
+#[derive(Args, Debug)]
+struct SelftestArgs {
+    /// Write the rows as JSON to FILE (`-` for standard output, replacing the table).
+    #[arg(long, value_name = "FILE")]
+    json: Option<PathBuf>,
+    #[command(flatten)]
+    output: crate::session::OutputArgs,
 }
 
 /// The command line's definition (for generated completions and man pages).
@@ -93,12 +97,6 @@ struct CheckArgs {
     /// Write the JSON report to FILE (`-` for standard output, replacing the readable report).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
-    /// Write the HTML report to FILE: one self-contained page with the summary and plots.
-    #[arg(long, value_name = "FILE")]
-    html: Option<PathBuf>,
-    /// Write JUnit XML to FILE: a test case per scheme and one for the verdict.
-    #[arg(long, value_name = "FILE")]
-    junit: Option<PathBuf>,
     /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
     #[arg(long)]
     fp_traps: bool,
@@ -106,10 +104,16 @@ struct CheckArgs {
     /// full (also reads past the end of inputs; twice the calls).
     #[arg(long, value_name = "LEVEL")]
     guards: Option<String>,
-    /// A folder of case files (written by `tancheck bisect`) to replay first, as a regression
-    /// suite counted separately; a broken case file is a warning, a missing folder an error.
-    #[arg(long, value_name = "DIR")]
-    cases: Option<PathBuf>,
+    /// Replay case files (written by `tancheck bisect`) first, as a regression suite counted
+    /// separately: without DIR the manifest's own case folder (tancheck-cases/<manifest name>/
+    /// beside it). Only the cases of the routine this manifest names run; the others are
+    /// listed and set aside (--all-cases runs them too). A broken case file is a warning, a
+    /// missing folder an error.
+    #[arg(long, value_name = "DIR", num_args = 0..=1)]
+    cases: Option<Option<PathBuf>>,
+    /// With --cases: replay every case in the folder, whatever routine it was written for.
+    #[arg(long, requires = "cases")]
+    all_cases: bool,
     /// Run the routine in a child worker process, so that also _exit, SIGKILL, and anything
     /// that breaks the process beyond the guard become reported faults.
     #[arg(long)]
@@ -121,12 +125,8 @@ struct CheckArgs {
     /// Time limit for the whole check, in seconds (above 0, at most 86400).
     #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_SUITE_TIMEOUT, value_parser = crate::survive::parse_seconds)]
     suite_timeout: f64,
-    /// Print only failures and the verdict.
-    #[arg(short, long, conflicts_with = "verbose")]
-    quiet: bool,
-    /// Print the details of every check.
-    #[arg(short, long)]
-    verbose: bool,
+    #[command(flatten)]
+    output: crate::session::OutputArgs,
 }
 
 #[derive(Args, Debug)]
@@ -154,18 +154,8 @@ struct ProbeArgs {
     /// Write the JSON report to FILE (`-` for standard output).
     #[arg(long, value_name = "FILE")]
     json: Option<PathBuf>,
-    /// Write the HTML report to FILE: one self-contained page with the probes' plots.
-    #[arg(long, value_name = "FILE")]
-    html: Option<PathBuf>,
-    /// Write JUnit XML to FILE: a test case per probe.
-    #[arg(long, value_name = "FILE")]
-    junit: Option<PathBuf>,
-    /// Print only failed probes and the verdict.
-    #[arg(short, long, conflicts_with = "verbose")]
-    quiet: bool,
-    /// Print the details of every probe.
-    #[arg(short, long)]
-    verbose: bool,
+    #[command(flatten)]
+    output: crate::session::OutputArgs,
 }
 
 /// The level of `--guards`.
@@ -199,10 +189,8 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
-        Command::Models => cmd_models(),
-        Command::Selftest { verbose, junit, html } => {
-            crate::selftest::run_with(verbose, junit.as_deref(), html.as_deref())
-        }
+        Command::Models { quiet } => cmd_models(quiet),
+        Command::Selftest(a) => crate::selftest::run_with(&a.output, a.json.as_deref()),
         Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
         Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };
@@ -225,10 +213,9 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
-    files::check_output(a.html.as_deref(), "--html")?;
-    files::check_output(a.junit.as_deref(), "--junit")?;
+    a.output.check_files()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), a.quiet);
+        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), a.output.quiet);
     }
     // An earlier report under the same name is replaced at once by an "incomplete" marker.
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
@@ -252,7 +239,14 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         return crate::isolate::run_isolated(&args, a.json.as_deref(), a.call_timeout, a.suite_timeout);
     }
     let mut case_code = exit::PASS;
-    if let Some(cases) = &a.cases {
+    let (mut m, dir) = Manifest::load(&a.manifest)?;
+    let file = a.manifest.display().to_string();
+    // `--cases` without a folder: the manifest's own.
+    let cases = a.cases.as_ref().map(|c| match c {
+        Some(c) => c.clone(),
+        None => crate::case_store::default_case_dir(&a.manifest, &dir),
+    });
+    if let Some(cases) = &cases {
         if !cases.is_dir() {
             bail!(
                 "--cases {}: {}",
@@ -261,13 +255,24 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
             );
         }
     }
-    let (mut m, dir) = Manifest::load(&a.manifest)?;
-    let file = a.manifest.display().to_string();
     crate::survive::set_routine(a.json.as_deref(), &routine_name(&m));
     crate::survive::start_watchdog(a.call_timeout, Some(a.suite_timeout));
-    if let Some(cases) = &a.cases {
-        let r = crate::cmd_replay::run_case_folder(cases);
-        r.write_summary(cases, &mut crate::survive::stdout())?;
+    if let Some(cases) = &cases {
+        let mine = if a.all_cases {
+            None
+        } else {
+            Some(
+                crate::case_store::case_routine_of(&m, &dir)
+                    .with_context(|| format!("loading the routine of {file}"))?,
+            )
+        };
+        let r = crate::cmd_replay::run_case_folder_of(cases, mine.as_ref());
+        // The cases go to the terminal only (the JSON report is the check's).
+        if !a.json.as_deref().is_some_and(crate::report::json::Json::to_stdout) {
+            let mut t = a.output.terminal();
+            t.cases(&r)?;
+            t.finish()?;
+        }
         case_code = r.exit_code();
     }
     if !a.schemes.is_empty() {
@@ -291,17 +296,13 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         Some(p) => path_arg(p)?,
         None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
     };
-    let report = run_manifest(&m, &dir, &path).with_context(|| format!("checking the routine of {file}"))?;
-    let detail = if a.quiet {
-        Detail::Quiet
-    } else if a.verbose {
-        Detail::Verbose
-    } else {
-        Detail::Normal
-    };
-    emit(&report, detail, a.json.as_deref())?;
-    files::write_report(a.html.as_deref(), "the HTML report", || Ok(html::check_page(&report)))?;
-    files::write_report(a.junit.as_deref(), "the JUnit report", || junit::check_junit([&report]))?;
+    // The compact report (full detail of failures only) unless every check's details are asked for.
+    let keep = if a.output.verbose { Keep::All } else { Keep::Failures };
+    let report = crate::session::run_manifest_with(&m, &dir, &path, keep, a.output.shows_progress())
+        .with_context(|| format!("checking the routine of {file}"))?;
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.check(&report)?;
+    reporters.finish()?;
     // The worse of the cases' and the check's outcome (a fault before a failure).
     Ok(match (case_code, report.exit_code()) {
         (3, _) | (_, 3) => exit::ROUTINE_FAULT,
@@ -311,8 +312,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
-    files::check_output(a.html.as_deref(), "--html")?;
-    files::check_output(a.junit.as_deref(), "--junit")?;
+    a.output.check_files()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::probe(&a.manifest, a.json.as_deref());
     }
@@ -365,68 +365,31 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     .map_err(anyhow::Error::msg);
     crate::survive::checking(false);
     let report = report?;
-    let mut out = crate::survive::stdout();
-    let to_stdout = a.json.as_ref().is_some_and(|p| p.as_os_str() == "-");
-    if let Some(p) = &a.json {
-        let text = serde_json::to_vec_pretty(&report)?;
-        if to_stdout {
-            out.write_all(&text)?;
-            writeln!(out)?;
-        } else {
-            write_atomic(p, &text).with_context(|| format!("writing {}", p.display()))?;
-        }
-    }
-    if !to_stdout {
-        let source = if a.path.is_some() {
-            "from --path"
-        } else if m.path.is_some() && !a.suite_path {
-            "the manifest's"
-        } else {
-            "the suite's"
-        };
-        if !a.quiet {
-            writeln!(out, "== {} — suite {} ==", report.routine, report.suite)?;
-            writeln!(out, "   path ({source}): {}", report.path)?;
-            for n in &notes {
-                writeln!(out, "   note: {n}")?;
-            }
-            writeln!(out)?;
-        }
-        for r in &report.results {
-            let failed = r.status == tancheck_core::probe::ProbeStatus::Fail;
-            if a.quiet && !failed {
-                continue;
-            }
-            writeln!(out, "   {:<15} {:<8} {}", r.probe, r.status.word(), r.summary)?;
-            if a.verbose || failed {
-                for d in &r.details {
-                    writeln!(out, "                            {d}")?;
-                }
-            }
-        }
-        let failed =
-            report.results.iter().filter(|r| r.status == tancheck_core::probe::ProbeStatus::Fail).count();
-        writeln!(
-            out,
-            "\n   verdict: {} — {} of {} probes failed (exit {})",
-            if report.pass { "PASS" } else { "FAIL" },
-            failed,
-            report.results.len(),
-            if report.pass { 0 } else { 1 }
-        )?;
-        if !a.quiet {
-            for c in &report.cautions {
-                writeln!(out, "   caution: {c}")?;
-            }
-        }
-    }
-    files::write_report(a.html.as_deref(), "the HTML report", || Ok(html::probe_page(&report)))?;
-    files::write_report(a.junit.as_deref(), "the JUnit report", || junit::probe_junit([&report]))?;
+    let source = if a.path.is_some() {
+        "from --path"
+    } else if m.path.is_some() && !a.suite_path {
+        "the manifest's"
+    } else {
+        "the suite's"
+    };
+    let context = SuiteContext { path_source: source.into(), notes };
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.suite(&report, &context)?;
+    reporters.finish()?;
     Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
 }
 
-fn cmd_models() -> Result<i32> {
+fn cmd_models(quiet: bool) -> Result<i32> {
     let mut out = crate::survive::stdout();
+    if quiet {
+        for e in tancheck_models::zoo::zoo() {
+            writeln!(out, "{}", e.name)?;
+        }
+        for name in ["orthotropic", "johnson-cook", "johnson-cook-no-rate-term"] {
+            writeln!(out, "{name}")?;
+        }
+        return Ok(exit::PASS);
+    }
     writeln!(
         out,
         "Built-in models (\"model\": NAME in a manifest); the flawed ones are the selftest's zoo.\n"

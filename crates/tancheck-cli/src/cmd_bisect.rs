@@ -4,22 +4,21 @@
 //! (mismatch, truncation or noise), and a shrunk path that still fails. The failing calls are
 //! written as case files for `tancheck replay`.
 
-use std::io::Write;
 use std::path::{Path as FsPath, PathBuf};
 
 use anyhow::{Context, Result};
 use clap::Args;
-use serde::Serialize;
 
-use tancheck_core::bisect::{self, BisectSettings, Inside, Located, ShrinkLimits, ShrinkStop, StepVerdict};
+use tancheck_core::bisect::{self, BisectSettings, Located, ShrinkLimits, ShrinkStop};
 use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
 use tancheck_core::path::Path;
-use tancheck_core::{check, Caller, PointState, Settings, Verdict};
+use tancheck_core::{check, Caller, PointState, Settings};
 
 use crate::case_store::{open_for_manifest, write_case};
 use crate::exit;
 use crate::load::start_state;
 use crate::manifest::{parse_path_arg, Manifest};
+use crate::report::Reporter;
 use crate::session::default_path;
 
 #[derive(Args, Debug)]
@@ -30,7 +29,8 @@ pub struct BisectArgs {
     /// (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic, tension-shear, mixed-mode).
     #[arg(long, value_name = "SPEC")]
     pub path: Option<String>,
-    /// Folder for the case files (default: tancheck-cases next to the manifest).
+    /// Folder for the case files (default: tancheck-cases/<manifest name>/ next to the manifest,
+    /// the folder `check --cases` replays).
     #[arg(long, value_name = "DIR")]
     pub case_dir: Option<PathBuf>,
     /// Candidate paths the shrinker checks at most; 0 skips shrinking.
@@ -45,45 +45,14 @@ pub struct BisectArgs {
     /// Write the result as JSON to FILE (`-` for standard output, replacing the readable one).
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
-    /// Write the HTML report to FILE: where inside the increment the class changes, with the
-    /// check's plots.
-    #[arg(long, value_name = "FILE")]
-    pub html: Option<PathBuf>,
     /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
     #[arg(long)]
     pub fp_traps: bool,
+    #[command(flatten)]
+    pub output: crate::session::OutputArgs,
 }
 
-/// A shrink and what it located.
-#[derive(Clone, Debug, Serialize)]
-pub struct ShrinkSummary {
-    pub path: Path,
-    pub original_increments: usize,
-    pub iterations: usize,
-    pub accepted: usize,
-    pub seconds: f64,
-    pub stop: ShrinkStop,
-    /// The stop in words, naming the option that raises the limit that stopped it.
-    pub stopped: String,
-    pub located: Option<Located>,
-}
-
-/// What `tancheck bisect` found.
-#[derive(Clone, Debug, Serialize)]
-pub struct BisectOutcome {
-    pub routine: String,
-    pub path: String,
-    pub verdict: Verdict,
-    pub finding: String,
-    pub located: Option<Located>,
-    pub shrunk: Option<ShrinkSummary>,
-    /// Case files written.
-    pub cases: Vec<PathBuf>,
-    /// Things that went wrong without stopping the bisection (a case that could not be
-    /// written, a call that did not repeat).
-    pub warnings: Vec<String>,
-    pub exit_code: i32,
-}
+pub use crate::report::model::{BisectOutcome, ShrinkSummary};
 
 /// The stop of a shrink in words, naming the option that raises its limit.
 pub fn stop_words(stop: &ShrinkStop) -> String {
@@ -144,134 +113,9 @@ fn capture(
     ))
 }
 
-fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> std::io::Result<()> {
-    writeln!(
-        out,
-        "{indent}first failing increment: {} of {}, branch {}, finding {}",
-        l.increment, l.of, l.branch, l.finding
-    )?;
-    match &l.inside {
-        Inside::Crossing(c) => {
-            writeln!(
-                out,
-                "{indent}inside increment {}: the error takes its class at fraction {:.7} of the increment \
-                 (between {:.7} and {:.7}, width {:.1e})",
-                l.increment,
-                c.fraction(),
-                c.below,
-                c.above,
-                c.above - c.below
-            )?;
-            writeln!(
-                out,
-                "{indent}  below: branch {}, {} (error {:.2e})",
-                c.class_below.branch_label(),
-                c.class_below.word(),
-                c.error_below
-            )?;
-            writeln!(
-                out,
-                "{indent}  above: branch {}, {} (error {:.2e})",
-                c.class_above.branch_label(),
-                c.class_above.word(),
-                c.error_above
-            )?;
-        }
-        Inside::Throughout { smallest } => writeln!(
-            out,
-            "{indent}inside increment {}: every fraction judged, down to {smallest:.1e}, has the class of the whole \
-             increment; the failure does not start inside it",
-            l.increment
-        )?,
-    }
-    writeln!(out, "{indent}  (fractions judged by {}: {})", l.judged_by.name(), l.samples.len())?;
-    if let Some(s) = &l.step {
-        let words = match s.verdict {
-            StepVerdict::Mismatch => format!(
-                "the discrepancy levels off at {:.2e} as the step shrinks: a true mismatch, not truncation or noise",
-                s.plateau.unwrap_or(f64::NAN)
-            ),
-            StepVerdict::Truncation => {
-                "a difference converges to the returned tangent: truncation of the default step, not a mismatch".into()
-            }
-            StepVerdict::Noise => {
-                "the discrepancy neither converges nor levels off: noise (inner solves, rounding) hides it".into()
-            }
-        };
-        writeln!(out, "{indent}in the step: {words}")?;
-        for st in &s.studies {
-            writeln!(
-                out,
-                "{indent}  {:<8} best error {:.2e} at relative step {:.0e}, slope {}, noise floor {:.2e}",
-                st.scheme.name(),
-                st.best_error,
-                st.best_rel_step,
-                st.slope.map_or("-".into(), |x| format!("{x:.2}")),
-                st.noise_floor
-            )?;
-        }
-    }
-    Ok(())
-}
-
-/// Print the outcome for the terminal.
-pub fn write_outcome(o: &BisectOutcome, out: &mut dyn Write) -> std::io::Result<()> {
-    writeln!(out, "== bisect {} ==", o.routine)?;
-    writeln!(out, "   path: {}", o.path)?;
-    match &o.located {
-        None if o.verdict == Verdict::Pass => {
-            writeln!(out, "   every increment passed: nothing to bisect")?;
-        }
-        None => {
-            // The check failed before the path: the zero increment from the start state.
-            writeln!(
-                out,
-                "   no increment of the path failed the check; the zero increment from the start state \
-                 (increment 0 of `tancheck check`) did, and it is not on the path: nothing to bisect"
-            )?;
-        }
-        Some(l) => {
-            write_located(out, l, "   ")?;
-            if let Some(s) = &o.shrunk {
-                writeln!(
-                    out,
-                    "   shrunk: {} increments to {} ({} candidates checked, {} kept, {:.1} s); {}",
-                    s.original_increments,
-                    s.path.increments.len(),
-                    s.iterations,
-                    s.accepted,
-                    s.seconds,
-                    s.stopped
-                )?;
-                for (k, inc) in s.path.increments.iter().enumerate() {
-                    writeln!(
-                        out,
-                        "     {:>3}  dstrain {:?}{}{}",
-                        k + 1,
-                        inc.dstrain,
-                        if inc.dtemp != 0.0 { format!("  dtemp {}", inc.dtemp) } else { String::new() },
-                        if inc.hold_stress.is_some() { "  (mixed control)" } else { "" }
-                    )?;
-                }
-                if let Some(l) = &s.located {
-                    write_located(out, l, "     ")?;
-                }
-            }
-        }
-    }
-    for c in &o.cases {
-        writeln!(out, "   case written: {}  (rerun: tancheck replay {})", c.display(), c.display())?;
-    }
-    for w in &o.warnings {
-        writeln!(out, "   warning: {w}")?;
-    }
-    writeln!(out, "   verdict: {} (exit {})", o.verdict.word(), o.exit_code)?;
-    Ok(())
-}
-
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
-    crate::report::files::check_output(a.html.as_deref(), "--html")?;
+    a.output.check_files()?;
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
@@ -308,7 +152,8 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         check::run(&mut caller, &props, start.clone(), &path, &settings).map_err(anyhow::Error::msg)?;
     let located = bisect::locate(&mut caller, &props, start.clone(), &path, &report, &settings, &bs)
         .map_err(anyhow::Error::msg)?;
-    let case_dir = a.case_dir.clone().unwrap_or_else(|| dir.join("tancheck-cases"));
+    let case_dir =
+        a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
     let mut warnings = Vec::new();
     let mut cases = Vec::new();
     let mut to_write = Vec::new();
@@ -330,9 +175,15 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         if a.max_shrink_iterations > 0 {
             let limits =
                 ShrinkLimits { max_iterations: a.max_shrink_iterations, max_seconds: a.max_shrink_seconds };
-            if let Some(s) = bisect::shrink(&mut caller, &props, &start, &path, &report, &settings, limits)
-                .map_err(anyhow::Error::msg)?
-            {
+            let progress = crate::report::style::Progress::new(
+                0,
+                "shrinking the failing path",
+                a.output.shows_progress(),
+            );
+            let shrunk_path = bisect::shrink(&mut caller, &props, &start, &path, &report, &settings, limits)
+                .map_err(anyhow::Error::msg)?;
+            drop(progress);
+            if let Some(s) = shrunk_path {
                 let l2 =
                     bisect::locate(&mut caller, &props, start.clone(), &s.path, &s.report, &settings, &bs)
                         .map_err(anyhow::Error::msg)?;
@@ -376,13 +227,6 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         }
     }
     crate::survive::checking(false);
-    let page = a.html.as_ref().map(|_| {
-        crate::report::html::bisect_page(&crate::report::html::BisectView {
-            report: &report,
-            located: located.as_ref(),
-            shrunk: shrunk.as_ref().and_then(|s| s.located.as_ref().map(|l| (l, s.original_increments))),
-        })
-    });
     let outcome = BisectOutcome {
         routine: info.name.clone(),
         path: path.name.clone(),
@@ -393,30 +237,12 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         cases,
         warnings,
         exit_code: report.exit_code(),
+        cautions: tancheck_core::report::CAUTIONS.iter().map(|c| c.to_string()).collect(),
+        check: Some(Box::new(report)),
     };
-    let mut out = crate::survive::stdout();
-    match &a.json {
-        Some(p) if p.as_os_str() == "-" => {
-            serde_json::to_writer_pretty(&mut out, &outcome)?;
-            writeln!(out)?;
-        }
-        other => {
-            write_outcome(&outcome, &mut out)?;
-            for c in tancheck_core::report::CAUTIONS {
-                writeln!(out, "   caution: {c}")?;
-            }
-            if let Some(p) = other {
-                let mut buf = serde_json::to_vec_pretty(&outcome)?;
-                buf.push(b'\n');
-                crate::report::write_atomic(p, &buf).with_context(|| format!("writing {}", p.display()))?;
-            }
-        }
-    }
-    crate::report::files::write_report(
-        a.html.as_deref(),
-        "the HTML report",
-        || Ok(page.unwrap_or_default()),
-    )?;
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.bisect(&outcome)?;
+    reporters.finish()?;
     Ok(if outcome.located.is_none() && outcome.exit_code == exit::PASS {
         exit::PASS
     } else {

@@ -43,6 +43,10 @@ pub struct BuildArgs {
     /// Print every compiler command.
     #[arg(short, long)]
     pub verbose: bool,
+    /// Print only the line that names the library built (and the compiler's words on
+    /// standard error).
+    #[arg(short, long, conflicts_with = "verbose")]
+    pub quiet: bool,
 }
 
 fn split(flags: &[String]) -> Vec<String> {
@@ -92,7 +96,7 @@ pub fn run(a: BuildArgs) -> Result<i32> {
             ),
         }
     )?;
-    if opts.debug {
+    if opts.debug && !a.quiet {
         writeln!(
             out,
             "debug build: `tancheck check` runs this library with floating-point traps on \

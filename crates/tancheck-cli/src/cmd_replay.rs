@@ -4,12 +4,10 @@
 //! regression runner over a folder of cases ([`run_case_folder`]). Opening the routine and
 //! writing case files live in case_store.rs, shared with `tancheck bisect`.
 
-use std::io::Write;
 use std::path::{Path as FsPath, PathBuf};
 
-use anyhow::{Context, Result};
+use anyhow::Result;
 use clap::Args;
-use serde::Serialize;
 
 use tancheck_abi::Library;
 use tancheck_core::case::{self, Case, CaseError, CaseRoutine, Numbers, ParsedCase, ProbeCheck};
@@ -17,6 +15,7 @@ use tancheck_core::{Caller, Routine, RoutineInfo};
 use tancheck_models::zoo::zoo_model;
 
 use crate::exit;
+use crate::report::Reporter;
 
 #[derive(Args, Debug)]
 pub struct ReplayArgs {
@@ -29,6 +28,8 @@ pub struct ReplayArgs {
     /// Do not walk the case's path to see that it still leads to the saved call.
     #[arg(long)]
     pub no_walk: bool,
+    #[command(flatten)]
+    pub output: crate::session::OutputArgs,
 }
 
 pub use crate::case_store::{case_file_name, open_for_manifest, sha256_file, write_case, Opened};
@@ -114,35 +115,7 @@ fn open_for_case(
     Ok(Opened::Library(Box::new(routine)))
 }
 
-/// What a replay found, as printed and as JSON.
-#[derive(Clone, Debug, Serialize)]
-pub struct ReplayReport {
-    pub case: String,
-    pub routine: String,
-    /// Where the call was met: the path, the increment, its branch.
-    pub origin: String,
-    pub warnings: Vec<String>,
-    /// Stress, state, tangent, status and branch are those of the case, bit for bit.
-    pub identical: bool,
-    pub differences: Vec<String>,
-    pub fault: Option<String>,
-    pub status: i32,
-    pub branch: i32,
-    pub stress: Numbers,
-    pub state: Numbers,
-    pub tangent: Numbers,
-    pub checks: Vec<ProbeCheck>,
-    /// The verdict of the call now, and what the diagnosis found; the finding of the case.
-    pub pass: bool,
-    pub finding: String,
-    pub recorded_finding: String,
-    /// "yes" when walking the case's path reaches the call bit for bit, else why not.
-    pub path_leads_here: Option<String>,
-    /// The command that reruns the case under a debugger, as a shell line and as words.
-    pub debugger: String,
-    pub debugger_args: Vec<String>,
-    pub exit_code: i32,
-}
+pub use crate::report::model::{CaseFolderResult, CaseRun, ReplayReport};
 
 /// A case read and opened, or why it cannot be run.
 struct Prepared {
@@ -260,93 +233,6 @@ pub fn replay_file(file: &FsPath, walk: bool) -> Result<ReplayReport, String> {
     replay_prepared(file, p, walk)
 }
 
-fn numbers_line(v: &Numbers) -> String {
-    v.bits
-        .iter()
-        .map(|b| format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0))))
-        .collect::<Vec<_>>()
-        .join(" ")
-}
-
-/// Print a replay for the terminal.
-pub fn write_replay(r: &ReplayReport, n: usize, out: &mut dyn Write) -> std::io::Result<()> {
-    writeln!(out, "== replay of {} ==", r.case)?;
-    writeln!(out, "   routine: {}", r.routine)?;
-    writeln!(out, "   call: {}", r.origin)?;
-    for w in &r.warnings {
-        writeln!(out, "   warning: {w}")?;
-    }
-    if let Some(f) = &r.fault {
-        writeln!(out, "   the call faulted: {f}")?;
-    }
-    if r.identical {
-        writeln!(
-            out,
-            "   outputs: the same as in the case, bit for bit (status, branch, stress, state, tangent)"
-        )?;
-    } else {
-        writeln!(out, "   outputs DIFFER from the case:")?;
-        for d in &r.differences {
-            writeln!(out, "     {d}")?;
-        }
-    }
-    writeln!(out, "   status {}, branch {}", r.status, r.branch)?;
-    writeln!(out, "   stress  {}", numbers_line(&r.stress))?;
-    writeln!(out, "   tangent (row i: ∂σ_i/∂Δε_j, j = 1 … {n})")?;
-    for i in 0..n {
-        let row: Vec<String> = (0..n)
-            .map(|j| {
-                let b = r.tangent.bits.get(i + j * n).map(String::as_str).unwrap_or("0");
-                format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0)))
-            })
-            .collect();
-        writeln!(out, "     {}", row.join(" "))?;
-    }
-    for c in &r.checks {
-        match c.outcome.as_str() {
-            "compared" => writeln!(
-                out,
-                "   {:<13} {}  norm error {:e}, worst entry error {:e} (tolerance {:e}){}",
-                c.scheme.name(),
-                if c.pass { "agrees " } else { "DIFFERS" },
-                c.norm_error.unwrap_or(f64::NAN),
-                c.worst_entry_error.unwrap_or(f64::NAN),
-                c.tol.unwrap_or(f64::NAN),
-                c.worst
-                    .iter()
-                    .filter(|e| !c.pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
-                    .take(2)
-                    .map(|e| format!(
-                        "; {} returned {:e}, derivative {:e}",
-                        e.label,
-                        e.returned.unwrap_or(f64::NAN),
-                        e.numerical.unwrap_or(f64::NAN)
-                    ))
-                    .collect::<String>()
-            )?,
-            other => {
-                writeln!(out, "   {:<13} {other}: {}", c.scheme.name(), c.detail.as_deref().unwrap_or(""))?
-            }
-        }
-    }
-    writeln!(out, "   finding: {} (the case recorded {})", r.finding, r.recorded_finding)?;
-    if let Some(p) = &r.path_leads_here {
-        if p == "yes" {
-            writeln!(out, "   path: walking the case's path reaches this call bit for bit")?;
-        } else {
-            writeln!(out, "   path: {p}")?;
-        }
-    }
-    let what = match r.exit_code {
-        exit::PASS => "PASS — the returned tangent is the derivative at this call now",
-        exit::TANGENT_FAILURE => "FAIL — the returned tangent still differs from the derivative at this call",
-        _ => "FAULT — the routine crashed or failed at this call",
-    };
-    writeln!(out, "   verdict: {what} (exit {})", r.exit_code)?;
-    writeln!(out, "   to rerun it under a debugger: {}", r.debugger)?;
-    Ok(())
-}
-
 /// `tancheck replay`.
 pub fn run(a: &ReplayArgs) -> Result<i32> {
     crate::survive::begin_report(a.json.as_deref(), &a.case.display().to_string())?;
@@ -367,102 +253,23 @@ pub fn run(a: &ReplayArgs) -> Result<i32> {
             return Ok(exit::BAD_INPUT);
         }
     };
-    let n = report.stress.bits.len();
-    let mut out = crate::survive::stdout();
-    match &a.json {
-        Some(p) if p.as_os_str() == "-" => {
-            serde_json::to_writer_pretty(&mut out, &report)?;
-            writeln!(out)?;
-        }
-        other => {
-            write_replay(&report, n, &mut out)?;
-            if let Some(p) = other {
-                let mut buf = serde_json::to_vec_pretty(&report)?;
-                buf.push(b'\n');
-                crate::report::write_atomic(p, &buf).with_context(|| format!("writing {}", p.display()))?;
-            }
-        }
-    }
-    if a.json.as_ref().is_none_or(|p| p.as_os_str() != "-") {
-        for c in tancheck_core::report::CAUTIONS {
-            writeln!(out, "   caution: {c}")?;
-        }
-    }
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.replay(&report)?;
+    reporters.finish()?;
     Ok(report.exit_code)
-}
-
-/// One case of a folder, replayed.
-#[derive(Clone, Debug, Serialize)]
-pub struct CaseRun {
-    pub file: PathBuf,
-    pub report: ReplayReport,
-}
-
-/// A folder of cases run as a regression suite: the cases whose call passes its check now,
-/// those that still fail (or fault), and the files that could not be run, as warnings with
-/// file and line. Other warnings (a changed library, a decimal that does not match its bits)
-/// are in `warnings`.
-#[derive(Clone, Debug, Default, Serialize)]
-pub struct CaseFolderResult {
-    pub passed: Vec<CaseRun>,
-    pub failed: Vec<CaseRun>,
-    pub broken: Vec<String>,
-    pub warnings: Vec<String>,
-}
-
-impl CaseFolderResult {
-    /// 0 when no case failed, 1 when one still fails its check, 3 when one faults (broken
-    /// files only warn).
-    pub fn exit_code(&self) -> i32 {
-        if self.failed.iter().any(|c| c.report.exit_code == exit::ROUTINE_FAULT) {
-            exit::ROUTINE_FAULT
-        } else if self.failed.is_empty() {
-            exit::PASS
-        } else {
-            exit::TANGENT_FAILURE
-        }
-    }
-
-    /// A summary for the terminal: one line per case, then the counts.
-    pub fn write_summary(&self, dir: &FsPath, out: &mut dyn Write) -> std::io::Result<()> {
-        writeln!(out, "== cases in {} ==", dir.display())?;
-        for c in self.failed.iter().chain(&self.passed) {
-            let r = &c.report;
-            writeln!(
-                out,
-                "   {} {}: {}{}",
-                if r.pass {
-                    "pass"
-                } else if r.exit_code == exit::ROUTINE_FAULT {
-                    "FAULT"
-                } else {
-                    "FAIL"
-                },
-                c.file.file_name().map(|f| f.to_string_lossy()).unwrap_or_default(),
-                r.finding,
-                if r.identical { String::new() } else { " (outputs differ from the case)".into() }
-            )?;
-        }
-        for b in &self.broken {
-            writeln!(out, "   warning: broken case {b}")?;
-        }
-        for w in &self.warnings {
-            writeln!(out, "   warning: {w}")?;
-        }
-        writeln!(
-            out,
-            "   cases: {} pass, {} fail, {} broken",
-            self.passed.len(),
-            self.failed.len(),
-            self.broken.len()
-        )
-    }
 }
 
 /// Run every `*.json` case in `dir` (sorted by name), before the paths of a check. Nothing
 /// here fails the run: an unreadable folder or a broken file is a warning in `broken`.
 pub fn run_case_folder(dir: &FsPath) -> CaseFolderResult {
-    let mut result = CaseFolderResult::default();
+    run_case_folder_of(dir, None)
+}
+
+/// [`run_case_folder`], running only the cases of `routine` when given (the others are
+/// listed in `other_routines`, not run): a case belongs to a routine when both name the same
+/// built-in model, or the same symbol in the same library file.
+pub fn run_case_folder_of(dir: &FsPath, routine: Option<&CaseRoutine>) -> CaseFolderResult {
+    let mut result = CaseFolderResult { folder: dir.to_path_buf(), ..CaseFolderResult::default() };
     let entries = match std::fs::read_dir(dir) {
         Ok(e) => e,
         Err(e) => {
@@ -476,6 +283,14 @@ pub fn run_case_folder(dir: &FsPath) -> CaseFolderResult {
         .collect();
     files.sort();
     for file in files {
+        if let Some(mine) = routine {
+            if let Some(theirs) = routine_of_case(&file) {
+                if !same_routine(mine, &theirs, &file) {
+                    result.other_routines.push(file);
+                    continue;
+                }
+            }
+        }
         match prepare(&file).and_then(|p| replay_prepared(&file, p, true)) {
             Err(m) => result.broken.push(m),
             Ok(mut report) => {
@@ -494,4 +309,38 @@ pub fn run_case_folder(dir: &FsPath) -> CaseFolderResult {
         }
     }
     result
+}
+
+/// The routine part of a case file, when it parses (a broken file is run, and reported).
+fn routine_of_case(file: &FsPath) -> Option<CaseRoutine> {
+    let text = std::fs::read_to_string(file).ok()?;
+    Case::parse(&text).ok().map(|p| p.case.routine)
+}
+
+/// Whether the case routine `theirs` (of the case `file`) is the routine `mine` (from a
+/// manifest, library path absolute): the same model, or the same symbol in the same library.
+fn same_routine(mine: &CaseRoutine, theirs: &CaseRoutine, file: &FsPath) -> bool {
+    if mine.model.is_some() || theirs.model.is_some() {
+        return mine.model == theirs.model;
+    }
+    if mine.symbol != theirs.symbol {
+        return false;
+    }
+    let canonical = |p: &FsPath| std::fs::canonicalize(p).ok();
+    let mine_lib = mine.library.as_deref().map(FsPath::new).and_then(canonical);
+    let folder = file.parent().unwrap_or(FsPath::new("."));
+    let theirs_lib = theirs
+        .library
+        .as_deref()
+        .map(|l| folder.join(l))
+        .and_then(|p| canonical(&p))
+        .or_else(|| theirs.library_absolute.as_deref().map(FsPath::new).and_then(canonical));
+    match (mine_lib, theirs_lib) {
+        (Some(a), Some(b)) => a == b,
+        // A library that cannot be found: same file name, same routine.
+        _ => {
+            let name = |l: Option<&str>| l.and_then(|l| FsPath::new(l).file_name().map(|f| f.to_owned()));
+            name(mine.library.as_deref()) == name(theirs.library.as_deref())
+        }
+    }
 }

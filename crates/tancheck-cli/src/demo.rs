@@ -26,6 +26,9 @@ pub struct DemoArgs {
     /// Print the full report of every routine.
     #[arg(short, long)]
     pub verbose: bool,
+    /// Print only the routines that did not get the verdict they should, and the verdict.
+    #[arg(short, long, conflicts_with = "verbose")]
+    pub quiet: bool,
 }
 
 const C_SOURCES: [(&str, &str); 4] = [
@@ -273,6 +276,18 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
         let report = run_manifest(&m, &dir, &default_path(m.routine.kind))?;
         let ok = report.verdict == case.expect;
         all_as_expected &= ok;
+        if a.quiet {
+            if !ok {
+                writeln!(
+                    out,
+                    "FAIL {}: expected {}, got {}",
+                    case.title,
+                    case.expect.word(),
+                    report.verdict.word()
+                )?;
+            }
+            continue;
+        }
         writeln!(out, "-- {} --", case.title)?;
         writeln!(out, "   manifest: {}", mpath.display())?;
         if a.verbose {
@@ -294,15 +309,17 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
     all_as_expected &= ply_scenario(&dir, f_lib.is_some(), a.verbose)?;
     all_as_expected &= crate::demo_finite::run_scenario(&dir, a.verbose)?;
     let mut out = crate::survive::stdout();
-    for c in tancheck_core::report::CAUTIONS {
+    for c in tancheck_core::report::CAUTIONS.iter().filter(|_| !a.quiet) {
         writeln!(out, "caution: {c}")?;
     }
     if keep {
-        writeln!(
-            out,
-            "\nThe libraries and manifests are in {}; rerun one with `tancheck check <manifest>`.",
-            dir.display()
-        )?;
+        if !a.quiet {
+            writeln!(
+                out,
+                "\nThe libraries and manifests are in {}; rerun one with `tancheck check <manifest>`.",
+                dir.display()
+            )?;
+        }
     } else {
         let _ = std::fs::remove_dir_all(&dir);
     }

@@ -313,6 +313,8 @@ fn account(
 /// The JSON report of a worker that did not finish.
 fn fault_json(what: &str, call: Option<&CallRecord>) -> serde_json::Value {
     serde_json::json!({
+        "format": tancheck_core::report::document::FORMAT,
+        "version": tancheck_core::report::document::VERSION,
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         "verdict": "routine-fault",
         "isolated": true,

@@ -292,16 +292,34 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
 pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
     let text =
         std::fs::read_to_string(file).map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
-    let spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::Parse {
+    let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::Parse {
         path: file.into(),
         line: e.line(),
         column: e.column(),
         message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
     })?;
-    let mut p =
-        path_from_spec(&spec).map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+    drop(text);
+    let given = spec.increments.is_some();
+    // A long path is held once: the increments move from the spec into the path.
+    let mut p = match spec.increments.take() {
+        Some(incs) if spec.shape.is_none() && spec.peak.is_none() && spec.steps.is_none() => {
+            let path = Path {
+                name: spec.name.clone().unwrap_or_else(|| "increments from the manifest".into()),
+                increments: incs,
+            };
+            path.validate().map_err(|e| ManifestError::Invalid {
+                path: file.into(),
+                message: format!("path.increments: {e}"),
+            })?;
+            path
+        }
+        incs => {
+            spec.increments = incs;
+            path_from_spec(&spec).map_err(|message| ManifestError::Invalid { path: file.into(), message })?
+        }
+    };
     p.validate().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
-    if spec.name.is_none() && spec.increments.is_some() {
+    if spec.name.is_none() && given {
         p.name = format!("increments from {}", file.display());
     }
     Ok(p)

@@ -4,7 +4,6 @@
 //!
 //! Properties are demo numbers inside each model's valid range.
 
-use std::io::Write;
 use std::path::PathBuf;
 
 use anyhow::{Context, Result};
@@ -12,6 +11,10 @@ use tancheck_abi::{build_library, fortran_available, BuildOptions, Library};
 use tancheck_core::path::{Path, PathIncrement, Shape};
 use tancheck_core::{check, Caller, PointKind, PointState, Report, Routine, Settings, Verdict};
 use tancheck_models::zoo::{self, ZooEntry};
+
+use crate::report::model::{SelftestReport, SelftestRow};
+use crate::report::style::Progress;
+use crate::report::Reporter;
 
 mod conventions;
 mod finite;
@@ -170,33 +173,39 @@ fn repo_root() -> PathBuf {
     std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("../..")
 }
 
-/// Run the zoo; exit 0 when every row is right.
+/// Run the zoo; exit 0 when every row is right. `verbose` also prints each Rust row's report.
 pub fn run(verbose: bool) -> Result<i32> {
-    run_with(verbose, None, None)
+    let output = crate::session::OutputArgs { verbose, ..Default::default() };
+    run_with(&output, None)
 }
 
-/// [`run`], also writing JUnit XML (a test case per row) to `junit` and the table as an HTML
-/// page to `html`.
-pub fn run_with(
-    verbose: bool,
-    junit: Option<&std::path::Path>,
-    html: Option<&std::path::Path>,
-) -> Result<i32> {
-    crate::report::files::check_output(junit, "--junit")?;
-    crate::report::files::check_output(html, "--html")?;
-    let mut out = crate::survive::stdout();
+/// Run the zoo and report its rows to the terminal and, when asked, as JSON.
+pub fn run_with(output: &crate::session::OutputArgs, json: Option<&std::path::Path>) -> Result<i32> {
+    output.check_files()?;
+    let report = rows_of_zoo(output)?;
+    let mut reporters = crate::session::reporters(output, json);
+    reporters.selftest(&report)?;
+    reporters.finish()?;
+    Ok(report.exit_code)
+}
+
+fn rows_of_zoo(output: &crate::session::OutputArgs) -> Result<SelftestReport> {
+    let verbose = output.verbose;
     let mut rows = Vec::new();
+    let mut skipped = Vec::new();
     let entries = zoo::zoo();
+    let progress = Progress::new(0, "selftest: Rust rows", output.shows_progress());
     for e in &entries {
         let kind = kind_of(e);
         let mut m = zoo::zoo_model(e.name, kind)?;
         let r = check_one(&mut m, e)?;
         if verbose {
-            drop(out);
-            crate::session::emit(&r, crate::report::terminal::Detail::Normal, None)?;
-            out = crate::survive::stdout();
+            let mut t = output.terminal();
+            t.check(&r)?;
+            t.finish()?;
         }
         rows.push(row(e, "Rust", &r));
+        progress.inc();
     }
     let bounds = boundaries();
     for b in &bounds {
@@ -220,9 +229,10 @@ pub fn run_with(
             .context("building the Fortran zoo")?;
         libs.push(("Fortran", f_lib, |e| e.fortran_symbol));
     } else {
-        writeln!(out, "SKIPPED the Fortran rows: gfortran was not found (install it or set FC)")?;
+        skipped.push("the Fortran rows: gfortran was not found (install it or set FC)".to_string());
     }
     for (language, lib_path, symbol) in &libs {
+        progress.message(&format!("selftest: {language} rows"));
         let lib = Library::open(lib_path)?;
         for e in &entries {
             let Some(sym) = symbol(e) else { continue };
@@ -231,6 +241,7 @@ pub fn run_with(
             let mut r = lib.routine(sym, tancheck_core::RoutineInfo { name: sym.into(), ..info })?;
             let rep = check_one(&mut r, e)?;
             rows.push(row(e, language, &rep));
+            progress.inc();
         }
         for b in &bounds {
             let e = zoo::zoo_entry(b.model).context("a boundary row's model is in the zoo")?;
@@ -241,60 +252,37 @@ pub fn run_with(
             rows.push(Row { variant: b.variant.into(), ..row(&e, language, &rep) });
         }
     }
+    progress.message("selftest: conventions, Johnson–Cook and ply rows");
     rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     rows.extend(jc::rows(&dir, &root, fortran_available())?);
     rows.extend(ply::rows(&dir, &root, fortran_available())?);
     rows.extend(finite::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
-    writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
-    writeln!(
-        out,
-        "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} right",
-        "variant", "language", "expected", "verdict", "found", "at inc"
-    )?;
-    for r in &rows {
-        writeln!(
-            out,
-            "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} {}",
-            r.variant,
-            r.language,
-            r.expected,
-            r.verdict.word(),
-            r.found,
-            r.first_increment.map_or("-".into(), |i| i.to_string()),
-            if r.right { "yes" } else { "NO" }
-        )?;
-    }
-    let wrong = rows.iter().filter(|r| !r.right).count();
-    writeln!(out, "\n{} of {} rows right", rows.len() - wrong, rows.len())?;
-    for e in &entries {
-        if verbose {
-            writeln!(out, "  {:<26} {}", e.name, e.description)?;
-        }
-    }
-    if verbose {
-        for b in &bounds {
-            writeln!(out, "  {:<26} correct {}: {}", b.variant, b.model, b.path.name)?;
-        }
-    }
-    let known: Vec<_> = rows
-        .iter()
-        .map(|r| crate::report::junit::KnownRow {
-            group: r.language.into(),
-            variant: r.variant.clone(),
-            expected: r.expected.clone(),
+    drop(progress);
+    let mut descriptions: Vec<(String, String)> =
+        entries.iter().map(|e| (e.name.to_string(), e.description.to_string())).collect();
+    descriptions.extend(
+        bounds.iter().map(|b| (b.variant.to_string(), format!("correct {}: {}", b.model, b.path.name))),
+    );
+    let rows: Vec<SelftestRow> = rows
+        .into_iter()
+        .map(|r| SelftestRow {
+            variant: r.variant,
+            language: r.language.to_string(),
+            expected: r.expected,
             verdict: r.verdict,
-            found: r.found.clone(),
+            found: r.found,
             first_increment: r.first_increment,
             right: r.right,
         })
         .collect();
-    crate::report::files::write_report(junit, "the JUnit report", || {
-        crate::report::junit::selftest_junit(&known)
-    })?;
-    crate::report::files::write_report(html, "the HTML report", || {
-        Ok(crate::report::html::selftest_page(&known, &format!("tancheck {}", env!("CARGO_PKG_VERSION"))))
-    })?;
-    Ok(if wrong == 0 { 0 } else { 1 })
+    let wrong = rows.iter().filter(|r| !r.right).count();
+    Ok(SelftestReport {
+        tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        rows,
+        skipped,
+        descriptions,
+        exit_code: if wrong == 0 { 0 } else { 1 },
+    })
 }

@@ -1,17 +1,88 @@
 //! One session with a routine: load the routine a manifest names, check it along a path,
 //! and print or write the report. Used by the check command, the demo and the selftest.
 
-use std::io::Write;
-
-use anyhow::{Context, Result};
+use anyhow::Result;
 use tancheck_core::path::{Path, Shape};
+use tancheck_core::report::Keep;
 use tancheck_core::{check, Caller, PointKind, Report};
 
-use crate::load::{load, start_state};
+use crate::load::{load, start_state, Loaded};
 use crate::manifest::Manifest;
 use crate::report::json::Json;
+use crate::report::style::{ColorWhen, Progress};
 use crate::report::terminal::{Detail, Terminal};
-use crate::report::{write_atomic, Reporter};
+use crate::report::{Fanout, Reporter};
+
+/// The options of the readable output that every command takes.
+#[derive(clap::Args, Debug, Clone, Default)]
+pub struct OutputArgs {
+    /// Print one line per failing check and the verdict.
+    #[arg(short, long, conflicts_with = "verbose")]
+    pub quiet: bool,
+    /// Print the details of every check.
+    #[arg(short, long)]
+    pub verbose: bool,
+    /// Colour the readable report: auto (when standard output is a terminal and NO_COLOR is
+    /// not set), always or never.
+    #[arg(long, value_name = "WHEN", value_enum, default_value_t = ColorWhen::Auto)]
+    pub color: ColorWhen,
+    /// Write the HTML report to FILE: one self-contained page with the summary and plots.
+    #[arg(long, value_name = "FILE")]
+    pub html: Option<std::path::PathBuf>,
+    /// Write JUnit XML to FILE: a test case per check, probe or row.
+    #[arg(long, value_name = "FILE")]
+    pub junit: Option<std::path::PathBuf>,
+}
+
+impl OutputArgs {
+    pub fn detail(&self) -> Detail {
+        if self.quiet {
+            Detail::Quiet
+        } else if self.verbose {
+            Detail::Verbose
+        } else {
+            Detail::Normal
+        }
+    }
+
+    /// Fail early (exit 2, before a routine runs) when the folder of `--html` or `--junit`
+    /// does not exist, so that no work is lost to a mistyped path.
+    pub fn check_files(&self) -> anyhow::Result<()> {
+        crate::report::files::check_output(self.html.as_deref(), "--html")?;
+        crate::report::files::check_output(self.junit.as_deref(), "--junit")
+    }
+
+    /// Whether progress may be drawn (on standard error, and only when it is a terminal).
+    pub fn shows_progress(&self) -> bool {
+        !self.quiet
+    }
+
+    /// Whether the readable report is coloured.
+    pub fn colors(&self) -> bool {
+        self.color.resolve(crate::survive::stdout_is_terminal())
+    }
+
+    /// The terminal reporter on tancheck's standard output.
+    pub fn terminal(&self) -> Terminal<'static> {
+        Terminal::colored(self.detail(), crate::survive::stdout(), self.colors())
+    }
+}
+
+/// The reporters of a command: the terminal (unless the JSON goes to standard output) and
+/// the JSON file when asked for.
+pub fn reporters(output: &OutputArgs, json: Option<&std::path::Path>) -> Fanout<'static> {
+    let mut f = Fanout::new();
+    if !json.is_some_and(Json::to_stdout) {
+        f.push(Box::new(output.terminal()));
+    }
+    if let Some(p) = json {
+        f.push(Box::new(Json::new(p, crate::survive::stdout())));
+    }
+    if output.html.is_some() || output.junit.is_some() {
+        f.push(Box::new(crate::report::pages::Pages::new(output.html.clone(), output.junit.clone())));
+    }
+    f
+}
 
 /// The default path: into the inelastic range of typical metals and back.
 pub fn default_path(kind: PointKind) -> Path {
@@ -28,12 +99,45 @@ pub fn routine_name(m: &Manifest) -> String {
     }
 }
 
-/// Load and check the routine a manifest names.
+/// Load and check the routine a manifest names (every increment in full detail).
 pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<Report> {
+    run_manifest_with(m, dir, path, Keep::All, false)
+}
+
+/// [`run_manifest`], keeping the full detail `keep` says, with a progress bar over the path
+/// when `progress` (drawn only on a terminal).
+pub fn run_manifest_with(
+    m: &Manifest,
+    dir: &std::path::Path,
+    path: &Path,
+    keep: Keep,
+    progress: bool,
+) -> Result<Report> {
     if let Some(hb) = std::env::var_os(crate::isolate::HEARTBEAT_ENV) {
         crate::isolate::worker_follows_parent(std::path::Path::new(&hb))?;
     }
     let mut loaded = load(m, dir)?;
+    let mut report = check_loaded(&mut loaded, m, path, keep, progress)?;
+    // What the memory guards of a library saw, the same way the C API reports it.
+    if let Loaded::Library(lib) = &mut loaded {
+        let findings = lib.take_findings();
+        tancheck_abi::memory_guards::report::add_to_report(
+            &mut report,
+            lib.guard_level(),
+            lib.guard_calls(),
+            &findings,
+        );
+    }
+    Ok(report)
+}
+
+fn check_loaded(
+    loaded: &mut Loaded,
+    m: &Manifest,
+    path: &Path,
+    keep: Keep,
+    progress: bool,
+) -> Result<Report> {
     let routine = loaded.routine();
     let start = start_state(m, routine.info())?;
     // In an isolated worker, every call leaves a heartbeat for the parent.
@@ -46,32 +150,30 @@ pub fn run_manifest(m: &Manifest, dir: &std::path::Path, path: &Path) -> Result<
         None => routine,
     };
     let mut caller = Caller::new(routine);
+    // A bar only for paths long enough to wait for.
+    let n = path.increments.len();
+    let bar = Progress::new(n as u64, "checking", progress && n >= 200);
     crate::survive::checking(true);
-    let report =
-        check::run(&mut caller, &m.routine.properties, start, path, &m.check).map_err(anyhow::Error::msg);
+    let report = check::run_with(&mut caller, &m.routine.properties, start, path, &m.check, keep, &mut |k| {
+        if k % 64 == 0 || k == n {
+            bar.set(k as u64);
+        }
+    })
+    .map_err(anyhow::Error::msg);
     crate::survive::checking(false);
     report
 }
 
-/// Print the readable report and/or write the JSON one.
+/// Print the readable report and/or write the JSON one (through [`reporters`]).
 pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> Result<()> {
-    let mut out = crate::survive::stdout();
-    match json {
-        Some(p) if p.as_os_str() == "-" => Json.write(report, &mut out)?,
-        other => {
-            Terminal { detail }.write(report, &mut out)?;
-            if let Some(p) = other {
-                let mut buf = Vec::new();
-                Json.write(report, &mut buf)?;
-                write_atomic(p, &buf)
-                    .with_context(|| format!("writing the JSON report to {}", p.display()))?;
-            }
-            if detail != Detail::Quiet {
-                for c in &report.cautions {
-                    writeln!(out, "   caution: {c}")?;
-                }
-            }
-        }
-    }
+    let output = OutputArgs {
+        quiet: detail == Detail::Quiet,
+        verbose: detail == Detail::Verbose,
+        color: ColorWhen::Auto,
+        ..Default::default()
+    };
+    let mut r = reporters(&output, json);
+    r.check(report)?;
+    r.finish()?;
     Ok(())
 }

@@ -79,6 +79,15 @@ pub fn stdout() -> LineWriter<ToolStdout> {
     LineWriter::new(ToolStdout(ManuallyDrop::new(unsafe { std::fs::File::from_raw_fd(fd) })))
 }
 
+/// Whether tancheck's own standard output is a terminal (for `--color auto`).
+pub fn stdout_is_terminal() -> bool {
+    use std::io::IsTerminal;
+    let fd = TOOL_STDOUT.get().copied().flatten().unwrap_or(1);
+    // SAFETY: as in `stdout`: an open descriptor, never closed here (ManuallyDrop).
+    let f = ManuallyDrop::new(unsafe { std::fs::File::from_raw_fd(fd) });
+    f.is_terminal()
+}
+
 /// The routine's calls begin (the watchdog times them) or are over (the report is written).
 pub fn checking(on: bool) {
     CHECKING.store(on, Ordering::SeqCst);
@@ -90,6 +99,8 @@ pub fn checking(on: bool) {
 
 fn head(routine: &str) -> String {
     let v = serde_json::json!({
+        "format": tancheck_core::report::document::FORMAT,
+        "version": tancheck_core::report::document::VERSION,
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         "routine": routine,
         "cautions": tancheck_core::report::CAUTIONS,
@@ -138,6 +149,8 @@ fn write_marker(p: &Path, routine: &str) -> Result<()> {
     {
         {
             let marker = serde_json::json!({
+                "format": tancheck_core::report::document::FORMAT,
+                "version": tancheck_core::report::document::VERSION,
                 "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
                 "routine": routine,
                 "verdict": "incomplete",

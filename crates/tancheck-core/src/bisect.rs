@@ -34,7 +34,7 @@ pub use crate::call_check::{check_call, CallCheck};
 pub use shrink::{shrink, ShrinkLimits, ShrinkStop, Shrunk};
 
 /// How finely the inside of an increment is searched.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields, default)]
 pub struct BisectSettings {
     /// Bisection stops when the bracket of the class change is at most this fraction of the
@@ -72,7 +72,7 @@ impl BisectSettings {
 }
 
 /// How a call came out.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Judgement {
     /// The returned tangent is the derivative.
@@ -87,7 +87,7 @@ pub enum Judgement {
 
 /// The class of a call: branch, state change and judgement. The error changes class where
 /// any of the three changes.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct CallClass {
     pub reported_branch: Option<i32>,
     pub state_changed: bool,
@@ -115,7 +115,7 @@ impl CallClass {
 }
 
 /// One judged fraction of the increment.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Sample {
     pub fraction: f64,
     pub class: CallClass,
@@ -124,7 +124,7 @@ pub struct Sample {
 }
 
 /// Where inside the increment the error takes the class of the full increment.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Crossing {
     /// The largest fraction judged with another class, and the smallest above it judged with
     /// the class of the full increment; `above − below` is at most the fraction tolerance.
@@ -144,7 +144,7 @@ impl Crossing {
 }
 
 /// What the search inside the increment found.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case", tag = "found")]
 pub enum Inside {
     /// The class changes at a fraction of the increment.
@@ -157,7 +157,7 @@ pub enum Inside {
 pub use crate::diagnose::study::StepVerdict;
 
 /// The step studies of the failing call and what they show.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct StepFinding {
     pub verdict: StepVerdict,
     /// The plateau level of a mismatch.
@@ -176,7 +176,7 @@ impl StepFinding {
 }
 
 /// The located failure.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Located {
     /// The first failing increment (1-based) and the number of increments of the path.
     pub increment: usize,

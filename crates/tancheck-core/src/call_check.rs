@@ -20,7 +20,7 @@ use crate::settings::Settings;
 pub const FAULT_FINDING: &str = "routine-fault";
 
 /// The judgement of one call.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct CallCheck {
     /// The branch the routine reported, if it reported one.
     pub reported_branch: Option<i32>,

@@ -7,8 +7,7 @@ use crate::first_calls;
 use crate::mixed;
 use crate::path::Path;
 use crate::report::{
-    BranchSummary, CallCounts, CheckOutcome, IncrementResult, Report, RoutineSummary, SchemeSummary, Verdict,
-    CAUTIONS,
+    CallCounts, Collector, IncrementResult, Keep, Report, RoutineSummary, Verdict, CAUTIONS,
 };
 use crate::routine::Caller;
 use crate::schemes::Scheme;
@@ -24,6 +23,20 @@ pub fn run(
     start: PointState,
     path: &Path,
     settings: &Settings,
+) -> Result<Report, String> {
+    run_with(caller, props, start, path, settings, Keep::All, &mut |_| {})
+}
+
+/// [`run`], keeping the full detail of the increments `keep` says (every increment gets its
+/// fixed-size record), and telling `progress` the number of each increment once it is checked.
+pub fn run_with(
+    caller: &mut Caller<'_>,
+    props: &[f64],
+    start: PointState,
+    path: &Path,
+    settings: &Settings,
+    keep: Keep,
+    progress: &mut dyn FnMut(usize),
 ) -> Result<Report, String> {
     settings.validate()?;
     path.validate()?;
@@ -47,7 +60,7 @@ pub fn run(
     let mut previous: Option<Vec<f64>> = None;
     // Whether some increment's strain increment opposed the stress at its start (unloading).
     let mut unloaded = false;
-    let mut increments = Vec::with_capacity(path.increments.len());
+    let mut increments = Collector::new(settings, keep, path.increments.len());
     // Cheap looks at first calls (see `first_calls`): a zero increment, full guards per branch.
     let mut reached = first_calls::Branches::default();
     if settings.first_calls {
@@ -63,8 +76,11 @@ pub fn run(
     let mut conventions_seen = false;
 
     for (k, inc) in path.increments.iter().enumerate() {
-        if increments.last().is_some_and(|i| i.fault.is_some()) {
+        if increments.last_faulted() {
             break;
+        }
+        if k > 0 {
+            progress(k);
         }
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
@@ -167,11 +183,10 @@ pub fn run(
         }
     }
 
-    let summary = summarise(&increments, settings);
-    let branches = branch_summary(&increments);
+    progress(path.increments.len());
     let mut coverage = Vec::new();
     // A path that stopped at a fault says nothing about what the rest would have reached.
-    let stopped = increments.iter().find(|i| i.fault.is_some()).map(|i| i.index);
+    let stopped = increments.stopped_at;
     if let Some(k) = stopped {
         coverage.push(format!(
             "the path stopped at a fault at increment {k} of {}: the increments after it were not checked",
@@ -180,7 +195,7 @@ pub fn run(
     }
     let stopped = stopped.is_some();
     // A routine without state variables has no inelastic branch to reach.
-    if info.nstate > 0 && !stopped && !increments.is_empty() && increments.iter().all(|i| !i.state_changed) {
+    if info.nstate > 0 && !stopped && !increments.is_empty() && !increments.state_ever_changed {
         coverage.push(
             "the path never changed the state variables: only the elastic (or stateless) branch was checked; \
              load further, or start from an inelastic state"
@@ -194,23 +209,16 @@ pub fn run(
                 .to_string(),
         );
     }
-    let fault = increments.iter().any(|i| {
-        i.fault.is_some()
-            || i.checks.iter().any(|c| {
-                matches!(c.tangent, CheckOutcome::Fault(_))
-                    || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
-            })
-    });
-    let twin_unsafe = increments.iter().any(|i| i.diagnosis.as_ref().is_some_and(|d| d.twin_unsafe));
-    let verdict = if fault {
+    let verdict = if increments.any_fault {
         Verdict::RoutineFault
-    } else if !increments.iter().all(IncrementResult::passed) {
+    } else if !increments.all_passed {
         Verdict::TangentFailure
-    } else if twin_unsafe {
+    } else if increments.twin_unsafe {
         Verdict::TwinNotSafe
     } else {
         Verdict::Pass
     };
+    let Collector { records, increments, summary, branches, .. } = increments;
     Ok(Report {
         tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         routine: RoutineSummary {
@@ -227,6 +235,8 @@ pub fn run(
         },
         path: path.name.clone(),
         settings: settings.clone(),
+        kept: keep,
+        records,
         increments,
         summary,
         branches,
@@ -235,6 +245,7 @@ pub fn run(
         verdict,
         notes,
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
+        guard: None,
     })
 }
 
@@ -249,63 +260,4 @@ pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Ve
         }
     }
     (controlled, targets)
-}
-
-fn branch_summary(increments: &[IncrementResult]) -> Vec<BranchSummary> {
-    let mut out: Vec<BranchSummary> = Vec::new();
-    for inc in increments {
-        let label = inc.branch_label();
-        let worst = inc
-            .checks
-            .iter()
-            .filter_map(|c| match &c.tangent {
-                CheckOutcome::Compared(x) => Some(x.error()),
-                _ => None,
-            })
-            .fold(0.0, f64::max);
-        let b = match out.iter_mut().position(|b| b.branch == label) {
-            Some(k) => &mut out[k],
-            None => {
-                out.push(BranchSummary { branch: label, increments: 0, failed: 0, worst_error: 0.0 });
-                out.last_mut().expect("just pushed")
-            }
-        };
-        b.increments += 1;
-        b.failed += (!inc.passed()) as usize;
-        b.worst_error = b.worst_error.max(worst);
-    }
-    out
-}
-
-fn summarise(increments: &[IncrementResult], settings: &Settings) -> Vec<SchemeSummary> {
-    settings
-        .schemes
-        .iter()
-        .map(|&scheme| {
-            let mut s = SchemeSummary {
-                scheme,
-                checks: 0,
-                failed: 0,
-                skipped: 0,
-                worst_norm_error: 0.0,
-                worst_entry_error: 0.0,
-                tol: settings.scheme(scheme).tol,
-            };
-            for c in increments.iter().flat_map(|i| &i.checks).filter(|c| c.scheme == scheme) {
-                match &c.tangent {
-                    CheckOutcome::Compared(cmp) => {
-                        s.checks += 1;
-                        s.worst_norm_error = s.worst_norm_error.max(cmp.norm_error);
-                        s.worst_entry_error = s.worst_entry_error.max(cmp.worst_entry_error);
-                    }
-                    CheckOutcome::Skipped { .. } => s.skipped += 1,
-                    CheckOutcome::Fault(_) => s.checks += 1,
-                }
-                if !c.passed() {
-                    s.failed += 1;
-                }
-            }
-            s
-        })
-        .collect()
 }

@@ -17,7 +17,7 @@ use serde::{Deserialize, Serialize};
 use crate::convention::Convention;
 
 /// One entry of a comparison, with values in the routine's own convention.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct EntryDiff {
     /// 0-based row (stress component) and column (strain component), routine order.
     pub row: usize,
@@ -30,7 +30,7 @@ pub struct EntryDiff {
 }
 
 /// Result of comparing two tangents.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Comparison {
     pub norm_error: f64,
     pub worst_entry_error: f64,

@@ -10,7 +10,7 @@ use std::fmt;
 use std::str::FromStr;
 
 /// The kind of material point: which components a routine receives.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum PointKind {
     /// Three-dimensional solid: 11, 22, 33, 23, 13, 12.
@@ -174,7 +174,7 @@ impl fmt::Display for Component {
 }
 
 /// How a routine measures shear strain.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, Default)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, Default, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum ShearMeasure {
     /// γ = 2ε (the usual choice in finite-element codes).

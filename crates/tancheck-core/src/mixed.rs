@@ -10,7 +10,7 @@ use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 
 /// Settings of the mixed-control solve.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields, default)]
 pub struct MixedSettings {
     /// Converged when every controlled stress is within `stress_tol` × max(1, ‖σ‖∞).
@@ -29,7 +29,7 @@ impl Default for MixedSettings {
 }
 
 /// How the solve went.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SolveLog {
     /// Residual norm (controlled stresses minus targets) before each iteration and at the end.
     pub residuals: Vec<f64>,

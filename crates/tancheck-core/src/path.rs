@@ -20,7 +20,7 @@ pub const MAX_DTIME: f64 = 1.0e12;
 pub const MAX_STRESS: f64 = 1.0e15;
 
 /// One increment of a path.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct PathIncrement {
     /// Canonical strain increment.
@@ -48,14 +48,14 @@ fn one() -> f64 {
 }
 
 /// A named path.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Path {
     pub name: String,
     pub increments: Vec<PathIncrement>,
 }
 
 /// Built-in path shapes: a direction in canonical components.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Shape {
     /// ε11 only.

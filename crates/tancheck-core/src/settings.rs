@@ -5,7 +5,7 @@ use serde::{Deserialize, Serialize};
 use crate::schemes::Scheme;
 
 /// How one scheme is run and judged.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct SchemeSettings {
     /// Step relative to the strain scale of the increment (see [`Settings::step_floor`]).
@@ -22,7 +22,7 @@ pub struct SchemeSettings {
 /// works (Squire & Trapp 1998): 1e-20. Default tolerances are this project's choice, set well
 /// above the errors the schemes reach on smooth routines (measured in the tests of
 /// `schemes`): forward 1e-4, central 1e-6, complex step 1e-10.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields, default)]
 pub struct Settings {
     pub schemes: Vec<Scheme>,

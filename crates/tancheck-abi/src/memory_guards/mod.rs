@@ -32,6 +32,7 @@ use std::fmt;
 
 mod buffers;
 mod findings;
+pub mod report;
 
 pub(crate) use buffers::GuardBuffers;
 pub use findings::{FindingKind, Findings, GuardFinding};

@@ -1,16 +1,70 @@
-//! The machine-readable report: the report model as JSON.
+//! The machine-readable report: each report kind as a versioned JSON document (core's
+//! `report::document`, the same writer the C API uses), streamed to a file or to standard
+//! output.
 
 use std::io::{self, Write};
+use std::path::{Path, PathBuf};
 
-use super::Reporter;
+use serde::Serialize;
+use tancheck_core::probe::SuiteReport;
+use tancheck_core::report::document::{self, Kind};
 use tancheck_core::Report;
 
-/// Pretty-printed JSON of the whole report model.
-pub struct Json;
+use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use super::{write_atomic_with, Reporter};
 
-impl Reporter for Json {
-    fn write(&mut self, report: &Report, out: &mut dyn Write) -> io::Result<()> {
-        serde_json::to_writer_pretty(&mut *out, report).map_err(io::Error::other)?;
-        writeln!(out)
+/// Writes each report it gets as a JSON document to a file (atomically), or to `stdout` for
+/// `-`.
+pub struct Json<'a> {
+    target: PathBuf,
+    stdout: Box<dyn Write + 'a>,
+}
+
+impl<'a> Json<'a> {
+    /// `stdout` is where `-` writes (tancheck's own standard output).
+    pub fn new(target: &Path, stdout: impl Write + 'a) -> Json<'a> {
+        Json { target: target.to_path_buf(), stdout: Box::new(stdout) }
+    }
+
+    /// Whether the document goes to standard output (replacing the readable report).
+    pub fn to_stdout(target: &Path) -> bool {
+        target.as_os_str() == "-"
+    }
+
+    fn put<T: Serialize>(&mut self, kind: Kind, body: &T) -> io::Result<()> {
+        if Json::to_stdout(&self.target) {
+            document::write(&mut self.stdout, kind, body)?;
+            self.stdout.flush()
+        } else {
+            write_atomic_with(&self.target, |w| document::write(w, kind, body)).map_err(|e| {
+                io::Error::new(e.kind(), format!("writing the JSON report to {}: {e}", self.target.display()))
+            })
+        }
+    }
+}
+
+/// The JSON document of a check report, to any writer (benchmarks, tests).
+pub fn write_check(report: &Report, out: &mut dyn Write) -> io::Result<()> {
+    document::write(out, Kind::Check, report)
+}
+
+impl Reporter for Json<'_> {
+    fn check(&mut self, report: &Report) -> io::Result<()> {
+        self.put(Kind::Check, report)
+    }
+    fn suite(&mut self, report: &SuiteReport, _context: &SuiteContext) -> io::Result<()> {
+        self.put(Kind::ProbeSuite, report)
+    }
+    fn bisect(&mut self, outcome: &BisectOutcome) -> io::Result<()> {
+        self.put(Kind::Bisect, outcome)
+    }
+    fn replay(&mut self, report: &ReplayReport) -> io::Result<()> {
+        self.put(Kind::Replay, report)
+    }
+    fn cases(&mut self, result: &CaseFolderResult) -> io::Result<()> {
+        self.put(Kind::Cases, result)
+    }
+    fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
+        self.put(Kind::Selftest, report)
     }
 }

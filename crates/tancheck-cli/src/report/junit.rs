@@ -70,7 +70,7 @@ fn check_suite(report: &Report) -> TestSuite {
                 "finding {}: {} of {} increments fail against {}, first at increment {}{}; worst norm error {:.2e}, worst entry error {:.2e}, tolerance {:.1e}",
                 report.finding(),
                 failed.len(),
-                report.increments.len(),
+                report.records.len().max(report.increments.len()),
                 s.scheme.name(),
                 failed[0],
                 first.map_or(String::new(), |i| format!(

@@ -1,30 +1,129 @@
-//! Reporters: views of one [`Report`] for the terminal, as JSON, as an HTML page and as
-//! JUnit XML.
+//! Reporters: views of the report data (core's check [`Report`], the probe suite's
+//! [`SuiteReport`], and the data of [`model`]) for the terminal, as JSON, as an HTML page and
+//! as JUnit XML. Every command fills its report and hands it to one [`Reporter`], usually a
+//! [`Fanout`] of several.
 
 use std::io::{self, Write};
 use std::path::Path;
 
+use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
 pub mod files;
 pub mod html;
 pub mod json;
 pub mod junit;
+pub mod model;
+pub mod pages;
+pub mod schema;
+pub mod style;
 pub mod terminal;
 
-/// A view of a report.
+use model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+
+/// A view of reports. One method per report kind, each doing nothing unless the reporter
+/// implements it, so a reporter renders the kinds it knows and a new kind (block routines,
+/// finite strain, campaigns) is a new method here with a do-nothing default.
 pub trait Reporter {
-    fn write(&mut self, report: &Report, out: &mut dyn Write) -> io::Result<()>;
+    /// The report of `tancheck check` (and of each routine of `demo`).
+    fn check(&mut self, _report: &Report) -> io::Result<()> {
+        Ok(())
+    }
+    /// The report of a probe suite (`tancheck probe`).
+    fn suite(&mut self, _report: &SuiteReport, _context: &SuiteContext) -> io::Result<()> {
+        Ok(())
+    }
+    /// What `tancheck bisect` found.
+    fn bisect(&mut self, _outcome: &BisectOutcome) -> io::Result<()> {
+        Ok(())
+    }
+    /// The replay of one case file.
+    fn replay(&mut self, _report: &ReplayReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// A folder of cases replayed as a regression suite (`check --cases`).
+    fn cases(&mut self, _result: &CaseFolderResult) -> io::Result<()> {
+        Ok(())
+    }
+    /// The rows of `tancheck selftest`.
+    fn selftest(&mut self, _report: &SelftestReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// After the last report of a run: flush, close files.
+    fn finish(&mut self) -> io::Result<()> {
+        Ok(())
+    }
 }
 
-/// Write `bytes` to `path` atomically: a temporary file in the same folder, then a rename,
-/// so an interrupted run never leaves a half-written report.
-/// A SIGINT or SIGTERM while it is written removes the temporary file (see [`temporary_name`]).
-pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+/// Several reporters as one: every report goes to each of them in turn. A reporter that
+/// fails does not keep the others from their report; the first error is returned.
+#[derive(Default)]
+pub struct Fanout<'a> {
+    reporters: Vec<Box<dyn Reporter + 'a>>,
+}
+
+impl<'a> Fanout<'a> {
+    pub fn new() -> Fanout<'a> {
+        Fanout { reporters: Vec::new() }
+    }
+
+    /// Add a reporter (builder style).
+    #[must_use]
+    pub fn with(mut self, r: impl Reporter + 'a) -> Fanout<'a> {
+        self.reporters.push(Box::new(r));
+        self
+    }
+
+    /// Add a reporter.
+    pub fn push(&mut self, r: Box<dyn Reporter + 'a>) {
+        self.reporters.push(r);
+    }
+
+    fn each(&mut self, mut f: impl FnMut(&mut dyn Reporter) -> io::Result<()>) -> io::Result<()> {
+        let mut first = Ok(());
+        for r in &mut self.reporters {
+            let result = f(r.as_mut());
+            if first.is_ok() {
+                first = result;
+            }
+        }
+        first
+    }
+}
+
+impl Reporter for Fanout<'_> {
+    fn check(&mut self, report: &Report) -> io::Result<()> {
+        self.each(|r| r.check(report))
+    }
+    fn suite(&mut self, report: &SuiteReport, context: &SuiteContext) -> io::Result<()> {
+        self.each(|r| r.suite(report, context))
+    }
+    fn bisect(&mut self, outcome: &BisectOutcome) -> io::Result<()> {
+        self.each(|r| r.bisect(outcome))
+    }
+    fn replay(&mut self, report: &ReplayReport) -> io::Result<()> {
+        self.each(|r| r.replay(report))
+    }
+    fn cases(&mut self, result: &CaseFolderResult) -> io::Result<()> {
+        self.each(|r| r.cases(result))
+    }
+    fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
+        self.each(|r| r.selftest(report))
+    }
+    fn finish(&mut self) -> io::Result<()> {
+        self.each(|r| r.finish())
+    }
+}
+
+/// Write `path` atomically through `fill`, which gets a buffered writer of a temporary file in
+/// the same folder; then a rename. Nothing of the file is held in memory.
+pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> io::Result<()>) -> io::Result<()> {
     let tmp = temporary_name(path);
     let result = (|| {
-        let mut f = std::fs::File::create(&tmp)?;
-        f.write_all(bytes)?;
+        let f = std::fs::File::create(&tmp)?;
+        let mut w = io::BufWriter::with_capacity(64 * 1024, f);
+        fill(&mut w)?;
+        let f = w.into_inner().map_err(|e| e.into_error())?;
         f.sync_all()?;
         std::fs::rename(&tmp, path)
     })();
@@ -32,6 +131,13 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
         let _ = std::fs::remove_file(&tmp);
     }
     result
+}
+
+/// Write `bytes` to `path` atomically: a temporary file in the same folder, then a rename,
+/// so an interrupted run never leaves a half-written report.
+/// A SIGINT or SIGTERM while it is written removes the temporary file (see [`temporary_name`]).
+pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
+    write_atomic_with(path, |w| w.write_all(bytes))
 }
 
 /// The temporary name [`write_atomic`] writes `path` under before the rename: a hidden file
@@ -43,7 +149,7 @@ pub fn temporary_name(path: &Path) -> std::path::PathBuf {
 }
 
 /// Compact number for tables: 3 significant digits in exponent form.
-pub(crate) fn sci(x: f64) -> String {
+pub fn sci(x: f64) -> String {
     if x == 0.0 {
         "0".into()
     } else if x.is_finite() {

@@ -26,7 +26,7 @@ use crate::routine::Caller;
 use crate::settings::Settings;
 
 /// Bounds of a shrink.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields, default)]
 pub struct ShrinkLimits {
     /// Candidate paths checked at most.
@@ -42,7 +42,7 @@ impl Default for ShrinkLimits {
 }
 
 /// Why the shrink stopped.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case", tag = "stop")]
 pub enum ShrinkStop {
     /// No smaller candidate fails the same way: the path is as small as this search makes it.
@@ -54,7 +54,7 @@ pub enum ShrinkStop {
 }
 
 /// The result of a shrink.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Shrunk {
     /// The smallest failing path found; its last increment is its first failing one.
     pub path: Path,

@@ -26,7 +26,7 @@ a folder of cases runs as a regression suite before the paths of a check. Values
 the bits (IEEE-754, hex) are what the replay uses.";
 
 /// Floating-point numbers with their bit patterns.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct Numbers {
     /// The numbers as decimals (`null` for a value that is not finite).
@@ -37,7 +37,7 @@ pub struct Numbers {
 }
 
 /// The routine of a case.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseRoutine {
     /// The name reports gave it.
@@ -107,7 +107,7 @@ impl CaseRoutine {
 }
 
 /// The inputs of the call, in the routine's convention.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseCall {
     /// The increment number the routine was given (from 1).
@@ -125,7 +125,7 @@ pub struct CaseCall {
 }
 
 /// What the call returned.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseOutputs {
     pub status: i32,
@@ -140,7 +140,7 @@ pub struct CaseOutputs {
 }
 
 /// One worst entry of a comparison.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct ProbeEntry {
     /// "row/column" component labels.
@@ -151,7 +151,7 @@ pub struct ProbeEntry {
 }
 
 /// One scheme's numbers.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct ProbeCheck {
     pub scheme: Scheme,
@@ -227,7 +227,7 @@ impl ProbeCheck {
 }
 
 /// The check of the call, as made when the case was written.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseProbe {
     pub settings: Settings,
@@ -248,7 +248,7 @@ pub struct CaseProbe {
 }
 
 /// A class change inside the increment, as found when the case was written.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseCrossing {
     pub below: f64,
@@ -270,7 +270,7 @@ impl CaseCrossing {
 }
 
 /// Where the call was met.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseOrigin {
     /// The manifest checked, as given on the command line.
@@ -299,7 +299,7 @@ impl CaseOrigin {
 }
 
 /// One increment of a [`CasePath`].
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CaseIncrement {
     /// [dstrain 11, 22, 33, 23, 13, 12 (tensor components), dtemp, dtime].
@@ -311,7 +311,7 @@ pub struct CaseIncrement {
 }
 
 /// A path that leads to the call: a start state and increments in canonical components.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct CasePath {
     pub strain: Numbers,
@@ -323,7 +323,7 @@ pub struct CasePath {
 }
 
 /// A case file.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct Case {
     pub about: String,

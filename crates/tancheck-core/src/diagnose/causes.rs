@@ -9,7 +9,7 @@ use crate::compare::compare;
 use crate::convention::Convention;
 
 /// A usual cause of a wrong tangent.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Cause {
     /// Shear rows or columns off by 2 or ½ (engineering against tensor shear).
@@ -111,7 +111,7 @@ impl Cause {
 }
 
 /// One tested explanation.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Hypothesis {
     pub cause: Cause,
     /// What exactly, e.g. "shear columns ×0.5" or "column 13".
@@ -123,7 +123,7 @@ pub struct Hypothesis {
 }
 
 /// The discrepancy at smaller increments (for the continuum-tangent test).
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Refinement {
     /// Fractions of the increment, largest first, and the tangent error at each.
     pub fractions: Vec<f64>,

@@ -28,7 +28,7 @@ pub const STEPS: [f64; 3] = [1e-5, 1e-6, 1e-7];
 pub const GAP_LEVEL: f64 = 1e-4;
 
 /// Which one-sided derivative the returned tangent (or one of its columns) equals.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Side {
     Forward,
@@ -50,7 +50,7 @@ impl Side {
 }
 
 /// What the kink probe found in one column (strain direction).
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct KinkColumn {
     /// Gap ‖F_:j − B_:j‖ relative to the column (with the entry floor), per step of [`STEPS`].
     pub gaps: Vec<f64>,
@@ -63,7 +63,7 @@ pub struct KinkColumn {
 }
 
 /// What the kink probe found.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Kink {
     /// Relative gap ‖F − B‖/‖F‖ between the one-sided derivatives, per step of [`STEPS`].
     pub gaps: Vec<f64>,

@@ -33,7 +33,7 @@ pub use study::{Behaviour, StepStudy};
 const REFINE: [f64; 3] = [0.125, 0.0625, 0.03125];
 
 /// The diagnosis of one increment.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Diagnosis {
     pub kink: Option<Kink>,
     pub studies: Vec<StepStudy>,

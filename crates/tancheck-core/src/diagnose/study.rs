@@ -29,7 +29,7 @@ pub fn ladder() -> Vec<f64> {
 }
 
 /// How the discrepancy behaved.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Behaviour {
     /// Fell with the scheme's order (the observed slope near the theoretical one over at
@@ -43,7 +43,7 @@ pub enum Behaviour {
 }
 
 /// One point of a study.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct StudyPoint {
     pub rel_step: f64,
     pub step: f64,
@@ -52,7 +52,7 @@ pub struct StudyPoint {
 }
 
 /// A step study of one scheme at one increment.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct StepStudy {
     pub scheme: Scheme,
     pub points: Vec<StudyPoint>,
@@ -169,7 +169,7 @@ pub fn shows_order(points: &[&StudyPoint], p: f64) -> bool {
 /// What a set of step studies of one increment says about a failed check at tolerance
 /// `failed_tol` (the smallest tolerance among the failed checks). The one classification
 /// `check` (through the diagnosis) and `bisect` share.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum StepVerdict {
     /// The discrepancy levels off as the step shrinks: the tangent is not the derivative.

@@ -30,7 +30,7 @@ pub mod viscous_limit;
 pub mod zero_increment;
 
 /// One probe of a suite, as written in a suite file.
-#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(deny_unknown_fields)]
 pub struct ProbeSpec {
     /// The probe's name, e.g. "symmetry".
@@ -86,7 +86,7 @@ impl ProbeSpec {
 }
 
 /// A probe's verdict.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum ProbeStatus {
     Pass,
@@ -106,7 +106,7 @@ impl ProbeStatus {
 }
 
 /// What a probe found.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ProbeResult {
     pub probe: String,
     pub status: ProbeStatus,
@@ -126,7 +126,7 @@ pub struct ProbeResult {
 }
 
 /// One curve a probe measured: points (x, y) with both axes named.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct ProbeSeries {
     /// What the curve is, e.g. "increment 5 (order 1.98)".
     pub name: String,
@@ -248,7 +248,7 @@ pub fn rel_diff(a: &[f64], b: &[f64], floor: f64) -> f64 {
 }
 
 /// The report of a probe suite.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SuiteReport {
     pub tool: String,
     pub suite: String,

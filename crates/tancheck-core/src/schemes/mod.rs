@@ -19,7 +19,7 @@ pub mod forward;
 pub mod richardson;
 
 /// A derivative scheme.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Scheme {
     /// (f(x + h) − f(x)) / h: error O(h).

@@ -6,10 +6,8 @@ use plotters::coord::Shift;
 use plotters::prelude::*;
 
 use tancheck_core::bisect::{Inside, Located};
-use tancheck_core::compare::Comparison;
 use tancheck_core::diagnose::study::StepStudy;
 use tancheck_core::probe::ProbeSeries;
-use tancheck_core::report::CheckOutcome;
 use tancheck_core::{Report, Scheme};
 
 mod heatmap;
@@ -231,48 +229,37 @@ fn num_label(v: &f64) -> String {
     }
 }
 
-/// The error a comparison is judged by: the largest of its measures.
-fn judged(c: &Comparison) -> f64 {
-    c.error()
-}
-
 /// The tangent error of every scheme along the path (log scale), with a band per run of
 /// increments in one branch, each scheme's tolerance dashed, failing checks crossed.
 pub fn error_along_path(report: &Report) -> Option<String> {
-    let incs = &report.increments;
-    if incs.is_empty() {
+    // The compact records: one per increment, passing ones included.
+    let recs = &report.records;
+    if recs.is_empty() {
         return None;
     }
-    let mut schemes: Vec<Scheme> = Vec::new();
-    for inc in incs {
-        for c in &inc.checks {
-            if matches!(c.tangent, CheckOutcome::Compared(_)) && !schemes.contains(&c.scheme) {
-                schemes.push(c.scheme);
-            }
-        }
-    }
+    let order = &report.settings.schemes;
+    let error_of = |r: &tancheck_core::report::IncrementRecord, k: usize| r.worst_errors().nth(k).flatten();
+    let schemes: Vec<Scheme> = order
+        .iter()
+        .enumerate()
+        .filter(|&(k, _)| recs.iter().any(|r| error_of(r, k).is_some()))
+        .map(|(_, &s)| s)
+        .collect();
     if schemes.is_empty() {
         return None;
     }
-    let errors = || {
-        incs.iter().flat_map(|i| {
-            i.checks.iter().filter_map(|c| match &c.tangent {
-                CheckOutcome::Compared(cmp) => Some(judged(cmp)),
-                _ => None,
-            })
-        })
-    };
+    let errors = || recs.iter().flat_map(|r| r.worst_errors().flatten());
     let tols: Vec<(Scheme, f64)> = schemes.iter().map(|&s| (s, report.settings.scheme(s).tol)).collect();
     let yr = log_range(errors().chain(tols.iter().map(|t| t.1)));
-    let x0 = incs.first().map_or(0, |i| i.index) as f64 - 0.5;
-    let x1 = incs.last().map_or(1, |i| i.index) as f64 + 0.5;
+    let x0 = recs.first().map_or(0, |r| r.index) as f64 - 0.5;
+    let x1 = recs.last().map_or(1, |r| r.index) as f64 + 0.5;
     // Runs of increments in one branch.
     let mut runs: Vec<(String, f64, f64)> = Vec::new();
-    for inc in incs {
-        let label = inc.branch_label();
-        let x = inc.index as f64;
+    for r in recs {
+        let label = r.branch_label();
+        let x = r.index as f64;
         match runs.last_mut() {
-            Some(r) if r.0 == label => r.2 = x + 0.5,
+            Some(run) if run.0 == label => run.2 = x + 0.5,
             _ => runs.push((label, x - 0.5, x + 0.5)),
         }
     }
@@ -282,9 +269,9 @@ pub fn error_along_path(report: &Report) -> Option<String> {
             labels.push(r.0.clone());
         }
     }
-    let any_failed = incs
-        .iter()
-        .any(|i| i.checks.iter().any(|c| matches!(&c.tangent, CheckOutcome::Compared(cmp) if !cmp.pass)));
+    // A check failed where its error is above the tolerance and the diagnosis did not clear
+    // the increment (a kink, a poor default step).
+    let any_failed = recs.iter().any(|r| !r.pass);
     svg_with_legend("error of the returned tangent along the path, per scheme", |root, legend| {
         let mut chart = ChartBuilder::on(root)
             .margin(12)
@@ -314,18 +301,14 @@ pub fn error_along_path(report: &Report) -> Option<String> {
         }
         for &s in &schemes {
             let colour = scheme_colour(s);
-            let pts: Vec<(f64, f64, bool)> = incs
+            let tol = report.settings.scheme(s).tol;
+            let k = order.iter().position(|&o| o == s).unwrap_or(usize::MAX);
+            let pts: Vec<(f64, f64, bool)> = recs
                 .iter()
-                .filter_map(|i| {
-                    i.checks.iter().find(|c| c.scheme == s).and_then(|c| match &c.tangent {
-                        CheckOutcome::Compared(cmp) => {
-                            Some((i.index as f64, judged(cmp).max(LOG_FLOOR), cmp.pass))
-                        }
-                        _ => None,
-                    })
+                .filter_map(|r| {
+                    error_of(r, k).map(|e| (r.index as f64, e.max(LOG_FLOOR), r.pass || e <= tol))
                 })
                 .collect();
-            let tol = report.settings.scheme(s).tol;
             chart.draw_series(DashedLineSeries::new(
                 vec![(x0, tol), (x1, tol)],
                 6,
@@ -416,7 +399,11 @@ pub(super) fn text_centre() -> plotters::style::text_anchor::Pos {
 /// Stress against strain per component along the path (traction against separation for a
 /// cohesive point), for the strain components that move.
 pub fn response_curves(report: &Report) -> Option<String> {
-    let incs: Vec<_> = report.increments.iter().filter(|i| i.fault.is_none()).collect();
+    // The compact records carry strain and stress of every increment (a faulted one is not
+    // recorded as a point of the response).
+    let faulted: Vec<usize> =
+        report.increments.iter().filter(|i| i.fault.is_some()).map(|i| i.index).collect();
+    let incs: Vec<_> = report.records.iter().filter(|r| !faulted.contains(&(r.index as usize))).collect();
     let n = report.routine.order.len();
     if incs.len() < 2 || n == 0 {
         return None;
@@ -424,8 +411,10 @@ pub fn response_curves(report: &Report) -> Option<String> {
     let span = |v: &[f64]| {
         v.iter().cloned().fold(f64::NEG_INFINITY, f64::max) - v.iter().cloned().fold(f64::INFINITY, f64::min)
     };
-    let strain = |i: usize| incs.iter().map(|r| r.strain.get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
-    let stress = |i: usize| incs.iter().map(|r| r.stress.get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
+    let strain =
+        |i: usize| incs.iter().map(|r| r.strain().get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
+    let stress =
+        |i: usize| incs.iter().map(|r| r.stress().get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
     let emax = (0..n).map(|i| span(&strain(i))).fold(0.0, f64::max);
     let moving: Vec<usize> = (0..n).filter(|&i| span(&strain(i)) > 1e-3 * emax).collect();
     if moving.is_empty() || emax <= 0.0 || !emax.is_finite() {

@@ -7,6 +7,11 @@ use crate::diagnose::Diagnosis;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
+pub mod document;
+pub mod record;
+
+pub use record::{Collector, IncrementRecord, Keep};
+
 /// The cautions every report carries.
 pub const CAUTIONS: [&str; 2] = [
     "A consistent tangent shows that the routine differentiates its own stress update; it does \
@@ -16,7 +21,7 @@ pub const CAUTIONS: [&str; 2] = [
 ];
 
 /// The overall verdict, which sets the exit code.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Verdict {
     /// Every check passed.
@@ -54,7 +59,7 @@ impl Verdict {
 }
 
 /// What was checked.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct RoutineSummary {
     pub name: String,
     pub kind: String,
@@ -66,7 +71,7 @@ pub struct RoutineSummary {
 }
 
 /// The inputs of one call, kept when the call went wrong so it can be rerun.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct CallRecord {
     pub increment: i32,
     /// Which input was perturbed, and by how much, if any: e.g. "dstrain[3] + 1.2e-9".
@@ -83,7 +88,7 @@ pub struct CallRecord {
 }
 
 /// A call that produced no usable result.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct FaultRecord {
     pub message: String,
     /// The signal number when the routine crashed.
@@ -92,7 +97,7 @@ pub struct FaultRecord {
 }
 
 /// The outcome of one scheme at one increment.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case", tag = "outcome")]
 pub enum CheckOutcome {
     Compared(Comparison),
@@ -101,7 +106,7 @@ pub enum CheckOutcome {
 }
 
 /// One scheme at one increment: the tangent and, when the routine returns it, ∂σ/∂T.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SchemeCheck {
     pub scheme: Scheme,
     /// Absolute step in strain units.
@@ -122,7 +127,7 @@ impl SchemeCheck {
 }
 
 /// One increment of the path.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct IncrementResult {
     /// 1-based.
     pub index: usize,
@@ -182,14 +187,14 @@ impl IncrementResult {
 }
 
 /// Number of routine calls made.
-#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct CallCounts {
     pub real: u64,
     pub complex: u64,
 }
 
 /// Best (largest) error seen per scheme, over the whole path.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct SchemeSummary {
     pub scheme: Scheme,
     pub checks: usize,
@@ -201,10 +206,17 @@ pub struct SchemeSummary {
 }
 
 /// The tangent error per branch over the path.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct BranchSummary {
-    /// The branch label of [`IncrementResult::branch_label`].
+    /// The branch label of [`IncrementResult::branch_label`] (for reading; the numbers are
+    /// `reported_branch` and `state_changed`).
     pub branch: String,
+    /// The branch the routine reported, if it reported one.
+    #[serde(default)]
+    pub reported_branch: Option<i32>,
+    /// Whether the state variables changed in these increments.
+    #[serde(default)]
+    pub state_changed: bool,
     pub increments: usize,
     pub failed: usize,
     /// The largest error of any compared tangent in this branch.
@@ -212,12 +224,20 @@ pub struct BranchSummary {
 }
 
 /// The whole report of one check.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct Report {
     pub tool: String,
     pub routine: RoutineSummary,
     pub path: String,
     pub settings: Settings,
+    /// Which increments `increments` holds in full: all, or only those that failed, faulted
+    /// or were looked at more closely (`records` has every one).
+    #[serde(default)]
+    pub kept: Keep,
+    /// One fixed-size record per increment, in path order (increment 0 first when made).
+    #[serde(default)]
+    pub records: Vec<IncrementRecord>,
+    /// The full detail of the increments `kept` says.
     pub increments: Vec<IncrementResult>,
     pub summary: Vec<SchemeSummary>,
     pub branches: Vec<BranchSummary>,
@@ -229,9 +249,58 @@ pub struct Report {
     /// Things the user should know that are not failures (e.g. a scheme skipped).
     pub notes: Vec<String>,
     pub cautions: Vec<String>,
+    /// What the memory guards of a loaded library saw (absent for a model).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub guard: Option<GuardSummary>,
+}
+
+/// The memory guards of a loaded library over one check.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct GuardSummary {
+    /// off, light or full.
+    pub level: String,
+    /// Calls the guards made besides the check's (reruns at the full level).
+    pub extra_calls: u64,
+    pub findings: Vec<GuardFindingRecord>,
+}
+
+/// One kind of misbehaviour on one array, as the guards saw it.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct GuardFindingRecord {
+    /// overrun, input-written, unwritten, over-read or unrepeatable.
+    pub kind: String,
+    /// The array: stress, state, tangent, strain, ...
+    pub array: String,
+    /// Entries of the array.
+    pub length: usize,
+    /// The first offending index, 0-based.
+    pub index: usize,
+    /// Entries affected in the first call that showed it.
+    pub entries: usize,
+    /// The increment of that call.
+    pub increment: i32,
+    /// Whether that call was to the complex-step twin.
+    pub complex: bool,
+    /// Calls that showed it.
+    pub calls: u64,
+    pub message: String,
 }
 
 impl Report {
+    /// The increments that did not pass, in full detail (in every `kept` mode).
+    pub fn failing(&self) -> impl Iterator<Item = &IncrementResult> {
+        self.increments.iter().filter(|i| !i.passed())
+    }
+
+    /// The number of increments checked (the records; the full list for older reports).
+    pub fn increment_count(&self) -> usize {
+        if self.records.is_empty() {
+            self.increments.len()
+        } else {
+            self.records.len()
+        }
+    }
+
     pub fn exit_code(&self) -> i32 {
         self.verdict.exit_code()
     }

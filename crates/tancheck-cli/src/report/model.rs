@@ -1,0 +1,159 @@
+//! The report data of the commands besides `check` (whose report is core's [`Report`]): what
+//! `bisect`, `replay`, a folder of cases and `selftest` found. Every reporter renders these;
+//! the commands only fill them in.
+//!
+//! [`Report`]: tancheck_core::Report
+
+use std::path::PathBuf;
+
+use schemars::JsonSchema;
+use serde::Serialize;
+
+use tancheck_core::bisect::{Located, ShrinkStop};
+use tancheck_core::case::{Numbers, ProbeCheck};
+use tancheck_core::path::Path;
+use tancheck_core::Verdict;
+
+use crate::exit;
+
+/// A shrink and what it located.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct ShrinkSummary {
+    pub path: Path,
+    pub original_increments: usize,
+    pub iterations: usize,
+    pub accepted: usize,
+    pub seconds: f64,
+    pub stop: ShrinkStop,
+    /// The stop in words, naming the option that raises the limit that stopped it.
+    pub stopped: String,
+    pub located: Option<Located>,
+}
+
+/// What `tancheck bisect` found.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct BisectOutcome {
+    pub routine: String,
+    pub path: String,
+    pub verdict: Verdict,
+    pub finding: String,
+    pub located: Option<Located>,
+    pub shrunk: Option<ShrinkSummary>,
+    /// Case files written.
+    pub cases: Vec<PathBuf>,
+    /// Things that went wrong without stopping the bisection (a case that could not be
+    /// written, a call that did not repeat).
+    pub warnings: Vec<String>,
+    pub exit_code: i32,
+    pub cautions: Vec<String>,
+    /// The check the bisection started from, for the reporters that draw it (HTML); not part
+    /// of the JSON (the bisect report names its finding and verdict).
+    #[serde(skip)]
+    #[schemars(skip)]
+    pub check: Option<Box<tancheck_core::Report>>,
+}
+
+/// What a replay found, as printed and as JSON.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct ReplayReport {
+    pub case: String,
+    pub routine: String,
+    /// Where the call was met: the path, the increment, its branch.
+    pub origin: String,
+    pub warnings: Vec<String>,
+    /// Stress, state, tangent, status and branch are those of the case, bit for bit.
+    pub identical: bool,
+    pub differences: Vec<String>,
+    pub fault: Option<String>,
+    pub status: i32,
+    pub branch: i32,
+    pub stress: Numbers,
+    pub state: Numbers,
+    pub tangent: Numbers,
+    pub checks: Vec<ProbeCheck>,
+    /// The verdict of the call now, and what the diagnosis found; the finding of the case.
+    pub pass: bool,
+    pub finding: String,
+    pub recorded_finding: String,
+    /// "yes" when walking the case's path reaches the call bit for bit, else why not.
+    pub path_leads_here: Option<String>,
+    /// The command that reruns the case under a debugger, as a shell line and as words.
+    pub debugger: String,
+    pub debugger_args: Vec<String>,
+    pub exit_code: i32,
+}
+
+/// One case of a folder, replayed.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct CaseRun {
+    pub file: PathBuf,
+    pub report: ReplayReport,
+}
+
+/// A folder of cases run as a regression suite: the cases whose call passes its check now,
+/// those that still fail (or fault), and the files that could not be run, as warnings with
+/// file and line. Other warnings (a changed library, a decimal that does not match its bits)
+/// are in `warnings`; cases of other routines set aside are in `other_routines`.
+#[derive(Clone, Debug, Default, Serialize, JsonSchema)]
+pub struct CaseFolderResult {
+    pub folder: PathBuf,
+    pub passed: Vec<CaseRun>,
+    pub failed: Vec<CaseRun>,
+    pub broken: Vec<String>,
+    pub warnings: Vec<String>,
+    /// Case files of another routine than the one checked, not run.
+    #[serde(default)]
+    pub other_routines: Vec<PathBuf>,
+}
+
+impl CaseFolderResult {
+    /// 0 when no case failed, 1 when one still fails its check, 3 when one faults (broken
+    /// files only warn).
+    pub fn exit_code(&self) -> i32 {
+        if self.failed.iter().any(|c| c.report.exit_code == exit::ROUTINE_FAULT) {
+            exit::ROUTINE_FAULT
+        } else if self.failed.is_empty() {
+            exit::PASS
+        } else {
+            exit::TANGENT_FAILURE
+        }
+    }
+}
+
+/// One row of `tancheck selftest`: a routine with a known verdict, and what the check found.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct SelftestRow {
+    pub variant: String,
+    pub language: String,
+    pub expected: String,
+    pub verdict: Verdict,
+    pub found: String,
+    pub first_increment: Option<usize>,
+    pub right: bool,
+}
+
+/// What `tancheck selftest` found.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct SelftestReport {
+    pub tool: String,
+    pub rows: Vec<SelftestRow>,
+    /// Languages whose rows were not run, and why.
+    pub skipped: Vec<String>,
+    /// What each variant is (printed with --verbose).
+    pub descriptions: Vec<(String, String)>,
+    pub exit_code: i32,
+}
+
+impl SelftestReport {
+    pub fn wrong(&self) -> usize {
+        self.rows.iter().filter(|r| !r.right).count()
+    }
+}
+
+/// Where a probe suite's path came from and what was adjusted, for the readable report.
+#[derive(Clone, Debug, Default)]
+pub struct SuiteContext {
+    /// "from --path", "the manifest's" or "the suite's".
+    pub path_source: String,
+    pub notes: Vec<String>,
+}

@@ -1,0 +1,439 @@
+//! The readable report of a check: a row per increment that needs one, runs of passing
+//! increments folded into one line, the details of failures, the summary and the verdict.
+
+use std::io::{self, Write};
+
+use super::{Detail, Palette};
+use crate::report::sci;
+use tancheck_core::diagnose::{Behaviour, Diagnosis, Hypothesis};
+use tancheck_core::report::{CheckOutcome, FaultRecord, IncrementRecord, IncrementResult, SchemeCheck};
+use tancheck_core::{Report, Verdict};
+
+/// Whether an increment goes into a folded run: it passed and its full detail (if kept) has
+/// nothing to show.
+fn foldable(rec: &IncrementRecord, full: Option<&IncrementResult>) -> bool {
+    rec.pass && full.is_none_or(|i| i.diagnosis.is_none() && i.fault.is_none() && i.non_finite.is_empty())
+}
+
+/// The line of a run of passing increments `run` (at least one).
+fn folded(out: &mut dyn Write, r: &Report, run: &[IncrementRecord], p: Palette) -> io::Result<()> {
+    let (first, last) = (run[0].index, run[run.len() - 1].index);
+    let mut branches: Vec<(Option<i32>, bool, usize)> = Vec::new();
+    for rec in run {
+        match branches.iter_mut().find(|b| b.0 == rec.branch && b.1 == rec.state_changed) {
+            Some(b) => b.2 += 1,
+            None => branches.push((rec.branch, rec.state_changed, 1)),
+        }
+    }
+    let label = |b: &(Option<i32>, bool, usize)| {
+        let changed = if b.1 { "state changed" } else { "state unchanged" };
+        match b.0 {
+            Some(id) => format!("#{id} ({changed}) ×{}", b.2),
+            None => format!("{changed} ×{}", b.2),
+        }
+    };
+    let worst: Vec<String> = r
+        .settings
+        .schemes
+        .iter()
+        .enumerate()
+        .filter_map(|(k, s)| {
+            let w = run
+                .iter()
+                .filter_map(|rec| rec.worst_errors().nth(k).flatten())
+                .fold(None, |a: Option<f64>, e| Some(a.map_or(e, |a| a.max(e))));
+            w.map(|w| format!("{} {}", s.name(), sci(w)))
+        })
+        .collect();
+    let span = if first == last { format!("{first:>3}") } else { format!("{first:>3}–{last}") };
+    writeln!(
+        out,
+        "   {span:<9}{} {}; {}; worst {}",
+        p.pass("ok"),
+        if run.len() == 1 { "1 increment".to_string() } else { format!("{} increments", run.len()) },
+        branches.iter().map(label).collect::<Vec<_>>().join(", "),
+        if worst.is_empty() { "-".to_string() } else { worst.join(", ") }
+    )
+}
+
+/// The check report for a terminal.
+pub fn write(out: &mut dyn Write, r: &Report, detail: Detail, p: Palette) -> io::Result<()> {
+    let rt = &r.routine;
+    if detail == Detail::Quiet {
+        return quiet(out, r, p);
+    }
+    writeln!(out, "{}", p.head(&format!("== {} ==", rt.name)))?;
+    writeln!(
+        out,
+        "   {} point, components {} ({} shear), {} properties, {} state variables, complex twin: {}",
+        rt.kind,
+        rt.order.join(" "),
+        rt.shear,
+        rt.nprop,
+        rt.nstate,
+        if rt.complex_twin { "yes" } else { "no" }
+    )?;
+    writeln!(out, "   path: {}", r.path)?;
+    writeln!(out)?;
+    let schemes: Vec<_> = r.settings.schemes.iter().map(|s| format!("{:<22}", s.name())).collect();
+    writeln!(out, "   inc  {:<24}{}", "branch", schemes.join(""))?;
+    // Every increment has a record (a report read from an older file: made from its increments).
+    let made;
+    let records: &[IncrementRecord] = if r.records.is_empty() {
+        made = r.increments.iter().map(|i| IncrementRecord::of(i, &r.settings.schemes)).collect::<Vec<_>>();
+        &made
+    } else {
+        &r.records
+    };
+    let mut full = r.increments.iter().peekable();
+    let mut run: Vec<IncrementRecord> = Vec::new();
+    for rec in records {
+        while full.peek().is_some_and(|i| (i.index as u32) < rec.index) {
+            full.next();
+        }
+        let inc = full.next_if(|i| i.index as u32 == rec.index);
+        if detail != Detail::Verbose && foldable(rec, inc) {
+            run.push(*rec);
+            continue;
+        }
+        if !run.is_empty() {
+            folded(out, r, &run, p)?;
+            run.clear();
+        }
+        match inc {
+            Some(inc) => increment(out, inc, detail, p)?,
+            None => folded(out, r, std::slice::from_ref(rec), p)?,
+        }
+    }
+    if !run.is_empty() {
+        folded(out, r, &run, p)?;
+    }
+    writeln!(out)?;
+    summary(out, r, p)?;
+    writeln!(out, "   routine calls: {} real, {} complex", r.calls.real, r.calls.complex)?;
+    verdict(out, r, p)?;
+    for c in &r.cautions {
+        writeln!(out, "   caution: {c}")?;
+    }
+    Ok(())
+}
+
+/// `-q`: one line per failing increment, then the verdict.
+fn quiet(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
+    for inc in r.failing() {
+        let cells: Vec<String> = inc
+            .checks
+            .iter()
+            .filter(|c| !c.passed())
+            .map(|c| format!("{} {}", c.scheme.name(), cell(c, false)))
+            .collect();
+        let mut what = cells.join(", ");
+        if let Some(f) = &inc.fault {
+            what = f.message.clone();
+        } else if !inc.non_finite.is_empty() {
+            what = format!("not finite: {}", inc.non_finite.join(", "));
+        }
+        writeln!(
+            out,
+            "{} {} increment {} ({}): {what} -> {}",
+            p.fail("FAIL"),
+            r.routine.name,
+            inc.index,
+            inc.branch_label(),
+            inc.finding()
+        )?;
+    }
+    verdict(out, r, p)
+}
+
+fn increment(out: &mut dyn Write, inc: &IncrementResult, detail: Detail, p: Palette) -> io::Result<()> {
+    let cleared = inc.diagnosis.as_ref().is_some_and(|d| d.pass);
+    let mut cells: Vec<String> = inc
+        .checks
+        .iter()
+        .map(|c| {
+            let text = format!("{:<22}", cell(c, cleared));
+            if c.passed() || cleared {
+                text
+            } else {
+                p.fail(&text)
+            }
+        })
+        .collect();
+    if let Some(d) = &inc.diagnosis {
+        cells.push(if d.twin_unsafe && d.pass {
+            p.warn(&format!("-> tangent ok; {}", d.finding))
+        } else if d.pass {
+            "-> ok on a closer look".into()
+        } else {
+            p.fail(&format!("-> {}", d.finding))
+        });
+    }
+    writeln!(out, "   {:>3}  {:<24}{}", inc.index, inc.branch_label(), cells.join(""))?;
+    if let Some(f) = &inc.fault {
+        fault(out, f)?;
+    }
+    for nf in &inc.non_finite {
+        writeln!(out, "        the routine returned a value that is not a finite number: {nf}")?;
+    }
+    if let Some(c) = &inc.non_finite_call {
+        inputs(out, c)?;
+    }
+    for c in &inc.checks {
+        if !inc.passed() && !c.passed() || detail == Detail::Verbose {
+            details(out, inc, c)?;
+        }
+    }
+    if let Some(d) = &inc.diagnosis {
+        if !d.pass || detail == Detail::Verbose {
+            diagnosis(out, d)?;
+        } else if d.twin_unsafe {
+            writeln!(out, "        tangent cleared, twin set aside: {}", d.reason)?;
+        } else {
+            writeln!(out, "        cleared on a closer look: {}", d.reason)?;
+        }
+    }
+    Ok(())
+}
+
+fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
+    for s in &r.summary {
+        if s.checks == 0 && s.skipped > 0 {
+            writeln!(out, "   {:<13} skipped at every increment", s.scheme.name())?;
+            continue;
+        }
+        // A check that failed at an increment the closer look cleared is not a failure of
+        // the tangent: count it apart so the summary agrees with the verdict.
+        let cleared = r
+            .increments
+            .iter()
+            .filter(|inc| inc.diagnosis.as_ref().is_some_and(|d| d.pass))
+            .flat_map(|inc| &inc.checks)
+            .filter(|c| c.scheme == s.scheme && !c.passed())
+            .count();
+        let aside =
+            if cleared > 0 { format!(" ({cleared} cleared on a closer look)") } else { String::new() };
+        let failed = s.failed.saturating_sub(cleared);
+        let count = format!("{failed} of {} checks failed", s.checks);
+        writeln!(
+            out,
+            "   {:<13} {}{aside}; worst norm error {}, worst entry error {} (tolerance {})",
+            s.scheme.name(),
+            if failed > 0 { p.fail(&count) } else { count },
+            sci(s.worst_norm_error),
+            sci(s.worst_entry_error),
+            sci(s.tol)
+        )?;
+    }
+    for b in &r.branches {
+        if b.failed > 0 {
+            writeln!(
+                out,
+                "   branch {}: failed at {} of {} increments, worst {}",
+                b.branch,
+                b.failed,
+                b.increments,
+                sci(b.worst_error)
+            )?;
+        } else {
+            writeln!(
+                out,
+                "   branch {}: passed at {} increments (worst {})",
+                b.branch,
+                b.increments,
+                sci(b.worst_error)
+            )?;
+        }
+    }
+    for c in &r.coverage {
+        writeln!(out, "   {}: {c}", p.warn("coverage warning"))?;
+    }
+    for n in &r.notes {
+        writeln!(out, "   note: {n}")?;
+    }
+    Ok(())
+}
+
+fn verdict(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
+    let what = match r.verdict {
+        Verdict::Pass => {
+            "the returned tangent is the derivative of the stress update at every increment checked"
+        }
+        // Only outputs that are not finite numbers, no tangent mismatch.
+        Verdict::TangentFailure
+            if r.failing().all(|i| {
+                !i.non_finite.is_empty() && i.checks.iter().all(tancheck_core::report::SchemeCheck::passed)
+            }) =>
+        {
+            "the routine returned values that are not finite numbers"
+        }
+        Verdict::TangentFailure => "the returned tangent differs from the derivative of the stress update",
+        Verdict::RoutineFault => "the routine crashed or could not compute an increment",
+        Verdict::TwinNotSafe => {
+            "the returned tangent agrees with the real difference schemes, but the complex-step twin is \
+             not complex-step safe (its results were set aside; see the diagnosis for the usual culprits)"
+        }
+    };
+    writeln!(out, "   verdict: {} — {what} (exit {})", p.verdict(r.verdict.word()), r.exit_code())
+}
+
+/// One table cell: verdict word and the largest of norm, entry and soft-direction error.
+/// `cleared`: the increment's closer look cleared it, so a failed check reads "cleared".
+fn cell(c: &SchemeCheck, cleared: bool) -> String {
+    let mut s = match &c.tangent {
+        CheckOutcome::Compared(cmp) => {
+            let word = if cmp.pass {
+                "ok"
+            } else if cleared {
+                "cleared"
+            } else {
+                "FAIL"
+            };
+            format!("{word} {}", sci(cmp.error()))
+        }
+        CheckOutcome::Skipped { reason } => format!("skipped ({reason})"),
+        CheckOutcome::Fault(_) => "CRASH".into(),
+    };
+    if let Some(CheckOutcome::Compared(d)) = &c.dstress_dtemp {
+        if !d.pass {
+            s.push_str(" dT!");
+        }
+    }
+    s
+}
+
+fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::Result<()> {
+    for (what, o) in
+        std::iter::once(("tangent", &c.tangent)).chain(c.dstress_dtemp.iter().map(|d| ("dstress/dT", d)))
+    {
+        match o {
+            CheckOutcome::Compared(cmp) => {
+                writeln!(
+                    out,
+                    "        {} {what} at increment {}, step {}: norm error {}, worst entry error {} (tolerance {})",
+                    c.scheme.name(),
+                    inc.index,
+                    sci(c.step),
+                    sci(cmp.norm_error),
+                    sci(cmp.worst_entry_error),
+                    sci(cmp.tol)
+                )?;
+                if cmp.soft_error > cmp.tol {
+                    writeln!(
+                        out,
+                        "          along {}: error {} relative to the response in that direction",
+                        cmp.soft_direction,
+                        sci(cmp.soft_error)
+                    )?;
+                }
+                if cmp.non_finite_returned > 0 {
+                    writeln!(
+                        out,
+                        "          {} returned entries are not finite numbers",
+                        cmp.non_finite_returned
+                    )?;
+                }
+                for e in cmp.worst.iter().filter(|e| !cmp.pass && e.error > cmp.tol) {
+                    writeln!(
+                        out,
+                        "          entry {:<7} returned {:>12.6e}  derivative {:>12.6e}  error {}",
+                        e.label,
+                        e.returned,
+                        e.numerical,
+                        sci(e.error)
+                    )?;
+                }
+            }
+            CheckOutcome::Skipped { .. } => {}
+            CheckOutcome::Fault(f) => fault(out, f)?,
+        }
+    }
+    Ok(())
+}
+
+/// The closer look: verdict, kink, step studies, ranked causes.
+pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
+    writeln!(out, "        diagnosis: {}", d.reason)?;
+    if let Some(k) = &d.kink {
+        if k.detected {
+            writeln!(
+                out,
+                "          kink: forward and backward derivatives differ by {} to {}; returned vs forward {}, vs backward {}",
+                sci(k.gaps.iter().cloned().fold(f64::INFINITY, f64::min)),
+                sci(k.gaps.iter().cloned().fold(0.0, f64::max)),
+                sci(k.forward_error),
+                sci(k.backward_error)
+            )?;
+            if !k.columns.is_empty() {
+                writeln!(out, "          side matched per column: {}", k.sides)?;
+            }
+        }
+    }
+    for s in &d.studies {
+        let slope = s.slope.map_or("-".to_string(), |x| format!("{x:.2}"));
+        let what = match s.behaviour {
+            Behaviour::Converges => "converges".to_string(),
+            Behaviour::Plateau => format!("plateau at {}", sci(s.plateau.unwrap_or(f64::NAN))),
+            Behaviour::Inconclusive => "inconclusive".to_string(),
+        };
+        writeln!(
+            out,
+            "          step study {:<8} best error {} at relative step {:.0e}, slope {slope} (order {}), noise floor {}: {what}",
+            s.scheme.name(),
+            sci(s.best_error),
+            s.best_rel_step,
+            s.scheme.order(),
+            sci(s.noise_floor)
+        )?;
+    }
+    if let Some(r) = &d.refinement {
+        let e: Vec<String> =
+            r.fractions.iter().zip(&r.errors).map(|(f, e)| format!("{f}×: {}", sci(*e))).collect();
+        writeln!(
+            out,
+            "          refined increments: {}{}",
+            e.join(", "),
+            if r.same_branch { "" } else { " (not all in the same branch)" }
+        )?;
+    }
+    let list = |out: &mut dyn Write, title: &str, hs: &[Hypothesis]| -> io::Result<()> {
+        if hs.is_empty() {
+            return Ok(());
+        }
+        writeln!(out, "          {title} (error left after the correction):")?;
+        for (k, h) in hs.iter().take(4).enumerate() {
+            writeln!(
+                out,
+                "            {}. {:<18} {:<10} {}{}",
+                k + 1,
+                h.cause.name(),
+                sci(h.error_left),
+                h.detail,
+                if h.explains { "" } else { "  (does not explain it)" }
+            )?;
+        }
+        Ok(())
+    };
+    list(out, "likely causes", &d.causes)?;
+    list(out, "likely causes of the ∂σ/∂T error", &d.dtemp_causes)?;
+    Ok(())
+}
+
+fn fault(out: &mut dyn Write, f: &FaultRecord) -> io::Result<()> {
+    writeln!(out, "        {}", f.message)?;
+    inputs(out, &f.call)
+}
+
+fn inputs(out: &mut dyn Write, c: &tancheck_core::report::CallRecord) -> io::Result<()> {
+    writeln!(out, "          inputs of that call (increment {}):", c.increment)?;
+    if let Some(p) = &c.perturbation {
+        writeln!(out, "            perturbation  {p}")?;
+    }
+    writeln!(out, "            strain        {:?}", c.strain)?;
+    writeln!(out, "            dstrain       {:?}", c.dstrain)?;
+    writeln!(out, "            stress0       {:?}", c.stress0)?;
+    writeln!(out, "            state0        {:?}", c.state0)?;
+    writeln!(out, "            props         {:?}", c.props)?;
+    writeln!(out, "            temp, dtemp   {}, {}   time, dtime {}, {}", c.temp, c.dtemp, c.time, c.dtime)?;
+    Ok(())
+}

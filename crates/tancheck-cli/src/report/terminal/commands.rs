@@ -1,0 +1,413 @@
+//! The readable reports of the commands besides `check`: probe suite, bisect, replay, a
+//! folder of cases, selftest.
+
+use std::io::{self, Write};
+
+use tancheck_core::bisect::{Inside, Located, StepVerdict};
+use tancheck_core::case::Numbers;
+use tancheck_core::probe::{ProbeStatus, SuiteReport};
+use tancheck_core::Verdict;
+
+use super::{Detail, Palette};
+use crate::report::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+
+/// The verdict word of an exit code.
+fn verdict_word(code: i32) -> &'static str {
+    match code {
+        crate::exit::PASS => "PASS",
+        crate::exit::TANGENT_FAILURE => "FAIL",
+        _ => "FAULT",
+    }
+}
+
+/// A probe suite: a line per probe (only the failed ones with `-q`), details of failures.
+pub fn suite(
+    out: &mut dyn Write,
+    report: &SuiteReport,
+    ctx: &SuiteContext,
+    detail: Detail,
+    p: Palette,
+) -> io::Result<()> {
+    let quiet = detail == Detail::Quiet;
+    if !quiet {
+        writeln!(out, "{}", p.head(&format!("== {} — suite {} ==", report.routine, report.suite)))?;
+        writeln!(out, "   path ({}): {}", ctx.path_source, report.path)?;
+        for n in &ctx.notes {
+            writeln!(out, "   note: {n}")?;
+        }
+        writeln!(out)?;
+    }
+    for r in &report.results {
+        let failed = r.status == ProbeStatus::Fail;
+        if quiet && !failed {
+            continue;
+        }
+        let word = format!("{:<8}", r.status.word());
+        let word = match r.status {
+            ProbeStatus::Fail => p.fail(&word),
+            ProbeStatus::Pass => p.pass(&word),
+            _ => p.dim(&word),
+        };
+        if quiet {
+            writeln!(out, "{} {} probe {}: {}", p.fail("FAIL"), report.routine, r.probe, r.summary)?;
+            continue;
+        }
+        writeln!(out, "   {:<15} {word} {}", r.probe, r.summary)?;
+        if detail == Detail::Verbose || failed {
+            for d in &r.details {
+                writeln!(out, "                            {d}")?;
+            }
+        }
+    }
+    let failed = report.results.iter().filter(|r| r.status == ProbeStatus::Fail).count();
+    writeln!(
+        out,
+        "{}   verdict: {} — {} of {} probes failed (exit {})",
+        if quiet { "" } else { "\n" },
+        p.verdict(if report.pass { "PASS" } else { "FAIL" }),
+        failed,
+        report.results.len(),
+        if report.pass { 0 } else { 1 }
+    )?;
+    if !quiet {
+        for c in &report.cautions {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
+    Ok(())
+}
+
+fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<()> {
+    writeln!(
+        out,
+        "{indent}first failing increment: {} of {}, branch {}, finding {}",
+        l.increment, l.of, l.branch, l.finding
+    )?;
+    match &l.inside {
+        Inside::Crossing(c) => {
+            writeln!(
+                out,
+                "{indent}inside increment {}: the error takes its class at fraction {:.7} of the increment \
+                 (between {:.7} and {:.7}, width {:.1e})",
+                l.increment,
+                c.fraction(),
+                c.below,
+                c.above,
+                c.above - c.below
+            )?;
+            writeln!(
+                out,
+                "{indent}  below: branch {}, {} (error {:.2e})",
+                c.class_below.branch_label(),
+                c.class_below.word(),
+                c.error_below
+            )?;
+            writeln!(
+                out,
+                "{indent}  above: branch {}, {} (error {:.2e})",
+                c.class_above.branch_label(),
+                c.class_above.word(),
+                c.error_above
+            )?;
+        }
+        Inside::Throughout { smallest } => writeln!(
+            out,
+            "{indent}inside increment {}: every fraction judged, down to {smallest:.1e}, has the class of the whole \
+             increment; the failure does not start inside it",
+            l.increment
+        )?,
+    }
+    writeln!(out, "{indent}  (fractions judged by {}: {})", l.judged_by.name(), l.samples.len())?;
+    if let Some(s) = &l.step {
+        let words = match s.verdict {
+            StepVerdict::Mismatch => format!(
+                "the discrepancy levels off at {:.2e} as the step shrinks: a true mismatch, not truncation or noise",
+                s.plateau.unwrap_or(f64::NAN)
+            ),
+            StepVerdict::Truncation => {
+                "a difference converges to the returned tangent: truncation of the default step, not a mismatch".into()
+            }
+            StepVerdict::Noise => {
+                "the discrepancy neither converges nor levels off: noise (inner solves, rounding) hides it".into()
+            }
+        };
+        writeln!(out, "{indent}in the step: {words}")?;
+        for st in &s.studies {
+            writeln!(
+                out,
+                "{indent}  {:<8} best error {:.2e} at relative step {:.0e}, slope {}, noise floor {:.2e}",
+                st.scheme.name(),
+                st.best_error,
+                st.best_rel_step,
+                st.slope.map_or("-".into(), |x| format!("{x:.2}")),
+                st.noise_floor
+            )?;
+        }
+    }
+    Ok(())
+}
+
+/// Print the outcome for the terminal.
+pub fn bisect(out: &mut dyn Write, o: &BisectOutcome, detail: Detail, p: Palette) -> io::Result<()> {
+    if detail == Detail::Quiet {
+        if let Some(l) = &o.located {
+            writeln!(
+                out,
+                "{} {} increment {} of {}, branch {}: {}",
+                p.fail("FAIL"),
+                o.routine,
+                l.increment,
+                l.of,
+                l.branch,
+                l.finding
+            )?;
+        }
+        return writeln!(out, "   verdict: {} (exit {})", p.verdict(o.verdict.word()), o.exit_code);
+    }
+    writeln!(out, "{}", p.head(&format!("== bisect {} ==", o.routine)))?;
+    writeln!(out, "   path: {}", o.path)?;
+    match &o.located {
+        None if o.verdict == Verdict::Pass => {
+            writeln!(out, "   every increment passed: nothing to bisect")?;
+        }
+        None => {
+            // The check failed before the path: the zero increment from the start state.
+            writeln!(
+                out,
+                "   no increment of the path failed the check; the zero increment from the start state \
+                 (increment 0 of `tancheck check`) did, and it is not on the path: nothing to bisect"
+            )?;
+        }
+        Some(l) => {
+            write_located(out, l, "   ")?;
+            if let Some(s) = &o.shrunk {
+                writeln!(
+                    out,
+                    "   shrunk: {} increments to {} ({} candidates checked, {} kept, {:.1} s); {}",
+                    s.original_increments,
+                    s.path.increments.len(),
+                    s.iterations,
+                    s.accepted,
+                    s.seconds,
+                    s.stopped
+                )?;
+                for (k, inc) in s.path.increments.iter().enumerate() {
+                    writeln!(
+                        out,
+                        "     {:>3}  dstrain {:?}{}{}",
+                        k + 1,
+                        inc.dstrain,
+                        if inc.dtemp != 0.0 { format!("  dtemp {}", inc.dtemp) } else { String::new() },
+                        if inc.hold_stress.is_some() { "  (mixed control)" } else { "" }
+                    )?;
+                }
+                if let Some(l) = &s.located {
+                    write_located(out, l, "     ")?;
+                }
+            }
+        }
+    }
+    for c in &o.cases {
+        writeln!(out, "   case written: {}  (rerun: tancheck replay {})", c.display(), c.display())?;
+    }
+    for w in &o.warnings {
+        writeln!(out, "   warning: {w}")?;
+    }
+    writeln!(out, "   verdict: {} (exit {})", p.verdict(o.verdict.word()), o.exit_code)?;
+    for c in &o.cautions {
+        writeln!(out, "   caution: {c}")?;
+    }
+    Ok(())
+}
+
+fn numbers_line(v: &Numbers) -> String {
+    v.bits
+        .iter()
+        .map(|b| format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0))))
+        .collect::<Vec<_>>()
+        .join(" ")
+}
+
+/// Print a replay for the terminal.
+pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette) -> io::Result<()> {
+    let n = r.stress.bits.len();
+    if detail == Detail::Quiet {
+        if !r.pass {
+            writeln!(out, "{} {}: {} ({})", p.fail("FAIL"), r.case, r.finding, r.origin)?;
+        }
+        return writeln!(out, "   verdict: {} (exit {})", p.verdict(verdict_word(r.exit_code)), r.exit_code);
+    }
+    writeln!(out, "{}", p.head(&format!("== replay of {} ==", r.case)))?;
+    writeln!(out, "   routine: {}", r.routine)?;
+    writeln!(out, "   call: {}", r.origin)?;
+    for w in &r.warnings {
+        writeln!(out, "   warning: {w}")?;
+    }
+    if let Some(f) = &r.fault {
+        writeln!(out, "   the call faulted: {f}")?;
+    }
+    if r.identical {
+        writeln!(
+            out,
+            "   outputs: the same as in the case, bit for bit (status, branch, stress, state, tangent)"
+        )?;
+    } else {
+        writeln!(out, "   outputs DIFFER from the case:")?;
+        for d in &r.differences {
+            writeln!(out, "     {d}")?;
+        }
+    }
+    writeln!(out, "   status {}, branch {}", r.status, r.branch)?;
+    writeln!(out, "   stress  {}", numbers_line(&r.stress))?;
+    writeln!(out, "   tangent (row i: ∂σ_i/∂Δε_j, j = 1 … {n})")?;
+    for i in 0..n {
+        let row: Vec<String> = (0..n)
+            .map(|j| {
+                let b = r.tangent.bits.get(i + j * n).map(String::as_str).unwrap_or("0");
+                format!("{:>24e}", f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0)))
+            })
+            .collect();
+        writeln!(out, "     {}", row.join(" "))?;
+    }
+    for c in &r.checks {
+        match c.outcome.as_str() {
+            "compared" => writeln!(
+                out,
+                "   {:<13} {}  norm error {:e}, worst entry error {:e} (tolerance {:e}){}",
+                c.scheme.name(),
+                if c.pass { "agrees " } else { "DIFFERS" },
+                c.norm_error.unwrap_or(f64::NAN),
+                c.worst_entry_error.unwrap_or(f64::NAN),
+                c.tol.unwrap_or(f64::NAN),
+                c.worst
+                    .iter()
+                    .filter(|e| !c.pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
+                    .take(2)
+                    .map(|e| format!(
+                        "; {} returned {:e}, derivative {:e}",
+                        e.label,
+                        e.returned.unwrap_or(f64::NAN),
+                        e.numerical.unwrap_or(f64::NAN)
+                    ))
+                    .collect::<String>()
+            )?,
+            other => {
+                writeln!(out, "   {:<13} {other}: {}", c.scheme.name(), c.detail.as_deref().unwrap_or(""))?
+            }
+        }
+    }
+    writeln!(out, "   finding: {} (the case recorded {})", r.finding, r.recorded_finding)?;
+    if let Some(p) = &r.path_leads_here {
+        if p == "yes" {
+            writeln!(out, "   path: walking the case's path reaches this call bit for bit")?;
+        } else {
+            writeln!(out, "   path: {p}")?;
+        }
+    }
+    let what = match r.exit_code {
+        crate::exit::PASS => "PASS — the returned tangent is the derivative at this call now",
+        crate::exit::TANGENT_FAILURE => {
+            "FAIL — the returned tangent still differs from the derivative at this call"
+        }
+        _ => "FAULT — the routine crashed or failed at this call",
+    };
+    writeln!(out, "   verdict: {what} (exit {})", r.exit_code)?;
+    writeln!(out, "   to rerun it under a debugger: {}", r.debugger)?;
+    for c in tancheck_core::report::CAUTIONS {
+        writeln!(out, "   caution: {c}")?;
+    }
+    Ok(())
+}
+
+/// A summary for the terminal: one line per case, then the counts.
+pub fn cases(out: &mut dyn Write, s: &CaseFolderResult, detail: Detail, p: Palette) -> io::Result<()> {
+    if detail != Detail::Quiet {
+        writeln!(out, "{}", p.head(&format!("== cases in {} ==", s.folder.display())))?;
+    }
+    for c in s.failed.iter().chain(&s.passed).filter(|c| detail != Detail::Quiet || !c.report.pass) {
+        let r = &c.report;
+        writeln!(
+            out,
+            "   {} {}: {}{}",
+            if r.pass {
+                p.pass("pass")
+            } else if r.exit_code == crate::exit::ROUTINE_FAULT {
+                p.fail("FAULT")
+            } else {
+                p.fail("FAIL")
+            },
+            c.file.file_name().map(|f| f.to_string_lossy()).unwrap_or_default(),
+            r.finding,
+            if r.identical { String::new() } else { " (outputs differ from the case)".into() }
+        )?;
+    }
+    for b in &s.broken {
+        writeln!(out, "   warning: broken case {b}")?;
+    }
+    for w in &s.warnings {
+        writeln!(out, "   warning: {w}")?;
+    }
+    if !s.other_routines.is_empty() && detail != Detail::Quiet {
+        writeln!(
+            out,
+            "   set aside: {} case(s) of other routines (--all-cases runs them too)",
+            s.other_routines.len()
+        )?;
+    }
+    writeln!(
+        out,
+        "   cases: {} pass, {} fail, {} broken{}",
+        s.passed.len(),
+        s.failed.len(),
+        s.broken.len(),
+        if s.other_routines.is_empty() {
+            String::new()
+        } else {
+            format!(", {} of other routines", s.other_routines.len())
+        }
+    )
+}
+
+/// The selftest table: a row per routine (only the wrong ones with `-q`), and the count.
+pub fn selftest(out: &mut dyn Write, r: &SelftestReport, detail: Detail, p: Palette) -> io::Result<()> {
+    let quiet = detail == Detail::Quiet;
+    for s in &r.skipped {
+        writeln!(out, "SKIPPED {s}")?;
+    }
+    if !quiet {
+        writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
+        writeln!(
+            out,
+            "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} right",
+            "variant", "language", "expected", "verdict", "found", "at inc"
+        )?;
+    }
+    for row in r.rows.iter().filter(|row| !quiet || !row.right) {
+        let verdict = format!("{:<7}", row.verdict.word());
+        writeln!(
+            out,
+            "{:<26} {:<8} {:<27} {} {:<27} {:<6} {}",
+            row.variant,
+            row.language,
+            row.expected,
+            if row.verdict == Verdict::Pass { p.pass(&verdict) } else { p.warn(&verdict) },
+            row.found,
+            row.first_increment.map_or("-".into(), |i| i.to_string()),
+            if row.right { p.pass("yes") } else { p.fail("NO") }
+        )?;
+    }
+    let wrong = r.wrong();
+    let line = format!("{} of {} rows right", r.rows.len() - wrong, r.rows.len());
+    writeln!(
+        out,
+        "{}{}",
+        if quiet { "" } else { "\n" },
+        if wrong == 0 { p.pass(&line) } else { p.fail(&line) }
+    )?;
+    if detail == Detail::Verbose {
+        for (name, what) in &r.descriptions {
+            writeln!(out, "  {name:<26} {what}")?;
+        }
+    }
+    Ok(())
+}

@@ -1,0 +1,70 @@
+//! The readable report for a terminal: every report kind, at three levels of detail, with
+//! colour when asked for (see `style`).
+
+use std::io::{self, Write};
+
+use tancheck_core::probe::SuiteReport;
+use tancheck_core::Report;
+
+use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+pub use super::style::Palette;
+use super::Reporter;
+
+pub mod check;
+pub mod commands;
+
+pub use check::diagnosis;
+
+/// How much the terminal report says.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum Detail {
+    /// One line per failing check, and the verdict.
+    Quiet,
+    /// Rows for what needs one (runs of passing increments folded), details of failures.
+    Normal,
+    /// Details of every check, a row per increment.
+    Verbose,
+}
+
+/// The terminal reporter: writes each report it gets to `out`.
+pub struct Terminal<'a> {
+    pub detail: Detail,
+    pub palette: Palette,
+    out: Box<dyn Write + 'a>,
+}
+
+impl<'a> Terminal<'a> {
+    /// Without colour.
+    pub fn new(detail: Detail, out: impl Write + 'a) -> Terminal<'a> {
+        Terminal { detail, palette: Palette { on: false }, out: Box::new(out) }
+    }
+
+    /// With colour when `color` (escape codes stripped otherwise, whoever wrote them).
+    pub fn colored(detail: Detail, out: impl Write + 'a, color: bool) -> Terminal<'a> {
+        Terminal { detail, palette: Palette { on: color }, out: super::style::stream(out, color) }
+    }
+}
+
+impl Reporter for Terminal<'_> {
+    fn check(&mut self, report: &Report) -> io::Result<()> {
+        check::write(&mut self.out, report, self.detail, self.palette)
+    }
+    fn suite(&mut self, report: &SuiteReport, context: &SuiteContext) -> io::Result<()> {
+        commands::suite(&mut self.out, report, context, self.detail, self.palette)
+    }
+    fn bisect(&mut self, outcome: &BisectOutcome) -> io::Result<()> {
+        commands::bisect(&mut self.out, outcome, self.detail, self.palette)
+    }
+    fn replay(&mut self, report: &ReplayReport) -> io::Result<()> {
+        commands::replay(&mut self.out, report, self.detail, self.palette)
+    }
+    fn cases(&mut self, result: &CaseFolderResult) -> io::Result<()> {
+        commands::cases(&mut self.out, result, self.detail, self.palette)
+    }
+    fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
+        commands::selftest(&mut self.out, report, self.detail, self.palette)
+    }
+    fn finish(&mut self) -> io::Result<()> {
+        self.out.flush()
+    }
+}

@@ -1,0 +1,315 @@
+//! The compact report: a fixed-size record per increment (enough to plot the path and its
+//! errors later) and a collector that keeps the full detail only of the increments that need
+//! it, so a long path costs memory for its records only.
+
+use std::borrow::Cow;
+
+use serde::{Deserialize, Serialize};
+
+use super::{BranchSummary, CheckOutcome, IncrementResult, SchemeSummary};
+use crate::schemes::Scheme;
+use crate::settings::Settings;
+
+/// Components a record holds at most (a 3D solid).
+pub const RECORD_COMPONENTS: usize = 6;
+/// Schemes a record holds at most (every scheme there is).
+pub const RECORD_SCHEMES: usize = Scheme::ALL.len();
+
+/// One increment in a fixed size: where it went, which branch, and the worst error per scheme.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct IncrementRecord {
+    /// 1-based (0 is the zero increment from the start state).
+    pub index: u32,
+    /// The branch the routine reported, if it reported one.
+    pub branch: Option<i32>,
+    pub state_changed: bool,
+    /// The increment's verdict ([`IncrementResult::passed`]).
+    pub pass: bool,
+    ncomp: u8,
+    nschemes: u8,
+    strain: [f64; RECORD_COMPONENTS],
+    stress: [f64; RECORD_COMPONENTS],
+    /// Largest of norm, entry and soft-direction error per scheme (NaN: not compared).
+    worst: [f64; RECORD_SCHEMES],
+}
+
+impl IncrementRecord {
+    /// The record of `inc`, whose checks follow `schemes` (the settings' order).
+    pub fn of(inc: &IncrementResult, schemes: &[Scheme]) -> IncrementRecord {
+        let mut r = IncrementRecord {
+            index: inc.index as u32,
+            branch: inc.reported_branch,
+            state_changed: inc.state_changed,
+            pass: inc.passed(),
+            ncomp: inc.strain.len().min(RECORD_COMPONENTS) as u8,
+            nschemes: schemes.len().min(RECORD_SCHEMES) as u8,
+            strain: [0.0; RECORD_COMPONENTS],
+            stress: [0.0; RECORD_COMPONENTS],
+            worst: [f64::NAN; RECORD_SCHEMES],
+        };
+        let n = r.ncomp as usize;
+        r.strain[..n].copy_from_slice(&inc.strain[..n]);
+        r.stress[..n.min(inc.stress.len())].copy_from_slice(&inc.stress[..n.min(inc.stress.len())]);
+        for c in &inc.checks {
+            if let (Some(k), CheckOutcome::Compared(cmp)) =
+                (schemes.iter().position(|&s| s == c.scheme), &c.tangent)
+            {
+                if k < RECORD_SCHEMES {
+                    r.worst[k] = cmp.error();
+                }
+            }
+        }
+        r
+    }
+
+    /// The branch as the reports name it: the routine's number (when it reports one) and
+    /// whether the state changed, e.g. `#1 (state changed)`.
+    pub fn branch_label(&self) -> String {
+        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
+        match self.branch {
+            Some(b) => format!("#{b} ({changed})"),
+            None => changed.to_string(),
+        }
+    }
+
+    /// Strain at the end of the increment, routine order.
+    pub fn strain(&self) -> &[f64] {
+        &self.strain[..self.ncomp as usize]
+    }
+
+    /// Stress at the end of the increment, routine order.
+    pub fn stress(&self) -> &[f64] {
+        &self.stress[..self.ncomp as usize]
+    }
+
+    /// Worst error per scheme, in the order of the report's `settings.schemes`; `None` where
+    /// the scheme compared nothing (skipped, or the call faulted).
+    pub fn worst_errors(&self) -> impl Iterator<Item = Option<f64>> + '_ {
+        self.worst[..self.nschemes as usize].iter().map(|&e| (!e.is_nan()).then_some(e))
+    }
+
+    /// The largest worst error over the schemes (0 when none compared).
+    pub fn worst_error(&self) -> f64 {
+        self.worst_errors().flatten().fold(0.0, f64::max)
+    }
+}
+
+/// The JSON shape of a record.
+#[derive(Serialize, Deserialize, schemars::JsonSchema)]
+#[schemars(rename = "IncrementRecord")]
+struct RecordShape {
+    index: u32,
+    branch: Option<i32>,
+    state_changed: bool,
+    pass: bool,
+    /// Strain at the end of the increment, routine order.
+    strain: Vec<f64>,
+    /// Stress at the end of the increment, routine order.
+    stress: Vec<f64>,
+    /// Largest of norm, entry and soft-direction error per scheme, in the order of
+    /// `settings.schemes`; null where the scheme compared nothing.
+    worst_error: Vec<Option<f64>>,
+}
+
+impl Serialize for IncrementRecord {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        RecordShape {
+            index: self.index,
+            branch: self.branch,
+            state_changed: self.state_changed,
+            pass: self.pass,
+            strain: self.strain().to_vec(),
+            stress: self.stress().to_vec(),
+            worst_error: self.worst_errors().collect(),
+        }
+        .serialize(s)
+    }
+}
+
+impl<'de> Deserialize<'de> for IncrementRecord {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Self, D::Error> {
+        let r = RecordShape::deserialize(d)?;
+        let too_long = |what: &str, n: usize, max: usize| {
+            serde::de::Error::custom(format!("an increment record has {n} {what}; at most {max}"))
+        };
+        if r.strain.len() > RECORD_COMPONENTS || r.stress.len() != r.strain.len() {
+            return Err(too_long(
+                "strain/stress components",
+                r.strain.len().max(r.stress.len()),
+                RECORD_COMPONENTS,
+            ));
+        }
+        if r.worst_error.len() > RECORD_SCHEMES {
+            return Err(too_long("scheme errors", r.worst_error.len(), RECORD_SCHEMES));
+        }
+        let mut out = IncrementRecord {
+            index: r.index,
+            branch: r.branch,
+            state_changed: r.state_changed,
+            pass: r.pass,
+            ncomp: r.strain.len() as u8,
+            nschemes: r.worst_error.len() as u8,
+            strain: [0.0; RECORD_COMPONENTS],
+            stress: [0.0; RECORD_COMPONENTS],
+            worst: [f64::NAN; RECORD_SCHEMES],
+        };
+        out.strain[..r.strain.len()].copy_from_slice(&r.strain);
+        out.stress[..r.stress.len()].copy_from_slice(&r.stress);
+        for (w, e) in out.worst.iter_mut().zip(&r.worst_error) {
+            *w = e.unwrap_or(f64::NAN);
+        }
+        Ok(out)
+    }
+}
+
+impl schemars::JsonSchema for IncrementRecord {
+    fn schema_name() -> Cow<'static, str> {
+        RecordShape::schema_name()
+    }
+
+    fn json_schema(generator: &mut schemars::SchemaGenerator) -> schemars::Schema {
+        RecordShape::json_schema(generator)
+    }
+}
+
+/// Which increments a report keeps in full detail.
+#[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum Keep {
+    /// Every increment (what library users and the probes get).
+    #[default]
+    All,
+    /// Only the increments that failed, faulted or were looked at more closely; every
+    /// increment still has its record.
+    Failures,
+}
+
+/// Builds the increments, records and summaries of a report one increment at a time.
+#[derive(Debug)]
+pub struct Collector {
+    keep: Keep,
+    schemes: Vec<Scheme>,
+    pub(crate) records: Vec<IncrementRecord>,
+    pub(crate) increments: Vec<IncrementResult>,
+    pub(crate) summary: Vec<SchemeSummary>,
+    pub(crate) branches: Vec<BranchSummary>,
+    /// The index of the increment whose base call faulted (the path stops there).
+    pub(crate) stopped_at: Option<usize>,
+    pub(crate) any_fault: bool,
+    pub(crate) all_passed: bool,
+    pub(crate) twin_unsafe: bool,
+    pub(crate) state_ever_changed: bool,
+}
+
+impl Collector {
+    pub fn new(settings: &Settings, keep: Keep, increments: usize) -> Collector {
+        Collector {
+            keep,
+            schemes: settings.schemes.clone(),
+            records: Vec::with_capacity(increments + 1),
+            increments: Vec::with_capacity(if keep == Keep::All { increments + 1 } else { 0 }),
+            summary: settings
+                .schemes
+                .iter()
+                .map(|&scheme| SchemeSummary {
+                    scheme,
+                    checks: 0,
+                    failed: 0,
+                    skipped: 0,
+                    worst_norm_error: 0.0,
+                    worst_entry_error: 0.0,
+                    tol: settings.scheme(scheme).tol,
+                })
+                .collect(),
+            branches: Vec::new(),
+            stopped_at: None,
+            any_fault: false,
+            all_passed: true,
+            twin_unsafe: false,
+            state_ever_changed: false,
+        }
+    }
+
+    /// Add the next increment.
+    pub fn push(&mut self, inc: IncrementResult) {
+        let record = IncrementRecord::of(&inc, &self.schemes);
+        for c in &inc.checks {
+            let Some(s) = self.summary.iter_mut().find(|s| s.scheme == c.scheme) else { continue };
+            match &c.tangent {
+                CheckOutcome::Compared(cmp) => {
+                    s.checks += 1;
+                    s.worst_norm_error = s.worst_norm_error.max(cmp.norm_error);
+                    s.worst_entry_error = s.worst_entry_error.max(cmp.worst_entry_error);
+                }
+                CheckOutcome::Skipped { .. } => s.skipped += 1,
+                CheckOutcome::Fault(_) => s.checks += 1,
+            }
+            s.failed += (!c.passed()) as usize;
+        }
+        let worst = inc
+            .checks
+            .iter()
+            .filter_map(|c| match &c.tangent {
+                CheckOutcome::Compared(x) => Some(x.error()),
+                _ => None,
+            })
+            .fold(0.0, f64::max);
+        let b =
+            match self.branches.iter().position(|b| {
+                b.reported_branch == inc.reported_branch && b.state_changed == inc.state_changed
+            }) {
+                Some(k) => &mut self.branches[k],
+                None => {
+                    self.branches.push(BranchSummary {
+                        branch: inc.branch_label(),
+                        reported_branch: inc.reported_branch,
+                        state_changed: inc.state_changed,
+                        increments: 0,
+                        failed: 0,
+                        worst_error: 0.0,
+                    });
+                    self.branches.last_mut().expect("just pushed")
+                }
+            };
+        b.increments += 1;
+        b.failed += (!record.pass) as usize;
+        b.worst_error = b.worst_error.max(worst);
+        if inc.fault.is_some() && self.stopped_at.is_none() {
+            self.stopped_at = Some(inc.index);
+        }
+        self.any_fault |= inc.fault.is_some()
+            || inc.checks.iter().any(|c| {
+                matches!(c.tangent, CheckOutcome::Fault(_))
+                    || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+            });
+        self.all_passed &= record.pass;
+        self.twin_unsafe |= inc.diagnosis.as_ref().is_some_and(|d| d.twin_unsafe);
+        self.state_ever_changed |= inc.state_changed;
+        self.records.push(record);
+        let full = match self.keep {
+            Keep::All => true,
+            Keep::Failures => !record.pass || inc.diagnosis.is_some() || inc.fault.is_some(),
+        };
+        if full {
+            self.increments.push(inc);
+        }
+    }
+
+    /// Whether the last increment's base call faulted (the path stops).
+    pub fn last_faulted(&self) -> bool {
+        self.stopped_at.is_some()
+    }
+
+    /// Increments added so far.
+    pub fn len(&self) -> usize {
+        self.records.len()
+    }
+
+    pub fn is_empty(&self) -> bool {
+        self.records.is_empty()
+    }
+
+    pub fn keep(&self) -> Keep {
+        self.keep
+    }
+}

@@ -1,0 +1,68 @@
+//! Peak memory of a long check with a JSON report: the report keeps a fixed-size record per
+//! passing increment and streams its JSON, so a 20,000-increment check of the example J2 C
+//! routine with `--json FILE` stays at or under 30 MiB (issue 12; it took 222 MiB before the
+//! compact report, DEVELOPERS.md "Measuring speed"). The check runs in a child process; its
+//! maximum resident set size is the one wait4 returns for that child alone.
+
+use std::path::Path;
+use std::process::Command;
+
+#[path = "../benches/common/mod.rs"]
+mod common;
+
+/// The bar of issue 12, in KiB.
+const MAX_RSS_KIB: i64 = 30 * 1024;
+
+/// Wait for the child `pid`; its exit code and its maximum resident set size in KiB (Linux
+/// reports ru_maxrss in KiB).
+fn wait_with_rss(pid: u32) -> (Option<i32>, i64) {
+    // SAFETY: wait4 writes the status and the struct it is given; `pid` is our child, not yet
+    // waited for.
+    unsafe {
+        let mut u: libc::rusage = std::mem::zeroed();
+        let mut status = 0;
+        assert_eq!(libc::wait4(pid as libc::pid_t, &mut status, 0, &mut u), pid as libc::pid_t);
+        let code = libc::WIFEXITED(status).then(|| libc::WEXITSTATUS(status));
+        (code, u.ru_maxrss)
+    }
+}
+
+#[test]
+fn a_20000_increment_check_with_a_json_report_stays_under_30_mib() {
+    let d = std::env::temp_dir().join(format!("tancheck-memory-test-{}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    let lib = common::routine_library(&d);
+    let (_, manifest) = common::manifest(&d, &lib, common::J2, "light");
+    let path_file = d.join("cyclic-20000.json");
+    common::write_path_file(&common::cyclic_path(20_000), &path_file);
+    let json = d.join("j2.json");
+    let out = d.join("out.txt");
+    let child = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(&manifest)
+        .arg("--path")
+        .arg(&path_file)
+        .arg("--json")
+        .arg(&json)
+        .stdout(std::fs::File::create(&out).unwrap())
+        .spawn()
+        .unwrap();
+    let (code, rss) = wait_with_rss(child.id());
+    std::mem::forget(child); // waited for above
+    let stdout = std::fs::read_to_string(&out).unwrap();
+    assert_eq!(code, Some(0), "{stdout}");
+    assert!(rss > 0, "wait4 gave no resident set size");
+    // The report is complete: a record for every increment.
+    let report: serde_json::Value = serde_json::from_reader(std::fs::File::open(&json).unwrap()).unwrap();
+    assert_eq!(report["records"].as_array().unwrap().len(), 20_000);
+    assert_eq!(report["verdict"], "pass");
+    // The readable report folds the passing increments: a few lines, not 20,000.
+    assert!(stdout.lines().count() < 60, "{stdout}");
+    eprintln!("peak resident set size of the check: {rss} KiB ({:.1} MiB)", rss as f64 / 1024.0);
+    assert!(
+        rss <= MAX_RSS_KIB,
+        "a 20,000-increment check with --json took {rss} KiB at its peak; the bar is {MAX_RSS_KIB} KiB"
+    );
+    let _ = std::fs::remove_dir_all(Path::new(&d));
+}
