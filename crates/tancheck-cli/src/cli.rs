@@ -246,8 +246,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         case_code = r.exit_code();
     }
     if !a.schemes.is_empty() {
-        m.check.schemes =
-            a.schemes.iter().map(|s| s.parse()).collect::<Result<_, String>>().map_err(anyhow::Error::msg)?;
+        m.check.schemes = a.schemes.iter().map(|s| s.parse()).collect::<Result<_, _>>()?;
     }
     for t in &a.tols {
         let (s, v) = scheme_value(t, "tol")?;

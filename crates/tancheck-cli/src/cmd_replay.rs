@@ -246,7 +246,7 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
         recorded_finding,
         path_leads_here: r.path_leads_here.map(|x| match x {
             Ok(()) => "yes".to_string(),
-            Err(m) => m,
+            Err(m) => m.to_string(),
         }),
         debugger: shell_line(&debugger_words(file, symbol.as_deref())),
         debugger_args: debugger_words(file, symbol.as_deref()),

@@ -20,6 +20,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::diagnose::study::{self, StepStudy};
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::path::{Path, PathIncrement};
 use crate::report::{CallRecord, IncrementResult, Report};
 use crate::routine::{Caller, Fault};
@@ -54,18 +55,15 @@ impl Default for BisectSettings {
 }
 
 impl BisectSettings {
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), CoreError> {
         if !(self.fraction_tol > 0.0 && self.fraction_tol < 1.0) {
-            return Err(format!("the fraction tolerance must lie in (0, 1), got {}", self.fraction_tol));
+            return Err(CoreError::FractionTolerance(self.fraction_tol));
         }
         if self.grid < 2 {
-            return Err(format!("the grid of fractions needs at least 2 points, got {}", self.grid));
+            return Err(CoreError::GridTooSmall(self.grid));
         }
         if !(self.smallest_fraction > 0.0 && self.smallest_fraction < 1.0 / self.grid as f64) {
-            return Err(format!(
-                "the smallest fraction must lie in (0, 1/grid), got {}",
-                self.smallest_fraction
-            ));
+            return Err(CoreError::SmallestFraction(self.smallest_fraction));
         }
         Ok(())
     }
@@ -234,9 +232,9 @@ pub fn driver_at(
     path: &Path,
     index: usize,
     settings: &Settings,
-) -> Result<(Driver, Option<Vec<f64>>), String> {
+) -> Result<(Driver, Option<Vec<f64>>), CoreError> {
     if index == 0 || index > path.increments.len() {
-        return Err(format!("increment {index} is not on the path ({} increments)", path.increments.len()));
+        return Err(CoreError::NotOnPath { index, count: path.increments.len() });
     }
     let info = caller.info().clone();
     let conv = info.convention.clone();
@@ -248,8 +246,7 @@ pub fn driver_at(
     for (k, inc) in path.increments.iter().enumerate().take(index) {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
         driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
-        let fail =
-            |f: Fault| format!("walking the path to increment {index}: increment {} failed: {f}", k + 1);
+        let fail = |fault: Fault| CoreError::WalkFailed { target: index, increment: k + 1, fault };
         let base = base_call_of(&mut driver, caller, inc, settings);
         if k + 1 == index {
             // The call of the increment itself may fault: that is what is being looked at.
@@ -313,7 +310,7 @@ pub fn locate(
     report: &Report,
     settings: &Settings,
     bisect: &BisectSettings,
-) -> Result<Option<Located>, String> {
+) -> Result<Option<Located>, CoreError> {
     bisect.validate()?;
     let Some(failed) = first_failure(report) else { return Ok(None) };
     let index = failed.index;

@@ -3,6 +3,7 @@
 
 use crate::call_check as judge;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::first_calls;
 use crate::mixed;
 use crate::path::Path;
@@ -24,7 +25,7 @@ pub fn run(
     start: PointState,
     path: &Path,
     settings: &Settings,
-) -> Result<Report, String> {
+) -> Result<Report, CoreError> {
     settings.validate()?;
     path.validate()?;
     let info = caller.info().clone();

@@ -34,6 +34,7 @@
 
 use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::{Direction, Driver};
+use crate::error::CoreError;
 use crate::routine::Caller;
 use crate::schemes::Scheme;
 
@@ -51,8 +52,8 @@ pub fn elastic_tangent(
 ) -> Result<(Vec<f64>, Scheme), crate::routine::Fault> {
     let info = caller.info().clone();
     let n = info.convention.ncomp();
-    let mut d =
-        Driver::new(&info, env.props, env.start.clone()).map_err(crate::routine::Fault::Unsupported)?;
+    let mut d = Driver::new(&info, env.props, env.start.clone())
+        .map_err(|e| crate::routine::Fault::Unsupported(e.to_string()))?;
     d.set_increment(&vec![0.0; n], 0.0, 1.0);
     d.base_call(caller)?;
     let scheme = if caller.has_complex() { Scheme::ComplexStep } else { Scheme::Central };
@@ -71,7 +72,7 @@ impl Probe for Conventions {
     fn needs(&self) -> &'static str {
         "the stress update around a zero increment from the start (an elastic response there)"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let conv = caller.info().convention.clone();
         let (t, scheme) = match elastic_tangent(caller, env) {

@@ -1,6 +1,7 @@
 //! The determinism probe: the same call twice gives bit-identical stress, state and tangent.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Determinism;
@@ -12,7 +13,7 @@ impl Probe for Determinism {
     fn needs(&self) -> &'static str {
         "the stress update"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first_diff = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first_diff.is_some() {

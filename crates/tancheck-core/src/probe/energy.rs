@@ -13,6 +13,7 @@
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::{provides, Caller, Fault};
 use crate::ShearMeasure;
 
@@ -58,7 +59,8 @@ fn closed_cycle(
 ) -> Result<(f64, bool), Fault> {
     let conv = &info.convention;
     let n = conv.ncomp();
-    let mut d = Driver::new(info, env.props, env.start.clone()).map_err(Fault::Unsupported)?;
+    let mut d =
+        Driver::new(info, env.props, env.start.clone()).map_err(|e| Fault::Unsupported(e.to_string()))?;
     let (mut net, mut gross) = (0.0, 0.0);
     let mut elastic = true;
     let legs = [(0usize, 1.0), (1, 1.0), (0, -1.0), (1, -1.0)];
@@ -89,7 +91,7 @@ impl Probe for Energy {
     fn needs(&self) -> &'static str {
         "the stress update; the energy outputs for the dissipation and energy-balance parts"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let info = caller.info().clone();
         let conv = info.convention.clone();
         let w: Vec<f64> = conv

@@ -23,6 +23,7 @@
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{canonical_slot, PointKind};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Frame;
@@ -131,7 +132,7 @@ impl Probe for Frame {
     fn needs(&self) -> &'static str {
         "the stress update (and the tangent) from a virgin start; for anisotropic models, material axes among the properties"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let info = caller.info().clone();
         let conv = info.convention.clone();
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
@@ -181,11 +182,7 @@ impl Probe for Frame {
             };
             for &a in axes {
                 if a + 3 > props.len() {
-                    return Err(format!(
-                        "frame: axis vector at property {a} needs properties {a}..{}, but the routine has {}",
-                        a + 2,
-                        props.len()
-                    ));
+                    return Err(CoreError::AxisProperty { at: a, nprop: props.len() });
                 }
                 let v = [props[a], props[a + 1], props[a + 2]];
                 for i in 0..3 {

@@ -3,6 +3,7 @@
 //! keeps saved (static) variables between calls fails.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct HiddenState;
@@ -14,7 +15,7 @@ impl Probe for HiddenState {
     fn needs(&self) -> &'static str {
         "the stress update"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first.is_some() {

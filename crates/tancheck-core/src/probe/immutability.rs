@@ -3,6 +3,7 @@
 //! call and compared bit for bit after it.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Immutability;
@@ -14,7 +15,7 @@ impl Probe for Immutability {
     fn needs(&self) -> &'static str {
         "the stress update"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first: Option<(usize, String)> = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first.is_some() {

@@ -5,6 +5,7 @@
 //! than `tol` (default 1e-12, absolute; damage is dimensionless) fails.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Irreversibility;
@@ -18,7 +19,7 @@ impl Probe for Irreversibility {
     fn needs(&self) -> &'static str {
         "the stress update and the state indices of the damage variables (\"damage\")"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let name = self.name();
         let Some(indices) = env.spec.damage.as_ref().filter(|v| !v.is_empty()) else {
             return Ok(ProbeResult::skipped(
@@ -28,9 +29,7 @@ impl Probe for Irreversibility {
         };
         let nstate = caller.info().nstate;
         if let Some(&bad) = indices.iter().find(|&&i| i >= nstate) {
-            return Err(format!(
-                "irreversibility: damage index {bad} is not a state variable (the routine has {nstate})"
-            ));
+            return Err(CoreError::DamageIndex { index: bad, nstate });
         }
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let mut first: Option<(usize, usize, f64, f64)> = None; // (increment, index, before, after)

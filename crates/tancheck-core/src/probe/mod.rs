@@ -6,6 +6,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::check::held_components;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::mixed;
 use crate::path::Path;
 use crate::routine::{Caller, Fault};
@@ -147,7 +148,7 @@ pub trait Probe {
     /// What it needs from the routine, in words.
     fn needs(&self) -> &'static str;
     /// Run it. Errors are bad input; a crashing routine is a failed probe with the fault.
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String>;
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError>;
 }
 
 /// Every probe this build knows, by name.
@@ -184,8 +185,8 @@ pub fn walk(
 ) -> Result<(), (usize, Fault)> {
     let info = caller.info().clone();
     let conv = info.convention.clone();
-    let mut driver =
-        Driver::new(&info, env.props, env.start.clone()).map_err(|e| (0, Fault::Unsupported(e)))?;
+    let mut driver = Driver::new(&info, env.props, env.start.clone())
+        .map_err(|e| (0, Fault::Unsupported(e.to_string())))?;
     let mut dstrain = vec![0.0; conv.ncomp()];
     for (k, inc) in env.path.increments.iter().enumerate() {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
@@ -240,12 +241,12 @@ pub fn run_suite(
     start: &PointState,
     path: &Path,
     settings: &Settings,
-) -> Result<SuiteReport, String> {
+) -> Result<SuiteReport, CoreError> {
     let mut results = Vec::new();
     for spec in specs {
         let probe = by_name(&spec.probe).ok_or_else(|| {
             let names: Vec<_> = registry().iter().map(|p| p.name()).collect();
-            format!("unknown probe `{}`; known probes: {}", spec.probe, names.join(", "))
+            CoreError::UnknownProbe { given: spec.probe.clone(), known: names.join(", ") }
         })?;
         let env = ProbeEnv { props, start, path, settings, spec };
         results.push(probe.run(caller, &env)?);

@@ -34,6 +34,7 @@
 //! skipped.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::mixed::{self, MixedSettings, SolveLog};
 use crate::routine::Caller;
 
@@ -144,7 +145,7 @@ impl Probe for NewtonRate {
     fn needs(&self) -> &'static str {
         "the stress update and the tangent"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         if caller.info().convention.ncomp() < 2 {
             return Ok(ProbeResult::skipped(
                 "newton",

@@ -6,6 +6,7 @@
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
 pub struct Refinement;
@@ -31,7 +32,7 @@ impl Probe for Refinement {
     fn needs(&self) -> &'static str {
         "the stress update"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let max_m = env.spec.subdivisions.unwrap_or(8).max(4);
         let floor = env.spec.tol.unwrap_or(1e-12);
         let mut orders = Vec::new();

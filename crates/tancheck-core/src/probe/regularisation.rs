@@ -13,6 +13,7 @@
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::ShearMeasure;
+use crate::error::CoreError;
 use crate::path::Path;
 use crate::routine::Caller;
 
@@ -60,7 +61,7 @@ impl Probe for Regularisation {
     fn needs(&self) -> &'static str {
         "a path to full failure; the property index of the characteristic length (\"length\") and/or the fracture energy (\"fracture_energy\")"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let name = self.name();
         let (length, g) = (env.spec.length, env.spec.fracture_energy);
         if length.is_none() && g.is_none() {
@@ -68,7 +69,7 @@ impl Probe for Regularisation {
         }
         if let Some(i) = length {
             if i >= env.props.len() || !env.props[i].is_finite() || env.props[i] <= 0.0 {
-                return Err(format!("regularisation: \"length\" {i} is not a positive property"));
+                return Err(CoreError::LengthProperty(i));
             }
         }
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);

@@ -33,6 +33,7 @@ use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{Convention, PointKind};
+use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
 pub struct Stability;
@@ -373,7 +374,7 @@ impl Probe for Stability {
     fn needs(&self) -> &'static str {
         "the tangent"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let s = match survey(caller, env) {
             Ok(s) => s,

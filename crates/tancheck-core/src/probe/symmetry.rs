@@ -4,6 +4,7 @@
 //! need to know.
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Symmetry;
@@ -15,7 +16,7 @@ impl Probe for Symmetry {
     fn needs(&self) -> &'static str {
         "the tangent"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let conv = caller.info().convention.clone();
         let n = conv.ncomp();
         let tol = env.spec.tol.unwrap_or(1e-10);

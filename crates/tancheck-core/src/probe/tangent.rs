@@ -3,6 +3,7 @@
 
 use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::check;
+use crate::error::CoreError;
 use crate::routine::Caller;
 use crate::Verdict;
 
@@ -15,7 +16,7 @@ impl Probe for Tangent {
     fn needs(&self) -> &'static str {
         "the stress update and its tangent (the complex twin for complex-step checks)"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut settings = env.settings.clone();
         if let Some(t) = env.spec.tol {
             for s in crate::Scheme::ALL {

@@ -2,6 +2,7 @@
 //! start stress and a finite tangent (default tolerance 1e-12 of the stress scale).
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct ZeroIncrement;
@@ -13,7 +14,7 @@ impl Probe for ZeroIncrement {
     fn needs(&self) -> &'static str {
         "the stress update"
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(1e-12);
         // The worst change of the stress, where it was; and the first increment where the
         // fault appeared (a change beyond `tol`, or an output that is not finite), with what.
