@@ -17,9 +17,6 @@ pub mod error;
 pub mod memory_guards;
 pub mod signal_guard;
 
-// The modules' former names, for callers written before the rename.
-pub use memory_guards as guards;
-pub use signal_guard as guard;
 pub mod library;
 pub mod locate;
 pub mod watch;

@@ -4,7 +4,7 @@ use std::ffi::CString;
 use std::fmt::Write as _;
 
 use serde_json::{json, Value};
-use tancheck_abi::guard::{ComplexFn, RealFn};
+use tancheck_abi::signal_guard::{ComplexFn, RealFn};
 use tancheck_abi::{GuardFinding, GuardLevel, LibraryRoutine, LoadError};
 use tancheck_core::{Caller, Report, Verdict};
 

@@ -8,14 +8,13 @@ use clap::{Args, CommandFactory, Parser, Subcommand};
 
 use tancheck_core::{Caller, PointKind, Scheme};
 
+use crate::demo::DemoArgs;
 use crate::exit;
 use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
 use crate::report::terminal::Detail;
 use crate::report::write_atomic;
-// Kept reachable here for older callers; their home is session.rs (and demo.rs for DemoArgs).
-pub use crate::demo::DemoArgs;
-pub use crate::session::{default_path, emit, routine_name, run_manifest};
+use crate::session::{default_path, emit, routine_name, run_manifest};
 
 #[derive(Parser, Debug)]
 #[command(

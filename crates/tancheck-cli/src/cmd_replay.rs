@@ -31,7 +31,7 @@ pub struct ReplayArgs {
     pub no_walk: bool,
 }
 
-pub use crate::case_store::{case_file_name, open_for_manifest, sha256_file, write_case, Opened};
+use crate::case_store::{sha256_file, Opened};
 
 /// A case file that cannot be used, as `file:line:column: why`.
 fn broken(file: &FsPath, e: &CaseError) -> String {

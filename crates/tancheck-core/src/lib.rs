@@ -26,9 +26,6 @@ pub mod scalar;
 pub mod schemes;
 pub mod settings;
 
-/// relabel.rs under its former name, for callers written before the rename.
-pub use relabel as adapt;
-
 pub use convention::{Component, Convention, PointKind, ShearMeasure};
 pub use driver::{Direction, Driver, PointState};
 pub use error::CoreError;

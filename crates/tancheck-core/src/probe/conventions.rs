@@ -40,9 +40,7 @@ use crate::schemes::Scheme;
 
 pub struct Conventions;
 
-pub use crate::convention_fit::{
-    analyse, asymmetry, canonical_mandel, isotropy_residual, Finding, Hypothesis, DEFAULT_TOL,
-};
+use crate::convention_fit::{analyse, Finding, DEFAULT_TOL};
 
 /// The numerical elastic tangent at the start: around a zero increment, by the complex step
 /// when the routine has a twin, else by central differences.

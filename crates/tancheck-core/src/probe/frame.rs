@@ -109,7 +109,7 @@ fn mandel_norm(a: &[f64; 6]) -> f64 {
     (a[0] * a[0] + a[1] * a[1] + a[2] * a[2] + 2.0 * (a[3] * a[3] + a[4] * a[4] + a[5] * a[5])).sqrt()
 }
 
-use super::conventions::canonical_mandel;
+use crate::convention_fit::{canonical_mandel, isotropy_residual};
 
 fn fro6(m: &[[f64; 6]; 6]) -> f64 {
     m.iter().flatten().map(|x| x * x).sum::<f64>().sqrt()
@@ -157,8 +157,8 @@ impl Probe for Frame {
                 Err(f) => return Ok(faulted("frame", 1, &f)),
             };
             let present: Vec<usize> = conv.order().iter().map(|c| canonical_slot(*c)).collect();
-            let residual = super::conventions::isotropy_residual(&canonical_mandel(&conv, &t), &present);
-            if residual > super::conventions::DEFAULT_TOL {
+            let residual = isotropy_residual(&canonical_mandel(&conv, &t), &present);
+            if residual > crate::convention_fit::DEFAULT_TOL {
                 let mut res = ProbeResult::skipped(
                     "frame",
                     format!(
