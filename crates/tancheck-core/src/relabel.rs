@@ -128,6 +128,9 @@ impl<R: Routine> Routine for Relabel<R> {
             None
         }
     }
+    fn capabilities(&mut self) -> crate::routine::Capabilities {
+        self.inner.capabilities()
+    }
 }
 
 impl<R: Routine> ComplexRoutine for Relabel<R> {

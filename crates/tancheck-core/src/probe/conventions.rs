@@ -32,6 +32,7 @@
 //! elastic increment's numerical tangent, at no extra cost, and warns only when the evidence
 //! is conclusive and differs from the declaration.
 
+use super::Needs;
 use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::{Direction, Driver};
 use crate::error::CoreError;
@@ -67,8 +68,9 @@ impl Probe for Conventions {
     fn name(&self) -> &'static str {
         "conventions"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update around a zero increment from the start (an elastic response there)"
+    fn needs(&self) -> Needs {
+        // The twin is used when there is one, not required.
+        Needs::empty()
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);

@@ -11,6 +11,7 @@
 //! Work uses the work-conjugate dot product of the routine's convention (a tensor shear
 //! component counts twice).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
 use crate::error::CoreError;
@@ -88,8 +89,10 @@ impl Probe for Energy {
     fn name(&self) -> &'static str {
         "energy"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update; the energy outputs for the dissipation and energy-balance parts"
+    fn needs(&self) -> Needs {
+        // The energy outputs are read where a call fills them in (Outcome::provides); the
+        // stress-update parts run without them.
+        Needs::empty()
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let info = caller.info().clone();

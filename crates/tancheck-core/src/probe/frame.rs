@@ -20,6 +20,7 @@
 //! Mismatches are Mandel (Frobenius) norms relative to the largest stress (tangent) norm
 //! along the path; both must stay within `tol` (default 1e-10) at every probed increment.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{canonical_slot, PointKind};
 use crate::driver::Driver;
@@ -129,8 +130,8 @@ impl Probe for Frame {
     fn name(&self) -> &'static str {
         "frame"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update (and the tangent) from a virgin start; for anisotropic models, material axes among the properties"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT.union(Needs::FRAME).union(Needs::VIRGIN_START)
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let info = caller.info().clone();
@@ -141,13 +142,6 @@ impl Probe for Frame {
             Ok(r) => r,
             Err(why) => return Ok(ProbeResult::skipped("frame", why)),
         };
-        let s = env.start;
-        if s.strain.iter().chain(&s.stress).chain(&s.state).any(|&x| x != 0.0) {
-            return Ok(ProbeResult::skipped(
-                "frame",
-                "the start has nonzero strain, stress or state: rotating it would need the meaning of each state variable",
-            ));
-        }
         let anisotropic = env.spec.anisotropic.unwrap_or(false) || env.spec.axes.is_some();
         if env.spec.anisotropic.is_none() && env.spec.axes.is_none() {
             // Nothing declared: an anisotropic elastic response without material axes to rotate

@@ -2,6 +2,7 @@
 //! strain increment, start stress, start state, properties). Inputs are copied before each
 //! call and compared bit for bit after it.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::routine::Caller;
@@ -12,8 +13,8 @@ impl Probe for Immutability {
     fn name(&self) -> &'static str {
         "immutability"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first: Option<(usize, String)> = None;

@@ -4,6 +4,7 @@
 //! change from m to 2m sub-increments, is reported (about 1 for backward Euler, and the
 //! changes are at rounding level for a path-independent law).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
 use crate::error::CoreError;
@@ -29,8 +30,8 @@ impl Probe for Refinement {
     fn name(&self) -> &'static str {
         "refinement"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let max_m = env.spec.subdivisions.unwrap_or(8).max(4);

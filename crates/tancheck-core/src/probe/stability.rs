@@ -29,6 +29,7 @@
 //! path (the smallest normalised eigenvalue for cohesive points). It fails only when the
 //! routine fails during the walk.
 
+use super::Needs;
 use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
@@ -371,8 +372,8 @@ impl Probe for Stability {
     fn name(&self) -> &'static str {
         "stability"
     }
-    fn needs(&self) -> &'static str {
-        "the tangent"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);

@@ -3,6 +3,7 @@
 //! otherwise an unsymmetric tangent is reported, since a solver with symmetric storage would
 //! need to know.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::routine::Caller;
@@ -13,8 +14,8 @@ impl Probe for Symmetry {
     fn name(&self) -> &'static str {
         "symmetry"
     }
-    fn needs(&self) -> &'static str {
-        "the tangent"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let conv = caller.info().convention.clone();

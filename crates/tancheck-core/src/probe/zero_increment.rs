@@ -1,6 +1,7 @@
 //! The zero-increment probe: Δε = 0 (and ΔT = 0, Δt = 0) from the start of each increment returns the
 //! start stress and a finite tangent (default tolerance 1e-12 of the stress scale).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::routine::Caller;
@@ -11,8 +12,8 @@ impl Probe for ZeroIncrement {
     fn name(&self) -> &'static str {
         "zero-increment"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(1e-12);
