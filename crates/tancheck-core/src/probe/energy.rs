@@ -141,6 +141,8 @@ impl Probe for Energy {
             details.push(format!(
                 "the state variables changed even at amplitude {a:e}: the cycle is not elastic and its net work is not checked"
             ));
+        // Why 1e-10: the trapezoid rule is exact for a linear response, so only rounding of the
+        // sums (well under 1e-12 of the work) is left; 1e-10 keeps a margin of 100.
         } else if cycle > 1e-10 {
             fail = Some((
                 0,
@@ -163,6 +165,8 @@ impl Probe for Energy {
             let (stored, diss) = (d.base.energy[0], d.base.energy[1]);
             scale = scale.max(stored.abs()).max(diss.abs());
             if let Some(p) = prev_diss {
+                // Why 1e-12 of the energy scale: rounding of a sum of energies; a real decrease
+                // of dissipation is far larger.
                 if diss < p - 1e-12 * scale.max(1e-300) && fail.is_none() {
                     fail = Some((
                         k,

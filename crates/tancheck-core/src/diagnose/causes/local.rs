@@ -74,6 +74,7 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
 
     // Continuum tangent: the discrepancy falls in proportion to the increment.
     if let Some(rf) = ev.refinement {
+        // Why 3: two ratios of successive errors are the fewest that show a trend, not a point.
         if rf.same_branch && rf.errors.len() >= 3 {
             let e = &rf.errors;
             let ratio = |a: usize, b: usize| e[b] / e[a] / (rf.fractions[b] / rf.fractions[a]);

@@ -85,6 +85,7 @@ pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
                 c[i + j * n] += k;
             }
         }
+        // Why 1e-300: only a guard against dividing by the zero norm of an all-zero matrix.
         let num_norm = ev.numerical.iter().map(|x| x * x).sum::<f64>().sqrt().max(1e-300);
         // Why 1e-12: symmetric up to rounding of the products that built it (a few ulps of the
         // norm); the skew part of the numerical one must be 10 × tol to count.

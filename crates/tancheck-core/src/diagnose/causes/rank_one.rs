@@ -25,6 +25,7 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
         let mut order: Vec<usize> = (0..svd.singular_values.len()).collect();
         order.sort_by(|&a, &b| svd.singular_values[b].total_cmp(&svd.singular_values[a]));
         let s: Vec<f64> = order.iter().map(|&k| svd.singular_values[k]).collect();
+        // Why 1e-300: only a guard against dividing by the zero norm of an all-zero matrix.
         let norm = m.iter().map(|x| x * x).sum::<f64>().sqrt().max(1e-300);
         let rest = s.iter().skip(1).map(|x| x * x).sum::<f64>().sqrt() / norm;
         if s.first().is_some_and(|&x| x > 0.0) {
@@ -69,6 +70,8 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             };
             let tau = (u.transpose() * &bm * &v)[(0, 0)] - background * u.dot(&v);
             let sigma = (u.transpose() * &dm * &v)[(0, 0)];
+            // Why 1e-12: below that the derivative has no part along u⊗v beyond rounding of
+            // the norm (a few ulps), so no factor can be told.
             let factor = if tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
             let size = s[0] / norm;
             // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
