@@ -134,6 +134,10 @@ impl Probe for Frame {
         Needs::TANGENT.union(Needs::FRAME).union(Needs::VIRGIN_START)
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped("frame", why));
+        }
         let info = caller.info().clone();
         let conv = info.convention.clone();
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);

@@ -147,6 +147,10 @@ impl Probe for NewtonRate {
         Needs::TANGENT.union(Needs::SEVERAL_COMPONENTS)
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped("newton", why));
+        }
         let min_order = env.spec.tol.unwrap_or(DEFAULT_MIN_ORDER);
         let solves = match study(caller, env) {
             Ok(s) => s,

@@ -63,6 +63,10 @@ impl Probe for Regularisation {
         Needs::LENGTH_OR_FRACTURE_ENERGY
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped(self.name(), why));
+        }
         let name = self.name();
         let (length, g) = (env.spec.length, env.spec.fracture_energy);
         if let Some(i) = length {
