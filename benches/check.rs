@@ -58,7 +58,7 @@ fn bench(c: &mut Criterion) {
     tancheck::abi::build_library(&tancheck::abi::BuildOptions::new([src], &lib_path)).unwrap();
     let lib = tancheck::abi::Library::open(&lib_path).unwrap();
     let info = reference("j2", PointKind::Solid3d).unwrap().info().clone();
-    let path = tancheck::cli::cli::default_path(PointKind::Solid3d);
+    let path = tancheck::cli::session::default_path(PointKind::Solid3d);
     let mut g = c.benchmark_group("first calls");
     for (name, on) in [
         ("compiled j2, default path, default check", true),

@@ -44,7 +44,7 @@ fn bench(c: &mut Criterion) {
     let dir = common::work_dir();
     let lib_path = common::routine_library(&dir);
     let settings = Settings::default();
-    let default_path = tancheck::cli::cli::default_path(PointKind::Solid3d);
+    let default_path = tancheck::cli::session::default_path(PointKind::Solid3d);
 
     // The default check at each guard level.
     let mut g = c.benchmark_group("default check of a loaded C routine");

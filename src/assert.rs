@@ -76,7 +76,8 @@ use crate::abi::{Library, LibraryRoutine, LoadError};
 use crate::cli::report::terminal::{Detail, Terminal};
 use crate::cli::report::Reporter;
 use crate::core::{
-    check, Caller, Convention, PointKind, PointState, Report, Routine, RoutineInfo, Settings, Verdict,
+    check, Caller, Convention, CoreError, PointKind, PointState, Report, Routine, RoutineInfo, Settings,
+    Verdict,
 };
 
 /// The settings of a check, for the helpers with `_with`. The defaults are those of
@@ -95,7 +96,7 @@ pub struct Options {
 #[derive(Clone, Debug)]
 pub enum CheckFailure {
     /// The check could not run: the inputs do not fit the routine.
-    Input { routine: String, message: String },
+    Input { routine: String, error: CoreError },
     /// The check ran and did not pass.
     Verdict(Box<Report>),
 }
@@ -103,8 +104,8 @@ pub enum CheckFailure {
 impl std::fmt::Display for CheckFailure {
     fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
         match self {
-            CheckFailure::Input { routine, message } => {
-                write!(f, "tancheck could not check `{routine}`: {message}")
+            CheckFailure::Input { routine, error } => {
+                write!(f, "tancheck could not check `{routine}`: {error}")
             }
             CheckFailure::Verdict(report) => f.write_str(&failure_message(report)),
         }
@@ -125,7 +126,7 @@ pub fn run_check(
     let start = options.start.clone().unwrap_or_else(|| PointState::zero(&info, 0.0));
     let mut caller = Caller::new(routine);
     check::run(&mut caller, props, start, path, &options.settings)
-        .map_err(|message| CheckFailure::Input { routine: info.name.clone(), message })
+        .map_err(|error| CheckFailure::Input { routine: info.name.clone(), error })
 }
 
 /// Check and return the report when every check passed; otherwise the failure, whose

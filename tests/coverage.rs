@@ -28,7 +28,7 @@ fn an_elastic_only_uniaxial_path_is_flagged() {
 
 #[test]
 fn the_default_path_reaches_plastic_flow_and_unloading() {
-    let r = run("j2", &tancheck::cli::cli::default_path(PointKind::Solid3d));
+    let r = run("j2", &tancheck::cli::session::default_path(PointKind::Solid3d));
     assert!(r.coverage.is_empty(), "{:?}", r.coverage);
     assert!(r.branches.len() >= 2, "{:?}", r.branches);
     let total: usize = r.branches.iter().map(|b| b.increments).sum();
@@ -38,7 +38,7 @@ fn the_default_path_reaches_plastic_flow_and_unloading() {
 
 #[test]
 fn failures_are_counted_per_branch() {
-    let r = run("j2-continuum", &tancheck::cli::cli::default_path(PointKind::Solid3d));
+    let r = run("j2-continuum", &tancheck::cli::session::default_path(PointKind::Solid3d));
     let plastic = r.branches.iter().find(|b| b.branch.starts_with("#1")).expect("a plastic branch");
     let elastic = r.branches.iter().find(|b| b.branch.starts_with("#0")).expect("an elastic branch");
     assert_eq!(plastic.failed, plastic.increments, "{plastic:?}");

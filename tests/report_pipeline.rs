@@ -62,7 +62,7 @@ fn the_c_api_and_the_command_line_write_the_same_json() {
     // SAFETY: the symbols have the routine ABI's real and complex signatures.
     let (real, twin) = unsafe {
         (
-            *library.get::<tancheck::abi::guard::RealFn>(b"c_j2\0").unwrap(),
+            *library.get::<tancheck::abi::signal_guard::RealFn>(b"c_j2\0").unwrap(),
             *library.get::<tancheck_capi::check::TwinFn>(b"c_j2_cx\0").unwrap(),
         )
     };

@@ -229,7 +229,7 @@ fn softening_without_declared_damage_is_skipped_and_a_bad_index_is_an_error() {
         &Settings::default(),
     )
     .unwrap_err();
-    assert!(e.contains("damage index 2"), "{e}");
+    assert!(e.to_string().contains("damage index 2"), "{e}");
 }
 
 // ---------------------------------------------------------------------------------------

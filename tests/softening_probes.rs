@@ -150,7 +150,8 @@ fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_erro
         &Settings::default(),
     )
     .unwrap_err();
-    assert!(e.contains("damage index 7"), "{e}");
+    assert!(matches!(e, tancheck::core::CoreError::DamageIndex { index: 7, .. }), "{e:?}");
+    assert!(e.to_string().contains("damage index 7"), "{e}");
 }
 
 /// The demo ply with ν12 = ν13 = 0, so that a path of transverse strain alone is a uniaxial

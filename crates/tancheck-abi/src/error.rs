@@ -98,6 +98,14 @@ fn missing_symbol_message(library: &std::path::Path, symbol: &str, near: &[Strin
     m
 }
 
+/// A setting of the routine's guards, given by name, that does not exist.
+#[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
+#[non_exhaustive]
+pub enum SettingError {
+    #[error("unknown guard level `{0}`; expected off, light or full")]
+    UnknownGuardLevel(String),
+}
+
 /// Floating-point traps cannot be switched on.
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]

@@ -17,9 +17,6 @@ pub mod error;
 pub mod memory_guards;
 pub mod signal_guard;
 
-// The modules' former names, for callers written before the rename.
-pub use memory_guards as guards;
-pub use signal_guard as guard;
 pub mod library;
 pub mod locate;
 pub mod watch;
@@ -28,7 +25,7 @@ pub use compile::{
     build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,
     BuildLog, BuildOptions, DEBUG_MARKER,
 };
-pub use error::{BuildError, LoadError, TrapError};
+pub use error::{BuildError, LoadError, SettingError, TrapError};
 pub use library::{Library, LibraryRoutine};
 pub use memory_guards::{FindingKind, GuardFinding, GuardLevel, GuardedArray};
 pub use signal_guard::{Crash, CrashDetail, SignalKind, EXIT_STATUS_ROUTINE_EXITED, TWIN_SUFFIX};

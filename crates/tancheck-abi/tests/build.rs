@@ -106,7 +106,7 @@ fn fortran_debug_builds_use_the_debug_flags() {
     let lib = Library::open(&out).unwrap();
     assert!(lib.has_symbol(tancheck_abi::DEBUG_MARKER), "a debug build carries the marker");
     let mut r = lib.routine("f_elastic", elastic_info("f")).unwrap();
-    r.set_fp_traps(tancheck_abi::guard::fp_traps_available()).unwrap();
+    r.set_fp_traps(tancheck_abi::signal_guard::fp_traps_available()).unwrap();
     let mut b = Real::new();
     b.call(&mut r, 1).unwrap();
     b.assert_elastic();

@@ -88,7 +88,7 @@ fn a_guarded_call_allocates_nothing() {
         assert_eq!(caller.complex_calls, 100);
     }
     // With traps on as well, on the normal path.
-    r.set_fp_traps(tancheck_abi::guard::fp_traps_available()).unwrap();
+    r.set_fp_traps(tancheck_abi::signal_guard::fp_traps_available()).unwrap();
     b.call(&mut r, 1).unwrap();
     let after = allocations();
     assert_eq!(after - before, 0, "the guarded calls allocated {} times", after - before);

@@ -3,7 +3,7 @@
 use std::ffi::CString;
 use std::fmt::Write as _;
 
-use tancheck_abi::guard::{ComplexFn, RealFn};
+use tancheck_abi::signal_guard::{ComplexFn, RealFn};
 use tancheck_abi::{GuardFinding, GuardLevel, LibraryRoutine, LoadError};
 use tancheck_core::{Caller, Report, Verdict};
 
@@ -73,7 +73,7 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
             tancheck_core::report::Keep::Failures,
             &mut |_| {},
         )
-        .map_err(Failure::invalid)?
+        .map_err(|e| Failure::invalid(e.to_string()))?
     };
     let findings = routine.take_findings();
     Ok(finish(report, findings, plan.guard_level, routine.guard_calls()))

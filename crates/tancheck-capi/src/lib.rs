@@ -21,7 +21,7 @@ pub mod status;
 
 use std::ffi::{c_char, c_int};
 
-use tancheck_abi::guard::RealFn;
+use tancheck_abi::signal_guard::RealFn;
 
 pub use check::{CheckResult, TwinFn};
 pub use options::{Options, OPTIONS_VERSION};

@@ -5,7 +5,7 @@ use std::ffi::{c_char, CStr};
 use std::ptr;
 
 use serde_json::Value;
-use tancheck_abi::guard::{TcCall, TcEnergy, TcTemperature};
+use tancheck_abi::signal_guard::{TcCall, TcEnergy, TcTemperature};
 use tancheck_capi::*;
 use tancheck_core::Outcome;
 
@@ -113,7 +113,7 @@ fn last_error() -> String {
 }
 
 /// Run a check; panics with the last error when it cannot run.
-fn check(routine: tancheck_abi::guard::RealFn, o: &Options) -> *mut CheckResult {
+fn check(routine: tancheck_abi::signal_guard::RealFn, o: &Options) -> *mut CheckResult {
     let mut r = ptr::null_mut();
     // SAFETY: valid pointers; the routine has the ABI's signature.
     let status = unsafe { tck_check(&mut r, Some(routine), None, o) };

@@ -8,15 +8,14 @@ use clap::{Args, CommandFactory, Parser, Subcommand};
 
 use tancheck_core::{Caller, PointKind, Scheme};
 
+use crate::demo::DemoArgs;
 use crate::exit;
 use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
 use crate::report::model::SuiteContext;
 use crate::report::Reporter;
+use crate::session::{default_path, routine_name};
 use tancheck_core::report::Keep;
-// Kept reachable here for older callers; their home is session.rs (and demo.rs for DemoArgs).
-pub use crate::demo::DemoArgs;
-pub use crate::session::{default_path, emit, routine_name, run_manifest};
 
 #[derive(Parser, Debug)]
 #[command(
@@ -276,8 +275,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         case_code = r.exit_code();
     }
     if !a.schemes.is_empty() {
-        m.check.schemes =
-            a.schemes.iter().map(|s| s.parse()).collect::<Result<_, String>>().map_err(anyhow::Error::msg)?;
+        m.check.schemes = a.schemes.iter().map(|s| s.parse()).collect::<Result<_, _>>()?;
     }
     for t in &a.tols {
         let (s, v) = scheme_value(t, "tol")?;

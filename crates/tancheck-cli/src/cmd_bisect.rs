@@ -85,7 +85,7 @@ fn capture(
     let index = located.increment;
     let (mut driver, previous) =
         bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
-    let judged = bisect::check_call(&mut driver, caller, settings, previous.as_deref());
+    let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
     if judged.as_ref().is_ok_and(|c| c.passed()) {
         warnings.push(format!(
             "increment {index} passed when checked again on its own: the routine does not repeat its results \

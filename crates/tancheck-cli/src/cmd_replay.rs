@@ -32,7 +32,7 @@ pub struct ReplayArgs {
     pub output: crate::session::OutputArgs,
 }
 
-pub use crate::case_store::{case_file_name, open_for_manifest, sha256_file, write_case, Opened};
+use crate::case_store::{sha256_file, Opened};
 
 /// A case file that cannot be used, as `file:line:column: why`.
 fn broken(file: &FsPath, e: &CaseError) -> String {
@@ -219,7 +219,7 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
         recorded_finding,
         path_leads_here: r.path_leads_here.map(|x| match x {
             Ok(()) => "yes".to_string(),
-            Err(m) => m,
+            Err(m) => m.to_string(),
         }),
         debugger: shell_line(&debugger_words(file, symbol.as_deref())),
         debugger_args: debugger_words(file, symbol.as_deref()),

@@ -107,6 +107,9 @@ impl Routine for Heartbeat<'_> {
             None
         }
     }
+    fn capabilities(&mut self) -> tancheck_core::routine::Capabilities {
+        self.inner.capabilities()
+    }
 }
 
 impl ComplexRoutine for Heartbeat<'_> {

@@ -64,7 +64,7 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
     } else if lib.has_symbol(tancheck_abi::DEBUG_MARKER) {
         // `tancheck build --debug` asked for traps; in a library only the caller can set them.
-        if tancheck_abi::guard::fp_traps_available() {
+        if tancheck_abi::signal_guard::fp_traps_available() {
             routine.set_fp_traps(true).context("switching floating-point traps on")?;
             eprintln!(
                 "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",

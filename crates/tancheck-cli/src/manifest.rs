@@ -186,7 +186,7 @@ impl Manifest {
             ));
         }
         self.convention()?;
-        self.check.validate()?;
+        self.check.validate().map_err(|e| e.to_string())?;
         self.path_or(Path { name: String::new(), increments: Vec::new() })?;
         Ok(())
     }
@@ -282,7 +282,7 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
         }
         p.name = format!("{}, ΔT = {} per increment", p.name, r.dtemp);
     }
-    p.validate()?;
+    p.validate().map_err(|e| e.to_string())?;
     Ok(p)
 }
 
@@ -318,7 +318,7 @@ pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
             path_from_spec(&spec).map_err(|message| ManifestError::Invalid { path: file.into(), message })?
         }
     };
-    p.validate().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+    p.validate().map_err(|e| ManifestError::Invalid { path: file.into(), message: e.to_string() })?;
     if spec.name.is_none() && given {
         p.name = format!("increments from {}", file.display());
     }

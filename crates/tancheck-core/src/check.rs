@@ -3,6 +3,7 @@
 
 use crate::call_check as judge;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::first_calls;
 use crate::mixed;
 use crate::path::Path;
@@ -23,7 +24,7 @@ pub fn run(
     start: PointState,
     path: &Path,
     settings: &Settings,
-) -> Result<Report, String> {
+) -> Result<Report, CoreError> {
     run_with(caller, props, start, path, settings, Keep::All, &mut |_| {})
 }
 
@@ -37,7 +38,7 @@ pub fn run_with(
     settings: &Settings,
     keep: Keep,
     progress: &mut dyn FnMut(usize),
-) -> Result<Report, String> {
+) -> Result<Report, CoreError> {
     settings.validate()?;
     path.validate()?;
     let info = caller.info().clone();

@@ -84,11 +84,11 @@ impl fmt::Display for PointKind {
 }
 
 impl FromStr for PointKind {
-    type Err = String;
-    fn from_str(s: &str) -> Result<Self, String> {
+    type Err = ConventionError;
+    fn from_str(s: &str) -> Result<Self, ConventionError> {
         PointKind::ALL.into_iter().find(|k| k.name() == s).ok_or_else(|| {
             let names: Vec<_> = PointKind::ALL.iter().map(|k| k.name()).collect();
-            format!("unknown kind of point `{s}`; expected one of {}", names.join(", "))
+            ConventionError::UnknownKind { given: s.into(), known: names.join(", ") }
         })
     }
 }
@@ -206,6 +206,8 @@ pub enum ConventionError {
     Foreign { kind: PointKind, label: String, expected: String },
     #[error("component `{label}` appears twice in the order")]
     Repeated { label: String },
+    #[error("unknown kind of point `{given}`; expected one of {known}")]
+    UnknownKind { given: String, known: String },
     #[error("unknown component `{label}`; use 11, 22, 33, 23, 13, 12 (solids) or n, s1, s2 (cohesive)")]
     Unknown { label: String },
 }

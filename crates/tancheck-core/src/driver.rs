@@ -7,6 +7,7 @@
 
 use num_complex::Complex64;
 
+use crate::error::CoreError;
 use crate::routine::{CallInput, CallOutput, Caller, Fault, Outcome, RoutineInfo};
 
 /// The state of a material point at the start of an increment, in the routine's convention.
@@ -116,24 +117,16 @@ pub struct Driver {
 
 impl Driver {
     /// A driver for `info`'s routine with the given properties and start state.
-    pub fn new(info: &RoutineInfo, props: &[f64], start: PointState) -> Result<Driver, String> {
+    pub fn new(info: &RoutineInfo, props: &[f64], start: PointState) -> Result<Driver, CoreError> {
         let n = info.convention.ncomp();
         if props.len() != info.nprop {
-            return Err(format!(
-                "{} properties given; the routine is declared with {}",
-                props.len(),
-                info.nprop
-            ));
+            return Err(CoreError::PropertyCount { given: props.len(), declared: info.nprop });
         }
         if start.strain.len() != n || start.stress.len() != n {
-            return Err(format!("the start strain and stress need {n} components"));
+            return Err(CoreError::StartSize(n));
         }
         if start.state.len() != info.nstate {
-            return Err(format!(
-                "{} state variables given; the routine is declared with {}",
-                start.state.len(),
-                info.nstate
-            ));
+            return Err(CoreError::StateCount { given: start.state.len(), declared: info.nstate });
         }
         let cz = Complex64::new(0.0, 0.0);
         Ok(Driver {

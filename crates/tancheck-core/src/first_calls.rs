@@ -16,6 +16,7 @@
 
 use crate::call_check::fault_record;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::report::{FaultRecord, IncrementResult};
 use crate::routine::{Caller, Fault, RoutineInfo};
 
@@ -30,7 +31,7 @@ pub fn zero_increment(
     props: &[f64],
     start: &PointState,
     dtime: f64,
-) -> Result<Option<IncrementResult>, String> {
+) -> Result<Option<IncrementResult>, CoreError> {
     let n = info.convention.ncomp();
     let mut d = Driver::new(info, props, start.clone())?;
     d.set_increment(&vec![0.0; n], 0.0, dtime);

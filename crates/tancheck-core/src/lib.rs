@@ -14,6 +14,7 @@ pub mod convention;
 pub mod convention_fit;
 pub mod diagnose;
 pub mod driver;
+pub mod error;
 pub mod finite;
 pub mod first_calls;
 pub mod mixed;
@@ -26,11 +27,9 @@ pub mod scalar;
 pub mod schemes;
 pub mod settings;
 
-/// relabel.rs under its former name, for callers written before the rename.
-pub use relabel as adapt;
-
 pub use convention::{Component, Convention, PointKind, ShearMeasure};
 pub use driver::{Direction, Driver, PointState};
+pub use error::CoreError;
 pub use path::{Path, PathIncrement, Shape};
 pub use report::{Report, Verdict};
 pub use routine::{

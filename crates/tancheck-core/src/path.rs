@@ -7,6 +7,8 @@
 
 use serde::{Deserialize, Serialize};
 
+use crate::error::CoreError;
+
 /// The most increments a path may have.
 pub const MAX_INCREMENTS: usize = 1_000_000;
 /// The largest strain component (increment, peak or start) accepted in magnitude: far beyond
@@ -106,10 +108,10 @@ impl Shape {
         }
     }
 
-    pub fn from_name(s: &str) -> Result<Shape, String> {
+    pub fn from_name(s: &str) -> Result<Shape, CoreError> {
         Shape::ALL.into_iter().find(|x| x.name() == s).ok_or_else(|| {
             let names: Vec<_> = Shape::ALL.iter().map(|x| x.name()).collect();
-            format!("unknown path shape `{s}`; expected one of {}", names.join(", "))
+            CoreError::UnknownShape { given: s.into(), known: names.join(", ") }
         })
     }
 }
@@ -143,50 +145,31 @@ impl Path {
         p
     }
 
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), CoreError> {
         if self.increments.is_empty() {
-            return Err("the path has no increments".into());
+            return Err(CoreError::EmptyPath);
         }
         if self.increments.len() > MAX_INCREMENTS {
-            return Err(format!(
-                "the path has {} increments; at most {MAX_INCREMENTS}",
-                self.increments.len()
-            ));
+            return Err(CoreError::TooManyIncrements { count: self.increments.len(), max: MAX_INCREMENTS });
         }
         for (k, inc) in self.increments.iter().enumerate() {
+            let increment = k + 1;
             if inc.dstrain.iter().any(|x| !x.is_finite()) || !inc.dtemp.is_finite() || !inc.dtime.is_finite()
             {
-                return Err(format!(
-                    "increment {} of the path has a value that is not a finite number",
-                    k + 1
-                ));
+                return Err(CoreError::NotFinite { increment });
             }
-            if let Some(x) = inc.dstrain.iter().find(|x| x.abs() > MAX_STRAIN) {
-                return Err(format!(
-                    "increment {}: a strain increment of {x} is out of range (at most {MAX_STRAIN} in magnitude)",
-                    k + 1
-                ));
+            if let Some(&value) = inc.dstrain.iter().find(|x| x.abs() > MAX_STRAIN) {
+                return Err(CoreError::StrainOutOfRange { increment, value, max: MAX_STRAIN });
             }
             if inc.dtemp.abs() > MAX_DTEMP {
-                return Err(format!(
-                    "increment {}: a temperature increment of {} is out of range (at most {MAX_DTEMP} in magnitude)",
-                    k + 1,
-                    inc.dtemp
-                ));
+                return Err(CoreError::TemperatureOutOfRange { increment, value: inc.dtemp, max: MAX_DTEMP });
             }
             if !(0.0..=MAX_DTIME).contains(&inc.dtime) {
-                return Err(format!(
-                    "increment {}: a time increment of {} is out of range (0 to {MAX_DTIME})",
-                    k + 1,
-                    inc.dtime
-                ));
+                return Err(CoreError::TimeOutOfRange { increment, value: inc.dtime, max: MAX_DTIME });
             }
             if let Some(hold) = &inc.hold_stress {
-                if let Some(x) = hold.iter().flatten().find(|x| !x.is_finite() || x.abs() > MAX_STRESS) {
-                    return Err(format!(
-                        "increment {}: a held stress of {x} is out of range (a finite number at most {MAX_STRESS:e} in magnitude)",
-                        k + 1
-                    ));
+                if let Some(&value) = hold.iter().flatten().find(|x| !x.is_finite() || x.abs() > MAX_STRESS) {
+                    return Err(CoreError::HeldStressOutOfRange { increment, value, max: MAX_STRESS });
                 }
             }
         }
@@ -209,6 +192,6 @@ mod tests {
             }
         }
         assert!(sum.iter().all(|s| s.abs() < 1e-18), "{sum:?}");
-        assert!(Shape::from_name("nope").unwrap_err().contains("uniaxial-strain"));
+        assert!(Shape::from_name("nope").unwrap_err().to_string().contains("uniaxial-strain"));
     }
 }

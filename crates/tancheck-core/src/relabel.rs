@@ -9,6 +9,7 @@
 use num_complex::Complex64;
 
 use crate::convention::Convention;
+use crate::error::CoreError;
 use crate::routine::{CallInput, CallOutput, ComplexRoutine, Fault, Routine, RoutineInfo};
 use crate::scalar::Scalar;
 
@@ -48,10 +49,10 @@ pub struct Relabel<R> {
 }
 
 impl<R: Routine> Relabel<R> {
-    pub fn new(inner: R, outer: Convention) -> Result<Relabel<R>, String> {
+    pub fn new(inner: R, outer: Convention) -> Result<Relabel<R>, CoreError> {
         let ic = inner.info().convention.clone();
         if ic.kind() != outer.kind() {
-            return Err(format!("cannot present a {} routine as a {} one", ic.kind(), outer.kind()));
+            return Err(CoreError::OtherKind { inner: ic.kind(), outer: outer.kind() });
         }
         let n = ic.ncomp();
         let mut map = Vec::with_capacity(n);
@@ -126,6 +127,9 @@ impl<R: Routine> Routine for Relabel<R> {
         } else {
             None
         }
+    }
+    fn capabilities(&mut self) -> crate::routine::Capabilities {
+        self.inner.capabilities()
     }
 }
 

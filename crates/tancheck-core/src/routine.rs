@@ -21,6 +21,23 @@ pub mod provides {
     pub const ENERGY: i32 = 2;
 }
 
+bitflags::bitflags! {
+    /// What a routine can do, known when it is loaded: from its symbols (a library's twin is
+    /// the `_cx` symbol), or from the Rust model. The per-call bits of [`Outcome::provides`]
+    /// still say what one call filled in; these say what a probe may count on.
+    #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+    pub struct Capabilities: u8 {
+        /// Returns the tangent (every routine of the ABI does).
+        const TANGENT = 1;
+        /// Has the complex-step twin.
+        const TWIN = 1 << 1;
+        /// Fills in the stored and dissipated energies.
+        const ENERGY = 1 << 2;
+        /// Fills in ∂σ/∂T.
+        const DSTRESS_DTEMP = 1 << 3;
+    }
+}
+
 /// Status codes a routine returns (match `TC_STATUS_*`).
 pub mod status {
     pub const OK: i32 = 0;
@@ -153,6 +170,17 @@ pub trait Routine {
         None
     }
 
+    /// What this routine can do, asked once when a [`Caller`] is made for it. The default: a
+    /// tangent, and the twin when [`Routine::complex`] offers one. A wrapper forwards its
+    /// inner routine's; a routine that fills in energies or ∂σ/∂T on every call says so.
+    fn capabilities(&mut self) -> Capabilities {
+        let mut c = Capabilities::TANGENT;
+        if self.complex().is_some() {
+            c |= Capabilities::TWIN;
+        }
+        c
+    }
+
     /// Run the next real call under the full memory guards (reads past the end of the inputs;
     /// the call repeated and compared bit for bit), if this routine has guards and they are
     /// on. Returns whether it will. A routine without guards (a Rust model) ignores it.
@@ -179,6 +207,12 @@ pub trait Model {
         input: &CallInput<'_, S>,
         output: &mut CallOutput<'_, S>,
     ) -> Result<(), Fault>;
+
+    /// The optional outputs this model fills in on every call ([`Capabilities::ENERGY`],
+    /// [`Capabilities::DSTRESS_DTEMP`]); none unless the model says so.
+    fn outputs(&self) -> Capabilities {
+        Capabilities::empty()
+    }
 }
 
 /// A [`Model`] as a [`Routine`] with its complex twin.
@@ -195,6 +229,9 @@ impl<M: Model> Routine for ModelRoutine<M> {
     }
     fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
         Some(self)
+    }
+    fn capabilities(&mut self) -> Capabilities {
+        Capabilities::TANGENT | Capabilities::TWIN | self.0.outputs()
     }
 }
 
@@ -229,19 +266,28 @@ pub struct Caller<'r> {
     pub real_calls: u64,
     /// Complex calls made so far.
     pub complex_calls: u64,
+    /// What the routine declared when this caller was made.
+    capabilities: Capabilities,
 }
 
 impl<'r> Caller<'r> {
     pub fn new(routine: &'r mut dyn Routine) -> Self {
-        Caller { routine, real_calls: 0, complex_calls: 0 }
+        let capabilities = routine.capabilities();
+        Caller { routine, real_calls: 0, complex_calls: 0, capabilities }
     }
 
     pub fn info(&self) -> &RoutineInfo {
         self.routine.info()
     }
 
+    /// What the routine declared when it was loaded (see [`Routine::capabilities`]).
+    pub fn capabilities(&self) -> Capabilities {
+        self.capabilities
+    }
+
+    /// Whether the routine declared a complex-step twin.
     pub fn has_complex(&mut self) -> bool {
-        self.routine.complex().is_some()
+        self.capabilities.contains(Capabilities::TWIN)
     }
 
     /// See [`Routine::guard_next_call_fully`].

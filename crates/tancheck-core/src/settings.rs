@@ -2,6 +2,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use crate::error::CoreError;
 use crate::schemes::Scheme;
 
 /// How one scheme is run and judged.
@@ -98,25 +99,21 @@ impl Settings {
     }
 
     /// Settings that cannot work, explained.
-    pub fn validate(&self) -> Result<(), String> {
+    pub fn validate(&self) -> Result<(), CoreError> {
         if self.schemes.is_empty() {
-            return Err("no derivative scheme selected; choose from forward, backward, central, central4, richardson, complex-step".into());
+            return Err(CoreError::NoScheme);
         }
         for s in Scheme::ALL {
             let c = self.scheme(s);
             if !(c.rel_step > 0.0 && c.rel_step <= 1.0) {
-                return Err(format!(
-                    "the {} step must be a positive number at most 1 (relative to the strain scale), got {}",
-                    s.name(),
-                    c.rel_step
-                ));
+                return Err(CoreError::SchemeStep { scheme: s.name(), value: c.rel_step });
             }
             if !(c.tol > 0.0 && c.tol.is_finite()) {
-                return Err(format!("the {} tolerance must be a positive number, got {}", s.name(), c.tol));
+                return Err(CoreError::SchemeTolerance { scheme: s.name(), value: c.tol });
             }
         }
         if [self.step_floor, self.temp_floor, self.entry_floor].iter().any(|&x| !x.is_finite() || x <= 0.0) {
-            return Err("step_floor, temp_floor and entry_floor must be positive finite numbers".into());
+            return Err(CoreError::Floors);
         }
         Ok(())
     }

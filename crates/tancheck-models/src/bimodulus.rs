@@ -89,6 +89,10 @@ impl Model for Bimodulus {
         &self.info
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        tancheck_core::routine::Capabilities::ENERGY
+    }
+
     fn evaluate<S: Scalar>(
         &self,
         input: &CallInput<'_, S>,

@@ -171,6 +171,10 @@ impl Model for J2 {
         &self.info
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        tancheck_core::routine::Capabilities::ENERGY
+    }
+
     fn evaluate<S: Scalar>(
         &self,
         input: &CallInput<'_, S>,

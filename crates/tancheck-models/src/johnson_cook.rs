@@ -318,6 +318,10 @@ impl Model for JohnsonCook {
         &self.info
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        tancheck_core::routine::Capabilities::DSTRESS_DTEMP
+    }
+
     fn evaluate<S: Scalar>(
         &self,
         input: &CallInput<'_, S>,

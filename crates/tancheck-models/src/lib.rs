@@ -138,6 +138,18 @@ impl Model for AnyModel {
         }
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        match self {
+            AnyModel::Elastic(m) => m.outputs(),
+            AnyModel::J2(m) => m.outputs(),
+            AnyModel::Thermo(m) => m.outputs(),
+            AnyModel::Cohesive(m) => m.outputs(),
+            AnyModel::Orthotropic(m) => m.outputs(),
+            AnyModel::JohnsonCook(m) => m.outputs(),
+            AnyModel::Ply(m) => m.outputs(),
+        }
+    }
+
     #[inline]
     fn evaluate<S: Scalar>(
         &self,

@@ -349,6 +349,10 @@ impl Model for Thermo {
         &self.info
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        tancheck_core::routine::Capabilities::ENERGY | tancheck_core::routine::Capabilities::DSTRESS_DTEMP
+    }
+
     fn evaluate<S: Scalar>(
         &self,
         input: &CallInput<'_, S>,

@@ -373,6 +373,14 @@ impl Model for ZooModel {
         }
     }
 
+    fn outputs(&self) -> tancheck_core::routine::Capabilities {
+        match self {
+            ZooModel::Reference(m) => m.outputs(),
+            ZooModel::FlawedJ2(m) => m.outputs(),
+            ZooModel::Bimodulus(m) => m.outputs(),
+        }
+    }
+
     #[inline]
     fn evaluate<S: Scalar>(
         &self,

@@ -84,11 +84,11 @@ impl GuardLevel {
         }
     }
 
-    pub fn from_name(s: &str) -> Result<GuardLevel, String> {
+    pub fn from_name(s: &str) -> Result<GuardLevel, crate::error::SettingError> {
         GuardLevel::ALL
             .into_iter()
             .find(|l| l.name() == s)
-            .ok_or_else(|| format!("unknown guard level `{s}`; expected off, light or full"))
+            .ok_or_else(|| crate::error::SettingError::UnknownGuardLevel(s.into()))
     }
 }
 
@@ -247,7 +247,7 @@ mod tests {
         for l in GuardLevel::ALL {
             assert_eq!(GuardLevel::from_name(l.name()), Ok(l));
         }
-        assert!(GuardLevel::from_name("heavy").unwrap_err().contains("off, light or full"));
+        assert!(GuardLevel::from_name("heavy").unwrap_err().to_string().contains("off, light or full"));
         assert_eq!(GuardLevel::default(), GuardLevel::Light);
     }
 }

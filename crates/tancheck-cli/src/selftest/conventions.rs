@@ -45,6 +45,9 @@ impl Routine for Misdeclared<'_> {
             None
         }
     }
+    fn capabilities(&mut self) -> tancheck_core::routine::Capabilities {
+        self.inner.capabilities()
+    }
     fn guard_next_call_fully(&mut self) -> bool {
         self.inner.guard_next_call_fully()
     }

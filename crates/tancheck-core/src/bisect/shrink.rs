@@ -20,6 +20,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::check;
 use crate::driver::PointState;
+use crate::error::CoreError;
 use crate::path::{Path, PathIncrement};
 use crate::report::{Report, Verdict};
 use crate::routine::Caller;
@@ -274,9 +275,9 @@ pub fn shrink(
     report: &Report,
     settings: &Settings,
     limits: ShrinkLimits,
-) -> Result<Option<Shrunk>, String> {
+) -> Result<Option<Shrunk>, CoreError> {
     if limits.max_seconds.is_nan() || limits.max_seconds <= 0.0 {
-        return Err(format!("the time limit of a shrink must be positive, got {}", limits.max_seconds));
+        return Err(CoreError::ShrinkTime(limits.max_seconds));
     }
     let Some((verdict, finding, index)) = signature(report) else { return Ok(None) };
     let t0 = Instant::now();

@@ -4,6 +4,7 @@
 use super::*;
 use crate::call_check::CallCheck;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::path::{Path, PathIncrement};
 use crate::routine::Fault;
 use crate::settings::Settings;
@@ -18,21 +19,21 @@ impl Numbers {
 
     /// The numbers: from the bits when given, else from the decimals. A decimal that does not
     /// match its bits (beyond the last digit a parser may get wrong) is a warning.
-    pub fn decode(&self, what: &str, warnings: &mut Vec<String>) -> Result<Vec<f64>, String> {
+    pub fn decode(&self, what: &str, warnings: &mut Vec<String>) -> Result<Vec<f64>, CoreError> {
         if self.bits.is_empty() {
             return self
                 .values
                 .iter()
                 .enumerate()
-                .map(|(i, v)| v.ok_or_else(|| format!("{what}[{i}] is null and has no bits")))
+                .map(|(index, v)| v.ok_or_else(|| CoreError::NullWithoutBits { what: what.into(), index }))
                 .collect();
         }
         if self.bits.len() != self.values.len() {
-            return Err(format!(
-                "{what} has {} values and {} bit patterns; give both for every entry, or drop `bits`",
-                self.values.len(),
-                self.bits.len()
-            ));
+            return Err(CoreError::BitsCount {
+                what: what.into(),
+                values: self.values.len(),
+                bits: self.bits.len(),
+            });
         }
         let mut out = Vec::with_capacity(self.bits.len());
         for (i, (b, v)) in self.bits.iter().zip(&self.values).enumerate() {
@@ -40,7 +41,7 @@ impl Numbers {
                 .ok()
                 .filter(|_| b.trim_start_matches("0x").len() == 16)
                 .map(f64::from_bits)
-                .ok_or_else(|| format!("{what}[{i}]: `{b}` is not 16 hex digits"))?;
+                .ok_or_else(|| CoreError::NotHexBits { what: what.into(), index: i, bits: b.clone() })?;
             match v {
                 Some(v) if (v - x).abs() > 1e-15 * x.abs().max(f64::MIN_POSITIVE) => warnings.push(format!(
                     "{what}[{i}]: the decimal {v:e} does not match the bits {b} ({x:e}); the bits are used \
@@ -187,7 +188,7 @@ impl Case {
             ));
         }
         let r = &case.routine;
-        let conv = r.convention().map_err(|m| err(&["routine", "order"], m))?;
+        let conv = r.convention().map_err(|m| err(&["routine", "order"], m.to_string()))?;
         match (&r.model, &r.library, &r.symbol) {
             (Some(_), None, None) | (None, Some(_), Some(_)) => {}
             _ => {
@@ -204,6 +205,7 @@ impl Case {
                 let mut w = Vec::new();
                 let what = format!("{section}.{key}");
                 let v = x.decode(&what, &mut w).map_err(|m| {
+                    let m = m.to_string();
                     let e = err(&[section, key, "bits"], m.clone());
                     if e.line == 0 {
                         err(&[section, key], m)
@@ -273,7 +275,7 @@ impl Case {
         if let Some(b) = &case.probe.best_numerical {
             num("probe", "best_numerical", b, Some(n * n))?;
         }
-        case.probe.settings.validate().map_err(|m| err(&["probe", "settings"], m))?;
+        case.probe.settings.validate().map_err(|m| err(&["probe", "settings"], m.to_string()))?;
         if c.increment < 1 {
             return Err(err(
                 &["call", "increment"],
@@ -317,7 +319,7 @@ impl Case {
                     name: format!("the path of the case ({} increments)", increments.len()),
                     increments,
                 };
-                path.validate().map_err(|m| err(&["path"], m))?;
+                path.validate().map_err(|m| err(&["path"], m.to_string()))?;
                 Some((PointState { temp: tt[0], time: tt[1], ..start }, path))
             }
         };

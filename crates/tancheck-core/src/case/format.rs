@@ -9,6 +9,7 @@ use crate::bisect::{Crossing, Inside};
 use crate::call_check::CallCheck;
 use crate::convention::{Convention, PointKind, ShearMeasure};
 use crate::driver::PointState;
+use crate::error::CoreError;
 use crate::path::Path;
 use crate::report::CheckOutcome;
 use crate::routine::RoutineInfo;
@@ -91,12 +92,12 @@ impl CaseRoutine {
         }
     }
 
-    pub fn convention(&self) -> Result<Convention, String> {
+    pub fn convention(&self) -> Result<Convention, CoreError> {
         let labels: Vec<&str> = self.order.iter().map(String::as_str).collect();
-        Convention::from_labels(self.kind, &labels, self.shear).map_err(|e| format!("routine.order: {e}"))
+        Convention::from_labels(self.kind, &labels, self.shear).map_err(CoreError::CaseOrder)
     }
 
-    pub fn info(&self) -> Result<RoutineInfo, String> {
+    pub fn info(&self) -> Result<RoutineInfo, CoreError> {
         Ok(RoutineInfo {
             name: self.name.clone(),
             convention: self.convention()?,

@@ -68,10 +68,10 @@ mod tests {
         assert_eq!(n.decode("a", &mut w).unwrap(), vec![1.0]);
         assert!(w[0].contains("a[0]") && w[0].contains("the bits are used"), "{w:?}");
         let n: Numbers = serde_json::from_str(r#"{ "values": [1.5], "bits": ["3ff00000"] }"#).unwrap();
-        assert!(n.decode("a", &mut w).unwrap_err().contains("16 hex digits"));
+        assert!(n.decode("a", &mut w).unwrap_err().to_string().contains("16 hex digits"));
         let n: Numbers =
             serde_json::from_str(r#"{ "values": [1.5, 2], "bits": ["3ff0000000000000"] }"#).unwrap();
-        assert!(n.decode("a", &mut w).unwrap_err().contains("2 values and 1 bit"));
+        assert!(n.decode("a", &mut w).unwrap_err().to_string().contains("2 values and 1 bit"));
     }
 
     #[test]
@@ -198,7 +198,7 @@ mod tests {
         let mut bar = Bar::new(true);
         let mut caller = Caller::new(&mut bar);
         let r = replay(&mut caller, &parsed, true).unwrap();
-        let e = r.path_leads_here.unwrap().unwrap_err();
+        let e = r.path_leads_here.unwrap().unwrap_err().to_string();
         assert!(e.contains("strain") && e.contains("increment number"), "{e}");
     }
 

@@ -4,13 +4,14 @@
 use super::*;
 use crate::call_check::{self as judge, CallCheck};
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::path::Path;
 use crate::routine::{Caller, RoutineInfo};
 use crate::settings::Settings;
 
 /// A driver holding exactly the call of a case: its start state, increment and increment
 /// number (not yet called).
-pub fn driver_for(info: &RoutineInfo, call: &DecodedCall) -> Result<Driver, String> {
+pub fn driver_for(info: &RoutineInfo, call: &DecodedCall) -> Result<Driver, CoreError> {
     let mut d = Driver::new(info, &call.props, call.start.clone())?;
     // The driver numbers increments as they are set; set this one until it has its number.
     for _ in 0..call.increment {
@@ -32,7 +33,7 @@ pub struct Replay {
     pub check: Option<CallCheck>,
     /// Whether walking the case's path from its start reaches the call's start state and
     /// increment number bit for bit (none when the case has no path, or when asked not to).
-    pub path_leads_here: Option<Result<(), String>>,
+    pub path_leads_here: Option<Result<(), CoreError>>,
 }
 
 impl Replay {
@@ -77,7 +78,7 @@ fn differences(now: &DecodedOutputs, then: &DecodedOutputs) -> Vec<String> {
 /// convention): the call itself with exactly the saved inputs, compared bit for bit with the
 /// saved outputs, then its check with the case's settings. With `walk_path`, also walk the
 /// case's path (when it has one) to see that it leads to the call.
-pub fn replay(caller: &mut Caller<'_>, case: &ParsedCase, walk_path: bool) -> Result<Replay, String> {
+pub fn replay(caller: &mut Caller<'_>, case: &ParsedCase, walk_path: bool) -> Result<Replay, CoreError> {
     let info = caller.info().clone();
     let mut driver = driver_for(&info, &case.call)?;
     let base = driver.base_call(caller);
@@ -122,7 +123,7 @@ fn walk(
     call: &DecodedCall,
     start: &PointState,
     path: &Path,
-) -> Result<(), String> {
+) -> Result<(), CoreError> {
     let last = path.increments.len();
     let mut d = Driver::new(info, &call.props, start.clone())?;
     let conv = &info.convention;
@@ -133,12 +134,12 @@ fn walk(
         if k + 1 == last {
             if inc.hold_stress.is_some() {
                 crate::bisect::base_call_of(&mut d, caller, inc, settings)
-                    .map_err(|f| format!("increment {} of the path: {f}", k + 1))?;
+                    .map_err(|fault| CoreError::PathFault { increment: k + 1, fault })?;
             }
             break;
         }
         crate::bisect::base_call_of(&mut d, caller, inc, settings)
-            .map_err(|f| format!("increment {} of the path: {f}", k + 1))?;
+            .map_err(|fault| CoreError::PathFault { increment: k + 1, fault })?;
         d.advance();
     }
     let s = d.start();
@@ -167,6 +168,6 @@ fn walk(
     if off.is_empty() {
         Ok(())
     } else {
-        Err(format!("the path's last increment does not reach the call: {} differ", off.join(", ")))
+        Err(CoreError::PathMissesCall { differ: off })
     }
 }

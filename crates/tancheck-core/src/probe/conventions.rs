@@ -32,16 +32,16 @@
 //! elastic increment's numerical tangent, at no extra cost, and warns only when the evidence
 //! is conclusive and differs from the declaration.
 
+use super::Needs;
 use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::{Direction, Driver};
+use crate::error::CoreError;
 use crate::routine::Caller;
 use crate::schemes::Scheme;
 
 pub struct Conventions;
 
-pub use crate::convention_fit::{
-    analyse, asymmetry, canonical_mandel, isotropy_residual, Finding, Hypothesis, DEFAULT_TOL,
-};
+use crate::convention_fit::{analyse, Finding, DEFAULT_TOL};
 
 /// The numerical elastic tangent at the start: around a zero increment, by the complex step
 /// when the routine has a twin, else by central differences.
@@ -51,8 +51,8 @@ pub fn elastic_tangent(
 ) -> Result<(Vec<f64>, Scheme), crate::routine::Fault> {
     let info = caller.info().clone();
     let n = info.convention.ncomp();
-    let mut d =
-        Driver::new(&info, env.props, env.start.clone()).map_err(crate::routine::Fault::Unsupported)?;
+    let mut d = Driver::new(&info, env.props, env.start.clone())
+        .map_err(|e| crate::routine::Fault::Unsupported(e.to_string()))?;
     d.set_increment(&vec![0.0; n], 0.0, 1.0);
     d.base_call(caller)?;
     let scheme = if caller.has_complex() { Scheme::ComplexStep } else { Scheme::Central };
@@ -68,10 +68,11 @@ impl Probe for Conventions {
     fn name(&self) -> &'static str {
         "conventions"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update around a zero increment from the start (an elastic response there)"
+    fn needs(&self) -> Needs {
+        // The twin is used when there is one, not required.
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let conv = caller.info().convention.clone();
         let (t, scheme) = match elastic_tangent(caller, env) {

@@ -1,6 +1,8 @@
 //! The determinism probe: the same call twice gives bit-identical stress, state and tangent.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Determinism;
@@ -9,10 +11,10 @@ impl Probe for Determinism {
     fn name(&self) -> &'static str {
         "determinism"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first_diff = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first_diff.is_some() {

@@ -11,8 +11,10 @@
 //! Work uses the work-conjugate dot product of the routine's convention (a tensor shear
 //! component counts twice).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::{provides, Caller, Fault};
 use crate::ShearMeasure;
 
@@ -58,7 +60,8 @@ fn closed_cycle(
 ) -> Result<(f64, bool), Fault> {
     let conv = &info.convention;
     let n = conv.ncomp();
-    let mut d = Driver::new(info, env.props, env.start.clone()).map_err(Fault::Unsupported)?;
+    let mut d =
+        Driver::new(info, env.props, env.start.clone()).map_err(|e| Fault::Unsupported(e.to_string()))?;
     let (mut net, mut gross) = (0.0, 0.0);
     let mut elastic = true;
     let legs = [(0usize, 1.0), (1, 1.0), (0, -1.0), (1, -1.0)];
@@ -86,10 +89,12 @@ impl Probe for Energy {
     fn name(&self) -> &'static str {
         "energy"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update; the energy outputs for the dissipation and energy-balance parts"
+    fn needs(&self) -> Needs {
+        // The energy outputs are read where a call fills them in (Outcome::provides); the
+        // stress-update parts run without them.
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let info = caller.info().clone();
         let conv = info.convention.clone();
         let w: Vec<f64> = conv
@@ -136,6 +141,8 @@ impl Probe for Energy {
             details.push(format!(
                 "the state variables changed even at amplitude {a:e}: the cycle is not elastic and its net work is not checked"
             ));
+        // Why 1e-10: the trapezoid rule is exact for a linear response, so only rounding of the
+        // sums (well under 1e-12 of the work) is left; 1e-10 keeps a margin of 100.
         } else if cycle > 1e-10 {
             fail = Some((
                 0,
@@ -166,6 +173,8 @@ impl Probe for Energy {
             diss_curve.push([k as f64, diss]);
             scale = scale.max(stored.abs()).max(diss.abs());
             if let Some(p) = prev_diss {
+                // Why 1e-12 of the energy scale: rounding of a sum of energies; a real decrease
+                // of dissipation is far larger.
                 if diss < p - 1e-12 * scale.max(1e-300) && fail.is_none() {
                     fail = Some((
                         k,

@@ -20,9 +20,11 @@
 //! Mismatches are Mandel (Frobenius) norms relative to the largest stress (tangent) norm
 //! along the path; both must stay within `tol` (default 1e-10) at every probed increment.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{canonical_slot, PointKind};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Frame;
@@ -108,7 +110,7 @@ fn mandel_norm(a: &[f64; 6]) -> f64 {
     (a[0] * a[0] + a[1] * a[1] + a[2] * a[2] + 2.0 * (a[3] * a[3] + a[4] * a[4] + a[5] * a[5])).sqrt()
 }
 
-use super::conventions::canonical_mandel;
+use crate::convention_fit::{canonical_mandel, isotropy_residual};
 
 fn fro6(m: &[[f64; 6]; 6]) -> f64 {
     m.iter().flatten().map(|x| x * x).sum::<f64>().sqrt()
@@ -128,10 +130,14 @@ impl Probe for Frame {
     fn name(&self) -> &'static str {
         "frame"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update (and the tangent) from a virgin start; for anisotropic models, material axes among the properties"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT.union(Needs::FRAME).union(Needs::VIRGIN_START)
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped("frame", why));
+        }
         let info = caller.info().clone();
         let conv = info.convention.clone();
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
@@ -140,13 +146,6 @@ impl Probe for Frame {
             Ok(r) => r,
             Err(why) => return Ok(ProbeResult::skipped("frame", why)),
         };
-        let s = env.start;
-        if s.strain.iter().chain(&s.stress).chain(&s.state).any(|&x| x != 0.0) {
-            return Ok(ProbeResult::skipped(
-                "frame",
-                "the start has nonzero strain, stress or state: rotating it would need the meaning of each state variable",
-            ));
-        }
         let anisotropic = env.spec.anisotropic.unwrap_or(false) || env.spec.axes.is_some();
         if env.spec.anisotropic.is_none() && env.spec.axes.is_none() {
             // Nothing declared: an anisotropic elastic response without material axes to rotate
@@ -156,8 +155,8 @@ impl Probe for Frame {
                 Err(f) => return Ok(faulted("frame", 1, &f)),
             };
             let present: Vec<usize> = conv.order().iter().map(|c| canonical_slot(*c)).collect();
-            let residual = super::conventions::isotropy_residual(&canonical_mandel(&conv, &t), &present);
-            if residual > super::conventions::DEFAULT_TOL {
+            let residual = isotropy_residual(&canonical_mandel(&conv, &t), &present);
+            if residual > crate::convention_fit::DEFAULT_TOL {
                 let mut res = ProbeResult::skipped(
                     "frame",
                     format!(
@@ -181,11 +180,7 @@ impl Probe for Frame {
             };
             for &a in axes {
                 if a + 3 > props.len() {
-                    return Err(format!(
-                        "frame: axis vector at property {a} needs properties {a}..{}, but the routine has {}",
-                        a + 2,
-                        props.len()
-                    ));
+                    return Err(CoreError::AxisProperty { at: a, nprop: props.len() });
                 }
                 let v = [props[a], props[a + 1], props[a + 2]];
                 for i in 0..3 {

@@ -2,7 +2,9 @@
 //! increment, doubled) from the same start — must give the same answers for A. A routine that
 //! keeps saved (static) variables between calls fails.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct HiddenState;
@@ -11,10 +13,10 @@ impl Probe for HiddenState {
     fn name(&self) -> &'static str {
         "hidden-state"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first.is_some() {

@@ -2,7 +2,9 @@
 //! strain increment, start stress, start state, properties). Inputs are copied before each
 //! call and compared bit for bit after it.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Immutability;
@@ -11,10 +13,10 @@ impl Probe for Immutability {
     fn name(&self) -> &'static str {
         "immutability"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first: Option<(usize, String)> = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) || first.is_some() {

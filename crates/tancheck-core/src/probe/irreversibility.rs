@@ -4,7 +4,9 @@
 //! damage model must not do (its dissipation would turn negative). Tolerance: a fall larger
 //! than `tol` (default 1e-12, absolute; damage is dimensionless) fails.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Irreversibility;
@@ -15,22 +17,20 @@ impl Probe for Irreversibility {
     fn name(&self) -> &'static str {
         "irreversibility"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update and the state indices of the damage variables (\"damage\")"
+    fn needs(&self) -> Needs {
+        Needs::DAMAGE_INDICES
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let name = self.name();
         let Some(indices) = env.spec.damage.as_ref().filter(|v| !v.is_empty()) else {
-            return Ok(ProbeResult::skipped(
-                name,
-                "no damage variables declared (\"damage\": [state indices])",
-            ));
+            // run_probes skips before this (Needs::DAMAGE_INDICES); a direct call gets the
+            // same reason.
+            let why = super::unmet(self.needs(), caller.capabilities(), caller.info(), env);
+            return Ok(ProbeResult::skipped(name, why.unwrap_or_default()));
         };
         let nstate = caller.info().nstate;
         if let Some(&bad) = indices.iter().find(|&&i| i >= nstate) {
-            return Err(format!(
-                "irreversibility: damage index {bad} is not a state variable (the routine has {nstate})"
-            ));
+            return Err(CoreError::DamageIndex { index: bad, nstate });
         }
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let mut first: Option<(usize, usize, f64, f64)> = None; // (increment, index, before, after)

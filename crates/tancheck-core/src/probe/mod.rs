@@ -1,14 +1,18 @@
-//! Probes: checks of a routine beyond the tangent, each in its own file, each saying what it
-//! needs from the routine. A probe walks the suite's path (or makes calls of its own around
-//! it) and returns a [`ProbeResult`].
+//! Probes: checks of a routine beyond the tangent, each in its own file, each declaring what
+//! it needs ([`Needs`]). The suite runner checks the needs against the routine's declared
+//! capabilities, the point and the suite entry, and writes the skip reason. A probe walks the
+//! suite's path (or makes calls of its own around it) and returns a [`ProbeResult`]; at each
+//! increment it gets its own copy of the walk's driver, so it cannot leave state behind.
 
 use serde::{Deserialize, Serialize};
 
 use crate::check::held_components;
+use crate::convention::PointKind;
 use crate::driver::{Driver, PointState};
+use crate::error::CoreError;
 use crate::mixed;
 use crate::path::Path;
-use crate::routine::{Caller, Fault};
+use crate::routine::{Caller, Capabilities, Fault, RoutineInfo};
 use crate::settings::Settings;
 
 pub mod conventions;
@@ -166,13 +170,84 @@ pub struct ProbeEnv<'a> {
     pub spec: &'a ProbeSpec,
 }
 
+bitflags::bitflags! {
+    /// What a probe needs before it can say anything. [`run_probes`] checks them in the order
+    /// listed here and skips the probe with the reason [`unmet`] writes.
+    #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]
+    pub struct Needs: u16 {
+        /// The routine returns a tangent ([`Capabilities::TANGENT`]).
+        const TANGENT = 1;
+        /// The routine has the complex-step twin.
+        const TWIN = 1 << 1;
+        /// The routine fills in its energies on every call.
+        const ENERGY = 1 << 2;
+        /// The routine fills in ∂σ/∂T on every call.
+        const DSTRESS_DTEMP = 1 << 3;
+        /// A point with a frame to turn (not uniaxial, not cohesive).
+        const FRAME = 1 << 4;
+        /// A start at zero strain, stress and state.
+        const VIRGIN_START = 1 << 5;
+        /// A point of more than one component.
+        const SEVERAL_COMPONENTS = 1 << 6;
+        /// The suite entry declares `damage` (state indices).
+        const DAMAGE_INDICES = 1 << 7;
+        /// The suite entry declares `length` or `fracture_energy`.
+        const LENGTH_OR_FRACTURE_ENERGY = 1 << 8;
+    }
+}
+
+/// The first of `needs` that the routine (its declared `capabilities` and `info`) or the suite
+/// entry in `env` does not meet, as the reason to skip the probe; `None` when all are met.
+pub fn unmet(
+    needs: Needs,
+    capabilities: Capabilities,
+    info: &RoutineInfo,
+    env: &ProbeEnv<'_>,
+) -> Option<String> {
+    let missing = |what: &str| format!("needs {what}, which {} does not declare", info.name);
+    let s = env.start;
+    for need in needs.iter() {
+        let why = if need == Needs::TANGENT && !capabilities.contains(Capabilities::TANGENT) {
+            missing("the tangent")
+        } else if need == Needs::TWIN && !capabilities.contains(Capabilities::TWIN) {
+            missing("the complex-step twin (`<symbol>_cx`, built by `tancheck build`)")
+        } else if need == Needs::ENERGY && !capabilities.contains(Capabilities::ENERGY) {
+            missing("the energy outputs")
+        } else if need == Needs::DSTRESS_DTEMP && !capabilities.contains(Capabilities::DSTRESS_DTEMP) {
+            missing("∂σ/∂T")
+        } else if need == Needs::FRAME && info.convention.kind() == PointKind::Uniaxial {
+            "a uniaxial point has no frame to turn".into()
+        } else if need == Needs::FRAME && info.convention.kind().is_cohesive() {
+            "a cohesive point's components are already in the interface frame".into()
+        } else if need == Needs::VIRGIN_START
+            && s.strain.iter().chain(&s.stress).chain(&s.state).any(|&x| x != 0.0)
+        {
+            "the start has nonzero strain, stress or state: rotating it would need the meaning of each state variable"
+                .into()
+        } else if need == Needs::SEVERAL_COMPONENTS && info.convention.ncomp() < 2 {
+            "a point with one component has no component to solve for by Newton's method".into()
+        } else if need == Needs::DAMAGE_INDICES && env.spec.damage.as_ref().is_none_or(|v| v.is_empty()) {
+            "no damage variables declared (\"damage\": [state indices])".into()
+        } else if need == Needs::LENGTH_OR_FRACTURE_ENERGY
+            && env.spec.length.is_none()
+            && env.spec.fracture_energy.is_none()
+        {
+            "neither \"length\" nor \"fracture_energy\" declared".into()
+        } else {
+            continue;
+        };
+        return Some(why);
+    }
+    None
+}
+
 /// A probe.
 pub trait Probe {
     fn name(&self) -> &'static str;
-    /// What it needs from the routine, in words.
-    fn needs(&self) -> &'static str;
+    /// What it needs; the suite runner checks them before [`Probe::run`].
+    fn needs(&self) -> Needs;
     /// Run it. Errors are bad input; a crashing routine is a failed probe with the fault.
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String>;
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError>;
 }
 
 /// Every probe this build knows, by name.
@@ -212,8 +287,8 @@ pub fn walk(
 ) -> Result<(), (usize, Fault)> {
     let info = caller.info().clone();
     let conv = info.convention.clone();
-    let mut driver =
-        Driver::new(&info, env.props, env.start.clone()).map_err(|e| (0, Fault::Unsupported(e)))?;
+    let mut driver = Driver::new(&info, env.props, env.start.clone())
+        .map_err(|e| (0, Fault::Unsupported(e.to_string())))?;
     let mut dstrain = vec![0.0; conv.ncomp()];
     for (k, inc) in env.path.increments.iter().enumerate() {
         conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
@@ -226,7 +301,10 @@ pub fn walk(
             }
         };
         r.map_err(|f| (k + 1, f))?;
-        each(k + 1, &mut driver, caller).map_err(|f| (k + 1, f))?;
+        // The probe works on its own copy: whatever it does to it, the walk goes on from the
+        // base call.
+        let mut own = driver.clone();
+        each(k + 1, &mut own, caller).map_err(|f| (k + 1, f))?;
         driver.advance();
     }
     Ok(())
@@ -259,7 +337,7 @@ pub struct SuiteReport {
     pub cautions: Vec<String>,
 }
 
-/// Run probes on a routine.
+/// Run probes given by name on a routine (see [`run_probes`]).
 pub fn run_suite(
     caller: &mut Caller<'_>,
     suite: &str,
@@ -268,15 +346,38 @@ pub fn run_suite(
     start: &PointState,
     path: &Path,
     settings: &Settings,
-) -> Result<SuiteReport, String> {
-    let mut results = Vec::new();
+) -> Result<SuiteReport, CoreError> {
+    let mut probes = Vec::with_capacity(specs.len());
     for spec in specs {
         let probe = by_name(&spec.probe).ok_or_else(|| {
             let names: Vec<_> = registry().iter().map(|p| p.name()).collect();
-            format!("unknown probe `{}`; known probes: {}", spec.probe, names.join(", "))
+            CoreError::UnknownProbe { given: spec.probe.clone(), known: names.join(", ") }
         })?;
+        probes.push((probe, spec));
+    }
+    let probes: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().map(|(p, s)| (p.as_ref(), *s)).collect();
+    run_probes(caller, suite, &probes, props, start, path, settings)
+}
+
+/// Run `probes`, each with its suite entry, on a routine: a probe whose [`Needs`] are not met
+/// is skipped with the reason [`unmet`] gives, without a call.
+pub fn run_probes(
+    caller: &mut Caller<'_>,
+    suite: &str,
+    probes: &[(&dyn Probe, &ProbeSpec)],
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    settings: &Settings,
+) -> Result<SuiteReport, CoreError> {
+    let mut results = Vec::new();
+    let info = caller.info().clone();
+    for &(probe, spec) in probes {
         let env = ProbeEnv { props, start, path, settings, spec };
-        results.push(probe.run(caller, &env)?);
+        match unmet(probe.needs(), caller.capabilities(), &info, &env) {
+            Some(why) => results.push(ProbeResult::skipped(probe.name(), why)),
+            None => results.push(probe.run(caller, &env)?),
+        }
     }
     let pass = results.iter().all(|r| r.status != ProbeStatus::Fail);
     Ok(SuiteReport {

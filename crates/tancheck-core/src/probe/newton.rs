@@ -33,7 +33,9 @@
 //! the measured increments. A point with a single component has nothing to solve for and is
 //! skipped.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::mixed::{self, MixedSettings, SolveLog};
 use crate::routine::Caller;
 
@@ -141,15 +143,13 @@ impl Probe for NewtonRate {
     fn name(&self) -> &'static str {
         "newton"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update and the tangent"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT.union(Needs::SEVERAL_COMPONENTS)
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
-        if caller.info().convention.ncomp() < 2 {
-            return Ok(ProbeResult::skipped(
-                "newton",
-                "a point with one component has no component to solve for by Newton's method",
-            ));
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped("newton", why));
         }
         let min_order = env.spec.tol.unwrap_or(DEFAULT_MIN_ORDER);
         let solves = match study(caller, env) {

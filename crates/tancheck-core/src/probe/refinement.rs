@@ -4,8 +4,10 @@
 //! change from m to 2m sub-increments, is reported (about 1 for backward Euler, and the
 //! changes are at rounding level for a path-independent law).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::driver::Driver;
+use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
 pub struct Refinement;
@@ -28,10 +30,10 @@ impl Probe for Refinement {
     fn name(&self) -> &'static str {
         "refinement"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let max_m = env.spec.subdivisions.unwrap_or(8).max(4);
         let floor = env.spec.tol.unwrap_or(1e-12);
         let mut orders = Vec::new();

@@ -11,8 +11,10 @@
 //! fall inside increments). A path that does not reach full failure (final stress above 1e-6
 //! of the largest) is skipped with that reason.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::ShearMeasure;
+use crate::error::CoreError;
 use crate::path::Path;
 use crate::routine::Caller;
 
@@ -57,18 +59,19 @@ impl Probe for Regularisation {
     fn name(&self) -> &'static str {
         "regularisation"
     }
-    fn needs(&self) -> &'static str {
-        "a path to full failure; the property index of the characteristic length (\"length\") and/or the fracture energy (\"fracture_energy\")"
+    fn needs(&self) -> Needs {
+        Needs::LENGTH_OR_FRACTURE_ENERGY
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        // run_probes skips before this; a direct call gets the same reason.
+        if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
+            return Ok(ProbeResult::skipped(self.name(), why));
+        }
         let name = self.name();
         let (length, g) = (env.spec.length, env.spec.fracture_energy);
-        if length.is_none() && g.is_none() {
-            return Ok(ProbeResult::skipped(name, "neither \"length\" nor \"fracture_energy\" declared"));
-        }
         if let Some(i) = length {
             if i >= env.props.len() || !env.props[i].is_finite() || env.props[i] <= 0.0 {
-                return Err(format!("regularisation: \"length\" {i} is not a positive property"));
+                return Err(CoreError::LengthProperty(i));
             }
         }
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);

@@ -27,6 +27,8 @@
 
 use super::{walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::ShearMeasure;
+use crate::error::CoreError;
+use crate::probe::Needs;
 use crate::routine::{Caller, Fault};
 
 pub struct SnapBack;
@@ -106,10 +108,16 @@ impl Probe for SnapBack {
     fn name(&self) -> &'static str {
         "snap-back"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update along a path into damage growth; the damage state indices (\"damage\") and the property index of the characteristic length (\"length\") and/or the fracture energy (\"fracture_energy\")"
+    fn needs(&self) -> Needs {
+        Needs::DAMAGE_INDICES.union(Needs::LENGTH_OR_FRACTURE_ENERGY)
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        self.run_checked(caller, env).map_err(CoreError::ProbeInput)
+    }
+}
+
+impl SnapBack {
+    fn run_checked(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
         let name = self.name();
         let Some(indices) = env.spec.damage.as_ref().filter(|v| !v.is_empty()) else {
             return Ok(ProbeResult::skipped(

@@ -15,6 +15,8 @@
 
 use super::stability::{assess, Assessment};
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
+use crate::probe::Needs;
 use crate::routine::{Caller, Fault};
 
 pub struct Softening;
@@ -37,10 +39,16 @@ impl Probe for Softening {
     fn name(&self) -> &'static str {
         "softening"
     }
-    fn needs(&self) -> &'static str {
-        "the tangent and the state indices of the damage variables (\"damage\")"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT.union(Needs::DAMAGE_INDICES)
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        self.run_checked(caller, env).map_err(CoreError::ProbeInput)
+    }
+}
+
+impl Softening {
+    fn run_checked(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
         let name = self.name();
         let Some(indices) = env.spec.damage.as_ref().filter(|v| !v.is_empty()) else {
             return Ok(ProbeResult::skipped(

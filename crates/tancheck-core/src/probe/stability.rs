@@ -29,10 +29,12 @@
 //! path (the smallest normalised eigenvalue for cohesive points). It fails only when the
 //! routine fails during the walk.
 
+use super::Needs;
 use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{Convention, PointKind};
+use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
 pub struct Stability;
@@ -370,10 +372,10 @@ impl Probe for Stability {
     fn name(&self) -> &'static str {
         "stability"
     }
-    fn needs(&self) -> &'static str {
-        "the tangent"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let s = match survey(caller, env) {
             Ok(s) => s,

@@ -3,7 +3,9 @@
 //! otherwise an unsymmetric tangent is reported, since a solver with symmetric storage would
 //! need to know.
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct Symmetry;
@@ -12,10 +14,10 @@ impl Probe for Symmetry {
     fn name(&self) -> &'static str {
         "symmetry"
     }
-    fn needs(&self) -> &'static str {
-        "the tangent"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let conv = caller.info().convention.clone();
         let n = conv.ncomp();
         let tol = env.spec.tol.unwrap_or(1e-10);

@@ -1,8 +1,10 @@
 //! The tangent probe: the returned tangent against the derivative of the stress update
 //! (the check of [`crate::check`], with its diagnosis), at every increment of the path.
 
+use super::Needs;
 use super::{Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::check;
+use crate::error::CoreError;
 use crate::routine::Caller;
 use crate::Verdict;
 
@@ -12,10 +14,11 @@ impl Probe for Tangent {
     fn name(&self) -> &'static str {
         "tangent"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update and its tangent (the complex twin for complex-step checks)"
+    fn needs(&self) -> Needs {
+        // The twin is used when there is one (complex-step checks), not required.
+        Needs::TANGENT
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut settings = env.settings.clone();
         if let Some(t) = env.spec.tol {
             for s in crate::Scheme::ALL {

@@ -15,6 +15,8 @@
 
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::check;
+use crate::error::CoreError;
+use crate::probe::Needs;
 use crate::routine::{Caller, Fault};
 use crate::Verdict;
 
@@ -47,10 +49,16 @@ impl Probe for ViscousLimit {
     fn name(&self) -> &'static str {
         "viscous-limit"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update and its tangent; the property index of the viscosity (\"viscosity\") and a path with time increments"
+    fn needs(&self) -> Needs {
+        Needs::TANGENT
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
+        self.run_checked(caller, env).map_err(CoreError::ProbeInput)
+    }
+}
+
+impl ViscousLimit {
+    fn run_checked(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
         let name = self.name();
         let Some(iv) = env.spec.viscosity else {
             return Ok(ProbeResult::skipped(
@@ -108,7 +116,8 @@ impl Probe for ViscousLimit {
                     / scale;
                 diffs.push((eta, e));
             }
-            let report = check::run(caller, &props, env.start.clone(), env.path, env.settings)?;
+            let report = check::run(caller, &props, env.start.clone(), env.path, env.settings)
+                .map_err(|e| e.to_string())?;
             let failed: Vec<_> =
                 report.increments.iter().filter(|i| env.spec.runs_at(i.index) && !i.passed()).collect();
             let line = if report.verdict == Verdict::RoutineFault {

@@ -1,7 +1,9 @@
 //! The zero-increment probe: Δε = 0 (and ΔT = 0, Δt = 0) from the start of each increment returns the
 //! start stress and a finite tangent (default tolerance 1e-12 of the stress scale).
 
+use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::error::CoreError;
 use crate::routine::Caller;
 
 pub struct ZeroIncrement;
@@ -10,10 +12,10 @@ impl Probe for ZeroIncrement {
     fn name(&self) -> &'static str {
         "zero-increment"
     }
-    fn needs(&self) -> &'static str {
-        "the stress update"
+    fn needs(&self) -> Needs {
+        Needs::empty()
     }
-    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, String> {
+    fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let tol = env.spec.tol.unwrap_or(1e-12);
         // The worst change of the stress, where it was; and the first increment where the
         // fault appeared (a change beyond `tol`, or an output that is not finite), with what.

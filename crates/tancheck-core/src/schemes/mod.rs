@@ -9,6 +9,7 @@ use std::fmt;
 use std::str::FromStr;
 
 use crate::driver::{Direction, Driver};
+use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
 pub mod backward;
@@ -98,12 +99,9 @@ impl fmt::Display for Scheme {
 }
 
 impl FromStr for Scheme {
-    type Err = String;
-    fn from_str(s: &str) -> Result<Self, String> {
-        Scheme::ALL
-            .into_iter()
-            .find(|x| x.name() == s)
-            .ok_or_else(|| format!("unknown scheme `{s}`; expected forward, backward, central, central4, richardson or complex-step"))
+    type Err = CoreError;
+    fn from_str(s: &str) -> Result<Self, CoreError> {
+        Scheme::ALL.into_iter().find(|x| x.name() == s).ok_or_else(|| CoreError::UnknownScheme(s.into()))
     }
 }
 

@@ -1,0 +1,132 @@
+//! What a search finds: how one call came out (its class), the judged fractions, where the
+//! class changes inside the increment, what the step studies show, and the located failure.
+
+use serde::{Deserialize, Serialize};
+
+use crate::diagnose::study::{self, StepStudy, StepVerdict};
+use crate::report::CallRecord;
+use crate::schemes::Scheme;
+
+/// How a call came out.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case")]
+pub enum Judgement {
+    /// The returned tangent is the derivative.
+    Agrees,
+    /// It is not.
+    Differs,
+    /// An output is not a finite number.
+    NonFinite,
+    /// The call (or a perturbed call) crashed or returned a failed status.
+    Fault,
+}
+
+/// The class of a call: branch, state change and judgement. The error changes class where
+/// any of the three changes.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct CallClass {
+    pub reported_branch: Option<i32>,
+    pub state_changed: bool,
+    pub judgement: Judgement,
+}
+
+impl CallClass {
+    /// The branch label of [`IncrementResult::branch_label`].
+    pub fn branch_label(&self) -> String {
+        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
+        match self.reported_branch {
+            Some(b) => format!("#{b} ({changed})"),
+            None => changed.to_string(),
+        }
+    }
+
+    pub fn word(&self) -> &'static str {
+        match self.judgement {
+            Judgement::Agrees => "the tangent agrees",
+            Judgement::Differs => "the tangent differs",
+            Judgement::NonFinite => "an output is not finite",
+            Judgement::Fault => "the call faults",
+        }
+    }
+}
+
+/// One judged fraction of the increment.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Sample {
+    pub fraction: f64,
+    pub class: CallClass,
+    /// The tangent error of the judging scheme (0 when it did not compare).
+    pub error: f64,
+}
+
+/// Where inside the increment the error takes the class of the full increment.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Crossing {
+    /// The largest fraction judged with another class, and the smallest above it judged with
+    /// the class of the full increment; `above − below` is at most the fraction tolerance.
+    pub below: f64,
+    pub above: f64,
+    pub class_below: CallClass,
+    pub class_above: CallClass,
+    pub error_below: f64,
+    pub error_above: f64,
+}
+
+impl Crossing {
+    /// The best estimate of the fraction: the middle of the bracket.
+    pub fn fraction(&self) -> f64 {
+        0.5 * (self.below + self.above)
+    }
+}
+
+/// What the search inside the increment found.
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(rename_all = "kebab-case", tag = "found")]
+pub enum Inside {
+    /// The class changes at a fraction of the increment.
+    Crossing(Crossing),
+    /// Every fraction judged, down to `smallest`, has the class of the full increment: the
+    /// failure does not start inside this increment.
+    Throughout { smallest: f64 },
+}
+
+/// The step studies of the failing call and what they show.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct StepFinding {
+    pub verdict: StepVerdict,
+    /// The plateau level of a mismatch.
+    pub plateau: Option<f64>,
+    pub studies: Vec<StepStudy>,
+}
+
+impl StepFinding {
+    /// Classify by the rule the check's diagnosis uses ([`study::classify`]) at the smallest
+    /// tolerance among the failed checks.
+    pub(super) fn from_studies(studies: Vec<StepStudy>, failed_tol: f64) -> StepFinding {
+        let verdict = study::classify(&studies, failed_tol);
+        let plateau = studies.iter().find_map(|s| s.plateau);
+        StepFinding { verdict, plateau, studies }
+    }
+}
+
+/// The located failure.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Located {
+    /// The first failing increment (1-based) and the number of increments of the path.
+    pub increment: usize,
+    pub of: usize,
+    /// Its branch label and what its diagnosis found.
+    pub branch: String,
+    pub finding: String,
+    /// The inputs of its base call.
+    pub call: CallRecord,
+    /// The scheme that judged the fractions.
+    pub judged_by: Scheme,
+    pub inside: Inside,
+    /// Every fraction judged, in the order judged.
+    pub samples: Vec<Sample>,
+    /// The step studies of the full increment (none when its base call faults).
+    pub step: Option<StepFinding>,
+    /// Routine calls the search made (besides the check that found the increment).
+    pub calls: u64,
+}

@@ -1,0 +1,97 @@
+//! Trials of how the entries were written: shear entries scaled by 2 or ½ or in another
+//! order, rows and columns swapped, the whole matrix scaled.
+
+use super::kind::{Cause, Evidence, Found};
+
+/// Shear factor, shear permutation, transposed, uniform scale (in this order).
+pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
+    let n = ev.conv.ncomp();
+    let r = ev.returned;
+    let at = |m: &[f64], i: usize, j: usize| m[i + j * n];
+    let shear: Vec<usize> = (0..n).filter(|&i| ev.conv.order()[i].is_shear()).collect();
+
+    // Shear factor: shear rows, columns or both scaled by 2 or ½.
+    if !shear.is_empty() {
+        let mut best = (f64::INFINITY, String::new());
+        for (what, rows, cols) in
+            [("columns", false, true), ("rows", true, false), ("rows and columns", true, true)]
+        {
+            for f in [2.0, 0.5] {
+                let mut c = r.to_vec();
+                for j in 0..n {
+                    for i in 0..n {
+                        let mut s = 1.0;
+                        if rows && shear.contains(&i) {
+                            s *= f;
+                        }
+                        if cols && shear.contains(&j) {
+                            s *= f;
+                        }
+                        c[i + j * n] *= s;
+                    }
+                }
+                let e = ev.error(&c);
+                if e < best.0 {
+                    best = (
+                        e,
+                        format!(
+                            "shear {what} off by {}: multiply them by {f}",
+                            if f == 2.0 { "½" } else { "2" }
+                        ),
+                    );
+                }
+            }
+        }
+        found.push(Cause::ShearFactor, best.1, best.0);
+    }
+
+    // Shear permutation: rows and columns of the shear components reordered together.
+    if shear.len() == 3 {
+        let perms = [[0, 2, 1], [1, 0, 2], [1, 2, 0], [2, 0, 1], [2, 1, 0]];
+        let mut best = (f64::INFINITY, String::new());
+        for p in perms {
+            let mut map: Vec<usize> = (0..n).collect();
+            for (k, &s) in shear.iter().enumerate() {
+                map[s] = shear[p[k]];
+            }
+            let mut c = vec![0.0; n * n];
+            for j in 0..n {
+                for i in 0..n {
+                    c[i + j * n] = at(r, map[i], map[j]);
+                }
+            }
+            let e = ev.error(&c);
+            if e < best.0 {
+                let labels: Vec<&str> = shear.iter().map(|&s| ev.conv.order()[map[s]].label()).collect();
+                best = (e, format!("shear entries written in the order {}", labels.join(", ")));
+            }
+        }
+        found.push(Cause::ShearPermutation, best.1, best.0);
+    }
+
+    // Transposed.
+    let mut t = vec![0.0; n * n];
+    for j in 0..n {
+        for i in 0..n {
+            t[i + j * n] = at(r, j, i);
+        }
+    }
+    if t != r {
+        found.push(Cause::Transposed, "rows and columns swapped".into(), ev.error(&t));
+    }
+
+    // Uniform scale: the best factor in the least-squares sense.
+    let rr: f64 = r.iter().map(|x| x * x).sum();
+    if rr > 0.0 {
+        let c: f64 = r.iter().zip(ev.numerical).map(|(a, b)| a * b).sum::<f64>() / rr;
+        // Why 1e-6: the check's own resolution; a factor closer to 1 than that is no scaling.
+        if (c - 1.0).abs() > 1e-6 {
+            let scaled: Vec<f64> = r.iter().map(|x| c * x).collect();
+            found.push(
+                Cause::UniformScale,
+                format!("the whole tangent off by a factor {:.4e}", 1.0 / c),
+                ev.error(&scaled),
+            );
+        }
+    }
+}

@@ -1,0 +1,52 @@
+//! Cause hypotheses for a failing tangent. Each usual explanation is tested by correcting
+//! the returned tangent for it (or by comparing it with the tangent the explanation
+//! predicts) and measuring the error left. Explanations that leave little error are ranked
+//! first, the more specific before the more general.
+//!
+//! Data flow: `kind` (causes, evidence) → the trials, in the order their results are listed
+//! (`layout`, `other_matrix`, `local`, `rank_one`; `dtemp` for ∂σ/∂T) → [`rank`] here.
+
+mod dtemp;
+mod kind;
+mod layout;
+mod local;
+mod other_matrix;
+mod rank_one;
+#[cfg(test)]
+mod tests;
+
+pub use dtemp::rank_dtemp;
+use kind::Found;
+pub use kind::{Cause, Evidence, Hypothesis, Refinement};
+
+/// Test every applicable hypothesis and rank them.
+pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
+    let original = ev.error(ev.returned);
+    // Why: a hypothesis explains the failure when its corrected tangent passes with a margin
+    // (10 × tol) or removes all but 1e-3 of the original error (three digits of it).
+    let explain_level = (10.0 * ev.tol).max(1e-3 * original);
+    let mut found = Found { hs: Vec::new(), explain_level };
+    layout::try_layout(ev, &mut found);
+    other_matrix::try_other_matrix(ev, &mut found);
+    local::try_local(ev, &mut found);
+    rank_one::try_rank_one(ev, &mut found);
+    finish(found.hs)
+}
+
+/// Rank: explaining hypotheses first, the more specific before the more general; then by the
+/// error left.
+fn finish(mut hs: Vec<Hypothesis>) -> Vec<Hypothesis> {
+    hs.sort_by(|a, b| {
+        b.explains
+            .cmp(&a.explains)
+            .then_with(|| {
+                if a.explains {
+                    a.cause.rank().cmp(&b.cause.rank())
+                } else {
+                    std::cmp::Ordering::Equal
+                }
+            })
+            .then_with(|| a.error_left.total_cmp(&b.error_left))
+    });
+    hs
+}

@@ -1,0 +1,104 @@
+//! Trials of another matrix returned in place of the derivative: the elastic one, the one of
+//! the start of the increment, a secant, one without coupling terms, a symmetric part.
+
+use super::kind::{Cause, Evidence, Found};
+
+/// Elastic, stale, secant, coupling missing, symmetrized (in this order).
+pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
+    let n = ev.conv.ncomp();
+    let r = ev.returned;
+    let at = |m: &[f64], i: usize, j: usize| m[i + j * n];
+
+    // Elastic tangent in an inelastic branch.
+    if let (Some(e), true) = (ev.elastic, ev.state_changed) {
+        found.push(
+            Cause::ElasticTangent,
+            "equals the elastic tangent although the state variables changed".into(),
+            ev.distance(e),
+        );
+    }
+
+    // Stale: the tangent of the start of the increment.
+    if let Some(p) = ev.previous {
+        found.push(
+            Cause::StaleTangent,
+            "equals the tangent at the start of the increment".into(),
+            ev.distance(p),
+        );
+    }
+
+    // Secant: the returned matrix maps the total strain to the stress.
+    let sn: f64 = ev.stress_end.iter().map(|x| x * x).sum::<f64>().sqrt();
+    if sn > 0.0 {
+        let mut res = 0.0;
+        for i in 0..n {
+            let mut s = 0.0;
+            for j in 0..n {
+                s += at(r, i, j) * ev.strain_end[j];
+            }
+            res += (s - ev.stress_end[i]) * (s - ev.stress_end[i]);
+        }
+        let nsec_res: f64 = {
+            let mut res = 0.0;
+            for i in 0..n {
+                let mut s = 0.0;
+                for j in 0..n {
+                    s += at(ev.numerical, i, j) * ev.strain_end[j];
+                }
+                res += (s - ev.stress_end[i]) * (s - ev.stress_end[i]);
+            }
+            res.sqrt() / sn
+        };
+        // Only a hypothesis when the true tangent is not itself a secant (a linear law).
+        // Why 1e-6: the check's own resolution; a secant closer than that is the tangent.
+        if nsec_res > 1e-6 {
+            found.push(
+                Cause::Secant,
+                "maps the total strain to the stress (a secant stiffness)".into(),
+                res.sqrt() / sn,
+            );
+        }
+    }
+
+    // Coupling missing: the off-diagonal entries are zero where the derivative's are not.
+    let off_zero = (0..n).all(|j| (0..n).all(|i| i == j || at(r, i, j) == 0.0));
+    if off_zero && n > 1 {
+        let mut c = r.to_vec();
+        for j in 0..n {
+            for i in 0..n {
+                if i != j {
+                    c[i + j * n] = at(ev.numerical, i, j);
+                }
+            }
+        }
+        found.push(Cause::CouplingMissing, "off-diagonal coupling terms are zero".into(), ev.error(&c));
+    }
+
+    // Symmetrized: the returned matrix is the symmetric part of an unsymmetric derivative.
+    {
+        let mut skew_norm = 0.0;
+        let mut c = r.to_vec();
+        for j in 0..n {
+            for i in 0..n {
+                let k = 0.5 * (at(ev.numerical, i, j) - at(ev.numerical, j, i));
+                skew_norm += k * k;
+                c[i + j * n] += k;
+            }
+        }
+        // Why 1e-300: only a guard against dividing by the zero norm of an all-zero matrix.
+        let num_norm = ev.numerical.iter().map(|x| x * x).sum::<f64>().sqrt().max(1e-300);
+        // Why 1e-12: symmetric up to rounding of the products that built it (a few ulps of the
+        // norm); the skew part of the numerical one must be 10 × tol to count.
+        let sym_r = (0..n).all(|j| (0..j).all(|i| (at(r, i, j) - at(r, j, i)).abs() <= 1e-12 * num_norm));
+        if sym_r && skew_norm.sqrt() > 10.0 * ev.tol * num_norm {
+            found.push(
+                Cause::Symmetrized,
+                format!(
+                    "the symmetric part ½(C + Cᵀ) of an unsymmetric derivative (skew part {:.2e} of the norm)",
+                    skew_norm.sqrt() / num_norm
+                ),
+                ev.error(&c),
+            );
+        }
+    }
+}

@@ -1,0 +1,106 @@
+//! Trials of a discrepancy of low rank: one term a⊗b missing, of the wrong sign or scaled
+//! (measured against the rest of the derivative's spectrum), or two such terms.
+
+use super::kind::{Cause, Evidence, Found};
+
+/// Term missing / sign / scaled (or rank-one when the factor cannot be told), rank two.
+pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
+    let n = ev.conv.ncomp();
+    let r = ev.returned;
+
+    // Rank-one term: the discrepancy is one outer product a⊗b (in Mandel form).
+    {
+        let mut d = r.to_vec();
+        let mut m = ev.numerical.to_vec();
+        ev.conv.tangent_to_mandel(&mut d);
+        ev.conv.tangent_to_mandel(&mut m);
+        for (x, y) in d.iter_mut().zip(&m) {
+            *x -= y;
+        }
+        if d.iter().chain(&m).any(|x| !x.is_finite()) {
+            return;
+        }
+        let dm = nalgebra::DMatrix::from_column_slice(n, n, &d);
+        let svd = dm.clone().svd(true, true);
+        let mut order: Vec<usize> = (0..svd.singular_values.len()).collect();
+        order.sort_by(|&a, &b| svd.singular_values[b].total_cmp(&svd.singular_values[a]));
+        let s: Vec<f64> = order.iter().map(|&k| svd.singular_values[k]).collect();
+        // Why 1e-300: only a guard against dividing by the zero norm of an all-zero matrix.
+        let norm = m.iter().map(|x| x * x).sum::<f64>().sqrt().max(1e-300);
+        let rest = s.iter().skip(1).map(|x| x * x).sum::<f64>().sqrt() / norm;
+        if s.first().is_some_and(|&x| x > 0.0) {
+            // Which term: the discrepancy σ u⊗v against the derivative's own part along u⊗v,
+            // measured from the elastic tangent when the state changed (the inelastic term),
+            // else from zero. The factor the returned term carries: (τ + σ)/τ.
+            let (u, v) = match (&svd.u, &svd.v_t) {
+                (Some(u), Some(vt)) => (u.column(order[0]).into_owned(), vt.row(order[0]).transpose()),
+                _ => return,
+            };
+            let mut base = m.clone();
+            if let (Some(e), true) = (ev.elastic, ev.state_changed) {
+                let mut em = e.to_vec();
+                ev.conv.tangent_to_mandel(&mut em);
+                for (b, x) in base.iter_mut().zip(&em) {
+                    *b -= x;
+                }
+            }
+            let bm = nalgebra::DMatrix::from_column_slice(n, n, &base);
+            // The background along u: the median of the other eigenvalues of the symmetric
+            // part (the spectrum without the eigen-direction closest to u). The term is what
+            // stands out from it: for J2, −2μθ̄ against the 2μ(θ − 1) of the other deviatoric
+            // directions (Simo & Hughes 1998, Box 3.2).
+            let eig = (0.5 * (&bm + bm.transpose())).symmetric_eigen();
+            let closest = (0..n)
+                .max_by(|&a, &b| {
+                    eig.eigenvectors
+                        .column(a)
+                        .dot(&u)
+                        .abs()
+                        .total_cmp(&eig.eigenvectors.column(b).dot(&u).abs())
+                })
+                .unwrap_or(0);
+            let mut others: Vec<f64> = (0..n).filter(|&k| k != closest).map(|k| eig.eigenvalues[k]).collect();
+            others.sort_by(f64::total_cmp);
+            let background = if others.is_empty() {
+                0.0
+            } else if others.len() % 2 == 1 {
+                others[others.len() / 2]
+            } else {
+                0.5 * (others[others.len() / 2 - 1] + others[others.len() / 2])
+            };
+            let tau = (u.transpose() * &bm * &v)[(0, 0)] - background * u.dot(&v);
+            let sigma = (u.transpose() * &dm * &v)[(0, 0)];
+            // Why 1e-12: below that the derivative has no part along u⊗v beyond rounding of
+            // the norm (a few ulps), so no factor can be told.
+            let factor = if tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
+            let size = s[0] / norm;
+            // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
+            // bands admit the error the rank-one fit leaves, far from any plain scaling.
+            let (cause, detail) = if (factor).abs() < 0.05 {
+                (
+                    Cause::TermMissing,
+                    format!("one term a⊗b of the derivative is missing (size {size:.2e} of the norm)"),
+                )
+            } else if (factor + 1.0).abs() < 0.1 {
+                (Cause::TermSign, format!("one term a⊗b of the derivative has the wrong sign (factor {factor:.3}, size {size:.2e})"))
+            } else if factor.is_finite() {
+                (Cause::TermScaled, format!("one term a⊗b of the derivative is scaled by {factor:.4} (size {size:.2e} of the norm)"))
+            } else {
+                (Cause::RankOneTerm, format!("the discrepancy is one term a⊗b of size {size:.2e}"))
+            };
+            found.push(cause, detail, rest);
+            if s.len() > 2 {
+                let rest2 = s.iter().skip(2).map(|x| x * x).sum::<f64>().sqrt() / norm;
+                found.push(
+                    Cause::RankTwo,
+                    format!(
+                        "the discrepancy has rank two: two terms of sizes {:.2e} and {:.2e} of the norm",
+                        s[0] / norm,
+                        s[1] / norm
+                    ),
+                    rest2,
+                );
+            }
+        }
+    }
+}
