@@ -155,6 +155,14 @@ pub trait Routine {
     fn guard_next_call_fully(&mut self) -> bool {
         false
     }
+
+    /// Another handle on the same routine, for another thread: the same code and data, its
+    /// own call buffers and settings (guard level, traps). `None` (the default) when the
+    /// routine cannot be called from another thread at all. Whether the routine's code is safe
+    /// to call from several threads at once is for [`crate::concurrent`]'s probe to find out.
+    fn another(&self) -> Option<Box<dyn Routine + Send>> {
+        None
+    }
 }
 
 /// Optional capability: the same stress update in complex arithmetic, for complex-step
@@ -234,6 +242,11 @@ impl<'r> Caller<'r> {
 
     pub fn has_complex(&mut self) -> bool {
         self.routine.complex().is_some()
+    }
+
+    /// See [`Routine::another`].
+    pub fn another(&self) -> Option<Box<dyn Routine + Send>> {
+        self.routine.another()
     }
 
     /// See [`Routine::guard_next_call_fully`].
