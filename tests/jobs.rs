@@ -43,13 +43,13 @@ static volatile double shared_spin;
 
 TC_ROUTINE(c_elastic_shared)
 {
-    (void)strain; (void)temp; (void)dstress_dtemp;
+    (void)strain; (void)temperature; (void)dstress_dtemp;
     const int n = call->ncomp;
-    if (n != 6 || call->nprop < 2) {
+    if (n != 6 || call->nproperties < 2) {
         report->status = TC_STATUS_FAILED;
         return;
     }
-    tc_real e = props[0], nu = props[1];
+    tc_real e = properties[0], nu = properties[1];
     tc_real mu = e / (2.0 * (1.0 + nu));
     tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
     for (int k = 0; k < 36; ++k) tangent[k] = 0.0;
@@ -66,8 +66,8 @@ TC_ROUTINE(c_elastic_shared)
     for (int k = 0; k < 20000; ++k) shared_spin += 1.0;
     for (int i = 0; i < 6; ++i) stress[i] = shared_work[i];
     for (int k = 0; k < call->nstate; ++k) state[k] = state0[k];
-    energy[0] = 0.0;
-    energy[1] = 0.0;
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
     report->branch = 0;
     report->status = TC_STATUS_OK;
 }
