@@ -117,10 +117,10 @@ impl<E: Element> GuardBuffers<E> {
             self.array_mut(k).copy_from_slice(src);
             self.zone_mut(k).fill(poison[k]);
         }
-        for k in N_INPUTS..ARRAYS.len() {
+        for (k, array) in ARRAYS.iter().enumerate().skip(N_INPUTS) {
             // A tangent the call does not ask for is neither required nor passed back: it is
             // not pre-filled (its zone is still set and checked).
-            if ARRAYS[k] != GuardedArray::Tangent || input.want_tangent {
+            if *array != GuardedArray::Tangent || input.want_tangent {
                 self.array_mut(k).fill(E::PREFILL);
             }
             self.zone_mut(k).fill(E::CANARY);
