@@ -197,3 +197,21 @@ fn a_routine_that_fails_the_probe_runs_on_one_thread_and_the_report_says_why() {
     let json = String::from_utf8(json).unwrap();
     assert!(json.contains("checked on one thread instead of 2"), "{json}");
 }
+
+/// Routines the memory guards catch give the same report on two threads: the fault where one
+/// thread meets it, the increments after it dropped (and the probe's own calls leave nothing
+/// in the guards of the routine the check calls).
+#[test]
+fn guard_findings_are_the_same_on_one_and_two_threads() {
+    let d = scratch("misbehave");
+    let lib = d.join("libmisbehave.so");
+    build_library(&BuildOptions::new([repo("fortran-shim/examples/c/misbehave.c")], &lib))
+        .unwrap_or_else(|e| panic!("{e}"));
+    for symbol in ["bad_writes_strain", "bad_state_overrun", "bad_tangent_hole"] {
+        let (c1, j1, t1) = check(&lib, symbol, 2, ELASTIC_PROPS, 1);
+        let (c2, j2, t2) = check(&lib, symbol, 2, ELASTIC_PROPS, 2);
+        assert_eq!(c1, Some(3), "{symbol}: {t1}");
+        assert_eq!(c2, Some(3), "{symbol}: {t2}");
+        assert!(j1 == j2, "{symbol}: the JSON reports differ between --jobs 1 and --jobs 2");
+    }
+}

@@ -59,12 +59,16 @@ pub fn plan(
     if jobs < 2 {
         return None;
     }
-    let mut handles = Vec::with_capacity(jobs - 1);
-    for _ in 1..jobs {
-        handles.push(caller.another()?);
+    // The probe calls handles of its own, dropped after it: what the memory guards of the
+    // caller's routine and of the threads' handles record stays the check's alone.
+    let mut probed = Vec::with_capacity(jobs);
+    for _ in 0..jobs {
+        probed.push(caller.another()?);
     }
-    match thread_safety(caller, &mut handles, driver, path) {
-        Ok(()) => Some(handles),
+    let verdict = thread_safety(&mut probed, driver, path);
+    drop(probed);
+    match verdict {
+        Ok(()) => (1..jobs).map(|_| caller.another()).collect(),
         Err(why) => {
             notes.push(format!("checked on one thread instead of {jobs}: {why}"));
             None
@@ -97,16 +101,18 @@ fn describe(i: usize, scale: f64, got: &Bits, want: &Bits) -> String {
     format!("probe increment {} ({scale} × the first increment): {what}", i + 1)
 }
 
-/// Whether the routine behind `caller` and `handles` gives the same outputs, bit for bit,
-/// whatever the order of its calls and when called from every thread at once. The probe's
-/// calls are not counted in `caller`.
+/// Whether the routine behind `handles` (at least one; one per thread) gives the same outputs,
+/// bit for bit, whatever the order of its calls and when called from every thread at once.
 pub fn thread_safety(
-    caller: &mut Caller<'_>,
     handles: &mut [Box<dyn Routine + Send>],
     driver: &Driver,
     path: &Path,
 ) -> Result<(), String> {
-    let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
+    let Some((first, others)) = handles.split_first_mut() else {
+        return Ok(());
+    };
+    let mut main = Caller::new(&mut **first);
+    let caller = &mut main;
     let conv = caller.info().convention.clone();
     let n = conv.ncomp();
     let first = path.increments.first().map(|i| i.dstrain).unwrap_or([1e-4; 6]);
@@ -142,7 +148,7 @@ pub fn thread_safety(
         };
         let outcome: Vec<Result<(), String>> = std::thread::scope(|s| {
             let mut joins = Vec::new();
-            for (t, h) in handles.iter_mut().enumerate() {
+            for (t, h) in others.iter_mut().enumerate() {
                 let mut dt = driver.clone();
                 let run = &run;
                 joins.push(s.spawn(move || {
@@ -163,8 +169,6 @@ pub fn thread_safety(
             None => Ok(()),
         }
     })();
-    caller.real_calls = real0;
-    caller.complex_calls = cplx0;
     result
 }
 
