@@ -264,18 +264,23 @@ fn bench(crit: &mut Criterion) {
 /// Increments of the command-line runs (each starts a process, `--isolate` two).
 const CLI_INCREMENTS: usize = 2_000;
 
-/// `tancheck check` as a user runs it, plain and with `--isolate` (one thread each, light
-/// guards, quiet), on the first 2,000 increments of the cyclic path: the ratio isolate /
-/// plain, from wall-clock times and from the CPU time of the processes.
+/// `tancheck check` as a user runs it, plain (without and with `--json FILE`) and with
+/// `--isolate` (one thread each, light guards, quiet), on the first 2,000 increments of the
+/// cyclic path: the ratios to the plain check, from wall-clock times and from the CPU time of
+/// the processes.
 fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
     let path_file = dir.join(format!("cyclic-{CLI_INCREMENTS}.json"));
     common::write_path_file(&common::cyclic_path(CLI_INCREMENTS), &path_file);
     let manifest = dir.join("j2-light.json");
-    let run = |isolate: bool| {
+    let json = dir.join("command-line-report.json");
+    let run = |isolate: bool, with_json: bool| {
         let mut c = std::process::Command::new(env!("CARGO_BIN_EXE_tancheck"));
         c.arg("check").arg(&manifest).arg("--path").arg(&path_file).args(["--jobs", "1", "-q"]);
         if isolate {
             c.arg("--isolate");
+        }
+        if with_json {
+            c.arg("--json").arg(&json);
         }
         let o = c.output().expect("running tancheck");
         assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
@@ -285,8 +290,14 @@ fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
     g.measurement_time(Duration::from_secs(6));
     let mut out = Vec::new();
     let mut results = Vec::new();
-    for isolate in [false, true] {
-        let name = if isolate { "tancheck check --isolate" } else { "tancheck check" };
+    // The worker of --isolate hands its report to the parent as JSON, so the plain check is
+    // measured with and without --json.
+    for (isolate, with_json) in [(false, false), (false, true), (true, false)] {
+        let name = match (isolate, with_json) {
+            (true, _) => "tancheck check --isolate",
+            (false, true) => "tancheck check --json FILE",
+            (false, false) => "tancheck check",
+        };
         let (t, cpu): (Times, Times) = (Rc::default(), Rc::default());
         let (tt, cc) = (t.clone(), cpu.clone());
         g.bench_function(name, |b| {
@@ -294,7 +305,7 @@ fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
                 let c0 = common::children_cpu();
                 let begin = Instant::now();
                 for _ in 0..iters {
-                    run(isolate);
+                    run(isolate, with_json);
                 }
                 let e = begin.elapsed();
                 tt.borrow_mut().push(e.as_secs_f64() / iters as f64);
