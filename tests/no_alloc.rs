@@ -58,3 +58,77 @@ fn perturbed_calls_into_a_compiled_routine_allocate_nothing() {
     let mut r = lib.routine("c_j2", info).unwrap();
     perturbed_calls_allocate_nothing(&mut r);
 }
+
+/// One comparison of a plastic tangent with a numerical one (default `worst_entries`, the
+/// increment direction measured too) allocates nothing, and keeps the same worst entries, in
+/// the same order, as sorting every entry by decreasing error (a stable sort) would.
+#[test]
+fn one_comparison_allocates_nothing() {
+    use tancheck::core::compare::{compare_along, compare_dtemp_floor};
+    use tancheck::core::{Convention, ShearMeasure};
+    let mut m = reference("j2", tancheck::core::PointKind::Solid3d).unwrap();
+    let info = m.info().clone();
+    let conv = info.convention.clone();
+    let mut driver = Driver::new(&info, &PROPS, PointState::zero(&info, 20.0)).unwrap();
+    let mut caller = Caller::new(&mut m);
+    driver.set_increment(&[3e-3, 0.0, 0.0, 1e-3, 0.0, 2e-3], 0.0, 1.0);
+    driver.base_call(&mut caller).unwrap();
+    let returned = driver.base.tangent.clone();
+    // A numerical tangent off in a few entries (several ties, so the order of ties shows).
+    let mut numerical = returned.clone();
+    for (k, f) in [(0, 1.01), (7, 0.99), (14, 1.01), (21, 1.02), (35, 0.97)] {
+        numerical[k] *= f;
+    }
+    let dir = driver.dstrain().to_vec();
+    let s = tancheck::core::Settings::default();
+    let warm = compare_along(&conv, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    let before = allocations();
+    let c = compare_along(&conv, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    let d = compare_dtemp_floor(
+        &conv,
+        &returned[..6],
+        &numerical[..6],
+        1e-6,
+        s.entry_floor,
+        s.worst_entries,
+        1.0,
+    );
+    let after = allocations();
+    assert_eq!(after - before, 0, "a comparison allocated");
+    assert_eq!(c, warm);
+    assert!(!c.pass && !d.pass);
+    assert_eq!(c.worst.len(), s.worst_entries);
+    // The same selection by sorting all entries (stable, decreasing error).
+    let mut all: Vec<(f64, usize)> = Vec::new();
+    let mut r = returned.clone();
+    let mut n = numerical.clone();
+    conv.tangent_to_mandel(&mut r);
+    conv.tangent_to_mandel(&mut n);
+    let norm = n.iter().map(|x| x * x).sum::<f64>().sqrt();
+    for k in 0..36 {
+        all.push(((r[k] - n[k]).abs() / n[k].abs().max(s.entry_floor * norm), k));
+    }
+    all.sort_by(|a, b| b.0.total_cmp(&a.0));
+    for (e, (err, k)) in c.worst.iter().zip(&all) {
+        assert_eq!((e.row + 6 * e.col, e.error), (*k, *err));
+        assert_eq!(e.label, conv.entry_label(e.row, e.col));
+    }
+    assert_eq!(c.worst_entry_error, all[0].0);
+    // A label reads back from JSON as written.
+    let back: tancheck::core::compare::Comparison =
+        serde_json::from_str(&serde_json::to_string(&c).unwrap()).unwrap();
+    let labels = |c: &tancheck::core::compare::Comparison| {
+        c.worst.iter().map(|e| e.label.to_string()).collect::<Vec<_>>()
+    };
+    assert_eq!(labels(&back), labels(&c));
+    assert_eq!(labels(&c)[0], "12/12");
+    // In a convention with tensor shear and another order, the labels follow it.
+    let other = Convention::from_labels(
+        tancheck::core::PointKind::Solid3d,
+        &["11", "22", "33", "12", "13", "23"],
+        ShearMeasure::Tensor,
+    )
+    .unwrap();
+    let c2 = compare_along(&other, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, None);
+    assert_eq!(c2.worst[0].label, other.entry_label(c2.worst[0].row, c2.worst[0].col));
+}

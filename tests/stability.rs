@@ -227,7 +227,20 @@ fn at_and_cohesive_points() {
     // s = 3λ + 2μ, the bulk eigenvalue of the Mandel tangent.
     let (lambda, mu) = (E * 0.3 / (1.3 * 0.4), E / 2.6);
     let want = mu * mu * (lambda + 2.0 * mu) / (3.0 * lambda + 2.0 * mu).powi(3);
-    assert!((s.increments[0].1.det_ratio().unwrap() / want - 1.0).abs() < 1e-10);
+    // The symmetric part is positive definite there (its smallest eigenvalue is 2μ), so the
+    // walk does not search the normals: it gives the lower bound (λmin/2)³ = μ³, below the
+    // exact value; `assess` of the same tangent searches and finds μ²(λ + 2μ).
+    let a = s.increments[0].1;
+    assert!(a.bound_only);
+    let bound = mu.powi(3) / (3.0 * lambda + 2.0 * mu).powi(3);
+    assert!((a.det_ratio().unwrap() / bound - 1.0).abs() < 1e-10);
+    assert!(bound < want);
+    let mut d = tancheck::core::Driver::new(&info, &p, start.clone()).unwrap();
+    d.set_increment(&[2e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 0.0, 1.0);
+    d.base_call(&mut caller).unwrap();
+    let exact = stability::assess(&info.convention, &d.base.tangent);
+    assert!(!exact.bound_only);
+    assert!((exact.det_ratio().unwrap() / want - 1.0).abs() < 1e-10);
 
     let mut c = reference("cohesive", PointKind::Cohesive3d).unwrap();
     let cinfo = c.info().clone();

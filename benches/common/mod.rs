@@ -260,3 +260,22 @@ pub fn stats(t: &Times) -> (f64, f64) {
     v.sort_by(f64::total_cmp);
     (v[0], v[v.len() / 2])
 }
+
+/// CPU time of the calling thread so far, in seconds: unlike the wall clock, it does not grow
+/// while other work on a shared machine holds the core.
+pub fn thread_cpu() -> f64 {
+    let mut t = libc::timespec { tv_sec: 0, tv_nsec: 0 };
+    // SAFETY: a valid clock id and a pointer to a timespec we own.
+    unsafe { libc::clock_gettime(libc::CLOCK_THREAD_CPUTIME_ID, &mut t) };
+    t.tv_sec as f64 + t.tv_nsec as f64 * 1e-9
+}
+
+/// CPU time (user + system) of the finished child processes so far, in seconds.
+pub fn children_cpu() -> f64 {
+    // SAFETY: a zeroed rusage is a valid value; getrusage fills it.
+    let mut r: libc::rusage = unsafe { std::mem::zeroed() };
+    // SAFETY: RUSAGE_CHILDREN with a pointer to an rusage we own.
+    unsafe { libc::getrusage(libc::RUSAGE_CHILDREN, &mut r) };
+    let tv = |t: libc::timeval| t.tv_sec as f64 + t.tv_usec as f64 * 1e-6;
+    tv(r.ru_utime) + tv(r.ru_stime)
+}

@@ -124,8 +124,19 @@ struct CheckArgs {
     /// Time limit for the whole check, in seconds (above 0, at most 86400).
     #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_SUITE_TIMEOUT, value_parser = crate::survive::parse_seconds)]
     suite_timeout: f64,
+    /// Threads for the check (default: one per core). A routine is called from several threads
+    /// only when it passes a thread-safety probe (else the report says why it ran on one);
+    /// the report is the same whatever the number.
+    #[arg(short, long, value_name = "N", value_parser = clap::value_parser!(u16).range(1..=1024))]
+    jobs: Option<u16>,
     #[command(flatten)]
     output: crate::session::OutputArgs,
+}
+
+/// The threads of `--jobs`, by default one per core.
+fn jobs_arg(jobs: Option<u16>) -> usize {
+    jobs.map(usize::from)
+        .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get))
 }
 
 #[derive(Args, Debug)]
@@ -287,6 +298,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     }
     m.check.validate().map_err(|e| anyhow::anyhow!("{file} (with the command-line options): {e}"))?;
     m.fp_traps |= a.fp_traps;
+    m.check.jobs = jobs_arg(a.jobs);
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
     }

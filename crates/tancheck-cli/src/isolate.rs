@@ -3,8 +3,10 @@
 //! corruption or a stack overflow inside the routine ends only the worker; the parent says
 //! what happened, with the inputs of the increment that was running, and finishes the report.
 //!
-//! The worker writes one byte to a heartbeat file before every routine call, and the inputs
-//! of each increment's base call to a second file; the parent watches both.
+//! The worker and the parent share a record in memory (a file both map, [`SHARED_LEN`]
+//! bytes): a counter the worker raises before every routine call, and the inputs of each
+//! increment's base call. No system call per routine call: the parent reads the counter
+//! every 10 ms and the inputs when the worker has died.
 //!
 //! The worker follows its parent: SIGTERM, SIGINT or SIGHUP to the parent ends the worker and
 //! removes the worker's folder before the parent dies of the signal (exit 128 + signal), and
@@ -12,7 +14,7 @@
 
 use std::fs::File;
 use std::io::{Read, Write};
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
@@ -35,7 +37,7 @@ pub fn worker_follows_parent(heartbeat: &Path) -> Result<()> {
         watch::remove_on_stop(dir);
     }
     let report = heartbeat.with_file_name("report.json");
-    for f in [heartbeat.to_path_buf(), call_file(heartbeat), crate::report::temporary_name(&report), report] {
+    for f in [heartbeat.to_path_buf(), crate::report::temporary_name(&report), report] {
         watch::remove_on_stop(&f);
     }
     let parent = std::env::var(PARENT_ENV).ok().and_then(|p| p.parse::<u32>().ok());
@@ -47,46 +49,139 @@ pub fn worker_follows_parent(heartbeat: &Path) -> Result<()> {
     Ok(())
 }
 
-/// A routine that leaves a heartbeat before every call (in the worker).
+/// Bytes of the shared record: the call counter, the sequence word, the record's length in
+/// words, and the inputs of the last base call (8-byte words). A sparse file: pages the
+/// record does not reach take no room.
+pub const SHARED_LEN: u64 = 1 << 20;
+/// Word offsets in the shared record.
+const W_CALLS: usize = 0;
+const W_SEQ: usize = 1;
+const W_LEN: usize = 2;
+const W_RECORD: usize = 3;
+/// Words of a record before its arrays: increment, temperature and its increment, time and
+/// its increment, and the lengths of properties, strain (stress) and state.
+const RECORD_HEAD: usize = 8;
+
+/// The words of a shared record mapped in memory.
+fn words(map: &[u8]) -> &[std::sync::atomic::AtomicU64] {
+    let n = map.len() / 8;
+    // SAFETY: the map is page-aligned (so 8-aligned) and `n` words long; AtomicU64 has the
+    // size and alignment of u64, and every access to the shared words is atomic.
+    unsafe { std::slice::from_raw_parts(map.as_ptr().cast::<std::sync::atomic::AtomicU64>(), n) }
+}
+
+/// A routine that raises the shared call counter before every call and leaves the inputs of
+/// each base call in the shared record (in the worker).
 pub struct Heartbeat<'r> {
     inner: &'r mut dyn Routine,
-    beats: File,
-    call_file: PathBuf,
+    map: memmap2::MmapMut,
+    calls: u64,
+    seq: u64,
 }
 
 impl<'r> Heartbeat<'r> {
     pub fn new(inner: &'r mut dyn Routine, heartbeat: &Path) -> std::io::Result<Heartbeat<'r>> {
-        let beats = std::fs::OpenOptions::new().create(true).append(true).open(heartbeat)?;
-        Ok(Heartbeat { inner, beats, call_file: call_file(heartbeat) })
+        let file = std::fs::OpenOptions::new().read(true).write(true).open(heartbeat)?;
+        if file.metadata()?.len() < SHARED_LEN {
+            file.set_len(SHARED_LEN)?;
+        }
+        // SAFETY: the file is the worker folder's own, made by the parent, which only reads
+        // it; its length is not changed while mapped.
+        let map = unsafe { memmap2::MmapMut::map_mut(&file)? };
+        Ok(Heartbeat { inner, map, calls: 0, seq: 0 })
     }
 
-    fn beat(&mut self, input: &CallInput<'_, f64>) {
-        let _ = self.beats.write_all(b".");
-        if input.want_tangent {
-            let rec = CallRecord {
-                increment: input.increment,
-                perturbation: None,
-                props: input.props.to_vec(),
-                strain: input.strain.to_vec(),
-                dstrain: input.dstrain.to_vec(),
-                temp: input.temp[0],
-                dtemp: input.temp[1],
-                stress0: input.stress0.to_vec(),
-                state0: input.state0.to_vec(),
-                time: input.time[0],
-                dtime: input.time[1],
-            };
-            if let Ok(text) = serde_json::to_vec(&rec) {
-                let _ = std::fs::write(&self.call_file, text);
+    fn beat(&mut self) {
+        use std::sync::atomic::Ordering;
+        self.calls += 1;
+        words(&self.map)[W_CALLS].store(self.calls, Ordering::Release);
+    }
+
+    /// The inputs of a base call into the shared record, between two raises of the sequence
+    /// word (odd while writing). Nothing when they do not fit.
+    fn record(&mut self, input: &CallInput<'_, f64>) {
+        use std::sync::atomic::Ordering;
+        let w = words(&self.map);
+        let arrays = [input.props, input.strain, input.dstrain, input.stress0, input.state0];
+        let len = RECORD_HEAD + arrays.iter().map(|a| a.len()).sum::<usize>();
+        self.seq += 1;
+        w[W_SEQ].store(self.seq, Ordering::Release);
+        if W_RECORD + len > w.len() {
+            w[W_LEN].store(0, Ordering::Relaxed);
+        } else {
+            let head = [
+                input.increment as i64 as u64,
+                input.temp[0].to_bits(),
+                input.temp[1].to_bits(),
+                input.time[0].to_bits(),
+                input.time[1].to_bits(),
+                input.props.len() as u64,
+                input.strain.len() as u64,
+                input.state0.len() as u64,
+            ];
+            let values = head.into_iter().chain(arrays.iter().flat_map(|a| a.iter().map(|x| x.to_bits())));
+            for (slot, v) in w[W_RECORD..].iter().zip(values) {
+                slot.store(v, Ordering::Relaxed);
             }
+            w[W_LEN].store(len as u64, Ordering::Relaxed);
         }
+        self.seq += 1;
+        w[W_SEQ].store(self.seq, Ordering::Release);
     }
 }
 
-fn call_file(heartbeat: &Path) -> PathBuf {
-    let mut p = heartbeat.as_os_str().to_owned();
-    p.push(".call");
-    PathBuf::from(p)
+/// The parent's view of the shared record.
+struct SharedView(memmap2::Mmap);
+
+impl SharedView {
+    fn open(heartbeat: &Path) -> std::io::Result<SharedView> {
+        let file = File::options().read(true).write(true).create(true).truncate(true).open(heartbeat)?;
+        file.set_len(SHARED_LEN)?;
+        // SAFETY: the worker writes the file only through its own map, with atomic accesses,
+        // and never changes its length.
+        Ok(SharedView(unsafe { memmap2::Mmap::map(&file)? }))
+    }
+
+    /// Routine calls the worker has begun.
+    fn calls(&self) -> u64 {
+        words(&self.0)[W_CALLS].load(std::sync::atomic::Ordering::Acquire)
+    }
+
+    /// The inputs of the last base call, when the worker finished writing them.
+    fn last_call(&self) -> Option<CallRecord> {
+        use std::sync::atomic::Ordering;
+        let w = words(&self.0);
+        let seq = w[W_SEQ].load(Ordering::Acquire);
+        let len = w[W_LEN].load(Ordering::Acquire) as usize;
+        if seq == 0 || seq % 2 == 1 || len < RECORD_HEAD || W_RECORD + len > w.len() {
+            return None;
+        }
+        let r: Vec<u64> = w[W_RECORD..W_RECORD + len].iter().map(|x| x.load(Ordering::Relaxed)).collect();
+        let (np, n, ns) = (r[5] as usize, r[6] as usize, r[7] as usize);
+        if RECORD_HEAD + np + 3 * n + ns != len {
+            return None;
+        }
+        let mut at = RECORD_HEAD;
+        let mut take = |m: usize| {
+            let v: Vec<f64> = r[at..at + m].iter().map(|b| f64::from_bits(*b)).collect();
+            at += m;
+            v
+        };
+        let (props, strain, dstrain, stress0, state0) = (take(np), take(n), take(n), take(n), take(ns));
+        Some(CallRecord {
+            increment: r[0] as i64 as i32,
+            perturbation: None,
+            props,
+            strain,
+            dstrain,
+            temp: f64::from_bits(r[1]),
+            dtemp: f64::from_bits(r[2]),
+            stress0,
+            state0,
+            time: f64::from_bits(r[3]),
+            dtime: f64::from_bits(r[4]),
+        })
+    }
 }
 
 impl Routine for Heartbeat<'_> {
@@ -94,7 +189,10 @@ impl Routine for Heartbeat<'_> {
         self.inner.info()
     }
     fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
-        self.beat(input);
+        if input.want_tangent {
+            self.record(input);
+        }
+        self.beat();
         self.inner.call(input, output)
     }
     fn guard_next_call_fully(&mut self) -> bool {
@@ -118,7 +216,7 @@ impl ComplexRoutine for Heartbeat<'_> {
         input: &CallInput<'_, Complex64>,
         output: &mut CallOutput<'_, Complex64>,
     ) -> Result<(), Fault> {
-        let _ = self.beats.write_all(b".");
+        self.beat();
         self.inner.complex().expect("checked").call_complex(input, output)
     }
 }
@@ -137,7 +235,7 @@ pub fn run_isolated(
     tancheck_abi::watch::defer_stop(true);
     let heartbeat = dir.join("heartbeat");
     let report_json = dir.join("report.json");
-    File::create(&heartbeat)?;
+    let shared = SharedView::open(&heartbeat)?;
     let exe = std::env::current_exe().context("finding this program to start a worker")?;
     let mut cmd = Command::new(exe);
     cmd.args(args)
@@ -179,7 +277,7 @@ pub fn run_isolated(
             eprintln!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
             return Ok(128 + stop);
         }
-        let len = std::fs::metadata(&heartbeat).map(|m| m.len()).unwrap_or(0);
+        let len = shared.calls();
         if len != last_len {
             last_len = len;
             last_beat = Instant::now();
@@ -250,10 +348,9 @@ pub fn run_isolated(
         };
         // The call that was running: from the worker's last words (exact), or the base call
         // of the increment the heartbeat last saw.
-        let call: Option<CallRecord> =
-            last_words.and_then(|v| serde_json::from_value(v["fault"]["call"].clone()).ok()).or_else(|| {
-                std::fs::read(call_file(&heartbeat)).ok().and_then(|b| serde_json::from_slice(&b).ok())
-            });
+        let call: Option<CallRecord> = last_words
+            .and_then(|v| serde_json::from_value(v["fault"]["call"].clone()).ok())
+            .or_else(|| shared.last_call());
         let stdout_text = String::from_utf8_lossy(&stdout);
         let stderr_text = String::from_utf8_lossy(&stderr);
         let mut o = crate::survive::stdout();

@@ -1,15 +1,14 @@
 //! A tangent check along a path: the pipeline driver → schemes → comparison → report. Each
 //! increment is checked by [`judge::check_call`], the same per-call check bisection uses.
 
-use crate::call_check as judge;
+use crate::concurrent;
 use crate::driver::{Driver, PointState};
 use crate::error::CoreError;
 use crate::first_calls;
-use crate::mixed;
+pub use crate::increment::held_components;
+use crate::increment::{self, Step};
 use crate::path::Path;
-use crate::report::{
-    CallCounts, Collector, IncrementResult, Keep, Report, RoutineSummary, Verdict, CAUTIONS,
-};
+use crate::report::{CallCounts, Collector, Keep, Report, RoutineSummary, Verdict, CAUTIONS};
 use crate::routine::Caller;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -55,15 +54,8 @@ pub fn run_with(
         ));
     }
     let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-    let mut dstrain = vec![0.0; n];
-    // The best numerical tangent at the end of the previous increment (the tangent at the
-    // start of this one), for the stale-tangent hypothesis.
-    let mut previous: Option<Vec<f64>> = None;
-    // Whether some increment's strain increment opposed the stress at its start (unloading).
-    let mut unloaded = false;
     let mut increments = Collector::new(settings, keep, path.increments.len());
     // Cheap looks at first calls (see `first_calls`): a zero increment, full guards per branch.
-    let mut reached = first_calls::Branches::default();
     if settings.first_calls {
         let dtime = path.increments.first().map_or(1.0, |i| i.dtime);
         if let Some(r) = first_calls::zero_increment(caller, &info, props, driver.start(), dtime)? {
@@ -74,115 +66,62 @@ pub fn run_with(
             increments.push(r);
         }
     }
-    let mut conventions_seen = false;
-
-    for (k, inc) in path.increments.iter().enumerate() {
-        if increments.last_faulted() {
-            break;
-        }
-        if k > 0 {
-            progress(k);
-        }
-        conv.strain_from_canonical(&inc.dstrain, &mut dstrain);
-        driver.set_increment(&dstrain, inc.dtemp, inc.dtime);
-        // Mixed control first: the held stresses decide the strain increment to check.
-        let mut solve_log = None;
-        let mut solved = Ok(());
-        if let Some(hold) = &inc.hold_stress {
-            let (controlled, targets) = held_components(&conv, hold);
-            match mixed::solve(&mut driver, caller, &controlled, &targets, &settings.mixed, true) {
-                Ok(log) => {
-                    if !log.converged {
-                        notes.push(format!(
-                            "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
-                            k + 1,
-                            log.residuals
-                        ));
-                    }
-                    solve_log = Some(log);
-                }
-                Err(f) => solved = Err(f),
-            }
-        }
-        let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
-        unloaded |= work < 0.0;
-        // The base call, every scheme, and the diagnosis of a failure: one call's check.
-        let checked =
-            solved.and_then(|()| judge::check_call(&mut driver, caller, settings, previous.as_deref()));
-        match checked {
-            Err(fault) => {
-                increments.push(IncrementResult {
-                    index: k + 1,
-                    reported_branch: None,
-                    state_changed: false,
-                    strain: driver.start().strain.clone(),
-                    stress: driver.start().stress.clone(),
-                    checks: Vec::new(),
-                    non_finite: Vec::new(),
-                    non_finite_call: None,
-                    solve: solve_log,
-                    diagnosis: None,
-                    fault: Some(judge::fault_record(&fault, &driver, None)),
-                });
-                break;
-            }
-            Ok(cc) => {
-                let guarded = if settings.first_calls && reached.first(cc.reported_branch, cc.state_changed) {
-                    first_calls::full_guard(&mut driver, caller).err()
-                } else {
-                    None
-                };
-                // The first elastic increment's numerical tangent tells a wrong declared
-                // convention, at no cost in calls.
-                if !conventions_seen && !cc.state_changed {
-                    conventions_seen = true;
-                    if let Some((_, t)) = &cc.best {
-                        let f = crate::convention_fit::analyse(&conv, t, crate::convention_fit::DEFAULT_TOL);
-                        if f.mismatch() {
-                            notes.push(format!(
-                                "conventions warning: the elastic response {}; the tangent check cannot see a wrong \
-                                 declaration (the `conventions` probe shows the evidence)",
-                                f.sentence()
-                            ));
-                        }
+    let mut merged = Merged { notes, increments, previous: None, unloaded: false, conventions_seen: false };
+    let stopped_at_zero = merged.increments.last_faulted();
+    // Several threads when the settings ask for them and the routine is safe to call from
+    // several at once (see `concurrent`); otherwise, or for a short path, one.
+    let plan = if stopped_at_zero {
+        None
+    } else {
+        concurrent::plan(caller, &driver, path, settings, &mut merged.notes)
+    };
+    match plan {
+        Some(handles) if !stopped_at_zero => {
+            let chunks = concurrent::walk(caller, handles, &info, props, driver.start(), path, settings);
+            for chunk in chunks {
+                let mut stop = false;
+                for step in chunk.steps {
+                    stop = merged.take(step, &conv);
+                    if stop {
+                        break;
                     }
                 }
-                if let Some(fault) = guarded {
-                    increments.push(IncrementResult {
-                        index: k + 1,
-                        reported_branch: cc.reported_branch,
-                        state_changed: cc.state_changed,
-                        strain: driver.start().strain.clone(),
-                        stress: driver.start().stress.clone(),
-                        checks: cc.checks,
-                        non_finite: cc.non_finite,
-                        non_finite_call: None,
-                        solve: solve_log,
-                        diagnosis: cc.diagnosis,
-                        fault: Some(*fault),
-                    });
+                caller.real_calls += chunk.real_calls;
+                caller.complex_calls += chunk.complex_calls;
+                progress(merged.increments.len());
+                if stop || !chunk.complete {
                     break;
                 }
-                previous = cc.best.map(|(_, t)| t);
-                // Non-finite outputs carry the inputs of the call, as a crash does.
-                let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(&driver, None));
-                driver.advance();
-                increments.push(IncrementResult {
-                    index: k + 1,
-                    reported_branch: cc.reported_branch,
-                    state_changed: cc.state_changed,
-                    strain: driver.start().strain.clone(),
-                    stress: driver.start().stress.clone(),
-                    checks: cc.checks,
-                    non_finite: cc.non_finite,
-                    non_finite_call,
-                    solve: solve_log,
-                    diagnosis: cc.diagnosis,
-                    fault: None,
-                });
+            }
+        }
+        _ => {
+            let mut reached = first_calls::Branches::default();
+            let mut dstrain = vec![0.0; n];
+            for (k, inc) in path.increments.iter().enumerate() {
+                if merged.increments.last_faulted() {
+                    break;
+                }
+                if k > 0 {
+                    progress(k);
+                }
+                let previous = merged.previous.take();
+                let step = increment::step(
+                    k,
+                    inc,
+                    &mut driver,
+                    caller,
+                    settings,
+                    previous.as_deref(),
+                    &mut reached,
+                    &mut dstrain,
+                );
+                if merged.take(step, &conv) {
+                    break;
+                }
             }
         }
     }
+    let Merged { notes, increments, unloaded, .. } = merged;
 
     progress(path.increments.len());
     let mut coverage = Vec::new();
@@ -250,15 +189,41 @@ pub fn run_with(
     })
 }
 
-/// Routine positions and targets of the stress components a mixed-control increment holds.
-pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
-    let mut controlled = Vec::new();
-    let mut targets = Vec::new();
-    for (i, c) in conv.order().iter().enumerate() {
-        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
-            controlled.push(i);
-            targets.push(t);
+/// The increments checked so far, in path order, and what they leave for the next ones.
+struct Merged {
+    notes: Vec<String>,
+    increments: Collector,
+    /// The best numerical tangent at the end of the previous increment (the tangent at the
+    /// start of this one), for the stale-tangent hypothesis.
+    previous: Option<Vec<f64>>,
+    /// Some increment's strain increment opposed the stress at its start (unloading).
+    unloaded: bool,
+    conventions_seen: bool,
+}
+
+impl Merged {
+    /// Add the next increment's step; true when the path stops there.
+    fn take(&mut self, step: Step, conv: &crate::Convention) -> bool {
+        let stops = step.stops();
+        self.unloaded |= step.unloaded;
+        self.notes.extend(step.note);
+        // The first elastic increment's numerical tangent tells a wrong declared convention,
+        // at no cost in calls.
+        if step.checked && !self.conventions_seen && !step.result.state_changed {
+            self.conventions_seen = true;
+            if let Some(t) = &step.best {
+                let f = crate::convention_fit::analyse(conv, t, crate::convention_fit::DEFAULT_TOL);
+                if f.mismatch() {
+                    self.notes.push(format!(
+                        "conventions warning: the elastic response {}; the tangent check cannot see a wrong \
+                         declaration (the `conventions` probe shows the evidence)",
+                        f.sentence()
+                    ));
+                }
+            }
         }
+        self.previous = if stops { None } else { step.best };
+        self.increments.push(step.result);
+        stops
     }
-    (controlled, targets)
 }

@@ -11,10 +11,125 @@
 //!   in that direction hides under the elastic scale in the other three measures.
 //!
 //! ∂σ/∂T vectors are compared against an absolute floor as well ([`compare_dtemp`]).
+//!
+//! A comparison runs twice per increment of every check, so it allocates nothing at the
+//! default settings: the Mandel copies live on the stack, the worst entries are kept by
+//! insertion in an inline list (a larger `worst_entries` than [`INLINE_WORST`] spills to the
+//! heap), and an entry's label is a few inline bytes, turned into text only when printed.
+
+use std::borrow::Cow;
+use std::fmt;
 
 use serde::{Deserialize, Serialize};
+use smallvec::SmallVec;
 
 use crate::convention::Convention;
+
+/// Entries kept inline by a comparison (the default `worst_entries`).
+pub const INLINE_WORST: usize = 4;
+
+/// Column errors of a comparison (one per strain component, at most 6, inline).
+pub type ColumnErrors = SmallVec<[f64; 6]>;
+/// The worst entries of a comparison, worst first.
+pub type WorstEntries = SmallVec<[EntryDiff; INLINE_WORST]>;
+
+/// An entry's "row/col" label, e.g. "11/23" or "s1/T": at most [`Label::CAP`] bytes, inline
+/// (no allocation); text only when displayed or serialised.
+#[derive(Clone, Copy, PartialEq, Eq)]
+pub struct Label {
+    len: u8,
+    bytes: [u8; Label::CAP],
+}
+
+impl Label {
+    pub const CAP: usize = 14;
+
+    /// `row` + "/" + `col`, cut at [`Label::CAP`] bytes (component labels are 1–2 bytes).
+    pub fn pair(row: &str, col: &str) -> Label {
+        let mut l = Label { len: 0, bytes: [0; Label::CAP] };
+        for part in [row, "/", col] {
+            for &b in part.as_bytes() {
+                if (l.len as usize) < Label::CAP {
+                    l.bytes[l.len as usize] = b;
+                    l.len += 1;
+                }
+            }
+        }
+        // Never cut inside a character.
+        while std::str::from_utf8(&l.bytes[..l.len as usize]).is_err() {
+            l.len -= 1;
+        }
+        l
+    }
+
+    pub fn as_str(&self) -> &str {
+        std::str::from_utf8(&self.bytes[..self.len as usize]).unwrap_or("")
+    }
+}
+
+impl std::ops::Deref for Label {
+    type Target = str;
+    fn deref(&self) -> &str {
+        self.as_str()
+    }
+}
+
+impl fmt::Display for Label {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.pad(self.as_str())
+    }
+}
+
+impl fmt::Debug for Label {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        fmt::Debug::fmt(self.as_str(), f)
+    }
+}
+
+impl PartialEq<&str> for Label {
+    fn eq(&self, other: &&str) -> bool {
+        self.as_str() == *other
+    }
+}
+
+impl PartialEq<str> for Label {
+    fn eq(&self, other: &str) -> bool {
+        self.as_str() == other
+    }
+}
+
+impl PartialEq<String> for Label {
+    fn eq(&self, other: &String) -> bool {
+        self.as_str() == other
+    }
+}
+
+impl From<Label> for String {
+    fn from(l: Label) -> String {
+        l.as_str().to_string()
+    }
+}
+
+impl Serialize for Label {
+    fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
+        s.serialize_str(self.as_str())
+    }
+}
+
+impl<'de> Deserialize<'de> for Label {
+    fn deserialize<D: serde::Deserializer<'de>>(d: D) -> Result<Label, D::Error> {
+        let s = Cow::<str>::deserialize(d)?;
+        let (row, col) = s.split_once('/').unwrap_or((&s, ""));
+        let l = Label::pair(row, col);
+        if l.as_str() != s {
+            return Err(serde::de::Error::custom(format!(
+                "entry label `{s}` longer than {} bytes",
+                Label::CAP
+            )));
+        }
+        Ok(l)
+    }
+}
 
 /// One entry of a comparison, with values in the routine's own convention.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -23,7 +138,8 @@ pub struct EntryDiff {
     pub row: usize,
     pub col: usize,
     /// "row/col" component labels, e.g. "11/23".
-    pub label: String,
+    #[schemars(with = "String")]
+    pub label: Label,
     pub returned: f64,
     pub numerical: f64,
     pub error: f64,
@@ -40,15 +156,17 @@ pub struct Comparison {
     pub soft_error: f64,
     /// That direction, in words (e.g. "the increment direction", "the softest direction").
     #[serde(default)]
-    pub soft_direction: String,
-    pub column_errors: Vec<f64>,
+    pub soft_direction: Cow<'static, str>,
+    #[schemars(with = "Vec<f64>")]
+    pub column_errors: ColumnErrors,
     /// The worst entries, worst first.
-    pub worst: Vec<EntryDiff>,
     /// Every entry's error (the entry measure above), column-major in the routine's order,
     /// kept only when the comparison fails (for the heatmap of the HTML report); empty when
-    /// it passes.
+    /// it passes, so a passing comparison allocates nothing.
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub entry_errors: Vec<f64>,
+    #[schemars(with = "Vec<EntryDiff>")]
+    pub worst: WorstEntries,
     /// The returned tangent has entries that are not finite.
     pub non_finite_returned: usize,
     pub tol: f64,
@@ -85,20 +203,25 @@ pub fn compare_along(
     keep_worst: usize,
     direction: Option<&[f64]>,
 ) -> Comparison {
-    let mut r = returned.to_vec();
-    let mut m = numerical.to_vec();
-    conv.tangent_to_mandel(&mut r);
-    conv.tangent_to_mandel(&mut m);
-    let label = |i: usize, j: usize| conv.entry_label(i, j);
-    let mut c = measure(&r, &m, returned, numerical, conv.ncomp(), &label, tol, entry_floor, keep_worst);
+    let nn = returned.len();
+    assert!(nn <= 36 && numerical.len() == nn, "a tangent has at most 6 × 6 entries");
+    let (mut rb, mut mb) = ([0.0; 36], [0.0; 36]);
+    let (r, m) = (&mut rb[..nn], &mut mb[..nn]);
+    r.copy_from_slice(returned);
+    m.copy_from_slice(numerical);
+    conv.tangent_to_mandel(r);
+    conv.tangent_to_mandel(m);
+    let order = conv.order();
+    let label = |i: usize, j: usize| Label::pair(order[i].label(), order[j].label());
+    let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, tol, entry_floor, keep_worst);
     let mut dir = [0.0; 6];
     let d = direction.map(|d| {
         conv.strain_to_mandel(d, &mut dir[..conv.ncomp()]);
         &dir[..conv.ncomp()]
     });
-    let (e, what) = soft_error(&r, &m, conv.ncomp(), d);
+    let (e, what) = soft_error(r, m, conv.ncomp(), d);
     c.soft_error = e;
-    c.soft_direction = what.to_string();
+    c.soft_direction = Cow::Borrowed(what);
     c.pass &= e <= tol;
     if c.pass {
         c.entry_errors = Vec::new();
@@ -186,38 +309,37 @@ pub fn compare_dtemp_floor(
     abs_floor: f64,
 ) -> Comparison {
     let n = conv.ncomp();
-    let mut r = vec![0.0; n];
-    let mut m = vec![0.0; n];
-    conv.stress_to_mandel(returned, &mut r);
-    conv.stress_to_mandel(numerical, &mut m);
+    let (mut rb, mut mb) = ([0.0; 6], [0.0; 6]);
+    let (r, m) = (&mut rb[..n], &mut mb[..n]);
+    conv.stress_to_mandel(returned, r);
+    conv.stress_to_mandel(numerical, m);
     let norm = m.iter().map(|x| x * x).sum::<f64>().sqrt();
     if norm >= abs_floor || !abs_floor.is_finite() || abs_floor <= 0.0 {
         return compare_dtemp(conv, returned, numerical, tol, entry_floor, keep_worst);
     }
     // Below the floor: measure against the floor, entry by entry.
-    let label = |i: usize, _j: usize| format!("{}/T", conv.order()[i].label());
-    let diff = r.iter().zip(&m).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt();
-    let mut entries: Vec<EntryDiff> = (0..n)
-        .map(|i| EntryDiff {
+    let diff = r.iter().zip(m.iter()).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt();
+    let mut worst = Worst::new(keep_worst);
+    for i in 0..n {
+        worst.offer(finite_or_inf((r[i] - m[i]).abs() / abs_floor), || EntryDiff {
             row: i,
             col: 0,
-            label: label(i, 0),
+            label: Label::pair(conv.order()[i].label(), "T"),
             returned: returned[i],
             numerical: numerical[i],
-            error: finite_or_inf((r[i] - m[i]).abs() / abs_floor),
-        })
-        .collect();
-    entries.sort_by(|a, b| b.error.total_cmp(&a.error));
-    let worst_entry_error = entries.first().map_or(0.0, |e| e.error);
-    entries.truncate(keep_worst);
+            error: 0.0,
+        });
+    }
+    let worst_entry_error = worst.max;
+    let entries = worst.kept;
     let non_finite = returned.iter().filter(|x| !x.is_finite()).count();
     let norm_error = finite_or_inf(diff / abs_floor);
     Comparison {
         norm_error,
         worst_entry_error,
         soft_error: 0.0,
-        soft_direction: String::new(),
-        column_errors: vec![norm_error],
+        soft_direction: Cow::Borrowed(""),
+        column_errors: smallvec::smallvec![norm_error],
         worst: entries,
         entry_errors: Vec::new(),
         non_finite_returned: non_finite,
@@ -252,12 +374,13 @@ pub fn compare_dtemp(
     keep_worst: usize,
 ) -> Comparison {
     let n = conv.ncomp();
-    let mut r = vec![0.0; n];
-    let mut m = vec![0.0; n];
-    conv.stress_to_mandel(returned, &mut r);
-    conv.stress_to_mandel(numerical, &mut m);
-    let label = |i: usize, _j: usize| format!("{}/T", conv.order()[i].label());
-    measure(&r, &m, returned, numerical, 1, &label, tol, entry_floor, keep_worst)
+    let (mut rb, mut mb) = ([0.0; 6], [0.0; 6]);
+    let (r, m) = (&mut rb[..n], &mut mb[..n]);
+    conv.stress_to_mandel(returned, r);
+    conv.stress_to_mandel(numerical, m);
+    let order = conv.order();
+    let label = |i: usize, _j: usize| Label::pair(order[i].label(), "T");
+    measure(r, m, returned, numerical, 1, &label, tol, entry_floor, keep_worst)
 }
 
 /// The three measures on Mandel-form matrices `r` (returned) and `m` (numerical) with
@@ -269,7 +392,7 @@ fn measure(
     returned: &[f64],
     numerical: &[f64],
     ncols: usize,
-    label: &dyn Fn(usize, usize) -> String,
+    label: &dyn Fn(usize, usize) -> Label,
     tol: f64,
     entry_floor: f64,
     keep_worst: usize,
@@ -280,7 +403,7 @@ fn measure(
     let scale = if norm > 0.0 { norm } else { 1.0 };
     let norm_error = finite_or_inf(diff_norm / scale);
     let floor = entry_floor * scale;
-    let mut column_errors = Vec::with_capacity(ncols);
+    let mut column_errors = ColumnErrors::new();
     for j in 0..ncols {
         let (mut d, mut c) = (0.0, 0.0);
         for i in 0..nrows {
@@ -290,7 +413,7 @@ fn measure(
         }
         column_errors.push(finite_or_inf(d.sqrt() / c.sqrt().max(floor)));
     }
-    let mut entries: Vec<EntryDiff> = Vec::with_capacity(r.len());
+    let mut worst = Worst::new(keep_worst);
     let mut non_finite = 0;
     for j in 0..ncols {
         for i in 0..nrows {
@@ -298,32 +421,72 @@ fn measure(
             if !returned[k].is_finite() {
                 non_finite += 1;
             }
-            entries.push(EntryDiff {
+            let error = finite_or_inf((r[k] - m[k]).abs() / m[k].abs().max(floor));
+            worst.offer(error, || EntryDiff {
                 row: i,
                 col: j,
                 label: label(i, j),
                 returned: returned[k],
                 numerical: numerical[k],
-                error: finite_or_inf((r[k] - m[k]).abs() / m[k].abs().max(floor)),
+                error: 0.0,
             });
         }
     }
-    let entry_errors: Vec<f64> = entries.iter().map(|e| e.error).collect();
-    entries.sort_by(|a, b| b.error.total_cmp(&a.error));
-    let worst_entry_error = entries.first().map_or(0.0, |e| e.error);
-    entries.truncate(keep_worst);
+    let worst_entry_error = worst.max;
     let pass = non_finite == 0 && norm_error <= tol && worst_entry_error <= tol;
     Comparison {
         norm_error,
         worst_entry_error,
         soft_error: 0.0,
-        soft_direction: String::new(),
+        soft_direction: Cow::Borrowed(""),
         column_errors,
-        worst: entries,
-        entry_errors: if pass { Vec::new() } else { entry_errors },
+        worst: worst.kept,
+        // Only a failing comparison keeps every entry's error (a second pass over the entries).
+        entry_errors: if pass {
+            Vec::new()
+        } else {
+            (0..ncols)
+                .flat_map(|j| (0..nrows).map(move |i| i + j * nrows))
+                .map(|k| finite_or_inf((r[k] - m[k]).abs() / m[k].abs().max(floor)))
+                .collect()
+        },
         non_finite_returned: non_finite,
         tol,
         pass,
+    }
+}
+
+/// The worst entries seen so far, worst first, at most `keep` of them: an entry is inserted
+/// after those with an equal or larger error (the order a stable sort by decreasing error
+/// gives), and only made when it is kept.
+struct Worst {
+    keep: usize,
+    kept: WorstEntries,
+    /// The largest error offered (0 when none).
+    max: f64,
+}
+
+impl Worst {
+    fn new(keep: usize) -> Worst {
+        Worst { keep, kept: WorstEntries::new(), max: 0.0 }
+    }
+
+    fn offer(&mut self, error: f64, make: impl FnOnce() -> EntryDiff) {
+        // Errors are ≥ 0 or +∞ (never NaN: see `finite_or_inf`).
+        self.max = self.max.max(error);
+        if self.keep == 0 {
+            return;
+        }
+        let at = self.kept.iter().position(|e| e.error.total_cmp(&error).is_lt()).unwrap_or(self.kept.len());
+        if at >= self.keep {
+            return;
+        }
+        if self.kept.len() == self.keep {
+            self.kept.pop();
+        }
+        let mut e = make();
+        e.error = error;
+        self.kept.insert(at, e);
     }
 }
 

@@ -187,6 +187,14 @@ pub trait Routine {
     fn guard_next_call_fully(&mut self) -> bool {
         false
     }
+
+    /// Another handle on the same routine, for another thread: the same code and data, its
+    /// own call buffers and settings (guard level, traps). `None` (the default) when the
+    /// routine cannot be called from another thread at all. Whether the routine's code is safe
+    /// to call from several threads at once is for [`crate::concurrent`]'s probe to find out.
+    fn another(&self) -> Option<Box<dyn Routine + Send>> {
+        None
+    }
 }
 
 /// Optional capability: the same stress update in complex arithmetic, for complex-step
@@ -288,6 +296,11 @@ impl<'r> Caller<'r> {
     /// Whether the routine declared a complex-step twin.
     pub fn has_complex(&mut self) -> bool {
         self.capabilities.contains(Capabilities::TWIN)
+    }
+
+    /// See [`Routine::another`].
+    pub fn another(&self) -> Option<Box<dyn Routine + Send>> {
+        self.routine.another()
     }
 
     /// See [`Routine::guard_next_call_fully`].

@@ -52,6 +52,12 @@ pub struct Settings {
     /// must be finite), and the full memory guards (reads past the end of the inputs; the call
     /// repeated and compared bit for bit) on the first call of each newly reached branch.
     pub first_calls: bool,
+    /// Threads a check may use (`--jobs`); 1 (the default) for one. More are used only for a
+    /// routine that offers handles for other threads and passes the probe of
+    /// [`crate::concurrent`]; the report is the same whatever the number. Not part of a
+    /// manifest or a report.
+    #[serde(skip)]
+    pub jobs: usize,
 }
 
 impl Default for Settings {
@@ -71,6 +77,7 @@ impl Default for Settings {
             diagnose: true,
             mixed: crate::mixed::MixedSettings::default(),
             first_calls: true,
+            jobs: 1,
         }
     }
 }

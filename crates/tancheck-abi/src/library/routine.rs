@@ -297,6 +297,25 @@ impl Routine for LibraryRoutine {
         }
     }
 
+    /// The same entry points (and library, kept loaded) with guard blocks of its own, at the
+    /// same guard level and traps: a handle for another thread.
+    fn another(&self) -> Option<Box<dyn Routine + Send>> {
+        let label = self.label.to_string_lossy().into_owned();
+        let mut r = LibraryRoutine::assemble(
+            self.info.clone(),
+            self.call_sizes,
+            &self.symbol,
+            self.real,
+            self.twin,
+            label,
+            self.library.clone(),
+        )
+        .ok()?;
+        r.fp_traps = self.fp_traps;
+        r.guard_level = self.guard_level;
+        Some(Box::new(r))
+    }
+
     /// With the guards on (light or full), the next real call runs at the full level; with
     /// them off, nothing changes.
     fn guard_next_call_fully(&mut self) -> bool {

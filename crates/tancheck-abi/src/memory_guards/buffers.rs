@@ -117,8 +117,12 @@ impl<E: Element> GuardBuffers<E> {
             self.array_mut(k).copy_from_slice(src);
             self.zone_mut(k).fill(poison[k]);
         }
-        for k in N_INPUTS..ARRAYS.len() {
-            self.array_mut(k).fill(E::PREFILL);
+        for (k, array) in ARRAYS.iter().enumerate().skip(N_INPUTS) {
+            // A tangent the call does not ask for is neither required nor passed back: it is
+            // not pre-filled (its zone is still set and checked).
+            if *array != GuardedArray::Tangent || input.want_tangent {
+                self.array_mut(k).fill(E::PREFILL);
+            }
             self.zone_mut(k).fill(E::CANARY);
         }
         self.report.report = self.report_before;
@@ -235,8 +239,9 @@ impl<E: Element> GuardBuffers<E> {
         }
     }
 
-    /// Copy the outputs to the caller; never-written entries become a quiet NaN.
-    fn store(&self, output: &mut CallOutput<'_, E>) {
+    /// Copy the outputs to the caller; never-written entries become a quiet NaN. A tangent
+    /// the call did not ask for stays as the caller left it (NaN: see `Caller::call`).
+    fn store(&self, output: &mut CallOutput<'_, E>, want_tangent: bool) {
         let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
         let outs: [&mut [E]; 5] = [
             &mut *output.stress,
@@ -246,6 +251,9 @@ impl<E: Element> GuardBuffers<E> {
             &mut output.energy[..],
         ];
         for (k, dst) in outs.into_iter().enumerate() {
+            if ARRAYS[N_INPUTS + k] == GuardedArray::Tangent && !want_tangent {
+                continue;
+            }
             for (d, &s) in dst.iter_mut().zip(self.array(N_INPUTS + k)) {
                 *d = quiet(s);
             }
@@ -299,7 +307,7 @@ impl<E: Element> GuardBuffers<E> {
         let args = self.args(&raw mut made, label, fp_traps);
         invoke(&args)?;
         self.inspect(input, call, &made, &first, place, findings);
-        self.store(output);
+        self.store(output, input.want_tangent);
         if level != GuardLevel::Full {
             return Ok(());
         }

@@ -205,7 +205,7 @@ impl ProbeCheck {
                             .worst
                             .iter()
                             .map(|e| ProbeEntry {
-                                label: e.label.clone(),
+                                label: e.label.to_string(),
                                 returned: finite(e.returned),
                                 numerical: finite(e.numerical),
                                 error: finite(e.error),

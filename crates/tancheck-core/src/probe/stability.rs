@@ -28,6 +28,12 @@
 //! and as its angle from axis 1). Its value is the smallest normalised min det Q(n) along the
 //! path (the smallest normalised eigenvalue for cohesive points). It fails only when the
 //! routine fails during the walk.
+//!
+//! Where the symmetric part is positive definite no normal can lose ellipticity, and the walk
+//! does not search the normals there ([`assess_unless_definite`]): the increment's det Q
+//! measure is then the lower bound (λmin/2)^d. The normals of the grid are made once per
+//! process, and the start points of the refinement are picked from a partial selection of the
+//! grid values instead of a sort of all of them.
 
 use super::Needs;
 use nalgebra::{DMatrix, SymmetricEigen};
@@ -70,6 +76,10 @@ pub struct Assessment {
     pub scale: f64,
     /// None for cohesive points.
     pub acoustic: Option<Acoustic>,
+    /// The normals were not searched because the symmetric part is positive definite, so no
+    /// normal can lose ellipticity: `acoustic.min_det` is then a lower bound, (λmin/2)^d, and
+    /// its normal is undetermined (NaN). See [`assess_unless_definite`].
+    pub bound_only: bool,
 }
 
 impl Assessment {
@@ -232,13 +242,62 @@ fn golden(f: impl Fn(f64) -> f64, mut a: f64, mut b: f64) -> (f64, f64) {
     }
 }
 
+/// The 2° grid of the unit hemisphere (θ from 0 to 90°, φ all round; one point at the
+/// pole) as (θ, φ, n), made once per process.
+fn hemisphere_grid() -> &'static [(f64, f64, [f64; 3])] {
+    static GRID: std::sync::OnceLock<Vec<(f64, f64, [f64; 3])>> = std::sync::OnceLock::new();
+    GRID.get_or_init(|| {
+        let step = 2f64.to_radians();
+        let mut grid = Vec::with_capacity(45 * 180 + 1);
+        for i in 0..=45 {
+            let t = i as f64 * step;
+            let nphi = if i == 0 { 1 } else { 180 };
+            for j in 0..nphi {
+                let p = j as f64 * step;
+                grid.push((t, p, sphere(t, p)));
+            }
+        }
+        grid
+    })
+}
+
+/// The 1° grid of in-plane normals (θ from 0 to 179°) as (θ, n), made once per process.
+fn circle_grid() -> &'static [(f64, [f64; 3])] {
+    static GRID: std::sync::OnceLock<Vec<(f64, [f64; 3])>> = std::sync::OnceLock::new();
+    GRID.get_or_init(|| {
+        let step = 1f64.to_radians();
+        (0..180)
+            .map(|k| {
+                let t = k as f64 * step;
+                (t, [t.cos(), t.sin(), 0.0])
+            })
+            .collect()
+    })
+}
+
+/// Grid points kept as candidate start points before falling back to ordering them all.
+const CANDIDATES: usize = 256;
+
+/// The indices of the grid values `v` in increasing order of (value, index), at least the
+/// first `m` of them (all when `m` ≥ the length): a partial selection, not a full sort.
+fn smallest_first(v: &[f64], m: usize) -> Vec<usize> {
+    let key = |a: &usize, b: &usize| v[*a].total_cmp(&v[*b]).then(a.cmp(b));
+    let mut idx: Vec<usize> = (0..v.len()).collect();
+    if m < idx.len() {
+        idx.select_nth_unstable_by(m, key);
+        idx.truncate(m);
+    }
+    idx.sort_unstable_by(key);
+    idx
+}
+
 fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64) {
     match dim {
         1 => ([1.0, 0.0, 0.0], det_q(c, &[1.0, 0.0, 0.0], 1)),
         2 => {
             let f = |t: f64| det_q(c, &[t.cos(), t.sin(), 0.0], 2);
             let step = 1f64.to_radians();
-            let grid: Vec<f64> = (0..180).map(|k| f(k as f64 * step)).collect();
+            let grid: Vec<f64> = circle_grid().iter().map(|(_, n)| det_q(c, n, 2)).collect();
             let mut best = (0.0, f64::INFINITY);
             for k in 0..180 {
                 let (lo, hi) = (grid[(k + 179) % 180], grid[(k + 1) % 180]);
@@ -255,31 +314,32 @@ fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64) {
         _ => {
             let f = |t: f64, p: f64| det_q(c, &sphere(t, p), 3);
             let step = 2f64.to_radians();
-            let mut grid = Vec::with_capacity(46 * 180);
-            for i in 0..=45 {
-                let t = i as f64 * step;
-                let nphi = if i == 0 { 1 } else { 180 };
-                for j in 0..nphi {
-                    let p = j as f64 * step;
-                    grid.push((t, p, f(t, p)));
-                }
-            }
-            grid.sort_by(|a, b| a.2.total_cmp(&b.2));
-            // Start points: the best grid points more than 10° apart (n and −n alike).
+            let grid = hemisphere_grid();
+            let values: Vec<f64> = grid.iter().map(|(_, _, n)| det_q(c, n, 3)).collect();
+            // Start points: the best grid points more than 10° apart (n and −n alike), taken
+            // in order of value (ties in grid order) from the best few hundred; all of them
+            // are ordered only when those few hundred do not hold five such points.
             let apart = 10f64.to_radians().cos();
-            let mut starts: Vec<(f64, f64)> = Vec::new();
-            for &(t, p, _) in &grid {
-                let n = sphere(t, p);
-                let far = starts.iter().all(|&(u, q)| {
-                    let m = sphere(u, q);
-                    (n[0] * m[0] + n[1] * m[1] + n[2] * m[2]).abs() < apart
-                });
-                if far {
-                    starts.push((t, p));
-                    if starts.len() == 5 {
-                        break;
+            let pick = |order: &[usize]| {
+                let mut starts: Vec<(f64, f64)> = Vec::new();
+                for &k in order {
+                    let (t, p, n) = grid[k];
+                    let far = starts.iter().all(|&(u, q)| {
+                        let m = sphere(u, q);
+                        (n[0] * m[0] + n[1] * m[1] + n[2] * m[2]).abs() < apart
+                    });
+                    if far {
+                        starts.push((t, p));
+                        if starts.len() == 5 {
+                            break;
+                        }
                     }
                 }
+                starts
+            };
+            let mut starts = pick(&smallest_first(&values, CANDIDATES));
+            if starts.len() < 5 && CANDIDATES < values.len() {
+                starts = pick(&smallest_first(&values, values.len()));
             }
             let mut best = ([0.0, 0.0], f64::INFINITY);
             for (t, p) in starts {
@@ -332,7 +392,38 @@ pub fn assess(conv: &Convention, tangent: &[f64]) -> Assessment {
     let eig = SymmetricEigen::new(sym).eigenvalues;
     let min_eigenvalue = eig.iter().cloned().fold(f64::INFINITY, f64::min);
     let scale = eig.iter().fold(0.0f64, |a, x| a.max(x.abs()));
-    Assessment { min_eigenvalue, scale, acoustic: acoustic(conv, tangent) }
+    Assessment { min_eigenvalue, scale, acoustic: acoustic(conv, tangent), bound_only: false }
+}
+
+/// [`assess`], without the search over normals where the symmetric part of the Mandel tangent
+/// is positive definite (λmin/s > `tol`). There no normal can lose ellipticity: for a unit
+/// vector a, a·Q(n)·a = E:C:E with E = sym(a⊗n), |E|² = (1 + (a·n)²)/2 ≥ 1/2, so the symmetric
+/// part of Q(n) has eigenvalues ≥ λmin/2 and det Q(n) ≥ (λmin/2)^d (Ostrowski–Taussky: the
+/// determinant of a matrix with a positive definite symmetric part is at least that part's
+/// determinant; Horn & Johnson, Topics in Matrix Analysis, 1991, §2.2 — from memory).
+pub fn assess_unless_definite(conv: &Convention, tangent: &[f64], tol: f64) -> Assessment {
+    let n = conv.ncomp();
+    let mut m = tangent.to_vec();
+    conv.tangent_to_mandel(&mut m);
+    let mm = DMatrix::from_column_slice(n, n, &m);
+    let sym = (&mm + mm.transpose()) * 0.5;
+    let eig = SymmetricEigen::new(sym).eigenvalues;
+    let min_eigenvalue = eig.iter().cloned().fold(f64::INFINITY, f64::min);
+    let scale = eig.iter().fold(0.0f64, |a, x| a.max(x.abs()));
+    let definite = min_eigenvalue > 0.0 && min_eigenvalue / scale.max(f64::MIN_POSITIVE) > tol;
+    match dim_of(conv.kind()) {
+        Some(dim) if definite => Assessment {
+            min_eigenvalue,
+            scale,
+            acoustic: Some(Acoustic {
+                min_det: (0.5 * min_eigenvalue).powi(dim as i32),
+                normal: [f64::NAN; 3],
+                dim,
+            }),
+            bound_only: true,
+        },
+        _ => Assessment { min_eigenvalue, scale, acoustic: acoustic(conv, tangent), bound_only: false },
+    }
 }
 
 /// Walk the path and assess the tangent at each probed increment. A non-finite tangent
@@ -351,11 +442,11 @@ pub fn survey(caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<Survey, (us
                 d.base.tangent[i]
             )));
         }
-        let a = assess(&conv, &d.base.tangent);
+        let a = assess_unless_definite(&conv, &d.base.tangent, tol);
         if s.first_softening.is_none() && a.eigen_ratio() <= tol {
             s.first_softening = Some(k);
         }
-        if s.first_loss.is_none() && a.det_ratio().is_some_and(|r| r <= tol) {
+        if s.first_loss.is_none() && !a.bound_only && a.det_ratio().is_some_and(|r| r <= tol) {
             s.first_loss = Some((k, a));
         }
         s.increments.push((k, a));
@@ -397,6 +488,10 @@ impl Probe for Stability {
                     ac.angle_from_axis1()
                 ));
             }
+            None if has_acoustic && s.increments.iter().all(|(_, a)| a.bound_only) => parts.push(format!(
+                "elliptic along the path: the symmetric part is positive definite at every increment \
+                 (min det Q(n)/s^d ≥ {min_det:.3e})"
+            )),
             None if has_acoustic => {
                 parts.push(format!("elliptic along the path (min det Q(n)/s^d = {min_det:.3e})"))
             }
@@ -411,7 +506,14 @@ impl Probe for Stability {
         r.tol = Some(tol);
         for (k, a) in &s.increments {
             let mut line = format!("increment {k}: λmin/s = {:.3e} (s = {:.4e})", a.eigen_ratio(), a.scale);
-            if let (Some(ac), Some(q)) = (a.acoustic, a.det_ratio()) {
+            if a.bound_only {
+                if let (Some(ac), Some(q)) = (a.acoustic, a.det_ratio()) {
+                    line.push_str(&format!(
+                        ", min det Q/s^{} ≥ {q:.3e} (symmetric part positive definite: normals not searched)",
+                        ac.dim
+                    ));
+                }
+            } else if let (Some(ac), Some(q)) = (a.acoustic, a.det_ratio()) {
                 line.push_str(&format!(
                     ", min det Q/s^{} = {q:.3e} at n = {} ({:.2}° from axis 1)",
                     ac.dim,

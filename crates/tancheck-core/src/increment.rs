@@ -1,0 +1,159 @@
+//! One increment of a check along a path: the mixed-control solve when the increment holds
+//! stresses, the per-call check of [`judge::check_call`], the full memory guards on the first
+//! call of a newly reached branch, and the move to the next start state. The serial walk of
+//! [`crate::check::run`] and the threads of [`crate::concurrent`] both check an increment
+//! with [`step`], so that their results are the same.
+
+use crate::call_check as judge;
+use crate::driver::Driver;
+use crate::first_calls;
+use crate::mixed;
+use crate::path::PathIncrement;
+use crate::report::IncrementResult;
+use crate::routine::{Caller, Fault};
+use crate::settings::Settings;
+
+/// What one increment leaves for the report and for the increments after it.
+pub struct Step {
+    pub result: IncrementResult,
+    /// The base call returned (the per-call check ran), faulted later or not.
+    pub checked: bool,
+    /// The best numerical tangent of the increment (see [`judge::CallCheck::best`]).
+    pub best: Option<Vec<f64>>,
+    /// The strain increment opposed the stress at the start (unloading).
+    pub unloaded: bool,
+    /// A note for the report (a mixed-control solve that did not converge).
+    pub note: Option<String>,
+}
+
+impl Step {
+    /// The path stops after this increment (a fault).
+    pub fn stops(&self) -> bool {
+        self.result.fault.is_some()
+    }
+}
+
+/// Routine positions and targets of the stress components a mixed-control increment holds.
+pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
+    let mut controlled = Vec::new();
+    let mut targets = Vec::new();
+    for (i, c) in conv.order().iter().enumerate() {
+        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
+            controlled.push(i);
+            targets.push(t);
+        }
+    }
+    (controlled, targets)
+}
+
+/// Set increment `k` (0-based) of the path on the driver, solving for the strain increment
+/// when it holds stresses. `dstrain` is scratch of the routine's length.
+pub fn set(
+    k: usize,
+    inc: &PathIncrement,
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+    dstrain: &mut [f64],
+) -> (Result<(), Fault>, Option<mixed::SolveLog>, Option<String>) {
+    let conv = caller.info().convention.clone();
+    conv.strain_from_canonical(&inc.dstrain, dstrain);
+    driver.set_increment(dstrain, inc.dtemp, inc.dtime);
+    let Some(hold) = &inc.hold_stress else {
+        return (Ok(()), None, None);
+    };
+    let (controlled, targets) = held_components(&conv, hold);
+    match mixed::solve(driver, caller, &controlled, &targets, &settings.mixed, true) {
+        Ok(log) => {
+            let note = (!log.converged).then(|| {
+                format!(
+                    "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
+                    k + 1,
+                    log.residuals
+                )
+            });
+            (Ok(()), Some(log), note)
+        }
+        Err(f) => (Err(f), None, None),
+    }
+}
+
+/// Check increment `k` (0-based) from the driver's start state and move the driver to its
+/// end when it passed without a fault. `previous` is the best numerical tangent of the
+/// increment before; `reached` the branches reached so far (updated).
+#[allow(clippy::too_many_arguments)]
+pub fn step(
+    k: usize,
+    inc: &PathIncrement,
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+    previous: Option<&[f64]>,
+    reached: &mut first_calls::Branches,
+    dstrain: &mut [f64],
+) -> Step {
+    let (solved, solve_log, note) = set(k, inc, driver, caller, settings, dstrain);
+    let n = driver.ncomp();
+    let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
+    let unloaded = work < 0.0;
+    // The base call, every scheme, and the diagnosis of a failure: one call's check.
+    let checked = solved.and_then(|()| judge::check_call(driver, caller, settings, previous));
+    let cc = match checked {
+        Err(fault) => {
+            let result = IncrementResult {
+                index: k + 1,
+                reported_branch: None,
+                state_changed: false,
+                strain: driver.start().strain.clone(),
+                stress: driver.start().stress.clone(),
+                checks: Vec::new(),
+                non_finite: Vec::new(),
+                non_finite_call: None,
+                solve: solve_log,
+                diagnosis: None,
+                fault: Some(judge::fault_record(&fault, driver, None)),
+            };
+            return Step { result, checked: false, best: None, unloaded, note };
+        }
+        Ok(cc) => cc,
+    };
+    let guarded = if settings.first_calls && reached.first(cc.reported_branch, cc.state_changed) {
+        first_calls::full_guard(driver, caller).err()
+    } else {
+        None
+    };
+    let best = cc.best.map(|(_, t)| t);
+    if let Some(fault) = guarded {
+        let result = IncrementResult {
+            index: k + 1,
+            reported_branch: cc.reported_branch,
+            state_changed: cc.state_changed,
+            strain: driver.start().strain.clone(),
+            stress: driver.start().stress.clone(),
+            checks: cc.checks,
+            non_finite: cc.non_finite,
+            non_finite_call: None,
+            solve: solve_log,
+            diagnosis: cc.diagnosis,
+            fault: Some(*fault),
+        };
+        return Step { result, checked: true, best, unloaded, note };
+    }
+    // Non-finite outputs carry the inputs of the call, as a crash does.
+    let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
+    driver.advance();
+    let result = IncrementResult {
+        index: k + 1,
+        reported_branch: cc.reported_branch,
+        state_changed: cc.state_changed,
+        strain: driver.start().strain.clone(),
+        stress: driver.start().stress.clone(),
+        checks: cc.checks,
+        non_finite: cc.non_finite,
+        non_finite_call,
+        solve: solve_log,
+        diagnosis: cc.diagnosis,
+        fault: None,
+    };
+    Step { result, checked: true, best, unloaded, note }
+}

@@ -1,0 +1,217 @@
+//! A check on two threads gives the same report as on one, bit for bit (the JSON reports of
+//! the bundled C and Fortran example routines, correct and flawed, compared byte for byte),
+//! and a routine that is not safe to call from several threads at once is caught by the
+//! thread-safety probe and checked on one thread, with the reason in the report.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+use std::sync::OnceLock;
+
+use tancheck::abi::{build_library, BuildOptions, Library};
+use tancheck::core::{
+    concurrent, Caller, Convention, Driver, PointKind, PointState, RoutineInfo, ShearMeasure,
+};
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn scratch(name: &str) -> PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-jobs-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+fn repo(rel: &str) -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
+}
+
+/// An elastic routine that is deliberately not thread-safe: the stress goes through a static
+/// work array, and some busy work between writing and reading it leaves time for another
+/// thread's call to overwrite it. Serially it is correct and deterministic.
+const SHARED_BUFFER_C: &str = r#"
+#include "tancheck_cstep.h"
+#include "tancheck_routine.h"
+
+static tc_real shared_work[6];
+static volatile double shared_spin;
+
+TC_ROUTINE(c_elastic_shared)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    const int n = call->ncomp;
+    if (n != 6 || call->nproperties < 2) {
+        report->status = TC_STATUS_FAILED;
+        return;
+    }
+    tc_real e = properties[0], nu = properties[1];
+    tc_real mu = e / (2.0 * (1.0 + nu));
+    tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
+    for (int k = 0; k < 36; ++k) tangent[k] = 0.0;
+    for (int i = 0; i < 3; ++i) {
+        for (int j = 0; j < 3; ++j) tangent[i + 6 * j] = lambda;
+        tangent[i + 6 * i] = lambda + 2.0 * mu;
+    }
+    for (int i = 3; i < 6; ++i) tangent[i + 6 * i] = mu;
+    for (int i = 0; i < 6; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < 6; ++j) s += tangent[i + 6 * j] * dstrain[j];
+        shared_work[i] = s;
+    }
+    for (int k = 0; k < 20000; ++k) shared_spin += 1.0;
+    for (int i = 0; i < 6; ++i) stress[i] = shared_work[i];
+    for (int k = 0; k < call->nstate; ++k) state[k] = state0[k];
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
+    report->branch = 0;
+    report->status = TC_STATUS_OK;
+}
+"#;
+
+fn c_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let d = scratch("c");
+        let shared = d.join("shared.c");
+        std::fs::write(&shared, SHARED_BUFFER_C).unwrap();
+        let out = d.join("libjobs_c.so");
+        let sources =
+            [repo("fortran-shim/examples/c/elastic.c"), repo("fortran-shim/examples/c/j2.c"), shared];
+        build_library(&BuildOptions::new(sources, &out)).unwrap_or_else(|e| panic!("{e}"));
+        out
+    })
+}
+
+const J2_PROPS: &str = "[210000, 0.3, 355, 1200, 150, 12, 2500]";
+const ELASTIC_PROPS: &str = "[210000, 0.3]";
+
+/// `tancheck check` of `symbol` on 80 increments into the plastic range and back, with
+/// `--jobs jobs`: exit code, JSON report and terminal output.
+fn check(lib: &Path, symbol: &str, states: usize, props: &str, jobs: u32) -> (Option<i32>, Vec<u8>, String) {
+    let d = scratch(&format!("{symbol}-{jobs}"));
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": {states}, "properties": {props} }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    let json = d.join("report.json");
+    let o = bin()
+        .arg("check")
+        .arg(&m)
+        .args(["--path", "tension-shear:6e-3:40:40", "--json"])
+        .arg(&json)
+        .args(["--jobs", &jobs.to_string()])
+        .output()
+        .unwrap();
+    (o.status.code(), std::fs::read(&json).unwrap_or_default(), text(&o))
+}
+
+fn same_on_one_and_two_threads(lib: &Path, symbol: &str, states: usize, props: &str, want: i32) {
+    let (c1, j1, t1) = check(lib, symbol, states, props, 1);
+    let (c2, j2, t2) = check(lib, symbol, states, props, 2);
+    assert_eq!(c1, Some(want), "{symbol}, one thread: {t1}");
+    assert_eq!(c2, Some(want), "{symbol}, two threads: {t2}");
+    assert!(!j1.is_empty());
+    assert!(j1 == j2, "{symbol}: the JSON reports differ between --jobs 1 and --jobs 2");
+    assert!(!t2.contains("checked on one thread"), "{symbol}: {t2}");
+}
+
+#[test]
+fn c_examples_give_the_same_report_on_one_and_two_threads() {
+    let lib = c_lib();
+    same_on_one_and_two_threads(lib, "c_elastic", 0, ELASTIC_PROPS, 0);
+    same_on_one_and_two_threads(lib, "c_j2", 13, J2_PROPS, 0);
+    // Flawed on purpose: every plastic increment fails and is diagnosed, also the first one
+    // of the second thread's share (the stale-tangent hypothesis needs the tangent before it).
+    same_on_one_and_two_threads(lib, "c_j2_continuum", 13, J2_PROPS, 1);
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn fortran_examples_give_the_same_report_on_one_and_two_threads() {
+    let d = scratch("f");
+    let out = d.join("libjobs_f.so");
+    let sources =
+        [repo("fortran-shim/examples/fortran/elastic.F90"), repo("fortran-shim/examples/fortran/j2.F90")];
+    build_library(&BuildOptions::new(sources, &out)).unwrap_or_else(|e| panic!("{e}"));
+    same_on_one_and_two_threads(&out, "f_elastic", 0, ELASTIC_PROPS, 0);
+    same_on_one_and_two_threads(&out, "f_j2", 13, J2_PROPS, 0);
+    same_on_one_and_two_threads(&out, "f_j2_continuum", 13, J2_PROPS, 1);
+}
+
+fn info(nstate: usize, nprop: usize) -> RoutineInfo {
+    RoutineInfo {
+        name: "jobs".into(),
+        convention: Convention::new(PointKind::Solid3d, ShearMeasure::Engineering),
+        nstate,
+        nprop,
+    }
+}
+
+/// The probe itself: the J2 routine passes, the shared-buffer one fails with a reason.
+#[test]
+fn the_probe_passes_a_thread_safe_routine_and_catches_a_shared_buffer() {
+    let lib = Library::open(c_lib()).unwrap();
+    let path = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 40, 40);
+    let settings = tancheck::core::Settings { jobs: 2, ..Default::default() };
+    let j2_props = [210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0];
+    let mut j2 = lib.routine("c_j2", info(13, 7)).unwrap();
+    let i = info(13, 7);
+    let driver = Driver::new(&i, &j2_props, PointState::zero(&i, 20.0)).unwrap();
+    let mut caller = Caller::new(&mut j2);
+    let mut notes = Vec::new();
+    let plan = concurrent::plan(&mut caller, &driver, &path, &settings, &mut notes);
+    assert!(plan.is_some_and(|h| h.len() == 1), "{notes:?}");
+    assert!(notes.is_empty());
+    assert_eq!((caller.real_calls, caller.complex_calls), (0, 0), "the probe's calls are not counted");
+
+    let mut shared = lib.routine("c_elastic_shared", info(0, 2)).unwrap();
+    let i = info(0, 2);
+    let driver = Driver::new(&i, &[210000.0, 0.3], PointState::zero(&i, 20.0)).unwrap();
+    let mut caller = Caller::new(&mut shared);
+    let plan = concurrent::plan(&mut caller, &driver, &path, &settings, &mut notes);
+    assert!(plan.is_none());
+    assert_eq!(notes.len(), 1, "{notes:?}");
+    assert!(
+        notes[0].starts_with("checked on one thread instead of 2: calls from several threads at once"),
+        "{}",
+        notes[0]
+    );
+}
+
+/// Through the command line: the shared-buffer routine runs on one thread, says why, and
+/// still passes (its serial results are right).
+#[test]
+fn a_routine_that_fails_the_probe_runs_on_one_thread_and_the_report_says_why() {
+    let (code, json, t) = check(c_lib(), "c_elastic_shared", 0, ELASTIC_PROPS, 2);
+    assert_eq!(code, Some(0), "{t}");
+    let json = String::from_utf8(json).unwrap();
+    assert!(json.contains("checked on one thread instead of 2"), "{json}");
+}
+
+/// Routines the memory guards catch give the same report on two threads: the fault where one
+/// thread meets it, the increments after it dropped (and the probe's own calls leave nothing
+/// in the guards of the routine the check calls).
+#[test]
+fn guard_findings_are_the_same_on_one_and_two_threads() {
+    let d = scratch("misbehave");
+    let lib = d.join("libmisbehave.so");
+    build_library(&BuildOptions::new([repo("fortran-shim/examples/c/misbehave.c")], &lib))
+        .unwrap_or_else(|e| panic!("{e}"));
+    for symbol in ["bad_writes_strain", "bad_state_overrun", "bad_tangent_hole"] {
+        let (c1, j1, t1) = check(&lib, symbol, 2, ELASTIC_PROPS, 1);
+        let (c2, j2, t2) = check(&lib, symbol, 2, ELASTIC_PROPS, 2);
+        assert_eq!(c1, Some(3), "{symbol}: {t1}");
+        assert_eq!(c2, Some(3), "{symbol}: {t2}");
+        assert!(j1 == j2, "{symbol}: the JSON reports differ between --jobs 1 and --jobs 2");
+    }
+}
