@@ -964,6 +964,10 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
 TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, 0)
 TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double, 1)
 
+/* ---- block routines (their trampoline; see guard_block.inc) ------------------------ */
+
+#include "guard_block.inc"
+
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 
 /* Sizes and offsets of the structs both sides share; see guard.rs. */

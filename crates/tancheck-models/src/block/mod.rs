@@ -1,0 +1,39 @@
+//! Reference block models (explicit dynamics, fortran-shim/include/tancheck_block.h), written
+//! once over [`Scalar`]: each point is updated by the point model of this crate (the return
+//! map is not rewritten), and the block adds what explicit solvers expect — the specific
+//! internal energy by the trapezoid rule, the specific dissipation, the deleted flag and the
+//! elastic response of the first call.
+//!
+//! - [`J2Block`]: J2 plasticity with linear kinematic (and isotropic) hardening, the block form
+//!   of [`crate::J2`]; with a [`BlockFlaw`] one of the flawed zoo rows.
+
+pub mod j2;
+
+pub use j2::{BlockFlaw, J2Block};
+
+use tancheck_core::Scalar;
+
+/// stress = stress_start + C Δε with isotropic C(E, ν), per point: the elastic response of the
+/// first call (engineering shear; ncomp 6 or 4).
+pub(crate) fn elastic_response<S: Scalar>(e: S, nu: S, stress_start: &[S], de: &[S], stress: &mut [S]) {
+    let n = de.len();
+    let (lambda, mu) = crate::tensor::lame(e, nu);
+    let tr = de[0] + de[1] + de[2];
+    for i in 0..n {
+        stress[i] = if i < 3 {
+            stress_start[i] + lambda * tr + mu * 2.0 * de[i]
+        } else {
+            stress_start[i] + mu * de[i]
+        };
+    }
+}
+
+/// ½ (σ_start + σ_new)·Δε / ρ: the trapezoid rule's work per unit mass (engineering shear makes
+/// the dot product the work-conjugate one).
+pub(crate) fn trapezoid_work<S: Scalar>(stress_start: &[S], stress: &[S], de: &[S], density: f64) -> S {
+    let mut w = S::zero();
+    for i in 0..de.len() {
+        w += (stress_start[i] + stress[i]) * de[i] * 0.5;
+    }
+    w / density
+}
