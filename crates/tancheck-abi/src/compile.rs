@@ -28,17 +28,20 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use crate::error::BuildError;
 
 /// The routine ABI's files, as shipped with this tancheck.
-const SHIM_INCLUDE: [(&str, &str); 3] = [
+const SHIM_INCLUDE: [(&str, &str); 5] = [
     ("tancheck_routine.h", include_str!("../../../fortran-shim/include/tancheck_routine.h")),
     ("tancheck_cstep.h", include_str!("../../../fortran-shim/include/tancheck_cstep.h")),
     ("tancheck_twin.inc", include_str!("../../../fortran-shim/include/tancheck_twin.inc")),
+    ("tancheck_block.h", include_str!("../../../fortran-shim/include/tancheck_block.h")),
+    ("tancheck_block_twin.inc", include_str!("../../../fortran-shim/include/tancheck_block_twin.inc")),
 ];
 /// The Fortran modules, in the order they must be compiled.
-const SHIM_MODULES: [(&str, &str); 2] = [
+const SHIM_MODULES: [(&str, &str); 3] = [
     ("tancheck_routine.f90", include_str!("../../../fortran-shim/fortran/tancheck_routine.f90")),
     ("tancheck_cstep.f90", include_str!("../../../fortran-shim/fortran/tancheck_cstep.f90")),
+    ("tancheck_block.f90", include_str!("../../../fortran-shim/fortran/tancheck_block.f90")),
 ];
-const SHIM_MODULE_NAMES: [&str; 2] = ["tancheck_routine", "tancheck_cstep"];
+const SHIM_MODULE_NAMES: [&str; 3] = ["tancheck_routine", "tancheck_cstep", "tancheck_block"];
 
 /// What to build.
 #[derive(Clone, Debug, PartialEq, Eq)]
