@@ -1,6 +1,8 @@
 //! The `tancheck` command line: manifests, routines, reporters and the commands
 //! `check`, `build`, `demo` and `models`.
 
+pub mod block_manifest;
+pub mod block_session;
 pub mod case_store;
 pub mod cli;
 pub mod cmd_bisect;

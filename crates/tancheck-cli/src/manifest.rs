@@ -38,6 +38,9 @@ pub struct Manifest {
     /// Memory guards around every call of a loaded routine: `off`, `light` (default) or `full`.
     #[serde(default)]
     pub guards: Guards,
+    /// Settings of a block routine's check (with `routine.interface: "block"`).
+    #[serde(default)]
+    pub block: Option<crate::block_manifest::BlockSpec>,
 }
 
 /// Guard level of a manifest.
@@ -67,6 +70,10 @@ pub struct RoutineSpec {
     /// Number of state variables (for a library; a model knows its own).
     pub states: Option<usize>,
     pub properties: Vec<f64>,
+    /// The routine's interface: `point` (default, tancheck_routine.h) or `block`
+    /// (tancheck_block.h, explicit dynamics).
+    #[serde(default)]
+    pub interface: crate::block_manifest::Interface,
 }
 
 #[derive(Clone, Debug, Default, Deserialize)]
@@ -186,6 +193,7 @@ impl Manifest {
             ));
         }
         self.convention()?;
+        crate::block_manifest::validate(self.routine.interface, self.routine.kind, self.block.as_ref())?;
         self.check.validate()?;
         self.path_or(Path { name: String::new(), increments: Vec::new() })?;
         Ok(())

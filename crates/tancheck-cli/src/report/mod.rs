@@ -5,6 +5,7 @@ use std::path::Path;
 
 use tancheck_core::Report;
 
+pub mod block;
 pub mod json;
 pub mod terminal;
 

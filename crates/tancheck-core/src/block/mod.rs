@@ -8,6 +8,7 @@
 //! [`independence`] (blocks of 1, 7 and 128), [`refine`] (increment halving) → [`run`].
 
 pub mod along;
+pub mod counterpart;
 pub mod independence;
 pub mod refine;
 pub mod report;

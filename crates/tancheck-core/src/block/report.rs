@@ -116,6 +116,17 @@ impl BlockReport {
         self.findings.first().map_or("none", |f| f.finding)
     }
 
+    /// Exit code: 0 pass, 3 a call failed or crashed, 1 any other finding.
+    pub fn exit_code(&self) -> i32 {
+        if self.passed() {
+            0
+        } else if self.has("routine-fault") {
+            3
+        } else {
+            1
+        }
+    }
+
     /// Whether some finding of `check` was made.
     pub fn has(&self, finding: &str) -> bool {
         self.findings.iter().any(|f| f.finding == finding)

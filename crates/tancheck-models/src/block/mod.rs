@@ -11,7 +11,23 @@ pub mod j2;
 
 pub use j2::{BlockFlaw, J2Block};
 
-use tancheck_core::Scalar;
+use tancheck_core::block::{BlockModelRoutine, BlockRoutine};
+use tancheck_core::{PointKind, Scalar};
+
+use crate::ModelError;
+
+/// Names of the block models, as [`by_name`] accepts them.
+pub const NAMES: [&str; 4] =
+    [J2Block::NAME, J2Block::NEIGHBOUR_NAME, J2Block::OLD_STRESS_ENERGY_NAME, J2Block::DISSIPATION_SIGN_NAME];
+
+/// The block model called `name` for a kind of point, as a block routine with its twin; `None`
+/// for a name that is no block model.
+pub fn by_name(name: &str, kind: PointKind) -> Option<Result<Box<dyn BlockRoutine>, ModelError>> {
+    if let Some(m) = J2Block::by_name(name, kind) {
+        return Some(m.map(|m| Box::new(BlockModelRoutine(m)) as Box<dyn BlockRoutine>));
+    }
+    None
+}
 
 /// stress = stress_start + C Δε with isotropic C(E, ν), per point: the elastic response of the
 /// first call (engineering shear; ncomp 6 or 4).
