@@ -97,6 +97,64 @@ pub fn elastic_response(
     Some(moduli)
 }
 
+/// Scale of the small increment whose tangent must equal the elastic response.
+const SMALL: f64 = 1e-3;
+/// Relative (Frobenius) difference allowed between them.
+const ELASTIC_TOLERANCE: f64 = 1e-5;
+
+/// The elastic response must be the routine's own elastic stiffness at the point's
+/// conditions: the numerical tangent of a small increment (the first increment of the path
+/// scaled by [`SMALL`], elastic for any model with a yield or damage threshold) from the start
+/// state equals it. A solver sizes its time increment from the first call's moduli.
+pub fn elastic_consistency(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    first: &(Vec<f64>, f64),
+    moduli: &[f64],
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) {
+    let n = routine.info().ncomp;
+    let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
+    for (x, d) in b.strain_increment.iter_mut().zip(&first.0) {
+        *x = SMALL * d;
+    }
+    let dt = SMALL * first.1;
+    let d = if routine.has_twin() {
+        let mut cx = ComplexPoint::new(properties.len(), n, s.state0.len());
+        cs_tangent(routine, properties, &b, &mut cx, dt, 1, report)
+    } else {
+        fd_tangent(routine, properties, &mut b, dt, 1, report)
+    };
+    let d = match d {
+        Ok(d) => d,
+        Err(e) => {
+            report.notes.push(format!(
+                "elastic response: a small increment from the start failed ({e}); not compared"
+            ));
+            return;
+        }
+    };
+    let diff: Vec<f64> = d.iter().zip(moduli).map(|(a, b)| a - b).collect();
+    let rel = frobenius(&diff) / frobenius(moduli).max(f64::MIN_POSITIVE);
+    if rel > ELASTIC_TOLERANCE || rel.is_nan() {
+        let (m_own, m_first) = (dilatational(&d, n), dilatational(moduli, n));
+        let (c_own, dt_own) = wave(m_own, s);
+        report.add(
+            BlockCheck::ElasticResponse,
+            "elastic-response-mismatch",
+            Some(0),
+            format!(
+                "the elastic response of the first call differs from the routine's own stiffness for a small \
+                 increment from the start by {rel:.3e} (dilatational modulus {m_first:.6e} vs {m_own:.6e}): the \
+                 wave speed a solver sizes its time increment from is {:.6e}, the routine's own {c_own:.6e} \
+                 (L/c {:.6e} vs {dt_own:.6e})",
+                report.elastic.wave_speed, report.elastic.stable_time_increment
+            ),
+        );
+    }
+}
+
 /// Numerical tangent ∂σ/∂Δε of point 0 of `b` at its current increment (central differences);
 /// `b`'s outputs are left as the unperturbed call's only by a later call.
 fn fd_tangent(
@@ -220,7 +278,7 @@ pub fn walk_one_point(
             fd
         };
         if deleted_at.is_none() {
-            tangent_findings(&best, n, m_el, s, index, &mut row, report);
+            tangent_findings(&best, n, m_el, moduli, de, s, index, &mut row, report);
         }
 
         // The stress of the half increment, for the midpoint rule.
@@ -289,10 +347,18 @@ fn first_non_finite(b: &BlockBuffers) -> String {
     format!("the energies are {} (internal), {} (dissipated)", b.energy[0].internal, b.energy[0].dissipated)
 }
 
+/// x·A·x for an n × n column-major A.
+fn quadratic(a: &[f64], x: &[f64], n: usize) -> f64 {
+    (0..n).map(|j| (0..n).map(|i| x[i] * a[i + j * n]).sum::<f64>() * x[j]).sum()
+}
+
+#[allow(clippy::too_many_arguments)]
 fn tangent_findings(
     d: &[f64],
     n: usize,
     m_el: f64,
+    moduli: &[f64],
+    de: &[f64],
     s: &BlockSettings,
     index: usize,
     row: &mut BlockIncrement,
@@ -315,15 +381,24 @@ fn tangent_findings(
     row.wave_speed = c;
     row.stable_time_increment = dt;
     row.smallest_stiffness = smallest_eigen(d, n);
-    if m > m_el * (1.0 + s.stiffness_tolerance) {
+    // Along the increment's own direction the effective stiffness never exceeds the elastic
+    // one; off its direction a softening routine's damage coupling may stiffen a component
+    // (less plastic flow, less damage), so without declared softening any normal component
+    // counts.
+    let along = quadratic(d, de, n) / quadratic(moduli, de, n);
+    row.along_ratio = along;
+    let stiffer =
+        along > 1.0 + s.stiffness_tolerance || (!s.softening && m > m_el * (1.0 + s.stiffness_tolerance));
+    if stiffer {
         let (_, dt_el) = wave(m_el, s);
         report.add(
             BlockCheck::Tangent,
             "stiffer-than-elastic",
             Some(index),
             format!(
-                "effective dilatational modulus {m:.6e} exceeds the elastic one {m_el:.6e} of the first \
-                 call by {:.3} %: the stable time increment L/c falls to {dt:.4e} from {dt_el:.4e}",
+                "effective dilatational modulus {m:.6e} (along the increment {along:.4} of the elastic \
+                 stiffness) exceeds the elastic one {m_el:.6e} of the first call by {:.3} %: the stable \
+                 time increment L/c falls to {dt:.4e} from {dt_el:.4e}",
                 100.0 * (m / m_el - 1.0)
             ),
         );

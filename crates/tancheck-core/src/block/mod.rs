@@ -10,6 +10,7 @@
 pub mod along;
 pub mod counterpart;
 pub mod independence;
+pub mod rate;
 pub mod refine;
 pub mod report;
 pub mod routine;

@@ -67,6 +67,9 @@ pub struct BlockIncrement {
     pub wave_speed: f64,
     /// characteristic length / wave speed.
     pub stable_time_increment: f64,
+    /// Stiffness along the increment's direction, Δε·D·Δε / Δε·C·Δε (C the elastic moduli of
+    /// the first call): below 0 the point softens.
+    pub along_ratio: f64,
     /// Smallest eigenvalue of the tangent's symmetric part.
     pub smallest_stiffness: f64,
     /// Relative difference of the finite-difference and complex-step tangents (None without

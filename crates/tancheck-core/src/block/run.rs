@@ -3,6 +3,7 @@
 
 use super::along;
 use super::independence;
+use super::rate;
 use super::refine;
 use super::report::BlockReport;
 use super::routine::BlockRoutine;
@@ -76,9 +77,13 @@ pub fn run(
     let Some(moduli) = along::elastic_response(routine, properties, settings, &mut report) else {
         return Ok(report);
     };
+    along::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
     if settings.independence {
         independence::check(routine, properties, &incs, settings, &mut report);
+    }
+    if let Some(law) = settings.rate_law {
+        rate::check(routine, properties, &incs, law, settings, &mut report);
     }
     if settings.refinement {
         refine::check(routine, properties, &incs, settings, &mut report);

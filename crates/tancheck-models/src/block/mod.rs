@@ -6,10 +6,15 @@
 //!
 //! - [`J2Block`]: J2 plasticity with linear kinematic (and isotropic) hardening, the block form
 //!   of [`crate::J2`]; with a [`BlockFlaw`] one of the flawed zoo rows.
+//! - [`JcBlock`]: Johnson–Cook plasticity (rate, thermal softening, adiabatic heating), damage
+//!   initiation, progressive damage over the characteristic length and deletion, the block form
+//!   of [`crate::JohnsonCook`]; with a [`JcBlockFlaw`] one of the flawed zoo rows.
 
 pub mod j2;
+pub mod johnson_cook;
 
 pub use j2::{BlockFlaw, J2Block};
+pub use johnson_cook::{JcBlock, JcBlockFlaw};
 
 use tancheck_core::block::{BlockModelRoutine, BlockRoutine};
 use tancheck_core::{PointKind, Scalar};
@@ -17,13 +22,24 @@ use tancheck_core::{PointKind, Scalar};
 use crate::ModelError;
 
 /// Names of the block models, as [`by_name`] accepts them.
-pub const NAMES: [&str; 4] =
-    [J2Block::NAME, J2Block::NEIGHBOUR_NAME, J2Block::OLD_STRESS_ENERGY_NAME, J2Block::DISSIPATION_SIGN_NAME];
+pub const NAMES: [&str; 8] = [
+    J2Block::NAME,
+    J2Block::NEIGHBOUR_NAME,
+    J2Block::OLD_STRESS_ENERGY_NAME,
+    J2Block::DISSIPATION_SIGN_NAME,
+    JcBlock::NAME,
+    JcBlock::REVIVED_NAME,
+    JcBlock::UNGUARDED_RATE_NAME,
+    JcBlock::WRONG_TEMPERATURE_NAME,
+];
 
 /// The block model called `name` for a kind of point, as a block routine with its twin; `None`
 /// for a name that is no block model.
 pub fn by_name(name: &str, kind: PointKind) -> Option<Result<Box<dyn BlockRoutine>, ModelError>> {
     if let Some(m) = J2Block::by_name(name, kind) {
+        return Some(m.map(|m| Box::new(BlockModelRoutine(m)) as Box<dyn BlockRoutine>));
+    }
+    if let Some(m) = JcBlock::by_name(name, kind) {
         return Some(m.map(|m| Box::new(BlockModelRoutine(m)) as Box<dyn BlockRoutine>));
     }
     None
