@@ -33,7 +33,7 @@ TC_ROUTINE(flagged)
         stress[i] = stress0[i] + 100.0 * dstrain[i];
         for (int j = 0; j < n; ++j) tangent[i + j * n] = i == j ? 100.0 : 0.0;
     }
-    (void)props; (void)strain; (void)temp; (void)state0; (void)state; (void)dstress_dtemp;
+    (void)properties; (void)strain; (void)temperature; (void)state0; (void)state; (void)dstress_dtemp;
     (void)energy; (void)report;
 }
 "#;

@@ -500,7 +500,7 @@ fn refuse_bad_input_like_the_rust_models(path: &Path, prefix: &str) {
     let e_want =
         tancheck::core::ModelRoutine(model.clone()).call(&input, &mut want.view()).unwrap_err().to_string();
     assert_eq!(e_got, e_want);
-    assert!(e_got.contains("eta (props[5])"), "{e_got}");
+    assert!(e_got.contains("eta (properties[5])"), "{e_got}");
 
     let model = Thermo::new(PointKind::Solid3d).unwrap();
     let symbol = format!("{prefix}_thermo");

@@ -21,12 +21,22 @@
 
 #include "tancheck_routine.h"
 
-typedef void (*loop_cx_fn)(const tc_call *call, const double _Complex *props,
+/* tc_temperature and tc_energy as the twin sees them (tc_real = double _Complex). */
+typedef struct loop_temperature_cx {
+    double _Complex start;
+    double _Complex increment;
+} loop_temperature_cx;
+typedef struct loop_energy_cx {
+    double _Complex stored;
+    double _Complex dissipated;
+} loop_energy_cx;
+
+typedef void (*loop_cx_fn)(const tc_call *call, const double _Complex *properties,
                            const double _Complex *strain, const double _Complex *dstrain,
-                           const double _Complex *temp, const double _Complex *stress0,
+                           const loop_temperature_cx *temperature, const double _Complex *stress0,
                            const double _Complex *state0, double _Complex *stress,
                            double _Complex *state, double _Complex *tangent,
-                           double _Complex *dstress_dtemp, double _Complex *energy,
+                           double _Complex *dstress_dtemp, loop_energy_cx *energy,
                            tc_report *report);
 
 #define LOOP_MAX_STATE 64
@@ -65,12 +75,12 @@ static double loop_worst(int n, const double *ret, const double *num, double ent
  * not be loaded, -2 when the sizes exceed the loop's fixed buffers.
  */
 int loop_check_run(const char *library, const char *symbol, const char *twin_symbol, int ncomp,
-                   int nstate, int nprop, const double *props, double temp, int nincr,
+                   int nstate, int nproperties, const double *properties, double temp, int nincr,
                    const double *dstrain, double dtime, double rel_central, double rel_complex,
                    double step_floor, double entry_floor, loop_result *out)
 {
     memset(out, 0, sizeof *out);
-    if (ncomp < 1 || ncomp > 6 || nstate > LOOP_MAX_STATE || nprop > LOOP_MAX_PROP) {
+    if (ncomp < 1 || ncomp > 6 || nstate > LOOP_MAX_STATE || nproperties > LOOP_MAX_PROP) {
         return -2;
     }
     void *lib = dlopen(library, RTLD_NOW | RTLD_LOCAL);
@@ -85,19 +95,21 @@ int loop_check_run(const char *library, const char *symbol, const char *twin_sym
     }
     const int n = ncomp;
     double strain[6] = {0}, stress0[6] = {0}, state0[LOOP_MAX_STATE] = {0};
-    double stress[6], state[LOOP_MAX_STATE + 1], tangent[36], dsdt[6], energy[2];
+    double stress[6], state[LOOP_MAX_STATE + 1], tangent[36], dsdt[6];
+    tc_energy energy;
     double pstress[6], pstate[LOOP_MAX_STATE + 1], ptangent[36];
     double mstress[6];
     double dpert[6], numerical[36];
-    double t2[2] = {temp, 0.0};
+    const tc_temperature t2 = {temp, 0.0};
     double _Complex cprops[LOOP_MAX_PROP], cstrain[6], cd[6], cstress0[6],
         cstate0[LOOP_MAX_STATE + 1];
-    double _Complex cstress[6], cstate[LOOP_MAX_STATE + 1], ctangent[36], cdsdt[6], cenergy[2];
-    double _Complex ct2[2] = {temp, 0.0};
-    for (int k = 0; k < nprop; ++k) {
-        cprops[k] = props[k];
+    double _Complex cstress[6], cstate[LOOP_MAX_STATE + 1], ctangent[36], cdsdt[6];
+    loop_energy_cx cenergy;
+    const loop_temperature_cx ct2 = {temp, 0.0};
+    for (int k = 0; k < nproperties; ++k) {
+        cprops[k] = properties[k];
     }
-    tc_call call = {TC_ROUTINE_ABI_VERSION, n, nstate, nprop, 0, 0, 0.0, dtime};
+    tc_call call = {TC_ROUTINE_ABI_VERSION, n, nstate, nproperties, 0, 0, 0.0, dtime};
     tc_report report;
     double worst_central = 0.0, worst_complex = 0.0;
 
@@ -110,7 +122,7 @@ int loop_check_run(const char *library, const char *symbol, const char *twin_sym
         memset(&report, 0, sizeof report);
         report.branch = -1;
         call.flags = TC_WANT_TANGENT;
-        f(&call, props, strain, d, t2, stress0, state0, stress, state, tangent, dsdt, energy,
+        f(&call, properties, strain, d, &t2, stress0, state0, stress, state, tangent, dsdt, &energy,
           &report);
         out->real_calls++;
         if (report.status == TC_STATUS_FAILED) {
@@ -131,13 +143,13 @@ int loop_check_run(const char *library, const char *symbol, const char *twin_sym
             dpert[j] = d[j] + h;
             memset(&report, 0, sizeof report);
             report.branch = -1;
-            f(&call, props, strain, dpert, t2, stress0, state0, pstress, pstate, ptangent, dsdt,
-              energy, &report);
+            f(&call, properties, strain, dpert, &t2, stress0, state0, pstress, pstate, ptangent, dsdt,
+              &energy, &report);
             dpert[j] = d[j] - h;
             memset(&report, 0, sizeof report);
             report.branch = -1;
-            f(&call, props, strain, dpert, t2, stress0, state0, mstress, pstate, ptangent, dsdt,
-              energy, &report);
+            f(&call, properties, strain, dpert, &t2, stress0, state0, mstress, pstate, ptangent, dsdt,
+              &energy, &report);
             out->real_calls += 2;
             for (int i = 0; i < n; ++i) {
                 numerical[i + j * n] = (pstress[i] - mstress[i]) / (2.0 * h);
@@ -161,8 +173,8 @@ int loop_check_run(const char *library, const char *symbol, const char *twin_sym
             cd[j] = CMPLX(d[j], hc);
             memset(&report, 0, sizeof report);
             report.branch = -1;
-            fc(&call, cprops, cstrain, cd, ct2, cstress0, cstate0, cstress, cstate, ctangent,
-               cdsdt, cenergy, &report);
+            fc(&call, cprops, cstrain, cd, &ct2, cstress0, cstate0, cstress, cstate, ctangent,
+               cdsdt, &cenergy, &report);
             out->complex_calls++;
             for (int i = 0; i < n; ++i) {
                 numerical[i + j * n] = cimag(cstress[i]) / hc;

@@ -11,7 +11,7 @@
 !   integer :: verdict
 !   character(len=:), allocatable :: text
 !   call tck_init_options(opts)
-!   call tck_run_check(result, c_funloc(f_j2), opts, props, 13, twin=c_funloc(f_j2_cx))
+!   call tck_run_check(result, c_funloc(f_j2), opts, properties, 13, twin=c_funloc(f_j2_cx))
 !   call tck_get_verdict(result, verdict)
 !   call tck_get_summary(result, text)
 !   call tck_free_result(result)
@@ -58,7 +58,7 @@ module tancheck_api
   integer, parameter :: tck_version_minor = 1
   integer, parameter :: tck_version_patch = 0
   !> Layout version of tck_options (TCK_OPTIONS_VERSION).
-  integer(c_int32_t), parameter :: tck_options_version = 1_c_int32_t
+  integer(c_int32_t), parameter :: tck_options_version = 2_c_int32_t
 
   !> Status codes (tck_status).
   integer, parameter :: tck_ok = 0
@@ -123,7 +123,7 @@ module tancheck_api
   integer, parameter :: tck_verdict_twin_not_safe = 4
 
   !> Everything about one check (struct tck_options). Fill it with tck_init_options. The
-  !> pointer fields props, state0, strain0, stress0, order, increments and name are set by
+  !> pointer fields properties, state0, strain0, stress0, order, increments and name are set by
   !> tck_run_check from its array arguments; when such an argument is absent, the field is
   !> passed as it is (null after tck_init_options).
   type, bind(C) :: tck_options
@@ -133,9 +133,9 @@ module tancheck_api
     integer(c_int32_t) :: norder         ! entries of order; 0: the kind's default order
     type(c_ptr) :: order                 ! tck_component_* values in the routine's order
     type(c_ptr) :: name                  ! NUL-terminated name for the report
-    integer(c_int32_t) :: nprop
+    integer(c_int32_t) :: nproperties
     integer(c_int32_t) :: nstate
-    type(c_ptr) :: props
+    type(c_ptr) :: properties
     type(c_ptr) :: state0                ! nstate start values, or null for zeros
     type(c_ptr) :: strain0               ! ncomp start strains (routine order), or null
     type(c_ptr) :: stress0               ! ncomp start stresses, or null
@@ -261,12 +261,12 @@ contains
   !> twin is its complex-step twin (interface tc_routine_complex), when there is one. A
   !> failing tangent or a crashing routine is a verdict of the result, not an error; an error
   !> means the check could not run (bad options), and result is then null.
-  subroutine tck_run_check(result, routine, opts, props, nstate, twin, state0, strain0, &
+  subroutine tck_run_check(result, routine, opts, properties, nstate, twin, state0, strain0, &
                            stress0, order, increments, name, err)
     type(c_ptr), intent(out) :: result
     type(c_funptr), value, intent(in) :: routine  ! by value: c_funloc(...) needs no temporary
     type(tck_options), intent(in) :: opts
-    real(c_double), intent(in), target, contiguous :: props(:)
+    real(c_double), intent(in), target, contiguous :: properties(:)
     integer, intent(in) :: nstate
     type(c_funptr), intent(in), optional :: twin
     real(c_double), intent(in), target, contiguous, optional :: state0(:)
@@ -283,8 +283,8 @@ contains
     integer :: i
 
     o = opts
-    o%nprop = int(size(props), c_int32_t)
-    o%props = address(props)
+    o%nproperties = int(size(properties), c_int32_t)
+    o%properties = address(properties)
     o%nstate = int(nstate, c_int32_t)
     if (present(state0)) then
       if (size(state0) /= nstate) then

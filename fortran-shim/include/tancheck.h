@@ -12,7 +12,7 @@
  *
  *     tck_options opts;
  *     tck_options_init(&opts);
- *     opts.nprop = 7;  opts.props = props;  opts.nstate = 13;
+ *     opts.nproperties = 7;  opts.properties = properties;  opts.nstate = 13;
  *     tck_result *result = NULL;
  *     if (tck_check(&result, my_routine, (tck_twin_fn)my_routine_cx, &opts) != TCK_OK) {
  *         fprintf(stderr, "%s\n", tck_last_error());
@@ -60,8 +60,9 @@ extern "C" {
 #define TCK_VERSION_MINOR 1
 #define TCK_VERSION_PATCH 0
 
-/* The layout version of tck_options this header describes. */
-#define TCK_OPTIONS_VERSION 1
+/* The layout version of tck_options this header describes. Version 2 renamed v1's nprop and
+ * props to nproperties and properties (same layout; the library still accepts version 1). */
+#define TCK_OPTIONS_VERSION 2
 
 /* The library's version. Any pointer may be NULL. */
 void tck_version(int32_t *major, int32_t *minor, int32_t *patch);
@@ -160,9 +161,9 @@ typedef struct tck_options {
     const char *name;           /* name for the report (UTF-8), or NULL for "routine" */
 
     /* material and start state */
-    int32_t nprop;              /* properties */
+    int32_t nproperties;        /* properties */
     int32_t nstate;             /* state variables */
-    const double *props;        /* nprop values (may be NULL when nprop is 0) */
+    const double *properties;   /* nproperties values (may be NULL when nproperties is 0) */
     const double *state0;       /* nstate start values, or NULL for zeros */
     const double *strain0;      /* start strain, ncomp values in the routine's order and shear
                                    measure, or NULL for zeros */

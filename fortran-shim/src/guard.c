@@ -119,13 +119,23 @@ typedef struct tc_guard_result {
     uint64_t pc;      /* the interrupted instruction (from the signal context), or 0 */
 } tc_guard_result;
 
-typedef void (*tc_guard_cx_fn)(const tc_call *call, const _Complex double *props,
+/* tc_temperature and tc_energy of the complex-step twin (tc_real = double _Complex). */
+typedef struct tc_guard_temperature_cx {
+    _Complex double start;
+    _Complex double increment;
+} tc_guard_temperature_cx;
+typedef struct tc_guard_energy_cx {
+    _Complex double stored;
+    _Complex double dissipated;
+} tc_guard_energy_cx;
+
+typedef void (*tc_guard_cx_fn)(const tc_call *call, const _Complex double *properties,
                                const _Complex double *strain, const _Complex double *dstrain,
-                               const _Complex double *temp, const _Complex double *stress0,
-                               const _Complex double *state0, _Complex double *stress,
-                               _Complex double *state, _Complex double *tangent,
-                               _Complex double *dstress_dtemp, _Complex double *energy,
-                               tc_report *report);
+                               const tc_guard_temperature_cx *temperature,
+                               const _Complex double *stress0, const _Complex double *state0,
+                               _Complex double *stress, _Complex double *state,
+                               _Complex double *tangent, _Complex double *dstress_dtemp,
+                               tc_guard_energy_cx *energy, tc_report *report);
 
 /* ---- per-thread state -------------------------------------------------------------- */
 
@@ -380,7 +390,7 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put("\n     state0   ");
         put_array(a->state0, c->nstate, cx);
         put("\n     props    ");
-        put_array(a->props, c->nprop, cx);
+        put_array(a->props, c->nproperties, cx);
         put("\n     temp, dtemp ");
         put_array(a->temp, 2, cx);
         put("\n");
@@ -415,7 +425,7 @@ static void last_words(int status, int sig, int in_call, const char *what) {
             put_int(c->increment);
             put(cx ? ", \"perturbation\": \"complex-step twin (real parts)\"" : ", \"perturbation\": null");
             put(", \"props\": ");
-            put_array(a->props, c->nprop, cx);
+            put_array(a->props, c->nproperties, cx);
             put(", \"strain\": ");
             put_array(a->strain, c->ncomp, cx);
             put(", \"dstrain\": ");
@@ -923,7 +933,7 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
 
 /* One trampoline per element type. Everything that must survive the jump is either set
  * before sigsetjmp and never changed afterwards, or lives in the thread state. */
-#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T, IS_COMPLEX)                                          \
+#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T, TEMPERATURE_T, ENERGY_T, IS_COMPLEX)         \
     int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                   \
         guard_thread *t = &tc_thread;                                                      \
         if (!t->prepared) prepare_thread(t);                                               \
@@ -942,10 +952,10 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
             t->inside = 1;                                                                 \
             GUARD_FENCE();                                                                 \
             fn(a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,               \
-               (const REAL_T *)a->dstrain, (const REAL_T *)a->temp,                        \
+               (const REAL_T *)a->dstrain, (const TEMPERATURE_T *)a->temp,                 \
                (const REAL_T *)a->stress0, (const REAL_T *)a->state0, (REAL_T *)a->stress, \
                (REAL_T *)a->state, (REAL_T *)a->tangent, (REAL_T *)a->dstress_dtemp,       \
-               (REAL_T *)a->energy, a->report);                                            \
+               (ENERGY_T *)a->energy, a->report);                                          \
             GUARD_FENCE();                                                                 \
             t->inside = 0;                                                                 \
             GUARD_FENCE();                                                                 \
@@ -961,8 +971,9 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
         return r->caught;                                                                  \
     }
 
-TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, 0)
-TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double, 1)
+TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, tc_temperature, tc_energy, 0)
+TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double,
+                    tc_guard_temperature_cx, tc_guard_energy_cx, 1)
 
 /* ---- block routines (their trampoline; see guard_block.inc) ------------------------ */
 
@@ -976,7 +987,7 @@ void tc_guard_layout(uint64_t out[13]) {
     out[1] = offsetof(tc_call, time);
     out[2] = offsetof(tc_call, dtime);
     out[3] = sizeof(tc_report);
-    out[4] = offsetof(tc_report, step_ratio);
+    out[4] = offsetof(tc_report, largest_fraction);
     out[5] = offsetof(tc_report, message);
     out[6] = sizeof(tc_guard_args);
     out[7] = offsetof(tc_guard_args, label);

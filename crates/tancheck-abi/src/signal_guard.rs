@@ -12,7 +12,7 @@ use num_complex::Complex64;
 use tancheck_core::{Fault, Outcome};
 
 /// `TC_ROUTINE_ABI_VERSION`: the layout version tancheck speaks.
-pub const ABI_VERSION: i32 = 1;
+pub const ABI_VERSION: i32 = 2;
 /// `TC_WANT_TANGENT`: the caller uses the tangent of this call.
 pub const WANT_TANGENT: i32 = 1;
 /// `TC_TWIN_SUFFIX`: the complex-step twin of symbol `x` is `x_cx`.
@@ -28,44 +28,62 @@ pub struct TcCall {
     pub abi_version: i32,
     pub ncomp: i32,
     pub nstate: i32,
-    pub nprop: i32,
+    pub nproperties: i32,
     pub increment: i32,
     pub flags: i32,
     pub time: f64,
     pub dtime: f64,
 }
 
+/// Temperature at the start of the increment and its increment (`struct tc_temperature`;
+/// `S` is `f64`, or [`Complex64`] in the complex-step twin). The layout of `[S; 2]`.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+#[repr(C)]
+pub struct TcTemperature<S> {
+    pub start: S,
+    pub increment: S,
+}
+
+/// Stored and dissipated energy densities at the end of the increment (`struct tc_energy`).
+/// The layout of `[S; 2]`.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+#[repr(C)]
+pub struct TcEnergy<S> {
+    pub stored: S,
+    pub dissipated: S,
+}
+
 /// A routine's real entry point (`tc_routine_fn`).
 pub type RealFn = unsafe extern "C" fn(
     call: *const TcCall,
-    props: *const f64,
+    properties: *const f64,
     strain: *const f64,
     dstrain: *const f64,
-    temp: *const f64,
+    temperature: *const TcTemperature<f64>,
     stress0: *const f64,
     state0: *const f64,
     stress: *mut f64,
     state: *mut f64,
     tangent: *mut f64,
     dstress_dtemp: *mut f64,
-    energy: *mut f64,
+    energy: *mut TcEnergy<f64>,
     report: *mut Outcome,
 );
 
 /// The complex-step twin's entry point (`tc_routine_fn` with `tc_real = double _Complex`).
 pub type ComplexFn = unsafe extern "C" fn(
     call: *const TcCall,
-    props: *const Complex64,
+    properties: *const Complex64,
     strain: *const Complex64,
     dstrain: *const Complex64,
-    temp: *const Complex64,
+    temperature: *const TcTemperature<Complex64>,
     stress0: *const Complex64,
     state0: *const Complex64,
     stress: *mut Complex64,
     state: *mut Complex64,
     tangent: *mut Complex64,
     dstress_dtemp: *mut Complex64,
-    energy: *mut Complex64,
+    energy: *mut TcEnergy<Complex64>,
     report: *mut Outcome,
 );
 
@@ -408,6 +426,20 @@ mod tests {
     use super::*;
     use std::mem::{offset_of, size_of};
 
+    /// `tc_temperature` and `tc_energy` have the layout of two values in a row, so the
+    /// caller may pass the address of an `[S; 2]` for either.
+    #[test]
+    fn the_named_pairs_have_the_layout_of_two_slots() {
+        use std::mem::align_of;
+        assert_eq!(size_of::<TcTemperature<f64>>(), size_of::<[f64; 2]>());
+        assert_eq!(align_of::<TcTemperature<f64>>(), align_of::<[f64; 2]>());
+        assert_eq!(offset_of!(TcTemperature<f64>, increment), size_of::<f64>());
+        assert_eq!(size_of::<TcEnergy<Complex64>>(), size_of::<[Complex64; 2]>());
+        assert_eq!(offset_of!(TcEnergy<Complex64>, dissipated), size_of::<Complex64>());
+        assert_eq!(size_of::<TcTemperature<Complex64>>(), size_of::<[Complex64; 2]>());
+        assert_eq!(offset_of!(TcEnergy<f64>, dissipated), size_of::<f64>());
+    }
+
     /// The structs shared with C have the same layout on both sides.
     #[test]
     fn layouts_match_the_c_side() {
@@ -419,7 +451,7 @@ mod tests {
             offset_of!(TcCall, time),
             offset_of!(TcCall, dtime),
             size_of::<Outcome>(),
-            offset_of!(Outcome, step_ratio),
+            offset_of!(Outcome, largest_fraction),
             offset_of!(Outcome, message),
             size_of::<GuardArgs>(),
             offset_of!(GuardArgs, label),

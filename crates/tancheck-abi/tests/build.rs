@@ -134,7 +134,7 @@ fn a_source_that_fails_only_as_a_twin_says_so() {
     let src = dir.join("cmp.c");
     std::fs::write(
         &src,
-        "#include \"tancheck_routine.h\"\nTC_ROUTINE(cmp) { (void)call; if (props[0] < 0) stress[0] = 0; }\n",
+        "#include \"tancheck_routine.h\"\nTC_ROUTINE(cmp) { (void)call; if (properties[0] < 0) stress[0] = 0; }\n",
     )
     .unwrap();
     let e = build_library(&BuildOptions::new([&src], dir.join("libcmp.so"))).unwrap_err();
@@ -156,7 +156,7 @@ fn a_helper_defined_twice_by_the_twin_is_explained() {
     std::fs::write(
         &src,
         "#include \"tancheck_routine.h\"\ndouble scale(double x) { return 2 * x; }\n\
-         TC_ROUTINE(dup) { (void)call; stress[0] = scale(1.0) * props[0]; }\n",
+         TC_ROUTINE(dup) { (void)call; stress[0] = scale(1.0) * properties[0]; }\n",
     )
     .unwrap();
     let e = build_library(&BuildOptions::new([&src], dir.join("libdup.so"))).unwrap_err();

@@ -238,7 +238,7 @@ fn reading_past_the_properties_is_found_only_at_the_full_level() {
     assert_eq!(f.len, 2);
     let text = f.to_string();
     assert!(text.starts_with("the routine reads beyond its 2 properties"), "{text}");
-    assert!(text.contains("after props[1]"), "{text}");
+    assert!(text.contains("after properties[1]"), "{text}");
     // The rerun with all zones changed, one repeat with the first poison, one per input.
     assert_eq!(r.guard_calls(), 1 + 1 + 6);
 }
@@ -312,7 +312,7 @@ const OVERLONG_MESSAGE_C: &str = r#"
 #include "tancheck_routine.h"
 TC_ROUTINE(long_message)
 {
-    (void)props; (void)strain; (void)dstrain; (void)temp; (void)stress0; (void)state0;
+    (void)properties; (void)strain; (void)dstrain; (void)temperature; (void)stress0; (void)state0;
     (void)dstress_dtemp; (void)energy;
     for (int i = 0; i < call->ncomp; ++i) stress[i] = 0.0;
     for (int k = 0; k < call->nstate; ++k) state[k] = 0.0;

@@ -129,22 +129,24 @@ fn child_fortran_bounds_error() {
 }
 
 const BOUNDS_F90: &str = r#"
-subroutine f_bounds(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
-                    tangent, dstress_dtemp, energy, report) bind(C, name="f_bounds")
+subroutine f_bounds(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
+                    state, tangent, dstress_dtemp, energy, report) bind(C, name="f_bounds")
   use, intrinsic :: iso_c_binding, only: c_double
-  use tancheck_routine, only: tc_call, tc_report
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy
   implicit none
   type(tc_call), intent(in) :: callinfo
-  real(c_double), intent(in) :: props(callinfo%nprop)
-  real(c_double), intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp), temp(2)
+  real(c_double), intent(in) :: properties(callinfo%nproperties)
+  real(c_double), intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
+  type(tc_temperature), intent(in) :: temperature
   real(c_double), intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   real(c_double), intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   real(c_double), intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  real(c_double), intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  real(c_double), intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
   integer :: k
-  k = callinfo%nprop + callinfo%increment
-  stress = props(k) + strain(1) + dstrain(1) + temp(1) + stress0(1)
+  k = callinfo%nproperties + callinfo%increment
+  stress = properties(k) + strain(1) + dstrain(1) + temperature%start + stress0(1)
   state = 0
   tangent = 0
   report%status = 0

@@ -63,7 +63,7 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
     }
     let report = {
         let mut caller = Caller::new(&mut routine);
-        tancheck_core::check::run(&mut caller, &plan.props, plan.start, &plan.path, &plan.settings)
+        tancheck_core::check::run(&mut caller, &plan.properties, plan.start, &plan.path, &plan.settings)
             .map_err(Failure::invalid)?
     };
     let findings = routine.take_findings();

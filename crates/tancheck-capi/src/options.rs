@@ -11,7 +11,7 @@ use tancheck_core::{
 use crate::status::Failure;
 
 /// `TCK_OPTIONS_VERSION`: the layout of [`Options`] this library knows.
-pub const OPTIONS_VERSION: i32 = 1;
+pub const OPTIONS_VERSION: i32 = 2;
 /// `TCK_SCHEME_SLOTS`.
 pub const SCHEME_SLOTS: usize = 8;
 
@@ -76,9 +76,9 @@ pub struct Options {
     pub norder: i32,
     pub order: *const i32,
     pub name: *const c_char,
-    pub nprop: i32,
+    pub nproperties: i32,
     pub nstate: i32,
-    pub props: *const f64,
+    pub properties: *const f64,
     pub state0: *const f64,
     pub strain0: *const f64,
     pub stress0: *const f64,
@@ -124,9 +124,9 @@ impl Default for Options {
             norder: 0,
             order: std::ptr::null(),
             name: std::ptr::null(),
-            nprop: 0,
+            nproperties: 0,
             nstate: 0,
-            props: std::ptr::null(),
+            properties: std::ptr::null(),
             state0: std::ptr::null(),
             strain0: std::ptr::null(),
             stress0: std::ptr::null(),
@@ -153,7 +153,7 @@ impl Default for Options {
 #[derive(Clone, Debug)]
 pub struct Plan {
     pub info: RoutineInfo,
-    pub props: Vec<f64>,
+    pub properties: Vec<f64>,
     pub start: PointState,
     pub path: Path,
     pub settings: Settings,
@@ -262,26 +262,26 @@ impl Options {
             // SAFETY: the caller's contract on `name`.
             unsafe { CStr::from_ptr(self.name) }.to_string_lossy().into_owned()
         };
-        let nprop = count("nprop", self.nprop, "properties")?;
+        let nproperties = count("nproperties", self.nproperties, "properties")?;
         let nstate = count("nstate", self.nstate, "state variables")?;
         const MAX_COUNT: usize = 100_000;
-        for (field, n) in [("nprop", nprop), ("nstate", nstate)] {
+        for (field, n) in [("nproperties", nproperties), ("nstate", nstate)] {
             if n > MAX_COUNT {
                 return Err(Failure::invalid(format!("tck_options.{field} is {n}; at most {MAX_COUNT}")));
             }
         }
-        // SAFETY: the caller's contract on `props`.
-        let props = match unsafe { slice(self.props, nprop) } {
+        // SAFETY: the caller's contract on `properties`.
+        let properties = match unsafe { slice(self.properties, nproperties) } {
             Some(p) => p.to_vec(),
-            None if nprop == 0 => Vec::new(),
+            None if nproperties == 0 => Vec::new(),
             None => {
                 return Err(Failure::invalid(format!(
-                    "tck_options.nprop is {nprop} but props is NULL; point props at the {nprop} properties"
+                    "tck_options.nproperties is {nproperties} but properties is NULL; point properties at the {nproperties} properties"
                 )))
             }
         };
-        finite("props", &props)?;
-        let info = RoutineInfo { name, convention, nstate, nprop };
+        finite("properties", &properties)?;
+        let info = RoutineInfo { name, convention, nstate, nprop: nproperties };
 
         let mut start = PointState::zero(&info, self.temperature);
         // SAFETY: the caller's contract on the start arrays.
@@ -312,7 +312,7 @@ impl Options {
                 self.guard_level
             ))
         })?;
-        Ok(Plan { info, props, start, path, settings, guard_level, fp_traps: self.fp_traps != 0 })
+        Ok(Plan { info, properties, start, path, settings, guard_level, fp_traps: self.fp_traps != 0 })
     }
 
     /// The explicit increments when given, else the built-in ramp.
@@ -453,8 +453,8 @@ mod tests {
         type Change = &'static dyn Fn(&mut Options);
         let cases: [(Change, &str); 13] = [
             (&|o| o.kind = 9, "tck_options.kind is 9; use a tck_kind value (1, 2, 3, 4, 5, 6, 7)"),
-            (&|o| o.version = 2, "tck_options.version is 2"),
-            (&|o| o.nprop = 3, "nprop is 3 but props is NULL"),
+            (&|o| o.version = 3, "tck_options.version is 3"),
+            (&|o| o.nproperties = 3, "nproperties is 3 but properties is NULL"),
             (&|o| o.schemes = 1 << 7, "bits 0x80 that name no scheme"),
             (&|o| o.schemes = 0, "no derivative scheme selected"),
             (&|o| o.steps = 0, "tck_options.steps is 0"),

@@ -5,7 +5,7 @@ use std::ffi::{c_char, CStr};
 use std::ptr;
 
 use serde_json::Value;
-use tancheck_abi::guard::TcCall;
+use tancheck_abi::guard::{TcCall, TcEnergy, TcTemperature};
 use tancheck_capi::*;
 use tancheck_core::Outcome;
 
@@ -36,7 +36,7 @@ fn stiffness(e: f64, nu: f64) -> [f64; 36] {
 /// The routine ABI's contract: the arrays have the lengths `call` announces (6 components).
 unsafe fn elastic<const HOLE: bool>(
     call: *const TcCall,
-    props: *const f64,
+    properties: *const f64,
     dstrain: *const f64,
     stress0: *const f64,
     stress: *mut f64,
@@ -46,7 +46,7 @@ unsafe fn elastic<const HOLE: bool>(
     // SAFETY: the lengths are the ABI's (6 components, 2 properties).
     unsafe {
         assert_eq!((*call).ncomp, 6);
-        let c = stiffness(*props, *props.add(1));
+        let c = stiffness(*properties, *properties.add(1));
         for i in 0..6 {
             let mut s = *stress0.add(i);
             for j in 0..6 {
@@ -69,21 +69,21 @@ macro_rules! routine {
         /// The routine ABI's contract.
         unsafe extern "C" fn $name(
             call: *const TcCall,
-            props: *const f64,
+            properties: *const f64,
             _strain: *const f64,
             dstrain: *const f64,
-            _temp: *const f64,
+            _temperature: *const TcTemperature<f64>,
             stress0: *const f64,
             _state0: *const f64,
             stress: *mut f64,
             _state: *mut f64,
             tangent: *mut f64,
             _dstress_dtemp: *mut f64,
-            _energy: *mut f64,
+            _energy: *mut TcEnergy<f64>,
             report: *mut Outcome,
         ) {
             // SAFETY: forwarded.
-            unsafe { elastic::<$hole>(call, props, dstrain, stress0, stress, tangent, report) }
+            unsafe { elastic::<$hole>(call, properties, dstrain, stress0, stress, tangent, report) }
         }
     };
 }
@@ -96,8 +96,8 @@ fn options() -> Options {
     let mut o = Options::default();
     // SAFETY: a valid struct to write to.
     assert_eq!(unsafe { tck_options_init(&mut o) }, code::OK);
-    o.nprop = 2;
-    o.props = PROPS.as_ptr();
+    o.nproperties = 2;
+    o.properties = PROPS.as_ptr();
     o.schemes = 1 << 2; // central only: these routines have no twin
     o
 }
@@ -238,9 +238,9 @@ fn errors_are_codes_with_messages() {
         assert!(last_error().contains("fill the struct with tck_options_init"), "{}", last_error());
 
         let mut wrong = o;
-        wrong.nprop = 3; // the props array has 2, and the routine is told 3
-        let props3 = [E, NU, 1.0];
-        wrong.props = props3.as_ptr();
+        wrong.nproperties = 3; // the properties array has 2, and the routine is told 3
+        let properties3 = [E, NU, 1.0];
+        wrong.properties = properties3.as_ptr();
         wrong.peak = f64::NAN;
         assert_eq!(tck_check(&mut r, Some(rust_elastic), None, &wrong), code::ERROR_INVALID);
         assert!(last_error().starts_with("tck_options.peak is NaN"), "{}", last_error());

@@ -24,7 +24,9 @@ pub mod provides {
 /// Status codes a routine returns (match `TC_STATUS_*`).
 pub mod status {
     pub const OK: i32 = 0;
-    pub const CUTBACK: i32 = 1;
+    /// The increment is too large; `Outcome::largest_fraction` says how much of it the routine
+    /// expects to manage.
+    pub const SMALLER_INCREMENT: i32 = 1;
     pub const FAILED: i32 = 2;
 }
 
@@ -56,7 +58,9 @@ pub struct Outcome {
     pub branch: i32,
     pub provides: i32,
     pub reserved: i32,
-    pub step_ratio: f64,
+    /// With [`status::SMALLER_INCREMENT`]: the largest fraction of this increment the routine
+    /// expects to manage, in (0, 1).
+    pub largest_fraction: f64,
     pub message: [u8; MESSAGE_LEN],
 }
 
@@ -67,7 +71,7 @@ impl Default for Outcome {
             branch: -1,
             provides: 0,
             reserved: 0,
-            step_ratio: 1.0,
+            largest_fraction: 1.0,
             message: [0; MESSAGE_LEN],
         }
     }
@@ -122,7 +126,7 @@ pub struct RoutineInfo {
 pub enum Fault {
     /// The routine set a nonzero status.
     #[error("the routine returned status {status}{}", if .message.is_empty() { String::new() } else { format!(": {}", .message) })]
-    Status { status: i32, message: String, step_ratio: f64 },
+    Status { status: i32, message: String, largest_fraction: f64 },
     /// The routine crashed (a signal caught by the guarded shim).
     #[error("the routine crashed: {what}")]
     Crashed { signal: i32, what: String },
@@ -210,7 +214,11 @@ pub fn status_fault(o: &Outcome) -> Result<(), Fault> {
     if o.status == status::OK {
         Ok(())
     } else {
-        Err(Fault::Status { status: o.status, message: o.message_text(), step_ratio: o.step_ratio })
+        Err(Fault::Status {
+            status: o.status,
+            message: o.message_text(),
+            largest_fraction: o.largest_fraction,
+        })
     }
 }
 

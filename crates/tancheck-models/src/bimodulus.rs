@@ -97,15 +97,15 @@ impl Model for Bimodulus {
         check_sizes(&self.info, input, output)?;
         let (e_t, e_c, nu) = (input.props[0], input.props[1], input.props[2]);
         if !positive(e_t.re()) {
-            fail(output, "bimodulus: E_t (props[0]) must be positive");
+            fail(output, "bimodulus: E_t (properties[0]) must be positive");
             return Ok(());
         }
         if !positive(e_c.re()) {
-            fail(output, "bimodulus: E_c (props[1]) must be positive");
+            fail(output, "bimodulus: E_c (properties[1]) must be positive");
             return Ok(());
         }
         if !between(nu.re(), -1.0, 0.5) {
-            fail(output, "bimodulus: nu (props[2]) must lie in (-1, 0.5)");
+            fail(output, "bimodulus: nu (properties[2]) must lie in (-1, 0.5)");
             return Ok(());
         }
         let n = self.info.convention.ncomp();

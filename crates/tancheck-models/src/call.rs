@@ -13,7 +13,7 @@ pub(crate) fn check_sizes<S>(
 ) -> Result<(), Fault> {
     let n = info.convention.ncomp();
     let checks: [(&str, usize, usize); 9] = [
-        ("props", input.props.len(), info.nprop),
+        ("properties", input.props.len(), info.nprop),
         ("strain", input.strain.len(), n),
         ("dstrain", input.dstrain.len(), n),
         ("stress0", input.stress0.len(), n),
@@ -49,7 +49,7 @@ pub(crate) fn fail<S: Scalar>(output: &mut CallOutput<'_, S>, message: &str) {
     o.status = status::FAILED;
     o.branch = -1;
     o.provides = 0;
-    o.step_ratio = 1.0;
+    o.largest_fraction = 1.0;
     o.set_message(message);
 }
 
@@ -60,7 +60,7 @@ pub(crate) fn succeed<S>(output: &mut CallOutput<'_, S>, branch: i32, provides: 
     o.status = status::OK;
     o.branch = branch;
     o.provides = provides;
-    o.step_ratio = 1.0;
+    o.largest_fraction = 1.0;
     if o.message[0] != 0 {
         o.message.fill(0);
     }

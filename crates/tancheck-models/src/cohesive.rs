@@ -195,16 +195,16 @@ struct Props<S> {
 fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     let props = Props { k: p[0], n: p[1], s: p[2], g1: p[3], g2: p[4], eta: p[5] };
     if !positive(props.k.re()) {
-        return Err("cohesive: K (props[0]) must be positive");
+        return Err("cohesive: K (properties[0]) must be positive");
     }
     if !(positive(props.n.re()) && positive(props.s.re())) {
-        return Err("cohesive: strengths N, S (props[1], props[2]) must be positive");
+        return Err("cohesive: strengths N, S (properties[1], properties[2]) must be positive");
     }
     if !(positive(props.g1.re()) && positive(props.g2.re())) {
-        return Err("cohesive: G_Ic, G_IIc (props[3], props[4]) must be positive");
+        return Err("cohesive: G_Ic, G_IIc (properties[3], properties[4]) must be positive");
     }
     if !(props.eta.re() >= 1.0 && props.eta.re().is_finite()) {
-        return Err("cohesive: eta (props[5]) must be finite and >= 1");
+        return Err("cohesive: eta (properties[5]) must be finite and >= 1");
     }
     Ok(props)
 }

@@ -96,11 +96,11 @@ impl Model for Elastic {
         check_sizes(&self.info, input, output)?;
         let (e, nu) = (input.props[0], input.props[1]);
         if !positive(e.re()) {
-            fail(output, "elastic: E (props[0]) must be positive");
+            fail(output, "elastic: E (properties[0]) must be positive");
             return Ok(());
         }
         if !between(nu.re(), -1.0, 0.5) {
-            fail(output, "elastic: nu (props[1]) must lie in (-1, 0.5)");
+            fail(output, "elastic: nu (properties[1]) must lie in (-1, 0.5)");
             return Ok(());
         }
         let n = self.info.convention.ncomp();
@@ -197,7 +197,7 @@ mod tests {
     #[test]
     fn bad_properties_fail_with_a_message() {
         let m = Elastic::new(PointKind::Solid3d).unwrap();
-        for (props, needle) in [([-1.0, 0.3], "E (props[0])"), ([E, 0.5], "nu"), ([E, f64::NAN], "nu")] {
+        for (props, needle) in [([-1.0, 0.3], "E (properties[0])"), ([E, 0.5], "nu"), ([E, f64::NAN], "nu")] {
             let out = run(&m, &Point::new(&props, 6, 0)).unwrap();
             assert_eq!(out.outcome.status, status::FAILED);
             assert!(out.outcome.message_text().contains(needle), "{}", out.outcome.message_text());

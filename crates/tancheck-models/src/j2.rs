@@ -145,16 +145,16 @@ impl<S: Scalar> Props<S> {
 fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     let (e, nu, sy0, h_iso, q, b, h_kin) = (p[0], p[1], p[2], p[3], p[4], p[5], p[6]);
     if !positive(e.re()) {
-        return Err("j2: E (props[0]) must be positive");
+        return Err("j2: E (properties[0]) must be positive");
     }
     if !between(nu.re(), -1.0, 0.5) {
-        return Err("j2: nu (props[1]) must lie in (-1, 0.5)");
+        return Err("j2: nu (properties[1]) must lie in (-1, 0.5)");
     }
     if !positive(sy0.re()) {
-        return Err("j2: sy0 (props[2]) must be positive");
+        return Err("j2: sy0 (properties[2]) must be positive");
     }
     if !(b.re() >= 0.0 && h_iso.re().is_finite() && q.re().is_finite() && h_kin.re().is_finite()) {
-        return Err("j2: b (props[5]) must be >= 0 and H_iso, Q, H_kin finite");
+        return Err("j2: b (properties[5]) must be >= 0 and H_iso, Q, H_kin finite");
     }
     let (lambda, mu) = lame(e, nu);
     // g(Δγ) decreases strictly when 2μ + ⅔(K' + H_kin) > 0 for every α; K' runs between

@@ -258,41 +258,41 @@ struct Props<S> {
 
 fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     if !positive(p[0].re()) {
-        return Err("johnson-cook: E (props[0]) must be positive");
+        return Err("johnson-cook: E (properties[0]) must be positive");
     }
     if !between(p[1].re(), -1.0, 0.5) {
-        return Err("johnson-cook: nu (props[1]) must lie in (-1, 0.5)");
+        return Err("johnson-cook: nu (properties[1]) must lie in (-1, 0.5)");
     }
     if !positive(p[2].re()) {
-        return Err("johnson-cook: A (props[2]) must be positive");
+        return Err("johnson-cook: A (properties[2]) must be positive");
     }
     if !(p[3].re() >= 0.0 && positive(p[4].re()) && p[4].re() <= 1.0) {
-        return Err("johnson-cook: B (props[3]) must be >= 0 and n (props[4]) in (0, 1]");
+        return Err("johnson-cook: B (properties[3]) must be >= 0 and n (properties[4]) in (0, 1]");
     }
     if !(p[5].re() >= 0.0 && p[5].re().is_finite() && positive(p[6].re()) && p[6].re().is_finite()) {
-        return Err("johnson-cook: C (props[5]) must be >= 0 and m (props[6]) positive");
+        return Err("johnson-cook: C (properties[5]) must be >= 0 and m (properties[6]) positive");
     }
     if !(p[7].re().is_finite() && p[8].re().is_finite() && p[8].re() > p[7].re()) {
-        return Err("johnson-cook: T_melt (props[8]) must exceed T_room (props[7])");
+        return Err("johnson-cook: T_melt (properties[8]) must exceed T_room (properties[7])");
     }
     if !positive(p[9].re()) || !p[9].re().is_finite() {
-        return Err("johnson-cook: rate0 (props[9]) must be positive");
+        return Err("johnson-cook: rate0 (properties[9]) must be positive");
     }
     let chi = p[12];
     if !(0.0..=1.0).contains(&chi.re()) {
-        return Err("johnson-cook: taylor_quinney (props[12]) must lie in [0, 1]");
+        return Err("johnson-cook: taylor_quinney (properties[12]) must lie in [0, 1]");
     }
     let heat = if chi.re() > 0.0 {
         let rho_c = p[10] * p[11];
         if !(positive(p[10].re()) && positive(p[11].re()) && rho_c.re().is_finite()) {
-            return Err("johnson-cook: density and heat_capacity (props[10], props[11]) must be positive when taylor_quinney > 0");
+            return Err("johnson-cook: density, heat_capacity (properties[10..12]) must be > 0 when taylor_quinney > 0");
         }
         chi / rho_c
     } else {
         S::zero()
     };
     if !p[13..18].iter().all(|d| d.re().is_finite()) {
-        return Err("johnson-cook: D1..D5 (props[13..18]) must be finite");
+        return Err("johnson-cook: D1..D5 (properties[13..18]) must be finite");
     }
     let (lambda, mu) = lame(p[0], p[1]);
     Ok(Props {

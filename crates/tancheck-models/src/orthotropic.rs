@@ -93,7 +93,7 @@ pub fn material_axes<S: Scalar>(props: &[S]) -> Result<[[S; 3]; 3], &'static str
     let finite = a1.iter().chain(&a2).all(|x| x.re().is_finite());
     let n1 = dot(&a1, &a1);
     if !finite || !positive(n1.re()) {
-        return Err("orthotropic: axis 1 (props[9..12]) must be a finite nonzero vector");
+        return Err("orthotropic: axis 1 (properties[9..12]) must be a finite nonzero vector");
     }
     let l1 = n1.sqrt();
     let e1 = [a1[0] / l1, a1[1] / l1, a1[2] / l1];
@@ -102,7 +102,7 @@ pub fn material_axes<S: Scalar>(props: &[S]) -> Result<[[S; 3]; 3], &'static str
     let nb = dot(&b, &b);
     let n2 = dot(&a2, &a2).re();
     if !positive(nb.re()) || nb.re() <= PARALLEL_TOLERANCE * PARALLEL_TOLERANCE * n2 {
-        return Err("orthotropic: axis 2 (props[12..15]) must be nonzero and not parallel to axis 1");
+        return Err("orthotropic: axis 2 (properties[12..15]) must be nonzero and not parallel to axis 1");
     }
     let lb = nb.sqrt();
     let e2 = [b[0] / lb, b[1] / lb, b[2] / lb];
@@ -122,10 +122,12 @@ pub fn material_stiffness<S: Scalar>(props: &[S]) -> Result<[[S; 6]; 6], &'stati
     let (nu12, nu13, nu23) = (props[3], props[4], props[5]);
     let (g12, g13, g23) = (props[6], props[7], props[8]);
     if ![e1, e2, e3, g12, g13, g23].iter().all(|x| positive(x.re()) && x.re().is_finite()) {
-        return Err("orthotropic: E1, E2, E3, G12, G13, G23 (props[0..3], props[6..9]) must be positive");
+        return Err(
+            "orthotropic: E1, E2, E3, G12, G13, G23 (properties[0..3], properties[6..9]) must be positive",
+        );
     }
     if ![nu12, nu13, nu23].iter().all(|x| x.re().is_finite()) {
-        return Err("orthotropic: nu12, nu13, nu23 (props[3..6]) must be finite");
+        return Err("orthotropic: nu12, nu13, nu23 (properties[3..6]) must be finite");
     }
     // Normal block of the compliance (symmetric: ν_ij/E_i = ν_ji/E_j).
     let s11 = S::one() / e1;

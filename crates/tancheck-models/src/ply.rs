@@ -194,7 +194,7 @@ impl Ply {
 /// one in slots 11, 22, 12 (zeros elsewhere).
 fn stiffness<S: Scalar>(props: &[S], plane_stress: bool) -> Result<[[S; 6]; 6], &'static str> {
     let c3 = material_stiffness(props).map_err(|_| {
-        "ply: E1..E3, G12..G23 must be positive and the compliance positive definite (props[0..9])"
+        "ply: E1..E3, G12..G23 must be positive and the compliance positive definite (properties[0..9])"
     })?;
     if !plane_stress {
         return Ok(c3);
@@ -203,7 +203,7 @@ fn stiffness<S: Scalar>(props: &[S], plane_stress: bool) -> Result<[[S; 6]; 6], 
     let nu21 = nu12 * e2 / e1;
     let den = S::one() - nu12 * nu21;
     if !positive(den.re()) {
-        return Err("ply: 1 - nu12 nu21 must be positive (props[0], props[1], props[3])");
+        return Err("ply: 1 - nu12 nu21 must be positive (properties[0], properties[1], properties[3])");
     }
     let mut c = [[S::zero(); 6]; 6];
     c[0][0] = e1 / den;
@@ -322,7 +322,7 @@ impl Model for Ply {
         let r = match material_axes(p) {
             Ok(r) => r,
             Err(_) => {
-                fail(output, "ply: material axes a1 (props[9..12]) and a2 (props[12..15]) must be nonzero, not parallel");
+                fail(output, "ply: material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
                 return Ok(());
             }
         };
@@ -334,11 +334,11 @@ impl Model for Ply {
         let g_c = [p[20], p[21], p[22], p[23]];
         let (len, eta) = (p[24], p[25]);
         if !x.iter().chain(&g_c).chain([&len]).all(|v| positive(v.re()) && v.re().is_finite()) {
-            fail(output, "ply: strengths, fracture energies and L (props[15..25]) must be positive");
+            fail(output, "ply: strengths, fracture energies and L (properties[15..25]) must be positive");
             return Ok(());
         }
         if !(eta.re() >= 0.0 && eta.re().is_finite()) {
-            fail(output, "ply: the viscosity eta (props[25]) must be zero or positive");
+            fail(output, "ply: the viscosity eta (properties[25]) must be zero or positive");
             return Ok(());
         }
         let dt = input.time[1];

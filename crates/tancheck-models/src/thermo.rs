@@ -223,24 +223,24 @@ fn law_code(x: f64, max: u8) -> Option<u8> {
 fn read_laws<S: Scalar>(p: &[S]) -> Result<Laws<'_, S>, &'static str> {
     let (e20, nu0, nu1, alpha) = (p[0], p[1], p[2], p[5]);
     if !positive(e20.re()) {
-        return Err("thermo: E20 (props[0]) must be positive");
+        return Err("thermo: E20 (properties[0]) must be positive");
     }
     if !(nu0.re().is_finite() && nu1.re().is_finite()) {
-        return Err("thermo: nu0, nu1 (props[1], props[2]) must be finite");
+        return Err("thermo: nu0, nu1 (properties[1], properties[2]) must be finite");
     }
     let Some(modulus) = law_code(p[3].re(), 2) else {
-        return Err("thermo: modulus_law (props[3]) must be 0, 1 or 2");
+        return Err("thermo: modulus_law (properties[3]) must be 0, 1 or 2");
     };
     let Some(expansion) = law_code(p[4].re(), 1) else {
-        return Err("thermo: expansion_law (props[4]) must be 0 or 1");
+        return Err("thermo: expansion_law (properties[4]) must be 0 or 1");
     };
     if !alpha.re().is_finite() {
-        return Err("thermo: alpha (props[5]) must be finite");
+        return Err("thermo: alpha (properties[5]) must be finite");
     }
     let table = &p[Thermo::FIXED_PROPS..];
     if modulus == 2 {
         if table.len() < 4 || table.len() % 2 != 0 {
-            return Err("thermo: modulus_law 2 needs at least 2 (T, k) points after props[5]");
+            return Err("thermo: modulus_law 2 needs at least 2 (T, k) points after properties[5]");
         }
         for i in 0..table.len() / 2 {
             let (t, k) = (table[2 * i].re(), table[2 * i + 1].re());

@@ -752,7 +752,7 @@ fn bad_properties_states_and_kinds_are_refused() {
         p
     };
     for (props, state0, needle) in [
-        (with(0, 0.0), [0.0, 0.0], "K (props[0])"),
+        (with(0, 0.0), [0.0, 0.0], "K (properties[0])"),
         (with(1, -1.0), [0.0, 0.0], "strengths"),
         (with(4, 0.0), [0.0, 0.0], "G_Ic, G_IIc"),
         (with(5, 0.9), [0.0, 0.0], "eta"),

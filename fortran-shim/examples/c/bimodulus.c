@@ -39,33 +39,33 @@ static void bm_fail(tc_report *report, const char *text)
     report->message[k] = '\0';
 }
 
-static void bm_update(int average_at_kink, const tc_call *call, const tc_real *props,
+static void bm_update(int average_at_kink, const tc_call *call, const tc_real *properties,
                       const tc_real *strain, const tc_real *dstrain, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent,
-                      tc_real *dstress_dtemp, tc_real *energy, tc_report *report)
+                      tc_real *dstress_dtemp, tc_energy *energy, tc_report *report)
 {
     const int n = call->ncomp;
     if (n != 6 && n != 1) {
         bm_fail(report, "ncomp must be 6 or 1");
         return;
     }
-    if (call->nprop < BM_NPROP) {
+    if (call->nproperties < BM_NPROP) {
         bm_fail(report, "needs 3 properties [E_t, E_c, nu]");
         return;
     }
-    const tc_real e_t = props[BM_E_T];
-    const tc_real e_c = props[BM_E_C];
-    const tc_real nu = props[BM_NU];
+    const tc_real e_t = properties[BM_E_T];
+    const tc_real e_c = properties[BM_E_C];
+    const tc_real nu = properties[BM_NU];
     if (!(tc_re(e_t) > 0.0)) {
-        bm_fail(report, "E_t (props[0]) must be positive");
+        bm_fail(report, "E_t (properties[0]) must be positive");
         return;
     }
     if (!(tc_re(e_c) > 0.0)) {
-        bm_fail(report, "E_c (props[1]) must be positive");
+        bm_fail(report, "E_c (properties[1]) must be positive");
         return;
     }
     if (!(tc_re(nu) > -1.0 && tc_re(nu) < 0.5)) {
-        bm_fail(report, "nu (props[2]) must lie in (-1, 0.5)");
+        bm_fail(report, "nu (properties[2]) must lie in (-1, 0.5)");
         return;
     }
     for (int k = 0; k < call->nstate; ++k) {
@@ -119,8 +119,8 @@ static void bm_update(int average_at_kink, const tc_call *call, const tc_real *p
     for (int i = 0; i < n; ++i) {
         dstress_dtemp[i] = 0.0;
     }
-    energy[0] = 0.5 * stored;
-    energy[1] = 0.0;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = 0.0;
     report->provides = TC_PROVIDES_ENERGY;
     report->branch = compression;
     report->status = TC_STATUS_OK;
@@ -128,16 +128,16 @@ static void bm_update(int average_at_kink, const tc_call *call, const tc_real *p
 
 TC_ROUTINE(c_bimodulus)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
-    bm_update(0, call, props, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
+    bm_update(0, call, properties, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
               energy, report);
 }
 
 TC_ROUTINE(c_bimodulus_average)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
-    bm_update(1, call, props, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
+    bm_update(1, call, properties, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
               energy, report);
 }

@@ -17,24 +17,34 @@
 
 #include "tancheck.h"
 
-/* The routines of j2.c and their complex-step twins (compiled with TC_COMPLEX). */
+/* The routines of j2.c and their complex-step twins (compiled with TC_COMPLEX, where
+ * tc_temperature and tc_energy hold double _Complex; this file sees them as the structs
+ * below). */
+typedef struct cfc_temperature_cx {
+    double _Complex start;
+    double _Complex increment;
+} cfc_temperature_cx;
+typedef struct cfc_energy_cx {
+    double _Complex stored;
+    double _Complex dissipated;
+} cfc_energy_cx;
 TC_ROUTINE(c_j2);
 TC_ROUTINE(c_j2_continuum);
-void c_j2_cx(const tc_call *call, const double _Complex *props, const double _Complex *strain,
-             const double _Complex *dstrain, const double _Complex *temp,
+void c_j2_cx(const tc_call *call, const double _Complex *properties, const double _Complex *strain,
+             const double _Complex *dstrain, const cfc_temperature_cx *temperature,
              const double _Complex *stress0, const double _Complex *state0,
              double _Complex *stress, double _Complex *state, double _Complex *tangent,
-             double _Complex *dstress_dtemp, double _Complex *energy, tc_report *report);
-void c_j2_continuum_cx(const tc_call *call, const double _Complex *props,
+             double _Complex *dstress_dtemp, cfc_energy_cx *energy, tc_report *report);
+void c_j2_continuum_cx(const tc_call *call, const double _Complex *properties,
                        const double _Complex *strain, const double _Complex *dstrain,
-                       const double _Complex *temp, const double _Complex *stress0,
+                       const cfc_temperature_cx *temperature, const double _Complex *stress0,
                        const double _Complex *state0, double _Complex *stress,
                        double _Complex *state, double _Complex *tangent,
-                       double _Complex *dstress_dtemp, double _Complex *energy,
+                       double _Complex *dstress_dtemp, cfc_energy_cx *energy,
                        tc_report *report);
 
 /* J2 properties [E, nu, sigma_y0, H_iso, Q, b, H_kin] (DEVELOPERS.md, "Reference models"). */
-static const double j2_props[7] = {200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0};
+static const double j2_properties[7] = {200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0};
 #define J2_NSTATE 13 /* 2 * 6 + 1 for a 3D solid */
 
 /* Check one routine; returns 1 when its verdict is `want`, 0 when not, -1 when the check
@@ -48,8 +58,8 @@ static int check_one(const char *name, tc_routine_fn routine, tck_twin_fn twin, 
     }
     opts.name = name;
     opts.kind = TCK_KIND_SOLID_3D;
-    opts.nprop = 7;
-    opts.props = j2_props;
+    opts.nproperties = 7;
+    opts.properties = j2_properties;
     opts.nstate = J2_NSTATE;
     opts.guard_level = TCK_GUARD_FULL;
 

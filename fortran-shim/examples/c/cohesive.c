@@ -84,9 +84,9 @@ static tc_real cz_norm(int n, const tc_real *x)
     return big * tc_sqrt(q);
 }
 
-static void cz_update(const tc_call *call, const tc_real *props, const tc_real *strain,
+static void cz_update(const tc_call *call, const tc_real *properties, const tc_real *strain,
                       const tc_real *dstrain, const tc_real *state0, tc_real *stress,
-                      tc_real *state, tc_real *tangent, tc_real *energy, tc_report *report,
+                      tc_real *state, tc_real *tangent, tc_energy *energy, tc_report *report,
                       cz_flaw flaw)
 {
     const int n = call->ncomp;
@@ -94,7 +94,7 @@ static void cz_update(const tc_call *call, const tc_real *props, const tc_real *
         cz_fail(report, "ncomp must be 3 or 2");
         return;
     }
-    if (call->nprop < CZ_NPROP) {
+    if (call->nproperties < CZ_NPROP) {
         cz_fail(report, "needs 6 properties [K, N, S, G_Ic, G_IIc, eta]");
         return;
     }
@@ -102,26 +102,26 @@ static void cz_update(const tc_call *call, const tc_real *props, const tc_real *
         cz_fail(report, "needs 2 state variables [damage, dissipated]");
         return;
     }
-    const tc_real k = props[CZ_K];
-    const tc_real sn = props[CZ_N];
-    const tc_real ss = props[CZ_S];
-    const tc_real g1 = props[CZ_GIC];
-    const tc_real g2 = props[CZ_GIIC];
-    const tc_real eta = props[CZ_ETA];
+    const tc_real k = properties[CZ_K];
+    const tc_real sn = properties[CZ_N];
+    const tc_real ss = properties[CZ_S];
+    const tc_real g1 = properties[CZ_GIC];
+    const tc_real g2 = properties[CZ_GIIC];
+    const tc_real eta = properties[CZ_ETA];
     if (!(tc_re(k) > 0.0)) {
-        cz_fail(report, "K (props[0]) must be positive");
+        cz_fail(report, "K (properties[0]) must be positive");
         return;
     }
     if (!(tc_re(sn) > 0.0 && tc_re(ss) > 0.0)) {
-        cz_fail(report, "strengths N, S (props[1], props[2]) must be positive");
+        cz_fail(report, "strengths N, S (properties[1], properties[2]) must be positive");
         return;
     }
     if (!(tc_re(g1) > 0.0 && tc_re(g2) > 0.0)) {
-        cz_fail(report, "G_Ic, G_IIc (props[3], props[4]) must be positive");
+        cz_fail(report, "G_Ic, G_IIc (properties[3], properties[4]) must be positive");
         return;
     }
     if (!(tc_re(eta) >= 1.0 && isfinite(tc_re(eta)))) {
-        cz_fail(report, "eta (props[5]) must be finite and >= 1");
+        cz_fail(report, "eta (properties[5]) must be finite and >= 1");
         return;
     }
     const tc_real d_old = state0[0];
@@ -282,8 +282,8 @@ static void cz_update(const tc_call *call, const tc_real *props, const tc_real *
     for (int i = 2; i < call->nstate; ++i) {
         state[i] = state0[i];
     }
-    energy[0] = 0.5 * stored;
-    energy[1] = dissipated;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = dissipated;
     report->provides = TC_PROVIDES_ENERGY;
     report->branch = branch;
     report->status = TC_STATUS_OK;
@@ -291,45 +291,45 @@ static void cz_update(const tc_call *call, const tc_real *props, const tc_real *
 
 TC_ROUTINE(c_cohesive)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_CONSISTENT);
 }
 
 TC_ROUTINE(c_cohesive_secant)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_SECANT);
 }
 
 TC_ROUTINE(c_cohesive_no_coupling)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_NO_COUPLING);
 }
 
 TC_ROUTINE(c_cohesive_transposed)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_TRANSPOSED);
 }
 
 TC_ROUTINE(c_cohesive_symmetrized)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    cz_update(call, props, strain, dstrain, state0, stress, state, tangent, energy, report,
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_SYMMETRIZED);
 }

@@ -73,7 +73,7 @@ static void elastic_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
 
 TC_ROUTINE(c_elastic)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
 
     const int n = call->ncomp;
@@ -81,14 +81,14 @@ TC_ROUTINE(c_elastic)
         elastic_fail(report, "ncomp must be 6, 4, 3 or 1");
         return;
     }
-    if (call->nprop < 2) {
+    if (call->nproperties < 2) {
         elastic_fail(report, "needs 2 properties [E, nu]");
         return;
     }
 
     /* The caller's tangent buffer holds the stiffness; it is written in full here and then
      * only read. */
-    elastic_stiffness(n, props[0], props[1], tangent);
+    elastic_stiffness(n, properties[0], properties[1], tangent);
 
     tc_real stored = 0.0;
     for (int i = 0; i < n; ++i) {
@@ -103,8 +103,8 @@ TC_ROUTINE(c_elastic)
         state[k] = state0[k];
     }
 
-    energy[0] = 0.5 * stored;
-    energy[1] = 0.0;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = 0.0;
     report->provides = TC_PROVIDES_ENERGY;
     report->branch = 0;
     report->status = TC_STATUS_OK;

@@ -42,16 +42,16 @@ typedef enum { J2_TANGENT_CONSISTENT, J2_TANGENT_CONTINUUM } j2_tangent_kind;
 
 /* Yield stress K(alpha) = sigma_y0 + H_iso alpha + Q (1 - exp(-b alpha)) (Voce 1948 saturation
  * term plus linear hardening). */
-static tc_real j2_yield(const tc_real *props, tc_real alpha)
+static tc_real j2_yield(const tc_real *properties, tc_real alpha)
 {
-    return props[J2_SIGMA_Y0] + props[J2_H_ISO] * alpha +
-           props[J2_Q] * (1.0 - tc_exp(-props[J2_B] * alpha));
+    return properties[J2_SIGMA_Y0] + properties[J2_H_ISO] * alpha +
+           properties[J2_Q] * (1.0 - tc_exp(-properties[J2_B] * alpha));
 }
 
 /* K'(alpha) = H_iso + Q b exp(-b alpha). */
-static tc_real j2_yield_slope(const tc_real *props, tc_real alpha)
+static tc_real j2_yield_slope(const tc_real *properties, tc_real alpha)
 {
-    return props[J2_H_ISO] + props[J2_Q] * props[J2_B] * tc_exp(-props[J2_B] * alpha);
+    return properties[J2_H_ISO] + properties[J2_Q] * properties[J2_B] * tc_exp(-properties[J2_B] * alpha);
 }
 
 static void j2_fail(tc_report *report, const char *text)
@@ -68,7 +68,7 @@ static void j2_fail(tc_report *report, const char *text)
     report->message[k] = '\0';
 }
 
-static void j2_update(const tc_call *call, const tc_real *props, const tc_real *strain,
+static void j2_update(const tc_call *call, const tc_real *properties, const tc_real *strain,
                       const tc_real *dstrain, const tc_real *state0, tc_real *stress,
                       tc_real *state, tc_real *tangent, tc_report *report,
                       j2_tangent_kind kind)
@@ -78,7 +78,7 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
         j2_fail(report, "ncomp must be 6 or 4");
         return;
     }
-    if (call->nprop < J2_NPROP) {
+    if (call->nproperties < J2_NPROP) {
         j2_fail(report, "needs 7 properties [E, nu, sy0, H_iso, Q, b, H_kin]");
         return;
     }
@@ -88,9 +88,9 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
     }
 
     const double sqrt23 = sqrt(2.0 / 3.0);
-    const tc_real e = props[J2_E];
-    const tc_real nu = props[J2_NU];
-    const tc_real h_kin = props[J2_H_KIN];
+    const tc_real e = properties[J2_E];
+    const tc_real nu = properties[J2_NU];
+    const tc_real h_kin = properties[J2_H_KIN];
     const tc_real mu = e / (2.0 * (1.0 + nu));
     const tc_real kappa = e / (3.0 * (1.0 - 2.0 * nu));
 
@@ -124,7 +124,7 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
     const tc_real norm = tc_sqrt(norm2);
 
     /* Trial yield function f_tr = |xi_tr| - sqrt(2/3) K(alpha_n) (Simo & Hughes 1998, Box 3.2). */
-    const tc_real f_trial = norm - sqrt23 * j2_yield(props, alpha_n);
+    const tc_real f_trial = norm - sqrt23 * j2_yield(properties, alpha_n);
 
     tc_real n_dir[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
     tc_real theta = 1.0;
@@ -153,8 +153,8 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
         int converged = 0;
         for (;;) {
             const tc_real alpha = alpha_n + sqrt23 * dgamma;
-            const tc_real g = norm - c_lin * dgamma - sqrt23 * j2_yield(props, alpha);
-            const tc_real dg_slope = -c_lin - (2.0 / 3.0) * j2_yield_slope(props, alpha);
+            const tc_real g = norm - c_lin * dgamma - sqrt23 * j2_yield(properties, alpha);
+            const tc_real dg_slope = -c_lin - (2.0 / 3.0) * j2_yield_slope(properties, alpha);
             const tc_real step = -g / dg_slope;
             dgamma += step;
             ++iter;
@@ -170,7 +170,7 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
 
         /* Radial return (Simo & Hughes 1998, Box 3.2), n = xi_tr / |xi_tr|. */
         const tc_real alpha_new = alpha_n + sqrt23 * dgamma;
-        if (!(tc_re(j2_yield(props, alpha_new)) > 0.0)) {
+        if (!(tc_re(j2_yield(properties, alpha_new)) > 0.0)) {
             j2_fail(report, "softening takes the yield stress K(alpha) to zero in this increment");
             return;
         }
@@ -189,7 +189,7 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
          *     theta_bar = 1 / (1 + (K' + H_kin) / (3 mu)) - (1 - theta);
          *   continuum elastoplastic (Simo & Hughes 1998, ch. 3):
          *     theta = 1, theta_bar = 1 / (1 + (K' + H_kin) / (3 mu)). */
-        const tc_real k_slope = j2_yield_slope(props, alpha_new);
+        const tc_real k_slope = j2_yield_slope(properties, alpha_new);
         const tc_real ratio = 1.0 / (1.0 + (k_slope + h_kin) / (3.0 * mu));
         if (kind == J2_TANGENT_CONSISTENT) {
             theta = 1.0 - 2.0 * mu * dgamma / norm;
@@ -226,20 +226,20 @@ static void j2_update(const tc_call *call, const tc_real *props, const tc_real *
 
 TC_ROUTINE(c_j2)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    j2_update(call, props, strain, dstrain, state0, stress, state, tangent, report,
+    j2_update(call, properties, strain, dstrain, state0, stress, state, tangent, report,
               J2_TANGENT_CONSISTENT);
-    j2_energy(call, props, strain, dstrain, stress, state, energy, report);
+    j2_energy(call, properties, strain, dstrain, stress, state, energy, report);
 }
 
 TC_ROUTINE(c_j2_continuum)
 {
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)dstress_dtemp;
-    j2_update(call, props, strain, dstrain, state0, stress, state, tangent, report,
+    j2_update(call, properties, strain, dstrain, state0, stress, state, tangent, report,
               J2_TANGENT_CONTINUUM);
-    j2_energy(call, props, strain, dstrain, stress, state, energy, report);
+    j2_energy(call, properties, strain, dstrain, stress, state, energy, report);
 }

@@ -11,9 +11,9 @@
 #ifndef TANCHECK_EXAMPLE_J2_ENERGY_H
 #define TANCHECK_EXAMPLE_J2_ENERGY_H
 
-static void j2_energy(const tc_call *call, const tc_real *props, const tc_real *strain,
+static void j2_energy(const tc_call *call, const tc_real *properties, const tc_real *strain,
                       const tc_real *dstrain, const tc_real *stress, const tc_real *state,
-                      tc_real *energy, tc_report *report)
+                      tc_energy *energy, tc_report *report)
 {
     if (report->status != TC_STATUS_OK) {
         return;
@@ -24,19 +24,19 @@ static void j2_energy(const tc_call *call, const tc_real *props, const tc_real *
         psi += 0.5 * stress[i] * (strain[i] + dstrain[i] - state[i]);
     }
     const tc_real alpha = state[n];
-    psi += 0.5 * props[3] * alpha * alpha;
-    if (tc_re(props[5]) > 0.0) {
-        psi += props[4] * (alpha - (1.0 - tc_exp(-props[5] * alpha)) / props[5]);
+    psi += 0.5 * properties[3] * alpha * alpha;
+    if (tc_re(properties[5]) > 0.0) {
+        psi += properties[4] * (alpha - (1.0 - tc_exp(-properties[5] * alpha)) / properties[5]);
     }
-    if (tc_re(props[6]) > 0.0) {
+    if (tc_re(properties[6]) > 0.0) {
         tc_real bb = 0.0;
         for (int i = 0; i < n; ++i) {
             bb += (i < 3 ? 1.0 : 2.0) * state[n + 1 + i] * state[n + 1 + i];
         }
-        psi += 0.75 * bb / props[6];
+        psi += 0.75 * bb / properties[6];
     }
-    energy[0] = psi;
-    energy[1] = props[2] * alpha;
+    energy->stored = psi;
+    energy->dissipated = properties[2] * alpha;
     report->provides |= TC_PROVIDES_ENERGY;
 }
 

@@ -146,41 +146,41 @@ static int jc_heated_step(const tc_real *p, tc_real h, tc_real ep_n, tc_real da,
 
 static const char *jc_check_props(const tc_real *p)
 {
-    if (!(tc_re(p[JC_E]) > 0.0)) return "E (props[0]) must be positive";
-    if (!(tc_re(p[JC_NU]) > -1.0 && tc_re(p[JC_NU]) < 0.5)) return "nu (props[1]) must lie in (-1, 0.5)";
-    if (!(tc_re(p[JC_A]) > 0.0)) return "A (props[2]) must be positive";
+    if (!(tc_re(p[JC_E]) > 0.0)) return "E (properties[0]) must be positive";
+    if (!(tc_re(p[JC_NU]) > -1.0 && tc_re(p[JC_NU]) < 0.5)) return "nu (properties[1]) must lie in (-1, 0.5)";
+    if (!(tc_re(p[JC_A]) > 0.0)) return "A (properties[2]) must be positive";
     if (!(tc_re(p[JC_B]) >= 0.0 && tc_re(p[JC_N]) > 0.0 && tc_re(p[JC_N]) <= 1.0))
-        return "B (props[3]) must be >= 0 and n (props[4]) in (0, 1]";
+        return "B (properties[3]) must be >= 0 and n (properties[4]) in (0, 1]";
     if (!(tc_re(p[JC_C]) >= 0.0 && isfinite(tc_re(p[JC_C])) && tc_re(p[JC_M]) > 0.0 &&
           isfinite(tc_re(p[JC_M]))))
-        return "C (props[5]) must be >= 0 and m (props[6]) positive";
+        return "C (properties[5]) must be >= 0 and m (properties[6]) positive";
     if (!(isfinite(tc_re(p[JC_T_ROOM])) && isfinite(tc_re(p[JC_T_MELT])) &&
           tc_re(p[JC_T_MELT]) > tc_re(p[JC_T_ROOM])))
-        return "T_melt (props[8]) must exceed T_room (props[7])";
+        return "T_melt (properties[8]) must exceed T_room (properties[7])";
     if (!(tc_re(p[JC_RATE0]) > 0.0 && isfinite(tc_re(p[JC_RATE0]))))
-        return "rate0 (props[9]) must be positive";
+        return "rate0 (properties[9]) must be positive";
     const double chi = tc_re(p[JC_TAYLOR_QUINNEY]);
-    if (!(chi >= 0.0 && chi <= 1.0)) return "taylor_quinney (props[12]) must lie in [0, 1]";
+    if (!(chi >= 0.0 && chi <= 1.0)) return "taylor_quinney (properties[12]) must lie in [0, 1]";
     if (chi > 0.0 && !(tc_re(p[JC_DENSITY]) > 0.0 && tc_re(p[JC_HEAT_CAPACITY]) > 0.0 &&
                        isfinite(tc_re(p[JC_DENSITY] * p[JC_HEAT_CAPACITY]))))
-        return "density and heat_capacity (props[10], props[11]) must be positive when taylor_quinney > 0";
+        return "density, heat_capacity (properties[10..12]) must be > 0 when taylor_quinney > 0";
     for (int k = JC_D1; k <= JC_D5; ++k) {
-        if (!isfinite(tc_re(p[k]))) return "D1..D5 (props[13..18]) must be finite";
+        if (!isfinite(tc_re(p[k]))) return "D1..D5 (properties[13..18]) must be finite";
     }
     return 0;
 }
 
 static void jc_update(const tc_call *call, const tc_real *p, const tc_real *strain,
-                      const tc_real *dstrain, const tc_real *temp, const tc_real *state0,
+                      const tc_real *dstrain, const tc_temperature *temperature, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent, tc_real *dstress_dtemp,
-                      tc_real *energy, tc_report *report, int with_rate_term)
+                      tc_energy *energy, tc_report *report, int with_rate_term)
 {
     const int n = call->ncomp;
     if (n != 6 && n != 4) {
         jc_fail(report, "ncomp must be 6 or 4");
         return;
     }
-    if (call->nprop < JC_NPROP) {
+    if (call->nproperties < JC_NPROP) {
         jc_fail(report, "needs 18 properties (DEVELOPERS.md, Reference models)");
         return;
     }
@@ -204,7 +204,7 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
         jc_fail(report, "the equivalent plastic strain of the start state is negative");
         return;
     }
-    const tc_real t = temp[0] + temp[1] + heat_n;
+    const tc_real t = temperature->start + temperature->increment + heat_n;
     jc_flow f0;
     if (!jc_flow_at(p, ep_n, 1.0, t, &f0)) {
         jc_fail(report, "the temperature is at or above T_melt");
@@ -331,8 +331,8 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
             tangent[i + j * n] = c - two_mu * theta_bar * n_dir[i] * n_dir[j];
         }
     }
-    energy[0] = 0.0;
-    energy[1] = 0.0;
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
     report->provides = TC_PROVIDES_DSTRESS_DTEMP;
     report->status = TC_STATUS_OK;
 }
@@ -340,13 +340,13 @@ static void jc_update(const tc_call *call, const tc_real *p, const tc_real *stra
 TC_ROUTINE(c_jc)
 {
     (void)stress0;
-    jc_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+    jc_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, 1);
 }
 
 TC_ROUTINE(c_jc_no_rate_term)
 {
     (void)stress0;
-    jc_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+    jc_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, 0);
 }

@@ -29,7 +29,7 @@
  * and these misbehave quietly, for the memory guards to find (crates/tancheck-abi/src/guards.rs):
  *
  *   bad_state_overrun   writes state[nstate], one past the end     -> "wrote past the end of state"
- *   bad_props_overread  adds props[nprop] to stress[0]              -> "reads beyond its N properties"
+ *   bad_props_overread  adds properties[nproperties] to stress[0]              -> "reads beyond its N properties"
  *   bad_tangent_hole    leaves tangent[1] unwritten                 -> "left tangent[1] unwritten"
  *   bad_writes_strain   writes strain[0] (casting const away)       -> "wrote to its read-only input"
  *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
@@ -39,7 +39,7 @@
  * check (full guards on the first call of each new branch, one zero increment) finds them:
  *
  *   bad_branch_overread reports branch 0 while the end strain 11 is at most 5e-4, branch 1
- *                       beyond, where it adds props[nprop] to stress[0]
+ *                       beyond, where it adds properties[nproperties] to stress[0]
  *                                                                  -> "reads beyond its N properties"
  *   bad_unguarded_norm  adds 0 * (dstrain / |dstrain|)[0] to stress[0]: a direction normalised
  *                       without a guard, NaN for a zero increment    -> "stress[0] = NaN"
@@ -102,17 +102,17 @@ static void misbehave_message(tc_report *report, const char *text)
 }
 
 /* The well-behaved part shared by all routines. Returns 0 when it reported a failure. */
-static int misbehave_elastic(const tc_call *call, const tc_real *props, const tc_real *dstrain,
+static int misbehave_elastic(const tc_call *call, const tc_real *properties, const tc_real *dstrain,
                              const tc_real *stress0, const tc_real *state0, tc_real *stress,
                              tc_real *state, tc_real *tangent, tc_report *report)
 {
     const int n = call->ncomp;
-    if (call->nprop < 2) {
+    if (call->nproperties < 2) {
         report->status = TC_STATUS_FAILED;
         misbehave_message(report, "misbehave: needs 2 properties [E, nu]");
         return 0;
     }
-    if (!misbehave_stiffness(n, props[0], props[1], tangent)) {
+    if (!misbehave_stiffness(n, properties[0], properties[1], tangent)) {
         report->status = TC_STATUS_FAILED;
         misbehave_message(report, "misbehave: ncomp must be 6, 4, 3 or 1");
         return 0;
@@ -134,13 +134,13 @@ static int misbehave_elastic(const tc_call *call, const tc_real *props, const tc
 
 #define MISBEHAVE_UNUSED                                                                      \
     (void)strain;                                                                            \
-    (void)temp;                                                                              \
+    (void)temperature;                                                                              \
     (void)dstress_dtemp;                                                                     \
     (void)energy
 
 /* The elastic part, then `misbehaving` only from increment 2 on. */
 #define MISBEHAVE_FROM_INCREMENT_2                                                            \
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,      \
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,      \
                            report) ||                                                         \
         call->increment < 2)                                                                  \
     return
@@ -148,7 +148,7 @@ static int misbehave_elastic(const tc_call *call, const tc_real *props, const tc
 TC_ROUTINE(bad_null_deref)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
@@ -163,13 +163,13 @@ TC_ROUTINE(bad_null_deref)
 TC_ROUTINE(bad_divide_by_zero)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
     if (call->increment >= 2) {
         /* E - E is zero at run time; volatile keeps the compiler from folding anything. */
-        volatile double e = props[0];
+        volatile double e = properties[0];
         double zero = e - e;
         stress[0] = stress[0] + e / zero;
     }
@@ -178,7 +178,7 @@ TC_ROUTINE(bad_divide_by_zero)
 TC_ROUTINE(bad_abort)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
@@ -190,7 +190,7 @@ TC_ROUTINE(bad_abort)
 TC_ROUTINE(bad_exit)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
@@ -215,7 +215,7 @@ static double misbehave_descend(const volatile double *above, long depth)
 TC_ROUTINE(bad_infinite_loop)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
@@ -230,7 +230,7 @@ TC_ROUTINE(bad_infinite_loop)
 TC_ROUTINE(bad_deep_recursion)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent,
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                            report)) {
         return;
     }
@@ -256,7 +256,7 @@ TC_ROUTINE(bad_props_overread)
     MISBEHAVE_UNUSED;
     MISBEHAVE_FROM_INCREMENT_2;
     /* Reads one property more than it was given: whatever lies there shifts the stress. */
-    stress[0] = stress[0] + props[call->nprop];
+    stress[0] = stress[0] + properties[call->nproperties];
 }
 
 TC_ROUTINE(bad_tangent_hole)
@@ -266,7 +266,7 @@ TC_ROUTINE(bad_tangent_hole)
      * entry; from increment 2 on the copy skips entry 1 (row 2, column 1), which keeps what
      * arrived there. */
     tc_real c[36];
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, c, report)) {
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, c, report)) {
         return;
     }
     const int n = call->ncomp;
@@ -298,20 +298,20 @@ TC_ROUTINE(bad_hidden_state)
 TC_ROUTINE(bad_branch_overread)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report)) {
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent, report)) {
         return;
     }
     /* A second branch that reads one property more than it was given. */
     if (tc_re(strain[0] + dstrain[0]) > 5e-4) {
         report->branch = 1;
-        stress[0] = stress[0] + props[call->nprop];
+        stress[0] = stress[0] + properties[call->nproperties];
     }
 }
 
 TC_ROUTINE(bad_unguarded_norm)
 {
     MISBEHAVE_UNUSED;
-    if (!misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report)) {
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent, report)) {
         return;
     }
     /* The direction of the increment, normalised without a guard: 0/0 for a zero increment. */
@@ -406,7 +406,7 @@ TC_ROUTINE(bad_helper_thread)
         started = 1;
         pthread_detach(t);
     }
-    misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report);
+    misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent, report);
 }
 
 TC_ROUTINE(bad_printf)
@@ -414,5 +414,5 @@ TC_ROUTINE(bad_printf)
     MISBEHAVE_UNUSED;
     printf("bad_printf: increment %d, a line on standard output\n", call->increment);
     puts("{ not json");
-    misbehave_elastic(call, props, dstrain, stress0, state0, stress, state, tangent, report);
+    misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent, report);
 }

@@ -31,10 +31,10 @@ __attribute__((constructor)) static void misbehave_ctor_exit(void)
 
 TC_ROUTINE(ctor_elastic)
 {
-    (void)props;
+    (void)properties;
     (void)strain;
     (void)dstrain;
-    (void)temp;
+    (void)temperature;
     (void)stress0;
     (void)state0;
     (void)stress;

@@ -13,16 +13,16 @@
 TC_ROUTINE(omp_elastic)
 {
     (void)strain;
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
     (void)energy;
     const int n = call->ncomp;
-    if (n != 6 || call->nprop < 2) {
+    if (n != 6 || call->nproperties < 2) {
         report->status = TC_STATUS_FAILED;
         return;
     }
     /* Lame constants (textbook relations of isotropic elasticity). */
-    tc_real e = props[0], nu = props[1];
+    tc_real e = properties[0], nu = properties[1];
     tc_real mu = e / (2.0 * (1.0 + nu));
     tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
     int i;

@@ -51,17 +51,17 @@ static double or_weight(int slot) { return slot < 3 ? 1.0 : sqrt(2.0); }
 
 /* The orthonormal material axes as the columns of r (r[i][a] = component i of axis a).
  * Returns 0 after reporting a failure. */
-static int or_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
+static int or_axes(const tc_real *properties, tc_real r[3][3], tc_report *report)
 {
-    const tc_real *a1 = props + OR_A1;
-    const tc_real *a2 = props + OR_A2;
+    const tc_real *a1 = properties + OR_A1;
+    const tc_real *a2 = properties + OR_A2;
     int finite = 1;
     for (int k = 0; k < 3; ++k) {
         finite = finite && isfinite(tc_re(a1[k])) && isfinite(tc_re(a2[k]));
     }
     const tc_real n1 = a1[0] * a1[0] + a1[1] * a1[1] + a1[2] * a1[2];
     if (!finite || !(tc_re(n1) > 0.0)) {
-        or_fail(report, "axis 1 (props[9..12]) must be a finite nonzero vector");
+        or_fail(report, "axis 1 (properties[9..12]) must be a finite nonzero vector");
         return 0;
     }
     const tc_real l1 = tc_sqrt(n1);
@@ -76,7 +76,7 @@ static int or_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
     const tc_real nb = b[0] * b[0] + b[1] * b[1] + b[2] * b[2];
     const double n2 = tc_re(a2[0] * a2[0] + a2[1] * a2[1] + a2[2] * a2[2]);
     if (!(tc_re(nb) > 0.0) || tc_re(nb) <= OR_PARALLEL_TOL * OR_PARALLEL_TOL * n2) {
-        or_fail(report, "axis 2 (props[12..15]) must be nonzero and not parallel to axis 1");
+        or_fail(report, "axis 2 (properties[12..15]) must be nonzero and not parallel to axis 1");
         return 0;
     }
     const tc_real lb = tc_sqrt(nb);
@@ -96,28 +96,28 @@ static int or_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
 /* The material stiffness in canonical Voigt order, engineering-shear columns: the inverse of
  * the compliance [[1/E1, -nu12/E1, -nu13/E1], [., 1/E2, -nu23/E2], [., ., 1/E3]] (symmetric)
  * with shear diagonal G23, G13, G12. Returns 0 after reporting a failure. */
-static int or_material(const tc_real *props, tc_real c[6][6], tc_report *report)
+static int or_material(const tc_real *properties, tc_real c[6][6], tc_report *report)
 {
     const int moduli[6] = {OR_E1, OR_E2, OR_E3, OR_G12, OR_G13, OR_G23};
     for (int k = 0; k < 6; ++k) {
-        const double x = tc_re(props[moduli[k]]);
+        const double x = tc_re(properties[moduli[k]]);
         if (!(x > 0.0 && isfinite(x))) {
-            or_fail(report, "E1, E2, E3, G12, G13, G23 (props[0..3], props[6..9]) must be positive");
+            or_fail(report, "E1, E2, E3, G12, G13, G23 (properties[0..3], properties[6..9]) must be positive");
             return 0;
         }
     }
     for (int k = OR_NU12; k <= OR_NU23; ++k) {
-        if (!isfinite(tc_re(props[k]))) {
-            or_fail(report, "nu12, nu13, nu23 (props[3..6]) must be finite");
+        if (!isfinite(tc_re(properties[k]))) {
+            or_fail(report, "nu12, nu13, nu23 (properties[3..6]) must be finite");
             return 0;
         }
     }
-    const tc_real s11 = 1.0 / props[OR_E1];
-    const tc_real s22 = 1.0 / props[OR_E2];
-    const tc_real s33 = 1.0 / props[OR_E3];
-    const tc_real s12 = -props[OR_NU12] / props[OR_E1];
-    const tc_real s13 = -props[OR_NU13] / props[OR_E1];
-    const tc_real s23 = -props[OR_NU23] / props[OR_E2];
+    const tc_real s11 = 1.0 / properties[OR_E1];
+    const tc_real s22 = 1.0 / properties[OR_E2];
+    const tc_real s33 = 1.0 / properties[OR_E3];
+    const tc_real s12 = -properties[OR_NU12] / properties[OR_E1];
+    const tc_real s13 = -properties[OR_NU13] / properties[OR_E1];
+    const tc_real s23 = -properties[OR_NU23] / properties[OR_E2];
     /* Cofactors; positive definite when the leading minors are (Sylvester). */
     const tc_real c11 = s22 * s33 - s23 * s23;
     const tc_real c12 = s13 * s23 - s12 * s33;
@@ -142,19 +142,19 @@ static int or_material(const tc_real *props, tc_real c[6][6], tc_report *report)
     c[0][1] = c[1][0] = c12 / det;
     c[0][2] = c[2][0] = c13 / det;
     c[1][2] = c[2][1] = c23 / det;
-    c[3][3] = props[OR_G23];
-    c[4][4] = props[OR_G13];
-    c[5][5] = props[OR_G12];
+    c[3][3] = properties[OR_G23];
+    c[4][4] = properties[OR_G13];
+    c[5][5] = properties[OR_G12];
     return 1;
 }
 
 /* The global stiffness (canonical Voigt order, engineering-shear columns). With I = (i, j),
  * K = (k, l), the Mandel rotation is Q_IK = (w_I / w_K)(R_ik R_jl + [k != l] R_il R_jk), and
  * C^M = Q C'^M Q^T with C^M_IJ = w_I C_IJ w_J. Returns 0 after reporting a failure. */
-static int or_global(const tc_real *props, tc_real c[6][6], tc_report *report)
+static int or_global(const tc_real *properties, tc_real c[6][6], tc_report *report)
 {
     tc_real cmat[6][6], r[3][3], q[6][6], qc[6][6];
-    if (!or_material(props, cmat, report) || !or_axes(props, r, report)) {
+    if (!or_material(properties, cmat, report) || !or_axes(properties, r, report)) {
         return 0;
     }
     for (int bi = 0; bi < 6; ++bi) {
@@ -196,7 +196,7 @@ static int or_global(const tc_real *props, tc_real c[6][6], tc_report *report)
 
 TC_ROUTINE(c_orthotropic)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
 
     static const int slots6[6] = {0, 1, 2, 3, 4, 5};
@@ -206,14 +206,14 @@ TC_ROUTINE(c_orthotropic)
         or_fail(report, "ncomp must be 6 or 4");
         return;
     }
-    if (call->nprop < OR_NPROP) {
+    if (call->nproperties < OR_NPROP) {
         or_fail(report, "needs 15 properties [E1, E2, E3, nu12, nu13, nu23, G12, G13, G23, a1, a2]");
         return;
     }
     const int *slots = n == 6 ? slots6 : slots4;
 
     tc_real c[6][6];
-    if (!or_global(props, c, report)) {
+    if (!or_global(properties, c, report)) {
         return;
     }
 
@@ -232,8 +232,8 @@ TC_ROUTINE(c_orthotropic)
         state[k] = state0[k];
     }
 
-    energy[0] = 0.5 * stored;
-    energy[1] = 0.0;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = 0.0;
     report->provides = TC_PROVIDES_ENERGY;
     report->branch = 0;
     report->status = TC_STATUS_OK;

@@ -50,16 +50,16 @@ static void pl_fail(tc_report *report, const char *text)
 static double pl_w(int slot) { return slot < 3 ? 1.0 : sqrt(2.0); }
 
 /* Orthonormal axes (columns of r) by Gram-Schmidt, as the orthotropic routine. */
-static int pl_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
+static int pl_axes(const tc_real *properties, tc_real r[3][3], tc_report *report)
 {
-    const tc_real *a1 = props + 9, *a2 = props + 12;
+    const tc_real *a1 = properties + 9, *a2 = properties + 12;
     const tc_real n1 = a1[0] * a1[0] + a1[1] * a1[1] + a1[2] * a1[2];
     int finite = 1;
     for (int k = 0; k < 3; ++k) {
         finite = finite && isfinite(tc_re(a1[k])) && isfinite(tc_re(a2[k]));
     }
     if (!finite || !(tc_re(n1) > 0.0)) {
-        pl_fail(report, "material axes a1 (props[9..12]) and a2 (props[12..15]) must be nonzero, not parallel");
+        pl_fail(report, "material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
         return 0;
     }
     const tc_real l1 = tc_sqrt(n1);
@@ -74,7 +74,7 @@ static int pl_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
     const tc_real nb = b[0] * b[0] + b[1] * b[1] + b[2] * b[2];
     const double n2 = tc_re(a2[0] * a2[0] + a2[1] * a2[1] + a2[2] * a2[2]);
     if (!(tc_re(nb) > 0.0) || tc_re(nb) <= 1e-16 * n2) {
-        pl_fail(report, "material axes a1 (props[9..12]) and a2 (props[12..15]) must be nonzero, not parallel");
+        pl_fail(report, "material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
         return 0;
     }
     const tc_real lb = tc_sqrt(nb);
@@ -94,7 +94,7 @@ static int pl_axes(const tc_real *props, tc_real r[3][3], tc_report *report)
 /* Material stiffness (3D, or the reduced plane-stress one in slots 0, 1, 5). */
 static int pl_stiffness(const tc_real *p, int plane_stress, tc_real c[6][6], tc_report *report)
 {
-    const char *bad = "E1..E3, G12..G23 must be positive and the compliance positive definite (props[0..9])";
+    const char *bad = "E1..E3, G12..G23 must be positive and the compliance positive definite (properties[0..9])";
     const int moduli[6] = {0, 1, 2, 6, 7, 8};
     for (int k = 0; k < 6; ++k) {
         const double x = tc_re(p[moduli[k]]);
@@ -133,7 +133,7 @@ static int pl_stiffness(const tc_real *p, int plane_stress, tc_real c[6][6], tc_
     const tc_real nu21 = p[3] * p[1] / p[0];
     const tc_real den = 1.0 - p[3] * nu21;
     if (!(tc_re(den) > 0.0)) {
-        pl_fail(report, "1 - nu12 nu21 must be positive (props[0], props[1], props[3])");
+        pl_fail(report, "1 - nu12 nu21 must be positive (properties[0], properties[1], properties[3])");
         return 0;
     }
     c[0][0] = p[0] / den;
@@ -180,7 +180,7 @@ static tc_real pl_hashin(int m, const tc_real s[6], const tc_real *x, tc_real g[
 
 static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_real *strain,
                       const tc_real *dstrain, const tc_real *state0, tc_real *stress,
-                      tc_real *state, tc_real *tangent, tc_real *dstress_dtemp, tc_real *energy,
+                      tc_real *state, tc_real *tangent, tc_real *dstress_dtemp, tc_energy *energy,
                       tc_report *report)
 {
     static const int slots6[6] = {0, 1, 2, 3, 4, 5};
@@ -190,7 +190,7 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
         pl_fail(report, "ncomp must be 6 (solid-3d) or 3 (plane stress)");
         return;
     }
-    if (call->nprop < PL_NPROP || call->nstate < PL_NSTATE) {
+    if (call->nproperties < PL_NPROP || call->nstate < PL_NSTATE) {
         pl_fail(report, "needs 26 properties and 8 state variables (DEVELOPERS.md)");
         return;
     }
@@ -207,13 +207,13 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
     for (int k = PL_XT; k < PL_ETA; ++k) {
         const double v = tc_re(p[k]);
         if (!(v > 0.0 && isfinite(v))) {
-            pl_fail(report, "strengths, fracture energies and L (props[15..25]) must be positive");
+            pl_fail(report, "strengths, fracture energies and L (properties[15..25]) must be positive");
             return;
         }
     }
     const tc_real eta = p[PL_ETA];
     if (!(tc_re(eta) >= 0.0 && isfinite(tc_re(eta)))) {
-        pl_fail(report, "the viscosity eta (props[25]) must be zero or positive");
+        pl_fail(report, "the viscosity eta (properties[25]) must be zero or positive");
         return;
     }
     const double dt = call->dtime;
@@ -395,8 +395,8 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
         }
         dstress_dtemp[i] = 0.0;
     }
-    energy[0] = 0.0;
-    energy[1] = 0.0;
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
     int damaged = 0;
     for (int m = 0; m < 4; ++m) {
         damaged = damaged || tc_re(d[m]) > 0.0;
@@ -409,9 +409,9 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
 #define PL_ENTRY(name, flaw)                                                                 \
     TC_ROUTINE(name)                                                                         \
     {                                                                                        \
-        (void)temp;                                                                          \
+        (void)temperature;                                                                          \
         (void)stress0;                                                                       \
-        pl_update(flaw, call, props, strain, dstrain, state0, stress, state, tangent,       \
+        pl_update(flaw, call, properties, strain, dstrain, state0, stress, state, tangent,       \
                   dstress_dtemp, energy, report);                                            \
     }
 

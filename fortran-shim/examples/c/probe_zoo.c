@@ -120,7 +120,7 @@ static void pz_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
  * state carried through from entry `keep` on, status OK, branch 0. Returns 0 after reporting a
  * failure. `kinds` is a bit set of the ncomp values accepted (bit n for ncomp n).
  */
-static int pz_elastic(const char *model, unsigned kinds, const tc_call *call, const tc_real *props,
+static int pz_elastic(const char *model, unsigned kinds, const tc_call *call, const tc_real *properties,
                       const tc_real *dstrain, const tc_real *stress0, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent, int keep,
                       tc_report *report)
@@ -130,15 +130,15 @@ static int pz_elastic(const char *model, unsigned kinds, const tc_call *call, co
         pz_fail(report, model, "unsupported ncomp");
         return 0;
     }
-    if (call->nprop < 2) {
+    if (call->nproperties < 2) {
         pz_fail(report, model, "needs 2 properties [E, nu]");
         return 0;
     }
-    if (!(tc_re(props[0]) > 0.0) || !(tc_re(props[1]) > -1.0 && tc_re(props[1]) < 0.5)) {
+    if (!(tc_re(properties[0]) > 0.0) || !(tc_re(properties[1]) > -1.0 && tc_re(properties[1]) < 0.5)) {
         pz_fail(report, model, "needs E > 0 and -1 < nu < 0.5");
         return 0;
     }
-    pz_stiffness(n, props[0], props[1], tangent);
+    pz_stiffness(n, properties[0], properties[1], tangent);
     for (int i = 0; i < n; ++i) {
         tc_real s = stress0[i];
         for (int j = 0; j < n; ++j) {
@@ -154,17 +154,17 @@ static int pz_elastic(const char *model, unsigned kinds, const tc_call *call, co
     return 1;
 }
 
-/* energy[0] = 1/2 sigma . (strain + dstrain) (engineering shear: the work-conjugate product),
- * energy[1] = dissipated, and the ENERGY bit. */
+/* energy->stored = 1/2 sigma . (strain + dstrain) (engineering shear: the work-conjugate product),
+ * energy->dissipated = dissipated, and the ENERGY bit. */
 static void pz_energy(int n, const tc_real *stress, const tc_real *strain, const tc_real *dstrain,
-                      tc_real dissipated, tc_real *energy, tc_report *report)
+                      tc_real dissipated, tc_energy *energy, tc_report *report)
 {
     tc_real stored = 0.0;
     for (int i = 0; i < n; ++i) {
         stored += stress[i] * (strain[i] + dstrain[i]);
     }
-    energy[0] = 0.5 * stored;
-    energy[1] = dissipated;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = dissipated;
     report->provides = TC_PROVIDES_ENERGY;
 }
 
@@ -177,9 +177,9 @@ static int pz_last_n = 0;
 
 TC_ROUTINE(pz_saved_state)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
-    if (!pz_elastic("pz_saved_state", PZ_SOLID_KINDS, call, props, dstrain, stress0, state0,
+    if (!pz_elastic("pz_saved_state", PZ_SOLID_KINDS, call, properties, dstrain, stress0, state0,
                     stress, state, tangent, 0, report)) {
         return;
     }
@@ -200,9 +200,9 @@ TC_ROUTINE(pz_saved_state)
 
 TC_ROUTINE(pz_writes_strain)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
-    if (!pz_elastic("pz_writes_strain", PZ_SOLID_KINDS, call, props, dstrain, stress0, state0,
+    if (!pz_elastic("pz_writes_strain", PZ_SOLID_KINDS, call, properties, dstrain, stress0, state0,
                     stress, state, tangent, 0, report)) {
         return;
     }
@@ -217,16 +217,16 @@ TC_ROUTINE(pz_writes_strain)
 
 TC_ROUTINE(pz_not_objective)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
     const unsigned kinds = (1u << 6) | (1u << 4) | (1u << 3);
-    if (!pz_elastic("pz_not_objective", kinds, call, props, dstrain, stress0, state0, stress,
+    if (!pz_elastic("pz_not_objective", kinds, call, properties, dstrain, stress0, state0, stress,
                     state, tangent, 0, report)) {
         return;
     }
     const int n = call->ncomp;
     /* d = e11 - e22 in Voigt form; the extra energy c/2 (d . eps)^2 adds c d (x) d. */
-    const tc_real c = PZ_ANISO * props[0] / (2.0 * (1.0 + props[1]));
+    const tc_real c = PZ_ANISO * properties[0] / (2.0 * (1.0 + properties[1]));
     const tc_real d_eps = dstrain[0] - dstrain[1];
     stress[0] += c * d_eps;
     stress[1] -= c * d_eps;
@@ -239,13 +239,13 @@ TC_ROUTINE(pz_not_objective)
 
 TC_ROUTINE(pz_negative_dissipation)
 {
-    (void)temp;
+    (void)temperature;
     (void)dstress_dtemp;
     if (call->nstate < 1) {
         pz_fail(report, "pz_negative_dissipation", "needs 1 state variable [work]");
         return;
     }
-    if (!pz_elastic("pz_negative_dissipation", PZ_SOLID_KINDS, call, props, dstrain, stress0,
+    if (!pz_elastic("pz_negative_dissipation", PZ_SOLID_KINDS, call, properties, dstrain, stress0,
                     state0, stress, state, tangent, 1, report)) {
         return;
     }

@@ -14,11 +14,11 @@
  * shear strain. Temperatures in degrees C; 20 C is the reference of every law.
  *   properties [E20, nu0, nu1, modulus_law, expansion_law, alpha, (T_1, k_1, T_2, k_2, ...)]:
  *     E(T) = E20 k(T), k: law 0 none (k = 1), 1 EN 1993-1-2 Table 3.1 (carbon steel k_E),
- *       2 the table of (T_i, k_i) points after props[5] (at least 2, T increasing, k >= 0);
+ *       2 the table of (T_i, k_i) points after properties[5] (at least 2, T increasing, k >= 0);
  *     nu(T) = nu0 + nu1 (T - 20), which must stay in (-1, 0.5);
  *     eps_th(T): law 0 alpha (T - 20), 1 EN 1993-1-2 section 3.4.1.1 (carbon steel).
  *   No state; state entries, if the caller passes any, are carried through unchanged.
- * Total form at the end temperature T = temp[0] + temp[1]:
+ * Total form at the end temperature T = temperature->start + temperature->increment:
  *   sigma = C(T) (strain + dstrain - eps_th(T) 1), 1 = ones on the normal components;
  *   tangent C(T); dstress_dtemp = C'(T) (eps - eps_th 1) - C(T) 1 eps_th'(T);
  *   energy: stored 1/2 sigma . (eps - eps_th 1), dissipated 0. Branch 0.
@@ -166,10 +166,10 @@ static void th_unit_matrix(int n, tc_real nu, tc_real *c, tc_real *dc)
     }
 }
 
-static void th_update(const tc_call *call, const tc_real *props, const tc_real *strain,
-                      const tc_real *dstrain, const tc_real *temp, const tc_real *state0,
+static void th_update(const tc_call *call, const tc_real *properties, const tc_real *strain,
+                      const tc_real *dstrain, const tc_temperature *temperature, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent, tc_real *dstress_dtemp,
-                      tc_real *energy, tc_report *report, double sign,
+                      tc_energy *energy, tc_report *report, double sign,
                       double expansion)
 {
     const int n = call->ncomp;
@@ -177,40 +177,40 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
         th_fail(report, "ncomp must be 6, 4, 3 or 1");
         return;
     }
-    if (call->nprop < TH_NFIXED) {
+    if (call->nproperties < TH_NFIXED) {
         th_fail(report, "needs 6 properties [E20, nu0, nu1, modulus_law, expansion_law, alpha]");
         return;
     }
-    const tc_real e20 = props[TH_E20];
-    const tc_real nu0 = props[TH_NU0];
-    const tc_real nu1 = props[TH_NU1];
+    const tc_real e20 = properties[TH_E20];
+    const tc_real nu0 = properties[TH_NU0];
+    const tc_real nu1 = properties[TH_NU1];
     if (!(tc_re(e20) > 0.0)) {
-        th_fail(report, "E20 (props[0]) must be positive");
+        th_fail(report, "E20 (properties[0]) must be positive");
         return;
     }
     if (!(isfinite(tc_re(nu0)) && isfinite(tc_re(nu1)))) {
-        th_fail(report, "nu0, nu1 (props[1], props[2]) must be finite");
+        th_fail(report, "nu0, nu1 (properties[1], properties[2]) must be finite");
         return;
     }
-    const int modulus_law = th_law(props[TH_MODULUS_LAW], 2);
+    const int modulus_law = th_law(properties[TH_MODULUS_LAW], 2);
     if (modulus_law < 0) {
-        th_fail(report, "modulus_law (props[3]) must be 0, 1 or 2");
+        th_fail(report, "modulus_law (properties[3]) must be 0, 1 or 2");
         return;
     }
-    const int expansion_law = th_law(props[TH_EXPANSION_LAW], 1);
+    const int expansion_law = th_law(properties[TH_EXPANSION_LAW], 1);
     if (expansion_law < 0) {
-        th_fail(report, "expansion_law (props[4]) must be 0 or 1");
+        th_fail(report, "expansion_law (properties[4]) must be 0 or 1");
         return;
     }
-    if (!isfinite(tc_re(props[TH_ALPHA]))) {
-        th_fail(report, "alpha (props[5]) must be finite");
+    if (!isfinite(tc_re(properties[TH_ALPHA]))) {
+        th_fail(report, "alpha (properties[5]) must be finite");
         return;
     }
-    const int ntab = call->nprop - TH_NFIXED;
-    const tc_real *table = props + TH_NFIXED;
+    const int ntab = call->nproperties - TH_NFIXED;
+    const tc_real *table = properties + TH_NFIXED;
     if (modulus_law == 2) {
         if (ntab < 4 || ntab % 2 != 0) {
-            th_fail(report, "modulus_law 2 needs at least 2 (T, k) points after props[5]");
+            th_fail(report, "modulus_law 2 needs at least 2 (T, k) points after properties[5]");
             return;
         }
         for (int i = 0; i < ntab / 2; ++i) {
@@ -227,7 +227,7 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
         }
     }
 
-    const tc_real t = temp[0] + temp[1];
+    const tc_real t = temperature->start + temperature->increment;
     if (!isfinite(tc_re(t))) {
         th_fail(report, "temperature must be finite");
         return;
@@ -257,8 +257,8 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
     tc_real eps_th;
     tc_real deps_th;
     if (expansion_law == 0) {
-        eps_th = props[TH_ALPHA] * (t - TH_T_REF);
-        deps_th = props[TH_ALPHA];
+        eps_th = properties[TH_ALPHA] * (t - TH_T_REF);
+        deps_th = properties[TH_ALPHA];
     } else {
         th_en_elongation(t, &eps_th, &deps_th);
     }
@@ -297,8 +297,8 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
     for (int i = 0; i < call->nstate; ++i) {
         state[i] = state0[i];
     }
-    energy[0] = 0.5 * stored;
-    energy[1] = 0.0;
+    energy->stored = 0.5 * stored;
+    energy->dissipated = 0.0;
     report->provides = TC_PROVIDES_DSTRESS_DTEMP | TC_PROVIDES_ENERGY;
     report->branch = 0;
     report->status = TC_STATUS_OK;
@@ -307,14 +307,14 @@ static void th_update(const tc_call *call, const tc_real *props, const tc_real *
 TC_ROUTINE(c_thermo)
 {
     (void)stress0;
-    th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+    th_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, 1.0, 1.0);
 }
 
 TC_ROUTINE(c_thermo_dtemp_sign)
 {
     (void)stress0;
-    th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+    th_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, -1.0, 1.0);
 }
 
@@ -323,6 +323,6 @@ TC_ROUTINE(c_thermo_dtemp_sign)
 TC_ROUTINE(c_thermo_partial_dtemp)
 {
     (void)stress0;
-    th_update(call, props, strain, dstrain, temp, state0, stress, state, tangent, dstress_dtemp,
+    th_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, 1.0, 0.0);
 }

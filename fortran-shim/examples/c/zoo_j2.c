@@ -98,16 +98,16 @@ typedef enum {
 #endif
 
 /* K(alpha) = sigma_y0 + H_iso alpha + Q (1 - exp(-b alpha)). */
-static tc_real zj_yield(const tc_real *props, tc_real alpha)
+static tc_real zj_yield(const tc_real *properties, tc_real alpha)
 {
-    return props[ZJ_SIGMA_Y0] + props[ZJ_H_ISO] * alpha +
-           props[ZJ_Q] * (1.0 - tc_exp(-props[ZJ_B] * alpha));
+    return properties[ZJ_SIGMA_Y0] + properties[ZJ_H_ISO] * alpha +
+           properties[ZJ_Q] * (1.0 - tc_exp(-properties[ZJ_B] * alpha));
 }
 
 /* K'(alpha) = H_iso + Q b exp(-b alpha). */
-static tc_real zj_yield_slope(const tc_real *props, tc_real alpha)
+static tc_real zj_yield_slope(const tc_real *properties, tc_real alpha)
 {
-    return props[ZJ_H_ISO] + props[ZJ_Q] * props[ZJ_B] * tc_exp(-props[ZJ_B] * alpha);
+    return properties[ZJ_H_ISO] + properties[ZJ_Q] * properties[ZJ_B] * tc_exp(-properties[ZJ_B] * alpha);
 }
 
 static void zj_fail(tc_report *report, const char *name, const char *text)
@@ -173,7 +173,7 @@ static void zj_matrix(int n, tc_real kappa, tc_real mu, tc_real theta, tc_real t
     }
 }
 
-static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const tc_real *props,
+static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const tc_real *properties,
                       const tc_real *strain, const tc_real *dstrain, const tc_real *state0,
                       tc_real *stress, tc_real *state, tc_real *tangent, tc_report *report)
 {
@@ -185,7 +185,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         zj_fail(report, name, needs_3d ? "ncomp must be 6" : "ncomp must be 6 or 4");
         return;
     }
-    if (call->nprop < ZJ_NPROP) {
+    if (call->nproperties < ZJ_NPROP) {
         zj_fail(report, name, "needs 7 properties [E, nu, sy0, H_iso, Q, b, H_kin]");
         return;
     }
@@ -198,9 +198,9 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     }
 
     const double sqrt23 = sqrt(2.0 / 3.0);
-    const tc_real e = props[ZJ_E];
-    const tc_real nu = props[ZJ_NU];
-    const tc_real h_kin = props[ZJ_H_KIN];
+    const tc_real e = properties[ZJ_E];
+    const tc_real nu = properties[ZJ_NU];
+    const tc_real h_kin = properties[ZJ_H_KIN];
     const tc_real mu = e / (2.0 * (1.0 + nu));
     const tc_real kappa = e / (3.0 * (1.0 - 2.0 * nu));
     const tc_real *eps_p_n = state0;
@@ -211,7 +211,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     tc_real sigma_tr[6];
     tc_real xi[6];
     const tc_real norm = zj_relative_stress(flaw, n, mu, kappa, strain, dstrain, eps_p_n, beta_n, sigma_tr, xi);
-    const tc_real f_trial = norm - sqrt23 * zj_yield(props, alpha_n);
+    const tc_real f_trial = norm - sqrt23 * zj_yield(properties, alpha_n);
 
     tc_real n_dir[6] = {0.0, 0.0, 0.0, 0.0, 0.0, 0.0};
     tc_real theta = 1.0;
@@ -240,8 +240,8 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
         int converged = 0;
         for (;;) {
             const tc_real alpha = alpha_n + sqrt23 * dgamma;
-            const tc_real g = norm - c_lin * dgamma - sqrt23 * zj_yield(props, alpha);
-            const tc_real g_slope = -c_lin - (2.0 / 3.0) * zj_yield_slope(props, alpha);
+            const tc_real g = norm - c_lin * dgamma - sqrt23 * zj_yield(properties, alpha);
+            const tc_real g_slope = -c_lin - (2.0 / 3.0) * zj_yield_slope(properties, alpha);
             const tc_real step = -g / g_slope;
             dgamma += step;
             ++iter;
@@ -268,7 +268,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
          *   theta = 1 - 2 mu dg / |xi_tr|,
          *   theta_bar = 1 / (1 + (K' + H_kin) / (3 mu)) - (1 - theta);
          * the flaw "no kinematic" drops H_kin from theta_bar. */
-        const tc_real k_slope = zj_yield_slope(props, alpha_new);
+        const tc_real k_slope = zj_yield_slope(properties, alpha_new);
         const tc_real h_tangent = flaw == ZJ_NO_KINEMATIC ? k_slope : k_slope + h_kin;
         theta = 1.0 - 2.0 * mu * dgamma / norm;
         theta_bar = 1.0 / (1.0 + h_tangent / (3.0 * mu)) - (1.0 - theta);
@@ -395,12 +395,12 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
 #define ZJ_ROUTINE(symbol, label, flaw)                                                        \
     TC_ROUTINE(symbol)                                                                         \
     {                                                                                          \
-        (void)temp;                                                                            \
+        (void)temperature;                                                                            \
         (void)stress0;                                                                         \
         (void)dstress_dtemp;                                                                   \
-        zj_update(label, flaw, call, props, strain, dstrain, state0, stress, state, tangent,   \
+        zj_update(label, flaw, call, properties, strain, dstrain, state0, stress, state, tangent,   \
                   report);                                                                     \
-        j2_energy(call, props, strain, dstrain, stress, state, energy, report);                \
+        j2_energy(call, properties, strain, dstrain, stress, state, energy, report);                \
     }
 
 ZJ_ROUTINE(c_j2_shear_factor, "j2-shear-factor", ZJ_SHEAR_FACTOR)

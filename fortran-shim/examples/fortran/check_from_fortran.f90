@@ -31,7 +31,7 @@ program check_from_fortran
   procedure(tc_routine_complex), bind(C, name="f_j2_continuum_cx") :: f_j2_continuum_cx
 
   ! J2 properties [E, nu, sigma_y0, H_iso, Q, b, H_kin] (DEVELOPERS.md, "Reference models").
-  real(c_double), parameter :: props(7) = [200000.0_c_double, 0.3_c_double, 250.0_c_double, &
+  real(c_double), parameter :: properties(7) = [200000.0_c_double, 0.3_c_double, 250.0_c_double, &
                                            1000.0_c_double, 0.0_c_double, 0.0_c_double, &
                                            500.0_c_double]
   integer, parameter :: nstate = 13  ! 2 * 6 + 1 for a 3D solid
@@ -53,7 +53,7 @@ program check_from_fortran
   ! A bad option is an error with a message, not a verdict.
   call tck_init_options(opts)
   opts%kind = 99
-  call tck_run_check(result, c_funloc(f_j2), opts, props, nstate, err=err)
+  call tck_run_check(result, c_funloc(f_j2), opts, properties, nstate, err=err)
   if (err%status /= tck_error_invalid .or. index(err%message, "kind is 99") == 0) then
     print '(a, i0, a, a)', "a bad kind was not refused as expected: status ", err%status, &
       ", ", err%message
@@ -86,7 +86,7 @@ contains
     integer :: verdict, exit_code, nfindings, i
 
     ! Without err: a failure to run stops the program with the library's message.
-    call tck_run_check(res, routine, opts, props, nstate, twin=twin, name=name)
+    call tck_run_check(res, routine, opts, properties, nstate, twin=twin, name=name)
     call tck_get_verdict(res, verdict, exit_code)
     call tck_get_summary(res, summary)
     print '(a)', summary

@@ -39,31 +39,33 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_cohesive(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_cohesive(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                        tangent, dstress_dtemp, energy, report) bind(C, name="f_cohesive"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these, but this isothermal, total-form model reads neither temp nor
+  ! The ABI passes these, but this isothermal, total-form model reads neither temperature nor
   ! stress0 and does not write dstress_dtemp. Naming them in a namelist that is never read or
   ! written tells gfortran -Wall (-Wunused-dummy-argument) that this is deliberate; it
   ! generates no code.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                        energy, report, 0)
 
 contains
@@ -73,29 +75,31 @@ contains
 end subroutine f_cohesive
 
 
-subroutine f_cohesive_secant(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_cohesive_secant(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                              state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_cohesive_secant"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_cohesive.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                        energy, report, 1)
 
 contains
@@ -105,29 +109,31 @@ contains
 end subroutine f_cohesive_secant
 
 
-subroutine f_cohesive_no_coupling(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_cohesive_no_coupling(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                                   state, tangent, dstress_dtemp, energy, report) &
                                   bind(C, name="f_cohesive_no_coupling"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_cohesive.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                        energy, report, 2)
 
 contains
@@ -137,29 +143,31 @@ contains
 end subroutine f_cohesive_no_coupling
 
 
-subroutine f_cohesive_transposed(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_cohesive_transposed(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                                  state, tangent, dstress_dtemp, energy, report) &
                                  bind(C, name="f_cohesive_transposed"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_cohesive.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                        energy, report, 3)
 
 contains
@@ -169,29 +177,31 @@ contains
 end subroutine f_cohesive_transposed
 
 
-subroutine f_cohesive_symmetrized(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_cohesive_symmetrized(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                                   state, tangent, dstress_dtemp, energy, report) &
                                   bind(C, name="f_cohesive_symmetrized"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_cohesive.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call cohesive_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                        energy, report, 4)
 
 contains

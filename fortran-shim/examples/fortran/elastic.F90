@@ -17,26 +17,28 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_elastic(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_elastic(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                      tangent, dstress_dtemp, energy, report) bind(C, name="f_elastic"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these, but this isothermal model neither reads temp nor writes
+  ! The ABI passes these, but this isothermal model neither reads temperature nor writes
   ! dstress_dtemp. Naming them in a namelist that is never read or written tells
   ! gfortran -Wall (-Wunused-dummy-argument) that this is deliberate; it generates no code.
-  namelist /unused_arguments/ temp, dstress_dtemp
+  namelist /unused_arguments/ temperature, dstress_dtemp
 
   TC_REAL :: e, nu, mu, lambda, f, s, stored
   integer :: n, i, j
@@ -47,14 +49,14 @@ subroutine f_elastic(callinfo, props, strain, dstrain, temp, stress0, state0, st
     call tc_set_message(report, "elastic: ncomp must be 6, 4, 3 or 1")
     return
   end if
-  if (callinfo%nprop < 2) then
+  if (callinfo%nproperties < 2) then
     report%status = tc_status_failed
     call tc_set_message(report, "elastic: needs 2 properties [E, nu]")
     return
   end if
 
-  e = props(1)
-  nu = props(2)
+  e = properties(1)
+  nu = properties(2)
 
   ! Elastic stiffness in Voigt form, engineering shear columns. Lame constants
   ! lambda = E nu / ((1 + nu)(1 - 2 nu)), mu = E / (2 (1 + nu)); plane stress reduces to
@@ -102,8 +104,8 @@ subroutine f_elastic(callinfo, props, strain, dstrain, temp, stress0, state0, st
     state(i) = state0(i)
   end do
 
-  energy(1) = 0.5_c_double * stored
-  energy(2) = 0.0_c_double
+  energy%stored = 0.5_c_double * stored
+  energy%dissipated = 0.0_c_double
   report%provides = tc_provides_energy
   report%branch = 0
   report%status = tc_status_ok

@@ -27,32 +27,34 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_j2(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_j2(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_j2"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these, but this isothermal, total-form model reads neither temp nor
+  ! The ABI passes these, but this isothermal, total-form model reads neither temperature nor
   ! stress0 and writes neither dstress_dtemp nor energy. Naming them in a namelist that is
   ! never read or written tells gfortran -Wall (-Wunused-dummy-argument) that this is
   ! deliberate; it generates no code.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call j2_return_map(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call j2_return_map(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, .true.)
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -61,30 +63,32 @@ contains
 end subroutine f_j2
 
 
-subroutine f_j2_continuum(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_j2_continuum(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                           state, tangent, dstress_dtemp, energy, report) &
                           bind(C, name="f_j2_continuum"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_j2.
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call j2_return_map(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call j2_return_map(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, .false.)
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 

@@ -27,27 +27,29 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_jc(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_jc(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_jc"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp
   use tancheck_cstep, only: cs_sqrt, cs_exp, cs_log, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Total form: stress0 is not read (see f_j2 in j2.F90 for the namelist).
   namelist /unused_arguments/ stress0
 
-  call jc_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+  call jc_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
                  dstress_dtemp, energy, report, .true.)
 
 contains
@@ -57,28 +59,30 @@ contains
 end subroutine f_jc
 
 
-subroutine f_jc_no_rate_term(callinfo, props, strain, dstrain, temp, stress0, state0, &
+subroutine f_jc_no_rate_term(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
                                 stress, state, tangent, dstress_dtemp, energy, report) &
                                 bind(C, name="f_jc_no_rate_term"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp
   use tancheck_cstep, only: cs_sqrt, cs_exp, cs_log, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_jc.
   namelist /unused_arguments/ stress0
 
-  call jc_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+  call jc_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
                  dstress_dtemp, energy, report, .false.)
 
 contains

@@ -22,29 +22,31 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_orthotropic(callinfo, props, strain, dstrain, temp, stress0, state0, stress, &
+subroutine f_orthotropic(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
                          state, tangent, dstress_dtemp, energy, report) &
                          bind(C, name="f_orthotropic"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these, but this isothermal model neither reads temp nor writes
+  ! The ABI passes these, but this isothermal model neither reads temperature nor writes
   ! dstress_dtemp. Naming them in a namelist that is never read or written tells
   ! gfortran -Wall (-Wunused-dummy-argument) that this is deliberate; it generates no code.
-  namelist /unused_arguments/ temp, dstress_dtemp
+  namelist /unused_arguments/ temperature, dstress_dtemp
 
   ! Below this |a2 - (a2.e1) e1| / |a2| the two axes count as parallel.
   real(c_double), parameter :: parallel_tol = 1.0e-8_c_double
@@ -67,7 +69,7 @@ subroutine f_orthotropic(callinfo, props, strain, dstrain, temp, stress0, state0
     call tc_set_message(report, "orthotropic: ncomp must be 6 or 4")
     return
   end if
-  if (callinfo%nprop < 15) then
+  if (callinfo%nproperties < 15) then
     report%status = tc_status_failed
     call tc_set_message(report, &
       "orthotropic: needs 15 properties [E1, E2, E3, nu12, nu13, nu23, G12, G13, G23, a1, a2]")
@@ -84,27 +86,27 @@ subroutine f_orthotropic(callinfo, props, strain, dstrain, temp, stress0, state0
   ! [., 1/E2, -nu23/E2], [., ., 1/E3]] (symmetric) with shear diagonal G23, G13, G12.
   do k = 1, 9
     if (k >= 4 .and. k <= 6) cycle
-    x = real(props(k), c_double)
+    x = real(properties(k), c_double)
     if (.not. (x > 0.0_c_double .and. ieee_is_finite(x))) then
       report%status = tc_status_failed
       call tc_set_message(report, &
-        "orthotropic: E1, E2, E3, G12, G13, G23 (props[0..3], props[6..9]) must be positive")
+        "orthotropic: E1, E2, E3, G12, G13, G23 (properties[0..3], properties[6..9]) must be positive")
       return
     end if
   end do
   do k = 4, 6
-    if (.not. ieee_is_finite(real(props(k), c_double))) then
+    if (.not. ieee_is_finite(real(properties(k), c_double))) then
       report%status = tc_status_failed
-      call tc_set_message(report, "orthotropic: nu12, nu13, nu23 (props[3..6]) must be finite")
+      call tc_set_message(report, "orthotropic: nu12, nu13, nu23 (properties[3..6]) must be finite")
       return
     end if
   end do
-  s11 = 1.0_c_double / props(1)
-  s22 = 1.0_c_double / props(2)
-  s33 = 1.0_c_double / props(3)
-  s12 = -props(4) / props(1)
-  s13 = -props(5) / props(1)
-  s23 = -props(6) / props(2)
+  s11 = 1.0_c_double / properties(1)
+  s22 = 1.0_c_double / properties(2)
+  s33 = 1.0_c_double / properties(3)
+  s12 = -properties(4) / properties(1)
+  s13 = -properties(5) / properties(1)
+  s23 = -properties(6) / properties(2)
   ! Cofactors; positive definite when the leading minors are (Sylvester).
   c11 = s22 * s33 - s23 * s23
   c12 = s13 * s23 - s12 * s33
@@ -129,37 +131,37 @@ subroutine f_orthotropic(callinfo, props, strain, dstrain, temp, stress0, state0
   cm(3, 1) = c13 / det
   cm(2, 3) = c23 / det
   cm(3, 2) = c23 / det
-  cm(4, 4) = props(9)
-  cm(5, 5) = props(8)
-  cm(6, 6) = props(7)
+  cm(4, 4) = properties(9)
+  cm(5, 5) = properties(8)
+  cm(6, 6) = properties(7)
 
   ! Material axes by Gram-Schmidt, as the columns of r (r(i, a) = component i of axis a).
   finite = .true.
   do k = 1, 3
-    finite = finite .and. ieee_is_finite(real(props(9 + k), c_double)) .and. &
-             ieee_is_finite(real(props(12 + k), c_double))
+    finite = finite .and. ieee_is_finite(real(properties(9 + k), c_double)) .and. &
+             ieee_is_finite(real(properties(12 + k), c_double))
   end do
-  n1 = props(10) * props(10) + props(11) * props(11) + props(12) * props(12)
+  n1 = properties(10) * properties(10) + properties(11) * properties(11) + properties(12) * properties(12)
   if (.not. finite .or. .not. (real(n1, c_double) > 0.0_c_double)) then
     report%status = tc_status_failed
-    call tc_set_message(report, "orthotropic: axis 1 (props[9..12]) must be a finite nonzero vector")
+    call tc_set_message(report, "orthotropic: axis 1 (properties[9..12]) must be a finite nonzero vector")
     return
   end if
   l1 = cs_sqrt(n1)
   do k = 1, 3
-    e1v(k) = props(9 + k) / l1
+    e1v(k) = properties(9 + k) / l1
   end do
-  p = props(13) * e1v(1) + props(14) * e1v(2) + props(15) * e1v(3)
+  p = properties(13) * e1v(1) + properties(14) * e1v(2) + properties(15) * e1v(3)
   do k = 1, 3
-    b(k) = props(12 + k) - p * e1v(k)
+    b(k) = properties(12 + k) - p * e1v(k)
   end do
   nb = b(1) * b(1) + b(2) * b(2) + b(3) * b(3)
-  n2 = real(props(13) * props(13) + props(14) * props(14) + props(15) * props(15), c_double)
+  n2 = real(properties(13) * properties(13) + properties(14) * properties(14) + properties(15) * properties(15), c_double)
   if (.not. (real(nb, c_double) > 0.0_c_double) .or. &
       real(nb, c_double) <= parallel_tol * parallel_tol * n2) then
     report%status = tc_status_failed
     call tc_set_message(report, &
-      "orthotropic: axis 2 (props[12..15]) must be nonzero and not parallel to axis 1")
+      "orthotropic: axis 2 (properties[12..15]) must be nonzero and not parallel to axis 1")
     return
   end if
   lb = cs_sqrt(nb)
@@ -230,8 +232,8 @@ subroutine f_orthotropic(callinfo, props, strain, dstrain, temp, stress0, state0
     state(i) = state0(i)
   end do
 
-  energy(1) = 0.5_c_double * stored
-  energy(2) = 0.0_c_double
+  energy%stored = 0.5_c_double * stored
+  energy%dissipated = 0.0_c_double
   report%provides = tc_provides_energy
   report%branch = 0
   report%status = tc_status_ok

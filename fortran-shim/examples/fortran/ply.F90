@@ -23,28 +23,30 @@
 #include "tancheck_twin.inc"
 
 ! f_ply: correct.
-subroutine f_ply(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 0)
 
 contains
@@ -54,28 +56,30 @@ contains
 end subroutine f_ply
 
 ! f_ply_secant: the secant (1 - D) C in damage growth.
-subroutine f_ply_secant(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply_secant(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply_secant"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 1)
 
 contains
@@ -85,28 +89,30 @@ contains
 end subroutine f_ply_secant
 
 ! f_ply_no_coupling: the growth of the shear damage left out of the tangent.
-subroutine f_ply_no_coupling(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply_no_coupling(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply_no_coupling"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 2)
 
 contains
@@ -116,28 +122,30 @@ contains
 end subroutine f_ply_no_coupling
 
 ! f_ply_viscous_no_factor: the viscous tangent without dt/(eta + dt).
-subroutine f_ply_viscous_no_factor(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply_viscous_no_factor(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply_viscous_no_factor"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 3)
 
 contains
@@ -147,28 +155,30 @@ contains
 end subroutine f_ply_viscous_no_factor
 
 ! f_ply_length_dropped: L dropped from the regularisation (as if 1).
-subroutine f_ply_length_dropped(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply_length_dropped(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply_length_dropped"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 4)
 
 contains
@@ -178,28 +188,30 @@ contains
 end subroutine f_ply_length_dropped
 
 ! f_ply_healing: damage from the current failure measure: heals on unloading.
-subroutine f_ply_healing(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_ply_healing(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                 tangent, dstress_dtemp, energy, report) bind(C, name="f_ply_healing"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, tc_status_failed
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, tc_status_failed
   use tancheck_cstep, only: cs_sqrt, cs_max
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
-  ! The ABI passes these; this isothermal, total-form model reads neither temp nor stress0.
+  ! The ABI passes these; this isothermal, total-form model reads neither temperature nor stress0.
   ! Naming them in a namelist that is never used keeps gfortran -Wall quiet; no code.
-  namelist /unused_arguments/ temp, stress0
+  namelist /unused_arguments/ temperature, stress0
 
-  call ply_update(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call ply_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                   dstress_dtemp, energy, report, 5)
 
 contains

@@ -13,11 +13,11 @@
 ! shear strain. Temperatures in degrees C; 20 C is the reference of every law.
 !   properties [E20, nu0, nu1, modulus_law, expansion_law, alpha, (T_1, k_1, T_2, k_2, ...)]:
 !     E(T) = E20 k(T), k: law 0 none (k = 1), 1 EN 1993-1-2 Table 3.1 (carbon steel k_E),
-!       2 the table of (T_i, k_i) points after props(6) (at least 2, T increasing, k >= 0);
+!       2 the table of (T_i, k_i) points after properties(6) (at least 2, T increasing, k >= 0);
 !     nu(T) = nu0 + nu1 (T - 20), which must stay in (-1, 0.5);
 !     eps_th(T): law 0 alpha (T - 20), 1 EN 1993-1-2 section 3.4.1.1 (carbon steel).
 !   No state; state entries, if the caller passes any, are carried through unchanged.
-! Total form at the end temperature T = temp(1) + temp(2):
+! Total form at the end temperature T = temperature%start + temperature%increment:
 !   sigma = C(T) (strain + dstrain - eps_th(T) 1), 1 = ones on the normal components;
 !   tangent C(T); dstress_dtemp = C'(T) (eps - eps_th 1) - C(T) 1 eps_th'(T);
 !   energy: stored 1/2 sigma . (eps - eps_th 1), dissipated 0. Branch 0.
@@ -35,21 +35,23 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_thermo(callinfo, props, strain, dstrain, temp, stress0, state0, stress, state, &
+subroutine f_thermo(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
                     tangent, dstress_dtemp, energy, report) bind(C, name="f_thermo"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! The ABI passes stress0, but this total-form model does not read it. Naming it in a
@@ -57,7 +59,7 @@ subroutine f_thermo(callinfo, props, strain, dstrain, temp, stress0, state0, str
   ! that this is deliberate; it generates no code.
   namelist /unused_arguments/ stress0
 
-  call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
                      dstress_dtemp, energy, report, 1.0_c_double, 1.0_c_double)
 
 contains
@@ -67,28 +69,30 @@ contains
 end subroutine f_thermo
 
 
-subroutine f_thermo_dtemp_sign(callinfo, props, strain, dstrain, temp, stress0, state0, &
+subroutine f_thermo_dtemp_sign(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
                                stress, state, tangent, dstress_dtemp, energy, report) &
                                bind(C, name="f_thermo_dtemp_sign"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_thermo.
   namelist /unused_arguments/ stress0
 
-  call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
                      dstress_dtemp, energy, report, -1.0_c_double, 1.0_c_double)
 
 contains
@@ -98,28 +102,30 @@ contains
 end subroutine f_thermo_dtemp_sign
 
 
-subroutine f_thermo_partial_dtemp(callinfo, props, strain, dstrain, temp, stress0, state0, &
+subroutine f_thermo_partial_dtemp(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
                                   stress, state, tangent, dstress_dtemp, energy, report) &
                                   bind(C, name="f_thermo_partial_dtemp"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! See f_thermo.
   namelist /unused_arguments/ stress0
 
-  call thermo_update(callinfo, props, strain, dstrain, temp, state0, stress, state, tangent, &
+  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
                      dstress_dtemp, energy, report, 1.0_c_double, 0.0_c_double)
 
 contains

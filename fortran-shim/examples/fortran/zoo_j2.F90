@@ -37,30 +37,32 @@
 #include "tancheck_twin.inc"
 
 
-subroutine f_j2_shear_factor(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_shear_factor(callinfo, properties, strain, dstrain, temperature, stress0, &
                              state0, stress, state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_j2_shear_factor"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "shear-factor")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -70,30 +72,32 @@ contains
 end subroutine f_j2_shear_factor
 
 
-subroutine f_j2_shear_permuted(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_shear_permuted(callinfo, properties, strain, dstrain, temperature, stress0, &
                                state0, stress, state, tangent, dstress_dtemp, energy, report) &
                                bind(C, name="f_j2_shear_permuted"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "shear-permuted")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -103,31 +107,33 @@ contains
 end subroutine f_j2_shear_permuted
 
 
-subroutine f_j2_elastic_first_plastic(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_elastic_first_plastic(callinfo, properties, strain, dstrain, temperature, stress0, &
                                       state0, stress, state, tangent, dstress_dtemp, &
                                       energy, report) &
                                       bind(C, name="f_j2_elastic_first_plastic"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "elastic-first-plastic")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -137,30 +143,32 @@ contains
 end subroutine f_j2_elastic_first_plastic
 
 
-subroutine f_j2_unit_factor(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_unit_factor(callinfo, properties, strain, dstrain, temperature, stress0, &
                             state0, stress, state, tangent, dstress_dtemp, energy, report) &
                             bind(C, name="f_j2_unit_factor"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "unit-factor")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -170,30 +178,32 @@ contains
 end subroutine f_j2_unit_factor
 
 
-subroutine f_j2_one_column(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_one_column(callinfo, properties, strain, dstrain, temperature, stress0, &
                            state0, stress, state, tangent, dstress_dtemp, energy, report) &
                            bind(C, name="f_j2_one_column"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "one-column")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -202,30 +212,32 @@ contains
 
 end subroutine f_j2_one_column
 
-subroutine f_j2_single_entry(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_single_entry(callinfo, properties, strain, dstrain, temperature, stress0, &
                              state0, stress, state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_j2_single_entry"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "single-entry")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -234,30 +246,32 @@ contains
 
 end subroutine f_j2_single_entry
 
-subroutine f_j2_plastic_sign(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_plastic_sign(callinfo, properties, strain, dstrain, temperature, stress0, &
                              state0, stress, state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_j2_plastic_sign"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "plastic-sign")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -266,30 +280,32 @@ contains
 
 end subroutine f_j2_plastic_sign
 
-subroutine f_j2_rank_two(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_rank_two(callinfo, properties, strain, dstrain, temperature, stress0, &
                          state0, stress, state, tangent, dstress_dtemp, energy, report) &
                          bind(C, name="f_j2_rank_two"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "rank-two")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -298,30 +314,32 @@ contains
 
 end subroutine f_j2_rank_two
 
-subroutine f_twin_real_sqrt(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_twin_real_sqrt(callinfo, properties, strain, dstrain, temperature, stress0, &
                             state0, stress, state, tangent, dstress_dtemp, energy, report) &
                             bind(C, name="f_twin_real_sqrt"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "twin-real-sqrt")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -330,30 +348,32 @@ contains
 
 end subroutine f_twin_real_sqrt
 
-subroutine f_twin_conjugate(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_twin_conjugate(callinfo, properties, strain, dstrain, temperature, stress0, &
                             state0, stress, state, tangent, dstress_dtemp, energy, report) &
                             bind(C, name="f_twin_conjugate"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "twin-conjugate")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -363,30 +383,32 @@ contains
 end subroutine f_twin_conjugate
 
 
-subroutine f_j2_term_missing(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_term_missing(callinfo, properties, strain, dstrain, temperature, stress0, &
                              state0, stress, state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_j2_term_missing"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "term-missing")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 
@@ -396,30 +418,32 @@ contains
 end subroutine f_j2_term_missing
 
 
-subroutine f_j2_no_kinematic(callinfo, props, strain, dstrain, temp, stress0, &
+subroutine f_j2_no_kinematic(callinfo, properties, strain, dstrain, temperature, stress0, &
                              state0, stress, state, tangent, dstress_dtemp, energy, report) &
                              bind(C, name="f_j2_no_kinematic"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
   type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: props(callinfo%nprop)
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  TC_REAL, intent(in) :: temp(2)
+  type(tc_temperature), intent(in) :: temperature
   TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
   TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
   TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp), energy(2)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
 
   ! Passed by the ABI, unused by this isothermal, total-form model (see j2.F90).
-  namelist /unused_arguments/ temp, stress0, dstress_dtemp
+  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
 
-  call zoo_j2_flawed(callinfo, props, strain, dstrain, state0, stress, state, tangent, &
+  call zoo_j2_flawed(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
                      report, "no-kinematic")
-  call j2_energy(callinfo, props, strain, dstrain, stress, state, energy, report)
+  call j2_energy(callinfo, properties, strain, dstrain, stress, state, energy, report)
 
 contains
 

@@ -147,7 +147,7 @@ pub(super) fn call_sizes(info: &RoutineInfo) -> Result<(i32, i32, i32), LoadErro
         })
     };
     let ncomp = info.convention.ncomp();
-    let sizes = (size("ncomp", ncomp)?, size("nstate", info.nstate)?, size("nprop", info.nprop)?);
+    let sizes = (size("ncomp", ncomp)?, size("nstate", info.nstate)?, size("nproperties", info.nprop)?);
     size("ncomp * ncomp", ncomp * ncomp)?;
     Ok(sizes)
 }

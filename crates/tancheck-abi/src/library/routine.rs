@@ -172,7 +172,7 @@ impl LibraryRoutine {
             abi_version: ABI_VERSION,
             ncomp: self.call_sizes.0,
             nstate: self.call_sizes.1,
-            nprop: self.call_sizes.2,
+            nproperties: self.call_sizes.2,
             increment: input.increment,
             flags: if input.want_tangent { WANT_TANGENT } else { 0 },
             time: input.time[0],
@@ -195,7 +195,7 @@ impl LibraryRoutine {
                 && output.state.len() == ns
                 && output.tangent.len() == n * n
                 && output.dstress_dtemp.len() == n,
-            "call to `{}` with arrays of the wrong length (expected ncomp = {n}, nstate = {ns}, nprop = {np})",
+            "call to `{}` with arrays of the wrong length (expected ncomp = {n}, nstate = {ns}, nproperties = {np})",
             self.info.name
         );
     }
@@ -212,6 +212,8 @@ impl LibraryRoutine {
             props: input.props.as_ptr().cast(),
             strain: input.strain.as_ptr().cast(),
             dstrain: input.dstrain.as_ptr().cast(),
+            // `[S; 2]` has the layout of `tc_temperature` and `tc_energy` (`TcTemperature`,
+            // `TcEnergy`): start then increment, stored then dissipated.
             temp: temp.as_ptr().cast(),
             stress0: input.stress0.as_ptr().cast(),
             state0: input.state0.as_ptr().cast(),

@@ -261,7 +261,7 @@ impl<E: Element> GuardBuffers<E> {
         if r.status != o.status
             || r.branch != o.branch
             || r.provides != o.provides
-            || r.step_ratio.to_bits() != o.step_ratio.to_bits()
+            || r.largest_fraction.to_bits() != o.largest_fraction.to_bits()
             || r.message != o.message
         {
             return true;
@@ -366,7 +366,7 @@ fn same_call(a: &TcCall, b: &TcCall) -> bool {
     a.abi_version == b.abi_version
         && a.ncomp == b.ncomp
         && a.nstate == b.nstate
-        && a.nprop == b.nprop
+        && a.nproperties == b.nproperties
         && a.increment == b.increment
         && a.flags == b.flags
         && a.time.to_bits() == b.time.to_bits()

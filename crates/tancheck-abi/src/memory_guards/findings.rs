@@ -54,7 +54,7 @@ impl GuardFinding {
             ),
             FindingKind::Overrun => format!(
                 "wrote past the end of {a}: {a}[{}], but {a} has {}{}; check the loop bounds and \
-                 the sizes ncomp, nstate and nprop of tc_call",
+                 the sizes ncomp, nstate and nproperties of tc_call",
                 self.first,
                 self.array.counted(self.len),
                 if self.entries > 1 {

@@ -137,10 +137,10 @@ impl GuardedArray {
     /// The argument's name in the routine ABI.
     pub fn name(self) -> &'static str {
         match self {
-            GuardedArray::Props => "props",
+            GuardedArray::Props => "properties",
             GuardedArray::Strain => "strain",
             GuardedArray::Dstrain => "dstrain",
-            GuardedArray::Temp => "temp",
+            GuardedArray::Temp => "temperature",
             GuardedArray::Stress0 => "stress0",
             GuardedArray::State0 => "state0",
             GuardedArray::Stress => "stress",
