@@ -2,7 +2,7 @@
 !
 ! Mirrors fortran-shim/include/tancheck_block.h: the structs as interoperable derived types and
 ! the constants. A Fortran block routine is a bind(C) external procedure; with the number type
-! TC_REAL of tancheck_twin.inc and TC_SPECIFIC_ENERGY of tancheck_block_twin.inc it reads
+! TC_REAL of tancheck_twin.inc and tc_specific_energy (see tancheck_block_twin.inc) it reads
 !
 !   subroutine my_block(block, properties, strain, strain_increment, stress_start, &
 !                       state_start, energy_start, conditions, stress, state, energy, &
@@ -13,11 +13,11 @@
 !     TC_REAL, intent(in) :: strain_increment(block%ncomp, block%npoints)
 !     TC_REAL, intent(in) :: stress_start(block%ncomp, block%npoints)
 !     TC_REAL, intent(in) :: state_start(block%nstate, block%npoints)
-!     TC_SPECIFIC_ENERGY, intent(in) :: energy_start(block%npoints)
+!     type(tc_specific_energy), intent(in) :: energy_start(block%npoints)
 !     type(tc_point_conditions), intent(in) :: conditions(block%npoints)
 !     TC_REAL, intent(out) :: stress(block%ncomp, block%npoints)
 !     TC_REAL, intent(out) :: state(block%nstate, block%npoints)
-!     TC_SPECIFIC_ENERGY, intent(out) :: energy(block%npoints)
+!     type(tc_specific_energy), intent(out) :: energy(block%npoints)
 !     integer(c_int32_t), intent(out) :: deleted(block%npoints)      ! 1 deleted, 0 active
 !     type(tc_block_report), intent(inout) :: report
 !

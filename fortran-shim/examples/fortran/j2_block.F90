@@ -26,10 +26,10 @@ subroutine f_j2_block(block, properties, strain, strain_increment, stress_start,
                   energy_start, conditions, stress, state, energy, deleted, report) &
                   bind(C, name="f_j2_block"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex, c_int32_t
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_energy, tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy, tc_routine_abi_version
   use tancheck_block, only: tc_block, tc_point_conditions, tc_block_report, &
-                            tc_specific_energy, tc_specific_energy_cx, tc_block_status_failed, &
+                            tc_specific_energy, tc_block_status_failed, &
                             tc_block_elastic_response, tc_block_set_message
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
@@ -39,11 +39,11 @@ subroutine f_j2_block(block, properties, strain, strain_increment, stress_start,
   TC_REAL, intent(in) :: strain_increment(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: stress_start(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: state_start(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(in) :: energy_start(block%npoints)
+  type(tc_specific_energy), intent(in) :: energy_start(block%npoints)
   type(tc_point_conditions), intent(in) :: conditions(block%npoints)
   TC_REAL, intent(out) :: stress(block%ncomp, block%npoints)
   TC_REAL, intent(out) :: state(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(out) :: energy(block%npoints)
+  type(tc_specific_energy), intent(out) :: energy(block%npoints)
   integer(c_int32_t), intent(out) :: deleted(block%npoints)
   type(tc_block_report), intent(inout) :: report
 
@@ -62,10 +62,10 @@ subroutine f_j2_block_neighbour_state(block, properties, strain, strain_incremen
                   energy_start, conditions, stress, state, energy, deleted, report) &
                   bind(C, name="f_j2_block_neighbour_state"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex, c_int32_t
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_energy, tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy, tc_routine_abi_version
   use tancheck_block, only: tc_block, tc_point_conditions, tc_block_report, &
-                            tc_specific_energy, tc_specific_energy_cx, tc_block_status_failed, &
+                            tc_specific_energy, tc_block_status_failed, &
                             tc_block_elastic_response, tc_block_set_message
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
@@ -75,11 +75,11 @@ subroutine f_j2_block_neighbour_state(block, properties, strain, strain_incremen
   TC_REAL, intent(in) :: strain_increment(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: stress_start(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: state_start(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(in) :: energy_start(block%npoints)
+  type(tc_specific_energy), intent(in) :: energy_start(block%npoints)
   type(tc_point_conditions), intent(in) :: conditions(block%npoints)
   TC_REAL, intent(out) :: stress(block%ncomp, block%npoints)
   TC_REAL, intent(out) :: state(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(out) :: energy(block%npoints)
+  type(tc_specific_energy), intent(out) :: energy(block%npoints)
   integer(c_int32_t), intent(out) :: deleted(block%npoints)
   type(tc_block_report), intent(inout) :: report
 
@@ -98,10 +98,10 @@ subroutine f_j2_block_old_stress_energy(block, properties, strain, strain_increm
                   energy_start, conditions, stress, state, energy, deleted, report) &
                   bind(C, name="f_j2_block_old_stress_energy"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex, c_int32_t
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_energy, tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy, tc_routine_abi_version
   use tancheck_block, only: tc_block, tc_point_conditions, tc_block_report, &
-                            tc_specific_energy, tc_specific_energy_cx, tc_block_status_failed, &
+                            tc_specific_energy, tc_block_status_failed, &
                             tc_block_elastic_response, tc_block_set_message
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
@@ -111,11 +111,11 @@ subroutine f_j2_block_old_stress_energy(block, properties, strain, strain_increm
   TC_REAL, intent(in) :: strain_increment(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: stress_start(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: state_start(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(in) :: energy_start(block%npoints)
+  type(tc_specific_energy), intent(in) :: energy_start(block%npoints)
   type(tc_point_conditions), intent(in) :: conditions(block%npoints)
   TC_REAL, intent(out) :: stress(block%ncomp, block%npoints)
   TC_REAL, intent(out) :: state(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(out) :: energy(block%npoints)
+  type(tc_specific_energy), intent(out) :: energy(block%npoints)
   integer(c_int32_t), intent(out) :: deleted(block%npoints)
   type(tc_block_report), intent(inout) :: report
 
@@ -134,10 +134,10 @@ subroutine f_j2_block_dissipation_sign(block, properties, strain, strain_increme
                   energy_start, conditions, stress, state, energy, deleted, report) &
                   bind(C, name="f_j2_block_dissipation_sign"//TC_SUFFIX)
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex, c_int32_t
-  use tancheck_routine, only: tc_call, tc_report, tc_set_message, tc_status_ok, &
+  use tancheck_routine, only: tc_call, tc_report, tc_energy, tc_set_message, tc_status_ok, &
                               tc_status_failed, tc_provides_energy, tc_routine_abi_version
   use tancheck_block, only: tc_block, tc_point_conditions, tc_block_report, &
-                            tc_specific_energy, tc_specific_energy_cx, tc_block_status_failed, &
+                            tc_specific_energy, tc_block_status_failed, &
                             tc_block_elastic_response, tc_block_set_message
   use tancheck_cstep, only: cs_sqrt, cs_exp
   implicit none
@@ -147,11 +147,11 @@ subroutine f_j2_block_dissipation_sign(block, properties, strain, strain_increme
   TC_REAL, intent(in) :: strain_increment(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: stress_start(block%ncomp, block%npoints)
   TC_REAL, intent(in) :: state_start(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(in) :: energy_start(block%npoints)
+  type(tc_specific_energy), intent(in) :: energy_start(block%npoints)
   type(tc_point_conditions), intent(in) :: conditions(block%npoints)
   TC_REAL, intent(out) :: stress(block%ncomp, block%npoints)
   TC_REAL, intent(out) :: state(block%nstate, block%npoints)
-  TC_SPECIFIC_ENERGY, intent(out) :: energy(block%npoints)
+  type(tc_specific_energy), intent(out) :: energy(block%npoints)
   integer(c_int32_t), intent(out) :: deleted(block%npoints)
   type(tc_block_report), intent(inout) :: report
 

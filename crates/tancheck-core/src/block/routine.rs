@@ -121,7 +121,7 @@ impl BlockOutcome {
         Err(Fault::Status {
             status: self.status,
             message: if text.is_empty() { at.trim_start().to_string() } else { format!("{text}{at}") },
-            step_ratio: self.largest_fraction,
+            largest_fraction: self.largest_fraction,
         })
     }
 }
