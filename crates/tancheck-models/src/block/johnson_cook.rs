@@ -254,8 +254,8 @@ impl BlockModel for JcBlock {
             let internal = input.energy_start[p].internal + work;
             let mut stored = S::zero();
             if !deleted {
-                for i in 0..n {
-                    let elastic = input.strain[p * n + i] + de[i] - output.state[p * ns + i];
+                for (i, &d) in de.iter().enumerate() {
+                    let elastic = input.strain[p * n + i] + d - output.state[p * ns + i];
                     stored += output.stress[p * n + i] * elastic * 0.5;
                 }
             }
