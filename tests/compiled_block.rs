@@ -174,3 +174,129 @@ fn the_block_check_passes_the_c_routine_and_names_each_flaw() {
 fn the_block_check_passes_the_fortran_routine_and_names_each_flaw() {
     verdicts(f_lib(), "f");
 }
+
+// ---- Johnson–Cook block routines (jc_block.c, jc_block.F90) ----------------------------
+
+use tancheck::core::block::RateLaw;
+use tancheck::models::block::{JcBlock, JcBlockFlaw};
+
+/// 4340 steel of REFERENCES.md (Johnson–Cook constants, read, secondary copies) with typical
+/// E, ν, T_r, reference rate, density, heat capacity (common practice), χ = 0.9, k_E = 0.3,
+/// G_f = 20 N/mm, d_max = 0.99 (for the checks only).
+const STEEL: [f64; 21] = [
+    200_000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44,
+    -2.12, 0.002, 0.61, 0.3, 20.0, 0.99,
+];
+
+fn jc_c_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("jc_block_c", "c/jc_block.c"))
+}
+
+fn jc_f_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("jc_block_f", "fortran/jc_block.F90"))
+}
+
+fn jc_open(lib: &Path, symbol: &str) -> LibraryBlockRoutine {
+    let info = BlockInfo { name: symbol.into(), ncomp: 6, nstate: 13, nproperties: 21 };
+    Library::open(lib).unwrap().block_routine(symbol, info).unwrap()
+}
+
+fn jc_conditions() -> Conditions {
+    Conditions {
+        temperature: 500.0,
+        temperature_increment: 0.0,
+        density: 7.83e-9,
+        characteristic_length: 2.0,
+    }
+}
+
+/// A block of 9 points on paths from elastic to deleted, compared with the Rust model after
+/// every increment.
+fn jc_same_as_rust(lib: &Path, symbol: &str, flaw: JcBlockFlaw) {
+    let mut ours = jc_open(lib, symbol);
+    let mut rust = BlockModelRoutine(JcBlock::with_flaw(PointKind::Solid3d, flaw).unwrap());
+    let mut a = BlockBuffers::new(9, 6, &[0.0; 13], jc_conditions());
+    let mut b = a.clone();
+    let dir = [1.0, -0.3, -0.2, 0.4, 0.1, 0.7];
+    let mut deleted_seen = false;
+    for inc in 1..=40 {
+        for p in 0..9 {
+            let f = 2e-3 * (p as f64 - 2.0) * if inc > 30 { -1.0 } else { 1.0 };
+            for i in 0..6 {
+                let v = f * dir[(i + p) % 6];
+                a.increment_of(p)[i] = v;
+                b.increment_of(p)[i] = v;
+            }
+        }
+        a.call(&mut ours, &STEEL, 1e-5, inc).unwrap();
+        b.call(&mut rust, &STEEL, 1e-5, inc).unwrap();
+        let close = |x: &[f64], y: &[f64], what: &str| {
+            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
+            for (k, (u, v)) in x.iter().zip(y).enumerate() {
+                assert!((u - v).abs() <= 1e-9 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
+            }
+        };
+        close(&a.stress, &b.stress, "stress");
+        close(&a.state, &b.state, "state");
+        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        close(&ea, &eb, "energy");
+        assert_eq!(a.deleted, b.deleted, "{symbol}, increment {inc}");
+        deleted_seen |= a.deleted.iter().any(|&d| d != 0);
+        a.advance(1e-5);
+        b.advance(1e-5);
+    }
+    assert!(deleted_seen, "{symbol}: some point is deleted along these paths");
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_johnson_cook_block_routines_match_the_rust_model() {
+    for (prefix, lib) in [("c", jc_c_lib()), ("f", jc_f_lib())] {
+        for (suffix, flaw) in [
+            ("", JcBlockFlaw::None),
+            ("_revived", JcBlockFlaw::Revived),
+            ("_wrong_temperature", JcBlockFlaw::WrongTemperature),
+        ] {
+            jc_same_as_rust(lib, &format!("{prefix}_jc_block{suffix}"), flaw);
+        }
+    }
+}
+
+fn jc_check(lib: &Path, symbol: &str) -> tancheck::core::block::BlockReport {
+    let mut r = jc_open(lib, symbol);
+    let mut path = StrainPath::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
+    for inc in &mut path.increments {
+        inc.dtime = 5e-5;
+    }
+    let s = BlockSettings {
+        conditions: jc_conditions(),
+        state0: vec![0.0; 13],
+        softening: true,
+        rate_law: Some(RateLaw { reference_rate: 1.0, coefficient: 0.014 }),
+        ..BlockSettings::default()
+    };
+    let report = run(&mut r, &STEEL, &path, &s).unwrap();
+    assert!(r.findings().is_empty(), "{symbol}: the guards found {:?}", r.findings());
+    report
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_block_check_passes_the_johnson_cook_routines_and_names_each_flaw() {
+    for (prefix, lib) in [("c", jc_c_lib()), ("f", jc_f_lib())] {
+        let r = jc_check(lib, &format!("{prefix}_jc_block"));
+        assert!(r.passed(), "{prefix}_jc_block: {:#?}", r.findings);
+        for (suffix, finding) in [
+            ("revived", "deleted-point-revived"),
+            ("unguarded_rate", "zero-rate-not-finite"),
+            ("wrong_temperature", "elastic-response-mismatch"),
+        ] {
+            let symbol = format!("{prefix}_jc_block_{suffix}");
+            let r = jc_check(lib, &symbol);
+            assert_eq!(r.finding(), finding, "{symbol}: {:#?}", r.findings);
+        }
+    }
+}
