@@ -13,6 +13,7 @@ use tancheck_core::path::{Path, PathIncrement, Shape};
 use tancheck_core::{check, Caller, PointKind, PointState, Report, Routine, Settings, Verdict};
 use tancheck_models::zoo::{self, ZooEntry};
 
+mod block;
 mod conventions;
 mod jc;
 mod ply;
@@ -231,18 +232,19 @@ pub fn run(verbose: bool) -> Result<i32> {
     rows.extend(conventions::rows(&dir, &root, fortran_available())?);
     rows.extend(jc::rows(&dir, &root, fortran_available())?);
     rows.extend(ply::rows(&dir, &root, fortran_available())?);
+    rows.extend(block::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
     writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
     writeln!(
         out,
-        "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} right",
+        "{:<36} {:<8} {:<27} {:<7} {:<27} {:<6} right",
         "variant", "language", "expected", "verdict", "found", "at inc"
     )?;
     for r in &rows {
         writeln!(
             out,
-            "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} {}",
+            "{:<36} {:<8} {:<27} {:<7} {:<27} {:<6} {}",
             r.variant,
             r.language,
             r.expected,
