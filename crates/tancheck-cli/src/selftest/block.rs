@@ -93,13 +93,14 @@ fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -
 }
 
 type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
+/// The rows of one family, its check, its source's stem and its number of properties.
+type Family = (&'static [(&'static str, &'static str, &'static str); 4], Check, &'static str, usize);
 
 /// The rows, for Rust, C and (when gfortran is there) Fortran; libraries go to `dir`.
 pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row>> {
     let kind = PointKind::Solid3d;
     let mut rows = Vec::new();
-    let families: [(&[(&str, &str, &str); 4], Check, &str, usize); 2] =
-        [(&J2_ROWS, j2_check, "j2_block", 7), (&JC_ROWS, jc_check, "jc_block", 21)];
+    let families: [Family; 2] = [(&J2_ROWS, j2_check, "j2_block", 7), (&JC_ROWS, jc_check, "jc_block", 21)];
     for (table, check, _, _) in families {
         for (model, _, expected) in table.iter() {
             let mut m =
