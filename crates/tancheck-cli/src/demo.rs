@@ -180,6 +180,8 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
             if ok { "as it should be" } else { "NOT AS EXPECTED" }
         )?;
     }
+    // Explicit dynamics: a block routine passing and a flawed one.
+    all_as_expected &= crate::demo_block::run(&dir, &mut out, a.verbose)?;
     for c in tancheck_core::report::CAUTIONS {
         writeln!(out, "caution: {c}")?;
     }

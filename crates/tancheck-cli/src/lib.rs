@@ -10,6 +10,7 @@ pub mod cmd_build;
 pub mod cmd_packaging;
 pub mod cmd_replay;
 pub mod demo;
+pub mod demo_block;
 pub mod isolate;
 pub mod load;
 pub mod manifest;

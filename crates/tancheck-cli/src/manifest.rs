@@ -99,6 +99,8 @@ pub struct PathSpec {
     pub back: usize,
     /// Temperature increment of every increment of a ramp.
     pub dtemp: Option<f64>,
+    /// Time increment of every increment of a ramp (default 1).
+    pub dtime: Option<f64>,
     pub name: Option<String>,
     pub increments: Option<Vec<PathIncrement>>,
 }
@@ -231,13 +233,24 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
                 path.validate().map_err(|e| format!("path.increments: {e}"))?;
                 Ok(path)
             }
-            (None, Some(shape)) => ramp(&RampSpec {
-                shape: shape.clone(),
-                peak: p.peak.ok_or("path.peak is required with path.shape")?,
-                steps: p.steps.ok_or("path.steps is required with path.shape")?,
-                back: p.back,
-                dtemp: p.dtemp.unwrap_or(0.0),
-            }),
+            (None, Some(shape)) => {
+                let mut path = ramp(&RampSpec {
+                    shape: shape.clone(),
+                    peak: p.peak.ok_or("path.peak is required with path.shape")?,
+                    steps: p.steps.ok_or("path.steps is required with path.shape")?,
+                    back: p.back,
+                    dtemp: p.dtemp.unwrap_or(0.0),
+                })?;
+                if let Some(dt) = p.dtime {
+                    if !(dt > 0.0 && dt.is_finite()) {
+                        return Err(format!("path.dtime must be a positive number, not {dt}"));
+                    }
+                    for inc in &mut path.increments {
+                        inc.dtime = dt;
+                    }
+                }
+                Ok(path)
+            }
             _ => Err("path: give either shape, peak, steps (and back), or increments".into()),
         }
     }

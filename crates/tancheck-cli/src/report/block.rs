@@ -54,7 +54,7 @@ impl BlockTerminal {
             .increments
             .iter()
             .map(|i| i.stable_time_increment)
-            .filter(|x| x.is_finite())
+            .filter(|x| x.is_finite() && *x > 0.0)
             .min_by(|a, b| a.total_cmp(b))
         {
             writeln!(out, "   smallest stable time increment along the path (tangent): {min:.6e}")?;
