@@ -53,14 +53,14 @@ for f in libtancheck_capi.so libtancheck_capi.a; do
     install -m 0644 "$src_lib/$f" "$libdir/$f"
 done
 chmod 0755 "$libdir/libtancheck_capi.so"
-for h in tancheck.h tancheck_routine.h tancheck_cstep.h tancheck_finite.h tancheck_twin.inc; do
+for h in tancheck.h tancheck_routine.h tancheck_cstep.h tancheck_finite.h tancheck_twin.inc tancheck_block.h tancheck_block_twin.inc; do
     install -m 0644 "$here/include/$h" "$includedir/$h"
 done
 
 # --- the Fortran modules -------------------------------------------------------------------
 fc=${FC:-gfortran}
 fortran=0
-for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_api; do
+for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_block tancheck_api; do
     install -m 0644 "$here/fortran/$m.f90" "$prefix/share/tancheck/fortran/$m.f90"
 done
 # shellcheck disable=SC2086 # FC may hold a program and leading arguments
@@ -69,7 +69,7 @@ if $fc --version >/dev/null 2>&1; then
     trap 'rm -rf "$work"' EXIT
     mkdir -p "$moddir"
     objs=()
-    for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_api; do
+    for m in tancheck_routine tancheck_cstep tancheck_finite tancheck_block tancheck_api; do
         # shellcheck disable=SC2086
         $fc -O2 -fPIC -J "$work" -c "$here/fortran/$m.f90" -o "$work/$m.o"
         objs+=("$work/$m.o")

@@ -1097,6 +1097,10 @@ void tc_guard_finite_layout(uint64_t out[2]) {
     out[1] = offsetof(guard_finite_call, time);
 }
 
+/* ---- block routines (their trampoline; see guard_block.inc) ------------------------ */
+
+#include "guard_block.inc"
+
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 
 /* Sizes and offsets of the structs both sides share; see guard.rs. */

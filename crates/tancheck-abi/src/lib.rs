@@ -11,6 +11,7 @@
 //!   reads past the end of the inputs, as [`GuardFinding`]s of the routine.
 //! - [`build_library`] compiles C and Fortran sources into such a library, with the twin.
 
+pub mod block;
 pub mod build_log;
 pub mod compile;
 pub mod error;
@@ -21,6 +22,7 @@ pub mod library;
 pub mod locate;
 pub mod watch;
 
+pub use block::LibraryBlockRoutine;
 pub use compile::{
     build_library, c_available, fortran_available, fortran_for_test, write_shim_files, BuildCommand,
     BuildLog, BuildOptions, DEBUG_MARKER,

@@ -112,7 +112,7 @@ pub(crate) struct GuardArgs {
 /// How a guarded call ended (`struct tc_guard_result`).
 #[derive(Clone, Copy, Debug, Default)]
 #[repr(C)]
-struct GuardResult {
+pub(crate) struct GuardResult {
     caught: i32,
     signal: i32,
     kind: i32,
@@ -237,7 +237,7 @@ pub struct Crash {
 }
 
 impl Crash {
-    fn from_result(r: &GuardResult) -> Crash {
+    pub(crate) fn from_result(r: &GuardResult) -> Crash {
         let kind = match r.kind {
             1 => SignalKind::Segmentation,
             2 => SignalKind::Bus,

@@ -302,6 +302,17 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
     }
+    if crate::block_session::is_block(&m) {
+        let path = a.path.as_deref().map(path_arg).transpose()?;
+        let detail = a.output.detail();
+        let code =
+            crate::block_session::check_block_command(&m, &dir, &file, path, detail, a.json.as_deref())?;
+        return Ok(if case_code == exit::ROUTINE_FAULT || code == exit::ROUTINE_FAULT {
+            exit::ROUTINE_FAULT
+        } else {
+            code.max(case_code)
+        });
+    }
     let path = match &a.path {
         Some(p) => path_arg(p)?,
         None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
@@ -333,6 +344,13 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
+    }
+    if crate::block_session::is_block(&m) {
+        // A block routine's probes are the block checks (independence, tangent and wave speed,
+        // energy, deletion, refinement, counterpart).
+        let path = a.path.as_deref().map(path_arg).transpose()?;
+        let detail = a.output.detail();
+        return crate::block_session::check_block_command(&m, &dir, &file, path, detail, a.json.as_deref());
     }
     let (mut suite, suite_file) = match &a.suite {
         Some(f) => (crate::suite::Suite::load(f)?, Some(f.clone())),

@@ -305,6 +305,8 @@ pub fn run(a: &DemoArgs) -> Result<i32> {
             if ok { "as it should be" } else { "NOT AS EXPECTED" }
         )?;
     }
+    // Explicit dynamics: a block routine passing and a flawed one.
+    all_as_expected &= crate::demo_block::run(&dir, &mut out, a.verbose)?;
     drop(out);
     all_as_expected &= ply_scenario(&dir, f_lib.is_some(), a.verbose)?;
     all_as_expected &= crate::demo_finite::run_scenario(&dir, a.verbose)?;

@@ -1,6 +1,8 @@
 //! The `tancheck` command line: manifests, routines, reporters and the commands
 //! `check`, `build`, `demo` and `models`.
 
+pub mod block_manifest;
+pub mod block_session;
 pub mod case_store;
 pub mod cli;
 pub mod cmd_bisect;
@@ -9,6 +11,7 @@ pub mod cmd_finite;
 pub mod cmd_packaging;
 pub mod cmd_replay;
 pub mod demo;
+pub mod demo_block;
 pub mod demo_finite;
 pub mod finite_load;
 pub mod isolate;

@@ -38,6 +38,9 @@ pub struct Manifest {
     /// Memory guards around every call of a loaded routine: `off`, `light` (default) or `full`.
     #[serde(default)]
     pub guards: Guards,
+    /// Settings of a block routine's check (with `routine.interface: "block"`).
+    #[serde(default)]
+    pub block: Option<crate::block_manifest::BlockSpec>,
 }
 
 /// Guard level of a manifest.
@@ -67,6 +70,10 @@ pub struct RoutineSpec {
     /// Number of state variables (for a library; a model knows its own).
     pub states: Option<usize>,
     pub properties: Vec<f64>,
+    /// The routine's interface: `point` (default, tancheck_routine.h) or `block`
+    /// (tancheck_block.h, explicit dynamics).
+    #[serde(default)]
+    pub interface: crate::block_manifest::Interface,
 }
 
 #[derive(Clone, Debug, Default, Deserialize)]
@@ -92,6 +99,8 @@ pub struct PathSpec {
     pub back: usize,
     /// Temperature increment of every increment of a ramp.
     pub dtemp: Option<f64>,
+    /// Time increment of every increment of a ramp (default 1).
+    pub dtime: Option<f64>,
     pub name: Option<String>,
     pub increments: Option<Vec<PathIncrement>>,
 }
@@ -186,6 +195,7 @@ impl Manifest {
             ));
         }
         self.convention()?;
+        crate::block_manifest::validate(self.routine.interface, self.routine.kind, self.block.as_ref())?;
         self.check.validate().map_err(|e| e.to_string())?;
         self.path_or(Path { name: String::new(), increments: Vec::new() })?;
         Ok(())
@@ -223,13 +233,24 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
                 path.validate().map_err(|e| format!("path.increments: {e}"))?;
                 Ok(path)
             }
-            (None, Some(shape)) => ramp(&RampSpec {
-                shape: shape.clone(),
-                peak: p.peak.ok_or("path.peak is required with path.shape")?,
-                steps: p.steps.ok_or("path.steps is required with path.shape")?,
-                back: p.back,
-                dtemp: p.dtemp.unwrap_or(0.0),
-            }),
+            (None, Some(shape)) => {
+                let mut path = ramp(&RampSpec {
+                    shape: shape.clone(),
+                    peak: p.peak.ok_or("path.peak is required with path.shape")?,
+                    steps: p.steps.ok_or("path.steps is required with path.shape")?,
+                    back: p.back,
+                    dtemp: p.dtemp.unwrap_or(0.0),
+                })?;
+                if let Some(dt) = p.dtime {
+                    if !(dt > 0.0 && dt.is_finite()) {
+                        return Err(format!("path.dtime must be a positive number, not {dt}"));
+                    }
+                    for inc in &mut path.increments {
+                        inc.dtime = dt;
+                    }
+                }
+                Ok(path)
+            }
             _ => Err("path: give either shape, peak, steps (and back), or increments".into()),
         }
     }

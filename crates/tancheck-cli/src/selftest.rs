@@ -16,6 +16,7 @@ use crate::report::model::{SelftestReport, SelftestRow};
 use crate::report::style::Progress;
 use crate::report::Reporter;
 
+mod block;
 mod conventions;
 mod finite;
 mod jc;
@@ -257,6 +258,7 @@ fn rows_of_zoo(output: &crate::session::OutputArgs) -> Result<SelftestReport> {
     rows.extend(jc::rows(&dir, &root, fortran_available())?);
     rows.extend(ply::rows(&dir, &root, fortran_available())?);
     rows.extend(finite::rows(&dir, &root, fortran_available())?);
+    rows.extend(block::rows(&dir, &root, fortran_available())?);
     let _ = std::fs::remove_dir_all(&dir);
 
     drop(progress);

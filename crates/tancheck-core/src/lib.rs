@@ -6,6 +6,7 @@
 //! [`compare`] → [`report`]; [`check::run`] ties them together.
 
 pub mod bisect;
+pub mod block;
 pub mod call_check;
 pub mod case;
 pub mod check;

@@ -89,7 +89,15 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
             path: src_dir.clone(),
             source,
         })?;
+        // The block module only for sources that use it (every other build keeps its steps).
+        let wants_block = sources.iter().any(|(p, l)| {
+            *l == Language::Fortran
+                && std::fs::read_to_string(p).is_ok_and(|t| t.to_ascii_lowercase().contains("tancheck_block"))
+        });
         for (name, text) in SHIM_MODULES {
+            if name == "tancheck_block.f90" && !wants_block {
+                continue;
+            }
             let src = src_dir.join(name);
             std::fs::write(&src, text).map_err(|source| BuildError::Io {
                 action: "write",

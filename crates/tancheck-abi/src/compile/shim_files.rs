@@ -7,19 +7,23 @@ use std::sync::atomic::{AtomicUsize, Ordering};
 use crate::error::BuildError;
 
 /// The routine ABI's files, as shipped with this tancheck.
-pub(super) const SHIM_INCLUDE: [(&str, &str); 4] = [
+pub(super) const SHIM_INCLUDE: [(&str, &str); 6] = [
     ("tancheck_routine.h", include_str!("../../../../fortran-shim/include/tancheck_routine.h")),
     ("tancheck_cstep.h", include_str!("../../../../fortran-shim/include/tancheck_cstep.h")),
     ("tancheck_finite.h", include_str!("../../../../fortran-shim/include/tancheck_finite.h")),
     ("tancheck_twin.inc", include_str!("../../../../fortran-shim/include/tancheck_twin.inc")),
+    ("tancheck_block.h", include_str!("../../../../fortran-shim/include/tancheck_block.h")),
+    ("tancheck_block_twin.inc", include_str!("../../../../fortran-shim/include/tancheck_block_twin.inc")),
 ];
 /// The Fortran modules, in the order they must be compiled.
-pub(super) const SHIM_MODULES: [(&str, &str); 3] = [
+pub(super) const SHIM_MODULES: [(&str, &str); 4] = [
     ("tancheck_routine.f90", include_str!("../../../../fortran-shim/fortran/tancheck_routine.f90")),
     ("tancheck_cstep.f90", include_str!("../../../../fortran-shim/fortran/tancheck_cstep.f90")),
     ("tancheck_finite.f90", include_str!("../../../../fortran-shim/fortran/tancheck_finite.f90")),
+    ("tancheck_block.f90", include_str!("../../../../fortran-shim/fortran/tancheck_block.f90")),
 ];
-pub(super) const SHIM_MODULE_NAMES: [&str; 3] = ["tancheck_routine", "tancheck_cstep", "tancheck_finite"];
+pub(super) const SHIM_MODULE_NAMES: [&str; 4] =
+    ["tancheck_routine", "tancheck_cstep", "tancheck_finite", "tancheck_block"];
 
 /// Write the routine ABI's headers (`tancheck_routine.h`, `tancheck_cstep.h`,
 /// `tancheck_twin.inc`) and Fortran module sources into `dir`, for builds by hand.

@@ -123,14 +123,14 @@ impl Library {
         LibraryRoutine::assemble(info, call_sizes, symbol, real, twin, label, Some(self.clone()))
     }
 
-    fn lookup<T: Copy>(&self, name: &str) -> Option<T> {
+    pub(crate) fn lookup<T: Copy>(&self, name: &str) -> Option<T> {
         let c = CString::new(name).ok()?;
         // SAFETY: T is one of the routine function-pointer types; the caller uses the pointer
         // only with the routine ABI's signature, as the symbol's name promises.
         unsafe { self.inner.get::<T>(c.as_bytes_with_nul()).ok().map(|s| *s) }
     }
 
-    fn missing_symbol(&self, symbol: &str) -> LoadError {
+    pub(crate) fn missing_symbol(&self, symbol: &str) -> LoadError {
         let exports = self.exported_functions().unwrap_or_default();
         let near = closest(symbol, &exports, 5);
         let hint = decoration_hint(symbol, &exports);

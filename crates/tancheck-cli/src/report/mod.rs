@@ -9,6 +9,7 @@ use std::path::Path;
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
+pub mod block;
 pub mod files;
 pub mod html;
 pub mod json;

@@ -378,7 +378,7 @@ pub fn selftest(out: &mut dyn Write, r: &SelftestReport, detail: Detail, p: Pale
         writeln!(out, "tancheck selftest: routines with known flaws, and correct ones that must pass\n")?;
         writeln!(
             out,
-            "{:<26} {:<8} {:<27} {:<7} {:<27} {:<6} right",
+            "{:<36} {:<8} {:<27} {:<7} {:<27} {:<6} right",
             "variant", "language", "expected", "verdict", "found", "at inc"
         )?;
     }
@@ -386,7 +386,7 @@ pub fn selftest(out: &mut dyn Write, r: &SelftestReport, detail: Detail, p: Pale
         let verdict = format!("{:<7}", row.verdict.word());
         writeln!(
             out,
-            "{:<26} {:<8} {:<27} {} {:<27} {:<6} {}",
+            "{:<36} {:<8} {:<27} {} {:<27} {:<6} {}",
             row.variant,
             row.language,
             row.expected,

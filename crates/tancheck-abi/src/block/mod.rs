@@ -1,0 +1,253 @@
+//! Block routines of a loaded library (fortran-shim/include/tancheck_block.h) as
+//! [`BlockRoutine`]s: every real and twin call through the memory guards of [`guards`] and
+//! the guarded trampoline (`tc_guard_call_block`, fortran-shim/src/guard_block.inc).
+
+use std::ffi::CString;
+
+use num_complex::Complex64;
+use tancheck_core::block::{BlockCall, BlockInfo, BlockInput, BlockOutput, BlockRoutine, BLOCK_ABI_VERSION};
+use tancheck_core::Fault;
+
+use crate::error::LoadError;
+use crate::memory_guards::GuardLevel;
+use crate::signal_guard as guard;
+use crate::{Library, TWIN_SUFFIX};
+
+mod call;
+mod guards;
+
+pub use call::BlockFn;
+use guards::{BlockGuards, Element};
+
+/// A block routine of a loaded library.
+pub struct LibraryBlockRoutine {
+    info: BlockInfo,
+    symbol: String,
+    real: BlockFn,
+    twin: Option<BlockFn>,
+    label: CString,
+    library: Library,
+    guard_level: GuardLevel,
+    fp_traps: bool,
+    real_guards: BlockGuards<f64>,
+    complex_guards: BlockGuards<Complex64>,
+    findings: Vec<String>,
+}
+
+impl std::fmt::Debug for LibraryBlockRoutine {
+    fn fmt(&self, f: &mut std::fmt::Formatter<'_>) -> std::fmt::Result {
+        f.debug_struct("LibraryBlockRoutine")
+            .field("library", &self.library.path())
+            .field("symbol", &self.symbol)
+            .field("twin", &self.twin.is_some())
+            .finish()
+    }
+}
+
+impl Library {
+    /// The block routine `symbol` (and its twin `symbol_cx`, when exported).
+    pub fn block_routine(&self, symbol: &str, info: BlockInfo) -> Result<LibraryBlockRoutine, LoadError> {
+        if symbol.is_empty() || symbol.contains('\0') {
+            return Err(LoadError::BadSymbolName {
+                symbol: symbol.into(),
+                why: "it is empty or contains a NUL byte",
+            });
+        }
+        for (what, value) in
+            [("ncomp", info.ncomp), ("nstate", info.nstate), ("nproperties", info.nproperties)]
+        {
+            if i32::try_from(value).is_err() {
+                return Err(LoadError::SizeTooLarge {
+                    routine: info.name.clone(),
+                    what,
+                    value,
+                    max: i32::MAX,
+                });
+            }
+        }
+        let real = self.lookup::<BlockFn>(symbol).ok_or_else(|| self.missing_symbol(symbol))?;
+        let twin = self.lookup::<BlockFn>(&format!("{symbol}{TWIN_SUFFIX}"));
+        guard::prepare().map_err(|source| LoadError::Guard { source })?;
+        let label = format!("{}:{symbol}", self.path().display());
+        Ok(LibraryBlockRoutine {
+            info,
+            symbol: symbol.into(),
+            real,
+            twin,
+            label: CString::new(label.replace('\0', " ")).expect("NUL bytes were replaced"),
+            library: self.clone(),
+            guard_level: GuardLevel::default(),
+            fp_traps: false,
+            real_guards: BlockGuards::new(),
+            complex_guards: BlockGuards::new(),
+            findings: Vec::new(),
+        })
+    }
+}
+
+impl LibraryBlockRoutine {
+    pub fn symbol(&self) -> &str {
+        &self.symbol
+    }
+
+    pub fn library(&self) -> &Library {
+        &self.library
+    }
+
+    /// Guards off: the routine works on the caller's buffers; light or full: on guarded copies
+    /// (block calls are not repeated at the full level).
+    pub fn set_guard_level(&mut self, level: GuardLevel) {
+        self.guard_level = level;
+    }
+
+    pub fn guard_level(&self) -> GuardLevel {
+        self.guard_level
+    }
+
+    /// Calls with floating-point traps (invalid, division by zero, overflow).
+    pub fn set_fp_traps(&mut self, on: bool) -> Result<(), crate::TrapError> {
+        if on && !guard::fp_traps_available() {
+            return Err(crate::TrapError::Unavailable { arch: std::env::consts::ARCH });
+        }
+        self.fp_traps = on;
+        Ok(())
+    }
+
+    /// What the guards found so far, one sentence each.
+    pub fn findings(&self) -> &[String] {
+        &self.findings
+    }
+
+    fn block_call<S>(&self, i: &BlockInput<'_, S>) -> BlockCall {
+        BlockCall {
+            abi_version: BLOCK_ABI_VERSION,
+            npoints: i32::try_from(i.npoints()).unwrap_or(i32::MAX),
+            ncomp: self.info.ncomp as i32,
+            nstate: self.info.nstate as i32,
+            nproperties: self.info.nproperties as i32,
+            increment: i.increment,
+            flags: if i.elastic_response { tancheck_core::block::ELASTIC_RESPONSE } else { 0 },
+            reserved: 0,
+            time: i.time,
+            time_increment: i.time_increment,
+        }
+    }
+
+    /// A new finding ends the call (allocates only then); a known one is counted silently.
+    fn note(&mut self, what: Option<String>) -> Result<(), Fault> {
+        match what {
+            Some(w) if !self.findings.contains(&w) => {
+                self.findings.push(w.clone());
+                Err(Fault::Misbehaved { what: w })
+            }
+            _ => Ok(()),
+        }
+    }
+}
+
+/// One call of `f` with the arrays of `i` and `o`, guarded or not.
+#[allow(clippy::too_many_arguments)]
+fn call_with<S: Element>(
+    f: BlockFn,
+    complex: bool,
+    level: GuardLevel,
+    guards: &mut BlockGuards<S>,
+    label: &CString,
+    fp_traps: bool,
+    call: &BlockCall,
+    i: &BlockInput<'_, S>,
+    o: &mut BlockOutput<'_, S>,
+) -> Result<Option<String>, Fault> {
+    o.outcome.reset();
+    if level == GuardLevel::Off {
+        let args = call::BlockGuardArgs {
+            block: call,
+            properties: i.properties.as_ptr().cast(),
+            strain: i.strain.as_ptr().cast(),
+            strain_increment: i.strain_increment.as_ptr().cast(),
+            stress_start: i.stress_start.as_ptr().cast(),
+            state_start: i.state_start.as_ptr().cast(),
+            energy_start: i.energy_start.as_ptr().cast(),
+            conditions: i.conditions.as_ptr(),
+            stress: o.stress.as_mut_ptr().cast(),
+            state: o.state.as_mut_ptr().cast(),
+            energy: o.energy.as_mut_ptr().cast(),
+            deleted: o.deleted.as_mut_ptr(),
+            report: std::ptr::from_mut(o.outcome),
+            label: label.as_ptr(),
+            fp_traps: i32::from(fp_traps),
+            reserved: 0,
+        };
+        // SAFETY: `f` has the block ABI's signature (looked up by name); every array has the
+        // length announced in `call` (check_block_lengths), SpecificEnergy<S> is repr(C) with
+        // two S, and all of it outlives the call.
+        unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
+        return Ok(None);
+    }
+    let sent = *call;
+    let mut args = guards.load(i, o);
+    let guarded_call = *call;
+    args.block = &guarded_call;
+    args.label = label.as_ptr();
+    args.fp_traps = i32::from(fp_traps);
+    // SAFETY: as above; the guarded buffer holds every array at the announced length, each
+    // followed by its zone, and lives in `guards` across the call.
+    unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
+    Ok(guards.unload(i, o, &guarded_call, &sent))
+}
+
+impl BlockRoutine for LibraryBlockRoutine {
+    fn info(&self) -> &BlockInfo {
+        &self.info
+    }
+
+    fn call(&mut self, input: &BlockInput<'_, f64>, output: &mut BlockOutput<'_, f64>) -> Result<(), Fault> {
+        tancheck_core::block::routine::check_block_lengths(&self.info, input, output);
+        let call = self.block_call(input);
+        let found = call_with(
+            self.real,
+            false,
+            self.guard_level,
+            &mut self.real_guards,
+            &self.label,
+            self.fp_traps,
+            &call,
+            input,
+            output,
+        )?;
+        self.note(found)?;
+        output.outcome.fault()
+    }
+
+    fn has_twin(&self) -> bool {
+        self.twin.is_some()
+    }
+
+    fn call_complex(
+        &mut self,
+        input: &BlockInput<'_, Complex64>,
+        output: &mut BlockOutput<'_, Complex64>,
+    ) -> Result<(), Fault> {
+        let Some(twin) = self.twin else {
+            return Err(Fault::Unsupported(format!(
+                "the library exports no complex-step twin `{}{TWIN_SUFFIX}`",
+                self.symbol
+            )));
+        };
+        tancheck_core::block::routine::check_block_lengths(&self.info, input, output);
+        let call = self.block_call(input);
+        let found = call_with(
+            twin,
+            true,
+            self.guard_level,
+            &mut self.complex_guards,
+            &self.label,
+            self.fp_traps,
+            &call,
+            input,
+            output,
+        )?;
+        self.note(found)?;
+        output.outcome.fault()
+    }
+}

@@ -1,0 +1,167 @@
+//! One session with a block routine: load the block routine a manifest names (a library's
+//! symbol or a built-in block model), run the block checks along the path, and compare with
+//! the point counterpart the manifest names.
+
+use std::path::Path as FsPath;
+
+use anyhow::{bail, Context, Result};
+use tancheck_abi::{GuardLevel, Library};
+use tancheck_core::block::{self, BlockInfo, BlockReport, BlockRoutine};
+use tancheck_core::path::Path;
+use tancheck_core::{Routine, RoutineInfo};
+
+use crate::block_manifest::settings;
+use crate::manifest::{Guards, Manifest};
+use crate::report::block::{write_json, BlockTerminal};
+use crate::report::terminal::Detail;
+use crate::report::write_atomic;
+
+/// Whether the manifest names a block routine.
+pub fn is_block(m: &Manifest) -> bool {
+    m.routine.interface == crate::block_manifest::Interface::Block
+}
+
+fn library_path(m: &Manifest, dir: &FsPath) -> Option<std::path::PathBuf> {
+    m.routine.library.as_ref().map(|l| if l.is_relative() { dir.join(l) } else { l.clone() })
+}
+
+/// The block routine of a manifest.
+pub fn load_block(m: &Manifest, dir: &FsPath) -> Result<Box<dyn BlockRoutine>> {
+    let r = &m.routine;
+    let ncomp = m.convention().map_err(anyhow::Error::msg)?.ncomp();
+    if let Some(name) = &r.model {
+        let Some(model) = tancheck_models::block::by_name(name, r.kind) else {
+            bail!(
+                "no built-in block model is called `{name}`; the block models are {}",
+                tancheck_models::block::NAMES.join(", ")
+            );
+        };
+        let model = model?;
+        if r.properties.len() != model.info().nproperties {
+            bail!(
+                "the block model `{name}` takes {} properties; the manifest gives {}",
+                model.info().nproperties,
+                r.properties.len()
+            );
+        }
+        return Ok(model);
+    }
+    let lib_path = library_path(m, dir).expect("validated: library or model");
+    let symbol = r.symbol.as_ref().expect("validated: symbol with library");
+    let lib = Library::open(&lib_path)?;
+    let info = BlockInfo {
+        name: format!("{}:{symbol}", lib_path.file_name().map(|f| f.to_string_lossy()).unwrap_or_default()),
+        ncomp,
+        nstate: r.states.expect("validated: states with library"),
+        nproperties: r.properties.len(),
+    };
+    let mut routine = lib.block_routine(symbol, info)?;
+    if m.fp_traps {
+        routine.set_fp_traps(true).context("switching floating-point traps on")?;
+    }
+    routine.set_guard_level(match m.guards {
+        Guards::Off => GuardLevel::Off,
+        Guards::Light => GuardLevel::Light,
+        Guards::Full => GuardLevel::Full,
+    });
+    Ok(Box::new(routine))
+}
+
+/// The point counterpart of a manifest's block section, if it names one.
+fn load_counterpart(m: &Manifest, dir: &FsPath, nstate: usize) -> Result<Option<(Box<dyn Routine>, f64)>> {
+    let Some(c) = m.block.as_ref().and_then(|b| b.counterpart.as_ref()) else { return Ok(None) };
+    let conv = m.convention().map_err(anyhow::Error::msg)?;
+    if let Some(model) = &c.model {
+        let r = tancheck_models::zoo::zoo_model(model, m.routine.kind)?;
+        return Ok(Some((Box::new(r), c.tolerance)));
+    }
+    let Some(lib_path) = library_path(m, dir) else {
+        bail!("block.counterpart.symbol needs the block routine's library; a built-in block model takes counterpart.model");
+    };
+    let symbol = c.symbol.as_ref().expect("validated: symbol or model");
+    let lib = Library::open(&lib_path)?;
+    let info =
+        RoutineInfo { name: symbol.clone(), convention: conv, nstate, nprop: m.routine.properties.len() };
+    Ok(Some((Box::new(lib.routine(symbol, info)?), c.tolerance)))
+}
+
+/// Load and check the block routine a manifest names.
+pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<BlockReport> {
+    let mut routine = load_block(m, dir)?;
+    let nstate = routine.info().nstate;
+    let state0 = match &m.start.state {
+        Some(s) if s.len() != nstate => {
+            bail!("start.state has {} entries; the routine needs {nstate}", s.len())
+        }
+        Some(s) => s.clone(),
+        None => vec![0.0; nstate],
+    };
+    if m.start.strain.is_some() || m.start.stress.is_some() {
+        bail!("a block routine starts from zero strain and stress: leave start.strain and start.stress out");
+    }
+    let spec = m.block.as_ref().expect("validated: block section with interface block");
+    let s = settings(spec, m.start.temperature, state0);
+    crate::survive::checking(true);
+    let report = block::run(routine.as_mut(), &m.routine.properties, path, &s).map_err(anyhow::Error::msg);
+    let mut report = match report {
+        Ok(r) => r,
+        Err(e) => {
+            crate::survive::checking(false);
+            return Err(e);
+        }
+    };
+    if let Some((mut point, tol)) = load_counterpart(m, dir, nstate)? {
+        let incs = block::block_increments(path, routine.info().ncomp).map_err(anyhow::Error::msg)?;
+        block::counterpart::check(
+            routine.as_mut(),
+            point.as_mut(),
+            &m.routine.properties,
+            path,
+            &incs,
+            &s,
+            tol,
+            &mut report,
+        );
+    }
+    crate::survive::checking(false);
+    Ok(report)
+}
+
+/// Print the readable block report and/or write the JSON one (`-`: JSON to standard output).
+pub fn emit_block(report: &BlockReport, detail: Detail, json: Option<&FsPath>) -> Result<()> {
+    let mut out = crate::survive::stdout();
+    match json {
+        Some(p) if p.as_os_str() == "-" => write_json(report, &mut out)?,
+        other => {
+            BlockTerminal { detail }.write(report, &mut out)?;
+            if let Some(p) = other {
+                let mut buf = Vec::new();
+                write_json(report, &mut buf)?;
+                write_atomic(p, &buf)
+                    .with_context(|| format!("writing the JSON report to {}", p.display()))?;
+            }
+        }
+    }
+    Ok(())
+}
+
+/// `check` and `probe` of a block manifest: the block checks, printed; the exit code.
+pub fn check_block_command(
+    m: &Manifest,
+    dir: &FsPath,
+    file: &str,
+    path: Option<Path>,
+    detail: Detail,
+    json: Option<&FsPath>,
+) -> Result<i32> {
+    let path = match path {
+        Some(p) => p,
+        None => m
+            .path_or(crate::session::default_path(m.routine.kind))
+            .map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
+    };
+    let report =
+        run_block_manifest(m, dir, &path).with_context(|| format!("checking the block routine of {file}"))?;
+    emit_block(&report, detail, json)?;
+    Ok(report.exit_code())
+}

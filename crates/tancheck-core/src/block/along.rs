@@ -1,0 +1,504 @@
+//! The checks along the path of one point (a block of 1): the elastic response of the first
+//! call, the numerical tangent per increment (effective moduli, dilatational wave speed,
+//! stable time increment L/c), the energy bookkeeping, deletion and finite outputs.
+
+use num_complex::Complex64;
+
+use super::report::{BlockCheck, BlockIncrement, BlockReport, ElasticSummary};
+use super::routine::BlockRoutine;
+use super::settings::{BlockSettings, EnergyRule};
+use super::walk::{BlockBuffers, ComplexPoint};
+
+/// Test strain of the elastic response (its size does not matter: the response is linear).
+const TEST_STRAIN: f64 = 1e-4;
+/// Relative step of the central differences, of the increment's largest component.
+const FD_STEP: f64 = 1e-6;
+/// Floor of the increment size the differences scale with.
+const FD_FLOOR: f64 = 1e-6;
+/// Complex step.
+const CS_STEP: f64 = 1e-20;
+/// Margin of "stored energy ≥ 0", of the sum of |work| so far: room for the integration
+/// rule's error over the path (the trapezoid rule under-integrates a yield kink by a few per
+/// cent of that increment's work; common practice, not a published bound).
+const STORED_MARGIN: f64 = 0.02;
+
+/// Largest normal diagonal entry of an n × n column-major matrix (the dilatational modulus).
+pub fn dilatational(m: &[f64], n: usize) -> f64 {
+    (0..n.min(3)).map(|i| m[i + i * n]).fold(f64::NEG_INFINITY, f64::max)
+}
+
+fn wave(modulus: f64, s: &BlockSettings) -> (f64, f64) {
+    if modulus > 0.0 && modulus.is_finite() {
+        let c = (modulus / s.conditions.density).sqrt();
+        (c, s.conditions.characteristic_length / c)
+    } else {
+        (f64::NAN, f64::NAN)
+    }
+}
+
+/// The first call: a block of ncomp points, point j with the test strain in component j.
+pub fn elastic_response(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) -> Option<Vec<f64>> {
+    let n = routine.info().ncomp;
+    let mut b = BlockBuffers::new(n, n, &s.state0, s.conditions);
+    for j in 0..n {
+        b.increment_of(j)[j] = TEST_STRAIN;
+    }
+    report.real_calls += 1;
+    if let Err(e) = b.call(routine, properties, 0.0, 0) {
+        report.add(
+            BlockCheck::Call,
+            "routine-fault",
+            Some(0),
+            format!("the elastic response (first call): {e}"),
+        );
+        return None;
+    }
+    let mut moduli = vec![0.0; n * n];
+    for j in 0..n {
+        for i in 0..n {
+            moduli[i + j * n] = b.stress[j * n + i] / TEST_STRAIN;
+        }
+    }
+    if moduli.iter().any(|x| !x.is_finite()) {
+        report.add(
+            BlockCheck::ElasticResponse,
+            "non-finite-output",
+            Some(0),
+            "the elastic response (zero time, zero increment) has non-finite stresses".into(),
+        );
+        return None;
+    }
+    let kept = b.state.iter().zip(&b.state_start).all(|(a, o)| a == o)
+        && b.energy.iter().all(|e| e.internal == 0.0 && e.dissipated == 0.0)
+        && b.deleted.iter().all(|&d| d == 0);
+    if !kept {
+        report.add(
+            BlockCheck::ElasticResponse,
+            "elastic-response-updates",
+            Some(0),
+            "the elastic response (zero time, zero increment) changed the state, the energies or \
+             the deleted flags; it must update nothing"
+                .into(),
+        );
+    }
+    let m = dilatational(&moduli, n);
+    let (c, dt) = wave(m, s);
+    report.elastic = ElasticSummary {
+        moduli: moduli.clone(),
+        dilatational_modulus: m,
+        wave_speed: c,
+        stable_time_increment: dt,
+    };
+    Some(moduli)
+}
+
+/// Scale of the small increment whose tangent must equal the elastic response.
+const SMALL: f64 = 1e-3;
+/// Relative (Frobenius) difference allowed between them.
+const ELASTIC_TOLERANCE: f64 = 1e-5;
+
+/// The elastic response must be the routine's own elastic stiffness at the point's
+/// conditions: the numerical tangent of a small increment (the first increment of the path
+/// scaled by [`SMALL`], elastic for any model with a yield or damage threshold) from the start
+/// state equals it. A solver sizes its time increment from the first call's moduli.
+pub fn elastic_consistency(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    first: &(Vec<f64>, f64),
+    moduli: &[f64],
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) {
+    let n = routine.info().ncomp;
+    let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
+    for (x, d) in b.strain_increment.iter_mut().zip(&first.0) {
+        *x = SMALL * d;
+    }
+    let dt = SMALL * first.1;
+    let d = if routine.has_twin() {
+        let mut cx = ComplexPoint::new(properties.len(), n, s.state0.len());
+        cs_tangent(routine, properties, &b, &mut cx, dt, 1, report)
+    } else {
+        fd_tangent(routine, properties, &mut b, dt, 1, report)
+    };
+    let d = match d {
+        Ok(d) => d,
+        Err(e) => {
+            report.notes.push(format!(
+                "elastic response: a small increment from the start failed ({e}); not compared"
+            ));
+            return;
+        }
+    };
+    let diff: Vec<f64> = d.iter().zip(moduli).map(|(a, b)| a - b).collect();
+    let rel = frobenius(&diff) / frobenius(moduli).max(f64::MIN_POSITIVE);
+    if rel > ELASTIC_TOLERANCE || rel.is_nan() {
+        let (m_own, m_first) = (dilatational(&d, n), dilatational(moduli, n));
+        let (c_own, dt_own) = wave(m_own, s);
+        report.add(
+            BlockCheck::ElasticResponse,
+            "elastic-response-mismatch",
+            Some(0),
+            format!(
+                "the elastic response of the first call differs from the routine's own stiffness for a small \
+                 increment from the start by {rel:.3e} (dilatational modulus {m_first:.6e} vs {m_own:.6e}): the \
+                 wave speed a solver sizes its time increment from is {:.6e}, the routine's own {c_own:.6e} \
+                 (L/c {:.6e} vs {dt_own:.6e})",
+                report.elastic.wave_speed, report.elastic.stable_time_increment
+            ),
+        );
+    }
+}
+
+/// Numerical tangent ∂σ/∂Δε of point 0 of `b` at its current increment (central differences);
+/// `b`'s outputs are left as the unperturbed call's only by a later call.
+fn fd_tangent(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    b: &mut BlockBuffers,
+    dt: f64,
+    inc: i32,
+    report: &mut BlockReport,
+) -> Result<Vec<f64>, String> {
+    let n = b.ncomp;
+    let base: Vec<f64> = b.strain_increment.clone();
+    let scale = base.iter().fold(0.0f64, |a, x| a.max(x.abs())).max(FD_FLOOR);
+    let h = FD_STEP * scale;
+    let mut d = vec![0.0; n * n];
+    let mut plus = vec![0.0; n];
+    for j in 0..n {
+        for (sign, out) in [(1.0, 0usize), (-1.0, 1)] {
+            b.strain_increment.copy_from_slice(&base);
+            b.strain_increment[j] += sign * h;
+            report.real_calls += 1;
+            b.call(routine, properties, dt, inc).map_err(|e| e.to_string())?;
+            if out == 0 {
+                plus.copy_from_slice(&b.stress[..n]);
+            } else {
+                for i in 0..n {
+                    d[i + j * n] = (plus[i] - b.stress[i]) / (2.0 * h);
+                }
+            }
+        }
+    }
+    b.strain_increment.copy_from_slice(&base);
+    Ok(d)
+}
+
+fn cs_tangent(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    b: &BlockBuffers,
+    cx: &mut ComplexPoint,
+    dt: f64,
+    inc: i32,
+    report: &mut BlockReport,
+) -> Result<Vec<f64>, String> {
+    let n = b.ncomp;
+    let mut d = vec![0.0; n * n];
+    for j in 0..n {
+        cx.load(properties, b, 0);
+        cx.strain_increment[j] += Complex64::new(0.0, CS_STEP);
+        report.complex_calls += 1;
+        cx.call(routine, &b.conditions, b.time, dt, inc).map_err(|e| e.to_string())?;
+        for i in 0..n {
+            d[i + j * n] = cx.stress[i].im / CS_STEP;
+        }
+    }
+    Ok(d)
+}
+
+fn frobenius(a: &[f64]) -> f64 {
+    a.iter().map(|x| x * x).sum::<f64>().sqrt()
+}
+
+fn smallest_eigen(d: &[f64], n: usize) -> f64 {
+    let m = nalgebra::DMatrix::from_fn(n, n, |i, j| 0.5 * (d[i + j * n] + d[j + i * n]));
+    m.symmetric_eigen().eigenvalues.iter().copied().fold(f64::INFINITY, f64::min)
+}
+
+/// Work per unit mass of `stress` over `de` (engineering shear: the plain dot product).
+fn work(stress: &[f64], de: &[f64], density: f64) -> f64 {
+    stress.iter().zip(de).map(|(s, e)| s * e).sum::<f64>() / density
+}
+
+/// Walk the path (`incs`: routine-order increments with their time increments) with one
+/// point, checking every increment.
+pub fn walk_one_point(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    incs: &[(Vec<f64>, f64)],
+    moduli: &[f64],
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) {
+    let n = routine.info().ncomp;
+    let nprop = properties.len();
+    let nstate = s.state0.len();
+    let m_el = dilatational(moduli, n);
+    let rho = s.conditions.density;
+    let twin = routine.has_twin();
+    let mut cx = ComplexPoint::new(nprop, n, nstate);
+    let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
+    let mut deleted_at: Option<usize> = None;
+    let mut half = vec![0.0; n];
+    let mut total_work = 0.0;
+    for (k, (de, dt)) in incs.iter().enumerate() {
+        let index = k + 1;
+        let inc = index as i32;
+        b.strain_increment.copy_from_slice(de);
+        let mut row = BlockIncrement { index, ..BlockIncrement::default() };
+
+        // The numerical tangent: effective moduli, wave speed, stable time increment.
+        let fd = match fd_tangent(routine, properties, &mut b, *dt, inc, report) {
+            Ok(d) => d,
+            Err(e) => {
+                report.add(BlockCheck::Call, "routine-fault", Some(index), format!("a perturbed call: {e}"));
+                return;
+            }
+        };
+        let best = if twin {
+            match cs_tangent(routine, properties, &b, &mut cx, *dt, inc, report) {
+                Ok(d) => {
+                    let diff: Vec<f64> = d.iter().zip(&fd).map(|(a, b)| a - b).collect();
+                    row.twin_difference = Some(frobenius(&diff) / frobenius(&d).max(f64::MIN_POSITIVE));
+                    d
+                }
+                Err(e) => {
+                    report.add(BlockCheck::Call, "routine-fault", Some(index), format!("a twin call: {e}"));
+                    fd
+                }
+            }
+        } else {
+            fd
+        };
+        if deleted_at.is_none() {
+            tangent_findings(&best, n, m_el, moduli, de, s, index, &mut row, report);
+        }
+
+        // The stress of the half increment, for the midpoint rule.
+        if s.energy_rule == EnergyRule::Midpoint {
+            for (h, d) in b.strain_increment.iter_mut().zip(de) {
+                *h = 0.5 * d;
+            }
+            report.real_calls += 1;
+            if let Err(e) = b.call(routine, properties, 0.5 * dt, inc) {
+                report.add(
+                    BlockCheck::Call,
+                    "routine-fault",
+                    Some(index),
+                    format!("the half increment: {e}"),
+                );
+                return;
+            }
+            half.copy_from_slice(&b.stress);
+            b.strain_increment.copy_from_slice(de);
+        }
+
+        // The increment itself.
+        report.real_calls += 1;
+        if let Err(e) = b.call(routine, properties, *dt, inc) {
+            report.add(BlockCheck::Call, "routine-fault", Some(index), e.to_string());
+            return;
+        }
+        let finite = b.stress.iter().chain(&b.state).all(|x| x.is_finite())
+            && b.energy[0].internal.is_finite()
+            && b.energy[0].dissipated.is_finite();
+        if !finite {
+            let what = first_non_finite(&b);
+            report.add(BlockCheck::Call, "non-finite-output", Some(index), what);
+            return;
+        }
+        row.work = match s.energy_rule {
+            EnergyRule::Trapezoid => 0.5 * (work(&b.stress_start, de, rho) + work(&b.stress, de, rho)),
+            EnergyRule::Midpoint => work(&half, de, rho),
+        };
+        row.internal_increment = b.energy[0].internal - b.energy_start[0].internal;
+        row.dissipated_increment = b.energy[0].dissipated - b.energy_start[0].dissipated;
+        row.deleted = b.deleted[0] != 0;
+        let scale = (frobenius(&b.stress_start) + frobenius(&b.stress)) * frobenius(de) / rho;
+        if deleted_at.is_none() {
+            total_work += row.work.abs();
+            energy_findings(&b, &row, scale, total_work, s, report);
+        }
+        deletion_findings(&b, &mut deleted_at, index, s, report);
+        report.increments.push(row);
+        b.advance(*dt);
+    }
+    if deleted_at.is_none() {
+        report
+            .notes
+            .push("deletion: no point was deleted along this path; the deletion check did not run".into());
+    }
+}
+
+fn first_non_finite(b: &BlockBuffers) -> String {
+    if let Some(i) = b.stress.iter().position(|x| !x.is_finite()) {
+        return format!("stress[{i}] is {}", b.stress[i]);
+    }
+    if let Some(i) = b.state.iter().position(|x| !x.is_finite()) {
+        return format!("state[{i}] is {}", b.state[i]);
+    }
+    format!("the energies are {} (internal), {} (dissipated)", b.energy[0].internal, b.energy[0].dissipated)
+}
+
+/// x·A·x for an n × n column-major A.
+fn quadratic(a: &[f64], x: &[f64], n: usize) -> f64 {
+    (0..n).map(|j| (0..n).map(|i| x[i] * a[i + j * n]).sum::<f64>() * x[j]).sum()
+}
+
+#[allow(clippy::too_many_arguments)]
+fn tangent_findings(
+    d: &[f64],
+    n: usize,
+    m_el: f64,
+    moduli: &[f64],
+    de: &[f64],
+    s: &BlockSettings,
+    index: usize,
+    row: &mut BlockIncrement,
+    report: &mut BlockReport,
+) {
+    if d.iter().any(|x| !x.is_finite()) {
+        report.add(
+            BlockCheck::Tangent,
+            "non-finite-stiffness",
+            Some(index),
+            "the numerical tangent has non-finite entries: the wave speed and the stable time \
+             increment are undefined"
+                .into(),
+        );
+        return;
+    }
+    let m = dilatational(d, n);
+    let (c, dt) = wave(m, s);
+    row.effective_modulus = m;
+    row.wave_speed = c;
+    row.stable_time_increment = dt;
+    row.smallest_stiffness = smallest_eigen(d, n);
+    // Along the increment's own direction the effective stiffness never exceeds the elastic
+    // one; off its direction a softening routine's damage coupling may stiffen a component
+    // (less plastic flow, less damage), so without declared softening any normal component
+    // counts.
+    let along = quadratic(d, de, n) / quadratic(moduli, de, n);
+    row.along_ratio = along;
+    let stiffer =
+        along > 1.0 + s.stiffness_tolerance || (!s.softening && m > m_el * (1.0 + s.stiffness_tolerance));
+    if stiffer {
+        let (_, dt_el) = wave(m_el, s);
+        report.add(
+            BlockCheck::Tangent,
+            "stiffer-than-elastic",
+            Some(index),
+            format!(
+                "effective dilatational modulus {m:.6e} (along the increment {along:.4} of the elastic \
+                 stiffness) exceeds the elastic one {m_el:.6e} of the first call by {:.3} %: the stable \
+                 time increment L/c falls to {dt:.4e} from {dt_el:.4e}",
+                100.0 * (m / m_el - 1.0)
+            ),
+        );
+    }
+    if !s.softening && row.smallest_stiffness < -s.stiffness_tolerance * m_el {
+        report.add(
+            BlockCheck::Tangent,
+            "negative-stiffness",
+            Some(index),
+            format!(
+                "the tangent's symmetric part has the eigenvalue {:.6e} < 0 and the routine declares \
+                 no softening",
+                row.smallest_stiffness
+            ),
+        );
+    }
+}
+
+fn energy_findings(
+    b: &BlockBuffers,
+    row: &BlockIncrement,
+    scale: f64,
+    total_work: f64,
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) {
+    let index = row.index;
+    let tol = s.energy_tolerance * scale + 1e-300;
+    if (row.internal_increment - row.work).abs() > tol {
+        report.add(
+            BlockCheck::Energy,
+            "energy-work-mismatch",
+            Some(index),
+            format!(
+                "the internal energy grew by {:.9e} per unit mass, the work of the stress over the \
+                 increment ({} rule, divided by the density) is {:.9e}: off by {:.3e} of |σ||Δε|/ρ",
+                row.internal_increment,
+                s.energy_rule.name(),
+                row.work,
+                (row.internal_increment - row.work).abs() / scale.max(f64::MIN_POSITIVE)
+            ),
+        );
+    }
+    if row.dissipated_increment < -tol || b.energy[0].dissipated < -tol {
+        report.add(
+            BlockCheck::Energy,
+            "dissipation-decreases",
+            Some(index),
+            format!(
+                "the dissipated energy changed by {:.6e} to {:.6e} per unit mass; it must never \
+                 decrease",
+                row.dissipated_increment, b.energy[0].dissipated
+            ),
+        );
+    }
+    let stored = b.energy[0].internal - b.energy[0].dissipated;
+    if stored < -STORED_MARGIN * total_work - tol {
+        report.add(
+            BlockCheck::Energy,
+            "stored-energy-negative",
+            Some(index),
+            format!(
+                "stored energy (internal − dissipated) is {stored:.6e} per unit mass: more was \
+                 dissipated ({:.6e}) than work done ({:.6e}); stored + dissipated must add up to the work",
+                b.energy[0].dissipated, b.energy[0].internal
+            ),
+        );
+    }
+}
+
+fn deletion_findings(
+    b: &BlockBuffers,
+    deleted_at: &mut Option<usize>,
+    index: usize,
+    s: &BlockSettings,
+    report: &mut BlockReport,
+) {
+    let now = b.deleted[0] != 0;
+    match (*deleted_at, now) {
+        (None, true) => *deleted_at = Some(index),
+        (Some(at), false) => report.add(
+            BlockCheck::Deletion,
+            "deleted-point-revived",
+            Some(index),
+            format!("the point was deleted in increment {at} and is active again"),
+        ),
+        _ => {}
+    }
+    if now {
+        let largest = b.stress.iter().fold(0.0f64, |a, x| a.max(x.abs()));
+        if largest > s.deleted_stress * (1.0 + 1e-12) {
+            report.add(
+                BlockCheck::Deletion,
+                "deleted-point-stress",
+                Some(index),
+                format!(
+                    "a deleted point carries the stress {largest:.6e} (declared residual {:.3e})",
+                    s.deleted_stress
+                ),
+            );
+        }
+    }
+}

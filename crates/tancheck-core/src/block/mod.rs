@@ -1,0 +1,27 @@
+//! Block routines (explicit dynamics): the interface of fortran-shim/include/tancheck_block.h
+//! from the Rust side and the checks made for them.
+//!
+//! Data flow: [`routine`] (the call's types, [`BlockRoutine`], [`BlockModel`]) → [`walk`]
+//! (buffers of a block walked along increments) → [`settings`], [`report`] → the checks:
+//! [`along`] (elastic response; along the path of one point: numerical tangent, effective
+//! moduli, wave speed and stable time increment, energy bookkeeping, deletion),
+//! [`independence`] (blocks of 1, 7 and 128), [`refine`] (increment halving) → [`run`].
+
+pub mod along;
+pub mod counterpart;
+pub mod independence;
+pub mod rate;
+pub mod refine;
+pub mod report;
+pub mod routine;
+pub mod run;
+pub mod settings;
+pub mod walk;
+
+pub use report::{BlockCheck, BlockFinding, BlockIncrement, BlockReport};
+pub use routine::{
+    block_status, BlockCall, BlockInfo, BlockInput, BlockModel, BlockModelRoutine, BlockOutcome, BlockOutput,
+    BlockRoutine, Conditions, SpecificEnergy, BLOCK_ABI_VERSION, BLOCK_MESSAGE_LEN, ELASTIC_RESPONSE,
+};
+pub use run::{block_increments, run};
+pub use settings::{BlockSettings, EnergyRule, RateLaw};

@@ -1,0 +1,154 @@
+//! The result of checking a block routine: what was measured per increment of the point under
+//! test (effective modulus, wave speed, stable time increment, work and energies) and the
+//! findings of each check, each naming the increment and the output it is about.
+
+use serde::Serialize;
+
+/// The checks of a block routine, by the name reports use.
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum BlockCheck {
+    /// The first call (zero time, zero increment) returns the elastic response.
+    ElasticResponse,
+    /// A point's results do not depend on the block size, its position or its neighbours.
+    Independence,
+    /// The numerical tangent of one point: effective moduli, wave speed, stable time increment.
+    Tangent,
+    /// Internal energy = work of the stress; dissipation never decreases; stored ≥ elastic.
+    Energy,
+    /// A deleted point stays deleted, carries no stress and stays finite.
+    Deletion,
+    /// Halving the increments converges with the update's order.
+    Refinement,
+    /// Two rates change the stress by the declared law.
+    Rate,
+    /// The block routine's update matches the named point routine's.
+    Counterpart,
+    /// A call failed, crashed or misbehaved.
+    Call,
+}
+
+impl BlockCheck {
+    pub fn name(self) -> &'static str {
+        match self {
+            BlockCheck::ElasticResponse => "elastic-response",
+            BlockCheck::Independence => "independence",
+            BlockCheck::Tangent => "tangent",
+            BlockCheck::Energy => "energy",
+            BlockCheck::Deletion => "deletion",
+            BlockCheck::Refinement => "refinement",
+            BlockCheck::Rate => "rate",
+            BlockCheck::Counterpart => "counterpart",
+            BlockCheck::Call => "call",
+        }
+    }
+}
+
+/// One thing a check found wrong.
+#[derive(Clone, Debug, PartialEq, Serialize)]
+pub struct BlockFinding {
+    pub check: BlockCheck,
+    /// The finding's short name (`point-dependence`, `stiffer-than-elastic`, ...).
+    pub finding: &'static str,
+    /// The increment (from 1; 0 for the elastic response), when it is about one.
+    pub increment: Option<usize>,
+    /// What happened, with the numbers.
+    pub what: String,
+}
+
+/// What the check measured in one increment of the point under test.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct BlockIncrement {
+    pub index: usize,
+    /// Largest normal diagonal entry of the numerical tangent ∂σ/∂Δε (the dilatational
+    /// effective modulus M).
+    pub effective_modulus: f64,
+    /// sqrt(M / density).
+    pub wave_speed: f64,
+    /// characteristic length / wave speed.
+    pub stable_time_increment: f64,
+    /// Stiffness along the increment's direction, Δε·D·Δε / Δε·C·Δε (C the elastic moduli of
+    /// the first call): below 0 the point softens.
+    pub along_ratio: f64,
+    /// Smallest eigenvalue of the tangent's symmetric part.
+    pub smallest_stiffness: f64,
+    /// Relative difference of the finite-difference and complex-step tangents (None without
+    /// a twin).
+    pub twin_difference: Option<f64>,
+    /// Work of the stress over the increment per unit mass, by the stated rule.
+    pub work: f64,
+    /// The routine's internal and dissipated energy increments.
+    pub internal_increment: f64,
+    pub dissipated_increment: f64,
+    pub deleted: bool,
+}
+
+/// The elastic response of the first call.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct ElasticSummary {
+    /// Elastic moduli (ncomp × ncomp, column-major), from the first call.
+    pub moduli: Vec<f64>,
+    /// Largest normal diagonal entry: the dilatational modulus λ + 2μ for isotropy.
+    pub dilatational_modulus: f64,
+    pub wave_speed: f64,
+    pub stable_time_increment: f64,
+}
+
+/// The whole result.
+#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+pub struct BlockReport {
+    pub routine: String,
+    pub path: String,
+    pub energy_rule: &'static str,
+    pub elastic: ElasticSummary,
+    pub increments: Vec<BlockIncrement>,
+    pub findings: Vec<BlockFinding>,
+    /// What each check did, or why it did not run ("no point was deleted along the path").
+    pub notes: Vec<String>,
+    pub real_calls: u64,
+    pub complex_calls: u64,
+}
+
+impl BlockReport {
+    pub fn passed(&self) -> bool {
+        self.findings.is_empty()
+    }
+
+    /// The first finding's name, or "none".
+    pub fn finding(&self) -> &'static str {
+        self.findings.first().map_or("none", |f| f.finding)
+    }
+
+    /// Exit code: 0 pass, 3 a call failed or crashed, 1 any other finding.
+    pub fn exit_code(&self) -> i32 {
+        if self.passed() {
+            0
+        } else if self.has("routine-fault") {
+            3
+        } else {
+            1
+        }
+    }
+
+    /// Whether some finding of `check` was made.
+    pub fn has(&self, finding: &str) -> bool {
+        self.findings.iter().any(|f| f.finding == finding)
+    }
+
+    pub(crate) fn add(
+        &mut self,
+        check: BlockCheck,
+        finding: &'static str,
+        increment: Option<usize>,
+        what: String,
+    ) {
+        // One finding per name is enough to report; later ones are counted in the text.
+        if let Some(f) = self.findings.iter_mut().find(|f| f.finding == finding) {
+            if !f.what.ends_with(" (and later increments)") {
+                f.what.push_str(" (and later increments)");
+            }
+            return;
+        }
+        self.findings.push(BlockFinding { check, finding, increment, what });
+    }
+}

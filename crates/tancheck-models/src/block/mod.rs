@@ -1,0 +1,71 @@
+//! Reference block models (explicit dynamics, fortran-shim/include/tancheck_block.h), written
+//! once over [`Scalar`]: each point is updated by the point model of this crate (the return
+//! map is not rewritten), and the block adds what explicit solvers expect — the specific
+//! internal energy by the trapezoid rule, the specific dissipation, the deleted flag and the
+//! elastic response of the first call.
+//!
+//! - [`J2Block`]: J2 plasticity with linear kinematic (and isotropic) hardening, the block form
+//!   of [`crate::J2`]; with a [`BlockFlaw`] one of the flawed zoo rows.
+//! - [`JcBlock`]: Johnson–Cook plasticity (rate, thermal softening, adiabatic heating), damage
+//!   initiation, progressive damage over the characteristic length and deletion, the block form
+//!   of [`crate::JohnsonCook`]; with a [`JcBlockFlaw`] one of the flawed zoo rows.
+
+pub mod j2;
+pub mod johnson_cook;
+
+pub use j2::{BlockFlaw, J2Block};
+pub use johnson_cook::{JcBlock, JcBlockFlaw};
+
+use tancheck_core::block::{BlockModelRoutine, BlockRoutine};
+use tancheck_core::{PointKind, Scalar};
+
+use crate::ModelError;
+
+/// Names of the block models, as [`by_name`] accepts them.
+pub const NAMES: [&str; 8] = [
+    J2Block::NAME,
+    J2Block::NEIGHBOUR_NAME,
+    J2Block::OLD_STRESS_ENERGY_NAME,
+    J2Block::DISSIPATION_SIGN_NAME,
+    JcBlock::NAME,
+    JcBlock::REVIVED_NAME,
+    JcBlock::UNGUARDED_RATE_NAME,
+    JcBlock::WRONG_TEMPERATURE_NAME,
+];
+
+/// The block model called `name` for a kind of point, as a block routine with its twin; `None`
+/// for a name that is no block model.
+pub fn by_name(name: &str, kind: PointKind) -> Option<Result<Box<dyn BlockRoutine>, ModelError>> {
+    if let Some(m) = J2Block::by_name(name, kind) {
+        return Some(m.map(|m| Box::new(BlockModelRoutine(m)) as Box<dyn BlockRoutine>));
+    }
+    if let Some(m) = JcBlock::by_name(name, kind) {
+        return Some(m.map(|m| Box::new(BlockModelRoutine(m)) as Box<dyn BlockRoutine>));
+    }
+    None
+}
+
+/// stress = stress_start + C Δε with isotropic C(E, ν), per point: the elastic response of the
+/// first call (engineering shear; ncomp 6 or 4).
+pub(crate) fn elastic_response<S: Scalar>(e: S, nu: S, stress_start: &[S], de: &[S], stress: &mut [S]) {
+    let n = de.len();
+    let (lambda, mu) = crate::tensor::lame(e, nu);
+    let tr = de[0] + de[1] + de[2];
+    for i in 0..n {
+        stress[i] = if i < 3 {
+            stress_start[i] + lambda * tr + mu * 2.0 * de[i]
+        } else {
+            stress_start[i] + mu * de[i]
+        };
+    }
+}
+
+/// ½ (σ_start + σ_new)·Δε / ρ: the trapezoid rule's work per unit mass (engineering shear makes
+/// the dot product the work-conjugate one).
+pub(crate) fn trapezoid_work<S: Scalar>(stress_start: &[S], stress: &[S], de: &[S], density: f64) -> S {
+    let mut w = S::zero();
+    for i in 0..de.len() {
+        w += (stress_start[i] + stress[i]) * de[i] * 0.5;
+    }
+    w / density
+}

@@ -1,0 +1,88 @@
+/*
+ * misbehave_block.c -- block routines (tancheck_block.h) that break memory on purpose, for the
+ * tests of the block trampoline and the block memory guards. Elastic (properties [E, nu], no
+ * state) except for their one misbehaviour:
+ *
+ *   mb_block_ok             correct
+ *   mb_block_overrun        writes stress one entry past the last point
+ *   mb_block_writes_input   writes its read-only strain_increment
+ *   mb_block_unwritten      leaves the energy of the last point unwritten
+ *   mb_block_crash          dereferences a null pointer in the last point
+ */
+#include <stddef.h>
+
+#include "tancheck_block.h"
+
+static void elastic(const tc_block *block, const tc_real *properties, const tc_real *strain_increment,
+                    const tc_real *stress_start, const tc_specific_energy *energy_start,
+                    const tc_point_conditions *conditions, tc_real *stress,
+                    tc_specific_energy *energy, int32_t *deleted, int skip_last_energy)
+{
+    const int n = block->ncomp;
+    const tc_real e = properties[0], nu = properties[1];
+    const tc_real mu = e / (2.0 * (1.0 + nu)), lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
+    for (int p = 0; p < block->npoints; ++p) {
+        const tc_real *de = strain_increment + p * n;
+        const tc_real tr = de[0] + de[1] + de[2];
+        tc_real work = 0.0;
+        for (int i = 0; i < n; ++i) {
+            stress[p * n + i] = stress_start[p * n + i] + (i < 3 ? lambda * tr + 2.0 * mu * de[i] : mu * de[i]);
+            work += 0.5 * (stress_start[p * n + i] + stress[p * n + i]) * de[i];
+        }
+        deleted[p] = 0;
+        if (skip_last_energy && p == block->npoints - 1) continue;
+        energy[p].internal = energy_start[p].internal + work / conditions[p].density;
+        energy[p].dissipated = energy_start[p].dissipated;
+    }
+}
+
+#define ARGS block, properties, strain_increment, stress_start, energy_start, conditions, stress, energy, deleted
+
+TC_BLOCK_ROUTINE(mb_block_ok)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+}
+
+TC_BLOCK_ROUTINE(mb_block_overrun)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+    stress[block->npoints * block->ncomp] = 1.0;
+}
+
+TC_BLOCK_ROUTINE(mb_block_writes_input)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+    ((tc_real *)strain_increment)[0] = 0.0;
+}
+
+TC_BLOCK_ROUTINE(mb_block_unwritten)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 1);
+}
+
+TC_BLOCK_ROUTINE(mb_block_crash)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+    volatile tc_real *nowhere = NULL;
+    if (block->npoints > 0) stress[0] = nowhere[block->npoints];
+}

@@ -1,0 +1,136 @@
+//! Block routines through the guarded trampoline and the block memory guards
+//! (fortran-shim/examples/c/misbehave_block.c): a write past the end, a write to a read-only
+//! input, an output left unwritten and a crash each end the call with the fault that names
+//! them; a correct routine's block call, real and twin, allocates nothing.
+
+use std::alloc::{GlobalAlloc, Layout, System};
+use std::cell::Cell;
+use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
+
+use num_complex::Complex64;
+use tancheck::abi::{build_library, BuildOptions, Library, LibraryBlockRoutine};
+use tancheck::core::block::walk::{BlockBuffers, ComplexPoint};
+use tancheck::core::block::{BlockInfo, Conditions};
+use tancheck::core::Fault;
+
+struct Counting;
+
+thread_local! {
+    static COUNT: Cell<u64> = const { Cell::new(0) };
+}
+
+unsafe impl GlobalAlloc for Counting {
+    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
+        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
+        unsafe { System.alloc(l) }
+    }
+    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
+        unsafe { System.dealloc(p, l) }
+    }
+    unsafe fn realloc(&self, p: *mut u8, l: Layout, n: usize) -> *mut u8 {
+        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
+        unsafe { System.realloc(p, l, n) }
+    }
+}
+
+#[global_allocator]
+static A: Counting = Counting;
+
+fn allocations() -> u64 {
+    COUNT.with(Cell::get)
+}
+
+const PROPS: [f64; 2] = [200_000.0, 0.3];
+
+fn lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| {
+        let dir = std::env::temp_dir().join(format!("tancheck-root-test-{}-mb-block", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let out = dir.join("libmb_block.so");
+        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave_block.c");
+        build_library(&BuildOptions::new([src], &out)).unwrap();
+        out
+    })
+}
+
+fn open(symbol: &str) -> LibraryBlockRoutine {
+    let info = BlockInfo { name: symbol.into(), ncomp: 6, nstate: 0, nproperties: 2 };
+    Library::open(lib()).unwrap().block_routine(symbol, info).unwrap()
+}
+
+fn block(npoints: usize) -> BlockBuffers {
+    let c = Conditions {
+        temperature: 293.0,
+        temperature_increment: 0.0,
+        density: 7.85e-9,
+        characteristic_length: 1.0,
+    };
+    let mut b = BlockBuffers::new(npoints, 6, &[], c);
+    for p in 0..npoints {
+        b.increment_of(p).copy_from_slice(&[1e-4, -2e-5, 3e-5, 1e-5, 0.0, 2e-5]);
+    }
+    b
+}
+
+fn misbehaved(symbol: &str) -> String {
+    let mut r = open(symbol);
+    let mut b = block(5);
+    match b.call(&mut r, &PROPS, 1e-6, 1) {
+        Err(Fault::Misbehaved { what }) => what,
+        other => panic!("{symbol}: expected a guard finding, got {other:?}"),
+    }
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_block_guards_name_each_misbehaviour() {
+    let w = misbehaved("mb_block_overrun");
+    assert!(w.starts_with("wrote past the end of stress: stress[30]"), "{w}");
+    let w = misbehaved("mb_block_writes_input");
+    assert!(w.contains("read-only input strain_increment: strain_increment[0]"), "{w}");
+    let w = misbehaved("mb_block_unwritten");
+    assert!(w.starts_with("left energy[8] unwritten"), "{w}");
+    // The correct routine: no finding, the outputs reach the caller.
+    let mut r = open("mb_block_ok");
+    let mut b = block(5);
+    b.call(&mut r, &PROPS, 1e-6, 1).unwrap();
+    assert!(r.findings().is_empty());
+    assert!(b.stress.iter().all(|x| x.is_finite()) && b.energy[4].internal > 0.0);
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn a_crash_in_a_block_call_is_a_fault() {
+    let mut r = open("mb_block_crash");
+    let mut b = block(3);
+    match b.call(&mut r, &PROPS, 1e-6, 1) {
+        Err(Fault::Crashed { what, .. }) => {
+            assert!(what.contains("SIGSEGV") || what.contains("segmentation"), "{what}")
+        }
+        other => panic!("expected a crash, got {other:?}"),
+    }
+    // The guard is ready for the next call.
+    let mut ok = open("mb_block_ok");
+    b.call(&mut ok, &PROPS, 1e-6, 1).unwrap();
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn one_block_call_allocates_nothing() {
+    let mut r = open("mb_block_ok");
+    let mut b = block(128);
+    let mut cx = ComplexPoint::new(2, 6, 0);
+    // Warm up: the guarded buffers are laid out for the largest block once.
+    b.call(&mut r, &PROPS, 1e-6, 1).unwrap();
+    cx.load(&PROPS, &b, 0);
+    cx.call(&mut r, &b.conditions[..1], 0.0, 1e-6, 1).unwrap();
+    let before = allocations();
+    for inc in 2..12 {
+        b.call(&mut r, &PROPS, 1e-6, inc).unwrap();
+        cx.strain_increment[0] = Complex64::new(1e-4, 1e-20);
+        cx.call(&mut r, &b.conditions[..1], 0.0, 1e-6, inc).unwrap();
+    }
+    assert_eq!(allocations() - before, 0, "block calls allocated");
+}

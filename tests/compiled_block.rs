@@ -1,0 +1,302 @@
+//! The C and Fortran J2 block routines (fortran-shim/examples/c/j2_block.c,
+//! fortran/j2_block.F90), compiled, loaded and called through the guarded block trampoline with
+//! the memory guards: the same stresses, states and energies as the Rust block model `j2-block`
+//! for blocks of mixed points, the same complex-step derivatives from their twins, the block
+//! check passes the correct routines and names the finding of each flawed one.
+
+use std::path::{Path, PathBuf};
+use std::sync::OnceLock;
+
+use num_complex::Complex64;
+use tancheck::abi::{build_library, BuildOptions, Library, LibraryBlockRoutine};
+use tancheck::core::block::walk::{BlockBuffers, ComplexPoint};
+use tancheck::core::block::{run, BlockInfo, BlockModelRoutine, BlockSettings, Conditions};
+use tancheck::core::path::{Path as StrainPath, Shape};
+use tancheck::core::PointKind;
+use tancheck::models::block::{BlockFlaw, J2Block};
+
+/// The worked J2 case of REFERENCES.md (Simo & Hughes 1998 closed form): E 200 GPa, ν 0.3,
+/// σy 250 MPa, K' 1000 MPa, H' 500 MPa.
+const PROPS: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+
+fn shim() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
+}
+
+fn build(name: &str, source: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("tancheck-root-test-{}-{name}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let out = dir.join(format!("lib{name}.so"));
+    build_library(&BuildOptions::new([shim().join(source)], &out))
+        .unwrap_or_else(|e| panic!("building {name}: {e}"));
+    out
+}
+
+fn c_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("j2_block_c", "c/j2_block.c"))
+}
+
+fn f_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("j2_block_f", "fortran/j2_block.F90"))
+}
+
+fn info(name: &str) -> BlockInfo {
+    BlockInfo { name: name.into(), ncomp: 6, nstate: 13, nproperties: 7 }
+}
+
+fn open(lib: &Path, symbol: &str) -> LibraryBlockRoutine {
+    Library::open(lib).unwrap().block_routine(symbol, info(symbol)).unwrap()
+}
+
+fn conditions() -> Conditions {
+    Conditions {
+        temperature: 293.0,
+        temperature_increment: 0.0,
+        density: 7.85e-9,
+        characteristic_length: 2.0,
+    }
+}
+
+fn settings() -> BlockSettings {
+    BlockSettings { conditions: conditions(), state0: vec![0.0; 13], ..BlockSettings::default() }
+}
+
+/// Walk a block of 9 points on different paths (some elastic, some plastic, reversed) with
+/// both routines and compare every output after every increment.
+fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
+    let mut ours = open(lib, symbol);
+    let mut rust = BlockModelRoutine(J2Block::with_flaw(PointKind::Solid3d, flaw).unwrap());
+    let mut a = BlockBuffers::new(9, 6, &[0.0; 13], conditions());
+    let mut b = a.clone();
+    let dir = [1.0, -0.3, -0.2, 0.4, 0.1, 0.7];
+    for inc in 1..=10 {
+        for p in 0..9 {
+            let f = 1e-3 * (p as f64 - 3.0) * if inc > 6 { -1.0 } else { 1.0 };
+            for i in 0..6 {
+                let v = f * dir[(i + p) % 6];
+                a.increment_of(p)[i] = v;
+                b.increment_of(p)[i] = v;
+            }
+        }
+        a.call(&mut ours, &PROPS, 1e-5, inc).unwrap();
+        b.call(&mut rust, &PROPS, 1e-5, inc).unwrap();
+        let close = |x: &[f64], y: &[f64], what: &str| {
+            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
+            for (k, (u, v)) in x.iter().zip(y).enumerate() {
+                assert!((u - v).abs() <= 1e-12 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
+            }
+        };
+        close(&a.stress, &b.stress, "stress");
+        close(&a.state, &b.state, "state");
+        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        close(&ea, &eb, "energy");
+        assert_eq!(a.deleted, b.deleted);
+        a.advance(1e-5);
+        b.advance(1e-5);
+    }
+    // The twins: the complex-step derivative of one plastic point equals the Rust model's.
+    let mut ca = ComplexPoint::new(7, 6, 13);
+    let mut cb = ComplexPoint::new(7, 6, 13);
+    for p in [0, 8] {
+        ca.load(&PROPS, &a, p);
+        cb.load(&PROPS, &b, p);
+        ca.strain_increment[2] += Complex64::new(0.0, 1e-20);
+        cb.strain_increment[2] += Complex64::new(0.0, 1e-20);
+        ca.call(&mut ours, &a.conditions[..1], a.time, 1e-5, 11).unwrap();
+        cb.call(&mut rust, &b.conditions[..1], b.time, 1e-5, 11).unwrap();
+        for i in 0..6 {
+            let (u, v) = (ca.stress[i].im / 1e-20, cb.stress[i].im / 1e-20);
+            assert!((u - v).abs() <= 1e-9 * v.abs().max(1.0), "{symbol} twin, point {p}: {u} vs {v}");
+        }
+    }
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_c_block_routines_match_the_rust_model() {
+    for (symbol, flaw) in [
+        ("c_j2_block", BlockFlaw::None),
+        ("c_j2_block_neighbour_state", BlockFlaw::NeighbourState),
+        ("c_j2_block_old_stress_energy", BlockFlaw::OldStressEnergy),
+        ("c_j2_block_dissipation_sign", BlockFlaw::DissipationSign),
+    ] {
+        same_as_rust(c_lib(), symbol, flaw);
+    }
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn the_fortran_block_routines_match_the_rust_model() {
+    for (symbol, flaw) in [
+        ("f_j2_block", BlockFlaw::None),
+        ("f_j2_block_neighbour_state", BlockFlaw::NeighbourState),
+        ("f_j2_block_old_stress_energy", BlockFlaw::OldStressEnergy),
+        ("f_j2_block_dissipation_sign", BlockFlaw::DissipationSign),
+    ] {
+        same_as_rust(f_lib(), symbol, flaw);
+    }
+}
+
+fn check(lib: &Path, symbol: &str) -> tancheck::core::block::BlockReport {
+    let mut r = open(lib, symbol);
+    let path = StrainPath::ramp(Shape::TensionShear, 6e-3, 6, 3);
+    let report = run(&mut r, &PROPS, &path, &settings()).unwrap();
+    assert!(r.findings().is_empty(), "{symbol}: the guards found {:?}", r.findings());
+    report
+}
+
+fn verdicts(lib: &Path, prefix: &str) {
+    let r = check(lib, &format!("{prefix}_j2_block"));
+    assert!(r.passed(), "{prefix}_j2_block: {:#?}", r.findings);
+    assert!(r.complex_calls > 0, "the twin was used");
+    for (suffix, finding) in [
+        ("neighbour_state", "point-dependence"),
+        ("old_stress_energy", "energy-work-mismatch"),
+        ("dissipation_sign", "dissipation-decreases"),
+    ] {
+        let symbol = format!("{prefix}_j2_block_{suffix}");
+        let r = check(lib, &symbol);
+        assert_eq!(r.finding(), finding, "{symbol}: {:#?}", r.findings);
+    }
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_block_check_passes_the_c_routine_and_names_each_flaw() {
+    verdicts(c_lib(), "c");
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn the_block_check_passes_the_fortran_routine_and_names_each_flaw() {
+    verdicts(f_lib(), "f");
+}
+
+// ---- Johnson–Cook block routines (jc_block.c, jc_block.F90) ----------------------------
+
+use tancheck::core::block::RateLaw;
+use tancheck::models::block::{JcBlock, JcBlockFlaw};
+
+/// 4340 steel of REFERENCES.md (Johnson–Cook constants, read, secondary copies) with typical
+/// E, ν, T_r, reference rate, density, heat capacity (common practice), χ = 0.9, k_E = 0.3,
+/// G_f = 20 N/mm, d_max = 0.99 (for the checks only).
+const STEEL: [f64; 21] = [
+    200_000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44,
+    -2.12, 0.002, 0.61, 0.3, 20.0, 0.99,
+];
+
+fn jc_c_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("jc_block_c", "c/jc_block.c"))
+}
+
+fn jc_f_lib() -> &'static Path {
+    static L: OnceLock<PathBuf> = OnceLock::new();
+    L.get_or_init(|| build("jc_block_f", "fortran/jc_block.F90"))
+}
+
+fn jc_open(lib: &Path, symbol: &str) -> LibraryBlockRoutine {
+    let info = BlockInfo { name: symbol.into(), ncomp: 6, nstate: 13, nproperties: 21 };
+    Library::open(lib).unwrap().block_routine(symbol, info).unwrap()
+}
+
+fn jc_conditions() -> Conditions {
+    Conditions {
+        temperature: 500.0,
+        temperature_increment: 0.0,
+        density: 7.83e-9,
+        characteristic_length: 2.0,
+    }
+}
+
+/// A block of 9 points on paths from elastic to deleted, compared with the Rust model after
+/// every increment.
+fn jc_same_as_rust(lib: &Path, symbol: &str, flaw: JcBlockFlaw) {
+    let mut ours = jc_open(lib, symbol);
+    let mut rust = BlockModelRoutine(JcBlock::with_flaw(PointKind::Solid3d, flaw).unwrap());
+    let mut a = BlockBuffers::new(9, 6, &[0.0; 13], jc_conditions());
+    let mut b = a.clone();
+    let dir = [1.0, -0.3, -0.2, 0.4, 0.1, 0.7];
+    let mut deleted_seen = false;
+    for inc in 1..=40 {
+        for p in 0..9 {
+            let f = 2e-3 * (p as f64 - 2.0) * if inc > 30 { -1.0 } else { 1.0 };
+            for i in 0..6 {
+                let v = f * dir[(i + p) % 6];
+                a.increment_of(p)[i] = v;
+                b.increment_of(p)[i] = v;
+            }
+        }
+        a.call(&mut ours, &STEEL, 1e-5, inc).unwrap();
+        b.call(&mut rust, &STEEL, 1e-5, inc).unwrap();
+        let close = |x: &[f64], y: &[f64], what: &str| {
+            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
+            for (k, (u, v)) in x.iter().zip(y).enumerate() {
+                assert!((u - v).abs() <= 1e-9 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
+            }
+        };
+        close(&a.stress, &b.stress, "stress");
+        close(&a.state, &b.state, "state");
+        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+        close(&ea, &eb, "energy");
+        assert_eq!(a.deleted, b.deleted, "{symbol}, increment {inc}");
+        deleted_seen |= a.deleted.iter().any(|&d| d != 0);
+        a.advance(1e-5);
+        b.advance(1e-5);
+    }
+    assert!(deleted_seen, "{symbol}: some point is deleted along these paths");
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_johnson_cook_block_routines_match_the_rust_model() {
+    for (prefix, lib) in [("c", jc_c_lib()), ("f", jc_f_lib())] {
+        for (suffix, flaw) in [
+            ("", JcBlockFlaw::None),
+            ("_revived", JcBlockFlaw::Revived),
+            ("_wrong_temperature", JcBlockFlaw::WrongTemperature),
+        ] {
+            jc_same_as_rust(lib, &format!("{prefix}_jc_block{suffix}"), flaw);
+        }
+    }
+}
+
+fn jc_check(lib: &Path, symbol: &str) -> tancheck::core::block::BlockReport {
+    let mut r = jc_open(lib, symbol);
+    let mut path = StrainPath::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
+    for inc in &mut path.increments {
+        inc.dtime = 5e-5;
+    }
+    let s = BlockSettings {
+        conditions: jc_conditions(),
+        state0: vec![0.0; 13],
+        softening: true,
+        rate_law: Some(RateLaw { reference_rate: 1.0, coefficient: 0.014 }),
+        ..BlockSettings::default()
+    };
+    let report = run(&mut r, &STEEL, &path, &s).unwrap();
+    assert!(r.findings().is_empty(), "{symbol}: the guards found {:?}", r.findings());
+    report
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_block_check_passes_the_johnson_cook_routines_and_names_each_flaw() {
+    for (prefix, lib) in [("c", jc_c_lib()), ("f", jc_f_lib())] {
+        let r = jc_check(lib, &format!("{prefix}_jc_block"));
+        assert!(r.passed(), "{prefix}_jc_block: {:#?}", r.findings);
+        for (suffix, finding) in [
+            ("revived", "deleted-point-revived"),
+            ("unguarded_rate", "zero-rate-not-finite"),
+            ("wrong_temperature", "elastic-response-mismatch"),
+        ] {
+            let symbol = format!("{prefix}_jc_block_{suffix}");
+            let r = jc_check(lib, &symbol);
+            assert_eq!(r.finding(), finding, "{symbol}: {:#?}", r.findings);
+        }
+    }
+}
