@@ -60,7 +60,8 @@ fn perturbed_calls_into_a_compiled_routine_allocate_nothing() {
 }
 
 /// One comparison of a plastic tangent with a numerical one (default `worst_entries`, the
-/// increment direction measured too) allocates nothing, and keeps the same worst entries, in
+/// increment direction measured too) allocates nothing when it passes (only the entry errors
+/// of a failing one), and keeps the same worst entries, in
 /// the same order, as sorting every entry by decreasing error (a stable sort) would.
 #[test]
 fn one_comparison_allocates_nothing() {
@@ -94,7 +95,18 @@ fn one_comparison_allocates_nothing() {
         1.0,
     );
     let after = allocations();
-    assert_eq!(after - before, 0, "a comparison allocated");
+    // A failing comparison keeps every entry's error for the report's heatmap: one vector,
+    // and nothing else; a passing one (every increment of a correct routine) allocates nothing.
+    assert_eq!(
+        after - before,
+        2,
+        "a failing comparison allocated more than its entry errors (one vector each)"
+    );
+    assert_eq!(c.entry_errors.len(), 36);
+    let before = allocations();
+    let same = compare_along(&conv, &returned, &returned, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    assert_eq!(allocations() - before, 0, "a passing comparison allocated");
+    assert!(same.pass && same.entry_errors.is_empty());
     assert_eq!(c, warm);
     assert!(!c.pass && !d.pass);
     assert_eq!(c.worst.len(), s.worst_entries);

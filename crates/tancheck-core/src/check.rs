@@ -77,15 +77,16 @@ pub fn run_with(
     };
     match plan {
         Some(handles) if !stopped_at_zero => {
-            let chunks = concurrent::walk(caller, handles, &info, props, driver.start(), path, settings);
+            let chunks =
+                concurrent::walk(caller, handles, &info, props, driver.start(), path, settings, keep);
             for chunk in chunks {
-                let mut stop = false;
-                for step in chunk.steps {
-                    stop = merged.take(step, &conv);
-                    if stop {
-                        break;
-                    }
-                }
+                let stop = merged.take_chunk(
+                    chunk.collected,
+                    chunk.notes,
+                    chunk.unloaded,
+                    chunk.first_elastic,
+                    &conv,
+                );
                 caller.real_calls += chunk.real_calls;
                 caller.complex_calls += chunk.complex_calls;
                 progress(merged.increments.len());
@@ -207,23 +208,49 @@ impl Merged {
         let stops = step.stops();
         self.unloaded |= step.unloaded;
         self.notes.extend(step.note);
-        // The first elastic increment's numerical tangent tells a wrong declared convention,
-        // at no cost in calls.
-        if step.checked && !self.conventions_seen && !step.result.state_changed {
-            self.conventions_seen = true;
-            if let Some(t) = &step.best {
-                let f = crate::convention_fit::analyse(conv, t, crate::convention_fit::DEFAULT_TOL);
-                if f.mismatch() {
-                    self.notes.push(format!(
-                        "conventions warning: the elastic response {}; the tangent check cannot see a wrong \
-                         declaration (the `conventions` probe shows the evidence)",
-                        f.sentence()
-                    ));
-                }
-            }
+        if step.checked && !step.result.state_changed {
+            self.first_elastic(step.best.as_deref(), conv);
         }
         self.previous = if stops { None } else { step.best };
         self.increments.push(step.result);
         stops
+    }
+
+    /// Add a thread's share, collected there; true when the path stops in it.
+    fn take_chunk(
+        &mut self,
+        collected: Collector,
+        notes: Vec<String>,
+        unloaded: bool,
+        first_elastic: Option<Option<Vec<f64>>>,
+        conv: &crate::Convention,
+    ) -> bool {
+        self.unloaded |= unloaded;
+        self.notes.extend(notes);
+        if let Some(best) = first_elastic {
+            self.first_elastic(best.as_deref(), conv);
+        }
+        self.previous = None;
+        self.increments.append(collected);
+        self.increments.last_faulted()
+    }
+
+    /// The first elastic increment's numerical tangent tells a wrong declared convention, at
+    /// no cost in calls.
+    fn first_elastic(&mut self, best: Option<&[f64]>, conv: &crate::Convention) {
+        if self.conventions_seen {
+            return;
+        }
+        self.conventions_seen = true;
+        if let Some(t) = best {
+            let f = crate::convention_fit::analyse(conv, t, crate::convention_fit::DEFAULT_TOL);
+            if f.mismatch() {
+                self.notes.push(format!(
+                    "conventions warning: the elastic response {}; the tangent check cannot see a wrong \
+                     declaration (the `conventions` probe shows the evidence)",
+                    f.sentence()
+                ));
+            }
+        }
     }
 }

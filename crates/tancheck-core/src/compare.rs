@@ -445,10 +445,9 @@ fn measure(
         entry_errors: if pass {
             Vec::new()
         } else {
-            (0..ncols)
-                .flat_map(|j| (0..nrows).map(move |i| i + j * nrows))
-                .map(|k| finite_or_inf((r[k] - m[k]).abs() / m[k].abs().max(floor)))
-                .collect()
+            let mut all = Vec::with_capacity(r.len());
+            all.extend(r.iter().zip(m).map(|(a, b)| finite_or_inf((a - b).abs() / b.abs().max(floor))));
+            all
         },
         non_finite_returned: non_finite,
         tol,

@@ -21,8 +21,9 @@ use std::ops::Range;
 use crate::call_check as judge;
 use crate::driver::{Driver, PointState};
 use crate::first_calls::Branches;
-use crate::increment::{self, Step};
+use crate::increment;
 use crate::path::Path;
+use crate::report::{Collector, Keep};
 use crate::routine::{Caller, Routine, RoutineInfo};
 use crate::settings::Settings;
 
@@ -36,7 +37,16 @@ const PROBE_ROUNDS: usize = 200;
 
 /// The threads' share of the path, in path order.
 pub struct Chunk {
-    pub steps: Vec<Step>,
+    /// The share's increments, collected as the check collects them (a record each, the full
+    /// detail of those `keep` asks for), so a long share holds no more than the serial walk.
+    pub collected: Collector,
+    /// Notes of the share's increments (mixed-control solves that did not converge).
+    pub notes: Vec<String>,
+    /// Some increment of the share unloaded.
+    pub unloaded: bool,
+    /// The best numerical tangent of the share's first checked increment that left the state
+    /// unchanged (for the conventions warning), when there was one.
+    pub first_elastic: Option<Option<Vec<f64>>>,
     /// Calls made to check the share (the walk to it not included).
     pub real_calls: u64,
     pub complex_calls: u64,
@@ -212,6 +222,7 @@ pub fn walk(
     start: &PointState,
     path: &Path,
     settings: &Settings,
+    keep: Keep,
 ) -> Vec<Chunk> {
     let threads = handles.len() + 1;
     let b = shares(path.increments.len(), threads, calls_per_increment(settings, info.convention.ncomp()));
@@ -221,11 +232,11 @@ pub fn walk(
             let range = b[t + 1]..b[t + 2];
             joins.push(s.spawn(move || {
                 let mut c = Caller::new(&mut *h);
-                share(&mut c, info, props, start, path, settings, range)
+                share(&mut c, info, props, start, path, settings, keep, range)
             }));
         }
         let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-        let first = share(caller, info, props, start, path, settings, b[0]..b[1]);
+        let first = share(caller, info, props, start, path, settings, keep, b[0]..b[1]);
         caller.real_calls = real0;
         caller.complex_calls = cplx0;
         let mut out = vec![first];
@@ -244,9 +255,18 @@ fn share(
     start: &PointState,
     path: &Path,
     settings: &Settings,
+    keep: Keep,
     range: Range<usize>,
 ) -> Chunk {
-    let incomplete = Chunk { steps: Vec::new(), real_calls: 0, complex_calls: 0, complete: false };
+    let incomplete = Chunk {
+        collected: Collector::new(settings, keep, 0),
+        notes: Vec::new(),
+        unloaded: false,
+        first_elastic: None,
+        real_calls: 0,
+        complex_calls: 0,
+        complete: false,
+    };
     let Ok(mut driver) = Driver::new(info, props, start.clone()) else {
         return incomplete;
     };
@@ -284,7 +304,8 @@ fn share(
         driver.advance();
     }
     let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-    let mut steps = Vec::with_capacity(range.len());
+    let mut collected = Collector::new(settings, keep, range.len());
+    let (mut notes, mut unloaded, mut first_elastic) = (Vec::new(), false, None);
     let mut complete = true;
     for k in range {
         let step = increment::step(
@@ -298,15 +319,23 @@ fn share(
             &mut dstrain,
         );
         let stops = step.stops();
-        previous = if stops { None } else { step.best.clone() };
-        steps.push(step);
+        unloaded |= step.unloaded;
+        notes.extend(step.note);
+        if step.checked && first_elastic.is_none() && !step.result.state_changed {
+            first_elastic = Some(step.best.clone());
+        }
+        previous = if stops { None } else { step.best };
+        collected.push(step.result);
         if stops {
             complete = false;
             break;
         }
     }
     Chunk {
-        steps,
+        collected,
+        notes,
+        unloaded,
+        first_elastic,
         real_calls: caller.real_calls - real0,
         complex_calls: caller.complex_calls - cplx0,
         complete,

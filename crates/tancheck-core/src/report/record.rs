@@ -300,6 +300,41 @@ impl Collector {
         self.stopped_at.is_some()
     }
 
+    /// Add the increments `other` collected after those of `self` (a later share of the path
+    /// checked on another thread): the same result as pushing them here one by one.
+    pub fn append(&mut self, other: Collector) {
+        for (s, o) in self.summary.iter_mut().zip(&other.summary) {
+            s.checks += o.checks;
+            s.failed += o.failed;
+            s.skipped += o.skipped;
+            s.worst_norm_error = s.worst_norm_error.max(o.worst_norm_error);
+            s.worst_entry_error = s.worst_entry_error.max(o.worst_entry_error);
+        }
+        for ob in other.branches {
+            match self
+                .branches
+                .iter_mut()
+                .find(|b| b.reported_branch == ob.reported_branch && b.state_changed == ob.state_changed)
+            {
+                Some(b) => {
+                    b.increments += ob.increments;
+                    b.failed += ob.failed;
+                    b.worst_error = b.worst_error.max(ob.worst_error);
+                }
+                None => self.branches.push(ob),
+            }
+        }
+        if self.stopped_at.is_none() {
+            self.stopped_at = other.stopped_at;
+        }
+        self.any_fault |= other.any_fault;
+        self.all_passed &= other.all_passed;
+        self.twin_unsafe |= other.twin_unsafe;
+        self.state_ever_changed |= other.state_ever_changed;
+        self.records.extend(other.records);
+        self.increments.extend(other.increments);
+    }
+
     /// Increments added so far.
     pub fn len(&self) -> usize {
         self.records.len()
