@@ -214,6 +214,8 @@ fn calls_per_increment(settings: &Settings, n: usize) -> f64 {
 
 /// Check `path` on the caller's thread and one thread per handle, in shares; the chunks in
 /// path order. The caller's counts are left as they were: the chunks carry theirs.
+// The walk's inputs are those of `check::run_with`, passed through unchanged.
+#[allow(clippy::too_many_arguments)]
 pub fn walk(
     caller: &mut Caller<'_>,
     handles: Vec<Box<dyn Routine + Send>>,
@@ -248,6 +250,7 @@ pub fn walk(
 }
 
 /// One thread's share: the walk to its start (base calls), then its increments checked.
+#[allow(clippy::too_many_arguments)]
 fn share(
     caller: &mut Caller<'_>,
     info: &RoutineInfo,
