@@ -23,9 +23,16 @@ pub fn examples_dir() -> PathBuf {
     repo_root().join("fortran-shim/examples")
 }
 
-/// A fresh folder for this test process: `<tmp>/tancheck-<pid>-<name>`, emptied first.
+/// A fresh folder for this test binary: `target/<profile>/tmp/<binary>-<name>`, emptied first.
+/// It sits in cargo's target folder, named after the test binary (not the process), so a
+/// rerun reuses it and `cargo clean` removes it: nothing piles up in the system's temporary
+/// folder (an install prefix alone is over 100 MB).
 pub fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-{}-{name}", std::process::id()));
+    let exe = std::env::current_exe().expect("a test knows its executable");
+    let binary = exe.file_stem().map_or_else(|| "test".into(), |s| s.to_string_lossy().into_owned());
+    // target/<profile>/deps/<binary> → target/<profile>/tmp
+    let base = exe.parent().and_then(Path::parent).map_or_else(std::env::temp_dir, |p| p.join("tmp"));
+    let d = base.join(format!("{binary}-{name}"));
     let _ = std::fs::remove_dir_all(&d);
     std::fs::create_dir_all(&d).unwrap_or_else(|e| panic!("creating {}: {e}", d.display()));
     d

@@ -9,13 +9,7 @@ pub fn shim() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../../fortran-shim")
 }
 
-/// A fresh directory for this test process.
-pub fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-capi-test-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
+pub use tancheck_testkit::libs::scratch;
 
 /// The folder with `libtancheck_capi.a` and `libtancheck_capi.so`. Cargo builds them with
 /// the rlib (the crate's crate-type list) whenever it builds this crate's tests, into
