@@ -265,10 +265,11 @@ fn probe_junit_has_a_case_per_probe() {
 
 #[test]
 fn selftest_junit_is_valid_and_names_expected_and_found() {
-    use tancheck::cli::report::junit::{selftest_junit, KnownRow};
+    use tancheck::cli::report::junit::selftest_junit;
+    use tancheck::cli::report::model::SelftestRow;
     use tancheck::core::Verdict;
-    let row = |group: &str, variant: &str, expected: &str, found: &str, verdict, right| KnownRow {
-        group: group.into(),
+    let row = |group: &str, variant: &str, expected: &str, found: &str, verdict, right| SelftestRow {
+        language: group.into(),
         variant: variant.into(),
         expected: expected.into(),
         verdict,

@@ -155,32 +155,21 @@ pub fn probe_junit<'a>(reports: impl IntoIterator<Item = &'a SuiteReport>) -> io
     to_string(&r)
 }
 
-/// One row of the selftest: a routine with a known verdict and what the check found.
-#[derive(Clone, Debug)]
-pub struct KnownRow {
-    /// The group the row belongs to (the language: Rust, C, Fortran).
-    pub group: String,
-    pub variant: String,
-    pub expected: String,
-    pub verdict: Verdict,
-    pub found: String,
-    pub first_increment: Option<usize>,
-    pub right: bool,
-}
+use super::model::SelftestRow;
 
 /// JUnit XML of the selftest: one test suite per language, a test case per row; a row whose
 /// finding is not the expected one fails, naming both.
-pub fn selftest_junit(rows: &[KnownRow]) -> io::Result<String> {
+pub fn selftest_junit(rows: &[SelftestRow]) -> io::Result<String> {
     let mut r = JReport::new("tancheck selftest");
     let mut groups: Vec<&str> = Vec::new();
     for row in rows {
-        if !groups.contains(&row.group.as_str()) {
-            groups.push(&row.group);
+        if !groups.contains(&row.language.as_str()) {
+            groups.push(&row.language);
         }
     }
     for g in groups {
         let mut suite = TestSuite::new(format!("tancheck selftest {g}"));
-        for row in rows.iter().filter(|r| r.group == g) {
+        for row in rows.iter().filter(|r| r.language == g) {
             let status = if row.right {
                 TestCaseStatus::success()
             } else {

@@ -8,7 +8,6 @@ use std::path::{Path, PathBuf};
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::junit::KnownRow;
 use super::model::{BisectOutcome, SelftestReport, SuiteContext};
 use super::{html, junit, write_atomic, Reporter};
 
@@ -62,20 +61,7 @@ impl Reporter for Pages {
     }
 
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
-        let known: Vec<KnownRow> = report
-            .rows
-            .iter()
-            .map(|r| KnownRow {
-                group: r.language.clone(),
-                variant: r.variant.clone(),
-                expected: r.expected.clone(),
-                verdict: r.verdict,
-                found: r.found.clone(),
-                first_increment: r.first_increment,
-                right: r.right,
-            })
-            .collect();
-        write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&known))?;
-        write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&known, &report.tool)))
+        write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;
+        write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&report.rows, &report.tool)))
     }
 }

@@ -33,11 +33,7 @@ pub struct CallClass {
 impl CallClass {
     /// The branch label of [`IncrementResult::branch_label`].
     pub fn branch_label(&self) -> String {
-        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
-        match self.reported_branch {
-            Some(b) => format!("#{b} ({changed})"),
-            None => changed.to_string(),
-        }
+        crate::report::branch_label(self.reported_branch, self.state_changed)
     }
 
     pub fn word(&self) -> &'static str {

@@ -126,6 +126,16 @@ impl SchemeCheck {
     }
 }
 
+/// A branch as every report names it: the routine's own number (when it reports one) and
+/// whether the state changed, e.g. `#1 (state changed)`.
+pub fn branch_label(reported: Option<i32>, state_changed: bool) -> String {
+    let changed = if state_changed { "state changed" } else { "state unchanged" };
+    match reported {
+        Some(b) => format!("#{b} ({changed})"),
+        None => changed.to_string(),
+    }
+}
+
 /// One increment of the path.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct IncrementResult {
@@ -158,11 +168,7 @@ pub struct IncrementResult {
 
 impl IncrementResult {
     pub fn branch_label(&self) -> String {
-        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
-        match self.reported_branch {
-            Some(b) => format!("#{b} ({changed})"),
-            None => changed.to_string(),
-        }
+        branch_label(self.reported_branch, self.state_changed)
     }
 
     /// The verdict of the increment: every check passed, or the diagnosis cleared it (a

@@ -65,11 +65,7 @@ impl IncrementRecord {
     /// The branch as the reports name it: the routine's number (when it reports one) and
     /// whether the state changed, e.g. `#1 (state changed)`.
     pub fn branch_label(&self) -> String {
-        let changed = if self.state_changed { "state changed" } else { "state unchanged" };
-        match self.branch {
-            Some(b) => format!("#{b} ({changed})"),
-            None => changed.to_string(),
-        }
+        super::branch_label(self.branch, self.state_changed)
     }
 
     /// Strain at the end of the increment, routine order.

@@ -8,7 +8,7 @@ use tancheck_core::{Report, Verdict};
 
 use super::check::check_sections;
 use super::{badge, cautions, esc, figure, footer, page, plots, sci};
-use crate::report::junit::KnownRow;
+use crate::report::model::SelftestRow;
 
 /// The HTML page of a probe suite: a table of the probes, then a plot of every curve a probe
 /// measured (Newton residuals, the acoustic determinant, the energies).
@@ -204,7 +204,7 @@ pub fn bisect_page(v: &BisectView<'_>) -> String {
 
 /// The HTML page of the selftest: every row with its expected and found finding, the wrong
 /// ones first.
-pub fn selftest_page(rows: &[KnownRow], tool: &str) -> String {
+pub fn selftest_page(rows: &[SelftestRow], tool: &str) -> String {
     let mut o = String::new();
     let wrong = rows.iter().filter(|r| !r.right).count();
     let _ = writeln!(
@@ -223,13 +223,13 @@ pub fn selftest_page(rows: &[KnownRow], tool: &str) -> String {
     );
     let mut groups: Vec<&str> = Vec::new();
     for r in rows {
-        if !groups.contains(&r.group.as_str()) {
-            groups.push(&r.group);
+        if !groups.contains(&r.language.as_str()) {
+            groups.push(&r.language);
         }
     }
     for g in &groups {
-        let n = rows.iter().filter(|r| r.group == *g).count();
-        let w = rows.iter().filter(|r| r.group == *g && !r.right).count();
+        let n = rows.iter().filter(|r| r.language == *g).count();
+        let w = rows.iter().filter(|r| r.language == *g && !r.right).count();
         let _ = writeln!(o, "<dt>{}</dt><dd>{} of {n} rows right</dd>", esc(g), n - w);
     }
     let _ = writeln!(o, "</dl>");
@@ -238,7 +238,7 @@ pub fn selftest_page(rows: &[KnownRow], tool: &str) -> String {
         o,
         "<h2>Rows</h2>\n<table>\n<tr><th>variant</th><th>language</th><th>expected</th><th>verdict</th><th>found</th><th>first failing increment</th><th>right</th></tr>"
     );
-    let mut ordered: Vec<&KnownRow> = rows.iter().filter(|r| !r.right).collect();
+    let mut ordered: Vec<&SelftestRow> = rows.iter().filter(|r| !r.right).collect();
     ordered.extend(rows.iter().filter(|r| r.right));
     for r in ordered {
         let _ = writeln!(
@@ -246,7 +246,7 @@ pub fn selftest_page(rows: &[KnownRow], tool: &str) -> String {
             "<tr{}><td><code>{}</code></td><td>{}</td><td><code>{}</code></td><td>{}</td><td><code>{}</code></td><td class=\"num\">{}</td><td>{}</td></tr>",
             if r.right { "" } else { " class=\"bad\"" },
             esc(&r.variant),
-            esc(&r.group),
+            esc(&r.language),
             esc(&r.expected),
             esc(r.verdict.word()),
             esc(&r.found),
@@ -265,8 +265,8 @@ mod tests {
 
     #[test]
     fn the_selftest_page_puts_wrong_rows_first() {
-        let row = |variant: &str, right| KnownRow {
-            group: "C".into(),
+        let row = |variant: &str, right| SelftestRow {
+            language: "C".into(),
             variant: variant.into(),
             expected: "shear-factor".into(),
             verdict: Verdict::TangentFailure,
