@@ -18,13 +18,7 @@ pub fn shim() -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join("../../fortran-shim")
 }
 
-/// A fresh directory for this test process.
-pub fn scratch(name: &str) -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-abi-test-{}-{name}", std::process::id()));
-    let _ = std::fs::remove_dir_all(&d);
-    std::fs::create_dir_all(&d).unwrap();
-    d
-}
+pub use tancheck_testkit::libs::scratch;
 
 /// fortran-shim/examples/c/misbehave.c built with its twin, once per test binary.
 pub fn misbehave_library() -> &'static Path {
