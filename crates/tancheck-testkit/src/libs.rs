@@ -23,19 +23,35 @@ pub fn examples_dir() -> PathBuf {
     repo_root().join("fortran-shim/examples")
 }
 
-/// A fresh folder for this test binary: `target/<profile>/tmp/<binary>-<name>`, emptied first.
-/// It sits in cargo's target folder, named after the test binary (not the process), so a
-/// rerun reuses it and `cargo clean` removes it: nothing piles up in the system's temporary
-/// folder (an install prefix alone is over 100 MB).
+/// A fresh folder for this test process: `target/<profile>/tmp/<binary>-<pid>-<name>`, emptied
+/// first. It sits in cargo's target folder (`cargo clean` removes it), and each call first
+/// removes the folders of this binary left by processes that have ended, so nothing piles up
+/// run after run (an install prefix alone is over 100 MB). The process id stays in the name:
+/// a test that runs itself again in a child process must not empty its parent's folder.
 pub fn scratch(name: &str) -> PathBuf {
     let exe = std::env::current_exe().expect("a test knows its executable");
     let binary = exe.file_stem().map_or_else(|| "test".into(), |s| s.to_string_lossy().into_owned());
     // target/<profile>/deps/<binary> → target/<profile>/tmp
     let base = exe.parent().and_then(Path::parent).map_or_else(std::env::temp_dir, |p| p.join("tmp"));
-    let d = base.join(format!("{binary}-{name}"));
+    remove_ended(&base, &binary);
+    let d = base.join(format!("{binary}-{}-{name}", std::process::id()));
     let _ = std::fs::remove_dir_all(&d);
     std::fs::create_dir_all(&d).unwrap_or_else(|e| panic!("creating {}: {e}", d.display()));
     d
+}
+
+/// Remove `<binary>-<pid>-*` folders under `base` whose process no longer runs.
+fn remove_ended(base: &Path, binary: &str) {
+    let Ok(entries) = std::fs::read_dir(base) else { return };
+    let prefix = format!("{binary}-");
+    for e in entries.flatten() {
+        let name = e.file_name().to_string_lossy().into_owned();
+        let Some(pid) = name.strip_prefix(&prefix).and_then(|rest| rest.split('-').next()) else { continue };
+        let Ok(pid) = pid.parse::<u32>() else { continue };
+        if pid != std::process::id() && !Path::new(&format!("/proc/{pid}")).exists() {
+            let _ = std::fs::remove_dir_all(e.path());
+        }
+    }
 }
 
 type Cell = Arc<OnceLock<&'static Path>>;
