@@ -40,6 +40,11 @@ enum Command {
     Bisect(crate::cmd_bisect::BisectArgs),
     /// Rerun the call saved in a case file and print its outputs and check.
     Replay(crate::cmd_replay::ReplayArgs),
+    /// Run a campaign: every routine of a campaign file (or a folder of manifests) with its
+    /// property sets, paths and probe suites, in parallel or as one shard of N.
+    Campaign(crate::campaign::CampaignArgs),
+    /// Merge the partial reports of a campaign's shards into one report.
+    Merge(crate::cmd_merge::MergeArgs),
     /// Compile C and Fortran sources into a shared library, with the complex-step twin.
     Build(crate::cmd_build::BuildArgs),
     /// Build the bundled example routines and check them.
@@ -195,6 +200,8 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     let result = match cli.command {
         Command::Check(a) => cmd_check(a),
         Command::Build(a) => crate::cmd_build::run(a),
+        Command::Campaign(a) => crate::campaign::run(&a),
+        Command::Merge(a) => crate::cmd_merge::run(&a),
         Command::Probe(a) => cmd_probe(a),
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),

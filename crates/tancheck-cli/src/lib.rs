@@ -3,11 +3,13 @@
 
 pub mod block_manifest;
 pub mod block_session;
+pub mod campaign;
 pub mod case_store;
 pub mod cli;
 pub mod cmd_bisect;
 pub mod cmd_build;
 pub mod cmd_finite;
+pub mod cmd_merge;
 pub mod cmd_packaging;
 pub mod cmd_replay;
 pub mod demo;

@@ -49,6 +49,17 @@ pub fn write_check(report: &Report, out: &mut dyn Write) -> io::Result<()> {
 }
 
 impl Reporter for Json<'_> {
+    fn campaign(&mut self, report: &super::campaign::CampaignReport) -> io::Result<()> {
+        let text = report.to_json();
+        if Json::to_stdout(&self.target) {
+            self.stdout.write_all(text.as_bytes())?;
+            self.stdout.flush()
+        } else {
+            write_atomic_with(&self.target, |w| w.write_all(text.as_bytes())).map_err(|e| {
+                io::Error::new(e.kind(), format!("writing the JSON report to {}: {e}", self.target.display()))
+            })
+        }
+    }
     fn check(&mut self, report: &Report) -> io::Result<()> {
         self.put(Kind::Check, report)
     }

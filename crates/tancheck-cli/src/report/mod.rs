@@ -10,6 +10,8 @@ use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
 pub mod block;
+pub mod campaign;
+pub mod campaign_pages;
 pub mod files;
 pub mod html;
 pub mod json;
@@ -48,6 +50,10 @@ pub trait Reporter {
     }
     /// The rows of `tancheck selftest`.
     fn selftest(&mut self, _report: &SelftestReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// The report of a campaign, of one shard of it, or of merged shards.
+    fn campaign(&mut self, _report: &campaign::CampaignReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -110,6 +116,9 @@ impl Reporter for Fanout<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.each(|r| r.selftest(report))
+    }
+    fn campaign(&mut self, report: &campaign::CampaignReport) -> io::Result<()> {
+        self.each(|r| r.campaign(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

@@ -60,6 +60,11 @@ impl Reporter for Pages {
         Ok(())
     }
 
+    fn campaign(&mut self, report: &super::campaign::CampaignReport) -> io::Result<()> {
+        write(self.junit.as_deref(), "the JUnit report", || super::campaign_pages::campaign_junit(report))?;
+        write(self.html.as_deref(), "the HTML report", || Ok(super::campaign_pages::campaign_page(report)))
+    }
+
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;
         write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&report.rows, &report.tool)))

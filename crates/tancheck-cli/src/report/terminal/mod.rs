@@ -46,6 +46,9 @@ impl<'a> Terminal<'a> {
 }
 
 impl Reporter for Terminal<'_> {
+    fn campaign(&mut self, report: &super::campaign::CampaignReport) -> io::Result<()> {
+        super::campaign::write_terminal(&mut self.out, report, self.detail, self.palette)
+    }
     fn check(&mut self, report: &Report) -> io::Result<()> {
         check::write(&mut self.out, report, self.detail, self.palette)
     }

@@ -1,0 +1,120 @@
+//! Running a campaign's items: one after the other, on several threads (`--jobs`), or each in
+//! its own worker process (`--isolate`: the tancheck program started again on one item, its
+//! JSON read back), always giving the results in the items' serial order.
+
+use std::io::Read;
+use std::path::{Path as FsPath, PathBuf};
+use std::process::{Command, Stdio};
+use std::sync::atomic::{AtomicUsize, Ordering};
+use std::sync::Mutex;
+use std::time::{Duration, Instant};
+
+use super::build::Built;
+use super::file::{Campaign, Item};
+use crate::report::campaign::{CampaignReport, ItemResult};
+
+/// How the items run.
+pub struct Runner<'a> {
+    pub campaign: &'a Campaign,
+    pub libs: &'a [Built],
+    pub jobs: usize,
+    /// Run each item in a worker: the program and the arguments that name the campaign
+    /// (the worker gets `--item POSITION --json -` after them).
+    pub isolate: Option<(PathBuf, Vec<std::ffi::OsString>)>,
+    /// Time limit of one worker.
+    pub item_timeout: f64,
+}
+
+impl Runner<'_> {
+    /// The results of `items`, in their order.
+    pub fn run(&self, items: &[&Item]) -> Vec<ItemResult> {
+        let slots: Vec<Mutex<Option<ItemResult>>> = items.iter().map(|_| Mutex::new(None)).collect();
+        let next = AtomicUsize::new(0);
+        let threads = self.jobs.clamp(1, items.len().max(1));
+        std::thread::scope(|s| {
+            for _ in 0..threads {
+                s.spawn(|| loop {
+                    let k = next.fetch_add(1, Ordering::SeqCst);
+                    if k >= items.len() {
+                        break;
+                    }
+                    let r = self.one(items[k]);
+                    *slots[k].lock().unwrap_or_else(std::sync::PoisonError::into_inner) = Some(r);
+                });
+            }
+        });
+        slots
+            .into_iter()
+            .map(|s| {
+                s.into_inner().unwrap_or_else(std::sync::PoisonError::into_inner).expect("every item ran")
+            })
+            .collect()
+    }
+
+    fn one(&self, item: &Item) -> ItemResult {
+        match &self.isolate {
+            None => super::item::run(self.campaign, item, self.libs),
+            Some((program, args)) => self.in_worker(item, program, args),
+        }
+    }
+
+    /// Run `item` in a worker process; a worker that dies or hangs is the item's fault.
+    fn in_worker(&self, item: &Item, program: &FsPath, args: &[std::ffi::OsString]) -> ItemResult {
+        let fault = |message: String| super::item::fault_result(self.campaign, item, message);
+        let child = Command::new(program)
+            .args(args)
+            .arg("--item")
+            .arg(item.position.to_string())
+            .arg("--json")
+            .arg("-")
+            .arg("--quiet")
+            .stdin(Stdio::null())
+            .stdout(Stdio::piped())
+            .stderr(Stdio::inherit())
+            .spawn();
+        let mut child = match child {
+            Ok(c) => c,
+            Err(e) => return fault(format!("could not start the worker {}: {e}", program.display())),
+        };
+        let mut stdout = child.stdout.take().expect("piped");
+        let reader = std::thread::spawn(move || {
+            let mut s = String::new();
+            let _ = stdout.read_to_string(&mut s);
+            s
+        });
+        let started = Instant::now();
+        let status = loop {
+            match child.try_wait() {
+                Ok(Some(st)) => break Some(st),
+                Ok(None) if started.elapsed().as_secs_f64() > self.item_timeout => {
+                    let _ = child.kill();
+                    let _ = child.wait();
+                    break None;
+                }
+                Ok(None) => std::thread::sleep(Duration::from_millis(10)),
+                Err(_) => break None,
+            }
+        };
+        let text = reader.join().unwrap_or_default();
+        let Some(status) = status else {
+            return fault(format!(
+                "the worker was stopped after the item time limit of {} s",
+                self.item_timeout
+            ));
+        };
+        match CampaignReport::from_json(&text).ok().and_then(|r| r.items.into_iter().next()) {
+            Some(r) => r,
+            None => {
+                use std::os::unix::process::ExitStatusExt;
+                let how = match (status.code(), status.signal()) {
+                    (Some(c), _) => format!("with exit code {c}"),
+                    (None, Some(s)) => format!("by signal {s}"),
+                    _ => "without a status".into(),
+                };
+                fault(format!(
+                    "the worker ended {how} without a report (the routine ended or broke its process)"
+                ))
+            }
+        }
+    }
+}

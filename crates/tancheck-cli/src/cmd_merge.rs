@@ -1,0 +1,117 @@
+//! `tancheck merge PARTIALS...`: put the partial reports of a campaign's shards together into
+//! one report, its items in the order a serial run gives, through the same reporters (JSON,
+//! JUnit, HTML, terminal). Reports of different campaigns (another digest, name, item count
+//! or shard count) are refused; missing shards are named and make the exit code 2.
+
+use std::path::PathBuf;
+
+use anyhow::{bail, Context, Result};
+use clap::Args;
+
+use crate::report::campaign::{list, worst_code, CampaignReport, MergeInfo};
+use crate::report::Reporter;
+
+#[derive(Args, Debug)]
+pub struct MergeArgs {
+    /// The partial reports (JSON) written by `tancheck campaign --shard K/N --json FILE`.
+    #[arg(required = true)]
+    pub partials: Vec<PathBuf>,
+    /// Write the merged JSON report to FILE (`-` for standard output).
+    #[arg(short = 'o', long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: crate::session::OutputArgs,
+}
+
+/// Merge `parts` (each with the file it came from). Errors name the file.
+pub fn merge(parts: Vec<(PathBuf, CampaignReport)>) -> Result<CampaignReport> {
+    let Some((first_file, first)) = parts.first() else { bail!("no partial report given") };
+    let Some(first_shard) = first.shard else {
+        bail!("{}: not a partial report (written without --shard)", first_file.display());
+    };
+    let count = first_shard.count;
+    let mut seen: Vec<Option<&PathBuf>> = vec![None; count];
+    let mut items = Vec::new();
+    let mut notes: Vec<String> = Vec::new();
+    for (file, p) in &parts {
+        let Some(sh) = p.shard else {
+            bail!("{}: not a partial report (written without --shard)", file.display())
+        };
+        if p.campaign != first.campaign || sh.count != count {
+            bail!(
+                "{}: another campaign than {} ({} digest {}, {} shards, against {} digest {}, {} shards): refusing to merge",
+                file.display(),
+                first_file.display(),
+                p.campaign.name,
+                &p.campaign.digest[..p.campaign.digest.len().min(12)],
+                sh.count,
+                first.campaign.name,
+                &first.campaign.digest[..first.campaign.digest.len().min(12)],
+                count
+            );
+        }
+        if let Some(other) = seen[sh.index] {
+            bail!("{}: shard {} was already given by {}", file.display(), sh.index, other.display());
+        }
+        seen[sh.index] = Some(file);
+        items.extend(p.items.iter().cloned());
+        for n in &p.notes {
+            // Each shard says which it was; the merged report says which it holds.
+            if !n.starts_with("shard ") && !notes.contains(n) {
+                notes.push(n.clone());
+            }
+        }
+    }
+    items.sort_by_key(|i| i.position);
+    if let Some(w) = items.windows(2).find(|w| w[0].position == w[1].position) {
+        bail!("two partial reports hold item {} ({}): refusing to merge", w[0].position, w[0].key);
+    }
+    let missing: Vec<usize> = (0..count).filter(|k| seen[*k].is_none()).collect();
+    if missing.is_empty() && items.len() != first.campaign.items {
+        bail!(
+            "every shard is here but they hold {} items, the campaign has {}: refusing to merge",
+            items.len(),
+            first.campaign.items
+        );
+    }
+    let mut r = CampaignReport {
+        tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        campaign: first.campaign.clone(),
+        shard: None,
+        merged: Some(MergeInfo { shards: count, missing: missing.clone() }),
+        items,
+        notes,
+        exit_code: 0,
+        cautions: first.cautions.clone(),
+    };
+    r.exit_code = if missing.is_empty() { worst_code([r.items_code()]) } else { crate::exit::BAD_INPUT };
+    if !missing.is_empty() {
+        r.notes.push(format!(
+            "missing shards {} of {count} (0-based): their items are not in this report",
+            list(&missing)
+        ));
+    }
+    Ok(r)
+}
+
+pub fn run(a: &MergeArgs) -> Result<i32> {
+    a.output.check_files()?;
+    let mut parts = Vec::new();
+    for f in &a.partials {
+        let text = std::fs::read_to_string(f).with_context(|| format!("{}: cannot read", f.display()))?;
+        let r = CampaignReport::from_json(&text).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?;
+        parts.push((f.clone(), r));
+    }
+    let r = merge(parts)?;
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.campaign(&r)?;
+    reporters.finish()?;
+    if let Some(m) = r.merged.as_ref().filter(|m| !m.missing.is_empty()) {
+        eprintln!(
+            "tancheck: merge: missing shards {} of {} (0-based): no partial report was given for them",
+            list(&m.missing),
+            m.shards
+        );
+    }
+    Ok(r.exit_code)
+}
