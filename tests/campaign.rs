@@ -1,0 +1,313 @@
+//! `tancheck campaign` and `tancheck merge` through the program:
+//! - the bundled campaign (every bundled example routine: campaigns/bundled/campaign.json)
+//!   gives every item the outcome it expects, and the same items (findings, verdicts, worst
+//!   errors bit for bit, order) run one by one, on two threads and in worker processes;
+//! - `--shard K/N` puts every item in exactly one shard, and the shards' union is the serial
+//!   run; `merge` of the partial reports gives the serial report's items; a missing shard is
+//!   named (exit 2), a partial report of another campaign is refused;
+//! - a worker that dies (a routine calling exit) is that item's fault, the others run;
+//! - a bad campaign file is exit 2 naming the file and the place, and an earlier report stays.
+
+use std::path::{Path, PathBuf};
+use std::process::{Command, Output};
+
+use serde_json::Value;
+use tancheck_testkit::libs::scratch;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn text(o: &Output) -> String {
+    format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
+}
+
+fn bundled() -> PathBuf {
+    Path::new(env!("CARGO_MANIFEST_DIR")).join("campaigns/bundled/campaign.json")
+}
+
+/// The libraries of the bundled campaign, shared by the test programs (rebuilt only when a
+/// source changes: the campaign's stamps).
+fn build_dir() -> PathBuf {
+    Path::new(env!("CARGO_TARGET_TMPDIR")).join("campaign-build")
+}
+
+/// Run the bundled campaign with `args`, writing its JSON to `json`; the report.
+fn run_bundled(args: &[&str], json: &Path) -> (Output, Value) {
+    let o = bin()
+        .arg("campaign")
+        .arg(bundled())
+        .arg("--build-dir")
+        .arg(build_dir())
+        .args(args)
+        .arg("--json")
+        .arg(json)
+        .arg("-q")
+        .output()
+        .unwrap();
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(json).unwrap_or_default())
+        .unwrap_or_else(|e| panic!("{e}: {}", text(&o)));
+    (o, v)
+}
+
+fn items(v: &Value) -> &Vec<Value> {
+    v["items"].as_array().expect("items")
+}
+
+#[test]
+fn the_bundled_campaign_gives_the_same_items_serial_threaded_and_isolated() {
+    let d = scratch("bundled");
+    let (o, serial) = run_bundled(&["--jobs", "1"], &d.join("serial.json"));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let list = items(&serial);
+    assert_eq!(serial["kind"], "campaign");
+    // Every item as expected: the correct routines pass, the flawed ones fail with their finding.
+    for it in list {
+        assert_eq!(it["as_expected"], true, "{it}");
+    }
+    let find = |key: &str| list.iter().find(|i| i["key"].as_str().unwrap().contains(key)).unwrap();
+    assert_eq!(find("routine=c/j2_continuum.json")["finding"], "continuum-tangent");
+    assert_eq!(find("routine=c/cohesive_secant.json")["finding"], "secant");
+    assert_eq!(find("routine=c/jc_block.json")["outcome"], "pass");
+    assert_eq!(find("routine=c/finite_nh_truesdell_for_jaumann.json")["outcome"], "fail");
+    // Fortran routines are checked when a Fortran compiler runs, and skipped (said so) otherwise.
+    let fortran: Vec<_> =
+        list.iter().filter(|i| i["routine"].as_str().unwrap().starts_with("fortran/")).collect();
+    assert!(fortran.len() >= 10, "{}", fortran.len());
+    let skipped = fortran.iter().filter(|i| i["outcome"] == "skipped").count();
+    if cfg!(tancheck_no_fortran) {
+        assert_eq!(skipped, fortran.len());
+        assert!(serial["notes"].to_string().contains("no Fortran compiler"), "{}", serial["notes"]);
+    } else {
+        assert_eq!(skipped, 0);
+    }
+    // In positions order, with the regression cases (none here) first.
+    for (k, it) in list.iter().enumerate() {
+        assert_eq!(it["position"], k);
+    }
+
+    let (o, threads) = run_bundled(&["--jobs", "2"], &d.join("threads.json"));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(items(&threads), list, "two threads against one");
+    let (o, isolated) = run_bundled(&["--jobs", "2", "--isolate"], &d.join("isolated.json"));
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert_eq!(items(&isolated), list, "worker processes against one process");
+    assert_eq!(isolated["campaign"], serial["campaign"]);
+
+    // Shards: every item in exactly one, the union the serial run; merged, the serial report.
+    let mut parts = Vec::new();
+    let mut union: Vec<Value> = Vec::new();
+    for k in 0..3 {
+        let p = d.join(format!("part{k}.json"));
+        let (o, part) = run_bundled(&["--shard", &format!("{k}/3")], &p);
+        assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+        assert_eq!(part["kind"], "campaign-part");
+        assert_eq!(part["shard"]["index"], k);
+        for it in items(&part) {
+            let h = u64::from_str_radix(it["hash"].as_str().unwrap(), 16).unwrap();
+            assert_eq!(h % 3, k as u64, "{it}");
+        }
+        union.extend(items(&part).iter().cloned());
+        parts.push(p);
+    }
+    union.sort_by_key(|i| i["position"].as_u64().unwrap());
+    assert_eq!(&union, list, "the shards' union against the serial run");
+    let merged = d.join("merged.json");
+    let o = bin().arg("merge").args(&parts).arg("-o").arg(&merged).arg("-q").output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let m: Value = serde_json::from_str(&std::fs::read_to_string(&merged).unwrap()).unwrap();
+    assert_eq!(items(&m), list, "merged against serial");
+    assert_eq!(m["merged"]["missing"].as_array().unwrap().len(), 0);
+
+    // A missing shard is named, exit 2; the report of what is there is still written.
+    let partial = d.join("partial.json");
+    let o = bin().arg("merge").arg(&parts[0]).arg(&parts[2]).arg("--json").arg(&partial).output().unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("missing shards 1 of 3"), "{}", text(&o));
+    let m: Value = serde_json::from_str(&std::fs::read_to_string(&partial).unwrap()).unwrap();
+    assert_eq!(m["merged"]["missing"], serde_json::json!([1]));
+
+    // A partial report of another campaign (another digest) is refused.
+    let mut other: Value = serde_json::from_str(&std::fs::read_to_string(&parts[1]).unwrap()).unwrap();
+    other["campaign"]["digest"] = Value::String("0".repeat(64));
+    let other_file = d.join("other.json");
+    std::fs::write(&other_file, other.to_string()).unwrap();
+    let o = bin().arg("merge").arg(&parts[0]).arg(&other_file).arg(&parts[2]).output().unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("another campaign") && text(&o).contains("other.json"), "{}", text(&o));
+}
+
+#[test]
+fn slurm_array_variables_pick_the_shard() {
+    let d = scratch("slurm-vars");
+    // An array 4-7: task 5 is shard 1 of 4.
+    let o = bin()
+        .arg("campaign")
+        .arg(bundled())
+        .arg("--build-dir")
+        .arg(build_dir())
+        .args(["-q", "--json"])
+        .arg(d.join("s.json"))
+        .env("SLURM_ARRAY_TASK_ID", "5")
+        .env("SLURM_ARRAY_TASK_COUNT", "4")
+        .env("SLURM_ARRAY_TASK_MIN", "4")
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(d.join("s.json")).unwrap()).unwrap();
+    assert_eq!(v["shard"], serde_json::json!({"index": 1, "count": 4}));
+    // Ids beyond the count (an array with a step) are refused.
+    let o = bin()
+        .arg("campaign")
+        .arg(bundled())
+        .env("SLURM_ARRAY_TASK_ID", "6")
+        .env("SLURM_ARRAY_TASK_COUNT", "4")
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("SLURM_ARRAY_TASK_ID=6"), "{}", text(&o));
+    for bad in ["4/4", "1/0", "x/2", "3"] {
+        let o = bin().arg("campaign").arg(bundled()).args(["--shard", bad]).output().unwrap();
+        assert_eq!(o.status.code(), Some(2), "--shard {bad}: {}", text(&o));
+    }
+}
+
+/// A small campaign of its own: a library built from C sources (a routine that ends its
+/// process, and an elastic one), and a built-in model.
+fn small_campaign(d: &Path) -> PathBuf {
+    let examples = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+    for (name, routine) in [
+        (
+            "exits.json",
+            r#""library": "build/libsmall.so", "symbol": "bad_exit", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3]"#,
+        ),
+        (
+            "elastic.json",
+            r#""library": "build/libsmall.so", "symbol": "c_elastic", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3]"#,
+        ),
+        (
+            "model.json",
+            r#""model": "j2", "kind": "solid-3d", "properties": [210000, 0.3, 355, 1200, 150, 12, 2500]"#,
+        ),
+    ] {
+        std::fs::write(d.join(name), format!("{{ \"routine\": {{ {routine} }} }}\n")).unwrap();
+    }
+    let file = d.join("small.json");
+    let text = format!(
+        r#"{{ "format": "tancheck-campaign", "version": 1, "name": "small",
+  "libraries": [ {{ "output": "build/libsmall.so", "sources": ["{}", "{}"] }} ],
+  "routines": [
+    {{ "manifest": "exits.json", "expect": "fault" }},
+    {{ "manifest": "elastic.json", "paths": ["uniaxial-strain:0.001:3"] }},
+    {{ "manifest": "model.json", "expect": "fail" }}
+  ] }}
+"#,
+        examples.join("misbehave.c").display(),
+        examples.join("elastic.c").display()
+    );
+    std::fs::write(&file, text).unwrap();
+    file
+}
+
+#[test]
+fn a_worker_that_dies_is_its_items_fault_and_the_others_run() {
+    let d = scratch("isolate");
+    let file = small_campaign(&d);
+    let json = d.join("r.json");
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--isolate", "-j", "2", "--json"])
+        .arg(&json)
+        .output()
+        .unwrap();
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let list = items(&v);
+    assert_eq!(list.len(), 3, "{v}");
+    assert_eq!(list[0]["outcome"], "fault", "{}", list[0]);
+    assert!(list[0]["message"].as_str().unwrap().contains("worker ended"), "{}", list[0]);
+    assert_eq!(list[0]["as_expected"], true);
+    assert_eq!(list[1]["outcome"], "pass", "{}", list[1]);
+    assert_eq!(list[1]["path"], "uniaxial-strain:0.001:3");
+    // The J2 model is correct: a campaign that expects it to fail says the flaw is gone (exit 1).
+    assert_eq!(list[2]["outcome"], "pass");
+    assert_eq!(list[2]["as_expected"], false);
+    assert_eq!(list[2]["code"], 1);
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    // JUnit and HTML through the reporters.
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--isolate", "--junit"])
+        .arg(d.join("r.xml"))
+        .arg("--html")
+        .arg(d.join("r.html"))
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let xml = std::fs::read_to_string(d.join("r.xml")).unwrap();
+    assert!(xml.contains("<testsuite name=\"tancheck campaign small model.json\""), "{xml}");
+    assert_eq!(xml.matches("<testcase").count(), 3, "{xml}");
+    assert_eq!(xml.matches("<failure").count(), 1, "{xml}");
+    let html = std::fs::read_to_string(d.join("r.html")).unwrap();
+    assert!(html.contains("Campaign small") && html.contains("not as expected"), "{html}");
+}
+
+#[test]
+fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report() {
+    let d = scratch("bad");
+    let json = d.join("r.json");
+    std::fs::write(&json, "earlier report").unwrap();
+    let cases: [(&str, &str, &str); 5] = [
+        ("unknown.json", "{\"format\": \"tancheck-campaign\", \"version\": 1,\n \"routines\": [{\"manifest\": \"m.json\", \"colour\": 1}]}", "unknown.json:2:"),
+        ("format.json", "{\"format\": \"other\", \"version\": 1, \"routines\": []}", "`format` is `other`"),
+        ("version.json", "{\"format\": \"tancheck-campaign\", \"version\": 9, \"routines\": []}", "version 9"),
+        ("missing.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"nothing.json\"}]}", "routines[0].manifest"),
+        ("path.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"paths\": [\"spiral:1:2\"]}]}", "routines[0].paths[0]"),
+    ];
+    std::fs::write(
+        d.join("m.json"),
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    for (name, body, want) in cases {
+        std::fs::write(d.join(name), body).unwrap();
+        let o = bin().arg("campaign").arg(d.join(name)).arg("--json").arg(&json).output().unwrap();
+        assert_eq!(o.status.code(), Some(2), "{name}: {}", text(&o));
+        assert!(text(&o).contains(name) && text(&o).contains(want), "{name}: {}", text(&o));
+        assert_eq!(std::fs::read_to_string(&json).unwrap(), "earlier report", "{name}");
+    }
+}
+
+#[test]
+fn a_folder_of_manifests_is_a_campaign() {
+    let d = scratch("folder");
+    let m = d.join("lib");
+    std::fs::create_dir_all(&m).unwrap();
+    std::fs::write(
+        m.join("a.json"),
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    std::fs::write(
+        m.join("b.json"),
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] } }"#,
+    )
+    .unwrap();
+    // The flawed routine's failure saved as regression cases (tancheck-cases/b/).
+    let o = bin().arg("bisect").arg(m.join("b.json")).arg("-q").output().unwrap();
+    assert!(m.join("tancheck-cases/b").is_dir(), "{}", text(&o));
+    let o = bin().arg("campaign").arg(&m).args(["--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let v: Value = serde_json::from_str(&String::from_utf8_lossy(&o.stdout)).unwrap();
+    assert_eq!(v["campaign"]["name"], "lib");
+    let list = items(&v);
+    // The cases replay first, and still fail.
+    assert_eq!(list[0]["task"], "cases", "{v}");
+    assert_eq!(list[0]["routine"], "b.json");
+    assert_eq!(list[0]["outcome"], "fail");
+    assert_eq!(list[1]["routine"], "a.json");
+    assert_eq!(list[1]["outcome"], "pass");
+    assert_eq!(list[2]["outcome"], "fail");
+    assert_eq!(list[2]["finding"], "continuum-tangent");
+}
