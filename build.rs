@@ -5,6 +5,9 @@
 //!   TANCHECK_REQUIRE_FORTRAN=1 (as CI sets), where those tests run and a missing compiler fails;
 //! - `tancheck_no_gdb`: gdb is missing or may not trace a process here (ptrace refused);
 //! - `tancheck_no_fp_traps`: this machine cannot trap floating-point exceptions;
+//! - `tancheck_no_slurm`: no running Slurm (`sbatch --version` and `sinfo` must both work; a
+//!   local one-node cluster comes from scripts/slurm/local-cluster.sh), unless
+//!   TANCHECK_REQUIRE_SLURM=1 (as CI sets), where the Slurm test runs and fails without one;
 //! - `tancheck_no_chromium`: no headless browser (`$TANCHECK_CHROMIUM`, default `chromium`)
 //!   for the HTML report's browser test, unless TANCHECK_REQUIRE_CHROMIUM=1 (as CI sets),
 //!   where that test runs and a missing browser fails it.
@@ -25,6 +28,9 @@ fn main() {
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_gdb)");
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_fp_traps)");
     println!("cargo::rustc-check-cfg=cfg(tancheck_no_chromium)");
+    println!("cargo::rustc-check-cfg=cfg(tancheck_no_slurm)");
+    println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_SLURM");
+    println!("cargo::rerun-if-env-changed=SLURM_CONF");
     println!("cargo::rerun-if-env-changed=TANCHECK_REQUIRE_CHROMIUM");
     println!("cargo::rerun-if-env-changed=TANCHECK_CHROMIUM");
     println!("cargo::rerun-if-env-changed=CC");
@@ -43,6 +49,10 @@ fn main() {
     let chromium_required = std::env::var("TANCHECK_REQUIRE_CHROMIUM").is_ok_and(|v| v == "1");
     if !chromium_required && !tool_runs(&env_or("TANCHECK_CHROMIUM", "chromium"), &["--version"]) {
         println!("cargo::rustc-cfg=tancheck_no_chromium");
+    }
+    let slurm_required = std::env::var("TANCHECK_REQUIRE_SLURM").is_ok_and(|v| v == "1");
+    if !slurm_required && !(tool_runs("sbatch", &["--version"]) && tool_runs("sinfo", &["-h"])) {
+        println!("cargo::rustc-cfg=tancheck_no_slurm");
     }
     if !gdb_can_trace() {
         println!("cargo::rustc-cfg=tancheck_no_gdb");

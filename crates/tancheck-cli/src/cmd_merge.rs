@@ -25,7 +25,9 @@ pub struct MergeArgs {
 
 /// Merge `parts` (each with the file it came from). Errors name the file.
 pub fn merge(parts: Vec<(PathBuf, CampaignReport)>) -> Result<CampaignReport> {
-    let Some((first_file, first)) = parts.first() else { bail!("no partial report given") };
+    let Some((first_file, first)) = parts.first() else {
+        bail!("no finished partial report given: every shard is missing")
+    };
     let Some(first_shard) = first.shard else {
         bail!("{}: not a partial report (written without --shard)", first_file.display());
     };
@@ -94,11 +96,21 @@ pub fn merge(parts: Vec<(PathBuf, CampaignReport)>) -> Result<CampaignReport> {
     Ok(r)
 }
 
+/// Whether `text` is the "incomplete" marker of a run that did not finish.
+fn is_incomplete(text: &str) -> bool {
+    serde_json::from_str::<serde_json::Value>(text).is_ok_and(|v| v["verdict"] == "incomplete")
+}
+
 pub fn run(a: &MergeArgs) -> Result<i32> {
     a.output.check_files()?;
     let mut parts = Vec::new();
     for f in &a.partials {
         let text = std::fs::read_to_string(f).with_context(|| format!("{}: cannot read", f.display()))?;
+        if is_incomplete(&text) {
+            // The marker a shard leaves until it finishes: that shard is missing.
+            eprintln!("tancheck: merge: {}: incomplete (its shard did not finish): left out", f.display());
+            continue;
+        }
         let r = CampaignReport::from_json(&text).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?;
         parts.push((f.clone(), r));
     }

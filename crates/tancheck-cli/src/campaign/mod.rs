@@ -115,11 +115,16 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
     }
     if let Some(p) = a.json.as_deref().filter(|p| p.as_os_str() != "-") {
         // A report of an earlier run is replaced at once: never yesterday's verdict.
-        let marker = format!(
-            "{{\"format\": \"{}\", \"version\": {}, \"kind\": \"campaign\", \"verdict\": \"incomplete\"}}\n",
-            crate::report::campaign::FORMAT,
-            crate::report::campaign::VERSION
-        );
+        let mut marker = serde_json::json!({
+            "format": crate::report::campaign::FORMAT,
+            "version": crate::report::campaign::VERSION,
+            "kind": if shard.is_some() { crate::report::campaign::PARTIAL_KIND } else { crate::report::campaign::KIND },
+            "verdict": "incomplete",
+        });
+        if let Some(s) = shard {
+            marker["shard"] = serde_json::json!({"index": s.index, "count": s.count});
+        }
+        let marker = format!("{marker}\n");
         crate::report::write_atomic(p, marker.as_bytes())
             .with_context(|| format!("writing the JSON report to {}", p.display()))?;
     }
