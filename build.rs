@@ -51,7 +51,8 @@ fn main() {
         println!("cargo::rustc-cfg=tancheck_no_chromium");
     }
     let slurm_required = std::env::var("TANCHECK_REQUIRE_SLURM").is_ok_and(|v| v == "1");
-    if !slurm_required && !(tool_runs("sbatch", &["--version"]) && tool_runs("sinfo", &["-h"])) {
+    let slurm_runs = tool_runs("sbatch", &["--version"]) && tool_runs("sinfo", &["-h"]);
+    if !slurm_required && !slurm_runs {
         println!("cargo::rustc-cfg=tancheck_no_slurm");
     }
     if !gdb_can_trace() {

@@ -311,3 +311,44 @@ fn a_folder_of_manifests_is_a_campaign() {
     assert_eq!(list[2]["outcome"], "fail");
     assert_eq!(list[2]["finding"], "continuum-tangent");
 }
+
+#[test]
+fn without_a_fortran_compiler_the_fortran_routines_are_skipped_and_said_so() {
+    let d = scratch("no-fortran");
+    let run = |require: bool| {
+        let mut c = bin();
+        c.arg("campaign")
+            .arg(bundled())
+            .arg("--build-dir")
+            .arg(build_dir())
+            .args(["--json"])
+            .arg(d.join("r.json"))
+            // A Fortran compiler that does not run.
+            .env("FC", "/nonexistent/gfortran");
+        if require {
+            c.env("TANCHECK_REQUIRE_FORTRAN", "1");
+        } else {
+            c.env_remove("TANCHECK_REQUIRE_FORTRAN");
+        }
+        let o = c.output().unwrap();
+        let v: Value = serde_json::from_str(&std::fs::read_to_string(d.join("r.json")).unwrap()).unwrap();
+        (o, v)
+    };
+    let (o, v) = run(false);
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    assert!(text(&o).contains("no Fortran compiler runs here"), "{}", text(&o));
+    let fortran: Vec<_> = items(&v)
+        .iter()
+        .filter(|i| i["routine"].as_str().unwrap().starts_with("fortran/"))
+        .cloned()
+        .collect();
+    assert!(!fortran.is_empty());
+    assert!(fortran.iter().all(|i| i["outcome"] == "skipped" && i["as_expected"] == true), "{fortran:?}");
+    assert!(items(&v).iter().any(|i| i["routine"] == "c/j2.json" && i["outcome"] == "pass"));
+    // Required, a skip is a failure (exit 2), said in the item.
+    let (o, v) = run(true);
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    let skipped = items(&v).iter().find(|i| i["outcome"] == "skipped").unwrap();
+    assert_eq!(skipped["code"], 2);
+    assert!(skipped["message"].as_str().unwrap().contains("TANCHECK_REQUIRE_FORTRAN=1"), "{skipped}");
+}

@@ -2,15 +2,10 @@
 //! shards): one result per item (a routine's check or probe suite with a property set and a
 //! path, or the replay of its regression cases), in the order a serial run gives, and the
 //! campaign's identity so partial reports of different campaigns are never merged. The data
-//! types, their JSON document, and the readable view for the terminal; the HTML page and the
-//! JUnit XML are in `campaign_pages`.
-
-use std::io::{self, Write};
+//! types, their JSON document and the lines every view shares; the terminal's view is in
+//! `terminal::campaign`, the HTML page and the JUnit XML in `campaign_pages`.
 
 use serde::{Deserialize, Serialize};
-
-use super::style::Palette;
-use super::terminal::Detail;
 
 /// The document's `format` and `version` (the same envelope as every other report).
 pub const FORMAT: &str = "tancheck-report";
@@ -255,36 +250,4 @@ pub fn verdict_line(r: &CampaignReport) -> String {
         if skipped > 0 { format!(", {skipped} skipped") } else { String::new() },
         r.exit_code
     )
-}
-
-/// The readable view: the headline, per routine its items (quiet: only the items not as
-/// expected), the notes, the overall line.
-pub fn write_terminal(out: &mut dyn Write, r: &CampaignReport, detail: Detail, p: Palette) -> io::Result<()> {
-    writeln!(out, "{}", p.head(&headline(r)))?;
-    for (routine, items) in r.routines() {
-        let shown: Vec<_> = items.iter().filter(|i| detail != Detail::Quiet || !i.as_expected).collect();
-        if shown.is_empty() {
-            continue;
-        }
-        let bad = items.iter().any(|i| !i.as_expected);
-        let name = &items[0].name;
-        let head = format!("  {routine} ({name})");
-        writeln!(out, "{}", if bad { p.fail(&head) } else { head })?;
-        for it in shown {
-            writeln!(out, "    {}", item_line(it))?;
-        }
-    }
-    if detail != Detail::Quiet {
-        for n in &r.notes {
-            writeln!(out, "  note: {n}")?;
-        }
-    }
-    let v = verdict_line(r);
-    writeln!(out, "{}", if r.exit_code == 0 { p.pass(&v) } else { p.fail(&v) })?;
-    if detail != Detail::Quiet {
-        for c in &r.cautions {
-            writeln!(out, "  caution: {c}")?;
-        }
-    }
-    Ok(())
 }

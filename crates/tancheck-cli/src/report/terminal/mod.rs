@@ -10,6 +10,7 @@ use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport
 pub use super::style::Palette;
 use super::Reporter;
 
+pub mod campaign;
 pub mod check;
 pub mod commands;
 
@@ -47,7 +48,7 @@ impl<'a> Terminal<'a> {
 
 impl Reporter for Terminal<'_> {
     fn campaign(&mut self, report: &super::campaign::CampaignReport) -> io::Result<()> {
-        super::campaign::write_terminal(&mut self.out, report, self.detail, self.palette)
+        campaign::write(&mut self.out, report, self.detail, self.palette)
     }
     fn check(&mut self, report: &Report) -> io::Result<()> {
         check::write(&mut self.out, report, self.detail, self.palette)
