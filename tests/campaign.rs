@@ -81,6 +81,12 @@ fn the_bundled_campaign_gives_the_same_items_serial_threaded_and_isolated() {
     } else {
         assert_eq!(skipped, 0);
     }
+    // Per routine: every bundled routine once, its items summed up.
+    let routines = serial["routines"].as_array().unwrap();
+    assert!(routines.len() >= 30, "{}", routines.len());
+    let j2 = routines.iter().find(|r| r["routine"] == "c/j2.json").unwrap();
+    assert_eq!(j2["items"], 4, "two property sets times two paths: {j2}");
+    assert_eq!(j2["code"], 0);
     // In positions order, with the regression cases (none here) first.
     for (k, it) in list.iter().enumerate() {
         assert_eq!(it["position"], k);
@@ -117,6 +123,7 @@ fn the_bundled_campaign_gives_the_same_items_serial_threaded_and_isolated() {
     assert_eq!(o.status.code(), Some(0), "{}", text(&o));
     let m: Value = serde_json::from_str(&std::fs::read_to_string(&merged).unwrap()).unwrap();
     assert_eq!(items(&m), list, "merged against serial");
+    assert_eq!(m["routines"], serial["routines"], "merged against serial, per routine");
     assert_eq!(m["merged"]["missing"].as_array().unwrap().len(), 0);
 
     // A missing shard is named, exit 2; the report of what is there is still written.

@@ -78,5 +78,6 @@ fn the_bundled_campaign_as_a_slurm_job_array_merges_to_the_one_process_run() {
     assert_eq!(merged["merged"]["missing"], serde_json::json!([]));
     assert_eq!(merged["campaign"], serial["campaign"]);
     assert_eq!(merged["items"], serial["items"], "the job array's merged items against one process");
+    assert_eq!(merged["routines"], serial["routines"]);
     assert!(out.join("campaign.xml").is_file() && out.join("campaign.html").is_file());
 }

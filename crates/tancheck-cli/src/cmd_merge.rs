@@ -8,7 +8,7 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 use clap::Args;
 
-use crate::report::campaign::{list, worst_code, CampaignReport, MergeInfo};
+use crate::report::campaign::{list, CampaignReport, MergeInfo};
 use crate::report::Reporter;
 
 #[derive(Args, Debug)]
@@ -82,11 +82,12 @@ pub fn merge(parts: Vec<(PathBuf, CampaignReport)>) -> Result<CampaignReport> {
         shard: None,
         merged: Some(MergeInfo { shards: count, missing: missing.clone() }),
         items,
+        routines: Vec::new(),
         notes,
         exit_code: 0,
         cautions: first.cautions.clone(),
     };
-    r.exit_code = if missing.is_empty() { worst_code([r.items_code()]) } else { crate::exit::BAD_INPUT };
+    r.summarize((!missing.is_empty()).then_some(crate::exit::BAD_INPUT));
     if !missing.is_empty() {
         r.notes.push(format!(
             "missing shards {} of {count} (0-based): their items are not in this report",

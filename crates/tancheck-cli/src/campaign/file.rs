@@ -78,7 +78,9 @@ pub enum Family {
     Finite,
 }
 
-/// What an item does.
+/// What an item does. Another kind of item (a random-path exploration, say) is a variant
+/// here, a field of [`RoutineEntry`] that asks for it, a line in `expand` and an arm in
+/// `item::run_found`; the key, the hash, shards, merge and the reports need nothing more.
 #[derive(Clone, Debug, PartialEq, Eq)]
 pub enum Task {
     /// Replay the regression cases of the routine (`tancheck-cases/<manifest>/`).

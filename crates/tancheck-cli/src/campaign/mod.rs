@@ -15,7 +15,7 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 use clap::Args;
 
-use crate::report::campaign::{worst_code, CampaignIdentity, CampaignReport, ShardInfo};
+use crate::report::campaign::{CampaignIdentity, CampaignReport, ShardInfo};
 use crate::report::Reporter;
 use file::Campaign;
 
@@ -169,11 +169,12 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         shard,
         merged: None,
         items: results,
+        routines: Vec::new(),
         notes,
         exit_code: 0,
         cautions: tancheck_core::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
     };
-    report.exit_code = worst_code([report.items_code()]);
+    report.summarize(None);
     let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
     reporters.campaign(&report)?;
     reporters.finish()?;

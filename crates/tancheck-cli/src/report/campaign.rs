@@ -93,6 +93,19 @@ pub struct ItemResult {
     pub message: Option<String>,
 }
 
+/// The items of one routine, summed up.
+#[derive(Clone, Debug, PartialEq, Eq, Serialize, Deserialize)]
+pub struct RoutineSummary {
+    /// The manifest, relative to the campaign's folder.
+    pub routine: String,
+    pub name: String,
+    pub items: usize,
+    /// Items whose outcome is not the one expected.
+    pub not_as_expected: usize,
+    /// The worst of its items' codes.
+    pub code: i32,
+}
+
 /// A campaign's report: the whole campaign, one shard, or a merge of shards.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct CampaignReport {
@@ -103,6 +116,9 @@ pub struct CampaignReport {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub merged: Option<MergeInfo>,
     pub items: Vec<ItemResult>,
+    /// Per routine (in the order of the items): its items summed up.
+    #[serde(default)]
+    pub routines: Vec<RoutineSummary>,
     /// Builds, skipped languages, workers: what the user should know.
     pub notes: Vec<String>,
     pub exit_code: i32,
@@ -130,6 +146,24 @@ impl CampaignReport {
     /// The exit code of the items (the worst decides), recomputed.
     pub fn items_code(&self) -> i32 {
         worst_code(self.items.iter().map(|i| i.code))
+    }
+
+    /// Fill `routines` from the items, and `exit_code` with the worst item's code unless
+    /// `forced` (merge: 2 for missing shards).
+    pub fn summarize(&mut self, forced: Option<i32>) {
+        let routines: Vec<RoutineSummary> = self
+            .routines()
+            .into_iter()
+            .map(|(routine, items)| RoutineSummary {
+                routine: routine.to_string(),
+                name: items[0].name.clone(),
+                items: items.len(),
+                not_as_expected: items.iter().filter(|i| !i.as_expected).count(),
+                code: worst_code(items.iter().map(|i| i.code)),
+            })
+            .collect();
+        self.routines = routines;
+        self.exit_code = forced.unwrap_or_else(|| self.items_code());
     }
 
     /// The routines in order of first appearance, each with its items.
