@@ -8,10 +8,8 @@ use std::path::Path as FsPath;
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, BuildOptions, Library};
 use tancheck_core::finite::check::{run, FiniteReport};
-use tancheck_core::finite::{
-    FiniteInfo, FiniteModelRoutine, FiniteRoutine, FiniteSettings, Frame, StressMeasure, TangentMeasure,
-};
-use tancheck_models::finite::{finite_zoo, zoo_path, FiniteZooModel, ZOO_PROPERTIES};
+use tancheck_core::finite::{FiniteInfo, FiniteSettings, Frame, StressMeasure, TangentMeasure};
+use tancheck_models::finite::{finite_zoo, zoo_path, ZOO_PROPERTIES};
 
 use super::Row;
 
@@ -60,11 +58,9 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
     let settings = FiniteSettings::default();
     let mut rows = Vec::new();
     for e in finite_zoo() {
-        let mut r: Box<dyn FiniteRoutine> = match e.model {
-            FiniteZooModel::NeoHookean(m) => Box::new(FiniteModelRoutine(m)),
-            FiniteZooModel::Hypo(m) => Box::new(FiniteModelRoutine(m)),
-        };
-        let rep = run(r.as_mut(), &ZOO_PROPERTIES, &[], &path, settings);
+        let (props, state) = (e.model.properties(), e.model.start_state());
+        let mut r = e.model.routine();
+        let rep = run(r.as_mut(), props, &state, &path, settings);
         rows.push(row(e.name, "Rust", e.expected.unwrap_or("none"), &rep));
     }
     let mut libs = vec![("C", "fortran-shim/examples/c/finite_nh.c", "libfinite_c.so")];

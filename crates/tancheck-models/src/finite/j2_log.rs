@@ -101,6 +101,11 @@ impl FiniteModel for J2Log {
         out: &mut FiniteOutput<'_, S>,
     ) -> Result<(), Fault> {
         let p = input.properties;
+        if p.len() < 4 || input.state0.len() < Self::NSTATE || out.state.len() < Self::NSTATE {
+            out.outcome.status = status::FAILED;
+            out.outcome.set_message("j2-log: needs 4 properties (E, nu, sy0, H) and 7 state variables");
+            return Ok(());
+        }
         let (k, g) = Self::moduli(p);
         let (sy0, h) = (p[2], p[3]);
         let f0 = mat3::from_flat(input.f0);

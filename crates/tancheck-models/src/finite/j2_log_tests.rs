@@ -207,3 +207,22 @@ fn return_is_exact_on_a_radial_path() {
     }
     assert!((st[6] - da).abs() < 1e-12, "{} {da}", st[6]);
 }
+
+// The probes: the elastic log strain is a tensorial state that rotates with a superposed
+// rotation, α and the energies do not change, and the shear stress in simple shear grows
+// monotonically (no Jaumann-rate oscillation: the update is hyperelastic in εᵉ). Declaring
+// the elastic strain a scalar state makes the superposed-rotation probe fail.
+#[test]
+fn probes_pass_with_the_tensorial_state() {
+    use tancheck_core::finite::probe::{run_all, ProbeOptions};
+    use tancheck_core::finite::FiniteModelRoutine;
+    let path = super::zoo_path().build().unwrap();
+    let props = super::J2_PROPERTIES;
+    let mut r = FiniteModelRoutine(J2Log::new(StressMeasure::Cauchy, TangentMeasure::SigmaJaumann));
+    let good = ProbeOptions { tensor_state: vec![0], ..Default::default() };
+    let res = run_all(&mut r, &props, &[0.0; 7], &path, &good);
+    assert!(res.iter().all(|p| p.passed), "{res:?}");
+    let res = run_all(&mut r, &props, &[0.0; 7], &path, &ProbeOptions::default());
+    let sup = res.iter().find(|p| p.name == "rotation-superposed").unwrap();
+    assert!(!sup.passed, "{sup:?}");
+}

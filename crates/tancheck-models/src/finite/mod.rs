@@ -16,4 +16,4 @@ mod tests;
 pub use hypo::HypoJaumann;
 pub use j2_log::J2Log;
 pub use neo_hookean::{NeoHookean, NhFlaw};
-pub use zoo::{finite_zoo, zoo_path, FiniteZooEntry, FiniteZooModel, ZOO_PROPERTIES};
+pub use zoo::{finite_zoo, zoo_path, FiniteZooEntry, FiniteZooModel, J2_PROPERTIES, ZOO_PROPERTIES};
