@@ -22,7 +22,9 @@
  * reference configuration. Energy: stored K/2 tr(ee)^2 + G dev ee : dev ee + H alpha^2/2,
  * dissipated sy0 alpha.
  *
- * Symbol: c_j2log, and its twin c_j2log_cx with -DTC_COMPLEX.
+ * Symbols: c_j2log; c_j2log_material_as_spatial (returns dS/dE where a spatial measure is
+ * declared); c_j2log_geometric_missing (dP/dF without the initial-stress term dF S, i.e.
+ * delta_ik S_JL); each with its twin _cx (-DTC_COMPLEX).
  */
 
 #include "tancheck_cstep.h"
@@ -217,6 +219,8 @@ static double jl_divided(double la, double lb)
     return 0.5 * (la + lb) * g / lb;
 }
 
+enum jl_flaw { JL_NONE, JL_MATERIAL_AS_SPATIAL, JL_GEOMETRIC_MISSING };
+
 /* What the tangent needs, in real numbers. */
 typedef struct jl_return {
     double k, g, theta, theta_bar, lam[3];
@@ -258,7 +262,7 @@ static void jl_response(const jl_return *r, const jl_d3 l, jl_d3 dtau)
 }
 
 /* The tangent in the declared measure, column-major. */
-static void jl_tangent(const jl_return *r, int measure, tc_real *tangent)
+static void jl_tangent(const jl_return *r, int measure, enum jl_flaw flaw, tc_real *tangent)
 {
     double jac = r->f[0][0] * (r->f[1][1] * r->f[2][2] - r->f[1][2] * r->f[2][1]) -
                  r->f[0][1] * (r->f[1][0] * r->f[2][2] - r->f[1][2] * r->f[2][0]) +
@@ -293,7 +297,9 @@ static void jl_tangent(const jl_return *r, int measure, tc_real *tangent)
                 for (int j = 0; j < 3; ++j) {
                     double v = dtau[i][j];
                     for (int k = 0; k < 3; ++k) {
-                        if (measure == TC_TANGENT_DP_DF)
+                        if (measure == TC_TANGENT_DP_DF && flaw == JL_GEOMETRIC_MISSING)
+                            v -= r->tau[i][k] * l[j][k] + l[i][k] * r->tau[k][j]; /* drops dF S */
+                        else if (measure == TC_TANGENT_DP_DF)
                             v -= r->tau[i][k] * l[j][k];
                         else
                             v -= l[i][k] * r->tau[k][j] + r->tau[i][k] * l[j][k];
@@ -329,11 +335,10 @@ static void jl_tangent(const jl_return *r, int measure, tc_real *tangent)
     }
 }
 
-TC_FINITE_ROUTINE(c_j2log)
+static void jl_point(const tc_finite_call *call, const tc_real *properties, const tc_real *f0,
+                     const tc_real *f1, const tc_real *state0, tc_real *stress, tc_real *state,
+                     tc_real *tangent, tc_energy *energy, tc_report *report, enum jl_flaw flaw)
 {
-    (void)rotation;
-    (void)temperature;
-    (void)stress0;
     const int measure = call->tangent_measure;
     if (call->nproperties < 4 || call->nstate < 7) {
         jl_fail(report, "j2-log: needs 4 properties (E, nu, sy0, H) and 7 state variables");
@@ -422,5 +427,19 @@ TC_FINITE_ROUTINE(c_j2log)
         r.theta_bar = 3.0 * gr / (3.0 * gr + tc_re(h)) - (1.0 - r.theta);
     }
     jl_eigen(bre, r.lam, r.q);
-    jl_tangent(&r, measure, tangent);
+    int spatial = measure != TC_TANGENT_DP_DF && measure != TC_TANGENT_DS_DE;
+    jl_tangent(&r, flaw == JL_MATERIAL_AS_SPATIAL && spatial ? TC_TANGENT_DS_DE : measure, flaw, tangent);
 }
+
+#define JL_ROUTINE(name, flaw)                                                                  \
+    TC_FINITE_ROUTINE(name)                                                                     \
+    {                                                                                           \
+        (void)rotation;                                                                         \
+        (void)temperature;                                                                      \
+        (void)stress0;                                                                          \
+        jl_point(call, properties, f0, f1, state0, stress, state, tangent, energy, report, flaw); \
+    }
+
+JL_ROUTINE(c_j2log, JL_NONE)
+JL_ROUTINE(c_j2log_material_as_spatial, JL_MATERIAL_AS_SPATIAL)
+JL_ROUTINE(c_j2log_geometric_missing, JL_GEOMETRIC_MISSING)

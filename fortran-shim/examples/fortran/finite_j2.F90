@@ -15,14 +15,25 @@
 ! Properties [E, nu, sy0, H]; state [ee (11 22 33 23 13 12), alpha]. Energy: stored
 ! K/2 tr(ee)^2 + G dev ee : dev ee + H alpha^2/2, dissipated sy0 alpha.
 !
+! Symbols (each with its twin _cx): f_j2log, and the flawed f_j2log_material_as_spatial
+! (dS/dE returned where a spatial measure is declared) and f_j2log_geometric_missing (dP/dF
+! without the initial-stress term dF S, i.e. delta_ik S_JL).
+!
 ! Build (after the modules tancheck_routine, tancheck_cstep, tancheck_finite):
-!   gfortran -cpp -I fortran-shim/include -c finite_j2.F90               exports f_j2log
-!   gfortran -cpp -I fortran-shim/include -DTC_COMPLEX -c finite_j2.F90  exports f_j2log_cx
+!   gfortran -cpp -I fortran-shim/include -c finite_j2.F90               exports f_j2log, ...
+!   gfortran -cpp -I fortran-shim/include -DTC_COMPLEX -c finite_j2.F90  exports f_j2log_cx, ...
 
 #include "tancheck_twin.inc"
 
-subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-                   tangent, energy, report) bind(C, name="f_j2log"//TC_SUFFIX)
+! The update lives in a module whose name differs between the two builds, so that the
+! ordinary and the twin object link into one library.
+#ifdef TC_COMPLEX
+#define J2_IMPL finite_j2_impl_cx
+#else
+#define J2_IMPL finite_j2_impl
+#endif
+
+module J2_IMPL
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
   use tancheck_routine, only: tc_report, tc_temperature, tc_energy, tc_set_message, &
                               tc_status_failed, tc_provides_energy, tc_want_tangent
@@ -31,6 +42,15 @@ subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0,
                              tc_tangent_tau_green_naghdi, tc_tangent_dp_df, tc_tangent_ds_de
   use tancheck_cstep, only: cs_sqrt
   implicit none
+  private
+  public :: j2_point, j2_none, j2_material_as_spatial, j2_geometric_missing
+
+  integer, parameter :: j2_none = 0, j2_material_as_spatial = 1, j2_geometric_missing = 2
+
+contains
+
+subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                    tangent, energy, report, flaw)
   type(tc_finite_call), intent(in) :: callinfo
   TC_REAL, intent(in) :: properties(callinfo%nproperties)
   TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
@@ -40,6 +60,7 @@ subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0,
   TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
   type(tc_energy), intent(inout) :: energy
   type(tc_report), intent(inout) :: report
+  integer, intent(in) :: flaw
 
   ! Rate-independent and driven by F: the rotation, temperature and start stress are not used.
   namelist /unused_arguments/ rotation, temperature, stress0
@@ -134,6 +155,7 @@ subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0,
   rf = real(f1, c_double)
   rfi = real(inv3(f1), c_double)
   call eigen(real(btr, c_double), lam, q)
+  if (flaw == j2_material_as_spatial .and. m /= tc_tangent_dp_df) m = tc_tangent_ds_de
   call measure_tangent()
 
 contains
@@ -339,6 +361,7 @@ contains
         dtau = response(l)
         if (m == tc_tangent_dp_df) then
           x = dtau - matmul(rtau, transpose(l))
+          if (flaw == j2_geometric_missing) x = x - matmul(l, rtau) ! drops dF S
           o = matmul(x, transpose(rfi))
         else
           x = dtau - matmul(l, rtau) - matmul(rtau, transpose(l))
@@ -361,4 +384,65 @@ contains
       end if
     end do
   end subroutine measure_tangent
+end subroutine j2_point
+end module J2_IMPL
+
+subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+  tangent, energy, report) bind(C, name="f_j2log"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
+  use tancheck_finite, only: tc_finite_call
+  use J2_IMPL, only: j2_point, j2_none
+  implicit none
+  type(tc_finite_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
+  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
+  type(tc_temperature), intent(in) :: temperature
+  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
+  type(tc_energy), intent(inout) :: energy
+  type(tc_report), intent(inout) :: report
+  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                tangent, energy, report, j2_none)
 end subroutine f_j2log
+
+subroutine f_j2log_material_as_spatial(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+  tangent, energy, report) bind(C, name="f_j2log_material_as_spatial"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
+  use tancheck_finite, only: tc_finite_call
+  use J2_IMPL, only: j2_point, j2_material_as_spatial
+  implicit none
+  type(tc_finite_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
+  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
+  type(tc_temperature), intent(in) :: temperature
+  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
+  type(tc_energy), intent(inout) :: energy
+  type(tc_report), intent(inout) :: report
+  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                tangent, energy, report, j2_material_as_spatial)
+end subroutine f_j2log_material_as_spatial
+
+subroutine f_j2log_geometric_missing(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+  tangent, energy, report) bind(C, name="f_j2log_geometric_missing"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
+  use tancheck_finite, only: tc_finite_call
+  use J2_IMPL, only: j2_point, j2_geometric_missing
+  implicit none
+  type(tc_finite_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
+  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
+  type(tc_temperature), intent(in) :: temperature
+  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
+  type(tc_energy), intent(inout) :: energy
+  type(tc_report), intent(inout) :: report
+  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                tangent, energy, report, j2_geometric_missing)
+end subroutine f_j2log_geometric_missing
