@@ -226,3 +226,27 @@ fn probes_pass_with_the_tensorial_state() {
     let sup = res.iter().find(|p| p.name == "rotation-superposed").unwrap();
     assert!(!sup.passed, "{sup:?}");
 }
+
+// Every conversion between measures, each way, against num-dual alone: the num-dual tangent
+// of measure a converted to measure b (`measure::convert`) equals the num-dual tangent of b,
+// on a plastic increment of j2-log from a rotated plastic state (an objective response that
+// is not hyperelastic, so nothing here leans on a closed form).
+#[test]
+fn every_conversion_matches_num_dual() {
+    use tancheck_core::finite::measure::convert;
+    let (f0, st0) = start();
+    let f1 = mat3::mul(&[[1.03, 0.015, 0.0], [0.0, 0.99, 0.01], [0.005, 0.0, 0.985]], &f0);
+    let model = J2Log::new(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann);
+    let (tau, _, _, branch) = call(&model, &f0, &f1, &st0);
+    assert_eq!(branch, 1);
+    let dual: Vec<Vec<f64>> =
+        TangentMeasure::ALL.iter().map(|&m| dual_tangent(&model, m, &f0, &f1, &st0)).collect();
+    for (a, ta) in TangentMeasure::ALL.iter().zip(&dual) {
+        for (b, tb) in TangentMeasure::ALL.iter().zip(&dual) {
+            let mut got = vec![0.0; b.size() * b.size()];
+            convert(*a, *b, &f1, &tau, ta, &mut got);
+            let e = rel(&got, tb);
+            assert!(e < 1e-9, "{} → {}: {e:e}", a.name(), b.name());
+        }
+    }
+}
