@@ -169,3 +169,67 @@ fn built_in_j2_log_model() {
     assert_eq!(code, 2, "{out}");
     assert!(out.contains("two-properties.json") && out.contains("4 properties"), "{out}");
 }
+
+// The finite reports go through the reporters like the point checks: --json writes the
+// enveloped document (kind finite-check / finite-probes) that the shipped schema accepts,
+// --html a page and --junit a test case per increment or probe, -q keeps failing increments
+// only, --color always colours and --color never does not.
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn finite_reports_through_the_reporters() {
+    let dir = scratch("reporters");
+    let lib = f_lib();
+    let m = |symbol: &'static str| Manifest {
+        lib,
+        symbol,
+        stress: "cauchy",
+        tangent: "sigma-jaumann",
+        frame: "none",
+        properties: ELASTIC,
+        states: 0,
+        extra: "",
+    };
+    let good = write(&dir, "good.json", &m("f_nh"));
+    let bad = write(&dir, "bad.json", &m("f_nh_missing_over_j"));
+    let path = |n: &str| dir.join(n).display().to_string();
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(tancheck_testkit::libs::repo_root().join("schema/report.schema.json"))
+            .unwrap(),
+    )
+    .unwrap();
+    let validator = jsonschema::validator_for(&schema).unwrap();
+    let (code, _) = tancheck(&[
+        "check",
+        &bad,
+        "--json",
+        &path("c.json"),
+        "--html",
+        &path("c.html"),
+        "--junit",
+        &path("c.xml"),
+    ]);
+    assert_eq!(code, 1);
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(path("c.json")).unwrap()).unwrap();
+    assert_eq!(v["kind"], "finite-check");
+    assert_eq!(v["finding"], "missing-over-j");
+    assert!(validator.is_valid(&v), "{v}");
+    let html = std::fs::read_to_string(path("c.html")).unwrap();
+    assert!(html.contains("f_nh_missing_over_j") && html.contains("missing-over-j"), "{html}");
+    let xml = std::fs::read_to_string(path("c.xml")).unwrap();
+    assert!(xml.contains("<testcase name=\"increment 1\"") && xml.contains("missing-over-j"), "{xml}");
+    let (code, _) = tancheck(&["probe", &good, "--json", &path("p.json"), "--junit", &path("p.xml")]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(path("p.json")).unwrap()).unwrap();
+    assert_eq!(v["kind"], "finite-probes");
+    assert!(validator.is_valid(&v), "{v}");
+    assert!(std::fs::read_to_string(path("p.xml")).unwrap().contains("<testcase name=\"stretch-rotate\""));
+    // -q: the failing increments and the verdict, no cautions; a pass prints its verdict only
+    let (_, out) = tancheck(&["check", &good, "-q"]);
+    assert!(out.contains("verdict: PASS") && !out.contains("increment") && !out.contains("caution"), "{out}");
+    let (_, out) = tancheck(&["check", &bad, "--color", "always"]);
+    assert!(out.contains("\u{1b}[") && out.contains("missing-over-j"), "{out}");
+    let (_, out) = tancheck(&["check", &bad, "--color", "never"]);
+    assert!(!out.contains("\u{1b}["), "{out}");
+}

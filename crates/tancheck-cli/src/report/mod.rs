@@ -6,11 +6,14 @@
 use std::io::{self, Write};
 use std::path::Path;
 
+use tancheck_core::finite::check::FiniteReport;
+use tancheck_core::finite::probe::FiniteProbeReport;
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
 pub mod block;
 pub mod files;
+pub mod finite;
 pub mod html;
 pub mod json;
 pub mod junit;
@@ -48,6 +51,14 @@ pub trait Reporter {
     }
     /// The rows of `tancheck selftest`.
     fn selftest(&mut self, _report: &SelftestReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// A finite-strain check (`tancheck check` on a manifest with a `finite` section).
+    fn finite_check(&mut self, _report: &FiniteReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// The finite-strain probes (`tancheck probe` on a finite manifest).
+    fn finite_probes(&mut self, _report: &FiniteProbeReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -110,6 +121,12 @@ impl Reporter for Fanout<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.each(|r| r.selftest(report))
+    }
+    fn finite_check(&mut self, report: &FiniteReport) -> io::Result<()> {
+        self.each(|r| r.finite_check(report))
+    }
+    fn finite_probes(&mut self, report: &FiniteProbeReport) -> io::Result<()> {
+        self.each(|r| r.finite_probes(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())
