@@ -3,7 +3,8 @@
 //! (itself tied to num-dual, the small-strain J2 model and the exact radial return in
 //! crates/tancheck-models/src/finite/j2_log_tests.rs) in stress, state, energy and tangent in
 //! every measure they implement, and pass the check with their complex-step twins along a
-//! plastic path with a rotation superposed.
+//! plastic path with a rotation superposed; the numerical tangent's calls into them and into
+//! the Rust model allocate nothing.
 
 use std::path::Path;
 
@@ -17,7 +18,10 @@ use tancheck::core::finite::{
 };
 use tancheck::core::Verdict;
 use tancheck::models::finite::J2Log;
+use tancheck_testkit::alloc::allocations_in;
 use tancheck_testkit::libs::build_examples;
+
+tancheck_testkit::counting_allocator!();
 
 const PROPS: [f64; 4] = [1000.0, 0.3, 5.0, 20.0];
 
@@ -143,4 +147,36 @@ fn fortran_j2_log_matches_the_rust_model() {
 #[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn fortran_j2_log_passes_with_its_twin() {
     passes_the_check(f_lib(), "f_j2log");
+}
+
+// The perturbed calls of a numerical tangent (central and complex step) allocate nothing, into
+// the Rust model and into the compiled routine through the shim, on a plastic increment.
+#[test]
+fn perturbed_j2_log_calls_allocate_nothing() {
+    use tancheck::core::finite::numeric::{self, Ask, Difference};
+    let gradients = path().build().unwrap().gradients;
+    let start = Start {
+        properties: PROPS.to_vec(),
+        f0: gradients[0],
+        stress0: [0.0; 6],
+        state0: vec![0.0; 7],
+        temperature: [20.0, 0.0],
+        time: [0.0, 1.0],
+        increment: 1,
+    };
+    let m = TangentMeasure::SigmaJaumann;
+    let mut rust = FiniteModelRoutine(J2Log::new(StressMeasure::Cauchy, m));
+    let mut c = routine(c_lib(), "c_j2log", StressMeasure::Cauchy, m);
+    let mut ws = Workspace::new(7, 4);
+    let mut out = vec![0.0; 36];
+    for how in [Difference::Central(1e-6), Difference::ComplexStep(1e-20)] {
+        for r in [&mut rust as &mut dyn FiniteRoutine, c.as_mut()] {
+            let ask = Ask { measure: m, stress: StressMeasure::Cauchy, how };
+            numeric::tangent(r, &mut ws, &start, &gradients[1], ask, &mut out).unwrap(); // warm up
+            let n = allocations_in(|| {
+                numeric::tangent(r, &mut ws, &start, &gradients[1], ask, &mut out).unwrap()
+            });
+            assert_eq!(n, 0, "{how:?} {}", r.info().name);
+        }
+    }
 }
