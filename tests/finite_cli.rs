@@ -1,5 +1,5 @@
 //! `tancheck check` and `tancheck probe` on finite-strain manifests naming C and Fortran
-//! routines, in every tangent measure each routine implements: the neo-Hookean, j2-log and
+//! routines, in every tangent measure each routine implements (j2-log: all seven): the neo-Hookean, j2-log and
 //! hypoelastic Jaumann examples pass (exit 0), their flawed variants fail with the cause named
 //! (exit 1), the hypoelastic routine that never applies the rotation increment fails the
 //! probes, and a built-in model given the wrong number of properties is bad input (exit 2).
@@ -72,6 +72,7 @@ fn every_measure(lib: &Path, prefix: &str, dir: &Path) {
     };
     for (tangent, stress) in [
         ("tau-jaumann", "kirchhoff"),
+        ("tau-green-naghdi", "cauchy"),
         ("sigma-jaumann", "cauchy"),
         ("tau-truesdell", "kirchhoff"),
         ("sigma-truesdell", "cauchy"),

@@ -225,7 +225,79 @@ enum jl_flaw { JL_NONE, JL_MATERIAL_AS_SPATIAL, JL_GEOMETRIC_MISSING };
 typedef struct jl_return {
     double k, g, theta, theta_bar, lam[3];
     jl_d3 q, n, tau, f, fi;
+    jl_d3 rot, u; /* F = R U, for the Green-Naghdi measure */
 } jl_return;
+
+/* The rotation R of F = R U by Newton's iteration R <- (R + R^-T)/2, and U = R^T F. */
+static void jl_polar(jl_return *r)
+{
+    jl_d3 x;
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) r->rot[i][j] = r->f[i][j];
+    for (int it = 0; it < 100; ++it) {
+        double d = r->rot[0][0] * (r->rot[1][1] * r->rot[2][2] - r->rot[1][2] * r->rot[2][1]) -
+                   r->rot[0][1] * (r->rot[1][0] * r->rot[2][2] - r->rot[1][2] * r->rot[2][0]) +
+                   r->rot[0][2] * (r->rot[1][0] * r->rot[2][1] - r->rot[1][1] * r->rot[2][0]);
+        double change = 0.0;
+        for (int i = 0; i < 3; ++i)
+            for (int j = 0; j < 3; ++j) {
+                /* (R^-T)_ij = cofactor_ij / det */
+                int i1 = (i + 1) % 3, i2 = (i + 2) % 3, j1 = (j + 1) % 3, j2 = (j + 2) % 3;
+                double cof = r->rot[i1][j1] * r->rot[i2][j2] - r->rot[i1][j2] * r->rot[i2][j1];
+                x[i][j] = 0.5 * (r->rot[i][j] + cof / d);
+                change = fmax(change, fabs(x[i][j] - r->rot[i][j]));
+            }
+        for (int i = 0; i < 3; ++i)
+            for (int j = 0; j < 3; ++j) r->rot[i][j] = x[i][j];
+        if (change <= 1e-15) break;
+    }
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) {
+            r->u[i][j] = 0.0;
+            for (int k = 0; k < 3; ++k) r->u[i][j] += r->rot[k][i] * r->f[k][j];
+        }
+}
+
+/* Omega = dR R^T for dF = d F: W = R^T dR has the axial vector w = (tr U I - U)^-1 axial(G - G^T),
+ * G = R^T dF (from W U + U W = G - G^T); Omega = R W R^T. */
+static void jl_polar_spin(const jl_return *r, const jl_d3 d, jl_d3 om)
+{
+    jl_d3 gm = {{0}}, k, ki, w, x;
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j)
+            for (int a = 0; a < 3; ++a)
+                for (int b = 0; b < 3; ++b) gm[i][j] += r->rot[a][i] * d[a][b] * r->f[b][j];
+    double rhs[3] = {gm[2][1] - gm[1][2], gm[0][2] - gm[2][0], gm[1][0] - gm[0][1]};
+    double tr = r->u[0][0] + r->u[1][1] + r->u[2][2];
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) k[i][j] = (i == j ? tr : 0.0) - r->u[i][j];
+    double det = k[0][0] * (k[1][1] * k[2][2] - k[1][2] * k[2][1]) - k[0][1] * (k[1][0] * k[2][2] - k[1][2] * k[2][0]) +
+                 k[0][2] * (k[1][0] * k[2][1] - k[1][1] * k[2][0]);
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) {
+            int i1 = (j + 1) % 3, i2 = (j + 2) % 3, j1 = (i + 1) % 3, j2 = (i + 2) % 3;
+            ki[i][j] = (k[i1][j1] * k[i2][j2] - k[i1][j2] * k[i2][j1]) / det; /* adjugate / det */
+        }
+    double v[3];
+    for (int i = 0; i < 3; ++i) v[i] = ki[i][0] * rhs[0] + ki[i][1] * rhs[1] + ki[i][2] * rhs[2];
+    w[0][0] = w[1][1] = w[2][2] = 0.0;
+    w[2][1] = v[0];
+    w[1][2] = -v[0];
+    w[0][2] = v[1];
+    w[2][0] = -v[1];
+    w[1][0] = v[2];
+    w[0][1] = -v[2];
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) {
+            x[i][j] = 0.0;
+            for (int a = 0; a < 3; ++a) x[i][j] += r->rot[i][a] * w[a][j];
+        }
+    for (int i = 0; i < 3; ++i)
+        for (int j = 0; j < 3; ++j) {
+            om[i][j] = 0.0;
+            for (int a = 0; a < 3; ++a) om[i][j] += x[i][a] * r->rot[j][a];
+        }
+}
 
 /* dtau for dF = l F: cJ : sym l + w tau - tau w. */
 static void jl_response(const jl_return *r, const jl_d3 l, jl_d3 dtau)
@@ -318,10 +390,13 @@ static void jl_tangent(const jl_return *r, int measure, enum jl_flaw flaw, tc_re
                     out[i][j] = v;
                 }
         } else {
+            jl_d3 om = {{0}};
             jl_response(r, d, dtau);
+            if (measure == TC_TANGENT_TAU_GREEN_NAGHDI) jl_polar_spin(r, d, om);
             for (int i = 0; i < 3; ++i)
                 for (int j = 0; j < 3; ++j) {
                     double v = dtau[i][j];
+                    for (int k = 0; k < 3; ++k) v -= om[i][k] * r->tau[k][j] - r->tau[i][k] * om[k][j];
                     if (measure == TC_TANGENT_TAU_TRUESDELL || measure == TC_TANGENT_SIGMA_TRUESDELL)
                         for (int k = 0; k < 3; ++k) v -= d[i][k] * r->tau[k][j] + r->tau[i][k] * d[k][j];
                     if (measure == TC_TANGENT_SIGMA_JAUMANN || measure == TC_TANGENT_SIGMA_TRUESDELL) v /= jac;
@@ -344,7 +419,7 @@ static void jl_point(const tc_finite_call *call, const tc_real *properties, cons
         jl_fail(report, "j2-log: needs 4 properties (E, nu, sy0, H) and 7 state variables");
         return;
     }
-    if (measure == TC_TANGENT_TAU_GREEN_NAGHDI || measure < 0 || measure > TC_TANGENT_DS_DE) {
+    if (measure < 0 || measure > TC_TANGENT_DS_DE) {
         jl_fail(report, "j2-log: this tangent measure is not implemented in C");
         return;
     }
@@ -427,6 +502,7 @@ static void jl_point(const tc_finite_call *call, const tc_real *properties, cons
         r.theta_bar = 3.0 * gr / (3.0 * gr + tc_re(h)) - (1.0 - r.theta);
     }
     jl_eigen(bre, r.lam, r.q);
+    jl_polar(&r);
     int spatial = measure != TC_TANGENT_DP_DF && measure != TC_TANGENT_DS_DE;
     jl_tangent(&r, flaw == JL_MATERIAL_AS_SPATIAL && spatial ? TC_TANGENT_DS_DE : measure, flaw, tangent);
 }

@@ -10,7 +10,7 @@
 ! derivative parts are exact with coinciding stretches. Tangent cJ = D : M (consistent
 ! small-strain tangent D, M the derivative of ln(btr)/2 along d btr + btr d by divided
 ! differences in the Jacobi eigenbasis); other measures from dtau = cJ : sym l + w tau - tau w
-! for dF = l F. tau-green-naghdi: status failed.
+! for dF = l F (tau-green-naghdi: minus Omega tau - tau Omega, Omega = dR R^T of F = R U).
 !
 ! Properties [E, nu, sy0, H]; state [ee (11 22 33 23 13 12), alpha]. Energy: stored
 ! K/2 tr(ee)^2 + G dev ee : dev ee + H alpha^2/2, dissipated sy0 alpha.
@@ -69,6 +69,7 @@ subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0
   TC_REAL :: e, nu, sy0, h, k, g, jac, alpha_n, alpha, tr, dd, qtr, ftr, factor, dalpha
   TC_REAL :: ee2(3, 3), bn(3, 3), fr(3, 3), btr(3, 3), etr(3, 3), dev(3, 3), tau(3, 3)
   real(c_double) :: rk, rg, theta, theta_bar, lam(3), q(3, 3), n(3, 3), rtau(3, 3), rf(3, 3), rfi(3, 3)
+  real(c_double) :: rrot(3, 3), ru(3, 3)
   integer :: m, s, i
   logical :: plastic
 
@@ -78,7 +79,7 @@ subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0
     call tc_set_message(report, "j2-log: needs 4 properties (E, nu, sy0, H) and 7 state variables")
     return
   end if
-  if (m == tc_tangent_tau_green_naghdi .or. m < tc_tangent_tau_jaumann .or. m > tc_tangent_ds_de) then
+  if (m < tc_tangent_tau_jaumann .or. m > tc_tangent_ds_de) then
     report%status = tc_status_failed
     call tc_set_message(report, "j2-log: this tangent measure is not implemented in Fortran")
     return
@@ -155,6 +156,7 @@ subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0
   rf = real(f1, c_double)
   rfi = real(inv3(f1), c_double)
   call eigen(real(btr, c_double), lam, q)
+  call polar()
   if (flaw == j2_material_as_spatial .and. m /= tc_tangent_dp_df) m = tc_tangent_ds_de
   call measure_tangent()
 
@@ -302,6 +304,60 @@ contains
     w = [b(1, 1), b(2, 2), b(3, 3)]
   end subroutine eigen
 
+  pure function rinv3(a) result(r)
+    real(c_double), intent(in) :: a(3, 3)
+    real(c_double) :: r(3, 3), d
+    d = a(1, 1) * (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) - a(1, 2) * (a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) &
+        + a(1, 3) * (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1))
+    r(1, 1) = (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) / d
+    r(1, 2) = -(a(1, 2) * a(3, 3) - a(1, 3) * a(3, 2)) / d
+    r(1, 3) = (a(1, 2) * a(2, 3) - a(1, 3) * a(2, 2)) / d
+    r(2, 1) = -(a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) / d
+    r(2, 2) = (a(1, 1) * a(3, 3) - a(1, 3) * a(3, 1)) / d
+    r(2, 3) = -(a(1, 1) * a(2, 3) - a(1, 3) * a(2, 1)) / d
+    r(3, 1) = (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1)) / d
+    r(3, 2) = -(a(1, 1) * a(3, 2) - a(1, 2) * a(3, 1)) / d
+    r(3, 3) = (a(1, 1) * a(2, 2) - a(1, 2) * a(2, 1)) / d
+  end function rinv3
+
+  ! The rotation of F = R U by Newton's iteration R <- (R + R^-T)/2, and U = R^T F.
+  subroutine polar()
+    real(c_double) :: x(3, 3)
+    integer :: it
+    rrot = rf
+    do it = 1, 100
+      x = 0.5_c_double * (rrot + transpose(rinv3(rrot)))
+      if (maxval(abs(x - rrot)) <= 1.0e-15_c_double) then
+        rrot = x
+        exit
+      end if
+      rrot = x
+    end do
+    ru = matmul(transpose(rrot), rf)
+  end subroutine polar
+
+  ! Omega = dR R^T for dF = d F: W = R^T dR has the axial vector (tr U I - U)^-1 axial(G - G^T),
+  ! G = R^T dF (from W U + U W = G - G^T); Omega = R W R^T.
+  function polar_spin(d) result(om)
+    real(c_double), intent(in) :: d(3, 3)
+    real(c_double) :: om(3, 3), gm(3, 3), k(3, 3), v(3), w(3, 3)
+    integer :: p
+    gm = matmul(transpose(rrot), matmul(d, rf))
+    k = -ru
+    do p = 1, 3
+      k(p, p) = k(p, p) + ru(1, 1) + ru(2, 2) + ru(3, 3)
+    end do
+    v = matmul(rinv3(k), [gm(3, 2) - gm(2, 3), gm(1, 3) - gm(3, 1), gm(2, 1) - gm(1, 2)])
+    w = 0.0_c_double
+    w(3, 2) = v(1)
+    w(2, 3) = -v(1)
+    w(1, 3) = v(2)
+    w(3, 1) = -v(2)
+    w(2, 1) = v(3)
+    w(1, 2) = -v(3)
+    om = matmul(matmul(rrot, w), transpose(rrot))
+  end function polar_spin
+
   ! (la + lb)/2 (ln la - ln lb)/(la - lb), 1 when equal (series of ln(1 + u)/u near u = 0).
   pure function divided(la, lb) result(d)
     real(c_double), intent(in) :: la, lb
@@ -369,6 +425,10 @@ contains
         end if
       else
         o = response(d)
+        if (m == tc_tangent_tau_green_naghdi) then
+          x = polar_spin(d)
+          o = o - matmul(x, rtau) + matmul(rtau, x)
+        end if
         if (m == tc_tangent_tau_truesdell .or. m == tc_tangent_sigma_truesdell) &
           o = o - matmul(d, rtau) - matmul(rtau, d)
         if (m == tc_tangent_sigma_jaumann .or. m == tc_tangent_sigma_truesdell) o = o / rjac

@@ -61,7 +61,7 @@ type CompiledRow =
 
 /// The compiled rows: a correct routine per family and measure kind, and one flawed variant per
 /// finite-strain cause, each in C and in Fortran.
-const COMPILED_ROWS: [CompiledRow; 13] = {
+const COMPILED_ROWS: [CompiledRow; 14] = {
     use Family::*;
     use StressMeasure::{Cauchy, Kirchhoff};
     use TangentMeasure::*;
@@ -71,6 +71,7 @@ const COMPILED_ROWS: [CompiledRow; 13] = {
         ("j2-log-sigma-jaumann", "c_j2log", "f_j2log", J2Log, Cauchy, SigmaJaumann, "none"),
         ("j2-log-dp-df", "c_j2log", "f_j2log", J2Log, Kirchhoff, DpDf, "none"),
         ("j2-log-ds-de", "c_j2log", "f_j2log", J2Log, Cauchy, DsDe, "none"),
+        ("j2-log-green-naghdi", "c_j2log", "f_j2log", J2Log, Kirchhoff, TauGreenNaghdi, "none"),
         ("hypo-jaumann", "c_hypo", "f_hypo", Hypo, Kirchhoff, TauJaumann, "none"),
         (
             "j2-log-material-as-spatial",
