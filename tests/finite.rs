@@ -6,11 +6,10 @@
 
 use std::alloc::{GlobalAlloc, Layout, System};
 use std::cell::Cell;
-use std::path::{Path, PathBuf};
+use std::path::Path;
 use std::process::Command;
-use std::sync::OnceLock;
 
-use tancheck::abi::{build_library, BuildOptions, Library};
+use tancheck::abi::Library;
 use tancheck::core::finite::check::run;
 use tancheck::core::finite::mat3;
 use tancheck::core::finite::numeric::{self, Ask, Difference, Start, Workspace};
@@ -20,6 +19,7 @@ use tancheck::core::finite::{
 };
 use tancheck::core::Verdict;
 use tancheck::models::finite::NeoHookean;
+use tancheck_testkit::libs::{build_examples, scratch};
 
 struct Counting;
 
@@ -51,16 +51,7 @@ fn allocations() -> u64 {
 const PROPS: [f64; 2] = [1000.0, 0.3];
 
 fn c_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| {
-        let dir = std::env::temp_dir().join(format!("tancheck-finite-test-{}", std::process::id()));
-        std::fs::create_dir_all(&dir).unwrap();
-        let out = dir.join("libfinite_c.so");
-        let root = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
-        let srcs = [root.join("finite_nh.c"), root.join("finite_hypo.c")];
-        build_library(&BuildOptions::new(srcs, &out)).unwrap_or_else(|e| panic!("building: {e}"));
-        out
-    })
+    build_examples("finite_c", &["c/finite_nh.c", "c/finite_hypo.c"])
 }
 
 fn c_routine(symbol: &str, stress: StressMeasure, tangent: TangentMeasure) -> Box<dyn FiniteRoutine> {
@@ -197,8 +188,7 @@ fn tancheck(args: &[&str]) -> (i32, String) {
 // routine that never rotates its stress, 2 naming the file for a bad measure.
 #[test]
 fn command_line_runs_finite_manifests() {
-    let dir = std::env::temp_dir().join(format!("tancheck-finite-cli-{}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
+    let dir = scratch("cli");
     let lib = c_lib().display().to_string();
     let write = |name: &str, text: String| {
         let p = dir.join(name);
@@ -244,15 +234,7 @@ fn command_line_runs_finite_manifests() {
 }
 
 fn f_lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| {
-        let dir = std::env::temp_dir().join(format!("tancheck-finite-test-f-{}", std::process::id()));
-        std::fs::create_dir_all(&dir).unwrap();
-        let out = dir.join("libfinite_f.so");
-        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/fortran/finite_nh.F90");
-        build_library(&BuildOptions::new([src], &out)).unwrap_or_else(|e| panic!("building: {e}"));
-        out
-    })
+    build_examples("finite_f", &["fortran/finite_nh.F90", "fortran/finite_hypo.F90"])
 }
 
 // The Fortran neo-Hookean routine agrees with the Rust model (stress, tangent and its twin's
@@ -346,4 +328,46 @@ fn c_hypoelastic_routine_and_its_rotation_flaw() {
     for k in 0..36 {
         assert!((a.tangent[k] - b.tangent[k]).abs() < 1e-9, "tangent {k}");
     }
+}
+
+// The Fortran hypoelastic Jaumann routine agrees with the Rust model (stress and tangent at a
+// stressed, rotated start) and with its twin passes the check along a rotated simple shear.
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn fortran_hypoelastic_matches_the_rust_model() {
+    use tancheck::models::finite::HypoJaumann;
+    let lib = Library::open(f_lib()).unwrap();
+    let info = FiniteInfo {
+        name: "f_hypo".into(),
+        stress: StressMeasure::Kirchhoff,
+        tangent: TangentMeasure::TauJaumann,
+        frame: Frame::Jaumann,
+        nstate: 0,
+        nproperties: 2,
+    };
+    let mut f = lib.finite_routine("f_hypo", info).unwrap();
+    assert!(f.has_complex());
+    let mut rust = FiniteModelRoutine(HypoJaumann::new());
+    let mut p = start(general_f());
+    p.stress0 = [120.0, -40.0, 15.0, 30.0, -25.0, 60.0];
+    let f1 = mat3::add(&p.f0, &[[0.02, 0.05, -0.01], [0.03, -0.015, 0.02], [-0.02, 0.01, 0.01]]);
+    let mut ws = Workspace::new(0, 2);
+    let a = ws.call_full(&mut f, &p, &f1).unwrap();
+    let b = ws.call_full(&mut rust, &p, &f1).unwrap();
+    for k in 0..6 {
+        assert!((a.stress[k] - b.stress[k]).abs() < 1e-10, "stress {k}");
+    }
+    for k in 0..36 {
+        assert!((a.tangent[k] - b.tangent[k]).abs() < 1e-9, "tangent {k}");
+    }
+    let path = FinitePathSpec::SimpleShear {
+        amount: 0.8,
+        increments: 4,
+        rotation: Some(tancheck::core::finite::path::Superposed { axis: [1.0, 0.0, 1.0], angle: 0.7 }),
+    }
+    .build()
+    .unwrap();
+    let rep = run(&mut f, &PROPS, &[], &path, FiniteSettings::default());
+    assert_eq!(rep.verdict, Verdict::Pass, "{:?}", rep.increments);
+    assert!(rep.increments.iter().all(|i| i.error_complex.unwrap() < 1e-9));
 }

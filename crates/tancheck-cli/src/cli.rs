@@ -232,7 +232,7 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
 fn cmd_check(a: CheckArgs) -> Result<i32> {
     a.output.check_files()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), a.output.quiet);
+        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output);
     }
     // An earlier report under the same name is replaced at once by an "incomplete" marker.
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
@@ -342,7 +342,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     a.output.check_files()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        return crate::cmd_finite::probe(&a.manifest, a.json.as_deref());
+        return crate::cmd_finite::probe(&a.manifest, a.json.as_deref(), &a.output);
     }
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;

@@ -55,7 +55,9 @@ pub fn run_scenario(dir: &FsPath, verbose: bool) -> Result<bool> {
             writeln!(out, "   manifest: {}", mpath.display())?;
         }
         if verbose || !ok || report.verdict != Verdict::Pass {
-            crate::cmd_finite::emit_check(&report, None, !verbose)?;
+            let mut out = crate::survive::stdout();
+            let plain = crate::report::style::Palette { on: false };
+            crate::report::finite::write_check(&mut out, &report, !verbose, false, plain)?;
         } else {
             let worst = report.increments.iter().filter_map(|i| i.error_complex).fold(0.0, f64::max);
             let mut out = crate::survive::stdout();

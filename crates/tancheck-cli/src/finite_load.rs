@@ -19,7 +19,7 @@ use tancheck_core::finite::probe::ProbeOptions;
 use tancheck_core::finite::{
     FiniteInfo, FiniteModelRoutine, FinitePathSpec, FiniteRoutine, Frame, StressMeasure, TangentMeasure,
 };
-use tancheck_models::finite::{finite_zoo, FiniteZooModel, HypoJaumann, NeoHookean};
+use tancheck_models::finite::{finite_zoo, FiniteZooModel, HypoJaumann, J2Log, NeoHookean};
 
 use crate::manifest::Guards;
 
@@ -43,7 +43,7 @@ pub struct FiniteSpec {
 pub struct FiniteRoutineSpec {
     pub library: Option<PathBuf>,
     pub symbol: Option<String>,
-    /// A built-in model: `neo-hookean` (in the declared measures), `hypo-jaumann`, or a row
+    /// A built-in model: `neo-hookean` or `j2-log` (in the declared measures), `hypo-jaumann`, or a row
     /// of the finite-strain zoo.
     pub model: Option<String>,
     #[serde(default)]
@@ -170,6 +170,11 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
         check(d.stress, d.tangent, Frame::None)?;
         return Ok(Box::new(FiniteModelRoutine(NeoHookean::new(d.stress, d.tangent))));
     }
+    if name == J2Log::NAME {
+        check(d.stress, d.tangent, Frame::None)?;
+        model_sizes(m, 4, J2Log::NSTATE, file)?;
+        return Ok(Box::new(FiniteModelRoutine(J2Log::new(d.stress, d.tangent))));
+    }
     if name == HypoJaumann::NAME || name == HypoJaumann::NO_ROTATION_NAME {
         check(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann, Frame::Jaumann)?;
         let h = if name == HypoJaumann::NAME { HypoJaumann::new() } else { HypoJaumann::without_rotation() };
@@ -187,14 +192,35 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
                     check(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann, Frame::Jaumann)?;
                     Box::new(FiniteModelRoutine(h))
                 }
+                FiniteZooModel::J2(j2) => {
+                    let i = tancheck_core::finite::FiniteModel::info(&j2);
+                    check(i.stress, i.tangent, i.frame)?;
+                    model_sizes(m, i.nproperties, i.nstate, file)?;
+                    Box::new(FiniteModelRoutine(j2))
+                }
             });
         }
     }
     let rows: Vec<&str> = finite_zoo().iter().map(|r| r.name).collect();
     bail!(
-        "{file}: no finite-strain model is called `{name}`; they are neo-hookean, hypo-jaumann, hypo-no-rotation, {}",
+        "{file}: no finite-strain model is called `{name}`; they are neo-hookean, j2-log, hypo-jaumann, hypo-no-rotation, {}",
         rows.join(", ")
     )
+}
+
+/// A built-in model's properties and states against the manifest's.
+fn model_sizes(m: &FiniteManifest, nproperties: usize, nstate: usize, file: &str) -> Result<()> {
+    let name = m.routine.model.as_deref().unwrap_or_default();
+    if m.routine.properties.len() != nproperties {
+        bail!(
+            "{file}: model `{name}` takes {nproperties} properties, routine.properties has {}",
+            m.routine.properties.len()
+        );
+    }
+    if m.routine.states != nstate {
+        bail!("{file}: model `{name}` has {nstate} state variables; set routine.states to {nstate}");
+    }
+    Ok(())
 }
 
 /// The finite-strain routine `symbol` of `library`, with the measures the manifest declares.

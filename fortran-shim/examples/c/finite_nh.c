@@ -11,8 +11,11 @@
  * sigma-truesdell (others: status failed). Energy: stored Psi, dissipated 0.
  *
  * Symbols: c_nh (correct), c_nh_truesdell_for_jaumann (returns the Truesdell tangent where
- * Jaumann is asked), c_nh_missing_over_j (the tangent times J), c_nh_cauchy_for_kirchhoff
- * (returns Cauchy stress whatever the declared measure); each with its twin _cx.
+ * Jaumann is asked), c_nh_missing_over_j (the tangent times J), c_nh_extra_over_j (the
+ * tangent divided by J), c_nh_cauchy_for_kirchhoff (returns Cauchy stress whatever the
+ * declared measure), c_nh_kirchhoff_for_cauchy (returns Kirchhoff stress whatever the declared
+ * measure); each with its twin _cx. The material-as-spatial and geometric-terms-missing
+ * flaws are in finite_j2.c, which implements the material measures.
  *
  * Build: cc -I fortran-shim/include -c finite_nh.c; again with -DTC_COMPLEX for the twins.
  */
@@ -20,7 +23,14 @@
 #include "tancheck_cstep.h"
 #include "tancheck_finite.h"
 
-enum nh_flaw { NH_NONE, NH_TRUESDELL_FOR_JAUMANN, NH_MISSING_OVER_J, NH_CAUCHY_FOR_KIRCHHOFF };
+enum nh_flaw {
+    NH_NONE,
+    NH_TRUESDELL_FOR_JAUMANN,
+    NH_MISSING_OVER_J,
+    NH_EXTRA_OVER_J,
+    NH_CAUCHY_FOR_KIRCHHOFF,
+    NH_KIRCHHOFF_FOR_CAUCHY
+};
 
 /* Row and column of the slots 11, 22, 33, 23, 13, 12. */
 static const int NH_I[6] = {0, 1, 2, 1, 0, 0};
@@ -67,7 +77,8 @@ static void nh_point(const tc_finite_call *call, const tc_real *properties, cons
         }
         i1 += b[i][i];
     }
-    int cauchy = call->stress_measure == TC_STRESS_CAUCHY || flaw == NH_CAUCHY_FOR_KIRCHHOFF;
+    int cauchy = (call->stress_measure == TC_STRESS_CAUCHY || flaw == NH_CAUCHY_FOR_KIRCHHOFF) &&
+                 flaw != NH_KIRCHHOFF_FOR_CAUCHY;
     for (int s = 0; s < 6; ++s) stress[s] = cauchy ? tau[NH_I[s]][NH_J[s]] / jac : tau[NH_I[s]][NH_J[s]];
     int jaumann = (m == TC_TANGENT_TAU_JAUMANN || m == TC_TANGENT_SIGMA_JAUMANN) && flaw != NH_TRUESDELL_FOR_JAUMANN;
     int over_j = m == TC_TANGENT_SIGMA_JAUMANN || m == TC_TANGENT_SIGMA_TRUESDELL;
@@ -83,6 +94,7 @@ static void nh_point(const tc_finite_call *call, const tc_real *properties, cons
             }
             if (over_j) v /= jac;
             if (flaw == NH_MISSING_OVER_J) v *= jac;
+            if (flaw == NH_EXTRA_OVER_J) v /= jac;
             tangent[r + 6 * c] = v;
         }
     }
@@ -106,4 +118,6 @@ static void nh_point(const tc_finite_call *call, const tc_real *properties, cons
 NH_ROUTINE(c_nh, NH_NONE)
 NH_ROUTINE(c_nh_truesdell_for_jaumann, NH_TRUESDELL_FOR_JAUMANN)
 NH_ROUTINE(c_nh_missing_over_j, NH_MISSING_OVER_J)
+NH_ROUTINE(c_nh_extra_over_j, NH_EXTRA_OVER_J)
 NH_ROUTINE(c_nh_cauchy_for_kirchhoff, NH_CAUCHY_FOR_KIRCHHOFF)
+NH_ROUTINE(c_nh_kirchhoff_for_cauchy, NH_KIRCHHOFF_FOR_CAUCHY)

@@ -78,4 +78,10 @@ impl Reporter for Json<'_> {
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.put(Kind::Selftest, report)
     }
+    fn finite_check(&mut self, report: &tancheck_core::finite::check::FiniteReport) -> io::Result<()> {
+        self.put(Kind::FiniteCheck, report)
+    }
+    fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
+        self.put(Kind::FiniteProbes, report)
+    }
 }

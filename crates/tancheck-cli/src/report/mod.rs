@@ -6,6 +6,8 @@
 use std::io::{self, Write};
 use std::path::Path;
 
+use tancheck_core::finite::check::FiniteReport;
+use tancheck_core::finite::probe::FiniteProbeReport;
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
@@ -13,6 +15,7 @@ pub mod block;
 pub mod campaign;
 pub mod campaign_pages;
 pub mod files;
+pub mod finite;
 pub mod html;
 pub mod json;
 pub mod junit;
@@ -54,6 +57,14 @@ pub trait Reporter {
     }
     /// The report of a campaign, of one shard of it, or of merged shards.
     fn campaign(&mut self, _report: &campaign::CampaignReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// A finite-strain check (`tancheck check` on a manifest with a `finite` section).
+    fn finite_check(&mut self, _report: &FiniteReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// The finite-strain probes (`tancheck probe` on a finite manifest).
+    fn finite_probes(&mut self, _report: &FiniteProbeReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -119,6 +130,12 @@ impl Reporter for Fanout<'_> {
     }
     fn campaign(&mut self, report: &campaign::CampaignReport) -> io::Result<()> {
         self.each(|r| r.campaign(report))
+    }
+    fn finite_check(&mut self, report: &FiniteReport) -> io::Result<()> {
+        self.each(|r| r.finite_check(report))
+    }
+    fn finite_probes(&mut self, report: &FiniteProbeReport) -> io::Result<()> {
+        self.each(|r| r.finite_probes(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

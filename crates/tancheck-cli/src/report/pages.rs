@@ -65,6 +65,16 @@ impl Reporter for Pages {
         write(self.html.as_deref(), "the HTML report", || Ok(super::campaign_pages::campaign_page(report)))
     }
 
+    fn finite_check(&mut self, report: &tancheck_core::finite::check::FiniteReport) -> io::Result<()> {
+        write(self.html.as_deref(), "the HTML report", || Ok(super::finite::check_page(report)))?;
+        write(self.junit.as_deref(), "the JUnit report", || super::finite::check_junit(report))
+    }
+
+    fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
+        write(self.html.as_deref(), "the HTML report", || Ok(super::finite::probes_page(report)))?;
+        write(self.junit.as_deref(), "the JUnit report", || super::finite::probes_junit(report))
+    }
+
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;
         write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&report.rows, &report.tool)))

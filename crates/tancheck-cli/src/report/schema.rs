@@ -31,6 +31,8 @@ enum Body {
     Replay(ReplayReport),
     Cases(CaseFolderResult),
     Selftest(SelftestReport),
+    FiniteCheck(tancheck_core::finite::check::FiniteReport),
+    FiniteProbes(tancheck_core::finite::probe::FiniteProbeReport),
 }
 
 /// A tancheck report file.

@@ -23,7 +23,7 @@ use super::numeric::{self, Ask, Start, Workspace};
 use super::routine::FiniteRoutine;
 
 /// A named cause with the error left once it is assumed.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct FiniteCause {
     pub name: String,
     pub explanation: String,

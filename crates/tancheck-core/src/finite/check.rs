@@ -12,7 +12,7 @@ use super::routine::FiniteRoutine;
 use crate::report::{Verdict, CAUTIONS};
 
 /// Steps and tolerance of the finite-strain check.
-#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(default, deny_unknown_fields)]
 pub struct FiniteSettings {
     /// Step of the central differences on the perturbation of F (dimensionless).
@@ -32,7 +32,7 @@ impl Default for FiniteSettings {
 }
 
 /// The largest difference of one entry.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct WorstEntry {
     pub row: usize,
     pub column: usize,
@@ -41,7 +41,7 @@ pub struct WorstEntry {
 }
 
 /// One increment's verdict.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct FiniteIncrement {
     pub increment: usize,
     /// F at the end of the increment, column-major.
@@ -57,7 +57,7 @@ pub struct FiniteIncrement {
 }
 
 /// The report of a finite-strain check.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct FiniteReport {
     pub routine: String,
     pub stress_measure: String,

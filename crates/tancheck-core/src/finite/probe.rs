@@ -43,12 +43,33 @@ pub struct ProbeOptions {
 }
 
 /// One probe's result.
-#[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct FiniteProbeResult {
     pub name: String,
     pub passed: bool,
     pub summary: String,
     pub details: Vec<String>,
+}
+
+/// The report of the finite-strain probes of one routine.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct FiniteProbeReport {
+    pub routine: String,
+    /// Every probe passed.
+    pub passed: bool,
+    pub probes: Vec<FiniteProbeResult>,
+    pub cautions: Vec<String>,
+}
+
+impl FiniteProbeReport {
+    pub fn new(routine: &str, probes: Vec<FiniteProbeResult>) -> FiniteProbeReport {
+        FiniteProbeReport {
+            routine: routine.to_string(),
+            passed: probes.iter().all(|p| p.passed),
+            probes,
+            cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
+        }
+    }
 }
 
 /// Relative tolerance of the rotation probes (common practice: a few hundred ulps of the

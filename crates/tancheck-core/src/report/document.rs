@@ -22,6 +22,10 @@ pub enum Kind {
     Replay,
     Cases,
     Selftest,
+    /// A finite-strain check (a manifest with a `finite` section).
+    FiniteCheck,
+    /// The finite-strain probes.
+    FiniteProbes,
 }
 
 impl Kind {
@@ -33,6 +37,8 @@ impl Kind {
             Kind::Replay => "replay",
             Kind::Cases => "cases",
             Kind::Selftest => "selftest",
+            Kind::FiniteCheck => "finite-check",
+            Kind::FiniteProbes => "finite-probes",
         }
     }
 }

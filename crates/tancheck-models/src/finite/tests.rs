@@ -232,17 +232,15 @@ fn shear_error(n: usize, gmax: f64) -> f64 {
 // (complex step with the Rust twin as the reference).
 #[test]
 fn finite_zoo_rows_reach_their_findings() {
-    use super::{finite_zoo, zoo_path, FiniteZooModel, ZOO_PROPERTIES};
+    use super::{finite_zoo, zoo_path};
     use tancheck_core::finite::check::run;
-    use tancheck_core::finite::{FiniteModelRoutine, FiniteRoutine, FiniteSettings};
+    use tancheck_core::finite::FiniteSettings;
     use tancheck_core::Verdict;
     let path = zoo_path().build().unwrap();
     for row in finite_zoo() {
-        let mut r: Box<dyn FiniteRoutine> = match row.model {
-            FiniteZooModel::NeoHookean(m) => Box::new(FiniteModelRoutine(m)),
-            FiniteZooModel::Hypo(m) => Box::new(FiniteModelRoutine(m)),
-        };
-        let rep = run(r.as_mut(), &ZOO_PROPERTIES, &[], &path, FiniteSettings::default());
+        let (props, state) = (row.model.properties(), row.model.start_state());
+        let mut r = row.model.routine();
+        let rep = run(r.as_mut(), props, &state, &path, FiniteSettings::default());
         let worst = rep.increments.iter().map(|i| i.error_complex.unwrap()).fold(0.0, f64::max);
         match row.expected {
             None => assert_eq!(rep.verdict, Verdict::Pass, "{}: {worst:e}", row.name),

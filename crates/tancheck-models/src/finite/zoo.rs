@@ -3,9 +3,11 @@
 //! C and Fortran versions of the neo-Hookean rows live under `fortran-shim/examples/`.
 
 use tancheck_core::finite::path::Superposed;
-use tancheck_core::finite::{FinitePathSpec, StressMeasure, TangentMeasure};
+use tancheck_core::finite::{
+    FiniteModelRoutine, FinitePathSpec, FiniteRoutine, StressMeasure, TangentMeasure,
+};
 
-use super::{HypoJaumann, NeoHookean, NhFlaw};
+use super::{HypoJaumann, J2Log, NeoHookean, NhFlaw};
 
 /// One row of the finite-strain zoo.
 #[derive(Clone, Debug)]
@@ -21,10 +23,42 @@ pub struct FiniteZooEntry {
 pub enum FiniteZooModel {
     NeoHookean(NeoHookean),
     Hypo(HypoJaumann),
+    J2(J2Log),
 }
 
-/// Properties of every row: E, ν (invented for the zoo).
+impl FiniteZooModel {
+    /// The row's routine (with its complex-step twin).
+    pub fn routine(self) -> Box<dyn FiniteRoutine> {
+        match self {
+            FiniteZooModel::NeoHookean(m) => Box::new(FiniteModelRoutine(m)),
+            FiniteZooModel::Hypo(m) => Box::new(FiniteModelRoutine(m)),
+            FiniteZooModel::J2(m) => Box::new(FiniteModelRoutine(m)),
+        }
+    }
+
+    /// The row's properties: [`ZOO_PROPERTIES`], or [`J2_PROPERTIES`] for the J2 rows.
+    pub fn properties(&self) -> &'static [f64] {
+        match self {
+            FiniteZooModel::J2(_) => &J2_PROPERTIES,
+            _ => &ZOO_PROPERTIES,
+        }
+    }
+
+    /// The state at the start of the path: zeros (the reference configuration).
+    pub fn start_state(&self) -> Vec<f64> {
+        match self {
+            FiniteZooModel::J2(_) => vec![0.0; J2Log::NSTATE],
+            _ => Vec::new(),
+        }
+    }
+}
+
+/// Properties of the elastic rows: E, ν (invented for the zoo).
 pub const ZOO_PROPERTIES: [f64; 2] = [1000.0, 0.3];
+
+/// Properties of the J2 rows: E, ν, σy0, H (invented for the zoo; yield in the first
+/// increment of the zoo path).
+pub const J2_PROPERTIES: [f64; 4] = [1000.0, 0.3, 5.0, 20.0];
 
 /// The path of every row: biaxial stretch (J ≠ 1) with a rigid rotation superposed, so
 /// that every measure differs from every other.
@@ -53,6 +87,16 @@ pub fn finite_zoo() -> Vec<FiniteZooEntry> {
         nh("nh-green-naghdi", Kirchhoff, TauGreenNaghdi, NhFlaw::None, None),
         nh("nh-dp-df", Cauchy, DpDf, NhFlaw::None, None),
         nh("nh-ds-de", Kirchhoff, DsDe, NhFlaw::None, None),
+        FiniteZooEntry {
+            name: "j2-log-sigma-jaumann",
+            model: FiniteZooModel::J2(J2Log::new(Cauchy, SigmaJaumann)),
+            expected: None,
+        },
+        FiniteZooEntry {
+            name: "j2-log-dp-df",
+            model: FiniteZooModel::J2(J2Log::new(Kirchhoff, DpDf)),
+            expected: None,
+        },
         FiniteZooEntry {
             name: "hypo-jaumann",
             model: FiniteZooModel::Hypo(HypoJaumann::new()),

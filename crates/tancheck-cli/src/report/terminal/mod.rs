@@ -68,6 +68,13 @@ impl Reporter for Terminal<'_> {
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         commands::selftest(&mut self.out, report, self.detail, self.palette)
     }
+    fn finite_check(&mut self, report: &tancheck_core::finite::check::FiniteReport) -> io::Result<()> {
+        let (quiet, verbose) = (self.detail == Detail::Quiet, self.detail == Detail::Verbose);
+        super::finite::write_check(&mut self.out, report, quiet, verbose, self.palette)
+    }
+    fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
+        super::finite::write_probes(&mut self.out, report, self.detail == Detail::Quiet, self.palette)
+    }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()
     }

@@ -1,0 +1,270 @@
+//! Views of the finite-strain reports (core's [`FiniteReport`] of a check and
+//! [`FiniteProbeReport`] of the probes): the readable text for the terminal, the HTML page and
+//! the JUnit XML. The reporters of the other modules call these for their `finite_check` and
+//! `finite_probes` methods; the JSON is the report itself under the common envelope.
+
+use std::fmt::Write as _;
+use std::io::{self, Write};
+
+use quick_junit::{NonSuccessKind, Property, Report as JReport, TestCase, TestCaseStatus, TestSuite};
+use tancheck_core::finite::check::FiniteReport;
+use tancheck_core::finite::probe::FiniteProbeReport;
+use tancheck_core::finite::TangentMeasure;
+use tancheck_core::Verdict;
+
+use super::html::{badge, cautions, esc, footer, page};
+use super::sci;
+use super::style::Palette;
+
+/// The verdict word and, after a failure, the finding.
+fn verdict_word(report: &FiniteReport) -> (String, String) {
+    let word =
+        if report.verdict == Verdict::Pass { "PASS".to_string() } else { report.verdict.word().to_string() };
+    (word, report.finding.clone().unwrap_or_default())
+}
+
+/// The readable report of a check. `quiet`: failing increments and the verdict only;
+/// `verbose`: the gradient of every increment too.
+pub fn write_check(
+    out: &mut dyn Write,
+    report: &FiniteReport,
+    quiet: bool,
+    verbose: bool,
+    p: Palette,
+) -> io::Result<()> {
+    let measure = TangentMeasure::parse(&report.tangent_measure).map_or("", |m| m.describe());
+    writeln!(
+        out,
+        "{} {}: {} stress, tangent {} ({measure}), frame {}",
+        p.head("finite-strain check of"),
+        report.routine,
+        report.stress_measure,
+        report.tangent_measure,
+        report.frame
+    )?;
+    if !quiet {
+        writeln!(
+            out,
+            "   numerical tangent: {}central differences on F (step {})",
+            if report.complex_twin { "complex step with the twin (the reference), and " } else { "" },
+            report.settings.central_step
+        )?;
+    }
+    for inc in &report.increments {
+        if quiet && inc.passed {
+            continue;
+        }
+        let cx = inc.error_complex.map_or(String::new(), |e| format!("complex {}, ", sci(e)));
+        let word = if inc.passed { p.pass("ok") } else { p.fail("FAIL") };
+        writeln!(
+            out,
+            "   increment {:>3}: error {cx}central {}  {word}",
+            inc.increment,
+            sci(inc.error_central)
+        )?;
+        if verbose {
+            let g: Vec<String> = inc.gradient.iter().map(|x| format!("{x:.6}")).collect();
+            writeln!(out, "      {}", p.dim(&format!("F (column-major) = [{}]", g.join(", "))))?;
+        }
+        if !inc.passed {
+            if let Some(w) = &inc.worst {
+                writeln!(
+                    out,
+                    "      largest difference at ({}, {}): returned {:.6e}, numerical {:.6e}",
+                    w.row, w.column, w.returned, w.numerical
+                )?;
+            }
+            match &inc.cause {
+                Some(c) => {
+                    writeln!(out, "      cause {}: {} (left error {})", c.name, c.explanation, sci(c.error))?
+                }
+                None => writeln!(out, "      cause: none of the measure confusions explains it")?,
+            }
+        }
+    }
+    if let Some(k) = report.twin_not_safe {
+        writeln!(
+            out,
+            "   {}",
+            p.warn(&format!(
+                "the complex-step twin disagrees with the central differences from increment {k} on: it is \
+                 not complex-step safe, and was set aside"
+            ))
+        )?;
+    }
+    if let Some(f) = &report.fault {
+        writeln!(out, "   fault: {f}")?;
+    }
+    let (word, finding) = verdict_word(report);
+    let finding = if finding.is_empty() { String::new() } else { format!(" ({finding})") };
+    writeln!(
+        out,
+        "verdict: {}{finding}   ({} calls, {} complex)",
+        p.verdict(&word),
+        report.calls,
+        report.complex_calls
+    )?;
+    if !quiet {
+        for c in &report.cautions {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
+    Ok(())
+}
+
+/// The readable report of the probes. `quiet`: failing probes and the verdict only.
+pub fn write_probes(
+    out: &mut dyn Write,
+    report: &FiniteProbeReport,
+    quiet: bool,
+    p: Palette,
+) -> io::Result<()> {
+    writeln!(out, "{} {}", p.head("finite-strain probes of"), report.routine)?;
+    for r in &report.probes {
+        if quiet && r.passed {
+            continue;
+        }
+        let word = if r.passed { p.pass("ok  ") } else { p.fail("FAIL") };
+        writeln!(out, "   {:<20} {word}  {}", r.name, r.summary)?;
+        for d in &r.details {
+            writeln!(out, "      {d}")?;
+        }
+    }
+    let failed = report.probes.iter().filter(|r| !r.passed).count();
+    let word = if failed == 0 { p.pass("PASS") } else { format!("{} ({failed} probes)", p.fail("FAIL")) };
+    writeln!(out, "verdict: {word}")?;
+    if !quiet {
+        for c in &report.cautions {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
+    Ok(())
+}
+
+/// The HTML page of a check: the summary, a table of the increments with their causes.
+pub fn check_page(report: &FiniteReport) -> String {
+    let (word, finding) = verdict_word(report);
+    let mut b = String::new();
+    let _ = writeln!(
+        b,
+        "<header><h1>{}Finite-strain check of <code>{}</code></h1>\n<p class=\"sub\">{} stress, tangent \
+         <code>{}</code>, frame {}</p></header>",
+        badge(&word),
+        esc(&report.routine),
+        esc(&report.stress_measure),
+        esc(&report.tangent_measure),
+        esc(&report.frame)
+    );
+    let measure = TangentMeasure::parse(&report.tangent_measure).map_or("", |m| m.describe());
+    let _ = writeln!(
+        b,
+        "<dl class=\"summary\"><dt>measure</dt><dd>{}</dd><dt>finding</dt><dd>{}</dd><dt>numerical \
+         tangent</dt><dd>{}central differences on F, step {}</dd><dt>calls</dt><dd>{} real, {} complex</dd></dl>",
+        esc(measure),
+        esc(if finding.is_empty() { "none" } else { &finding }),
+        if report.complex_twin { "complex step with the twin (the reference), and " } else { "" },
+        report.settings.central_step,
+        report.calls,
+        report.complex_calls
+    );
+    if let Some(f) = &report.fault {
+        let _ = writeln!(b, "<p><strong>Fault.</strong> {}</p>", esc(f));
+    }
+    b.push_str("<h2>Increments</h2>\n<table>\n<tr><th>increment</th><th>error (complex)</th><th>error (central)</th><th>result</th><th>cause</th></tr>\n");
+    for inc in &report.increments {
+        let cause = inc
+            .cause
+            .as_ref()
+            .map_or(String::new(), |c| format!("<code>{}</code>: {}", esc(&c.name), esc(&c.explanation)));
+        let _ = writeln!(
+            b,
+            "<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td><td>{cause}</td></tr>",
+            inc.increment,
+            inc.error_complex.map_or("-".into(), sci),
+            sci(inc.error_central),
+            badge(if inc.passed { "PASS" } else { "FAIL" })
+        );
+    }
+    b.push_str("</table>\n");
+    b.push_str(&cautions(&report.cautions));
+    b.push_str(&footer(&format!("tancheck {}", env!("CARGO_PKG_VERSION"))));
+    page(&format!("tancheck finite-strain check: {}", report.routine), &b)
+}
+
+/// The HTML page of the probes: a table of the probes with their details.
+pub fn probes_page(report: &FiniteProbeReport) -> String {
+    let mut b = String::new();
+    let _ = writeln!(
+        b,
+        "<header><h1>{}Finite-strain probes of <code>{}</code></h1></header>",
+        badge(if report.passed { "PASS" } else { "FAIL" }),
+        esc(&report.routine)
+    );
+    b.push_str("<table>\n<tr><th>probe</th><th>result</th><th>what it found</th></tr>\n");
+    for r in &report.probes {
+        let details: String = r.details.iter().map(|d| format!("<br>{}", esc(d))).collect();
+        let _ = writeln!(
+            b,
+            "<tr><td><code>{}</code></td><td>{}</td><td>{}{details}</td></tr>",
+            esc(&r.name),
+            badge(if r.passed { "PASS" } else { "FAIL" }),
+            esc(&r.summary)
+        );
+    }
+    b.push_str("</table>\n");
+    b.push_str(&cautions(&report.cautions));
+    b.push_str(&footer(&format!("tancheck {}", env!("CARGO_PKG_VERSION"))));
+    page(&format!("tancheck finite-strain probes: {}", report.routine), &b)
+}
+
+fn failure(message: String) -> TestCaseStatus {
+    let mut s = TestCaseStatus::non_success(NonSuccessKind::Failure);
+    s.set_message(message.clone());
+    s.set_type("tangent-finding");
+    s.set_description(message);
+    s
+}
+
+fn xml(r: &JReport) -> io::Result<String> {
+    super::junit::to_string(r)
+}
+
+/// JUnit XML of a check: a test case per increment, the cause in a failure's message.
+pub fn check_junit(report: &FiniteReport) -> io::Result<String> {
+    let mut suite = TestSuite::new(format!("tancheck finite-strain check {}", report.routine));
+    suite.add_property(Property::new("tangent_measure", report.tangent_measure.as_str()));
+    suite.add_property(Property::new("verdict", report.verdict.word()));
+    for inc in &report.increments {
+        let status = if inc.passed {
+            TestCaseStatus::success()
+        } else {
+            let cause = inc
+                .cause
+                .as_ref()
+                .map_or("unexplained".to_string(), |c| format!("{}: {}", c.name, c.explanation));
+            failure(format!("increment {}: error {} ({cause})", inc.increment, sci(inc.error_central)))
+        };
+        suite.add_test_case(TestCase::new(format!("increment {}", inc.increment), status));
+    }
+    if let Some(f) = &report.fault {
+        let mut s = TestCaseStatus::non_success(NonSuccessKind::Error);
+        s.set_message(f.clone());
+        s.set_type("routine-fault");
+        suite.add_test_case(TestCase::new("routine", s));
+    }
+    let mut r = JReport::new("tancheck");
+    r.add_test_suite(suite);
+    xml(&r)
+}
+
+/// JUnit XML of the probes: a test case per probe.
+pub fn probes_junit(report: &FiniteProbeReport) -> io::Result<String> {
+    let mut suite = TestSuite::new(format!("tancheck finite-strain probes {}", report.routine));
+    for p in &report.probes {
+        let status = if p.passed { TestCaseStatus::success() } else { failure(p.summary.clone()) };
+        suite.add_test_case(TestCase::new(p.name.clone(), status));
+    }
+    let mut r = JReport::new("tancheck");
+    r.add_test_suite(suite);
+    xml(&r)
+}

@@ -1,0 +1,236 @@
+//! `tancheck check` and `tancheck probe` on finite-strain manifests naming C and Fortran
+//! routines, in every tangent measure each routine implements (j2-log: all seven): the neo-Hookean, j2-log and
+//! hypoelastic Jaumann examples pass (exit 0), their flawed variants fail with the cause named
+//! (exit 1), the hypoelastic routine that never applies the rotation increment fails the
+//! probes, and a built-in model given the wrong number of properties is bad input (exit 2).
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use tancheck_testkit::libs::{build_examples, output_text, scratch};
+
+const J2_PROPERTIES: &str = "[1000, 0.3, 5, 20]";
+const ELASTIC: &str = "[1000, 0.3]";
+
+fn c_lib() -> &'static Path {
+    build_examples("finite_cli_c", &["c/finite_nh.c", "c/finite_j2.c", "c/finite_hypo.c"])
+}
+
+fn f_lib() -> &'static Path {
+    build_examples(
+        "finite_cli_f",
+        &["fortran/finite_nh.F90", "fortran/finite_j2.F90", "fortran/finite_hypo.F90"],
+    )
+}
+
+fn tancheck(args: &[&str]) -> (i32, String) {
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).args(args).output().unwrap();
+    (o.status.code().unwrap_or(-1), output_text(&o))
+}
+
+struct Manifest<'a> {
+    lib: &'a Path,
+    symbol: &'a str,
+    stress: &'a str,
+    tangent: &'a str,
+    frame: &'a str,
+    properties: &'a str,
+    states: usize,
+    extra: &'a str,
+}
+
+fn write(dir: &Path, name: &str, m: &Manifest) -> String {
+    let text = format!(
+        r#"{{ "finite": {{ "stress": "{}", "tangent": "{}", "frame": "{}" }},
+           "routine": {{ "library": "{}", "symbol": "{}", "states": {}, "properties": {} }},
+           "path": {{ "shape": "biaxial", "stretch": [1.3, 0.9], "increments": 3,
+                      "rotation": {{ "axis": [1, -0.5, 0.3], "angle": 0.9 }} }}{} }}"#,
+        m.stress,
+        m.tangent,
+        m.frame,
+        m.lib.display(),
+        m.symbol,
+        m.states,
+        m.properties,
+        m.extra
+    );
+    let p: PathBuf = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p.display().to_string()
+}
+
+fn every_measure(lib: &Path, prefix: &str, dir: &Path) {
+    let j2 = |tangent, stress| Manifest {
+        lib,
+        symbol: "",
+        stress,
+        tangent,
+        frame: "none",
+        properties: J2_PROPERTIES,
+        states: 7,
+        extra: r#", "probes": { "tensor_state": [0] }"#,
+    };
+    for (tangent, stress) in [
+        ("tau-jaumann", "kirchhoff"),
+        ("tau-green-naghdi", "cauchy"),
+        ("sigma-jaumann", "cauchy"),
+        ("tau-truesdell", "kirchhoff"),
+        ("sigma-truesdell", "cauchy"),
+        ("dp-df", "cauchy"),
+        ("ds-de", "kirchhoff"),
+    ] {
+        let symbol = format!("{prefix}_j2log");
+        let file =
+            write(dir, &format!("j2-{tangent}.json"), &Manifest { symbol: &symbol, ..j2(tangent, stress) });
+        let (code, out) = tancheck(&["check", &file]);
+        assert_eq!(code, 0, "{symbol} {tangent}: {out}");
+        let (code, out) = tancheck(&["probe", &file]);
+        assert_eq!(code, 0, "{symbol} {tangent} probes: {out}");
+    }
+    for tangent in ["tau-jaumann", "sigma-jaumann", "tau-truesdell", "sigma-truesdell"] {
+        let symbol = format!("{prefix}_nh");
+        let m =
+            Manifest { symbol: &symbol, properties: ELASTIC, states: 0, extra: "", ..j2(tangent, "cauchy") };
+        let file = write(dir, &format!("nh-{tangent}.json"), &m);
+        let (code, out) = tancheck(&["check", &file]);
+        assert_eq!(code, 0, "{symbol} {tangent}: {out}");
+    }
+    // flawed variants: exit 1 with the cause named
+    for (symbol, tangent, stress, cause, j2_family) in [
+        ("j2log_geometric_missing", "dp-df", "kirchhoff", "geometric-terms-missing", true),
+        ("j2log_material_as_spatial", "tau-jaumann", "kirchhoff", "material-as-spatial", true),
+        ("nh_kirchhoff_for_cauchy", "sigma-jaumann", "cauchy", "stress-measure", false),
+        ("nh_extra_over_j", "tau-jaumann", "kirchhoff", "extra-over-j", false),
+    ] {
+        let symbol = format!("{prefix}_{symbol}");
+        let mut m = Manifest { symbol: &symbol, ..j2(tangent, stress) };
+        if !j2_family {
+            (m.properties, m.states, m.extra) = (ELASTIC, 0, "");
+        }
+        let file = write(dir, &format!("{symbol}.json"), &m);
+        let (code, out) = tancheck(&["check", &file]);
+        assert_eq!(code, 1, "{symbol}: {out}");
+        assert!(out.contains(cause), "{symbol}: {out}");
+    }
+    // the hypoelastic routine: objective and oscillating in simple shear; without the rotation
+    // increment it fails the rigid-increment probe
+    for (symbol, want) in [(format!("{prefix}_hypo"), 0), (format!("{prefix}_hypo_no_rotation"), 1)] {
+        let m = Manifest {
+            symbol: &symbol,
+            properties: ELASTIC,
+            states: 0,
+            frame: "jaumann",
+            extra: r#", "probes": { "shear_response": "oscillating" }"#,
+            ..j2("tau-jaumann", "kirchhoff")
+        };
+        let file = write(dir, &format!("{symbol}.json"), &m);
+        let (code, out) = tancheck(&["check", &file]);
+        assert_eq!(code, 0, "{symbol}: {out}");
+        let (code, out) = tancheck(&["probe", &file]);
+        assert_eq!(code, want, "{symbol} probes: {out}");
+        if want == 1 {
+            assert!(out.contains("rotation-increment"), "{out}");
+        }
+    }
+}
+
+#[test]
+fn c_routines_in_every_measure() {
+    every_measure(c_lib(), "c", &scratch("c"));
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn fortran_routines_in_every_measure() {
+    every_measure(f_lib(), "f", &scratch("f"));
+}
+
+// The built-in model j2-log from a manifest: it passes, and a manifest with the properties of
+// an elastic model is bad input naming the file (exit 2).
+#[test]
+fn built_in_j2_log_model() {
+    let dir = scratch("model");
+    let text = |props: &str, states: usize| {
+        format!(
+            r#"{{ "finite": {{ "stress": "cauchy", "tangent": "sigma-jaumann" }},
+               "routine": {{ "model": "j2-log", "states": {states}, "properties": {props} }},
+               "path": {{ "shape": "simple-shear", "amount": 1.0, "increments": 4 }},
+               "probes": {{ "tensor_state": [0] }} }}"#
+        )
+    };
+    let good = dir.join("good.json");
+    std::fs::write(&good, text(J2_PROPERTIES, 7)).unwrap();
+    let bad = dir.join("two-properties.json");
+    std::fs::write(&bad, text(ELASTIC, 7)).unwrap();
+    let (code, out) = tancheck(&["check", good.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    let (code, out) = tancheck(&["probe", good.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    let (code, out) = tancheck(&["check", bad.to_str().unwrap()]);
+    assert_eq!(code, 2, "{out}");
+    assert!(out.contains("two-properties.json") && out.contains("4 properties"), "{out}");
+}
+
+// The finite reports go through the reporters like the point checks: --json writes the
+// enveloped document (kind finite-check / finite-probes) that the shipped schema accepts,
+// --html a page and --junit a test case per increment or probe, -q keeps failing increments
+// only, --color always colours and --color never does not.
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn finite_reports_through_the_reporters() {
+    let dir = scratch("reporters");
+    let lib = f_lib();
+    let m = |symbol: &'static str| Manifest {
+        lib,
+        symbol,
+        stress: "cauchy",
+        tangent: "sigma-jaumann",
+        frame: "none",
+        properties: ELASTIC,
+        states: 0,
+        extra: "",
+    };
+    let good = write(&dir, "good.json", &m("f_nh"));
+    let bad = write(&dir, "bad.json", &m("f_nh_missing_over_j"));
+    let path = |n: &str| dir.join(n).display().to_string();
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(tancheck_testkit::libs::repo_root().join("schema/report.schema.json"))
+            .unwrap(),
+    )
+    .unwrap();
+    let validator = jsonschema::validator_for(&schema).unwrap();
+    let (code, _) = tancheck(&[
+        "check",
+        &bad,
+        "--json",
+        &path("c.json"),
+        "--html",
+        &path("c.html"),
+        "--junit",
+        &path("c.xml"),
+    ]);
+    assert_eq!(code, 1);
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(path("c.json")).unwrap()).unwrap();
+    assert_eq!(v["kind"], "finite-check");
+    assert_eq!(v["finding"], "missing-over-j");
+    assert!(validator.is_valid(&v), "{v}");
+    let html = std::fs::read_to_string(path("c.html")).unwrap();
+    assert!(html.contains("f_nh_missing_over_j") && html.contains("missing-over-j"), "{html}");
+    let xml = std::fs::read_to_string(path("c.xml")).unwrap();
+    assert!(xml.contains("<testcase name=\"increment 1\"") && xml.contains("missing-over-j"), "{xml}");
+    let (code, _) = tancheck(&["probe", &good, "--json", &path("p.json"), "--junit", &path("p.xml")]);
+    assert_eq!(code, 0);
+    let v: serde_json::Value =
+        serde_json::from_str(&std::fs::read_to_string(path("p.json")).unwrap()).unwrap();
+    assert_eq!(v["kind"], "finite-probes");
+    assert!(validator.is_valid(&v), "{v}");
+    assert!(std::fs::read_to_string(path("p.xml")).unwrap().contains("<testcase name=\"stretch-rotate\""));
+    // -q: the failing increments and the verdict, no cautions; a pass prints its verdict only
+    let (_, out) = tancheck(&["check", &good, "-q"]);
+    assert!(out.contains("verdict: PASS") && !out.contains("increment") && !out.contains("caution"), "{out}");
+    let (_, out) = tancheck(&["check", &bad, "--color", "always"]);
+    assert!(out.contains("\u{1b}[") && out.contains("missing-over-j"), "{out}");
+    let (_, out) = tancheck(&["check", &bad, "--color", "never"]);
+    assert!(!out.contains("\u{1b}["), "{out}");
+}
