@@ -17,6 +17,7 @@
 //! by name with [`reference`] or [`AnyModel::new`].
 
 pub mod bimodulus;
+pub mod branches;
 pub mod block;
 mod call;
 pub mod cohesive;

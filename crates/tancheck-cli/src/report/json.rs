@@ -67,4 +67,7 @@ impl Reporter for Json<'_> {
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.put(Kind::Selftest, report)
     }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        self.put(Kind::Explore, report)
+    }
 }

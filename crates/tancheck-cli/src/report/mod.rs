@@ -50,6 +50,10 @@ pub trait Reporter {
     fn selftest(&mut self, _report: &SelftestReport) -> io::Result<()> {
         Ok(())
     }
+    /// What `tancheck explore` found: the signatures reached and each distinct failure.
+    fn explore(&mut self, _report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        Ok(())
+    }
     /// After the last report of a run: flush, close files.
     fn finish(&mut self) -> io::Result<()> {
         Ok(())
@@ -110,6 +114,9 @@ impl Reporter for Fanout<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.each(|r| r.selftest(report))
+    }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        self.each(|r| r.explore(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

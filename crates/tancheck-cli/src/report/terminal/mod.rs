@@ -12,6 +12,7 @@ use super::Reporter;
 
 pub mod check;
 pub mod commands;
+pub mod explore;
 
 pub use check::diagnosis;
 
@@ -63,6 +64,9 @@ impl Reporter for Terminal<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         commands::selftest(&mut self.out, report, self.detail, self.palette)
+    }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        explore::write(&mut self.out, report, self.detail, self.palette)
     }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()
