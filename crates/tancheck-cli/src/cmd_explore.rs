@@ -61,7 +61,8 @@ pub struct ExploreArgs {
 /// The budget of the arguments: the default number of paths when none is given.
 pub fn budget_of(a: &ExploreArgs) -> Budget {
     let paths = a.paths.map(|n| n as usize);
-    let paths = if paths.is_none() && a.calls.is_none() && a.time.is_none() { Some(DEFAULT_PATHS) } else { paths };
+    let paths =
+        if paths.is_none() && a.calls.is_none() && a.time.is_none() { Some(DEFAULT_PATHS) } else { paths };
     Budget { paths, calls: a.calls, seconds: a.time }
 }
 
@@ -155,7 +156,8 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     });
     drop(bar);
     let mut report = result.map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
-    let case_dir = a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
+    let case_dir =
+        a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
     for f in &mut report.findings {
         let Some(s) = &f.shrunk else { continue };
         let Some(l) = &s.located else { continue };

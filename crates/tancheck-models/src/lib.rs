@@ -17,8 +17,8 @@
 //! by name with [`reference`] or [`AnyModel::new`].
 
 pub mod bimodulus;
-pub mod branches;
 pub mod block;
+pub mod branches;
 mod call;
 pub mod cohesive;
 pub mod elastic;

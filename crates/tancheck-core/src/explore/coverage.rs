@@ -15,7 +15,9 @@ use crate::settings::Settings;
 
 /// What one increment did: the reported branch (None when the routine reports none) and the
 /// state variables that changed, as sorted inclusive index ranges.
-#[derive(Clone, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize, schemars::JsonSchema)]
+#[derive(
+    Clone, Debug, PartialEq, Eq, PartialOrd, Ord, Hash, Serialize, Deserialize, schemars::JsonSchema,
+)]
 pub struct Signature {
     pub branch: Option<i32>,
     pub changed: Vec<(u32, u32)>,

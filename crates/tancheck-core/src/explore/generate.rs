@@ -4,7 +4,7 @@
 //! previous direction, a cycle (swings back and forth), a non-proportional turn (the direction
 //! rotating from the previous one towards a new one increment by increment), or a ramp under
 //! mixed control (some stress components held, at zero or at a value within the stress scale).
-//! Segment amplitudes are log-uniform from 0.1 to 15 times the strain scale, spread over 1 to
+//! Segment amplitudes are log-uniform from 0.1 to 25 times the strain scale, spread over 1 to
 //! 10 increments, with tiny increments (1e-6 to 1e-3 of the scale) mixed in: increment sizes
 //! span about seven decades. Temperature increments keep the temperature inside its window;
 //! time increments are 1 or log-uniform from 1e-4 to 1e2.
@@ -111,7 +111,7 @@ impl Builder<'_> {
 
     fn add_segment(&mut self, rng: &mut Rng) {
         let s = self.space.strain;
-        let amp = s * rng.log_range(0.1, 15.0);
+        let amp = s * rng.log_range(0.1, 25.0);
         let n = rng.between(1, 10);
         let dtime = if rng.chance(0.7) { 1.0 } else { rng.log_range(1e-4, 1e2) };
         let kind = rng.below(5);
@@ -157,8 +157,11 @@ impl Builder<'_> {
                 let mut hold = [None; 6];
                 for &k in &self.space.slots {
                     if k != free && rng.chance(0.6) {
-                        hold[k] =
-                            Some(if rng.chance(0.7) { 0.0 } else { rng.range(-0.8, 0.8) * self.space.stress });
+                        hold[k] = Some(if rng.chance(0.7) {
+                            0.0
+                        } else {
+                            rng.range(-0.8, 0.8) * self.space.stress
+                        });
                     }
                 }
                 if hold.iter().all(Option::is_none) {
@@ -219,7 +222,7 @@ pub fn mutate(space: &Space, rng: &mut Rng, parent: &Path, name: String) -> Path
         // Reverse the last increment's direction, far.
         0 if last != [0.0; 6] => {
             let d = last.map(|x| -x);
-            let amp = space.strain * rng.log_range(1.0, 20.0);
+            let amp = space.strain * rng.log_range(1.0, 30.0);
             let n = rng.between(1, 6);
             b.segment(rng, n, amp, &|_| d, 1.0, None);
             b.last = d;
@@ -287,7 +290,8 @@ mod tests {
             let m = mutate(&s, &mut rng, &p, format!("m{k}"));
             m.validate().unwrap();
         }
-        for (what, n) in [("held", held), ("heated", heated), ("reversed", reversed), ("tiny", tiny), ("large", large)]
+        for (what, n) in
+            [("held", held), ("heated", heated), ("reversed", reversed), ("tiny", tiny), ("large", large)]
         {
             assert!(n > 20, "{what}: only {n}");
         }

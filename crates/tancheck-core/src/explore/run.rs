@@ -122,6 +122,8 @@ type Key = (Verdict, String, String);
 
 fn key_of(r: &Report) -> Key {
     match first_failure(r) {
+        // A fault's message holds numbers of its call: every fault is one kind of failure.
+        Some(f) if f.fault.is_some() => (r.verdict, "routine-fault".into(), "a faulted call".into()),
         Some(f) => (r.verdict, f.finding().to_string(), f.branch_label()),
         None => (r.verdict, r.finding(), "increment 0".into()),
     }
@@ -296,8 +298,16 @@ pub fn run(
         .unwrap_or(Verdict::Pass);
     let routine = match routine {
         Some(r) => r,
-        None => check::run(caller, props, start.clone(), &Path::ramp(crate::Shape::UniaxialStrain, 1e-9, 1, 0), &quick)?
-            .routine,
+        None => {
+            check::run(
+                caller,
+                props,
+                start.clone(),
+                &Path::ramp(crate::Shape::UniaxialStrain, 1e-9, 1, 0),
+                &quick,
+            )?
+            .routine
+        }
     };
     Ok(ExploreReport {
         tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),

@@ -68,7 +68,8 @@ fn limit_along(driver: &mut Driver, caller: &mut Caller<'_>, d: &[f64; 6]) -> Op
         // Already inelastic at the smallest increment (e.g. a start on the yield surface).
         return Some((1e-7, 0.0));
     }
-    let elastic = |r: &Option<(i32, bool, Vec<f64>, Vec<f64>)>| matches!(r, Some((b, false, ..)) if *b == branch0);
+    let elastic =
+        |r: &Option<(i32, bool, Vec<f64>, Vec<f64>)>| matches!(r, Some((b, false, ..)) if *b == branch0);
     let mut lo = 1e-7;
     let mut hi = None;
     let mut s = 2e-7;

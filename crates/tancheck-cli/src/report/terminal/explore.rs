@@ -128,7 +128,9 @@ pub fn write(out: &mut dyn Write, r: &ExploreReport, detail: Detail, p: Palette)
             }
             if let Some(l) = &s.located {
                 let inside = match &l.inside {
-                    Inside::Crossing(c) => format!("; the error takes its class at {:.6} of it", c.fraction()),
+                    Inside::Crossing(c) => {
+                        format!("; the error takes its class at {:.6} of it", c.fraction())
+                    }
                     Inside::Throughout { .. } => String::new(),
                 };
                 writeln!(out, "       fails at increment {} ({}){inside}", l.increment, l.finding)?;
