@@ -203,6 +203,42 @@ fn the_same_seed_gives_the_same_report() {
     assert_eq!(c1, c2);
     assert!(!a["findings"].as_array().unwrap().is_empty(), "{a:#}");
     assert_eq!(without_time(a.clone()), without_time(b), "two runs of seed 99 differ");
+    // The HTML page and the JUnit XML of the same run name the failures.
+    let (html, junit) = (d.join("explore.html"), d.join("explore.xml"));
+    let o = bin()
+        .arg("explore")
+        .arg(&m)
+        .args(args)
+        .arg("-q")
+        .arg("--html")
+        .arg(&html)
+        .arg("--junit")
+        .arg(&junit)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(c1), "{}", text(&o));
+    let page = std::fs::read_to_string(&html).unwrap();
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    for f in a["findings"].as_array().unwrap() {
+        let name = f["finding"].as_str().unwrap();
+        assert!(page.contains(name) && xml.contains(&format!("name=\"{name} in ")), "{name}: {xml}");
+    }
+    assert!(page.contains("seed 99") && page.contains("Caution"), "{page}");
+    let mut reader = quick_xml::Reader::from_str(&xml);
+    let mut failures = 0;
+    loop {
+        match reader.read_event().unwrap() {
+            quick_xml::events::Event::Eof => break,
+            quick_xml::events::Event::Start(e) | quick_xml::events::Event::Empty(e)
+                if e.name().as_ref() == b"failure" =>
+            {
+                failures += 1
+            }
+            _ => {}
+        }
+    }
+    // One failure per finding, and the verdict's.
+    assert_eq!(failures, a["findings"].as_array().unwrap().len() + 1, "{xml}");
     // Another seed explores other paths.
     let (_, c) = explore(&m, &["--seed", "100", "--paths", "25", "--max-shrink-iterations", "60"]);
     assert_ne!(a["reached"], c["reached"]);

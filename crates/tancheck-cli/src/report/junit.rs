@@ -15,7 +15,7 @@ use tancheck_core::{Report, Verdict};
 /// The XML of a report. quick-junit writes a `skipped` count on the root `testsuites`
 /// element, which the JUnit schema CI dashboards read (see tests/junit_report.rs) does not
 /// declare there (it is declared on each `testsuite`, where it stays): it is left out.
-fn to_string(r: &JReport) -> io::Result<String> {
+pub(crate) fn to_string(r: &JReport) -> io::Result<String> {
     let xml = r.to_string().map_err(io::Error::other)?;
     Ok(drop_root_skipped(&xml))
 }
@@ -30,7 +30,7 @@ fn drop_root_skipped(xml: &str) -> String {
     format!("{}{}", &xml[..cut.start], &xml[cut.end..])
 }
 
-fn failure(message: String, kind: NonSuccessKind, description: Option<String>) -> TestCaseStatus {
+pub(crate) fn failure(message: String, kind: NonSuccessKind, description: Option<String>) -> TestCaseStatus {
     let mut s = TestCaseStatus::non_success(kind);
     s.set_message(message.clone());
     s.set_type(match kind {

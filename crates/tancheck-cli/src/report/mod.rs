@@ -10,6 +10,7 @@ use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
 pub mod block;
+pub mod explore_pages;
 pub mod files;
 pub mod html;
 pub mod json;

@@ -60,6 +60,11 @@ impl Reporter for Pages {
         Ok(())
     }
 
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        write(self.html.as_deref(), "the HTML report", || Ok(super::explore_pages::explore_page(report)))?;
+        write(self.junit.as_deref(), "the JUnit report", || super::explore_pages::explore_junit(report))
+    }
+
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;
         write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&report.rows, &report.tool)))
