@@ -119,6 +119,7 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     }
     crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
+    crate::survive::progress_lines(!a.output.quiet);
     m.fp_traps |= a.fp_traps;
     let mut ex = ExploreSettings {
         seed: a.seed,
