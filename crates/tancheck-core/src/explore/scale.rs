@@ -3,8 +3,9 @@
 //!
 //! From the start state, single calls along a few directions (each active component alone,
 //! and all of them together) with strain increments growing by factors of two from 1e-7 to 1
-//! find the first increment whose call changes the state variables or reports another branch
-//! than the smallest one did (or fails); bisection narrows it to 1 %. The smallest of these
+//! find the first increment whose call reports another branch than the smallest one did (or,
+//! for a routine that reports no branch or never another, changes the state variables; or
+//! fails); bisection narrows it to 1 %. The smallest of these
 //! limits is the strain scale of the paths, and the stress of that call their stress scale
 //! (for held stresses). No yield stress or modulus is read from the properties: a routine of
 //! any law with any property layout is measured the same way.
@@ -59,17 +60,28 @@ fn probe(
     Some((b.outcome.branch, changed, b.stress.clone(), b.state.clone()))
 }
 
-/// The elastic limit along `d`: the smallest s (to 1 %) whose call leaves the branch of the
-/// smallest increment or changes the state; with the largest stress there. None when s = 1
-/// is still elastic.
-fn limit_along(driver: &mut Driver, caller: &mut Caller<'_>, d: &[f64; 6]) -> Option<(f64, f64)> {
+/// How the end of the elastic range shows.
+#[derive(Clone, Copy, PartialEq, Eq)]
+enum Sign {
+    /// The routine reports another branch than at the smallest increment.
+    Branch,
+    /// The state variables change.
+    State,
+}
+
+/// The elastic limit along `d`: the smallest s (to 1 %) whose call shows `sign` (or fails);
+/// with the largest stress just below it. None when s = 1 still does not, or when the
+/// smallest increment already does (no elastic range to measure from this start).
+fn limit_along(driver: &mut Driver, caller: &mut Caller<'_>, d: &[f64; 6], sign: Sign) -> Option<(f64, f64)> {
     let (branch0, changed0, ..) = probe(driver, caller, d, 1e-7, 0.0)?;
-    if changed0 {
-        // Already inelastic at the smallest increment (e.g. a start on the yield surface).
-        return Some((1e-7, 0.0));
+    if sign == Sign::State && changed0 {
+        return None;
     }
-    let elastic =
-        |r: &Option<(i32, bool, Vec<f64>, Vec<f64>)>| matches!(r, Some((b, false, ..)) if *b == branch0);
+    let elastic = |r: &Option<(i32, bool, Vec<f64>, Vec<f64>)>| match (r, sign) {
+        (Some((b, _, ..)), Sign::Branch) => *b == branch0,
+        (Some((_, changed, ..)), Sign::State) => !changed,
+        (None, _) => false,
+    };
     let mut lo = 1e-7;
     let mut hi = None;
     let mut s = 2e-7;
@@ -123,13 +135,22 @@ pub fn measure(
         }
         directions.push(d);
     }
+    // A routine that reports branches ends its elastic range where the branch changes (its
+    // state may change before, e.g. a largest failure measure kept from the first increment);
+    // one that reports none, or whose branch never changes, where the state changes.
+    let reports = probe(&mut driver, caller, &directions[0], 1e-7, 0.0).is_some_and(|(b, ..)| b >= 0);
     let mut best: Option<(f64, f64)> = None;
     let mut best_dir = directions[0];
-    for d in &directions {
-        if let Some((s, stress)) = limit_along(&mut driver, caller, d) {
-            if best.is_none_or(|(b, _)| s < b) {
-                best = Some((s, stress));
-                best_dir = *d;
+    for sign in [Sign::Branch, Sign::State] {
+        if (sign == Sign::Branch && !reports) || best.is_some() {
+            continue;
+        }
+        for d in &directions {
+            if let Some((s, stress)) = limit_along(&mut driver, caller, d, sign) {
+                if best.is_none_or(|(b, _)| s < b) {
+                    best = Some((s, stress));
+                    best_dir = *d;
+                }
             }
         }
     }
