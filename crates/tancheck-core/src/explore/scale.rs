@@ -78,7 +78,7 @@ fn limit_along(driver: &mut Driver, caller: &mut Caller<'_>, d: &[f64; 6], sign:
         return None;
     }
     let elastic = |r: &Option<(i32, bool, Vec<f64>, Vec<f64>)>| match (r, sign) {
-        (Some((b, _, ..)), Sign::Branch) => *b == branch0,
+        (Some((b, ..)), Sign::Branch) => *b == branch0,
         (Some((_, changed, ..)), Sign::State) => !changed,
         (None, _) => false,
     };
