@@ -38,6 +38,9 @@ enum Command {
     /// Point at the first failure: increment, branch, fraction of the increment; shrink the
     /// path and write the failing calls as case files.
     Bisect(crate::cmd_bisect::BisectArgs),
+    /// Check random load paths from a seed, steered towards branches and state changes not
+    /// reached yet; shrink every distinct failure into a case file.
+    Explore(crate::cmd_explore::ExploreArgs),
     /// Rerun the call saved in a case file and print its outputs and check.
     Replay(crate::cmd_replay::ReplayArgs),
     /// Run a campaign: every routine of a campaign file (or a folder of manifests) with its
@@ -205,6 +208,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Probe(a) => cmd_probe(a),
         Command::Bisect(a) => crate::cmd_bisect::run(&a),
         Command::Replay(a) => crate::cmd_replay::run(&a),
+        Command::Explore(a) => crate::cmd_explore::run(&a),
         Command::Demo(a) => crate::demo::run(&a),
         Command::Models { quiet } => cmd_models(quiet),
         Command::Selftest(a) => crate::selftest::run_with(&a.output, a.json.as_deref()),

@@ -41,6 +41,9 @@ pub struct Manifest {
     /// Settings of a block routine's check (with `routine.interface: "block"`).
     #[serde(default)]
     pub block: Option<crate::block_manifest::BlockSpec>,
+    /// What `tancheck explore` may vary (property ranges, temperatures) and should reach.
+    #[serde(default)]
+    pub explore: Option<crate::explore_manifest::ExploreSpec>,
 }
 
 /// Guard level of a manifest.
@@ -197,6 +200,7 @@ impl Manifest {
         self.convention()?;
         crate::block_manifest::validate(self.routine.interface, self.routine.kind, self.block.as_ref())?;
         self.check.validate().map_err(|e| e.to_string())?;
+        crate::explore_manifest::validate(self.explore.as_ref(), r.properties.len(), MAX_TEMPERATURE)?;
         self.path_or(Path { name: String::new(), increments: Vec::new() })?;
         Ok(())
     }

@@ -38,6 +38,13 @@ static TOOL_STDOUT: OnceLock<Option<i32>> = OnceLock::new();
 static CHECKING: AtomicBool = AtomicBool::new(false);
 static ARMED: AtomicBool = AtomicBool::new(false);
 static WATCHDOG: OnceLock<()> = OnceLock::new();
+/// Whether the watchdog prints its "still checking" lines (off under -q).
+static PROGRESS_LINES: AtomicBool = AtomicBool::new(true);
+
+/// Let the watchdog print its "still checking" lines on standard error, or not (a quiet run).
+pub fn progress_lines(on: bool) {
+    PROGRESS_LINES.store(on, Ordering::SeqCst);
+}
 
 /// Arm the watch and protect standard output. Call once, first thing in `main`.
 pub fn init() {
@@ -269,7 +276,7 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
                 );
             }
         }
-        if now >= next_progress {
+        if now >= next_progress && PROGRESS_LINES.load(Ordering::SeqCst) {
             next_progress = now + every;
             let running = match seen {
                 Some((_, since)) => {

@@ -82,6 +82,20 @@ pub enum CoreError {
     #[error("the time limit of a shrink must be positive, got {0}")]
     ShrinkTime(f64),
 
+    // --- exploration ---
+    /// A declared property range that cannot be sampled.
+    #[error("property range {index}: {reason}")]
+    PropertyRange { index: usize, reason: String },
+
+    #[error("an exploration needs a budget: give a number of paths, of calls, or seconds")]
+    NoBudget,
+
+    #[error("{what} must be at least 1, got {given}")]
+    TooSmall { what: &'static str, given: usize },
+
+    #[error("the temperature window must be two finite numbers, the first below the second, got [{0}, {1}]")]
+    TemperatureWindow(f64, f64),
+
     // --- sizes of a routine's inputs ---
     #[error("{given} properties given; the routine is declared with {declared}")]
     PropertyCount { given: usize, declared: usize },

@@ -17,6 +17,7 @@ pub mod convention_fit;
 pub mod diagnose;
 pub mod driver;
 pub mod error;
+pub mod explore;
 pub mod finite;
 pub mod first_calls;
 pub mod increment;

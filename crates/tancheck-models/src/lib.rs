@@ -18,6 +18,7 @@
 
 pub mod bimodulus;
 pub mod block;
+pub mod branches;
 mod call;
 pub mod cohesive;
 pub mod elastic;

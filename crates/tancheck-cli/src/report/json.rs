@@ -84,4 +84,7 @@ impl Reporter for Json<'_> {
     fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
         self.put(Kind::FiniteProbes, report)
     }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        self.put(Kind::Explore, report)
+    }
 }

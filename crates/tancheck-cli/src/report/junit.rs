@@ -35,7 +35,7 @@ fn drop_root_skipped(xml: &str) -> String {
     format!("{}{}", &xml[..cut.start], &xml[cut.end..])
 }
 
-fn failure(message: String, kind: NonSuccessKind, description: Option<String>) -> TestCaseStatus {
+pub(crate) fn failure(message: String, kind: NonSuccessKind, description: Option<String>) -> TestCaseStatus {
     let mut s = TestCaseStatus::non_success(kind);
     s.set_message(message.clone());
     s.set_type(match kind {

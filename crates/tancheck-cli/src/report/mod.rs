@@ -14,6 +14,7 @@ use tancheck_core::Report;
 pub mod block;
 pub mod campaign;
 pub mod campaign_pages;
+pub mod explore_pages;
 pub mod files;
 pub mod finite;
 pub mod html;
@@ -65,6 +66,10 @@ pub trait Reporter {
     }
     /// The finite-strain probes (`tancheck probe` on a finite manifest).
     fn finite_probes(&mut self, _report: &FiniteProbeReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// What `tancheck explore` found: the signatures reached and each distinct failure.
+    fn explore(&mut self, _report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -136,6 +141,9 @@ impl Reporter for Fanout<'_> {
     }
     fn finite_probes(&mut self, report: &FiniteProbeReport) -> io::Result<()> {
         self.each(|r| r.finite_probes(report))
+    }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        self.each(|r| r.explore(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

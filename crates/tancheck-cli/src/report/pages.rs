@@ -74,6 +74,10 @@ impl Reporter for Pages {
         write(self.html.as_deref(), "the HTML report", || Ok(super::finite::probes_page(report)))?;
         write(self.junit.as_deref(), "the JUnit report", || super::finite::probes_junit(report))
     }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        write(self.html.as_deref(), "the HTML report", || Ok(super::explore_pages::explore_page(report)))?;
+        write(self.junit.as_deref(), "the JUnit report", || super::explore_pages::explore_junit(report))
+    }
 
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;

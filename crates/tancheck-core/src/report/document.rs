@@ -26,6 +26,7 @@ pub enum Kind {
     FiniteCheck,
     /// The finite-strain probes.
     FiniteProbes,
+    Explore,
 }
 
 impl Kind {
@@ -39,6 +40,7 @@ impl Kind {
             Kind::Selftest => "selftest",
             Kind::FiniteCheck => "finite-check",
             Kind::FiniteProbes => "finite-probes",
+            Kind::Explore => "explore",
         }
     }
 }

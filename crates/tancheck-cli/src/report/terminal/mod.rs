@@ -13,6 +13,7 @@ use super::Reporter;
 pub mod campaign;
 pub mod check;
 pub mod commands;
+pub mod explore;
 
 pub use check::diagnosis;
 
@@ -74,6 +75,9 @@ impl Reporter for Terminal<'_> {
     }
     fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
         super::finite::write_probes(&mut self.out, report, self.detail == Detail::Quiet, self.palette)
+    }
+    fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        explore::write(&mut self.out, report, self.detail, self.palette)
     }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()
