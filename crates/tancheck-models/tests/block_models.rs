@@ -224,8 +224,52 @@ fn each_johnson_cook_flaw_is_caught_with_its_finding() {
         (JcBlockFlaw::Revived, "deleted-point-revived"),
         (JcBlockFlaw::UnguardedRate, "zero-rate-not-finite"),
         (JcBlockFlaw::WrongTemperature, "elastic-response-mismatch"),
+        (JcBlockFlaw::DeletedStress, "deleted-point-stress"),
     ] {
         let r = check_jc(flaw);
         assert_eq!(r.finding(), finding, "{flaw:?}: {:#?}", r.findings);
     }
+}
+
+/// The same path below the room temperature (250 K with T_r 293 K): the homologous temperature
+/// is negative, and Johnson & Cook's thermal factor 1 − T*ᵐ is defined for T* ≥ 0 only (the
+/// model takes 1 below it).
+fn check_jc_cold(flaw: JcBlockFlaw) -> block::BlockReport {
+    let mut r =
+        tancheck_core::block::BlockModelRoutine(JcBlock::with_flaw(PointKind::Solid3d, flaw).unwrap());
+    block::run(&mut r, &steel(0.9, 0.3), &jc_path(), &jc_settings(250.0)).unwrap()
+}
+
+#[test]
+fn below_the_room_temperature_the_correct_block_passes_and_the_unclipped_one_is_not_finite() {
+    let r = check_jc_cold(JcBlockFlaw::None);
+    assert!(r.passed(), "{:#?}\n{:#?}", r.findings, r.notes);
+    let r = check_jc_cold(JcBlockFlaw::UnclippedTemperature);
+    assert_eq!(r.finding(), "non-finite-stiffness", "{:#?}", r.findings);
+    // The first increment yields already (ε11 0.01 per increment).
+    assert_eq!(r.findings[0].increment, Some(1), "{:#?}", r.findings);
+}
+
+/// A residual stress the routine declares is allowed on deleted points, no more: the flawed
+/// routine that keeps 1 % of the stress passes when that much is declared and is caught below
+/// it.
+#[test]
+fn a_declared_residual_stress_of_deleted_points_is_the_bound() {
+    let run = |residual: f64| {
+        let mut r = tancheck_core::block::BlockModelRoutine(
+            JcBlock::with_flaw(PointKind::Solid3d, JcBlockFlaw::DeletedStress).unwrap(),
+        );
+        let s = BlockSettings { deleted_stress: residual, ..jc_settings(500.0) };
+        block::run(&mut r, &steel(0.9, 0.3), &jc_path(), &s).unwrap()
+    };
+    let caught = run(0.0);
+    let what = &caught.findings[0].what;
+    let kept: f64 = what
+        .split_whitespace()
+        .find_map(|w| w.parse::<f64>().ok())
+        .unwrap_or_else(|| panic!("no stress in {what}"));
+    assert!(kept > 0.0);
+    assert!(!run(0.5 * kept).passed());
+    let r = run(10.0 * kept);
+    assert!(!r.has("deleted-point-stress"), "{:#?}", r.findings);
 }

@@ -262,7 +262,9 @@ pub fn walk_one_point(
                 return;
             }
         };
-        let best = if twin {
+        // A non-finite difference quotient is what a solver without the twin sees: reported
+        // as it is, whatever the twin says.
+        let best = if twin && fd.iter().all(|x| x.is_finite()) {
             match cs_tangent(routine, properties, &b, &mut cx, *dt, inc, report) {
                 Ok(d) => {
                     let diff: Vec<f64> = d.iter().zip(&fd).map(|(a, b)| a - b).collect();

@@ -22,15 +22,21 @@ use tancheck_core::{PointKind, Scalar};
 use crate::ModelError;
 
 /// Names of the block models, as [`by_name`] accepts them.
-pub const NAMES: [&str; 8] = [
+pub const NAMES: [&str; 14] = [
     J2Block::NAME,
     J2Block::NEIGHBOUR_NAME,
     J2Block::OLD_STRESS_ENERGY_NAME,
     J2Block::DISSIPATION_SIGN_NAME,
+    J2Block::TOTAL_BACK_STRESS_NAME,
+    J2Block::CORRECTOR_SIGN_NAME,
+    J2Block::DOUBLE_CORRECTION_NAME,
+    J2Block::MIDPOINT_NAME,
     JcBlock::NAME,
     JcBlock::REVIVED_NAME,
     JcBlock::UNGUARDED_RATE_NAME,
     JcBlock::WRONG_TEMPERATURE_NAME,
+    JcBlock::DELETED_STRESS_NAME,
+    JcBlock::UNCLIPPED_TEMPERATURE_NAME,
 ];
 
 /// The block model called `name` for a kind of point, as a block routine with its twin; `None`
