@@ -9,6 +9,9 @@
  *   c_jc_block_unguarded_rate      rate factor 1 + C ln(rate*) of the total strain rate, folded
  *                                  into A and B, without the floor: ln 0 at a zero rate
  *   c_jc_block_wrong_temperature   the elastic response (wave speed) from E at room temperature
+ *   c_jc_block_deleted_stress      a deleted point freezes its last stress instead of zero
+ *   c_jc_block_unclipped_temperature  the thermal factor 1 - T*^m on a yielding point's stress
+ *                                  without the clip at T* = 0: NaN below the room temperature
  *
  * Every point is updated by the point routine's jc_update (jc.c, which this file includes, so
  * the library also exports c_jc and c_jc_no_rate_term: do not link it together with jc.c).
@@ -28,7 +31,14 @@
 
 #define JCB_NPROP (JC_NPROP + 3)
 
-typedef enum { JCB_CORRECT, JCB_REVIVED, JCB_UNGUARDED_RATE, JCB_WRONG_TEMPERATURE } jcb_flaw;
+typedef enum {
+    JCB_CORRECT,
+    JCB_REVIVED,
+    JCB_UNGUARDED_RATE,
+    JCB_WRONG_TEMPERATURE,
+    JCB_DELETED_STRESS,
+    JCB_UNCLIPPED_TEMPERATURE
+} jcb_flaw;
 
 static void jcb_fail(tc_block_report *report, int p, const char *text)
 {
@@ -114,7 +124,7 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
             old = revived;
         }
         if (was_deleted) {
-            for (int i = 0; i < n; ++i) s[i] = 0.0;
+            for (int i = 0; i < n; ++i) s[i] = flaw == JCB_DELETED_STRESS ? s0[i] : 0.0;
             for (int k = 0; k < ns; ++k) st[k] = old[k];
             energy[p] = energy_start[p];
             deleted[p] = 1;
@@ -159,6 +169,16 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
             }
         }
         for (int i = 0; i < n; ++i) s[i] *= 1.0 - d;
+        if (flaw == JCB_UNCLIPPED_TEMPERATURE && tc_re(st[i_ebar]) > tc_re(old[i_ebar])) {
+            const double ts = (c.temperature - tc_re(properties[7])) / (tc_re(properties[8]) - tc_re(properties[7]));
+            if (ts < 0.0) {
+                const double factor = 1.0 - pow(ts, tc_re(properties[6]));
+                for (int i = 0; i < n; ++i) s[i] *= factor;
+            }
+        }
+        if (flaw == JCB_DELETED_STRESS && now_deleted) {
+            for (int i = 0; i < n; ++i) s[i] = s0[i];
+        }
         st[i_d] = d;
         st[i_sy0] = sy0;
         st[i_u] = u;
@@ -186,3 +206,5 @@ JC_BLOCK_VARIANT(c_jc_block, JCB_CORRECT)
 JC_BLOCK_VARIANT(c_jc_block_revived, JCB_REVIVED)
 JC_BLOCK_VARIANT(c_jc_block_unguarded_rate, JCB_UNGUARDED_RATE)
 JC_BLOCK_VARIANT(c_jc_block_wrong_temperature, JCB_WRONG_TEMPERATURE)
+JC_BLOCK_VARIANT(c_jc_block_deleted_stress, JCB_DELETED_STRESS)
+JC_BLOCK_VARIANT(c_jc_block_unclipped_temperature, JCB_UNCLIPPED_TEMPERATURE)
