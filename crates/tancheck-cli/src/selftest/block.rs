@@ -122,7 +122,7 @@ const JC_ROWS: [BlockRow; 7] = [
     ),
     ("johnson-cook-block (250 K)", "johnson-cook-block", "jc_block", "none", jc_cold_check),
     (
-        "johnson-cook-block-unclipped-temperature (250 K)",
+        "johnson-cook-block-unclipped-temperature",
         "johnson-cook-block-unclipped-temperature",
         "jc_block_unclipped_temperature",
         "non-finite-stiffness",
