@@ -319,7 +319,15 @@ pub fn walk_one_point(
             && b.energy[0].dissipated.is_finite();
         if !finite {
             let what = first_non_finite(&b);
-            report.add(BlockCheck::Call, "non-finite-output", Some(index), what);
+            match deleted_at {
+                Some(at) => report.add(
+                    BlockCheck::Deletion,
+                    "deleted-point-not-finite",
+                    Some(index),
+                    format!("the point was deleted in increment {at}; now {what}"),
+                ),
+                None => report.add(BlockCheck::Call, "non-finite-output", Some(index), what),
+            }
             return;
         }
         row.work = match s.energy_rule {
