@@ -67,4 +67,7 @@ impl Reporter for Json<'_> {
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.put(Kind::Selftest, report)
     }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        self.put(Kind::Block, &super::block::BlockDocument::of(report))
+    }
 }

@@ -51,6 +51,10 @@ pub trait Reporter {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
+    /// The checks of a block routine (explicit dynamics).
+    fn block(&mut self, _report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        Ok(())
+    }
     fn finish(&mut self) -> io::Result<()> {
         Ok(())
     }
@@ -110,6 +114,9 @@ impl Reporter for Fanout<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.each(|r| r.selftest(report))
+    }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        self.each(|r| r.block(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

@@ -31,13 +31,14 @@ enum Body {
     Replay(ReplayReport),
     Cases(CaseFolderResult),
     Selftest(SelftestReport),
+    Block(super::block::BlockDocument),
 }
 
 /// A tancheck report file.
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, block) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {

@@ -22,6 +22,8 @@ pub enum Kind {
     Replay,
     Cases,
     Selftest,
+    /// The checks of a block routine (explicit dynamics).
+    Block,
 }
 
 impl Kind {
@@ -33,6 +35,7 @@ impl Kind {
             Kind::Replay => "replay",
             Kind::Cases => "cases",
             Kind::Selftest => "selftest",
+            Kind::Block => "block",
         }
     }
 }
