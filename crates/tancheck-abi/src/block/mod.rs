@@ -5,7 +5,9 @@
 use std::ffi::CString;
 
 use num_complex::Complex64;
-use tancheck_core::block::{BlockCall, BlockInfo, BlockInput, BlockOutput, BlockRoutine, BLOCK_ABI_VERSION};
+use tancheck_core::block::{
+    block_status, BlockCall, BlockInfo, BlockInput, BlockOutput, BlockRoutine, BLOCK_ABI_VERSION,
+};
 use tancheck_core::Fault;
 
 use crate::error::LoadError;
@@ -184,14 +186,73 @@ fn call_with<S: Element>(
         unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
         return Ok(None);
     }
+    guards.set_poison(0, None);
+    let found = guarded_once(f, complex, guards, label, fp_traps, call, i, o)?;
+    if level != GuardLevel::Full || found.is_some() || o.outcome.status != block_status::OK {
+        return Ok(found);
+    }
+    // Full: again with the other poison after every read-only array; outputs that change read
+    // past an end. Only when they do: one zone at a time names the array, and a repeat with the
+    // first poison tells it from a routine that does not repeat itself.
+    guards.save();
+    guards.set_poison(1, None);
+    if let Some(w) = guarded_once(f, complex, guards, label, fp_traps, call, i, o)? {
+        return Ok(Some(w));
+    }
+    if guards.same_as_saved() {
+        return Ok(None);
+    }
+    guards.set_poison(0, None);
+    guarded_once(f, complex, guards, label, fp_traps, call, i, o)?;
+    if !guards.same_as_saved() {
+        return Ok(Some(
+            "returned other outputs for the same inputs in two calls in a row: it keeps something of its own \
+             between calls (a saved variable, an uninitialised local) that the solver does not pass in"
+                .into(),
+        ));
+    }
+    for k in 0..=guards::N_INPUTS {
+        guards.set_poison(1, Some(k));
+        guarded_once(f, complex, guards, label, fp_traps, call, i, o)?;
+        if !guards.same_as_saved() {
+            let name = guards::NAMES.get(k).copied().unwrap_or("conditions");
+            guards.set_poison(0, None);
+            guarded_once(f, complex, guards, label, fp_traps, call, i, o)?;
+            return Ok(Some(format!(
+                "reads past the end of its read-only input {name}: its outputs change with the values after \
+                 the last entry; check the loop bounds and npoints, ncomp, nstate of tc_block"
+            )));
+        }
+    }
+    guards.set_poison(0, None);
+    guarded_once(f, complex, guards, label, fp_traps, call, i, o)?;
+    Ok(Some(
+        "reads past the end of its read-only inputs: its outputs change with the values after them".into(),
+    ))
+}
+
+/// One call through the memory guards with the poison set in `guards`.
+#[allow(clippy::too_many_arguments)]
+fn guarded_once<S: Element>(
+    f: BlockFn,
+    complex: bool,
+    guards: &mut BlockGuards<S>,
+    label: &CString,
+    fp_traps: bool,
+    call: &BlockCall,
+    i: &BlockInput<'_, S>,
+    o: &mut BlockOutput<'_, S>,
+) -> Result<Option<String>, Fault> {
+    o.outcome.reset();
     let sent = *call;
     let mut args = guards.load(i, o);
     let guarded_call = *call;
     args.block = &guarded_call;
     args.label = label.as_ptr();
     args.fp_traps = i32::from(fp_traps);
-    // SAFETY: as above; the guarded buffer holds every array at the announced length, each
-    // followed by its zone, and lives in `guards` across the call.
+    // SAFETY: `f` has the block ABI's signature (looked up by name); the guarded buffer holds
+    // every array at the announced length, each followed by its zone, and lives in `guards`
+    // across the call.
     unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
     Ok(guards.unload(i, o, &guarded_call, &sent))
 }
