@@ -63,6 +63,22 @@ fn settings() -> BlockSettings {
     BlockSettings { conditions: conditions(), state0: vec![0.0; 13], ..BlockSettings::default() }
 }
 
+/// Every output of `a` equals `b`'s within `tol` of the array's largest entry.
+fn same_outputs(a: &BlockBuffers, b: &BlockBuffers, tol: f64, at: &str) {
+    let close = |x: &[f64], y: &[f64], what: &str| {
+        let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
+        for (k, (u, v)) in x.iter().zip(y).enumerate() {
+            assert!((u - v).abs() <= tol * scale, "{at}: {what}[{k}] {u} vs {v}");
+        }
+    };
+    close(&a.stress, &b.stress, "stress");
+    close(&a.state, &b.state, "state");
+    let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+    let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+    close(&ea, &eb, "energy");
+    assert_eq!(a.deleted, b.deleted, "{at}");
+}
+
 /// Walk a block of 9 points on different paths (some elastic, some plastic, reversed) with
 /// both routines and compare every output after every increment.
 fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
@@ -82,18 +98,7 @@ fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
         }
         a.call(&mut ours, &PROPS, 1e-5, inc).unwrap();
         b.call(&mut rust, &PROPS, 1e-5, inc).unwrap();
-        let close = |x: &[f64], y: &[f64], what: &str| {
-            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
-            for (k, (u, v)) in x.iter().zip(y).enumerate() {
-                assert!((u - v).abs() <= 1e-12 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
-            }
-        };
-        close(&a.stress, &b.stress, "stress");
-        close(&a.state, &b.state, "state");
-        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        close(&ea, &eb, "energy");
-        assert_eq!(a.deleted, b.deleted);
+        same_outputs(&a, &b, 1e-12, &format!("{symbol}, increment {inc}"));
         a.advance(1e-5);
         b.advance(1e-5);
     }
@@ -233,18 +238,7 @@ fn jc_same_as_rust(lib: &Path, symbol: &str, flaw: JcBlockFlaw) {
         }
         a.call(&mut ours, &STEEL, 1e-5, inc).unwrap();
         b.call(&mut rust, &STEEL, 1e-5, inc).unwrap();
-        let close = |x: &[f64], y: &[f64], what: &str| {
-            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
-            for (k, (u, v)) in x.iter().zip(y).enumerate() {
-                assert!((u - v).abs() <= 1e-9 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
-            }
-        };
-        close(&a.stress, &b.stress, "stress");
-        close(&a.state, &b.state, "state");
-        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        close(&ea, &eb, "energy");
-        assert_eq!(a.deleted, b.deleted, "{symbol}, increment {inc}");
+        same_outputs(&a, &b, 1e-9, &format!("{symbol}, increment {inc}"));
         deleted_seen |= a.deleted.iter().any(|&d| d != 0);
         a.advance(1e-5);
         b.advance(1e-5);

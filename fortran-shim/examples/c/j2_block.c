@@ -38,17 +38,6 @@ typedef enum {
     J2B_MIDPOINT
 } j2b_flaw;
 
-static void j2b_fail(tc_block_report *report, int p, const char *text)
-{
-    report->status = TC_BLOCK_STATUS_FAILED;
-    report->point = p;
-    int k = 0;
-    for (const char *c = text; *c != '\0' && k < TC_BLOCK_MESSAGE_LEN - 1; ++c) {
-        report->message[k++] = *c;
-    }
-    report->message[k] = '\0';
-}
-
 static void j2_block(const tc_block *block, const tc_real *properties, const tc_real *strain,
                      const tc_real *strain_increment, const tc_real *stress_start,
                      const tc_real *state_start, const tc_specific_energy *energy_start,
@@ -58,7 +47,7 @@ static void j2_block(const tc_block *block, const tc_real *properties, const tc_
 {
     const int n = block->ncomp, ns = block->nstate, np = block->npoints;
     if ((n != 6 && n != 4) || ns < 2 * n + 1 || ns > 64 || block->nproperties < J2_NPROP) {
-        j2b_fail(report, -1, "j2-block: needs ncomp 6 or 4, 7 properties, 2*ncomp+1 state");
+        tc_block_fail(report, -1, "j2-block: needs ncomp 6 or 4, 7 properties, 2*ncomp+1 state");
         return;
     }
     const tc_real e = properties[J2_E], nu = properties[J2_NU];
@@ -91,7 +80,7 @@ static void j2_block(const tc_block *block, const tc_real *properties, const tc_
         j2_update(&call, properties, strain + p * n, de, state_start + from * ns, s,
                   state + p * ns, tangent, &point_report, J2_TANGENT_CONSISTENT);
         if (point_report.status != 0) {
-            j2b_fail(report, p, "j2-block: the point update failed");
+            tc_block_fail(report, p, "j2-block: the point update failed");
             return;
         }
         if (flaw == J2B_TOTAL_BACK_STRESS) {

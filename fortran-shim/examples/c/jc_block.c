@@ -40,17 +40,6 @@ typedef enum {
     JCB_UNCLIPPED_TEMPERATURE
 } jcb_flaw;
 
-static void jcb_fail(tc_block_report *report, int p, const char *text)
-{
-    report->status = TC_BLOCK_STATUS_FAILED;
-    report->point = p;
-    int k = 0;
-    for (const char *c = text; *c != '\0' && k < TC_BLOCK_MESSAGE_LEN - 1; ++c) {
-        report->message[k++] = *c;
-    }
-    report->message[k] = '\0';
-}
-
 /* E(T) = E (1 - k_E T*), T* clipped to [0, 1). */
 static tc_real jcb_modulus(const tc_real *p, double temperature)
 {
@@ -84,13 +73,13 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
 {
     const int n = block->ncomp, ns = block->nstate;
     if ((n != 6 && n != 4) || ns < n + 7 || block->nproperties < JCB_NPROP) {
-        jcb_fail(report, -1, "johnson-cook-block: needs ncomp 6 or 4, 21 properties, ncomp+7 state");
+        tc_block_fail(report, -1, "johnson-cook-block: needs ncomp 6 or 4, 21 properties, ncomp+7 state");
         return;
     }
     const tc_real k_e = properties[JC_NPROP], g_f = properties[JC_NPROP + 1];
     const tc_real d_max = properties[JC_NPROP + 2];
     if (!(tc_re(k_e) >= 0.0 && tc_re(g_f) > 0.0 && tc_re(d_max) > 0.0 && tc_re(d_max) <= 1.0)) {
-        jcb_fail(report, 0, "johnson-cook-block: needs k_E >= 0, G_f > 0, 0 < d_max <= 1");
+        tc_block_fail(report, 0, "johnson-cook-block: needs k_E >= 0, G_f > 0, 0 < d_max <= 1");
         return;
     }
     const int i_ebar = n, i_init = n + 1, i_d = n + 3, i_sy0 = n + 4, i_u = n + 5, i_del = n + 6;
@@ -152,7 +141,7 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
         jc_update(&call, pp, strain + p * n, de, &temperature, old, s, st, tangent, dsdt,
                   &point_energy, &point_report, 1);
         if (point_report.status != TC_STATUS_OK) {
-            jcb_fail(report, p, point_report.message[0] != '\0' ? point_report.message
+            tc_block_fail(report, p, point_report.message[0] != '\0' ? point_report.message
                                                                 : "johnson-cook-block: the point update failed");
             return;
         }

@@ -6,11 +6,11 @@
 //!
 //! The flawed variants ([`BlockFlaw`]) of the selftest zoo keep everything else.
 
-use tancheck_core::block::{block_status, BlockInfo, BlockInput, BlockModel, BlockOutput};
+use tancheck_core::block::{BlockInfo, BlockInput, BlockModel, BlockOutput};
 use tancheck_core::routine::status;
-use tancheck_core::{CallInput, CallOutput, Fault, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Fault, Model, PointKind, Scalar};
 
-use super::{elastic_response, trapezoid_work};
+use super::{elastic_response, fail_point, point_update, trapezoid_work};
 use crate::{ModelError, J2};
 
 /// Deliberate mistakes of the zoo's block rows.
@@ -101,12 +101,6 @@ impl J2Block {
     }
 }
 
-fn fail_point<S>(output: &mut BlockOutput<'_, S>, p: usize, message: &str) {
-    output.outcome.status = block_status::FAILED;
-    output.outcome.point = p as i32;
-    output.outcome.set_message(message);
-}
-
 impl BlockModel for J2Block {
     fn info(&self) -> &BlockInfo {
         &self.info
@@ -120,9 +114,6 @@ impl BlockModel for J2Block {
         let (n, ns) = (self.info.ncomp, self.info.nstate);
         let np = input.npoints();
         let props = input.properties;
-        let mut tangent = [S::zero(); 36];
-        let mut dsdt = [S::zero(); 6];
-        let mut energy = [S::zero(); 2];
         for p in 0..np {
             let c = p * n..(p + 1) * n;
             let s = p * ns..(p + 1) * ns;
@@ -142,32 +133,22 @@ impl BlockModel for J2Block {
             let from = if self.flaw == BlockFlaw::NeighbourState && p + 1 < np { p + 1 } else { p };
             let state0 = &input.state_start[from * ns..(from + 1) * ns];
             let t = input.conditions[p];
-            let mut outcome = Outcome::default();
-            let point_in = CallInput {
+            let de = &input.strain_increment[c.clone()];
+            let outcome = point_update(
+                &self.point,
                 props,
-                strain: &input.strain[c.clone()],
-                dstrain: &input.strain_increment[c.clone()],
-                temp: [S::cst(t.temperature), S::cst(t.temperature_increment)],
-                stress0: &input.stress_start[c.clone()],
+                input,
+                p,
+                de,
+                input.time_increment,
                 state0,
-                time: [input.time, input.time_increment],
-                increment: input.increment,
-                want_tangent: false,
-            };
-            let mut point_out = CallOutput {
-                stress: &mut output.stress[c.clone()],
-                state: &mut output.state[s.clone()],
-                tangent: &mut tangent[..n * n],
-                dstress_dtemp: &mut dsdt[..n],
-                energy: &mut energy,
-                outcome: &mut outcome,
-            };
-            self.point.evaluate(&point_in, &mut point_out)?;
+                &mut output.stress[c.clone()],
+                &mut output.state[s.clone()],
+            )?;
             if outcome.status != status::OK {
                 fail_point(output, p, "j2-block: the point update failed");
                 return Ok(());
             }
-            let de = &input.strain_increment[c.clone()];
             let s0 = &input.stress_start[c.clone()];
             match self.flaw {
                 BlockFlaw::TotalBackStress => {
@@ -204,20 +185,17 @@ impl BlockModel for J2Block {
                     }
                     let mut half = [S::zero(); 6];
                     let mut half_state = [S::zero(); 13];
-                    let half_in = CallInput {
-                        dstrain: &half_de[..n],
-                        time: [input.time, 0.5 * input.time_increment],
-                        ..point_in
-                    };
-                    let mut half_out = CallOutput {
-                        stress: &mut half[..n],
-                        state: &mut half_state[..ns],
-                        tangent: &mut tangent[..n * n],
-                        dstress_dtemp: &mut dsdt[..n],
-                        energy: &mut energy,
-                        outcome: &mut outcome,
-                    };
-                    self.point.evaluate(&half_in, &mut half_out)?;
+                    point_update(
+                        &self.point,
+                        props,
+                        input,
+                        p,
+                        &half_de[..n],
+                        0.5 * input.time_increment,
+                        &input.state_start[s.clone()],
+                        &mut half[..n],
+                        &mut half_state[..ns],
+                    )?;
                     let mut w = S::zero();
                     for i in 0..n {
                         w += half[i] * de[i];

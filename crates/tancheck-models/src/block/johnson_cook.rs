@@ -23,11 +23,11 @@
 //!
 //! The flawed variants of the zoo ([`JcBlockFlaw`]) keep everything else.
 
-use tancheck_core::block::{block_status, BlockInfo, BlockInput, BlockModel, BlockOutput};
+use tancheck_core::block::{BlockInfo, BlockInput, BlockModel, BlockOutput};
 use tancheck_core::routine::status;
-use tancheck_core::{CallInput, CallOutput, Fault, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Fault, Model, PointKind, Scalar};
 
-use super::{elastic_response, trapezoid_work};
+use super::{elastic_response, fail_point, point_update, trapezoid_work};
 use crate::{JohnsonCook, ModelError};
 
 /// Properties of the point model.
@@ -105,12 +105,6 @@ fn modulus<S: Scalar>(p: &[S], temperature: f64) -> S {
     p[0] * (S::one() - p[NPOINT] * ts)
 }
 
-fn fail_point<S>(output: &mut BlockOutput<'_, S>, p: usize, message: &str) {
-    output.outcome.status = block_status::FAILED;
-    output.outcome.point = p as i32;
-    output.outcome.set_message(message);
-}
-
 /// Von Mises equivalent stress (engineering-order vector: shear entries are tensor shear
 /// stresses).
 fn equivalent<S: Scalar>(s: &[S]) -> S {
@@ -144,9 +138,6 @@ impl BlockModel for JcBlock {
             return Ok(());
         }
         let mut point_props = [S::zero(); NPOINT];
-        let mut tangent = [S::zero(); 36];
-        let mut dsdt = [S::zero(); 6];
-        let mut energy = [S::zero(); 2];
         // Point-model state entries, then the block's.
         let (i_ebar, i_heat) = (n, n + 2);
         let (i_d, i_sy0, i_u, i_del) = (n + 3, n + 4, n + 5, n + 6);
@@ -206,27 +197,17 @@ impl BlockModel for JcBlock {
                 point_props[3] *= factor;
                 point_props[5] = S::zero();
             }
-            let mut outcome = Outcome::default();
-            let point_in = CallInput {
-                props: &point_props,
-                strain: &input.strain[c.clone()],
-                dstrain: de,
-                temp: [S::cst(t.temperature), S::cst(t.temperature_increment)],
-                stress0: &input.stress_start[c.clone()],
-                state0: &old[..n + 3],
-                time: [input.time, input.time_increment],
-                increment: input.increment,
-                want_tangent: false,
-            };
-            let mut point_out = CallOutput {
-                stress: &mut output.stress[c.clone()],
-                state: &mut output.state[p * ns..p * ns + n + 3],
-                tangent: &mut tangent[..n * n],
-                dstress_dtemp: &mut dsdt[..n],
-                energy: &mut energy,
-                outcome: &mut outcome,
-            };
-            self.point.evaluate(&point_in, &mut point_out)?;
+            let outcome = point_update(
+                &self.point,
+                &point_props,
+                input,
+                p,
+                de,
+                input.time_increment,
+                &old[..n + 3],
+                &mut output.stress[c.clone()],
+                &mut output.state[p * ns..p * ns + n + 3],
+            )?;
             if outcome.status != status::OK {
                 let text = outcome.message_text();
                 fail_point(
