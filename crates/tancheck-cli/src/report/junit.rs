@@ -195,19 +195,6 @@ pub fn selftest_junit(rows: &[SelftestRow]) -> io::Result<String> {
     to_string(&r)
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn the_root_loses_only_its_skipped_count() {
-        let xml = "<?xml version=\"1.0\"?>\n<testsuites name=\"a\" tests=\"2\" skipped=\"0\" failures=\"1\" errors=\"0\">\n<testsuite name=\"s\" tests=\"2\" skipped=\"0\" errors=\"0\" failures=\"1\">";
-        let out = drop_root_skipped(xml);
-        assert!(out.contains("<testsuites name=\"a\" tests=\"2\" failures=\"1\" errors=\"0\">"), "{out}");
-        assert!(out.contains("<testsuite name=\"s\" tests=\"2\" skipped=\"0\""), "{out}");
-    }
-}
-
 /// The XML of a block routine's checks: one test suite with a test case per check (its
 /// findings fail it; a failed or crashed call is an error).
 pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> {
@@ -249,4 +236,17 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
     let mut report = JReport::new("tancheck");
     report.add_test_suite(suite);
     to_string(&report)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_root_loses_only_its_skipped_count() {
+        let xml = "<?xml version=\"1.0\"?>\n<testsuites name=\"a\" tests=\"2\" skipped=\"0\" failures=\"1\" errors=\"0\">\n<testsuite name=\"s\" tests=\"2\" skipped=\"0\" errors=\"0\" failures=\"1\">";
+        let out = drop_root_skipped(xml);
+        assert!(out.contains("<testsuites name=\"a\" tests=\"2\" failures=\"1\" errors=\"0\">"), "{out}");
+        assert!(out.contains("<testsuite name=\"s\" tests=\"2\" skipped=\"0\""), "{out}");
+    }
 }
