@@ -1,32 +1,37 @@
 //! `tancheck check` and `tancheck probe` on block routines named by a manifest
-//! (`routine.interface: "block"`): a compiled C block routine with its point counterpart passes,
-//! a flawed one fails with its finding (exit 1), the JSON report says so, and a manifest whose
-//! block section does not fit is refused with the file named (exit 2).
+//! (`routine.interface: "block"`), compiled from C and from Fortran: the correct routine with
+//! its point counterpart passes, a flawed one fails with its finding (exit 1); the reports go
+//! through the reporters like a point check's (`--json` validated against the report schema,
+//! `--html`, `--junit`, `-q`, `--color`); a manifest whose block section does not fit is
+//! refused with the file named (exit 2).
 
 use std::path::{Path, PathBuf};
 use std::process::Command;
 
-use tancheck::abi::{build_library, BuildOptions};
+use serde_json::Value;
+use tancheck_testkit::libs::{build_once, scratch};
 
-fn dir() -> PathBuf {
-    let d = std::env::temp_dir().join(format!("tancheck-root-test-{}-block-cli", std::process::id()));
-    std::fs::create_dir_all(&d).unwrap();
-    d
+/// The C (`c`) or Fortran (`f`) J2 block library, with the point routines of the same model
+/// (`c_j2`, `f_j2`) for the counterpart.
+fn library(lang: &str) -> &'static Path {
+    match lang {
+        "c" => build_once("j2_block_cli_c", &["fortran-shim/examples/c/j2_block.c"]),
+        _ => build_once(
+            "j2_block_cli_f",
+            &["fortran-shim/examples/fortran/j2_block.F90", "fortran-shim/examples/fortran/j2.F90"],
+        ),
+    }
 }
 
-fn library(d: &Path) {
-    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/j2_block.c");
-    build_library(&BuildOptions::new([src], d.join("libj2b.so"))).unwrap();
-}
-
-fn manifest(d: &Path, name: &str, symbol: &str, extra: &str) -> PathBuf {
+fn manifest(d: &Path, name: &str, lib: &Path, symbol: &str, extra: &str) -> PathBuf {
     let text = format!(
         r#"{{
-  "routine": {{ "library": "libj2b.so", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d",
+  "routine": {{ "library": "{}", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d",
                "states": 13, "properties": [200000, 0.3, 250, 1000, 0, 0, 500] }},
   "start": {{ "temperature": 293 }},
   "block": {{ "density": 7.85e-9, "characteristic_length": 2.0{extra} }}
-}}"#
+}}"#,
+        lib.display()
     );
     let p = d.join(name);
     std::fs::write(&p, text).unwrap();
@@ -34,7 +39,7 @@ fn manifest(d: &Path, name: &str, symbol: &str, extra: &str) -> PathBuf {
 }
 
 fn tancheck(args: &[&std::ffi::OsStr]) -> (i32, String, String) {
-    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).args(args).output().unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).env_remove("NO_COLOR").args(args).output().unwrap();
     (
         o.status.code().unwrap_or(-1),
         String::from_utf8_lossy(&o.stdout).into(),
@@ -42,33 +47,92 @@ fn tancheck(args: &[&std::ffi::OsStr]) -> (i32, String, String) {
     )
 }
 
-#[test]
-#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
-fn check_and_probe_run_block_routines() {
-    let d = dir();
-    library(&d);
-    let good = manifest(&d, "good.json", "c_j2_block", r#", "counterpart": { "symbol": "c_j2" }"#);
-    let json = d.join("good-report.json");
-    let (code, out, err) =
-        tancheck(&["check".as_ref(), good.as_os_str(), "--json".as_ref(), json.as_os_str()]);
+fn schema_valid(v: &Value) {
+    let schema: Value = serde_json::from_str(&tancheck::cli::report::schema::schema_text()).unwrap();
+    let validator = jsonschema::validator_for(&schema).expect("the schema compiles");
+    let errors: Vec<String> =
+        validator.iter_errors(v).take(10).map(|e| format!("{e} at {}", e.instance_path())).collect();
+    assert!(errors.is_empty(), "the block report does not match the schema:\n{}", errors.join("\n"));
+}
+
+fn check_and_probe(lang: &str) {
+    let d = scratch(&format!("block-cli-{lang}"));
+    let lib = library(lang);
+    let counterpart = format!(r#", "counterpart": {{ "symbol": "{lang}_j2" }}"#);
+    let good = manifest(&d, "good.json", lib, &format!("{lang}_j2_block"), &counterpart);
+    let (json, html, junit) = (d.join("good.json.out"), d.join("good.html"), d.join("good.xml"));
+    let (code, out, err) = tancheck(&[
+        "check".as_ref(),
+        good.as_os_str(),
+        "--json".as_ref(),
+        json.as_os_str(),
+        "--html".as_ref(),
+        html.as_os_str(),
+        "--junit".as_ref(),
+        junit.as_os_str(),
+        "--color".as_ref(),
+        "never".as_ref(),
+    ]);
     assert_eq!(code, 0, "{out}\n{err}");
     assert!(out.contains("verdict: PASS"), "{out}");
-    assert!(out.contains("counterpart: the stresses of c_j2 and of the block routine agree"), "{out}");
-    assert!(out.contains("the tangent of c_j2 passes"), "{out}");
-    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert!(!out.contains('\x1b'), "--color never: {out}");
+    assert!(
+        out.contains(&format!("counterpart: the stresses of {lang}_j2 and of the block routine agree")),
+        "{out}"
+    );
+    assert!(out.contains(&format!("the tangent of {lang}_j2 passes")), "{out}");
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    schema_valid(&v);
+    assert_eq!(v["kind"], "block");
     assert_eq!(v["interface"], "block");
     assert_eq!(v["passed"], true);
     assert!(v["elastic"]["wave_speed"].as_f64().unwrap() > 0.0);
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("Block routine") && page.contains("<svg") && page.contains("Caution"), "{page}");
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    assert!(xml.contains("<testcase name=\"tangent\"") && !xml.contains("<failure"), "{xml}");
 
-    let bad = manifest(&d, "bad.json", "c_j2_block_dissipation_sign", "");
-    let (code, out, _) = tancheck(&["probe".as_ref(), bad.as_os_str()]);
+    // A flawed routine through probe: the finding, in colour when asked for, and quietly.
+    let bad = manifest(&d, "bad.json", lib, &format!("{lang}_j2_block_corrector_sign"), "");
+    let (code, out, _) =
+        tancheck(&["probe".as_ref(), bad.as_os_str(), "--color".as_ref(), "always".as_ref()]);
     assert_eq!(code, 1, "{out}");
-    assert!(out.contains("FAIL dissipation-decreases"), "{out}");
+    assert!(out.contains("stiffer-than-elastic") && out.contains('\x1b'), "{out}");
+    let (code, quiet, _) = tancheck(&["probe".as_ref(), bad.as_os_str(), "-q".as_ref()]);
+    assert_eq!(code, 1);
+    assert!(quiet.lines().count() < out.lines().count(), "-q:\n{quiet}\nnormal:\n{out}");
+    let xml_bad = d.join("bad.xml");
+    let (code, _, _) =
+        tancheck(&["check".as_ref(), bad.as_os_str(), "--junit".as_ref(), xml_bad.as_os_str()]);
+    assert_eq!(code, 1);
+    let xml = std::fs::read_to_string(&xml_bad).unwrap();
+    assert!(xml.contains("<failure") && xml.contains("stiffer-than-elastic"), "{xml}");
+
+    // The counterpart names a block routine whose update differs from the point routine's.
+    let drift = manifest(&d, "drift.json", lib, &format!("{lang}_j2_block_total_back_stress"), &counterpart);
+    let (code, out, _) = tancheck(&["check".as_ref(), drift.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    assert_eq!(code, 1, "{out}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    let names: Vec<&str> =
+        v["findings"].as_array().unwrap().iter().map(|f| f["finding"].as_str().unwrap()).collect();
+    assert!(names.contains(&"counterpart-mismatch"), "{names:?}");
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn check_and_probe_run_c_block_routines() {
+    check_and_probe("c");
+}
+
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
+fn check_and_probe_run_fortran_block_routines() {
+    check_and_probe("f");
 }
 
 #[test]
 fn a_block_section_that_does_not_fit_is_refused_naming_the_file() {
-    let d = dir();
+    let d = scratch("block-cli-refused");
     let p = d.join("point-with-block.json");
     std::fs::write(
         &p,

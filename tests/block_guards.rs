@@ -9,7 +9,7 @@ use std::path::{Path, PathBuf};
 use std::sync::OnceLock;
 
 use num_complex::Complex64;
-use tancheck::abi::{build_library, BuildOptions, Library, LibraryBlockRoutine};
+use tancheck::abi::{build_library, BuildOptions, GuardLevel, Library, LibraryBlockRoutine};
 use tancheck::core::block::walk::{BlockBuffers, ComplexPoint};
 use tancheck::core::block::{BlockInfo, Conditions};
 use tancheck::core::Fault;
@@ -98,6 +98,33 @@ fn the_block_guards_name_each_misbehaviour() {
     b.call(&mut r, &PROPS, 1e-6, 1).unwrap();
     assert!(r.findings().is_empty());
     assert!(b.stress.iter().all(|x| x.is_finite()) && b.energy[4].internal > 0.0);
+}
+
+/// At the full level every call runs again with other values after the read-only arrays: a
+/// routine that reads past the end of one is named with that array; the light level (one
+/// call) cannot see it, and a correct routine passes both.
+#[test]
+#[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
+fn the_full_guard_level_names_a_read_past_the_end() {
+    let mut r = open("mb_block_overread");
+    let mut b = block(5);
+    b.call(&mut r, &PROPS, 1e-6, 1).unwrap();
+    assert!(r.findings().is_empty(), "light: {:?}", r.findings());
+    r.set_guard_level(GuardLevel::Full);
+    match b.call(&mut r, &PROPS, 1e-6, 2) {
+        Err(Fault::Misbehaved { what }) => {
+            assert!(what.starts_with("reads past the end of its read-only input strain_increment"), "{what}")
+        }
+        other => panic!("expected a guard finding, got {other:?}"),
+    }
+    let mut ok = open("mb_block_ok");
+    ok.set_guard_level(GuardLevel::Full);
+    b.call(&mut ok, &PROPS, 1e-6, 1).unwrap();
+    assert!(ok.findings().is_empty(), "{:?}", ok.findings());
+    // The twin too.
+    let mut cx = ComplexPoint::new(2, 6, 0);
+    cx.load(&PROPS, &b, 0);
+    cx.call(&mut ok, &b.conditions[..1], 0.0, 1e-6, 1).unwrap();
 }
 
 #[test]

@@ -10,7 +10,7 @@ use std::sync::OnceLock;
 use num_complex::Complex64;
 use tancheck::abi::{build_library, BuildOptions, Library, LibraryBlockRoutine};
 use tancheck::core::block::walk::{BlockBuffers, ComplexPoint};
-use tancheck::core::block::{run, BlockInfo, BlockModelRoutine, BlockSettings, Conditions};
+use tancheck::core::block::{run, BlockInfo, BlockModelRoutine, BlockSettings, Conditions, EnergyRule};
 use tancheck::core::path::{Path as StrainPath, Shape};
 use tancheck::core::PointKind;
 use tancheck::models::block::{BlockFlaw, J2Block};
@@ -63,6 +63,22 @@ fn settings() -> BlockSettings {
     BlockSettings { conditions: conditions(), state0: vec![0.0; 13], ..BlockSettings::default() }
 }
 
+/// Every output of `a` equals `b`'s within `tol` of the array's largest entry.
+fn same_outputs(a: &BlockBuffers, b: &BlockBuffers, tol: f64, at: &str) {
+    let close = |x: &[f64], y: &[f64], what: &str| {
+        let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
+        for (k, (u, v)) in x.iter().zip(y).enumerate() {
+            assert!((u - v).abs() <= tol * scale, "{at}: {what}[{k}] {u} vs {v}");
+        }
+    };
+    close(&a.stress, &b.stress, "stress");
+    close(&a.state, &b.state, "state");
+    let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+    let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
+    close(&ea, &eb, "energy");
+    assert_eq!(a.deleted, b.deleted, "{at}");
+}
+
 /// Walk a block of 9 points on different paths (some elastic, some plastic, reversed) with
 /// both routines and compare every output after every increment.
 fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
@@ -82,18 +98,7 @@ fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
         }
         a.call(&mut ours, &PROPS, 1e-5, inc).unwrap();
         b.call(&mut rust, &PROPS, 1e-5, inc).unwrap();
-        let close = |x: &[f64], y: &[f64], what: &str| {
-            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
-            for (k, (u, v)) in x.iter().zip(y).enumerate() {
-                assert!((u - v).abs() <= 1e-12 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
-            }
-        };
-        close(&a.stress, &b.stress, "stress");
-        close(&a.state, &b.state, "state");
-        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        close(&ea, &eb, "energy");
-        assert_eq!(a.deleted, b.deleted);
+        same_outputs(&a, &b, 1e-12, &format!("{symbol}, increment {inc}"));
         a.advance(1e-5);
         b.advance(1e-5);
     }
@@ -114,52 +119,53 @@ fn same_as_rust(lib: &Path, symbol: &str, flaw: BlockFlaw) {
     }
 }
 
+/// The J2 block routines (symbol after the language prefix), their Rust model, the energy rule
+/// they are checked by and the finding expected.
+const J2_ROUTINES: [(&str, BlockFlaw, EnergyRule, &str); 9] = [
+    ("j2_block", BlockFlaw::None, EnergyRule::Trapezoid, "none"),
+    ("j2_block_neighbour_state", BlockFlaw::NeighbourState, EnergyRule::Trapezoid, "point-dependence"),
+    ("j2_block_old_stress_energy", BlockFlaw::OldStressEnergy, EnergyRule::Trapezoid, "energy-work-mismatch"),
+    ("j2_block_dissipation_sign", BlockFlaw::DissipationSign, EnergyRule::Trapezoid, "dissipation-decreases"),
+    ("j2_block_total_back_stress", BlockFlaw::TotalBackStress, EnergyRule::Trapezoid, "refinement-order"),
+    ("j2_block_corrector_sign", BlockFlaw::CorrectorSign, EnergyRule::Trapezoid, "stiffer-than-elastic"),
+    ("j2_block_double_correction", BlockFlaw::DoubleCorrection, EnergyRule::Trapezoid, "negative-stiffness"),
+    ("j2_block_midpoint", BlockFlaw::Midpoint, EnergyRule::Midpoint, "none"),
+    // The trapezoid-rule routine checked by the midpoint rule: its energy is not that rule's.
+    ("j2_block", BlockFlaw::None, EnergyRule::Midpoint, "energy-work-mismatch"),
+];
+
 #[test]
 #[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran (and cc)")]
 fn the_c_block_routines_match_the_rust_model() {
-    for (symbol, flaw) in [
-        ("c_j2_block", BlockFlaw::None),
-        ("c_j2_block_neighbour_state", BlockFlaw::NeighbourState),
-        ("c_j2_block_old_stress_energy", BlockFlaw::OldStressEnergy),
-        ("c_j2_block_dissipation_sign", BlockFlaw::DissipationSign),
-    ] {
-        same_as_rust(c_lib(), symbol, flaw);
+    for (symbol, flaw, _, _) in J2_ROUTINES {
+        same_as_rust(c_lib(), &format!("c_{symbol}"), flaw);
     }
 }
 
 #[test]
 #[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn the_fortran_block_routines_match_the_rust_model() {
-    for (symbol, flaw) in [
-        ("f_j2_block", BlockFlaw::None),
-        ("f_j2_block_neighbour_state", BlockFlaw::NeighbourState),
-        ("f_j2_block_old_stress_energy", BlockFlaw::OldStressEnergy),
-        ("f_j2_block_dissipation_sign", BlockFlaw::DissipationSign),
-    ] {
-        same_as_rust(f_lib(), symbol, flaw);
+    for (symbol, flaw, _, _) in J2_ROUTINES {
+        same_as_rust(f_lib(), &format!("f_{symbol}"), flaw);
     }
 }
 
-fn check(lib: &Path, symbol: &str) -> tancheck::core::block::BlockReport {
+fn check(lib: &Path, symbol: &str, rule: EnergyRule) -> tancheck::core::block::BlockReport {
     let mut r = open(lib, symbol);
     let path = StrainPath::ramp(Shape::TensionShear, 6e-3, 6, 3);
-    let report = run(&mut r, &PROPS, &path, &settings()).unwrap();
+    let report = run(&mut r, &PROPS, &path, &BlockSettings { energy_rule: rule, ..settings() }).unwrap();
     assert!(r.findings().is_empty(), "{symbol}: the guards found {:?}", r.findings());
     report
 }
 
 fn verdicts(lib: &Path, prefix: &str) {
-    let r = check(lib, &format!("{prefix}_j2_block"));
-    assert!(r.passed(), "{prefix}_j2_block: {:#?}", r.findings);
-    assert!(r.complex_calls > 0, "the twin was used");
-    for (suffix, finding) in [
-        ("neighbour_state", "point-dependence"),
-        ("old_stress_energy", "energy-work-mismatch"),
-        ("dissipation_sign", "dissipation-decreases"),
-    ] {
-        let symbol = format!("{prefix}_j2_block_{suffix}");
-        let r = check(lib, &symbol);
-        assert_eq!(r.finding(), finding, "{symbol}: {:#?}", r.findings);
+    for (suffix, _, rule, finding) in J2_ROUTINES {
+        let symbol = format!("{prefix}_{suffix}");
+        let r = check(lib, &symbol, rule);
+        assert_eq!(r.finding(), finding, "{symbol} by the {rule:?} rule: {:#?}", r.findings);
+        if finding == "none" {
+            assert!(r.complex_calls > 0, "the twin was used");
+        }
     }
 }
 
@@ -232,18 +238,7 @@ fn jc_same_as_rust(lib: &Path, symbol: &str, flaw: JcBlockFlaw) {
         }
         a.call(&mut ours, &STEEL, 1e-5, inc).unwrap();
         b.call(&mut rust, &STEEL, 1e-5, inc).unwrap();
-        let close = |x: &[f64], y: &[f64], what: &str| {
-            let scale = y.iter().fold(1e-300f64, |m, v| m.max(v.abs()));
-            for (k, (u, v)) in x.iter().zip(y).enumerate() {
-                assert!((u - v).abs() <= 1e-9 * scale, "{symbol}, increment {inc}: {what}[{k}] {u} vs {v}");
-            }
-        };
-        close(&a.stress, &b.stress, "stress");
-        close(&a.state, &b.state, "state");
-        let ea: Vec<f64> = a.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        let eb: Vec<f64> = b.energy.iter().flat_map(|e| [e.internal, e.dissipated]).collect();
-        close(&ea, &eb, "energy");
-        assert_eq!(a.deleted, b.deleted, "{symbol}, increment {inc}");
+        same_outputs(&a, &b, 1e-9, &format!("{symbol}, increment {inc}"));
         deleted_seen |= a.deleted.iter().any(|&d| d != 0);
         a.advance(1e-5);
         b.advance(1e-5);
@@ -259,6 +254,8 @@ fn the_johnson_cook_block_routines_match_the_rust_model() {
             ("", JcBlockFlaw::None),
             ("_revived", JcBlockFlaw::Revived),
             ("_wrong_temperature", JcBlockFlaw::WrongTemperature),
+            ("_deleted_stress", JcBlockFlaw::DeletedStress),
+            ("_unclipped_temperature", JcBlockFlaw::UnclippedTemperature),
         ] {
             jc_same_as_rust(lib, &format!("{prefix}_jc_block{suffix}"), flaw);
         }
@@ -266,13 +263,17 @@ fn the_johnson_cook_block_routines_match_the_rust_model() {
 }
 
 fn jc_check(lib: &Path, symbol: &str) -> tancheck::core::block::BlockReport {
+    jc_check_at(lib, symbol, jc_conditions())
+}
+
+fn jc_check_at(lib: &Path, symbol: &str, conditions: Conditions) -> tancheck::core::block::BlockReport {
     let mut r = jc_open(lib, symbol);
     let mut path = StrainPath::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
     for inc in &mut path.increments {
         inc.dtime = 5e-5;
     }
     let s = BlockSettings {
-        conditions: jc_conditions(),
+        conditions,
         state0: vec![0.0; 13],
         softening: true,
         rate_law: Some(RateLaw { reference_rate: 1.0, coefficient: 0.014 }),
@@ -293,10 +294,18 @@ fn the_block_check_passes_the_johnson_cook_routines_and_names_each_flaw() {
             ("revived", "deleted-point-revived"),
             ("unguarded_rate", "zero-rate-not-finite"),
             ("wrong_temperature", "elastic-response-mismatch"),
+            ("deleted_stress", "deleted-point-stress"),
         ] {
             let symbol = format!("{prefix}_jc_block_{suffix}");
             let r = jc_check(lib, &symbol);
             assert_eq!(r.finding(), finding, "{symbol}: {:#?}", r.findings);
         }
+        // Below the room temperature (250 K, T_r 293 K): the correct routine clips T* at zero.
+        let cold = Conditions { temperature: 250.0, ..jc_conditions() };
+        let r = jc_check_at(lib, &format!("{prefix}_jc_block"), cold);
+        assert!(r.passed(), "{prefix}_jc_block at 250 K: {:#?}", r.findings);
+        let symbol = format!("{prefix}_jc_block_unclipped_temperature");
+        let r = jc_check_at(lib, &symbol, cold);
+        assert_eq!(r.finding(), "non-finite-stiffness", "{symbol}: {:#?}", r.findings);
     }
 }

@@ -84,6 +84,17 @@ typedef struct tc_block_report {
     char message[TC_BLOCK_MESSAGE_LEN]; /* NUL-terminated text for the user, or empty */
 } tc_block_report;
 
+/* Fail the call at point `point` (0-based, or -1 for the whole block) with a message, cut to
+ * fit TC_BLOCK_MESSAGE_LEN (the C counterpart of the Fortran module's tc_block_set_message). */
+static inline void tc_block_fail(tc_block_report *report, int32_t point, const char *text)
+{
+    report->status = TC_BLOCK_STATUS_FAILED;
+    report->point = point;
+    int k = 0;
+    for (const char *c = text; *c != '\0' && k < TC_BLOCK_MESSAGE_LEN - 1; ++c) report->message[k++] = *c;
+    report->message[k] = '\0';
+}
+
 #ifndef TC_NAME
 #ifdef TC_COMPLEX
 #include <complex.h>

@@ -12,9 +12,8 @@ use tancheck_core::{Routine, RoutineInfo};
 
 use crate::block_manifest::settings;
 use crate::manifest::{Guards, Manifest};
-use crate::report::block::{write_json, BlockTerminal};
-use crate::report::terminal::Detail;
-use crate::report::write_atomic;
+use crate::report::Reporter;
+use crate::session::OutputArgs;
 
 /// Whether the manifest names a block routine.
 pub fn is_block(m: &Manifest) -> bool {
@@ -127,31 +126,14 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
     Ok(report)
 }
 
-/// Print the readable block report and/or write the JSON one (`-`: JSON to standard output).
-pub fn emit_block(report: &BlockReport, detail: Detail, json: Option<&FsPath>) -> Result<()> {
-    let mut out = crate::survive::stdout();
-    match json {
-        Some(p) if p.as_os_str() == "-" => write_json(report, &mut out)?,
-        other => {
-            BlockTerminal { detail }.write(report, &mut out)?;
-            if let Some(p) = other {
-                let mut buf = Vec::new();
-                write_json(report, &mut buf)?;
-                write_atomic(p, &buf)
-                    .with_context(|| format!("writing the JSON report to {}", p.display()))?;
-            }
-        }
-    }
-    Ok(())
-}
-
-/// `check` and `probe` of a block manifest: the block checks, printed; the exit code.
+/// `check` and `probe` of a block manifest: the block checks, through the command's reporters
+/// (terminal, `--json`, `--html`, `--junit`, `-q`, `--color`); the exit code.
 pub fn check_block_command(
     m: &Manifest,
     dir: &FsPath,
     file: &str,
     path: Option<Path>,
-    detail: Detail,
+    output: &OutputArgs,
     json: Option<&FsPath>,
 ) -> Result<i32> {
     let path = match path {
@@ -162,6 +144,8 @@ pub fn check_block_command(
     };
     let report =
         run_block_manifest(m, dir, &path).with_context(|| format!("checking the block routine of {file}"))?;
-    emit_block(&report, detail, json)?;
+    let mut reporters = crate::session::reporters(output, json);
+    reporters.block(&report)?;
+    reporters.finish()?;
     Ok(report.exit_code())
 }

@@ -315,9 +315,8 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     }
     if crate::block_session::is_block(&m) {
         let path = a.path.as_deref().map(path_arg).transpose()?;
-        let detail = a.output.detail();
         let code =
-            crate::block_session::check_block_command(&m, &dir, &file, path, detail, a.json.as_deref())?;
+            crate::block_session::check_block_command(&m, &dir, &file, path, &a.output, a.json.as_deref())?;
         return Ok(if case_code == exit::ROUTINE_FAULT || code == exit::ROUTINE_FAULT {
             exit::ROUTINE_FAULT
         } else {
@@ -360,8 +359,14 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         // A block routine's probes are the block checks (independence, tangent and wave speed,
         // energy, deletion, refinement, counterpart).
         let path = a.path.as_deref().map(path_arg).transpose()?;
-        let detail = a.output.detail();
-        return crate::block_session::check_block_command(&m, &dir, &file, path, detail, a.json.as_deref());
+        return crate::block_session::check_block_command(
+            &m,
+            &dir,
+            &file,
+            path,
+            &a.output,
+            a.json.as_deref(),
+        );
     }
     let (mut suite, suite_file) = match &a.suite {
         Some(f) => (crate::suite::Suite::load(f)?, Some(f.clone())),

@@ -11,9 +11,10 @@ use std::path::Path as FsPath;
 use anyhow::{Context, Result};
 use tancheck_abi::compile::{build_library, BuildOptions};
 
-use crate::block_session::{emit_block, run_block_manifest};
+use crate::block_session::run_block_manifest;
 use crate::manifest::Manifest;
-use crate::report::terminal::Detail;
+use crate::report::terminal::{Detail, Terminal};
+use crate::report::Reporter;
 
 const SOURCES: [(&str, &str); 2] = [
     ("jc.c", include_str!("../../../fortran-shim/examples/c/jc.c")),
@@ -79,7 +80,8 @@ pub fn run(dir: &FsPath, out: &mut dyn Write, verbose: bool) -> Result<bool> {
         writeln!(out, "-- {title} --")?;
         writeln!(out, "   manifest: {}", mpath.display())?;
         out.flush()?;
-        emit_block(&report, if verbose { Detail::Verbose } else { Detail::Quiet }, None)?;
+        let detail = if verbose { Detail::Verbose } else { Detail::Quiet };
+        Terminal::new(detail, crate::survive::stdout()).block(&report)?;
         writeln!(
             out,
             "   expected {}, got {}: {}\n",

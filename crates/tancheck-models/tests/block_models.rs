@@ -224,8 +224,116 @@ fn each_johnson_cook_flaw_is_caught_with_its_finding() {
         (JcBlockFlaw::Revived, "deleted-point-revived"),
         (JcBlockFlaw::UnguardedRate, "zero-rate-not-finite"),
         (JcBlockFlaw::WrongTemperature, "elastic-response-mismatch"),
+        (JcBlockFlaw::DeletedStress, "deleted-point-stress"),
     ] {
         let r = check_jc(flaw);
         assert_eq!(r.finding(), finding, "{flaw:?}: {:#?}", r.findings);
     }
+}
+
+/// The same path below the room temperature (250 K with T_r 293 K): the homologous temperature
+/// is negative, and Johnson & Cook's thermal factor 1 − T*ᵐ is defined for T* ≥ 0 only (the
+/// model takes 1 below it).
+fn check_jc_cold(flaw: JcBlockFlaw) -> block::BlockReport {
+    let mut r =
+        tancheck_core::block::BlockModelRoutine(JcBlock::with_flaw(PointKind::Solid3d, flaw).unwrap());
+    block::run(&mut r, &steel(0.9, 0.3), &jc_path(), &jc_settings(250.0)).unwrap()
+}
+
+#[test]
+fn below_the_room_temperature_the_correct_block_passes_and_the_unclipped_one_is_not_finite() {
+    let r = check_jc_cold(JcBlockFlaw::None);
+    assert!(r.passed(), "{:#?}\n{:#?}", r.findings, r.notes);
+    let r = check_jc_cold(JcBlockFlaw::UnclippedTemperature);
+    assert_eq!(r.finding(), "non-finite-stiffness", "{:#?}", r.findings);
+    // The first increment yields already (ε11 0.01 per increment).
+    assert_eq!(r.findings[0].increment, Some(1), "{:#?}", r.findings);
+}
+
+/// A residual stress the routine declares is allowed on deleted points, no more: the flawed
+/// routine that keeps 1 % of the stress passes when that much is declared and is caught below
+/// it.
+#[test]
+fn a_declared_residual_stress_of_deleted_points_is_the_bound() {
+    let run = |residual: f64| {
+        let mut r = tancheck_core::block::BlockModelRoutine(
+            JcBlock::with_flaw(PointKind::Solid3d, JcBlockFlaw::DeletedStress).unwrap(),
+        );
+        let s = BlockSettings { deleted_stress: residual, ..jc_settings(500.0) };
+        block::run(&mut r, &steel(0.9, 0.3), &jc_path(), &s).unwrap()
+    };
+    let caught = run(0.0);
+    let what = &caught.findings[0].what;
+    let kept: f64 = what
+        .split_whitespace()
+        .find_map(|w| w.parse::<f64>().ok())
+        .unwrap_or_else(|| panic!("no stress in {what}"));
+    assert!(kept > 0.0);
+    assert!(!run(0.5 * kept).passed());
+    let r = run(10.0 * kept);
+    assert!(!r.has("deleted-point-stress"), "{:#?}", r.findings);
+}
+
+/// Walk one point along `path` as the checks do (the path's dtemp becomes every call's
+/// temperature increment and moves the temperature on); the last stress and state.
+fn walk_path(props: &[f64], path: &Path, start: f64) -> (Vec<f64>, Vec<f64>) {
+    let mut r = tancheck_core::block::BlockModelRoutine(
+        JcBlock::with_flaw(PointKind::Solid3d, JcBlockFlaw::None).unwrap(),
+    );
+    let mut b = block::walk::BlockBuffers::new(1, 6, &[0.0; 13], conditions(start));
+    for (k, step) in block::block_increments(path, 6).unwrap().iter().enumerate() {
+        b.strain_increment.copy_from_slice(&step.strain_increment);
+        b.set_temperature_increment(step.temperature_increment);
+        b.call(&mut r, props, step.time_increment, k as i32 + 1).unwrap();
+        b.advance(step.time_increment);
+    }
+    (b.stress_start.clone(), b.state_start.clone())
+}
+
+fn von_mises(s: &[f64]) -> f64 {
+    (0.5 * ((s[0] - s[1]).powi(2) + (s[1] - s[2]).powi(2) + (s[2] - s[0]).powi(2))
+        + 3.0 * s[3..].iter().map(|t| t * t).sum::<f64>())
+    .sqrt()
+}
+
+/// The path's temperature increments reach the block points: heated by 50 K per increment
+/// from 293 K to 793 K (no adiabatic heating, E independent of T, strain rates below the
+/// reference rate, no damage yet), the equivalent stress is Johnson & Cook's (1983) flow stress
+/// [A + B ε̄pⁿ][1 − T*ᵐ] at the end temperature, T* = (T − T_r)/(T_m − T_r) = 1/3, 4340
+/// steel constants of REFERENCES.md; a point that did not see the temperature increments
+/// would keep the factor 1 (more than 30 % higher).
+#[test]
+fn the_paths_temperature_increments_soften_the_johnson_cook_block() {
+    let props = steel(0.0, 0.0);
+    let mut path = Path::ramp(Shape::UniaxialStrain, 0.02, 10, 0);
+    for inc in &mut path.increments {
+        inc.dtemp = 50.0;
+    }
+    let (stress, state) = walk_path(&props, &path, 293.0);
+    let ebar = state[6];
+    assert!(ebar > 0.005, "{ebar}");
+    let t_star: f64 = (793.0 - 293.0) / (1793.0 - 293.0);
+    let expected = (792.0 + 510.0 * ebar.powf(0.26)) * (1.0 - t_star.powf(1.03));
+    let got = von_mises(&stress);
+    assert!((got / expected - 1.0).abs() < 1e-8, "{got} vs {expected}");
+    // The same path at 293 K throughout: no thermal softening.
+    for inc in &mut path.increments {
+        inc.dtemp = 0.0;
+    }
+    let (cold, cold_state) = walk_path(&props, &path, 293.0);
+    let room = 792.0 + 510.0 * cold_state[6].powf(0.26);
+    assert!((von_mises(&cold) / room - 1.0).abs() < 1e-8);
+    assert!(von_mises(&cold) > 1.3 * got);
+    // And the whole check passes on the heated path (the elastic response, tangent and
+    // energy at the moving temperature).
+    let mut path = Path::ramp(Shape::UniaxialStrain, 0.02, 10, 4);
+    for inc in &mut path.increments {
+        inc.dtemp = 50.0;
+    }
+    let mut r = tancheck_core::block::BlockModelRoutine(
+        JcBlock::with_flaw(PointKind::Solid3d, JcBlockFlaw::None).unwrap(),
+    );
+    let s = BlockSettings { conditions: conditions(293.0), ..jc_settings(293.0) };
+    let report = block::run(&mut r, &steel(0.9, 0.3), &path, &s).unwrap();
+    assert!(report.passed(), "{:#?}", report.findings);
 }

@@ -7,6 +7,10 @@
  *   c_j2_block_neighbour_state      point p starts from the state of point p + 1
  *   c_j2_block_old_stress_energy    internal energy from the start stress only
  *   c_j2_block_dissipation_sign     dissipation added with the wrong sign
+ *   c_j2_block_total_back_stress    back stress from the total plastic strain, not its increment
+ *   c_j2_block_corrector_sign       plastic corrector added: sigma = 2 sigma_trial - sigma_return
+ *   c_j2_block_double_correction    plastic corrector twice: sigma = 2 sigma_return - sigma_trial
+ *   c_j2_block_midpoint             (correct) internal energy by the midpoint rule
  *
  * Every point is updated by the point routine's radial return (j2_update of j2.c, which this
  * file includes, so the library also exports the point routines c_j2 and c_j2_continuum: do not
@@ -27,19 +31,12 @@ typedef enum {
     J2B_CORRECT,
     J2B_NEIGHBOUR_STATE,
     J2B_OLD_STRESS_ENERGY,
-    J2B_DISSIPATION_SIGN
+    J2B_DISSIPATION_SIGN,
+    J2B_TOTAL_BACK_STRESS,
+    J2B_CORRECTOR_SIGN,
+    J2B_DOUBLE_CORRECTION,
+    J2B_MIDPOINT
 } j2b_flaw;
-
-static void j2b_fail(tc_block_report *report, int p, const char *text)
-{
-    report->status = TC_BLOCK_STATUS_FAILED;
-    report->point = p;
-    int k = 0;
-    for (const char *c = text; *c != '\0' && k < TC_BLOCK_MESSAGE_LEN - 1; ++c) {
-        report->message[k++] = *c;
-    }
-    report->message[k] = '\0';
-}
 
 static void j2_block(const tc_block *block, const tc_real *properties, const tc_real *strain,
                      const tc_real *strain_increment, const tc_real *stress_start,
@@ -49,8 +46,8 @@ static void j2_block(const tc_block *block, const tc_real *properties, const tc_
                      j2b_flaw flaw)
 {
     const int n = block->ncomp, ns = block->nstate, np = block->npoints;
-    if ((n != 6 && n != 4) || ns < 2 * n + 1 || block->nproperties < J2_NPROP) {
-        j2b_fail(report, -1, "j2-block: needs ncomp 6 or 4, 7 properties, 2*ncomp+1 state");
+    if ((n != 6 && n != 4) || ns < 2 * n + 1 || ns > 64 || block->nproperties < J2_NPROP) {
+        tc_block_fail(report, -1, "j2-block: needs ncomp 6 or 4, 7 properties, 2*ncomp+1 state");
         return;
     }
     const tc_real e = properties[J2_E], nu = properties[J2_NU];
@@ -83,13 +80,38 @@ static void j2_block(const tc_block *block, const tc_real *properties, const tc_
         j2_update(&call, properties, strain + p * n, de, state_start + from * ns, s,
                   state + p * ns, tangent, &point_report, J2_TANGENT_CONSISTENT);
         if (point_report.status != 0) {
-            j2b_fail(report, p, "j2-block: the point update failed");
+            tc_block_fail(report, p, "j2-block: the point update failed");
             return;
+        }
+        if (flaw == J2B_TOTAL_BACK_STRESS) {
+            /* beta_n + 2/3 H_kin eps_p(n+1) = the return's beta + 2/3 H_kin eps_p(n). */
+            for (int i = 0; i < n; ++i) {
+                state[p * ns + n + 1 + i] += properties[J2_H_KIN] * (2.0 / 3.0) * state_start[p * ns + i];
+            }
+        } else if (flaw == J2B_CORRECTOR_SIGN || flaw == J2B_DOUBLE_CORRECTION) {
+            const tc_real tr = de[0] + de[1] + de[2];
+            for (int i = 0; i < n; ++i) {
+                const tc_real trial = s0[i] + (i < 3 ? lambda * tr + 2.0 * mu * de[i] : mu * de[i]);
+                s[i] = flaw == J2B_CORRECTOR_SIGN ? 2.0 * trial - s[i] : 2.0 * s[i] - trial;
+            }
         }
         const double rho = conditions[p].density;
         tc_real work = 0.0;
-        for (int i = 0; i < n; ++i) {
-            work += (flaw == J2B_OLD_STRESS_ENERGY ? s0[i] : 0.5 * (s0[i] + s[i])) * de[i];
+        if (flaw == J2B_MIDPOINT) {
+            /* The point update over half the increment from the same start. */
+            const tc_call half_call = {TC_ROUTINE_ABI_VERSION, n, ns, block->nproperties, block->increment,
+                                       0, block->time, 0.5 * block->time_increment};
+            tc_real half_de[6], half[6], half_state[64];
+            for (int i = 0; i < n; ++i) half_de[i] = 0.5 * de[i];
+            tc_report half_report = {0};
+            half_report.branch = -1;
+            j2_update(&half_call, properties, strain + p * n, half_de, state_start + p * ns, half,
+                      half_state, tangent, &half_report, J2_TANGENT_CONSISTENT);
+            for (int i = 0; i < n; ++i) work += half[i] * de[i];
+        } else {
+            for (int i = 0; i < n; ++i) {
+                work += (flaw == J2B_OLD_STRESS_ENERGY ? s0[i] : 0.5 * (s0[i] + s[i])) * de[i];
+            }
         }
         const tc_real dalpha = state[p * ns + n] - state_start[p * ns + n];
         tc_real dissipation = properties[J2_SIGMA_Y0] * dalpha / rho;
@@ -112,3 +134,7 @@ J2_BLOCK_VARIANT(c_j2_block, J2B_CORRECT)
 J2_BLOCK_VARIANT(c_j2_block_neighbour_state, J2B_NEIGHBOUR_STATE)
 J2_BLOCK_VARIANT(c_j2_block_old_stress_energy, J2B_OLD_STRESS_ENERGY)
 J2_BLOCK_VARIANT(c_j2_block_dissipation_sign, J2B_DISSIPATION_SIGN)
+J2_BLOCK_VARIANT(c_j2_block_total_back_stress, J2B_TOTAL_BACK_STRESS)
+J2_BLOCK_VARIANT(c_j2_block_corrector_sign, J2B_CORRECTOR_SIGN)
+J2_BLOCK_VARIANT(c_j2_block_double_correction, J2B_DOUBLE_CORRECTION)
+J2_BLOCK_VARIANT(c_j2_block_midpoint, J2B_MIDPOINT)

@@ -9,6 +9,9 @@
  *   c_jc_block_unguarded_rate      rate factor 1 + C ln(rate*) of the total strain rate, folded
  *                                  into A and B, without the floor: ln 0 at a zero rate
  *   c_jc_block_wrong_temperature   the elastic response (wave speed) from E at room temperature
+ *   c_jc_block_deleted_stress      a deleted point freezes its last stress instead of zero
+ *   c_jc_block_unclipped_temperature  the thermal factor 1 - T*^m on a yielding point's stress
+ *                                  without the clip at T* = 0: NaN below the room temperature
  *
  * Every point is updated by the point routine's jc_update (jc.c, which this file includes, so
  * the library also exports c_jc and c_jc_no_rate_term: do not link it together with jc.c).
@@ -28,18 +31,14 @@
 
 #define JCB_NPROP (JC_NPROP + 3)
 
-typedef enum { JCB_CORRECT, JCB_REVIVED, JCB_UNGUARDED_RATE, JCB_WRONG_TEMPERATURE } jcb_flaw;
-
-static void jcb_fail(tc_block_report *report, int p, const char *text)
-{
-    report->status = TC_BLOCK_STATUS_FAILED;
-    report->point = p;
-    int k = 0;
-    for (const char *c = text; *c != '\0' && k < TC_BLOCK_MESSAGE_LEN - 1; ++c) {
-        report->message[k++] = *c;
-    }
-    report->message[k] = '\0';
-}
+typedef enum {
+    JCB_CORRECT,
+    JCB_REVIVED,
+    JCB_UNGUARDED_RATE,
+    JCB_WRONG_TEMPERATURE,
+    JCB_DELETED_STRESS,
+    JCB_UNCLIPPED_TEMPERATURE
+} jcb_flaw;
 
 /* E(T) = E (1 - k_E T*), T* clipped to [0, 1). */
 static tc_real jcb_modulus(const tc_real *p, double temperature)
@@ -74,13 +73,13 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
 {
     const int n = block->ncomp, ns = block->nstate;
     if ((n != 6 && n != 4) || ns < n + 7 || block->nproperties < JCB_NPROP) {
-        jcb_fail(report, -1, "johnson-cook-block: needs ncomp 6 or 4, 21 properties, ncomp+7 state");
+        tc_block_fail(report, -1, "johnson-cook-block: needs ncomp 6 or 4, 21 properties, ncomp+7 state");
         return;
     }
     const tc_real k_e = properties[JC_NPROP], g_f = properties[JC_NPROP + 1];
     const tc_real d_max = properties[JC_NPROP + 2];
     if (!(tc_re(k_e) >= 0.0 && tc_re(g_f) > 0.0 && tc_re(d_max) > 0.0 && tc_re(d_max) <= 1.0)) {
-        jcb_fail(report, 0, "johnson-cook-block: needs k_E >= 0, G_f > 0, 0 < d_max <= 1");
+        tc_block_fail(report, 0, "johnson-cook-block: needs k_E >= 0, G_f > 0, 0 < d_max <= 1");
         return;
     }
     const int i_ebar = n, i_init = n + 1, i_d = n + 3, i_sy0 = n + 4, i_u = n + 5, i_del = n + 6;
@@ -114,7 +113,7 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
             old = revived;
         }
         if (was_deleted) {
-            for (int i = 0; i < n; ++i) s[i] = 0.0;
+            for (int i = 0; i < n; ++i) s[i] = flaw == JCB_DELETED_STRESS ? s0[i] : 0.0;
             for (int k = 0; k < ns; ++k) st[k] = old[k];
             energy[p] = energy_start[p];
             deleted[p] = 1;
@@ -142,7 +141,7 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
         jc_update(&call, pp, strain + p * n, de, &temperature, old, s, st, tangent, dsdt,
                   &point_energy, &point_report, 1);
         if (point_report.status != TC_STATUS_OK) {
-            jcb_fail(report, p, point_report.message[0] != '\0' ? point_report.message
+            tc_block_fail(report, p, point_report.message[0] != '\0' ? point_report.message
                                                                 : "johnson-cook-block: the point update failed");
             return;
         }
@@ -159,6 +158,16 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
             }
         }
         for (int i = 0; i < n; ++i) s[i] *= 1.0 - d;
+        if (flaw == JCB_UNCLIPPED_TEMPERATURE && tc_re(st[i_ebar]) > tc_re(old[i_ebar])) {
+            const double ts = (c.temperature - tc_re(properties[7])) / (tc_re(properties[8]) - tc_re(properties[7]));
+            if (ts < 0.0) {
+                const double factor = 1.0 - pow(ts, tc_re(properties[6]));
+                for (int i = 0; i < n; ++i) s[i] *= factor;
+            }
+        }
+        if (flaw == JCB_DELETED_STRESS && now_deleted) {
+            for (int i = 0; i < n; ++i) s[i] = s0[i];
+        }
         st[i_d] = d;
         st[i_sy0] = sy0;
         st[i_u] = u;
@@ -186,3 +195,5 @@ JC_BLOCK_VARIANT(c_jc_block, JCB_CORRECT)
 JC_BLOCK_VARIANT(c_jc_block_revived, JCB_REVIVED)
 JC_BLOCK_VARIANT(c_jc_block_unguarded_rate, JCB_UNGUARDED_RATE)
 JC_BLOCK_VARIANT(c_jc_block_wrong_temperature, JCB_WRONG_TEMPERATURE)
+JC_BLOCK_VARIANT(c_jc_block_deleted_stress, JCB_DELETED_STRESS)
+JC_BLOCK_VARIANT(c_jc_block_unclipped_temperature, JCB_UNCLIPPED_TEMPERATURE)

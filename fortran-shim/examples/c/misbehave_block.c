@@ -8,6 +8,8 @@
  *   mb_block_writes_input   writes its read-only strain_increment
  *   mb_block_unwritten      leaves the energy of the last point unwritten
  *   mb_block_crash          dereferences a null pointer in the last point
+ *   mb_block_overread       adds a little of the next point's strain increment to each
+ *                           point's stress, the last point's read past strain_increment
  */
 #include <stddef.h>
 
@@ -85,4 +87,15 @@ TC_BLOCK_ROUTINE(mb_block_crash)
     elastic(ARGS, 0);
     volatile tc_real *nowhere = NULL;
     if (block->npoints > 0) stress[0] = nowhere[block->npoints];
+}
+
+TC_BLOCK_ROUTINE(mb_block_overread)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+    const int n = block->ncomp;
+    for (int p = 0; p < block->npoints; ++p) stress[p * n] += 1.0e-3 * strain_increment[(p + 1) * n];
 }

@@ -4,7 +4,10 @@
 //! zones after the outputs the canary (a write past the end), the inputs must equal the
 //! caller's (a write to a read-only input), and in a successful call no output may still hold
 //! the signalling NaN it arrived with (an output left unwritten). The first finding of a kind
-//! and array ends the call with `Fault::Misbehaved`.
+//! and array ends the call with `Fault::Misbehaved`. At the full guard level every call runs
+//! again with the other poison after the read-only arrays: when the outputs change, the routine
+//! reads past the end of one of them, and calls with one zone changed at a time name it (a
+//! repeat with the first poison tells this from a routine that does not repeat itself).
 
 use num_complex::Complex64;
 use tancheck_core::block::{BlockCall, BlockInput, BlockOutcome, BlockOutput, Conditions, SpecificEnergy};
@@ -21,7 +24,11 @@ const REPORT_CANARY: u8 = 0xA5;
 /// An element type of the block arrays: f64 or Complex64.
 pub(crate) trait Element: Copy {
     fn fill(bits: u64) -> Self;
-    fn poison() -> Self;
+    /// The poison after the read-only arrays: one of two values (`which` 0 or 1).
+    fn poison_of(which: usize) -> Self;
+    fn poison() -> Self {
+        Self::poison_of(0)
+    }
     fn same(a: Self, b: Self) -> bool;
 }
 
@@ -29,8 +36,8 @@ impl Element for f64 {
     fn fill(bits: u64) -> Self {
         f64::from_bits(bits)
     }
-    fn poison() -> Self {
-        POISON[0]
+    fn poison_of(which: usize) -> Self {
+        POISON[which & 1]
     }
     fn same(a: Self, b: Self) -> bool {
         a.to_bits() == b.to_bits()
@@ -41,8 +48,8 @@ impl Element for Complex64 {
     fn fill(bits: u64) -> Self {
         Complex64::new(f64::from_bits(bits), f64::from_bits(bits))
     }
-    fn poison() -> Self {
-        Complex64::new(POISON[0], POISON[1])
+    fn poison_of(which: usize) -> Self {
+        Complex64::new(POISON[which & 1], POISON[1 - (which & 1)])
     }
     fn same(a: Self, b: Self) -> bool {
         a.re.to_bits() == b.re.to_bits() && a.im.to_bits() == b.im.to_bits()
@@ -61,7 +68,7 @@ pub(crate) const NAMES: [&str; 9] = [
     "state",
     "energy",
 ];
-const N_INPUTS: usize = 6;
+pub(crate) const N_INPUTS: usize = 6;
 
 #[repr(C)]
 struct GuardedReport {
@@ -78,15 +85,16 @@ pub(crate) struct BlockGuards<S> {
     deleted: Vec<i32>,
     report: Box<GuardedReport>,
     npoints: usize,
+    /// Which poison each read-only zone holds in this call (index 6: the conditions').
+    poison: [usize; N_INPUTS + 1],
+    /// The outputs of the first call at the full level, to compare the reruns with.
+    saved: Vec<S>,
+    saved_deleted: Vec<i32>,
 }
 
-fn poison_conditions() -> Conditions {
-    Conditions {
-        temperature: POISON[0],
-        temperature_increment: POISON[1],
-        density: POISON[0],
-        characteristic_length: POISON[1],
-    }
+fn poison_conditions(which: usize) -> Conditions {
+    let (a, b) = (POISON[which & 1], POISON[1 - (which & 1)]);
+    Conditions { temperature: a, temperature_increment: b, density: a, characteristic_length: b }
 }
 
 /// First index where `ok` fails, and how many do.
@@ -115,7 +123,43 @@ impl<S: Element> BlockGuards<S> {
                 zone: [REPORT_CANARY; REPORT_ZONE],
             }),
             npoints: 0,
+            poison: [0; N_INPUTS + 1],
+            saved: Vec::new(),
+            saved_deleted: Vec::new(),
         }
+    }
+
+    /// The poison of the next `load`: `which` after every read-only array, or after the one
+    /// array `only` (an index of [`NAMES`] below 6, or 6 for the conditions) and the first
+    /// poison elsewhere.
+    pub(crate) fn set_poison(&mut self, which: usize, only: Option<usize>) {
+        match only {
+            None => self.poison = [which; N_INPUTS + 1],
+            Some(k) => {
+                self.poison = [0; N_INPUTS + 1];
+                self.poison[k] = which;
+            }
+        }
+    }
+
+    /// The outputs of this call, bit for bit: kept (`save`) or compared with those kept.
+    fn outputs(&self) -> (&[S], &[i32]) {
+        (&self.data[self.start[6]..self.start[8] + self.len[8]], &self.deleted[..self.npoints])
+    }
+
+    pub(crate) fn save(&mut self) {
+        let end = self.start[8] + self.len[8];
+        self.saved.clear();
+        self.saved.extend_from_slice(&self.data[self.start[6]..end]);
+        self.saved_deleted.clear();
+        self.saved_deleted.extend_from_slice(&self.deleted[..self.npoints]);
+    }
+
+    pub(crate) fn same_as_saved(&self) -> bool {
+        let (v, d) = self.outputs();
+        v.len() == self.saved.len()
+            && v.iter().zip(&self.saved).all(|(a, b)| S::same(*a, *b))
+            && d == self.saved_deleted
     }
 
     /// Lay the buffer out for `lens` (allocates only when it grows).
@@ -130,7 +174,7 @@ impl<S: Element> BlockGuards<S> {
             self.data.resize(at, S::poison());
         }
         if self.conditions.len() < npoints + ZONE {
-            self.conditions.resize(npoints + ZONE, poison_conditions());
+            self.conditions.resize(npoints + ZONE, poison_conditions(0));
             self.deleted.resize(npoints + ZONE, DELETED_CANARY);
         }
         self.npoints = npoints;
@@ -176,14 +220,14 @@ impl<S: Element> BlockGuards<S> {
         }
         for k in 0..9 {
             let e = self.start[k] + self.len[k];
-            let z = if k < N_INPUTS { S::poison() } else { S::fill(CANARY_BITS) };
+            let z = if k < N_INPUTS { S::poison_of(self.poison[k]) } else { S::fill(CANARY_BITS) };
             self.data[e..e + ZONE].fill(z);
             if k >= N_INPUTS {
                 self.slot(k).fill(S::fill(PREFILL_BITS));
             }
         }
         self.conditions[..n].copy_from_slice(i.conditions);
-        self.conditions[n..n + ZONE].fill(poison_conditions());
+        self.conditions[n..n + ZONE].fill(poison_conditions(self.poison[N_INPUTS]));
         self.deleted[..n].fill(DELETED_PREFILL);
         self.deleted[n..n + ZONE].fill(DELETED_CANARY);
         self.report.report = *o.outcome;
@@ -237,7 +281,7 @@ impl<S: Element> BlockGuards<S> {
             return Some("wrote to its read-only block description (tc_block); it must only read it".into());
         }
         for (k, name) in NAMES.iter().enumerate() {
-            let z = if k < N_INPUTS { S::poison() } else { S::fill(CANARY_BITS) };
+            let z = if k < N_INPUTS { S::poison_of(self.poison[k]) } else { S::fill(CANARY_BITS) };
             if let Some((f, c)) = mismatch(self.zone(k), |x| S::same(x, z)) {
                 return Some(overrun(name, self.len[k], f, c));
             }
@@ -245,7 +289,7 @@ impl<S: Element> BlockGuards<S> {
         if self.deleted[n..n + ZONE].iter().any(|&d| d != DELETED_CANARY) {
             return Some(overrun("deleted", n, 0, 1));
         }
-        if self.conditions[n..n + ZONE].iter().any(|c| c != &poison_conditions()) {
+        if self.conditions[n..n + ZONE].iter().any(|c| c != &poison_conditions(self.poison[N_INPUTS])) {
             return Some(overrun("conditions", n, 0, 1));
         }
         if self.report.zone.iter().any(|&b| b != REPORT_CANARY) {

@@ -5,7 +5,9 @@
 use std::ffi::CString;
 
 use num_complex::Complex64;
-use tancheck_core::block::{BlockCall, BlockInfo, BlockInput, BlockOutput, BlockRoutine, BLOCK_ABI_VERSION};
+use tancheck_core::block::{
+    block_status, BlockCall, BlockInfo, BlockInput, BlockOutput, BlockRoutine, BLOCK_ABI_VERSION,
+};
 use tancheck_core::Fault;
 
 use crate::error::LoadError;
@@ -184,16 +186,81 @@ fn call_with<S: Element>(
         unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
         return Ok(None);
     }
-    let sent = *call;
-    let mut args = guards.load(i, o);
-    let guarded_call = *call;
-    args.block = &guarded_call;
-    args.label = label.as_ptr();
-    args.fp_traps = i32::from(fp_traps);
-    // SAFETY: as above; the guarded buffer holds every array at the announced length, each
-    // followed by its zone, and lives in `guards` across the call.
-    unsafe { call::call_block(f, &args, complex) }.map_err(guard::Crash::into_fault)?;
-    Ok(guards.unload(i, o, &guarded_call, &sent))
+    let g = Guarded { f, complex, label, fp_traps, call };
+    let found = g.once(guards, 0, None, i, o)?;
+    if level != GuardLevel::Full || found.is_some() || o.outcome.status != block_status::OK {
+        return Ok(found);
+    }
+    // Full: again with the other poison after every read-only array; outputs that change read
+    // past an end. Only when they do: one zone at a time names the array, and a repeat with the
+    // first poison tells it from a routine that does not repeat itself.
+    guards.save();
+    if let Some(w) = g.once(guards, 1, None, i, o)? {
+        return Ok(Some(w));
+    }
+    if guards.same_as_saved() {
+        return Ok(None);
+    }
+    g.once(guards, 0, None, i, o)?;
+    if !guards.same_as_saved() {
+        return Ok(Some(
+            "returned other outputs for the same inputs in two calls in a row: it keeps something of its own \
+             between calls (a saved variable, an uninitialised local) that the solver does not pass in"
+                .into(),
+        ));
+    }
+    let named = (0..=guards::N_INPUTS).find_map(|k| match g.once(guards, 1, Some(k), i, o) {
+        Err(e) => Some(Err(e)),
+        Ok(_) if !guards.same_as_saved() => Some(Ok(guards::NAMES.get(k).copied().unwrap_or("conditions"))),
+        Ok(_) => None,
+    });
+    // The caller gets the outputs of the first poison.
+    g.once(guards, 0, None, i, o)?;
+    Ok(Some(match named.transpose()? {
+        Some(name) => format!(
+            "reads past the end of its read-only input {name}: its outputs change with the values after the \
+             last entry; check the loop bounds and npoints, ncomp, nstate of tc_block"
+        ),
+        None => {
+            "reads past the end of its read-only inputs: its outputs change with the values after them".into()
+        }
+    }))
+}
+
+/// What stays the same in the guarded calls of one call.
+struct Guarded<'a> {
+    f: BlockFn,
+    complex: bool,
+    label: &'a CString,
+    fp_traps: bool,
+    call: &'a BlockCall,
+}
+
+impl Guarded<'_> {
+    /// One call through the memory guards, poison `which` after the read-only arrays (after
+    /// the one array `only`, when given).
+    fn once<S: Element>(
+        &self,
+        guards: &mut BlockGuards<S>,
+        which: usize,
+        only: Option<usize>,
+        i: &BlockInput<'_, S>,
+        o: &mut BlockOutput<'_, S>,
+    ) -> Result<Option<String>, Fault> {
+        guards.set_poison(which, only);
+        o.outcome.reset();
+        let sent = *self.call;
+        let mut args = guards.load(i, o);
+        let guarded_call = *self.call;
+        args.block = &guarded_call;
+        args.label = self.label.as_ptr();
+        args.fp_traps = i32::from(self.fp_traps);
+        // SAFETY: `f` has the block ABI's signature (looked up by name); the guarded buffer holds
+        // every array at the announced length, each followed by its zone, and lives in `guards`
+        // across the call.
+        unsafe { call::call_block(self.f, &args, self.complex) }.map_err(guard::Crash::into_fault)?;
+        Ok(guards.unload(i, o, &guarded_call, &sent))
+    }
 }
 
 impl BlockRoutine for LibraryBlockRoutine {

@@ -1,102 +1,32 @@
-//! Views of a [`BlockReport`]: readable text for the terminal, and JSON.
+//! The body of a block report's JSON document ([`BlockDocument`], kind `block`), written by
+//! the JSON reporter and described by the report schema.
 
-use std::io::{self, Write};
-
+use schemars::JsonSchema;
+use serde::Serialize;
 use tancheck_core::block::BlockReport;
 
-use super::terminal::Detail;
-
-/// The readable view.
-pub struct BlockTerminal {
-    pub detail: Detail,
+/// The body of a block report's JSON document (kind `block`): the report with its verdict.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct BlockDocument {
+    /// Always "block": the routine has the block interface.
+    pub interface: String,
+    pub passed: bool,
+    /// The first finding's name, or "none".
+    pub finding: String,
+    /// 0 pass, 1 a finding, 3 a call failed or crashed.
+    pub exit_code: i32,
+    #[serde(flatten)]
+    pub report: BlockReport,
 }
 
-impl BlockTerminal {
-    pub fn write(&self, r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
-        writeln!(out, "tancheck: block routine {}", r.routine)?;
-        writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
-        let e = &r.elastic;
-        writeln!(
-            out,
-            "   elastic response (first call): dilatational modulus {:.6e}, wave speed {:.6e}, stable time \
-             increment L/c {:.6e}",
-            e.dilatational_modulus, e.wave_speed, e.stable_time_increment
-        )?;
-        if self.detail == Detail::Verbose {
-            writeln!(
-                out,
-                "   {:>4}  {:>13}  {:>12}  {:>12}  {:>13}  {:>13}  {:>13}  {:>8}",
-                "inc",
-                "eff. modulus",
-                "wave speed",
-                "L/c",
-                "work/mass",
-                "Δ internal",
-                "Δ dissipated",
-                "twin Δ"
-            )?;
-            for i in &r.increments {
-                writeln!(
-                    out,
-                    "   {:>4}  {:>13.6e}  {:>12.5e}  {:>12.5e}  {:>13.6e}  {:>13.6e}  {:>13.6e}  {:>8}{}",
-                    i.index,
-                    i.effective_modulus,
-                    i.wave_speed,
-                    i.stable_time_increment,
-                    i.work,
-                    i.internal_increment,
-                    i.dissipated_increment,
-                    i.twin_difference.map_or("-".to_string(), |d| format!("{d:.1e}")),
-                    if i.deleted { "  deleted" } else { "" }
-                )?;
-            }
-        } else if let Some(min) = r
-            .increments
-            .iter()
-            .map(|i| i.stable_time_increment)
-            .filter(|x| x.is_finite() && *x > 0.0)
-            .min_by(|a, b| a.total_cmp(b))
-        {
-            writeln!(out, "   smallest stable time increment along the path (tangent): {min:.6e}")?;
+impl BlockDocument {
+    pub fn of(r: &BlockReport) -> BlockDocument {
+        BlockDocument {
+            interface: "block".into(),
+            passed: r.passed(),
+            finding: r.finding().into(),
+            exit_code: r.exit_code(),
+            report: r.clone(),
         }
-        writeln!(out, "   energy rule: {}", r.energy_rule)?;
-        if self.detail != Detail::Quiet {
-            for n in &r.notes {
-                writeln!(out, "   {n}")?;
-            }
-        }
-        for f in &r.findings {
-            let at = f.increment.map_or(String::new(), |k| format!(" (increment {k})"));
-            writeln!(out, "   FAIL {} [{}]{at}: {}", f.finding, f.check.name(), f.what)?;
-        }
-        writeln!(out, "   calls: {} real, {} complex", r.real_calls, r.complex_calls)?;
-        let verdict = match r.exit_code() {
-            0 => "PASS",
-            3 => "ROUTINE FAULT",
-            _ => "FAIL",
-        };
-        writeln!(out, "verdict: {verdict} (exit {}); finding: {}", r.exit_code(), r.finding())?;
-        if self.detail != Detail::Quiet {
-            writeln!(
-                out,
-                "   caution: these checks test the routine's own consistency (independence, energy, deletion, \
-                 stiffness); they do not validate the material model against test data. Structural use \
-                 follows applicable codes and licensed engineering judgement."
-            )?;
-        }
-        Ok(())
     }
-}
-
-/// The JSON view.
-pub fn write_json(r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
-    let mut v = serde_json::to_value(r).map_err(io::Error::other)?;
-    if let Some(o) = v.as_object_mut() {
-        o.insert("interface".into(), "block".into());
-        o.insert("passed".into(), r.passed().into());
-        o.insert("finding".into(), r.finding().into());
-        o.insert("exit_code".into(), r.exit_code().into());
-    }
-    serde_json::to_writer_pretty(&mut *out, &v).map_err(io::Error::other)?;
-    writeln!(out)
 }

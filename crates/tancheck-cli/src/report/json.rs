@@ -87,4 +87,7 @@ impl Reporter for Json<'_> {
     fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
         self.put(Kind::Explore, report)
     }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        self.put(Kind::Block, &super::block::BlockDocument::of(report))
+    }
 }

@@ -200,6 +200,49 @@ pub fn selftest_junit(rows: &[SelftestRow]) -> io::Result<String> {
     to_string(&r)
 }
 
+/// The XML of a block routine's checks: one test suite with a test case per check (its
+/// findings fail it; a failed or crashed call is an error).
+pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> {
+    use tancheck_core::block::BlockCheck;
+    let mut suite = TestSuite::new(format!("tancheck block {}", r.routine));
+    suite.add_property(Property::new("path", r.path.as_str()));
+    suite.add_property(Property::new("finding", r.finding()));
+    suite.add_property(Property::new("energy rule", r.energy_rule));
+    let checks = [
+        BlockCheck::ElasticResponse,
+        BlockCheck::Tangent,
+        BlockCheck::Energy,
+        BlockCheck::Deletion,
+        BlockCheck::Independence,
+        BlockCheck::Rate,
+        BlockCheck::Refinement,
+        BlockCheck::Counterpart,
+        BlockCheck::Call,
+    ];
+    for check in checks {
+        let found: Vec<_> = r.findings.iter().filter(|f| f.check == check).collect();
+        let status = match found.first() {
+            None => TestCaseStatus::success(),
+            Some(f) => {
+                let kind =
+                    if check == BlockCheck::Call { NonSuccessKind::Error } else { NonSuccessKind::Failure };
+                let text: Vec<String> = found
+                    .iter()
+                    .map(|f| match f.increment {
+                        Some(k) => format!("{} (increment {k}): {}", f.finding, f.what),
+                        None => format!("{}: {}", f.finding, f.what),
+                    })
+                    .collect();
+                failure(format!("finding {}", f.finding), kind, Some(text.join("\n")))
+            }
+        };
+        suite.add_test_case(TestCase::new(check.name(), status));
+    }
+    let mut report = JReport::new("tancheck");
+    report.add_test_suite(suite);
+    to_string(&report)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;

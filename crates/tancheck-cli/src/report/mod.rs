@@ -73,6 +73,10 @@ pub trait Reporter {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
+    /// The checks of a block routine (explicit dynamics).
+    fn block(&mut self, _report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        Ok(())
+    }
     fn finish(&mut self) -> io::Result<()> {
         Ok(())
     }
@@ -144,6 +148,9 @@ impl Reporter for Fanout<'_> {
     }
     fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
         self.each(|r| r.explore(report))
+    }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        self.each(|r| r.block(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

@@ -78,6 +78,10 @@ impl Reporter for Pages {
         write(self.html.as_deref(), "the HTML report", || Ok(super::explore_pages::explore_page(report)))?;
         write(self.junit.as_deref(), "the JUnit report", || super::explore_pages::explore_junit(report))
     }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        write(self.html.as_deref(), "the HTML report", || Ok(html::block_page(report)))?;
+        write(self.junit.as_deref(), "the JUnit report", || junit::block_junit(report))
+    }
 
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;

@@ -34,13 +34,14 @@ enum Body {
     FiniteCheck(tancheck_core::finite::check::FiniteReport),
     FiniteProbes(tancheck_core::finite::probe::FiniteProbeReport),
     Explore(tancheck_core::explore::ExploreReport),
+    Block(super::block::BlockDocument),
 }
 
 /// A tancheck report file.
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {

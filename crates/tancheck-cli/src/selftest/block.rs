@@ -4,13 +4,19 @@
 //! from the start stress only (`energy-work-mismatch`), dissipation with the wrong sign
 //! (`dissipation-decreases`), a deleted point revived (`deleted-point-revived`), a rate term not
 //! guarded at zero rate (`zero-rate-not-finite`), the elastic response (wave speed) at the wrong
-//! temperature (`elastic-response-mismatch`).
+//! temperature (`elastic-response-mismatch`), the back stress from the total plastic strain
+//! (`refinement-order`), the plastic corrector added (`stiffer-than-elastic`) or applied twice
+//! (`negative-stiffness`), a deleted point that keeps its stress (`deleted-point-stress`), an
+//! unclipped homologous temperature below room temperature (`non-finite-stiffness`); the
+//! midpoint-rule J2 block passes by the midpoint rule, the trapezoid one is caught by it.
 
 use std::path::Path as FsPath;
 
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, BuildOptions, Library};
-use tancheck_core::block::{self, BlockInfo, BlockReport, BlockRoutine, BlockSettings, Conditions, RateLaw};
+use tancheck_core::block::{
+    self, BlockInfo, BlockReport, BlockRoutine, BlockSettings, Conditions, EnergyRule, RateLaw,
+};
 use tancheck_core::path::{Path, Shape};
 use tancheck_core::{PointKind, Verdict};
 
@@ -26,22 +32,106 @@ const STEEL: [f64; 21] = [
     -2.12, 0.002, 0.61, 0.3, 20.0, 0.99,
 ];
 
-/// (model, symbol without the language prefix, expected finding).
-const J2_ROWS: [(&str, &str, &str); 4] = [
-    ("j2-block", "j2_block", "none"),
-    ("j2-block-neighbour-state", "j2_block_neighbour_state", "point-dependence"),
-    ("j2-block-old-stress-energy", "j2_block_old_stress_energy", "energy-work-mismatch"),
-    ("j2-block-dissipation-sign", "j2_block_dissipation_sign", "dissipation-decreases"),
+/// One row: its label, the model, the symbol without the language prefix, the finding
+/// expected and the check it gets.
+type BlockRow = (&'static str, &'static str, &'static str, &'static str, Check);
+type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
+
+const J2_ROWS: [BlockRow; 9] = [
+    ("j2-block", "j2-block", "j2_block", "none", j2_check),
+    (
+        "j2-block-neighbour-state",
+        "j2-block-neighbour-state",
+        "j2_block_neighbour_state",
+        "point-dependence",
+        j2_check,
+    ),
+    (
+        "j2-block-old-stress-energy",
+        "j2-block-old-stress-energy",
+        "j2_block_old_stress_energy",
+        "energy-work-mismatch",
+        j2_check,
+    ),
+    (
+        "j2-block-dissipation-sign",
+        "j2-block-dissipation-sign",
+        "j2_block_dissipation_sign",
+        "dissipation-decreases",
+        j2_check,
+    ),
+    (
+        "j2-block-total-back-stress",
+        "j2-block-total-back-stress",
+        "j2_block_total_back_stress",
+        "refinement-order",
+        j2_check,
+    ),
+    (
+        "j2-block-corrector-sign",
+        "j2-block-corrector-sign",
+        "j2_block_corrector_sign",
+        "stiffer-than-elastic",
+        j2_check,
+    ),
+    (
+        "j2-block-double-correction",
+        "j2-block-double-correction",
+        "j2_block_double_correction",
+        "negative-stiffness",
+        j2_check,
+    ),
+    (
+        "j2-block-midpoint (midpoint rule)",
+        "j2-block-midpoint",
+        "j2_block_midpoint",
+        "none",
+        j2_midpoint_check,
+    ),
+    ("j2-block (midpoint rule)", "j2-block", "j2_block", "energy-work-mismatch", j2_midpoint_check),
 ];
-const JC_ROWS: [(&str, &str, &str); 4] = [
-    ("johnson-cook-block", "jc_block", "none"),
-    ("johnson-cook-block-revived", "jc_block_revived", "deleted-point-revived"),
-    ("johnson-cook-block-unguarded-rate", "jc_block_unguarded_rate", "zero-rate-not-finite"),
-    ("johnson-cook-block-wrong-temperature", "jc_block_wrong_temperature", "elastic-response-mismatch"),
+const JC_ROWS: [BlockRow; 7] = [
+    ("johnson-cook-block", "johnson-cook-block", "jc_block", "none", jc_check),
+    (
+        "johnson-cook-block-revived",
+        "johnson-cook-block-revived",
+        "jc_block_revived",
+        "deleted-point-revived",
+        jc_check,
+    ),
+    (
+        "johnson-cook-block-unguarded-rate",
+        "johnson-cook-block-unguarded-rate",
+        "jc_block_unguarded_rate",
+        "zero-rate-not-finite",
+        jc_check,
+    ),
+    (
+        "johnson-cook-block-wrong-temperature",
+        "johnson-cook-block-wrong-temperature",
+        "jc_block_wrong_temperature",
+        "elastic-response-mismatch",
+        jc_check,
+    ),
+    (
+        "johnson-cook-block-deleted-stress",
+        "johnson-cook-block-deleted-stress",
+        "jc_block_deleted_stress",
+        "deleted-point-stress",
+        jc_check,
+    ),
+    ("johnson-cook-block (250 K)", "johnson-cook-block", "jc_block", "none", jc_cold_check),
+    (
+        "johnson-cook-block-unclipped-temperature",
+        "johnson-cook-block-unclipped-temperature",
+        "jc_block_unclipped_temperature",
+        "non-finite-stiffness",
+        jc_cold_check,
+    ),
 ];
 
-fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
-    let s = BlockSettings {
+fn j2_settings(rule: EnergyRule) -> BlockSettings {
+    BlockSettings {
         conditions: Conditions {
             temperature: 293.0,
             temperature_increment: 0.0,
@@ -49,20 +139,30 @@ fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
             characteristic_length: 2.0,
         },
         state0: vec![0.0; 13],
+        energy_rule: rule,
         ..BlockSettings::default()
-    };
+    }
+}
+
+fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
+    let s = j2_settings(EnergyRule::Trapezoid);
     block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
 }
 
-/// Into damage and deletion in uniaxial strain (to ε11 = 0.3) and back, at 200/s.
-fn jc_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
+fn j2_midpoint_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
+    let s = j2_settings(EnergyRule::Midpoint);
+    block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
+}
+
+/// Into damage and deletion in uniaxial strain (to ε11 = 0.3) and back, at 200/s, at `temperature`.
+fn jc_check_at(r: &mut dyn BlockRoutine, temperature: f64) -> Result<BlockReport> {
     let mut path = Path::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
     for inc in &mut path.increments {
         inc.dtime = 5e-5;
     }
     let s = BlockSettings {
         conditions: Conditions {
-            temperature: 500.0,
+            temperature,
             temperature_increment: 0.0,
             density: 7.83e-9,
             characteristic_length: 2.0,
@@ -73,6 +173,15 @@ fn jc_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
         ..BlockSettings::default()
     };
     block::run(r, &STEEL, &path, &s).map_err(anyhow::Error::msg)
+}
+
+fn jc_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
+    jc_check_at(r, 500.0)
+}
+
+/// Below the room temperature (T_r 293 K): Johnson & Cook's thermal factor is 1 there.
+fn jc_cold_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
+    jc_check_at(r, 250.0)
 }
 
 fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -> Row {
@@ -92,20 +201,19 @@ fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -
     }
 }
 
-type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
-/// The rows of one family, its check, its source's stem and its number of properties.
-type Family = (&'static [(&'static str, &'static str, &'static str); 4], Check, &'static str, usize);
+/// The rows of one family, its source's stem and its number of properties.
+type Family = (&'static [BlockRow], &'static str, usize);
 
 /// The rows, for Rust, C and (when gfortran is there) Fortran; libraries go to `dir`.
 pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row>> {
     let kind = PointKind::Solid3d;
     let mut rows = Vec::new();
-    let families: [Family; 2] = [(&J2_ROWS, j2_check, "j2_block", 7), (&JC_ROWS, jc_check, "jc_block", 21)];
-    for (table, check, _, _) in families {
-        for (model, _, expected) in table.iter() {
+    let families: [Family; 2] = [(&J2_ROWS, "j2_block", 7), (&JC_ROWS, "jc_block", 21)];
+    for (table, _, _) in families {
+        for (label, model, _, expected, check) in table.iter() {
             let mut m =
                 tancheck_models::block::by_name(model, kind).context("a block model of the zoo")??;
-            rows.push(row(model, "Rust", expected, &check(m.as_mut())?));
+            rows.push(row(label, "Rust", expected, &check(m.as_mut())?));
         }
     }
     let mut languages = vec![("C", "c", "fortran-shim/examples/c/{}.c")];
@@ -113,17 +221,17 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
         languages.push(("Fortran", "f", "fortran-shim/examples/fortran/{}.F90"));
     }
     for (language, prefix, pattern) in languages {
-        for (table, check, source, nprop) in families {
+        for (table, source, nprop) in families {
             let lib_path = dir.join(format!("lib{source}_{prefix}.so"));
             let src = root.join(pattern.replace("{}", source));
             build_library(&BuildOptions::new([src], &lib_path))
                 .with_context(|| format!("building the {language} block rows ({source})"))?;
             let lib = Library::open(&lib_path)?;
-            for (model, sym, expected) in table.iter() {
+            for (label, _, sym, expected, check) in table.iter() {
                 let symbol = format!("{prefix}_{sym}");
                 let info = BlockInfo { name: symbol.clone(), ncomp: 6, nstate: 13, nproperties: nprop };
                 let mut r = lib.block_routine(&symbol, info)?;
-                rows.push(row(model, language, expected, &check(&mut r)?));
+                rows.push(row(label, language, expected, &check(&mut r)?));
             }
         }
     }

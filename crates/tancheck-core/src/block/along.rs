@@ -7,6 +7,7 @@ use num_complex::Complex64;
 use super::report::{BlockCheck, BlockIncrement, BlockReport, ElasticSummary};
 use super::routine::BlockRoutine;
 use super::settings::{BlockSettings, EnergyRule};
+use super::step::BlockStep;
 use super::walk::{BlockBuffers, ComplexPoint};
 
 /// Test strain of the elastic response (its size does not matter: the response is linear).
@@ -109,17 +110,18 @@ const ELASTIC_TOLERANCE: f64 = 1e-5;
 pub fn elastic_consistency(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    first: &(Vec<f64>, f64),
+    first: &BlockStep,
     moduli: &[f64],
     s: &BlockSettings,
     report: &mut BlockReport,
 ) {
     let n = routine.info().ncomp;
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
-    for (x, d) in b.strain_increment.iter_mut().zip(&first.0) {
+    for (x, d) in b.strain_increment.iter_mut().zip(&first.strain_increment) {
         *x = SMALL * d;
     }
-    let dt = SMALL * first.1;
+    b.set_temperature_increment(SMALL * first.temperature_increment);
+    let dt = SMALL * first.time_increment;
     let d = if routine.has_twin() {
         let mut cx = ComplexPoint::new(properties.len(), n, s.state0.len());
         cs_tangent(routine, properties, &b, &mut cx, dt, 1, report)
@@ -232,7 +234,7 @@ fn work(stress: &[f64], de: &[f64], density: f64) -> f64 {
 pub fn walk_one_point(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     moduli: &[f64],
     s: &BlockSettings,
     report: &mut BlockReport,
@@ -248,10 +250,12 @@ pub fn walk_one_point(
     let mut deleted_at: Option<usize> = None;
     let mut half = vec![0.0; n];
     let mut total_work = 0.0;
-    for (k, (de, dt)) in incs.iter().enumerate() {
+    for (k, step) in incs.iter().enumerate() {
+        let (de, dt, dtemp) = (&step.strain_increment, &step.time_increment, step.temperature_increment);
         let index = k + 1;
         let inc = index as i32;
         b.strain_increment.copy_from_slice(de);
+        b.set_temperature_increment(dtemp);
         let mut row = BlockIncrement { index, ..BlockIncrement::default() };
 
         // The numerical tangent: effective moduli, wave speed, stable time increment.
@@ -262,7 +266,9 @@ pub fn walk_one_point(
                 return;
             }
         };
-        let best = if twin {
+        // A non-finite difference quotient is what a solver without the twin sees: reported
+        // as it is, whatever the twin says.
+        let best = if twin && fd.iter().all(|x| x.is_finite()) {
             match cs_tangent(routine, properties, &b, &mut cx, *dt, inc, report) {
                 Ok(d) => {
                     let diff: Vec<f64> = d.iter().zip(&fd).map(|(a, b)| a - b).collect();
@@ -286,6 +292,7 @@ pub fn walk_one_point(
             for (h, d) in b.strain_increment.iter_mut().zip(de) {
                 *h = 0.5 * d;
             }
+            b.set_temperature_increment(0.5 * dtemp);
             report.real_calls += 1;
             if let Err(e) = b.call(routine, properties, 0.5 * dt, inc) {
                 report.add(
@@ -298,6 +305,7 @@ pub fn walk_one_point(
             }
             half.copy_from_slice(&b.stress);
             b.strain_increment.copy_from_slice(de);
+            b.set_temperature_increment(dtemp);
         }
 
         // The increment itself.
@@ -311,7 +319,15 @@ pub fn walk_one_point(
             && b.energy[0].dissipated.is_finite();
         if !finite {
             let what = first_non_finite(&b);
-            report.add(BlockCheck::Call, "non-finite-output", Some(index), what);
+            match deleted_at {
+                Some(at) => report.add(
+                    BlockCheck::Deletion,
+                    "deleted-point-not-finite",
+                    Some(index),
+                    format!("the point was deleted in increment {at}; now {what}"),
+                ),
+                None => report.add(BlockCheck::Call, "non-finite-output", Some(index), what),
+            }
             return;
         }
         row.work = match s.energy_rule {

@@ -6,6 +6,7 @@
 use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
+use super::step::BlockStep;
 use super::walk::BlockBuffers;
 use crate::driver::PointState;
 use crate::path::Path;
@@ -20,7 +21,7 @@ pub fn check(
     point: &mut dyn Routine,
     properties: &[f64],
     path: &Path,
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     tolerance: f64,
     report: &mut BlockReport,
@@ -53,9 +54,12 @@ pub fn check(
     let mut outcome = Outcome::default();
     let mut time = 0.0;
     let mut largest = 0.0f64;
-    for (k, (de, dt)) in incs.iter().enumerate() {
+    let mut temperature = s.conditions.temperature;
+    for (k, step) in incs.iter().enumerate() {
+        let (de, dt, dtemp) = (&step.strain_increment, &step.time_increment, step.temperature_increment);
         let inc = (k + 1) as i32;
         b.strain_increment.copy_from_slice(de);
+        b.set_temperature_increment(dtemp);
         report.real_calls += 1;
         if let Err(e) = b.call(block, properties, *dt, inc) {
             report.notes.push(format!(
@@ -67,7 +71,7 @@ pub fn check(
             props: properties,
             strain: &strain,
             dstrain: de,
-            temp: [s.conditions.temperature, 0.0],
+            temp: [temperature, dtemp],
             stress0: &stress0,
             state0: &state0,
             time: [time, *dt],
@@ -124,6 +128,7 @@ pub fn check(
         state0.copy_from_slice(&state);
         b.advance(*dt);
         time += dt;
+        temperature += dtemp;
     }
     report.notes.push(format!(
         "counterpart: the stresses of {} and of the block routine agree along the path to {largest:.2e} \

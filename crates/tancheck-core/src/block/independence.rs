@@ -5,6 +5,7 @@
 use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
+use super::step::BlockStep;
 use super::walk::BlockBuffers;
 
 /// Scale factors of the neighbours' paths (0: at rest; small: elastic; negative: reversed;
@@ -32,7 +33,7 @@ struct Layout<'a> {
 fn walk(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     layout: Layout<'_>,
     report: &mut BlockReport,
@@ -41,7 +42,9 @@ fn walk(
     let n = routine.info().ncomp;
     let npoints = layout.scales.len();
     let mut b = BlockBuffers::new(npoints, n, &s.state0, s.conditions);
-    for (k, (de, dt)) in incs.iter().enumerate() {
+    for (k, step) in incs.iter().enumerate() {
+        let (de, dt) = (&step.strain_increment, &step.time_increment);
+        b.set_temperature_increment(step.temperature_increment);
         for (p, &scale) in layout.scales.iter().enumerate() {
             let f = if p == layout.at { 1.0 } else { scale };
             for (x, d) in b.increment_of(p).iter_mut().zip(de) {
@@ -69,7 +72,7 @@ fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
 pub fn check(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     report: &mut BlockReport,
 ) {

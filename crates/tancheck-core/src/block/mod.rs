@@ -1,7 +1,8 @@
 //! Block routines (explicit dynamics): the interface of fortran-shim/include/tancheck_block.h
 //! from the Rust side and the checks made for them.
 //!
-//! Data flow: [`routine`] (the call's types, [`BlockRoutine`], [`BlockModel`]) → [`walk`]
+//! Data flow: [`routine`] (the call's types, [`BlockRoutine`], [`BlockModel`]) → [`step`]
+//! (the path's increments as block routines see them) → [`walk`]
 //! (buffers of a block walked along increments) → [`settings`], [`report`] → the checks:
 //! [`along`] (elastic response; along the path of one point: numerical tangent, effective
 //! moduli, wave speed and stable time increment, energy bookkeeping, deletion),
@@ -16,6 +17,7 @@ pub mod report;
 pub mod routine;
 pub mod run;
 pub mod settings;
+pub mod step;
 pub mod walk;
 
 pub use report::{BlockCheck, BlockFinding, BlockIncrement, BlockReport};
@@ -23,5 +25,6 @@ pub use routine::{
     block_status, BlockCall, BlockInfo, BlockInput, BlockModel, BlockModelRoutine, BlockOutcome, BlockOutput,
     BlockRoutine, Conditions, SpecificEnergy, BLOCK_ABI_VERSION, BLOCK_MESSAGE_LEN, ELASTIC_RESPONSE,
 };
-pub use run::{block_increments, run};
+pub use run::run;
 pub use settings::{BlockSettings, EnergyRule, RateLaw};
+pub use step::{block_increments, BlockStep};

@@ -14,6 +14,7 @@
 use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::{BlockSettings, RateLaw};
+use super::step::BlockStep;
 use super::walk::BlockBuffers;
 
 /// The two rates, in multiples of the reference rate.
@@ -37,11 +38,11 @@ fn equivalent_stress(s: &[f64]) -> f64 {
 }
 
 /// The increments up to the first one that turns back (the loading part).
-fn loading(incs: &[(Vec<f64>, f64)]) -> &[(Vec<f64>, f64)] {
-    let first = &incs[0].0;
+fn loading(incs: &[BlockStep]) -> &[BlockStep] {
+    let first = &incs[0].strain_increment;
     let end = incs
         .iter()
-        .position(|(d, _)| d.iter().zip(first).map(|(a, b)| a * b).sum::<f64>() < 0.0)
+        .position(|step| step.strain_increment.iter().zip(first).map(|(a, b)| a * b).sum::<f64>() < 0.0)
         .unwrap_or(incs.len());
     &incs[..end.max(1)]
 }
@@ -51,7 +52,7 @@ fn loading(incs: &[(Vec<f64>, f64)]) -> &[(Vec<f64>, f64)] {
 fn walk(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     rate: Option<f64>,
     report: &mut BlockReport,
@@ -59,12 +60,14 @@ fn walk(
     let n = routine.info().ncomp;
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
     let mut largest = 0.0f64;
-    for (k, (de, dt)) in incs.iter().enumerate() {
+    for (k, step) in incs.iter().enumerate() {
+        let de = &step.strain_increment;
         let dt = match rate {
             Some(r) => (equivalent_strain(de) / r).max(f64::MIN_POSITIVE),
-            None => *dt,
+            None => step.time_increment,
         };
         b.strain_increment.copy_from_slice(de);
+        b.set_temperature_increment(step.temperature_increment);
         report.real_calls += 1;
         b.call(routine, properties, dt, (k + 1) as i32).map_err(|e| format!("increment {}: {e}", k + 1))?;
         if b.stress.iter().any(|x| !x.is_finite()) {
@@ -79,16 +82,17 @@ fn walk(
 pub fn check(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     law: RateLaw,
     s: &BlockSettings,
     report: &mut BlockReport,
 ) {
     let load = loading(incs);
-    let dt = load[0].1.max(f64::MIN_POSITIVE);
+    let dt = load[0].time_increment.max(f64::MIN_POSITIVE);
     // Zero rate: from the start, and after loading.
     let zero = |routine: &mut dyn BlockRoutine, b: &mut BlockBuffers, report: &mut BlockReport, at: &str| {
         b.strain_increment.fill(0.0);
+        b.set_temperature_increment(0.0);
         report.real_calls += 1;
         let r = b.call(routine, properties, dt, 1 + load.len() as i32);
         let what = match r {

@@ -7,6 +7,7 @@
 use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
+use super::step::BlockStep;
 use super::walk::BlockBuffers;
 
 /// Differences below this, relative to the stress scale, are rounding.
@@ -15,7 +16,7 @@ const NOISE: f64 = 1e-9;
 fn walk(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     parts: usize,
     report: &mut BlockReport,
@@ -25,8 +26,10 @@ fn walk(
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
     let mut ends = Vec::with_capacity(incs.len() * n);
     let mut number = 0;
-    for (de, dt) in incs {
+    for step in incs {
+        let (de, dt) = (&step.strain_increment, step.time_increment);
         let h = 1.0 / parts as f64;
+        b.set_temperature_increment(h * step.temperature_increment);
         for _ in 0..parts {
             for (x, d) in b.strain_increment.iter_mut().zip(de) {
                 *x = h * d;
@@ -47,7 +50,7 @@ fn walk(
 pub fn check(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
-    incs: &[(Vec<f64>, f64)],
+    incs: &[BlockStep],
     s: &BlockSettings,
     report: &mut BlockReport,
 ) {

@@ -5,7 +5,7 @@
 use serde::Serialize;
 
 /// The checks of a block routine, by the name reports use.
-#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize)]
+#[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum BlockCheck {
     /// The first call (zero time, zero increment) returns the elastic response.
@@ -45,7 +45,7 @@ impl BlockCheck {
 }
 
 /// One thing a check found wrong.
-#[derive(Clone, Debug, PartialEq, Serialize)]
+#[derive(Clone, Debug, PartialEq, Serialize, schemars::JsonSchema)]
 pub struct BlockFinding {
     pub check: BlockCheck,
     /// The finding's short name (`point-dependence`, `stiffer-than-elastic`, ...).
@@ -57,7 +57,7 @@ pub struct BlockFinding {
 }
 
 /// What the check measured in one increment of the point under test.
-#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, schemars::JsonSchema)]
 pub struct BlockIncrement {
     pub index: usize,
     /// Largest normal diagonal entry of the numerical tangent ∂σ/∂Δε (the dilatational
@@ -84,7 +84,7 @@ pub struct BlockIncrement {
 }
 
 /// The elastic response of the first call.
-#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, schemars::JsonSchema)]
 pub struct ElasticSummary {
     /// Elastic moduli (ncomp × ncomp, column-major), from the first call.
     pub moduli: Vec<f64>,
@@ -95,7 +95,7 @@ pub struct ElasticSummary {
 }
 
 /// The whole result.
-#[derive(Clone, Debug, Default, PartialEq, Serialize)]
+#[derive(Clone, Debug, Default, PartialEq, Serialize, schemars::JsonSchema)]
 pub struct BlockReport {
     pub routine: String,
     pub path: String,

@@ -8,36 +8,8 @@ use super::refine;
 use super::report::BlockReport;
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
+use super::step::block_increments;
 use crate::path::Path;
-
-/// The path's increments in the block routine's order (11, 22, 33, 23, 13, 12 or 11, 22, 33,
-/// 12) with engineering shear, and their time increments.
-pub fn block_increments(path: &Path, ncomp: usize) -> Result<Vec<(Vec<f64>, f64)>, String> {
-    path.validate().map_err(|e| e.to_string())?;
-    let mut out = Vec::with_capacity(path.increments.len());
-    for (k, inc) in path.increments.iter().enumerate() {
-        if inc.hold_stress.is_some() {
-            return Err(format!(
-                "increment {} holds stresses; block routines are checked on strain-controlled paths",
-                k + 1
-            ));
-        }
-        let d = inc.dstrain;
-        let v = match ncomp {
-            6 => vec![d[0], d[1], d[2], 2.0 * d[3], 2.0 * d[4], 2.0 * d[5]],
-            4 if d[3] == 0.0 && d[4] == 0.0 => vec![d[0], d[1], d[2], 2.0 * d[5]],
-            4 => {
-                return Err(format!(
-                    "increment {} has 23 or 13 shear, which a 4-component block routine does not have",
-                    k + 1
-                ))
-            }
-            _ => return Err(format!("block routines have 6 or 4 components, not {ncomp}")),
-        };
-        out.push((v, inc.dtime));
-    }
-    Ok(out)
-}
 
 /// Check a block routine along `path`.
 pub fn run(

@@ -39,7 +39,9 @@ pub struct RateLaw {
 /// Settings of a block check.
 #[derive(Clone, Debug, PartialEq)]
 pub struct BlockSettings {
-    /// The conditions of every point.
+    /// The conditions of every point at the start of the path. Its `temperature_increment`
+    /// is not used: each call's is the path increment's `dtemp`, and the temperature moves on
+    /// by it from increment to increment.
     pub conditions: Conditions,
     /// The routine's start state of every point.
     pub state0: Vec<f64>,

@@ -90,8 +90,19 @@ impl BlockBuffers {
         routine.call(&input, &mut output)
     }
 
-    /// The outputs become the start of the next increment.
+    /// The temperature increment of every point in the next call (the path's `dtemp`).
+    pub fn set_temperature_increment(&mut self, temperature_increment: f64) {
+        for c in &mut self.conditions {
+            c.temperature_increment = temperature_increment;
+        }
+    }
+
+    /// The outputs become the start of the next increment; the temperature moves on by the
+    /// call's temperature increment.
     pub fn advance(&mut self, time_increment: f64) {
+        for c in &mut self.conditions {
+            c.temperature += c.temperature_increment;
+        }
         for (e, d) in self.strain.iter_mut().zip(&self.strain_increment) {
             *e += d;
         }

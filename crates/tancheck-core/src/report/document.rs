@@ -27,6 +27,8 @@ pub enum Kind {
     /// The finite-strain probes.
     FiniteProbes,
     Explore,
+    /// The checks of a block routine (explicit dynamics).
+    Block,
 }
 
 impl Kind {
@@ -41,6 +43,7 @@ impl Kind {
             Kind::FiniteCheck => "finite-check",
             Kind::FiniteProbes => "finite-probes",
             Kind::Explore => "explore",
+            Kind::Block => "block",
         }
     }
 }

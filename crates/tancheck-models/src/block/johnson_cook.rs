@@ -23,11 +23,11 @@
 //!
 //! The flawed variants of the zoo ([`JcBlockFlaw`]) keep everything else.
 
-use tancheck_core::block::{block_status, BlockInfo, BlockInput, BlockModel, BlockOutput};
+use tancheck_core::block::{BlockInfo, BlockInput, BlockModel, BlockOutput};
 use tancheck_core::routine::status;
-use tancheck_core::{CallInput, CallOutput, Fault, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Fault, Model, PointKind, Scalar};
 
-use super::{elastic_response, trapezoid_work};
+use super::{elastic_response, fail_point, point_update, trapezoid_work};
 use crate::{JohnsonCook, ModelError};
 
 /// Properties of the point model.
@@ -46,6 +46,13 @@ pub enum JcBlockFlaw {
     UnguardedRate,
     /// The elastic response (the wave speed) from E at the room temperature, not E(T).
     WrongTemperature,
+    /// A deleted point freezes its last stress (the start stress of the increment that
+    /// deleted it) instead of dropping to zero (`deleted-point-stress`).
+    DeletedStress,
+    /// The thermal factor 1 − T*ᵐ without the clip at T* = 0, on the stress of a yielding
+    /// point: below the room temperature T*ᵐ of a negative T* is not a number in real
+    /// arithmetic (`non-finite-stiffness` at the first plastic increment).
+    UnclippedTemperature,
 }
 
 #[derive(Clone, Debug)]
@@ -60,6 +67,8 @@ impl JcBlock {
     pub const REVIVED_NAME: &'static str = "johnson-cook-block-revived";
     pub const UNGUARDED_RATE_NAME: &'static str = "johnson-cook-block-unguarded-rate";
     pub const WRONG_TEMPERATURE_NAME: &'static str = "johnson-cook-block-wrong-temperature";
+    pub const DELETED_STRESS_NAME: &'static str = "johnson-cook-block-deleted-stress";
+    pub const UNCLIPPED_TEMPERATURE_NAME: &'static str = "johnson-cook-block-unclipped-temperature";
 
     pub fn with_flaw(kind: PointKind, flaw: JcBlockFlaw) -> Result<JcBlock, ModelError> {
         let point = JohnsonCook::new(kind)?;
@@ -69,6 +78,8 @@ impl JcBlock {
             JcBlockFlaw::Revived => JcBlock::REVIVED_NAME,
             JcBlockFlaw::UnguardedRate => JcBlock::UNGUARDED_RATE_NAME,
             JcBlockFlaw::WrongTemperature => JcBlock::WRONG_TEMPERATURE_NAME,
+            JcBlockFlaw::DeletedStress => JcBlock::DELETED_STRESS_NAME,
+            JcBlockFlaw::UnclippedTemperature => JcBlock::UNCLIPPED_TEMPERATURE_NAME,
         };
         let info = BlockInfo { name: name.into(), ncomp, nstate: ncomp + 7, nproperties: NPROPERTIES };
         Ok(JcBlock { point, info, flaw })
@@ -80,6 +91,8 @@ impl JcBlock {
             JcBlock::REVIVED_NAME => JcBlockFlaw::Revived,
             JcBlock::UNGUARDED_RATE_NAME => JcBlockFlaw::UnguardedRate,
             JcBlock::WRONG_TEMPERATURE_NAME => JcBlockFlaw::WrongTemperature,
+            JcBlock::DELETED_STRESS_NAME => JcBlockFlaw::DeletedStress,
+            JcBlock::UNCLIPPED_TEMPERATURE_NAME => JcBlockFlaw::UnclippedTemperature,
             _ => return None,
         };
         Some(JcBlock::with_flaw(kind, flaw))
@@ -90,12 +103,6 @@ impl JcBlock {
 fn modulus<S: Scalar>(p: &[S], temperature: f64) -> S {
     let ts = ((temperature - p[7].re()) / (p[8].re() - p[7].re())).clamp(0.0, 1.0 - 1e-12);
     p[0] * (S::one() - p[NPOINT] * ts)
-}
-
-fn fail_point<S>(output: &mut BlockOutput<'_, S>, p: usize, message: &str) {
-    output.outcome.status = block_status::FAILED;
-    output.outcome.point = p as i32;
-    output.outcome.set_message(message);
 }
 
 /// Von Mises equivalent stress (engineering-order vector: shear entries are tensor shear
@@ -131,9 +138,6 @@ impl BlockModel for JcBlock {
             return Ok(());
         }
         let mut point_props = [S::zero(); NPOINT];
-        let mut tangent = [S::zero(); 36];
-        let mut dsdt = [S::zero(); 6];
-        let mut energy = [S::zero(); 2];
         // Point-model state entries, then the block's.
         let (i_ebar, i_heat) = (n, n + 2);
         let (i_d, i_sy0, i_u, i_del) = (n + 3, n + 4, n + 5, n + 6);
@@ -173,7 +177,11 @@ impl BlockModel for JcBlock {
                     old
                 };
             if was_deleted {
-                output.stress[c].fill(S::zero());
+                if self.flaw == JcBlockFlaw::DeletedStress {
+                    output.stress[c.clone()].copy_from_slice(&input.stress_start[c]);
+                } else {
+                    output.stress[c].fill(S::zero());
+                }
                 output.state[s.clone()].copy_from_slice(old);
                 output.energy[p] = input.energy_start[p];
                 output.deleted[p] = 1;
@@ -189,27 +197,17 @@ impl BlockModel for JcBlock {
                 point_props[3] *= factor;
                 point_props[5] = S::zero();
             }
-            let mut outcome = Outcome::default();
-            let point_in = CallInput {
-                props: &point_props,
-                strain: &input.strain[c.clone()],
-                dstrain: de,
-                temp: [S::cst(t.temperature), S::cst(t.temperature_increment)],
-                stress0: &input.stress_start[c.clone()],
-                state0: &old[..n + 3],
-                time: [input.time, input.time_increment],
-                increment: input.increment,
-                want_tangent: false,
-            };
-            let mut point_out = CallOutput {
-                stress: &mut output.stress[c.clone()],
-                state: &mut output.state[p * ns..p * ns + n + 3],
-                tangent: &mut tangent[..n * n],
-                dstress_dtemp: &mut dsdt[..n],
-                energy: &mut energy,
-                outcome: &mut outcome,
-            };
-            self.point.evaluate(&point_in, &mut point_out)?;
+            let outcome = point_update(
+                &self.point,
+                &point_props,
+                input,
+                p,
+                de,
+                input.time_increment,
+                &old[..n + 3],
+                &mut output.stress[c.clone()],
+                &mut output.state[p * ns..p * ns + n + 3],
+            )?;
             if outcome.status != status::OK {
                 let text = outcome.message_text();
                 fail_point(
@@ -242,6 +240,22 @@ impl BlockModel for JcBlock {
             for x in &mut output.stress[c.clone()] {
                 *x *= keep;
             }
+            if self.flaw == JcBlockFlaw::UnclippedTemperature
+                && yielded(&output.state[s.clone()], old, i_ebar)
+            {
+                // 1 − T*ᵐ at a T* below zero on the stress of a yielding point (the point model
+                // clips T* at zero; above zero its own factor applies).
+                let ts = (t.temperature - props[7].re()) / (props[8].re() - props[7].re());
+                if ts < 0.0 {
+                    let factor = S::cst(1.0 - ts.powf(props[6].re()));
+                    for x in &mut output.stress[c.clone()] {
+                        *x *= factor;
+                    }
+                }
+            }
+            if deleted && self.flaw == JcBlockFlaw::DeletedStress {
+                output.stress[c.clone()].copy_from_slice(&input.stress_start[c.clone()]);
+            }
             let st = &mut output.state[s.clone()];
             st[i_d] = d;
             st[i_sy0] = sy0;
@@ -264,6 +278,11 @@ impl BlockModel for JcBlock {
         }
         Ok(())
     }
+}
+
+/// Whether the point yielded in this call (its equivalent plastic strain grew).
+fn yielded<S: Scalar>(new: &[S], old: &[S], i_ebar: usize) -> bool {
+    new[i_ebar].re() > old[i_ebar].re()
 }
 
 /// Equivalent strain √(2/3 e:e) of an increment (engineering shear halved), for the flawed

@@ -16,21 +16,27 @@ pub mod johnson_cook;
 pub use j2::{BlockFlaw, J2Block};
 pub use johnson_cook::{JcBlock, JcBlockFlaw};
 
-use tancheck_core::block::{BlockModelRoutine, BlockRoutine};
-use tancheck_core::{PointKind, Scalar};
+use tancheck_core::block::{block_status, BlockInput, BlockModelRoutine, BlockOutput, BlockRoutine};
+use tancheck_core::{CallInput, CallOutput, Fault, Model, Outcome, PointKind, Scalar};
 
 use crate::ModelError;
 
 /// Names of the block models, as [`by_name`] accepts them.
-pub const NAMES: [&str; 8] = [
+pub const NAMES: [&str; 14] = [
     J2Block::NAME,
     J2Block::NEIGHBOUR_NAME,
     J2Block::OLD_STRESS_ENERGY_NAME,
     J2Block::DISSIPATION_SIGN_NAME,
+    J2Block::TOTAL_BACK_STRESS_NAME,
+    J2Block::CORRECTOR_SIGN_NAME,
+    J2Block::DOUBLE_CORRECTION_NAME,
+    J2Block::MIDPOINT_NAME,
     JcBlock::NAME,
     JcBlock::REVIVED_NAME,
     JcBlock::UNGUARDED_RATE_NAME,
     JcBlock::WRONG_TEMPERATURE_NAME,
+    JcBlock::DELETED_STRESS_NAME,
+    JcBlock::UNCLIPPED_TEMPERATURE_NAME,
 ];
 
 /// The block model called `name` for a kind of point, as a block routine with its twin; `None`
@@ -68,4 +74,54 @@ pub(crate) fn trapezoid_work<S: Scalar>(stress_start: &[S], stress: &[S], de: &[
         w += (stress_start[i] + stress[i]) * de[i] * 0.5;
     }
     w / density
+}
+
+/// Point `p` of a block through the point model `model` (the return map is not rewritten):
+/// from `state0` over the strain increment `de` in `time_increment`, at the point's
+/// conditions; no tangent asked for. The point model's outcome, whose status the caller reads.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn point_update<S: Scalar, M: Model>(
+    model: &M,
+    props: &[S],
+    input: &BlockInput<'_, S>,
+    p: usize,
+    de: &[S],
+    time_increment: f64,
+    state0: &[S],
+    stress: &mut [S],
+    state: &mut [S],
+) -> Result<Outcome, Fault> {
+    let n = de.len();
+    let c = p * n..(p + 1) * n;
+    let t = input.conditions[p];
+    let (mut tangent, mut dsdt, mut energy) = ([S::zero(); 36], [S::zero(); 6], [S::zero(); 2]);
+    let mut outcome = Outcome::default();
+    let point_in = CallInput {
+        props,
+        strain: &input.strain[c.clone()],
+        dstrain: de,
+        temp: [S::cst(t.temperature), S::cst(t.temperature_increment)],
+        stress0: &input.stress_start[c],
+        state0,
+        time: [input.time, time_increment],
+        increment: input.increment,
+        want_tangent: false,
+    };
+    let mut point_out = CallOutput {
+        stress,
+        state,
+        tangent: &mut tangent[..n * n],
+        dstress_dtemp: &mut dsdt[..n],
+        energy: &mut energy,
+        outcome: &mut outcome,
+    };
+    model.evaluate(&point_in, &mut point_out)?;
+    Ok(outcome)
+}
+
+/// Fail the block call at point `p` (-1: the whole block) with `message`.
+pub(crate) fn fail_point<S>(output: &mut BlockOutput<'_, S>, p: usize, message: &str) {
+    output.outcome.status = block_status::FAILED;
+    output.outcome.point = p as i32;
+    output.outcome.set_message(message);
 }

@@ -8,10 +8,12 @@ use std::fmt::Write as _;
 
 use tancheck_core::report::CAUTIONS;
 
+mod block;
 mod check;
 pub mod plots;
 mod suite;
 
+pub use block::block_page;
 pub use check::check_page;
 pub use suite::{bisect_page, probe_page, selftest_page, BisectView};
 

@@ -10,6 +10,7 @@ use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport
 pub use super::style::Palette;
 use super::Reporter;
 
+pub mod block;
 pub mod campaign;
 pub mod check;
 pub mod commands;
@@ -78,6 +79,9 @@ impl Reporter for Terminal<'_> {
     }
     fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
         explore::write(&mut self.out, report, self.detail, self.palette)
+    }
+    fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
+        block::BlockTerminal { detail: self.detail, palette: self.palette }.write(report, &mut self.out)
     }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()

@@ -1,0 +1,128 @@
+//! The HTML page of a block routine's checks: the verdict and findings, the elastic response
+//! and the stable time increment along the path (a plot), the notes of each check, a row per
+//! increment, and the cautions.
+
+use std::fmt::Write as _;
+
+use tancheck_core::block::BlockReport;
+use tancheck_core::probe::ProbeSeries;
+
+use super::{badge, cautions, esc, figure, footer, page, plots, sci};
+
+fn verdict_word(r: &BlockReport) -> &'static str {
+    match r.exit_code() {
+        0 => "PASS",
+        3 => "ROUTINE FAULT",
+        _ => "FAIL",
+    }
+}
+
+/// L/c per increment from the numerical tangent, against the elastic response's.
+fn time_increments(r: &BlockReport) -> Option<String> {
+    let tangent: Vec<[f64; 2]> = r
+        .increments
+        .iter()
+        .map(|i| [i.index as f64, i.stable_time_increment])
+        .filter(|p| p[1] > 0.0)
+        .collect();
+    if tangent.is_empty() {
+        return None;
+    }
+    let last = r.increments.last().map_or(1.0, |i| i.index as f64);
+    let series = [
+        ProbeSeries {
+            name: "L/c of the numerical tangent".into(),
+            x: "increment".into(),
+            y: "stable time increment L/c".into(),
+            log_y: true,
+            points: tangent,
+        },
+        ProbeSeries {
+            name: "L/c of the elastic response (first call)".into(),
+            x: "increment".into(),
+            y: "stable time increment L/c".into(),
+            log_y: true,
+            points: vec![[1.0, r.elastic.stable_time_increment], [last, r.elastic.stable_time_increment]],
+        },
+    ];
+    plots::probe_series("Stable time increment along the path", &series)
+}
+
+/// The whole page.
+pub fn block_page(r: &BlockReport) -> String {
+    let mut o = String::new();
+    let word = verdict_word(r);
+    let _ = writeln!(o, "<h1>Block routine {} {}</h1>", esc(&r.routine), badge(word));
+    let _ = writeln!(
+        o,
+        "<p>Path <code>{}</code>, {} increments; energy rule: {}; {} real and {} complex-step calls. \
+         Finding: <strong>{}</strong> (exit {}).</p>",
+        esc(&r.path),
+        r.increments.len(),
+        esc(r.energy_rule),
+        r.real_calls,
+        r.complex_calls,
+        esc(r.finding()),
+        r.exit_code()
+    );
+    o.push_str(&cautions(&[]));
+    if !r.findings.is_empty() {
+        o.push_str("<h2>Findings</h2>\n<table>\n<tr><th>finding</th><th>check</th><th>increment</th><th>what</th></tr>\n");
+        for f in &r.findings {
+            let _ = writeln!(
+                o,
+                "<tr class=\"bad\"><td>{}</td><td>{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
+                esc(f.finding),
+                esc(f.check.name()),
+                f.increment.map_or("-".into(), |k| k.to_string()),
+                esc(&f.what)
+            );
+        }
+        o.push_str("</table>\n");
+    }
+    let e = &r.elastic;
+    let _ = writeln!(
+        o,
+        "<h2>Elastic response</h2>\n<p>First call (zero time, zero increment): dilatational modulus {}, \
+         wave speed {}, stable time increment L/c {}.</p>",
+        sci(e.dilatational_modulus),
+        sci(e.wave_speed),
+        sci(e.stable_time_increment)
+    );
+    o.push_str(&figure(
+        time_increments(r),
+        "L/c = characteristic length / sqrt(effective dilatational modulus / density) per increment; \
+         below the elastic line the point is softer than elastic, above it the time increment collapses.",
+        "",
+    ));
+    if !r.notes.is_empty() {
+        o.push_str("<h2>What each check did</h2>\n<ul class=\"plain\">\n");
+        for n in &r.notes {
+            let _ = writeln!(o, "<li>{}</li>", esc(n));
+        }
+        o.push_str("</ul>\n");
+    }
+    o.push_str(
+        "<h2>Increments</h2>\n<table>\n<tr><th>inc</th><th>effective modulus</th><th>wave speed</th>\
+         <th>L/c</th><th>work / mass</th><th>Δ internal</th><th>Δ dissipated</th><th>twin Δ</th><th></th></tr>\n",
+    );
+    for i in &r.increments {
+        let _ = writeln!(
+            o,
+            "<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td>\
+             <td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td></tr>",
+            i.index,
+            sci(i.effective_modulus),
+            sci(i.wave_speed),
+            sci(i.stable_time_increment),
+            sci(i.work),
+            sci(i.internal_increment),
+            sci(i.dissipated_increment),
+            i.twin_difference.map_or("-".into(), sci),
+            if i.deleted { "deleted" } else { "" }
+        );
+    }
+    o.push_str("</table>\n");
+    o.push_str(&footer(concat!("tancheck ", env!("CARGO_PKG_VERSION"))));
+    page(&format!("tancheck block {}", r.routine), &o)
+}

@@ -1,0 +1,104 @@
+//! The readable view of a [`BlockReport`] (the terminal reporter's `block`): the elastic
+//! response, the stable time increments, notes, findings and the verdict.
+
+use std::io::{self, Write};
+
+use tancheck_core::block::BlockReport;
+
+use super::{Detail, Palette};
+
+/// The readable view.
+pub struct BlockTerminal {
+    pub detail: Detail,
+    pub palette: Palette,
+}
+
+impl BlockTerminal {
+    pub fn write(&self, r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
+        writeln!(out, "tancheck: block routine {}", r.routine)?;
+        writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
+        let e = &r.elastic;
+        writeln!(
+            out,
+            "   elastic response (first call): dilatational modulus {:.6e}, wave speed {:.6e}, stable time \
+             increment L/c {:.6e}",
+            e.dilatational_modulus, e.wave_speed, e.stable_time_increment
+        )?;
+        if self.detail == Detail::Verbose {
+            writeln!(
+                out,
+                "   {:>4}  {:>13}  {:>12}  {:>12}  {:>13}  {:>13}  {:>13}  {:>8}",
+                "inc",
+                "eff. modulus",
+                "wave speed",
+                "L/c",
+                "work/mass",
+                "Δ internal",
+                "Δ dissipated",
+                "twin Δ"
+            )?;
+            for i in &r.increments {
+                writeln!(
+                    out,
+                    "   {:>4}  {:>13.6e}  {:>12.5e}  {:>12.5e}  {:>13.6e}  {:>13.6e}  {:>13.6e}  {:>8}{}",
+                    i.index,
+                    i.effective_modulus,
+                    i.wave_speed,
+                    i.stable_time_increment,
+                    i.work,
+                    i.internal_increment,
+                    i.dissipated_increment,
+                    i.twin_difference.map_or("-".to_string(), |d| format!("{d:.1e}")),
+                    if i.deleted { "  deleted" } else { "" }
+                )?;
+            }
+        } else if let Some(min) = r
+            .increments
+            .iter()
+            .map(|i| i.stable_time_increment)
+            .filter(|x| x.is_finite() && *x > 0.0)
+            .min_by(|a, b| a.total_cmp(b))
+        {
+            writeln!(out, "   smallest stable time increment along the path (tangent): {min:.6e}")?;
+        }
+        writeln!(out, "   energy rule: {}", r.energy_rule)?;
+        if self.detail != Detail::Quiet {
+            for n in &r.notes {
+                writeln!(out, "   {n}")?;
+            }
+        }
+        for f in &r.findings {
+            let at = f.increment.map_or(String::new(), |k| format!(" (increment {k})"));
+            writeln!(
+                out,
+                "   {} {} [{}]{at}: {}",
+                self.palette.fail("FAIL"),
+                f.finding,
+                f.check.name(),
+                f.what
+            )?;
+        }
+        writeln!(out, "   calls: {} real, {} complex", r.real_calls, r.complex_calls)?;
+        let verdict = match r.exit_code() {
+            0 => "PASS",
+            3 => "ROUTINE FAULT",
+            _ => "FAIL",
+        };
+        writeln!(
+            out,
+            "verdict: {} (exit {}); finding: {}",
+            self.palette.verdict(verdict),
+            r.exit_code(),
+            r.finding()
+        )?;
+        if self.detail != Detail::Quiet {
+            writeln!(
+                out,
+                "   caution: these checks test the routine's own consistency (independence, energy, deletion, \
+                 stiffness); they do not validate the material model against test data. Structural use \
+                 follows applicable codes and licensed engineering judgement."
+            )?;
+        }
+        Ok(())
+    }
+}
