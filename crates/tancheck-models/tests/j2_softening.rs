@@ -11,7 +11,8 @@ use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
 use tancheck_core::{Model, PointKind};
 use tancheck_models::J2;
-use tancheck_testkit::call::{model_call, Call};
+use tancheck_testkit::call::{model_call, uniaxial_stress_step, Call};
+use tancheck_testkit::tangent::{at, condensed_uniaxial};
 
 #[derive(Clone, Debug)]
 struct Point {
@@ -45,10 +46,6 @@ fn mandel_error(m: &J2, got: &[f64], reference: &[f64]) -> f64 {
     conv.tangent_to_mandel(&mut b);
     let d: f64 = a.iter().zip(&b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
     d / b.iter().map(|y| y * y).sum::<f64>().sqrt()
-}
-
-fn at(t: &[f64], n: usize, i: usize, j: usize) -> f64 {
-    t[i + j * n]
 }
 
 /// Canonical slots (11, 22, 33, 23, 13, 12) of a kind's components.
@@ -199,39 +196,6 @@ fn softening_tangent_is_the_derivative_of_its_update() {
     }
 }
 
-/// One increment in uniaxial stress: Δε22, Δε33 solved for σ22 = σ33 = 0 by Newton with the
-/// model's own tangent (shears stay zero).
-fn uniaxial_stress_step(
-    m: &J2,
-    props: &[f64],
-    strain: &[f64; 6],
-    state: &[f64],
-    d11: f64,
-) -> ([f64; 6], Outputs<f64>) {
-    let nu = props[1];
-    let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
-    for _ in 0..40 {
-        let p = Point {
-            props: props.to_vec(),
-            strain: strain.to_vec(),
-            dstrain: de.to_vec(),
-            state0: state.to_vec(),
-        };
-        let out = run(m, &p);
-        assert_eq!(out.outcome.status, status::OK, "{} at {strain:?} + {de:?}", out.outcome.message_text());
-        let (r2, r3) = (out.stress[1], out.stress[2]);
-        let t = &out.tangent;
-        let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-        let det = a * d - b * c;
-        de[1] -= (d * r2 - b * r3) / det;
-        de[2] -= (a * r3 - c * r2) / det;
-        if r2.abs().max(r3.abs()) <= 1e-12 * out.stress[0].abs() {
-            return (de, out);
-        }
-    }
-    panic!("the uniaxial-stress Newton did not converge");
-}
-
 // Uniaxial elastoplastic modulus E_t = E h/(E + h), h = H_iso + H_kin (REFERENCES.md, derived
 // from the J2 closed form of Simo & Hughes 1998), with h < 0: the slope of the computed
 // σ11–ε11 path and the tangent condensed to uniaxial stress, C11 − C1L C_LL⁻¹ C_L1
@@ -261,12 +225,7 @@ fn uniaxial_softening_modulus_is_e_h_over_e_plus_h() {
             let s11 = out.stress[0];
             if out.outcome.branch == 1 {
                 plastic += 1;
-                let t = &out.tangent;
-                let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-                let det = a * d - b * c;
-                let (c12, c13, c21, c31) = (at(t, 6, 0, 1), at(t, 6, 0, 2), at(t, 6, 1, 0), at(t, 6, 2, 0));
-                let condensed =
-                    at(t, 6, 0, 0) - (c12 * (d * c21 - b * c31) + c13 * (a * c31 - c * c21)) / det;
+                let condensed = condensed_uniaxial(&out.tangent);
                 assert!((condensed - e_t).abs() <= 1e-8 * e_t.abs(), "h {h}: condensed {condensed} vs {e_t}");
                 if let Some((e_prev, s_prev)) = last {
                     let slope = (s11 - s_prev) / (strain[0] - e_prev);

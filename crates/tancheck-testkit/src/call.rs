@@ -273,6 +273,40 @@ pub fn model_complex_tangent<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
     t
 }
 
+/// One increment of a 6-component model in uniaxial stress from (`strain`, `state`): the
+/// lateral increments Δε22, Δε33 (starting at −ν Δε11 with ν = `props[1]`) are solved for
+/// σ22 = σ33 = 0 by Newton with the model's own tangent; shears stay zero. The increment
+/// found and the outputs of the converged call; panics when a call fails or Newton does not
+/// converge in 40 steps.
+#[track_caller]
+pub fn uniaxial_stress_step<M: Model>(
+    m: &M,
+    props: &[f64],
+    strain: &[f64; 6],
+    state: &[f64],
+    d11: f64,
+) -> ([f64; 6], Outputs<f64>) {
+    use crate::tangent::at;
+    let nu = props[1];
+    let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
+    let c = Call::new(props, 6, state.len()).strain(strain).state0(state);
+    for _ in 0..40 {
+        let out = model_call(m, &c, &de, [20.0, 0.0]).expect("the sizes match");
+        let o = &out.outcome;
+        assert_eq!(o.status, 0, "{} at {strain:?} + {de:?}", o.message_text());
+        let (r2, r3) = (out.stress[1], out.stress[2]);
+        let t = &out.tangent;
+        let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
+        let det = a * d - b * c;
+        de[1] -= (d * r2 - b * r3) / det;
+        de[2] -= (a * r3 - c * r2) / det;
+        if r2.abs().max(r3.abs()) <= 1e-12 * out.stress[0].abs() {
+            return (de, out);
+        }
+    }
+    panic!("the uniaxial-stress Newton did not converge");
+}
+
 /// Allocations made by `calls` evaluations of model `m` on `c` in scalar type `S` (every
 /// buffer made beforehand, so only the calls count), and the outcome of the last call. Needs
 /// [`counting_allocator!`](crate::counting_allocator) in the test binary.
