@@ -251,6 +251,17 @@ pub fn dual_tangent<M: Model>(m: &M, c: &Call) -> (Vec<f64>, Vec<i32>) {
     (t, branches)
 }
 
+/// ∂σ/∂ΔT of a model by num-dual: one call with the temperature increment carrying the unit
+/// dual part (the strain increment real).
+#[track_caller]
+pub fn dual_dtemp<M: Model>(m: &M, c: &Call) -> Vec<f64> {
+    let de: Vec<Dual64> = c.dstrain.iter().map(|&x| Dual64::from_re(x)).collect();
+    let temp = [Dual64::from_re(c.temp[0]), Dual64::new(c.temp[1], 1.0)];
+    let out = model_call(m, c, &de, temp).expect("dual call");
+    assert_eq!(out.outcome.status, 0, "dual call failed: {}", out.outcome.message_text());
+    out.stress.iter().map(|s| s.eps).collect()
+}
+
 /// ∂σ/∂Δε of a model by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998), one call
 /// per column; column-major.
 #[track_caller]
@@ -305,6 +316,15 @@ pub fn uniaxial_stress_step<M: Model>(
         }
     }
     panic!("the uniaxial-stress Newton did not converge");
+}
+
+/// ∂σ/∂ΔT of a model by the complex step Im σ(ΔT + i h)/h (Squire & Trapp 1998), one call.
+#[track_caller]
+pub fn model_complex_dtemp<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
+    let de: Vec<Complex64> = c.dstrain.iter().map(|&x| Complex64::new(x, 0.0)).collect();
+    let temp = [Complex64::new(c.temp[0], 0.0), Complex64::new(c.temp[1], h)];
+    let out = model_call(m, c, &de, temp).expect("complex call");
+    out.stress.iter().map(|s| s.im / h).collect()
 }
 
 /// Allocations made by `calls` evaluations of model `m` on `c` in scalar type `S` (every
