@@ -13,6 +13,7 @@ use tancheck_core::{Model, PointKind};
 use tancheck_models::J2;
 use tancheck_testkit::call::{model_call, uniaxial_stress_step, Call};
 use tancheck_testkit::tangent::{at, condensed_uniaxial};
+use tancheck_testkit::tensor::{deviatoric, random_tensor, slots, tensor_norm};
 
 #[derive(Clone, Debug)]
 struct Point {
@@ -48,29 +49,8 @@ fn mandel_error(m: &J2, got: &[f64], reference: &[f64]) -> f64 {
     d / b.iter().map(|y| y * y).sum::<f64>().sqrt()
 }
 
-/// Canonical slots (11, 22, 33, 23, 13, 12) of a kind's components.
-fn slots(n: usize) -> &'static [usize] {
-    if n == 6 {
-        &[0, 1, 2, 3, 4, 5]
-    } else {
-        &[0, 1, 2, 5]
-    }
-}
-
 fn deviatoric_random(rng: &mut StdRng, n: usize) -> [f64; 6] {
-    let mut t = [0.0; 6];
-    for &s in slots(n) {
-        t[s] = rng.gen_range(-1.0..1.0);
-    }
-    let p = (t[0] + t[1] + t[2]) / 3.0;
-    for x in t.iter_mut().take(3) {
-        *x -= p;
-    }
-    t
-}
-
-fn norm(t: &[f64; 6]) -> f64 {
-    (t[0] * t[0] + t[1] * t[1] + t[2] * t[2] + 2.0 * (t[3] * t[3] + t[4] * t[4] + t[5] * t[5])).sqrt()
+    deviatoric(random_tensor(rng, n))
 }
 
 /// A softening variant: H_iso and H_kin as fractions of the point's E, Q as a fraction of
@@ -113,7 +93,7 @@ fn random_point(rng: &mut StdRng, n: usize, s: &Softening) -> Point {
     let alpha = if rng.gen_bool(0.2) { 0.0 } else { rng.gen_range(0.0..alpha_max) };
     // εp deviatoric with √(2/3)‖εp‖ ≤ α, β along εp.
     let d = deviatoric_random(rng, n);
-    let scale = alpha / (2.0f64 / 3.0).sqrt() / norm(&d) * rng.gen_range(0.0..1.0);
+    let scale = alpha / (2.0f64 / 3.0).sqrt() / tensor_norm(&d) * rng.gen_range(0.0..1.0);
     let mut eps_p = [0.0; 6];
     let mut beta = [0.0; 6];
     let kin = 2.0 / 3.0 * h_kin * rng.gen_range(0.5..1.0);
@@ -123,7 +103,7 @@ fn random_point(rng: &mut StdRng, n: usize, s: &Softening) -> Point {
     }
     let m = deviatoric_random(rng, n);
     let r = if rng.gen_bool(0.3) { 1.0 } else { rng.gen_range(0.0..1.0) };
-    let radius = r * (2.0f64 / 3.0).sqrt() * k(alpha) / norm(&m);
+    let radius = r * (2.0f64 / 3.0).sqrt() * k(alpha) / tensor_norm(&m);
     let pressure = rng.gen_range(-2.0..2.0) * sy0;
     let mu = e / (2.0 * (1.0 + nu));
     let bulk = e / (3.0 * (1.0 - 2.0 * nu));
