@@ -60,10 +60,10 @@
 //! (`provides` DSTRESS_DTEMP); no energies are provided.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
+use tancheck_core::{CallInput, CallOutput, PointKind, RoutineInfo, Scalar};
 
 use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
-use crate::j2::{radial_return, return_tangent, solid_slots, trial_state};
+use crate::j2::{radial_return, return_tangent, solid_layout, trial_state};
 use crate::tensor::{is_shear_slot, isotropic_matrix, lame, sqrt_2_3, write_tangent};
 use crate::ModelError;
 
@@ -215,18 +215,8 @@ impl JohnsonCook {
             JcTangent::Consistent => Self::NAME,
             JcTangent::NoRateTerm => Self::NO_RATE_TERM_NAME,
         };
-        let slots = solid_slots(name, kind)?;
-        let ncomp = slots.len();
-        Ok(JohnsonCook {
-            info: RoutineInfo {
-                name: name.to_string(),
-                convention: Convention::new(kind, ShearMeasure::Engineering),
-                nstate: ncomp + 3,
-                nprop: Self::PROP_NAMES.len(),
-            },
-            tangent,
-            slots,
-        })
+        let (slots, info) = solid_layout(name, kind, |ncomp| ncomp + 3, Self::PROP_NAMES.len())?;
+        Ok(JohnsonCook { info, tangent, slots })
     }
 
     /// The tangent this model returns.

@@ -7,19 +7,43 @@ use num_dual::Dual64;
 use tancheck_core::driver::Outputs;
 use tancheck_core::{CallInput, Fault, Model, Outcome, Routine, Scalar};
 
-/// The real inputs of one call, owned. [`Call::new`] starts from zero strain, increment,
-/// stress and state at 20 °C with a unit time increment.
+/// The inputs of one call in scalar type `S`, owned: [`Call`] (real) or [`ComplexCall`] (the
+/// twin's).
 #[derive(Clone, Debug, PartialEq)]
-pub struct Call {
-    pub props: Vec<f64>,
-    pub strain: Vec<f64>,
-    pub dstrain: Vec<f64>,
-    pub stress0: Vec<f64>,
-    pub state0: Vec<f64>,
+pub struct Inputs<S> {
+    pub props: Vec<S>,
+    pub strain: Vec<S>,
+    pub dstrain: Vec<S>,
+    pub stress0: Vec<S>,
+    pub state0: Vec<S>,
     /// Temperature at the start and its increment.
-    pub temp: [f64; 2],
+    pub temp: [S; 2],
     /// Time at the start and the time increment.
     pub time: [f64; 2],
+}
+
+/// The real inputs of one call. [`Call::new`] starts from zero strain, increment, stress
+/// and state at 20 °C with a unit time increment.
+pub type Call = Inputs<f64>;
+
+/// The complex inputs of one call (the twin's).
+pub type ComplexCall = Inputs<Complex64>;
+
+impl<S: Copy> Inputs<S> {
+    /// The call's inputs (increment 1).
+    pub fn input(&self, want_tangent: bool) -> CallInput<'_, S> {
+        CallInput {
+            props: &self.props,
+            strain: &self.strain,
+            dstrain: &self.dstrain,
+            temp: self.temp,
+            stress0: &self.stress0,
+            state0: &self.state0,
+            time: self.time,
+            increment: 1,
+            want_tangent,
+        }
+    }
 }
 
 impl Call {
@@ -59,60 +83,21 @@ impl Call {
         self
     }
 
-    /// The call's inputs (increment 1).
-    pub fn input(&self, want_tangent: bool) -> CallInput<'_, f64> {
-        CallInput {
-            props: &self.props,
-            strain: &self.strain,
-            dstrain: &self.dstrain,
-            temp: self.temp,
-            stress0: &self.stress0,
-            state0: &self.state0,
-            time: self.time,
-            increment: 1,
-            want_tangent,
-        }
-    }
-
     /// The inputs of the same call as complex numbers with zero imaginary parts.
     pub fn complex(&self) -> ComplexCall {
-        let z = |v: &[f64]| v.iter().map(|&x| Complex64::new(x, 0.0)).collect::<Vec<_>>();
-        ComplexCall {
-            props: z(&self.props),
-            strain: z(&self.strain),
-            dstrain: z(&self.dstrain),
-            stress0: z(&self.stress0),
-            state0: z(&self.state0),
-            temp: [Complex64::new(self.temp[0], 0.0), Complex64::new(self.temp[1], 0.0)],
-            time: self.time,
-        }
+        self.lifted(&lift(&self.dstrain), self.temp.map(Complex64::cst))
     }
-}
 
-/// The complex inputs of one call (the twin's), owned.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ComplexCall {
-    pub props: Vec<Complex64>,
-    pub strain: Vec<Complex64>,
-    pub dstrain: Vec<Complex64>,
-    pub stress0: Vec<Complex64>,
-    pub state0: Vec<Complex64>,
-    pub temp: [Complex64; 2],
-    pub time: [f64; 2],
-}
-
-impl ComplexCall {
-    pub fn input(&self, want_tangent: bool) -> CallInput<'_, Complex64> {
-        CallInput {
-            props: &self.props,
-            strain: &self.strain,
-            dstrain: &self.dstrain,
-            temp: self.temp,
-            stress0: &self.stress0,
-            state0: &self.state0,
+    /// The same call in scalar type `S`, with the strain and temperature increments given.
+    pub fn lifted<S: Scalar>(&self, dstrain: &[S], temp: [S; 2]) -> Inputs<S> {
+        Inputs {
+            props: lift(&self.props),
+            strain: lift(&self.strain),
+            dstrain: dstrain.to_vec(),
+            stress0: lift(&self.stress0),
+            state0: lift(&self.state0),
+            temp,
             time: self.time,
-            increment: 1,
-            want_tangent,
         }
     }
 }
@@ -208,21 +193,8 @@ pub fn model_call<S: Scalar, M: Model>(
     dstrain: &[S],
     temp: [S; 2],
 ) -> Result<Outputs<S>, Fault> {
-    let (props, strain, stress0, state0) =
-        (lift(&c.props), lift(&c.strain), lift(&c.stress0), lift(&c.state0));
     let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain,
-        temp,
-        stress0: &stress0,
-        state0: &state0,
-        time: c.time,
-        increment: 1,
-        want_tangent: true,
-    };
-    m.evaluate(&input, &mut o.view())?;
+    m.evaluate(&c.lifted(dstrain, temp).input(true), &mut o.view())?;
     Ok(o)
 }
 
@@ -331,20 +303,9 @@ pub fn model_complex_dtemp<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
 /// buffer made beforehand, so only the calls count), and the outcome of the last call. Needs
 /// [`counting_allocator!`](crate::counting_allocator) in the test binary.
 pub fn model_allocations<S: Scalar, M: Model>(m: &M, c: &Call, calls: usize) -> (usize, Outcome) {
-    let (props, strain, dstrain) = (lift::<S>(&c.props), lift::<S>(&c.strain), lift::<S>(&c.dstrain));
-    let (stress0, state0) = (lift::<S>(&c.stress0), lift::<S>(&c.state0));
+    let inputs = c.lifted::<S>(&lift(&c.dstrain), c.temp.map(S::cst));
+    let input = inputs.input(true);
     let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [S::cst(c.temp[0]), S::cst(c.temp[1])],
-        stress0: &stress0,
-        state0: &state0,
-        time: c.time,
-        increment: 1,
-        want_tangent: true,
-    };
     let before = crate::alloc::allocations();
     for _ in 0..calls {
         m.evaluate(&input, &mut o.view()).expect("the sizes match");

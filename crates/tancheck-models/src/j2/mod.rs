@@ -59,18 +59,30 @@ pub struct J2 {
     slots: &'static [usize],
 }
 
-/// The canonical slots of a J2-type model's components for `kind` (the kinds with a 33
-/// component: solid-3d, plane strain, axisymmetric), or the error naming the model.
-pub(crate) fn solid_slots(model: &'static str, kind: PointKind) -> Result<&'static [usize], ModelError> {
-    match kind {
-        PointKind::Solid3d => Ok(&SLOTS_6),
-        PointKind::PlaneStrain | PointKind::Axisymmetric => Ok(&SLOTS_4),
-        _ => Err(ModelError::UnsupportedKind {
-            model,
-            kind,
-            supported: "solid-3d, plane-strain, axisymmetric",
-        }),
-    }
+/// The canonical slots and the info of a J2-type model for `kind` (the kinds with a 33
+/// component: solid-3d, plane strain, axisymmetric; default order, engineering shear), with
+/// `nstate(ncomp)` state variables; or the error naming the model.
+pub(crate) fn solid_layout(
+    model: &'static str,
+    kind: PointKind,
+    nstate: impl Fn(usize) -> usize,
+    nprop: usize,
+) -> Result<(&'static [usize], RoutineInfo), ModelError> {
+    let slots: &'static [usize] = match kind {
+        PointKind::Solid3d => &SLOTS_6,
+        PointKind::PlaneStrain | PointKind::Axisymmetric => &SLOTS_4,
+        _ => {
+            let supported = "solid-3d, plane-strain, axisymmetric";
+            return Err(ModelError::UnsupportedKind { model, kind, supported });
+        }
+    };
+    let info = RoutineInfo {
+        name: model.to_string(),
+        convention: Convention::new(kind, ShearMeasure::Engineering),
+        nstate: nstate(slots.len()),
+        nprop,
+    };
+    Ok((slots, info))
 }
 
 impl J2 {
@@ -99,18 +111,8 @@ impl J2 {
             J2Tangent::Consistent => Self::NAME,
             J2Tangent::Continuum => Self::CONTINUUM_NAME,
         };
-        let slots = solid_slots(name, kind)?;
-        let ncomp = slots.len();
-        Ok(J2 {
-            info: RoutineInfo {
-                name: name.to_string(),
-                convention: Convention::new(kind, ShearMeasure::Engineering),
-                nstate: 2 * ncomp + 1,
-                nprop: 7,
-            },
-            tangent,
-            slots,
-        })
+        let (slots, info) = solid_layout(name, kind, |ncomp| 2 * ncomp + 1, 7)?;
+        Ok(J2 { info, tangent, slots })
     }
 
     /// The tangent this model returns.
