@@ -14,6 +14,7 @@ use tancheck_models::{AnyModel, Thermo, ThermoFlaw};
 use tancheck_testkit::call::{
     dual_dtemp, dual_tangent, model_allocations, model_call, model_complex_dtemp, model_complex_tangent, Call,
 };
+use tancheck_testkit::tangent::{matrix_error, rel_or_exact};
 
 // ---------------------------------------------------------------------------------------
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
@@ -66,28 +67,10 @@ fn norm(v: impl Iterator<Item = f64>) -> f64 {
 /// Relative error of a tangent against a reference in Mandel form (the fourth-order tensor's
 /// Frobenius norm): whole matrix and worst column. A zero reference demands an exact zero.
 fn tangent_error(conv: &Convention, got: &[f64], reference: &[f64]) -> f64 {
-    let n = conv.ncomp();
     let (mut a, mut b) = (got.to_vec(), reference.to_vec());
     conv.tangent_to_mandel(&mut a);
     conv.tangent_to_mandel(&mut b);
-    let rel = |x: &[f64], y: &[f64]| {
-        let d = norm(x.iter().zip(y).map(|(p, q)| p - q));
-        let r = norm(y.iter().copied());
-        if r == 0.0 {
-            if d == 0.0 {
-                0.0
-            } else {
-                f64::INFINITY
-            }
-        } else {
-            d / r
-        }
-    };
-    let mut worst = rel(&a, &b);
-    for j in 0..n {
-        worst = worst.max(rel(&a[j * n..(j + 1) * n], &b[j * n..(j + 1) * n]));
-    }
-    worst
+    matrix_error(conv.ncomp(), &a, &b)
 }
 
 /// Relative error of a stress-like vector (Mandel form). A zero reference demands a zero.
@@ -95,17 +78,7 @@ fn vector_error(conv: &Convention, got: &[f64], reference: &[f64]) -> f64 {
     let (mut a, mut b) = (vec![0.0; got.len()], vec![0.0; got.len()]);
     conv.stress_to_mandel(got, &mut a);
     conv.stress_to_mandel(reference, &mut b);
-    let d = norm(a.iter().zip(&b).map(|(p, q)| p - q));
-    let r = norm(b.iter().copied());
-    if r == 0.0 {
-        if d == 0.0 {
-            0.0
-        } else {
-            f64::INFINITY
-        }
-    } else {
-        d / r
-    }
+    rel_or_exact(&a, &b)
 }
 
 // ---------------------------------------------------------------------------------------

@@ -1,5 +1,6 @@
 //! Pure operations on a returned tangent that several tests read it through: the entry at
-//! (i, j) of a column-major matrix, and the 6 × 6 tangent condensed to uniaxial stress.
+//! (i, j) of a column-major matrix, the 6 × 6 tangent condensed to uniaxial stress, and
+//! relative errors where a zero reference demands an exact zero.
 
 /// Entry (i, j) of a column-major n × n tangent, as routines return it.
 pub fn at(t: &[f64], n: usize, i: usize, j: usize) -> f64 {
@@ -15,6 +16,33 @@ pub fn condensed_uniaxial(t: &[f64]) -> f64 {
     let det = a * d - b * c;
     let (c12, c13, c21, c31) = (at(t, 6, 0, 1), at(t, 6, 0, 2), at(t, 6, 1, 0), at(t, 6, 2, 0));
     at(t, 6, 0, 0) - (c12 * (d * c21 - b * c31) + c13 * (a * c31 - c * c21)) / det
+}
+
+/// ‖a − b‖ / ‖b‖ (Euclidean) where a zero reference demands an exact zero: 0 when both are
+/// zero, ∞ when only the reference is.
+pub fn rel_or_exact(a: &[f64], b: &[f64]) -> f64 {
+    let norm = |v: &mut dyn Iterator<Item = f64>| v.map(|x| x * x).sum::<f64>().sqrt();
+    let d = norm(&mut a.iter().zip(b).map(|(x, y)| x - y));
+    let r = norm(&mut b.iter().copied());
+    if r == 0.0 {
+        if d == 0.0 {
+            0.0
+        } else {
+            f64::INFINITY
+        }
+    } else {
+        d / r
+    }
+}
+
+/// The relative error of a column-major n × n tangent against a reference: the worse of the
+/// whole matrix's and the worst column's ([`rel_or_exact`]).
+pub fn matrix_error(n: usize, got: &[f64], reference: &[f64]) -> f64 {
+    let mut worst = rel_or_exact(got, reference);
+    for j in 0..n {
+        worst = worst.max(rel_or_exact(&got[j * n..(j + 1) * n], &reference[j * n..(j + 1) * n]));
+    }
+    worst
 }
 
 #[cfg(test)]
@@ -37,5 +65,10 @@ mod tests {
         }
         assert!((condensed_uniaxial(&t) - e).abs() < 1e-12 * e);
         assert_eq!(at(&t, 6, 0, 1), lambda);
+        assert_eq!(matrix_error(6, &t, &t), 0.0);
+        assert_eq!(rel_or_exact(&[1.0], &[0.0]), f64::INFINITY);
+        let mut u = t.clone();
+        u[0] *= 1.0 + 1e-6; // one entry of one column: that column's error is the larger
+        assert!(matrix_error(6, &u, &t) > rel_or_exact(&u, &t));
     }
 }
