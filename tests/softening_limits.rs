@@ -14,10 +14,9 @@
 //!
 //! The compiled C and Fortran ply routines run the same probes at the end of the file.
 
-use std::path::{Path as FsPath, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path as FsPath;
 
-use tancheck::abi::{build_library, BuildOptions, Library};
+use tancheck::abi::Library;
 use tancheck::core::path::Path;
 use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
 use tancheck::core::routine::status;
@@ -26,6 +25,7 @@ use tancheck::core::{
     Scalar, Settings,
 };
 use tancheck::models::{Cohesive, Ply, PlyFlaw};
+use tancheck_testkit::libs::build_examples;
 
 mod softening_common;
 use softening_common::{cohesive_path, path, ply_path, ply_props, probe, ForgetfulCohesive, COHESIVE};
@@ -479,27 +479,12 @@ fn snap_back_is_skipped_without_damage_or_growth() {
 // ---------------------------------------------------------------------------------------
 // the compiled C and Fortran ply routines
 
-fn examples() -> PathBuf {
-    FsPath::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, source: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-softlim-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new([examples().join(source)], &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static FsPath {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_c", "c/ply.c"))
+    build_examples("ply_c", &["c/ply.c"])
 }
 
 fn f_lib() -> &'static FsPath {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_f", "fortran/ply.F90"))
+    build_examples("ply_f", &["fortran/ply.F90"])
 }
 
 /// Every softening probe on the compiled correct routine and its flawed variants.
