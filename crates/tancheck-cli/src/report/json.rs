@@ -10,7 +10,7 @@ use tancheck_core::probe::SuiteReport;
 use tancheck_core::report::document::{self, Kind};
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 use super::{write_atomic_with, Reporter};
 
 /// Writes each report it gets as a JSON document to a file (atomically), or to `stdout` for
@@ -66,5 +66,8 @@ impl Reporter for Json<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.put(Kind::Selftest, report)
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        self.put(Kind::Demo, report)
     }
 }

@@ -20,7 +20,7 @@ pub mod schema;
 pub mod style;
 pub mod terminal;
 
-use model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 
 /// A view of reports. One method per report kind, each doing nothing unless the reporter
 /// implements it, so a reporter renders the kinds it knows and a new kind (block routines,
@@ -48,6 +48,10 @@ pub trait Reporter {
     }
     /// The rows of `tancheck selftest`.
     fn selftest(&mut self, _report: &SelftestReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// The routines `tancheck demo` checked, with the verdicts they should get.
+    fn demo(&mut self, _report: &DemoReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -110,6 +114,9 @@ impl Reporter for Fanout<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         self.each(|r| r.selftest(report))
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        self.each(|r| r.demo(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

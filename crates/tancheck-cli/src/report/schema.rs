@@ -7,7 +7,7 @@ use schemars::JsonSchema;
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport};
 
 /// The shipped schema file, relative to the repository root.
 pub const SCHEMA_FILE: &str = "schema/report.schema.json";
@@ -31,13 +31,14 @@ enum Body {
     Replay(ReplayReport),
     Cases(CaseFolderResult),
     Selftest(SelftestReport),
+    Demo(DemoReport),
 }
 
 /// A tancheck report file.
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, demo) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {

@@ -22,6 +22,7 @@ pub enum Kind {
     Replay,
     Cases,
     Selftest,
+    Demo,
 }
 
 impl Kind {
@@ -33,6 +34,7 @@ impl Kind {
             Kind::Replay => "replay",
             Kind::Cases => "cases",
             Kind::Selftest => "selftest",
+            Kind::Demo => "demo",
         }
     }
 }

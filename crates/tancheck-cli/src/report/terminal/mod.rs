@@ -6,12 +6,13 @@ use std::io::{self, Write};
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 pub use super::style::Palette;
 use super::Reporter;
 
 pub mod check;
 pub mod commands;
+pub mod demo;
 
 pub use check::diagnosis;
 
@@ -63,6 +64,9 @@ impl Reporter for Terminal<'_> {
     }
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         commands::selftest(&mut self.out, report, self.detail, self.palette)
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        demo::write(&mut self.out, report, self.detail, self.palette)
     }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()
