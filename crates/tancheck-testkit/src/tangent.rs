@@ -18,6 +18,25 @@ pub fn condensed_uniaxial(t: &[f64]) -> f64 {
     at(t, 6, 0, 0) - (c12 * (d * c21 - b * c31) + c13 * (a * c31 - c * c21)) / det
 }
 
+/// The isotropic elastic stiffness in Voigt form with engineering shear, column-major 6 × 6:
+/// λ + 2μ on the normal diagonal, λ off it, μ on the shear diagonal (Hooke's law; any
+/// elasticity text, e.g. Hughes 2000, ch. 2, from memory).
+pub fn isotropic_stiffness(e: f64, nu: f64) -> [f64; 36] {
+    let mu = e / (2.0 * (1.0 + nu));
+    let lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
+    let mut c = [0.0; 36];
+    for i in 0..3 {
+        for j in 0..3 {
+            c[i + 6 * j] = lambda;
+        }
+        c[i + 6 * i] = lambda + 2.0 * mu;
+    }
+    for i in 3..6 {
+        c[i + 6 * i] = mu;
+    }
+    c
+}
+
 /// ‖a − b‖ / ‖b‖ (Euclidean) where a zero reference demands an exact zero: 0 when both are
 /// zero, ∞ when only the reference is.
 pub fn rel_or_exact(a: &[f64], b: &[f64]) -> f64 {
@@ -55,14 +74,7 @@ mod tests {
     fn isotropic_elasticity_condenses_to_e() {
         let (e, nu) = (200.0, 0.25);
         let lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-        let mu = e / (2.0 * (1.0 + nu));
-        let mut t = vec![0.0; 36];
-        for i in 0..3 {
-            for j in 0..3 {
-                t[i + 6 * j] = lambda + if i == j { 2.0 * mu } else { 0.0 };
-            }
-            t[(i + 3) * 7] = mu;
-        }
+        let t = isotropic_stiffness(e, nu).to_vec();
         assert!((condensed_uniaxial(&t) - e).abs() < 1e-12 * e);
         assert_eq!(at(&t, 6, 0, 1), lambda);
         assert_eq!(matrix_error(6, &t, &t), 0.0);
