@@ -30,8 +30,9 @@ pub struct DemoArgs {
     pub output: OutputArgs,
 }
 
-const C_SOURCES: [(&str, &str); 4] = [
+const C_SOURCES: [(&str, &str); 5] = [
     ("elastic.c", include_str!("../../../fortran-shim/examples/c/elastic.c")),
+    ("isotropic_elastic.h", include_str!("../../../fortran-shim/examples/c/isotropic_elastic.h")),
     ("j2.c", include_str!("../../../fortran-shim/examples/c/j2.c")),
     ("j2_energy.h", include_str!("../../../fortran-shim/examples/c/j2_energy.h")),
     ("j2_return_map.h", include_str!("../../../fortran-shim/examples/c/j2_return_map.h")),
