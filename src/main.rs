@@ -1,3 +1,6 @@
+//! The `tancheck` program: arms the guard's watch, runs the command line
+//! (`tancheck_cli::main_with_args`) and ends the process with its exit code.
+
 fn main() {
     // Arm the guard's watch first: an exit() from a routine's thread or library constructor
     // is a reported fault, and routines cannot write to tancheck's standard output.

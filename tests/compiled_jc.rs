@@ -13,11 +13,10 @@ use std::path::Path;
 
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck::abi::Library;
 use tancheck::core::{PointKind, Routine};
 use tancheck::models::reference;
 use tancheck_testkit::call::{assert_outputs_agree, call, complex_column, rel, Call, Column};
-use tancheck_testkit::libs::build_examples;
+use tancheck_testkit::libs::{beside_compiled, build_examples};
 
 /// Agreement asked of the compiled routines (relative, whole array). Looser than the 1e-12 of
 /// the J2 comparison: the bracketed return map of a step barely past yield from ε̄p = 0 is
@@ -55,11 +54,8 @@ fn compare(
     props: &[f64],
     seed: u64,
 ) -> (usize, usize) {
-    let mut rust = reference(model, kind).unwrap();
+    let (mut rust, mut compiled) = beside_compiled(reference(model, kind).unwrap(), lib, symbol);
     let info = rust.info().clone();
-    let lib = Library::open(lib).unwrap();
-    let mut compiled = lib.routine(symbol, info.clone()).unwrap();
-    assert!(compiled.has_twin(), "{symbol} has its complex twin");
     let n = info.convention.ncomp();
     let mut rng = StdRng::seed_from_u64(seed);
     let (mut elastic, mut plastic) = (0, 0);

@@ -14,26 +14,21 @@
 //!
 //! The compiled C and Fortran ply routines run the same probes at the end of the file.
 
-use std::path::{Path as FsPath, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path as FsPath;
 
-use tancheck::abi::{build_library, BuildOptions, Library};
-use tancheck::core::path::{Path, PathIncrement};
-use tancheck::core::probe::{run_suite, ProbeResult, ProbeSpec, ProbeStatus};
+use tancheck::abi::Library;
+use tancheck::core::path::Path;
+use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
 use tancheck::core::routine::status;
 use tancheck::core::{
     CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, Routine, RoutineInfo,
     Scalar, Settings,
 };
 use tancheck::models::{Cohesive, Ply, PlyFlaw};
+use tancheck_testkit::libs::build_examples;
 
-/// Demo ply (MPa, N/mm, mm), 0° axes: only the roles of the numbers matter here.
-fn ply_props(eta: f64) -> Vec<f64> {
-    vec![
-        138000.0, 11000.0, 11000.0, 0.28, 0.28, 0.4, 5500.0, 5500.0, 3928.57, 1.0, 0.0, 0.0, 0.0, 1.0, 0.0,
-        1500.0, 900.0, 27.0, 200.0, 80.0, 90.0, 80.0, 0.25, 2.0, 0.5, eta,
-    ]
-}
+mod softening_common;
+use softening_common::{cohesive_path, path, ply_path, ply_props, probe, ForgetfulCohesive, COHESIVE};
 
 /// The demo ply with ν12 = ν13 = ν23 = 0: a path of one material strain is a uniaxial stress
 /// in one mode, E_k = C_kk, and the onset energy is X²/(2 E_k).
@@ -43,60 +38,6 @@ fn ply_uncoupled() -> Vec<f64> {
     p[4] = 0.0;
     p[5] = 0.0;
     p
-}
-
-/// Demo interface [K, N, S, G_Ic, G_IIc, η_BK].
-const COHESIVE: [f64; 6] = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
-
-fn path(name: &str, dt: f64, steps: &[([f64; 6], usize)]) -> Path {
-    let mut p = Path { name: name.into(), increments: Vec::new() };
-    for &(d, n) in steps {
-        for _ in 0..n {
-            p.increments.push(PathIncrement { dstrain: d, dtemp: 0.0, dtime: dt, hold_stress: None });
-        }
-    }
-    p
-}
-
-/// Into matrix damage growth with in-plane shear, unload half way, reload past the largest load.
-fn ply_path(dt: f64) -> Path {
-    path(
-        "transverse tension + shear, unload, reload",
-        dt,
-        &[
-            ([1e-4, 6e-4, 0.0, 0.0, 0.0, 5e-4], 8),
-            ([0.0, -8e-4, 0.0, 0.0, 0.0, -5e-4], 3),
-            ([1e-4, 8e-4, 0.0, 0.0, 0.0, 6e-4], 5),
-        ],
-    )
-}
-
-fn cohesive_path(dt: f64) -> Path {
-    path(
-        "mixed-mode opening into growth, closing half way, reopening",
-        dt,
-        &[
-            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 8),
-            ([-3e-4, -2e-4, -1e-4, 0.0, 0.0, 0.0], 4),
-            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 6),
-        ],
-    )
-}
-
-fn probe(routine: &mut dyn Routine, spec: ProbeSpec, props: &[f64], path: &Path) -> ProbeResult {
-    let info = routine.info().clone();
-    let mut caller = Caller::new(routine);
-    let rep = run_suite(
-        &mut caller,
-        "softening",
-        &[spec],
-        props,
-        &PointState::zero(&info, 20.0),
-        path,
-        &Settings::default(),
-    )
-    .unwrap();
-    rep.results.into_iter().next().unwrap()
 }
 
 fn softening(damage: &[usize]) -> ProbeSpec {
@@ -113,26 +54,6 @@ fn snap_back(damage: &[usize], length: Option<usize>, g: f64) -> ProbeSpec {
         length,
         fracture_energy: Some(g),
         ..ProbeSpec::named("snap-back")
-    }
-}
-
-/// The cohesive law with its history forgotten: every call starts from d = 0, so the damage is
-/// that of the current separation and heals when the interface closes; its tangent carries
-/// the growth term on closing too.
-#[derive(Clone, Debug)]
-struct ForgetfulCohesive(Cohesive);
-
-impl Model for ForgetfulCohesive {
-    fn info(&self) -> &RoutineInfo {
-        self.0.info()
-    }
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        let fresh = [S::zero(), S::zero()];
-        self.0.evaluate(&CallInput { state0: &fresh, ..*input }, output)
     }
 }
 
@@ -558,27 +479,12 @@ fn snap_back_is_skipped_without_damage_or_growth() {
 // ---------------------------------------------------------------------------------------
 // the compiled C and Fortran ply routines
 
-fn examples() -> PathBuf {
-    FsPath::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples")
-}
-
-fn build(name: &str, source: &str) -> PathBuf {
-    let dir = std::env::temp_dir().join(format!("tancheck-softlim-{}-{name}", std::process::id()));
-    std::fs::create_dir_all(&dir).unwrap();
-    let out = dir.join(format!("lib{name}.so"));
-    build_library(&BuildOptions::new([examples().join(source)], &out))
-        .unwrap_or_else(|e| panic!("building {name}: {e}"));
-    out
-}
-
 fn c_lib() -> &'static FsPath {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_c", "c/ply.c"))
+    build_examples("ply_c", &["c/ply.c"])
 }
 
 fn f_lib() -> &'static FsPath {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| build("ply_f", "fortran/ply.F90"))
+    build_examples("ply_f", &["fortran/ply.F90"])
 }
 
 /// Every softening probe on the compiled correct routine and its flawed variants.

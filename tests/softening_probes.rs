@@ -8,7 +8,6 @@
 //!   fails; for the cohesive law (no length) the area under the traction–separation curve is
 //!   G_Ic (Camanho & Dávila 2002: G_c = ½ t₀ δ_f) — a law with its tractions scaled fails.
 
-use tancheck::core::path::{Path, PathIncrement};
 use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
 use tancheck::core::{
     CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, RoutineInfo, Scalar,
@@ -16,104 +15,22 @@ use tancheck::core::{
 };
 use tancheck::models::{Cohesive, Ply, PlyFlaw};
 
-/// Demo ply (MPa, N/mm, mm), 0° axes: only the roles of the numbers matter here.
-fn ply_props() -> Vec<f64> {
-    vec![
-        138000.0, 11000.0, 11000.0, 0.28, 0.28, 0.4, 5500.0, 5500.0, 3928.57, 1.0, 0.0, 0.0, 0.0, 1.0, 0.0,
-        1500.0, 900.0, 27.0, 200.0, 80.0, 90.0, 80.0, 0.25, 2.0, 0.5, 0.0,
-    ]
-}
-
-/// Demo interface [K, N, S, G_Ic, G_IIc, η].
-const COHESIVE: [f64; 6] = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
-
-fn path(name: &str, steps: &[([f64; 6], usize)]) -> Path {
-    let mut p = Path { name: name.into(), increments: Vec::new() };
-    for &(d, n) in steps {
-        for _ in 0..n {
-            p.increments.push(PathIncrement { dstrain: d, dtemp: 0.0, dtime: 1.0, hold_stress: None });
-        }
-    }
-    p
-}
-
-/// Load into damage growth, unload half way, reload past the largest load.
-fn ply_path() -> Path {
-    path(
-        "transverse tension + shear, unload, reload",
-        &[
-            ([1e-4, 6e-4, 0.0, 0.0, 0.0, 5e-4], 8),
-            ([0.0, -8e-4, 0.0, 0.0, 0.0, -5e-4], 3),
-            ([1e-4, 8e-4, 0.0, 0.0, 0.0, 6e-4], 5),
-        ],
-    )
-}
-
-fn cohesive_path() -> Path {
-    path(
-        "mixed-mode opening into growth, closing half way, reopening",
-        &[
-            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 8),
-            ([-3e-4, -2e-4, -1e-4, 0.0, 0.0, 0.0], 4),
-            ([3e-4, 2e-4, 1e-4, 0.0, 0.0, 0.0], 6),
-        ],
-    )
-}
-
-fn probe(
-    routine: &mut dyn tancheck::core::Routine,
-    spec: ProbeSpec,
-    props: &[f64],
-    path: &Path,
-) -> tancheck::core::probe::ProbeResult {
-    let info = routine.info().clone();
-    let mut caller = Caller::new(routine);
-    let rep = run_suite(
-        &mut caller,
-        "softening",
-        &[spec],
-        props,
-        &PointState::zero(&info, 20.0),
-        path,
-        &Settings::default(),
-    )
-    .unwrap();
-    rep.results.into_iter().next().unwrap()
-}
+mod softening_common;
+use softening_common::{cohesive_path, path, ply_path, ply_props, probe, ForgetfulCohesive, COHESIVE};
 
 fn irreversibility(damage: &[usize]) -> ProbeSpec {
     ProbeSpec { damage: Some(damage.to_vec()), ..ProbeSpec::named("irreversibility") }
-}
-
-/// The cohesive law with its history forgotten: every call starts from d = 0, so the damage is
-/// that of the current separation and heals when the interface closes.
-#[derive(Clone, Debug)]
-struct ForgetfulCohesive(Cohesive);
-
-impl Model for ForgetfulCohesive {
-    fn info(&self) -> &RoutineInfo {
-        self.0.info()
-    }
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        let fresh = [S::zero(), S::zero()];
-        let forgetful = CallInput { state0: &fresh, ..*input };
-        self.0.evaluate(&forgetful, output)
-    }
 }
 
 #[test]
 fn irreversibility_passes_the_ply_and_fails_the_healing_ply() {
     for kind in Ply::KINDS {
         let mut good = ModelRoutine(Ply::new(kind).unwrap());
-        let r = probe(&mut good, irreversibility(&[4, 5, 6, 7]), &ply_props(), &ply_path());
+        let r = probe(&mut good, irreversibility(&[4, 5, 6, 7]), &ply_props(0.0), &ply_path(1.0));
         assert_eq!(r.status, ProbeStatus::Pass, "{kind}: {}", r.summary);
         assert!(r.summary.contains("grows"), "{kind}: the path must reach damage growth: {}", r.summary);
         let mut bad = ModelRoutine(Ply::with_flaw(kind, PlyFlaw::Healing).unwrap());
-        let r = probe(&mut bad, irreversibility(&[4, 5, 6, 7]), &ply_props(), &ply_path());
+        let r = probe(&mut bad, irreversibility(&[4, 5, 6, 7]), &ply_props(0.0), &ply_path(1.0));
         assert_eq!(r.status, ProbeStatus::Fail, "{kind}: {}", r.summary);
         // It heals on the first unloading increment (9).
         assert_eq!(r.increment, Some(9), "{}", r.summary);
@@ -124,11 +41,11 @@ fn irreversibility_passes_the_ply_and_fails_the_healing_ply() {
 #[test]
 fn irreversibility_passes_the_cohesive_law_and_fails_a_forgetful_one() {
     let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
-    let r = probe(&mut good, irreversibility(&[0]), &COHESIVE, &cohesive_path());
+    let r = probe(&mut good, irreversibility(&[0]), &COHESIVE, &cohesive_path(1.0));
     assert_eq!(r.status, ProbeStatus::Pass, "{}", r.summary);
     assert!(r.summary.contains("grows"), "{}", r.summary);
     let mut bad = ModelRoutine(ForgetfulCohesive(Cohesive::new(PointKind::Cohesive3d).unwrap()));
-    let r = probe(&mut bad, irreversibility(&[0]), &COHESIVE, &cohesive_path());
+    let r = probe(&mut bad, irreversibility(&[0]), &COHESIVE, &cohesive_path(1.0));
     assert_eq!(r.status, ProbeStatus::Fail, "{}", r.summary);
     assert_eq!(r.increment, Some(9), "{}", r.summary);
 }
@@ -136,7 +53,7 @@ fn irreversibility_passes_the_cohesive_law_and_fails_a_forgetful_one() {
 #[test]
 fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_error() {
     let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
-    let r = probe(&mut good, ProbeSpec::named("irreversibility"), &COHESIVE, &cohesive_path());
+    let r = probe(&mut good, ProbeSpec::named("irreversibility"), &COHESIVE, &cohesive_path(1.0));
     assert_eq!(r.status, ProbeStatus::Skipped);
     let info = good.0.info().clone();
     let mut caller = Caller::new(&mut good);
@@ -146,7 +63,7 @@ fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_erro
         &[irreversibility(&[7])],
         &COHESIVE,
         &PointState::zero(&info, 20.0),
-        &cohesive_path(),
+        &cohesive_path(1.0),
         &Settings::default(),
     )
     .unwrap_err();
@@ -157,7 +74,7 @@ fn irreversibility_without_declared_damage_is_skipped_and_a_bad_index_is_an_erro
 /// The demo ply with ν12 = ν13 = 0, so that a path of transverse strain alone is a uniaxial
 /// stress in the material frame and the matrix-tension softening is exactly linear in it.
 fn ply_uncoupled() -> Vec<f64> {
-    let mut p = ply_props();
+    let mut p = ply_props(0.0);
     p[3] = 0.0;
     p[4] = 0.0;
     p
@@ -170,7 +87,7 @@ fn regularisation(length: Option<usize>, g: Option<f64>) -> ProbeSpec {
 #[test]
 fn regularisation_passes_the_ply_and_fails_the_length_dropping_ply() {
     // Transverse strain to 0.045, past ε_f = 2 G_mt/(Yt L) = 2·0.25/(27·0.5) = 0.0370 (derived).
-    let p = path("transverse tension to full failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 60)]);
+    let p = path("transverse tension to full failure", 1.0, &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 60)]);
     let props = ply_uncoupled();
     let mut good = ModelRoutine(Ply::new(PointKind::PlaneStress).unwrap());
     let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &p);
@@ -180,7 +97,7 @@ fn regularisation_passes_the_ply_and_fails_the_length_dropping_ply() {
     assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
     assert!(r.summary.contains("changes with L"), "{}", r.summary);
     // A path that stops before failure is not judged.
-    let short = path("transverse tension, not to failure", &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 10)]);
+    let short = path("transverse tension, not to failure", 1.0, &[([0.0, 7.5e-4, 0.0, 0.0, 0.0, 0.0], 10)]);
     let r = probe(&mut good, regularisation(Some(24), Some(0.25)), &props, &short);
     assert_eq!(r.status, ProbeStatus::Skipped, "{}", r.summary);
 }
@@ -207,7 +124,7 @@ impl Model for StrongCohesive {
 #[test]
 fn regularisation_passes_the_cohesive_law_and_fails_a_law_of_another_area() {
     // Mode I opening to 0.0125 mm, past δ_f = 2 G_Ic/N = 0.01 mm (derived from G_c = ½ t₀ δ_f).
-    let p = path("mode I opening to full failure", &[([2.5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 50)]);
+    let p = path("mode I opening to full failure", 1.0, &[([2.5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 50)]);
     let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
     let r = probe(&mut good, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
     assert_eq!(r.status, ProbeStatus::Pass, "{} {:?}", r.summary, r.details);

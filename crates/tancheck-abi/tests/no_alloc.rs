@@ -5,10 +5,12 @@ mod common;
 
 use common::*;
 use num_complex::Complex64;
-use tancheck_core::{CallInput, CallOutput, Caller, Outcome};
+use tancheck_core::{CallInput, CallOutput, Caller};
 
 tancheck_testkit::counting_allocator!();
+use tancheck_core::driver::Outputs;
 use tancheck_testkit::alloc::allocations;
+use tancheck_testkit::call::Call;
 
 #[test]
 fn the_counter_counts() {
@@ -23,15 +25,9 @@ fn a_guarded_call_allocates_nothing() {
     // Everything that may allocate happens before: building, loading, buffers.
     let mut r = load("bad_divide_by_zero");
     let mut b = Real::new();
-    let cprops = [Complex64::new(E, 0.0), Complex64::new(NU, 0.0)];
-    let mut cstrain = [Complex64::new(0.0, 0.0); 6];
-    cstrain[0].im = 1e-30;
-    let czero = [Complex64::new(0.0, 0.0); 6];
-    let mut cstress = [Complex64::new(0.0, 0.0); 6];
-    let mut ctangent = [Complex64::new(0.0, 0.0); 36];
-    let mut cdsdt = [Complex64::new(0.0, 0.0); 6];
-    let mut cenergy = [Complex64::new(0.0, 0.0); 2];
-    let mut coutcome = Outcome::default();
+    let mut z = Call::new(&[E, NU], 6, 0).temp(293.0, 0.0).complex();
+    z.dstrain[0].im = 1e-30;
+    let mut co = Outputs::new(6, 0, Complex64::new(0.0, 0.0));
 
     let before = allocations();
     // The routine's first call on this thread, then many more; plain and through Caller.
@@ -62,25 +58,8 @@ fn a_guarded_call_allocates_nothing() {
         for _ in 0..100 {
             caller.call(&input, &mut output).unwrap();
         }
-        let cinput = CallInput {
-            props: &cprops,
-            strain: &czero,
-            dstrain: &cstrain,
-            temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
-            stress0: &czero,
-            state0: &[],
-            time: [0.0, 1.0],
-            increment: 1,
-            want_tangent: true,
-        };
-        let mut coutput = CallOutput {
-            stress: &mut cstress,
-            state: &mut [],
-            tangent: &mut ctangent,
-            dstress_dtemp: &mut cdsdt,
-            energy: &mut cenergy,
-            outcome: &mut coutcome,
-        };
+        let cinput = z.input(true);
+        let mut coutput = co.view();
         for _ in 0..100 {
             caller.call_complex(&cinput, &mut coutput).unwrap();
         }
@@ -93,7 +72,7 @@ fn a_guarded_call_allocates_nothing() {
     let after = allocations();
     assert_eq!(after - before, 0, "the guarded calls allocated {} times", after - before);
     b.assert_elastic();
-    assert!((cstress[0].im / 1e-30 - b.tangent[0]).abs() <= 1e-9 * b.tangent[0]);
+    assert!((co.stress[0].im / 1e-30 - b.tangent[0]).abs() <= 1e-9 * b.tangent[0]);
 
     // Only the failure path describes the crash, and that allocates: the counter sees it.
     if r.fp_traps() {
@@ -111,38 +90,15 @@ fn guarded_calls_allocate_nothing_at_any_level() {
     use tancheck_core::Routine;
     let mut r = load("bad_tangent_hole");
     let mut b = Real::new();
-    let cprops = [Complex64::new(E, 0.0), Complex64::new(NU, 0.0)];
-    let czero = [Complex64::new(0.0, 0.0); 6];
-    let mut cstress = [Complex64::new(0.0, 0.0); 6];
-    let mut ctangent = [Complex64::new(0.0, 0.0); 36];
-    let mut cdsdt = [Complex64::new(0.0, 0.0); 6];
-    let mut cenergy = [Complex64::new(0.0, 0.0); 2];
-    let mut coutcome = Outcome::default();
-    let cinput = CallInput {
-        props: &cprops,
-        strain: &czero,
-        dstrain: &czero,
-        temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
-        stress0: &czero,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
+    let z = Call::new(&[E, NU], 6, 0).temp(293.0, 0.0).complex();
+    let cinput = z.input(true);
+    let mut co = Outputs::new(6, 0, Complex64::new(0.0, 0.0));
     for level in GuardLevel::ALL {
         r.set_guard_level(level);
         let before = allocations();
         for _ in 0..20 {
             b.call(&mut r, 1).unwrap();
-            let mut coutput = CallOutput {
-                stress: &mut cstress,
-                state: &mut [],
-                tangent: &mut ctangent,
-                dstress_dtemp: &mut cdsdt,
-                energy: &mut cenergy,
-                outcome: &mut coutcome,
-            };
-            r.complex().unwrap().call_complex(&cinput, &mut coutput).unwrap();
+            r.complex().unwrap().call_complex(&cinput, &mut co.view()).unwrap();
         }
         assert_eq!(allocations() - before, 0, "guard level {level}");
         b.assert_elastic();

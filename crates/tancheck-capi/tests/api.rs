@@ -12,22 +12,9 @@ use tancheck_core::Outcome;
 const E: f64 = 210_000.0;
 const NU: f64 = 0.3;
 
-/// Isotropic elastic stiffness, Voigt form with engineering shear (Hughes 2000, ch. 2),
-/// column-major 6×6.
+/// Isotropic elastic stiffness, Voigt form with engineering shear, column-major 6×6.
 fn stiffness(e: f64, nu: f64) -> [f64; 36] {
-    let mu = e / (2.0 * (1.0 + nu));
-    let lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-    let mut c = [0.0; 36];
-    for i in 0..3 {
-        for j in 0..3 {
-            c[i + 6 * j] = lambda;
-        }
-        c[i + 6 * i] = lambda + 2.0 * mu;
-    }
-    for i in 3..6 {
-        c[i + 6 * i] = mu;
-    }
-    c
+    tancheck_testkit::tangent::isotropic_stiffness(e, nu)
 }
 
 /// σ = σ0 + C Δε for a 6-component, stateless point; `HOLE` leaves tangent[1] unwritten.

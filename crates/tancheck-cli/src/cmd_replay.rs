@@ -36,7 +36,7 @@ use crate::case_store::{sha256_file, Opened};
 
 /// A case file that cannot be used, as `file:line:column: why`.
 fn broken(file: &FsPath, e: &CaseError) -> String {
-    format!("{}:{}:{}: {}", file.display(), e.line.max(1), e.column.max(1), e.message)
+    format!("{}:{}:{}: {}", file.display(), e.line.max(1), e.column.max(1), e.problem)
 }
 
 /// Line of the first `"key"` in `text` (1 when absent), for warnings about a field.

@@ -10,29 +10,29 @@ use std::path::{Path as FsPath, PathBuf};
 use anyhow::{Context, Result};
 use clap::Args;
 use tancheck_abi::compile::{build_library, fortran_available, BuildOptions};
-use tancheck_core::report::CheckOutcome;
-use tancheck_core::{Report, Verdict};
+use tancheck_core::Verdict;
 
 use crate::manifest::Manifest;
-use crate::report::sci;
-use crate::report::terminal::Detail;
-use crate::session::{default_path, emit, run_manifest};
+use crate::report::model::{DemoCase, DemoReport};
+use crate::report::Reporter;
+use crate::session::{default_path, run_manifest, OutputArgs};
 
 #[derive(Args, Debug)]
 pub struct DemoArgs {
     /// Keep the built libraries and manifests in this folder.
     #[arg(long, value_name = "DIR")]
     pub keep: Option<PathBuf>,
-    /// Print the full report of every routine.
-    #[arg(short, long)]
-    pub verbose: bool,
-    /// Print only the routines that did not get the verdict they should, and the verdict.
-    #[arg(short, long, conflicts_with = "verbose")]
-    pub quiet: bool,
+    /// Write the demo's report as JSON to FILE (`-` for standard output, replacing the readable
+    /// report).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    #[command(flatten)]
+    pub output: OutputArgs,
 }
 
-const C_SOURCES: [(&str, &str); 4] = [
+const C_SOURCES: [(&str, &str); 5] = [
     ("elastic.c", include_str!("../../../fortran-shim/examples/c/elastic.c")),
+    ("isotropic_elastic.h", include_str!("../../../fortran-shim/examples/c/isotropic_elastic.h")),
     ("j2.c", include_str!("../../../fortran-shim/examples/c/j2.c")),
     ("j2_energy.h", include_str!("../../../fortran-shim/examples/c/j2_energy.h")),
     ("j2_return_map.h", include_str!("../../../fortran-shim/examples/c/j2_return_map.h")),
@@ -112,52 +112,55 @@ fn ply_cases(c_lib: &str, f_lib: Option<&str>) -> Vec<(String, String, String, V
     v
 }
 
-/// Build the ply examples and check the bracket ply with them; true when every routine got
-/// the verdict it should.
-fn ply_scenario(dir: &FsPath, fortran: bool, verbose: bool) -> Result<bool> {
-    let mut out = crate::survive::stdout();
+/// Build the ply examples and check the bracket ply with them, one case per routine.
+fn ply_scenario(dir: &FsPath, fortran: bool, progress: &mut dyn Write) -> Result<Vec<DemoCase>> {
     let c_lib = build(dir, "ply_c", &PLY_C_SOURCES)?;
-    writeln!(out, "   built {} (C ply, with complex-step twins)", c_lib.display())?;
+    writeln!(progress, "   built {} (C ply, with complex-step twins)", c_lib.display())?;
     let f_lib = if fortran {
         let l = build(dir, "ply_fortran", &PLY_FORTRAN_SOURCES)?;
-        writeln!(out, "   built {} (Fortran ply, with complex-step twins)", l.display())?;
+        writeln!(progress, "   built {} (Fortran ply, with complex-step twins)", l.display())?;
         Some(l)
     } else {
         None
     };
-    writeln!(out)?;
+    writeln!(progress)?;
     let name = |p: &PathBuf| p.file_name().unwrap().to_string_lossy().into_owned();
-    let mut all = true;
+    let mut cases = Vec::new();
     for (title, file, text, expect) in ply_cases(&name(&c_lib), f_lib.as_ref().map(name).as_deref()) {
-        let mpath = dir.join(&file);
-        std::fs::write(&mpath, &text)?;
-        let m = Manifest::parse(&text, &mpath)?;
-        let path = m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?;
-        let report = run_manifest(&m, dir, &path)?;
-        let ok = report.verdict == expect;
-        all &= ok;
-        writeln!(out, "-- {title} --")?;
-        writeln!(out, "   manifest: {}", mpath.display())?;
-        if verbose {
-            drop(out);
-            emit(&report, Detail::Normal, None)?;
-            out = crate::survive::stdout();
-        } else {
-            summary(&mut out, &report)?;
-        }
-        writeln!(
-            out,
-            "   expected {}, got {}: {}\n",
-            expect.word(),
-            report.verdict.word(),
-            if ok { "as it should be" } else { "NOT AS EXPECTED" }
-        )?;
+        let language = if title.ends_with(", C") { "C" } else { "Fortran" };
+        cases.push(check_case(dir, title, language, &file, &text, expect, true)?);
     }
-    Ok(all)
+    Ok(cases)
+}
+
+/// Write one case's manifest into `dir`, check it (along its own path when `own_path`, else
+/// the default path) and note whether the verdict is the expected one.
+fn check_case(
+    dir: &FsPath,
+    title: String,
+    language: &str,
+    file: &str,
+    text: &str,
+    expected: Verdict,
+    own_path: bool,
+) -> Result<DemoCase> {
+    let mpath = dir.join(file);
+    std::fs::write(&mpath, text)?;
+    let m = Manifest::parse(text, &mpath)?;
+    let path = if own_path {
+        m.path_or(default_path(m.routine.kind)).map_err(anyhow::Error::msg)?
+    } else {
+        default_path(m.routine.kind)
+    };
+    let report = run_manifest(&m, dir, &path)?;
+    let right = report.verdict == expected;
+    let manifest = mpath.display().to_string();
+    Ok(DemoCase { title, language: language.into(), manifest, expected, report, right })
 }
 
 struct Case {
     title: &'static str,
+    language: &'static str,
     file: &'static str,
     routine: String,
     expect: Verdict,
@@ -169,6 +172,7 @@ fn cases(c_lib: Option<&str>, f_lib: Option<&str>) -> Vec<Case> {
     let lib = |l: &str, s: &str| format!(r#""library": "{l}", "symbol": "{s}""#);
     let mut v = vec![Case {
         title: "J2 plasticity, Rust reference model",
+        language: "Rust",
         file: "rust_j2.json",
         routine: format!(r#""model": "j2", "kind": "solid-3d", "properties": {J2_PROPS}"#),
         expect: Verdict::Pass,
@@ -176,18 +180,21 @@ fn cases(c_lib: Option<&str>, f_lib: Option<&str>) -> Vec<Case> {
     if let Some(l) = c_lib {
         v.push(Case {
             title: "elasticity, C",
+            language: "C",
             file: "c_elastic.json",
             routine: el(&lib(l, "c_elastic")),
             expect: Verdict::Pass,
         });
         v.push(Case {
             title: "J2 plasticity, C",
+            language: "C",
             file: "c_j2.json",
             routine: j2(&lib(l, "c_j2")),
             expect: Verdict::Pass,
         });
         v.push(Case {
             title: "J2 plasticity with the continuum tangent (flawed on purpose), C",
+            language: "C",
             file: "c_j2_continuum.json",
             routine: j2(&lib(l, "c_j2_continuum")),
             expect: Verdict::TangentFailure,
@@ -196,18 +203,21 @@ fn cases(c_lib: Option<&str>, f_lib: Option<&str>) -> Vec<Case> {
     if let Some(l) = f_lib {
         v.push(Case {
             title: "elasticity, Fortran",
+            language: "Fortran",
             file: "f_elastic.json",
             routine: el(&lib(l, "f_elastic")),
             expect: Verdict::Pass,
         });
         v.push(Case {
             title: "J2 plasticity, Fortran",
+            language: "Fortran",
             file: "f_j2.json",
             routine: j2(&lib(l, "f_j2")),
             expect: Verdict::Pass,
         });
         v.push(Case {
             title: "J2 plasticity with the continuum tangent (flawed on purpose), Fortran",
+            language: "Fortran",
             file: "f_j2_continuum.json",
             routine: j2(&lib(l, "f_j2_continuum")),
             expect: Verdict::TangentFailure,
@@ -240,162 +250,70 @@ fn build(dir: &FsPath, name: &str, sources: &[(&str, &str)]) -> Result<PathBuf> 
     Ok(output)
 }
 
-/// Run the demo; exit 0 when every routine got the verdict it should, 1 otherwise.
+/// Run the demo; exit 0 when every routine got the verdict it should, 1 otherwise. The routines'
+/// checks go to the reporters (`--json`, `--html`, `--junit`, the terminal).
 pub fn run(a: &DemoArgs) -> Result<i32> {
+    a.output.check_files()?;
+    // With the JSON on standard output (or --quiet), the builds' progress and the lines the
+    // block and finite-strain scenarios print go to standard error.
+    let json_on_stdout = a.json.as_deref().is_some_and(crate::report::json::Json::to_stdout);
+    crate::survive::own_output_to_stderr(json_on_stdout || a.output.quiet);
+    let result = run_cases(a);
+    crate::survive::own_output_to_stderr(false);
+    let report = result?;
+    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    reporters.demo(&report)?;
+    reporters.finish()?;
+    Ok(report.exit_code)
+}
+
+/// Build the examples, check every routine, and gather what the reporters show.
+fn run_cases(a: &DemoArgs) -> Result<DemoReport> {
+    let mut progress = crate::survive::stdout();
     let keep = a.keep.is_some();
     let dir = a
         .keep
         .clone()
         .unwrap_or_else(|| std::env::temp_dir().join(format!("tancheck-demo-{}", std::process::id())));
     std::fs::create_dir_all(&dir).with_context(|| format!("creating {}", dir.display()))?;
-    let mut out = crate::survive::stdout();
-    writeln!(out, "tancheck demo: building the bundled example routines in {}", dir.display())?;
+    writeln!(progress, "tancheck demo: building the bundled example routines in {}", dir.display())?;
     let c_lib = build(&dir, "examples_c", &C_SOURCES)?;
-    writeln!(out, "   built {} (C, with complex-step twins)", c_lib.display())?;
+    writeln!(progress, "   built {} (C, with complex-step twins)", c_lib.display())?;
+    let mut skipped = Vec::new();
     let f_lib = if fortran_available() {
         let l = build(&dir, "examples_fortran", &FORTRAN_SOURCES)?;
-        writeln!(out, "   built {} (Fortran, with complex-step twins)", l.display())?;
+        writeln!(progress, "   built {} (Fortran, with complex-step twins)", l.display())?;
         Some(l)
     } else {
-        writeln!(
-            out,
-            "   SKIPPED the Fortran examples: gfortran was not found (install it, e.g. `apt-get install gfortran`, \
+        skipped.push(
+            "the Fortran examples: gfortran was not found (install it, e.g. `apt-get install gfortran`, \
              or set FC)"
-        )?;
+                .to_string(),
+        );
         None
     };
-    writeln!(out)?;
+    writeln!(progress)?;
     let name = |p: &PathBuf| p.file_name().unwrap().to_string_lossy().into_owned();
-    let cs = cases(Some(&name(&c_lib)), f_lib.as_ref().map(name).as_deref());
-    let mut all_as_expected = true;
-    for case in &cs {
+    let mut checked = Vec::new();
+    for case in cases(Some(&name(&c_lib)), f_lib.as_ref().map(name).as_deref()) {
         let text = format!("{{\n  \"routine\": {{ {} }}\n}}\n", case.routine);
-        let mpath = dir.join(case.file);
-        std::fs::write(&mpath, &text)?;
-        let m = Manifest::parse(&text, &mpath)?;
-        let report = run_manifest(&m, &dir, &default_path(m.routine.kind))?;
-        let ok = report.verdict == case.expect;
-        all_as_expected &= ok;
-        if a.quiet {
-            if !ok {
-                writeln!(
-                    out,
-                    "FAIL {}: expected {}, got {}",
-                    case.title,
-                    case.expect.word(),
-                    report.verdict.word()
-                )?;
-            }
-            continue;
-        }
-        writeln!(out, "-- {} --", case.title)?;
-        writeln!(out, "   manifest: {}", mpath.display())?;
-        if a.verbose {
-            drop(out);
-            emit(&report, Detail::Normal, None)?;
-            out = crate::survive::stdout();
-        } else {
-            summary(&mut out, &report)?;
-        }
-        writeln!(
-            out,
-            "   expected {}, got {}: {}\n",
-            case.expect.word(),
-            report.verdict.word(),
-            if ok { "as it should be" } else { "NOT AS EXPECTED" }
-        )?;
+        let title = case.title.to_string();
+        checked.push(check_case(&dir, title, case.language, case.file, &text, case.expect, false)?);
     }
-    // Explicit dynamics: a block routine passing and a flawed one.
-    all_as_expected &= crate::demo_block::run(&dir, &mut out, a.verbose)?;
-    drop(out);
-    all_as_expected &= ply_scenario(&dir, f_lib.is_some(), a.verbose)?;
-    all_as_expected &= crate::demo_finite::run_scenario(&dir, a.verbose)?;
-    let mut out = crate::survive::stdout();
-    for c in tancheck_core::report::CAUTIONS.iter().filter(|_| !a.quiet) {
-        writeln!(out, "caution: {c}")?;
-    }
-    if keep {
-        if !a.quiet {
-            writeln!(
-                out,
-                "\nThe libraries and manifests are in {}; rerun one with `tancheck check <manifest>`.",
-                dir.display()
-            )?;
-        }
-    } else {
+    // Explicit dynamics and finite strain print their own lines (their reports are their
+    // commands'); the bracket ply's checks join the others.
+    let mut all_as_expected = crate::demo_block::run(&dir, &mut progress, a.output.verbose)?;
+    drop(progress);
+    checked.extend(ply_scenario(&dir, f_lib.is_some(), &mut crate::survive::stdout())?);
+    all_as_expected &= crate::demo_finite::run_scenario(&dir, a.output.verbose)?;
+    all_as_expected &= checked.iter().all(|c| c.right);
+    if !keep {
         let _ = std::fs::remove_dir_all(&dir);
     }
-    writeln!(
-        out,
-        "demo: {}",
-        if all_as_expected {
-            "every routine got the verdict it should (exit 0)"
-        } else {
-            "some routine did NOT get the verdict it should (exit 1)"
-        }
-    )?;
-    Ok(if all_as_expected { 0 } else { 1 })
-}
-
-/// A short view: per scheme, the worst errors; for a failure, the first failing increment's
-/// worst entries.
-fn summary(out: &mut dyn Write, r: &Report) -> Result<()> {
-    writeln!(out, "   routine {} along {}", r.routine.name, r.path)?;
-    for s in &r.summary {
-        if s.checks == 0 {
-            writeln!(out, "   {:<13} skipped", s.scheme.name())?;
-            continue;
-        }
-        writeln!(
-            out,
-            "   {:<13} {:>2} of {:>2} increments failed; worst norm error {}, worst entry error {} (tolerance {})",
-            s.scheme.name(),
-            s.failed,
-            s.checks,
-            sci(s.worst_norm_error),
-            sci(s.worst_entry_error),
-            sci(s.tol)
-        )?;
-    }
-    if let Some(inc) = r.increments.iter().find(|i| !i.passed()) {
-        for c in inc.checks.iter().filter(|c| !c.passed()).take(1) {
-            if let CheckOutcome::Compared(cmp) = &c.tangent {
-                writeln!(
-                    out,
-                    "   first failure: increment {} ({}), {}: wrong entries (row/column)",
-                    inc.index,
-                    inc.branch_label(),
-                    c.scheme.name()
-                )?;
-                for e in cmp.worst.iter().filter(|e| e.error > cmp.tol) {
-                    writeln!(
-                        out,
-                        "     {:<7} returned {:>13.6e}   derivative {:>13.6e}   error {}",
-                        e.label,
-                        e.returned,
-                        e.numerical,
-                        sci(e.error)
-                    )?;
-                }
-            }
-        }
-        if let Some(d) = &inc.diagnosis {
-            writeln!(out, "   diagnosis: {}", d.reason)?;
-            if let Some(h) = d.causes.iter().find(|h| h.explains) {
-                writeln!(out, "   likely cause: {} — {}", h.cause.name(), h.detail)?;
-            }
-        }
-        writeln!(
-            out,
-            "   finding over the path: {} (the cause that explains the most failing increments)",
-            r.finding()
-        )?;
-        if let Some(f) = r.first_fault() {
-            writeln!(out, "   fault: {}", f.message)?;
-        }
-    }
-    for n in &r.notes {
-        writeln!(out, "   note: {n}")?;
-    }
-    Ok(())
+    Ok(DemoReport {
+        cases: checked,
+        skipped,
+        kept: keep.then(|| dir.display().to_string()),
+        exit_code: if all_as_expected { 0 } else { 1 },
+    })
 }

@@ -45,6 +45,8 @@ static PROGRESS_LINES: AtomicBool = AtomicBool::new(true);
 pub fn progress_lines(on: bool) {
     PROGRESS_LINES.store(on, Ordering::SeqCst);
 }
+/// Set while tancheck's own output goes to standard error (see [`own_output_to_stderr`]).
+static OWN_OUTPUT_TO_STDERR: AtomicBool = AtomicBool::new(false);
 
 /// Arm the watch and protect standard output. Call once, first thing in `main`.
 pub fn init() {
@@ -80,10 +82,21 @@ impl Write for ToolStdout {
 
 /// A line-buffered writer to tancheck's own standard output (flushed when dropped).
 pub fn stdout() -> LineWriter<ToolStdout> {
-    let fd = TOOL_STDOUT.get().copied().flatten().unwrap_or(1);
+    let fd = if OWN_OUTPUT_TO_STDERR.load(Ordering::SeqCst) {
+        2
+    } else {
+        TOOL_STDOUT.get().copied().flatten().unwrap_or(1)
+    };
     // SAFETY: `fd` is an open descriptor for the life of the process (the saved copy, or
     // descriptor 1); ManuallyDrop keeps it from being closed.
     LineWriter::new(ToolStdout(ManuallyDrop::new(unsafe { std::fs::File::from_raw_fd(fd) })))
+}
+
+/// While `on`, what tancheck writes through [`stdout`] goes to standard error instead: a
+/// command whose standard output holds a JSON document (`demo --json -`) runs parts that print
+/// their own lines this way. Descriptor 2 is open for the life of the process.
+pub fn own_output_to_stderr(on: bool) {
+    OWN_OUTPUT_TO_STDERR.store(on, Ordering::SeqCst);
 }
 
 /// Whether tancheck's own standard output is a terminal (for `--color auto`).

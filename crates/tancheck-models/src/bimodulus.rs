@@ -26,11 +26,9 @@
 //! has, and the correct one elsewhere.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{between, check_sizes, fail, positive, succeed};
+use crate::call::{between, fail, point_model, positive, succeed};
 use crate::tensor::{isotropic_matrix, lame, write_tangent, SLOTS_6};
 use crate::ModelError;
 
@@ -84,33 +82,23 @@ impl Bimodulus {
     }
 }
 
-impl Model for Bimodulus {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Bimodulus, ENERGY);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
+impl Bimodulus {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
         let (e_t, e_c, nu) = (input.props[0], input.props[1], input.props[2]);
         if !positive(e_t.re()) {
             fail(output, "bimodulus: E_t (properties[0]) must be positive");
-            return Ok(());
+            return;
         }
         if !positive(e_c.re()) {
             fail(output, "bimodulus: E_c (properties[1]) must be positive");
-            return Ok(());
+            return;
         }
         if !between(nu.re(), -1.0, 0.5) {
             fail(output, "bimodulus: nu (properties[2]) must lie in (-1, 0.5)");
-            return Ok(());
+            return;
         }
         let n = self.info.convention.ncomp();
         let mut eps = [S::zero(); 6];
@@ -151,7 +139,6 @@ impl Model for Bimodulus {
         output.energy[0] = stored * 0.5;
         output.energy[1] = S::zero();
         succeed(output, i32::from(compression), provides::ENERGY);
-        Ok(())
     }
 }
 

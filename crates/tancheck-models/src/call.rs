@@ -77,3 +77,78 @@ pub(crate) fn positive(x: f64) -> bool {
 pub(crate) fn between(x: f64, lo: f64, hi: f64) -> bool {
     lo < x && x < hi
 }
+
+/// The properties a model read, or — when they are out of range — the call ended with status
+/// FAILED and the reader's message (`None`: return `Ok(())`).
+pub(crate) fn props_or_fail<S: Scalar, P>(
+    output: &mut CallOutput<'_, S>,
+    read: Result<P, &str>,
+) -> Option<P> {
+    match read {
+        Ok(p) => Some(p),
+        Err(message) => {
+            fail(output, message);
+            None
+        }
+    }
+}
+
+/// `impl Model` for a point model with an `info` field: the optional outputs it fills in
+/// (`Capabilities` flags), and its inherent `update`, which runs once the array sizes are
+/// checked.
+macro_rules! point_model {
+    ($model:ty, $($outputs:ident)|*) => {
+        impl tancheck_core::Model for $model {
+            fn info(&self) -> &tancheck_core::RoutineInfo {
+                &self.info
+            }
+
+            fn outputs(&self) -> tancheck_core::routine::Capabilities {
+                tancheck_core::routine::Capabilities::empty()
+                    $(| tancheck_core::routine::Capabilities::$outputs)*
+            }
+
+            fn evaluate<S: tancheck_core::Scalar>(
+                &self,
+                input: &tancheck_core::CallInput<'_, S>,
+                output: &mut tancheck_core::CallOutput<'_, S>,
+            ) -> Result<(), tancheck_core::Fault> {
+                $crate::call::check_sizes(&self.info, input, output)?;
+                self.update(input, output);
+                Ok(())
+            }
+        }
+    };
+}
+pub(crate) use point_model;
+
+/// `impl Model` for an enum of models: every method goes to the variant's model.
+macro_rules! model_by_variant {
+    ($any:ident { $($variant:ident),* $(,)? }) => {
+        impl tancheck_core::Model for $any {
+            fn info(&self) -> &tancheck_core::RoutineInfo {
+                match self {
+                    $($any::$variant(m) => tancheck_core::Model::info(m),)*
+                }
+            }
+
+            fn outputs(&self) -> tancheck_core::routine::Capabilities {
+                match self {
+                    $($any::$variant(m) => tancheck_core::Model::outputs(m),)*
+                }
+            }
+
+            #[inline]
+            fn evaluate<S: tancheck_core::Scalar>(
+                &self,
+                input: &tancheck_core::CallInput<'_, S>,
+                output: &mut tancheck_core::CallOutput<'_, S>,
+            ) -> Result<(), tancheck_core::Fault> {
+                match self {
+                    $($any::$variant(m) => tancheck_core::Model::evaluate(m, input, output),)*
+                }
+            }
+        }
+    };
+}
+pub(crate) use model_by_variant;

@@ -6,6 +6,7 @@
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
 use tancheck_core::Model;
+use tancheck_testkit::tensor::{deviatoric, random_tensor, tensor_norm, to_vector};
 
 use crate::testing::{complex_tangent, dual_tangent, mandel_errors, run, Point};
 use crate::{Elastic, J2};
@@ -32,44 +33,13 @@ const HARDENING: [Hardening; 4] = [
     Hardening { name: "mixed", h: [900.0, 120.0, 60.0, 700.0] },
 ];
 
-/// Canonical slots (11, 22, 33, 23, 13, 12) of a kind's components.
-fn slots(n: usize) -> &'static [usize] {
-    if n == 6 {
-        &[0, 1, 2, 3, 4, 5]
-    } else {
-        &[0, 1, 2, 5]
-    }
-}
-
-/// A random symmetric tensor (canonical tensor components) in the kind's subspace, entries
-/// uniform in [−1, 1].
-fn random_tensor(rng: &mut StdRng, n: usize) -> [f64; 6] {
-    let mut t = [0.0; 6];
-    for &s in slots(n) {
-        t[s] = rng.gen_range(-1.0..1.0);
-    }
-    t
-}
-
-fn deviatoric(mut t: [f64; 6]) -> [f64; 6] {
-    let p = (t[0] + t[1] + t[2]) / 3.0;
-    for x in t.iter_mut().take(3) {
-        *x -= p;
-    }
-    t
-}
-
-fn tensor_norm(t: &[f64; 6]) -> f64 {
-    (t[0] * t[0] + t[1] * t[1] + t[2] * t[2] + 2.0 * (t[3] * t[3] + t[4] * t[4] + t[5] * t[5])).sqrt()
-}
-
 /// Tensor components → the routine's engineering-shear strain vector.
 fn strain_vector(t: &[f64; 6], n: usize) -> Vec<f64> {
-    slots(n).iter().map(|&s| if s >= 3 { 2.0 * t[s] } else { t[s] }).collect()
+    to_vector(t, n, 2.0)
 }
 
 fn stress_vector(t: &[f64; 6], n: usize) -> Vec<f64> {
-    slots(n).iter().map(|&s| t[s]).collect()
+    to_vector(t, n, 1.0)
 }
 
 /// A random J2 call: random elastic constants and yield stress, a random prior plastic

@@ -52,11 +52,9 @@
 //! Flawed variants ([`CohesiveFlaw`]) keep the update and change only the tangent.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{check_sizes, fail, positive, succeed};
+use crate::call::{fail, point_model, positive, props_or_fail, succeed};
 use crate::ModelError;
 
 /// Branch ids the cohesive model reports.
@@ -263,36 +261,22 @@ fn equivalent_separation<S: Scalar>(eff: &[S]) -> S {
     big * q.sqrt()
 }
 
-impl Model for Cohesive {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Cohesive, ENERGY);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
-        let p = match read_props(input.props) {
-            Ok(p) => p,
-            Err(msg) => {
-                fail(output, msg);
-                return Ok(());
-            }
+impl Cohesive {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
+        let Some(p) = props_or_fail(output, read_props(input.props)) else {
+            return;
         };
         let (d_old, dissipated_old) = (input.state0[0], input.state0[1]);
         if !(d_old.re() >= 0.0 && d_old.re() <= 1.0) {
             fail(output, "cohesive: damage state0[0] must lie in [0, 1]");
-            return Ok(());
+            return;
         }
         if !dissipated_old.re().is_finite() {
             fail(output, "cohesive: dissipated energy state0[1] must be finite");
-            return Ok(());
+            return;
         }
         let n = self.info.convention.ncomp();
         let mut sep = [S::zero(); 3];
@@ -313,7 +297,7 @@ impl Model for Cohesive {
         let span = m.df - m.d0;
         if !positive(span.re()) {
             fail(output, "cohesive: final separation not beyond onset; needs 2 G_c K > strength^2");
-            return Ok(());
+            return;
         }
 
         // Trial damage and the branch.
@@ -436,6 +420,5 @@ impl Model for Cohesive {
         output.energy[0] = stored * 0.5;
         output.energy[1] = dissipated;
         succeed(output, branch_id, provides::ENERGY);
-        Ok(())
     }
 }

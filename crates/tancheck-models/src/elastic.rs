@@ -6,11 +6,9 @@
 //! uniaxial (σ = E ε). The stored energy ½ σ·(ε + Δε) is reported (dissipated 0); branch 0.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{between, check_sizes, fail, positive, succeed};
+use crate::call::{between, fail, point_model, positive, succeed};
 use crate::tensor::{isotropic_matrix, lame, write_tangent, SLOTS_4, SLOTS_6};
 use crate::ModelError;
 
@@ -83,29 +81,19 @@ impl Elastic {
     }
 }
 
-impl Model for Elastic {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Elastic, ENERGY);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
+impl Elastic {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
         let (e, nu) = (input.props[0], input.props[1]);
         if !positive(e.re()) {
             fail(output, "elastic: E (properties[0]) must be positive");
-            return Ok(());
+            return;
         }
         if !between(nu.re(), -1.0, 0.5) {
             fail(output, "elastic: nu (properties[1]) must lie in (-1, 0.5)");
-            return Ok(());
+            return;
         }
         let n = self.info.convention.ncomp();
         let m = self.matrix(e, nu);
@@ -124,7 +112,6 @@ impl Model for Elastic {
         output.energy[0] = stored * 0.5;
         output.energy[1] = S::zero();
         succeed(output, 0, provides::ENERGY);
-        Ok(())
     }
 }
 
@@ -133,6 +120,7 @@ mod tests {
     use super::*;
     use crate::testing::{run, Point};
     use tancheck_core::routine::status;
+    use tancheck_core::Fault;
 
     const E: f64 = 200_000.0;
     const NU: f64 = 0.3;

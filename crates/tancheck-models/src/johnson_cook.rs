@@ -60,13 +60,11 @@
 //! (`provides` DSTRESS_DTEMP); no energies are provided.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, PointKind, RoutineInfo, Scalar};
 
-use crate::call::{between, check_sizes, fail, positive, succeed};
-use crate::j2::{radial_return, return_tangent, trial_state};
-use crate::tensor::{is_shear_slot, isotropic_matrix, lame, sqrt_2_3, write_tangent, SLOTS_4, SLOTS_6};
+use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
+use crate::j2::{radial_return, return_tangent, solid_layout, trial_state};
+use crate::tensor::{is_shear_slot, isotropic_matrix, lame, sqrt_2_3, write_tangent};
 use crate::ModelError;
 
 /// Lower bound of the fracture strain ε_f in the damage indicator (a guard against
@@ -217,28 +215,8 @@ impl JohnsonCook {
             JcTangent::Consistent => Self::NAME,
             JcTangent::NoRateTerm => Self::NO_RATE_TERM_NAME,
         };
-        let slots: &'static [usize] = match kind {
-            PointKind::Solid3d => &SLOTS_6,
-            PointKind::PlaneStrain | PointKind::Axisymmetric => &SLOTS_4,
-            _ => {
-                return Err(ModelError::UnsupportedKind {
-                    model: name,
-                    kind,
-                    supported: "solid-3d, plane-strain, axisymmetric",
-                })
-            }
-        };
-        let ncomp = slots.len();
-        Ok(JohnsonCook {
-            info: RoutineInfo {
-                name: name.to_string(),
-                convention: Convention::new(kind, ShearMeasure::Engineering),
-                nstate: ncomp + 3,
-                nprop: Self::PROP_NAMES.len(),
-            },
-            tangent,
-            slots,
-        })
+        let (slots, info) = solid_layout(name, kind, |ncomp| ncomp + 3, Self::PROP_NAMES.len())?;
+        Ok(JohnsonCook { info, tangent, slots })
     }
 
     /// The tangent this model returns.
@@ -313,27 +291,13 @@ fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     })
 }
 
-impl Model for JohnsonCook {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(JohnsonCook, DSTRESS_DTEMP);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::DSTRESS_DTEMP
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
-        let p = match read_props(input.props) {
-            Ok(p) => p,
-            Err(message) => {
-                fail(output, message);
-                return Ok(());
-            }
+impl JohnsonCook {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
+        let Some(p) = props_or_fail(output, read_props(input.props)) else {
+            return;
         };
         let slots = self.slots;
         let n = slots.len();
@@ -342,12 +306,12 @@ impl Model for JohnsonCook {
         let (ebar_n, damage_n, heat_n) = (input.state0[n], input.state0[n + 1], input.state0[n + 2]);
         if ebar_n.re() < 0.0 || !ebar_n.re().is_finite() {
             fail(output, "johnson-cook: the equivalent plastic strain of the start state is negative");
-            return Ok(());
+            return;
         }
         let temp = input.temp[0] + input.temp[1] + heat_n;
         let Some(static_flow) = p.law.flow(ebar_n, S::one(), temp) else {
             fail(output, "johnson-cook: the temperature is at or above T_melt");
-            return Ok(());
+            return;
         };
 
         let (sigma_tr, xi, norm) =
@@ -368,7 +332,7 @@ impl Model for JohnsonCook {
             write_tangent(&isotropic_matrix(p.lambda, p.mu), slots, output.tangent);
             output.dstress_dtemp.fill(S::zero());
             succeed(output, 0, provides::DSTRESS_DTEMP);
-            return Ok(());
+            return;
         }
 
         // ε̇* = Δε̄p / (Δt rate0) = rate_per_alpha · Δε̄p (Δt > 0 here, or C = 0).
@@ -384,7 +348,7 @@ impl Model for JohnsonCook {
         // checked and the step fails otherwise.
         let Some(dgamma) = radial_return(norm, two_mu, two_mu, Some(f_tr / two_mu), radius) else {
             fail(output, "johnson-cook: the return mapping did not converge in 200 iterations");
-            return Ok(());
+            return;
         };
         let ebar = ebar_n + dgamma * r23;
         let rate_star = rate_per_alpha * dgamma * r23;
@@ -392,13 +356,13 @@ impl Model for JohnsonCook {
             Some(st) if dgamma.re() > 0.0 && st.stress.re().is_finite() && st.slope.re().is_finite() => st,
             _ => {
                 fail(output, "johnson-cook: the return mapping found no positive plastic step");
-                return Ok(());
+                return;
             }
         };
         let g_end = norm - two_mu * dgamma - step.stress * r23;
         if g_end.re().abs() > 1e-8 * norm.re() {
             fail(output, "johnson-cook: thermal softening in this increment leaves no plastic step on the yield surface");
-            return Ok(());
+            return;
         }
 
         let mut nrm = [S::zero(); 6];
@@ -442,7 +406,6 @@ impl Model for JohnsonCook {
             output.dstress_dtemp[i] = -two_mu * nrm[slot] * ddgamma_dt;
         }
         succeed(output, 1, provides::DSTRESS_DTEMP);
-        Ok(())
     }
 }
 

@@ -48,7 +48,7 @@ pub use ply::{Ply, PlyFlaw};
 pub use thermo::{Thermo, ThermoFlaw};
 pub use zoo::{zoo, zoo_model, FlawedJ2, J2Flaw, ZooEntry, ZooModel};
 
-use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
+use tancheck_core::{ModelRoutine, PointKind};
 
 /// Names of the reference models, as [`reference`] accepts them.
 pub const NAMES: [&str; 3] = [Elastic::NAME, J2::NAME, J2::CONTINUUM_NAME];
@@ -127,48 +127,7 @@ impl AnyModel {
     }
 }
 
-impl Model for AnyModel {
-    fn info(&self) -> &RoutineInfo {
-        match self {
-            AnyModel::Elastic(m) => m.info(),
-            AnyModel::J2(m) => m.info(),
-            AnyModel::Thermo(m) => m.info(),
-            AnyModel::Cohesive(m) => m.info(),
-            AnyModel::Orthotropic(m) => m.info(),
-            AnyModel::JohnsonCook(m) => m.info(),
-            AnyModel::Ply(m) => m.info(),
-        }
-    }
-
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        match self {
-            AnyModel::Elastic(m) => m.outputs(),
-            AnyModel::J2(m) => m.outputs(),
-            AnyModel::Thermo(m) => m.outputs(),
-            AnyModel::Cohesive(m) => m.outputs(),
-            AnyModel::Orthotropic(m) => m.outputs(),
-            AnyModel::JohnsonCook(m) => m.outputs(),
-            AnyModel::Ply(m) => m.outputs(),
-        }
-    }
-
-    #[inline]
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        match self {
-            AnyModel::Elastic(m) => m.evaluate(input, output),
-            AnyModel::J2(m) => m.evaluate(input, output),
-            AnyModel::Thermo(m) => m.evaluate(input, output),
-            AnyModel::Cohesive(m) => m.evaluate(input, output),
-            AnyModel::Orthotropic(m) => m.evaluate(input, output),
-            AnyModel::JohnsonCook(m) => m.evaluate(input, output),
-            AnyModel::Ply(m) => m.evaluate(input, output),
-        }
-    }
-}
+crate::call::model_by_variant!(AnyModel { Elastic, J2, Thermo, Cohesive, Orthotropic, JohnsonCook, Ply });
 
 /// The reference model called `name` for a kind of point, as a routine the checker can call
 /// (with its complex-step twin).

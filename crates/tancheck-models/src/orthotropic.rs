@@ -27,11 +27,9 @@
 //! is reported (dissipated 0), as for `elastic`; branch 0.
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{check_sizes, fail, positive, succeed};
+use crate::call::{point_model, positive, props_or_fail, succeed};
 use crate::tensor::{write_tangent, SLOTS_4, SLOTS_6};
 use crate::ModelError;
 
@@ -227,27 +225,13 @@ pub fn global_stiffness<S: Scalar>(props: &[S]) -> Result<[[S; 6]; 6], &'static 
     Ok(c)
 }
 
-impl Model for Orthotropic {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Orthotropic, ENERGY);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
-        let c = match global_stiffness(input.props) {
-            Ok(c) => c,
-            Err(message) => {
-                fail(output, message);
-                return Ok(());
-            }
+impl Orthotropic {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
+        let Some(c) = props_or_fail(output, global_stiffness(input.props)) else {
+            return;
         };
         let mut stored = S::zero();
         for (i, &si) in self.slots.iter().enumerate() {
@@ -263,7 +247,6 @@ impl Model for Orthotropic {
         output.energy[0] = stored * 0.5;
         output.energy[1] = S::zero();
         succeed(output, 0, provides::ENERGY);
-        Ok(())
     }
 }
 

@@ -60,11 +60,9 @@
 use std::fmt::Write as _;
 
 use tancheck_core::routine::MESSAGE_LEN;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{check_sizes, fail, positive, succeed};
+use crate::call::{fail, point_model, positive, props_or_fail, succeed};
 use crate::orthotropic::{mandel_rotation, material_axes, material_stiffness};
 use crate::tensor::SLOTS_6;
 use crate::ModelError;
@@ -297,55 +295,45 @@ fn hashin<S: Scalar>(m: usize, s: &[S; 6], x: &[S; 5]) -> (S, [S; 6]) {
     }
 }
 
-impl Model for Ply {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Ply,);
 
+impl Ply {
+    /// One call, its array sizes checked (see [`point_model`]).
     // Index loops over the 4 modes and 6 components read as the formulas do.
     #[allow(clippy::needless_range_loop)]
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
         let p = input.props;
         let slots: &[usize] = if self.plane_stress { &SLOTS_PS } else { &SLOTS_6 };
-        let c = match stiffness(p, self.plane_stress) {
-            Ok(c) => c,
-            Err(message) => {
-                fail(output, message);
-                return Ok(());
-            }
+        let Some(c) = props_or_fail(output, stiffness(p, self.plane_stress)) else {
+            return;
         };
         let r = match material_axes(p) {
             Ok(r) => r,
             Err(_) => {
                 fail(output, "ply: material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
-                return Ok(());
+                return;
             }
         };
         if self.plane_stress && (r[2][0].re().abs() > 1e-12 || r[2][1].re().abs() > 1e-12) {
             fail(output, "ply: in plane stress the material axes must lie in the 1-2 plane (a1z = a2z = 0)");
-            return Ok(());
+            return;
         }
         let x = [p[15], p[16], p[17], p[18], p[19]];
         let g_c = [p[20], p[21], p[22], p[23]];
         let (len, eta) = (p[24], p[25]);
         if !x.iter().chain(&g_c).chain([&len]).all(|v| positive(v.re()) && v.re().is_finite()) {
             fail(output, "ply: strengths, fracture energies and L (properties[15..25]) must be positive");
-            return Ok(());
+            return;
         }
         if !(eta.re() >= 0.0 && eta.re().is_finite()) {
             fail(output, "ply: the viscosity eta (properties[25]) must be zero or positive");
-            return Ok(());
+            return;
         }
         let dt = input.time[1];
         let viscous = eta.re() > 0.0;
         if viscous && !(dt >= 0.0 && dt.is_finite()) {
             fail(output, "ply: viscous damage needs a time increment >= 0");
-            return Ok(());
+            return;
         }
 
         // Strains in the material frame and the effective stress.
@@ -398,7 +386,7 @@ impl Model for Ply {
             let _ =
                 write!(buf, "ply: L snaps back in {}; largest admissible L = {:.6e}", mode::NAMES[m], lmax);
             fail(output, std::str::from_utf8(&buf.bytes[..buf.len]).unwrap_or("ply: L too large"));
-            return Ok(());
+            return;
         }
         for m in 0..4 {
             let rf = rfs[m];
@@ -522,6 +510,5 @@ impl Model for Ply {
             branch::ELASTIC
         };
         succeed(output, b, 0);
-        Ok(())
     }
 }

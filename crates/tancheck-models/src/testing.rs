@@ -2,7 +2,8 @@
 //! derivative of the stress by forward-mode dual numbers (num-dual) or the complex step (both
 //! from tancheck-testkit).
 
-use tancheck_core::{CallInput, CallOutput, Convention, Fault, Model, Outcome, Scalar};
+use tancheck_core::driver::Outputs;
+use tancheck_core::{CallInput, Convention, Fault, Model, Scalar};
 
 /// The real inputs of one call.
 #[derive(Clone, Debug)]
@@ -43,16 +44,8 @@ impl Point {
     }
 }
 
-/// The outputs of one call.
-#[derive(Clone, Debug)]
-pub(crate) struct Out<S> {
-    pub stress: Vec<S>,
-    pub state: Vec<S>,
-    pub tangent: Vec<S>,
-    pub dstress_dtemp: Vec<S>,
-    pub energy: [S; 2],
-    pub outcome: Outcome,
-}
+/// The outputs of one call (core's owned output buffers).
+pub(crate) type Out<S> = Outputs<S>;
 
 /// One call in scalar type `S`, outputs pre-filled with NaN as the checker does. The sizes
 /// of the outputs follow the model's info and the length of `strain`.
@@ -64,17 +57,7 @@ pub(crate) fn run_scalar<S: Scalar, M: Model>(
     stress0: &[S],
     state0: &[S],
 ) -> Result<Out<S>, Fault> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let nstate = m.info().nstate;
-    let mut out = Out {
-        stress: vec![nan; n],
-        state: vec![nan; nstate],
-        tangent: vec![nan; n * n],
-        dstress_dtemp: vec![nan; n],
-        energy: [nan; 2],
-        outcome: Outcome::default(),
-    };
+    let mut out = Outputs::new(strain.len(), m.info().nstate, S::cst(f64::NAN));
     let input = CallInput {
         props,
         strain,
@@ -86,15 +69,7 @@ pub(crate) fn run_scalar<S: Scalar, M: Model>(
         increment: 1,
         want_tangent: true,
     };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut out.state,
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut out.dstress_dtemp,
-        energy: &mut out.energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output)?;
+    m.evaluate(&input, &mut out.view())?;
     Ok(out)
 }
 

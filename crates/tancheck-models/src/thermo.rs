@@ -39,11 +39,9 @@
 //! purpose (`thermo-dtemp-sign`).
 
 use tancheck_core::routine::provides;
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{between, check_sizes, fail, positive, succeed};
+use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
 use crate::ModelError;
 
 /// Reference temperature of every law (°C).
@@ -344,40 +342,26 @@ fn normal_components(kind: PointKind) -> usize {
     }
 }
 
-impl Model for Thermo {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(Thermo, ENERGY | DSTRESS_DTEMP);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY | tancheck_core::routine::Capabilities::DSTRESS_DTEMP
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
-        let laws = match read_laws(input.props) {
-            Ok(l) => l,
-            Err(msg) => {
-                fail(output, msg);
-                return Ok(());
-            }
+impl Thermo {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
+        let Some(laws) = props_or_fail(output, read_laws(input.props)) else {
+            return;
         };
         let kind = self.info.convention.kind();
         let n = kind.ncomp();
         let t = input.temp[0] + input.temp[1];
         if !t.re().is_finite() {
             fail(output, "thermo: temperature must be finite");
-            return Ok(());
+            return;
         }
         let (e, de) = laws.modulus(t);
         let (nu, dnu) = laws.poisson(t);
         if !between(nu.re(), -1.0, 0.5) {
             fail(output, "thermo: nu(T) = nu0 + nu1 (T - 20) must lie in (-1, 0.5)");
-            return Ok(());
+            return;
         }
         let (eps_th, deps_th) = laws.thermal_strain(t);
         let (c, dc) = unit_matrix(kind, nu);
@@ -418,6 +402,5 @@ impl Model for Thermo {
         output.energy[0] = stored * 0.5;
         output.energy[1] = S::zero();
         succeed(output, 0, provides::DSTRESS_DTEMP | provides::ENERGY);
-        Ok(())
     }
 }

@@ -14,7 +14,7 @@ mod j2_flaw;
 
 pub use j2_flaw::{FlawedJ2, J2Flaw, RANK_TWO_FACTOR, SINGLE_ENTRY_FACTOR, UNIT_FACTOR};
 
-use tancheck_core::{CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, RoutineInfo, Scalar};
+use tancheck_core::{ModelRoutine, PointKind};
 
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
@@ -364,36 +364,7 @@ impl ZooModel {
     }
 }
 
-impl Model for ZooModel {
-    fn info(&self) -> &RoutineInfo {
-        match self {
-            ZooModel::Reference(m) => m.info(),
-            ZooModel::FlawedJ2(m) => m.info(),
-            ZooModel::Bimodulus(m) => m.info(),
-        }
-    }
-
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        match self {
-            ZooModel::Reference(m) => m.outputs(),
-            ZooModel::FlawedJ2(m) => m.outputs(),
-            ZooModel::Bimodulus(m) => m.outputs(),
-        }
-    }
-
-    #[inline]
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        match self {
-            ZooModel::Reference(m) => m.evaluate(input, output),
-            ZooModel::FlawedJ2(m) => m.evaluate(input, output),
-            ZooModel::Bimodulus(m) => m.evaluate(input, output),
-        }
-    }
-}
+crate::call::model_by_variant!(ZooModel { Reference, FlawedJ2, Bimodulus });
 
 /// The zoo model called `name` for a kind of point, as a routine the checker can call (with
 /// its complex-step twin).
@@ -404,6 +375,7 @@ pub fn zoo_model(name: &str, kind: PointKind) -> Result<ModelRoutine<ZooModel>, 
 #[cfg(test)]
 mod tests {
     use super::*;
+    use tancheck_core::Model;
 
     #[test]
     fn rows_are_consistent_with_their_models() {

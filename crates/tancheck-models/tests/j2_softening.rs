@@ -11,7 +11,9 @@ use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
 use tancheck_core::{Model, PointKind};
 use tancheck_models::J2;
-use tancheck_testkit::call::{model_call, Call};
+use tancheck_testkit::call::{model_call, uniaxial_stress_step, Call};
+use tancheck_testkit::tangent::{at, condensed_uniaxial};
+use tancheck_testkit::tensor::{deviatoric, random_tensor, slots, tensor_norm};
 
 #[derive(Clone, Debug)]
 struct Point {
@@ -47,33 +49,8 @@ fn mandel_error(m: &J2, got: &[f64], reference: &[f64]) -> f64 {
     d / b.iter().map(|y| y * y).sum::<f64>().sqrt()
 }
 
-fn at(t: &[f64], n: usize, i: usize, j: usize) -> f64 {
-    t[i + j * n]
-}
-
-/// Canonical slots (11, 22, 33, 23, 13, 12) of a kind's components.
-fn slots(n: usize) -> &'static [usize] {
-    if n == 6 {
-        &[0, 1, 2, 3, 4, 5]
-    } else {
-        &[0, 1, 2, 5]
-    }
-}
-
 fn deviatoric_random(rng: &mut StdRng, n: usize) -> [f64; 6] {
-    let mut t = [0.0; 6];
-    for &s in slots(n) {
-        t[s] = rng.gen_range(-1.0..1.0);
-    }
-    let p = (t[0] + t[1] + t[2]) / 3.0;
-    for x in t.iter_mut().take(3) {
-        *x -= p;
-    }
-    t
-}
-
-fn norm(t: &[f64; 6]) -> f64 {
-    (t[0] * t[0] + t[1] * t[1] + t[2] * t[2] + 2.0 * (t[3] * t[3] + t[4] * t[4] + t[5] * t[5])).sqrt()
+    deviatoric(random_tensor(rng, n))
 }
 
 /// A softening variant: H_iso and H_kin as fractions of the point's E, Q as a fraction of
@@ -116,7 +93,7 @@ fn random_point(rng: &mut StdRng, n: usize, s: &Softening) -> Point {
     let alpha = if rng.gen_bool(0.2) { 0.0 } else { rng.gen_range(0.0..alpha_max) };
     // εp deviatoric with √(2/3)‖εp‖ ≤ α, β along εp.
     let d = deviatoric_random(rng, n);
-    let scale = alpha / (2.0f64 / 3.0).sqrt() / norm(&d) * rng.gen_range(0.0..1.0);
+    let scale = alpha / (2.0f64 / 3.0).sqrt() / tensor_norm(&d) * rng.gen_range(0.0..1.0);
     let mut eps_p = [0.0; 6];
     let mut beta = [0.0; 6];
     let kin = 2.0 / 3.0 * h_kin * rng.gen_range(0.5..1.0);
@@ -126,7 +103,7 @@ fn random_point(rng: &mut StdRng, n: usize, s: &Softening) -> Point {
     }
     let m = deviatoric_random(rng, n);
     let r = if rng.gen_bool(0.3) { 1.0 } else { rng.gen_range(0.0..1.0) };
-    let radius = r * (2.0f64 / 3.0).sqrt() * k(alpha) / norm(&m);
+    let radius = r * (2.0f64 / 3.0).sqrt() * k(alpha) / tensor_norm(&m);
     let pressure = rng.gen_range(-2.0..2.0) * sy0;
     let mu = e / (2.0 * (1.0 + nu));
     let bulk = e / (3.0 * (1.0 - 2.0 * nu));
@@ -199,39 +176,6 @@ fn softening_tangent_is_the_derivative_of_its_update() {
     }
 }
 
-/// One increment in uniaxial stress: Δε22, Δε33 solved for σ22 = σ33 = 0 by Newton with the
-/// model's own tangent (shears stay zero).
-fn uniaxial_stress_step(
-    m: &J2,
-    props: &[f64],
-    strain: &[f64; 6],
-    state: &[f64],
-    d11: f64,
-) -> ([f64; 6], Outputs<f64>) {
-    let nu = props[1];
-    let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
-    for _ in 0..40 {
-        let p = Point {
-            props: props.to_vec(),
-            strain: strain.to_vec(),
-            dstrain: de.to_vec(),
-            state0: state.to_vec(),
-        };
-        let out = run(m, &p);
-        assert_eq!(out.outcome.status, status::OK, "{} at {strain:?} + {de:?}", out.outcome.message_text());
-        let (r2, r3) = (out.stress[1], out.stress[2]);
-        let t = &out.tangent;
-        let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-        let det = a * d - b * c;
-        de[1] -= (d * r2 - b * r3) / det;
-        de[2] -= (a * r3 - c * r2) / det;
-        if r2.abs().max(r3.abs()) <= 1e-12 * out.stress[0].abs() {
-            return (de, out);
-        }
-    }
-    panic!("the uniaxial-stress Newton did not converge");
-}
-
 // Uniaxial elastoplastic modulus E_t = E h/(E + h), h = H_iso + H_kin (REFERENCES.md, derived
 // from the J2 closed form of Simo & Hughes 1998), with h < 0: the slope of the computed
 // σ11–ε11 path and the tangent condensed to uniaxial stress, C11 − C1L C_LL⁻¹ C_L1
@@ -261,12 +205,7 @@ fn uniaxial_softening_modulus_is_e_h_over_e_plus_h() {
             let s11 = out.stress[0];
             if out.outcome.branch == 1 {
                 plastic += 1;
-                let t = &out.tangent;
-                let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-                let det = a * d - b * c;
-                let (c12, c13, c21, c31) = (at(t, 6, 0, 1), at(t, 6, 0, 2), at(t, 6, 1, 0), at(t, 6, 2, 0));
-                let condensed =
-                    at(t, 6, 0, 0) - (c12 * (d * c21 - b * c31) + c13 * (a * c31 - c * c21)) / det;
+                let condensed = condensed_uniaxial(&out.tangent);
                 assert!((condensed - e_t).abs() <= 1e-8 * e_t.abs(), "h {h}: condensed {condensed} vs {e_t}");
                 if let Some((e_prev, s_prev)) = last {
                     let slope = (s11 - s_prev) / (strain[0] - e_prev);

@@ -8,13 +8,16 @@ use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::{provides, status};
-use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Model, PointKind, Scalar};
 use tancheck_models::johnson_cook::JcLaw;
 use tancheck_models::{AnyModel, JcTangent, JohnsonCook};
+use tancheck_testkit::call::{
+    dual_dtemp, dual_tangent, model_allocations, model_call, model_complex_tangent, Call,
+};
 
 mod common;
-use common::allocations;
 
 /// 4340 steel of REFERENCES.md (read, secondary copies): A 792 MPa, B 510 MPa, n 0.26,
 /// C 0.014, m 1.03, T_m 1793 K; D1..D5 = 0.05, 3.44, −2.12, 0.002, 0.61. E, ν, T_r, the
@@ -105,98 +108,31 @@ struct Point {
     dtime: f64,
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    dtemp: Vec<S>,
-    outcome: Outcome,
+impl Point {
+    /// The call (stress0 zero: the total-form model does not read it).
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), self.state0.len())
+            .strain(&self.strain)
+            .dstrain(&self.dstrain)
+            .state0(&self.state0)
+            .temp(self.temp[0], self.temp[1])
+            .dtime(self.dtime)
+    }
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar, M: Model>(m: &M, p: &Point, dstrain: &[S], temp: [S; 2]) -> Out<S> {
-    let n = p.strain.len();
-    let nan = S::cst(f64::NAN);
-    let (props, strain, state0) = (lift::<S>(&p.props), lift::<S>(&p.strain), lift::<S>(&p.state0));
-    let stress0 = vec![nan; n]; // not read: total form
-    let mut out = Out {
-        stress: vec![nan; n],
-        state: vec![nan; p.state0.len()],
-        tangent: vec![nan; n * n],
-        dtemp: vec![nan; n],
-        outcome: Outcome::default(),
-    };
-    let mut energy = [nan; 2];
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain,
-        temp,
-        stress0: &stress0,
-        state0: &state0,
-        time: [0.0, p.dtime],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut out.state,
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut out.dtemp,
-        energy: &mut energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Out<f64> {
-    eval(m, p, &p.dstrain, p.temp)
+fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, p.temp).expect("sizes match")
 }
 
 /// ∂σ/∂Δε (column-major) and ∂σ/∂ΔT by num-dual.
 fn dual_derivatives<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<f64>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let temp = [Dual64::from_re(p.temp[0]), Dual64::from_re(p.temp[1])];
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, p, &de, temp);
-        assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-    }
-    let out = eval(m, p, &lift::<Dual64>(&p.dstrain), [temp[0], Dual64::new(p.temp[1], 1.0)]);
-    (t, out.stress.iter().map(|s| s.eps).collect())
+    let c = p.call();
+    (dual_tangent(m, &c).0, dual_dtemp(m, &c))
 }
 
 /// The same by the complex step Im σ(x + ih)/h (Squire & Trapp 1998).
 fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let temp = [Complex64::new(p.temp[0], 0.0), Complex64::new(p.temp[1], 0.0)];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = eval(m, p, &de, temp);
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    t
+    model_complex_tangent(m, &p.call(), h)
 }
 
 fn rel_err(a: &[f64], b: &[f64]) -> f64 {
@@ -271,7 +207,7 @@ fn tangent_is_the_derivative_of_the_update() {
                 let (t_dual, dt_dual) = dual_derivatives(&m, &p);
                 let e = rel_err(&out.tangent, &t_dual);
                 assert!(e < 1e-9, "tangent vs num-dual {e:e} at {p:?}");
-                let e = rel_err(&out.dtemp, &dt_dual);
+                let e = rel_err(&out.dstress_dtemp, &dt_dual);
                 assert!(e < 1e-9 || dt_dual.iter().all(|x| x.abs() < 1e-9), "∂σ/∂ΔT vs num-dual {e:e}");
                 let t_cx = complex_tangent(&m, &p, 1e-30);
                 let e = rel_err(&t_cx, &t_dual);
@@ -381,7 +317,7 @@ fn guards_keep_everything_finite() {
             .iter()
             .chain(&out.state)
             .chain(&out.tangent)
-            .chain(&out.dtemp)
+            .chain(&out.dstress_dtemp)
             .all(|x| x.is_finite()));
         assert!(out.state[6] > 0.0);
         let (t_dual, _) = dual_derivatives(&m, &p);
@@ -459,35 +395,7 @@ fn bad_properties_and_kinds_are_refused() {
 #[test]
 fn no_call_allocates() {
     fn count<S: Scalar>(m: &JohnsonCook, p: &Point) -> usize {
-        let n = p.strain.len();
-        let (props, strain, state0) = (lift::<S>(&p.props), lift::<S>(&p.strain), lift::<S>(&p.state0));
-        let dstrain = lift::<S>(&p.dstrain);
-        let (mut stress, mut state, mut tangent, mut dtemp) =
-            (vec![S::zero(); n], vec![S::zero(); p.state0.len()], vec![S::zero(); n * n], vec![S::zero(); n]);
-        let mut energy = [S::zero(); 2];
-        let mut outcome = Outcome::default();
-        let before = allocations();
-        let input = CallInput {
-            props: &props,
-            strain: &strain,
-            dstrain: &dstrain,
-            temp: [S::cst(p.temp[0]), S::cst(p.temp[1])],
-            stress0: &strain,
-            state0: &state0,
-            time: [0.0, p.dtime],
-            increment: 1,
-            want_tangent: true,
-        };
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut state,
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-        allocations() - before
+        model_allocations::<S, _>(m, &p.call(), 1).0
     }
     let mut rng = StdRng::seed_from_u64(7);
     for kind in JohnsonCook::KINDS {

@@ -8,15 +8,16 @@ use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::{provides, status};
-use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Model, PointKind, Scalar};
 use tancheck_models::{Elastic, Orthotropic};
+use tancheck_testkit::call::{model_allocations, model_call, model_complex_tangent, Call};
 
 // ---------------------------------------------------------------------------------------
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -35,91 +36,28 @@ impl Point {
     }
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    tangent: Vec<S>,
-    energy: [S; 2],
-    outcome: Outcome,
+impl Point {
+    /// The call, at 20 °C.
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), 0)
+            .strain(&self.strain)
+            .dstrain(&self.dstrain)
+            .stress0(&self.stress0)
+    }
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar, M: Model>(m: &M, props: &[S], strain: &[S], dstrain: &[S], stress0: &[S]) -> Out<S> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let mut out = Out {
-        stress: vec![nan; n],
-        tangent: vec![nan; n * n],
-        energy: [nan; 2],
-        outcome: Outcome::default(),
-    };
-    let mut dtemp = vec![nan; n];
-    let input = CallInput {
-        props,
-        strain,
-        dstrain,
-        temp: [S::cst(20.0), S::zero()],
-        stress0,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut [],
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut dtemp,
-        energy: &mut out.energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Out<f64> {
-    eval(m, &p.props, &p.strain, &p.dstrain, &p.stress0)
+fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
 }
 
 /// ∂σ/∂Δε by num-dual (column-major): one call per column with the unit dual part on Δεⱼ.
 fn dual_tangent<M: Model>(m: &M, p: &Point) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0));
-        assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-    }
-    t
+    tancheck_testkit::call::dual_tangent(m, &p.call()).0
 }
 
 /// ∂σ/∂Δε by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998).
 fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.stress0));
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    t
+    model_complex_tangent(m, &p.call(), h)
 }
 
 fn rel(a: &[f64], b: &[f64]) -> f64 {
@@ -517,36 +455,8 @@ fn bad_properties_fail_with_a_message() {
 /// Allocations made by 10 evaluations in scalar type `S` (buffers made beforehand).
 fn count<S: Scalar>(m: &Orthotropic, props: &[f64]) -> usize {
     let n = m.info().convention.ncomp();
-    let (props, zeros) = (lift::<S>(props), vec![S::zero(); n]);
-    let de = vec![S::cst(1e-3); n];
-    let nan = S::cst(f64::NAN);
-    let (mut stress, mut tangent, mut dtemp, mut energy) =
-        (vec![nan; n], vec![nan; n * n], vec![nan; n], [nan; 2]);
-    let mut outcome = Outcome::default();
-    let input = CallInput {
-        props: &props,
-        strain: &zeros,
-        dstrain: &de,
-        temp: [S::zero(); 2],
-        stress0: &zeros,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let before = allocations();
-    for _ in 0..10 {
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut [],
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-    }
-    allocations() - before
+    let c = Call::new(props, n, 0).dstrain(&vec![1e-3; n]).temp(0.0, 0.0);
+    model_allocations::<S, _>(m, &c, 10).0
 }
 
 // One call does not allocate (DEVELOPERS.md, the hot path), on the success path and on the

@@ -4,18 +4,17 @@
 //! irreversibility, the viscous limit, the snap-back limit, and num-dual / complex-step
 //! derivatives of its own update in every branch, with and without viscosity.
 
-use num_complex::Complex64;
-use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
-use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Model, PointKind};
 use tancheck_models::orthotropic::global_stiffness;
 use tancheck_models::ply::{branch, mode};
 use tancheck_models::{Ply, PlyFlaw};
+use tancheck_testkit::call::{model_allocations, model_call, model_complex_tangent, Call};
 
 mod common;
-use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // Properties.
@@ -45,59 +44,6 @@ const SL: f64 = 80.0;
 // ---------------------------------------------------------------------------------------
 // One call.
 
-struct Out<S> {
-    stress: Vec<S>,
-    state: Vec<S>,
-    tangent: Vec<S>,
-    outcome: Outcome,
-}
-
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar, M: Model>(
-    m: &M,
-    props: &[S],
-    strain: &[S],
-    dstrain: &[S],
-    state0: &[S],
-    dt: f64,
-) -> Out<S> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let stress0 = vec![nan; n];
-    let mut out = Out {
-        stress: vec![nan; n],
-        state: vec![nan; 8],
-        tangent: vec![nan; n * n],
-        outcome: Outcome::default(),
-    };
-    let mut dtemp = vec![nan; n];
-    let mut energy = [nan; 2];
-    let input = CallInput {
-        props,
-        strain,
-        dstrain,
-        temp: [S::cst(20.0), S::zero()],
-        stress0: &stress0,
-        state0,
-        time: [0.0, dt],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut out.state,
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut dtemp,
-        energy: &mut energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
 #[derive(Clone, Debug)]
 struct Point {
     props: Vec<f64>,
@@ -107,49 +53,29 @@ struct Point {
     dt: f64,
 }
 
-fn run<M: Model>(m: &M, p: &Point) -> Out<f64> {
-    eval(m, &p.props, &p.strain, &p.dstrain, &p.state0, p.dt)
+impl Point {
+    /// The call (stress0 zero: the total-form model does not read it), 20 °C.
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), self.state0.len())
+            .strain(&self.strain)
+            .dstrain(&self.dstrain)
+            .state0(&self.state0)
+            .dtime(self.dt)
+    }
+}
+
+fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
 }
 
 /// ∂σ/∂Δε by num-dual (column-major), and the branch of every dual call.
 fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let mut branches = Vec::new();
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.state0), p.dt);
-        assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-        branches.push(out.outcome.branch);
-    }
-    (t, branches)
+    tancheck_testkit::call::dual_tangent(m, &p.call())
 }
 
 /// ∂σ/∂Δε by the complex step (Squire & Trapp 1998).
 fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = eval(m, &lift(&p.props), &lift(&p.strain), &de, &lift(&p.state0), p.dt);
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    t
+    model_complex_tangent(m, &p.call(), h)
 }
 
 fn rel(a: &[f64], b: &[f64]) -> f64 {
@@ -319,7 +245,14 @@ fn dissipated<M: Model>(m: &M, props: &[f64], n: usize, k: usize, sign: f64, eps
     for w in grid.windows(2) {
         let mut de = vec![0.0; n];
         de[k] = sign * (w[1] - w[0]);
-        let out = eval(m, props, &strain, &de, &state, 1.0);
+        let p = Point {
+            props: props.to_vec(),
+            strain: strain.clone(),
+            dstrain: de.clone(),
+            state0: state.clone(),
+            dt: 1.0,
+        };
+        let out = run(m, &p);
         assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
         work += 0.5 * (s_prev + out.stress[k]) * de[k];
         s_prev = out.stress[k];
@@ -595,36 +528,11 @@ fn no_call_allocates_and_bad_input_is_refused() {
     let mut rng = StdRng::seed_from_u64(3);
     let m = Ply::new(PointKind::PlaneStress).unwrap();
     let p = random_point(&mut rng, PointKind::PlaneStress, 0.01);
-    let mut state = vec![0.0; 8];
-    let (mut stress, mut tangent, mut dtemp, mut energy) =
-        (vec![0.0; 3], vec![0.0; 9], vec![0.0; 3], [0.0; 2]);
-    let mut outcome = Outcome::default();
     let mut bad = p.props.clone();
     bad[24] = 1e6; // snaps back: the message is formatted without allocating
-    let before = allocations();
-    for props in [&p.props, &bad] {
-        let input = CallInput {
-            props,
-            strain: &p.strain,
-            dstrain: &p.dstrain,
-            temp: [0.0; 2],
-            stress0: &[0.0; 3],
-            state0: &p.state0,
-            time: [0.0, 0.01],
-            increment: 1,
-            want_tangent: true,
-        };
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut state,
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-    }
-    assert_eq!(allocations() - before, 0);
+    assert_eq!(model_allocations::<f64, _>(&m, &p.call(), 1).0, 0);
+    let (made, outcome) = model_allocations::<f64, _>(&m, &Point { props: bad, ..p.clone() }.call(), 1);
+    assert_eq!(made, 0);
     assert_eq!(outcome.status, status::FAILED);
     // Out-of-plane axes in plane stress, a negative strength, a negative viscosity.
     for (k, v, words) in [(11, 0.5, "1-2 plane"), (17, -1.0, "strengths"), (25, -1.0, "viscosity")] {

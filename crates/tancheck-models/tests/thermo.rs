@@ -6,16 +6,20 @@ use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
+use tancheck_core::driver::Outputs;
 use tancheck_core::routine::{provides, status};
-use tancheck_core::{CallInput, CallOutput, Convention, Model, Outcome, PointKind, Scalar};
+use tancheck_core::{Convention, Model, PointKind, Scalar};
 use tancheck_models::thermo::{en1993_modulus_factor, en1993_thermal_elongation};
 use tancheck_models::{AnyModel, Thermo, ThermoFlaw};
+use tancheck_testkit::call::{
+    dual_dtemp, dual_tangent, model_allocations, model_call, model_complex_dtemp, model_complex_tangent, Call,
+};
+use tancheck_testkit::tangent::{matrix_error, rel_or_exact};
 
 // ---------------------------------------------------------------------------------------
 // A counting allocator: one call of the model must not allocate (DEVELOPERS.md, hot path).
 
 mod common;
-use common::allocations;
 
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
@@ -29,105 +33,31 @@ struct Point {
     temp: [f64; 2],
 }
 
-struct Out<S> {
-    stress: Vec<S>,
-    tangent: Vec<S>,
-    dtemp: Vec<S>,
-    energy: [S; 2],
-    outcome: Outcome,
+impl Point {
+    /// The call (stress0 zero: the total-form model does not read it).
+    fn call(&self) -> Call {
+        Call::new(&self.props, self.strain.len(), 0)
+            .strain(&self.strain)
+            .dstrain(&self.dstrain)
+            .temp(self.temp[0], self.temp[1])
+    }
 }
 
-fn lift<S: Scalar>(v: &[f64]) -> Vec<S> {
-    v.iter().map(|&x| S::cst(x)).collect()
-}
-
-fn eval<S: Scalar, M: Model>(m: &M, props: &[S], strain: &[S], dstrain: &[S], temp: [S; 2]) -> Out<S> {
-    let n = strain.len();
-    let nan = S::cst(f64::NAN);
-    let stress0 = vec![nan; n]; // not read by a total-form model
-    let mut out = Out {
-        stress: vec![nan; n],
-        tangent: vec![nan; n * n],
-        dtemp: vec![nan; n],
-        energy: [nan; 2],
-        outcome: Outcome::default(),
-    };
-    let input = CallInput {
-        props,
-        strain,
-        dstrain,
-        temp,
-        stress0: &stress0,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = CallOutput {
-        stress: &mut out.stress,
-        state: &mut [],
-        tangent: &mut out.tangent,
-        dstress_dtemp: &mut out.dtemp,
-        energy: &mut out.energy,
-        outcome: &mut out.outcome,
-    };
-    m.evaluate(&input, &mut output).expect("sizes match");
-    out
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Out<f64> {
-    eval(m, &p.props, &p.strain, &p.dstrain, p.temp)
+fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
+    model_call(m, &p.call(), &p.dstrain, p.temp).expect("sizes match")
 }
 
 /// ∂σ/∂Δε (column-major) and ∂σ/∂ΔT by num-dual: one call per direction with the unit dual
 /// part on Δεⱼ or on ΔT.
 fn dual_derivatives<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<f64>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let (props, strain): (Vec<Dual64>, Vec<Dual64>) = (lift(&p.props), lift(&p.strain));
-    for j in 0..n {
-        let de: Vec<Dual64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Dual64::new(x, if k == j { 1.0 } else { 0.0 }))
-            .collect();
-        let out = eval(m, &props, &strain, &de, [Dual64::from_re(p.temp[0]), Dual64::from_re(p.temp[1])]);
-        assert_eq!(out.outcome.status, 0, "{}", out.outcome.message_text());
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].eps;
-        }
-    }
-    let out = eval(
-        m,
-        &props,
-        &strain,
-        &lift(&p.dstrain),
-        [Dual64::from_re(p.temp[0]), Dual64::new(p.temp[1], 1.0)],
-    );
-    (t, out.stress.iter().map(|s| s.eps).collect())
+    let c = p.call();
+    (dual_tangent(m, &c).0, dual_dtemp(m, &c))
 }
 
 /// The same derivatives by the complex step Im σ(x + ih)/h (Squire & Trapp 1998).
 fn complex_derivatives<M: Model>(m: &M, p: &Point, h: f64) -> (Vec<f64>, Vec<f64>) {
-    let n = p.strain.len();
-    let mut t = vec![0.0; n * n];
-    let (props, strain): (Vec<Complex64>, Vec<Complex64>) = (lift(&p.props), lift(&p.strain));
-    let temp = [Complex64::new(p.temp[0], 0.0), Complex64::new(p.temp[1], 0.0)];
-    for j in 0..n {
-        let de: Vec<Complex64> = p
-            .dstrain
-            .iter()
-            .enumerate()
-            .map(|(k, &x)| Complex64::new(x, if k == j { h } else { 0.0 }))
-            .collect();
-        let out = eval(m, &props, &strain, &de, temp);
-        for i in 0..n {
-            t[i + j * n] = out.stress[i].im / h;
-        }
-    }
-    let out = eval(m, &props, &strain, &lift(&p.dstrain), [temp[0], Complex64::new(p.temp[1], h)]);
-    (t, out.stress.iter().map(|s| s.im / h).collect())
+    let c = p.call();
+    (model_complex_tangent(m, &c, h), model_complex_dtemp(m, &c, h))
 }
 
 fn norm(v: impl Iterator<Item = f64>) -> f64 {
@@ -137,28 +67,10 @@ fn norm(v: impl Iterator<Item = f64>) -> f64 {
 /// Relative error of a tangent against a reference in Mandel form (the fourth-order tensor's
 /// Frobenius norm): whole matrix and worst column. A zero reference demands an exact zero.
 fn tangent_error(conv: &Convention, got: &[f64], reference: &[f64]) -> f64 {
-    let n = conv.ncomp();
     let (mut a, mut b) = (got.to_vec(), reference.to_vec());
     conv.tangent_to_mandel(&mut a);
     conv.tangent_to_mandel(&mut b);
-    let rel = |x: &[f64], y: &[f64]| {
-        let d = norm(x.iter().zip(y).map(|(p, q)| p - q));
-        let r = norm(y.iter().copied());
-        if r == 0.0 {
-            if d == 0.0 {
-                0.0
-            } else {
-                f64::INFINITY
-            }
-        } else {
-            d / r
-        }
-    };
-    let mut worst = rel(&a, &b);
-    for j in 0..n {
-        worst = worst.max(rel(&a[j * n..(j + 1) * n], &b[j * n..(j + 1) * n]));
-    }
-    worst
+    matrix_error(conv.ncomp(), &a, &b)
 }
 
 /// Relative error of a stress-like vector (Mandel form). A zero reference demands a zero.
@@ -166,17 +78,7 @@ fn vector_error(conv: &Convention, got: &[f64], reference: &[f64]) -> f64 {
     let (mut a, mut b) = (vec![0.0; got.len()], vec![0.0; got.len()]);
     conv.stress_to_mandel(got, &mut a);
     conv.stress_to_mandel(reference, &mut b);
-    let d = norm(a.iter().zip(&b).map(|(p, q)| p - q));
-    let r = norm(b.iter().copied());
-    if r == 0.0 {
-        if d == 0.0 {
-            0.0
-        } else {
-            f64::INFINITY
-        }
-    } else {
-        d / r
-    }
+    rel_or_exact(&a, &b)
 }
 
 // ---------------------------------------------------------------------------------------
@@ -212,7 +114,7 @@ fn steel(modulus_law: f64, expansion_law: f64) -> Vec<f64> {
 }
 
 /// A uniaxial call at temperature `t` (as temp[0], no increment) and total strain `eps`.
-fn uniaxial(props: &[f64], eps: f64, t: f64) -> Out<f64> {
+fn uniaxial(props: &[f64], eps: f64, t: f64) -> Outputs<f64> {
     let m = Thermo::new(PointKind::Uniaxial).unwrap();
     run(&m, &Point { props: props.to_vec(), strain: vec![eps], dstrain: vec![0.0], temp: [t, 0.0] })
 }
@@ -327,7 +229,10 @@ fn restrained_and_free_expansion_follow_the_closed_forms() {
                 out.stress[i]
             );
             let want_dt = if i < normal { -factor * ALPHA_STEEL } else { 0.0 };
-            assert!((out.dtemp[i] - want_dt).abs() <= 1e-12 * factor * ALPHA_STEEL, "{kind} ∂σ[{i}]/∂T");
+            assert!(
+                (out.dstress_dtemp[i] - want_dt).abs() <= 1e-12 * factor * ALPHA_STEEL,
+                "{kind} ∂σ[{i}]/∂T"
+            );
         }
         let stored = 0.5 * normal as f64 * factor * eps_th * eps_th;
         assert!((out.energy[0] - stored).abs() <= 1e-12 * stored, "{kind}: stored {}", out.energy[0]);
@@ -364,11 +269,11 @@ fn kinks_return_the_right_hand_derivative() {
         let conv = &m.info().convention;
         let forward: Vec<f64> = fwd.stress.iter().zip(&base.stress).map(|(a, b)| (a - b) / h).collect();
         let backward: Vec<f64> = base.stress.iter().zip(&bwd.stress).map(|(a, b)| (a - b) / h).collect();
-        let e_fwd = vector_error(conv, &base.dtemp, &forward);
+        let e_fwd = vector_error(conv, &base.dstress_dtemp, &forward);
         assert!(e_fwd <= 1e-6, "{t} °C: returned ∂σ/∂T vs forward difference {e_fwd:.3e}");
         if t != 750.0 {
             // (at 750 °C the backward difference straddles the 8.4e-6 jump: no derivative)
-            let e_bwd = vector_error(conv, &base.dtemp, &backward);
+            let e_bwd = vector_error(conv, &base.dstress_dtemp, &backward);
             assert!(e_bwd > 1e-3, "{t} °C: the two sides should differ ({e_bwd:.3e})");
             kinks += 1;
         }
@@ -460,12 +365,15 @@ fn tangent_and_dtemp_are_the_derivatives_of_the_update() {
             let what = format!("thermo {kind} #{k} {p:?}");
             assert_eq!(out.outcome.status, status::OK, "{what}: {}", out.outcome.message_text());
             assert_eq!(out.outcome.branch, 0);
-            assert!(out.stress.iter().chain(&out.tangent).chain(&out.dtemp).all(|x| x.is_finite()), "{what}");
+            assert!(
+                out.stress.iter().chain(&out.tangent).chain(&out.dstress_dtemp).all(|x| x.is_finite()),
+                "{what}"
+            );
             let conv = &m.info().convention;
             // num-dual, an independent library: ∂σ/∂Δε and ∂σ/∂ΔT.
             let (dual_t, dual_dt) = dual_derivatives(&m, &p);
             let e_t = tangent_error(conv, &out.tangent, &dual_t);
-            let e_dt = vector_error(conv, &out.dtemp, &dual_dt);
+            let e_dt = vector_error(conv, &out.dstress_dtemp, &dual_dt);
             assert!(e_t <= DUAL_TOL, "{what}: tangent vs num-dual {e_t:.3e}");
             assert!(e_dt <= DUAL_TOL, "{what}: ∂σ/∂T vs num-dual {e_dt:.3e}");
             // Complex step against num-dual.
@@ -521,7 +429,7 @@ fn dtemp_sign_flaw_is_wrong_in_dtemp_only() {
             let (dual_t, dual_dt) = dual_derivatives(&bad, &p);
             assert!(tangent_error(conv, &out.tangent, &dual_t) <= DUAL_TOL, "{kind} #{k}");
             if norm(dual_dt.iter().copied()) > 0.0 {
-                let e = vector_error(conv, &out.dtemp, &dual_dt);
+                let e = vector_error(conv, &out.dstress_dtemp, &dual_dt);
                 assert!((e - 2.0).abs() <= 1e-12, "{kind} #{k}: ∂σ/∂T error {e}");
                 nonzero += 1;
             }
@@ -533,37 +441,7 @@ fn dtemp_sign_flaw_is_wrong_in_dtemp_only() {
 // ---------------------------------------------------------------------------------------
 
 fn count_allocations<S: Scalar>(m: &Thermo, p: &Point) -> usize {
-    let n = p.strain.len();
-    let (props, strain, dstrain) = (lift::<S>(&p.props), lift::<S>(&p.strain), lift::<S>(&p.dstrain));
-    let stress0 = vec![S::zero(); n];
-    let nan = S::cst(f64::NAN);
-    let (mut stress, mut tangent, mut dtemp) = (vec![nan; n], vec![nan; n * n], vec![nan; n]);
-    let mut energy = [nan; 2];
-    let mut outcome = Outcome::default();
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [S::cst(p.temp[0]), S::cst(p.temp[1])],
-        stress0: &stress0,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let before = allocations();
-    for _ in 0..5 {
-        let mut output = CallOutput {
-            stress: &mut stress,
-            state: &mut [],
-            tangent: &mut tangent,
-            dstress_dtemp: &mut dtemp,
-            energy: &mut energy,
-            outcome: &mut outcome,
-        };
-        m.evaluate(&input, &mut output).unwrap();
-    }
-    allocations() - before
+    model_allocations::<S, _>(m, &p.call(), 5).0
 }
 
 // One call allocates nothing, in f64, num-dual and complex arithmetic, for each law, and on
@@ -609,7 +487,7 @@ fn bad_properties_and_kinds_are_refused() {
         let out = at(props, t);
         assert_eq!(out.outcome.status, status::FAILED);
         assert!(out.outcome.message_text().contains(needle), "{}", out.outcome.message_text());
-        assert!(out.stress.iter().chain(&out.tangent).chain(&out.dtemp).all(|x| x.is_nan()));
+        assert!(out.stress.iter().chain(&out.tangent).chain(&out.dstress_dtemp).all(|x| x.is_nan()));
     }
     let m = Thermo::new(PointKind::Uniaxial).unwrap().with_table_points(2);
     let mut props = steel(2.0, 0.0);

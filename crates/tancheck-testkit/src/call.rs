@@ -7,19 +7,43 @@ use num_dual::Dual64;
 use tancheck_core::driver::Outputs;
 use tancheck_core::{CallInput, Fault, Model, Outcome, Routine, Scalar};
 
-/// The real inputs of one call, owned. [`Call::new`] starts from zero strain, increment,
-/// stress and state at 20 °C with a unit time increment.
+/// The inputs of one call in scalar type `S`, owned: [`Call`] (real) or [`ComplexCall`] (the
+/// twin's).
 #[derive(Clone, Debug, PartialEq)]
-pub struct Call {
-    pub props: Vec<f64>,
-    pub strain: Vec<f64>,
-    pub dstrain: Vec<f64>,
-    pub stress0: Vec<f64>,
-    pub state0: Vec<f64>,
+pub struct Inputs<S> {
+    pub props: Vec<S>,
+    pub strain: Vec<S>,
+    pub dstrain: Vec<S>,
+    pub stress0: Vec<S>,
+    pub state0: Vec<S>,
     /// Temperature at the start and its increment.
-    pub temp: [f64; 2],
+    pub temp: [S; 2],
     /// Time at the start and the time increment.
     pub time: [f64; 2],
+}
+
+/// The real inputs of one call. [`Call::new`] starts from zero strain, increment, stress
+/// and state at 20 °C with a unit time increment.
+pub type Call = Inputs<f64>;
+
+/// The complex inputs of one call (the twin's).
+pub type ComplexCall = Inputs<Complex64>;
+
+impl<S: Copy> Inputs<S> {
+    /// The call's inputs (increment 1).
+    pub fn input(&self, want_tangent: bool) -> CallInput<'_, S> {
+        CallInput {
+            props: &self.props,
+            strain: &self.strain,
+            dstrain: &self.dstrain,
+            temp: self.temp,
+            stress0: &self.stress0,
+            state0: &self.state0,
+            time: self.time,
+            increment: 1,
+            want_tangent,
+        }
+    }
 }
 
 impl Call {
@@ -59,60 +83,21 @@ impl Call {
         self
     }
 
-    /// The call's inputs (increment 1).
-    pub fn input(&self, want_tangent: bool) -> CallInput<'_, f64> {
-        CallInput {
-            props: &self.props,
-            strain: &self.strain,
-            dstrain: &self.dstrain,
-            temp: self.temp,
-            stress0: &self.stress0,
-            state0: &self.state0,
-            time: self.time,
-            increment: 1,
-            want_tangent,
-        }
-    }
-
     /// The inputs of the same call as complex numbers with zero imaginary parts.
     pub fn complex(&self) -> ComplexCall {
-        let z = |v: &[f64]| v.iter().map(|&x| Complex64::new(x, 0.0)).collect::<Vec<_>>();
-        ComplexCall {
-            props: z(&self.props),
-            strain: z(&self.strain),
-            dstrain: z(&self.dstrain),
-            stress0: z(&self.stress0),
-            state0: z(&self.state0),
-            temp: [Complex64::new(self.temp[0], 0.0), Complex64::new(self.temp[1], 0.0)],
-            time: self.time,
-        }
+        self.lifted(&lift(&self.dstrain), self.temp.map(Complex64::cst))
     }
-}
 
-/// The complex inputs of one call (the twin's), owned.
-#[derive(Clone, Debug, PartialEq)]
-pub struct ComplexCall {
-    pub props: Vec<Complex64>,
-    pub strain: Vec<Complex64>,
-    pub dstrain: Vec<Complex64>,
-    pub stress0: Vec<Complex64>,
-    pub state0: Vec<Complex64>,
-    pub temp: [Complex64; 2],
-    pub time: [f64; 2],
-}
-
-impl ComplexCall {
-    pub fn input(&self, want_tangent: bool) -> CallInput<'_, Complex64> {
-        CallInput {
-            props: &self.props,
-            strain: &self.strain,
-            dstrain: &self.dstrain,
-            temp: self.temp,
-            stress0: &self.stress0,
-            state0: &self.state0,
+    /// The same call in scalar type `S`, with the strain and temperature increments given.
+    pub fn lifted<S: Scalar>(&self, dstrain: &[S], temp: [S; 2]) -> Inputs<S> {
+        Inputs {
+            props: lift(&self.props),
+            strain: lift(&self.strain),
+            dstrain: dstrain.to_vec(),
+            stress0: lift(&self.stress0),
+            state0: lift(&self.state0),
+            temp,
             time: self.time,
-            increment: 1,
-            want_tangent,
         }
     }
 }
@@ -208,21 +193,8 @@ pub fn model_call<S: Scalar, M: Model>(
     dstrain: &[S],
     temp: [S; 2],
 ) -> Result<Outputs<S>, Fault> {
-    let (props, strain, stress0, state0) =
-        (lift(&c.props), lift(&c.strain), lift(&c.stress0), lift(&c.state0));
     let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain,
-        temp,
-        stress0: &stress0,
-        state0: &state0,
-        time: c.time,
-        increment: 1,
-        want_tangent: true,
-    };
-    m.evaluate(&input, &mut o.view())?;
+    m.evaluate(&c.lifted(dstrain, temp).input(true), &mut o.view())?;
     Ok(o)
 }
 
@@ -251,6 +223,17 @@ pub fn dual_tangent<M: Model>(m: &M, c: &Call) -> (Vec<f64>, Vec<i32>) {
     (t, branches)
 }
 
+/// ∂σ/∂ΔT of a model by num-dual: one call with the temperature increment carrying the unit
+/// dual part (the strain increment real).
+#[track_caller]
+pub fn dual_dtemp<M: Model>(m: &M, c: &Call) -> Vec<f64> {
+    let de: Vec<Dual64> = c.dstrain.iter().map(|&x| Dual64::from_re(x)).collect();
+    let temp = [Dual64::from_re(c.temp[0]), Dual64::new(c.temp[1], 1.0)];
+    let out = model_call(m, c, &de, temp).expect("dual call");
+    assert_eq!(out.outcome.status, 0, "dual call failed: {}", out.outcome.message_text());
+    out.stress.iter().map(|s| s.eps).collect()
+}
+
 /// ∂σ/∂Δε of a model by the complex step Im σ(Δε + i h eⱼ)/h (Squire & Trapp 1998), one call
 /// per column; column-major.
 #[track_caller]
@@ -273,24 +256,56 @@ pub fn model_complex_tangent<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
     t
 }
 
+/// One increment of a 6-component model in uniaxial stress from (`strain`, `state`): the
+/// lateral increments Δε22, Δε33 (starting at −ν Δε11 with ν = `props[1]`) are solved for
+/// σ22 = σ33 = 0 by Newton with the model's own tangent; shears stay zero. The increment
+/// found and the outputs of the converged call; panics when a call fails or Newton does not
+/// converge in 40 steps.
+#[track_caller]
+pub fn uniaxial_stress_step<M: Model>(
+    m: &M,
+    props: &[f64],
+    strain: &[f64; 6],
+    state: &[f64],
+    d11: f64,
+) -> ([f64; 6], Outputs<f64>) {
+    use crate::tangent::at;
+    let nu = props[1];
+    let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
+    let c = Call::new(props, 6, state.len()).strain(strain).state0(state);
+    for _ in 0..40 {
+        let out = model_call(m, &c, &de, [20.0, 0.0]).expect("the sizes match");
+        let o = &out.outcome;
+        assert_eq!(o.status, 0, "{} at {strain:?} + {de:?}", o.message_text());
+        let (r2, r3) = (out.stress[1], out.stress[2]);
+        let t = &out.tangent;
+        let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
+        let det = a * d - b * c;
+        de[1] -= (d * r2 - b * r3) / det;
+        de[2] -= (a * r3 - c * r2) / det;
+        if r2.abs().max(r3.abs()) <= 1e-12 * out.stress[0].abs() {
+            return (de, out);
+        }
+    }
+    panic!("the uniaxial-stress Newton did not converge");
+}
+
+/// ∂σ/∂ΔT of a model by the complex step Im σ(ΔT + i h)/h (Squire & Trapp 1998), one call.
+#[track_caller]
+pub fn model_complex_dtemp<M: Model>(m: &M, c: &Call, h: f64) -> Vec<f64> {
+    let de: Vec<Complex64> = c.dstrain.iter().map(|&x| Complex64::new(x, 0.0)).collect();
+    let temp = [Complex64::new(c.temp[0], 0.0), Complex64::new(c.temp[1], h)];
+    let out = model_call(m, c, &de, temp).expect("complex call");
+    out.stress.iter().map(|s| s.im / h).collect()
+}
+
 /// Allocations made by `calls` evaluations of model `m` on `c` in scalar type `S` (every
 /// buffer made beforehand, so only the calls count), and the outcome of the last call. Needs
 /// [`counting_allocator!`](crate::counting_allocator) in the test binary.
 pub fn model_allocations<S: Scalar, M: Model>(m: &M, c: &Call, calls: usize) -> (usize, Outcome) {
-    let (props, strain, dstrain) = (lift::<S>(&c.props), lift::<S>(&c.strain), lift::<S>(&c.dstrain));
-    let (stress0, state0) = (lift::<S>(&c.stress0), lift::<S>(&c.state0));
+    let inputs = c.lifted::<S>(&lift(&c.dstrain), c.temp.map(S::cst));
+    let input = inputs.input(true);
     let mut o = Outputs::new(c.strain.len(), c.state0.len(), S::cst(f64::NAN));
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [S::cst(c.temp[0]), S::cst(c.temp[1])],
-        stress0: &stress0,
-        state0: &state0,
-        time: c.time,
-        increment: 1,
-        want_tangent: true,
-    };
     let before = crate::alloc::allocations();
     for _ in 0..calls {
         m.evaluate(&input, &mut o.view()).expect("the sizes match");

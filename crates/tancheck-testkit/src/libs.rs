@@ -11,7 +11,8 @@ use std::path::{Path, PathBuf};
 use std::process::Output;
 use std::sync::{Arc, Mutex, OnceLock};
 
-use tancheck_abi::{build_library, BuildOptions};
+use tancheck_abi::{build_library, BuildOptions, Library, LibraryRoutine};
+use tancheck_core::Routine;
 
 /// The repository's root folder.
 pub fn repo_root() -> PathBuf {
@@ -85,6 +86,16 @@ pub fn build_examples(name: &str, sources: &[&str]) -> &'static Path {
     let full: Vec<String> = sources.iter().map(|s| format!("fortran-shim/examples/{s}")).collect();
     let refs: Vec<&str> = full.iter().map(String::as_str).collect();
     build_once(name, &refs)
+}
+
+/// A Rust routine and the compiled routine `symbol` of the library at `lib` opened with the
+/// Rust routine's sizes and conventions, for tests that call both with the same inputs. The
+/// compiled routine must have its complex twin.
+pub fn beside_compiled<R: Routine>(rust: R, lib: &Path, symbol: &str) -> (R, LibraryRoutine) {
+    let lib = Library::open(lib).unwrap_or_else(|e| panic!("{}: {e}", lib.display()));
+    let compiled = lib.routine(symbol, rust.info().clone()).unwrap_or_else(|e| panic!("{symbol}: {e}"));
+    assert!(compiled.has_twin(), "{symbol} has its complex twin");
+    (rust, compiled)
 }
 
 /// Standard output then standard error of a finished command, as text.

@@ -19,57 +19,7 @@
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
 
-static void elastic_fail(tc_report *report, const char *text)
-{
-    report->status = TC_STATUS_FAILED;
-    /* "<model>: <text>" into the report's message, cut to fit and NUL-terminated. */
-    const char *parts[2] = {"elastic: ", text};
-    int k = 0;
-    for (int p = 0; p < 2; ++p) {
-        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
-            report->message[k++] = *c;
-        }
-    }
-    report->message[k] = '\0';
-}
-
-/*
- * Elastic stiffness in Voigt form, column-major c[i + j*n], engineering shear columns.
- * Lame constants lambda = E nu / ((1 + nu)(1 - 2 nu)), mu = E / (2 (1 + nu)); plane stress
- * reduces to E / (1 - nu^2) [[1, nu, 0], [nu, 1, 0], [0, 0, (1 - nu)/2]]
- * (Hughes 2000, The Finite Element Method, ch. 2; chapter from memory).
- */
-static void elastic_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
-{
-    for (int k = 0; k < n * n; ++k) {
-        c[k] = 0.0;
-    }
-    if (n == 1) {
-        c[0] = e;
-        return;
-    }
-    if (n == 3) {
-        tc_real f = e / (1.0 - nu * nu);
-        c[0 + 0 * 3] = f;
-        c[1 + 1 * 3] = f;
-        c[0 + 1 * 3] = f * nu;
-        c[1 + 0 * 3] = f * nu;
-        c[2 + 2 * 3] = f * (1.0 - nu) / 2.0;
-        return;
-    }
-    /* n == 6 or n == 4: three normal components first, then the shear ones. */
-    tc_real mu = e / (2.0 * (1.0 + nu));
-    tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-    for (int i = 0; i < 3; ++i) {
-        for (int j = 0; j < 3; ++j) {
-            c[i + j * n] = lambda;
-        }
-        c[i + i * n] = lambda + 2.0 * mu;
-    }
-    for (int i = 3; i < n; ++i) {
-        c[i + i * n] = mu;
-    }
-}
+#include "isotropic_elastic.h"
 
 TC_ROUTINE(c_elastic)
 {
@@ -78,17 +28,17 @@ TC_ROUTINE(c_elastic)
 
     const int n = call->ncomp;
     if (n != 6 && n != 4 && n != 3 && n != 1) {
-        elastic_fail(report, "ncomp must be 6, 4, 3 or 1");
+        ex_fail(report, "elastic", "ncomp must be 6, 4, 3 or 1");
         return;
     }
     if (call->nproperties < 2) {
-        elastic_fail(report, "needs 2 properties [E, nu]");
+        ex_fail(report, "elastic", "needs 2 properties [E, nu]");
         return;
     }
 
     /* The caller's tangent buffer holds the stiffness; it is written in full here and then
      * only read. */
-    elastic_stiffness(n, properties[0], properties[1], tangent);
+    ex_isotropic_stiffness(n, properties[0], properties[1], tangent);
 
     tc_real stored = 0.0;
     for (int i = 0; i < n; ++i) {

@@ -59,61 +59,12 @@
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
 
+#include "isotropic_elastic.h"
+
 /* Share of the previous call's increment that pz_saved_state adds. */
 #define PZ_LEAK 0.5
 /* c / mu of the anisotropic term of pz_not_objective. */
 #define PZ_ANISO 0.5
-
-static void pz_fail(tc_report *report, const char *model, const char *text)
-{
-    report->status = TC_STATUS_FAILED;
-    /* "<model>: <text>" into the report's message, cut to fit and NUL-terminated. */
-    const char *parts[3] = {model, ": ", text};
-    int k = 0;
-    for (int p = 0; p < 3; ++p) {
-        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
-            report->message[k++] = *c;
-        }
-    }
-    report->message[k] = '\0';
-}
-
-/*
- * Isotropic elastic stiffness in Voigt form, column-major c[i + j*n], engineering shear
- * columns: lambda = E nu / ((1 + nu)(1 - 2 nu)), mu = E / (2 (1 + nu)); plane stress
- * E / (1 - nu^2) [[1, nu, 0], [nu, 1, 0], [0, 0, (1 - nu)/2]] (Hughes 2000, The Finite Element
- * Method, ch. 2; chapter from memory); uniaxial E.
- */
-static void pz_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
-{
-    for (int k = 0; k < n * n; ++k) {
-        c[k] = 0.0;
-    }
-    if (n == 1) {
-        c[0] = e;
-        return;
-    }
-    if (n == 3) {
-        tc_real f = e / (1.0 - nu * nu);
-        c[0 + 0 * 3] = f;
-        c[1 + 1 * 3] = f;
-        c[0 + 1 * 3] = f * nu;
-        c[1 + 0 * 3] = f * nu;
-        c[2 + 2 * 3] = f * (1.0 - nu) / 2.0;
-        return;
-    }
-    tc_real mu = e / (2.0 * (1.0 + nu));
-    tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-    for (int i = 0; i < 3; ++i) {
-        for (int j = 0; j < 3; ++j) {
-            c[i + j * n] = lambda;
-        }
-        c[i + i * n] = lambda + 2.0 * mu;
-    }
-    for (int i = 3; i < n; ++i) {
-        c[i + i * n] = mu;
-    }
-}
 
 /*
  * The honest part: checks, the stiffness into the tangent, sigma = sigma0 + C dstrain, the
@@ -127,18 +78,18 @@ static int pz_elastic(const char *model, unsigned kinds, const tc_call *call, co
 {
     const int n = call->ncomp;
     if (n < 1 || n > 6 || !(kinds & (1u << n))) {
-        pz_fail(report, model, "unsupported ncomp");
+        ex_fail(report, model, "unsupported ncomp");
         return 0;
     }
     if (call->nproperties < 2) {
-        pz_fail(report, model, "needs 2 properties [E, nu]");
+        ex_fail(report, model, "needs 2 properties [E, nu]");
         return 0;
     }
     if (!(tc_re(properties[0]) > 0.0) || !(tc_re(properties[1]) > -1.0 && tc_re(properties[1]) < 0.5)) {
-        pz_fail(report, model, "needs E > 0 and -1 < nu < 0.5");
+        ex_fail(report, model, "needs E > 0 and -1 < nu < 0.5");
         return 0;
     }
-    pz_stiffness(n, properties[0], properties[1], tangent);
+    ex_isotropic_stiffness(n, properties[0], properties[1], tangent);
     for (int i = 0; i < n; ++i) {
         tc_real s = stress0[i];
         for (int j = 0; j < n; ++j) {
@@ -242,7 +193,7 @@ TC_ROUTINE(pz_negative_dissipation)
     (void)temperature;
     (void)dstress_dtemp;
     if (call->nstate < 1) {
-        pz_fail(report, "pz_negative_dissipation", "needs 1 state variable [work]");
+        ex_fail(report, "pz_negative_dissipation", "needs 1 state variable [work]");
         return;
     }
     if (!pz_elastic("pz_negative_dissipation", PZ_SOLID_KINDS, call, properties, dstrain, stress0,

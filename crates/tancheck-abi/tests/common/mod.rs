@@ -51,22 +51,9 @@ pub fn load(symbol: &str) -> LibraryRoutine {
 pub const E: f64 = 210_000.0;
 pub const NU: f64 = 0.3;
 
-/// Isotropic elastic stiffness in Voigt form with engineering shear (Hughes 2000, ch. 2; chapter from memory):
-/// λ + 2μ on the normal diagonal, λ off it, μ on the shear diagonal. Column-major 6×6.
+/// Isotropic elastic stiffness in Voigt form with engineering shear, column-major 6×6.
 pub fn elastic_stiffness(e: f64, nu: f64) -> [f64; 36] {
-    let mu = e / (2.0 * (1.0 + nu));
-    let lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-    let mut c = [0.0; 36];
-    for i in 0..3 {
-        for j in 0..3 {
-            c[i + 6 * j] = lambda;
-        }
-        c[i + 6 * i] = lambda + 2.0 * mu;
-    }
-    for i in 3..6 {
-        c[i + 6 * i] = mu;
-    }
-    c
+    tancheck_testkit::tangent::isotropic_stiffness(e, nu)
 }
 
 /// Owned buffers for one real call of a 6-component, stateless, 2-property routine.

@@ -10,7 +10,7 @@ use tancheck_core::probe::SuiteReport;
 use tancheck_core::report::document::{self, Kind};
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 use super::{write_atomic_with, Reporter};
 
 /// Writes each report it gets as a JSON document to a file (atomically), or to `stdout` for
@@ -89,5 +89,8 @@ impl Reporter for Json<'_> {
     }
     fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
         self.put(Kind::Block, &super::block::BlockDocument::of(report))
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        self.put(Kind::Demo, report)
     }
 }

@@ -26,7 +26,7 @@ pub mod schema;
 pub mod style;
 pub mod terminal;
 
-use model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 
 /// A view of reports. One method per report kind, each doing nothing unless the reporter
 /// implements it, so a reporter renders the kinds it knows and a new kind (block routines,
@@ -70,6 +70,10 @@ pub trait Reporter {
     }
     /// What `tancheck explore` found: the signatures reached and each distinct failure.
     fn explore(&mut self, _report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
+        Ok(())
+    }
+    /// The routines `tancheck demo` checked, with the verdicts they should get.
+    fn demo(&mut self, _report: &DemoReport) -> io::Result<()> {
         Ok(())
     }
     /// After the last report of a run: flush, close files.
@@ -151,6 +155,9 @@ impl Reporter for Fanout<'_> {
     }
     fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
         self.each(|r| r.block(report))
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        self.each(|r| r.demo(report))
     }
     fn finish(&mut self) -> io::Result<()> {
         self.each(|r| r.finish())

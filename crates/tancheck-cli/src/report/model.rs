@@ -1,5 +1,5 @@
 //! The report data of the commands besides `check` (whose report is core's [`Report`]): what
-//! `bisect`, `replay`, a folder of cases and `selftest` found. Every reporter renders these;
+//! `bisect`, `replay`, a folder of cases, `selftest` and `demo` found. Every reporter renders these;
 //! the commands only fill them in.
 //!
 //! [`Report`]: tancheck_core::Report
@@ -12,7 +12,7 @@ use serde::Serialize;
 use tancheck_core::bisect::{Located, ShrinkStop};
 use tancheck_core::case::{Numbers, ProbeCheck};
 use tancheck_core::path::Path;
-use tancheck_core::Verdict;
+use tancheck_core::{Report, Verdict};
 
 use crate::exit;
 
@@ -147,6 +147,52 @@ pub struct SelftestReport {
 impl SelftestReport {
     pub fn wrong(&self) -> usize {
         self.rows.iter().filter(|r| !r.right).count()
+    }
+}
+
+/// One routine `tancheck demo` checked: what it is, its manifest, the verdict it should get
+/// and the check's report.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct DemoCase {
+    pub title: String,
+    /// "Rust", "C" or "Fortran".
+    pub language: String,
+    /// The manifest the demo wrote (rerun it with `tancheck check`).
+    pub manifest: String,
+    pub expected: Verdict,
+    pub report: Report,
+    /// Whether the check's verdict is the expected one.
+    pub right: bool,
+}
+
+/// What `tancheck demo` found: the routines it checked (the block and finite-strain scenarios
+/// print their own lines), languages it could not build, and the folder it kept.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct DemoReport {
+    pub cases: Vec<DemoCase>,
+    /// Languages whose examples were not built, and why.
+    pub skipped: Vec<String>,
+    /// The folder with the libraries and manifests, when `--keep` asked for it.
+    pub kept: Option<String>,
+    /// 0 when every routine got the verdict it should, 1 otherwise.
+    pub exit_code: i32,
+}
+
+impl DemoReport {
+    /// The cases as selftest rows (the HTML page and JUnit XML of a demo are the selftest's).
+    pub fn rows(&self) -> Vec<SelftestRow> {
+        self.cases
+            .iter()
+            .map(|c| SelftestRow {
+                variant: c.title.clone(),
+                language: c.language.clone(),
+                expected: c.expected.word().to_string(),
+                verdict: c.report.verdict,
+                found: c.report.finding(),
+                first_increment: c.report.increments.iter().find(|i| !i.passed()).map(|i| i.index),
+                right: c.right,
+            })
+            .collect()
     }
 }
 

@@ -8,7 +8,7 @@ use std::path::{Path, PathBuf};
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, SelftestReport, SuiteContext};
+use super::model::{BisectOutcome, DemoReport, SelftestReport, SuiteContext};
 use super::{html, junit, write_atomic, Reporter};
 
 /// Writes the HTML page and the JUnit XML of each report it gets, each file when asked for.
@@ -86,5 +86,12 @@ impl Reporter for Pages {
     fn selftest(&mut self, report: &SelftestReport) -> io::Result<()> {
         write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&report.rows))?;
         write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&report.rows, &report.tool)))
+    }
+
+    /// The demo's routines as the selftest's rows: known verdicts and what the check found.
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        let rows = report.rows();
+        write(self.junit.as_deref(), "the JUnit report", || junit::selftest_junit(&rows))?;
+        write(self.html.as_deref(), "the HTML report", || Ok(html::selftest_page(&rows, "tancheck demo")))
     }
 }

@@ -7,7 +7,7 @@ use schemars::JsonSchema;
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport};
 
 /// The shipped schema file, relative to the repository root.
 pub const SCHEMA_FILE: &str = "schema/report.schema.json";
@@ -35,13 +35,14 @@ enum Body {
     FiniteProbes(tancheck_core::finite::probe::FiniteProbeReport),
     Explore(tancheck_core::explore::ExploreReport),
     Block(super::block::BlockDocument),
+    Demo(DemoReport),
 }
 
 /// A tancheck report file.
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes, demo) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {

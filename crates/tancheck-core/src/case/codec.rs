@@ -175,56 +175,49 @@ impl Case {
         let case: Case = serde_json::from_str(text).map_err(|e| CaseError {
             line: e.line(),
             column: e.column(),
-            message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
+            problem: CaseProblem::Syntax(
+                e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
+            ),
         })?;
-        let err = |keys: &[&str], message: String| {
+        let err = |keys: &[&str], problem: CaseProblem| {
             let (line, column) = place(text, keys);
-            CaseError { line, column, message }
+            CaseError { line, column, problem }
         };
         if case.format != FORMAT {
-            return Err(err(
-                &["format"],
-                format!("case format {} is not the format {FORMAT} this tancheck reads", case.format),
-            ));
+            return Err(err(&["format"], CaseProblem::Format { found: case.format }));
         }
         let r = &case.routine;
-        let conv = r.convention().map_err(|m| err(&["routine", "order"], m.to_string()))?;
+        let conv = r.convention().map_err(|m| err(&["routine", "order"], m.into()))?;
         match (&r.model, &r.library, &r.symbol) {
             (Some(_), None, None) | (None, Some(_), Some(_)) => {}
-            _ => {
-                return Err(err(
-                    &["routine"],
-                    "routine: give `model`, or `library` and `symbol`, not both".to_string(),
-                ))
-            }
+            _ => return Err(err(&["routine"], CaseProblem::RoutineSource)),
         }
         let n = conv.ncomp();
         let mut warnings = Vec::new();
-        let mut num =
-            |section: &str, key: &str, x: &Numbers, len: Option<usize>| -> Result<Vec<f64>, CaseError> {
-                let mut w = Vec::new();
-                let what = format!("{section}.{key}");
-                let v = x.decode(&what, &mut w).map_err(|m| {
-                    let m = m.to_string();
-                    let e = err(&[section, key, "bits"], m.clone());
-                    if e.line == 0 {
-                        err(&[section, key], m)
-                    } else {
-                        e
-                    }
-                })?;
-                let (line, _) = place(text, &[section, key]);
-                warnings.extend(w.into_iter().map(|m| format!("line {line}: {m}")));
-                if let Some(len) = len {
-                    if v.len() != len {
-                        return Err(err(
-                            &[section, key],
-                            format!("{what} has {} entries; the routine needs {len}", v.len()),
-                        ));
-                    }
+        let mut num = |section: &str,
+                       key: &str,
+                       x: &Numbers,
+                       len: Option<usize>|
+         -> Result<Vec<f64>, CaseError> {
+            let mut w = Vec::new();
+            let what = format!("{section}.{key}");
+            let v = x.decode(&what, &mut w).map_err(|m| {
+                let e = err(&[section, key, "bits"], m.clone().into());
+                if e.line == 0 {
+                    err(&[section, key], m.into())
+                } else {
+                    e
                 }
-                Ok(v)
-            };
+            })?;
+            let (line, _) = place(text, &[section, key]);
+            warnings.extend(w.into_iter().map(|m| format!("line {line}: {m}")));
+            if let Some(len) = len {
+                if v.len() != len {
+                    return Err(err(&[section, key], CaseProblem::Length { what, got: v.len(), want: len }));
+                }
+            }
+            Ok(v)
+        };
         let c = &case.call;
         let props = num("call", "props", &c.props, Some(r.nprop))?;
         let strain = num("call", "strain", &c.strain, Some(n))?;
@@ -249,10 +242,7 @@ impl Case {
                 ("time", &vec![time[1]], MAX_DTIME),
             ] {
                 if let Some(x) = values.iter().find(|x| !x.is_finite() || x.abs() > max) {
-                    return Err(err(
-                        &["call", key],
-                        format!("call.{key} has {x:e}; every input must be a finite number at most {max:e} in magnitude"),
-                    ));
+                    return Err(err(&["call", key], CaseProblem::OutOfRange { key, value: *x, max }));
                 }
             }
         }
@@ -275,12 +265,9 @@ impl Case {
         if let Some(b) = &case.probe.best_numerical {
             num("probe", "best_numerical", b, Some(n * n))?;
         }
-        case.probe.settings.validate().map_err(|m| err(&["probe", "settings"], m.to_string()))?;
+        case.probe.settings.validate().map_err(|m| err(&["probe", "settings"], m.into()))?;
         if c.increment < 1 {
-            return Err(err(
-                &["call", "increment"],
-                format!("call.increment is {}; it counts from 1", c.increment),
-            ));
+            return Err(err(&["call", "increment"], CaseProblem::Increment(c.increment)));
         }
         let path = match &case.path {
             None => None,
@@ -296,7 +283,7 @@ impl Case {
                 let mut increments = Vec::with_capacity(p.increments.len());
                 for (k, inc) in p.increments.iter().enumerate() {
                     let at = |e: CaseError| CaseError {
-                        message: format!("increment {}: {}", k + 1, e.message),
+                        problem: CaseProblem::InIncrement { increment: k + 1, problem: Box::new(e.problem) },
                         ..e
                     };
                     let v = num("path", "increments", &inc.values, Some(8)).map_err(at)?;
@@ -319,7 +306,7 @@ impl Case {
                     name: format!("the path of the case ({} increments)", increments.len()),
                     increments,
                 };
-                path.validate().map_err(|m| err(&["path"], m.to_string()))?;
+                path.validate().map_err(|m| err(&["path"], m.into()))?;
                 Some((PointState { temp: tt[0], time: tt[1], ..start }, path))
             }
         };

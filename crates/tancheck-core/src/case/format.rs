@@ -1,8 +1,6 @@
 //! The case file's serde types (what each JSON field holds), its error and the decoded forms
 //! of a case; no reading, writing or replaying here.
 
-use std::fmt;
-
 use serde::{Deserialize, Serialize};
 
 use crate::bisect::{Crossing, Inside};
@@ -339,21 +337,39 @@ pub struct Case {
     pub path: Option<CasePath>,
 }
 
+/// What is wrong with a case file; each message says what to change.
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[non_exhaustive]
+pub enum CaseProblem {
+    /// JSON syntax or a field, in serde_json's words.
+    #[error("{0}")]
+    Syntax(String),
+    #[error("case format {found} is not the format {FORMAT} this tancheck reads")]
+    Format { found: u32 },
+    #[error("routine: give `model`, or `library` and `symbol`, not both")]
+    RoutineSource,
+    #[error("{what} has {got} entries; the routine needs {want}")]
+    Length { what: String, got: usize, want: usize },
+    #[error("call.{key} has {value:e}; every input must be a finite number at most {max:e} in magnitude")]
+    OutOfRange { key: &'static str, value: f64, max: f64 },
+    #[error("call.increment is {0}; it counts from 1")]
+    Increment(i32),
+    /// A convention, a number's bits, the settings or the path, as core refuses them.
+    #[error(transparent)]
+    Core(#[from] CoreError),
+    /// A problem inside one increment of the case's path (1-based).
+    #[error("increment {increment}: {problem}")]
+    InIncrement { increment: usize, problem: Box<CaseProblem> },
+}
+
 /// A case file that cannot be used: where (1-based line and column, 0 when unknown) and why.
-#[derive(Clone, Debug, PartialEq, Eq)]
+#[derive(Clone, Debug, PartialEq, thiserror::Error)]
+#[error("{line}:{column}: {problem}")]
 pub struct CaseError {
     pub line: usize,
     pub column: usize,
-    pub message: String,
+    pub problem: CaseProblem,
 }
-
-impl fmt::Display for CaseError {
-    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
-        write!(f, "{}:{}: {}", self.line, self.column, self.message)
-    }
-}
-
-impl std::error::Error for CaseError {}
 
 /// The call of a case with its numbers decoded.
 #[derive(Clone, Debug, PartialEq)]

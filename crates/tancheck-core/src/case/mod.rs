@@ -207,17 +207,18 @@ mod tests {
         let (case, _) = bar_case();
         let text = case.to_json();
         let e = Case::parse(&text[..text.len() / 2]).unwrap_err();
-        assert!(e.line > 1 && e.message.contains("EOF"), "{e}");
+        assert!(e.line > 1 && matches!(&e.problem, CaseProblem::Syntax(m) if m.contains("EOF")), "{e}");
         let bad = text.replacen("\"increment\": 3", "\"incremnt\": 3", 1);
         let e = Case::parse(&bad).unwrap_err();
-        assert!(e.message.contains("incremnt"), "{e}");
+        assert!(e.problem.to_string().contains("incremnt"), "{e}");
         // Values and bits that do not pair up are reported at the line of the bits; a wrong
         // length at the field's line.
         let strain_line = text.lines().position(|l| l.contains("\"strain\"")).unwrap() + 1;
         let bad = text.replacen("\"values\": [0.001]", "\"values\": [0.001, 0.0]", 1);
         let e = Case::parse(&bad).unwrap_err();
         assert_eq!(e.line, strain_line + 2, "{e}");
-        assert!(e.message.contains("call.strain has 2 values and 1 bit patterns"), "{e}");
+        assert!(matches!(e.problem, CaseProblem::Core(_)), "{e}");
+        assert!(e.problem.to_string().contains("call.strain has 2 values and 1 bit patterns"), "{e}");
         let bad = text.replacen("\"values\": [0.001]", "\"values\": [0.001, 0.0]", 1).replacen(
             "\"bits\": [\"3f50624dd2f1a9fc\"]",
             "\"bits\": [\"3f50624dd2f1a9fc\", \"0000000000000000\"]",
@@ -225,10 +226,12 @@ mod tests {
         );
         let e = Case::parse(&bad).unwrap_err();
         assert_eq!(e.line, strain_line, "{e}");
-        assert!(e.message.contains("call.strain has 2 entries; the routine needs 1"), "{e}");
+        assert!(matches!(e.problem, CaseProblem::Length { got: 2, want: 1, .. }), "{e}");
+        assert!(e.problem.to_string().contains("call.strain has 2 entries; the routine needs 1"), "{e}");
         let bad = text.replacen("\"format\": 1", "\"format\": 7", 1);
         let e = Case::parse(&bad).unwrap_err();
         assert_eq!(e.line, 3, "{e}");
         assert!(e.to_string().starts_with("3:"), "{e}");
+        assert_eq!(e.problem, CaseProblem::Format { found: 7 });
     }
 }

@@ -101,24 +101,7 @@ mod tests {
     use super::*;
     use crate::convention::{Component, Convention, PointKind, ShearMeasure};
     use crate::convention_fit::readings;
-
-    /// Isotropic stiffness in a convention's Voigt form (column-major): Mandel 3κ P_vol +
-    /// 2μ P_dev, turned into the routine's form by the convention.
-    fn isotropic(conv: &Convention, lambda: f64, mu: f64) -> Vec<f64> {
-        let n = conv.ncomp();
-        let mut t = vec![0.0; n * n];
-        for (i, ci) in conv.order().iter().enumerate() {
-            for (j, cj) in conv.order().iter().enumerate() {
-                t[i + j * n] = match (ci.is_shear(), cj.is_shear()) {
-                    (false, false) => lambda + if i == j { 2.0 * mu } else { 0.0 },
-                    (true, true) if i == j => 2.0 * mu,
-                    _ => 0.0,
-                };
-            }
-        }
-        conv.tangent_from_mandel(&mut t);
-        t
-    }
+    use crate::probe::testing::isotropic;
 
     fn conv(labels: &[&str], shear: ShearMeasure) -> Convention {
         let kind = if labels.len() == 6 { PointKind::Solid3d } else { PointKind::PlaneStrain };

@@ -1,4 +1,5 @@
-//! The energy probe.
+//! The energy probe: elastic cycles do no net work, dissipation never decreases, and the
+//! reported energies agree with the work done.
 //! - A closed elastic cycle (a small loop in the first two components from the start state)
 //!   does no net work: |∮σ·dε| ≤ 1e-10 of the work done on the way (trapezoid rule, exact for a
 //!   linear response).

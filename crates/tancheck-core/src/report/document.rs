@@ -29,6 +29,7 @@ pub enum Kind {
     Explore,
     /// The checks of a block routine (explicit dynamics).
     Block,
+    Demo,
 }
 
 impl Kind {
@@ -44,6 +45,7 @@ impl Kind {
             Kind::FiniteProbes => "finite-probes",
             Kind::Explore => "explore",
             Kind::Block => "block",
+            Kind::Demo => "demo",
         }
     }
 }

@@ -6,7 +6,7 @@ use std::io::{self, Write};
 use tancheck_core::probe::SuiteReport;
 use tancheck_core::Report;
 
-use super::model::{BisectOutcome, CaseFolderResult, ReplayReport, SelftestReport, SuiteContext};
+use super::model::{BisectOutcome, CaseFolderResult, DemoReport, ReplayReport, SelftestReport, SuiteContext};
 pub use super::style::Palette;
 use super::Reporter;
 
@@ -14,6 +14,7 @@ pub mod block;
 pub mod campaign;
 pub mod check;
 pub mod commands;
+pub mod demo;
 pub mod explore;
 
 pub use check::diagnosis;
@@ -82,6 +83,9 @@ impl Reporter for Terminal<'_> {
     }
     fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
         block::BlockTerminal { detail: self.detail, palette: self.palette }.write(report, &mut self.out)
+    }
+    fn demo(&mut self, report: &DemoReport) -> io::Result<()> {
+        demo::write(&mut self.out, report, self.detail, self.palette)
     }
     fn finish(&mut self) -> io::Result<()> {
         self.out.flush()

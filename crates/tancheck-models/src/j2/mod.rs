@@ -21,11 +21,9 @@
 //! [`J2Tangent::Continuum`] keeps the stress update and returns the continuum elastoplastic
 //! tangent instead (θ = 1, θ̄ = 1/(1 + (K' + H_kin)/(3μ))): a routine flawed on purpose.
 
-use tancheck_core::{
-    CallInput, CallOutput, Convention, Fault, Model, PointKind, RoutineInfo, Scalar, ShearMeasure,
-};
+use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{between, check_sizes, fail, positive, succeed};
+use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
 use crate::tensor::{
     deviator, is_shear_slot, isotropic_matrix, lame, norm_sq, sqrt_2_3, strain_to_tensor, stress_to_tensor,
     trace, write_tangent, SLOTS_4, SLOTS_6,
@@ -61,6 +59,32 @@ pub struct J2 {
     slots: &'static [usize],
 }
 
+/// The canonical slots and the info of a J2-type model for `kind` (the kinds with a 33
+/// component: solid-3d, plane strain, axisymmetric; default order, engineering shear), with
+/// `nstate(ncomp)` state variables; or the error naming the model.
+pub(crate) fn solid_layout(
+    model: &'static str,
+    kind: PointKind,
+    nstate: impl Fn(usize) -> usize,
+    nprop: usize,
+) -> Result<(&'static [usize], RoutineInfo), ModelError> {
+    let slots: &'static [usize] = match kind {
+        PointKind::Solid3d => &SLOTS_6,
+        PointKind::PlaneStrain | PointKind::Axisymmetric => &SLOTS_4,
+        _ => {
+            let supported = "solid-3d, plane-strain, axisymmetric";
+            return Err(ModelError::UnsupportedKind { model, kind, supported });
+        }
+    };
+    let info = RoutineInfo {
+        name: model.to_string(),
+        convention: Convention::new(kind, ShearMeasure::Engineering),
+        nstate: nstate(slots.len()),
+        nprop,
+    };
+    Ok((slots, info))
+}
+
 impl J2 {
     /// Name of the model with the consistent tangent.
     pub const NAME: &'static str = "j2";
@@ -87,28 +111,8 @@ impl J2 {
             J2Tangent::Consistent => Self::NAME,
             J2Tangent::Continuum => Self::CONTINUUM_NAME,
         };
-        let slots: &'static [usize] = match kind {
-            PointKind::Solid3d => &SLOTS_6,
-            PointKind::PlaneStrain | PointKind::Axisymmetric => &SLOTS_4,
-            _ => {
-                return Err(ModelError::UnsupportedKind {
-                    model: name,
-                    kind,
-                    supported: "solid-3d, plane-strain, axisymmetric",
-                })
-            }
-        };
-        let ncomp = slots.len();
-        Ok(J2 {
-            info: RoutineInfo {
-                name: name.to_string(),
-                convention: Convention::new(kind, ShearMeasure::Engineering),
-                nstate: 2 * ncomp + 1,
-                nprop: 7,
-            },
-            tangent,
-            slots,
-        })
+        let (slots, info) = solid_layout(name, kind, |ncomp| 2 * ncomp + 1, 7)?;
+        Ok(J2 { info, tangent, slots })
     }
 
     /// The tangent this model returns.
@@ -166,27 +170,13 @@ pub(crate) fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
     Ok(Props { lambda, mu, sy0, h_iso, q, b, h_kin })
 }
 
-impl Model for J2 {
-    fn info(&self) -> &RoutineInfo {
-        &self.info
-    }
+point_model!(J2, ENERGY);
 
-    fn outputs(&self) -> tancheck_core::routine::Capabilities {
-        tancheck_core::routine::Capabilities::ENERGY
-    }
-
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &CallInput<'_, S>,
-        output: &mut CallOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        check_sizes(&self.info, input, output)?;
-        let p = match read_props(input.props) {
-            Ok(p) => p,
-            Err(message) => {
-                fail(output, message);
-                return Ok(());
-            }
+impl J2 {
+    /// One call, its array sizes checked (see [`point_model`]).
+    fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
+        let Some(p) = props_or_fail(output, read_props(input.props)) else {
+            return;
         };
         let slots = self.slots;
         let n = slots.len();
@@ -198,7 +188,7 @@ impl Model for J2 {
         let k_n = p.yield_stress(alpha_n);
         if !positive(k_n.re()) {
             fail(output, "j2: the yield stress K(alpha) of the start state is not positive");
-            return Ok(());
+            return;
         }
 
         let beta_n = stress_to_tensor(beta_n_v, slots);
@@ -218,7 +208,7 @@ impl Model for J2 {
             write_tangent(&c, slots, output.tangent);
             finish(output, &p, input);
             succeed(output, 0, tancheck_core::routine::provides::ENERGY);
-            return Ok(());
+            return;
         }
 
         // Return mapping: Newton on g(Δγ) from Δγ = 0.
@@ -229,7 +219,7 @@ impl Model for J2 {
         };
         let Some(dgamma) = radial_return(norm, c_lin, two_mu, None, radius) else {
             fail(output, "j2: the return mapping did not converge in 50 Newton iterations");
-            return Ok(());
+            return;
         };
 
         let mut nrm = [S::zero(); 6];
@@ -241,7 +231,7 @@ impl Model for J2 {
         // ξ_{n+1} = √(2/3) K(α_{n+1}) n would point against n, and the root of g is no return.
         if !positive(p.yield_stress(alpha).re()) {
             fail(output, "j2: softening takes the yield stress K(alpha) to zero in this increment");
-            return Ok(());
+            return;
         }
         for (i, &slot) in slots.iter().enumerate() {
             output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
@@ -261,7 +251,6 @@ impl Model for J2 {
         write_tangent(&c, slots, output.tangent);
         finish(output, &p, input);
         succeed(output, 1, tancheck_core::routine::provides::ENERGY);
-        Ok(())
     }
 }
 
@@ -446,192 +435,4 @@ fn finish<S: Scalar>(output: &mut CallOutput<'_, S>, p: &Props<S>, input: &CallI
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-    use crate::testing::{run, Out, Point};
-    use tancheck_core::routine::status;
-
-    /// The worked case of REFERENCES.md: E = 200 GPa, ν = 0.3, σy0 = 250 MPa, H_iso = 1000 MPa,
-    /// no Voce term, H_kin = 500 MPa.
-    const WORKED: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-
-    fn at(t: &[f64], n: usize, i: usize, j: usize) -> f64 {
-        t[i + j * n]
-    }
-
-    /// |x − printed| within half a unit of the printed value's last digit.
-    fn assert_printed(x: f64, printed: f64, half_unit: f64, what: &str) {
-        assert!((x - printed).abs() <= half_unit, "{what} = {x:.10}, printed {printed}");
-    }
-
-    // Worked case, one increment ε = diag(0.003, 0, 0) from the virgin state. Values derived
-    // from the closed form of Simo & Taylor (1985), CMAME 48:101–118 / Simo & Hughes (1998)
-    // Box 3.2 (REFERENCES.md, "J2 plasticity"): σ11 = 667.5774, σ22 = σ33 = 416.2113 MPa,
-    // Δγ = 1.115432e-3, θ = 0.5446266, θ̄ = 0.5381686, C1111 = 167329.028,
-    // C2211 = C3311 = 166335.486, C1212 = μθ = 41894.353 MPa.
-    #[test]
-    fn worked_case_matches_the_published_closed_form() {
-        let m = J2::new(PointKind::Solid3d).unwrap();
-        let p = Point::new(&WORKED, 6, 13).dstrain(&[0.003, 0.0, 0.0, 0.0, 0.0, 0.0]);
-        let out = run(&m, &p).unwrap();
-        assert_eq!(out.outcome.status, status::OK);
-        assert_eq!(out.outcome.branch, 1);
-        assert_printed(out.stress[0], 667.5774, 5e-5, "σ11");
-        assert_printed(out.stress[1], 416.2113, 5e-5, "σ22");
-        assert_printed(out.stress[2], 416.2113, 5e-5, "σ33");
-        for s in &out.stress[3..] {
-            assert_eq!(*s, 0.0);
-        }
-        // α = √(2/3) Δγ (Simo & Hughes Box 3.2 update of the equivalent plastic strain).
-        let dgamma = out.state[6] / sqrt_2_3();
-        assert_printed(dgamma, 1.115432e-3, 5e-10, "Δγ");
-        let t = &out.tangent;
-        assert_printed(at(t, 6, 0, 0), 167329.028, 5e-4, "C1111");
-        assert_printed(at(t, 6, 1, 0), 166335.486, 5e-4, "C2211");
-        assert_printed(at(t, 6, 2, 0), 166335.486, 5e-4, "C3311");
-        for k in 3..6 {
-            assert_printed(at(t, 6, k, k), 41894.353, 5e-4, "shear diagonal");
-        }
-        // θ from C1212 = μθ and θ̄ from C1111 = κ + (4/3)μθ − 2μθ̄ n11², n11² = 2/3
-        // (the same closed form).
-        let (lambda, mu) = lame(WORKED[0], WORKED[1]);
-        let kappa = lambda + 2.0 * mu / 3.0;
-        let theta = at(t, 6, 5, 5) / mu;
-        assert_printed(theta, 0.5446266, 5e-8, "θ");
-        let theta_bar = (kappa + 4.0 / 3.0 * mu * theta - at(t, 6, 0, 0)) / (4.0 / 3.0 * mu);
-        assert_printed(theta_bar, 0.5381686, 5e-8, "θ̄");
-        // Flow direction n = diag(2, −1, −1)/√6: εp = Δγ n, β = ⅔ H_kin Δγ n.
-        let n11 = 2.0 / 6f64.sqrt();
-        assert!((out.state[0] - dgamma * n11).abs() < 1e-15);
-        assert!((out.state[1] + dgamma * n11 / 2.0).abs() < 1e-15);
-        assert!((out.state[7] - 2.0 / 3.0 * 500.0 * dgamma * n11).abs() < 1e-12);
-        // The symmetric tangent is stored symmetric.
-        for i in 0..6 {
-            for j in 0..6 {
-                assert!((at(t, 6, i, j) - at(t, 6, j, i)).abs() <= 1e-9 * at(t, 6, 0, 0));
-            }
-        }
-    }
-
-    // The 4-component kinds carry the 11, 22, 33, 12 rows and columns of the 3D update.
-    #[test]
-    fn four_components_are_the_3d_update_without_23_and_13() {
-        let de6 = [0.002, -0.0007, 0.0004, 0.0, 0.0, 0.0016];
-        let de4 = [0.002, -0.0007, 0.0004, 0.0016];
-        let out6 =
-            run(&J2::new(PointKind::Solid3d).unwrap(), &Point::new(&WORKED, 6, 13).dstrain(&de6)).unwrap();
-        for kind in [PointKind::PlaneStrain, PointKind::Axisymmetric] {
-            let out4 = run(&J2::new(kind).unwrap(), &Point::new(&WORKED, 4, 9).dstrain(&de4)).unwrap();
-            assert_eq!(out4.outcome.branch, 1);
-            let map = [0, 1, 2, 5];
-            for (i, &a) in map.iter().enumerate() {
-                assert!((out4.stress[i] - out6.stress[a]).abs() < 1e-10);
-                for (j, &b) in map.iter().enumerate() {
-                    assert!((at(&out4.tangent, 4, i, j) - at(&out6.tangent, 6, a, b)).abs() < 1e-8);
-                }
-            }
-        }
-    }
-
-    /// One increment in uniaxial stress: the lateral strain increments Δε22, Δε33 are solved
-    /// for σ22 = σ33 = 0 by Newton with the model's own tangent (shears stay zero).
-    fn uniaxial_stress_step(m: &J2, strain: &[f64; 6], state: &[f64], d11: f64) -> ([f64; 6], Out<f64>) {
-        let nu = WORKED[1];
-        let mut de = [d11, -nu * d11, -nu * d11, 0.0, 0.0, 0.0];
-        for _ in 0..40 {
-            let p = Point::new(&WORKED, 6, 13).strain(strain).dstrain(&de).state0(state);
-            let out = run(m, &p).unwrap();
-            let (r2, r3) = (out.stress[1], out.stress[2]);
-            let t = &out.tangent;
-            let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-            let det = a * d - b * c;
-            let x2 = (d * r2 - b * r3) / det;
-            let x3 = (a * r3 - c * r2) / det;
-            de[1] -= x2;
-            de[2] -= x3;
-            if r2.abs().max(r3.abs()) <= 1e-12 * out.stress[0].abs() {
-                return (de, out);
-            }
-        }
-        panic!("the uniaxial-stress Newton did not converge");
-    }
-
-    // Uniaxial elastoplastic modulus E_t = E h/(E + h), h = H_iso + H_kin: 1488.834 MPa for
-    // the worked case (REFERENCES.md, derived from the J2 closed form of Simo & Hughes 1998).
-    // Both the slope of the computed σ11–ε11 path and the tangent condensed to uniaxial
-    // stress, C11 − C1L C_LL⁻¹ C_L1 (L = 22, 33), must give it.
-    #[test]
-    fn uniaxial_stress_tangent_is_the_elastoplastic_modulus() {
-        let (e, h) = (WORKED[0], WORKED[3] + WORKED[6]);
-        let e_t = e * h / (e + h);
-        assert_printed(e_t, 1488.834, 5e-4, "E h/(E+h)");
-        let m = J2::new(PointKind::Solid3d).unwrap();
-        let mut strain = [0.0; 6];
-        let mut state = vec![0.0; 13];
-        let mut last: Option<(f64, f64)> = None;
-        let mut plastic_steps = 0;
-        // The first step (1e-3) stays elastic (yield strain 1.25e-3); the second crosses yield.
-        for d11 in [1e-3, 1e-3, 5e-4, 5e-4, 2e-3, 1e-4] {
-            let (de, out) = uniaxial_stress_step(&m, &strain, &state, d11);
-            for k in 0..6 {
-                strain[k] += de[k];
-            }
-            state.copy_from_slice(&out.state);
-            let s11 = out.stress[0];
-            if out.outcome.branch == 1 {
-                plastic_steps += 1;
-                let t = &out.tangent;
-                let (a, b, c, d) = (at(t, 6, 1, 1), at(t, 6, 1, 2), at(t, 6, 2, 1), at(t, 6, 2, 2));
-                let det = a * d - b * c;
-                let (c12, c13, c21, c31) = (at(t, 6, 0, 1), at(t, 6, 0, 2), at(t, 6, 1, 0), at(t, 6, 2, 0));
-                let condensed =
-                    at(t, 6, 0, 0) - (c12 * (d * c21 - b * c31) + c13 * (a * c31 - c * c21)) / det;
-                assert!((condensed - e_t).abs() <= 1e-8 * e_t, "condensed tangent {condensed} vs {e_t}");
-                if let Some((e_prev, s_prev)) = last {
-                    let slope = (s11 - s_prev) / (strain[0] - e_prev);
-                    assert!((slope - e_t).abs() <= 1e-8 * e_t, "path slope {slope} vs {e_t}");
-                }
-                last = Some((strain[0], s11));
-            } else {
-                assert!((s11 - e * strain[0]).abs() < 1e-9, "elastic uniaxial stress is E ε");
-            }
-        }
-        assert_eq!(plastic_steps, 5);
-    }
-
-    #[test]
-    fn bad_properties_and_kinds_are_refused() {
-        let m = J2::new(PointKind::Solid3d).unwrap();
-        let mut props = WORKED;
-        props[2] = 0.0;
-        let out = run(&m, &Point::new(&props, 6, 13)).unwrap();
-        assert_eq!(out.outcome.status, status::FAILED);
-        assert!(out.outcome.message_text().contains("sy0"));
-        assert!(out.tangent.iter().all(|x| x.is_nan()));
-        let mut props = WORKED;
-        props[3] = -300_000.0;
-        let out = run(&m, &Point::new(&props, 6, 13)).unwrap();
-        assert!(out.outcome.message_text().contains("softening"), "{}", out.outcome.message_text());
-        assert!(J2::new(PointKind::PlaneStress).is_err());
-        assert!(J2::continuum(PointKind::Uniaxial).is_err());
-        assert!(matches!(run(&m, &Point::new(&WORKED, 6, 9)), Err(Fault::Unsupported(_))));
-    }
-
-    // Elastic unloading from a plastic state keeps the state and returns the elastic matrix.
-    #[test]
-    fn elastic_steps_keep_the_state() {
-        let m = J2::new(PointKind::Solid3d).unwrap();
-        let first = run(&m, &Point::new(&WORKED, 6, 13).dstrain(&[0.003, 0.0, 0.0, 0.0, 0.0, 0.0])).unwrap();
-        let p = Point::new(&WORKED, 6, 13)
-            .strain(&[0.003, 0.0, 0.0, 0.0, 0.0, 0.0])
-            .dstrain(&[-0.0005, 0.0, 0.0, 0.0, 0.0, 0.0])
-            .state0(&first.state);
-        let out = run(&m, &p).unwrap();
-        assert_eq!(out.outcome.branch, 0);
-        assert_eq!(out.state, first.state);
-        let (lambda, mu) = lame(WORKED[0], WORKED[1]);
-        assert!((out.stress[0] - (first.stress[0] - (lambda + 2.0 * mu) * 0.0005)).abs() < 1e-9);
-        assert!((out.tangent[0] - (lambda + 2.0 * mu)).abs() < 1e-9);
-        assert!(out.tangent.iter().chain(&out.state).chain(&out.dstress_dtemp).all(|x| x.is_finite()));
-    }
-}
+mod tests;
