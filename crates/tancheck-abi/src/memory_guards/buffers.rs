@@ -260,7 +260,7 @@ impl<E: Element> GuardBuffers<E> {
     }
 
     /// Copy the outputs to the caller; never-written entries become a quiet NaN. A tangent
-    /// the call did not ask for stays as the caller left it (NaN: see `Caller::call`).
+    /// the call did not ask for stays as the caller left it (see `Caller::call`).
     fn store(&self, output: &mut CallOutput<'_, E>, want_tangent: bool) {
         let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
         let outs: [&mut [E]; 5] = [
