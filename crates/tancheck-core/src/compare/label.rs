@@ -27,8 +27,10 @@ impl Label {
                 }
             }
         }
-        // Never cut inside a character.
-        while std::str::from_utf8(&l.bytes[..l.len as usize]).is_err() {
+        // Never cut inside a character (component labels are ASCII: nothing to check then).
+        while !l.bytes[..l.len as usize].is_ascii()
+            && std::str::from_utf8(&l.bytes[..l.len as usize]).is_err()
+        {
             l.len -= 1;
         }
         l
