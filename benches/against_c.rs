@@ -12,7 +12,8 @@
 //!
 //! tancheck runs with its default settings except the first-call looks (a zero increment and
 //! one repeated call per newly reached branch, three calls here; `benches/check.rs` measures
-//! them), which the C loop does not make. The last benchmark of the J2 group adds what the
+//! them), which the C loop does not make, and keeps what `tancheck check` keeps without
+//! `--verbose`: a fixed-size record per increment, the full detail of failing ones. The last benchmark of the J2 group adds what the
 //! command line does after the check: the terminal report and the JSON report, in memory.
 //!
 //! The J2 group also runs the check on two threads (`--jobs 2`; the setup asserts that its
@@ -33,6 +34,7 @@ use tancheck::cli::load::Loaded;
 use tancheck::cli::report::terminal::{Detail, Terminal};
 use tancheck::cli::report::Reporter;
 use tancheck::core::path::Path;
+use tancheck::core::report::Keep;
 use tancheck::core::{check, Caller, Scheme, Verdict};
 
 use common::{loop_library, stats, CLoop, Example, Times, ELASTIC, J2};
@@ -51,7 +53,11 @@ fn tancheck_walk(
 ) -> (tancheck::core::Report, u64, u64, u64) {
     let settings = tancheck::core::Settings { jobs, ..settings() };
     let mut caller = Caller::new(l.routine());
-    let report = check::run(&mut caller, ex.props, start.clone(), path, &settings).expect("a valid check");
+    // As `tancheck check` keeps it (without `--verbose`): a record per increment, the full
+    // detail of failures only.
+    let report =
+        check::run_with(&mut caller, ex.props, start.clone(), path, &settings, Keep::Failures, &mut |_| {})
+            .expect("a valid check");
     let (real, complex) = (caller.real_calls, caller.complex_calls);
     let extra = match l {
         Loaded::Library(r) => r.guard_calls(),
@@ -104,13 +110,13 @@ fn bench(crit: &mut Criterion) {
         for (guards, l, start) in &mut loaded {
             let (report, real, complex, extra) = tancheck_walk(l, start, ex, &path, 1);
             assert_eq!(report.verdict, Verdict::Pass, "{} with guards {guards}", ex.label);
-            assert_eq!(report.increments.len(), INCREMENTS);
+            assert_eq!(report.records.len(), INCREMENTS);
             assert_eq!(real, c.real_calls as u64, "{} with guards {guards}: real calls", ex.label);
             assert_eq!(complex, c.complex_calls as u64, "{} with guards {guards}: complex calls", ex.label);
             assert_eq!(extra, 0, "{} with guards {guards}: extra calls of the guards", ex.label);
             assert_eq!(report.settings.schemes, vec![Scheme::Central, Scheme::ComplexStep]);
             if ex.states > 0 && *guards == "off" {
-                let plastic = report.increments.iter().filter(|i| i.state_changed).count();
+                let plastic = report.records.iter().filter(|i| i.state_changed).count();
                 assert!(plastic * 4 >= INCREMENTS, "{}: only {plastic} plastic increments", ex.label);
                 lines.push(format!("   {}: {plastic} of {INCREMENTS} increments plastic", ex.label));
             }

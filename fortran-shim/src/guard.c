@@ -29,12 +29,14 @@
  * (heap corruption found by the C library, abort) inside a call, and a fatal signal outside
  * a call all end the process with "last words": the fault line with the increment and the
  * inputs of the call that was running, and a JSON report naming the fault, written from
- * static buffers with plain write(2). A process-wide pair of call counters and the pointer
- * to the current call's arguments let a watchdog thread see a call that never returns.
+ * static buffers with plain write(2). Call counters and the pointer to the running call's
+ * arguments, one set per thread on a cache line of its own (watch_slot), let a watchdog
+ * thread see a call that never returns; it sums the threads' counters.
  *
  * The hot path allocates nothing and makes no system call: sigsetjmp saves no signal mask,
- * handlers are installed once per process and the alternate stack once per thread; the
- * watch costs two relaxed atomic increments and two stores per call.
+ * handlers are installed once per process and the alternate stack and watch slot once per
+ * thread; the watch costs two atomic increments and three stores per call, all on the
+ * calling thread's own line (threads calling at once do not pass a line between cores).
  */
 #define _GNU_SOURCE
 #include <errno.h>
@@ -165,6 +167,7 @@ typedef struct guard_thread {
     void *volatile addr;
     void *volatile pc;
     int prepared;                   /* alternate stack and stack bounds are set up */
+    struct watch_slot *slot;        /* this thread's calls (see watch_slot) */
     uintptr_t stack_lo;             /* lowest usable address of this thread's stack, or 0 */
 } guard_thread;
 
@@ -213,10 +216,22 @@ static void write_stderr(const char *s) {
 
 #define LW_PATH 4352
 static int watch_phase;                        /* TC_PHASE_*, atomic */
-static uint64_t calls_begun, calls_ended;      /* atomic; a call runs while they differ */
-static const tc_guard_args *current_args;      /* the running call's arguments, atomic */
-static int current_complex;                    /* the running call is the complex twin */
-static int current_increment = -1;             /* increment of the last call begun */
+/* The calls of one thread: each thread writes only its own slot, on a cache line of its own,
+ * so that threads calling the routine at once do not pass one line between the cores. The
+ * watch sums the slots. A thread takes a free slot when it is prepared and frees it when it
+ * ends (the counts stay in the slot: its next owner counts on from them). Threads beyond
+ * WATCH_SLOTS share the last slot (the counters are atomic, so the sums stay right). */
+#define WATCH_SLOTS 64
+typedef struct watch_slot {
+    uint64_t begun, ended;      /* atomic; a call of this thread runs while they differ */
+    const tc_guard_args *args;  /* the running call's arguments, atomic (NULL: block call) */
+    int complex_call;           /* the running call is the complex twin */
+    int increment;              /* increment of the thread's last call begun */
+    int owned;                  /* atomic: a thread holds the slot */
+} __attribute__((aligned(64))) watch_slot;
+static watch_slot watch_slots[WATCH_SLOTS];
+static int watch_used;                         /* atomic: slots ever handed out */
+static pthread_key_t watch_key;                /* frees the thread's slot when it ends */
 static int tool_stdout = -1;                   /* tancheck's own standard output */
 static char lw_label[512];                     /* routine name for messages outside calls */
 static char lw_head[16384];                    /* the JSON report's opening, from the program */
@@ -233,16 +248,49 @@ static size_t lw_len;
 
 static int tc_armed(void) { return __atomic_load_n(&watch_phase, __ATOMIC_RELAXED) != TC_PHASE_OFF; }
 
-static inline void watch_enter(const tc_guard_args *a, int complex_call) {
-    __atomic_store_n(&current_args, a, __ATOMIC_RELAXED);
-    __atomic_store_n(&current_complex, complex_call, __ATOMIC_RELAXED);
-    const guard_finite_call *fc = finite_call_of(a);
-    __atomic_store_n(&current_increment,
-                     fc != NULL ? fc->increment : (a->call != NULL ? a->call->increment : -1), __ATOMIC_RELAXED);
-    __atomic_fetch_add(&calls_begun, 1, __ATOMIC_RELEASE);
+/* The calling thread's slot (set by prepare_thread). */
+static inline watch_slot *own_slot(void) { return tc_thread.slot; }
+
+static inline void watch_enter_slot(const tc_guard_args *a, int complex_call, int increment) {
+    watch_slot *s = own_slot();
+    __atomic_store_n(&s->args, a, __ATOMIC_RELAXED);
+    __atomic_store_n(&s->complex_call, complex_call, __ATOMIC_RELAXED);
+    __atomic_store_n(&s->increment, increment, __ATOMIC_RELAXED);
+    __atomic_fetch_add(&s->begun, 1, __ATOMIC_RELEASE);
 }
 
-static inline void watch_leave(void) { __atomic_fetch_add(&calls_ended, 1, __ATOMIC_RELEASE); }
+static inline void watch_enter(const tc_guard_args *a, int complex_call) {
+    const guard_finite_call *fc = finite_call_of(a);
+    watch_enter_slot(a, complex_call,
+                     fc != NULL ? fc->increment : (a->call != NULL ? a->call->increment : -1));
+}
+
+static inline void watch_leave(void) { __atomic_fetch_add(&own_slot()->ended, 1, __ATOMIC_RELEASE); }
+
+/* The sums over the slots: calls ended (read first, so that it never exceeds calls begun),
+ * calls begun, and a slot whose call runs (the calling thread's first), or NULL. `last` gets
+ * the slot of the most calls begun, for the increment of the last call. */
+static void watch_sums(uint64_t *begun, uint64_t *ended, watch_slot **running, watch_slot **last) {
+    int used = __atomic_load_n(&watch_used, __ATOMIC_ACQUIRE);
+    if (used > WATCH_SLOTS) used = WATCH_SLOTS;
+    uint64_t e = 0, b = 0, most = 0;
+    watch_slot *run = NULL, *top = NULL;
+    for (int i = 0; i < used; i++) e += __atomic_load_n(&watch_slots[i].ended, __ATOMIC_ACQUIRE);
+    for (int i = 0; i < used; i++) {
+        watch_slot *s = &watch_slots[i];
+        const uint64_t sb = __atomic_load_n(&s->begun, __ATOMIC_ACQUIRE);
+        b += sb;
+        if (sb != __atomic_load_n(&s->ended, __ATOMIC_ACQUIRE) && (run == NULL || s == tc_thread.slot)) run = s;
+        if (top == NULL || sb > most) {
+            most = sb;
+            top = s;
+        }
+    }
+    *begun = b;
+    *ended = e;
+    if (running != NULL) *running = run;
+    if (last != NULL) *last = top;
+}
 
 static void copy_string(char *dst, size_t cap, const char *src) {
     size_t i = 0;
@@ -352,13 +400,17 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         for (;;) pause();
     }
     tc_thread.prepared = 2;
-    const uint64_t begun = __atomic_load_n(&calls_begun, __ATOMIC_ACQUIRE);
-    const uint64_t ended = __atomic_load_n(&calls_ended, __ATOMIC_ACQUIRE);
-    const int running = in_call == 1 || begun != ended;
+    uint64_t begun, ended;
+    watch_slot *run, *last;
+    watch_sums(&begun, &ended, &run, &last);
+    /* A fault inside a call is that thread's call; otherwise a call running on any thread. */
+    if (in_call == 1 && tc_thread.slot != NULL) run = tc_thread.slot;
+    const int running = in_call == 1 || run != NULL;
     const int phase = __atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
-    const int increment = __atomic_load_n(&current_increment, __ATOMIC_RELAXED);
-    const tc_guard_args *a = running ? __atomic_load_n(&current_args, __ATOMIC_RELAXED) : NULL;
-    const int cx = __atomic_load_n(&current_complex, __ATOMIC_RELAXED);
+    const watch_slot *seen = run != NULL ? run : last;
+    const int increment = seen != NULL ? __atomic_load_n(&seen->increment, __ATOMIC_RELAXED) : -1;
+    const tc_guard_args *a = running && run != NULL ? __atomic_load_n(&run->args, __ATOMIC_RELAXED) : NULL;
+    const int cx = run != NULL ? __atomic_load_n(&run->complex_call, __ATOMIC_RELAXED) : 0;
     const guard_finite_call *fc = finite_call_of(a);
     const tc_call *c = (a != NULL && fc == NULL) ? a->call : NULL;
     const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label : lw_label;
@@ -708,6 +760,28 @@ static void free_altstack(void *mem) {
     munmap(mem, page_size + altstack_size);
 }
 
+/* A thread that ends frees its watch slot (it is between calls then). */
+static void free_slot(void *slot) { __atomic_store_n(&((watch_slot *)slot)->owned, 0, __ATOMIC_RELEASE); }
+
+/* A free slot for the calling thread: a freed or unused one, else the last (shared). */
+static watch_slot *claim_slot(void) {
+    for (;;) {
+        const int used = __atomic_load_n(&watch_used, __ATOMIC_ACQUIRE);
+        for (int i = 0; i < used && i < WATCH_SLOTS; i++) {
+            int free = 0;
+            if (__atomic_compare_exchange_n(&watch_slots[i].owned, &free, 1, 0, __ATOMIC_ACQ_REL,
+                                            __ATOMIC_RELAXED)) {
+                pthread_setspecific(watch_key, &watch_slots[i]);
+                return &watch_slots[i];
+            }
+        }
+        if (used >= WATCH_SLOTS) return &watch_slots[WATCH_SLOTS - 1]; /* not freed at the end */
+        /* Open one more slot and try again (another thread may take it first). */
+        int seen = used;
+        __atomic_compare_exchange_n(&watch_used, &seen, used + 1, 0, __ATOMIC_ACQ_REL, __ATOMIC_RELAXED);
+    }
+}
+
 static void install(void) {
     long page = sysconf(_SC_PAGESIZE);
     if (page > 0) page_size = (size_t)page;
@@ -718,6 +792,7 @@ static void install(void) {
 #endif
     altstack_size = (want + page_size - 1) / page_size * page_size;
     if (pthread_key_create(&altstack_key, free_altstack) != 0) install_error = EAGAIN;
+    if (pthread_key_create(&watch_key, free_slot) != 0) install_error = EAGAIN;
 
     struct sigaction sa;
     memset(&sa, 0, sizeof sa);
@@ -772,6 +847,7 @@ static void prepare_thread(guard_thread *t) {
         pthread_attr_destroy(&attr);
     }
 #endif
+    if (t->slot == NULL) t->slot = claim_slot();
     t->prepared = 1;
 }
 
@@ -891,9 +967,10 @@ int32_t tc_guard_follow_parent(int32_t parent) {
 /* The watch for a watchdog thread: calls begun, calls ended, increment of the last call, and
  * the phase (TC_PHASE_*). */
 void tc_guard_watch(uint64_t out[4]) {
-    out[0] = __atomic_load_n(&calls_begun, __ATOMIC_ACQUIRE);
-    out[1] = __atomic_load_n(&calls_ended, __ATOMIC_ACQUIRE);
-    out[2] = (uint64_t)(int64_t)__atomic_load_n(&current_increment, __ATOMIC_RELAXED);
+    watch_slot *run, *last;
+    watch_sums(&out[0], &out[1], &run, &last);
+    const watch_slot *seen = run != NULL ? run : last;
+    out[2] = (uint64_t)(int64_t)(seen != NULL ? __atomic_load_n(&seen->increment, __ATOMIC_RELAXED) : -1);
     out[3] = (uint64_t)__atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
 }
 

@@ -119,8 +119,8 @@ pub fn check_call(
     settings: &Settings,
     previous: Option<&[f64]>,
 ) -> Result<CallCheck, Fault> {
-    let conv = caller.info().convention.clone();
-    let n = conv.ncomp();
+    // The convention is read through `caller` where it is needed (no copy per call).
+    let n = caller.info().convention.ncomp();
     let has_twin = caller.has_complex();
     driver.base_call(caller)?;
     let returned = driver.base.tangent.clone();
@@ -195,7 +195,7 @@ pub fn check_call(
                     best = Some((scheme, numerical.clone()));
                 }
                 CheckOutcome::Compared(compare_along(
-                    &conv,
+                    &caller.info().convention,
                     &returned,
                     &numerical,
                     ss.tol,
@@ -212,7 +212,7 @@ pub fn check_call(
                 Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
                     Ok(()) => {
                         let c = compare_dtemp_floor(
-                            &conv,
+                            &caller.info().convention,
                             ret,
                             &dtemp_num,
                             ss.tol,
@@ -275,6 +275,7 @@ pub fn check_call(
                 })
                 .fold(f64::INFINITY, f64::min),
         };
+        let conv = caller.info().convention.clone();
         out.diagnosis = Some(diagnose::run(driver, caller, &conv, &ctx, settings)?);
     }
     Ok(out)

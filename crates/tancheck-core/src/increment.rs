@@ -56,13 +56,12 @@ pub fn set(
     settings: &Settings,
     dstrain: &mut [f64],
 ) -> (Result<(), Fault>, Option<mixed::SolveLog>, Option<String>) {
-    let conv = caller.info().convention.clone();
-    conv.strain_from_canonical(&inc.dstrain, dstrain);
+    caller.info().convention.strain_from_canonical(&inc.dstrain, dstrain);
     driver.set_increment(dstrain, inc.dtemp, inc.dtime);
     let Some(hold) = &inc.hold_stress else {
         return (Ok(()), None, None);
     };
-    let (controlled, targets) = held_components(&conv, hold);
+    let (controlled, targets) = held_components(&caller.info().convention, hold);
     match mixed::solve(driver, caller, &controlled, &targets, &settings.mixed, true) {
         Ok(log) => {
             let note = (!log.converged).then(|| {

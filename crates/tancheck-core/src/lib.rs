@@ -30,6 +30,8 @@ pub mod routine;
 pub mod scalar;
 pub mod schemes;
 pub mod settings;
+#[cfg(test)]
+pub(crate) mod worked;
 
 pub use convention::{Component, Convention, PointKind, ShearMeasure};
 pub use driver::{Direction, Driver, PointState};

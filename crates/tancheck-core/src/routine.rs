@@ -308,7 +308,9 @@ impl<'r> Caller<'r> {
         self.routine.guard_next_call_fully()
     }
 
-    /// A real call, outputs pre-filled with NaN and the outcome reset.
+    /// A real call, outputs pre-filled with NaN and the outcome reset. A tangent the call does
+    /// not ask for (`want_tangent` off) is left as it was: the routine need not write it, and
+    /// the check never reads it (36 stores fewer in each perturbed call).
     #[inline]
     pub fn call(
         &mut self,
@@ -316,11 +318,12 @@ impl<'r> Caller<'r> {
         output: &mut CallOutput<'_, f64>,
     ) -> Result<(), Fault> {
         self.real_calls += 1;
-        prefill(output, f64::NAN);
+        prefill(output, f64::NAN, input.want_tangent);
         self.routine.call(input, output)
     }
 
-    /// A complex call, outputs pre-filled with NaN. `Fault::Unsupported` without a twin.
+    /// A complex call, outputs pre-filled with NaN (a tangent not asked for as in
+    /// [`Caller::call`]). `Fault::Unsupported` without a twin.
     #[inline]
     pub fn call_complex(
         &mut self,
@@ -331,15 +334,17 @@ impl<'r> Caller<'r> {
             return Err(Fault::Unsupported("the routine has no complex-step twin".into()));
         };
         self.complex_calls += 1;
-        prefill(output, Complex64::new(f64::NAN, f64::NAN));
+        prefill(output, Complex64::new(f64::NAN, f64::NAN), input.want_tangent);
         twin.call_complex(input, output)
     }
 }
 
-fn prefill<S: Copy>(o: &mut CallOutput<'_, S>, nan: S) {
+fn prefill<S: Copy>(o: &mut CallOutput<'_, S>, nan: S, tangent: bool) {
     o.stress.fill(nan);
     o.state.fill(nan);
-    o.tangent.fill(nan);
+    if tangent {
+        o.tangent.fill(nan);
+    }
     o.dstress_dtemp.fill(nan);
     o.energy[0] = nan;
     o.energy[1] = nan;

@@ -3,32 +3,10 @@
 use super::*;
 use crate::convention::{Convention, PointKind, ShearMeasure};
 
-/// A consistent J2 tangent of the worked case in REFERENCES.md (Simo & Taylor 1985,
-/// derived): C = κ1⊗1 + 2μθ(I − ⅓1⊗1) − 2μθ̄ n⊗n with uniaxial-strain n, engineering shear.
+/// The consistent J2 tangent of the worked case in REFERENCES.md (Simo & Taylor 1985,
+/// derived).
 fn j2_like() -> Vec<f64> {
-    let (e, nu) = (200000.0, 0.3);
-    let mu = e / (2.0 * (1.0 + nu));
-    let kappa = e / (3.0 * (1.0 - 2.0 * nu));
-    let (theta, theta_bar) = (0.5446266, 0.5381686);
-    let nv = [2.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), 0.0, 0.0, 0.0];
-    let mut c = vec![0.0; 36];
-    for j in 0..6 {
-        for i in 0..6 {
-            let one = if i < 3 && j < 3 { 1.0 } else { 0.0 };
-            let id = if i == j {
-                if i < 3 {
-                    1.0
-                } else {
-                    0.5
-                }
-            } else {
-                0.0
-            };
-            c[i + 6 * j] =
-                kappa * one + 2.0 * mu * theta * (id - one / 3.0) - 2.0 * mu * theta_bar * nv[i] * nv[j];
-        }
-    }
-    c
+    crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
 
 fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evidence<'a> {

@@ -1,0 +1,110 @@
+//! Tests of the comparison on worked tangents.
+
+use super::*;
+use crate::convention::{PointKind, ShearMeasure};
+use crate::worked::{self, isotropic};
+
+#[test]
+fn one_small_wrong_entry_is_seen_under_large_diagonal_entries() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good = isotropic(&conv, 115384.6, 76923.1);
+    let mut bad = good.clone();
+    // A zero coupling entry (11 row, 12 column) set to 1e-5 of the matrix norm.
+    let norm: f64 = {
+        let mut m = good.clone();
+        conv.tangent_to_mandel(&mut m);
+        m.iter().map(|x| x * x).sum::<f64>().sqrt()
+    };
+    bad[5 * 6] = 1e-5 * norm;
+    let c = compare(&conv, &bad, &good, 1e-6, 1e-2, 3);
+    assert!(!c.pass);
+    assert!(c.norm_error < 2e-5, "the norm alone barely sees it: {}", c.norm_error);
+    assert!(c.worst_entry_error > 1e-4);
+    assert_eq!(c.worst[0].label, "11/12");
+    assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).pass);
+    // Every entry's error is kept for a failing comparison (the HTML heatmap), column-major
+    // in routine order: the wrong one is row 0 (11), column 5 (12), and only it is off.
+    assert_eq!(c.entry_errors.len(), 36);
+    assert_eq!(c.entry_errors[5 * 6], c.worst_entry_error);
+    assert!(c.entry_errors.iter().enumerate().all(|(k, &e)| k == 5 * 6 || e == 0.0), "{:?}", c.entry_errors);
+    // ... and dropped when it passes.
+    assert!(compare(&conv, &good, &good, 1e-12, 1e-2, 3).entry_errors.is_empty());
+}
+
+#[test]
+fn the_verdict_does_not_depend_on_the_convention() {
+    // The same wrong map written in two conventions gives the same errors.
+    let a = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let b = Convention::from_labels(
+        PointKind::Solid3d,
+        &["11", "22", "33", "12", "13", "23"],
+        ShearMeasure::Tensor,
+    )
+    .unwrap();
+    let ga = isotropic(&a, 100.0, 50.0);
+    let gb = isotropic(&b, 100.0, 50.0);
+    let mut ba = ga.clone();
+    let mut bb = gb.clone();
+    // Scale the 23-23 shear entry by 2 in both (the tensor-vs-engineering confusion).
+    let pa = a.position(crate::convention::Component::C23).unwrap();
+    let pb = b.position(crate::convention::Component::C23).unwrap();
+    ba[pa + pa * 6] *= 2.0;
+    bb[pb + pb * 6] *= 2.0;
+    let ca = compare(&a, &ba, &ga, 1e-6, 1e-2, 1);
+    let cb = compare(&b, &bb, &gb, 1e-6, 1e-2, 1);
+    assert!((ca.norm_error - cb.norm_error).abs() < 1e-14);
+    assert!((ca.worst_entry_error - 1.0).abs() < 1e-12);
+    assert_eq!(ca.worst[0].label, "23/23");
+    assert_eq!(cb.worst[0].label, "23/23");
+}
+
+#[test]
+fn non_finite_entries_fail() {
+    let conv = Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering);
+    let c = compare(&conv, &[f64::NAN], &[200.0], 1e-6, 1e-2, 1);
+    assert!(!c.pass);
+    assert_eq!(c.non_finite_returned, 1);
+    assert!(c.worst_entry_error.is_infinite());
+}
+
+// A returned zero ∂σ/∂T against rounding noise of a difference in the temperature is not a
+// 100 % error: the floor is a stress scale per temperature scale. A genuine derivative of
+// a thermo-elastic law (−C:1 α = −3κα ≈ −6.3 MPa/K for steel, K = E/(3(1 − 2ν)), E = 210 GPa, ν = 0.3,
+// α = 12e-6/K: EN 1993-1-1 §3.2.6, memory) returned as zero still fails.
+#[test]
+fn dtemp_zero_against_noise_passes_and_against_a_real_derivative_fails() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let stress = [300.0, 100.0, 100.0, 0.0, 0.0, 50.0];
+    let tangent = isotropic(&conv, 121153.8, 80769.2);
+    let floor = dtemp_floor(&stress, &tangent, 2e-3, 20.0);
+    assert!(floor > 0.0);
+    let zero = [0.0; 6];
+    let noise = [3e-9, -2e-9, 1e-9, 0.0, 4e-10, 0.0];
+    let c = compare_dtemp_floor(&conv, &zero, &noise, 1e-6, 1e-2, 1, floor);
+    assert!(c.pass, "{c:?}");
+    assert!(!compare_dtemp(&conv, &zero, &noise, 1e-6, 1e-2, 1).pass, "without the floor: 100 %");
+    let k = 210000.0 / (3.0 * (1.0 - 2.0 * 0.3));
+    let real: [f64; 6] = [-3.0 * k * 12e-6, -3.0 * k * 12e-6, -3.0 * k * 12e-6, 0.0, 0.0, 0.0];
+    assert!((real[0] + 6.3).abs() < 0.01, "{}", real[0]);
+    assert!(!compare_dtemp_floor(&conv, &zero, &real, 1e-6, 1e-2, 1, floor).pass);
+}
+
+// The soft-direction error: the J2 worked case of REFERENCES.md (θ = 0.5446266,
+// θ̄ = 0.5381686) with the plastic correction 2μθ̄ n⊗n off by 1 %: the norm sees it against
+// the elastic scale, the softest direction n against its own modulus 2μ(θ − θ̄) (or the
+// soft floor).
+#[test]
+fn an_error_in_the_soft_direction_is_measured_against_the_soft_modulus() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let mu = worked::J2_E / (2.0 * (1.0 + worked::J2_NU));
+    let (theta, theta_bar) = (worked::J2_THETA, worked::J2_THETA_BAR);
+    let good = worked::j2(theta_bar);
+    let bad = worked::j2(theta_bar * 1.01);
+    let c = compare_along(&conv, &bad, &good, 1e-4, 1e-2, 1, Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
+    let soft_modulus = 2.0 * mu * (theta - theta_bar);
+    let want = 0.01 * 2.0 * mu * theta_bar / soft_modulus.max(SOFT_FLOOR * 4.0e5);
+    assert!(c.soft_error > 10.0 * c.norm_error, "{c:?}");
+    assert!(c.soft_error > 0.5 * want && c.soft_error < 2.0 * want, "{} vs {want}", c.soft_error);
+    assert!(!c.pass);
+    assert_eq!(compare_along(&conv, &good, &good, 1e-12, 1e-2, 1, None).soft_error, 0.0);
+}
