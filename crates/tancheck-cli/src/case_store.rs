@@ -1,6 +1,7 @@
 //! Case files on disk and the routine they are about: open the routine a manifest names (a
 //! built-in model or a loaded library) with the routine part of a case, name and write case
-//! files. Shared by `tancheck bisect` (writes cases) and `tancheck replay` (reads them).
+//! files. Shared by `tancheck bisect` and `tancheck explore` (write cases) and `tancheck replay`
+//! (reads them).
 
 use std::path::{Component as PathPart, Path as FsPath, PathBuf};
 
@@ -8,7 +9,10 @@ use anyhow::{bail, Context, Result};
 use sha2::{Digest, Sha256};
 
 use tancheck_abi::{GuardLevel, LibraryRoutine};
-use tancheck_core::case::{Case, CaseRoutine};
+use tancheck_core::bisect::{self, Located};
+use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
+use tancheck_core::path::Path;
+use tancheck_core::{Caller, PointState, Settings};
 use tancheck_core::{ModelRoutine, Routine};
 use tancheck_models::zoo::{zoo_model, ZooModel};
 
@@ -162,4 +166,51 @@ pub fn default_case_dir(manifest: &FsPath, dir: &FsPath) -> PathBuf {
 /// a folder).
 pub fn case_routine_of(m: &Manifest, dir: &FsPath) -> Result<CaseRoutine> {
     open_for_manifest(m, dir).map(|(_, spec)| spec)
+}
+
+/// The case of the located increment of `path` (from `start`): walk there, check the call
+/// with the full settings (diagnosis included), capture it. A call that passes when checked
+/// again on its own adds a warning (`tancheck bisect` and `tancheck explore` both write cases).
+#[allow(clippy::too_many_arguments)]
+pub fn capture(
+    caller: &mut Caller<'_>,
+    spec: &CaseRoutine,
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    located: &Located,
+    settings: &Settings,
+    manifest: &FsPath,
+    shrunk_from: Option<usize>,
+    warnings: &mut Vec<String>,
+) -> Result<Case> {
+    let index = located.increment;
+    let (mut driver, previous) =
+        bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
+    let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
+    if judged.as_ref().is_ok_and(|c| c.passed()) {
+        warnings.push(format!(
+            "increment {index} passed when checked again on its own: the routine does not repeat its results \
+             (hidden state between calls?)"
+        ));
+    }
+    let prefix = Path { name: path.name.clone(), increments: path.increments[..index].to_vec() };
+    let origin = CaseOrigin {
+        manifest: Some(manifest.display().to_string()),
+        path: path.name.clone(),
+        increment: index,
+        of: path.increments.len(),
+        branch: located.branch.clone(),
+        crossing: CaseOrigin::crossing_of(&located.inside),
+        shrunk_from,
+    };
+    Ok(Case::capture(
+        spec.clone(),
+        &driver,
+        judged.as_ref(),
+        previous.as_deref(),
+        settings,
+        origin,
+        Some((start, &prefix)),
+    ))
 }

@@ -6,11 +6,10 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 use clap::{Args, CommandFactory, Parser, Subcommand};
 
-use tancheck_core::{Caller, PointKind, Scheme};
+use tancheck_core::{PointKind, Scheme};
 
 use crate::demo::DemoArgs;
 use crate::exit;
-use crate::load::{load, start_state};
 use crate::manifest::{path_arg, Manifest};
 use crate::report::model::SuiteContext;
 use crate::report::Reporter;
@@ -392,23 +391,7 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,
         None => notes.extend(suite.fit_at(&path)),
     }
-    let mut loaded = load(&m, &dir).with_context(|| format!("loading the routine of {file}"))?;
-    let routine = loaded.routine();
-    let start = start_state(&m, routine.info()).with_context(|| file.clone())?;
-    let mut caller = Caller::new(routine);
-    crate::survive::checking(true);
-    let report = tancheck_core::probe::run_suite(
-        &mut caller,
-        &suite.suite,
-        &suite.probes,
-        &m.routine.properties,
-        &start,
-        &path,
-        &m.check,
-    )
-    .map_err(anyhow::Error::msg);
-    crate::survive::checking(false);
-    let report = report?;
+    let report = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path)?;
     let source = if a.path.is_some() {
         "from --path"
     } else if m.path.is_some() && !a.suite_path {

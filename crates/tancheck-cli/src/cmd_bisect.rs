@@ -4,15 +4,13 @@
 //! (mismatch, truncation or noise), and a shrunk path that still fails. The failing calls are
 //! written as case files for `tancheck replay`.
 
-use std::path::{Path as FsPath, PathBuf};
+use std::path::PathBuf;
 
 use anyhow::{Context, Result};
 use clap::Args;
 
-use tancheck_core::bisect::{self, BisectSettings, Located, ShrinkLimits, ShrinkStop};
-use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
-use tancheck_core::path::Path;
-use tancheck_core::{check, Caller, PointState, Settings};
+use tancheck_core::bisect::{self, BisectSettings, ShrinkLimits, ShrinkStop};
+use tancheck_core::{check, Caller};
 
 use crate::case_store::{open_for_manifest, write_case};
 use crate::exit;
@@ -67,52 +65,6 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
     }
 }
 
-/// Write the case of increment `index` of `path` (from `start`): walk there, check the call
-/// with the full settings (diagnosis included), capture it.
-#[allow(clippy::too_many_arguments)]
-fn capture(
-    caller: &mut Caller<'_>,
-    spec: &CaseRoutine,
-    props: &[f64],
-    start: &PointState,
-    path: &Path,
-    located: &Located,
-    settings: &Settings,
-    manifest: &FsPath,
-    shrunk_from: Option<usize>,
-    warnings: &mut Vec<String>,
-) -> Result<Case> {
-    let index = located.increment;
-    let (mut driver, previous) =
-        bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
-    let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
-    if judged.as_ref().is_ok_and(|c| c.passed()) {
-        warnings.push(format!(
-            "increment {index} passed when checked again on its own: the routine does not repeat its results \
-             (hidden state between calls?)"
-        ));
-    }
-    let prefix = Path { name: path.name.clone(), increments: path.increments[..index].to_vec() };
-    let origin = CaseOrigin {
-        manifest: Some(manifest.display().to_string()),
-        path: path.name.clone(),
-        increment: index,
-        of: path.increments.len(),
-        branch: located.branch.clone(),
-        crossing: CaseOrigin::crossing_of(&located.inside),
-        shrunk_from,
-    };
-    Ok(Case::capture(
-        spec.clone(),
-        &driver,
-        judged.as_ref(),
-        previous.as_deref(),
-        settings,
-        origin,
-        Some((start, &prefix)),
-    ))
-}
-
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
     a.output.check_files()?;
@@ -159,7 +111,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     let mut to_write = Vec::new();
     let mut shrunk = None;
     if let Some(l) = &located {
-        let c = capture(
+        let c = crate::case_store::capture(
             &mut caller,
             &spec,
             &props,
@@ -188,7 +140,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
                     bisect::locate(&mut caller, &props, start.clone(), &s.path, &s.report, &settings, &bs)
                         .map_err(anyhow::Error::msg)?;
                 if let Some(l2) = &l2 {
-                    let c = capture(
+                    let c = crate::case_store::capture(
                         &mut caller,
                         &spec,
                         &props,

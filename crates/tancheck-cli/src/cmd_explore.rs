@@ -2,16 +2,13 @@
 //! as `check` checks one, steered towards branches and state changes not reached yet; every
 //! distinct failure shrunk and written as a case file for `tancheck replay`.
 
-use std::path::{Path as FsPath, PathBuf};
+use std::path::PathBuf;
 
 use anyhow::{bail, Context, Result};
 use clap::Args;
 
-use tancheck_core::bisect::{self, Located};
-use tancheck_core::case::{Case, CaseOrigin, CaseRoutine};
 use tancheck_core::explore::{self, Budget, ExploreSettings, NamedBranch, DEFAULT_PATHS};
-use tancheck_core::path::Path;
-use tancheck_core::{Caller, PointState, Settings};
+use tancheck_core::Caller;
 
 use crate::case_store::{open_for_manifest, write_case};
 use crate::load::start_state;
@@ -64,45 +61,6 @@ pub fn budget_of(a: &ExploreArgs) -> Budget {
     let paths =
         if paths.is_none() && a.calls.is_none() && a.time.is_none() { Some(DEFAULT_PATHS) } else { paths };
     Budget { paths, calls: a.calls, seconds: a.time }
-}
-
-/// Write the case of the located failure of `path` (from `start`): walk there, check the call
-/// with the full settings, capture it.
-#[allow(clippy::too_many_arguments)]
-fn capture(
-    caller: &mut Caller<'_>,
-    spec: &CaseRoutine,
-    props: &[f64],
-    start: &PointState,
-    path: &Path,
-    located: &Located,
-    settings: &Settings,
-    manifest: &FsPath,
-    shrunk_from: usize,
-) -> Result<Case> {
-    let index = located.increment;
-    let (mut driver, previous) =
-        bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
-    let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
-    let prefix = Path { name: path.name.clone(), increments: path.increments[..index].to_vec() };
-    let origin = CaseOrigin {
-        manifest: Some(manifest.display().to_string()),
-        path: path.name.clone(),
-        increment: index,
-        of: path.increments.len(),
-        branch: located.branch.clone(),
-        crossing: CaseOrigin::crossing_of(&located.inside),
-        shrunk_from: Some(shrunk_from),
-    };
-    Ok(Case::capture(
-        spec.clone(),
-        &driver,
-        judged.as_ref(),
-        previous.as_deref(),
-        settings,
-        origin,
-        Some((start, &prefix)),
-    ))
 }
 
 /// `tancheck explore`.
@@ -159,10 +117,11 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     let mut report = result.map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
     let case_dir =
         a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
+    let mut case_notes = Vec::new();
     for f in &mut report.findings {
         let Some(s) = &f.shrunk else { continue };
         let Some(l) = &s.located else { continue };
-        let written = capture(
+        let written = crate::case_store::capture(
             &mut caller,
             &spec,
             &f.properties,
@@ -171,7 +130,8 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
             l,
             &settings,
             &a.manifest,
-            f.path.increments.len(),
+            Some(f.path.increments.len()),
+            &mut case_notes,
         )
         .and_then(|c| write_case(&case_dir, &c));
         match written {
@@ -180,6 +140,7 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
             Err(e) => report.notes.push(format!("the case of `{}` was not written: {e:#}", f.finding)),
         }
     }
+    report.notes.extend(case_notes);
     crate::survive::checking(false);
     let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
     reporters.explore(&report)?;

@@ -177,3 +177,33 @@ pub fn emit(report: &Report, detail: Detail, json: Option<&std::path::Path>) -> 
     r.finish()?;
     Ok(())
 }
+
+/// Run a probe suite on the routine a manifest names, along `path`: load it, start from the
+/// manifest's start state, run the suite with the manifest's check settings. `file` names the
+/// manifest in errors. Used by `tancheck probe` and by campaigns.
+pub fn run_probe_suite(
+    m: &Manifest,
+    dir: &std::path::Path,
+    file: &str,
+    suite: &crate::suite::Suite,
+    path: &Path,
+) -> Result<tancheck_core::probe::SuiteReport> {
+    use anyhow::Context;
+    let mut loaded = load(m, dir).with_context(|| format!("loading the routine of {file}"))?;
+    let routine = loaded.routine();
+    let start = start_state(m, routine.info()).with_context(|| file.to_string())?;
+    let mut caller = Caller::new(routine);
+    crate::survive::checking(true);
+    let report = tancheck_core::probe::run_suite(
+        &mut caller,
+        &suite.suite,
+        &suite.probes,
+        &m.routine.properties,
+        &start,
+        path,
+        &m.check,
+    )
+    .map_err(anyhow::Error::msg);
+    crate::survive::checking(false);
+    report
+}

@@ -6,7 +6,7 @@ use std::path::Path as FsPath;
 
 use anyhow::{anyhow, bail, Context, Result};
 use tancheck_core::report::Keep;
-use tancheck_core::{Caller, Verdict};
+use tancheck_core::Verdict;
 
 use super::build::Built;
 use super::file::{normalize, Campaign, Family, Item, Task};
@@ -242,24 +242,7 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
                 (None, None) => suite.path().map_err(anyhow::Error::msg)?,
             };
             let _ = suite.fit_at(&path);
-            let mut loaded =
-                crate::load::load(&m, &dir).with_context(|| format!("loading the routine of {file}"))?;
-            let routine = loaded.routine();
-            let start = crate::load::start_state(&m, routine.info()).with_context(|| file.clone())?;
-            let mut caller = Caller::new(routine);
-            crate::survive::checking(true);
-            let rep = tancheck_core::probe::run_suite(
-                &mut caller,
-                &suite.suite,
-                &suite.probes,
-                &m.routine.properties,
-                &start,
-                &path,
-                &m.check,
-            )
-            .map_err(anyhow::Error::msg);
-            crate::survive::checking(false);
-            let rep = rep?;
+            let rep = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path)?;
             let failed: Vec<_> =
                 rep.results.iter().filter(|p| p.status == tancheck_core::probe::ProbeStatus::Fail).collect();
             Ok(Found {

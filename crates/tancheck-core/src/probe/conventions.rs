@@ -101,7 +101,7 @@ mod tests {
     use super::*;
     use crate::convention::{Component, Convention, PointKind, ShearMeasure};
     use crate::convention_fit::readings;
-    use crate::probe::testing::isotropic;
+    use crate::worked::isotropic;
 
     fn conv(labels: &[&str], shear: ShearMeasure) -> Convention {
         let kind = if labels.len() == 6 { PointKind::Solid3d } else { PointKind::PlaneStrain };

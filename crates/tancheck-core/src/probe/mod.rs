@@ -30,8 +30,6 @@ pub mod softening;
 pub mod stability;
 pub mod symmetry;
 pub mod tangent;
-#[cfg(test)]
-pub(crate) mod testing;
 pub mod viscous_limit;
 pub mod zero_increment;
 
