@@ -256,9 +256,21 @@ pub fn check_call(
                 )),
                 _ => None,
             });
+        let dtemp_complex =
+            out.checks.iter().find(|c| c.scheme == Scheme::ComplexStep).and_then(|c| {
+                match &c.dstress_dtemp {
+                    Some(CheckOutcome::Compared(x)) => Some((
+                        if x.pass { x.error().min(x.tol) } else { x.error().max(x.tol * (1.0 + 1e-12)) },
+                        x.tol,
+                    )),
+                    _ => None,
+                }
+            });
         let ctx = Context {
             returned: &returned,
             dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
+            dtemp_complex,
+            dtemp_floor: dtemp_abs_floor,
             complex,
             twin_real_gap,
             tangent_checks_pass: out.checks.iter().all(tangent_ok),

@@ -17,13 +17,18 @@
 //!    derivatives below it; away from a kink, an exact complex-step agreement passes;
 //! 4. a study that converges with its order to the failed check's tolerance clears the
 //!    increment (the default step was poor);
-//! 5. a wrong ∂σ/∂T with a right tangent is its own finding;
+//! 5. a wrong ∂σ/∂T with a right tangent is its own finding; the ∂σ/∂T column is judged by
+//!    the rules of 2 and 3 first ([`dtemp_excuse`]): at a kink in the temperature an exact
+//!    complex-step agreement stands, else the returned ∂σ/∂T must equal its forward or
+//!    backward derivative; near one it must equal both below it; away from one an exact
+//!    complex-step agreement passes;
 //! 6. otherwise the tangent differs: the first explaining cause names it, once the causes
 //!    were tried ([`Decision::needs_causes`] asks for them).
 
 use super::causes::{Cause, Hypothesis};
 use super::kink::{Kink, Side};
 use super::study::{self, Behaviour, StepStudy};
+use super::temp_kink::TempKink;
 
 /// The finding of an increment whose complex-step twin is not complex-step safe.
 pub const TWIN_FINDING: &str = "twin-not-complex-step-safe";
@@ -70,6 +75,10 @@ pub struct Observed {
     /// The ∂σ/∂T check failed, and the ranked causes of that.
     pub dtemp_failed: bool,
     pub dtemp_causes: Vec<Hypothesis>,
+    /// The temperature kink probe, when the ∂σ/∂T check failed.
+    pub dtemp_kink: Option<TempKink>,
+    /// The complex-step ∂σ/∂T check, when it ran: its error and tolerance.
+    pub dtemp_complex: Option<(f64, f64)>,
     /// Ranked cause trials, when made.
     pub causes: Option<Vec<Hypothesis>>,
 }
@@ -96,20 +105,19 @@ fn twin_real_part_differs(o: &Observed) -> bool {
     o.twin.is_some_and(|t| t.real_part_gap.is_nan() || t.real_part_gap > REAL_PART_LEVEL)
 }
 
-/// Decide the finding of one increment from its evidence. No I/O, no routine calls.
-pub fn decide(o: &Observed) -> Decision {
+/// Real schemes that agree with the returned tangent, with their order shown.
+fn real_agree(o: &Observed) -> Option<&StepStudy> {
+    o.studies
+        .iter()
+        .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
+        .find(|s| s.behaviour == Behaviour::Converges)
+}
+
+/// Rule 1: the twin is not complex-step safe.
+fn twin_unsafe(o: &Observed) -> bool {
     let kink = o.kink.as_ref().filter(|k| k.detected);
     let complex_error = o.complex.map(|(e, _)| e);
     let complex_pass = o.complex.map(|(e, tol)| e <= tol);
-    // Real schemes that agree with the returned tangent, with their order shown.
-    let real_agree = o
-        .studies
-        .iter()
-        .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
-        .find(|s| s.behaviour == Behaviour::Converges);
-    let clears = study::clearing(&o.studies, o.failed_tol);
-    // 1. The twin.
-    let real_part_differs = twin_real_part_differs(o);
     let derivative_off = match (o.twin.and_then(|t| t.derivative_gap), complex_error) {
         // The complex derivative is no closer to the real reference than the returned tangent
         // is to the complex one: the twin, not the tangent, is off.
@@ -118,8 +126,71 @@ pub fn decide(o: &Observed) -> Decision {
         (Some(g), Some(e)) => g >= 0.5 * e,
         _ => false,
     };
-    let twin_unsafe = real_part_differs
-        || (complex_pass == Some(false) && kink.is_none() && real_agree.is_some() && derivative_off);
+    twin_real_part_differs(o)
+        || (complex_pass == Some(false) && kink.is_none() && real_agree(o).is_some() && derivative_off)
+}
+
+/// Why a failed ∂σ/∂T check is not held against the routine, by the rules the strain columns
+/// follow (2 and 3 of the module's list): `None` when it is.
+pub fn dtemp_excuse(o: &Observed) -> Option<String> {
+    if !o.dtemp_failed {
+        return None;
+    }
+    let complex = if twin_unsafe(o) { None } else { o.dtemp_complex.map(|(e, tol)| e <= tol) };
+    match &o.dtemp_kink {
+        Some(k) if k.detected => {
+            let head = format!(
+                "∂σ/∂T: the point sits on a kink in the temperature (the one-sided derivatives differ by {:.2e}, a central difference straddles it)",
+                k.gaps.last().copied().unwrap_or(f64::NAN)
+            );
+            if complex == Some(true) {
+                Some(format!("{head}; the complex step (which does not cross it) equals the returned ∂σ/∂T"))
+            } else if matches!(k.matches, Side::Forward | Side::Backward) {
+                Some(format!(
+                    "{head}; the returned ∂σ/∂T equals the {} derivative (error {:.2e})",
+                    k.matches.word(),
+                    k.forward_error.min(k.backward_error)
+                ))
+            } else {
+                None
+            }
+        }
+        Some(k) if k.nearby => (complex != Some(false)
+            && k.forward_error.min(k.backward_error) <= NEARBY_LEVEL)
+            .then(|| {
+                format!(
+                    "∂σ/∂T: a branch boundary in the temperature lies within the default step (the one-sided derivatives differ by {:.2e} at the largest probe step and agree at the smallest); there the returned ∂σ/∂T equals them (within {NEARBY_LEVEL:.0e})",
+                    k.gaps[0]
+                )
+            }),
+        _ => (complex == Some(true)).then(|| "∂σ/∂T: the complex-step derivative equals the returned ∂σ/∂T".into()),
+    }
+}
+
+/// Decide the finding of one increment from its evidence. No I/O, no routine calls.
+pub fn decide(o: &Observed) -> Decision {
+    match dtemp_excuse(o) {
+        None => decide_tangent(o),
+        Some(why) => {
+            let mut d = decide_tangent(&Observed { dtemp_failed: false, ..o.clone() });
+            if d.pass {
+                d.reason = if d.reason.is_empty() { why } else { format!("{}; {why}", d.reason) };
+            }
+            d
+        }
+    }
+}
+
+/// The decision with the ∂σ/∂T check's failure, if any, held against the routine.
+fn decide_tangent(o: &Observed) -> Decision {
+    let kink = o.kink.as_ref().filter(|k| k.detected);
+    let complex_error = o.complex.map(|(e, _)| e);
+    let complex_pass = o.complex.map(|(e, tol)| e <= tol);
+    let real_agree = real_agree(o);
+    let clears = study::clearing(&o.studies, o.failed_tol);
+    // 1. The twin.
+    let real_part_differs = twin_real_part_differs(o);
+    let twin_unsafe = twin_unsafe(o);
     let complex_pass = if twin_unsafe { None } else { complex_pass };
     let trust_twin = o.complex.is_some() && !twin_unsafe;
     let mut d = Decision {

@@ -23,11 +23,13 @@ pub mod causes;
 pub mod decide;
 pub mod kink;
 pub mod study;
+pub mod temp_kink;
 
 pub use causes::{Cause, Hypothesis, Refinement};
 pub use decide::{decide, Decision, Observed, TwinEvidence, TWIN_FINDING};
 pub use kink::{Kink, KinkColumn, Side};
 pub use study::{Behaviour, StepStudy};
+pub use temp_kink::TempKink;
 
 /// Fractions of the increment used to show a continuum tangent.
 const REFINE: [f64; 3] = [0.125, 0.0625, 0.03125];
@@ -58,6 +60,10 @@ pub struct Context<'a> {
     pub returned: &'a [f64],
     /// ∂σ/∂T returned and its numerical estimate, when the ∂σ/∂T check failed.
     pub dtemp: Option<(&'a [f64], &'a [f64])>,
+    /// The complex-step ∂σ/∂T check, when it ran: its error and tolerance.
+    pub dtemp_complex: Option<(f64, f64)>,
+    /// The absolute floor of the ∂σ/∂T comparison ([`crate::compare::dtemp_floor`]).
+    pub dtemp_floor: f64,
     /// The complex-step check, when it ran: its error and tolerance.
     pub complex: Option<(f64, f64)>,
     /// The largest gap between the twin's real part and the real stress over the increment's
@@ -123,8 +129,20 @@ pub fn run(
         }
         twin = Some(decide::TwinEvidence { real_part_gap: ctx.twin_real_gap.unwrap_or(0.0), derivative_gap });
     }
+    // A failed ∂σ/∂T check: probe for a kink in the temperature; at one, the causes are
+    // ranked against the closer one-sided derivative, not the straddling difference.
+    let dtemp_kink = match ctx.dtemp {
+        Some((ret, _)) => {
+            let ts = driver.temp_scale(settings.temp_floor);
+            Some(temp_kink::probe(driver, caller, conv, ret, ts, settings.forward.tol, ef, ctx.dtemp_floor)?)
+        }
+        None => None,
+    };
     let dtemp_causes = match ctx.dtemp {
-        Some((ret, num)) => causes::rank_dtemp(conv, ret, num, &driver.base.stress, settings.central.tol, ef),
+        Some((ret, num)) => {
+            let reference = dtemp_kink.as_ref().filter(|k| k.detected).map_or(num, |k| k.closest_side());
+            causes::rank_dtemp(conv, ret, reference, &driver.base.stress, settings.central.tol, ef)
+        }
         None => Vec::new(),
     };
     let mut observed = decide::Observed {
@@ -136,6 +154,8 @@ pub fn run(
         tangent_checks_pass: ctx.tangent_checks_pass,
         dtemp_failed: ctx.dtemp.is_some(),
         dtemp_causes,
+        dtemp_kink,
+        dtemp_complex: ctx.dtemp_complex,
         causes: None,
     };
     let mut decision = decide::decide(&observed);
@@ -146,7 +166,12 @@ pub fn run(
         refinement = rf;
         decision = decide::decide(&observed);
     }
-    let decide::Observed { kink, studies, causes, dtemp_causes, .. } = observed;
+    // A ∂σ/∂T failure not held against the routine (a kink in the temperature) has no causes.
+    let excused = decide::dtemp_excuse(&observed).is_some();
+    let decide::Observed { kink, studies, causes, mut dtemp_causes, .. } = observed;
+    if excused {
+        dtemp_causes.clear();
+    }
     Ok(Diagnosis {
         kink,
         studies,

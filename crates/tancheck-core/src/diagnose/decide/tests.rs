@@ -5,6 +5,7 @@ use super::*;
 use crate::diagnose::causes::Cause;
 use crate::diagnose::kink::KinkColumn;
 use crate::diagnose::study::{analyse, ladder, StudyPoint};
+use crate::diagnose::temp_kink::TempKink;
 use crate::schemes::Scheme;
 
 /// A study of `scheme` whose error at relative step h is `f(h)`.
@@ -319,6 +320,93 @@ fn rows() -> Vec<Row> {
         twin_unsafe: false,
         needs_causes: false,
     });
+    // Johnson–Cook (Johnson & Cook 1983 flow stress, thermal softening) at a zero increment
+    // from a point on the yield surface, 400 K: heating flows plastically, cooling stays
+    // elastic. The routine returns the elastic side's ∂σ/∂T (zero); the one-sided derivatives
+    // differ by 100 % at every probe step (measured, tests/dtemp_kink.rs); the central ∂σ/∂T
+    // reads half the plastic side.
+    let t_kink = |fe: f64, be: f64, matches: Side| TempKink {
+        gaps: vec![1.0; 3],
+        detected: true,
+        nearby: false,
+        forward_error: fe,
+        backward_error: be,
+        matches,
+        forward: vec![],
+        backward: vec![],
+    };
+    let dtemp_at = |k: TempKink, complex: Option<(f64, f64)>, causes: Vec<Hypothesis>| Observed {
+        tangent_checks_pass: true,
+        dtemp_failed: true,
+        dtemp_kink: Some(k),
+        dtemp_complex: complex,
+        dtemp_causes: causes,
+        failed_tol: f64::INFINITY,
+        ..base()
+    };
+    for (what, k, complex, pass, finding) in [
+        (
+            "∂σ/∂T at a kink in T, complex step exact",
+            t_kink(1.0, 0.0, Side::Backward),
+            Some((0.0, 1e-10)),
+            true,
+            "none",
+        ),
+        (
+            "∂σ/∂T at a kink in T, no twin, the backward side",
+            t_kink(1.0, 0.0, Side::Backward),
+            None,
+            true,
+            "none",
+        ),
+        (
+            "∂σ/∂T at a kink in T equal to neither side (the straddled half), complex step off",
+            t_kink(0.5, 1.0, Side::Neither),
+            Some((1.0, 1e-10)),
+            false,
+            "dtemp",
+        ),
+        (
+            "∂σ/∂T near a kink in T, equal to the one-sided derivatives below it",
+            TempKink {
+                detected: false,
+                nearby: true,
+                gaps: vec![0.3, 1e-3, 1e-8],
+                ..t_kink(2e-8, 2e-8, Side::Both)
+            },
+            None,
+            true,
+            "none",
+        ),
+        (
+            "∂σ/∂T near a kink in T, off the one-sided derivatives below it",
+            TempKink {
+                detected: false,
+                nearby: true,
+                gaps: vec![0.3, 1e-3, 1e-8],
+                ..t_kink(0.2, 0.2, Side::Neither)
+            },
+            None,
+            false,
+            "dtemp",
+        ),
+        (
+            "∂σ/∂T with the wrong sign away from a kink, complex step off",
+            TempKink { detected: false, gaps: vec![1e-9; 3], ..t_kink(2.0, 2.0, Side::Neither) },
+            Some((2.0, 1e-10)),
+            false,
+            "dtemp",
+        ),
+    ] {
+        rows.push(Row {
+            what,
+            observed: dtemp_at(k, complex, vec![hyp(Cause::UniformScale, true)]),
+            pass,
+            finding,
+            twin_unsafe: false,
+            needs_causes: false,
+        });
+    }
     rows
 }
 

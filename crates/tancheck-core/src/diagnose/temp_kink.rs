@@ -1,0 +1,112 @@
+//! Kinks in the temperature: at a zero (or small) increment from a point on a branch boundary
+//! whose position depends on the temperature (a yield stress that falls as T rises, a damage
+//! onset that moves with T), raising the temperature crosses the boundary while lowering it
+//! does not. The stress is then not differentiable in T and a central difference of ∂σ/∂T
+//! straddles the kink. The ∂σ/∂T column is judged as a strain column is in [`super::kink`]:
+//! with the same steps, the same gap level and the same rule that a kink alone is not a
+//! failure, a returned ∂σ/∂T that matches neither one-sided derivative is.
+
+use super::kink::{Side, GAP_LEVEL, STEPS};
+use crate::compare::compare_dtemp_floor;
+use crate::convention::Convention;
+use crate::driver::{Direction, Driver};
+use crate::routine::{Caller, Fault};
+use crate::schemes::Scheme;
+
+/// What the temperature kink probe found (the ∂σ/∂T column).
+#[derive(Clone, Debug, PartialEq)]
+pub struct TempKink {
+    /// Gap ‖F − B‖ between the one-sided derivatives, relative to the column (or the absolute
+    /// floor of [`crate::compare::dtemp_floor`]), per step of [`STEPS`].
+    pub gaps: Vec<f64>,
+    /// The gap stays above [`GAP_LEVEL`] and does not shrink with the step.
+    pub detected: bool,
+    /// No kink at the point, but one within the largest probe step.
+    pub nearby: bool,
+    /// Error of the returned ∂σ/∂T against the forward and backward derivative at the
+    /// smallest step.
+    pub forward_error: f64,
+    pub backward_error: f64,
+    pub matches: Side,
+    /// The one-sided derivatives at the smallest step (routine form).
+    pub forward: Vec<f64>,
+    pub backward: Vec<f64>,
+}
+
+impl TempKink {
+    /// The one-sided derivative closer to the returned ∂σ/∂T: the reference for its causes.
+    pub fn closest_side(&self) -> &[f64] {
+        if self.backward_error < self.forward_error {
+            &self.backward
+        } else {
+            &self.forward
+        }
+    }
+}
+
+/// Judge the temperature kink from the one-sided derivatives at each step of [`STEPS`]
+/// (`pairs[k]` = (forward, backward) at step k, routine form): no routine calls. `abs_floor`
+/// is the absolute floor of the ∂σ/∂T comparison.
+pub fn judge(
+    conv: &Convention,
+    returned: &[f64],
+    pairs: &[(Vec<f64>, Vec<f64>)],
+    tol: f64,
+    entry_floor: f64,
+    abs_floor: f64,
+) -> TempKink {
+    let cmp = |a: &[f64], b: &[f64], t: f64| compare_dtemp_floor(conv, a, b, t, entry_floor, 0, abs_floor);
+    let gaps: Vec<f64> = pairs.iter().map(|(f, b)| cmp(b, f, f64::INFINITY).norm_error).collect();
+    let (f, b) = pairs.last().expect("at least one step");
+    // The rule of `kink::judge`: above the one-sided truncation level at every step, and
+    // keeping 30 % of the first gap at the last step (a kink's gap does not fall with h).
+    let detected =
+        gaps.len() >= 2 && gaps.iter().all(|&x| x > GAP_LEVEL) && gaps[gaps.len() - 1] > 0.3 * gaps[0];
+    let nearby = !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL;
+    let (fe, be) = (cmp(returned, f, tol).error(), cmp(returned, b, tol).error());
+    let matches = match (fe <= tol, be <= tol) {
+        (true, true) if !detected => Side::Both,
+        (true, true) if fe <= be => Side::Forward,
+        (true, true) => Side::Backward,
+        (true, false) => Side::Forward,
+        (false, true) => Side::Backward,
+        (false, false) => Side::Neither,
+    };
+    TempKink {
+        gaps,
+        detected,
+        nearby,
+        forward_error: fe,
+        backward_error: be,
+        matches,
+        forward: f.clone(),
+        backward: b.clone(),
+    }
+}
+
+/// Probe for a kink in the temperature at the end of the current increment: forward and
+/// backward differences of the stress in the temperature increment at each step of [`STEPS`]
+/// times `scale` (the temperature scale).
+#[allow(clippy::too_many_arguments)]
+pub fn probe(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    conv: &Convention,
+    returned: &[f64],
+    scale: f64,
+    tol: f64,
+    entry_floor: f64,
+    abs_floor: f64,
+) -> Result<TempKink, Fault> {
+    let n = conv.ncomp();
+    let mut pairs = Vec::with_capacity(STEPS.len());
+    for rel in STEPS {
+        let h = rel * scale;
+        let mut f = vec![0.0; n];
+        let mut b = vec![0.0; n];
+        Scheme::Forward.column(driver, caller, Direction::Temperature, h, &mut f)?;
+        Scheme::Backward.column(driver, caller, Direction::Temperature, h, &mut b)?;
+        pairs.push((f, b));
+    }
+    Ok(judge(conv, returned, &pairs, tol, entry_floor, abs_floor))
+}
