@@ -202,16 +202,29 @@ pub fn probe(
     entry_floor: f64,
 ) -> Result<Kink, Fault> {
     let n = conv.ncomp();
+    let pairs = one_sided(driver, caller, n, (0..n).map(Direction::Strain), scale)?;
+    Ok(judge(conv, returned, &pairs, tol, entry_floor))
+}
+
+/// Forward and backward differences along each of `dirs` (columns of `n` stress entries, one
+/// after the other) at each step of [`STEPS`] times `scale`: the samples both kink probes judge.
+pub(super) fn one_sided(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    n: usize,
+    dirs: impl Iterator<Item = Direction> + Clone,
+    scale: f64,
+) -> Result<Vec<(Vec<f64>, Vec<f64>)>, Fault> {
+    let width = n * dirs.clone().count();
     let mut pairs = Vec::with_capacity(STEPS.len());
     for rel in STEPS {
         let h = rel * scale;
-        let mut f = vec![0.0; n * n];
-        let mut b = vec![0.0; n * n];
-        for j in 0..n {
-            Scheme::Forward.column(driver, caller, Direction::Strain(j), h, &mut f[j * n..(j + 1) * n])?;
-            Scheme::Backward.column(driver, caller, Direction::Strain(j), h, &mut b[j * n..(j + 1) * n])?;
+        let (mut f, mut b) = (vec![0.0; width], vec![0.0; width]);
+        for (j, dir) in dirs.clone().enumerate() {
+            Scheme::Forward.column(driver, caller, dir, h, &mut f[j * n..(j + 1) * n])?;
+            Scheme::Backward.column(driver, caller, dir, h, &mut b[j * n..(j + 1) * n])?;
         }
         pairs.push((f, b));
     }
-    Ok(judge(conv, returned, &pairs, tol, entry_floor))
+    Ok(pairs)
 }

@@ -6,18 +6,17 @@
 //! with the same steps, the same gap level and the same rule that a kink alone is not a
 //! failure, a returned ∂σ/∂T that matches neither one-sided derivative is.
 
-use super::kink::{Side, GAP_LEVEL, STEPS};
+use super::kink::{one_sided, Side, GAP_LEVEL};
 use crate::compare::compare_dtemp_floor;
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
-use crate::schemes::Scheme;
 
 /// What the temperature kink probe found (the ∂σ/∂T column).
 #[derive(Clone, Debug, PartialEq)]
 pub struct TempKink {
     /// Gap ‖F − B‖ between the one-sided derivatives, relative to the column (or the absolute
-    /// floor of [`crate::compare::dtemp_floor`]), per step of [`STEPS`].
+    /// floor of [`crate::compare::dtemp_floor`]), per step of [`STEPS`](super::kink::STEPS).
     pub gaps: Vec<f64>,
     /// The gap stays above [`GAP_LEVEL`] and does not shrink with the step.
     pub detected: bool,
@@ -44,7 +43,7 @@ impl TempKink {
     }
 }
 
-/// Judge the temperature kink from the one-sided derivatives at each step of [`STEPS`]
+/// Judge the temperature kink from the one-sided derivatives at each step of [`STEPS`](super::kink::STEPS)
 /// (`pairs[k]` = (forward, backward) at step k, routine form): no routine calls. `abs_floor`
 /// is the absolute floor of the ∂σ/∂T comparison.
 pub fn judge(
@@ -85,7 +84,7 @@ pub fn judge(
 }
 
 /// Probe for a kink in the temperature at the end of the current increment: forward and
-/// backward differences of the stress in the temperature increment at each step of [`STEPS`]
+/// backward differences of the stress in the temperature increment at each step of [`STEPS`](super::kink::STEPS)
 /// times `scale` (the temperature scale).
 #[allow(clippy::too_many_arguments)]
 pub fn probe(
@@ -98,15 +97,6 @@ pub fn probe(
     entry_floor: f64,
     abs_floor: f64,
 ) -> Result<TempKink, Fault> {
-    let n = conv.ncomp();
-    let mut pairs = Vec::with_capacity(STEPS.len());
-    for rel in STEPS {
-        let h = rel * scale;
-        let mut f = vec![0.0; n];
-        let mut b = vec![0.0; n];
-        Scheme::Forward.column(driver, caller, Direction::Temperature, h, &mut f)?;
-        Scheme::Backward.column(driver, caller, Direction::Temperature, h, &mut b)?;
-        pairs.push((f, b));
-    }
+    let pairs = one_sided(driver, caller, conv.ncomp(), std::iter::once(Direction::Temperature), scale)?;
     Ok(judge(conv, returned, &pairs, tol, entry_floor, abs_floor))
 }
