@@ -43,7 +43,7 @@ pub struct FiniteSpec {
 pub struct FiniteRoutineSpec {
     pub library: Option<PathBuf>,
     pub symbol: Option<String>,
-    /// A built-in model: `neo-hookean` or `j2-log` (in the declared measures), `hypo-jaumann`, or a row
+    /// A built-in model: `neo-hookean` or `j2-log` (in the declared measures), `hypo-jaumann`, `hypo-j2` (with von Mises plasticity), or a row
     /// of the finite-strain zoo.
     pub model: Option<String>,
     #[serde(default)]
@@ -178,6 +178,7 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
     if name == HypoJaumann::NAME || name == HypoJaumann::NO_ROTATION_NAME {
         check(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann, Frame::Jaumann)?;
         let h = if name == HypoJaumann::NAME { HypoJaumann::new() } else { HypoJaumann::without_rotation() };
+        model_sizes(m, 2, 0, file)?;
         return Ok(Box::new(FiniteModelRoutine(h)));
     }
     for row in finite_zoo() {
@@ -190,6 +191,8 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
                 }
                 FiniteZooModel::Hypo(h) => {
                     check(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann, Frame::Jaumann)?;
+                    let i = tancheck_core::finite::FiniteModel::info(&h);
+                    model_sizes(m, i.nproperties, i.nstate, file)?;
                     Box::new(FiniteModelRoutine(h))
                 }
                 FiniteZooModel::J2(j2) => {

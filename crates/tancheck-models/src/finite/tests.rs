@@ -11,21 +11,29 @@ use super::{HypoJaumann, NeoHookean};
 
 const E: f64 = 1000.0;
 const NU: f64 = 0.3;
+/// σy0, H and the start α of the plastic models (invented for the tests).
+const SY0: f64 = 50.0;
+const H: f64 = 20.0;
+const ALPHA0: f64 = 0.01;
 
-/// Call a model at (F₀, F₁, τ₀) in scalar S; returns stress and tangent.
+/// Call a model at (F₀, F₁, τ₀) in scalar S; returns stress and tangent. Properties: E, ν
+/// (and σy0, H for a plastic model); its state starts at α = [`ALPHA0`].
 fn call<S: Scalar, M: FiniteModel>(m: &M, f0: &Mat3<S>, f1: &Mat3<S>, s0: &[S; 6]) -> ([S; 6], Vec<S>) {
-    let props = [S::cst(E), S::cst(NU)];
+    let props = [E, NU, SY0, H].map(S::cst);
+    let props = &props[..m.info().nproperties];
+    let state0 = vec![S::cst(ALPHA0); m.info().nstate];
+    let mut state = vec![S::zero(); m.info().nstate];
     let f0v = mat3::to_flat(f0);
     let f1v = mat3::to_flat(f1);
     let rot = mat3::to_flat(&m.info().frame.increment(f0, f1));
     let input = FiniteInput {
-        properties: &props,
+        properties: props,
         f0: &f0v,
         f1: &f1v,
         rotation: &rot,
         temperature: [S::zero(); 2],
         stress0: s0,
-        state0: &[],
+        state0: &state0,
         time: [0.0, 1.0],
         increment: 1,
     };
@@ -35,7 +43,7 @@ fn call<S: Scalar, M: FiniteModel>(m: &M, f0: &Mat3<S>, f1: &Mat3<S>, s0: &[S; 6
     let mut outcome = Outcome::default();
     let mut out = FiniteOutput {
         stress: &mut stress,
-        state: &mut [],
+        state: &mut state,
         tangent: &mut tangent,
         energy: &mut energy,
         outcome: &mut outcome,
@@ -192,6 +200,25 @@ fn hypo_tangent_matches_num_dual() {
     let (_, t) = call(&model, &f0, &f1, &s0);
     let d = dual_tangent(&model, TangentMeasure::TauJaumann, &f0, &f1, &s0);
     assert!(rel(&t[..36], &d) < 1e-12, "{:e}", rel(&t[..36], &d));
+}
+
+// The hypoelastic J2 update (radial return on the objective trial stress) against num-dual
+// on a plastic step, and on a step that stays elastic (where it equals the elastic update).
+#[test]
+fn hypo_j2_tangent_matches_num_dual() {
+    let model = HypoJaumann::j2();
+    let f0 = general_f();
+    let f1 = mat3::add(&f0, &[[0.02, 0.05, -0.01], [0.03, -0.015, 0.02], [-0.02, 0.01, 0.01]]);
+    let s0 = [120.0, -40.0, 15.0, 30.0, -25.0, 60.0];
+    let (s, t) = call(&model, &f0, &f1, &s0);
+    let (s_el, _) = call(&HypoJaumann::new(), &f0, &f1, &s0);
+    assert!(rel(&s, &s_el) > 1e-2, "the step must be plastic: {s:?} vs {s_el:?}");
+    let d = dual_tangent(&model, TangentMeasure::TauJaumann, &f0, &f1, &s0);
+    assert!(rel(&t[..36], &d) < 1e-12, "{:e}", rel(&t[..36], &d));
+    let small = mat3::add(&f0, &[[1e-4, 0.0, 0.0], [0.0, 0.0, 0.0], [0.0, 0.0, 0.0]]);
+    let (s, t) = call(&model, &f0, &small, &[1.0, 0.0, 0.0, 0.0, 0.0, 0.0]);
+    let (s_el, t_el) = call(&HypoJaumann::new(), &f0, &small, &[1.0, 0.0, 0.0, 0.0, 0.0, 0.0]);
+    assert_eq!((s, &t[..36]), (s_el, &t_el[..36]), "an elastic step is the elastic update");
 }
 
 // Simple shear of the hypoelastic Jaumann model: σ₁₂ = G sin γ, σ₁₁ = −σ₂₂ = G (1 − cos γ)

@@ -36,10 +36,12 @@ impl FiniteZooModel {
         }
     }
 
-    /// The row's properties: [`ZOO_PROPERTIES`], or [`J2_PROPERTIES`] for the J2 rows.
+    /// The row's properties: [`ZOO_PROPERTIES`], or [`J2_PROPERTIES`] for the J2 rows (the
+    /// hypoelastic J2 one included).
     pub fn properties(&self) -> &'static [f64] {
         match self {
             FiniteZooModel::J2(_) => &J2_PROPERTIES,
+            FiniteZooModel::Hypo(h) if h.is_plastic() => &J2_PROPERTIES,
             _ => &ZOO_PROPERTIES,
         }
     }
@@ -48,6 +50,7 @@ impl FiniteZooModel {
     pub fn start_state(&self) -> Vec<f64> {
         match self {
             FiniteZooModel::J2(_) => vec![0.0; J2Log::NSTATE],
+            FiniteZooModel::Hypo(h) if h.is_plastic() => vec![0.0],
             _ => Vec::new(),
         }
     }
@@ -102,6 +105,7 @@ pub fn finite_zoo() -> Vec<FiniteZooEntry> {
             model: FiniteZooModel::Hypo(HypoJaumann::new()),
             expected: None,
         },
+        FiniteZooEntry { name: "hypo-j2", model: FiniteZooModel::Hypo(HypoJaumann::j2()), expected: None },
         nh(
             "nh-material-as-spatial",
             Kirchhoff,
