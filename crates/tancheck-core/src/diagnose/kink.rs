@@ -206,6 +206,9 @@ pub fn probe(
     Ok(judge(conv, returned, &pairs, tol, entry_floor))
 }
 
+/// The forward and the backward differences at one step.
+pub(super) type OneSided = (Vec<f64>, Vec<f64>);
+
 /// Forward and backward differences along each of `dirs` (columns of `n` stress entries, one
 /// after the other) at each step of [`STEPS`] times `scale`: the samples both kink probes judge.
 pub(super) fn one_sided(
@@ -214,7 +217,7 @@ pub(super) fn one_sided(
     n: usize,
     dirs: impl Iterator<Item = Direction> + Clone,
     scale: f64,
-) -> Result<Vec<(Vec<f64>, Vec<f64>)>, Fault> {
+) -> Result<Vec<OneSided>, Fault> {
     let width = n * dirs.clone().count();
     let mut pairs = Vec::with_capacity(STEPS.len());
     for rel in STEPS {
