@@ -396,15 +396,27 @@ fn start_hanging_isolated(name: &str) -> (std::process::Child, PathBuf, PathBuf)
     )
     .unwrap();
     let json = d.join("report.json");
-    let child = bin()
-        .arg("check")
+    let mut cmd = bin();
+    cmd.arg("check")
         .arg(&m)
         .args(["--isolate", "--call-timeout", "600", "--json"])
         .arg(&json)
         .stdout(Stdio::null())
-        .stderr(Stdio::null())
-        .spawn()
-        .unwrap();
+        .stderr(Stdio::null());
+    // The tests send SIGINT and SIGTERM: give the child their default dispositions, since a
+    // test run started in the background of a shell without job control inherits SIGINT
+    // ignored (POSIX), and tancheck, like any well-behaved program, keeps an ignored SIGINT
+    // ignored.
+    // SAFETY: between fork and exec only async-signal-safe calls (signal) are made.
+    unsafe {
+        use std::os::unix::process::CommandExt;
+        cmd.pre_exec(|| {
+            libc::signal(libc::SIGINT, libc::SIG_DFL);
+            libc::signal(libc::SIGTERM, libc::SIG_DFL);
+            Ok(())
+        });
+    }
+    let child = cmd.spawn().unwrap();
     let folder = std::env::temp_dir().join(format!("tancheck-worker-{}", child.id()));
     let pid = child.id();
     wait_until("the worker starts", || !workers_of(pid).is_empty() && folder.join("heartbeat").exists());
