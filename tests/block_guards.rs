@@ -3,56 +3,21 @@
 //! input, an output left unwritten and a crash each end the call with the fault that names
 //! them; a correct routine's block call, real and twin, allocates nothing.
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::cell::Cell;
-use std::path::{Path, PathBuf};
-use std::sync::OnceLock;
+use std::path::Path;
 
 use num_complex::Complex64;
-use tancheck::abi::{build_library, BuildOptions, GuardLevel, Library, LibraryBlockRoutine};
+use tancheck::abi::{GuardLevel, Library, LibraryBlockRoutine};
 use tancheck::core::block::walk::{BlockBuffers, ComplexPoint};
 use tancheck::core::block::{BlockInfo, Conditions};
 use tancheck::core::Fault;
+use tancheck_testkit::alloc::allocations;
 
-struct Counting;
-
-thread_local! {
-    static COUNT: Cell<u64> = const { Cell::new(0) };
-}
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.alloc(l) }
-    }
-    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
-        unsafe { System.dealloc(p, l) }
-    }
-    unsafe fn realloc(&self, p: *mut u8, l: Layout, n: usize) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.realloc(p, l, n) }
-    }
-}
-
-#[global_allocator]
-static A: Counting = Counting;
-
-fn allocations() -> u64 {
-    COUNT.with(Cell::get)
-}
+tancheck_testkit::counting_allocator!();
 
 const PROPS: [f64; 2] = [200_000.0, 0.3];
 
 fn lib() -> &'static Path {
-    static L: OnceLock<PathBuf> = OnceLock::new();
-    L.get_or_init(|| {
-        let dir = std::env::temp_dir().join(format!("tancheck-root-test-{}-mb-block", std::process::id()));
-        std::fs::create_dir_all(&dir).unwrap();
-        let out = dir.join("libmb_block.so");
-        let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave_block.c");
-        build_library(&BuildOptions::new([src], &out)).unwrap();
-        out
-    })
+    tancheck_testkit::libs::build_examples("mb_block", &["c/misbehave_block.c"])
 }
 
 fn open(symbol: &str) -> LibraryBlockRoutine {

@@ -4,8 +4,6 @@
 //! their findings, the numerical tangent's calls allocate nothing, and `tancheck check` /
 //! `tancheck probe` run finite-strain manifests with the documented exit codes.
 
-use std::alloc::{GlobalAlloc, Layout, System};
-use std::cell::Cell;
 use std::path::Path;
 use std::process::Command;
 
@@ -19,34 +17,10 @@ use tancheck::core::finite::{
 };
 use tancheck::core::Verdict;
 use tancheck::models::finite::NeoHookean;
+use tancheck_testkit::alloc::allocations;
 use tancheck_testkit::libs::{build_examples, scratch};
 
-struct Counting;
-
-thread_local! {
-    static COUNT: Cell<u64> = const { Cell::new(0) };
-}
-
-unsafe impl GlobalAlloc for Counting {
-    unsafe fn alloc(&self, l: Layout) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.alloc(l) }
-    }
-    unsafe fn dealloc(&self, p: *mut u8, l: Layout) {
-        unsafe { System.dealloc(p, l) }
-    }
-    unsafe fn realloc(&self, p: *mut u8, l: Layout, n: usize) -> *mut u8 {
-        let _ = COUNT.try_with(|c| c.set(c.get() + 1));
-        unsafe { System.realloc(p, l, n) }
-    }
-}
-
-#[global_allocator]
-static A: Counting = Counting;
-
-fn allocations() -> u64 {
-    COUNT.with(Cell::get)
-}
+tancheck_testkit::counting_allocator!();
 
 const PROPS: [f64; 2] = [1000.0, 0.3];
 
