@@ -1069,45 +1069,51 @@ static void fill_caught(const guard_thread *t, tc_guard_result *r) {
     r->detail = detail_of(t->sig, t->code, (uintptr_t)t->addr, t->stack_lo);
 }
 
-/* One trampoline per element type. Everything that must survive the jump is either set
- * before sigsetjmp and never changed afterwards, or lives in the thread state. */
-#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T, TEMPERATURE_T, ENERGY_T, IS_COMPLEX)         \
-    int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                   \
-        guard_thread *t = &tc_thread;                                                      \
-        if (!t->prepared) prepare_thread(t);                                               \
-        sigjmp_buf *const outer_jump = t->jump;                                            \
-        const sig_atomic_t outer_inside = t->inside;                                       \
-        const char *const outer_label = t->label;                                          \
-        const int traps = a->fp_traps != 0;                                                \
-        sigjmp_buf here;                                                                   \
-        watch_enter(a, IS_COMPLEX);                                                        \
-        memset(r, 0, sizeof *r);                                                           \
-        const guard_fp fp = fp_enter(traps);                                               \
-        if (sigsetjmp(here, 0) == 0) {                                                     \
-            t->label = a->label;                                                           \
-            t->jump = &here;                                                               \
-            GUARD_FENCE();                                                                 \
-            t->inside = 1;                                                                 \
-            GUARD_FENCE();                                                                 \
-            fn(a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,               \
-               (const REAL_T *)a->dstrain, (const TEMPERATURE_T *)a->temp,                 \
-               (const REAL_T *)a->stress0, (const REAL_T *)a->state0, (REAL_T *)a->stress, \
-               (REAL_T *)a->state, (REAL_T *)a->tangent, (REAL_T *)a->dstress_dtemp,       \
-               (ENERGY_T *)a->energy, a->report);                                          \
-            GUARD_FENCE();                                                                 \
-            t->inside = 0;                                                                 \
-            GUARD_FENCE();                                                                 \
-        } else {                                                                           \
-            fill_caught(t, r);                                                             \
-        }                                                                                  \
-        fp_leave(traps, r->caught, fp);                                                    \
-        watch_leave();                                                                     \
-        t->jump = outer_jump;                                                              \
-        t->label = outer_label;                                                            \
-        GUARD_FENCE();                                                                     \
-        t->inside = outer_inside;                                                          \
-        return r->caught;                                                                  \
+/* One guarded call: everything that must survive the jump is either set before sigsetjmp and
+ * never changed afterwards, or lives in the thread state. The call itself is the variadic
+ * argument (one per argument list: point, finite strain). */
+#define TC_GUARD_WITH(NAME, FN_T, IS_COMPLEX, ...)                                      \
+    int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                 \
+        guard_thread *t = &tc_thread;                                                   \
+        if (!t->prepared) prepare_thread(t);                                            \
+        sigjmp_buf *const outer_jump = t->jump;                                         \
+        const sig_atomic_t outer_inside = t->inside;                                    \
+        const char *const outer_label = t->label;                                       \
+        const int traps = a->fp_traps != 0;                                             \
+        sigjmp_buf here;                                                                \
+        watch_enter(a, IS_COMPLEX);                                                     \
+        memset(r, 0, sizeof *r);                                                        \
+        const guard_fp fp = fp_enter(traps);                                            \
+        if (sigsetjmp(here, 0) == 0) {                                                  \
+            t->label = a->label;                                                        \
+            t->jump = &here;                                                            \
+            GUARD_FENCE();                                                              \
+            t->inside = 1;                                                              \
+            GUARD_FENCE();                                                              \
+            __VA_ARGS__;                                                                \
+            GUARD_FENCE();                                                              \
+            t->inside = 0;                                                              \
+            GUARD_FENCE();                                                              \
+        } else {                                                                        \
+            fill_caught(t, r);                                                          \
+        }                                                                               \
+        fp_leave(traps, r->caught, fp);                                                 \
+        watch_leave();                                                                  \
+        t->jump = outer_jump;                                                           \
+        t->label = outer_label;                                                         \
+        GUARD_FENCE();                                                                  \
+        t->inside = outer_inside;                                                       \
+        return r->caught;                                                               \
     }
+
+/* One trampoline per element type of the point interface. */
+#define TC_GUARD_TRAMPOLINE(NAME, FN_T, REAL_T, TEMPERATURE_T, ENERGY_T, IS_COMPLEX)                  \
+    TC_GUARD_WITH(NAME, FN_T, IS_COMPLEX,                                                   \
+                  fn(a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,          \
+                     (const REAL_T *)a->dstrain, (const TEMPERATURE_T *)a->temp,            \
+                     (const REAL_T *)a->stress0, (const REAL_T *)a->state0,                 \
+                     (REAL_T *)a->stress, (REAL_T *)a->state, (REAL_T *)a->tangent,         \
+                     (REAL_T *)a->dstress_dtemp, (ENERGY_T *)a->energy, a->report))
 
 TC_GUARD_TRAMPOLINE(tc_guard_call_real, tc_routine_fn, double, tc_temperature, tc_energy, 0)
 TC_GUARD_TRAMPOLINE(tc_guard_call_complex, tc_guard_cx_fn, _Complex double,
@@ -1128,42 +1134,13 @@ typedef void (*tc_guard_finite_cx_fn)(const void *call, const _Complex double *p
 
 /* The same as TC_GUARD_TRAMPOLINE, with the finite-strain argument list; `a->reserved` must be
  * TC_GUARD_LAYOUT_FINITE (the last words then print F0 and F1). */
-#define TC_GUARD_FINITE_TRAMPOLINE(NAME, FN_T, REAL_T, IS_COMPLEX)                               \
-    int32_t NAME(FN_T fn, const tc_guard_args *a, tc_guard_result *r) {                         \
-        guard_thread *t = &tc_thread;                                                            \
-        if (!t->prepared) prepare_thread(t);                                                     \
-        sigjmp_buf *const outer_jump = t->jump;                                                  \
-        const sig_atomic_t outer_inside = t->inside;                                             \
-        const char *const outer_label = t->label;                                                \
-        const int traps = a->fp_traps != 0;                                                      \
-        sigjmp_buf here;                                                                         \
-        watch_enter(a, IS_COMPLEX);                                                              \
-        memset(r, 0, sizeof *r);                                                                 \
-        const guard_fp fp = fp_enter(traps);                                                     \
-        if (sigsetjmp(here, 0) == 0) {                                                           \
-            t->label = a->label;                                                                 \
-            t->jump = &here;                                                                     \
-            GUARD_FENCE();                                                                       \
-            t->inside = 1;                                                                       \
-            GUARD_FENCE();                                                                       \
-            fn((const void *)a->call, (const REAL_T *)a->props, (const REAL_T *)a->strain,       \
-               (const REAL_T *)a->dstrain, (const REAL_T *)a->dstress_dtemp, a->temp,            \
-               (const REAL_T *)a->stress0, (const REAL_T *)a->state0, (REAL_T *)a->stress,       \
-               (REAL_T *)a->state, (REAL_T *)a->tangent, a->energy, a->report);                  \
-            GUARD_FENCE();                                                                       \
-            t->inside = 0;                                                                       \
-            GUARD_FENCE();                                                                       \
-        } else {                                                                                 \
-            fill_caught(t, r);                                                                   \
-        }                                                                                        \
-        fp_leave(traps, r->caught, fp);                                                          \
-        watch_leave();                                                                           \
-        t->jump = outer_jump;                                                                    \
-        t->label = outer_label;                                                                  \
-        GUARD_FENCE();                                                                           \
-        t->inside = outer_inside;                                                                \
-        return r->caught;                                                                        \
-    }
+#define TC_GUARD_FINITE_TRAMPOLINE(NAME, FN_T, REAL_T, IS_COMPLEX)                           \
+    TC_GUARD_WITH(NAME, FN_T, IS_COMPLEX,                                                   \
+                  fn((const void *)a->call, (const REAL_T *)a->props,                       \
+                     (const REAL_T *)a->strain, (const REAL_T *)a->dstrain,                 \
+                     (const REAL_T *)a->dstress_dtemp, a->temp, (const REAL_T *)a->stress0, \
+                     (const REAL_T *)a->state0, (REAL_T *)a->stress, (REAL_T *)a->state,    \
+                     (REAL_T *)a->tangent, a->energy, a->report))
 
 TC_GUARD_FINITE_TRAMPOLINE(tc_guard_call_finite, tc_guard_finite_fn, double, 0)
 TC_GUARD_FINITE_TRAMPOLINE(tc_guard_call_finite_complex, tc_guard_finite_cx_fn, _Complex double, 1)
