@@ -30,17 +30,17 @@ pub fn compare_dtemp_floor(
     let diff = r.iter().zip(m.iter()).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt();
     let mut worst = Worst::new(keep_worst);
     for i in 0..n {
-        worst.offer(finite_or_inf((r[i] - m[i]).abs() / abs_floor), || EntryDiff {
-            row: i,
-            col: 0,
-            label: Label::pair(conv.order()[i].label(), "T"),
-            returned: returned[i],
-            numerical: numerical[i],
-            error: 0.0,
-        });
+        worst.offer(finite_or_inf((r[i] - m[i]).abs() / abs_floor), i);
     }
     let worst_entry_error = worst.max;
-    let entries = worst.kept;
+    let entries = worst.entries(|i| EntryDiff {
+        row: i,
+        col: 0,
+        label: Label::pair(conv.order()[i].label(), "T"),
+        returned: returned[i],
+        numerical: numerical[i],
+        error: 0.0,
+    });
     let non_finite = returned.iter().filter(|x| !x.is_finite()).count();
     let norm_error = finite_or_inf(diff / abs_floor);
     Comparison {

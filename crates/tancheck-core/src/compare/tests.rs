@@ -108,3 +108,34 @@ fn an_error_in_the_soft_direction_is_measured_against_the_soft_modulus() {
     assert!(!c.pass);
     assert_eq!(compare_along(&conv, &good, &good, 1e-12, 1e-2, 1, None).soft_error, 0.0);
 }
+
+// The worst-entry list against the standard library's stable sort by decreasing error (the
+// order it is documented to give), on errors with many ties, for every list length.
+#[test]
+fn the_worst_entries_are_those_of_a_stable_sort() {
+    let errors: Vec<f64> = (0..36)
+        .map(|k| ((k * 7919) % 11) as f64 * 0.5 + if k % 5 == 0 { f64::INFINITY } else { 0.0 })
+        .collect();
+    let mut sorted: Vec<(f64, usize)> = errors.iter().copied().zip(0..).collect();
+    sorted.sort_by(|a, b| b.0.total_cmp(&a.0));
+    for keep in [0, 1, 3, 4, 5, 35, 36, 40] {
+        let mut w = Worst::new(keep);
+        for (k, &e) in errors.iter().enumerate() {
+            w.offer(e, k);
+        }
+        let got: Vec<(f64, usize)> = w
+            .entries(|k| EntryDiff {
+                row: k,
+                col: 0,
+                label: Label::pair("a", "b"),
+                returned: 0.0,
+                numerical: 0.0,
+                error: 0.0,
+            })
+            .iter()
+            .map(|e| (e.error, e.row))
+            .collect();
+        assert_eq!(got, sorted[..keep.min(36)].to_vec(), "keep {keep}");
+        assert_eq!(w.max, f64::INFINITY);
+    }
+}
