@@ -10,7 +10,7 @@ use serde::{Deserialize, Serialize};
 
 use smallvec::SmallVec;
 
-use crate::compare::{compare_along, compare_dtemp_floor, compare_with, dtemp_floor, SoftDirections};
+use crate::compare::{compare_along, compare_dtemp_floor, compare_with, dtemp_floor, Limits, SoftDirections};
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
 use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck};
@@ -224,39 +224,25 @@ pub fn check_call(
     let mut failed_dtemp: Option<Vec<f64>> = None;
     for m in &measured {
         let ss = settings.scheme(m.scheme);
+        let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
         let numerical = &m.tangent[..n * n];
+        let conv = &caller.info().convention;
         let tangent = match (&m.outcome, &soft) {
             (Some(outcome), _) => outcome.clone(),
-            (None, Some(soft)) => CheckOutcome::Compared(compare_with(
-                &caller.info().convention,
-                &returned,
-                numerical,
-                ss.tol,
-                settings.entry_floor,
-                settings.worst_entries,
-                soft,
-            )),
+            (None, Some(soft)) => {
+                CheckOutcome::Compared(compare_with(conv, &returned, numerical, limits, soft))
+            }
             (None, None) => CheckOutcome::Compared(compare_along(
-                &caller.info().convention,
+                conv,
                 &returned,
                 numerical,
-                ss.tol,
-                settings.entry_floor,
-                settings.worst_entries,
+                limits,
                 Some(driver.dstrain()),
             )),
         };
         let dstress_dtemp = match (&returned_dtemp, &m.dtemp) {
             (Some(ret), Some(Ok(col))) => {
-                let c = compare_dtemp_floor(
-                    &caller.info().convention,
-                    ret,
-                    &col[..n],
-                    ss.tol,
-                    settings.entry_floor,
-                    settings.worst_entries,
-                    dtemp_abs_floor,
-                );
+                let c = compare_dtemp_floor(conv, ret, &col[..n], limits, dtemp_abs_floor);
                 if !c.pass && failed_dtemp.is_none() {
                     failed_dtemp = Some(col[..n].to_vec());
                 }

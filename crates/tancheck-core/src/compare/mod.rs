@@ -41,6 +41,22 @@ pub type ColumnErrors = SmallVec<[f64; 6]>;
 /// The worst entries of a comparison, worst first.
 pub type WorstEntries = SmallVec<[EntryDiff; INLINE_WORST]>;
 
+/// How strict a comparison is: the tolerance on every measure, the entry floor (a fraction of
+/// the numerical tangent's norm below which an entry's error is relative to the floor), and
+/// how many of the worst entries to keep.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Limits {
+    pub tol: f64,
+    pub entry_floor: f64,
+    pub keep_worst: usize,
+}
+
+impl Limits {
+    pub fn new(tol: f64, entry_floor: f64, keep_worst: usize) -> Limits {
+        Limits { tol, entry_floor, keep_worst }
+    }
+}
+
 /// One entry of a comparison, with values in the routine's own convention.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct EntryDiff {
@@ -92,7 +108,7 @@ pub fn compare(
     entry_floor: f64,
     keep_worst: usize,
 ) -> Comparison {
-    compare_along(conv, returned, numerical, tol, entry_floor, keep_worst, None)
+    compare_along(conv, returned, numerical, Limits::new(tol, entry_floor, keep_worst), None)
 }
 
 /// [`compare`], also measuring along `direction` (a strain increment in the routine's
@@ -102,13 +118,10 @@ pub fn compare_along(
     conv: &Convention,
     returned: &[f64],
     numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
     direction: Option<&[f64]>,
 ) -> Comparison {
-    let soft = SoftDirections::of(conv, numerical, direction);
-    compare_with(conv, returned, numerical, tol, entry_floor, keep_worst, &soft)
+    compare_with(conv, returned, numerical, limits, &SoftDirections::of(conv, numerical, direction))
 }
 
 /// [`compare`], measuring the soft-direction error along `soft` (found once per increment from
@@ -117,9 +130,7 @@ pub fn compare_with(
     conv: &Convention,
     returned: &[f64],
     numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
     soft: &SoftDirections,
 ) -> Comparison {
     let nn = returned.len();
@@ -132,11 +143,11 @@ pub fn compare_with(
     conv.tangent_to_mandel(m);
     let order = conv.order();
     let label = |i: usize, j: usize| Label::pair(order[i].label(), order[j].label());
-    let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, tol, entry_floor, keep_worst);
+    let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, limits);
     let (e, what) = soft::soft_error_along(r, m, conv.ncomp(), soft);
     c.soft_error = e;
     c.soft_direction = Cow::Borrowed(what);
-    c.pass &= e <= tol;
+    c.pass &= e <= limits.tol;
     if c.pass {
         c.entry_errors = Vec::new();
     }
@@ -145,7 +156,6 @@ pub fn compare_with(
 
 /// The three measures on Mandel-form matrices `r` (returned) and `m` (numerical) with
 /// `ncols` columns; `returned` and `numerical` are the same in the routine's form, for display.
-#[allow(clippy::too_many_arguments)]
 pub(super) fn measure(
     r: &[f64],
     m: &[f64],
@@ -153,10 +163,9 @@ pub(super) fn measure(
     numerical: &[f64],
     ncols: usize,
     label: &dyn Fn(usize, usize) -> Label,
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
 ) -> Comparison {
+    let Limits { tol, entry_floor, keep_worst } = limits;
     let nrows = r.len() / ncols;
     assert!(ncols <= 6, "a tangent has at most 6 columns");
     // One pass for the whole and the columns' sums of squares (the same sums, in the same

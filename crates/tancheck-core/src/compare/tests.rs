@@ -80,13 +80,16 @@ fn dtemp_zero_against_noise_passes_and_against_a_real_derivative_fails() {
     assert!(floor > 0.0);
     let zero = [0.0; 6];
     let noise = [3e-9, -2e-9, 1e-9, 0.0, 4e-10, 0.0];
-    let c = compare_dtemp_floor(&conv, &zero, &noise, 1e-6, 1e-2, 1, floor);
+    let c = compare_dtemp_floor(&conv, &zero, &noise, Limits::new(1e-6, 1e-2, 1), floor);
     assert!(c.pass, "{c:?}");
-    assert!(!compare_dtemp(&conv, &zero, &noise, 1e-6, 1e-2, 1).pass, "without the floor: 100 %");
+    assert!(
+        !compare_dtemp(&conv, &zero, &noise, Limits::new(1e-6, 1e-2, 1)).pass,
+        "without the floor: 100 %"
+    );
     let k = 210000.0 / (3.0 * (1.0 - 2.0 * 0.3));
     let real: [f64; 6] = [-3.0 * k * 12e-6, -3.0 * k * 12e-6, -3.0 * k * 12e-6, 0.0, 0.0, 0.0];
     assert!((real[0] + 6.3).abs() < 0.01, "{}", real[0]);
-    assert!(!compare_dtemp_floor(&conv, &zero, &real, 1e-6, 1e-2, 1, floor).pass);
+    assert!(!compare_dtemp_floor(&conv, &zero, &real, Limits::new(1e-6, 1e-2, 1), floor).pass);
 }
 
 // The soft-direction error: the J2 worked case of REFERENCES.md (θ = 0.5446266,
@@ -100,13 +103,14 @@ fn an_error_in_the_soft_direction_is_measured_against_the_soft_modulus() {
     let (theta, theta_bar) = (worked::J2_THETA, worked::J2_THETA_BAR);
     let good = worked::j2(theta_bar);
     let bad = worked::j2(theta_bar * 1.01);
-    let c = compare_along(&conv, &bad, &good, 1e-4, 1e-2, 1, Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
+    let c =
+        compare_along(&conv, &bad, &good, Limits::new(1e-4, 1e-2, 1), Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
     let soft_modulus = 2.0 * mu * (theta - theta_bar);
     let want = 0.01 * 2.0 * mu * theta_bar / soft_modulus.max(SOFT_FLOOR * 4.0e5);
     assert!(c.soft_error > 10.0 * c.norm_error, "{c:?}");
     assert!(c.soft_error > 0.5 * want && c.soft_error < 2.0 * want, "{} vs {want}", c.soft_error);
     assert!(!c.pass);
-    assert_eq!(compare_along(&conv, &good, &good, 1e-12, 1e-2, 1, None).soft_error, 0.0);
+    assert_eq!(compare_along(&conv, &good, &good, Limits::new(1e-12, 1e-2, 1), None).soft_error, 0.0);
 }
 
 // The worst-entry list against the standard library's stable sort by decreasing error (the
