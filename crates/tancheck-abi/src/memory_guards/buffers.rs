@@ -21,6 +21,16 @@ pub(crate) trait Element: Copy {
     fn same(self, other: Self) -> bool;
     /// Zero exactly when [`Element::same`] holds (the bits that differ).
     fn differ(self, other: Self) -> u64;
+    /// The bits of `values`, 64 at a time (an element is one or two f64 without padding), so
+    /// that two arrays compare bit for bit with `==` on these.
+    fn bits(values: &[Self]) -> &[u64] {
+        const { assert!(std::mem::size_of::<Self>() % 8 == 0 && std::mem::align_of::<Self>() >= 8) };
+        // SAFETY: `Self` is f64 or Complex64 (repr(C), two f64): a whole number of u64 with
+        // no padding and at least u64 alignment, so the bytes of `values` are valid u64s.
+        unsafe {
+            std::slice::from_raw_parts(values.as_ptr().cast::<u64>(), std::mem::size_of_val(values) / 8)
+        }
+    }
 }
 
 impl Element for f64 {
@@ -82,11 +92,8 @@ pub(crate) struct GuardBuffers<E> {
     /// The block as a first call loads it: the inputs of the call, the first poison after
     /// each input, canaries after each output and pre-filled outputs. Kept between calls, so
     /// that loading is one copy of it (after the inputs are written into it) and the check
-    /// afterwards one masked comparison with it.
+    /// afterwards a comparison with it of what must not change (inputs and zones).
     image: Vec<E>,
-    /// All ones where a call must leave the block as loaded (inputs and every zone), zero at
-    /// the outputs.
-    kept: Vec<u64>,
 }
 
 /// Where a guarded call is: what a finding records besides the array.
@@ -108,13 +115,9 @@ impl<E: Element> GuardBuffers<E> {
             at += l + ZONE;
         }
         let mut image = vec![E::PREFILL; at];
-        let mut kept = vec![u64::MAX; at];
         for k in 0..ARRAYS.len() {
             let (s, l) = (start[k], len[k]);
             image[s + l..s + l + ZONE].fill(if k < N_INPUTS { E::POISON[0] } else { E::CANARY });
-            if k >= N_INPUTS {
-                kept[s..s + l].fill(0);
-            }
         }
         GuardBuffers {
             data: image.clone(),
@@ -124,7 +127,6 @@ impl<E: Element> GuardBuffers<E> {
             report: ReportZone { report: Outcome::default(), zone: [REPORT_CANARY; REPORT_ZONE] },
             report_before: Outcome::default(),
             image,
-            kept,
         }
     }
 
@@ -151,15 +153,16 @@ impl<E: Element> GuardBuffers<E> {
         self.report.zone = [REPORT_CANARY; REPORT_ZONE];
     }
 
-    /// Whether the inputs and every zone are as [`GuardBuffers::load_first`] left them: one
-    /// branch-free pass over the whole block.
+    /// Whether the inputs and every zone are as [`GuardBuffers::load_first`] left them: the
+    /// inputs and their zones lie in one run before the first output, each output's zone after
+    /// it; each run is compared bit for bit at once.
     fn as_loaded(&self) -> bool {
-        self.data
-            .iter()
-            .zip(&self.image)
-            .zip(&self.kept)
-            .fold(0, |acc, ((&a, &b), &m)| acc | (a.differ(b) & m))
-            == 0
+        let inputs = self.start[N_INPUTS];
+        E::bits(&self.data[..inputs]) == E::bits(&self.image[..inputs])
+            && (N_INPUTS..ARRAYS.len()).all(|k| {
+                let z = self.start[k] + self.len[k];
+                E::bits(&self.data[z..z + ZONE]) == E::bits(&self.image[z..z + ZONE])
+            })
     }
 
     fn array(&self, k: usize) -> &[E] {
