@@ -5,8 +5,9 @@
 //! - column error: ‖ΔC_:j‖ / max(‖C_num,:j‖, floor·‖C_num‖_F);
 //! - entry error: |ΔC_ij| / max(|C_num,ij|, floor·‖C_num‖_F);
 //! - soft-direction error: along the directions where the material is soft (the increment's
-//!   own strain direction, and the eigenvectors of the numerical tangent's symmetric part with
-//!   the smallest eigenvalues), ‖(C_ret − C_num) d‖ / max(‖C_num d‖, [`SOFT_FLOOR`]·‖C_num‖_F).
+//!   own strain direction, and the eigenvectors of a numerical tangent's symmetric part with
+//!   the smallest eigenvalues: in a check, the increment's sharpest numerical tangent, the same
+//!   for every scheme; see `soft`), ‖(C_ret − C_num) d‖ / max(‖C_num d‖, [`SOFT_FLOOR`]·‖C_num‖_F).
 //!   After yield the plastic modulus can be a thousandth of the elastic one: an error of 20 %
 //!   in that direction hides under the elastic scale in the other three measures.
 //!
