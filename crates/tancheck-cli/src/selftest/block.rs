@@ -14,23 +14,11 @@ use std::path::Path as FsPath;
 
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, BuildOptions, Library};
-use tancheck_core::block::{
-    self, BlockInfo, BlockReport, BlockRoutine, BlockSettings, Conditions, EnergyRule, RateLaw,
-};
-use tancheck_core::path::{Path, Shape};
+use tancheck_core::block::{self, BlockInfo, BlockReport, BlockRoutine, EnergyRule};
 use tancheck_core::{PointKind, Verdict};
+use tancheck_models::block::worked::{j2_path, j2_settings, jc_path, jc_settings, jc_steel, J2_PROPS};
 
 use super::Row;
-
-/// The worked J2 case of REFERENCES.md (E 200 GPa, ν 0.3, σy 250 MPa, K' 1000, H' 500 MPa).
-const J2: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-/// 4340 steel Johnson–Cook constants (REFERENCES.md, read, secondary) with typical E, ν, T_r,
-/// reference rate, density, heat capacity, χ = 0.9 (common practice) and k_E = 0.3,
-/// G_f = 20 N/mm, d_max = 0.99 for the selftest.
-const STEEL: [f64; 21] = [
-    200_000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44,
-    -2.12, 0.002, 0.61, 0.3, 20.0, 0.99,
-];
 
 /// One row: its label, the model, the symbol without the language prefix, the finding
 /// expected and the check it gets.
@@ -130,49 +118,17 @@ const JC_ROWS: [BlockRow; 7] = [
     ),
 ];
 
-fn j2_settings(rule: EnergyRule) -> BlockSettings {
-    BlockSettings {
-        conditions: Conditions {
-            temperature: 293.0,
-            temperature_increment: 0.0,
-            density: 7.85e-9,
-            characteristic_length: 2.0,
-        },
-        state0: vec![0.0; 13],
-        energy_rule: rule,
-        ..BlockSettings::default()
-    }
-}
-
 fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
-    let s = j2_settings(EnergyRule::Trapezoid);
-    block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
+    block::run(r, &J2_PROPS, &j2_path(), &j2_settings(EnergyRule::Trapezoid)).map_err(anyhow::Error::msg)
 }
 
 fn j2_midpoint_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
-    let s = j2_settings(EnergyRule::Midpoint);
-    block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
+    block::run(r, &J2_PROPS, &j2_path(), &j2_settings(EnergyRule::Midpoint)).map_err(anyhow::Error::msg)
 }
 
 /// Into damage and deletion in uniaxial strain (to ε11 = 0.3) and back, at 200/s, at `temperature`.
 fn jc_check_at(r: &mut dyn BlockRoutine, temperature: f64) -> Result<BlockReport> {
-    let mut path = Path::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
-    for inc in &mut path.increments {
-        inc.dtime = 5e-5;
-    }
-    let s = BlockSettings {
-        conditions: Conditions {
-            temperature,
-            temperature_increment: 0.0,
-            density: 7.83e-9,
-            characteristic_length: 2.0,
-        },
-        state0: vec![0.0; 13],
-        softening: true,
-        rate_law: Some(RateLaw { reference_rate: 1.0, coefficient: 0.014 }),
-        ..BlockSettings::default()
-    };
-    block::run(r, &STEEL, &path, &s).map_err(anyhow::Error::msg)
+    block::run(r, &jc_steel(0.014), &jc_path(), &jc_settings(temperature)).map_err(anyhow::Error::msg)
 }
 
 fn jc_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {

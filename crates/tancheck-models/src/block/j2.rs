@@ -220,30 +220,12 @@ impl BlockModel for J2Block {
 #[cfg(test)]
 mod tests {
     use super::*;
-    use tancheck_core::block::{BlockModelRoutine, BlockSettings, Conditions, EnergyRule};
-    use tancheck_core::path::{Path, Shape};
-
-    /// The worked J2 case of REFERENCES.md (E 200 GPa, ν 0.3, σy 250 MPa, K' 1000, H' 500 MPa).
-    const PROPS: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-
-    fn settings() -> BlockSettings {
-        BlockSettings {
-            conditions: Conditions {
-                temperature: 293.0,
-                temperature_increment: 0.0,
-                density: 7.85e-9,
-                characteristic_length: 2.0,
-            },
-            state0: vec![0.0; 13],
-            ..BlockSettings::default()
-        }
-    }
+    use crate::block::worked::{j2_path, j2_settings, J2_PROPS};
+    use tancheck_core::block::{BlockModelRoutine, EnergyRule};
 
     fn check_with(flaw: BlockFlaw, rule: EnergyRule) -> tancheck_core::block::BlockReport {
         let mut r = BlockModelRoutine(J2Block::with_flaw(PointKind::Solid3d, flaw).unwrap());
-        let path = Path::ramp(Shape::TensionShear, 6e-3, 6, 3);
-        let s = BlockSettings { energy_rule: rule, ..settings() };
-        tancheck_core::block::run(&mut r, &PROPS, &path, &s).unwrap()
+        tancheck_core::block::run(&mut r, &J2_PROPS, &j2_path(), &j2_settings(rule)).unwrap()
     }
 
     fn check(flaw: BlockFlaw) -> tancheck_core::block::BlockReport {

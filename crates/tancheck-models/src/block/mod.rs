@@ -9,9 +9,11 @@
 //! - [`JcBlock`]: Johnson–Cook plasticity (rate, thermal softening, adiabatic heating), damage
 //!   initiation, progressive damage over the characteristic length and deletion, the block form
 //!   of [`crate::JohnsonCook`]; with a [`JcBlockFlaw`] one of the flawed zoo rows.
+//! - [`worked`]: the worked cases the tests and the selftest run these models on.
 
 pub mod j2;
 pub mod johnson_cook;
+pub mod worked;
 
 pub use j2::{BlockFlaw, J2Block};
 pub use johnson_cook::{JcBlock, JcBlockFlaw};
