@@ -1,5 +1,6 @@
 //! Checks and endings shared by the models' `evaluate`: array sizes, a failed status with a
-//! message, and filling the outputs a model has no use for.
+//! message, and filling the outputs a model has no use for; the trait impls of point and
+//! finite-strain models.
 
 use tancheck_core::routine::status;
 use tancheck_core::{CallInput, CallOutput, Fault, RoutineInfo, Scalar};
@@ -121,6 +122,27 @@ macro_rules! point_model {
     };
 }
 pub(crate) use point_model;
+
+/// `impl FiniteModel` for a finite-strain model with an `info` field: its inherent `update`
+/// does the call (the trait's boilerplate written once, as [`point_model`] does for points).
+macro_rules! finite_model {
+    ($model:ty) => {
+        impl tancheck_core::finite::FiniteModel for $model {
+            fn info(&self) -> &tancheck_core::finite::FiniteInfo {
+                &self.info
+            }
+
+            fn evaluate<S: tancheck_core::Scalar>(
+                &self,
+                input: &tancheck_core::finite::FiniteInput<'_, S>,
+                output: &mut tancheck_core::finite::FiniteOutput<'_, S>,
+            ) -> Result<(), tancheck_core::Fault> {
+                self.update(input, output)
+            }
+        }
+    };
+}
+pub(crate) use finite_model;
 
 /// `impl Model` for an enum of models: every method goes to the variant's model.
 macro_rules! model_by_variant {
