@@ -5,6 +5,8 @@
 use tancheck_core::routine::status;
 use tancheck_core::{CallInput, CallOutput, Fault, RoutineInfo, Scalar};
 
+use crate::tensor::write_tangent;
+
 /// The arrays of one call have the sizes the routine's info announces. Allocates only when
 /// they do not (the message).
 pub(crate) fn check_sizes<S>(
@@ -65,6 +67,31 @@ pub(crate) fn succeed<S>(output: &mut CallOutput<'_, S>, branch: i32, provides: 
     if o.message[0] != 0 {
         o.message.fill(0);
     }
+}
+
+/// The end of a call of a linear elastic model (isotropic and orthotropic alike): σ = σ₀ + C Δε
+/// on the routine's `slots` of the canonical-order matrix `c`, C as the tangent, no ∂σ/∂T, the
+/// stored energy ½ σ·ε and no dissipation.
+pub(crate) fn linear_elastic_end<S: Scalar>(
+    c: &[[S; 6]; 6],
+    slots: &[usize],
+    input: &CallInput<'_, S>,
+    output: &mut CallOutput<'_, S>,
+) {
+    let mut stored = S::zero();
+    for (i, &si) in slots.iter().enumerate() {
+        let mut s = input.stress0[i];
+        for (j, &sj) in slots.iter().enumerate() {
+            s += c[si][sj] * input.dstrain[j];
+        }
+        output.stress[i] = s;
+        stored += s * (input.strain[i] + input.dstrain[i]);
+    }
+    write_tangent(c, slots, output.tangent);
+    output.dstress_dtemp.fill(S::zero());
+    output.energy[0] = stored * 0.5;
+    output.energy[1] = S::zero();
+    succeed(output, 0, tancheck_core::routine::provides::ENERGY);
 }
 
 /// x > 0 on the real part; false for NaN.

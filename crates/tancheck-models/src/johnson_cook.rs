@@ -117,6 +117,21 @@ pub struct Flow<S> {
 }
 
 impl<S: Scalar> JcLaw<S> {
+    /// The law's constants from the model's properties (their order in [`JohnsonCook::PROP_NAMES`]);
+    /// the model reads them so, and the tests take them so from the published sets.
+    pub fn from_props(p: &[S]) -> JcLaw<S> {
+        JcLaw {
+            a: p[2],
+            b: p[3],
+            n: p[4],
+            c: p[5],
+            m: p[6],
+            t_room: p[7],
+            t_melt: p[8],
+            d: [p[13], p[14], p[15], p[16], p[17]],
+        }
+    }
+
     /// Homologous temperature T* = (T − T_r)/(T_m − T_r), unclipped.
     #[inline]
     pub fn homologous(&self, temp: S) -> S {
@@ -273,22 +288,7 @@ fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
         return Err("johnson-cook: D1..D5 (properties[13..18]) must be finite");
     }
     let (lambda, mu) = lame(p[0], p[1]);
-    Ok(Props {
-        lambda,
-        mu,
-        law: JcLaw {
-            a: p[2],
-            b: p[3],
-            n: p[4],
-            c: p[5],
-            m: p[6],
-            t_room: p[7],
-            t_melt: p[8],
-            d: [p[13], p[14], p[15], p[16], p[17]],
-        },
-        rate0: p[9],
-        heat,
-    })
+    Ok(Props { lambda, mu, law: JcLaw::from_props(p), rate0: p[9], heat })
 }
 
 point_model!(JohnsonCook, DSTRESS_DTEMP);

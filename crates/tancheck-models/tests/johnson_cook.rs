@@ -38,16 +38,7 @@ fn ofhc_copper() -> Vec<f64> {
 }
 
 fn law(p: &[f64]) -> JcLaw<f64> {
-    JcLaw {
-        a: p[2],
-        b: p[3],
-        n: p[4],
-        c: p[5],
-        m: p[6],
-        t_room: p[7],
-        t_melt: p[8],
-        d: [p[13], p[14], p[15], p[16], p[17]],
-    }
+    JcLaw::from_props(p)
 }
 
 /// |x − printed| within half a unit of the printed value's last digit.
