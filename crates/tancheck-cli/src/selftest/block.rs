@@ -141,20 +141,19 @@ fn jc_cold_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
 }
 
 fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -> Row {
-    let found = r.finding().to_string();
-    Row {
-        variant: variant.into(),
+    let verdict = match r.exit_code() {
+        0 => Verdict::Pass,
+        3 => Verdict::RoutineFault,
+        _ => Verdict::TangentFailure,
+    };
+    Row::new(
+        variant,
         language,
-        expected: expected.into(),
-        verdict: match r.exit_code() {
-            0 => Verdict::Pass,
-            3 => Verdict::RoutineFault,
-            _ => Verdict::TangentFailure,
-        },
-        right: found == expected,
-        found,
-        first_increment: r.findings.first().and_then(|f| f.increment),
-    }
+        expected,
+        verdict,
+        r.finding().to_string(),
+        r.findings.first().and_then(|f| f.increment),
+    )
 }
 
 /// The rows of one family, its source's stem and its number of properties.
