@@ -63,8 +63,8 @@ use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, PointKind, RoutineInfo, Scalar};
 
 use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
-use crate::j2::{radial_return, return_tangent, solid_layout, trial_state};
-use crate::tensor::{is_shear_slot, isotropic_matrix, lame, sqrt_2_3, write_tangent};
+use crate::j2::{elastic_end, plastic_correction, radial_return, return_tangent, solid_layout, trial_state};
+use crate::tensor::{lame, sqrt_2_3, write_tangent};
 use crate::ModelError;
 
 /// Lower bound of the fracture strain ε_f in the damage indicator (a guard against
@@ -325,11 +325,7 @@ impl JohnsonCook {
         let dt = input.time[1];
         let no_time = dt <= 0.0 && p.law.c.re() > 0.0;
         if f_tr.re() <= 0.0 || no_time {
-            for (i, &slot) in slots.iter().enumerate() {
-                output.stress[i] = sigma_tr[slot];
-            }
-            output.state.copy_from_slice(input.state0);
-            write_tangent(&isotropic_matrix(p.lambda, p.mu), slots, output.tangent);
+            elastic_end(&sigma_tr, p.lambda, p.mu, slots, input, output);
             output.dstress_dtemp.fill(S::zero());
             succeed(output, 0, provides::DSTRESS_DTEMP);
             return;
@@ -365,15 +361,7 @@ impl JohnsonCook {
             return;
         }
 
-        let mut nrm = [S::zero(); 6];
-        for k in 0..6 {
-            nrm[k] = xi[k] / norm;
-        }
-        for (i, &slot) in slots.iter().enumerate() {
-            output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
-            let deps = if is_shear_slot(slot) { dgamma * nrm[slot] * 2.0 } else { dgamma * nrm[slot] };
-            output.state[i] = eps_p_n[i] + deps;
-        }
+        let nrm = plastic_correction(&sigma_tr, &xi, norm, two_mu, dgamma, eps_p_n, slots, output);
         output.state[n] = ebar;
 
         // Damage indicator from the end stress: σ* = σ_m / σ_eq, σ_eq = σ_y on the surface.
