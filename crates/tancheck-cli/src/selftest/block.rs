@@ -20,102 +20,30 @@ use tancheck_models::block::worked::{j2_path, j2_settings, jc_path, jc_settings,
 
 use super::Row;
 
-/// One row: its label, the model, the symbol without the language prefix, the finding
-/// expected and the check it gets.
-type BlockRow = (&'static str, &'static str, &'static str, &'static str, Check);
+/// One row: the model, a note its label gets after the model's name, the finding expected and
+/// the check it gets. Its symbol is the model's name in the family's source (see [`Family`]).
+type BlockRow = (&'static str, &'static str, &'static str, Check);
 type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
 
 const J2_ROWS: [BlockRow; 9] = [
-    ("j2-block", "j2-block", "j2_block", "none", j2_check),
-    (
-        "j2-block-neighbour-state",
-        "j2-block-neighbour-state",
-        "j2_block_neighbour_state",
-        "point-dependence",
-        j2_check,
-    ),
-    (
-        "j2-block-old-stress-energy",
-        "j2-block-old-stress-energy",
-        "j2_block_old_stress_energy",
-        "energy-work-mismatch",
-        j2_check,
-    ),
-    (
-        "j2-block-dissipation-sign",
-        "j2-block-dissipation-sign",
-        "j2_block_dissipation_sign",
-        "dissipation-decreases",
-        j2_check,
-    ),
-    (
-        "j2-block-total-back-stress",
-        "j2-block-total-back-stress",
-        "j2_block_total_back_stress",
-        "refinement-order",
-        j2_check,
-    ),
-    (
-        "j2-block-corrector-sign",
-        "j2-block-corrector-sign",
-        "j2_block_corrector_sign",
-        "stiffer-than-elastic",
-        j2_check,
-    ),
-    (
-        "j2-block-double-correction",
-        "j2-block-double-correction",
-        "j2_block_double_correction",
-        "negative-stiffness",
-        j2_check,
-    ),
-    (
-        "j2-block-midpoint (midpoint rule)",
-        "j2-block-midpoint",
-        "j2_block_midpoint",
-        "none",
-        j2_midpoint_check,
-    ),
-    ("j2-block (midpoint rule)", "j2-block", "j2_block", "energy-work-mismatch", j2_midpoint_check),
+    ("j2-block", "", "none", j2_check),
+    ("j2-block-neighbour-state", "", "point-dependence", j2_check),
+    ("j2-block-old-stress-energy", "", "energy-work-mismatch", j2_check),
+    ("j2-block-dissipation-sign", "", "dissipation-decreases", j2_check),
+    ("j2-block-total-back-stress", "", "refinement-order", j2_check),
+    ("j2-block-corrector-sign", "", "stiffer-than-elastic", j2_check),
+    ("j2-block-double-correction", "", "negative-stiffness", j2_check),
+    ("j2-block-midpoint", " (midpoint rule)", "none", j2_midpoint_check),
+    ("j2-block", " (midpoint rule)", "energy-work-mismatch", j2_midpoint_check),
 ];
 const JC_ROWS: [BlockRow; 7] = [
-    ("johnson-cook-block", "johnson-cook-block", "jc_block", "none", jc_check),
-    (
-        "johnson-cook-block-revived",
-        "johnson-cook-block-revived",
-        "jc_block_revived",
-        "deleted-point-revived",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-unguarded-rate",
-        "johnson-cook-block-unguarded-rate",
-        "jc_block_unguarded_rate",
-        "zero-rate-not-finite",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-wrong-temperature",
-        "johnson-cook-block-wrong-temperature",
-        "jc_block_wrong_temperature",
-        "elastic-response-mismatch",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-deleted-stress",
-        "johnson-cook-block-deleted-stress",
-        "jc_block_deleted_stress",
-        "deleted-point-stress",
-        jc_check,
-    ),
-    ("johnson-cook-block (250 K)", "johnson-cook-block", "jc_block", "none", jc_cold_check),
-    (
-        "johnson-cook-block-unclipped-temperature",
-        "johnson-cook-block-unclipped-temperature",
-        "jc_block_unclipped_temperature",
-        "non-finite-stiffness",
-        jc_cold_check,
-    ),
+    ("johnson-cook-block", "", "none", jc_check),
+    ("johnson-cook-block-revived", "", "deleted-point-revived", jc_check),
+    ("johnson-cook-block-unguarded-rate", "", "zero-rate-not-finite", jc_check),
+    ("johnson-cook-block-wrong-temperature", "", "elastic-response-mismatch", jc_check),
+    ("johnson-cook-block-deleted-stress", "", "deleted-point-stress", jc_check),
+    ("johnson-cook-block", " (250 K)", "none", jc_cold_check),
+    ("johnson-cook-block-unclipped-temperature", "", "non-finite-stiffness", jc_cold_check),
 ];
 
 fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
@@ -156,19 +84,27 @@ fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -
     )
 }
 
-/// The rows of one family, its source's stem and its number of properties.
-type Family = (&'static [BlockRow], &'static str, usize);
+/// The rows of one family, its models' common name, its source's stem (also the symbols'
+/// stem) and its number of properties.
+type Family = (&'static [BlockRow], &'static str, &'static str, usize);
+
+/// A model's symbol without the language prefix: the family's stem, then the rest of the
+/// model's name with `_` for `-` (`johnson-cook-block-revived` → `jc_block_revived`).
+fn symbol_of(model: &str, family_name: &str, stem: &str) -> String {
+    format!("{stem}{}", model.strip_prefix(family_name).unwrap_or(model).replace('-', "_"))
+}
 
 /// The rows, for Rust, C and (when gfortran is there) Fortran; libraries go to `dir`.
 pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row>> {
     let kind = PointKind::Solid3d;
     let mut rows = Vec::new();
-    let families: [Family; 2] = [(&J2_ROWS, "j2_block", 7), (&JC_ROWS, "jc_block", 21)];
-    for (table, _, _) in families {
-        for (label, model, _, expected, check) in table.iter() {
+    let families: [Family; 2] =
+        [(&J2_ROWS, "j2-block", "j2_block", 7), (&JC_ROWS, "johnson-cook-block", "jc_block", 21)];
+    for (table, _, _, _) in families {
+        for (model, note, expected, check) in table.iter() {
             let mut m =
                 tancheck_models::block::by_name(model, kind).context("a block model of the zoo")??;
-            rows.push(row(label, "Rust", expected, &check(m.as_mut())?));
+            rows.push(row(&format!("{model}{note}"), "Rust", expected, &check(m.as_mut())?));
         }
     }
     let mut languages = vec![("C", "c", "fortran-shim/examples/c/{}.c")];
@@ -176,17 +112,17 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
         languages.push(("Fortran", "f", "fortran-shim/examples/fortran/{}.F90"));
     }
     for (language, prefix, pattern) in languages {
-        for (table, source, nprop) in families {
+        for (table, family_name, source, nprop) in families {
             let lib_path = dir.join(format!("lib{source}_{prefix}.so"));
             let src = root.join(pattern.replace("{}", source));
             build_library(&BuildOptions::new([src], &lib_path))
                 .with_context(|| format!("building the {language} block rows ({source})"))?;
             let lib = Library::open(&lib_path)?;
-            for (label, _, sym, expected, check) in table.iter() {
-                let symbol = format!("{prefix}_{sym}");
+            for (model, note, expected, check) in table.iter() {
+                let symbol = format!("{prefix}_{}", symbol_of(model, family_name, source));
                 let info = BlockInfo { name: symbol.clone(), ncomp: 6, nstate: 13, nproperties: nprop };
                 let mut r = lib.block_routine(&symbol, info)?;
-                rows.push(row(label, language, expected, &check(&mut r)?));
+                rows.push(row(&format!("{model}{note}"), language, expected, &check(&mut r)?));
             }
         }
     }
