@@ -20,30 +20,43 @@ use tancheck_models::block::worked::{j2_path, j2_settings, jc_path, jc_settings,
 
 use super::Row;
 
-/// One row: the model, a note its label gets after the model's name, the finding expected and
-/// the check it gets. Its symbol is the model's name in the family's source (see [`Family`]).
-type BlockRow = (&'static str, &'static str, &'static str, Check);
-type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
+/// One row: the model, the finding expected and how it is checked. Its symbol is the model's
+/// name in the family's source (see [`Family`]).
+type BlockRow = (&'static str, &'static str, Check);
+
+/// How a row is checked, and the note its label gets after the model's name.
+#[derive(Clone, Copy)]
+struct Check {
+    run: fn(&mut dyn BlockRoutine) -> Result<BlockReport>,
+    note: &'static str,
+}
+
+const J2: Check = Check { run: j2_check, note: "" };
+const J2_MIDPOINT: Check = Check { run: j2_midpoint_check, note: " (midpoint rule)" };
+const JC: Check = Check { run: jc_check, note: "" };
+const JC_COLD: Check = Check { run: jc_cold_check, note: " (250 K)" };
+/// Below the room temperature, for a flawed row whose model's name says it already.
+const JC_COLD_FLAW: Check = Check { run: jc_cold_check, note: "" };
 
 const J2_ROWS: [BlockRow; 9] = [
-    ("j2-block", "", "none", j2_check),
-    ("j2-block-neighbour-state", "", "point-dependence", j2_check),
-    ("j2-block-old-stress-energy", "", "energy-work-mismatch", j2_check),
-    ("j2-block-dissipation-sign", "", "dissipation-decreases", j2_check),
-    ("j2-block-total-back-stress", "", "refinement-order", j2_check),
-    ("j2-block-corrector-sign", "", "stiffer-than-elastic", j2_check),
-    ("j2-block-double-correction", "", "negative-stiffness", j2_check),
-    ("j2-block-midpoint", " (midpoint rule)", "none", j2_midpoint_check),
-    ("j2-block", " (midpoint rule)", "energy-work-mismatch", j2_midpoint_check),
+    ("j2-block", "none", J2),
+    ("j2-block-neighbour-state", "point-dependence", J2),
+    ("j2-block-old-stress-energy", "energy-work-mismatch", J2),
+    ("j2-block-dissipation-sign", "dissipation-decreases", J2),
+    ("j2-block-total-back-stress", "refinement-order", J2),
+    ("j2-block-corrector-sign", "stiffer-than-elastic", J2),
+    ("j2-block-double-correction", "negative-stiffness", J2),
+    ("j2-block-midpoint", "none", J2_MIDPOINT),
+    ("j2-block", "energy-work-mismatch", J2_MIDPOINT),
 ];
 const JC_ROWS: [BlockRow; 7] = [
-    ("johnson-cook-block", "", "none", jc_check),
-    ("johnson-cook-block-revived", "", "deleted-point-revived", jc_check),
-    ("johnson-cook-block-unguarded-rate", "", "zero-rate-not-finite", jc_check),
-    ("johnson-cook-block-wrong-temperature", "", "elastic-response-mismatch", jc_check),
-    ("johnson-cook-block-deleted-stress", "", "deleted-point-stress", jc_check),
-    ("johnson-cook-block", " (250 K)", "none", jc_cold_check),
-    ("johnson-cook-block-unclipped-temperature", "", "non-finite-stiffness", jc_cold_check),
+    ("johnson-cook-block", "none", JC),
+    ("johnson-cook-block-revived", "deleted-point-revived", JC),
+    ("johnson-cook-block-unguarded-rate", "zero-rate-not-finite", JC),
+    ("johnson-cook-block-wrong-temperature", "elastic-response-mismatch", JC),
+    ("johnson-cook-block-deleted-stress", "deleted-point-stress", JC),
+    ("johnson-cook-block", "none", JC_COLD),
+    ("johnson-cook-block-unclipped-temperature", "non-finite-stiffness", JC_COLD_FLAW),
 ];
 
 fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
@@ -101,10 +114,10 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
     let families: [Family; 2] =
         [(&J2_ROWS, "j2-block", "j2_block", 7), (&JC_ROWS, "johnson-cook-block", "jc_block", 21)];
     for (table, _, _, _) in families {
-        for (model, note, expected, check) in table.iter() {
+        for (model, expected, check) in table.iter() {
             let mut m =
                 tancheck_models::block::by_name(model, kind).context("a block model of the zoo")??;
-            rows.push(row(&format!("{model}{note}"), "Rust", expected, &check(m.as_mut())?));
+            rows.push(row(&format!("{model}{}", check.note), "Rust", expected, &(check.run)(m.as_mut())?));
         }
     }
     let mut languages = vec![("C", "c", "fortran-shim/examples/c/{}.c")];
@@ -118,11 +131,11 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
             build_library(&BuildOptions::new([src], &lib_path))
                 .with_context(|| format!("building the {language} block rows ({source})"))?;
             let lib = Library::open(&lib_path)?;
-            for (model, note, expected, check) in table.iter() {
+            for (model, expected, check) in table.iter() {
                 let symbol = format!("{prefix}_{}", symbol_of(model, family_name, source));
                 let info = BlockInfo { name: symbol.clone(), ncomp: 6, nstate: 13, nproperties: nprop };
                 let mut r = lib.block_routine(&symbol, info)?;
-                rows.push(row(&format!("{model}{note}"), language, expected, &check(&mut r)?));
+                rows.push(row(&format!("{model}{}", check.note), language, expected, &(check.run)(&mut r)?));
             }
         }
     }
