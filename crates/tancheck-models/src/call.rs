@@ -171,39 +171,6 @@ macro_rules! finite_model {
 }
 pub(crate) use finite_model;
 
-/// `impl BlockModel` for a [`crate::block::PointBlock`] whose inherent `point` updates one
-/// point (`Ok(false)`: the call failed there, stop): the loop over the points written once for
-/// every block model. With `$check`, the inherent `$check(input, output)` runs first (`false`:
-/// the call failed as a whole).
-macro_rules! block_model {
-    ($model:ty $(, $check:ident)?) => {
-        impl tancheck_core::block::BlockModel for $model {
-            fn info(&self) -> &tancheck_core::block::BlockInfo {
-                &self.info
-            }
-
-            fn evaluate<S: tancheck_core::Scalar>(
-                &self,
-                input: &tancheck_core::block::BlockInput<'_, S>,
-                output: &mut tancheck_core::block::BlockOutput<'_, S>,
-            ) -> Result<(), tancheck_core::Fault> {
-                $(if !self.$check(input, output) {
-                    return Ok(());
-                })?
-                let (n, ns) = (self.info.ncomp, self.info.nstate);
-                for p in 0..input.npoints() {
-                    let (c, s) = (p * n..(p + 1) * n, p * ns..(p + 1) * ns);
-                    if !self.point($crate::block::At { input, output: &mut *output, p, c, s })? {
-                        break;
-                    }
-                }
-                Ok(())
-            }
-        }
-    };
-}
-pub(crate) use block_model;
-
 /// `impl Model` for an enum of models: every method goes to the variant's model.
 macro_rules! model_by_variant {
     ($any:ident { $($variant:ident),* $(,)? }) => {

@@ -11,7 +11,6 @@ use tancheck_core::routine::status;
 use tancheck_core::{Fault, Model, PointKind, Scalar};
 
 use super::{elastic_response, fail_point, point_update, trapezoid_work, At, PointBlock};
-use crate::call::block_model;
 use crate::{ModelError, J2};
 
 /// Deliberate mistakes of the zoo's block rows.
@@ -100,7 +99,7 @@ impl J2Block {
 block_model!(J2Block);
 
 impl J2Block {
-    /// One point of a call (see [`block_model`]).
+    /// One point of a call (see `block_model!` in the block module).
     fn point<S: Scalar>(&self, at: At<'_, '_, '_, S>) -> Result<bool, Fault> {
         let At { input, output, p, c, s } = at;
         let (n, ns) = (self.info.ncomp, self.info.nstate);

@@ -28,7 +28,6 @@ use tancheck_core::routine::status;
 use tancheck_core::{Fault, Model, PointKind, Scalar};
 
 use super::{elastic_response, fail_point, point_update, trapezoid_work, At, PointBlock};
-use crate::call::block_model;
 use crate::{JohnsonCook, ModelError};
 
 /// Properties of the point model.
@@ -135,7 +134,7 @@ impl JcBlock {
         true
     }
 
-    /// One point of a call (see [`block_model`]).
+    /// One point of a call (see `block_model!` in the block module).
     fn point<S: Scalar>(&self, at: At<'_, '_, '_, S>) -> Result<bool, Fault> {
         let At { input, output, p, c, s } = at;
         let (n, ns) = (self.info.ncomp, self.info.nstate);
