@@ -4,7 +4,7 @@
 //!
 //! Properties are demo numbers inside each model's valid range.
 
-use std::path::PathBuf;
+use std::path::{Path as FsPath, PathBuf};
 
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, fortran_available, BuildOptions, Library};
@@ -149,17 +149,59 @@ fn check_one(routine: &mut dyn Routine, e: &ZooEntry) -> Result<Report> {
 }
 
 fn row(e: &ZooEntry, language: &'static str, r: &Report) -> Row {
-    let found = r.finding();
-    let right = found == e.expected;
-    Row {
-        variant: e.name.into(),
-        language,
-        expected: e.expected.into(),
-        verdict: r.verdict,
-        found,
-        first_increment: r.increments.iter().find(|i| !i.passed()).map(|i| i.index),
-        right,
+    report_row(e.name, language, e.expected, r)
+}
+
+impl Row {
+    /// What a check found against what was expected: every family's rows are made so.
+    fn new(
+        variant: &str,
+        language: &'static str,
+        expected: &str,
+        verdict: Verdict,
+        found: String,
+        first_increment: Option<usize>,
+    ) -> Row {
+        let right = found == expected;
+        Row {
+            variant: variant.into(),
+            language,
+            expected: expected.into(),
+            verdict,
+            found,
+            first_increment,
+            right,
+        }
     }
+}
+
+/// The row of a point check's report (the zoo's, Johnson–Cook's and ply's rows).
+fn report_row(variant: &str, language: &'static str, expected: &str, r: &Report) -> Row {
+    let first = r.increments.iter().find(|i| !i.passed()).map(|i| i.index);
+    Row::new(variant, language, expected, r.verdict, r.finding(), first)
+}
+
+/// The example routines `stem` in C and (when gfortran is there) Fortran, built into `dir` and
+/// opened, as (language, symbol prefix, library): how each family's compiled rows begin.
+fn compiled_examples(
+    dir: &FsPath,
+    root: &FsPath,
+    fortran: bool,
+    stem: &str,
+    what: &str,
+) -> Result<Vec<(&'static str, &'static str, Library)>> {
+    let mut languages = vec![("C", "c", format!("fortran-shim/examples/c/{stem}.c"))];
+    if fortran {
+        languages.push(("Fortran", "f", format!("fortran-shim/examples/fortran/{stem}.F90")));
+    }
+    let mut libs = Vec::new();
+    for (language, prefix, source) in languages {
+        let lib_path = dir.join(format!("lib{stem}_{prefix}.so"));
+        build_library(&BuildOptions::new([root.join(source)], &lib_path))
+            .with_context(|| format!("building the {language} {what}"))?;
+        libs.push((language, prefix, Library::open(&lib_path)?));
+    }
+    Ok(libs)
 }
 
 fn kind_of(e: &ZooEntry) -> PointKind {

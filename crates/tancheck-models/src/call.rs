@@ -1,8 +1,11 @@
 //! Checks and endings shared by the models' `evaluate`: array sizes, a failed status with a
-//! message, and filling the outputs a model has no use for.
+//! message, and filling the outputs a model has no use for; the trait impls of point and
+//! finite-strain models.
 
 use tancheck_core::routine::status;
 use tancheck_core::{CallInput, CallOutput, Fault, RoutineInfo, Scalar};
+
+use crate::tensor::write_tangent;
 
 /// The arrays of one call have the sizes the routine's info announces. Allocates only when
 /// they do not (the message).
@@ -66,6 +69,31 @@ pub(crate) fn succeed<S>(output: &mut CallOutput<'_, S>, branch: i32, provides: 
     }
 }
 
+/// The end of a call of a linear elastic model (isotropic and orthotropic alike): σ = σ₀ + C Δε
+/// on the routine's `slots` of the canonical-order matrix `c`, C as the tangent, no ∂σ/∂T, the
+/// stored energy ½ σ·ε and no dissipation.
+pub(crate) fn linear_elastic_end<S: Scalar>(
+    c: &[[S; 6]; 6],
+    slots: &[usize],
+    input: &CallInput<'_, S>,
+    output: &mut CallOutput<'_, S>,
+) {
+    let mut stored = S::zero();
+    for (i, &si) in slots.iter().enumerate() {
+        let mut s = input.stress0[i];
+        for (j, &sj) in slots.iter().enumerate() {
+            s += c[si][sj] * input.dstrain[j];
+        }
+        output.stress[i] = s;
+        stored += s * (input.strain[i] + input.dstrain[i]);
+    }
+    write_tangent(c, slots, output.tangent);
+    output.dstress_dtemp.fill(S::zero());
+    output.energy[0] = stored * 0.5;
+    output.energy[1] = S::zero();
+    succeed(output, 0, tancheck_core::routine::provides::ENERGY);
+}
+
 /// x > 0 on the real part; false for NaN.
 #[inline]
 pub(crate) fn positive(x: f64) -> bool {
@@ -121,6 +149,27 @@ macro_rules! point_model {
     };
 }
 pub(crate) use point_model;
+
+/// `impl FiniteModel` for a finite-strain model with an `info` field: its inherent `update`
+/// does the call (the trait's boilerplate written once, as [`point_model`] does for points).
+macro_rules! finite_model {
+    ($model:ty) => {
+        impl tancheck_core::finite::FiniteModel for $model {
+            fn info(&self) -> &tancheck_core::finite::FiniteInfo {
+                &self.info
+            }
+
+            fn evaluate<S: tancheck_core::Scalar>(
+                &self,
+                input: &tancheck_core::finite::FiniteInput<'_, S>,
+                output: &mut tancheck_core::finite::FiniteOutput<'_, S>,
+            ) -> Result<(), tancheck_core::Fault> {
+                self.update(input, output)
+            }
+        }
+    };
+}
+pub(crate) use finite_model;
 
 /// `impl Model` for an enum of models: every method goes to the variant's model.
 macro_rules! model_by_variant {

@@ -5,11 +5,10 @@
 //! stress (11, 22, 12, with C = E/(1−ν²) [[1, ν, 0], [ν, 1, 0], [0, 0, (1−ν)/2]]) and
 //! uniaxial (σ = E ε). The stored energy ½ σ·(ε + Δε) is reported (dissipated 0); branch 0.
 
-use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{between, fail, point_model, positive, succeed};
-use crate::tensor::{isotropic_matrix, lame, write_tangent, SLOTS_4, SLOTS_6};
+use crate::call::{between, fail, linear_elastic_end, point_model, positive};
+use crate::tensor::{isotropic_matrix, lame, SLOTS_4, SLOTS_6};
 use crate::ModelError;
 
 /// Linear isotropic elasticity for any solid kind of point.
@@ -97,21 +96,8 @@ impl Elastic {
         }
         let n = self.info.convention.ncomp();
         let m = self.matrix(e, nu);
-        let mut stored = S::zero();
-        for (i, row) in m.iter().take(n).enumerate() {
-            let mut s = input.stress0[i];
-            for (c, de) in row.iter().zip(input.dstrain) {
-                s += *c * *de;
-            }
-            output.stress[i] = s;
-            stored += s * (input.strain[i] + input.dstrain[i]);
-        }
         // The matrix is already in routine order: the identity slot map picks its n×n block.
-        write_tangent(&m, &SLOTS_6[..n], output.tangent);
-        output.dstress_dtemp.fill(S::zero());
-        output.energy[0] = stored * 0.5;
-        output.energy[1] = S::zero();
-        succeed(output, 0, provides::ENERGY);
+        linear_elastic_end(&m, &SLOTS_6[..n], input, output);
     }
 }
 
@@ -119,7 +105,7 @@ impl Elastic {
 mod tests {
     use super::*;
     use crate::testing::{run, Point};
-    use tancheck_core::routine::status;
+    use tancheck_core::routine::{provides, status};
     use tancheck_core::Fault;
 
     const E: f64 = 200_000.0;

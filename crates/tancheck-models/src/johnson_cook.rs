@@ -63,8 +63,8 @@ use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, PointKind, RoutineInfo, Scalar};
 
 use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
-use crate::j2::{radial_return, return_tangent, solid_layout, trial_state};
-use crate::tensor::{is_shear_slot, isotropic_matrix, lame, sqrt_2_3, write_tangent};
+use crate::j2::{elastic_end, plastic_correction, radial_return, return_tangent, solid_layout, trial_state};
+use crate::tensor::{lame, sqrt_2_3, write_tangent};
 use crate::ModelError;
 
 /// Lower bound of the fracture strain ε_f in the damage indicator (a guard against
@@ -117,6 +117,21 @@ pub struct Flow<S> {
 }
 
 impl<S: Scalar> JcLaw<S> {
+    /// The law's constants from the model's properties (their order in [`JohnsonCook::PROP_NAMES`]);
+    /// the model reads them so, and the tests take them so from the published sets.
+    pub fn from_props(p: &[S]) -> JcLaw<S> {
+        JcLaw {
+            a: p[2],
+            b: p[3],
+            n: p[4],
+            c: p[5],
+            m: p[6],
+            t_room: p[7],
+            t_melt: p[8],
+            d: [p[13], p[14], p[15], p[16], p[17]],
+        }
+    }
+
     /// Homologous temperature T* = (T − T_r)/(T_m − T_r), unclipped.
     #[inline]
     pub fn homologous(&self, temp: S) -> S {
@@ -273,22 +288,7 @@ fn read_props<S: Scalar>(p: &[S]) -> Result<Props<S>, &'static str> {
         return Err("johnson-cook: D1..D5 (properties[13..18]) must be finite");
     }
     let (lambda, mu) = lame(p[0], p[1]);
-    Ok(Props {
-        lambda,
-        mu,
-        law: JcLaw {
-            a: p[2],
-            b: p[3],
-            n: p[4],
-            c: p[5],
-            m: p[6],
-            t_room: p[7],
-            t_melt: p[8],
-            d: [p[13], p[14], p[15], p[16], p[17]],
-        },
-        rate0: p[9],
-        heat,
-    })
+    Ok(Props { lambda, mu, law: JcLaw::from_props(p), rate0: p[9], heat })
 }
 
 point_model!(JohnsonCook, DSTRESS_DTEMP);
@@ -325,11 +325,7 @@ impl JohnsonCook {
         let dt = input.time[1];
         let no_time = dt <= 0.0 && p.law.c.re() > 0.0;
         if f_tr.re() <= 0.0 || no_time {
-            for (i, &slot) in slots.iter().enumerate() {
-                output.stress[i] = sigma_tr[slot];
-            }
-            output.state.copy_from_slice(input.state0);
-            write_tangent(&isotropic_matrix(p.lambda, p.mu), slots, output.tangent);
+            elastic_end(&sigma_tr, p.lambda, p.mu, slots, input, output);
             output.dstress_dtemp.fill(S::zero());
             succeed(output, 0, provides::DSTRESS_DTEMP);
             return;
@@ -365,15 +361,7 @@ impl JohnsonCook {
             return;
         }
 
-        let mut nrm = [S::zero(); 6];
-        for k in 0..6 {
-            nrm[k] = xi[k] / norm;
-        }
-        for (i, &slot) in slots.iter().enumerate() {
-            output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
-            let deps = if is_shear_slot(slot) { dgamma * nrm[slot] * 2.0 } else { dgamma * nrm[slot] };
-            output.state[i] = eps_p_n[i] + deps;
-        }
+        let nrm = plastic_correction(&sigma_tr, &xi, norm, two_mu, dgamma, eps_p_n, slots, output);
         output.state[n] = ebar;
 
         // Damage indicator from the end stress: σ* = σ_m / σ_eq, σ_eq = σ_y on the surface.

@@ -26,11 +26,10 @@
 //! Mandel form where the rotation is an orthogonal 6×6 matrix. The stored energy ½ σ·(ε + Δε)
 //! is reported (dissipated 0), as for `elastic`; branch 0.
 
-use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
-use crate::call::{point_model, positive, props_or_fail, succeed};
-use crate::tensor::{write_tangent, SLOTS_4, SLOTS_6};
+use crate::call::{linear_elastic_end, point_model, positive, props_or_fail};
+use crate::tensor::{SLOTS_4, SLOTS_6};
 use crate::ModelError;
 
 /// Tensor indices (i, j) of the canonical slots 11, 22, 33, 23, 13, 12.
@@ -233,20 +232,7 @@ impl Orthotropic {
         let Some(c) = props_or_fail(output, global_stiffness(input.props)) else {
             return;
         };
-        let mut stored = S::zero();
-        for (i, &si) in self.slots.iter().enumerate() {
-            let mut s = input.stress0[i];
-            for (j, &sj) in self.slots.iter().enumerate() {
-                s += c[si][sj] * input.dstrain[j];
-            }
-            output.stress[i] = s;
-            stored += s * (input.strain[i] + input.dstrain[i]);
-        }
-        write_tangent(&c, self.slots, output.tangent);
-        output.dstress_dtemp.fill(S::zero());
-        output.energy[0] = stored * 0.5;
-        output.energy[1] = S::zero();
-        succeed(output, 0, provides::ENERGY);
+        linear_elastic_end(&c, self.slots, input, output);
     }
 }
 

@@ -42,6 +42,7 @@ use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, Convention, PointKind, RoutineInfo, Scalar, ShearMeasure};
 
 use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
+use crate::elastic::Elastic;
 use crate::ModelError;
 
 /// Reference temperature of every law (°C).
@@ -100,14 +101,8 @@ impl Thermo {
     pub const PROP_NAMES: [&'static str; 6] = ["E20", "nu0", "nu1", "modulus_law", "expansion_law", "alpha"];
     /// Properties before the user table.
     pub const FIXED_PROPS: usize = 6;
-    /// Kinds of point the model supports.
-    pub const KINDS: [PointKind; 5] = [
-        PointKind::Solid3d,
-        PointKind::PlaneStrain,
-        PointKind::Axisymmetric,
-        PointKind::PlaneStress,
-        PointKind::Uniaxial,
-    ];
+    /// Kinds of point the model supports: those of linear elasticity.
+    pub const KINDS: [PointKind; 5] = Elastic::KINDS;
 
     /// The correct model, six properties (no user table).
     pub fn new(kind: PointKind) -> Result<Thermo, ModelError> {

@@ -82,7 +82,9 @@ pub struct ZooEntry {
     pub fortran_symbol: Option<&'static str>,
 }
 
-const J2_ROWS: [ZooEntry; 16] = [
+/// Every entry of the zoo, family by family (the order of [`zoo`]).
+const ROWS: [ZooEntry; 27] = [
+    // The J2 family: the reference, its flawed tangents and its broken twins.
     ZooEntry {
         name: J2::NAME,
         description: "J2 plasticity with the consistent tangent (the reference the variants spoil)",
@@ -217,9 +219,7 @@ const J2_ROWS: [ZooEntry; 16] = [
         c_symbol: Some("c_twin_conjugate"),
         fortran_symbol: Some("f_twin_conjugate"),
     },
-];
-
-const ELASTIC_ROWS: [ZooEntry; 3] = [
+    // Elasticity: the reference and the bimodulus kink.
     ZooEntry {
         name: Elastic::NAME,
         description: "linear isotropic elasticity (smooth, correct)",
@@ -244,9 +244,7 @@ const ELASTIC_ROWS: [ZooEntry; 3] = [
         c_symbol: Some("c_bimodulus_average"),
         fortran_symbol: None,
     },
-];
-
-const THERMO_ROWS: [ZooEntry; 3] = [
+    // Thermo-elasticity.
     ZooEntry {
         name: Thermo::NAME,
         description:
@@ -274,9 +272,7 @@ const THERMO_ROWS: [ZooEntry; 3] = [
         c_symbol: Some("c_thermo_partial_dtemp"),
         fortran_symbol: Some("f_thermo_partial_dtemp"),
     },
-];
-
-const COHESIVE_ROWS: [ZooEntry; 5] = [
+    // The cohesive law.
     ZooEntry {
         name: Cohesive::NAME,
         description: "bilinear mixed-mode cohesive law with its consistent tangent (correct)",
@@ -321,7 +317,7 @@ const COHESIVE_ROWS: [ZooEntry; 5] = [
 
 /// The zoo, in a fixed order: the J2 family, the elastic family, thermo-elasticity, cohesive.
 pub fn zoo() -> Vec<ZooEntry> {
-    J2_ROWS.iter().chain(&ELASTIC_ROWS).chain(&THERMO_ROWS).chain(&COHESIVE_ROWS).copied().collect()
+    ROWS.to_vec()
 }
 
 /// The entry called `name`.

@@ -7,37 +7,13 @@
 
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
 use tancheck_core::{Model, PointKind};
 use tancheck_models::J2;
-use tancheck_testkit::call::{model_call, uniaxial_stress_step, Call};
+use tancheck_testkit::call::uniaxial_stress_step;
+use tancheck_testkit::point::{dual_tangent, run, Point};
 use tancheck_testkit::tangent::{at, condensed_uniaxial};
 use tancheck_testkit::tensor::{deviatoric, random_tensor, slots, tensor_norm};
-
-#[derive(Clone, Debug)]
-struct Point {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    state0: Vec<f64>,
-}
-
-impl Point {
-    fn call(&self) -> Call {
-        Call::new(&self.props, self.strain.len(), self.state0.len()).strain(&self.strain).state0(&self.state0)
-    }
-}
-
-/// One real call (stress0 zero: the total form does not read it).
-fn run(m: &J2, p: &Point) -> Outputs<f64> {
-    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
-}
-
-/// ∂σ/∂Δε by num-dual (column-major), and the branch of each call.
-fn dual_tangent(m: &J2, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    tancheck_testkit::call::dual_tangent(m, &p.call().dstrain(&p.dstrain))
-}
 
 /// Relative Mandel–Frobenius error (the fourth-order tensor's norm) of a tangent.
 fn mandel_error(m: &J2, got: &[f64], reference: &[f64]) -> f64 {
@@ -123,7 +99,7 @@ fn random_point(rng: &mut StdRng, n: usize, s: &Softening) -> Point {
     let mut state0 = voigt(&eps_p);
     state0.push(alpha);
     state0.extend(slots(n).iter().map(|&s| beta[s]));
-    Point { props, strain: voigt(&strain), dstrain: voigt(&de), state0 }
+    Point { props, strain: voigt(&strain), dstrain: voigt(&de), state0, ..Point::default() }
 }
 
 // The consistent tangent (Simo & Taylor 1985; Simo & Hughes 1998 Box 3.2) is the derivative
@@ -271,8 +247,13 @@ fn min_acoustic(t: &[f64], mu: f64) -> (f64, f64) {
 fn continuum_tangent(h_iso: f64, nu: f64, dir: [f64; 6]) -> Vec<f64> {
     let m = J2::continuum(PointKind::Solid3d).unwrap();
     let props = vec![200_000.0, nu, 250.0, h_iso, 0.0, 0.0, 0.0];
-    let p =
-        Point { props, strain: vec![0.0; 6], dstrain: dir.map(|x| 4e-3 * x).to_vec(), state0: vec![0.0; 13] };
+    let p = Point {
+        props,
+        strain: vec![0.0; 6],
+        dstrain: dir.map(|x| 4e-3 * x).to_vec(),
+        state0: vec![0.0; 13],
+        ..Point::default()
+    };
     let out = run(&m, &p);
     assert_eq!((out.outcome.status, out.outcome.branch), (status::OK, 1), "{}", out.outcome.message_text());
     out.tangent
@@ -316,6 +297,7 @@ fn exhausting_the_yield_stress_fails_the_step() {
         strain: vec![0.0; 6],
         dstrain: vec![big, -0.5 * big, -0.5 * big, 0.0, 0.0, 0.0],
         state0: vec![0.0; 13],
+        ..Point::default()
     };
     let out = run(&m, &p);
     assert_eq!(out.outcome.status, status::FAILED);

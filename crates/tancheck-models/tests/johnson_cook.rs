@@ -8,14 +8,12 @@ use num_complex::Complex64;
 use num_dual::Dual64;
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck_core::driver::Outputs;
 use tancheck_core::routine::{provides, status};
 use tancheck_core::{Model, PointKind, Scalar};
 use tancheck_models::johnson_cook::JcLaw;
 use tancheck_models::{AnyModel, JcTangent, JohnsonCook};
-use tancheck_testkit::call::{
-    dual_dtemp, dual_tangent, model_allocations, model_call, model_complex_tangent, Call,
-};
+use tancheck_testkit::call::{dual_dtemp, dual_tangent, model_allocations, model_complex_tangent};
+use tancheck_testkit::point::{run, Point};
 
 mod common;
 
@@ -40,16 +38,7 @@ fn ofhc_copper() -> Vec<f64> {
 }
 
 fn law(p: &[f64]) -> JcLaw<f64> {
-    JcLaw {
-        a: p[2],
-        b: p[3],
-        n: p[4],
-        c: p[5],
-        m: p[6],
-        t_room: p[7],
-        t_melt: p[8],
-        d: [p[13], p[14], p[15], p[16], p[17]],
-    }
+    JcLaw::from_props(p)
 }
 
 /// |x − printed| within half a unit of the printed value's last digit.
@@ -97,32 +86,6 @@ fn fracture_strain_matches_the_published_values() {
 
 // ---------------------------------------------------------------------------------------
 // Calls with owned arrays, in any scalar type.
-
-#[derive(Clone, Debug)]
-struct Point {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    state0: Vec<f64>,
-    temp: [f64; 2],
-    dtime: f64,
-}
-
-impl Point {
-    /// The call (stress0 zero: the total-form model does not read it).
-    fn call(&self) -> Call {
-        Call::new(&self.props, self.strain.len(), self.state0.len())
-            .strain(&self.strain)
-            .dstrain(&self.dstrain)
-            .state0(&self.state0)
-            .temp(self.temp[0], self.temp[1])
-            .dtime(self.dtime)
-    }
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
-    model_call(m, &p.call(), &p.dstrain, p.temp).expect("sizes match")
-}
 
 /// ∂σ/∂Δε (column-major) and ∂σ/∂ΔT by num-dual.
 fn dual_derivatives<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<f64>) {

@@ -6,13 +6,13 @@
 
 use rand::rngs::StdRng;
 use rand::{Rng, SeedableRng};
-use tancheck_core::driver::Outputs;
 use tancheck_core::routine::status;
 use tancheck_core::{Model, PointKind};
 use tancheck_models::orthotropic::global_stiffness;
 use tancheck_models::ply::{branch, mode};
 use tancheck_models::{Ply, PlyFlaw};
-use tancheck_testkit::call::{model_allocations, model_call, model_complex_tangent, Call};
+use tancheck_testkit::call::model_allocations;
+use tancheck_testkit::point::{complex_tangent, dual_tangent, run, Point};
 
 mod common;
 
@@ -43,40 +43,6 @@ const SL: f64 = 80.0;
 
 // ---------------------------------------------------------------------------------------
 // One call.
-
-#[derive(Clone, Debug)]
-struct Point {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    state0: Vec<f64>,
-    dt: f64,
-}
-
-impl Point {
-    /// The call (stress0 zero: the total-form model does not read it), 20 °C.
-    fn call(&self) -> Call {
-        Call::new(&self.props, self.strain.len(), self.state0.len())
-            .strain(&self.strain)
-            .dstrain(&self.dstrain)
-            .state0(&self.state0)
-            .dtime(self.dt)
-    }
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
-    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
-}
-
-/// ∂σ/∂Δε by num-dual (column-major), and the branch of every dual call.
-fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    tancheck_testkit::call::dual_tangent(m, &p.call())
-}
-
-/// ∂σ/∂Δε by the complex step (Squire & Trapp 1998).
-fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    model_complex_tangent(m, &p.call(), h)
-}
 
 fn rel(a: &[f64], b: &[f64]) -> f64 {
     let d: f64 = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
@@ -162,7 +128,8 @@ fn failure_starts_on_the_hashin_envelope_in_plane_stress_at_any_ply_angle() {
                     strain: vec![0.0; 3],
                     dstrain: e.to_vec(),
                     state0: vec![0.0; 8],
-                    dt: 1.0,
+                    dtime: 1.0,
+                    ..Point::default()
                 };
                 let out = run(&m, &p);
                 assert_eq!(out.outcome.status, status::OK);
@@ -220,7 +187,8 @@ fn failure_starts_at_the_uniaxial_strengths_in_solid_3d() {
             strain: vec![0.0; 6],
             dstrain: e.to_vec(),
             state0: vec![0.0; 8],
-            dt: 1.0,
+            dtime: 1.0,
+            ..Point::default()
         };
         let out = run(&m, &p);
         assert!((out.state[md] - 1.0).abs() < 1e-9, "σ̃ {s:?}: r = {}", out.state[md]);
@@ -250,7 +218,8 @@ fn dissipated<M: Model>(m: &M, props: &[f64], n: usize, k: usize, sign: f64, eps
             strain: strain.clone(),
             dstrain: de.clone(),
             state0: state.clone(),
-            dt: 1.0,
+            dtime: 1.0,
+            ..Point::default()
         };
         let out = run(m, &p);
         assert_eq!(out.outcome.status, status::OK, "{}", out.outcome.message_text());
@@ -321,7 +290,8 @@ fn a_length_that_snaps_back_is_refused_with_the_largest_admissible_length() {
         strain: vec![0.0; 3],
         dstrain: vec![0.0; 3],
         state0: vec![0.0; 8],
-        dt: 1.0,
+        dtime: 1.0,
+        ..Point::default()
     };
     let out = run(&m, &p);
     assert_eq!(out.outcome.status, status::FAILED);
@@ -348,7 +318,8 @@ fn damage_never_decreases_and_the_healing_variant_heals() {
             strain: vec![0.0; 3],
             dstrain: load.to_vec(),
             state0: vec![0.0; 8],
-            dt: 1.0,
+            dtime: 1.0,
+            ..Point::default()
         };
         let loaded = run(&m, &p);
         assert_eq!(loaded.outcome.branch, branch::GROWTH);
@@ -387,7 +358,8 @@ fn the_viscous_update_tends_to_the_rate_independent_one() {
         strain: vec![0.0; 3],
         dstrain: load.to_vec(),
         state0: vec![0.0; 8],
-        dt: 0.01,
+        dtime: 0.01,
+        ..Point::default()
     };
     let inviscid = run(&m, &p);
     let mut last = f64::INFINITY;
@@ -433,7 +405,7 @@ fn random_point(rng: &mut StdRng, kind: PointKind, eta: f64) -> Point {
             state0[4 + m] = if rng.gen_bool(0.5) { 1.0 } else { 0.9 };
         }
     }
-    Point { props, strain, dstrain, state0, dt: rng.gen_range(0.001..0.1) }
+    Point { props, strain, dstrain, state0, dtime: rng.gen_range(0.001..0.1), ..Point::default() }
 }
 
 #[test]
@@ -513,7 +485,14 @@ fn undamaged_tangent_is_the_orthotropic_stiffness() {
     let mut props = t300(0.0);
     props[9..15].copy_from_slice(&[0.3, -1.2, 0.7, 2.0, 0.1, -0.4]);
     let c = global_stiffness(&props).unwrap();
-    let p = Point { props, strain: vec![0.0; 6], dstrain: vec![1e-5; 6], state0: vec![0.0; 8], dt: 1.0 };
+    let p = Point {
+        props,
+        strain: vec![0.0; 6],
+        dstrain: vec![1e-5; 6],
+        state0: vec![0.0; 8],
+        dtime: 1.0,
+        ..Point::default()
+    };
     let out = run(&m, &p);
     assert_eq!(out.outcome.branch, branch::ELASTIC);
     for i in 0..6 {

@@ -14,165 +14,62 @@ use std::path::Path as FsPath;
 
 use anyhow::{Context, Result};
 use tancheck_abi::{build_library, BuildOptions, Library};
-use tancheck_core::block::{
-    self, BlockInfo, BlockReport, BlockRoutine, BlockSettings, Conditions, EnergyRule, RateLaw,
-};
-use tancheck_core::path::{Path, Shape};
+use tancheck_core::block::{self, BlockInfo, BlockReport, BlockRoutine, EnergyRule};
 use tancheck_core::{PointKind, Verdict};
+use tancheck_models::block::worked::{j2_path, j2_settings, jc_path, jc_settings, jc_steel, J2_PROPS};
 
 use super::Row;
 
-/// The worked J2 case of REFERENCES.md (E 200 GPa, ν 0.3, σy 250 MPa, K' 1000, H' 500 MPa).
-const J2: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-/// 4340 steel Johnson–Cook constants (REFERENCES.md, read, secondary) with typical E, ν, T_r,
-/// reference rate, density, heat capacity, χ = 0.9 (common practice) and k_E = 0.3,
-/// G_f = 20 N/mm, d_max = 0.99 for the selftest.
-const STEEL: [f64; 21] = [
-    200_000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44,
-    -2.12, 0.002, 0.61, 0.3, 20.0, 0.99,
-];
+/// One row: the model, the finding expected and how it is checked. Its symbol is the model's
+/// name in the family's source (see [`Family`]).
+type BlockRow = (&'static str, &'static str, Check);
 
-/// One row: its label, the model, the symbol without the language prefix, the finding
-/// expected and the check it gets.
-type BlockRow = (&'static str, &'static str, &'static str, &'static str, Check);
-type Check = fn(&mut dyn BlockRoutine) -> Result<BlockReport>;
-
-const J2_ROWS: [BlockRow; 9] = [
-    ("j2-block", "j2-block", "j2_block", "none", j2_check),
-    (
-        "j2-block-neighbour-state",
-        "j2-block-neighbour-state",
-        "j2_block_neighbour_state",
-        "point-dependence",
-        j2_check,
-    ),
-    (
-        "j2-block-old-stress-energy",
-        "j2-block-old-stress-energy",
-        "j2_block_old_stress_energy",
-        "energy-work-mismatch",
-        j2_check,
-    ),
-    (
-        "j2-block-dissipation-sign",
-        "j2-block-dissipation-sign",
-        "j2_block_dissipation_sign",
-        "dissipation-decreases",
-        j2_check,
-    ),
-    (
-        "j2-block-total-back-stress",
-        "j2-block-total-back-stress",
-        "j2_block_total_back_stress",
-        "refinement-order",
-        j2_check,
-    ),
-    (
-        "j2-block-corrector-sign",
-        "j2-block-corrector-sign",
-        "j2_block_corrector_sign",
-        "stiffer-than-elastic",
-        j2_check,
-    ),
-    (
-        "j2-block-double-correction",
-        "j2-block-double-correction",
-        "j2_block_double_correction",
-        "negative-stiffness",
-        j2_check,
-    ),
-    (
-        "j2-block-midpoint (midpoint rule)",
-        "j2-block-midpoint",
-        "j2_block_midpoint",
-        "none",
-        j2_midpoint_check,
-    ),
-    ("j2-block (midpoint rule)", "j2-block", "j2_block", "energy-work-mismatch", j2_midpoint_check),
-];
-const JC_ROWS: [BlockRow; 7] = [
-    ("johnson-cook-block", "johnson-cook-block", "jc_block", "none", jc_check),
-    (
-        "johnson-cook-block-revived",
-        "johnson-cook-block-revived",
-        "jc_block_revived",
-        "deleted-point-revived",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-unguarded-rate",
-        "johnson-cook-block-unguarded-rate",
-        "jc_block_unguarded_rate",
-        "zero-rate-not-finite",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-wrong-temperature",
-        "johnson-cook-block-wrong-temperature",
-        "jc_block_wrong_temperature",
-        "elastic-response-mismatch",
-        jc_check,
-    ),
-    (
-        "johnson-cook-block-deleted-stress",
-        "johnson-cook-block-deleted-stress",
-        "jc_block_deleted_stress",
-        "deleted-point-stress",
-        jc_check,
-    ),
-    ("johnson-cook-block (250 K)", "johnson-cook-block", "jc_block", "none", jc_cold_check),
-    (
-        "johnson-cook-block-unclipped-temperature",
-        "johnson-cook-block-unclipped-temperature",
-        "jc_block_unclipped_temperature",
-        "non-finite-stiffness",
-        jc_cold_check,
-    ),
-];
-
-fn j2_settings(rule: EnergyRule) -> BlockSettings {
-    BlockSettings {
-        conditions: Conditions {
-            temperature: 293.0,
-            temperature_increment: 0.0,
-            density: 7.85e-9,
-            characteristic_length: 2.0,
-        },
-        state0: vec![0.0; 13],
-        energy_rule: rule,
-        ..BlockSettings::default()
-    }
+/// How a row is checked, and the note its label gets after the model's name.
+#[derive(Clone, Copy)]
+struct Check {
+    run: fn(&mut dyn BlockRoutine) -> Result<BlockReport>,
+    note: &'static str,
 }
 
+const J2: Check = Check { run: j2_check, note: "" };
+const J2_MIDPOINT: Check = Check { run: j2_midpoint_check, note: " (midpoint rule)" };
+const JC: Check = Check { run: jc_check, note: "" };
+const JC_COLD: Check = Check { run: jc_cold_check, note: " (250 K)" };
+/// Below the room temperature, for a flawed row whose model's name says it already.
+const JC_COLD_FLAW: Check = Check { run: jc_cold_check, note: "" };
+
+const J2_ROWS: [BlockRow; 9] = [
+    ("j2-block", "none", J2),
+    ("j2-block-neighbour-state", "point-dependence", J2),
+    ("j2-block-old-stress-energy", "energy-work-mismatch", J2),
+    ("j2-block-dissipation-sign", "dissipation-decreases", J2),
+    ("j2-block-total-back-stress", "refinement-order", J2),
+    ("j2-block-corrector-sign", "stiffer-than-elastic", J2),
+    ("j2-block-double-correction", "negative-stiffness", J2),
+    ("j2-block-midpoint", "none", J2_MIDPOINT),
+    ("j2-block", "energy-work-mismatch", J2_MIDPOINT),
+];
+const JC_ROWS: [BlockRow; 7] = [
+    ("johnson-cook-block", "none", JC),
+    ("johnson-cook-block-revived", "deleted-point-revived", JC),
+    ("johnson-cook-block-unguarded-rate", "zero-rate-not-finite", JC),
+    ("johnson-cook-block-wrong-temperature", "elastic-response-mismatch", JC),
+    ("johnson-cook-block-deleted-stress", "deleted-point-stress", JC),
+    ("johnson-cook-block", "none", JC_COLD),
+    ("johnson-cook-block-unclipped-temperature", "non-finite-stiffness", JC_COLD_FLAW),
+];
+
 fn j2_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
-    let s = j2_settings(EnergyRule::Trapezoid);
-    block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
+    block::run(r, &J2_PROPS, &j2_path(), &j2_settings(EnergyRule::Trapezoid)).map_err(anyhow::Error::msg)
 }
 
 fn j2_midpoint_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
-    let s = j2_settings(EnergyRule::Midpoint);
-    block::run(r, &J2, &Path::ramp(Shape::TensionShear, 6e-3, 6, 3), &s).map_err(anyhow::Error::msg)
+    block::run(r, &J2_PROPS, &j2_path(), &j2_settings(EnergyRule::Midpoint)).map_err(anyhow::Error::msg)
 }
 
 /// Into damage and deletion in uniaxial strain (to ε11 = 0.3) and back, at 200/s, at `temperature`.
 fn jc_check_at(r: &mut dyn BlockRoutine, temperature: f64) -> Result<BlockReport> {
-    let mut path = Path::ramp(Shape::UniaxialStrain, 0.3, 30, 10);
-    for inc in &mut path.increments {
-        inc.dtime = 5e-5;
-    }
-    let s = BlockSettings {
-        conditions: Conditions {
-            temperature,
-            temperature_increment: 0.0,
-            density: 7.83e-9,
-            characteristic_length: 2.0,
-        },
-        state0: vec![0.0; 13],
-        softening: true,
-        rate_law: Some(RateLaw { reference_rate: 1.0, coefficient: 0.014 }),
-        ..BlockSettings::default()
-    };
-    block::run(r, &STEEL, &path, &s).map_err(anyhow::Error::msg)
+    block::run(r, &jc_steel(0.014), &jc_path(), &jc_settings(temperature)).map_err(anyhow::Error::msg)
 }
 
 fn jc_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
@@ -185,35 +82,42 @@ fn jc_cold_check(r: &mut dyn BlockRoutine) -> Result<BlockReport> {
 }
 
 fn row(variant: &str, language: &'static str, expected: &str, r: &BlockReport) -> Row {
-    let found = r.finding().to_string();
-    Row {
-        variant: variant.into(),
+    let verdict = match r.exit_code() {
+        0 => Verdict::Pass,
+        3 => Verdict::RoutineFault,
+        _ => Verdict::TangentFailure,
+    };
+    Row::new(
+        variant,
         language,
-        expected: expected.into(),
-        verdict: match r.exit_code() {
-            0 => Verdict::Pass,
-            3 => Verdict::RoutineFault,
-            _ => Verdict::TangentFailure,
-        },
-        right: found == expected,
-        found,
-        first_increment: r.findings.first().and_then(|f| f.increment),
-    }
+        expected,
+        verdict,
+        r.finding().to_string(),
+        r.findings.first().and_then(|f| f.increment),
+    )
 }
 
-/// The rows of one family, its source's stem and its number of properties.
-type Family = (&'static [BlockRow], &'static str, usize);
+/// The rows of one family, its models' common name, its source's stem (also the symbols'
+/// stem) and its number of properties.
+type Family = (&'static [BlockRow], &'static str, &'static str, usize);
+
+/// A model's symbol without the language prefix: the family's stem, then the rest of the
+/// model's name with `_` for `-` (`johnson-cook-block-revived` → `jc_block_revived`).
+fn symbol_of(model: &str, family_name: &str, stem: &str) -> String {
+    format!("{stem}{}", model.strip_prefix(family_name).unwrap_or(model).replace('-', "_"))
+}
 
 /// The rows, for Rust, C and (when gfortran is there) Fortran; libraries go to `dir`.
 pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row>> {
     let kind = PointKind::Solid3d;
     let mut rows = Vec::new();
-    let families: [Family; 2] = [(&J2_ROWS, "j2_block", 7), (&JC_ROWS, "jc_block", 21)];
-    for (table, _, _) in families {
-        for (label, model, _, expected, check) in table.iter() {
+    let families: [Family; 2] =
+        [(&J2_ROWS, "j2-block", "j2_block", 7), (&JC_ROWS, "johnson-cook-block", "jc_block", 21)];
+    for (table, _, _, _) in families {
+        for (model, expected, check) in table.iter() {
             let mut m =
                 tancheck_models::block::by_name(model, kind).context("a block model of the zoo")??;
-            rows.push(row(label, "Rust", expected, &check(m.as_mut())?));
+            rows.push(row(&format!("{model}{}", check.note), "Rust", expected, &(check.run)(m.as_mut())?));
         }
     }
     let mut languages = vec![("C", "c", "fortran-shim/examples/c/{}.c")];
@@ -221,17 +125,17 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
         languages.push(("Fortran", "f", "fortran-shim/examples/fortran/{}.F90"));
     }
     for (language, prefix, pattern) in languages {
-        for (table, source, nprop) in families {
+        for (table, family_name, source, nprop) in families {
             let lib_path = dir.join(format!("lib{source}_{prefix}.so"));
             let src = root.join(pattern.replace("{}", source));
             build_library(&BuildOptions::new([src], &lib_path))
                 .with_context(|| format!("building the {language} block rows ({source})"))?;
             let lib = Library::open(&lib_path)?;
-            for (label, _, sym, expected, check) in table.iter() {
-                let symbol = format!("{prefix}_{sym}");
+            for (model, expected, check) in table.iter() {
+                let symbol = format!("{prefix}_{}", symbol_of(model, family_name, source));
                 let info = BlockInfo { name: symbol.clone(), ncomp: 6, nstate: 13, nproperties: nprop };
                 let mut r = lib.block_routine(&symbol, info)?;
-                rows.push(row(label, language, expected, &check(&mut r)?));
+                rows.push(row(&format!("{model}{}", check.note), language, expected, &(check.run)(&mut r)?));
             }
         }
     }

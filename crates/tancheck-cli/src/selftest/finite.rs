@@ -15,15 +15,8 @@ use super::Row;
 
 fn row(variant: &str, language: &'static str, expected: &str, r: &FiniteReport) -> Row {
     let found = r.finding.clone().unwrap_or_else(|| "none".into());
-    Row {
-        variant: variant.into(),
-        language,
-        expected: expected.into(),
-        verdict: r.verdict,
-        right: found == expected,
-        found,
-        first_increment: r.increments.iter().find(|i| !i.passed).map(|i| i.increment),
-    }
+    let first = r.increments.iter().find(|i| !i.passed).map(|i| i.increment);
+    Row::new(variant, language, expected, r.verdict, found, first)
 }
 
 /// The routine family of a compiled row: its properties, state size and frame.

@@ -5,12 +5,11 @@
 
 use std::path::Path as FsPath;
 
-use anyhow::{Context, Result};
-use tancheck_abi::{build_library, BuildOptions, Library};
+use anyhow::Result;
 use tancheck_core::path::{Path, Shape};
 use tancheck_core::{check, Caller, PointKind, PointState, Report, Routine, RoutineInfo, Settings};
 
-use super::Row;
+use super::{compiled_examples, report_row, Row};
 
 /// 4340 steel Johnson–Cook constants (REFERENCES.md, read, secondary) with demo elastic,
 /// thermal and damage-free-heating entries: [E, ν, A, B, n, C, m, T_room, T_melt, rate0,
@@ -48,40 +47,20 @@ fn check_jc(routine: &mut dyn Routine) -> Result<Report> {
         .map_err(anyhow::Error::msg)
 }
 
-fn row(variant: &str, language: &'static str, expected: &str, r: &Report) -> Row {
-    let found = r.finding().to_string();
-    Row {
-        variant: variant.into(),
-        language,
-        expected: expected.into(),
-        verdict: r.verdict,
-        right: found == expected,
-        found,
-        first_increment: r.increments.iter().find(|i| !i.passed()).map(|i| i.index),
-    }
-}
-
 /// The rows, for Rust, C and (when gfortran is there) Fortran; libraries go to `dir`.
 pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row>> {
     let kind = PointKind::Solid3d;
     let mut rows = Vec::new();
     for (model, _, expected) in VARIANTS {
         let mut m = tancheck_models::reference(model, kind)?;
-        rows.push(row(model, "Rust", expected, &check_jc(&mut m)?));
+        rows.push(report_row(model, "Rust", expected, &check_jc(&mut m)?));
     }
-    let mut libs = vec![("C", "c", dir.join("libjc_c.so"), "fortran-shim/examples/c/jc.c")];
-    if fortran {
-        libs.push(("Fortran", "f", dir.join("libjc_f.so"), "fortran-shim/examples/fortran/jc.F90"));
-    }
-    for (language, prefix, lib_path, source) in libs {
-        build_library(&BuildOptions::new([root.join(source)], &lib_path))
-            .with_context(|| format!("building the {language} Johnson–Cook rows"))?;
-        let lib = Library::open(&lib_path)?;
+    for (language, prefix, lib) in compiled_examples(dir, root, fortran, "jc", "Johnson–Cook rows")? {
         for (model, sym, expected) in VARIANTS {
             let symbol = format!("{prefix}_{sym}");
             let info = tancheck_models::reference(model, kind)?.info().clone();
             let mut r = lib.routine(&symbol, RoutineInfo { name: symbol.clone(), ..info })?;
-            rows.push(row(model, language, expected, &check_jc(&mut r)?));
+            rows.push(report_row(model, language, expected, &check_jc(&mut r)?));
         }
     }
     Ok(rows)

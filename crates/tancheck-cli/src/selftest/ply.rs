@@ -7,14 +7,13 @@
 
 use std::path::Path as FsPath;
 
-use anyhow::{Context, Result};
-use tancheck_abi::{build_library, BuildOptions, Library};
+use anyhow::Result;
 use tancheck_core::path::{Path, PathIncrement};
 use tancheck_core::probe::{run_suite, ProbeSpec, ProbeStatus};
 use tancheck_core::{check, Caller, Model, PointKind, PointState, Routine, RoutineInfo, Settings, Verdict};
 use tancheck_models::{Ply, PlyFlaw};
 
-use super::Row;
+use super::{compiled_examples, report_row, Row};
 
 /// Demo ply properties (MPa, N/mm, mm): axes at `deg` in the 1-2 plane, L = 0.5, η set per row.
 fn props(eta: f64, deg: f64) -> Vec<f64> {
@@ -86,16 +85,8 @@ fn one(
         &Settings::default(),
     )
     .map_err(anyhow::Error::msg)?;
-    let found = r.finding();
-    Ok(Row {
-        variant: format!("{variant} ({})", if kind == PointKind::PlaneStress { "ps" } else { "3d" }),
-        language,
-        expected: expected.into(),
-        verdict: r.verdict,
-        right: found == expected,
-        found,
-        first_increment: r.increments.iter().find(|i| !i.passed()).map(|i| i.index),
-    })
+    let variant = format!("{variant} ({})", if kind == PointKind::PlaneStress { "ps" } else { "3d" });
+    Ok(report_row(&variant, language, expected, &r))
 }
 
 /// The softening probes' rows: (variant, flaw, probe, expected status). Irreversibility runs
@@ -194,14 +185,7 @@ pub(super) fn rows(dir: &FsPath, root: &FsPath, fortran: bool) -> Result<Vec<Row
             rows.push(probe_row(&mut m, "Rust", variant, probe, expected)?);
         }
     }
-    let mut libs = vec![("C", "c", dir.join("libply_c.so"), "fortran-shim/examples/c/ply.c")];
-    if fortran {
-        libs.push(("Fortran", "f", dir.join("libply_f.so"), "fortran-shim/examples/fortran/ply.F90"));
-    }
-    for (language, prefix, lib_path, source) in libs {
-        build_library(&BuildOptions::new([root.join(source)], &lib_path))
-            .with_context(|| format!("building the {language} ply rows"))?;
-        let lib = Library::open(&lib_path)?;
+    for (language, prefix, lib) in compiled_examples(dir, root, fortran, "ply", "ply rows")? {
         for kind in Ply::KINDS {
             for (variant, flaw, eta, expected) in ROWS {
                 let sym = symbol(prefix, flaw);

@@ -6,11 +6,11 @@
 //!
 //! The flawed variants ([`BlockFlaw`]) of the selftest zoo keep everything else.
 
-use tancheck_core::block::{BlockInfo, BlockInput, BlockModel, BlockOutput};
+use tancheck_core::block::BlockInfo;
 use tancheck_core::routine::status;
 use tancheck_core::{Fault, Model, PointKind, Scalar};
 
-use super::{elastic_response, fail_point, point_update, trapezoid_work};
+use super::{elastic_response, fail_point, point_update, trapezoid_work, At, PointBlock};
 use crate::{ModelError, J2};
 
 /// Deliberate mistakes of the zoo's block rows.
@@ -41,12 +41,7 @@ pub enum BlockFlaw {
 }
 
 /// The J2 block model.
-#[derive(Clone, Debug)]
-pub struct J2Block {
-    point: J2,
-    info: BlockInfo,
-    flaw: BlockFlaw,
-}
+pub type J2Block = PointBlock<J2, BlockFlaw>;
 
 impl J2Block {
     pub const NAME: &'static str = "j2-block";
@@ -101,149 +96,123 @@ impl J2Block {
     }
 }
 
-impl BlockModel for J2Block {
-    fn info(&self) -> &BlockInfo {
-        &self.info
-    }
+block_model!(J2Block);
 
-    fn evaluate<S: Scalar>(
-        &self,
-        input: &BlockInput<'_, S>,
-        output: &mut BlockOutput<'_, S>,
-    ) -> Result<(), Fault> {
+impl J2Block {
+    /// One point of a call (see `block_model!` in the block module).
+    fn point<S: Scalar>(&self, at: At<'_, '_, '_, S>) -> Result<bool, Fault> {
+        let At { input, output, p, c, s } = at;
         let (n, ns) = (self.info.ncomp, self.info.nstate);
         let np = input.npoints();
         let props = input.properties;
-        for p in 0..np {
-            let c = p * n..(p + 1) * n;
-            let s = p * ns..(p + 1) * ns;
-            output.deleted[p] = 0;
-            if input.elastic_response {
-                elastic_response(
-                    props[0],
-                    props[1],
-                    &input.stress_start[c.clone()],
-                    &input.strain_increment[c.clone()],
-                    &mut output.stress[c],
-                );
-                output.state[s.clone()].copy_from_slice(&input.state_start[s]);
-                output.energy[p] = input.energy_start[p];
-                continue;
-            }
-            let from = if self.flaw == BlockFlaw::NeighbourState && p + 1 < np { p + 1 } else { p };
-            let state0 = &input.state_start[from * ns..(from + 1) * ns];
-            let t = input.conditions[p];
-            let de = &input.strain_increment[c.clone()];
-            let outcome = point_update(
-                &self.point,
-                props,
-                input,
-                p,
-                de,
-                input.time_increment,
-                state0,
-                &mut output.stress[c.clone()],
-                &mut output.state[s.clone()],
-            )?;
-            if outcome.status != status::OK {
-                fail_point(output, p, "j2-block: the point update failed");
-                return Ok(());
-            }
-            let s0 = &input.stress_start[c.clone()];
-            match self.flaw {
-                BlockFlaw::TotalBackStress => {
-                    // β_n + ⅔H_kin εp_{n+1} = the return's β + ⅔H_kin εp_n.
-                    for i in 0..n {
-                        let eps_p_n = input.state_start[p * ns + i];
-                        output.state[p * ns + n + 1 + i] += props[6] * (2.0 / 3.0) * eps_p_n;
-                    }
-                }
-                BlockFlaw::CorrectorSign | BlockFlaw::DoubleCorrection => {
-                    let mut trial = [S::zero(); 6];
-                    elastic_response(props[0], props[1], s0, de, &mut trial[..n]);
-                    for (x, t) in output.stress[c.clone()].iter_mut().zip(trial) {
-                        *x = if self.flaw == BlockFlaw::CorrectorSign { t * 2.0 - *x } else { *x * 2.0 - t };
-                    }
-                }
-                _ => {}
-            }
-            let rho = t.density;
-            let old = input.energy_start[p];
-            let work = match self.flaw {
-                BlockFlaw::OldStressEnergy => {
-                    let mut w = S::zero();
-                    for i in 0..n {
-                        w += s0[i] * de[i];
-                    }
-                    w / rho
-                }
-                BlockFlaw::Midpoint => {
-                    // The point update over half the increment from the same start.
-                    let mut half_de = [S::zero(); 6];
-                    for (h, &d) in half_de.iter_mut().zip(de) {
-                        *h = d * 0.5;
-                    }
-                    let mut half = [S::zero(); 6];
-                    let mut half_state = [S::zero(); 13];
-                    point_update(
-                        &self.point,
-                        props,
-                        input,
-                        p,
-                        &half_de[..n],
-                        0.5 * input.time_increment,
-                        &input.state_start[s.clone()],
-                        &mut half[..n],
-                        &mut half_state[..ns],
-                    )?;
-                    let mut w = S::zero();
-                    for i in 0..n {
-                        w += half[i] * de[i];
-                    }
-                    w / rho
-                }
-                _ => trapezoid_work(s0, &output.stress[c.clone()], de, rho),
-            };
-            // Dissipation σy0 Δα / ρ (α is state entry n).
-            let dalpha = output.state[p * ns + n] - input.state_start[p * ns + n];
-            let mut dissipation = props[2] * dalpha / rho;
-            if self.flaw == BlockFlaw::DissipationSign {
-                dissipation = -dissipation;
-            }
-            output.energy[p].internal = old.internal + work;
-            output.energy[p].dissipated = old.dissipated + dissipation;
+        output.deleted[p] = 0;
+        if input.elastic_response {
+            elastic_response(
+                props[0],
+                props[1],
+                &input.stress_start[c.clone()],
+                &input.strain_increment[c.clone()],
+                &mut output.stress[c],
+            );
+            output.state[s.clone()].copy_from_slice(&input.state_start[s]);
+            output.energy[p] = input.energy_start[p];
+            return Ok(true);
         }
-        Ok(())
+        let from = if self.flaw == BlockFlaw::NeighbourState && p + 1 < np { p + 1 } else { p };
+        let state0 = &input.state_start[from * ns..(from + 1) * ns];
+        let t = input.conditions[p];
+        let de = &input.strain_increment[c.clone()];
+        let outcome = point_update(
+            &self.point,
+            props,
+            input,
+            p,
+            de,
+            input.time_increment,
+            state0,
+            &mut output.stress[c.clone()],
+            &mut output.state[s.clone()],
+        )?;
+        if outcome.status != status::OK {
+            fail_point(output, p, "j2-block: the point update failed");
+            return Ok(false);
+        }
+        let s0 = &input.stress_start[c.clone()];
+        match self.flaw {
+            BlockFlaw::TotalBackStress => {
+                // β_n + ⅔H_kin εp_{n+1} = the return's β + ⅔H_kin εp_n.
+                for i in 0..n {
+                    let eps_p_n = input.state_start[p * ns + i];
+                    output.state[p * ns + n + 1 + i] += props[6] * (2.0 / 3.0) * eps_p_n;
+                }
+            }
+            BlockFlaw::CorrectorSign | BlockFlaw::DoubleCorrection => {
+                let mut trial = [S::zero(); 6];
+                elastic_response(props[0], props[1], s0, de, &mut trial[..n]);
+                for (x, t) in output.stress[c.clone()].iter_mut().zip(trial) {
+                    *x = if self.flaw == BlockFlaw::CorrectorSign { t * 2.0 - *x } else { *x * 2.0 - t };
+                }
+            }
+            _ => {}
+        }
+        let rho = t.density;
+        let old = input.energy_start[p];
+        let work = match self.flaw {
+            BlockFlaw::OldStressEnergy => {
+                let mut w = S::zero();
+                for i in 0..n {
+                    w += s0[i] * de[i];
+                }
+                w / rho
+            }
+            BlockFlaw::Midpoint => {
+                // The point update over half the increment from the same start.
+                let mut half_de = [S::zero(); 6];
+                for (h, &d) in half_de.iter_mut().zip(de) {
+                    *h = d * 0.5;
+                }
+                let mut half = [S::zero(); 6];
+                let mut half_state = [S::zero(); 13];
+                point_update(
+                    &self.point,
+                    props,
+                    input,
+                    p,
+                    &half_de[..n],
+                    0.5 * input.time_increment,
+                    &input.state_start[s.clone()],
+                    &mut half[..n],
+                    &mut half_state[..ns],
+                )?;
+                let mut w = S::zero();
+                for i in 0..n {
+                    w += half[i] * de[i];
+                }
+                w / rho
+            }
+            _ => trapezoid_work(s0, &output.stress[c.clone()], de, rho),
+        };
+        // Dissipation σy0 Δα / ρ (α is state entry n).
+        let dalpha = output.state[p * ns + n] - input.state_start[p * ns + n];
+        let mut dissipation = props[2] * dalpha / rho;
+        if self.flaw == BlockFlaw::DissipationSign {
+            dissipation = -dissipation;
+        }
+        output.energy[p].internal = old.internal + work;
+        output.energy[p].dissipated = old.dissipated + dissipation;
+        Ok(true)
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
-    use tancheck_core::block::{BlockModelRoutine, BlockSettings, Conditions, EnergyRule};
-    use tancheck_core::path::{Path, Shape};
-
-    /// The worked J2 case of REFERENCES.md (E 200 GPa, ν 0.3, σy 250 MPa, K' 1000, H' 500 MPa).
-    const PROPS: [f64; 7] = [200_000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-
-    fn settings() -> BlockSettings {
-        BlockSettings {
-            conditions: Conditions {
-                temperature: 293.0,
-                temperature_increment: 0.0,
-                density: 7.85e-9,
-                characteristic_length: 2.0,
-            },
-            state0: vec![0.0; 13],
-            ..BlockSettings::default()
-        }
-    }
+    use crate::block::worked::{j2_path, j2_settings, J2_PROPS};
+    use tancheck_core::block::{BlockModelRoutine, EnergyRule};
 
     fn check_with(flaw: BlockFlaw, rule: EnergyRule) -> tancheck_core::block::BlockReport {
         let mut r = BlockModelRoutine(J2Block::with_flaw(PointKind::Solid3d, flaw).unwrap());
-        let path = Path::ramp(Shape::TensionShear, 6e-3, 6, 3);
-        let s = BlockSettings { energy_rule: rule, ..settings() };
-        tancheck_core::block::run(&mut r, &PROPS, &path, &s).unwrap()
+        tancheck_core::block::run(&mut r, &J2_PROPS, &j2_path(), &j2_settings(rule)).unwrap()
     }
 
     fn check(flaw: BlockFlaw) -> tancheck_core::block::BlockReport {

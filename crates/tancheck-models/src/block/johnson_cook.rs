@@ -23,11 +23,11 @@
 //!
 //! The flawed variants of the zoo ([`JcBlockFlaw`]) keep everything else.
 
-use tancheck_core::block::{BlockInfo, BlockInput, BlockModel, BlockOutput};
+use tancheck_core::block::{BlockInfo, BlockInput, BlockOutput};
 use tancheck_core::routine::status;
 use tancheck_core::{Fault, Model, PointKind, Scalar};
 
-use super::{elastic_response, fail_point, point_update, trapezoid_work};
+use super::{elastic_response, fail_point, point_update, trapezoid_work, At, PointBlock};
 use crate::{JohnsonCook, ModelError};
 
 /// Properties of the point model.
@@ -55,12 +55,8 @@ pub enum JcBlockFlaw {
     UnclippedTemperature,
 }
 
-#[derive(Clone, Debug)]
-pub struct JcBlock {
-    point: JohnsonCook,
-    info: BlockInfo,
-    flaw: JcBlockFlaw,
-}
+/// The Johnson–Cook block model.
+pub type JcBlock = PointBlock<JohnsonCook, JcBlockFlaw>;
 
 impl JcBlock {
     pub const NAME: &'static str = "johnson-cook-block";
@@ -120,163 +116,163 @@ fn equivalent<S: Scalar>(s: &[S]) -> S {
     }
 }
 
-impl BlockModel for JcBlock {
-    fn info(&self) -> &BlockInfo {
-        &self.info
-    }
+block_model!(JcBlock, check_properties);
 
-    fn evaluate<S: Scalar>(
+impl JcBlock {
+    /// The block's own properties are in range; otherwise the call fails at point 0.
+    fn check_properties<S: Scalar>(
         &self,
         input: &BlockInput<'_, S>,
         output: &mut BlockOutput<'_, S>,
-    ) -> Result<(), Fault> {
-        let (n, ns) = (self.info.ncomp, self.info.nstate);
+    ) -> bool {
         let props = input.properties;
         let (k_e, g_f, d_max) = (props[NPOINT], props[NPOINT + 1], props[NPOINT + 2]);
         if !(k_e.re() >= 0.0 && g_f.re() > 0.0 && d_max.re() > 0.0 && d_max.re() <= 1.0) {
             fail_point(output, 0, "johnson-cook-block: needs k_E >= 0, G_f > 0, 0 < d_max <= 1");
-            return Ok(());
+            return false;
         }
+        true
+    }
+
+    /// One point of a call (see `block_model!` in the block module).
+    fn point<S: Scalar>(&self, at: At<'_, '_, '_, S>) -> Result<bool, Fault> {
+        let At { input, output, p, c, s } = at;
+        let (n, ns) = (self.info.ncomp, self.info.nstate);
+        let props = input.properties;
+        let (g_f, d_max) = (props[NPOINT + 1], props[NPOINT + 2]);
         let mut point_props = [S::zero(); NPOINT];
         // Point-model state entries, then the block's.
         let (i_ebar, i_heat) = (n, n + 2);
         let (i_d, i_sy0, i_u, i_del) = (n + 3, n + 4, n + 5, n + 6);
-        for p in 0..input.npoints() {
-            let c = p * n..(p + 1) * n;
-            let s = p * ns..(p + 1) * ns;
-            let t = input.conditions[p];
-            let temperature = t.temperature + t.temperature_increment;
-            let e_t = modulus(props, temperature);
-            let old = &input.state_start[s.clone()];
-            let de = &input.strain_increment[c.clone()];
-            if input.elastic_response {
-                let e_el = if self.flaw == JcBlockFlaw::WrongTemperature {
-                    props[0]
-                } else {
-                    modulus(props, t.temperature)
-                };
-                elastic_response(e_el, props[1], &input.stress_start[c.clone()], de, &mut output.stress[c]);
-                output.state[s.clone()].copy_from_slice(old);
-                output.energy[p] = input.energy_start[p];
-                output.deleted[p] = 0;
-                continue;
-            }
-            let mut was_deleted = old[i_del].re() >= 0.5;
-            let mut revived = [S::zero(); 13];
-            let old =
-                if was_deleted && self.flaw == JcBlockFlaw::Revived && (de[0] + de[1] + de[2]).re() < 0.0 {
-                    // The flaw: compression "closes the crack", clears the damage and brings the
-                    // point back.
-                    was_deleted = false;
-                    revived[..ns].copy_from_slice(old);
-                    for k in [n + 1, i_d, i_sy0, i_u, i_del] {
-                        revived[k] = S::zero();
-                    }
-                    &revived[..ns]
-                } else {
-                    old
-                };
-            if was_deleted {
-                if self.flaw == JcBlockFlaw::DeletedStress {
-                    output.stress[c.clone()].copy_from_slice(&input.stress_start[c]);
-                } else {
-                    output.stress[c].fill(S::zero());
-                }
-                output.state[s.clone()].copy_from_slice(old);
-                output.energy[p] = input.energy_start[p];
-                output.deleted[p] = 1;
-                continue;
-            }
-            point_props.copy_from_slice(&props[..NPOINT]);
-            point_props[0] = e_t;
-            if self.flaw == JcBlockFlaw::UnguardedRate {
-                // ε̇* of the total equivalent strain of the increment, unguarded.
-                let rate = equivalent_strain(de) / (point_props[9] * input.time_increment);
-                let factor = S::one() + point_props[5] * rate.ln();
-                point_props[2] *= factor;
-                point_props[3] *= factor;
-                point_props[5] = S::zero();
-            }
-            let outcome = point_update(
-                &self.point,
-                &point_props,
-                input,
-                p,
-                de,
-                input.time_increment,
-                &old[..n + 3],
-                &mut output.stress[c.clone()],
-                &mut output.state[p * ns..p * ns + n + 3],
-            )?;
-            if outcome.status != status::OK {
-                let text = outcome.message_text();
-                fail_point(
-                    output,
-                    p,
-                    if text.is_empty() { "johnson-cook-block: the point update failed" } else { &text },
-                );
-                return Ok(());
-            }
-            // Progressive damage after initiation (D ≥ 1).
-            let mut d = old[i_d];
-            let mut sy0 = old[i_sy0];
-            let mut u = old[i_u];
-            let mut deleted = false;
-            let new = &output.state[s.clone()];
-            if new[n + 1].re() >= 1.0 {
-                if sy0.re() <= 0.0 {
-                    sy0 = equivalent(&output.stress[c.clone()]);
-                }
-                u += (new[i_ebar] - old[i_ebar]) * t.characteristic_length;
-                let u_f = g_f * 2.0 / sy0;
-                d = (u / u_f).min(S::one());
-                if d.re() >= d_max.re() {
-                    d = S::one();
-                    deleted = true;
-                }
-            }
-            let _ = i_heat;
-            let keep = S::one() - d;
-            for x in &mut output.stress[c.clone()] {
-                *x *= keep;
-            }
-            if self.flaw == JcBlockFlaw::UnclippedTemperature
-                && yielded(&output.state[s.clone()], old, i_ebar)
-            {
-                // 1 − T*ᵐ at a T* below zero on the stress of a yielding point (the point model
-                // clips T* at zero; above zero its own factor applies).
-                let ts = (t.temperature - props[7].re()) / (props[8].re() - props[7].re());
-                if ts < 0.0 {
-                    let factor = S::cst(1.0 - ts.powf(props[6].re()));
-                    for x in &mut output.stress[c.clone()] {
-                        *x *= factor;
-                    }
-                }
-            }
-            if deleted && self.flaw == JcBlockFlaw::DeletedStress {
-                output.stress[c.clone()].copy_from_slice(&input.stress_start[c.clone()]);
-            }
-            let st = &mut output.state[s.clone()];
-            st[i_d] = d;
-            st[i_sy0] = sy0;
-            st[i_u] = u;
-            st[i_del] = if deleted { S::one() } else { S::zero() };
-            output.deleted[p] = i32::from(deleted);
-            // Energies per unit mass.
-            let rho = t.density;
-            let work = trapezoid_work(&input.stress_start[c.clone()], &output.stress[c.clone()], de, rho);
-            let internal = input.energy_start[p].internal + work;
-            let mut stored = S::zero();
-            if !deleted {
-                for (i, &d) in de.iter().enumerate() {
-                    let elastic = input.strain[p * n + i] + d - output.state[p * ns + i];
-                    stored += output.stress[p * n + i] * elastic * 0.5;
-                }
-            }
-            output.energy[p].internal = internal;
-            output.energy[p].dissipated = internal - stored / rho;
+        let t = input.conditions[p];
+        let temperature = t.temperature + t.temperature_increment;
+        let e_t = modulus(props, temperature);
+        let old = &input.state_start[s.clone()];
+        let de = &input.strain_increment[c.clone()];
+        if input.elastic_response {
+            let e_el = if self.flaw == JcBlockFlaw::WrongTemperature {
+                props[0]
+            } else {
+                modulus(props, t.temperature)
+            };
+            elastic_response(e_el, props[1], &input.stress_start[c.clone()], de, &mut output.stress[c]);
+            output.state[s.clone()].copy_from_slice(old);
+            output.energy[p] = input.energy_start[p];
+            output.deleted[p] = 0;
+            return Ok(true);
         }
-        Ok(())
+        let mut was_deleted = old[i_del].re() >= 0.5;
+        let mut revived = [S::zero(); 13];
+        let old = if was_deleted && self.flaw == JcBlockFlaw::Revived && (de[0] + de[1] + de[2]).re() < 0.0 {
+            // The flaw: compression "closes the crack", clears the damage and brings the
+            // point back.
+            was_deleted = false;
+            revived[..ns].copy_from_slice(old);
+            for k in [n + 1, i_d, i_sy0, i_u, i_del] {
+                revived[k] = S::zero();
+            }
+            &revived[..ns]
+        } else {
+            old
+        };
+        if was_deleted {
+            if self.flaw == JcBlockFlaw::DeletedStress {
+                output.stress[c.clone()].copy_from_slice(&input.stress_start[c]);
+            } else {
+                output.stress[c].fill(S::zero());
+            }
+            output.state[s.clone()].copy_from_slice(old);
+            output.energy[p] = input.energy_start[p];
+            output.deleted[p] = 1;
+            return Ok(true);
+        }
+        point_props.copy_from_slice(&props[..NPOINT]);
+        point_props[0] = e_t;
+        if self.flaw == JcBlockFlaw::UnguardedRate {
+            // ε̇* of the total equivalent strain of the increment, unguarded.
+            let rate = equivalent_strain(de) / (point_props[9] * input.time_increment);
+            let factor = S::one() + point_props[5] * rate.ln();
+            point_props[2] *= factor;
+            point_props[3] *= factor;
+            point_props[5] = S::zero();
+        }
+        let outcome = point_update(
+            &self.point,
+            &point_props,
+            input,
+            p,
+            de,
+            input.time_increment,
+            &old[..n + 3],
+            &mut output.stress[c.clone()],
+            &mut output.state[p * ns..p * ns + n + 3],
+        )?;
+        if outcome.status != status::OK {
+            let text = outcome.message_text();
+            fail_point(
+                output,
+                p,
+                if text.is_empty() { "johnson-cook-block: the point update failed" } else { &text },
+            );
+            return Ok(false);
+        }
+        // Progressive damage after initiation (D ≥ 1).
+        let mut d = old[i_d];
+        let mut sy0 = old[i_sy0];
+        let mut u = old[i_u];
+        let mut deleted = false;
+        let new = &output.state[s.clone()];
+        if new[n + 1].re() >= 1.0 {
+            if sy0.re() <= 0.0 {
+                sy0 = equivalent(&output.stress[c.clone()]);
+            }
+            u += (new[i_ebar] - old[i_ebar]) * t.characteristic_length;
+            let u_f = g_f * 2.0 / sy0;
+            d = (u / u_f).min(S::one());
+            if d.re() >= d_max.re() {
+                d = S::one();
+                deleted = true;
+            }
+        }
+        let _ = i_heat;
+        let keep = S::one() - d;
+        for x in &mut output.stress[c.clone()] {
+            *x *= keep;
+        }
+        if self.flaw == JcBlockFlaw::UnclippedTemperature && yielded(&output.state[s.clone()], old, i_ebar) {
+            // 1 − T*ᵐ at a T* below zero on the stress of a yielding point (the point model
+            // clips T* at zero; above zero its own factor applies).
+            let ts = (t.temperature - props[7].re()) / (props[8].re() - props[7].re());
+            if ts < 0.0 {
+                let factor = S::cst(1.0 - ts.powf(props[6].re()));
+                for x in &mut output.stress[c.clone()] {
+                    *x *= factor;
+                }
+            }
+        }
+        if deleted && self.flaw == JcBlockFlaw::DeletedStress {
+            output.stress[c.clone()].copy_from_slice(&input.stress_start[c.clone()]);
+        }
+        let st = &mut output.state[s.clone()];
+        st[i_d] = d;
+        st[i_sy0] = sy0;
+        st[i_u] = u;
+        st[i_del] = if deleted { S::one() } else { S::zero() };
+        output.deleted[p] = i32::from(deleted);
+        // Energies per unit mass.
+        let rho = t.density;
+        let work = trapezoid_work(&input.stress_start[c.clone()], &output.stress[c.clone()], de, rho);
+        let internal = input.energy_start[p].internal + work;
+        let mut stored = S::zero();
+        if !deleted {
+            for (i, &d) in de.iter().enumerate() {
+                let elastic = input.strain[p * n + i] + d - output.state[p * ns + i];
+                stored += output.stress[p * n + i] * elastic * 0.5;
+            }
+        }
+        output.energy[p].internal = internal;
+        output.energy[p].dissipated = internal - stored / rho;
+        Ok(true)
     }
 }
 

@@ -9,17 +9,77 @@
 //! - [`JcBlock`]: Johnson–Cook plasticity (rate, thermal softening, adiabatic heating), damage
 //!   initiation, progressive damage over the characteristic length and deletion, the block form
 //!   of [`crate::JohnsonCook`]; with a [`JcBlockFlaw`] one of the flawed zoo rows.
+//! - [`worked`]: the worked cases the tests and the selftest run these models on.
+//!
+//! Both are a [`PointBlock`] (a point model and a flaw); `block_model!` writes their
+//! loop over the points once, and each updates one point (`At`).
+
+/// `impl BlockModel` for a [`PointBlock`] whose inherent `point` updates one
+/// point (`Ok(false)`: the call failed there, stop): the loop over the points written once for
+/// every block model. With `$check`, the inherent `$check(input, output)` runs first (`false`:
+/// the call failed as a whole).
+macro_rules! block_model {
+    ($model:ty $(, $check:ident)?) => {
+        impl tancheck_core::block::BlockModel for $model {
+            fn info(&self) -> &tancheck_core::block::BlockInfo {
+                &self.info
+            }
+
+            fn evaluate<S: tancheck_core::Scalar>(
+                &self,
+                input: &tancheck_core::block::BlockInput<'_, S>,
+                output: &mut tancheck_core::block::BlockOutput<'_, S>,
+            ) -> Result<(), tancheck_core::Fault> {
+                $(if !self.$check(input, output) {
+                    return Ok(());
+                })?
+                let (n, ns) = (self.info.ncomp, self.info.nstate);
+                for p in 0..input.npoints() {
+                    let (c, s) = (p * n..(p + 1) * n, p * ns..(p + 1) * ns);
+                    if !self.point($crate::block::At { input, output: &mut *output, p, c, s })? {
+                        break;
+                    }
+                }
+                Ok(())
+            }
+        }
+    };
+}
 
 pub mod j2;
 pub mod johnson_cook;
+pub mod worked;
 
 pub use j2::{BlockFlaw, J2Block};
 pub use johnson_cook::{JcBlock, JcBlockFlaw};
 
-use tancheck_core::block::{block_status, BlockInput, BlockModelRoutine, BlockOutput, BlockRoutine};
+use std::ops::Range;
+
+use tancheck_core::block::{
+    block_status, BlockInfo, BlockInput, BlockModelRoutine, BlockOutput, BlockRoutine,
+};
 use tancheck_core::{CallInput, CallOutput, Fault, Model, Outcome, PointKind, Scalar};
 
 use crate::ModelError;
+
+/// A block model over the point model `M` with the zoo flaw `F` of its row: the J2 and
+/// Johnson–Cook blocks are both of this shape (the loop over the points: `block_model!`).
+#[derive(Clone, Debug)]
+pub struct PointBlock<M, F> {
+    point: M,
+    info: BlockInfo,
+    flaw: F,
+}
+
+/// One point of a block call: the call's arrays, the point's index `p`, its stress components
+/// `c` and its state entries `s` in them.
+pub(crate) struct At<'a, 'i, 'o, S> {
+    pub(crate) input: &'a BlockInput<'i, S>,
+    pub(crate) output: &'a mut BlockOutput<'o, S>,
+    pub(crate) p: usize,
+    pub(crate) c: Range<usize>,
+    pub(crate) s: Range<usize>,
+}
 
 /// Names of the block models, as [`by_name`] accepts them.
 pub const NAMES: [&str; 14] = [

@@ -21,10 +21,10 @@
 //! exact derivative of the return with that of the trial stress; num-dual confirms it.
 
 use tancheck_core::finite::mat3::{self, Mat3};
-use tancheck_core::finite::{
-    FiniteInfo, FiniteInput, FiniteModel, FiniteOutput, Frame, StressMeasure, TangentMeasure,
-};
+use tancheck_core::finite::{FiniteInfo, FiniteInput, FiniteOutput, Frame, StressMeasure, TangentMeasure};
 use tancheck_core::{Fault, Scalar};
+
+use crate::call::finite_model;
 
 use crate::tensor::lame;
 
@@ -104,12 +104,11 @@ fn skew<S: Scalar>(a: &Mat3<S>) -> Mat3<S> {
     mat3::scale(&mat3::sub(a, &mat3::transpose(a)), S::cst(0.5))
 }
 
-impl FiniteModel for HypoJaumann {
-    fn info(&self) -> &FiniteInfo {
-        &self.info
-    }
+finite_model!(HypoJaumann);
 
-    fn evaluate<S: Scalar>(
+impl HypoJaumann {
+    /// One call (see [`finite_model`]).
+    fn update<S: Scalar>(
         &self,
         input: &FiniteInput<'_, S>,
         out: &mut FiniteOutput<'_, S>,

@@ -20,11 +20,11 @@
 
 use tancheck_core::finite::mat3::{self, Mat3};
 use tancheck_core::finite::measure::convert;
-use tancheck_core::finite::{
-    FiniteInfo, FiniteInput, FiniteModel, FiniteOutput, Frame, StressMeasure, TangentMeasure,
-};
+use tancheck_core::finite::{FiniteInfo, FiniteInput, FiniteOutput, Frame, StressMeasure, TangentMeasure};
 use tancheck_core::routine::{provides, status};
 use tancheck_core::{Fault, Scalar};
+
+use crate::call::finite_model;
 
 use super::logexp::{eigen_sym, exp_sym, half_log_derivative, log_spd};
 
@@ -90,12 +90,11 @@ impl J2Log {
     }
 }
 
-impl FiniteModel for J2Log {
-    fn info(&self) -> &FiniteInfo {
-        &self.info
-    }
+finite_model!(J2Log);
 
-    fn evaluate<S: Scalar>(
+impl J2Log {
+    /// One call (see [`finite_model`]).
+    fn update<S: Scalar>(
         &self,
         input: &FiniteInput<'_, S>,
         out: &mut FiniteOutput<'_, S>,

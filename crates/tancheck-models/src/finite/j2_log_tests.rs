@@ -4,10 +4,10 @@
 
 use num_dual::Dual64;
 use tancheck_core::finite::mat3::{self, Mat3};
-use tancheck_core::finite::numeric::{map_back, perturbation, quantity};
-use tancheck_core::finite::{FiniteInput, FiniteModel, FiniteOutput, StressMeasure, TangentMeasure};
+use tancheck_core::finite::{FiniteModel, StressMeasure, TangentMeasure};
 use tancheck_core::{CallInput, CallOutput, Model, Outcome, PointKind, Scalar};
 
+use super::tests::{call_at, dual_tangent_of, rel};
 use super::J2Log;
 use crate::j2::J2;
 
@@ -15,57 +15,15 @@ const PROPS: [f64; 4] = [200_000.0, 0.3, 250.0, 1000.0];
 
 /// One call in scalar S: stress, state, tangent, branch.
 fn call<S: Scalar>(m: &J2Log, f0: &Mat3<S>, f1: &Mat3<S>, st0: &[S]) -> ([S; 6], Vec<S>, Vec<S>, i32) {
-    let props = PROPS.map(S::cst);
-    let (f0v, f1v) = (mat3::to_flat(f0), mat3::to_flat(f1));
-    let rot = mat3::to_flat(&mat3::identity::<S>());
-    let input = FiniteInput {
-        properties: &props,
-        f0: &f0v,
-        f1: &f1v,
-        rotation: &rot,
-        temperature: [S::zero(); 2],
-        stress0: &[S::zero(); 6],
-        state0: st0,
-        time: [0.0, 1.0],
-        increment: 1,
-    };
-    let (mut stress, mut state, mut tangent) = ([S::zero(); 6], vec![S::zero(); 7], vec![S::zero(); 81]);
-    let (mut energy, mut outcome) = ([S::zero(); 2], Outcome::default());
-    let mut out = FiniteOutput {
-        stress: &mut stress,
-        state: &mut state,
-        tangent: &mut tangent,
-        energy: &mut energy,
-        outcome: &mut outcome,
-    };
-    m.evaluate(&input, &mut out).unwrap();
+    let (stress, state, tangent, outcome) =
+        call_at(m, &PROPS.map(S::cst), f0, f1, &mat3::identity::<S>(), &[S::zero(); 6], st0);
     assert_eq!(outcome.status, 0);
     (stress, state, tangent, outcome.branch)
 }
 
 fn dual_tangent(model: &J2Log, m: TangentMeasure, f0: &Mat3<f64>, f1: &Mat3<f64>, st0: &[f64]) -> Vec<f64> {
-    let n = m.size();
-    let mut out = vec![0.0; n * n];
-    for b in 0..n {
-        let dir = perturbation(m, f1, b);
-        let mut fd = mat3::lift::<Dual64>(f1);
-        for i in 0..3 {
-            for j in 0..3 {
-                fd[i][j].eps = dir[i][j];
-            }
-        }
-        let st: Vec<Dual64> = st0.iter().map(|&x| Dual64::from_re(x)).collect();
-        let (s, _, _, _) = call(model, &mat3::lift(f0), &fd, &st);
-        let q = quantity(m, &fd, &model.info().stress.to_kirchhoff(&s, mat3::det(&fd)));
-        let col = map_back(m, f1, &q.map(|x| x.eps));
-        out[n * b..n * b + n].copy_from_slice(&col[..n]);
-    }
-    out
-}
-
-fn rel(a: &[f64], b: &[f64]) -> f64 {
-    let d: f64 = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
-    d / b.iter().map(|y| y * y).sum::<f64>().sqrt()
+    let st: Vec<Dual64> = st0.iter().map(|&x| Dual64::from_re(x)).collect();
+    dual_tangent_of(m, f1, model.info().stress, |fd| call(model, &mat3::lift(f0), fd, &st).0)
 }
 
 /// A plastic start state: the model's own state after a rotated stretch-and-shear.

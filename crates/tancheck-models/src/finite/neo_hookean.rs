@@ -12,10 +12,10 @@
 
 use tancheck_core::finite::mat3::{self, Mat3};
 use tancheck_core::finite::measure::convert;
-use tancheck_core::finite::{
-    FiniteInfo, FiniteInput, FiniteModel, FiniteOutput, Frame, StressMeasure, TangentMeasure,
-};
+use tancheck_core::finite::{FiniteInfo, FiniteInput, FiniteOutput, Frame, StressMeasure, TangentMeasure};
 use tancheck_core::{Fault, Scalar};
+
+use crate::call::finite_model;
 
 use crate::tensor::lame;
 
@@ -101,12 +101,11 @@ impl NeoHookean {
     }
 }
 
-impl FiniteModel for NeoHookean {
-    fn info(&self) -> &FiniteInfo {
-        &self.info
-    }
+finite_model!(NeoHookean);
 
-    fn evaluate<S: Scalar>(
+impl NeoHookean {
+    /// One call (see [`finite_model`]).
+    fn update<S: Scalar>(
         &self,
         input: &FiniteInput<'_, S>,
         out: &mut FiniteOutput<'_, S>,

@@ -20,27 +20,39 @@ const ALPHA0: f64 = 0.01;
 /// (and σy0, H for a plastic model); its state starts at α = [`ALPHA0`].
 fn call<S: Scalar, M: FiniteModel>(m: &M, f0: &Mat3<S>, f1: &Mat3<S>, s0: &[S; 6]) -> ([S; 6], Vec<S>) {
     let props = [E, NU, SY0, H].map(S::cst);
-    let props = &props[..m.info().nproperties];
     let state0 = vec![S::cst(ALPHA0); m.info().nstate];
-    let mut state = vec![S::zero(); m.info().nstate];
-    let f0v = mat3::to_flat(f0);
-    let f1v = mat3::to_flat(f1);
-    let rot = mat3::to_flat(&m.info().frame.increment(f0, f1));
+    let rot = m.info().frame.increment(f0, f1);
+    let (stress, _, tangent, _) = call_at(m, &props[..m.info().nproperties], f0, f1, &rot, s0, &state0);
+    (stress, tangent)
+}
+
+/// One call of a finite model in scalar S from (F₀, τ₀, state) to F₁ with the rotation
+/// increment `rot`: stress, state, tangent and outcome. The arrays of one call written once for
+/// this module's tests and the finite J2 model's.
+pub(super) fn call_at<S: Scalar, M: FiniteModel>(
+    m: &M,
+    props: &[S],
+    f0: &Mat3<S>,
+    f1: &Mat3<S>,
+    rot: &Mat3<S>,
+    s0: &[S; 6],
+    state0: &[S],
+) -> ([S; 6], Vec<S>, Vec<S>, Outcome) {
+    let (f0v, f1v, rotv) = (mat3::to_flat(f0), mat3::to_flat(f1), mat3::to_flat(rot));
     let input = FiniteInput {
         properties: props,
         f0: &f0v,
         f1: &f1v,
-        rotation: &rot,
+        rotation: &rotv,
         temperature: [S::zero(); 2],
         stress0: s0,
-        state0: &state0,
+        state0,
         time: [0.0, 1.0],
         increment: 1,
     };
-    let mut stress = [S::zero(); 6];
-    let mut tangent = vec![S::zero(); 81];
-    let mut energy = [S::zero(); 2];
-    let mut outcome = Outcome::default();
+    let (mut stress, mut state, mut tangent) =
+        ([S::zero(); 6], vec![S::zero(); m.info().nstate], vec![S::zero(); 81]);
+    let (mut energy, mut outcome) = ([S::zero(); 2], Outcome::default());
     let mut out = FiniteOutput {
         stress: &mut stress,
         state: &mut state,
@@ -49,7 +61,7 @@ fn call<S: Scalar, M: FiniteModel>(m: &M, f0: &Mat3<S>, f1: &Mat3<S>, s0: &[S; 6
         outcome: &mut outcome,
     };
     m.evaluate(&input, &mut out).unwrap();
-    (stress, tangent)
+    (stress, state, tangent, outcome)
 }
 
 /// The tangent in measure `m` by num-dual: one dual direction per column, the measure's
@@ -61,8 +73,21 @@ fn dual_tangent<M: FiniteModel>(
     f1: &Mat3<f64>,
     s0: &[f64; 6],
 ) -> Vec<f64> {
+    dual_tangent_of(m, f1, model.info().stress, |fd| {
+        call(model, &mat3::lift(f0), fd, &s0.map(Dual64::from_re)).0
+    })
+}
+
+/// The tangent in measure `m` of a stress (in measure `sm`) as a function of F₁, by num-dual:
+/// one dual direction per column. The column loop written once for this module's tests and
+/// the finite J2 model's.
+pub(super) fn dual_tangent_of(
+    m: TangentMeasure,
+    f1: &Mat3<f64>,
+    sm: StressMeasure,
+    stress: impl Fn(&Mat3<Dual64>) -> [Dual64; 6],
+) -> Vec<f64> {
     let n = m.size();
-    let sm = model.info().stress;
     let mut out = vec![0.0; n * n];
     for b in 0..n {
         let dir = perturbation(m, f1, b);
@@ -72,15 +97,15 @@ fn dual_tangent<M: FiniteModel>(
                 fd[i][j].eps = dir[i][j];
             }
         }
-        let (s, _) = call(model, &mat3::lift(f0), &fd, &s0.map(Dual64::from_re));
-        let q = quantity(m, &fd, &sm.to_kirchhoff(&s, mat3::det(&fd)));
+        let q = quantity(m, &fd, &sm.to_kirchhoff(&stress(&fd), mat3::det(&fd)));
         let col = map_back(m, f1, &q.map(|x| x.eps));
         out[n * b..n * b + n].copy_from_slice(&col[..n]);
     }
     out
 }
 
-fn rel(a: &[f64], b: &[f64]) -> f64 {
+/// Relative error |a − b| / |b| (both test modules').
+pub(super) fn rel(a: &[f64], b: &[f64]) -> f64 {
     let d: f64 = a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
     let n: f64 = b.iter().map(|y| y * y).sum::<f64>().sqrt();
     d / n

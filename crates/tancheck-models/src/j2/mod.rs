@@ -200,12 +200,7 @@ impl J2 {
         let two_mu = p.mu * 2.0;
 
         if f_tr.re() <= 0.0 {
-            for (i, &slot) in slots.iter().enumerate() {
-                output.stress[i] = sigma_tr[slot];
-            }
-            output.state.copy_from_slice(input.state0);
-            let c = isotropic_matrix(p.lambda, p.mu);
-            write_tangent(&c, slots, output.tangent);
+            elastic_end(&sigma_tr, p.lambda, p.mu, slots, input, output);
             finish(output, &p, input);
             succeed(output, 0, tancheck_core::routine::provides::ENERGY);
             return;
@@ -222,10 +217,6 @@ impl J2 {
             return;
         };
 
-        let mut nrm = [S::zero(); 6];
-        for k in 0..6 {
-            nrm[k] = xi[k] / norm;
-        }
         let alpha = alpha_n + dgamma * r23;
         // With softening (K' < 0) a large step can take K(α_{n+1}) to zero or below: then
         // ξ_{n+1} = √(2/3) K(α_{n+1}) n would point against n, and the root of g is no return.
@@ -233,11 +224,8 @@ impl J2 {
             fail(output, "j2: softening takes the yield stress K(alpha) to zero in this increment");
             return;
         }
+        let nrm = plastic_correction(&sigma_tr, &xi, norm, two_mu, dgamma, eps_p_n, slots, output);
         for (i, &slot) in slots.iter().enumerate() {
-            output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
-            // Engineering shear: the plastic shear strain γp = 2 εp.
-            let deps = if is_shear_slot(slot) { dgamma * nrm[slot] * 2.0 } else { dgamma * nrm[slot] };
-            output.state[i] = eps_p_n[i] + deps;
             output.state[n + 1 + i] = beta_n_v[i] + p.h_kin * (2.0 / 3.0) * dgamma * nrm[slot];
         }
         output.state[n] = alpha;
@@ -286,6 +274,50 @@ pub(crate) fn trial_state<S: Scalar>(
         xi[k] = dev[k] - beta_n[k];
     }
     (sigma_tr, xi, norm_sq(&xi).sqrt_or_zero())
+}
+
+/// The elastic ending of a radial return (J2 and Johnson–Cook): σ = σ_tr on the routine's
+/// slots, the start state kept, the isotropic elastic tangent.
+pub(crate) fn elastic_end<S: Scalar>(
+    sigma_tr: &[S; 6],
+    lambda: S,
+    mu: S,
+    slots: &[usize],
+    input: &CallInput<'_, S>,
+    output: &mut CallOutput<'_, S>,
+) {
+    for (i, &slot) in slots.iter().enumerate() {
+        output.stress[i] = sigma_tr[slot];
+    }
+    output.state.copy_from_slice(input.state0);
+    write_tangent(&isotropic_matrix(lambda, mu), slots, output.tangent);
+}
+
+/// The plastic correction of a radial return (J2 and Johnson–Cook): the flow direction
+/// n = ξ_tr/‖ξ_tr‖, then σ = σ_tr − 2μ Δγ n and εp = εp_n + Δγ n on the routine's slots
+/// (the first entries of the state); returns n.
+#[allow(clippy::too_many_arguments)]
+pub(crate) fn plastic_correction<S: Scalar>(
+    sigma_tr: &[S; 6],
+    xi: &[S; 6],
+    norm: S,
+    two_mu: S,
+    dgamma: S,
+    eps_p_n: &[S],
+    slots: &[usize],
+    output: &mut CallOutput<'_, S>,
+) -> [S; 6] {
+    let mut nrm = [S::zero(); 6];
+    for k in 0..6 {
+        nrm[k] = xi[k] / norm;
+    }
+    for (i, &slot) in slots.iter().enumerate() {
+        output.stress[i] = sigma_tr[slot] - two_mu * dgamma * nrm[slot];
+        // Engineering shear: the plastic shear strain γp = 2 εp.
+        let deps = if is_shear_slot(slot) { dgamma * nrm[slot] * 2.0 } else { dgamma * nrm[slot] };
+        output.state[i] = eps_p_n[i] + deps;
+    }
+    nrm
 }
 
 /// Newton on the radial-return condition g(Δγ) = ‖ξ_tr‖ − c_lin Δγ − R(Δγ) = 0, where

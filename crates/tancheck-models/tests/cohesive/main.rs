@@ -12,7 +12,8 @@ use tancheck_core::routine::{provides, status};
 use tancheck_core::{Model, PointKind, Scalar};
 use tancheck_models::cohesive::{branch, mode_mix};
 use tancheck_models::{AnyModel, Cohesive, CohesiveFlaw};
-use tancheck_testkit::call::{model_allocations, model_call, model_complex_tangent, Call};
+use tancheck_testkit::call::model_allocations;
+use tancheck_testkit::point::{complex_tangent, dual_tangent, run, Point};
 use tancheck_testkit::tangent::{matrix_error, rel_or_exact};
 
 // ---------------------------------------------------------------------------------------
@@ -27,43 +28,15 @@ mod random_states;
 // ---------------------------------------------------------------------------------------
 // One call with owned arrays, in any scalar type.
 
-#[derive(Clone, Debug)]
-struct Point {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    state0: [f64; 2],
-}
-
-impl Point {
-    /// Separation `sep` reached from zero in one increment, from the state [d, G_d].
-    fn at(props: &[f64], sep: &[f64], state0: [f64; 2]) -> Point {
-        Point { props: props.to_vec(), strain: vec![0.0; sep.len()], dstrain: sep.to_vec(), state0 }
+/// Separation `sep` reached from zero in one increment, from the state [d, G_d].
+fn point_at(props: &[f64], sep: &[f64], state0: [f64; 2]) -> Point {
+    Point {
+        props: props.to_vec(),
+        strain: vec![0.0; sep.len()],
+        dstrain: sep.to_vec(),
+        state0: state0.to_vec(),
+        ..Point::default()
     }
-}
-
-impl Point {
-    /// The call (stress0 zero: the total-form model does not read it), 20 °C.
-    fn call(&self) -> Call {
-        Call::new(&self.props, self.strain.len(), 2)
-            .strain(&self.strain)
-            .dstrain(&self.dstrain)
-            .state0(&self.state0)
-    }
-}
-
-fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
-    model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("sizes match")
-}
-
-/// ∂t/∂Δδ by num-dual (column-major), and the branch of every dual call.
-fn dual_tangent<M: Model>(m: &M, p: &Point) -> (Vec<f64>, Vec<i32>) {
-    tancheck_testkit::call::dual_tangent(m, &p.call())
-}
-
-/// ∂t/∂Δδ by the complex step (Squire & Trapp 1998).
-fn complex_tangent<M: Model>(m: &M, p: &Point, h: f64) -> Vec<f64> {
-    model_complex_tangent(m, &p.call(), h)
 }
 
 fn norm(v: impl Iterator<Item = f64>) -> f64 {

@@ -54,7 +54,7 @@ fn branches_change_at_the_printed_separations() {
         let open = dir[0] > 0.0;
         let lam_dir = norm(dir.iter().enumerate().map(|(i, x)| if i == 0 && !open { 0.0 } else { *x }));
         let sep = |lam: f64| dir[..n].iter().map(|x| x * lam / lam_dir).collect::<Vec<f64>>();
-        let branch_at = |lam: f64| run(&m, &Point::at(&AS4_PEEK, &sep(lam), [0.0, 0.0])).outcome.branch;
+        let branch_at = |lam: f64| run(&m, &point_at(&AS4_PEEK, &sep(lam), [0.0, 0.0])).outcome.branch;
         // δ₀ = N/K is exact for the pure modes; the β = 1 onset and every δ_f are printed to 5
         // digits: step off by one unit (β = 1 onset) or two units of the last digit.
         let (u0, uf) = (if d0 == 8.8345e-5 { 1e-9 } else { 1e-12 }, if df == 0.03438 { 2e-5 } else { 2e-6 });
@@ -86,7 +86,8 @@ fn proportional_path(kind: PointKind, dir: &[f64], s_end: f64, steps: usize) -> 
                 props: AS4_PEEK.to_vec(),
                 strain: strain.clone(),
                 dstrain: dstrain.clone(),
-                state0: state,
+                state0: state.to_vec(),
+                ..Point::default()
             },
         );
         assert_eq!(out.outcome.status, status::OK);
@@ -149,11 +150,11 @@ fn area_under_the_curve_is_the_toughness() {
     }
     // The peak traction of mode I is N, reached at δ₀ = N/K (the onset of the bilinear law).
     let m = Cohesive::new(PointKind::Cohesive2d).unwrap();
-    let out = run(&m, &Point::at(&AS4_PEEK, &[8.0e-5, 0.0], [0.0, 0.0]));
+    let out = run(&m, &point_at(&AS4_PEEK, &[8.0e-5, 0.0], [0.0, 0.0]));
     assert!((out.stress[0] - 80.0).abs() <= 1e-9 && out.outcome.branch == branch::ELASTIC);
     // Dissipation is exact for a proportional path (∫ ½ K λ² dd along the damage surface):
     // one increment straight to failure dissipates all of G_Ic.
-    let out = run(&m, &Point::at(&AS4_PEEK, &[0.03, 0.0], [0.0, 0.0]));
+    let out = run(&m, &point_at(&AS4_PEEK, &[0.03, 0.0], [0.0, 0.0]));
     assert!((out.state[1] - mode_mix(&AS4_PEEK, 0.0).toughness).abs() <= 1e-15);
 }
 
@@ -167,7 +168,7 @@ fn damage_is_irreversible_and_contact_uses_the_penalty() {
     let k = AS4_PEEK[0];
     let (d0m, dfm, _) = published(&AS4_PEEK, Some(0.0));
     let lam = lambda_of_damage(d0m, dfm, 0.5);
-    let loaded = run(&m, &Point::at(&AS4_PEEK, &[lam, 0.0, 0.0], [0.0, 0.0]));
+    let loaded = run(&m, &point_at(&AS4_PEEK, &[lam, 0.0, 0.0], [0.0, 0.0]));
     assert_eq!(loaded.outcome.branch, branch::GROWTH);
     assert!((loaded.state[0] - 0.5).abs() <= 1e-12);
     let state = [loaded.state[0], loaded.state[1]];
@@ -176,7 +177,8 @@ fn damage_is_irreversible_and_contact_uses_the_penalty() {
         props: AS4_PEEK.to_vec(),
         strain: vec![lam, 0.0, 0.0],
         dstrain: vec![-lam / 2.0, 1e-5, 0.0],
-        state0: state,
+        state0: state.to_vec(),
+        ..Point::default()
     };
     let out = run(&m, &p);
     assert_eq!(out.outcome.branch, branch::UNLOADING);
@@ -190,7 +192,7 @@ fn damage_is_irreversible_and_contact_uses_the_penalty() {
     }
     // Closing: a negative opening far beyond δ_f carries K δ₃ and leaves d alone.
     for (d, expect) in [(0.0, branch::CLOSED), (state[0], branch::CLOSED), (1.0, branch::FAILED)] {
-        let out = run(&m, &Point::at(&AS4_PEEK, &[-10.0 * dfm, 2e-5, 0.0], [d, 0.3]));
+        let out = run(&m, &point_at(&AS4_PEEK, &[-10.0 * dfm, 2e-5, 0.0], [d, 0.3]));
         assert_eq!(out.outcome.branch, expect);
         assert_eq!(out.state, vec![d, 0.3]);
         assert!((out.stress[0] + 10.0 * k * dfm).abs() <= 1e-9);
@@ -198,7 +200,7 @@ fn damage_is_irreversible_and_contact_uses_the_penalty() {
         assert!((out.stress[1] - (1.0 - d) * k * 2e-5).abs() <= 1e-9);
     }
     // The failed interface: no traction when open.
-    let out = run(&m, &Point::at(&AS4_PEEK, &[1e-4, 1e-4, 0.0], [1.0, 1.0]));
+    let out = run(&m, &point_at(&AS4_PEEK, &[1e-4, 1e-4, 0.0], [1.0, 1.0]));
     assert_eq!((out.outcome.branch, out.stress.clone()), (branch::FAILED, vec![0.0; 3]));
     assert!(out.tangent.iter().all(|x| *x == 0.0));
     assert!(out.outcome.provides(provides::ENERGY) && !out.outcome.provides(provides::DSTRESS_DTEMP));

@@ -125,7 +125,7 @@ fn random_point(rng: &mut StdRng, n: usize, target: i32) -> (Point, Mode) {
     let dstrain: Vec<f64> = sep.iter().zip(&frac).map(|(s, f)| s * f).collect();
     let strain: Vec<f64> = sep.iter().zip(&dstrain).map(|(s, d)| s - d).collect();
     let dissipated = u(rng, 0.0, 2.0);
-    (Point { props, strain, dstrain, state0: [d_old, dissipated] }, mode)
+    (Point { props, strain, dstrain, state0: vec![d_old, dissipated], ..Point::default() }, mode)
 }
 
 // The tangent against num-dual (an independent library's forward-mode derivative), and the
@@ -303,7 +303,7 @@ fn no_call_allocates() {
                 assert_eq!(count_allocations::<Dual64>(&m, &p), (0, target));
                 assert_eq!(count_allocations::<Complex64>(&m, &p), (0, target));
             }
-            let mut p = Point::at(&AS4_PEEK, &vec![1e-4; kind.ncomp()], [0.0, 0.0]);
+            let mut p = point_at(&AS4_PEEK, &vec![1e-4; kind.ncomp()], [0.0, 0.0]);
             p.props[5] = 0.5;
             assert_eq!(count_allocations::<f64>(&m, &p), (0, -1));
         }
@@ -327,7 +327,16 @@ fn bad_properties_states_and_kinds_are_refused() {
         (AS4_PEEK.to_vec(), [1.5, 0.0], "damage"),
         (AS4_PEEK.to_vec(), [0.2, f64::NAN], "dissipated"),
     ] {
-        let out = run(&m, &Point { props, strain: vec![0.0; 2], dstrain: vec![1e-5, 0.0], state0 });
+        let out = run(
+            &m,
+            &Point {
+                props,
+                strain: vec![0.0; 2],
+                dstrain: vec![1e-5, 0.0],
+                state0: state0.to_vec(),
+                ..Point::default()
+            },
+        );
         assert_eq!(out.outcome.status, status::FAILED);
         assert!(out.outcome.message_text().contains(needle), "{needle}: {}", out.outcome.message_text());
         assert!(out.stress.iter().chain(&out.tangent).chain(&out.state).all(|x| x.is_nan()));

@@ -22,7 +22,7 @@ fn bimodulus_point(rng: &mut StdRng, n: usize, e11_end: Option<f64>) -> Point {
             dstrain[0] = x;
         }
     }
-    Point { props: vec![e_t, e_c, nu], strain, dstrain, state0: vec![] }
+    Point { props: vec![e_t, e_c, nu], strain, dstrain, state0: vec![], ..Point::default() }
 }
 
 /// Column 0 of ∂σ/∂Δε by a one-sided difference of step h (the stress is linear on each side

@@ -216,6 +216,7 @@ fn stale_tangent_lags_one_increment() {
                     strain: p1.strain.iter().zip(&p1.dstrain).map(|(a, b)| a + b).collect(),
                     dstrain: to_vector(&random_tensor(&mut rng, n).map(|x| x * size), n, 2.0),
                     state0: out1.state.clone(),
+                    ..Point::default()
                 };
                 let out2 = run(&m, &p2);
                 let dual2 = dual_tangent(&m, &p2);

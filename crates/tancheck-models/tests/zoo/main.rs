@@ -13,6 +13,7 @@ use tancheck_core::{Convention, Model, PointKind, Scalar};
 use tancheck_models::zoo::{FlawedJ2, J2Flaw, UNIT_FACTOR};
 use tancheck_models::{zoo, zoo_model, Bimodulus, ZooModel, J2};
 use tancheck_testkit::call::{model_allocations, model_call, Call};
+use tancheck_testkit::point::Point;
 use tancheck_testkit::tensor::{deviatoric, random_tensor, slots, tensor_norm, to_tensor, to_vector};
 
 #[path = "../common/mod.rs"]
@@ -26,28 +27,9 @@ mod worked;
 // ---------------------------------------------------------------------------------------------
 // Calls and derivatives
 
-/// The real inputs of one call.
-#[derive(Clone, Debug)]
-struct Point {
-    props: Vec<f64>,
-    strain: Vec<f64>,
-    dstrain: Vec<f64>,
-    state0: Vec<f64>,
-}
-
-impl Point {
-    /// The call (stress0 zero), 20 °C: the zoo's J2 and bimodulus models read no temperature.
-    fn call(&self) -> Call {
-        Call::new(&self.props, self.strain.len(), self.state0.len())
-            .strain(&self.strain)
-            .dstrain(&self.dstrain)
-            .state0(&self.state0)
-    }
-}
-
 /// One real call that must succeed.
 fn run<M: Model>(m: &M, p: &Point) -> Outputs<f64> {
-    let out = model_call(m, &p.call(), &p.dstrain, [20.0, 0.0]).expect("the sizes fit");
+    let out = tancheck_testkit::point::run(m, p);
     assert_eq!(out.outcome.status, 0, "{}: {}", m.info().name, out.outcome.message_text());
     out
 }
@@ -168,6 +150,7 @@ fn random_j2_point(rng: &mut StdRng, n: usize, hardening: &[f64; 4], virgin: f64
         strain: to_vector(&strain, n, 2.0),
         dstrain: to_vector(&de, n, 2.0),
         state0,
+        ..Point::default()
     }
 }
 

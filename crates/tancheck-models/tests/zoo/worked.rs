@@ -20,6 +20,7 @@ fn worked(flaw: J2Flaw, state0: Option<&[f64]>, strain: [f64; 6]) -> Outputs<f64
         strain: strain.to_vec(),
         dstrain: vec![0.003, 0.0, 0.0, 0.0, 0.0, 0.0],
         state0: s0,
+        ..Point::default()
     };
     run(&m, &p)
 }
@@ -74,6 +75,7 @@ fn worked_case_values_of_every_flaw() {
         strain: vec![0.003, 0.0, 0.0, 0.0, 0.0, 0.0],
         dstrain: vec![-1e-4, 0.0, 0.0, 0.0, 0.0, 0.0],
         state0: first.state.clone(),
+        ..Point::default()
     };
     let second = run(&m, &p);
     assert_eq!(second.outcome.branch, 0);
