@@ -1,7 +1,7 @@
 /*
  * material_axes.h -- the material frame of the orthotropic examples (orthotropic.c, ply.c): the
  * orthonormal axes from the two axis vectors of the properties (Gram-Schmidt), the Mandel
- * weight of a Voigt slot and the Mandel rotation of the axes. Include it after tancheck_cstep.h (tc_real is real or complex).
+ * weight of a Voigt slot, the Mandel rotation of the axes and the product of two 6x6 matrices. Include it after tancheck_cstep.h (tc_real is real or complex).
  */
 #ifndef MATERIAL_AXES_H
 #define MATERIAL_AXES_H
@@ -61,7 +61,7 @@ static const int ma_pairs[6][2] = {{0, 0}, {1, 1}, {2, 2}, {1, 2}, {0, 2}, {0, 1
 
 /* The Mandel rotation of the axes r: with I = (i, j), K = (k, l) the slots' tensor indices,
  * Q_IK = (w_I / w_K)(R_ik R_jl + [k != l] R_il R_jk). */
-static inline void ma_rotation(const tc_real r[3][3], tc_real q[6][6])
+static inline void ma_rotation(tc_real r[3][3], tc_real q[6][6])
 {
     for (int bi = 0; bi < 6; ++bi) {
         const int i = ma_pairs[bi][0], j = ma_pairs[bi][1];
@@ -72,6 +72,20 @@ static inline void ma_rotation(const tc_real r[3][3], tc_real q[6][6])
                 v += r[i][l] * r[j][k];
             }
             q[bi][bk] = v * (ma_weight(bi) / ma_weight(bk));
+        }
+    }
+}
+
+/* z = x y, or x y^T when y_transposed; each entry summed in the order of k. z is neither x nor y. */
+static inline void ma_product(tc_real x[6][6], tc_real y[6][6], int y_transposed, tc_real z[6][6])
+{
+    for (int a = 0; a < 6; ++a) {
+        for (int b = 0; b < 6; ++b) {
+            tc_real s = 0.0;
+            for (int k = 0; k < 6; ++k) {
+                s += x[a][k] * (y_transposed ? y[b][k] : y[k][b]);
+            }
+            z[a][b] = s;
         }
     }
 }

@@ -119,22 +119,11 @@ static int or_global(const tc_real *properties, tc_real c[6][6], tc_report *repo
             cmat[a][b] = cmat[a][b] * (ma_weight(a) * ma_weight(b));
         }
     }
+    ma_product(q, cmat, 0, qc);
+    ma_product(qc, q, 1, c);
     for (int a = 0; a < 6; ++a) {
         for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int k = 0; k < 6; ++k) {
-                s += q[a][k] * cmat[k][b];
-            }
-            qc[a][b] = s;
-        }
-    }
-    for (int a = 0; a < 6; ++a) {
-        for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int k = 0; k < 6; ++k) {
-                s += qc[a][k] * q[b][k];
-            }
-            c[a][b] = s / (ma_weight(a) * ma_weight(b));
+            c[a][b] = c[a][b] / (ma_weight(a) * ma_weight(b));
         }
     }
     return 1;

@@ -316,15 +316,7 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
         }
     }
     tc_real kt[6][6];
-    for (int a = 0; a < 6; ++a) {
-        for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int o = 0; o < 6; ++o) {
-                s += km[a][o] * t[o][b];
-            }
-            kt[a][b] = s;
-        }
-    }
+    ma_product(km, t, 0, kt);
     for (int i = 0; i < n; ++i) {
         const int si = slots[i];
         tc_real s = 0.0;
