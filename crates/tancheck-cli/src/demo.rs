@@ -37,9 +37,8 @@ const C_SOURCES: [(&str, &str); 5] = [
     ("j2_energy.h", include_str!("../../../fortran-shim/examples/c/j2_energy.h")),
     ("j2_return_map.h", include_str!("../../../fortran-shim/examples/c/j2_return_map.h")),
 ];
-const FORTRAN_SOURCES: [(&str, &str); 4] = [
+const FORTRAN_SOURCES: [(&str, &str); 3] = [
     ("elastic.F90", include_str!("../../../fortran-shim/examples/fortran/elastic.F90")),
-    ("linear_response.inc", include_str!("../../../fortran-shim/examples/fortran/linear_response.inc")),
     ("j2.F90", include_str!("../../../fortran-shim/examples/fortran/j2.F90")),
     ("j2_return_map.inc", include_str!("../../../fortran-shim/examples/fortran/j2_return_map.inc")),
 ];

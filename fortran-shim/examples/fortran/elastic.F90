@@ -40,7 +40,7 @@ subroutine f_elastic(callinfo, properties, strain, dstrain, temperature, stress0
   ! gfortran -Wall (-Wunused-dummy-argument) that this is deliberate; it generates no code.
   namelist /unused_arguments/ temperature, dstress_dtemp
 
-  TC_REAL :: e, nu, mu, lambda, f
+  TC_REAL :: e, nu, mu, lambda, f, s, stored
   integer :: n, i, j
 
   n = callinfo%ncomp
@@ -89,11 +89,24 @@ subroutine f_elastic(callinfo, properties, strain, dstrain, temperature, stress0
     end do
   end select
 
-  ! sigma = sigma0 + C dstrain, the stored energy density, the state and the report.
-  call linear_response(callinfo, strain, dstrain, stress0, state0, tangent, stress, state, energy, report)
+  ! sigma = sigma0 + C dstrain, and the stored energy density. Products are written out: no
+  ! dot_product, which would conjugate its first argument in the complex twin.
+  stored = 0.0_c_double
+  do i = 1, n
+    s = stress0(i)
+    do j = 1, n
+      s = s + tangent(i, j) * dstrain(j)
+    end do
+    stress(i) = s
+    stored = stored + s * (strain(i) + dstrain(i))
+  end do
+  do i = 1, callinfo%nstate
+    state(i) = state0(i)
+  end do
 
-contains
-
-#include "linear_response.inc"
-
+  energy%stored = 0.5_c_double * stored
+  energy%dissipated = 0.0_c_double
+  report%provides = tc_provides_energy
+  report%branch = 0
+  report%status = tc_status_ok
 end subroutine f_elastic
