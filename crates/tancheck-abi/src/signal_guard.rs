@@ -398,20 +398,25 @@ impl Crash {
     }
 }
 
+/// Run one trampoline call with a fresh result slot and turn a caught signal into a [`Crash`];
+/// every guarded entry (point, finite, block; real or complex) ends the same way.
+pub(crate) fn guarded(call: impl FnOnce(&mut GuardResult) -> i32) -> Result<(), Crash> {
+    let mut r = GuardResult::default();
+    if call(&mut r) == 0 {
+        Ok(())
+    } else {
+        Err(Crash::from_result(&r))
+    }
+}
+
 /// Call a routine's real entry point through the guard.
 ///
 /// # Safety
 /// `f` must be a routine with the ABI's signature, and every pointer in `args` must be valid
 /// for the lengths the `tc_call` in `args` announces.
 pub(crate) unsafe fn call_real(f: RealFn, args: &GuardArgs) -> Result<(), Crash> {
-    let mut r = GuardResult::default();
     // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
-    let caught = unsafe { tc_guard_call_real(f, args, &mut r) };
-    if caught == 0 {
-        Ok(())
-    } else {
-        Err(Crash::from_result(&r))
-    }
+    guarded(|r| unsafe { tc_guard_call_real(f, args, r) })
 }
 
 /// A finite-strain routine's entry point (`tc_finite_fn` of tancheck_finite.h, real).
@@ -458,14 +463,8 @@ pub(crate) const LAYOUT_FINITE: i32 = 1;
 /// `f` must have the finite-strain real signature and every pointer of `args` the length
 /// its `tc_finite_call` announces.
 pub(crate) unsafe fn call_finite(f: FiniteFn, args: &GuardArgs) -> Result<(), Crash> {
-    let mut r = GuardResult::default();
     // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
-    let caught = unsafe { tc_guard_call_finite(f, args, &mut r) };
-    if caught == 0 {
-        Ok(())
-    } else {
-        Err(Crash::from_result(&r))
-    }
+    guarded(|r| unsafe { tc_guard_call_finite(f, args, r) })
 }
 
 /// As [`call_finite`], for the complex-step twin.
@@ -473,14 +472,8 @@ pub(crate) unsafe fn call_finite(f: FiniteFn, args: &GuardArgs) -> Result<(), Cr
 /// # Safety
 /// As [`call_finite`], with complex arrays.
 pub(crate) unsafe fn call_finite_complex(f: FiniteComplexFn, args: &GuardArgs) -> Result<(), Crash> {
-    let mut r = GuardResult::default();
     // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
-    let caught = unsafe { tc_guard_call_finite_complex(f, args, &mut r) };
-    if caught == 0 {
-        Ok(())
-    } else {
-        Err(Crash::from_result(&r))
-    }
+    guarded(|r| unsafe { tc_guard_call_finite_complex(f, args, r) })
 }
 
 /// Size of the finite call header and offset of its time field, as the C side sees them.
@@ -497,14 +490,8 @@ pub(crate) fn finite_layout() -> [u64; 2] {
 /// # Safety
 /// As [`call_real`], with complex arrays.
 pub(crate) unsafe fn call_complex(f: ComplexFn, args: &GuardArgs) -> Result<(), Crash> {
-    let mut r = GuardResult::default();
     // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
-    let caught = unsafe { tc_guard_call_complex(f, args, &mut r) };
-    if caught == 0 {
-        Ok(())
-    } else {
-        Err(Crash::from_result(&r))
-    }
+    guarded(|r| unsafe { tc_guard_call_complex(f, args, r) })
 }
 
 #[cfg(test)]

@@ -5,6 +5,7 @@ mod common;
 use std::path::PathBuf;
 
 use common::*;
+use tancheck_abi::compile::{C_DEBUG_FLAGS, FORTRAN_DEBUG_FLAGS};
 use tancheck_abi::{build_library, BuildError, BuildOptions, Library};
 
 fn fortran_example(name: &str) -> PathBuf {
@@ -71,7 +72,7 @@ fn debug_builds_use_the_debug_flags() {
     opts.debug = true;
     let log = build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
     let compile = &log.commands[0];
-    for flag in ["-g", "-O0", "-fno-omit-frame-pointer", "-ftrapv", "-fPIC"] {
+    for flag in C_DEBUG_FLAGS.into_iter().chain(["-fPIC"]) {
         assert!(compile.args.iter().any(|a| a == flag), "{flag} missing: {}", compile.command_line());
     }
     assert!(!compile.args.iter().any(|a| a == "-O2"));
@@ -92,14 +93,7 @@ fn fortran_debug_builds_use_the_debug_flags() {
     opts.debug = true;
     let log = build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
     for step in &log.commands[..log.commands.len() - 1] {
-        for flag in [
-            "-g",
-            "-O0",
-            "-fcheck=all",
-            "-ffpe-trap=invalid,zero,overflow",
-            "-fbacktrace",
-            "-finit-real=snan",
-        ] {
+        for flag in FORTRAN_DEBUG_FLAGS {
             assert!(step.args.iter().any(|a| a == flag), "{flag} missing: {}", step.command_line());
         }
     }

@@ -189,25 +189,8 @@ fn a_nonzero_status_is_a_status_fault() {
 fn wrong_lengths_are_refused_before_the_routine_sees_them() {
     let mut r = load("bad_null_deref");
     let mut b = Real::new();
-    let input = tancheck_core::CallInput {
-        props: &b.props[..1],
-        strain: &b.strain,
-        dstrain: &b.dstrain,
-        temp: [0.0, 0.0],
-        stress0: &b.stress0,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 1,
-        want_tangent: true,
-    };
-    let mut output = tancheck_core::CallOutput {
-        stress: &mut b.stress,
-        state: &mut [],
-        tangent: &mut b.tangent,
-        dstress_dtemp: &mut b.dstress_dtemp,
-        energy: &mut b.energy,
-        outcome: &mut b.outcome,
-    };
+    let (mut input, mut output) = b.views([0.0, 0.0], 1);
+    input.props = &input.props[..1];
     let _ = r.call(&input, &mut output);
 }
 

@@ -5,7 +5,7 @@ mod common;
 
 use common::*;
 use num_complex::Complex64;
-use tancheck_core::{CallInput, CallOutput, Caller};
+use tancheck_core::Caller;
 
 tancheck_testkit::counting_allocator!();
 use tancheck_core::driver::Outputs;
@@ -35,25 +35,7 @@ fn a_guarded_call_allocates_nothing() {
         b.call(&mut r, inc).unwrap();
     }
     {
-        let input = CallInput {
-            props: &b.props,
-            strain: &b.strain,
-            dstrain: &b.dstrain,
-            temp: [293.0, 0.0],
-            stress0: &b.stress0,
-            state0: &[],
-            time: [0.0, 1.0],
-            increment: 1,
-            want_tangent: true,
-        };
-        let mut output = CallOutput {
-            stress: &mut b.stress,
-            state: &mut [],
-            tangent: &mut b.tangent,
-            dstress_dtemp: &mut b.dstress_dtemp,
-            energy: &mut b.energy,
-            outcome: &mut b.outcome,
-        };
+        let (input, mut output) = b.views([293.0, 0.0], 1);
         let mut caller = Caller::new(&mut r);
         for _ in 0..100 {
             caller.call(&input, &mut output).unwrap();

@@ -59,18 +59,7 @@ pub fn open_for_manifest(m: &Manifest, dir: &FsPath) -> Result<(Opened, CaseRout
                  remove routine.order and routine.shear from the manifest"
             );
         }
-        if r.properties.len() != info.nprop {
-            bail!(
-                "the model `{name}` takes {} properties; the manifest gives {}",
-                info.nprop,
-                r.properties.len()
-            );
-        }
-        if let Some(n) = r.states {
-            if n != info.nstate {
-                bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
-            }
-        }
+        crate::load::check_model_sizes(name, r, &info)?;
         let mut spec = CaseRoutine::from_info(&info, true);
         spec.model = Some(name.clone());
         return Ok((Opened::Model(Box::new(model)), spec));
@@ -151,6 +140,31 @@ pub fn write_case(dir: &FsPath, case: &Case) -> Result<PathBuf> {
     crate::report::write_atomic(&file, case.to_json().as_bytes())
         .with_context(|| format!("writing the case {}", file.display()))?;
     Ok(file)
+}
+
+/// The options of the commands that look for failures along a manifest's paths and keep them
+/// as case files (`bisect`, `explore`): declared once so both take them alike.
+#[derive(clap::Args, Debug)]
+pub struct CaseRunArgs {
+    /// Folder for the case files (default: tancheck-cases/<manifest name>/ next to the manifest,
+    /// the folder `check --cases` replays).
+    #[arg(long, value_name = "DIR")]
+    pub case_dir: Option<PathBuf>,
+    /// Write the report as JSON to FILE (`-` for standard output, replacing the readable one).
+    #[arg(long, value_name = "FILE")]
+    pub json: Option<PathBuf>,
+    /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
+    #[arg(long)]
+    pub fp_traps: bool,
+    #[command(flatten)]
+    pub output: crate::session::OutputArgs,
+}
+
+impl CaseRunArgs {
+    /// The folder for the case files: --case-dir, else [`default_case_dir`] of `manifest`.
+    pub fn case_dir_of(&self, manifest: &FsPath, dir: &FsPath) -> PathBuf {
+        self.case_dir.clone().unwrap_or_else(|| default_case_dir(manifest, dir))
+    }
 }
 
 /// The default case folder of a manifest: `tancheck-cases/<manifest file name without

@@ -27,10 +27,6 @@ pub struct BisectArgs {
     /// (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic, tension-shear, mixed-mode).
     #[arg(long, value_name = "SPEC")]
     pub path: Option<String>,
-    /// Folder for the case files (default: tancheck-cases/<manifest name>/ next to the manifest,
-    /// the folder `check --cases` replays).
-    #[arg(long, value_name = "DIR")]
-    pub case_dir: Option<PathBuf>,
     /// Candidate paths the shrinker checks at most; 0 skips shrinking.
     #[arg(long, value_name = "N", default_value_t = ShrinkLimits::default().max_iterations)]
     pub max_shrink_iterations: usize,
@@ -40,14 +36,8 @@ pub struct BisectArgs {
     /// Narrow the class change inside the failing increment to this fraction of it.
     #[arg(long, value_name = "F", default_value_t = BisectSettings::default().fraction_tol)]
     pub fraction_tol: f64,
-    /// Write the result as JSON to FILE (`-` for standard output, replacing the readable one).
-    #[arg(long, value_name = "FILE")]
-    pub json: Option<PathBuf>,
-    /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
-    #[arg(long)]
-    pub fp_traps: bool,
     #[command(flatten)]
-    pub output: crate::session::OutputArgs,
+    pub run: crate::case_store::CaseRunArgs,
 }
 
 pub use crate::report::model::{BisectOutcome, ShrinkSummary};
@@ -67,12 +57,12 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
 
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
-    a.output.check_files()?;
-    crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
+    a.run.output.check_files()?;
+    crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
-    crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
+    crate::survive::set_routine(a.run.json.as_deref(), &crate::session::routine_name(&m));
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
-    m.fp_traps |= a.fp_traps;
+    m.fp_traps |= a.run.fp_traps;
     let bs = BisectSettings { fraction_tol: a.fraction_tol, ..BisectSettings::default() };
     bs.validate().map_err(|e| anyhow::anyhow!("--fraction-tol: {e}"))?;
     if !a.max_shrink_seconds.is_finite()
@@ -104,8 +94,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         check::run(&mut caller, &props, start.clone(), &path, &settings).map_err(anyhow::Error::msg)?;
     let located = bisect::locate(&mut caller, &props, start.clone(), &path, &report, &settings, &bs)
         .map_err(anyhow::Error::msg)?;
-    let case_dir =
-        a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
+    let case_dir = a.run.case_dir_of(&a.manifest, &dir);
     let mut warnings = Vec::new();
     let mut cases = Vec::new();
     let mut to_write = Vec::new();
@@ -130,7 +119,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
             let progress = crate::report::style::Progress::new(
                 0,
                 "shrinking the failing path",
-                a.output.shows_progress(),
+                a.run.output.shows_progress(),
             );
             let shrunk_path = bisect::shrink(&mut caller, &props, &start, &path, &report, &settings, limits)
                 .map_err(anyhow::Error::msg)?;
@@ -192,7 +181,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         cautions: tancheck_core::report::CAUTIONS.iter().map(|c| c.to_string()).collect(),
         check: Some(Box::new(report)),
     };
-    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    let mut reporters = crate::session::reporters(&a.run.output, a.run.json.as_deref());
     reporters.bisect(&outcome)?;
     reporters.finish()?;
     Ok(if outcome.located.is_none() && outcome.exit_code == exit::PASS {

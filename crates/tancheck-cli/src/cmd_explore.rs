@@ -41,18 +41,8 @@ pub struct ExploreArgs {
     /// Candidate paths the shrinker checks at most for each distinct failure; 0 skips shrinking.
     #[arg(long, value_name = "N", default_value_t = 300)]
     pub max_shrink_iterations: usize,
-    /// Folder for the case files (default: tancheck-cases/<manifest name>/ next to the manifest,
-    /// the folder `check --cases` replays).
-    #[arg(long, value_name = "DIR")]
-    pub case_dir: Option<PathBuf>,
-    /// Write the report as JSON to FILE (`-` for standard output, replacing the readable one).
-    #[arg(long, value_name = "FILE")]
-    pub json: Option<PathBuf>,
-    /// Switch floating-point traps (invalid, division by zero, overflow) on inside the routine.
-    #[arg(long)]
-    pub fp_traps: bool,
     #[command(flatten)]
-    pub output: crate::session::OutputArgs,
+    pub run: crate::case_store::CaseRunArgs,
 }
 
 /// The budget of the arguments: the default number of paths when none is given.
@@ -65,20 +55,20 @@ pub fn budget_of(a: &ExploreArgs) -> Budget {
 
 /// `tancheck explore`.
 pub fn run(a: &ExploreArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.run.output.check_files()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         bail!("{}: explore takes point routines; this manifest is a finite-strain one", a.manifest.display());
     }
-    crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
+    crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     let file = a.manifest.display().to_string();
     if crate::block_session::is_block(&m) {
         bail!("{file}: explore takes point routines; this manifest is a block routine's");
     }
-    crate::survive::set_routine(a.json.as_deref(), &crate::session::routine_name(&m));
+    crate::survive::set_routine(a.run.json.as_deref(), &crate::session::routine_name(&m));
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
-    crate::survive::progress_lines(!a.output.quiet);
-    m.fp_traps |= a.fp_traps;
+    crate::survive::progress_lines(!a.run.output.quiet);
+    m.fp_traps |= a.run.fp_traps;
     let mut ex = ExploreSettings {
         seed: a.seed,
         budget: budget_of(a),
@@ -106,7 +96,7 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     let bar = crate::report::style::Progress::new(
         ex.budget.paths.unwrap_or(0) as u64,
         "exploring",
-        a.output.shows_progress(),
+        a.run.output.shows_progress(),
     );
     crate::survive::checking(true);
     let result = explore::run(&mut caller, &m.routine.properties, &start, &settings, &ex, &mut |p| {
@@ -115,8 +105,7 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     });
     drop(bar);
     let mut report = result.map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
-    let case_dir =
-        a.case_dir.clone().unwrap_or_else(|| crate::case_store::default_case_dir(&a.manifest, &dir));
+    let case_dir = a.run.case_dir_of(&a.manifest, &dir);
     let mut case_notes = Vec::new();
     for f in &mut report.findings {
         let Some(s) = &f.shrunk else { continue };
@@ -142,7 +131,7 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
     }
     report.notes.extend(case_notes);
     crate::survive::checking(false);
-    let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
+    let mut reporters = crate::session::reporters(&a.run.output, a.run.json.as_deref());
     reporters.explore(&report)?;
     reporters.finish()?;
     Ok(report.exit_code())

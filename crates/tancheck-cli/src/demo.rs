@@ -48,9 +48,14 @@ const J2_PROPS: &str = "[210000, 0.3, 355, 1200, 150, 12, 2500]";
 const ELASTIC_PROPS: &str = "[70000, 0.33]";
 
 /// The ply scenario's sources (built as their own libraries, beside the examples above).
-const PLY_C_SOURCES: [(&str, &str); 1] = [("ply.c", include_str!("../../../fortran-shim/examples/c/ply.c"))];
-const PLY_FORTRAN_SOURCES: [(&str, &str); 2] = [
+const PLY_C_SOURCES: [(&str, &str); 3] = [
+    ("ply.c", include_str!("../../../fortran-shim/examples/c/ply.c")),
+    ("isotropic_elastic.h", include_str!("../../../fortran-shim/examples/c/isotropic_elastic.h")),
+    ("material_axes.h", include_str!("../../../fortran-shim/examples/c/material_axes.h")),
+];
+const PLY_FORTRAN_SOURCES: [(&str, &str); 3] = [
     ("ply.F90", include_str!("../../../fortran-shim/examples/fortran/ply.F90")),
+    ("ply_variant.inc", include_str!("../../../fortran-shim/examples/fortran/ply_variant.inc")),
     ("ply_update.inc", include_str!("../../../fortran-shim/examples/fortran/ply_update.inc")),
 ];
 
@@ -159,69 +164,49 @@ fn check_case(
 }
 
 struct Case {
-    title: &'static str,
+    title: String,
     language: &'static str,
-    file: &'static str,
+    file: String,
     routine: String,
     expect: Verdict,
 }
 
+/// The routines of the demo's libraries, each built in C (`c_…`) and in Fortran (`f_…`): what
+/// it is, its name after the prefix, its state count and properties, the verdict it should get.
+const COMPILED: [(&str, &str, usize, &str, Verdict); 3] = [
+    ("elasticity", "elastic", 0, ELASTIC_PROPS, Verdict::Pass),
+    ("J2 plasticity", "j2", 13, J2_PROPS, Verdict::Pass),
+    (
+        "J2 plasticity with the continuum tangent (flawed on purpose)",
+        "j2_continuum",
+        13,
+        J2_PROPS,
+        Verdict::TangentFailure,
+    ),
+];
+
 fn cases(c_lib: Option<&str>, f_lib: Option<&str>) -> Vec<Case> {
-    let j2 = |src: &str| format!(r#""kind": "solid-3d", "states": 13, "properties": {J2_PROPS}, {src}"#);
-    let el = |src: &str| format!(r#""kind": "solid-3d", "states": 0, "properties": {ELASTIC_PROPS}, {src}"#);
-    let lib = |l: &str, s: &str| format!(r#""library": "{l}", "symbol": "{s}""#);
     let mut v = vec![Case {
-        title: "J2 plasticity, Rust reference model",
+        title: "J2 plasticity, Rust reference model".into(),
         language: "Rust",
-        file: "rust_j2.json",
+        file: "rust_j2.json".into(),
         routine: format!(r#""model": "j2", "kind": "solid-3d", "properties": {J2_PROPS}"#),
         expect: Verdict::Pass,
     }];
-    if let Some(l) = c_lib {
-        v.push(Case {
-            title: "elasticity, C",
-            language: "C",
-            file: "c_elastic.json",
-            routine: el(&lib(l, "c_elastic")),
-            expect: Verdict::Pass,
-        });
-        v.push(Case {
-            title: "J2 plasticity, C",
-            language: "C",
-            file: "c_j2.json",
-            routine: j2(&lib(l, "c_j2")),
-            expect: Verdict::Pass,
-        });
-        v.push(Case {
-            title: "J2 plasticity with the continuum tangent (flawed on purpose), C",
-            language: "C",
-            file: "c_j2_continuum.json",
-            routine: j2(&lib(l, "c_j2_continuum")),
-            expect: Verdict::TangentFailure,
-        });
-    }
-    if let Some(l) = f_lib {
-        v.push(Case {
-            title: "elasticity, Fortran",
-            language: "Fortran",
-            file: "f_elastic.json",
-            routine: el(&lib(l, "f_elastic")),
-            expect: Verdict::Pass,
-        });
-        v.push(Case {
-            title: "J2 plasticity, Fortran",
-            language: "Fortran",
-            file: "f_j2.json",
-            routine: j2(&lib(l, "f_j2")),
-            expect: Verdict::Pass,
-        });
-        v.push(Case {
-            title: "J2 plasticity with the continuum tangent (flawed on purpose), Fortran",
-            language: "Fortran",
-            file: "f_j2_continuum.json",
-            routine: j2(&lib(l, "f_j2_continuum")),
-            expect: Verdict::TangentFailure,
-        });
+    for (language, prefix, lib) in [("C", "c", c_lib), ("Fortran", "f", f_lib)] {
+        let Some(lib) = lib else { continue };
+        for (what, name, states, props, expect) in COMPILED {
+            let symbol = format!("{prefix}_{name}");
+            v.push(Case {
+                title: format!("{what}, {language}"),
+                language,
+                file: format!("{symbol}.json"),
+                routine: format!(
+                    r#""kind": "solid-3d", "states": {states}, "properties": {props}, "library": "{lib}", "symbol": "{symbol}""#
+                ),
+                expect,
+            });
+        }
     }
     v
 }
@@ -297,8 +282,7 @@ fn run_cases(a: &DemoArgs) -> Result<DemoReport> {
     let mut checked = Vec::new();
     for case in cases(Some(&name(&c_lib)), f_lib.as_ref().map(name).as_deref()) {
         let text = format!("{{\n  \"routine\": {{ {} }}\n}}\n", case.routine);
-        let title = case.title.to_string();
-        checked.push(check_case(&dir, title, case.language, case.file, &text, case.expect, false)?);
+        checked.push(check_case(&dir, case.title, case.language, &case.file, &text, case.expect, false)?);
     }
     // Explicit dynamics and finite strain print their own lines (their reports are their
     // commands'); the bracket ply's checks join the others.

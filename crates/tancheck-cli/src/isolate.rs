@@ -195,19 +195,7 @@ impl Routine for Heartbeat<'_> {
         self.beat();
         self.inner.call(input, output)
     }
-    fn guard_next_call_fully(&mut self) -> bool {
-        self.inner.guard_next_call_fully()
-    }
-    fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
-        if self.inner.complex().is_some() {
-            Some(self)
-        } else {
-            None
-        }
-    }
-    fn capabilities(&mut self) -> tancheck_core::routine::Capabilities {
-        self.inner.capabilities()
-    }
+    tancheck_core::pass_on_to_inner!();
 }
 
 impl ComplexRoutine for Heartbeat<'_> {

@@ -6,7 +6,7 @@ use anyhow::{bail, Context, Result};
 use tancheck_abi::{Library, LibraryRoutine};
 use tancheck_core::{PointState, Routine, RoutineInfo};
 
-use crate::manifest::Manifest;
+use crate::manifest::{Manifest, RoutineSpec};
 
 /// A routine named by a manifest.
 pub enum Loaded {
@@ -30,18 +30,7 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
     if let Some(name) = &r.model {
         let model = tancheck_models::zoo::zoo_model(name, r.kind)?;
         let info = model.info().clone();
-        if r.properties.len() != info.nprop {
-            bail!(
-                "the model `{name}` takes {} properties; the manifest gives {}",
-                info.nprop,
-                r.properties.len()
-            );
-        }
-        if let Some(n) = r.states {
-            if n != info.nstate {
-                bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
-            }
-        }
+        check_model_sizes(name, r, &info)?;
         // A built-in model in another component order or shear measure is presented in it.
         if info.convention != conv {
             let relabelled = tancheck_core::relabel::Relabel::new(model, conv).map_err(anyhow::Error::msg)?;
@@ -102,4 +91,22 @@ pub fn start_state(m: &Manifest, info: &RoutineInfo) -> Result<PointState> {
         }
     }
     Ok(s)
+}
+
+/// The manifest's property count and state count (when given) against the built-in model
+/// `name`'s own, for every command that opens a model from a manifest.
+pub fn check_model_sizes(name: &str, r: &RoutineSpec, info: &RoutineInfo) -> Result<()> {
+    if r.properties.len() != info.nprop {
+        bail!(
+            "the model `{name}` takes {} properties; the manifest gives {}",
+            info.nprop,
+            r.properties.len()
+        );
+    }
+    if let Some(n) = r.states {
+        if n != info.nstate {
+            bail!("the model `{name}` has {} state variables; the manifest says {n}", info.nstate);
+        }
+    }
+    Ok(())
 }

@@ -117,20 +117,7 @@ impl<R: Routine> Routine for Relabel<R> {
         call_relabelled(&self.map, &self.strain_scale, &mut self.real, input, output, |i, o| inner.call(i, o))
     }
 
-    fn guard_next_call_fully(&mut self) -> bool {
-        self.inner.guard_next_call_fully()
-    }
-
-    fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
-        if self.inner.complex().is_some() {
-            Some(self)
-        } else {
-            None
-        }
-    }
-    fn capabilities(&mut self) -> crate::routine::Capabilities {
-        self.inner.capabilities()
-    }
+    crate::pass_on_to_inner!();
 }
 
 impl<R: Routine> ComplexRoutine for Relabel<R> {

@@ -197,6 +197,28 @@ pub trait Routine {
     }
 }
 
+/// The [`Routine`] methods a wrapper passes on to the routine it wraps (its field `inner`):
+/// written once, so every wrapper keeps the full guard, the capabilities and the twin of what
+/// it wraps. Use inside `impl Routine for Wrapper`, which must also implement [`ComplexRoutine`].
+#[macro_export]
+macro_rules! pass_on_to_inner {
+    () => {
+        fn guard_next_call_fully(&mut self) -> bool {
+            self.inner.guard_next_call_fully()
+        }
+        fn complex(&mut self) -> Option<&mut dyn $crate::routine::ComplexRoutine> {
+            if self.inner.complex().is_some() {
+                Some(self)
+            } else {
+                None
+            }
+        }
+        fn capabilities(&mut self) -> $crate::routine::Capabilities {
+            self.inner.capabilities()
+        }
+    };
+}
+
 /// Optional capability: the same stress update in complex arithmetic, for complex-step
 /// derivatives.
 pub trait ComplexRoutine {

@@ -40,22 +40,5 @@ TC_ROUTINE(c_elastic)
      * only read. */
     ex_isotropic_stiffness(n, properties[0], properties[1], tangent);
 
-    tc_real stored = 0.0;
-    for (int i = 0; i < n; ++i) {
-        tc_real s = stress0[i];
-        for (int j = 0; j < n; ++j) {
-            s += tangent[i + j * n] * dstrain[j];
-        }
-        stress[i] = s;
-        stored += s * (strain[i] + dstrain[i]);
-    }
-    for (int k = 0; k < call->nstate; ++k) {
-        state[k] = state0[k];
-    }
-
-    energy->stored = 0.5 * stored;
-    energy->dissipated = 0.0;
-    report->provides = TC_PROVIDES_ENERGY;
-    report->branch = 0;
-    report->status = TC_STATUS_OK;
+    ex_linear_response(call, strain, dstrain, stress0, state0, tangent, stress, state, energy, report);
 }

@@ -17,32 +17,12 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_finite.h"
+#include "finite_tensor.h"
 
 typedef tc_real hy_m3[3][3];
 
 static const int HY_I[6] = {0, 1, 2, 1, 0, 0};
 static const int HY_J[6] = {0, 1, 2, 2, 2, 1};
-
-static void hy_mul(const hy_m3 a, const hy_m3 b, hy_m3 c)
-{
-    for (int i = 0; i < 3; ++i)
-        for (int j = 0; j < 3; ++j) c[i][j] = a[i][0] * b[0][j] + a[i][1] * b[1][j] + a[i][2] * b[2][j];
-}
-
-static void hy_inverse(const hy_m3 a, hy_m3 r)
-{
-    tc_real d = a[0][0] * (a[1][1] * a[2][2] - a[1][2] * a[2][1]) - a[0][1] * (a[1][0] * a[2][2] - a[1][2] * a[2][0]) +
-                a[0][2] * (a[1][0] * a[2][1] - a[1][1] * a[2][0]);
-    r[0][0] = (a[1][1] * a[2][2] - a[1][2] * a[2][1]) / d;
-    r[0][1] = -(a[0][1] * a[2][2] - a[0][2] * a[2][1]) / d;
-    r[0][2] = (a[0][1] * a[1][2] - a[0][2] * a[1][1]) / d;
-    r[1][0] = -(a[1][0] * a[2][2] - a[1][2] * a[2][0]) / d;
-    r[1][1] = (a[0][0] * a[2][2] - a[0][2] * a[2][0]) / d;
-    r[1][2] = -(a[0][0] * a[1][2] - a[0][2] * a[1][0]) / d;
-    r[2][0] = (a[1][0] * a[2][1] - a[1][1] * a[2][0]) / d;
-    r[2][1] = -(a[0][0] * a[2][1] - a[0][1] * a[2][0]) / d;
-    r[2][2] = (a[0][0] * a[1][1] - a[0][1] * a[1][0]) / d;
-}
 
 /* C : sym(a) for isotropic elasticity, added to out. */
 static void hy_elastic_add(tc_real lambda, tc_real mu, const hy_m3 a, hy_m3 out)
@@ -80,18 +60,18 @@ static void hy_point(const tc_finite_call *call, const tc_real *properties, cons
         tau0[HY_I[s]][HY_J[s]] = stress0[s];
         tau0[HY_J[s]][HY_I[s]] = stress0[s];
     }
-    hy_inverse(fh, fhi);
+    ft_inverse(fh, fhi);
     for (int i = 0; i < 3; ++i)
         for (int j = 0; j < 3; ++j) tmp[i][j] = f1[i][j] - f0[i][j];
-    hy_mul(tmp, fhi, g);
+    ft_mul(tmp, fhi, g);
     /* tau1 = Q tau0 Q^T + C : sym G */
-    hy_mul(q, tau0, tmp);
+    ft_mul(q, tau0, tmp);
     for (int i = 0; i < 3; ++i)
         for (int j = 0; j < 3; ++j) t1[i][j] = tmp[i][0] * q[j][0] + tmp[i][1] * q[j][1] + tmp[i][2] * q[j][2];
     hy_elastic_add(lambda, mu, g, t1); /* C : sym G = lambda tr(G) I + mu (G + G^T) */
     for (int s = 0; s < 6; ++s) stress[s] = t1[HY_I[s]][HY_J[s]];
     /* tangent */
-    hy_mul(f1, fhi, m);
+    ft_mul(f1, fhi, m);
     for (int i = 0; i < 3; ++i) {
         for (int j = 0; j < 3; ++j) {
             nmat[i][j] = (i == j ? 1.0 : 0.0) - 0.5 * g[i][j];
@@ -99,21 +79,21 @@ static void hy_point(const tc_finite_call *call, const tc_real *properties, cons
             qp[i][j] = q[i][j] + (i == j ? 1.0 : 0.0);
         }
     }
-    hy_inverse(a, ai);
+    ft_inverse(a, ai);
     for (int c = 0; c < 6; ++c) {
         hy_m3 d = {{0}}, dg, dtau = {{0}}, sk, dq, x;
         int k = HY_I[c], l = HY_J[c];
         d[k][l] = k == l ? 1.0 : 0.5;
         d[l][k] = d[k][l];
-        hy_mul(nmat, d, tmp);
-        hy_mul(tmp, m, dg);
+        ft_mul(nmat, d, tmp);
+        ft_mul(tmp, m, dg);
         hy_elastic_add(lambda, mu, dg, dtau);
         if (rotate) {
             for (int i = 0; i < 3; ++i)
                 for (int j = 0; j < 3; ++j) sk[i][j] = 0.25 * (dg[i][j] - dg[j][i]);
-            hy_mul(ai, sk, tmp);
-            hy_mul(tmp, qp, dq);
-            hy_mul(dq, tau0, tmp);
+            ft_mul(ai, sk, tmp);
+            ft_mul(tmp, qp, dq);
+            ft_mul(dq, tau0, tmp);
             for (int i = 0; i < 3; ++i)
                 for (int j = 0; j < 3; ++j) x[i][j] = tmp[i][0] * q[j][0] + tmp[i][1] * q[j][1] + tmp[i][2] * q[j][2];
             for (int i = 0; i < 3; ++i)

@@ -29,6 +29,7 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_finite.h"
+#include "finite_tensor.h"
 
 typedef tc_real jl_m3[3][3];
 typedef double jl_d3[3][3];
@@ -44,36 +45,10 @@ static void jl_fail(tc_report *report, const char *text)
     report->message[k] = '\0';
 }
 
-static void jl_mul(const jl_m3 a, const jl_m3 b, jl_m3 c)
-{
-    for (int i = 0; i < 3; ++i)
-        for (int j = 0; j < 3; ++j) c[i][j] = a[i][0] * b[0][j] + a[i][1] * b[1][j] + a[i][2] * b[2][j];
-}
-
 static void jl_copy(const jl_m3 a, jl_m3 b)
 {
     for (int i = 0; i < 3; ++i)
         for (int j = 0; j < 3; ++j) b[i][j] = a[i][j];
-}
-
-static tc_real jl_det(const jl_m3 a)
-{
-    return a[0][0] * (a[1][1] * a[2][2] - a[1][2] * a[2][1]) - a[0][1] * (a[1][0] * a[2][2] - a[1][2] * a[2][0]) +
-           a[0][2] * (a[1][0] * a[2][1] - a[1][1] * a[2][0]);
-}
-
-static void jl_inverse(const jl_m3 a, jl_m3 r)
-{
-    tc_real d = jl_det(a);
-    r[0][0] = (a[1][1] * a[2][2] - a[1][2] * a[2][1]) / d;
-    r[0][1] = -(a[0][1] * a[2][2] - a[0][2] * a[2][1]) / d;
-    r[0][2] = (a[0][1] * a[1][2] - a[0][2] * a[1][1]) / d;
-    r[1][0] = -(a[1][0] * a[2][2] - a[1][2] * a[2][0]) / d;
-    r[1][1] = (a[0][0] * a[2][2] - a[0][2] * a[2][0]) / d;
-    r[1][2] = -(a[0][0] * a[1][2] - a[0][2] * a[1][0]) / d;
-    r[2][0] = (a[1][0] * a[2][1] - a[1][1] * a[2][0]) / d;
-    r[2][1] = -(a[0][0] * a[2][1] - a[0][1] * a[2][0]) / d;
-    r[2][2] = (a[0][0] * a[1][1] - a[0][1] * a[1][0]) / d;
 }
 
 /* Frobenius norm of the real part of a - s I. */
@@ -97,8 +72,8 @@ static void jl_sqrt(const jl_m3 a, jl_m3 y)
     jl_copy(a, y);
     for (int it = 0; it < 100 && extra <= 2; ++it) {
         double change = 0.0, size = 0.0;
-        jl_inverse(y, yi);
-        jl_inverse(z, zi);
+        ft_inverse(y, yi);
+        ft_inverse(z, zi);
         for (int i = 0; i < 3; ++i)
             for (int j = 0; j < 3; ++j) {
                 tc_real yn = 0.5 * (y[i][j] + zi[i][j]);
@@ -128,13 +103,13 @@ static void jl_log(const jl_m3 a, jl_m3 out)
             m[i][j] = y[i][j] - (i == j ? 1.0 : 0.0);
             p[i][j] = y[i][j] + (i == j ? 1.0 : 0.0);
         }
-    jl_inverse(p, t);
-    jl_mul(m, t, z);
-    jl_mul(z, z, z2);
+    ft_inverse(p, t);
+    ft_mul(m, t, z);
+    ft_mul(z, z, z2);
     jl_copy(z, term);
     jl_copy(z, out);
     for (int n = 1; n < 8; ++n) {
-        jl_mul(term, z2, t);
+        ft_mul(term, z2, t);
         jl_copy(t, term);
         for (int i = 0; i < 3; ++i)
             for (int j = 0; j < 3; ++j) out[i][j] += term[i][j] / (2.0 * n + 1.0);
@@ -158,7 +133,7 @@ static void jl_exp(const jl_m3 a, jl_m3 out)
             out[i][j] = term[i][j];
         }
     for (int m = 1; m <= 16; ++m) {
-        jl_mul(term, x, t);
+        ft_mul(term, x, t);
         for (int i = 0; i < 3; ++i)
             for (int j = 0; j < 3; ++j) {
                 term[i][j] = t[i][j] / (double)m;
@@ -166,7 +141,7 @@ static void jl_exp(const jl_m3 a, jl_m3 out)
             }
     }
     for (int r = 0; r < s; ++r) {
-        jl_mul(out, out, t);
+        ft_mul(out, out, t);
         jl_copy(t, out);
     }
 }
@@ -431,8 +406,8 @@ static void jl_point(const tc_finite_call *call, const tc_real *properties, cons
             fa[i][j] = f0[i + 3 * j];
             fb[i][j] = f1[i + 3 * j];
         }
-    tc_real jac = jl_det(fb);
-    if (tc_re(jac) <= 0.0 || tc_re(jl_det(fa)) <= 0.0) {
+    tc_real jac = ft_det(fb);
+    if (tc_re(jac) <= 0.0 || tc_re(ft_det(fa)) <= 0.0) {
         jl_fail(report, "j2-log: det F <= 0");
         return;
     }
@@ -441,10 +416,10 @@ static void jl_point(const tc_finite_call *call, const tc_real *properties, cons
         ee2[JL_J[s]][JL_I[s]] = 2.0 * state0[s];
     }
     tc_real alpha_n = state0[6];
-    jl_inverse(fa, t);
-    jl_mul(fb, t, fr);
+    ft_inverse(fa, t);
+    ft_mul(fb, t, fr);
     jl_exp(ee2, bn);
-    jl_mul(fr, bn, t);
+    ft_mul(fr, bn, t);
     for (int i = 0; i < 3; ++i)
         for (int j = 0; j < 3; ++j) btr[i][j] = t[i][0] * fr[j][0] + t[i][1] * fr[j][1] + t[i][2] * fr[j][2];
     jl_log(btr, etr);
@@ -494,7 +469,7 @@ static void jl_point(const tc_finite_call *call, const tc_real *properties, cons
             r.f[i][j] = tc_re(fb[i][j]);
             r.n[i][j] = plastic ? tc_re(dev[i][j]) / sqrt(tc_re(dd)) : 0.0;
         }
-    jl_inverse(fb, t);
+    ft_inverse(fb, t);
     for (int i = 0; i < 3; ++i)
         for (int j = 0; j < 3; ++j) r.fi[i][j] = tc_re(t[i][j]);
     if (plastic) {

@@ -1,7 +1,9 @@
 /*
- * isotropic_elastic.h -- pieces shared by the elastic examples (elastic.c, probe_zoo.c): a
- * failed status with "<model>: <text>" as its message, and the isotropic elastic stiffness of
- * every solid kind. Include it after tancheck_routine.h (tc_real is real or complex).
+ * isotropic_elastic.h -- pieces shared by the elastic examples (elastic.c, probe_zoo.c,
+ * misbehave.c) and the orthotropic ones (orthotropic.c, ply.c): a failed status with
+ * "<model>: <text>" as its message, the isotropic elastic stiffness of every solid kind, and the
+ * response of a linear elastic routine to its stiffness.
+ * Include it after tancheck_routine.h (tc_real is real or complex).
  */
 #ifndef ISOTROPIC_ELASTIC_H
 #define ISOTROPIC_ELASTIC_H
@@ -56,6 +58,37 @@ static inline void ex_isotropic_stiffness(int n, tc_real e, tc_real nu, tc_real 
     for (int i = 3; i < n; ++i) {
         c[i + i * n] = mu;
     }
+}
+
+/*
+ * The rest of a linear elastic call, once the tangent holds the stiffness C (column-major,
+ * n = ncomp): sigma = sigma0 + C dstrain, the stored energy 1/2 sigma . (strain + dstrain) (the
+ * work-conjugate product with engineering shear), no dissipation, the state carried through,
+ * branch 0 and status ok.
+ */
+static inline void ex_linear_response(const tc_call *call, const tc_real *strain, const tc_real *dstrain,
+                                      const tc_real *stress0, const tc_real *state0, const tc_real *tangent,
+                                      tc_real *stress, tc_real *state, tc_energy *energy, tc_report *report)
+{
+    const int n = call->ncomp;
+    tc_real stored = 0.0;
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) {
+            s += tangent[i + j * n] * dstrain[j];
+        }
+        stress[i] = s;
+        stored += s * (strain[i] + dstrain[i]);
+    }
+    for (int k = 0; k < call->nstate; ++k) {
+        state[k] = state0[k];
+    }
+
+    energy->stored = 0.5 * stored;
+    energy->dissipated = 0.0;
+    report->provides = TC_PROVIDES_ENERGY;
+    report->branch = 0;
+    report->status = TC_STATUS_OK;
 }
 
 #endif

@@ -52,11 +52,9 @@ static void j2_update(const tc_call *call, const tc_real *properties, const tc_r
     }
 
     const double sqrt23 = sqrt(2.0 / 3.0);
-    const tc_real e = properties[J2_E];
-    const tc_real nu = properties[J2_NU];
     const tc_real h_kin = properties[J2_H_KIN];
-    const tc_real mu = e / (2.0 * (1.0 + nu));
-    const tc_real kappa = e / (3.0 * (1.0 - 2.0 * nu));
+    tc_real mu, kappa;
+    j2_elastic_moduli(properties, &mu, &kappa);
     const tc_real alpha_n = state0[n];
 
     /* Trial state and trial yield function f_tr = |xi_tr| - sqrt(2/3) K(alpha_n). */
@@ -76,13 +74,7 @@ static void j2_update(const tc_call *call, const tc_real *properties, const tc_r
 
     if (tc_re(f_trial) <= 0.0 || tc_re(norm) <= 0.0) {
         /* Elastic step: the trial state is the solution. */
-        for (int i = 0; i < n; ++i) {
-            stress[i] = sigma_tr[i];
-        }
-        for (int k = 0; k < 2 * n + 1; ++k) {
-            state[k] = state0[k];
-        }
-        report->branch = 0;
+        j2_elastic_step(n, 2 * n + 1, sigma_tr, state0, stress, state, report);
     } else {
         tc_real dgamma;
         const int converged = j2_newton(properties, norm, mu, h_kin, alpha_n, &dgamma);

@@ -39,6 +39,30 @@ static tc_real j2_yield_slope(const tc_real *properties, tc_real alpha)
     return properties[J2_H_ISO] + properties[J2_Q] * properties[J2_B] * tc_exp(-properties[J2_B] * alpha);
 }
 
+/* The elastic moduli of the properties: shear modulus mu = E / (2 (1 + nu)) and bulk modulus
+ * kappa = E / (3 (1 - 2 nu)). */
+static void j2_elastic_moduli(const tc_real *properties, tc_real *mu, tc_real *kappa)
+{
+    const tc_real e = properties[J2_E];
+    const tc_real nu = properties[J2_NU];
+    *mu = e / (2.0 * (1.0 + nu));
+    *kappa = e / (3.0 * (1.0 - 2.0 * nu));
+}
+
+/* An elastic step: the trial stress is the solution and the first nkeep state variables are
+ * carried through unchanged; branch 0. */
+static void j2_elastic_step(int n, int nkeep, const tc_real *sigma_tr, const tc_real *state0, tc_real *stress,
+                            tc_real *state, tc_report *report)
+{
+    for (int i = 0; i < n; ++i) {
+        stress[i] = sigma_tr[i];
+    }
+    for (int k = 0; k < nkeep; ++k) {
+        state[k] = state0[k];
+    }
+    report->branch = 0;
+}
+
 /* Status FAILED with the message "<name>: <text>", cut to fit and NUL-terminated. */
 static void j2_fail_as(tc_report *report, const char *name, const char *text)
 {

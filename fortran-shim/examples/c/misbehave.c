@@ -56,39 +56,16 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
+#include "isotropic_elastic.h"
 
-/* Elastic stiffness, column-major c[i + j*n], engineering shear columns (Hughes 2000,
- * The Finite Element Method, ch. 2; chapter from memory). Returns 0 for an ncomp it does not know. */
+/* The isotropic elastic stiffness of isotropic_elastic.h, column-major c[i + j*n]. Returns 0
+ * for an ncomp it does not know. */
 static int misbehave_stiffness(int n, tc_real e, tc_real nu, tc_real *c)
 {
     if (n != 6 && n != 4 && n != 3 && n != 1) {
         return 0;
     }
-    for (int k = 0; k < n * n; ++k) {
-        c[k] = 0.0;
-    }
-    if (n == 1) {
-        c[0] = e;
-    } else if (n == 3) {
-        tc_real f = e / (1.0 - nu * nu);
-        c[0 + 0 * 3] = f;
-        c[1 + 1 * 3] = f;
-        c[0 + 1 * 3] = f * nu;
-        c[1 + 0 * 3] = f * nu;
-        c[2 + 2 * 3] = f * (1.0 - nu) / 2.0;
-    } else {
-        tc_real mu = e / (2.0 * (1.0 + nu));
-        tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-        for (int i = 0; i < 3; ++i) {
-            for (int j = 0; j < 3; ++j) {
-                c[i + j * n] = lambda;
-            }
-            c[i + i * n] = lambda + 2.0 * mu;
-        }
-        for (int i = 3; i < n; ++i) {
-            c[i + i * n] = mu;
-        }
-    }
+    ex_isotropic_stiffness(n, e, nu, c);
     return 1;
 }
 

@@ -22,6 +22,8 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
+#include "isotropic_elastic.h"
+#include "material_axes.h"
 
 enum { OR_E1, OR_E2, OR_E3, OR_NU12, OR_NU13, OR_NU23, OR_G12, OR_G13, OR_G23, OR_A1 = 9,
        OR_A2 = 12, OR_NPROP = 15 };
@@ -29,68 +31,22 @@ enum { OR_E1, OR_E2, OR_E3, OR_NU12, OR_NU13, OR_NU23, OR_G12, OR_G13, OR_G23, O
 /* Below this |a2 - (a2.e1) e1| / |a2| the two axes count as parallel. */
 #define OR_PARALLEL_TOL 1e-8
 
-/* Tensor indices (i, j) of the canonical slots 11, 22, 33, 23, 13, 12. */
-static const int or_pairs[6][2] = {{0, 0}, {1, 1}, {2, 2}, {1, 2}, {0, 2}, {0, 1}};
-
-static void or_fail(tc_report *report, const char *text)
-{
-    report->status = TC_STATUS_FAILED;
-    /* "<model>: <text>" into the report's message, cut to fit and NUL-terminated. */
-    const char *parts[2] = {"orthotropic: ", text};
-    int k = 0;
-    for (int p = 0; p < 2; ++p) {
-        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
-            report->message[k++] = *c;
-        }
-    }
-    report->message[k] = '\0';
-}
-
-/* Mandel weight of a canonical slot: 1 normal, sqrt(2) shear. */
-static double or_weight(int slot) { return slot < 3 ? 1.0 : sqrt(2.0); }
+static void or_fail(tc_report *report, const char *text) { ex_fail(report, "orthotropic", text); }
 
 /* The orthonormal material axes as the columns of r (r[i][a] = component i of axis a).
  * Returns 0 after reporting a failure. */
 static int or_axes(const tc_real *properties, tc_real r[3][3], tc_report *report)
 {
-    const tc_real *a1 = properties + OR_A1;
-    const tc_real *a2 = properties + OR_A2;
-    int finite = 1;
-    for (int k = 0; k < 3; ++k) {
-        finite = finite && isfinite(tc_re(a1[k])) && isfinite(tc_re(a2[k]));
-    }
-    const tc_real n1 = a1[0] * a1[0] + a1[1] * a1[1] + a1[2] * a1[2];
-    if (!finite || !(tc_re(n1) > 0.0)) {
+    switch (ma_axes(properties + OR_A1, properties + OR_A2, OR_PARALLEL_TOL * OR_PARALLEL_TOL, r)) {
+    case 1:
         or_fail(report, "axis 1 (properties[9..12]) must be a finite nonzero vector");
         return 0;
-    }
-    const tc_real l1 = tc_sqrt(n1);
-    tc_real e1[3], b[3], e2[3];
-    for (int k = 0; k < 3; ++k) {
-        e1[k] = a1[k] / l1;
-    }
-    const tc_real p = a2[0] * e1[0] + a2[1] * e1[1] + a2[2] * e1[2];
-    for (int k = 0; k < 3; ++k) {
-        b[k] = a2[k] - p * e1[k];
-    }
-    const tc_real nb = b[0] * b[0] + b[1] * b[1] + b[2] * b[2];
-    const double n2 = tc_re(a2[0] * a2[0] + a2[1] * a2[1] + a2[2] * a2[2]);
-    if (!(tc_re(nb) > 0.0) || tc_re(nb) <= OR_PARALLEL_TOL * OR_PARALLEL_TOL * n2) {
+    case 2:
         or_fail(report, "axis 2 (properties[12..15]) must be nonzero and not parallel to axis 1");
         return 0;
+    default:
+        return 1;
     }
-    const tc_real lb = tc_sqrt(nb);
-    for (int k = 0; k < 3; ++k) {
-        e2[k] = b[k] / lb;
-    }
-    const tc_real e3[3] = {e1[1] * e2[2] - e1[2] * e2[1], e1[2] * e2[0] - e1[0] * e2[2],
-                           e1[0] * e2[1] - e1[1] * e2[0]};
-    for (int i = 0; i < 3; ++i) {
-        r[i][0] = e1[i];
-        r[i][1] = e2[i];
-        r[i][2] = e3[i];
-    }
-    return 1;
 }
 
 /* The material stiffness in canonical Voigt order, engineering-shear columns: the inverse of
@@ -157,38 +113,17 @@ static int or_global(const tc_real *properties, tc_real c[6][6], tc_report *repo
     if (!or_material(properties, cmat, report) || !or_axes(properties, r, report)) {
         return 0;
     }
-    for (int bi = 0; bi < 6; ++bi) {
-        const int i = or_pairs[bi][0], j = or_pairs[bi][1];
-        for (int bk = 0; bk < 6; ++bk) {
-            const int k = or_pairs[bk][0], l = or_pairs[bk][1];
-            tc_real v = r[i][k] * r[j][l];
-            if (k != l) {
-                v += r[i][l] * r[j][k];
-            }
-            q[bi][bk] = v * (or_weight(bi) / or_weight(bk));
-        }
-    }
+    ma_rotation(r, q);
     for (int a = 0; a < 6; ++a) {
         for (int b = 0; b < 6; ++b) {
-            cmat[a][b] = cmat[a][b] * (or_weight(a) * or_weight(b));
+            cmat[a][b] = cmat[a][b] * (ma_weight(a) * ma_weight(b));
         }
     }
+    ma_product(q, cmat, 0, qc);
+    ma_product(qc, q, 1, c);
     for (int a = 0; a < 6; ++a) {
         for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int k = 0; k < 6; ++k) {
-                s += q[a][k] * cmat[k][b];
-            }
-            qc[a][b] = s;
-        }
-    }
-    for (int a = 0; a < 6; ++a) {
-        for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int k = 0; k < 6; ++k) {
-                s += qc[a][k] * q[b][k];
-            }
-            c[a][b] = s / (or_weight(a) * or_weight(b));
+            c[a][b] = c[a][b] / (ma_weight(a) * ma_weight(b));
         }
     }
     return 1;
@@ -217,24 +152,10 @@ TC_ROUTINE(c_orthotropic)
         return;
     }
 
-    tc_real stored = 0.0;
-    for (int i = 0; i < n; ++i) {
-        tc_real s = stress0[i];
-        for (int j = 0; j < n; ++j) {
-            const tc_real cij = c[slots[i]][slots[j]];
-            tangent[i + j * n] = cij;
-            s += cij * dstrain[j];
+    for (int j = 0; j < n; ++j) {
+        for (int i = 0; i < n; ++i) {
+            tangent[i + j * n] = c[slots[i]][slots[j]];
         }
-        stress[i] = s;
-        stored += s * (strain[i] + dstrain[i]);
     }
-    for (int k = 0; k < call->nstate; ++k) {
-        state[k] = state0[k];
-    }
-
-    energy->stored = 0.5 * stored;
-    energy->dissipated = 0.0;
-    report->provides = TC_PROVIDES_ENERGY;
-    report->branch = 0;
-    report->status = TC_STATUS_OK;
+    ex_linear_response(call, strain, dstrain, stress0, state0, tangent, stress, state, energy, report);
 }

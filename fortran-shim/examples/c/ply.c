@@ -24,69 +24,25 @@
 
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
+#include "isotropic_elastic.h"
+#include "material_axes.h"
 
 enum { PL_XT = 15, PL_G = 20, PL_L = 24, PL_ETA = 25, PL_NPROP = 26, PL_NSTATE = 8 };
 enum { PL_FT, PL_FC, PL_MT, PL_MC };
 enum { FLAW_NONE, FLAW_SECANT, FLAW_NO_COUPLING, FLAW_VISCOUS_NO_FACTOR, FLAW_LENGTH_DROPPED,
        FLAW_HEALING };
 
-static const int pl_pairs[6][2] = {{0, 0}, {1, 1}, {2, 2}, {1, 2}, {0, 2}, {0, 1}};
 static const char *const pl_mode_names[4] = {"fibre tension", "fibre compression",
                                              "matrix tension", "matrix compression"};
 
-static void pl_fail(tc_report *report, const char *text)
-{
-    report->status = TC_STATUS_FAILED;
-    const char *parts[2] = {"ply: ", text};
-    int k = 0;
-    for (int p = 0; p < 2; ++p) {
-        for (const char *c = parts[p]; *c != '\0' && k < TC_MESSAGE_LEN - 1; ++c) {
-            report->message[k++] = *c;
-        }
-    }
-    report->message[k] = '\0';
-}
-
-static double pl_w(int slot) { return slot < 3 ? 1.0 : sqrt(2.0); }
+static void pl_fail(tc_report *report, const char *text) { ex_fail(report, "ply", text); }
 
 /* Orthonormal axes (columns of r) by Gram-Schmidt, as the orthotropic routine. */
 static int pl_axes(const tc_real *properties, tc_real r[3][3], tc_report *report)
 {
-    const tc_real *a1 = properties + 9, *a2 = properties + 12;
-    const tc_real n1 = a1[0] * a1[0] + a1[1] * a1[1] + a1[2] * a1[2];
-    int finite = 1;
-    for (int k = 0; k < 3; ++k) {
-        finite = finite && isfinite(tc_re(a1[k])) && isfinite(tc_re(a2[k]));
-    }
-    if (!finite || !(tc_re(n1) > 0.0)) {
+    if (ma_axes(properties + 9, properties + 12, 1e-16, r) != 0) {
         pl_fail(report, "material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
         return 0;
-    }
-    const tc_real l1 = tc_sqrt(n1);
-    tc_real e1[3], b[3], e2[3];
-    for (int k = 0; k < 3; ++k) {
-        e1[k] = a1[k] / l1;
-    }
-    const tc_real p = a2[0] * e1[0] + a2[1] * e1[1] + a2[2] * e1[2];
-    for (int k = 0; k < 3; ++k) {
-        b[k] = a2[k] - p * e1[k];
-    }
-    const tc_real nb = b[0] * b[0] + b[1] * b[1] + b[2] * b[2];
-    const double n2 = tc_re(a2[0] * a2[0] + a2[1] * a2[1] + a2[2] * a2[2]);
-    if (!(tc_re(nb) > 0.0) || tc_re(nb) <= 1e-16 * n2) {
-        pl_fail(report, "material axes a1 (properties[9..12]) and a2 (properties[12..15]) must be nonzero, not parallel");
-        return 0;
-    }
-    const tc_real lb = tc_sqrt(nb);
-    for (int k = 0; k < 3; ++k) {
-        e2[k] = b[k] / lb;
-    }
-    const tc_real e3[3] = {e1[1] * e2[2] - e1[2] * e2[1], e1[2] * e2[0] - e1[0] * e2[2],
-                           e1[0] * e2[1] - e1[1] * e2[0]};
-    for (int i = 0; i < 3; ++i) {
-        r[i][0] = e1[i];
-        r[i][1] = e2[i];
-        r[i][2] = e3[i];
     }
     return 1;
 }
@@ -225,21 +181,11 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
 
     /* Strain rotation T (e_m = T e, sigma = T^T sigma_m) from the Mandel rotation Q. */
     tc_real q[6][6], t[6][6];
-    for (int bi = 0; bi < 6; ++bi) {
-        const int i = pl_pairs[bi][0], j = pl_pairs[bi][1];
-        for (int bk = 0; bk < 6; ++bk) {
-            const int k = pl_pairs[bk][0], l = pl_pairs[bk][1];
-            tc_real v = r[i][k] * r[j][l];
-            if (k != l) {
-                v += r[i][l] * r[j][k];
-            }
-            q[bi][bk] = v * (pl_w(bi) / pl_w(bk));
-        }
-    }
+    ma_rotation(r, q);
     for (int a = 0; a < 6; ++a) {
         for (int b = 0; b < 6; ++b) {
             /* u = 1/w: T_ab = Q_ba u_b / u_a = Q_ba w_a / w_b. */
-            t[a][b] = q[b][a] * (pl_w(a) / pl_w(b));
+            t[a][b] = q[b][a] * (ma_weight(a) / ma_weight(b));
         }
     }
     tc_real eg[6] = {0, 0, 0, 0, 0, 0}, em[6], st[6];
@@ -370,15 +316,7 @@ static void pl_update(int flaw, const tc_call *call, const tc_real *p, const tc_
         }
     }
     tc_real kt[6][6];
-    for (int a = 0; a < 6; ++a) {
-        for (int b = 0; b < 6; ++b) {
-            tc_real s = 0.0;
-            for (int o = 0; o < 6; ++o) {
-                s += km[a][o] * t[o][b];
-            }
-            kt[a][b] = s;
-        }
-    }
+    ma_product(km, t, 0, kt);
     for (int i = 0; i < n; ++i) {
         const int si = slots[i];
         tc_real s = 0.0;

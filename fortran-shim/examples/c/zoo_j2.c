@@ -132,11 +132,9 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     }
 
     const double sqrt23 = sqrt(2.0 / 3.0);
-    const tc_real e = properties[J2_E];
-    const tc_real nu = properties[J2_NU];
     const tc_real h_kin = properties[J2_H_KIN];
-    const tc_real mu = e / (2.0 * (1.0 + nu));
-    const tc_real kappa = e / (3.0 * (1.0 - 2.0 * nu));
+    tc_real mu, kappa;
+    j2_elastic_moduli(properties, &mu, &kappa);
     const tc_real *eps_p_n = state0;
     const tc_real alpha_n = state0[n];
     const tc_real *beta_n = state0 + n + 1;
@@ -158,13 +156,7 @@ static void zj_update(const char *name, zj_flaw flaw, const tc_call *call, const
     }
 
     if (tc_re(f_trial) <= 0.0 || tc_re(norm) <= 0.0) {
-        for (int i = 0; i < n; ++i) {
-            stress[i] = sigma_tr[i];
-        }
-        for (int k = 0; k < nj2; ++k) {
-            state[k] = state0[k];
-        }
-        report->branch = 0;
+        j2_elastic_step(n, nj2, sigma_tr, state0, stress, state, report);
     } else {
         /* The radial return of j2.c; the flaw "no kinematic" drops H_kin from theta_bar. */
         tc_real dgamma;

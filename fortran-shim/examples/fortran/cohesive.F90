@@ -30,182 +30,37 @@
 ! G_c (lambda(d) - lambda(d_n)) / (dfm - d0m), lambda(d) = dfm d0m / (dfm - d (dfm - d0m)).
 ! dstress_dtemp is not written (the routine does not provide it).
 !
-! The four routines share one update, cohesive_update.inc, included as internal procedures of
-! each (as j2.F90 does), so that the real and the complex build export no clashing symbols.
+! The five routines share one entry, cohesive_variant.inc (the flaw code is its only difference),
+! which calls the one update, cohesive_update.inc, included as internal procedures of each (as
+! j2.F90 does), so that the real and the complex build export no clashing symbols.
 !
 ! Build (after compiling the modules tancheck_routine and tancheck_cstep):
-!   gfortran -cpp -I fortran-shim/include -c cohesive.F90               exports the four routines
+!   gfortran -cpp -I fortran-shim/include -c cohesive.F90               exports the five routines
 !   gfortran -cpp -I fortran-shim/include -DTC_COMPLEX -c cohesive.F90  exports them with _cx
 
 #include "tancheck_twin.inc"
 
-subroutine f_cohesive(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
-                       tangent, dstress_dtemp, energy, report) bind(C, name="f_cohesive"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_energy
-  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
+#define TC_VARIANT f_cohesive
+#define TC_VARIANT_NAME "f_cohesive"
+#define TC_FLAW 0
+#include "cohesive_variant.inc"
 
-  ! The ABI passes these, but this isothermal, total-form model reads neither temperature nor
-  ! stress0 and does not write dstress_dtemp. Naming them in a namelist that is never read or
-  ! written tells gfortran -Wall (-Wunused-dummy-argument) that this is deliberate; it
-  ! generates no code.
-  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
+#define TC_VARIANT f_cohesive_secant
+#define TC_VARIANT_NAME "f_cohesive_secant"
+#define TC_FLAW 1
+#include "cohesive_variant.inc"
 
-  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
-                       energy, report, 0)
+#define TC_VARIANT f_cohesive_no_coupling
+#define TC_VARIANT_NAME "f_cohesive_no_coupling"
+#define TC_FLAW 2
+#include "cohesive_variant.inc"
 
-contains
+#define TC_VARIANT f_cohesive_transposed
+#define TC_VARIANT_NAME "f_cohesive_transposed"
+#define TC_FLAW 3
+#include "cohesive_variant.inc"
 
-#include "cohesive_update.inc"
-
-end subroutine f_cohesive
-
-
-subroutine f_cohesive_secant(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
-                             state, tangent, dstress_dtemp, energy, report) &
-                             bind(C, name="f_cohesive_secant"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_energy
-  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_cohesive.
-  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
-
-  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
-                       energy, report, 1)
-
-contains
-
-#include "cohesive_update.inc"
-
-end subroutine f_cohesive_secant
-
-
-subroutine f_cohesive_no_coupling(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
-                                  state, tangent, dstress_dtemp, energy, report) &
-                                  bind(C, name="f_cohesive_no_coupling"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_energy
-  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_cohesive.
-  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
-
-  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
-                       energy, report, 2)
-
-contains
-
-#include "cohesive_update.inc"
-
-end subroutine f_cohesive_no_coupling
-
-
-subroutine f_cohesive_transposed(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
-                                 state, tangent, dstress_dtemp, energy, report) &
-                                 bind(C, name="f_cohesive_transposed"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_energy
-  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_cohesive.
-  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
-
-  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
-                       energy, report, 3)
-
-contains
-
-#include "cohesive_update.inc"
-
-end subroutine f_cohesive_transposed
-
-
-subroutine f_cohesive_symmetrized(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, &
-                                  state, tangent, dstress_dtemp, energy, report) &
-                                  bind(C, name="f_cohesive_symmetrized"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_energy
-  use tancheck_cstep, only: cs_abs, cs_sqrt, cs_exp, cs_log
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_cohesive.
-  namelist /unused_arguments/ temperature, stress0, dstress_dtemp
-
-  call cohesive_update(callinfo, properties, strain, dstrain, state0, stress, state, tangent, &
-                       energy, report, 4)
-
-contains
-
-#include "cohesive_update.inc"
-
-end subroutine f_cohesive_symmetrized
+#define TC_VARIANT f_cohesive_symmetrized
+#define TC_VARIANT_NAME "f_cohesive_symmetrized"
+#define TC_FLAW 4
+#include "cohesive_variant.inc"

@@ -28,40 +28,32 @@
 
 module HYPO_IMPL
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_set_message, tc_status_failed
+  use tancheck_routine, only: tc_report, tc_temperature, tc_energy, tc_set_message, tc_status_failed
   use tancheck_finite, only: tc_finite_call, tc_stress_kirchhoff, tc_tangent_tau_jaumann
   implicit none
   private
-  public :: hypo_point
+  public :: hypo_entry, hypo_none, hypo_no_rotation
 
   integer, parameter :: ii(6) = [1, 2, 3, 2, 1, 1], jj(6) = [1, 2, 3, 3, 3, 2]
+  ! The flaw codes of hypo_entry: none, or the start stress never rotated.
+  integer, parameter :: hypo_none = 0, hypo_no_rotation = 1
 
 contains
 
-  pure function inv3(a) result(r)
-    TC_REAL, intent(in) :: a(3, 3)
-    TC_REAL :: r(3, 3), d
-    d = a(1, 1) * (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) - a(1, 2) * (a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) &
-        + a(1, 3) * (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1))
-    r(1, 1) = (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) / d
-    r(1, 2) = -(a(1, 2) * a(3, 3) - a(1, 3) * a(3, 2)) / d
-    r(1, 3) = (a(1, 2) * a(2, 3) - a(1, 3) * a(2, 2)) / d
-    r(2, 1) = -(a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) / d
-    r(2, 2) = (a(1, 1) * a(3, 3) - a(1, 3) * a(3, 1)) / d
-    r(2, 3) = -(a(1, 1) * a(2, 3) - a(1, 3) * a(2, 1)) / d
-    r(3, 1) = (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1)) / d
-    r(3, 2) = -(a(1, 1) * a(3, 2) - a(1, 2) * a(3, 1)) / d
-    r(3, 3) = (a(1, 1) * a(2, 2) - a(1, 2) * a(2, 1)) / d
-  end function inv3
+  ! The whole argument list of a finite-strain routine, for finite_entry.inc. Isothermal and
+  ! without energies; no state changes.
+  subroutine hypo_entry(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                        tangent, energy, report, flaw)
+#include "finite_entry_args.inc"
+    integer, intent(in) :: flaw
+    namelist /unused_arguments/ temperature, energy
+    state = state0
+    call hypo_point(callinfo, properties, f0, f1, rotation, stress0, stress, tangent, report, &
+                    flaw /= hypo_no_rotation)
+  end subroutine hypo_entry
 
-  pure function eye() result(r)
-    TC_REAL :: r(3, 3)
-    integer :: p
-    r = 0.0_c_double
-    do p = 1, 3
-      r(p, p) = 1.0_c_double
-    end do
-  end function eye
+#include "finite_tensor.inc"
+#include "lame.inc"
 
   ! C : sym(a) = lambda tr(a) I + mu (a + a^T)
   pure function elastic(lambda, mu, a) result(r)
@@ -82,7 +74,7 @@ contains
     TC_REAL, intent(inout) :: tangent(6, 6)
     type(tc_report), intent(inout) :: report
     logical, intent(in) :: rotate
-    TC_REAL :: e, nu, lambda, mu, fhi(3, 3), g(3, 3), q(3, 3), tau0(3, 3), t1(3, 3), m(3, 3)
+    TC_REAL :: lambda, mu, fhi(3, 3), g(3, 3), q(3, 3), tau0(3, 3), t1(3, 3), m(3, 3)
     TC_REAL :: nmat(3, 3), ai(3, 3), qp(3, 3), d(3, 3), dg(3, 3), dq(3, 3), x(3, 3), dtau(3, 3)
     integer :: s, c
 
@@ -91,10 +83,7 @@ contains
       call tc_set_message(report, "hypo-jaumann: Kirchhoff stress and the tau-jaumann tangent only")
       return
     end if
-    e = properties(1)
-    nu = properties(2)
-    lambda = e * nu / ((1.0_c_double + nu) * (1.0_c_double - 2.0_c_double * nu))
-    mu = e / (2.0_c_double * (1.0_c_double + nu))
+    call lame(properties(1), properties(2), lambda, mu)
     if (rotate) then
       q = rotation
     else
@@ -133,46 +122,16 @@ contains
   end subroutine hypo_point
 end module HYPO_IMPL
 
-subroutine f_hypo(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-                  tangent, energy, report) bind(C, name="f_hypo"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use HYPO_IMPL, only: hypo_point
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(6, 6)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Isothermal and without energies.
-  namelist /unused_arguments/ temperature, energy
-  state = state0
-  call hypo_point(callinfo, properties, f0, f1, rotation, stress0, stress, tangent, report, .true.)
-end subroutine f_hypo
+! The exported routines (finite_entry.inc): each hands its arguments to hypo_entry with its flaw.
+#define TC_MODEL_MODULE HYPO_IMPL
+#define TC_MODEL hypo_entry
 
-subroutine f_hypo_no_rotation(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, &
-                              state, tangent, energy, report) bind(C, name="f_hypo_no_rotation"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use HYPO_IMPL, only: hypo_point
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(6, 6)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Isothermal and without energies.
-  namelist /unused_arguments/ temperature, energy
-  state = state0
-  call hypo_point(callinfo, properties, f0, f1, rotation, stress0, stress, tangent, report, .false.)
-end subroutine f_hypo_no_rotation
+#define TC_VARIANT f_hypo
+#define TC_VARIANT_NAME "f_hypo"
+#define TC_FLAW hypo_none
+#include "finite_entry.inc"
+
+#define TC_VARIANT f_hypo_no_rotation
+#define TC_VARIANT_NAME "f_hypo_no_rotation"
+#define TC_FLAW hypo_no_rotation
+#include "finite_entry.inc"

@@ -51,15 +51,7 @@ contains
 
 subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
                     tangent, energy, report, flaw)
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
+#include "finite_entry_args.inc"
   integer, intent(in) :: flaw
 
   ! Rate-independent and driven by F: the rotation, temperature and start stress are not used.
@@ -162,36 +154,7 @@ subroutine j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0
 
 contains
 
-  pure function det3(a) result(d)
-    TC_REAL, intent(in) :: a(3, 3)
-    TC_REAL :: d
-    d = a(1, 1) * (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) - a(1, 2) * (a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) &
-        + a(1, 3) * (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1))
-  end function det3
-
-  pure function inv3(a) result(r)
-    TC_REAL, intent(in) :: a(3, 3)
-    TC_REAL :: r(3, 3), d
-    d = det3(a)
-    r(1, 1) = (a(2, 2) * a(3, 3) - a(2, 3) * a(3, 2)) / d
-    r(1, 2) = -(a(1, 2) * a(3, 3) - a(1, 3) * a(3, 2)) / d
-    r(1, 3) = (a(1, 2) * a(2, 3) - a(1, 3) * a(2, 2)) / d
-    r(2, 1) = -(a(2, 1) * a(3, 3) - a(2, 3) * a(3, 1)) / d
-    r(2, 2) = (a(1, 1) * a(3, 3) - a(1, 3) * a(3, 1)) / d
-    r(2, 3) = -(a(1, 1) * a(2, 3) - a(1, 3) * a(2, 1)) / d
-    r(3, 1) = (a(2, 1) * a(3, 2) - a(2, 2) * a(3, 1)) / d
-    r(3, 2) = -(a(1, 1) * a(3, 2) - a(1, 2) * a(3, 1)) / d
-    r(3, 3) = (a(1, 1) * a(2, 2) - a(1, 2) * a(2, 1)) / d
-  end function inv3
-
-  pure function eye() result(r)
-    TC_REAL :: r(3, 3)
-    integer :: p
-    r = 0.0_c_double
-    do p = 1, 3
-      r(p, p) = 1.0_c_double
-    end do
-  end function eye
+#include "finite_tensor.inc"
 
   ! Square root of an SPD tensor, Denman-Beavers; stops on real parts, then two more.
   function sqrtm(a) result(y)
@@ -262,8 +225,8 @@ contains
     real(c_double), intent(in) :: a(3, 3)
     real(c_double), intent(out) :: w(3), v(3, 3)
     integer, parameter :: pp(3) = [1, 1, 2], rr(3) = [2, 3, 3]
-    real(c_double) :: b(3, 3), th, t, c, sn, x1, x2
-    integer :: sweep, kk, p, r, l
+    real(c_double) :: b(3, 3), th, t, c, sn
+    integer :: sweep, kk, p, r
     b = a
     v = real(eye(), c_double)
     do sweep = 1, 60
@@ -281,28 +244,27 @@ contains
         end if
         c = 1.0_c_double / sqrt(t * t + 1.0_c_double)
         sn = t * c
-        do l = 1, 3
-          x1 = b(l, p)
-          x2 = b(l, r)
-          b(l, p) = c * x1 - sn * x2
-          b(l, r) = sn * x1 + c * x2
-        end do
-        do l = 1, 3
-          x1 = b(p, l)
-          x2 = b(r, l)
-          b(p, l) = c * x1 - sn * x2
-          b(r, l) = sn * x1 + c * x2
-        end do
-        do l = 1, 3
-          x1 = v(l, p)
-          x2 = v(l, r)
-          v(l, p) = c * x1 - sn * x2
-          v(l, r) = sn * x1 + c * x2
-        end do
+        call rotate_pair(b(:, p), b(:, r), c, sn)
+        call rotate_pair(b(p, :), b(r, :), c, sn)
+        call rotate_pair(v(:, p), v(:, r), c, sn)
       end do
     end do
     w = [b(1, 1), b(2, 2), b(3, 3)]
   end subroutine eigen
+
+  ! One Jacobi rotation of the pair (x, y) of columns or rows: x = c x - sn y, y = sn x + c y.
+  pure subroutine rotate_pair(x, y, c, sn)
+    real(c_double), intent(inout) :: x(3), y(3)
+    real(c_double), intent(in) :: c, sn
+    real(c_double) :: x1, x2
+    integer :: l
+    do l = 1, 3
+      x1 = x(l)
+      x2 = y(l)
+      x(l) = c * x1 - sn * x2
+      y(l) = sn * x1 + c * x2
+    end do
+  end subroutine rotate_pair
 
   pure function rinv3(a) result(r)
     real(c_double), intent(in) :: a(3, 3)
@@ -447,62 +409,21 @@ contains
 end subroutine j2_point
 end module J2_IMPL
 
-subroutine f_j2log(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_j2log"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use J2_IMPL, only: j2_point, j2_none
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-                tangent, energy, report, j2_none)
-end subroutine f_j2log
+! The exported routines (finite_entry.inc): each hands its arguments to j2_point with its flaw.
+#define TC_MODEL_MODULE J2_IMPL
+#define TC_MODEL j2_point
 
-subroutine f_j2log_material_as_spatial(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_j2log_material_as_spatial"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use J2_IMPL, only: j2_point, j2_material_as_spatial
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-                tangent, energy, report, j2_material_as_spatial)
-end subroutine f_j2log_material_as_spatial
+#define TC_VARIANT f_j2log
+#define TC_VARIANT_NAME "f_j2log"
+#define TC_FLAW j2_none
+#include "finite_entry.inc"
 
-subroutine f_j2log_geometric_missing(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_j2log_geometric_missing"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use J2_IMPL, only: j2_point, j2_geometric_missing
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  call j2_point(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-                tangent, energy, report, j2_geometric_missing)
-end subroutine f_j2log_geometric_missing
+#define TC_VARIANT f_j2log_material_as_spatial
+#define TC_VARIANT_NAME "f_j2log_material_as_spatial"
+#define TC_FLAW j2_material_as_spatial
+#include "finite_entry.inc"
+
+#define TC_VARIANT f_j2log_geometric_missing
+#define TC_VARIANT_NAME "f_j2log_geometric_missing"
+#define TC_FLAW j2_geometric_missing
+#include "finite_entry.inc"

@@ -27,19 +27,31 @@
 
 module NH_IMPL
   use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_energy, tc_set_message, tc_status_failed, tc_provides_energy
+  use tancheck_routine, only: tc_report, tc_temperature, tc_energy, tc_set_message, tc_status_failed, &
+                              tc_provides_energy
   use tancheck_finite, only: tc_finite_call, tc_stress_cauchy, tc_tangent_tau_jaumann, &
                              tc_tangent_sigma_jaumann, tc_tangent_tau_truesdell, tc_tangent_sigma_truesdell
   use tancheck_cstep, only: cs_log
   implicit none
   private
-  public :: nh_point, nh_none, nh_truesdell_for_jaumann, nh_missing_over_j, nh_extra_over_j, &
+  public :: nh_entry, nh_none, nh_truesdell_for_jaumann, nh_missing_over_j, nh_extra_over_j, &
             nh_cauchy_for_kirchhoff, nh_kirchhoff_for_cauchy
 
   integer, parameter :: nh_none = 0, nh_truesdell_for_jaumann = 1, nh_missing_over_j = 2, &
                         nh_extra_over_j = 3, nh_cauchy_for_kirchhoff = 4, nh_kirchhoff_for_cauchy = 5
 
 contains
+
+  ! The whole argument list of a finite-strain routine, for finite_entry.inc. Hyperelastic: the
+  ! start configuration, rotation, temperature and start stress are not used; no state changes.
+  subroutine nh_entry(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
+                      tangent, energy, report, flaw)
+#include "finite_entry_args.inc"
+    integer, intent(in) :: flaw
+    namelist /unused_arguments/ f0, rotation, temperature, stress0
+    state = state0
+    call nh_point(callinfo, properties, f1, stress, tangent, energy, report, flaw)
+  end subroutine nh_entry
 
   subroutine nh_point(callinfo, properties, f1, stress, tangent, energy, report, flaw)
     type(tc_finite_call), intent(in) :: callinfo
@@ -52,7 +64,7 @@ contains
     integer, intent(in) :: flaw
 
     integer, parameter :: ii(6) = [1, 2, 3, 2, 1, 1], jj(6) = [1, 2, 3, 3, 3, 2]
-    TC_REAL :: e, nu, lambda, mu, jac, lnj, g, v, b(3, 3), tau(3, 3), i1
+    TC_REAL :: lambda, mu, jac, lnj, g, v, b(3, 3), tau(3, 3), i1
     integer :: m, r, c, i, j, k, l
     logical :: jaumann, over_j, cauchy
 
@@ -63,10 +75,7 @@ contains
       call tc_set_message(report, "neo-hookean: this tangent measure is not implemented in Fortran")
       return
     end if
-    e = properties(1)
-    nu = properties(2)
-    lambda = e * nu / ((1.0_c_double + nu) * (1.0_c_double - 2.0_c_double * nu))
-    mu = e / (2.0_c_double * (1.0_c_double + nu))
+    call lame(properties(1), properties(2), lambda, mu)
     jac = f1(1, 1) * (f1(2, 2) * f1(3, 3) - f1(2, 3) * f1(3, 2)) &
           - f1(1, 2) * (f1(2, 1) * f1(3, 3) - f1(2, 3) * f1(3, 1)) &
           + f1(1, 3) * (f1(2, 1) * f1(3, 2) - f1(2, 2) * f1(3, 1))
@@ -122,137 +131,40 @@ contains
     report%branch = 0
     report%provides = tc_provides_energy
   end subroutine nh_point
+
+#include "lame.inc"
 end module NH_IMPL
 
+! The exported routines (finite_entry.inc): each hands its arguments to nh_entry with its flaw.
+#define TC_MODEL_MODULE NH_IMPL
+#define TC_MODEL nh_entry
 
-subroutine f_nh(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_none
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_none)
-end subroutine f_nh
+#define TC_VARIANT f_nh
+#define TC_VARIANT_NAME "f_nh"
+#define TC_FLAW nh_none
+#include "finite_entry.inc"
 
-subroutine f_nh_truesdell_for_jaumann(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh_truesdell_for_jaumann"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_truesdell_for_jaumann
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_truesdell_for_jaumann)
-end subroutine f_nh_truesdell_for_jaumann
+#define TC_VARIANT f_nh_truesdell_for_jaumann
+#define TC_VARIANT_NAME "f_nh_truesdell_for_jaumann"
+#define TC_FLAW nh_truesdell_for_jaumann
+#include "finite_entry.inc"
 
-subroutine f_nh_missing_over_j(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh_missing_over_j"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_missing_over_j
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_missing_over_j)
-end subroutine f_nh_missing_over_j
+#define TC_VARIANT f_nh_missing_over_j
+#define TC_VARIANT_NAME "f_nh_missing_over_j"
+#define TC_FLAW nh_missing_over_j
+#include "finite_entry.inc"
 
-subroutine f_nh_extra_over_j(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh_extra_over_j"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_extra_over_j
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_extra_over_j)
-end subroutine f_nh_extra_over_j
+#define TC_VARIANT f_nh_extra_over_j
+#define TC_VARIANT_NAME "f_nh_extra_over_j"
+#define TC_FLAW nh_extra_over_j
+#include "finite_entry.inc"
 
-subroutine f_nh_cauchy_for_kirchhoff(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh_cauchy_for_kirchhoff"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_cauchy_for_kirchhoff
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_cauchy_for_kirchhoff)
-end subroutine f_nh_cauchy_for_kirchhoff
+#define TC_VARIANT f_nh_cauchy_for_kirchhoff
+#define TC_VARIANT_NAME "f_nh_cauchy_for_kirchhoff"
+#define TC_FLAW nh_cauchy_for_kirchhoff
+#include "finite_entry.inc"
 
-subroutine f_nh_kirchhoff_for_cauchy(callinfo, properties, f0, f1, rotation, temperature, stress0, state0, stress, state, &
-  tangent, energy, report) bind(C, name="f_nh_kirchhoff_for_cauchy"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_report, tc_temperature, tc_energy
-  use tancheck_finite, only: tc_finite_call
-  use NH_IMPL, only: nh_point, nh_kirchhoff_for_cauchy
-  implicit none
-  type(tc_finite_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: f0(3, 3), f1(3, 3), rotation(3, 3)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(6), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(6), state(callinfo%nstate)
-  TC_REAL, intent(inout) :: tangent(callinfo%ntangent, callinfo%ntangent)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-  ! Hyperelastic: the start configuration, rotation, temperature and start stress are not used.
-  namelist /unused_arguments/ f0, rotation, temperature, stress0
-  state = state0
-  call nh_point(callinfo, properties, f1, stress, tangent, energy, report, nh_kirchhoff_for_cauchy)
-end subroutine f_nh_kirchhoff_for_cauchy
+#define TC_VARIANT f_nh_kirchhoff_for_cauchy
+#define TC_VARIANT_NAME "f_nh_kirchhoff_for_cauchy"
+#define TC_FLAW nh_kirchhoff_for_cauchy
+#include "finite_entry.inc"

@@ -17,8 +17,9 @@
 ! (crates/tancheck-models/src/johnson_cook.rs, which documents each choice) and of jc.c.
 ! Branch 0 elastic, 1 plastic. Provides dstress_dtemp; no energies.
 !
-! Both routines share one stress update, jc_update.inc, included as an internal procedure of
-! each (as j2.F90 does with j2_return_map.inc).
+! Both routines share one entry, jc_variant.inc (they differ only in the rate term's flag), which
+! calls the one stress update, jc_update.inc, included as an internal procedure of each (as j2.F90
+! does with j2_return_map.inc).
 !
 ! Build (after compiling the modules tancheck_routine and tancheck_cstep):
 !   gfortran -cpp -I fortran-shim/include -c jc.F90               exports f_jc,
@@ -27,66 +28,12 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_jc(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
-                tangent, dstress_dtemp, energy, report) bind(C, name="f_jc"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_dstress_dtemp
-  use tancheck_cstep, only: cs_sqrt, cs_exp, cs_log, cs_max
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
+#define TC_VARIANT f_jc
+#define TC_VARIANT_NAME "f_jc"
+#define TC_RATE_TERM .true.
+#include "jc_variant.inc"
 
-  ! Total form: stress0 is not read (see f_j2 in j2.F90 for the namelist).
-  namelist /unused_arguments/ stress0
-
-  call jc_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
-                 dstress_dtemp, energy, report, .true.)
-
-contains
-
-#include "jc_update.inc"
-
-end subroutine f_jc
-
-
-subroutine f_jc_no_rate_term(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
-                                stress, state, tangent, dstress_dtemp, energy, report) &
-                                bind(C, name="f_jc_no_rate_term"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_dstress_dtemp
-  use tancheck_cstep, only: cs_sqrt, cs_exp, cs_log, cs_max
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_jc.
-  namelist /unused_arguments/ stress0
-
-  call jc_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
-                 dstress_dtemp, energy, report, .false.)
-
-contains
-
-#include "jc_update.inc"
-
-end subroutine f_jc_no_rate_term
+#define TC_VARIANT f_jc_no_rate_term
+#define TC_VARIANT_NAME "f_jc_no_rate_term"
+#define TC_RATE_TERM .false.
+#include "jc_variant.inc"

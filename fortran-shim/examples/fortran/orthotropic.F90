@@ -198,22 +198,11 @@ subroutine f_orthotropic(callinfo, properties, strain, dstrain, temperature, str
       cm(a, bb) = cm(a, bb) * (w(a) * w(bb))
     end do
   end do
+  qc = product6(q, cm)
+  c = product6(qc, transpose(q))
   do bb = 1, 6
     do a = 1, 6
-      s = 0.0_c_double
-      do k = 1, 6
-        s = s + q(a, k) * cm(k, bb)
-      end do
-      qc(a, bb) = s
-    end do
-  end do
-  do bb = 1, 6
-    do a = 1, 6
-      s = 0.0_c_double
-      do k = 1, 6
-        s = s + qc(a, k) * q(bb, k)
-      end do
-      c(a, bb) = s / (w(a) * w(bb))
+      c(a, bb) = c(a, bb) / (w(a) * w(bb))
     end do
   end do
 
@@ -237,4 +226,23 @@ subroutine f_orthotropic(callinfo, properties, strain, dstrain, temperature, str
   report%provides = tc_provides_energy
   report%branch = 0
   report%status = tc_status_ok
+
+contains
+
+  ! The matrix product x y of two 6x6 matrices, summed in the order of k (no matmul, whose order
+  ! of summation is the library's).
+  pure function product6(x, y) result(z)
+    TC_REAL, intent(in) :: x(6, 6), y(6, 6)
+    TC_REAL :: z(6, 6), t
+    integer :: i6, j6, k6
+    do j6 = 1, 6
+      do i6 = 1, 6
+        t = 0.0_c_double
+        do k6 = 1, 6
+          t = t + x(i6, k6) * y(k6, j6)
+        end do
+        z(i6, j6) = t
+      end do
+    end do
+  end function product6
 end subroutine f_orthotropic

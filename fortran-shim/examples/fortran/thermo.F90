@@ -25,8 +25,10 @@
 ! uses its first range below 750 C, 1.1e-2 on [750, 860), the third range from 860 C. At a
 ! point or boundary the segment on its right is used: d stress / dT is the right derivative.
 !
-! Both routines share one update, thermo_update.inc, included as internal procedures of each
-! (as j2.F90 does), so that the real and the complex build export no clashing symbols.
+! The three routines share one entry, thermo_variant.inc (they differ only in the sign and the
+! expansion factor it passes on), which calls the one update, thermo_update.inc, included as
+! internal procedures of each (as j2.F90 does), so that the real and the complex build export no
+! clashing symbols.
 !
 ! Build (after compiling the modules tancheck_routine and tancheck_cstep):
 !   gfortran -cpp -I fortran-shim/include -c thermo.F90               exports f_thermo,
@@ -35,101 +37,20 @@
 
 #include "tancheck_twin.inc"
 
-subroutine f_thermo(callinfo, properties, strain, dstrain, temperature, stress0, state0, stress, state, &
-                    tangent, dstress_dtemp, energy, report) bind(C, name="f_thermo"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
+#define TC_VARIANT f_thermo
+#define TC_VARIANT_NAME "f_thermo"
+#define TC_SIGN 1.0_c_double
+#define TC_EXPANSION 1.0_c_double
+#include "thermo_variant.inc"
 
-  ! The ABI passes stress0, but this total-form model does not read it. Naming it in a
-  ! namelist that is never read or written tells gfortran -Wall (-Wunused-dummy-argument)
-  ! that this is deliberate; it generates no code.
-  namelist /unused_arguments/ stress0
+#define TC_VARIANT f_thermo_dtemp_sign
+#define TC_VARIANT_NAME "f_thermo_dtemp_sign"
+#define TC_SIGN -1.0_c_double
+#define TC_EXPANSION 1.0_c_double
+#include "thermo_variant.inc"
 
-  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
-                     dstress_dtemp, energy, report, 1.0_c_double, 1.0_c_double)
-
-contains
-
-#include "thermo_update.inc"
-
-end subroutine f_thermo
-
-
-subroutine f_thermo_dtemp_sign(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
-                               stress, state, tangent, dstress_dtemp, energy, report) &
-                               bind(C, name="f_thermo_dtemp_sign"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_thermo.
-  namelist /unused_arguments/ stress0
-
-  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
-                     dstress_dtemp, energy, report, -1.0_c_double, 1.0_c_double)
-
-contains
-
-#include "thermo_update.inc"
-
-end subroutine f_thermo_dtemp_sign
-
-
-subroutine f_thermo_partial_dtemp(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
-                                  stress, state, tangent, dstress_dtemp, energy, report) &
-                                  bind(C, name="f_thermo_partial_dtemp"//TC_SUFFIX)
-  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
-  use, intrinsic :: ieee_arithmetic, only: ieee_is_finite
-  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
-                              tc_set_message, tc_status_ok, &
-                              tc_status_failed, tc_provides_dstress_dtemp, tc_provides_energy
-  implicit none
-  type(tc_call), intent(in) :: callinfo
-  TC_REAL, intent(in) :: properties(callinfo%nproperties)
-  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
-  type(tc_temperature), intent(in) :: temperature
-  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
-  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
-  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
-  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
-  type(tc_energy), intent(inout) :: energy
-  type(tc_report), intent(inout) :: report
-
-  ! See f_thermo.
-  namelist /unused_arguments/ stress0
-
-  call thermo_update(callinfo, properties, strain, dstrain, temperature, state0, stress, state, tangent, &
-                     dstress_dtemp, energy, report, 1.0_c_double, 0.0_c_double)
-
-contains
-
-#include "thermo_update.inc"
-
-end subroutine f_thermo_partial_dtemp
+#define TC_VARIANT f_thermo_partial_dtemp
+#define TC_VARIANT_NAME "f_thermo_partial_dtemp"
+#define TC_SIGN 1.0_c_double
+#define TC_EXPANSION 0.0_c_double
+#include "thermo_variant.inc"

@@ -5,7 +5,7 @@ use std::ffi::{c_char, c_void};
 
 use tancheck_core::block::{BlockCall, BlockOutcome, Conditions};
 
-use crate::signal_guard::{Crash, GuardResult};
+use crate::signal_guard::{guarded, Crash, GuardResult};
 
 /// A block routine's entry point, real or twin: every array as a pointer.
 pub type BlockFn = unsafe extern "C" fn(
@@ -63,14 +63,8 @@ extern "C" {
 /// `f` must have the block ABI's signature (with complex arrays when `complex`), and every
 /// pointer in `args` must be valid for the lengths its `tc_block` announces.
 pub(crate) unsafe fn call_block(f: BlockFn, args: &BlockGuardArgs, complex: bool) -> Result<(), Crash> {
-    let mut r = GuardResult::default();
     // SAFETY: forwarded from the caller's contract; `r` is a valid out-pointer.
-    let caught = unsafe { tc_guard_call_block(f, args, i32::from(complex), &mut r) };
-    if caught == 0 {
-        Ok(())
-    } else {
-        Err(Crash::from_result(&r))
-    }
+    guarded(|r| unsafe { tc_guard_call_block(f, args, i32::from(complex), r) })
 }
 
 #[cfg(test)]

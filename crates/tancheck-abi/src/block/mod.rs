@@ -269,21 +269,7 @@ impl BlockRoutine for LibraryBlockRoutine {
     }
 
     fn call(&mut self, input: &BlockInput<'_, f64>, output: &mut BlockOutput<'_, f64>) -> Result<(), Fault> {
-        tancheck_core::block::routine::check_block_lengths(&self.info, input, output);
-        let call = self.block_call(input);
-        let found = call_with(
-            self.real,
-            false,
-            self.guard_level,
-            &mut self.real_guards,
-            &self.label,
-            self.fp_traps,
-            &call,
-            input,
-            output,
-        )?;
-        self.note(found)?;
-        output.outcome.fault()
+        self.call_entry(self.real, input, output)
     }
 
     fn has_twin(&self) -> bool {
@@ -301,13 +287,58 @@ impl BlockRoutine for LibraryBlockRoutine {
                 self.symbol
             )));
         };
+        self.call_entry(twin, input, output)
+    }
+}
+
+/// The arithmetic of a call: real calls and twin calls each keep their own guard buffers.
+trait Arithmetic: Element {
+    /// Whether `f` takes complex arrays.
+    const COMPLEX: bool;
+    /// This arithmetic's guard buffers of the two.
+    fn pick<'g>(
+        real: &'g mut BlockGuards<f64>,
+        twin: &'g mut BlockGuards<Complex64>,
+    ) -> &'g mut BlockGuards<Self>;
+}
+
+impl Arithmetic for f64 {
+    const COMPLEX: bool = false;
+    fn pick<'g>(
+        real: &'g mut BlockGuards<f64>,
+        _: &'g mut BlockGuards<Complex64>,
+    ) -> &'g mut BlockGuards<f64> {
+        real
+    }
+}
+
+impl Arithmetic for Complex64 {
+    const COMPLEX: bool = true;
+    fn pick<'g>(
+        _: &'g mut BlockGuards<f64>,
+        twin: &'g mut BlockGuards<Complex64>,
+    ) -> &'g mut BlockGuards<Complex64> {
+        twin
+    }
+}
+
+impl LibraryBlockRoutine {
+    /// One call of the entry `f` (the real one or the twin, by `S`): the lengths checked, the
+    /// guarded call, a new finding noted; written once for both entries.
+    fn call_entry<S: Arithmetic>(
+        &mut self,
+        f: BlockFn,
+        input: &BlockInput<'_, S>,
+        output: &mut BlockOutput<'_, S>,
+    ) -> Result<(), Fault> {
         tancheck_core::block::routine::check_block_lengths(&self.info, input, output);
         let call = self.block_call(input);
+        let guards = S::pick(&mut self.real_guards, &mut self.complex_guards);
         let found = call_with(
-            twin,
-            true,
+            f,
+            S::COMPLEX,
             self.guard_level,
-            &mut self.complex_guards,
+            guards,
             &self.label,
             self.fp_traps,
             &call,

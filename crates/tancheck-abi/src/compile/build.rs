@@ -11,6 +11,15 @@ use super::shim_files::{fresh_build_dir, Cleanup, SHIM_INCLUDE, SHIM_MODULES};
 use crate::build_log::BuildLog;
 use crate::error::BuildError;
 
+/// The C flags of a debug build (`BuildOptions::debug`), one list for the build and its tests:
+/// debug information, no optimisation, frame pointers for backtraces, trapping integer overflow.
+pub const C_DEBUG_FLAGS: [&str; 4] = ["-g", "-O0", "-fno-omit-frame-pointer", "-ftrapv"];
+
+/// The Fortran flags of a debug build, one list for the build and its tests: debug information,
+/// no optimisation, run-time checks, floating-point traps, backtraces, reals set to signalling NaN.
+pub const FORTRAN_DEBUG_FLAGS: [&str; 6] =
+    ["-g", "-O0", "-fcheck=all", "-ffpe-trap=invalid,zero,overflow", "-fbacktrace", "-finit-real=snan"];
+
 /// Compile `opts.sources` into the shared library `opts.output`.
 pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
     if opts.sources.is_empty() {
@@ -66,20 +75,8 @@ pub fn build_library(opts: &BuildOptions) -> Result<BuildLog, BuildError> {
 
     let mut log = BuildLog { output: opts.output.clone(), build_dir: dir.clone(), commands: Vec::new() };
     let mut objects: Vec<PathBuf> = Vec::new();
-    let opt_c: Vec<&str> =
-        if opts.debug { vec!["-g", "-O0", "-fno-omit-frame-pointer", "-ftrapv"] } else { vec!["-O2"] };
-    let opt_f: Vec<&str> = if opts.debug {
-        vec![
-            "-g",
-            "-O0",
-            "-fcheck=all",
-            "-ffpe-trap=invalid,zero,overflow",
-            "-fbacktrace",
-            "-finit-real=snan",
-        ]
-    } else {
-        vec!["-O2"]
-    };
+    let opt_c: Vec<&str> = if opts.debug { C_DEBUG_FLAGS.to_vec() } else { vec!["-O2"] };
+    let opt_f: Vec<&str> = if opts.debug { FORTRAN_DEBUG_FLAGS.to_vec() } else { vec!["-O2"] };
     let s = |p: &Path| p.display().to_string();
 
     if let Some(fc) = &fc {

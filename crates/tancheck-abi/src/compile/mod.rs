@@ -35,7 +35,7 @@ mod shim_files;
 mod tests;
 
 pub use crate::build_log::{BuildCommand, BuildLog};
-pub use build::build_library;
+pub use build::{build_library, C_DEBUG_FLAGS, FORTRAN_DEBUG_FLAGS};
 pub use compiler::{c_available, fortran_available, fortran_for_test};
 pub use options::{BuildOptions, DEBUG_MARKER};
 pub use shim_files::write_shim_files;

@@ -89,18 +89,25 @@ impl Real {
         use tancheck_core::Routine;
         self.stress = [f64::NAN; 6];
         self.tangent = [f64::NAN; 36];
+        let (input, mut output) = self.views([293.0, 0.0], increment);
+        r.call(&input, &mut output)
+    }
+
+    /// The buffers as one call's input and output (a tangent wanted, over [0, 1] in time), so
+    /// a test that calls in its own way (through `Caller`, with a cut array) shares this wiring.
+    pub fn views(&mut self, temp: [f64; 2], increment: i32) -> (CallInput<'_, f64>, CallOutput<'_, f64>) {
         let input = CallInput {
             props: &self.props,
             strain: &self.strain,
             dstrain: &self.dstrain,
-            temp: [293.0, 0.0],
+            temp,
             stress0: &self.stress0,
             state0: &[],
             time: [0.0, 1.0],
             increment,
             want_tangent: true,
         };
-        let mut output = CallOutput {
+        let output = CallOutput {
             stress: &mut self.stress,
             state: &mut [],
             tangent: &mut self.tangent,
@@ -108,7 +115,7 @@ impl Real {
             energy: &mut self.energy,
             outcome: &mut self.outcome,
         };
-        r.call(&input, &mut output)
+        (input, output)
     }
 
     /// σ = σ0 + C Δε from the reference stiffness.

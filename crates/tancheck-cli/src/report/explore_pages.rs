@@ -13,7 +13,7 @@ use tancheck_core::explore::{coverage::ranges_text, ExploreReport};
 use tancheck_core::path::Path;
 use tancheck_core::Verdict;
 
-use super::html::{badge, cautions, esc, footer, page};
+use super::html::{badge, cautions, esc, footer, page, table, Cell};
 use super::junit::{failure, to_string};
 
 fn path_table(o: &mut String, p: &Path) {
@@ -84,22 +84,18 @@ pub fn explore_page(r: &ExploreReport) -> String {
     }
     let _ = writeln!(o, "</dl>");
     o.push_str(&cautions(&r.cautions));
-    let _ = writeln!(
-        o,
-        "<h2>Reached</h2>\n<table>\n<tr><th>signature</th><th>increments</th><th>paths</th><th>first path</th><th>at increment</th></tr>"
-    );
-    for x in &r.reached {
-        let _ = writeln!(
-            o,
-            "<tr><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
-            esc(&x.label),
-            x.increments,
-            x.paths,
-            x.first_path,
-            x.first_increment
-        );
-    }
-    let _ = writeln!(o, "</table>\n<h2>Never reached</h2>\n<ul class=\"plain\">");
+    o.push_str("<h2>Reached</h2>\n");
+    let rows = r.reached.iter().map(|x| {
+        vec![
+            Cell::Text(esc(&x.label)),
+            Cell::Num(x.increments.to_string()),
+            Cell::Num(x.paths.to_string()),
+            Cell::Num(x.first_path.to_string()),
+            Cell::Num(x.first_increment.to_string()),
+        ]
+    });
+    table(&mut o, &["signature", "increments", "paths", "first path", "at increment"], rows);
+    let _ = writeln!(o, "<h2>Never reached</h2>\n<ul class=\"plain\">");
     for b in &r.never.branches {
         let _ = writeln!(o, "<li>branch {} ({})</li>", b.branch, esc(&b.name));
     }

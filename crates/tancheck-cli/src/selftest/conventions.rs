@@ -38,19 +38,7 @@ impl Routine for Misdeclared<'_> {
     fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
         self.inner.call(input, output)
     }
-    fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
-        if self.inner.complex().is_some() {
-            Some(self)
-        } else {
-            None
-        }
-    }
-    fn capabilities(&mut self) -> tancheck_core::routine::Capabilities {
-        self.inner.capabilities()
-    }
-    fn guard_next_call_fully(&mut self) -> bool {
-        self.inner.guard_next_call_fully()
-    }
+    tancheck_core::pass_on_to_inner!();
 }
 
 impl ComplexRoutine for Misdeclared<'_> {

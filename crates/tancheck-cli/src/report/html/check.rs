@@ -6,7 +6,7 @@ use std::fmt::Write as _;
 use tancheck_core::report::{CheckOutcome, IncrementResult};
 use tancheck_core::Report;
 
-use super::{badge, cautions, esc, figure, footer, page, plots, sci, DETAILED_FAILURES};
+use super::{badge, cautions, esc, figure, footer, page, plots, sci, table, Cell, DETAILED_FAILURES};
 
 /// The summary, plots and failing increments of one check report.
 pub(super) fn check_sections(report: &Report, o: &mut String) {
@@ -190,21 +190,15 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
             sci(cmp.soft_error),
             sci(cmp.tol)
         );
-        let _ = writeln!(
-            o,
-            "<table>\n<tr><th>entry (row/column)</th><th>returned</th><th>numerical</th><th>error</th></tr>"
-        );
-        for e in &cmp.worst {
-            let _ = writeln!(
-                o,
-                "<tr><td><code>{}</code></td><td class=\"num\">{:.6e}</td><td class=\"num\">{:.6e}</td><td class=\"num\">{}</td></tr>",
-                esc(&e.label),
-                e.returned,
-                e.numerical,
-                sci(e.error)
-            );
-        }
-        let _ = writeln!(o, "</table>");
+        let rows = cmp.worst.iter().map(|e| {
+            vec![
+                Cell::Text(format!("<code>{}</code>", esc(&e.label))),
+                Cell::Num(format!("{:.6e}", e.returned)),
+                Cell::Num(format!("{:.6e}", e.numerical)),
+                Cell::Num(sci(e.error)),
+            ]
+        });
+        table(o, &["entry (row/column)", "returned", "numerical", "error"], rows);
     }
     if let Some(d) = &inc.diagnosis {
         let tol = worst.map(|w| w.1.tol);

@@ -21,6 +21,33 @@ pub use suite::{bisect_page, probe_page, selftest_page, BisectView};
 /// listed in one line each.
 pub const DETAILED_FAILURES: usize = 6;
 
+/// A table cell's HTML (the caller escapes text): plain, or a number (right-aligned).
+pub enum Cell {
+    Text(String),
+    Num(String),
+}
+
+/// One table: the header row, then a row of cells per item. Written once so that every
+/// page's tables have the same markup.
+pub fn table(o: &mut String, head: &[&str], rows: impl IntoIterator<Item = Vec<Cell>>) {
+    o.push_str("<table>\n<tr>");
+    for h in head {
+        let _ = write!(o, "<th>{h}</th>");
+    }
+    o.push_str("</tr>\n");
+    for row in rows {
+        o.push_str("<tr>");
+        for cell in row {
+            let _ = match cell {
+                Cell::Text(html) => write!(o, "<td>{html}</td>"),
+                Cell::Num(html) => write!(o, "<td class=\"num\">{html}</td>"),
+            };
+        }
+        o.push_str("</tr>\n");
+    }
+    o.push_str("</table>\n");
+}
+
 /// Escape text for HTML (element content and attribute values).
 pub fn esc(s: &str) -> String {
     let mut o = String::with_capacity(s.len());

@@ -28,19 +28,20 @@ const LOG_FLOOR: f64 = 1e-17;
 
 pub(super) const FONT: &str = "sans-serif";
 
-/// A colour per scheme, the same in every plot.
+/// A colour per scheme, the same in every plot: its place in the one palette, [`CURVES`].
 pub fn scheme_colour(s: Scheme) -> RGBColor {
-    match s {
-        Scheme::Central => RGBColor(31, 95, 170),
-        Scheme::ComplexStep => RGBColor(213, 94, 0),
-        Scheme::Forward => RGBColor(0, 140, 100),
-        Scheme::Backward => RGBColor(150, 60, 150),
-        Scheme::Central4 => RGBColor(130, 120, 0),
-        Scheme::Richardson => RGBColor(90, 90, 90),
-    }
+    CURVES[match s {
+        Scheme::Central => 0,
+        Scheme::ComplexStep => 1,
+        Scheme::Forward => 2,
+        Scheme::Backward => 3,
+        Scheme::Central4 => 4,
+        Scheme::Richardson => 5,
+    }]
 }
 
-/// Line colours for curves that are not schemes (components, probe series).
+/// The line colours: the schemes' (by [`scheme_colour`]) and, in turn, those of curves that are
+/// not schemes (components, probe series).
 const CURVES: [RGBColor; 6] = [
     RGBColor(31, 95, 170),
     RGBColor(213, 94, 0),
