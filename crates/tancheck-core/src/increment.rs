@@ -9,7 +9,7 @@ use crate::driver::Driver;
 use crate::first_calls;
 use crate::mixed;
 use crate::path::PathIncrement;
-use crate::report::IncrementResult;
+use crate::report::{CallRecord, FaultRecord, IncrementResult};
 use crate::routine::{Caller, Fault};
 use crate::settings::Settings;
 
@@ -97,21 +97,10 @@ pub fn step(
     let unloaded = work < 0.0;
     // The base call, every scheme, and the diagnosis of a failure: one call's check.
     let checked = solved.and_then(|()| judge::check_call(driver, caller, settings, previous));
-    let cc = match checked {
+    let mut cc = match checked {
         Err(fault) => {
-            let result = IncrementResult {
-                index: k + 1,
-                reported_branch: None,
-                state_changed: false,
-                strain: driver.start().strain.clone(),
-                stress: driver.start().stress.clone(),
-                checks: Vec::new(),
-                non_finite: Vec::new(),
-                non_finite_call: None,
-                solve: solve_log,
-                diagnosis: None,
-                fault: Some(judge::fault_record(&fault, driver, None)),
-            };
+            let result =
+                record(k, driver, solve_log, None, None, Some(judge::fault_record(&fault, driver, None)));
             return Step { result, checked: false, best: None, unloaded, note };
         }
         Ok(cc) => cc,
@@ -121,38 +110,43 @@ pub fn step(
     } else {
         None
     };
-    let best = cc.best.map(|(_, t)| t);
+    let best = cc.best.take().map(|(_, t)| t);
     if let Some(fault) = guarded {
-        let result = IncrementResult {
-            index: k + 1,
-            reported_branch: cc.reported_branch,
-            state_changed: cc.state_changed,
-            strain: driver.start().strain.clone(),
-            stress: driver.start().stress.clone(),
-            checks: cc.checks,
-            non_finite: cc.non_finite,
-            non_finite_call: None,
-            solve: solve_log,
-            diagnosis: cc.diagnosis,
-            fault: Some(*fault),
-        };
+        let result = record(k, driver, solve_log, Some(cc), None, Some(*fault));
         return Step { result, checked: true, best, unloaded, note };
     }
     // Non-finite outputs carry the inputs of the call, as a crash does.
     let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
     driver.advance();
-    let result = IncrementResult {
+    let result = record(k, driver, solve_log, Some(cc), non_finite_call, None);
+    Step { result, checked: true, best, unloaded, note }
+}
+
+/// The record of increment `k` (0-based) at the driver's start state, from its call check
+/// (none when the calls failed) and how it ended: one constructor for the three endings.
+fn record(
+    k: usize,
+    driver: &Driver,
+    solve: Option<mixed::SolveLog>,
+    cc: Option<judge::CallCheck>,
+    non_finite_call: Option<CallRecord>,
+    fault: Option<FaultRecord>,
+) -> IncrementResult {
+    let (reported_branch, state_changed, checks, non_finite, diagnosis) = match cc {
+        Some(cc) => (cc.reported_branch, cc.state_changed, cc.checks, cc.non_finite, cc.diagnosis),
+        None => (None, false, Vec::new(), Vec::new(), None),
+    };
+    IncrementResult {
         index: k + 1,
-        reported_branch: cc.reported_branch,
-        state_changed: cc.state_changed,
+        reported_branch,
+        state_changed,
         strain: driver.start().strain.clone(),
         stress: driver.start().stress.clone(),
-        checks: cc.checks,
-        non_finite: cc.non_finite,
+        checks,
+        non_finite,
         non_finite_call,
-        solve: solve_log,
-        diagnosis: cc.diagnosis,
-        fault: None,
-    };
-    Step { result, checked: true, best, unloaded, note }
+        solve,
+        diagnosis,
+        fault,
+    }
 }
