@@ -42,8 +42,7 @@ pub fn run_with(
     path.validate()?;
     let info = caller.info().clone();
     let conv = info.convention.clone();
-    let n = conv.ncomp();
-    let mut driver = Driver::new(&info, props, start)?;
+    let driver = Driver::new(&info, props, start)?;
     let has_twin = caller.has_complex();
     let mut notes = Vec::new();
     if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
@@ -77,8 +76,8 @@ pub fn run_with(
     };
     match plan {
         Some(handles) if !stopped_at_zero => {
-            let chunks =
-                concurrent::walk(caller, handles, &info, props, driver.start(), path, settings, keep);
+            let job = concurrent::Job { info: &info, props, start: driver.start(), path, settings, keep };
+            let chunks = concurrent::walk(caller, handles, job);
             for chunk in chunks {
                 let stop = merged.take_chunk(
                     chunk.collected,
@@ -96,8 +95,7 @@ pub fn run_with(
             }
         }
         _ => {
-            let mut reached = first_calls::Branches::default();
-            let mut dstrain = vec![0.0; n];
+            let mut walk = increment::Walk::new(driver, settings);
             for (k, inc) in path.increments.iter().enumerate() {
                 if merged.increments.last_faulted() {
                     break;
@@ -106,16 +104,7 @@ pub fn run_with(
                     progress(k);
                 }
                 let previous = merged.previous.take();
-                let step = increment::step(
-                    k,
-                    inc,
-                    &mut driver,
-                    caller,
-                    settings,
-                    previous.as_deref(),
-                    &mut reached,
-                    &mut dstrain,
-                );
+                let step = walk.step(k, inc, caller, previous.as_deref());
                 if merged.take(step, &conv) {
                     break;
                 }

@@ -20,7 +20,6 @@ use std::ops::Range;
 
 use crate::call_check as judge;
 use crate::driver::{Driver, PointState};
-use crate::first_calls::Branches;
 use crate::increment;
 use crate::path::Path;
 use crate::report::{Collector, Keep};
@@ -212,20 +211,22 @@ fn calls_per_increment(settings: &Settings, n: usize) -> f64 {
     1.0 + (per_column * n) as f64 + 2.0 * settings.schemes.len() as f64
 }
 
-/// Check `path` on the caller's thread and one thread per handle, in shares; the chunks in
+/// What every thread checks: the inputs of `check::run_with`, passed through unchanged to the
+/// walk and to each share as one value.
+#[derive(Clone, Copy)]
+pub struct Job<'a> {
+    pub info: &'a RoutineInfo,
+    pub props: &'a [f64],
+    pub start: &'a PointState,
+    pub path: &'a Path,
+    pub settings: &'a Settings,
+    pub keep: Keep,
+}
+
+/// Check `job.path` on the caller's thread and one thread per handle, in shares; the chunks in
 /// path order. The caller's counts are left as they were: the chunks carry theirs.
-// The walk's inputs are those of `check::run_with`, passed through unchanged.
-#[allow(clippy::too_many_arguments)]
-pub fn walk(
-    caller: &mut Caller<'_>,
-    handles: Vec<Box<dyn Routine + Send>>,
-    info: &RoutineInfo,
-    props: &[f64],
-    start: &PointState,
-    path: &Path,
-    settings: &Settings,
-    keep: Keep,
-) -> Vec<Chunk> {
+pub fn walk(caller: &mut Caller<'_>, handles: Vec<Box<dyn Routine + Send>>, job: Job<'_>) -> Vec<Chunk> {
+    let Job { info, path, settings, .. } = job;
     let threads = handles.len() + 1;
     let b = shares(path.increments.len(), threads, calls_per_increment(settings, info.convention.ncomp()));
     std::thread::scope(|s| {
@@ -234,11 +235,11 @@ pub fn walk(
             let range = b[t + 1]..b[t + 2];
             joins.push(s.spawn(move || {
                 let mut c = Caller::new(&mut *h);
-                share(&mut c, info, props, start, path, settings, keep, range)
+                share(&mut c, job, range)
             }));
         }
         let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-        let first = share(caller, info, props, start, path, settings, keep, b[0]..b[1]);
+        let first = share(caller, job, b[0]..b[1]);
         caller.real_calls = real0;
         caller.complex_calls = cplx0;
         let mut out = vec![first];
@@ -250,17 +251,8 @@ pub fn walk(
 }
 
 /// One thread's share: the walk to its start (base calls), then its increments checked.
-#[allow(clippy::too_many_arguments)]
-fn share(
-    caller: &mut Caller<'_>,
-    info: &RoutineInfo,
-    props: &[f64],
-    start: &PointState,
-    path: &Path,
-    settings: &Settings,
-    keep: Keep,
-    range: Range<usize>,
-) -> Chunk {
+fn share(caller: &mut Caller<'_>, job: Job<'_>, range: Range<usize>) -> Chunk {
+    let Job { info, props, start, path, settings, keep } = job;
     let incomplete = Chunk {
         collected: Collector::new(settings, keep, 0),
         notes: Vec::new(),
@@ -270,57 +262,47 @@ fn share(
         complex_calls: 0,
         complete: false,
     };
-    let Ok(mut driver) = Driver::new(info, props, start.clone()) else {
+    let Ok(driver) = Driver::new(info, props, start.clone()) else {
         return incomplete;
     };
-    let mut dstrain = vec![0.0; info.convention.ncomp()];
-    let mut reached = Branches::default();
+    let mut walk = increment::Walk::new(driver, settings);
     let mut previous: Option<Vec<f64>> = None;
     let quiet = Settings { diagnose: false, first_calls: false, ..settings.clone() };
     for (k, inc) in path.increments[..range.start].iter().enumerate() {
-        let (solved, _, _) = increment::set(k, inc, &mut driver, caller, settings, &mut dstrain);
+        let (solved, _, _) = walk.set(k, inc, caller);
         if solved.is_err() {
             return incomplete;
         }
         let seen = if k + 1 == range.start {
-            judge::check_call(&mut driver, caller, &quiet, None).map(|cc| {
+            judge::check_call(&mut walk.driver, caller, &quiet, None).map(|cc| {
                 previous = cc.best.map(|(_, t)| t);
                 (cc.reported_branch, cc.state_changed)
             })
         } else {
-            driver.base_call(caller).map(|()| {
-                let b = driver.base.outcome.branch;
+            walk.driver.base_call(caller).map(|()| {
+                let b = walk.driver.base.outcome.branch;
                 (
                     (b >= 0).then_some(b),
-                    driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b),
+                    walk.driver.base.state.iter().zip(&walk.driver.start().state).any(|(a, b)| a != b),
                 )
             })
         };
         match seen {
             Ok((branch, changed)) => {
                 if settings.first_calls {
-                    reached.first(branch, changed);
+                    walk.reached.first(branch, changed);
                 }
             }
             Err(_) => return incomplete,
         }
-        driver.advance();
+        walk.driver.advance();
     }
     let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
     let mut collected = Collector::new(settings, keep, range.len());
     let (mut notes, mut unloaded, mut first_elastic) = (Vec::new(), false, None);
     let mut complete = true;
     for k in range {
-        let step = increment::step(
-            k,
-            &path.increments[k],
-            &mut driver,
-            caller,
-            settings,
-            previous.as_deref(),
-            &mut reached,
-            &mut dstrain,
-        );
+        let step = walk.step(k, &path.increments[k], caller, previous.as_deref());
         let stops = step.stops();
         unloaded |= step.unloaded;
         notes.extend(step.note);

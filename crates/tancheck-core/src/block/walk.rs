@@ -8,6 +8,35 @@ use super::routine::{
 };
 use crate::routine::Fault;
 
+/// The input and the output of one call over the buffers of `$b` (a [`BlockBuffers`] or a
+/// [`ComplexPoint`]: the same fields in another scalar), written once for both.
+macro_rules! call_views {
+    ($b:expr, $properties:expr, $conditions:expr, $time:expr, $time_increment:expr, $increment:expr, $elastic:expr) => {
+        (
+            BlockInput {
+                properties: $properties,
+                strain: &$b.strain,
+                strain_increment: &$b.strain_increment,
+                stress_start: &$b.stress_start,
+                state_start: &$b.state_start,
+                energy_start: &$b.energy_start,
+                conditions: $conditions,
+                time: $time,
+                time_increment: $time_increment,
+                increment: $increment,
+                elastic_response: $elastic,
+            },
+            BlockOutput {
+                stress: &mut $b.stress,
+                state: &mut $b.state,
+                energy: &mut $b.energy,
+                deleted: &mut $b.deleted,
+                outcome: &mut $b.outcome,
+            },
+        )
+    };
+}
+
 /// Inputs and outputs of a block of `npoints` points; `step` makes one call and, on success,
 /// makes the outputs the next call's start.
 #[derive(Clone, Debug)]
@@ -67,26 +96,16 @@ impl BlockBuffers {
         self.state.fill(f64::NAN);
         self.energy.fill(SpecificEnergy { internal: f64::NAN, dissipated: f64::NAN });
         self.deleted.fill(-1);
-        let input = BlockInput {
+        let elastic_response = increment == 0 && time_increment == 0.0 && self.time == 0.0;
+        let (input, mut output) = call_views!(
+            self,
             properties,
-            strain: &self.strain,
-            strain_increment: &self.strain_increment,
-            stress_start: &self.stress_start,
-            state_start: &self.state_start,
-            energy_start: &self.energy_start,
-            conditions: &self.conditions,
-            time: self.time,
+            &self.conditions,
+            self.time,
             time_increment,
             increment,
-            elastic_response: increment == 0 && time_increment == 0.0 && self.time == 0.0,
-        };
-        let mut output = BlockOutput {
-            stress: &mut self.stress,
-            state: &mut self.state,
-            energy: &mut self.energy,
-            deleted: &mut self.deleted,
-            outcome: &mut self.outcome,
-        };
+            elastic_response
+        );
         routine.call(&input, &mut output)
     }
 
@@ -184,26 +203,8 @@ impl ComplexPoint {
         let nan = Complex64::new(f64::NAN, f64::NAN);
         self.stress.fill(nan);
         self.state.fill(nan);
-        let input = BlockInput {
-            properties: &self.properties,
-            strain: &self.strain,
-            strain_increment: &self.strain_increment,
-            stress_start: &self.stress_start,
-            state_start: &self.state_start,
-            energy_start: &self.energy_start,
-            conditions,
-            time,
-            time_increment,
-            increment,
-            elastic_response: false,
-        };
-        let mut output = BlockOutput {
-            stress: &mut self.stress,
-            state: &mut self.state,
-            energy: &mut self.energy,
-            deleted: &mut self.deleted,
-            outcome: &mut self.outcome,
-        };
+        let (input, mut output) =
+            call_views!(self, &self.properties, conditions, time, time_increment, increment, false);
         routine.call_complex(&input, &mut output)
     }
 }

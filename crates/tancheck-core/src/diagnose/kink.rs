@@ -47,6 +47,33 @@ impl Side {
             Side::Neither => "neither",
         }
     }
+
+    /// The side a returned column (or ∂σ/∂T) matches from its errors against the forward and
+    /// the backward derivative: one rule for both kink probes. Within `tol` of both, it is
+    /// `Both` unless the gaps say kink, where the closer side wins.
+    pub fn matched(forward_error: f64, backward_error: f64, tol: f64, detected: bool) -> Side {
+        match (forward_error <= tol, backward_error <= tol) {
+            (true, true) if !detected => Side::Both,
+            (true, true) if forward_error <= backward_error => Side::Forward,
+            (true, true) | (false, true) => Side::Backward,
+            (true, false) => Side::Forward,
+            (false, false) => Side::Neither,
+        }
+    }
+}
+
+/// A kink: the gap between the one-sided derivatives stays above the one-sided truncation level
+/// at every step and does not shrink with h. Why 0.3: truncation falls 100-fold over STEPS, a
+/// kink's gap not at all; keeping 30% of the first gap at the last step tells them apart with
+/// room for round-off. Shared by both kink probes.
+pub(super) fn kinked(gaps: &[f64]) -> bool {
+    gaps.len() >= 2 && gaps.iter().all(|&x| x > GAP_LEVEL) && gaps[gaps.len() - 1] > 0.3 * gaps[0]
+}
+
+/// No kink at the point, but one within the largest step: the gap is above [`GAP_LEVEL`] at
+/// the largest step and below it at the smallest. Shared by both kink probes.
+pub(super) fn nearby(gaps: &[f64], detected: bool) -> bool {
+    !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL
 }
 
 /// What the kink probe found in one column (strain direction).
@@ -131,34 +158,18 @@ pub fn judge(
         }
     }
     let (f, b) = pairs.last().expect("at least one step");
-    // A gap that stays above the one-sided truncation level and does not shrink with h. Why
-    // 0.3: truncation falls 100-fold over STEPS, a kink's gap not at all; keeping 30% of the
-    // first gap at the last step tells them apart with room for round-off.
-    let kinked = |g: &[f64]| g.len() >= 2 && g.iter().all(|&x| x > GAP_LEVEL) && g[g.len() - 1] > 0.3 * g[0];
     let cf = compare(conv, returned, f, tol, entry_floor, 0);
     let cb = compare(conv, returned, b, tol, entry_floor, 0);
     let columns: Vec<KinkColumn> = (0..n)
         .map(|j| {
             let (fe, be) = (cf.column_errors[j], cb.column_errors[j]);
             let detected = kinked(&col_gaps[j]);
-            let matches = match (fe <= tol, be <= tol) {
-                (true, true) if !detected => Side::Both,
-                (true, true) => {
-                    if fe <= be {
-                        Side::Forward
-                    } else {
-                        Side::Backward
-                    }
-                }
-                (true, false) => Side::Forward,
-                (false, true) => Side::Backward,
-                (false, false) => Side::Neither,
-            };
+            let matches = Side::matched(fe, be, tol, detected);
             KinkColumn { gaps: col_gaps[j].clone(), detected, forward_error: fe, backward_error: be, matches }
         })
         .collect();
     let detected = kinked(&gaps) || columns.iter().any(|c| c.detected);
-    let nearby = !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL;
+    let nearby = nearby(&gaps, detected);
     let whole = |c: &crate::compare::Comparison| c.error();
     let (fe, be) = (whole(&cf), whole(&cb));
     let returned_matches = if fe <= tol && fe <= be {

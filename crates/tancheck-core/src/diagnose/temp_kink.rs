@@ -6,7 +6,7 @@
 //! with the same steps, the same gap level and the same rule that a kink alone is not a
 //! failure, a returned ∂σ/∂T that matches neither one-sided derivative is.
 
-use super::kink::{one_sided, Side, GAP_LEVEL};
+use super::kink::{kinked, nearby, one_sided, Side};
 use crate::compare::{compare_dtemp_floor, Limits};
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
@@ -18,7 +18,7 @@ pub struct TempKink {
     /// Gap ‖F − B‖ between the one-sided derivatives, relative to the column (or the absolute
     /// floor of [`crate::compare::dtemp_floor`]), per step of [`STEPS`](super::kink::STEPS).
     pub gaps: Vec<f64>,
-    /// The gap stays above [`GAP_LEVEL`] and does not shrink with the step.
+    /// The gap stays above [`GAP_LEVEL`](super::kink::GAP_LEVEL) and does not shrink with the step.
     pub detected: bool,
     /// No kink at the point, but one within the largest probe step.
     pub nearby: bool,
@@ -59,20 +59,10 @@ pub fn judge(
     };
     let gaps: Vec<f64> = pairs.iter().map(|(f, b)| cmp(b, f, f64::INFINITY).norm_error).collect();
     let (f, b) = pairs.last().expect("at least one step");
-    // The rule of `kink::judge`: above the one-sided truncation level at every step, and
-    // keeping 30 % of the first gap at the last step (a kink's gap does not fall with h).
-    let detected =
-        gaps.len() >= 2 && gaps.iter().all(|&x| x > GAP_LEVEL) && gaps[gaps.len() - 1] > 0.3 * gaps[0];
-    let nearby = !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL;
+    let detected = kinked(&gaps);
+    let nearby = nearby(&gaps, detected);
     let (fe, be) = (cmp(returned, f, tol).error(), cmp(returned, b, tol).error());
-    let matches = match (fe <= tol, be <= tol) {
-        (true, true) if !detected => Side::Both,
-        (true, true) if fe <= be => Side::Forward,
-        (true, true) => Side::Backward,
-        (true, false) => Side::Forward,
-        (false, true) => Side::Backward,
-        (false, false) => Side::Neither,
-    };
+    let matches = Side::matched(fe, be, tol, detected);
     TempKink {
         gaps,
         detected,

@@ -79,6 +79,20 @@ pub struct FiniteReport {
     pub cautions: Vec<String>,
 }
 
+/// The start of a path's first increment (stress zero, 20 °C, time 0): where the check and
+/// the probes begin, written once.
+pub(super) fn path_start(properties: &[f64], state0: &[f64], path: &FinitePath) -> Start {
+    Start {
+        properties: properties.to_vec(),
+        f0: path.gradients[0],
+        stress0: [0.0; 6],
+        state0: state0.to_vec(),
+        temperature: [20.0, 0.0],
+        time: [0.0, 1.0],
+        increment: 1,
+    }
+}
+
 /// Check `r` along `path` from `state0` (stress zero at the start).
 pub fn run(
     r: &mut dyn FiniteRoutine,
@@ -107,15 +121,7 @@ pub fn run(
         complex_calls: 0,
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
     };
-    let mut start = Start {
-        properties: properties.to_vec(),
-        f0: path.gradients[0],
-        stress0: [0.0; 6],
-        state0: state0.to_vec(),
-        temperature: [20.0, 0.0],
-        time: [0.0, 1.0],
-        increment: 1,
-    };
+    let mut start = path_start(properties, state0, path);
     let mut central = vec![0.0; n * n];
     let mut complex = vec![0.0; n * n];
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {

@@ -18,6 +18,7 @@
 
 use serde::{Deserialize, Serialize};
 
+use super::check::path_start;
 use super::mat3::{self, Mat3};
 use super::numeric::{Start, Workspace};
 use super::path::{shear, FinitePath};
@@ -110,15 +111,7 @@ fn walk(
     path: &FinitePath,
 ) -> Result<Vec<Start>, String> {
     let mut starts = Vec::new();
-    let mut s = Start {
-        properties: properties.to_vec(),
-        f0: path.gradients[0],
-        stress0: [0.0; 6],
-        state0: state0.to_vec(),
-        temperature: [20.0, 0.0],
-        time: [0.0, 1.0],
-        increment: 1,
-    };
+    let mut s = path_start(properties, state0, path);
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
         s.increment = k as i32;
         starts.push(s.clone());
@@ -153,163 +146,184 @@ pub fn run_all(
         }
     };
     let scale = starts.iter().map(|s| norm(&s.stress0)).fold(0.0, f64::max).max(1e-300);
-    vec![
-        superposed(r, &mut ws, &starts, path, options, scale),
-        increment(r, &mut ws, &starts, options, scale),
-        stretch_rotate(r, &mut ws, &starts, options, scale),
-        simple_shear(r, &mut ws, properties, state0, options),
-    ]
+    let mut rotation = Rotation { r, ws: &mut ws, starts: &starts, options, scale };
+    let mut results = vec![rotation.superposed(path), rotation.increment(), rotation.stretch_rotate()];
+    results.push(simple_shear(r, &mut ws, properties, state0, options));
+    results
 }
 
 const ANGLES: [f64; 2] = [0.01, 1.2];
 const AXIS: [f64; 3] = [0.2, -0.5, 1.0];
 
-fn verdict(name: &str, worst: f64, what: &str, details: Vec<String>) -> FiniteProbeResult {
-    let passed = worst <= ROTATION_TOLERANCE;
-    FiniteProbeResult {
-        name: name.into(),
-        passed,
-        summary: if passed {
-            format!("{what} (largest relative difference {worst:.1e})")
-        } else {
-            format!("NOT objective: {what} fails by {worst:.2e} of the stress scale")
-        },
-        details,
+/// The small and the large rotation about [`AXIS`]: (angle, Q).
+fn rotations() -> impl Iterator<Item = (f64, Mat3<f64>)> {
+    ANGLES.into_iter().map(|angle| (angle, mat3::axis_rotation(AXIS, angle)))
+}
+
+/// The difference `d` relative to the size of `of` (of a zero vector: `d` itself, large).
+fn relative(d: f64, of: &[f64]) -> f64 {
+    d / norm(of).max(1e-300)
+}
+
+/// ", state E" where there is a state, else nothing: the state part of a detail line.
+fn state_part(state: &[f64], error: f64) -> String {
+    if state.is_empty() {
+        String::new()
+    } else {
+        format!(", state {error:.2e}")
     }
 }
 
-fn superposed(
-    r: &mut dyn FiniteRoutine,
-    ws: &mut Workspace,
-    starts: &[Start],
-    path: &FinitePath,
-    options: &ProbeOptions,
-    scale: f64,
-) -> FiniteProbeResult {
-    let mut worst = 0.0_f64;
-    let mut details = Vec::new();
-    for angle in ANGLES {
-        let q = mat3::axis_rotation(AXIS, angle);
-        for (k, s) in starts[..starts.len() - 1].iter().enumerate() {
-            let f1 = path.gradients[k + 1];
-            let (Ok(a), Ok(b)) = (ws.call_full(r, s, &f1), {
-                let mut t = s.clone();
-                t.f0 = mat3::mul(&q, &s.f0);
-                t.stress0 = rotate6(&q, &s.stress0);
-                t.state0 = rotate_state(&q, &s.state0, &options.tensor_state);
-                ws.call_full(r, &t, &mat3::mul(&q, &f1))
-            }) else {
-                details.push(format!("increment {}: a call failed", k + 1));
-                worst = f64::INFINITY;
-                continue;
-            };
-            let e = diff(&b.stress, &rotate6(&q, &a.stress)) / scale;
-            let es = diff(&b.state, &rotate_state(&q, &a.state, &options.tensor_state))
-                / norm(&a.state).max(1e-300);
-            let ee = if a.outcome.provides(crate::routine::provides::ENERGY) {
-                diff(&b.energy, &a.energy) / norm(&a.energy).max(1e-300)
+/// The largest relative difference a rotation probe found and a line for each case over the
+/// tolerance or whose call failed: the bookkeeping every rotation probe shares.
+#[derive(Default)]
+struct Findings {
+    worst: f64,
+    details: Vec<String>,
+}
+
+impl Findings {
+    /// A call that failed: the probe cannot pass.
+    fn failed(&mut self, detail: String) {
+        self.details.push(detail);
+        self.worst = f64::INFINITY;
+    }
+
+    /// A relative difference `m`, described by `detail` when it is over the tolerance.
+    fn difference(&mut self, m: f64, detail: impl FnOnce() -> String) {
+        if m > ROTATION_TOLERANCE {
+            self.details.push(detail());
+        }
+        self.worst = self.worst.max(m);
+    }
+
+    fn verdict(self, name: &str, what: &str) -> FiniteProbeResult {
+        let Findings { worst, details } = self;
+        let passed = worst <= ROTATION_TOLERANCE;
+        FiniteProbeResult {
+            name: name.into(),
+            passed,
+            summary: if passed {
+                format!("{what} (largest relative difference {worst:.1e})")
             } else {
-                0.0
-            };
-            let m = e.max(es).max(ee);
-            if m > ROTATION_TOLERANCE {
-                let state = if s.state0.is_empty() { String::new() } else { format!(", state {es:.2e}") };
-                details.push(format!(
-                    "increment {}, rotation {angle} rad: stress {e:.2e}{state}, energy {ee:.2e}",
-                    k + 1
-                ));
-            }
-            worst = worst.max(m);
+                format!("NOT objective: {what} fails by {worst:.2e} of the stress scale")
+            },
+            details,
         }
     }
-    verdict(
-        "rotation-superposed",
-        worst,
-        "a rigid rotation of the whole motion rotates stress and state",
-        details,
-    )
 }
 
-fn increment(
-    r: &mut dyn FiniteRoutine,
-    ws: &mut Workspace,
-    starts: &[Start],
-    options: &ProbeOptions,
+/// What the three rotation probes share: the routine, the starts of the path's increments, the
+/// options and the stress scale the differences are relative to.
+struct Rotation<'a> {
+    r: &'a mut dyn FiniteRoutine,
+    ws: &'a mut Workspace,
+    starts: &'a [Start],
+    options: &'a ProbeOptions,
     scale: f64,
-) -> FiniteProbeResult {
-    let mut worst = 0.0_f64;
-    let mut details = Vec::new();
-    for angle in ANGLES {
-        let q = mat3::axis_rotation(AXIS, angle);
-        for s in &starts[1..] {
-            let Ok(b) = ws.call_full(r, s, &mat3::mul(&q, &s.f0)) else {
-                details.push(format!("after increment {}: the call failed", s.increment));
-                worst = f64::INFINITY;
-                continue;
-            };
-            let e = diff(&b.stress, &rotate6(&q, &s.stress0)) / scale;
-            let es = diff(&b.state, &rotate_state(&q, &s.state0, &options.tensor_state))
-                / norm(&s.state0).max(1e-300);
-            let m = e.max(es);
-            if m > ROTATION_TOLERANCE {
-                let state = if s.state0.is_empty() { String::new() } else { format!(", state {es:.2e}") };
-                details.push(format!(
-                    "rigid increment of {angle} rad after increment {}: stress {e:.2e}{state}",
-                    s.increment - 1
-                ));
-            }
-            worst = worst.max(m);
-        }
-    }
-    verdict("rotation-increment", worst, "a rigid increment rotates the stress", details)
 }
 
-fn stretch_rotate(
-    r: &mut dyn FiniteRoutine,
-    ws: &mut Workspace,
-    starts: &[Start],
-    options: &ProbeOptions,
-    scale: f64,
-) -> FiniteProbeResult {
-    let end = starts.last().expect("a path has increments").clone();
-    let mut s = end.clone();
-    let mut worst = 0.0_f64;
-    let mut details = Vec::new();
-    let steps = 6;
-    for k in 1..=steps {
-        let q = mat3::axis_rotation(AXIS, std::f64::consts::FRAC_PI_2 * k as f64 / steps as f64);
-        let f1 = mat3::mul(&q, &end.f0);
-        let res = match ws.call_full(r, &s, &f1) {
-            Ok(x) => x,
-            Err(e) => {
-                details.push(format!("rotation step {k}: {e}"));
-                worst = f64::INFINITY;
-                break;
+impl Rotation<'_> {
+    fn superposed(&mut self, path: &FinitePath) -> FiniteProbeResult {
+        let mut found = Findings::default();
+        for (angle, q) in rotations() {
+            for (k, s) in self.starts[..self.starts.len() - 1].iter().enumerate() {
+                let f1 = path.gradients[k + 1];
+                let (Ok(a), Ok(b)) = (self.ws.call_full(self.r, s, &f1), {
+                    let mut t = s.clone();
+                    t.f0 = mat3::mul(&q, &s.f0);
+                    t.stress0 = rotate6(&q, &s.stress0);
+                    t.state0 = rotate_state(&q, &s.state0, &self.options.tensor_state);
+                    self.ws.call_full(self.r, &t, &mat3::mul(&q, &f1))
+                }) else {
+                    found.failed(format!("increment {}: a call failed", k + 1));
+                    continue;
+                };
+                let e = diff(&b.stress, &rotate6(&q, &a.stress)) / self.scale;
+                let es = relative(
+                    diff(&b.state, &rotate_state(&q, &a.state, &self.options.tensor_state)),
+                    &a.state,
+                );
+                let ee = if a.outcome.provides(crate::routine::provides::ENERGY) {
+                    relative(diff(&b.energy, &a.energy), &a.energy)
+                } else {
+                    0.0
+                };
+                found.difference(e.max(es).max(ee), || {
+                    let state = state_part(&s.state0, es);
+                    format!(
+                        "increment {}, rotation {angle} rad: stress {e:.2e}{state}, energy {ee:.2e}",
+                        k + 1
+                    )
+                });
             }
-        };
-        let qt = mat3::transpose(&q);
-        let e = diff(&rotate6(&qt, &res.stress), &end.stress0) / scale;
-        let es = diff(&rotate_state(&qt, &res.state, &options.tensor_state), &end.state0)
-            / norm(&end.state0).max(1e-300);
-        let e = e.max(es);
-        if e > ROTATION_TOLERANCE {
-            details.push(format!(
-                "rotation step {k} ({:.1} degrees): stress or state in the rotated frame off by {e:.2e}",
-                90.0 * k as f64 / steps as f64
-            ));
         }
-        worst = worst.max(e);
-        s.f0 = f1;
-        s.stress0 = res.stress;
-        s.state0 = res.state;
-        s.increment += 1;
+        found.verdict("rotation-superposed", "a rigid rotation of the whole motion rotates stress and state")
     }
-    verdict(
-        "stretch-rotate",
-        worst,
-        "after the stretch, a rigid rotation leaves the stress in the rotated frame unchanged",
-        details,
-    )
+
+    fn increment(&mut self) -> FiniteProbeResult {
+        let mut found = Findings::default();
+        for (angle, q) in rotations() {
+            for s in &self.starts[1..] {
+                let Ok(b) = self.ws.call_full(self.r, s, &mat3::mul(&q, &s.f0)) else {
+                    found.failed(format!("after increment {}: the call failed", s.increment));
+                    continue;
+                };
+                let e = diff(&b.stress, &rotate6(&q, &s.stress0)) / self.scale;
+                let es = relative(
+                    diff(&b.state, &rotate_state(&q, &s.state0, &self.options.tensor_state)),
+                    &s.state0,
+                );
+                found.difference(e.max(es), || {
+                    let state = state_part(&s.state0, es);
+                    format!(
+                        "rigid increment of {angle} rad after increment {}: stress {e:.2e}{state}",
+                        s.increment - 1
+                    )
+                });
+            }
+        }
+        found.verdict("rotation-increment", "a rigid increment rotates the stress")
+    }
+
+    fn stretch_rotate(&mut self) -> FiniteProbeResult {
+        let end = self.starts.last().expect("a path has increments").clone();
+        let mut s = end.clone();
+        let mut found = Findings::default();
+        let steps = 6;
+        for k in 1..=steps {
+            let q = mat3::axis_rotation(AXIS, std::f64::consts::FRAC_PI_2 * k as f64 / steps as f64);
+            let f1 = mat3::mul(&q, &end.f0);
+            let res = match self.ws.call_full(self.r, &s, &f1) {
+                Ok(x) => x,
+                Err(e) => {
+                    found.failed(format!("rotation step {k}: {e}"));
+                    break;
+                }
+            };
+            let qt = mat3::transpose(&q);
+            let e = diff(&rotate6(&qt, &res.stress), &end.stress0) / self.scale;
+            let es = relative(
+                diff(&rotate_state(&qt, &res.state, &self.options.tensor_state), &end.state0),
+                &end.state0,
+            );
+            let e = e.max(es);
+            found.difference(e, || {
+                format!(
+                    "rotation step {k} ({:.1} degrees): stress or state in the rotated frame off by {e:.2e}",
+                    90.0 * k as f64 / steps as f64
+                )
+            });
+            s.f0 = f1;
+            s.stress0 = res.stress;
+            s.state0 = res.state;
+            s.increment += 1;
+        }
+        found.verdict(
+            "stretch-rotate",
+            "after the stretch, a rigid rotation leaves the stress in the rotated frame unchanged",
+        )
+    }
 }
 
 fn simple_shear(

@@ -13,7 +13,8 @@
 
 use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
-use crate::convention::ShearMeasure;
+use crate::convention::{Convention, ShearMeasure};
+use crate::driver::Driver;
 use crate::error::CoreError;
 use crate::path::Path;
 use crate::routine::Caller;
@@ -21,6 +22,43 @@ use crate::routine::Caller;
 pub struct Regularisation;
 
 const DEFAULT_TOL: f64 = 2e-2;
+
+/// The work per unit volume σ·dε done along a walk (trapezoid rule in each increment) and the
+/// size of the stress, to tell when it is gone: what the regularisation and the snap-back
+/// probes measure, in one place.
+pub(super) struct WorkMeter {
+    /// σ·dε is the work with engineering shear; a tensor shear counts twice.
+    weight: Vec<f64>,
+    /// The work so far.
+    pub work: f64,
+    peak: f64,
+    last: f64,
+}
+
+impl WorkMeter {
+    pub fn new(conv: &Convention) -> WorkMeter {
+        let tensor = conv.shear() == ShearMeasure::Tensor;
+        let weight = conv.order().iter().map(|c| if c.is_shear() && tensor { 2.0 } else { 1.0 }).collect();
+        WorkMeter { weight, work: 0.0, peak: 0.0, last: 0.0 }
+    }
+
+    /// The work from stress `s0` to `s1` over the fraction `f` of the strain increment `de`.
+    pub fn part(&self, s0: &[f64], s1: &[f64], de: &[f64], f: f64) -> f64 {
+        (0..s1.len()).map(|i| 0.5 * (s0[i] + s1[i]) * de[i] * f * self.weight[i]).sum::<f64>()
+    }
+
+    /// Add the driver's increment (its start to its base call) and follow the stress's size.
+    pub fn add(&mut self, d: &Driver) {
+        self.work += self.part(&d.start().stress, &d.base.stress, d.dstrain(), 1.0);
+        self.last = d.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt();
+        self.peak = self.peak.max(self.last);
+    }
+
+    /// The stress at the end is gone (below 1e-6 of the largest along the walk).
+    pub fn stress_gone(&self) -> bool {
+        self.last <= 1e-6 * self.peak
+    }
+}
 
 /// W along `path` with `props`, and whether the stress is gone at the end.
 fn work(
@@ -30,29 +68,12 @@ fn work(
     path: &Path,
 ) -> Result<(f64, bool), (usize, crate::routine::Fault)> {
     let env2 = ProbeEnv { props, path, ..*env };
-    let conv = caller.info().convention.clone();
-    // σ·dε is the work with engineering shear; a tensor shear counts twice.
-    let weight: Vec<f64> = conv
-        .order()
-        .iter()
-        .map(|c| if c.is_shear() && conv.shear() == ShearMeasure::Tensor { 2.0 } else { 1.0 })
-        .collect();
-    let mut w = 0.0;
-    let (mut peak, mut last) = (0.0_f64, 0.0_f64);
+    let mut meter = WorkMeter::new(&caller.info().convention.clone());
     walk(caller, &env2, |_, d, _| {
-        let s0 = &d.start().stress;
-        let s1 = &d.base.stress;
-        let de = d.dstrain();
-        let mut dw = 0.0;
-        for i in 0..s1.len() {
-            dw += 0.5 * (s0[i] + s1[i]) * de[i] * weight[i];
-        }
-        w += dw;
-        last = s1.iter().map(|x| x * x).sum::<f64>().sqrt();
-        peak = peak.max(last);
+        meter.add(d);
         Ok(())
     })?;
-    Ok((w, last <= 1e-6 * peak))
+    Ok((meter.work, meter.stress_gone()))
 }
 
 impl Probe for Regularisation {

@@ -25,8 +25,8 @@
 //! admissible fracture energy. Tolerance `tol` (relative, default 1e-3). Skipped without
 //! `damage`, without `length` and `fracture_energy`, or when the damage does not grow.
 
+use super::regularisation::WorkMeter;
 use super::{walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
-use crate::convention::ShearMeasure;
 use crate::error::CoreError;
 use crate::probe::Needs;
 use crate::routine::{Caller, Fault};
@@ -63,17 +63,8 @@ fn measure(
     indices: &[usize],
 ) -> Result<Walked, (usize, Fault)> {
     let env2 = ProbeEnv { props, ..*env };
-    let conv = caller.info().convention.clone();
-    let weight: Vec<f64> = conv
-        .order()
-        .iter()
-        .map(|c| if c.is_shear() && conv.shear() == ShearMeasure::Tensor { 2.0 } else { 1.0 })
-        .collect();
-    let dot = |s0: &[f64], s1: &[f64], de: &[f64], f: f64| {
-        (0..s1.len()).map(|i| 0.5 * (s0[i] + s1[i]) * de[i] * f * weight[i]).sum::<f64>()
-    };
+    let mut meter = WorkMeter::new(&caller.info().convention.clone());
     let mut out = Walked { onset_work: None, onset_increment: 0, work: 0.0, failed: false };
-    let (mut peak, mut last) = (0.0_f64, 0.0_f64);
     walk(caller, &env2, |k, d, c| {
         if out.onset_work.is_none() && grows(d, indices) {
             // Bisect the fraction of the increment at which the damage starts to grow.
@@ -92,15 +83,14 @@ fn measure(
             }
             d.rescale(1.0);
             d.base_call(c)?;
-            out.onset_work = Some(out.work + dot(&d.start().stress, &s_lo, d.dstrain(), lo));
+            out.onset_work = Some(meter.work + meter.part(&d.start().stress, &s_lo, d.dstrain(), lo));
             out.onset_increment = k;
         }
-        out.work += dot(&d.start().stress, &d.base.stress, d.dstrain(), 1.0);
-        last = d.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt();
-        peak = peak.max(last);
+        meter.add(d);
         Ok(())
     })?;
-    out.failed = last <= 1e-6 * peak;
+    out.work = meter.work;
+    out.failed = meter.stress_gone();
     Ok(out)
 }
 

@@ -13,11 +13,11 @@
 //! part): a zero eigenvalue, as in a fully failed mode whose stiffness is gone, is not
 //! softening. Without `damage`: skipped with that reason.
 
-use super::stability::{assess, Assessment};
+use super::stability::{assess, probed_tangent, Assessment};
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::probe::Needs;
-use crate::routine::{Caller, Fault};
+use crate::routine::Caller;
 
 pub struct Softening;
 
@@ -66,21 +66,15 @@ impl Softening {
         let conv = caller.info().convention.clone();
         let mut seen: Vec<Seen> = Vec::new();
         let walked = walk(caller, env, |k, d, _| {
-            if !env.spec.runs_at(k) {
+            let Some(tangent) = probed_tangent(env, k, d)? else {
                 return Ok(());
-            }
-            if let Some(i) = d.base.tangent.iter().position(|x| !x.is_finite()) {
-                return Err(Fault::Unsupported(format!(
-                    "the returned tangent has a non-finite entry ({} at position {i})",
-                    d.base.tangent[i]
-                )));
-            }
+            };
             let growth = indices.iter().any(|&i| d.base.state[i] > d.start().state[i]);
             seen.push(Seen {
                 increment: k,
                 growth,
                 branch: d.base.outcome.branch,
-                assessment: assess(&conv, &d.base.tangent),
+                assessment: assess(&conv, tangent),
             });
             Ok(())
         });

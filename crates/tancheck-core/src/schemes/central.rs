@@ -1,28 +1,9 @@
 //! Central difference: (f(x + h) − f(x − h)) / 2h, truncation error O(h²).
 
-use crate::driver::{Direction, Driver};
-use crate::routine::{Caller, Fault};
+use super::Stencil;
 
-/// Column of ∂σ/∂dir from calls at +h and −h.
-pub fn column(
-    driver: &mut Driver,
-    caller: &mut Caller<'_>,
-    dir: Direction,
-    h: f64,
-    col: &mut [f64],
-) -> Result<(), Fault> {
-    driver.perturbed_call(caller, dir, h)?;
-    driver.perturbed_call(caller, dir, -h)?;
-    for (i, c) in col.iter_mut().enumerate() {
-        *c = (driver.plus.stress[i] - driver.minus.stress[i]) / (2.0 * h);
-    }
-    Ok(())
-}
-
-/// The central difference of a scalar function.
-pub fn derivative(f: impl Fn(f64) -> f64, x: f64, h: f64) -> f64 {
-    (f(x + h) - f(x - h)) / (2.0 * h)
-}
+/// ∂σ/∂dir from calls at +h and −h.
+pub const STENCIL: Stencil = Stencil { points: &[(1.0, 1.0), (-1.0, -1.0)], div: 2.0 };
 
 #[cfg(test)]
 mod tests {
@@ -33,11 +14,9 @@ mod tests {
     // (derived): 1.32e-8 at h = 1e-4, 1.39e-10 at h = 1e-6, 5.4e-5 at h = 1e-12.
     #[test]
     fn error_levels_on_the_published_test_function() {
-        let e4 = rel_err(derivative(f, X, 1e-4));
-        assert!((e4 / 1.32e-8 - 1.0).abs() < 0.02, "h=1e-4: {e4:e}");
-        let e6 = rel_err(derivative(f, X, 1e-6));
-        assert!(e6 > 1e-11 && e6 < 1e-9, "h=1e-6: {e6:e}");
-        let e12 = rel_err(derivative(f, X, 1e-12));
-        assert!(e12 > 5e-6 && e12 < 5e-4, "h=1e-12: {e12:e}");
+        check_levels(
+            |h| STENCIL.derivative(f, X, h),
+            &[(1e-4, Near(1.32e-8, 0.02)), (1e-6, Between(1e-11, 1e-9)), (1e-12, Between(5e-6, 5e-4))],
+        );
     }
 }

@@ -4,6 +4,7 @@
 //! perturbed calls made by the [`Driver`], and offers the same formula on a scalar function
 //! (`derivative`) so it can be checked against published values.
 
+use num_complex::Complex64;
 use serde::{Deserialize, Serialize};
 use std::fmt;
 use std::str::FromStr;
@@ -81,14 +82,87 @@ impl Scheme {
         h: f64,
         col: &mut [f64],
     ) -> Result<(), Fault> {
+        let mut at = Samples { driver, caller, dir };
         match self {
-            Scheme::Forward => forward::column(driver, caller, dir, h, col),
-            Scheme::Backward => backward::column(driver, caller, dir, h, col),
-            Scheme::Central => central::column(driver, caller, dir, h, col),
-            Scheme::Central4 => central4::column(driver, caller, dir, h, col),
-            Scheme::Richardson => richardson::column(driver, caller, dir, h, col),
-            Scheme::ComplexStep => complex_step::column(driver, caller, dir, h, col),
+            Scheme::Forward => forward::STENCIL.column(&mut at, h, col),
+            Scheme::Backward => backward::STENCIL.column(&mut at, h, col),
+            Scheme::Central => central::STENCIL.column(&mut at, h, col),
+            Scheme::Central4 => central4::STENCIL.column(&mut at, h, col),
+            Scheme::Richardson => richardson::column(&mut at, h, col),
+            Scheme::ComplexStep => complex_step::column(&mut at, h, col),
         }
+    }
+}
+
+/// The calls one column is made of, along one direction: every scheme samples through this one
+/// value instead of passing the driver, the caller and the direction on by hand.
+pub(crate) struct Samples<'a, 'l> {
+    driver: &'a mut Driver,
+    caller: &'a mut Caller<'l>,
+    dir: Direction,
+}
+
+impl Samples<'_, '_> {
+    /// Call with the increment moved by `step` along the direction (results in the driver's
+    /// `plus` for `step > 0`, else `minus`).
+    pub(crate) fn call(&mut self, step: f64) -> Result<(), Fault> {
+        self.driver.perturbed_call(self.caller, self.dir, step)
+    }
+
+    /// The stresses at `step`: the base call's for 0 (already made), else a new call's.
+    fn stress(&mut self, step: f64) -> Result<&[f64], Fault> {
+        if step == 0.0 {
+            return Ok(&self.driver.base.stress);
+        }
+        self.call(step)?;
+        Ok(if step > 0.0 { &self.driver.plus.stress } else { &self.driver.minus.stress })
+    }
+
+    /// The stresses of the complex twin with imaginary part `h` along the direction.
+    pub(crate) fn complex_stress(&mut self, h: f64) -> Result<&[Complex64], Fault> {
+        self.driver.complex_call(self.caller, self.dir, h)?;
+        Ok(&self.driver.cplx.stress)
+    }
+
+    /// The outputs of the calls made so far.
+    pub(crate) fn driver(&self) -> &Driver {
+        self.driver
+    }
+}
+
+/// A difference formula Σ w·f(x + k·h) / (div·h) as a table of (k, w), so that the checker's
+/// `column` and the scalar `derivative` the published test function checks are one formula.
+pub struct Stencil {
+    /// The sample points (k, w), in call order; k = 0 is the base call.
+    pub points: &'static [(f64, f64)],
+    /// The denominator in units of h.
+    pub div: f64,
+}
+
+impl Stencil {
+    /// Fill `col` with the derivative along the samples' direction, step `h`.
+    pub(crate) fn column(&self, at: &mut Samples<'_, '_>, h: f64, col: &mut [f64]) -> Result<(), Fault> {
+        for (p, &(k, w)) in self.points.iter().enumerate() {
+            let stress = at.stress(k * h)?;
+            for (c, s) in col.iter_mut().zip(stress) {
+                // The first point assigns, so that w = ±1 leaves the difference exact.
+                if p == 0 {
+                    *c = w * s;
+                } else {
+                    *c += w * s;
+                }
+            }
+        }
+        let div = self.div * h;
+        for c in col.iter_mut() {
+            *c /= div;
+        }
+        Ok(())
+    }
+
+    /// The same formula on a scalar function.
+    pub fn derivative(&self, f: impl Fn(f64) -> f64, x: f64, h: f64) -> f64 {
+        self.points.iter().map(|&(k, w)| w * f(x + k * h)).sum::<f64>() / (self.div * h)
     }
 }
 
@@ -127,6 +201,38 @@ pub(crate) mod test_function {
 
     pub fn rel_err(d: f64) -> f64 {
         (d - DF).abs() / DF
+    }
+
+    /// What a relative error must be at one step.
+    #[derive(Clone, Copy, Debug)]
+    pub enum Level {
+        /// Within a fraction `tol` of a published error level.
+        Near(f64, f64),
+        /// Strictly between two bounds.
+        Between(f64, f64),
+        /// Strictly below a bound.
+        Below(f64),
+        /// At most a bound.
+        AtMost(f64),
+        /// Strictly above a bound (the scheme should fail there).
+        Above(f64),
+    }
+    pub use Level::*;
+
+    /// Checks a scheme's relative error at each step against its level: one loop for every
+    /// scheme's table of published levels, naming the step that failed.
+    pub fn check_levels(derivative: impl Fn(f64) -> f64, levels: &[(f64, Level)]) {
+        for &(h, level) in levels {
+            let e = rel_err(derivative(h));
+            let ok = match level {
+                Near(at, tol) => (e / at - 1.0).abs() < tol,
+                Between(lo, hi) => e > lo && e < hi,
+                Below(hi) => e < hi,
+                AtMost(hi) => e <= hi,
+                Above(lo) => e > lo,
+            };
+            assert!(ok, "h={h:e}: relative error {e:e}, wanted {level:?}");
+        }
     }
 
     #[test]

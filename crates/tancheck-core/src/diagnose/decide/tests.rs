@@ -62,6 +62,12 @@ fn base() -> Observed {
     Observed { failed_tol: 1e-6, ..Observed::default() }
 }
 
+/// A check at the tight tolerance 1e-10 where the complex step erred by `complex` and the twin
+/// was examined: the situation of every twin row.
+fn with_twin(studies: Vec<StepStudy>, complex: f64, twin: TwinEvidence) -> Observed {
+    Observed { studies, complex: Some((complex, 1e-10)), twin: Some(twin), failed_tol: 1e-10, ..base() }
+}
+
 fn hyp(cause: Cause, explains: bool) -> Hypothesis {
     Hypothesis { cause, detail: String::new(), error_left: if explains { 1e-12 } else { 0.3 }, explains }
 }
@@ -151,13 +157,11 @@ fn rows() -> Vec<Row> {
     // the returned tangent and Richardson agrees with it (Martins et al. 2003, §3–4).
     rows.push(Row {
         what: "broken twin: real schemes converge with their order, complex step off by 0.3",
-        observed: Observed {
-            studies: consistent(),
-            complex: Some((0.3, 1e-10)),
-            twin: Some(TwinEvidence { real_part_gap: 1e-17, derivative_gap: Some(0.3) }),
-            failed_tol: 1e-10,
-            ..base()
-        },
+        observed: with_twin(
+            consistent(),
+            0.3,
+            TwinEvidence { real_part_gap: 1e-17, derivative_gap: Some(0.3) },
+        ),
         pass: true,
         finding: TWIN_FINDING,
         twin_unsafe: true,
@@ -165,13 +169,7 @@ fn rows() -> Vec<Row> {
     });
     rows.push(Row {
         what: "twin whose real part differs (1e-3 of the stress scale), real schemes converge",
-        observed: Observed {
-            studies: consistent(),
-            complex: Some((0.3, 1e-10)),
-            twin: Some(TwinEvidence { real_part_gap: 1e-3, derivative_gap: None }),
-            failed_tol: 1e-10,
-            ..base()
-        },
+        observed: with_twin(consistent(), 0.3, TwinEvidence { real_part_gap: 1e-3, derivative_gap: None }),
         pass: true,
         finding: TWIN_FINDING,
         twin_unsafe: true,
@@ -182,13 +180,11 @@ fn rows() -> Vec<Row> {
     // a real reference (`trust_twin` false, checked below).
     rows.push(Row {
         what: "twin real part off and the tangent wrong too",
-        observed: Observed {
-            studies: plateau(1e-3),
-            complex: Some((0.3, 1e-10)),
-            twin: Some(TwinEvidence { real_part_gap: 1e-3, derivative_gap: Some(0.3) }),
-            failed_tol: 1e-10,
-            ..base()
-        },
+        observed: with_twin(
+            plateau(1e-3),
+            0.3,
+            TwinEvidence { real_part_gap: 1e-3, derivative_gap: Some(0.3) },
+        ),
         pass: false,
         finding: "unexplained",
         twin_unsafe: true,
@@ -198,13 +194,11 @@ fn rows() -> Vec<Row> {
     // the twin agrees with Richardson to 1e-12: the tangent, not the twin, is wrong.
     rows.push(Row {
         what: "tangent off by 1e-7, twin agreeing with Richardson (1e-12)",
-        observed: Observed {
-            studies: vec![study(Scheme::Central, 1e-6, |h| 1e-7 + 0.3 * h * h + 1e-16 / h)],
-            complex: Some((1e-7, 1e-10)),
-            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(1e-12) }),
-            failed_tol: 1e-10,
-            ..base()
-        },
+        observed: with_twin(
+            vec![study(Scheme::Central, 1e-6, |h| 1e-7 + 0.3 * h * h + 1e-16 / h)],
+            1e-7,
+            TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(1e-12) },
+        ),
         pass: false,
         finding: "unexplained",
         twin_unsafe: false,

@@ -39,6 +39,7 @@ use nalgebra::{DMatrix, SymmetricEigen};
 
 use super::{faulted, walk, Needs, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::convention::{Convention, PointKind};
+use crate::driver::Driver;
 use crate::error::CoreError;
 use crate::routine::{Caller, Fault};
 
@@ -180,6 +181,25 @@ pub fn assess_unless_definite(conv: &Convention, tangent: &[f64], tol: f64) -> A
     }
 }
 
+/// The returned tangent of increment `k` when the spec probes it, a fault of the routine when
+/// an entry is not finite: how the stability and the softening probes read an increment.
+pub(super) fn probed_tangent<'d>(
+    env: &ProbeEnv<'_>,
+    k: usize,
+    d: &'d Driver,
+) -> Result<Option<&'d [f64]>, Fault> {
+    if !env.spec.runs_at(k) {
+        return Ok(None);
+    }
+    if let Some(i) = d.base.tangent.iter().position(|x| !x.is_finite()) {
+        return Err(Fault::Unsupported(format!(
+            "the returned tangent has a non-finite entry ({} at position {i})",
+            d.base.tangent[i]
+        )));
+    }
+    Ok(Some(&d.base.tangent))
+}
+
 /// Walk the path and assess the tangent at each probed increment. A non-finite tangent
 /// is a fault of the routine.
 pub fn survey(caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<Survey, (usize, Fault)> {
@@ -187,16 +207,10 @@ pub fn survey(caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<Survey, (us
     let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
     let mut s = Survey { increments: Vec::new(), first_softening: None, first_loss: None };
     walk(caller, env, |k, d, _| {
-        if !env.spec.runs_at(k) {
+        let Some(tangent) = probed_tangent(env, k, d)? else {
             return Ok(());
-        }
-        if let Some(i) = d.base.tangent.iter().position(|x| !x.is_finite()) {
-            return Err(Fault::Unsupported(format!(
-                "the returned tangent has a non-finite entry ({} at position {i})",
-                d.base.tangent[i]
-            )));
-        }
-        let a = assess_unless_definite(&conv, &d.base.tangent, tol);
+        };
+        let a = assess_unless_definite(&conv, tangent, tol);
         if s.first_softening.is_none() && a.eigen_ratio() <= tol {
             s.first_softening = Some(k);
         }
