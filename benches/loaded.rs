@@ -23,7 +23,7 @@ use tancheck::cli::load::Loaded;
 use tancheck::cli::report::terminal::{Detail, Terminal};
 use tancheck::cli::report::Reporter;
 use tancheck::cli::suite::Suite;
-use tancheck::core::compare::compare_along;
+use tancheck::core::compare::{compare_along, Limits};
 use tancheck::core::path::Shape;
 use tancheck::core::{
     check, Caller, Direction, Driver, PointKind, PointState, Routine, Scheme, Settings, Verdict,
@@ -97,7 +97,8 @@ fn bench(c: &mut Criterion) {
         }
         let tol = settings.central.tol;
         let along = Some(driver.dstrain());
-        let check = compare_along(&conv, &returned, &numerical, tol, settings.entry_floor, 4, along);
+        let check =
+            compare_along(&conv, &returned, &numerical, Limits::new(tol, settings.entry_floor, 4), along);
         assert!(check.pass, "the J2 tangent agrees with central differences: {check:?}");
         let mut g = c.benchmark_group("comparison");
         g.warm_up_time(Duration::from_millis(500)).measurement_time(Duration::from_secs(2));
@@ -107,9 +108,7 @@ fn bench(c: &mut Criterion) {
                     &conv,
                     std::hint::black_box(&returned),
                     std::hint::black_box(&numerical),
-                    tol,
-                    settings.entry_floor,
-                    settings.worst_entries,
+                    Limits::new(tol, settings.entry_floor, settings.worst_entries),
                     along,
                 )
             })

@@ -65,7 +65,7 @@ fn perturbed_calls_into_a_compiled_routine_allocate_nothing() {
 /// the same order, as sorting every entry by decreasing error (a stable sort) would.
 #[test]
 fn one_comparison_allocates_nothing() {
-    use tancheck::core::compare::{compare_along, compare_dtemp_floor};
+    use tancheck::core::compare::{compare_along, compare_dtemp_floor, Limits};
     use tancheck::core::{Convention, ShearMeasure};
     let mut m = reference("j2", tancheck::core::PointKind::Solid3d).unwrap();
     let info = m.info().clone();
@@ -82,16 +82,26 @@ fn one_comparison_allocates_nothing() {
     }
     let dir = driver.dstrain().to_vec();
     let s = tancheck::core::Settings::default();
-    let warm = compare_along(&conv, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    let warm = compare_along(
+        &conv,
+        &returned,
+        &numerical,
+        Limits::new(1e-6, s.entry_floor, s.worst_entries),
+        Some(&dir),
+    );
     let before = allocations();
-    let c = compare_along(&conv, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    let c = compare_along(
+        &conv,
+        &returned,
+        &numerical,
+        Limits::new(1e-6, s.entry_floor, s.worst_entries),
+        Some(&dir),
+    );
     let d = compare_dtemp_floor(
         &conv,
         &returned[..6],
         &numerical[..6],
-        1e-6,
-        s.entry_floor,
-        s.worst_entries,
+        Limits::new(1e-6, s.entry_floor, s.worst_entries),
         1.0,
     );
     let after = allocations();
@@ -104,7 +114,13 @@ fn one_comparison_allocates_nothing() {
     );
     assert_eq!(c.entry_errors.len(), 36);
     let before = allocations();
-    let same = compare_along(&conv, &returned, &returned, 1e-6, s.entry_floor, s.worst_entries, Some(&dir));
+    let same = compare_along(
+        &conv,
+        &returned,
+        &returned,
+        Limits::new(1e-6, s.entry_floor, s.worst_entries),
+        Some(&dir),
+    );
     assert_eq!(allocations() - before, 0, "a passing comparison allocated");
     assert!(same.pass && same.entry_errors.is_empty());
     assert_eq!(c, warm);
@@ -141,6 +157,7 @@ fn one_comparison_allocates_nothing() {
         ShearMeasure::Tensor,
     )
     .unwrap();
-    let c2 = compare_along(&other, &returned, &numerical, 1e-6, s.entry_floor, s.worst_entries, None);
+    let c2 =
+        compare_along(&other, &returned, &numerical, Limits::new(1e-6, s.entry_floor, s.worst_entries), None);
     assert_eq!(c2.worst[0].label, other.entry_label(c2.worst[0].row, c2.worst[0].col));
 }

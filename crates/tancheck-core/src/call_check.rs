@@ -8,7 +8,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::{compare_along, compare_dtemp_floor, dtemp_floor};
+use smallvec::SmallVec;
+
+use crate::compare::{compare_along, compare_dtemp_floor, compare_with, dtemp_floor, Limits, SoftDirections};
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
 use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck};
@@ -75,6 +77,17 @@ impl CallCheck {
     }
 }
 
+/// One scheme's derivatives at a call, before they are compared: the tangent (column-major,
+/// the first n × n entries) or why there is none, and ∂σ/∂T when the routine returns it.
+struct Measured {
+    scheme: Scheme,
+    h: f64,
+    tangent: [f64; 36],
+    /// Why there is no tangent to compare (skipped, or a call faulted).
+    outcome: Option<CheckOutcome>,
+    dtemp: Option<Result<[f64; 6], CheckOutcome>>,
+}
+
 /// The inputs of the driver's current call, with the perturbation named.
 pub fn call_record(d: &Driver, perturbation: Option<String>) -> CallRecord {
     let s = d.start();
@@ -130,11 +143,7 @@ pub fn check_call(
     let state_changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
     let h_strain_scale = driver.strain_scale(settings.step_floor);
     let h_temp_scale = driver.temp_scale(settings.temp_floor);
-    let mut numerical = vec![0.0; n * n];
-    let mut dtemp_num = vec![0.0; n];
     let mut checks = Vec::with_capacity(settings.schemes.len());
-    let mut best: Option<(Scheme, Vec<f64>)> = None;
-    let mut failed_dtemp: Option<Vec<f64>> = None;
     // The twin's real part against the real stress, over every complex call (a running max:
     // no allocation).
     let mut twin_real_gap: Option<f64> = None;
@@ -144,22 +153,23 @@ pub fn check_call(
         (s + c * h_strain_scale).max(1e-300)
     };
     let dtemp_abs_floor = dtemp_floor(&driver.base.stress, &returned, h_strain_scale, h_temp_scale);
+    // First every scheme's derivatives (the routine calls, in the settings' order), then the
+    // comparisons: the soft directions are found once, from the sharpest numerical tangent,
+    // and every scheme is measured along them.
+    let mut measured: SmallVec<[Measured; 2]> = SmallVec::with_capacity(settings.schemes.len());
     for &scheme in &settings.schemes {
         let ss = settings.scheme(scheme);
         let h = ss.rel_step * h_strain_scale;
+        // Written in place (a tangent is 36 numbers: no copies of it per scheme).
+        measured.push(Measured { scheme, h, tangent: [0.0; 36], outcome: None, dtemp: None });
+        let m = measured.last_mut().expect("just pushed");
         if scheme == Scheme::ComplexStep && !has_twin {
-            checks.push(SchemeCheck {
-                scheme,
-                step: h,
-                tangent: CheckOutcome::Skipped { reason: "no complex twin".into() },
-                dstress_dtemp: None,
-            });
+            m.outcome = Some(CheckOutcome::Skipped { reason: "no complex twin".into() });
             continue;
         }
-        let mut tangent = None;
         for j in 0..n {
             let r =
-                scheme.column(driver, caller, Direction::Strain(j), h, &mut numerical[j * n..(j + 1) * n]);
+                scheme.column(driver, caller, Direction::Strain(j), h, &mut m.tangent[j * n..(j + 1) * n]);
             if r.is_ok() && scheme == Scheme::ComplexStep {
                 let gap = driver
                     .cplx
@@ -177,61 +187,71 @@ pub fn check_call(
                     "dstrain[{j}] {} {h:.3e}",
                     if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
                 );
-                tangent = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
+                m.outcome = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
                 break;
             }
         }
-        let tangent = match tangent {
-            Some(t) => t,
-            None => {
-                let better = match &best {
-                    None => true,
-                    Some((s, _)) => {
-                        scheme == Scheme::ComplexStep
-                            || (*s != Scheme::ComplexStep && scheme.order() > s.order())
-                    }
-                };
-                if better {
-                    best = Some((scheme, numerical.clone()));
+        if returned_dtemp.is_some() {
+            let ht = ss.rel_step * h_temp_scale;
+            let mut col = [0.0; 6];
+            m.dtemp = Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut col[..n]) {
+                Ok(()) => Ok(col),
+                Err(f) => {
+                    Err(CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}")))))
                 }
-                CheckOutcome::Compared(compare_along(
-                    &caller.info().convention,
-                    &returned,
-                    &numerical,
-                    ss.tol,
-                    settings.entry_floor,
-                    settings.worst_entries,
-                    Some(driver.dstrain()),
-                ))
+            });
+        }
+    }
+    // The sharpest tangent measured: the complex step's when it ran, else the highest order
+    // (the first of equal orders).
+    let mut best_at: Option<usize> = None;
+    for (k, m) in measured.iter().enumerate().filter(|(_, m)| m.outcome.is_none()) {
+        let better = match best_at {
+            None => true,
+            Some(b) => {
+                let s = measured[b].scheme;
+                m.scheme == Scheme::ComplexStep || (s != Scheme::ComplexStep && m.scheme.order() > s.order())
             }
         };
-        let dstress_dtemp = match &returned_dtemp {
-            None => None,
-            Some(ret) => {
-                let ht = ss.rel_step * h_temp_scale;
-                Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut dtemp_num) {
-                    Ok(()) => {
-                        let c = compare_dtemp_floor(
-                            &caller.info().convention,
-                            ret,
-                            &dtemp_num,
-                            ss.tol,
-                            settings.entry_floor,
-                            settings.worst_entries,
-                            dtemp_abs_floor,
-                        );
-                        if !c.pass && failed_dtemp.is_none() {
-                            failed_dtemp = Some(dtemp_num.clone());
-                        }
-                        CheckOutcome::Compared(c)
-                    }
-                    Err(f) => {
-                        CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}"))))
-                    }
-                })
+        if better {
+            best_at = Some(k);
+        }
+    }
+    let best: Option<(Scheme, Vec<f64>)> =
+        best_at.map(|b| (measured[b].scheme, measured[b].tangent[..n * n].to_vec()));
+    let soft =
+        best.as_ref().map(|(_, t)| SoftDirections::of(&caller.info().convention, t, Some(driver.dstrain())));
+    let mut failed_dtemp: Option<Vec<f64>> = None;
+    for m in &measured {
+        let ss = settings.scheme(m.scheme);
+        let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
+        let numerical = &m.tangent[..n * n];
+        let conv = &caller.info().convention;
+        let tangent = match (&m.outcome, &soft) {
+            (Some(outcome), _) => outcome.clone(),
+            (None, Some(soft)) => {
+                CheckOutcome::Compared(compare_with(conv, &returned, numerical, limits, soft))
             }
+            (None, None) => CheckOutcome::Compared(compare_along(
+                conv,
+                &returned,
+                numerical,
+                limits,
+                Some(driver.dstrain()),
+            )),
         };
-        checks.push(SchemeCheck { scheme, step: h, tangent, dstress_dtemp });
+        let dstress_dtemp = match (&returned_dtemp, &m.dtemp) {
+            (Some(ret), Some(Ok(col))) => {
+                let c = compare_dtemp_floor(conv, ret, &col[..n], limits, dtemp_abs_floor);
+                if !c.pass && failed_dtemp.is_none() {
+                    failed_dtemp = Some(col[..n].to_vec());
+                }
+                Some(CheckOutcome::Compared(c))
+            }
+            (_, Some(Err(fault))) => Some(fault.clone()),
+            _ => None,
+        };
+        checks.push(SchemeCheck { scheme: m.scheme, step: m.h, tangent, dstress_dtemp });
     }
     let non_finite = non_finite_outputs(driver, "");
     let mut out = CallCheck {

@@ -79,6 +79,14 @@ pub(crate) struct GuardBuffers<E> {
     report: ReportZone,
     /// The caller's outcome as it was before the call (restored before a rerun).
     report_before: Outcome,
+    /// The block as a first call loads it: the inputs of the call, the first poison after
+    /// each input, canaries after each output and pre-filled outputs. Kept between calls, so
+    /// that loading is one copy of it (after the inputs are written into it) and the check
+    /// afterwards one masked comparison with it.
+    image: Vec<E>,
+    /// All ones where a call must leave the block as loaded (inputs and every zone), zero at
+    /// the outputs.
+    kept: Vec<u64>,
 }
 
 /// Where a guarded call is: what a finding records besides the array.
@@ -99,14 +107,59 @@ impl<E: Element> GuardBuffers<E> {
             *s = at;
             at += l + ZONE;
         }
+        let mut image = vec![E::PREFILL; at];
+        let mut kept = vec![u64::MAX; at];
+        for k in 0..ARRAYS.len() {
+            let (s, l) = (start[k], len[k]);
+            image[s + l..s + l + ZONE].fill(if k < N_INPUTS { E::POISON[0] } else { E::CANARY });
+            if k >= N_INPUTS {
+                kept[s..s + l].fill(0);
+            }
+        }
         GuardBuffers {
-            data: vec![E::PREFILL; at],
+            data: image.clone(),
             start,
             len,
             ncomp,
             report: ReportZone { report: Outcome::default(), zone: [REPORT_CANARY; REPORT_ZONE] },
             report_before: Outcome::default(),
+            image,
+            kept,
         }
+    }
+
+    /// [`GuardBuffers::load`] with the first poison, from the image: the inputs are written
+    /// into it, then the block is one copy of it (around the tangent when the call does not
+    /// ask for one, which then keeps what the last call left, as `load` does).
+    fn load_first(&mut self, input: &CallInput<'_, E>) {
+        let inputs: [&[E]; N_INPUTS] =
+            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
+        for (k, src) in inputs.iter().enumerate() {
+            let s = self.start[k];
+            self.image[s..s + self.len[k]].copy_from_slice(src);
+        }
+        if input.want_tangent {
+            self.data.copy_from_slice(&self.image);
+        } else {
+            let k =
+                N_INPUTS + ARRAYS[N_INPUTS..].iter().position(|a| *a == GuardedArray::Tangent).unwrap_or(0);
+            let (t, e) = (self.start[k], self.start[k] + self.len[k]);
+            self.data[..t].copy_from_slice(&self.image[..t]);
+            self.data[e..].copy_from_slice(&self.image[e..]);
+        }
+        self.report.report = self.report_before;
+        self.report.zone = [REPORT_CANARY; REPORT_ZONE];
+    }
+
+    /// Whether the inputs and every zone are as [`GuardBuffers::load_first`] left them: one
+    /// branch-free pass over the whole block.
+    fn as_loaded(&self) -> bool {
+        self.data
+            .iter()
+            .zip(&self.image)
+            .zip(&self.kept)
+            .fold(0, |acc, ((&a, &b), &m)| acc | (a.differ(b) & m))
+            == 0
     }
 
     fn array(&self, k: usize) -> &[E] {
@@ -211,9 +264,10 @@ impl<E: Element> GuardBuffers<E> {
         };
         let inputs: [&[E]; N_INPUTS] =
             [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
-        // Each check first compares whole arrays as bytes; only a difference is looked at
-        // entry by entry.
-        for (k, original) in inputs.iter().enumerate() {
+        // The whole block is first compared with its image at once; only a difference is
+        // looked at array by array and entry by entry.
+        let loaded = self.as_loaded();
+        for (k, original) in inputs.iter().enumerate().filter(|_| !loaded) {
             if !same_bits(self.array(k), original) {
                 if let Some((first, n)) = mismatch(self.array(k), |i, v| v.same(original[i])) {
                     findings.record(finding(FindingKind::InputWritten, k, first, n));
@@ -227,7 +281,7 @@ impl<E: Element> GuardBuffers<E> {
         }
         let ok = self.report.report.status == tancheck_core::routine::status::OK;
         for k in N_INPUTS..ARRAYS.len() {
-            if !all_bits(self.zone(k), E::CANARY) {
+            if !loaded && !all_bits(self.zone(k), E::CANARY) {
                 if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(E::CANARY)) {
                     findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
                 }
@@ -332,7 +386,7 @@ impl<E: Element> GuardBuffers<E> {
         let first = [E::POISON[0]; N_INPUTS];
         self.report_before = *output.outcome;
         let mut made = *call;
-        self.load(input, &first);
+        self.load_first(input);
         let args = self.args(&raw mut made, label, fp_traps);
         invoke(&args)?;
         self.inspect(input, call, &made, &first, place, findings);

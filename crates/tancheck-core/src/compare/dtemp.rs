@@ -3,7 +3,7 @@
 
 use std::borrow::Cow;
 
-use super::{finite_or_inf, measure, Comparison, EntryDiff, Label, Worst};
+use super::{finite_or_inf, measure, Comparison, EntryDiff, Label, Limits, Worst};
 use crate::convention::Convention;
 
 /// Compare ∂σ/∂T vectors given in the routine's convention. Errors are relative to
@@ -14,9 +14,7 @@ pub fn compare_dtemp_floor(
     conv: &Convention,
     returned: &[f64],
     numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
     abs_floor: f64,
 ) -> Comparison {
     let n = conv.ncomp();
@@ -24,23 +22,24 @@ pub fn compare_dtemp_floor(
     let (r, m) = (&rb[..n], &mb[..n]);
     let norm = m.iter().map(|x| x * x).sum::<f64>().sqrt();
     if norm >= abs_floor || !abs_floor.is_finite() || abs_floor <= 0.0 {
-        return relative(conv, r, m, returned, numerical, tol, entry_floor, keep_worst);
+        return relative(conv, r, m, returned, numerical, limits);
     }
+    let Limits { tol, keep_worst, .. } = limits;
     // Below the floor: measure against the floor, entry by entry.
     let diff = r.iter().zip(m.iter()).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt();
     let mut worst = Worst::new(keep_worst);
     for i in 0..n {
-        worst.offer(finite_or_inf((r[i] - m[i]).abs() / abs_floor), || EntryDiff {
-            row: i,
-            col: 0,
-            label: Label::pair(conv.order()[i].label(), "T"),
-            returned: returned[i],
-            numerical: numerical[i],
-            error: 0.0,
-        });
+        worst.offer(finite_or_inf((r[i] - m[i]).abs() / abs_floor), i);
     }
     let worst_entry_error = worst.max;
-    let entries = worst.kept;
+    let entries = worst.entries(|i| EntryDiff {
+        row: i,
+        col: 0,
+        label: Label::pair(conv.order()[i].label(), "T"),
+        returned: returned[i],
+        numerical: numerical[i],
+        error: 0.0,
+    });
     let non_finite = returned.iter().filter(|x| !x.is_finite()).count();
     let norm_error = finite_or_inf(diff / abs_floor);
     Comparison {
@@ -74,17 +73,10 @@ pub fn dtemp_floor(stress: &[f64], tangent: &[f64], strain_scale: f64, temp_scal
 }
 
 /// Compare ∂σ/∂T vectors given in the routine's convention (relative errors only).
-pub fn compare_dtemp(
-    conv: &Convention,
-    returned: &[f64],
-    numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
-) -> Comparison {
+pub fn compare_dtemp(conv: &Convention, returned: &[f64], numerical: &[f64], limits: Limits) -> Comparison {
     let n = conv.ncomp();
     let (r, m) = mandel(conv, returned, numerical);
-    relative(conv, &r[..n], &m[..n], returned, numerical, tol, entry_floor, keep_worst)
+    relative(conv, &r[..n], &m[..n], returned, numerical, limits)
 }
 
 /// Both vectors in Mandel form (the first `ncomp` entries).
@@ -97,18 +89,15 @@ fn mandel(conv: &Convention, returned: &[f64], numerical: &[f64]) -> ([f64; 6], 
 }
 
 /// The relative measures on the Mandel forms `r` and `m` of `returned` and `numerical`.
-#[allow(clippy::too_many_arguments)]
 fn relative(
     conv: &Convention,
     r: &[f64],
     m: &[f64],
     returned: &[f64],
     numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
 ) -> Comparison {
     let order = conv.order();
     let label = |i: usize, _j: usize| Label::pair(order[i].label(), "T");
-    measure(r, m, returned, numerical, 1, &label, tol, entry_floor, keep_worst)
+    measure(r, m, returned, numerical, 1, &label, limits)
 }

@@ -19,6 +19,15 @@ impl Label {
     /// `row` + "/" + `col`, cut at [`Label::CAP`] bytes (component labels are 1–2 bytes).
     pub fn pair(row: &str, col: &str) -> Label {
         let mut l = Label { len: 0, bytes: [0; Label::CAP] };
+        // The usual case: both fit (whole strings, so no character is cut).
+        let (r, c) = (row.as_bytes(), col.as_bytes());
+        if r.len() + 1 + c.len() <= Label::CAP {
+            l.bytes[..r.len()].copy_from_slice(r);
+            l.bytes[r.len()] = b'/';
+            l.bytes[r.len() + 1..r.len() + 1 + c.len()].copy_from_slice(c);
+            l.len = (r.len() + 1 + c.len()) as u8;
+            return l;
+        }
         for part in [row, "/", col] {
             for &b in part.as_bytes() {
                 if (l.len as usize) < Label::CAP {

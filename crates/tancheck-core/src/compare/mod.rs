@@ -27,9 +27,11 @@ use crate::convention::Convention;
 
 mod dtemp;
 mod label;
+mod soft;
 
 pub use dtemp::{compare_dtemp, compare_dtemp_floor, dtemp_floor};
 pub use label::Label;
+pub use soft::{soft_error, SoftDirections, SOFT_FLOOR};
 
 /// Entries kept inline by a comparison (the default `worst_entries`).
 pub const INLINE_WORST: usize = 4;
@@ -38,6 +40,22 @@ pub const INLINE_WORST: usize = 4;
 pub type ColumnErrors = SmallVec<[f64; 6]>;
 /// The worst entries of a comparison, worst first.
 pub type WorstEntries = SmallVec<[EntryDiff; INLINE_WORST]>;
+
+/// How strict a comparison is: the tolerance on every measure, the entry floor (a fraction of
+/// the numerical tangent's norm below which an entry's error is relative to the floor), and
+/// how many of the worst entries to keep.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct Limits {
+    pub tol: f64,
+    pub entry_floor: f64,
+    pub keep_worst: usize,
+}
+
+impl Limits {
+    pub fn new(tol: f64, entry_floor: f64, keep_worst: usize) -> Limits {
+        Limits { tol, entry_floor, keep_worst }
+    }
+}
 
 /// One entry of a comparison, with values in the routine's own convention.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -81,51 +99,6 @@ pub struct Comparison {
     pub pass: bool,
 }
 
-/// Soft directions count down to this fraction of the numerical tangent's norm (a
-/// perfectly plastic direction has no response at all; below this, difference noise rules).
-pub const SOFT_FLOOR: f64 = 1e-3;
-
-/// How many of the softest eigen-directions are measured.
-const SOFT_EIGEN: usize = 2;
-
-/// The eigenvectors of the symmetric 6 × 6 matrix `s` with the [`SOFT_EIGEN`] smallest
-/// |eigenvalues|, softest first.
-///
-/// A check meets the same matrix again and again (the complex-step tangent of an elastic
-/// increment is the same to the bit in every such increment), so the last few answers are
-/// kept per thread, keyed by the bits of `s`: a repeated matrix costs a comparison of its
-/// entries instead of an eigen-decomposition, and gets the very vectors the decomposition
-/// gave (the result does not depend on the cache, nor on the thread).
-fn softest_directions(s: &nalgebra::SMatrix<f64, 6, 6>) -> [nalgebra::SVector<f64, 6>; SOFT_EIGEN] {
-    use std::cell::RefCell;
-    type Entry = ([u64; 36], [nalgebra::SVector<f64, 6>; SOFT_EIGEN]);
-    /// Matrices remembered per thread (a check alternates between a few schemes).
-    const KEEP: usize = 4;
-    thread_local! {
-        static SEEN: RefCell<(usize, [Option<Entry>; KEEP])> = const { RefCell::new((0, [None; KEEP])) };
-    }
-    let mut key = [0u64; 36];
-    for (k, x) in key.iter_mut().zip(s.iter()) {
-        *k = x.to_bits();
-    }
-    let hit = SEEN.with(|c| c.borrow().1.iter().flatten().find(|(k, _)| *k == key).map(|(_, v)| *v));
-    if let Some(v) = hit {
-        return v;
-    }
-    let eig = s.symmetric_eigen();
-    let mut idx = [0usize, 1, 2, 3, 4, 5];
-    idx.sort_by(|&a, &b| eig.eigenvalues[a].abs().total_cmp(&eig.eigenvalues[b].abs()));
-    let v: [nalgebra::SVector<f64, 6>; SOFT_EIGEN] =
-        std::array::from_fn(|k| eig.eigenvectors.column(idx[k]).into_owned());
-    SEEN.with(|c| {
-        let mut c = c.borrow_mut();
-        let at = c.0;
-        c.1[at] = Some((key, v));
-        c.0 = (at + 1) % KEEP;
-    });
-    v
-}
-
 /// Compare tangents given column-major in the routine's convention.
 pub fn compare(
     conv: &Convention,
@@ -135,19 +108,30 @@ pub fn compare(
     entry_floor: f64,
     keep_worst: usize,
 ) -> Comparison {
-    compare_along(conv, returned, numerical, tol, entry_floor, keep_worst, None)
+    compare_along(conv, returned, numerical, Limits::new(tol, entry_floor, keep_worst), None)
 }
 
 /// [`compare`], also measuring along `direction` (a strain increment in the routine's
-/// convention, e.g. the increment being checked) beside the softest eigen-directions.
+/// convention, e.g. the increment being checked) beside the softest eigen-directions of
+/// `numerical`.
 pub fn compare_along(
     conv: &Convention,
     returned: &[f64],
     numerical: &[f64],
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
     direction: Option<&[f64]>,
+) -> Comparison {
+    compare_with(conv, returned, numerical, limits, &SoftDirections::of(conv, numerical, direction))
+}
+
+/// [`compare`], measuring the soft-direction error along `soft` (found once per increment from
+/// its sharpest numerical tangent, so every scheme is measured along the same directions).
+pub fn compare_with(
+    conv: &Convention,
+    returned: &[f64],
+    numerical: &[f64],
+    limits: Limits,
+    soft: &SoftDirections,
 ) -> Comparison {
     let nn = returned.len();
     assert!(nn <= 36 && numerical.len() == nn, "a tangent has at most 6 × 6 entries");
@@ -159,88 +143,19 @@ pub fn compare_along(
     conv.tangent_to_mandel(m);
     let order = conv.order();
     let label = |i: usize, j: usize| Label::pair(order[i].label(), order[j].label());
-    let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, tol, entry_floor, keep_worst);
-    let mut dir = [0.0; 6];
-    let d = direction.map(|d| {
-        conv.strain_to_mandel(d, &mut dir[..conv.ncomp()]);
-        &dir[..conv.ncomp()]
-    });
-    let (e, what) = soft_error(r, m, conv.ncomp(), d);
+    let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, limits);
+    let (e, what) = soft::soft_error_along(r, m, conv.ncomp(), soft);
     c.soft_error = e;
     c.soft_direction = Cow::Borrowed(what);
-    c.pass &= e <= tol;
+    c.pass &= e <= limits.tol;
     if c.pass {
         c.entry_errors = Vec::new();
     }
     c
 }
 
-/// The largest relative error along the soft directions of the Mandel-form matrices `r`
-/// (returned) and `m` (numerical), n × n column-major, and which direction it was. Fixed-size
-/// arithmetic (no allocation).
-pub fn soft_error(r: &[f64], m: &[f64], n: usize, direction: Option<&[f64]>) -> (f64, &'static str) {
-    use nalgebra::{SMatrix, SVector};
-    if n == 0 || r.len() < n * n || m.len() < n * n {
-        return (0.0, "");
-    }
-    let norm = m[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt();
-    if norm.is_nan() || norm <= 0.0 || !norm.is_finite() || r[..n * n].iter().any(|x| !x.is_finite()) {
-        return (0.0, "");
-    }
-    let floor = SOFT_FLOOR * norm;
-    let along = |d: &SVector<f64, 6>| {
-        let (mut dr, mut dm) = (0.0, 0.0);
-        for i in 0..n {
-            let (mut a, mut b) = (0.0, 0.0);
-            for j in 0..n {
-                a += r[i + j * n] * d[j];
-                b += m[i + j * n] * d[j];
-            }
-            dr += (a - b) * (a - b);
-            dm += b * b;
-        }
-        dr.sqrt() / dm.sqrt().max(floor)
-    };
-    let mut worst = (0.0, "");
-    if let Some(d) = direction {
-        let mut v = SVector::<f64, 6>::zeros();
-        for i in 0..n.min(d.len()) {
-            v[i] = d[i];
-        }
-        let l = v.norm();
-        if l > 0.0 && l.is_finite() {
-            let e = along(&(v / l));
-            if e > worst.0 {
-                worst = (e, "the increment direction");
-            }
-        }
-    }
-    // The symmetric part, padded with a stiff diagonal so the padding is never the softest.
-    let mut s = SMatrix::<f64, 6, 6>::zeros();
-    for i in 0..6 {
-        for j in 0..6 {
-            s[(i, j)] = if i < n && j < n {
-                0.5 * (m[i + j * n] + m[j + i * n])
-            } else if i == j {
-                10.0 * norm
-            } else {
-                0.0
-            };
-        }
-    }
-    let softest = softest_directions(&s);
-    for (k, v) in softest.iter().take(SOFT_EIGEN.min(n)).enumerate() {
-        let e = along(v);
-        if e.is_finite() && e > worst.0 {
-            worst = (e, if k == 0 { "the softest direction" } else { "the second softest direction" });
-        }
-    }
-    worst
-}
-
 /// The three measures on Mandel-form matrices `r` (returned) and `m` (numerical) with
 /// `ncols` columns; `returned` and `numerical` are the same in the routine's form, for display.
-#[allow(clippy::too_many_arguments)]
 pub(super) fn measure(
     r: &[f64],
     m: &[f64],
@@ -248,10 +163,9 @@ pub(super) fn measure(
     numerical: &[f64],
     ncols: usize,
     label: &dyn Fn(usize, usize) -> Label,
-    tol: f64,
-    entry_floor: f64,
-    keep_worst: usize,
+    limits: Limits,
 ) -> Comparison {
+    let Limits { tol, entry_floor, keep_worst } = limits;
     let nrows = r.len() / ncols;
     assert!(ncols <= 6, "a tangent has at most 6 columns");
     // One pass for the whole and the columns' sums of squares (the same sums, in the same
@@ -274,84 +188,102 @@ pub(super) fn measure(
     let floor = entry_floor * scale;
     let column_errors: ColumnErrors =
         columns[..ncols].iter().map(|(d, c)| finite_or_inf(d.sqrt() / c.sqrt().max(floor))).collect();
-    let mut worst = Worst::new(keep_worst);
-    let mut non_finite = 0;
-    for j in 0..ncols {
-        for i in 0..nrows {
-            let k = i + j * nrows;
-            if !returned[k].is_finite() {
-                non_finite += 1;
-            }
-            let error = finite_or_inf((r[k] - m[k]).abs() / m[k].abs().max(floor));
-            worst.offer(error, || EntryDiff {
-                row: i,
-                col: j,
-                label: label(i, j),
-                returned: returned[k],
-                numerical: numerical[k],
-                error: 0.0,
-            });
-        }
+    // Every entry's error into a stack array (one tight pass), then the worst few picked by
+    // index: an entry (and its label) is made only when it is kept.
+    let nn = nrows * ncols;
+    let (r, m) = (&r[..nn], &m[..nn]);
+    let mut errors = [0.0f64; 36];
+    for ((e, a), b) in errors.iter_mut().zip(r).zip(m) {
+        *e = finite_or_inf((a - b).abs() / b.abs().max(floor));
     }
+    let mut worst = Worst::new(keep_worst);
+    for (k, &e) in errors[..nn].iter().enumerate() {
+        worst.offer(e, k);
+    }
+    let non_finite = returned[..nn].iter().filter(|x| !x.is_finite()).count();
     let worst_entry_error = worst.max;
     let pass = non_finite == 0 && norm_error <= tol && worst_entry_error <= tol;
+    let kept = worst.entries(|k| {
+        let (i, j) = (k % nrows, k / nrows);
+        EntryDiff {
+            row: i,
+            col: j,
+            label: label(i, j),
+            returned: returned[k],
+            numerical: numerical[k],
+            error: 0.0,
+        }
+    });
     Comparison {
         norm_error,
         worst_entry_error,
         soft_error: 0.0,
         soft_direction: Cow::Borrowed(""),
         column_errors,
-        worst: worst.kept,
-        // Only a failing comparison keeps every entry's error (a second pass over the entries).
-        entry_errors: if pass {
-            Vec::new()
-        } else {
-            let mut all = Vec::with_capacity(r.len());
-            all.extend(r.iter().zip(m).map(|(a, b)| finite_or_inf((a - b).abs() / b.abs().max(floor))));
-            all
-        },
+        worst: kept,
+        // Only a failing comparison keeps every entry's error.
+        entry_errors: if pass { Vec::new() } else { errors[..nn].to_vec() },
         non_finite_returned: non_finite,
         tol,
         pass,
     }
 }
 
-/// The worst entries seen so far, worst first, at most `keep` of them: an entry is inserted
-/// after those with an equal or larger error (the order a stable sort by decreasing error
-/// gives), and only made when it is kept.
+/// The worst entries seen so far, worst first, at most `keep` of them, by index: an entry is
+/// inserted after those with an equal or larger error (the order a stable sort by decreasing
+/// error gives), and made (with its label) only at the end, for the ones kept. A fixed array
+/// on the stack: a comparison has at most 36 entries.
 pub(super) struct Worst {
     keep: usize,
-    pub(super) kept: WorstEntries,
+    len: usize,
+    /// (error, index) of the kept entries, worst first (the first `len`).
+    kept: [(f64, usize); 36],
     /// The largest error offered (0 when none).
     pub(super) max: f64,
 }
 
 impl Worst {
     pub(super) fn new(keep: usize) -> Worst {
-        Worst { keep, kept: WorstEntries::new(), max: 0.0 }
+        Worst { keep: keep.min(36), len: 0, kept: [(0.0, 0); 36], max: 0.0 }
     }
 
-    pub(super) fn offer(&mut self, error: f64, make: impl FnOnce() -> EntryDiff) {
-        // Errors are ≥ 0 or +∞ (never NaN: see `finite_or_inf`).
-        self.max = self.max.max(error);
-        if self.keep == 0 {
+    /// Offer entry `index` with `error` (≥ 0 or +∞, never NaN: see `finite_or_inf`, so the
+    /// plain comparisons below order errors as a total order would).
+    #[inline(always)]
+    pub(super) fn offer(&mut self, error: f64, index: usize) {
+        if error > self.max {
+            self.max = error;
+        }
+        // Most entries are not among the worst: when the list is full (or keeps nothing) and
+        // its last entry is at least as bad, there is no place for this one.
+        if self.len == self.keep && (self.keep == 0 || error <= self.kept[self.keep - 1].0) {
             return;
         }
-        // Most entries are not among the worst: when the list is full and its last entry is
-        // at least as bad, the search below would find no place either.
-        if self.kept.len() == self.keep && !self.kept[self.keep - 1].error.total_cmp(&error).is_lt() {
-            return;
+        // Insert after the kept entries with an equal or larger error, dropping the last
+        // when full.
+        let mut at = if self.len < self.keep {
+            self.len += 1;
+            self.len - 1
+        } else {
+            self.keep - 1
+        };
+        while at > 0 && self.kept[at - 1].0 < error {
+            self.kept[at] = self.kept[at - 1];
+            at -= 1;
         }
-        let at = self.kept.iter().position(|e| e.error.total_cmp(&error).is_lt()).unwrap_or(self.kept.len());
-        if at >= self.keep {
-            return;
-        }
-        if self.kept.len() == self.keep {
-            self.kept.pop();
-        }
-        let mut e = make();
-        e.error = error;
-        self.kept.insert(at, e);
+        self.kept[at] = (error, index);
+    }
+
+    /// The kept entries, worst first, each made by `make` from its index.
+    pub(super) fn entries(&self, make: impl Fn(usize) -> EntryDiff) -> WorstEntries {
+        self.kept[..self.len]
+            .iter()
+            .map(|&(error, k)| {
+                let mut e = make(k);
+                e.error = error;
+                e
+            })
+            .collect()
     }
 }
 

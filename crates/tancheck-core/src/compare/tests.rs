@@ -80,13 +80,16 @@ fn dtemp_zero_against_noise_passes_and_against_a_real_derivative_fails() {
     assert!(floor > 0.0);
     let zero = [0.0; 6];
     let noise = [3e-9, -2e-9, 1e-9, 0.0, 4e-10, 0.0];
-    let c = compare_dtemp_floor(&conv, &zero, &noise, 1e-6, 1e-2, 1, floor);
+    let c = compare_dtemp_floor(&conv, &zero, &noise, Limits::new(1e-6, 1e-2, 1), floor);
     assert!(c.pass, "{c:?}");
-    assert!(!compare_dtemp(&conv, &zero, &noise, 1e-6, 1e-2, 1).pass, "without the floor: 100 %");
+    assert!(
+        !compare_dtemp(&conv, &zero, &noise, Limits::new(1e-6, 1e-2, 1)).pass,
+        "without the floor: 100 %"
+    );
     let k = 210000.0 / (3.0 * (1.0 - 2.0 * 0.3));
     let real: [f64; 6] = [-3.0 * k * 12e-6, -3.0 * k * 12e-6, -3.0 * k * 12e-6, 0.0, 0.0, 0.0];
     assert!((real[0] + 6.3).abs() < 0.01, "{}", real[0]);
-    assert!(!compare_dtemp_floor(&conv, &zero, &real, 1e-6, 1e-2, 1, floor).pass);
+    assert!(!compare_dtemp_floor(&conv, &zero, &real, Limits::new(1e-6, 1e-2, 1), floor).pass);
 }
 
 // The soft-direction error: the J2 worked case of REFERENCES.md (θ = 0.5446266,
@@ -100,11 +103,43 @@ fn an_error_in_the_soft_direction_is_measured_against_the_soft_modulus() {
     let (theta, theta_bar) = (worked::J2_THETA, worked::J2_THETA_BAR);
     let good = worked::j2(theta_bar);
     let bad = worked::j2(theta_bar * 1.01);
-    let c = compare_along(&conv, &bad, &good, 1e-4, 1e-2, 1, Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
+    let c =
+        compare_along(&conv, &bad, &good, Limits::new(1e-4, 1e-2, 1), Some(&[1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]));
     let soft_modulus = 2.0 * mu * (theta - theta_bar);
     let want = 0.01 * 2.0 * mu * theta_bar / soft_modulus.max(SOFT_FLOOR * 4.0e5);
     assert!(c.soft_error > 10.0 * c.norm_error, "{c:?}");
     assert!(c.soft_error > 0.5 * want && c.soft_error < 2.0 * want, "{} vs {want}", c.soft_error);
     assert!(!c.pass);
-    assert_eq!(compare_along(&conv, &good, &good, 1e-12, 1e-2, 1, None).soft_error, 0.0);
+    assert_eq!(compare_along(&conv, &good, &good, Limits::new(1e-12, 1e-2, 1), None).soft_error, 0.0);
+}
+
+// The worst-entry list against the standard library's stable sort by decreasing error (the
+// order it is documented to give), on errors with many ties, for every list length.
+#[test]
+fn the_worst_entries_are_those_of_a_stable_sort() {
+    let errors: Vec<f64> = (0..36)
+        .map(|k| ((k * 7919) % 11) as f64 * 0.5 + if k % 5 == 0 { f64::INFINITY } else { 0.0 })
+        .collect();
+    let mut sorted: Vec<(f64, usize)> = errors.iter().copied().zip(0..).collect();
+    sorted.sort_by(|a, b| b.0.total_cmp(&a.0));
+    for keep in [0, 1, 3, 4, 5, 35, 36, 40] {
+        let mut w = Worst::new(keep);
+        for (k, &e) in errors.iter().enumerate() {
+            w.offer(e, k);
+        }
+        let got: Vec<(f64, usize)> = w
+            .entries(|k| EntryDiff {
+                row: k,
+                col: 0,
+                label: Label::pair("a", "b"),
+                returned: 0.0,
+                numerical: 0.0,
+                error: 0.0,
+            })
+            .iter()
+            .map(|e| (e.error, e.row))
+            .collect();
+        assert_eq!(got, sorted[..keep.min(36)].to_vec(), "keep {keep}");
+        assert_eq!(w.max, f64::INFINITY);
+    }
 }

@@ -8,7 +8,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::compare_along;
+use crate::compare::{compare_along, Limits};
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
@@ -91,7 +91,7 @@ pub fn run(
             scheme.column(driver, caller, Direction::Strain(j), h, &mut num[j * n..(j + 1) * n])?;
         }
         // Along the increment's own direction too, as the check measured it.
-        let c = compare_along(conv, returned, &num, tol, entry_floor, 0, Some(driver.dstrain()));
+        let c = compare_along(conv, returned, &num, Limits::new(tol, entry_floor, 0), Some(driver.dstrain()));
         points.push(StudyPoint { rel_step: rel, step: h, error: c.error() });
     }
     Ok(analyse(scheme, points, tol))

@@ -7,7 +7,7 @@
 //! failure, a returned ∂σ/∂T that matches neither one-sided derivative is.
 
 use super::kink::{kinked, nearby, one_sided, KinkQuery, OneSided, Side};
-use crate::compare::compare_dtemp_floor;
+use crate::compare::{compare_dtemp_floor, Limits};
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 
@@ -47,7 +47,9 @@ impl TempKink {
 /// is the absolute floor of the ∂σ/∂T comparison.
 pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided], abs_floor: f64) -> TempKink {
     let KinkQuery { conv, returned, tol, entry_floor, .. } = *q;
-    let cmp = |a: &[f64], b: &[f64], t: f64| compare_dtemp_floor(conv, a, b, t, entry_floor, 0, abs_floor);
+    let cmp = |a: &[f64], b: &[f64], t: f64| {
+        compare_dtemp_floor(conv, a, b, Limits::new(t, entry_floor, 0), abs_floor)
+    };
     let gaps: Vec<f64> = pairs.iter().map(|(f, b)| cmp(b, f, f64::INFINITY).norm_error).collect();
     let (f, b) = pairs.last().expect("at least one step");
     let detected = kinked(&gaps);

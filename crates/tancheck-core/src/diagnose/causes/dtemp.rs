@@ -13,7 +13,12 @@ pub fn rank_dtemp(
     entry_floor: f64,
 ) -> Vec<Hypothesis> {
     let err = |c: &[f64]| {
-        let x = crate::compare::compare_dtemp(conv, c, numerical, tol, entry_floor, 0);
+        let x = crate::compare::compare_dtemp(
+            conv,
+            c,
+            numerical,
+            crate::compare::Limits::new(tol, entry_floor, 0),
+        );
         x.error()
     };
     let original = err(returned);
