@@ -6,7 +6,7 @@ use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
 use super::step::BlockStep;
-use super::walk::BlockBuffers;
+use super::walk::{BlockBuffers, BlockWalk};
 
 /// Scale factors of the neighbours' paths (0: at rest; small: elastic; negative: reversed;
 /// large: far past yield), used in turn.
@@ -69,13 +69,8 @@ fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
 }
 
 /// Run the check; findings go into `report`.
-pub fn check(
-    routine: &mut dyn BlockRoutine,
-    properties: &[f64],
-    incs: &[BlockStep],
-    s: &BlockSettings,
-    report: &mut BlockReport,
-) {
+pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
+    let BlockWalk { routine, properties, incs, settings: s } = w;
     let (n, ns) = (routine.info().ncomp, s.state0.len());
     let mut alone = Trace { stress: Vec::new(), state: Vec::new(), energy: Vec::new(), deleted: Vec::new() };
     let r = walk(routine, properties, incs, s, Layout { at: 0, scales: &[1.0] }, report, |_, b| {

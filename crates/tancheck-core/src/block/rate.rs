@@ -15,7 +15,7 @@ use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::{BlockSettings, RateLaw};
 use super::step::BlockStep;
-use super::walk::BlockBuffers;
+use super::walk::{BlockBuffers, BlockWalk};
 
 /// The two rates, in multiples of the reference rate.
 pub const RATES: [f64; 2] = [10.0, 1000.0];
@@ -79,14 +79,8 @@ fn walk(
     Ok((largest, b))
 }
 
-pub fn check(
-    routine: &mut dyn BlockRoutine,
-    properties: &[f64],
-    incs: &[BlockStep],
-    law: RateLaw,
-    s: &BlockSettings,
-    report: &mut BlockReport,
-) {
+pub fn check(w: BlockWalk<'_>, law: RateLaw, report: &mut BlockReport) {
+    let BlockWalk { routine, properties, incs, settings: s } = w;
     let load = loading(incs);
     let dt = load[0].time_increment.max(f64::MIN_POSITIVE);
     // Zero rate: from the start, and after loading.

@@ -8,7 +8,7 @@ use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
 use super::step::BlockStep;
-use super::walk::BlockBuffers;
+use super::walk::{BlockBuffers, BlockWalk};
 
 /// Differences below this, relative to the stress scale, are rounding.
 const NOISE: f64 = 1e-9;
@@ -47,13 +47,9 @@ fn walk(
     Ok((ends, alive))
 }
 
-pub fn check(
-    routine: &mut dyn BlockRoutine,
-    properties: &[f64],
-    incs: &[BlockStep],
-    s: &BlockSettings,
-    report: &mut BlockReport,
-) {
+/// Run the check; findings go into `report`.
+pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
+    let BlockWalk { routine, properties, incs, settings: s } = w;
     let mut runs = Vec::new();
     let mut alive = incs.len();
     for parts in [1, 2, 4] {

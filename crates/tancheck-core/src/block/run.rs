@@ -9,6 +9,7 @@ use super::report::BlockReport;
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
 use super::step::block_increments;
+use super::walk::BlockWalk;
 use crate::path::Path;
 
 /// Check a block routine along `path`.
@@ -51,14 +52,15 @@ pub fn run(
     };
     along::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
+    let mut w = BlockWalk { routine, properties, incs: &incs, settings };
     if settings.independence {
-        independence::check(routine, properties, &incs, settings, &mut report);
+        independence::check(w.reborrow(), &mut report);
     }
     if let Some(law) = settings.rate_law {
-        rate::check(routine, properties, &incs, law, settings, &mut report);
+        rate::check(w.reborrow(), law, &mut report);
     }
     if settings.refinement {
-        refine::check(routine, properties, &incs, settings, &mut report);
+        refine::check(w.reborrow(), &mut report);
     }
     Ok(report)
 }

@@ -6,7 +6,30 @@ use num_complex::Complex64;
 use super::routine::{
     BlockInput, BlockOutcome, BlockOutput, BlockRoutine, Conditions, SpecificEnergy, ELASTIC_RESPONSE,
 };
+use super::settings::BlockSettings;
+use super::step::BlockStep;
 use crate::routine::Fault;
+
+/// What the block checks that walk the path read: the routine, its properties, the path's
+/// increments and the settings, passed to each as one value.
+pub struct BlockWalk<'a> {
+    pub routine: &'a mut dyn BlockRoutine,
+    pub properties: &'a [f64],
+    pub incs: &'a [BlockStep],
+    pub settings: &'a BlockSettings,
+}
+
+impl BlockWalk<'_> {
+    /// The same walk for one more check.
+    pub fn reborrow(&mut self) -> BlockWalk<'_> {
+        BlockWalk {
+            routine: &mut *self.routine,
+            properties: self.properties,
+            incs: self.incs,
+            settings: self.settings,
+        }
+    }
+}
 
 /// The input and the output of one call over the buffers of `$b` (a [`BlockBuffers`] or a
 /// [`ComplexPoint`]: the same fields in another scalar), written once for both.

@@ -138,15 +138,22 @@ impl Kink {
     }
 }
 
+/// What both kink probes judge with: the convention, the returned tangent (or ∂σ/∂T), the
+/// step scale and the tolerances, passed as one value.
+#[derive(Clone, Copy)]
+pub struct KinkQuery<'a> {
+    pub conv: &'a Convention,
+    pub returned: &'a [f64],
+    /// The steps of [`STEPS`] are relative to this.
+    pub scale: f64,
+    pub tol: f64,
+    pub entry_floor: f64,
+}
+
 /// Judge the kink from the one-sided derivatives at each step of [`STEPS`] (`pairs[k]` =
 /// (forward, backward) at step k, routine form): no routine calls.
-pub fn judge(
-    conv: &Convention,
-    returned: &[f64],
-    pairs: &[(Vec<f64>, Vec<f64>)],
-    tol: f64,
-    entry_floor: f64,
-) -> Kink {
+pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
+    let KinkQuery { conv, returned, tol, entry_floor, .. } = *q;
     let n = conv.ncomp();
     let mut gaps = Vec::with_capacity(pairs.len());
     let mut col_gaps: Vec<Vec<f64>> = vec![Vec::with_capacity(pairs.len()); n];
@@ -202,19 +209,10 @@ pub fn judge(
 }
 
 /// Probe for a kink at the end of the current increment.
-#[allow(clippy::too_many_arguments)]
-pub fn probe(
-    driver: &mut Driver,
-    caller: &mut Caller<'_>,
-    conv: &Convention,
-    returned: &[f64],
-    scale: f64,
-    tol: f64,
-    entry_floor: f64,
-) -> Result<Kink, Fault> {
-    let n = conv.ncomp();
-    let pairs = one_sided(driver, caller, n, (0..n).map(Direction::Strain), scale)?;
-    Ok(judge(conv, returned, &pairs, tol, entry_floor))
+pub fn probe(driver: &mut Driver, caller: &mut Caller<'_>, q: &KinkQuery<'_>) -> Result<Kink, Fault> {
+    let n = q.conv.ncomp();
+    let pairs = one_sided(driver, caller, n, (0..n).map(Direction::Strain), q.scale)?;
+    Ok(judge(q, &pairs))
 }
 
 /// The forward and the backward differences at one step.

@@ -107,7 +107,14 @@ pub fn run(
     let n = conv.ncomp();
     let ef = settings.entry_floor;
     let scale = driver.strain_scale(settings.step_floor);
-    let kink = kink::probe(driver, caller, conv, ctx.returned, scale, settings.forward.tol, ef)?;
+    let query = |returned, scale| kink::KinkQuery {
+        conv,
+        returned,
+        scale,
+        tol: settings.forward.tol,
+        entry_floor: ef,
+    };
+    let kink = kink::probe(driver, caller, &query(ctx.returned, scale))?;
     let mut studies = Vec::new();
     for scheme in [Scheme::Central, Scheme::Forward] {
         let tol = settings.scheme(scheme).tol;
@@ -134,7 +141,7 @@ pub fn run(
     let dtemp_kink = match ctx.dtemp {
         Some((ret, _)) => {
             let ts = driver.temp_scale(settings.temp_floor);
-            Some(temp_kink::probe(driver, caller, conv, ret, ts, settings.forward.tol, ef, ctx.dtemp_floor)?)
+            Some(temp_kink::probe(driver, caller, &query(ret, ts), ctx.dtemp_floor)?)
         }
         None => None,
     };

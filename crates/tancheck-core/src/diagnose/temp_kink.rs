@@ -6,9 +6,8 @@
 //! with the same steps, the same gap level and the same rule that a kink alone is not a
 //! failure, a returned ∂σ/∂T that matches neither one-sided derivative is.
 
-use super::kink::{kinked, nearby, one_sided, Side};
+use super::kink::{kinked, nearby, one_sided, KinkQuery, OneSided, Side};
 use crate::compare::{compare_dtemp_floor, Limits};
-use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 
@@ -46,14 +45,8 @@ impl TempKink {
 /// Judge the temperature kink from the one-sided derivatives at each step of [`STEPS`](super::kink::STEPS)
 /// (`pairs[k]` = (forward, backward) at step k, routine form): no routine calls. `abs_floor`
 /// is the absolute floor of the ∂σ/∂T comparison.
-pub fn judge(
-    conv: &Convention,
-    returned: &[f64],
-    pairs: &[(Vec<f64>, Vec<f64>)],
-    tol: f64,
-    entry_floor: f64,
-    abs_floor: f64,
-) -> TempKink {
+pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided], abs_floor: f64) -> TempKink {
+    let KinkQuery { conv, returned, tol, entry_floor, .. } = *q;
     let cmp = |a: &[f64], b: &[f64], t: f64| {
         compare_dtemp_floor(conv, a, b, Limits::new(t, entry_floor, 0), abs_floor)
     };
@@ -76,19 +69,14 @@ pub fn judge(
 }
 
 /// Probe for a kink in the temperature at the end of the current increment: forward and
-/// backward differences of the stress in the temperature increment at each step of [`STEPS`](super::kink::STEPS)
-/// times `scale` (the temperature scale).
-#[allow(clippy::too_many_arguments)]
+/// backward differences of the stress in the temperature increment at each step of
+/// [`STEPS`](super::kink::STEPS) times `q.scale` (the temperature scale).
 pub fn probe(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
-    conv: &Convention,
-    returned: &[f64],
-    scale: f64,
-    tol: f64,
-    entry_floor: f64,
+    q: &KinkQuery<'_>,
     abs_floor: f64,
 ) -> Result<TempKink, Fault> {
-    let pairs = one_sided(driver, caller, conv.ncomp(), std::iter::once(Direction::Temperature), scale)?;
-    Ok(judge(conv, returned, &pairs, tol, entry_floor, abs_floor))
+    let pairs = one_sided(driver, caller, q.conv.ncomp(), std::iter::once(Direction::Temperature), q.scale)?;
+    Ok(judge(q, &pairs, abs_floor))
 }
