@@ -62,8 +62,10 @@
 use tancheck_core::routine::provides;
 use tancheck_core::{CallInput, CallOutput, PointKind, RoutineInfo, Scalar};
 
-use crate::call::{between, fail, point_model, positive, props_or_fail, succeed};
-use crate::j2::{elastic_end, plastic_correction, radial_return, return_tangent, solid_layout, trial_state};
+use crate::call::{between, fail, point_model, positive, succeed};
+use crate::j2::{
+    elastic_end, plastic_correction, radial_return, radial_start, return_tangent, solid_layout, trial_state,
+};
 use crate::tensor::{lame, sqrt_2_3, write_tangent};
 use crate::ModelError;
 
@@ -296,13 +298,11 @@ point_model!(JohnsonCook, DSTRESS_DTEMP);
 impl JohnsonCook {
     /// One call, its array sizes checked (see [`point_model`]).
     fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
-        let Some(p) = props_or_fail(output, read_props(input.props)) else {
+        let slots = self.slots;
+        let Some((p, eps_p_n)) = radial_start(read_props(input.props), slots, input, output) else {
             return;
         };
-        let slots = self.slots;
-        let n = slots.len();
-        let r23 = sqrt_2_3();
-        let eps_p_n = &input.state0[..n];
+        let (n, r23) = (slots.len(), sqrt_2_3());
         let (ebar_n, damage_n, heat_n) = (input.state0[n], input.state0[n + 1], input.state0[n + 2]);
         if ebar_n.re() < 0.0 || !ebar_n.re().is_finite() {
             fail(output, "johnson-cook: the equivalent plastic strain of the start state is negative");

@@ -175,13 +175,11 @@ point_model!(J2, ENERGY);
 impl J2 {
     /// One call, its array sizes checked (see [`point_model`]).
     fn update<S: Scalar>(&self, input: &CallInput<'_, S>, output: &mut CallOutput<'_, S>) {
-        let Some(p) = props_or_fail(output, read_props(input.props)) else {
+        let slots = self.slots;
+        let Some((p, eps_p_n)) = radial_start(read_props(input.props), slots, input, output) else {
             return;
         };
-        let slots = self.slots;
-        let n = slots.len();
-        let r23 = sqrt_2_3();
-        let eps_p_n = &input.state0[..n];
+        let (n, r23) = (slots.len(), sqrt_2_3());
         let alpha_n = input.state0[n];
         let beta_n_v = &input.state0[n + 1..];
 
@@ -274,6 +272,19 @@ pub(crate) fn trial_state<S: Scalar>(
         xi[k] = dev[k] - beta_n[k];
     }
     (sigma_tr, xi, norm_sq(&xi).sqrt_or_zero())
+}
+
+/// What a radial return (J2 and Johnson–Cook) starts from: the model's properties, read from
+/// the call (`None` when they are refused: the call has then failed with the reason), and the
+/// plastic strain of the start state (the state's first entries, one per routine slot).
+pub(crate) fn radial_start<'a, S: Scalar, P>(
+    props: Result<P, &'static str>,
+    slots: &[usize],
+    input: &'a CallInput<'_, S>,
+    output: &mut CallOutput<'_, S>,
+) -> Option<(P, &'a [S])> {
+    let p = props_or_fail(output, props)?;
+    Some((p, &input.state0[..slots.len()]))
 }
 
 /// The elastic ending of a radial return (J2 and Johnson–Cook): σ = σ_tr on the routine's

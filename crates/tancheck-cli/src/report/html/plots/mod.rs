@@ -51,14 +51,16 @@ const CURVES: [RGBColor; 6] = [
     RGBColor(90, 90, 90),
 ];
 
-/// Background tints of the branch bands.
-const BANDS: [RGBColor; 5] = [
-    RGBColor(226, 236, 248),
-    RGBColor(252, 234, 214),
-    RGBColor(225, 243, 230),
-    RGBColor(240, 228, 244),
-    RGBColor(244, 242, 214),
-];
+/// Branch bands cycle through this many tints.
+const BANDS: usize = 5;
+
+/// The background tint of branch band `k`: the curve colour of the same place, seven eighths
+/// of the way to white.
+fn band_tint(k: usize) -> RGBColor {
+    let RGBColor(r, g, b) = CURVES[k % BANDS];
+    let light = |c: u8| 255 - (255 - c) / 8;
+    RGBColor(light(r), light(g), light(b))
+}
 
 const FAIL: RGBColor = RGBColor(190, 20, 30);
 
@@ -291,7 +293,7 @@ pub fn error_along_path(report: &Report) -> Option<String> {
             .axis_desc_style((FONT, 14))
             .draw()?;
         for (k, label) in labels.iter().enumerate() {
-            let tint = BANDS[k % BANDS.len()];
+            let tint = band_tint(k);
             let rects: Vec<_> = runs
                 .iter()
                 .filter(|r| &r.0 == label)
