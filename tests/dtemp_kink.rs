@@ -9,10 +9,11 @@
 use tancheck::core::path::{Path, PathIncrement};
 use tancheck::core::report::CheckOutcome;
 use tancheck::core::{
-    check, CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, Report,
-    RoutineInfo, Scalar, Scheme, Settings, Verdict,
+    CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, Report, RoutineInfo, Scalar, Scheme,
+    Settings, Verdict,
 };
 use tancheck::models::JohnsonCook;
+use tancheck_testkit::check::{only, run_from_zero, summary};
 
 /// The 4340 steel constants of README's Johnson–Cook manifest (A, B, n, C, m, T_room, T_melt,
 /// ε̇₀ and the fracture constants from Johnson & Cook 1983 / 1985 as in REFERENCES.md; E, ν,
@@ -35,29 +36,7 @@ fn path(second: (f64, f64)) -> Path {
 }
 
 fn run(routine: &mut dyn tancheck::core::Routine, path: &Path, settings: &Settings) -> Report {
-    let info = routine.info().clone();
-    let mut caller = Caller::new(routine);
-    check::run(&mut caller, &PROPS, PointState::zero(&info, 400.0), path, settings).unwrap()
-}
-
-fn only(scheme: Scheme) -> Settings {
-    Settings { schemes: vec![scheme], ..Settings::default() }
-}
-
-fn summary(r: &Report) -> String {
-    r.increments
-        .iter()
-        .map(|i| {
-            format!(
-                "inc {} passed {} finding {} reason {}",
-                i.index,
-                i.passed(),
-                i.finding(),
-                i.diagnosis.as_ref().map_or("-".to_string(), |d| d.reason.clone())
-            )
-        })
-        .collect::<Vec<_>>()
-        .join("\n")
+    run_from_zero(routine, &PROPS, 400.0, path, settings)
 }
 
 /// The central ∂σ/∂T the check measured at increment `inc` (routine form, entry 12/T).

@@ -4,10 +4,11 @@
 
 use tancheck::core::path::{Path, PathIncrement};
 use tancheck::core::{
-    check, CallInput, CallOutput, Caller, Fault, Model, ModelRoutine, PointKind, PointState, Report,
-    RoutineInfo, Scalar, Scheme, Settings, Verdict,
+    CallInput, CallOutput, Fault, Model, ModelRoutine, PointKind, Report, RoutineInfo, Scalar, Scheme,
+    Settings, Verdict,
 };
 use tancheck::models::{reference, zoo_model, J2};
+use tancheck_testkit::check::{only, run_from_zero, summary};
 
 /// E = 200 GPa, ν = 0.3, σy = 250 MPa, no hardening: the J2 case. The yield point in
 /// uniaxial strain is ε11 = σy/2μ = 250/(2·76923.08) = 0.001625 (2μ = E/(1 + ν)).
@@ -25,29 +26,7 @@ fn one(dstrain: [f64; 6]) -> Path {
 }
 
 fn run(routine: &mut dyn tancheck::core::Routine, props: &[f64], path: &Path, settings: &Settings) -> Report {
-    let info = routine.info().clone();
-    let mut caller = Caller::new(routine);
-    check::run(&mut caller, props, PointState::zero(&info, 20.0), path, settings).unwrap()
-}
-
-fn only(scheme: Scheme) -> Settings {
-    Settings { schemes: vec![scheme], ..Settings::default() }
-}
-
-fn summary(r: &Report) -> String {
-    r.increments
-        .iter()
-        .map(|i| {
-            format!(
-                "inc {} passed {} finding {} reason {}",
-                i.index,
-                i.passed(),
-                i.finding(),
-                i.diagnosis.as_ref().map_or("-".to_string(), |d| d.reason.clone())
-            )
-        })
-        .collect::<Vec<_>>()
-        .join("\n")
+    run_from_zero(routine, props, 20.0, path, settings)
 }
 
 #[test]
