@@ -64,6 +64,19 @@ fn path() -> FinitePathSpec {
     }
 }
 
+/// The start of the path's first increment: the model's properties, no stress, no state, 20 °C.
+fn first_start(gradients: &[tancheck::core::finite::mat3::Mat3<f64>]) -> Start {
+    Start {
+        properties: PROPS.to_vec(),
+        f0: gradients[0],
+        stress0: [0.0; 6],
+        state0: vec![0.0; 7],
+        temperature: [20.0, 0.0],
+        time: [0.0, 1.0],
+        increment: 1,
+    }
+}
+
 /// Walk the path with the Rust model and the compiled routine side by side, comparing every
 /// output of every increment; the start state of each increment is the Rust model's.
 fn agrees_with_rust(lib: &Path, symbol: &str) {
@@ -73,15 +86,7 @@ fn agrees_with_rust(lib: &Path, symbol: &str) {
             let mut compiled = routine(lib, symbol, sm, m);
             let mut rust = FiniteModelRoutine(J2Log::new(sm, m));
             let mut ws = Workspace::new(7, 4);
-            let mut start = Start {
-                properties: PROPS.to_vec(),
-                f0: gradients[0],
-                stress0: [0.0; 6],
-                state0: vec![0.0; 7],
-                temperature: [20.0, 0.0],
-                time: [0.0, 1.0],
-                increment: 1,
-            };
+            let mut start = first_start(&gradients);
             let mut plastic = false;
             for (k, f1) in gradients.iter().enumerate().skip(1) {
                 start.increment = k as i32;
@@ -152,15 +157,7 @@ fn fortran_j2_log_passes_with_its_twin() {
 fn perturbed_j2_log_calls_allocate_nothing() {
     use tancheck::core::finite::numeric::{self, Ask, Difference};
     let gradients = path().build().unwrap().gradients;
-    let start = Start {
-        properties: PROPS.to_vec(),
-        f0: gradients[0],
-        stress0: [0.0; 6],
-        state0: vec![0.0; 7],
-        temperature: [20.0, 0.0],
-        time: [0.0, 1.0],
-        increment: 1,
-    };
+    let start = first_start(&gradients);
     let m = TangentMeasure::SigmaJaumann;
     let mut rust = FiniteModelRoutine(J2Log::new(StressMeasure::Cauchy, m));
     let mut c = routine(c_lib(), "c_j2log", StressMeasure::Cauchy, m);
