@@ -161,3 +161,42 @@ fn one_comparison_allocates_nothing() {
         compare_along(&other, &returned, &numerical, Limits::new(1e-6, s.entry_floor, s.worst_entries), None);
     assert_eq!(c2.worst[0].label, other.entry_label(c2.worst[0].row, c2.worst[0].col));
 }
+
+/// A whole increment of a check that keeps only the failures in detail (what `tancheck check`
+/// keeps without `--verbose`) allocates nothing when it passes: the base call, both schemes'
+/// calls, the comparisons along the soft directions and the increment's fixed-size record.
+#[test]
+fn a_passing_increment_of_a_check_allocates_nothing() {
+    use tancheck::core::increment::Walk;
+    use tancheck::core::path::{Path as LoadPath, PathIncrement};
+    use tancheck::core::report::{Collector, Keep};
+    use tancheck::core::Settings;
+
+    let mut m = reference("j2", tancheck::core::PointKind::Solid3d).unwrap();
+    let info = m.info().clone();
+    let settings = Settings { first_calls: false, ..Settings::default() };
+    // Tension with shear, every increment plastic after the second (the same branch).
+    let path = LoadPath {
+        name: "plastic tension-shear".into(),
+        increments: (0..12).map(|_| PathIncrement::strain([1e-3, 0.0, 0.0, 5e-4, 0.0, 0.0])).collect(),
+    };
+    let driver = Driver::new(&info, &PROPS, PointState::zero(&info, 20.0)).unwrap();
+    let mut walk = Walk::new(driver, &settings);
+    let mut caller = Caller::new(&mut m);
+    let mut collected = Collector::new(&settings, Keep::Failures, path.increments.len());
+    // Warm up: the first increments reach the elastic and the plastic branch (a branch's
+    // summary is made when first reached) and set up what is made once per thread.
+    for k in 0..4 {
+        let step = walk.step(k, &path.increments[k], &mut caller, &mut collected);
+        assert!(!step.stops);
+    }
+    let before = allocations();
+    for k in 4..path.increments.len() {
+        let step = walk.step(k, &path.increments[k], &mut caller, &mut collected);
+        assert!(!step.stops && step.state_changed, "increment {} is plastic", k + 1);
+    }
+    let after = allocations();
+    assert_eq!(after - before, 0, "passing increments of a check allocated");
+    assert_eq!(collected.len(), path.increments.len());
+    assert_eq!(caller.real_calls as usize, 13 * path.increments.len());
+}

@@ -10,10 +10,13 @@ use serde::{Deserialize, Serialize};
 
 use smallvec::SmallVec;
 
-use crate::compare::{compare_dtemp_floor, compare_with, dtemp_floor, Limits, SoftDirections};
+use crate::compare::{
+    compare_dtemp_floor, compare_with, dtemp_floor, passing, Limits, PassedScheme, SoftDirections,
+};
+use crate::convention::Convention;
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
-use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck};
+use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck, RECORD_SCHEMES};
 use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -118,41 +121,123 @@ pub fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> Faul
     }
 }
 
-/// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
-/// the base call (made again, with the driver's strain increment), every scheme of
-/// `settings`, and the diagnosis when a check fails and `settings.diagnose` is on. `previous`
-/// is the best numerical tangent at the end of the previous increment, if known.
-///
-/// A fault of the base call or of a call of the diagnosis is the error; a fault of a
-/// perturbed call is a [`CheckOutcome::Fault`] in the result. The base outputs stay in
-/// `driver.base`.
-pub fn check_call(
+/// What the calls of one increment gave, before any judgement: the base call's tangent and
+/// ∂σ/∂T, every scheme's derivatives, the sharpest numerical tangent and the soft directions
+/// found from it. [`check_call`] judges it in full; the walk of a check that keeps only the
+/// failures in detail first asks [`Measurement::passed`] and judges in full only when that
+/// says no, so a passing increment costs no report structures.
+pub struct Measurement {
+    n: usize,
+    has_twin: bool,
+    /// The returned tangent, column-major (the first n × n entries).
+    returned: [f64; 36],
+    returned_dtemp: Option<[f64; 6]>,
+    reported: i32,
+    pub(crate) state_changed: bool,
+    twin_real_gap: Option<f64>,
+    dtemp_abs_floor: f64,
+    measured: SmallVec<[Measured; 2]>,
+    /// Which of `measured` is the sharpest tangent.
+    best_at: Option<usize>,
+    soft: Option<SoftDirections>,
+}
+
+impl Measurement {
+    /// The branch the routine reported, if it reported one.
+    pub fn reported_branch(&self) -> Option<i32> {
+        (self.reported >= 0).then_some(self.reported)
+    }
+
+    /// The sharpest numerical tangent measured (see [`CallCheck::best`]), column-major.
+    pub fn best(&self) -> Option<&[f64]> {
+        self.best_at.map(|b| &self.measured[b].tangent[..self.n * self.n])
+    }
+
+    /// The judgement of a call that passed every check, with nothing more to say about it:
+    /// per scheme (the settings' order) the norm and worst-entry errors and the largest
+    /// error of its tangent comparison, `None` for a skipped scheme; `None` as a whole when a
+    /// comparison failed, a call faulted or an output is not a finite number (then only
+    /// [`check_call`]'s full judgement says what happened). The numbers are the very ones the
+    /// full judgement reports: the same measures, computed in the same order.
+    pub fn passed(
+        &self,
+        driver: &Driver,
+        conv: &Convention,
+        settings: &Settings,
+    ) -> Option<[Option<PassedScheme>; RECORD_SCHEMES]> {
+        let n = self.n;
+        let base = &driver.base;
+        let finite = |v: &[f64]| v.iter().all(|x| x.is_finite());
+        if !(finite(&base.stress) && finite(&base.state) && finite(&base.tangent)) {
+            return None;
+        }
+        let soft = self.soft.as_ref()?;
+        let mut r = [0.0; 36];
+        r[..n * n].copy_from_slice(&self.returned[..n * n]);
+        conv.tangent_to_mandel(&mut r[..n * n]);
+        let mut out = [None; RECORD_SCHEMES];
+        for (k, m) in self.measured.iter().enumerate() {
+            match &m.outcome {
+                Some(CheckOutcome::Skipped { .. }) => {}
+                Some(_) => return None,
+                None => {
+                    let ss = settings.scheme(m.scheme);
+                    let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
+                    let p = passing(conv, &r[..n * n], &m.tangent[..n * n], limits, soft)?;
+                    if k < RECORD_SCHEMES {
+                        out[k] = Some(p);
+                    }
+                }
+            }
+            match (&self.returned_dtemp, &m.dtemp) {
+                (Some(ret), Some(Ok(col))) => {
+                    let ss = settings.scheme(m.scheme);
+                    let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
+                    if !compare_dtemp_floor(conv, &ret[..n], &col[..n], limits, self.dtemp_abs_floor).pass {
+                        return None;
+                    }
+                }
+                (_, Some(Err(_))) => return None,
+                _ => {}
+            }
+        }
+        Some(out)
+    }
+}
+
+/// Make every call of the driver's current increment (as set, or rescaled, or solved for
+/// mixed control): the base call (made again, with the driver's strain increment) and every
+/// scheme of `settings`. A fault of the base call is the error; a fault of a perturbed call
+/// is kept in the measurement. The base outputs stay in `driver.base`.
+pub fn measure_call(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
     settings: &Settings,
-    previous: Option<&[f64]>,
-) -> Result<CallCheck, Fault> {
+) -> Result<Measurement, Fault> {
     // The convention is read through `caller` where it is needed (no copy per call).
     let n = caller.info().convention.ncomp();
     let has_twin = caller.has_complex();
     driver.base_call(caller)?;
-    let returned = driver.base.tangent.clone();
-    let returned_dtemp =
-        driver.base.outcome.provides(provides::DSTRESS_DTEMP).then(|| driver.base.dstress_dtemp.clone());
+    let mut returned = [0.0; 36];
+    returned[..n * n].copy_from_slice(&driver.base.tangent[..n * n]);
+    let returned_dtemp = driver.base.outcome.provides(provides::DSTRESS_DTEMP).then(|| {
+        let mut d = [0.0; 6];
+        d[..n].copy_from_slice(&driver.base.dstress_dtemp[..n]);
+        d
+    });
     let reported = driver.base.outcome.branch;
     let state_changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
     let h_strain_scale = driver.strain_scale(settings.step_floor);
     let h_temp_scale = driver.temp_scale(settings.temp_floor);
-    let mut checks = Vec::with_capacity(settings.schemes.len());
     // The twin's real part against the real stress, over every complex call (a running max:
     // no allocation).
     let mut twin_real_gap: Option<f64> = None;
     let stress_scale = {
         let s = driver.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt();
-        let c = returned.iter().filter(|x| x.is_finite()).map(|x| x * x).sum::<f64>().sqrt();
+        let c = returned[..n * n].iter().filter(|x| x.is_finite()).map(|x| x * x).sum::<f64>().sqrt();
         (s + c * h_strain_scale).max(1e-300)
     };
-    let dtemp_abs_floor = dtemp_floor(&driver.base.stress, &returned, h_strain_scale, h_temp_scale);
+    let dtemp_abs_floor = dtemp_floor(&driver.base.stress, &returned[..n * n], h_strain_scale, h_temp_scale);
     // First every scheme's derivatives (the routine calls, in the settings' order), then the
     // comparisons: the soft directions are found once, from the sharpest numerical tangent,
     // and every scheme is measured along them.
@@ -217,10 +302,70 @@ pub fn check_call(
             best_at = Some(k);
         }
     }
+    let soft = best_at.map(|b| {
+        SoftDirections::of(&caller.info().convention, &measured[b].tangent[..n * n], Some(driver.dstrain()))
+    });
+    Ok(Measurement {
+        n,
+        has_twin,
+        returned,
+        returned_dtemp,
+        reported,
+        state_changed,
+        twin_real_gap,
+        dtemp_abs_floor,
+        measured,
+        best_at,
+        soft,
+    })
+}
+
+/// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
+/// the base call (made again, with the driver's strain increment), every scheme of
+/// `settings`, and the diagnosis when a check fails and `settings.diagnose` is on. `previous`
+/// is the best numerical tangent at the end of the previous increment, if known.
+///
+/// A fault of the base call or of a call of the diagnosis is the error; a fault of a
+/// perturbed call is a [`CheckOutcome::Fault`] in the result. The base outputs stay in
+/// `driver.base`.
+pub fn check_call(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+    previous: Option<&[f64]>,
+) -> Result<CallCheck, Fault> {
+    let m = measure_call(driver, caller, settings)?;
+    judge(m, driver, caller, settings, previous)
+}
+
+/// The full judgement of a measured call: every comparison with its worst entries, the
+/// outputs that are not finite numbers, and the diagnosis when a check fails and
+/// `settings.diagnose` is on (a fault of a call of the diagnosis is the error).
+pub fn judge(
+    me: Measurement,
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+    previous: Option<&[f64]>,
+) -> Result<CallCheck, Fault> {
+    let Measurement {
+        n,
+        has_twin,
+        returned,
+        returned_dtemp,
+        reported,
+        state_changed,
+        twin_real_gap,
+        dtemp_abs_floor,
+        measured,
+        best_at,
+        soft,
+    } = me;
+    let returned = &returned[..n * n];
+    let returned_dtemp = returned_dtemp.as_ref().map(|d| &d[..n]);
     let best: Option<(Scheme, Vec<f64>)> =
         best_at.map(|b| (measured[b].scheme, measured[b].tangent[..n * n].to_vec()));
-    let soft =
-        best.as_ref().map(|(_, t)| SoftDirections::of(&caller.info().convention, t, Some(driver.dstrain())));
+    let mut checks = Vec::with_capacity(measured.len());
     let mut failed_dtemp: Option<Vec<f64>> = None;
     for m in &measured {
         let ss = settings.scheme(m.scheme);
@@ -230,11 +375,11 @@ pub fn check_call(
         let tangent = match (&m.outcome, &soft) {
             (Some(outcome), _) => outcome.clone(),
             (None, Some(soft)) => {
-                CheckOutcome::Compared(compare_with(conv, &returned, numerical, limits, soft))
+                CheckOutcome::Compared(compare_with(conv, returned, numerical, limits, soft))
             }
             (None, None) => unreachable!("a scheme that measured a tangent makes the sharpest one"),
         };
-        let dstress_dtemp = match (&returned_dtemp, &m.dtemp) {
+        let dstress_dtemp = match (returned_dtemp, &m.dtemp) {
             (Some(ret), Some(Ok(col))) => {
                 let c = compare_dtemp_floor(conv, ret, &col[..n], limits, dtemp_abs_floor);
                 if !c.pass && failed_dtemp.is_none() {
@@ -281,8 +426,8 @@ pub fn check_call(
                 }
             });
         let ctx = Context {
-            returned: &returned,
-            dtemp: returned_dtemp.as_deref().zip(failed_dtemp.as_deref()),
+            returned,
+            dtemp: returned_dtemp.zip(failed_dtemp.as_deref()),
             dtemp_complex,
             dtemp_floor: dtemp_abs_floor,
             complex,

@@ -65,7 +65,7 @@ pub fn run_with(
             increments.push(r);
         }
     }
-    let mut merged = Merged { notes, increments, previous: None, unloaded: false, conventions_seen: false };
+    let mut merged = Merged { notes, increments, unloaded: false, conventions_seen: false };
     let stopped_at_zero = merged.increments.last_faulted();
     // Several threads when the settings ask for them and the routine is safe to call from
     // several at once (see `concurrent`); otherwise, or for a short path, one.
@@ -103,9 +103,8 @@ pub fn run_with(
                 if k > 0 {
                     progress(k);
                 }
-                let previous = merged.previous.take();
-                let step = walk.step(k, inc, caller, previous.as_deref());
-                if merged.take(step, &conv) {
+                let step = walk.step(k, inc, caller, &mut merged.increments);
+                if merged.take(step, walk.best(), &conv) {
                     break;
                 }
             }
@@ -183,26 +182,21 @@ pub fn run_with(
 struct Merged {
     notes: Vec<String>,
     increments: Collector,
-    /// The best numerical tangent at the end of the previous increment (the tangent at the
-    /// start of this one), for the stale-tangent hypothesis.
-    previous: Option<Vec<f64>>,
     /// Some increment's strain increment opposed the stress at its start (unloading).
     unloaded: bool,
     conventions_seen: bool,
 }
 
 impl Merged {
-    /// Add the next increment's step; true when the path stops there.
-    fn take(&mut self, step: Step, conv: &crate::Convention) -> bool {
-        let stops = step.stops();
+    /// Take what the next increment's step leaves (its result is in `self.increments`
+    /// already; `best` is its best numerical tangent); true when the path stops there.
+    fn take(&mut self, step: Step, best: Option<&[f64]>, conv: &crate::Convention) -> bool {
         self.unloaded |= step.unloaded;
         self.notes.extend(step.note);
-        if step.checked && !step.result.state_changed {
-            self.first_elastic(step.best.as_deref(), conv);
+        if step.checked && !step.state_changed {
+            self.first_elastic(best, conv);
         }
-        self.previous = if stops { None } else { step.best };
-        self.increments.push(step.result);
-        stops
+        step.stops
     }
 
     /// Add a thread's share, collected there; true when the path stops in it.
@@ -219,7 +213,6 @@ impl Merged {
         if let Some(best) = first_elastic {
             self.first_elastic(best.as_deref(), conv);
         }
-        self.previous = None;
         self.increments.append(collected);
         self.increments.last_faulted()
     }

@@ -266,7 +266,6 @@ fn share(caller: &mut Caller<'_>, job: Job<'_>, range: Range<usize>) -> Chunk {
         return incomplete;
     };
     let mut walk = increment::Walk::new(driver, settings);
-    let mut previous: Option<Vec<f64>> = None;
     let quiet = Settings { diagnose: false, first_calls: false, ..settings.clone() };
     for (k, inc) in path.increments[..range.start].iter().enumerate() {
         let (solved, _, _) = walk.set(k, inc, caller);
@@ -275,7 +274,7 @@ fn share(caller: &mut Caller<'_>, job: Job<'_>, range: Range<usize>) -> Chunk {
         }
         let seen = if k + 1 == range.start {
             judge::check_call(&mut walk.driver, caller, &quiet, None).map(|cc| {
-                previous = cc.best.map(|(_, t)| t);
+                walk.set_previous(cc.best.as_ref().map(|(_, t)| &t[..]));
                 (cc.reported_branch, cc.state_changed)
             })
         } else {
@@ -302,16 +301,13 @@ fn share(caller: &mut Caller<'_>, job: Job<'_>, range: Range<usize>) -> Chunk {
     let (mut notes, mut unloaded, mut first_elastic) = (Vec::new(), false, None);
     let mut complete = true;
     for k in range {
-        let step = walk.step(k, &path.increments[k], caller, previous.as_deref());
-        let stops = step.stops();
+        let step = walk.step(k, &path.increments[k], caller, &mut collected);
         unloaded |= step.unloaded;
         notes.extend(step.note);
-        if step.checked && first_elastic.is_none() && !step.result.state_changed {
-            first_elastic = Some(step.best.clone());
+        if step.checked && first_elastic.is_none() && !step.state_changed {
+            first_elastic = Some(walk.best().map(<[f64]>::to_vec));
         }
-        previous = if stops { None } else { step.best };
-        collected.push(step.result);
-        if stops {
+        if step.stops {
             complete = false;
             break;
         }

@@ -9,28 +9,22 @@ use crate::driver::Driver;
 use crate::first_calls;
 use crate::mixed;
 use crate::path::PathIncrement;
-use crate::report::{CallRecord, FaultRecord, IncrementResult};
+use crate::report::{CallRecord, Collector, FaultRecord, IncrementResult, Keep, PassedIncrement};
 use crate::routine::{Caller, Fault};
 use crate::settings::Settings;
 
-/// What one increment leaves for the report and for the increments after it.
+/// What one increment leaves for the increments after it (its result went to the collector).
 pub struct Step {
-    pub result: IncrementResult,
     /// The base call returned (the per-call check ran), faulted later or not.
     pub checked: bool,
-    /// The best numerical tangent of the increment (see [`judge::CallCheck::best`]).
-    pub best: Option<Vec<f64>>,
+    /// The state variables changed in the increment.
+    pub state_changed: bool,
+    /// The path stops after this increment (a fault).
+    pub stops: bool,
     /// The strain increment opposed the stress at the start (unloading).
     pub unloaded: bool,
     /// A note for the report (a mixed-control solve that did not converge).
     pub note: Option<String>,
-}
-
-impl Step {
-    /// The path stops after this increment (a fault).
-    pub fn stops(&self) -> bool {
-        self.result.fault.is_some()
-    }
 }
 
 /// Routine positions and targets of the stress components a mixed-control increment holds.
@@ -49,9 +43,9 @@ pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Ve
 /// An increment set on the driver: the solve's fault if any, its log and a note for the report.
 pub type Settled = (Result<(), Fault>, Option<mixed::SolveLog>, Option<String>);
 
-/// A walk along a path: the driver, the settings, the branches reached so far and the
-/// strain-increment scratch. The serial walk and each thread's share step through one, so that
-/// their steps are the same code.
+/// A walk along a path: the driver, the settings, the branches reached so far, the best
+/// numerical tangent of the last increment and the strain-increment scratch. The serial walk
+/// and each thread's share step through one, so that their steps are the same code.
 pub struct Walk<'s> {
     pub driver: Driver,
     settings: &'s Settings,
@@ -59,13 +53,47 @@ pub struct Walk<'s> {
     pub reached: first_calls::Branches,
     /// Scratch of the routine's length for the strain increment.
     dstrain: Vec<f64>,
+    /// The best numerical tangent of the last increment (see [`judge::CallCheck::best`]),
+    /// n × n, when `has_best`; kept in place (no allocation per increment).
+    best: Vec<f64>,
+    has_best: bool,
+    /// `best` is the tangent at the start of the next increment, for its stale-tangent
+    /// hypothesis (not after a fault).
+    best_is_previous: bool,
 }
 
 impl<'s> Walk<'s> {
     /// A walk from the driver's start, no branch reached yet.
     pub fn new(driver: Driver, settings: &'s Settings) -> Walk<'s> {
-        let dstrain = vec![0.0; driver.ncomp()];
-        Walk { driver, settings, reached: first_calls::Branches::default(), dstrain }
+        let n = driver.ncomp();
+        Walk {
+            driver,
+            settings,
+            reached: first_calls::Branches::default(),
+            dstrain: vec![0.0; n],
+            best: vec![0.0; n * n],
+            has_best: false,
+            best_is_previous: false,
+        }
+    }
+
+    /// The best numerical tangent of the last increment, if it measured one.
+    pub fn best(&self) -> Option<&[f64]> {
+        self.has_best.then_some(&self.best[..])
+    }
+
+    /// Take `best` as the best numerical tangent at the end of the increment before the next
+    /// one (a thread's share starts after increments it walked without checking them all).
+    pub fn set_previous(&mut self, best: Option<&[f64]>) {
+        self.keep_best(best);
+        self.best_is_previous = self.has_best;
+    }
+
+    fn keep_best(&mut self, best: Option<&[f64]>) {
+        self.has_best = best.is_some();
+        if let Some(b) = best {
+            self.best.copy_from_slice(b);
+        }
     }
 
     /// Set increment `k` (0-based) of the path on the driver, solving for the strain increment
@@ -93,46 +121,112 @@ impl<'s> Walk<'s> {
         }
     }
 
-    /// Check increment `k` (0-based) from the driver's start state and move the driver to its
-    /// end when it passed without a fault. `previous` is the best numerical tangent of the
-    /// increment before.
+    /// Check increment `k` (0-based) from the driver's start state, add its result to
+    /// `collected` and move the driver to its end when it passed without a fault. The best
+    /// numerical tangent of the increment before is the stale-tangent hypothesis's.
+    ///
+    /// When `collected` keeps only the failures in detail, an increment that passed every
+    /// check goes in as a few numbers ([`judge::Measurement::passed`],
+    /// [`Collector::push_passed`]): the same record and summaries, without the report
+    /// structures of the full judgement.
     pub fn step(
         &mut self,
         k: usize,
         inc: &PathIncrement,
         caller: &mut Caller<'_>,
-        previous: Option<&[f64]>,
+        collected: &mut Collector,
     ) -> Step {
         let (solved, solve_log, note) = self.set(k, inc, caller);
-        let (driver, settings) = (&mut self.driver, self.settings);
+        let Walk { driver, settings, best, best_is_previous, reached, .. } = self;
+        let settings: &Settings = settings;
         let n = driver.ncomp();
         let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
         let unloaded = work < 0.0;
-        // The base call, every scheme, and the diagnosis of a failure: one call's check.
-        let checked = solved.and_then(|()| judge::check_call(driver, caller, settings, previous));
-        let mut cc = match checked {
-            Err(fault) => {
-                let result =
-                    record(k, driver, solve_log, None, None, Some(judge::fault_record(&fault, driver, None)));
-                return Step { result, checked: false, best: None, unloaded, note };
-            }
-            Ok(cc) => cc,
+        let previous = best_is_previous.then_some(&best[..]);
+        // The base call and every scheme; then the judgement: a few numbers for an increment
+        // that passed (when only failures are kept in detail), else the full one with the
+        // diagnosis of a failure.
+        let measured = solved.and_then(|()| judge::measure_call(driver, caller, settings));
+        let me = match measured {
+            Ok(me) => me,
+            Err(fault) => return self.faulted(k, fault, solve_log, unloaded, note, collected),
         };
-        let guarded = if settings.first_calls && self.reached.first(cc.reported_branch, cc.state_changed) {
-            first_calls::full_guard(driver, caller).err()
+        let (branch, state_changed) = (me.reported_branch(), me.state_changed);
+        // A newly reached branch gets the full guards after its judgement; the increment is
+        // then judged in full (once per branch), as one whose guards find a fault must be.
+        let new_branch = settings.first_calls && reached.first(branch, state_changed);
+        let passed = if collected.keep() == Keep::Failures && !new_branch {
+            me.passed(driver, &caller.info().convention, settings)
         } else {
             None
         };
-        let best = cc.best.take().map(|(_, t)| t);
+        // The best tangent leaves the measurement before the judgement (which still reads the
+        // previous one).
+        let mut new_best = [0.0; 36];
+        let has_new_best = me.best().map(|b| new_best[..b.len()].copy_from_slice(b)).is_some();
+        let cc = match passed {
+            Some(_) => None,
+            None => match judge::judge(me, driver, caller, settings, previous) {
+                Ok(cc) => Some(cc),
+                Err(fault) => return self.faulted(k, fault, solve_log, unloaded, note, collected),
+            },
+        };
+        let guarded = if new_branch { first_calls::full_guard(driver, caller).err() } else { None };
+        self.keep_best(has_new_best.then_some(&new_best[..n * n]));
+        let driver = &mut self.driver;
         if let Some(fault) = guarded {
-            let result = record(k, driver, solve_log, Some(cc), None, Some(*fault));
-            return Step { result, checked: true, best, unloaded, note };
+            let cc = cc.expect("a newly reached branch is judged in full");
+            collected.push(record(k, driver, solve_log, Some(cc), None, Some(*fault)));
+            self.best_is_previous = false;
+            return Step { checked: true, state_changed, stops: true, unloaded, note };
         }
-        // Non-finite outputs carry the inputs of the call, as a crash does.
-        let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
-        driver.advance();
-        let result = record(k, driver, solve_log, Some(cc), non_finite_call, None);
-        Step { result, checked: true, best, unloaded, note }
+        self.best_is_previous = self.has_best;
+        match (cc, passed) {
+            (Some(cc), _) => {
+                // Non-finite outputs carry the inputs of the call, as a crash does.
+                let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
+                driver.advance();
+                collected.push(record(k, driver, solve_log, Some(cc), non_finite_call, None));
+            }
+            (None, Some(schemes)) => {
+                driver.advance();
+                let s = driver.start();
+                collected.push_passed(&PassedIncrement {
+                    index: k + 1,
+                    branch,
+                    state_changed,
+                    strain: &s.strain,
+                    stress: &s.stress,
+                    schemes,
+                });
+            }
+            (None, None) => unreachable!("an increment is judged in full unless it passed"),
+        }
+        Step { checked: true, state_changed, stops: false, unloaded, note }
+    }
+
+    /// The end of an increment whose base call, solve or diagnosis faulted: the path stops.
+    fn faulted(
+        &mut self,
+        k: usize,
+        fault: Fault,
+        solve_log: Option<mixed::SolveLog>,
+        unloaded: bool,
+        note: Option<String>,
+        collected: &mut Collector,
+    ) -> Step {
+        let driver = &self.driver;
+        collected.push(record(
+            k,
+            driver,
+            solve_log,
+            None,
+            None,
+            Some(judge::fault_record(&fault, driver, None)),
+        ));
+        self.has_best = false;
+        self.best_is_previous = false;
+        Step { checked: false, state_changed: false, stops: true, unloaded, note }
     }
 }
 

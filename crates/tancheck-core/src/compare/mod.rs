@@ -169,23 +169,7 @@ pub(super) fn measure(
     let Limits { tol, entry_floor, keep_worst } = limits;
     let nrows = r.len() / ncols;
     assert!(ncols <= 6, "a tangent has at most 6 columns");
-    // One pass for the whole and the columns' sums of squares (the same sums, in the same
-    // order, as summing each on its own).
-    let (mut norm2, mut diff2) = (0.0, 0.0);
-    let mut columns = [(0.0f64, 0.0f64); 6];
-    for (j, (d, c)) in columns.iter_mut().enumerate().take(ncols) {
-        for i in 0..nrows {
-            let k = i + j * nrows;
-            let (dd, mm) = ((r[k] - m[k]) * (r[k] - m[k]), m[k] * m[k]);
-            *d += dd;
-            *c += mm;
-            diff2 += dd;
-            norm2 += mm;
-        }
-    }
-    let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
-    let scale = if norm > 0.0 { norm } else { 1.0 };
-    let norm_error = finite_or_inf(diff_norm / scale);
+    let Sums { columns, scale, norm_error } = sums(r, m, nrows, ncols);
     let floor = entry_floor * scale;
     let column_errors: ColumnErrors =
         columns[..ncols].iter().map(|(d, c)| finite_or_inf(d.sqrt() / c.sqrt().max(floor))).collect();
@@ -195,7 +179,7 @@ pub(super) fn measure(
     let (r, m) = (&r[..nn], &m[..nn]);
     let mut errors = [0.0f64; 36];
     for ((e, a), b) in errors.iter_mut().zip(r).zip(m) {
-        *e = finite_or_inf((a - b).abs() / b.abs().max(floor));
+        *e = entry_error(*a, *b, floor);
     }
     let mut worst = Worst::new(keep_worst);
     for (k, &e) in errors[..nn].iter().enumerate() {
@@ -228,6 +212,90 @@ pub(super) fn measure(
         tol,
         pass,
     }
+}
+
+/// The sums of squares of one comparison: per column (difference, numerical), the scale of
+/// the entry floor (the numerical norm, 1 when it is zero) and the norm error. One pass for
+/// the whole and the columns (the same sums, in the same order, as summing each on its own).
+struct Sums {
+    columns: [(f64, f64); 6],
+    scale: f64,
+    norm_error: f64,
+}
+
+#[inline(always)]
+fn sums(r: &[f64], m: &[f64], nrows: usize, ncols: usize) -> Sums {
+    let (mut norm2, mut diff2) = (0.0, 0.0);
+    let mut columns = [(0.0f64, 0.0f64); 6];
+    for (j, (d, c)) in columns.iter_mut().enumerate().take(ncols) {
+        for i in 0..nrows {
+            let k = i + j * nrows;
+            let (dd, mm) = ((r[k] - m[k]) * (r[k] - m[k]), m[k] * m[k]);
+            *d += dd;
+            *c += mm;
+            diff2 += dd;
+            norm2 += mm;
+        }
+    }
+    let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
+    let scale = if norm > 0.0 { norm } else { 1.0 };
+    Sums { columns, scale, norm_error: finite_or_inf(diff_norm / scale) }
+}
+
+/// The entry measure of one entry: returned `a`, numerical `b`, floor `floor`.
+#[inline(always)]
+fn entry_error(a: f64, b: f64, floor: f64) -> f64 {
+    finite_or_inf((a - b).abs() / b.abs().max(floor))
+}
+
+/// The numbers a passing tangent comparison leaves in a check's record and summaries.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub struct PassedScheme {
+    pub norm_error: f64,
+    pub worst_entry_error: f64,
+    /// [`Comparison::error`]: the largest of the norm, worst-entry and soft-direction errors.
+    pub error: f64,
+}
+
+/// A comparison reduced to what a passing one leaves: `r` is the returned tangent already in
+/// Mandel form (the same for every scheme of an increment, converted once), `numerical`
+/// column-major in the routine's convention, and every entry of the returned tangent is a
+/// finite number. `None` when the comparison fails: then [`compare_with`] makes the full one.
+/// The same measures as [`compare_with`], computed in the same order, so the numbers are the
+/// very ones it reports; nothing is allocated or labelled.
+pub fn passing(
+    conv: &Convention,
+    r: &[f64],
+    numerical: &[f64],
+    limits: Limits,
+    soft: &SoftDirections,
+) -> Option<PassedScheme> {
+    let nn = r.len();
+    assert!(nn <= 36 && numerical.len() == nn, "a tangent has at most 6 × 6 entries");
+    let mut mb = [0.0; 36];
+    let m = &mut mb[..nn];
+    m.copy_from_slice(numerical);
+    conv.tangent_to_mandel(m);
+    let ncols = conv.ncomp();
+    let nrows = nn / ncols.max(1);
+    let Sums { scale, norm_error, .. } = sums(r, m, nrows, ncols);
+    let floor = limits.entry_floor * scale;
+    let mut worst_entry_error = 0.0f64;
+    for (a, b) in r.iter().zip(m.iter()) {
+        let e = entry_error(*a, *b, floor);
+        if e > worst_entry_error {
+            worst_entry_error = e;
+        }
+    }
+    if !(norm_error <= limits.tol && worst_entry_error <= limits.tol) {
+        return None;
+    }
+    let (soft_error, _) = soft::soft_error_along(r, m, ncols, soft);
+    (soft_error <= limits.tol).then(|| PassedScheme {
+        norm_error,
+        worst_entry_error,
+        error: norm_error.max(worst_entry_error).max(soft_error),
+    })
 }
 
 /// The worst entries seen so far, worst first, at most `keep` of them, by index: an entry is

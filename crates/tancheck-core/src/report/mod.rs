@@ -10,7 +10,7 @@ use crate::settings::Settings;
 pub mod document;
 pub mod record;
 
-pub use record::{Collector, IncrementRecord, Keep};
+pub use record::{Collector, IncrementRecord, Keep, PassedIncrement, RECORD_SCHEMES};
 
 /// The cautions every report carries.
 pub const CAUTIONS: [&str; 2] = [

@@ -7,6 +7,7 @@ use std::borrow::Cow;
 use serde::{Deserialize, Serialize};
 
 use super::{BranchSummary, CheckOutcome, IncrementResult, SchemeSummary};
+use crate::compare::PassedScheme;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
@@ -168,6 +169,20 @@ impl schemars::JsonSchema for IncrementRecord {
     }
 }
 
+/// A passing increment as [`Collector::push_passed`] takes it.
+#[derive(Clone, Copy, Debug)]
+pub struct PassedIncrement<'a> {
+    /// 1-based.
+    pub index: usize,
+    pub branch: Option<i32>,
+    pub state_changed: bool,
+    /// Strain and stress at the end of the increment, routine order.
+    pub strain: &'a [f64],
+    pub stress: &'a [f64],
+    /// Per scheme, in the settings' order: its passing comparison, `None` when skipped.
+    pub schemes: [Option<PassedScheme>; RECORD_SCHEMES],
+}
+
 /// Which increments a report keeps in full detail.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
@@ -250,23 +265,7 @@ impl Collector {
                 _ => None,
             })
             .fold(0.0, f64::max);
-        let b =
-            match self.branches.iter().position(|b| {
-                b.reported_branch == inc.reported_branch && b.state_changed == inc.state_changed
-            }) {
-                Some(k) => &mut self.branches[k],
-                None => {
-                    self.branches.push(BranchSummary {
-                        branch: inc.branch_label(),
-                        reported_branch: inc.reported_branch,
-                        state_changed: inc.state_changed,
-                        increments: 0,
-                        failed: 0,
-                        worst_error: 0.0,
-                    });
-                    self.branches.last_mut().expect("just pushed")
-                }
-            };
+        let b = self.branch(inc.reported_branch, inc.state_changed);
         b.increments += 1;
         b.failed += (!record.pass) as usize;
         b.worst_error = b.worst_error.max(worst);
@@ -288,6 +287,76 @@ impl Collector {
         };
         if full {
             self.increments.push(inc);
+        }
+    }
+
+    /// Add the next increment when it passed with nothing more to say (no fault, no
+    /// diagnosis, every comparison passed): its index, branch, end strain and stress, and per
+    /// scheme (the settings' order) the numbers of its passing comparison, `None` for a skipped
+    /// scheme. The same record and summaries as [`Collector::push`] of the full result, made
+    /// from a few numbers; only for [`Keep::Failures`], which keeps no detail of such an
+    /// increment.
+    pub fn push_passed(&mut self, inc: &PassedIncrement<'_>) {
+        assert_eq!(self.keep, Keep::Failures, "a collector that keeps every increment needs its detail");
+        let n = inc.strain.len().min(RECORD_COMPONENTS);
+        let mut record = IncrementRecord {
+            index: inc.index as u32,
+            branch: inc.branch,
+            state_changed: inc.state_changed,
+            pass: true,
+            ncomp: n as u8,
+            nschemes: self.schemes.len().min(RECORD_SCHEMES) as u8,
+            strain: [0.0; RECORD_COMPONENTS],
+            stress: [0.0; RECORD_COMPONENTS],
+            worst: [f64::NAN; RECORD_SCHEMES],
+        };
+        record.strain[..n].copy_from_slice(&inc.strain[..n]);
+        let ns = n.min(inc.stress.len());
+        record.stress[..ns].copy_from_slice(&inc.stress[..ns]);
+        let mut worst = 0.0f64;
+        for (scheme, passed) in self.schemes.iter().zip(&inc.schemes) {
+            if let Some(k) = self.schemes.iter().position(|s| s == scheme) {
+                if let (Some(p), true) = (passed, k < RECORD_SCHEMES) {
+                    record.worst[k] = p.error;
+                }
+            }
+            let Some(s) = self.summary.iter_mut().find(|s| s.scheme == *scheme) else { continue };
+            match passed {
+                Some(p) => {
+                    s.checks += 1;
+                    s.worst_norm_error = s.worst_norm_error.max(p.norm_error);
+                    s.worst_entry_error = s.worst_entry_error.max(p.worst_entry_error);
+                    worst = worst.max(p.error);
+                }
+                None => s.skipped += 1,
+            }
+        }
+        let b = self.branch(inc.branch, inc.state_changed);
+        b.increments += 1;
+        b.worst_error = b.worst_error.max(worst);
+        self.state_ever_changed |= inc.state_changed;
+        self.records.push(record);
+    }
+
+    /// The summary of a branch, made when first reached.
+    fn branch(&mut self, reported_branch: Option<i32>, state_changed: bool) -> &mut BranchSummary {
+        match self
+            .branches
+            .iter()
+            .position(|b| b.reported_branch == reported_branch && b.state_changed == state_changed)
+        {
+            Some(k) => &mut self.branches[k],
+            None => {
+                self.branches.push(BranchSummary {
+                    branch: super::branch_label(reported_branch, state_changed),
+                    reported_branch,
+                    state_changed,
+                    increments: 0,
+                    failed: 0,
+                    worst_error: 0.0,
+                });
+                self.branches.last_mut().expect("just pushed")
+            }
         }
     }
 
