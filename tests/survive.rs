@@ -450,3 +450,51 @@ fn the_worker_dies_with_its_parent() {
     wait_until("the worker follows its parent", || workers_of(pid).is_empty());
     wait_until("the worker removes its folder", || !folder.exists());
 }
+
+/// A check that finishes gives the same exit code, the same terminal report and the same JSON
+/// report with `--isolate` as without it (the worker hands its verdict, or with `--json` its
+/// whole report, to the parent), for a routine that passes and one that fails.
+#[test]
+fn an_isolated_check_that_finishes_reports_what_the_plain_check_reports() {
+    let j2 = build("isolate-j2", "fortran-shim/examples/c/j2.c");
+    let zoo = build("isolate-zoo-j2", "fortran-shim/examples/c/zoo_j2.c");
+    for (lib, symbol, code) in [(&j2, "c_j2", 0), (&zoo, "c_j2_shear_factor", 1)] {
+        let d = scratch(&format!("isolate-same-{symbol}"));
+        let m = d.join("m.json");
+        std::fs::write(
+            &m,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 13, "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] }},
+  "path": {{ "shape": "tension-shear", "peak": 0.004, "steps": 8 }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        let run = |isolate: bool, json: Option<&Path>| {
+            let mut c = bin();
+            c.arg("check").arg(&m).args(["-q", "--jobs", "1"]).stdin(Stdio::null());
+            if isolate {
+                c.arg("--isolate");
+            }
+            if let Some(j) = json {
+                c.arg("--json").arg(j);
+            }
+            output(&mut c)
+        };
+        let (plain, isolated) = (run(false, None), run(true, None));
+        assert_eq!(plain.status.code(), Some(code), "{symbol}: {}", text(&plain));
+        assert_eq!(isolated.status.code(), Some(code), "{symbol} isolated: {}", text(&isolated));
+        assert_eq!(
+            String::from_utf8_lossy(&plain.stdout),
+            String::from_utf8_lossy(&isolated.stdout),
+            "{symbol}: the terminal reports differ"
+        );
+        let (a, b) = (d.join("plain.json"), d.join("isolated.json"));
+        let (pa, pb) = (run(false, Some(&a)), run(true, Some(&b)));
+        assert_eq!((pa.status.code(), pb.status.code()), (Some(code), Some(code)), "{symbol}");
+        let read = |p: &Path| -> Value { serde_json::from_slice(&std::fs::read(p).unwrap()).unwrap() };
+        let (ja, jb) = (read(&a), read(&b));
+        assert_eq!(ja, jb, "{symbol}: the JSON reports differ");
+        assert!(ja["records"].as_array().is_some_and(|r| r.len() == 8), "{symbol}: {}", ja["records"]);
+    }
+}

@@ -6,7 +6,10 @@
 //! The worker and the parent share a record in memory (a file both map, [`SHARED_LEN`]
 //! bytes): a counter the worker raises before every routine call, and the inputs of each
 //! increment's base call. No system call per routine call: the parent reads the counter
-//! every 10 ms and the inputs when the worker has died.
+//! every 10 ms (and at once when the worker's output ends) and the inputs when the worker has
+//! died. The worker's JSON report is all the parent reads of a finished check; without
+//! `--json` it holds only the verdict ([`VERDICT_ONLY_ENV`]), and the worker does not wait for
+//! the disk to write it.
 //!
 //! The worker follows its parent: SIGTERM, SIGINT or SIGHUP to the parent ends the worker and
 //! removes the worker's folder before the parent dies of the signal (exit 128 + signal), and
@@ -28,6 +31,10 @@ use crate::exit;
 pub use crate::survive::HEARTBEAT_ENV;
 /// Environment variable with the parent's process id (the worker follows it).
 pub const PARENT_ENV: &str = "TANCHECK_WORKER_PARENT";
+/// Set for a worker whose parent writes no JSON report: the worker's check report then holds
+/// only its verdict (the parent reads nothing else of a finished check; the readable report
+/// comes from the worker's standard output).
+pub const VERDICT_ONLY_ENV: &str = "TANCHECK_WORKER_VERDICT_ONLY";
 
 /// In the worker, before the routine is loaded: die with the parent, and remove the worker's
 /// folder on SIGTERM, SIGINT or SIGHUP.
@@ -231,13 +238,20 @@ pub fn run_isolated(
         .arg(&report_json)
         .env(HEARTBEAT_ENV, &heartbeat)
         .env(PARENT_ENV, std::process::id().to_string());
+    if json.is_none() {
+        cmd.env(VERDICT_ONLY_ENV, "1");
+    }
     cmd.stdout(Stdio::piped()).stderr(Stdio::piped()).stdin(Stdio::null());
     let mut child = cmd.spawn().context("starting the worker process")?;
     let mut out = child.stdout.take().expect("piped");
     let mut err = child.stderr.take().expect("piped");
+    // The end of the worker's standard output (normally its end) wakes the loop below at
+    // once, instead of at its next look.
+    let (ended, ended_rx) = std::sync::mpsc::channel::<()>();
     let reader = std::thread::spawn(move || {
         let mut s = Vec::new();
         let _ = out.read_to_end(&mut s);
+        let _ = ended.send(());
         s
     });
     let err_reader = std::thread::spawn(move || {
@@ -284,16 +298,25 @@ pub fn run_isolated(
             let _ = child.kill();
             break child.wait()?;
         }
-        std::thread::sleep(Duration::from_millis(10));
+        // Every 10 ms, or at once when the worker's output ends (then in short steps until
+        // the worker is gone: one that closed its output may still run).
+        match ended_rx.recv_timeout(Duration::from_millis(10)) {
+            Err(std::sync::mpsc::RecvTimeoutError::Disconnected) => {
+                std::thread::sleep(Duration::from_micros(200))
+            }
+            Ok(()) | Err(std::sync::mpsc::RecvTimeoutError::Timeout) => {}
+        }
     };
     let stdout = reader.join().unwrap_or_default();
     let stderr = err_reader.join().unwrap_or_default();
     let code = status.code();
-    // The worker's report: complete, last words, or only the "incomplete" marker.
-    let worker_report: Option<serde_json::Value> =
-        std::fs::read(&report_json).ok().and_then(|b| serde_json::from_slice(&b).ok());
-    let complete = worker_report.as_ref().is_some_and(|v| v["verdict"] != "incomplete");
-    let last_words = worker_report.as_ref().filter(|v| v["last_words"] == true);
+    // The worker's report: complete, last words, or only the "incomplete" marker. Read once;
+    // only the few fields the parent needs are decoded (the rest is skipped, not built).
+    let worker_bytes = std::fs::read(&report_json).ok();
+    let worker_report: Option<WorkerReport> =
+        worker_bytes.as_deref().and_then(|b| serde_json::from_slice(b).ok());
+    let complete = worker_report.as_ref().is_some_and(|v| v.verdict != "incomplete");
+    let last_words = worker_report.as_ref().filter(|v| v.last_words == true);
     // Last words end the worker with 3 or 70; with any other status they still mean a fault.
     let finished = killed.is_none()
         && match code {
@@ -312,12 +335,11 @@ pub fn run_isolated(
         }
         std::io::stderr().write_all(&stderr)?;
         if let Some(j) = json {
-            if complete {
-                let bytes = std::fs::read(&report_json)?;
+            if let (true, Some(bytes)) = (complete, &worker_bytes) {
                 if json_to_stdout {
-                    crate::survive::stdout().write_all(&bytes)?;
+                    crate::survive::stdout().write_all(bytes)?;
                 } else {
-                    crate::report::write_atomic(j, &bytes)?;
+                    crate::report::write_atomic(j, bytes)?;
                 }
             }
         }
@@ -326,7 +348,7 @@ pub fn run_isolated(
         use std::os::unix::process::ExitStatusExt;
         let what = match (&killed, code, status.signal()) {
             (Some(k), _, _) => k.clone(),
-            (None, Some(70), _) => match last_words.and_then(|v| v["fault"]["when"].as_str()) {
+            (None, Some(70), _) => match last_words.and_then(|v| v.fault["when"].as_str()) {
                 Some(when) => format!("the routine ended the worker process by calling exit() (a Fortran STOP or a run-time check?), {when}"),
                 None => "the routine ended the worker process by calling exit() (a Fortran STOP or a run-time check?)".to_string(),
             },
@@ -337,7 +359,7 @@ pub fn run_isolated(
         // The call that was running: from the worker's last words (exact), or the base call
         // of the increment the heartbeat last saw.
         let call: Option<CallRecord> = last_words
-            .and_then(|v| serde_json::from_value(v["fault"]["call"].clone()).ok())
+            .and_then(|v| serde_json::from_value(v.fault["call"].clone()).ok())
             .or_else(|| shared.last_call());
         let stdout_text = String::from_utf8_lossy(&stdout);
         let stderr_text = String::from_utf8_lossy(&stderr);
@@ -371,6 +393,18 @@ pub fn run_isolated(
     };
     let _ = std::fs::remove_dir_all(&dir);
     Ok(result)
+}
+
+/// What the parent reads of the worker's JSON report: three fields, whatever their shape;
+/// every other field is skipped, not built.
+#[derive(serde::Deserialize)]
+struct WorkerReport {
+    #[serde(default)]
+    verdict: serde_json::Value,
+    #[serde(default)]
+    last_words: serde_json::Value,
+    #[serde(default)]
+    fault: serde_json::Value,
 }
 
 /// The readable account of a worker that did not finish.

@@ -61,6 +61,14 @@ impl Reporter for Json<'_> {
         }
     }
     fn check(&mut self, report: &Report) -> io::Result<()> {
+        if std::env::var_os(crate::isolate::VERDICT_ONLY_ENV).is_some() {
+            // An `--isolate` worker whose parent writes no JSON report reads only the verdict.
+            #[derive(Serialize)]
+            struct VerdictOnly {
+                verdict: tancheck_core::Verdict,
+            }
+            return self.put(Kind::Check, &VerdictOnly { verdict: report.verdict });
+        }
         self.put(Kind::Check, report)
     }
     fn suite(&mut self, report: &SuiteReport, _context: &SuiteContext) -> io::Result<()> {
