@@ -173,8 +173,7 @@ impl Measurement {
         }
         let soft = self.soft.as_ref()?;
         let mut r = [0.0; 36];
-        r[..n * n].copy_from_slice(&self.returned[..n * n]);
-        conv.tangent_to_mandel(&mut r[..n * n]);
+        conv.tangent_to_mandel_into(&self.returned[..n * n], &mut r[..n * n]);
         let mut out = [None; RECORD_SCHEMES];
         for (k, m) in self.measured.iter().enumerate() {
             match &m.outcome {

@@ -194,6 +194,9 @@ pub struct Convention {
     stress_factor: Vec<f64>,
     /// Mandel factor for each component of a strain-like vector, in routine order.
     strain_factor: Vec<f64>,
+    /// f_σ(i) / f_ε(j) at i + j n: the factor of each tangent entry into Mandel form, worked
+    /// out once (a comparison converts two tangents every increment).
+    tangent_factor: Vec<f64>,
 }
 
 /// A convention that cannot be built.
@@ -252,7 +255,15 @@ impl Convention {
                 (true, ShearMeasure::Engineering) => 1.0 / s2,
             })
             .collect();
-        Ok(Convention { kind, order: order.to_vec(), shear, stress_factor, strain_factor })
+        let (stress_factor, strain_factor): (Vec<f64>, Vec<f64>) = (stress_factor, strain_factor);
+        let n = order.len();
+        let mut tangent_factor = vec![0.0; n * n];
+        for j in 0..n {
+            for i in 0..n {
+                tangent_factor[i + j * n] = stress_factor[i] / strain_factor[j];
+            }
+        }
+        Ok(Convention { kind, order: order.to_vec(), shear, stress_factor, strain_factor, tangent_factor })
     }
 
     /// Parse an order given as labels, e.g. `["11","22","33","12","13","23"]`.
@@ -330,11 +341,17 @@ impl Convention {
     /// A column-major routine tangent (∂σᵢ/∂Δεⱼ) → Mandel form, in place:
     /// C_M(i,j) = f_σ(i) C(i,j) / f_ε(j).
     pub fn tangent_to_mandel(&self, t: &mut [f64]) {
-        let n = self.ncomp();
-        for j in 0..n {
-            for i in 0..n {
-                t[i + j * n] *= self.stress_factor[i] / self.strain_factor[j];
-            }
+        let nn = self.ncomp() * self.ncomp();
+        for (x, f) in t[..nn].iter_mut().zip(&self.tangent_factor[..nn]) {
+            *x *= f;
+        }
+    }
+
+    /// [`Convention::tangent_to_mandel`] of `t` into `out` (both n × n).
+    pub fn tangent_to_mandel_into(&self, t: &[f64], out: &mut [f64]) {
+        let nn = self.ncomp() * self.ncomp();
+        for ((o, x), f) in out[..nn].iter_mut().zip(&t[..nn]).zip(&self.tangent_factor[..nn]) {
+            *o = x * f;
         }
     }
 
