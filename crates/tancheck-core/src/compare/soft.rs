@@ -77,17 +77,21 @@ fn frobenius(m: &[f64], n: usize) -> f64 {
 /// The softest eigen-directions of the symmetric part of `m` (Frobenius norm `norm`), padded
 /// to 6 × 6 with a stiff diagonal so the padding is never the softest.
 fn softest_of(m: &[f64], n: usize, norm: f64) -> [Vec6; SOFT_EIGEN] {
+    // m padded with zeros, then its symmetric part over the fixed 6 × 6 (loops the compiler
+    // unrolls), then the stiff diagonal.
+    let n = n.min(6);
+    let mut t: Mat6 = [[0.0; 6]; 6];
+    for (j, c) in t.iter_mut().enumerate().take(n) {
+        c[..n].copy_from_slice(&m[j * n..(j + 1) * n]);
+    }
     let mut s: Mat6 = [[0.0; 6]; 6];
-    for i in 0..6 {
-        for j in 0..6 {
-            s[j][i] = if i < n && j < n {
-                0.5 * (m[i + j * n] + m[j + i * n])
-            } else if i == j {
-                10.0 * norm
-            } else {
-                0.0
-            };
+    for j in 0..6 {
+        for i in 0..6 {
+            s[j][i] = 0.5 * (t[j][i] + t[i][j]);
         }
+    }
+    for (i, c) in s.iter_mut().enumerate().skip(n) {
+        c[i] = 10.0 * norm;
     }
     softest_directions(&s)
 }

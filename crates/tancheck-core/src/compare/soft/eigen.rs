@@ -32,7 +32,8 @@ pub(super) struct Eigen6 {
 
 /// The eigenvalues and orthonormal eigenvectors of the symmetric matrix `a`. The lower
 /// triangle is used (the upper one is taken as its mirror); a NaN or infinity anywhere gives
-/// NaN eigenvalues and the unit vectors.
+/// NaN eigenvalues and the unit vectors. Not inlined, so a profile shows its cost apart.
+#[inline(never)]
 pub(super) fn symmetric_eigen6(a: &Mat6) -> Eigen6 {
     let mut w = [[0.0; N]; N];
     let mut big = 0.0f64;
@@ -79,10 +80,13 @@ fn power_of_two_near(x: f64) -> f64 {
 /// Loan, Algorithm 8.3.1). Returns the diagonal of T, its subdiagonal (`e[k]` couples rows k
 /// and k + 1; the last entry is unused) and Q (columns).
 fn tridiagonalize(mut a: Mat6) -> ([f64; N], [f64; N], Mat6) {
-    let mut q = identity();
+    // The Householder vectors and their β, kept for the accumulation of Q below (β = 0: no
+    // reflection in that column).
+    let mut hv = [[0.0; N]; N - 2];
+    let mut hb = [0.0; N - 2];
     for k in 0..N - 2 {
         // The Householder vector v of column k below the diagonal: (I − β v vᵀ) x = α e₁.
-        let mut v = [0.0; N];
+        let v = &mut hv[k];
         let mut tail = 0.0;
         for i in k + 2..N {
             v[i] = a[k][i];
@@ -95,12 +99,13 @@ fn tridiagonalize(mut a: Mat6) -> ([f64; N], [f64; N], Mat6) {
         let alpha = -(x0 * x0 + tail).sqrt().copysign(x0);
         v[k + 1] = x0 - alpha;
         let beta = 2.0 / (v[k + 1] * v[k + 1] + tail);
+        hb[k] = beta;
         // The trailing block A₂₂ ← H A₂₂ H = A₂₂ − v wᵀ − w vᵀ with p = β A₂₂ v and
         // w = p − (β pᵀv / 2) v.
         let mut p = [0.0; N];
-        for (j, vj) in v.iter().enumerate().skip(k + 1) {
+        for j in k + 1..N {
             for i in k + 1..N {
-                p[i] += a[j][i] * vj;
+                p[i] += a[j][i] * v[j];
             }
         }
         let mut pv = 0.0;
@@ -113,8 +118,10 @@ fn tridiagonalize(mut a: Mat6) -> ([f64; N], [f64; N], Mat6) {
             p[i] -= half * v[i];
         }
         for j in k + 1..N {
-            for i in k + 1..N {
-                a[j][i] -= v[i] * p[j] + p[i] * v[j];
+            for i in j..N {
+                let x = a[j][i] - (v[i] * p[j] + p[i] * v[j]);
+                a[j][i] = x;
+                a[i][j] = x;
             }
         }
         a[k][k + 1] = alpha;
@@ -123,15 +130,24 @@ fn tridiagonalize(mut a: Mat6) -> ([f64; N], [f64; N], Mat6) {
             a[k][i] = 0.0;
             a[i][k] = 0.0;
         }
-        // Q ← Q H: each row r of Q loses β (r · v) vᵀ.
-        for r in 0..N {
-            let mut rv = 0.0;
-            for (j, vj) in v.iter().enumerate().skip(k + 1) {
-                rv += q[j][r] * vj;
+    }
+    // Q = H₀ H₁ … H₃, accumulated from the last reflection back ("backward accumulation",
+    // Golub & Van Loan, chapter 5; from memory as to the section): after H_k … H₃ only rows
+    // and columns k + 1.. differ from the identity, so H_k touches those columns only.
+    let mut q = identity();
+    for k in (0..N - 2).rev() {
+        let (v, beta) = (&hv[k], hb[k]);
+        if beta == 0.0 {
+            continue;
+        }
+        for c in k + 1..N {
+            let mut vq = 0.0;
+            for i in k + 1..N {
+                vq += v[i] * q[c][i];
             }
-            rv *= beta;
-            for (j, vj) in v.iter().enumerate().skip(k + 1) {
-                q[j][r] -= rv * vj;
+            vq *= beta;
+            for i in k + 1..N {
+                q[c][i] -= vq * v[i];
             }
         }
     }
@@ -181,7 +197,12 @@ fn qr_iterate(d: &mut [f64; N], e: &mut [f64; N], v: &mut Mat6) {
         let mut x = d[lo] - mu;
         let mut z = e[lo];
         for k in lo..hi {
-            let r = x.hypot(z);
+            // The matrix is scaled to entries of order one, so the squares cannot overflow; where
+            // they underflow, hypot keeps the tiny rotation exact.
+            let r = match (x * x + z * z).sqrt() {
+                r if r > 1e-150 => r,
+                _ => x.hypot(z),
+            };
             let (c, s) = if r == 0.0 { (1.0, 0.0) } else { (x / r, -z / r) };
             if k > lo {
                 e[k - 1] = r;
