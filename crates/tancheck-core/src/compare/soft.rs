@@ -6,9 +6,14 @@
 //! tangent, so a check finds them once per increment, from its sharpest numerical tangent, and
 //! measures every scheme's comparison along the same ones ([`SoftDirections::of`]); a
 //! comparison made on its own finds them from its own numerical tangent.
+//!
+//! The eigen-directions come from a fixed-size 6 × 6 symmetric eigen-solver on the stack
+//! (`eigen`: Householder reduction and implicit QR steps), once per increment and only on a
+//! matrix the per-thread cache has not seen; everything here is plain arrays, no allocation.
 
-use nalgebra::{SMatrix, SVector};
+mod eigen;
 
+use self::eigen::{symmetric_eigen6, Mat6};
 use crate::convention::Convention;
 
 /// Soft directions count down to this fraction of the numerical tangent's norm (a
@@ -18,7 +23,7 @@ pub const SOFT_FLOOR: f64 = 1e-3;
 /// How many of the softest eigen-directions are measured.
 const SOFT_EIGEN: usize = 2;
 
-type Vec6 = SVector<f64, 6>;
+type Vec6 = [f64; 6];
 
 /// The directions of the soft-direction measure, unit vectors in Mandel form.
 #[derive(Clone, Copy, Debug)]
@@ -53,12 +58,11 @@ impl SoftDirections {
     /// [`SoftDirections::of`] for a Mandel-form `m` (n × n, column-major) and direction.
     pub(super) fn of_mandel(m: &[f64], n: usize, direction: Option<&[f64]>) -> SoftDirections {
         let increment = direction.and_then(|d| {
-            let mut v = Vec6::zeros();
-            for i in 0..n.min(d.len()) {
-                v[i] = d[i];
-            }
-            let l = v.norm();
-            (l > 0.0 && l.is_finite()).then(|| v / l)
+            let mut v: Vec6 = [0.0; 6];
+            let k = n.min(d.len()).min(6);
+            v[..k].copy_from_slice(&d[..k]);
+            let l = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+            (l > 0.0 && l.is_finite()).then(|| v.map(|x| x / l))
         });
         let norm = frobenius(m, n);
         let usable = n > 0 && m.len() >= n * n && norm > 0.0 && norm.is_finite();
@@ -73,30 +77,35 @@ fn frobenius(m: &[f64], n: usize) -> f64 {
 /// The softest eigen-directions of the symmetric part of `m` (Frobenius norm `norm`), padded
 /// to 6 × 6 with a stiff diagonal so the padding is never the softest.
 fn softest_of(m: &[f64], n: usize, norm: f64) -> [Vec6; SOFT_EIGEN] {
-    let mut s = SMatrix::<f64, 6, 6>::zeros();
-    for i in 0..6 {
-        for j in 0..6 {
-            s[(i, j)] = if i < n && j < n {
-                0.5 * (m[i + j * n] + m[j + i * n])
-            } else if i == j {
-                10.0 * norm
-            } else {
-                0.0
-            };
+    // m padded with zeros, then its symmetric part over the fixed 6 × 6 (loops the compiler
+    // unrolls), then the stiff diagonal.
+    let n = n.min(6);
+    let mut t: Mat6 = [[0.0; 6]; 6];
+    for (j, c) in t.iter_mut().enumerate().take(n) {
+        c[..n].copy_from_slice(&m[j * n..(j + 1) * n]);
+    }
+    let mut s: Mat6 = [[0.0; 6]; 6];
+    for j in 0..6 {
+        for i in 0..6 {
+            s[j][i] = 0.5 * (t[j][i] + t[i][j]);
         }
+    }
+    for (i, c) in s.iter_mut().enumerate().skip(n) {
+        c[i] = 10.0 * norm;
     }
     softest_directions(&s)
 }
 
-/// The eigenvectors of the symmetric 6 × 6 matrix `s` with the [`SOFT_EIGEN`] smallest
-/// |eigenvalues|, softest first.
+/// The eigenvectors of the symmetric 6 × 6 matrix `s` (columns) with the [`SOFT_EIGEN`]
+/// smallest |eigenvalues|, softest first; equal |eigenvalues| in the order the eigen-solver
+/// left them (a pure function of the bits of `s`), so ties are broken the same way every time.
 ///
 /// A check meets the same matrix again and again (the complex-step tangent of an elastic
 /// increment is the same to the bit in every such increment), so the last few answers are
 /// kept per thread, keyed by the bits of `s`: a repeated matrix costs a comparison of its
 /// entries instead of an eigen-decomposition, and gets the very vectors the decomposition
 /// gave (the result does not depend on the cache, nor on the thread).
-fn softest_directions(s: &SMatrix<f64, 6, 6>) -> [Vec6; SOFT_EIGEN] {
+fn softest_directions(s: &Mat6) -> [Vec6; SOFT_EIGEN] {
     use std::cell::RefCell;
     type Entry = ([u64; 36], [Vec6; SOFT_EIGEN]);
     /// Matrices remembered per thread (a check alternates between a few schemes).
@@ -105,17 +114,17 @@ fn softest_directions(s: &SMatrix<f64, 6, 6>) -> [Vec6; SOFT_EIGEN] {
         static SEEN: RefCell<(usize, [Option<Entry>; KEEP])> = const { RefCell::new((0, [None; KEEP])) };
     }
     let mut key = [0u64; 36];
-    for (k, x) in key.iter_mut().zip(s.iter()) {
+    for (k, x) in key.iter_mut().zip(s.iter().flatten()) {
         *k = x.to_bits();
     }
     let hit = SEEN.with(|c| c.borrow().1.iter().flatten().find(|(k, _)| *k == key).map(|(_, v)| *v));
     if let Some(v) = hit {
         return v;
     }
-    let eig = s.symmetric_eigen();
+    let eig = symmetric_eigen6(s);
     let mut idx = [0usize, 1, 2, 3, 4, 5];
-    idx.sort_by(|&a, &b| eig.eigenvalues[a].abs().total_cmp(&eig.eigenvalues[b].abs()));
-    let v: [Vec6; SOFT_EIGEN] = std::array::from_fn(|k| eig.eigenvectors.column(idx[k]).into_owned());
+    idx.sort_by(|&a, &b| eig.values[a].abs().total_cmp(&eig.values[b].abs()).then(a.cmp(&b)));
+    let v: [Vec6; SOFT_EIGEN] = std::array::from_fn(|k| eig.vectors[idx[k]]);
     SEEN.with(|c| {
         let mut c = c.borrow_mut();
         let at = c.0;
