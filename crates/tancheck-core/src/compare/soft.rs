@@ -156,19 +156,25 @@ pub(super) fn soft_error_along(r: &[f64], m: &[f64], n: usize, dirs: &SoftDirect
         return (0.0, "");
     }
     let floor = SOFT_FLOOR * norm;
-    // Both matrices padded to 6 × 6 with zeros (fixed-size loops the compiler unrolls; the
-    // padding adds exact zeros to every sum).
-    let (mut rp, mut mp) = ([[0.0f64; 6]; 6], [[0.0f64; 6]; 6]);
-    for j in 0..n {
-        rp[j][..n].copy_from_slice(&r[j * n..(j + 1) * n]);
-        mp[j][..n].copy_from_slice(&m[j * n..(j + 1) * n]);
-    }
+    // Both matrices as 6 × 6, column-major: a 3D tangent as it is, a smaller one padded with
+    // zeros (fixed-size loops the compiler unrolls; the padding adds exact zeros to every sum).
+    let (mut rb, mut mb) = ([0.0f64; 36], [0.0f64; 36]);
+    let (rp, mp): (&[f64; 36], &[f64; 36]) = match (r[..n * n].try_into(), m[..n * n].try_into()) {
+        (Ok(r6), Ok(m6)) => (r6, m6),
+        _ => {
+            for j in 0..n {
+                rb[j * 6..j * 6 + n].copy_from_slice(&r[j * n..(j + 1) * n]);
+                mb[j * 6..j * 6 + n].copy_from_slice(&m[j * n..(j + 1) * n]);
+            }
+            (&rb, &mb)
+        }
+    };
     let along = |d: &Vec6| {
         let (mut a, mut b) = ([0.0f64; 6], [0.0f64; 6]);
         for j in 0..6 {
             for i in 0..6 {
-                a[i] += rp[j][i] * d[j];
-                b[i] += mp[j][i] * d[j];
+                a[i] += rp[j * 6 + i] * d[j];
+                b[i] += mp[j * 6 + i] * d[j];
             }
         }
         let (mut dr, mut dm) = (0.0, 0.0);
