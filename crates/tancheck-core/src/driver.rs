@@ -1,9 +1,11 @@
 //! The material-point driver: holds the start state of an increment and every buffer a
 //! check needs, makes the base call and the perturbed calls, and advances along a path.
 //!
-//! All buffers are allocated once, when the driver is made. A perturbed call copies the
-//! increment into a scratch buffer, perturbs one entry and calls the routine with the same
-//! read-only start state; outputs go to scratch buffers. Nothing is allocated per call.
+//! All buffers are allocated once, when the driver is made. The increment is kept twice more,
+//! as the scratch copy a perturbed call moves and as the complex copy the twin reads; both are
+//! written whenever the increment changes, so that a perturbed call moves one entry, calls the
+//! routine with the same read-only start state and puts the entry back. Outputs go to scratch
+//! buffers. Nothing is allocated or copied per call.
 
 use num_complex::Complex64;
 
@@ -111,7 +113,10 @@ pub struct Driver {
     pub minus: Outputs<f64>,
     /// Outputs of the last complex call.
     pub cplx: Outputs<Complex64>,
+    /// The increment as the perturbed calls pass it: equal to `dstrain` between calls.
     scratch_dstrain: Vec<f64>,
+    /// Complex copies of the inputs; their `dstrain` equals `dstrain` (imaginary parts zero)
+    /// between calls.
     complex_inputs: ComplexInputs,
 }
 
@@ -179,6 +184,7 @@ impl Driver {
     pub fn set_increment(&mut self, dstrain: &[f64], dtemp: f64, dtime: f64) {
         self.dstrain.copy_from_slice(dstrain);
         self.full_dstrain.copy_from_slice(dstrain);
+        self.dstrain_changed();
         self.dtemp = dtemp;
         self.dtime = dtime;
         self.increment += 1;
@@ -196,6 +202,7 @@ impl Driver {
     pub fn set_increment_keep_count(&mut self, dstrain: &[f64], dtemp: f64) {
         self.dstrain.copy_from_slice(dstrain);
         self.full_dstrain.copy_from_slice(dstrain);
+        self.dstrain_changed();
         self.dtemp = dtemp;
     }
 
@@ -208,6 +215,7 @@ impl Driver {
     pub fn set_dstrain(&mut self, dstrain: &[f64]) {
         self.dstrain.copy_from_slice(dstrain);
         self.full_dstrain.copy_from_slice(dstrain);
+        self.dstrain_changed();
     }
 
     /// Scale the strain increment to `s` times the one set by [`Driver::set_increment`]
@@ -215,6 +223,16 @@ impl Driver {
     pub fn rescale(&mut self, s: f64) {
         for (d, f) in self.dstrain.iter_mut().zip(&self.full_dstrain) {
             *d = s * f;
+        }
+        self.dstrain_changed();
+    }
+
+    /// The increment changed: its scratch and complex copies follow (once per change, not per
+    /// call).
+    fn dstrain_changed(&mut self) {
+        self.scratch_dstrain.copy_from_slice(&self.dstrain);
+        for (c, &d) in self.complex_inputs.dstrain.iter_mut().zip(&self.dstrain) {
+            *c = Complex64::new(d, 0.0);
         }
     }
 
@@ -251,10 +269,9 @@ impl Driver {
     /// A real call with the increment moved by `h` along `dir`; results in `self.plus` when
     /// `h > 0`, else in `self.minus`.
     pub fn perturbed_call(&mut self, caller: &mut Caller<'_>, dir: Direction, h: f64) -> Result<(), Fault> {
-        self.scratch_dstrain.copy_from_slice(&self.dstrain);
         let mut dtemp = self.dtemp;
         match dir {
-            Direction::Strain(j) => self.scratch_dstrain[j] += h,
+            Direction::Strain(j) => self.scratch_dstrain[j] = self.dstrain[j] + h,
             Direction::Temperature => dtemp += h,
         }
         let out = if h > 0.0 { &mut self.plus } else { &mut self.minus };
@@ -269,14 +286,16 @@ impl Driver {
             increment: self.increment,
             want_tangent: false,
         };
-        caller.call(&input, &mut out.view())
+        let r = caller.call(&input, &mut out.view());
+        // Back to the increment as set, whatever the call did.
+        if let Direction::Strain(j) = dir {
+            self.scratch_dstrain[j] = self.dstrain[j];
+        }
+        r
     }
 
     /// A complex call with imaginary part `h` along `dir`; results in `self.cplx`.
     pub fn complex_call(&mut self, caller: &mut Caller<'_>, dir: Direction, h: f64) -> Result<(), Fault> {
-        for i in 0..self.n {
-            self.complex_inputs.dstrain[i] = Complex64::new(self.dstrain[i], 0.0);
-        }
         let mut dtemp = Complex64::new(self.dtemp, 0.0);
         match dir {
             Direction::Strain(j) => self.complex_inputs.dstrain[j].im = h,
@@ -293,7 +312,12 @@ impl Driver {
             increment: self.increment,
             want_tangent: false,
         };
-        caller.call_complex(&input, &mut self.cplx.view())
+        let r = caller.call_complex(&input, &mut self.cplx.view());
+        // Back to the increment as set, whatever the call did.
+        if let Direction::Strain(j) = dir {
+            self.complex_inputs.dstrain[j].im = 0.0;
+        }
+        r
     }
 
     /// Accept the base call: its end state becomes the next start state.
@@ -305,5 +329,144 @@ impl Driver {
         self.start.state.copy_from_slice(&self.base.state);
         self.start.temp += self.dtemp;
         self.start.time += self.dtime;
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    //! The increment a perturbed call passes: the one set, moved by h in one entry only, and
+    //! back to the one set after the call (also after a failed one), for the real and the
+    //! complex calls, whatever set the increment last.
+    use super::*;
+    use crate::convention::{Convention, PointKind, ShearMeasure};
+    use crate::routine::{CallInput, CallOutput, ComplexRoutine, Routine};
+
+    /// Records the increment of every call; fails every call while `fail` is set. On entry it
+    /// notes whether the stress and state arrived as NaN (the prefill).
+    struct Recorder {
+        info: RoutineInfo,
+        fail: bool,
+        real: Vec<(Vec<f64>, f64)>,
+        complex: Vec<(Vec<Complex64>, Complex64)>,
+        prefilled: Vec<bool>,
+    }
+
+    impl Recorder {
+        fn new() -> Recorder {
+            let info = RoutineInfo {
+                name: "recorder".into(),
+                convention: Convention::new(PointKind::Solid3d, ShearMeasure::Engineering),
+                nstate: 2,
+                nprop: 1,
+            };
+            Recorder { info, fail: false, real: vec![], complex: vec![], prefilled: vec![] }
+        }
+        fn end(&self, outcome: &mut Outcome) -> Result<(), Fault> {
+            if self.fail {
+                outcome.status = crate::routine::status::FAILED;
+            }
+            crate::routine::status_fault(outcome)
+        }
+    }
+
+    impl Routine for Recorder {
+        fn info(&self) -> &RoutineInfo {
+            &self.info
+        }
+        fn call(&mut self, i: &CallInput<'_, f64>, o: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+            self.prefilled.push(o.stress.iter().chain(o.state.iter()).all(|x| x.is_nan()));
+            self.real.push((i.dstrain.to_vec(), i.temp[1]));
+            o.stress.fill(1.0);
+            o.state.fill(0.0);
+            self.end(o.outcome)
+        }
+        fn complex(&mut self) -> Option<&mut dyn ComplexRoutine> {
+            Some(self)
+        }
+    }
+
+    impl ComplexRoutine for Recorder {
+        fn call_complex(
+            &mut self,
+            i: &CallInput<'_, Complex64>,
+            o: &mut CallOutput<'_, Complex64>,
+        ) -> Result<(), Fault> {
+            self.prefilled.push(o.stress.iter().chain(o.state.iter()).all(|x| x.re.is_nan()));
+            self.complex.push((i.dstrain.to_vec(), i.temp[1]));
+            o.stress.fill(Complex64::new(1.0, 0.0));
+            o.state.fill(Complex64::new(0.0, 0.0));
+            self.end(o.outcome)
+        }
+    }
+
+    fn moved(d: &[f64], j: usize, h: f64) -> Vec<f64> {
+        let mut m = d.to_vec();
+        m[j] += h;
+        m
+    }
+
+    fn cx(d: &[f64], j: Option<(usize, f64)>) -> Vec<Complex64> {
+        let mut c: Vec<Complex64> = d.iter().map(|&x| Complex64::new(x, 0.0)).collect();
+        if let Some((j, h)) = j {
+            c[j].im = h;
+        }
+        c
+    }
+
+    #[test]
+    fn perturbed_calls_move_one_entry_and_put_it_back() {
+        let mut r = Recorder::new();
+        let info = r.info.clone();
+        let mut d = Driver::new(&info, &[1.0], PointState::zero(&info, 20.0)).unwrap();
+        let first = [1e-3, -2e-3, 3e-4, 0.0, 5e-4, -7e-4];
+        d.set_increment(&first, 1.5, 0.1);
+        let h = 1.0e-7;
+        {
+            let mut c = Caller::new(&mut r);
+            d.perturbed_call(&mut c, Direction::Strain(2), h).unwrap();
+            d.perturbed_call(&mut c, Direction::Strain(2), -h).unwrap();
+            d.complex_call(&mut c, Direction::Strain(4), 1e-30).unwrap();
+            d.perturbed_call(&mut c, Direction::Temperature, h).unwrap();
+            d.complex_call(&mut c, Direction::Temperature, 1e-30).unwrap();
+            d.base_call(&mut c).unwrap();
+        }
+        assert_eq!(r.real[0], (moved(&first, 2, h), 1.5));
+        assert_eq!(r.real[1], (moved(&first, 2, -h), 1.5));
+        assert_eq!(r.complex[0], (cx(&first, Some((4, 1e-30))), Complex64::new(1.5, 0.0)));
+        assert_eq!(r.real[2], (first.to_vec(), 1.5 + h));
+        assert_eq!(r.complex[1], (cx(&first, None), Complex64::new(1.5, 1e-30)));
+        assert_eq!(r.real[3], (first.to_vec(), 1.5));
+        assert!(r.prefilled.iter().all(|&p| p), "stress and state arrive as NaN: {:?}", r.prefilled);
+
+        // A failed call puts the entry back too.
+        r.fail = true;
+        {
+            let mut c = Caller::new(&mut r);
+            assert!(d.perturbed_call(&mut c, Direction::Strain(0), h).is_err());
+            assert!(d.complex_call(&mut c, Direction::Strain(1), 1e-30).is_err());
+        }
+        r.fail = false;
+        // Every way of setting the increment carries over to the perturbed calls.
+        let second = [2e-3, 0.0, -1e-3, 4e-4, 0.0, 1e-4];
+        type Set = fn(&mut Driver, &[f64]);
+        let steps: [(&str, Set); 4] = [
+            ("set_increment", |d, s| d.set_increment(s, 1.5, 0.1)),
+            ("set_increment_keep_count", |d, s| d.set_increment_keep_count(s, 1.5)),
+            ("set_dstrain", |d, s| d.set_dstrain(s)),
+            ("rescale", |d, _| d.rescale(0.5)),
+        ];
+        for (what, set) in steps {
+            set(&mut d, &second);
+            let now = d.dstrain().to_vec();
+            let (nr, nc) = (r.real.len(), r.complex.len());
+            {
+                let mut c = Caller::new(&mut r);
+                d.perturbed_call(&mut c, Direction::Strain(5), h).unwrap();
+                d.complex_call(&mut c, Direction::Strain(3), 1e-30).unwrap();
+            }
+            assert_eq!(r.real[nr].0, moved(&now, 5, h), "after {what}");
+            assert_eq!(r.complex[nc].0, cx(&now, Some((3, 1e-30))), "after {what}");
+        }
+        assert_eq!(d.dstrain(), &second.map(|x| 0.5 * x)[..], "rescale(0.5) halves the increment");
     }
 }

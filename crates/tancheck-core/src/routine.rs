@@ -276,17 +276,21 @@ impl<M: Model> ComplexRoutine for ModelRoutine<M> {
     }
 }
 
-/// A nonzero status as a [`Fault`]. Allocates only on the failure path.
+/// A nonzero status as a [`Fault`]. Allocates only on the failure path (kept out of line,
+/// so that the check of a good call is one comparison where it is inlined).
+#[inline]
 pub fn status_fault(o: &Outcome) -> Result<(), Fault> {
     if o.status == status::OK {
         Ok(())
     } else {
-        Err(Fault::Status {
-            status: o.status,
-            message: o.message_text(),
-            largest_fraction: o.largest_fraction,
-        })
+        Err(status_fault_of(o))
     }
+}
+
+#[cold]
+#[inline(never)]
+fn status_fault_of(o: &Outcome) -> Fault {
+    Fault::Status { status: o.status, message: o.message_text(), largest_fraction: o.largest_fraction }
 }
 
 /// The one way the checker calls a routine: counts every call.
@@ -330,9 +334,13 @@ impl<'r> Caller<'r> {
         self.routine.guard_next_call_fully()
     }
 
-    /// A real call, outputs pre-filled with NaN and the outcome reset. A tangent the call does
-    /// not ask for (`want_tangent` off) is left as it was: the routine need not write it, and
-    /// the check never reads it (36 stores fewer in each perturbed call).
+    /// A real call, outputs pre-filled with NaN and the outcome reset, so that an output the
+    /// routine leaves unwritten shows. A call that does not ask for the tangent (`want_tangent`
+    /// off: the perturbed calls of a derivative scheme) has only its stress and state filled:
+    /// the stress is all the check reads back from such a call, and the state is what a routine
+    /// may read before it writes (`state[i] += ...`), which must find NaN and not the previous
+    /// call's values. Its tangent, ∂σ/∂T and energies are left as they were: the routine need
+    /// not write them and nothing reads them (44 stores fewer in each perturbed call).
     #[inline]
     pub fn call(
         &mut self,
@@ -344,8 +352,8 @@ impl<'r> Caller<'r> {
         self.routine.call(input, output)
     }
 
-    /// A complex call, outputs pre-filled with NaN (a tangent not asked for as in
-    /// [`Caller::call`]). `Fault::Unsupported` without a twin.
+    /// A complex call, outputs pre-filled with NaN (those of a call without the tangent as
+    /// in [`Caller::call`]). `Fault::Unsupported` without a twin.
     #[inline]
     pub fn call_complex(
         &mut self,
@@ -361,14 +369,15 @@ impl<'r> Caller<'r> {
     }
 }
 
-fn prefill<S: Copy>(o: &mut CallOutput<'_, S>, nan: S, tangent: bool) {
+#[inline]
+fn prefill<S: Copy>(o: &mut CallOutput<'_, S>, nan: S, all: bool) {
     o.stress.fill(nan);
     o.state.fill(nan);
-    if tangent {
+    if all {
         o.tangent.fill(nan);
+        o.dstress_dtemp.fill(nan);
+        o.energy[0] = nan;
+        o.energy[1] = nan;
     }
-    o.dstress_dtemp.fill(nan);
-    o.energy[0] = nan;
-    o.energy[1] = nan;
     *o.outcome = Outcome::default();
 }

@@ -167,6 +167,7 @@ impl LibraryRoutine {
         self.findings.extra_calls
     }
 
+    #[inline(always)]
     fn tc_call<S>(&self, input: &CallInput<'_, S>) -> TcCall {
         TcCall {
             abi_version: ABI_VERSION,
@@ -183,23 +184,36 @@ impl LibraryRoutine {
     /// The lengths every call passes must be the ones announced in `tc_call`: the routine
     /// trusts them. A few integer comparisons, checked in release builds too, because a
     /// wrong length here would let the routine write past a buffer.
+    /// Every comparison is made (`|` of differences, no short-circuit branches): one branch,
+    /// to the cold panic.
+    #[inline(always)]
     fn check_lengths<S>(&self, input: &CallInput<'_, S>, output: &CallOutput<'_, S>) {
         let (n, ns, np) = (self.ncomp, self.nstate, self.nprop);
-        assert!(
-            input.props.len() == np
-                && input.strain.len() == n
-                && input.dstrain.len() == n
-                && input.stress0.len() == n
-                && input.state0.len() == ns
-                && output.stress.len() == n
-                && output.state.len() == ns
-                && output.tangent.len() == n * n
-                && output.dstress_dtemp.len() == n,
+        let off = (input.props.len() ^ np)
+            | (input.strain.len() ^ n)
+            | (input.dstrain.len() ^ n)
+            | (input.stress0.len() ^ n)
+            | (input.state0.len() ^ ns)
+            | (output.stress.len() ^ n)
+            | (output.state.len() ^ ns)
+            | (output.tangent.len() ^ (n * n))
+            | (output.dstress_dtemp.len() ^ n);
+        if off != 0 {
+            self.wrong_lengths();
+        }
+    }
+
+    #[cold]
+    #[inline(never)]
+    fn wrong_lengths(&self) -> ! {
+        let (n, ns, np) = (self.ncomp, self.nstate, self.nprop);
+        panic!(
             "call to `{}` with arrays of the wrong length (expected ncomp = {n}, nstate = {ns}, nproperties = {np})",
             self.info.name
         );
     }
 
+    #[inline(always)]
     fn args<S>(
         &self,
         call: &TcCall,
@@ -259,7 +273,6 @@ impl Routine for LibraryRoutine {
         reset_outcome(output.outcome);
         let call = self.tc_call(input);
         let real = self.real;
-        let known = self.findings.list().len();
         let level = if std::mem::take(&mut self.full_next) { GuardLevel::Full } else { self.guard_level };
         if level == GuardLevel::Off {
             let temp = input.temp;
@@ -268,23 +281,25 @@ impl Routine for LibraryRoutine {
             // the caller of `from_fn_pointers`); every array has the length announced in
             // `call` (check_lengths), and `call`, `temp` outlive the call.
             unsafe { guard::call_real(real, &args) }.map_err(guard::Crash::into_fault)?;
-        } else {
-            self.real_guards
-                .call(
-                    level,
-                    &call,
-                    self.label.as_ptr(),
-                    self.fp_traps,
-                    false,
-                    input,
-                    output,
-                    &mut self.findings,
-                    // SAFETY: as above; the guarded block holds every array at the announced
-                    // length, each followed by its zone.
-                    |args| unsafe { guard::call_real(real, args) },
-                )
-                .map_err(guard::Crash::into_fault)?;
+            // No guards, no findings: the status is all there is to look at.
+            return status_fault(output.outcome);
         }
+        let known = self.findings.list().len();
+        self.real_guards
+            .call(
+                level,
+                &call,
+                self.label.as_ptr(),
+                self.fp_traps,
+                false,
+                input,
+                output,
+                &mut self.findings,
+                // SAFETY: as above; the guarded block holds every array at the announced
+                // length, each followed by its zone.
+                |args| unsafe { guard::call_real(real, args) },
+            )
+            .map_err(guard::Crash::into_fault)?;
         self.new_finding(known)?;
         status_fault(output.outcome)
     }
@@ -340,33 +355,34 @@ impl ComplexRoutine for LibraryRoutine {
         self.check_lengths(input, output);
         reset_outcome(output.outcome);
         let call = self.tc_call(input);
-        let known = self.findings.list().len();
-        match (self.guard_level, self.complex_guards.as_mut()) {
-            (GuardLevel::Light | GuardLevel::Full, Some(guards)) => {
-                guards
-                    .call(
-                        self.guard_level,
-                        &call,
-                        self.label.as_ptr(),
-                        self.fp_traps,
-                        true,
-                        input,
-                        output,
-                        &mut self.findings,
-                        // SAFETY: as in `call`, with the twin's complex signature; Complex64 is
-                        // repr(C) and laid out as C's double _Complex.
-                        |args| unsafe { guard::call_complex(twin, args) },
-                    )
-                    .map_err(guard::Crash::into_fault)?;
-            }
+        let guards = match (self.guard_level, self.complex_guards.as_mut()) {
+            (GuardLevel::Light | GuardLevel::Full, Some(guards)) => guards,
             _ => {
                 let temp = input.temp;
                 let args = self.args(&call, &temp, input, output);
+                // SAFETY: as in `call`, with the twin's complex signature; Complex64 is repr(C)
+                // and laid out as C's double _Complex.
+                unsafe { guard::call_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
+                // No guards, no findings: the status is all there is to look at.
+                return status_fault(output.outcome);
+            }
+        };
+        let known = self.findings.list().len();
+        guards
+            .call(
+                self.guard_level,
+                &call,
+                self.label.as_ptr(),
+                self.fp_traps,
+                true,
+                input,
+                output,
+                &mut self.findings,
                 // SAFETY: as in `call`, with the twin's complex signature; Complex64 is
                 // repr(C) and laid out as C's double _Complex.
-                unsafe { guard::call_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
-            }
-        }
+                |args| unsafe { guard::call_complex(twin, args) },
+            )
+            .map_err(guard::Crash::into_fault)?;
         self.new_finding(known)?;
         status_fault(output.outcome)
     }

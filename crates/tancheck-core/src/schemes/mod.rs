@@ -142,15 +142,16 @@ pub struct Stencil {
 impl Stencil {
     /// Fill `col` with the derivative along the samples' direction, step `h`.
     pub(crate) fn column(&self, at: &mut Samples<'_, '_>, h: f64, col: &mut [f64]) -> Result<(), Fault> {
-        for (p, &(k, w)) in self.points.iter().enumerate() {
-            let stress = at.stress(k * h)?;
-            for (c, s) in col.iter_mut().zip(stress) {
-                // The first point assigns, so that w = ±1 leaves the difference exact.
-                if p == 0 {
-                    *c = w * s;
-                } else {
-                    *c += w * s;
-                }
+        let Some((&(k0, w0), rest)) = self.points.split_first() else {
+            return Ok(());
+        };
+        // The first point assigns, so that w = ±1 leaves the difference exact.
+        for (c, s) in col.iter_mut().zip(at.stress(k0 * h)?) {
+            *c = w0 * s;
+        }
+        for &(k, w) in rest {
+            for (c, s) in col.iter_mut().zip(at.stress(k * h)?) {
+                *c += w * s;
             }
         }
         let div = self.div * h;
