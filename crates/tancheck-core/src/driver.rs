@@ -287,9 +287,19 @@ impl Driver {
             want_tangent: false,
         };
         let r = caller.call(&input, &mut out.view());
-        // Back to the increment as set, whatever the call did.
+        // Back to the increment as set, whatever the call did: the moved entry, and the whole
+        // copy when the routine wrote into its read-only increment (it gets the copy itself
+        // when the guards are off), so that no later call sees what it wrote.
         if let Direction::Strain(j) = dir {
             self.scratch_dstrain[j] = self.dstrain[j];
+        }
+        let differ = self
+            .scratch_dstrain
+            .iter()
+            .zip(&self.dstrain)
+            .fold(0, |a, (x, y)| a | (x.to_bits() ^ y.to_bits()));
+        if differ != 0 {
+            self.scratch_dstrain.copy_from_slice(&self.dstrain);
         }
         r
     }
@@ -313,9 +323,20 @@ impl Driver {
             want_tangent: false,
         };
         let r = caller.call_complex(&input, &mut self.cplx.view());
-        // Back to the increment as set, whatever the call did.
+        // Back to the increment as set, whatever the call did (as in `perturbed_call`).
         if let Direction::Strain(j) = dir {
             self.complex_inputs.dstrain[j].im = 0.0;
+        }
+        let differ = self
+            .complex_inputs
+            .dstrain
+            .iter()
+            .zip(&self.dstrain)
+            .fold(0, |a, (c, x)| a | (c.re.to_bits() ^ x.to_bits()) | c.im.to_bits());
+        if differ != 0 {
+            for (c, &x) in self.complex_inputs.dstrain.iter_mut().zip(&self.dstrain) {
+                *c = Complex64::new(x, 0.0);
+            }
         }
         r
     }
