@@ -205,7 +205,7 @@ fn bench(c: &mut Criterion) {
         let floor = calls as f64 * per_call;
         println!(
             "\nprobe suite: {calls} routine calls; the call floor {:.2} ms ({:.0} ns per call, the C loop on the \
-             suite's path); the suite {:.1} ms: {:.0}x its floor (fastest sample), {:.0}x (median)",
+             suite's path); the suite {:.2} ms: {:.2}x its floor (fastest sample), {:.2}x (median)",
             floor * 1e3,
             per_call * 1e9,
             fastest * 1e3,

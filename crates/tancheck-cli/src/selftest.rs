@@ -22,8 +22,8 @@ mod finite;
 mod jc;
 mod ply;
 
-/// Demo properties for a zoo entry.
-fn props(name: &str) -> Vec<f64> {
+/// Demo properties for a zoo entry (also what tests/compact_records.rs checks the zoo with).
+pub fn props(name: &str) -> Vec<f64> {
     if name.starts_with("j2") || name.starts_with("twin-") {
         vec![210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0]
     } else if name.starts_with("bimodulus") {
@@ -40,7 +40,7 @@ fn props(name: &str) -> Vec<f64> {
 }
 
 /// The path a zoo entry is checked along.
-fn path_for(e: &ZooEntry) -> Path {
+pub fn path_for(e: &ZooEntry) -> Path {
     if e.name.starts_with("bimodulus") {
         // Out and back so the end of increment 4 is exactly ε11 = 0, on the kink.
         let mut p = Path::ramp(Shape::UniaxialStrain, 1e-3, 2, 2);

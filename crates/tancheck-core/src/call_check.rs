@@ -347,31 +347,20 @@ pub fn judge(
     settings: &Settings,
     previous: Option<&[f64]>,
 ) -> Result<CallCheck, Fault> {
-    let Measurement {
-        n,
-        has_twin,
-        returned,
-        returned_dtemp,
-        reported,
-        state_changed,
-        twin_real_gap,
-        dtemp_abs_floor,
-        measured,
-        best_at,
-        soft,
-    } = me;
-    let returned = &returned[..n * n];
-    let returned_dtemp = returned_dtemp.as_ref().map(|d| &d[..n]);
+    let n = me.n;
+    let returned = &me.returned[..n * n];
+    let returned_dtemp = me.returned_dtemp.as_ref().map(|d| &d[..n]);
+    let (measured, soft) = (&me.measured, &me.soft);
     let best: Option<(Scheme, Vec<f64>)> =
-        best_at.map(|b| (measured[b].scheme, measured[b].tangent[..n * n].to_vec()));
+        me.best_at.map(|b| (measured[b].scheme, measured[b].tangent[..n * n].to_vec()));
     let mut checks = Vec::with_capacity(measured.len());
     let mut failed_dtemp: Option<Vec<f64>> = None;
-    for m in &measured {
+    for m in measured {
         let ss = settings.scheme(m.scheme);
         let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
         let numerical = &m.tangent[..n * n];
         let conv = &caller.info().convention;
-        let tangent = match (&m.outcome, &soft) {
+        let tangent = match (&m.outcome, soft) {
             (Some(outcome), _) => outcome.clone(),
             (None, Some(soft)) => {
                 CheckOutcome::Compared(compare_with(conv, returned, numerical, limits, soft))
@@ -380,7 +369,7 @@ pub fn judge(
         };
         let dstress_dtemp = match (returned_dtemp, &m.dtemp) {
             (Some(ret), Some(Ok(col))) => {
-                let c = compare_dtemp_floor(conv, ret, &col[..n], limits, dtemp_abs_floor);
+                let c = compare_dtemp_floor(conv, ret, &col[..n], limits, me.dtemp_abs_floor);
                 if !c.pass && failed_dtemp.is_none() {
                     failed_dtemp = Some(col[..n].to_vec());
                 }
@@ -393,8 +382,8 @@ pub fn judge(
     }
     let non_finite = non_finite_outputs(driver, "");
     let mut out = CallCheck {
-        reported_branch: (reported >= 0).then_some(reported),
-        state_changed,
+        reported_branch: me.reported_branch(),
+        state_changed: me.state_changed,
         checks,
         non_finite,
         diagnosis: None,
@@ -428,14 +417,14 @@ pub fn judge(
             returned,
             dtemp: returned_dtemp.zip(failed_dtemp.as_deref()),
             dtemp_complex,
-            dtemp_floor: dtemp_abs_floor,
+            dtemp_floor: me.dtemp_abs_floor,
             complex,
-            twin_real_gap,
+            twin_real_gap: me.twin_real_gap,
             tangent_checks_pass: out.checks.iter().all(tangent_ok),
             previous,
-            state_changed,
-            reported_branch: reported,
-            has_twin,
+            state_changed: me.state_changed,
+            reported_branch: me.reported,
+            has_twin: me.has_twin,
             failed_tol: out
                 .checks
                 .iter()
