@@ -31,10 +31,7 @@ use crate::exit;
 pub use crate::survive::HEARTBEAT_ENV;
 /// Environment variable with the parent's process id (the worker follows it).
 pub const PARENT_ENV: &str = "TANCHECK_WORKER_PARENT";
-/// Set for a worker whose parent writes no JSON report: the worker's check report then holds
-/// only its verdict (the parent reads nothing else of a finished check; the readable report
-/// comes from the worker's standard output).
-pub const VERDICT_ONLY_ENV: &str = "TANCHECK_WORKER_VERDICT_ONLY";
+pub use crate::worker_env::VERDICT_ONLY_ENV;
 
 /// In the worker, before the routine is loaded: die with the parent, and remove the worker's
 /// folder on SIGTERM, SIGINT or SIGHUP.

@@ -26,6 +26,7 @@ pub mod selftest;
 pub mod session;
 pub mod suite;
 pub mod survive;
+pub mod worker_env;
 
 pub use cli::main_with_args;
 

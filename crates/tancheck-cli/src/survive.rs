@@ -30,9 +30,9 @@ pub const MAX_SECONDS: f64 = 86_400.0;
 pub const DEFAULT_CALL_TIMEOUT: f64 = 30.0;
 /// Default time limit of a whole check, in seconds.
 pub const DEFAULT_SUITE_TIMEOUT: f64 = 600.0;
-/// Environment variable naming an --isolate worker's heartbeat file (the call file is
-/// `<it>.call`); set only in a worker, whose parent watches it (isolate.rs).
-pub const HEARTBEAT_ENV: &str = "TANCHECK_WORKER_HEARTBEAT";
+/// Environment variable naming an --isolate worker's heartbeat file; set only in a worker,
+/// whose parent watches it (isolate.rs).
+pub use crate::worker_env::HEARTBEAT_ENV;
 
 static TOOL_STDOUT: OnceLock<Option<i32>> = OnceLock::new();
 static CHECKING: AtomicBool = AtomicBool::new(false);

@@ -61,7 +61,7 @@ impl Reporter for Json<'_> {
         }
     }
     fn check(&mut self, report: &Report) -> io::Result<()> {
-        if std::env::var_os(crate::isolate::VERDICT_ONLY_ENV).is_some() {
+        if crate::worker_env::verdict_only() {
             // An `--isolate` worker whose parent writes no JSON report reads only the verdict.
             #[derive(Serialize)]
             struct VerdictOnly {

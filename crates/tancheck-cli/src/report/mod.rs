@@ -178,7 +178,7 @@ pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> io::R
         let mut w = io::BufWriter::with_capacity(64 * 1024, f);
         fill(&mut w)?;
         let f = w.into_inner().map_err(|e| e.into_error())?;
-        if std::env::var_os(crate::survive::HEARTBEAT_ENV).is_none() {
+        if !crate::worker_env::in_worker() {
             f.sync_all()?;
         }
         std::fs::rename(&tmp, path)
