@@ -50,13 +50,18 @@ fn c_debug_lib() -> &'static Path {
 }
 
 fn check(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, String) {
-    let d = scratch(symbol);
+    check_along(lib, symbol, "uniaxial-strain", flags)
+}
+
+/// [`check`] along a path of another shape.
+fn check_along(lib: &Path, symbol: &str, shape: &str, flags: &[&str]) -> (Option<i32>, String) {
+    let d = scratch(&format!("{symbol}-{shape}"));
     let m = d.join("m.json");
     std::fs::write(
         &m,
         format!(
             r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
-  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+  "path": {{ "shape": "{shape}", "peak": 0.001, "steps": 3 }} }}"#,
             lib.display()
         ),
     )
@@ -77,6 +82,23 @@ fn memory_misbehaviour_is_reported_by_the_guards() {
     expect("bad_props_overread", &["--guards", "full"], 3, "reads beyond its 2 properties");
     expect("bad_tangent_hole", &[], 3, "left tangent[1] unwritten");
     expect("bad_writes_strain", &[], 3, "wrote to its read-only input strain");
+    expect("bad_scratch_increment", &[], 3, "wrote to its read-only input dstrain");
+}
+
+/// With the guards off a routine works on the check's own buffers. One that uses its
+/// increment as work space after its update (its tangent is the true one) must not change
+/// what the other calls of the increment see: every call gets the increment as set, so the
+/// check passes instead of comparing differences taken around a cleared increment. (A path
+/// whose increments move two components: with one, a difference around the cleared increment
+/// happens to be the right one.)
+#[test]
+fn with_the_guards_off_a_routine_that_writes_its_increment_does_not_move_the_other_calls() {
+    for shape in ["biaxial", "tension-shear"] {
+        let (c, t) =
+            check_along(c_lib(), "bad_scratch_increment", shape, &["--guards", "off", "--jobs", "1"]);
+        assert_eq!(c, Some(0), "{shape}: {t}");
+        assert!(t.contains("verdict: PASS"), "{shape}: {t}");
+    }
 }
 
 // A default check (no options) looks at first calls: the full guards on the first call of a

@@ -168,6 +168,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_null_deref",
             "bad_printf",
             "bad_props_overread",
+            "bad_scratch_increment",
             "bad_sleep",
             "bad_state_overrun",
             "bad_tangent_hole",

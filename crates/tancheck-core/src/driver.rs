@@ -250,12 +250,15 @@ impl Driver {
         floor.max(self.start.temp.abs()).max(self.dtemp.abs())
     }
 
-    /// The call with the unperturbed increment; results in `self.base`.
+    /// The call with the unperturbed increment; results in `self.base`. Like the perturbed
+    /// calls it gets the scratch copy of the increment (the routine works on it directly when
+    /// the guards are off), so what a routine writes into its increment never reaches the
+    /// increment as set, nor the copies the other calls of the increment get.
     pub fn base_call(&mut self, caller: &mut Caller<'_>) -> Result<(), Fault> {
         let input = CallInput {
             props: &self.props,
             strain: &self.start.strain,
-            dstrain: &self.dstrain,
+            dstrain: &self.scratch_dstrain,
             temp: [self.start.temp, self.dtemp],
             stress0: &self.start.stress,
             state0: &self.start.state,
@@ -263,7 +266,23 @@ impl Driver {
             increment: self.increment,
             want_tangent: true,
         };
-        caller.call(&input, &mut self.base.view())
+        let r = caller.call(&input, &mut self.base.view());
+        self.restore_scratch();
+        r
+    }
+
+    /// The scratch copy back to the increment as set when a call wrote into it: a bit
+    /// comparison of its entries, a copy only then.
+    #[inline]
+    fn restore_scratch(&mut self) {
+        let differ = self
+            .scratch_dstrain
+            .iter()
+            .zip(&self.dstrain)
+            .fold(0, |a, (x, y)| a | (x.to_bits() ^ y.to_bits()));
+        if differ != 0 {
+            self.scratch_dstrain.copy_from_slice(&self.dstrain);
+        }
     }
 
     /// A real call with the increment moved by `h` along `dir`; results in `self.plus` when
@@ -293,14 +312,7 @@ impl Driver {
         if let Direction::Strain(j) = dir {
             self.scratch_dstrain[j] = self.dstrain[j];
         }
-        let differ = self
-            .scratch_dstrain
-            .iter()
-            .zip(&self.dstrain)
-            .fold(0, |a, (x, y)| a | (x.to_bits() ^ y.to_bits()));
-        if differ != 0 {
-            self.scratch_dstrain.copy_from_slice(&self.dstrain);
-        }
+        self.restore_scratch();
         r
     }
 

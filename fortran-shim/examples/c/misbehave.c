@@ -32,6 +32,10 @@
  *   bad_props_overread  adds properties[nproperties] to stress[0]              -> "reads beyond its N properties"
  *   bad_tangent_hole    leaves tangent[1] unwritten                 -> "left tangent[1] unwritten"
  *   bad_writes_strain   writes strain[0] (casting const away)       -> "wrote to its read-only input"
+ *   bad_scratch_increment clears dstrain after its update, as a routine using its increment
+ *                       as work space does (casting const away)      -> "wrote to its read-only
+ *                       input dstrain"; with the guards off its own calls never see it, and
+ *                       its (correct) tangent passes
  *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
  *                                                                      identical calls"
  *
@@ -260,6 +264,16 @@ TC_ROUTINE(bad_writes_strain)
     MISBEHAVE_FROM_INCREMENT_2;
     /* Uses the strain as scratch space, as if it were its own. */
     ((tc_real *)strain)[0] = 0.0;
+}
+
+TC_ROUTINE(bad_scratch_increment)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* The update is made; the increment is then used as work space, as if it were its own. */
+    for (int i = 0; i < call->ncomp; ++i) {
+        ((tc_real *)dstrain)[i] = 0.0;
+    }
 }
 
 TC_ROUTINE(bad_hidden_state)
