@@ -317,9 +317,11 @@ pub fn run_isolated(
     // Last words end the worker with 3 or 70; with any other status they still mean a fault.
     let finished = killed.is_none()
         && match code {
-            Some(2) => true,
-            Some(3) => complete,
-            Some(0 | 1) => complete && last_words.is_none(),
+            Some(exit::BAD_INPUT) => true,
+            Some(exit::ROUTINE_FAULT) => complete,
+            Some(exit::PASS | exit::TANGENT_FAILURE | exit::TWIN_NOT_SAFE) => {
+                complete && last_words.is_none()
+            }
             _ => false,
         };
     let json_to_stdout = json.is_some_and(|j| j.as_os_str() == "-");
