@@ -54,6 +54,7 @@
 #if defined(__linux__)
 #include <ucontext.h>
 #include <sys/prctl.h>
+#include <sys/uio.h>
 #endif
 #include <unistd.h>
 
@@ -236,7 +237,8 @@ static int tool_stdout = -1;                   /* tancheck's own standard output
 static char lw_label[512];                     /* routine name for messages outside calls */
 static char lw_head[16384];                    /* the JSON report's opening, from the program */
 static char lw_report[LW_PATH];                /* where the JSON report goes, "" for nowhere */
-static char lw_tmp[LW_PATH];                   /* its temporary name while it is written */
+static char lw_tmp[LW_PATH];                   /* the program's temporary name for it */
+static char lw_own_tmp[LW_PATH + 8];           /* the last words' own temporary name for it */
 static int lw_json_stdout;                     /* the JSON report goes to standard output */
 static char lw_remove[8][LW_PATH];             /* removed on SIGINT/SIGTERM (files, then folders) */
 static int lw_nremove;
@@ -389,6 +391,94 @@ static const char *signal_name(int sig) {
     }
 }
 
+/* ---- another thread's running call, copied ---------------------------------------- */
+
+/* Entries of an array the last words copy and show (as put_array). */
+#define LW_MAX_ENTRIES 4096
+
+/* `n` bytes at `src` into `dst` with a read that cannot fault: 0, or -1 when some byte could
+ * not be read (or the system has no such read; the caller then leaves the inputs out). */
+static int lw_safe_read(void *dst, const void *src, size_t n) {
+#if defined(__linux__)
+    if (n == 0) return 0;
+    struct iovec here = {dst, n};
+    struct iovec there = {(void *)(uintptr_t)src, n};
+    return process_vm_readv(getpid(), &here, 1, &there, 1, 0) == (ssize_t)n ? 0 : -1;
+#else
+    (void)dst;
+    (void)src;
+    (void)n;
+    return -1;
+#endif
+}
+
+/* The copy: the argument block, its call description and arrays, in static storage (the last
+ * words allocate nothing). */
+static tc_guard_args lw_args;
+static union {
+    tc_call real;
+    guard_finite_call finite;
+} lw_call;
+static double lw_props[2 * LW_MAX_ENTRIES], lw_state0[2 * LW_MAX_ENTRIES];
+static double lw_strain[2 * 9], lw_dstrain[2 * 9], lw_stress0[2 * 9], lw_temp[4];
+
+/* One array of the copy: `n` entries (each 1 or 2 doubles) from `src` into `dst`, which then
+ * stands in for it; 0, or -1 when it cannot be read or is too long. */
+static int lw_copy_array(const void **field, double *dst, long n, long cap, int cx) {
+    if (n < 0 || n > cap) return -1;
+    if (n == 0 || *field == NULL) {
+        *field = dst;
+        return 0;
+    }
+    if (lw_safe_read(dst, *field, (size_t)n * (cx ? 2 : 1) * sizeof(double)) != 0) return -1;
+    *field = dst;
+    return 0;
+}
+
+/* The inputs of the call running on another thread (`run`, whose argument block is `a`), for
+ * the last words: that thread goes on while they are said, so its call may return and its
+ * argument block (on its stack) be overwritten at any moment, and reading through the
+ * pointers it then holds could fault. Everything is copied with reads that cannot fault, and
+ * the copy is used only when the same call was still running after it was made; NULL
+ * otherwise (the last words then leave the inputs out). */
+static const tc_guard_args *lw_copy_running(const watch_slot *run, const tc_guard_args *a, int cx) {
+    const uint64_t begun = __atomic_load_n(&run->begun, __ATOMIC_ACQUIRE);
+    if (__atomic_load_n(&run->ended, __ATOMIC_ACQUIRE) == begun) return NULL;
+    if (lw_safe_read(&lw_args, a, sizeof lw_args) != 0) return NULL;
+    const tc_guard_args saved = lw_args;
+    const int finite = saved.reserved == TC_GUARD_LAYOUT_FINITE;
+    if (saved.call == NULL ||
+        lw_safe_read(&lw_call, saved.call, finite ? sizeof lw_call.finite : sizeof lw_call.real) != 0)
+        return NULL;
+    lw_args.call = &lw_call.real;
+    long ncomp, nstate, nprop, nf;
+    if (finite) {
+        ncomp = 6;
+        nf = 9;
+        nstate = lw_call.finite.nstate;
+        nprop = lw_call.finite.nproperties;
+    } else {
+        ncomp = lw_call.real.ncomp;
+        nf = ncomp;
+        nstate = lw_call.real.nstate;
+        nprop = lw_call.real.nproperties;
+        if (ncomp < 1 || ncomp > 6) return NULL;
+    }
+    if (lw_copy_array(&lw_args.props, lw_props, nprop, LW_MAX_ENTRIES, cx) != 0 ||
+        lw_copy_array(&lw_args.strain, lw_strain, nf, 9, cx) != 0 ||
+        lw_copy_array(&lw_args.dstrain, lw_dstrain, nf, 9, cx) != 0 ||
+        lw_copy_array(&lw_args.temp, lw_temp, 2, 2, cx) != 0 ||
+        lw_copy_array(&lw_args.stress0, lw_stress0, ncomp, 9, cx) != 0 ||
+        lw_copy_array(&lw_args.state0, lw_state0, nstate, LW_MAX_ENTRIES, cx) != 0)
+        return NULL;
+    /* The same call still running: its block and arrays were the call's own all along. */
+    if (__atomic_load_n(&run->begun, __ATOMIC_ACQUIRE) != begun ||
+        __atomic_load_n(&run->ended, __ATOMIC_ACQUIRE) == begun ||
+        __atomic_load_n(&run->args, __ATOMIC_ACQUIRE) != a)
+        return NULL;
+    return &lw_args;
+}
+
 /* Last words: the fault line with when it happened and the inputs of the running call, and
  * the JSON report naming the fault; then the process ends with `status`. `in_call` is 1 when
  * the dying thread is inside a guarded call, 0 when not, -1 when unknown (another thread). */
@@ -411,6 +501,8 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     const int increment = seen != NULL ? __atomic_load_n(&seen->increment, __ATOMIC_RELAXED) : -1;
     const tc_guard_args *a = running && run != NULL ? __atomic_load_n(&run->args, __ATOMIC_RELAXED) : NULL;
     const int cx = run != NULL ? __atomic_load_n(&run->complex_call, __ATOMIC_RELAXED) : 0;
+    /* Another thread's call (not this thread's own, which waits here): a checked copy. */
+    if (a != NULL && run != tc_thread.slot) a = lw_copy_running(run, a, cx);
     const guard_finite_call *fc = finite_call_of(a);
     const tc_call *c = (a != NULL && fc == NULL) ? a->call : NULL;
     const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label : lw_label;
@@ -564,12 +656,20 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         if (lw_json_stdout) {
             write_fd(tool_stdout >= 0 ? tool_stdout : 1, lw_buf, lw_len);
         } else {
-            int fd = open(lw_tmp, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
+            /* A name of their own: the program may be writing the report under its temporary
+             * name at this moment (a thread of the routine ending the process while the report
+             * is written), and two writers of one file would mix their bytes. */
+            /* The program's unfinished copy goes (it checks tc_guard_dying before its
+             * rename, and a rename of a removed file fails), so theirs never replaces these
+             * last words, and nothing of it is left behind. */
+            if (lw_tmp[0] != '\0') unlink(lw_tmp);
+            int fd = open(lw_own_tmp, O_WRONLY | O_CREAT | O_TRUNC | O_CLOEXEC, 0644);
             if (fd >= 0) {
                 write_fd(fd, lw_buf, lw_len);
                 close(fd);
-                if (rename(lw_tmp, lw_report) != 0) unlink(lw_tmp);
+                if (rename(lw_own_tmp, lw_report) != 0) unlink(lw_own_tmp);
             }
+            if (lw_tmp[0] != '\0') unlink(lw_tmp); /* begun by the program meanwhile */
         }
     }
     _exit(status);
@@ -598,6 +698,7 @@ static void stop_handler(int sig) {
         return;
     }
     if (lw_tmp[0] != '\0') unlink(lw_tmp);
+    if (lw_own_tmp[0] != '\0') unlink(lw_own_tmp);
     for (int i = 0; i < lw_nremove; i++) unlink(lw_remove[i]);
     for (int i = lw_nremove - 1; i >= 0; i--) rmdir(lw_remove[i]);
     signal(sig, SIG_DFL);
@@ -909,6 +1010,8 @@ int32_t tc_guard_set_report(const char *head, const char *report, const char *tm
     copy_string(lw_head, sizeof lw_head, head);
     copy_string(lw_report, sizeof lw_report, report);
     copy_string(lw_tmp, sizeof lw_tmp, tmp);
+    copy_string(lw_own_tmp, sizeof lw_own_tmp, tmp);
+    if (tmp[0] != '\0') memcpy(lw_own_tmp + strlen(lw_own_tmp), ".last", sizeof ".last");
     lw_json_stdout = to_stdout != 0;
     return 0;
 }
@@ -941,6 +1044,10 @@ int32_t tc_guard_protect_stdout(void) {
     tool_stdout = fd;
     return fd;
 }
+
+/* Nonzero once last words are being said (or the program is ending by tc_guard_finish): the
+ * process ends soon, and a report the program is writing must not replace theirs. */
+int32_t tc_guard_dying(void) { return __atomic_load_n(&dying, __ATOMIC_ACQUIRE); }
 
 /* The program's own end with `status`: never racing a routine's thread that exits at the same
  * moment. If last words are being said, they win (and end the process); otherwise any later

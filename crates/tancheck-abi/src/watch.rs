@@ -34,6 +34,7 @@ extern "C" {
     fn tc_guard_watch(out: *mut u64);
     fn tc_guard_die(status: i32, what: *const c_char) -> !;
     fn tc_guard_finish(status: i32) -> !;
+    fn tc_guard_dying() -> i32;
 }
 
 /// What the program is doing, for the words "when it happened".
@@ -179,4 +180,12 @@ pub fn die(status: i32, what: &str) -> ! {
 pub fn finish(status: i32) -> ! {
     // SAFETY: the C side never returns.
     unsafe { tc_guard_finish(status) }
+}
+
+/// Whether the process is ending: last words are being said (a routine's thread ended the
+/// process, or a fault outside a call), or [`finish`] was called. A report the program is
+/// writing then must not be put in place: the last words write their own.
+pub fn dying() -> bool {
+    // SAFETY: an atomic load on the C side.
+    unsafe { tc_guard_dying() != 0 }
 }

@@ -207,7 +207,7 @@ fn progress_interval(call_timeout: f64) -> Duration {
 /// Start the watchdog (once per process; not in an --isolate worker, whose parent watches).
 /// `suite_timeout` limits the whole check when given.
 pub fn start_watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
-    if std::env::var_os(HEARTBEAT_ENV).is_some() {
+    if crate::worker_env::in_worker() {
         return;
     }
     WATCHDOG.get_or_init(|| {

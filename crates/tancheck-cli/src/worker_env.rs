@@ -20,3 +20,37 @@ pub fn in_worker() -> bool {
 pub fn verdict_only() -> bool {
     std::env::var_os(VERDICT_ONLY_ENV).is_some()
 }
+
+/// Whether `path` is the report this worker hands to its parent (the `report.json` beside its
+/// heartbeat file): the parent reads it at once and removes it, so it need not reach the disk
+/// before it is renamed into place. Every other file a worker writes (`--html`, `--junit`,
+/// saved cases) is written as outside a worker.
+pub fn is_handoff_report(path: &std::path::Path) -> bool {
+    handoff_beside(std::env::var_os(HEARTBEAT_ENV).as_deref(), path)
+}
+
+/// Whether `path` is the `report.json` beside the heartbeat file `heartbeat` (none outside a
+/// worker).
+fn handoff_beside(heartbeat: Option<&std::ffi::OsStr>, path: &std::path::Path) -> bool {
+    heartbeat.is_some_and(|h| std::path::Path::new(h).with_file_name("report.json") == path)
+}
+
+#[cfg(test)]
+mod tests {
+    use std::ffi::OsStr;
+    use std::path::Path;
+
+    use super::handoff_beside;
+
+    #[test]
+    fn only_the_report_beside_the_heartbeat_is_the_handoff() {
+        let hb = Some(OsStr::new("/tmp/tancheck-worker-7/heartbeat"));
+        assert!(handoff_beside(hb, Path::new("/tmp/tancheck-worker-7/report.json")));
+        for other in ["/tmp/tancheck-worker-7/out.html", "/tmp/tancheck-worker-8/report.json", "report.json"]
+        {
+            assert!(!handoff_beside(hb, Path::new(other)), "{other}");
+        }
+        // Outside a worker nothing is.
+        assert!(!handoff_beside(None, Path::new("/tmp/tancheck-worker-7/report.json")));
+    }
+}

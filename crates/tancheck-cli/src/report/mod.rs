@@ -168,18 +168,29 @@ impl Reporter for Fanout<'_> {
 /// the same folder; then a rename. Nothing of the file is held in memory.
 ///
 /// The file reaches the disk before the rename (a crash of the machine leaves the old report
-/// or the new one), except in an `--isolate` worker: its report is read back by its parent
-/// at once and removed, and a crash of the machine ends the parent too, so the worker does not
-/// wait for the disk (on a busy disk that wait was longer than a short check).
+/// or the new one), except the report an `--isolate` worker hands to its parent: the parent
+/// reads it back at once and removes it, and a crash of the machine ends the parent too, so
+/// the worker does not wait for the disk for it (on a busy disk that wait was longer than a
+/// short check). The worker's other files (`--html`, `--junit`, cases) do reach the disk.
 pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> io::Result<()>) -> io::Result<()> {
     let tmp = temporary_name(path);
+    if tancheck_abi::watch::dying() {
+        // The process is ending with last words, which write this report themselves.
+        park_for_good();
+    }
     let result = (|| {
         let f = std::fs::File::create(&tmp)?;
         let mut w = io::BufWriter::with_capacity(64 * 1024, f);
         fill(&mut w)?;
         let f = w.into_inner().map_err(|e| e.into_error())?;
-        if !crate::worker_env::in_worker() {
+        if !crate::worker_env::is_handoff_report(path) {
             f.sync_all()?;
+        }
+        if tancheck_abi::watch::dying() {
+            // A routine's thread is ending the process and its last words write this report
+            // (they remove this copy): it must not replace theirs. The process ends with them.
+            let _ = std::fs::remove_file(&tmp);
+            park_for_good();
         }
         std::fs::rename(&tmp, path)
     })();
@@ -187,6 +198,14 @@ pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> io::R
         let _ = std::fs::remove_file(&tmp);
     }
     result
+}
+
+/// Wait for the end of the process, which the last words being said bring (see
+/// [`write_atomic_with`]).
+fn park_for_good() -> ! {
+    loop {
+        std::thread::park();
+    }
 }
 
 /// Write `bytes` to `path` atomically: a temporary file in the same folder, then a rename,
