@@ -170,6 +170,7 @@ typedef struct guard_thread {
     int prepared;                   /* alternate stack and stack bounds are set up */
     struct watch_slot *slot;        /* this thread's calls (see watch_slot) */
     uintptr_t stack_lo;             /* lowest usable address of this thread's stack, or 0 */
+    sigjmp_buf *volatile probe;     /* a read of the last words that may fault lands here */
 } guard_thread;
 
 /* initial-exec: the handler must reach the variable without a lazy allocation. */
@@ -396,20 +397,39 @@ static const char *signal_name(int sig) {
 /* Entries of an array the last words copy and show (as put_array). */
 #define LW_MAX_ENTRIES 4096
 
-/* `n` bytes at `src` into `dst` with a read that cannot fault: 0, or -1 when some byte could
- * not be read (or the system has no such read; the caller then leaves the inputs out). */
+/* `n` bytes at `src` into `dst` by a plain copy, with a fault in it caught by the guard's
+ * handler (which lands on `probe` instead of ending the process): 0, or -1 when it faulted. */
+static int lw_probed_copy(void *dst, const void *src, size_t n) {
+    sigjmp_buf env;
+    guard_thread *t = &tc_thread;
+    if (sigsetjmp(env, 1) != 0) {
+        t->probe = NULL;
+        return -1;
+    }
+    t->probe = &env;
+    GUARD_FENCE();
+    const volatile unsigned char *from = (const volatile unsigned char *)src;
+    unsigned char *to = (unsigned char *)dst;
+    for (size_t i = 0; i < n; i++) to[i] = from[i];
+    GUARD_FENCE();
+    t->probe = NULL;
+    return 0;
+}
+
+/* `n` bytes at `src` into `dst` with a read that cannot end the process: 0, or -1 when some
+ * byte could not be read. process_vm_readv on this process where the system allows it (it
+ * returns EFAULT instead of faulting), else a copy whose fault is caught. */
 static int lw_safe_read(void *dst, const void *src, size_t n) {
-#if defined(__linux__)
     if (n == 0) return 0;
+#if defined(__linux__)
     struct iovec here = {dst, n};
     struct iovec there = {(void *)(uintptr_t)src, n};
-    return process_vm_readv(getpid(), &here, 1, &there, 1, 0) == (ssize_t)n ? 0 : -1;
-#else
-    (void)dst;
-    (void)src;
-    (void)n;
-    return -1;
+    const ssize_t got = process_vm_readv(getpid(), &here, 1, &there, 1, 0);
+    if (got == (ssize_t)n) return 0;
+    if (got >= 0 || errno == EFAULT) return -1;
+    /* Not allowed here (a sandbox), or not there: the caught copy. */
 #endif
+    return lw_probed_copy(dst, src, n);
 }
 
 /* The copy: the argument block, its call description and arrays, in static storage (the last
@@ -788,6 +808,10 @@ static void last_words_signal(int sig, int in_call);
 
 static void guard_handler(int sig, siginfo_t *info, void *context) {
     guard_thread *t = &tc_thread;
+    if (t->probe != NULL && (sig == SIGSEGV || sig == SIGBUS)) {
+        /* A read of the last words through a pointer that went stale (lw_safe_read). */
+        siglongjmp(*t->probe, 1);
+    }
     if (t->inside && t->jump != NULL && sig == SIGABRT && tc_armed()) {
         /* abort() inside a call: most often the C library found the heap corrupted. The
          * heap (and the allocator's locks) cannot be trusted any more: last words. */
