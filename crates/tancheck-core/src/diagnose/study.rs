@@ -140,7 +140,8 @@ pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
             break;
         }
     }
-    let order_shown = shows_order(&finite[..=best_idx.min(finite.len().saturating_sub(1))], scheme.order());
+    // No finite point at all (every perturbed stress NaN): nothing shows an order.
+    let order_shown = !finite.is_empty() && shows_order(&finite[..=best_idx], scheme.order());
     // Already at the floor from the largest step on: a response linear over the ladder (no
     // truncation to fall), every error within the tolerance.
     let at_floor = !finite.is_empty() && finite[..=best_idx].iter().all(|p| p.error <= tol);
@@ -246,5 +247,19 @@ mod tests {
         assert_eq!(classify(std::slice::from_ref(&c), 1e-4), StepVerdict::Noise);
         assert_eq!(classify(&[f.clone(), c], 1e-4), StepVerdict::Truncation);
         assert_eq!(classify(&[f], 1e-12), StepVerdict::Noise);
+    }
+
+    // A routine whose perturbed stresses are all NaN leaves no finite point: the study says
+    // it cannot tell (it used to stop the program on an empty slice).
+    #[test]
+    fn a_study_without_a_finite_point_is_inconclusive() {
+        let points = vec![
+            StudyPoint { rel_step: 1e-4, step: 1e-7, error: f64::NAN },
+            StudyPoint { rel_step: 1e-6, step: 1e-9, error: f64::INFINITY },
+        ];
+        let s = analyse(Scheme::Central, points, 1e-6);
+        assert_eq!(s.behaviour, Behaviour::Inconclusive);
+        assert_eq!(s.best_error, f64::INFINITY);
+        assert!(analyse(Scheme::Central, Vec::new(), 1e-6).behaviour == Behaviour::Inconclusive);
     }
 }
