@@ -29,9 +29,10 @@
 //! path (the smallest normalised eigenvalue for cohesive points). It fails only when the
 //! routine fails during the walk.
 //!
-//! Where the symmetric part is positive definite no normal can lose ellipticity, and the walk
-//! does not search the normals there ([`assess_unless_definite`]): the increment's det Q
-//! measure is then the lower bound (λmin/2)^d. The normals of the grid are made once per
+//! Where the symmetric part is positive definite no normal can lose ellipticity, and where it
+//! is so by enough that the lower bound (λmin/2s)^d of min det Q/s^d clears the tolerance the
+//! walk does not search the normals ([`assess_unless_definite`]): the increment's det Q
+//! measure is then that bound. Closer to the tolerance the normals are searched as elsewhere. The normals of the grid are made once per
 //! process, and the start points of the refinement are picked from a partial selection of the
 //! grid values instead of a sort of all of them.
 
@@ -158,16 +159,20 @@ pub fn assess(conv: &Convention, tangent: &[f64]) -> Assessment {
 }
 
 /// [`assess`], without the search over normals where the symmetric part of the Mandel tangent
-/// is positive definite (λmin/s > `tol`). There no normal can lose ellipticity: for a unit
+/// is positive definite enough that no normal can come within the tolerance of losing
+/// ellipticity: (λmin/2s)^d > `tol`, the bound below on min det Q/s^d that marks a loss. For a unit
 /// vector a, a·Q(n)·a = E:C:E with E = sym(a⊗n), |E|² = (1 + (a·n)²)/2 ≥ 1/2, so the symmetric
 /// part of Q(n) has eigenvalues ≥ λmin/2 and det Q(n) ≥ (λmin/2)^d (Ostrowski–Taussky: the
 /// determinant of a matrix with a positive definite symmetric part is at least that part's
 /// determinant; Horn & Johnson, Topics in Matrix Analysis, 1991, §2.2 — from memory).
 pub fn assess_unless_definite(conv: &Convention, tangent: &[f64], tol: f64) -> Assessment {
     let (min_eigenvalue, scale) = symmetric_extremes(conv, tangent);
-    let definite = min_eigenvalue > 0.0 && min_eigenvalue / scale.max(f64::MIN_POSITIVE) > tol;
+    let s = scale.max(f64::MIN_POSITIVE);
+    // The bound must clear the tolerance itself, not only be positive: a loss is marked at
+    // det ratio ≤ tol, and the search finds ratios between the bound and λmin/s.
+    let clears = |dim: usize| min_eigenvalue > 0.0 && (0.5 * min_eigenvalue / s).powi(dim as i32) > tol;
     match dim_of(conv.kind()) {
-        Some(dim) if definite => Assessment {
+        Some(dim) if clears(dim) => Assessment {
             min_eigenvalue,
             scale,
             acoustic: Some(Acoustic {

@@ -70,3 +70,34 @@ fn the_refined_minimum_beats_a_fine_scan() {
     }
     assert!(d < 0.0, "{d}");
 }
+
+// The walk skips the search only where its bound clears the tolerance: a loss is marked at
+// min det Q/s^d ≤ tol, and the bound (λmin/2s)^d lies below the searched value, so a skip on
+// λmin/s > tol alone missed losses the search marks. Steel-like elasticity with a user
+// tolerance of 5 % (searched: μ²(λ + 2μ)/s³ ≈ 0.013) and a nearly shear-free material at the
+// default tolerance: the shortcut marks what the search marks, and where it skips, the bound
+// it reports clears the tolerance.
+#[test]
+fn the_shortcut_marks_a_loss_wherever_the_search_does() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    for (tol, lambda, mu) in [(0.05, 121_153.8, 80_769.2), (1e-12, 1.0, 1e-6), (1e-3, 100.0, 80.0)] {
+        let t = isotropic(&conv, lambda, mu);
+        let full = assess(&conv, &t);
+        let quick = assess_unless_definite(&conv, &t, tol);
+        let lost = |a: &Assessment| !a.bound_only && a.det_ratio().is_some_and(|r| r <= tol);
+        assert_eq!(
+            lost(&full),
+            lost(&quick),
+            "tol {tol}: searched {:?}, quick {:?}",
+            full.det_ratio(),
+            quick
+        );
+        if quick.bound_only {
+            assert!(quick.det_ratio().unwrap() > tol, "tol {tol}: {quick:?}");
+            assert!(quick.det_ratio().unwrap() <= full.det_ratio().unwrap(), "the bound is below the search");
+        }
+    }
+    // Steel-like at 5 %: the search marks the loss, so the walk searches too.
+    let t = isotropic(&conv, 121_153.8, 80_769.2);
+    assert!(!assess_unless_definite(&conv, &t, 0.05).bound_only);
+}
