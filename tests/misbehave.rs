@@ -85,6 +85,21 @@ fn memory_misbehaviour_is_reported_by_the_guards() {
     expect("bad_scratch_increment", &[], 3, "wrote to its read-only input dstrain");
 }
 
+/// A routine that forms its tangent only when asked but reads the tangent array in every call
+/// works on a stale tangent in its perturbed calls: the guards give it the signalling NaN
+/// instead of the tangent an earlier call left, so the perturbed stresses and the derivative
+/// are not finite and the check fails at both guard levels (it passed with the light and full
+/// guards when they left the last call's tangent in place).
+#[test]
+fn a_routine_reading_a_tangent_it_was_not_asked_for_fails() {
+    for level in ["light", "full"] {
+        let (c, t) = check(c_lib(), "bad_unasked_tangent", &["--guards", level, "--jobs", "1"]);
+        assert_eq!(c, Some(1), "{level}: {t}");
+        assert!(t.contains("derivative          NaN"), "{level}: {t}");
+        assert!(t.contains("verdict: FAIL"), "{level}: {t}");
+    }
+}
+
 /// With the guards off a routine works on the check's own buffers. One that uses its
 /// increment as work space after its update (its tangent is the true one) must not change
 /// what the other calls of the increment see: every call gets the increment as set, so the

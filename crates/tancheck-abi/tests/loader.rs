@@ -173,6 +173,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_state_overrun",
             "bad_tangent_hole",
             "bad_thread_exit",
+            "bad_unasked_tangent",
             "bad_unguarded_norm",
             "bad_writes_strain",
         ]

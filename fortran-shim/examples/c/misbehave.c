@@ -36,6 +36,9 @@
  *                       as work space does (casting const away)      -> "wrote to its read-only
  *                       input dstrain"; with the guards off its own calls never see it, and
  *                       its (correct) tangent passes
+ *   bad_unasked_tangent forms its tangent only when asked for it, but computes the stress
+ *                       from the tangent array in every call (reads an output it did not
+ *                       write)                                       -> stress not finite
  *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
  *                                                                      identical calls"
  *
@@ -274,6 +277,31 @@ TC_ROUTINE(bad_scratch_increment)
     for (int i = 0; i < call->ncomp; ++i) {
         ((tc_real *)dstrain)[i] = 0.0;
     }
+}
+
+TC_ROUTINE(bad_unasked_tangent)
+{
+    MISBEHAVE_UNUSED;
+    const int n = call->ncomp;
+    if (call->flags & TC_WANT_TANGENT) {
+        if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
+                               report)) {
+            return;
+        }
+    }
+    /* The stress from the tangent array, whether or not this call formed it. */
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) {
+            s += tangent[i + j * n] * dstrain[j];
+        }
+        stress[i] = s;
+    }
+    for (int k = 0; k < call->nstate; ++k) {
+        state[k] = state0[k];
+    }
+    report->branch = 0;
+    report->status = TC_STATUS_OK;
 }
 
 TC_ROUTINE(bad_hidden_state)

@@ -131,8 +131,9 @@ impl<E: Element> GuardBuffers<E> {
     }
 
     /// [`GuardBuffers::load`] with the first poison, from the image: the inputs are written
-    /// into it, then the block is one copy of it (around the tangent when the call does not
-    /// ask for one, which then keeps what the last call left, as `load` does).
+    /// into it, then the block is one copy of it. A tangent the call does not ask for is
+    /// pre-filled too (a routine that reads it without forming it gets the signalling NaN, not
+    /// the tangent an earlier call left), but neither checked nor copied back.
     fn load_first(&mut self, input: &CallInput<'_, E>) {
         let inputs: [&[E]; N_INPUTS] =
             [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
@@ -140,15 +141,7 @@ impl<E: Element> GuardBuffers<E> {
             let s = self.start[k];
             self.image[s..s + self.len[k]].copy_from_slice(src);
         }
-        if input.want_tangent {
-            self.data.copy_from_slice(&self.image);
-        } else {
-            let k =
-                N_INPUTS + ARRAYS[N_INPUTS..].iter().position(|a| *a == GuardedArray::Tangent).unwrap_or(0);
-            let (t, e) = (self.start[k], self.start[k] + self.len[k]);
-            self.data[..t].copy_from_slice(&self.image[..t]);
-            self.data[e..].copy_from_slice(&self.image[e..]);
-        }
+        self.data.copy_from_slice(&self.image);
         self.report.report = self.report_before;
         self.report.zone = [REPORT_CANARY; REPORT_ZONE];
     }
@@ -199,12 +192,9 @@ impl<E: Element> GuardBuffers<E> {
             self.array_mut(k).copy_from_slice(src);
             self.zone_mut(k).fill(poison[k]);
         }
-        for (k, array) in ARRAYS.iter().enumerate().skip(N_INPUTS) {
-            // A tangent the call does not ask for is neither required nor passed back: it is
-            // not pre-filled (its zone is still set and checked).
-            if *array != GuardedArray::Tangent || input.want_tangent {
-                self.array_mut(k).fill(E::PREFILL);
-            }
+        for k in N_INPUTS..ARRAYS.len() {
+            // A tangent the call does not ask for is pre-filled too (see `load_first`).
+            self.array_mut(k).fill(E::PREFILL);
             self.zone_mut(k).fill(E::CANARY);
         }
         self.report.report = self.report_before;
