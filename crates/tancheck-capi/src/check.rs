@@ -60,21 +60,33 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
     if plan.fp_traps {
         routine.set_fp_traps(true).map_err(|e| Failure::invalid(format!("tck_options.fp_traps: {e}")))?;
     }
-    let report = {
-        let mut caller = Caller::new(&mut routine);
+    let run = |routine: &mut tancheck_abi::LibraryRoutine, settings: &tancheck_core::Settings| {
+        let mut caller = Caller::new(routine);
         // The compact report, as the command line writes it: a record per increment, the full
         // detail of the failing ones.
         tancheck_core::check::run_with(
             &mut caller,
             &plan.properties,
-            plan.start,
+            plan.start.clone(),
             &plan.path,
-            &plan.settings,
+            settings,
             tancheck_core::report::Keep::Failures,
             &mut |_| {},
         )
-        .map_err(|e| Failure::invalid(e.to_string()))?
+        .map_err(|e| Failure::invalid(e.to_string()))
     };
+    let mut report = run(&mut routine, &plan.settings)?;
+    if tancheck_core::concurrent::redo_on_one_thread(
+        &report,
+        !routine.findings().is_empty(),
+        plan.path.increments.len(),
+    ) {
+        // As the command line does (session.rs): the check again on one thread.
+        routine.take_findings();
+        routine.reset_guard_calls();
+        report = run(&mut routine, &tancheck_core::Settings { jobs: 1, ..plan.settings.clone() })?;
+        report.settings.jobs = plan.settings.jobs;
+    }
     let findings = routine.take_findings();
     Ok(finish(report, findings, plan.guard_level, routine.guard_calls()))
 }

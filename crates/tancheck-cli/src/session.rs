@@ -117,8 +117,29 @@ pub fn run_manifest_with(
         crate::isolate::worker_follows_parent(std::path::Path::new(&hb))?;
     }
     let mut loaded = load(m, dir)?;
-    let mut report = check_loaded(&mut loaded, m, path, keep, progress)?;
+    let mut report = check_loaded(&mut loaded, m, path, keep, progress, &m.check)?;
     // What the memory guards of a library saw, the same way the C API reports it.
+    let redo = match &mut loaded {
+        Loaded::Library(lib)
+            if tancheck_core::concurrent::redo_on_one_thread(
+                &report,
+                !lib.findings().is_empty(),
+                path.increments.len(),
+            ) =>
+        {
+            lib.take_findings();
+            lib.reset_guard_calls();
+            true
+        }
+        _ => false,
+    };
+    if redo {
+        // The check again on one thread (see `concurrent::redo_on_one_thread`; misbehaving
+        // routines only).
+        let serial = tancheck_core::Settings { jobs: 1, ..m.check.clone() };
+        report = check_loaded(&mut loaded, m, path, keep, progress, &serial)?;
+        report.settings.jobs = m.check.jobs;
+    }
     if let Loaded::Library(lib) = &mut loaded {
         let findings = lib.take_findings();
         tancheck_abi::memory_guards::report::add_to_report(
@@ -137,6 +158,7 @@ fn check_loaded(
     path: &Path,
     keep: Keep,
     progress: bool,
+    settings: &tancheck_core::Settings,
 ) -> Result<Report> {
     let routine = loaded.routine();
     let start = start_state(m, routine.info())?;
@@ -154,7 +176,7 @@ fn check_loaded(
     let n = path.increments.len();
     let bar = Progress::new(n as u64, "checking", progress && n >= 200);
     crate::survive::checking(true);
-    let report = check::run_with(&mut caller, &m.routine.properties, start, path, &m.check, keep, &mut |k| {
+    let report = check::run_with(&mut caller, &m.routine.properties, start, path, settings, keep, &mut |k| {
         if k % 64 == 0 || k == n {
             bar.set(k as u64);
         }

@@ -34,6 +34,22 @@ const PROBE_SCALES: [f64; 6] = [1.0, 2.0, -1.0, 4.0, -3.0, 8.0];
 /// Rounds over the probe's increments each thread makes at once with the others.
 const PROBE_ROUNDS: usize = 200;
 
+/// Whether a check made with `jobs` > 1 must be made again on one thread, with the guards'
+/// findings and extra calls of the routine's handle cleared first: the guards of the caller's
+/// handle found something (`guard_findings`), a call faulted, or the report stops short of the
+/// path's `increments` without a fault (a later thread's walk to its share failed). Each
+/// thread's handle keeps its own guard findings, and a finding new to a handle ends that call
+/// with a fault, so only one thread walking the path in order places a finding's first
+/// occurrence where one thread would. Only misbehaving routines pay for it.
+pub fn redo_on_one_thread(report: &crate::report::Report, guard_findings: bool, increments: usize) -> bool {
+    use crate::report::CheckOutcome;
+    let faulted = report
+        .increments
+        .iter()
+        .any(|i| i.fault.is_some() || i.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_))));
+    report.settings.jobs > 1 && (guard_findings || faulted || report.records.len() < increments)
+}
+
 /// The threads' share of the path, in path order.
 pub struct Chunk {
     /// The share's increments, collected as the check collects them (a record each, the full
@@ -234,8 +250,8 @@ pub fn walk(caller: &mut Caller<'_>, handles: Vec<Box<dyn Routine + Send>>, job:
         for (t, mut h) in handles.into_iter().enumerate() {
             let range = b[t + 1]..b[t + 2];
             joins.push(s.spawn(move || {
-                let mut c = Caller::new(&mut *h);
-                share(&mut c, job, range)
+                let chunk = share(&mut Caller::new(&mut *h), job, range);
+                (chunk, h.guard_extra_calls())
             }));
         }
         let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
@@ -244,7 +260,10 @@ pub fn walk(caller: &mut Caller<'_>, handles: Vec<Box<dyn Routine + Send>>, job:
         caller.complex_calls = cplx0;
         let mut out = vec![first];
         for j in joins {
-            out.push(j.join().unwrap_or_else(|p| std::panic::resume_unwind(p)));
+            let (chunk, extra) = j.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
+            // The guards' reruns on the thread's handle count for the check, as on one thread.
+            caller.absorb_guard_extra_calls(extra);
+            out.push(chunk);
         }
         out
     })

@@ -195,6 +195,16 @@ pub trait Routine {
     fn another(&self) -> Option<Box<dyn Routine + Send>> {
         None
     }
+
+    /// Calls this handle's guards made besides the caller's (reruns of the full guards); 0 for
+    /// a routine without guards.
+    fn guard_extra_calls(&self) -> u64 {
+        0
+    }
+
+    /// Count `n` more such calls, made by another handle of the same routine for the same
+    /// check (a later thread's share), so that the check reports what one thread would.
+    fn absorb_guard_extra_calls(&mut self, _n: u64) {}
 }
 
 /// The [`Routine`] methods a wrapper passes on to the routine it wraps (its field `inner`):
@@ -215,6 +225,12 @@ macro_rules! pass_on_to_inner {
         }
         fn capabilities(&mut self) -> $crate::routine::Capabilities {
             self.inner.capabilities()
+        }
+        fn guard_extra_calls(&self) -> u64 {
+            self.inner.guard_extra_calls()
+        }
+        fn absorb_guard_extra_calls(&mut self, n: u64) {
+            self.inner.absorb_guard_extra_calls(n)
         }
     };
 }
@@ -332,6 +348,11 @@ impl<'r> Caller<'r> {
     /// See [`Routine::guard_next_call_fully`].
     pub fn guard_next_call_fully(&mut self) -> bool {
         self.routine.guard_next_call_fully()
+    }
+
+    /// See [`Routine::absorb_guard_extra_calls`].
+    pub fn absorb_guard_extra_calls(&mut self, n: u64) {
+        self.routine.absorb_guard_extra_calls(n)
     }
 
     /// A real call, outputs pre-filled with NaN and the outcome reset, so that an output the

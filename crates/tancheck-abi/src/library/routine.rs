@@ -167,6 +167,11 @@ impl LibraryRoutine {
         self.findings.extra_calls
     }
 
+    /// Count the guards' extra calls from zero again (a check made anew on the same handle).
+    pub fn reset_guard_calls(&mut self) {
+        self.findings.extra_calls = 0;
+    }
+
     #[inline(always)]
     fn tc_call<S>(&self, input: &CallInput<'_, S>) -> TcCall {
         TcCall {
@@ -336,6 +341,14 @@ impl Routine for LibraryRoutine {
     fn guard_next_call_fully(&mut self) -> bool {
         self.full_next = self.guard_level != GuardLevel::Off;
         self.full_next
+    }
+
+    fn guard_extra_calls(&self) -> u64 {
+        self.findings.extra_calls
+    }
+
+    fn absorb_guard_extra_calls(&mut self, n: u64) {
+        self.findings.extra_calls += n;
     }
 }
 
