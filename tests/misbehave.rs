@@ -96,6 +96,8 @@ fn a_routine_reading_a_tangent_it_was_not_asked_for_fails() {
         let (c, t) = check(c_lib(), "bad_unasked_tangent", &["--guards", level, "--jobs", "1"]);
         assert_eq!(c, Some(1), "{level}: {t}");
         assert!(t.contains("derivative          NaN"), "{level}: {t}");
+        assert!(t.contains("-> non-finite-derivative"), "{level}: {t}");
+        assert!(t.contains("the difference quotients are not finite numbers"), "{level}: {t}");
         assert!(t.contains("verdict: FAIL"), "{level}: {t}");
     }
 }

@@ -33,6 +33,10 @@ use super::temp_kink::TempKink;
 /// The finding of an increment whose complex-step twin is not complex-step safe.
 pub const TWIN_FINDING: &str = "twin-not-complex-step-safe";
 
+/// The finding of an increment whose difference quotients are not finite numbers at any step
+/// of the step studies: the perturbed calls' stresses are not finite.
+pub const NON_FINITE_FINDING: &str = "non-finite-derivative";
+
 /// The usual reasons a twin is not complex-step safe, for messages.
 pub const TWIN_CULPRITS: &str = "conjugating intrinsics (Fortran dot_product, conjg, C conj; a \
 norm as sqrt(sum |z|^2)), complex abs (cabs, Fortran abs of a complex), a real-only sqrt or \
@@ -90,7 +94,7 @@ pub struct Decision {
     pub pass: bool,
     pub reason: String,
     /// One word: `none`, a cause name, `kink-neither-side`, `dtemp`, `dtemp-partial`,
-    /// [`TWIN_FINDING`], or `unexplained`.
+    /// [`TWIN_FINDING`], [`NON_FINITE_FINDING`], or `unexplained`.
     pub finding: String,
     /// The complex-step results of the increment are set aside.
     pub twin_unsafe: bool,
@@ -305,6 +309,17 @@ fn decide_tangent(o: &Observed) -> Decision {
     if o.tangent_checks_pass {
         d.pass = true;
         d.finding = "none".into();
+        return with_dtemp(o, d);
+    }
+    // 5. No derivative to compare with: at every step of every study the difference quotients
+    // are not finite numbers (the perturbed calls' stresses are not). No cause of a wrong
+    // tangent explains that, so none is tried.
+    if !o.studies.is_empty() && o.studies.iter().all(|s| !s.best_error.is_finite()) {
+        d.reason = "at every step tried the difference quotients are not finite numbers: the perturbed \
+                    calls returned stresses that are not finite (computed from an output the call did \
+                    not write, such as a tangent it was not asked for, or from memory it never set?)"
+            .into();
+        d.finding = NON_FINITE_FINDING.into();
         return with_dtemp(o, d);
     }
     // 6. The tangent differs.

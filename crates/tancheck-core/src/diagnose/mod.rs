@@ -26,7 +26,7 @@ pub mod study;
 pub mod temp_kink;
 
 pub use causes::{Cause, Hypothesis, Refinement};
-pub use decide::{decide, Decision, Observed, TwinEvidence, TWIN_FINDING};
+pub use decide::{decide, Decision, Observed, TwinEvidence, NON_FINITE_FINDING, TWIN_FINDING};
 pub use kink::{Kink, KinkColumn, Side};
 pub use study::{Behaviour, StepStudy};
 pub use temp_kink::TempKink;
@@ -48,7 +48,8 @@ pub struct Diagnosis {
     pub dtemp_causes: Vec<Hypothesis>,
     pub refinement: Option<Refinement>,
     /// One word for what was found: the first cause's name, `kink-neither-side`, `dtemp`,
-    /// `dtemp-partial`, `twin-not-complex-step-safe`, `unexplained` or `none`.
+    /// `dtemp-partial`, `twin-not-complex-step-safe`, `non-finite-derivative`, `unexplained` or
+    /// `none`.
     pub finding: String,
     /// The complex-step twin is not complex-step safe: its results were set aside.
     #[serde(default)]

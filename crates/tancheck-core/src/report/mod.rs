@@ -313,8 +313,8 @@ impl Report {
 
     /// What the report found, in one word: `none` when it passed, `routine-fault` when the
     /// routine crashed or failed, else the cause that explains the most failing increments
-    /// (ties go to the more specific cause; `kink-neither-side` and `dtemp` count as causes),
-    /// or `unexplained`.
+    /// (ties go to the more specific cause; `kink-neither-side`, `non-finite-derivative` and
+    /// `dtemp` count as causes), or `unexplained`.
     pub fn finding(&self) -> String {
         use crate::diagnose::Cause;
         match self.verdict {
@@ -333,7 +333,10 @@ impl Report {
                 add("non-finite-output", 0);
             }
             let Some(d) = &inc.diagnosis else { continue };
-            if d.finding == "kink-neither-side" || d.finding.starts_with("dtemp") {
+            if d.finding == "kink-neither-side"
+                || d.finding == crate::diagnose::NON_FINITE_FINDING
+                || d.finding.starts_with("dtemp")
+            {
                 add(&d.finding, 0);
             }
             let mut seen = Vec::new();

@@ -152,6 +152,24 @@ fn rows() -> Vec<Row> {
         twin_unsafe: false,
         needs_causes: false,
     });
+    // Every difference quotient NaN (a routine computing its stress from a tangent it was not
+    // asked for, pre-filled with a signalling NaN): no derivative to compare with, and no
+    // cause of a wrong tangent to try.
+    rows.push(Row {
+        what: "every step's difference quotient not finite",
+        observed: Observed {
+            studies: vec![
+                study(Scheme::Central, 1e-6, |_| f64::NAN),
+                study(Scheme::Forward, 1e-4, |_| f64::NAN),
+            ],
+            complex: Some((f64::INFINITY, 1e-10)),
+            ..base()
+        },
+        pass: false,
+        finding: NON_FINITE_FINDING,
+        twin_unsafe: false,
+        needs_causes: false,
+    });
     // A broken twin (a conjugating dot product: the imaginary part of the norm lost): the
     // complex derivative is off by 0.3 while central differences converge with order 2 to
     // the returned tangent and Richardson agrees with it (Martins et al. 2003, §3–4).
