@@ -26,6 +26,18 @@ fn repo(rel: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
 }
 
+/// The isotropic elastic tangent from properties [E, nu] (6 components, engineering shear,
+/// column-major), as C lines the test routines below put in place of `ISOTROPIC_TANGENT`.
+const ISOTROPIC_TANGENT_C: &str = "tc_real e = properties[0], nu = properties[1];
+    tc_real mu = e / (2.0 * (1.0 + nu));
+    tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
+    for (int k = 0; k < 36; ++k) tangent[k] = 0.0;
+    for (int i = 0; i < 3; ++i) {
+        for (int j = 0; j < 3; ++j) tangent[i + 6 * j] = lambda;
+        tangent[i + 6 * i] = lambda + 2.0 * mu;
+    }
+    for (int i = 3; i < 6; ++i) tangent[i + 6 * i] = mu;";
+
 /// An elastic routine that is deliberately not thread-safe: the stress goes through a static
 /// work array, and some busy work between writing and reading it leaves time for another
 /// thread's call to overwrite it. Serially it is correct and deterministic.
@@ -44,15 +56,7 @@ TC_ROUTINE(c_elastic_shared)
         report->status = TC_STATUS_FAILED;
         return;
     }
-    tc_real e = properties[0], nu = properties[1];
-    tc_real mu = e / (2.0 * (1.0 + nu));
-    tc_real lambda = e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu));
-    for (int k = 0; k < 36; ++k) tangent[k] = 0.0;
-    for (int i = 0; i < 3; ++i) {
-        for (int j = 0; j < 3; ++j) tangent[i + 6 * j] = lambda;
-        tangent[i + 6 * i] = lambda + 2.0 * mu;
-    }
-    for (int i = 3; i < 6; ++i) tangent[i + 6 * i] = mu;
+    ISOTROPIC_TANGENT
     for (int i = 0; i < 6; ++i) {
         tc_real s = stress0[i];
         for (int j = 0; j < 6; ++j) s += tangent[i + 6 * j] * dstrain[j];
@@ -73,7 +77,7 @@ fn c_lib() -> &'static Path {
     L.get_or_init(|| {
         let d = scratch("c");
         let shared = d.join("shared.c");
-        std::fs::write(&shared, SHARED_BUFFER_C).unwrap();
+        std::fs::write(&shared, SHARED_BUFFER_C.replace("ISOTROPIC_TANGENT", ISOTROPIC_TANGENT_C)).unwrap();
         let out = d.join("libjobs_c.so");
         let sources =
             [repo("fortran-shim/examples/c/elastic.c"), repo("fortran-shim/examples/c/j2.c"), shared];
@@ -209,4 +213,88 @@ fn guard_findings_are_the_same_on_one_and_two_threads() {
         assert_eq!(c2, Some(3), "{symbol}: {t2}");
         assert!(j1 == j2, "{symbol}: the JSON reports differ between --jobs 1 and --jobs 2");
     }
+}
+
+// A check on two threads reports what one thread reports when the memory guards find
+// something or make extra calls: each thread's routine handle keeps its own findings (a
+// finding new to a handle ends that call with a fault), so a check whose guards found
+// something is made again on one thread, and the full guards' reruns on a later thread's
+// handle are counted with the check's (`concurrent::redo_on_one_thread`,
+// `Routine::absorb_guard_extra_calls`).
+
+/// Correct linear elasticity; a call without TC_WANT_TANGENT writes stress[n] (past the end)
+/// while strain[0] is in (1e-3, 2e-3); with `BASE_TOO`, a call with TC_WANT_TANGENT does the
+/// same while strain[0] is in (4e-3, 5e-3).
+const GUARD_SRC: &str = r#"
+#include "tancheck_cstep.h"
+#include "tancheck_routine.h"
+TC_ROUTINE(NAME)
+{
+    (void)temperature; (void)dstress_dtemp;
+    const int n = call->ncomp;
+    ISOTROPIC_TANGENT
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) s += tangent[i + 6 * j] * dstrain[j];
+        stress[i] = s;
+    }
+    double e0 = tc_re(strain[0]);
+    int want = call->flags & TC_WANT_TANGENT;
+    if (!BRANCHES && ((!want && e0 > 1e-3 && e0 < 2e-3) || (BASE_TOO && want && e0 > 4e-3 && e0 < 5e-3))) stress[n] = 1.0;
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
+    report->branch = BRANCHES ? ((e0 < 3e-3 && tc_re(dstrain[0]) < 0.0) ? 1 : 0) : 0;
+    report->status = TC_STATUS_OK;
+}
+"#;
+
+fn guard_lib(name: &str, base_too: bool) -> PathBuf {
+    guard_lib_with(name, base_too, false)
+}
+
+fn guard_lib_with(name: &str, base_too: bool, branches: bool) -> PathBuf {
+    let d = scratch(name);
+    let src = d.join(format!("{name}.c"));
+    let text = GUARD_SRC
+        .replace("ISOTROPIC_TANGENT", ISOTROPIC_TANGENT_C)
+        .replace("NAME", name)
+        .replace("BASE_TOO", if base_too { "1" } else { "0" })
+        .replace("BRANCHES", if branches { "1" } else { "0" });
+    std::fs::write(&src, text).unwrap();
+    let out = d.join(format!("lib{name}.so"));
+    build_library(&BuildOptions::new(vec![src], &out)).unwrap_or_else(|e| panic!("{e}"));
+    out
+}
+
+/// The finding recurs in the second share: that thread's handle sees it for the first time
+/// and faults there, and its calls are missing from the finding's count.
+#[test]
+fn a_recurring_guard_finding_gives_the_same_report_on_two_threads() {
+    let l = guard_lib("jg_perturbed", false);
+    let (c1, j1, t1) = check(&l, "jg_perturbed", 0, ELASTIC_PROPS, 1);
+    let (c2, j2, t2) = check(&l, "jg_perturbed", 0, ELASTIC_PROPS, 2);
+    assert_eq!(c1, c2);
+    assert!(j1 == j2, "JSON reports differ\n--- one thread:\n{t1}\n--- two threads:\n{t2}");
+}
+
+/// The finding, first seen in a perturbed call, recurs in a base call before the second
+/// share: that thread's walk faults and the two-thread report silently loses the share.
+#[test]
+fn a_guard_finding_in_the_walk_does_not_cut_the_report_short() {
+    let l = guard_lib("jg_walk", true);
+    let (_, _, t1) = check(&l, "jg_walk", 0, ELASTIC_PROPS, 1);
+    let (_, _, t2) = check(&l, "jg_walk", 0, ELASTIC_PROPS, 2);
+    assert!(t1.contains("of 80 checks"), "{t1}");
+    assert!(t2.contains("of 80 checks"), "two threads checked fewer increments:\n{t2}");
+}
+
+/// A correct routine whose branch 1 is first reached in the second share: that thread's
+/// handle makes the full-guard rerun, and its extra call is missing from the report.
+#[test]
+fn the_guards_extra_calls_are_the_same_on_two_threads() {
+    let l = guard_lib_with("jg_branch", false, true);
+    let (c1, j1, t1) = check(&l, "jg_branch", 0, ELASTIC_PROPS, 1);
+    let (c2, j2, t2) = check(&l, "jg_branch", 0, ELASTIC_PROPS, 2);
+    assert_eq!((c1, c2), (Some(0), Some(0)), "{t1}\n{t2}");
+    assert!(j1 == j2, "JSON reports differ (guard extra_calls)");
 }

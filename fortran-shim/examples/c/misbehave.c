@@ -85,6 +85,24 @@ static void misbehave_message(tc_report *report, const char *text)
     report->message[k] = '\0';
 }
 
+/* stress = stress0 + tangent dstrain, and the state carried over unchanged. */
+static void misbehave_update(const tc_call *call, const tc_real *tangent, const tc_real *dstrain,
+                             const tc_real *stress0, const tc_real *state0, tc_real *stress,
+                             tc_real *state)
+{
+    const int n = call->ncomp;
+    for (int i = 0; i < n; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < n; ++j) {
+            s += tangent[i + j * n] * dstrain[j];
+        }
+        stress[i] = s;
+    }
+    for (int k = 0; k < call->nstate; ++k) {
+        state[k] = state0[k];
+    }
+}
+
 /* The well-behaved part shared by all routines. Returns 0 when it reported a failure. */
 static int misbehave_elastic(const tc_call *call, const tc_real *properties, const tc_real *dstrain,
                              const tc_real *stress0, const tc_real *state0, tc_real *stress,
@@ -101,16 +119,7 @@ static int misbehave_elastic(const tc_call *call, const tc_real *properties, con
         misbehave_message(report, "misbehave: ncomp must be 6, 4, 3 or 1");
         return 0;
     }
-    for (int i = 0; i < n; ++i) {
-        tc_real s = stress0[i];
-        for (int j = 0; j < n; ++j) {
-            s += tangent[i + j * n] * dstrain[j];
-        }
-        stress[i] = s;
-    }
-    for (int k = 0; k < call->nstate; ++k) {
-        state[k] = state0[k];
-    }
+    misbehave_update(call, tangent, dstrain, stress0, state0, stress, state);
     report->branch = 0;
     report->status = TC_STATUS_OK;
     return 1;
@@ -282,7 +291,6 @@ TC_ROUTINE(bad_scratch_increment)
 TC_ROUTINE(bad_unasked_tangent)
 {
     MISBEHAVE_UNUSED;
-    const int n = call->ncomp;
     if (call->flags & TC_WANT_TANGENT) {
         if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
                                report)) {
@@ -290,16 +298,7 @@ TC_ROUTINE(bad_unasked_tangent)
         }
     }
     /* The stress from the tangent array, whether or not this call formed it. */
-    for (int i = 0; i < n; ++i) {
-        tc_real s = stress0[i];
-        for (int j = 0; j < n; ++j) {
-            s += tangent[i + j * n] * dstrain[j];
-        }
-        stress[i] = s;
-    }
-    for (int k = 0; k < call->nstate; ++k) {
-        state[k] = state0[k];
-    }
+    misbehave_update(call, tangent, dstrain, stress0, state0, stress, state);
     report->branch = 0;
     report->status = TC_STATUS_OK;
 }
