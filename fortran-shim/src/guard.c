@@ -465,10 +465,9 @@ static const tc_guard_args *lw_copy_running(const watch_slot *run, const tc_guar
     const uint64_t begun = __atomic_load_n(&run->begun, __ATOMIC_ACQUIRE);
     if (__atomic_load_n(&run->ended, __ATOMIC_ACQUIRE) == begun) return NULL;
     if (lw_safe_read(&lw_args, a, sizeof lw_args) != 0) return NULL;
-    const tc_guard_args saved = lw_args;
-    const int finite = saved.reserved == TC_GUARD_LAYOUT_FINITE;
-    if (saved.call == NULL ||
-        lw_safe_read(&lw_call, saved.call, finite ? sizeof lw_call.finite : sizeof lw_call.real) != 0)
+    const int finite = lw_args.reserved == TC_GUARD_LAYOUT_FINITE;
+    if (lw_args.call == NULL ||
+        lw_safe_read(&lw_call, lw_args.call, finite ? sizeof lw_call.finite : sizeof lw_call.real) != 0)
         return NULL;
     lw_args.call = &lw_call.real;
     long ncomp, nstate, nprop, nf;
