@@ -72,15 +72,93 @@ TC_ROUTINE(c_elastic_shared)
 }
 "#;
 
+/// Elastic routines that misbehave only once the path has loaded them (the start stress's
+/// first component above 300, reported as branch 1): the probe's multiples of the first
+/// increment from the unloaded start never see it.
+///   - `c_late_shared`: the stress of a loaded call goes through a static work array (a race
+///     between threads, as in `c_elastic_shared`);
+///   - `c_late_count`: a loaded call adds a static count of loaded calls to the stress (a
+///     result that depends on every call before);
+///   - `c_late_after_perturbed`: a loaded call made right after one that did not ask for the
+///     tangent is off in its last bits. Calls that all ask for the tangent (the probe's, the
+///     walk's) agree; within a check the base call follows the perturbed calls.
+const LATE_C: &str = r#"
+#include "tancheck_cstep.h"
+#include "tancheck_routine.h"
+
+static tc_real late_work[6];
+static volatile double late_spin;
+static long late_loaded_calls;
+static int late_last_wanted = 1;
+
+/* The elastic stress into `stress`; returns whether the point is loaded (branch 1). */
+static int late_elastic(const tc_call *call, const tc_real *properties, const tc_real *stress0,
+                        const tc_real *dstrain, tc_real *stress, tc_real *tangent,
+                        tc_report *report)
+{
+    if (call->ncomp != 6 || call->nproperties < 2) {
+        report->status = TC_STATUS_FAILED;
+        return 0;
+    }
+    ISOTROPIC_TANGENT
+    for (int i = 0; i < 6; ++i) {
+        tc_real s = stress0[i];
+        for (int j = 0; j < 6; ++j) s += tangent[i + 6 * j] * dstrain[j];
+        stress[i] = s;
+    }
+    report->status = TC_STATUS_OK;
+    report->branch = tc_re(stress0[0]) > 300.0 ? 1 : 0;
+    return report->branch;
+}
+
+#define LATE_FINISH                                               \
+    for (int k = 0; k < call->nstate; ++k) state[k] = state0[k]; \
+    energy->stored = 0.0;                                         \
+    energy->dissipated = 0.0;
+
+TC_ROUTINE(c_late_shared)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    if (late_elastic(call, properties, stress0, dstrain, stress, tangent, report)) {
+        for (int i = 0; i < 6; ++i) late_work[i] = stress[i];
+        for (int k = 0; k < 20000; ++k) late_spin += 1.0;
+        for (int i = 0; i < 6; ++i) stress[i] = late_work[i];
+    }
+    LATE_FINISH
+}
+
+TC_ROUTINE(c_late_count)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    if (late_elastic(call, properties, stress0, dstrain, stress, tangent, report)) {
+        late_loaded_calls += 1;
+        stress[0] += 1e-9 * (double)late_loaded_calls;
+    }
+    LATE_FINISH
+}
+
+TC_ROUTINE(c_late_after_perturbed)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    if (late_elastic(call, properties, stress0, dstrain, stress, tangent, report) && !late_last_wanted) {
+        stress[0] += 1e-9;
+    }
+    late_last_wanted = (call->flags & TC_WANT_TANGENT) != 0;
+    LATE_FINISH
+}
+"#;
+
 fn c_lib() -> &'static Path {
     static L: OnceLock<PathBuf> = OnceLock::new();
     L.get_or_init(|| {
         let d = scratch("c");
         let shared = d.join("shared.c");
         std::fs::write(&shared, SHARED_BUFFER_C.replace("ISOTROPIC_TANGENT", ISOTROPIC_TANGENT_C)).unwrap();
+        let late = d.join("late.c");
+        std::fs::write(&late, LATE_C.replace("ISOTROPIC_TANGENT", ISOTROPIC_TANGENT_C)).unwrap();
         let out = d.join("libjobs_c.so");
         let sources =
-            [repo("fortran-shim/examples/c/elastic.c"), repo("fortran-shim/examples/c/j2.c"), shared];
+            [repo("fortran-shim/examples/c/elastic.c"), repo("fortran-shim/examples/c/j2.c"), shared, late];
         build_library(&BuildOptions::new(sources, &out)).unwrap_or_else(|e| panic!("{e}"));
         out
     })
@@ -92,12 +170,24 @@ const ELASTIC_PROPS: &str = "[210000, 0.3]";
 /// `tancheck check` of `symbol` on 80 increments into the plastic range and back, with
 /// `--jobs jobs`: exit code, JSON report and terminal output.
 fn check(lib: &Path, symbol: &str, states: usize, props: &str, jobs: u32) -> (Option<i32>, Vec<u8>, String) {
-    let d = scratch(&format!("{symbol}-{jobs}"));
+    check_guarded(lib, symbol, states, props, jobs, "light")
+}
+
+/// [`check`] with the memory guards at `guards`.
+fn check_guarded(
+    lib: &Path,
+    symbol: &str,
+    states: usize,
+    props: &str,
+    jobs: u32,
+    guards: &str,
+) -> (Option<i32>, Vec<u8>, String) {
+    let d = scratch(&format!("{symbol}-{jobs}-{guards}"));
     let m = d.join("m.json");
     std::fs::write(
         &m,
         format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": {states}, "properties": {props} }} }}"#,
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": {states}, "properties": {props} }}, "guards": "{guards}" }}"#,
             lib.display()
         ),
     )
@@ -156,35 +246,91 @@ fn info(nstate: usize, nprop: usize) -> RoutineInfo {
     }
 }
 
-/// The probe itself: the J2 routine passes, the shared-buffer one fails with a reason.
-#[test]
-fn the_probe_passes_a_thread_safe_routine_and_catches_a_shared_buffer() {
+/// The reason the probe gives, or `None` when the routine passed it.
+fn probe_verdict(symbol: &str, nstate: usize, props: &[f64]) -> Option<String> {
     let lib = Library::open(c_lib()).unwrap();
     let path = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 40, 40);
     let settings = tancheck::core::Settings { jobs: 2, ..Default::default() };
-    let j2_props = [210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0];
-    let mut j2 = lib.routine("c_j2", info(13, 7)).unwrap();
-    let i = info(13, 7);
-    let driver = Driver::new(&i, &j2_props, PointState::zero(&i, 20.0)).unwrap();
-    let mut caller = Caller::new(&mut j2);
-    let mut notes = Vec::new();
-    let plan = concurrent::plan(&mut caller, &driver, &path, &settings, &mut notes);
-    assert!(plan.is_some_and(|h| h.len() == 1), "{notes:?}");
-    assert!(notes.is_empty());
-    assert_eq!((caller.real_calls, caller.complex_calls), (0, 0), "the probe's calls are not counted");
-
-    let mut shared = lib.routine("c_elastic_shared", info(0, 2)).unwrap();
-    let i = info(0, 2);
-    let driver = Driver::new(&i, &[210000.0, 0.3], PointState::zero(&i, 20.0)).unwrap();
-    let mut caller = Caller::new(&mut shared);
-    let plan = concurrent::plan(&mut caller, &driver, &path, &settings, &mut notes);
-    assert!(plan.is_none());
-    assert_eq!(notes.len(), 1, "{notes:?}");
-    assert!(
-        notes[0].starts_with("checked on one thread instead of 2: calls from several threads at once"),
-        "{}",
-        notes[0]
+    let i = info(nstate, props.len());
+    let mut routine = lib.routine(symbol, i.clone()).unwrap();
+    let driver = Driver::new(&i, props, PointState::zero(&i, 20.0)).unwrap();
+    let mut caller = Caller::new(&mut routine);
+    assert!(concurrent::plan(&mut caller, &path, &settings).is_some_and(|p| p.handles.len() == 1));
+    let verdict = concurrent::probe(&mut caller, &driver, &path, &settings);
+    assert_eq!(
+        (caller.real_calls, caller.complex_calls),
+        (0, 0),
+        "{symbol}: the probe's calls are not counted"
     );
+    match verdict {
+        Ok(()) => None,
+        Err(concurrent::Serial::Because(why)) => Some(why),
+        Err(concurrent::Serial::WalkFaulted) => panic!("{symbol}: the walk faulted"),
+    }
+}
+
+/// The probe itself: the J2 routine passes, the shared-buffer one fails with a reason.
+#[test]
+fn the_probe_passes_a_thread_safe_routine_and_catches_a_shared_buffer() {
+    assert_eq!(probe_verdict("c_j2", 13, &[210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0]), None);
+    let why = probe_verdict("c_elastic_shared", 0, &[210000.0, 0.3]).expect("the shared buffer is caught");
+    assert!(why.starts_with("calls from several threads at once"), "{why}");
+}
+
+/// The probe also calls increments of the path from the states the path reaches: a routine
+/// whose work array is shared only in a loaded state is caught.
+#[test]
+fn the_probe_catches_a_shared_buffer_used_only_once_the_path_has_loaded_the_point() {
+    let why = probe_verdict("c_late_shared", 0, &[210000.0, 0.3]).expect("the late shared buffer is caught");
+    assert!(
+        why.starts_with("calls from several threads at once")
+            && why.contains("of the path, from the state the path reached"),
+        "{why}"
+    );
+}
+
+/// The JSON report without its notes.
+fn without_notes(json: &[u8]) -> serde_json::Value {
+    let mut v: serde_json::Value = serde_json::from_slice(json).expect("a JSON report");
+    v.as_object_mut().expect("an object").remove("notes");
+    v
+}
+
+/// Routines whose loaded calls depend on the calls before them. The guards' repeated first
+/// call of a newly reached branch catches both (exit 3, on one thread and on two); without the
+/// guards, the probe's calls of the path's increments catch the one that counts its calls,
+/// and the comparison after the threads catches the one whose base calls within a check
+/// differ from a walk's (the calls before them differ): the check is made again on one thread,
+/// with the same report as `--jobs 1` but for the note saying why.
+#[test]
+fn a_result_that_depends_on_the_calls_before_has_the_check_made_on_one_thread() {
+    for symbol in ["c_late_count", "c_late_after_perturbed"] {
+        let (c1, _, t1) = check(c_lib(), symbol, 0, ELASTIC_PROPS, 1);
+        let (c2, _, t2) = check(c_lib(), symbol, 0, ELASTIC_PROPS, 2);
+        assert_eq!((c1, c2), (Some(3), Some(3)), "{t1}\n{t2}");
+        assert!(t2.contains("gave different results for two identical calls"), "{t2}");
+    }
+
+    let (code, json, t) = check_guarded(c_lib(), "c_late_count", 0, ELASTIC_PROPS, 2, "off");
+    assert_ne!(code, Some(3), "{t}");
+    let json = String::from_utf8(json).unwrap();
+    assert!(
+        json.contains("checked on one thread instead of 2: the same call gave different results"),
+        "{json}"
+    );
+
+    let (c1, j1, t1) = check_guarded(c_lib(), "c_late_after_perturbed", 0, ELASTIC_PROPS, 1, "off");
+    let (c2, j2, t2) = check_guarded(c_lib(), "c_late_after_perturbed", 0, ELASTIC_PROPS, 2, "off");
+    assert_eq!(c1, c2, "{t1}\n{t2}");
+    assert_ne!(c1, Some(3), "{t1}");
+    let text = String::from_utf8(j2.clone()).unwrap();
+    assert!(
+        text.contains("checked on one thread instead of 2: increment ")
+            && text.contains("ended in another state within the check than in a walk of the path"),
+        "{text}"
+    );
+    assert!(!String::from_utf8(j1.clone()).unwrap().contains("checked on one thread"));
+    assert_eq!(without_notes(&j1), without_notes(&j2));
 }
 
 /// Through the command line: the shared-buffer routine runs on one thread, says why, and

@@ -69,15 +69,24 @@ pub fn run_with(
     let stopped_at_zero = merged.increments.last_faulted();
     // Several threads when the settings ask for them and the routine is safe to call from
     // several at once (see `concurrent`); otherwise, or for a short path, one.
-    let plan = if stopped_at_zero {
-        None
-    } else {
-        concurrent::plan(caller, &driver, path, settings, &mut merged.notes)
-    };
-    match plan {
-        Some(handles) if !stopped_at_zero => {
+    let plan = if stopped_at_zero { None } else { concurrent::plan(caller, path, settings) };
+    let chunks = match plan {
+        Some(plan) if !stopped_at_zero => {
+            let threads = plan.threads();
             let job = concurrent::Job { info: &info, props, start: driver.start(), path, settings, keep };
-            let chunks = concurrent::walk(caller, handles, job);
+            match concurrent::walk(caller, plan, job) {
+                Ok(chunks) => Some(chunks),
+                Err(concurrent::Serial::Because(why)) => {
+                    merged.notes.push(format!("checked on one thread instead of {threads}: {why}"));
+                    None
+                }
+                Err(concurrent::Serial::WalkFaulted) => None,
+            }
+        }
+        _ => None,
+    };
+    match chunks {
+        Some(chunks) => {
             for chunk in chunks {
                 let stop = merged.take_chunk(
                     chunk.collected,
@@ -94,7 +103,7 @@ pub fn run_with(
                 }
             }
         }
-        _ => {
+        None => {
             let mut walk = increment::Walk::new(driver, settings);
             for (k, inc) in path.increments.iter().enumerate() {
                 if merged.increments.last_faulted() {

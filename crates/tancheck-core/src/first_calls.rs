@@ -66,7 +66,7 @@ pub fn zero_increment(
 }
 
 /// Branches reached so far, as (reported id, state changed).
-#[derive(Default)]
+#[derive(Clone, Default)]
 pub struct Branches(Vec<(Option<i32>, bool)>);
 
 impl Branches {

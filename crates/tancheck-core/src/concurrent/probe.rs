@@ -1,0 +1,241 @@
+//! Whether a routine is safe to call from several threads: the walk of the path with base
+//! calls that the second thread makes (the shares' starts, the states worth probing, a
+//! fingerprint of every increment's end state) and the probe of those states.
+
+use crate::driver::{Driver, PointState};
+use crate::first_calls::Branches;
+use crate::increment;
+use crate::path::Path;
+use crate::routine::{Caller, Routine};
+use crate::settings::Settings;
+
+/// Increments of the probe, as multiples of the path's first increment.
+const PROBE_SCALES: [f64; 6] = [1.0, 2.0, -1.0, 4.0, -3.0, 8.0];
+/// Increments of the path the probe calls from the states the walk reached: at most this many
+/// first increments of a branch, and the increments at these fractions of the path.
+const BRANCH_PROBES: usize = 4;
+const SPREAD_PROBES: [f64; 3] = [0.25, 0.5, 0.75];
+/// Rounds over the probe's increments each thread makes at once with the others.
+const PROBE_ROUNDS: usize = 200;
+
+/// A fingerprint of a point state, bit for bit: a change of any one word changes it (each
+/// word is mixed in by a bijection of the running value).
+pub fn fingerprint(s: &PointState) -> u64 {
+    let words = s.strain.iter().chain(&s.stress).chain(&s.state).chain([&s.temp, &s.time]);
+    words.fold(0xcbf2_9ce4_8422_2325u64, |h, x| {
+        (h ^ x.to_bits()).wrapping_mul(0x0000_0100_0000_01b3).rotate_left(23)
+    })
+}
+
+/// What the walk of the path with base calls saw.
+pub(super) struct Walked {
+    /// The driver at the start of the increment before the second thread's share, and the
+    /// branches reached before that increment.
+    pub(super) second: Option<(Driver, Branches)>,
+    /// The fingerprint of every increment's end state (see [`fingerprint`]).
+    pub(super) fingerprints: Vec<u64>,
+    /// Drivers set for increments of the path worth probing: the first one of every branch
+    /// (reported branch and whether the state changed) the walk saw, at most
+    /// [`BRANCH_PROBES`], those at the fractions [`SPREAD_PROBES`] of the path (states a
+    /// routine that reports no branches reaches too), and the last that changed the state.
+    pub(super) probes: Vec<(usize, Driver)>,
+}
+
+/// Walk `path` from `driver`'s start with base calls on `routine`; `None` when a call faults.
+/// At the increment before thread t's share (`bounds[t] - 1`), the driver and the branches
+/// reached so far go to `later[t - 2]` for t ≥ 2, and into the result for t = 1.
+pub(super) fn walk_path(
+    routine: &mut dyn Routine,
+    driver: &Driver,
+    path: &Path,
+    settings: &Settings,
+    bounds: &[usize],
+    later: Vec<std::sync::mpsc::Sender<(Driver, Branches)>>,
+) -> Option<Walked> {
+    let mut caller = Caller::new(routine);
+    let mut walk = increment::Walk::new(driver.clone(), settings);
+    let n = path.increments.len();
+    let mut out = Walked { second: None, fingerprints: Vec::with_capacity(n), probes: Vec::new() };
+    let mut seen = Branches::default();
+    // The deepest inelastic state the path reached (a driver cloned per such increment: the
+    // walk is made once per check).
+    let mut last_changed: Option<(usize, Driver)> = None;
+    let mut branch_probes = 0;
+    for (k, inc) in path.increments.iter().enumerate() {
+        if let Some(t) = bounds[1..bounds.len() - 1].iter().position(|b| *b == k + 1) {
+            let here = (walk.driver.clone(), walk.reached.clone());
+            if t == 0 {
+                out.second = Some(here);
+            } else if let Some(tx) = later.get(t - 1) {
+                // A thread that has stopped waiting no longer needs it.
+                let _ = tx.send(here);
+            }
+        }
+        walk.set(k, inc, &mut caller).0.ok()?;
+        walk.driver.base_call(&mut caller).ok()?;
+        let b = walk.driver.base.outcome.branch;
+        let branch = (b >= 0).then_some(b);
+        let changed = walk.driver.base.state.iter().zip(&walk.driver.start().state).any(|(a, b)| a != b);
+        if settings.first_calls {
+            walk.reached.first(branch, changed);
+        }
+        let spread = SPREAD_PROBES.iter().any(|f| (f * n as f64) as usize == k);
+        let first_of_branch = seen.first(branch, changed) && branch_probes < BRANCH_PROBES;
+        branch_probes += usize::from(first_of_branch);
+        if first_of_branch || spread {
+            out.probes.push((k, walk.driver.clone()));
+        } else if changed {
+            last_changed = Some((k, walk.driver.clone()));
+        }
+        walk.driver.advance();
+        out.fingerprints.push(fingerprint(walk.driver.start()));
+    }
+    out.probes.extend(last_changed);
+    Some(out)
+}
+
+/// The outputs of one probe call, bit for bit (or the fault's words).
+type Bits = Result<Vec<u64>, String>;
+
+fn probe_call(caller: &mut Caller<'_>, d: &mut Driver) -> Bits {
+    d.base_call(caller).map_err(|f| f.to_string())?;
+    let o = &d.base;
+    let mut v: Vec<u64> =
+        o.stress.iter().chain(&o.state).chain(&o.tangent).chain(&o.energy).map(|x| x.to_bits()).collect();
+    v.push(o.outcome.status as u64);
+    v.push(o.outcome.branch as u64);
+    Ok(v)
+}
+
+fn describe(label: &str, got: &Bits, want: &Bits) -> String {
+    let what = match (got, want) {
+        (Ok(a), Ok(b)) => match a.iter().zip(b).position(|(x, y)| x != y) {
+            Some(k) => format!("output word {k} differs"),
+            None => "outputs differ".into(),
+        },
+        (Err(e), _) | (_, Err(e)) => format!("one of them failed ({e})"),
+    };
+    format!("{label}: {what}")
+}
+
+/// Whether the routine behind `handles` (at least one; one per thread) gives the same outputs,
+/// bit for bit, whatever the order of its calls and when called from every thread at once.
+/// The calls: multiples of the path's first increment from `driver`'s start, and the
+/// increments of the path `path_probes` holds (index, driver set for it by a walk).
+pub fn thread_safety(
+    handles: &mut [Box<dyn Routine + Send>],
+    driver: &Driver,
+    path: &Path,
+    path_probes: &[(usize, Driver)],
+) -> Result<(), String> {
+    let Some((first, others)) = handles.split_first_mut() else {
+        return Ok(());
+    };
+    let mut main = Caller::new(&mut **first);
+    let caller = &mut main;
+    let conv = caller.info().convention.clone();
+    let n = conv.ncomp();
+    let first = path.increments.first().map(|i| i.dstrain).unwrap_or([1e-4; 6]);
+    let mut d0 = vec![0.0; n];
+    conv.strain_from_canonical(&first, &mut d0);
+    if d0.iter().all(|x| *x == 0.0) {
+        d0.iter_mut().for_each(|x| *x = 1e-4);
+    }
+    let mut probes: Vec<(String, Driver)> = PROBE_SCALES
+        .iter()
+        .enumerate()
+        .map(|(i, s)| {
+            let mut d = driver.clone();
+            d.set_dstrain(&d0.iter().map(|x| x * s).collect::<Vec<f64>>());
+            (format!("probe increment {} ({s} × the first increment)", i + 1), d)
+        })
+        .collect();
+    probes.extend(path_probes.iter().map(|(k, d)| {
+        (format!("increment {} of the path, from the state the path reached", k + 1), d.clone())
+    }));
+    let want: Vec<Bits> = probes.iter_mut().map(|(_, d)| probe_call(caller, d)).collect();
+    let result = (|| {
+        for (i, (label, d)) in probes.iter_mut().enumerate().rev() {
+            let got = probe_call(caller, d);
+            if got != want[i] {
+                return Err(format!(
+                    "the same call gave different results after other calls (static or SAVE variables?): {}",
+                    describe(label, &got, &want[i])
+                ));
+            }
+        }
+        let run =
+            |c: &mut Caller<'_>, probes: &mut [(String, Driver)], offset: usize| -> Result<(), String> {
+                for r in 0..PROBE_ROUNDS {
+                    for k in 0..probes.len() {
+                        let i = (k + offset + r) % probes.len();
+                        let (label, d) = &mut probes[i];
+                        let got = probe_call(c, d);
+                        if got != want[i] {
+                            return Err(describe(label, &got, &want[i]));
+                        }
+                    }
+                }
+                Ok(())
+            };
+        let outcome: Vec<Result<(), String>> = std::thread::scope(|s| {
+            let mut joins = Vec::new();
+            for (t, h) in others.iter_mut().enumerate() {
+                let mut mine = probes.clone();
+                let run = &run;
+                joins.push(s.spawn(move || {
+                    let mut c = Caller::new(&mut **h);
+                    run(&mut c, &mut mine, t + 1)
+                }));
+            }
+            let mut out = vec![run(caller, &mut probes, 0)];
+            out.extend(
+                joins.into_iter().map(|j| j.join().unwrap_or_else(|_| Err("a probe thread panicked".into()))),
+            );
+            out
+        });
+        match outcome.into_iter().find_map(Result::err) {
+            Some(e) => Err(format!(
+                "calls from several threads at once gave different results from one at a time: {e}"
+            )),
+            None => Ok(()),
+        }
+    })();
+    result
+}
+
+/// Calls of the probe, at most (see [`thread_safety`]).
+pub(super) const PROBE_CALLS: usize =
+    (PROBE_ROUNDS + 2) * (PROBE_SCALES.len() + BRANCH_PROBES + SPREAD_PROBES.len() + 1);
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_fingerprint_changes_with_any_one_bit_of_the_state() {
+        let s = PointState {
+            strain: vec![1e-3, 0.0, -2e-4],
+            stress: vec![210.0, 0.0, 1.5],
+            state: vec![0.0, 3e-5],
+            temp: 20.0,
+            time: 7.0,
+        };
+        let f = fingerprint(&s);
+        let fields = s.strain.len() + s.stress.len() + s.state.len() + 2;
+        for w in 0..fields {
+            for bit in [0, 1, 31, 52, 63] {
+                let mut t = s.clone();
+                let x = match w {
+                    w if w < 3 => &mut t.strain[w],
+                    w if w < 6 => &mut t.stress[w - 3],
+                    w if w < 8 => &mut t.state[w - 6],
+                    8 => &mut t.temp,
+                    _ => &mut t.time,
+                };
+                *x = f64::from_bits(x.to_bits() ^ (1u64 << bit));
+                assert_ne!(fingerprint(&t), f, "word {w}, bit {bit}");
+            }
+        }
+    }
+}
