@@ -84,8 +84,15 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
         // As the command line does (session.rs): the check again on one thread.
         routine.take_findings();
         routine.reset_guard_calls();
-        report = run(&mut routine, &tancheck_core::Settings { jobs: 1, ..plan.settings.clone() })?;
-        report.settings.jobs = plan.settings.jobs;
+        let threaded = std::mem::replace(
+            &mut report,
+            run(&mut routine, &tancheck_core::Settings { jobs: 1, ..plan.settings.clone() })?,
+        );
+        report.notes.extend(tancheck_core::concurrent::redo_note(
+            &threaded,
+            &report,
+            !routine.findings().is_empty(),
+        ));
     }
     let findings = routine.take_findings();
     Ok(finish(report, findings, plan.guard_level, routine.guard_calls()))

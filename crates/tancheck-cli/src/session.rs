@@ -137,8 +137,15 @@ pub fn run_manifest_with(
         // The check again on one thread (see `concurrent::redo_on_one_thread`; misbehaving
         // routines only).
         let serial = tancheck_core::Settings { jobs: 1, ..m.check.clone() };
-        report = check_loaded(&mut loaded, m, path, keep, progress, &serial)?;
-        report.settings.jobs = m.check.jobs;
+        let threaded =
+            std::mem::replace(&mut report, check_loaded(&mut loaded, m, path, keep, progress, &serial)?);
+        if let Loaded::Library(lib) = &loaded {
+            report.notes.extend(tancheck_core::concurrent::redo_note(
+                &threaded,
+                &report,
+                !lib.findings().is_empty(),
+            ));
+        }
     }
     if let Loaded::Library(lib) = &mut loaded {
         let findings = lib.take_findings();

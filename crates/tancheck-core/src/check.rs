@@ -70,17 +70,27 @@ pub fn run_with(
     // Several threads when the settings ask for them and the routine is safe to call from
     // several at once (see `concurrent`); otherwise, or for a short path, one.
     let plan = if stopped_at_zero { None } else { concurrent::plan(caller, path, settings) };
+    // The threads the path was checked on (1 also when a check on several gave way).
+    let mut threads_used = 1;
+    // The fault that ended the walk of a check on several threads (see below).
+    let mut walk_fault = None;
     let chunks = match plan {
         Some(plan) if !stopped_at_zero => {
             let threads = plan.threads();
             let job = concurrent::Job { info: &info, props, start: driver.start(), path, settings, keep };
             match concurrent::walk(caller, plan, job) {
-                Ok(chunks) => Some(chunks),
+                Ok(chunks) => {
+                    threads_used = threads;
+                    Some(chunks)
+                }
                 Err(concurrent::Serial::Because(why)) => {
                     merged.notes.push(format!("checked on one thread instead of {threads}: {why}"));
                     None
                 }
-                Err(concurrent::Serial::WalkFaulted) => None,
+                Err(concurrent::Serial::WalkFaulted(fault)) => {
+                    walk_fault = Some((threads, fault));
+                    None
+                }
             }
         }
         _ => None,
@@ -118,6 +128,13 @@ pub fn run_with(
                 }
             }
         }
+    }
+    // A walk fault that one thread did not meet came from calls on several threads at once.
+    if let Some((n, fault)) = walk_fault.filter(|_| !merged.increments.any_fault) {
+        merged.notes.push(format!(
+            "checked on one thread instead of {n}: a call of the walk on {n} threads faulted ({fault}) where \
+             the same call on one thread did not (calls from several threads at once disturb each other)"
+        ));
     }
     let Merged { notes, increments, unloaded, .. } = merged;
 
@@ -172,7 +189,7 @@ pub fn run_with(
             complex_twin: has_twin,
         },
         path: path.name.clone(),
-        settings: settings.clone(),
+        settings: Settings { jobs: threads_used, ..settings.clone() },
         kept: keep,
         records,
         increments,
@@ -214,14 +231,18 @@ impl Merged {
         collected: Collector,
         notes: Vec<String>,
         unloaded: bool,
-        first_elastic: Option<Option<Vec<f64>>>,
+        first_elastic: Option<(Option<Vec<f64>>, usize)>,
         conv: &crate::Convention,
     ) -> bool {
         self.unloaded |= unloaded;
-        self.notes.extend(notes);
-        if let Some(best) = first_elastic {
+        // The notes in the order one thread gives them: the conventions warning after the
+        // notes of the increments up to the first elastic one.
+        let mut notes = notes.into_iter();
+        if let Some((best, before)) = first_elastic {
+            self.notes.extend(notes.by_ref().take(before));
             self.first_elastic(best.as_deref(), conv);
         }
+        self.notes.extend(notes);
         self.increments.append(collected);
         self.increments.last_faulted()
     }

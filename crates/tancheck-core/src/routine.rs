@@ -350,6 +350,11 @@ impl<'r> Caller<'r> {
         self.routine.guard_next_call_fully()
     }
 
+    /// See [`Routine::guard_extra_calls`].
+    pub fn guard_extra_calls(&self) -> u64 {
+        self.routine.guard_extra_calls()
+    }
+
     /// See [`Routine::absorb_guard_extra_calls`].
     pub fn absorb_guard_extra_calls(&mut self, n: u64) {
         self.routine.absorb_guard_extra_calls(n)

@@ -54,8 +54,9 @@ pub struct Settings {
     pub first_calls: bool,
     /// Threads a check may use (`--jobs`); 1 (the default) for one. More are used only for a
     /// routine that offers handles for other threads and passes the probe of
-    /// [`crate::concurrent`]; the report is the same whatever the number. Not part of a
-    /// manifest or a report.
+    /// [`crate::concurrent`]; the report is the same whatever the number. In a report's
+    /// settings: the threads the path was checked on. Not part of a manifest or of a report's
+    /// JSON.
     #[serde(skip)]
     pub jobs: usize,
 }

@@ -2,26 +2,28 @@
 //!
 //! The increments of a path depend on each other only through the start state (and, for a
 //! failing increment's diagnosis, the previous increment's numerical tangent; for the full
-//! guards, which branches were reached before). So the path is cut into consecutive shares
-//! of equal length, one per thread. Before the threads start, the path is walked once on a
-//! handle of its own with base calls only (one call per increment instead of the ~19 of a
-//! check): it gives every later thread the start state of its share (and the branches reached
-//! before it), the states of the path [`thread_safety`] probes, and a fingerprint of every
-//! increment's end state. The first thread then checks its share from the path's start; every
-//! other thread checks the increment just before its share for its tangent and then its share,
-//! exactly as one thread would. The shares are merged in path order; a fault ends the path
-//! where one thread would have ended it. Same inputs, same calls, same results, bit for bit.
+//! guards, which branches were reached before). So the path is cut into consecutive shares,
+//! one per thread, each thread calling a handle of its own. The first thread checks its share
+//! from the path's start at once. The second walks the whole path with base calls only (one
+//! call per increment instead of the ~23 of a check; `probe::walk_path`), handing every later
+//! thread the start of its share as it passes it and keeping a fingerprint of every
+//! increment's end state, then probes the routine ([`thread_safety`]) and checks its share. A
+//! later thread checks the increment just before its share for its tangent and then its
+//! share, exactly as one thread would. The shares are merged in path order; a fault ends the
+//! path where one thread would have ended it. Same inputs, same calls, same results, bit for
+//! bit.
 //!
-//! That holds only for a routine whose calls do not disturb each other. Before a check uses
-//! threads, [`thread_safety`] calls the routine with a few increments (multiples of the
-//! path's first one from its start, and increments of the path from the states the walk
-//! reached, one per branch it saw), one after the other in two orders and then on every
-//! thread at once, and compares the outputs bit for bit. A routine that fails (static or SAVE
-//! variables, shared work buffers, a result that depends on the calls before) is checked on
-//! one thread, and the report says why. After the threads, every increment's end state is
-//! compared with the walk's fingerprint; a difference (a result that depends on the calls
-//! before, or a race the probe did not see) has the check made again on one thread, with the
-//! reason in the report.
+//! That holds only for a routine whose calls do not disturb each other. [`thread_safety`]
+//! calls the routine with a few increments (multiples of the path's first one from its start,
+//! and increments of the path from the states the walk reached), each with and without the
+//! tangent, one after the other in two orders and then on every thread at once, and compares
+//! the outputs bit for bit. A routine that fails it (static or SAVE variables, shared work
+//! buffers, a result that depends on the calls before) stops the threads, and the path is
+//! checked on one thread with a note saying why. After the threads, every increment's end
+//! state is compared with the walk's fingerprint; a difference (a result that depends on the
+//! calls before, or a race the probe did not see) has the path checked on one thread too.
+//! A path too short to pay for the walk and the probe is checked on one thread
+//! ([`worth_threads`]).
 
 use std::ops::Range;
 
@@ -42,20 +44,44 @@ use probe::{walk_path, PROBE_CALLS};
 /// A path shorter than this many increments per thread is checked on fewer threads.
 pub const MIN_INCREMENTS_PER_THREAD: usize = 32;
 
-/// Whether a check made with `jobs` > 1 must be made again on one thread, with the guards'
-/// findings and extra calls of the routine's handle cleared first: the guards of the caller's
-/// handle found something (`guard_findings`), a call faulted, or the report stops short of the
-/// path's `increments` without a fault (a later thread's walk to its share failed). Each
-/// thread's handle keeps its own guard findings, and a finding new to a handle ends that call
-/// with a fault, so only one thread walking the path in order places a finding's first
-/// occurrence where one thread would. Only misbehaving routines pay for it.
+/// Whether a check made on several threads (`report.settings.jobs` > 1: the threads the path
+/// was checked on) must be made again on one thread, with the guards' findings and extra
+/// calls of the routine's handle cleared first: the guards of the caller's handle found
+/// something (`guard_findings`), a call faulted, or the report stops short of the path's
+/// `increments` without a fault (a later thread's walk to its share failed). Each thread's
+/// handle keeps its own guard findings, and a finding new to a handle ends that call with a
+/// fault, so only one thread walking the path in order places a finding's first occurrence
+/// where one thread would. Only misbehaving routines pay for it.
 pub fn redo_on_one_thread(report: &crate::report::Report, guard_findings: bool, increments: usize) -> bool {
+    report.settings.jobs > 1 && (guard_findings || faulted(report) || report.records.len() < increments)
+}
+
+/// A call of the check faulted.
+fn faulted(report: &crate::report::Report) -> bool {
     use crate::report::CheckOutcome;
-    let faulted = report
+    report
         .increments
         .iter()
-        .any(|i| i.fault.is_some() || i.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_))));
-    report.settings.jobs > 1 && (guard_findings || faulted || report.records.len() < increments)
+        .any(|i| i.fault.is_some() || i.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_))))
+}
+
+/// The note for the `serial` report of a check made again on one thread after `threaded`
+/// (see [`redo_on_one_thread`]), when the calls on one thread neither faulted nor gave the
+/// guards a finding (`serial_findings`): what went wrong on several threads came from their
+/// calls disturbing each other.
+pub fn redo_note(
+    threaded: &crate::report::Report,
+    serial: &crate::report::Report,
+    serial_findings: bool,
+) -> Option<String> {
+    let n = threaded.settings.jobs;
+    (!serial_findings && !faulted(serial)).then(|| {
+        format!(
+            "checked on one thread instead of {n}: calls on {n} threads faulted or were flagged by the \
+             memory guards where the same calls on one thread were not (calls from several threads at once \
+             disturb each other)"
+        )
+    })
 }
 
 /// The threads' share of the path, in path order.
@@ -68,8 +94,9 @@ pub struct Chunk {
     /// Some increment of the share unloaded.
     pub unloaded: bool,
     /// The best numerical tangent of the share's first checked increment that left the state
-    /// unchanged (for the conventions warning), when there was one.
-    pub first_elastic: Option<Option<Vec<f64>>>,
+    /// unchanged (for the conventions warning), when there was one, and how many of `notes`
+    /// came before it (one thread places the warning there).
+    pub first_elastic: Option<(Option<Vec<f64>>, usize)>,
     /// Calls made to check the share (the walk to it not included).
     pub real_calls: u64,
     pub complex_calls: u64,
@@ -78,12 +105,16 @@ pub struct Chunk {
     /// The fingerprint of the end state of each increment of the share that did not stop the
     /// path, in path order (see [`fingerprint`]).
     pub checked: Vec<u64>,
+    /// Extra calls of the guards the increment before the share made (one thread makes them
+    /// once, in the share before).
+    before_extra_calls: u64,
 }
 
 /// What a check on several threads starts from: a handle for each thread beyond the
 /// caller's, and one per thread for the walk and the probe.
 pub struct Plan {
-    /// Handles for the threads beyond the caller's.
+    /// A handle for each thread, the first one's included: a check given up for one thread
+    /// leaves no guard finding or extra call on the caller's routine.
     pub handles: Vec<Box<dyn Routine + Send>>,
     /// Handles of the walk and the probe (one per thread), dropped after them: what the memory
     /// guards of the caller's routine and of the threads' handles record stays the check's.
@@ -93,7 +124,7 @@ pub struct Plan {
 impl Plan {
     /// The threads of the check.
     pub fn threads(&self) -> usize {
-        self.handles.len() + 1
+        self.handles.len()
     }
 }
 
@@ -103,21 +134,32 @@ pub enum Serial {
     /// The routine failed the probe, or an increment ended in another state than the walk
     /// reached: the report says so.
     Because(String),
-    /// A call of the walk faulted: the check on one thread meets the fault where it is.
-    WalkFaulted,
+    /// A call of the walk faulted (the increment and the fault): the check on one thread
+    /// meets the fault where it is, or, when it does not, says that this one came from calls
+    /// on several threads disturbing each other.
+    WalkFaulted(String),
 }
 
 /// Handles for a check on several threads, when `settings.jobs` asks for more than one, the
-/// path is long enough and the routine offers handles. Whether the routine is safe to call
-/// from several threads is found while the check runs ([`walk`]).
+/// routine offers handles and the path is long enough for the threads to pay for the walk and
+/// the probe ([`worth_threads`]). Whether the routine is safe to call from several threads is
+/// found while the check runs ([`walk`]).
 pub fn plan(caller: &mut Caller<'_>, path: &Path, settings: &Settings) -> Option<Plan> {
-    let jobs = settings.jobs.min(path.increments.len() / MIN_INCREMENTS_PER_THREAD);
-    if jobs < 2 {
-        return None;
-    }
+    let n = path.increments.len();
+    let w = calls_per_increment(settings, caller.info().convention.ncomp());
+    let most = settings.jobs.min(n / MIN_INCREMENTS_PER_THREAD);
+    let jobs = (2..=most).rev().find(|t| worth_threads(n, *t, w))?;
     let probing = (0..jobs).map(|_| caller.another()).collect::<Option<Vec<_>>>()?;
-    let handles = (1..jobs).map(|_| caller.another()).collect::<Option<Vec<_>>>()?;
+    let handles = (0..jobs).map(|_| caller.another()).collect::<Option<Vec<_>>>()?;
     Some(Plan { handles, probing })
+}
+
+/// Whether checking a path of `n` increments on `threads` threads, `w` calls per increment,
+/// takes clearly less time than on one: at most 0.8 of it, counting the walk and the probe on
+/// the second thread.
+pub fn worth_threads(n: usize, threads: usize, w: f64) -> bool {
+    let (_, time) = shares_and_time(n, threads, w, PROBE_CALLS as f64);
+    time <= 0.8 * n as f64 * w
 }
 
 /// Whether the routine behind `caller` is safe to call from `settings.jobs` threads along
@@ -136,7 +178,7 @@ pub fn probe(
         .ok_or_else(|| Serial::Because("the routine offers no handle for another thread".into()))?;
     let bounds = [0, path.increments.len() / 2, path.increments.len()];
     let walked = walk_path(&mut *probing[0], driver, path, settings, &bounds, Vec::new())
-        .ok_or(Serial::WalkFaulted)?;
+        .map_err(Serial::WalkFaulted)?;
     thread_safety(&mut probing, driver, path, &walked.probes).map_err(Serial::Because)
 }
 
@@ -147,6 +189,11 @@ pub fn probe(
 /// thread starts when the walk passes its share's start (s_t calls), checks the increment
 /// before its share and then its share.
 pub fn shares(increments: usize, threads: usize, w: f64, probe: f64) -> Vec<usize> {
+    shares_and_time(increments, threads, w, probe).0
+}
+
+/// [`shares`], and the time the threads take, in calls.
+fn shares_and_time(increments: usize, threads: usize, w: f64, probe: f64) -> (Vec<usize>, f64) {
     let (n, w) = (increments as f64, w.max(1.0));
     // The starts for a common finishing time c (in calls).
     let starts = |c: f64| {
@@ -181,7 +228,7 @@ pub fn shares(increments: usize, threads: usize, w: f64, probe: f64) -> Vec<usiz
         b[t] = b[t].max(b[t - 1] + 1).min(increments.saturating_sub(threads - t));
     }
     b.push(increments);
-    b
+    (b, hi)
 }
 
 /// Calls one increment's check makes, about: the base call and every scheme's columns.
@@ -212,9 +259,9 @@ pub struct Job<'a> {
     pub keep: Keep,
 }
 
-/// Check `job.path` on the caller's thread and one thread per handle of `plan`, in shares;
-/// the chunks in path order. The caller's counts are left as they were: the chunks carry
-/// theirs.
+/// Check `job.path` on the caller's thread and one more thread per handle of `plan` beyond the
+/// first, in shares; the chunks in path order. The caller's counts are left as they were: the
+/// chunks carry theirs.
 ///
 /// The first thread checks its share at once. The second walks the whole path with base
 /// calls on a handle of its own (passing each later thread the start of its share as it gets
@@ -224,6 +271,8 @@ pub struct Job<'a> {
 /// faulted walk stops the threads at their next increment and gives [`Serial`]: the check is
 /// then to be made on one thread.
 pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chunk>, Serial> {
+    // Every thread calls a handle of the plan's; the caller's routine only takes the guards'
+    // extra calls of a check that stands.
     use std::sync::atomic::{AtomicBool, Ordering};
     use std::sync::mpsc;
     let Job { info, props, start, path, settings, .. } = job;
@@ -231,18 +280,22 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
     let w = calls_per_increment(settings, info.convention.ncomp());
     let b = shares(path.increments.len(), threads, w, PROBE_CALLS as f64);
     let Plan { handles, mut probing } = plan;
-    let driver = Driver::new(info, props, start.clone()).map_err(|_| Serial::WalkFaulted)?;
+    let driver = Driver::new(info, props, start.clone()).map_err(|e| Serial::WalkFaulted(e.to_string()))?;
     let stop = AtomicBool::new(false);
     let (senders, receivers): (Vec<_>, Vec<_>) = (2..threads).map(|_| mpsc::channel()).unzip();
     let mut handles = handles.into_iter();
+    let mut first = handles.next().expect("a plan has a handle for the first thread");
     let mut second = handles.next().expect("a plan has a handle for a second thread");
     let (b, stop, driver) = (&b, &stop, &driver);
     let (chunks, extras, walked) = std::thread::scope(|s| {
         let walker = s.spawn(move || {
             let walked = walk_path(&mut *probing[0], driver, path, settings, b, senders);
-            let Some(mut walked) = walked else {
-                stop.store(true, Ordering::Relaxed);
-                return Err(Serial::WalkFaulted);
+            let mut walked = match walked {
+                Ok(walked) => walked,
+                Err(fault) => {
+                    stop.store(true, Ordering::Relaxed);
+                    return Err(Serial::WalkFaulted(fault));
+                }
             };
             if let Err(why) = thread_safety(&mut probing, driver, path, &walked.probes) {
                 stop.store(true, Ordering::Relaxed);
@@ -251,7 +304,8 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
             drop(probing);
             let from = walked.second.take();
             let chunk = share(&mut Caller::new(&mut *second), job, b[1]..b[2], from, stop);
-            Ok((chunk, second.guard_extra_calls(), walked.fingerprints))
+            let extra = second.guard_extra_calls() - chunk.before_extra_calls;
+            Ok((chunk, extra, walked.fingerprints))
         });
         let mut joins = Vec::new();
         for ((t, mut h), rx) in handles.enumerate().zip(receivers) {
@@ -260,16 +314,14 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
                 // No start when the walk stopped before the share.
                 let from = rx.recv().ok()?;
                 let chunk = share(&mut Caller::new(&mut *h), job, range, Some(from), stop);
-                Some((chunk, h.guard_extra_calls()))
+                let extra = h.guard_extra_calls() - chunk.before_extra_calls;
+                Some((chunk, extra))
             }));
         }
-        let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
-        let first = share(caller, job, b[0]..b[1], None, stop);
-        caller.real_calls = real0;
-        caller.complex_calls = cplx0;
+        let chunk = share(&mut Caller::new(&mut *first), job, b[0]..b[1], None, stop);
+        let mut extras = first.guard_extra_calls();
         let walked = walker.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
-        let mut out = vec![first];
-        let mut extras = 0;
+        let mut out = vec![chunk];
         let fingerprints = walked.map(|(chunk, extra, fingerprints)| {
             out.push(chunk);
             extras += extra;
@@ -325,7 +377,9 @@ fn share(
         complex_calls: 0,
         complete: false,
         checked: Vec::new(),
+        before_extra_calls: 0,
     };
+    let extra0 = caller.guard_extra_calls();
     let mut walk = match from {
         None => {
             let Ok(driver) = Driver::new(info, props, start.clone()) else {
@@ -354,6 +408,7 @@ fn share(
             walk
         }
     };
+    let before_extra_calls = caller.guard_extra_calls() - extra0;
     let (real0, cplx0) = (caller.real_calls, caller.complex_calls);
     let mut collected = Collector::new(settings, keep, range.len());
     let (mut notes, mut unloaded, mut first_elastic) = (Vec::new(), false, None);
@@ -368,7 +423,7 @@ fn share(
         unloaded |= step.unloaded;
         notes.extend(step.note);
         if step.checked && first_elastic.is_none() && !step.state_changed {
-            first_elastic = Some(walk.best().map(<[f64]>::to_vec));
+            first_elastic = Some((walk.best().map(<[f64]>::to_vec), notes.len()));
         }
         if step.stops {
             complete = false;
@@ -385,12 +440,33 @@ fn share(
         complex_calls: caller.complex_calls - cplx0,
         complete,
         checked,
+        before_extra_calls,
     }
 }
 
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn threads_are_used_only_where_they_pay_for_the_walk_and_the_probe() {
+        // The default schemes on 6 components: 23 calls an increment.
+        let w = calls_per_increment(&Settings::default(), 6);
+        assert_eq!(w, 23.0);
+        assert!(!worth_threads(80, 2, w));
+        assert!(!worth_threads(200, 2, w));
+        assert!(worth_threads(400, 2, w));
+        assert!(worth_threads(20_000, 2, w));
+        assert!(worth_threads(20_000, 8, w));
+        // The smallest path worth two threads, against the balance of `shares`: the first
+        // thread's share (s·w) and the second's walk, probe and share (n + probe + (n − s)·w)
+        // take at most 0.8 of one thread's n·w.
+        let least = (1..2_000).find(|n| worth_threads(*n, 2, w)).unwrap();
+        let probe = PROBE_CALLS as f64;
+        let time = |n: f64| (n * (w + 1.0) + probe) / 2.0;
+        assert!(time(least as f64) <= 0.8 * least as f64 * w + w, "{least}");
+        assert!(time((least - 1) as f64) > 0.8 * (least - 1) as f64 * w - w, "{least}");
+    }
 
     #[test]
     fn shares_cover_the_path_and_the_threads_finish_together() {

@@ -16,7 +16,7 @@ const PROBE_SCALES: [f64; 6] = [1.0, 2.0, -1.0, 4.0, -3.0, 8.0];
 const BRANCH_PROBES: usize = 4;
 const SPREAD_PROBES: [f64; 3] = [0.25, 0.5, 0.75];
 /// Rounds over the probe's increments each thread makes at once with the others.
-const PROBE_ROUNDS: usize = 200;
+const PROBE_ROUNDS: usize = 100;
 
 /// A fingerprint of a point state, bit for bit: a change of any one word changes it (each
 /// word is mixed in by a bijection of the running value).
@@ -41,7 +41,8 @@ pub(super) struct Walked {
     pub(super) probes: Vec<(usize, Driver)>,
 }
 
-/// Walk `path` from `driver`'s start with base calls on `routine`; `None` when a call faults.
+/// Walk `path` from `driver`'s start with base calls on `routine`; the increment and the
+/// fault when a call faults.
 /// At the increment before thread t's share (`bounds[t] - 1`), the driver and the branches
 /// reached so far go to `later[t - 2]` for t ≥ 2, and into the result for t = 1.
 pub(super) fn walk_path(
@@ -51,7 +52,7 @@ pub(super) fn walk_path(
     settings: &Settings,
     bounds: &[usize],
     later: Vec<std::sync::mpsc::Sender<(Driver, Branches)>>,
-) -> Option<Walked> {
+) -> Result<Walked, String> {
     let mut caller = Caller::new(routine);
     let mut walk = increment::Walk::new(driver.clone(), settings);
     let n = path.increments.len();
@@ -71,8 +72,9 @@ pub(super) fn walk_path(
                 let _ = tx.send(here);
             }
         }
-        walk.set(k, inc, &mut caller).0.ok()?;
-        walk.driver.base_call(&mut caller).ok()?;
+        let faulted = |f: crate::routine::Fault| format!("increment {}: {f}", k + 1);
+        walk.set(k, inc, &mut caller).0.map_err(faulted)?;
+        walk.driver.base_call(&mut caller).map_err(faulted)?;
         let b = walk.driver.base.outcome.branch;
         let branch = (b >= 0).then_some(b);
         let changed = walk.driver.base.state.iter().zip(&walk.driver.start().state).any(|(a, b)| a != b);
@@ -91,19 +93,30 @@ pub(super) fn walk_path(
         out.fingerprints.push(fingerprint(walk.driver.start()));
     }
     out.probes.extend(last_changed);
-    Some(out)
+    Ok(out)
 }
 
 /// The outputs of one probe call, bit for bit (or the fault's words).
 type Bits = Result<Vec<u64>, String>;
 
+/// The increment `d` is set for, called as a check calls it: the base call (with the tangent),
+/// then the same inputs without asking for the tangent (as the perturbed calls do), so that
+/// what one kind of call leaves for the other in a static shows too.
 fn probe_call(caller: &mut Caller<'_>, d: &mut Driver) -> Bits {
     d.base_call(caller).map_err(|f| f.to_string())?;
-    let o = &d.base;
-    let mut v: Vec<u64> =
-        o.stress.iter().chain(&o.state).chain(&o.tangent).chain(&o.energy).map(|x| x.to_bits()).collect();
-    v.push(o.outcome.status as u64);
-    v.push(o.outcome.branch as u64);
+    d.perturbed_call(caller, crate::driver::Direction::Strain(0), 0.0).map_err(|f| f.to_string())?;
+    let (o, p) = (&d.base, &d.minus);
+    let mut v: Vec<u64> = o
+        .stress
+        .iter()
+        .chain(&o.state)
+        .chain(&o.tangent)
+        .chain(&o.energy)
+        .chain(&p.stress)
+        .chain(&p.state)
+        .map(|x| x.to_bits())
+        .collect();
+    v.extend([o.outcome.status, o.outcome.branch, p.outcome.status, p.outcome.branch].map(|x| x as u64));
     Ok(v)
 }
 
@@ -206,7 +219,7 @@ pub fn thread_safety(
 
 /// Calls of the probe, at most (see [`thread_safety`]).
 pub(super) const PROBE_CALLS: usize =
-    (PROBE_ROUNDS + 2) * (PROBE_SCALES.len() + BRANCH_PROBES + SPREAD_PROBES.len() + 1);
+    2 * (PROBE_ROUNDS + 2) * (PROBE_SCALES.len() + BRANCH_PROBES + SPREAD_PROBES.len() + 1);
 
 #[cfg(test)]
 mod tests {
