@@ -58,9 +58,9 @@ pub(super) fn walk_path(
     let n = path.increments.len();
     let mut out = Walked { second: None, fingerprints: Vec::with_capacity(n), probes: Vec::new() };
     let mut seen = Branches::default();
-    // The deepest inelastic state the path reached (a driver cloned per such increment: the
-    // walk is made once per check).
-    let mut last_changed: Option<(usize, Driver)> = None;
+    // The deepest inelastic state the path reached (copied into a driver of its own, no
+    // allocation per increment).
+    let (mut last_changed, mut last_driver) = (None, driver.clone());
     let mut branch_probes = 0;
     for (k, inc) in path.increments.iter().enumerate() {
         if let Some(t) = bounds[1..bounds.len() - 1].iter().position(|b| *b == k + 1) {
@@ -87,12 +87,13 @@ pub(super) fn walk_path(
         if first_of_branch || spread {
             out.probes.push((k, walk.driver.clone()));
         } else if changed {
-            last_changed = Some((k, walk.driver.clone()));
+            last_changed = Some(k);
+            last_driver.set_like(&walk.driver);
         }
         walk.driver.advance();
         out.fingerprints.push(fingerprint(walk.driver.start()));
     }
-    out.probes.extend(last_changed);
+    out.probes.extend(last_changed.map(|k| (k, last_driver)));
     Ok(out)
 }
 
