@@ -88,8 +88,12 @@ TC_ROUTINE(c_elastic_shared)
 ///   - `c_tangent_then_perturbed`: a call that asks for the tangent leaves its start stress in
 ///     a static, which the calls that do not ask for it read (right on one thread, where the
 ///     perturbed calls follow their own base call);
-///   - `c_late_fails`: reports that it cannot compute an increment once loaded past 900.
+///   - `c_late_fails`: reports that it cannot compute an increment once loaded past 900;
+///   - `c_big_abort`: ends the process on a strain increment larger than any of the path's;
+///   - `c_late_skip`: leaves its state variable unwritten once loaded.
 const LATE_C: &str = r#"
+#include <stdlib.h>
+
 #include "tancheck_cstep.h"
 #include "tancheck_routine.h"
 
@@ -164,6 +168,24 @@ TC_ROUTINE(c_late_fails)
     late_elastic(call, properties, stress0, dstrain, stress, tangent, report);
     if (tc_re(stress0[0]) > 900.0) report->status = TC_STATUS_FAILED;
     LATE_FINISH
+}
+
+TC_ROUTINE(c_big_abort)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    late_elastic(call, properties, stress0, dstrain, stress, tangent, report);
+    if (tc_re(dstrain[0]) > 1.0e-4 || tc_re(dstrain[0]) < -1.0e-4) abort();
+    LATE_FINISH
+}
+
+TC_ROUTINE(c_late_skip)
+{
+    (void)strain; (void)temperature; (void)dstress_dtemp;
+    if (!late_elastic(call, properties, stress0, dstrain, stress, tangent, report)) {
+        for (int k = 0; k < call->nstate; ++k) state[k] = state0[k];
+    }
+    energy->stored = 0.0;
+    energy->dissipated = 0.0;
 }
 
 TC_ROUTINE(c_late_after_perturbed)
@@ -368,7 +390,7 @@ fn probe_verdict(symbol: &str, nstate: usize, props: &[f64]) -> Option<String> {
     match verdict {
         Ok(()) => None,
         Err(concurrent::Serial::Because(why)) => Some(why),
-        Err(concurrent::Serial::WalkFaulted(f)) => panic!("{symbol}: the walk faulted: {f}"),
+        Err(concurrent::Serial::Faulted(f)) => panic!("{symbol}: the walk or the probe faulted: {f}"),
     }
 }
 
@@ -390,6 +412,22 @@ fn the_probe_catches_a_shared_buffer_used_only_once_the_path_has_loaded_the_poin
             && why.contains("of the path, from the state the path reached"),
         "{why}"
     );
+}
+
+/// The walk and the probe make only calls the check makes itself: a routine that ends the
+/// process on an increment no path gives it, or whose guards find something the check on one
+/// thread meets too, gives the report of one thread.
+#[test]
+fn threads_make_no_call_one_thread_would_not_and_keep_its_findings() {
+    let (c1, j1, t1) = check(c_lib(), "c_big_abort", 0, ELASTIC_PROPS, 1);
+    let (c2, j2, t2) = check(c_lib(), "c_big_abort", 0, ELASTIC_PROPS, 2);
+    assert_eq!((c1, c2), (Some(0), Some(0)), "{t1}\n{t2}");
+    assert!(j1 == j2, "the JSON reports differ:\n{t2}");
+    let (c1, j1, t1) = check(c_lib(), "c_late_skip", 1, ELASTIC_PROPS, 1);
+    let (c2, j2, t2) = check(c_lib(), "c_late_skip", 1, ELASTIC_PROPS, 2);
+    assert_eq!((c1, c2), (Some(3), Some(3)), "{t1}\n{t2}");
+    assert!(t1.contains("unwritten"), "{t1}");
+    assert!(j1 == j2, "the JSON reports differ:\n{t2}");
 }
 
 /// What a call that asks for the tangent leaves in a static for the calls that do not is

@@ -72,7 +72,7 @@ pub fn run_with(
     let plan = if stopped_at_zero { None } else { concurrent::plan(caller, path, settings) };
     // The threads the path was checked on (1 also when a check on several gave way).
     let mut threads_used = 1;
-    // The fault that ended the walk of a check on several threads (see below).
+    // The fault that ended the walk or the probe of a check on several threads (see below).
     let mut walk_fault = None;
     let chunks = match plan {
         Some(plan) if !stopped_at_zero => {
@@ -87,7 +87,7 @@ pub fn run_with(
                     merged.notes.push(format!("checked on one thread instead of {threads}: {why}"));
                     None
                 }
-                Err(concurrent::Serial::WalkFaulted(fault)) => {
+                Err(concurrent::Serial::Faulted(fault)) => {
                     walk_fault = Some((threads, fault));
                     None
                 }
@@ -129,11 +129,12 @@ pub fn run_with(
             }
         }
     }
-    // A walk fault that one thread did not meet came from calls on several threads at once.
+    // A fault of the walk or the probe that the check on one thread did not meet.
     if let Some((n, fault)) = walk_fault.filter(|_| !merged.increments.any_fault) {
         merged.notes.push(format!(
-            "checked on one thread instead of {n}: a call of the walk on {n} threads faulted ({fault}) where \
-             the same call on one thread did not (calls from several threads at once disturb each other)"
+            "checked on one thread instead of {n}: a call made to prepare the threads faulted ({fault}), where \
+             the check on one thread met no fault: the routine's results depend on the calls made before it \
+             or at the same time on other threads"
         ));
     }
     let Merged { notes, increments, unloaded, .. } = merged;

@@ -14,10 +14,9 @@
 //! bit.
 //!
 //! That holds only for a routine whose calls do not disturb each other. [`thread_safety`]
-//! calls the routine with a few increments (multiples of the path's first one from its start,
-//! and increments of the path from the states the walk reached), each with and without the
-//! tangent, one after the other in two orders and then on every thread at once, and compares
-//! the outputs bit for bit. A routine that fails it (static or SAVE variables, shared work
+//! calls the routine with a few increments of the path from the states the walk reached (only
+//! calls the check makes itself), each with and without the tangent, one after the other in
+//! two orders and then on every thread at once, and compares the outputs bit for bit. A routine that fails it (static or SAVE variables, shared work
 //! buffers, a result that depends on the calls before) stops the threads, and the path is
 //! checked on one thread with a note saying why. After the threads, every increment's end
 //! state is compared with the walk's fingerprint; a difference (a result that depends on the
@@ -38,7 +37,7 @@ use crate::settings::Settings;
 
 mod probe;
 
-pub use probe::{fingerprint, thread_safety};
+pub use probe::{fingerprint, thread_safety, ProbeFailure};
 use probe::{walk_path, PROBE_CALLS};
 
 /// A path shorter than this many increments per thread is checked on fewer threads.
@@ -134,10 +133,18 @@ pub enum Serial {
     /// The routine failed the probe, or an increment ended in another state than the walk
     /// reached: the report says so.
     Because(String),
-    /// A call of the walk faulted (the increment and the fault): the check on one thread
-    /// meets the fault where it is, or, when it does not, says that this one came from calls
-    /// on several threads disturbing each other.
-    WalkFaulted(String),
+    /// A call of the walk or of the probe faulted (the increment and the fault): the check on
+    /// one thread meets the fault where it is, or, when it does not, says so.
+    Faulted(String),
+}
+
+impl From<ProbeFailure> for Serial {
+    fn from(f: ProbeFailure) -> Serial {
+        match f {
+            ProbeFailure::Differs(why) => Serial::Because(why),
+            ProbeFailure::Faulted(fault) => Serial::Faulted(fault),
+        }
+    }
 }
 
 /// Handles for a check on several threads, when `settings.jobs` asks for more than one, the
@@ -177,9 +184,9 @@ pub fn probe(
         .collect::<Option<Vec<_>>>()
         .ok_or_else(|| Serial::Because("the routine offers no handle for another thread".into()))?;
     let bounds = [0, path.increments.len() / 2, path.increments.len()];
-    let walked = walk_path(&mut *probing[0], driver, path, settings, &bounds, Vec::new())
-        .map_err(Serial::WalkFaulted)?;
-    thread_safety(&mut probing, driver, path, &walked.probes).map_err(Serial::Because)
+    let walked =
+        walk_path(&mut *probing[0], driver, path, settings, &bounds, Vec::new()).map_err(Serial::Faulted)?;
+    thread_safety(&mut probing, &walked.probes).map_err(Serial::from)
 }
 
 /// Where the shares of `threads` threads begin, and the path's end, so that the threads
@@ -192,7 +199,7 @@ pub fn shares(increments: usize, threads: usize, w: f64, probe: f64) -> Vec<usiz
     shares_and_time(increments, threads, w, probe).0
 }
 
-/// [`shares`], and the time the threads take, in calls.
+/// [`shares`], and the time the slowest thread takes, in calls.
 fn shares_and_time(increments: usize, threads: usize, w: f64, probe: f64) -> (Vec<usize>, f64) {
     let (n, w) = (increments as f64, w.max(1.0));
     // The starts for a common finishing time c (in calls).
@@ -228,7 +235,18 @@ fn shares_and_time(increments: usize, threads: usize, w: f64, probe: f64) -> (Ve
         b[t] = b[t].max(b[t - 1] + 1).min(increments.saturating_sub(threads - t));
     }
     b.push(increments);
-    (b, hi)
+    // The time of the slowest thread, with the shares as they are.
+    let time = (0..threads)
+        .map(|t| {
+            let before = match t {
+                0 => 0.0,
+                1 => n + probe,
+                _ => b[t] as f64 + w,
+            };
+            before + (b[t + 1] - b[t]) as f64 * w
+        })
+        .fold(0.0, f64::max);
+    (b, time)
 }
 
 /// Calls one increment's check makes, about: the base call and every scheme's columns.
@@ -280,7 +298,7 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
     let w = calls_per_increment(settings, info.convention.ncomp());
     let b = shares(path.increments.len(), threads, w, PROBE_CALLS as f64);
     let Plan { handles, mut probing } = plan;
-    let driver = Driver::new(info, props, start.clone()).map_err(|e| Serial::WalkFaulted(e.to_string()))?;
+    let driver = Driver::new(info, props, start.clone()).map_err(|e| Serial::Faulted(e.to_string()))?;
     let stop = AtomicBool::new(false);
     let (senders, receivers): (Vec<_>, Vec<_>) = (2..threads).map(|_| mpsc::channel()).unzip();
     let mut handles = handles.into_iter();
@@ -294,12 +312,12 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
                 Ok(walked) => walked,
                 Err(fault) => {
                     stop.store(true, Ordering::Relaxed);
-                    return Err(Serial::WalkFaulted(fault));
+                    return Err(Serial::Faulted(fault));
                 }
             };
-            if let Err(why) = thread_safety(&mut probing, driver, path, &walked.probes) {
+            if let Err(failure) = thread_safety(&mut probing, &walked.probes) {
                 stop.store(true, Ordering::Relaxed);
-                return Err(Serial::Because(why));
+                return Err(Serial::from(failure));
             }
             drop(probing);
             let from = walked.second.take();
@@ -454,14 +472,26 @@ mod tests {
         let w = calls_per_increment(&Settings::default(), 6);
         assert_eq!(w, 23.0);
         assert!(!worth_threads(80, 2, w));
-        assert!(!worth_threads(200, 2, w));
+        assert!(!worth_threads(150, 2, w));
         assert!(worth_threads(400, 2, w));
         assert!(worth_threads(20_000, 2, w));
         assert!(worth_threads(20_000, 8, w));
+        // Three threads on a short path: the second one's walk and probe alone take longer
+        // than one thread's check.
+        assert!(!worth_threads(96, 3, w));
+        assert!(!worth_threads(100, 4, w));
+        for (n, t) in [(96, 3), (300, 3), (300, 4), (1_000, 8), (20_000, 3)] {
+            let (b, time) = shares_and_time(n, t, w, PROBE_CALLS as f64);
+            // No thread takes longer than the time given: the second never less than the walk,
+            // the probe and its share.
+            assert!(time >= n as f64 + PROBE_CALLS as f64 + (b[2] - b[1]) as f64 * w, "{n}, {t}: {b:?}");
+            assert!(time >= (b[1] - b[0]) as f64 * w, "{n}, {t}: {b:?}");
+        }
         // The smallest path worth two threads, against the balance of `shares`: the first
         // thread's share (s·w) and the second's walk, probe and share (n + probe + (n − s)·w)
         // take at most 0.8 of one thread's n·w.
         let least = (1..2_000).find(|n| worth_threads(*n, 2, w)).unwrap();
+        assert_eq!(least, 160, "the README gives this figure");
         let probe = PROBE_CALLS as f64;
         let time = |n: f64| (n * (w + 1.0) + probe) / 2.0;
         assert!(time(least as f64) <= 0.8 * least as f64 * w + w, "{least}");
