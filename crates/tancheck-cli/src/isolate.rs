@@ -271,7 +271,9 @@ pub fn run_isolated(
             let _ = child.wait();
             let _ = std::fs::remove_dir_all(&dir);
             if let Some(j) = json.filter(|j| j.as_os_str() != "-") {
-                let _ = std::fs::remove_file(crate::report::temporary_name(j));
+                if let crate::report::Destination::Replace(p) = crate::report::destination(j) {
+                    let _ = std::fs::remove_file(crate::report::temporary_name(&p));
+                }
             }
             eprintln!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
             return Ok(128 + stop);

@@ -152,15 +152,22 @@ fn name_routine(json: Option<&Path>, routine: &str, marker: bool) -> Result<()> 
         Some(p) if p.as_os_str() == "-" => {
             watch::set_report(&head(routine), "", "", true);
         }
-        Some(p) => {
-            // The temporary name is registered first, so a SIGINT or SIGTERM while the marker
-            // itself is written removes it too.
-            let tmp = crate::report::temporary_name(p);
-            watch::set_report(&head(routine), &p.to_string_lossy(), &tmp.to_string_lossy(), false);
-            if marker {
-                write_marker(p, routine)?;
+        Some(p) => match crate::report::destination(p) {
+            // A device or a pipe gets the report as the program writes it, and neither a marker
+            // nor last words (which would go through a rename onto it).
+            crate::report::Destination::Stream(_) => {
+                watch::set_report(&head(routine), "", "", false);
             }
-        }
+            crate::report::Destination::Replace(p) => {
+                // The temporary name is registered first, so a SIGINT or SIGTERM while the
+                // marker itself is written removes it too.
+                let tmp = crate::report::temporary_name(&p);
+                watch::set_report(&head(routine), &p.to_string_lossy(), &tmp.to_string_lossy(), false);
+                if marker {
+                    write_marker(&p, routine)?;
+                }
+            }
+        },
     }
     Ok(())
 }

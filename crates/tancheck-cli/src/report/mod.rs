@@ -172,12 +172,25 @@ impl Reporter for Fanout<'_> {
 /// reads it back at once and removes it, and a crash of the machine ends the parent too, so
 /// the worker does not wait for the disk for it (on a busy disk that wait was longer than a
 /// short check). The worker's other files (`--html`, `--junit`, cases) do reach the disk.
+///
+/// A destination that is not a plain file (`/dev/null`, a named pipe) is written into in
+/// place, and a symbolic link is followed to the file it names (see [`destination`]).
 pub fn write_atomic_with(path: &Path, fill: impl FnOnce(&mut dyn Write) -> io::Result<()>) -> io::Result<()> {
-    let tmp = temporary_name(path);
     if tancheck_abi::watch::dying() {
         // The process is ending with last words, which write this report themselves.
         park_for_good();
     }
+    let path = match destination(path) {
+        Destination::Stream(p) => {
+            let f = std::fs::OpenOptions::new().write(true).open(&p)?;
+            let mut w = io::BufWriter::with_capacity(64 * 1024, f);
+            fill(&mut w)?;
+            return w.flush();
+        }
+        Destination::Replace(p) => p,
+    };
+    let path = path.as_path();
+    let tmp = temporary_name(path);
     let result = (|| {
         let f = std::fs::File::create(&tmp)?;
         let mut w = io::BufWriter::with_capacity(64 * 1024, f);
@@ -215,8 +228,34 @@ pub fn write_atomic(path: &Path, bytes: &[u8]) -> io::Result<()> {
     write_atomic_with(path, |w| w.write_all(bytes))
 }
 
+/// Where [`write_atomic`] puts a file.
+#[derive(Debug, PartialEq)]
+pub enum Destination {
+    /// A plain file (or none yet), replaced whole: a temporary file in its folder, then a
+    /// rename. A symbolic link is followed to the file it names, so the link stays a link.
+    Replace(std::path::PathBuf),
+    /// Something that is not a plain file (a device such as `/dev/null`, a named pipe, a
+    /// socket), written into in place: a rename would put a plain file in its place.
+    Stream(std::path::PathBuf),
+}
+
+/// Where a file written to `path` goes (see [`Destination`]).
+pub fn destination(path: &Path) -> Destination {
+    match std::fs::metadata(path) {
+        Ok(m) if !m.is_file() && !m.is_dir() => Destination::Stream(path.to_path_buf()),
+        _ => {
+            let link = std::fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
+            match link.then(|| std::fs::canonicalize(path).ok()).flatten() {
+                Some(target) => Destination::Replace(target),
+                None => Destination::Replace(path.to_path_buf()),
+            }
+        }
+    }
+}
+
 /// The temporary name [`write_atomic`] writes `path` under before the rename: a hidden file
-/// in the same folder, named after the process.
+/// in the same folder, named after the process. `path` is a plain file's (see
+/// [`destination`]).
 pub fn temporary_name(path: &Path) -> std::path::PathBuf {
     let dir = path.parent().filter(|p| !p.as_os_str().is_empty()).unwrap_or(Path::new("."));
     let name = path.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_else(|| "report".into());

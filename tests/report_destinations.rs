@@ -1,0 +1,71 @@
+//! A report written to something that is not a plain file stays where it was asked to go: a
+//! named pipe (as `/dev/null` or a terminal, a file a rename would replace by a plain file)
+//! gets the report written into it and stays a pipe, and a symbolic link stays a link, the
+//! report going to the file it names.
+
+use std::io::Read;
+use std::path::Path;
+use std::process::Command;
+
+use tancheck_testkit::libs::scratch;
+
+const MANIFEST: &str = r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#;
+
+fn check(dir: &Path, args: &[&str]) -> std::process::Output {
+    let m = dir.join("m.json");
+    std::fs::write(&m, MANIFEST).unwrap();
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(&m)
+        .args(["--path", "tension-shear:4e-3:10:10", "-q"])
+        .args(args)
+        .output()
+        .unwrap()
+}
+
+#[test]
+fn a_named_pipe_gets_the_report_and_stays_a_pipe() {
+    use std::os::unix::fs::FileTypeExt;
+    let d = scratch("fifo");
+    let fifo = d.join("report.fifo");
+    let made = Command::new("mkfifo").arg(&fifo).status().expect("mkfifo (coreutils)");
+    assert!(made.success());
+    // The reading end opened first, without waiting for a writer, so that the program's open
+    // for writing does not wait either; the report (a few KiB) fits the pipe's buffer and is
+    // read once the program has ended. A program that replaced the pipe leaves it empty.
+    use std::os::unix::fs::OpenOptionsExt;
+    let mut read_end = std::fs::OpenOptions::new().read(true).custom_flags(O_NONBLOCK).open(&fifo).unwrap();
+    let o = check(&d, &["--json", fifo.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+    let mut bytes = Vec::new();
+    let _ = read_end.read_to_end(&mut bytes);
+    let text = String::from_utf8(bytes).unwrap();
+    let v: serde_json::Value = serde_json::from_str(&text).unwrap_or_else(|e| panic!("{e}: {text}"));
+    assert_eq!(v["verdict"], "pass", "{text}");
+    let kind = std::fs::symlink_metadata(&fifo).unwrap().file_type();
+    assert!(kind.is_fifo(), "the pipe was replaced: {kind:?}");
+    let left: Vec<_> = std::fs::read_dir(&d).unwrap().map(|e| e.unwrap().file_name()).collect();
+    assert_eq!(left.len(), 2, "temporary files left: {left:?}");
+}
+
+#[test]
+fn a_symbolic_link_stays_a_link_and_its_file_gets_the_report() {
+    let d = scratch("link");
+    let real = d.join("real.json");
+    std::fs::write(&real, "old").unwrap();
+    let link = d.join("link.json");
+    std::os::unix::fs::symlink(&real, &link).unwrap();
+    for opt in ["--json", "--junit", "--html"] {
+        let o = check(&d, &[opt, link.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(0), "{opt}: {}", String::from_utf8_lossy(&o.stderr));
+        assert!(
+            std::fs::symlink_metadata(&link).unwrap().file_type().is_symlink(),
+            "{opt}: the link was replaced"
+        );
+        let text = std::fs::read_to_string(&real).unwrap();
+        assert!(text.len() > 100 && text != "old", "{opt}: {text}");
+    }
+}
+
+/// O_NONBLOCK on Linux (asm-generic/fcntl.h): open a pipe's reading end without waiting.
+const O_NONBLOCK: i32 = 0o4000;
