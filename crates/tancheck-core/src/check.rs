@@ -75,7 +75,7 @@ pub fn run_with(
     // The fault that ended the walk or the probe of a check on several threads (see below).
     let mut walk_fault = None;
     let chunks = match plan {
-        Some(plan) if !stopped_at_zero => {
+        Some(plan) => {
             let threads = plan.threads();
             let job = concurrent::Job { info: &info, props, start: driver.start(), path, settings, keep };
             match concurrent::walk(caller, plan, job) {
@@ -93,7 +93,7 @@ pub fn run_with(
                 }
             }
         }
-        _ => None,
+        None => None,
     };
     match chunks {
         Some(chunks) => {
