@@ -370,3 +370,80 @@ fn misbehaved(f: tancheck_core::Fault) {
         other => panic!("expected a misbehaviour finding, got {other}"),
     }
 }
+
+const HALF_WRITTEN_C: &str = r#"
+#include "tancheck_routine.h"
+TC_ROUTINE(half_written)
+{
+    (void)properties; (void)strain; (void)temperature; (void)state0; (void)state;
+    (void)dstress_dtemp; (void)energy; (void)report;
+    for (int i = 0; i < call->ncomp; ++i)
+        if (i != 1) stress[i] = stress0[i] + 1000.0 * dstrain[i];
+#ifdef TC_COMPLEX
+    /* The twin writes only the real part of stress[1], through a cast to double. */
+    ((double *)stress)[2] = 1.0;
+#else
+    stress[1] = stress0[1] + 1000.0 * dstrain[1];
+#endif
+    for (int k = 0; k < call->ncomp * call->ncomp; ++k) tangent[k] = (k % 7 == 0) ? 1000.0 : 0.0;
+}
+"#;
+
+/// A twin that writes only one half of a complex output entry leaves the other half
+/// unwritten: the light guards name the entry, and the caller gets a quiet NaN there. The
+/// real routine, writing every entry, gives no finding.
+#[test]
+fn a_twin_writing_only_the_real_part_of_an_entry_is_found() {
+    let dir = scratch("half-written");
+    let src = dir.join("half_written.c");
+    std::fs::write(&src, HALF_WRITTEN_C).unwrap();
+    let out = dir.join("libhalf.so");
+    let opts = tancheck_abi::BuildOptions::new([&src], &out);
+    tancheck_abi::build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
+    let lib = Library::open(&out).unwrap();
+    let mut r = lib.routine("half_written", elastic_info("half_written")).unwrap();
+    r.set_guard_level(GuardLevel::Light);
+    let mut b = Real::new();
+    b.call(&mut r, 1).unwrap();
+    assert!(r.findings().is_empty(), "{:#?}", r.findings());
+
+    let cx = |v: &[f64]| -> Vec<Complex64> { v.iter().map(|&x| Complex64::new(x, 0.0)).collect() };
+    let props: Vec<Complex64> = cx(&b.props);
+    let strain: Vec<Complex64> = cx(&b.strain);
+    let mut dstrain: Vec<Complex64> = cx(&b.dstrain);
+    dstrain[0].im = 1e-30;
+    let stress0: Vec<Complex64> = cx(&b.stress0);
+    let nan = Complex64::new(f64::NAN, f64::NAN);
+    let (mut stress, mut tangent, mut dtemp, mut energy) = ([nan; 6], [nan; 36], [nan; 6], [nan; 2]);
+    let mut outcome = Outcome::default();
+    let input = CallInput {
+        props: &props,
+        strain: &strain,
+        dstrain: &dstrain,
+        temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
+        stress0: &stress0,
+        state0: &[],
+        time: [0.0, 1.0],
+        increment: 2,
+        want_tangent: false,
+    };
+    let mut output = CallOutput {
+        stress: &mut stress,
+        state: &mut [],
+        tangent: &mut tangent,
+        dstress_dtemp: &mut dtemp,
+        energy: &mut energy,
+        outcome: &mut outcome,
+    };
+    r.complex()
+        .expect("the twin was built")
+        .call_complex(&input, &mut output)
+        .map(|_| ())
+        .map_or_else(misbehaved, |_| panic!("the first finding ends the call with a fault"));
+    let f = only(&r, FindingKind::Unwritten, GuardedArray::Stress);
+    assert_eq!((f.first, f.entries, f.complex), (1, 1, true), "{f}");
+    assert!(f.to_string().contains("stress[1] unwritten"), "{f}");
+    assert!(f.to_string().contains("both its real and imaginary parts"), "{f}");
+    assert!(stress[1].re.is_nan() && stress[1].im.is_nan(), "{:?}", stress[1]);
+    assert!((stress[0].im / 1e-30 - 1000.0).abs() <= 1e-9, "{:?}", stress[0]);
+}

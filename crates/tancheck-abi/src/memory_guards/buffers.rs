@@ -21,6 +21,10 @@ pub(crate) trait Element: Copy {
     fn same(self, other: Self) -> bool;
     /// Zero exactly when [`Element::same`] holds (the bits that differ).
     fn differ(self, other: Self) -> u64;
+    /// Whether the entry was never written: it still holds the pre-fill's bits; for a complex
+    /// entry, either half does (a twin that writes only the real or only the imaginary part
+    /// of an output leaves the other half unwritten).
+    fn unwritten(self) -> bool;
     /// The bits of `values`, 64 at a time (an element is one or two f64 without padding), so
     /// that two arrays compare bit for bit on these.
     fn bits(values: &[Self]) -> &[u64] {
@@ -44,6 +48,9 @@ impl Element for f64 {
     fn differ(self, other: f64) -> u64 {
         self.to_bits() ^ other.to_bits()
     }
+    fn unwritten(self) -> bool {
+        self.to_bits() == PREFILL_BITS
+    }
 }
 
 impl Element for Complex64 {
@@ -56,6 +63,9 @@ impl Element for Complex64 {
     }
     fn differ(self, other: Complex64) -> u64 {
         self.re.differ(other.re) | self.im.differ(other.im)
+    }
+    fn unwritten(self) -> bool {
+        self.re.unwritten() || self.im.unwritten()
     }
 }
 
@@ -94,6 +104,11 @@ pub(crate) struct GuardBuffers<E> {
     /// that loading is one copy of it (after the inputs are written into it) and the check
     /// afterwards a comparison with it of what must not change (inputs and zones).
     image: Vec<E>,
+    /// Whether `data` holds the zones and pre-filled outputs as [`GuardBuffers::load_first`]
+    /// leaves them apart from the outputs the last call wrote: the last call was a first-poison
+    /// call whose checks found every input, zone and the report's zone untouched. Then the next
+    /// load writes the inputs and pre-fills the outputs in place, without restoring the block.
+    clean: bool,
 }
 
 /// Where a guarded call is: what a finding records besides the array.
@@ -127,41 +142,74 @@ impl<E: Element> GuardBuffers<E> {
             report: ReportZone { report: Outcome::default(), zone: [REPORT_CANARY; REPORT_ZONE] },
             report_before: Outcome::default(),
             image,
+            clean: false,
         }
     }
 
-    /// [`GuardBuffers::load`] with the first poison, from the image: the inputs are written
-    /// into it, then the block is one copy of it. A tangent the call does not ask for is
-    /// pre-filled too (a routine that reads it without forming it gets the signalling NaN, not
-    /// the tangent an earlier call left), but neither checked nor copied back.
+    /// [`GuardBuffers::load`] with the first poison. After a clean call (see `clean`) only the
+    /// inputs are written and the outputs pre-filled, in place; otherwise the block is first
+    /// restored from its image. A tangent the call does not ask for is pre-filled too (a
+    /// routine that reads it without forming it gets the signalling NaN, not the tangent an
+    /// earlier call left), but neither checked nor copied back.
     fn load_first(&mut self, input: &CallInput<'_, E>) {
+        if !self.clean {
+            self.data.copy_from_slice(&self.image);
+        }
         let inputs: [&[E]; N_INPUTS] =
             [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
         for (k, src) in inputs.iter().enumerate() {
-            let s = self.start[k];
-            self.image[s..s + self.len[k]].copy_from_slice(src);
+            self.array_mut(k).copy_from_slice(src);
         }
-        self.data.copy_from_slice(&self.image);
+        if self.clean {
+            for k in N_INPUTS..ARRAYS.len() {
+                self.array_mut(k).fill(E::PREFILL);
+            }
+        }
         self.report.report = self.report_before;
         self.report.zone = [REPORT_CANARY; REPORT_ZONE];
     }
 
-    /// Whether the inputs and every zone are as [`GuardBuffers::load_first`] left them: the
-    /// inputs and their zones lie in one run before the first output, each output's zone after
-    /// it; each run is compared bit for bit at once.
-    fn as_loaded(&self) -> bool {
-        // One branch-free pass of bit differences per run (no call, no early exit: on runs
-        // this short it measured faster than slice equality, which calls `memcmp`).
-        let same = |a: &[E], b: &[E]| {
+    /// Whether the inputs and every zone are as [`GuardBuffers::load_first`] left them: each
+    /// input equal to the caller's, bit for bit, each zone holding its pattern (the first
+    /// poison after an input, the canary after an output), the report's zone its canary
+    /// bytes. One branch-free pass of bit differences per array (no call, no early exit: on
+    /// arrays this short it measured faster than slice equality, which calls `memcmp`).
+    fn as_loaded(&self, input: &CallInput<'_, E>) -> bool {
+        let inputs: [&[E]; N_INPUTS] =
+            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
+        let differ = |a: &[E], b: &[E]| {
             let (a, b) = (E::bits(a), E::bits(b));
-            a.len() == b.len() && a.iter().zip(b).fold(0, |acc, (x, y)| acc | (x ^ y)) == 0
+            a.iter().zip(b).fold((a.len() ^ b.len()) as u64, |acc, (x, y)| acc | (x ^ y))
         };
-        let inputs = self.start[N_INPUTS];
-        same(&self.data[..inputs], &self.image[..inputs])
-            && (N_INPUTS..ARRAYS.len()).all(|k| {
-                let z = self.start[k] + self.len[k];
-                same(&self.data[z..z + ZONE], &self.image[z..z + ZONE])
-            })
+        // A zone as a fixed-size array, so that its comparison is unrolled.
+        let zone_differs = |k: usize, v: E| {
+            let z: &[E; ZONE] = self.zone(k).try_into().expect("a zone has ZONE entries");
+            z.iter().fold(0, |a, &x| a | x.differ(v))
+        };
+        let mut acc = 0u64;
+        for (k, original) in inputs.iter().enumerate() {
+            acc |= differ(self.array(k), original) | zone_differs(k, E::POISON[0]);
+        }
+        for k in N_INPUTS..ARRAYS.len() {
+            acc |= zone_differs(k, E::CANARY);
+        }
+        let canary = u64::from_ne_bytes([REPORT_CANARY; 8]);
+        acc |= self
+            .report
+            .zone
+            .chunks_exact(8)
+            .fold(0, |a, c| a | (u64::from_ne_bytes(c.try_into().expect("eight bytes")) ^ canary));
+        acc == 0
+    }
+
+    /// Which outputs hold an unwritten entry (bit k − [`N_INPUTS`] for array k; see
+    /// [`Element::unwritten`]): one branch-free pass over them.
+    fn prefilled(&self) -> u32 {
+        (N_INPUTS..ARRAYS.len()).fold(0, |m, k| {
+            // Any half of a complex entry with the pre-fill's bits (see `Element::unwritten`).
+            let any = E::bits(self.array(k)).iter().fold(0u32, |a, &b| a | u32::from(b == PREFILL_BITS));
+            m | (any << (k - N_INPUTS))
+        })
     }
 
     fn array(&self, k: usize) -> &[E] {
@@ -240,13 +288,17 @@ impl<E: Element> GuardBuffers<E> {
         }
     }
 
-    /// The light checks of the call just made.
+    /// The light checks of the call just made. `loaded` is [`GuardBuffers::as_loaded`] (when
+    /// it holds, no input, zone or report zone needs a closer look) and `prefilled` is
+    /// [`GuardBuffers::prefilled`].
+    #[allow(clippy::too_many_arguments)] // one call's whole context; a struct would only repackage it
     fn inspect(
         &self,
         input: &CallInput<'_, E>,
         call_before: &TcCall,
         call_after: &TcCall,
-        poison: &[E; N_INPUTS],
+        loaded: bool,
+        prefilled: u32,
         place: CallPlace,
         findings: &mut Findings,
     ) {
@@ -261,34 +313,63 @@ impl<E: Element> GuardBuffers<E> {
             complex: place.complex,
             calls: 1,
         };
+        if !loaded {
+            self.inspect_zones(input, place, findings, &finding);
+        }
+        let ok = self.report.report.status == tancheck_core::routine::status::OK;
+        if ok && prefilled != 0 {
+            for k in N_INPUTS..ARRAYS.len() {
+                if prefilled & (1 << (k - N_INPUTS)) != 0 && self.required(k, input.want_tangent) {
+                    if let Some((first, n)) = mismatch(self.array(k), |_, v| !v.unwritten()) {
+                        findings.record(finding(FindingKind::Unwritten, k, first, n));
+                    }
+                }
+            }
+        }
+        if !same_call(call_before, call_after) {
+            findings.record(GuardFinding {
+                kind: FindingKind::InputWritten,
+                array: GuardedArray::Call,
+                len: 0,
+                first: 0,
+                entries: 1,
+                ncomp: self.ncomp,
+                increment: place.increment,
+                complex: place.complex,
+                calls: 1,
+            });
+        }
+    }
+
+    /// The inputs, zones and report zone entry by entry, when [`GuardBuffers::as_loaded`]
+    /// found a difference somewhere: a finding for each array that changed.
+    #[cold]
+    fn inspect_zones(
+        &self,
+        input: &CallInput<'_, E>,
+        place: CallPlace,
+        findings: &mut Findings,
+        finding: &impl Fn(FindingKind, usize, usize, usize) -> GuardFinding,
+    ) {
         let inputs: [&[E]; N_INPUTS] =
             [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
-        // The whole block is first compared with its image at once; only a difference is
-        // looked at array by array and entry by entry.
-        let loaded = self.as_loaded();
-        for (k, original) in inputs.iter().enumerate().filter(|_| !loaded) {
+        let poison = E::POISON[0];
+        for (k, original) in inputs.iter().enumerate() {
             if !same_bits(self.array(k), original) {
                 if let Some((first, n)) = mismatch(self.array(k), |i, v| v.same(original[i])) {
                     findings.record(finding(FindingKind::InputWritten, k, first, n));
                 }
             }
-            if !all_bits(self.zone(k), poison[k]) {
-                if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(poison[k])) {
+            if !all_bits(self.zone(k), poison) {
+                if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(poison)) {
                     findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
                 }
             }
         }
-        let ok = self.report.report.status == tancheck_core::routine::status::OK;
         for k in N_INPUTS..ARRAYS.len() {
-            if !loaded && !all_bits(self.zone(k), E::CANARY) {
+            if !all_bits(self.zone(k), E::CANARY) {
                 if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(E::CANARY)) {
                     findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
-                }
-            }
-            if ok && self.required(k, input.want_tangent) && self.array(k).iter().any(|v| v.same(E::PREFILL))
-            {
-                if let Some((first, n)) = mismatch(self.array(k), |_, v| !v.same(E::PREFILL)) {
-                    findings.record(finding(FindingKind::Unwritten, k, first, n));
                 }
             }
         }
@@ -306,25 +387,13 @@ impl<E: Element> GuardBuffers<E> {
                 calls: 1,
             });
         }
-        if !same_call(call_before, call_after) {
-            findings.record(GuardFinding {
-                kind: FindingKind::InputWritten,
-                array: GuardedArray::Call,
-                len: 0,
-                first: 0,
-                entries: 1,
-                ncomp: self.ncomp,
-                increment: place.increment,
-                complex: place.complex,
-                calls: 1,
-            });
-        }
     }
 
-    /// Copy the outputs to the caller; never-written entries become a quiet NaN. A tangent
-    /// the call did not ask for stays as the caller left it (see `Caller::call`).
-    fn store(&self, output: &mut CallOutput<'_, E>, want_tangent: bool) {
-        let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
+    /// Copy the outputs to the caller; never-written entries become a quiet NaN (an array
+    /// without pre-fill entries, as `prefilled` says, is copied as it is). A tangent the call
+    /// did not ask for stays as the caller left it (see `Caller::call`).
+    fn store(&self, output: &mut CallOutput<'_, E>, want_tangent: bool, prefilled: u32) {
+        let quiet = |v: E| if v.unwritten() { E::QUIET_NAN } else { v };
         let outs: [&mut [E]; 5] = [
             &mut *output.stress,
             &mut *output.state,
@@ -336,8 +405,13 @@ impl<E: Element> GuardBuffers<E> {
             if ARRAYS[N_INPUTS + k] == GuardedArray::Tangent && !want_tangent {
                 continue;
             }
-            for (d, &s) in dst.iter_mut().zip(self.array(N_INPUTS + k)) {
-                *d = quiet(s);
+            let src = self.array(N_INPUTS + k);
+            if prefilled & (1 << k) == 0 {
+                dst.copy_from_slice(src);
+            } else {
+                for (d, &s) in dst.iter_mut().zip(src) {
+                    *d = quiet(s);
+                }
             }
         }
         *output.outcome = self.report.report;
@@ -345,7 +419,7 @@ impl<E: Element> GuardBuffers<E> {
 
     /// Whether the call just made gave other results than those stored in `output`.
     fn differs(&self, output: &CallOutput<'_, E>, want_tangent: bool) -> bool {
-        let quiet = |v: E| if v.same(E::PREFILL) { E::QUIET_NAN } else { v };
+        let quiet = |v: E| if v.unwritten() { E::QUIET_NAN } else { v };
         let r = &self.report.report;
         let o = &*output.outcome;
         if r.status != o.status
@@ -386,11 +460,16 @@ impl<E: Element> GuardBuffers<E> {
         self.report_before = *output.outcome;
         let mut made = *call;
         self.load_first(input);
+        // Until the checks below find the block as loaded, the next load restores it.
+        self.clean = false;
         let args = self.args(&raw mut made, label, fp_traps);
         invoke(&args)?;
-        self.inspect(input, call, &made, &first, place, findings);
-        self.store(output, input.want_tangent);
+        let loaded = self.as_loaded(input);
+        let prefilled = self.prefilled();
+        self.inspect(input, call, &made, loaded, prefilled, place, findings);
+        self.store(output, input.want_tangent, prefilled);
         if level != GuardLevel::Full {
+            self.clean = loaded;
             return Ok(());
         }
 
@@ -541,5 +620,101 @@ mod tests {
         assert_eq!(findings.list()[0].kind, FindingKind::Overrun);
         assert_eq!(findings.list()[0].array, GuardedArray::Props);
         assert_eq!(findings.list()[0].calls, 1);
+    }
+
+    /// After a clean call the next one is loaded in place (inputs written, outputs pre-filled
+    /// again, the block not restored): an output the routine stops writing is found unwritten
+    /// on that call, the caller gets a quiet NaN there, not what the call before wrote, and a
+    /// tangent not asked for reads as the pre-fill. An input written on a later call is found
+    /// then, and the calls after it are clean again.
+    #[test]
+    fn a_call_after_a_clean_one_starts_from_pre_filled_outputs() {
+        let mut g = GuardBuffers::<f64>::new(1, 1, 1);
+        let mut findings = Findings::default();
+        let call = TcCall {
+            abi_version: 1,
+            ncomp: 1,
+            nstate: 1,
+            nproperties: 1,
+            increment: 1,
+            flags: 0,
+            time: 0.0,
+            dtime: 1.0,
+        };
+        // (findings new on the call, stress seen by the caller, tangent read by the routine)
+        let mut seen = Vec::new();
+        for k in 1..=6 {
+            let props = [210_000.0];
+            let strain = [1e-3 * k as f64];
+            let (dstrain, stress0, state0) = ([1e-4], [0.0], [0.0]);
+            let input = CallInput {
+                props: &props,
+                strain: &strain,
+                dstrain: &dstrain,
+                temp: [20.0, 0.0],
+                stress0: &stress0,
+                state0: &state0,
+                time: [0.0, 1.0],
+                increment: k,
+                want_tangent: k == 1,
+            };
+            let (mut stress, mut state, mut tangent, mut dtemp, mut energy) =
+                ([0.0], [0.0], [0.0], [0.0], [0.0; 2]);
+            let mut outcome = Outcome::default();
+            let mut output = CallOutput {
+                stress: &mut stress,
+                state: &mut state,
+                tangent: &mut tangent,
+                dstress_dtemp: &mut dtemp,
+                energy: &mut energy,
+                outcome: &mut outcome,
+            };
+            let before = findings.list().len();
+            let mut tangent_read = 0.0;
+            g.call(
+                GuardLevel::Light,
+                &call,
+                std::ptr::null(),
+                false,
+                false,
+                &input,
+                &mut output,
+                &mut findings,
+                |a| {
+                    // SAFETY: the block holds one entry per array, each followed by its zone.
+                    unsafe {
+                        tangent_read = *a.tangent.cast::<f64>();
+                        *a.state.cast::<f64>() = 1.0;
+                        if k == 1 {
+                            *a.tangent.cast::<f64>() = 5.0;
+                        }
+                        if k != 3 {
+                            *a.stress.cast::<f64>() = k as f64;
+                        }
+                        if k == 5 {
+                            *a.stress0.cast::<f64>().cast_mut() = 9.0;
+                        }
+                    }
+                    Ok(())
+                },
+            )
+            .unwrap();
+            seen.push((findings.list().len() - before, stress[0], tangent_read.to_bits() == PREFILL_BITS));
+        }
+        assert_eq!(seen[0], (0, 1.0, true));
+        assert_eq!(seen[1], (0, 2.0, true), "the tangent the first call wrote is not seen by the second");
+        assert_eq!(seen[2].0, 1);
+        assert!(seen[2].1.is_nan() && seen[2].1.to_bits() != PREFILL_BITS, "a quiet NaN, not 2");
+        assert_eq!(seen[3], (0, 4.0, true));
+        assert_eq!(seen[4], (1, 5.0, true));
+        assert_eq!(seen[5], (0, 6.0, true));
+        let kinds: Vec<_> = findings.list().iter().map(|f| (f.kind, f.array, f.increment)).collect();
+        assert_eq!(
+            kinds,
+            [
+                (FindingKind::Unwritten, GuardedArray::Stress, 3),
+                (FindingKind::InputWritten, GuardedArray::Stress0, 5)
+            ]
+        );
     }
 }

@@ -83,9 +83,11 @@ impl GuardFinding {
                 } else {
                     String::new()
                 };
+                // A twin's entry counts as unwritten when either part is.
+                let parts = if self.complex { " (both its real and imaginary parts)" } else { "" };
                 format!(
                     "left {a}[{}] unwritten{at}: {} of {} never written in a successful call; \
-                     outputs arrive filled with NaN and the routine must write every entry",
+                     outputs arrive filled with NaN and the routine must write every entry{parts}",
                     self.first,
                     self.entries,
                     self.array.counted(self.len)

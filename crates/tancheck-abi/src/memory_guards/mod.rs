@@ -16,7 +16,8 @@
 //!   ([`FindingKind::InputWritten`]); the call description (`tc_call`) too.
 //! - The outputs are pre-filled with a signalling NaN (a bit pattern no arithmetic produces);
 //!   entries that still hold it after a successful call were never written
-//!   ([`FindingKind::Unwritten`]). The tangent counts only when the call asked for it, and
+//!   ([`FindingKind::Unwritten`]); in the complex-step twin, an entry either of whose parts
+//!   still holds it. The tangent counts only when the call asked for it, and
 //!   `dstress_dtemp` and `energy` only when the routine says it provides them.
 //! - At [`GuardLevel::Full`] every call runs a second time with another poison value. When
 //!   the results differ, the routine reads past the end of a read-only array: further calls
