@@ -259,23 +259,26 @@ fn bench(crit: &mut Criterion) {
             ));
         }
     }
-    lines.extend(command_line(crit, &dir));
+    for increments in CLI_INCREMENTS {
+        lines.extend(command_line(crit, &dir, increments));
+    }
     println!("\ntancheck / C loop (one thread), {INCREMENTS}-increment cyclic tension-shear path:");
     for l in lines {
         println!("{l}");
     }
 }
 
-/// Increments of the command-line runs (each starts a process, `--isolate` two).
-const CLI_INCREMENTS: usize = 2_000;
+/// Increments of the command-line runs (each starts a process, `--isolate` two): a short
+/// check, where the worker's start counts, and the whole path.
+const CLI_INCREMENTS: [usize; 2] = [2_000, INCREMENTS];
 
 /// `tancheck check` as a user runs it, plain (without and with `--json FILE`) and with
-/// `--isolate` (one thread each, light guards, quiet), on the first 2,000 increments of the
-/// cyclic path: the ratios to the plain check, from wall-clock times and from the CPU time of
-/// the processes.
-fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
-    let path_file = dir.join(format!("cyclic-{CLI_INCREMENTS}.json"));
-    common::write_path_file(&common::cyclic_path(CLI_INCREMENTS), &path_file);
+/// `--isolate` (one thread each, light guards, quiet), on the first `increments` increments of
+/// the cyclic path: the ratios to the plain check, from wall-clock times and from the CPU time
+/// of the processes.
+fn command_line(crit: &mut Criterion, dir: &std::path::Path, increments: usize) -> Vec<String> {
+    let path_file = dir.join(format!("cyclic-{increments}.json"));
+    common::write_path_file(&common::cyclic_path(increments), &path_file);
     let manifest = dir.join("j2-light.json");
     let json = dir.join("command-line-report.json");
     let run = |isolate: bool, with_json: bool| {
@@ -290,7 +293,7 @@ fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
         let o = c.output().expect("running tancheck");
         assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
     };
-    let mut g = crit.benchmark_group(format!("command line, j2 C routine, {CLI_INCREMENTS} increments"));
+    let mut g = crit.benchmark_group(format!("command line, j2 C routine, {increments} increments"));
     g.sampling_mode(SamplingMode::Flat).sample_size(10).warm_up_time(Duration::from_secs(1));
     g.measurement_time(Duration::from_secs(6));
     let mut out = Vec::new();
@@ -324,7 +327,7 @@ fn command_line(crit: &mut Criterion, dir: &std::path::Path) -> Vec<String> {
     let (_, (w0, m0), (c0, _)) = results[0];
     for (name, (w, m), (c, _)) in &results {
         out.push(format!(
-            "   command line, j2, {CLI_INCREMENTS} increments: {name}: {:.0} ms, ratio to plain {:.2} (fastest), {:.2} (medians), {:.2} (process CPU)",
+            "   command line, j2, {increments} increments: {name}: {:.0} ms, ratio to plain {:.2} (fastest), {:.2} (medians), {:.2} (process CPU)",
             w * 1e3,
             w / w0,
             m / m0,
