@@ -1,0 +1,175 @@
+//! The guarded block's loads and checks, call after call.
+
+use super::*;
+use crate::signal_guard::TcCall;
+
+/// A zone written on the third of five calls is found on that call only, and the call
+/// after it finds the block whole again (a load after a call with a finding restores the
+/// block from its image). Each call writes its one stress (uniaxial, no state variables).
+#[test]
+fn a_zone_written_on_a_later_call_is_found_then_and_the_block_is_whole_again() {
+    let mut g = GuardBuffers::<f64>::new(1, 0, 1);
+    let mut findings = Findings::default();
+    let call = TcCall {
+        abi_version: 1,
+        ncomp: 1,
+        nstate: 0,
+        nproperties: 1,
+        increment: 1,
+        flags: 0,
+        time: 0.0,
+        dtime: 1.0,
+    };
+    let mut per_call = Vec::new();
+    for k in 1..=5 {
+        let props = [210_000.0];
+        let strain = [1e-3 * k as f64];
+        let (dstrain, stress0) = ([1e-4], [0.0]);
+        let input = CallInput {
+            props: &props,
+            strain: &strain,
+            dstrain: &dstrain,
+            temp: [20.0, 0.0],
+            stress0: &stress0,
+            state0: &[],
+            time: [0.0, 1.0],
+            increment: k,
+            want_tangent: false,
+        };
+        let (mut stress, mut tangent, mut dtemp, mut energy) = ([0.0], [0.0], [0.0], [0.0; 2]);
+        let mut outcome = Outcome::default();
+        let mut output = CallOutput {
+            stress: &mut stress,
+            state: &mut [],
+            tangent: &mut tangent,
+            dstress_dtemp: &mut dtemp,
+            energy: &mut energy,
+            outcome: &mut outcome,
+        };
+        let before = findings.list().len();
+        g.call(
+            GuardLevel::Light,
+            &call,
+            std::ptr::null(),
+            false,
+            false,
+            &input,
+            &mut output,
+            &mut findings,
+            |a| {
+                // SAFETY: the block holds one stress and one property, each followed by its
+                // zone of ZONE entries.
+                unsafe {
+                    *a.stress.cast::<f64>() = 1.0;
+                    if k == 3 {
+                        *a.props.cast::<f64>().cast_mut().add(1) = 7.0;
+                    }
+                }
+                Ok(())
+            },
+        )
+        .unwrap();
+        per_call.push(findings.list().len() - before);
+        assert_eq!(stress[0], 1.0);
+    }
+    assert_eq!(per_call, [0, 0, 1, 0, 0], "{:?}", findings.list());
+    assert_eq!(findings.list()[0].kind, FindingKind::Overrun);
+    assert_eq!(findings.list()[0].array, GuardedArray::Props);
+    assert_eq!(findings.list()[0].calls, 1);
+}
+
+/// After a clean call the next one is loaded in place (inputs written, outputs pre-filled
+/// again, the block not restored): an output the routine stops writing is found unwritten
+/// on that call, the caller gets a quiet NaN there, not what the call before wrote, and a
+/// tangent not asked for reads as the pre-fill. An input written on a later call is found
+/// then, and the calls after it are clean again.
+#[test]
+fn a_call_after_a_clean_one_starts_from_pre_filled_outputs() {
+    let mut g = GuardBuffers::<f64>::new(1, 1, 1);
+    let mut findings = Findings::default();
+    let call = TcCall {
+        abi_version: 1,
+        ncomp: 1,
+        nstate: 1,
+        nproperties: 1,
+        increment: 1,
+        flags: 0,
+        time: 0.0,
+        dtime: 1.0,
+    };
+    // (findings new on the call, stress seen by the caller, tangent read by the routine)
+    let mut seen = Vec::new();
+    for k in 1..=6 {
+        let props = [210_000.0];
+        let strain = [1e-3 * k as f64];
+        let (dstrain, stress0, state0) = ([1e-4], [0.0], [0.0]);
+        let input = CallInput {
+            props: &props,
+            strain: &strain,
+            dstrain: &dstrain,
+            temp: [20.0, 0.0],
+            stress0: &stress0,
+            state0: &state0,
+            time: [0.0, 1.0],
+            increment: k,
+            want_tangent: k == 1,
+        };
+        let (mut stress, mut state, mut tangent, mut dtemp, mut energy) =
+            ([0.0], [0.0], [0.0], [0.0], [0.0; 2]);
+        let mut outcome = Outcome::default();
+        let mut output = CallOutput {
+            stress: &mut stress,
+            state: &mut state,
+            tangent: &mut tangent,
+            dstress_dtemp: &mut dtemp,
+            energy: &mut energy,
+            outcome: &mut outcome,
+        };
+        let before = findings.list().len();
+        let mut tangent_read = 0.0;
+        g.call(
+            GuardLevel::Light,
+            &call,
+            std::ptr::null(),
+            false,
+            false,
+            &input,
+            &mut output,
+            &mut findings,
+            |a| {
+                // SAFETY: the block holds one entry per array, each followed by its zone.
+                unsafe {
+                    tangent_read = *a.tangent.cast::<f64>();
+                    *a.state.cast::<f64>() = 1.0;
+                    if k == 1 {
+                        *a.tangent.cast::<f64>() = 5.0;
+                    }
+                    if k != 3 {
+                        *a.stress.cast::<f64>() = k as f64;
+                    }
+                    if k == 5 {
+                        *a.stress0.cast::<f64>().cast_mut() = 9.0;
+                    }
+                }
+                Ok(())
+            },
+        )
+        .unwrap();
+        seen.push((findings.list().len() - before, stress[0], tangent_read.to_bits() == PREFILL_BITS));
+    }
+    assert_eq!(seen[0], (0, 1.0, true));
+    assert_eq!(seen[1], (0, 2.0, true), "the tangent the first call wrote is not seen by the second");
+    assert_eq!(seen[2].0, 1);
+    assert!(seen[2].1.is_nan() && seen[2].1.to_bits() != PREFILL_BITS, "a quiet NaN, not 2");
+    assert_eq!(seen[3], (0, 4.0, true));
+    assert_eq!(seen[4], (1, 5.0, true));
+    assert_eq!(seen[5], (0, 6.0, true));
+    let kinds: Vec<_> = findings.list().iter().map(|f| (f.kind, f.array, f.increment)).collect();
+    assert_eq!(
+        kinds,
+        [
+            (FindingKind::Unwritten, GuardedArray::Stress, 3),
+            (FindingKind::InputWritten, GuardedArray::Stress0, 5)
+        ]
+    );
+}
