@@ -35,6 +35,14 @@ pub(crate) trait Element: Copy {
             std::slice::from_raw_parts(values.as_ptr().cast::<u64>(), std::mem::size_of_val(values) / 8)
         }
     }
+    /// The same words as [`Element::bits`], as f64 (a complex entry's two parts).
+    fn floats(values: &[Self]) -> &[f64] {
+        const { assert!(std::mem::size_of::<Self>() % 8 == 0 && std::mem::align_of::<Self>() >= 8) };
+        // SAFETY: as in `bits`: a whole number of f64 without padding, aligned for f64.
+        unsafe {
+            std::slice::from_raw_parts(values.as_ptr().cast::<f64>(), std::mem::size_of_val(values) / 8)
+        }
+    }
 }
 
 impl Element for f64 {
@@ -203,12 +211,21 @@ impl<E: Element> GuardBuffers<E> {
     }
 
     /// Which outputs hold an unwritten entry (bit k − [`N_INPUTS`] for array k; see
-    /// [`Element::unwritten`]): one branch-free pass over them.
-    fn prefilled(&self) -> u32 {
+    /// [`Element::unwritten`]); a tangent the call did not ask for is left out (it is neither
+    /// checked nor copied back). An array is first looked at for a NaN at all (one
+    /// branch-free pass of floating-point comparisons): only one with a NaN is searched for the
+    /// pre-fill's bits.
+    fn prefilled(&self, want_tangent: bool) -> u32 {
         (N_INPUTS..ARRAYS.len()).fold(0, |m, k| {
+            if ARRAYS[k] == GuardedArray::Tangent && !want_tangent {
+                return m;
+            }
+            let a = self.array(k);
+            #[allow(clippy::eq_op)] // x != x: the NaN test, in a form the compiler vectorises
+            let nan = E::floats(a).iter().fold(false, |acc, &x| acc | (x != x));
             // Any half of a complex entry with the pre-fill's bits (see `Element::unwritten`).
-            let any = E::bits(self.array(k)).iter().fold(0u32, |a, &b| a | u32::from(b == PREFILL_BITS));
-            m | (any << (k - N_INPUTS))
+            let any = nan && E::bits(a).contains(&PREFILL_BITS);
+            m | (u32::from(any) << (k - N_INPUTS))
         })
     }
 
@@ -465,7 +482,7 @@ impl<E: Element> GuardBuffers<E> {
         let args = self.args(&raw mut made, label, fp_traps);
         invoke(&args)?;
         let loaded = self.as_loaded(input);
-        let prefilled = self.prefilled();
+        let prefilled = self.prefilled(input.want_tangent);
         self.inspect(input, call, &made, loaded, prefilled, place, findings);
         self.store(output, input.want_tangent, prefilled);
         if level != GuardLevel::Full {
