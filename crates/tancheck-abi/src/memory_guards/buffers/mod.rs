@@ -12,7 +12,11 @@ use crate::signal_guard::{Crash, GuardArgs, TcCall};
 use super::*;
 
 /// An element of a guarded array: real or complex.
-pub(crate) trait Element: Copy {
+///
+/// # Safety
+/// An implementing type is made of f64 only (one or more, `repr(C)` or a plain f64), without
+/// padding: [`Element::bits`] reads its bytes as u64 words.
+pub(crate) unsafe trait Element: Copy {
     const PREFILL: Self;
     const CANARY: Self;
     const POISON: [Self; 2];
@@ -29,23 +33,16 @@ pub(crate) trait Element: Copy {
     /// that two arrays compare bit for bit on these.
     fn bits(values: &[Self]) -> &[u64] {
         const { assert!(std::mem::size_of::<Self>() % 8 == 0 && std::mem::align_of::<Self>() >= 8) };
-        // SAFETY: `Self` is f64 or Complex64 (repr(C), two f64): a whole number of u64 with
-        // no padding and at least u64 alignment, so the bytes of `values` are valid u64s.
+        // SAFETY: `Self` is made of f64 only, without padding (the trait's contract), and
+        // aligned at least as u64: the bytes of `values` are valid u64s.
         unsafe {
             std::slice::from_raw_parts(values.as_ptr().cast::<u64>(), std::mem::size_of_val(values) / 8)
         }
     }
-    /// The same words as [`Element::bits`], as f64 (a complex entry's two parts).
-    fn floats(values: &[Self]) -> &[f64] {
-        const { assert!(std::mem::size_of::<Self>() % 8 == 0 && std::mem::align_of::<Self>() >= 8) };
-        // SAFETY: as in `bits`: a whole number of f64 without padding, aligned for f64.
-        unsafe {
-            std::slice::from_raw_parts(values.as_ptr().cast::<f64>(), std::mem::size_of_val(values) / 8)
-        }
-    }
 }
 
-impl Element for f64 {
+// SAFETY: one f64.
+unsafe impl Element for f64 {
     const PREFILL: f64 = f64::from_bits(PREFILL_BITS);
     const CANARY: f64 = f64::from_bits(CANARY_BITS);
     const POISON: [f64; 2] = POISON;
@@ -61,7 +58,8 @@ impl Element for f64 {
     }
 }
 
-impl Element for Complex64 {
+// SAFETY: `Complex64` is `repr(C)` with two f64 fields, no padding.
+unsafe impl Element for Complex64 {
     const PREFILL: Complex64 = Complex64::new(f64::PREFILL, f64::PREFILL);
     const CANARY: Complex64 = Complex64::new(f64::CANARY, f64::CANARY);
     const POISON: [Complex64; 2] = [Complex64::new(POISON[0], 0.0), Complex64::new(POISON[1], 0.0)];
@@ -107,10 +105,10 @@ pub(crate) struct GuardBuffers<E> {
     report: ReportZone,
     /// The caller's outcome as it was before the call (restored before a rerun).
     report_before: Outcome,
-    /// The block as a first call loads it: the inputs of the call, the first poison after
-    /// each input, canaries after each output and pre-filled outputs. Kept between calls, so
-    /// that loading is one copy of it (after the inputs are written into it) and the check
-    /// afterwards a comparison with it of what must not change (inputs and zones).
+    /// The block as a first call loads it, but for the inputs: the first poison after each
+    /// input, canaries after each output and pre-filled outputs (the input regions hold the
+    /// pre-fill and are always overwritten). A load after a call that was not clean (see
+    /// `clean`) restores the block from it before writing the inputs.
     image: Vec<E>,
     /// Whether `data` holds the zones and pre-filled outputs as [`GuardBuffers::load_first`]
     /// leaves them apart from the outputs the last call wrote: the last call was a first-poison
@@ -212,19 +210,22 @@ impl<E: Element> GuardBuffers<E> {
 
     /// Which outputs hold an unwritten entry (bit k − [`N_INPUTS`] for array k; see
     /// [`Element::unwritten`]); a tangent the call did not ask for is left out (it is neither
-    /// checked nor copied back). An array is first looked at for a NaN at all (one
-    /// branch-free pass of floating-point comparisons): only one with a NaN is searched for the
-    /// pre-fill's bits.
+    /// checked nor copied back). An array is first looked at for a word whose exponent bits
+    /// are all set (a NaN or an infinity) in one branch-free pass of integer operations (a
+    /// floating-point comparison would raise the invalid-operation flag on the signalling
+    /// pre-fill); only such an array is searched for the pre-fill's bits.
     fn prefilled(&self, want_tangent: bool) -> u32 {
+        const EXPONENT: u64 = 0x7FF0_0000_0000_0000;
         (N_INPUTS..ARRAYS.len()).fold(0, |m, k| {
             if ARRAYS[k] == GuardedArray::Tangent && !want_tangent {
                 return m;
             }
-            let a = self.array(k);
-            #[allow(clippy::eq_op)] // x != x: the NaN test, in a form the compiler vectorises
-            let nan = E::floats(a).iter().fold(false, |acc, &x| acc | (x != x));
+            let a = E::bits(self.array(k));
+            // The exponent plus one in its lowest bit carries into bit 63 exactly when the
+            // exponent is all ones.
+            let special = a.iter().fold(0u64, |acc, &w| acc | ((w & EXPONENT) + (1 << 52))) >> 63;
             // Any half of a complex entry with the pre-fill's bits (see `Element::unwritten`).
-            let any = nan && E::bits(a).contains(&PREFILL_BITS);
+            let any = special != 0 && a.contains(&PREFILL_BITS);
             m | (u32::from(any) << (k - N_INPUTS))
         })
     }

@@ -173,3 +173,160 @@ fn a_call_after_a_clean_one_starts_from_pre_filled_outputs() {
         ]
     );
 }
+
+/// A call that writes a zone and then crashes leaves the block as the crash left it: the next
+/// call restores it first, so the write is not blamed on that (innocent) call. Each call is
+/// a clean one but the second.
+#[test]
+fn a_crash_after_a_clean_call_is_not_blamed_on_the_next_call() {
+    let mut g = GuardBuffers::<f64>::new(1, 0, 1);
+    let mut findings = Findings::default();
+    let call = TcCall {
+        abi_version: 1,
+        ncomp: 1,
+        nstate: 0,
+        nproperties: 1,
+        increment: 1,
+        flags: 0,
+        time: 0.0,
+        dtime: 1.0,
+    };
+    let mut crashed = Vec::new();
+    for k in 1..=3 {
+        let props = [210_000.0];
+        let (strain, dstrain, stress0) = ([1e-3], [1e-4], [0.0]);
+        let input = CallInput {
+            props: &props,
+            strain: &strain,
+            dstrain: &dstrain,
+            temp: [20.0, 0.0],
+            stress0: &stress0,
+            state0: &[],
+            time: [0.0, 1.0],
+            increment: k,
+            want_tangent: false,
+        };
+        let (mut stress, mut tangent, mut dtemp, mut energy) = ([0.0], [0.0], [0.0], [0.0; 2]);
+        let mut outcome = Outcome::default();
+        let mut output = CallOutput {
+            stress: &mut stress,
+            state: &mut [],
+            tangent: &mut tangent,
+            dstress_dtemp: &mut dtemp,
+            energy: &mut energy,
+            outcome: &mut outcome,
+        };
+        let r = g.call(
+            GuardLevel::Light,
+            &call,
+            std::ptr::null(),
+            false,
+            false,
+            &input,
+            &mut output,
+            &mut findings,
+            |a| {
+                // SAFETY: the block holds one stress and one property, each followed by its
+                // zone of ZONE entries.
+                unsafe {
+                    *a.stress.cast::<f64>() = 1.0;
+                    if k == 2 {
+                        *a.props.cast::<f64>().cast_mut().add(1) = 7.0;
+                        return Err(crate::signal_guard::Crash {
+                            signal: 11,
+                            kind: crate::signal_guard::SignalKind::Segmentation,
+                            detail: crate::signal_guard::CrashDetail::Unmapped,
+                            code: 1,
+                            address: None,
+                            pc: None,
+                        });
+                    }
+                }
+                Ok(())
+            },
+        );
+        crashed.push(r.is_err());
+    }
+    assert_eq!(crashed, [false, true, false]);
+    assert!(findings.list().is_empty(), "{:?}", findings.list());
+}
+
+/// The checks after a call leave the floating-point exception flags as the routine left
+/// them: the outputs' pre-fill is a signalling NaN, and a floating-point comparison of it would
+/// raise the invalid-operation flag for the next routine to find as its own.
+#[cfg(all(target_os = "linux", any(target_arch = "x86_64", target_arch = "aarch64")))]
+#[test]
+fn the_checks_raise_no_floating_point_flag() {
+    extern "C" {
+        fn feclearexcept(excepts: i32) -> i32;
+        fn fetestexcept(excepts: i32) -> i32;
+    }
+    // FE_INVALID in glibc's fenv.h on x86-64 and on aarch64 (from memory; both are 1).
+    const FE_INVALID: i32 = 1;
+    let mut g = GuardBuffers::<Complex64>::new(1, 1, 1);
+    let mut findings = Findings::default();
+    let call = TcCall {
+        abi_version: 1,
+        ncomp: 1,
+        nstate: 1,
+        nproperties: 1,
+        increment: 1,
+        flags: 0,
+        time: 0.0,
+        dtime: 1.0,
+    };
+    let c = |x: f64| Complex64::new(x, 0.0);
+    let (props, strain, dstrain, stress0, state0) = ([c(1.0)], [c(0.0)], [c(1e-4)], [c(0.0)], [c(0.0)]);
+    let input = CallInput {
+        props: &props,
+        strain: &strain,
+        dstrain: &dstrain,
+        temp: [c(20.0), c(0.0)],
+        stress0: &stress0,
+        state0: &state0,
+        time: [0.0, 1.0],
+        increment: 1,
+        want_tangent: true,
+    };
+    let nan = Complex64::new(f64::NAN, f64::NAN);
+    let (mut stress, mut state, mut tangent, mut dtemp, mut energy) = ([nan], [nan], [nan], [nan], [nan; 2]);
+    let mut outcome = Outcome::default();
+    let mut output = CallOutput {
+        stress: &mut stress,
+        state: &mut state,
+        tangent: &mut tangent,
+        dstress_dtemp: &mut dtemp,
+        energy: &mut energy,
+        outcome: &mut outcome,
+    };
+    for _ in 0..2 {
+        // SAFETY: plain C library calls on the calling thread's floating-point environment.
+        unsafe { feclearexcept(FE_INVALID) };
+        g.call(
+            GuardLevel::Light,
+            &call,
+            std::ptr::null(),
+            false,
+            true,
+            &input,
+            &mut output,
+            &mut findings,
+            |a| {
+                // SAFETY: one entry per array. The routine writes stress, state and tangent
+                // (not ∂σ/∂T nor the energies, which it does not provide: they keep the pre-fill).
+                unsafe {
+                    *a.stress.cast::<Complex64>() = c(1.0);
+                    *a.state.cast::<Complex64>() = c(0.0);
+                    *a.tangent.cast::<Complex64>() = c(1.0);
+                }
+                Ok(())
+            },
+        )
+        .unwrap();
+        // SAFETY: as above.
+        let raised = unsafe { fetestexcept(FE_INVALID) };
+        assert_eq!(raised, 0, "the checks raised the invalid-operation flag");
+    }
+    assert!(findings.list().is_empty(), "{:?}", findings.list());
+    assert!(dtemp[0].re.is_nan(), "an output not provided reaches the caller as a quiet NaN");
+}
