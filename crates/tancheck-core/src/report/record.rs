@@ -108,16 +108,33 @@ struct RecordShape {
     worst_error: Vec<Option<f64>>,
 }
 
+/// [`RecordShape`] borrowing the record's arrays, for writing: the same fields in the same
+/// order, without three allocations per record (a 20,000-increment report has 20,000 records).
+#[derive(Serialize)]
+struct RecordShapeRef<'a> {
+    index: u32,
+    branch: Option<i32>,
+    state_changed: bool,
+    pass: bool,
+    strain: &'a [f64],
+    stress: &'a [f64],
+    worst_error: &'a [Option<f64>],
+}
+
 impl Serialize for IncrementRecord {
     fn serialize<S: serde::Serializer>(&self, s: S) -> Result<S::Ok, S::Error> {
-        RecordShape {
+        let mut worst = [None; RECORD_SCHEMES];
+        for (w, e) in worst.iter_mut().zip(self.worst_errors()) {
+            *w = e;
+        }
+        RecordShapeRef {
             index: self.index,
             branch: self.branch,
             state_changed: self.state_changed,
             pass: self.pass,
-            strain: self.strain().to_vec(),
-            stress: self.stress().to_vec(),
-            worst_error: self.worst_errors().collect(),
+            strain: self.strain(),
+            stress: self.stress(),
+            worst_error: &worst[..self.nschemes as usize],
         }
         .serialize(s)
     }
