@@ -407,37 +407,8 @@ fn a_twin_writing_only_the_real_part_of_an_entry_is_found() {
     b.call(&mut r, 1).unwrap();
     assert!(r.findings().is_empty(), "{:#?}", r.findings());
 
-    let cx = |v: &[f64]| -> Vec<Complex64> { v.iter().map(|&x| Complex64::new(x, 0.0)).collect() };
-    let props: Vec<Complex64> = cx(&b.props);
-    let strain: Vec<Complex64> = cx(&b.strain);
-    let mut dstrain: Vec<Complex64> = cx(&b.dstrain);
-    dstrain[0].im = 1e-30;
-    let stress0: Vec<Complex64> = cx(&b.stress0);
-    let nan = Complex64::new(f64::NAN, f64::NAN);
-    let (mut stress, mut tangent, mut dtemp, mut energy) = ([nan; 6], [nan; 36], [nan; 6], [nan; 2]);
-    let mut outcome = Outcome::default();
-    let input = CallInput {
-        props: &props,
-        strain: &strain,
-        dstrain: &dstrain,
-        temp: [Complex64::new(293.0, 0.0), Complex64::new(0.0, 0.0)],
-        stress0: &stress0,
-        state0: &[],
-        time: [0.0, 1.0],
-        increment: 2,
-        want_tangent: false,
-    };
-    let mut output = CallOutput {
-        stress: &mut stress,
-        state: &mut [],
-        tangent: &mut tangent,
-        dstress_dtemp: &mut dtemp,
-        energy: &mut energy,
-        outcome: &mut outcome,
-    };
-    r.complex()
-        .expect("the twin was built")
-        .call_complex(&input, &mut output)
+    let mut stress = [Complex64::new(f64::NAN, f64::NAN); 6];
+    complex_call(&mut r, &b, 0, 1e-30, 2, &mut stress)
         .map(|_| ())
         .map_or_else(misbehaved, |_| panic!("the first finding ends the call with a fault"));
     let f = only(&r, FindingKind::Unwritten, GuardedArray::Stress);
