@@ -75,16 +75,19 @@ unsafe impl Element for Complex64 {
     }
 }
 
-/// Whether two arrays hold the same bits (as [`Element::same`] entry by entry): the common
-/// case of the light checks, where nothing changed, as one branch-free pass (no early exit,
-/// no call), so that only a difference is looked at entry by entry.
-fn same_bits<E: Element>(a: &[E], b: &[E]) -> bool {
-    a.len() == b.len() && a.iter().zip(b).fold(0, |acc, (&x, &y)| acc | x.differ(y)) == 0
+/// A call's read-only arrays in block order (the first [`N_INPUTS`] of [`ARRAYS`]).
+fn inputs<'a, E>(input: &'a CallInput<'_, E>) -> [&'a [E]; N_INPUTS] {
+    [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0]
 }
 
-/// Whether every entry of `a` has the bits of `v`.
-fn all_bits<E: Element>(a: &[E], v: E) -> bool {
-    a.iter().fold(0, |acc, &x| acc | x.differ(v)) == 0
+/// The pattern of zone k as a first call loads it: the first poison after a read-only array,
+/// the canary after an output.
+fn first_pattern<E: Element>(k: usize) -> E {
+    if k < N_INPUTS {
+        E::POISON[0]
+    } else {
+        E::CANARY
+    }
 }
 
 /// The routine's report struct followed by its guard zone.
@@ -138,7 +141,7 @@ impl<E: Element> GuardBuffers<E> {
         let mut image = vec![E::PREFILL; at];
         for k in 0..ARRAYS.len() {
             let (s, l) = (start[k], len[k]);
-            image[s + l..s + l + ZONE].fill(if k < N_INPUTS { E::POISON[0] } else { E::CANARY });
+            image[s + l..s + l + ZONE].fill(first_pattern(k));
         }
         GuardBuffers {
             data: image.clone(),
@@ -161,9 +164,7 @@ impl<E: Element> GuardBuffers<E> {
         if !self.clean {
             self.data.copy_from_slice(&self.image);
         }
-        let inputs: [&[E]; N_INPUTS] =
-            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
-        for (k, src) in inputs.iter().enumerate() {
+        for (k, src) in inputs(input).iter().enumerate() {
             self.array_mut(k).copy_from_slice(src);
         }
         if self.clean {
@@ -181,8 +182,6 @@ impl<E: Element> GuardBuffers<E> {
     /// bytes. One branch-free pass of bit differences per array (no call, no early exit: on
     /// arrays this short it measured faster than slice equality, which calls `memcmp`).
     fn as_loaded(&self, input: &CallInput<'_, E>) -> bool {
-        let inputs: [&[E]; N_INPUTS] =
-            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
         let differ = |a: &[E], b: &[E]| {
             let (a, b) = (E::bits(a), E::bits(b));
             a.iter().zip(b).fold((a.len() ^ b.len()) as u64, |acc, (x, y)| acc | (x ^ y))
@@ -193,11 +192,11 @@ impl<E: Element> GuardBuffers<E> {
             z.iter().fold(0, |a, &x| a | x.differ(v))
         };
         let mut acc = 0u64;
-        for (k, original) in inputs.iter().enumerate() {
-            acc |= differ(self.array(k), original) | zone_differs(k, E::POISON[0]);
+        for (k, original) in inputs(input).iter().enumerate() {
+            acc |= differ(self.array(k), original);
         }
-        for k in N_INPUTS..ARRAYS.len() {
-            acc |= zone_differs(k, E::CANARY);
+        for k in 0..ARRAYS.len() {
+            acc |= zone_differs(k, first_pattern(k));
         }
         let canary = u64::from_ne_bytes([REPORT_CANARY; 8]);
         acc |= self
@@ -252,9 +251,7 @@ impl<E: Element> GuardBuffers<E> {
     /// Copy the inputs in (poison `poison[k]` after input k), pre-fill the outputs and set
     /// the canaries.
     fn load(&mut self, input: &CallInput<'_, E>, poison: &[E; N_INPUTS]) {
-        let inputs: [&[E]; N_INPUTS] =
-            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
-        for (k, src) in inputs.iter().enumerate() {
+        for (k, src) in inputs(input).iter().enumerate() {
             self.array_mut(k).copy_from_slice(src);
             self.zone_mut(k).fill(poison[k]);
         }
@@ -369,26 +366,17 @@ impl<E: Element> GuardBuffers<E> {
         findings: &mut Findings,
         finding: &impl Fn(FindingKind, usize, usize, usize) -> GuardFinding,
     ) {
-        let inputs: [&[E]; N_INPUTS] =
-            [input.props, input.strain, input.dstrain, &input.temp, input.stress0, input.state0];
-        let poison = E::POISON[0];
-        for (k, original) in inputs.iter().enumerate() {
-            if !same_bits(self.array(k), original) {
+        let originals = inputs(input);
+        // Per array, the read-only copy before its zone (the order findings are recorded in).
+        for k in 0..ARRAYS.len() {
+            if let Some(original) = originals.get(k) {
                 if let Some((first, n)) = mismatch(self.array(k), |i, v| v.same(original[i])) {
                     findings.record(finding(FindingKind::InputWritten, k, first, n));
                 }
             }
-            if !all_bits(self.zone(k), poison) {
-                if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(poison)) {
-                    findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
-                }
-            }
-        }
-        for k in N_INPUTS..ARRAYS.len() {
-            if !all_bits(self.zone(k), E::CANARY) {
-                if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(E::CANARY)) {
-                    findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
-                }
+            let pattern = first_pattern::<E>(k);
+            if let Some((first, n)) = mismatch(self.zone(k), |_, v| v.same(pattern)) {
+                findings.record(finding(FindingKind::Overrun, k, self.len[k] + first, n));
             }
         }
         if let Some(first) = self.report.zone.iter().position(|&b| b != REPORT_CANARY) {
