@@ -10,6 +10,7 @@ use std::sync::OnceLock;
 use std::time::{Duration, Instant};
 
 use serde_json::Value;
+use tancheck_testkit::libs::solid_manifest;
 
 fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_tancheck"))
@@ -115,16 +116,14 @@ struct Run {
 /// variables) along `steps` increments of uniaxial strain, with the JSON report in a file.
 fn check(lib: &Path, symbol: &str, steps: usize, flags: &[&str]) -> Run {
     let d = scratch(&format!("{symbol}-{}", flags.join("").replace(['-', '/'], "")));
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
-  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": {steps} }} }}"#,
-            lib.display()
-        ),
-    )
-    .unwrap();
+    let m = solid_manifest(
+        &d,
+        lib,
+        symbol,
+        2,
+        "[210000, 0.3]",
+        &format!(r#", "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": {steps} }}"#),
+    );
     let json = d.join("report.json");
     let o = bin()
         .arg("check")
@@ -151,16 +150,14 @@ fn check(lib: &Path, symbol: &str, steps: usize, flags: &[&str]) -> Run {
 /// The check with `--json -`: standard output must be exactly one JSON report.
 fn check_json_stdout(lib: &Path, symbol: &str, flags: &[&str]) -> (Option<i32>, Value) {
     let d = scratch(&format!("{symbol}-stdout{}", flags.join("").replace('-', "")));
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
-  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
-            lib.display()
-        ),
-    )
-    .unwrap();
+    let m = solid_manifest(
+        &d,
+        lib,
+        symbol,
+        0,
+        "[210000, 0.3]",
+        r#", "path": { "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }"#,
+    );
     let o = output(bin().arg("check").arg(&m).args(flags).args(["--json", "-"]));
     let v = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| {
         panic!(
@@ -249,15 +246,7 @@ fn exit_in_a_library_constructor_is_a_fault_during_the_load() {
 fn a_library_constructor_that_hangs_is_stopped_by_the_call_time_limit() {
     let lib = build("ctor-sleep", "fortran-shim/examples/c/misbehave_ctor.c");
     let d = scratch("ctor-sleep-run");
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "ctor_elastic", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }} }}"#,
-            lib.display()
-        ),
-    )
-    .unwrap();
+    let m = solid_manifest(&d, &lib, "ctor_elastic", 0, "[210000, 0.3]", "");
     for (flags, words) in [
         (&[][..], "did not finish loading within 1 s"),
         (&["--isolate"][..], "did not reach the first routine call"),
@@ -392,16 +381,14 @@ fn wait_until(what: &str, mut done: impl FnMut() -> bool) {
 /// Start `tancheck check --isolate` on the sleeping routine and wait until its worker hangs.
 fn start_hanging_isolated(name: &str) -> (std::process::Child, PathBuf, PathBuf) {
     let d = scratch(name);
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_sleep", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
-  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
-            misbehave().display()
-        ),
-    )
-    .unwrap();
+    let m = solid_manifest(
+        &d,
+        misbehave(),
+        "bad_sleep",
+        0,
+        "[210000, 0.3]",
+        r#", "path": { "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }"#,
+    );
     let json = d.join("report.json");
     let mut cmd = bin();
     cmd.arg("check")
@@ -472,16 +459,8 @@ fn an_isolated_check_that_finishes_reports_what_the_plain_check_reports() {
         [(&j2, "c_j2", 0), (&zoo, "c_j2_shear_factor", 1), (&zoo, "c_twin_real_sqrt", 4)]
     {
         let d = scratch(&format!("isolate-same-{symbol}"));
-        let m = d.join("m.json");
-        std::fs::write(
-            &m,
-            format!(
-                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 13, "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] }},
-  "path": {{ "shape": "tension-shear", "peak": 0.004, "steps": 8 }} }}"#,
-                lib.display()
-            ),
-        )
-        .unwrap();
+        let path = r#", "path": { "shape": "tension-shear", "peak": 0.004, "steps": 8 }"#;
+        let m = solid_manifest(&d, lib, symbol, 13, "[210000, 0.3, 355, 1200, 150, 12, 2500]", path);
         let run = |isolate: bool, json: Option<&Path>| {
             let mut c = bin();
             c.arg("check").arg(&m).args(["-q", "--jobs", "1"]).stdin(Stdio::null());

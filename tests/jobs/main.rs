@@ -20,7 +20,7 @@ fn text(o: &Output) -> String {
     format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
 }
 
-use tancheck_testkit::libs::scratch;
+use tancheck_testkit::libs::{scratch, solid_manifest};
 
 fn repo(rel: &str) -> PathBuf {
     Path::new(env!("CARGO_MANIFEST_DIR")).join(rel)
@@ -69,15 +69,7 @@ fn check_guarded(
     guards: &str,
 ) -> (Option<i32>, Vec<u8>, String) {
     let d = scratch(&format!("{symbol}-{jobs}-{guards}"));
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        format!(
-            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": {states}, "properties": {props} }}, "guards": "{guards}" }}"#,
-            lib.display()
-        ),
-    )
-    .unwrap();
+    let m = solid_manifest(&d, lib, symbol, states, props, &format!(r#", "guards": "{guards}""#));
     let json = d.join("report.json");
     let o = bin()
         .arg("check")

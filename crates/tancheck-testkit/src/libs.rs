@@ -102,3 +102,23 @@ pub fn beside_compiled<R: Routine>(rust: R, lib: &Path, symbol: &str) -> (R, Lib
 pub fn output_text(o: &Output) -> String {
     format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr))
 }
+
+/// Writes `dir/m.json`, the manifest of the solid-3d routine `symbol` of the library `lib`
+/// with `states` state variables and the properties `props` (a JSON array), followed by
+/// `rest`: more top-level fields, each after a comma (e.g. `, "guards": "full"`), or nothing.
+pub fn solid_manifest(
+    dir: &Path,
+    lib: &Path,
+    symbol: &str,
+    states: usize,
+    props: &str,
+    rest: &str,
+) -> PathBuf {
+    let m = dir.join("m.json");
+    let text = format!(
+        r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": {states}, "properties": {props} }}{rest} }}"#,
+        lib.display()
+    );
+    std::fs::write(&m, text).unwrap_or_else(|e| panic!("writing {}: {e}", m.display()));
+    m
+}
