@@ -125,19 +125,13 @@ fn a_short_path_is_checked_on_one_thread() {
     let i = info(13, 7);
     let mut j2 = lib.routine("c_j2", i.clone()).unwrap();
     let mut caller = Caller::new(&mut j2);
-    let settings = tancheck::core::Settings { jobs: 2, ..Default::default() };
-    let short = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 40, 40);
+    let settings = two_threads();
+    let short = ramp(40);
     assert!(concurrent::plan(&mut caller, &short, &settings).is_none());
-    let long = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 200, 200);
+    let long = ramp(200);
     assert!(concurrent::plan(&mut caller, &long, &settings).is_some());
-    let report = tancheck::core::check::run(
-        &mut caller,
-        &[210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0],
-        PointState::zero(&i, 20.0),
-        &short,
-        &settings,
-    )
-    .unwrap();
+    let report =
+        check_from_zero(&mut caller, &i, &[210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0], &short);
     assert_eq!(report.settings.jobs, 1);
     assert!(report.notes.iter().all(|n| !n.contains("one thread")), "{:?}", report.notes);
 }
@@ -151,16 +145,7 @@ fn a_walk_that_meets_a_fault_leaves_the_check_to_one_thread() {
     let i = info(0, 2);
     let mut late = lib.routine("c_late_fails", i.clone()).unwrap();
     let mut caller = Caller::new(&mut late);
-    let settings = tancheck::core::Settings { jobs: 2, ..Default::default() };
-    let path = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 200, 200);
-    let report = tancheck::core::check::run(
-        &mut caller,
-        &[210000.0, 0.3],
-        PointState::zero(&i, 20.0),
-        &path,
-        &settings,
-    )
-    .unwrap();
+    let report = check_from_zero(&mut caller, &i, &[210000.0, 0.3], &ramp(200));
     assert_eq!(report.verdict, tancheck::core::Verdict::RoutineFault);
     assert_eq!(report.settings.jobs, 1);
     let (c1, j1, _) = check(c_lib(), "c_late_fails", 0, ELASTIC_PROPS, 1);
@@ -182,6 +167,26 @@ fn fortran_examples_give_the_same_report_on_one_and_two_threads() {
     same_on_one_and_two_threads(&out, "f_j2_continuum", 13, J2_PROPS, 1);
 }
 
+/// The tension–shear ramp to 6e-3 in `steps` increments and back (`PATH_SPEC` for 200).
+fn ramp(steps: usize) -> tancheck::core::Path {
+    tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, steps, steps)
+}
+
+/// The default settings on two threads.
+fn two_threads() -> tancheck::core::Settings {
+    tancheck::core::Settings { jobs: 2, ..Default::default() }
+}
+
+/// A check on two threads along `path`, from the zero state at 20°.
+fn check_from_zero(
+    caller: &mut Caller<'_>,
+    i: &RoutineInfo,
+    props: &[f64],
+    path: &tancheck::core::Path,
+) -> tancheck::core::Report {
+    tancheck::core::check::run(caller, props, PointState::zero(i, 20.0), path, &two_threads()).unwrap()
+}
+
 fn info(nstate: usize, nprop: usize) -> RoutineInfo {
     RoutineInfo {
         name: "jobs".into(),
@@ -194,8 +199,8 @@ fn info(nstate: usize, nprop: usize) -> RoutineInfo {
 /// The reason the probe gives, or `None` when the routine passed it.
 fn probe_verdict(symbol: &str, nstate: usize, props: &[f64]) -> Option<String> {
     let lib = Library::open(c_lib()).unwrap();
-    let path = tancheck::core::Path::ramp(tancheck::core::Shape::TensionShear, 6e-3, 200, 200);
-    let settings = tancheck::core::Settings { jobs: 2, ..Default::default() };
+    let path = ramp(200);
+    let settings = two_threads();
     let i = info(nstate, props.len());
     let mut routine = lib.routine(symbol, i.clone()).unwrap();
     let driver = Driver::new(&i, props, PointState::zero(&i, 20.0)).unwrap();

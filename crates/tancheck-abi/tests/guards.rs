@@ -307,6 +307,19 @@ fn the_complex_twin_is_guarded_too() {
     assert!((z.stress[0].im / 1e-30 - c[0]).abs() <= 1e-9 * c[0]);
 }
 
+/// The C routine `source`, built as a library of its own (with its complex-step twin when
+/// `twin`) in a scratch folder named after `name`, and opened.
+fn build_source(name: &str, source: &str, twin: bool) -> Library {
+    let dir = scratch(name);
+    let src = dir.join(format!("{name}.c"));
+    std::fs::write(&src, source).unwrap();
+    let out = dir.join(format!("lib{name}.so"));
+    let mut opts = tancheck_abi::BuildOptions::new([&src], &out);
+    opts.twin = twin;
+    tancheck_abi::build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
+    Library::open(&out).unwrap()
+}
+
 const OVERLONG_MESSAGE_C: &str = r#"
 #include "tancheck_routine.h"
 TC_ROUTINE(long_message)
@@ -326,14 +339,7 @@ TC_ROUTINE(long_message)
 /// A message longer than the report's buffer, and a write to the call description.
 #[test]
 fn a_message_past_its_buffer_and_a_write_to_the_call_are_reported() {
-    let dir = scratch("long-message");
-    let src = dir.join("long_message.c");
-    std::fs::write(&src, OVERLONG_MESSAGE_C).unwrap();
-    let out = dir.join("liblong.so");
-    let mut opts = tancheck_abi::BuildOptions::new([&src], &out);
-    opts.twin = false;
-    tancheck_abi::build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
-    let lib = Library::open(&out).unwrap();
+    let lib = build_source("long_message", OVERLONG_MESSAGE_C, false);
     let mut r = lib.routine("long_message", elastic_info("long_message")).unwrap();
     let mut b = Real::new();
     b.call(&mut r, 1)
@@ -394,13 +400,7 @@ TC_ROUTINE(half_written)
 /// real routine, writing every entry, gives no finding.
 #[test]
 fn a_twin_writing_only_the_real_part_of_an_entry_is_found() {
-    let dir = scratch("half-written");
-    let src = dir.join("half_written.c");
-    std::fs::write(&src, HALF_WRITTEN_C).unwrap();
-    let out = dir.join("libhalf.so");
-    let opts = tancheck_abi::BuildOptions::new([&src], &out);
-    tancheck_abi::build_library(&opts).unwrap_or_else(|e| panic!("{e}"));
-    let lib = Library::open(&out).unwrap();
+    let lib = build_source("half_written", HALF_WRITTEN_C, true);
     let mut r = lib.routine("half_written", elastic_info("half_written")).unwrap();
     r.set_guard_level(GuardLevel::Light);
     let mut b = Real::new();
