@@ -254,9 +254,13 @@ pub fn loop_library(dir: &std::path::Path) -> (libloading::Library, LoopFn) {
 /// Per-iteration times of one benchmark, as its `iter_custom` measured them (warm-up included).
 pub type Times = Rc<RefCell<Vec<f64>>>;
 
-/// The fastest and the median of `t`, in seconds.
+/// The fastest and the median of `t`, in seconds; NaN when it has none (a benchmark left out
+/// by a name filter on the command line).
 pub fn stats(t: &Times) -> (f64, f64) {
     let mut v = t.borrow().clone();
+    if v.is_empty() {
+        return (f64::NAN, f64::NAN);
+    }
     v.sort_by(f64::total_cmp);
     (v[0], v[v.len() / 2])
 }
