@@ -292,7 +292,9 @@ fn without_notes(json: &[u8]) -> serde_json::Value {
 /// guards, the probe's calls of the path's increments catch the one that counts its calls,
 /// and the comparison after the threads catches the one whose base calls within a check
 /// differ from a walk's (the calls before them differ): the check is made again on one thread,
-/// with the same report as `--jobs 1` but for the note saying why.
+/// with the same report as `--jobs 1` but for the note saying why: made on a new instance of
+/// the library, since the walk, the probe and the threads have changed the statics of the
+/// instance they called.
 #[test]
 fn a_result_that_depends_on_the_calls_before_has_the_check_made_on_one_thread() {
     for symbol in ["c_late_count", "c_late_after_perturbed"] {
@@ -302,8 +304,11 @@ fn a_result_that_depends_on_the_calls_before_has_the_check_made_on_one_thread() 
         assert!(t2.contains("gave different results for two identical calls"), "{t2}");
     }
 
+    let (c1, j1, t1) = check_guarded(c_lib(), "c_late_count", 0, ELASTIC_PROPS, 1, "off");
     let (code, json, t) = check_guarded(c_lib(), "c_late_count", 0, ELASTIC_PROPS, 2, "off");
     assert_ne!(code, Some(3), "{t}");
+    assert_eq!(c1, code, "{t1}\n{t}");
+    assert_eq!(without_notes(&j1), without_notes(&json), "the counted calls start from the count at load");
     let json = String::from_utf8(json).unwrap();
     assert!(
         json.contains("checked on one thread instead of 2: the same call gave different results"),

@@ -25,6 +25,18 @@ impl Loaded {
 
 /// Load what the manifest names. `dir` is the manifest's folder (relative library paths).
 pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
+    load_with(m, dir, false)
+}
+
+/// [`load`] again, for a check made anew: a library is loaded as a new instance
+/// ([`Library::open_fresh`]: its static and SAVE variables as at load, whatever the calls
+/// made to the instance loaded first), and the notes printed on the first load are not
+/// printed again. A built-in model is made anew.
+pub fn load_fresh(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
+    load_with(m, dir, true)
+}
+
+fn load_with(m: &Manifest, dir: &FsPath, fresh: bool) -> Result<Loaded> {
     let r = &m.routine;
     let conv = m.convention().map_err(anyhow::Error::msg)?;
     if let Some(name) = &r.model {
@@ -41,7 +53,7 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
     let lib_path = r.library.as_ref().expect("validated: library or model");
     let lib_path = if lib_path.is_relative() { dir.join(lib_path) } else { lib_path.clone() };
     let symbol = r.symbol.as_ref().expect("validated: symbol with library");
-    let lib = Library::open(&lib_path)?;
+    let lib = if fresh { Library::open_fresh(&lib_path)? } else { Library::open(&lib_path)? };
     let info = RoutineInfo {
         name: format!("{}:{symbol}", lib_path.file_name().map(|f| f.to_string_lossy()).unwrap_or_default()),
         convention: conv,
@@ -53,13 +65,17 @@ pub fn load(m: &Manifest, dir: &FsPath) -> Result<Loaded> {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
     } else if lib.has_symbol(tancheck_abi::DEBUG_MARKER) {
         // `tancheck build --debug` asked for traps; in a library only the caller can set them.
-        if tancheck_abi::signal_guard::fp_traps_available() {
+        let traps = tancheck_abi::signal_guard::fp_traps_available();
+        if traps {
             routine.set_fp_traps(true).context("switching floating-point traps on")?;
+        }
+        // Said once, on the first load.
+        if !fresh && traps {
             eprintln!(
                 "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
                 lib_path.display()
             );
-        } else {
+        } else if !fresh {
             eprintln!(
                 "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
                 lib_path.display()

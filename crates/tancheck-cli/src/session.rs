@@ -118,33 +118,20 @@ pub fn run_manifest_with(
     }
     let mut loaded = load(m, dir)?;
     let mut report = check_loaded(&mut loaded, m, path, keep, progress, &m.check)?;
-    // What the memory guards of a library saw, the same way the C API reports it.
-    let redo = match &mut loaded {
-        Loaded::Library(lib)
-            if tancheck_core::concurrent::redo_on_one_thread(
+    if let Loaded::Library(lib) = &loaded {
+        let findings_on_threads = !lib.findings().is_empty();
+        // A check on several threads that gave way to one (the routine's results depend on the
+        // calls made before), or one whose threads met a fault or a guard finding, is made
+        // again on one thread (misbehaving routines only; see `concurrent::GaveWay` and
+        // `concurrent::redo_on_one_thread`).
+        if report.gave_way.is_some()
+            || tancheck_core::concurrent::redo_on_one_thread(
                 &report,
-                !lib.findings().is_empty(),
+                findings_on_threads,
                 path.increments.len(),
-            ) =>
+            )
         {
-            lib.take_findings();
-            lib.reset_guard_calls();
-            true
-        }
-        _ => false,
-    };
-    if redo {
-        // The check again on one thread (see `concurrent::redo_on_one_thread`; misbehaving
-        // routines only).
-        let serial = tancheck_core::Settings { jobs: 1, ..m.check.clone() };
-        let threaded =
-            std::mem::replace(&mut report, check_loaded(&mut loaded, m, path, keep, progress, &serial)?);
-        if let Loaded::Library(lib) = &loaded {
-            report.notes.extend(tancheck_core::concurrent::redo_note(
-                &threaded,
-                &report,
-                !lib.findings().is_empty(),
-            ));
+            report = again_on_one_thread(&mut loaded, report, m, dir, path, keep, progress)?;
         }
     }
     if let Loaded::Library(lib) = &mut loaded {
@@ -156,6 +143,56 @@ pub fn run_manifest_with(
             &findings,
         );
     }
+    Ok(report)
+}
+
+/// The check made again on one thread, after `first` (made on several threads, or given way
+/// to one after the threads' calls): on a new instance of the library
+/// ([`crate::load::load_fresh`]), whose static and SAVE variables are as at load, so that the
+/// report is the one `--jobs 1` makes but for the note saying why. `loaded` becomes that
+/// instance. When no new instance can be loaded (a copy of the file cannot be written, or
+/// does not load), the check is made again on the instance the threads called, as a note says.
+fn again_on_one_thread(
+    loaded: &mut Loaded,
+    first: Report,
+    m: &Manifest,
+    dir: &std::path::Path,
+    path: &Path,
+    keep: Keep,
+    progress: bool,
+) -> Result<Report> {
+    let serial = tancheck_core::Settings { jobs: 1, ..m.check.clone() };
+    let fresh = crate::load::load_fresh(m, dir);
+    let old_instance = fresh.as_ref().err().map(|e| {
+        format!(
+            "the check on one thread ran on the instance of the library the threads had called (a new one could \
+             not be loaded: {e:#}): results that depend on the calls before may differ from --jobs 1"
+        )
+    });
+    match (fresh, &first.gave_way) {
+        (Ok(f), _) => *loaded = f,
+        // Without a new instance, a check that gave way stays as made (on one thread already).
+        (Err(_), Some(_)) => {
+            let mut report = first;
+            report.notes.extend(old_instance);
+            return Ok(report);
+        }
+        (Err(_), None) => {
+            if let Loaded::Library(lib) = loaded {
+                lib.take_findings();
+                lib.reset_guard_calls();
+            }
+        }
+    }
+    let mut report = check_loaded(loaded, m, path, keep, progress, &serial)?;
+    match &first.gave_way {
+        Some(g) => g.add_note(&mut report.notes, report.verdict == tancheck_core::Verdict::RoutineFault),
+        None => {
+            let serial_findings = matches!(&*loaded, Loaded::Library(lib) if !lib.findings().is_empty());
+            report.notes.extend(tancheck_core::concurrent::redo_note(&first, &report, serial_findings));
+        }
+    }
+    report.notes.extend(old_instance);
     Ok(report)
 }
 

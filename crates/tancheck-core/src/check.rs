@@ -72,8 +72,8 @@ pub fn run_with(
     let plan = if stopped_at_zero { None } else { concurrent::plan(caller, path, settings) };
     // The threads the path was checked on (1 also when a check on several gave way).
     let mut threads_used = 1;
-    // The fault that ended the walk or the probe of a check on several threads (see below).
-    let mut walk_fault = None;
+    // How a check on several threads gave way to one, when it did (its note is added below).
+    let mut gave_way = None;
     let chunks = match plan {
         Some(plan) => {
             let threads = plan.threads();
@@ -83,12 +83,8 @@ pub fn run_with(
                     threads_used = threads;
                     Some(chunks)
                 }
-                Err(concurrent::Serial::Because(why)) => {
-                    merged.notes.push(format!("checked on one thread instead of {threads}: {why}"));
-                    None
-                }
-                Err(concurrent::Serial::Faulted(fault)) => {
-                    walk_fault = Some((threads, fault));
+                Err(serial) => {
+                    gave_way = Some(concurrent::GaveWay { threads, at: merged.notes.len(), serial });
                     None
                 }
             }
@@ -129,13 +125,8 @@ pub fn run_with(
             }
         }
     }
-    // A fault of the walk or the probe that the check on one thread did not meet.
-    if let Some((n, fault)) = walk_fault.filter(|_| !merged.increments.any_fault) {
-        merged.notes.push(format!(
-            "checked on one thread instead of {n}: a call made to prepare the threads faulted ({fault}), where \
-             the check on one thread met no fault: the routine's results depend on the calls made before it \
-             or at the same time on other threads"
-        ));
+    if let Some(g) = &gave_way {
+        g.add_note(&mut merged.notes, merged.increments.any_fault);
     }
     let Merged { notes, increments, unloaded, .. } = merged;
 
@@ -202,6 +193,7 @@ pub fn run_with(
         notes,
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
         guard: None,
+        gave_way,
     })
 }
 

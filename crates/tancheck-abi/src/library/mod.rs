@@ -87,6 +87,31 @@ impl Library {
         Ok(Library { path, inner })
     }
 
+    /// The library at `path` loaded anew, as a second instance beside any loaded before:
+    /// its static and SAVE variables (and what its constructors set up) start as they do on a
+    /// first load, whatever calls were made to an instance loaded earlier. The loader keeps
+    /// one instance per file, so this loads a private copy of the file (written to a folder
+    /// of the system's temporary directory and removed once loaded; the mapping stays). The
+    /// copy's dependencies are the ones the first instance loaded (matched by name). The
+    /// returned library reports `path`, not the copy's.
+    pub fn open_fresh(path: impl AsRef<Path>) -> Result<Library, LoadError> {
+        use std::sync::atomic::{AtomicU64, Ordering};
+        static COPIES: AtomicU64 = AtomicU64::new(0);
+        let given = path.as_ref();
+        let n = COPIES.fetch_add(1, Ordering::Relaxed);
+        let dir = std::env::temp_dir().join(format!("tancheck-fresh-{}-{n}", std::process::id()));
+        let name = given.file_name().map_or_else(|| "routine.so".into(), |f| f.to_os_string());
+        let copy = dir.join(name);
+        let unreadable = |source| LoadError::Unreadable { path: given.to_path_buf(), source };
+        std::fs::create_dir_all(&dir).map_err(unreadable)?;
+        let opened = std::fs::copy(given, &copy).map_err(unreadable).and_then(|_| Library::open(&copy));
+        // Loaded (or not), the copy's file is not needed any more.
+        let _ = std::fs::remove_dir_all(&dir);
+        let mut lib = opened?;
+        lib.path = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
+        Ok(lib)
+    }
+
     /// The library's path (absolute).
     pub fn path(&self) -> &Path {
         &self.path

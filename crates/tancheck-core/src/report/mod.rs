@@ -258,6 +258,10 @@ pub struct Report {
     /// What the memory guards of a loaded library saw (absent for a model).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub guard: Option<GuardSummary>,
+    /// How a check asked for on several threads gave way to one, when it did (see
+    /// [`crate::concurrent::GaveWay`]); not written (the notes say it).
+    #[serde(skip)]
+    pub gave_way: Option<crate::concurrent::GaveWay>,
 }
 
 /// The memory guards of a loaded library over one check.
