@@ -10,8 +10,8 @@ use std::path::PathBuf;
 pub enum LoadError {
     /// The path names no file.
     #[error(
-        "no file `{}`: check the path (relative paths start from the current directory), or \
-         build the library first with `tancheck build SOURCE... -o {}`",
+        "no file `{}` (the path as it was looked for: a manifest's relative paths start from its \
+         own folder): check the path, or build the library first with `tancheck build SOURCE... -o {}`",
         path.display(),
         path.display()
     )]
