@@ -154,6 +154,43 @@ fn a_default_check_catches_misbehaviour_in_a_new_branch_and_on_a_zero_increment(
     expect("bad_branch_overread", &["--guards", "off"], 0, "PASS");
 }
 
+/// A guard finding in the schemes' calls (not the base call) marks the scheme's cell as a
+/// fault, not a crash (no signal ended the call), and the verdict names the guards.
+#[test]
+fn a_guard_finding_in_a_schemes_call_reads_as_a_fault_not_a_crash() {
+    let (c, t) = check(c_lib(), "bad_perturbed_overrun", &[]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("wrote past the end of state"), "{t}");
+    let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).expect("the row of increment 2");
+    assert!(row.contains("FAULT") && !row.contains("CRASH"), "{row}\n{t}");
+    assert!(t.contains("or was flagged by the memory guards"), "{t}");
+}
+
+/// A twin that is not complex-step safe in many increments: each increment says why, and the
+/// usual culprits are listed once, at the first, the later ones referring to it.
+#[test]
+fn the_usual_culprits_of_an_unsafe_twin_are_listed_once() {
+    let zoo = build("culprits-zoo-j2", "fortran-shim/examples/c/zoo_j2.c");
+    let d = scratch("culprits");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "c_twin_real_sqrt", "kind": "solid-3d", "states": 13, "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] }},
+  "path": {{ "shape": "tension-shear", "peak": 0.004, "steps": 8 }} }}"#,
+            zoo.display()
+        ),
+    )
+    .unwrap();
+    let o = bin().arg("check").arg(&m).args(["--jobs", "1"]).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(4), "{t}");
+    let set_aside: Vec<&str> = t.lines().filter(|l| l.contains("twin set aside:")).collect();
+    assert!(set_aside.len() > 1, "{t}");
+    assert_eq!(t.matches("Usual culprits: conjugating intrinsics").count(), 1, "{t}");
+    assert!(set_aside[1..].iter().all(|l| l.contains("Usual culprits: as listed at increment ")), "{t}");
+}
+
 #[test]
 fn crashes_are_faults_with_the_inputs_of_the_call() {
     expect("bad_null_deref", &[], 3, "SIGSEGV");

@@ -166,6 +166,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_infinite_loop",
             "bad_late_exit",
             "bad_null_deref",
+            "bad_perturbed_overrun",
             "bad_printf",
             "bad_props_overread",
             "bad_scratch_increment",

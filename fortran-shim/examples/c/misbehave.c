@@ -41,6 +41,9 @@
  *                       write)                                       -> stress not finite
  *   bad_hidden_state    adds a count of its own calls to stress[0]  -> "different results for two
  *                                                                      identical calls"
+ *   bad_perturbed_overrun writes state[nstate] only in calls that do not ask for the tangent
+ *                       (the perturbed ones)                         -> "wrote past the end of
+ *                       state" on the schemes' calls, the base calls clean
  *
  * and these misbehave in every call of one branch, or of a zero increment, so that a default
  * check (full guards on the first call of each new branch, one zero increment) finds them:
@@ -241,6 +244,16 @@ TC_ROUTINE(bad_state_overrun)
     /* An off-by-one loop bound: state[nstate] is one past the end. */
     for (int k = 0; k <= call->nstate; ++k) {
         state[k] = (k < call->nstate) ? state0[k] : 0.0;
+    }
+}
+
+TC_ROUTINE(bad_perturbed_overrun)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* A scratch entry one past the state, written only where no tangent is formed. */
+    if (!(call->flags & TC_WANT_TANGENT)) {
+        state[call->nstate] = 0.0;
     }
 }
 

@@ -28,7 +28,8 @@ pub enum Verdict {
     Pass,
     /// At least one tangent check failed.
     TangentFailure,
-    /// The routine crashed, or reported that it could not compute an increment.
+    /// The routine crashed, was flagged by the memory guards, or reported that it could not
+    /// compute an increment.
     RoutineFault,
     /// The tangent agrees with the real difference schemes, but the complex-step twin is not
     /// complex-step safe (its results were set aside).

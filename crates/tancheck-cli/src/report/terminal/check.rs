@@ -87,6 +87,8 @@ pub fn write(out: &mut dyn Write, r: &Report, detail: Detail, p: Palette) -> io:
     };
     let mut full = r.increments.iter().peekable();
     let mut run: Vec<IncrementRecord> = Vec::new();
+    // The first increment whose diagnosis listed the twin's usual culprits (listed once).
+    let mut culprits_at = None;
     for rec in records {
         while full.peek().is_some_and(|i| (i.index as u32) < rec.index) {
             full.next();
@@ -101,7 +103,7 @@ pub fn write(out: &mut dyn Write, r: &Report, detail: Detail, p: Palette) -> io:
             run.clear();
         }
         match inc {
-            Some(inc) => increment(out, inc, detail, p)?,
+            Some(inc) => increment(out, inc, detail, p, &mut culprits_at)?,
             None => folded(out, r, std::slice::from_ref(rec), p)?,
         }
     }
@@ -146,7 +148,15 @@ fn quiet(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
     verdict(out, r, p)
 }
 
-fn increment(out: &mut dyn Write, inc: &IncrementResult, detail: Detail, p: Palette) -> io::Result<()> {
+/// `culprits_at`: the first increment whose lines listed the usual culprits of a twin that is
+/// not complex-step safe; a later increment refers to it instead of listing them again.
+fn increment(
+    out: &mut dyn Write,
+    inc: &IncrementResult,
+    detail: Detail,
+    p: Palette,
+    culprits_at: &mut Option<usize>,
+) -> io::Result<()> {
     let cleared = inc.diagnosis.as_ref().is_some_and(|d| d.pass);
     let mut cells: Vec<String> = inc
         .checks
@@ -188,7 +198,17 @@ fn increment(out: &mut dyn Write, inc: &IncrementResult, detail: Detail, p: Pale
         if !d.pass || detail == Detail::Verbose {
             diagnosis(out, d)?;
         } else if d.twin_unsafe {
-            writeln!(out, "        tangent cleared, twin set aside: {}", d.reason)?;
+            let culprits = tancheck_core::diagnose::decide::TWIN_CULPRITS;
+            let reason = match *culprits_at {
+                Some(k) => d.reason.replace(culprits, &format!("as listed at increment {k}")),
+                None => {
+                    if d.reason.contains(culprits) {
+                        *culprits_at = Some(inc.index);
+                    }
+                    d.reason.clone()
+                }
+            };
+            writeln!(out, "        tangent cleared, twin set aside: {reason}")?;
         } else {
             writeln!(out, "        cleared on a closer look: {}", d.reason)?;
         }
@@ -268,7 +288,9 @@ fn verdict(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
             "the routine returned values that are not finite numbers"
         }
         Verdict::TangentFailure => "the returned tangent differs from the derivative of the stress update",
-        Verdict::RoutineFault => "the routine crashed or could not compute an increment",
+        Verdict::RoutineFault => {
+            "the routine crashed, could not compute an increment, or was flagged by the memory guards"
+        }
         Verdict::TwinNotSafe => {
             "the returned tangent agrees with the real difference schemes, but the complex-step twin is \
              not complex-step safe (its results were set aside; see the diagnosis for the usual culprits)"
@@ -292,7 +314,10 @@ fn cell(c: &SchemeCheck, cleared: bool) -> String {
             format!("{word} {}", sci(cmp.error()))
         }
         CheckOutcome::Skipped { reason } => format!("skipped ({reason})"),
-        CheckOutcome::Fault(_) => "CRASH".into(),
+        // A signal ended the call; otherwise the routine returned a failure status or the
+        // memory guards flagged the call (the details below say which).
+        CheckOutcome::Fault(f) if f.signal.is_some() => "CRASH".into(),
+        CheckOutcome::Fault(_) => "FAULT".into(),
     };
     if let Some(CheckOutcome::Compared(d)) = &c.dstress_dtemp {
         if !d.pass {
