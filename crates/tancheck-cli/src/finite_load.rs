@@ -99,13 +99,7 @@ impl FiniteManifest {
         let file = path.display();
         let text = std::fs::read_to_string(path).map_err(|e| anyhow::anyhow!("cannot read {file}: {e}"))?;
         let m: FiniteManifest = serde_json::from_str(&text).map_err(|e| {
-            let msg = e.to_string();
-            anyhow::anyhow!(
-                "{file}:{}:{}: {}",
-                e.line(),
-                e.column(),
-                msg.split(" at line ").next().unwrap_or(&msg)
-            )
+            anyhow::anyhow!("{file}:{}:{}: {}", e.line(), e.column(), crate::manifest::json_message(&e))
         })?;
         let d = m.declared().map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
         m.path.build().map_err(|e| anyhow::anyhow!("{file}: path: {e}"))?;

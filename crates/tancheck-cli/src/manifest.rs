@@ -131,6 +131,40 @@ pub enum ManifestError {
     Invalid { path: PathBuf, message: String },
 }
 
+impl ManifestError {
+    /// A JSON file that does not parse into what it should hold: file, line, column and
+    /// [`json_message`].
+    pub fn json(path: &FsPath, e: &serde_json::Error) -> ManifestError {
+        ManifestError::Parse {
+            path: path.into(),
+            line: e.line(),
+            column: e.column(),
+            message: json_message(e),
+        }
+    }
+}
+
+/// The words of a JSON parse error without its position (the caller puts the file, line and
+/// column first), and with Rust's names of number types said in plain words ("expected usize"
+/// becomes "expected a whole number, 0 or more").
+pub fn json_message(e: &serde_json::Error) -> String {
+    let text = e.to_string();
+    let mut m = text.split(" at line ").next().unwrap_or_default().to_string();
+    for (rust, plain) in [
+        ("usize", "a whole number, 0 or more"),
+        ("u64", "a whole number, 0 or more"),
+        ("u32", "a whole number, 0 or more"),
+        ("u16", "a whole number, 0 or more"),
+        ("u8", "a whole number, 0 or more"),
+        ("i64", "a whole number"),
+        ("i32", "a whole number"),
+        ("f64", "a number"),
+    ] {
+        m = m.replace(&format!("expected {rust}"), &format!("expected {plain}"));
+    }
+    m
+}
+
 impl Manifest {
     pub fn load(path: &FsPath) -> Result<(Manifest, PathBuf), ManifestError> {
         let text = std::fs::read_to_string(path)
@@ -141,12 +175,7 @@ impl Manifest {
     }
 
     pub fn parse(text: &str, path: &FsPath) -> Result<Manifest, ManifestError> {
-        let m: Manifest = serde_json::from_str(text).map_err(|e| ManifestError::Parse {
-            path: path.into(),
-            line: e.line(),
-            column: e.column(),
-            message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
-        })?;
+        let m: Manifest = serde_json::from_str(text).map_err(|e| ManifestError::json(path, &e))?;
         m.validate().map_err(|message| ManifestError::Invalid { path: path.into(), message })?;
         Ok(m)
     }
@@ -317,12 +346,7 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
 pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
     let text =
         std::fs::read_to_string(file).map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
-    let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::Parse {
-        path: file.into(),
-        line: e.line(),
-        column: e.column(),
-        message: e.to_string().split(" at line ").next().unwrap_or_default().to_string(),
-    })?;
+    let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::json(file, &e))?;
     drop(text);
     let given = spec.increments.is_some();
     // A long path is held once: the increments move from the spec into the path.
@@ -400,6 +424,15 @@ mod tests {
         let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
         assert!(e.starts_with("m.json:2:"), "{e}");
         assert!(e.contains("knd"), "{e}");
+    }
+
+    /// A number of the wrong kind is named in plain words, not by Rust's type name.
+    #[test]
+    fn a_negative_count_is_explained_in_plain_words() {
+        let bad = GOOD.replace("\"steps\": 8", "\"steps\": -8");
+        let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
+        assert!(e.starts_with("m.json:3:"), "{e}");
+        assert!(e.contains("expected a whole number, 0 or more") && !e.contains("usize"), "{e}");
     }
 
     #[test]
