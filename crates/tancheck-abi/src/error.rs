@@ -41,6 +41,11 @@ pub enum LoadError {
     #[error("cannot load `{}`: {reason}{hint}", path.display())]
     Open { path: PathBuf, reason: String, hint: String },
 
+    /// A second instance of a library that loaded once cannot be made (see
+    /// `Library::open_fresh`).
+    #[error("cannot load a new instance of `{}` from a copy in memory: {why}", path.display())]
+    NoNewInstance { path: PathBuf, why: String },
+
     /// The symbol name cannot be a C symbol.
     #[error(
         "`{symbol}` cannot be a symbol name: {why}; give the routine's name exactly as the \

@@ -213,3 +213,27 @@ fn the_library_outlives_its_handle() {
     b.assert_elastic();
     assert!(r.library().expect("loaded from a library").path().is_absolute());
 }
+
+/// A new instance of a library starts with its static variables as at load, whatever calls
+/// the first instance has had; the first keeps its own. `bad_hidden_state` adds a count of
+/// its own calls to stress[0] (from increment 2 on).
+#[test]
+fn a_new_instance_starts_from_the_statics_at_load() {
+    let lib = Library::open(misbehave_library()).unwrap();
+    let mut first = lib.routine("bad_hidden_state", elastic_info("bad_hidden_state")).unwrap();
+    let mut b = Real::new();
+    let mut stress0 = Vec::new();
+    for _ in 0..3 {
+        b.call(&mut first, 2).unwrap();
+        stress0.push(b.stress[0]);
+    }
+    assert!(stress0[0] != stress0[1] && stress0[1] != stress0[2], "{stress0:?}");
+
+    let fresh = Library::open_fresh(misbehave_library()).unwrap();
+    assert_eq!(fresh.path(), lib.path(), "the new instance reports the library's own path");
+    let mut second = fresh.routine("bad_hidden_state", elastic_info("bad_hidden_state")).unwrap();
+    b.call(&mut second, 2).unwrap();
+    assert_eq!(b.stress[0].to_bits(), stress0[0].to_bits(), "the count starts again at load");
+    b.call(&mut first, 2).unwrap();
+    assert!(b.stress[0] != stress0[0] && b.stress[0] != stress0[2], "the first instance counts on");
+}

@@ -149,9 +149,10 @@ pub fn run_manifest_with(
 /// The check made again on one thread, after `first` (made on several threads, or given way
 /// to one after the threads' calls): on a new instance of the library
 /// ([`crate::load::load_fresh`]), whose static and SAVE variables are as at load, so that the
-/// report is the one `--jobs 1` makes but for the note saying why. `loaded` becomes that
-/// instance. When no new instance can be loaded (a copy of the file cannot be written, or
-/// does not load), the check is made again on the instance the threads called, as a note says.
+/// report is the one `--jobs 1` makes but for the notes saying why and on what. `loaded`
+/// becomes that instance. When no new instance can be loaded (no copy in memory can be made,
+/// or it does not load), the check is made again on the instance the threads called, as a
+/// note says.
 fn again_on_one_thread(
     loaded: &mut Loaded,
     first: Report,
@@ -163,18 +164,23 @@ fn again_on_one_thread(
 ) -> Result<Report> {
     let serial = tancheck_core::Settings { jobs: 1, ..m.check.clone() };
     let fresh = crate::load::load_fresh(m, dir);
-    let old_instance = fresh.as_ref().err().map(|e| {
-        format!(
+    let instance = match &fresh {
+        Ok(_) => "the check on one thread was made on a new instance of the library, loaded from a copy in \
+                  memory: its own static and SAVE variables start as at load, but the libraries it depends on \
+                  keep what the first instance's calls left in theirs, and files it looks for beside itself are \
+                  not found there"
+            .to_string(),
+        Err(e) => format!(
             "the check on one thread ran on the instance of the library the threads had called (a new one could \
              not be loaded: {e:#}): results that depend on the calls before may differ from --jobs 1"
-        )
-    });
+        ),
+    };
     match (fresh, &first.gave_way) {
         (Ok(f), _) => *loaded = f,
         // Without a new instance, a check that gave way stays as made (on one thread already).
         (Err(_), Some(_)) => {
             let mut report = first;
-            report.notes.extend(old_instance);
+            report.notes.push(instance);
             return Ok(report);
         }
         (Err(_), None) => {
@@ -192,7 +198,7 @@ fn again_on_one_thread(
             report.notes.extend(tancheck_core::concurrent::redo_note(&first, &report, serial_findings));
         }
     }
-    report.notes.extend(old_instance);
+    report.notes.push(instance);
     Ok(report)
 }
 

@@ -88,26 +88,26 @@ impl Library {
     }
 
     /// The library at `path` loaded anew, as a second instance beside any loaded before:
-    /// its static and SAVE variables (and what its constructors set up) start as they do on a
-    /// first load, whatever calls were made to an instance loaded earlier. The loader keeps
-    /// one instance per file, so this loads a private copy of the file (written to a folder
-    /// of the system's temporary directory and removed once loaded; the mapping stays). The
-    /// copy's dependencies are the ones the first instance loaded (matched by name). The
-    /// returned library reports `path`, not the copy's.
+    /// its own static and SAVE variables (and what its constructors set up) start as they do
+    /// on a first load, whatever calls were made to an instance loaded earlier. The loader
+    /// keeps one instance per file, so this loads a copy of the file held in memory (a
+    /// `memfd`, never written to disk, kept open while the process lives so that a crash
+    /// report can still read its debug information). Its constructors run again; the
+    /// libraries it depends on are the ones the first instance loaded (matched by name), with
+    /// their own statics as the first instance left them; and code that looks for files
+    /// beside the library finds none (the copy has no folder). The returned library reports
+    /// `path`. Linux only; elsewhere, and when the copy cannot be made or loaded,
+    /// [`LoadError::NoNewInstance`] says why.
     pub fn open_fresh(path: impl AsRef<Path>) -> Result<Library, LoadError> {
-        use std::sync::atomic::{AtomicU64, Ordering};
-        static COPIES: AtomicU64 = AtomicU64::new(0);
         let given = path.as_ref();
-        let n = COPIES.fetch_add(1, Ordering::Relaxed);
-        let dir = std::env::temp_dir().join(format!("tancheck-fresh-{}-{n}", std::process::id()));
-        let name = given.file_name().map_or_else(|| "routine.so".into(), |f| f.to_os_string());
-        let copy = dir.join(name);
-        let unreadable = |source| LoadError::Unreadable { path: given.to_path_buf(), source };
-        std::fs::create_dir_all(&dir).map_err(unreadable)?;
-        let opened = std::fs::copy(given, &copy).map_err(unreadable).and_then(|_| Library::open(&copy));
-        // Loaded (or not), the copy's file is not needed any more.
-        let _ = std::fs::remove_dir_all(&dir);
-        let mut lib = opened?;
+        let no = |why: String| LoadError::NoNewInstance { path: given.to_path_buf(), why };
+        let data = std::fs::read(given)
+            .map_err(|source| LoadError::Unreadable { path: given.to_path_buf(), source })?;
+        let copy = memory_copy(&data).map_err(|e| no(format!("no copy in memory: {e}")))?;
+        let mut lib = Library::open(&copy).map_err(|e| match e {
+            LoadError::Open { reason, .. } => no(reason),
+            other => no(other.to_string()),
+        })?;
         lib.path = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
         Ok(lib)
     }
@@ -197,6 +197,32 @@ fn open_now(path: &Path) -> Result<libloading::Library, libloading::Error> {
 fn open_now(path: &Path) -> Result<libloading::Library, libloading::Error> {
     // SAFETY: as above.
     unsafe { libloading::Library::new(path) }
+}
+
+/// `data` in an anonymous file in memory, by the name the loader can open it by
+/// (`/proc/self/fd/N`). The file stays open for the rest of the process.
+#[cfg(target_os = "linux")]
+fn memory_copy(data: &[u8]) -> std::io::Result<PathBuf> {
+    use std::io::Write;
+    use std::os::fd::FromRawFd;
+    let name = c"tancheck-new-instance";
+    // SAFETY: a valid NUL-terminated name and flags; the result is checked.
+    let fd = unsafe { libc::memfd_create(name.as_ptr(), libc::MFD_CLOEXEC) };
+    if fd < 0 {
+        return Err(std::io::Error::last_os_error());
+    }
+    // SAFETY: `fd` was just created and is owned by nothing else.
+    let mut file = unsafe { std::fs::File::from_raw_fd(fd) };
+    file.write_all(data)?;
+    let at = PathBuf::from(format!("/proc/self/fd/{fd}"));
+    // Kept open: the loaded instance is known by this name (see `Library::open_fresh`).
+    std::mem::forget(file);
+    Ok(at)
+}
+
+#[cfg(not(target_os = "linux"))]
+fn memory_copy(_data: &[u8]) -> std::io::Result<PathBuf> {
+    Err(std::io::Error::new(std::io::ErrorKind::Unsupported, "a new instance of a library needs Linux"))
 }
 
 fn open_error(path: &Path, reason: &str) -> LoadError {

@@ -176,7 +176,7 @@ fn relative_label(path: &FsPath, dir: &FsPath) -> String {
 
 /// A JSON error with line and column, naming the file.
 fn json_error(file: &FsPath, e: &serde_json::Error) -> anyhow::Error {
-    anyhow!("{}:{}:{}: {e}", file.display(), e.line(), e.column())
+    anyhow!("{}:{}:{}: {}", file.display(), e.line(), e.column(), crate::manifest::json_message(e))
 }
 
 impl Campaign {
