@@ -175,6 +175,7 @@ fn again_on_one_thread(
              not be loaded: {e:#}): results that depend on the calls before may differ from --jobs 1"
         ),
     };
+    let fresh_ok = fresh.is_ok();
     match (fresh, &first.gave_way) {
         (Ok(f), _) => *loaded = f,
         // Without a new instance, a check that gave way stays as made (on one thread already).
@@ -191,6 +192,7 @@ fn again_on_one_thread(
         }
     }
     let mut report = check_loaded(loaded, m, path, keep, progress, &serial)?;
+    let before = report.notes.len();
     match &first.gave_way {
         Some(g) => g.add_note(&mut report.notes, report.verdict == tancheck_core::Verdict::RoutineFault),
         None => {
@@ -198,7 +200,12 @@ fn again_on_one_thread(
             report.notes.extend(tancheck_core::concurrent::redo_note(&first, &report, serial_findings));
         }
     }
-    report.notes.push(instance);
+    // Where the report says it ran on one thread, it also says on what instance; where it
+    // does not (the findings or faults of the threads are met on one thread too), it is the
+    // report of `--jobs 1`, notes included. Running on the old instance is always said.
+    if report.notes.len() > before || !fresh_ok {
+        report.notes.push(instance);
+    }
     Ok(report)
 }
 
