@@ -8,6 +8,7 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 pub mod document;
+pub mod gave_way;
 pub mod record;
 
 pub use record::{Collector, IncrementRecord, Keep, PassedIncrement, RECORD_SCHEMES};
@@ -260,9 +261,9 @@ pub struct Report {
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub guard: Option<GuardSummary>,
     /// How a check asked for on several threads gave way to one, when it did (see
-    /// [`crate::concurrent::GaveWay`]); not written (the notes say it).
+    /// [`gave_way::GaveWay`]); not written (the notes say it).
     #[serde(skip)]
-    pub gave_way: Option<crate::concurrent::GaveWay>,
+    pub gave_way: Option<gave_way::GaveWay>,
 }
 
 /// The memory guards of a loaded library over one check.
