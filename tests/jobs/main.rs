@@ -450,3 +450,33 @@ fn the_guards_extra_calls_are_the_same_on_two_threads() {
     assert_eq!((c1, c2), (Some(0), Some(0)), "{t1}\n{t2}");
     assert!(j1 == j2, "JSON reports differ (guard extra_calls)");
 }
+
+/// A check on two threads tells its progress as the threads go (the count of increments the
+/// shares have checked, never going back), not only once they have all finished.
+#[test]
+fn a_check_on_two_threads_shows_its_progress_as_it_goes() {
+    let lib = Library::open(c_lib()).unwrap();
+    let props = [210000.0, 0.3, 355.0, 1200.0, 150.0, 12.0, 2500.0];
+    let i = info(13, props.len());
+    let mut routine = lib.routine("c_j2", i.clone()).unwrap();
+    let mut caller = Caller::new(&mut routine);
+    let path = ramp(200);
+    let mut told = Vec::new();
+    let report = tancheck::core::check::run_with(
+        &mut caller,
+        &props,
+        PointState::zero(&i, 20.0),
+        &path,
+        &two_threads(),
+        tancheck::core::report::Keep::Failures,
+        &mut |k| told.push(k),
+    )
+    .unwrap();
+    assert_eq!(report.settings.jobs, 2, "checked on two threads");
+    let n = path.increments.len();
+    assert_eq!(told.last(), Some(&n), "{told:?}");
+    assert!(told.windows(2).all(|w| w[0] <= w[1]), "never goes back: {told:?}");
+    // The caller's own share alone is more than a tenth of the path, told increment by
+    // increment while the other thread works.
+    assert!(told.iter().filter(|&&k| k > 0 && k < n).count() > n / 10, "{told:?}");
+}

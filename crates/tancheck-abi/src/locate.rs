@@ -103,6 +103,11 @@ pub fn locate(address: u64) -> Option<CodeLocation> {
         let probe = if is_fixed_position(&object) { address } else { offset };
         debug_info(&object, probe, &mut loc);
     }
+    // A library loaded anew from a copy in memory is named by the file it was copied from
+    // (its debug information was read from the copy, the very bytes that ran).
+    if let Some(original) = loc.object.as_deref().and_then(crate::library::copied_from) {
+        loc.object = Some(original);
+    }
     Some(loc)
 }
 

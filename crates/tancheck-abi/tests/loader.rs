@@ -237,3 +237,17 @@ fn a_new_instance_starts_from_the_statics_at_load() {
     b.call(&mut first, 2).unwrap();
     assert!(b.stress[0] != stress0[0] && b.stress[0] != stress0[2], "the first instance counts on");
 }
+
+/// A crash in a new instance names the library's own file, not the copy in memory the loader
+/// knows it by (so that a check made again on a new instance reports what a first load
+/// reports).
+#[test]
+fn a_crash_in_a_new_instance_names_the_library() {
+    let fresh = Library::open_fresh(misbehave_library()).unwrap();
+    let mut r = fresh.routine("bad_null_deref", elastic_info("bad_null_deref")).unwrap();
+    let mut b = Real::new();
+    let what = b.call(&mut r, 2).unwrap_err().to_string();
+    let file = misbehave_library().file_name().unwrap().to_string_lossy().into_owned();
+    assert!(what.contains(&format!("({file}+0x")), "{what}");
+    assert!(!what.contains("/proc/self/fd") && !what.contains("(4+"), "{what}");
+}

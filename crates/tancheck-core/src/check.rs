@@ -78,7 +78,7 @@ pub fn run_with(
         Some(plan) => {
             let threads = plan.threads();
             let job = concurrent::Job { info: &info, props, start: driver.start(), path, settings, keep };
-            match concurrent::walk(caller, plan, job) {
+            match concurrent::walk(caller, plan, job, &mut *progress) {
                 Ok(chunks) => {
                     threads_used = threads;
                     Some(chunks)
@@ -103,7 +103,6 @@ pub fn run_with(
                 );
                 caller.real_calls += chunk.real_calls;
                 caller.complex_calls += chunk.complex_calls;
-                progress(merged.increments.len());
                 if stop || !chunk.complete {
                     break;
                 }

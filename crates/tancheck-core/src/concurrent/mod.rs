@@ -279,12 +279,25 @@ pub struct Job<'a> {
 /// increment's end state is compared with the walk's. A failed probe, a difference or a
 /// faulted walk stops the threads at their next increment and gives [`Serial`]: the check is
 /// then to be made on one thread.
-pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chunk>, Serial> {
+///
+/// `progress` is told, on the caller's thread, how many increments the threads have checked
+/// so far (all shares together): after each increment of the caller's own share, and then
+/// whenever another thread finishes or at least every tenth of a second until all have.
+pub fn walk(
+    caller: &mut Caller<'_>,
+    plan: Plan,
+    job: Job<'_>,
+    progress: &mut dyn FnMut(usize),
+) -> Result<Vec<Chunk>, Serial> {
     // Every thread calls a handle of the plan's; the caller's routine only takes the guards'
     // extra calls of a check that stands.
-    use std::sync::atomic::{AtomicBool, Ordering};
+    use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
     use std::sync::mpsc;
     let Job { info, props, start, path, settings, .. } = job;
+    // Increments checked by all threads so far, and the caller's thread, woken by each
+    // thread as it finishes (for `progress`).
+    let done = AtomicUsize::new(0);
+    let me = std::thread::current();
     let threads = plan.threads();
     let w = calls_per_increment(settings, info.convention.ncomp());
     let b = shares(path.increments.len(), threads, w, PROBE_CALLS as f64);
@@ -295,40 +308,56 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
     let mut handles = handles.into_iter();
     let mut first = handles.next().expect("a plan has a handle for the first thread");
     let mut second = handles.next().expect("a plan has a handle for a second thread");
-    let (b, stop, driver) = (&b, &stop, &driver);
+    let (b, stop, driver, done, me) = (&b, &stop, &driver, &done, &me);
     let (chunks, extras, walked) = std::thread::scope(|s| {
         let walker = s.spawn(move || {
-            let walked = walk_path(&mut *probing[0], driver, path, settings, b, senders);
-            let mut walked = match walked {
-                Ok(walked) => walked,
-                Err(fault) => {
+            let walked = (move || {
+                let walked = walk_path(&mut *probing[0], driver, path, settings, b, senders);
+                let mut walked = match walked {
+                    Ok(walked) => walked,
+                    Err(fault) => {
+                        stop.store(true, Ordering::Relaxed);
+                        return Err(Serial::Faulted(fault));
+                    }
+                };
+                if let Err(failure) = thread_safety(&mut probing, &walked.probes) {
                     stop.store(true, Ordering::Relaxed);
-                    return Err(Serial::Faulted(fault));
+                    return Err(Serial::from(failure));
                 }
-            };
-            if let Err(failure) = thread_safety(&mut probing, &walked.probes) {
-                stop.store(true, Ordering::Relaxed);
-                return Err(Serial::from(failure));
-            }
-            drop(probing);
-            let from = walked.second.take();
-            let chunk = share(&mut Caller::new(&mut *second), job, b[1]..b[2], from, stop);
-            let extra = second.guard_extra_calls() - chunk.before_extra_calls;
-            Ok((chunk, extra, walked.fingerprints))
+                drop(probing);
+                let from = walked.second.take();
+                let at = Shared { stop, done };
+                let chunk = share(&mut Caller::new(&mut *second), job, b[1]..b[2], from, at, &mut |_| {});
+                let extra = second.guard_extra_calls() - chunk.before_extra_calls;
+                Ok((chunk, extra, walked.fingerprints))
+            })();
+            me.unpark();
+            walked
         });
         let mut joins = Vec::new();
         for ((t, mut h), rx) in handles.enumerate().zip(receivers) {
             let range = b[t + 2]..b[t + 3];
             joins.push(s.spawn(move || {
                 // No start when the walk stopped before the share.
-                let from = rx.recv().ok()?;
-                let chunk = share(&mut Caller::new(&mut *h), job, range, Some(from), stop);
+                let Ok(from) = rx.recv() else {
+                    me.unpark();
+                    return None;
+                };
+                let at = Shared { stop, done };
+                let chunk = share(&mut Caller::new(&mut *h), job, range, Some(from), at, &mut |_| {});
                 let extra = h.guard_extra_calls() - chunk.before_extra_calls;
+                me.unpark();
                 Some((chunk, extra))
             }));
         }
-        let chunk = share(&mut Caller::new(&mut *first), job, b[0]..b[1], None, stop);
+        let at = Shared { stop, done };
+        let chunk = share(&mut Caller::new(&mut *first), job, b[0]..b[1], None, at, progress);
         let mut extras = first.guard_extra_calls();
+        // The other threads' progress, until they have all finished.
+        while !(walker.is_finished() && joins.iter().all(std::thread::ScopedJoinHandle::is_finished)) {
+            progress(done.load(Ordering::Relaxed));
+            std::thread::park_timeout(std::time::Duration::from_millis(100));
+        }
         let walked = walker.join().unwrap_or_else(|p| std::panic::resume_unwind(p));
         let mut out = vec![chunk];
         let fingerprints = walked.map(|(chunk, extra, fingerprints)| {
@@ -365,17 +394,27 @@ pub fn walk(caller: &mut Caller<'_>, plan: Plan, job: Job<'_>) -> Result<Vec<Chu
     Ok(chunks)
 }
 
+/// What the threads of a check share: the flag that stops them, and the count of increments
+/// they have checked.
+#[derive(Clone, Copy)]
+struct Shared<'a> {
+    stop: &'a std::sync::atomic::AtomicBool,
+    done: &'a std::sync::atomic::AtomicUsize,
+}
+
 /// One thread's share: from the path's start (`from` none), or from the walk's driver and
 /// branches at the increment before the share, which is checked for its tangent (and to make
 /// the calls one thread makes before the share's first); then its increments checked, until
-/// `stop` is set.
+/// `at.stop` is set, each counted in `at.done` and the count told to `progress`.
 fn share(
     caller: &mut Caller<'_>,
     job: Job<'_>,
     range: Range<usize>,
     from: Option<(Driver, Branches)>,
-    stop: &std::sync::atomic::AtomicBool,
+    at: Shared<'_>,
+    progress: &mut dyn FnMut(usize),
 ) -> Chunk {
+    let stop = at.stop;
     let Job { info, props, start, path, settings, keep } = job;
     let incomplete = Chunk {
         collected: Collector::new(settings, keep, 0),
@@ -439,6 +478,7 @@ fn share(
             break;
         }
         checked.push(fingerprint(walk.driver.start()));
+        progress(at.done.fetch_add(1, std::sync::atomic::Ordering::Relaxed) + 1);
     }
     Chunk {
         collected,
