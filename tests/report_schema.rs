@@ -128,3 +128,73 @@ fn real_reports_of_every_kind_validate() {
     assert!(!validator().is_valid(&unversioned));
     let _ = std::fs::remove_dir_all(&d);
 }
+
+/// The reports of runs that did not finish validate too: the last words of a check whose
+/// routine hangs (written by the guarded shim as the process ends), the parent's report when
+/// an `--isolate` worker hangs, and the "incomplete" marker a run leaves while it runs.
+#[test]
+fn reports_of_runs_that_did_not_finish_validate() {
+    let d = scratch("unfinished");
+    let lib = d.join("libmisbehave.so");
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+    let o = bin().arg("build").arg(&src).arg("-o").arg(&lib).output().unwrap();
+    assert!(o.status.success(), "{}", String::from_utf8_lossy(&o.stderr));
+    let m = |symbol: &str| {
+        let p = d.join(format!("{symbol}.json"));
+        std::fs::write(
+            &p,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        p
+    };
+    let hang = m("bad_infinite_loop");
+    for (isolate, kind) in [(false, "last-words"), (true, "isolated-fault")] {
+        let out = d.join(format!("{kind}.json"));
+        let mut c = bin();
+        c.arg("check").arg(&hang).args(["--call-timeout", "1", "-q"]).arg("--json").arg(&out);
+        if isolate {
+            c.arg("--isolate");
+        }
+        let o = c.output().unwrap();
+        assert_eq!(o.status.code(), Some(3), "{}", String::from_utf8_lossy(&o.stderr));
+        let v: Value = serde_json::from_str(&std::fs::read_to_string(&out).unwrap()).unwrap();
+        valid(kind, &v);
+        assert_eq!((v["kind"].as_str(), v["verdict"].as_str()), (Some(kind), Some("routine-fault")));
+    }
+
+    // The marker, read while a routine sleeps in its second increment.
+    let out = d.join("marker.json");
+    let mut child = bin()
+        .arg("check")
+        .arg(m("bad_sleep"))
+        .args(["--call-timeout", "60", "-q"])
+        .arg("--json")
+        .arg(&out)
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let start = std::time::Instant::now();
+    let marker = loop {
+        if let Some(v) =
+            std::fs::read_to_string(&out).ok().and_then(|t| serde_json::from_str::<Value>(&t).ok())
+        {
+            break v;
+        }
+        assert!(start.elapsed().as_secs() < 30, "no marker written");
+        std::thread::sleep(std::time::Duration::from_millis(20));
+    };
+    let _ = child.kill();
+    let _ = child.wait();
+    valid("incomplete", &marker);
+    assert_eq!(
+        (marker["kind"].as_str(), marker["verdict"].as_str()),
+        (Some("incomplete"), Some("incomplete"))
+    );
+    let _ = std::fs::remove_dir_all(&d);
+}

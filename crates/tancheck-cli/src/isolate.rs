@@ -438,6 +438,7 @@ fn fault_json(what: &str, call: Option<&CallRecord>) -> serde_json::Value {
     serde_json::json!({
         "format": tancheck_core::report::document::FORMAT,
         "version": tancheck_core::report::document::VERSION,
+        "kind": "isolated-fault",
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         "verdict": "routine-fault",
         "isolated": true,

@@ -121,6 +121,7 @@ fn head(routine: &str) -> String {
     let v = serde_json::json!({
         "format": tancheck_core::report::document::FORMAT,
         "version": tancheck_core::report::document::VERSION,
+        "kind": "last-words",
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         "routine": routine,
         "cautions": tancheck_core::report::CAUTIONS,
@@ -178,6 +179,7 @@ fn write_marker(p: &Path, routine: &str) -> Result<()> {
             let marker = serde_json::json!({
                 "format": tancheck_core::report::document::FORMAT,
                 "version": tancheck_core::report::document::VERSION,
+                "kind": "incomplete",
                 "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
                 "routine": routine,
                 "verdict": "incomplete",

@@ -36,13 +36,87 @@ enum Body {
     Explore(tancheck_core::explore::ExploreReport),
     Block(super::block::BlockDocument),
     Demo(DemoReport),
+    LastWords(LastWords),
+    IsolatedFault(IsolatedFault),
+    Incomplete(Incomplete),
+}
+
+/// The report a process writes as it ends during a check it cannot finish (the routine
+/// crashed outside what the guards can survive, hung past `--call-timeout`, or ended the
+/// process): written from fixed buffers by the guarded shim (`fortran-shim/src/guard.c`),
+/// after the head the command line gives it (`survive::head`).
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct LastWords {
+    tool: String,
+    /// The routine, as `library:symbol` (or what the command line knew of it).
+    routine: String,
+    cautions: Vec<String>,
+    /// Always "routine-fault".
+    verdict: String,
+    /// Always true.
+    last_words: bool,
+    fault: LastWordsFault,
+}
+
+/// What ended the process, and the call that was running.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct LastWordsFault {
+    message: String,
+    /// In words: during a routine call, while the library was being loaded, ...
+    when: String,
+    exit_status: i32,
+    /// The signal, when one ended the process.
+    signal: Option<i32>,
+    /// The increment of the running call, when there was one.
+    increment: Option<i64>,
+    /// Routine calls begun so far.
+    calls: u64,
+    /// The inputs of the running call (point or finite-strain arguments), when there was one.
+    call: Option<serde_json::Map<String, serde_json::Value>>,
+}
+
+/// The report the parent of `--isolate` writes when its worker did not finish.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct IsolatedFault {
+    tool: String,
+    /// Always "routine-fault".
+    verdict: String,
+    /// Always true.
+    isolated: bool,
+    fault: IsolatedFaultDetail,
+    cautions: Vec<String>,
+}
+
+/// What the parent saw of the worker's end, and the last call it was told of.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct IsolatedFaultDetail {
+    message: String,
+    increment: Option<i64>,
+    call: Option<tancheck_core::report::CallRecord>,
+}
+
+/// The marker a run writes in place of an earlier report as it starts: still running, or
+/// ended from outside; not a result.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct Incomplete {
+    tool: String,
+    routine: String,
+    /// Always "incomplete".
+    verdict: String,
+    message: String,
+    cautions: Vec<String>,
 }
 
 /// A tancheck report file.
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes, demo) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes, demo; last-words, isolated-fault and incomplete for a run that did not finish) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {
