@@ -202,6 +202,10 @@ fn crashes_are_faults_with_the_inputs_of_the_call() {
     // never changed the state variables (the manifest declares two).
     let (_, t) = check(c_lib(), "bad_null_deref", &[]);
     assert!(t.contains("the path stopped at a fault at increment 2 of 3"), "{t}");
+    // With -q a fault reads as one, with no diagnosis to name.
+    let (_, q) = check(c_lib(), "bad_null_deref", &["-q"]);
+    let line = q.lines().find(|l| l.contains("increment 2")).expect("the fault's line");
+    assert!(line.starts_with("FAULT ") && !line.contains("undiagnosed"), "{q}");
     assert!(!t.contains("never changed the state") && !t.contains("never unloaded"), "{t}");
 }
 

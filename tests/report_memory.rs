@@ -59,6 +59,8 @@ fn a_20000_increment_check_with_a_json_report_stays_under_30_mib() {
     assert_eq!(report["verdict"], "pass");
     // The readable report folds the passing increments: a few lines, not 20,000.
     assert!(stdout.lines().count() < 60, "{stdout}");
+    // A span too wide for its column keeps a space before the verdict word.
+    assert!(stdout.contains("1–20000 ok 20000 increments;"), "{stdout}");
     eprintln!("peak resident set size of the check: {rss} KiB ({:.1} MiB)", rss as f64 / 1024.0);
     assert!(
         rss <= MAX_RSS_KIB,

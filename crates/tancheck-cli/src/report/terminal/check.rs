@@ -48,7 +48,8 @@ fn folded(out: &mut dyn Write, r: &Report, run: &[IncrementRecord], p: Palette) 
     let span = if first == last { format!("{first:>3}") } else { format!("{first:>3}–{last}") };
     writeln!(
         out,
-        "   {span:<9}{} {}; {}; worst {}",
+        // At least one space after a long span (as wide as before for spans of up to 8).
+        "   {span:<8} {} {}; {}; worst {}",
         p.pass("ok"),
         if run.len() == 1 { "1 increment".to_string() } else { format!("{} increments", run.len()) },
         branches.iter().map(label).collect::<Vec<_>>().join(", "),
@@ -135,14 +136,19 @@ fn quiet(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         } else if !inc.non_finite.is_empty() {
             what = format!("not finite: {}", inc.non_finite.join(", "));
         }
+        // A fault is not a failed comparison, and has no diagnosis to name.
+        let (word, finding) = match (&inc.fault, &inc.diagnosis) {
+            (Some(_), None) => ("FAULT", String::new()),
+            (Some(_), Some(_)) => ("FAULT", format!(" -> {}", inc.finding())),
+            (None, _) => ("FAIL", format!(" -> {}", inc.finding())),
+        };
         writeln!(
             out,
-            "{} {} increment {} ({}): {what} -> {}",
-            p.fail("FAIL"),
+            "{} {} increment {} ({}): {what}{finding}",
+            p.fail(word),
             r.routine.name,
             inc.index,
             inc.branch_label(),
-            inc.finding()
         )?;
     }
     verdict(out, r, p)
