@@ -213,6 +213,10 @@ fn crashes_are_faults_with_the_inputs_of_the_call() {
 fn an_infinite_loop_needs_isolation_and_is_then_reported() {
     expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "did not return within 2 s");
     expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "during increment 2");
+    // Without --isolate the watchdog ends it; under -q without its "still checking" lines.
+    let (c, t) = check(c_lib(), "bad_infinite_loop", &["--call-timeout", "2", "-q"]);
+    assert_eq!(c, Some(3), "{t}");
+    assert!(t.contains("did not return within 2 s") && !t.contains("still checking"), "{t}");
 }
 
 #[test]

@@ -233,7 +233,7 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
 }
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.output.prepare()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output);
     }
@@ -342,7 +342,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.output.prepare()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::probe(&a.manifest, a.json.as_deref(), &a.output);
     }

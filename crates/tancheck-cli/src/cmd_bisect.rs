@@ -57,7 +57,7 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
 
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
-    a.run.output.check_files()?;
+    a.run.output.prepare()?;
     crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     crate::survive::set_routine(a.run.json.as_deref(), &crate::session::routine_name(&m));

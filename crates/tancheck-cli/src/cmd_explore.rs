@@ -55,7 +55,7 @@ pub fn budget_of(a: &ExploreArgs) -> Budget {
 
 /// `tancheck explore`.
 pub fn run(a: &ExploreArgs) -> Result<i32> {
-    a.run.output.check_files()?;
+    a.run.output.prepare()?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         bail!("{}: explore takes point routines; this manifest is a finite-strain one", a.manifest.display());
     }

@@ -103,7 +103,7 @@ fn is_incomplete(text: &str) -> bool {
 }
 
 pub fn run(a: &MergeArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.output.prepare()?;
     let mut parts = Vec::new();
     for f in &a.partials {
         let text = std::fs::read_to_string(f).with_context(|| format!("{}: cannot read", f.display()))?;

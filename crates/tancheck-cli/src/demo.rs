@@ -238,7 +238,7 @@ fn build(dir: &FsPath, name: &str, sources: &[(&str, &str)]) -> Result<PathBuf> 
 /// Run the demo; exit 0 when every routine got the verdict it should, 1 otherwise. The routines'
 /// checks go to the reporters (`--json`, `--html`, `--junit`, the terminal).
 pub fn run(a: &DemoArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.output.prepare()?;
     // With the JSON on standard output (or --quiet), the builds' progress and the lines the
     // block and finite-strain scenarios print go to standard error.
     let json_on_stdout = a.json.as_deref().is_some_and(crate::report::json::Json::to_stdout);

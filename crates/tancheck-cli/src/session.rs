@@ -45,9 +45,11 @@ impl OutputArgs {
         }
     }
 
-    /// Fail early (exit 2, before a routine runs) when the folder of `--html` or `--junit`
-    /// does not exist, so that no work is lost to a mistyped path.
-    pub fn check_files(&self) -> anyhow::Result<()> {
+    /// Before a command runs: fail early (exit 2, before a routine runs) when the folder of
+    /// `--html` or `--junit` does not exist, so that no work is lost to a mistyped path; and
+    /// under `-q` keep the watchdog's "still checking" lines off standard error.
+    pub fn prepare(&self) -> anyhow::Result<()> {
+        crate::survive::progress_lines(!self.quiet);
         crate::report::files::check_output(self.html.as_deref(), "--html")?;
         crate::report::files::check_output(self.junit.as_deref(), "--junit")
     }

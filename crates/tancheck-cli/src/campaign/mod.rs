@@ -97,7 +97,7 @@ pub fn slurm_shard() -> Result<Option<ShardInfo>> {
 
 /// Run the command; returns the exit code.
 pub fn run(a: &CampaignArgs) -> Result<i32> {
-    a.output.check_files()?;
+    a.output.prepare()?;
     if let Some(p) = a.json.as_deref().filter(|p| p.as_os_str() != "-") {
         crate::report::files::check_output(Some(p), "--json")?;
     }
