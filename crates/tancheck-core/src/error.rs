@@ -38,17 +38,18 @@ pub enum CoreError {
     NotFinite { increment: usize },
 
     #[error(
-        "increment {increment}: a strain increment of {value} is out of range (at most {max} in magnitude)"
+        "increment {increment}: a strain increment of {} is out of range (at most {max} in magnitude)",
+        short(*value)
     )]
     StrainOutOfRange { increment: usize, value: f64, max: f64 },
 
-    #[error("increment {increment}: a temperature increment of {value} is out of range (at most {max} in magnitude)")]
+    #[error("increment {increment}: a temperature increment of {} is out of range (at most {max} in magnitude)", short(*value))]
     TemperatureOutOfRange { increment: usize, value: f64, max: f64 },
 
-    #[error("increment {increment}: a time increment of {value} is out of range (0 to {max})")]
+    #[error("increment {increment}: a time increment of {} is out of range (0 to {max})", short(*value))]
     TimeOutOfRange { increment: usize, value: f64, max: f64 },
 
-    #[error("increment {increment}: a held stress of {value} is out of range (a finite number at most {max:e} in magnitude)")]
+    #[error("increment {increment}: a held stress of {} is out of range (a finite number at most {max:e} in magnitude)", short(*value))]
     HeldStressOutOfRange { increment: usize, value: f64, max: f64 },
 
     /// An increment number (from 1) beyond the path.
@@ -152,6 +153,16 @@ pub enum CoreError {
     AxisProperty { at: usize, nprop: usize },
 }
 
+/// A number for a message: as written when of everyday size, in exponent form when very large
+/// or very small (`1e300`, not 301 digits).
+fn short(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() || (1e-4..1e6).contains(&x.abs()) {
+        format!("{x}")
+    } else {
+        format!("{x:e}")
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -175,5 +186,13 @@ mod tests {
             CoreError::HeldStressOutOfRange { increment: 2, value: f64::INFINITY, max: 1e12 }.to_string(),
             "increment 2: a held stress of inf is out of range (a finite number at most 1e12 in magnitude)"
         );
+    }
+
+    #[test]
+    fn out_of_range_values_are_written_short() {
+        let e = CoreError::StrainOutOfRange { increment: 11, value: 1e300, max: 10.0 }.to_string();
+        assert_eq!(e, "increment 11: a strain increment of 1e300 is out of range (at most 10 in magnitude)");
+        let e = CoreError::TimeOutOfRange { increment: 2, value: -0.5, max: 1e6 }.to_string();
+        assert!(e.contains("of -0.5 is out of range"), "{e}");
     }
 }
