@@ -63,6 +63,22 @@ impl fmt::Display for CodeLocation {
     }
 }
 
+/// Libraries loaded anew from a copy in memory: (the name the loader knows the copy by, the
+/// file it was copied from).
+static COPIES: std::sync::Mutex<Vec<(PathBuf, PathBuf)>> = std::sync::Mutex::new(Vec::new());
+
+/// The file a library the loader knows as `loaded` was copied from, when it is a copy in
+/// memory made by `Library::open_fresh` (a crash report names the library, not the copy).
+fn copied_from(loaded: &std::path::Path) -> Option<PathBuf> {
+    let copies = COPIES.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
+    copies.iter().find(|(c, _)| c == loaded).map(|(_, o)| o.clone())
+}
+
+/// Remember that the loader knows the library copied from `original` as `loaded`.
+pub(crate) fn note_copy(loaded: PathBuf, original: PathBuf) {
+    COPIES.lock().unwrap_or_else(std::sync::PoisonError::into_inner).push((loaded, original));
+}
+
 /// Resolve a code address of this process. `None` for address 0.
 pub fn locate(address: u64) -> Option<CodeLocation> {
     if address == 0 {
@@ -105,7 +121,7 @@ pub fn locate(address: u64) -> Option<CodeLocation> {
     }
     // A library loaded anew from a copy in memory is named by the file it was copied from
     // (its debug information was read from the copy, the very bytes that ran).
-    if let Some(original) = loc.object.as_deref().and_then(crate::library::copied_from) {
+    if let Some(original) = loc.object.as_deref().and_then(copied_from) {
         loc.object = Some(original);
     }
     Some(loc)

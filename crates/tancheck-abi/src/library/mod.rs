@@ -105,7 +105,7 @@ impl Library {
             .map_err(|source| LoadError::Unreadable { path: given.to_path_buf(), source })?;
         let copy = memory_copy(&data).map_err(|e| no(format!("no copy in memory: {e}")))?;
         let original = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
-        COPIES.lock().unwrap_or_else(std::sync::PoisonError::into_inner).push((copy.clone(), original));
+        crate::locate::note_copy(copy.clone(), original);
         let mut lib = Library::open(&copy).map_err(|e| match e {
             LoadError::Open { reason, .. } => no(reason),
             other => no(other.to_string()),
@@ -199,17 +199,6 @@ fn open_now(path: &Path) -> Result<libloading::Library, libloading::Error> {
 fn open_now(path: &Path) -> Result<libloading::Library, libloading::Error> {
     // SAFETY: as above.
     unsafe { libloading::Library::new(path) }
-}
-
-/// Libraries loaded anew from a copy in memory: (the name the loader knows the copy by, the
-/// file it was copied from).
-static COPIES: std::sync::Mutex<Vec<(PathBuf, PathBuf)>> = std::sync::Mutex::new(Vec::new());
-
-/// The file a library the loader knows as `loaded` was copied from, when it is a copy in
-/// memory made by [`Library::open_fresh`] (a crash report names the library, not the copy).
-pub(crate) fn copied_from(loaded: &Path) -> Option<PathBuf> {
-    let copies = COPIES.lock().unwrap_or_else(std::sync::PoisonError::into_inner);
-    copies.iter().find(|(c, _)| c == loaded).map(|(_, o)| o.clone())
 }
 
 /// `data` in an anonymous file in memory, by the name the loader can open it by
