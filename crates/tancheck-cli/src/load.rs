@@ -70,16 +70,18 @@ fn load_with(m: &Manifest, dir: &FsPath, fresh: bool) -> Result<Loaded> {
             routine.set_fp_traps(true).context("switching floating-point traps on")?;
         }
         // Said once, on the first load.
-        if !fresh && traps {
-            eprintln!(
-                "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
-                lib_path.display()
-            );
-        } else if !fresh {
-            eprintln!(
-                "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
-                lib_path.display()
-            );
+        if !fresh {
+            if traps {
+                eprintln!(
+                    "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
+                    lib_path.display()
+                );
+            } else {
+                eprintln!(
+                    "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
+                    lib_path.display()
+                );
+            }
         }
     }
     routine.set_guard_level(match m.guards {

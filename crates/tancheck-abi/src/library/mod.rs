@@ -105,12 +105,12 @@ impl Library {
             .map_err(|source| LoadError::Unreadable { path: given.to_path_buf(), source })?;
         let copy = memory_copy(&data).map_err(|e| no(format!("no copy in memory: {e}")))?;
         let original = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
-        crate::locate::note_copy(copy.clone(), original);
+        crate::locate::note_copy(copy.clone(), original.clone());
         let mut lib = Library::open(&copy).map_err(|e| match e {
             LoadError::Open { reason, .. } => no(reason),
             other => no(other.to_string()),
         })?;
-        lib.path = std::path::absolute(given).unwrap_or_else(|_| given.to_path_buf());
+        lib.path = original;
         Ok(lib)
     }
 
