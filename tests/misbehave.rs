@@ -164,6 +164,9 @@ fn a_guard_finding_in_a_schemes_call_reads_as_a_fault_not_a_crash() {
     let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).expect("the row of increment 2");
     assert!(row.contains("FAULT") && !row.contains("CRASH"), "{row}\n{t}");
     assert!(t.contains("or was flagged by the memory guards"), "{t}");
+    let (_, q) = check(c_lib(), "bad_perturbed_overrun", &["-q"]);
+    let line = q.lines().find(|l| l.contains("increment 2")).expect("the increment's line");
+    assert!(line.starts_with("FAULT ") && !line.contains("undiagnosed"), "{q}");
 }
 
 /// A twin that is not complex-step safe in many increments: each increment says why, and the

@@ -137,11 +137,12 @@ fn quiet(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
             what = format!("not finite: {}", inc.non_finite.join(", "));
         }
         // A fault is not a failed comparison, and has no diagnosis to name.
-        let (word, finding) = match (&inc.fault, &inc.diagnosis) {
-            (Some(_), None) => ("FAULT", String::new()),
-            (Some(_), Some(_)) => ("FAULT", format!(" -> {}", inc.finding())),
-            (None, _) => ("FAIL", format!(" -> {}", inc.finding())),
-        };
+        // The increment's base call or one of its schemes' calls faulted.
+        let faulted =
+            inc.fault.is_some() || inc.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_)));
+        let word = if faulted { "FAULT" } else { "FAIL" };
+        let finding =
+            if faulted && inc.diagnosis.is_none() { String::new() } else { format!(" -> {}", inc.finding()) };
         writeln!(
             out,
             "{} {} increment {} ({}): {what}{finding}",
