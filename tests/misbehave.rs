@@ -127,6 +127,13 @@ fn a_default_check_catches_misbehaviour_in_a_new_branch_and_on_a_zero_increment(
     expect("bad_branch_overread", &[], 3, "newly reached branch");
     expect("bad_unguarded_norm", &[], 1, "stress[0] = NaN for a zero increment from the start state");
     expect("bad_unguarded_norm", &[], 1, "increment 0 is a zero strain increment");
+    // Its call's inputs are under increment 0, with the number the routine was told.
+    expect(
+        "bad_unguarded_norm",
+        &[],
+        1,
+        "inputs of that call (increment 0; the routine was told increment 1)",
+    );
     expect(
         "bad_unguarded_norm",
         &[],
@@ -210,12 +217,25 @@ fn crashes_are_faults_with_the_inputs_of_the_call() {
     let line = q.lines().find(|l| l.contains("increment 2")).expect("the fault's line");
     assert!(line.starts_with("FAULT ") && !line.contains("undiagnosed"), "{q}");
     assert!(!t.contains("never changed the state") && !t.contains("never unloaded"), "{t}");
+    // The crashed increment reached no branch: its row says so, and the branch summaries
+    // count only the increment that returned (it passed).
+    let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).expect("increment 2's row");
+    assert!(row.contains("none (call faulted)"), "{t}");
+    let branches: Vec<&str> = t.lines().filter(|l| l.trim_start().starts_with("branch ")).collect();
+    assert!(!branches.is_empty() && branches.iter().all(|l| l.contains("passed at 1 increments")), "{t}");
 }
 
 #[test]
 fn an_infinite_loop_needs_isolation_and_is_then_reported() {
     expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "did not return within 2 s");
     expect("bad_infinite_loop", &["--isolate", "--call-timeout", "2"], 3, "during increment 2");
+    // The parent names the routine, which the worker wrote into the shared record at load.
+    expect(
+        "bad_infinite_loop",
+        &["--isolate", "--call-timeout", "2"],
+        3,
+        ":bad_infinite_loop (isolated check) ==",
+    );
     // Without --isolate the watchdog ends it; under -q without its "still checking" lines.
     let (c, t) = check(c_lib(), "bad_infinite_loop", &["--call-timeout", "2", "-q"]);
     assert_eq!(c, Some(3), "{t}");

@@ -275,6 +275,11 @@ fn exit_during_a_call_writes_the_report_with_the_increment_and_its_inputs() {
     assert_fault(&r, "in-process", 70, "exit()");
     assert_increment_2(&r, "in-process");
     assert!(r.text.contains("the inputs of that call (increment 2)"), "{}", r.text);
+    // The last words give each number in the fewest digits that read back as it (0.3, not
+    // 0.29999999999999999), and the temperatures as two numbers.
+    let props = r.text.lines().find(|l| l.trim_start().starts_with("props")).expect("the properties' line");
+    assert!(props.contains(", 0.3") && !props.contains("0.2999"), "{}", r.text);
+    assert!(r.text.lines().any(|l| l.trim() == "temp, dtemp 0, 0"), "{}", r.text);
     let r = check(misbehave(), "bad_exit", 3, &["--isolate"]);
     assert_fault(&r, "isolated", 3, "exit()");
     assert_increment_2(&r, "isolated");

@@ -348,14 +348,19 @@ static void put_int(long long v) {
     put(out);
 }
 
-/* A number (JSON null when not finite). snprintf on a stack buffer: no allocation for %g. */
+/* A number (JSON null when not finite), in the fewest of 15, 16 or 17 significant digits that
+ * read back as the same double (%g drops trailing zeros, so 15 covers every shorter form:
+ * 0.3, not 0.29999999999999999). snprintf and strtod on stack buffers: no allocation. */
 static void put_real(double x) {
     char b[40];
     if (x != x || x - x != 0.0) {
         put("null");
         return;
     }
-    snprintf(b, sizeof b, "%.17g", x);
+    for (int digits = 15; digits <= 17; digits++) {
+        snprintf(b, sizeof b, "%.*g", digits, x);
+        if (digits == 17 || strtod(b, NULL) == x) break;
+    }
     put(b);
 }
 
@@ -580,8 +585,12 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put_array(a->state0, c->nstate, cx);
         put("\n     props    ");
         put_array(a->props, c->nproperties, cx);
-        put("\n     temp, dtemp ");
-        put_array(a->temp, 2, cx);
+        if (a->temp != NULL) {
+            put("\n     temp, dtemp ");
+            put_real(((const double *)a->temp)[0]);
+            put(", ");
+            put_real(((const double *)a->temp)[cx ? 2 : 1]);
+        }
         put("\n");
     }
     if (fc != NULL) {

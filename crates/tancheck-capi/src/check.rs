@@ -143,8 +143,8 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
     if !parts.is_empty() {
         let _ = write!(s, ": {}", parts.join("; "));
     }
-    if let Some(f) = report.first_fault() {
-        let _ = write!(s, "; fault in increment {}: {}", f.call.increment, f.message);
+    if let Some((k, f)) = report.first_fault_at() {
+        let _ = write!(s, "; fault in increment {k}: {}", f.message);
     }
     if let Some(f) = findings.first() {
         let more =

@@ -54,9 +54,12 @@ pub fn worker_follows_parent(heartbeat: &Path) -> Result<()> {
 }
 
 /// Bytes of the shared record: the call counter, the sequence word, the record's length in
-/// words, and the inputs of the last base call (8-byte words). A sparse file: pages the
+/// words, and the inputs of the last base call (8-byte words); in its last [`NAME_WORDS`]
+/// words the routine's name (its length in bytes, then the bytes). A sparse file: pages the
 /// record does not reach take no room.
 pub const SHARED_LEN: u64 = 1 << 20;
+/// Words at the end of the shared record that hold the routine's name.
+const NAME_WORDS: usize = 64;
 /// Word offsets in the shared record.
 const W_CALLS: usize = 0;
 const W_SEQ: usize = 1;
@@ -92,7 +95,25 @@ impl<'r> Heartbeat<'r> {
         // SAFETY: the file is the worker folder's own, made by the parent, which only reads
         // it; its length is not changed while mapped.
         let map = unsafe { memmap2::MmapMut::map_mut(&file)? };
-        Ok(Heartbeat { inner, map, calls: 0, seq: 0 })
+        let mut beat = Heartbeat { inner, map, calls: 0, seq: 0 };
+        beat.name();
+        Ok(beat)
+    }
+
+    /// The routine's name into the end of the shared record (cut to fit), before any call:
+    /// the parent names the routine when the worker dies.
+    fn name(&mut self) {
+        use std::sync::atomic::Ordering;
+        let w = words(&self.map);
+        let at = w.len() - NAME_WORDS;
+        let name = self.inner.info().name.as_bytes();
+        let name = &name[..name.len().min((NAME_WORDS - 1) * 8)];
+        for (slot, chunk) in w[at + 1..].iter().zip(name.chunks(8)) {
+            let mut b = [0u8; 8];
+            b[..chunk.len()].copy_from_slice(chunk);
+            slot.store(u64::from_le_bytes(b), Ordering::Relaxed);
+        }
+        w[at].store(name.len() as u64, Ordering::Release);
     }
 
     fn beat(&mut self) {
@@ -110,7 +131,7 @@ impl<'r> Heartbeat<'r> {
         let len = RECORD_HEAD + arrays.iter().map(|a| a.len()).sum::<usize>();
         self.seq += 1;
         w[W_SEQ].store(self.seq, Ordering::Release);
-        if W_RECORD + len > w.len() {
+        if W_RECORD + len > w.len() - NAME_WORDS {
             w[W_LEN].store(0, Ordering::Relaxed);
         } else {
             let head = [
@@ -151,13 +172,28 @@ impl SharedView {
         words(&self.0)[W_CALLS].load(std::sync::atomic::Ordering::Acquire)
     }
 
+    /// The routine's name, once the worker has loaded it and written it (cut at a character
+    /// boundary where the record cut it).
+    fn routine(&self) -> Option<String> {
+        use std::sync::atomic::Ordering;
+        let w = words(&self.0);
+        let at = w.len() - NAME_WORDS;
+        let n = (w[at].load(Ordering::Acquire) as usize).min((NAME_WORDS - 1) * 8);
+        if n == 0 {
+            return None;
+        }
+        let bytes: Vec<u8> =
+            w[at + 1..].iter().flat_map(|x| x.load(Ordering::Relaxed).to_le_bytes()).take(n).collect();
+        Some(String::from_utf8_lossy(&bytes).trim_end_matches('\u{fffd}').to_string())
+    }
+
     /// The inputs of the last base call, when the worker finished writing them.
     fn last_call(&self) -> Option<CallRecord> {
         use std::sync::atomic::Ordering;
         let w = words(&self.0);
         let seq = w[W_SEQ].load(Ordering::Acquire);
         let len = w[W_LEN].load(Ordering::Acquire) as usize;
-        if seq == 0 || seq % 2 == 1 || len < RECORD_HEAD || W_RECORD + len > w.len() {
+        if seq == 0 || seq % 2 == 1 || len < RECORD_HEAD || W_RECORD + len > w.len() - NAME_WORDS {
             return None;
         }
         let r: Vec<u64> = w[W_RECORD..W_RECORD + len].iter().map(|x| x.load(Ordering::Relaxed)).collect();
@@ -289,7 +325,10 @@ pub fn run_isolated(
                  constructor that hangs while it is being loaded?)"
             ));
         } else if last_len > 0 && last_beat.elapsed() > Duration::from_secs_f64(call_timeout) {
-            killed = Some(format!("the routine did not return within {call_timeout} s (an infinite loop?)"));
+            killed = Some(format!(
+                "the routine did not return within {call_timeout} s (an infinite loop, a deadlock or a \
+                 long sleep?; --call-timeout sets the limit)"
+            ));
         } else if started.elapsed() > Duration::from_secs_f64(suite_timeout) {
             killed = Some(format!("the check did not finish within {suite_timeout} s"));
         }
@@ -359,9 +398,11 @@ pub fn run_isolated(
         };
         // The call that was running: from the worker's last words (exact), or the base call
         // of the increment the heartbeat last saw.
-        let call: Option<CallRecord> = last_words
-            .and_then(|v| serde_json::from_value(v.fault["call"].clone()).ok())
-            .or_else(|| shared.last_call());
+        let exact: Option<CallRecord> =
+            last_words.and_then(|v| serde_json::from_value(v.fault["call"].clone()).ok());
+        let seen = if exact.is_some() { Seen::Exact } else { Seen::BaseCall };
+        let call = exact.or_else(|| shared.last_call());
+        let routine = shared.routine();
         let stdout_text = String::from_utf8_lossy(&stdout);
         let stderr_text = String::from_utf8_lossy(&stderr);
         let mut o = crate::survive::stdout();
@@ -376,17 +417,17 @@ pub fn run_isolated(
             // The readable account goes to standard error; standard output is the JSON.
             drop(o);
             let mut e = std::io::stderr().lock();
-            account(&mut e, &what, call.as_ref(), &stderr_text)?;
-            let v = fault_json(&what, call.as_ref());
+            account(&mut e, &what, routine.as_deref(), call.as_ref().map(|c| (c, seen)), &stderr_text)?;
+            let v = fault_json(&what, routine.as_deref(), call.as_ref());
             let mut text = serde_json::to_vec_pretty(&v)?;
             text.push(b'\n');
             crate::survive::stdout().write_all(&text)?;
             let _ = std::fs::remove_dir_all(&dir);
             return Ok(exit::ROUTINE_FAULT);
         }
-        account(&mut o, &what, call.as_ref(), &stderr_text)?;
+        account(&mut o, &what, routine.as_deref(), call.as_ref().map(|c| (c, seen)), &stderr_text)?;
         if let Some(j) = json {
-            let mut text = serde_json::to_vec_pretty(&fault_json(&what, call.as_ref()))?;
+            let mut text = serde_json::to_vec_pretty(&fault_json(&what, routine.as_deref(), call.as_ref()))?;
             text.push(b'\n');
             crate::report::write_atomic(j, &text)?;
         }
@@ -409,20 +450,40 @@ struct WorkerReport {
 }
 
 /// The readable account of a worker that did not finish.
+/// Where the parent's record of the running call came from.
+#[derive(Clone, Copy)]
+enum Seen {
+    /// The worker's last words: the very call.
+    Exact,
+    /// The shared record: the base call of the increment that was running.
+    BaseCall,
+}
+
 fn account(
     o: &mut dyn Write,
     what: &str,
-    call: Option<&CallRecord>,
+    routine: Option<&str>,
+    call: Option<(&CallRecord, Seen)>,
     stderr_text: &str,
 ) -> std::io::Result<()> {
-    writeln!(o, "== isolated check ==")?;
+    match routine {
+        Some(name) => writeln!(o, "== {name} (isolated check) ==")?,
+        None => writeln!(o, "== isolated check (the worker had not loaded the routine) ==")?,
+    }
     writeln!(o, "   FAULT: {what}")?;
-    if let Some(c) = call {
-        writeln!(o, "   during increment {} (the inputs of that call):", c.increment)?;
+    if let Some((c, seen)) = call {
+        match seen {
+            Seen::Exact => writeln!(o, "   during increment {} (the inputs of that call):", c.increment)?,
+            // The shared record holds each increment's base call; the call that was running
+            // may be one of the increment's perturbed calls.
+            Seen::BaseCall => {
+                writeln!(o, "   during increment {} (the inputs of its base call):", c.increment)?
+            }
+        }
         writeln!(
             o,
-            "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}",
-            c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp
+            "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}   time, dtime {}, {}",
+            c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp, c.time, c.dtime
         )?;
     } else {
         writeln!(o, "   before the first routine call")?;
@@ -434,12 +495,13 @@ fn account(
 }
 
 /// The JSON report of a worker that did not finish.
-fn fault_json(what: &str, call: Option<&CallRecord>) -> serde_json::Value {
+fn fault_json(what: &str, routine: Option<&str>, call: Option<&CallRecord>) -> serde_json::Value {
     serde_json::json!({
         "format": tancheck_core::report::document::FORMAT,
         "version": tancheck_core::report::document::VERSION,
         "kind": "isolated-fault",
         "tool": format!("tancheck {}", env!("CARGO_PKG_VERSION")),
+        "routine": routine,
         "verdict": "routine-fault",
         "isolated": true,
         "fault": { "message": what, "increment": call.map(|c| c.increment), "call": call },

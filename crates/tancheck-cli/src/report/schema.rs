@@ -82,6 +82,8 @@ struct LastWordsFault {
 #[allow(dead_code)] // only its schema is used
 struct IsolatedFault {
     tool: String,
+    /// The routine's name (`library:symbol`), null when the worker had not loaded it.
+    routine: Option<String>,
     /// Always "routine-fault".
     verdict: String,
     /// Always true.

@@ -35,8 +35,8 @@ impl Probe for Tangent {
             _ if failed.is_empty() => ProbeStatus::Pass,
             _ => ProbeStatus::Fail,
         };
-        let summary = if let Some(f) = report.first_fault() {
-            format!("the routine failed at increment {}: {}", f.call.increment, f.message)
+        let summary = if let Some((k, f)) = report.first_fault_at() {
+            format!("the routine failed at increment {k}: {}", f.message)
         } else if failed.is_empty() {
             format!("consistent at {} increments (worst error {worst:.2e})", checked.len())
         } else {

@@ -75,6 +75,9 @@ pub struct RoutineSummary {
 /// The inputs of one call, kept when the call went wrong so it can be rerun.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct CallRecord {
+    /// The increment number the routine was told (its `call->increment`). For the increments
+    /// of the path it is their index in the report; the zero increment from the start state
+    /// (index 0) is told 1, as the first call of an analysis would be.
     pub increment: i32,
     /// Which input was perturbed, and by how much, if any: e.g. "dstrain[3] + 1.2e-9".
     pub perturbation: Option<String>,
@@ -168,8 +171,16 @@ pub struct IncrementResult {
     pub fault: Option<FaultRecord>,
 }
 
+/// The label of an increment whose base call faulted: it gave no outputs, so no branch.
+pub const NO_BRANCH_FAULTED: &str = "none (call faulted)";
+
 impl IncrementResult {
+    /// The branch as [`branch_label`] names it, or [`NO_BRANCH_FAULTED`] when the base call
+    /// faulted (the routine's outputs, its branch among them, were not used).
     pub fn branch_label(&self) -> String {
+        if self.fault.is_some() {
+            return NO_BRANCH_FAULTED.to_string();
+        }
         branch_label(self.reported_branch, self.state_changed)
     }
 
@@ -360,16 +371,26 @@ impl Report {
 
     /// The first fault anywhere in the report.
     pub fn first_fault(&self) -> Option<&FaultRecord> {
+        self.first_fault_at().map(|(_, f)| f)
+    }
+
+    /// [`Report::first_fault`] with the index of its increment in the report (0 for the zero
+    /// increment from the start state, whose call the routine is told is increment 1: the
+    /// record's `call.increment` is what the routine was told, not the report's row).
+    pub fn first_fault_at(&self) -> Option<(usize, &FaultRecord)> {
         self.increments.iter().find_map(|inc| {
-            inc.fault.as_ref().or_else(|| {
-                inc.checks.iter().find_map(|c| match &c.tangent {
-                    CheckOutcome::Fault(f) => Some(f),
-                    _ => match &c.dstress_dtemp {
-                        Some(CheckOutcome::Fault(f)) => Some(f),
-                        _ => None,
-                    },
+            inc.fault
+                .as_ref()
+                .or_else(|| {
+                    inc.checks.iter().find_map(|c| match &c.tangent {
+                        CheckOutcome::Fault(f) => Some(f),
+                        _ => match &c.dstress_dtemp {
+                            Some(CheckOutcome::Fault(f)) => Some(f),
+                            _ => None,
+                        },
+                    })
                 })
-            })
+                .map(|f| (inc.index, f))
         })
     }
 }

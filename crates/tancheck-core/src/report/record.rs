@@ -282,10 +282,14 @@ impl Collector {
                 _ => None,
             })
             .fold(0.0, f64::max);
-        let b = self.branch(inc.reported_branch, inc.state_changed);
-        b.increments += 1;
-        b.failed += (!record.pass) as usize;
-        b.worst_error = b.worst_error.max(worst);
+        // An increment whose base call faulted gave no outputs: it reached no branch (its
+        // label says so), and the branch summaries count only increments that did.
+        if inc.fault.is_none() {
+            let b = self.branch(inc.reported_branch, inc.state_changed);
+            b.increments += 1;
+            b.failed += (!record.pass) as usize;
+            b.worst_error = b.worst_error.max(worst);
+        }
         if inc.fault.is_some() && self.stopped_at.is_none() {
             self.stopped_at = Some(inc.index);
         }

@@ -105,8 +105,8 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
         "wide",
     ));
 
-    if let Some(f) = report.first_fault() {
-        let _ = writeln!(o, "<h2>Fault</h2>\n<p>At increment {}: {}</p>", f.call.increment, esc(&f.message));
+    if let Some((k, f)) = report.first_fault_at() {
+        let _ = writeln!(o, "<h2>Fault</h2>\n<p>At increment {k}: {}</p>", esc(&f.message));
     }
     if failing.is_empty() {
         return;

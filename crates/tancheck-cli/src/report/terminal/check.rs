@@ -188,13 +188,13 @@ fn increment(
     }
     writeln!(out, "   {:>3}  {:<24}{}", inc.index, inc.branch_label(), cells.join(""))?;
     if let Some(f) = &inc.fault {
-        fault(out, f)?;
+        fault(out, f, inc.index)?;
     }
     for nf in &inc.non_finite {
         writeln!(out, "        the routine returned a value that is not a finite number: {nf}")?;
     }
     if let Some(c) = &inc.non_finite_call {
-        inputs(out, c)?;
+        inputs(out, c, inc.index)?;
     }
     for c in &inc.checks {
         if !inc.passed() && !c.passed() || detail == Detail::Verbose {
@@ -377,7 +377,7 @@ fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::R
                 }
             }
             CheckOutcome::Skipped { .. } => {}
-            CheckOutcome::Fault(f) => fault(out, f)?,
+            CheckOutcome::Fault(f) => fault(out, f, inc.index)?,
         }
     }
     Ok(())
@@ -451,13 +451,23 @@ pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
     Ok(())
 }
 
-fn fault(out: &mut dyn Write, f: &FaultRecord) -> io::Result<()> {
+fn fault(out: &mut dyn Write, f: &FaultRecord, row: usize) -> io::Result<()> {
     writeln!(out, "        {}", f.message)?;
-    inputs(out, &f.call)
+    inputs(out, &f.call, row)
 }
 
-fn inputs(out: &mut dyn Write, c: &tancheck_core::report::CallRecord) -> io::Result<()> {
-    writeln!(out, "          inputs of that call (increment {}):", c.increment)?;
+/// The inputs of a call kept with a fault or non-finite outputs, under the report's increment
+/// `row`; the increment number the routine was told is named where it is another.
+fn inputs(out: &mut dyn Write, c: &tancheck_core::report::CallRecord, row: usize) -> io::Result<()> {
+    if usize::try_from(c.increment).ok() == Some(row) {
+        writeln!(out, "          inputs of that call (increment {row}):")?;
+    } else {
+        writeln!(
+            out,
+            "          inputs of that call (increment {row}; the routine was told increment {}):",
+            c.increment
+        )?;
+    }
     if let Some(p) = &c.perturbation {
         writeln!(out, "            perturbation  {p}")?;
     }

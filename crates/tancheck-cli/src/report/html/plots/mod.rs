@@ -257,9 +257,17 @@ pub fn error_along_path(report: &Report) -> Option<String> {
     let x0 = recs.first().map_or(0, |r| r.index) as f64 - 0.5;
     let x1 = recs.last().map_or(1, |r| r.index) as f64 + 0.5;
     // Runs of increments in one branch.
+    // An increment whose base call faulted reached no branch (its record keeps the unused
+    // outputs' branch); the path stops there, so these are one or none.
+    let faulted: Vec<usize> =
+        report.increments.iter().filter(|i| i.fault.is_some()).map(|i| i.index).collect();
     let mut runs: Vec<(String, f64, f64)> = Vec::new();
     for r in recs {
-        let label = r.branch_label();
+        let label = if faulted.contains(&(r.index as usize)) {
+            tancheck_core::report::NO_BRANCH_FAULTED.to_string()
+        } else {
+            r.branch_label()
+        };
         let x = r.index as f64;
         match runs.last_mut() {
             Some(run) if run.0 == label => run.2 = x + 0.5,
