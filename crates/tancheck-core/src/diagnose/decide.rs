@@ -8,7 +8,8 @@
 //!
 //! 1. a twin whose real part differs from the real routine's outputs, or whose derivative
 //!    disagrees with the real schemes while those agree with the returned tangent (with the
-//!    scheme's order shown in a step study), is not complex-step safe: its results are set
+//!    scheme's order shown in a step study, and a decade closer to it than the complex step,
+//!    [`TWIN_MARGIN`]), is not complex-step safe: its results are set
 //!    aside and, when the real schemes clear the tangent, that is the finding
 //!    ([`TWIN_FINDING`]), never "the tangent differs";
 //! 2. at a kink, an exact complex-step agreement stands (the complex step does not cross the
@@ -109,12 +110,23 @@ fn twin_real_part_differs(o: &Observed) -> bool {
     o.twin.is_some_and(|t| t.real_part_gap.is_nan() || t.real_part_gap > REAL_PART_LEVEL)
 }
 
-/// Real schemes that agree with the returned tangent, with their order shown.
+/// How much closer to the returned tangent a real scheme must come than the complex step
+/// does before the complex step, not the tangent, is held to be off: a decade. A real study
+/// "converges" within its own tolerance (1e-4 for a one-sided scheme), which says nothing
+/// against a complex step that differs by as much as the real scheme does (a tangent off by
+/// 1e-5 next to a branch boundary, where the real references are spoiled and the complex step
+/// alone is exact). Why a decade: a real scheme that converged sits at its rounding floor,
+/// several decades below any complex-step error worth blaming on the twin.
+pub const TWIN_MARGIN: f64 = 0.1;
+
+/// Real schemes that agree with the returned tangent, with their order shown, and clearly
+/// closer to it than the complex step is ([`TWIN_MARGIN`]) when the complex step ran.
 fn real_agree(o: &Observed) -> Option<&StepStudy> {
-    o.studies
-        .iter()
-        .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
-        .find(|s| s.behaviour == Behaviour::Converges)
+    let complex_error = o.complex.map(|(e, _)| e);
+    o.studies.iter().filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep).find(|s| {
+        s.behaviour == Behaviour::Converges
+            && complex_error.is_none_or(|e| e.is_nan() || s.best_error <= TWIN_MARGIN * e)
+    })
 }
 
 /// Rule 1: the twin is not complex-step safe.

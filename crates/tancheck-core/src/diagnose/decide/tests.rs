@@ -222,6 +222,30 @@ fn rows() -> Vec<Row> {
         twin_unsafe: false,
         needs_causes: true,
     });
+    // A tangent off by about 1e-5 just past a boundary where a squared bracket <x - t>² starts
+    // (its second derivative jumps): the complex step alone is exact and differs from the
+    // returned tangent by 1.16e-5; the central study levels off at that size; the forward
+    // study stays flat at 1.15e-5, inside its own loose tolerance (1e-4), so it "converges";
+    // Richardson at a moderate step straddles the boundary (gap 1e-3). The forward scheme is
+    // no closer to the returned tangent than the complex step: the tangent, not the twin, is
+    // wrong (found by a user-style sweep; the numbers are that routine's).
+    rows.push(Row {
+        what: "tangent off by 1e-5 next to a boundary, forward flat within its own tolerance",
+        observed: Observed {
+            studies: vec![
+                study(Scheme::Central, 1e-6, |h| 1.16e-5 + 1e-16 / h),
+                study(Scheme::Forward, 1e-4, |_| 1.15e-5),
+            ],
+            complex: Some((1.16e-5, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(1e-3) }),
+            failed_tol: 1e-6,
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    });
     // A yield surface 1e-9 from the point (J2 case above, ε11 = 0.001625 + 1e-9): the
     // one-sided derivatives differ by 0.41 at the largest probe step and agree to 2.6e-9 at
     // the smallest, where each column matches them to 4e-8 (measured).
