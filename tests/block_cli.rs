@@ -101,6 +101,12 @@ fn check_and_probe(lang: &str) {
     let (code, quiet, _) = tancheck(&["probe".as_ref(), bad.as_os_str(), "-q".as_ref()]);
     assert_eq!(code, 1);
     assert!(quiet.lines().count() < out.lines().count(), "-q:\n{quiet}\nnormal:\n{out}");
+    // -q is one line per finding, naming the routine, and the verdict.
+    assert!(
+        quiet.lines().all(|l| l.starts_with("FAIL ") || l.starts_with("FAULT ") || l.starts_with("verdict:"))
+            && quiet.contains("_j2_block_corrector_sign stiffer-than-elastic"),
+        "{quiet}"
+    );
     let xml_bad = d.join("bad.xml");
     let (code, _, _) =
         tancheck(&["check".as_ref(), bad.as_os_str(), "--junit".as_ref(), xml_bad.as_os_str()]);
@@ -153,4 +159,53 @@ fn a_block_section_that_does_not_fit_is_refused_naming_the_file() {
     let (code, _, err) = tancheck(&["check".as_ref(), p.as_os_str()]);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("block-no-density.json") && err.contains("block.density"), "{err}");
+}
+
+/// A manifest of one of the misbehaving block routines (`misbehave_block.c`).
+fn misbehaving(d: &Path, symbol: &str, states: usize) -> PathBuf {
+    let lib = build_once("misbehave_block_cli", &["fortran-shim/examples/c/misbehave_block.c"]);
+    let p = d.join(format!("{symbol}.json"));
+    std::fs::write(
+        &p,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d",
+               "states": {states}, "properties": [200000, 0.3] }},
+  "block": {{ "density": 7.85e-9, "characteristic_length": 2.0 }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    p
+}
+
+#[test]
+fn a_point_at_rest_must_return_finite_outputs() {
+    // A direction of the strain increment taken without a guard: NaN for the neighbours at
+    // rest in the independence check's blocks, with no rate law declared (so no rate check).
+    let d = scratch("block-cli-at-rest");
+    let m = misbehaving(&d, "mb_block_nan_at_rest", 0);
+    let (code, out, err) = tancheck(&["check".as_ref(), m.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    assert_eq!(code, 1, "{out}{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    schema_valid(&v);
+    let f = &v["findings"][0];
+    assert_eq!(f["finding"], "zero-rate-not-finite", "{v}");
+    assert!(f["what"].as_str().unwrap().contains("the point at rest at position"), "{f}");
+}
+
+#[test]
+fn a_guard_finding_in_the_elastic_responses_own_check_is_a_fault() {
+    // Clean in the first call; from the next call on the last point reads past state_start.
+    // The small increment from the start that checks the elastic response is the first such
+    // call: under the full guards its finding is a fault of the routine (exit 3), not a note.
+    let d = scratch("block-cli-state-overread");
+    let m = misbehaving(&d, "mb_block_state_overread", 1);
+    let args = ["check".as_ref(), m.as_os_str(), "--guards".as_ref(), "full".as_ref(), "-q".as_ref()];
+    let (code, out, err) = tancheck(&args);
+    assert_eq!(code, 3, "{out}{err}");
+    let line = out.lines().find(|l| l.contains("routine-fault")).expect("the fault's line");
+    assert!(
+        line.starts_with("FAULT ") && line.contains("reads past the end of its read-only input state_start"),
+        "{out}"
+    );
 }

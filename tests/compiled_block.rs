@@ -290,6 +290,15 @@ fn the_block_check_passes_the_johnson_cook_routines_and_names_each_flaw() {
     for (prefix, lib) in [("c", jc_c_lib()), ("f", jc_f_lib())] {
         let r = jc_check(lib, &format!("{prefix}_jc_block"));
         assert!(r.passed(), "{prefix}_jc_block: {:#?}", r.findings);
+        // A deleted point has no wave speed or stable time increment: undefined (null in the
+        // JSON), not 0, which would read as a time step collapsing to nothing.
+        let deleted: Vec<_> = r.increments.iter().filter(|i| i.deleted).collect();
+        assert!(!deleted.is_empty(), "{prefix}_jc_block: the path deletes the point");
+        assert!(
+            deleted.iter().all(|i| i.stable_time_increment.is_nan() && i.wave_speed.is_nan()),
+            "{deleted:#?}"
+        );
+        assert!(r.increments.iter().filter(|i| !i.deleted).all(|i| i.stable_time_increment > 0.0));
         for (suffix, finding) in [
             ("revived", "deleted-point-revived"),
             ("unguarded_rate", "zero-rate-not-finite"),

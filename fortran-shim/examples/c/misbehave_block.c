@@ -10,6 +10,10 @@
  *   mb_block_crash          dereferences a null pointer in the last point
  *   mb_block_overread       adds a little of the next point's strain increment to each
  *                           point's stress, the last point's read past strain_increment
+ *   mb_block_nan_at_rest    a direction of the strain increment taken without a guard: NaN
+ *                           stress for a point at rest
+ *   mb_block_state_overread reads the next point's state after the first call, the last
+ *                           point's past the end of state_start
  */
 #include <stddef.h>
 
@@ -98,4 +102,44 @@ TC_BLOCK_ROUTINE(mb_block_overread)
     elastic(ARGS, 0);
     const int n = block->ncomp;
     for (int p = 0; p < block->npoints; ++p) stress[p * n] += 1.0e-3 * strain_increment[(p + 1) * n];
+}
+
+/* mb_block_nan_at_rest: adds 0 × Δε11 / |Δε|² to each point's stress, a direction taken
+ * without a guard: 0/0 = NaN for a point at rest (a zero strain increment). */
+TC_BLOCK_ROUTINE(mb_block_nan_at_rest)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic(ARGS, 0);
+    const int n = block->ncomp;
+    for (int p = 0; p < block->npoints; ++p) {
+        /* Otherwise correct: the elastic response (first call) updates no energy. */
+        if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) energy[p] = energy_start[p];
+        const tc_real *de = strain_increment + p * n;
+        tc_real sq = 0.0;
+        for (int i = 0; i < n; ++i) sq += de[i] * de[i];
+        stress[p * n] += 0.0 * de[0] / sq;
+    }
+}
+
+/* mb_block_state_overread: carries its state variables through, and outside the first call
+ * adds a little of the next point's first state variable to each point's stress: the last
+ * point's read is past the end of state_start. The first call (the elastic response) is
+ * clean, so the guards find it in the calls after it. */
+TC_BLOCK_ROUTINE(mb_block_state_overread)
+{
+    (void)strain;
+    (void)report;
+    elastic(ARGS, 0);
+    const int n = block->ncomp, ns = block->nstate;
+    for (int p = 0; p < block->npoints; ++p) {
+        for (int k = 0; k < ns; ++k) state[p * ns + k] = state_start[p * ns + k];
+        if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) {
+            energy[p] = energy_start[p];
+        } else if (ns > 0) {
+            stress[p * n] += 1.0e-9 * state_start[p * ns + ns];
+        }
+    }
 }

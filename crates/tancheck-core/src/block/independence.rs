@@ -1,6 +1,11 @@
 //! Point independence: the point under test gives the same results alone, in a block of 7 and
 //! in a block of 128, at different positions, with neighbours on other paths (other branches:
 //! at rest, elastic, reversed, far beyond yield). The first output that differs is named.
+//!
+//! The neighbours at rest (a zero strain increment over a nonzero time increment, as most
+//! points of an explicit model are in most increments) must return finite stresses and state
+//! variables: a direction Δε/|Δε| or a rate term ln ε̇ unguarded at zero gives NaN there
+//! (`zero-rate-not-finite`, the finding the rate check makes at zero rate).
 
 use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
@@ -61,6 +66,26 @@ fn walk(
     Ok(())
 }
 
+/// The first output of a neighbour at rest (scale 0, not the point under test) that is not
+/// a finite number, in words: "the point at rest at position 3 returned stress[0] = NaN".
+fn not_finite_at_rest(b: &BlockBuffers, scales: &[f64], at: usize, n: usize, ns: usize) -> Option<String> {
+    for (p, _) in scales.iter().enumerate().filter(|&(p, &f)| f == 0.0 && p != at) {
+        let stress = &b.stress[p * n..(p + 1) * n];
+        let state = &b.state[p * ns..(p + 1) * ns];
+        let bad = stress
+            .iter()
+            .position(|x| !x.is_finite())
+            .map(|i| format!("stress[{i}] = {}", stress[i]))
+            .or_else(|| {
+                state.iter().position(|x| !x.is_finite()).map(|i| format!("state[{i}] = {}", state[i]))
+            });
+        if let Some(what) = bad {
+            return Some(format!("the point at rest at position {p} returned {what}"));
+        }
+    }
+    None
+}
+
 fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
     if a.is_nan() && b.is_nan() {
         return false;
@@ -93,8 +118,13 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
             scales = (0..size).map(|p| NEIGHBOURS[(p * 37 + 5) % size % NEIGHBOURS.len()]).collect();
         }
         let mut found: Option<(usize, String)> = None;
+        let mut at_rest: Option<(usize, String)> = None;
         let r = walk(routine, properties, incs, s, Layout { at, scales: &scales }, report, |k, b| {
             let i0 = k - 1;
+            if let Some(w) = not_finite_at_rest(b, &scales, at, n, ns) {
+                at_rest = Some((k, w));
+                return false;
+            }
             let a_stress = &alone.stress[i0 * n..(i0 + 1) * n];
             let a_state = &alone.state[i0 * ns..(i0 + 1) * ns];
             let b_stress = &b.stress[at * n..(at + 1) * n];
@@ -134,6 +164,20 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                 "independence: in a block of {size} (point under test at position {at}) a call failed \
                  ({e}), perhaps for a neighbour's path; the layouts after it were not checked"
             ));
+            return;
+        }
+        if let Some((k, w)) = at_rest {
+            report.add(
+                BlockCheck::Independence,
+                "zero-rate-not-finite",
+                Some(k),
+                format!(
+                    "in a block of {size}, {w} for a zero strain increment over the time increment {:e} \
+                     (a direction Δε/|Δε| or a rate term ln ε̇ not guarded at zero?): an explicit solver \
+                     calls the routine with points at rest in most increments",
+                    incs[k - 1].time_increment
+                ),
+            );
             return;
         }
         if let Some((k, w)) = found {

@@ -102,8 +102,8 @@ pub fn check(w: BlockWalk<'_>, law: RateLaw, report: &mut BlockReport) {
                 "zero-rate-not-finite",
                 None,
                 format!(
-                    "an increment with zero strain (strain rate 0) and time increment {dt:e} {at} {w}: the \
-                     rate term is not guarded at zero rate (ln 0)"
+                    "an increment with zero strain (strain rate 0) and time increment {dt:e} {at} {w}: a \
+                     rate term (ln ε̇) or a direction Δε/|Δε| not guarded at zero rate?"
                 ),
             );
             return false;

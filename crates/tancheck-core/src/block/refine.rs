@@ -58,10 +58,15 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                 runs.push(v);
                 alive = alive.min(a);
             }
+            // The same path in smaller increments, as a solver cutting its increment back
+            // makes: a call that fails there is a fault of the routine.
             Err(e) => {
-                report.notes.push(format!(
-                    "refinement: a call with increments split in {parts} failed ({e}); not checked"
-                ));
+                report.add(
+                    BlockCheck::Call,
+                    "routine-fault",
+                    None,
+                    format!("the path with its increments split in {parts} (the refinement check): {e}"),
+                );
                 return;
             }
         }

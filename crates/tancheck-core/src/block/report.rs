@@ -61,16 +61,22 @@ pub struct BlockFinding {
 pub struct BlockIncrement {
     pub index: usize,
     /// Largest normal diagonal entry of the numerical tangent ∂σ/∂Δε (the dilatational
-    /// effective modulus M).
+    /// effective modulus M). This and the next four are null (NaN in Rust) where the tangent
+    /// was not measured: a deleted point, or a tangent with entries that are not finite.
+    #[schemars(with = "Option<f64>")]
     pub effective_modulus: f64,
     /// sqrt(M / density).
+    #[schemars(with = "Option<f64>")]
     pub wave_speed: f64,
     /// characteristic length / wave speed.
+    #[schemars(with = "Option<f64>")]
     pub stable_time_increment: f64,
     /// Stiffness along the increment's direction, Δε·D·Δε / Δε·C·Δε (C the elastic moduli of
     /// the first call): below 0 the point softens.
+    #[schemars(with = "Option<f64>")]
     pub along_ratio: f64,
     /// Smallest eigenvalue of the tangent's symmetric part.
+    #[schemars(with = "Option<f64>")]
     pub smallest_stiffness: f64,
     /// Relative difference of the finite-difference and complex-step tangents (None without
     /// a twin).
