@@ -229,6 +229,11 @@ fn finite_reports_through_the_reporters() {
     // -q: the failing increments and the verdict, no cautions; a pass prints its verdict only
     let (_, out) = tancheck(&["check", &good, "-q"]);
     assert!(out.contains("verdict: PASS") && !out.contains("increment") && !out.contains("caution"), "{out}");
+    // A failing check under -q: one line per failing increment, its largest entry named as a
+    // component pair (not 0-based indices), and the verdict.
+    let (_, out) = tancheck(&["check", &bad, "-q"]);
+    assert!(out.lines().all(|l| l.starts_with("FAIL ") || l.starts_with("verdict:")), "{out}");
+    assert!(out.contains("largest difference at entry ") && out.contains("missing-over-j"), "{out}");
     let (_, out) = tancheck(&["check", &bad, "--color", "always"]);
     assert!(out.contains("\u{1b}[") && out.contains("missing-over-j"), "{out}");
     let (_, out) = tancheck(&["check", &bad, "--color", "never"]);

@@ -32,6 +32,9 @@ pub fn write_check(
     verbose: bool,
     p: Palette,
 ) -> io::Result<()> {
+    if quiet {
+        return write_check_quiet(out, report, p);
+    }
     let measure = TangentMeasure::parse(&report.tangent_measure).map_or("", |m| m.describe());
     writeln!(
         out,
@@ -68,10 +71,14 @@ pub fn write_check(
         }
         if !inc.passed {
             if let Some(w) = &inc.worst {
+                let size = tancheck_core::finite::TangentMeasure::parse(&report.tangent_measure)
+                    .map_or(6, |m| m.size());
                 writeln!(
                     out,
-                    "      largest difference at ({}, {}): returned {:.6e}, numerical {:.6e}",
-                    w.row, w.column, w.returned, w.numerical
+                    "      largest difference at entry {}: returned {:.6e}, numerical {:.6e}",
+                    w.label(size),
+                    w.returned,
+                    w.numerical
                 )?;
             }
             match &inc.cause {
@@ -112,16 +119,54 @@ pub fn write_check(
     Ok(())
 }
 
-/// The readable report of the probes. `quiet`: failing probes and the verdict only.
+/// `-q`: one line per failing increment (its errors, the largest entry's difference and the
+/// cause), the fault if any, and the verdict.
+fn write_check_quiet(out: &mut dyn Write, report: &FiniteReport, p: Palette) -> io::Result<()> {
+    let size = TangentMeasure::parse(&report.tangent_measure).map_or(6, |m| m.size());
+    for inc in report.increments.iter().filter(|i| !i.passed) {
+        let cx = inc.error_complex.map_or(String::new(), |e| format!("complex {}, ", sci(e)));
+        let worst = inc.worst.as_ref().map_or(String::new(), |w| {
+            format!(
+                "; largest difference at entry {} ({:.6e} returned, {:.6e} numerical)",
+                w.label(size),
+                w.returned,
+                w.numerical
+            )
+        });
+        let cause = inc.cause.as_ref().map_or("unexplained", |c| c.name.as_str());
+        writeln!(
+            out,
+            "{} {} increment {}: error {cx}central {}{worst} -> {cause}",
+            p.fail("FAIL"),
+            report.routine,
+            inc.increment,
+            sci(inc.error_central)
+        )?;
+    }
+    if let Some(f) = &report.fault {
+        writeln!(out, "{} {}: {f}", p.fail("FAULT"), report.routine)?;
+    }
+    let (word, finding) = verdict_word(report);
+    let finding = if finding.is_empty() { String::new() } else { format!(" ({finding})") };
+    writeln!(out, "verdict: {}{finding}", p.verdict(&word))
+}
+
+/// The readable report of the probes. `quiet`: one line per failing probe and the verdict.
 pub fn write_probes(
     out: &mut dyn Write,
     report: &FiniteProbeReport,
     quiet: bool,
     p: Palette,
 ) -> io::Result<()> {
-    writeln!(out, "{} {}", p.head("finite-strain probes of"), report.routine)?;
+    if quiet {
+        for r in report.probes.iter().filter(|r| !r.passed) {
+            writeln!(out, "{} {} {}: {}", p.fail("FAIL"), report.routine, r.name, r.summary)?;
+        }
+    } else {
+        writeln!(out, "{} {}", p.head("finite-strain probes of"), report.routine)?;
+    }
     for r in &report.probes {
-        if quiet && r.passed {
+        if quiet {
             continue;
         }
         let word = if r.passed { p.pass("ok  ") } else { p.fail("FAIL") };

@@ -34,10 +34,27 @@ impl Default for FiniteSettings {
 /// The largest difference of one entry.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct WorstEntry {
+    /// Row and column, from 0: for a 6×6 measure in the order 11 22 33 23 13 12, for dP/dF
+    /// the column-major 3×3 components of P (rows) and F (columns). [`WorstEntry::label`]
+    /// names them.
     pub row: usize,
     pub column: usize,
     pub returned: f64,
     pub numerical: f64,
+}
+
+impl WorstEntry {
+    /// The entry as a reader names it: `22/11` (∂σ22/∂ε11) in a 6×6 measure, `P21/F12` in
+    /// dP/dF (`size` 9).
+    pub fn label(&self, size: usize) -> String {
+        let sym = |k: usize| ["11", "22", "33", "23", "13", "12"].get(k).copied().unwrap_or("?").to_string();
+        let full = |k: usize| format!("{}{}", k % 3 + 1, k / 3 + 1);
+        if size == 9 {
+            format!("P{}/F{}", full(self.row), full(self.column))
+        } else {
+            format!("{}/{}", sym(self.row), sym(self.column))
+        }
+    }
 }
 
 /// One increment's verdict.

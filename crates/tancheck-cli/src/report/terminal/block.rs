@@ -15,6 +15,9 @@ pub struct BlockTerminal {
 
 impl BlockTerminal {
     pub fn write(&self, r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
+        if self.detail == Detail::Quiet {
+            return self.write_quiet(r, out);
+        }
         writeln!(out, "tancheck: block routine {}", r.routine)?;
         writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
         let e = &r.elastic;
@@ -79,6 +82,37 @@ impl BlockTerminal {
             )?;
         }
         writeln!(out, "   calls: {} real, {} complex", r.real_calls, r.complex_calls)?;
+        self.verdict(r, out)?;
+        if self.detail != Detail::Quiet {
+            writeln!(
+                out,
+                "   caution: these checks test the routine's own consistency (independence, energy, deletion, \
+                 stiffness); they do not validate the material model against test data. Structural use \
+                 follows applicable codes and licensed engineering judgement."
+            )?;
+        }
+        Ok(())
+    }
+
+    /// `-q`: one line per finding, naming the routine, and the verdict.
+    fn write_quiet(&self, r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
+        for f in &r.findings {
+            let at = f.increment.map_or(String::new(), |k| format!(" (increment {k})"));
+            let word = if f.finding == "routine-fault" { "FAULT" } else { "FAIL" };
+            writeln!(
+                out,
+                "{} {} {} [{}]{at}: {}",
+                self.palette.fail(word),
+                r.routine,
+                f.finding,
+                f.check.name(),
+                f.what
+            )?;
+        }
+        self.verdict(r, out)
+    }
+
+    fn verdict(&self, r: &BlockReport, out: &mut dyn Write) -> io::Result<()> {
         let verdict = match r.exit_code() {
             0 => "PASS",
             3 => "ROUTINE FAULT",
@@ -90,15 +124,6 @@ impl BlockTerminal {
             self.palette.verdict(verdict),
             r.exit_code(),
             r.finding()
-        )?;
-        if self.detail != Detail::Quiet {
-            writeln!(
-                out,
-                "   caution: these checks test the routine's own consistency (independence, energy, deletion, \
-                 stiffness); they do not validate the material model against test data. Structural use \
-                 follows applicable codes and licensed engineering judgement."
-            )?;
-        }
-        Ok(())
+        )
     }
 }
