@@ -271,6 +271,12 @@ impl Campaign {
                 if !["pass", "fail", "fault", "twin"].contains(&x.as_str()) {
                     bail!("{file}: {at}.expect: `{x}`; one of pass, fail, fault, twin");
                 }
+                if let (Some(f), "pass") = (&e.expect_finding, x.as_str()) {
+                    bail!(
+                        "{file}: {at}: `expect` is pass and `expect_finding` is `{f}`: a passing check has \
+                         no finding, so both cannot hold"
+                    );
+                }
             }
             let (family, name, library) =
                 read_manifest(&manifest).map_err(|err| anyhow!("{file}: {at}: {err:#}"))?;
@@ -300,6 +306,21 @@ impl Campaign {
             bail!("{file}: `routines` is empty");
         }
         let items = expand(&routines, &dir);
+        // A key names one item in every report, shard and merge: two items with one key (a
+        // property set, path or probe suite named twice, or a manifest listed twice) would be
+        // taken for each other.
+        let mut keys: Vec<(&str, usize)> = items.iter().map(|it| (it.key.as_str(), it.routine)).collect();
+        keys.sort_unstable();
+        if let Some(w) = keys.windows(2).find(|w| w[0].0 == w[1].0) {
+            let (a, b) = (w[0].1.min(w[1].1), w[0].1.max(w[1].1));
+            let where_ =
+                if a == b { format!("routines[{a}]") } else { format!("routines[{a}] and routines[{b}]") };
+            bail!(
+                "{file}: {where_}: two items would have the key `{}`: give each property set, path and \
+                 probe suite of a routine a name of its own, and list a manifest once",
+                w[0].0
+            );
+        }
         for it in &items {
             digest.update(it.key.as_bytes());
             digest.update(b"\n");
