@@ -140,6 +140,44 @@ pub struct Measurement {
     /// Which of `measured` is the sharpest tangent.
     best_at: Option<usize>,
     soft: Option<SoftDirections>,
+    /// Strain columns (bit j), and the ∂σ/∂T column (bit [`TEMPERATURE_BIT`]), where the
+    /// central difference's own calls put the returned column away from both one-sided
+    /// quotients (see [`one_sided_distance`]), and those distances: a kink at the point that
+    /// the central difference straddles.
+    straddled: u8,
+    straddle_distance: [f64; 7],
+}
+
+/// A returned column this far (relative) from both one-sided quotients of the central
+/// difference's calls is no one side's derivative: the level of the kink probe's gaps
+/// ([`crate::diagnose::kink::GAP_LEVEL`]), above a smooth response's one-sided truncation at
+/// the central step (about 1e-5 for a relative curvature of one).
+const STRADDLE_LEVEL: f64 = crate::diagnose::kink::GAP_LEVEL;
+
+/// The bit of [`Measurement::straddled`] for the ∂σ/∂T column.
+const TEMPERATURE_BIT: usize = 6;
+
+/// The relative distance of the returned column `r` from the nearer of the one-sided
+/// quotients (plus − base)/h and (base − minus)/h, made from a central difference's two calls
+/// and the base call (no call of its own). On a smooth response both quotients are within the
+/// one-sided truncation of the derivative; at a kink at the point they are its two sides, and
+/// their mean, which the central difference gives, is neither.
+fn one_sided_distance(base: &[f64], plus: &[f64], minus: &[f64], r: &[f64], h: f64, floor: f64) -> f64 {
+    let (mut df, mut db, mut nf, mut nb) = (0.0, 0.0, 0.0, 0.0);
+    for i in 0..r.len() {
+        let f = (plus[i] - base[i]) / h;
+        let b = (base[i] - minus[i]) / h;
+        df += (r[i] - f) * (r[i] - f);
+        db += (r[i] - b) * (r[i] - b);
+        nf += f * f;
+        nb += b * b;
+    }
+    let d = df.min(db).sqrt() / nf.max(nb).sqrt().max(floor).max(f64::MIN_POSITIVE);
+    if d.is_nan() {
+        0.0
+    } else {
+        d
+    }
 }
 
 impl Measurement {
@@ -172,6 +210,10 @@ impl Measurement {
             return None;
         }
         let soft = self.soft.as_ref()?;
+        // A column the central difference straddles at a kink is looked at again (`judge`).
+        if self.straddled != 0 {
+            return None;
+        }
         let mut r = [0.0; 36];
         conv.tangent_to_mandel_into(&self.returned[..n * n], &mut r[..n * n]);
         let mut out = [None; RECORD_SCHEMES];
@@ -241,6 +283,9 @@ pub fn measure_call(
     // comparisons: the soft directions are found once, from the sharpest numerical tangent,
     // and every scheme is measured along them.
     let mut measured: SmallVec<[Measured; 2]> = SmallVec::with_capacity(settings.schemes.len());
+    let (mut straddled, mut straddle_distance) = (0u8, [0.0; 7]);
+    let column_floor = settings.entry_floor
+        * returned[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt().max(f64::MIN_POSITIVE);
     for &scheme in &settings.schemes {
         let ss = settings.scheme(scheme);
         let h = ss.rel_step * h_strain_scale;
@@ -266,6 +311,20 @@ pub fn measure_call(
                 twin_real_gap =
                     Some(twin_real_gap.unwrap_or(0.0).max(if gap.is_nan() { f64::INFINITY } else { gap }));
             }
+            if r.is_ok() && scheme == Scheme::Central {
+                let d = one_sided_distance(
+                    &driver.base.stress[..n],
+                    &driver.plus.stress[..n],
+                    &driver.minus.stress[..n],
+                    &returned[j * n..(j + 1) * n],
+                    h,
+                    column_floor,
+                );
+                if d > STRADDLE_LEVEL {
+                    straddled |= 1 << j;
+                    straddle_distance[j] = d;
+                }
+            }
             if let Err(f) = r {
                 let what = format!(
                     "dstrain[{j}] {} {h:.3e}",
@@ -284,6 +343,20 @@ pub fn measure_call(
                     Err(CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}")))))
                 }
             });
+            if let (Scheme::Central, Some(Ok(_)), Some(ret)) = (scheme, &m.dtemp, &returned_dtemp) {
+                let d = one_sided_distance(
+                    &driver.base.stress[..n],
+                    &driver.plus.stress[..n],
+                    &driver.minus.stress[..n],
+                    &ret[..n],
+                    ht,
+                    dtemp_abs_floor,
+                );
+                if d > STRADDLE_LEVEL {
+                    straddled |= 1 << TEMPERATURE_BIT;
+                    straddle_distance[TEMPERATURE_BIT] = d;
+                }
+            }
         }
     }
     // The sharpest tangent measured: the complex step's when it ran, else the highest order
@@ -316,7 +389,61 @@ pub fn measure_call(
         measured,
         best_at,
         soft,
+        straddled,
+        straddle_distance,
     })
+}
+
+/// Whether a kink sits at the point in a column the central difference straddled: the same
+/// distance at a tenth of the step (two calls per straddled column) does not shrink as a
+/// one-sided truncation would. Why 0.3: truncation falls tenfold, a kink's gap not at all;
+/// as the kink probe's rule ([`crate::diagnose::kink`]). Returns (some strain column, the
+/// ∂σ/∂T column).
+fn kink_straddled(
+    me: &Measurement,
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+) -> (bool, bool) {
+    let n = me.n;
+    let Some(central) = me.measured.iter().find(|m| m.scheme == Scheme::Central && m.outcome.is_none())
+    else {
+        return (false, false);
+    };
+    let floor = settings.entry_floor * me.returned[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt();
+    let ht = settings.central.rel_step * driver.temp_scale(settings.temp_floor);
+    let mut kinked = (false, false);
+    for j in (0..=TEMPERATURE_BIT).filter(|&j| me.straddled & (1 << j) != 0) {
+        let (dir, h, returned, floor) = if j == TEMPERATURE_BIT {
+            match &me.returned_dtemp {
+                Some(ret) => (Direction::Temperature, 0.1 * ht, &ret[..n], me.dtemp_abs_floor),
+                None => continue,
+            }
+        } else {
+            (Direction::Strain(j), 0.1 * central.h, &me.returned[j * n..(j + 1) * n], floor)
+        };
+        let calls =
+            driver.perturbed_call(caller, dir, h).and_then(|()| driver.perturbed_call(caller, dir, -h));
+        if calls.is_err() {
+            continue;
+        }
+        let d = one_sided_distance(
+            &driver.base.stress[..n],
+            &driver.plus.stress[..n],
+            &driver.minus.stress[..n],
+            returned,
+            h,
+            floor,
+        );
+        if d > STRADDLE_LEVEL && d > 0.3 * me.straddle_distance[j] {
+            if j == TEMPERATURE_BIT {
+                kinked.1 = true;
+            } else {
+                kinked.0 = true;
+            }
+        }
+    }
+    kinked
 }
 
 /// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
@@ -389,10 +516,33 @@ pub fn judge(
         diagnosis: None,
         best,
     };
+    // Every check passed, but the central difference straddled a kink at the point in some
+    // column, where its mean of the two sides may equal a returned tangent that is neither
+    // side's derivative: the diagnosis judges it by the one-sided derivatives.
+    let (straddled, dtemp_straddled) = if settings.diagnose
+        && me.straddled != 0
+        && out.non_finite.is_empty()
+        && !out.faulted()
+        && out.checks.iter().all(SchemeCheck::passed)
+    {
+        kink_straddled(&me, driver, caller, settings)
+    } else {
+        (false, false)
+    };
+    // A straddled ∂σ/∂T column is judged as a failed one is: against the temperature's own
+    // one-sided derivatives (the central column is the cause ranking's first reference).
+    if dtemp_straddled && failed_dtemp.is_none() {
+        failed_dtemp =
+            me.measured.iter().find(|m| m.scheme == Scheme::Central).and_then(|m| match &m.dtemp {
+                Some(Ok(col)) => Some(col[..n].to_vec()),
+                _ => None,
+            });
+    }
+    let straddled = straddled || dtemp_straddled;
     if settings.diagnose
         && out.non_finite.is_empty()
         && !out.faulted()
-        && !out.checks.iter().all(SchemeCheck::passed)
+        && (straddled || !out.checks.iter().all(SchemeCheck::passed))
     {
         let tangent_ok = |c: &SchemeCheck| !matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass);
         let complex =

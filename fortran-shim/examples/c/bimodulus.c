@@ -5,6 +5,10 @@
  *   c_bimodulus          the tangent of the branch; at eps11 = 0 exactly, the tension side
  *   c_bimodulus_average  at eps11 = 0 exactly, the mean of the two sides' tangents (a
  *                        derivative from neither side); the branch's tangent elsewhere
+ *   c_bimodulus_mean_branch  the same tangent, and at eps11 = 0 exactly a stress term
+ *                        (E_c - E_t)/2 eps11, zero there, so the twin's derivative is the mean
+ *                        as well (a sign function that is 0 at 0 would do the same): the complex
+ *                        step agrees with the flawed tangent, the central difference too
  *
  * Layout: properties [E_t, E_c, nu], no state (entries passed are carried through). Total form,
  * stress0 is not read; eps = strain + dstrain at the end of the increment.
@@ -107,6 +111,9 @@ static void bm_update(int average_at_kink, const tc_call *call, const tc_real *p
         }
         if (i == 0 && compression) {
             s += jump * eps[0];
+        } else if (i == 0 && average_at_kink == 2 && e11 == 0.0) {
+            /* Zero at the point; in the twin its derivative adds half the jump. */
+            s += 0.5 * jump * eps[0];
         }
         stress[i] = s;
         stored += s * eps[i];
@@ -139,5 +146,13 @@ TC_ROUTINE(c_bimodulus_average)
     (void)temperature;
     (void)stress0;
     bm_update(1, call, properties, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
+              energy, report);
+}
+
+TC_ROUTINE(c_bimodulus_mean_branch)
+{
+    (void)temperature;
+    (void)stress0;
+    bm_update(2, call, properties, strain, dstrain, state0, stress, state, tangent, dstress_dtemp,
               energy, report);
 }

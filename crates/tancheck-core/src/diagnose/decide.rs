@@ -13,7 +13,10 @@
 //!    aside and, when the real schemes clear the tangent, that is the finding
 //!    ([`TWIN_FINDING`]), never "the tangent differs";
 //! 2. at a kink, an exact complex-step agreement stands (the complex step does not cross the
-//!    boundary); otherwise each column must equal its own forward or backward derivative;
+//!    boundary) where every kinked column lies on one side of it
+//!    ([`super::kink::SIDE_MARGIN`]); otherwise each column must equal its own forward or backward
+//!    derivative. A check whose central difference straddles a kink at the point comes here
+//!    even when every check passed (`call_check`: the mean of the two sides is no side);
 //! 3. near a kink (one within the default step), each column must equal the one-sided
 //!    derivatives below it; away from a kink, an exact complex-step agreement passes;
 //! 4. a study that converges with its order to the failed check's tolerance clears the
@@ -142,8 +145,25 @@ fn twin_unsafe(o: &Observed) -> bool {
         (Some(g), Some(e)) => g >= 0.5 * e,
         _ => false,
     };
+    // A real study that levels off above its tolerance says the tangent is wrong: no real
+    // scheme can then speak for the tangent against the twin.
+    let no_real_plateau = o
+        .studies
+        .iter()
+        .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
+        .all(|s| s.behaviour != Behaviour::Plateau);
     twin_real_part_differs(o)
-        || (complex_pass == Some(false) && kink.is_none() && real_agree(o).is_some() && derivative_off)
+        || (complex_pass == Some(false)
+            && kink.is_none()
+            && real_agree(o).is_some()
+            && no_real_plateau
+            && derivative_off)
+}
+
+/// Whether every kinked column of `k` lies on one side of its kink
+/// ([`KinkColumn::on_a_side`](super::kink::KinkColumn::on_a_side)).
+fn columns_on_a_side(k: &Kink) -> bool {
+    k.columns.iter().filter(|c| c.detected).all(|c| c.on_a_side)
 }
 
 /// Why a failed ∂σ/∂T check is not held against the routine, by the rules the strain columns
@@ -159,7 +179,9 @@ pub fn dtemp_excuse(o: &Observed) -> Option<String> {
                 "∂σ/∂T: the point sits on a kink in the temperature (the one-sided derivatives differ by {:.2e}, a central difference straddles it)",
                 k.gaps.last().copied().unwrap_or(f64::NAN)
             );
-            if complex == Some(true) {
+            // As for a strain column (rule 2): the complex step's agreement stands only for a
+            // ∂σ/∂T on one side of the kink, not for the mean of the sides.
+            if complex == Some(true) && k.on_a_side {
                 Some(format!("{head}; the complex step (which does not cross it) equals the returned ∂σ/∂T"))
             } else if matches!(k.matches, Side::Forward | Side::Backward) {
                 Some(format!(
@@ -248,7 +270,7 @@ fn decide_tangent(o: &Observed) -> Decision {
     }
     // 2. A kink.
     if let Some(k) = kink {
-        if complex_pass == Some(true) {
+        if complex_pass == Some(true) && columns_on_a_side(k) {
             d.pass = true;
             d.reason = format!(
                 "the point sits on a kink; the complex step (which does not cross it) equals the returned tangent; sides per column: {}",
@@ -269,9 +291,15 @@ fn decide_tangent(o: &Observed) -> Decision {
                 .map(|(_, s)| s.split(' ').next().unwrap_or(""))
                 .collect();
             d.reason = format!(
-                "the point sits on a kink and the returned tangent matches neither one-sided derivative in column{} {}",
+                "the point sits on a kink and the returned tangent matches neither one-sided derivative in column{} {}{}",
                 if bad.len() == 1 { "" } else { "s" },
-                bad.join(", ")
+                bad.join(", "),
+                if o.tangent_checks_pass {
+                    " (the central difference straddles the kink and gives the mean of its two sides, which is \
+                     why the checks alone passed)"
+                } else {
+                    ""
+                }
             );
             d.finding = "kink-neither-side".into();
             return with_dtemp(o, d);

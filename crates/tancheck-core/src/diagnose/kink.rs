@@ -87,6 +87,27 @@ pub struct KinkColumn {
     pub forward_error: f64,
     pub backward_error: f64,
     pub matches: Side,
+    /// The returned column lies on one side of the kink: its distance to the nearer one-sided
+    /// column is at most [`SIDE_MARGIN`] of the distance between the two sides (one scale for
+    /// all three, so a side that is zero does not skew it). The mean of the sides is not.
+    #[serde(default)]
+    pub on_a_side: bool,
+}
+
+/// At a kink, a column on one side of it is at most this share of the gap between the sides
+/// away from that side's one-sided derivative (a decade: the one-sided truncation at the
+/// probe's smallest step is far below a gap that makes a kink). A column about as far from
+/// both, their mean for one, is no side's derivative, whatever the complex step says: a twin
+/// that takes a branch that holds only at the point itself (a sign function that is 0 at 0)
+/// agrees with such a column.
+pub const SIDE_MARGIN: f64 = 0.1;
+
+/// Whether `returned` lies on one side of the kink between `forward` and `backward` (plain
+/// Euclidean distances, one scale): see [`KinkColumn::on_a_side`].
+pub fn on_a_side(returned: &[f64], forward: &[f64], backward: &[f64]) -> bool {
+    let dist = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
+    let near = dist(returned, forward).min(dist(returned, backward));
+    near <= SIDE_MARGIN * dist(forward, backward)
 }
 
 /// What the kink probe found.
@@ -172,7 +193,16 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
             let (fe, be) = (cf.column_errors[j], cb.column_errors[j]);
             let detected = kinked(&col_gaps[j]);
             let matches = Side::matched(fe, be, tol, detected);
-            KinkColumn { gaps: col_gaps[j].clone(), detected, forward_error: fe, backward_error: be, matches }
+            let cols = j * n..(j + 1) * n;
+            let on_a_side = on_a_side(&returned[cols.clone()], &f[cols.clone()], &b[cols]);
+            KinkColumn {
+                gaps: col_gaps[j].clone(),
+                detected,
+                forward_error: fe,
+                backward_error: be,
+                matches,
+                on_a_side,
+            }
         })
         .collect();
     let detected = kinked(&gaps) || columns.iter().any(|c| c.detected);

@@ -97,6 +97,10 @@ pub fn run(
     Ok(analyse(scheme, points, tol))
 }
 
+/// Points from the largest step on (two decades of the ladder) that must be within the
+/// tolerance for a study to be at its floor from the start.
+const FLOOR_POINTS: usize = 4;
+
 /// Classify a study from its points (ordered from large to small steps).
 pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
     let finite: Vec<&StudyPoint> = points.iter().filter(|p| p.error.is_finite()).collect();
@@ -143,8 +147,13 @@ pub fn analyse(scheme: Scheme, points: Vec<StudyPoint>, tol: f64) -> StepStudy {
     // No finite point at all (every perturbed stress NaN): nothing shows an order.
     let order_shown = !finite.is_empty() && shows_order(&finite[..=best_idx], scheme.order());
     // Already at the floor from the largest step on: a response linear over the ladder (no
-    // truncation to fall), every error within the tolerance.
-    let at_floor = !finite.is_empty() && finite[..=best_idx].iter().all(|p| p.error <= tol);
+    // truncation to fall), every error within the tolerance down to the best step, and over
+    // the first two decades of steps at least (four points). Why: a best error at the largest
+    // step alone, with errors growing as the step shrinks, is also what a branch boundary just
+    // beyond the point gives (the quotient mixes the two sides less as h grows), not a floor.
+    let at_floor = !finite.is_empty()
+        && finite[..=best_idx].iter().all(|p| p.error <= tol)
+        && finite.iter().take(FLOOR_POINTS).all(|p| p.error <= tol);
     let behaviour = if best_error <= tol && (order_shown || at_floor) {
         Behaviour::Converges
     } else if plateau.is_some() {
@@ -247,6 +256,19 @@ mod tests {
         assert_eq!(classify(std::slice::from_ref(&c), 1e-4), StepVerdict::Noise);
         assert_eq!(classify(&[f.clone(), c], 1e-4), StepVerdict::Truncation);
         assert_eq!(classify(&[f], 1e-12), StepVerdict::Noise);
+    }
+
+    // A branch boundary a little beyond the point: the forward quotient mixes the two sides
+    // in proportion d/h, so its error is smallest at the largest step and grows as h shrinks.
+    // Within the tolerance at the largest step only, that is no floor (the study used to call
+    // it converging on one point).
+    #[test]
+    fn an_error_growing_from_the_largest_step_is_not_convergence() {
+        let s = analyse(Scheme::Forward, pts(|h| (8e-5 * 1e-2 / h).min(0.95)), 1e-4);
+        assert_ne!(s.behaviour, Behaviour::Converges, "{s:?}");
+        // A linear response is at its floor from the largest step on: still converges.
+        let f = analyse(Scheme::Forward, pts(|h| 1e-16 / h), 1e-4);
+        assert_eq!(f.behaviour, Behaviour::Converges, "{f:?}");
     }
 
     // A routine whose perturbed stresses are all NaN leaves no finite point: the study says

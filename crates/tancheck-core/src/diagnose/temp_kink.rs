@@ -26,6 +26,8 @@ pub struct TempKink {
     pub forward_error: f64,
     pub backward_error: f64,
     pub matches: Side,
+    /// The returned ∂σ/∂T lies on one side of the kink ([`super::kink::on_a_side`]).
+    pub on_a_side: bool,
     /// The one-sided derivatives at the smallest step (routine form).
     pub forward: Vec<f64>,
     pub backward: Vec<f64>,
@@ -63,6 +65,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided], abs_floor: f64) -> TempKink 
         forward_error: fe,
         backward_error: be,
         matches,
+        on_a_side: super::kink::on_a_side(returned, f, b),
         forward: f.clone(),
         backward: b.clone(),
     }

@@ -32,7 +32,14 @@ fn plateau(e: f64) -> Vec<StepStudy> {
 }
 
 fn column(matches: Side, detected: bool, fe: f64, be: f64) -> KinkColumn {
-    KinkColumn { gaps: vec![0.26; 3], detected, forward_error: fe, backward_error: be, matches }
+    KinkColumn {
+        gaps: vec![0.26; 3],
+        detected,
+        forward_error: fe,
+        backward_error: be,
+        matches,
+        on_a_side: matches != Side::Neither,
+    }
 }
 
 /// A kink with per-column sides (6 columns 11 22 33 23 13 12).
@@ -151,6 +158,53 @@ fn rows() -> Vec<Row> {
         finding: "kink-neither-side",
         twin_unsafe: false,
         needs_causes: false,
+    });
+    // A bimodulus law σ = Et ε (ε ≥ 0), Ec ε (ε < 0), Et = 1000, Ec = 3000, at ε = 0 exactly,
+    // returning the mean 2000 (a sign function that is 0 at 0): the central difference
+    // straddles and gives the mean too, and the twin, on that sign's branch at the point,
+    // agrees exactly, so every check passed (call_check sends it here). Errors of the column
+    // against the sides: |2000 − 1000|/1000 = 1 forward, |2000 − 3000|/3000 = 1/3 backward.
+    // The mean is no side's derivative (found by a user-style sweep).
+    let mut mean = on_yield_cols();
+    mean[0] = column(Side::Neither, true, 1.0, 1.0 / 3.0);
+    rows.push(Row {
+        what: "the mean of the two sides at a kink, the complex step agreeing, every check passed",
+        observed: Observed {
+            kink: Some(kink(mean.clone(), Side::Neither)),
+            studies: consistent(),
+            complex: Some((1e-16, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+            failed_tol: f64::INFINITY,
+            tangent_checks_pass: true,
+            ..base()
+        },
+        pass: false,
+        finding: "kink-neither-side",
+        twin_unsafe: false,
+        needs_causes: false,
+    });
+    // 1D plasticity (E = 1000, Et = 47.62) unloaded by 4e-8 of the strain from the yield
+    // surface: elastic at the point, the returned tangent still plastic (off by 95 %). The
+    // forward study mixes the sides less as h grows: error 8e-5 at the largest step, growing
+    // as the step shrinks; the central study sits at the mean of the sides; Richardson at a
+    // moderate step straddles the boundary. The complex step (1000) is right: the tangent,
+    // not the twin, is wrong (found by a user-style sweep).
+    rows.push(Row {
+        what: "a wrong tangent just inside the elastic range, forward error growing as the step shrinks",
+        observed: Observed {
+            studies: vec![
+                study(Scheme::Central, 1e-6, |_| 0.48),
+                study(Scheme::Forward, 1e-4, |h| (8e-5 * 1e-2 / h).min(0.95)),
+            ],
+            complex: Some((0.952, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(0.5) }),
+            failed_tol: 1e-6,
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
     });
     // Every difference quotient NaN (a routine computing its stress from a tangent it was not
     // asked for, pre-filled with a signalling NaN): no derivative to compare with, and no
@@ -368,6 +422,7 @@ fn rows() -> Vec<Row> {
         forward_error: fe,
         backward_error: be,
         matches,
+        on_a_side: matches != Side::Neither,
         forward: vec![],
         backward: vec![],
     };
@@ -394,6 +449,18 @@ fn rows() -> Vec<Row> {
             None,
             true,
             "none",
+        ),
+        // E(T) with a slope that changes at a temperature the point sits on: the returned
+        // ∂σ/∂T is the mean of the sides' slopes (−0.0102 for −0.0100 and −0.0104), and so is
+        // the twin's, on a ramp that is 0 at the point: the complex step's agreement does not
+        // stand for the mean (found by a user-style sweep). Errors against the sides: 0.0002 /
+        // 0.0100 and 0.0002 / 0.0104.
+        (
+            "∂σ/∂T the mean of the sides at a kink in T, complex step agreeing",
+            t_kink(0.02, 0.0192, Side::Neither),
+            Some((0.0, 1e-10)),
+            false,
+            "dtemp",
         ),
         (
             "∂σ/∂T at a kink in T equal to neither side (the straddled half), complex step off",

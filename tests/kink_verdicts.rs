@@ -1,0 +1,156 @@
+//! Verdicts at and next to a branch boundary, through the command line, with routines that
+//! break the two easy readings of the evidence there (both found by a user-style sweep):
+//!
+//! - a tangent that is the mean of the two sides at a kink, which the straddling central
+//!   difference also gives, and which a twin on a branch that holds only at the point gives
+//!   too: every check passes, yet the tangent is no side's derivative (exit 1,
+//!   `kink-neither-side`); the correct routine still passes;
+//! - a tangent wrong by 95 % a hair inside the elastic range after plastic loading: the
+//!   forward study's error, smallest at its largest step and growing as the step shrinks,
+//!   is no convergence, and the complex step, which alone is right there, is not blamed
+//!   (exit 1, not TWIN's 4); the correct routine passes.
+//!
+//! Hand derivations: the bimodulus law σ11 = E_t ε11 (ε11 ≥ 0), E_c ε11 (ε11 < 0) has the
+//! one-sided derivatives E_t and E_c at ε11 = 0, their mean (E_t + E_c)/2 neither; the bar
+//! with E = 1000, σy = 1, H = 50 unloaded by 1e-10 after plastic loading is elastic at the
+//! end, dσ/dε = E = 1000, against the plastic E H / (E + H) = 47.6.
+
+use std::path::{Path, PathBuf};
+use std::process::Command;
+
+use serde_json::Value;
+use tancheck_testkit::libs::{build_examples, output_text, scratch};
+
+fn bimodulus() -> &'static Path {
+    build_examples("kink_bimodulus", &["c/bimodulus.c"])
+}
+
+fn bar() -> &'static Path {
+    build_examples("kink_bar", &["c/bar_1d.c"])
+}
+
+fn write(d: &Path, name: &str, text: String) -> PathBuf {
+    let p = d.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+/// The check's exit code, its JSON report and its text.
+fn check(manifest: &Path, flags: &[&str]) -> (Option<i32>, Value, String) {
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(manifest)
+        .args(flags)
+        .args(["--json", "-"])
+        .output()
+        .unwrap();
+    let v: Value = serde_json::from_slice(&o.stdout).unwrap_or(Value::Null);
+    (o.status.code(), v, output_text(&o))
+}
+
+/// A uniaxial bimodulus manifest (E_t 1000, E_c 3000) from ε11 = 1e-3 down to 0 exactly,
+/// held there by a zero increment, then into compression.
+fn on_the_kink(d: &Path, symbol: &str) -> PathBuf {
+    write(
+        d,
+        &format!("{symbol}.json"),
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "uniaxial", "states": 0,
+               "properties": [1000, 3000, 0.3] }},
+  "start": {{ "strain": [0.001], "stress": [1.0] }},
+  "path": {{ "increments": [ {{"dstrain": [-0.001, 0, 0, 0, 0, 0]}}, {{"dstrain": [0, 0, 0, 0, 0, 0]}},
+                             {{"dstrain": [-0.0005, 0, 0, 0, 0, 0]}} ] }} }}"#,
+            bimodulus().display()
+        ),
+    )
+}
+
+fn first_failure(v: &Value) -> (u64, String) {
+    let inc = v["increments"]
+        .as_array()
+        .unwrap()
+        .iter()
+        .find(|i| i["diagnosis"]["pass"] == false)
+        .unwrap_or_else(|| panic!("a failing increment: {v}"));
+    (inc["index"].as_u64().unwrap(), inc["diagnosis"]["finding"].as_str().unwrap().to_string())
+}
+
+#[test]
+fn the_mean_of_the_two_sides_at_a_kink_fails_even_where_every_check_agrees_with_it() {
+    let d = scratch("kink-mean");
+    // Twin on the mean's branch: central and complex step both agree with the mean.
+    let m = on_the_kink(&d, "c_bimodulus_mean_branch");
+    let (code, v, t) = check(&m, &[]);
+    assert_eq!(code, Some(1), "{t}");
+    assert_eq!(first_failure(&v), (1, "kink-neither-side".to_string()), "{t}");
+    // Without the complex step (as for a routine without a twin): the central difference
+    // alone agrees with the mean.
+    let m = on_the_kink(&d, "c_bimodulus_average");
+    let (code, v, t) = check(&m, &["--scheme", "central"]);
+    assert_eq!(code, Some(1), "{t}");
+    assert_eq!(first_failure(&v), (1, "kink-neither-side".to_string()), "{t}");
+    // The correct routine returns the tension side's derivative at the kink: it passes with
+    // and without the complex step.
+    let m = on_the_kink(&d, "c_bimodulus");
+    for flags in [&[][..], &["--scheme", "central"][..]] {
+        let (code, _, t) = check(&m, flags);
+        assert_eq!(code, Some(0), "{flags:?}: {t}");
+    }
+}
+
+#[test]
+fn a_wrong_tangent_a_hair_inside_the_elastic_range_fails_and_the_twin_is_not_blamed() {
+    let d = scratch("kink-sticky");
+    for back in ["1e-10", "3e-11", "1e-13"] {
+        for (symbol, want) in [("c_bar_sticky", 1), ("c_bar_plastic", 0)] {
+            let m = write(
+                &d,
+                &format!("{symbol}-{back}.json"),
+                format!(
+                    r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "uniaxial", "states": 2,
+               "properties": [1000, 1.0, 50] }},
+  "path": {{ "increments": [ {{"dstrain": [0.0025, 0, 0, 0, 0, 0]}}, {{"dstrain": [-{back}, 0, 0, 0, 0, 0]}} ] }} }}"#,
+                    bar().display()
+                ),
+            );
+            let (code, v, t) = check(&m, &[]);
+            assert_eq!(code, Some(want), "{symbol}, unloaded by {back}: {t}");
+            if want == 1 {
+                let (index, finding) = first_failure(&v);
+                assert_eq!(index, 2, "{t}");
+                assert_ne!(finding, "twin-not-complex-step-safe", "{t}");
+            }
+        }
+    }
+}
+
+#[test]
+fn a_temperature_derivative_that_is_the_mean_of_the_sides_fails() {
+    // E(T) = E0 (1 − a <T − T0>) with E0 1000, a 0.002, T0 100, at ε = 1e-3: a zero strain
+    // increment from 90 to 100 (T0 exactly), held there, then on to 110. The right side's
+    // dσ/dT at T0 is −a E0 ε = −2e-3, the left side's 0; the flawed routine returns the mean
+    // −1e-3, and its twin's ramp agrees.
+    let d = scratch("kink-thermal");
+    for (symbol, want) in [("c_bar_thermal_mean", 1), ("c_bar_thermal", 0)] {
+        let m = write(
+            &d,
+            &format!("{symbol}.json"),
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "uniaxial", "states": 0,
+               "properties": [1000, 0.002, 100] }},
+  "start": {{ "strain": [0.001], "temperature": 90 }},
+  "path": {{ "increments": [ {{"dstrain": [0, 0, 0, 0, 0, 0], "dtemp": 10}}, {{"dstrain": [0, 0, 0, 0, 0, 0], "dtemp": 0}},
+                             {{"dstrain": [0, 0, 0, 0, 0, 0], "dtemp": 10}} ] }} }}"#,
+                bar().display()
+            ),
+        );
+        for flags in [&[][..], &["--scheme", "central"][..]] {
+            let (code, v, t) = check(&m, flags);
+            assert_eq!(code, Some(want), "{symbol} {flags:?}: {t}");
+            if want == 1 {
+                let (index, finding) = first_failure(&v);
+                assert_eq!((index, finding.as_str()), (1, "dtemp"), "{t}");
+            }
+        }
+    }
+}
