@@ -8,19 +8,38 @@ use anyhow::{bail, Context, Result};
 
 use super::write_atomic;
 
-/// Fail early (before a routine is run) when the folder of an output file does not exist, so
-/// that no work is lost to a mistyped path.
+/// Fail early (before a routine is run) when an output file could not be written at the
+/// end, so that no work is lost to a mistyped path: its folder is missing or is a file, it
+/// is a folder itself, or the report's temporary file cannot be made beside it (a read-only
+/// folder or file system). A device or pipe is written in place and needs none of that.
 pub fn check_output(path: Option<&Path>, option: &str) -> Result<()> {
     let Some(p) = path else { return Ok(()) };
     if p.as_os_str().is_empty() {
         bail!("{option} needs a file name");
     }
-    let dir = p.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    let target = match super::destination(p) {
+        super::Destination::Stream(_) => return Ok(()),
+        super::Destination::Replace(t) => t,
+    };
+    let dir = target.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
+    if dir.exists() && !dir.is_dir() {
+        bail!("{option} {}: {} is a file, not a folder", p.display(), dir.display());
+    }
     if !dir.is_dir() {
         bail!("{option} {}: the folder {} does not exist", p.display(), dir.display());
     }
-    if p.is_dir() {
+    if target.is_dir() {
         bail!("{option} {}: is a folder, not a file", p.display());
+    }
+    // The temporary name the report is written under, made and removed at once.
+    let probe = super::temporary_name(&target);
+    match std::fs::OpenOptions::new().write(true).create_new(true).open(&probe) {
+        Ok(_) => {
+            let _ = std::fs::remove_file(&probe);
+        }
+        // Another run of this process's id left it: the folder is writable.
+        Err(e) if e.kind() == std::io::ErrorKind::AlreadyExists => {}
+        Err(e) => bail!("{option} {}: cannot write in the folder {} ({e})", p.display(), dir.display()),
     }
     Ok(())
 }
@@ -35,4 +54,38 @@ pub fn write_report(
     let Some(p) = path else { return Ok(()) };
     let text = text().with_context(|| format!("rendering {what}"))?;
     write_atomic(p, text.as_bytes()).with_context(|| format!("writing {what} to {}", p.display()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn an_output_that_could_not_be_written_is_refused_before_the_work() {
+        let d = std::env::temp_dir().join(format!("tancheck-files-{}", std::process::id()));
+        std::fs::create_dir_all(&d).unwrap();
+        let file = d.join("c.json");
+        std::fs::write(&file, "{}").unwrap();
+        // A file where the folder should be: named as a file, not as a missing folder.
+        let e = check_output(Some(&file.join("x.json")), "--json").unwrap_err().to_string();
+        assert!(e.contains("is a file, not a folder"), "{e}");
+        // A missing folder, and a folder given as the file.
+        let e = check_output(Some(&d.join("no/x.json")), "--html").unwrap_err().to_string();
+        assert!(e.contains("does not exist"), "{e}");
+        let e = check_output(Some(&d), "--junit").unwrap_err().to_string();
+        assert!(e.contains("is a folder"), "{e}");
+        // A writable folder passes and is left as it was; so does a device, written in place.
+        check_output(Some(&d.join("r.json")), "--json").unwrap();
+        assert_eq!(std::fs::read_dir(&d).unwrap().count(), 1);
+        check_output(Some(Path::new("/dev/null")), "--json").unwrap();
+        // A folder nothing can be created in (procfs refuses new files, even to root).
+        #[cfg(target_os = "linux")]
+        {
+            let e = check_output(Some(Path::new("/proc/tancheck-report.json")), "--json")
+                .unwrap_err()
+                .to_string();
+            assert!(e.contains("cannot write in the folder /proc"), "{e}");
+        }
+        std::fs::remove_dir_all(&d).unwrap();
+    }
 }

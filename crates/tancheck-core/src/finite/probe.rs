@@ -206,7 +206,13 @@ impl Findings {
             summary: if passed {
                 format!("{what} (largest relative difference {worst:.1e})")
             } else {
-                format!("NOT objective: {what} fails by {worst:.2e} of the stress scale")
+                if worst.is_finite() {
+                    // The largest of the stress, state and energy differences, each relative
+                    // to its own size: the details say which.
+                    format!("NOT objective: {what} fails; largest relative difference {worst:.2e}")
+                } else {
+                    format!("NOT objective: {what} fails; a call failed")
+                }
             },
             details,
         }
