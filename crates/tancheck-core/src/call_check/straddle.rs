@@ -1,0 +1,101 @@
+//! A kink at the point that the central difference straddles: the central stencil's two
+//! calls and the base call give both one-sided quotients of a column for free; a returned
+//! column away from both is confirmed with two calls at a tenth of the step (see
+//! [`super::judge`]).
+
+use super::Measurement;
+use crate::driver::{Direction, Driver};
+use crate::routine::Caller;
+use crate::schemes::Scheme;
+use crate::settings::Settings;
+
+/// A returned column this far (relative) from both one-sided quotients of the central
+/// difference's calls is no one side's derivative: the level of the kink probe's gaps
+/// ([`crate::diagnose::kink::GAP_LEVEL`]), above a smooth response's one-sided truncation at
+/// the central step (about 1e-5 for a relative curvature of one).
+pub(super) const STRADDLE_LEVEL: f64 = crate::diagnose::kink::GAP_LEVEL;
+
+/// The bit of [`Measurement::straddled`] for the ∂σ/∂T column.
+pub(super) const TEMPERATURE_BIT: usize = 6;
+
+/// The relative distance of the returned column `r` from the nearer of the one-sided
+/// quotients (plus − base)/h and (base − minus)/h, made from a central difference's two calls
+/// and the base call (no call of its own). On a smooth response both quotients are within the
+/// one-sided truncation of the derivative; at a kink at the point they are its two sides, and
+/// their mean, which the central difference gives, is neither.
+pub(super) fn one_sided_distance(
+    base: &[f64],
+    plus: &[f64],
+    minus: &[f64],
+    r: &[f64],
+    h: f64,
+    floor: f64,
+) -> f64 {
+    let (mut df, mut db, mut nf, mut nb) = (0.0, 0.0, 0.0, 0.0);
+    for i in 0..r.len() {
+        let f = (plus[i] - base[i]) / h;
+        let b = (base[i] - minus[i]) / h;
+        df += (r[i] - f) * (r[i] - f);
+        db += (r[i] - b) * (r[i] - b);
+        nf += f * f;
+        nb += b * b;
+    }
+    let d = df.min(db).sqrt() / nf.max(nb).sqrt().max(floor).max(f64::MIN_POSITIVE);
+    if d.is_nan() {
+        0.0
+    } else {
+        d
+    }
+}
+
+/// Whether a kink sits at the point in a column the central difference straddled: the same
+/// distance at a tenth of the step (two calls per straddled column) does not shrink as a
+/// one-sided truncation would. Why 0.3: truncation falls tenfold, a kink's gap not at all;
+/// as the kink probe's rule ([`crate::diagnose::kink`]). Returns (some strain column, the
+/// ∂σ/∂T column).
+pub(super) fn kink_straddled(
+    me: &Measurement,
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    settings: &Settings,
+) -> (bool, bool) {
+    let n = me.n;
+    let Some(central) = me.measured.iter().find(|m| m.scheme == Scheme::Central && m.outcome.is_none())
+    else {
+        return (false, false);
+    };
+    let floor = settings.entry_floor * me.returned[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt();
+    let ht = settings.central.rel_step * driver.temp_scale(settings.temp_floor);
+    let mut kinked = (false, false);
+    for j in (0..=TEMPERATURE_BIT).filter(|&j| me.straddled & (1 << j) != 0) {
+        let (dir, h, returned, floor) = if j == TEMPERATURE_BIT {
+            match &me.returned_dtemp {
+                Some(ret) => (Direction::Temperature, 0.1 * ht, &ret[..n], me.dtemp_abs_floor),
+                None => continue,
+            }
+        } else {
+            (Direction::Strain(j), 0.1 * central.h, &me.returned[j * n..(j + 1) * n], floor)
+        };
+        let calls =
+            driver.perturbed_call(caller, dir, h).and_then(|()| driver.perturbed_call(caller, dir, -h));
+        if calls.is_err() {
+            continue;
+        }
+        let d = one_sided_distance(
+            &driver.base.stress[..n],
+            &driver.plus.stress[..n],
+            &driver.minus.stress[..n],
+            returned,
+            h,
+            floor,
+        );
+        if d > STRADDLE_LEVEL && d > 0.3 * me.straddle_distance[j] {
+            if j == TEMPERATURE_BIT {
+                kinked.1 = true;
+            } else {
+                kinked.0 = true;
+            }
+        }
+    }
+    kinked
+}
