@@ -22,7 +22,8 @@
 //! iterations.
 //!
 //! The order of an increment is its last observed order, from its three smallest usable
-//! residuals: the asymptotic rate. Earlier orders come from iterates far from the solution
+//! residuals: the asymptotic rate; or, when the solve went on below the rounding floor and
+//! the step there shows a higher order, that one (rounding can only lower it). Earlier orders come from iterates far from the solution
 //! (often on the other side of the elastic–plastic kink) and scatter widely, above 2 as well
 //! as below, with either tangent; they are listed in the details but not judged.
 //!
@@ -63,6 +64,10 @@ pub struct IncrementSolve {
     pub usable: Vec<f64>,
     /// Observed orders from the usable residuals.
     pub orders: Vec<f64>,
+    /// The order of the last step, to the first residual below the rounding floor (when the
+    /// solve went below it and the usable residuals give an order): rounding can only make
+    /// that residual larger, so this order is never higher than the true one.
+    pub tail_order: Option<f64>,
 }
 
 impl IncrementSolve {
@@ -71,9 +76,12 @@ impl IncrementSolve {
         self.log.residuals.len().saturating_sub(1)
     }
     /// The order of the increment: the last observed one (the asymptotic rate), when there
-    /// is one.
+    /// is one, or the order of the step below the rounding floor when that is higher (the
+    /// residuals of an exact tangent can settle late: [9.7e-1, 9.7e-2, 4.2e-2, 2.6e-4,
+    /// 3.1e-7, 3.0e-14] has the last usable order 1.33 and the final one 2.39).
     pub fn order(&self) -> Option<f64> {
-        self.orders.last().copied()
+        let last = self.orders.last().copied()?;
+        Some(self.tail_order.map_or(last, |t| last.max(t)))
     }
     /// Converged with the routine's own tangent.
     pub fn converged(&self) -> bool {
@@ -128,10 +136,22 @@ pub fn study(
         };
         let orders =
             SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
-        out.push(IncrementSolve { increment: k, state_changed, log, failure, usable, orders });
+        let tail_order =
+            if log.numerical_fallback { None } else { tail_order(&log.residuals, FLOOR * scale) };
+        out.push(IncrementSolve { increment: k, state_changed, log, failure, usable, orders, tail_order });
         Ok(())
     })?;
     Ok(out)
+}
+
+/// The order of the step from the last residual above `floor` to the first one below it,
+/// with the residual before them: `None` without such a step.
+fn tail_order(r: &[f64], floor: f64) -> Option<f64> {
+    let last = r.iter().rposition(|&x| x > floor)?;
+    let below = *r.get(last + 1)?;
+    let (a, b) = (r[last.checked_sub(1)?], r[last]);
+    let p = (below / b).ln() / (b / a).ln();
+    (below > 0.0 && b < a && p.is_finite()).then_some(p)
 }
 
 fn list(v: &[f64], prec: usize) -> String {
@@ -172,6 +192,9 @@ impl Probe for NewtonRate {
                 if !s.orders.is_empty() {
                     let o: Vec<String> = s.orders.iter().map(|p| format!("{p:.2}")).collect();
                     line.push_str(&format!(", orders [{}]", o.join(", ")));
+                    if let Some(t) = s.tail_order {
+                        line.push_str(&format!(", {t:.2} to the residual below the rounding floor"));
+                    }
                 }
                 if s.log.numerical_fallback {
                     line.push_str(", the routine's tangent did not converge (numerical fallback)");
@@ -249,5 +272,42 @@ impl Probe for NewtonRate {
             })
             .collect();
         Ok(r)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn solve(residuals: &[f64], floor: f64) -> IncrementSolve {
+        let usable: Vec<f64> = residuals.iter().cloned().filter(|&r| r > floor).collect();
+        let orders =
+            SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
+        IncrementSolve {
+            increment: 1,
+            state_changed: true,
+            log: SolveLog { residuals: residuals.to_vec(), converged: true, numerical_fallback: false },
+            failure: None,
+            usable,
+            orders,
+            tail_order: tail_order(residuals, floor),
+        }
+    }
+
+    // An exact tangent settling late (a softening damage law, measured by a user-style
+    // sweep): the last usable order is 1.33, the step below the floor shows 2.39; the
+    // increment's order is the higher (orders by the formula of the module documentation).
+    #[test]
+    fn a_late_quadratic_step_below_the_floor_counts() {
+        let s = solve(&[9.73e-1, 9.68e-2, 4.18e-2, 2.61e-4, 3.05e-7, 2.99e-14], 1e-10);
+        assert!((s.orders.last().unwrap() - 1.33).abs() < 0.01, "{:?}", s.orders);
+        assert!((s.order().unwrap() - 2.39).abs() < 0.01, "{:?}", s.order());
+        // Linear convergence (rate 0.1, a continuum tangent) stays at order 1 below the floor.
+        let lin: Vec<f64> = (0..14).map(|k| 10f64.powi(-k)).collect();
+        let s = solve(&lin, 1e-10);
+        assert!((s.order().unwrap() - 1.0).abs() < 1e-6, "{:?}", s.order());
+        // Two usable residuals give no order, whatever the step below the floor shows.
+        let s = solve(&[1.0, 1e-3, 1e-15], 1e-10);
+        assert_eq!(s.order(), None);
     }
 }
