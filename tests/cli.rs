@@ -307,14 +307,45 @@ fn killing_tancheck_never_leaves_a_partial_report() {
 fn a_run_replaces_an_earlier_report_at_once() {
     let d = scratch("stale");
     let json = d.join("report.json");
-    std::fs::write(&json, r#"{ "verdict": "pass", "from": "yesterday" }"#).unwrap();
-    // A run that fails on bad input leaves the marker, never yesterday's verdict.
+    let yesterday = r#"{ "verdict": "pass", "from": "yesterday" }"#;
+    std::fs::write(&json, yesterday).unwrap();
+    // A run under way holds the marker in place of the earlier report (a check of 8,000
+    // increments keeps it under way long enough to be seen; its report then replaces it).
+    let sleepy = manifest(
+        &d,
+        "sleepy.json",
+        r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
+    );
+    let mut child = bin()
+        .arg("check")
+        .arg(&sleepy)
+        .args(["--path", "tension-shear:4e-3:4000:4000", "-q", "--json"])
+        .arg(&json)
+        .stdout(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let mut seen = false;
+    for _ in 0..200 {
+        let v: serde_json::Value =
+            serde_json::from_slice(&std::fs::read(&json).unwrap_or_default()).unwrap_or_default();
+        if v["verdict"] == "incomplete" {
+            seen = true;
+            break;
+        }
+        if v["verdict"] == "pass" && v["from"].is_null() {
+            break;
+        }
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    let _ = child.wait();
+    assert!(seen, "the marker was never seen in place of yesterday's report");
+    // A run that fails on bad input loses nothing: the earlier report is put back.
+    std::fs::write(&json, yesterday).unwrap();
     let m =
         manifest(&d, "m.json", r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [1] } }"#);
     let o = bin().arg("check").arg(&m).arg("--json").arg(&json).output().unwrap();
     assert_eq!(o.status.code(), Some(2), "{}", text(&o));
-    let v: serde_json::Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
-    assert_eq!(v["verdict"], "incomplete", "{v}");
+    assert_eq!(std::fs::read_to_string(&json).unwrap(), yesterday);
 }
 
 #[test]

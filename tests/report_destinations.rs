@@ -1,7 +1,9 @@
 //! A report written to something that is not a plain file stays where it was asked to go: a
 //! named pipe (as `/dev/null` or a terminal, a file a rename would replace by a plain file)
 //! gets the report written into it and stays a pipe, and a symbolic link stays a link, the
-//! report going to the file it names.
+//! report going to the file it names. A run that ends on bad input (exit 2) loses nothing: the
+//! earlier report is put back, a report file that names an input or another report's file is
+//! refused before anything is written.
 
 use std::io::Read;
 use std::path::Path;
@@ -65,6 +67,66 @@ fn a_symbolic_link_stays_a_link_and_its_file_gets_the_report() {
         let text = std::fs::read_to_string(&real).unwrap();
         assert!(text.len() > 100 && text != "old", "{opt}: {text}");
     }
+}
+
+#[test]
+fn bad_input_keeps_the_earlier_report() {
+    let d = scratch("keep");
+    let json = d.join("r.json");
+    let o = check(&d, &["--json", json.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(0), "{}", String::from_utf8_lossy(&o.stderr));
+    let earlier = std::fs::read(&json).unwrap();
+    // The manifest is read after the report's marker is written: the marker goes again.
+    let bad = d.join("bad.json");
+    std::fs::write(&bad, "{ \"routine\": { \"model\": \"j2\", \"colour\": 1 } }").unwrap();
+    for (manifest, extra) in [(&bad, &[][..]), (&d.join("m.json"), &["--scheme", "sideways"][..])] {
+        let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+            .arg("check")
+            .arg(manifest)
+            .args(["--json", json.to_str().unwrap()])
+            .args(extra)
+            .output()
+            .unwrap();
+        assert_eq!(o.status.code(), Some(2), "{}", String::from_utf8_lossy(&o.stderr));
+        assert!(std::fs::read(&json).unwrap() == earlier, "{extra:?}: the earlier report was not put back");
+    }
+    // Without an earlier report, no marker is left claiming a run that is still going.
+    let fresh = d.join("fresh.json");
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(&bad)
+        .args(["--json", fresh.to_str().unwrap()])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2));
+    assert!(!fresh.exists(), "a marker was left behind");
+}
+
+#[test]
+fn a_report_may_not_overwrite_an_input_or_another_report() {
+    let d = scratch("inputs");
+    let m = d.join("m.json");
+    std::fs::write(&m, MANIFEST).unwrap();
+    let run = |args: &[&str]| Command::new(env!("CARGO_BIN_EXE_tancheck")).args(args).output().unwrap();
+    let ms = m.to_str().unwrap();
+    for opt in ["--json", "--html", "--junit"] {
+        let o = run(&["check", ms, opt, ms]);
+        assert_eq!(o.status.code(), Some(2), "{opt}");
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert!(err.contains("an input of this run"), "{opt}: {err}");
+        assert_eq!(std::fs::read_to_string(&m).unwrap(), MANIFEST, "{opt}: the manifest was overwritten");
+    }
+    // A probe suite is an input too; and two reports in one file.
+    let suite = d.join("s.json");
+    std::fs::write(&suite, r#"{ "probes": [ { "probe": "symmetry" } ] }"#).unwrap();
+    let o = run(&["probe", ms, "--suite", suite.to_str().unwrap(), "--json", suite.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(std::fs::read_to_string(&suite).unwrap().contains("symmetry"));
+    let same = d.join("same.out");
+    let o = run(&["check", ms, "--json", same.to_str().unwrap(), "--html", same.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2));
+    assert!(String::from_utf8_lossy(&o.stderr).contains("name the same file"));
+    assert!(!same.exists());
 }
 
 /// O_NONBLOCK on Linux (asm-generic/fcntl.h): open a pipe's reading end without waiting.

@@ -214,13 +214,18 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
         Command::Completions(a) => crate::cmd_packaging::completions(&a, command()),
         Command::Man(a) => crate::cmd_packaging::man(&a, command()),
     };
-    match result {
+    let code = match result {
         Ok(code) => code,
         Err(e) => {
             eprintln!("tancheck: {e:#}");
             exit::BAD_INPUT
         }
+    };
+    // Bad input: the report file gets back what it held before this run's marker.
+    if code == exit::BAD_INPUT {
+        crate::survive::restore_earlier_report();
     }
+    code
 }
 
 fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
@@ -232,8 +237,16 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
     Ok((scheme, value))
 }
 
+/// A `--path` argument that names a file: an input of the run.
+fn path_file(path: &Option<String>) -> Option<&std::path::Path> {
+    path.as_deref().map(std::path::Path::new).filter(|p| p.is_file())
+}
+
 fn cmd_check(a: CheckArgs) -> Result<i32> {
     a.output.prepare()?;
+    let inputs: Vec<&std::path::Path> =
+        [Some(a.manifest.as_path()), path_file(&a.path)].into_iter().flatten().collect();
+    a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output);
     }
@@ -343,6 +356,9 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     a.output.prepare()?;
+    let inputs: Vec<&std::path::Path> =
+        [Some(a.manifest.as_path()), a.suite.as_deref(), path_file(&a.path)].into_iter().flatten().collect();
+    a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::cmd_finite::probe(&a.manifest, a.json.as_deref(), &a.output);
     }

@@ -58,6 +58,9 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
 /// `tancheck bisect`.
 pub fn run(a: &BisectArgs) -> Result<i32> {
     a.run.output.prepare()?;
+    let path = a.path.as_deref().map(std::path::Path::new).filter(|p| p.is_file());
+    let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path].into_iter().flatten().collect();
+    a.run.output.guard(a.run.json.as_deref(), &inputs)?;
     crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     crate::survive::set_routine(a.run.json.as_deref(), &crate::session::routine_name(&m));

@@ -56,6 +56,7 @@ pub fn budget_of(a: &ExploreArgs) -> Budget {
 /// `tancheck explore`.
 pub fn run(a: &ExploreArgs) -> Result<i32> {
     a.run.output.prepare()?;
+    a.run.output.guard(a.run.json.as_deref(), &[a.manifest.as_path()])?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         bail!("{}: explore takes point routines; this manifest is a finite-strain one", a.manifest.display());
     }

@@ -104,6 +104,8 @@ fn is_incomplete(text: &str) -> bool {
 
 pub fn run(a: &MergeArgs) -> Result<i32> {
     a.output.prepare()?;
+    let inputs: Vec<&std::path::Path> = a.partials.iter().map(|p| p.as_path()).collect();
+    a.output.guard(a.json.as_deref(), &inputs)?;
     let mut parts = Vec::new();
     for f in &a.partials {
         let text = std::fs::read_to_string(f).with_context(|| format!("{}: cannot read", f.display()))?;

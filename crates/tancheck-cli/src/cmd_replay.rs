@@ -235,6 +235,7 @@ pub fn replay_file(file: &FsPath, walk: bool) -> Result<ReplayReport, String> {
 
 /// `tancheck replay`.
 pub fn run(a: &ReplayArgs) -> Result<i32> {
+    crate::report::files::distinct(&[("--json", a.json.as_deref())], &[a.case.as_path()])?;
     crate::survive::begin_report(a.json.as_deref(), &a.case.display().to_string())?;
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     crate::survive::checking(true);

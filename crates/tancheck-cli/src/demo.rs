@@ -239,6 +239,7 @@ fn build(dir: &FsPath, name: &str, sources: &[(&str, &str)]) -> Result<PathBuf> 
 /// checks go to the reporters (`--json`, `--html`, `--junit`, the terminal).
 pub fn run(a: &DemoArgs) -> Result<i32> {
     a.output.prepare()?;
+    a.output.guard(a.json.as_deref(), &[])?;
     // With the JSON on standard output (or --quiet), the builds' progress and the lines the
     // block and finite-strain scenarios print go to standard error.
     let json_on_stdout = a.json.as_deref().is_some_and(crate::report::json::Json::to_stdout);

@@ -225,6 +225,7 @@ pub fn run(verbose: bool) -> Result<i32> {
 /// Run the zoo and report its rows to the terminal and, when asked, as JSON.
 pub fn run_with(output: &crate::session::OutputArgs, json: Option<&std::path::Path>) -> Result<i32> {
     output.prepare()?;
+    output.guard(json, &[])?;
     let report = rows_of_zoo(output)?;
     let mut reporters = crate::session::reporters(output, json);
     reporters.selftest(&report)?;

@@ -54,6 +54,15 @@ impl OutputArgs {
         crate::report::files::check_output(self.junit.as_deref(), "--junit")
     }
 
+    /// Before anything is written: every report file (`json`, `--html`, `--junit`) is a file of
+    /// its own, and none is one of the run's `inputs` (a manifest, suite, path file or case):
+    /// a report written there would overwrite it (exit 2, naming both).
+    pub fn guard(&self, json: Option<&std::path::Path>, inputs: &[&std::path::Path]) -> anyhow::Result<()> {
+        let outputs =
+            [("--json", json), ("--html", self.html.as_deref()), ("--junit", self.junit.as_deref())];
+        crate::report::files::distinct(&outputs, inputs)
+    }
+
     /// Whether progress may be drawn (on standard error, and only when it is a terminal).
     pub fn shows_progress(&self) -> bool {
         !self.quiet

@@ -173,6 +173,32 @@ fn name_routine(json: Option<&Path>, routine: &str, marker: bool) -> Result<()> 
     Ok(())
 }
 
+/// The report a marker replaced, kept until the run ends: a run that ends on bad input
+/// (exit 2) puts it back, so that a mistyped option loses nothing.
+struct Earlier {
+    path: std::path::PathBuf,
+    /// The earlier file's bytes; `None` when there was none.
+    previous: Option<Vec<u8>>,
+    marker: Vec<u8>,
+}
+
+static EARLIER: std::sync::Mutex<Option<Earlier>> = std::sync::Mutex::new(None);
+
+/// After a run that ended on bad input (exit 2): where the report file still holds this run's
+/// "incomplete" marker (nothing was written after it), put back what was there before (or
+/// remove the marker when there was nothing). The marker would say the run is still going
+/// or was killed, and the earlier report would be lost.
+pub fn restore_earlier_report() {
+    let Some(e) = EARLIER.lock().unwrap_or_else(|p| p.into_inner()).take() else { return };
+    if std::fs::read(&e.path).ok().as_deref() != Some(e.marker.as_slice()) {
+        return;
+    }
+    let _ = match &e.previous {
+        Some(bytes) => crate::report::write_atomic(&e.path, bytes),
+        None => std::fs::remove_file(&e.path),
+    };
+}
+
 fn write_marker(p: &Path, routine: &str) -> Result<()> {
     {
         {
@@ -189,8 +215,12 @@ fn write_marker(p: &Path, routine: &str) -> Result<()> {
             });
             let mut text = serde_json::to_vec_pretty(&marker)?;
             text.push(b'\n');
+            let previous =
+                std::fs::metadata(p).ok().filter(|m| m.is_file()).and_then(|_| std::fs::read(p).ok());
             crate::report::write_atomic(p, &text)
                 .with_context(|| format!("replacing the report {} at the start of the run", p.display()))?;
+            *EARLIER.lock().unwrap_or_else(|e| e.into_inner()) =
+                Some(Earlier { path: p.to_path_buf(), previous, marker: text });
         }
     }
     Ok(())

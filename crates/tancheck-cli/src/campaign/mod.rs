@@ -98,6 +98,7 @@ pub fn slurm_shard() -> Result<Option<ShardInfo>> {
 /// Run the command; returns the exit code.
 pub fn run(a: &CampaignArgs) -> Result<i32> {
     a.output.prepare()?;
+    a.output.guard(a.json.as_deref(), &[a.campaign.as_path()])?;
     if let Some(p) = a.json.as_deref().filter(|p| p.as_os_str() != "-") {
         crate::report::files::check_output(Some(p), "--json")?;
     }

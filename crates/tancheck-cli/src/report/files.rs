@@ -44,6 +44,43 @@ pub fn check_output(path: Option<&Path>, option: &str) -> Result<()> {
     Ok(())
 }
 
+/// The file a report at `path` would replace, as one name for one file: the canonical path
+/// of the file, or of its folder joined with its name when it does not exist yet; `None` for
+/// standard output and for a device or pipe (written in place, shared harmlessly).
+fn identity(path: &Path) -> Option<std::path::PathBuf> {
+    if path.as_os_str() == "-" {
+        return None;
+    }
+    match super::destination(path) {
+        super::Destination::Stream(_) => None,
+        super::Destination::Replace(t) => std::fs::canonicalize(&t).ok().or_else(|| {
+            let dir = t.parent().filter(|d| !d.as_os_str().is_empty()).unwrap_or(Path::new("."));
+            Some(std::fs::canonicalize(dir).ok()?.join(t.file_name()?))
+        }),
+    }
+}
+
+/// Every report file given in `outputs` (option, path) names a file of its own, and none
+/// names one of `inputs`: otherwise one report would overwrite another, or the run's own
+/// input, and it is refused before anything is written.
+pub fn distinct(outputs: &[(&str, Option<&Path>)], inputs: &[&Path]) -> Result<()> {
+    let named: Vec<(&str, &Path, std::path::PathBuf)> =
+        outputs.iter().filter_map(|&(o, p)| p.and_then(|p| identity(p).map(|id| (o, p, id)))).collect();
+    for (k, (o, p, id)) in named.iter().enumerate() {
+        if let Some((o2, _, _)) = named[..k].iter().find(|(_, _, other)| other == id) {
+            bail!("{o2} and {o} name the same file {}: each report needs a file of its own", p.display());
+        }
+        if let Some(input) = inputs.iter().find(|i| std::fs::canonicalize(i).is_ok_and(|c| &c == id)) {
+            bail!(
+                "{o} {}: is {}, an input of this run; the report would overwrite it",
+                p.display(),
+                input.display()
+            );
+        }
+    }
+    Ok(())
+}
+
 /// Write `text` to `path` (atomically) when a path was given; `what` names the report in an
 /// error, e.g. "the HTML report".
 pub fn write_report(
