@@ -259,6 +259,9 @@ fn probe_junit_has_a_case_per_probe() {
     let cs = cases(&root);
     let newton = cs.iter().find(|c| c.attrs["name"] == "newton").expect("a newton case");
     assert!(failure_message(newton).is_some_and(|m| m.contains("order")), "{xml}");
+    // A probe's finding is a failure typed by its probe (a routine fault would be an error).
+    let failure = newton.children.iter().find(|c| c.name == "failure").unwrap();
+    assert_eq!(failure.attrs["type"], "newton-finding", "{xml}");
     let symmetry = cs.iter().find(|c| c.attrs["name"] == "symmetry").expect("a symmetry case");
     assert!(failure_message(symmetry).is_none(), "{xml}");
 }

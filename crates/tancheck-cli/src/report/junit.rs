@@ -145,11 +145,22 @@ pub fn probe_junit<'a>(reports: impl IntoIterator<Item = &'a SuiteReport>) -> io
                     s.set_message(p.summary.as_str());
                     s
                 }
-                ProbeStatus::Fail => failure(
+                // A routine fault is an error, as in a check's report; a finding is a failure
+                // typed by its probe.
+                ProbeStatus::Fail if p.fault => failure(
                     format!("probe {}: {}", p.probe, p.summary),
-                    NonSuccessKind::Failure,
+                    NonSuccessKind::Error,
                     (!p.details.is_empty()).then(|| p.details.join("\n")),
                 ),
+                ProbeStatus::Fail => {
+                    let mut s = failure(
+                        format!("probe {}: {}", p.probe, p.summary),
+                        NonSuccessKind::Failure,
+                        (!p.details.is_empty()).then(|| p.details.join("\n")),
+                    );
+                    s.set_type(format!("{}-finding", p.probe));
+                    s
+                }
             };
             let mut case = TestCase::new(p.probe.as_str(), status);
             case.set_classname(rep.routine.as_str());

@@ -127,6 +127,10 @@ pub struct ProbeResult {
     /// iteration, the acoustic determinant per increment, the energies per increment).
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub series: Vec<ProbeSeries>,
+    /// The probe failed because the routine faulted (crashed, returned a failure status, was
+    /// flagged by the memory guards), not on a finding about its results.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub fault: bool,
 }
 
 /// One curve a probe measured: points (x, y) with both axes named.
@@ -153,6 +157,7 @@ impl ProbeResult {
             increment: None,
             details: Vec::new(),
             series: Vec::new(),
+            fault: false,
         }
     }
 
@@ -315,6 +320,7 @@ pub fn faulted(probe: &str, at: usize, f: &Fault) -> ProbeResult {
     let mut r =
         ProbeResult::new(probe, ProbeStatus::Fail, format!("the routine failed at increment {at}: {f}"));
     r.increment = Some(at);
+    r.fault = true;
     r
 }
 

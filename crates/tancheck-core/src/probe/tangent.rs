@@ -48,6 +48,7 @@ impl Probe for Tangent {
             )
         };
         let mut r = ProbeResult::new("tangent", status, summary);
+        r.fault = report.verdict == Verdict::RoutineFault;
         r.value = Some(worst);
         r.increment = failed.first().map(|i| i.index);
         for b in &report.branches {

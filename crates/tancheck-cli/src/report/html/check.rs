@@ -22,7 +22,9 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     );
     let _ = writeln!(o, "<dt>finding</dt><dd><code>{}</code></dd>", esc(&finding));
     let first = failing.first().map_or("none".to_string(), |i| {
-        format!("increment {} of {} (branch {})", i.index, report.increments.len(), i.branch_label())
+        // Of the path: the records count every increment (the zero increment too, as 0).
+        let path = report.records.iter().filter(|r| r.index > 0).count().max(report.increments.len());
+        format!("increment {} of {path} (branch {})", i.index, i.branch_label())
     });
     let _ = writeln!(o, "<dt>first failing increment</dt><dd>{}</dd>", esc(&first));
     let _ = writeln!(
