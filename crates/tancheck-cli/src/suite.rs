@@ -10,6 +10,12 @@ use tancheck_core::PointKind;
 
 use crate::manifest::{ManifestError, PathSpec};
 
+/// The smallest probe amplitude (strain, or rotation in radians) accepted: 1e-14, a tenth of
+/// the smallest the energy probe cuts its own cycle to (1e-5 / 10⁸), and far above amplitudes
+/// whose square underflows (1e-300 squared is zero: a cycle's net work would read zero for
+/// any law).
+pub const MIN_AMPLITUDE: f64 = 1e-14;
+
 /// The default suites, built in (the same files as under `probes/`).
 pub const DEFAULT_SUITES: [(&str, &str); 3] = [
     ("probes/solid.json", include_str!("../../../probes/solid.json")),
@@ -149,8 +155,11 @@ fn check_numbers(p: &ProbeSpec, increments: usize) -> Result<(), String> {
     }
     if let Some(a) = p.amplitude {
         let max = tancheck_core::path::MAX_STRAIN;
-        if !(a.is_finite() && a != 0.0 && a.abs() <= max) {
-            return Err(format!("amplitude is {a}; it must be a nonzero number at most {max} in magnitude"));
+        // Why a floor: see MIN_AMPLITUDE (a cycle's net work at 1e-300 reads zero for any law).
+        if !(a.is_finite() && a.abs() >= MIN_AMPLITUDE && a.abs() <= max) {
+            return Err(format!(
+                "amplitude is {a}; it must be at least {MIN_AMPLITUDE:e} and at most {max} in magnitude"
+            ));
         }
     }
     if let Some(at) = &p.at {
@@ -227,6 +236,15 @@ mod tests {
         assert_ne!(bad, DEFAULT_SUITES[0].1, "the solid suite sets subdivisions to 8");
         let e = Suite::parse(&bad, FsPath::new("s.json")).unwrap_err().to_string();
         assert!(e.starts_with("s.json:") && e.contains("subdivisions is 2000000000"), "{e}");
+        // An amplitude whose square underflows would let any law pass the energy cycle.
+        for a in ["1e-300", "0", "20"] {
+            let text = format!(
+                r#"{{"suite": "x", "path": {{"shape": "uniaxial-strain", "peak": 0.001, "steps": 3}},
+                "probes": [{{"probe": "energy", "amplitude": {a}}}]}}"#
+            );
+            let e = Suite::parse(&text, FsPath::new("s.json")).unwrap_err().to_string();
+            assert!(e.contains("must be at least 1e-14"), "{a}: {e}");
+        }
     }
 
     #[test]

@@ -38,7 +38,15 @@ impl Probe for Tangent {
         let summary = if let Some((k, f)) = report.first_fault_at() {
             format!("the routine failed at increment {k}: {}", f.message)
         } else if failed.is_empty() {
-            format!("consistent at {} increments (worst error {worst:.2e})", checked.len())
+            // The worst error counts increments whose failed check the closer look cleared (a
+            // kink, a poor default step): say so, or a pass would quote a large error bare.
+            let cleared = checked.iter().filter(|i| i.diagnosis.as_ref().is_some_and(|d| d.pass)).count();
+            let aside = if cleared > 0 {
+                format!("; {cleared} of them cleared on a closer look (a kink or a poor default step), which the worst error counts")
+            } else {
+                String::new()
+            };
+            format!("consistent at {} increments (worst error {worst:.2e}{aside})", checked.len())
         } else {
             format!(
                 "wrong at {} of {} increments; finding: {}",

@@ -228,8 +228,17 @@ fn num_label(v: &f64) -> String {
     } else if a >= 100.0 {
         format!("{v:.0}")
     } else {
-        format!("{v:.3}").trim_end_matches('0').trim_end_matches('.').to_string()
+        // Four significant digits (0.0015, not 0.002 beside a tick at 0.002), trailing zeros cut.
+        let decimals = (3 - a.log10().floor() as i32).max(0) as usize;
+        format!("{v:.decimals$}").trim_end_matches('0').trim_end_matches('.').to_string()
     }
+}
+
+/// [`num_label`] on a linear axis over `range`: a tick within a billionth of the axis span
+/// of zero is the zero the tick arithmetic missed (3.5e-18 on an axis from −2e-3 to 2e-3).
+fn num_label_on(range: &std::ops::Range<f64>) -> impl Fn(&f64) -> String {
+    let tiny = 1e-9 * (range.end - range.start).abs();
+    move |v: &f64| if v.abs() <= tiny { "0".into() } else { num_label(v) }
 }
 
 /// The tangent error of every scheme along the path (log scale), with a band per run of
@@ -449,8 +458,8 @@ pub fn response_curves(report: &Report) -> Option<String> {
             .configure_mesh()
             .x_desc(xd)
             .y_desc(yd)
-            .x_label_formatter(&num_label)
-            .y_label_formatter(&num_label)
+            .x_label_formatter(&num_label_on(&xr))
+            .y_label_formatter(&num_label_on(&yr))
             .label_style((FONT, 13))
             .axis_desc_style((FONT, 14))
             .draw()?;
@@ -488,7 +497,7 @@ pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
                     .configure_mesh()
                     .x_desc(xd.as_str())
                     .y_desc($ydesc)
-                    .x_label_formatter(&num_label)
+                    .x_label_formatter(&num_label_on(&xr))
                     .y_label_formatter($ylab)
                     .label_style((FONT, 13))
                     .axis_desc_style((FONT, 14))
@@ -514,8 +523,9 @@ pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
             body!(chart, &exp_label, desc.as_str());
         } else {
             let yr = lin_range(pts().map(|p| p[1]).chain(std::iter::once(0.0)));
+            let ylab = num_label_on(&yr);
             let mut chart = builder.build_cartesian_2d(xr.clone(), yr)?;
-            body!(chart, &num_label, yd.as_str());
+            body!(chart, &ylab, yd.as_str());
         }
         Ok(())
     })
@@ -579,3 +589,6 @@ pub fn bisect_fractions(l: &Located) -> Option<String> {
         },
     )
 }
+
+#[cfg(test)]
+mod tests;
