@@ -127,6 +127,14 @@ fn a_report_may_not_overwrite_an_input_or_another_report() {
     assert_eq!(o.status.code(), Some(2));
     assert!(String::from_utf8_lossy(&o.stderr).contains("name the same file"));
     assert!(!same.exists());
+    // A name of one of this process's descriptors: refused (its standard output is `-`); a
+    // rename onto it would replace the name itself (as root, the system's /dev/stdout link).
+    for name in ["/dev/stdout", "/dev/fd/1", "/proc/self/fd/2"] {
+        let o = run(&["check", ms, "--json", name]);
+        assert_eq!(o.status.code(), Some(2), "{name}");
+        assert!(String::from_utf8_lossy(&o.stderr).contains("write `-` for standard output"), "{name}");
+    }
+    assert!(std::fs::symlink_metadata("/dev/stdout").is_ok_and(|m| m.file_type().is_symlink()));
 }
 
 /// O_NONBLOCK on Linux (asm-generic/fcntl.h): open a pipe's reading end without waiting.

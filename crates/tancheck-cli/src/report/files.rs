@@ -64,6 +64,18 @@ fn identity(path: &Path) -> Option<std::path::PathBuf> {
 /// names one of `inputs`: otherwise one report would overwrite another, or the run's own
 /// input, and it is refused before anything is written.
 pub fn distinct(outputs: &[(&str, Option<&Path>)], inputs: &[&Path]) -> Result<()> {
+    // A name for a descriptor of this process: tancheck keeps its own standard output apart
+    // from the routine's (descriptor 1 goes to standard error around calls), and a report
+    // renamed onto such a name would replace the name itself.
+    for (o, p) in outputs.iter().filter_map(|&(o, p)| p.map(|p| (o, p))) {
+        let s = p.to_string_lossy();
+        if ["/dev/stdout", "/dev/stderr", "/dev/stdin"].contains(&s.as_ref())
+            || s.starts_with("/dev/fd/")
+            || (s.starts_with("/proc/") && s.contains("/fd/"))
+        {
+            bail!("{o} {s}: names a descriptor of this process; write `-` for standard output");
+        }
+    }
     let named: Vec<(&str, &Path, std::path::PathBuf)> =
         outputs.iter().filter_map(|&(o, p)| p.and_then(|p| identity(p).map(|id| (o, p, id)))).collect();
     for (k, (o, p, id)) in named.iter().enumerate() {

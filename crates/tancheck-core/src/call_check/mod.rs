@@ -22,7 +22,7 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 mod straddle;
-use straddle::{kink_straddled, one_sided_distance, STRADDLE_LEVEL, TEMPERATURE_BIT};
+use straddle::{kink_straddled, one_sided_distance, straddle_level, TEMPERATURE_BIT};
 
 /// The finding of a case whose call crashed or returned a failed status.
 pub const FAULT_FINDING: &str = "routine-fault";
@@ -291,7 +291,7 @@ pub fn measure_call(
                     h,
                     column_floor,
                 );
-                if d > STRADDLE_LEVEL {
+                if d > straddle_level(settings) {
                     straddled |= 1 << j;
                     straddle_distance[j] = d;
                 }
@@ -323,7 +323,7 @@ pub fn measure_call(
                     ht,
                     dtemp_abs_floor,
                 );
-                if d > STRADDLE_LEVEL {
+                if d > straddle_level(settings) {
                     straddled |= 1 << TEMPERATURE_BIT;
                     straddle_distance[TEMPERATURE_BIT] = d;
                 }

@@ -48,10 +48,15 @@ pub(super) fn one_sided_distance(
     }
 }
 
+/// The level above which a straddled column is looked at: [`STRADDLE_LEVEL`], or the central
+/// check's own tolerance when it was loosened (a noisy routine's), never stricter than it.
+pub(super) fn straddle_level(settings: &Settings) -> f64 {
+    STRADDLE_LEVEL.max(settings.central.tol)
+}
+
 /// Whether a kink sits at the point in a column the central difference straddled: the same
-/// distance at a tenth of the step (two calls per straddled column) does not shrink as a
-/// one-sided truncation would. Why 0.3: truncation falls tenfold, a kink's gap not at all;
-/// as the kink probe's rule ([`crate::diagnose::kink`]). Returns (some strain column, the
+/// distance at a tenth of the step (two calls per straddled column) neither shrinks as a
+/// one-sided truncation would nor grows as noise does. Returns (some strain column, the
 /// ∂σ/∂T column).
 pub(super) fn kink_straddled(
     me: &Measurement,
@@ -89,7 +94,11 @@ pub(super) fn kink_straddled(
             h,
             floor,
         );
-        if d > STRADDLE_LEVEL && d > 0.3 * me.straddle_distance[j] {
+        // A kink's distance holds at a tenth of the step; smooth truncation falls tenfold and
+        // noise (an inner solve's tolerance) grows tenfold. Why 0.7 and 1.5: the distance at a
+        // kink moves by its sides' truncation only.
+        let d1 = me.straddle_distance[j];
+        if d > straddle_level(settings) && d >= 0.7 * d1 && d <= 1.5 * d1 {
             if j == TEMPERATURE_BIT {
                 kinked.1 = true;
             } else {

@@ -136,22 +136,30 @@ pub fn study(
         };
         let orders =
             SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
-        let tail_order =
-            if log.numerical_fallback { None } else { tail_order(&log.residuals, FLOOR * scale) };
+        let tail_order = if log.numerical_fallback {
+            None
+        } else {
+            tail_order(&log.residuals, FLOOR * scale, TAIL_LOWEST * scale)
+        };
         out.push(IncrementSolve { increment: k, state_changed, log, failure, usable, orders, tail_order });
         Ok(())
     })?;
     Ok(out)
 }
 
+/// A residual below this times the scale is rounding itself: it can come out smaller than the
+/// true residual by luck, and an order made from it could be any. Ten units of rounding.
+const TAIL_LOWEST: f64 = 10.0 * f64::EPSILON;
+
 /// The order of the step from the last residual above `floor` to the first one below it,
-/// with the residual before them: `None` without such a step.
-fn tail_order(r: &[f64], floor: f64) -> Option<f64> {
+/// with the residual before them: `None` without such a step, or when that residual is under
+/// `lowest` (rounding itself).
+fn tail_order(r: &[f64], floor: f64, lowest: f64) -> Option<f64> {
     let last = r.iter().rposition(|&x| x > floor)?;
     let below = *r.get(last + 1)?;
     let (a, b) = (r[last.checked_sub(1)?], r[last]);
     let p = (below / b).ln() / (b / a).ln();
-    (below > 0.0 && b < a && p.is_finite()).then_some(p)
+    (below >= lowest && below > 0.0 && b < a && p.is_finite()).then_some(p)
 }
 
 fn list(v: &[f64], prec: usize) -> String {
@@ -290,7 +298,7 @@ mod tests {
             failure: None,
             usable,
             orders,
-            tail_order: tail_order(residuals, floor),
+            tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
         }
     }
 
@@ -309,5 +317,10 @@ mod tests {
         // Two usable residuals give no order, whatever the step below the floor shows.
         let s = solve(&[1.0, 1e-3, 1e-15], 1e-10);
         assert_eq!(s.order(), None);
+        // A linear solve whose residual below the floor came out at rounding by luck: no
+        // tail order from it (it would read 3).
+        let s = solve(&[1e-9, 1e-10, 1e-11, 1e-16], 1e-12);
+        assert_eq!(s.orders.len(), 1);
+        assert_eq!(s.tail_order, None);
     }
 }
