@@ -149,6 +149,9 @@ pub struct Measurement {
     /// the central difference straddles.
     straddled: u8,
     straddle_distance: [f64; 7],
+    /// The floor of a strain column's norm in those distances (the entry floor times the
+    /// returned tangent's norm).
+    column_floor: f64,
 }
 
 impl Measurement {
@@ -362,6 +365,7 @@ pub fn measure_call(
         soft,
         straddled,
         straddle_distance,
+        column_floor,
     })
 }
 

@@ -69,7 +69,6 @@ pub(super) fn kink_straddled(
     else {
         return (false, false);
     };
-    let floor = settings.entry_floor * me.returned[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt();
     let ht = settings.central.rel_step * driver.temp_scale(settings.temp_floor);
     let mut kinked = (false, false);
     for j in (0..=TEMPERATURE_BIT).filter(|&j| me.straddled & (1 << j) != 0) {
@@ -79,7 +78,7 @@ pub(super) fn kink_straddled(
                 None => continue,
             }
         } else {
-            (Direction::Strain(j), 0.1 * central.h, &me.returned[j * n..(j + 1) * n], floor)
+            (Direction::Strain(j), 0.1 * central.h, &me.returned[j * n..(j + 1) * n], me.column_floor)
         };
         let calls =
             driver.perturbed_call(caller, dir, h).and_then(|()| driver.perturbed_call(caller, dir, -h));
