@@ -442,6 +442,24 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
     // The cases still fail (the flaw is not fixed), so the run fails although the check passes.
     assert!(t.contains("verdict: PASS"), "{t}");
     assert_eq!(o.status.code(), Some(1), "{t}");
+    // A bad option stops the run before the cases are replayed (they used to run first, and
+    // the error came after their whole output).
+    for bad in
+        [["--tol", "central=-1"], ["--step", "central=2"], ["--guards", "loose"], ["--path", "none.json"]]
+    {
+        let o = bin()
+            .arg("check")
+            .arg(&ok)
+            .arg("--cases")
+            .arg(&cases)
+            .arg("--all-cases")
+            .args(bad)
+            .output()
+            .unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{bad:?}: {t}");
+        assert!(!t.contains("== cases in"), "{bad:?}: the cases ran before the option was read:\n{t}");
+    }
 }
 
 #[test]

@@ -288,6 +288,34 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
             );
         }
     }
+    // Every option is read before the cases replay: a bad one stops the run before any work.
+    if !a.schemes.is_empty() {
+        m.check.schemes = a.schemes.iter().map(|s| s.parse()).collect::<Result<_, _>>()?;
+    }
+    for t in &a.tols {
+        let (s, v) = scheme_value(t, "tol")?;
+        m.check.scheme_mut(s).tol = v;
+    }
+    for t in &a.steps {
+        let (s, v) = scheme_value(t, "step")?;
+        m.check.scheme_mut(s).rel_step = v;
+    }
+    m.check.validate().map_err(|e| anyhow::anyhow!("{file} (with the command-line options): {e}"))?;
+    m.fp_traps |= a.fp_traps;
+    m.check.jobs = jobs_arg(a.jobs);
+    if let Some(g) = &a.guards {
+        m.guards = guards_arg(g)?;
+    }
+    let block = crate::block_session::is_block(&m);
+    let block_path = if block { a.path.as_deref().map(path_arg).transpose()? } else { None };
+    let point_path = if block {
+        None
+    } else {
+        Some(match &a.path {
+            Some(p) => path_arg(p)?,
+            None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
+        })
+    };
     crate::survive::set_routine(a.json.as_deref(), &routine_name(&m));
     crate::survive::start_watchdog(a.call_timeout, Some(a.suite_timeout));
     if let Some(cases) = &cases {
@@ -308,37 +336,22 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
         }
         case_code = r.exit_code();
     }
-    if !a.schemes.is_empty() {
-        m.check.schemes = a.schemes.iter().map(|s| s.parse()).collect::<Result<_, _>>()?;
-    }
-    for t in &a.tols {
-        let (s, v) = scheme_value(t, "tol")?;
-        m.check.scheme_mut(s).tol = v;
-    }
-    for t in &a.steps {
-        let (s, v) = scheme_value(t, "step")?;
-        m.check.scheme_mut(s).rel_step = v;
-    }
-    m.check.validate().map_err(|e| anyhow::anyhow!("{file} (with the command-line options): {e}"))?;
-    m.fp_traps |= a.fp_traps;
-    m.check.jobs = jobs_arg(a.jobs);
-    if let Some(g) = &a.guards {
-        m.guards = guards_arg(g)?;
-    }
-    if crate::block_session::is_block(&m) {
-        let path = a.path.as_deref().map(path_arg).transpose()?;
-        let code =
-            crate::block_session::check_block_command(&m, &dir, &file, path, &a.output, a.json.as_deref())?;
+    if block {
+        let code = crate::block_session::check_block_command(
+            &m,
+            &dir,
+            &file,
+            block_path,
+            &a.output,
+            a.json.as_deref(),
+        )?;
         return Ok(if case_code == exit::ROUTINE_FAULT || code == exit::ROUTINE_FAULT {
             exit::ROUTINE_FAULT
         } else {
             code.max(case_code)
         });
     }
-    let path = match &a.path {
-        Some(p) => path_arg(p)?,
-        None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
-    };
+    let path = point_path.expect("a point routine's path was read above");
     // The compact report (full detail of failures only) unless every check's details are asked for.
     let keep = if a.output.verbose { Keep::All } else { Keep::Failures };
     let report = crate::session::run_manifest_with(&m, &dir, &path, keep, a.output.shows_progress())
