@@ -67,6 +67,25 @@ fn a_symbolic_link_stays_a_link_and_its_file_gets_the_report() {
         let text = std::fs::read_to_string(&real).unwrap();
         assert!(text.len() > 100 && text != "old", "{opt}: {text}");
     }
+    // A link to a file that does not exist yet (a relative one, through a second link) is
+    // written through too: it used to be replaced by a plain file.
+    std::fs::create_dir_all(d.join("kept")).unwrap();
+    let first = d.join("dangling.json");
+    std::os::unix::fs::symlink("second.json", &first).unwrap();
+    std::os::unix::fs::symlink("kept/new.json", d.join("second.json")).unwrap();
+    for opt in ["--json", "--junit", "--html"] {
+        let _ = std::fs::remove_file(d.join("kept/new.json"));
+        let o = check(&d, &[opt, first.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(0), "{opt}: {}", String::from_utf8_lossy(&o.stderr));
+        for l in [&first, &d.join("second.json")] {
+            assert!(
+                std::fs::symlink_metadata(l).unwrap().file_type().is_symlink(),
+                "{opt}: {l:?} was replaced"
+            );
+        }
+        let text = std::fs::read_to_string(d.join("kept/new.json")).unwrap();
+        assert!(text.len() > 100, "{opt}: {text}");
+    }
 }
 
 #[test]

@@ -243,14 +243,25 @@ pub enum Destination {
 pub fn destination(path: &Path) -> Destination {
     match std::fs::metadata(path) {
         Ok(m) if !m.is_file() && !m.is_dir() => Destination::Stream(path.to_path_buf()),
-        _ => {
-            let link = std::fs::symlink_metadata(path).is_ok_and(|m| m.file_type().is_symlink());
-            match link.then(|| std::fs::canonicalize(path).ok()).flatten() {
-                Some(target) => Destination::Replace(target),
-                None => Destination::Replace(path.to_path_buf()),
-            }
-        }
+        _ => Destination::Replace(follow_links(path)),
     }
+}
+
+/// The file a symbolic link at `path` names, followed link by link (a relative link from the
+/// link's own folder), also when that file does not exist yet: a dangling link is written
+/// through, not replaced by a plain file. `path` itself when it is not a link; after 40 links
+/// (a loop), the last one reached.
+fn follow_links(path: &Path) -> std::path::PathBuf {
+    let mut at = path.to_path_buf();
+    for _ in 0..40 {
+        let is_link = std::fs::symlink_metadata(&at).is_ok_and(|m| m.file_type().is_symlink());
+        let Some(next) = is_link.then(|| std::fs::read_link(&at).ok()).flatten() else { break };
+        at = match at.parent() {
+            Some(dir) if next.is_relative() => dir.join(next),
+            _ => next,
+        };
+    }
+    at
 }
 
 /// The temporary name [`write_atomic`] writes `path` under before the rename: a hidden file
