@@ -154,3 +154,33 @@ fn a_temperature_derivative_that_is_the_mean_of_the_sides_fails() {
         }
     }
 }
+
+#[test]
+fn a_twin_unsafe_in_the_temperature_only_is_blamed_not_the_routine() {
+    // E(T) = E0 (1 − a <T − T0>) at ε = 1e-3, heated from 110 on (above T0 = 100, away from the
+    // kink) under growing strain. The twin of c_bar_thermal_real_e holds E(T) in a real
+    // variable: its strain derivative is exact, its dσ/dT misses −a E0 ε (it reads 0), while
+    // the central dσ/dT equals the returned one. Its verdict is the twin's (exit 4); the sound
+    // routine beside it passes, and a wrong dσ/dT with a sound twin (c_bar_thermal_mean at T0,
+    // above) still fails.
+    let d = scratch("twin-thermal");
+    for (symbol, want) in [("c_bar_thermal_real_e", 4), ("c_bar_thermal", 0)] {
+        let m = write(
+            &d,
+            &format!("{symbol}.json"),
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "uniaxial", "states": 0,
+               "properties": [1000, 0.002, 100] }},
+  "start": {{ "strain": [0.001], "temperature": 110 }},
+  "path": {{ "increments": [ {{"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 10}}, {{"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 5}} ] }} }}"#,
+                bar().display()
+            ),
+        );
+        let (code, v, t) = check(&m, &[]);
+        assert_eq!(code, Some(want), "{symbol}: {t}");
+        if want == 4 {
+            assert_eq!(v["verdict"], "twin-not-safe", "{t}");
+            assert!(t.contains("not complex-step safe in the temperature"), "{t}");
+        }
+    }
+}

@@ -201,6 +201,48 @@ fn the_usual_culprits_of_an_unsafe_twin_are_listed_once() {
     assert!(set_aside[1..].iter().all(|l| l.contains("Usual culprits: as listed at increment ")), "{t}");
 }
 
+/// An unsafe twin whose complex tangent is soft where the true one is not: the check's error
+/// is largest along that direction (or the increment's), and the twin's own gap to the real
+/// reference must be measured there too. Measured along the real reference's directions it
+/// looked small, and a correct tangent failed as `term-scaled` or `rank-one-term` (exit 1).
+#[test]
+fn an_unsafe_twin_is_blamed_where_its_error_is_along_a_soft_direction() {
+    let zoo = build("soft-twin-zoo-j2", "fortran-shim/examples/c/zoo_j2.c");
+    let d = scratch("soft-twin");
+    let cases = [
+        // (routine, path): the Rust model on a mixed-mode path, the C routines under uniaxial stress.
+        (
+            r#""model": "twin-conjugate""#.to_string(),
+            r#""shape": "mixed-mode", "peak": 0.004, "steps": 8, "back": 4"#,
+        ),
+        (
+            format!(r#""library": "{}", "symbol": "c_twin_conjugate", "states": 13"#, zoo.display()),
+            r#""shape": "uniaxial-stress", "peak": 0.004, "steps": 8, "back": 4"#,
+        ),
+        (
+            format!(r#""library": "{}", "symbol": "c_twin_real_sqrt", "states": 13"#, zoo.display()),
+            r#""shape": "uniaxial-stress", "peak": 0.004, "steps": 8, "back": 4"#,
+        ),
+    ];
+    for (k, (routine, path)) in cases.iter().enumerate() {
+        let props = if k == 0 {
+            "200000, 0.3, 250, 1000, 50, 20, 500"
+        } else {
+            "210000, 0.3, 355, 1200, 150, 12, 2500"
+        };
+        let m = d.join(format!("m{k}.json"));
+        std::fs::write(
+            &m,
+            format!(r#"{{ "routine": {{ {routine}, "kind": "solid-3d", "properties": [{props}] }}, "path": {{ {path} }} }}"#),
+        )
+        .unwrap();
+        let o = bin().arg("check").arg(&m).args(["--jobs", "1"]).output().unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(4), "{routine}: {t}");
+        assert!(t.contains("twin set aside") && !t.contains("FAIL"), "{routine}: {t}");
+    }
+}
+
 #[test]
 fn crashes_are_faults_with_the_inputs_of_the_call() {
     expect("bad_null_deref", &[], 3, "SIGSEGV");

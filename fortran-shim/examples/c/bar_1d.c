@@ -23,6 +23,10 @@
  *   c_bar_thermal_mean   the same stress; at T = T0 exactly d sigma / dT is the mean of the two
  *                        sides' (-a E0 eps / 2), and its twin's ramp, a sign function that is 0
  *                        at 0, gives the same mean: deliberately wrong there
+ *   c_bar_thermal_real_e c_bar_thermal with a twin that holds E(T) in a real variable (its real
+ *                        part): the real routine and every strain derivative are right, the
+ *                        twin's d sigma / dT misses the modulus' temperature dependence: a twin
+ *                        that is not complex-step safe in the temperature only
  *
  * Layout: properties [E0, a, T0]; no state (entries passed are carried through); T the end
  * temperature, temperature->start + temperature->increment; tangent E(T); branch 0 below T0,
@@ -98,7 +102,8 @@ TC_ROUTINE(c_bar_sticky)
     bar_update(1, call, properties, strain, dstrain, state0, stress, state, tangent, dstress_dtemp, report);
 }
 
-static void bar_thermal(int mean, const tc_call *call, const tc_real *properties, const tc_real *strain,
+/* mode: 0 right, 1 the mean of the sides at T0, 2 E(T) held in a real variable. */
+static void bar_thermal(int mode, const tc_call *call, const tc_real *properties, const tc_real *strain,
                         const tc_real *dstrain, const tc_temperature *temperature, const tc_real *state0,
                         tc_real *stress, tc_real *state, tc_real *tangent, tc_real *dstress_dtemp,
                         tc_report *report)
@@ -113,10 +118,11 @@ static void bar_thermal(int mean, const tc_call *call, const tc_real *properties
     /* The ramp <x> and its slope: the right side's at x = 0, or for the flawed variant a sign
      * function that is 0 at 0, whose ramp (x + sign(x) x) / 2 has the slope 1/2 there, in the
      * twin as well. */
-    const double sign = tc_re(x) > 0.0 ? 1.0 : (tc_re(x) < 0.0 ? -1.0 : (mean ? 0.0 : 1.0));
+    const double sign = tc_re(x) > 0.0 ? 1.0 : (tc_re(x) < 0.0 ? -1.0 : (mode == 1 ? 0.0 : 1.0));
     const tc_real ramp = 0.5 * (x + sign * x);
     const double slope = 0.5 * (1.0 + sign);
-    const tc_real e = e0 * (1.0 - a * ramp);
+    const tc_real e_exact = e0 * (1.0 - a * ramp);
+    const tc_real e = mode == 2 ? (tc_real)tc_re(e_exact) : e_exact;
     for (int k = 0; k < call->nstate; ++k) {
         state[k] = state0[k];
     }
@@ -141,5 +147,13 @@ TC_ROUTINE(c_bar_thermal_mean)
     (void)stress0;
     (void)energy;
     bar_thermal(1, call, properties, strain, dstrain, temperature, state0, stress, state, tangent,
+                dstress_dtemp, report);
+}
+
+TC_ROUTINE(c_bar_thermal_real_e)
+{
+    (void)stress0;
+    (void)energy;
+    bar_thermal(2, call, properties, strain, dstrain, temperature, state0, stress, state, tangent,
                 dstress_dtemp, report);
 }

@@ -486,8 +486,18 @@ pub fn judge(
                     _ => None,
                 }
             });
+        let dtemp_real = out
+            .checks
+            .iter()
+            .filter(|c| c.scheme != Scheme::ComplexStep)
+            .filter_map(|c| match &c.dstress_dtemp {
+                Some(CheckOutcome::Compared(x)) => Some((x.error(), x.tol)),
+                _ => None,
+            })
+            .min_by(|a, b| a.0.total_cmp(&b.0));
         let ctx = Context {
             returned,
+            dtemp_real,
             dtemp: returned_dtemp.zip(failed_dtemp.as_deref()),
             dtemp_complex,
             dtemp_floor: me.dtemp_abs_floor,

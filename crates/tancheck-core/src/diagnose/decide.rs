@@ -68,6 +68,16 @@ pub struct TwinEvidence {
     pub derivative_gap: Option<f64>,
 }
 
+/// What the real schemes and a real reference showed of a failed complex-step ∂σ/∂T.
+#[derive(Clone, Copy, Debug, Default, PartialEq)]
+pub struct DtempTwin {
+    /// The closest real scheme's ∂σ/∂T check: its error and tolerance.
+    pub real: (f64, f64),
+    /// The complex-step ∂σ/∂T against Richardson in the temperature, measured as the check
+    /// measured the returned ∂σ/∂T against it.
+    pub gap: f64,
+}
+
 /// Everything the routine calls showed about one failed increment.
 #[derive(Clone, Debug, Default)]
 pub struct Observed {
@@ -87,6 +97,9 @@ pub struct Observed {
     pub dtemp_kink: Option<TempKink>,
     /// The complex-step ∂σ/∂T check, when it ran: its error and tolerance.
     pub dtemp_complex: Option<(f64, f64)>,
+    /// When only the complex-step ∂σ/∂T failed and a real scheme's passed: the evidence on
+    /// the twin's derivative in the temperature.
+    pub dtemp_twin: Option<DtempTwin>,
     /// Ranked cause trials, when made.
     pub causes: Option<Vec<Hypothesis>>,
 }
@@ -178,11 +191,35 @@ fn steady(gaps: &[f64]) -> bool {
     }
 }
 
+/// Rule 1 for ∂σ/∂T: the twin is not complex-step safe in the temperature. Only the complex
+/// step's ∂σ/∂T failed; a real scheme's equals the returned one, a decade closer than the
+/// complex step's ([`TWIN_MARGIN`]); and the complex ∂σ/∂T is as far from a real reference
+/// (Richardson in the temperature) as from the returned one (the same 0.5 as for the
+/// tangent), away from a kink in the temperature. A twin that holds a temperature-dependent
+/// modulus in a real variable drops its derivative this way while its strain columns stay
+/// exact.
+fn dtemp_twin_unsafe(o: &Observed) -> bool {
+    let (Some((e, tol)), Some(t)) = (o.dtemp_complex, o.dtemp_twin) else { return false };
+    let (real, real_tol) = t.real;
+    e > tol
+        && !o.dtemp_kink.as_ref().is_some_and(|k| k.detected)
+        && real <= real_tol
+        && real <= TWIN_MARGIN * e
+        && t.gap >= 0.5 * e
+}
+
 /// Why a failed ∂σ/∂T check is not held against the routine, by the rules the strain columns
-/// follow (2 and 3 of the module's list): `None` when it is.
+/// follow (1 to 3 of the module's list): `None` when it is.
 pub fn dtemp_excuse(o: &Observed) -> Option<String> {
     if !o.dtemp_failed {
         return None;
+    }
+    if dtemp_twin_unsafe(o) {
+        let (t, e) = (o.dtemp_twin.unwrap_or_default(), o.dtemp_complex.map_or(f64::NAN, |c| c.0));
+        return Some(format!(
+            "the complex-step twin is not complex-step safe in the temperature (a real difference gives the returned ∂σ/∂T within {:.2e} while the complex step's differs by {e:.2e}); its results are set aside. Usual culprits: {TWIN_CULPRITS}",
+            t.real.0
+        ));
     }
     let complex = if twin_unsafe(o) { None } else { o.dtemp_complex.map(|(e, tol)| e <= tol) };
     match &o.dtemp_kink {
@@ -225,6 +262,12 @@ pub fn decide(o: &Observed) -> Decision {
             let mut d = decide_tangent(&Observed { dtemp_failed: false, ..o.clone() });
             if d.pass {
                 d.reason = if d.reason.is_empty() { why } else { format!("{}; {why}", d.reason) };
+                if dtemp_twin_unsafe(o) {
+                    d.twin_unsafe = true;
+                    if d.finding.is_empty() || d.finding == "none" {
+                        d.finding = TWIN_FINDING.into();
+                    }
+                }
             }
             d
         }

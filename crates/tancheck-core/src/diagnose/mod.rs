@@ -12,7 +12,7 @@
 
 use serde::{Deserialize, Serialize};
 
-use crate::compare::compare;
+use crate::compare::{compare, compare_along, compare_dtemp_floor};
 use crate::convention::Convention;
 use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
@@ -67,6 +67,8 @@ pub struct Context<'a> {
     pub dtemp_floor: f64,
     /// The complex-step check, when it ran: its error and tolerance.
     pub complex: Option<(f64, f64)>,
+    /// The closest real scheme's ∂σ/∂T check, when one ran: its error and tolerance.
+    pub dtemp_real: Option<(f64, f64)>,
     /// The largest gap between the twin's real part and the real stress over the increment's
     /// complex calls, relative to the stress scale.
     pub twin_real_gap: Option<f64>,
@@ -132,7 +134,13 @@ pub fn run(
             let mut rich = vec![0.0; n * n];
             tangent(driver, caller, Scheme::ComplexStep, settings.complex_step.rel_step * scale, &mut cs)?;
             tangent(driver, caller, Scheme::Richardson, settings.richardson.rel_step * scale, &mut rich)?;
-            derivative_gap = Some(compare(conv, &cs, &rich, 1.0, ef, 0).error());
+            // Measured as the check measured the returned tangent against the complex step:
+            // along the complex tangent's own soft directions and the increment's direction,
+            // relative to its response there. A twin that is off makes its tangent soft where the true one is not, and
+            // the check's error is largest along such a direction; measured along the real
+            // reference's directions the twin's gap looked small beside it.
+            let limits = crate::compare::Limits::new(1.0, ef, 0);
+            derivative_gap = Some(compare_along(conv, &rich, &cs, limits, Some(driver.dstrain())).error());
             richardson = Some(rich);
         }
         twin = Some(decide::TwinEvidence { real_part_gap: ctx.twin_real_gap.unwrap_or(0.0), derivative_gap });
@@ -145,6 +153,39 @@ pub fn run(
             Some(temp_kink::probe(driver, caller, &query(ret, ts), ctx.dtemp_floor)?)
         }
         None => None,
+    };
+    // Only the complex step's ∂σ/∂T failed, a real scheme's passed: the twin's ∂σ/∂T against a
+    // real reference, away from a kink in the temperature.
+    let dtemp_twin = match (ctx.dtemp_complex, ctx.dtemp_real) {
+        (Some((e, tol)), Some(real))
+            if ctx.has_twin
+                && ctx.dtemp.is_some()
+                && e > tol
+                && real.0 <= real.1
+                && !dtemp_kink.as_ref().is_some_and(|k| k.detected) =>
+        {
+            let ts = driver.temp_scale(settings.temp_floor);
+            let (mut cs, mut rich) = ([0.0; 6], [0.0; 6]);
+            let t = Direction::Temperature;
+            Scheme::ComplexStep.column(
+                driver,
+                caller,
+                t,
+                settings.complex_step.rel_step * ts,
+                &mut cs[..n],
+            )?;
+            Scheme::Richardson.column(
+                driver,
+                caller,
+                t,
+                settings.richardson.rel_step * ts,
+                &mut rich[..n],
+            )?;
+            let limits = crate::compare::Limits::new(1.0, ef, 0);
+            let gap = compare_dtemp_floor(conv, &rich[..n], &cs[..n], limits, ctx.dtemp_floor).error();
+            Some(decide::DtempTwin { real, gap })
+        }
+        _ => None,
     };
     let dtemp_causes = match ctx.dtemp {
         Some((ret, num)) => {
@@ -164,6 +205,7 @@ pub fn run(
         dtemp_causes,
         dtemp_kink,
         dtemp_complex: ctx.dtemp_complex,
+        dtemp_twin,
         causes: None,
     };
     let mut decision = decide::decide(&observed);
