@@ -181,6 +181,9 @@ fn a_twin_unsafe_in_the_temperature_only_is_blamed_not_the_routine() {
         if want == 4 {
             assert_eq!(v["verdict"], "twin-not-safe", "{t}");
             assert!(t.contains("not complex-step safe in the temperature"), "{t}");
+            // The set-aside checks are counted as cleared, not failed.
+            let cs = v["summary"].as_array().unwrap().iter().find(|s| s["scheme"] == "complex-step").unwrap();
+            assert_eq!((cs["failed"].as_u64(), cs["cleared"].as_u64()), (Some(0), Some(2)), "{t}");
         }
     }
 }

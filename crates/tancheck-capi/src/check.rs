@@ -135,6 +135,9 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
                 sc.tol
             );
         }
+        if sc.cleared > 0 {
+            let _ = write!(p, ", {} cleared on a closer look", sc.cleared);
+        }
         if sc.skipped > 0 {
             let _ = write!(p, ", {} skipped", sc.skipped);
         }

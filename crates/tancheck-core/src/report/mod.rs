@@ -217,7 +217,13 @@ pub struct CallCounts {
 pub struct SchemeSummary {
     pub scheme: Scheme,
     pub checks: usize,
+    /// Checks that failed at an increment that failed (or faulted).
     pub failed: usize,
+    /// Checks that failed at an increment the diagnosis cleared on a closer look (a kink with
+    /// the returned tangent on one side, a step the default missed, a twin set aside): not
+    /// failures of the tangent, and not in `failed`.
+    #[serde(default)]
+    pub cleared: usize,
     pub skipped: usize,
     pub worst_norm_error: f64,
     pub worst_entry_error: f64,

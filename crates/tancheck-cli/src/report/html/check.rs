@@ -47,15 +47,16 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     let _ = writeln!(o, "</dl>");
     o.push_str(&cautions(&report.cautions));
 
-    let _ = writeln!(o, "<h2>Schemes</h2>\n<table>\n<tr><th>scheme</th><th>checks</th><th>failed</th><th>skipped</th><th>worst norm error</th><th>worst entry error</th><th>tolerance</th></tr>");
+    let _ = writeln!(o, "<h2>Schemes</h2>\n<table>\n<tr><th>scheme</th><th>checks</th><th>failed</th><th>cleared</th><th>skipped</th><th>worst norm error</th><th>worst entry error</th><th>tolerance</th></tr>");
     for s in &report.summary {
         let _ = writeln!(
             o,
-            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             if s.failed > 0 { " class=\"bad\"" } else { "" },
             s.scheme.name(),
             s.checks,
             s.failed,
+            s.cleared,
             s.skipped,
             sci(s.worst_norm_error),
             sci(s.worst_entry_error),
