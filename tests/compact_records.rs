@@ -141,3 +141,21 @@ fn a_mixed_control_path_and_a_routine_without_twin_get_the_same_records() {
         }
     }
 }
+
+/// The complex step alone, without a twin, compares nothing: refused as bad input, not a pass
+/// with 0 checks (a flawed routine passed so). With a real scheme beside it, the check runs
+/// and the complex step is skipped with a note.
+#[test]
+fn the_complex_step_alone_without_a_twin_is_refused() {
+    let props = props("j2-continuum");
+    let path = path_for("j2");
+    let only = Settings { schemes: vec![tancheck::core::Scheme::ComplexStep], ..Settings::default() };
+    let mut r = NoTwin(zoo_model("j2-continuum", tancheck::core::PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let e = check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &only).unwrap_err();
+    assert!(e.to_string().contains("has no complex twin: nothing would be checked"), "{e}");
+    let mut r = NoTwin(zoo_model("j2-continuum", tancheck::core::PointKind::Solid3d).unwrap());
+    let report = run(&mut r, &props, &path, &Settings::default(), Keep::Failures);
+    assert_eq!(report.verdict, tancheck::core::Verdict::TangentFailure);
+}

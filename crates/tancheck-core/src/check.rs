@@ -44,6 +44,9 @@ pub fn run_with(
     let conv = info.convention.clone();
     let driver = Driver::new(&info, props, start)?;
     let has_twin = caller.has_complex();
+    if !has_twin && settings.schemes.iter().all(|&s| s == Scheme::ComplexStep) {
+        return Err(CoreError::ComplexStepWithoutTwin(info.name.clone()));
+    }
     let mut notes = Vec::new();
     if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
         notes.push(format!(

@@ -60,6 +60,13 @@ pub enum CoreError {
     #[error("no derivative scheme selected; choose from forward, backward, central, central4, richardson, complex-step")]
     NoScheme,
 
+    /// The complex step is the only scheme selected and the routine has no twin: nothing
+    /// would be compared, and a pass would say nothing.
+    #[error(
+        "only the complex step is selected, and {0} has no complex twin: nothing would be checked; build the twin (`tancheck build` compiles the source again with TC_COMPLEX and exports <symbol>_cx) or select a real scheme as well (e.g. central)"
+    )]
+    ComplexStepWithoutTwin(String),
+
     #[error(
         "the {scheme} step must be a positive number at most 1 (relative to the strain scale), got {value}"
     )]
