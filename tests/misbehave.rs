@@ -292,6 +292,37 @@ fn exit_ends_the_process_without_isolation_and_is_reported_with_it() {
     expect("bad_null_deref", &["--isolate"], 3, "SIGSEGV");
 }
 
+/// A routine that ends the process leaves no earlier run's PASS in the HTML and JUnit files
+/// (they were left as they were, and a CI dashboard showed green): they say the run did not
+/// finish, with and without --isolate. A run that ends on bad input puts them back. (The
+/// passing routine is `bad_printf`: a correct update that prints.)
+#[test]
+fn a_routine_that_ends_the_process_leaves_no_earlier_pass_in_the_html_and_junit() {
+    let d = scratch("stale-pages");
+    let (xml, html) = (d.join("r.xml"), d.join("r.html"));
+    let pages = ["--junit", xml.to_str().unwrap(), "--html", html.to_str().unwrap()];
+    for flags in [&[][..], &["--isolate"][..]] {
+        let (c, t) = check(c_lib(), "bad_printf", &pages);
+        assert_eq!(c, Some(0), "{t}");
+        assert!(std::fs::read_to_string(&xml).unwrap().contains("errors=\"0\""));
+        let (c, t) = check(c_lib(), "bad_exit", &[&pages[..], flags].concat());
+        assert!(c == Some(70) || c == Some(3), "{flags:?}: {t}");
+        let x = std::fs::read_to_string(&xml).unwrap();
+        assert!(x.contains("errors=\"1\"") && x.contains("type=\"incomplete\""), "{flags:?}: {x}");
+        assert!(std::fs::read_to_string(&html).unwrap().contains("Incomplete run"), "{flags:?}");
+    }
+    let (c, _) = check(c_lib(), "bad_printf", &pages);
+    assert_eq!(c, Some(0));
+    let kept = (std::fs::read(&xml).unwrap(), std::fs::read(&html).unwrap());
+    let (c, t) = check(c_lib(), "bad_printf", &[&pages[..], &["--tol", "central=-1"]].concat());
+    assert_eq!(c, Some(2), "{t}");
+    assert_eq!(
+        (std::fs::read(&xml).unwrap(), std::fs::read(&html).unwrap()),
+        kept,
+        "bad input lost the pages"
+    );
+}
+
 #[test]
 #[cfg_attr(tancheck_no_fortran, ignore = "needs gfortran")]
 fn a_fortran_stop_is_reported_under_isolation() {

@@ -60,7 +60,11 @@ impl OutputArgs {
     pub fn guard(&self, json: Option<&std::path::Path>, inputs: &[&std::path::Path]) -> anyhow::Result<()> {
         let outputs =
             [("--json", json), ("--html", self.html.as_deref()), ("--junit", self.junit.as_deref())];
-        crate::report::files::distinct(&outputs, inputs)
+        crate::report::files::distinct(&outputs, inputs)?;
+        // An earlier HTML or JUnit report is replaced by an "incomplete" marker at once: a run
+        // that ends without writing them must not leave an earlier run's verdict.
+        let what = inputs.first().map_or_else(String::new, |p| p.display().to_string());
+        crate::survive::begin_side_reports(self.html.as_deref(), self.junit.as_deref(), &what)
     }
 
     /// Whether progress may be drawn (on standard error, and only when it is a terminal).

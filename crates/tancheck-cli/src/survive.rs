@@ -182,21 +182,69 @@ struct Earlier {
     marker: Vec<u8>,
 }
 
-static EARLIER: std::sync::Mutex<Option<Earlier>> = std::sync::Mutex::new(None);
+static EARLIER: std::sync::Mutex<Vec<Earlier>> = std::sync::Mutex::new(Vec::new());
+
+/// Replace `p` at once by `marker`, keeping what it held for [`restore_earlier_report`].
+fn replace_with_marker(p: &Path, marker: Vec<u8>) -> Result<()> {
+    let previous = std::fs::metadata(p).ok().filter(|m| m.is_file()).and_then(|_| std::fs::read(p).ok());
+    crate::report::write_atomic(p, &marker)
+        .with_context(|| format!("replacing the report {} at the start of the run", p.display()))?;
+    EARLIER.lock().unwrap_or_else(|e| e.into_inner()).push(Earlier {
+        path: p.to_path_buf(),
+        previous,
+        marker,
+    });
+    Ok(())
+}
+
+/// What an "incomplete" marker says: the run started this file and did not finish it.
+const INCOMPLETE: &str =
+    "tancheck started this report and did not finish it: still running, or ended before \
+                          its reports were written (the routine ended the process, or tancheck was killed); \
+                          this is not a result";
+
+/// Before a run that writes an HTML or JUnit report: replace an earlier one at once by an
+/// "incomplete" marker, as [`begin_report`] does for the JSON report. A run that ends without
+/// writing them (a routine that calls `exit` or Fortran STOP ends the process; under
+/// `--isolate` the worker that writes them ends) leaves a page and a JUnit error that say
+/// so, never an earlier run's PASS. A device or pipe is left alone; a run that ends on bad
+/// input (exit 2) puts the earlier files back.
+pub fn begin_side_reports(html: Option<&Path>, junit: Option<&Path>, routine: &str) -> Result<()> {
+    for (p, html) in [(html, true), (junit, false)] {
+        let Some(p) = p else { continue };
+        let crate::report::Destination::Replace(p) = crate::report::destination(p) else { continue };
+        let marker = if html {
+            crate::report::html::page(
+                "tancheck: incomplete",
+                &format!(
+                    "<h1>Incomplete run</h1>\n<p>{}</p>\n<p>Routine: {}</p>\n",
+                    crate::report::html::esc(INCOMPLETE),
+                    crate::report::html::esc(routine)
+                ),
+            )
+        } else {
+            crate::report::junit::incomplete(routine, INCOMPLETE)?
+        };
+        replace_with_marker(&p, marker.into_bytes())?;
+    }
+    Ok(())
+}
 
 /// After a run that ended on bad input (exit 2): where the report file still holds this run's
 /// "incomplete" marker (nothing was written after it), put back what was there before (or
 /// remove the marker when there was nothing). The marker would say the run is still going
 /// or was killed, and the earlier report would be lost.
 pub fn restore_earlier_report() {
-    let Some(e) = EARLIER.lock().unwrap_or_else(|p| p.into_inner()).take() else { return };
-    if std::fs::read(&e.path).ok().as_deref() != Some(e.marker.as_slice()) {
-        return;
+    let earlier = std::mem::take(&mut *EARLIER.lock().unwrap_or_else(|p| p.into_inner()));
+    for e in earlier {
+        if std::fs::read(&e.path).ok().as_deref() != Some(e.marker.as_slice()) {
+            continue;
+        }
+        let _ = match &e.previous {
+            Some(bytes) => crate::report::write_atomic(&e.path, bytes),
+            None => std::fs::remove_file(&e.path),
+        };
     }
-    let _ = match &e.previous {
-        Some(bytes) => crate::report::write_atomic(&e.path, bytes),
-        None => std::fs::remove_file(&e.path),
-    };
 }
 
 fn write_marker(p: &Path, routine: &str) -> Result<()> {
@@ -215,12 +263,7 @@ fn write_marker(p: &Path, routine: &str) -> Result<()> {
             });
             let mut text = serde_json::to_vec_pretty(&marker)?;
             text.push(b'\n');
-            let previous =
-                std::fs::metadata(p).ok().filter(|m| m.is_file()).and_then(|_| std::fs::read(p).ok());
-            crate::report::write_atomic(p, &text)
-                .with_context(|| format!("replacing the report {} at the start of the run", p.display()))?;
-            *EARLIER.lock().unwrap_or_else(|e| e.into_inner()) =
-                Some(Earlier { path: p.to_path_buf(), previous, marker: text });
+            replace_with_marker(p, text)?;
         }
     }
     Ok(())
