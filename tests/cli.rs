@@ -385,6 +385,11 @@ fn time_limits_and_numbers_out_of_range_are_bad_input() {
             "path.peak",
         ),
         (r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [1, 2] } }"#, "properties"),
+        // A component both prescribed and held: the strain increment was dropped in silence.
+        (
+            r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] }, "path": { "increments": [ { "dstrain": [1e-3, 5e-4, 0, 0, 0, 0], "hold_stress": [null, 0, 0, 0, 0, 0] } ] } }"#,
+            "component 22 has a strain increment (0.0005) and a held stress (0)",
+        ),
     ] {
         let m = manifest(&d, "m.json", body);
         let o = bin().arg("check").arg(&m).output().unwrap();

@@ -87,3 +87,26 @@ fn newton_converges_quadratically_with_the_consistent_tangent_only() {
         assert!((p - 1.0).abs() < 0.25, "continuum orders {continuum:?}");
     }
 }
+
+/// A held stress the material cannot carry: perfect plasticity (yield 300 MPa, no hardening)
+/// with σ22 held at 400 MPa. No strain reaches it; Newton on the singular plastic tangent
+/// ran to strains of 1e12 and the increments were checked there, reported as a plain pass.
+/// Now every increment is checked at the iterate closest to the target within the strain a
+/// path may hold, and a coverage warning says the path asked for was not followed.
+#[test]
+fn a_held_stress_beyond_the_strength_is_not_reached_and_says_so() {
+    let props = [180000.0, 0.28, 300.0, 0.0, 0.0, 0.0, 0.0];
+    let hold = Some([None, Some(400.0), Some(0.0), Some(0.0), Some(0.0), Some(0.0)]);
+    let increments = (0..4).map(|_| PathIncrement {
+        hold_stress: hold,
+        ..PathIncrement::strain([2e-4, 0.0, 0.0, 0.0, 0.0, 0.0])
+    });
+    let path = Path { name: "σ22 held past the strength".into(), increments: increments.collect() };
+    let r = run("j2", &props, &path);
+    for inc in &r.increments {
+        assert!(!inc.solve.as_ref().unwrap().converged);
+        assert!(inc.strain.iter().all(|e| e.is_finite() && e.abs() <= 10.0 * 4.0), "{:?}", inc.strain);
+    }
+    let warned = r.coverage.iter().any(|c| c.contains("held stresses were not reached at 4 of 4 increments"));
+    assert!(warned, "{:?}", r.coverage);
+}

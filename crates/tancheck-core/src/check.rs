@@ -151,6 +151,18 @@ pub fn run_with(
                 .to_string(),
         );
     }
+    // Held stresses the solve did not reach: those increments are off the path asked for.
+    let off_path: Vec<&String> = notes.iter().filter(|n| n.contains(increment::HELD_NOT_REACHED)).collect();
+    if let Some(first) = off_path.first() {
+        coverage.push(format!(
+            "{} at {} of {} increments ({}): they were checked at the strain closest to them, not on the path \
+             asked for (a held stress the material cannot carry, past its strength, cannot be reached)",
+            increment::HELD_NOT_REACHED,
+            off_path.len(),
+            path.increments.len(),
+            first.split(':').next().unwrap_or("")
+        ));
+    }
     if !unloaded && !stopped && increments.len() > 1 {
         coverage.push(
             "the path never unloaded (the strain increment never opposed the stress): tangents after a load \

@@ -52,6 +52,13 @@ pub enum CoreError {
     #[error("increment {increment}: a held stress of {} is out of range (a finite number at most {max:e} in magnitude)", short(*value))]
     HeldStressOutOfRange { increment: usize, value: f64, max: f64 },
 
+    #[error(
+        "increment {increment}: component {component} has a strain increment ({}) and a held stress ({}); give one of them (set its dstrain entry to 0 to hold the stress, or its hold_stress entry to null to prescribe the strain)",
+        short(*dstrain),
+        short(*stress)
+    )]
+    HeldAndPrescribed { increment: usize, component: &'static str, dstrain: f64, stress: f64 },
+
     /// An increment number (from 1) beyond the path.
     #[error("increment {index} is not on the path ({count} increments)")]
     NotOnPath { index: usize, count: usize },

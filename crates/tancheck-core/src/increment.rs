@@ -28,6 +28,10 @@ pub struct Step {
 }
 
 /// Routine positions and targets of the stress components a mixed-control increment holds.
+/// Words of an increment's note when its mixed-control solve did not converge (the check's
+/// coverage warning counts these notes).
+pub(crate) const HELD_NOT_REACHED: &str = "the held stresses were not reached";
+
 pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
     let mut controlled = Vec::new();
     let mut targets = Vec::new();
@@ -110,7 +114,7 @@ impl<'s> Walk<'s> {
             Ok(log) => {
                 let note = (!log.converged).then(|| {
                 format!(
-                    "increment {}: the mixed-control solve did not converge (residuals {:?}); the increment is checked where it stopped",
+                    "increment {}: the mixed-control solve did not converge (residuals {:?}); {HELD_NOT_REACHED}, and the increment is checked at the iterate closest to them",
                     k + 1,
                     log.residuals
                 )

@@ -6,6 +6,7 @@
 use serde::{Deserialize, Serialize};
 
 use crate::driver::{Direction, Driver};
+use crate::path::MAX_STRAIN;
 use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 
@@ -52,7 +53,10 @@ impl SolveLog {
 
 /// Solve the current increment of `driver` so that the stresses of the components in
 /// `controlled` (routine order) reach `targets`; the other components keep their strain
-/// increments. On return the base call holds the converged state.
+/// increments. On return the base call holds the converged state; when the solve did not
+/// converge (a held stress the material cannot carry, a tangent too wrong for Newton), the
+/// iterate closest to the targets, not the last one: a diverging solve's last iterate can lie
+/// at strains of 1e12.
 pub fn solve(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
@@ -67,6 +71,8 @@ pub fn solve(
     let mut residuals = Vec::new();
     let mut numerical_fallback = !use_routine_tangent;
     let mut jac = vec![0.0; n * n];
+    // The iterate with the smallest residual so far.
+    let mut closest = (f64::INFINITY, dstrain.clone());
     for attempt in 0..2 {
         if attempt == 1 {
             if numerical_fallback {
@@ -82,6 +88,9 @@ pub fn solve(
             let r: Vec<f64> = (0..m).map(|k| driver.base.stress[controlled[k]] - targets[k]).collect();
             let norm = r.iter().map(|x| x * x).sum::<f64>().sqrt();
             residuals.push(norm);
+            if norm < closest.0 && within_limits(&dstrain) {
+                closest = (norm, dstrain.clone());
+            }
             if norm <= settings.stress_tol * scale {
                 return Ok(SolveLog { residuals, converged: true, numerical_fallback });
             }
@@ -109,8 +118,19 @@ pub fn solve(
                 }
             }
             let Some(delta) = solve_dense(&a, &r.iter().map(|x| -x).collect::<Vec<_>>(), m) else { break };
+            // A step that would leave the strain increments a path may hold is shortened to
+            // their limit: a singular tangent (perfect plasticity past a stress it cannot
+            // carry) sends Newton to strains of 1e12.
+            let mut shorten = 1.0f64;
             for (q, &j) in controlled.iter().enumerate() {
-                dstrain[j] += delta[q];
+                let next = dstrain[j] + delta[q];
+                if next.abs() > MAX_STRAIN {
+                    shorten =
+                        shorten.min(((MAX_STRAIN * next.signum() - dstrain[j]) / delta[q]).clamp(0.0, 1.0));
+                }
+            }
+            for (q, &j) in controlled.iter().enumerate() {
+                dstrain[j] += shorten * delta[q];
             }
         }
         // Restart from the prescribed increment with the numerical tangent.
@@ -119,7 +139,17 @@ pub fn solve(
             dstrain[j] = 0.0;
         }
     }
+    // Not converged: back to the closest iterate (the base call of the last one is replaced).
+    if closest.0.is_finite() {
+        driver.set_dstrain(&closest.1);
+        driver.base_call(caller)?;
+    }
     Ok(SolveLog { residuals, converged: false, numerical_fallback })
+}
+
+/// Whether every strain increment lies within what a path may hold ([`MAX_STRAIN`]).
+fn within_limits(dstrain: &[f64]) -> bool {
+    dstrain.iter().all(|d| d.abs() <= MAX_STRAIN)
 }
 
 /// Gaussian elimination with partial pivoting; `a` column-major m×m. None when singular.

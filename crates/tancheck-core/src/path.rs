@@ -171,6 +171,16 @@ impl Path {
                 if let Some(&value) = hold.iter().flatten().find(|x| !x.is_finite() || x.abs() > MAX_STRESS) {
                     return Err(CoreError::HeldStressOutOfRange { increment, value, max: MAX_STRESS });
                 }
+                // A component is prescribed or held, not both: the solve finds a held one's strain.
+                const LABELS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+                if let Some(i) = (0..6).find(|&i| hold[i].is_some() && inc.dstrain[i] != 0.0) {
+                    return Err(CoreError::HeldAndPrescribed {
+                        increment,
+                        component: LABELS[i],
+                        dstrain: inc.dstrain[i],
+                        stress: hold[i].unwrap_or_default(),
+                    });
+                }
             }
         }
         Ok(())
