@@ -177,3 +177,21 @@ fn the_issue_manifest_exits_zero() {
     let _ = std::fs::remove_dir_all(&dir);
     assert_eq!(out.status.code(), Some(0), "{}", String::from_utf8_lossy(&out.stdout));
 }
+
+/// A continuum tangent is named at the increment where yield begins and at the reverse yield
+/// too, not only once the whole increment is plastic: those increments cross into the plastic
+/// branch, their smaller fractions from the start stay elastic, and the cause trials now take
+/// the fractions of the part past the crossing (where the discrepancy of a continuum tangent
+/// shrinks in proportion to the plastic part; a standard result of the return map, Simo &
+/// Hughes 1998, from memory). Before, those increments read `unexplained`.
+#[test]
+fn a_continuum_tangent_is_named_where_the_increment_crosses_into_yield() {
+    let path = Path::ramp(tancheck::core::path::Shape::TensionShear, 4e-3, 8, 8);
+    let mut m = zoo_model("j2-continuum", PointKind::Solid3d).unwrap();
+    let r = run(&mut m, &WORKED, &path, &Settings::default());
+    let failed: Vec<_> = r.increments.iter().filter(|i| !i.passed()).collect();
+    assert!(failed.len() >= 8, "{}", summary(&r));
+    for inc in failed {
+        assert_eq!(inc.finding(), "continuum-tangent", "increment {}:\n{}", inc.index, summary(&r));
+    }
+}

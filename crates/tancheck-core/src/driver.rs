@@ -104,6 +104,9 @@ pub struct Driver {
     full_dstrain: Vec<f64>,
     dtemp: f64,
     dtime: f64,
+    /// The temperature and time increments as set, before any rescaling.
+    full_dtemp: f64,
+    full_dtime: f64,
     increment: i32,
     /// Outputs of the base call (the unperturbed increment).
     pub base: Outputs<f64>,
@@ -140,7 +143,9 @@ impl Driver {
             dstrain: vec![0.0; n],
             full_dstrain: vec![0.0; n],
             dtemp: 0.0,
+            full_dtemp: 0.0,
             dtime: 0.0,
+            full_dtime: 0.0,
             increment: 0,
             base: Outputs::new(n, info.nstate, f64::NAN),
             plus: Outputs::new(n, info.nstate, f64::NAN),
@@ -185,8 +190,8 @@ impl Driver {
         self.dstrain.copy_from_slice(dstrain);
         self.full_dstrain.copy_from_slice(dstrain);
         self.dstrain_changed();
-        self.dtemp = dtemp;
-        self.dtime = dtime;
+        (self.dtemp, self.full_dtemp) = (dtemp, dtemp);
+        (self.dtime, self.full_dtime) = (dtime, dtime);
         self.increment += 1;
         for i in 0..self.n {
             self.complex_inputs.strain[i] = Complex64::new(self.start.strain[i], 0.0);
@@ -203,12 +208,12 @@ impl Driver {
         self.dstrain.copy_from_slice(dstrain);
         self.full_dstrain.copy_from_slice(dstrain);
         self.dstrain_changed();
-        self.dtemp = dtemp;
+        (self.dtemp, self.full_dtemp) = (dtemp, dtemp);
     }
 
     /// Replace the time increment (the start state stays; the base call must be made again).
     pub fn set_dtime_keep_count(&mut self, dtime: f64) {
-        self.dtime = dtime;
+        (self.dtime, self.full_dtime) = (dtime, dtime);
     }
 
     /// Replace the strain increment (the start state stays; the base call must be made again).
@@ -218,12 +223,16 @@ impl Driver {
         self.dstrain_changed();
     }
 
-    /// Scale the strain increment to `s` times the one set by [`Driver::set_increment`]
-    /// (the start state stays). `rescale(1.0)` restores it; the base call must be made again.
+    /// Scale the increment to `s` times the one set by [`Driver::set_increment`] (the start
+    /// state stays): the strain and temperature increments by `s`, the time increment by
+    /// |s| (a fraction of the increment at the same rates; a reversed one takes time too).
+    /// `rescale(1.0)` restores it; the base call must be made again.
     pub fn rescale(&mut self, s: f64) {
         for (d, f) in self.dstrain.iter_mut().zip(&self.full_dstrain) {
             *d = s * f;
         }
+        self.dtemp = s * self.full_dtemp;
+        self.dtime = s.abs() * self.full_dtime;
         self.dstrain_changed();
     }
 
@@ -367,6 +376,8 @@ impl Driver {
         self.scratch_dstrain.copy_from_slice(&other.scratch_dstrain);
         self.dtemp = other.dtemp;
         self.dtime = other.dtime;
+        self.full_dtemp = other.full_dtemp;
+        self.full_dtime = other.full_dtime;
         self.increment = other.increment;
         let (c, o) = (&mut self.complex_inputs, &other.complex_inputs);
         c.strain.copy_from_slice(&o.strain);
@@ -552,5 +563,21 @@ mod tests {
             assert_eq!(r.complex[nc].0, cx(&now, Some((3, 1e-30))), "after {what}");
         }
         assert_eq!(d.dstrain(), &second.map(|x| 0.5 * x)[..], "rescale(0.5) halves the increment");
+    }
+
+    /// A fraction of an increment is a fraction of its temperature change too, at the same
+    /// rates (the cause trials' refined increments kept the whole temperature increment, and a
+    /// continuum tangent on a thermal path read as unexplained).
+    #[test]
+    fn rescale_scales_the_temperature_and_time_increments() {
+        let r = Recorder::new();
+        let mut d = Driver::new(&r.info, &[1.0], PointState::zero(&r.info, 20.0)).unwrap();
+        d.set_increment(&[8e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 16.0, 2.0);
+        d.rescale(0.125);
+        assert_eq!((d.dstrain()[0], d.dtemp(), d.dtime()), (1e-4, 2.0, 0.25));
+        d.rescale(-0.5);
+        assert_eq!((d.dstrain()[0], d.dtemp(), d.dtime()), (-4e-4, -8.0, 1.0));
+        d.rescale(1.0);
+        assert_eq!((d.dstrain()[0], d.dtemp(), d.dtime()), (8e-4, 16.0, 2.0));
     }
 }

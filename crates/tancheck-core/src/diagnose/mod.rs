@@ -235,6 +235,31 @@ pub fn run(
     })
 }
 
+/// Where an increment that crosses into its branch enters it: the smallest fraction of it
+/// found in the branch (bisection to 1e-9 of the increment, 30 base calls), when its start
+/// is outside and the whole increment inside. `None` when the fractions do not show one
+/// crossing (or a call faulted).
+fn branch_entry(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    in_branch: &dyn Fn(&mut Driver, &mut Caller<'_>, f64) -> Result<bool, Fault>,
+) -> Option<f64> {
+    let (mut lo, mut hi) = (0.0, 1.0);
+    if !in_branch(driver, caller, hi).ok()? {
+        return None;
+    }
+    for _ in 0..30 {
+        let mid = 0.5 * (lo + hi);
+        if in_branch(driver, caller, mid).ok()? {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    // Why 0.99: past that the part left is too small for three fractions of it to measure.
+    (hi < 0.99).then_some(hi)
+}
+
 /// The cause trials: the cleanest numerical tangent (the one-sided derivatives column by
 /// column at a kink; the complex step when the twin is trusted; else Richardson at a moderate
 /// step, never a tiny-step difference), the elastic tangent, refined increments.
@@ -279,18 +304,29 @@ fn cause_trials(
     let mut elastic = vec![0.0; n * n];
     driver.rescale(-0.5);
     let elastic_ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut elastic).is_ok();
-    // The discrepancy at smaller increments.
+    // The discrepancy at smaller increments: fractions of the increment, or of its part past
+    // the point where it enters its branch when it crosses into it.
+    let in_branch = |driver: &mut Driver, caller: &mut Caller<'_>, f: f64| -> Result<bool, Fault> {
+        driver.rescale(f);
+        driver.base_call(caller)?;
+        let changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
+        Ok(driver.base.outcome.branch == ctx.reported_branch && changed == ctx.state_changed)
+    };
+    let past = match in_branch(driver, caller, REFINE[REFINE.len() - 1]) {
+        Ok(false) => branch_entry(driver, caller, &in_branch).unwrap_or(0.0),
+        _ => 0.0,
+    };
     let mut errors = Vec::new();
     let mut same_branch = true;
     let mut num_s = vec![0.0; n * n];
     for s in REFINE {
-        driver.rescale(s);
-        if driver.base_call(caller).is_err() {
-            same_branch = false;
-            break;
+        match in_branch(driver, caller, past + (1.0 - past) * s) {
+            Ok(b) => same_branch &= b,
+            Err(_) => {
+                same_branch = false;
+                break;
+            }
         }
-        let changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
-        same_branch &= driver.base.outcome.branch == ctx.reported_branch && changed == ctx.state_changed;
         let ret = driver.base.tangent.clone();
         if best(driver, caller, &mut num_s).is_err() {
             same_branch = false;
@@ -300,7 +336,7 @@ fn cause_trials(
     }
     driver.rescale(1.0);
     driver.base_call(caller)?;
-    let rf = Refinement { fractions: REFINE[..errors.len()].to_vec(), errors, same_branch };
+    let rf = Refinement { fractions: REFINE[..errors.len()].to_vec(), errors, same_branch, past };
     let tol = if use_twin { settings.complex_step.tol } else { settings.central.tol };
     let ev = causes::Evidence {
         conv,

@@ -414,9 +414,14 @@ pub fn diagnosis(out: &mut dyn Write, d: &Diagnosis) -> io::Result<()> {
     if let Some(r) = &d.refinement {
         let e: Vec<String> =
             r.fractions.iter().zip(&r.errors).map(|(f, e)| format!("{f}×: {}", sci(*e))).collect();
+        let part = if r.past > 0.0 {
+            format!(" (of its part past {:.3}×, where it enters the branch)", r.past)
+        } else {
+            String::new()
+        };
         writeln!(
             out,
-            "          refined increments: {}{}",
+            "          refined increments{part}: {}{}",
             e.join(", "),
             if r.same_branch { "" } else { " (not all in the same branch)" }
         )?;

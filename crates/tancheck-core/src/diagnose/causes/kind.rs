@@ -128,6 +128,12 @@ pub struct Refinement {
     pub errors: Vec<f64>,
     /// Every refined increment reached the same branch as the full one.
     pub same_branch: bool,
+    /// The fractions are of the part of the increment past this fraction of it: where the
+    /// full increment's branch begins when the increment crosses into it (a first plastic
+    /// increment: its smaller fractions from the start stay elastic). 0 when every fraction
+    /// from the start reaches the branch.
+    #[serde(default)]
+    pub past: f64,
 }
 
 /// What the hypotheses are tested against.

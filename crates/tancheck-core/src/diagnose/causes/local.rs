@@ -86,7 +86,12 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
             let left =
                 (e[k] - (e[k - 1] - e[k]) / (rf.fractions[k - 1] - rf.fractions[k]) * rf.fractions[k]).abs();
             let fr: Vec<String> = rf.fractions.iter().zip(e).map(|(f, x)| format!("{f}: {x:.2e}")).collect();
-            let detail = format!("the discrepancy shrinks with the increment ({})", fr.join(", "));
+            let part = if rf.past > 0.0 {
+                format!(" (its part past {:.3} of it, where it enters the branch)", rf.past)
+            } else {
+                String::new()
+            };
+            let detail = format!("the discrepancy shrinks with the increment{part} ({})", fr.join(", "));
             // Explained by the linear decay, not by the size of what is left.
             found.push(
                 Cause::ContinuumTangent,
