@@ -42,8 +42,12 @@ pub fn rank_dtemp(
         });
     }
     let rr: f64 = returned.iter().map(|x| x * x).sum();
-    if rr > 0.0 {
-        let c: f64 = returned.iter().zip(numerical).map(|(a, b)| a * b).sum::<f64>() / rr;
+    let nn: f64 = numerical.iter().map(|x| x * x).sum();
+    let c: f64 =
+        if rr > 0.0 { returned.iter().zip(numerical).map(|(a, b)| a * b).sum::<f64>() / rr } else { 1.0 };
+    // As for the tangent (causes::layout): a factor within 1e-6 of 1 is no scaling, and a zero
+    // derivative is no factor.
+    if rr > 0.0 && (c - 1.0).abs() > 1e-6 && nn > 1e-24 * rr {
         let s: Vec<f64> = returned.iter().map(|x| c * x).collect();
         let e = err(&s);
         hs.push(Hypothesis {
@@ -58,7 +62,14 @@ pub fn rank_dtemp(
     // isotropic law): one of the two terms of ∂σ/∂T left out.
     let n = returned.len();
     let d: Vec<f64> = numerical.iter().zip(returned).map(|(a, b)| a - b).collect();
-    let mut along = |dir: &[f64], what: &str| {
+    let hydro: Vec<f64> = conv.order().iter().take(n).map(|c| if c.is_shear() { 0.0 } else { 1.0 }).collect();
+    let cohesive = conv.kind().is_cohesive();
+    // The returned and the numerical ∂σ/∂T as a·σ + b·1 (isotropic thermo-elasticity's two
+    // terms), when both lie in that plane: what the routine made of a term, left out (a′ = 0),
+    // of the wrong sign (a′ = −a) or scaled.
+    let terms =
+        (!cohesive).then(|| two_terms(stress, &hydro, returned).zip(two_terms(stress, &hydro, numerical)));
+    let mut along = |dir: &[f64], what: &str, term: Option<(f64, f64)>| {
         let dd: f64 = dir.iter().map(|x| x * x).sum();
         if dd <= 0.0 || returned.iter().all(|&x| x == 0.0) {
             return;
@@ -66,17 +77,27 @@ pub fn rank_dtemp(
         let c: f64 = d.iter().zip(dir).map(|(a, b)| a * b).sum::<f64>() / dd;
         let corrected: Vec<f64> = returned.iter().zip(dir).map(|(r, x)| r + c * x).collect();
         let e = err(&corrected);
-        hs.push(Hypothesis {
-            cause: Cause::PartialDtemp,
-            detail: format!("∂σ/∂T misses its term {what}"),
-            error_left: e,
-            explains: e <= level,
-        });
+        // Why 0.05: a term read from two fits of the same plane; 5 % tells a sign or a
+        // missing term from a factor, far above the fits' rounding.
+        let detail = match term {
+            Some((mine, truth)) if truth != 0.0 && (mine + truth).abs() <= 0.05 * truth.abs() => {
+                format!("∂σ/∂T has its term {what} with the wrong sign")
+            }
+            Some((mine, truth)) if truth != 0.0 && mine.abs() > 0.05 * truth.abs() => {
+                format!("∂σ/∂T has its term {what} off by a factor {:.4}", mine / truth)
+            }
+            _ => format!("∂σ/∂T misses its term {what}"),
+        };
+        hs.push(Hypothesis { cause: Cause::PartialDtemp, detail, error_left: e, explains: e <= level });
     };
-    along(stress, "along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th))");
-    let hydro: Vec<f64> = conv.order().iter().take(n).map(|c| if c.is_shear() { 0.0 } else { 1.0 }).collect();
-    if !conv.kind().is_cohesive() {
-        along(&hydro, "along C:1 (the thermal expansion, −C:1 ε_th′)");
+    let flat = terms.flatten();
+    along(
+        stress,
+        "along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th))",
+        flat.map(|(r, t)| (r.0, t.0)),
+    );
+    if !cohesive {
+        along(&hydro, "along C:1 (the thermal expansion, −C:1 ε_th′)", flat.map(|(r, t)| (r.1, t.1)));
     }
     let spec = |c: Cause| if c == Cause::PartialDtemp { 1 } else { 0 };
     hs.sort_by(|a, b| {
@@ -88,4 +109,22 @@ pub fn rank_dtemp(
             .then_with(|| a.error_left.total_cmp(&b.error_left))
     });
     hs
+}
+
+/// `v` as a·s + b·h by least squares, when `s` and `h` span a plane (not parallel: a
+/// hydrostatic stress leaves the two terms apart only together) and `v` lies in it (to
+/// 1e-6 of its size): `Some((a, b))`.
+fn two_terms(s: &[f64], h: &[f64], v: &[f64]) -> Option<(f64, f64)> {
+    let dot = |x: &[f64], y: &[f64]| x.iter().zip(y).map(|(a, b)| a * b).sum::<f64>();
+    let (ss, hh, sh) = (dot(s, s), dot(h, h), dot(s, h));
+    let det = ss * hh - sh * sh;
+    // Why 1e-6: below it the two directions are parallel to the precision of the fit.
+    if det.is_nan() || det <= 1e-6 * ss * hh {
+        return None;
+    }
+    let (vs, vh) = (dot(v, s), dot(v, h));
+    let a = (vs * hh - vh * sh) / det;
+    let b = (vh * ss - vs * sh) / det;
+    let left: f64 = v.iter().zip(s.iter().zip(h)).map(|(x, (p, q))| (x - a * p - b * q).powi(2)).sum();
+    (left.sqrt() <= 1e-6 * dot(v, v).sqrt()).then_some((a, b))
 }

@@ -84,8 +84,11 @@ pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
     let rr: f64 = r.iter().map(|x| x * x).sum();
     if rr > 0.0 {
         let c: f64 = r.iter().zip(ev.numerical).map(|(a, b)| a * b).sum::<f64>() / rr;
+        let nn: f64 = ev.numerical.iter().map(|x| x * x).sum();
         // Why 1e-6: the check's own resolution; a factor closer to 1 than that is no scaling.
-        if (c - 1.0).abs() > 1e-6 {
+        // A zero derivative (a fully failed point) is no factor of the returned tangent (it
+        // read "off by a factor inf" and ranked first).
+        if (c - 1.0).abs() > 1e-6 && nn > 1e-24 * rr {
             let scaled: Vec<f64> = r.iter().map(|x| c * x).collect();
             found.push(
                 Cause::UniformScale,

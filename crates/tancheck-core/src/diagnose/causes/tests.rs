@@ -132,3 +132,42 @@ fn symmetrized_single_entry_and_rank_two_are_named() {
     let h = rank(&ev(&conv, &two, &good, &z));
     assert_eq!(h[0].cause, Cause::RankTwo, "{:?}", &h[..2]);
 }
+
+/// ∂σ/∂T of isotropic thermo-elasticity is a·σ + b·1 (its stiffness term along the stress,
+/// its expansion term along C:1; the standard split, from memory). One term left out is
+/// "misses", one of the wrong sign says so (it read "misses", and the author looked for a term
+/// that was there), one scaled names its factor.
+#[test]
+fn a_dtemp_term_of_the_wrong_sign_is_told_from_a_missing_one() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let stress = [120.0, 40.0, -10.0, 5.0, 0.0, 30.0];
+    let (a, b) = (-2e-3, -4.5);
+    let dt = |a: f64, b: f64| -> Vec<f64> {
+        (0..6).map(|i| a * stress[i] + if i < 3 { b } else { 0.0 }).collect()
+    };
+    let truth = dt(a, b);
+    for (returned, words) in [
+        (dt(a, 0.0), "misses its term along C:1"),
+        (dt(a, -b), "has its term along C:1 (the thermal expansion, −C:1 ε_th′) with the wrong sign"),
+        (dt(-a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th)) with the wrong sign"),
+        (dt(0.5 * a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th)) off by a factor 0.5000"),
+    ] {
+        let hs = rank_dtemp(&conv, &returned, &truth, &stress, 1e-6, 1e-2);
+        assert!(hs[0].explains && hs[0].detail.contains(words), "{words}: {hs:?}");
+    }
+    // A zero ∂σ/∂T is no factor of a returned one, and a factor of 1 is no scaling.
+    let hs = rank_dtemp(&conv, &dt(a, b), &[0.0; 6], &stress, 1e-6, 1e-2);
+    assert!(hs.iter().all(|h| !h.detail.contains("factor")), "{hs:?}");
+}
+
+/// A zero derivative (a fully failed point) is no factor of the returned tangent: "off by a
+/// factor inf" was ranked first there.
+#[test]
+fn a_zero_derivative_is_no_factor_of_the_tangent() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let r = j2_like();
+    let zero = vec![0.0; 36];
+    let z = vec![0.0; 6];
+    let hs = rank(&ev(&conv, &r, &zero, &z));
+    assert!(hs.iter().all(|h| h.cause != Cause::UniformScale), "{hs:?}");
+}
