@@ -44,3 +44,26 @@ fn failures_are_counted_per_branch() {
     assert_eq!(plastic.failed, plastic.increments, "{plastic:?}");
     assert_eq!(elastic.failed, 0, "{elastic:?}");
 }
+
+/// A path that changes the temperature and a routine that never returns ∂σ/∂T: nothing of the
+/// temperature coupling was checked, and the report says so (it passed in silence). A routine
+/// that returns it gets no such warning.
+#[test]
+fn a_temperature_path_without_a_returned_dtemp_is_flagged() {
+    let mut path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    for inc in &mut path.increments {
+        inc.dtemp = 25.0;
+    }
+    let r = run("elastic", &path);
+    assert!(r.coverage.iter().any(|c| c.contains("never returned ∂σ/∂T")), "{:?}", r.coverage);
+    let mut m = reference("thermo", PointKind::Solid3d).unwrap();
+    let info = m.info().clone();
+    let mut caller = Caller::new(&mut m);
+    let props = [210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0];
+    let r =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
+    // Without a temperature change, no warning either.
+    let r = run("elastic", &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
+    assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
+}

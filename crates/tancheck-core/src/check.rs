@@ -151,6 +151,17 @@ pub fn run_with(
                 .to_string(),
         );
     }
+    // A path that changes the temperature, and a routine that never returned ∂σ/∂T: nothing
+    // of the temperature coupling was checked, and a coupled solver's tangent lacks it.
+    if !increments.dtemp_checked && !increments.is_empty() && path.increments.iter().any(|i| i.dtemp != 0.0) {
+        coverage.push(
+            "the path changes the temperature, but the routine never returned ∂σ/∂T (its report's provides \
+             never had TC_PROVIDES_DSTRESS_DTEMP, tc_provides_dstress_dtemp in Fortran): the stress's \
+             temperature derivative was not checked; a routine whose stress depends on the temperature \
+             gives it for a coupled solver"
+                .to_string(),
+        );
+    }
     // Held stresses the solve did not reach: those increments are off the path asked for.
     let off_path: Vec<&String> = notes.iter().filter(|n| n.contains(increment::HELD_NOT_REACHED)).collect();
     if let Some(first) = off_path.first() {

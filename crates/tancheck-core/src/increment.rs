@@ -156,6 +156,7 @@ impl<'s> Walk<'s> {
             Err(fault) => return self.faulted(k, fault, solve_log, unloaded, note, collected),
         };
         let (branch, state_changed) = (me.reported_branch(), me.state_changed);
+        let dtemp_checked = me.returns_dtemp();
         // A newly reached branch gets the full guards after its judgement; the increment is
         // then judged in full (once per branch), as one whose guards find a fault must be.
         let new_branch = settings.first_calls && reached.first(branch, state_changed);
@@ -202,6 +203,7 @@ impl<'s> Walk<'s> {
                     strain: &s.strain,
                     stress: &s.stress,
                     schemes,
+                    dtemp_checked,
                 });
             }
             (None, None) => unreachable!("an increment is judged in full unless it passed"),

@@ -160,6 +160,11 @@ impl Measurement {
         (self.reported >= 0).then_some(self.reported)
     }
 
+    /// Whether the base call returned ∂σ/∂T (and the schemes measured it).
+    pub fn returns_dtemp(&self) -> bool {
+        self.returned_dtemp.is_some()
+    }
+
     /// The sharpest numerical tangent measured (see [`CallCheck::best`]), column-major.
     pub fn best(&self) -> Option<&[f64]> {
         self.best_at.map(|b| &self.measured[b].tangent[..self.n * self.n])

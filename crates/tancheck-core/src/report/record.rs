@@ -198,6 +198,8 @@ pub struct PassedIncrement<'a> {
     pub stress: &'a [f64],
     /// Per scheme, in the settings' order: its passing comparison, `None` when skipped.
     pub schemes: [Option<PassedScheme>; RECORD_SCHEMES],
+    /// The routine returned ∂σ/∂T (and it was checked).
+    pub dtemp_checked: bool,
 }
 
 /// Which increments a report keeps in full detail.
@@ -227,6 +229,8 @@ pub struct Collector {
     pub(crate) all_passed: bool,
     pub(crate) twin_unsafe: bool,
     pub(crate) state_ever_changed: bool,
+    /// Some increment's routine returned ∂σ/∂T (and it was checked).
+    pub(crate) dtemp_checked: bool,
 }
 
 impl Collector {
@@ -256,6 +260,7 @@ impl Collector {
             all_passed: true,
             twin_unsafe: false,
             state_ever_changed: false,
+            dtemp_checked: false,
         }
     }
 
@@ -307,6 +312,7 @@ impl Collector {
         self.all_passed &= record.pass;
         self.twin_unsafe |= inc.diagnosis.as_ref().is_some_and(|d| d.twin_unsafe);
         self.state_ever_changed |= inc.state_changed;
+        self.dtemp_checked |= inc.checks.iter().any(|c| c.dstress_dtemp.is_some());
         self.records.push(record);
         let full = match self.keep {
             Keep::All => true,
@@ -362,6 +368,7 @@ impl Collector {
         b.increments += 1;
         b.worst_error = b.worst_error.max(worst);
         self.state_ever_changed |= inc.state_changed;
+        self.dtemp_checked |= inc.dtemp_checked;
         self.records.push(record);
     }
 
@@ -424,6 +431,7 @@ impl Collector {
         self.all_passed &= other.all_passed;
         self.twin_unsafe |= other.twin_unsafe;
         self.state_ever_changed |= other.state_ever_changed;
+        self.dtemp_checked |= other.dtemp_checked;
         self.records.extend(other.records);
         self.increments.extend(other.increments);
     }
