@@ -149,6 +149,23 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
     if let Some((k, f)) = report.first_fault_at() {
         let _ = write!(s, "; fault in increment {k}: {}", f.message);
     }
+    // Why a failed check failed: outputs that are not finite numbers (the counts above may
+    // then show no failed comparison), or the finding over the path.
+    if report.verdict == Verdict::TangentFailure {
+        match report.increments.iter().find(|i| !i.non_finite.is_empty()) {
+            Some(i) => {
+                let _ = write!(
+                    s,
+                    "; increment {}: the routine returned values that are not finite numbers ({})",
+                    i.index,
+                    i.non_finite.join(", ")
+                );
+            }
+            None => {
+                let _ = write!(s, "; finding {}", report.finding());
+            }
+        }
+    }
     if let Some(f) = findings.first() {
         let more =
             if findings.len() > 1 { format!(" (and {} more)", findings.len() - 1) } else { String::new() };

@@ -286,13 +286,19 @@ impl Options {
         let mut start = PointState::zero(&info, self.temperature);
         // SAFETY: the caller's contract on the start arrays.
         unsafe {
-            for (field, p, len, dst) in [
-                ("state0", self.state0, nstate, &mut start.state),
-                ("strain0", self.strain0, n, &mut start.strain),
-                ("stress0", self.stress0, n, &mut start.stress),
+            // The limits a manifest's start state has (the command line refuses the same).
+            for (field, p, len, dst, max) in [
+                ("state0", self.state0, nstate, &mut start.state, f64::MAX),
+                ("strain0", self.strain0, n, &mut start.strain, tancheck_core::path::MAX_STRAIN),
+                ("stress0", self.stress0, n, &mut start.stress, tancheck_core::path::MAX_STRESS),
             ] {
                 if let Some(v) = slice(p, len) {
                     finite(field, v)?;
+                    if let Some(x) = v.iter().find(|x| x.abs() > max) {
+                        return Err(Failure::invalid(format!(
+                            "tck_options.{field} has {x:e}; every entry must be at most {max:e} in magnitude"
+                        )));
+                    }
                     dst.copy_from_slice(v);
                 }
             }
@@ -472,6 +478,31 @@ mod tests {
             let mut o = Options::default();
             change(&mut o);
             // SAFETY: all pointers NULL.
+            let e = unsafe { o.plan() }.unwrap_err();
+            assert!(e.message.contains(want), "{} does not contain {want}", e.message);
+        }
+    }
+
+    /// The start state's limits are a manifest's (the command line refused these, the C API
+    /// ran them).
+    #[test]
+    fn a_start_state_out_of_range_is_refused() {
+        static BIG_STRESS: [f64; 6] = [2e15, 0.0, 0.0, 0.0, 0.0, 0.0];
+        static BIG_STRAIN: [f64; 6] = [0.0, 11.0, 0.0, 0.0, 0.0, 0.0];
+        for (stress0, strain0, want) in [
+            (
+                BIG_STRESS.as_ptr(),
+                std::ptr::null(),
+                "tck_options.stress0 has 2e15; every entry must be at most 1e15",
+            ),
+            (
+                std::ptr::null(),
+                BIG_STRAIN.as_ptr(),
+                "tck_options.strain0 has 1.1e1; every entry must be at most 1e1",
+            ),
+        ] {
+            let o = Options { stress0, strain0, ..Options::default() };
+            // SAFETY: the start arrays hold 6 entries, the other pointers are NULL.
             let e = unsafe { o.plan() }.unwrap_err();
             assert!(e.message.contains(want), "{} does not contain {want}", e.message);
         }

@@ -38,6 +38,8 @@ fn the_c_program_passes_the_consistent_j2_and_fails_the_continuum_one() {
     assert_eq!(out.status.code(), Some(0), "stdout:\n{stdout}\nstderr:\n{stderr}");
     assert!(stdout.contains("\nPASS c_j2: central: 0 of 12 checks failed"), "{stdout}");
     assert!(stdout.contains("\nFAIL c_j2_continuum: central: 8 of 12 checks failed"), "{stdout}");
+    // The summary says why it failed.
+    assert!(stdout.contains("; finding continuum-tangent"), "{stdout}");
     assert!(!stdout.contains("guard:"), "the J2 routine is clean under full guards:\n{stdout}");
     assert!(stdout.ends_with("as expected: c_j2 passes, c_j2_continuum fails\n"), "{stdout}");
 }
