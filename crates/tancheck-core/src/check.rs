@@ -48,6 +48,7 @@ pub fn run_with(
         return Err(CoreError::ComplexStepWithoutTwin(info.name.clone()));
     }
     let mut notes = Vec::new();
+    notes.extend(dropped_entries(&conv, path));
     if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
         notes.push(format!(
             "complex-step checks skipped: {} has no complex twin (build it with `tancheck build`, \
@@ -283,4 +284,36 @@ impl Merged {
             }
         }
     }
+}
+
+/// A note when the path's strain increments have non-zero entries in slots the routine's kind
+/// does not have (a cohesive point takes n, s1, s2 from slots 11, 22, 33; a uniaxial one 11
+/// only): those entries are left out of its increments, which the user may not expect.
+fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
+    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+    let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
+    let mut dropped = [false; 6];
+    let mut first = None;
+    for (k, inc) in path.increments.iter().enumerate() {
+        for (slot, &d) in inc.dstrain.iter().enumerate() {
+            if d != 0.0 && !used.contains(&slot) {
+                dropped[slot] = true;
+                first.get_or_insert(k + 1);
+            }
+        }
+    }
+    let first = first?;
+    let names: Vec<&str> = (0..6).filter(|&i| dropped[i]).map(|i| SLOTS[i]).collect();
+    let takes: Vec<String> = conv
+        .order()
+        .iter()
+        .map(|&c| format!("{} from slot {}", c.label(), SLOTS[crate::convention::canonical_slot(c)]))
+        .collect();
+    Some(format!(
+        "the path's strain increments have entries in slot{} {} (first at increment {first}), which a {} point does not have ({}): they were left out",
+        if names.len() == 1 { "" } else { "s" },
+        names.join(", "),
+        conv.kind().name(),
+        takes.join(", ")
+    ))
 }
