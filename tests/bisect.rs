@@ -436,3 +436,37 @@ fn the_readable_output_names_branch_increment_and_fraction() {
     assert!(t.contains("case written: ") && t.contains("my-cases"), "{t}");
     assert_eq!(std::fs::read_dir(&cases).unwrap().count(), 2);
 }
+
+/// A failure of ∂σ/∂T alone (its thermal-expansion term left out): the bisection's classes
+/// say ∂σ/∂T differs, its error is ∂σ/∂T's, and no step study of the strain columns speaks
+/// for it (it said "the tangent differs (error 1e-14)" and "truncation of the default step,
+/// not a mismatch"). The replay of its case prints ∂σ/∂T and says that ∂σ/∂T still differs.
+#[test]
+fn a_dtemp_failure_is_bisected_and_replayed_as_one() {
+    let d = scratch("bisect-dtemp");
+    let routine = routine_json(
+        Source::Model("thermo-partial-dtemp"),
+        "solid-3d",
+        &[210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0],
+    );
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            "{{ \"routine\": {routine}, \"start\": {{\"temperature\": 20}},\n  \"path\": {{\"shape\": \"tension-shear\", \"peak\": 0.002, \"steps\": 6, \"dtemp\": 60}} }}\n"
+        ),
+    )
+    .unwrap();
+    let cases = d.join("cases");
+    let o = bin().arg("bisect").arg(&m).arg("--case-dir").arg(&cases).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{t}");
+    assert!(t.contains("finding dtemp-partial"), "{t}");
+    assert!(!t.contains("the tangent differs") && !t.contains("truncation of the default step"), "{t}");
+    let case = std::fs::read_dir(&cases).unwrap().next().unwrap().unwrap().path();
+    let o = bin().arg("replay").arg(&case).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{t}");
+    assert!(t.contains("DIFFERS  ∂σ/∂T norm error"), "{t}");
+    assert!(t.contains("the returned ∂σ/∂T still differs"), "{t}");
+}

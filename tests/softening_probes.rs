@@ -133,3 +133,14 @@ fn regularisation_passes_the_cohesive_law_and_fails_a_law_of_another_area() {
     assert_eq!(r.status, ProbeStatus::Fail, "{} {:?}", r.summary, r.details);
     assert!(r.summary.contains("declared fracture energy"), "{}", r.summary);
 }
+
+/// A cohesive law's dissipated energy is per unit area: the probe says so and multiplies no
+/// length ("× L" and "L = 1 per unit volume" were printed for it).
+#[test]
+fn regularisation_of_a_cohesive_law_speaks_of_energy_per_unit_area() {
+    let p = path("mode I opening to full failure", 1.0, &[([2.5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], 50)]);
+    let mut good = ModelRoutine(Cohesive::new(PointKind::Cohesive3d).unwrap());
+    let r = probe(&mut good, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
+    assert!(r.summary.contains("per unit area") && !r.summary.contains("× L"), "{}", r.summary);
+    assert!(r.details.iter().all(|d| !d.contains("L =")), "{:?}", r.details);
+}

@@ -202,7 +202,15 @@ pub fn capture(
     let (mut driver, previous) =
         bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
     let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
-    if judged.as_ref().is_ok_and(|c| c.passed()) {
+    let faulted = located.finding == tancheck_core::call_check::FAULT_FINDING;
+    let passed_again = judged.as_ref().is_ok_and(|c| c.passed());
+    if passed_again && faulted {
+        // A memory guard reports a finding once per run: the call made again shows nothing.
+        warnings.push(format!(
+            "increment {index} faulted in the check, and its call made again on its own did not (a memory \
+             guard reports each finding once per run; `tancheck replay` of the case shows it again)"
+        ));
+    } else if passed_again {
         warnings.push(format!(
             "increment {index} passed when checked again on its own: the routine does not repeat its results \
              (hidden state between calls?)"
@@ -218,7 +226,7 @@ pub fn capture(
         crossing: CaseOrigin::crossing_of(&located.inside),
         shrunk_from,
     };
-    Ok(Case::capture(
+    let mut case = Case::capture(
         spec.clone(),
         &driver,
         judged.as_ref(),
@@ -226,5 +234,12 @@ pub fn capture(
         settings,
         origin,
         Some((start, &prefix)),
-    ))
+    );
+    // The case records what the check found at the increment.
+    if faulted && case.probe.pass {
+        case.probe.pass = false;
+        case.probe.finding = tancheck_core::call_check::FAULT_FINDING.to_string();
+        case.probe.reason = Some("the increment faulted in the check (see its report)".into());
+    }
+    Ok(case)
 }

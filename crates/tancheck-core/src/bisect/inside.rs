@@ -9,7 +9,7 @@ use crate::diagnose::study;
 use crate::driver::{Driver, PointState};
 use crate::error::CoreError;
 use crate::path::Path;
-use crate::report::Report;
+use crate::report::{CheckOutcome, Report};
 use crate::routine::Caller;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -28,18 +28,34 @@ fn classify(driver: &mut Driver, caller: &mut Caller<'_>, judge: &Settings, full
             (CallClass { reported_branch: None, state_changed: false, judgement: Judgement::Fault }, 0.0)
         }
         Ok(c) => {
+            let tangent_ok =
+                c.checks.iter().all(|s| !matches!(&s.tangent, CheckOutcome::Compared(x) if !x.pass));
             let judgement = if !c.non_finite.is_empty() {
                 Judgement::NonFinite
             } else if c.faulted() {
                 Judgement::Fault
             } else if c.passed() {
                 Judgement::Agrees
+            } else if tangent_ok {
+                Judgement::DtempDiffers
             } else {
                 Judgement::Differs
             };
+            // Where only ∂σ/∂T fails, its error is the one that tells the classes apart.
+            let error = if judgement == Judgement::DtempDiffers {
+                c.checks
+                    .iter()
+                    .filter_map(|s| match &s.dstress_dtemp {
+                        Some(CheckOutcome::Compared(x)) => Some(x.error()),
+                        _ => None,
+                    })
+                    .fold(0.0, f64::max)
+            } else {
+                c.worst_error()
+            };
             (
                 CallClass { reported_branch: c.reported_branch, state_changed: c.state_changed, judgement },
-                c.worst_error(),
+                error,
             )
         }
     };
@@ -131,7 +147,13 @@ pub fn locate(
         })
         .fold(f64::INFINITY, f64::min);
     let failed_tol = if failed_tol.is_finite() { failed_tol } else { settings.central.tol };
+    // The studies measure the strain columns: they speak to a failed tangent only, not to a
+    // fault (a guard finding, a crash) or a failure of ∂σ/∂T alone, where their "converges"
+    // read as "truncation of the default step, not a mismatch".
+    let tangent_failed = failed.fault.is_none()
+        && failed.checks.iter().any(|c| matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass));
     let step = match driver.base_call(caller) {
+        _ if !tangent_failed => None,
         Err(_) => None,
         // The check's own studies of this increment, when its diagnosis ran: the same
         // evidence and the same classification give the same finding.

@@ -15,6 +15,8 @@ pub enum Judgement {
     Agrees,
     /// It is not.
     Differs,
+    /// The tangent is, but the returned ∂σ/∂T is not the temperature derivative.
+    DtempDiffers,
     /// An output is not a finite number.
     NonFinite,
     /// The call (or a perturbed call) crashed or returned a failed status.
@@ -40,6 +42,7 @@ impl CallClass {
         match self.judgement {
             Judgement::Agrees => "the tangent agrees",
             Judgement::Differs => "the tangent differs",
+            Judgement::DtempDiffers => "∂σ/∂T differs",
             Judgement::NonFinite => "an output is not finite",
             Judgement::Fault => "the call faults",
         }
@@ -51,7 +54,8 @@ impl CallClass {
 pub struct Sample {
     pub fraction: f64,
     pub class: CallClass,
-    /// The tangent error of the judging scheme (0 when it did not compare).
+    /// The tangent error of the judging scheme (0 when it did not compare); its ∂σ/∂T error
+    /// when only that failed.
     pub error: f64,
 }
 

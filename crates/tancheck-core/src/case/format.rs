@@ -170,6 +170,46 @@ pub struct ProbeCheck {
     /// Why it was skipped, or the fault's message.
     #[serde(default)]
     pub detail: Option<String>,
+    /// The ∂σ/∂T comparison of the same scheme, when the routine returned ∂σ/∂T (`pass` above
+    /// holds both; the numbers above are the tangent's).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub dtemp: Option<ProbeDtemp>,
+}
+
+/// One scheme's ∂σ/∂T comparison.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+#[serde(deny_unknown_fields)]
+pub struct ProbeDtemp {
+    pub pass: bool,
+    pub tol: Option<f64>,
+    pub norm_error: Option<f64>,
+    pub worst_entry_error: Option<f64>,
+    #[serde(default)]
+    pub worst: Vec<ProbeEntry>,
+}
+
+impl ProbeCheck {
+    /// Whether the tangent itself (not ∂σ/∂T) agreed: `pass` unless only ∂σ/∂T failed.
+    pub fn tangent_pass(&self) -> bool {
+        self.pass
+            || self.dtemp.as_ref().is_some_and(|d| !d.pass) && self.outcome == "compared" && {
+                // The tangent's own numbers within its tolerance.
+                let tol = self.tol.unwrap_or(0.0);
+                self.norm_error.is_some_and(|e| e <= tol) && self.worst_entry_error.is_some_and(|e| e <= tol)
+            }
+    }
+}
+
+fn entries(x: &crate::compare::Comparison) -> Vec<ProbeEntry> {
+    x.worst
+        .iter()
+        .map(|e| ProbeEntry {
+            label: e.label.to_string(),
+            returned: finite(e.returned),
+            numerical: finite(e.numerical),
+            error: finite(e.error),
+        })
+        .collect()
 }
 
 pub(super) fn finite(x: f64) -> Option<f64> {
@@ -192,6 +232,16 @@ impl ProbeCheck {
                     pass: s.passed(),
                     worst: Vec::new(),
                     detail: None,
+                    dtemp: match &s.dstress_dtemp {
+                        Some(CheckOutcome::Compared(x)) => Some(ProbeDtemp {
+                            pass: x.pass,
+                            tol: Some(x.tol),
+                            norm_error: finite(x.norm_error),
+                            worst_entry_error: finite(x.worst_entry_error),
+                            worst: entries(x),
+                        }),
+                        _ => None,
+                    },
                 };
                 match &s.tangent {
                     CheckOutcome::Compared(x) => {
@@ -199,16 +249,7 @@ impl ProbeCheck {
                         p.tol = Some(x.tol);
                         p.norm_error = finite(x.norm_error);
                         p.worst_entry_error = finite(x.worst_entry_error);
-                        p.worst = x
-                            .worst
-                            .iter()
-                            .map(|e| ProbeEntry {
-                                label: e.label.to_string(),
-                                returned: finite(e.returned),
-                                numerical: finite(e.numerical),
-                                error: finite(e.error),
-                            })
-                            .collect();
+                        p.worst = entries(x);
                     }
                     CheckOutcome::Skipped { reason } => {
                         p.outcome = "skipped".into();

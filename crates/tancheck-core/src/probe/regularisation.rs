@@ -108,7 +108,12 @@ impl Probe for Regularisation {
         }
         let l = length.map_or(1.0, |i| env.props[i]);
         let gl = w * l;
-        let mut details = vec![format!("W = {w:.6e} per unit volume, L = {l:.6e}: W·L = {gl:.6e}")];
+        // A cohesive law's work ∫ t·dδ is already per unit area: no length multiplies it.
+        let mut details = if caller.info().convention.kind().is_cohesive() && length.is_none() {
+            vec![format!("W = ∫ t·dδ = {w:.6e} per unit area (a cohesive law's dissipated energy)")]
+        } else {
+            vec![format!("W = {w:.6e} per unit volume, L = {l:.6e}: W·L = {gl:.6e}")]
+        };
         let mut worst = 0.0_f64;
         let mut what = String::new();
         if let Some(i) = length {
@@ -138,21 +143,27 @@ impl Probe for Regularisation {
                 what = format!("W·L changes with L: {gl:.6e} at L, {gl2:.6e} at L/2 (the length is not in the softening law)");
             }
         }
+        let per_area = caller.info().convention.kind().is_cohesive() && length.is_none();
         if let Some(g) = g {
             let r = (gl - g).abs() / g.abs().max(1e-300);
             if r > worst {
                 worst = r;
-                what = format!("W·L = {gl:.6e} but the declared fracture energy is {g:.6e}");
+                what = if per_area {
+                    format!("W = {gl:.6e} but the declared fracture energy is {g:.6e}")
+                } else {
+                    format!("W·L = {gl:.6e} but the declared fracture energy is {g:.6e}")
+                };
             }
         }
         let mut res = if worst <= tol {
-            ProbeResult::new(
-                name,
-                ProbeStatus::Pass,
+            let words = if per_area {
+                format!("dissipated energy per unit area {gl:.6e}, as declared (within {worst:.1e})")
+            } else {
                 format!(
                     "dissipated energy × L = {gl:.6e}, as declared and independent of L (within {worst:.1e})"
-                ),
-            )
+                )
+            };
+            ProbeResult::new(name, ProbeStatus::Pass, words)
         } else {
             ProbeResult::new(name, ProbeStatus::Fail, what)
         };

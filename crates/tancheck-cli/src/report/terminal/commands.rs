@@ -270,18 +270,19 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
         writeln!(out, "     {}", row.join(" "))?;
     }
     for c in &r.checks {
+        let tangent_pass = c.tangent_pass();
         match c.outcome.as_str() {
             "compared" => writeln!(
                 out,
                 "   {:<13} {}  norm error {:e}, worst entry error {:e} (tolerance {:e}){}",
                 c.scheme.name(),
-                if c.pass { "agrees " } else { "DIFFERS" },
+                if tangent_pass { "agrees " } else { "DIFFERS" },
                 c.norm_error.unwrap_or(f64::NAN),
                 c.worst_entry_error.unwrap_or(f64::NAN),
                 c.tol.unwrap_or(f64::NAN),
                 c.worst
                     .iter()
-                    .filter(|e| !c.pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
+                    .filter(|e| !tangent_pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
                     .take(2)
                     .map(|e| format!(
                         "; {} returned {:e}, derivative {:e}",
@@ -295,6 +296,28 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
                 writeln!(out, "   {:<13} {other}: {}", c.scheme.name(), c.detail.as_deref().unwrap_or(""))?
             }
         }
+        if let Some(d) = &c.dtemp {
+            writeln!(
+                out,
+                "   {:<13} {}  ∂σ/∂T norm error {:e}, worst entry error {:e} (tolerance {:e}){}",
+                "",
+                if d.pass { "agrees " } else { "DIFFERS" },
+                d.norm_error.unwrap_or(f64::NAN),
+                d.worst_entry_error.unwrap_or(f64::NAN),
+                d.tol.unwrap_or(f64::NAN),
+                d.worst
+                    .iter()
+                    .filter(|e| !d.pass && e.error.is_some_and(|x| x > d.tol.unwrap_or(0.0)))
+                    .take(2)
+                    .map(|e| format!(
+                        "; {} returned {:e}, derivative {:e}",
+                        e.label,
+                        e.returned.unwrap_or(f64::NAN),
+                        e.numerical.unwrap_or(f64::NAN)
+                    ))
+                    .collect::<String>()
+            )?;
+        }
     }
     writeln!(out, "   finding: {} (the case recorded {})", r.finding, r.recorded_finding)?;
     if let Some(p) = &r.path_leads_here {
@@ -306,6 +329,9 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
     }
     let what = match r.exit_code {
         crate::exit::PASS => "PASS — the returned tangent is the derivative at this call now",
+        crate::exit::TANGENT_FAILURE if r.checks.iter().all(|c| c.tangent_pass()) => {
+            "FAIL — the returned ∂σ/∂T still differs from the temperature derivative at this call"
+        }
         crate::exit::TANGENT_FAILURE => {
             "FAIL — the returned tangent still differs from the derivative at this call"
         }

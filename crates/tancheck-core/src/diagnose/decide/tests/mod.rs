@@ -2,6 +2,8 @@
 //! trigger it and, where there is one, the published source of the value.
 
 use super::*;
+
+mod twin_dtemp;
 use crate::diagnose::causes::Cause;
 use crate::diagnose::kink::KinkColumn;
 use crate::diagnose::study::{analyse, ladder, StudyPoint};
@@ -529,48 +531,7 @@ fn rows() -> Vec<Row> {
             needs_causes: false,
         });
     }
-    // A twin that holds a temperature-dependent modulus in a real variable: its strain columns
-    // are exact, its ∂σ/∂T misses C′(T):ε (about 10 % here), while the central ∂σ/∂T equals
-    // the returned one (error 1e-11, measured on such a Fortran routine by a user-style sweep).
-    let twin_dtemp = |gap: f64, real: f64, e: f64| Observed {
-        tangent_checks_pass: true,
-        dtemp_failed: true,
-        dtemp_kink: Some(TempKink {
-            detected: false,
-            gaps: vec![1e-9; 3],
-            ..t_kink(0.15, 0.15, Side::Neither)
-        }),
-        dtemp_complex: Some((e, 1e-10)),
-        dtemp_twin: Some(DtempTwin { real: (real, 1e-4), gap }),
-        dtemp_causes: vec![hyp(Cause::UniformScale, false)],
-        failed_tol: f64::INFINITY,
-        ..base()
-    };
-    rows.push(Row {
-        what: "twin unsafe in the temperature: its ∂σ/∂T as far from Richardson as from the returned one",
-        observed: twin_dtemp(0.15, 1e-11, 0.15),
-        pass: true,
-        finding: TWIN_FINDING,
-        twin_unsafe: true,
-        needs_causes: false,
-    });
-    rows.push(Row {
-        what: "∂σ/∂T wrong with a sound twin: the complex ∂σ/∂T equals Richardson's",
-        observed: twin_dtemp(1e-9, 1e-11, 0.15),
-        pass: false,
-        finding: "dtemp",
-        twin_unsafe: false,
-        needs_causes: false,
-    });
-    rows.push(Row {
-        what:
-            "twin gap large but the real ∂σ/∂T (within its tolerance) no decade closer than the complex one",
-        observed: twin_dtemp(2e-4, 5e-5, 2e-4),
-        pass: false,
-        finding: "dtemp",
-        twin_unsafe: false,
-        needs_causes: false,
-    });
+    rows.extend(twin_dtemp::rows());
     rows
 }
 
