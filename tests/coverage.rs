@@ -67,3 +67,40 @@ fn a_temperature_path_without_a_returned_dtemp_is_flagged() {
     let r = run("elastic", &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
     assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
 }
+
+/// Strain increments in slots the routine's kind does not have are left out: a note says so
+/// where an increment loses a third or more of itself (increments written for a 3D point given
+/// to a cohesive one), not for a built-in shape's small out-of-plane parts on a plane point
+/// (the default path on plane strain; a review found that note on every plane check).
+#[test]
+fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
+    use tancheck::core::path::PathIncrement;
+    let note = |kind: PointKind, model: &str, props: &[f64], path: &Path| -> Vec<String> {
+        let mut r = reference(model, kind).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let rep = check::run(&mut caller, props, PointState::zero(&info, 20.0), path, &Settings::default())
+            .unwrap();
+        rep.notes.into_iter().filter(|n| n.contains("they were left out")).collect()
+    };
+    let elastic = [200000.0, 0.3];
+    let plane =
+        note(PointKind::PlaneStrain, "elastic", &elastic, &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
+    assert!(plane.is_empty(), "{plane:?}");
+    let shear_on_a_bar =
+        note(PointKind::Uniaxial, "elastic", &elastic, &Path::ramp(Shape::Shear12, 1e-3, 2, 0));
+    assert!(shear_on_a_bar.iter().any(|n| n.contains("slot 12")), "{shear_on_a_bar:?}");
+    let cohesive = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
+    let written = Path {
+        name: "increments written for a 3D point".into(),
+        increments: (0..6)
+            .map(|k| {
+                let mut d = [0.0; 6];
+                d[k] = 1e-4;
+                PathIncrement::strain(d)
+            })
+            .collect(),
+    };
+    let c = note(PointKind::Cohesive3d, "cohesive", &cohesive, &written);
+    assert!(c.iter().any(|n| n.contains("slots 23, 13, 12 (first at increment 4)")), "{c:?}");
+}

@@ -286,15 +286,23 @@ impl Merged {
     }
 }
 
-/// A note when the path's strain increments have non-zero entries in slots the routine's kind
-/// does not have (a cohesive point takes n, s1, s2 from slots 11, 22, 33; a uniaxial one 11
-/// only): those entries are left out of its increments, which the user may not expect.
+/// A note when the path's strain increments put much of themselves in slots the routine's
+/// kind does not have (a cohesive point takes n, s1, s2 from slots 11, 22, 33; a uniaxial one
+/// 11 only): those entries are left out of its increments, which the user may not expect.
+/// Only where an increment loses a third or more of its size (sum of squares): a built-in
+/// shape's small out-of-plane parts on a plane point (tension-shear's 23 and 13) are the
+/// shape's projection, not a surprise.
 fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
     const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
     let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
     let mut dropped = [false; 6];
     let mut first = None;
     for (k, inc) in path.increments.iter().enumerate() {
+        let total: f64 = inc.dstrain.iter().map(|d| d * d).sum();
+        let lost: f64 = (0..6).filter(|s| !used.contains(s)).map(|s| inc.dstrain[s] * inc.dstrain[s]).sum();
+        if total == 0.0 || lost < total / 3.0 {
+            continue;
+        }
         for (slot, &d) in inc.dstrain.iter().enumerate() {
             if d != 0.0 && !used.contains(&slot) {
                 dropped[slot] = true;
@@ -310,7 +318,7 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
         .map(|&c| format!("{} from slot {}", c.label(), SLOTS[crate::convention::canonical_slot(c)]))
         .collect();
     Some(format!(
-        "the path's strain increments have entries in slot{} {} (first at increment {first}), which a {} point does not have ({}): they were left out",
+        "the path's strain increments have entries in slot{} {} (first at increment {first}), which the routine's kind ({}) does not have ({}): they were left out",
         if names.len() == 1 { "" } else { "s" },
         names.join(", "),
         conv.kind().name(),

@@ -45,14 +45,14 @@ pub fn rank_dtemp(
     let nn: f64 = numerical.iter().map(|x| x * x).sum();
     let c: f64 =
         if rr > 0.0 { returned.iter().zip(numerical).map(|(a, b)| a * b).sum::<f64>() / rr } else { 1.0 };
-    // As for the tangent (causes::layout): a factor within 1e-6 of 1 is no scaling, and a zero
-    // derivative is no factor.
-    if rr > 0.0 && (c - 1.0).abs() > 1e-6 && nn > 1e-24 * rr {
+    // A zero derivative is no factor. A factor near 1 keeps enough digits to show it is not 1.
+    if rr > 0.0 && nn > 1e-24 * rr {
         let s: Vec<f64> = returned.iter().map(|x| c * x).collect();
         let e = err(&s);
+        let digits = if (1.0 / c - 1.0).abs() < 1e-3 { 12 } else { 4 };
         hs.push(Hypothesis {
             cause: Cause::UniformScale,
-            detail: format!("∂σ/∂T off by a factor {:.4e}", 1.0 / c),
+            detail: format!("∂σ/∂T off by a factor {:.*e}", digits, 1.0 / c),
             error_left: e,
             explains: e <= level,
         });
@@ -64,6 +64,8 @@ pub fn rank_dtemp(
     let d: Vec<f64> = numerical.iter().zip(returned).map(|(a, b)| a - b).collect();
     let hydro: Vec<f64> = conv.order().iter().take(n).map(|c| if c.is_shear() { 0.0 } else { 1.0 }).collect();
     let cohesive = conv.kind().is_cohesive();
+    // One component: the stress and 1 are one direction, and a term along it is a scale.
+    let one = n == 1;
     // The returned and the numerical ∂σ/∂T as a·σ + b·1 (isotropic thermo-elasticity's two
     // terms), when both lie in that plane: what the routine made of a term, left out (a′ = 0),
     // of the wrong sign (a′ = −a) or scaled.
@@ -71,7 +73,7 @@ pub fn rank_dtemp(
         (!cohesive).then(|| two_terms(stress, &hydro, returned).zip(two_terms(stress, &hydro, numerical)));
     let mut along = |dir: &[f64], what: &str, term: Option<(f64, f64)>| {
         let dd: f64 = dir.iter().map(|x| x * x).sum();
-        if dd <= 0.0 || returned.iter().all(|&x| x == 0.0) {
+        if one || dd <= 0.0 || returned.iter().all(|&x| x == 0.0) {
             return;
         }
         let c: f64 = d.iter().zip(dir).map(|(a, b)| a * b).sum::<f64>() / dd;

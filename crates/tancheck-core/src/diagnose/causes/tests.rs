@@ -155,9 +155,19 @@ fn a_dtemp_term_of_the_wrong_sign_is_told_from_a_missing_one() {
         let hs = rank_dtemp(&conv, &returned, &truth, &stress, 1e-6, 1e-2);
         assert!(hs[0].explains && hs[0].detail.contains(words), "{words}: {hs:?}");
     }
-    // A zero ∂σ/∂T is no factor of a returned one, and a factor of 1 is no scaling.
+    // A zero ∂σ/∂T is no factor of a returned one.
     let hs = rank_dtemp(&conv, &dt(a, b), &[0.0; 6], &stress, 1e-6, 1e-2);
     assert!(hs.iter().all(|h| !h.detail.contains("factor")), "{hs:?}");
+    // The whole ∂σ/∂T scaled by 1 + 1e-7 is a scale, with the digits that show it (a review
+    // found it named a missing term when factors that close to 1 were left out).
+    let scaled: Vec<f64> = truth.iter().map(|x| x * (1.0 + 1e-7)).collect();
+    let hs = rank_dtemp(&conv, &scaled, &truth, &stress, 1e-10, 1e-2);
+    assert!(hs[0].cause == Cause::UniformScale && hs[0].explains, "{hs:?}");
+    assert!(hs[0].detail.contains("off by a factor 1.000000100000e0"), "{hs:?}");
+    // One component: a term along the stress is a scale, never a missing term.
+    let bar = Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering);
+    let hs = rank_dtemp(&bar, &[2.0 * 1.000001], &[2.0], &[100.0], 1e-10, 1e-2);
+    assert!(hs.iter().all(|h| h.cause != Cause::PartialDtemp), "{hs:?}");
 }
 
 /// A zero derivative (a fully failed point) is no factor of the returned tangent: "off by a
