@@ -149,4 +149,14 @@ fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
     // On the suite's own path it runs.
     let (c, t) = probe(&[m, "--suite", far.to_str().unwrap(), "--suite-path"], &d);
     assert_eq!(c, Some(0), "{t}");
+    // A damage index past the routine's state variables (13 for J2) names the suite file.
+    let index = write(
+        &d,
+        "index.json",
+        r#"{"suite": "i", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 4},
+            "probes": [{"probe": "irreversibility", "damage": [20]}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", index.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("index.json: ") && t.contains("damage index 20 is not a state variable"), "{t}");
 }

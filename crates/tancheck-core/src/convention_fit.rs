@@ -56,7 +56,7 @@ impl Finding {
         match self {
             Finding::AsDeclared { evidence } => format!("behaves as declared ({evidence})"),
             Finding::Other { behaves, declared, evidence } => format!(
-                "behaves as {}; the manifest declares {} ({evidence})",
+                "behaves as {}; it is declared as {} ({evidence})",
                 behaves.describe(),
                 declared.describe()
             ),

@@ -132,7 +132,7 @@ mod tests {
         let Finding::Other { behaves, .. } = &f else { panic!("{f:?}") };
         assert_eq!(behaves.shear, ShearMeasure::Tensor);
         assert_eq!(behaves.order, declared.order(), "the closest order: the declared one");
-        assert!(f.sentence().contains("with tensor shear; the manifest declares"), "{}", f.sentence());
+        assert!(f.sentence().contains("with tensor shear; it is declared as"), "{}", f.sentence());
     }
 
     #[test]
