@@ -383,3 +383,26 @@ fn a_debug_build_runs_with_floating_point_traps_without_being_asked() {
     let line = line_of(src, "stress[0] = stress[0] + e / zero;");
     assert!(t.contains("in `bad_divide_by_zero` at ") && t.contains(&format!("misbehave.c:{line} ")), "{t}");
 }
+
+/// A routine whose results depend on the calls before it (a call counter kept between calls),
+/// checked without the first calls' repeat under the full guards: its diagnosis made every
+/// increment a kink whose columns match neither side (exit 1). The diagnosis now makes the base
+/// call again first and finds the difference: a fault naming the history of calls (exit 3).
+#[test]
+fn hidden_state_is_a_fault_without_the_first_calls_too() {
+    let d = scratch("hidden-nofirst");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_hidden_state", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }}, "check": {{ "first_calls": false }} }}"#,
+            c_lib().display()
+        ),
+    )
+    .unwrap();
+    let o = bin().arg("check").arg(&m).args(["--jobs", "1"]).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(3), "{t}");
+    assert!(t.contains("depend on the history of calls") && !t.contains("kink-neither-side"), "{t}");
+}

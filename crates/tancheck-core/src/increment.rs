@@ -180,7 +180,11 @@ impl<'s> Walk<'s> {
         self.keep_best(has_new_best.then_some(&new_best[..n * n]));
         let driver = &mut self.driver;
         if let Some(fault) = guarded {
-            let cc = cc.expect("a newly reached branch is judged in full");
+            let mut cc = cc.expect("a newly reached branch is judged in full");
+            // The fault speaks for the increment: a diagnosis made from the calls of a routine
+            // that reads past its inputs or does not repeat itself names a cause it does not
+            // have (a kink, from calls the history had changed).
+            cc.diagnosis = None;
             collected.push(record(k, driver, solve_log, Some(cc), None, Some(*fault)));
             self.best_is_previous = false;
             return Step { checked: true, state_changed, stops: true, unloaded, note };

@@ -109,6 +109,7 @@ pub fn run(
 ) -> Result<Diagnosis, Fault> {
     let n = conv.ncomp();
     let ef = settings.entry_floor;
+    repeats(driver, caller)?;
     let scale = driver.strain_scale(settings.step_floor);
     let query = |returned, scale| kink::KinkQuery {
         conv,
@@ -233,6 +234,29 @@ pub fn run(
         finding: decision.finding,
         twin_unsafe: decision.twin_unsafe,
     })
+}
+
+/// The base call made again, after the check's perturbed calls, must give the same outputs bit
+/// for bit: a routine whose results depend on the calls before it (a static or SAVE variable)
+/// gives every piece of evidence below from another state, and read as a kink on every
+/// increment. A fault then, as the first calls' repeat under the full guards finds it (which a
+/// check without `first_calls` does not make). One call per diagnosed increment.
+fn repeats(driver: &mut Driver, caller: &mut Caller<'_>) -> Result<(), Fault> {
+    let bits = |d: &Driver| -> Vec<u64> {
+        d.base.stress.iter().chain(&d.base.state).chain(&d.base.tangent).map(|x| x.to_bits()).collect()
+    };
+    let before = bits(driver);
+    driver.base_call(caller)?;
+    if bits(driver) != before {
+        return Err(Fault::Misbehaved {
+            what:
+                "gave different results for two identical calls (the base call of an increment, made again \
+                   after its perturbed calls): its results depend on the history of calls (a static or SAVE \
+                   variable)"
+                    .into(),
+        });
+    }
+    Ok(())
 }
 
 /// Where an increment that crosses into its branch enters it: the smallest fraction of it
