@@ -280,17 +280,7 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
                 c.norm_error.unwrap_or(f64::NAN),
                 c.worst_entry_error.unwrap_or(f64::NAN),
                 c.tol.unwrap_or(f64::NAN),
-                c.worst
-                    .iter()
-                    .filter(|e| !tangent_pass && e.error.is_some_and(|x| x > c.tol.unwrap_or(0.0)))
-                    .take(2)
-                    .map(|e| format!(
-                        "; {} returned {:e}, derivative {:e}",
-                        e.label,
-                        e.returned.unwrap_or(f64::NAN),
-                        e.numerical.unwrap_or(f64::NAN)
-                    ))
-                    .collect::<String>()
+                worst_two(&c.worst, tangent_pass, c.tol)
             )?,
             other => {
                 writeln!(out, "   {:<13} {other}: {}", c.scheme.name(), c.detail.as_deref().unwrap_or(""))?
@@ -305,17 +295,7 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
                 d.norm_error.unwrap_or(f64::NAN),
                 d.worst_entry_error.unwrap_or(f64::NAN),
                 d.tol.unwrap_or(f64::NAN),
-                d.worst
-                    .iter()
-                    .filter(|e| !d.pass && e.error.is_some_and(|x| x > d.tol.unwrap_or(0.0)))
-                    .take(2)
-                    .map(|e| format!(
-                        "; {} returned {:e}, derivative {:e}",
-                        e.label,
-                        e.returned.unwrap_or(f64::NAN),
-                        e.numerical.unwrap_or(f64::NAN)
-                    ))
-                    .collect::<String>()
+                worst_two(&d.worst, d.pass, d.tol)
             )?;
         }
     }
@@ -436,4 +416,22 @@ pub fn selftest(out: &mut dyn Write, r: &SelftestReport, detail: Detail, p: Pale
         }
     }
     Ok(())
+}
+
+/// The two worst entries beyond the tolerance of a failed comparison, as "; label returned …,
+/// derivative …" (nothing for one that passed).
+fn worst_two(worst: &[tancheck_core::case::ProbeEntry], pass: bool, tol: Option<f64>) -> String {
+    worst
+        .iter()
+        .filter(|e| !pass && e.error.is_some_and(|x| x > tol.unwrap_or(0.0)))
+        .take(2)
+        .map(|e| {
+            format!(
+                "; {} returned {:e}, derivative {:e}",
+                e.label,
+                e.returned.unwrap_or(f64::NAN),
+                e.numerical.unwrap_or(f64::NAN)
+            )
+        })
+        .collect()
 }
