@@ -406,3 +406,49 @@ fn hidden_state_is_a_fault_without_the_first_calls_too() {
     assert_eq!(o.status.code(), Some(3), "{t}");
     assert!(t.contains("depend on the history of calls") && !t.contains("kink-neither-side"), "{t}");
 }
+
+/// A memory guard reports a kind of misbehaviour once per run. `bisect` makes runs of its own
+/// after the check (the scaled calls inside the increment, every candidate of the shrink, the
+/// call made again for the case), and each of them must see the fault again: before, the
+/// scaled calls read as agreeing, the shrinker kept none of its candidates and the case came
+/// with a warning that the call made again did not fault.
+#[test]
+fn bisect_finds_a_guard_fault_again_in_each_run_of_its_own() {
+    let d = scratch("bisect-guard-fault");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_state_overrun", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "tension-shear", "peak": 0.003, "steps": 6 }} }}"#,
+            c_lib().display()
+        ),
+    )
+    .unwrap();
+    let o = bin().current_dir(&d).arg("bisect").arg(&m).args(["--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    let v: serde_json::Value =
+        serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", text(&o)));
+    // The routine overruns its state from its second increment on, whatever the strain.
+    let l = &v["located"];
+    assert_eq!(l["increment"], 2, "{l:#}");
+    assert_eq!(l["finding"], "routine-fault");
+    let samples = l["samples"].as_array().unwrap();
+    assert!(samples.len() > 2, "{l:#}");
+    for s in samples {
+        assert_eq!(s["class"]["judgement"], "fault", "every scaled call faults: {s:#}");
+    }
+    assert_eq!(l["inside"]["found"], "throughout", "{l:#}");
+    // The shrink keeps candidates: two increments, each as plain as it gets.
+    let s = &v["shrunk"];
+    assert!(s["accepted"].as_u64().unwrap() > 0, "{s:#}");
+    let incs = s["path"]["increments"].as_array().unwrap();
+    assert_eq!(incs.len(), 2, "{s:#}");
+    for inc in incs {
+        assert!(inc["dstrain"].as_array().unwrap().iter().all(|x| x.as_f64() == Some(0.0)), "{inc:#}");
+    }
+    assert_eq!(s["located"]["finding"], "routine-fault");
+    // The call made again for each case faults again: no warning.
+    assert_eq!(v["cases"].as_array().unwrap().len(), 2, "{:#}", v["cases"]);
+    assert!(v["warnings"].as_array().unwrap().is_empty(), "{:#}", v["warnings"]);
+}

@@ -201,14 +201,20 @@ pub fn capture(
     let index = located.increment;
     let (mut driver, previous) =
         bisect::driver_at(caller, props, start.clone(), path, index, settings).map_err(anyhow::Error::msg)?;
+    // The call made again is a run of its own: a guard that found the fault in the check
+    // finds it again here (it reports a finding once per run).
+    caller.forget_guard_findings();
     let judged = tancheck_core::call_check::check_call(&mut driver, caller, settings, previous.as_deref());
     let faulted = located.finding == tancheck_core::call_check::FAULT_FINDING;
     let passed_again = judged.as_ref().is_ok_and(|c| c.passed());
     if passed_again && faulted {
-        // A memory guard reports a finding once per run: the call made again shows nothing.
+        // The guards forgot their findings before the call made again, so a memory fault
+        // shows again; one that does not was found by the full guards of a branch's first
+        // call (the call made again has the run's level), or the routine does not repeat itself.
         warnings.push(format!(
-            "increment {index} faulted in the check, and its call made again on its own did not (a memory \
-             guard reports each finding once per run; `tancheck replay` of the case shows it again)"
+            "increment {index} faulted in the check, and its call made again on its own did not (a fault \
+             found by the full guards of a branch's first call, or a routine that does not repeat its \
+             results; `tancheck replay` of the case makes the call again)"
         ));
     } else if passed_again {
         warnings.push(format!(

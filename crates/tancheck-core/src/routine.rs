@@ -205,6 +205,12 @@ pub trait Routine {
     /// Count `n` more such calls, made by another handle of the same routine for the same
     /// check (a later thread's share), so that the check reports what one thread would.
     fn absorb_guard_extra_calls(&mut self, _n: u64) {}
+
+    /// Forget what the guards have found so far. A guard reports a kind of misbehaviour once
+    /// (its first call is the fault; later ones only count), so a search that makes many runs
+    /// of its own (a shrink's candidate paths) forgets before each run, and a candidate that
+    /// misbehaves the same way faults again.
+    fn forget_guard_findings(&mut self) {}
 }
 
 /// The [`Routine`] methods a wrapper passes on to the routine it wraps (its field `inner`):
@@ -231,6 +237,9 @@ macro_rules! pass_on_to_inner {
         }
         fn absorb_guard_extra_calls(&mut self, n: u64) {
             self.inner.absorb_guard_extra_calls(n)
+        }
+        fn forget_guard_findings(&mut self) {
+            self.inner.forget_guard_findings()
         }
     };
 }
@@ -358,6 +367,11 @@ impl<'r> Caller<'r> {
     /// See [`Routine::absorb_guard_extra_calls`].
     pub fn absorb_guard_extra_calls(&mut self, n: u64) {
         self.routine.absorb_guard_extra_calls(n)
+    }
+
+    /// See [`Routine::forget_guard_findings`].
+    pub fn forget_guard_findings(&mut self) {
+        self.routine.forget_guard_findings()
     }
 
     /// A real call, outputs pre-filled with NaN and the outcome reset, so that an output the

@@ -343,6 +343,10 @@ impl Routine for LibraryRoutine {
         self.full_next
     }
 
+    fn forget_guard_findings(&mut self) {
+        self.findings.take();
+    }
+
     fn guard_extra_calls(&self) -> u64 {
         self.findings.extra_calls
     }

@@ -23,6 +23,8 @@ struct Full {
 /// Judge the increment scaled by `s` (strain and temperature increments alike).
 fn classify(driver: &mut Driver, caller: &mut Caller<'_>, judge: &Settings, full: &Full, s: f64) -> Sample {
     scale(driver, full, s);
+    // Each scaled call is judged on its own: a guard that found a fault before finds it again.
+    caller.forget_guard_findings();
     let (class, error) = match call_check::check_call(driver, caller, judge, None) {
         Err(_) => {
             (CallClass { reported_branch: None, state_changed: false, judgement: Judgement::Fault }, 0.0)

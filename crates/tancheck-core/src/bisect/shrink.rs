@@ -117,6 +117,9 @@ impl Shrinker<'_, '_> {
         }
         self.iterations += 1;
         let path = self.path(candidate);
+        // Each candidate is a run of its own: a guard that found the fault in an earlier run
+        // must find it again here.
+        self.caller.forget_guard_findings();
         let Ok(r) = check::run(self.caller, self.props, self.start.clone(), &path, self.settings) else {
             return false;
         };
@@ -127,6 +130,7 @@ impl Shrinker<'_, '_> {
                 let report = if index == r.increments.len() {
                     r
                 } else {
+                    self.caller.forget_guard_findings();
                     match check::run(
                         self.caller,
                         self.props,
@@ -288,6 +292,7 @@ pub fn shrink(
         report.clone()
     } else {
         let cut = Path { name: path.name.clone(), increments: incs.clone() };
+        caller.forget_guard_findings();
         check::run(caller, props, start.clone(), &cut, settings)?
     };
     let mut s = Shrinker {
