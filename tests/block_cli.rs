@@ -209,3 +209,41 @@ fn a_guard_finding_in_the_elastic_responses_own_check_is_a_fault() {
         "{out}"
     );
 }
+
+#[test]
+fn a_crash_or_guard_finding_in_the_independence_blocks_is_a_fault() {
+    // Both routines are correct alone and in the first call; the independence check's blocks
+    // of 7 and 128 points are the first to meet their misbehaviour. It is the routine's fault
+    // whatever the neighbours' paths (exit 3), not a note beside a PASS.
+    let d = scratch("block-cli-independence-fault");
+    for (symbol, size, what) in [
+        ("mb_block_large_crash", 128, "the routine crashed: segmentation fault"),
+        ("mb_block_large_unwritten", 7, "left energy"),
+    ] {
+        let m = misbehaving(&d, symbol, 0);
+        let (code, out, err) = tancheck(&["check".as_ref(), m.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+        assert_eq!(code, 3, "{symbol}: {out}{err}");
+        let v: Value = serde_json::from_str(&out).unwrap();
+        schema_valid(&v);
+        let f = &v["findings"][0];
+        assert_eq!(f["finding"], "routine-fault", "{symbol}: {v}");
+        assert_eq!(f["check"], "independence", "{symbol}: {f}");
+        let w = f["what"].as_str().unwrap();
+        assert!(w.contains(&format!("in a block of {size}")) && w.contains(what), "{symbol}: {w}");
+    }
+}
+
+#[test]
+fn a_block_call_that_never_returns_is_named_with_its_block() {
+    // Spins for ever in a block of 7 points: the watchdog's last words place the hang in that
+    // block call (it said "between two calls ... from a thread the routine left running?").
+    let d = scratch("block-cli-spin");
+    let m = misbehaving(&d, "mb_block_spin7", 0);
+    let args = ["check".as_ref(), m.as_os_str(), "--call-timeout".as_ref(), "2".as_ref(), "-q".as_ref()];
+    let (code, out, err) = tancheck(&args);
+    assert_eq!(code, 3, "{out}{err}");
+    let all = format!("{out}{err}");
+    assert!(all.contains("did not return within 2 s"), "{all}");
+    assert!(all.contains("during a block call of increment 1 (a block of 7 points)"), "{all}");
+    assert!(!all.contains("between two calls"), "{all}");
+}

@@ -229,6 +229,7 @@ typedef struct watch_slot {
     const tc_guard_args *args;  /* the running call's arguments, atomic (NULL: block call) */
     int complex_call;           /* the running call is the complex twin */
     int increment;              /* increment of the thread's last call begun */
+    int npoints;                /* points of the running block call; 0 for a point call */
     int owned;                  /* atomic: a thread holds the slot */
 } __attribute__((aligned(64))) watch_slot;
 static watch_slot watch_slots[WATCH_SLOTS];
@@ -254,18 +255,19 @@ static int tc_armed(void) { return __atomic_load_n(&watch_phase, __ATOMIC_RELAXE
 /* The calling thread's slot (set by prepare_thread). */
 static inline watch_slot *own_slot(void) { return tc_thread.slot; }
 
-static inline void watch_enter_slot(const tc_guard_args *a, int complex_call, int increment) {
+static inline void watch_enter_slot(const tc_guard_args *a, int complex_call, int increment, int npoints) {
     watch_slot *s = own_slot();
     __atomic_store_n(&s->args, a, __ATOMIC_RELAXED);
     __atomic_store_n(&s->complex_call, complex_call, __ATOMIC_RELAXED);
     __atomic_store_n(&s->increment, increment, __ATOMIC_RELAXED);
+    __atomic_store_n(&s->npoints, npoints, __ATOMIC_RELAXED);
     __atomic_fetch_add(&s->begun, 1, __ATOMIC_RELEASE);
 }
 
 static inline void watch_enter(const tc_guard_args *a, int complex_call) {
     const guard_finite_call *fc = finite_call_of(a);
     watch_enter_slot(a, complex_call,
-                     fc != NULL ? fc->increment : (a->call != NULL ? a->call->increment : -1));
+                     fc != NULL ? fc->increment : (a->call != NULL ? a->call->increment : -1), 0);
 }
 
 static inline void watch_leave(void) { __atomic_fetch_add(&own_slot()->ended, 1, __ATOMIC_RELEASE); }
@@ -525,6 +527,7 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     const int increment = seen != NULL ? __atomic_load_n(&seen->increment, __ATOMIC_RELAXED) : -1;
     const tc_guard_args *a = running && run != NULL ? __atomic_load_n(&run->args, __ATOMIC_RELAXED) : NULL;
     const int cx = run != NULL ? __atomic_load_n(&run->complex_call, __ATOMIC_RELAXED) : 0;
+    const int npoints = running && run != NULL ? __atomic_load_n(&run->npoints, __ATOMIC_RELAXED) : 0;
     /* Another thread's call (not this thread's own, which waits here): a checked copy. */
     if (a != NULL && run != tc_thread.slot) a = lw_copy_running(run, a, cx);
     const guard_finite_call *fc = finite_call_of(a);
@@ -545,6 +548,14 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put("during a finite-strain call of increment ");
         put_int(fc->increment);
         if (cx) put(" (the complex-step twin)");
+        if (in_call == 0) put(", from another thread of the routine");
+    } else if (running && npoints > 0) {
+        put("during a block call of increment ");
+        put_int(increment);
+        put(" (a block of ");
+        put_int(npoints);
+        put(npoints == 1 ? " point" : " points");
+        put(cx ? ", the complex-step twin)" : ")");
         if (in_call == 0) put(", from another thread of the routine");
     } else if (phase == TC_PHASE_REPORTING) {
         put("after the check, while tancheck wrote the report (from a thread the routine left running?)");

@@ -14,6 +14,12 @@
  *                           stress for a point at rest
  *   mb_block_state_overread reads the next point's state after the first call, the last
  *                           point's past the end of state_start
+ *   mb_block_large_crash    dereferences a null pointer in blocks of more than 100 points
+ *   mb_block_large_unwritten leaves the last point's energy unwritten in blocks of 7 points
+ *                           or more
+ *   mb_block_spin7          never returns from a block of exactly 7 points
+ * The last three are correct in blocks of one point and in the first call, so only the
+ * independence check's blocks of 7 and 128 meet their misbehaviour.
  */
 #include <stddef.h>
 
@@ -141,5 +147,50 @@ TC_BLOCK_ROUTINE(mb_block_state_overread)
         } else if (ns > 0) {
             stress[p * n] += 1.0e-9 * state_start[p * ns + ns];
         }
+    }
+}
+
+/* Elastic, the first call's energy carried over; shared by the routines below. */
+static void elastic_in_blocks(const tc_block *block, const tc_real *properties,
+                              const tc_real *strain_increment, const tc_real *stress_start,
+                              const tc_specific_energy *energy_start,
+                              const tc_point_conditions *conditions, tc_real *stress,
+                              tc_specific_energy *energy, int32_t *deleted, int skip_last_energy)
+{
+    elastic(ARGS, skip_last_energy);
+    if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) {
+        for (int p = 0; p < block->npoints; ++p) energy[p] = energy_start[p];
+    }
+}
+
+TC_BLOCK_ROUTINE(mb_block_large_crash)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic_in_blocks(ARGS, 0);
+    volatile tc_real *nowhere = NULL;
+    if (block->npoints > 100) stress[0] = nowhere[block->npoints];
+}
+
+TC_BLOCK_ROUTINE(mb_block_large_unwritten)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic_in_blocks(ARGS, block->npoints >= 7);
+}
+
+TC_BLOCK_ROUTINE(mb_block_spin7)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    elastic_in_blocks(ARGS, 0);
+    volatile int spin = block->npoints == 7;
+    while (spin) {
     }
 }

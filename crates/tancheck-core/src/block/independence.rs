@@ -12,6 +12,7 @@ use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
 use super::step::BlockStep;
 use super::walk::{BlockBuffers, BlockWalk};
+use crate::routine::Fault;
 
 /// Scale factors of the neighbours' paths (0: at rest; small: elastic; negative: reversed;
 /// large: far past yield), used in turn.
@@ -43,7 +44,7 @@ fn walk(
     layout: Layout<'_>,
     report: &mut BlockReport,
     mut visit: impl FnMut(usize, &BlockBuffers) -> bool,
-) -> Result<(), String> {
+) -> Result<(), (usize, Fault)> {
     let n = routine.info().ncomp;
     let npoints = layout.scales.len();
     let mut b = BlockBuffers::new(npoints, n, &s.state0, s.conditions);
@@ -57,7 +58,7 @@ fn walk(
             }
         }
         report.real_calls += 1;
-        b.call(routine, properties, *dt, (k + 1) as i32).map_err(|e| format!("increment {}: {e}", k + 1))?;
+        b.call(routine, properties, *dt, (k + 1) as i32).map_err(|e| (k + 1, e))?;
         if !visit(k + 1, &b) {
             return Ok(());
         }
@@ -86,6 +87,12 @@ fn not_finite_at_rest(b: &BlockBuffers, scales: &[f64], at: usize, n: usize, ns:
     None
 }
 
+/// A crash or a memory guard's finding: the routine's fault on any inputs. A failure the
+/// routine reported (a status) may belong to a neighbour's path far past yield.
+fn is_fault(e: &Fault) -> bool {
+    matches!(e, Fault::Crashed { .. } | Fault::Misbehaved { .. })
+}
+
 fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
     if a.is_nan() && b.is_nan() {
         return false;
@@ -105,8 +112,19 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
         alone.deleted.push(b.deleted[0]);
         true
     });
-    if let Err(e) = r {
-        report.notes.push(format!("independence: the point alone failed ({e}); not checked"));
+    if let Err((k, e)) = r {
+        if is_fault(&e) {
+            report.add(
+                BlockCheck::Independence,
+                "routine-fault",
+                Some(k),
+                format!("the point alone along the path, increment {k}: {e}"),
+            );
+        } else {
+            report
+                .notes
+                .push(format!("independence: the point alone failed (increment {k}: {e}); not checked"));
+        }
         return;
     }
     let tol = s.independence_tolerance;
@@ -159,11 +177,24 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                 None => true,
             }
         });
-        if let Err(e) = r {
-            report.notes.push(format!(
-                "independence: in a block of {size} (point under test at position {at}) a call failed \
-                 ({e}), perhaps for a neighbour's path; the layouts after it were not checked"
-            ));
+        if let Err((k, e)) = r {
+            if is_fault(&e) {
+                // A crash or a guard's finding is the routine's fault whatever the neighbours'
+                // paths: an explicit solver sends blocks of this size, at rest and far past
+                // yield alike.
+                report.add(
+                    BlockCheck::Independence,
+                    "routine-fault",
+                    Some(k),
+                    format!("in a block of {size} (point under test at position {at}), increment {k}: {e}"),
+                );
+            } else {
+                report.notes.push(format!(
+                    "independence: in a block of {size} (point under test at position {at}) a call failed \
+                     (increment {k}: {e}), perhaps for a neighbour's path; the layouts after it were not \
+                     checked"
+                ));
+            }
             return;
         }
         if let Some((k, w)) = at_rest {
