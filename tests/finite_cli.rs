@@ -239,3 +239,67 @@ fn finite_reports_through_the_reporters() {
     let (_, out) = tancheck(&["check", &bad, "--color", "never"]);
     assert!(!out.contains("\u{1b}["), "{out}");
 }
+
+// The options of `tancheck check` on a finite-strain manifest: the time limits, the guard level
+// and the traps are honoured; the ones a finite-strain check has its own settings for (--path,
+// --scheme, --tol, --step, --cases), and --isolate, are refused naming the manifest (exit 2),
+// where they were accepted and ignored. A NaN the routine computes is a non-finite output
+// (exit 1), an entry it never writes a fault (exit 3): both read "unwritten" before.
+#[test]
+fn finite_checks_honour_or_refuse_the_check_options() {
+    let dir = scratch("options");
+    let m = |symbol: &'static str| Manifest {
+        lib: c_lib(),
+        symbol,
+        stress: "cauchy",
+        tangent: "sigma-jaumann",
+        frame: "none",
+        properties: ELASTIC,
+        states: 0,
+        extra: "",
+    };
+    let good = write(&dir, "good.json", &m("c_nh"));
+    for extra in [
+        &["--path", "uniaxial-strain:0.01:7"][..],
+        &["--tol", "central=1e-30"],
+        &["--scheme", "forward"],
+        &["--step", "central=1e-3"],
+        &["--isolate"],
+    ] {
+        let (code, out) = tancheck(&[&["check", good.as_str()][..], extra].concat());
+        assert_eq!(code, 2, "{extra:?}: {out}");
+        assert!(out.contains("good.json: a finite-strain manifest") && out.contains(extra[0]), "{out}");
+    }
+    let (code, out) = tancheck(&["probe", &good, "--thermal"]);
+    assert_eq!(code, 2, "{out}");
+    assert!(out.contains("--thermal does not apply"), "{out}");
+    let (code, out) = tancheck(&["check", &good, "--guards", "none"]);
+    assert_eq!(code, 2, "{out}");
+    let (code, out) = tancheck(&["check", &good, "--guards", "full", "--fp-traps", "-q"]);
+    assert_eq!(code, 0, "{out}");
+
+    // --call-timeout: the routine that never returns from increment 2 is a fault after 2 s
+    // (the default limit is 30 s), named with its routine and the call's inputs.
+    let spin = write(&dir, "spin.json", &m("c_nh_spin_at_2"));
+    let t0 = std::time::Instant::now();
+    let (code, out) = tancheck(&["check", &spin, "--call-timeout", "2", "-q"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(t0.elapsed().as_secs_f64() < 20.0, "the limit was not the one given: {out}");
+    assert!(
+        out.contains("did not return within 2 s") && out.contains("finite-strain call of increment 2"),
+        "{out}"
+    );
+    assert!(out.contains(":c_nh_spin_at_2"), "the routine is named, not the manifest: {out}");
+
+    let nan = write(&dir, "nan.json", &m("c_nh_nan_at_2"));
+    let (code, out) = tancheck(&["check", &nan, "-q"]);
+    assert_eq!(code, 1, "{out}");
+    assert!(out.contains("non-finite-output") && !out.contains("unwritten"), "{out}");
+    let unwritten = write(&dir, "unwritten.json", &m("c_nh_unwritten_at_2"));
+    let (code, out) = tancheck(&["check", &unwritten, "-q"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(out.contains("left tangent[20] unwritten"), "{out}");
+    // With the guards off an unwritten entry is what the call left there.
+    let (code, out) = tancheck(&["check", &unwritten, "-q", "--guards", "off"]);
+    assert_ne!(code, 3, "{out}");
+}

@@ -152,6 +152,16 @@ fn reports_of_runs_that_did_not_finish_validate() {
         .unwrap();
         p
     };
+    // A failing check whose derivatives are not finite numbers (the routine reads a tangent it
+    // was not asked for): its errors are infinite and its derivatives NaN, which the report
+    // writes as null; the schema says so (it rejected these reports before).
+    let nan = d.join("non-finite.json");
+    let o = bin().arg("check").arg(m("bad_unasked_tangent")).arg("--json").arg(&nan).output().unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", String::from_utf8_lossy(&o.stderr));
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&nan).unwrap()).unwrap();
+    assert!(v["increments"][0]["checks"][0]["tangent"]["norm_error"].is_null(), "{:#}", v["increments"][0]);
+    valid("check with non-finite derivatives", &v);
+
     let hang = m("bad_infinite_loop");
     for (isolate, kind) in [(false, "last-words"), (true, "isolated-fault")] {
         let out = d.join(format!("{kind}.json"));

@@ -242,13 +242,62 @@ fn path_file(path: &Option<String>) -> Option<&std::path::Path> {
     path.as_deref().map(std::path::Path::new).filter(|p| p.is_file())
 }
 
+/// Where a finite-strain manifest sets what these options set for a point routine.
+const FINITE_CHECK_INSTEAD: &str = "a finite-strain check walks the manifest's `path` of deformation \
+     gradients with central differences and the complex step, at the steps and the one tolerance of its \
+     `check` section (central_step, complex_step, tolerance); set them there";
+const FINITE_PROBES_INSTEAD: &str = "the finite-strain probes run along the manifest's `path` of \
+     deformation gradients, with the options of its `probes` section; set them there";
+
+/// Refuse the options `given` (set, name) that a finite-strain run does not honour, naming
+/// the manifest and where its own settings are (`instead`): exit 2 before any work.
+fn refuse_for_finite(manifest: &std::path::Path, given: &[(bool, &str)], instead: &str) -> Result<()> {
+    let names: Vec<&str> = given.iter().filter(|(set, _)| *set).map(|(_, n)| *n).collect();
+    if !names.is_empty() {
+        bail!(
+            "{}: a finite-strain manifest; {} {} not apply to it: {instead}",
+            manifest.display(),
+            names.join(", "),
+            if names.len() == 1 { "does" } else { "do" }
+        );
+    }
+    Ok(())
+}
+
+/// The options of `tancheck check` a finite-strain check honours; the others refused.
+fn finite_check_options(a: &CheckArgs) -> Result<crate::cmd_finite::FiniteOptions> {
+    let given = [
+        (a.path.is_some(), "--path"),
+        (!a.schemes.is_empty(), "--scheme"),
+        (!a.tols.is_empty(), "--tol"),
+        (!a.steps.is_empty(), "--step"),
+        (a.cases.is_some(), "--cases"),
+    ];
+    refuse_for_finite(&a.manifest, &given, FINITE_CHECK_INSTEAD)?;
+    if a.isolate {
+        bail!(
+            "{}: a finite-strain manifest; --isolate is not available for finite-strain routines yet: \
+             without it the guard still reports a crash, a hang past --call-timeout and a routine that \
+             ends the process (exit 70, with the running call's inputs)",
+            a.manifest.display()
+        );
+    }
+    Ok(crate::cmd_finite::FiniteOptions {
+        call_timeout: a.call_timeout,
+        suite_timeout: a.suite_timeout,
+        guards: a.guards.as_deref().map(guards_arg).transpose()?,
+        fp_traps: a.fp_traps,
+    })
+}
+
 fn cmd_check(a: CheckArgs) -> Result<i32> {
     a.output.prepare()?;
     let inputs: Vec<&std::path::Path> =
         [Some(a.manifest.as_path()), path_file(&a.path)].into_iter().flatten().collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output);
+        let options = finite_check_options(&a)?;
+        return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output, options);
     }
     // An earlier report under the same name is replaced at once by an "incomplete" marker.
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
@@ -373,7 +422,18 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         [Some(a.manifest.as_path()), a.suite.as_deref(), path_file(&a.path)].into_iter().flatten().collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        return crate::cmd_finite::probe(&a.manifest, a.json.as_deref(), &a.output);
+        let given = [
+            (a.suite.is_some(), "--suite"),
+            (a.thermal, "--thermal"),
+            (a.path.is_some(), "--path"),
+            (a.suite_path, "--suite-path"),
+        ];
+        refuse_for_finite(&a.manifest, &given, FINITE_PROBES_INSTEAD)?;
+        let options = crate::cmd_finite::FiniteOptions {
+            guards: a.guards.as_deref().map(guards_arg).transpose()?,
+            ..Default::default()
+        };
+        return crate::cmd_finite::probe(&a.manifest, a.json.as_deref(), &a.output, options);
     }
     crate::survive::begin_report(a.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;

@@ -15,20 +15,52 @@ use crate::finite_load::{open, FiniteManifest};
 use crate::report::Reporter;
 use crate::session::{reporters, OutputArgs};
 
+/// The command line's options a finite-strain check or probe run honours (the others are
+/// refused before it starts, see `cli`).
+#[derive(Clone, Copy, Debug)]
+pub struct FiniteOptions {
+    pub call_timeout: f64,
+    pub suite_timeout: f64,
+    /// `--guards`, over the manifest's (light and full both check the outputs; the finite
+    /// interface has no read guard).
+    pub guards: Option<crate::manifest::Guards>,
+    pub fp_traps: bool,
+}
+
+impl Default for FiniteOptions {
+    fn default() -> Self {
+        FiniteOptions {
+            call_timeout: crate::survive::DEFAULT_CALL_TIMEOUT,
+            suite_timeout: crate::survive::DEFAULT_SUITE_TIMEOUT,
+            guards: None,
+            fp_traps: false,
+        }
+    }
+}
+
 /// What both commands do first: open the report, start the watch, load the manifest and its
 /// routine, build the path and the start state; then run `body` with the routine checking.
 fn with_routine<T>(
     manifest: &FsPath,
     json: Option<&FsPath>,
+    options: FiniteOptions,
     body: impl FnOnce(&mut dyn FiniteRoutine, &FiniteManifest, &[f64], &FinitePath) -> T,
 ) -> Result<T> {
     let file = manifest.display().to_string();
     crate::survive::begin_report(json, &file)?;
-    crate::survive::start_watchdog(
-        crate::survive::DEFAULT_CALL_TIMEOUT,
-        Some(crate::survive::DEFAULT_SUITE_TIMEOUT),
-    );
-    let (m, d, dir) = FiniteManifest::load(manifest)?;
+    crate::survive::start_watchdog(options.call_timeout, Some(options.suite_timeout));
+    let (mut m, d, dir) = FiniteManifest::load(manifest)?;
+    if let Some(g) = options.guards {
+        m.guards = g;
+    }
+    m.fp_traps = options.fp_traps;
+    // The last words name the routine, as a point check's do (not the manifest).
+    let name = match (&m.routine.library, &m.routine.symbol, &m.routine.model) {
+        (Some(l), Some(s), _) => format!("{}:{s}", l.display()),
+        (_, _, Some(model)) => format!("model {model}"),
+        _ => file.clone(),
+    };
+    crate::survive::set_routine(json, &name);
     let mut r = open(&m, &d, &dir, &file)?;
     let path = m.path.build().map_err(|e| anyhow::anyhow!("{file}: path: {e}"))?;
     let state0 = if m.start.state.is_empty() { vec![0.0; r.info().nstate] } else { m.start.state.clone() };
@@ -39,8 +71,13 @@ fn with_routine<T>(
 }
 
 /// `tancheck check` on a finite-strain manifest.
-pub fn check(manifest: &FsPath, json: Option<&FsPath>, output: &OutputArgs) -> Result<i32> {
-    let report = with_routine(manifest, json, |r, m, state0, path| {
+pub fn check(
+    manifest: &FsPath,
+    json: Option<&FsPath>,
+    output: &OutputArgs,
+    options: FiniteOptions,
+) -> Result<i32> {
+    let report = with_routine(manifest, json, options, |r, m, state0, path| {
         run(r, &m.routine.properties, state0, path, m.check)
     })?;
     let mut out = reporters(output, json);
@@ -50,8 +87,13 @@ pub fn check(manifest: &FsPath, json: Option<&FsPath>, output: &OutputArgs) -> R
 }
 
 /// `tancheck probe` on a finite-strain manifest.
-pub fn probe(manifest: &FsPath, json: Option<&FsPath>, output: &OutputArgs) -> Result<i32> {
-    let report = with_routine(manifest, json, |r, m, state0, path| {
+pub fn probe(
+    manifest: &FsPath,
+    json: Option<&FsPath>,
+    output: &OutputArgs,
+    options: FiniteOptions,
+) -> Result<i32> {
+    let report = with_routine(manifest, json, options, |r, m, state0, path| {
         let results = run_all(r, &m.routine.properties, state0, path, &m.probes);
         FiniteProbeReport::new(&r.info().name, results)
     })?;

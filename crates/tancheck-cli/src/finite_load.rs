@@ -75,6 +75,9 @@ pub struct FiniteManifest {
     /// Memory guards around a library routine: `off`, `light` (default) or `full`.
     #[serde(default)]
     pub guards: Guards,
+    /// Floating-point traps inside a library routine (the command line's `--fp-traps`).
+    #[serde(skip)]
+    pub fp_traps: bool,
 }
 
 /// The measures, parsed.
@@ -239,5 +242,6 @@ pub fn open_library(
     };
     let mut r = lib.finite_routine(symbol, info).map_err(|e| anyhow!("{file}: {e}"))?;
     r.set_checks(m.guards != Guards::Off);
+    r.set_fp_traps(m.fp_traps);
     Ok(Box::new(r))
 }

@@ -17,6 +17,9 @@
  * measure); each with its twin _cx. The material-as-spatial and geometric-terms-missing
  * flaws are in finite_j2.c, which implements the material measures.
  *
+ * Misbehaving variants, correct but from increment 2 on: c_nh_nan_at_2 (computes a NaN into
+ * tangent[7]), c_nh_unwritten_at_2 (never writes tangent[20]), c_nh_spin_at_2 (never returns).
+ *
  * Build: cc -I fortran-shim/include -c finite_nh.c; again with -DTC_COMPLEX for the twins.
  */
 
@@ -121,3 +124,32 @@ NH_ROUTINE(c_nh_missing_over_j, NH_MISSING_OVER_J)
 NH_ROUTINE(c_nh_extra_over_j, NH_EXTRA_OVER_J)
 NH_ROUTINE(c_nh_cauchy_for_kirchhoff, NH_CAUCHY_FOR_KIRCHHOFF)
 NH_ROUTINE(c_nh_kirchhoff_for_cauchy, NH_KIRCHHOFF_FOR_CAUCHY)
+
+enum nh_misbehaviour { NH_NAN_AT_2, NH_UNWRITTEN_AT_2, NH_SPIN_AT_2 };
+
+#define NH_MISBEHAVING(name, what)                                                              \
+    TC_FINITE_ROUTINE(name)                                                                     \
+    {                                                                                           \
+        (void)f0;                                                                               \
+        (void)rotation;                                                                         \
+        (void)temperature;                                                                      \
+        (void)stress0;                                                                          \
+        for (int k = 0; k < call->nstate; ++k) state[k] = state0[k];                            \
+        tc_real t[81] = {0};                                                                    \
+        nh_point(call, properties, f1, stress, t, energy, report, NH_NONE);                     \
+        const int late = call->increment >= 2;                                                  \
+        for (int k = 0; k < call->ntangent * call->ntangent; ++k) {                             \
+            if (!(what == NH_UNWRITTEN_AT_2 && late && k == 20)) tangent[k] = t[k];             \
+        }                                                                                       \
+        if (what == NH_NAN_AT_2 && late) {                                                      \
+            volatile double zero = 0.0;                                                         \
+            tangent[7] = tangent[7] + zero / zero;                                              \
+        }                                                                                       \
+        volatile int spin = what == NH_SPIN_AT_2 && late;                                       \
+        while (spin) {                                                                          \
+        }                                                                                       \
+    }
+
+NH_MISBEHAVING(c_nh_nan_at_2, NH_NAN_AT_2)
+NH_MISBEHAVING(c_nh_unwritten_at_2, NH_UNWRITTEN_AT_2)
+NH_MISBEHAVING(c_nh_spin_at_2, NH_SPIN_AT_2)

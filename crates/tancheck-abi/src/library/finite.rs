@@ -2,7 +2,7 @@
 //! [`FiniteRoutine`]: every real and complex call through the guarded finite-strain
 //! trampoline of the shim (signals, floating-point traps, the process watch and its last
 //! words), with light checks of its own: inputs compared bit for bit after the call, and
-//! outputs left unwritten (still NaN). A call allocates nothing (only a finding does).
+//! outputs left unwritten (still holding the signalling NaN they were filled with). A call allocates nothing (only a finding does).
 //!
 //! Not yet here: the canary zones and the read-past-the-end check of the point routine's
 //! memory guards (`memory_guards`), which are laid out for the small-strain arrays.
@@ -22,6 +22,7 @@ use crate::signal_guard::{
 };
 
 use super::Library;
+use crate::memory_guards::PREFILL_BITS;
 
 /// `TC_FINITE_ABI_VERSION`.
 pub const FINITE_ABI_VERSION: i32 = 1;
@@ -203,12 +204,22 @@ fn reset(o: &mut Outcome) {
 /// Copies of the inputs made before a call: properties, state0, f0, f1, rotation, stress0.
 type InputCopies<'a, S> = (&'a [S], &'a [S], [S; 9], [S; 9], [S; 9], [S; 6]);
 
-/// After a call: an input that changed, or an output left NaN.
+/// Before a checked call: the outputs filled with the guards' signalling NaN, a value no
+/// arithmetic produces, so that an entry still holding it was never written (a NaN the routine
+/// computes is a quiet one: a non-finite output, which the check reports as such).
+fn prefill<S: Copy>(output: &mut FiniteOutput<'_, S>, fill: S) {
+    output.stress.fill(fill);
+    output.state.fill(fill);
+    output.tangent.fill(fill);
+}
+
+/// After a call: an input that changed, or an output left unwritten (`unwritten`: it still
+/// holds the fill of [`prefill`]).
 fn findings<S: Copy + PartialEq>(
     input: &FiniteInput<'_, S>,
     output: &FiniteOutput<'_, S>,
     copies: InputCopies<'_, S>,
-    is_nan: impl Fn(S) -> bool,
+    unwritten: impl Fn(S) -> bool,
 ) -> Result<(), Fault> {
     let (p, s0, f0, f1, rot, st0) = copies;
     let which = changed("properties", p, input.properties)
@@ -226,8 +237,10 @@ fn findings<S: Copy + PartialEq>(
     for (name, arr) in
         [("stress", &output.stress[..]), ("state", &output.state[..]), ("tangent", &output.tangent[..])]
     {
-        if let Some(i) = arr.iter().position(|x| is_nan(*x)) {
-            return Err(Fault::Misbehaved { what: format!("left {name}[{i}] unwritten (still NaN)") });
+        if let Some(i) = arr.iter().position(|x| unwritten(*x)) {
+            return Err(Fault::Misbehaved {
+                what: format!("left {name}[{i}] unwritten (it still holds the guard's fill value)"),
+            });
         }
     }
     Ok(())
@@ -250,6 +263,7 @@ impl FiniteRoutine for FiniteLibraryRoutine {
         if self.checks {
             self.properties_copy.copy_from_slice(input.properties);
             self.state0_copy.copy_from_slice(input.state0);
+            prefill(output, f64::from_bits(PREFILL_BITS));
         }
         let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
         let args = self.args(&call, input, output, &temperature);
@@ -262,7 +276,7 @@ impl FiniteRoutine for FiniteLibraryRoutine {
                 input,
                 output,
                 (&self.properties_copy, &self.state0_copy, f0, f1, rot, st0),
-                f64::is_nan,
+                |x: f64| x.to_bits() == PREFILL_BITS,
             )?;
         }
         status_fault(output.outcome)
@@ -290,6 +304,8 @@ impl FiniteRoutine for FiniteLibraryRoutine {
         if self.checks {
             self.complex_properties_copy.copy_from_slice(input.properties);
             self.complex_state0_copy.copy_from_slice(input.state0);
+            let fill = f64::from_bits(PREFILL_BITS);
+            prefill(output, Complex64::new(fill, fill));
         }
         let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
         let args = self.args(&call, input, output, &temperature);
@@ -298,7 +314,8 @@ impl FiniteRoutine for FiniteLibraryRoutine {
         unsafe { guard::call_finite_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
         if self.checks {
             let copies = (&self.complex_properties_copy[..], &self.complex_state0_copy[..], f0, f1, rot, st0);
-            findings(input, output, copies, |z: Complex64| z.re.is_nan() || z.im.is_nan())?;
+            let unwritten = |z: Complex64| z.re.to_bits() == PREFILL_BITS || z.im.to_bits() == PREFILL_BITS;
+            findings(input, output, copies, unwritten)?;
         }
         status_fault(output.outcome)
     }

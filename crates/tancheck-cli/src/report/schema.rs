@@ -134,7 +134,43 @@ struct ReportFile {
 /// The schema as pretty JSON text with a final newline (the shipped file's content).
 pub fn schema_text() -> String {
     let schema = schemars::schema_for!(ReportFile);
-    let mut s = serde_json::to_string_pretty(&schema).expect("a schema prints");
+    let mut v = serde_json::to_value(&schema).expect("a schema is JSON");
+    non_finite_as_null(&mut v);
+    if let Some(root) = v.as_object_mut() {
+        let d = root.get("description").and_then(|d| d.as_str()).unwrap_or_default().to_string();
+        root.insert("description".into(), format!("{d}\n\n{NON_FINITE}").trim().to_string().into());
+    }
+    let mut s = serde_json::to_string_pretty(&v).expect("a schema prints");
     s.push('\n');
     s
+}
+
+/// How the reports write a number that is not finite.
+const NON_FINITE: &str = "A floating-point number that is not finite (NaN, or infinite: an error \
+     measured against a derivative that is not a number, a stress the routine returned as NaN) is \
+     written as null, so every such field also takes null.";
+
+/// Every floating-point field (`format` double) also takes null: the reports write a value
+/// that is not finite as null (serde_json), and a failing check has such values.
+fn non_finite_as_null(v: &mut serde_json::Value) {
+    match v {
+        serde_json::Value::Object(o) => {
+            if o.get("format").and_then(|f| f.as_str()) == Some("double") {
+                match o.get_mut("type") {
+                    Some(t @ serde_json::Value::String(_)) if t == "number" => {
+                        *t = serde_json::json!(["number", "null"]);
+                    }
+                    Some(serde_json::Value::Array(a)) if !a.iter().any(|x| x == "null") => {
+                        a.push("null".into());
+                    }
+                    _ => {}
+                }
+            }
+            for x in o.values_mut() {
+                non_finite_as_null(x);
+            }
+        }
+        serde_json::Value::Array(a) => a.iter_mut().for_each(non_finite_as_null),
+        _ => {}
+    }
 }

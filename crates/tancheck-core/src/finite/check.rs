@@ -187,8 +187,22 @@ pub fn run(
                 numerical: reference[e],
             });
         let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
+        let non_finite = [("stress", &base.stress[..]), ("tangent", &base.tangent[..])]
+            .into_iter()
+            .find_map(|(name, a)| a.iter().position(|x| !x.is_finite()).map(|i| (name, i, a[i])));
         let cause = if passed {
             None
+        } else if let Some((name, i, v)) = non_finite {
+            // A value the routine computed (an unwritten one is the guards' fault): no
+            // measure or factor explains it.
+            Some(FiniteCause {
+                name: "non-finite-output".into(),
+                explanation: format!(
+                    "the routine returned {name}[{i}] = {v}: a division by zero, a logarithm or root of a \
+                     negative number, or an overflow in the update"
+                ),
+                error: f64::INFINITY,
+            })
         } else {
             let reference = reference.clone();
             diagnose(r, &mut ws, &start, f1, &tau, &base.tangent, &reference, reference_ask)
