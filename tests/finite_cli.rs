@@ -303,3 +303,33 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     let (code, out) = tancheck(&["check", &unwritten, "-q", "--guards", "off"]);
     assert_ne!(code, 3, "{out}");
 }
+
+// A tensor in the state (probes.tensor_state) must lie inside the state and not share entries
+// with another: both were accepted, and the probes passed without rotating it.
+#[test]
+fn tensor_slots_outside_the_state_are_refused() {
+    let dir = scratch("tensor-slots");
+    for (slots, want) in
+        [("[0]", None), ("[2]", Some("slot 2 takes state entries 2 to 7")), ("[0, 1]", Some("share"))]
+    {
+        let p = dir.join("m.json");
+        std::fs::write(
+            &p,
+            format!(
+                r#"{{ "finite": {{ "stress": "cauchy", "tangent": "sigma-jaumann" }},
+                   "routine": {{ "model": "j2-log", "states": 7, "properties": {J2_PROPERTIES} }},
+                   "path": {{ "shape": "simple-shear", "amount": 0.5, "increments": 2 }},
+                   "probes": {{ "tensor_state": {slots} }} }}"#
+            ),
+        )
+        .unwrap();
+        let (code, out) = tancheck(&["probe", p.to_str().unwrap()]);
+        match want {
+            None => assert_eq!(code, 0, "{slots}: {out}"),
+            Some(w) => {
+                assert_eq!(code, 2, "{slots}: {out}");
+                assert!(out.contains("m.json: probes.tensor_state") && out.contains(w), "{slots}: {out}");
+            }
+        }
+    }
+}

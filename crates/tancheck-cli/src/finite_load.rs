@@ -117,6 +117,26 @@ impl FiniteManifest {
         if !m.start.state.is_empty() && m.start.state.len() != r.states {
             bail!("{file}: start.state has {} entries, routine.states is {}", m.start.state.len(), r.states);
         }
+        // A symmetric tensor in the state takes 6 entries from its first slot: inside the
+        // state, and no two of them sharing an entry (the probes rotate each one).
+        let mut slots: Vec<usize> = m.probes.tensor_state.clone();
+        slots.sort_unstable();
+        if let Some(&t) = slots.iter().find(|&&t| t + 6 > r.states) {
+            bail!(
+                "{file}: probes.tensor_state: a tensor at slot {t} takes state entries {t} to {}, and \
+                 routine.states is {} (slots count from 0)",
+                t + 5,
+                r.states
+            );
+        }
+        if let Some(w) = slots.windows(2).find(|w| w[1] < w[0] + 6) {
+            bail!(
+                "{file}: probes.tensor_state: the tensors at slots {} and {} share state entries (each \
+                 takes 6)",
+                w[0],
+                w[1]
+            );
+        }
         let s = m.check;
         if !(s.central_step > 0.0 && s.complex_step > 0.0 && s.tolerance > 0.0) {
             bail!("{file}: check.central_step, check.complex_step and check.tolerance must be positive");
