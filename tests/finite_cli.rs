@@ -299,6 +299,12 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     let (code, out) = tancheck(&["check", &unwritten, "-q"]);
     assert_eq!(code, 3, "{out}");
     assert!(out.contains("left tangent[20] unwritten"), "{out}");
+    // A write one past the end of the state: the zone after it (the heap was corrupted, and a
+    // PASS printed before the process died while writing the report).
+    let overrun = write(&dir, "overrun.json", &m("c_nh_state_overrun_at_2"));
+    let (code, out) = tancheck(&["check", &overrun, "-q"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(out.contains("wrote past the end of state: state[0]") && !out.contains("PASS"), "{out}");
     // With the guards off an unwritten entry is what the call left there.
     let (code, out) = tancheck(&["check", &unwritten, "-q", "--guards", "off"]);
     assert_ne!(code, 3, "{out}");

@@ -1,11 +1,12 @@
 //! One finite-strain routine of a loaded library (tancheck_finite.h) as a
 //! [`FiniteRoutine`]: every real and complex call through the guarded finite-strain
 //! trampoline of the shim (signals, floating-point traps, the process watch and its last
-//! words), with light checks of its own: inputs compared bit for bit after the call, and
-//! outputs left unwritten (still holding the signalling NaN they were filled with). A call allocates nothing (only a finding does).
+//! words), with light checks of its own: inputs compared bit for bit after the call, the
+//! outputs written into a block of the routine's own where each array is followed by a zone
+//! of canaries (a write past an array's end), and outputs left unwritten (still holding the
+//! signalling NaN they were filled with). A call allocates nothing (only a finding does).
 //!
-//! Not yet here: the canary zones and the read-past-the-end check of the point routine's
-//! memory guards (`memory_guards`), which are laid out for the small-strain arrays.
+//! Not yet here: the read-past-the-end check of the point routine's full guard level.
 
 use std::ffi::{c_void, CString};
 
@@ -22,7 +23,59 @@ use crate::signal_guard::{
 };
 
 use super::Library;
-use crate::memory_guards::PREFILL_BITS;
+use crate::memory_guards::{CANARY_BITS, PREFILL_BITS, ZONE};
+
+/// The outputs of a checked call in one block, each array followed by [`ZONE`] canaries:
+/// stress (6), state, tangent, energy (2).
+struct OutputBlock<S> {
+    data: Vec<S>,
+    /// (name, start, length) of each array.
+    arrays: [(&'static str, usize, usize); 4],
+}
+
+impl<S: Copy> OutputBlock<S> {
+    fn new(nstate: usize, ntangent: usize, zero: S) -> OutputBlock<S> {
+        let mut arrays = [("stress", 0, 6), ("state", 0, nstate), ("tangent", 0, ntangent), ("energy", 0, 2)];
+        let mut at = 0;
+        for a in &mut arrays {
+            a.1 = at;
+            at += a.2 + ZONE;
+        }
+        OutputBlock { data: vec![zero; at], arrays }
+    }
+
+    /// Outputs filled with `fill`, zones with `canary`.
+    fn arm(&mut self, fill: S, canary: S) {
+        for &(_, start, len) in &self.arrays {
+            self.data[start..start + len].fill(fill);
+            self.data[start + len..start + len + ZONE].fill(canary);
+        }
+    }
+
+    /// Pointers to the stress, state, tangent and energy arrays.
+    fn pointers(&mut self) -> [*mut c_void; 4] {
+        let base = self.data.as_mut_ptr();
+        // SAFETY: every start lies inside `data` (new).
+        self.arrays.map(|(_, start, _)| unsafe { base.add(start) }.cast::<c_void>())
+    }
+
+    /// The first zone entry the call changed, as "name[index]" (`intact`: a canary as set).
+    fn overrun(&self, intact: impl Fn(S) -> bool) -> Option<String> {
+        self.arrays.iter().find_map(|&(name, start, len)| {
+            let zone = &self.data[start + len..start + len + ZONE];
+            zone.iter().position(|x| !intact(*x)).map(|k| format!("{name}[{}]", len + k))
+        })
+    }
+
+    /// The arrays, copied into the caller's outputs.
+    fn deliver(&self, output: &mut FiniteOutput<'_, S>) {
+        let a = |i: usize| &self.data[self.arrays[i].1..self.arrays[i].1 + self.arrays[i].2];
+        output.stress.copy_from_slice(a(0));
+        output.state.copy_from_slice(a(1));
+        output.tangent.copy_from_slice(a(2));
+        output.energy.copy_from_slice(a(3));
+    }
+}
 
 /// `TC_FINITE_ABI_VERSION`.
 pub const FINITE_ABI_VERSION: i32 = 1;
@@ -77,6 +130,8 @@ pub struct FiniteLibraryRoutine {
     state0_copy: Vec<f64>,
     complex_properties_copy: Vec<Complex64>,
     complex_state0_copy: Vec<Complex64>,
+    real_block: OutputBlock<f64>,
+    complex_block: OutputBlock<Complex64>,
 }
 
 impl std::fmt::Debug for FiniteLibraryRoutine {
@@ -104,7 +159,11 @@ impl Library {
         let label = CString::new(format!("{}:{symbol}", self.path.display()).replace('\0', " "))
             .expect("NUL bytes were replaced");
         let (np, ns) = (info.nproperties, info.nstate);
+        let nn = info.tangent.size() * info.tangent.size();
+        let zero = Complex64::new(0.0, 0.0);
         Ok(FiniteLibraryRoutine {
+            real_block: OutputBlock::new(ns, nn, 0.0),
+            complex_block: OutputBlock::new(ns, nn, zero),
             info,
             symbol: symbol.into(),
             real,
@@ -167,11 +226,14 @@ impl FiniteLibraryRoutine {
         );
     }
 
+    /// The trampoline's arguments; `outputs`: where the routine writes stress, state, tangent
+    /// and energy (the caller's arrays, or the zoned block of a checked call).
     fn args<S>(
         &self,
         call: &TcFiniteCall,
         input: &FiniteInput<'_, S>,
-        output: &mut FiniteOutput<'_, S>,
+        outputs: [*mut c_void; 4],
+        outcome: &mut Outcome,
         temperature: &[S; 2],
     ) -> GuardArgs {
         GuardArgs {
@@ -182,16 +244,37 @@ impl FiniteLibraryRoutine {
             temp: temperature.as_ptr().cast(),
             stress0: input.stress0.as_ptr().cast(),
             state0: input.state0.as_ptr().cast(),
-            stress: output.stress.as_mut_ptr().cast(),
-            state: output.state.as_mut_ptr().cast(),
-            tangent: output.tangent.as_mut_ptr().cast(),
+            stress: outputs[0].cast(),
+            state: outputs[1].cast(),
+            tangent: outputs[2].cast(),
             dstress_dtemp: input.rotation.as_ptr().cast::<c_void>().cast_mut(),
-            energy: output.energy.as_mut_ptr().cast(),
-            report: std::ptr::from_mut::<Outcome>(output.outcome),
+            energy: outputs[3].cast(),
+            report: std::ptr::from_mut::<Outcome>(outcome),
             label: self.label.as_ptr(),
             fp_traps: i32::from(self.fp_traps),
             reserved: LAYOUT_FINITE,
         }
+    }
+}
+
+/// The caller's own output arrays (a call without checks writes straight into them).
+fn direct<S>(output: &mut FiniteOutput<'_, S>) -> [*mut c_void; 4] {
+    [
+        output.stress.as_mut_ptr().cast(),
+        output.state.as_mut_ptr().cast(),
+        output.tangent.as_mut_ptr().cast(),
+        output.energy.as_mut_ptr().cast(),
+    ]
+}
+
+/// The finding of a changed canary after `entry` ("state[2]").
+fn overrun(entry: &str) -> Fault {
+    let name = entry.split('[').next().unwrap_or(entry);
+    Fault::Misbehaved {
+        what: format!(
+            "wrote past the end of {name}: {entry} (an index past the array's end, or a size that does not \
+             match nstate or ntangent)"
+        ),
     }
 }
 
@@ -204,17 +287,9 @@ fn reset(o: &mut Outcome) {
 /// Copies of the inputs made before a call: properties, state0, f0, f1, rotation, stress0.
 type InputCopies<'a, S> = (&'a [S], &'a [S], [S; 9], [S; 9], [S; 9], [S; 6]);
 
-/// Before a checked call: the outputs filled with the guards' signalling NaN, a value no
-/// arithmetic produces, so that an entry still holding it was never written (a NaN the routine
-/// computes is a quiet one: a non-finite output, which the check reports as such).
-fn prefill<S: Copy>(output: &mut FiniteOutput<'_, S>, fill: S) {
-    output.stress.fill(fill);
-    output.state.fill(fill);
-    output.tangent.fill(fill);
-}
-
 /// After a call: an input that changed, or an output left unwritten (`unwritten`: it still
-/// holds the fill of [`prefill`]).
+/// holds the fill of [`OutputBlock::arm`], a signalling NaN no arithmetic produces, so that a
+/// NaN the routine computes is a non-finite output, which the check reports as such).
 fn findings<S: Copy + PartialEq>(
     input: &FiniteInput<'_, S>,
     output: &FiniteOutput<'_, S>,
@@ -263,15 +338,20 @@ impl FiniteRoutine for FiniteLibraryRoutine {
         if self.checks {
             self.properties_copy.copy_from_slice(input.properties);
             self.state0_copy.copy_from_slice(input.state0);
-            prefill(output, f64::from_bits(PREFILL_BITS));
+            self.real_block.arm(f64::from_bits(PREFILL_BITS), f64::from_bits(CANARY_BITS));
         }
         let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
-        let args = self.args(&call, input, output, &temperature);
+        let outputs = if self.checks { self.real_block.pointers() } else { direct(output) };
+        let args = self.args(&call, input, outputs, output.outcome, &temperature);
         // SAFETY: `real` has the finite-strain signature (looked up by its name); every array
         // has the length `call` announces (check_lengths: properties, state; the others are
         // fixed-size arrays), and `call`, `temperature` outlive the call.
         unsafe { guard::call_finite(self.real, &args) }.map_err(guard::Crash::into_fault)?;
         if self.checks {
+            if let Some(w) = self.real_block.overrun(|x| x.to_bits() == CANARY_BITS) {
+                return Err(overrun(&w));
+            }
+            self.real_block.deliver(output);
             findings(
                 input,
                 output,
@@ -304,15 +384,21 @@ impl FiniteRoutine for FiniteLibraryRoutine {
         if self.checks {
             self.complex_properties_copy.copy_from_slice(input.properties);
             self.complex_state0_copy.copy_from_slice(input.state0);
-            let fill = f64::from_bits(PREFILL_BITS);
-            prefill(output, Complex64::new(fill, fill));
+            let (fill, canary) = (f64::from_bits(PREFILL_BITS), f64::from_bits(CANARY_BITS));
+            self.complex_block.arm(Complex64::new(fill, fill), Complex64::new(canary, canary));
         }
         let (f0, f1, rot, st0) = (*input.f0, *input.f1, *input.rotation, *input.stress0);
-        let args = self.args(&call, input, output, &temperature);
+        let outputs = if self.checks { self.complex_block.pointers() } else { direct(output) };
+        let args = self.args(&call, input, outputs, output.outcome, &temperature);
         // SAFETY: as in `call`, with the twin's complex signature; Complex64 is repr(C) and
         // laid out as C's double _Complex.
         unsafe { guard::call_finite_complex(twin, &args) }.map_err(guard::Crash::into_fault)?;
         if self.checks {
+            let intact = |z: Complex64| z.re.to_bits() == CANARY_BITS && z.im.to_bits() == CANARY_BITS;
+            if let Some(w) = self.complex_block.overrun(intact) {
+                return Err(overrun(&w));
+            }
+            self.complex_block.deliver(output);
             let copies = (&self.complex_properties_copy[..], &self.complex_state0_copy[..], f0, f1, rot, st0);
             let unwritten = |z: Complex64| z.re.to_bits() == PREFILL_BITS || z.im.to_bits() == PREFILL_BITS;
             findings(input, output, copies, unwritten)?;
