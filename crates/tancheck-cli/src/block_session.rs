@@ -81,7 +81,8 @@ fn load_counterpart(m: &Manifest, dir: &FsPath, nstate: usize) -> Result<Option<
     let lib = Library::open(&lib_path)?;
     let info =
         RoutineInfo { name: symbol.clone(), convention: conv, nstate, nprop: m.routine.properties.len() };
-    Ok(Some((Box::new(lib.routine(symbol, info)?), c.tolerance)))
+    let point = lib.routine(symbol, info).map_err(|e| anyhow::anyhow!("block.counterpart.symbol: {e}"))?;
+    Ok(Some((Box::new(point), c.tolerance)))
 }
 
 /// Load and check the block routine a manifest names.

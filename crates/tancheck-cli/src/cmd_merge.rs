@@ -123,7 +123,7 @@ pub fn run(a: &MergeArgs) -> Result<i32> {
     reporters.finish()?;
     if let Some(m) = r.merged.as_ref().filter(|m| !m.missing.is_empty()) {
         eprintln!(
-            "tancheck: merge: missing shards {} of {} (0-based): no partial report was given for them",
+            "tancheck: merge: missing shards {} of {} (0-based): no finished partial report was given for them",
             list(&m.missing),
             m.shards
         );

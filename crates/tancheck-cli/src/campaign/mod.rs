@@ -88,7 +88,8 @@ pub fn slurm_shard() -> Result<Option<ShardInfo>> {
     if id < min || id - min >= count || count == 0 {
         bail!(
             "SLURM_ARRAY_TASK_ID={id} with SLURM_ARRAY_TASK_MIN={min} and SLURM_ARRAY_TASK_COUNT={count}: \
-             not a shard 0..{count}; give the job array contiguous ids (--array=0-{})",
+             not one of the shards 0 to {}; give the job array contiguous ids (--array=0-{})",
+            count.saturating_sub(1),
             count.saturating_sub(1)
         );
     }

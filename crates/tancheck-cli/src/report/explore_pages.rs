@@ -104,10 +104,12 @@ pub fn explore_page(r: &ExploreReport) -> String {
             writeln!(o, "<li>state variables that never changed: {}</li>", esc(&ranges_text(&r.never.state)));
     }
     if r.never.branches.is_empty() && r.never.state.is_empty() {
-        let _ = writeln!(
-            o,
-            "<li class=\"note\">nothing known to the vocabulary; every state variable changed</li>"
-        );
+        let state = if r.routine.nstate == 0 {
+            "the routine has no state variables"
+        } else {
+            "every state variable changed"
+        };
+        let _ = writeln!(o, "<li class=\"note\">nothing known to the vocabulary; {state}</li>");
     }
     let _ = writeln!(o, "</ul>\n<h2>Failures</h2>");
     if r.findings.is_empty() {

@@ -19,7 +19,12 @@ impl BlockTerminal {
             return self.write_quiet(r, out);
         }
         writeln!(out, "tancheck: block routine {}", r.routine)?;
-        writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
+        // A path spec's name counts its increments already ("… (6+3 increments)").
+        if r.path.ends_with("increments)") || r.path.ends_with("increment)") {
+            writeln!(out, "   path: {}", r.path)?;
+        } else {
+            writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
+        }
         let e = &r.elastic;
         writeln!(
             out,

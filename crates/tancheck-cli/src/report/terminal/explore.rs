@@ -93,7 +93,12 @@ pub fn write(out: &mut dyn Write, r: &ExploreReport, detail: Detail, p: Palette)
     }
     let n = &r.never;
     if n.branches.is_empty() && n.state.is_empty() {
-        writeln!(out, "   never reached: nothing known to the vocabulary; every state variable changed")?;
+        let state = if r.routine.nstate == 0 {
+            "the routine has no state variables"
+        } else {
+            "every state variable changed"
+        };
+        writeln!(out, "   never reached: nothing known to the vocabulary; {state}")?;
     } else {
         for b in &n.branches {
             writeln!(out, "   {} branch {} ({})", p.warn("never reached:"), b.branch, b.name)?;
