@@ -189,7 +189,8 @@ pub fn difference_terms(asked: TangentMeasure, got: TangentMeasure) -> &'static 
     };
     match (rate(asked), rate(got)) {
         ('J', 'T') | ('T', 'J') => {
-            "the stress terms d·tau + tau·d = 1/2(d_ik tau_jl + tau_ik d_jl + d_il tau_jk + tau_il d_jk)"
+            "the stress terms d·tau + tau·d = 1/2(d_ik tau_jl + tau_ik d_jl + d_il tau_jk + tau_il d_jk) \
+             (divided by J for the sigma measures)"
         }
         ('J', 'G') | ('G', 'J') => "the spin terms (Omega - w) tau - tau (Omega - w) of the polar rotation",
         ('T', 'G') | ('G', 'T') => "the stress terms d·tau + tau·d and the polar spin terms",

@@ -209,9 +209,11 @@ impl Findings {
                 if worst.is_finite() {
                     // The largest of the stress, state and energy differences, each relative
                     // to its own size: the details say which.
-                    format!("NOT objective: {what} fails; largest relative difference {worst:.2e}")
+                    format!(
+                        "NOT objective: it should hold that {what}; largest relative difference {worst:.2e}"
+                    )
                 } else {
-                    format!("NOT objective: {what} fails; a call failed")
+                    format!("NOT objective: it should hold that {what}; a call failed")
                 }
             },
             details,
