@@ -159,4 +159,6 @@ fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
     let (c, t) = probe(&[m, "--suite", index.to_str().unwrap()], &d);
     assert_eq!(c, Some(2), "{t}");
     assert!(t.contains("index.json: ") && t.contains("damage index 20 is not a state variable"), "{t}");
+    // Checked against the routine before any probe runs, naming the entry.
+    assert!(t.contains("probes[0] (irreversibility)"), "{t}");
 }

@@ -480,15 +480,7 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,
         None => notes.extend(suite.fit_at(&path)),
     }
-    // A suite entry the routine cannot take (a damage index past its state variables) is an
-    // error of the suite file: named with it.
-    let report =
-        crate::session::run_probe_suite(&m, &dir, &file, &suite, &path).map_err(|e| match &suite_file {
-            Some(f) if e.chain().any(|c| c.to_string().contains("is not a state variable")) => {
-                anyhow::anyhow!("{}: {e:#}", f.display())
-            }
-            _ => e,
-        })?;
+    let report = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, suite_file.as_deref())?;
     let source = if a.path.is_some() {
         "from --path"
     } else if m.path.is_some() && !a.suite_path {

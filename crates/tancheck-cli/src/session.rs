@@ -281,10 +281,18 @@ pub fn run_probe_suite(
     file: &str,
     suite: &crate::suite::Suite,
     path: &Path,
+    suite_file: Option<&std::path::Path>,
 ) -> Result<tancheck_core::probe::SuiteReport> {
     use anyhow::Context;
     let mut loaded = load(m, dir).with_context(|| format!("loading the routine of {file}"))?;
     let routine = loaded.routine();
+    // A suite entry the routine cannot take is an error of the suite, before any call.
+    if let Some(what) = suite.state_indices_beyond(routine.info().nstate) {
+        match suite_file {
+            Some(f) => anyhow::bail!("{}: {what}", f.display()),
+            None => anyhow::bail!("the built-in suite `{}`: {what}", suite.suite),
+        }
+    }
     let start = start_state(m, routine.info()).with_context(|| file.to_string())?;
     let mut caller = Caller::new(routine);
     crate::survive::checking(true);

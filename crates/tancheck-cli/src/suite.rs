@@ -38,6 +38,19 @@ pub struct Suite {
 }
 
 impl Suite {
+    /// The first probe whose damage variables (`damage`: state indices) a routine with
+    /// `nstate` state variables does not have, in words naming the probe (`probes[k]`).
+    pub fn state_indices_beyond(&self, nstate: usize) -> Option<String> {
+        self.probes.iter().enumerate().find_map(|(k, p)| {
+            let bad = p.damage.as_ref()?.iter().find(|&&i| i >= nstate)?;
+            Some(format!(
+                "probes[{k}] ({}): damage index {bad} is not a state variable (the routine has {nstate}; \
+                 indices count from 0)",
+                p.probe
+            ))
+        })
+    }
+
     pub fn parse(text: &str, file: &FsPath) -> Result<Suite, ManifestError> {
         let s: Suite = serde_json::from_str(text).map_err(|e| ManifestError::json(file, &e))?;
         let known: Vec<_> = tancheck_core::probe::registry().iter().map(|p| p.name()).collect();
