@@ -260,6 +260,44 @@ fn a_worker_that_dies_is_its_items_fault_and_the_others_run() {
     assert!(html.contains("Campaign small") && html.contains("not as expected"), "{html}");
 }
 
+/// Without --isolate, a routine that ends the process ends the campaign: its JSON report is
+/// then the last words naming the campaign and the fault (it stayed the bare "incomplete"
+/// marker), and `merge` says so of a shard that ended this way.
+#[test]
+fn without_isolate_a_routine_that_ends_the_process_leaves_last_words() {
+    let d = scratch("last-words");
+    let file = small_campaign(&d);
+    let json = d.join("r.json");
+    let o = bin().arg("campaign").arg(&file).args(["-j", "1", "--json"]).arg(&json).output().unwrap();
+    assert_eq!(o.status.code(), Some(70), "{}", text(&o));
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["kind"], "last-words", "{v}");
+    assert_eq!(v["routine"], "campaign small", "{v}");
+    assert!(v["fault"]["message"].as_str().unwrap().contains("exit()"), "{v}");
+    // Of two shards, the one holding that item ends so, and merge names it as a shard that
+    // did not finish.
+    let parts: Vec<PathBuf> = (0..2).map(|k| d.join(format!("p{k}.json"))).collect();
+    let mut ended = Vec::new();
+    for (k, p) in parts.iter().enumerate() {
+        let shard = format!("{k}/2");
+        let o = bin()
+            .arg("campaign")
+            .arg(&file)
+            .args(["--shard", &shard, "-j", "1", "--json"])
+            .arg(p)
+            .output()
+            .unwrap();
+        let v: Value = serde_json::from_str(&std::fs::read_to_string(p).unwrap()).unwrap();
+        if v["kind"] == "last-words" {
+            assert_eq!(o.status.code(), Some(70), "{}", text(&o));
+            ended.push(p.file_name().unwrap().to_string_lossy().into_owned());
+        }
+    }
+    assert_eq!(ended.len(), 1, "{ended:?}");
+    let o = bin().arg("merge").args(&parts).arg("-o").arg(d.join("m.json")).output().unwrap();
+    assert!(text(&o).contains(&format!("{}: its shard ended before it finished", ended[0])), "{}", text(&o));
+}
+
 #[test]
 fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report() {
     let d = scratch("bad");

@@ -97,6 +97,20 @@ pub fn merge(parts: Vec<(PathBuf, CampaignReport)>) -> Result<CampaignReport> {
     Ok(r)
 }
 
+/// The fault of a shard's last words (the report a process writes as a routine ends it),
+/// when `text` is one.
+fn last_words(text: &str) -> Option<String> {
+    let v = serde_json::from_str::<serde_json::Value>(text).ok()?;
+    (v["kind"] == "last-words").then(|| {
+        let f = &v["fault"];
+        format!(
+            "{}, {}",
+            f["message"].as_str().unwrap_or("a fault"),
+            f["when"].as_str().unwrap_or("during a call")
+        )
+    })
+}
+
 /// Whether `text` is the "incomplete" marker of a run that did not finish.
 fn is_incomplete(text: &str) -> bool {
     serde_json::from_str::<serde_json::Value>(text).is_ok_and(|v| v["verdict"] == "incomplete")
@@ -112,6 +126,14 @@ pub fn run(a: &MergeArgs) -> Result<i32> {
         if is_incomplete(&text) {
             // The marker a shard leaves until it finishes: that shard is missing.
             eprintln!("tancheck: merge: {}: incomplete (its shard did not finish): left out", f.display());
+            continue;
+        }
+        if let Some(why) = last_words(&text) {
+            // A shard whose process a routine ended: its last words replaced the marker.
+            eprintln!(
+                "tancheck: merge: {}: its shard ended before it finished ({why}): left out",
+                f.display()
+            );
             continue;
         }
         let r = CampaignReport::from_json(&text).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?;

@@ -130,6 +130,12 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         crate::report::write_atomic(p, marker.as_bytes())
             .with_context(|| format!("writing the JSON report to {}", p.display()))?;
     }
+    if a.item.is_none() && !a.isolate {
+        // A routine that ends the process (or a crash beyond the guard) ends the campaign in
+        // this process: its last words replace the marker with a report naming the fault, the
+        // routine and its call (the items before it are lost; --isolate keeps them).
+        crate::survive::set_routine(a.json.as_deref(), &format!("campaign {}", c.name));
+    }
     let mut notes = Vec::new();
     let libs = build::build_all(&c, a.build_dir.as_deref(), !a.output.quiet && a.item.is_none(), &mut notes)?;
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
