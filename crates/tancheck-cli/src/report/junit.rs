@@ -77,7 +77,9 @@ fn check_suite(report: &Report) -> TestSuite {
             .iter()
             .filter(|i| {
                 i.checks.iter().any(|c| {
-                    c.scheme == s.scheme && matches!(&c.tangent, CheckOutcome::Compared(cmp) if !cmp.pass)
+                    c.scheme == s.scheme
+                        && (matches!(&c.tangent, CheckOutcome::Compared(cmp) if !cmp.pass)
+                            || matches!(&c.dstress_dtemp, Some(CheckOutcome::Compared(cmp)) if !cmp.pass))
                 }) && !i.passed()
             })
             .map(|i| i.index)
@@ -103,6 +105,14 @@ fn check_suite(report: &Report) -> TestSuite {
                 s.worst_entry_error,
                 s.tol
             );
+            let msg = if s.dtemp_failed > 0 {
+                format!(
+                    "{msg}; ∂σ/∂T failed in {} of them, worst ∂σ/∂T error {:.2e}",
+                    s.dtemp_failed, s.dtemp_worst_error
+                )
+            } else {
+                msg
+            };
             failure(msg, NonSuccessKind::Failure, None)
         };
         let mut case = TestCase::new(name, status);

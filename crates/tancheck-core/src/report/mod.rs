@@ -228,6 +228,13 @@ pub struct SchemeSummary {
     pub worst_norm_error: f64,
     pub worst_entry_error: f64,
     pub tol: f64,
+    /// Of `failed`, the checks whose ∂σ/∂T differed (their tangent may have agreed: the
+    /// norm and entry errors above are the tangent's).
+    #[serde(default)]
+    pub dtemp_failed: usize,
+    /// The largest ∂σ/∂T error of those checks (0 when none failed).
+    #[serde(default)]
+    pub dtemp_worst_error: f64,
 }
 
 /// The tangent error per branch over the path.

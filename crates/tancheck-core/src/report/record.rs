@@ -252,6 +252,8 @@ impl Collector {
                     worst_norm_error: 0.0,
                     worst_entry_error: 0.0,
                     tol: settings.scheme(scheme).tol,
+                    dtemp_failed: 0,
+                    dtemp_worst_error: 0.0,
                 })
                 .collect(),
             branches: Vec::new(),
@@ -284,6 +286,14 @@ impl Collector {
             let cleared = !c.passed() && inc.diagnosis.as_ref().is_some_and(|d| d.pass);
             s.failed += (!c.passed() && !cleared) as usize;
             s.cleared += cleared as usize;
+            // The ∂σ/∂T part of a failed check (only failed increments: every one is pushed in
+            // full, so the compact and the full report count the same).
+            if let (Some(CheckOutcome::Compared(d)), false) = (&c.dstress_dtemp, c.passed() || cleared) {
+                if !d.pass {
+                    s.dtemp_failed += 1;
+                    s.dtemp_worst_error = s.dtemp_worst_error.max(d.error());
+                }
+            }
         }
         let worst = inc
             .checks

@@ -47,11 +47,16 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     let _ = writeln!(o, "</dl>");
     o.push_str(&cautions(&report.cautions));
 
-    let _ = writeln!(o, "<h2>Schemes</h2>\n<table>\n<tr><th>scheme</th><th>checks</th><th>failed</th><th>cleared</th><th>skipped</th><th>worst norm error</th><th>worst entry error</th><th>tolerance</th></tr>");
+    let _ = writeln!(o, "<h2>Schemes</h2>\n<table>\n<tr><th>scheme</th><th>checks</th><th>failed</th><th>cleared</th><th>skipped</th><th>worst norm error</th><th>worst entry error</th><th>tolerance</th><th>∂σ/∂T failed (worst error)</th></tr>");
     for s in &report.summary {
+        let dtemp = if s.dtemp_failed > 0 {
+            format!("{} ({})", s.dtemp_failed, sci(s.dtemp_worst_error))
+        } else {
+            "0".into()
+        };
         let _ = writeln!(
             o,
-            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{dtemp}</td></tr>",
             if s.failed > 0 { " class=\"bad\"" } else { "" },
             s.scheme.name(),
             s.checks,
@@ -148,7 +153,8 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
     );
     if let Some(d) = &inc.diagnosis {
         let _ = writeln!(o, "<p>{}</p>", esc(&d.reason));
-        let explaining: Vec<_> = d.causes.iter().filter(|h| h.explains).collect();
+        // The tangent's causes, then those of ∂σ/∂T.
+        let explaining: Vec<_> = d.causes.iter().chain(&d.dtemp_causes).filter(|h| h.explains).collect();
         if !explaining.is_empty() {
             let _ = writeln!(o, "<ul class=\"plain\">");
             for h in explaining {
@@ -203,7 +209,36 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
         });
         table(o, &["entry (row/column)", "returned", "numerical", "error"], rows);
     }
-    if let Some(d) = &inc.diagnosis {
+    // The worst failing ∂σ/∂T comparison (a column of its own: "row/T").
+    let worst_dtemp = inc
+        .checks
+        .iter()
+        .filter_map(|c| match &c.dstress_dtemp {
+            Some(CheckOutcome::Compared(cmp)) if !cmp.pass => Some((c.scheme, cmp)),
+            _ => None,
+        })
+        .max_by(|a, b| a.1.error().total_cmp(&b.1.error()));
+    if let Some((scheme, cmp)) = worst_dtemp {
+        let _ = writeln!(
+            o,
+            "<p>∂σ/∂T against {}: norm error {}, worst entry {} (tolerance {}).</p>",
+            scheme.name(),
+            sci(cmp.norm_error),
+            sci(cmp.worst_entry_error),
+            sci(cmp.tol)
+        );
+        let rows = cmp.worst.iter().map(|e| {
+            vec![
+                Cell::Text(format!("<code>{}</code>", esc(&e.label))),
+                Cell::Num(format!("{:.6e}", e.returned)),
+                Cell::Num(format!("{:.6e}", e.numerical)),
+                Cell::Num(sci(e.error)),
+            ]
+        });
+        table(o, &["entry (row/T)", "returned", "numerical", "error"], rows);
+    }
+    // The step studies are of the tangent: shown where it failed.
+    if let (Some(d), Some(_)) = (&inc.diagnosis, worst) {
         let tol = worst.map(|w| w.1.tol);
         o.push_str(&figure(
             plots::step_studies(&d.studies, tol, inc.index),

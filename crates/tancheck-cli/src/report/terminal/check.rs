@@ -235,9 +235,19 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
             if cleared > 0 { format!(" ({cleared} cleared on a closer look)") } else { String::new() };
         let failed = s.failed;
         let count = format!("{failed} of {} checks failed", s.checks);
+        // A failure of ∂σ/∂T is said apart: the errors after it are the tangent's.
+        let dtemp = if s.dtemp_failed > 0 {
+            format!(
+                ", {} of them in ∂σ/∂T (worst ∂σ/∂T error {}); tangent:",
+                s.dtemp_failed,
+                sci(s.dtemp_worst_error)
+            )
+        } else {
+            ";".into()
+        };
         writeln!(
             out,
-            "   {:<13} {}{aside}; worst norm error {}, worst entry error {} (tolerance {})",
+            "   {:<13} {}{aside}{dtemp} worst norm error {}, worst entry error {} (tolerance {})",
             s.scheme.name(),
             if failed > 0 { p.fail(&count) } else { count },
             sci(s.worst_norm_error),
@@ -249,7 +259,7 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         if b.failed > 0 {
             writeln!(
                 out,
-                "   branch {}: failed at {} of {} increments, worst {}",
+                "   branch {}: failed at {} of {} increments, worst tangent error {}",
                 b.branch,
                 b.failed,
                 b.increments,
@@ -286,6 +296,17 @@ fn verdict(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
             }) =>
         {
             "the routine returned values that are not finite numbers"
+        }
+        // Only ∂σ/∂T failed: every failing increment's tangent agreed.
+        Verdict::TangentFailure
+            if r.failing().all(|i| {
+                i.non_finite.is_empty()
+                    && i.fault.is_none()
+                    && i.checks.iter().all(|c| !matches!(&c.tangent, tancheck_core::report::CheckOutcome::Compared(x) if !x.pass))
+            }) && r.summary.iter().any(|s| s.dtemp_failed > 0) =>
+        {
+            "the returned ∂σ/∂T differs from the derivative of the stress update with respect to temperature \
+             (the tangent agrees)"
         }
         Verdict::TangentFailure => "the returned tangent differs from the derivative of the stress update",
         Verdict::RoutineFault => {

@@ -50,7 +50,9 @@ pub enum Cause {
     /// The discrepancy has rank two: two terms wrong, or a term a⊗b + b⊗a.
     RankTwo,
     /// ∂σ/∂T with one of its terms left out (the stiffness's temperature dependence, ∝ σ, or
-    /// the thermal expansion, ∝ C:1).
+    /// the thermal expansion, ∝ C:1). Named as the finding it gives (`dtemp-partial`); the
+    /// earlier name is still read (case files).
+    #[serde(rename = "dtemp-partial", alias = "partial-dtemp")]
     PartialDtemp,
 }
 
@@ -99,7 +101,7 @@ impl Cause {
             Cause::TermSign => "term-sign",
             Cause::TermScaled => "term-scaled",
             Cause::RankTwo => "rank-two",
-            Cause::PartialDtemp => "partial-dtemp",
+            Cause::PartialDtemp => "dtemp-partial",
         }
     }
 

@@ -1,0 +1,76 @@
+//! A routine whose tangent is right and whose ∂σ/∂T is wrong (the built-in
+//! `thermo-partial-dtemp`: the thermal-expansion term of ∂σ/∂T left out) is reported as such
+//! in every summary: the terminal's scheme lines count the ∂σ/∂T failures with their error
+//! (they gave only the tangent's 1e-11 errors beside "4 of 4 checks failed"), the verdict says
+//! it is ∂σ/∂T, the JSON summary carries the count and the error, the JUnit cases of the
+//! schemes fail (they passed beside a failed verdict), the HTML page shows ∂σ/∂T's entries
+//! and cause, and the cause has one name everywhere (`dtemp-partial`).
+
+use std::process::Command;
+
+use serde_json::Value;
+
+fn scratch(name: &str) -> std::path::PathBuf {
+    let d = std::env::temp_dir().join(format!("tancheck-dtemp-report-{}-{name}", std::process::id()));
+    let _ = std::fs::remove_dir_all(&d);
+    std::fs::create_dir_all(&d).unwrap();
+    d
+}
+
+#[test]
+fn a_wrong_dtemp_alone_is_said_in_every_summary() {
+    let d = scratch("summary");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "model": "thermo-partial-dtemp", "kind": "solid-3d", "properties": [210000, 0.3, 1e-5, 1.0, 1.0, 0.0] },
+  "start": { "temperature": 20 },
+  "path": { "shape": "tension-shear", "peak": 0.002, "steps": 4, "dtemp": 60 } }"#,
+    )
+    .unwrap();
+    let (json, junit, html) = (d.join("r.json"), d.join("r.xml"), d.join("r.html"));
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(&m)
+        .arg("--json")
+        .arg(&json)
+        .arg("--junit")
+        .arg(&junit)
+        .arg("--html")
+        .arg(&html)
+        .args(["--color", "never"])
+        .output()
+        .unwrap();
+    let t = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    assert_eq!(o.status.code(), Some(1), "{t}");
+    assert!(t.contains("the returned ∂σ/∂T differs") && t.contains("(the tangent agrees)"), "{t}");
+    let line = t
+        .lines()
+        .find(|l| l.trim_start().starts_with("central ") && l.contains("checks failed"))
+        .expect("the central summary line");
+    assert!(
+        line.contains("of them in ∂σ/∂T (worst ∂σ/∂T error") && line.contains("tangent: worst norm error"),
+        "{line}"
+    );
+    // (The model's own name is thermo-partial-dtemp.)
+    assert!(!t.replace("thermo-partial-dtemp", "").contains("partial-dtemp"), "one name for the cause: {t}");
+
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    for s in v["summary"].as_array().unwrap() {
+        let (failed, dtemp_failed) = (s["failed"].as_u64().unwrap(), s["dtemp_failed"].as_u64().unwrap());
+        assert!(failed > 0 && dtemp_failed == failed, "{s}");
+        // The tangent agrees; ∂σ/∂T is off by far more than the tolerance.
+        assert!(s["worst_entry_error"].as_f64().unwrap() <= s["tol"].as_f64().unwrap(), "{s}");
+        assert!(s["dtemp_worst_error"].as_f64().unwrap() > 1e3 * s["tol"].as_f64().unwrap(), "{s}");
+    }
+
+    let xml = std::fs::read_to_string(&junit).unwrap();
+    let scheme_cases = xml.matches("<testcase name=\"tangent against").count();
+    assert_eq!(scheme_cases, 2, "{xml}");
+    assert_eq!(xml.matches("<failure").count(), 3, "both schemes and the verdict fail: {xml}");
+    assert!(xml.contains("∂σ/∂T failed in"), "{xml}");
+
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("∂σ/∂T against") && page.contains("<th>entry (row/T)</th>"), "no ∂σ/∂T entries");
+    assert!(page.contains("cause <code>dtemp-partial</code>"), "no ∂σ/∂T cause");
+}
