@@ -161,4 +161,37 @@ fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
     assert!(t.contains("index.json: ") && t.contains("damage index 20 is not a state variable"), "{t}");
     // Checked against the routine before any probe runs, naming the entry.
     assert!(t.contains("probes[0] (irreversibility)"), "{t}");
+    // So is a property index (J2 has 7 properties).
+    let length = write(
+        &d,
+        "length.json",
+        r#"{"suite": "l", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 4},
+            "probes": [{"probe": "snap-back", "damage": [0], "length": 7}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", length.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("length.json: probes[0] (snap-back): length names property 7"), "{t}");
+    // A fracture energy that is not positive is refused where it is written.
+    let energy = write(
+        &d,
+        "energy.json",
+        r#"{"suite": "g", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 4},
+            "probes": [{"probe": "regularisation", "length": 0, "fracture_energy": -1}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", energy.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("energy.json:2:") && t.contains("fracture_energy is -1"), "{t}");
+    // `at` is checked against the path walked (here the manifest's 4 increments), not the
+    // suite's own (2): increment 4 runs.
+    let at = write(
+        &d,
+        "at.json",
+        r#"{"suite": "a", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 2},
+            "probes": [{"probe": "zero-increment", "at": [4]}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", at.to_str().unwrap()], &d);
+    assert_eq!(c, Some(0), "{t}");
+    let (c, t) = probe(&[m, "--suite", at.to_str().unwrap(), "--suite-path"], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("at.json") && t.contains("runs at increment 4"), "{t}");
 }

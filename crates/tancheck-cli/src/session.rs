@@ -287,7 +287,7 @@ pub fn run_probe_suite(
     let mut loaded = load(m, dir).with_context(|| format!("loading the routine of {file}"))?;
     let routine = loaded.routine();
     // A suite entry the routine cannot take is an error of the suite, before any call.
-    if let Some(what) = suite.state_indices_beyond(routine.info().nstate) {
+    if let Some(what) = suite.indices_beyond(routine.info().nstate, routine.info().nprop) {
         match suite_file {
             Some(f) => anyhow::bail!("{}: {what}", f.display()),
             None => anyhow::bail!("the built-in suite `{}`: {what}", suite.suite),

@@ -38,16 +38,29 @@ pub struct Suite {
 }
 
 impl Suite {
-    /// The first probe whose damage variables (`damage`: state indices) a routine with
-    /// `nstate` state variables does not have, in words naming the probe (`probes[k]`).
-    pub fn state_indices_beyond(&self, nstate: usize) -> Option<String> {
+    /// The first probe that names a state variable (`damage`) or a property (`length`,
+    /// `viscosity`, `axes`) a routine with `nstate` state variables and `nprop` properties
+    /// does not have, in words naming the probe (`probes[k]`).
+    pub fn indices_beyond(&self, nstate: usize, nprop: usize) -> Option<String> {
         self.probes.iter().enumerate().find_map(|(k, p)| {
-            let bad = p.damage.as_ref()?.iter().find(|&&i| i >= nstate)?;
-            Some(format!(
-                "probes[{k}] ({}): damage index {bad} is not a state variable (the routine has {nstate}; \
-                 indices count from 0)",
-                p.probe
-            ))
+            let state = p.damage.iter().flatten().find(|&&i| i >= nstate).map(|i| {
+                format!("damage index {i} is not a state variable (the routine has {nstate}; indices count from 0)")
+            });
+            let property = || {
+                let named = [("length", p.length), ("viscosity", p.viscosity)];
+                named
+                    .into_iter()
+                    .find_map(|(what, i)| i.filter(|&i| i >= nprop).map(|i| (what, i)))
+                    .or_else(|| p.axes.iter().flatten().find(|&&i| i + 2 >= nprop).map(|&i| ("axes", i)))
+                    .map(|(what, i)| {
+                        format!(
+                            "{what} names property {i}{}, and the routine has {nprop} properties (indices \
+                             count from 0)",
+                            if what == "axes" { " (with the two after it)" } else { "" }
+                        )
+                    })
+            };
+            state.or_else(property).map(|w| format!("probes[{k}] ({}): {w}", p.probe))
         })
     }
 
@@ -67,8 +80,7 @@ impl Suite {
                     format!("unknown probe `{}`; known probes: {}", p.probe, known.join(", ")),
                 ));
             }
-            check_numbers(p, path.increments.len())
-                .map_err(|m| at(k, &p.probe, format!("probe `{}`: {m}", p.probe)))?;
+            check_numbers(p).map_err(|m| at(k, &p.probe, format!("probe `{}`: {m}", p.probe)))?;
         }
         if s.probes.is_empty() {
             return Err(ManifestError::Invalid {
@@ -76,7 +88,9 @@ impl Suite {
                 message: "the suite has no probes; list at least one under \"probes\"".into(),
             });
         }
-        s.check_at(&path).map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        // `at` is checked against the path the probes walk (the manifest's, --path or the
+        // suite's: `check_at` once it is known), not against the suite's own.
+        let _ = path;
         Ok(s)
     }
 
@@ -154,8 +168,8 @@ impl Suite {
 /// The most sub-increments the refinement probe may use.
 pub const MAX_SUBDIVISIONS: usize = 1024;
 
-/// The numbers of one suite entry, against the suite's path of `increments` increments.
-fn check_numbers(p: &ProbeSpec, increments: usize) -> Result<(), String> {
+/// The numbers of one suite entry (what does not depend on the path or the routine).
+fn check_numbers(p: &ProbeSpec) -> Result<(), String> {
     if let Some(t) = p.tol {
         if !(t.is_finite() && t > 0.0) {
             return Err(format!("tol is {t}; it must be a positive number"));
@@ -176,8 +190,15 @@ fn check_numbers(p: &ProbeSpec, increments: usize) -> Result<(), String> {
         }
     }
     if let Some(at) = &p.at {
-        if let Some(k) = at.iter().find(|&&k| k == 0 || k > increments) {
-            return Err(format!("at names increment {k}; the path has increments 1 to {increments}"));
+        if at.contains(&0) {
+            return Err("at names increment 0; increments count from 1".into());
+        }
+    }
+    if let Some(g) = p.fracture_energy {
+        if !(g.is_finite() && g > 0.0) {
+            return Err(format!(
+                "fracture_energy is {g}; it must be a positive number (energy per unit area)"
+            ));
         }
     }
     if let Some(axes) = &p.axes {
