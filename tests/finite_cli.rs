@@ -305,9 +305,29 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     let (code, out) = tancheck(&["check", &overrun, "-q"]);
     assert_eq!(code, 3, "{out}");
     assert!(out.contains("wrote past the end of state: state[0]") && !out.contains("PASS"), "{out}");
-    // With the guards off an unwritten entry is what the call left there.
+    // With the guards off an unwritten entry holds the NaN the check filled it with: a
+    // non-finite output.
     let (code, out) = tancheck(&["check", &unwritten, "-q", "--guards", "off"]);
-    assert_ne!(code, 3, "{out}");
+    assert_eq!(code, 1, "{out}");
+    assert!(out.contains("non-finite-output"), "{out}");
+    // A NaN computed into the stress or the state is a non-finite output at its increment,
+    // and the next increment, which starts from it, does not read as a write to its inputs
+    // (the inputs are compared bit for bit); the state's NaN passed before with the guards off.
+    for (symbol, states) in [("c_nh_nan_stress_at_2", 0), ("c_nh_nan_state_at_2", 1)] {
+        let file = write(&dir, &format!("{symbol}.json"), &Manifest { states, ..m(symbol) });
+        for guards in ["light", "off"] {
+            let (code, out) = tancheck(&["check", &file, "-q", "--guards", guards]);
+            assert_eq!(code, 1, "{symbol} {guards}: {out}");
+            assert!(
+                out.contains("non-finite-output") && !out.contains("read-only input"),
+                "{symbol} {guards}: {out}"
+            );
+        }
+    }
+    // --fp-traps takes effect: the computed NaN is a trapped signal, a fault.
+    let (code, out) = tancheck(&["check", &nan, "-q", "--fp-traps"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(out.contains("SIGFPE"), "{out}");
 }
 
 // A tensor in the state (probes.tensor_state) must lie inside the state and not share entries

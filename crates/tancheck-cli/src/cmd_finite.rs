@@ -53,7 +53,7 @@ fn with_routine<T>(
     if let Some(g) = options.guards {
         m.guards = g;
     }
-    m.fp_traps = options.fp_traps;
+    m.fp_traps |= options.fp_traps;
     // The last words name the routine, as a point check's do (not the manifest).
     let name = match (&m.routine.library, &m.routine.symbol, &m.routine.model) {
         (Some(l), Some(s), _) => format!("{}:{s}", l.display()),

@@ -75,8 +75,9 @@ pub struct FiniteManifest {
     /// Memory guards around a library routine: `off`, `light` (default) or `full`.
     #[serde(default)]
     pub guards: Guards,
-    /// Floating-point traps inside a library routine (the command line's `--fp-traps`).
-    #[serde(skip)]
+    /// Floating-point traps inside a library routine (as a point manifest's `fp_traps`; the
+    /// command line's `--fp-traps` sets them too).
+    #[serde(default)]
     pub fp_traps: bool,
 }
 

@@ -19,7 +19,8 @@
  *
  * Misbehaving variants, correct but from increment 2 on: c_nh_nan_at_2 (computes a NaN into
  * tangent[7]), c_nh_unwritten_at_2 (never writes tangent[20]), c_nh_spin_at_2 (never returns),
- * c_nh_state_overrun_at_2 (writes state[nstate], one past the end).
+ * c_nh_state_overrun_at_2 (writes state[nstate], one past the end), c_nh_nan_stress_at_2 and
+ * c_nh_nan_state_at_2 (compute a NaN into stress[0], or state[0] when there is a state).
  *
  * Build: cc -I fortran-shim/include -c finite_nh.c; again with -DTC_COMPLEX for the twins.
  */
@@ -126,7 +127,14 @@ NH_ROUTINE(c_nh_extra_over_j, NH_EXTRA_OVER_J)
 NH_ROUTINE(c_nh_cauchy_for_kirchhoff, NH_CAUCHY_FOR_KIRCHHOFF)
 NH_ROUTINE(c_nh_kirchhoff_for_cauchy, NH_KIRCHHOFF_FOR_CAUCHY)
 
-enum nh_misbehaviour { NH_NAN_AT_2, NH_UNWRITTEN_AT_2, NH_SPIN_AT_2, NH_STATE_OVERRUN_AT_2 };
+enum nh_misbehaviour {
+    NH_NAN_AT_2,
+    NH_UNWRITTEN_AT_2,
+    NH_SPIN_AT_2,
+    NH_STATE_OVERRUN_AT_2,
+    NH_NAN_STRESS_AT_2,
+    NH_NAN_STATE_AT_2
+};
 
 #define NH_MISBEHAVING(name, what)                                                              \
     TC_FINITE_ROUTINE(name)                                                                     \
@@ -147,6 +155,11 @@ enum nh_misbehaviour { NH_NAN_AT_2, NH_UNWRITTEN_AT_2, NH_SPIN_AT_2, NH_STATE_OV
             tangent[7] = tangent[7] + zero / zero;                                              \
         }                                                                                       \
         if (what == NH_STATE_OVERRUN_AT_2 && late) state[call->nstate] = 0.0;                    \
+        if ((what == NH_NAN_STRESS_AT_2 || what == NH_NAN_STATE_AT_2) && late) {                \
+            volatile double zero = 0.0;                                                         \
+            if (what == NH_NAN_STRESS_AT_2) stress[0] = stress[0] + zero / zero;                \
+            if (what == NH_NAN_STATE_AT_2 && call->nstate > 0) state[0] = zero / zero;          \
+        }                                                                                       \
         volatile int spin = what == NH_SPIN_AT_2 && late;                                       \
         while (spin) {                                                                          \
         }                                                                                       \
@@ -156,3 +169,5 @@ NH_MISBEHAVING(c_nh_nan_at_2, NH_NAN_AT_2)
 NH_MISBEHAVING(c_nh_unwritten_at_2, NH_UNWRITTEN_AT_2)
 NH_MISBEHAVING(c_nh_spin_at_2, NH_SPIN_AT_2)
 NH_MISBEHAVING(c_nh_state_overrun_at_2, NH_STATE_OVERRUN_AT_2)
+NH_MISBEHAVING(c_nh_nan_stress_at_2, NH_NAN_STRESS_AT_2)
+NH_MISBEHAVING(c_nh_nan_state_at_2, NH_NAN_STATE_AT_2)

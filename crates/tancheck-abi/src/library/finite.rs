@@ -181,9 +181,27 @@ impl Library {
 }
 
 /// Which input changed, if any (compared bit for bit).
-fn changed<S: Copy + PartialEq>(name: &'static str, before: &[S], after: &[S]) -> Option<&'static str> {
-    // bitwise for f64 would treat NaN == NaN; inputs are finite here, so == is enough
-    (before != after).then_some(name)
+fn changed<S: Bits>(name: &'static str, before: &[S], after: &[S]) -> Option<&'static str> {
+    // Bit for bit: an input may hold a NaN the routine computed in the increment before (its
+    // stress or state, now the start's), which `==` would call changed.
+    (before.len() != after.len() || before.iter().zip(after).any(|(a, b)| !a.same_bits(*b))).then_some(name)
+}
+
+/// Bitwise equality of an element (NaN payloads included).
+trait Bits: Copy {
+    fn same_bits(self, other: Self) -> bool;
+}
+
+impl Bits for f64 {
+    fn same_bits(self, other: f64) -> bool {
+        self.to_bits() == other.to_bits()
+    }
+}
+
+impl Bits for Complex64 {
+    fn same_bits(self, other: Complex64) -> bool {
+        self.re.to_bits() == other.re.to_bits() && self.im.to_bits() == other.im.to_bits()
+    }
 }
 
 impl FiniteLibraryRoutine {
@@ -290,7 +308,7 @@ type InputCopies<'a, S> = (&'a [S], &'a [S], [S; 9], [S; 9], [S; 9], [S; 6]);
 /// After a call: an input that changed, or an output left unwritten (`unwritten`: it still
 /// holds the fill of [`OutputBlock::arm`], a signalling NaN no arithmetic produces, so that a
 /// NaN the routine computes is a non-finite output, which the check reports as such).
-fn findings<S: Copy + PartialEq>(
+fn findings<S: Bits>(
     input: &FiniteInput<'_, S>,
     output: &FiniteOutput<'_, S>,
     copies: InputCopies<'_, S>,

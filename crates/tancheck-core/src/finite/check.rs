@@ -173,7 +173,10 @@ pub fn run(
         let error_complex = twin_gap.map(|_| rel_error(&base.tangent, &complex));
         let error_judged = if with_twin { error_complex } else { None };
         let error = error_judged.unwrap_or(error_central);
-        let passed = error <= settings.tolerance && base.tangent.iter().all(|x| x.is_finite());
+        // Every output a finite number (a NaN state passes on to the next increment unseen
+        // by the tangent's error).
+        let passed = error <= settings.tolerance
+            && base.tangent.iter().chain(&base.stress).chain(&base.state).all(|x| x.is_finite());
         let worst = (0..n * n)
             .max_by(|&a, &b| {
                 let da = (base.tangent[a] - reference[a]).abs();
@@ -187,9 +190,10 @@ pub fn run(
                 numerical: reference[e],
             });
         let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
-        let non_finite = [("stress", &base.stress[..]), ("tangent", &base.tangent[..])]
-            .into_iter()
-            .find_map(|(name, a)| a.iter().position(|x| !x.is_finite()).map(|i| (name, i, a[i])));
+        let non_finite =
+            [("stress", &base.stress[..]), ("state", &base.state[..]), ("tangent", &base.tangent[..])]
+                .into_iter()
+                .find_map(|(name, a)| a.iter().position(|x| !x.is_finite()).map(|i| (name, i, a[i])));
         let cause = if passed {
             None
         } else if let Some((name, i, v)) = non_finite {
@@ -199,7 +203,8 @@ pub fn run(
                 name: "non-finite-output".into(),
                 explanation: format!(
                     "the routine returned {name}[{i}] = {v}: a division by zero, a logarithm or root of a \
-                     negative number, or an overflow in the update"
+                     negative number, or an overflow in the update (or, with the guards off, an entry it \
+                     never wrote)"
                 ),
                 error: f64::INFINITY,
             })
