@@ -452,3 +452,28 @@ fn bisect_finds_a_guard_fault_again_in_each_run_of_its_own() {
     assert_eq!(v["cases"].as_array().unwrap().len(), 2, "{:#}", v["cases"]);
     assert!(v["warnings"].as_array().unwrap().is_empty(), "{:#}", v["warnings"]);
 }
+
+/// `explore` runs many paths, each a run of its own: a memory-guard fault shows in the first
+/// path that meets it (the scale's probe calls, made first, used up the guard's one report and
+/// explore passed a routine `check` faults).
+#[test]
+fn explore_finds_a_guard_fault() {
+    let d = scratch("explore-guard-fault");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_state_overrun", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }} }}"#,
+            c_lib().display()
+        ),
+    )
+    .unwrap();
+    let o =
+        bin().current_dir(&d).arg("explore").arg(&m).args(["--paths", "4", "--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    let v: serde_json::Value =
+        serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", text(&o)));
+    let f = &v["findings"][0];
+    assert_eq!(f["finding"], "routine-fault", "{v:#}");
+    assert_eq!(f["first_path"], 1, "the first path meets it: {f:#}");
+}

@@ -85,7 +85,10 @@ pub fn slurm_shard() -> Result<Option<ShardInfo>> {
         Some(m) => num("SLURM_ARRAY_TASK_MIN", &m)?,
         None => 0,
     };
-    if id < min || id - min >= count || count == 0 {
+    if count == 0 {
+        bail!("SLURM_ARRAY_TASK_COUNT=0: a job array has at least one task");
+    }
+    if id < min || id - min >= count {
         bail!(
             "SLURM_ARRAY_TASK_ID={id} with SLURM_ARRAY_TASK_MIN={min} and SLURM_ARRAY_TASK_COUNT={count}: \
              not one of the shards 0 to {}; give the job array contiguous ids (--array=0-{})",

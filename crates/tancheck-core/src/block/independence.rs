@@ -118,7 +118,7 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                 BlockCheck::Independence,
                 "routine-fault",
                 Some(k),
-                format!("the point alone along the path, increment {k}: {e}"),
+                format!("the point alone along the path: {e}"),
             );
         } else {
             report
@@ -186,7 +186,7 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                     BlockCheck::Independence,
                     "routine-fault",
                     Some(k),
-                    format!("in a block of {size} (point under test at position {at}), increment {k}: {e}"),
+                    format!("in a block of {size} (point under test at position {at}): {e}"),
                 );
             } else {
                 report.notes.push(format!(

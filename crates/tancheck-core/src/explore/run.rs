@@ -229,6 +229,9 @@ pub fn run(
             }
             None => fresh(&space, &mut rng, name),
         };
+        // Each path is a run of its own: a memory guard that found a fault in an earlier path
+        // (or in the scale's probe calls) finds it again here.
+        caller.forget_guard_findings();
         let walked = walk(caller, &these, start, &path, &settings)?;
         cut += usize::from(walked.cut_at.is_some());
         let path = walked.path.clone();
@@ -240,6 +243,7 @@ pub fn run(
             corpus.push((path.clone(), these.clone()));
         }
         increments += path.increments.len();
+        caller.forget_guard_findings();
         let report = check::run(caller, &these, start.clone(), &path, &quick)?;
         routine.get_or_insert_with(|| report.routine.clone());
         if report.verdict != Verdict::Pass {
@@ -367,10 +371,12 @@ fn failure(
     if let Some(f) = first_failure(quick) {
         failing.increments.truncate(f.index);
     }
+    caller.forget_guard_findings();
     let mut report = check::run(caller, props, start.clone(), &failing, settings)?;
     if report.verdict == Verdict::Pass && failing.increments.len() < path.increments.len() {
         // The diagnosis cleared that increment (a step study converged): the whole path, then.
         failing = path.clone();
+        caller.forget_guard_findings();
         report = check::run(caller, props, start.clone(), &failing, settings)?;
     }
     if report.verdict == Verdict::Pass {
