@@ -68,7 +68,15 @@ pub struct IncrementSolve {
     /// solve went below it and the usable residuals give an order): rounding can only make
     /// that residual larger, so this order is never higher than the true one.
     pub tail_order: Option<f64>,
+    /// From the start of the increment the routine's tangent diverged (these residuals), and
+    /// the solve above started near the solution instead (see [`NEAR`]).
+    pub diverged_from_start: Option<Vec<f64>>,
 }
+
+/// Where a second solve starts when the first diverged: this fraction of the way from the
+/// first start to the solution. Newton's order is a local property; far from the solution a
+/// correct tangent can overshoot (a softening branch), which says nothing about the tangent.
+pub const NEAR: f64 = 0.9;
 
 impl IncrementSolve {
     /// Newton iterations made (calls after the first).
@@ -119,14 +127,29 @@ pub fn study(
         for &i in &controlled {
             de[i] = start;
         }
+        let fresh = t.clone();
         t.set_dstrain(&de);
-        let (log, failure) = match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+        let (mut log, mut failure) = match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
             Ok(log) => (log, None),
             Err(f) => (
                 SolveLog { residuals: Vec::new(), converged: false, numerical_fallback: false },
                 Some(f.to_string()),
             ),
         };
+        let mut diverged_from_start = None;
+        if failure.is_none() && log.numerical_fallback {
+            // Again from near the solution (the path's own increment).
+            let mut t = fresh;
+            let mut near = de.clone();
+            for &i in &controlled {
+                near[i] = NEAR * d.dstrain()[i] + (1.0 - NEAR) * start;
+            }
+            t.set_dstrain(&near);
+            if let Ok(l) = mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+                diverged_from_start = Some(std::mem::take(&mut log.residuals));
+                (log, failure) = (l, None);
+            }
+        }
         // The residuals of the routine's tangent only: after a fallback they are the
         // numerical tangent's, and they are not used.
         let usable: Vec<f64> = if log.numerical_fallback {
@@ -141,7 +164,16 @@ pub fn study(
         } else {
             tail_order(&log.residuals, FLOOR * scale, TAIL_LOWEST * scale)
         };
-        out.push(IncrementSolve { increment: k, state_changed, log, failure, usable, orders, tail_order });
+        out.push(IncrementSolve {
+            increment: k,
+            state_changed,
+            log,
+            failure,
+            usable,
+            orders,
+            tail_order,
+            diverged_from_start,
+        });
         Ok(())
     })?;
     Ok(out)
@@ -207,6 +239,14 @@ impl Probe for NewtonRate {
                 if s.log.numerical_fallback {
                     line.push_str(", the routine's tangent did not converge (numerical fallback)");
                 }
+                if let Some(r) = &s.diverged_from_start {
+                    line.push_str(&format!(
+                        "; started at {:.0} % of the increment: from its start the routine's tangent \
+                         diverged, residuals {}",
+                        NEAR * 100.0,
+                        list(r, 2)
+                    ));
+                }
                 if let Some(f) = &s.failure {
                     line.push_str(&format!(", {f}"));
                 }
@@ -228,6 +268,12 @@ impl Probe for NewtonRate {
         let mut r = if let Some(s) = unconverged {
             let why = match &s.failure {
                 Some(f) => format!("the routine failed during the solve: {f}"),
+                None if s.log.numerical_fallback => format!(
+                    "Newton with the routine's tangent diverged (residuals {}, also from {:.0} % of the \
+                     increment); the solve fell back to a numerical tangent",
+                    list(&s.log.residuals[..s.log.residuals.len().min(4)], 2),
+                    NEAR * 100.0
+                ),
                 None => format!(
                     "Newton with the routine's tangent did not converge in {} iterations",
                     env.settings.mixed.max_iterations.max(100)
@@ -299,6 +345,7 @@ mod tests {
             usable,
             orders,
             tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
+            diverged_from_start: None,
         }
     }
 
