@@ -195,3 +195,14 @@ fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
     assert_eq!(c, Some(2), "{t}");
     assert!(t.contains("at.json") && t.contains("runs at increment 4"), "{t}");
 }
+
+/// A coverage warning of the tangent probe shows without -v, as in `check` (a passing probe
+/// that did not look at something says so; it was printed only with -v).
+#[test]
+fn coverage_warnings_show_without_verbose() {
+    let d = scratch("coverage");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let (c, t) = probe(&[m.to_str().unwrap()], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("coverage warning: the path never unloaded"), "{t}");
+}

@@ -475,6 +475,9 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         _ => suite.path().map_err(anyhow::Error::msg)?,
     };
     let mut notes = Vec::new();
+    if a.thermal && a.suite.is_none() && m.routine.kind.is_cohesive() {
+        notes.push("--thermal: there is no thermal suite for cohesive points; the cohesive suite runs".into());
+    }
     match &suite_file {
         // A suite file of the user's names increments the path must have.
         Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,

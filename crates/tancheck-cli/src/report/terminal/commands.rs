@@ -53,10 +53,14 @@ pub fn suite(
             continue;
         }
         writeln!(out, "   {:<15} {word} {}", r.probe, r.summary)?;
-        if detail == Detail::Verbose || failed {
-            for d in &r.details {
-                writeln!(out, "                            {d}")?;
-            }
+        // A coverage warning is shown as a check shows it: always (a passing probe that did
+        // not look at something says so).
+        for d in r
+            .details
+            .iter()
+            .filter(|d| detail == Detail::Verbose || failed || d.starts_with("coverage warning"))
+        {
+            writeln!(out, "                            {d}")?;
         }
     }
     let failed = report.results.iter().filter(|r| r.status == ProbeStatus::Fail).count();
