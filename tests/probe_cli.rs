@@ -206,3 +206,26 @@ fn coverage_warnings_show_without_verbose() {
     assert_eq!(c, Some(0), "{t}");
     assert!(t.contains("coverage warning: the path never unloaded"), "{t}");
 }
+
+/// The regularisation probe skips a path that brings a damaged point back to zero separation
+/// without failing it: the stress is gone at the end there too, but not at the furthest point
+/// (it failed such a correct law on W against the full fracture energy).
+#[test]
+fn a_path_back_to_zero_before_failure_is_no_failure_for_regularisation() {
+    let d = scratch("regularisation-back");
+    let m = write(
+        &d,
+        "m.json",
+        r#"{ "routine": { "model": "cohesive", "kind": "cohesive-2d", "properties": [1e5, 60.0, 90.0, 0.3, 0.9, 2.0] },
+  "path": { "shape": "mixed-mode", "peak": 0.003, "steps": 4, "back": 4 } }"#,
+    );
+    let suite = write(
+        &d,
+        "s.json",
+        r#"{"suite": "r", "path": {"shape": "mixed-mode", "peak": 0.003, "steps": 4},
+            "probes": [{"probe": "regularisation", "fracture_energy": 0.3}]}"#,
+    );
+    let (c, t) = probe(&[m.to_str().unwrap(), "--suite", suite.to_str().unwrap()], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("regularisation  skipped") && t.contains("full failure"), "{t}");
+}

@@ -476,7 +476,8 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     };
     let mut notes = Vec::new();
     if a.thermal && a.suite.is_none() && m.routine.kind.is_cohesive() {
-        notes.push("--thermal: there is no thermal suite for cohesive points; the cohesive suite runs".into());
+        notes
+            .push("--thermal: there is no thermal suite for cohesive points; the cohesive suite runs".into());
     }
     match &suite_file {
         // A suite file of the user's names increments the path must have.

@@ -33,13 +33,17 @@ pub(super) struct WorkMeter {
     pub work: f64,
     peak: f64,
     last: f64,
+    /// The largest strain reached (norm of the end strain over the walk) and the stress's
+    /// size there: a point fails at its furthest, not where a path brought it back to zero.
+    furthest: f64,
+    at_furthest: f64,
 }
 
 impl WorkMeter {
     pub fn new(conv: &Convention) -> WorkMeter {
         let tensor = conv.shear() == ShearMeasure::Tensor;
         let weight = conv.order().iter().map(|c| if c.is_shear() && tensor { 2.0 } else { 1.0 }).collect();
-        WorkMeter { weight, work: 0.0, peak: 0.0, last: 0.0 }
+        WorkMeter { weight, work: 0.0, peak: 0.0, last: 0.0, furthest: 0.0, at_furthest: 0.0 }
     }
 
     /// The work from stress `s0` to `s1` over the fraction `f` of the strain increment `de`.
@@ -52,11 +56,18 @@ impl WorkMeter {
         self.work += self.part(&d.start().stress, &d.base.stress, d.dstrain(), 1.0);
         self.last = d.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt();
         self.peak = self.peak.max(self.last);
+        let reach =
+            d.start().strain.iter().zip(d.dstrain()).map(|(e, de)| (e + de) * (e + de)).sum::<f64>().sqrt();
+        if reach >= self.furthest {
+            (self.furthest, self.at_furthest) = (reach, self.last);
+        }
     }
 
-    /// The stress at the end is gone (below 1e-6 of the largest along the walk).
+    /// The point failed: the stress is gone (below 1e-6 of the largest along the walk) at the
+    /// end and at the largest strain reached (a path that unloads back to zero strain ends
+    /// without stress, failed or not).
     pub fn stress_gone(&self) -> bool {
-        self.last <= 1e-6 * self.peak
+        self.last <= 1e-6 * self.peak && self.at_furthest <= 1e-6 * self.peak
     }
 }
 
@@ -103,7 +114,7 @@ impl Probe for Regularisation {
         if !failed {
             return Ok(ProbeResult::skipped(
                 name,
-                "the path does not take the point to full failure (the stress is not gone at its end)",
+                "the path does not take the point to full failure (the stress is not gone at its end, or not at the largest strain it reached)",
             ));
         }
         let l = length.map_or(1.0, |i| env.props[i]);
