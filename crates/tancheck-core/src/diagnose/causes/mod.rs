@@ -30,22 +30,66 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     other_matrix::try_other_matrix(ev, &mut found);
     local::try_local(ev, &mut found);
     rank_one::try_rank_one(ev, &mut found);
-    finish(found.hs)
+    finish(found.hs, 10.0 * ev.tol, ev.returned.len() == 1)
 }
 
-/// Rank: explaining hypotheses first, the more specific before the more general; then by the
-/// error left.
-fn finish(mut hs: Vec<Hypothesis>) -> Vec<Hypothesis> {
+/// Rank: explaining hypotheses first — those whose corrected tangent passes with the margin
+/// (`exact`: error left at most `exact`) before those that only remove all but a thousandth of
+/// the error (a secant that is exact ahead of the elastic tangent it nearly equals just past
+/// yield) — the more specific before the more general; then by the error left. On a point of
+/// one component (`scalar`) every wrong tangent is a single wrong entry, a missing or scaled
+/// rank-one term: those causes say nothing there and come after every other that explains;
+/// and a uniform scale, which still gives the factor, comes after the elastic, stale and
+/// secant tangents, which name what the routine returned.
+fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool) -> Vec<Hypothesis> {
+    let rank = |c: Cause| {
+        if scalar && c == Cause::UniformScale {
+            2 * Cause::Secant.rank() + 1
+        } else {
+            2 * c.rank()
+        }
+    };
+    let vacuous = |c: Cause| {
+        scalar
+            && matches!(
+                c,
+                Cause::SingleEntry
+                    | Cause::OneColumn
+                    | Cause::OneRow
+                    | Cause::CouplingMissing
+                    | Cause::TermMissing
+                    | Cause::TermSign
+                    | Cause::TermScaled
+                    | Cause::RankOneTerm
+                    | Cause::RankTwo
+            )
+    };
     hs.sort_by(|a, b| {
         b.explains
             .cmp(&a.explains)
             .then_with(|| {
                 if a.explains {
-                    a.cause.rank().cmp(&b.cause.rank())
+                    vacuous(a.cause).cmp(&vacuous(b.cause))
                 } else {
                     std::cmp::Ordering::Equal
                 }
             })
+            .then_with(|| {
+                if a.explains {
+                    (b.error_left <= exact).cmp(&(a.error_left <= exact))
+                } else {
+                    std::cmp::Ordering::Equal
+                }
+            })
+            .then_with(
+                || {
+                    if a.explains {
+                        rank(a.cause).cmp(&rank(b.cause))
+                    } else {
+                        std::cmp::Ordering::Equal
+                    }
+                },
+            )
             .then_with(|| a.error_left.total_cmp(&b.error_left))
     });
     hs

@@ -181,3 +181,38 @@ fn a_zero_derivative_is_no_factor_of_the_tangent() {
     let hs = rank(&ev(&conv, &r, &zero, &z));
     assert!(hs.iter().all(|h| h.cause != Cause::UniformScale), "{hs:?}");
 }
+
+fn h(cause: Cause, error_left: f64) -> Hypothesis {
+    Hypothesis { cause, detail: String::new(), error_left, explains: true }
+}
+
+// A secant that is exact ranks ahead of the elastic tangent it nearly equals just past yield
+// (the elastic one only removes all but a thousandth of the error; a user-style sweep found it
+// named first on a cohesive law returning (1 − d)K).
+#[test]
+fn an_exact_explanation_ranks_before_an_approximate_more_specific_one() {
+    let hs = finish(vec![h(Cause::ElasticTangent, 5e-2), h(Cause::Secant, 0.0)], 1e-9, false);
+    assert_eq!(hs[0].cause, Cause::Secant);
+    // Both exact: the more specific first, as before.
+    let hs = finish(vec![h(Cause::Secant, 0.0), h(Cause::ElasticTangent, 0.0)], 1e-9, false);
+    assert_eq!(hs[0].cause, Cause::ElasticTangent);
+}
+
+// On a point of one component a single entry or a rank-one term explains any wrong tangent:
+// the elastic, stale and secant tangents, which name what was returned, come first, then the
+// uniform scale with its factor, then those.
+#[test]
+fn on_one_component_the_tangents_that_name_what_was_returned_lead() {
+    let all = vec![
+        h(Cause::TermMissing, 0.0),
+        h(Cause::UniformScale, 0.0),
+        h(Cause::SingleEntry, 0.0),
+        h(Cause::Secant, 0.0),
+    ];
+    let hs = finish(all.clone(), 1e-9, true);
+    let order: Vec<Cause> = hs.iter().map(|x| x.cause).collect();
+    assert_eq!(order[..2], [Cause::Secant, Cause::UniformScale], "{order:?}");
+    // On a full tangent the uniform scale is the more specific, as before.
+    let hs = finish(all, 1e-9, false);
+    assert_eq!(hs[0].cause, Cause::UniformScale);
+}
