@@ -282,16 +282,26 @@ mod tests {
     }
 
     #[test]
-    fn a_suite_without_probes_or_whose_at_misses_its_path_is_an_error() {
+    fn a_suite_without_probes_or_whose_at_misses_the_path_walked_is_an_error() {
         let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3}, "probes": []}"#;
         let e = Suite::parse(text, FsPath::new("s.json")).unwrap_err().to_string();
         assert!(e.starts_with("s.json: the suite has no probes"), "{e}");
+        // `at` past the suite's own path is not an error at parse: the probes may walk another
+        // path (the manifest's); it is checked against the path walked.
         let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3},
             "probes": [{"probe": "refinement", "at": [2, 9]}]}"#;
+        let s = Suite::parse(text, FsPath::new("s.json")).unwrap();
+        let e = s.check_at(&s.path().unwrap()).unwrap_err();
+        assert!(
+            e.contains("probe `refinement` runs at increment 9") && e.contains("increments 1 to 3"),
+            "{e}"
+        );
+        // Increment 0 is an error at parse, naming the file, the line and column of the probe.
+        let text = r#"{"suite": "x", "path": {"shape": "uniaxial-strain", "peak": 0.001, "steps": 3},
+            "probes": [{"probe": "refinement", "at": [0]}]}"#;
         let e = Suite::parse(text, FsPath::new("s.json")).unwrap_err().to_string();
-        // The error names the file, the line and column of the probe, the probe and the increment.
         assert!(e.starts_with("s.json:2:") && e.contains("probe `refinement`"), "{e}");
-        assert!(e.contains("at names increment 9; the path has increments 1 to 3"), "{e}");
+        assert!(e.contains("at names increment 0"), "{e}");
         // A built-in suite on a shorter path keeps what fits.
         let mut s = Suite::default_for(tancheck_core::PointKind::Solid3d, false);
         let short = tancheck_core::path::Path::ramp(tancheck_core::path::Shape::UniaxialStrain, 1e-3, 4, 0);
