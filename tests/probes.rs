@@ -208,3 +208,68 @@ fn a_stiff_cohesive_law_passes_the_energy_probe() {
         assert_eq!(p.status, ProbeStatus::Pass, "{kind}: {p:#?}");
     }
 }
+
+/// A plane-stress point whose σ22 follows S·atan((ε22 − a)/w) (σ11 = E ε11, σ12 = G γ12) and
+/// whose tangent is exact: Newton on an arctangent from more than about 1.39 w away from its
+/// inflection overshoots further at every step (a classic example of a correct derivative
+/// without global convergence), so the Newton probe's solve from the start of the increment
+/// does not converge. The probe then solves from 90 % of the increment and measures the order
+/// there: a correct tangent passes (it failed "did not converge in 100 iterations").
+struct Arctan(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+const ATAN: (f64, f64, f64, f64, f64) = (1000.0, 800.0, 2e-3, 1e-3, 400.0); // E, S, a, w, G
+
+impl Routine for Arctan {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let (e, s, a, w, g) = ATAN;
+        let eps: Vec<f64> = input.strain.iter().zip(input.dstrain).map(|(x, d)| x + d).collect();
+        let y = (eps[1] - a) / w;
+        output.stress.copy_from_slice(&[e * eps[0], s * y.atan(), g * eps[2]]);
+        output.tangent.fill(0.0);
+        output.tangent[0] = e;
+        output.tangent[4] = s / w / (1.0 + y * y);
+        output.tangent[8] = g;
+        output.state.fill(0.0);
+        output.dstress_dtemp.fill(0.0);
+        output.energy.fill(0.0);
+        output.outcome.status = 0;
+        output.outcome.branch = 0;
+        Ok(())
+    }
+}
+
+#[test]
+fn a_correct_tangent_that_overshoots_from_the_start_passes_the_newton_probe() {
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::{Path, PathIncrement};
+    let mut r = Arctan(reference("elastic", PointKind::PlaneStress).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    // One increment to ε11 = 1e-3, ε22 = a: the controlled σ22 is held at its value there (0),
+    // and the solve starts at ε22 = 0, 2w from the inflection.
+    let path = Path {
+        name: "to the inflection".into(),
+        increments: vec![PathIncrement::strain([1e-3, ATAN.2, 0.0, 0.0, 0.0, 0.0])],
+    };
+    let rep = run_suite(
+        &mut caller,
+        "n",
+        &[ProbeSpec::named("newton")],
+        &[200000.0, 0.3],
+        &start,
+        &path,
+        &Settings::default(),
+    )
+    .unwrap();
+    let p = &rep.results[0];
+    assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
+    assert!(p.details[0].contains("started at 90 % of the increment"), "{p:#?}");
+}

@@ -68,8 +68,9 @@ pub struct IncrementSolve {
     /// solve went below it and the usable residuals give an order): rounding can only make
     /// that residual larger, so this order is never higher than the true one.
     pub tail_order: Option<f64>,
-    /// From the start of the increment the routine's tangent diverged (these residuals), and
-    /// the solve above started near the solution instead (see [`NEAR`]).
+    /// From the start of the increment Newton with the routine's tangent did not converge
+    /// (these are the residuals of that solve, its numerical fallback's when it fell back),
+    /// and the solve above started near the solution instead (see [`NEAR`]).
     pub diverged_from_start: Option<Vec<f64>>,
 }
 
@@ -239,12 +240,13 @@ impl Probe for NewtonRate {
                 if s.log.numerical_fallback {
                     line.push_str(", the routine's tangent did not converge (numerical fallback)");
                 }
-                if let Some(r) = &s.diverged_from_start {
+                if s.diverged_from_start.is_some() {
                     line.push_str(&format!(
-                        "; started at {:.0} % of the increment: from its start the routine's tangent \
-                         diverged, residuals {}",
+                        "; started at {:.0} % of the increment: from its start Newton with the routine's \
+                         tangent did not converge in {} iterations (far from the solution a correct tangent \
+                         can overshoot)",
                         NEAR * 100.0,
-                        list(r, 2)
+                        env.settings.mixed.max_iterations.max(100)
                     ));
                 }
                 if let Some(f) = &s.failure {
@@ -269,9 +271,10 @@ impl Probe for NewtonRate {
             let why = match &s.failure {
                 Some(f) => format!("the routine failed during the solve: {f}"),
                 None if s.log.numerical_fallback => format!(
-                    "Newton with the routine's tangent diverged (residuals {}, also from {:.0} % of the \
-                     increment); the solve fell back to a numerical tangent",
-                    list(&s.log.residuals[..s.log.residuals.len().min(4)], 2),
+                    "Newton with the routine's tangent did not converge in {} iterations, from the start \
+                     of the increment nor from {:.0} % of it (the residuals shown are the numerical \
+                     fallback's)",
+                    env.settings.mixed.max_iterations.max(100),
                     NEAR * 100.0
                 ),
                 None => format!(
