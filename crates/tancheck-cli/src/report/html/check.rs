@@ -3,8 +3,10 @@
 
 use std::fmt::Write as _;
 
-use tancheck_core::report::{CheckOutcome, IncrementResult};
+use tancheck_core::compare::Comparison;
+use tancheck_core::report::{CheckOutcome, IncrementResult, SchemeCheck};
 use tancheck_core::Report;
+use tancheck_core::Scheme;
 
 use super::{badge, cautions, esc, figure, footer, page, plots, sci, table, Cell, DETAILED_FAILURES};
 
@@ -142,6 +144,34 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     }
 }
 
+/// The failing comparison with the largest error among an increment's schemes, of the part
+/// `part` picks (the tangent, or ∂σ/∂T).
+fn worst_failing<'a>(
+    inc: &'a IncrementResult,
+    part: impl Fn(&'a SchemeCheck) -> Option<&'a CheckOutcome>,
+) -> Option<(Scheme, &'a Comparison)> {
+    inc.checks
+        .iter()
+        .filter_map(|c| match part(c) {
+            Some(CheckOutcome::Compared(cmp)) if !cmp.pass => Some((c.scheme, cmp)),
+            _ => None,
+        })
+        .max_by(|a, b| a.1.error().total_cmp(&b.1.error()))
+}
+
+/// The table of a comparison's worst entries; `first` heads the label column.
+fn worst_entries(o: &mut String, cmp: &Comparison, first: &str) {
+    let rows = cmp.worst.iter().map(|e| {
+        vec![
+            Cell::Text(format!("<code>{}</code>", esc(&e.label))),
+            Cell::Num(format!("{:.6e}", e.returned)),
+            Cell::Num(format!("{:.6e}", e.numerical)),
+            Cell::Num(sci(e.error)),
+        ]
+    });
+    table(o, &[first, "returned", "numerical", "error"], rows);
+}
+
 fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
     let _ = writeln!(
         o,
@@ -176,14 +206,7 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
         let _ = writeln!(o, "<p>Fault: {}</p>", esc(&f.message));
     }
     // The worst failing comparison of the increment.
-    let worst = inc
-        .checks
-        .iter()
-        .filter_map(|c| match &c.tangent {
-            CheckOutcome::Compared(cmp) if !cmp.pass => Some((c.scheme, cmp)),
-            _ => None,
-        })
-        .max_by(|a, b| a.1.error().total_cmp(&b.1.error()));
+    let worst = worst_failing(inc, |c| Some(&c.tangent));
     if let Some((scheme, cmp)) = worst {
         let _ = writeln!(
             o,
@@ -199,25 +222,10 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
             sci(cmp.soft_error),
             sci(cmp.tol)
         );
-        let rows = cmp.worst.iter().map(|e| {
-            vec![
-                Cell::Text(format!("<code>{}</code>", esc(&e.label))),
-                Cell::Num(format!("{:.6e}", e.returned)),
-                Cell::Num(format!("{:.6e}", e.numerical)),
-                Cell::Num(sci(e.error)),
-            ]
-        });
-        table(o, &["entry (row/column)", "returned", "numerical", "error"], rows);
+        worst_entries(o, cmp, "entry (row/column)");
     }
     // The worst failing ∂σ/∂T comparison (a column of its own: "row/T").
-    let worst_dtemp = inc
-        .checks
-        .iter()
-        .filter_map(|c| match &c.dstress_dtemp {
-            Some(CheckOutcome::Compared(cmp)) if !cmp.pass => Some((c.scheme, cmp)),
-            _ => None,
-        })
-        .max_by(|a, b| a.1.error().total_cmp(&b.1.error()));
+    let worst_dtemp = worst_failing(inc, |c| c.dstress_dtemp.as_ref());
     if let Some((scheme, cmp)) = worst_dtemp {
         let _ = writeln!(
             o,
@@ -227,15 +235,7 @@ fn failing_increment(report: &Report, inc: &IncrementResult, o: &mut String) {
             sci(cmp.worst_entry_error),
             sci(cmp.tol)
         );
-        let rows = cmp.worst.iter().map(|e| {
-            vec![
-                Cell::Text(format!("<code>{}</code>", esc(&e.label))),
-                Cell::Num(format!("{:.6e}", e.returned)),
-                Cell::Num(format!("{:.6e}", e.numerical)),
-                Cell::Num(sci(e.error)),
-            ]
-        });
-        table(o, &["entry (row/T)", "returned", "numerical", "error"], rows);
+        worst_entries(o, cmp, "entry (row/T)");
     }
     // The step studies are of the tangent: shown where it failed.
     if let (Some(d), Some(_)) = (&inc.diagnosis, worst) {
