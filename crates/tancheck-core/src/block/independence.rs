@@ -87,10 +87,16 @@ fn not_finite_at_rest(b: &BlockBuffers, scales: &[f64], at: usize, n: usize, ns:
     None
 }
 
-/// A crash or a memory guard's finding: the routine's fault on any inputs. A failure the
-/// routine reported (a status) may belong to a neighbour's path far past yield.
-fn is_fault(e: &Fault) -> bool {
-    matches!(e, Fault::Crashed { .. } | Fault::Misbehaved { .. })
+/// A call of the check that failed at increment `k` of the walk `place` names. A crash or a
+/// memory guard's finding is the routine's fault whatever the neighbours' paths (an explicit
+/// solver sends blocks of this size, at rest and far past yield alike); a failure the routine
+/// reported (a status) may belong to a neighbour's path far past yield: a note, with `then`.
+fn failed_call(report: &mut BlockReport, k: usize, e: &Fault, place: &str, then: &str) {
+    if matches!(e, Fault::Crashed { .. } | Fault::Misbehaved { .. }) {
+        report.add(BlockCheck::Independence, "routine-fault", Some(k), format!("{place}: {e}"));
+    } else {
+        report.notes.push(format!("independence: {place}, a call failed (increment {k}: {e}); {then}"));
+    }
 }
 
 fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
@@ -113,18 +119,7 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
         true
     });
     if let Err((k, e)) = r {
-        if is_fault(&e) {
-            report.add(
-                BlockCheck::Independence,
-                "routine-fault",
-                Some(k),
-                format!("the point alone along the path: {e}"),
-            );
-        } else {
-            report
-                .notes
-                .push(format!("independence: the point alone failed (increment {k}: {e}); not checked"));
-        }
+        failed_call(report, k, &e, "the point alone along the path", "not checked");
         return;
     }
     let tol = s.independence_tolerance;
@@ -178,23 +173,14 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
             }
         });
         if let Err((k, e)) = r {
-            if is_fault(&e) {
-                // A crash or a guard's finding is the routine's fault whatever the neighbours'
-                // paths: an explicit solver sends blocks of this size, at rest and far past
-                // yield alike.
-                report.add(
-                    BlockCheck::Independence,
-                    "routine-fault",
-                    Some(k),
-                    format!("in a block of {size} (point under test at position {at}): {e}"),
-                );
-            } else {
-                report.notes.push(format!(
-                    "independence: in a block of {size} (point under test at position {at}) a call failed \
-                     (increment {k}: {e}), perhaps for a neighbour's path; the layouts after it were not \
-                     checked"
-                ));
-            }
+            let place = format!("in a block of {size} (point under test at position {at})");
+            failed_call(
+                report,
+                k,
+                &e,
+                &place,
+                "perhaps for a neighbour's path; the layouts after it were not checked",
+            );
             return;
         }
         if let Some((k, w)) = at_rest {
