@@ -337,6 +337,7 @@ fn check_cohesive(lib_path: &Path, prefix: &str) {
         ("cohesive_secant", CohesiveFlaw::Secant),
         ("cohesive_no_coupling", CohesiveFlaw::NoCoupling),
         ("cohesive_transposed", CohesiveFlaw::Transposed),
+        ("cohesive_undamaged", CohesiveFlaw::Undamaged),
     ];
     let mut total = 0;
     for (suffix, flaw) in variants {

@@ -99,6 +99,9 @@ pub struct Driver {
     n: usize,
     props: Vec<f64>,
     start: PointState,
+    /// The state the driver was made with: the start of the path it walks (the diagnosis's
+    /// initial-stiffness trial). None for a driver made at a call with no path before it.
+    origin: Option<Box<PointState>>,
     dstrain: Vec<f64>,
     /// The increment as set, before any rescaling.
     full_dstrain: Vec<f64>,
@@ -159,6 +162,7 @@ impl Driver {
                 stress0: vec![cz; n],
                 state0: vec![cz; info.nstate],
             },
+            origin: Some(Box::new(start.clone())),
             start,
         })
     }
@@ -168,6 +172,15 @@ impl Driver {
     }
     pub fn start(&self) -> &PointState {
         &self.start
+    }
+    /// The start of the path the driver walks, when it knows it (see [`Driver::set_origin`]).
+    pub fn origin(&self) -> Option<&PointState> {
+        self.origin.as_deref()
+    }
+    /// Say where the path the driver is on starts: a driver is made with its own start state
+    /// as the origin, which a driver made at a later call (a case's) must replace, or clear.
+    pub fn set_origin(&mut self, origin: Option<PointState>) {
+        self.origin = origin.map(Box::new);
     }
     pub fn props(&self) -> &[f64] {
         &self.props

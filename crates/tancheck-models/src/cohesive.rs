@@ -90,6 +90,10 @@ pub enum CohesiveFlaw {
     /// The symmetric part ½(C + Cᵀ) of the tangent. Expected finding: fails in branch 1 in
     /// mixed mode, where the tangent is unsymmetric; passes everywhere else.
     Symmetrized,
+    /// The undamaged stiffness K on the diagonal on every branch. Expected finding: fails
+    /// wherever the point is damaged (growth, unloading, failure, and the slip of a closed
+    /// damaged point); passes while it is undamaged.
+    Undamaged,
 }
 
 /// The bilinear mixed-mode cohesive law.
@@ -110,6 +114,8 @@ impl Cohesive {
     pub const TRANSPOSED_NAME: &'static str = "cohesive-transposed";
     /// Name of the model returning the symmetric part of its tangent.
     pub const SYMMETRIZED_NAME: &'static str = "cohesive-symmetrized";
+    /// Name of the model returning the undamaged stiffness.
+    pub const UNDAMAGED_NAME: &'static str = "cohesive-undamaged";
     /// Meaning of each property, in order.
     pub const PROP_NAMES: [&'static str; 6] = ["K", "N", "S", "G_Ic", "G_IIc", "eta"];
     /// Meaning of each state variable, in order.
@@ -151,6 +157,7 @@ impl Cohesive {
             CohesiveFlaw::NoCoupling => Self::NO_COUPLING_NAME,
             CohesiveFlaw::Transposed => Self::TRANSPOSED_NAME,
             CohesiveFlaw::Symmetrized => Self::SYMMETRIZED_NAME,
+            CohesiveFlaw::Undamaged => Self::UNDAMAGED_NAME,
         }
     }
 
@@ -383,7 +390,10 @@ impl Cohesive {
                 tangent[0][0] = k;
             }
             match self.flaw {
-                CohesiveFlaw::None | CohesiveFlaw::Transposed | CohesiveFlaw::Symmetrized => {}
+                CohesiveFlaw::None
+                | CohesiveFlaw::Transposed
+                | CohesiveFlaw::Symmetrized
+                | CohesiveFlaw::Undamaged => {}
                 CohesiveFlaw::Secant => {
                     for (i, row) in tangent.iter_mut().enumerate().take(n) {
                         *row = [S::zero(); 3];
@@ -399,6 +409,12 @@ impl Cohesive {
                         }
                     }
                 }
+            }
+        }
+        if self.flaw == CohesiveFlaw::Undamaged {
+            for (i, row) in tangent.iter_mut().enumerate() {
+                *row = [S::zero(); 3];
+                row[i] = k;
             }
         }
         let transposed = self.flaw == CohesiveFlaw::Transposed;

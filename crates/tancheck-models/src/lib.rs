@@ -98,6 +98,9 @@ impl AnyModel {
             Cohesive::TRANSPOSED_NAME => {
                 Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Transposed)?))
             }
+            Cohesive::UNDAMAGED_NAME => {
+                Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Undamaged)?))
+            }
             Orthotropic::NAME => Ok(AnyModel::Orthotropic(Orthotropic::new(kind)?)),
             JohnsonCook::NAME => Ok(AnyModel::JohnsonCook(JohnsonCook::new(kind)?)),
             JohnsonCook::NO_RATE_TERM_NAME => {

@@ -19,12 +19,13 @@ use tancheck_core::{ModelRoutine, PointKind};
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
 /// Every finding an entry may expect. `none`: the routine is correct and must pass.
-pub const FINDINGS: [&str; 22] = [
+pub const FINDINGS: [&str; 23] = [
     "shear-factor",
     "shear-permutation",
     "transposed",
     "uniform-scale",
     "elastic-tangent",
+    "initial-stiffness",
     "continuum-tangent",
     "stale-tangent",
     "rank-one-term",
@@ -83,7 +84,7 @@ pub struct ZooEntry {
 }
 
 /// Every entry of the zoo, family by family (the order of [`zoo`]).
-const ROWS: [ZooEntry; 27] = [
+const ROWS: [ZooEntry; 28] = [
     // The J2 family: the reference, its flawed tangents and its broken twins.
     ZooEntry {
         name: J2::NAME,
@@ -312,6 +313,14 @@ const ROWS: [ZooEntry; 27] = [
         kinds: &Cohesive::KINDS,
         c_symbol: Some("c_cohesive_symmetrized"),
         fortran_symbol: Some("f_cohesive_symmetrized"),
+    },
+    ZooEntry {
+        name: Cohesive::UNDAMAGED_NAME,
+        description: "cohesive law returning the undamaged stiffness K once the interface is damaged",
+        expected: "initial-stiffness",
+        kinds: &Cohesive::KINDS,
+        c_symbol: Some("c_cohesive_undamaged"),
+        fortran_symbol: Some("f_cohesive_undamaged"),
     },
 ];
 

@@ -12,6 +12,8 @@
  *                           mixed-mode damage growth, where the tangent is unsymmetric)
  *   c_cohesive_transposed   the transposed tangent (wrong in mixed-mode damage growth, where
  *                           the tangent is unsymmetric)
+ *   c_cohesive_undamaged    the undamaged stiffness K on the diagonal on every branch (wrong
+ *                           wherever the point is damaged, and in contact slip with damage)
  *
  * Layout (DEVELOPERS.md, "Reference models"): ncomp 3 (opening, slip 1, slip 2) or 2 (opening,
  * slip); strain = separation, stress = traction, total form (stress0 is not read).
@@ -34,7 +36,7 @@
  * the equivalent separation is a scaled sqrt of a sum of squares (no conjugate, no modulus),
  * B^eta is exp(eta log B).
  *
- * Build: cc -I fortran-shim/include -c cohesive.c               exports the four routines
+ * Build: cc -I fortran-shim/include -c cohesive.c               exports the six routines
  *        cc -I fortran-shim/include -DTC_COMPLEX -c cohesive.c  exports them with _cx
  */
 
@@ -47,7 +49,14 @@ enum { CZ_K, CZ_N, CZ_S, CZ_GIC, CZ_GIIC, CZ_ETA, CZ_NPROP };
 /* Branch ids. */
 enum { CZ_ELASTIC, CZ_GROWTH, CZ_UNLOADING, CZ_CLOSED, CZ_FAILED };
 
-typedef enum { CZ_CONSISTENT, CZ_SECANT, CZ_NO_COUPLING, CZ_TRANSPOSED, CZ_SYMMETRIZED } cz_flaw;
+typedef enum {
+    CZ_CONSISTENT,
+    CZ_SECANT,
+    CZ_NO_COUPLING,
+    CZ_TRANSPOSED,
+    CZ_SYMMETRIZED,
+    CZ_UNDAMAGED
+} cz_flaw;
 
 static void cz_fail(tc_report *report, const char *text)
 {
@@ -269,6 +278,13 @@ static void cz_update(const tc_call *call, const tc_real *properties, const tc_r
             }
         }
     }
+    if (flaw == CZ_UNDAMAGED) {
+        for (int i = 0; i < n; ++i) {
+            for (int j = 0; j < n; ++j) {
+                tan3[i][j] = i == j ? k : 0.0;
+            }
+        }
+    }
     for (int j = 0; j < n; ++j) {
         for (int i = 0; i < n; ++i) {
             tangent[i + j * n] = flaw == CZ_TRANSPOSED    ? tan3[j][i]
@@ -332,4 +348,13 @@ TC_ROUTINE(c_cohesive_symmetrized)
     (void)dstress_dtemp;
     cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
               CZ_SYMMETRIZED);
+}
+
+TC_ROUTINE(c_cohesive_undamaged)
+{
+    (void)temperature;
+    (void)stress0;
+    (void)dstress_dtemp;
+    cz_update(call, properties, strain, dstrain, state0, stress, state, tangent, energy, report,
+              CZ_UNDAMAGED);
 }

@@ -11,6 +11,8 @@
 !                           mixed-mode damage growth, where the tangent is unsymmetric)
 !   f_cohesive_transposed   the transposed tangent (wrong in mixed-mode damage growth, where
 !                           the tangent is unsymmetric)
+!   f_cohesive_undamaged    the undamaged stiffness K on the diagonal on every branch (wrong
+!                           wherever the point is damaged, and in contact slip with damage)
 !
 ! Layout (DEVELOPERS.md, "Reference models"): ncomp 3 (opening, slip 1, slip 2) or 2 (opening,
 ! slip); strain = separation, stress = traction, total form (stress0 is not read).
@@ -30,12 +32,12 @@
 ! G_c (lambda(d) - lambda(d_n)) / (dfm - d0m), lambda(d) = dfm d0m / (dfm - d (dfm - d0m)).
 ! dstress_dtemp is not written (the routine does not provide it).
 !
-! The five routines share one entry, cohesive_variant.inc (the flaw code is its only difference),
+! The six routines share one entry, cohesive_variant.inc (the flaw code is its only difference),
 ! which calls the one update, cohesive_update.inc, included as internal procedures of each (as
 ! j2.F90 does), so that the real and the complex build export no clashing symbols.
 !
 ! Build (after compiling the modules tancheck_routine and tancheck_cstep):
-!   gfortran -cpp -I fortran-shim/include -c cohesive.F90               exports the five routines
+!   gfortran -cpp -I fortran-shim/include -c cohesive.F90               exports the six routines
 !   gfortran -cpp -I fortran-shim/include -DTC_COMPLEX -c cohesive.F90  exports them with _cx
 
 #include "tancheck_twin.inc"
@@ -63,4 +65,9 @@
 #define TC_VARIANT f_cohesive_symmetrized
 #define TC_VARIANT_NAME "f_cohesive_symmetrized"
 #define TC_FLAW 4
+#include "cohesive_variant.inc"
+
+#define TC_VARIANT f_cohesive_undamaged
+#define TC_VARIANT_NAME "f_cohesive_undamaged"
+#define TC_FLAW 5
 #include "cohesive_variant.inc"

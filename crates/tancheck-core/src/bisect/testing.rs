@@ -71,3 +71,70 @@ impl Model for Bar {
         Ok(())
     }
 }
+
+/// A uniaxial bar of scalar damage with linear softening, for the tests of the initial-
+/// stiffness trial: properties [E, κ0, κf]; state [κ], the largest |strain| reached. With
+/// κ = max(κₙ, |ε|), d = κf (κ − κ0)/(κ (κf − κ0)) past κ0 (0 before, below 1 while κ < κf),
+/// σ = (1 − d) E ε. Tangent (1 − d) E off damage growth; in growth (branch 1: |ε| > κₙ and
+/// > κ0) (1 − d) E − E ε d′(κ) sign ε, d′(κ) = κf κ0/(κ² (κf − κ0)) (the uniaxial case of
+/// Simo & Ju 1987, Int. J. Solids Struct. 23(7), from memory). [`DamageBar::undamaged`]
+/// returns E everywhere (a flaw wherever d > 0).
+#[derive(Clone, Debug)]
+pub struct DamageBar {
+    info: RoutineInfo,
+    /// Return the undamaged modulus E on every branch (a flaw).
+    pub undamaged: bool,
+}
+
+impl DamageBar {
+    pub fn new(undamaged: bool) -> ModelRoutine<DamageBar> {
+        ModelRoutine(DamageBar {
+            info: RoutineInfo {
+                name: if undamaged { "damage-bar-undamaged" } else { "damage-bar" }.into(),
+                convention: Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering),
+                nstate: 1,
+                nprop: 3,
+            },
+            undamaged,
+        })
+    }
+}
+
+/// E, κ0, κf of the damage bar's tests.
+pub const DAMAGE_PROPS: [f64; 3] = [30_000.0, 6e-4, 5e-3];
+
+impl Model for DamageBar {
+    fn info(&self) -> &RoutineInfo {
+        &self.info
+    }
+
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        out: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        let (e, k0, kf) = (input.props[0], input.props[1], input.props[2]);
+        let eps = input.strain[0] + input.dstrain[0];
+        let sign = if eps.re() >= 0.0 { 1.0 } else { -1.0 };
+        let abs = eps * sign;
+        let grows = abs.re() > input.state0[0].re() && abs.re() > k0.re();
+        let kappa = if grows { abs } else { input.state0[0] };
+        let d = if kappa.re() > k0.re() { kf * (kappa - k0) / (kappa * (kf - k0)) } else { S::zero() };
+        out.stress[0] = (S::one() - d) * e * eps;
+        out.state[0] = kappa;
+        out.tangent[0] = if self.undamaged {
+            e
+        } else if grows {
+            let dd = kf * k0 / (kappa * kappa * (kf - k0));
+            (S::one() - d) * e - e * eps * dd * sign
+        } else {
+            (S::one() - d) * e
+        };
+        out.outcome.status = 0;
+        out.outcome.branch = i32::from(grows);
+        out.dstress_dtemp[0] = S::zero();
+        out.energy[0] = S::zero();
+        out.energy[1] = S::zero();
+        Ok(())
+    }
+}

@@ -189,6 +189,61 @@ mod tests {
         assert_eq!(r.path_leads_here, None);
     }
 
+    // A damaged bar given its undamaged modulus: where damage starts (no damage before) that
+    // modulus is the elastic tangent of the increment's start and is named so; past it, as the
+    // stiffness of the path's start. A case of such an increment replays with the same finding
+    // when it carries its path (the trial's start), and without the trial when it does not.
+    #[test]
+    fn the_initial_stiffness_is_named_in_the_check_and_in_the_replay_of_its_case() {
+        use crate::bisect::testing::{DamageBar, DAMAGE_PROPS};
+        let mut bar = DamageBar::new(true);
+        let info = bar.0.info().clone();
+        let mut caller = Caller::new(&mut bar);
+        let path = Path {
+            name: "damage".into(),
+            increments: vec![PathIncrement::strain([5e-4, 0.0, 0.0, 0.0, 0.0, 0.0]); 5],
+        };
+        let settings = Settings::default();
+        let start = PointState::zero(&info, 20.0);
+        let report = crate::check::run(&mut caller, &DAMAGE_PROPS, start.clone(), &path, &settings).unwrap();
+        let findings: Vec<&str> = report
+            .increments
+            .iter()
+            .map(|i| i.diagnosis.as_ref().map_or("passed", |d| d.finding.as_str()))
+            .collect();
+        assert_eq!(
+            findings,
+            ["passed", "elastic-tangent", "initial-stiffness", "initial-stiffness", "initial-stiffness"]
+        );
+        let (mut d, previous) =
+            bisect::driver_at(&mut caller, &DAMAGE_PROPS, start.clone(), &path, 4, &settings).unwrap();
+        let check = judge::check_call(&mut d, &mut caller, &settings, previous.as_deref()).unwrap();
+        assert_eq!(check.finding(), "initial-stiffness");
+        let origin = CaseOrigin {
+            manifest: None,
+            path: path.name.clone(),
+            increment: 4,
+            of: 5,
+            branch: "#1".into(),
+            crossing: None,
+            shrunk_from: None,
+        };
+        let prefix = Path { name: "damage".into(), increments: path.increments[..4].to_vec() };
+        let mut r = CaseRoutine::from_info(&info, true);
+        r.model = Some(info.name.clone());
+        let mut case =
+            Case::capture(r, &d, Ok(&check), previous.as_deref(), &settings, origin, Some((&start, &prefix)));
+        assert_eq!(case.probe.finding, "initial-stiffness");
+        let parsed = Case::parse(&case.to_json()).unwrap();
+        let replayed = replay(&mut caller, &parsed, true).unwrap();
+        assert_eq!(replayed.path_leads_here, Some(Ok(())));
+        assert_eq!(replayed.check.unwrap().finding(), "initial-stiffness");
+        case.path = None;
+        let parsed = Case::parse(&case.to_json()).unwrap();
+        let replayed = replay(&mut caller, &parsed, false).unwrap();
+        assert_ne!(replayed.check.unwrap().finding(), "initial-stiffness");
+    }
+
     #[test]
     fn a_path_that_does_not_lead_to_the_call_is_named() {
         let (mut case, _) = bar_case();

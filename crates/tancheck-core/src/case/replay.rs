@@ -10,9 +10,10 @@ use crate::routine::{Caller, RoutineInfo};
 use crate::settings::Settings;
 
 /// A driver holding exactly the call of a case: its start state, increment and increment
-/// number (not yet called).
+/// number (not yet called), and no path before it (see [`Driver::set_origin`]).
 pub fn driver_for(info: &RoutineInfo, call: &DecodedCall) -> Result<Driver, CoreError> {
     let mut d = Driver::new(info, &call.props, call.start.clone())?;
+    d.set_origin(None);
     // The driver numbers increments as they are set; set this one until it has its number.
     for _ in 0..call.increment {
         d.set_increment(&call.dstrain, call.dtemp, call.dtime);
@@ -81,6 +82,8 @@ fn differences(now: &DecodedOutputs, then: &DecodedOutputs) -> Vec<String> {
 pub fn replay(caller: &mut Caller<'_>, case: &ParsedCase, walk_path: bool) -> Result<Replay, CoreError> {
     let info = caller.info().clone();
     let mut driver = driver_for(&info, &case.call)?;
+    // The diagnosis's initial stiffness is that of the path's start, as in the check.
+    driver.set_origin(case.path.as_ref().map(|(start, _)| start.clone()));
     let base = driver.base_call(caller);
     let b = &driver.base;
     let outputs = DecodedOutputs {

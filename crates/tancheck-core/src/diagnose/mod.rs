@@ -284,6 +284,35 @@ fn branch_entry(
     (hi < 0.99).then_some(hi)
 }
 
+/// The scheme the cause trials measure a tangent with, at a driver's current increment.
+type BestTangent<'b> = dyn Fn(&mut Driver, &mut Caller<'_>, &mut [f64]) -> Result<(), Fault> + 'b;
+
+/// Fraction of the increment the initial-stiffness step takes from the path's start.
+/// Why 1e-3: small enough to stay in the elastic range of a material whose increment reached
+/// its inelastic range (yield and damage onset take strains well above a thousandth of an
+/// increment on any path this tool drives), large enough for the difference schemes' steps.
+const INITIAL_STEP: f64 = 1e-3;
+
+/// The stiffness at the start of the path: the best numerical tangent (`best`, the scheme the
+/// other trials use) at the end of a small step from the path's start state along the
+/// increment's own direction, on a driver of its own (the increment's is left as it was). None
+/// when the driver does not know where its path starts, the increment has no strain, or a
+/// call of the step fails (the trial is then left out).
+fn initial_stiffness(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangent<'_>) -> Option<Vec<f64>> {
+    let origin = driver.origin()?;
+    if driver.dstrain().iter().all(|x| *x == 0.0) {
+        return None;
+    }
+    let mut d = Driver::new(caller.info(), driver.props(), origin.clone()).ok()?;
+    let step: Vec<f64> = driver.dstrain().iter().map(|x| x * INITIAL_STEP).collect();
+    d.set_increment(&step, 0.0, driver.dtime() * INITIAL_STEP);
+    d.base_call(caller).ok()?;
+    let n = driver.ncomp();
+    let mut out = vec![0.0; n * n];
+    best(&mut d, caller, &mut out).ok()?;
+    out.iter().all(|x| x.is_finite()).then_some(out)
+}
+
 /// The cause trials: the cleanest numerical tangent (the one-sided derivatives column by
 /// column at a kink; the complex step when the twin is trusted; else Richardson at a moderate
 /// step, never a tiny-step difference), the elastic tangent, refined increments.
@@ -321,6 +350,7 @@ fn cause_trials(
             tangent(driver, caller, Scheme::Richardson, settings.richardson.rel_step * sc, out)
         }
     };
+    let initial = initial_stiffness(driver, caller, &best);
     let strain_end: Vec<f64> =
         driver.start().strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect();
     let stress_end = driver.base.stress.clone();
@@ -367,6 +397,7 @@ fn cause_trials(
         returned: ctx.returned,
         numerical: &num,
         elastic: elastic_ok.then_some(&elastic[..]),
+        initial: initial.as_deref(),
         previous: ctx.previous,
         refinement: Some(&rf),
         strain_end: &strain_end,

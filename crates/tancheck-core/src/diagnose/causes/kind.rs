@@ -20,6 +20,10 @@ pub enum Cause {
     UniformScale,
     /// The elastic tangent returned in an inelastic branch.
     ElasticTangent,
+    /// The stiffness at the start of the path (the material before any damage, softening or
+    /// hardening) returned for a state that has changed since: the undamaged stiffness of a
+    /// damaged point, in damage growth or in unloading.
+    InitialStiffness,
     /// The tangent of the start of the increment.
     StaleTangent,
     /// The returned matrix maps the total strain to the stress (a secant), not increments
@@ -59,11 +63,14 @@ pub enum Cause {
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 19] = [
+    pub const BY_SPECIFICITY: [Cause; 20] = [
         Cause::ShearFactor,
         Cause::ShearPermutation,
         Cause::Transposed,
         Cause::Symmetrized,
+        // Before the uniform scale: the undamaged stiffness of a point unloading with damage d
+        // is the true tangent times 1/(1 − d), and what the routine returned is the better name.
+        Cause::InitialStiffness,
         Cause::UniformScale,
         Cause::ElasticTangent,
         Cause::StaleTangent,
@@ -88,6 +95,7 @@ impl Cause {
             Cause::Transposed => "transposed",
             Cause::UniformScale => "uniform-scale",
             Cause::ElasticTangent => "elastic-tangent",
+            Cause::InitialStiffness => "initial-stiffness",
             Cause::StaleTangent => "stale-tangent",
             Cause::Secant => "secant",
             Cause::CouplingMissing => "coupling-missing",
@@ -146,6 +154,9 @@ pub struct Evidence<'a> {
     pub numerical: &'a [f64],
     /// The derivative along an elastic unloading step from the start state, if measured.
     pub elastic: Option<&'a [f64]>,
+    /// The derivative at the start of the path (a small step from its start state along the
+    /// increment's direction), if measured.
+    pub initial: Option<&'a [f64]>,
     /// The derivative at the end of the previous increment (the start of this one).
     pub previous: Option<&'a [f64]>,
     pub refinement: Option<&'a Refinement>,

@@ -1,9 +1,11 @@
 //! Trials of another matrix returned in place of the derivative: the elastic one, the one of
-//! the start of the increment, a secant, one without coupling terms, a symmetric part.
+//! the start of the path, the one of the start of the increment, a secant, one without
+//! coupling terms, a symmetric part.
 
 use super::kind::{Cause, Evidence, Found};
+use crate::compare::compare;
 
-/// Elastic, stale, secant, coupling missing, symmetrized (in this order).
+/// Elastic, initial, stale, secant, coupling missing, symmetrized (in this order).
 pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
     let n = ev.conv.ncomp();
     let r = ev.returned;
@@ -16,6 +18,22 @@ pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
             "equals the elastic tangent although the state variables changed".into(),
             ev.distance(e),
         );
+    }
+
+    // The stiffness at the start of the path, where it is neither the derivative (nothing
+    // returned in its place would fail) nor the elastic tangent of the current state (that
+    // trial already names it): a damaged point given its undamaged stiffness, in growth or
+    // unloading alike.
+    if let Some(i) = ev.initial {
+        let level = found.explain_level;
+        let same = |a: &[f64], b: &[f64]| compare(ev.conv, a, b, ev.tol, ev.entry_floor, 0).error() <= level;
+        if !same(i, ev.numerical) && !ev.elastic.is_some_and(|e| same(i, e)) {
+            found.push(
+                Cause::InitialStiffness,
+                "equals the stiffness at the start of the path (the material before its state variables changed), not that of the current state".into(),
+                ev.distance(i),
+            );
+        }
     }
 
     // Stale: the tangent of the start of the increment.

@@ -15,6 +15,7 @@ fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evi
         returned: r,
         numerical: n,
         elastic: None,
+        initial: None,
         previous: None,
         refinement: None,
         strain_end: z,
@@ -215,4 +216,79 @@ fn on_one_component_the_tangents_that_name_what_was_returned_lead() {
     // On a full tangent the uniform scale is the more specific, as before.
     let hs = finish(all, 1e-9, false);
     assert_eq!(hs[0].cause, Cause::UniformScale);
+}
+
+/// The derivative of isotropic scalar damage σ = (1 − d) C:ε in damage growth, with d a
+/// function of the equivalent strain κ = |ε| (the form of Simo & Ju 1987, Int. J. Solids
+/// Struct. 23(7), from memory): (1 − d) C − (C:ε) ⊗ d′(κ) ε/κ, here with d = 0.3 and
+/// d′κ = 0.9 at a strain of mixed direction.
+fn damage_growth(c0: &[f64]) -> Vec<f64> {
+    let eps = [1e-4, -3e-5, 2e-5, 4e-5, 0.0, 1e-5];
+    let kappa = eps.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let (d, dprime) = (0.3, 0.9 / kappa);
+    let mut ce = [0.0; 6];
+    for (i, v) in ce.iter_mut().enumerate() {
+        *v = (0..6).map(|j| c0[i + 6 * j] * eps[j]).sum();
+    }
+    let mut t = vec![0.0; 36];
+    for j in 0..6 {
+        for i in 0..6 {
+            t[i + 6 * j] = (1.0 - d) * c0[i + 6 * j] - ce[i] * dprime * eps[j] / kappa;
+        }
+    }
+    t
+}
+
+// A damaged point given its undamaged stiffness: in damage growth (the elastic tangent of its
+// state at the start of the increment, (1 − dₙ) C, is another matrix) and in unloading, where
+// the true tangent (1 − d) C makes the undamaged one a uniform scale of it by 1/(1 − d): what
+// the routine returned names it first.
+#[test]
+fn the_undamaged_stiffness_of_a_damaged_point_is_named() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let c0 = elastic_like();
+    let scaled = |f: f64| c0.iter().map(|x| f * x).collect::<Vec<f64>>();
+    let growth = damage_growth(&c0);
+    let (start_elastic, unloading) = (scaled(0.8), scaled(0.7));
+    for (numerical, elastic, changed) in [(&growth, &start_elastic, true), (&unloading, &unloading, false)] {
+        let mut evd = ev(&conv, &c0, numerical, &z);
+        evd.elastic = Some(elastic);
+        evd.initial = Some(&c0);
+        evd.state_changed = changed;
+        let h = rank(&evd);
+        assert_eq!(h[0].cause, Cause::InitialStiffness, "state changed {changed}: {h:?}");
+        assert!(h[0].explains && h[0].error_left <= 1e-12, "{:?}", h[0]);
+        // Without the trial's evidence it is not offered, and growth stays unexplained.
+        evd.initial = None;
+        let h = rank(&evd);
+        assert!(h.iter().all(|x| x.cause != Cause::InitialStiffness));
+        if changed {
+            assert!(!h[0].explains, "{h:?}");
+        }
+    }
+}
+
+// The initial stiffness is not offered where it says nothing new: where it equals the elastic
+// tangent of the current state (plasticity: the elastic-tangent trial names it), or the
+// derivative itself (an undamaged point, where returning it is right).
+#[test]
+fn the_initial_stiffness_is_offered_only_where_it_is_another_matrix() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let c0 = elastic_like();
+    let good = j2_like();
+    let mut evd = ev(&conv, &c0, &good, &z);
+    evd.elastic = Some(&c0);
+    evd.initial = Some(&c0);
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::ElasticTangent, "{h:?}");
+    assert!(h.iter().all(|x| x.cause != Cause::InitialStiffness), "{h:?}");
+    let wrong = c0.iter().map(|x| 2.0 * x).collect::<Vec<f64>>();
+    let mut evd = ev(&conv, &wrong, &c0, &z);
+    evd.initial = Some(&c0);
+    evd.state_changed = false;
+    let h = rank(&evd);
+    assert!(h.iter().all(|x| x.cause != Cause::InitialStiffness), "{h:?}");
+    assert_eq!(h[0].cause, Cause::UniformScale, "{h:?}");
 }
