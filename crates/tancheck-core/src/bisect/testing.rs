@@ -75,10 +75,10 @@ impl Model for Bar {
 /// A uniaxial bar of scalar damage with linear softening, for the tests of the initial-
 /// stiffness trial: properties [E, κ0, κf]; state [κ], the largest |strain| reached. With
 /// κ = max(κₙ, |ε|), d = κf (κ − κ0)/(κ (κf − κ0)) past κ0 (0 before, below 1 while κ < κf),
-/// σ = (1 − d) E ε. Tangent (1 − d) E off damage growth; in growth (branch 1: |ε| > κₙ and
-/// > κ0) (1 − d) E − E ε d′(κ) sign ε, d′(κ) = κf κ0/(κ² (κf − κ0)) (the uniaxial case of
-/// Simo & Ju 1987, Int. J. Solids Struct. 23(7), from memory). [`DamageBar::undamaged`]
-/// returns E everywhere (a flaw wherever d > 0).
+/// σ = (1 − d) E ε. Tangent (1 − d) E off damage growth; in growth (branch 1: |ε| above
+/// both κₙ and κ0) (1 − d) E − E ε d′(κ) sign ε, d′(κ) = κf κ0/(κ² (κf − κ0)) (the uniaxial
+/// case of Simo & Ju 1987, Int. J. Solids Struct. 23(7), from memory).
+/// [`DamageBar::undamaged`] returns E everywhere (a flaw wherever the damage is above zero).
 #[derive(Clone, Debug)]
 pub struct DamageBar {
     info: RoutineInfo,
