@@ -477,3 +477,45 @@ fn explore_finds_a_guard_fault() {
     assert_eq!(f["finding"], "routine-fault", "{v:#}");
     assert_eq!(f["first_path"], 1, "the first path meets it: {f:#}");
 }
+
+// A probe in which the routine faults ends the probe command as a check's routine fault does
+// (exit 3, `exit_code` 3 in the JSON, the verdict FAULT), not as a finding about its results
+// (exit 1); a crash is caught and the other probes still run.
+#[test]
+fn a_routine_fault_in_a_probe_is_exit_3() {
+    let d = scratch("probe-fault");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_null_deref", "kind": "solid-3d", "states": 2, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 3 }} }}"#,
+            c_lib().display()
+        ),
+    )
+    .unwrap();
+    let json = d.join("p.json");
+    let o = bin().arg("probe").arg(&m).arg("--json").arg(&json).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(3), "{t}");
+    assert!(t.contains("verdict: FAULT"), "{t}");
+    // The crash ends most probes; its words are told once, the later probes name the first.
+    assert_eq!(t.matches("SIGSEGV").count(), 1, "{t}");
+    assert!(t.contains("the routine failed at increment 2: the same fault as in `tangent`"), "{t}");
+    assert!(t.contains("energy") && t.contains("in the closed elastic cycle from the start state"), "{t}");
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["exit_code"], 3, "{v:#}");
+    assert_eq!(v["pass"], false);
+    assert!(v["results"].as_array().unwrap().iter().any(|r| r["fault"] == true), "{v:#}");
+    // A correct routine's probes: exit 0 and `exit_code` 0.
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+  "path": { "shape": "uniaxial-strain", "peak": 0.004, "steps": 4 } }"#,
+    )
+    .unwrap();
+    let o = bin().arg("probe").arg(&m).arg("--json").arg(&json).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["exit_code"], 0);
+}

@@ -195,3 +195,35 @@ fn a_continuum_tangent_is_named_where_the_increment_crosses_into_yield() {
         assert_eq!(inc.finding(), "continuum-tangent", "increment {}:\n{}", inc.index, summary(&r));
     }
 }
+
+// The report's one-word finding is the finding most failing increments name first, not the
+// cause that explains at most of them: a general cause (rank two, which a discrepancy of rank
+// one also has on a point of three components or fewer) explains alongside the specific one at
+// every increment, and counted there it outnumbered the specific one, which the first
+// increment names otherwise (a user-style sweep: a plane-stress ply routine returning its
+// undamaged stiffness was headlined `rank-two` in JUnit and HTML).
+#[test]
+fn the_headline_finding_is_the_one_the_increments_name_first() {
+    use tancheck::core::diagnose::{Cause, Hypothesis};
+    let mut m = zoo_model("cohesive-undamaged", PointKind::Cohesive3d).unwrap();
+    let path = Path::ramp(tancheck::core::Shape::MixedMode, 0.0032, 8, 4);
+    let mut r = run(&mut m, &[1e5, 60.0, 90.0, 0.3, 0.9, 2.0], &path, &Settings::default());
+    assert_eq!(r.verdict, Verdict::TangentFailure);
+    let named: Vec<&str> =
+        r.increments.iter().filter_map(|i| i.diagnosis.as_ref()).map(|d| d.finding.as_str()).collect();
+    assert_eq!(named[0], "elastic-tangent", "{named:?}");
+    assert!(named.iter().filter(|f| **f == "initial-stiffness").count() >= 5, "{named:?}");
+    assert_eq!(r.finding(), "initial-stiffness");
+    // A general cause explaining at every diagnosed increment, ranked after the specific one.
+    for inc in r.increments.iter_mut() {
+        if let Some(d) = inc.diagnosis.as_mut() {
+            d.causes.push(Hypothesis {
+                cause: Cause::RankTwo,
+                detail: String::new(),
+                error_left: 0.0,
+                explains: true,
+            });
+        }
+    }
+    assert_eq!(r.finding(), "initial-stiffness");
+}

@@ -496,7 +496,7 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
     reporters.suite(&report, &context)?;
     reporters.finish()?;
-    Ok(if report.pass { exit::PASS } else { exit::TANGENT_FAILURE })
+    Ok(report.exit_code)
 }
 
 fn cmd_models(quiet: bool) -> Result<i32> {

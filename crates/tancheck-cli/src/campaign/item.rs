@@ -252,7 +252,7 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
                 } else {
                     failed.iter().map(|p| p.probe.as_str()).collect::<Vec<_>>().join(",")
                 },
-                exit_code: if rep.pass { 0 } else { crate::exit::TANGENT_FAILURE },
+                exit_code: rep.exit_code,
                 first: failed.iter().find_map(|p| p.increment),
                 increments: rep.results.len(),
                 failed: failed.len(),

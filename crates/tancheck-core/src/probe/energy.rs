@@ -116,7 +116,13 @@ impl Probe for Energy {
         let mut elastic = false;
         for _ in 0..=8 {
             match closed_cycle(caller, &info, env, &w, a) {
-                Err(f) => return Ok(faulted("energy", 0, &f)),
+                Err(f) => {
+                    return Ok(super::faulted_in(
+                        "energy",
+                        "in the closed elastic cycle from the start state",
+                        &f,
+                    ))
+                }
                 Ok((c, stayed)) => {
                     cycle = c;
                     elastic = stayed;

@@ -317,9 +317,15 @@ pub fn walk(
 
 /// A probe result for a routine that failed during the probe.
 pub fn faulted(probe: &str, at: usize, f: &Fault) -> ProbeResult {
-    let mut r =
-        ProbeResult::new(probe, ProbeStatus::Fail, format!("the routine failed at increment {at}: {f}"));
+    let mut r = faulted_in(probe, &format!("at increment {at}"), f);
     r.increment = Some(at);
+    r
+}
+
+/// A probe result for a routine that failed in calls of the probe's own, off the path
+/// (`place`: "in the closed elastic cycle from the start state").
+pub fn faulted_in(probe: &str, place: &str, f: &Fault) -> ProbeResult {
+    let mut r = ProbeResult::new(probe, ProbeStatus::Fail, format!("the routine failed {place}: {f}"));
     r.fault = true;
     r
 }
@@ -340,7 +346,27 @@ pub struct SuiteReport {
     pub path: String,
     pub results: Vec<ProbeResult>,
     pub pass: bool,
+    /// The command's exit code: 0 every probe passed or was skipped, 1 a probe failed on its
+    /// finding, 3 a probe failed because the routine faulted in it (as a check's routine
+    /// fault). Reports written before it was added read as 0 (use `pass`).
+    #[serde(default)]
+    pub exit_code: i32,
     pub cautions: Vec<String>,
+}
+
+impl SuiteReport {
+    /// The exit code of a suite with these results (see [`SuiteReport::exit_code`]).
+    pub fn exit_code_of(results: &[ProbeResult]) -> i32 {
+        use crate::report::Verdict;
+        let failed = || results.iter().filter(|r| r.status == ProbeStatus::Fail);
+        if failed().any(|r| r.fault) {
+            Verdict::RoutineFault.exit_code()
+        } else if failed().next().is_some() {
+            Verdict::TangentFailure.exit_code()
+        } else {
+            Verdict::Pass.exit_code()
+        }
+    }
 }
 
 /// Run probes given by name on a routine (see [`run_probes`]).
@@ -386,6 +412,7 @@ pub fn run_probes(
         }
     }
     let pass = results.iter().all(|r| r.status != ProbeStatus::Fail);
+    let exit_code = SuiteReport::exit_code_of(&results);
     Ok(SuiteReport {
         tool: format!("tancheck {}", env!("CARGO_PKG_VERSION")),
         suite: suite.into(),
@@ -393,6 +420,7 @@ pub fn run_probes(
         path: path.name.clone(),
         results,
         pass,
+        exit_code,
         cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
     })
 }

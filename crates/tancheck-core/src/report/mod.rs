@@ -342,9 +342,12 @@ impl Report {
     }
 
     /// What the report found, in one word: `none` when it passed, `routine-fault` when the
-    /// routine crashed or failed, else the cause that explains the most failing increments
-    /// (ties go to the more specific cause; `kink-neither-side`, `non-finite-derivative` and
-    /// `dtemp` count as causes), or `unexplained`.
+    /// routine crashed or failed, else the finding named at the most failing increments (each
+    /// increment's own: its first-ranked cause, or `kink-neither-side`,
+    /// `non-finite-derivative`, `dtemp`; ties go to the more specific cause), or
+    /// `unexplained` when no increment names one. Only the first-ranked cause counts: the
+    /// general ones (`rank-two`, a rank-one term) also explain most discrepancies a specific
+    /// cause explains, and counted at every increment they would outnumber it.
     pub fn finding(&self) -> String {
         use crate::diagnose::Cause;
         match self.verdict {
@@ -368,14 +371,8 @@ impl Report {
                 || d.finding.starts_with("dtemp")
             {
                 add(&d.finding, 0);
-            }
-            let mut seen = Vec::new();
-            for h in d.causes.iter().filter(|h| h.explains) {
-                if !seen.contains(&h.cause) {
-                    seen.push(h.cause);
-                    let rank = 1 + Cause::BY_SPECIFICITY.iter().position(|&c| c == h.cause).unwrap_or(99);
-                    add(h.cause.name(), rank);
-                }
+            } else if let Some(c) = Cause::BY_SPECIFICITY.iter().position(|c| c.name() == d.finding) {
+                add(&d.finding, 1 + c);
             }
         }
         counts.sort_by(|a, b| b.1.cmp(&a.1).then(a.2.cmp(&b.2)));

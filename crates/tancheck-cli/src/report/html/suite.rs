@@ -14,7 +14,11 @@ use crate::report::model::SelftestRow;
 /// measured (Newton residuals, the acoustic determinant, the energies).
 pub fn probe_page(report: &SuiteReport) -> String {
     let mut o = String::new();
-    let verdict = if report.pass { "PASS" } else { "FAIL" };
+    let verdict = match report.exit_code {
+        crate::exit::PASS => "PASS",
+        crate::exit::TANGENT_FAILURE => "FAIL",
+        _ => "FAULT",
+    };
     let failed = report.results.iter().filter(|r| r.status == ProbeStatus::Fail).count();
     let _ = writeln!(
         o,

@@ -20,6 +20,15 @@ fn verdict_word(code: i32) -> &'static str {
     }
 }
 
+/// A faulted probe's summary split into where ("the routine failed at increment 2") and the
+/// fault's own words; None for any other result.
+fn fault_text(r: &tancheck_core::probe::ProbeResult) -> Option<(&str, &str)> {
+    if !r.fault {
+        return None;
+    }
+    r.summary.split_once(": ")
+}
+
 /// A probe suite: a line per probe (only the failed ones with `-q`), details of failures.
 pub fn suite(
     out: &mut dyn Write,
@@ -37,11 +46,28 @@ pub fn suite(
         }
         writeln!(out)?;
     }
+    // A fault that ends several probes (a crash at the same call of the same path) is told in
+    // full once; the later probes refer to the first that met it.
+    let mut faults: Vec<(&str, &str)> = Vec::new();
     for r in &report.results {
         let failed = r.status == ProbeStatus::Fail;
         if quiet && !failed {
             continue;
         }
+        let shown;
+        let summary = match fault_text(r) {
+            Some((at, why)) => match faults.iter().find(|(w, _)| *w == why) {
+                Some((_, first)) => {
+                    shown = format!("{at}: the same fault as in `{first}`");
+                    shown.as_str()
+                }
+                None => {
+                    faults.push((why, r.probe.as_str()));
+                    r.summary.as_str()
+                }
+            },
+            None => r.summary.as_str(),
+        };
         let word = format!("{:<8}", r.status.word());
         let word = match r.status {
             ProbeStatus::Fail => p.fail(&word),
@@ -49,10 +75,10 @@ pub fn suite(
             _ => p.dim(&word),
         };
         if quiet {
-            writeln!(out, "{} {} probe {}: {}", p.fail("FAIL"), report.routine, r.probe, r.summary)?;
+            writeln!(out, "{} {} probe {}: {}", p.fail("FAIL"), report.routine, r.probe, summary)?;
             continue;
         }
-        writeln!(out, "   {:<15} {word} {}", r.probe, r.summary)?;
+        writeln!(out, "   {:<15} {word} {}", r.probe, summary)?;
         // A coverage warning is shown as a check shows it: always (a passing probe that did
         // not look at something says so).
         for d in r
@@ -68,10 +94,10 @@ pub fn suite(
         out,
         "{}   verdict: {} — {} of {} probes failed (exit {})",
         if quiet { "" } else { "\n" },
-        p.verdict(if report.pass { "PASS" } else { "FAIL" }),
+        p.verdict(verdict_word(report.exit_code)),
         failed,
         report.results.len(),
-        if report.pass { 0 } else { 1 }
+        report.exit_code
     )?;
     if !quiet {
         for c in &report.cautions {
