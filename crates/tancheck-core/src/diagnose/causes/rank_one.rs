@@ -69,10 +69,27 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 0.5 * (others[others.len() / 2 - 1] + others[others.len() / 2])
             };
             let tau = (u.transpose() * &bm * &v)[(0, 0)] - background * u.dot(&v);
+            let cosine = |w: nalgebra::DVector<f64>, along: &nalgebra::DVector<f64>| {
+                let l = w.norm();
+                if l > 0.0 {
+                    (w.dot(along) / (l * along.norm())).abs()
+                } else {
+                    0.0
+                }
+            };
+            // A scaled term of the derivative is one of its own directions: the derivative
+            // (net of the background) maps v to a multiple of u, and its transpose u to one of
+            // v. A discrepancy that is one term but not such a copy (another flow direction in
+            // place of the true one) has no factor to tell: its cosines fall far below 1
+            // (0.1–0.6 on a sweep's non-associative return given the associative tangent,
+            // above 0.98 on every scaled term the sweeps and the zoo planted).
+            let right = cosine(&bm * &v - &v * background, &u);
+            let left = cosine(bm.transpose() * &u - &u * background, &v);
+            let copy = left.min(right) >= 0.9;
             let sigma = (u.transpose() * &dm * &v)[(0, 0)];
             // Why 1e-12: below that the derivative has no part along u⊗v beyond rounding of
             // the norm (a few ulps), so no factor can be told.
-            let factor = if tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
+            let factor = if copy && tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
             let size = s[0] / norm;
             // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
             // bands admit the error the rank-one fit leaves, far from any plain scaling.
@@ -84,9 +101,17 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             } else if (factor + 1.0).abs() < 0.1 {
                 (Cause::TermSign, format!("one term a⊗b of the derivative has the wrong sign (factor {factor:.3}, size {size:.2e})"))
             } else if factor.is_finite() {
-                (Cause::TermScaled, format!("one term a⊗b of the derivative is scaled by {factor:.4} (size {size:.2e} of the norm)"))
-            } else {
+                (Cause::TermScaled, format!("one term a⊗b of the derivative is scaled by about {factor:.2} (size {size:.2e} of the norm)"))
+            } else if copy {
                 (Cause::RankOneTerm, format!("the discrepancy is one term a⊗b of size {size:.2e}"))
+            } else {
+                (
+                    Cause::RankOneTerm,
+                    format!(
+                        "the discrepancy is one term a⊗b of size {size:.2e}, not a scaled term of the derivative (its directions are {:.0}° from the derivative's own): a term built from other vectors, such as another flow direction",
+                        left.min(right).clamp(0.0, 1.0).acos().to_degrees()
+                    ),
+                )
             };
             found.push(cause, detail, rest);
             if s.len() > 2 {

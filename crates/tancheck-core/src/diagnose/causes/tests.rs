@@ -292,3 +292,62 @@ fn the_initial_stiffness_is_offered_only_where_it_is_another_matrix() {
     assert!(h.iter().all(|x| x.cause != Cause::InitialStiffness), "{h:?}");
     assert_eq!(h[0].cause, Cause::UniformScale, "{h:?}");
 }
+
+/// C − (C:m)⊗(C:n)/(n:C:m): the elasto-plastic tangent of a perfectly plastic return with flow
+/// direction m and yield normal n (the non-associative form, e.g. de Souza Neto, Perić & Owen
+/// 2008, Computational Methods for Plasticity, ch. 8; from memory). Vectors in Mandel form.
+fn plastic_with(c: &[f64], m: &[f64; 6], nrm: &[f64; 6]) -> Vec<f64> {
+    let apply = |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
+    let (cm, cn) = (apply(m), apply(nrm));
+    let h: f64 = (0..6).map(|i| nrm[i] * cm[i]).sum();
+    let mut t = c.to_vec();
+    for j in 0..6 {
+        for i in 0..6 {
+            t[i + 6 * j] -= cm[i] * cn[j] / h;
+        }
+    }
+    t
+}
+
+// A non-associative return given the associative tangent: the discrepancy is one term, but
+// not a scaled copy of the derivative's plastic term (another flow direction), so no factor
+// is told (a sweep's Drucker–Prager routine was named `term-scaled` with factors from −3.3 to
+// 2.3 and `term-sign`); a scaled plastic term still gets its factor.
+#[test]
+fn a_term_built_from_another_direction_has_no_factor() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let c = elastic_like();
+    let s = 1.0 / 6f64.sqrt();
+    // Deviatoric direction (2, −1, −1, 0, 0, 0)/√6 with a volumetric part: friction 0.6 in the
+    // yield normal, dilatancy 0.2 in the flow direction.
+    let dir = |vol: f64| -> [f64; 6] {
+        let v = [2.0 * s + vol, -s + vol, -s + vol, 0.3, 0.0, 0.0];
+        let l = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        v.map(|x| x / l)
+    };
+    let (nrm, m) = (dir(0.6 / 3f64.sqrt()), dir(0.2 / 3f64.sqrt()));
+    let truth = plastic_with(&c, &m, &nrm);
+    let associative = plastic_with(&c, &nrm, &nrm);
+    let mut evd = ev(&conv, &associative, &truth, &z);
+    evd.elastic = Some(&c);
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::RankOneTerm, "{h:?}");
+    assert!(h[0].detail.contains("not a scaled term"), "{}", h[0].detail);
+    assert!(h.iter().all(|x| !matches!(x.cause, Cause::TermScaled | Cause::TermSign)), "{h:?}");
+    // The plastic term scaled by 1.2: a copy of the derivative's own term, with its factor.
+    let apply = |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
+    let (cm, cn) = (apply(&m), apply(&nrm));
+    let hh: f64 = (0..6).map(|i| nrm[i] * cm[i]).sum();
+    let mut scaled = truth.clone();
+    for j in 0..6 {
+        for i in 0..6 {
+            scaled[i + 6 * j] -= 0.2 * cm[i] * cn[j] / hh;
+        }
+    }
+    let mut evd = ev(&conv, &scaled, &truth, &z);
+    evd.elastic = Some(&c);
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::TermScaled, "{h:?}");
+    assert!(h[0].detail.contains("about 1.2"), "{}", h[0].detail);
+}
