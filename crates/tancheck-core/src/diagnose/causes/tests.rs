@@ -297,7 +297,8 @@ fn the_initial_stiffness_is_offered_only_where_it_is_another_matrix() {
 /// direction m and yield normal n (the non-associative form, e.g. de Souza Neto, Perić & Owen
 /// 2008, Computational Methods for Plasticity, ch. 8; from memory). Vectors in Mandel form.
 fn plastic_with(c: &[f64], m: &[f64; 6], nrm: &[f64; 6]) -> Vec<f64> {
-    let apply = |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
+    let apply =
+        |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
     let (cm, cn) = (apply(m), apply(nrm));
     let h: f64 = (0..6).map(|i| nrm[i] * cm[i]).sum();
     let mut t = c.to_vec();
@@ -336,7 +337,8 @@ fn a_term_built_from_another_direction_has_no_factor() {
     assert!(h[0].detail.contains("not a scaled term"), "{}", h[0].detail);
     assert!(h.iter().all(|x| !matches!(x.cause, Cause::TermScaled | Cause::TermSign)), "{h:?}");
     // The plastic term scaled by 1.2: a copy of the derivative's own term, with its factor.
-    let apply = |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
+    let apply =
+        |v: &[f64; 6]| -> [f64; 6] { std::array::from_fn(|i| (0..6).map(|j| c[i + 6 * j] * v[j]).sum()) };
     let (cm, cn) = (apply(&m), apply(&nrm));
     let hh: f64 = (0..6).map(|i| nrm[i] * cm[i]).sum();
     let mut scaled = truth.clone();
