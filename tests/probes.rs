@@ -273,3 +273,57 @@ fn a_correct_tangent_that_overshoots_from_the_start_passes_the_newton_probe() {
     assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
     assert!(p.details[0].contains("started at 90 % of the increment"), "{p:#?}");
 }
+
+/// Isotropic elasticity (E = 200 GPa, ν = 0.3) that refuses, with a failure status, any end
+/// strain ε11 below −5e-4 (a law that does not take that region, as a cone's apex).
+struct RefusesCompression(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for RefusesCompression {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        if input.strain[0] + input.dstrain[0] < -5e-4 {
+            output.outcome.status = tancheck::core::routine::status::FAILED;
+        }
+        Ok(())
+    }
+}
+
+// The hidden-state probe's call B (the reversed increment doubled) is its own, off the path: a
+// routine refusing it with a status is no fault (a sweep's Drucker–Prager return failed the
+// probe with its "past the apex" refusal). B is tried smaller; only a crash stays a fault.
+#[test]
+fn a_status_refusal_of_the_hidden_state_probes_own_call_is_no_fault() {
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::{Path, PathIncrement};
+    let mut r = RefusesCompression(reference("elastic", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    // Tension: from ε11 = 0 the doubled reversal ends at −2e-3 (refused), the reversal at −1e-3
+    // (refused), half the increment at 5e-4 (taken).
+    let path = Path {
+        name: "tension".into(),
+        increments: vec![PathIncrement::strain([1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]); 3],
+    };
+    let rep = run_suite(
+        &mut caller,
+        "h",
+        &[ProbeSpec::named("hidden-state")],
+        &[200000.0, 0.3],
+        &start,
+        &path,
+        &Settings::default(),
+    )
+    .unwrap();
+    let p = &rep.results[0];
+    assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
+    assert!(!p.fault);
+    assert_eq!(rep.exit_code, 0);
+}

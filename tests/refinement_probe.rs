@@ -70,8 +70,9 @@ fn refinement(per_call: f64, at: usize) -> tancheck::core::probe::ProbeResult {
         increments: vec![step(1e-3), step(1e-3), step(1e-3), step(1e-3), step(-8e-4)],
     };
     let spec = ProbeSpec { at: Some(vec![at]), ..ProbeSpec::named("refinement") };
-    let rep = run_suite(&mut caller, "r", &[spec], &[200000.0, 250.0, 1e4], &start, &path, &Settings::default())
-        .unwrap();
+    let rep =
+        run_suite(&mut caller, "r", &[spec], &[200000.0, 250.0, 1e4], &start, &path, &Settings::default())
+            .unwrap();
     rep.results[0].clone()
 }
 
@@ -81,7 +82,8 @@ fn a_rate_dependent_update_whose_changes_rise_before_they_shrink_passes() {
     assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
     // The changes at 2, 4, 8 sub-increments rose (3.9e-2, 5.9e-2, 3.8e-2: the probe failed on
     // them); followed further they shrink at about first order.
-    let d = p.details.iter().find(|d| d.contains("rose before they shrank")).unwrap_or_else(|| panic!("{p:#?}"));
+    let d =
+        p.details.iter().find(|d| d.contains("rose before they shrank")).unwrap_or_else(|| panic!("{p:#?}"));
     assert!(d.contains("at increment 5") && d.contains("16 sub-increments"), "{d}");
     let order = p.value.unwrap();
     assert!((0.6..1.3).contains(&order), "order {order}");
