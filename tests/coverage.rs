@@ -104,3 +104,39 @@ fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
     let c = note(PointKind::Cohesive3d, "cohesive", &cohesive, &written);
     assert!(c.iter().any(|n| n.contains("slots 23, 13, 12 (first at increment 4)")), "{c:?}");
 }
+
+/// The reference J2 whose stress is NaN from increment 3 on.
+struct NanFromThird(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for NanFromThird {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        if input.increment >= 3 {
+            output.stress[0] = f64::NAN;
+        }
+        Ok(())
+    }
+}
+
+// Once the stress is NaN the increment's work cannot tell loading from unloading: a path that
+// unloads is not said to have never unloaded (a user-style sweep saw that warning beside the
+// NaN findings of a path out and back).
+#[test]
+fn a_nan_stress_is_no_evidence_that_the_path_never_unloaded() {
+    let mut r = NanFromThird(reference("j2", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 4, 4);
+    let rep =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    assert!(rep.increments.iter().any(|i| !i.non_finite.is_empty()), "the NaN is found");
+    assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
+}

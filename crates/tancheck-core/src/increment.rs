@@ -145,7 +145,10 @@ impl<'s> Walk<'s> {
         let settings: &Settings = settings;
         let n = driver.ncomp();
         let work: f64 = (0..n).map(|i| driver.start().stress[i] * driver.dstrain()[i]).sum();
-        let unloaded = work < 0.0;
+        // A start stress that is not a number cannot tell loading from unloading; the
+        // increments after it fail on their non-finite outputs, and "the path never unloaded"
+        // would claim what no one can know (a sweep's routine gave it on a path that unloads).
+        let unloaded = work < 0.0 || work.is_nan();
         let previous = best_is_previous.then_some(&best[..]);
         // The base call and every scheme; then the judgement: a few numbers for an increment
         // that passed (when only failures are kept in detail), else the full one with the
