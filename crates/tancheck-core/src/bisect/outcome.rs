@@ -73,6 +73,16 @@ pub struct Crossing {
 }
 
 impl Crossing {
+    /// Both sides in the same branch, the tangent agreeing below and differing above: no change
+    /// of branch inside the increment, the error grows with it and passes the tolerance here.
+    pub fn within_branch(&self) -> bool {
+        let (b, a) = (&self.class_below, &self.class_above);
+        b.reported_branch == a.reported_branch
+            && b.state_changed == a.state_changed
+            && b.judgement == Judgement::Agrees
+            && a.judgement == Judgement::Differs
+    }
+
     /// The best estimate of the fraction: the middle of the bracket.
     pub fn fraction(&self) -> f64 {
         0.5 * (self.below + self.above)
@@ -129,4 +139,33 @@ pub struct Located {
     pub step: Option<StepFinding>,
     /// Routine calls the search made (besides the check that found the increment).
     pub calls: u64,
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn class(branch: i32, changed: bool, judgement: Judgement) -> CallClass {
+        CallClass { reported_branch: Some(branch), state_changed: changed, judgement }
+    }
+
+    // A crossing in one branch (a sweep's tangent built from the trial normal: the error grows
+    // from the branch's start and passes the complex step's tolerance at 7e-4 of the increment)
+    // is told from a change of branch (the first plastic increment of an elastic tangent).
+    #[test]
+    fn a_crossing_within_one_branch_is_told_from_a_change_of_branch() {
+        let c = |below: CallClass, above: CallClass| Crossing {
+            below: 0.5,
+            above: 0.5 + 1e-6,
+            class_below: below,
+            class_above: above,
+            error_below: 9.99e-11,
+            error_above: 1.0e-10,
+        };
+        let plastic = |j| class(1, true, j);
+        assert!(c(plastic(Judgement::Agrees), plastic(Judgement::Differs)).within_branch());
+        assert!(!c(class(0, false, Judgement::Agrees), plastic(Judgement::Differs)).within_branch());
+        assert!(!c(plastic(Judgement::Agrees), plastic(Judgement::Fault)).within_branch());
+        assert!(!c(class(1, false, Judgement::Agrees), plastic(Judgement::Differs)).within_branch());
+    }
 }

@@ -1,7 +1,9 @@
 //! Shrinking a failing path: the shortest, plainest path found that still fails the same way.
 //!
 //! The invariant of the loop: the current path fails, with the verdict and the first
-//! increment's finding of the original. Every candidate is checked with [`crate::check::run`]
+//! increment's finding of the original, and by a margin: its error at least [`MARGIN`] times
+//! the tolerance, or as many times as the original's when that was fewer (a case that fails
+//! at twice the tolerance may pass under another machine's rounding). Every candidate is checked with [`crate::check::run`]
 //! and replaces the current path only when it keeps the invariant; a path that fails is cut
 //! after its first failing increment (the increments after it change nothing before it).
 //! Two phases, repeated while either changes something:
@@ -22,7 +24,7 @@ use crate::check;
 use crate::driver::PointState;
 use crate::error::CoreError;
 use crate::path::{Path, PathIncrement};
-use crate::report::{Report, Verdict};
+use crate::report::{CheckOutcome, Report, Verdict};
 use crate::routine::Caller;
 use crate::settings::Settings;
 
@@ -80,6 +82,8 @@ struct Shrinker<'a, 'r> {
     name: &'a str,
     verdict: Verdict,
     finding: String,
+    /// The margin every kept path fails by (see [`MARGIN`]).
+    min_margin: f64,
     limits: ShrinkLimits,
     t0: Instant,
     iterations: usize,
@@ -93,6 +97,33 @@ struct Shrinker<'a, 'r> {
 fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
     let f = super::first_failure(r)?;
     Some((r.verdict, f.finding().to_string(), f.index))
+}
+
+/// A shrunk path fails by at least this many tolerances, or by as many as the original did
+/// when that was fewer. Why 10: a case that fails by a tenfold margin keeps failing under
+/// another compiler's or mathematical library's rounding, where one at 2× the tolerance may
+/// pass (common practice for regression thresholds, not a derived figure).
+const MARGIN: f64 = 10.0;
+
+/// How far the first failing increment fails: the largest error / tolerance over its failed
+/// comparisons, tangent and ∂σ/∂T; infinite for a failure without one (a fault, a non-finite
+/// output), which has no margin to lose.
+fn margin(r: &Report) -> f64 {
+    let Some(inc) = super::first_failure(r) else { return 0.0 };
+    let m = inc
+        .checks
+        .iter()
+        .flat_map(|c| std::iter::once(&c.tangent).chain(c.dstress_dtemp.as_ref()))
+        .filter_map(|o| match o {
+            CheckOutcome::Compared(x) if !x.pass && x.tol > 0.0 => Some(x.error() / x.tol),
+            _ => None,
+        })
+        .fold(0.0, f64::max);
+    if m > 0.0 {
+        m
+    } else {
+        f64::INFINITY
+    }
 }
 
 impl Shrinker<'_, '_> {
@@ -124,7 +155,9 @@ impl Shrinker<'_, '_> {
             return false;
         };
         match signature(&r) {
-            Some((v, f, index)) if v == self.verdict && f == self.finding => {
+            Some((v, f, index))
+                if v == self.verdict && f == self.finding && margin(&r) >= self.min_margin =>
+            {
                 let mut incs = path.increments;
                 incs.truncate(index);
                 let report = if index == r.increments.len() {
@@ -303,6 +336,7 @@ pub fn shrink(
         name: &path.name,
         verdict,
         finding: finding.clone(),
+        min_margin: margin(&report).min(MARGIN),
         limits,
         t0,
         iterations: 0,
@@ -338,7 +372,32 @@ pub fn shrink(
 
 #[cfg(test)]
 mod tests {
-    use super::round_to;
+    use super::{margin, round_to};
+    use crate::bisect::testing::{Bar, PROPS};
+    use crate::routine::{Caller, Model};
+
+    // The margin is the first failing increment's largest error over its tolerance: the bar
+    // that returns E where E H/(E + H) is its derivative is off by E/H = 20 relative (Simo &
+    // Hughes 1998, Box 1.4), 2e7 central tolerances of 1e-6; a path that passes has none.
+    #[test]
+    fn the_margin_is_the_first_failures_error_over_its_tolerance() {
+        let path = |d: f64| crate::path::Path {
+            name: "p".into(),
+            increments: vec![crate::path::PathIncrement::strain([d, 0.0, 0.0, 0.0, 0.0, 0.0]); 4],
+        };
+        let settings = crate::settings::Settings {
+            schemes: vec![crate::schemes::Scheme::Central],
+            ..Default::default()
+        };
+        let mut bar = Bar::new(true);
+        let start = crate::driver::PointState::zero(bar.0.info(), 0.0);
+        let mut caller = Caller::new(&mut bar);
+        let failing = crate::check::run(&mut caller, &PROPS, start.clone(), &path(5e-4), &settings).unwrap();
+        let m = margin(&failing);
+        assert!((m / 2e7 - 1.0).abs() < 1e-3, "{m:e}");
+        let passing = crate::check::run(&mut caller, &PROPS, start, &path(1e-4), &settings).unwrap();
+        assert_eq!(margin(&passing), 0.0);
+    }
 
     #[test]
     fn rounding_keeps_the_leading_digits() {

@@ -152,6 +152,9 @@ fn located_section(l: &Located, o: &mut String, heading: &str) {
                 esc(c.class_above.word()),
                 sci(c.error_above)
             );
+            if c.within_branch() {
+                let _ = writeln!(o, "<p>{}.</p>", esc(crate::report::terminal::commands::WITHIN_BRANCH));
+            }
         }
         Inside::Throughout { smallest } => {
             let _ = writeln!(

@@ -107,6 +107,12 @@ pub fn suite(
     Ok(())
 }
 
+/// What a crossing inside one branch means (see `Crossing::within_branch`).
+pub(crate) const WITHIN_BRANCH: &str =
+    "the same branch on both sides: no change of branch inside the increment; the error grows with the \
+     fraction and passes the tolerance here, so the tangent is off in the whole branch, by less than the \
+     tolerance over the smallest fractions";
+
 fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<()> {
     writeln!(
         out,
@@ -139,6 +145,9 @@ fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<(
                 c.class_above.word(),
                 c.error_above
             )?;
+            if c.within_branch() {
+                writeln!(out, "{indent}  {WITHIN_BRANCH}")?;
+            }
         }
         Inside::Throughout { smallest } => writeln!(
             out,
