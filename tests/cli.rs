@@ -132,6 +132,27 @@ fn bad_input_exits_2_with_file_line_and_column() {
     assert_eq!(o.status.code(), Some(2), "usage error");
 }
 
+// A plane-stress user writes the three components the routine takes; the path's dstrain has
+// the six tensor components for every kind, and the error says so (it said "invalid length 3,
+// expected an array of length 6", naming neither the field nor the order).
+#[test]
+fn a_short_dstrain_says_the_path_takes_six_components() {
+    let d = scratch("dstrain3");
+    let m = manifest(
+        &d,
+        "m.json",
+        "{ \"routine\": { \"model\": \"elastic\", \"kind\": \"plane-stress\", \"properties\": [200000, 0.3] },\n  \"path\": { \"increments\": [ {\"dstrain\": [1e-3, 0, 0]} ] } }\n",
+    );
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("m.json:2:"), "{t}");
+    assert!(
+        t.contains("dstrain has 3 entries") && t.contains("6 tensor components 11 22 33 23 13 12"),
+        "{t}"
+    );
+}
+
 #[test]
 fn a_misspelt_symbol_lists_the_near_names() {
     let d = scratch("sym");

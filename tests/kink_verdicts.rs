@@ -184,6 +184,10 @@ fn a_twin_unsafe_in_the_temperature_only_is_blamed_not_the_routine() {
             // The set-aside checks are counted as cleared, not failed.
             let cs = v["summary"].as_array().unwrap().iter().find(|s| s["scheme"] == "complex-step").unwrap();
             assert_eq!((cs["failed"].as_u64(), cs["cleared"].as_u64()), (Some(0), Some(2)), "{t}");
+            // So are the increments in their branch's summary (its worst error counts them).
+            let cleared: u64 =
+                v["branches"].as_array().unwrap().iter().map(|b| b["cleared"].as_u64().unwrap()).sum();
+            assert_eq!(cleared, 2, "{t}");
         }
     }
 }

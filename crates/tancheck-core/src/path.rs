@@ -26,6 +26,7 @@ pub const MAX_STRESS: f64 = 1.0e15;
 #[serde(deny_unknown_fields)]
 pub struct PathIncrement {
     /// Canonical strain increment.
+    #[serde(deserialize_with = "six_components")]
     pub dstrain: [f64; 6],
     #[serde(default)]
     pub dtemp: f64,
@@ -43,6 +44,20 @@ impl PathIncrement {
     pub fn strain(dstrain: [f64; 6]) -> PathIncrement {
         PathIncrement { dstrain, dtemp: 0.0, dtime: 1.0, hold_stress: None }
     }
+}
+
+/// The six tensor components of a path's strain increment, with an error that says so for
+/// another count (a plane-stress user writes the three the routine takes).
+fn six_components<'de, D: serde::Deserializer<'de>>(d: D) -> Result<[f64; 6], D::Error> {
+    let v: Vec<f64> = Vec::deserialize(d)?;
+    v.as_slice().try_into().map_err(|_| {
+        serde::de::Error::custom(format!(
+            "dstrain has {} entr{}: a path's dstrain has the 6 tensor components 11 22 33 23 13 12 for every \
+             kind of point (each kind takes the ones it uses, e.g. 11 22 12 for plane stress)",
+            v.len(),
+            if v.len() == 1 { "y" } else { "ies" }
+        ))
+    })
 }
 
 fn one() -> f64 {

@@ -294,7 +294,8 @@ impl Probe for NewtonRate {
                 format!(
                     "Newton converges with order {p:.2} at increment {} (below {min_order}): the tangent is not the derivative of the stress update{}",
                     s.increment,
-                    if s.state_changed { " (a continuum tangent after yield?)" } else { "" }
+                    // The rate alone does not tell which approximation: the check's diagnosis does.
+                    if s.state_changed { " (the check's diagnosis names the likely cause)" } else { "" }
                 ),
             );
             r.increment = Some(s.increment);

@@ -251,6 +251,11 @@ pub struct BranchSummary {
     pub state_changed: bool,
     pub increments: usize,
     pub failed: usize,
+    /// Increments that passed although a check failed: the closer look cleared them (a kink
+    /// with the returned tangent on one side, a poor default step, a twin set aside). Their
+    /// errors count in `worst_error`.
+    #[serde(default)]
+    pub cleared: usize,
     /// The largest error of any compared tangent in this branch.
     pub worst_error: f64,
 }

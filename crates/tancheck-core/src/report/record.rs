@@ -6,7 +6,7 @@ use std::borrow::Cow;
 
 use serde::{Deserialize, Serialize};
 
-use super::{BranchSummary, CheckOutcome, IncrementResult, SchemeSummary};
+use super::{BranchSummary, CheckOutcome, IncrementResult, SchemeCheck, SchemeSummary};
 use crate::compare::PassedScheme;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -309,6 +309,9 @@ impl Collector {
             let b = self.branch(inc.reported_branch, inc.state_changed);
             b.increments += 1;
             b.failed += (!record.pass) as usize;
+            b.cleared += (record.pass
+                && inc.diagnosis.as_ref().is_some_and(|d| d.pass)
+                && !inc.checks.iter().all(SchemeCheck::passed)) as usize;
             b.worst_error = b.worst_error.max(worst);
         }
         if inc.fault.is_some() && self.stopped_at.is_none() {
@@ -397,6 +400,7 @@ impl Collector {
                     state_changed,
                     increments: 0,
                     failed: 0,
+                    cleared: 0,
                     worst_error: 0.0,
                 });
                 self.branches.last_mut().expect("just pushed")
@@ -429,6 +433,7 @@ impl Collector {
                 Some(b) => {
                     b.increments += ob.increments;
                     b.failed += ob.failed;
+                    b.cleared += ob.cleared;
                     b.worst_error = b.worst_error.max(ob.worst_error);
                 }
                 None => self.branches.push(ob),

@@ -71,15 +71,16 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
         );
     }
     let _ = writeln!(o, "</table>");
-    let _ = writeln!(o, "<h2>Branches and coverage</h2>\n<table>\n<tr><th>branch</th><th>increments</th><th>failed</th><th>worst error</th></tr>");
+    let _ = writeln!(o, "<h2>Branches and coverage</h2>\n<table>\n<tr><th>branch</th><th>increments</th><th>failed</th><th>cleared</th><th>worst error</th></tr>");
     for b in &report.branches {
         let _ = writeln!(
             o,
-            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
+            "<tr{}><td>{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td></tr>",
             if b.failed > 0 { " class=\"bad\"" } else { "" },
             esc(&b.branch),
             b.increments,
             b.failed,
+            b.cleared,
             sci(b.worst_error)
         );
     }

@@ -268,10 +268,15 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         } else {
             writeln!(
                 out,
-                "   branch {}: passed at {} increments (worst {})",
+                "   branch {}: passed at {} increments (worst {}{})",
                 b.branch,
                 b.increments,
-                sci(b.worst_error)
+                sci(b.worst_error),
+                match b.cleared {
+                    0 => String::new(),
+                    1 => ", counting 1 increment the closer look cleared".to_string(),
+                    k => format!(", counting {k} increments the closer look cleared"),
+                }
             )?;
         }
     }
