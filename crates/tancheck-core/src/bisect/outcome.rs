@@ -73,6 +73,12 @@ pub struct Crossing {
 }
 
 impl Crossing {
+    /// What a crossing inside one branch means, in words (see [`Crossing::within_branch`]).
+    pub const WITHIN_BRANCH: &'static str =
+        "the same branch on both sides: no change of branch inside the increment; the error grows with the \
+         fraction and passes the tolerance here, so the tangent is off in the whole branch, by less than the \
+         tolerance over the smallest fractions";
+
     /// Both sides in the same branch, the tangent agreeing below and differing above: no change
     /// of branch inside the increment, the error grows with it and passes the tolerance here.
     pub fn within_branch(&self) -> bool {

@@ -153,7 +153,7 @@ fn located_section(l: &Located, o: &mut String, heading: &str) {
                 sci(c.error_above)
             );
             if c.within_branch() {
-                let _ = writeln!(o, "<p>{}.</p>", esc(crate::report::terminal::commands::WITHIN_BRANCH));
+                let _ = writeln!(o, "<p>{}.</p>", esc(tancheck_core::bisect::Crossing::WITHIN_BRANCH));
             }
         }
         Inside::Throughout { smallest } => {

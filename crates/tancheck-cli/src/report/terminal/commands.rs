@@ -107,12 +107,6 @@ pub fn suite(
     Ok(())
 }
 
-/// What a crossing inside one branch means (see `Crossing::within_branch`).
-pub(crate) const WITHIN_BRANCH: &str =
-    "the same branch on both sides: no change of branch inside the increment; the error grows with the \
-     fraction and passes the tolerance here, so the tangent is off in the whole branch, by less than the \
-     tolerance over the smallest fractions";
-
 fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<()> {
     writeln!(
         out,
@@ -146,7 +140,7 @@ fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<(
                 c.error_above
             )?;
             if c.within_branch() {
-                writeln!(out, "{indent}  {WITHIN_BRANCH}")?;
+                writeln!(out, "{indent}  {}", tancheck_core::bisect::Crossing::WITHIN_BRANCH)?;
             }
         }
         Inside::Throughout { smallest } => writeln!(
