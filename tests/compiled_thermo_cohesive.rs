@@ -209,7 +209,11 @@ fn check_thermo(lib_path: &Path, prefix: &str) {
     let lib = Library::open(lib_path).unwrap();
     let mut rng = StdRng::seed_from_u64(0x7c0e_0001);
     let mut total = 0;
-    for (suffix, flaw) in [("thermo", ThermoFlaw::None), ("thermo_dtemp_sign", ThermoFlaw::DtempSign)] {
+    for (suffix, flaw) in [
+        ("thermo", ThermoFlaw::None),
+        ("thermo_dtemp_sign", ThermoFlaw::DtempSign),
+        ("thermo_start_temperature", ThermoFlaw::StartTemperature),
+    ] {
         let symbol = format!("{prefix}_{suffix}");
         for kind in Thermo::KINDS {
             for k in 0..THERMO_STATES {
@@ -224,7 +228,7 @@ fn check_thermo(lib_path: &Path, prefix: &str) {
         }
     }
     eprintln!("{prefix} thermo: {total} states agree with the Rust models");
-    assert_eq!(total, 2 * 5 * THERMO_STATES);
+    assert_eq!(total, 3 * 5 * THERMO_STATES);
 }
 
 #[test]

@@ -87,6 +87,9 @@ impl AnyModel {
             Thermo::PARTIAL_DTEMP_NAME => {
                 Ok(AnyModel::Thermo(Thermo::with_flaw(kind, crate::thermo::ThermoFlaw::PartialDtemp)?))
             }
+            Thermo::START_TEMPERATURE_NAME => {
+                Ok(AnyModel::Thermo(Thermo::with_flaw(kind, crate::thermo::ThermoFlaw::StartTemperature)?))
+            }
             Cohesive::NAME => Ok(AnyModel::Cohesive(Cohesive::new(kind)?)),
             Cohesive::SECANT_NAME => Ok(AnyModel::Cohesive(Cohesive::with_flaw(kind, CohesiveFlaw::Secant)?)),
             Cohesive::NO_COUPLING_NAME => {

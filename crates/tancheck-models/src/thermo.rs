@@ -81,6 +81,10 @@ pub enum ThermoFlaw {
     /// ∂σ/∂ΔT without its thermal-expansion term −C:1 ε_th′ (the stiffness term kept).
     /// Expected finding: `dtemp-partial`.
     PartialDtemp,
+    /// The tangent C(T) at the temperature of the start of the increment, where the stress
+    /// uses the end one. Expected finding: `start-temperature` wherever the temperature changes
+    /// (and E or ν with it); passes at a constant temperature.
+    StartTemperature,
 }
 
 /// Linear thermo-elasticity with temperature-dependent E, ν and thermal strain.
@@ -97,6 +101,8 @@ impl Thermo {
     pub const DTEMP_SIGN_NAME: &'static str = "thermo-dtemp-sign";
     /// Name of the model whose ∂σ/∂T misses its thermal-expansion term.
     pub const PARTIAL_DTEMP_NAME: &'static str = "thermo-partial-dtemp";
+    /// Name of the model whose tangent is taken at the start temperature.
+    pub const START_TEMPERATURE_NAME: &'static str = "thermo-start-temperature";
     /// Meaning of the fixed properties, in order (a user table follows them).
     pub const PROP_NAMES: [&'static str; 6] = ["E20", "nu0", "nu1", "modulus_law", "expansion_law", "alpha"];
     /// Properties before the user table.
@@ -120,6 +126,7 @@ impl Thermo {
             ThermoFlaw::None => Self::NAME,
             ThermoFlaw::DtempSign => Self::DTEMP_SIGN_NAME,
             ThermoFlaw::PartialDtemp => Self::PARTIAL_DTEMP_NAME,
+            ThermoFlaw::StartTemperature => Self::START_TEMPERATURE_NAME,
         };
         if !Self::KINDS.contains(&kind) {
             return Err(ModelError::UnsupportedKind {
@@ -372,7 +379,7 @@ impl Thermo {
         }
         // σ = E Ĉ ε_e; ∂σ/∂T = (E' Ĉ + E Ĉ' ν') ε_e − E Ĉ 1 ε_th'.
         let (sign, expansion) = match self.flaw {
-            ThermoFlaw::None => (1.0, 1.0),
+            ThermoFlaw::None | ThermoFlaw::StartTemperature => (1.0, 1.0),
             ThermoFlaw::DtempSign => (-1.0, 1.0),
             ThermoFlaw::PartialDtemp => (1.0, 0.0),
         };
@@ -392,6 +399,19 @@ impl Thermo {
             stored += s * eps_e[i];
             for (j, cij) in c[i].iter().enumerate().take(n) {
                 output.tangent[i + j * n] = *cij * e;
+            }
+        }
+        if self.flaw == ThermoFlaw::StartTemperature {
+            // C at the start temperature (a temperature the update already accepted at the end
+            // of the increment before).
+            let t0 = input.temp[0];
+            let (e0, _) = laws.modulus(t0);
+            let (nu0, _) = laws.poisson(t0);
+            let (c0, _) = unit_matrix(kind, nu0);
+            for (i, row) in c0.iter().enumerate().take(n) {
+                for (j, cij) in row.iter().enumerate().take(n) {
+                    output.tangent[i + j * n] = *cij * e0;
+                }
             }
         }
         output.energy[0] = stored * 0.5;

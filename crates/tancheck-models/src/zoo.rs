@@ -19,13 +19,14 @@ use tancheck_core::{ModelRoutine, PointKind};
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
 /// Every finding an entry may expect. `none`: the routine is correct and must pass.
-pub const FINDINGS: [&str; 23] = [
+pub const FINDINGS: [&str; 24] = [
     "shear-factor",
     "shear-permutation",
     "transposed",
     "uniform-scale",
     "elastic-tangent",
     "initial-stiffness",
+    "start-temperature",
     "continuum-tangent",
     "stale-tangent",
     "rank-one-term",
@@ -84,7 +85,7 @@ pub struct ZooEntry {
 }
 
 /// Every entry of the zoo, family by family (the order of [`zoo`]).
-const ROWS: [ZooEntry; 28] = [
+const ROWS: [ZooEntry; 29] = [
     // The J2 family: the reference, its flawed tangents and its broken twins.
     ZooEntry {
         name: J2::NAME,
@@ -272,6 +273,14 @@ const ROWS: [ZooEntry; 28] = [
         kinds: &Thermo::KINDS,
         c_symbol: Some("c_thermo_partial_dtemp"),
         fortran_symbol: Some("f_thermo_partial_dtemp"),
+    },
+    ZooEntry {
+        name: Thermo::START_TEMPERATURE_NAME,
+        description: "thermo-elasticity whose tangent takes its moduli at the temperature of the start of the increment",
+        expected: "start-temperature",
+        kinds: &Thermo::KINDS,
+        c_symbol: Some("c_thermo_start_temperature"),
+        fortran_symbol: Some("f_thermo_start_temperature"),
     },
     // The cohesive law.
     ZooEntry {

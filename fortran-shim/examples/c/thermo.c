@@ -8,6 +8,8 @@
  *   c_thermo_dtemp_sign  the same update returning -d stress / d temperature: a deliberately
  *                        wrong temperature derivative, for tancheck to find (the tangent is
  *                        right; d stress / dT is off by a relative 2 wherever it is not zero)
+ *   c_thermo_start_temperature  the same update with its tangent C(T) taken at the temperature of the
+ *                        start of the increment (deliberately flawed)
  *
  * Layout (DEVELOPERS.md, "Reference models"): ncomp 6 (11, 22, 33, 23, 13, 12), 4 (plane strain
  * or axisymmetric: 11, 22, 33, 12), 3 (plane stress: 11, 22, 12) or 1 (uniaxial), engineering
@@ -325,4 +327,26 @@ TC_ROUTINE(c_thermo_partial_dtemp)
     (void)stress0;
     th_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
               energy, report, 1.0, 0.0);
+}
+
+/* A deliberately flawed routine: the tangent C(T) at the temperature of the start of the
+ * increment, where the stress uses the end one (the update made a second time with the
+ * temperature increment left out, for its tangent alone). */
+TC_ROUTINE(c_thermo_start_temperature)
+{
+    (void)stress0;
+    const int n = call->ncomp;
+    tc_temperature at_start = {temperature->start, 0.0};
+    tc_real s0[6], ds0[6], tan0[36];
+    tc_energy en0 = *energy;
+    tc_report r0 = *report;
+    th_update(call, properties, strain, dstrain, &at_start, state0, s0, state, tan0, ds0, &en0, &r0, 1.0,
+              1.0);
+    th_update(call, properties, strain, dstrain, temperature, state0, stress, state, tangent, dstress_dtemp,
+              energy, report, 1.0, 1.0);
+    if (report->status == TC_STATUS_OK && r0.status == TC_STATUS_OK && n >= 1 && n <= 6) {
+        for (int k = 0; k < n * n; ++k) {
+            tangent[k] = tan0[k];
+        }
+    }
 }

@@ -7,6 +7,8 @@
 !   f_thermo_dtemp_sign  the same update returning -d stress / d temperature: a deliberately
 !                        wrong temperature derivative, for tancheck to find (the tangent is
 !                        right; d stress / dT is off by a relative 2 wherever it is not zero)
+!   f_thermo_start_temperature  the same update with its tangent C(T) taken at the temperature
+!                        of the start of the increment (deliberately flawed)
 !
 ! Layout (DEVELOPERS.md, "Reference models"): ncomp 6 (11, 22, 33, 23, 13, 12), 4 (plane strain
 ! or axisymmetric: 11, 22, 33, 12), 3 (plane stress: 11, 22, 12) or 1 (uniaxial), engineering
@@ -25,8 +27,8 @@
 ! uses its first range below 750 C, 1.1e-2 on [750, 860), the third range from 860 C. At a
 ! point or boundary the segment on its right is used: d stress / dT is the right derivative.
 !
-! The three routines share one entry, thermo_variant.inc (they differ only in the sign and the
-! expansion factor it passes on), which calls the one update, thermo_update.inc, included as
+! The four routines share one entry, thermo_variant.inc (they differ only in the sign and the
+! expansion factor it passes on, and whether the tangent is taken at the start temperature), which calls the one update, thermo_update.inc, included as
 ! internal procedures of each (as j2.F90 does), so that the real and the complex build export no
 ! clashing symbols.
 !
@@ -41,16 +43,26 @@
 #define TC_VARIANT_NAME "f_thermo"
 #define TC_SIGN 1.0_c_double
 #define TC_EXPANSION 1.0_c_double
+#define TC_AT_START 0
 #include "thermo_variant.inc"
 
 #define TC_VARIANT f_thermo_dtemp_sign
 #define TC_VARIANT_NAME "f_thermo_dtemp_sign"
 #define TC_SIGN -1.0_c_double
 #define TC_EXPANSION 1.0_c_double
+#define TC_AT_START 0
 #include "thermo_variant.inc"
 
 #define TC_VARIANT f_thermo_partial_dtemp
 #define TC_VARIANT_NAME "f_thermo_partial_dtemp"
 #define TC_SIGN 1.0_c_double
 #define TC_EXPANSION 0.0_c_double
+#define TC_AT_START 0
+#include "thermo_variant.inc"
+
+#define TC_VARIANT f_thermo_start_temperature
+#define TC_VARIANT_NAME "f_thermo_start_temperature"
+#define TC_SIGN 1.0_c_double
+#define TC_EXPANSION 1.0_c_double
+#define TC_AT_START 1
 #include "thermo_variant.inc"

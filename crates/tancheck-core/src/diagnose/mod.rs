@@ -296,11 +296,16 @@ const INITIAL_STEP: f64 = 1e-3;
 /// The stiffness at the start of the path: the best numerical tangent (`best`, the scheme the
 /// other trials use) at the end of a small step from the path's start state along the
 /// increment's own direction, on a driver of its own (the increment's is left as it was). None
-/// when the driver does not know where its path starts, the increment has no strain, or a
-/// call of the step fails (the trial is then left out).
+/// when the driver does not know where its path starts, the state at the increment's end is
+/// the path's start state, the increment has no strain, or a call of the step fails (the trial
+/// is then left out).
 fn initial_stiffness(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangent<'_>) -> Option<Vec<f64>> {
     let origin = driver.origin()?;
-    if driver.dstrain().iter().all(|x| *x == 0.0) {
+    // Only for a state that has changed since the path's start (the increment's end state,
+    // bit for bit): a point whose state variables are those it started with has no other
+    // stiffness to be given (a tangent at the start temperature is another cause).
+    let same_state = driver.base.state.iter().zip(&origin.state).all(|(a, b)| a.to_bits() == b.to_bits());
+    if same_state || driver.dstrain().iter().all(|x| *x == 0.0) {
         return None;
     }
     let mut d = Driver::new(caller.info(), driver.props(), origin.clone()).ok()?;
@@ -354,6 +359,46 @@ fn cause_trials(
     let strain_end: Vec<f64> =
         driver.start().strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect();
     let stress_end = driver.base.stress.clone();
+    // The derivative with the temperature held at the start of the increment (its temperature
+    // increment left out), when it has one; the increment is set back after.
+    let start_temperature = if driver.dtemp() != 0.0 {
+        let (full, dtemp) = (driver.dstrain().to_vec(), driver.dtemp());
+        driver.set_increment_keep_count(&full, 0.0);
+        let mut t = vec![0.0; n * n];
+        let ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut t).is_ok();
+        driver.set_increment_keep_count(&full, dtemp);
+        (ok && t.iter().all(|x| x.is_finite())).then_some(t)
+    } else {
+        None
+    };
+    // The discrepancy at fractions of the temperature increment alone, the strain increment
+    // kept: one that comes from the temperature increment (terms of the tangent taken at the
+    // start temperature) shrinks with it; a continuum tangent's, driven by the strain, does not.
+    let temp_refinement = if driver.dtemp() != 0.0 {
+        let (full, dtemp) = (driver.dstrain().to_vec(), driver.dtemp());
+        let mut errors = Vec::new();
+        let mut num_t = vec![0.0; n * n];
+        for s in REFINE {
+            driver.set_increment_keep_count(&full, dtemp * s);
+            if driver.base_call(caller).is_err() || driver.base.outcome.branch != ctx.reported_branch {
+                break;
+            }
+            let ret = driver.base.tangent.clone();
+            if best(driver, caller, &mut num_t).is_err() {
+                break;
+            }
+            errors.push(compare(conv, &ret, &num_t, 1.0, ef, 0).error());
+        }
+        driver.set_increment_keep_count(&full, dtemp);
+        (errors.len() == REFINE.len()).then(|| Refinement {
+            fractions: REFINE.to_vec(),
+            errors,
+            same_branch: true,
+            past: 0.0,
+        })
+    } else {
+        None
+    };
     // The elastic tangent: the derivative along an unloading step from the start state.
     let mut elastic = vec![0.0; n * n];
     driver.rescale(-0.5);
@@ -398,6 +443,8 @@ fn cause_trials(
         numerical: &num,
         elastic: elastic_ok.then_some(&elastic[..]),
         initial: initial.as_deref(),
+        start_temperature: start_temperature.as_deref(),
+        temp_refinement: temp_refinement.as_ref(),
         previous: ctx.previous,
         refinement: Some(&rf),
         strain_end: &strain_end,

@@ -20,6 +20,10 @@ pub enum Cause {
     UniformScale,
     /// The elastic tangent returned in an inelastic branch.
     ElasticTangent,
+    /// The derivative with the temperature held at the start of the increment: moduli, yield
+    /// stress or other temperature-dependent terms of the tangent taken at the start
+    /// temperature where the stress update uses the end one.
+    StartTemperature,
     /// The stiffness at the start of the path (the material before any damage, softening or
     /// hardening) returned for a state that has changed since: the undamaged stiffness of a
     /// damaged point, in damage growth or in unloading.
@@ -63,11 +67,12 @@ pub enum Cause {
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 20] = [
+    pub const BY_SPECIFICITY: [Cause; 21] = [
         Cause::ShearFactor,
         Cause::ShearPermutation,
         Cause::Transposed,
         Cause::Symmetrized,
+        Cause::StartTemperature,
         // Before the uniform scale: the undamaged stiffness of a point unloading with damage d
         // is the true tangent times 1/(1 − d), and what the routine returned is the better name.
         Cause::InitialStiffness,
@@ -96,6 +101,7 @@ impl Cause {
             Cause::UniformScale => "uniform-scale",
             Cause::ElasticTangent => "elastic-tangent",
             Cause::InitialStiffness => "initial-stiffness",
+            Cause::StartTemperature => "start-temperature",
             Cause::StaleTangent => "stale-tangent",
             Cause::Secant => "secant",
             Cause::CouplingMissing => "coupling-missing",
@@ -157,6 +163,12 @@ pub struct Evidence<'a> {
     /// The derivative at the start of the path (a small step from its start state along the
     /// increment's direction), if measured.
     pub initial: Option<&'a [f64]>,
+    /// The derivative of the increment with its temperature increment left out (the
+    /// temperature held at the start), if the increment changes the temperature.
+    pub start_temperature: Option<&'a [f64]>,
+    /// The discrepancy at fractions of the temperature increment alone (the strain increment
+    /// kept), when the increment changes the temperature.
+    pub temp_refinement: Option<&'a Refinement>,
     /// The derivative at the end of the previous increment (the start of this one).
     pub previous: Option<&'a [f64]>,
     pub refinement: Option<&'a Refinement>,

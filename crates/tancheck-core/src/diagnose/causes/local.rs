@@ -1,7 +1,7 @@
 //! Trials of an error confined to part of the matrix or of the increment: one entry, one row
 //! or column, and a discrepancy that shrinks with the increment (a continuum tangent).
 
-use super::kind::{Cause, Evidence, Found};
+use super::kind::{Cause, Evidence, Found, Refinement};
 
 /// Single entry, one row and one column, continuum tangent (in this order).
 pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
@@ -72,6 +72,26 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
         );
     }
 
+    // Start temperature: the discrepancy falls in proportion to the temperature increment
+    // alone (the strain increment kept): terms of the tangent taken at the start temperature
+    // where the update uses the end one, mixed with others taken at the end (no exact trial
+    // then). Named before the continuum tangent, whose refinement shrinks both increments.
+    if let Some(rf) = ev.temp_refinement {
+        let known = found.hs.iter().any(|h| h.cause == Cause::StartTemperature && h.explains);
+        if let (false, Some((linear, left))) = (known, proportional(rf)) {
+            let fr: Vec<String> =
+                rf.fractions.iter().zip(&rf.errors).map(|(f, x)| format!("{f}: {x:.2e}")).collect();
+            found.push(
+                Cause::StartTemperature,
+                format!(
+                    "the discrepancy shrinks with the temperature increment alone, the strain increment kept ({}): terms of the tangent taken at the start temperature",
+                    fr.join(", ")
+                ),
+                if linear { left.min(found.explain_level) } else { left.max(2.0 * found.explain_level) },
+            );
+        }
+    }
+
     // Continuum tangent: the discrepancy falls in proportion to the increment.
     if let Some(rf) = ev.refinement {
         // Why 3: two ratios of successive errors are the fewest that show a trend, not a point.
@@ -100,4 +120,19 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
             );
         }
     }
+}
+
+/// Whether the errors of a refinement fall in proportion to the fraction (each ratio of
+/// successive errors over the ratio of fractions within 25 % of 1), and what is left of the
+/// error extrapolated linearly to a vanishing fraction. None for fewer than three fractions.
+fn proportional(rf: &Refinement) -> Option<(bool, f64)> {
+    let e = &rf.errors;
+    if e.len() < 3 {
+        return None;
+    }
+    let ratio = |a: usize, b: usize| e[b] / e[a] / (rf.fractions[b] / rf.fractions[a]);
+    let linear = (0..e.len() - 1).all(|k| (ratio(k, k + 1) - 1.0).abs() < 0.25);
+    let k = e.len() - 1;
+    let left = (e[k] - (e[k - 1] - e[k]) / (rf.fractions[k - 1] - rf.fractions[k]) * rf.fractions[k]).abs();
+    Some((linear, left))
 }

@@ -5,7 +5,8 @@
 use super::kind::{Cause, Evidence, Found};
 use crate::compare::compare;
 
-/// Elastic, initial, stale, secant, coupling missing, symmetrized (in this order).
+/// Elastic, start temperature, initial, stale, secant, coupling missing, symmetrized (in this
+/// order).
 pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
     let n = ev.conv.ncomp();
     let r = ev.returned;
@@ -18,6 +19,20 @@ pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
             "equals the elastic tangent although the state variables changed".into(),
             ev.distance(e),
         );
+    }
+
+    // The temperature held at the start of the increment (moduli or yield stress at T_n where
+    // the update uses T_n+1), where that is not the derivative itself. It shrinks with the
+    // increment as a continuum tangent does, and is named before it.
+    if let Some(t) = ev.start_temperature {
+        let level = found.explain_level;
+        if compare(ev.conv, t, ev.numerical, ev.tol, ev.entry_floor, 0).error() > level {
+            found.push(
+                Cause::StartTemperature,
+                "equals the derivative with the temperature held at the start of the increment (temperature-dependent moduli or yield stress taken at the start temperature)".into(),
+                ev.distance(t),
+            );
+        }
     }
 
     // The stiffness at the start of the path, where it is neither the derivative (nothing

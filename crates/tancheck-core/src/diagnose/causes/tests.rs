@@ -16,6 +16,8 @@ fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evi
         numerical: n,
         elastic: None,
         initial: None,
+        start_temperature: None,
+        temp_refinement: None,
         previous: None,
         refinement: None,
         strain_end: z,
@@ -352,4 +354,48 @@ fn a_term_built_from_another_direction_has_no_factor() {
     let h = rank(&evd);
     assert_eq!(h[0].cause, Cause::TermScaled, "{h:?}");
     assert!(h[0].detail.contains("about 1.2"), "{}", h[0].detail);
+}
+
+// The tangent taken at the start temperature: of an elastic point, exactly the derivative of
+// the increment without its temperature increment (named before the uniform scale E(T0)/E(T)
+// it also is); of a plastic point that mixes start and end temperatures, a discrepancy that
+// shrinks with the temperature increment alone (named before the continuum tangent, whose
+// refinement shrinks the temperature with the strain); a continuum tangent's discrepancy,
+// driven by the strain, does not shrink with the temperature alone.
+#[test]
+fn a_tangent_at_the_start_temperature_is_named() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let c = elastic_like();
+    let at_end: Vec<f64> = c.iter().map(|x| x * 0.97).collect();
+    let mut evd = ev(&conv, &c, &at_end, &z);
+    evd.start_temperature = Some(&c);
+    evd.state_changed = false;
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::StartTemperature, "{h:?}");
+    assert!(h.iter().any(|x| x.cause == Cause::UniformScale && x.explains), "{h:?}");
+
+    let good = j2_like();
+    let mut off = good.clone();
+    for (k, x) in off.iter_mut().enumerate() {
+        *x *= 1.0 + 1e-2 * ((k % 7) as f64 - 3.0) / 3.0;
+    }
+    let refined = |errors: Vec<f64>| Refinement {
+        fractions: vec![0.125, 0.0625, 0.03125],
+        errors,
+        same_branch: true,
+        past: 0.0,
+    };
+    let shrinking = refined(vec![1.25e-3, 6.25e-4, 3.125e-4]);
+    let constant = refined(vec![1e-2, 1e-2, 1e-2]);
+    let mut evd = ev(&conv, &off, &good, &z);
+    evd.refinement = Some(&shrinking);
+    evd.temp_refinement = Some(&shrinking);
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::StartTemperature, "{h:?}");
+    assert!(h.iter().any(|x| x.cause == Cause::ContinuumTangent && x.explains), "{h:?}");
+    evd.temp_refinement = Some(&constant);
+    let h = rank(&evd);
+    assert_eq!(h[0].cause, Cause::ContinuumTangent, "{h:?}");
+    assert!(h.iter().all(|x| x.cause != Cause::StartTemperature || !x.explains), "{h:?}");
 }
