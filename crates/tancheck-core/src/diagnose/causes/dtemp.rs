@@ -100,6 +100,21 @@ pub fn rank_dtemp(
     );
     if !cohesive {
         along(&hydro, "along C:1 (the thermal expansion, −C:1 ε_th′)", flat.map(|(r, t)| (r.1, t.1)));
+        // Along the deviatoric stress: the flow direction of a pressure-insensitive return, along
+        // which a yield stress or hardening that depends on T moves the stress (∂σ_y/∂T n).
+        // Offered where it is another direction than the stress (a stress with a mean part).
+        let mean = stress.iter().zip(&hydro).map(|(x, h)| x * h).sum::<f64>() / 3.0;
+        let dev: Vec<f64> = stress.iter().zip(&hydro).map(|(x, h)| x - mean * h).collect();
+        let dot = |x: &[f64], y: &[f64]| x.iter().zip(y).map(|(a, b)| a * b).sum::<f64>();
+        let (dd, ss) = (dot(&dev, &dev), dot(stress, stress));
+        // Why 1e-6: below it the deviatoric stress is the stress to the precision of the fits.
+        if dd > 0.0 && ss > 0.0 && 1.0 - dot(&dev, stress).powi(2) / (dd * ss) > 1e-6 {
+            along(
+                &dev,
+                "along the deviatoric stress (the temperature dependence of the yield stress or hardening, ∂σ_y/∂T along the flow direction)",
+                None,
+            );
+        }
     }
     let spec = |c: Cause| if c == Cause::PartialDtemp { 1 } else { 0 };
     hs.sort_by(|a, b| {

@@ -399,3 +399,19 @@ fn a_tangent_at_the_start_temperature_is_named() {
     assert_eq!(h[0].cause, Cause::ContinuumTangent, "{h:?}");
     assert!(h.iter().all(|x| x.cause != Cause::StartTemperature || !x.explains), "{h:?}");
 }
+
+// In a plastic branch of a pressure-insensitive return, a yield stress that depends on the
+// temperature adds ∂σ_y/∂T along the flow direction, the deviatoric stress (radial return,
+// e.g. Simo & Hughes 1998, §3.3; from memory): left out, it is named along the deviatoric
+// stress, not as a bare `dtemp` (a sweep's thermo-plastic routine).
+#[test]
+fn a_dtemp_term_along_the_deviatoric_stress_is_named() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let stress = [120.0, 40.0, -10.0, 5.0, 0.0, 30.0];
+    let mean = (stress[0] + stress[1] + stress[2]) / 3.0;
+    let dev: Vec<f64> = (0..6).map(|i| stress[i] - if i < 3 { mean } else { 0.0 }).collect();
+    let without: Vec<f64> = (0..6).map(|i| -2e-3 * stress[i] + if i < 3 { -4.5 } else { 0.0 }).collect();
+    let truth: Vec<f64> = without.iter().zip(&dev).map(|(w, s)| w - 3e-3 * s).collect();
+    let hs = rank_dtemp(&conv, &without, &truth, &stress, 1e-6, 1e-2);
+    assert!(hs[0].explains && hs[0].detail.contains("misses its term along the deviatoric stress"), "{hs:?}");
+}
