@@ -345,10 +345,13 @@ fn cell(c: &SchemeCheck, cleared: bool) -> String {
         CheckOutcome::Fault(f) if f.signal.is_some() => "CRASH".into(),
         CheckOutcome::Fault(_) => "FAULT".into(),
     };
-    if let Some(CheckOutcome::Compared(d)) = &c.dstress_dtemp {
-        if !d.pass {
-            s.push_str(" dT!");
-        }
+    match &c.dstress_dtemp {
+        Some(CheckOutcome::Compared(d)) if !d.pass => s.push_str(" dT!"),
+        // The ∂σ/∂T column's calls faulted (the row's tangent may have agreed): the row says
+        // so, as the scheme's summary counts it.
+        Some(CheckOutcome::Fault(f)) if f.signal.is_some() => s.push_str(" dT CRASH"),
+        Some(CheckOutcome::Fault(_)) => s.push_str(" dT FAULT"),
+        _ => {}
     }
     s
 }
