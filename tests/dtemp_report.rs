@@ -56,6 +56,8 @@ fn a_wrong_dtemp_alone_is_said_in_every_summary() {
     assert!(!t.replace("thermo-partial-dtemp", "").contains("partial-dtemp"), "one name for the cause: {t}");
 
     let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    // The report's one-word finding is in the JSON: a failure in ∂σ/∂T alone reads so there.
+    assert_eq!(v["finding"], "dtemp-partial", "{v:#}");
     for s in v["summary"].as_array().unwrap() {
         let (failed, dtemp_failed) = (s["failed"].as_u64().unwrap(), s["dtemp_failed"].as_u64().unwrap());
         assert!(failed > 0 && dtemp_failed == failed, "{s}");

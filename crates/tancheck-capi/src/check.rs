@@ -107,8 +107,10 @@ pub fn finish(
     guard_calls: u64,
 ) -> CheckResult {
     tancheck_abi::memory_guards::report::add_to_report(&mut report, level, guard_calls, &findings);
-    let json =
-        tancheck_core::report::document::to_string(tancheck_core::report::document::Kind::Check, &report);
+    let json = tancheck_core::report::document::to_string(
+        tancheck_core::report::document::Kind::Check,
+        &tancheck_core::report::document::CheckDocument::of(&report),
+    );
     let summary = summary(&report, &findings);
     CheckResult {
         finding_texts: findings.iter().map(|f| c_string(f.to_string())).collect(),

@@ -45,7 +45,7 @@ impl<'a> Json<'a> {
 
 /// The JSON document of a check report, to any writer (benchmarks, tests).
 pub fn write_check(report: &Report, out: &mut dyn Write) -> io::Result<()> {
-    document::write(out, Kind::Check, report)
+    document::write(out, Kind::Check, &document::CheckDocument::of(report))
 }
 
 impl Reporter for Json<'_> {
@@ -69,7 +69,7 @@ impl Reporter for Json<'_> {
             }
             return self.put(Kind::Check, &VerdictOnly { verdict: report.verdict });
         }
-        self.put(Kind::Check, report)
+        self.put(Kind::Check, &document::CheckDocument::of(report))
     }
     fn suite(&mut self, report: &SuiteReport, _context: &SuiteContext) -> io::Result<()> {
         self.put(Kind::ProbeSuite, report)

@@ -25,7 +25,7 @@ enum Format {
 #[serde(tag = "kind", rename_all = "kebab-case")]
 #[allow(dead_code, clippy::large_enum_variant)] // only its schema is used, never a value
 enum Body {
-    Check(Report),
+    Check(CheckFile),
     ProbeSuite(SuiteReport),
     Bisect(BisectOutcome),
     Replay(ReplayReport),
@@ -57,6 +57,19 @@ struct LastWords {
     /// Always true.
     last_words: bool,
     fault: LastWordsFault,
+}
+
+/// A check report: the report and its one-word finding.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct CheckFile {
+    #[serde(flatten)]
+    report: Report,
+    /// What the check found, in one word: `none` (passed), `routine-fault`,
+    /// `twin-not-complex-step-safe`, the finding the most failing increments name first (a
+    /// cause such as `elastic-tangent`, or `dtemp`, `dtemp-partial` for ∂σ/∂T alone), or
+    /// `unexplained`. Absent from reports written before it was added.
+    finding: Option<String>,
 }
 
 /// What ended the process, and the call that was running.

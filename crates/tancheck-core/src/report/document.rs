@@ -75,3 +75,18 @@ pub fn to_string<T: Serialize>(kind: Kind, body: &T) -> String {
     write(&mut buf, kind, body).expect("writing to memory does not fail");
     String::from_utf8(buf).expect("serde_json writes UTF-8")
 }
+
+/// A check report as written: the report and its one-word finding ([`super::Report::finding`]:
+/// what CI tells failures apart by, e.g. `dtemp-partial` for a failure in ∂σ/∂T alone).
+#[derive(Serialize)]
+pub struct CheckDocument<'r> {
+    #[serde(flatten)]
+    report: &'r super::Report,
+    finding: String,
+}
+
+impl<'r> CheckDocument<'r> {
+    pub fn of(report: &'r super::Report) -> CheckDocument<'r> {
+        CheckDocument { report, finding: report.finding() }
+    }
+}
