@@ -94,18 +94,9 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
 
     // Continuum tangent: the discrepancy falls in proportion to the increment.
     if let Some(rf) = ev.refinement {
-        // Why 3: two ratios of successive errors are the fewest that show a trend, not a point.
-        if rf.same_branch && rf.errors.len() >= 3 {
-            let e = &rf.errors;
-            let ratio = |a: usize, b: usize| e[b] / e[a] / (rf.fractions[b] / rf.fractions[a]);
-            // Why 0.25: an error in proportion to the increment keeps this ratio at 1 up to the
-            // second-order term; 25% admits that term at the fractions used, never a constant.
-            let linear = (0..e.len() - 1).all(|k| (ratio(k, k + 1) - 1.0).abs() < 0.25);
-            let k = e.len() - 1;
-            // Linear extrapolation of the discrepancy to a vanishing increment.
-            let left =
-                (e[k] - (e[k - 1] - e[k]) / (rf.fractions[k - 1] - rf.fractions[k]) * rf.fractions[k]).abs();
-            let fr: Vec<String> = rf.fractions.iter().zip(e).map(|(f, x)| format!("{f}: {x:.2e}")).collect();
+        if let (true, Some((linear, left))) = (rf.same_branch, proportional(rf)) {
+            let fr: Vec<String> =
+                rf.fractions.iter().zip(&rf.errors).map(|(f, x)| format!("{f}: {x:.2e}")).collect();
             let part = if rf.past > 0.0 {
                 format!(" (its part past {:.3} of it, where it enters the branch)", rf.past)
             } else {
@@ -127,12 +118,16 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
 /// error extrapolated linearly to a vanishing fraction. None for fewer than three fractions.
 fn proportional(rf: &Refinement) -> Option<(bool, f64)> {
     let e = &rf.errors;
+    // Why 3: two ratios of successive errors are the fewest that show a trend, not a point.
     if e.len() < 3 {
         return None;
     }
     let ratio = |a: usize, b: usize| e[b] / e[a] / (rf.fractions[b] / rf.fractions[a]);
+    // Why 0.25: an error in proportion to the increment keeps this ratio at 1 up to the
+    // second-order term; 25% admits that term at the fractions used, never a constant.
     let linear = (0..e.len() - 1).all(|k| (ratio(k, k + 1) - 1.0).abs() < 0.25);
     let k = e.len() - 1;
+    // Linear extrapolation of the discrepancy to a vanishing increment.
     let left = (e[k] - (e[k - 1] - e[k]) / (rf.fractions[k - 1] - rf.fractions[k]) * rf.fractions[k]).abs();
     Some((linear, left))
 }
