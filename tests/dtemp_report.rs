@@ -2,9 +2,10 @@
 //! `thermo-partial-dtemp`: the thermal-expansion term of ∂σ/∂T left out) is reported as such
 //! in every summary: the terminal's scheme lines count the ∂σ/∂T failures with their error
 //! (they gave only the tangent's 1e-11 errors beside "4 of 4 checks failed"), the verdict says
-//! it is ∂σ/∂T, the JSON summary carries the count and the error, the JUnit cases of the
-//! schemes fail (they passed beside a failed verdict), the HTML page shows ∂σ/∂T's entries
-//! and cause, and the cause has one name everywhere (`dtemp-partial`).
+//! it is ∂σ/∂T, the JSON summary carries the count and the error, the JUnit has a ∂σ/∂T case
+//! per scheme that fails while the tangent's cases pass (the scheme cases passed beside a
+//! failed verdict, and then failed as if the tangent were wrong), the HTML page shows ∂σ/∂T's
+//! entries and cause, and the cause has one name everywhere (`dtemp-partial`).
 
 use std::process::Command;
 
@@ -67,10 +68,18 @@ fn a_wrong_dtemp_alone_is_said_in_every_summary() {
     }
 
     let xml = std::fs::read_to_string(&junit).unwrap();
-    let scheme_cases = xml.matches("<testcase name=\"tangent against").count();
-    assert_eq!(scheme_cases, 2, "{xml}");
-    assert_eq!(xml.matches("<failure").count(), 3, "both schemes and the verdict fail: {xml}");
-    assert!(xml.contains("∂σ/∂T failed in"), "{xml}");
+    // Per scheme a tangent case that passes (self-closing) and a ∂σ/∂T case that fails.
+    assert_eq!(xml.matches("<testcase name=\"tangent against").count(), 2, "{xml}");
+    assert_eq!(xml.matches("<testcase name=\"∂σ/∂T against").count(), 2, "{xml}");
+    for scheme in ["central", "complex-step"] {
+        let case = xml
+            .split("<testcase ")
+            .find(|c| c.starts_with(&format!("name=\"tangent against {scheme}\"")))
+            .unwrap_or_else(|| panic!("{xml}"));
+        assert!(!case.contains("<failure") && case.contains("/>"), "the tangent agrees: {case}");
+    }
+    assert_eq!(xml.matches("<failure").count(), 3, "both ∂σ/∂T cases and the verdict fail: {xml}");
+    assert!(xml.contains("∂σ/∂T fails against central at 4 of 4 increments"), "{xml}");
 
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("∂σ/∂T against") && page.contains("<th>entry (row/T)</th>"), "no ∂σ/∂T entries");

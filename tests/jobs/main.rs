@@ -483,3 +483,50 @@ fn a_check_on_two_threads_shows_its_progress_as_it_goes() {
     // increment while the other thread works.
     assert!(told.iter().filter(|&&k| k > 0 && k < n).count() > n / 10, "{told:?}");
 }
+
+/// A check on two threads adds up the ∂σ/∂T failures and checks of every share (a later
+/// share's were left out when its summary was added to the first's): the summary and the JSON
+/// report are one thread's. The C thermo routine whose ∂σ/∂T misses its expansion term.
+#[test]
+fn two_threads_count_the_dtemp_failures_of_every_share() {
+    let d = scratch("thermo");
+    let lib = d.join("libjobs_thermo.so");
+    build_library(&BuildOptions::new([repo("fortran-shim/examples/c/thermo.c")], &lib))
+        .unwrap_or_else(|e| panic!("{e}"));
+    let lib = Library::open(&lib).unwrap();
+    // E20, ν0, ν1, no modulus law, linear expansion, α (the thermo model's properties).
+    let props = [210000.0, 0.3, 1e-5, 0.0, 0.0, 1.2e-5];
+    let i = info(0, props.len());
+    let mut path = ramp(300);
+    for inc in &mut path.increments {
+        inc.dtemp = 0.05;
+    }
+    let report = |jobs: usize| {
+        let mut routine = lib.routine("c_thermo_partial_dtemp", i.clone()).unwrap();
+        let mut caller = Caller::new(&mut routine);
+        let settings = tancheck::core::Settings { jobs, ..Default::default() };
+        tancheck::core::check::run_with(
+            &mut caller,
+            &props,
+            PointState::zero(&i, 20.0),
+            &path,
+            &settings,
+            tancheck::core::report::Keep::Failures,
+            &mut |_| {},
+        )
+        .unwrap()
+    };
+    let (one, two) = (report(1), report(2));
+    assert_eq!((one.settings.jobs, two.settings.jobs), (1, 2), "checked on two threads");
+    assert_eq!(one.summary, two.summary);
+    for s in &two.summary {
+        assert_eq!(s.dtemp_failed, s.failed, "{s:?}");
+        assert_eq!((s.dtemp_checks, s.checks), (path.increments.len(), path.increments.len()), "{s:?}");
+    }
+    let json = |r: &tancheck::core::Report| {
+        let mut v = Vec::new();
+        tancheck::cli::report::json::write_check(r, &mut v).unwrap();
+        v
+    };
+    assert!(json(&one) == json(&two), "JSON reports differ");
+}

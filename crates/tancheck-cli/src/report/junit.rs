@@ -1,6 +1,7 @@
 //! JUnit XML for CI dashboards, written with the quick-junit crate: pure functions of the
 //! report data. A check gives one test suite per routine with a test case per scheme (the
-//! tangent against that scheme along the whole path) and one for the routine's verdict; a
+//! tangent against that scheme along the whole path), one per scheme for a returned ∂σ/∂T,
+//! and one for the routine's verdict; a
 //! probe suite one test case per probe; the selftest one test case per row. A failure's
 //! message carries the finding.
 
@@ -9,8 +10,8 @@ use std::io;
 use quick_junit::{NonSuccessKind, Property, Report as JReport, TestCase, TestCaseStatus, TestSuite};
 
 use tancheck_core::probe::{ProbeStatus, SuiteReport};
-use tancheck_core::report::CheckOutcome;
-use tancheck_core::{Report, Verdict};
+use tancheck_core::report::{CheckOutcome, SchemeCheck, SchemeSummary};
+use tancheck_core::{Report, Scheme, Verdict};
 
 /// The XML of a report. quick-junit writes a `skipped` count on the root `testsuites`
 /// element, which the JUnit schema CI dashboards read (see tests/junit_report.rs) does not
@@ -62,6 +63,47 @@ pub(crate) fn failure(message: String, kind: NonSuccessKind, description: Option
     s
 }
 
+/// An outcome that is no comparison (for a check without ∂σ/∂T).
+static NONE: CheckOutcome = CheckOutcome::Skipped { reason: String::new() };
+
+/// The failing increments where `part` of `scheme`'s check was compared and failed
+/// (increments the closer look cleared are no failure).
+fn failed_increments(
+    report: &Report,
+    scheme: Scheme,
+    part: impl Fn(&SchemeCheck) -> &CheckOutcome,
+) -> Vec<usize> {
+    report
+        .increments
+        .iter()
+        .filter(|i| {
+            !i.passed()
+                && i.checks.iter().any(|c| {
+                    c.scheme == scheme && matches!(part(c), CheckOutcome::Compared(cmp) if !cmp.pass)
+                })
+        })
+        .map(|i| i.index)
+        .collect()
+}
+
+/// "finding …: `what` fails against the scheme at k of n increments, first at …".
+fn scheme_failure(report: &Report, s: &SchemeSummary, failed: &[usize], what: &str) -> String {
+    let first = report.increments.iter().find(|i| i.index == failed[0]);
+    format!(
+        "finding {}: {what} fails against {} at {} of {} increments, first at increment {}{}",
+        report.finding(),
+        s.scheme.name(),
+        failed.len(),
+        report.records.len().max(report.increments.len()),
+        failed[0],
+        first.map_or(String::new(), |i| format!(
+            " (branch {}, where the diagnosis says {})",
+            i.branch_label(),
+            i.finding()
+        )),
+    )
+}
+
 /// The test suite of one check report.
 fn check_suite(report: &Report) -> TestSuite {
     let routine = &report.routine.name;
@@ -70,52 +112,41 @@ fn check_suite(report: &Report) -> TestSuite {
     suite.add_property(Property::new("finding", report.finding()));
     suite.add_property(Property::new("verdict", report.verdict.word()));
     for s in &report.summary {
-        let name = format!("tangent against {}", s.scheme.name());
-        // The increments where this scheme's check failed.
-        let failed: Vec<usize> = report
-            .increments
-            .iter()
-            .filter(|i| {
-                i.checks.iter().any(|c| {
-                    c.scheme == s.scheme
-                        && (matches!(&c.tangent, CheckOutcome::Compared(cmp) if !cmp.pass)
-                            || matches!(&c.dstress_dtemp, Some(CheckOutcome::Compared(cmp)) if !cmp.pass))
-                }) && !i.passed()
-            })
-            .map(|i| i.index)
-            .collect();
-        // Failed checks the diagnosis cleared (a kink, a poor default step) are no failure.
-        let status = if failed.is_empty() {
+        // The tangent's case counts the increments where the tangent itself failed; a
+        // returned ∂σ/∂T has a case of its own, so that a failure in one does not read as a
+        // failure of the other.
+        let tangent_failed = failed_increments(report, s.scheme, |c| &c.tangent);
+        let status = if tangent_failed.is_empty() {
             TestCaseStatus::success()
         } else {
-            let first = report.increments.iter().find(|i| i.index == failed[0]);
-            let msg = format!(
-                "finding {}: {} of {} increments fail against {}, first at increment {}{}; worst norm error {:.2e}, worst entry error {:.2e}, tolerance {:.1e}",
-                report.finding(),
-                failed.len(),
-                report.records.len().max(report.increments.len()),
-                s.scheme.name(),
-                failed[0],
-                first.map_or(String::new(), |i| format!(
-                    " (branch {}, where the diagnosis says {})",
-                    i.branch_label(),
-                    i.finding()
-                )),
-                s.worst_norm_error,
-                s.worst_entry_error,
-                s.tol
-            );
-            let msg = if s.dtemp_failed > 0 {
-                format!(
-                    "{msg}; ∂σ/∂T failed in {} of them, worst ∂σ/∂T error {:.2e}",
-                    s.dtemp_failed, s.dtemp_worst_error
-                )
-            } else {
-                msg
-            };
-            failure(msg, NonSuccessKind::Failure, None)
+            failure(
+                scheme_failure(report, s, &tangent_failed, "the tangent")
+                    + &format!(
+                        "; worst norm error {:.2e}, worst entry error {:.2e}, tolerance {:.1e}",
+                        s.worst_norm_error, s.worst_entry_error, s.tol
+                    ),
+                NonSuccessKind::Failure,
+                None,
+            )
         };
-        let mut case = TestCase::new(name, status);
+        let mut case = TestCase::new(format!("tangent against {}", s.scheme.name()), status);
+        case.set_classname(routine.as_str());
+        suite.add_test_case(case);
+        if s.dtemp_checks == 0 && s.dtemp_failed == 0 {
+            continue;
+        }
+        let dtemp_failed = failed_increments(report, s.scheme, |c| c.dstress_dtemp.as_ref().unwrap_or(&NONE));
+        let status = if dtemp_failed.is_empty() {
+            TestCaseStatus::success()
+        } else {
+            failure(
+                scheme_failure(report, s, &dtemp_failed, "∂σ/∂T")
+                    + &format!("; worst ∂σ/∂T error {:.2e}, tolerance {:.1e}", s.dtemp_worst_error, s.tol),
+                NonSuccessKind::Failure,
+                None,
+            )
+        };
+        let mut case = TestCase::new(format!("∂σ/∂T against {}", s.scheme.name()), status);
         case.set_classname(routine.as_str());
         suite.add_test_case(case);
     }

@@ -235,6 +235,10 @@ pub struct SchemeSummary {
     /// The largest ∂σ/∂T error of those checks (0 when none failed).
     #[serde(default)]
     pub dtemp_worst_error: f64,
+    /// Checks that compared a returned ∂σ/∂T (0: the routine returned none, or the path
+    /// made no such check).
+    #[serde(default)]
+    pub dtemp_checks: usize,
 }
 
 /// The tangent error per branch over the path.

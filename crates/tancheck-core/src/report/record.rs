@@ -254,6 +254,7 @@ impl Collector {
                     tol: settings.scheme(scheme).tol,
                     dtemp_failed: 0,
                     dtemp_worst_error: 0.0,
+                    dtemp_checks: 0,
                 })
                 .collect(),
             branches: Vec::new(),
@@ -284,6 +285,7 @@ impl Collector {
             // step, a twin set aside) is no failure of the tangent: counted apart, so the
             // counts agree with the verdict.
             let cleared = !c.passed() && inc.diagnosis.as_ref().is_some_and(|d| d.pass);
+            s.dtemp_checks += matches!(c.dstress_dtemp, Some(CheckOutcome::Compared(_))) as usize;
             s.failed += (!c.passed() && !cleared) as usize;
             s.cleared += cleared as usize;
             // The ∂σ/∂T part of a failed check (only failed increments: every one is pushed in
@@ -370,6 +372,7 @@ impl Collector {
             match passed {
                 Some(p) => {
                     s.checks += 1;
+                    s.dtemp_checks += inc.dtemp_checked as usize;
                     s.worst_norm_error = s.worst_norm_error.max(p.norm_error);
                     s.worst_entry_error = s.worst_entry_error.max(p.worst_entry_error);
                     worst = worst.max(p.error);
@@ -423,6 +426,9 @@ impl Collector {
             s.skipped += o.skipped;
             s.worst_norm_error = s.worst_norm_error.max(o.worst_norm_error);
             s.worst_entry_error = s.worst_entry_error.max(o.worst_entry_error);
+            s.dtemp_failed += o.dtemp_failed;
+            s.dtemp_worst_error = s.dtemp_worst_error.max(o.dtemp_worst_error);
+            s.dtemp_checks += o.dtemp_checks;
         }
         for ob in other.branches {
             match self
