@@ -132,6 +132,33 @@ fn bad_input_exits_2_with_file_line_and_column() {
     assert_eq!(o.status.code(), Some(2), "usage error");
 }
 
+// A value of the wrong type is told in JSON's words, never in the program's own type names
+// (it said "expected struct PathIncrement", "invalid type: map, expected a sequence", and for
+// a number where a name belongs only "expected value").
+#[test]
+fn a_value_of_the_wrong_type_is_told_in_json_words() {
+    let d = scratch("types");
+    for (body, said) in [
+        (r#""kind": 5, "properties": [200000, 0.3] }"#, "expected a name (a string"),
+        (
+            r#""kind": "solid-3d", "properties": [200000, 0.3] }, "path": { "increments": [5] }"#,
+            "integer `5`, expected an object",
+        ),
+        (
+            r#""kind": "solid-3d", "properties": [200000, 0.3] }, "path": { "increments": {"a": 1} }"#,
+            "invalid type: an object, expected an array",
+        ),
+        (r#""kind": "solid-3d", "properties": [200000, 0.3] }, "guards": 3"#, "expected a name (a string"),
+    ] {
+        let m = manifest(&d, "m.json", &format!("{{ \"routine\": {{ \"model\": \"elastic\", {body} }}\n"));
+        let o = bin().arg("check").arg(&m).output().unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{t}");
+        assert!(t.contains("m.json:1:") && t.contains(said), "{body}: {t}");
+        assert!(!t.contains("struct") && !t.contains("map") && !t.contains("sequence"), "{t}");
+    }
+}
+
 // A plane-stress user writes the three components the routine takes; the path's dstrain has
 // the six tensor components for every kind, and the error says so (it said "invalid length 3,
 // expected an array of length 6", naming neither the field nor the order).

@@ -103,7 +103,12 @@ impl FiniteManifest {
         let file = path.display();
         let text = std::fs::read_to_string(path).map_err(|e| anyhow::anyhow!("cannot read {file}: {e}"))?;
         let m: FiniteManifest = serde_json::from_str(&text).map_err(|e| {
-            anyhow::anyhow!("{file}:{}:{}: {}", e.line(), e.column(), crate::manifest::json_message(&e))
+            anyhow::anyhow!(
+                "{file}:{}:{}: {}",
+                e.line(),
+                e.column(),
+                crate::manifest::json_message(&e, &text)
+            )
         })?;
         let d = m.declared().map_err(|e| anyhow::anyhow!("{file}: {e}"))?;
         m.path.build().map_err(|e| anyhow::anyhow!("{file}: path: {e}"))?;

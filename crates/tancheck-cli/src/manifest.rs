@@ -132,24 +132,38 @@ pub enum ManifestError {
 }
 
 impl ManifestError {
-    /// A JSON file that does not parse into what it should hold: file, line, column and
-    /// [`json_message`].
-    pub fn json(path: &FsPath, e: &serde_json::Error) -> ManifestError {
+    /// A JSON file (its `text`) that does not parse into what it should hold: file, line,
+    /// column and [`json_message`].
+    pub fn json(path: &FsPath, text: &str, e: &serde_json::Error) -> ManifestError {
         ManifestError::Parse {
             path: path.into(),
             line: e.line(),
             column: e.column(),
-            message: json_message(e),
+            message: json_message(e, text),
         }
     }
 }
 
-/// The words of a JSON parse error without its position (the caller puts the file, line and
-/// column first), and with Rust's names of number types said in plain words ("expected usize"
-/// becomes "expected a whole number, 0 or more").
-pub fn json_message(e: &serde_json::Error) -> String {
-    let text = e.to_string();
-    let mut m = text.split(" at line ").next().unwrap_or_default().to_string();
+/// The words of a JSON parse error of `text` without its position (the caller puts the file,
+/// line and column first), in JSON's words rather than Rust's: "expected usize" becomes
+/// "expected a whole number, 0 or more", a sequence an array, a map or a struct an object;
+/// and a value of the wrong type where a name is expected (serde_json's "expected value" in
+/// a file that is valid JSON) says that a name is expected.
+pub fn json_message(e: &serde_json::Error, text: &str) -> String {
+    let full = e.to_string();
+    let mut m = full.split(" at line ").next().unwrap_or_default().to_string();
+    if m == "expected value" && serde_json::from_str::<serde::de::IgnoredAny>(text).is_ok() {
+        return "invalid type, expected a name (a string, one of the choices of this field)".into();
+    }
+    m = m
+        .replace("invalid type: sequence", "invalid type: an array")
+        .replace("invalid type: map", "invalid type: an object")
+        .replace("expected a sequence", "expected an array")
+        .replace("expected a map", "expected an object");
+    if let Some(at) = m.find("expected struct ") {
+        m.truncate(at);
+        m.push_str("expected an object");
+    }
     for (rust, plain) in [
         ("usize", "a whole number, 0 or more"),
         ("u64", "a whole number, 0 or more"),
@@ -175,7 +189,7 @@ impl Manifest {
     }
 
     pub fn parse(text: &str, path: &FsPath) -> Result<Manifest, ManifestError> {
-        let m: Manifest = serde_json::from_str(text).map_err(|e| ManifestError::json(path, &e))?;
+        let m: Manifest = serde_json::from_str(text).map_err(|e| ManifestError::json(path, text, &e))?;
         m.validate().map_err(|message| ManifestError::Invalid { path: path.into(), message })?;
         Ok(m)
     }
@@ -346,7 +360,7 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
 pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
     let text =
         std::fs::read_to_string(file).map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
-    let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::json(file, &e))?;
+    let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::json(file, &text, &e))?;
     drop(text);
     let given = spec.increments.is_some();
     // A long path is held once: the increments move from the spec into the path.

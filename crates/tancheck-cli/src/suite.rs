@@ -65,7 +65,7 @@ impl Suite {
     }
 
     pub fn parse(text: &str, file: &FsPath) -> Result<Suite, ManifestError> {
-        let s: Suite = serde_json::from_str(text).map_err(|e| ManifestError::json(file, &e))?;
+        let s: Suite = serde_json::from_str(text).map_err(|e| ManifestError::json(file, text, &e))?;
         let known: Vec<_> = tancheck_core::probe::registry().iter().map(|p| p.name()).collect();
         let at = |k: usize, name: &str, message: String| match probe_position(text, k, name) {
             Some((line, column)) => ManifestError::Parse { path: file.into(), line, column, message },

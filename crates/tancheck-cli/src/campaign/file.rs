@@ -175,8 +175,8 @@ fn relative_label(path: &FsPath, dir: &FsPath) -> String {
 }
 
 /// A JSON error with line and column, naming the file.
-fn json_error(file: &FsPath, e: &serde_json::Error) -> anyhow::Error {
-    anyhow!("{}:{}:{}: {}", file.display(), e.line(), e.column(), crate::manifest::json_message(e))
+fn json_error(file: &FsPath, text: &str, e: &serde_json::Error) -> anyhow::Error {
+    anyhow!("{}:{}:{}: {}", file.display(), e.line(), e.column(), crate::manifest::json_message(e, text))
 }
 
 impl Campaign {
@@ -188,7 +188,7 @@ impl Campaign {
         }
         let text = std::fs::read_to_string(source)
             .with_context(|| format!("{}: cannot read the campaign file", source.display()))?;
-        let spec: FileSpec = serde_json::from_str(&text).map_err(|e| json_error(source, &e))?;
+        let spec: FileSpec = serde_json::from_str(&text).map_err(|e| json_error(source, &text, &e))?;
         if spec.format != FORMAT {
             bail!("{}: `format` is `{}`; a campaign file says \"{FORMAT}\"", source.display(), spec.format);
         }
