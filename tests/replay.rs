@@ -432,3 +432,29 @@ fn a_crashing_call_is_saved_and_replayed_with_its_increment_number() {
     assert!(r["warnings"][0].as_str().unwrap().contains("using"), "{r:#}");
     assert_eq!(code, 0, "{r:#}");
 }
+
+// A report, a manifest or a list given to `replay` for a case is said to be that, with where
+// the case files are (it said "missing field `about`", the first field a case has).
+#[test]
+fn another_file_given_for_a_case_is_named_for_what_it_is() {
+    let d = scratch("not-a-case");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    let r = d.join("r.json");
+    let o = bin().arg("check").arg(&m).arg("-q").arg("--json").arg(&r).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let list = d.join("list.json");
+    std::fs::write(&list, "[1, 2]").unwrap();
+    for (file, what) in
+        [(&r, "a tancheck report of kind `check`"), (&m, "a manifest"), (&list, "a JSON array")]
+    {
+        let o = bin().arg("replay").arg(file).output().unwrap();
+        let t = text(&o);
+        assert_eq!(o.status.code(), Some(2), "{t}");
+        assert!(t.contains(&format!("{what}, not a case")) && t.contains("tancheck-cases/"), "{t}");
+    }
+}

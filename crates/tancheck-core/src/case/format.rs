@@ -387,6 +387,9 @@ pub enum CaseProblem {
     /// JSON syntax or a field, in serde_json's words.
     #[error("{0}")]
     Syntax(String),
+    /// Valid JSON that is no case (a report, a manifest, …): what it is and where cases are.
+    #[error("{0}, not a case; `tancheck bisect MANIFEST` writes case files (in `tancheck-cases/<manifest name>/` next to the manifest)")]
+    NotACase(String),
     #[error("case format {found} is not the format {FORMAT} this tancheck reads")]
     Format { found: u32 },
     #[error("routine: give `model`, or `library` and `symbol`, not both")]
