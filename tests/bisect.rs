@@ -470,3 +470,26 @@ fn a_dtemp_failure_is_bisected_and_replayed_as_one() {
     assert!(t.contains("DIFFERS  ∂σ/∂T norm error"), "{t}");
     assert!(t.contains("the returned ∂σ/∂T still differs"), "{t}");
 }
+
+// `--path FILE` takes a path file as `check` and `probe` do (it was refused with a message
+// saying it takes one): the first failing increment is the file's.
+#[test]
+fn a_path_file_is_taken_by_path() {
+    let d = scratch("path-file");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            "{{ \"routine\": {} }}",
+            routine_json(Source::Model("j2-elastic-first-plastic"), "solid-3d", &J2_PROPS)
+        ),
+    )
+    .unwrap();
+    let p = d.join("uniaxial.json");
+    std::fs::write(&p, r#"{ "shape": "uniaxial-strain", "peak": 0.004, "steps": 8 }"#).unwrap();
+    let o = bin().arg("bisect").arg(&m).arg("--path").arg(&p).args(["--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let (k, _) = j2_first_yield(&[5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], &J2_PROPS);
+    assert_eq!(v["located"]["increment"].as_u64(), Some(k as u64), "{v:#}");
+}

@@ -161,6 +161,56 @@ fn a_block_section_that_does_not_fit_is_refused_naming_the_file() {
     assert!(err.contains("block-no-density.json") && err.contains("block.density"), "{err}");
 }
 
+// Options and commands made for point routines are refused on a block routine's manifest,
+// naming the option (they were ignored, or bisect called the block routine through the point
+// interface and reported a correct routine as a fault); a finite-strain manifest is refused
+// by bisect likewise (it said "unknown field `finite`").
+#[test]
+fn point_options_and_bisect_are_refused_for_block_and_finite_manifests() {
+    let d = scratch("block-cli-point-options");
+    let p = d.join("jb.json");
+    std::fs::write(
+        &p,
+        r#"{ "routine": { "model": "j2-block", "interface": "block", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+             "block": { "density": 7.85e-9, "characteristic_length": 2.0 } }"#,
+    )
+    .unwrap();
+    let suite = Path::new(env!("CARGO_MANIFEST_DIR")).join("probes/thermal.json");
+    let runs: [(&[&std::ffi::OsStr], &str); 6] = [
+        (
+            &["check".as_ref(), p.as_os_str(), "--scheme".as_ref(), "forward".as_ref()],
+            "--scheme does not apply",
+        ),
+        (
+            &["check".as_ref(), p.as_os_str(), "--tol".as_ref(), "central=1e-3".as_ref()],
+            "--tol does not apply",
+        ),
+        (&["check".as_ref(), p.as_os_str(), "--cases".as_ref()], "--cases does not apply"),
+        (&["probe".as_ref(), p.as_os_str(), "--suite".as_ref(), suite.as_os_str()], "--suite does not apply"),
+        (&["probe".as_ref(), p.as_os_str(), "--thermal".as_ref()], "--thermal does not apply"),
+        (
+            &["bisect".as_ref(), p.as_os_str()],
+            "bisect takes point routines; this manifest is a block routine's",
+        ),
+    ];
+    for (args, said) in runs {
+        let (code, out, err) = tancheck(args);
+        assert_eq!(code, 2, "{args:?}: {out}{err}");
+        assert!(err.contains("jb.json") && err.contains(said), "{args:?}: {err}");
+    }
+    let f = d.join("fin.json");
+    std::fs::write(
+        &f,
+        r#"{ "finite": { "stress": "kirchhoff", "tangent": "tau-jaumann", "frame": "jaumann" },
+             "routine": { "model": "hypo-no-rotation", "properties": [1000, 0.3] },
+             "path": { "shape": "simple-shear", "amount": 0.3, "increments": 3 } }"#,
+    )
+    .unwrap();
+    let (code, out, err) = tancheck(&["bisect".as_ref(), f.as_os_str()]);
+    assert_eq!(code, 2, "{out}{err}");
+    assert!(err.contains("fin.json") && err.contains("this manifest is a finite-strain one"), "{err}");
+}
+
 /// A manifest of one of the misbehaving block routines (`misbehave_block.c`).
 fn misbehaving(d: &Path, symbol: &str, states: usize) -> PathBuf {
     let lib = build_once("misbehave_block_cli", &["fortran-shim/examples/c/misbehave_block.c"]);

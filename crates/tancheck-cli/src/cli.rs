@@ -243,6 +243,11 @@ fn path_file(path: &Option<String>) -> Option<&std::path::Path> {
 }
 
 /// Where a finite-strain manifest sets what these options set for a point routine.
+/// What a block routine's check and probe do instead of the point options they refuse.
+const BLOCK_CHECKS_INSTEAD: &str = "a block routine gets the block checks (elastic response, point \
+independence, tangent and wave speed, energy, deletion, rate, refinement, counterpart) with the \
+settings of the manifest's `block`";
+
 const FINITE_CHECK_INSTEAD: &str = "a finite-strain check walks the manifest's `path` of deformation \
      gradients with central differences and the complex step, at the steps and the one tolerance of its \
      `check` section (central_step, complex_step, tolerance); set them there";
@@ -252,10 +257,21 @@ const FINITE_PROBES_INSTEAD: &str = "the finite-strain probes run along the mani
 /// Refuse the options `given` (set, name) that a finite-strain run does not honour, naming
 /// the manifest and where its own settings are (`instead`): exit 2 before any work.
 fn refuse_for_finite(manifest: &std::path::Path, given: &[(bool, &str)], instead: &str) -> Result<()> {
+    refuse_options(manifest, "a finite-strain manifest", given, instead)
+}
+
+/// Options given (`given`: set, name) that do not apply to a kind of manifest (`what`): an
+/// error naming them, with what the manifest does `instead`.
+pub(crate) fn refuse_options(
+    manifest: &std::path::Path,
+    what: &str,
+    given: &[(bool, &str)],
+    instead: &str,
+) -> Result<()> {
     let names: Vec<&str> = given.iter().filter(|(set, _)| *set).map(|(_, n)| *n).collect();
     if !names.is_empty() {
         bail!(
-            "{}: a finite-strain manifest; {} {} not apply to it: {instead}",
+            "{}: {what}; {} {} not apply to it: {instead}",
             manifest.display(),
             names.join(", "),
             if names.len() == 1 { "does" } else { "do" }
@@ -323,6 +339,17 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     let mut case_code = exit::PASS;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
     let file = a.manifest.display().to_string();
+    let block = crate::block_session::is_block(&m);
+    if block {
+        let given = [
+            (!a.schemes.is_empty(), "--scheme"),
+            (!a.tols.is_empty(), "--tol"),
+            (!a.steps.is_empty(), "--step"),
+            (a.cases.is_some(), "--cases"),
+            (a.all_cases, "--all-cases"),
+        ];
+        refuse_options(&a.manifest, "a block routine's manifest", &given, BLOCK_CHECKS_INSTEAD)?;
+    }
     // `--cases` without a folder: the manifest's own.
     let cases = a.cases.as_ref().map(|c| match c {
         Some(c) => c.clone(),
@@ -355,7 +382,6 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     if let Some(g) = &a.guards {
         m.guards = guards_arg(g)?;
     }
-    let block = crate::block_session::is_block(&m);
     let block_path = if block { a.path.as_deref().map(path_arg).transpose()? } else { None };
     let point_path = if block {
         None
@@ -444,6 +470,9 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         m.guards = guards_arg(g)?;
     }
     if crate::block_session::is_block(&m) {
+        let given =
+            [(a.suite.is_some(), "--suite"), (a.thermal, "--thermal"), (a.suite_path, "--suite-path")];
+        refuse_options(&a.manifest, "a block routine's manifest", &given, BLOCK_CHECKS_INSTEAD)?;
         // A block routine's probes are the block checks (independence, tangent and wave speed,
         // energy, deletion, refinement, counterpart).
         let path = a.path.as_deref().map(path_arg).transpose()?;

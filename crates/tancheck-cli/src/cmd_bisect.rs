@@ -15,7 +15,7 @@ use tancheck_core::{check, Caller};
 use crate::case_store::{open_for_manifest, write_case};
 use crate::exit;
 use crate::load::start_state;
-use crate::manifest::{parse_path_arg, Manifest};
+use crate::manifest::Manifest;
 use crate::report::Reporter;
 use crate::session::default_path;
 
@@ -61,8 +61,22 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     let path = a.path.as_deref().map(std::path::Path::new).filter(|p| p.is_file());
     let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path].into_iter().flatten().collect();
     a.run.output.guard(a.run.json.as_deref(), &inputs)?;
+    if crate::finite_load::FiniteManifest::detect(&a.manifest) {
+        anyhow::bail!(
+            "{}: bisect takes point routines; this manifest is a finite-strain one (`tancheck check` \
+             and `tancheck probe` check it)",
+            a.manifest.display()
+        );
+    }
     crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;
+    if crate::block_session::is_block(&m) {
+        anyhow::bail!(
+            "{}: bisect takes point routines; this manifest is a block routine's (`tancheck check` \
+             makes the block checks; bisect its point counterpart's manifest)",
+            a.manifest.display()
+        );
+    }
     crate::survive::set_routine(a.run.json.as_deref(), &crate::session::routine_name(&m));
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
     m.fp_traps |= a.run.fp_traps;
@@ -78,7 +92,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
         );
     }
     let path = match &a.path {
-        Some(p) => parse_path_arg(p).map_err(anyhow::Error::msg)?,
+        Some(p) => crate::manifest::path_arg(p)?,
         None => m
             .path_or(default_path(m.routine.kind))
             .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
