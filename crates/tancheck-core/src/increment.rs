@@ -176,7 +176,11 @@ impl<'s> Walk<'s> {
             Some(_) => None,
             None => match judge::judge(me, driver, caller, settings, previous) {
                 Ok(cc) => Some(cc),
-                Err(fault) => return self.faulted(k, fault, solve_log, unloaded, note, collected),
+                Err(fault) => {
+                    // A call of the diagnosis: its own inputs, not the base call's.
+                    let call = caller.take_faulted();
+                    return self.faulted_in(k, fault, call, solve_log, unloaded, note, collected);
+                }
             },
         };
         let guarded = if new_branch { first_calls::full_guard(driver, caller).err() } else { None };
@@ -228,15 +232,29 @@ impl<'s> Walk<'s> {
         note: Option<String>,
         collected: &mut Collector,
     ) -> Step {
+        self.faulted_in(k, fault, None, solve_log, unloaded, note, collected)
+    }
+
+    /// [`Walk::faulted`] for a fault of the call `call` (the driver's current call when none).
+    #[allow(clippy::too_many_arguments)]
+    fn faulted_in(
+        &mut self,
+        k: usize,
+        fault: Fault,
+        call: Option<crate::routine::FaultedCall>,
+        solve_log: Option<mixed::SolveLog>,
+        unloaded: bool,
+        note: Option<String>,
+        collected: &mut Collector,
+    ) -> Step {
         let driver = &self.driver;
-        collected.push(record(
-            k,
-            driver,
-            solve_log,
-            None,
-            None,
-            Some(judge::fault_record(&fault, driver, None)),
-        ));
+        let f = match call {
+            Some(c) => {
+                judge::fault_record_of_call(&fault, c, "a call of the closer look at the failed check")
+            }
+            None => judge::fault_record(&fault, driver, None),
+        };
+        collected.push(record(k, driver, solve_log, None, None, Some(f)));
         self.has_best = false;
         self.best_is_previous = false;
         Step { checked: false, state_changed: false, stops: true, unloaded, note }

@@ -327,12 +327,76 @@ pub struct Caller<'r> {
     pub complex_calls: u64,
     /// What the routine declared when this caller was made.
     capabilities: Capabilities,
+    /// The inputs of the last call that faulted (kept on the error path only).
+    faulted: Option<Box<FaultedCall>>,
+}
+
+/// The inputs of a call that faulted, as the routine got them (a complex call's real parts,
+/// with the entries that carried an imaginary part named): what a report needs to say which
+/// call it was, wherever in the check it was made.
+#[derive(Clone, Debug, PartialEq)]
+pub struct FaultedCall {
+    pub props: Vec<f64>,
+    pub strain: Vec<f64>,
+    pub dstrain: Vec<f64>,
+    pub temp: [f64; 2],
+    pub stress0: Vec<f64>,
+    pub state0: Vec<f64>,
+    pub time: [f64; 2],
+    pub increment: i32,
+    /// For a complex call: "dstrain[2] + i 1.0e-20" and the like.
+    pub imaginary: Option<String>,
+}
+
+impl FaultedCall {
+    #[cold]
+    fn of_real(i: &CallInput<'_, f64>) -> FaultedCall {
+        FaultedCall {
+            props: i.props.to_vec(),
+            strain: i.strain.to_vec(),
+            dstrain: i.dstrain.to_vec(),
+            temp: i.temp,
+            stress0: i.stress0.to_vec(),
+            state0: i.state0.to_vec(),
+            time: i.time,
+            increment: i.increment,
+            imaginary: None,
+        }
+    }
+
+    #[cold]
+    fn of_complex(i: &CallInput<'_, Complex64>) -> FaultedCall {
+        let re = |v: &[Complex64]| v.iter().map(|c| c.re).collect::<Vec<f64>>();
+        let mut im = Vec::new();
+        for (name, v) in
+            [("props", i.props), ("strain", i.strain), ("dstrain", i.dstrain), ("temp", &i.temp[..])]
+        {
+            for (k, c) in v.iter().enumerate().filter(|(_, c)| c.im != 0.0) {
+                im.push(format!("{name}[{k}] + i {:.3e}", c.im));
+            }
+        }
+        FaultedCall {
+            props: re(i.props),
+            strain: re(i.strain),
+            dstrain: re(i.dstrain),
+            temp: [i.temp[0].re, i.temp[1].re],
+            stress0: re(i.stress0),
+            state0: re(i.state0),
+            time: i.time,
+            increment: i.increment,
+            imaginary: Some(if im.is_empty() {
+                "a complex call, no imaginary part".into()
+            } else {
+                im.join(", ")
+            }),
+        }
+    }
 }
 
 impl<'r> Caller<'r> {
     pub fn new(routine: &'r mut dyn Routine) -> Self {
         let capabilities = routine.capabilities();
-        Caller { routine, real_calls: 0, complex_calls: 0, capabilities }
+        Caller { routine, real_calls: 0, complex_calls: 0, capabilities, faulted: None }
     }
 
     pub fn info(&self) -> &RoutineInfo {
@@ -389,7 +453,16 @@ impl<'r> Caller<'r> {
     ) -> Result<(), Fault> {
         self.real_calls += 1;
         prefill(output, f64::NAN, input.want_tangent);
-        self.routine.call(input, output)
+        let r = self.routine.call(input, output);
+        if r.is_err() {
+            self.faulted = Some(Box::new(FaultedCall::of_real(input)));
+        }
+        r
+    }
+
+    /// The inputs of the last call that faulted, taken (see [`FaultedCall`]).
+    pub fn take_faulted(&mut self) -> Option<FaultedCall> {
+        self.faulted.take().map(|b| *b)
     }
 
     /// A complex call, outputs pre-filled with NaN (those of a call without the tangent as
@@ -405,7 +478,11 @@ impl<'r> Caller<'r> {
         };
         self.complex_calls += 1;
         prefill(output, Complex64::new(f64::NAN, f64::NAN), input.want_tangent);
-        twin.call_complex(input, output)
+        let r = twin.call_complex(input, output);
+        if r.is_err() {
+            self.faulted = Some(Box::new(FaultedCall::of_complex(input)));
+        }
+        r
     }
 }
 

@@ -16,12 +16,14 @@ use crate::compare::{
 use crate::convention::Convention;
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
-use crate::report::{CallRecord, CheckOutcome, FaultRecord, SchemeCheck, RECORD_SCHEMES};
+use crate::report::{CheckOutcome, SchemeCheck, RECORD_SCHEMES};
 use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
+mod records;
 mod straddle;
+pub use records::{call_record, fault_record, fault_record_of_call};
 use straddle::{kink_straddled, one_sided_distance, straddle_level, TEMPERATURE_BIT};
 
 /// The finding of a case whose call crashed or returned a failed status.
@@ -92,36 +94,6 @@ struct Measured {
     /// Why there is no tangent to compare (skipped, or a call faulted).
     outcome: Option<CheckOutcome>,
     dtemp: Option<Result<[f64; 6], CheckOutcome>>,
-}
-
-/// The inputs of the driver's current call, with the perturbation named.
-pub fn call_record(d: &Driver, perturbation: Option<String>) -> CallRecord {
-    let s = d.start();
-    CallRecord {
-        increment: d.increment(),
-        perturbation,
-        props: d.props().to_vec(),
-        strain: s.strain.clone(),
-        dstrain: d.dstrain().to_vec(),
-        temp: s.temp,
-        dtemp: d.dtemp(),
-        stress0: s.stress.clone(),
-        state0: s.state.clone(),
-        time: s.time,
-        dtime: d.dtime(),
-    }
-}
-
-/// A fault with the inputs of the driver's current call.
-pub fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
-    FaultRecord {
-        message: f.to_string(),
-        signal: match f {
-            Fault::Crashed { signal, .. } => Some(*signal),
-            _ => None,
-        },
-        call: call_record(d, perturbation),
-    }
 }
 
 /// What the calls of one increment gave, before any judgement: the base call's tangent and
@@ -523,7 +495,22 @@ pub fn judge(
                 .fold(f64::INFINITY, f64::min),
         };
         let conv = caller.info().convention.clone();
-        out.diagnosis = Some(diagnose::run(driver, caller, &conv, &ctx, settings)?);
+        // (A fault kept from an earlier call, e.g. a perturbed one, is not the diagnosis's.)
+        let _ = caller.take_faulted();
+        out.diagnosis = Some(match diagnose::run(driver, caller, &conv, &ctx, settings) {
+            Ok(d) => d,
+            // A refusal of a call of the closer look is no fault of the routine; a crash or a
+            // guard's finding is (with that call's inputs, `Caller::take_faulted`).
+            Err(f @ Fault::Status { .. }) => {
+                let call = caller.take_faulted();
+                let at = call.map_or(String::new(), |c| {
+                    let d: Vec<String> = c.dstrain.iter().map(|x| format!("{x:.4e}")).collect();
+                    format!(" (dstrain [{}], dtemp {:.4e}, dtime {:.4e})", d.join(", "), c.temp[1], c.time[1])
+                });
+                diagnose::Diagnosis::stopped(&format!("{f} in one of its calls{at}"))
+            }
+            Err(f) => return Err(f),
+        });
     }
     Ok(out)
 }

@@ -56,6 +56,29 @@ pub struct Diagnosis {
     pub twin_unsafe: bool,
 }
 
+impl Diagnosis {
+    /// The closer look given up because the routine refused one of its calls with a status
+    /// (`refusal`, with the call): a step far larger than the check's, or an increment off the
+    /// path, that the routine may well refuse as a solver's cut-back. The checks stand; no
+    /// cause is named.
+    pub fn stopped(refusal: &str) -> Diagnosis {
+        Diagnosis {
+            kink: None,
+            studies: Vec::new(),
+            pass: false,
+            reason: format!(
+                "the closer look stopped: {refusal}; the routine may refuse such a call (a larger step or \
+                 an increment off the path), so it is no fault, and the failed checks stand"
+            ),
+            causes: Vec::new(),
+            dtemp_causes: Vec::new(),
+            refinement: None,
+            finding: "unexplained".into(),
+            twin_unsafe: false,
+        }
+    }
+}
+
 /// What the increment's checks already showed.
 pub struct Context<'a> {
     pub returned: &'a [f64],
