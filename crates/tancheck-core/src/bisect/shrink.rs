@@ -1,8 +1,9 @@
 //! Shrinking a failing path: the shortest, plainest path found that still fails the same way.
 //!
 //! The invariant of the loop: the current path fails, with the verdict and the first
-//! increment's finding of the original, and by a margin: its error at least [`MARGIN`] times
-//! the tolerance, or as many times as the original's when that was fewer (a case that fails
+//! increment's finding of the original, and by a margin in every comparison (scheme, tangent
+//! or ∂σ/∂T) that failed in the original: its error at least [`MARGIN`] times the tolerance,
+//! or as many times as the original's when that was fewer (a case that fails
 //! at twice the tolerance may pass under another machine's rounding). Every candidate is checked with [`crate::check::run`]
 //! and replaces the current path only when it keeps the invariant; a path that fails is cut
 //! after its first failing increment (the increments after it change nothing before it).
@@ -26,6 +27,7 @@ use crate::error::CoreError;
 use crate::path::{Path, PathIncrement};
 use crate::report::{CheckOutcome, Report, Verdict};
 use crate::routine::Caller;
+use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 /// Bounds of a shrink.
@@ -82,8 +84,9 @@ struct Shrinker<'a, 'r> {
     name: &'a str,
     verdict: Verdict,
     finding: String,
-    /// The margin every kept path fails by (see [`MARGIN`]).
-    min_margin: f64,
+    /// The margin every kept path fails by, per comparison that failed in the original (see
+    /// [`MARGIN`] and [`margins`]).
+    min_margins: Vec<(Scheme, bool, f64)>,
     limits: ShrinkLimits,
     t0: Instant,
     iterations: usize,
@@ -105,25 +108,30 @@ fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
 /// pass (common practice for regression thresholds, not a derived figure).
 const MARGIN: f64 = 10.0;
 
-/// How far the first failing increment fails: the largest error / tolerance over its failed
-/// comparisons, tangent and ∂σ/∂T; infinite for a failure without one (a fault, a non-finite
-/// output), which has no margin to lose.
-fn margin(r: &Report) -> f64 {
-    let Some(inc) = super::first_failure(r) else { return 0.0 };
-    let m = inc
-        .checks
-        .iter()
-        .flat_map(|c| std::iter::once(&c.tangent).chain(c.dstress_dtemp.as_ref()))
-        .filter_map(|o| match o {
-            CheckOutcome::Compared(x) if !x.pass && x.tol > 0.0 => Some(x.error() / x.tol),
-            _ => None,
-        })
-        .fold(0.0, f64::max);
-    if m > 0.0 {
-        m
-    } else {
-        f64::INFINITY
+/// Per failed comparison of the first failing increment — its scheme, and whether it is the
+/// ∂σ/∂T one — the error over the tolerance.
+fn margins(r: &Report) -> Vec<(Scheme, bool, f64)> {
+    let Some(inc) = super::first_failure(r) else { return Vec::new() };
+    let mut out = Vec::new();
+    for c in &inc.checks {
+        for (o, dtemp) in [(Some(&c.tangent), false), (c.dstress_dtemp.as_ref(), true)] {
+            if let Some(CheckOutcome::Compared(x)) = o {
+                if !x.pass && x.tol > 0.0 {
+                    out.push((c.scheme, dtemp, x.error() / x.tol));
+                }
+            }
+        }
     }
+    out
+}
+
+/// Whether `r` fails every comparison of `need` (scheme, ∂σ/∂T or not, margin) by its margin:
+/// a shrunk path keeps the failure of each scheme that failed, not only of the sharpest (a
+/// time-increment flaw shrunk to a time increment where it nearly vanishes failed the complex
+/// step alone, and the central difference agreed).
+fn keeps_margins(r: &Report, need: &[(Scheme, bool, f64)]) -> bool {
+    let have = margins(r);
+    need.iter().all(|(s, dt, m)| have.iter().any(|(hs, hdt, hm)| hs == s && hdt == dt && hm >= m))
 }
 
 impl Shrinker<'_, '_> {
@@ -156,7 +164,7 @@ impl Shrinker<'_, '_> {
         };
         match signature(&r) {
             Some((v, f, index))
-                if v == self.verdict && f == self.finding && margin(&r) >= self.min_margin =>
+                if v == self.verdict && f == self.finding && keeps_margins(&r, &self.min_margins) =>
             {
                 let mut incs = path.increments;
                 incs.truncate(index);
@@ -336,7 +344,7 @@ pub fn shrink(
         name: &path.name,
         verdict,
         finding: finding.clone(),
-        min_margin: margin(&report).min(MARGIN),
+        min_margins: margins(&report).into_iter().map(|(s, dt, m)| (s, dt, m.min(MARGIN))).collect(),
         limits,
         t0,
         iterations: 0,
@@ -372,7 +380,7 @@ pub fn shrink(
 
 #[cfg(test)]
 mod tests {
-    use super::{margin, round_to};
+    use super::{margins, round_to};
     use crate::bisect::testing::{Bar, PROPS};
     use crate::routine::{Caller, Model};
 
@@ -393,10 +401,45 @@ mod tests {
         let start = crate::driver::PointState::zero(bar.0.info(), 0.0);
         let mut caller = Caller::new(&mut bar);
         let failing = crate::check::run(&mut caller, &PROPS, start.clone(), &path(5e-4), &settings).unwrap();
-        let m = margin(&failing);
-        assert!((m / 2e7 - 1.0).abs() < 1e-3, "{m:e}");
+        let m = margins(&failing);
+        assert_eq!(m.len(), 1, "{m:?}");
+        assert_eq!((m[0].0, m[0].1), (crate::schemes::Scheme::Central, false));
+        assert!((m[0].2 / 2e7 - 1.0).abs() < 1e-3, "{m:?}");
         let passing = crate::check::run(&mut caller, &PROPS, start, &path(1e-4), &settings).unwrap();
-        assert_eq!(margin(&passing), 0.0);
+        assert!(margins(&passing).is_empty());
+    }
+
+    // A flaw that vanishes at the default time increment (the viscous bar's tangent of Δt = 1,
+    // E + η where E + η/Δt is the derivative of its backward-Euler update): the shrink moves
+    // Δt toward 1 while the failure stays, and must keep it in both schemes that failed, each
+    // by ten tolerances (it kept only the sharpest, and shrank to a Δt where the central
+    // difference agreed).
+    #[test]
+    fn a_shrunk_path_keeps_the_failure_of_every_scheme() {
+        use crate::bisect::testing::ViscousBar;
+        use crate::schemes::Scheme;
+        let mut inc = crate::path::PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 0.0]);
+        inc.dtime = 0.1;
+        let path = crate::path::Path { name: "p".into(), increments: vec![inc; 3] };
+        let settings = crate::settings::Settings::default();
+        let props = [1000.0, 1000.0];
+        let mut bar = ViscousBar::new(true);
+        let start = crate::driver::PointState::zero(bar.0.info(), 0.0);
+        let mut caller = Caller::new(&mut bar);
+        let report = crate::check::run(&mut caller, &props, start.clone(), &path, &settings).unwrap();
+        let original = margins(&report);
+        let schemes: Vec<Scheme> = original.iter().map(|m| m.0).collect();
+        assert_eq!(schemes, [Scheme::Central, Scheme::ComplexStep], "{original:?}");
+        let limits = super::ShrinkLimits::default();
+        let s =
+            super::shrink(&mut caller, &props, &start, &path, &report, &settings, limits).unwrap().unwrap();
+        let last = s.path.increments.last().unwrap();
+        assert!(last.dtime != 1.0 && last.dtime > 0.1, "Δt moved toward 1 but not onto it: {:?}", s.path);
+        let kept = margins(&s.report);
+        for scheme in [Scheme::Central, Scheme::ComplexStep] {
+            let m = kept.iter().find(|m| m.0 == scheme && !m.1).map(|m| m.2);
+            assert!(m.is_some_and(|m| m >= super::MARGIN), "{scheme:?}: {kept:?} at {:?}", s.path);
+        }
     }
 
     #[test]

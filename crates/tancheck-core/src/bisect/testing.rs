@@ -138,3 +138,49 @@ impl Model for DamageBar {
         Ok(())
     }
 }
+
+/// A uniaxial Kelvin–Voigt bar (a spring E beside a dashpot η), its rate by backward Euler:
+/// σ = E (ε + Δε) + η Δε/Δt; properties [E, η], no state. Consistent tangent E + η/Δt.
+/// [`ViscousBar::unit_time`] returns E + η, the tangent of Δt = 1 (a flaw that vanishes there:
+/// a shrink moving Δt toward its default 1 must keep the failure of every scheme).
+#[derive(Clone, Debug)]
+pub struct ViscousBar {
+    info: RoutineInfo,
+    pub unit_time: bool,
+}
+
+impl ViscousBar {
+    pub fn new(unit_time: bool) -> ModelRoutine<ViscousBar> {
+        ModelRoutine(ViscousBar {
+            info: RoutineInfo {
+                name: if unit_time { "viscous-bar-unit-time" } else { "viscous-bar" }.into(),
+                convention: Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering),
+                nstate: 0,
+                nprop: 2,
+            },
+            unit_time,
+        })
+    }
+}
+
+impl Model for ViscousBar {
+    fn info(&self) -> &RoutineInfo {
+        &self.info
+    }
+
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        out: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        let (e, eta, dt) = (input.props[0], input.props[1], input.time[1]);
+        out.outcome.status = 0;
+        out.outcome.branch = 0;
+        out.dstress_dtemp[0] = S::zero();
+        out.energy[0] = S::zero();
+        out.energy[1] = S::zero();
+        out.stress[0] = e * (input.strain[0] + input.dstrain[0]) + eta * input.dstrain[0] / dt;
+        out.tangent[0] = if self.unit_time { e + eta } else { e + eta / dt };
+        Ok(())
+    }
+}

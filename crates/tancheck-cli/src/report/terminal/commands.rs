@@ -225,14 +225,7 @@ pub fn bisect(out: &mut dyn Write, o: &BisectOutcome, detail: Detail, p: Palette
                     s.stopped
                 )?;
                 for (k, inc) in s.path.increments.iter().enumerate() {
-                    writeln!(
-                        out,
-                        "     {:>3}  dstrain {:?}{}{}",
-                        k + 1,
-                        inc.dstrain,
-                        if inc.dtemp != 0.0 { format!("  dtemp {}", inc.dtemp) } else { String::new() },
-                        if inc.hold_stress.is_some() { "  (mixed control)" } else { "" }
-                    )?;
+                    writeln!(out, "     {:>3}  {}", k + 1, super::increment_text(inc))?;
                 }
                 if let Some(l) = &s.located {
                     write_located(out, l, "     ")?;

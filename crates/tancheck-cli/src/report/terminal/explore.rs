@@ -6,28 +6,9 @@ use std::io::{self, Write};
 
 use tancheck_core::bisect::Inside;
 use tancheck_core::explore::{coverage::ranges_text, ExploreReport};
-use tancheck_core::path::PathIncrement;
 use tancheck_core::Verdict;
 
-use super::{Detail, Palette};
-
-/// One increment, short: its strain increment and what else it carries.
-fn increment_text(i: &PathIncrement) -> String {
-    let d: Vec<String> = i.dstrain.iter().map(|x| format!("{x:.3e}")).collect();
-    let mut s = format!("Δε [{}]", d.join(", "));
-    if i.dtemp != 0.0 {
-        s.push_str(&format!(", ΔT {:.3e}", i.dtemp));
-    }
-    if i.dtime != 1.0 {
-        s.push_str(&format!(", Δt {:.3e}", i.dtime));
-    }
-    if let Some(h) = &i.hold_stress {
-        let held: Vec<String> =
-            h.iter().enumerate().filter_map(|(k, v)| v.map(|v| format!("σ[{k}] = {v:.3e}"))).collect();
-        s.push_str(&format!(", held {}", held.join(", ")));
-    }
-    s
-}
+use super::{increment_text, Detail, Palette};
 
 pub fn write(out: &mut dyn Write, r: &ExploreReport, detail: Detail, p: Palette) -> io::Result<()> {
     let quiet = detail == Detail::Quiet;

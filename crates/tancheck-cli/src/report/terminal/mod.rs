@@ -91,3 +91,22 @@ impl Reporter for Terminal<'_> {
         self.out.flush()
     }
 }
+
+/// One increment, short: its strain increment and what else it carries (the time increment
+/// when it is not 1), each number in full (a shrunk value such as 9.9999976e-1 must not read 1).
+pub(crate) fn increment_text(i: &tancheck_core::path::PathIncrement) -> String {
+    let d: Vec<String> = i.dstrain.iter().map(|x| format!("{x:e}")).collect();
+    let mut s = format!("Δε [{}]", d.join(", "));
+    if i.dtemp != 0.0 {
+        s.push_str(&format!(", ΔT {:e}", i.dtemp));
+    }
+    if i.dtime != 1.0 {
+        s.push_str(&format!(", Δt {:e}", i.dtime));
+    }
+    if let Some(h) = &i.hold_stress {
+        let held: Vec<String> =
+            h.iter().enumerate().filter_map(|(k, v)| v.map(|v| format!("σ[{k}] = {v:.3e}"))).collect();
+        s.push_str(&format!(", held {}", held.join(", ")));
+    }
+    s
+}
