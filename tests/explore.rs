@@ -310,6 +310,22 @@ fn declared_property_ranges_and_temperatures_are_explored() {
     assert!(heated);
 }
 
+// A declared strain scale is the one the report gives, said to be declared (the report gave
+// the measured one, or "not measured: fallback", beside paths scaled to the declared one).
+#[test]
+fn a_declared_strain_scale_is_reported_as_declared() {
+    let d = scratch("strain-scale");
+    let m = manifest(&d, "j2", &model("j2"), Some(r#"{ "strain_scale": 0.005 }"#));
+    let (code, v) = explore(&m, &["--paths", "3"]);
+    assert_eq!(code, 0, "{v:#}");
+    assert_eq!(v["scale"]["strain"], 0.005, "{:#}", v["scale"]);
+    assert_eq!(v["scale"]["declared"], true);
+    let o = bin().arg("explore").arg(&m).args(["--paths", "3"]).output().unwrap();
+    let t = text(&o);
+    assert!(t.contains("scale: strain 5.000e-3 (declared: explore.strain_scale)"), "{t}");
+    assert!(!t.contains("declare explore.strain_scale to change it"), "{t}");
+}
+
 #[test]
 fn bad_explore_sections_are_exit_2_naming_the_file() {
     let d = scratch("bad");

@@ -73,7 +73,13 @@ pub fn explore_page(r: &ExploreReport) -> String {
         o,
         "<dt>scale</dt><dd>strain {:.3e}{}, stress {:.3e}</dd>",
         r.scale.strain,
-        if r.scale.measured { " (measured)" } else { " (fallback)" },
+        if r.scale.declared {
+            " (declared)"
+        } else if r.scale.measured {
+            " (measured)"
+        } else {
+            " (fallback)"
+        },
         r.scale.stress
     );
     if let Some((lo, hi)) = r.temperature {

@@ -319,7 +319,11 @@ pub fn run(
         seed: ex.seed,
         budget: ex.budget,
         stopped_by,
-        scale: scale0,
+        // The strain the paths were scaled to: the declared one when there is one.
+        scale: match ex.strain_scale {
+            Some(s) => Scale { strain: s, declared: true, ..scale0 },
+            None => scale0,
+        },
         temperature,
         random_properties,
         paths,

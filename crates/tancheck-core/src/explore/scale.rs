@@ -34,6 +34,9 @@ pub struct Scale {
     pub measured: bool,
     /// Whether the routine responds to a temperature increment (stress or state differ).
     pub uses_temperature: bool,
+    /// `strain` is the declared `explore.strain_scale`, not the measured one.
+    #[serde(default)]
+    pub declared: bool,
     /// Routine calls the measurement made.
     pub calls: u64,
 }
@@ -182,6 +185,7 @@ pub fn measure(
         stress,
         measured,
         uses_temperature,
+        declared: false,
         calls: caller.real_calls + caller.complex_calls - calls0,
     })
 }

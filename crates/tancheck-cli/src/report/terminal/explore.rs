@@ -48,7 +48,13 @@ pub fn write(out: &mut dyn Write, r: &ExploreReport, detail: Detail, p: Palette)
         out,
         "   scale: strain {:.3e} ({}), stress {:.3e}; temperature {}{}",
         s.strain,
-        if s.measured { "the elastic range measured from the start" } else { "not measured: fallback" },
+        if s.declared {
+            "declared: explore.strain_scale"
+        } else if s.measured {
+            "the elastic range measured from the start"
+        } else {
+            "not measured: fallback"
+        },
         s.stress,
         match r.temperature {
             Some((lo, hi)) => format!("between {lo} and {hi}"),
