@@ -102,6 +102,67 @@ fn the_counterpart_check_passes_the_same_model_and_names_a_different_update() {
     assert!(r.findings[0].increment.is_some());
 }
 
+/// The reference J2 point model whose stress is zero from increment `after` on (a point
+/// routine that deletes its point), or NaN in its first entry.
+struct PointFrom {
+    inner: tancheck_core::ModelRoutine<tancheck_models::zoo::ZooModel>,
+    after: i32,
+    nan: bool,
+}
+
+impl tancheck_core::Routine for PointFrom {
+    fn info(&self) -> &tancheck_core::RoutineInfo {
+        self.inner.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck_core::CallInput<'_, f64>,
+        output: &mut tancheck_core::CallOutput<'_, f64>,
+    ) -> Result<(), Fault> {
+        self.inner.call(input, output)?;
+        if input.increment > self.after {
+            if self.nan {
+                output.stress[0] = f64::NAN;
+            } else {
+                output.stress.fill(0.0);
+            }
+        }
+        Ok(())
+    }
+}
+
+// The difference is relative to the largest stress either routine carried along the path (a
+// point counterpart at zero stress made it 1e303 of the block's), and a stress that is not a
+// number is a difference (NaN compared with nothing and passed).
+#[test]
+fn the_counterpart_difference_is_relative_to_the_path_and_sees_nan() {
+    let path = j2_path();
+    let incs = block::block_increments(&path, 6).unwrap();
+    let s = j2_settings(EnergyRule::Trapezoid);
+    for nan in [false, true] {
+        let mut b = BlockModelRoutine(j2());
+        let inner = tancheck_models::zoo::zoo_model("j2", PointKind::Solid3d).unwrap();
+        let mut point = PointFrom { inner, after: 2, nan };
+        let mut report = BlockReport::default();
+        block::counterpart::check(&mut b, &mut point, &J2_PROPS, &path, &incs, &s, 1e-9, &mut report);
+        assert_eq!(report.finding(), "counterpart-mismatch", "{:#?}", report.findings);
+        let f = &report.findings[0];
+        assert_eq!(f.increment, Some(3), "{f:#?}");
+        if nan {
+            assert!(f.what.contains("one is not a finite number"), "{}", f.what);
+            continue;
+        }
+        let rel: f64 = f
+            .what
+            .split("relative difference ")
+            .nth(1)
+            .and_then(|t| t.split_whitespace().next())
+            .and_then(|x| x.parse().ok())
+            .unwrap_or_else(|| panic!("{}", f.what));
+        assert!(rel > 0.1 && rel <= 2.0, "{}", f.what);
+    }
+}
+
 #[test]
 fn a_rate_term_off_the_declared_law_is_named() {
     // The published C = 0.014 passes; a routine whose rate term is twice as strong is off the
