@@ -20,6 +20,9 @@ enum Tamper {
     ElasticResponseWrites,
     /// A deleted point's state turns NaN (0/0 of a damage ratio, say).
     NanAfterDeletion,
+    /// The elastic response (first call) doubles the shear stress of component 3 (twice the
+    /// shear modulus), the dilatational modulus right.
+    ElasticResponseShear,
 }
 
 /// A reference block model with one thing changed.
@@ -48,6 +51,10 @@ impl<M: BlockModel> BlockModel for Tampered<M> {
                 }
                 Tamper::ElasticResponseWrites if input.elastic_response => {
                     output.state[p * ns] = input.state_start[p * ns] + 1e-3;
+                }
+                Tamper::ElasticResponseShear if input.elastic_response => {
+                    let n = self.inner.info().ncomp;
+                    output.stress[p * n + 3] = output.stress[p * n + 3] * 2.0;
                 }
                 Tamper::NanAfterDeletion
                     if output.deleted[p] != 0 && input.state_start[p * ns + ns - 1].re() >= 0.5 =>
@@ -185,6 +192,18 @@ fn an_elastic_response_that_updates_the_state_is_named() {
     let r = j2_check(Tampered { inner: j2(), tamper: Tamper::ElasticResponseWrites });
     assert_eq!(r.finding(), "elastic-response-updates", "{:#?}", r.findings);
     assert_eq!(r.findings[0].increment, Some(0));
+}
+
+// A first call whose shear modulus alone is wrong: the message names the entry and says the
+// dilatational modulus and wave speed agree (it gave the two equal moduli and wave speeds as
+// the difference).
+#[test]
+fn an_elastic_response_wrong_in_shear_names_the_entry() {
+    let r = j2_check(Tampered { inner: j2(), tamper: Tamper::ElasticResponseShear });
+    assert_eq!(r.finding(), "elastic-response-mismatch", "{:#?}", r.findings);
+    let what = &r.findings[0].what;
+    assert!(what.contains("the dilatational modulus") && what.contains("agree"), "{what}");
+    assert!(what.contains("entry [3][3]"), "{what}");
 }
 
 #[test]

@@ -147,16 +147,39 @@ pub fn elastic_consistency(
     if rel > ELASTIC_TOLERANCE || rel.is_nan() {
         let (m_own, m_first) = (dilatational(&d, n), dilatational(moduli, n));
         let (c_own, dt_own) = wave(m_own, s);
+        // The entry that differs most (column-major: row i, column j), named in either case.
+        let k =
+            (0..diff.len())
+                .fold(0, |a, k| if diff[k].abs() > diff[a].abs() || diff[k].is_nan() { k } else { a });
+        let entry = format!(
+            "entry [{}][{}]: the first call's {:.6e}, the routine's own {:.6e}",
+            k % n,
+            k / n,
+            moduli[k],
+            d[k]
+        );
+        let same_dilatational = (m_own - m_first).abs() <= 1e-9 * m_own.abs().max(m_first.abs());
+        let what = if same_dilatational {
+            format!(
+                "the dilatational modulus {m_own:.6e} and the wave speed {c_own:.6e} agree; the difference is \
+                 elsewhere, largest in {entry} (a shear or coupling modulus: a solver that reads the moduli \
+                 of the first call gets it wrong)"
+            )
+        } else {
+            format!(
+                "dilatational modulus {m_first:.6e} vs {m_own:.6e}, largest in {entry}: the wave speed a solver \
+                 sizes its time increment from is {:.6e}, the routine's own {c_own:.6e} (L/c {:.6e} vs \
+                 {dt_own:.6e})",
+                report.elastic.wave_speed, report.elastic.stable_time_increment
+            )
+        };
         report.add(
             BlockCheck::ElasticResponse,
             "elastic-response-mismatch",
             Some(0),
             format!(
                 "the elastic response of the first call differs from the routine's own stiffness for a small \
-                 increment from the start by {rel:.3e} (dilatational modulus {m_first:.6e} vs {m_own:.6e}): the \
-                 wave speed a solver sizes its time increment from is {:.6e}, the routine's own {c_own:.6e} \
-                 (L/c {:.6e} vs {dt_own:.6e})",
-                report.elastic.wave_speed, report.elastic.stable_time_increment
+                 increment from the start by {rel:.3e}: {what}"
             ),
         );
     }
