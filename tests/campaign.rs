@@ -403,3 +403,45 @@ fn without_a_fortran_compiler_the_fortran_routines_are_skipped_and_said_so() {
     assert_eq!(skipped["code"], 2);
     assert!(skipped["message"].as_str().unwrap().contains("TANCHECK_REQUIRE_FORTRAN=1"), "{skipped}");
 }
+
+// A known-flawed routine kept in a campaign as a regression suite (`expect: fail`) whose
+// failure `bisect` saved as cases: its cases still failing is expected too, and the campaign
+// passes (an exploration of it made the campaign fail with "case-still-fails"); a correct
+// routine's case that fails is still a failure.
+#[test]
+fn the_cases_of_a_routine_expected_to_fail_are_expected_to_fail() {
+    let d = scratch("expected-cases");
+    std::fs::write(
+        d.join("b.json"),
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] } }"#,
+    )
+    .unwrap();
+    let o = bin().arg("bisect").arg(d.join("b.json")).arg("-q").output().unwrap();
+    assert!(d.join("tancheck-cases/b").is_dir(), "{}", text(&o));
+    let campaign = |expect: &str| {
+        let file = d.join("c.json");
+        std::fs::write(
+            &file,
+            format!(
+                r#"{{ "format": "tancheck-campaign", "version": 1, "name": "c",
+  "routines": [ {{ "manifest": "b.json"{expect} }} ] }}"#
+            ),
+        )
+        .unwrap();
+        let o = bin().arg("campaign").arg(&file).args(["--json", "-", "-q"]).output().unwrap();
+        let v: Value = serde_json::from_str(&String::from_utf8_lossy(&o.stdout)).unwrap();
+        (o.status.code(), v)
+    };
+    let (code, v) = campaign(r#", "expect": "fail", "expect_finding": "continuum-tangent""#);
+    assert_eq!(code, Some(0), "{v:#}");
+    let list = items(&v);
+    assert_eq!(
+        (list[0]["task"].as_str(), list[0]["outcome"].as_str()),
+        (Some("cases"), Some("fail")),
+        "{v:#}"
+    );
+    assert!(list.iter().all(|i| i["as_expected"] == true), "{v:#}");
+    let (code, v) = campaign("");
+    assert_eq!(code, Some(1), "{v:#}");
+    assert_eq!(items(&v)[0]["as_expected"], false, "{v:#}");
+}
