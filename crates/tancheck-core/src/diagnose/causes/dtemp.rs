@@ -23,7 +23,7 @@ pub fn rank_dtemp(
     };
     let original = err(returned);
     // Why: as in `rank`, a pass with margin or three digits of the error removed.
-    let level = (10.0 * tol).max(1e-3 * original);
+    let level = super::explain_level(tol, original);
     let mut hs = Vec::new();
     let neg: Vec<f64> = returned.iter().map(|x| -x).collect();
     let e = err(&neg);

@@ -19,12 +19,19 @@ pub use dtemp::rank_dtemp;
 use kind::Found;
 pub use kind::{Cause, Evidence, Hypothesis, Refinement};
 
+/// The error a correction may leave and still explain a failure of error `original` against
+/// `tol`. Why: a hypothesis explains the failure when its corrected tangent passes with a
+/// margin (10 × tol) or removes all but 1e-3 of the original error (three digits of it); and
+/// in any case removes nine tenths of it, so that for a failure within ten tolerances a
+/// correction that changes nothing (a swap of equal shear entries) explains nothing.
+pub(crate) fn explain_level(tol: f64, original: f64) -> f64 {
+    (10.0 * tol).max(1e-3 * original).min(0.1 * original)
+}
+
 /// Test every applicable hypothesis and rank them.
 pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     let original = ev.error(ev.returned);
-    // Why: a hypothesis explains the failure when its corrected tangent passes with a margin
-    // (10 × tol) or removes all but 1e-3 of the original error (three digits of it).
-    let explain_level = (10.0 * ev.tol).max(1e-3 * original);
+    let explain_level = explain_level(ev.tol, original);
     let mut found = Found { hs: Vec::new(), explain_level };
     layout::try_layout(ev, &mut found);
     other_matrix::try_other_matrix(ev, &mut found);

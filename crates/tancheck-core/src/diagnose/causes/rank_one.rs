@@ -37,6 +37,12 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 _ => return,
             };
             let mut base = m.clone();
+            // Which part of the derivative the term belongs to, for the words.
+            let of = if ev.elastic.is_some() && ev.state_changed {
+                "the inelastic part of the derivative (the derivative less the elastic tangent)"
+            } else {
+                "the derivative"
+            };
             if let (Some(e), true) = (ev.elastic, ev.state_changed) {
                 let mut em = e.to_vec();
                 ev.conv.tangent_to_mandel(&mut em);
@@ -89,19 +95,39 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             let sigma = (u.transpose() * &dm * &v)[(0, 0)];
             // Why 1e-12: below that the derivative has no part along u⊗v beyond rounding of
             // the norm (a few ulps), so no factor can be told.
-            let factor = if copy && tau.abs() > 1e-12 * norm { (tau + sigma) / tau } else { f64::NAN };
+            // The term is the derivative's part along u⊗v net of the background (a plastic
+            // correction under the elastic stiffness). Where the background is most of that part
+            // (a bulk term beside a shear background of about its size) the net term is small
+            // and its factor ill-told (17.7 for a bulk modulus returned at −0.18 of its value):
+            // then the factor is that of the whole part along u⊗v.
+            let whole = (u.transpose() * &bm * &v)[(0, 0)];
+            let factor = if !copy {
+                f64::NAN
+            } else if tau.abs() > 1e-12 * norm && tau.abs() >= 0.5 * whole.abs() {
+                (tau + sigma) / tau
+            } else if whole.abs() > 1e-12 * norm {
+                (whole + sigma) / whole
+            } else {
+                f64::NAN
+            };
             let size = s[0] / norm;
             // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
             // bands admit the error the rank-one fit leaves, far from any plain scaling.
             let (cause, detail) = if (factor).abs() < 0.05 {
-                (
-                    Cause::TermMissing,
-                    format!("one term a⊗b of the derivative is missing (size {size:.2e} of the norm)"),
-                )
+                (Cause::TermMissing, format!("one term a⊗b of {of} is missing (size {size:.2e} of the norm)"))
             } else if (factor + 1.0).abs() < 0.1 {
-                (Cause::TermSign, format!("one term a⊗b of the derivative has the wrong sign (factor {factor:.3}, size {size:.2e})"))
+                (
+                    Cause::TermSign,
+                    format!("one term a⊗b of {of} has the wrong sign (factor {factor:.3}, size {size:.2e})"),
+                )
             } else if factor.is_finite() {
-                (Cause::TermScaled, format!("one term a⊗b of the derivative is scaled by about {factor:.2} (size {size:.2e} of the norm)"))
+                (
+                    Cause::TermScaled,
+                    format!(
+                        "one term a⊗b of {of} is scaled by about {} (size {size:.2e} of the norm)",
+                        factor_text(factor)
+                    ),
+                )
             } else if copy {
                 (Cause::RankOneTerm, format!("the discrepancy is one term a⊗b of size {size:.2e}"))
             } else {
@@ -127,5 +153,27 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 );
             }
         }
+    }
+}
+
+/// A factor to two decimals, or as 1 ± its distance from 1 when that would read 1.00 (a
+/// factor that reads 1.00 beside a failure says nothing).
+fn factor_text(f: f64) -> String {
+    if (f - 1.0).abs() < 0.005 {
+        format!("1 {} {:.1e}", if f >= 1.0 { "+" } else { "−" }, (f - 1.0).abs())
+    } else {
+        format!("{f:.2}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    // A factor that would read 1.00 beside a failure reads as its distance from 1.
+    #[test]
+    fn a_factor_near_one_reads_as_its_distance_from_one() {
+        assert_eq!(super::factor_text(0.99908), "1 − 9.2e-4");
+        assert_eq!(super::factor_text(1.003), "1 + 3.0e-3");
+        assert_eq!(super::factor_text(1.05), "1.05");
+        assert_eq!(super::factor_text(-0.2), "-0.20");
     }
 }

@@ -415,3 +415,54 @@ fn a_dtemp_term_along_the_deviatoric_stress_is_named() {
     let hs = rank_dtemp(&conv, &without, &truth, &stress, 1e-6, 1e-2);
     assert!(hs[0].explains && hs[0].detail.contains("misses its term along the deviatoric stress"), "{hs:?}");
 }
+
+// A failure within ten tolerances: a correction that changes nothing (a swap of the equal
+// shear entries of an isotropic tangent, the identity) must not explain it. Every correction
+// "explained" such a failure (its error left was within the margin of 10 × tol), and a sweep's
+// creep routine, 1.3 tolerances off, was named `shear-permutation`.
+#[test]
+fn a_correction_that_changes_nothing_does_not_explain_a_small_failure() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good = j2_like();
+    let z = vec![0.0; 6];
+    let mut off = good.clone();
+    off[0] *= 1.0 + 2.2e-12;
+    let e = ev(&conv, &off, &good, &z);
+    let original = e.error(e.returned);
+    assert!(original > e.tol && original < 10.0 * e.tol, "{original:e}");
+    for h in rank(&e).iter().filter(|h| h.explains) {
+        assert!(h.error_left <= 0.1 * original, "{h:?} explains an error of {original:e}");
+    }
+    let h = rank(&e);
+    assert!(!h.iter().any(|h| h.explains && h.cause == Cause::ShearPermutation), "{h:?}");
+}
+
+// The factor of a scaled term whose background is most of the derivative's part along it:
+// an isotropic tangent (ν = 0.05, so the volumetric stiffness 3K is only 1.17 times the 2μ of
+// the deviatoric directions) with its bulk modulus returned at −0.2 of its value. The term net
+// of the background (3K − 2μ) is small and its factor ill-told (−7.4); the factor is that of
+// the whole part along the volumetric direction, −0.2.
+#[test]
+fn a_scaled_bulk_term_beside_a_shear_background_of_its_size_gets_its_factor() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let (e, nu) = (1000.0, 0.05);
+    let (lambda, mu) = (e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu)), e / (2.0 * (1.0 + nu)));
+    let k = lambda + 2.0 * mu / 3.0;
+    let mut good = vec![0.0; 36];
+    for i in 0..3 {
+        for j in 0..3 {
+            good[i + 6 * j] = lambda + if i == j { 2.0 * mu } else { 0.0 };
+        }
+        good[(i + 3) * 7] = mu;
+    }
+    let mut bulk = good.clone();
+    for i in 0..3 {
+        for j in 0..3 {
+            bulk[i + 6 * j] += (-0.2 - 1.0) * k;
+        }
+    }
+    let z = vec![0.0; 6];
+    let h = rank(&ev(&conv, &bulk, &good, &z));
+    let t = h.iter().find(|h| h.cause == Cause::TermScaled).unwrap_or_else(|| panic!("{h:?}"));
+    assert!(t.explains && t.detail.contains("scaled by about -0.20"), "{t:?}");
+}
