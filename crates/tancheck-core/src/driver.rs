@@ -249,6 +249,12 @@ impl Driver {
         self.dstrain_changed();
     }
 
+    /// Set the time increment to `t` times the one set by [`Driver::set_increment`], the strain
+    /// and temperature increments as they are (the base call must be made again).
+    pub fn rescale_time(&mut self, t: f64) {
+        self.dtime = t * self.full_dtime;
+    }
+
     /// The increment changed: its scratch and complex copies follow (once per change, not per
     /// call).
     fn dstrain_changed(&mut self) {

@@ -21,6 +21,8 @@ use crate::settings::Settings;
 
 pub mod causes;
 pub mod decide;
+#[cfg(test)]
+mod elastic_time_tests;
 pub mod kink;
 pub mod study;
 pub mod temp_kink;
@@ -307,6 +309,12 @@ fn branch_entry(
     (hi < 0.99).then_some(hi)
 }
 
+/// Fraction of the increment's time the elastic tangent's unloading step takes. Why 1e-6:
+/// a creep or relaxation increment scales with the time, so a millionth leaves a millionth of
+/// it, below the trials' margins, and a routine dividing by the time increment still gets a
+/// normal number.
+const ELASTIC_TIME: f64 = 1e-6;
+
 /// The scheme the cause trials measure a tangent with, at a driver's current increment.
 type BestTangent<'b> = dyn Fn(&mut Driver, &mut Caller<'_>, &mut [f64]) -> Result<(), Fault> + 'b;
 
@@ -422,9 +430,14 @@ fn cause_trials(
     } else {
         None
     };
-    // The elastic tangent: the derivative along an unloading step from the start state.
+    // The elastic tangent: the derivative along an unloading step from the start state, taken
+    // in a millionth of the time: a rate-dependent routine (creep, viscoplasticity, a
+    // viscoelastic relaxation) relaxes as little as the routine allows during it, and one that
+    // does not depend on time gives the same (its step over the increment's time crept:
+    // a creep routine returning its elastic stiffness was named after another stiffness).
     let mut elastic = vec![0.0; n * n];
     driver.rescale(-0.5);
+    driver.rescale_time(ELASTIC_TIME);
     let elastic_ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut elastic).is_ok();
     // The discrepancy at smaller increments: fractions of the increment, or of its part past
     // the point where it enters its branch when it crosses into it.
