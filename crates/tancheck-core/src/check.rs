@@ -69,6 +69,8 @@ pub fn run_with(
             increments.push(r);
         }
     }
+    // (The start state, for the look at the time increment after the walk.)
+    let origin = settings.first_calls.then(|| driver.start().clone());
     let mut merged = Merged { notes, increments, unloaded: false, conventions_seen: false };
     let stopped_at_zero = merged.increments.last_faulted();
     // Several threads when the settings ask for them and the routine is safe to call from
@@ -132,6 +134,16 @@ pub fn run_with(
         g.add_note(&mut merged.notes, merged.increments.any_fault);
     }
     let Merged { notes, increments, unloaded, .. } = merged;
+    // A path whose increments all take the same time checks a time-dependent tangent at that
+    // time increment only: whether the routine depends on it is looked at once the path has
+    // been checked without a fault (two calls; the check's own calls meet any fault first).
+    let one_dtime = path.increments.windows(2).all(|w| w[0].dtime.to_bits() == w[1].dtime.to_bits());
+    let time_dependent = match (path.increments.first(), &origin) {
+        (Some(inc), Some(start)) if one_dtime && !increments.any_fault && !increments.is_empty() => {
+            first_calls::depends_on_time(caller, &info, props, start, inc)
+        }
+        _ => None,
+    };
 
     progress(path.increments.len());
     let mut coverage = Vec::new();
@@ -173,6 +185,15 @@ pub fn run_with(
             off_path.len(),
             path.increments.len(),
             first.split(':').next().unwrap_or("")
+        ));
+    }
+    if time_dependent == Some(true) && !stopped {
+        coverage.push(format!(
+            "every increment takes the same time ({:e}) and the routine's stress depends on it (twice that \
+             time changed the stress of the first increment): the tangent was checked at that time increment \
+             only, where one that leaves out its dependence on the time may still agree; vary `dtime` along \
+             the path",
+            path.increments[0].dtime
         ));
     }
     if !unloaded && !stopped && increments.len() > 1 {

@@ -99,8 +99,7 @@ pub struct Driver {
     n: usize,
     props: Vec<f64>,
     start: PointState,
-    /// The state the driver was made with: the start of the path it walks (the diagnosis's
-    /// initial-stiffness trial). None for a driver made at a call with no path before it.
+    /// The start of the path it walks (initial-stiffness trial); None without a path before.
     origin: Option<Box<PointState>>,
     dstrain: Vec<f64>,
     /// The increment as set, before any rescaling.
@@ -249,8 +248,7 @@ impl Driver {
         self.dstrain_changed();
     }
 
-    /// Set the time increment to `t` times the one set by [`Driver::set_increment`], the strain
-    /// and temperature increments as they are (the base call must be made again).
+    /// The time increment to `t` times the one set (the base call must be made again).
     pub fn rescale_time(&mut self, t: f64) {
         self.dtime = t * self.full_dtime;
     }

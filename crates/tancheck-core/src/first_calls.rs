@@ -65,6 +65,33 @@ pub fn zero_increment(
     Ok(Some(result))
 }
 
+/// Whether the routine's stress over the increment `inc` from `start` depends on the time
+/// increment: the increment's base call made with its time increment and with twice it, the
+/// stresses compared bit for bit. `None` when a call fails, the increment takes no time
+/// or is under held stresses (nothing is learnt; the check meets the increment's own call
+/// anyway). Two calls.
+pub fn depends_on_time(
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    props: &[f64],
+    start: &PointState,
+    inc: &crate::path::PathIncrement,
+) -> Option<bool> {
+    // (An increment under held stresses has its strain solved for: not this one.)
+    if inc.dtime == 0.0 || inc.hold_stress.is_some() {
+        return None;
+    }
+    let mut d = Driver::new(info, props, start.clone()).ok()?;
+    let mut dstrain = vec![0.0; info.convention.ncomp()];
+    info.convention.strain_from_canonical(&inc.dstrain, &mut dstrain);
+    d.set_increment(&dstrain, inc.dtemp, inc.dtime);
+    d.base_call(caller).ok()?;
+    let stress = d.base.stress.clone();
+    d.set_dtime_keep_count(2.0 * inc.dtime);
+    d.base_call(caller).ok()?;
+    Some(stress.iter().zip(&d.base.stress).any(|(a, b)| a.to_bits() != b.to_bits()))
+}
+
 /// Branches reached so far, as (reported id, state changed).
 #[derive(Clone, Default)]
 pub struct Branches(Vec<(Option<i32>, bool)>);

@@ -31,6 +31,8 @@ pub mod scalar;
 pub mod schemes;
 pub mod settings;
 #[cfg(test)]
+mod time_tests;
+#[cfg(test)]
 pub(crate) mod worked;
 
 pub use convention::{Component, Convention, PointKind, ShearMeasure};

@@ -106,8 +106,9 @@ pub fn write_check(
     let finding = if finding.is_empty() { String::new() } else { format!(" ({finding})") };
     writeln!(
         out,
-        "verdict: {}{finding}   ({} calls, {} complex)",
+        "verdict: {}{finding} (exit {})   ({} calls, {} complex)",
         p.verdict(&word),
+        report.verdict.exit_code(),
         report.calls,
         report.complex_calls
     )?;
@@ -148,7 +149,7 @@ fn write_check_quiet(out: &mut dyn Write, report: &FiniteReport, p: Palette) -> 
     }
     let (word, finding) = verdict_word(report);
     let finding = if finding.is_empty() { String::new() } else { format!(" ({finding})") };
-    writeln!(out, "verdict: {}{finding}", p.verdict(&word))
+    writeln!(out, "verdict: {}{finding} (exit {})", p.verdict(&word), report.verdict.exit_code())
 }
 
 /// The readable report of the probes. `quiet`: one line per failing probe and the verdict.
@@ -176,7 +177,11 @@ pub fn write_probes(
         }
     }
     let failed = report.probes.iter().filter(|r| !r.passed).count();
-    let word = if failed == 0 { p.pass("PASS") } else { format!("{} ({failed} probes)", p.fail("FAIL")) };
+    let word = if failed == 0 {
+        format!("{} (exit 0)", p.pass("PASS"))
+    } else {
+        format!("{} ({failed} probes; exit 1)", p.fail("FAIL"))
+    };
     writeln!(out, "verdict: {word}")?;
     if !quiet {
         for c in &report.cautions {

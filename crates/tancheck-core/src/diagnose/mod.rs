@@ -21,8 +21,6 @@ use crate::settings::Settings;
 
 pub mod causes;
 pub mod decide;
-#[cfg(test)]
-mod elastic_time_tests;
 pub mod kink;
 pub mod study;
 pub mod temp_kink;

@@ -67,6 +67,16 @@ impl FinitePathSpec {
             if n == 0 {
                 return Err("a path needs at least one increment".to_string());
             }
+            if let Some(r) = rot {
+                let l = r.axis.iter().map(|x| x * x).sum::<f64>().sqrt();
+                if !(l > 0.0 && l.is_finite() && r.angle.is_finite()) {
+                    return Err(format!(
+                        "rotation: the axis {:?} must be a nonzero vector of finite numbers and the angle {} a \
+                         finite number (radians)",
+                        r.axis, r.angle
+                    ));
+                }
+            }
             let mut g = Vec::with_capacity(n + 1);
             for k in 0..=n {
                 let t = k as f64 / n as f64;
@@ -141,5 +151,17 @@ mod tests {
         let bad: Result<FinitePathSpec, _> =
             serde_json::from_str(r#"{"shape": "gradients", "gradients": [[1,0,0, 0,-1,0, 0,0,1]]}"#);
         assert!(bad.unwrap().build().unwrap_err().contains("det F"));
+    }
+
+    // A zero rotation axis is named (it was told as "det F = NaN").
+    #[test]
+    fn a_zero_rotation_axis_is_named() {
+        let p = FinitePathSpec::UniaxialStretch {
+            stretch: 1.5,
+            increments: 2,
+            rotation: Some(Superposed { axis: [0.0; 3], angle: 0.7 }),
+        };
+        let e = p.build().unwrap_err();
+        assert!(e.contains("rotation: the axis") && !e.contains("det F"), "{e}");
     }
 }

@@ -20,7 +20,7 @@ impl Probe for ZeroIncrement {
         // The worst change of the stress, where it was; and the first increment where the
         // fault appeared (a change beyond `tol`, or an output that is not finite), with what.
         let mut worst = (0.0f64, 0usize);
-        let mut first: Option<(usize, bool, f64)> = None;
+        let mut first: Option<(usize, bool, f64, f64)> = None;
         let walked = walk(caller, env, |k, d, c| {
             if !env.spec.runs_at(k) {
                 return Ok(());
@@ -48,7 +48,7 @@ impl Probe for ZeroIncrement {
                 worst = (diff, k);
             }
             if first.is_none() && (!finite || diff > tol) {
-                first = Some((k, finite, diff));
+                first = Some((k, finite, diff, scale));
             }
             Ok(())
         });
@@ -63,13 +63,19 @@ impl Probe for ZeroIncrement {
                 None => {
                     format!("returns the start stress (worst change {:.2e}) and a finite tangent", worst.0)
                 }
-                Some((k, false, _)) => format!(
+                Some((k, false, ..)) => format!(
                     "a zero increment gives a stress or tangent that is not finite, first at increment {k}"
                 ),
-                Some((k, true, diff)) => format!(
-                    "a zero increment changes the stress by {diff:.2e} of its scale, first at increment {k} \
-                     (worst {:.2e} at increment {})",
-                    worst.0, worst.1
+                Some((k, true, diff, scale)) => format!(
+                    "a zero increment changes the stress by {diff:.2e} {}, first at increment {k} (worst {:.2e} at \
+                     increment {})",
+                    if scale > 1.0 {
+                        "of the largest start stress"
+                    } else {
+                        "(in stress units: the start stress is below 1)"
+                    },
+                    worst.0,
+                    worst.1
                 ),
             },
         );
