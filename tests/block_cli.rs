@@ -113,6 +113,8 @@ fn check_and_probe(lang: &str) {
     assert_eq!(code, 1);
     let xml = std::fs::read_to_string(&xml_bad).unwrap();
     assert!(xml.contains("<failure") && xml.contains("stiffer-than-elastic"), "{xml}");
+    // A block check's finding is typed as such, not as a tangent's.
+    assert!(xml.contains(r#"type="block-finding""#) && !xml.contains("tangent-finding"), "{xml}");
 
     // The counterpart names a block routine whose update differs from the point routine's.
     let drift = manifest(&d, "drift.json", lib, &format!("{lang}_j2_block_total_back_stress"), &counterpart);

@@ -301,7 +301,12 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
                         None => format!("{}: {}", f.finding, f.what),
                     })
                     .collect();
-                failure(format!("finding {}", f.finding), kind, Some(text.join("\n")))
+                let mut s = failure(format!("finding {}", f.finding), kind, Some(text.join("\n")));
+                // A block check's finding is no tangent's (deletion, energy, counterpart, …).
+                if kind == NonSuccessKind::Failure {
+                    s.set_type("block-finding");
+                }
+                s
             }
         };
         suite.add_test_case(TestCase::new(check.name(), status));
