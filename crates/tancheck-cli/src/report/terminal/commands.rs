@@ -107,6 +107,18 @@ pub fn suite(
     Ok(())
 }
 
+/// The errors on the two sides of a crossing, to three digits, or to seven when they read the
+/// same at three (a crossing of the tolerance inside a branch read "agrees (error 1.00e-10)"
+/// beside "differs (error 1.00e-10)").
+fn crossing_errors(below: f64, above: f64) -> (String, String) {
+    let (b, a) = (format!("{below:.2e}"), format!("{above:.2e}"));
+    if b == a {
+        (format!("{below:.6e}"), format!("{above:.6e}"))
+    } else {
+        (b, a)
+    }
+}
+
 fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<()> {
     writeln!(
         out,
@@ -125,19 +137,18 @@ fn write_located(out: &mut dyn Write, l: &Located, indent: &str) -> io::Result<(
                 c.above,
                 c.above - c.below
             )?;
+            let (below, above) = crossing_errors(c.error_below, c.error_above);
             writeln!(
                 out,
-                "{indent}  below: branch {}, {} (error {:.2e})",
+                "{indent}  below: branch {}, {} (error {below})",
                 c.class_below.branch_label(),
                 c.class_below.word(),
-                c.error_below
             )?;
             writeln!(
                 out,
-                "{indent}  above: branch {}, {} (error {:.2e})",
+                "{indent}  above: branch {}, {} (error {above})",
                 c.class_above.branch_label(),
                 c.class_above.word(),
-                c.error_above
             )?;
             if c.within_branch() {
                 writeln!(out, "{indent}  {}", tancheck_core::bisect::Crossing::WITHIN_BRANCH)?;
@@ -460,4 +471,16 @@ fn worst_two(worst: &[tancheck_core::case::ProbeEntry], pass: bool, tol: Option<
             )
         })
         .collect()
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn errors_that_read_the_same_get_more_digits() {
+        assert_eq!(
+            super::crossing_errors(9.9996e-11, 1.00002e-10),
+            ("9.999600e-11".into(), "1.000020e-10".into())
+        );
+        assert_eq!(super::crossing_errors(1e-12, 3e-3), ("1.00e-12".into(), "3.00e-3".into()));
+    }
 }
