@@ -214,6 +214,8 @@ fn finite_reports_through_the_reporters() {
         serde_json::from_str(&std::fs::read_to_string(path("c.json")).unwrap()).unwrap();
     assert_eq!(v["kind"], "finite-check");
     assert_eq!(v["finding"], "missing-over-j");
+    // The exit code is in the report, as in the point routines' reports.
+    assert_eq!(v["exit_code"], 1, "{v}");
     assert!(validator.is_valid(&v), "{v}");
     let html = std::fs::read_to_string(path("c.html")).unwrap();
     assert!(html.contains("f_nh_missing_over_j") && html.contains("missing-over-j"), "{html}");
@@ -224,10 +226,12 @@ fn finite_reports_through_the_reporters() {
     let v: serde_json::Value =
         serde_json::from_str(&std::fs::read_to_string(path("p.json")).unwrap()).unwrap();
     assert_eq!(v["kind"], "finite-probes");
+    assert_eq!(v["exit_code"], 0, "{v}");
     assert!(validator.is_valid(&v), "{v}");
     assert!(std::fs::read_to_string(path("p.xml")).unwrap().contains("<testcase name=\"stretch-rotate\""));
     // -q: the failing increments and the verdict, no cautions; a pass prints its verdict only
     let (_, out) = tancheck(&["check", &good, "-q"]);
+    assert!(out.contains("verdict: PASS (exit 0)"), "{out}");
     assert!(out.contains("verdict: PASS") && !out.contains("increment") && !out.contains("caution"), "{out}");
     // A failing check under -q: one line per failing increment, its largest entry named as a
     // component pair (not 0-based indices), and the verdict.

@@ -10,7 +10,6 @@ use tancheck_core::finite::path::FinitePath;
 use tancheck_core::finite::probe::{run_all, FiniteProbeReport};
 use tancheck_core::finite::routine::FiniteRoutine;
 
-use crate::exit;
 use crate::finite_load::{open, FiniteManifest};
 use crate::report::Reporter;
 use crate::session::{reporters, OutputArgs};
@@ -83,7 +82,7 @@ pub fn check(
     let mut out = reporters(output, json);
     out.finite_check(&report)?;
     out.finish()?;
-    Ok(report.verdict.exit_code())
+    Ok(report.exit_code)
 }
 
 /// `tancheck probe` on a finite-strain manifest.
@@ -100,5 +99,5 @@ pub fn probe(
     let mut out = reporters(output, json);
     out.finite_probes(&report)?;
     out.finish()?;
-    Ok(if report.passed { exit::PASS } else { exit::TANGENT_FAILURE })
+    Ok(report.exit_code)
 }

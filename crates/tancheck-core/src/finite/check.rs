@@ -84,6 +84,9 @@ pub struct FiniteReport {
     pub settings: FiniteSettings,
     pub increments: Vec<FiniteIncrement>,
     pub verdict: Verdict,
+    /// The exit code of the verdict (as `tancheck check` exits).
+    #[serde(default)]
+    pub exit_code: i32,
     /// The cause of most failing increments (`unexplained` when none fits).
     pub finding: Option<String>,
     /// The routine failed or crashed at this increment.
@@ -131,6 +134,7 @@ pub fn run(
         settings,
         increments: Vec::new(),
         verdict: Verdict::Pass,
+        exit_code: 0,
         finding: None,
         fault: None,
         twin_not_safe: None,
@@ -246,5 +250,6 @@ pub fn run(
         report.verdict = Verdict::TwinNotSafe;
         report.finding = Some("twin-not-complex-step-safe".into());
     }
+    report.exit_code = report.verdict.exit_code();
     report
 }

@@ -58,15 +58,20 @@ pub struct FiniteProbeReport {
     pub routine: String,
     /// Every probe passed.
     pub passed: bool,
+    /// The exit code (0 when every probe passed, else 1, as `tancheck probe` exits).
+    #[serde(default)]
+    pub exit_code: i32,
     pub probes: Vec<FiniteProbeResult>,
     pub cautions: Vec<String>,
 }
 
 impl FiniteProbeReport {
     pub fn new(routine: &str, probes: Vec<FiniteProbeResult>) -> FiniteProbeReport {
+        let passed = probes.iter().all(|p| p.passed);
         FiniteProbeReport {
             routine: routine.to_string(),
-            passed: probes.iter().all(|p| p.passed),
+            passed,
+            exit_code: if passed { 0 } else { 1 },
             probes,
             cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
         }
