@@ -11,6 +11,15 @@ use crate::convention::{Convention, PointKind, ShearMeasure};
 use crate::routine::{CallInput, CallOutput, Fault, Model, ModelRoutine, RoutineInfo};
 use crate::scalar::Scalar;
 
+/// Status 0, and zero ∂σ/∂T and energies: what the bars of these tests return beside their
+/// stress, state and tangent.
+fn no_extras<S: Scalar>(out: &mut CallOutput<'_, S>) {
+    out.outcome.status = 0;
+    out.dstress_dtemp[0] = S::zero();
+    out.energy[0] = S::zero();
+    out.energy[1] = S::zero();
+}
+
 #[derive(Clone, Debug)]
 pub struct Bar {
     info: RoutineInfo,
@@ -49,10 +58,7 @@ impl Model for Bar {
         let (ep, alpha) = (input.state0[0], input.state0[1]);
         let trial = e * (input.strain[0] + input.dstrain[0] - ep);
         let f = trial.abs() - (sy + h * alpha);
-        out.outcome.status = 0;
-        out.dstress_dtemp[0] = S::zero();
-        out.energy[0] = S::zero();
-        out.energy[1] = S::zero();
+        no_extras(out);
         if f.re() <= 0.0 {
             out.stress[0] = trial;
             out.state[0] = ep;
@@ -130,11 +136,8 @@ impl Model for DamageBar {
         } else {
             (S::one() - d) * e
         };
-        out.outcome.status = 0;
+        no_extras(out);
         out.outcome.branch = i32::from(grows);
-        out.dstress_dtemp[0] = S::zero();
-        out.energy[0] = S::zero();
-        out.energy[1] = S::zero();
         Ok(())
     }
 }
@@ -174,11 +177,8 @@ impl Model for ViscousBar {
         out: &mut CallOutput<'_, S>,
     ) -> Result<(), Fault> {
         let (e, eta, dt) = (input.props[0], input.props[1], input.time[1]);
-        out.outcome.status = 0;
+        no_extras(out);
         out.outcome.branch = 0;
-        out.dstress_dtemp[0] = S::zero();
-        out.energy[0] = S::zero();
-        out.energy[1] = S::zero();
         out.stress[0] = e * (input.strain[0] + input.dstrain[0]) + eta * input.dstrain[0] / dt;
         out.tangent[0] = if self.unit_time { e + eta } else { e + eta / dt };
         Ok(())

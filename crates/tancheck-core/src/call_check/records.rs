@@ -27,10 +27,7 @@ pub fn call_record(d: &Driver, perturbation: Option<String>) -> CallRecord {
 pub fn fault_record_of_call(f: &Fault, c: FaultedCall, what: &str) -> FaultRecord {
     FaultRecord {
         message: f.to_string(),
-        signal: match f {
-            Fault::Crashed { signal, .. } => Some(*signal),
-            _ => None,
-        },
+        signal: signal_of(f),
         call: CallRecord {
             increment: c.increment,
             perturbation: Some(match c.imaginary {
@@ -52,12 +49,13 @@ pub fn fault_record_of_call(f: &Fault, c: FaultedCall, what: &str) -> FaultRecor
 
 /// A fault with the inputs of the driver's current call.
 pub fn fault_record(f: &Fault, d: &Driver, perturbation: Option<String>) -> FaultRecord {
-    FaultRecord {
-        message: f.to_string(),
-        signal: match f {
-            Fault::Crashed { signal, .. } => Some(*signal),
-            _ => None,
-        },
-        call: call_record(d, perturbation),
+    FaultRecord { message: f.to_string(), signal: signal_of(f), call: call_record(d, perturbation) }
+}
+
+/// The signal of a crash, if the fault is one.
+fn signal_of(f: &Fault) -> Option<i32> {
+    match f {
+        Fault::Crashed { signal, .. } => Some(*signal),
+        _ => None,
     }
 }
