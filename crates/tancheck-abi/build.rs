@@ -38,6 +38,7 @@ fn main() {
     println!("cargo:rerun-if-changed={}", guard.display());
     println!("cargo:rerun-if-changed={}", include.join("tancheck_routine.h").display());
     println!("cargo:rerun-if-changed={}", shim.join("src/guard_block.inc").display());
+    println!("cargo:rerun-if-changed={}", shim.join("src/guard_sweep.inc").display());
     println!("cargo:rerun-if-changed={}", include.join("tancheck_block.h").display());
     cc::Build::new()
         .file(&guard)

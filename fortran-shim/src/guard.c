@@ -1315,6 +1315,10 @@ void tc_guard_finite_layout(uint64_t out[2]) {
 
 #include "guard_block.inc"
 
+/* ---- the columns of a derivative scheme in one entry (see guard_sweep.inc) ---------- */
+
+#include "guard_sweep.inc"
+
 /* ---- layout and constants, for the Rust side's checks ------------------------------ */
 
 /* Sizes and offsets of the structs both sides share; see guard.rs. */

@@ -211,6 +211,51 @@ pub trait Routine {
     /// of its own (a shrink's candidate paths) forgets before each run, and a candidate that
     /// misbehaves the same way faults again.
     fn forget_guard_findings(&mut self) {}
+
+    /// The perturbed calls of one derivative scheme's strain columns in one go, where the
+    /// routine can make them with less around each call than one [`Routine::call`] each (a
+    /// loaded library without memory guards: one guarded entry for all of them). `None` (the
+    /// default): nothing was called, the caller makes the calls one by one. See [`Sweep`].
+    fn sweep_real(&mut self, _sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
+        None
+    }
+
+    /// [`Routine::sweep_real`] for the complex-step twin: the steps are imaginary parts.
+    fn sweep_complex(&mut self, _sweep: Sweep<'_, '_, Complex64>) -> Option<SweepEnd> {
+        None
+    }
+}
+
+/// The perturbed calls of one scheme along strain components 0 .. `ncols`: for each column j,
+/// for each step in turn, exactly the call [`Caller::call`] (or [`Caller::call_complex`])
+/// would make with `input` (whose `dstrain` is the increment as set, and `want_tangent` off)
+/// and dstrain[j] moved by the step (real), or given the step as its imaginary part (complex):
+/// outputs pre-filled with NaN, the outcome reset. A step above 0 writes `output`, any other
+/// `output_neg` when given (else `output` too); every call's stress is also
+/// copied into `stresses`, call after call (ncols × steps × ncomp entries). The routine never
+/// sees what an earlier call wrote into its increment. The sweep stops after a call that
+/// faulted.
+pub struct Sweep<'s, 'o, S> {
+    pub input: CallInput<'s, S>,
+    /// The increment as set, in real numbers (the real parts of a complex input's).
+    pub kept: &'s [f64],
+    pub steps: &'s [f64],
+    pub ncols: usize,
+    pub output: &'s mut CallOutput<'o, S>,
+    pub output_neg: Option<&'s mut CallOutput<'o, S>>,
+    pub stresses: &'s mut [S],
+}
+
+/// The column and the step of a sweep's call `k` (from 0).
+pub fn call_at(steps: &[f64], k: usize) -> (usize, f64) {
+    (k / steps.len(), steps[k % steps.len()])
+}
+
+/// How a sweep ended: the calls made, and the fault of the last one when it faulted.
+#[derive(Debug)]
+pub struct SweepEnd {
+    pub calls: usize,
+    pub result: Result<(), Fault>,
 }
 
 /// The [`Routine`] methods a wrapper passes on to the routine it wraps (its field `inner`):
@@ -458,6 +503,35 @@ impl<'r> Caller<'r> {
             self.faulted = Some(Box::new(FaultedCall::of_real(input)));
         }
         r
+    }
+
+    /// A sweep of real calls ([`Routine::sweep_real`]), each call counted; `None` when the
+    /// routine makes its calls one by one (then nothing was called).
+    pub fn sweep_real(&mut self, sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
+        let (input, kept, steps) = (sweep.input, sweep.kept, sweep.steps);
+        let end = self.routine.sweep_real(sweep)?;
+        self.real_calls += end.calls as u64;
+        if end.result.is_err() {
+            let (j, step) = call_at(steps, end.calls - 1);
+            let mut d = kept.to_vec();
+            d[j] += step;
+            self.faulted = Some(Box::new(FaultedCall::of_real(&CallInput { dstrain: &d, ..input })));
+        }
+        Some(end)
+    }
+
+    /// A sweep of complex calls ([`Routine::sweep_complex`]), as [`Caller::sweep_real`].
+    pub fn sweep_complex(&mut self, sweep: Sweep<'_, '_, Complex64>) -> Option<SweepEnd> {
+        let (input, kept, steps) = (sweep.input, sweep.kept, sweep.steps);
+        let end = self.routine.sweep_complex(sweep)?;
+        self.complex_calls += end.calls as u64;
+        if end.result.is_err() {
+            let (j, step) = call_at(steps, end.calls - 1);
+            let mut d: Vec<Complex64> = kept.iter().map(|&x| Complex64::new(x, 0.0)).collect();
+            d[j].im = step;
+            self.faulted = Some(Box::new(FaultedCall::of_complex(&CallInput { dstrain: &d, ..input })));
+        }
+        Some(end)
     }
 
     /// The inputs of the last call that faulted, taken (see [`FaultedCall`]).

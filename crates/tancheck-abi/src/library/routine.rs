@@ -4,7 +4,7 @@
 use std::ffi::CString;
 
 use num_complex::Complex64;
-use tancheck_core::routine::status_fault;
+use tancheck_core::routine::{status_fault, Sweep, SweepEnd};
 use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Outcome, Routine, RoutineInfo};
 
 use crate::error::{LoadError, TrapError};
@@ -14,6 +14,8 @@ use crate::signal_guard::{
 };
 
 use super::{call_sizes, Library};
+
+mod sweep;
 
 /// One routine of a loaded library (or given by its function pointers), callable as a
 /// [`Routine`] through the guarded trampoline and the memory guards of [`crate::guards`].
@@ -353,6 +355,15 @@ impl Routine for LibraryRoutine {
 
     fn absorb_guard_extra_calls(&mut self, n: u64) {
         self.findings.extra_calls += n;
+    }
+
+    /// With the guards off: one guarded entry for all the calls (see `sweep`).
+    fn sweep_real(&mut self, sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
+        self.sweep_real_calls(sweep)
+    }
+
+    fn sweep_complex(&mut self, sweep: Sweep<'_, '_, Complex64>) -> Option<SweepEnd> {
+        self.sweep_complex_calls(sweep)
     }
 }
 

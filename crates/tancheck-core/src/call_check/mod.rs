@@ -21,8 +21,10 @@ use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
+mod columns;
 mod records;
 mod straddle;
+use columns::{strain_columns, ColumnCalls};
 pub use records::{call_record, fault_record, fault_record_of_call};
 use straddle::{kink_straddled, one_sided_distance, straddle_level, TEMPERATURE_BIT};
 
@@ -247,26 +249,18 @@ pub fn measure_call(
             m.outcome = Some(CheckOutcome::Skipped { reason: "no complex twin".into() });
             continue;
         }
-        for j in 0..n {
-            let r =
-                scheme.column(driver, caller, Direction::Strain(j), h, &mut m.tangent[j * n..(j + 1) * n]);
-            if r.is_ok() && scheme == Scheme::ComplexStep {
-                let gap = driver
-                    .cplx
-                    .stress
-                    .iter()
-                    .zip(&driver.base.stress)
-                    .map(|(c, b)| (c.re - b).abs())
-                    .fold(0.0, f64::max)
+        let seen = |j: usize, c: ColumnCalls<'_>| {
+            if scheme == Scheme::ComplexStep {
+                let gap = c.cplx.iter().zip(c.base).map(|(c, b)| (c.re - b).abs()).fold(0.0, f64::max)
                     / stress_scale;
                 twin_real_gap =
                     Some(twin_real_gap.unwrap_or(0.0).max(if gap.is_nan() { f64::INFINITY } else { gap }));
             }
-            if r.is_ok() && scheme == Scheme::Central {
+            if scheme == Scheme::Central {
                 let d = one_sided_distance(
-                    &driver.base.stress[..n],
-                    &driver.plus.stress[..n],
-                    &driver.minus.stress[..n],
+                    &c.base[..n],
+                    &c.plus[..n],
+                    &c.minus[..n],
                     &returned[j * n..(j + 1) * n],
                     h,
                     column_floor,
@@ -276,14 +270,11 @@ pub fn measure_call(
                     straddle_distance[j] = d;
                 }
             }
-            if let Err(f) = r {
-                let what = format!(
-                    "dstrain[{j}] {} {h:.3e}",
-                    if scheme == Scheme::ComplexStep { "+ i" } else { "±" }
-                );
-                m.outcome = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
-                break;
-            }
+        };
+        if let Err((j, f)) = strain_columns(scheme, driver, caller, h, &mut m.tangent[..n * n], seen) {
+            let what =
+                format!("dstrain[{j}] {} {h:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
+            m.outcome = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
         }
         if returned_dtemp.is_some() {
             let ht = ss.rel_step * h_temp_scale;

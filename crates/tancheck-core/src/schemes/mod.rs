@@ -73,6 +73,18 @@ impl Scheme {
         }
     }
 
+    /// The difference formula of a scheme that is one table of samples (all but Richardson
+    /// and the complex step).
+    pub(crate) fn stencil(self) -> Option<&'static Stencil> {
+        match self {
+            Scheme::Forward => Some(&forward::STENCIL),
+            Scheme::Backward => Some(&backward::STENCIL),
+            Scheme::Central => Some(&central::STENCIL),
+            Scheme::Central4 => Some(&central4::STENCIL),
+            Scheme::Richardson | Scheme::ComplexStep => None,
+        }
+    }
+
     /// Fill `col` with the derivative of the stress along `dir`, step `h`.
     pub fn column(
         self,
@@ -159,6 +171,54 @@ impl Stencil {
             *c /= div;
         }
         Ok(())
+    }
+
+    /// The steps of one column's calls at step `h` besides the base call, in call order (k·h
+    /// where it is not 0), into `steps`; returns how many.
+    pub(crate) fn steps(&self, h: f64, steps: &mut [f64; 4]) -> usize {
+        let mut count = 0;
+        // A step of 0 is the base call, as in `Samples::stress`.
+        for &(k, _) in self.points.iter().filter(|(k, _)| k * h != 0.0) {
+            steps[count] = k * h;
+            count += 1;
+        }
+        count
+    }
+
+    /// [`Stencil::column`] from stresses already made: `base` the base call's, `at(i)` that of
+    /// the i-th call besides it (in the order of [`Stencil::steps`]). The same arithmetic in
+    /// the same order, so the column is the same to the bit.
+    pub(crate) fn combine<'a>(
+        &self,
+        h: f64,
+        base: &'a [f64],
+        at: impl Fn(usize) -> &'a [f64],
+        col: &mut [f64],
+    ) {
+        let mut call = 0;
+        let mut sample = |k: f64| {
+            if k * h == 0.0 {
+                base
+            } else {
+                call += 1;
+                at(call - 1)
+            }
+        };
+        let Some((&(k0, w0), rest)) = self.points.split_first() else {
+            return;
+        };
+        for (c, s) in col.iter_mut().zip(sample(k0)) {
+            *c = w0 * s;
+        }
+        for &(k, w) in rest {
+            for (c, s) in col.iter_mut().zip(sample(k)) {
+                *c += w * s;
+            }
+        }
+        let div = self.div * h;
+        for c in col.iter_mut() {
+            *c /= div;
+        }
     }
 
     /// The same formula on a scalar function.
