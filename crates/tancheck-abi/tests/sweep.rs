@@ -7,7 +7,7 @@
 use num_complex::Complex64;
 use tancheck_abi::{GuardLevel, Library, LibraryRoutine};
 use tancheck_core::check;
-use tancheck_core::driver::PointState;
+use tancheck_core::driver::{Outputs, PointState};
 use tancheck_core::path::{Path, Shape};
 use tancheck_core::report::Keep;
 use tancheck_core::routine::Sweep;
@@ -64,7 +64,8 @@ fn check_with(r: &mut dyn Routine, props: &[f64], path: &Path, settings: &Settin
     (report, caller.real_calls, caller.complex_calls)
 }
 
-/// The check of `symbol` made with sweeps and one call at a time: the same to the bit.
+/// The check of `symbol` made with sweeps and one call at a time, at each guard level (a new
+/// handle for each check, so that no guard finding carries over): the same to the bit.
 fn same_either_way(
     lib: &std::path::Path,
     symbol: &str,
@@ -72,19 +73,28 @@ fn same_either_way(
     props: &[f64],
     path: &Path,
 ) -> Report {
-    let mut r = Library::open(lib).unwrap().routine(symbol, info).unwrap();
-    r.set_guard_level(GuardLevel::Off);
+    let open = |level| {
+        let mut r = Library::open(lib).unwrap().routine(symbol, info.clone()).unwrap();
+        r.set_guard_level(level);
+        r
+    };
     let mut swept = None;
-    for schemes in [
-        vec![Scheme::Central, Scheme::ComplexStep],
-        vec![Scheme::Forward, Scheme::Backward, Scheme::Central4, Scheme::Richardson],
-    ] {
-        let settings = Settings { schemes, jobs: 1, ..Default::default() };
-        let a = check_with(&mut r, props, path, &settings);
-        let b = check_with(&mut OneByOne { inner: &mut r }, props, path, &settings);
-        assert_eq!(format!("{:?}", a.0), format!("{:?}", b.0), "{symbol}: the reports differ");
-        assert_eq!((a.1, a.2), (b.1, b.2), "{symbol}: other calls");
-        swept.get_or_insert(a.0);
+    for level in [GuardLevel::Off, GuardLevel::Light, GuardLevel::Full] {
+        for schemes in [
+            vec![Scheme::Central, Scheme::ComplexStep],
+            vec![Scheme::Forward, Scheme::Backward, Scheme::Central4, Scheme::Richardson],
+        ] {
+            let settings = Settings { schemes, jobs: 1, ..Default::default() };
+            let a = check_with(&mut open(level), props, path, &settings);
+            let b = check_with(&mut OneByOne { inner: &mut open(level) }, props, path, &settings);
+            assert_eq!(
+                format!("{:?}", a.0),
+                format!("{:?}", b.0),
+                "{symbol}, guards {level:?}: the reports differ"
+            );
+            assert_eq!((a.1, a.2), (b.1, b.2), "{symbol}, guards {level:?}: other calls");
+            swept.get_or_insert(a.0);
+        }
     }
     swept.expect("checked")
 }
@@ -149,10 +159,8 @@ fn the_j2_routines_check_the_same_with_and_without_sweeps() {
 
 #[test]
 fn only_a_routine_without_guards_sweeps() {
-    let mut r =
-        Library::open(faults_library()).unwrap().routine("sweep_status", info("sweep_status", 2, 2)).unwrap();
     let (props, strain, d, stress0, state0) =
-        ([2e5, 0.3], [0.0; 6], [1e-4, 0.0, 0.0, 0.0, 0.0, 0.0], [0.0; 6], [0.0; 2]);
+        ([2e5, 0.3], [0.0; 6], [1e-4, 0.0, -0.0, 0.0, 0.0, 0.0], [0.0; 6], [0.0; 2]);
     let input = CallInput {
         props: &props,
         strain: &strain,
@@ -164,13 +172,14 @@ fn only_a_routine_without_guards_sweeps() {
         increment: 1,
         want_tangent: false,
     };
-    let mut outs = [
-        tancheck_core::driver::Outputs::new(6, 2, f64::NAN),
-        tancheck_core::driver::Outputs::new(6, 2, f64::NAN),
-    ];
     let mut stresses = [0.0; 72];
-    let mut sweep_at = |r: &mut LibraryRoutine, level| {
+    let mut sweep_at = |level| {
+        let mut r = Library::open(faults_library())
+            .unwrap()
+            .routine("sweep_status", info("sweep_status", 2, 2))
+            .unwrap();
         r.set_guard_level(level);
+        let mut outs = [Outputs::new(6, 2, 0.0), Outputs::new(6, 2, 0.0)];
         let [p, m] = &mut outs;
         let (mut p, mut m) = (p.view(), m.view());
         r.sweep_real(Sweep {
@@ -182,11 +191,12 @@ fn only_a_routine_without_guards_sweeps() {
             output_neg: Some(&mut m),
             stresses: &mut stresses,
         })
-        .map(|end| end.calls)
+        .map(|end| (end.calls, end.result.is_ok()))
     };
-    assert_eq!(sweep_at(&mut r, GuardLevel::Light), None);
-    assert_eq!(sweep_at(&mut r, GuardLevel::Full), None);
-    assert_eq!(sweep_at(&mut r, GuardLevel::Off), Some(12));
+    // With guards, each call is checked on its own: the caller makes them one by one.
+    assert_eq!(sweep_at(GuardLevel::Light), None);
+    assert_eq!(sweep_at(GuardLevel::Full), None);
+    assert_eq!(sweep_at(GuardLevel::Off), Some((12, true)));
     // Column 3's −h call: stress0 + C (dstrain − h e₄) in engineering shear, μ = E / 2(1 + ν).
     let mu = 2e5 / (2.0 * 1.3);
     assert_eq!(stresses[7 * 6 + 3], mu * -1e-7);
