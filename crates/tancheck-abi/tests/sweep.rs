@@ -73,26 +73,38 @@ fn same_either_way(
     props: &[f64],
     path: &Path,
 ) -> Report {
+    same_at_levels(lib, symbol, info, props, path, &[GuardLevel::Off, GuardLevel::Light, GuardLevel::Full])
+}
+
+/// [`same_either_way`] at the given guard levels: the same reports, calls and guard findings.
+fn same_at_levels(
+    lib: &std::path::Path,
+    symbol: &str,
+    info: RoutineInfo,
+    props: &[f64],
+    path: &Path,
+    levels: &[GuardLevel],
+) -> Report {
     let open = |level| {
         let mut r = Library::open(lib).unwrap().routine(symbol, info.clone()).unwrap();
         r.set_guard_level(level);
         r
     };
     let mut swept = None;
-    for level in [GuardLevel::Off, GuardLevel::Light, GuardLevel::Full] {
+    for &level in levels {
         for schemes in [
             vec![Scheme::Central, Scheme::ComplexStep],
             vec![Scheme::Forward, Scheme::Backward, Scheme::Central4, Scheme::Richardson],
         ] {
             let settings = Settings { schemes, jobs: 1, ..Default::default() };
-            let a = check_with(&mut open(level), props, path, &settings);
-            let b = check_with(&mut OneByOne { inner: &mut open(level) }, props, path, &settings);
-            assert_eq!(
-                format!("{:?}", a.0),
-                format!("{:?}", b.0),
-                "{symbol}, guards {level:?}: the reports differ"
-            );
-            assert_eq!((a.1, a.2), (b.1, b.2), "{symbol}, guards {level:?}: other calls");
+            let (mut ra, mut rb) = (open(level), open(level));
+            let a = check_with(&mut ra, props, path, &settings);
+            let b = check_with(&mut OneByOne { inner: &mut rb }, props, path, &settings);
+            let what = format!("{symbol}, guards {level:?}");
+            assert_eq!(format!("{:?}", a.0), format!("{:?}", b.0), "{what}: the reports differ");
+            assert_eq!((a.1, a.2), (b.1, b.2), "{what}: other calls");
+            assert_eq!(ra.findings(), rb.findings(), "{what}: other guard findings");
+            assert_eq!(ra.guard_calls(), rb.guard_calls(), "{what}: other guard calls");
             swept.get_or_insert(a.0);
         }
     }
@@ -147,6 +159,28 @@ fn an_increment_written_by_the_routine_reaches_no_later_call() {
 }
 
 #[test]
+fn an_unwritten_output_and_a_written_input_in_the_middle_of_the_columns_end_as_one_by_one() {
+    same_either_way(faults_library(), "sweep_hole", info("sweep_hole", 2, 2), &[2e5, 0.3], &ramp());
+    same_either_way(
+        faults_library(),
+        "sweep_writes_input",
+        info("sweep_writes_input", 2, 2),
+        &[2e5, 0.3],
+        &ramp(),
+    );
+    // With the light guards, both are findings of the perturbed calls.
+    for (symbol, finding) in [
+        ("sweep_hole", "left state[1] unwritten"),
+        ("sweep_writes_input", "wrote to its read-only input strain"),
+    ] {
+        let mut r = Library::open(faults_library()).unwrap().routine(symbol, info(symbol, 2, 2)).unwrap();
+        let settings = Settings { jobs: 1, ..Default::default() };
+        let (report, _, _) = check_with(&mut r, &[2e5, 0.3], &ramp(), &settings);
+        assert!(faults(&report).contains(finding), "{symbol}: {}", faults(&report));
+    }
+}
+
+#[test]
 fn the_j2_routines_check_the_same_with_and_without_sweeps() {
     let lib = build_examples("sweep_j2", &["c/j2.c"]);
     let props = [210000.0, 0.3, 355.0, 0.0, 150.0, 12.0, 2500.0];
@@ -157,8 +191,47 @@ fn the_j2_routines_check_the_same_with_and_without_sweeps() {
     assert_eq!(bad.verdict, Verdict::TangentFailure);
 }
 
+/// The misbehaving routines of fortran-shim/examples/c/misbehave.c that end neither the
+/// process nor their call's thread (and whose results do not depend on the calls before: a
+/// check made twice must give the same report), each checked with sweeps and one call at a
+/// time at every guard level: the same reports and the same guard findings.
 #[test]
-fn only_a_routine_without_guards_sweeps() {
+fn misbehaving_routines_are_found_the_same_with_and_without_sweeps() {
+    let lib = build_examples("sweep_misbehave", &["c/misbehave.c"]);
+    for symbol in [
+        "bad_null_deref",
+        "bad_divide_by_zero",
+        "bad_state_overrun",
+        "bad_perturbed_overrun",
+        "bad_tangent_hole",
+        "bad_writes_strain",
+        "bad_scratch_increment",
+        "bad_unasked_tangent",
+        "bad_unguarded_norm",
+    ] {
+        same_either_way(lib, symbol, info(symbol, 0, 2), &[2e5, 0.3], &ramp());
+    }
+    // A read past the end of the properties reads what lies there: without guards, whatever
+    // memory follows them (not the same from check to check), in the guarded block its zone.
+    for symbol in ["bad_props_overread", "bad_branch_overread"] {
+        same_at_levels(
+            lib,
+            symbol,
+            info(symbol, 0, 2),
+            &[2e5, 0.3],
+            &ramp(),
+            &[GuardLevel::Light, GuardLevel::Full],
+        );
+    }
+    // The light guards see the perturbed calls' overrun, which only they make.
+    let mut r = Library::open(lib).unwrap().routine("bad_perturbed_overrun", info("p", 0, 2)).unwrap();
+    let settings = Settings { jobs: 1, ..Default::default() };
+    let (report, _, _) = check_with(&mut r, &[2e5, 0.3], &ramp(), &settings);
+    assert!(faults(&report).contains("wrote past the end of state"), "{}", faults(&report));
+}
+
+#[test]
+fn only_a_routine_without_full_guards_sweeps() {
     let (props, strain, d, stress0, state0) =
         ([2e5, 0.3], [0.0; 6], [1e-4, 0.0, -0.0, 0.0, 0.0, 0.0], [0.0; 6], [0.0; 2]);
     let input = CallInput {
@@ -172,8 +245,8 @@ fn only_a_routine_without_guards_sweeps() {
         increment: 1,
         want_tangent: false,
     };
-    let mut stresses = [0.0; 72];
-    let mut sweep_at = |level| {
+    let sweep_at = |level| {
+        let mut stresses = [0.0f64; 72];
         let mut r = Library::open(faults_library())
             .unwrap()
             .routine("sweep_status", info("sweep_status", 2, 2))
@@ -191,13 +264,15 @@ fn only_a_routine_without_guards_sweeps() {
             output_neg: Some(&mut m),
             stresses: &mut stresses,
         })
-        .map(|end| (end.calls, end.result.is_ok()))
+        .map(|end| (end.calls, end.result.is_ok(), stresses.map(f64::to_bits)))
     };
-    // With guards, each call is checked on its own: the caller makes them one by one.
-    assert_eq!(sweep_at(GuardLevel::Light), None);
+    // With the full guards, each call is checked on its own: the caller makes them one by one.
     assert_eq!(sweep_at(GuardLevel::Full), None);
-    assert_eq!(sweep_at(GuardLevel::Off), Some((12, true)));
+    let light = sweep_at(GuardLevel::Light).expect("the light guards sweep");
+    let off = sweep_at(GuardLevel::Off).expect("a routine without guards sweeps");
+    assert_eq!((off.0, off.1), (12, true));
+    assert_eq!(light, off);
     // Column 3's −h call: stress0 + C (dstrain − h e₄) in engineering shear, μ = E / 2(1 + ν).
     let mu = 2e5 / (2.0 * 1.3);
-    assert_eq!(stresses[7 * 6 + 3], mu * -1e-7);
+    assert_eq!(f64::from_bits(off.2[7 * 6 + 3]), mu * -1e-7);
 }

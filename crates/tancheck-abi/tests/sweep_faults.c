@@ -17,6 +17,8 @@
  *                   outputs it has not written: they must arrive as NaN)
  *   sweep_scratch   clears its increment after its update (a read-only input used as work
  *                   space), and leaves its report's message set
+ *   sweep_hole      leaves state[1] as it arrived (unwritten)
+ *   sweep_writes_input writes strain[2] (and stress0[1], unchanged) when dstrain[4] > 0
  */
 
 #include "tancheck_cstep.h"
@@ -118,5 +120,23 @@ TC_ROUTINE(sweep_scratch)
             ((tc_real *)dstrain)[i] = 0.0;
         }
         sweep_message(report, "sweep_scratch: the increment was used as work space");
+    }
+}
+
+TC_ROUTINE(sweep_hole)
+{
+    tc_real keep = state[1];
+    SWEEP_ELASTIC;
+    if (SWEEP_PERTURBED) {
+        state[1] = keep; /* left as it arrived: unwritten */
+    }
+}
+
+TC_ROUTINE(sweep_writes_input)
+{
+    SWEEP_ELASTIC;
+    if (SWEEP_PERTURBED && tc_re(dstrain[4]) > 0.0) {
+        ((tc_real *)stress0)[1] = stress0[1]; /* writes a read-only input (the same value) */
+        ((tc_real *)strain)[2] = 1.0;         /* and another, with a new one */
     }
 }

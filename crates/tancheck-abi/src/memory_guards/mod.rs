@@ -35,7 +35,7 @@ mod buffers;
 mod findings;
 pub mod report;
 
-pub(crate) use buffers::GuardBuffers;
+pub(crate) use buffers::{GuardBuffers, Moves, SweepArgs, SweepBlock};
 pub use findings::{FindingKind, Findings, GuardFinding};
 
 /// Guard entries after every array.

@@ -118,6 +118,8 @@ pub(crate) struct GuardBuffers<E> {
     /// call whose checks found every input, zone and the report's zone untouched. Then the next
     /// load writes the inputs and pre-fills the outputs in place, without restoring the block.
     clean: bool,
+    /// The block as loaded for a sweep (see `sweep`), made once with the block.
+    snapshot: Vec<E>,
 }
 
 /// Where a guarded call is: what a finding records besides the array.
@@ -150,6 +152,7 @@ impl<E: Element> GuardBuffers<E> {
             ncomp,
             report: ReportZone { report: Outcome::default(), zone: [REPORT_CANARY; REPORT_ZONE] },
             report_before: Outcome::default(),
+            snapshot: image.clone(),
             image,
             clean: false,
         }
@@ -547,6 +550,9 @@ fn same_call(a: &TcCall, b: &TcCall) -> bool {
         && a.time.to_bits() == b.time.to_bits()
         && a.dtime.to_bits() == b.dtime.to_bits()
 }
+
+mod sweep;
+pub(crate) use sweep::{Moves, SweepArgs, SweepBlock};
 
 #[cfg(test)]
 mod tests;
