@@ -39,10 +39,15 @@ pub(super) fn strain_columns(
                 let full = if end.result.is_ok() { n } else { call_at(&steps[..ns], end.calls - 1).0 };
                 let base = &driver.base.stress[..n];
                 for j in 0..full {
-                    let at = |i: usize| &stresses[(j * ns + i) * n..(j * ns + i + 1) * n];
-                    stencil.combine(h, base, at, &mut tangent[j * n..(j + 1) * n]);
+                    let calls = &stresses[j * ns * n..(j + 1) * ns * n];
+                    stencil.combine(h, base, calls, &mut tangent[j * n..(j + 1) * n]);
+                    // The column's last call with a step above 0 and with one below (the
+                    // central difference's two).
                     let last = |positive: bool| {
-                        (0..ns).rev().find(|&i| (steps[i] > 0.0) == positive).map_or(&[][..], at)
+                        (0..ns)
+                            .rev()
+                            .find(|&i| (steps[i] > 0.0) == positive)
+                            .map_or(&[][..], |i| &calls[i * n..(i + 1) * n])
                     };
                     seen(j, ColumnCalls { base, plus: last(true), minus: last(false), cplx: &[] });
                 }

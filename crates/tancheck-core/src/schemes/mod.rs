@@ -185,34 +185,29 @@ impl Stencil {
         count
     }
 
-    /// [`Stencil::column`] from stresses already made: `base` the base call's, `at(i)` that of
-    /// the i-th call besides it (in the order of [`Stencil::steps`]). The same arithmetic in
-    /// the same order, so the column is the same to the bit.
-    pub(crate) fn combine<'a>(
-        &self,
-        h: f64,
-        base: &'a [f64],
-        at: impl Fn(usize) -> &'a [f64],
-        col: &mut [f64],
-    ) {
+    /// [`Stencil::column`] from stresses already made: `base` the base call's, `calls` those of
+    /// the column's other calls one after the other (in the order of [`Stencil::steps`], each
+    /// `col.len()` long). The same arithmetic in the same order, so the column is the same to
+    /// the bit.
+    pub(crate) fn combine(&self, h: f64, base: &[f64], calls: &[f64], col: &mut [f64]) {
+        let n = col.len();
         let mut call = 0;
-        let mut sample = |k: f64| {
-            if k * h == 0.0 {
-                base
+        for (p, &(k, w)) in self.points.iter().enumerate() {
+            let s = if k * h == 0.0 {
+                &base[..n]
             } else {
                 call += 1;
-                at(call - 1)
-            }
-        };
-        let Some((&(k0, w0), rest)) = self.points.split_first() else {
-            return;
-        };
-        for (c, s) in col.iter_mut().zip(sample(k0)) {
-            *c = w0 * s;
-        }
-        for &(k, w) in rest {
-            for (c, s) in col.iter_mut().zip(sample(k)) {
-                *c += w * s;
+                &calls[(call - 1) * n..call * n]
+            };
+            // The first point assigns, so that w = ±1 leaves the difference exact.
+            if p == 0 {
+                for (c, s) in col.iter_mut().zip(s) {
+                    *c = w * s;
+                }
+            } else {
+                for (c, s) in col.iter_mut().zip(s) {
+                    *c += w * s;
+                }
             }
         }
         let div = self.div * h;
