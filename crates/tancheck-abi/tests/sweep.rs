@@ -247,6 +247,7 @@ fn only_a_routine_without_full_guards_sweeps() {
     };
     let sweep_at = |level| {
         let mut stresses = [0.0f64; 72];
+        let counter = std::sync::atomic::AtomicU64::new(5);
         let mut r = Library::open(faults_library())
             .unwrap()
             .routine("sweep_status", info("sweep_status", 2, 2))
@@ -263,14 +264,17 @@ fn only_a_routine_without_full_guards_sweeps() {
             output: &mut p,
             output_neg: Some(&mut m),
             stresses: &mut stresses,
+            counter: Some(&counter),
         })
-        .map(|end| (end.calls, end.result.is_ok(), stresses.map(f64::to_bits)))
+        .map(|end| (end.calls, end.result.is_ok(), stresses.map(f64::to_bits), counter.into_inner()))
     };
     // With the full guards, each call is checked on its own: the caller makes them one by one.
     assert_eq!(sweep_at(GuardLevel::Full), None);
     let light = sweep_at(GuardLevel::Light).expect("the light guards sweep");
     let off = sweep_at(GuardLevel::Off).expect("a routine without guards sweeps");
     assert_eq!((off.0, off.1), (12, true));
+    // The counter a wrapper gives is raised once per call.
+    assert_eq!(off.3, 5 + 12);
     assert_eq!(light, off);
     // Column 3's −h call: stress0 + C (dstrain − h e₄) in engineering shear, μ = E / 2(1 + ν).
     let mu = 2e5 / (2.0 * 1.3);

@@ -24,6 +24,7 @@ use std::time::{Duration, Instant};
 use anyhow::{Context, Result};
 use num_complex::Complex64;
 use tancheck_core::report::CallRecord;
+use tancheck_core::routine::{Sweep, SweepEnd};
 use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Routine, RoutineInfo};
 
 use crate::exit;
@@ -236,6 +237,22 @@ impl Routine for Heartbeat<'_> {
         self.inner.call(input, output)
     }
     tancheck_core::pass_on_to_inner!();
+
+    /// The inner routine's sweep, with a beat before each of its calls (the parent's bound is
+    /// on one call, not on a sweep).
+    fn sweep_real(&mut self, sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
+        let counter = &words(&self.map)[W_CALLS];
+        let end = self.inner.sweep_real(Sweep { counter: Some(counter), ..sweep });
+        self.calls = counter.load(std::sync::atomic::Ordering::Acquire);
+        end
+    }
+
+    fn sweep_complex(&mut self, sweep: Sweep<'_, '_, Complex64>) -> Option<SweepEnd> {
+        let counter = &words(&self.map)[W_CALLS];
+        let end = self.inner.sweep_complex(Sweep { counter: Some(counter), ..sweep });
+        self.calls = counter.load(std::sync::atomic::Ordering::Acquire);
+        end
+    }
 }
 
 impl ComplexRoutine for Heartbeat<'_> {

@@ -244,6 +244,10 @@ pub struct Sweep<'s, 'o, S> {
     pub output: &'s mut CallOutput<'o, S>,
     pub output_neg: Option<&'s mut CallOutput<'o, S>>,
     pub stresses: &'s mut [S],
+    /// A counter raised by one (release order) before each call of the sweep: a wrapper that
+    /// counts calls where another process watches them (`--isolate`'s heartbeat) gives its
+    /// own; `None` for none.
+    pub counter: Option<&'s std::sync::atomic::AtomicU64>,
 }
 
 /// The column and the step of a sweep's call `k` (from 0).

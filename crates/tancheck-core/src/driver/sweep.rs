@@ -38,6 +38,7 @@ impl Driver {
             output: &mut plus,
             output_neg: Some(&mut minus),
             stresses,
+            counter: None,
         })
     }
 
@@ -71,6 +72,7 @@ impl Driver {
             output: &mut out,
             output_neg: None,
             stresses,
+            counter: None,
         })
     }
 }

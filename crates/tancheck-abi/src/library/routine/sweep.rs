@@ -73,21 +73,13 @@ impl LibraryRoutine {
         sw: Sweep<'_, '_, S>,
         entry: impl FnOnce(&GuardArgs, *mut SweepArgs, &mut GuardResult) -> i32,
     ) -> SweepEnd {
-        let Sweep { input, kept, steps, ncols, output, mut output_neg, stresses } = sw;
+        let Sweep { input, kept, steps, ncols, output, mut output_neg, stresses, counter } = sw;
         let call = self.tc_call(&input);
         let temp = input.temp;
         let pos = self.args(&call, &temp, &input, &mut *output);
         let neg = output_neg.as_deref_mut().map(|o| self.args(&call, &temp, &input, o));
-        let mut args = SweepArgs {
-            steps: steps.as_ptr(),
-            kept: kept.as_ptr(),
-            stresses: stresses.as_mut_ptr().cast(),
-            neg: neg.as_ref().map_or(std::ptr::null(), std::ptr::from_ref),
-            ncols: ncols as i32,
-            nsteps: steps.len() as i32,
-            calls: 0,
-            reserved: 0,
-        };
+        let neg = neg.as_ref().map_or(std::ptr::null(), std::ptr::from_ref);
+        let mut args = SweepArgs::new(ncols, steps, kept, stresses, neg, counter);
         let crash = guard::guarded(|r| entry(&pos, &mut args, r));
         let calls = args.calls.max(0) as usize;
         let result = match crash {

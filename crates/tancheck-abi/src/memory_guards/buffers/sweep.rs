@@ -6,6 +6,7 @@
 //! unless it faulted.
 
 use std::ffi::{c_char, c_void};
+use std::sync::atomic::AtomicU64;
 
 use tancheck_core::routine::{call_at, status_fault, Sweep, SweepEnd};
 use tancheck_core::{CallInput, CallOutput, Fault, Outcome};
@@ -21,6 +22,7 @@ pub(crate) struct SweepArgs {
     pub kept: *const f64,
     pub stresses: *mut c_void,
     pub neg: *const GuardArgs,
+    pub counter: *const AtomicU64,
     pub ncols: i32,
     pub nsteps: i32,
     pub calls: i32,
@@ -48,6 +50,30 @@ pub(crate) struct SweepBlock {
     first: i32,
     closer: i32,
     reserved: i32,
+}
+
+impl SweepArgs {
+    /// A sweep's description.
+    pub(crate) fn new<S>(
+        ncols: usize,
+        steps: &[f64],
+        kept: &[f64],
+        stresses: &mut [S],
+        neg: *const GuardArgs,
+        counter: Option<&AtomicU64>,
+    ) -> SweepArgs {
+        SweepArgs {
+            steps: steps.as_ptr(),
+            kept: kept.as_ptr(),
+            stresses: stresses.as_mut_ptr().cast(),
+            neg,
+            counter: counter.map_or(std::ptr::null(), std::ptr::from_ref),
+            ncols: ncols as i32,
+            nsteps: steps.len() as i32,
+            calls: 0,
+            reserved: 0,
+        }
+    }
 }
 
 impl SweepBlock {
@@ -93,7 +119,7 @@ impl<E: Element> GuardBuffers<E> {
         moves: Moves<impl Fn(f64) -> E, impl Fn(f64, f64) -> E>,
         mut entry: impl FnMut(&GuardArgs, &mut SweepArgs, &mut SweepBlock, &mut GuardResult) -> i32,
     ) -> SweepEnd {
-        let Sweep { input, kept, steps, ncols, output, mut output_neg, stresses } = sw;
+        let Sweep { input, kept, steps, ncols, output, mut output_neg, stresses, counter } = sw;
         let n = kept.len();
         let total = ncols * steps.len();
         let ew = std::mem::size_of::<E>() / 8;
@@ -133,16 +159,7 @@ impl<E: Element> GuardBuffers<E> {
                 closer: 0,
                 reserved: 0,
             };
-            let mut sa = SweepArgs {
-                steps: steps.as_ptr(),
-                kept: kept.as_ptr(),
-                stresses: stresses.as_mut_ptr().cast(),
-                neg: std::ptr::null(),
-                ncols: ncols as i32,
-                nsteps: steps.len() as i32,
-                calls: 0,
-                reserved: 0,
-            };
+            let mut sa = SweepArgs::new(ncols, steps, kept, stresses, std::ptr::null(), counter);
             let crash = guarded(|r| entry(&args, &mut sa, &mut block, r));
             let calls = sa.calls.max(0) as usize;
             if let Err(c) = crash {
