@@ -33,6 +33,14 @@ pub enum Cause {
     /// The returned matrix maps the total strain to the stress (a secant), not increments
     /// to increments.
     Secant,
+    /// The deviatoric part of an isotropic stiffness (the shear-modulus term 2G P_dev) off by
+    /// a factor (given in the detail), the volumetric part right.
+    ShearModulus,
+    /// The volumetric part (the bulk-modulus term 3K P_vol) off by a factor, the deviatoric
+    /// part right.
+    BulkModulus,
+    /// Both parts off by different factors (a wrong Poisson's ratio).
+    IsotropicModuli,
     /// Coupling (off-diagonal) terms missing.
     CouplingMissing,
     /// One row wrong: a stress component's response missing a term.
@@ -67,7 +75,7 @@ pub enum Cause {
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 21] = [
+    pub const BY_SPECIFICITY: [Cause; 24] = [
         Cause::ShearFactor,
         Cause::ShearPermutation,
         Cause::Transposed,
@@ -80,6 +88,9 @@ impl Cause {
         Cause::ElasticTangent,
         Cause::StaleTangent,
         Cause::Secant,
+        Cause::ShearModulus,
+        Cause::BulkModulus,
+        Cause::IsotropicModuli,
         Cause::CouplingMissing,
         Cause::SingleEntry,
         Cause::OneColumn,
@@ -104,6 +115,9 @@ impl Cause {
             Cause::StartTemperature => "start-temperature",
             Cause::StaleTangent => "stale-tangent",
             Cause::Secant => "secant",
+            Cause::ShearModulus => "shear-modulus",
+            Cause::BulkModulus => "bulk-modulus",
+            Cause::IsotropicModuli => "isotropic-moduli",
             Cause::CouplingMissing => "coupling-missing",
             Cause::OneRow => "one-row",
             Cause::OneColumn => "one-column",

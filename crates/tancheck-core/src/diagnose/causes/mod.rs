@@ -4,9 +4,11 @@
 //! first, the more specific before the more general.
 //!
 //! Data flow: `kind` (causes, evidence) → the trials, in the order their results are listed
-//! (`layout`, `other_matrix`, `local`, `rank_one`; `dtemp` for ∂σ/∂T) → [`rank`] here.
+//! (`layout`, `other_matrix`, `local`, `isotropic`, `rank_one`; `dtemp` for ∂σ/∂T) → [`rank`]
+//! here.
 
 mod dtemp;
+mod isotropic;
 mod kind;
 mod layout;
 mod local;
@@ -36,6 +38,7 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     layout::try_layout(ev, &mut found);
     other_matrix::try_other_matrix(ev, &mut found);
     local::try_local(ev, &mut found);
+    isotropic::try_isotropic(ev, &mut found);
     rank_one::try_rank_one(ev, &mut found);
     finish(found.hs, 10.0 * ev.tol, ev.returned.len() == 1)
 }

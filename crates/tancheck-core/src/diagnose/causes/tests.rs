@@ -466,3 +466,95 @@ fn a_scaled_bulk_term_beside_a_shear_background_of_its_size_gets_its_factor() {
     let t = h.iter().find(|h| h.cause == Cause::TermScaled).unwrap_or_else(|| panic!("{h:?}"));
     assert!(t.explains && t.detail.contains("scaled by about -0.20"), "{t:?}");
 }
+
+/// The isotropic stiffness 3K P_vol + 2μ P_dev in the routine's (Voigt, engineering shear)
+/// form for E and ν (λ = Eν/((1 + ν)(1 − 2ν)), μ = E/(2(1 + ν)); a textbook relation, from
+/// memory), with its shear-modulus part scaled by `fg` and its bulk-modulus part by `fk`.
+fn isotropic_scaled(n: usize, e: f64, nu: f64, fg: f64, fk: f64) -> Vec<f64> {
+    let (lambda, mu) = (e * nu / ((1.0 + nu) * (1.0 - 2.0 * nu)), e / (2.0 * (1.0 + nu)));
+    let k = lambda + 2.0 * mu / 3.0;
+    let (mu, k) = (mu * fg, k * fk);
+    let normal = 3;
+    let mut c = vec![0.0; n * n];
+    for j in 0..n {
+        for i in 0..n {
+            let vol = if i < normal && j < normal { k } else { 0.0 };
+            let dev = match (i < normal, j < normal) {
+                (true, true) => 2.0 * mu * (if i == j { 1.0 } else { 0.0 } - 1.0 / 3.0),
+                _ if i == j => mu,
+                _ => 0.0,
+            };
+            c[i + n * j] = vol + dev;
+        }
+    }
+    c
+}
+
+// A stiffness whose shear modulus alone is off (×1.3) is named by its shear-modulus part with
+// the factor, in 3D and in plane strain (11, 22, 33, 12); its bulk modulus alone (×0.8) by the
+// bulk-modulus part; a wrong Poisson's ratio (0.25 for 0.3, E kept) changes both by different
+// factors and is named as isotropic moduli. Before: the shear modulus alone was unexplained.
+#[test]
+fn a_wrong_modulus_of_an_isotropic_stiffness_is_named_with_its_factor() {
+    for (kind, n) in [(PointKind::Solid3d, 6), (PointKind::PlaneStrain, 4)] {
+        let conv = Convention::new(kind, ShearMeasure::Engineering);
+        let z = vec![0.0; n];
+        let good = isotropic_scaled(n, 200000.0, 0.3, 1.0, 1.0);
+        let shear = isotropic_scaled(n, 200000.0, 0.3, 1.3, 1.0);
+        let h = rank(&ev(&conv, &shear, &good, &z));
+        assert_eq!(h[0].cause, Cause::ShearModulus, "{kind:?}: {h:?}");
+        assert!(h[0].explains && h[0].detail.contains("1.3000×"), "{:?}", h[0]);
+        assert!(!h.iter().any(|x| x.cause == Cause::BulkModulus), "{h:?}");
+        let bulk = isotropic_scaled(n, 200000.0, 0.3, 1.0, 0.8);
+        let h = rank(&ev(&conv, &bulk, &good, &z));
+        assert_eq!(h[0].cause, Cause::BulkModulus, "{kind:?}: {h:?}");
+        assert!(h[0].explains && h[0].detail.contains("0.8000×"), "{:?}", h[0]);
+    }
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let good = isotropic_scaled(6, 200000.0, 0.3, 1.0, 1.0);
+    let poisson = isotropic_scaled(6, 200000.0, 0.25, 1.0, 1.0);
+    let h = rank(&ev(&conv, &poisson, &good, &z));
+    assert_eq!(h[0].cause, Cause::IsotropicModuli, "{h:?}");
+    // μ ∝ 1/(1 + ν): 1.3/1.25 = 1.04; K ∝ 1/(1 − 2ν): 0.4/0.5 = 0.8.
+    assert!(
+        h[0].explains && h[0].detail.contains("1.0400×") && h[0].detail.contains("0.8000×"),
+        "{:?}",
+        h[0]
+    );
+    // μ off with λ right (a stiffness written as λ 1⊗1 + 2μ I): both parts change, and the
+    // Lamé form shows λ at 1.
+    let (lambda, mu) = (200000.0 * 0.3 / (1.3 * 0.4), 200000.0 / 2.6);
+    let k = lambda + 2.0 * mu / 3.0;
+    let mu_off = isotropic_scaled(6, 200000.0, 0.3, 1.25, (lambda + 2.0 * 1.25 * mu / 3.0) / k);
+    let h = rank(&ev(&conv, &mu_off, &good, &z));
+    assert_eq!(h[0].cause, Cause::IsotropicModuli, "{h:?}");
+    assert!(h[0].detail.contains("μ is 1.2500× and λ 1.0000×"), "{:?}", h[0]);
+    // E alone off is a uniform scale, named before the moduli.
+    let e = isotropic_scaled(6, 210000.0, 0.3, 1.0, 1.0);
+    let h = rank(&ev(&conv, &e, &good, &z));
+    assert_eq!(h[0].cause, Cause::UniformScale, "{h:?}");
+}
+
+// In the consistent J2 tangent (the worked case), an elastic shear modulus 10 % off in the
+// deviatoric elastic part alone is a shear-modulus error; a wrong single entry is not.
+#[test]
+fn a_shear_modulus_error_is_named_in_a_plastic_tangent_and_a_single_entry_is_not() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let good = j2_like();
+    let dev = isotropic_scaled(6, 1.0, 0.0, 1.0, 0.0);
+    // 2μ P_dev with μ = 1/2 for E = 1, ν = 0: P_dev itself; add 0.1 × 2G P_dev of the worked
+    // case's modulus (its 2G is read off the tangent's deviatoric shear diagonal, μ_eff).
+    let two_g = 2.0 * good[3 + 6 * 3];
+    let wrong: Vec<f64> = good.iter().zip(&dev).map(|(c, p)| c + 0.1 * two_g * p).collect();
+    let h = rank(&ev(&conv, &wrong, &good, &z));
+    assert_eq!(h[0].cause, Cause::ShearModulus, "{h:?}");
+    let mut entry = good.clone();
+    entry[1] *= 1.2;
+    let h = rank(&ev(&conv, &entry, &good, &z));
+    assert!(
+        h.iter().all(|x| !(matches!(x.cause, Cause::ShearModulus | Cause::IsotropicModuli) && x.explains)),
+        "{h:?}"
+    );
+}
