@@ -161,6 +161,45 @@ fn what_cannot_be_rotated_is_skipped() {
     assert!(res.summary.contains("nonzero"), "{}", res.summary);
 }
 
+/// The frame probe of the J2 reference model from a start state with `state` set.
+fn from_state(state: &[(usize, f64)], spec: &ProbeSpec) -> Result<ProbeResult, tancheck::core::CoreError> {
+    let mut r = reference("j2", PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let mut start = PointState::zero(&info, 20.0);
+    for &(i, v) in state {
+        start.state[i] = v;
+    }
+    let settings = Settings::default();
+    let path = &paths()[0];
+    let env = ProbeEnv { props: &J2_ALL, start: &start, path, settings: &settings, spec };
+    Frame.run(&mut caller, &env)
+}
+
+// A start state nonzero only in scalar state variables (the J2 model's equivalent plastic
+// strain α, state index 6, after earlier hardening) is the same in every frame: declared
+// with `scalar_states`, the probe runs from it and the isotropic law passes (isotropic J2 with
+// any α_n is frame indifferent: the same standard result as above). Undeclared, it is
+// skipped with the hint; a tensor state (the back stress β₁₁, index 7) declared scalar
+// wrongly does not rotate, and the probe fails; an index beyond the state is bad input.
+#[test]
+fn scalar_state_variables_declared_as_such_may_start_nonzero() {
+    let alpha = [(6, 0.01)];
+    let undeclared = from_state(&alpha, &ProbeSpec::named("frame")).unwrap();
+    assert_eq!(undeclared.status, ProbeStatus::Skipped);
+    assert!(undeclared.summary.contains("scalar_states"), "{}", undeclared.summary);
+    let declared = ProbeSpec { scalar_states: Some(vec![6]), ..ProbeSpec::named("frame") };
+    let res = from_state(&alpha, &declared).unwrap();
+    assert_eq!(res.status, ProbeStatus::Pass, "{res:?}");
+    assert!(res.value.unwrap() <= 1e-12, "{res:?}");
+    let wrong = ProbeSpec { scalar_states: Some(vec![6, 7]), ..ProbeSpec::named("frame") };
+    let res = from_state(&[(6, 0.01), (7, 80.0)], &wrong).unwrap();
+    assert_eq!(res.status, ProbeStatus::Fail, "{res:?}");
+    let beyond = ProbeSpec { scalar_states: Some(vec![13]), ..ProbeSpec::named("frame") };
+    let err = from_state(&alpha, &beyond).unwrap_err().to_string();
+    assert!(err.contains("scalar state index 13 is not a state variable (the routine has 13)"), "{err}");
+}
+
 // The rotation helpers agree with a rotation worked by hand: 90° about axis 3 maps e₁ to e₂,
 // so a uniaxial tensor along 1 becomes one along 2 and a 12 shear changes sign.
 #[test]

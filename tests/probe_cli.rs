@@ -162,6 +162,19 @@ fn a_suite_that_cannot_run_is_an_error_naming_the_file() {
     assert!(t.contains("index.json: ") && t.contains("damage index 20 is not a state variable"), "{t}");
     // Checked against the routine before any probe runs, naming the entry.
     assert!(t.contains("probes[0] (irreversibility)"), "{t}");
+    // So is a scalar state index of the frame probe.
+    let scalar = write(
+        &d,
+        "scalar.json",
+        r#"{"suite": "s", "path": {"shape": "uniaxial-strain", "peak": 0.004, "steps": 4},
+            "probes": [{"probe": "frame", "scalar_states": [6, 13]}]}"#,
+    );
+    let (c, t) = probe(&[m, "--suite", scalar.to_str().unwrap()], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(
+        t.contains("scalar.json: probes[0] (frame): scalar_states index 13 is not a state variable"),
+        "{t}"
+    );
     // So is a property index (J2 has 7 properties).
     let length = write(
         &d,

@@ -43,8 +43,11 @@ impl Suite {
     /// does not have, in words naming the probe (`probes[k]`).
     pub fn indices_beyond(&self, nstate: usize, nprop: usize) -> Option<String> {
         self.probes.iter().enumerate().find_map(|(k, p)| {
-            let state = p.damage.iter().flatten().find(|&&i| i >= nstate).map(|i| {
-                format!("damage index {i} is not a state variable (the routine has {nstate}; indices count from 0)")
+            let named = [("damage", &p.damage), ("scalar_states", &p.scalar_states)];
+            let state = named.into_iter().find_map(|(what, v)| {
+                v.iter().flatten().find(|&&i| i >= nstate).map(|i| {
+                    format!("{what} index {i} is not a state variable (the routine has {nstate}; indices count from 0)")
+                })
             });
             let property = || {
                 let named = [("length", p.length), ("viscosity", p.viscosity)];

@@ -12,7 +12,8 @@
 //! solid-3d points; about axis 3 for the in-plane kinds (plane strain, axisymmetric, plane
 //! stress), which keeps the components they lack at zero. Uniaxial and cohesive points have
 //! no frame to turn and are skipped, as are starts with nonzero strain, stress or state
-//! (their rotation would need the meaning of each state variable) and anisotropic models
+//! (their rotation would need the meaning of each state variable; state variables declared
+//! scalar by `scalar_states`, which no rotation changes, may be nonzero) and anisotropic models
 //! without `axes`: declared so (`anisotropic: true`), or, when nothing is declared, seen to be
 //! so (the elastic tangent at the start is not isotropic). `anisotropic: false` declares the
 //! law isotropic: then a response that does not rotate fails.
@@ -134,7 +135,8 @@ impl Probe for Frame {
         Needs::TANGENT.union(Needs::FRAME).union(Needs::VIRGIN_START)
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
-        // run_probes skips before this; a direct call gets the same reason.
+        // run_probes checks and skips before this; a direct call gets the same.
+        super::scalar_states_fit("frame", env.spec, caller.info().nstate)?;
         if let Some(why) = super::unmet(self.needs(), caller.capabilities(), caller.info(), env) {
             return Ok(ProbeResult::skipped("frame", why));
         }

@@ -63,6 +63,11 @@ pub struct ProbeSpec {
     /// elastic response at the start decides (anisotropic without `axes`: skipped).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub anisotropic: Option<bool>,
+    /// frame: state indices (0-based) of scalar state variables (porosity, damage, an
+    /// equivalent plastic strain), which no rotation changes: a start state nonzero only in
+    /// these is the same in both frames, and the probe runs from it.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub scalar_states: Option<Vec<usize>>,
     /// irreversibility, softening, snap-back: state indices (0-based) of damage variables,
     /// which must never fall (their growth marks where softening is expected).
     #[serde(default, skip_serializing_if = "Option::is_none")]
@@ -225,9 +230,13 @@ pub fn unmet(
         } else if need == Needs::FRAME && info.convention.kind().is_cohesive() {
             "a cohesive point's components are already in the interface frame".into()
         } else if need == Needs::VIRGIN_START
-            && s.strain.iter().chain(&s.stress).chain(&s.state).any(|&x| x != 0.0)
+            && (s.strain.iter().chain(&s.stress).any(|&x| x != 0.0)
+                || s.state.iter().enumerate().any(|(i, &x)| {
+                    x != 0.0 && !env.spec.scalar_states.as_ref().is_some_and(|v| v.contains(&i))
+                }))
         {
-            "the start has nonzero strain, stress or state: rotating it would need the meaning of each state variable"
+            "the start has nonzero strain, stress or state: rotating it would need the meaning of each state \
+             variable (declare the scalar ones, which no rotation changes, with \"scalar_states\": [state indices])"
                 .into()
         } else if need == Needs::SEVERAL_COMPONENTS && info.convention.ncomp() < 2 {
             "a point with one component has no component to solve for by Newton's method".into()
@@ -244,6 +253,16 @@ pub fn unmet(
         return Some(why);
     }
     None
+}
+
+/// The suite entry's `scalar_states` are state variables of the routine (bad input otherwise).
+pub(crate) fn scalar_states_fit(probe: &str, spec: &ProbeSpec, nstate: usize) -> Result<(), CoreError> {
+    match spec.scalar_states.iter().flatten().find(|&&i| i >= nstate) {
+        Some(&bad) => Err(CoreError::ProbeInput(format!(
+            "{probe}: scalar state index {bad} is not a state variable (the routine has {nstate})"
+        ))),
+        None => Ok(()),
+    }
 }
 
 /// A probe.
@@ -405,6 +424,7 @@ pub fn run_probes(
     let mut results = Vec::new();
     let info = caller.info().clone();
     for &(probe, spec) in probes {
+        scalar_states_fit(probe.name(), spec, info.nstate)?;
         let env = ProbeEnv { props, start, path, settings, spec };
         match unmet(probe.needs(), caller.capabilities(), &info, &env) {
             Some(why) => results.push(ProbeResult::skipped(probe.name(), why)),
