@@ -50,7 +50,8 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
 /// one component (`scalar`) every wrong tangent is a single wrong entry, a missing or scaled
 /// rank-one term: those causes say nothing there and come after every other that explains;
 /// and a uniform scale, which still gives the factor, comes after the elastic, stale and
-/// secant tangents, which name what the routine returned.
+/// secant tangents, which name what the routine returned. The isotropic parts (shear and bulk
+/// modulus) come after such a tangent wherever one explains.
 fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool) -> Vec<Hypothesis> {
     let rank = |c: Cause| {
         if scalar && c == Cause::UniformScale {
@@ -74,12 +75,33 @@ fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool) -> Vec<Hypothesis> 
                     | Cause::RankTwo
             )
     };
+    // A tangent that names what the routine returned (its elastic stiffness, the stiffness
+    // at the start of the path or of the increment, a secant, a continuum tangent, the
+    // tangent at the start temperature) leads the isotropic parts that only describe the
+    // discrepancy's shape: a creep routine returning its elastic stiffness is off in its
+    // deviatoric part alone, exactly, and is named by what it returned.
+    let named = hs.iter().any(|h| {
+        h.explains
+            && matches!(
+                h.cause,
+                Cause::ElasticTangent
+                    | Cause::InitialStiffness
+                    | Cause::StaleTangent
+                    | Cause::Secant
+                    | Cause::ContinuumTangent
+                    | Cause::StartTemperature
+            )
+    });
+    let after = |c: Cause| {
+        vacuous(c)
+            || (named && matches!(c, Cause::ShearModulus | Cause::BulkModulus | Cause::IsotropicModuli))
+    };
     hs.sort_by(|a, b| {
         b.explains
             .cmp(&a.explains)
             .then_with(|| {
                 if a.explains {
-                    vacuous(a.cause).cmp(&vacuous(b.cause))
+                    after(a.cause).cmp(&after(b.cause))
                 } else {
                     std::cmp::Ordering::Equal
                 }

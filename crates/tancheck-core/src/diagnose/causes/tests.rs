@@ -558,3 +558,23 @@ fn a_shear_modulus_error_is_named_in_a_plastic_tangent_and_a_single_entry_is_not
         "{h:?}"
     );
 }
+
+// A returned elastic stiffness that differs from the derivative in its deviatoric part alone
+// (a creep or viscous point) is named by what it is, before the shear-modulus part that
+// describes it; without the measured elastic tangent the shear-modulus part leads.
+#[test]
+fn the_elastic_tangent_leads_the_shear_modulus_part_it_explains_too() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let elastic = isotropic_scaled(6, 200000.0, 0.3, 1.0, 1.0);
+    let creep = isotropic_scaled(6, 200000.0, 0.3, 0.5, 1.0);
+    // The elastic tangent as measured: a little off the returned one, as a trial's is.
+    let measured: Vec<f64> = elastic.iter().map(|x| x * (1.0 + 1e-9)).collect();
+    let mut e = ev(&conv, &elastic, &creep, &z);
+    e.elastic = Some(&measured);
+    let h = rank(&e);
+    assert_eq!(h[0].cause, Cause::ElasticTangent, "{h:?}");
+    assert!(h.iter().any(|x| x.cause == Cause::ShearModulus && x.explains), "{h:?}");
+    let h = rank(&ev(&conv, &elastic, &creep, &z));
+    assert_eq!(h[0].cause, Cause::ShearModulus, "{h:?}");
+}
