@@ -1189,6 +1189,15 @@ static inline guard_fp fp_enter(int traps) {
     return fp;
 }
 
+/* Before each further call of a sweep with traps: as fp_enter before a single call (the
+ * flags cleared, the traps enabled again, whatever the previous call did to them). */
+static inline void fp_rearm(void) {
+#if defined(__GLIBC__) && defined(FE_INVALID) && defined(FE_DIVBYZERO) && defined(FE_OVERFLOW)
+    feclearexcept(FE_ALL_EXCEPT);
+    feenableexcept(GUARD_TRAPS);
+#endif
+}
+
 /* After the call: clear the flags, restore the trap mask (and the rounding mode when a
  * signal handler ran, since the kernel starts handlers with a fresh floating-point state). */
 static inline void fp_leave(int traps, int caught, guard_fp fp) {

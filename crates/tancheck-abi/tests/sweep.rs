@@ -8,7 +8,7 @@ use num_complex::Complex64;
 use tancheck_abi::{GuardLevel, Library, LibraryRoutine};
 use tancheck_core::check;
 use tancheck_core::driver::{Outputs, PointState};
-use tancheck_core::path::{Path, Shape};
+use tancheck_core::path::{Path, PathIncrement, Shape};
 use tancheck_core::report::Keep;
 use tancheck_core::routine::Sweep;
 use tancheck_core::{
@@ -177,6 +177,54 @@ fn an_unwritten_output_and_a_written_input_in_the_middle_of_the_columns_end_as_o
         let settings = Settings { jobs: 1, ..Default::default() };
         let (report, _, _) = check_with(&mut r, &[2e5, 0.3], &ramp(), &settings);
         assert!(faults(&report).contains(finding), "{symbol}: {}", faults(&report));
+    }
+}
+
+#[test]
+fn a_failure_in_the_last_call_of_a_sweep_ends_as_one_by_one() {
+    let r = same_either_way(faults_library(), "sweep_last", info("sweep_last", 2, 2), &[2e5, 0.3], &ramp());
+    let f = faults(&r);
+    assert!(
+        f.contains("dstrain[5] ±") && f.contains("dstrain[5] + i") && f.contains("the last call fails"),
+        "{f}"
+    );
+}
+
+#[test]
+fn a_call_and_temperature_written_by_the_routine_reach_no_later_call() {
+    let heated = PathIncrement { dtemp: 2.0, ..PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 0.0]) };
+    let path = Path { name: "heated".into(), increments: vec![heated; 3] };
+    same_either_way(
+        faults_library(),
+        "sweep_writes_call",
+        info("sweep_writes_call", 2, 2),
+        &[2e5, 0.3],
+        &path,
+    );
+}
+
+#[test]
+fn floating_point_traps_stop_a_sweep_as_they_stop_a_single_call() {
+    for traps in [true, false] {
+        let open = |level| {
+            let mut r = Library::open(faults_library())
+                .unwrap()
+                .routine("sweep_fpe", info("sweep_fpe", 2, 2))
+                .unwrap();
+            r.set_guard_level(level);
+            r.set_fp_traps(traps).unwrap();
+            r
+        };
+        for level in [GuardLevel::Off, GuardLevel::Light] {
+            let settings = Settings { jobs: 1, ..Default::default() };
+            let (mut ra, mut rb) = (open(level), open(level));
+            let a = check_with(&mut ra, &[2e5, 0.3], &ramp(), &settings);
+            let b = check_with(&mut OneByOne { inner: &mut rb }, &[2e5, 0.3], &ramp(), &settings);
+            assert_eq!(format!("{:?}", a.0), format!("{:?}", b.0), "traps {traps}, guards {level:?}");
+            if traps {
+                assert!(faults(&a.0).contains("SIGFPE"), "{}", faults(&a.0));
+            }
+        }
     }
 }
 

@@ -19,6 +19,12 @@
  *                   space), and leaves its report's message set
  *   sweep_hole      leaves state[1] as it arrived (unwritten)
  *   sweep_writes_input writes strain[2] (and stress0[1], unchanged) when dstrain[4] > 0
+ *   sweep_last      returns TC_STATUS_FAILED in the last call of each sweep (dstrain[5] < 0,
+ *                   or an imaginary part on dstrain[5])
+ *   sweep_writes_call adds 1e-3 (dtime + dT) to stress[0], and halves call->dtime and raises
+ *                   temperature->increment in place (read-only inputs used as work space)
+ *   sweep_fpe       divides by zero when dstrain[2] > 0 (or dstrain[5] has an imaginary part):
+ *                   a SIGFPE with floating-point traps on, an infinite stress without
  */
 
 #include "tancheck_cstep.h"
@@ -138,5 +144,38 @@ TC_ROUTINE(sweep_writes_input)
     if (SWEEP_PERTURBED && tc_re(dstrain[4]) > 0.0) {
         ((tc_real *)stress0)[1] = stress0[1]; /* writes a read-only input (the same value) */
         ((tc_real *)strain)[2] = 1.0;         /* and another, with a new one */
+    }
+}
+
+TC_ROUTINE(sweep_last)
+{
+    SWEEP_ELASTIC;
+    /* The last call of each sweep: central's -h on column 5, the twin's column 5. */
+    if (SWEEP_PERTURBED && (tc_re(dstrain[5]) < 0.0 || tc_im(dstrain[5]) != 0.0)) {
+        report->status = TC_STATUS_FAILED;
+        sweep_message(report, "sweep_last: the last call fails");
+    }
+}
+
+TC_ROUTINE(sweep_writes_call)
+{
+    SWEEP_ELASTIC;
+    /* The stress carries the time increment, and the perturbed calls halve it (and the
+     * temperature increment) in place, as a routine using them as work space would. */
+    stress[0] = stress[0] + 1e-3 * call->dtime + 1e-3 * temperature->increment;
+    if (SWEEP_PERTURBED) {
+        ((tc_call *)call)->dtime = 0.5 * call->dtime;
+        ((tc_temperature *)temperature)->increment = temperature->increment + 1.0;
+    }
+}
+
+TC_ROUTINE(sweep_fpe)
+{
+    SWEEP_ELASTIC;
+    /* A division by zero in the calls of column 2 (+h), and of the twin's column 5. */
+    if (SWEEP_PERTURBED && (tc_re(dstrain[2]) > 0.0 || tc_im(dstrain[5]) != 0.0)) {
+        volatile double e = tc_re(properties[0]);
+        double zero = e - e;
+        stress[0] = stress[0] + e / zero;
     }
 }

@@ -35,7 +35,7 @@ mod buffers;
 mod findings;
 pub mod report;
 
-pub(crate) use buffers::{GuardBuffers, Moves, SweepArgs, SweepBlock};
+pub(crate) use buffers::{positive, GuardBuffers, Moves, SweepArgs, SweepBlock};
 pub use findings::{FindingKind, Findings, GuardFinding};
 
 /// Guard entries after every array.
@@ -58,7 +58,7 @@ pub const CANARY_BITS: u64 = 0x7FF2_C0DE_0BAD_F00D;
 pub const POISON: [f64; 2] = [3.75e5, -7.25e-3];
 
 /// Byte written into the zone after the report struct.
-const REPORT_CANARY: u8 = 0xA5;
+pub(crate) const REPORT_CANARY: u8 = 0xA5;
 
 /// How much checking every call gets.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Hash)]

@@ -9,7 +9,7 @@ use num_complex::Complex64;
 use tancheck_core::routine::{call_at, status_fault, Sweep, SweepEnd};
 
 use super::LibraryRoutine;
-use crate::memory_guards::{GuardLevel, Moves, SweepArgs, SweepBlock};
+use crate::memory_guards::{positive, GuardLevel, Moves, SweepArgs, SweepBlock};
 use crate::signal_guard::{self as guard, ComplexFn, GuardArgs, GuardResult, RealFn};
 
 extern "C" {
@@ -88,7 +88,7 @@ impl LibraryRoutine {
             Ok(()) => {
                 let (_, step) = call_at(steps, calls - 1);
                 match output_neg {
-                    Some(o) if step <= 0.0 => status_fault(o.outcome),
+                    Some(o) if !positive(step) => status_fault(o.outcome),
                     _ => status_fault(output.outcome),
                 }
             }
@@ -108,7 +108,7 @@ impl LibraryRoutine {
             return Some(self.sweep_unguarded(sw, |a, s, r| unsafe { tc_guard_sweep_real(real, a, s, r) }));
         }
         let call = self.tc_call(&sw.input);
-        let moves = Moves { exact: |x| x, perturbed: |x, step| x + step };
+        let moves = Moves { nan: f64::NAN, exact: |x| x, perturbed: |x, step| x + step };
         Some(self.real_guards.sweep(
             &call,
             self.label.as_ptr(),
@@ -137,7 +137,11 @@ impl LibraryRoutine {
         }
         let call = self.tc_call(&sw.input);
         let guards = self.complex_guards.as_mut()?;
-        let moves = Moves { exact: |x| Complex64::new(x, 0.0), perturbed: Complex64::new };
+        let moves = Moves {
+            nan: Complex64::new(f64::NAN, f64::NAN),
+            exact: |x| Complex64::new(x, 0.0),
+            perturbed: Complex64::new,
+        };
         Some(guards.sweep(
             &call,
             self.label.as_ptr(),
@@ -163,10 +167,16 @@ mod tests {
         unsafe { tc_guard_sweep_layout(out.as_mut_ptr()) };
         assert_eq!(out[0] as usize, std::mem::size_of::<SweepArgs>());
         assert_eq!(out[1] as usize, std::mem::offset_of!(SweepArgs, calls));
-        // SAFETY: writes three integers.
+        let mut out = [0u64; 7];
+        // SAFETY: writes seven integers.
         unsafe { tc_guard_sweep_block_layout(out.as_mut_ptr()) };
         assert_eq!(out[0] as usize, std::mem::size_of::<SweepBlock>());
         assert_eq!(out[1] as usize, SweepBlock::OFFSETS.0);
         assert_eq!(out[2] as usize, SweepBlock::OFFSETS.1);
+        // The constants the C side shares with the guards.
+        assert_eq!(out[3], crate::memory_guards::PREFILL_BITS);
+        assert_eq!(out[4], f64::NAN.to_bits());
+        assert_eq!(out[5] as usize, crate::memory_guards::REPORT_ZONE);
+        assert_eq!(out[6] as u8, crate::memory_guards::REPORT_CANARY);
     }
 }

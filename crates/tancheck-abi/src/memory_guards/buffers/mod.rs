@@ -552,7 +552,7 @@ fn same_call(a: &TcCall, b: &TcCall) -> bool {
 }
 
 mod sweep;
-pub(crate) use sweep::{Moves, SweepArgs, SweepBlock};
+pub(crate) use sweep::{positive, Moves, SweepArgs, SweepBlock};
 
 #[cfg(test)]
 mod tests;

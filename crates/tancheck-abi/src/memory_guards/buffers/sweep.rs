@@ -83,10 +83,18 @@ impl SweepBlock {
         (std::mem::offset_of!(SweepBlock, first), std::mem::offset_of!(SweepBlock, closer));
 }
 
-/// An entry of the increment as set (`exact`), and one moved by a step (`perturbed`).
-pub(crate) struct Moves<X, P> {
+/// The NaN a call's outputs are pre-filled with (`Caller::call`), an entry of the increment as
+/// set (`exact`), and one moved by a step (`perturbed`).
+pub(crate) struct Moves<E, X, P> {
+    pub nan: E,
     pub exact: X,
     pub perturbed: P,
+}
+
+/// Whether a step writes the outputs of a step above 0 (`plus`); any other, a NaN included,
+/// writes those of the others, as on the C side.
+pub(crate) fn positive(step: f64) -> bool {
+    step > 0.0
 }
 
 /// The caller's stress, state, ∂σ/∂T and energy, and its report, as the C side writes them.
@@ -116,7 +124,7 @@ impl<E: Element> GuardBuffers<E> {
         complex: bool,
         sw: Sweep<'_, '_, E>,
         findings: &mut Findings,
-        moves: Moves<impl Fn(f64) -> E, impl Fn(f64, f64) -> E>,
+        moves: Moves<E, impl Fn(f64) -> E, impl Fn(f64, f64) -> E>,
         mut entry: impl FnMut(&GuardArgs, &mut SweepArgs, &mut SweepBlock, &mut GuardResult) -> i32,
     ) -> SweepEnd {
         let Sweep { input, kept, steps, ncols, output, mut output_neg, stresses, counter } = sw;
@@ -142,7 +150,7 @@ impl<E: Element> GuardBuffers<E> {
             let mut block = SweepBlock {
                 block: self.data.as_mut_ptr().cast(),
                 loaded: self.snapshot.as_mut_ptr().cast(),
-                report: std::ptr::from_mut(&mut self.report.report),
+                report: args.report,
                 call,
                 made: &raw mut made,
                 outputs: [pos, neg],
@@ -162,23 +170,28 @@ impl<E: Element> GuardBuffers<E> {
             let mut sa = SweepArgs::new(ncols, steps, kept, stresses, std::ptr::null(), counter);
             let crash = guarded(|r| entry(&args, &mut sa, &mut block, r));
             let calls = sa.calls.max(0) as usize;
-            if let Err(c) = crash {
-                return SweepEnd { calls, result: Err(c.into_fault()) };
-            }
             let last = calls.checked_sub(1).map(|k| call_at(steps, k));
             let out: &mut CallOutput<'_, E> = match (output_neg.as_deref_mut(), last) {
-                (Some(o), Some((_, step))) if step <= 0.0 => o,
+                (Some(o), Some((_, step))) if !positive(step) => o,
                 _ => &mut *output,
             };
+            if let Err(c) = crash {
+                // The outputs of the call that crashed as a single call leaves them: pre-filled.
+                out.stress.fill(moves.nan);
+                out.state.fill(moves.nan);
+                *out.outcome = Outcome::default();
+                return SweepEnd { calls, result: Err(c.into_fault()) };
+            }
             if block.closer == 0 {
-                // Every call made passed the light checks on the C side.
+                // Every call made passed the light checks on the C side; the last one made may
+                // have returned a status (the C side stops after it).
                 self.clean = true;
-                let result = if calls < total { status_fault(out.outcome) } else { Ok(()) };
+                let result = if calls > 0 { status_fault(out.outcome) } else { Ok(()) };
                 return SweepEnd { calls, result };
             }
             // The last call made needs the entry-by-entry look of a single guarded call.
             let (j, step) = last.expect("a closer look follows a call");
-            let mut d = [(moves.exact)(0.0); 6];
+            let mut d = [moves.nan; 6];
             for (x, &k) in d.iter_mut().zip(kept) {
                 *x = (moves.exact)(k);
             }
