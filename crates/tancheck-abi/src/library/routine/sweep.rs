@@ -48,7 +48,8 @@ impl LibraryRoutine {
     /// in release builds too: the C side trusts them).
     fn sweeps<S>(&self, sw: &Sweep<'_, '_, S>) -> bool {
         let n = self.ncomp;
-        if sw.ncols != n || sw.kept.len() != n || sw.steps.is_empty() || sw.steps.len() > MAX_STEPS {
+        // The C side keeps the increment's copy in six entries (a point has at most six).
+        if n > 6 || sw.ncols != n || sw.kept.len() != n || sw.steps.is_empty() || sw.steps.len() > MAX_STEPS {
             return false;
         }
         self.check_lengths(&sw.input, sw.output);
