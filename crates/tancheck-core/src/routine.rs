@@ -214,8 +214,9 @@ pub trait Routine {
 
     /// The perturbed calls of one derivative scheme's strain columns in one go, where the
     /// routine can make them with less around each call than one [`Routine::call`] each (a
-    /// loaded library without memory guards: one guarded entry for all of them). `None` (the
-    /// default): nothing was called, the caller makes the calls one by one. See [`Sweep`].
+    /// loaded library with its memory guards off or light: one guarded entry for all of them).
+    /// `None` (the default): nothing was called, the caller makes the calls one by one. See
+    /// [`Sweep`].
     fn sweep_real(&mut self, _sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
         None
     }

@@ -357,7 +357,7 @@ impl Routine for LibraryRoutine {
         self.findings.extra_calls += n;
     }
 
-    /// With the guards off: one guarded entry for all the calls (see `sweep`).
+    /// With the guards off or light: one guarded entry for all the calls (see `sweep`).
     fn sweep_real(&mut self, sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
         self.sweep_real_calls(sweep)
     }

@@ -154,22 +154,15 @@ pub struct Stencil {
 impl Stencil {
     /// Fill `col` with the derivative along the samples' direction, step `h`.
     pub(crate) fn column(&self, at: &mut Samples<'_, '_>, h: f64, col: &mut [f64]) -> Result<(), Fault> {
-        let Some((&(k0, w0), rest)) = self.points.split_first() else {
-            return Ok(());
-        };
-        // The first point assigns, so that w = ±1 leaves the difference exact.
-        for (c, s) in col.iter_mut().zip(at.stress(k0 * h)?) {
-            *c = w0 * s;
+        // The calls in the stencil's order, then the one formula a sweep's columns use too.
+        let n = col.len();
+        let mut steps = [0.0; 4];
+        let ns = self.steps(h, &mut steps);
+        let mut calls = [0.0; 4 * 6];
+        for (i, &step) in steps[..ns].iter().enumerate() {
+            calls[i * n..(i + 1) * n].copy_from_slice(&at.stress(step)?[..n]);
         }
-        for &(k, w) in rest {
-            for (c, s) in col.iter_mut().zip(at.stress(k * h)?) {
-                *c += w * s;
-            }
-        }
-        let div = self.div * h;
-        for c in col.iter_mut() {
-            *c /= div;
-        }
+        self.combine(h, &at.driver().base.stress, &calls[..ns * n], col);
         Ok(())
     }
 
