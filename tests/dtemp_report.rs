@@ -86,13 +86,35 @@ fn a_wrong_dtemp_alone_is_said_in_every_summary() {
     assert!(page.contains("cause <code>dtemp-partial</code>"), "no ∂σ/∂T cause");
 }
 
-// The ∂σ/∂T column of a central check faults where the tangent agrees (the temperature
-// perturbation crosses a limit of the routine: here ν(T) = 0.3 + 1e-3 (T − 20) reaches 0.5 at
-// 220 °C, and the increment ends 5e-4 below it): the increment's row says so, as the scheme's
+// The ∂σ/∂T column of a central check faults where the tangent agrees: ν(T) = 0.3 + ν₁ (T − 20)
+// with ν₁ = 1e6 leaves the routine an interval of 1.5e-6 °C around 20 °C, far inside the
+// temperature step (1.2e-4 °C) on both sides. The increment's row says so, as the scheme's
 // summary counts it (the row read "ok" beside "1 of 2 checks failed").
 #[test]
 fn a_dtemp_column_that_faults_is_shown_in_its_row() {
     let d = scratch("row");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "model": "thermo", "kind": "solid-3d", "properties": [200000, 0.3, 1e6, 0, 0, 1.2e-5] },
+  "start": { "temperature": 20 },
+  "path": { "increments": [ {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 0}, {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 0} ] } }"#,
+    )
+    .unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
+    let t = String::from_utf8_lossy(&o.stdout);
+    let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).unwrap_or_else(|| panic!("{t}"));
+    assert!(row.contains("dT FAULT"), "{row}\n{t}");
+    assert!(t.contains("central       2 of 2 checks failed"), "{t}");
+    assert_eq!(o.status.code(), Some(3), "{t}");
+}
+
+// The temperature step crosses the routine's limit on one side only (ν(T) = 0.3 + 1e-3 (T − 20)
+// reaches 0.5 at 220 °C, and the increment ends 5e-4 below it): the ∂σ/∂T column is made on
+// the side the routine takes, the check passes, and a note says where and why.
+#[test]
+fn a_dtemp_column_at_the_routines_limit_is_taken_on_the_side_it_takes() {
+    let d = scratch("edge");
     let m = d.join("m.json");
     std::fs::write(
         &m,
@@ -103,7 +125,8 @@ fn a_dtemp_column_that_faults_is_shown_in_its_row() {
     .unwrap();
     let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
     let t = String::from_utf8_lossy(&o.stdout);
-    let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).unwrap_or_else(|| panic!("{t}"));
-    assert!(row.contains("dT FAULT"), "{row}\n{t}");
-    assert!(t.contains("central       1 of 2 checks failed"), "{t}");
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    assert!(!t.contains("FAULT"), "{t}");
+    let note = t.lines().find(|l| l.contains("note: increment 2:")).unwrap_or_else(|| panic!("{t}"));
+    assert!(note.contains("dT (backward) taken one-sided"), "{note}");
 }

@@ -1,6 +1,7 @@
 //! A tangent check along a path: the pipeline driver → schemes → comparison → report. Each
 //! increment is checked by [`judge::check_call`], the same per-call check bisection uses.
 
+use crate::call_check as judge;
 use crate::concurrent;
 use crate::driver::{Driver, PointState};
 use crate::error::CoreError;
@@ -237,7 +238,7 @@ pub fn run_with(
         coverage,
         calls: CallCounts { real: caller.real_calls - real0, complex: caller.complex_calls - cplx0 },
         verdict,
-        notes,
+        notes: fold_one_sided(notes),
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
         guard: None,
         gave_way,
@@ -346,3 +347,34 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
         takes.join(", ")
     ))
 }
+
+/// Notes of one-sided columns (`call_check::ONE_SIDED`) kept for the first
+/// [`ONE_SIDED_NOTES`] increments, the rest counted in one line: a path that stays at the edge
+/// of the routine's domain would otherwise give a note per increment.
+fn fold_one_sided(notes: Vec<String>) -> Vec<String> {
+    let only = |n: &String| n.contains(judge::ONE_SIDED) && !n.contains(increment::HELD_NOT_REACHED);
+    let total = notes.iter().filter(|n| only(n)).count();
+    if total <= ONE_SIDED_NOTES {
+        return notes;
+    }
+    let mut seen = 0;
+    let mut out: Vec<String> = notes
+        .into_iter()
+        .filter(|n| {
+            if !only(n) {
+                return true;
+            }
+            seen += 1;
+            seen <= ONE_SIDED_NOTES
+        })
+        .collect();
+    out.push(format!(
+        "{} more increments had columns {} around a refused call (the first {ONE_SIDED_NOTES} are above)",
+        total - ONE_SIDED_NOTES,
+        judge::ONE_SIDED
+    ));
+    out
+}
+
+/// One-sided notes given in full.
+const ONE_SIDED_NOTES: usize = 3;

@@ -158,6 +158,11 @@ impl<'s> Walk<'s> {
             Ok(me) => me,
             Err(fault) => return self.faulted(k, fault, solve_log, unloaded, note, collected),
         };
+        // Columns made one-sided around a refused call are said in the report's notes.
+        let note = match (note, me.one_sided_note(k + 1)) {
+            (Some(a), Some(b)) => Some(format!("{a}; {b}")),
+            (a, b) => a.or(b),
+        };
         let (branch, state_changed) = (me.reported_branch(), me.state_changed);
         let dtemp_checked = me.returns_dtemp();
         // A newly reached branch gets the full guards after its judgement; the increment is

@@ -22,9 +22,12 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 mod columns;
+mod one_sided;
 mod records;
 mod straddle;
 use columns::{strain_columns, ColumnCalls};
+use one_sided::OneSided;
+pub(crate) use one_sided::ONE_SIDED;
 pub use records::{call_record, fault_record, fault_record_of_call};
 use straddle::{kink_straddled, one_sided_distance, straddle_level, TEMPERATURE_BIT};
 
@@ -96,6 +99,8 @@ struct Measured {
     /// Why there is no tangent to compare (skipped, or a call faulted).
     outcome: Option<CheckOutcome>,
     dtemp: Option<Result<[f64; 6], CheckOutcome>>,
+    /// Columns made one-sided because the routine refused a call of the stencil.
+    one_sided: Option<OneSided>,
 }
 
 /// What the calls of one increment gave, before any judgement: the base call's tangent and
@@ -243,7 +248,14 @@ pub fn measure_call(
         let ss = settings.scheme(scheme);
         let h = ss.rel_step * h_strain_scale;
         // Written in place (a tangent is 36 numbers: no copies of it per scheme).
-        measured.push(Measured { scheme, h, tangent: [0.0; 36], outcome: None, dtemp: None });
+        measured.push(Measured {
+            scheme,
+            h,
+            tangent: [0.0; 36],
+            outcome: None,
+            dtemp: None,
+            one_sided: None,
+        });
         let m = measured.last_mut().expect("just pushed");
         if scheme == Scheme::ComplexStep && !has_twin {
             m.outcome = Some(CheckOutcome::Skipped { reason: "no complex twin".into() });
@@ -271,7 +283,20 @@ pub fn measure_call(
                 }
             }
         };
-        if let Err((j, f)) = strain_columns(scheme, driver, caller, h, &mut m.tangent[..n * n], seen) {
+        let columns =
+            strain_columns(scheme, driver, caller, h, &mut m.tangent[..n * n], seen).or_else(|(j, f)| {
+                one_sided::finish_strain_columns(
+                    scheme,
+                    driver,
+                    caller,
+                    h,
+                    j,
+                    f,
+                    &mut m.tangent[..n * n],
+                    &mut m.one_sided,
+                )
+            });
+        if let Err((j, f)) = columns {
             let what =
                 format!("dstrain[{j}] {} {h:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
             m.outcome = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
@@ -279,13 +304,30 @@ pub fn measure_call(
         if returned_dtemp.is_some() {
             let ht = ss.rel_step * h_temp_scale;
             let mut col = [0.0; 6];
-            m.dtemp = Some(match scheme.column(driver, caller, Direction::Temperature, ht, &mut col[..n]) {
+            let mut straddle_look = true;
+            let made =
+                scheme.column(driver, caller, Direction::Temperature, ht, &mut col[..n]).or_else(|f| {
+                    // One-sided: the driver's plus and minus no longer hold the stencil's calls.
+                    straddle_look = false;
+                    one_sided::finish_dtemp_column(
+                        scheme,
+                        driver,
+                        caller,
+                        ht,
+                        f,
+                        &mut col[..n],
+                        &mut m.one_sided,
+                    )
+                });
+            m.dtemp = Some(match made {
                 Ok(()) => Ok(col),
                 Err(f) => {
                     Err(CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}")))))
                 }
             });
-            if let (Scheme::Central, Some(Ok(_)), Some(ret)) = (scheme, &m.dtemp, &returned_dtemp) {
+            if let (Scheme::Central, Some(Ok(_)), Some(ret), true) =
+                (scheme, &m.dtemp, &returned_dtemp, straddle_look)
+            {
                 let d = one_sided_distance(
                     &driver.base.stress[..n],
                     &driver.plus.stress[..n],
@@ -373,6 +415,10 @@ pub fn judge(
         me.best_at.map(|b| (measured[b].scheme, measured[b].tangent[..n * n].to_vec()));
     let mut checks = Vec::with_capacity(measured.len());
     let mut failed_dtemp: Option<Vec<f64>> = None;
+    // Whether the complex step agrees on the tangent and on ∂σ/∂T: a column a difference made
+    // one-sided at the edge of the routine's domain that disagrees where the exact derivative
+    // agrees is the difference's error (a response too curved for its step there), set aside.
+    let exact = one_sided::exact_agrees(&me, caller, settings);
     for m in measured {
         let ss = settings.scheme(m.scheme);
         let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
@@ -385,13 +431,17 @@ pub fn judge(
             }
             (None, None) => unreachable!("a scheme that measured a tangent makes the sharpest one"),
         };
+        let tangent = one_sided::set_aside(tangent, m.one_sided.as_ref(), false, exact.0);
         let dstress_dtemp = match (returned_dtemp, &m.dtemp) {
             (Some(ret), Some(Ok(col))) => {
                 let c = compare_dtemp_floor(conv, ret, &col[..n], limits, me.dtemp_abs_floor);
-                if !c.pass && failed_dtemp.is_none() {
-                    failed_dtemp = Some(col[..n].to_vec());
+                let c = one_sided::set_aside(CheckOutcome::Compared(c), m.one_sided.as_ref(), true, exact.1);
+                if let (CheckOutcome::Compared(x), None) = (&c, &failed_dtemp) {
+                    if !x.pass {
+                        failed_dtemp = Some(col[..n].to_vec());
+                    }
                 }
-                Some(CheckOutcome::Compared(c))
+                Some(c)
             }
             (_, Some(Err(fault))) => Some(fault.clone()),
             _ => None,
