@@ -3,6 +3,7 @@
 
 use crate::call_check as judge;
 use crate::concurrent;
+use crate::cutback;
 use crate::driver::{Driver, PointState};
 use crate::error::CoreError;
 use crate::first_calls;
@@ -30,7 +31,32 @@ pub fn run(
 
 /// [`run`], keeping the full detail of the increments `keep` says (every increment gets its
 /// fixed-size record), and telling `progress` the number of each increment once it is checked.
+///
+/// A path that stopped where the routine asked for a smaller increment is checked again with
+/// the increments it refuses cut into parts, as a solver cuts back ([`cutback`]).
 pub fn run_with(
+    caller: &mut Caller<'_>,
+    props: &[f64],
+    start: PointState,
+    path: &Path,
+    settings: &Settings,
+    keep: Keep,
+    progress: &mut dyn FnMut(usize),
+) -> Result<Report, CoreError> {
+    let report = run_path(caller, props, start.clone(), path, settings, keep, progress)?;
+    if !cutback::stopped_for_smaller(&report) {
+        return Ok(report);
+    }
+    let Some(cut) = cutback::cut(caller, props, &start, path)? else {
+        return Ok(report);
+    };
+    let mut again = run_path(caller, props, start, &cut.path, settings, keep, progress)?;
+    again.notes.insert(0, cut.note(path.increments.len()));
+    Ok(again)
+}
+
+/// One check along `path` (see [`run_with`]).
+fn run_path(
     caller: &mut Caller<'_>,
     props: &[f64],
     start: PointState,

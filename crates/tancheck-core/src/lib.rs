@@ -14,6 +14,7 @@ pub mod compare;
 pub mod concurrent;
 pub mod convention;
 pub mod convention_fit;
+pub mod cutback;
 pub mod diagnose;
 pub mod driver;
 pub mod error;
