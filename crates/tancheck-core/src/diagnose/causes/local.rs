@@ -65,9 +65,27 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
             format!("row {} (the response of stress {})", lab(best_r.1), lab(best_r.1)),
             best_r.0,
         );
+        // A plane-strain routine whose stress does not depend on ε33 at all (its numerical
+        // column is exactly zero) and that returns that column of the 3-D law: the words say
+        // what it means for a solver.
+        let k = best_c.1;
+        let ignores = ev.conv.kind() == crate::convention::PointKind::PlaneStrain
+            && lab(k) == "33"
+            && ev.numerical[k * n..(k + 1) * n].iter().all(|&x| x == 0.0);
         found.push(
             Cause::OneColumn,
-            format!("column {} (the strain direction {})", lab(best_c.1), lab(best_c.1)),
+            format!(
+                "column {} (the strain direction {}){}",
+                lab(k),
+                lab(k),
+                if ignores {
+                    "; the routine's stress does not depend on ε33 at all: a plane-strain solver keeps ε33 = 0 \
+                     and never uses this column, a generalized plane-strain one does (return zeros there, or \
+                     let the stress depend on ε33)"
+                } else {
+                    ""
+                }
+            ),
             best_c.0,
         );
     }

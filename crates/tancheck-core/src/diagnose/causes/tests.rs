@@ -578,3 +578,19 @@ fn the_elastic_tangent_leads_the_shear_modulus_part_it_explains_too() {
     let h = rank(&ev(&conv, &elastic, &creep, &z));
     assert_eq!(h[0].cause, Cause::ShearModulus, "{h:?}");
 }
+
+#[test]
+fn a_plane_strain_column_33_the_stress_does_not_depend_on_is_said_so() {
+    // The 3-D law's column 33 returned by a routine whose stress ignores ε33 (plane strain).
+    let full = isotropic_scaled(4, 200000.0, 0.3, 1.0, 1.0);
+    let mut ignores = full.clone();
+    ignores[2 * 4..3 * 4].fill(0.0);
+    let z = vec![0.0; 4];
+    for (kind, said) in [(PointKind::PlaneStrain, true), (PointKind::Axisymmetric, false)] {
+        let conv = Convention::new(kind, ShearMeasure::Engineering);
+        let h = rank(&ev(&conv, &full, &ignores, &z));
+        assert_eq!(h[0].cause, Cause::OneColumn, "{h:?}");
+        assert!(h[0].detail.starts_with("column 33"), "{}", h[0].detail);
+        assert_eq!(h[0].detail.contains("does not depend on ε33"), said, "{kind:?}: {}", h[0].detail);
+    }
+}
