@@ -133,3 +133,26 @@ fn a_routine_that_never_takes_an_increment_keeps_its_fault() {
     let f = r.first_fault().unwrap();
     assert!(f.message.contains("substeps exhausted") && f.call.perturbation.is_none(), "{f:#?}");
 }
+
+#[test]
+fn the_probe_suite_runs_on_the_cut_path_too() {
+    use tancheck::cli::suite::Suite;
+    use tancheck::core::probe::{run_suite, ProbeStatus};
+    // The default solid suite on its own path, with increments the routine refuses.
+    let suite = Suite::default_for(PointKind::Solid3d, false);
+    let path = suite.path().unwrap();
+    let largest = path.increments.iter().flat_map(|i| i.dstrain).fold(0.0f64, |a, x| a.max(x.abs()));
+    let inner = zoo_model("j2", PointKind::Solid3d).unwrap();
+    let mut r = Cutting { inner, limit: 0.6 * largest, fraction: |f| f };
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let report =
+        run_suite(&mut caller, &suite.suite, &suite.probes, &J2_PROPS, &start, &path, &Default::default())
+            .unwrap();
+    for p in &report.results {
+        assert_ne!(p.status, ProbeStatus::Fail, "{}: {p:#?}", p.probe);
+    }
+    assert!(report.notes.iter().any(|n| n.contains("asked for a smaller increment")), "{:#?}", report.notes);
+    assert!(report.path.contains("cut where the routine asked"));
+}

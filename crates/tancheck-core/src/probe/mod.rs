@@ -370,6 +370,10 @@ pub struct SuiteReport {
     /// fault). Reports written before it was added read as 0 (use `pass`).
     #[serde(default)]
     pub exit_code: i32,
+    /// Things the user should know that are not findings (a path cut where the routine asked
+    /// for smaller increments).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
     pub cautions: Vec<String>,
 }
 
@@ -412,7 +416,53 @@ pub fn run_suite(
 
 /// Run `probes`, each with its suite entry, on a routine: a probe whose [`Needs`] are not met
 /// is skipped with the reason [`unmet`] gives, without a call.
+///
+/// When a probe faulted and the routine asks for smaller increments along the path, the
+/// suite runs again on the path cut where it asked ([`crate::cutback`]), each `at` moved to
+/// the last part of its increment, with a note.
 pub fn run_probes(
+    caller: &mut Caller<'_>,
+    suite: &str,
+    probes: &[(&dyn Probe, &ProbeSpec)],
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    settings: &Settings,
+) -> Result<SuiteReport, CoreError> {
+    let report = run_probes_on(caller, suite, probes, props, start, path, settings)?;
+    if !report.results.iter().any(|r| r.fault) {
+        return Ok(report);
+    }
+    let Some(cut) = crate::cutback::cut(caller, props, start, path)? else {
+        return Ok(report);
+    };
+    // Increment k of the path given ends where its last part ends.
+    let mut ends = Vec::with_capacity(path.increments.len());
+    let mut at = 0;
+    for k in 1..=path.increments.len() {
+        at += cut.cuts.iter().find(|(i, _)| *i == k).map_or(1, |(_, parts)| *parts);
+        ends.push(at);
+    }
+    let specs: Vec<ProbeSpec> = probes
+        .iter()
+        .map(|(_, s)| {
+            let mut s = (*s).clone();
+            if let Some(at) = &mut s.at {
+                for k in at.iter_mut() {
+                    *k = k.checked_sub(1).and_then(|i| ends.get(i)).copied().unwrap_or(*k);
+                }
+            }
+            s
+        })
+        .collect();
+    let moved: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().zip(&specs).map(|((p, _), s)| (*p, s)).collect();
+    let mut again = run_probes_on(caller, suite, &moved, props, start, &cut.path, settings)?;
+    again.notes.push(cut.note(path.increments.len()));
+    Ok(again)
+}
+
+/// [`run_probes`] on `path` as given.
+fn run_probes_on(
     caller: &mut Caller<'_>,
     suite: &str,
     probes: &[(&dyn Probe, &ProbeSpec)],
@@ -441,6 +491,7 @@ pub fn run_probes(
         results,
         pass,
         exit_code,
+        notes: Vec::new(),
         cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
     })
 }

@@ -38,6 +38,13 @@ pub fn probe_page(report: &SuiteReport) -> String {
     let _ = writeln!(o, "<dt>routine</dt><dd>{}</dd>", esc(&report.routine));
     let _ = writeln!(o, "<dt>path</dt><dd>{}</dd>", esc(&report.path));
     let _ = writeln!(o, "</dl>");
+    if !report.notes.is_empty() {
+        let _ = writeln!(o, "<ul class=\"plain\">");
+        for n in &report.notes {
+            let _ = writeln!(o, "<li>note: {}</li>", esc(n));
+        }
+        let _ = writeln!(o, "</ul>");
+    }
     o.push_str(&cautions(&report.cautions));
     let _ =
         writeln!(o, "<h2>Probes</h2>\n<table>\n<tr><th>probe</th><th>status</th><th>what it found</th></tr>");

@@ -41,7 +41,7 @@ pub fn suite(
     if !quiet {
         writeln!(out, "{}", p.head(&format!("== {} — suite {} ==", report.routine, report.suite)))?;
         writeln!(out, "   path ({}): {}", ctx.path_source, report.path)?;
-        for n in &ctx.notes {
+        for n in ctx.notes.iter().chain(&report.notes) {
             writeln!(out, "   note: {n}")?;
         }
         writeln!(out)?;
