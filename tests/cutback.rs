@@ -156,3 +156,34 @@ fn the_probe_suite_runs_on_the_cut_path_too() {
     assert!(report.notes.iter().any(|n| n.contains("asked for a smaller increment")), "{:#?}", report.notes);
     assert!(report.path.contains("cut where the routine asked"));
 }
+
+#[test]
+fn bisect_and_shrink_work_on_the_cut_path() {
+    use tancheck::core::bisect::{locate, shrink, BisectSettings, ShrinkLimits};
+    let inner = zoo_model("j2-continuum", PointKind::Solid3d).unwrap();
+    let mut r = Cutting { inner, limit: 6e-4, fraction: |f| f };
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let (start, path, settings) = (PointState::zero(&info, 20.0), path(), Default::default());
+    let report = check::run(&mut caller, &J2_PROPS, start.clone(), &path, &settings).unwrap();
+    assert_eq!(report.verdict, Verdict::TangentFailure);
+    let cut = report.checked_path.clone().expect("checked on the cut path");
+    assert_eq!(cut.increments.len(), report.records.len());
+    // The failing increment is located on the cut path (its numbers are the report's).
+    let l =
+        locate(&mut caller, &J2_PROPS, start.clone(), &path, &report, &settings, &BisectSettings::default())
+            .unwrap()
+            .expect("a failure to locate");
+    assert_eq!(l.of, cut.increments.len());
+    // Shrinking keeps only candidates whose increments the routine takes (merged neighbours
+    // it refuses would be cut back again): the shrunk path fails the same way on its own.
+    let limits = ShrinkLimits { max_iterations: 200, max_seconds: 60.0 };
+    let s =
+        shrink(&mut caller, &J2_PROPS, &start, &path, &report, &settings, limits).unwrap().expect("shrunk");
+    assert!(s.report.checked_path.is_none());
+    assert_eq!(s.report.verdict, Verdict::TangentFailure);
+    assert!(s.path.increments.iter().all(|i| i.dstrain.iter().all(|x| x.abs() <= 6e-4)), "{:?}", s.path);
+    let l2 = locate(&mut caller, &J2_PROPS, start, &s.path, &s.report, &settings, &BisectSettings::default())
+        .unwrap();
+    assert!(l2.is_some());
+}

@@ -109,6 +109,8 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     let mut caller = Caller::new(routine);
     let report =
         check::run(&mut caller, &props, start.clone(), &path, &settings).map_err(anyhow::Error::msg)?;
+    // A path cut where the routine asked for smaller increments is the one the cases replay.
+    let path = report.checked_path.clone().unwrap_or(path);
     let located = bisect::locate(&mut caller, &props, start.clone(), &path, &report, &settings, &bs)
         .map_err(anyhow::Error::msg)?;
     let case_dir = a.run.case_dir_of(&a.manifest, &dir);

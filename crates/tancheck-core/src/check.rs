@@ -52,6 +52,7 @@ pub fn run_with(
     };
     let mut again = run_path(caller, props, start, &cut.path, settings, keep, progress)?;
     again.notes.insert(0, cut.note(path.increments.len()));
+    again.checked_path = Some(cut.path);
     Ok(again)
 }
 
@@ -268,6 +269,7 @@ fn run_path(
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
         guard: None,
         gave_way,
+        checked_path: None,
     })
 }
 

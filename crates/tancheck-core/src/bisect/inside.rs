@@ -82,6 +82,8 @@ pub fn locate(
     bisect: &BisectSettings,
 ) -> Result<Option<Located>, CoreError> {
     bisect.validate()?;
+    // The increments of a report checked on a cut path are that path's.
+    let path = report.checked_path.as_ref().unwrap_or(path);
     let Some(failed) = first_failure(report) else { return Ok(None) };
     let index = failed.index;
     let calls0 = caller.real_calls + caller.complex_calls;

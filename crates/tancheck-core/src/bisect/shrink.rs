@@ -162,6 +162,11 @@ impl Shrinker<'_, '_> {
         let Ok(r) = check::run(self.caller, self.props, self.start.clone(), &path, self.settings) else {
             return false;
         };
+        // A candidate with an increment the routine refuses as too large (the check cut it
+        // back) is no smaller case: its report's increments are not the candidate's.
+        if r.checked_path.is_some() {
+            return false;
+        }
         match signature(&r) {
             Some((v, f, index))
                 if v == self.verdict && f == self.finding && keeps_margins(&r, &self.min_margins) =>
@@ -325,6 +330,8 @@ pub fn shrink(
         return Err(CoreError::ShrinkTime(limits.max_seconds));
     }
     let Some((verdict, finding, index)) = signature(report) else { return Ok(None) };
+    // The increments of a report checked on a cut path are that path's.
+    let path = report.checked_path.as_ref().unwrap_or(path);
     let t0 = Instant::now();
     let original_increments = path.increments.len();
     let mut incs = path.increments.clone();

@@ -297,6 +297,11 @@ pub struct Report {
     /// [`gave_way::GaveWay`]); not written (the notes say it).
     #[serde(skip)]
     pub gave_way: Option<gave_way::GaveWay>,
+    /// The path the increments were checked on, when it is not the one given: cut where the
+    /// routine asked for smaller increments ([`crate::cutback`]); the increment numbers are
+    /// its. Not written (the notes and `path` say it).
+    #[serde(skip)]
+    pub checked_path: Option<crate::path::Path>,
 }
 
 /// The memory guards of a loaded library over one check.
