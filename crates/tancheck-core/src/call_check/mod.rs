@@ -100,7 +100,8 @@ struct Measured {
     outcome: Option<CheckOutcome>,
     dtemp: Option<Result<[f64; 6], CheckOutcome>>,
     /// Columns made one-sided because the routine refused a call of the stencil.
-    one_sided: Option<OneSided>,
+    /// (Boxed: a refusal is rare, and the measurement moves on every increment.)
+    one_sided: Option<Box<OneSided>>,
 }
 
 /// What the calls of one increment gave, before any judgement: the base call's tangent and
@@ -431,11 +432,12 @@ pub fn judge(
             }
             (None, None) => unreachable!("a scheme that measured a tangent makes the sharpest one"),
         };
-        let tangent = one_sided::set_aside(tangent, m.one_sided.as_ref(), false, exact.0);
+        let tangent = one_sided::set_aside(tangent, m.one_sided.as_deref(), false, exact.0);
         let dstress_dtemp = match (returned_dtemp, &m.dtemp) {
             (Some(ret), Some(Ok(col))) => {
                 let c = compare_dtemp_floor(conv, ret, &col[..n], limits, me.dtemp_abs_floor);
-                let c = one_sided::set_aside(CheckOutcome::Compared(c), m.one_sided.as_ref(), true, exact.1);
+                let c =
+                    one_sided::set_aside(CheckOutcome::Compared(c), m.one_sided.as_deref(), true, exact.1);
                 if let (CheckOutcome::Compared(x), None) = (&c, &failed_dtemp) {
                     if !x.pass {
                         failed_dtemp = Some(col[..n].to_vec());

@@ -118,7 +118,7 @@ pub(super) fn finish_strain_columns(
     from: usize,
     fault: Fault,
     tangent: &mut [f64],
-    made: &mut Option<OneSided>,
+    made: &mut Option<Box<OneSided>>,
 ) -> Result<(), (usize, Fault)> {
     if !goes_around(scheme, &fault, h) {
         return Err((from, fault));
@@ -137,7 +137,8 @@ pub(super) fn finish_strain_columns(
         };
         let side = column(driver, caller, Direction::Strain(j), h, col).map_err(|f| (j, f))?;
         let label = caller.info().convention.order()[j].label().to_string();
-        let m = made.get_or_insert_with(|| OneSided { columns: Vec::new(), refusal: refusal.to_string() });
+        let m = made
+            .get_or_insert_with(|| Box::new(OneSided { columns: Vec::new(), refusal: refusal.to_string() }));
         m.columns.push((label, side));
     }
     Ok(())
@@ -151,13 +152,14 @@ pub(super) fn finish_dtemp_column(
     h: f64,
     fault: Fault,
     col: &mut [f64],
-    made: &mut Option<OneSided>,
+    made: &mut Option<Box<OneSided>>,
 ) -> Result<(), Fault> {
     if !goes_around(scheme, &fault, h) {
         return Err(fault);
     }
     let side = column(driver, caller, Direction::Temperature, h, col)?;
-    let m = made.get_or_insert_with(|| OneSided { columns: Vec::new(), refusal: fault.to_string() });
+    let m =
+        made.get_or_insert_with(|| Box::new(OneSided { columns: Vec::new(), refusal: fault.to_string() }));
     m.columns.push(("dT".to_string(), side));
     Ok(())
 }
@@ -229,6 +231,9 @@ impl super::Measurement {
     /// The note of increment `index` (1-based) when the routine refused a call of a scheme's
     /// stencil and columns were made one-sided.
     pub fn one_sided_note(&self, index: usize) -> Option<String> {
+        if self.measured.iter().all(|m| m.one_sided.is_none()) {
+            return None;
+        }
         let notes: Vec<String> = self
             .measured
             .iter()
