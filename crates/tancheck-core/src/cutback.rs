@@ -105,9 +105,14 @@ pub fn cut(
             };
             let Some((fraction, message)) = refused else { break };
             if words.is_none() {
-                let f =
-                    Fault::Status { status: status::SMALLER_INCREMENT, message, largest_fraction: fraction };
-                words = Some(f.to_string());
+                // "status 1, largest fraction 0.5: <its message>"
+                let fr = if fraction > 0.0 && fraction < 1.0 {
+                    format!(", largest fraction {fraction:.3}")
+                } else {
+                    String::new()
+                };
+                let said = if message.is_empty() { String::new() } else { format!(": {message}") };
+                words = Some(format!("status {}{fr}{said}", status::SMALLER_INCREMENT));
             }
             // As many parts as the fraction asks of the part refused, with a tenth to spare (a
             // part at the very limit would have the difference steps beyond it), at least
