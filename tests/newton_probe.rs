@@ -128,3 +128,53 @@ fn no_false_alarm_on_strain_control_and_elastic_paths() {
         ProbeEnv { props: &[200000.0, 0.3], start: &start, path: &path, settings: &settings, spec: &spec };
     assert_eq!(NewtonRate.run(&mut caller, &env).unwrap().status, ProbeStatus::Skipped);
 }
+
+/// The J2 model refusing (a smaller increment asked for) any call whose ε22 increment is
+/// negative: the probe's own iterates start there, the path's calls never do.
+struct RefusesContraction<R>(R);
+
+impl<R: Routine> Routine for RefusesContraction<R> {
+    fn info(&self) -> &tancheck::core::routine::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::routine::CallInput<'_, f64>,
+        output: &mut tancheck::core::routine::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::routine::Fault> {
+        use tancheck::core::routine::{status, Fault};
+        if input.dstrain[1] < -1e-12 {
+            output.outcome.status = status::SMALLER_INCREMENT;
+            return Err(Fault::Status {
+                status: status::SMALLER_INCREMENT,
+                message: "contraction refused".into(),
+                largest_fraction: 0.5,
+            });
+        }
+        self.0.call(input, output)
+    }
+}
+
+// A status the routine returns for an iterate of the probe's own solve is a refusal, as a
+// solver would meet and cut back from, not a failure of the tangent (it failed the probe,
+// exit 1, on a correct routine): the increment is not judged, and a probe with no increment
+// left is skipped with the reason.
+#[test]
+fn an_iterate_the_routine_refuses_is_not_judged() {
+    let mut r = RefusesContraction(reference("j2", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("newton");
+    let path = Path::ramp(Shape::UniaxialStrain, 4e-3, 8, 0);
+    let env = ProbeEnv { props: &VOCE, start: &start, path: &path, settings: &settings, spec: &spec };
+    let solves = newton::study(&mut caller, &env).unwrap();
+    assert!(!solves.is_empty() && solves.iter().all(|s| s.refused), "{solves:#?}");
+    let result = NewtonRate.run(&mut caller, &env).unwrap();
+    assert_eq!(result.status, ProbeStatus::Skipped, "{result:#?}");
+    assert!(
+        result.details.iter().all(|d| d.contains("contraction refused") && d.contains("not judged")),
+        "{result:#?}"
+    );
+}

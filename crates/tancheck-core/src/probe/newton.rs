@@ -38,7 +38,7 @@ use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::mixed::{self, MixedSettings, SolveLog};
-use crate::routine::Caller;
+use crate::routine::{Caller, Fault};
 
 pub struct NewtonRate;
 
@@ -60,6 +60,10 @@ pub struct IncrementSolve {
     pub log: SolveLog,
     /// The routine failed during the solve.
     pub failure: Option<String>,
+    /// That failure was a status the routine returned for an iterate of the solve (it refused
+    /// the iterate as too large or outside its law, as it would refuse a solver's, which cuts
+    /// back): the increment is not judged.
+    pub refused: bool,
     /// Residuals above the rounding floor.
     pub usable: Vec<f64>,
     /// Observed orders from the usable residuals.
@@ -130,13 +134,15 @@ pub fn study(
         }
         let fresh = t.clone();
         t.set_dstrain(&de);
-        let (mut log, mut failure) = match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
-            Ok(log) => (log, None),
-            Err(f) => (
-                SolveLog { residuals: Vec::new(), converged: false, numerical_fallback: false },
-                Some(f.to_string()),
-            ),
-        };
+        let (mut log, mut failure, refused) =
+            match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+                Ok(log) => (log, None, false),
+                Err(f) => (
+                    SolveLog { residuals: Vec::new(), converged: false, numerical_fallback: false },
+                    Some(f.to_string()),
+                    matches!(f, Fault::Status { .. }),
+                ),
+            };
         let mut diverged_from_start = None;
         if failure.is_none() && log.numerical_fallback {
             // Again from near the solution (the path's own increment).
@@ -170,6 +176,7 @@ pub fn study(
             state_changed,
             log,
             failure,
+            refused,
             usable,
             orders,
             tail_order,
@@ -251,6 +258,12 @@ impl Probe for NewtonRate {
                 }
                 if let Some(f) = &s.failure {
                     line.push_str(&format!(", {f}"));
+                    if s.refused {
+                        line.push_str(
+                            " in an iterate of the solve: not judged here (a solver would cut the increment \
+                             back)",
+                        );
+                    }
                 }
                 line
             })
@@ -265,7 +278,16 @@ impl Probe for NewtonRate {
         } else {
             format!("{lo}–{hi} iterations")
         };
-        let unconverged = solves.iter().find(|s| !s.converged());
+        if solves.iter().all(|s| s.refused) {
+            let mut r = ProbeResult::skipped(
+                "newton",
+                "the routine refused an iterate of the solve at every probed increment (a status it returned, \
+                 as to a solver that would cut back): no rate to measure",
+            );
+            r.details = details;
+            return Ok(r);
+        }
+        let unconverged = solves.iter().find(|s| !s.refused && !s.converged());
         let slow = solves.iter().find(|s| s.order().is_some_and(|p| p < min_order));
         let mut r = if let Some(s) = unconverged {
             let why = match &s.failure {
@@ -346,6 +368,7 @@ mod tests {
             state_changed: true,
             log: SolveLog { residuals: residuals.to_vec(), converged: true, numerical_fallback: false },
             failure: None,
+            refused: false,
             usable,
             orders,
             tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
