@@ -64,6 +64,10 @@ pub struct IncrementSolve {
     /// the iterate as too large or outside its law, as it would refuse a solver's, which cuts
     /// back): the increment is not judged.
     pub refused: bool,
+    /// The routine's tangent at the path's call is singular in the components solved for (a
+    /// corner or apex of the yield surface where the stress cannot change along them): a
+    /// solve that does not converge there is not judged.
+    pub singular: bool,
     /// Residuals above the rounding floor.
     pub usable: Vec<f64>,
     /// Observed orders from the usable residuals.
@@ -124,6 +128,7 @@ pub fn study(
         let cmax = d.base.tangent.iter().fold(0.0f64, |a, x| a.max(x.abs()));
         let emax = (0..n).fold(0.0f64, |a, i| a.max((d.start().strain[i] + d.dstrain()[i]).abs()));
         let scale = sig.max(cmax * emax);
+        let singular = singular_block(&d.base.tangent, n, &controlled);
         let mut t = d.clone();
         let mut de = d.dstrain().to_vec();
         // From zero, unless zero is the reference increment itself (a path that moves only
@@ -177,6 +182,7 @@ pub fn study(
             log,
             failure,
             refused,
+            singular,
             usable,
             orders,
             tail_order,
@@ -185,6 +191,40 @@ pub fn study(
         Ok(())
     })?;
     Ok(out)
+}
+
+/// Whether the block of the column-major n × n `tangent` on the rows and columns `idx` is
+/// singular to rounding: Gaussian elimination with partial pivoting meets a pivot below 1e-12
+/// of the block's largest entry (or a non-finite one).
+fn singular_block(tangent: &[f64], n: usize, idx: &[usize]) -> bool {
+    let m = idx.len();
+    let mut a: Vec<f64> = Vec::with_capacity(m * m);
+    for &j in idx {
+        for &i in idx {
+            a.push(tangent[i + j * n]);
+        }
+    }
+    let big = a.iter().fold(0.0f64, |x, y| x.max(y.abs()));
+    if !big.is_finite() || big == 0.0 {
+        return true;
+    }
+    for k in 0..m {
+        let p = (k..m).max_by(|&x, &y| a[x + k * m].abs().total_cmp(&a[y + k * m].abs())).unwrap_or(k);
+        let pivot = a[p + k * m].abs();
+        if pivot.is_nan() || pivot <= 1e-12 * big {
+            return true;
+        }
+        for j in 0..m {
+            a.swap(k + j * m, p + j * m);
+        }
+        for i in k + 1..m {
+            let f = a[i + k * m] / a[k + k * m];
+            for j in k..m {
+                a[i + j * m] -= f * a[k + j * m];
+            }
+        }
+    }
+    false
 }
 
 /// A residual below this times the scale is rounding itself: it can come out smaller than the
@@ -256,6 +296,13 @@ impl Probe for NewtonRate {
                         env.settings.mixed.max_iterations.max(100)
                     ));
                 }
+                if s.singular && !s.converged() {
+                    line.push_str(
+                        "; the routine's tangent is singular in the components solved for (a corner or apex \
+                         where the stress cannot change along them): Newton cannot solve for them there, not \
+                         judged",
+                    );
+                }
                 if let Some(f) = &s.failure {
                     line.push_str(&format!(", {f}"));
                     if s.refused {
@@ -278,16 +325,18 @@ impl Probe for NewtonRate {
         } else {
             format!("{lo}–{hi} iterations")
         };
-        if solves.iter().all(|s| s.refused) {
+        let unjudged = |s: &IncrementSolve| s.refused || (s.singular && !s.converged());
+        if solves.iter().all(unjudged) {
             let mut r = ProbeResult::skipped(
                 "newton",
-                "the routine refused an iterate of the solve at every probed increment (a status it returned, \
-                 as to a solver that would cut back): no rate to measure",
+                "at every probed increment the routine refused an iterate of the solve (a status it returned, \
+                 as to a solver that would cut back) or its tangent is singular in the components solved \
+                 for: no rate to measure",
             );
             r.details = details;
             return Ok(r);
         }
-        let unconverged = solves.iter().find(|s| !s.refused && !s.converged());
+        let unconverged = solves.iter().find(|s| !unjudged(s) && !s.converged());
         let slow = solves.iter().find(|s| s.order().is_some_and(|p| p < min_order));
         let mut r = if let Some(s) = unconverged {
             let why = match &s.failure {
@@ -331,6 +380,12 @@ impl Probe for NewtonRate {
                     "Newton with the routine's tangent converged in {span} at every probed increment: no order to measure"
                 ),
             };
+            let left = solves.iter().filter(|s| unjudged(s)).count();
+            let summary = if left > 0 {
+                format!("{summary}; {left} increment(s) not judged (see the details)")
+            } else {
+                summary
+            };
             ProbeResult::new("newton", ProbeStatus::Pass, summary)
         };
         r.value = worst.map(|w| w.1);
@@ -369,6 +424,7 @@ mod tests {
             log: SolveLog { residuals: residuals.to_vec(), converged: true, numerical_fallback: false },
             failure: None,
             refused: false,
+            singular: false,
             usable,
             orders,
             tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
@@ -379,6 +435,32 @@ mod tests {
     // An exact tangent settling late (a softening damage law, measured by a user-style
     // sweep): the last usable order is 1.33, the step below the floor shows 2.39; the
     // increment's order is the higher (orders by the formula of the module documentation).
+    // A rank-one block (the tangent at the apex of a pressure-dependent surface, K 1⊗1) is
+    // singular, the isotropic stiffness's is not.
+    #[test]
+    fn a_rank_one_block_is_singular() {
+        let n = 6;
+        let mut t = vec![0.0; 36];
+        for j in 0..3 {
+            for i in 0..3 {
+                t[i + j * n] = 1.5e5;
+            }
+        }
+        let idx: Vec<usize> = (1..6).collect();
+        assert!(singular_block(&t, n, &idx));
+        let (l, m) = (1.15e5, 7.7e4);
+        let mut c = vec![0.0; 36];
+        for j in 0..3 {
+            for i in 0..3 {
+                c[i + j * n] = l + if i == j { 2.0 * m } else { 0.0 };
+            }
+        }
+        for i in 3..6 {
+            c[i + i * n] = m;
+        }
+        assert!(!singular_block(&c, n, &idx));
+    }
+
     #[test]
     fn a_late_quadratic_step_below_the_floor_counts() {
         let s = solve(&[9.73e-1, 9.68e-2, 4.18e-2, 2.61e-4, 3.05e-7, 2.99e-14], 1e-10);
