@@ -62,13 +62,14 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
         c
     };
     let (fg, fk) = ((g + a) / g, (k + b) / k);
+    let (fg, fk) = (factor(fg), factor(fk));
     let shear_only = (b / k).abs() <= ABSENT;
     let bulk_only = (a / g).abs() <= ABSENT;
     if !bulk_only {
         found.push(
             Cause::ShearModulus,
             format!(
-                "the deviatoric part (the shear-modulus term 2G P_dev) is {fg:.4}× the derivative's ({:.6e} against {:.6e})",
+                "the deviatoric part (the shear-modulus term 2G P_dev) is {fg}× the derivative's ({:.6e} against {:.6e})",
                 g + a,
                 g
             ),
@@ -79,7 +80,7 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
         found.push(
             Cause::BulkModulus,
             format!(
-                "the volumetric part (the bulk-modulus term 3K P_vol) is {fk:.4}× the derivative's ({:.6e} against {:.6e})",
+                "the volumetric part (the bulk-modulus term 3K P_vol) is {fk}× the derivative's ({:.6e} against {:.6e})",
                 k + b,
                 k
             ),
@@ -91,17 +92,39 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
         // stiffness as λ 1⊗1 + 2μ I with one of them wrong shows the other at 1.
         let (lambda, lambda_ret) = ((k - g) / 3.0, (k + b - g - a) / 3.0);
         let lame = if lambda.abs() > ABSENT * k.abs() {
-            format!("; in Lamé form μ is {fg:.4}× and λ {:.4}×", lambda_ret / lambda)
+            format!("; in Lamé form μ is {fg}× and λ {}×", factor(lambda_ret / lambda))
         } else {
             String::new()
         };
         found.push(
             Cause::IsotropicModuli,
             format!(
-                "the deviatoric part (2G) is {fg:.4}× and the volumetric part (3K) {fk:.4}× the derivative's{lame}: \
+                "the deviatoric part (2G) is {fg}× and the volumetric part (3K) {fk}× the derivative's{lame}: \
                  moduli of an isotropic stiffness off, as a wrong Poisson's ratio or Lamé constant gives"
             ),
             ev.error(&corrected(a, b)),
         );
+    }
+}
+
+/// A factor as the words give it: four decimals where that reads (1.2500), else three
+/// significant digits in exponent form (a part of the derivative that is zero to rounding
+/// gave 73300775185066688.0000).
+fn factor(x: f64) -> String {
+    if x.is_finite() && (1e-3..1e4).contains(&x.abs()) {
+        format!("{x:.4}")
+    } else {
+        format!("{x:.3e}")
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    #[test]
+    fn a_factor_reads_with_four_decimals_or_in_exponent_form() {
+        assert_eq!(super::factor(1.25), "1.2500");
+        assert_eq!(super::factor(-0.2), "-0.2000");
+        assert_eq!(super::factor(7.330_077_518_506_669e16), "7.330e16");
+        assert_eq!(super::factor(0.0), "0.000e0");
     }
 }
