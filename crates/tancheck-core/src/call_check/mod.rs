@@ -11,18 +11,18 @@ use serde::{Deserialize, Serialize};
 use smallvec::SmallVec;
 
 use crate::compare::{
-    compare_dtemp_floor, compare_with, dtemp_floor, passing, Limits, PassedScheme, SoftDirections,
+    compare_dtemp_floor, compare_with, dtemp_floor, rounding_floor, Limits, SoftDirections,
 };
-use crate::convention::Convention;
 use crate::diagnose::{self, Context, Diagnosis};
 use crate::driver::{Direction, Driver};
-use crate::report::{CheckOutcome, SchemeCheck, RECORD_SCHEMES};
+use crate::report::{CheckOutcome, SchemeCheck};
 use crate::routine::{provides, Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 mod columns;
 mod one_sided;
+mod passed;
 mod records;
 mod straddle;
 use columns::{strain_columns, ColumnCalls};
@@ -119,6 +119,8 @@ pub struct Measurement {
     pub(crate) state_changed: bool,
     twin_real_gap: Option<f64>,
     dtemp_abs_floor: f64,
+    /// ‖σ‖ + ‖C‖·strain scale: the size of the stresses a difference subtracts (its rounding).
+    stress_size: f64,
     measured: SmallVec<[Measured; 2]>,
     /// Which of `measured` is the sharpest tangent.
     best_at: Option<usize>,
@@ -148,60 +150,6 @@ impl Measurement {
     /// The sharpest numerical tangent measured (see [`CallCheck::best`]), column-major.
     pub fn best(&self) -> Option<&[f64]> {
         self.best_at.map(|b| &self.measured[b].tangent[..self.n * self.n])
-    }
-
-    /// The judgement of a call that passed every check, with nothing more to say about it:
-    /// per scheme (the settings' order) the norm and worst-entry errors and the largest
-    /// error of its tangent comparison, `None` for a skipped scheme; `None` as a whole when a
-    /// comparison failed, a call faulted or an output is not a finite number (then only
-    /// [`check_call`]'s full judgement says what happened). The numbers are the very ones the
-    /// full judgement reports: the same measures, computed in the same order.
-    pub fn passed(
-        &self,
-        driver: &Driver,
-        conv: &Convention,
-        settings: &Settings,
-    ) -> Option<[Option<PassedScheme>; RECORD_SCHEMES]> {
-        let n = self.n;
-        let base = &driver.base;
-        let finite = |v: &[f64]| v.iter().all(|x| x.is_finite());
-        if !(finite(&base.stress) && finite(&base.state) && finite(&base.tangent)) {
-            return None;
-        }
-        let soft = self.soft.as_ref()?;
-        // A column the central difference straddles at a kink is looked at again (`judge`).
-        if self.straddled != 0 {
-            return None;
-        }
-        let mut r = [0.0; 36];
-        conv.tangent_to_mandel_into(&self.returned[..n * n], &mut r[..n * n]);
-        let mut out = [None; RECORD_SCHEMES];
-        for (k, m) in self.measured.iter().enumerate() {
-            match &m.outcome {
-                Some(CheckOutcome::Skipped { .. }) => {}
-                Some(_) => return None,
-                None => {
-                    let ss = settings.scheme(m.scheme);
-                    let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
-                    let p = passing(conv, &r[..n * n], &m.tangent[..n * n], limits, soft)?;
-                    if k < RECORD_SCHEMES {
-                        out[k] = Some(p);
-                    }
-                }
-            }
-            match (&self.returned_dtemp, &m.dtemp) {
-                (Some(ret), Some(Ok(col))) => {
-                    let ss = settings.scheme(m.scheme);
-                    let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
-                    if !compare_dtemp_floor(conv, &ret[..n], &col[..n], limits, self.dtemp_abs_floor).pass {
-                        return None;
-                    }
-                }
-                (_, Some(Err(_))) => return None,
-                _ => {}
-            }
-        }
-        Some(out)
     }
 }
 
@@ -371,6 +319,7 @@ pub fn measure_call(
         state_changed,
         twin_real_gap,
         dtemp_abs_floor,
+        stress_size: stress_scale,
         measured,
         best_at,
         soft,
@@ -423,12 +372,13 @@ pub fn judge(
     for m in measured {
         let ss = settings.scheme(m.scheme);
         let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
+        let tangent_limits = limits.with_abs_floor(rounding_floor(m.scheme, me.stress_size, m.h, ss.tol));
         let numerical = &m.tangent[..n * n];
         let conv = &caller.info().convention;
         let tangent = match (&m.outcome, soft) {
             (Some(outcome), _) => outcome.clone(),
             (None, Some(soft)) => {
-                CheckOutcome::Compared(compare_with(conv, returned, numerical, limits, soft))
+                CheckOutcome::Compared(compare_with(conv, returned, numerical, tangent_limits, soft))
             }
             (None, None) => unreachable!("a scheme that measured a tangent makes the sharpest one"),
         };

@@ -50,11 +50,43 @@ pub struct Limits {
     pub tol: f64,
     pub entry_floor: f64,
     pub keep_worst: usize,
+    /// The rounding floor of a difference scheme's tangent ([`rounding_floor`]), 0 for none:
+    /// a numerical tangent whose norm lies below it is zero to rounding, and every measure is
+    /// then taken against this floor instead of the tangent's own size.
+    pub abs_floor: f64,
 }
 
 impl Limits {
     pub fn new(tol: f64, entry_floor: f64, keep_worst: usize) -> Limits {
-        Limits { tol, entry_floor, keep_worst }
+        Limits { tol, entry_floor, keep_worst, abs_floor: 0.0 }
+    }
+
+    /// These limits with the rounding floor `abs_floor`.
+    pub fn with_abs_floor(self, abs_floor: f64) -> Limits {
+        Limits { abs_floor, ..self }
+    }
+
+    /// Whether a numerical tangent of (Frobenius, Mandel) norm `norm` is zero to rounding.
+    fn below_floor(&self, norm: f64) -> bool {
+        self.abs_floor > 0.0 && self.abs_floor.is_finite() && norm.is_finite() && norm < self.abs_floor
+    }
+}
+
+/// The rounding floor of a difference tangent at absolute step `h` and tolerance `tol`: a
+/// difference quotient carries rounding of about ε·S/h, where S is the size of the stresses it
+/// subtracts (`stress_size`: ‖σ‖ + ‖C‖·strain scale, the trial stress a return starts from),
+/// and an entry that small is measured within `tol` only against S·ε/(h·tol). Why 16 ε: the two
+/// to four stresses of a stencil, each a few roundings off, with room for the cancellation of
+/// a return mapping (common practice). 0 for the complex step, which subtracts nothing.
+pub fn rounding_floor(scheme: crate::schemes::Scheme, stress_size: f64, h: f64, tol: f64) -> f64 {
+    if scheme == crate::schemes::Scheme::ComplexStep || !(h > 0.0 && tol > 0.0) {
+        return 0.0;
+    }
+    let f = 16.0 * f64::EPSILON * stress_size / (h * tol);
+    if f.is_finite() {
+        f
+    } else {
+        0.0
     }
 }
 
@@ -145,7 +177,7 @@ pub fn compare_with(
     let order = conv.order();
     let label = |i: usize, j: usize| Label::pair(order[i].label(), order[j].label());
     let mut c = measure(r, m, returned, numerical, conv.ncomp(), &label, limits);
-    let (e, what) = soft::soft_error_along(r, m, conv.ncomp(), soft);
+    let (e, what) = soft::soft_error_along(r, m, conv.ncomp(), soft, limits);
     c.soft_error = e;
     c.soft_direction = Cow::Borrowed(what);
     c.pass &= e <= limits.tol;
@@ -166,11 +198,11 @@ pub(super) fn measure(
     label: &dyn Fn(usize, usize) -> Label,
     limits: Limits,
 ) -> Comparison {
-    let Limits { tol, entry_floor, keep_worst } = limits;
+    let Limits { tol, entry_floor, keep_worst, .. } = limits;
     let nrows = r.len() / ncols;
     assert!(ncols <= 6, "a tangent has at most 6 columns");
-    let Sums { columns, scale, norm_error } = sums(r, m, nrows, ncols);
-    let floor = entry_floor * scale;
+    let Sums { columns, scale, norm_error, absolute } = sums(r, m, nrows, ncols, &limits);
+    let floor = if absolute { scale } else { entry_floor * scale };
     let column_errors: ColumnErrors =
         columns[..ncols].iter().map(|(d, c)| finite_or_inf(d.sqrt() / c.sqrt().max(floor))).collect();
     // Every entry's error into a stack array (one tight pass), then the worst few picked by
@@ -215,16 +247,19 @@ pub(super) fn measure(
 }
 
 /// The sums of squares of one comparison: per column (difference, numerical), the scale of
-/// the entry floor (the numerical norm, 1 when it is zero) and the norm error. One pass for
-/// the whole and the columns (the same sums, in the same order, as summing each on its own).
+/// the entry floor (the numerical norm, 1 when it is zero, the rounding floor when the norm
+/// lies below it) and the norm error. One pass for the whole and the columns (the same sums,
+/// in the same order, as summing each on its own).
 struct Sums {
     columns: [(f64, f64); 6],
     scale: f64,
     norm_error: f64,
+    /// The numerical tangent is zero to rounding: every measure against the rounding floor.
+    absolute: bool,
 }
 
 #[inline(always)]
-fn sums(r: &[f64], m: &[f64], nrows: usize, ncols: usize) -> Sums {
+fn sums(r: &[f64], m: &[f64], nrows: usize, ncols: usize, limits: &Limits) -> Sums {
     let (mut norm2, mut diff2) = (0.0, 0.0);
     let mut columns = [(0.0f64, 0.0f64); 6];
     for (j, (d, c)) in columns.iter_mut().enumerate().take(ncols) {
@@ -238,8 +273,15 @@ fn sums(r: &[f64], m: &[f64], nrows: usize, ncols: usize) -> Sums {
         }
     }
     let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
-    let scale = if norm > 0.0 { norm } else { 1.0 };
-    Sums { columns, scale, norm_error: finite_or_inf(diff_norm / scale) }
+    let absolute = limits.below_floor(norm);
+    let scale = if absolute {
+        limits.abs_floor
+    } else if norm > 0.0 {
+        norm
+    } else {
+        1.0
+    };
+    Sums { columns, scale, norm_error: finite_or_inf(diff_norm / scale), absolute }
 }
 
 /// The entry measure of one entry: returned `a`, numerical `b`, floor `floor`.
@@ -283,9 +325,16 @@ pub fn passing(
         norm2 += b * b;
     }
     let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
-    let scale = if norm > 0.0 { norm } else { 1.0 };
+    let absolute = limits.below_floor(norm);
+    let scale = if absolute {
+        limits.abs_floor
+    } else if norm > 0.0 {
+        norm
+    } else {
+        1.0
+    };
     let norm_error = finite_or_inf(diff_norm / scale);
-    let floor = limits.entry_floor * scale;
+    let floor = if absolute { scale } else { limits.entry_floor * scale };
     let mut worst_entry_error = 0.0f64;
     for (a, b) in r.iter().zip(m.iter()) {
         let e = entry_error(*a, *b, floor);
@@ -296,7 +345,7 @@ pub fn passing(
     if !(norm_error <= limits.tol && worst_entry_error <= limits.tol) {
         return None;
     }
-    let (soft_error, _) = soft::soft_error_along(r, m, conv.ncomp(), soft);
+    let (soft_error, _) = soft::soft_error_along(r, m, conv.ncomp(), soft, limits);
     (soft_error <= limits.tol).then(|| PassedScheme {
         norm_error,
         worst_entry_error,

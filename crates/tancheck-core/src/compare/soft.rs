@@ -141,21 +141,31 @@ pub fn soft_error(r: &[f64], m: &[f64], n: usize, direction: Option<&[f64]>) -> 
     if n == 0 || r.len() < n * n || m.len() < n * n {
         return (0.0, "");
     }
-    soft_error_along(r, m, n, &SoftDirections::of_mandel(m, n, direction))
+    soft_error_along(r, m, n, &SoftDirections::of_mandel(m, n, direction), super::Limits::new(0.0, 0.0, 0))
 }
 
 /// [`soft_error`] along given directions (those of `m` itself when `dirs` has no usable
 /// reference). Each direction's error is relative to the response of `m` along it, floored at
-/// [`SOFT_FLOOR`] times the norm of `m`.
-pub(super) fn soft_error_along(r: &[f64], m: &[f64], n: usize, dirs: &SoftDirections) -> (f64, &'static str) {
+/// [`SOFT_FLOOR`] times the norm of `m`, or to the rounding floor of `limits` when `m` is zero
+/// to rounding.
+pub(super) fn soft_error_along(
+    r: &[f64],
+    m: &[f64],
+    n: usize,
+    dirs: &SoftDirections,
+    limits: super::Limits,
+) -> (f64, &'static str) {
     if n == 0 || r.len() < n * n || m.len() < n * n {
         return (0.0, "");
     }
     let norm = frobenius(m, n);
-    if norm.is_nan() || norm <= 0.0 || !norm.is_finite() || r[..n * n].iter().any(|x| !x.is_finite()) {
+    let absolute = limits.below_floor(norm);
+    if !absolute && (norm.is_nan() || norm <= 0.0 || !norm.is_finite())
+        || r[..n * n].iter().any(|x| !x.is_finite())
+    {
         return (0.0, "");
     }
-    let floor = SOFT_FLOOR * norm;
+    let floor = if absolute { limits.abs_floor } else { SOFT_FLOOR * norm };
     // Both matrices as 6 × 6, column-major: a 3D tangent as it is, a smaller one padded with
     // zeros (fixed-size loops the compiler unrolls; the padding adds exact zeros to every sum).
     let (mut rb, mut mb) = ([0.0f64; 36], [0.0f64; 36]);

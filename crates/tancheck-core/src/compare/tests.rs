@@ -143,3 +143,53 @@ fn the_worst_entries_are_those_of_a_stable_sort() {
         assert_eq!(w.max, f64::INFINITY);
     }
 }
+
+/// A difference tangent of a stress that does not move is rounding alone: entries of about
+/// ε·S/h (S = 10, h = 1e-8: 2.2e-7) in a pattern of their own. Against a returned zero it is a
+/// 100 % error relative to itself; against its rounding floor (16 ε S/(h tol) = 3.55 at
+/// tol 1e-6) it is within the tolerance, while an elastic tangent returned there is not.
+#[test]
+fn a_tangent_zero_to_rounding_is_measured_against_its_floor() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let noise: Vec<f64> = (0..36)
+        .map(|k| {
+            if k % 7 == 0 {
+                2.2e-7
+            } else if k % 5 == 0 {
+                -4.4e-7
+            } else {
+                0.0
+            }
+        })
+        .collect();
+    let zero = vec![0.0; 36];
+    let floor = rounding_floor(crate::schemes::Scheme::Central, 10.0, 1e-8, 1e-6);
+    assert!((floor - 16.0 * f64::EPSILON * 10.0 / 1e-14).abs() < 1e-12 * floor);
+    let limits = Limits::new(1e-6, 1e-2, 3);
+    let soft = SoftDirections::of(&conv, &noise, None);
+    let without = compare_with(&conv, &zero, &noise, limits, &soft);
+    assert!(!without.pass && without.norm_error > 0.99, "{}", without.norm_error);
+    let with = compare_with(&conv, &zero, &noise, limits.with_abs_floor(floor), &soft);
+    assert!(with.pass && with.error() < 1e-6, "{:?}", with);
+    // The fast path of a passing comparison gives the same numbers.
+    let mut r = zero.clone();
+    conv.tangent_to_mandel(&mut r);
+    let p = passing(&conv, &r, &noise, limits.with_abs_floor(floor), &soft).expect("passes");
+    assert_eq!((p.norm_error, p.worst_entry_error), (with.norm_error, with.worst_entry_error));
+    // An elastic tangent where the derivative is zero fails by thousands of floors.
+    let elastic = isotropic(&conv, 4000.0, 6000.0);
+    let wrong = compare_with(&conv, &elastic, &noise, limits.with_abs_floor(floor), &soft);
+    assert!(!wrong.pass && wrong.worst_entry_error > 1e3, "{:?}", wrong.worst_entry_error);
+    // A tangent above its floor is measured relative to itself, as before.
+    let e2 = isotropic(&conv, 4000.0, 6000.0);
+    let same = compare_with(
+        &conv,
+        &e2,
+        &elastic,
+        limits.with_abs_floor(floor),
+        &SoftDirections::of(&conv, &elastic, None),
+    );
+    assert_eq!(same, compare_with(&conv, &e2, &elastic, limits, &SoftDirections::of(&conv, &elastic, None)));
+    // The complex step subtracts nothing: no floor.
+    assert_eq!(rounding_floor(crate::schemes::Scheme::ComplexStep, 10.0, 1e-20, 1e-10), 0.0);
+}

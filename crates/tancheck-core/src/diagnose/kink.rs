@@ -70,6 +70,20 @@ pub(super) fn kinked(gaps: &[f64]) -> bool {
     gaps.len() >= 2 && gaps.iter().all(|&x| x > GAP_LEVEL) && gaps[gaps.len() - 1] > 0.3 * gaps[0]
 }
 
+/// Rounding, not a kink: the absolute gap between the one-sided derivatives grows tenfold or
+/// more from the largest step of [`STEPS`] to the smallest. Round-off in a difference quotient
+/// (ε|σ|/h, or an inner solve's tolerance over h) grows 100-fold over those two decades, a
+/// kink's gap stays, a boundary's beyond the point falls; tenfold lies between. Without this a
+/// derivative that is zero (a perfectly plastic return to the apex of a pressure-dependent
+/// surface: the stress does not move) read as a kink, its one-sided quotients being rounding
+/// alone, equal in size and unrelated, so their gap relative to themselves stays near 1.
+pub(super) fn rounding(abs_gaps: &[f64]) -> bool {
+    match (abs_gaps.first(), abs_gaps.last()) {
+        (Some(&a), Some(&b)) if abs_gaps.len() >= 2 => b >= 10.0 * a && b > 0.0,
+        _ => false,
+    }
+}
+
 /// No kink at the point, but one within the largest step: the gap is above [`GAP_LEVEL`] at
 /// the largest step and below it at the smallest. Shared by both kink probes.
 pub(super) fn nearby(gaps: &[f64], detected: bool) -> bool {
@@ -178,11 +192,19 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
     let n = conv.ncomp();
     let mut gaps = Vec::with_capacity(pairs.len());
     let mut col_gaps: Vec<Vec<f64>> = vec![Vec::with_capacity(pairs.len()); n];
+    // The absolute gaps ‖F − B‖, whole and per column, to tell rounding from a kink.
+    let mut abs_gaps = Vec::with_capacity(pairs.len());
+    let mut col_abs: Vec<Vec<f64>> = vec![Vec::with_capacity(pairs.len()); n];
+    let dist = |a: &[f64], b: &[f64]| a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt();
     for (f, b) in pairs {
         let c = compare(conv, b, f, f64::INFINITY, entry_floor, 0);
         gaps.push(c.norm_error);
         for (j, g) in c.column_errors.iter().enumerate() {
             col_gaps[j].push(*g);
+        }
+        abs_gaps.push(dist(f, b));
+        for (j, a) in col_abs.iter_mut().enumerate() {
+            a.push(dist(&f[j * n..(j + 1) * n], &b[j * n..(j + 1) * n]));
         }
     }
     let (f, b) = pairs.last().expect("at least one step");
@@ -191,7 +213,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
     let columns: Vec<KinkColumn> = (0..n)
         .map(|j| {
             let (fe, be) = (cf.column_errors[j], cb.column_errors[j]);
-            let detected = kinked(&col_gaps[j]);
+            let detected = kinked(&col_gaps[j]) && !rounding(&col_abs[j]);
             let matches = Side::matched(fe, be, tol, detected);
             let cols = j * n..(j + 1) * n;
             let on_a_side = on_a_side(&returned[cols.clone()], &f[cols.clone()], &b[cols]);
@@ -205,7 +227,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
             }
         })
         .collect();
-    let detected = kinked(&gaps) || columns.iter().any(|c| c.detected);
+    let detected = kinked(&gaps) && !rounding(&abs_gaps) || columns.iter().any(|c| c.detected);
     let nearby = nearby(&gaps, detected);
     let whole = |c: &crate::compare::Comparison| c.error();
     let (fe, be) = (whole(&cf), whole(&cb));
@@ -269,4 +291,22 @@ pub(super) fn one_sided(
         pairs.push((f, b));
     }
     Ok(pairs)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::rounding;
+
+    /// Round-off ε|σ|/h grows 100-fold over the probe's two decades; a kink's gap stays (the
+    /// 0.26 of a uniaxial yield point), a boundary's beyond the point falls.
+    #[test]
+    fn a_gap_that_grows_as_the_step_shrinks_is_rounding() {
+        assert!(rounding(&[2.2e-9, 2.2e-8, 2.2e-7]));
+        assert!(rounding(&[0.0, 1e-12, 1e-10]));
+        assert!(!rounding(&[0.26, 0.26, 0.259]));
+        assert!(!rounding(&[0.24, 0.08, 5e-8]));
+        assert!(!rounding(&[0.0, 0.0, 0.0]));
+        // A kink with rounding on top that has not yet overtaken it.
+        assert!(!rounding(&[0.26, 0.26, 0.26 + 2.2e-7]));
+    }
 }
