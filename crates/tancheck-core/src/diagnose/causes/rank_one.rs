@@ -91,7 +91,13 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             // above 0.98 on every scaled term the sweeps and the zoo planted).
             let right = cosine(&bm * &v - &v * background, &u);
             let left = cosine(bm.transpose() * &u - &u * background, &v);
-            let copy = left.min(right) >= 0.9;
+            // The same without the background: a tangent written with none along the term's
+            // directions (see `whole_factor` below) has its copy there.
+            let right_whole = cosine(&bm * &v, &u);
+            let left_whole = cosine(bm.transpose() * &u, &v);
+            let copy_net = left.min(right) >= 0.9;
+            let copy_whole = left_whole.min(right_whole) >= 0.9;
+            let copy = copy_net || copy_whole;
             let sigma = (u.transpose() * &dm * &v)[(0, 0)];
             // Why 1e-12: below that the derivative has no part along u⊗v beyond rounding of
             // the norm (a few ulps), so no factor can be told.
@@ -101,15 +107,26 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             // and its factor ill-told (17.7 for a bulk modulus returned at −0.18 of its value):
             // then the factor is that of the whole part along u⊗v.
             let whole = (u.transpose() * &bm * &v)[(0, 0)];
-            let factor = if !copy {
-                f64::NAN
-            } else if tau.abs() > 1e-12 * norm && tau.abs() >= 0.5 * whole.abs() {
+            let net = copy_net && tau.abs() > 1e-12 * norm && tau.abs() >= 0.5 * whole.abs();
+            let whole_told = whole.abs() > 1e-12 * norm;
+            let factor = if net {
                 (tau + sigma) / tau
-            } else if whole.abs() > 1e-12 * norm {
+            } else if copy && whole_told {
                 (whole + sigma) / whole
             } else {
                 f64::NAN
             };
+            // Which part is "the term" depends on how the routine wrote its tangent: the J2
+            // form 2μθ P_dev − 2μθ̄ n⊗n puts a background on n too (the factor net of it is
+            // the one a wrong θ̄ leaves), the pressure-dependent cone form
+            // 2Gθ (P_dev − n⊗n) + 2G n⊗n − a⊗b/A leaves a and b alone (the factor of the whole
+            // part along a⊗b is A's; net of the background it drifts with the increment:
+            // 1.24 to 1.38 against 1.1995 on a user's Drucker–Prager routine, where the
+            // directions net of it were 26–39° from a copy). Both are said when they differ.
+            let whole_factor = (net && copy_whole && whole_told)
+                .then(|| (whole + sigma) / whole)
+                .filter(|w| w.is_finite() && (w - factor).abs() > 0.01 * factor.abs().max(1e-300));
+            let (left, right) = (left.max(left_whole), right.max(right_whole));
             let size = s[0] / norm;
             // Why 0.05 and 0.1: a missing term leaves a factor of 0, a sign error one of −1; the
             // bands admit the error the rank-one fit leaves, far from any plain scaling.
@@ -124,8 +141,12 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 (
                     Cause::TermScaled,
                     format!(
-                        "one term a⊗b of {of} is scaled by about {} (size {size:.2e} of the norm)",
-                        factor_text(factor)
+                        "one term a⊗b of {of} is scaled by about {} (size {size:.2e} of the norm){}",
+                        factor_text(factor),
+                        whole_factor.map_or(String::new(), |w| format!(
+                            "; by {} if the term is the whole part along a⊗b (a tangent written with no background along a and b, as a pressure-dependent cone's)",
+                            factor_text(w)
+                        ))
                     ),
                 )
             } else if copy {

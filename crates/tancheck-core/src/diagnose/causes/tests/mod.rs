@@ -9,6 +9,8 @@ fn j2_like() -> Vec<f64> {
     crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
 
+mod cone;
+
 fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evidence<'a> {
     Evidence {
         conv,

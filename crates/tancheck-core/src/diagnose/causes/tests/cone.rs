@@ -1,0 +1,54 @@
+//! The factor of a scaled term in a tangent written with no background along the term.
+
+use super::*;
+
+/// A Drucker–Prager cone return's consistent tangent in the form
+/// C + 2Gθ' (P_dev − n⊗n) − a⊗b/A with a = √2 G n + K η̄ 1, b = √2 G n + K η 1 (Mandel
+/// form; the structure of de Souza Neto, Perić & Owen 2008, §8.3, from memory; the numbers
+/// invented), returned with A for a hardening of the wrong sign (A_h = A − 2ξ²H). The
+/// discrepancy is the a⊗b term scaled by A/A_h: that factor is among the ones said, whatever
+/// the background 2Gθ' of the other deviatoric directions.
+#[test]
+fn a_scaled_cone_term_says_the_factor_of_its_whole_part() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let (g, k, eta, etab, xi, h) = (3750.0, 8333.3, 0.6, 0.3, 1.2, 500.0);
+    let a_mod = g + k * eta * etab + xi * xi * h;
+    let a_h = g + k * eta * etab - xi * xi * h;
+    let nn = {
+        let v = [0.7, -0.2, -0.5, 0.3 * 2f64.sqrt(), 0.0, 0.1 * 2f64.sqrt()];
+        let l = v.iter().map(|x| x * x).sum::<f64>().sqrt();
+        v.map(|x| x / l)
+    };
+    let one = [1.0, 1.0, 1.0, 0.0, 0.0, 0.0];
+    let a: Vec<f64> = (0..6).map(|i| 2f64.sqrt() * g * nn[i] + k * etab * one[i]).collect();
+    let b: Vec<f64> = (0..6).map(|i| 2f64.sqrt() * g * nn[i] + k * eta * one[i]).collect();
+    let theta_dev = -0.35; // 2Gθ' of the deviatoric directions other than n, relative to C
+    let tangent = |a_div: f64| {
+        let mut m = vec![0.0; 36];
+        for j in 0..6 {
+            for i in 0..6 {
+                let pdev = if i == j { 1.0 } else { 0.0 } - one[i] * one[j] / 3.0;
+                let c = 2.0 * g * pdev + k * one[i] * one[j];
+                m[i + 6 * j] = c + 2.0 * g * theta_dev * (pdev - nn[i] * nn[j]) - a[i] * b[j] / a_div;
+            }
+        }
+        conv.tangent_from_mandel(&mut m);
+        m
+    };
+    let (good, bad) = (tangent(a_mod), tangent(a_h));
+    let mut elastic = vec![0.0; 36];
+    for j in 0..6 {
+        for i in 0..6 {
+            let pdev = if i == j { 1.0 } else { 0.0 } - one[i] * one[j] / 3.0;
+            elastic[i + 6 * j] = 2.0 * g * pdev + k * one[i] * one[j];
+        }
+    }
+    conv.tangent_from_mandel(&mut elastic);
+    let z = vec![0.0; 6];
+    let mut e = ev(&conv, &bad, &good, &z);
+    e.elastic = Some(&elastic);
+    let hs = rank(&e);
+    let t = hs.iter().find(|h| h.cause == Cause::TermScaled).unwrap_or_else(|| panic!("{hs:?}"));
+    let want = format!("{:.2}", a_mod / a_h);
+    assert!(t.explains && t.detail.contains(&want), "{want}: {t:?}");
+}
