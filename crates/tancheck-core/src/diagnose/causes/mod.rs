@@ -40,7 +40,7 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     local::try_local(ev, &mut found);
     isotropic::try_isotropic(ev, &mut found);
     rank_one::try_rank_one(ev, &mut found);
-    finish(found.hs, 10.0 * ev.tol, ev.returned.len() == 1)
+    finish(found.hs, 10.0 * ev.tol, ev.returned.len() == 1, explain_level)
 }
 
 /// Rank: explaining hypotheses first — those whose corrected tangent passes with the margin
@@ -52,7 +52,7 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
 /// and a uniform scale, which still gives the factor, comes after the elastic, stale and
 /// secant tangents, which name what the routine returned. The isotropic parts (shear and bulk
 /// modulus) come after such a tangent wherever one explains.
-fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool) -> Vec<Hypothesis> {
+fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool, explain_level: f64) -> Vec<Hypothesis> {
     let rank = |c: Cause| {
         if scalar && c == Cause::UniformScale {
             2 * Cause::Secant.rank() + 1
@@ -80,8 +80,14 @@ fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool) -> Vec<Hypothesis> 
     // tangent at the start temperature) leads the isotropic parts that only describe the
     // discrepancy's shape: a creep routine returning its elastic stiffness is off in its
     // deviatoric part alone, exactly, and is named by what it returned.
+    // Only a named tangent that explains well inside the band (a decade below its level): one
+    // that just removes all but a thousandth of the error (a continuum tangent beside
+    // start-of-increment moduli, whose discrepancy also shrinks with the increment) does not
+    // push an exact bulk or shear modulus behind the shape-only terms (a user's Cam-clay-type
+    // routine read term-scaled before an exact bulk-modulus 0.7408×).
     let named = hs.iter().any(|h| {
         h.explains
+            && h.error_left <= 0.1 * explain_level
             && matches!(
                 h.cause,
                 Cause::ElasticTangent

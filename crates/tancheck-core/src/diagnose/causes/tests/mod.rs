@@ -10,6 +10,7 @@ fn j2_like() -> Vec<f64> {
 }
 
 mod cone;
+mod ranking;
 
 fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evidence<'a> {
     Evidence {
@@ -196,10 +197,10 @@ fn h(cause: Cause, error_left: f64) -> Hypothesis {
 // named first on a cohesive law returning (1 − d)K).
 #[test]
 fn an_exact_explanation_ranks_before_an_approximate_more_specific_one() {
-    let hs = finish(vec![h(Cause::ElasticTangent, 5e-2), h(Cause::Secant, 0.0)], 1e-9, false);
+    let hs = finish(vec![h(Cause::ElasticTangent, 5e-2), h(Cause::Secant, 0.0)], 1e-9, false, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::Secant);
     // Both exact: the more specific first, as before.
-    let hs = finish(vec![h(Cause::Secant, 0.0), h(Cause::ElasticTangent, 0.0)], 1e-9, false);
+    let hs = finish(vec![h(Cause::Secant, 0.0), h(Cause::ElasticTangent, 0.0)], 1e-9, false, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::ElasticTangent);
 }
 
@@ -214,11 +215,11 @@ fn on_one_component_the_tangents_that_name_what_was_returned_lead() {
         h(Cause::SingleEntry, 0.0),
         h(Cause::Secant, 0.0),
     ];
-    let hs = finish(all.clone(), 1e-9, true);
+    let hs = finish(all.clone(), 1e-9, true, f64::INFINITY);
     let order: Vec<Cause> = hs.iter().map(|x| x.cause).collect();
     assert_eq!(order[..2], [Cause::Secant, Cause::UniformScale], "{order:?}");
     // On a full tangent the uniform scale is the more specific, as before.
-    let hs = finish(all, 1e-9, false);
+    let hs = finish(all, 1e-9, false, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::UniformScale);
 }
 
