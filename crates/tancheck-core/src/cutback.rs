@@ -21,7 +21,7 @@ pub const MAX_PARTS: usize = 1024;
 const MARGIN: f64 = 0.9;
 
 /// The words of a fault that asks for a smaller increment (`Fault::Status` displayed).
-fn asks_smaller(message: &str) -> bool {
+pub(crate) fn asks_smaller(message: &str) -> bool {
     message.starts_with(&format!("the routine returned status {}", status::SMALLER_INCREMENT))
 }
 
@@ -105,24 +105,9 @@ pub fn cut(
             };
             let Some((fraction, message)) = refused else { break };
             if words.is_none() {
-                // "status 1, largest fraction 0.5: <its message>"
-                let fr = if fraction > 0.0 && fraction < 1.0 {
-                    format!(", largest fraction {fraction:.3}")
-                } else {
-                    String::new()
-                };
-                let said = if message.is_empty() { String::new() } else { format!(": {message}") };
-                words = Some(format!("status {}{fr}{said}", status::SMALLER_INCREMENT));
+                words = Some(request_words(fraction, &message));
             }
-            // As many parts as the fraction asks of the part refused, with a tenth to spare (a
-            // part at the very limit would have the difference steps beyond it), at least
-            // twice as many.
-            let asked = if fraction > 0.0 && fraction < 1.0 {
-                (parts as f64 / (MARGIN * fraction)).ceil()
-            } else {
-                0.0
-            };
-            parts = (asked as usize).max(2 * parts);
+            parts = more_parts(parts, fraction);
             if parts > MAX_PARTS {
                 return Ok(None);
             }
@@ -149,4 +134,24 @@ fn scaled(inc: &PathIncrement, parts: usize) -> PathIncrement {
         dtime: inc.dtime / p,
         hold_stress: None,
     }
+}
+
+/// A request as a note says it: "status 1, largest fraction 0.5: <the routine's message>".
+pub(crate) fn request_words(fraction: f64, message: &str) -> String {
+    let fr = if fraction > 0.0 && fraction < 1.0 {
+        format!(", largest fraction {fraction:.3}")
+    } else {
+        String::new()
+    };
+    let said = if message.is_empty() { String::new() } else { format!(": {message}") };
+    format!("status {}{fr}{said}", status::SMALLER_INCREMENT)
+}
+
+/// The parts of an increment whose part (one of `parts`) was refused with `fraction`: as many
+/// as the fraction asks, with a tenth to spare (a part at the very limit would have the
+/// difference steps beyond it), at least twice as many.
+pub(crate) fn more_parts(parts: usize, fraction: f64) -> usize {
+    let asked =
+        if fraction > 0.0 && fraction < 1.0 { (parts as f64 / (MARGIN * fraction)).ceil() } else { 0.0 };
+    (asked as usize).max(2 * parts)
 }

@@ -102,6 +102,9 @@ pub fn write_check(
     if let Some(f) = &report.fault {
         writeln!(out, "   fault: {f}")?;
     }
+    for n in &report.notes {
+        writeln!(out, "   note: {n}")?;
+    }
     let (word, finding) = verdict_word(report);
     let finding = if finding.is_empty() { String::new() } else { format!(" ({finding})") };
     writeln!(

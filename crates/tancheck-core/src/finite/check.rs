@@ -96,6 +96,10 @@ pub struct FiniteReport {
     pub twin_not_safe: Option<usize>,
     pub calls: u64,
     pub complex_calls: u64,
+    /// What the check did beyond the path as given (increments cut where the routine asked
+    /// for smaller ones).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
     pub cautions: Vec<String>,
 }
 
@@ -113,8 +117,38 @@ pub(super) fn path_start(properties: &[f64], state0: &[f64], path: &FinitePath) 
     }
 }
 
-/// Check `r` along `path` from `state0` (stress zero at the start).
+/// Check `r` along `path` from `state0` (stress zero at the start). A base call that asks for
+/// a smaller increment (`TC_STATUS_SMALLER_INCREMENT`) stops the path; the check is then made
+/// again on the path with the increments the routine refuses cut into parts, as a solver cuts
+/// back (`super::cutback`), with a note saying so.
 pub fn run(
+    r: &mut dyn FiniteRoutine,
+    properties: &[f64],
+    state0: &[f64],
+    path: &FinitePath,
+    settings: FiniteSettings,
+) -> FiniteReport {
+    let report = run_path(r, properties, state0, path, settings);
+    let asked = report
+        .fault
+        .as_deref()
+        .and_then(|f| f.split_once(": "))
+        .is_some_and(|(at, words)| !at.contains(',') && crate::cutback::asks_smaller(words));
+    if !asked {
+        return report;
+    }
+    match super::cutback::cut(r, properties, state0, path) {
+        Some(cut) => {
+            let mut again = run_path(r, properties, state0, &cut.path, settings);
+            again.notes.push(cut.note(path.gradients.len() - 1));
+            again
+        }
+        None => report,
+    }
+}
+
+/// [`run`] on `path` as given.
+fn run_path(
     r: &mut dyn FiniteRoutine,
     properties: &[f64],
     state0: &[f64],
@@ -140,6 +174,7 @@ pub fn run(
         twin_not_safe: None,
         calls: 0,
         complex_calls: 0,
+        notes: Vec::new(),
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
     };
     let mut start = path_start(properties, state0, path);
@@ -147,7 +182,7 @@ pub fn run(
     let mut complex = vec![0.0; n * n];
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
         start.increment = k as i32;
-        start.time = [(k - 1) as f64, 1.0];
+        start.time[1] = path.dtime.get(k - 1).copied().unwrap_or(1.0);
         let base = match ws.call_full(r, &start, f1) {
             Ok(b) => b,
             Err(e) => {
@@ -226,6 +261,7 @@ pub fn run(
             cause,
         });
         start.f0 = *f1;
+        start.time[0] += start.time[1];
         start.stress0 = base.stress;
         start.state0.copy_from_slice(&base.state);
     }

@@ -3,10 +3,11 @@
 //! causes, and the objectivity probes.
 //!
 //! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
-//! [`check`] → [`probe`].
+//! [`check`] (with `cutback`) → [`probe`].
 
 pub mod causes;
 pub mod check;
+mod cutback;
 pub mod mat3;
 pub mod measure;
 pub mod numeric;

@@ -10,6 +10,9 @@ use super::mat3::{self, Mat3};
 #[derive(Clone, Debug, PartialEq)]
 pub struct FinitePath {
     pub gradients: Vec<Mat3<f64>>,
+    /// The time each increment takes; empty: 1 each (an increment cut into parts by the check
+    /// gives each part its share).
+    pub dtime: Vec<f64>,
 }
 
 /// A rigid rotation superposed on a path, growing linearly to `angle` (radians) about `axis`.
@@ -116,7 +119,7 @@ impl FinitePathSpec {
                 return Err(format!("deformation gradient {k} has det F = {j}; it must be positive"));
             }
         }
-        Ok(FinitePath { gradients })
+        Ok(FinitePath { gradients, dtime: Vec::new() })
     }
 }
 

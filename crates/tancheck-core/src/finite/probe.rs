@@ -350,7 +350,7 @@ fn simple_shear(
     let amount = 2.0 * std::f64::consts::PI;
     let mut gradients = vec![mat3::identity()];
     gradients.extend((1..=n).map(|k| shear(amount * k as f64 / n as f64)));
-    let path = FinitePath { gradients };
+    let path = FinitePath { gradients, dtime: Vec::new() };
     let starts = match walk(r, ws, properties, state0, &path) {
         Ok(s) => s,
         Err(e) => {
