@@ -45,19 +45,23 @@ pub struct Cut {
 impl Cut {
     /// The report's note.
     pub fn note(&self, given: usize) -> String {
-        let listed: Vec<String> = self.cuts.iter().take(8).map(|(k, p)| format!("{k} into {p}")).collect();
-        let more = self.cuts.len().saturating_sub(8);
-        format!(
-            "the routine asked for a smaller increment ({}), as it would ask a solver: the path was \
-             checked with {} of its {given} increments cut into equal parts ({}{}), {} increments in all; \
-             increment numbers are those of the cut path",
-            self.words,
-            self.cuts.len(),
-            listed.join(", "),
-            if more > 0 { format!(" and {more} more") } else { String::new() },
-            self.path.increments.len()
-        )
+        note(&self.words, &self.cuts, given, "equal parts", self.path.increments.len())
     }
+}
+
+/// The note of a cut path: the routine's `words`, the `cuts` of the `given` increments into
+/// `parts` (what a part is), `total` increments in all.
+pub(crate) fn note(words: &str, cuts: &[(usize, usize)], given: usize, parts: &str, total: usize) -> String {
+    let listed: Vec<String> = cuts.iter().take(8).map(|(k, p)| format!("{k} into {p}")).collect();
+    let more = cuts.len().saturating_sub(8);
+    format!(
+        "the routine asked for a smaller increment ({words}), as it would ask a solver: the path was \
+         checked with {} of its {given} increments cut into {parts} ({}{}), {total} increments in all; \
+         increment numbers are those of the cut path",
+        cuts.len(),
+        listed.join(", "),
+        if more > 0 { format!(" and {more} more") } else { String::new() },
+    )
 }
 
 /// Walk `path` from `start` with base calls, cutting every increment the routine refuses as

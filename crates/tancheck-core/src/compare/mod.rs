@@ -70,6 +70,18 @@ impl Limits {
     fn below_floor(&self, norm: f64) -> bool {
         self.abs_floor > 0.0 && self.abs_floor.is_finite() && norm.is_finite() && norm < self.abs_floor
     }
+
+    /// What the errors of a numerical tangent of norm `norm` are relative to: the rounding floor
+    /// when it is zero to rounding (and whether it is), else its norm (1 when that is zero).
+    fn scale(&self, norm: f64) -> (f64, bool) {
+        if self.below_floor(norm) {
+            (self.abs_floor, true)
+        } else if norm > 0.0 {
+            (norm, false)
+        } else {
+            (1.0, false)
+        }
+    }
 }
 
 /// The rounding floor of a difference tangent at absolute step `h` and tolerance `tol`: a
@@ -273,14 +285,7 @@ fn sums(r: &[f64], m: &[f64], nrows: usize, ncols: usize, limits: &Limits) -> Su
         }
     }
     let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
-    let absolute = limits.below_floor(norm);
-    let scale = if absolute {
-        limits.abs_floor
-    } else if norm > 0.0 {
-        norm
-    } else {
-        1.0
-    };
+    let (scale, absolute) = limits.scale(norm);
     Sums { columns, scale, norm_error: finite_or_inf(diff_norm / scale), absolute }
 }
 
@@ -325,14 +330,7 @@ pub fn passing(
         norm2 += b * b;
     }
     let (norm, diff_norm) = (f64::sqrt(norm2), f64::sqrt(diff2));
-    let absolute = limits.below_floor(norm);
-    let scale = if absolute {
-        limits.abs_floor
-    } else if norm > 0.0 {
-        norm
-    } else {
-        1.0
-    };
+    let (scale, absolute) = limits.scale(norm);
     let norm_error = finite_or_inf(diff_norm / scale);
     let floor = if absolute { scale } else { limits.entry_floor * scale };
     let mut worst_entry_error = 0.0f64;

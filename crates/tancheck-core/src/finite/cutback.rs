@@ -23,17 +23,12 @@ pub(super) struct FiniteCut {
 impl FiniteCut {
     /// The report's note, for a path of `given` increments.
     pub fn note(&self, given: usize) -> String {
-        let listed: Vec<String> = self.cuts.iter().take(8).map(|(k, p)| format!("{k} into {p}")).collect();
-        let more = self.cuts.len().saturating_sub(8);
-        format!(
-            "the routine asked for a smaller increment ({}), as it would ask a solver: the path was checked \
-             with {} of its {given} increments cut into equal parts of F and of the time ({}{}), {} increments \
-             in all; increment numbers are those of the cut path",
-            self.words,
-            self.cuts.len(),
-            listed.join(", "),
-            if more > 0 { format!(" and {more} more") } else { String::new() },
-            self.path.gradients.len() - 1
+        crate::cutback::note(
+            &self.words,
+            &self.cuts,
+            given,
+            "equal parts of F and of the time",
+            self.path.gradients.len() - 1,
         )
     }
 }
