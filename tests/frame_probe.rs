@@ -244,3 +244,55 @@ fn the_compiled_non_objective_routine_fails() {
     }
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+// A scalar damage routine (fortran-shim/examples/c/scalar_damage.c: damage driven by an
+// energy-norm equivalent strain, growing only, secant unloading), loaded, unloaded and
+// reloaded to the same strain: the reload ends (increment 18) exactly on the largest equivalent strain so
+// far, a tie that rounding in the rotated frame settles the other way (damage grows there by
+// a rounding, or not). The stress rotates to 1.8e-15, the tangents are the two sides' (4.3e-2
+// apart), and the probe failed a correct routine (found by a user-style sweep). A tangent
+// that is not objective (the damage term left out of one strain column) still fails.
+#[test]
+fn a_tie_at_a_branch_boundary_is_not_held_against_the_routine() {
+    use tancheck::abi::{build_library, BuildOptions, Library};
+    use tancheck::core::{Convention, ShearMeasure};
+    let src =
+        std::path::Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/scalar_damage.c");
+    let dir = std::env::temp_dir().join(format!("tancheck-frame-tie-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let load = |flaw: u32| -> Library {
+        let out = dir.join(format!("libdamage{flaw}.so"));
+        let mut opts = BuildOptions::new([&src], &out);
+        opts.cflags = vec![format!("-DFLAW={flaw}")];
+        build_library(&opts).unwrap_or_else(|e| panic!("building scalar_damage.c: {e}"));
+        Library::open(&out).unwrap()
+    };
+    let info = RoutineInfo {
+        name: "scalar_damage".into(),
+        convention: Convention::new(PointKind::Solid3d, ShearMeasure::Engineering),
+        nstate: 2,
+        nprop: 4,
+    };
+    let props = [32000.0, 0.2, 1e-4, 1.5e-3];
+    let load_inc = PathIncrement::strain([1.2e-4, -3e-5, -3e-5, 0.0, 0.0, 8e-5]);
+    let unload = PathIncrement::strain([-1.8e-4, 4.5e-5, 4.5e-5, 0.0, 0.0, -1.2e-4]);
+    let mut increments = vec![load_inc.clone(); 8];
+    increments.extend(vec![unload; 4]);
+    increments.extend(vec![load_inc; 8]);
+    increments.extend(vec![PathIncrement::strain([0.0, 1e-4, 0.0, 5e-5, 0.0, 0.0]); 2]);
+    let path = Path { name: "load, unload, reload to the same strain".into(), increments };
+    let spec = ProbeSpec::named("frame");
+    let lib = load(0);
+    let mut r = lib.routine("sweep_dmg", info.clone()).unwrap();
+    let res = run(&mut r, &props, &path, &spec);
+    assert_eq!(res.status, ProbeStatus::Pass, "{res:?}");
+    // Where rounding took the other branch, the details say so (the reload's end).
+    for d in res.details.iter().filter(|d| d.contains("branch boundary")) {
+        assert!(d.starts_with("increment 18 "), "{d}");
+    }
+    let flawed = load(3);
+    let mut r = flawed.routine("sweep_dmg", info).unwrap();
+    let res = run(&mut r, &props, &path, &spec);
+    assert_eq!(res.status, ProbeStatus::Fail, "{res:?}");
+    let _ = std::fs::remove_dir_all(&dir);
+}
