@@ -52,3 +52,30 @@ fn a_scaled_cone_term_says_the_factor_of_its_whole_part() {
     let want = format!("{:.2}", a_mod / a_h);
     assert!(t.explains && t.detail.contains(&want), "{want}: {t:?}");
 }
+
+/// A scalar damage tangent (1 − d) C − g (C ε)⊗(C ε) (secant part and damage term; the
+/// structure of any strain-driven scalar damage law, e.g. Simo & Ju 1987, from memory; the
+/// numbers invented) returned with the damage term's sign flipped, its elastic reference the
+/// stiffness at the start damage d_n < d, as the check measures it along an unloading step.
+/// The factor read against that reference is off −1 (−0.85 here); it is a sign error, not a
+/// scaling.
+#[test]
+fn a_flipped_damage_term_is_a_sign_error_beside_a_start_damage_reference() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let c = isotropic_scaled(6, 32000.0, 0.2, 1.0, 1.0);
+    let eps = [3e-4, -7e-5, -7e-5, 0.0, 0.0, 2e-4];
+    let ce: Vec<f64> = (0..6).map(|i| (0..6).map(|j| c[i + 6 * j] * eps[j]).sum()).collect();
+    let (d, d_n, g) = (0.35, 0.15, 150.0);
+    let tangent = |sign: f64| -> Vec<f64> {
+        (0..36).map(|k| (1.0 - d) * c[k] + sign * g * ce[k % 6] * ce[k / 6]).collect()
+    };
+    let (good, bad) = (tangent(-1.0), tangent(1.0));
+    let elastic: Vec<f64> = c.iter().map(|x| (1.0 - d_n) * x).collect();
+    let z = vec![0.0; 6];
+    let mut e = ev(&conv, &bad, &good, &z);
+    e.elastic = Some(&elastic);
+    let hs = rank(&e);
+    let t = hs.iter().find(|h| h.cause == Cause::TermSign).unwrap_or_else(|| panic!("{hs:#?}"));
+    assert!(t.explains, "{t:?}");
+    assert!(!hs.iter().any(|h| h.cause == Cause::TermScaled), "{hs:#?}");
+}
