@@ -140,3 +140,40 @@ fn a_nan_stress_is_no_evidence_that_the_path_never_unloaded() {
     assert!(rep.increments.iter().any(|i| !i.non_finite.is_empty()), "the NaN is found");
     assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
 }
+
+/// Johnson–Cook properties of the README's example (Johnson & Cook 1983 constants for a steel,
+/// as the README gives them), from 400 K.
+const JC: [f64; 18] = [
+    200000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44,
+    -2.12, 0.002, 0.61,
+];
+
+/// A rate-dependent routine on a path whose increments all take the same time and whose first
+/// increment is elastic: the time enters only where the plastic strain flows, so looking at
+/// the first increment alone missed it, and a tangent without its rate term passed such a
+/// path with no word (found by a user-style sweep of a viscoplastic routine). The warning now
+/// names the first increment that changed the state; with the time varied it is not given.
+#[test]
+fn one_time_increment_is_flagged_where_the_rate_first_enters() {
+    let inc = |e: f64, dtime: f64| tancheck::core::PathIncrement {
+        dtime,
+        ..tancheck::core::PathIncrement::strain([e, -0.5 * e, -0.5 * e, 0.0, 0.0, e])
+    };
+    let jc = |dtimes: [f64; 4]| {
+        let mut increments = vec![inc(5e-4, dtimes[0])];
+        increments.extend(dtimes.iter().map(|&dt| inc(1.5e-3, dt)));
+        let path = Path { name: "elastic, then plastic".into(), increments };
+        let mut r = reference("johnson-cook", PointKind::Solid3d).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        check::run(&mut caller, &JC, PointState::zero(&info, 400.0), &path, &Settings::default()).unwrap()
+    };
+    let r = jc([1e-6; 4]);
+    assert!(!r.records[0].state_changed, "the first increment is elastic");
+    let said: Vec<&String> =
+        r.coverage.iter().filter(|c| c.contains("every increment takes the same time")).collect();
+    assert_eq!(said.len(), 1, "{:?}", r.coverage);
+    assert!(said[0].contains("stress of increment 3"), "{}", said[0]);
+    let r = jc([1e-6, 2e-6, 5e-7, 1e-6]);
+    assert!(!r.coverage.iter().any(|c| c.contains("same time")), "{:?}", r.coverage);
+}

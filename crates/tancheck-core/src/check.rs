@@ -166,9 +166,23 @@ fn run_path(
     // time increment only: whether the routine depends on it is looked at once the path has
     // been checked without a fault (two calls; the check's own calls meet any fault first).
     let one_dtime = path.increments.windows(2).all(|w| w[0].dtime.to_bits() == w[1].dtime.to_bits());
+    // Looked at in the first increment and, when its stress does not depend on the time (an
+    // elastic start), in the first increment that changed the state (a rate-dependent
+    // routine's time enters where it flows: a tangent that ignored it passed unwarned).
     let time_dependent = match (path.increments.first(), &origin) {
         (Some(inc), Some(start)) if one_dtime && !increments.any_fault && !increments.is_empty() => {
-            first_calls::depends_on_time(caller, &info, props, start, inc)
+            match first_calls::depends_on_time(caller, &info, props, start, inc) {
+                Some(false) => {
+                    match increments.records.iter().find(|r| r.state_changed).map(|r| r.index as usize) {
+                        Some(k) if k > 1 => {
+                            first_calls::depends_on_time_at(caller, &info, props, start, path, k)
+                                .map(|t| t.then_some(k))
+                        }
+                        _ => Some(None),
+                    }
+                }
+                t => t.map(|t| t.then_some(1)),
+            }
         }
         _ => None,
     };
@@ -215,10 +229,10 @@ fn run_path(
             first.split(':').next().unwrap_or("")
         ));
     }
-    if time_dependent == Some(true) && !stopped {
+    if let (Some(Some(k)), false) = (time_dependent, stopped) {
         coverage.push(format!(
             "every increment takes the same time ({:e}) and the routine's stress depends on it (twice that \
-             time changed the stress of the first increment): the tangent was checked at that time increment \
+             time changed the stress of increment {k}): the tangent was checked at that time increment \
              only, where one that leaves out its dependence on the time may still agree; vary `dtime` along \
              the path",
             path.increments[0].dtime

@@ -92,6 +92,32 @@ pub fn depends_on_time(
     Some(stress.iter().zip(&d.base.stress).any(|(a, b)| a.to_bits() != b.to_bits()))
 }
 
+/// [`depends_on_time`] at increment `k` (1-based) of `path`: the increments before it walked
+/// from `start` with base calls first. `None` as there, or when an increment before it holds
+/// stresses or its call fails. k − 1 + 2 calls.
+pub fn depends_on_time_at(
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    props: &[f64],
+    start: &PointState,
+    path: &crate::path::Path,
+    k: usize,
+) -> Option<bool> {
+    let inc = path.increments.get(k.checked_sub(1)?)?;
+    let mut d = Driver::new(info, props, start.clone()).ok()?;
+    let mut dstrain = vec![0.0; info.convention.ncomp()];
+    for before in &path.increments[..k - 1] {
+        if before.hold_stress.is_some() {
+            return None;
+        }
+        info.convention.strain_from_canonical(&before.dstrain, &mut dstrain);
+        d.set_increment(&dstrain, before.dtemp, before.dtime);
+        d.base_call(caller).ok()?;
+        d.advance();
+    }
+    depends_on_time(caller, info, props, d.start(), inc)
+}
+
 /// Branches reached so far, as (reported id, state changed).
 #[derive(Clone, Default)]
 pub struct Branches(Vec<(Option<i32>, bool)>);
