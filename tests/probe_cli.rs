@@ -243,3 +243,27 @@ fn a_path_back_to_zero_before_failure_is_no_failure_for_regularisation() {
     assert_eq!(c, Some(0), "{t}");
     assert!(t.contains("regularisation  skipped") && t.contains("full failure"), "{t}");
 }
+
+/// A suite file without a `path` walks the manifest's (or `--path`); asked for the suite's
+/// with `--suite-path`, or with no path anywhere, it is an error naming the suite file (exit
+/// 2). It was refused whatever the manifest said ("missing field `path`", found by a
+/// user-style sweep), though the suite's path is used only in those two cases.
+#[test]
+fn a_suite_without_a_path_walks_the_manifests() {
+    let d = scratch("suite-no-path");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let s = write(&d, "s.json", r#"{ "suite": "frame only", "probes": [ { "probe": "frame" } ] }"#);
+    let (code, out) = probe(&[m.to_str().unwrap(), "--suite", s.to_str().unwrap(), "-q"], &d);
+    assert_eq!(code, Some(0), "{out}");
+    let (code, out) = probe(&[m.to_str().unwrap(), "--suite", s.to_str().unwrap(), "--suite-path"], &d);
+    assert_eq!(code, Some(2), "{out}");
+    assert!(out.contains("s.json") && out.contains("has no `path`"), "{out}");
+    let bare = write(
+        &d,
+        "bare.json",
+        r#"{ "routine": { "model": "j2", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] } }"#,
+    );
+    let (code, out) = probe(&[bare.to_str().unwrap(), "--suite", s.to_str().unwrap()], &d);
+    assert_eq!(code, Some(2), "{out}");
+    assert!(out.contains("has no `path`"), "{out}");
+}

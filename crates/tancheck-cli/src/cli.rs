@@ -498,10 +498,12 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     // The manifest's path, unless the user asks for another or for the suite's.
     let path = match (&a.path, &m.path) {
         (Some(p), _) => path_arg(p)?,
-        (None, Some(_)) if !a.suite_path => m
-            .path_or(suite.path().map_err(anyhow::Error::msg)?)
+        (None, Some(p)) if !a.suite_path => crate::manifest::path_from_spec(p)
             .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
-        _ => suite.path().map_err(anyhow::Error::msg)?,
+        _ => suite.path().map_err(|e| match &suite_file {
+            Some(f) => anyhow::anyhow!("{}: {e}", f.display()),
+            None => anyhow::Error::msg(e),
+        })?,
     };
     let mut notes = Vec::new();
     if a.thermal && a.suite.is_none() && m.routine.kind.is_cohesive() {

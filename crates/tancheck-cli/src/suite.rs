@@ -33,7 +33,10 @@ pub struct Suite {
     /// Kinds of point the suite is meant for (informative; a mismatch is a warning).
     #[serde(default)]
     pub kinds: Vec<PointKind>,
-    pub path: PathSpec,
+    /// The path the probes walk when the manifest has none or `--suite-path` asks for it;
+    /// a suite without one walks the manifest's (or `--path`).
+    #[serde(default)]
+    pub path: Option<PathSpec>,
     pub probes: Vec<ProbeSpec>,
 }
 
@@ -74,7 +77,9 @@ impl Suite {
             Some((line, column)) => ManifestError::Parse { path: file.into(), line, column, message },
             None => ManifestError::Invalid { path: file.into(), message },
         };
-        let path = s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        if s.path.is_some() {
+            s.path().map_err(|message| ManifestError::Invalid { path: file.into(), message })?;
+        }
         for (k, p) in s.probes.iter().enumerate() {
             if !known.contains(&p.probe.as_str()) {
                 return Err(at(
@@ -93,7 +98,6 @@ impl Suite {
         }
         // `at` is checked against the path the probes walk (the manifest's, --path or the
         // suite's: `check_at` once it is known), not against the suite's own.
-        let _ = path;
         Ok(s)
     }
 
@@ -150,8 +154,15 @@ impl Suite {
         Suite::parse(&text, file)
     }
 
+    /// The suite's own path; an error when it has none.
     pub fn path(&self) -> Result<Path, String> {
-        crate::manifest::path_from_spec(&self.path)
+        match &self.path {
+            Some(p) => crate::manifest::path_from_spec(p),
+            None => Err(format!(
+                "suite `{}` has no `path`, and none was given otherwise: give the manifest a path, or --path",
+                self.suite
+            )),
+        }
     }
 
     /// The default suite for a kind of point; the thermal one when the routine is known to
