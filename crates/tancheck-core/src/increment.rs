@@ -9,7 +9,9 @@ use crate::driver::Driver;
 use crate::first_calls;
 use crate::mixed;
 use crate::path::PathIncrement;
-use crate::report::{CallRecord, Collector, FaultRecord, IncrementResult, Keep, PassedIncrement};
+use crate::report::{
+    CallRecord, CheckOutcome, Collector, FaultRecord, IncrementResult, Keep, PassedIncrement,
+};
 use crate::routine::{Caller, Fault};
 use crate::settings::Settings;
 
@@ -202,8 +204,33 @@ impl<'s> Walk<'s> {
             return Step { checked: true, state_changed, stops: true, unloaded, note };
         }
         self.best_is_previous = self.has_best;
+        let mut note = note;
         match (cc, passed) {
             (Some(cc), _) => {
+                // A comparison set aside (a one-sided column at the edge of the domain where
+                // the exact derivative agrees) is said in the notes too: a passing increment's
+                // terminal row is folded, and its reason would show in the JSON only.
+                let aside: Vec<String> = cc
+                    .checks
+                    .iter()
+                    .flat_map(|c| {
+                        [(Some(&c.tangent), "tangent"), (c.dstress_dtemp.as_ref(), "∂σ/∂T")]
+                            .into_iter()
+                            .filter_map(move |(o, what)| match o {
+                                Some(CheckOutcome::Skipped { reason }) if reason.starts_with("set aside") => {
+                                    Some(format!("its {} {what} comparison is {reason}", c.scheme.name()))
+                                }
+                                _ => None,
+                            })
+                    })
+                    .collect();
+                if !aside.is_empty() {
+                    let said = aside.join("; ");
+                    note = Some(match note {
+                        Some(n) => format!("{n}; {said}"),
+                        None => format!("increment {}: {said}", k + 1),
+                    });
+                }
                 // Non-finite outputs carry the inputs of the call, as a crash does.
                 let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
                 driver.advance();
