@@ -6,8 +6,8 @@ use serde::{Deserialize, Serialize};
 
 use super::causes::{diagnose, rel_error, FiniteCause};
 use super::mat3;
-use super::numeric::{self, Ask, Difference, Start, Workspace};
-use super::path::FinitePath;
+use super::numeric::{self, Ask, Difference, Workspace};
+use super::path::{path_start, FinitePath};
 use super::routine::FiniteRoutine;
 use crate::report::{Verdict, CAUTIONS};
 
@@ -101,20 +101,6 @@ pub struct FiniteReport {
     #[serde(default, skip_serializing_if = "Vec::is_empty")]
     pub notes: Vec<String>,
     pub cautions: Vec<String>,
-}
-
-/// The start of a path's first increment (stress zero, 20 °C, time 0): where the check and
-/// the probes begin, written once.
-pub(super) fn path_start(properties: &[f64], state0: &[f64], path: &FinitePath) -> Start {
-    Start {
-        properties: properties.to_vec(),
-        f0: path.gradients[0],
-        stress0: [0.0; 6],
-        state0: state0.to_vec(),
-        temperature: [20.0, 0.0],
-        time: [0.0, 1.0],
-        increment: 1,
-    }
 }
 
 /// Check `r` along `path` from `state0` (stress zero at the start). A base call that asks for

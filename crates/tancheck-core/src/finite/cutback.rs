@@ -3,10 +3,9 @@
 //! its ends, as a solver's displacement increment splits) and of its time, as the small-strain
 //! check does (`crate::cutback`, the same number of parts and the same limit).
 
-use super::check::path_start;
 use super::mat3::Mat3;
 use super::numeric::Workspace;
-use super::path::FinitePath;
+use super::path::{path_start, FinitePath};
 use super::routine::FiniteRoutine;
 use crate::cutback::{more_parts, request_words, MAX_PARTS};
 use crate::routine::{status, Fault};

@@ -18,10 +18,9 @@
 
 use serde::{Deserialize, Serialize};
 
-use super::check::path_start;
 use super::mat3::{self, Mat3};
 use super::numeric::{Start, Workspace};
-use super::path::{shear, FinitePath};
+use super::path::{path_start, shear, FinitePath};
 use super::routine::FiniteRoutine;
 
 /// What the simple-shear probe expects.
