@@ -133,6 +133,20 @@ pub fn shear(g: f64) -> Mat3<f64> {
     [[1.0, g, 0.0], [0.0, 1.0, 0.0], [0.0, 0.0, 1.0]]
 }
 
+/// The start of a path's first increment (stress zero, 20 °C, time 0): where the check and
+/// the probes begin, written once.
+pub(super) fn path_start(properties: &[f64], state0: &[f64], path: &FinitePath) -> Start {
+    Start {
+        properties: properties.to_vec(),
+        f0: path.gradients[0],
+        stress0: [0.0; 6],
+        state0: state0.to_vec(),
+        temperature: [20.0, 0.0],
+        time: [0.0, 1.0],
+        increment: 1,
+    }
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -167,19 +181,5 @@ mod tests {
         };
         let e = p.build().unwrap_err();
         assert!(e.contains("rotation: the axis") && !e.contains("det F"), "{e}");
-    }
-}
-
-/// The start of a path's first increment (stress zero, 20 °C, time 0): where the check and
-/// the probes begin, written once.
-pub(super) fn path_start(properties: &[f64], state0: &[f64], path: &FinitePath) -> Start {
-    Start {
-        properties: properties.to_vec(),
-        f0: path.gradients[0],
-        stress0: [0.0; 6],
-        state0: state0.to_vec(),
-        temperature: [20.0, 0.0],
-        time: [0.0, 1.0],
-        increment: 1,
     }
 }
