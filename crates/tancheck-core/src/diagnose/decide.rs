@@ -207,7 +207,8 @@ fn twin_unsafe(o: &Observed) -> bool {
         .filter(|s| s.scheme != crate::schemes::Scheme::ComplexStep)
         .all(|s| s.behaviour != Behaviour::Plateau);
     // The real schemes speak against the twin: they agree with the returned tangent, or they
-    // settle a decade below the complex step's error on a derivative of their own.
+    // settle together on a derivative of their own, at most half the complex step's error
+    // from the returned tangent.
     let real_speaks = real_agree(o).is_some() && no_real_plateau || real_settles_apart(o).is_some();
     twin_real_part_differs(o)
         || (complex_pass == Some(false) && kink.is_none() && real_speaks && derivative_off)
