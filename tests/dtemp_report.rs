@@ -114,21 +114,28 @@ fn a_dtemp_column_that_faults_is_shown_in_its_row() {
 // the side the routine takes, the check passes, and a note says where and why.
 #[test]
 fn a_dtemp_column_at_the_routines_limit_is_taken_on_the_side_it_takes() {
-    let d = scratch("edge");
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        r#"{ "routine": { "model": "thermo", "kind": "solid-3d", "properties": [200000, 0.3, 1e-3, 0, 0, 1.2e-5] },
-  "start": { "temperature": 20 },
-  "path": { "increments": [ {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 100}, {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 99.9995} ] } }"#,
-    )
-    .unwrap();
-    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
-    let t = String::from_utf8_lossy(&o.stdout);
-    assert_eq!(o.status.code(), Some(0), "{t}");
+    let (code, t) = heated_to_the_limit("edge", "99.9995");
+    assert_eq!(code, Some(0), "{t}");
     assert!(!t.contains("FAULT"), "{t}");
     let note = t.lines().find(|l| l.contains("note: increment 2:")).unwrap_or_else(|| panic!("{t}"));
     assert!(note.contains("dT (backward) taken one-sided"), "{note}");
+}
+
+/// `tancheck check` of thermo-elasticity with ν(T) = 0.3 + 1e-3 (T − 20) (0.5 at 220 °C),
+/// heated by 100 °C and then by `second` °C: its exit code and terminal report.
+fn heated_to_the_limit(name: &str, second: &str) -> (Option<i32>, String) {
+    let m = scratch(name).join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "model": "thermo", "kind": "solid-3d", "properties": [200000, 0.3, 1e-3, 0, 0, 1.2e-5] }},
+  "start": {{ "temperature": 20 }},
+  "path": {{ "increments": [ {{"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 100}}, {{"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": {second}}} ] }} }}"#
+        ),
+    )
+    .unwrap();
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
+    (o.status.code(), String::from_utf8_lossy(&o.stdout).into_owned())
 }
 
 // The same limit 1e-4 °C closer: there the response is too curved for the one-sided
@@ -137,18 +144,8 @@ fn a_dtemp_column_at_the_routines_limit_is_taken_on_the_side_it_takes() {
 // passing increment's row is folded, so the notes say it (it was in the JSON only).
 #[test]
 fn a_comparison_set_aside_at_the_limit_is_said_in_the_notes() {
-    let d = scratch("aside");
-    let m = d.join("m.json");
-    std::fs::write(
-        &m,
-        r#"{ "routine": { "model": "thermo", "kind": "solid-3d", "properties": [200000, 0.3, 1e-3, 0, 0, 1.2e-5] },
-  "start": { "temperature": 20 },
-  "path": { "increments": [ {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 100}, {"dstrain": [1e-4, 0, 0, 0, 0, 0], "dtemp": 99.9999} ] } }"#,
-    )
-    .unwrap();
-    let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).arg("check").arg(&m).output().unwrap();
-    let t = String::from_utf8_lossy(&o.stdout);
-    assert_eq!(o.status.code(), Some(0), "{t}");
+    let (code, t) = heated_to_the_limit("aside", "99.9999");
+    assert_eq!(code, Some(0), "{t}");
     let note = t.lines().find(|l| l.contains("note: increment 2:")).unwrap_or_else(|| panic!("{t}"));
     assert!(note.contains("its central ∂σ/∂T comparison is set aside"), "{note}");
 }

@@ -21,7 +21,7 @@ pub const MAX_PARTS: usize = 1024;
 const MARGIN: f64 = 0.9;
 
 /// The words of a fault that asks for a smaller increment (`Fault::Status` displayed).
-pub(crate) fn asks_smaller(message: &str) -> bool {
+fn asks_smaller(message: &str) -> bool {
     message.starts_with(&format!("the routine returned status {}", status::SMALLER_INCREMENT))
 }
 

@@ -10,6 +10,7 @@ use super::numeric::{self, Ask, Difference, Workspace};
 use super::path::{path_start, FinitePath};
 use super::routine::FiniteRoutine;
 use crate::report::{Verdict, CAUTIONS};
+use crate::routine::{status, Fault};
 
 /// Steps and tolerance of the finite-strain check.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -114,18 +115,13 @@ pub fn run(
     path: &FinitePath,
     settings: FiniteSettings,
 ) -> FiniteReport {
-    let report = run_path(r, properties, state0, path, settings);
-    let asked = report
-        .fault
-        .as_deref()
-        .and_then(|f| f.split_once(": "))
-        .is_some_and(|(at, words)| !at.contains(',') && crate::cutback::asks_smaller(words));
-    if !asked {
+    let (report, asked_smaller) = run_path(r, properties, state0, path, settings);
+    if !asked_smaller {
         return report;
     }
     match super::cutback::cut(r, properties, state0, path) {
         Some(cut) => {
-            let mut again = run_path(r, properties, state0, &cut.path, settings);
+            let (mut again, _) = run_path(r, properties, state0, &cut.path, settings);
             again.notes.push(cut.note(path.gradients.len() - 1));
             again
         }
@@ -133,14 +129,15 @@ pub fn run(
     }
 }
 
-/// [`run`] on `path` as given.
+/// [`run`] on `path` as given, and whether it stopped at a base call that asked for a smaller
+/// increment.
 fn run_path(
     r: &mut dyn FiniteRoutine,
     properties: &[f64],
     state0: &[f64],
     path: &FinitePath,
     settings: FiniteSettings,
-) -> FiniteReport {
+) -> (FiniteReport, bool) {
     let info = r.info().clone();
     let twin = r.has_complex();
     let n = info.tangent.size();
@@ -164,6 +161,7 @@ fn run_path(
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
     };
     let mut start = path_start(properties, state0, path);
+    let mut asked_smaller = false;
     let mut central = vec![0.0; n * n];
     let mut complex = vec![0.0; n * n];
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
@@ -172,6 +170,8 @@ fn run_path(
         let base = match ws.call_full(r, &start, f1) {
             Ok(b) => b,
             Err(e) => {
+                asked_smaller =
+                    matches!(e, Fault::Status { status: s, .. } if s == status::SMALLER_INCREMENT);
                 report.fault = Some(format!("increment {k}: {e}"));
                 break;
             }
@@ -273,5 +273,5 @@ fn run_path(
         report.finding = Some("twin-not-complex-step-safe".into());
     }
     report.exit_code = report.verdict.exit_code();
-    report
+    (report, asked_smaller)
 }
