@@ -246,7 +246,7 @@ fn finite_reports_through_the_reporters() {
 
 // The options of `tancheck check` on a finite-strain manifest: the time limits, the guard level
 // and the traps are honoured; the ones a finite-strain check has its own settings for (--path,
-// --scheme, --tol, --step, --cases), and --isolate, are refused naming the manifest (exit 2),
+// --scheme, --tol, --step, --cases) are refused naming the manifest (exit 2),
 // where they were accepted and ignored. A NaN the routine computes is a non-finite output
 // (exit 1), an entry it never writes a fault (exit 3): both read "unwritten" before.
 #[test]
@@ -268,7 +268,6 @@ fn finite_checks_honour_or_refuse_the_check_options() {
         &["--tol", "central=1e-30"],
         &["--scheme", "forward"],
         &["--step", "central=1e-3"],
-        &["--isolate"],
     ] {
         let (code, out) = tancheck(&[&["check", good.as_str()][..], extra].concat());
         assert_eq!(code, 2, "{extra:?}: {out}");
@@ -332,6 +331,69 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     let (code, out) = tancheck(&["check", &nan, "-q", "--fp-traps"]);
     assert_eq!(code, 3, "{out}");
     assert!(out.contains("SIGFPE"), "{out}");
+}
+
+// `--isolate` runs a finite-strain check in a worker process, as a point check: a routine
+// that passes gives the report, byte for byte, of the check in one process; one that never
+// returns, ends the process or aborts is a fault (exit 3) that names the very call that was
+// running, by its deformation gradients, in the terminal and in the JSON report (kind
+// `isolated-fault`). `--isolate` was refused for finite-strain manifests.
+#[test]
+fn finite_checks_run_isolated() {
+    let dir = scratch("isolated");
+    let m = |symbol: &'static str| Manifest {
+        lib: c_lib(),
+        symbol,
+        stress: "cauchy",
+        tangent: "sigma-jaumann",
+        frame: "none",
+        properties: ELASTIC,
+        states: 0,
+        extra: "",
+    };
+    let schema: serde_json::Value = serde_json::from_str(
+        &std::fs::read_to_string(tancheck_testkit::libs::repo_root().join("schema/report.schema.json"))
+            .unwrap(),
+    )
+    .unwrap();
+    let validator = jsonschema::validator_for(&schema).unwrap();
+    let good = write(&dir, "good.json", &m("c_nh"));
+    let (plain, isolated) = (dir.join("plain.out.json"), dir.join("isolated.out.json"));
+    let (code, out) = tancheck(&["check", &good, "-q", "--json", plain.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    let (code, out) = tancheck(&["check", &good, "-q", "--isolate", "--json", isolated.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("verdict: PASS (exit 0)"), "{out}");
+    assert_eq!(std::fs::read(&plain).unwrap(), std::fs::read(&isolated).unwrap());
+
+    for (symbol, said) in [
+        ("c_nh_spin_at_2", "did not return within 2 s"),
+        ("c_nh_exit_at_2", "ended the worker process by calling exit()"),
+        ("c_nh_abort_at_2", "SIGABRT"),
+    ] {
+        let file = write(&dir, &format!("{symbol}.json"), &m(symbol));
+        let report = dir.join(format!("{symbol}.out.json"));
+        let args = ["check", &file, "--isolate", "--call-timeout", "2", "--json", report.to_str().unwrap()];
+        let t0 = std::time::Instant::now();
+        let (code, out) = tancheck(&args);
+        assert_eq!(code, 3, "{symbol}: {out}");
+        assert!(t0.elapsed().as_secs_f64() < 30.0, "{symbol}: {out}");
+        assert!(out.contains(said) && out.contains("finite-strain call of increment 2"), "{symbol}: {out}");
+        assert!(
+            out.contains("F0 (column-major) [") && out.contains("F1 (column-major) ["),
+            "{symbol}: {out}"
+        );
+        assert!(out.contains(&format!(":{symbol}")), "{symbol}: the routine is named: {out}");
+        let v: serde_json::Value = serde_json::from_slice(&std::fs::read(&report).unwrap()).unwrap();
+        assert_eq!(v["verdict"], "routine-fault", "{symbol}: {v}");
+        let errors: Vec<String> = validator.iter_errors(&v).map(|e| e.to_string()).collect();
+        assert!(errors.is_empty(), "{symbol}: the report does not fit the schema: {errors:?}\n{v}");
+        let call = &v["fault"]["call"];
+        assert_eq!(call["increment"], 2, "{symbol}: {v}");
+        let (f0, f1) = (call["f0"].as_array().unwrap(), call["f1"].as_array().unwrap());
+        assert!(f0.len() == 9 && f1.len() == 9 && f0 != f1, "{symbol}: {v}");
+        assert_eq!(call["properties"][0].as_f64(), Some(1000.0), "{symbol}: {v}");
+    }
 }
 
 // A tensor in the state (probes.tensor_state) must lie inside the state and not share entries

@@ -290,14 +290,6 @@ fn finite_check_options(a: &CheckArgs) -> Result<crate::cmd_finite::FiniteOption
         (a.cases.is_some(), "--cases"),
     ];
     refuse_for_finite(&a.manifest, &given, FINITE_CHECK_INSTEAD)?;
-    if a.isolate {
-        bail!(
-            "{}: a finite-strain manifest; --isolate is not available for finite-strain routines yet: \
-             without it the guard still reports a crash, a hang past --call-timeout and a routine that \
-             ends the process (exit 70, with the running call's inputs)",
-            a.manifest.display()
-        );
-    }
     Ok(crate::cmd_finite::FiniteOptions {
         call_timeout: a.call_timeout,
         suite_timeout: a.suite_timeout,
@@ -311,8 +303,9 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     let inputs: Vec<&std::path::Path> =
         [Some(a.manifest.as_path()), path_file(&a.path)].into_iter().flatten().collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
-    if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        let options = finite_check_options(&a)?;
+    let finite = crate::finite_load::FiniteManifest::detect(&a.manifest);
+    let finite_options = if finite { Some(finite_check_options(&a)?) } else { None };
+    if let (Some(options), false) = (finite_options, a.isolate) {
         return crate::cmd_finite::check(&a.manifest, a.json.as_deref(), &a.output, options);
     }
     // An earlier report under the same name is replaced at once by an "incomplete" marker.

@@ -48,6 +48,11 @@ fn with_routine<T>(
     let file = manifest.display().to_string();
     crate::survive::begin_report(json, &file)?;
     crate::survive::start_watchdog(options.call_timeout, Some(options.suite_timeout));
+    // An `--isolate` worker dies with its parent, and every call leaves a heartbeat for it.
+    let heartbeat = std::env::var_os(crate::isolate::HEARTBEAT_ENV);
+    if let Some(hb) = &heartbeat {
+        crate::isolate::worker_follows_parent(FsPath::new(hb))?;
+    }
     let (mut m, d, dir) = FiniteManifest::load(manifest)?;
     if let Some(g) = options.guards {
         m.guards = g;
@@ -63,8 +68,16 @@ fn with_routine<T>(
     let mut r = open(&m, &d, &dir, &file)?;
     let path = m.path.build().map_err(|e| anyhow::anyhow!("{file}: path: {e}"))?;
     let state0 = if m.start.state.is_empty() { vec![0.0; r.info().nstate] } else { m.start.state.clone() };
+    let mut beating;
+    let r: &mut dyn FiniteRoutine = match &heartbeat {
+        Some(hb) => {
+            beating = crate::isolate::FiniteHeartbeat::new(r.as_mut(), FsPath::new(hb))?;
+            &mut beating
+        }
+        None => r.as_mut(),
+    };
     crate::survive::checking(true);
-    let out = body(r.as_mut(), &m, &state0, &path);
+    let out = body(r, &m, &state0, &path);
     crate::survive::checking(false);
     Ok(out)
 }

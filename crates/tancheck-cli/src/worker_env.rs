@@ -1,6 +1,9 @@
 //! The environment an `--isolate` worker gets from its parent (cli `isolate`): the variables'
 //! names and what they say, at the bottom of the module order so that the reports, the guard
-//! set-up (`survive`) and `isolate` itself can all read them.
+//! set-up (`survive`) and `isolate` itself can all read them; and the call a worker that died
+//! was making, as its parent tells it (in the report schema too).
+
+use tancheck_core::report::CallRecord;
 
 /// Environment variable naming the heartbeat file an `--isolate` worker shares with its parent
 /// (its presence makes this process a worker).
@@ -52,5 +55,44 @@ mod tests {
         }
         // Outside a worker nothing is.
         assert!(!handoff_beside(None, Path::new("/tmp/tancheck-worker-7/report.json")));
+    }
+}
+
+/// The inputs of a finite-strain call, as the parent of a worker that died tells them (the
+/// same fields as the guard's last words of a finite-strain call, and the temperature).
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize, schemars::JsonSchema)]
+pub struct FiniteCall {
+    pub increment: i32,
+    /// Null for a real call; the twin's calls are told by their real parts.
+    pub perturbation: Option<String>,
+    pub properties: Vec<f64>,
+    /// Deformation gradients at the start and end of the increment, column-major.
+    pub f0: Vec<f64>,
+    pub f1: Vec<f64>,
+    pub stress0: Vec<f64>,
+    pub state0: Vec<f64>,
+    /// Temperature at the start and its increment (absent from the guard's last words).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature: Option<[f64; 2]>,
+    pub time: f64,
+    pub dtime: f64,
+}
+
+/// The call a worker was making when it died, as far as the parent knows it.
+#[derive(Clone, Debug, PartialEq, serde::Serialize, serde::Deserialize, schemars::JsonSchema)]
+#[serde(untagged)]
+pub enum RunningCall {
+    /// A point routine's call: its inputs.
+    Point(CallRecord),
+    /// A finite-strain routine's call.
+    Finite(FiniteCall),
+}
+
+impl RunningCall {
+    pub fn increment(&self) -> i32 {
+        match self {
+            RunningCall::Point(c) => c.increment,
+            RunningCall::Finite(c) => c.increment,
+        }
     }
 }

@@ -20,10 +20,14 @@
  * Misbehaving variants, correct but from increment 2 on: c_nh_nan_at_2 (computes a NaN into
  * tangent[7]), c_nh_unwritten_at_2 (never writes tangent[20]), c_nh_spin_at_2 (never returns),
  * c_nh_state_overrun_at_2 (writes state[nstate], one past the end), c_nh_nan_stress_at_2 and
- * c_nh_nan_state_at_2 (compute a NaN into stress[0], or state[0] when there is a state).
+ * c_nh_nan_state_at_2 (compute a NaN into stress[0], or state[0] when there is a state),
+ * c_nh_exit_at_2 (ends the process with exit(9)) and c_nh_abort_at_2 (raises SIGABRT, as a
+ * failed assertion or a heap check of the C library would).
  *
  * Build: cc -I fortran-shim/include -c finite_nh.c; again with -DTC_COMPLEX for the twins.
  */
+
+#include <stdlib.h>
 
 #include "tancheck_cstep.h"
 #include "tancheck_finite.h"
@@ -133,7 +137,9 @@ enum nh_misbehaviour {
     NH_SPIN_AT_2,
     NH_STATE_OVERRUN_AT_2,
     NH_NAN_STRESS_AT_2,
-    NH_NAN_STATE_AT_2
+    NH_NAN_STATE_AT_2,
+    NH_EXIT_AT_2,
+    NH_ABORT_AT_2
 };
 
 #define NH_MISBEHAVING(name, what)                                                              \
@@ -163,6 +169,8 @@ enum nh_misbehaviour {
         volatile int spin = what == NH_SPIN_AT_2 && late;                                       \
         while (spin) {                                                                          \
         }                                                                                       \
+        if (what == NH_EXIT_AT_2 && late) exit(9);                                              \
+        if (what == NH_ABORT_AT_2 && late) abort();                                             \
     }
 
 NH_MISBEHAVING(c_nh_nan_at_2, NH_NAN_AT_2)
@@ -171,3 +179,5 @@ NH_MISBEHAVING(c_nh_spin_at_2, NH_SPIN_AT_2)
 NH_MISBEHAVING(c_nh_state_overrun_at_2, NH_STATE_OVERRUN_AT_2)
 NH_MISBEHAVING(c_nh_nan_stress_at_2, NH_NAN_STRESS_AT_2)
 NH_MISBEHAVING(c_nh_nan_state_at_2, NH_NAN_STATE_AT_2)
+NH_MISBEHAVING(c_nh_exit_at_2, NH_EXIT_AT_2)
+NH_MISBEHAVING(c_nh_abort_at_2, NH_ABORT_AT_2)

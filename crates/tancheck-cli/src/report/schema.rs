@@ -111,7 +111,8 @@ struct IsolatedFault {
 struct IsolatedFaultDetail {
     message: String,
     increment: Option<i64>,
-    call: Option<tancheck_core::report::CallRecord>,
+    /// The inputs of the call that was running (a point or a finite-strain call), when known.
+    call: Option<crate::worker_env::RunningCall>,
 }
 
 /// The marker a run writes in place of an earlier report as it starts: still running, or

@@ -3,9 +3,9 @@
 //! corruption or a stack overflow inside the routine ends only the worker; the parent says
 //! what happened, with the inputs of the increment that was running, and finishes the report.
 //!
-//! The worker and the parent share a record in memory (a file both map, [`SHARED_LEN`]
-//! bytes): a counter the worker raises before every routine call, and the inputs of each
-//! increment's base call. No system call per routine call: the parent reads the counter
+//! The worker and the parent share a record in memory (`shared`, a file both map): a counter
+//! the worker raises before every routine call, and the inputs of each increment's base call
+//! (of every call, for a finite-strain routine). No system call per routine call: the parent reads the counter
 //! every 10 ms (and at once when the worker's output ends) and the inputs when the worker has
 //! died. The worker's JSON report is all the parent reads of a finished check; without
 //! `--json` it holds only the verdict ([`VERDICT_ONLY_ENV`]), and the worker does not wait for
@@ -15,19 +15,21 @@
 //! removes the worker's folder before the parent dies of the signal (exit 128 + signal), and
 //! the parent's death sends the worker SIGTERM (Linux), whose handler removes the folder.
 
-use std::fs::File;
 use std::io::{Read, Write};
 use std::path::Path;
 use std::process::{Command, Stdio};
 use std::time::{Duration, Instant};
 
 use anyhow::{Context, Result};
-use num_complex::Complex64;
-use tancheck_core::report::CallRecord;
-use tancheck_core::routine::{Sweep, SweepEnd};
-use tancheck_core::{CallInput, CallOutput, ComplexRoutine, Fault, Routine, RoutineInfo};
 
 use crate::exit;
+
+mod heartbeat;
+mod shared;
+
+pub use heartbeat::{FiniteHeartbeat, Heartbeat};
+use shared::SharedView;
+pub use shared::{FiniteCall, RunningCall, SHARED_LEN};
 
 pub use crate::survive::HEARTBEAT_ENV;
 /// Environment variable with the parent's process id (the worker follows it).
@@ -52,218 +54,6 @@ pub fn worker_follows_parent(heartbeat: &Path) -> Result<()> {
         }
     }
     Ok(())
-}
-
-/// Bytes of the shared record: the call counter, the sequence word, the record's length in
-/// words, and the inputs of the last base call (8-byte words); in its last [`NAME_WORDS`]
-/// words the routine's name (its length in bytes, then the bytes). A sparse file: pages the
-/// record does not reach take no room.
-pub const SHARED_LEN: u64 = 1 << 20;
-/// Words at the end of the shared record that hold the routine's name.
-const NAME_WORDS: usize = 64;
-/// Word offsets in the shared record.
-const W_CALLS: usize = 0;
-const W_SEQ: usize = 1;
-const W_LEN: usize = 2;
-const W_RECORD: usize = 3;
-/// Words of a record before its arrays: increment, temperature and its increment, time and
-/// its increment, and the lengths of properties, strain (stress) and state.
-const RECORD_HEAD: usize = 8;
-
-/// The words of a shared record mapped in memory.
-fn words(map: &[u8]) -> &[std::sync::atomic::AtomicU64] {
-    let n = map.len() / 8;
-    // SAFETY: the map is page-aligned (so 8-aligned) and `n` words long; AtomicU64 has the
-    // size and alignment of u64, and every access to the shared words is atomic.
-    unsafe { std::slice::from_raw_parts(map.as_ptr().cast::<std::sync::atomic::AtomicU64>(), n) }
-}
-
-/// A routine that raises the shared call counter before every call and leaves the inputs of
-/// each base call in the shared record (in the worker).
-pub struct Heartbeat<'r> {
-    inner: &'r mut dyn Routine,
-    map: memmap2::MmapMut,
-    calls: u64,
-    seq: u64,
-}
-
-impl<'r> Heartbeat<'r> {
-    pub fn new(inner: &'r mut dyn Routine, heartbeat: &Path) -> std::io::Result<Heartbeat<'r>> {
-        let file = std::fs::OpenOptions::new().read(true).write(true).open(heartbeat)?;
-        if file.metadata()?.len() < SHARED_LEN {
-            file.set_len(SHARED_LEN)?;
-        }
-        // SAFETY: the file is the worker folder's own, made by the parent, which only reads
-        // it; its length is not changed while mapped.
-        let map = unsafe { memmap2::MmapMut::map_mut(&file)? };
-        let mut beat = Heartbeat { inner, map, calls: 0, seq: 0 };
-        beat.name();
-        Ok(beat)
-    }
-
-    /// The routine's name into the end of the shared record (cut to fit), before any call:
-    /// the parent names the routine when the worker dies.
-    fn name(&mut self) {
-        use std::sync::atomic::Ordering;
-        let w = words(&self.map);
-        let at = w.len() - NAME_WORDS;
-        let name = self.inner.info().name.as_bytes();
-        let name = &name[..name.len().min((NAME_WORDS - 1) * 8)];
-        for (slot, chunk) in w[at + 1..].iter().zip(name.chunks(8)) {
-            let mut b = [0u8; 8];
-            b[..chunk.len()].copy_from_slice(chunk);
-            slot.store(u64::from_le_bytes(b), Ordering::Relaxed);
-        }
-        w[at].store(name.len() as u64, Ordering::Release);
-    }
-
-    fn beat(&mut self) {
-        use std::sync::atomic::Ordering;
-        self.calls += 1;
-        words(&self.map)[W_CALLS].store(self.calls, Ordering::Release);
-    }
-
-    /// The inputs of a base call into the shared record, between two raises of the sequence
-    /// word (odd while writing). Nothing when they do not fit.
-    fn record(&mut self, input: &CallInput<'_, f64>) {
-        use std::sync::atomic::Ordering;
-        let w = words(&self.map);
-        let arrays = [input.props, input.strain, input.dstrain, input.stress0, input.state0];
-        let len = RECORD_HEAD + arrays.iter().map(|a| a.len()).sum::<usize>();
-        self.seq += 1;
-        w[W_SEQ].store(self.seq, Ordering::Release);
-        if W_RECORD + len > w.len() - NAME_WORDS {
-            w[W_LEN].store(0, Ordering::Relaxed);
-        } else {
-            let head = [
-                input.increment as i64 as u64,
-                input.temp[0].to_bits(),
-                input.temp[1].to_bits(),
-                input.time[0].to_bits(),
-                input.time[1].to_bits(),
-                input.props.len() as u64,
-                input.strain.len() as u64,
-                input.state0.len() as u64,
-            ];
-            let values = head.into_iter().chain(arrays.iter().flat_map(|a| a.iter().map(|x| x.to_bits())));
-            for (slot, v) in w[W_RECORD..].iter().zip(values) {
-                slot.store(v, Ordering::Relaxed);
-            }
-            w[W_LEN].store(len as u64, Ordering::Relaxed);
-        }
-        self.seq += 1;
-        w[W_SEQ].store(self.seq, Ordering::Release);
-    }
-}
-
-/// The parent's view of the shared record.
-struct SharedView(memmap2::Mmap);
-
-impl SharedView {
-    fn open(heartbeat: &Path) -> std::io::Result<SharedView> {
-        let file = File::options().read(true).write(true).create(true).truncate(true).open(heartbeat)?;
-        file.set_len(SHARED_LEN)?;
-        // SAFETY: the worker writes the file only through its own map, with atomic accesses,
-        // and never changes its length.
-        Ok(SharedView(unsafe { memmap2::Mmap::map(&file)? }))
-    }
-
-    /// Routine calls the worker has begun.
-    fn calls(&self) -> u64 {
-        words(&self.0)[W_CALLS].load(std::sync::atomic::Ordering::Acquire)
-    }
-
-    /// The routine's name, once the worker has loaded it and written it (cut at a character
-    /// boundary where the record cut it).
-    fn routine(&self) -> Option<String> {
-        use std::sync::atomic::Ordering;
-        let w = words(&self.0);
-        let at = w.len() - NAME_WORDS;
-        let n = (w[at].load(Ordering::Acquire) as usize).min((NAME_WORDS - 1) * 8);
-        if n == 0 {
-            return None;
-        }
-        let bytes: Vec<u8> =
-            w[at + 1..].iter().flat_map(|x| x.load(Ordering::Relaxed).to_le_bytes()).take(n).collect();
-        Some(String::from_utf8_lossy(&bytes).trim_end_matches('\u{fffd}').to_string())
-    }
-
-    /// The inputs of the last base call, when the worker finished writing them.
-    fn last_call(&self) -> Option<CallRecord> {
-        use std::sync::atomic::Ordering;
-        let w = words(&self.0);
-        let seq = w[W_SEQ].load(Ordering::Acquire);
-        let len = w[W_LEN].load(Ordering::Acquire) as usize;
-        if seq == 0 || seq % 2 == 1 || len < RECORD_HEAD || W_RECORD + len > w.len() - NAME_WORDS {
-            return None;
-        }
-        let r: Vec<u64> = w[W_RECORD..W_RECORD + len].iter().map(|x| x.load(Ordering::Relaxed)).collect();
-        let (np, n, ns) = (r[5] as usize, r[6] as usize, r[7] as usize);
-        if RECORD_HEAD + np + 3 * n + ns != len {
-            return None;
-        }
-        let mut at = RECORD_HEAD;
-        let mut take = |m: usize| {
-            let v: Vec<f64> = r[at..at + m].iter().map(|b| f64::from_bits(*b)).collect();
-            at += m;
-            v
-        };
-        let (props, strain, dstrain, stress0, state0) = (take(np), take(n), take(n), take(n), take(ns));
-        Some(CallRecord {
-            increment: r[0] as i64 as i32,
-            perturbation: None,
-            props,
-            strain,
-            dstrain,
-            temp: f64::from_bits(r[1]),
-            dtemp: f64::from_bits(r[2]),
-            stress0,
-            state0,
-            time: f64::from_bits(r[3]),
-            dtime: f64::from_bits(r[4]),
-        })
-    }
-}
-
-impl Routine for Heartbeat<'_> {
-    fn info(&self) -> &RoutineInfo {
-        self.inner.info()
-    }
-    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
-        if input.want_tangent {
-            self.record(input);
-        }
-        self.beat();
-        self.inner.call(input, output)
-    }
-    tancheck_core::pass_on_to_inner!();
-
-    /// The inner routine's sweep, with a beat before each of its calls (the parent's bound is
-    /// on one call, not on a sweep).
-    fn sweep_real(&mut self, sweep: Sweep<'_, '_, f64>) -> Option<SweepEnd> {
-        let counter = &words(&self.map)[W_CALLS];
-        let end = self.inner.sweep_real(Sweep { counter: Some(counter), ..sweep });
-        self.calls = counter.load(std::sync::atomic::Ordering::Acquire);
-        end
-    }
-
-    fn sweep_complex(&mut self, sweep: Sweep<'_, '_, Complex64>) -> Option<SweepEnd> {
-        let counter = &words(&self.map)[W_CALLS];
-        let end = self.inner.sweep_complex(Sweep { counter: Some(counter), ..sweep });
-        self.calls = counter.load(std::sync::atomic::Ordering::Acquire);
-        end
-    }
-}
-
-impl ComplexRoutine for Heartbeat<'_> {
-    fn call_complex(
-        &mut self,
-        input: &CallInput<'_, Complex64>,
-        output: &mut CallOutput<'_, Complex64>,
-    ) -> Result<(), Fault> {
-        self.beat();
-        self.inner.complex().expect("checked").call_complex(input, output)
-    }
 }
 
 /// Run this program again as a worker with `args` (the same check without `--isolate`), and
@@ -413,12 +203,18 @@ pub fn run_isolated(
             (None, None, Some(s)) => format!("the worker process was killed by signal {s} (heap corruption or a stack overflow the guard could not catch?)"),
             (None, None, None) => "the worker process ended unexpectedly".to_string(),
         };
-        // The call that was running: from the worker's last words (exact), or the base call
-        // of the increment the heartbeat last saw.
-        let exact: Option<CallRecord> =
+        // The call that was running: from the worker's last words (exact), or the last call
+        // the shared record holds (a point check's base call of the increment running, or
+        // the very finite-strain call).
+        let exact: Option<RunningCall> =
             last_words.and_then(|v| serde_json::from_value(v.fault["call"].clone()).ok());
-        let seen = if exact.is_some() { Seen::Exact } else { Seen::BaseCall };
-        let call = exact.or_else(|| shared.last_call());
+        let (call, seen) = match exact {
+            Some(c) => (Some(c), Seen::Exact),
+            None => match shared.last_call() {
+                Some(c @ RunningCall::Finite(_)) => (Some(c), Seen::Exact),
+                c => (c, Seen::BaseCall),
+            },
+        };
         let routine = shared.routine();
         let stdout_text = String::from_utf8_lossy(&stdout);
         let stderr_text = String::from_utf8_lossy(&stderr);
@@ -466,21 +262,21 @@ struct WorkerReport {
     fault: serde_json::Value,
 }
 
-/// The readable account of a worker that did not finish.
 /// Where the parent's record of the running call came from.
 #[derive(Clone, Copy)]
 enum Seen {
-    /// The worker's last words: the very call.
+    /// The worker's last words, or the shared record of a finite-strain call: the very call.
     Exact,
-    /// The shared record: the base call of the increment that was running.
+    /// The shared record of a point check: the base call of the increment that was running.
     BaseCall,
 }
 
+/// The readable account of a worker that did not finish.
 fn account(
     o: &mut dyn Write,
     what: &str,
     routine: Option<&str>,
-    call: Option<(&CallRecord, Seen)>,
+    call: Option<(&RunningCall, Seen)>,
     stderr_text: &str,
 ) -> std::io::Result<()> {
     match routine {
@@ -488,20 +284,41 @@ fn account(
         None => writeln!(o, "== isolated check (the worker had not loaded the routine) ==")?,
     }
     writeln!(o, "   FAULT: {what}")?;
-    if let Some((c, seen)) = call {
-        match seen {
-            Seen::Exact => writeln!(o, "   during increment {} (the inputs of that call):", c.increment)?,
+    if let Some((call, seen)) = call {
+        let n = call.increment();
+        match (seen, call) {
+            (Seen::Exact, RunningCall::Finite(c)) if c.perturbation.is_some() => writeln!(
+                o,
+                "   during a finite-strain call of increment {n} (the complex-step twin; the real parts of its inputs):"
+            )?,
+            (Seen::Exact, RunningCall::Finite(_)) => {
+                writeln!(o, "   during a finite-strain call of increment {n} (the inputs of that call):")?
+            }
+            (Seen::Exact, _) => writeln!(o, "   during increment {n} (the inputs of that call):")?,
             // The shared record holds each increment's base call; the call that was running
             // may be one of the increment's perturbed calls.
-            Seen::BaseCall => {
-                writeln!(o, "   during increment {} (the inputs of its base call):", c.increment)?
+            (Seen::BaseCall, _) => writeln!(o, "   during increment {n} (the inputs of its base call):")?,
+        }
+        match call {
+            RunningCall::Point(c) => writeln!(
+                o,
+                "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}   time, dtime {}, {}",
+                c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp, c.time, c.dtime
+            )?,
+            RunningCall::Finite(c) => {
+                writeln!(
+                    o,
+                    "     F0 (column-major) {:?}\n     F1 (column-major) {:?}\n     stress0  {:?}\n     state0   {:?}\n     properties {:?}",
+                    c.f0, c.f1, c.stress0, c.state0, c.properties
+                )?;
+                if let Some([t, dt]) = c.temperature {
+                    write!(o, "     temperature, its increment {t}, {dt}   ")?;
+                } else {
+                    write!(o, "     ")?;
+                }
+                writeln!(o, "time, dtime {}, {}", c.time, c.dtime)?
             }
         }
-        writeln!(
-            o,
-            "     strain   {:?}\n     dstrain  {:?}\n     stress0  {:?}\n     state0   {:?}\n     props    {:?}\n     temp, dtemp {}, {}   time, dtime {}, {}",
-            c.strain, c.dstrain, c.stress0, c.state0, c.props, c.temp, c.dtemp, c.time, c.dtime
-        )?;
     } else {
         writeln!(o, "   before the first routine call")?;
     }
@@ -512,7 +329,7 @@ fn account(
 }
 
 /// The JSON report of a worker that did not finish.
-fn fault_json(what: &str, routine: Option<&str>, call: Option<&CallRecord>) -> serde_json::Value {
+fn fault_json(what: &str, routine: Option<&str>, call: Option<&RunningCall>) -> serde_json::Value {
     serde_json::json!({
         "format": tancheck_core::report::document::FORMAT,
         "version": tancheck_core::report::document::VERSION,
@@ -521,7 +338,7 @@ fn fault_json(what: &str, routine: Option<&str>, call: Option<&CallRecord>) -> s
         "routine": routine,
         "verdict": "routine-fault",
         "isolated": true,
-        "fault": { "message": what, "increment": call.map(|c| c.increment), "call": call },
+        "fault": { "message": what, "increment": call.map(RunningCall::increment), "call": call },
         "cautions": tancheck_core::report::CAUTIONS,
     })
 }
