@@ -103,6 +103,57 @@ fn a_law_that_singles_out_axes_fails() {
     assert_eq!(run(&mut r, &ELASTIC, &paths()[0], &spec).status, ProbeStatus::Pass);
 }
 
+/// Isotropic J2 whose stress, once the state has changed (plastic strain), gains the term
+/// c·(ε11 − ε22) on σ11 with its tangent entries: a law whose inelastic response singles out
+/// axes 1 and 2 by design (as an orthotropic yield surface does), with an isotropic elastic
+/// response.
+struct SkewedOnceYielded {
+    inner: tancheck::core::ModelRoutine<tancheck::models::AnyModel>,
+    c: f64,
+}
+
+impl Routine for SkewedOnceYielded {
+    fn info(&self) -> &RoutineInfo {
+        self.inner.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.inner.call(input, output)?;
+        if output.state.iter().all(|s| *s == 0.0) {
+            return Ok(());
+        }
+        let n = self.inner.info().convention.ncomp();
+        let d = input.strain[0] + input.dstrain[0] - input.strain[1] - input.dstrain[1];
+        output.stress[0] += self.c * d;
+        output.tangent[0] += self.c;
+        output.tangent[n] -= self.c;
+        Ok(())
+    }
+}
+
+// An isotropic elastic response whose stress stops rotating only once the state has changed
+// is an anisotropic inelastic law by design (an orthotropic yield surface: a correct Hill-type
+// routine failed the default suite, found by a user-style sweep) or a frame-indifference
+// defect: nothing declared, the probe is skipped with that reason and the increment; declared
+// isotropic, it fails there.
+#[test]
+fn an_inelastic_response_that_singles_out_axes_needs_a_declaration() {
+    let path = &paths()[0];
+    let mut r = SkewedOnceYielded { inner: reference("j2", PointKind::Solid3d).unwrap(), c: 2000.0 };
+    let res = run(&mut r, &J2_ALL, path, &ProbeSpec::named("frame"));
+    assert_eq!(res.status, ProbeStatus::Skipped, "{res:?}");
+    assert!(
+        res.summary.contains("anisotropic by design") && res.summary.contains("`axes`"),
+        "{}",
+        res.summary
+    );
+    let k = res.increment.expect("the increment is named");
+    assert!(k >= 2, "the elastic increments rotate: {res:?}");
+    let spec = ProbeSpec { anisotropic: Some(false), ..ProbeSpec::named("frame") };
+    let res = run(&mut r, &J2_ALL, path, &spec);
+    assert_eq!(res.status, ProbeStatus::Fail, "{res:?}");
+    assert_eq!(res.increment, Some(k), "{res:?}");
+}
+
 /// Orthotropic inputs (any valid set would do; these follow the T300/914C ply of
 /// REFERENCES.md with E3 = E2, G13 = G12, ν13 = ν12 and ν23 = 0.4 assumed), material axes
 /// a1 = (1, 1, 0), a2 = (−1, 1, 0.5) at properties 9..12 and 12..15.

@@ -327,3 +327,51 @@ fn a_status_refusal_of_the_hidden_state_probes_own_call_is_no_fault() {
     assert!(!p.fault);
     assert_eq!(rep.exit_code, 0);
 }
+
+/// The thermal reference model with c·ε22 added to σ11 and its tangent entry: an unsymmetric
+/// tangent that is still the derivative of the update (as a kinematic-hardening return with a
+/// recovery term, or a non-associative flow, gives).
+struct Unsymmetric(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for Unsymmetric {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        let n = self.0.info().convention.ncomp();
+        let c = 5000.0;
+        output.stress[0] += c * (input.strain[1] + input.dstrain[1]);
+        output.tangent[n] += c;
+        Ok(())
+    }
+}
+
+// The default suites do not declare the tangent symmetric on the user's behalf: a consistent
+// tangent may be unsymmetric (a kinematic-hardening routine with a recovery term failed the
+// thermal suite's symmetry probe, found by a user-style sweep). The probe passes and says the
+// tangent is unsymmetric.
+#[test]
+fn the_default_suites_do_not_assume_a_symmetric_tangent() {
+    for thermal in [false, true] {
+        let suite = Suite::default_for(PointKind::Solid3d, thermal);
+        let mut r = Unsymmetric(reference("thermo", PointKind::Solid3d).unwrap());
+        let mut caller = Caller::new(&mut r);
+        let info = caller.info().clone();
+        let start = PointState::zero(&info, 20.0);
+        let props = [210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0];
+        let path = suite.path().unwrap();
+        let report =
+            run_suite(&mut caller, &suite.suite, &suite.probes, &props, &start, &path, &Settings::default())
+                .unwrap();
+        let s = report.results.iter().find(|p| p.probe == "symmetry").unwrap();
+        assert_eq!(s.status, ProbeStatus::Pass, "thermal {thermal}: {s:?}");
+        assert!(s.summary.contains("unsymmetric tangent"), "thermal {thermal}: {s:?}");
+        let t = report.results.iter().find(|p| p.probe == "tangent").unwrap();
+        assert_eq!(t.status, ProbeStatus::Pass, "the tangent is the derivative: {t:?}");
+    }
+}

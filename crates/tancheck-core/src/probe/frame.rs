@@ -15,8 +15,11 @@
 //! (their rotation would need the meaning of each state variable; state variables declared
 //! scalar by `scalar_states`, which no rotation changes, may be nonzero) and anisotropic models
 //! without `axes`: declared so (`anisotropic: true`), or, when nothing is declared, seen to be
-//! so (the elastic tangent at the start is not isotropic). `anisotropic: false` declares the
-//! law isotropic: then a response that does not rotate fails.
+//! so (the elastic tangent at the start is not isotropic, or, with an isotropic elastic
+//! response, the stress stops rotating only once the state has changed: an anisotropic yield
+//! surface or damage law). `anisotropic: false` declares the law isotropic: then a response
+//! that does not rotate fails. A tangent that does not rotate where its stress does fails
+//! whatever is declared.
 //!
 //! Mismatches are Mandel (Frobenius) norms relative to the largest stress (tangent) norm
 //! along the path; both must stay within `tol` (default 1e-10) at every probed increment.
@@ -227,6 +230,9 @@ impl Probe for Frame {
         let mut de = vec![0.0; conv.ncomp()];
         let (mut worst_s, mut worst_t) = ((0.0f64, 0usize), (0.0f64, 0usize));
         let mut first_bad: Option<usize> = None;
+        // The first increment whose stress does not rotate (a tangent that does not rotate
+        // with a stress that does is a defect whatever the law's symmetry).
+        let mut first_stress_bad: Option<usize> = None;
         // Increments that end on a branch boundary (a reload exactly to the largest load so
         // far, where damage or hardening starts again): rounding in the rotated frame may take
         // the other branch, with the same stress and the other side's tangent.
@@ -278,10 +284,41 @@ impl Probe for Frame {
                 if first_bad.is_none() && (es > tol || et > tol) {
                     first_bad = Some(o.increment);
                 }
+                if first_stress_bad.is_none() && es > tol {
+                    first_stress_bad = Some(o.increment);
+                }
             }
             d.advance();
         }
         let what = if anisotropic { "with the material axes rotated too" } else { "as an isotropic law" };
+        // Nothing declared, an isotropic elastic response (above), and the stress stops
+        // rotating only where the state has changed: an inelastic response anisotropic by
+        // design (an orthotropic yield surface, damage directions fixed in the material) and
+        // a frame-indifference defect of an isotropic law look the same. Skipped with that
+        // reason, not failed; `anisotropic: false` makes it a failure.
+        let first_inelastic = original.iter().find(|o| o.branch.1).map(|o| o.increment);
+        let undeclared = env.spec.anisotropic.is_none() && env.spec.axes.is_none();
+        if let (true, Some(k), Some(i)) = (undeclared, first_bad, first_inelastic) {
+            if first_stress_bad == Some(k) && i <= k {
+                let mut res = ProbeResult::skipped(
+                    "frame",
+                    format!(
+                        "the elastic response rotates with the frame, but from increment {k}, after the state changed \
+                         (increment {i}), the stress does not (rotated by {angle} rad, mismatch up to {:.2e} at \
+                         increment {}): an inelastic response that is anisotropic by design (an orthotropic yield \
+                         surface, damage directions fixed in the material) cannot be told from a frame-indifference \
+                         defect of an isotropic law; declare `\"anisotropic\": false` if the routine is meant to be \
+                         isotropic (it then fails here), or `\"anisotropic\": true` with `axes` to rotate its \
+                         material axes",
+                        worst_s.0, worst_s.1
+                    ),
+                );
+                res.increment = Some(k);
+                res.value = Some(worst_s.0.max(worst_t.0));
+                res.tol = Some(tol);
+                return Ok(res);
+            }
+        }
         let mut res = match first_bad {
             None => ProbeResult::new(
                 "frame",
