@@ -359,7 +359,8 @@ impl Report {
     /// routine crashed or failed, else the finding named at the most failing increments (each
     /// increment's own: its first-ranked cause, or `kink-neither-side`,
     /// `non-finite-derivative`, `dtemp`; ties go to the more specific cause), or
-    /// `unexplained` when no increment names one. Only the first-ranked cause counts: the
+    /// `unexplained` when no increment names one or more increments are unexplained than name
+    /// any one finding. Only the first-ranked cause counts: the
     /// general ones (`rank-two`, a rank-one term) also explain most discrepancies a specific
     /// cause explains, and counted at every increment they would outnumber it.
     pub fn finding(&self) -> String {
@@ -387,6 +388,10 @@ impl Report {
                 add(&d.finding, 0);
             } else if let Some(c) = Cause::BY_SPECIFICITY.iter().position(|c| c.name() == d.finding) {
                 add(&d.finding, 1 + c);
+            } else if d.finding == "unexplained" {
+                // Counted as the causes are, last in a tie: a cause named at one increment
+                // does not stand for eleven that nothing explains.
+                add("unexplained", usize::MAX);
             }
         }
         counts.sort_by(|a, b| b.1.cmp(&a.1).then(a.2.cmp(&b.2)));

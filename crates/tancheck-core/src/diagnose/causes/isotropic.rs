@@ -61,11 +61,17 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
         conv.tangent_from_mandel(&mut c);
         c
     };
-    let (fg, fk) = ((g + a) / g, (k + b) / k);
-    let (fg, fk) = (factor(fg), factor(fk));
+    let (rg, rk) = ((g + a) / g, (k + b) / k);
+    let (fg, fk) = (factor(rg), factor(rk));
     let shear_only = (b / k).abs() <= ABSENT;
     let bulk_only = (a / g).abs() <= ABSENT;
-    if !bulk_only {
+    // Where the state changed, the derivative's isotropic parts hold the inelastic
+    // correction: a part of the returned tangent of the other sign than the derivative's (a
+    // factor ≤ 0) is no modulus constant off (a porous plasticity routine with its volumetric
+    // plastic term's sign flipped read `bulk-modulus −82×` at hydrostatic states); the
+    // rank-one trials tell that term.
+    let plausible = |f: f64| !ev.state_changed || f > 0.0;
+    if !bulk_only && plausible(rg) {
         found.push(
             Cause::ShearModulus,
             format!(
@@ -76,7 +82,7 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
             ev.error(&corrected(a, 0.0)),
         );
     }
-    if !shear_only {
+    if !shear_only && plausible(rk) {
         found.push(
             Cause::BulkModulus,
             format!(
@@ -87,7 +93,7 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
             ev.error(&corrected(0.0, b)),
         );
     }
-    if !shear_only && !bulk_only {
+    if !shear_only && !bulk_only && plausible(rg) && plausible(rk) {
         // The same in Lamé form, λ = K − 2μ/3 = (3K − 2μ)/3 and μ: a routine that writes its
         // stiffness as λ 1⊗1 + 2μ I with one of them wrong shows the other at 1.
         let (lambda, lambda_ret) = ((k - g) / 3.0, (k + b - g - a) / 3.0);

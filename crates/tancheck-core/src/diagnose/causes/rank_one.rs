@@ -128,17 +128,33 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 .filter(|w| w.is_finite() && (w - factor).abs() > 0.01 * factor.abs().max(1e-300));
             let (left, right) = (left.max(left_whole), right.max(right_whole));
             let size = s[0] / norm;
+            // The whole part's factor decides when it reads as a missing term or a sign error
+            // (within 0.05 of 0 or of −1: tighter than the net factor's bands, being the
+            // second reading) and the net factor reads as neither: a sign flipped on a
+            // volumetric plastic term beside a deviatoric background read `term-scaled` 2.7
+            // net, −1.00 whole, on a user's porous plasticity routine.
+            let special = |f: f64| f.abs() < 0.05 || (f + 1.0).abs() < 0.25;
+            let whole_reads =
+                whole_factor.filter(|w| !special(factor) && (w.abs() < 0.05 || (w + 1.0).abs() < 0.05));
+            let (factor, reading, whole_factor) = match whole_reads {
+                Some(w) => (
+                    w,
+                    format!(" of the whole part along a⊗b, {} net of the background", factor_text(factor)),
+                    None,
+                ),
+                None => (factor, String::new(), whole_factor),
+            };
             // Why 0.05 and 0.25: a missing term leaves a factor of 0, a sign error one of −1; the
             // bands admit the error the rank-one fit leaves (a sign error in the damage term of a
             // scalar damage routine read −0.76 to −0.87 where the damage grew most in the
             // increment, its elastic reference taken at the start damage), far from any plain
             // scaling: a term scaled by a negative factor is a sign error first.
             let (cause, detail) = if (factor).abs() < 0.05 {
-                (Cause::TermMissing, format!("one term a⊗b of {of} is missing (size {size:.2e} of the norm)"))
+                (Cause::TermMissing, format!("one term a⊗b of {of} is missing (factor {factor:.3}{reading}; size {size:.2e} of the norm)"))
             } else if (factor + 1.0).abs() < 0.25 {
                 (
                     Cause::TermSign,
-                    format!("one term a⊗b of {of} has the wrong sign (factor {factor:.3}, size {size:.2e})"),
+                    format!("one term a⊗b of {of} has the wrong sign (factor {factor:.3}{reading}; size {size:.2e})"),
                 )
             } else if factor.is_finite() {
                 (

@@ -79,3 +79,46 @@ fn a_flipped_damage_term_is_a_sign_error_beside_a_start_damage_reference() {
     assert!(t.explains, "{t:?}");
     assert!(!hs.iter().any(|h| h.cause == Cause::TermScaled), "{hs:#?}");
 }
+
+/// A porous plasticity return at a hydrostatic state: the consistent tangent
+/// 2Gθ P_dev + (K − c) 1⊗1, its inelastic part a deviatoric background 2G(θ − 1) P_dev beside
+/// the volumetric term −c 1⊗1 (the structure of a pressure-dependent return with volumetric
+/// flow, e.g. a Gurson-type one, from memory; the numbers invented), returned with that
+/// term's sign flipped. Net of the background the factor reads −1.73; of the whole part along
+/// 1⊗1 it is −1: a sign error. The volumetric parts are of opposite signs (factor −11), no
+/// bulk modulus off. Before: `bulk-modulus` −11×, then `term-scaled` −1.73. In an elastic
+/// increment a bulk part of the other sign is still told as the bulk modulus's factor.
+#[test]
+fn a_flipped_volumetric_term_beside_a_deviatoric_background_is_a_sign_error() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let (g, theta, k, c) = (80000.0, 0.7, 50000.0, 60000.0);
+    let one = [1.0, 1.0, 1.0, 0.0, 0.0, 0.0];
+    let stiffness = |dev: f64, vol: f64| {
+        let mut m = vec![0.0; 36];
+        for j in 0..6 {
+            for i in 0..6 {
+                let pdev = if i == j { 1.0 } else { 0.0 } - one[i] * one[j] / 3.0;
+                m[i + 6 * j] = dev * pdev + vol * one[i] * one[j];
+            }
+        }
+        conv.tangent_from_mandel(&mut m);
+        m
+    };
+    let good = stiffness(2.0 * g * theta, k - c);
+    let bad = stiffness(2.0 * g * theta, k + c);
+    let elastic = stiffness(2.0 * g, k);
+    let z = vec![0.0; 6];
+    let mut e = ev(&conv, &bad, &good, &z);
+    e.elastic = Some(&elastic);
+    let hs = rank(&e);
+    assert_eq!(hs[0].cause, Cause::TermSign, "{hs:#?}");
+    assert!(hs[0].explains && hs[0].detail.contains("whole part"), "{hs:#?}");
+    assert!(!hs.iter().any(|h| h.cause == Cause::BulkModulus), "{hs:#?}");
+    // The same parts in an elastic increment: the bulk modulus's factor, whatever its sign.
+    let (good, bad) = (stiffness(2.0 * g, k), stiffness(2.0 * g, -k));
+    let mut e = ev(&conv, &bad, &good, &z);
+    e.state_changed = false;
+    let hs = rank(&e);
+    let b = hs.iter().find(|h| h.cause == Cause::BulkModulus).unwrap_or_else(|| panic!("{hs:#?}"));
+    assert!(b.explains && b.detail.contains("-1.0000×"), "{b:?}");
+}
