@@ -191,3 +191,43 @@ fn a_twin_unsafe_in_the_temperature_only_is_blamed_not_the_routine() {
         }
     }
 }
+
+fn cohesive() -> &'static Path {
+    build_examples("kink_cohesive", &["c/cohesive.c"])
+}
+
+// A kink in one column beside a tangent wrong in another: the bundled cohesive law slipped at
+// zero opening (the normal column has a kink there, contact against opening; the slip
+// columns do not) into damage growth. Its secant variant is wrong in the slip columns: that
+// is `secant`, found against the one-sided derivatives, not `kink-neither-side` with no cause
+// tried (a user's secant cohesive routine read so, found by a user-style sweep). The correct
+// routine passes. Properties: K = 1e5, N = 30, S = 40, G_Ic = 0.2, G_IIc = 0.8, η = 2 (made
+// up; onset in pure slip at S/K = 4e-4).
+#[test]
+fn a_tangent_wrong_beside_a_kink_in_another_column_gets_its_cause() {
+    let d = scratch("kink-cohesive");
+    let manifest = |symbol: &str| {
+        write(
+            &d,
+            &format!("{symbol}.json"),
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "cohesive-3d", "states": 2,
+                   "properties": [1e5, 30, 40, 0.2, 0.8, 2] }},
+  "path": {{ "increments": [ {{"dstrain": [0, 3e-4, 0, 0, 0, 0]}}, {{"dstrain": [0, 3e-4, 0, 0, 0, 0]}},
+                             {{"dstrain": [0, 3e-4, 0, 0, 0, 0]}}, {{"dstrain": [0, -4e-4, 0, 0, 0, 0]}} ] }} }}"#,
+                cohesive().display()
+            ),
+        )
+    };
+    let (code, v, t) = check(&manifest("c_cohesive_secant"), &[]);
+    assert_eq!(code, Some(1), "{t}");
+    let failing: Vec<&Value> =
+        v["increments"].as_array().unwrap().iter().filter(|i| i["diagnosis"]["pass"] == false).collect();
+    assert!(!failing.is_empty(), "{t}");
+    for inc in &failing {
+        assert_eq!(inc["diagnosis"]["finding"], "secant", "{t}");
+    }
+    assert_eq!(v["finding"], "secant", "{t}");
+    let (code, _, t) = check(&manifest("c_cohesive"), &[]);
+    assert_eq!(code, Some(0), "{t}");
+}

@@ -257,3 +257,52 @@ fn the_finding_is_unexplained_where_most_failing_increments_are() {
     // None named: unexplained, as before.
     assert_eq!(relabel(0).finding(), "unexplained");
 }
+
+// Where several causes explain an increment, it names first the one the most other failing
+// increments name first (a continuum tangent read `start-temperature` at the increments that
+// only heat, and `isotropic-moduli` at one hydrostatic increment of a porous plasticity
+// routine, found by user-style sweeps). An increment that cause does not explain keeps its
+// own. Here a real report of a continuum tangent, one increment given a bulk-modulus cause
+// ranked first that explains as well, another one that the continuum tangent does not.
+#[test]
+fn an_increment_names_first_the_cause_the_path_agrees_on_where_it_explains_too() {
+    use tancheck::core::diagnose::{Cause, Hypothesis};
+    use tancheck::core::path::Shape;
+    let mut m = reference("j2-continuum", PointKind::Solid3d).unwrap();
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    let r = run(&mut m, &WORKED, &path, &Settings::default());
+    let failing: Vec<usize> = (0..r.increments.len()).filter(|&k| !r.increments[k].passed()).collect();
+    assert!(failing.len() >= 4, "{}", summary(&r));
+    let mut inc = r.increments.clone();
+    let bulk = Hypothesis {
+        cause: Cause::BulkModulus,
+        detail: "the volumetric part is 0.9× the derivative's".into(),
+        error_left: 1e-12,
+        explains: true,
+    };
+    for (k, continuum_explains) in [(failing[1], true), (failing[2], false)] {
+        let d = inc[k].diagnosis.as_mut().unwrap();
+        assert_eq!(d.finding, "continuum-tangent");
+        d.causes
+            .iter_mut()
+            .filter(|h| h.cause == Cause::ContinuumTangent)
+            .for_each(|h| h.explains = continuum_explains);
+        d.causes.insert(0, bulk.clone());
+        d.finding = "bulk-modulus".into();
+    }
+    tancheck::core::report::agree::agree_on_causes(&mut inc);
+    let d = inc[failing[1]].diagnosis.as_ref().unwrap();
+    assert_eq!(d.finding, "continuum-tangent", "{}", d.reason);
+    assert_eq!(d.causes[0].cause, Cause::ContinuumTangent);
+    assert!(
+        d.reason.contains("explains") && d.reason.contains("bulk-modulus was ranked first"),
+        "{}",
+        d.reason
+    );
+    let d = inc[failing[2]].diagnosis.as_ref().unwrap();
+    assert_eq!(d.finding, "bulk-modulus", "{}", d.reason);
+    // The others are untouched.
+    for &k in &failing[3..] {
+        assert_eq!(inc[k], r.increments[k]);
+    }
+}

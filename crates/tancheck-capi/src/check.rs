@@ -73,6 +73,11 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
             tancheck_core::report::Keep::Failures,
             &mut |_| {},
         )
+        .map(|mut r| {
+            // As the command line: the cause the path agrees on named first where it explains.
+            tancheck_core::report::agree::agree_on_causes(&mut r.increments);
+            r
+        })
         .map_err(|e| Failure::invalid(e.to_string()))
     };
     let mut report = run(&mut routine, &plan.settings)?;

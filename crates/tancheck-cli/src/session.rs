@@ -255,7 +255,11 @@ fn check_loaded(
     })
     .map_err(anyhow::Error::msg);
     crate::survive::checking(false);
-    report
+    // Where several causes explain an increment, the one the path agrees on is named first.
+    report.map(|mut r| {
+        tancheck_core::report::agree::agree_on_causes(&mut r.increments);
+        r
+    })
 }
 
 /// Print the readable report and/or write the JSON one (through [`reporters`]).

@@ -33,7 +33,7 @@
 //!    were tried ([`Decision::needs_causes`] asks for them).
 
 use super::causes::{Cause, Hypothesis};
-use super::kink::{Kink, Side};
+use super::kink::{Kink, KinkColumn, Side};
 use super::study::{self, Behaviour, StepStudy};
 use super::temp_kink::TempKink;
 
@@ -394,7 +394,7 @@ fn decide_tangent(o: &Observed) -> Decision {
                 "the point sits on a kink; every column of the returned tangent equals one of its one-sided derivatives: {}",
                 k.sides
             );
-        } else {
+        } else if k.columns.iter().any(|c| c.matches == Side::Neither && c.detected) {
             let bad: Vec<&str> = k
                 .columns
                 .iter()
@@ -415,9 +415,35 @@ fn decide_tangent(o: &Observed) -> Decision {
             );
             d.finding = "kink-neither-side".into();
             return with_dtemp(o, d);
+        } else {
+            // The columns that match neither side have no kink of their own (their one-sided
+            // derivatives agree): the tangent is wrong there whatever the kink in the other
+            // columns, and the causes are tried against the one-sided derivatives column by
+            // column. A secant cohesive tangent at zero opening read `kink-neither-side` with
+            // no cause, where the kink was in the normal column only (a user-style sweep).
+            let (kinked, bad): (Vec<_>, Vec<_>) = k
+                .columns
+                .iter()
+                .zip(k.sides.split(", "))
+                .filter(|(c, _)| c.detected || c.matches == Side::Neither)
+                .partition(|(c, _)| c.detected);
+            let names = |v: &[(&KinkColumn, &str)]| {
+                v.iter().map(|(_, s)| s.split(' ').next().unwrap_or("")).collect::<Vec<_>>().join(", ")
+            };
+            d.reason = format!(
+                "the point sits on a kink in column{} {} (each matching a side), but column{} {} differ{} from \
+                 the derivative, which has no kink there",
+                if kinked.len() == 1 { "" } else { "s" },
+                names(&kinked),
+                if bad.len() == 1 { "" } else { "s" },
+                names(&bad),
+                if bad.len() == 1 { "s" } else { "" }
+            );
         }
-        d.finding = "none".into();
-        return with_dtemp(o, d);
+        if d.pass {
+            d.finding = "none".into();
+            return with_dtemp(o, d);
+        }
     }
     // A branch boundary within the default step, not at the point: below it, the one-sided
     // derivatives agree with each other and with the returned tangent, column by column.

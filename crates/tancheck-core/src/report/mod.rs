@@ -7,6 +7,7 @@ use crate::diagnose::Diagnosis;
 use crate::schemes::Scheme;
 use crate::settings::Settings;
 
+pub mod agree;
 pub mod document;
 pub mod gave_way;
 pub mod record;

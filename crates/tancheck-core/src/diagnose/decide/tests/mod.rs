@@ -3,6 +3,7 @@
 
 use super::*;
 
+mod kink_columns;
 mod twin_dtemp;
 mod twin_tangent;
 use crate::diagnose::causes::Cause;
@@ -534,6 +535,7 @@ fn rows() -> Vec<Row> {
     }
     rows.extend(twin_dtemp::rows());
     rows.extend(twin_tangent::rows());
+    rows.extend(kink_columns::rows());
     rows
 }
 

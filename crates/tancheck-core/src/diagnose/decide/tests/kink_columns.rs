@@ -1,0 +1,28 @@
+//! Decision-table rows of a kink in some columns beside a tangent wrong in others.
+
+use super::*;
+
+pub(super) fn rows() -> Vec<Row> {
+    // A kink in the 11 column only, which the returned column matches (forward), and a 12
+    // column that matches neither side where the two sides agree (no kink there; a secant
+    // cohesive tangent at zero opening): the tangent is wrong in the 12 column, and the
+    // causes are tried (against the sides, column by column). It read `kink-neither-side`
+    // with no cause tried (a user-style sweep).
+    let mut wrong_elsewhere = vec![column(Side::Both, false, 1e-9, 1e-9); 6];
+    wrong_elsewhere[0] = column(Side::Forward, true, 1e-9, 0.5);
+    wrong_elsewhere[5] = column(Side::Neither, false, 7.25, 7.25);
+    vec![Row {
+        what: "a kink in one column, the tangent wrong in another without a kink",
+        observed: Observed {
+            kink: Some(kink(wrong_elsewhere, Side::Neither)),
+            studies: plateau(7.25),
+            complex: Some((7.25, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    }]
+}

@@ -1,0 +1,80 @@
+//! One explanation along the path. The causes of a failing increment are ranked on that
+//! increment's evidence alone; where several explain it, the first may differ from one
+//! increment to the next although one flaw is behind them all (a continuum tangent named at
+//! every increment but those that only heat, where the tangent at the start temperature
+//! explains as well; a continuum tangent behind a bulk modulus at a hydrostatic state of a
+//! porous plasticity routine). Such an increment names first the cause the most other
+//! failing increments name first, where that cause explains it too, and says so.
+
+use super::IncrementResult;
+use crate::diagnose::Cause;
+
+/// Put first, at each failing increment it explains, the cause the path agrees on: the one
+/// that explains the most failing increments (at least two; ties to the one named first at
+/// more, then to the more specific), a cause that names what the routine returned or which
+/// modulus is off before one that only describes the discrepancy's shape (a single entry, a
+/// row, a column, a term of the derivative). Those that fit nearly any discrepancy never lead
+/// (`rank-one-term`, `rank-two`, and `uniform-scale`, which is every wrong tangent of a
+/// one-component point): counted, they would outnumber every specific cause.
+pub fn agree_on_causes(increments: &mut [IncrementResult]) {
+    let cause_of = |finding: &str| Cause::BY_SPECIFICITY.iter().copied().find(|c| c.name() == finding);
+    let rank = |c: Cause| Cause::BY_SPECIFICITY.iter().position(|&x| x == c).unwrap_or(usize::MAX);
+    // Per cause: the failing increments it explains, and those that name it first.
+    let mut counts: Vec<(Cause, usize, usize)> = Vec::new();
+    for inc in increments.iter().filter(|i| !i.passed()) {
+        let Some(d) = inc.diagnosis.as_ref() else { continue };
+        let Some(first) = cause_of(&d.finding) else { continue };
+        let mut seen: Vec<Cause> = Vec::new();
+        for h in d.causes.iter().filter(|h| h.explains) {
+            if seen.contains(&h.cause) {
+                continue;
+            }
+            seen.push(h.cause);
+            let named = usize::from(first == h.cause);
+            match counts.iter_mut().find(|(c, _, _)| *c == h.cause) {
+                Some((_, e, n)) => {
+                    *e += 1;
+                    *n += named;
+                }
+                None => counts.push((h.cause, 1, named)),
+            }
+        }
+    }
+    let shape = |c: Cause| {
+        matches!(
+            c,
+            Cause::SingleEntry
+                | Cause::OneColumn
+                | Cause::OneRow
+                | Cause::CouplingMissing
+                | Cause::TermMissing
+                | Cause::TermSign
+                | Cause::TermScaled
+        )
+    };
+    counts.retain(|(c, e, _)| {
+        *e >= 2 && !matches!(c, Cause::RankOneTerm | Cause::RankTwo | Cause::UniformScale)
+    });
+    counts.sort_by(|a, b| {
+        shape(a.0).cmp(&shape(b.0)).then(b.1.cmp(&a.1)).then(b.2.cmp(&a.2)).then(rank(a.0).cmp(&rank(b.0)))
+    });
+    let Some(&(lead, explained, _)) = counts.first() else { return };
+    for inc in increments.iter_mut() {
+        if inc.passed() {
+            continue;
+        }
+        let Some(d) = inc.diagnosis.as_mut() else { continue };
+        let Some(own) = cause_of(&d.finding).filter(|c| *c != lead) else { continue };
+        let Some(at) = d.causes.iter().position(|h| h.cause == lead && h.explains) else { continue };
+        let h = d.causes.remove(at);
+        d.causes.insert(0, h);
+        d.finding = lead.name().into();
+        d.reason = format!(
+            "{}; {} is named first as the cause the path agrees on (it explains {explained} failing increments): it \
+             explains this one too, where {} was ranked first on this increment alone",
+            d.reason,
+            lead.name(),
+            own.name()
+        );
+    }
+}
