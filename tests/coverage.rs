@@ -177,3 +177,47 @@ fn one_time_increment_is_flagged_where_the_rate_first_enters() {
     let r = jc([1e-6, 2e-6, 5e-7, 1e-6]);
     assert!(!r.coverage.iter().any(|c| c.contains("same time")), "{:?}", r.coverage);
 }
+
+/// The thermal reference model, failing with a status from increment `from` on.
+struct FailsFrom(tancheck::core::ModelRoutine<tancheck::models::AnyModel>, i32);
+
+impl Routine for FailsFrom {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        if input.increment >= self.1 {
+            output.outcome.status = 2;
+            return Err(tancheck::core::Fault::Status {
+                status: 2,
+                message: "cannot compute this increment".into(),
+                largest_fraction: 1.0,
+            });
+        }
+        Ok(())
+    }
+}
+
+// A path that stopped at a fault at its first increment says nothing of ∂σ/∂T: no warning that
+// the routine never returned it (said of a routine that did, whose first call a guard found
+// at fault, found by a user-style sweep). The fault's own coverage line stays.
+#[test]
+fn a_path_stopped_at_a_fault_does_not_say_dtemp_was_never_returned() {
+    let mut path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    for inc in &mut path.increments {
+        inc.dtemp = 25.0;
+    }
+    let mut m = FailsFrom(reference("thermo", PointKind::Solid3d).unwrap(), 1);
+    let info = m.info().clone();
+    let mut caller = Caller::new(&mut m);
+    let props = [210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0];
+    let r =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    assert!(r.coverage.iter().any(|c| c.contains("stopped at a fault")), "{:?}", r.coverage);
+    assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
+}

@@ -151,6 +151,16 @@ fn the_soft_direction_error_fails_every_scheme() {
             };
             assert!(c.norm_error < c.tol && c.worst_entry_error < c.tol, "{c:?}");
             assert!(c.soft_error > 10.0 * c.tol, "{c:?}");
+            // The scheme's summary gives the largest error the increments give, the soft
+            // direction's here, beyond the norm and entry errors (it gave only those two, and a
+            // passing check's lines read 16 times the summary's worst, found by a user-style
+            // sweep).
+            let sum = &r.summary[0];
+            assert!(
+                sum.worst_error >= c.soft_error
+                    && sum.worst_error > sum.worst_entry_error.max(sum.worst_norm_error),
+                "{sum:?}"
+            );
         }
     }
     // The consistent J2 passes with every scheme (the soft measure adds no false alarm).

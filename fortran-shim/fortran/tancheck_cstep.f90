@@ -214,7 +214,7 @@ contains
     real(c_double) :: a
     a = real(x, c_double)
     ! For p = 0 the derivative is 0, also at a = 0 (where p a**(p-1) is 0 times infinity).
-    if (p == 0.0_c_double) then
+    if (abs(p) <= 0.0_c_double) then
       y = cmplx(1.0_c_double, 0.0_c_double, kind=c_double_complex)
     else
       y = cmplx(a**p, p * a**(p - 1.0_c_double) * aimag(x), kind=c_double_complex)

@@ -207,8 +207,14 @@ fn run_path(
         );
     }
     // A path that changes the temperature, and a routine that never returned ∂σ/∂T: nothing
-    // of the temperature coupling was checked, and a coupled solver's tangent lacks it.
-    if !increments.dtemp_checked && !increments.is_empty() && path.increments.iter().any(|i| i.dtemp != 0.0) {
+    // of the temperature coupling was checked, and a coupled solver's tangent lacks it. Not
+    // said of a path that stopped at a fault (a guard finding at the first call said it of a
+    // routine that did return ∂σ/∂T, found by a user-style sweep).
+    if !increments.dtemp_checked
+        && !stopped
+        && !increments.is_empty()
+        && path.increments.iter().any(|i| i.dtemp != 0.0)
+    {
         coverage.push(
             "the path changes the temperature, but the routine never returned ∂σ/∂T (its report's provides \
              never had TC_PROVIDES_DSTRESS_DTEMP, tc_provides_dstress_dtemp in Fortran): the stress's \

@@ -243,6 +243,13 @@ fn open_error(path: &Path, reason: &str) -> LoadError {
              the source or library that defines it when building (`tancheck build` links the \
              Fortran and math run-times itself).{fortran}"
         )
+    } else if reason.contains("File name too long") {
+        // Not a missing dependency: the path itself is past the system's limit.
+        format!(
+            ". The library's path is {} bytes long, more than the system takes (4096 on Linux, a \
+             name within it 255): move the library, or a folder on its way, to a shorter path.",
+            path.as_os_str().len()
+        )
     } else if reason.contains("cannot open shared object file") {
         // The file itself exists (checked before): what is missing is a dependency.
         ". A library it depends on cannot be found: `ldd` on the file lists what is missing; \
@@ -262,6 +269,21 @@ mod tests {
     use super::file_kind::unknown_file_kind;
     use super::symbols::edit_distance;
     use super::*;
+
+    // A path past the system's limit is said so, not taken for a missing dependency (the
+    // loader's words hold "cannot open shared object file" for both; found by a user-style
+    // sweep with a library 4,400 bytes deep).
+    #[test]
+    fn a_path_too_long_is_not_a_missing_dependency() {
+        let long = PathBuf::from(format!("/tmp/{}/libx.so", "d/".repeat(2300)));
+        let e = open_error(&long, "libx.so: cannot open shared object file: File name too long");
+        let LoadError::Open { hint, .. } = e else { panic!("{e:?}") };
+        assert!(hint.contains("shorter path") && !hint.contains("ldd"), "{hint}");
+        let e =
+            open_error(&long, "libgfortran.so.5: cannot open shared object file: No such file or directory");
+        let LoadError::Open { hint, .. } = e else { panic!("{e:?}") };
+        assert!(hint.contains("ldd"), "{hint}");
+    }
 
     fn names(v: &[&str]) -> Vec<String> {
         v.iter().map(|s| s.to_string()).collect()

@@ -94,7 +94,17 @@ struct Shrinker<'a, 'r> {
     stop: Option<ShrinkStop>,
     current: Vec<PathIncrement>,
     report: Report,
+    /// Per slot group (strain components, temperature increment, time increment): the size
+    /// below which halving toward the goal stops, [`FLOOR`] of the original path's largest
+    /// distance from it.
+    floors: [f64; 3],
 }
+
+/// Halving a value toward its goal stops within this share of the original path's largest
+/// distance from the goal in the same slot group: a failure that holds however small the
+/// value (a tangent wrong on one side of zero) is shown at a value that reads as such, not
+/// at 1e-83 (a user-style sweep's shrunk case).
+const FLOOR: f64 = 1e-3;
 
 /// The verdict and the first failing increment's finding, and its index; `None` for a pass.
 fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
@@ -279,8 +289,12 @@ impl Shrinker<'_, '_> {
                     continue;
                 }
                 let mut y = x;
+                let floor = self.floors[k.saturating_sub(5)];
                 for _ in 0..16 {
                     let half = goal + 0.5 * (y - goal);
+                    if (half - goal).abs() < floor {
+                        break;
+                    }
                     if half != y && i < self.current.len() && self.attempt(self.with(i, k, half)) {
                         y = half;
                         changed = true;
@@ -357,6 +371,16 @@ pub fn shrink(
         iterations: 0,
         accepted: 0,
         stop: None,
+        floors: {
+            let widest = |f: &dyn Fn(&PathIncrement) -> f64| {
+                FLOOR * path.increments.iter().map(|i| f(i).abs()).fold(0.0, f64::max)
+            };
+            [
+                widest(&|i| i.dstrain.iter().fold(0.0, |a: f64, x| a.max(x.abs()))),
+                widest(&|i| i.dtemp),
+                widest(&|i| i.dtime - 1.0),
+            ]
+        },
         current: incs,
         report,
     };
@@ -447,6 +471,60 @@ mod tests {
             let m = kept.iter().find(|m| m.0 == scheme && !m.1).map(|m| m.2);
             assert!(m.is_some_and(|m| m >= super::MARGIN), "{scheme:?}: {kept:?} at {:?}", s.path);
         }
+    }
+
+    /// A uniaxial bimodulus bar, σ = E ε in tension and 2E ε in compression (made up), that
+    /// returns E in both: wrong at any compression, however small.
+    struct Bimodulus(crate::routine::RoutineInfo);
+
+    impl crate::routine::Model for Bimodulus {
+        fn info(&self) -> &crate::routine::RoutineInfo {
+            &self.0
+        }
+        fn evaluate<S: crate::scalar::Scalar>(
+            &self,
+            input: &crate::routine::CallInput<'_, S>,
+            out: &mut crate::routine::CallOutput<'_, S>,
+        ) -> Result<(), crate::routine::Fault> {
+            let e = input.props[0];
+            let eps = input.strain[0] + input.dstrain[0];
+            out.stress[0] = if eps.re() < 0.0 { e * eps * S::cst(2.0) } else { e * eps };
+            out.tangent[0] = e;
+            out.dstress_dtemp[0] = S::zero();
+            out.energy[0] = S::zero();
+            out.energy[1] = S::zero();
+            out.outcome.status = 0;
+            out.outcome.branch = i32::from(eps.re() < 0.0);
+            Ok(())
+        }
+    }
+
+    // A failure that holds however small the compression is shrunk to a value that reads as
+    // such, within a thousandth of the path's largest strain increment, not halved on to
+    // 1e-83 (a user-style sweep's shrunk case).
+    #[test]
+    fn a_failure_at_any_small_value_stops_at_a_floor() {
+        use crate::convention::{Convention, PointKind, ShearMeasure};
+        let info = crate::routine::RoutineInfo {
+            name: "bimodulus".into(),
+            convention: Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering),
+            nstate: 0,
+            nprop: 1,
+        };
+        let mut bar = crate::routine::ModelRoutine(Bimodulus(info));
+        let inc = crate::path::PathIncrement::strain([-1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]);
+        let path = crate::path::Path { name: "p".into(), increments: vec![inc; 2] };
+        let settings = crate::settings::Settings::default();
+        let props = [1000.0];
+        let start = crate::driver::PointState::zero(bar.0.info(), 0.0);
+        let mut caller = Caller::new(&mut bar);
+        let report = crate::check::run(&mut caller, &props, start.clone(), &path, &settings).unwrap();
+        assert_eq!(report.verdict, crate::report::Verdict::TangentFailure);
+        let limits = super::ShrinkLimits::default();
+        let s =
+            super::shrink(&mut caller, &props, &start, &path, &report, &settings, limits).unwrap().unwrap();
+        let x = s.path.increments.iter().map(|i| i.dstrain[0]).fold(0.0, f64::min);
+        assert!(x < 0.0 && x.abs() >= 1e-6, "{:?}", s.path);
     }
 
     #[test]

@@ -235,10 +235,14 @@ pub fn run(
     let mut decision = decide::decide(&observed);
     let mut refinement = None;
     if decision.needs_causes {
-        let (hs, rf) = cause_trials(driver, caller, conv, ctx, settings, &observed, &decision, richardson)?;
+        let (hs, rf, symmetry) =
+            cause_trials(driver, caller, conv, ctx, settings, &observed, &decision, richardson)?;
         observed.causes = Some(hs);
         refinement = rf;
         decision = decide::decide(&observed);
+        if let (Some(note), false) = (symmetry, decision.pass) {
+            decision.reason = format!("{}; {note}", decision.reason);
+        }
     }
     // A ∂σ/∂T failure not held against the routine (a kink in the temperature) has no causes.
     let excused = decide::dtemp_excuse(&observed).is_some();
@@ -347,6 +351,10 @@ fn initial_stiffness(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangen
     out.iter().all(|x| x.is_finite()).then_some(out)
 }
 
+/// What the cause trials give: the ranked causes, the refined increments, and a word on
+/// symmetry (see [`causes::symmetry_note`]).
+type Trials = (Vec<Hypothesis>, Option<Refinement>, Option<String>);
+
 /// The cause trials: the cleanest numerical tangent (the one-sided derivatives column by
 /// column at a kink; the complex step when the twin is trusted; else Richardson at a moderate
 /// step, never a tiny-step difference), the elastic tangent, refined increments.
@@ -360,7 +368,7 @@ fn cause_trials(
     observed: &decide::Observed,
     decision: &decide::Decision,
     richardson: Option<Vec<f64>>,
-) -> Result<(Vec<Hypothesis>, Option<Refinement>), Fault> {
+) -> Result<Trials, Fault> {
     let n = conv.ncomp();
     let ef = settings.entry_floor;
     let scale = driver.strain_scale(settings.step_floor);
@@ -487,5 +495,5 @@ fn cause_trials(
         tol: tol.max(1e-9),
         entry_floor: ef,
     };
-    Ok((causes::rank(&ev), Some(rf)))
+    Ok((causes::rank(&ev), Some(rf), causes::symmetry_note(conv, ctx.returned, &num)))
 }

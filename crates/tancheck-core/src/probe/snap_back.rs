@@ -173,9 +173,11 @@ impl SnapBack {
                 )),
             };
         let g_from = if declared.is_some() { "declared" } else { "measured as W·L to full failure" };
+        // A cohesive law's strain is a separation: its work is per unit area.
+        let per = if length.is_some() { "per unit volume" } else { "per unit area" };
         let mut details = vec![
             format!(
-                "damage starts to grow in increment {} after W₀ = {w0:.6e} per unit volume",
+                "damage starts to grow in increment {} after W₀ = {w0:.6e} {per}",
                 walked.onset_increment
             ),
             format!("fracture energy G_f = {g:.6e} ({g_from})"),

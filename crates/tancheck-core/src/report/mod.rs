@@ -228,6 +228,10 @@ pub struct SchemeSummary {
     pub skipped: usize,
     pub worst_norm_error: f64,
     pub worst_entry_error: f64,
+    /// The largest error of the checks as each increment gives it: the largest of the norm,
+    /// entry and soft-direction errors (the soft-direction error can exceed both others).
+    #[serde(default)]
+    pub worst_error: f64,
     pub tol: f64,
     /// Of `failed`, the checks whose ∂σ/∂T differed (their tangent may have agreed: the
     /// norm and entry errors above are the tangent's).

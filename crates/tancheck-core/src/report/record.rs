@@ -251,6 +251,7 @@ impl Collector {
                     skipped: 0,
                     worst_norm_error: 0.0,
                     worst_entry_error: 0.0,
+                    worst_error: 0.0,
                     tol: settings.scheme(scheme).tol,
                     dtemp_failed: 0,
                     dtemp_worst_error: 0.0,
@@ -277,6 +278,7 @@ impl Collector {
                     s.checks += 1;
                     s.worst_norm_error = s.worst_norm_error.max(cmp.norm_error);
                     s.worst_entry_error = s.worst_entry_error.max(cmp.worst_entry_error);
+                    s.worst_error = s.worst_error.max(cmp.error());
                 }
                 CheckOutcome::Skipped { .. } => s.skipped += 1,
                 CheckOutcome::Fault(_) => s.checks += 1,
@@ -375,6 +377,7 @@ impl Collector {
                     s.dtemp_checks += inc.dtemp_checked as usize;
                     s.worst_norm_error = s.worst_norm_error.max(p.norm_error);
                     s.worst_entry_error = s.worst_entry_error.max(p.worst_entry_error);
+                    s.worst_error = s.worst_error.max(p.error);
                     worst = worst.max(p.error);
                 }
                 None => s.skipped += 1,
@@ -426,6 +429,7 @@ impl Collector {
             s.skipped += o.skipped;
             s.worst_norm_error = s.worst_norm_error.max(o.worst_norm_error);
             s.worst_entry_error = s.worst_entry_error.max(o.worst_entry_error);
+            s.worst_error = s.worst_error.max(o.worst_error);
             s.dtemp_failed += o.dtemp_failed;
             s.dtemp_worst_error = s.dtemp_worst_error.max(o.dtemp_worst_error);
             s.dtemp_checks += o.dtemp_checks;

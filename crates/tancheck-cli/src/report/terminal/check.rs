@@ -245,9 +245,16 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         } else {
             ";".into()
         };
+        // The soft-direction error, when it is the largest, said too: the increments' lines
+        // give the largest of the three.
+        let soft = if s.worst_error > s.worst_norm_error.max(s.worst_entry_error) {
+            format!(", along the soft directions {}", sci(s.worst_error))
+        } else {
+            String::new()
+        };
         writeln!(
             out,
-            "   {:<13} {}{aside}{dtemp} worst norm error {}, worst entry error {} (tolerance {})",
+            "   {:<13} {}{aside}{dtemp} worst norm error {}, worst entry error {}{soft} (tolerance {})",
             s.scheme.name(),
             if failed > 0 { p.fail(&count) } else { count },
             sci(s.worst_norm_error),

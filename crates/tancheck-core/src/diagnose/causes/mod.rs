@@ -30,6 +30,51 @@ pub(crate) fn explain_level(tol: f64, original: f64) -> f64 {
     (10.0 * tol).max(1e-3 * original).min(0.1 * original)
 }
 
+/// The relative asymmetry ‖M − Mᵀ‖/‖M‖ of a tangent in Mandel form (routine form in, column-
+/// major n × n), or `None` when it is zero or not finite.
+fn asymmetry(conv: &crate::convention::Convention, t: &[f64]) -> Option<f64> {
+    let n = conv.ncomp();
+    let mut m = t.to_vec();
+    conv.tangent_to_mandel(&mut m);
+    let norm = m.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let skew =
+        (0..n).flat_map(|j| (0..n).map(move |i| (i, j))).map(|(i, j)| (m[i + j * n] - m[j + i * n]).powi(2));
+    let a = skew.sum::<f64>().sqrt() / norm;
+    (norm > 0.0 && a.is_finite()).then_some(a)
+}
+
+/// Why: the asymmetry of a difference tangent is rounding up to about the step's relative
+/// error; below 1e-8 a tangent is symmetric for this purpose, and one of the two must be
+/// unsymmetric by a hundred times the other's asymmetry (and 1e-6) to be said.
+const SYMMETRIC: f64 = 1e-8;
+
+/// A word on symmetry when the returned tangent and the derivative differ in it: a returned
+/// tangent unsymmetric where the derivative is symmetric (a term written into one triangle
+/// only, an entry off in one place), or symmetric where the derivative is not (the unsymmetric
+/// part left out: a symmetrized tangent, a non-associative flow or a recovery term of a
+/// kinematic hardening dropped). The cheapest clue an author can check; `None` otherwise.
+pub fn symmetry_note(
+    conv: &crate::convention::Convention,
+    returned: &[f64],
+    numerical: &[f64],
+) -> Option<String> {
+    let (r, d) = (asymmetry(conv, returned)?, asymmetry(conv, numerical).unwrap_or(0.0));
+    if r > 1e-6 && r > 100.0 * d.max(SYMMETRIC) {
+        Some(format!(
+            "the returned tangent is unsymmetric (‖C − Cᵀ‖/‖C‖ = {r:.2e}, Mandel form) where the derivative is \
+             symmetric ({d:.1e}): a term written into one triangle only, or an entry off on one side?"
+        ))
+    } else if d > 1e-6 && d > 100.0 * r.max(SYMMETRIC) {
+        Some(format!(
+            "the returned tangent is symmetric ({r:.1e}) where the derivative is not (‖C − Cᵀ‖/‖C‖ = {d:.2e}, \
+             Mandel form): the unsymmetric part left out (a symmetrized tangent, a non-associative flow or a \
+             recovery term of kinematic hardening dropped)?"
+        ))
+    } else {
+        None
+    }
+}
+
 /// Test every applicable hypothesis and rank them.
 pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     let original = ev.error(ev.returned);
