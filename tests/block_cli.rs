@@ -299,3 +299,42 @@ fn a_block_call_that_never_returns_is_named_with_its_block() {
     assert!(all.contains("during a block call of increment 1 (a block of 7 points)"), "{all}");
     assert!(!all.contains("between two calls"), "{all}");
 }
+
+// A rate-dependent routine without a threshold (a Maxwell branch, relaxation time 1e-4 s, on a
+// path of 1e-3 s increments): its stiffness for a small increment depends on the time
+// increment, and the elastic response a solver sizes its time increment from is the
+// instantaneous one (Δt → 0). The correct routine passes (it failed at 9.6e-4: the small
+// increment's time increment let the branch relax; a correct viscoelastic routine failed so,
+// found by a user-style sweep); one whose elastic response takes the long-time modulus fails.
+#[test]
+fn the_elastic_response_of_a_rate_dependent_routine_is_the_instantaneous_one() {
+    let lib = build_once("maxwell_block_cli", &["fortran-shim/examples/c/maxwell_block.c"]);
+    let d = scratch("block-cli-maxwell");
+    let write = |symbol: &str| {
+        let p = d.join(format!("{symbol}.json"));
+        std::fs::write(
+            &p,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d",
+                   "states": 6, "properties": [1000, 300, 200, 1e-4] }},
+  "path": {{ "shape": "tension-shear", "peak": 0.01, "steps": 4, "back": 2, "dtime": 1e-3 }},
+  "block": {{ "density": 1e-9, "characteristic_length": 1.0 }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        p
+    };
+    let good = write("c_maxwell_block");
+    let (code, out, err) = tancheck(&["check".as_ref(), good.as_os_str()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let relaxed = write("c_maxwell_block_relaxed");
+    let (code, out, err) =
+        tancheck(&["check".as_ref(), relaxed.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    assert_eq!(code, 1, "{out}{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    schema_valid(&v);
+    let f = &v["findings"][0];
+    assert_eq!(f["finding"], "elastic-response-mismatch", "{v}");
+    assert!(f["what"].as_str().unwrap().contains("toward Δt → 0"), "{f}");
+}

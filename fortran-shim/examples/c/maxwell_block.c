@@ -1,0 +1,95 @@
+/*
+ * maxwell_block.c -- a block routine of linear viscoelasticity for explicit solvers: a bulk
+ * spring, an equilibrium shear spring and one Maxwell branch (a standard linear solid in
+ * shear; the exact exponential update of a Maxwell element over an increment of constant
+ * strain rate, as in Simo & Hughes 1998, Computational Inelasticity, ch. 10, from memory).
+ *
+ *   c_maxwell_block           correct
+ *   c_maxwell_block_relaxed   its elastic response with the equilibrium shear modulus G_inf
+ *                             alone (the long-time one): a solver's wave speed too low
+ *
+ * Properties [K, G_inf, G_1, tau]: bulk modulus, equilibrium and branch shear moduli,
+ * relaxation time. State [h (ncomp)]: the branch's deviatoric stress (shear entries as
+ * stress). Strain in Voigt form with engineering shear. With a = exp(-dt/tau) and the
+ * deviatoric strain increment de (tensor components),
+ *   h = a h_n + 2 G_1 (tau/dt)(1 - a) de,   stress = K tr(eps) 1 + 2 G_inf e + h.
+ * The stiffness depends on the time increment: 2 (G_inf + G_1 (tau/dt)(1 - a)) in shear,
+ * the instantaneous (glassy) G_inf + G_1 as dt -> 0. The elastic response
+ * (TC_BLOCK_ELASTIC_RESPONSE) is stress_start + C_glassy dstrain and updates nothing.
+ * Energies per unit mass: internal by the trapezoid rule; dissipated by the trapezoid rule in
+ * time of the branch's dissipation rate h:h / (2 G_1 tau). No point is ever deleted.
+ * The numbers of the demo are made up.
+ *
+ * Build: cc -I fortran-shim/include -c maxwell_block.c               exports c_maxwell_block
+ *        cc -I fortran-shim/include -DTC_COMPLEX -c maxwell_block.c  exports the _cx twin
+ */
+
+#include "tancheck_cstep.h"
+#include "tancheck_block.h"
+
+/* h:h of a deviatoric stress in Voigt form (shear entries counted twice). */
+static tc_real maxwell_dot(const tc_real *h, int n)
+{
+    tc_real s = tc_cst(0.0);
+    for (int i = 0; i < n; ++i) s += (i < 3 ? 1.0 : 2.0) * h[i] * h[i];
+    return s;
+}
+
+static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, const tc_real *strain,
+                             const tc_real *strain_increment, const tc_real *stress_start,
+                             const tc_real *state_start, const tc_specific_energy *energy_start,
+                             const tc_point_conditions *conditions, tc_real *stress, tc_real *state,
+                             tc_specific_energy *energy, int32_t *deleted, int relaxed_response)
+{
+    const int n = block->ncomp, ns = block->nstate, np = block->npoints;
+    const tc_real k = properties[0], g_inf = properties[1], g_1 = properties[2], tau = properties[3];
+    const double dt = block->time_increment;
+    for (int p = 0; p < np; ++p) {
+        const tc_real *e0 = strain + p * n, *de = strain_increment + p * n;
+        const tc_real *s0 = stress_start + p * n, *h0 = state_start + p * ns;
+        tc_real *s = stress + p * n, *h = state + p * ns;
+        const double rho = conditions[p].density;
+        deleted[p] = 0;
+        const tc_real dtr = de[0] + de[1] + de[2];
+        if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) {
+            const tc_real g = relaxed_response ? g_inf : g_inf + g_1;
+            for (int i = 0; i < n; ++i) {
+                s[i] = s0[i] + (i < 3 ? k * dtr + 2.0 * g * (de[i] - dtr / 3.0) : g * de[i]);
+            }
+            for (int j = 0; j < ns; ++j) h[j] = h0[j];
+            energy[p] = energy_start[p];
+            continue;
+        }
+        /* a = exp(-dt/tau); the branch's effective modulus factor (tau/dt)(1 - a), 1 at dt = 0. */
+        const tc_real a = dt > 0.0 ? tc_exp(-dt / tau) : tc_cst(1.0);
+        const tc_real f = dt > 0.0 ? (tau / dt) * (1.0 - a) : tc_cst(1.0);
+        const tc_real tr = e0[0] + e0[1] + e0[2] + dtr;
+        for (int i = 0; i < n; ++i) {
+            /* tensor components of the deviatoric strain and of its increment */
+            const tc_real e = i < 3 ? e0[i] + de[i] - tr / 3.0 : 0.5 * (e0[i] + de[i]);
+            const tc_real d = i < 3 ? de[i] - dtr / 3.0 : 0.5 * de[i];
+            h[i] = a * h0[i] + 2.0 * g_1 * f * d;
+            s[i] = (i < 3 ? k * tr : tc_cst(0.0)) + 2.0 * g_inf * e + h[i];
+        }
+        for (int j = n; j < ns; ++j) h[j] = h0[j];
+        tc_real work = tc_cst(0.0);
+        for (int i = 0; i < n; ++i) work += 0.5 * (s0[i] + s[i]) * de[i];
+        energy[p].internal = energy_start[p].internal + work / rho;
+        energy[p].dissipated = energy_start[p].dissipated +
+                               0.5 * dt * (maxwell_dot(h0, n) + maxwell_dot(h, n)) / (2.0 * g_1 * tau) / rho;
+    }
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block)
+{
+    (void)report;
+    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
+                     conditions, stress, state, energy, deleted, 0);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_relaxed)
+{
+    (void)report;
+    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
+                     conditions, stress, state, energy, deleted, 1);
+}
