@@ -3,11 +3,12 @@
 //! causes, and the objectivity probes.
 //!
 //! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
-//! [`check`] (with `cutback`) → [`probe`].
+//! [`check`] (with `cutback` and `kink`) → [`probe`].
 
 pub mod causes;
 pub mod check;
 mod cutback;
+mod kink;
 pub mod mat3;
 pub mod measure;
 pub mod numeric;

@@ -193,6 +193,10 @@ pub enum Difference {
     Central(f64),
     /// Complex step with the twin, step h.
     ComplexStep(f64),
+    /// One-sided second-order differences of real calls, (−3q₀ + 4q(h) − q(2h))/2h along the
+    /// perturbation times `sign` (1 forward, −1 backward), from the stress at F₁ itself (in
+    /// the declared measure): the derivative on one side of a kink.
+    OneSided { step: f64, sign: f64, stress_at_f1: [f64; 6] },
 }
 
 /// The direction of F₁ perturbed for column `b` of measure `m`.
@@ -288,6 +292,21 @@ pub fn tangent(
                 let mut d = [0.0; 9];
                 for k in 0..9 {
                     d[k] = (qp[k] - qm[k]) / (2.0 * h);
+                }
+                d
+            }
+            Difference::OneSided { step: h, sign, stress_at_f1 } => {
+                let h = h * sign;
+                let q0 = quantity(m, f1, &stress.to_kirchhoff(&stress_at_f1, mat3::det(f1)));
+                let f_1 = mat3::add(f1, &mat3::scale(&dir, h));
+                let f_2 = mat3::add(f1, &mat3::scale(&dir, 2.0 * h));
+                let s1 = ws.call_real(r, p, &f_1, &mut outcome)?;
+                let s2 = ws.call_real(r, p, &f_2, &mut outcome)?;
+                let q1 = quantity(m, &f_1, &stress.to_kirchhoff(&s1, mat3::det(&f_1)));
+                let q2 = quantity(m, &f_2, &stress.to_kirchhoff(&s2, mat3::det(&f_2)));
+                let mut d = [0.0; 9];
+                for k in 0..9 {
+                    d[k] = (-3.0 * q0[k] + 4.0 * q1[k] - q2[k]) / (2.0 * h);
                 }
                 d
             }
