@@ -302,6 +302,11 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     let (code, out) = tancheck(&["check", &unwritten, "-q"]);
     assert_eq!(code, 3, "{out}");
     assert!(out.contains("left tangent[20] unwritten"), "{out}");
+    // The probes of a routine whose call fails are a fault too (exit 3, as the README says of
+    // probes; it exited 1, found by a user-style sweep).
+    let (code, out) = tancheck(&["probe", &unwritten, "-q"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(out.contains("FAULT") && out.contains("exit 3"), "{out}");
     // A write one past the end of the state: the zone after it (the heap was corrupted, and a
     // PASS printed before the process died while writing the report).
     let overrun = write(&dir, "overrun.json", &m("c_nh_state_overrun_at_2"));

@@ -115,3 +115,18 @@ fn a_tangent_on_one_side_of_a_kink_passes_and_the_mean_of_the_sides_fails() {
     assert_eq!(rep.finding.as_deref(), Some("kink-neither-side"), "{rep:#?}");
     assert_eq!(rep.twin_not_safe, None, "{rep:#?}");
 }
+
+// A path on which J = det F stays 1 (simple shear, the default path) cannot show a tangent
+// off by a factor of J: the report says so (a tangent without its 1/J passed there in
+// silence, found by a user-style sweep); a path that changes the volume does not.
+#[test]
+fn an_isochoric_path_says_it_cannot_show_a_factor_of_j() {
+    let rep = check(AtSwitch::Compression);
+    assert!(rep.notes.iter().any(|n| n.contains("J = det F = 1")), "{:?}", rep.notes);
+    let mut r = FiniteModelRoutine(NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::DsDe));
+    let path =
+        FinitePathSpec::UniaxialStretch { stretch: 1.3, increments: 3, rotation: None }.build().unwrap();
+    let rep = run(&mut r, &PROPS, &[], &path, FiniteSettings::default());
+    assert_eq!(rep.verdict, Verdict::Pass, "{rep:#?}");
+    assert!(!rep.notes.iter().any(|n| n.contains("J = det F")), "{:?}", rep.notes);
+}

@@ -182,6 +182,8 @@ pub fn write_probes(
     let failed = report.probes.iter().filter(|r| !r.passed).count();
     let word = if failed == 0 {
         format!("{} (exit 0)", p.pass("PASS"))
+    } else if report.exit_code == 3 {
+        format!("{} — a routine call failed ({failed} probes; exit 3)", p.fail("FAULT"))
     } else {
         format!("{} ({failed} probes; exit 1)", p.fail("FAIL"))
     };

@@ -116,17 +116,30 @@ pub fn run(
     settings: FiniteSettings,
 ) -> FiniteReport {
     let (report, asked_smaller) = run_path(r, properties, state0, path, settings);
-    if !asked_smaller {
-        return report;
-    }
-    match super::cutback::cut(r, properties, state0, path) {
-        Some(cut) => {
-            let (mut again, _) = run_path(r, properties, state0, &cut.path, settings);
-            again.notes.push(cut.note(path.gradients.len() - 1));
-            again
+    let mut report = if !asked_smaller {
+        report
+    } else {
+        match super::cutback::cut(r, properties, state0, path) {
+            Some(cut) => {
+                let (mut again, _) = run_path(r, properties, state0, &cut.path, settings);
+                again.notes.push(cut.note(path.gradients.len() - 1));
+                again
+            }
+            None => report,
         }
-        None => report,
+    };
+    // A path on which the volume never changes (J = 1: simple shear, the default) cannot show a
+    // confusion of J: a missing or extra 1/J, Cauchy stress for Kirchhoff (such a tangent passed
+    // on the default path, found by a user-style sweep).
+    if path.gradients.len() > 1 && path.gradients.iter().all(|f| (mat3::det(f) - 1.0).abs() <= 1e-12) {
+        report.notes.push(
+            "J = det F = 1 at every increment of the path (an isochoric path such as simple shear): a tangent \
+             or stress off by a factor of J (a missing or extra 1/J, Cauchy stress for Kirchhoff) agrees here; \
+             check a path that changes the volume too (uniaxial-stretch, biaxial)"
+                .into(),
+        );
     }
+    report
 }
 
 /// [`run`] on `path` as given, and whether it stopped at a base call that asked for a smaller

@@ -49,6 +49,10 @@ pub struct FiniteProbeResult {
     pub passed: bool,
     pub summary: String,
     pub details: Vec<String>,
+    /// A routine call failed (a crash the guard caught, a memory guard's finding, a failure
+    /// status): the run exits 3, as a point probe's fault does.
+    #[serde(default, skip_serializing_if = "std::ops::Not::not")]
+    pub faulted: bool,
 }
 
 /// The report of the finite-strain probes of one routine.
@@ -57,7 +61,8 @@ pub struct FiniteProbeReport {
     pub routine: String,
     /// Every probe passed.
     pub passed: bool,
-    /// The exit code (0 when every probe passed, else 1, as `tancheck probe` exits).
+    /// The exit code (0 when every probe passed, 3 when a routine call failed, else 1, as
+    /// `tancheck probe` exits).
     #[serde(default)]
     pub exit_code: i32,
     pub probes: Vec<FiniteProbeResult>,
@@ -67,10 +72,17 @@ pub struct FiniteProbeReport {
 impl FiniteProbeReport {
     pub fn new(routine: &str, probes: Vec<FiniteProbeResult>) -> FiniteProbeReport {
         let passed = probes.iter().all(|p| p.passed);
+        let faulted = probes.iter().any(|p| p.faulted);
         FiniteProbeReport {
             routine: routine.to_string(),
             passed,
-            exit_code: if passed { 0 } else { 1 },
+            exit_code: if faulted {
+                3
+            } else if passed {
+                0
+            } else {
+                1
+            },
             probes,
             cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
         }
@@ -146,6 +158,7 @@ pub fn run_all(
                 passed: false,
                 summary: format!("the routine failed along the path: {e}"),
                 details: vec![],
+                faulted: true,
             }]
         }
     };
@@ -184,6 +197,7 @@ fn state_part(state: &[f64], error: f64) -> String {
 struct Findings {
     worst: f64,
     details: Vec<String>,
+    faulted: bool,
 }
 
 impl Findings {
@@ -191,6 +205,7 @@ impl Findings {
     fn failed(&mut self, detail: String) {
         self.details.push(detail);
         self.worst = f64::INFINITY;
+        self.faulted = true;
     }
 
     /// A relative difference `m`, described by `detail` when it is over the tolerance.
@@ -202,7 +217,7 @@ impl Findings {
     }
 
     fn verdict(self, name: &str, what: &str) -> FiniteProbeResult {
-        let Findings { worst, details } = self;
+        let Findings { worst, details, faulted } = self;
         let passed = worst <= ROTATION_TOLERANCE;
         FiniteProbeResult {
             name: name.into(),
@@ -221,6 +236,7 @@ impl Findings {
                 }
             },
             details,
+            faulted,
         }
     }
 }
@@ -358,6 +374,7 @@ fn simple_shear(
                 passed: false,
                 summary: format!("the routine failed in simple shear: {e}"),
                 details: vec![],
+                faulted: true,
             }
         }
     };
@@ -402,5 +419,6 @@ fn simple_shear(
             format!("unexpected: {what} (expected {:?})", options.shear_response)
         },
         details,
+        faulted: false,
     }
 }
