@@ -91,6 +91,13 @@ fn check_and_probe(lang: &str) {
     assert!(page.contains("Block routine") && page.contains("<svg") && page.contains("Caution"), "{page}");
     let xml = std::fs::read_to_string(&junit).unwrap();
     assert!(xml.contains("<testcase name=\"tangent\"") && !xml.contains("<failure"), "{xml}");
+    // Checks that did not run are skipped with why (no point deleted, no rate law): they read
+    // as passed (found by a user-style sweep); the counterpart named here ran.
+    assert!(xml.contains("the deletion check did not run") && xml.contains("no rate law declared"), "{xml}");
+    assert!(!xml.contains("counterpart: none named"), "{xml}");
+    // A block report's cautions are the block checks' own, in the page and the JSON.
+    assert!(page.contains("These checks test the routine&#39;s own consistency"), "{page}");
+    assert!(v["cautions"][0].as_str().unwrap().contains("own consistency"), "{v}");
 
     // A flawed routine through probe: the finding, in colour when asked for, and quietly.
     let bad = manifest(&d, "bad.json", lib, &format!("{lang}_j2_block_corrector_sign"), "");

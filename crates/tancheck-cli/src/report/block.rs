@@ -17,6 +17,8 @@ pub struct BlockDocument {
     pub exit_code: i32,
     #[serde(flatten)]
     pub report: BlockReport,
+    /// What the checks do not show (`tancheck_core::block::BLOCK_CAUTIONS`).
+    pub cautions: Vec<String>,
 }
 
 impl BlockDocument {
@@ -27,6 +29,7 @@ impl BlockDocument {
             finding: r.finding().into(),
             exit_code: r.exit_code(),
             report: r.clone(),
+            cautions: tancheck_core::block::BLOCK_CAUTIONS.map(String::from).to_vec(),
         }
     }
 }

@@ -286,7 +286,36 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
     ];
     for check in checks {
         let found: Vec<_> = r.findings.iter().filter(|f| f.check == check).collect();
+        // A check that did not run is skipped, with why: its note says so, or (for the checks
+        // a declaration turns on: a rate law, a counterpart; or off) there is no note of it.
+        // They read as passed before (found by a user-style sweep).
+        let prefix = format!("{}:", check.name());
+        let note = r.notes.iter().find(|n| n.starts_with(&prefix));
+        let optional = matches!(
+            check,
+            BlockCheck::Deletion
+                | BlockCheck::Independence
+                | BlockCheck::Rate
+                | BlockCheck::Refinement
+                | BlockCheck::Counterpart
+        );
+        let not_run = match note {
+            Some(n) if n.contains("did not run") || n.contains("not checked") => Some(n.clone()),
+            None if optional => Some(match check {
+                BlockCheck::Rate => "rate: no rate law declared (block.rate_law); not checked".to_string(),
+                BlockCheck::Counterpart => {
+                    "counterpart: none named (block.counterpart); not checked".to_string()
+                }
+                _ => format!("{}: turned off in the manifest's block section; not checked", check.name()),
+            }),
+            _ => None,
+        };
         let status = match found.first() {
+            None if not_run.is_some() => {
+                let mut s = TestCaseStatus::skipped();
+                s.set_message(not_run.unwrap_or_default());
+                s
+            }
             None => TestCaseStatus::success(),
             Some(f) => {
                 let kind =

@@ -20,7 +20,7 @@ pub mod settings;
 pub mod step;
 pub mod walk;
 
-pub use report::{BlockCheck, BlockFinding, BlockIncrement, BlockReport};
+pub use report::{BlockCheck, BlockFinding, BlockIncrement, BlockReport, BLOCK_CAUTIONS};
 pub use routine::{
     block_status, BlockCall, BlockInfo, BlockInput, BlockModel, BlockModelRoutine, BlockOutcome, BlockOutput,
     BlockRoutine, Conditions, SpecificEnergy, BLOCK_ABI_VERSION, BLOCK_MESSAGE_LEN, ELASTIC_RESPONSE,

@@ -4,6 +4,14 @@
 
 use serde::Serialize;
 
+/// The cautions of a block routine's report: its checks are of the routine's own consistency,
+/// not of a tangent.
+pub const BLOCK_CAUTIONS: [&str; 2] = [
+    "These checks test the routine's own consistency (independence, energy, deletion, stiffness); they do \
+     not validate the material model against test data.",
+    "Structural use of any material model follows the applicable codes and licensed engineering judgement.",
+];
+
 /// The checks of a block routine, by the name reports use.
 #[derive(Clone, Copy, Debug, PartialEq, Eq, Hash, Serialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]

@@ -65,7 +65,7 @@ pub fn block_page(r: &BlockReport) -> String {
         esc(r.finding()),
         r.exit_code()
     );
-    o.push_str(&cautions(&[]));
+    o.push_str(&cautions(&tancheck_core::block::BLOCK_CAUTIONS.map(String::from)));
     if !r.findings.is_empty() {
         o.push_str("<h2>Findings</h2>\n<table>\n<tr><th>finding</th><th>check</th><th>increment</th><th>what</th></tr>\n");
         for f in &r.findings {

@@ -89,12 +89,9 @@ impl BlockTerminal {
         writeln!(out, "   calls: {} real, {} complex", r.real_calls, r.complex_calls)?;
         self.verdict(r, out)?;
         if self.detail != Detail::Quiet {
-            writeln!(
-                out,
-                "   caution: these checks test the routine's own consistency (independence, energy, deletion, \
-                 stiffness); they do not validate the material model against test data. Structural use \
-                 follows applicable codes and licensed engineering judgement."
-            )?;
+            for c in tancheck_core::block::BLOCK_CAUTIONS {
+                writeln!(out, "   caution: {c}")?;
+            }
         }
         Ok(())
     }
