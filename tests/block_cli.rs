@@ -344,4 +344,20 @@ fn the_elastic_response_of_a_rate_dependent_routine_is_the_instantaneous_one() {
     let f = &v["findings"][0];
     assert_eq!(f["finding"], "elastic-response-mismatch", "{v}");
     assert!(f["what"].as_str().unwrap().contains("toward Δt → 0"), "{f}");
+    // A twin that loses the branch's derivative: TWIN (exit 4), the wave speed from the central
+    // differences (it passed, its stiffness taken from the broken twin; a user-style sweep).
+    let twin = write("c_maxwell_block_real_twin");
+    let (code, out, err) = tancheck(&["check".as_ref(), twin.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    assert_eq!(code, 4, "{out}{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    schema_valid(&v);
+    assert_eq!(v["finding"], "twin-not-complex-step-safe", "{v}");
+    let (_, good_out, _) = tancheck(&["check".as_ref(), good.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    let g: Value = serde_json::from_str(&good_out).unwrap();
+    let speeds = |v: &Value| -> Vec<f64> {
+        v["increments"].as_array().unwrap().iter().filter_map(|i| i["wave_speed"].as_f64()).collect()
+    };
+    for (a, b) in speeds(&v).iter().zip(speeds(&g)) {
+        assert!((a - b).abs() <= 1e-6 * b, "wave speed {a} against the correct routine's {b}");
+    }
 }

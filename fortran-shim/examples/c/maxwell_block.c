@@ -7,6 +7,8 @@
  *   c_maxwell_block           correct
  *   c_maxwell_block_relaxed   its elastic response with the equilibrium shear modulus G_inf
  *                             alone (the long-time one): a solver's wave speed too low
+ *   c_maxwell_block_real_twin its twin updates the branch with the real part of the strain
+ *                             increment (not complex-step safe; the real routine is right)
  *
  * Properties [K, G_inf, G_1, tau]: bulk modulus, equilibrium and branch shear moduli,
  * relaxation time. State [h (ncomp)]: the branch's deviatoric stress (shear entries as
@@ -39,7 +41,8 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
                              const tc_real *strain_increment, const tc_real *stress_start,
                              const tc_real *state_start, const tc_specific_energy *energy_start,
                              const tc_point_conditions *conditions, tc_real *stress, tc_real *state,
-                             tc_specific_energy *energy, int32_t *deleted, int relaxed_response)
+                             tc_specific_energy *energy, int32_t *deleted, int relaxed_response,
+                             int real_twin)
 {
     const int n = block->ncomp, ns = block->nstate, np = block->npoints;
     const tc_real k = properties[0], g_inf = properties[1], g_1 = properties[2], tau = properties[3];
@@ -67,7 +70,8 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
         for (int i = 0; i < n; ++i) {
             /* tensor components of the deviatoric strain and of its increment */
             const tc_real e = i < 3 ? e0[i] + de[i] - tr / 3.0 : 0.5 * (e0[i] + de[i]);
-            const tc_real d = i < 3 ? de[i] - dtr / 3.0 : 0.5 * de[i];
+            tc_real d = i < 3 ? de[i] - dtr / 3.0 : 0.5 * de[i];
+            if (real_twin) d = tc_cst(tc_re(d)); /* the flaw: in the twin, the derivative is lost */
             h[i] = a * h0[i] + 2.0 * g_1 * f * d;
             s[i] = (i < 3 ? k * tr : tc_cst(0.0)) + 2.0 * g_inf * e + h[i];
         }
@@ -84,12 +88,19 @@ TC_BLOCK_ROUTINE(c_maxwell_block)
 {
     (void)report;
     TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0);
+                     conditions, stress, state, energy, deleted, 0, 0);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_relaxed)
 {
     (void)report;
     TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 1);
+                     conditions, stress, state, energy, deleted, 1, 0);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_real_twin)
+{
+    (void)report;
+    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
+                     conditions, stress, state, energy, deleted, 0, 1);
 }

@@ -11,6 +11,7 @@
 pub mod along;
 pub mod counterpart;
 pub mod independence;
+mod numeric;
 pub mod rate;
 pub mod refine;
 pub mod report;

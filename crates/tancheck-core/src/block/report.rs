@@ -4,6 +4,9 @@
 
 use serde::Serialize;
 
+/// The finding of a twin that is not complex-step safe (as a point check names it).
+pub const TWIN_FINDING: &str = "twin-not-complex-step-safe";
+
 /// The cautions of a block routine's report: its checks are of the routine's own consistency,
 /// not of a tangent.
 pub const BLOCK_CAUTIONS: [&str; 2] = [
@@ -139,6 +142,9 @@ impl BlockReport {
             0
         } else if self.has("routine-fault") {
             3
+        } else if self.findings.iter().all(|f| f.finding == TWIN_FINDING) {
+            // Only the twin: as a point check's (TWIN, exit 4).
+            4
         } else {
             1
         }

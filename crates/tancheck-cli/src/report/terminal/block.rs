@@ -118,6 +118,7 @@ impl BlockTerminal {
         let verdict = match r.exit_code() {
             0 => "PASS",
             3 => "ROUTINE FAULT",
+            4 => "TWIN",
             _ => "FAIL",
         };
         writeln!(
