@@ -430,3 +430,22 @@ fn tensor_slots_outside_the_state_are_refused() {
         }
     }
 }
+
+// A finite-strain manifest with a JSON syntax error is named with that error where it is (it
+// read "unknown field `finite`" from the point manifest's loader, found by a user-style sweep).
+#[test]
+fn a_syntax_error_in_a_finite_manifest_is_named_where_it_is() {
+    let dir = scratch("syntax");
+    let p = dir.join("comma.json");
+    std::fs::write(
+        &p,
+        "{ \"finite\": { \"stress\": \"cauchy\", \"tangent\": \"sigma-jaumann\", \"frame\": \"none\" },\n  \
+         \"routine\": { \"model\": \"neo-hookean\", \"states\": 0, \"properties\": [1000, 0.3], },\n  \
+         \"path\": { \"shape\": \"simple-shear\", \"amount\": 0.5, \"increments\": 3 } }\n",
+    )
+    .unwrap();
+    let (code, out) = tancheck(&["check", p.to_str().unwrap()]);
+    assert_eq!(code, 2, "{out}");
+    assert!(out.contains("comma.json:2:") && out.contains("trailing comma"), "{out}");
+    assert!(!out.contains("unknown field"), "{out}");
+}

@@ -92,10 +92,15 @@ impl FiniteManifest {
     /// Whether the file is a finite-strain manifest (valid JSON with a `finite` key); a file
     /// that is not valid JSON is left to the ordinary manifest's error messages.
     pub fn detect(path: &FsPath) -> bool {
-        std::fs::read_to_string(path)
-            .ok()
-            .and_then(|t| serde_json::from_str::<serde_json::Value>(&t).ok())
-            .is_some_and(|v| v.get("finite").is_some())
+        let Ok(text) = std::fs::read_to_string(path) else { return false };
+        match serde_json::from_str::<serde_json::Value>(&text) {
+            Ok(v) => v.get("finite").is_some(),
+            // Not valid JSON: a manifest with a `"finite":` key is read as a finite-strain one,
+            // whose loader names the syntax error where it is (the point manifest's loader
+            // stopped at the `finite` field first, "unknown field", found by a user-style
+            // sweep).
+            Err(_) => has_key(&text, "finite"),
+        }
     }
 
     /// Read and validate; errors name the file.
@@ -270,4 +275,19 @@ pub fn open_library(
     r.set_checks(m.guards != Guards::Off);
     r.set_fp_traps(m.fp_traps);
     Ok(Box::new(r))
+}
+
+/// Whether `text` holds `"key"` followed (after white space) by a colon: a JSON object key.
+fn has_key(text: &str, key: &str) -> bool {
+    let quoted = format!("\"{key}\"");
+    text.match_indices(&quoted).any(|(at, q)| text[at + q.len()..].trim_start().starts_with(':'))
+}
+
+#[cfg(test)]
+mod key_tests {
+    #[test]
+    fn a_key_is_a_quoted_name_before_a_colon() {
+        assert!(super::has_key("{ \"finite\" : {}, }", "finite"));
+        assert!(!super::has_key("{ \"name\": \"finite\" }", "finite"));
+    }
 }
