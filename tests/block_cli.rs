@@ -360,4 +360,12 @@ fn the_elastic_response_of_a_rate_dependent_routine_is_the_instantaneous_one() {
     for (a, b) in speeds(&v).iter().zip(speeds(&g)) {
         assert!((a - b).abs() <= 1e-6 * b, "wave speed {a} against the correct routine's {b}");
     }
+    // A point that reads its neighbour's density: the neighbours' conditions differ, so it is
+    // point-dependence (neighbours shared the point's conditions and it passed).
+    let neighbour = write("c_maxwell_block_neighbour_density");
+    let (code, out, err) =
+        tancheck(&["check".as_ref(), neighbour.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+    assert_eq!(code, 1, "{out}{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    assert_eq!(v["finding"], "point-dependence", "{v}");
 }

@@ -9,6 +9,8 @@
  *                             alone (the long-time one): a solver's wave speed too low
  *   c_maxwell_block_real_twin its twin updates the branch with the real part of the strain
  *                             increment (not complex-step safe; the real routine is right)
+ *   c_maxwell_block_neighbour_density  divides the work by the next point's density (an
+ *                             indexing slip: a point that depends on its neighbour)
  *
  * Properties [K, G_inf, G_1, tau]: bulk modulus, equilibrium and branch shear moduli,
  * relaxation time. State [h (ncomp)]: the branch's deviatoric stress (shear entries as
@@ -42,7 +44,7 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
                              const tc_real *state_start, const tc_specific_energy *energy_start,
                              const tc_point_conditions *conditions, tc_real *stress, tc_real *state,
                              tc_specific_energy *energy, int32_t *deleted, int relaxed_response,
-                             int real_twin)
+                             int real_twin, int neighbour_density)
 {
     const int n = block->ncomp, ns = block->nstate, np = block->npoints;
     const tc_real k = properties[0], g_inf = properties[1], g_1 = properties[2], tau = properties[3];
@@ -51,7 +53,7 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
         const tc_real *e0 = strain + p * n, *de = strain_increment + p * n;
         const tc_real *s0 = stress_start + p * n, *h0 = state_start + p * ns;
         tc_real *s = stress + p * n, *h = state + p * ns;
-        const double rho = conditions[p].density;
+        const double rho = conditions[neighbour_density ? (p + 1) % np : p].density;
         deleted[p] = 0;
         const tc_real dtr = de[0] + de[1] + de[2];
         if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) {
@@ -88,19 +90,26 @@ TC_BLOCK_ROUTINE(c_maxwell_block)
 {
     (void)report;
     TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0, 0);
+                     conditions, stress, state, energy, deleted, 0, 0, 0);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_relaxed)
 {
     (void)report;
     TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 1, 0);
+                     conditions, stress, state, energy, deleted, 1, 0, 0);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_real_twin)
 {
     (void)report;
     TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0, 1);
+                     conditions, stress, state, energy, deleted, 0, 1, 0);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_neighbour_density)
+{
+    (void)report;
+    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
+                     conditions, stress, state, energy, deleted, 0, 0, 1);
 }

@@ -1,6 +1,7 @@
 //! Point independence: the point under test gives the same results alone, in a block of 7 and
 //! in a block of 128, at different positions, with neighbours on other paths (other branches:
-//! at rest, elastic, reversed, far beyond yield). The first output that differs is named.
+//! at rest, elastic, reversed, far beyond yield) and under other conditions (a little warmer,
+//! denser, with a shorter characteristic length). The first output that differs is named.
 //!
 //! The neighbours at rest (a zero strain increment over a nonzero time increment, as most
 //! points of an explicit model are in most increments) must return finite stresses and state
@@ -17,6 +18,12 @@ use crate::routine::Fault;
 /// Scale factors of the neighbours' paths (0: at rest; small: elastic; negative: reversed;
 /// large: far past yield), used in turn.
 const NEIGHBOURS: [f64; 7] = [0.0, 0.05, -1.0, 3.0, 0.5, -0.2, 1.7];
+
+/// How much warmer a neighbour starts (K, times 1 to 3), and by what share its density is
+/// larger and its characteristic length smaller (times 1 to 3): small enough to stay within a
+/// routine's range, large enough to show in any output that reads them.
+const NEIGHBOUR_WARMER: f64 = 5.0;
+const NEIGHBOUR_SHARE: f64 = 0.05;
 
 /// (block size, position of the point under test, permuted neighbours).
 const LAYOUTS: [(usize, usize, bool); 5] =
@@ -48,6 +55,17 @@ fn walk(
     let n = routine.info().ncomp;
     let npoints = layout.scales.len();
     let mut b = BlockBuffers::new(npoints, n, &s.state0, s.conditions);
+    // The neighbours' own conditions differ a little from the point's (temperature, density,
+    // characteristic length), so a point that reads a neighbour's shows it (one reading its
+    // neighbour's temperature passed, found by a user-style sweep).
+    for (p, c) in b.conditions.iter_mut().enumerate() {
+        if p != layout.at {
+            let k = (1 + p % 3) as f64;
+            c.temperature += NEIGHBOUR_WARMER * k;
+            c.density *= 1.0 + NEIGHBOUR_SHARE * k;
+            c.characteristic_length *= 1.0 - NEIGHBOUR_SHARE * k;
+        }
+    }
     for (k, step) in incs.iter().enumerate() {
         let (de, dt) = (&step.strain_increment, &step.time_increment);
         b.set_temperature_increment(step.temperature_increment);
