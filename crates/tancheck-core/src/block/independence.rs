@@ -231,7 +231,8 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
     }
     report.notes.push(
         "independence: the point alone, in blocks of 7 (positions 0, 3, 6) and 128 (positions 127, 61) \
-         with neighbours at rest, elastic, reversed and far past yield gave the same outputs"
+         with neighbours at rest, elastic, reversed and far past yield, under conditions of their own \
+         (warmer, denser, a shorter characteristic length), gave the same outputs"
             .into(),
     );
 }
