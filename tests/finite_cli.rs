@@ -244,15 +244,10 @@ fn finite_reports_through_the_reporters() {
     assert!(!out.contains("\u{1b}["), "{out}");
 }
 
-// The options of `tancheck check` on a finite-strain manifest: the time limits, the guard level
-// and the traps are honoured; the ones a finite-strain check has its own settings for (--path,
-// --scheme, --tol, --step, --cases) are refused naming the manifest (exit 2),
-// where they were accepted and ignored. A NaN the routine computes is a non-finite output
-// (exit 1), an entry it never writes a fault (exit 3): both read "unwritten" before.
-#[test]
-fn finite_checks_honour_or_refuse_the_check_options() {
-    let dir = scratch("options");
-    let m = |symbol: &'static str| Manifest {
+/// The C neo-Hookean routine `symbol` (a variant of it) with elastic properties, Cauchy stress
+/// and the Jaumann tangent.
+fn elastic_nh(symbol: &'static str) -> Manifest<'static> {
+    Manifest {
         lib: c_lib(),
         symbol,
         stress: "cauchy",
@@ -261,7 +256,18 @@ fn finite_checks_honour_or_refuse_the_check_options() {
         properties: ELASTIC,
         states: 0,
         extra: "",
-    };
+    }
+}
+
+// The options of `tancheck check` on a finite-strain manifest: the time limits, the guard level
+// and the traps are honoured; the ones a finite-strain check has its own settings for (--path,
+// --scheme, --tol, --step, --cases) are refused naming the manifest (exit 2),
+// where they were accepted and ignored. A NaN the routine computes is a non-finite output
+// (exit 1), an entry it never writes a fault (exit 3): both read "unwritten" before.
+#[test]
+fn finite_checks_honour_or_refuse_the_check_options() {
+    let dir = scratch("options");
+    let m = elastic_nh;
     let good = write(&dir, "good.json", &m("c_nh"));
     for extra in [
         &["--path", "uniaxial-strain:0.01:7"][..],
@@ -346,16 +352,7 @@ fn finite_checks_honour_or_refuse_the_check_options() {
 #[test]
 fn finite_checks_run_isolated() {
     let dir = scratch("isolated");
-    let m = |symbol: &'static str| Manifest {
-        lib: c_lib(),
-        symbol,
-        stress: "cauchy",
-        tangent: "sigma-jaumann",
-        frame: "none",
-        properties: ELASTIC,
-        states: 0,
-        extra: "",
-    };
+    let m = elastic_nh;
     let schema: serde_json::Value = serde_json::from_str(
         &std::fs::read_to_string(tancheck_testkit::libs::repo_root().join("schema/report.schema.json"))
             .unwrap(),
