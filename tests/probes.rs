@@ -8,10 +8,14 @@ use tancheck::core::{Caller, PointKind, PointState, Routine, Settings};
 use tancheck::models::reference;
 
 fn run(model: &str, kind: PointKind, props: &[f64], thermal: bool) -> SuiteReport {
+    run_routine(&mut reference(model, kind).unwrap(), kind, props, thermal)
+}
+
+/// The default suite of `kind` (thermal or not) on `r`, from zero at 20 °C.
+fn run_routine(r: &mut dyn Routine, kind: PointKind, props: &[f64], thermal: bool) -> SuiteReport {
     let suite = Suite::default_for(kind, thermal);
-    let mut r = reference(model, kind).unwrap();
     let info = r.info().clone();
-    let mut caller = Caller::new(&mut r);
+    let mut caller = Caller::new(r);
     let start = PointState::zero(&info, 20.0);
     run_suite(
         &mut caller,
@@ -358,16 +362,9 @@ impl Routine for Unsymmetric {
 #[test]
 fn the_default_suites_do_not_assume_a_symmetric_tangent() {
     for thermal in [false, true] {
-        let suite = Suite::default_for(PointKind::Solid3d, thermal);
         let mut r = Unsymmetric(reference("thermo", PointKind::Solid3d).unwrap());
-        let mut caller = Caller::new(&mut r);
-        let info = caller.info().clone();
-        let start = PointState::zero(&info, 20.0);
         let props = [210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0];
-        let path = suite.path().unwrap();
-        let report =
-            run_suite(&mut caller, &suite.suite, &suite.probes, &props, &start, &path, &Settings::default())
-                .unwrap();
+        let report = run_routine(&mut r, PointKind::Solid3d, &props, thermal);
         let s = report.results.iter().find(|p| p.probe == "symmetry").unwrap();
         assert_eq!(s.status, ProbeStatus::Pass, "thermal {thermal}: {s:?}");
         assert!(s.summary.contains("unsymmetric tangent"), "thermal {thermal}: {s:?}");
