@@ -369,3 +369,49 @@ fn the_elastic_response_of_a_rate_dependent_routine_is_the_instantaneous_one() {
     let v: Value = serde_json::from_str(&out).unwrap();
     assert_eq!(v["finding"], "point-dependence", "{v}");
 }
+
+// Results that depend on the calls made before (found by a user-style sweep: a routine keeping
+// its plastic strain in a static and one caching a relaxation time on its first call passed,
+// or were named `point-dependence`). The density of the first call kept in a static is seen
+// only against a new instance of the library (walked twice in a row it repeats itself); a
+// dissipated energy summed in a static over all calls differs on the second of two walks in a
+// row. Both are `history-dependence`, and the blocks are then not compared; the correct
+// routine says what it was walked under and passes.
+#[test]
+fn results_that_depend_on_the_calls_before_are_history_dependence() {
+    let lib = build_once("maxwell_block_cli", &["fortran-shim/examples/c/maxwell_block.c"]);
+    let d = scratch("block-cli-maxwell-history");
+    let run = |symbol: &str| -> (i32, Value) {
+        let p = d.join(format!("{symbol}.json"));
+        std::fs::write(
+            &p,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d",
+                   "states": 6, "properties": [1000, 300, 200, 1e-2] }},
+  "path": {{ "shape": "tension-shear", "peak": 0.01, "steps": 4, "back": 2, "dtime": 1e-3 }},
+  "block": {{ "density": 1e-9, "characteristic_length": 1.0 }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        let (code, out, err) = tancheck(&["check".as_ref(), p.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+        let v: Value = serde_json::from_str(&out).unwrap_or_else(|e| panic!("{e}: {out}{err}"));
+        schema_valid(&v);
+        (code, v)
+    };
+    let (code, v) = run("c_maxwell_block");
+    assert_eq!(code, 0, "{v}");
+    let notes = v["notes"].to_string();
+    assert!(notes.contains("as the first calls of a new instance of the library"), "{notes}");
+    let (code, v) = run("c_maxwell_block_first_density");
+    assert_eq!(code, 1, "{v}");
+    assert_eq!(v["finding"], "history-dependence", "{v}");
+    let what = v["findings"][0]["what"].as_str().unwrap();
+    assert!(what.contains("new instance") && what.contains("energy.internal"), "{what}");
+    assert!(v["notes"].to_string().contains("blocks not compared"), "{v}");
+    let (code, v) = run("c_maxwell_block_static_dissipation");
+    assert_eq!(code, 1, "{v}");
+    assert_eq!(v["finding"], "history-dependence", "{v}");
+    let what = v["findings"][0]["what"].as_str().unwrap();
+    assert!(what.contains("walked twice in a row") && what.contains("energy.dissipated"), "{what}");
+}

@@ -11,6 +11,10 @@
  *                             increment (not complex-step safe; the real routine is right)
  *   c_maxwell_block_neighbour_density  divides the work by the next point's density (an
  *                             indexing slip: a point that depends on its neighbour)
+ *   c_maxwell_block_first_density  divides the work by the density of the first call's first
+ *                             point, kept in a static (right only while every point has it)
+ *   c_maxwell_block_static_dissipation  sums the dissipated energy in a static over all
+ *                             calls instead of from the point's energy at the start
  *
  * Properties [K, G_inf, G_1, tau]: bulk modulus, equilibrium and branch shear moduli,
  * relaxation time. State [h (ncomp)]: the branch's deviatoric stress (shear entries as
@@ -31,6 +35,16 @@
 #include "tancheck_cstep.h"
 #include "tancheck_block.h"
 
+/* The planted flaws of the variants. */
+enum maxwell_flaw {
+    MAXWELL_CORRECT,
+    MAXWELL_RELAXED_RESPONSE,
+    MAXWELL_REAL_TWIN,
+    MAXWELL_NEIGHBOUR_DENSITY,
+    MAXWELL_FIRST_DENSITY,
+    MAXWELL_STATIC_DISSIPATION
+};
+
 /* h:h of a deviatoric stress in Voigt form (shear entries counted twice). */
 static tc_real maxwell_dot(const tc_real *h, int n)
 {
@@ -43,9 +57,10 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
                              const tc_real *strain_increment, const tc_real *stress_start,
                              const tc_real *state_start, const tc_specific_energy *energy_start,
                              const tc_point_conditions *conditions, tc_real *stress, tc_real *state,
-                             tc_specific_energy *energy, int32_t *deleted, int relaxed_response,
-                             int real_twin, int neighbour_density)
+                             tc_specific_energy *energy, int32_t *deleted, enum maxwell_flaw flaw)
 {
+    static double first_density = -1.0;
+    static tc_real dissipated_sum;
     const int n = block->ncomp, ns = block->nstate, np = block->npoints;
     const tc_real k = properties[0], g_inf = properties[1], g_1 = properties[2], tau = properties[3];
     const double dt = block->time_increment;
@@ -53,11 +68,13 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
         const tc_real *e0 = strain + p * n, *de = strain_increment + p * n;
         const tc_real *s0 = stress_start + p * n, *h0 = state_start + p * ns;
         tc_real *s = stress + p * n, *h = state + p * ns;
-        const double rho = conditions[neighbour_density ? (p + 1) % np : p].density;
+        double rho = conditions[flaw == MAXWELL_NEIGHBOUR_DENSITY ? (p + 1) % np : p].density;
+        if (first_density < 0.0) first_density = rho;
+        if (flaw == MAXWELL_FIRST_DENSITY) rho = first_density;
         deleted[p] = 0;
         const tc_real dtr = de[0] + de[1] + de[2];
         if (block->flags & TC_BLOCK_ELASTIC_RESPONSE) {
-            const tc_real g = relaxed_response ? g_inf : g_inf + g_1;
+            const tc_real g = flaw == MAXWELL_RELAXED_RESPONSE ? g_inf : g_inf + g_1;
             for (int i = 0; i < n; ++i) {
                 s[i] = s0[i] + (i < 3 ? k * dtr + 2.0 * g * (de[i] - dtr / 3.0) : g * de[i]);
             }
@@ -73,7 +90,7 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
             /* tensor components of the deviatoric strain and of its increment */
             const tc_real e = i < 3 ? e0[i] + de[i] - tr / 3.0 : 0.5 * (e0[i] + de[i]);
             tc_real d = i < 3 ? de[i] - dtr / 3.0 : 0.5 * de[i];
-            if (real_twin) d = tc_cst(tc_re(d)); /* the flaw: in the twin, the derivative is lost */
+            if (flaw == MAXWELL_REAL_TWIN) d = tc_cst(tc_re(d)); /* the flaw: in the twin, the derivative is lost */
             h[i] = a * h0[i] + 2.0 * g_1 * f * d;
             s[i] = (i < 3 ? k * tr : tc_cst(0.0)) + 2.0 * g_inf * e + h[i];
         }
@@ -81,35 +98,50 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
         tc_real work = tc_cst(0.0);
         for (int i = 0; i < n; ++i) work += 0.5 * (s0[i] + s[i]) * de[i];
         energy[p].internal = energy_start[p].internal + work / rho;
-        energy[p].dissipated = energy_start[p].dissipated +
-                               0.5 * dt * (maxwell_dot(h0, n) + maxwell_dot(h, n)) / (2.0 * g_1 * tau) / rho;
+        const tc_real dissipated = 0.5 * dt * (maxwell_dot(h0, n) + maxwell_dot(h, n)) / (2.0 * g_1 * tau) / rho;
+        dissipated_sum += dissipated;
+        energy[p].dissipated =
+            flaw == MAXWELL_STATIC_DISSIPATION ? dissipated_sum : energy_start[p].dissipated + dissipated;
     }
 }
+
+/* The arguments every variant passes on. */
+#define MAXWELL_ARGS                                                                                          \
+    block, properties, strain, strain_increment, stress_start, state_start, energy_start, conditions, stress, \
+        state, energy, deleted
 
 TC_BLOCK_ROUTINE(c_maxwell_block)
 {
     (void)report;
-    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0, 0, 0);
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_CORRECT);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_relaxed)
 {
     (void)report;
-    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 1, 0, 0);
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_RELAXED_RESPONSE);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_real_twin)
 {
     (void)report;
-    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0, 1, 0);
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_REAL_TWIN);
 }
 
 TC_BLOCK_ROUTINE(c_maxwell_block_neighbour_density)
 {
     (void)report;
-    TC_NAME(maxwell)(block, properties, strain, strain_increment, stress_start, state_start, energy_start,
-                     conditions, stress, state, energy, deleted, 0, 0, 1);
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_NEIGHBOUR_DENSITY);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_first_density)
+{
+    (void)report;
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_FIRST_DENSITY);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_static_dissipation)
+{
+    (void)report;
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_STATIC_DISSIPATION);
 }

@@ -289,6 +289,19 @@ impl BlockRoutine for LibraryBlockRoutine {
         };
         self.call_entry(twin, input, output)
     }
+
+    /// The library loaded anew ([`Library::open_fresh`]), the same symbol, guard level and
+    /// traps.
+    fn new_instance(&self) -> Option<Result<Box<dyn BlockRoutine>, String>> {
+        let made = Library::open_fresh(self.library.path())
+            .and_then(|lib| lib.block_routine(&self.symbol, self.info.clone()))
+            .map(|mut r| {
+                r.guard_level = self.guard_level;
+                r.fp_traps = self.fp_traps;
+                Box::new(r) as Box<dyn BlockRoutine>
+            });
+        Some(made.map_err(|e| e.to_string()))
+    }
 }
 
 /// The arithmetic of a call: real calls and twin calls each keep their own guard buffers.

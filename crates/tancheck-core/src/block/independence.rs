@@ -222,7 +222,9 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
                 Some(k),
                 format!(
                     "the point at position {at} of a block of {size}{} differs from the same point alone \
-                     first in {w}",
+                     first in {w}: it reads another point's inputs (an index off by one, a stride?) or a \
+                     value the points before it in the block left (a static or SAVE variable, a work array \
+                     shared by the points?)",
                     if permuted { " (neighbours permuted)" } else { "" }
                 ),
             );

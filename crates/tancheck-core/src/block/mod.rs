@@ -6,10 +6,12 @@
 //! (buffers of a block walked along increments) → [`settings`], [`report`] → the checks:
 //! [`along`] (elastic response; along the path of one point: numerical tangent, effective
 //! moduli, wave speed and stable time increment, energy bookkeeping, deletion),
-//! [`independence`] (blocks of 1, 7 and 128), [`refine`] (increment halving) → [`run`].
+//! [`history`] (results that depend on the calls before), [`independence`] (blocks of 1, 7
+//! and 128), [`refine`] (increment halving) → [`run`].
 
 pub mod along;
 pub mod counterpart;
+pub mod history;
 pub mod independence;
 mod numeric;
 pub mod rate;

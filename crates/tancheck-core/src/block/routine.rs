@@ -187,6 +187,13 @@ pub trait BlockRoutine {
     ) -> Result<(), Fault> {
         Err(Fault::Unsupported(format!("`{}` has no complex-step twin", self.info().name)))
     }
+    /// The same routine with its static and SAVE variables as at load (its library loaded
+    /// anew), to tell results that depend on the calls made before; `None` where there is no
+    /// such thing to offer (a built-in model keeps nothing between calls), `Some(Err(why))`
+    /// where it could not be made.
+    fn new_instance(&self) -> Option<Result<Box<dyn BlockRoutine>, String>> {
+        None
+    }
 }
 
 /// The lengths of a call must be those of the routine; checked in release builds too (a

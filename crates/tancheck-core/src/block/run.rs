@@ -2,6 +2,7 @@
 //! point independence and increment refinement, gathered in a [`BlockReport`].
 
 use super::along;
+use super::history;
 use super::independence;
 use super::rate;
 use super::refine;
@@ -54,7 +55,16 @@ pub fn run(
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
     let mut w = BlockWalk { routine, properties, incs: &incs, settings };
     if settings.independence {
-        independence::check(w.reborrow(), &mut report);
+        // Results that depend on the calls before make every comparison of blocks meaningless
+        // (a point alone and in a block differ by the calls between them): looked for first.
+        if history::check(w.reborrow(), &mut report) {
+            report.notes.push(
+                "independence: blocks not compared, the point's results depending on the calls made before"
+                    .into(),
+            );
+        } else {
+            independence::check(w.reborrow(), &mut report);
+        }
     }
     if let Some(law) = settings.rate_law {
         rate::check(w.reborrow(), law, &mut report);
@@ -67,7 +77,7 @@ pub fn run(
     // fault, ahead of what follows from it.
     report.findings.sort_by_key(|f| match f.finding {
         "routine-fault" => 0,
-        "point-dependence" => 1,
+        "point-dependence" | "history-dependence" => 1,
         _ => 2,
     });
     Ok(report)
