@@ -492,9 +492,32 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
     let t = text(&o);
     assert!(t.contains("== cases in"), "{t}");
     assert!(t.contains("broken.json"), "{t}");
-    // The cases still fail (the flaw is not fixed), so the run fails although the check passes.
-    assert!(t.contains("verdict: PASS"), "{t}");
+    // The cases still fail (the flaw is not fixed), so the run fails although the path passes,
+    // and every report says so: the verdict line, the JSON and the JUnit (they said PASS, with
+    // exit 1; found by a user-style sweep).
+    assert!(t.contains("verdict: FAIL") && t.contains("regression cases still fail"), "{t}");
+    assert!(t.contains("the path's increments passed"), "{t}");
     assert_eq!(o.status.code(), Some(1), "{t}");
+    let (json, xml) = (d.join("cases.json"), d.join("cases.xml"));
+    let o = bin()
+        .arg("check")
+        .arg(&ok)
+        .arg("--cases")
+        .arg(&cases)
+        .arg("--all-cases")
+        .arg("--json")
+        .arg(&json)
+        .arg("--junit")
+        .arg(&xml)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["verdict"], "tangent-failure", "{v}");
+    assert_ne!(v["finding"], "none", "{v}");
+    assert!(!v["cases"]["failed"].as_array().unwrap().is_empty(), "{v}");
+    let x = std::fs::read_to_string(&xml).unwrap();
+    assert!(x.contains("regression case") && !x.contains("failures=\"0\""), "{x}");
     // A bad option stops the run before the cases are replayed (they used to run first, and
     // the error came after their whole output).
     for bad in

@@ -386,6 +386,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     };
     crate::survive::set_routine(a.json.as_deref(), &routine_name(&m));
     crate::survive::start_watchdog(a.call_timeout, Some(a.suite_timeout));
+    let mut tally = None;
     if let Some(cases) = &cases {
         let mine = if a.all_cases {
             None
@@ -396,6 +397,7 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
             )
         };
         let r = crate::cmd_replay::run_case_folder_of(cases, mine.as_ref());
+        tally = Some(crate::cmd_replay::tally_of(&r));
         // The cases go to the terminal only (the JSON report is the check's).
         if !a.json.as_deref().is_some_and(crate::report::json::Json::to_stdout) {
             let mut t = a.output.terminal();
@@ -422,17 +424,18 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     let path = point_path.expect("a point routine's path was read above");
     // The compact report (full detail of failures only) unless every check's details are asked for.
     let keep = if a.output.verbose { Keep::All } else { Keep::Failures };
-    let report = crate::session::run_manifest_with(&m, &dir, &path, keep, a.output.shows_progress())
+    let mut report = crate::session::run_manifest_with(&m, &dir, &path, keep, a.output.shows_progress())
         .with_context(|| format!("checking the routine of {file}"))?;
+    // The cases join the verdict, so that every report says what the exit code says (the
+    // verdict line, the JSON and the JUnit said PASS while a case failed and the exit was 1).
+    if let Some(t) = tally {
+        report.join_cases(t);
+    }
     let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
     reporters.check(&report)?;
     reporters.finish()?;
-    // The worse of the cases' and the check's outcome (a fault before a failure).
-    Ok(match (case_code, report.exit_code()) {
-        (3, _) | (_, 3) => exit::ROUTINE_FAULT,
-        (1, _) | (_, 1) => exit::TANGENT_FAILURE,
-        (c, r) => c.max(r),
-    })
+    debug_assert!(case_code == 0 || report.exit_code() != 0);
+    Ok(report.exit_code())
 }
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {

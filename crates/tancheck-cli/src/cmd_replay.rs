@@ -345,3 +345,22 @@ fn same_routine(mine: &CaseRoutine, theirs: &CaseRoutine, file: &FsPath) -> bool
         }
     }
 }
+
+/// What a folder of cases gave, as the check's report keeps it ([`tancheck_core::report::CaseTally`]).
+pub fn tally_of(r: &CaseFolderResult) -> tancheck_core::report::CaseTally {
+    let name = |p: &std::path::Path| p.display().to_string();
+    tancheck_core::report::CaseTally {
+        folder: name(&r.folder),
+        passed: r.passed.iter().map(|c| name(&c.file)).collect(),
+        failed: r
+            .failed
+            .iter()
+            .map(|c| tancheck_core::report::FailedCase {
+                file: name(&c.file),
+                finding: c.report.finding.clone(),
+                exit_code: c.report.exit_code,
+            })
+            .collect(),
+        broken: r.broken.clone(),
+    }
+}

@@ -288,6 +288,7 @@ fn run_path(
         notes: fold_one_sided(notes),
         cautions: CAUTIONS.iter().map(|s| s.to_string()).collect(),
         guard: None,
+        cases: None,
         gave_way,
         checked_path: None,
     })

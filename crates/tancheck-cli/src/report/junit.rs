@@ -172,6 +172,29 @@ fn check_suite(report: &Report) -> TestSuite {
     let mut case = TestCase::new("verdict", status);
     case.set_classname(routine.as_str());
     suite.add_test_case(case);
+    // The regression cases replayed with the check, a test case each.
+    if let Some(t) = &report.cases {
+        for f in &t.passed {
+            let mut case = TestCase::new(format!("regression case {f}"), TestCaseStatus::success());
+            case.set_classname(routine.as_str());
+            suite.add_test_case(case);
+        }
+        for c in &t.failed {
+            let kind = if c.exit_code == Verdict::RoutineFault.exit_code() {
+                NonSuccessKind::Error
+            } else {
+                NonSuccessKind::Failure
+            };
+            let status = failure(
+                format!("finding {}: the case's call still fails (exit {})", c.finding, c.exit_code),
+                kind,
+                None,
+            );
+            let mut case = TestCase::new(format!("regression case {}", c.file), status);
+            case.set_classname(routine.as_str());
+            suite.add_test_case(case);
+        }
+    }
     suite
 }
 

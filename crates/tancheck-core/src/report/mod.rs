@@ -298,6 +298,10 @@ pub struct Report {
     /// What the memory guards of a loaded library saw (absent for a model).
     #[serde(default, skip_serializing_if = "Option::is_none")]
     pub guard: Option<GuardSummary>,
+    /// The regression cases replayed with the check (`tancheck check --cases`), when asked
+    /// for: a case that still fails or faults fails the check ([`Report::join_cases`]).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub cases: Option<CaseTally>,
     /// How a check asked for on several threads gave way to one, when it did (see
     /// [`gave_way::GaveWay`]); not written (the notes say it).
     #[serde(skip)]
@@ -307,6 +311,28 @@ pub struct Report {
     /// its. Not written (the notes and `path` say it).
     #[serde(skip)]
     pub checked_path: Option<crate::path::Path>,
+}
+
+/// The regression cases replayed with a check, by file.
+#[derive(Clone, Debug, Default, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct CaseTally {
+    /// The folder the case files were read from.
+    pub folder: String,
+    /// Cases whose call passes its check now.
+    pub passed: Vec<String>,
+    /// Cases whose call still fails (or faults).
+    pub failed: Vec<FailedCase>,
+    /// Files that could not be run, each with why.
+    pub broken: Vec<String>,
+}
+
+/// A regression case that still fails: its file, what the check of its call found now, and
+/// the exit code of its replay.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct FailedCase {
+    pub file: String,
+    pub finding: String,
+    pub exit_code: i32,
 }
 
 /// The memory guards of a loaded library over one check.
@@ -360,6 +386,24 @@ impl Report {
         self.verdict.exit_code()
     }
 
+    /// Join the regression cases replayed with the check: a case that faults makes the verdict
+    /// a fault, one that fails makes a passing (or twin) verdict a failure; the cases are kept
+    /// in the report, so every view (terminal, JSON, JUnit, HTML) gives the same verdict and
+    /// the exit code follows it.
+    pub fn join_cases(&mut self, tally: CaseTally) {
+        if tally.failed.iter().any(|c| c.exit_code == Verdict::RoutineFault.exit_code()) {
+            self.verdict = Verdict::RoutineFault;
+        } else if !tally.failed.is_empty() && self.verdict != Verdict::RoutineFault {
+            self.verdict = Verdict::TangentFailure;
+        }
+        self.cases = Some(tally);
+    }
+
+    /// The regression cases that still fail, none when no case was replayed.
+    pub fn failed_cases(&self) -> &[FailedCase] {
+        self.cases.as_ref().map_or(&[], |c| &c.failed)
+    }
+
     /// What the report found, in one word: `none` when it passed, `routine-fault` when the
     /// routine crashed or failed, else the finding named at the most failing increments (each
     /// increment's own: its first-ranked cause, or `kink-neither-side`,
@@ -397,6 +441,12 @@ impl Report {
                 // Counted as the causes are, last in a tie: a cause named at one increment
                 // does not stand for eleven that nothing explains.
                 add("unexplained", usize::MAX);
+            }
+        }
+        if counts.is_empty() {
+            // The path's increments passed: the failure is a regression case's.
+            if let Some(c) = self.failed_cases().first() {
+                return c.finding.clone();
             }
         }
         counts.sort_by(|a, b| b.1.cmp(&a.1).then(a.2.cmp(&b.2)));

@@ -297,7 +297,23 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
 }
 
 fn verdict(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
+    let cases_only = r.failing().next().is_none() && !r.failed_cases().is_empty();
     let what = match r.verdict {
+        // The path passed; a regression case replayed with it did not.
+        Verdict::TangentFailure | Verdict::RoutineFault if cases_only => {
+            let n = r.failed_cases().len();
+            let all = r.cases.as_ref().map_or(n, |c| c.passed.len() + n);
+            return writeln!(
+                out,
+                "   verdict: {} — {n} of {all} regression cases still {} (first {}: {}); the path's increments \
+                 passed (exit {})",
+                p.verdict(r.verdict.word()),
+                if r.verdict == Verdict::RoutineFault { "fail or fault" } else { "fail" },
+                r.failed_cases()[0].file,
+                r.failed_cases()[0].finding,
+                r.exit_code()
+            );
+        }
         Verdict::Pass => {
             "the returned tangent is the derivative of the stress update at every increment checked"
         }
