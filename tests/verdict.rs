@@ -316,3 +316,45 @@ fn an_increment_names_first_the_cause_the_path_agrees_on_where_it_explains_too()
         assert_eq!(inc[k], r.increments[k]);
     }
 }
+
+/// The reference J2 whose stress is NaN wherever the strain at the end of the call is past
+/// `self.1` in its first component, in the real routine only (its complex-step twin is clean).
+struct NanPast(ModelRoutine<tancheck::models::AnyModel>, f64);
+
+impl tancheck::core::Routine for NanPast {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.0.call(input, output)?;
+        if input.strain[0] + input.dstrain[0] > self.1 {
+            output.stress[0] = f64::NAN;
+        }
+        Ok(())
+    }
+    fn complex(&mut self) -> Option<&mut dyn tancheck::core::ComplexRoutine> {
+        self.0.complex()
+    }
+}
+
+// A routine that returns NaN just past the end of an increment it computes (a barely plastic
+// step without a guard) fails there as `non-finite-derivative`, naming the column, whatever
+// the complex step says (it passed: the twin's derivative cleared it; found by a user-style
+// sweep of a Johnson–Cook routine). The increment's own stress is finite and not flagged.
+#[test]
+fn a_perturbed_call_returning_nan_fails_even_where_the_complex_step_agrees() {
+    let e = 1e-3;
+    for schemes in [Settings::default(), only(Scheme::Central)] {
+        let mut m = NanPast(reference("j2", PointKind::Solid3d).unwrap(), e);
+        let r = run(&mut m, &WORKED, &one([e, 0.0, 0.0, 0.0, 0.0, 0.0]), &schemes);
+        assert_eq!(r.verdict, Verdict::TangentFailure, "{}", summary(&r));
+        assert_eq!(r.finding(), "non-finite-derivative", "{}", summary(&r));
+        let d = r.increments[0].diagnosis.as_ref().unwrap();
+        assert!(d.reason.contains("column 11") && d.reason.contains("not a finite number"), "{}", d.reason);
+        assert!(r.increments[0].non_finite.is_empty());
+    }
+    // Away from the NaN the same routine passes.
+    let mut m = NanPast(reference("j2", PointKind::Solid3d).unwrap(), 2.0 * e);
+    let r = run(&mut m, &WORKED, &one([e, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
+    assert_eq!(r.verdict, Verdict::Pass, "{}", summary(&r));
+}

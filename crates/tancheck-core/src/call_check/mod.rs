@@ -465,7 +465,28 @@ pub fn judge(
                 _ => None,
             })
             .min_by(|a, b| a.0.total_cmp(&b.0));
+        let conv = &caller.info().convention;
+        let non_finite_quotient = measured
+            .iter()
+            .filter(|m| m.scheme != Scheme::ComplexStep && m.outcome.is_none())
+            .find_map(|m| {
+                let column = |j: usize| m.tangent[j * n..(j + 1) * n].iter().any(|x| !x.is_finite());
+                let what = match (0..n).find(|&j| column(j)) {
+                    Some(j) => format!("column {}", conv.order()[j].label()),
+                    None => match &m.dtemp {
+                        Some(Ok(col)) if col[..n].iter().any(|x| !x.is_finite()) => "∂σ/∂T".into(),
+                        _ => return None,
+                    },
+                };
+                Some(format!(
+                    "the {} difference's {what} at its default step {:.2e} is not a finite number: a \
+                     perturbed call returned a stress that is not (the base call's is)",
+                    m.scheme.name(),
+                    m.h
+                ))
+            });
         let ctx = Context {
+            non_finite_quotient,
             returned,
             dtemp_real,
             dtemp: returned_dtemp.zip(failed_dtemp.as_deref()),

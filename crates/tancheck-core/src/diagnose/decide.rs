@@ -105,6 +105,9 @@ pub struct Observed {
     pub dtemp_twin: Option<DtempTwin>,
     /// Ranked cause trials, when made.
     pub causes: Option<Vec<Hypothesis>>,
+    /// Where a real scheme's perturbed calls at the default step returned stresses that are
+    /// not finite numbers (the base call's were), in words.
+    pub non_finite_quotient: Option<String>,
 }
 
 /// The finding of an increment.
@@ -297,6 +300,24 @@ pub fn dtemp_excuse(o: &Observed) -> Option<String> {
 
 /// Decide the finding of one increment from its evidence. No I/O, no routine calls.
 pub fn decide(o: &Observed) -> Decision {
+    // A perturbed call next to an input the routine computes returned NaN or ∞: no agreement
+    // elsewhere (the complex step's, one side of a kink) clears that (a routine returning NaN
+    // just past its yield point passed, the complex step agreeing; found by a user-style
+    // sweep). A Newton iterate lands there as easily as the check's step does.
+    if let Some(w) = &o.non_finite_quotient {
+        return Decision {
+            pass: false,
+            reason: format!(
+                "{w}: the routine returns values that are not finite numbers next to an input it \
+                 computes, where a solver's iterate may land; it must return finite numbers there or \
+                 refuse the increment (a status)"
+            ),
+            finding: NON_FINITE_FINDING.into(),
+            twin_unsafe: false,
+            needs_causes: false,
+            trust_twin: o.complex.is_some(),
+        };
+    }
     match dtemp_excuse(o) {
         None => decide_tangent(o),
         Some(why) => {

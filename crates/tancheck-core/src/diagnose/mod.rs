@@ -105,6 +105,9 @@ pub struct Context<'a> {
     /// increment only when it reaches that (a forward study at its own, looser tolerance must
     /// not clear a failed central check).
     pub failed_tol: f64,
+    /// Where a real scheme's perturbed calls at the default step returned stresses that are
+    /// not finite numbers, the base call's being finite ([`decide::Observed::non_finite_quotient`]).
+    pub non_finite_quotient: Option<String>,
 }
 
 fn tangent(
@@ -231,6 +234,7 @@ pub fn run(
         dtemp_complex: ctx.dtemp_complex,
         dtemp_twin,
         causes: None,
+        non_finite_quotient: ctx.non_finite_quotient.clone(),
     };
     let mut decision = decide::decide(&observed);
     let mut refinement = None;
