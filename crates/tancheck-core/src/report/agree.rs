@@ -4,10 +4,27 @@
 //! every increment but those that only heat, where the tangent at the start temperature
 //! explains as well; a continuum tangent behind a bulk modulus at a hydrostatic state of a
 //! porous plasticity routine). Such an increment names first the cause the most other
-//! failing increments name first, where that cause explains it too, and says so.
+//! failing increments name first, where that cause explains it as well (leaving an error of
+//! the same order), and says so.
 
 use super::IncrementResult;
-use crate::diagnose::Cause;
+use crate::diagnose::{Cause, Hypothesis};
+
+/// A cause explains an increment as well as its best one when the error it leaves is at most
+/// this many times the best one's, or below [`AS_WELL_FLOOR`]: named along the path, it must
+/// not stand in for a cause that explains the increment exactly (a continuum tangent leaving
+/// 1.1e-7 named over a start temperature leaving 2e-16; a continuum tangent leaving 2.2e-3 over
+/// one column leaving 0, found by user-style sweeps). Why 100 and 1e-8: two corrections of one
+/// flaw measured against the same reference leave errors within a decade or two of each other
+/// (the reference's own noise), and 1e-8 is below any tolerance a scheme is judged by.
+const AS_WELL: f64 = 100.0;
+const AS_WELL_FLOOR: f64 = 1e-8;
+
+/// Whether `h` explains its increment as well as the best of `all`.
+fn as_well(h: &Hypothesis, all: &[Hypothesis]) -> bool {
+    let best = all.iter().filter(|x| x.explains).map(|x| x.error_left).fold(f64::INFINITY, f64::min);
+    h.explains && h.error_left <= (AS_WELL * best).max(AS_WELL_FLOOR)
+}
 
 /// Put first, at each failing increment it explains, the cause the path agrees on: the one
 /// that explains the most failing increments (at least two; ties to the one named first at
@@ -25,7 +42,7 @@ pub fn agree_on_causes(increments: &mut [IncrementResult]) {
         let Some(d) = inc.diagnosis.as_ref() else { continue };
         let Some(first) = cause_of(&d.finding) else { continue };
         let mut seen: Vec<Cause> = Vec::new();
-        for h in d.causes.iter().filter(|h| h.explains) {
+        for h in d.causes.iter().filter(|h| as_well(h, &d.causes)) {
             if seen.contains(&h.cause) {
                 continue;
             }
@@ -65,7 +82,9 @@ pub fn agree_on_causes(increments: &mut [IncrementResult]) {
         }
         let Some(d) = inc.diagnosis.as_mut() else { continue };
         let Some(own) = cause_of(&d.finding).filter(|c| *c != lead) else { continue };
-        let Some(at) = d.causes.iter().position(|h| h.cause == lead && h.explains) else { continue };
+        let Some(at) = d.causes.iter().position(|h| h.cause == lead && as_well(h, &d.causes)) else {
+            continue;
+        };
         let h = d.causes.remove(at);
         d.causes.insert(0, h);
         d.finding = lead.name().into();
