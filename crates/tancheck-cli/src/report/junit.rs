@@ -376,4 +376,27 @@ mod tests {
         assert!(out.contains("<testsuites name=\"a\" tests=\"2\" failures=\"1\" errors=\"0\">"), "{out}");
         assert!(out.contains("<testsuite name=\"s\" tests=\"2\" skipped=\"0\""), "{out}");
     }
+
+    // A block routine whose point is deleted along the path: its deletion check ran and
+    // passed, and is a passed test case (it was skipped as "turned off in the manifest's block
+    // section"; a user-style sweep). The worked Johnson–Cook block path of the selftest.
+    #[test]
+    fn a_deletion_check_that_ran_is_no_skipped_case() {
+        use tancheck_core::block;
+        use tancheck_models::block::worked::{jc_path, jc_settings, jc_steel};
+        let mut r = tancheck_models::block::by_name("johnson-cook-block", tancheck_core::PointKind::Solid3d)
+            .unwrap()
+            .unwrap();
+        let report = block::run(r.as_mut(), &jc_steel(0.014), &jc_path(), &jc_settings(293.0)).unwrap();
+        assert!(report.passed(), "{:?}", report.findings);
+        assert!(report.increments.iter().any(|i| i.deleted), "a point is deleted on this path");
+        let xml = block_junit(&report).unwrap();
+        assert!(!xml.contains("turned off"), "{xml}");
+        let case = xml.split("<testcase name=\"deletion\"").nth(1).unwrap();
+        let case = &case[..case
+            .find("</testcase>")
+            .unwrap_or(case.len())
+            .min(case.find("<testcase").unwrap_or(usize::MAX))];
+        assert!(!case.contains("<skipped"), "{xml}");
+    }
 }
