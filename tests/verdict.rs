@@ -365,3 +365,50 @@ fn a_perturbed_call_returning_nan_fails_even_where_the_complex_step_agrees() {
     let r = run(&mut m, &WORKED, &one([e, 0.0, 0.0, 0.0, 0.0, 0.0]), &Settings::default());
     assert_eq!(r.verdict, Verdict::Pass, "{}", summary(&r));
 }
+
+/// The reference J2 whose complex-step twin refuses (a status) every call of the first two
+/// increments, where the real routine computes them: the twin takes another branch there.
+struct RefusingTwin(ModelRoutine<tancheck::models::AnyModel>);
+
+impl tancheck::core::Routine for RefusingTwin {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.0.call(input, output)
+    }
+    fn complex(&mut self) -> Option<&mut dyn tancheck::core::ComplexRoutine> {
+        Some(self)
+    }
+}
+
+impl tancheck::core::ComplexRoutine for RefusingTwin {
+    fn call_complex(
+        &mut self,
+        input: &CallInput<'_, num_complex::Complex64>,
+        output: &mut CallOutput<'_, num_complex::Complex64>,
+    ) -> Result<(), Fault> {
+        if input.increment <= 2 {
+            output.outcome.status = 2;
+            return Err(Fault::Status { status: 2, message: "no convergence".into(), largest_fraction: 1.0 });
+        }
+        use tancheck::core::Routine;
+        self.0.complex().expect("the reference J2 has a twin").call_complex(input, output)
+    }
+}
+
+// A twin that refuses calls the real routine computes (an unguarded power of zero whose NaN
+// derivative part turns its yield test) is not complex-step safe: TWIN (exit 4) with the real
+// schemes' checks standing, not a fault of the routine (it was exit 3; a user-style sweep of a
+// Johnson–Cook routine).
+#[test]
+fn a_twin_refusing_calls_the_real_routine_computes_is_twin_not_safe() {
+    use tancheck::core::path::Shape;
+    let mut m = RefusingTwin(reference("j2", PointKind::Solid3d).unwrap());
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 6, 2);
+    let r = run(&mut m, &WORKED, &path, &Settings::default());
+    assert_eq!(r.verdict, Verdict::TwinNotSafe, "{}", summary(&r));
+    assert_eq!(r.exit_code(), 4);
+    let d = r.increments[0].diagnosis.as_ref().expect("the increment is judged in full");
+    assert!(d.pass && d.twin_unsafe && d.reason.contains("refused a call"), "{}", d.reason);
+}

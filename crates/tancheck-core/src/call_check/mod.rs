@@ -134,6 +134,10 @@ pub struct Measurement {
     /// The floor of a strain column's norm in those distances (the entry floor times the
     /// returned tangent's norm).
     column_floor: f64,
+    /// The complex-step twin refused a call (a status) at an input the real routine computes:
+    /// in words. The complex step's results are set aside, and the twin is not complex-step
+    /// safe.
+    twin_refused: Option<String>,
 }
 
 impl Measurement {
@@ -190,6 +194,7 @@ pub fn measure_call(
     // comparisons: the soft directions are found once, from the sharpest numerical tangent,
     // and every scheme is measured along them.
     let mut measured: SmallVec<[Measured; 2]> = SmallVec::with_capacity(settings.schemes.len());
+    let mut twin_refused: Option<String> = None;
     let (mut straddled, mut straddle_distance) = (0u8, [0.0; 7]);
     let column_floor = settings.entry_floor
         * returned[..n * n].iter().map(|x| x * x).sum::<f64>().sqrt().max(f64::MIN_POSITIVE);
@@ -248,7 +253,13 @@ pub fn measure_call(
         if let Err((j, f)) = columns {
             let what =
                 format!("dstrain[{j}] {} {h:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
-            m.outcome = Some(CheckOutcome::Fault(fault_record(&f, driver, Some(what))));
+            m.outcome = Some(match twin_refusal(scheme, &f, &what) {
+                Some(w) => {
+                    twin_refused.get_or_insert(w);
+                    CheckOutcome::Skipped { reason: TWIN_REFUSED.into() }
+                }
+                None => CheckOutcome::Fault(fault_record(&f, driver, Some(what))),
+            });
         }
         if returned_dtemp.is_some() {
             let ht = ss.rel_step * h_temp_scale;
@@ -271,7 +282,15 @@ pub fn measure_call(
             m.dtemp = Some(match made {
                 Ok(()) => Ok(col),
                 Err(f) => {
-                    Err(CheckOutcome::Fault(fault_record(&f, driver, Some(format!("dtemp ± {ht:.3e}")))))
+                    let what =
+                        format!("dtemp {} {ht:.3e}", if scheme == Scheme::ComplexStep { "+ i" } else { "±" });
+                    Err(match twin_refusal(scheme, &f, &what) {
+                        Some(w) => {
+                            twin_refused.get_or_insert(w);
+                            CheckOutcome::Skipped { reason: TWIN_REFUSED.into() }
+                        }
+                        None => CheckOutcome::Fault(fault_record(&f, driver, Some(what))),
+                    })
                 }
             });
             if let (Scheme::Central, Some(Ok(_)), Some(ret), true) =
@@ -326,7 +345,30 @@ pub fn measure_call(
         straddled,
         straddle_distance,
         column_floor,
+        twin_refused,
     })
+}
+
+/// The reason of a complex-step comparison the twin's refusal set aside (the diagnosis says
+/// which call, and why).
+pub const TWIN_REFUSED: &str = "twin refused a call";
+
+/// A status the complex-step twin returned for a call whose real part the routine computes
+/// (the base call, at the same real inputs, returned none): the twin takes another branch or
+/// test than the real routine there (an unguarded power of zero whose derivative part is NaN
+/// spread into the real part; a complex comparison), so it is not complex-step safe, and the
+/// routine is not at fault (it was, exit 3; a user-style sweep of a Johnson–Cook routine).
+/// In words, or `None` for another fault or scheme.
+fn twin_refusal(scheme: Scheme, f: &Fault, what: &str) -> Option<String> {
+    match (scheme, f) {
+        (Scheme::ComplexStep, Fault::Status { .. }) => Some(format!(
+            "the complex-step twin refused a call (perturbation {what}) whose real inputs the routine \
+             computes ({f}): the twin takes another branch there than the real routine, and is not \
+             complex-step safe (a power or square root of zero whose derivative part is NaN, a test on \
+             a complex value?)"
+        )),
+        _ => None,
+    }
 }
 
 /// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
@@ -525,6 +567,22 @@ pub fn judge(
             }
             Err(f) => return Err(f),
         });
+    }
+    if let Some(w) = &me.twin_refused {
+        match &mut out.diagnosis {
+            Some(d) => {
+                d.twin_unsafe = true;
+                d.reason = format!("{}; {w}", d.reason);
+            }
+            None => {
+                let mut d = diagnose::Diagnosis::stopped("");
+                d.pass = out.passed();
+                d.reason = format!("{w}; the real schemes' checks stand");
+                d.finding = if d.pass { diagnose::TWIN_FINDING.into() } else { "undiagnosed".into() };
+                d.twin_unsafe = true;
+                out.diagnosis = Some(d);
+            }
+        }
     }
     Ok(out)
 }

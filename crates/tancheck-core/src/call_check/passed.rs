@@ -28,6 +28,10 @@ impl Measurement {
             return None;
         }
         let soft = self.soft.as_ref()?;
+        // A twin that refused a call is judged in full (`judge` says so).
+        if self.twin_refused.is_some() {
+            return None;
+        }
         // A column the central difference straddles at a kink is looked at again (`judge`).
         if self.straddled != 0 {
             return None;
