@@ -178,6 +178,63 @@ fn one_time_increment_is_flagged_where_the_rate_first_enters() {
     assert!(!r.coverage.iter().any(|c| c.contains("same time")), "{:?}", r.coverage);
 }
 
+/// The reference Johnson–Cook routine with one more state variable, a flag it sets on its first
+/// call (as a routine setting thresholds from its properties does): the first increment changes
+/// the state without any rate.
+struct FlagsFirstCall(tancheck::core::ModelRoutine<tancheck::models::AnyModel>, tancheck::core::RoutineInfo);
+
+impl Routine for FlagsFirstCall {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.1
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let m = self.1.nstate - 1;
+        let inner = tancheck::core::CallInput { state0: &input.state0[..m], ..*input };
+        let (state, flag) = output.state.split_at_mut(m);
+        let mut out = tancheck::core::CallOutput {
+            stress: &mut *output.stress,
+            state,
+            tangent: &mut *output.tangent,
+            dstress_dtemp: &mut *output.dstress_dtemp,
+            energy: &mut *output.energy,
+            outcome: &mut *output.outcome,
+        };
+        self.0.call(&inner, &mut out)?;
+        flag[0] = 1.0;
+        Ok(())
+    }
+}
+
+// The same with a routine that sets a flag of its state on the first call: the first increment
+// that changed the state is the first, which does not depend on the time, and the warning
+// looks further, at the first increment after it that changed the state (a ply routine with a
+// viscous damage law passed with no word; a user-style sweep).
+#[test]
+fn one_time_increment_is_flagged_past_a_state_set_on_the_first_call() {
+    let inc = |e: f64| tancheck::core::PathIncrement {
+        dtime: 1e-6,
+        ..tancheck::core::PathIncrement::strain([e, -0.5 * e, -0.5 * e, 0.0, 0.0, e])
+    };
+    let mut increments = vec![inc(5e-4)];
+    increments.extend((0..4).map(|_| inc(1.5e-3)));
+    let path = Path { name: "elastic, then plastic".into(), increments };
+    let model = reference("johnson-cook", PointKind::Solid3d).unwrap();
+    let mut info = model.info().clone();
+    info.nstate += 1;
+    let mut r = FlagsFirstCall(model, info.clone());
+    let mut caller = Caller::new(&mut r);
+    let r =
+        check::run(&mut caller, &JC, PointState::zero(&info, 400.0), &path, &Settings::default()).unwrap();
+    assert!(r.records[0].state_changed, "the flag changes the state at the first increment");
+    let said: Vec<&String> =
+        r.coverage.iter().filter(|c| c.contains("every increment takes the same time")).collect();
+    assert_eq!(said.len(), 1, "{:?}", r.coverage);
+}
+
 /// The thermal reference model, failing with a status from increment `from` on.
 struct FailsFrom(tancheck::core::ModelRoutine<tancheck::models::AnyModel>, i32);
 

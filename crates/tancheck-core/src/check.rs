@@ -173,13 +173,26 @@ fn run_path(
         (Some(inc), Some(start)) if one_dtime && !increments.any_fault && !increments.is_empty() => {
             match first_calls::depends_on_time(caller, &info, props, start, inc) {
                 Some(false) => {
-                    match increments.records.iter().find(|r| r.state_changed).map(|r| r.index as usize) {
-                        Some(k) if k > 1 => {
-                            first_calls::depends_on_time_at(caller, &info, props, start, path, k)
-                                .map(|t| t.then_some(k))
+                    // The first increment after the first that changed the state, and the last
+                    // one that did: a routine that sets its state on the first call (thresholds,
+                    // a flag) changes it there without any rate (a ply routine with viscous
+                    // damage passed unwarned; a user-style sweep).
+                    let changed =
+                        || increments.records.iter().filter(|r| r.state_changed).map(|r| r.index as usize);
+                    let mut at: Vec<usize> = changed().filter(|&k| k > 1).take(1).collect();
+                    at.extend(changed().rfind(|&k| k > 1).filter(|k| !at.contains(k)));
+                    let mut found = Some(None);
+                    for k in at {
+                        match first_calls::depends_on_time_at(caller, &info, props, start, path, k) {
+                            Some(true) => {
+                                found = Some(Some(k));
+                                break;
+                            }
+                            Some(false) => {}
+                            None => found = None,
                         }
-                        _ => Some(None),
                     }
+                    found
                 }
                 t => t.map(|t| t.then_some(1)),
             }

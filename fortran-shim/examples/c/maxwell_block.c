@@ -15,6 +15,9 @@
  *                             point, kept in a static (right only while every point has it)
  *   c_maxwell_block_static_dissipation  sums the dissipated energy in a static over all
  *                             calls instead of from the point's energy at the start
+ *   c_maxwell_block_backward_euler  correct too, but updates the branch by backward Euler,
+ *                             h = (h_n + 2 G_1 de) / (1 + dt/tau): first order in dt, and far
+ *                             from that order while dt is many relaxation times
  *
  * Properties [K, G_inf, G_1, tau]: bulk modulus, equilibrium and branch shear moduli,
  * relaxation time. State [h (ncomp)]: the branch's deviatoric stress (shear entries as
@@ -42,7 +45,8 @@ enum maxwell_flaw {
     MAXWELL_REAL_TWIN,
     MAXWELL_NEIGHBOUR_DENSITY,
     MAXWELL_FIRST_DENSITY,
-    MAXWELL_STATIC_DISSIPATION
+    MAXWELL_STATIC_DISSIPATION,
+    MAXWELL_BACKWARD_EULER
 };
 
 /* h:h of a deviatoric stress in Voigt form (shear entries counted twice). */
@@ -83,8 +87,12 @@ static void TC_NAME(maxwell)(const tc_block *block, const tc_real *properties, c
             continue;
         }
         /* a = exp(-dt/tau); the branch's effective modulus factor (tau/dt)(1 - a), 1 at dt = 0. */
-        const tc_real a = dt > 0.0 ? tc_exp(-dt / tau) : tc_cst(1.0);
-        const tc_real f = dt > 0.0 ? (tau / dt) * (1.0 - a) : tc_cst(1.0);
+        tc_real a = dt > 0.0 ? tc_exp(-dt / tau) : tc_cst(1.0);
+        tc_real f = dt > 0.0 ? (tau / dt) * (1.0 - a) : tc_cst(1.0);
+        if (flaw == MAXWELL_BACKWARD_EULER) {
+            a = 1.0 / (1.0 + dt / tau);
+            f = a;
+        }
         const tc_real tr = e0[0] + e0[1] + e0[2] + dtr;
         for (int i = 0; i < n; ++i) {
             /* tensor components of the deviatoric strain and of its increment */
@@ -144,4 +152,10 @@ TC_BLOCK_ROUTINE(c_maxwell_block_static_dissipation)
 {
     (void)report;
     TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_STATIC_DISSIPATION);
+}
+
+TC_BLOCK_ROUTINE(c_maxwell_block_backward_euler)
+{
+    (void)report;
+    TC_NAME(maxwell)(MAXWELL_ARGS, MAXWELL_BACKWARD_EULER);
 }

@@ -21,11 +21,14 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 mod columns;
+mod odd_calls;
 mod one_sided;
 mod passed;
 mod records;
 mod straddle;
 use columns::{strain_columns, ColumnCalls};
+use odd_calls::twin_refusal;
+pub use odd_calls::TWIN_REFUSED;
 use one_sided::OneSided;
 pub(crate) use one_sided::ONE_SIDED;
 pub use records::{call_record, fault_record, fault_record_of_call};
@@ -95,6 +98,8 @@ impl CallCheck {
 struct Measured {
     scheme: Scheme,
     h: f64,
+    /// The step of the ∂σ/∂T column (temperature units).
+    ht: f64,
     tangent: [f64; 36],
     /// Why there is no tangent to compare (skipped, or a call faulted).
     outcome: Option<CheckOutcome>,
@@ -201,10 +206,12 @@ pub fn measure_call(
     for &scheme in &settings.schemes {
         let ss = settings.scheme(scheme);
         let h = ss.rel_step * h_strain_scale;
+        let ht = ss.rel_step * h_temp_scale;
         // Written in place (a tangent is 36 numbers: no copies of it per scheme).
         measured.push(Measured {
             scheme,
             h,
+            ht,
             tangent: [0.0; 36],
             outcome: None,
             dtemp: None,
@@ -262,7 +269,6 @@ pub fn measure_call(
             });
         }
         if returned_dtemp.is_some() {
-            let ht = ss.rel_step * h_temp_scale;
             let mut col = [0.0; 6];
             let mut straddle_look = true;
             let made =
@@ -349,28 +355,6 @@ pub fn measure_call(
     })
 }
 
-/// The reason of a complex-step comparison the twin's refusal set aside (the diagnosis says
-/// which call, and why).
-pub const TWIN_REFUSED: &str = "twin refused a call";
-
-/// A status the complex-step twin returned for a call whose real part the routine computes
-/// (the base call, at the same real inputs, returned none): the twin takes another branch or
-/// test than the real routine there (an unguarded power of zero whose derivative part is NaN
-/// spread into the real part; a complex comparison), so it is not complex-step safe, and the
-/// routine is not at fault (it was, exit 3; a user-style sweep of a Johnson–Cook routine).
-/// In words, or `None` for another fault or scheme.
-fn twin_refusal(scheme: Scheme, f: &Fault, what: &str) -> Option<String> {
-    match (scheme, f) {
-        (Scheme::ComplexStep, Fault::Status { .. }) => Some(format!(
-            "the complex-step twin refused a call (perturbation {what}) whose real inputs the routine \
-             computes ({f}): the twin takes another branch there than the real routine, and is not \
-             complex-step safe (a power or square root of zero whose derivative part is NaN, a test on \
-             a complex value?)"
-        )),
-        _ => None,
-    }
-}
-
 /// Check the driver's current increment (as set, or rescaled, or solved for mixed control):
 /// the base call (made again, with the driver's strain increment), every scheme of
 /// `settings`, and the diagnosis when a check fails and `settings.diagnose` is on. `previous`
@@ -440,7 +424,8 @@ pub fn judge(
             (_, Some(Err(fault))) => Some(fault.clone()),
             _ => None,
         };
-        checks.push(SchemeCheck { scheme: m.scheme, step: m.h, tangent, dstress_dtemp });
+        let temperature_step = dstress_dtemp.is_some().then_some(m.ht);
+        checks.push(SchemeCheck { scheme: m.scheme, step: m.h, tangent, dstress_dtemp, temperature_step });
     }
     let non_finite = non_finite_outputs(driver, "");
     let mut out = CallCheck {
@@ -507,26 +492,7 @@ pub fn judge(
                 _ => None,
             })
             .min_by(|a, b| a.0.total_cmp(&b.0));
-        let conv = &caller.info().convention;
-        let non_finite_quotient = measured
-            .iter()
-            .filter(|m| m.scheme != Scheme::ComplexStep && m.outcome.is_none())
-            .find_map(|m| {
-                let column = |j: usize| m.tangent[j * n..(j + 1) * n].iter().any(|x| !x.is_finite());
-                let what = match (0..n).find(|&j| column(j)) {
-                    Some(j) => format!("column {}", conv.order()[j].label()),
-                    None => match &m.dtemp {
-                        Some(Ok(col)) if col[..n].iter().any(|x| !x.is_finite()) => "∂σ/∂T".into(),
-                        _ => return None,
-                    },
-                };
-                Some(format!(
-                    "the {} difference's {what} at its default step {:.2e} is not a finite number: a \
-                     perturbed call returned a stress that is not (the base call's is)",
-                    m.scheme.name(),
-                    m.h
-                ))
-            });
+        let non_finite_quotient = odd_calls::non_finite_quotient(measured, n, &caller.info().convention);
         let ctx = Context {
             non_finite_quotient,
             returned,

@@ -44,6 +44,11 @@ pub const TWIN_FINDING: &str = "twin-not-complex-step-safe";
 /// of the step studies: the perturbed calls' stresses are not finite.
 pub const NON_FINITE_FINDING: &str = "non-finite-derivative";
 
+/// The reason of [`NON_FINITE_FINDING`] when no step of any study gives a finite quotient.
+const NOT_FINITE_EVERYWHERE: &str = "at every step tried the difference quotients are not finite \
+numbers: the perturbed calls returned stresses that are not finite (computed from an output the call \
+did not write, such as a tangent it was not asked for, or from memory it never set?)";
+
 /// The usual reasons a twin is not complex-step safe, for messages.
 pub const TWIN_CULPRITS: &str = "conjugating intrinsics (Fortran dot_product, conjg, C conj; a \
 norm as sqrt(sum |z|^2)), complex abs (cabs, Fortran abs of a complex), a real-only sqrt or \
@@ -313,13 +318,18 @@ pub fn decide(o: &Observed) -> Decision {
     // just past its yield point passed, the complex step agreeing; found by a user-style
     // sweep). A Newton iterate lands there as easily as the check's step does.
     if let Some(w) = &o.non_finite_quotient {
+        let everywhere = !o.studies.is_empty() && o.studies.iter().all(|s| !s.best_error.is_finite());
         return Decision {
             pass: false,
-            reason: format!(
-                "{w}: the routine returns values that are not finite numbers next to an input it \
-                 computes, where a solver's iterate may land; it must return finite numbers there or \
-                 refuse the increment (a status)"
-            ),
+            reason: if everywhere {
+                NOT_FINITE_EVERYWHERE.into()
+            } else {
+                format!(
+                    "{w}: the routine returns values that are not finite numbers next to an input it \
+                     computes, where a solver's iterate may land; it must return finite numbers there or \
+                     refuse the increment (a status)"
+                )
+            },
             finding: NON_FINITE_FINDING.into(),
             twin_unsafe: false,
             needs_causes: false,
@@ -522,10 +532,7 @@ fn decide_tangent(o: &Observed) -> Decision {
     // are not finite numbers (the perturbed calls' stresses are not). No cause of a wrong
     // tangent explains that, so none is tried.
     if !o.studies.is_empty() && o.studies.iter().all(|s| !s.best_error.is_finite()) {
-        d.reason = "at every step tried the difference quotients are not finite numbers: the perturbed \
-                    calls returned stresses that are not finite (computed from an output the call did \
-                    not write, such as a tangent it was not asked for, or from memory it never set?)"
-            .into();
+        d.reason = NOT_FINITE_EVERYWHERE.into();
         d.finding = NON_FINITE_FINDING.into();
         return with_dtemp(o, d);
     }

@@ -119,6 +119,9 @@ pub struct SchemeCheck {
     pub step: f64,
     pub tangent: CheckOutcome,
     pub dstress_dtemp: Option<CheckOutcome>,
+    /// Absolute step of the ∂σ/∂T column in temperature units, when it was measured.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub temperature_step: Option<f64>,
 }
 
 impl SchemeCheck {

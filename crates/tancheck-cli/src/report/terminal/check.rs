@@ -390,7 +390,10 @@ fn details(out: &mut dyn Write, inc: &IncrementResult, c: &SchemeCheck) -> io::R
                     "        {} {what} at increment {}, step {}: norm error {}, worst entry error {} (tolerance {})",
                     c.scheme.name(),
                     inc.index,
-                    sci(c.step),
+                    match (what, c.temperature_step) {
+                        ("dstress/dT", Some(t)) => format!("{} (temperature)", sci(t)),
+                        _ => sci(c.step),
+                    },
                     sci(cmp.norm_error),
                     sci(cmp.worst_entry_error),
                     sci(cmp.tol)

@@ -4,6 +4,7 @@
 use super::*;
 
 mod kink_columns;
+mod temp_nearby;
 mod twin_dtemp;
 mod twin_tangent;
 use crate::diagnose::causes::Cause;
@@ -503,33 +504,6 @@ fn rows() -> Vec<Row> {
             None,
             true,
             "none",
-        ),
-        (
-            // A plane-stress J2 routine with small ∂σ/∂T entries (a user-style sweep): the
-            // one-sided truncation at the smallest step is 1.02e-6 of them, the complex step
-            // (which does not reach the boundary) exact.
-            "∂σ/∂T near a kink in T, the one-sided derivatives just off it, the complex step exact",
-            TempKink {
-                detected: false,
-                nearby: true,
-                gaps: vec![8.4, 6.6, 6.2e-7],
-                ..t_kink(1.02e-6, 1.01e-6, Side::Both)
-            },
-            Some((1.1e-14, 1e-10)),
-            true,
-            "none",
-        ),
-        (
-            "the same without the complex step",
-            TempKink {
-                detected: false,
-                nearby: true,
-                gaps: vec![8.4, 6.6, 6.2e-7],
-                ..t_kink(1.02e-6, 1.01e-6, Side::Both)
-            },
-            None,
-            false,
-            "dtemp",
         ),
         (
             "∂σ/∂T near a kink in T, off the one-sided derivatives below it",
