@@ -278,3 +278,28 @@ fn a_path_stopped_at_a_fault_does_not_say_dtemp_was_never_returned() {
     assert!(r.coverage.iter().any(|c| c.contains("stopped at a fault")), "{:?}", r.coverage);
     assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
 }
+
+// The path stops at the first increment whose outputs are not finite numbers: the increments
+// after it would start from NaN (they were checked from there, the complex step reading "ok 0",
+// and a later status of the routine made the verdict a fault; user-style sweeps). The report
+// names it `non-finite-output` everywhere, the increment's own finding included.
+#[test]
+fn the_path_stops_where_the_outputs_are_not_finite() {
+    let mut r = NanFromThird(reference("j2", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 6, 2);
+    let rep =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    assert_eq!(rep.records.len(), 3, "checked up to the NaN, not past it");
+    assert_eq!(rep.verdict, tancheck::core::Verdict::TangentFailure);
+    assert_eq!(rep.finding(), "non-finite-output");
+    let last = rep.increments.last().unwrap();
+    assert_eq!((last.index, last.finding()), (3, "non-finite-output"));
+    assert!(
+        rep.coverage.iter().any(|c| c.contains("stopped at increment 3 of 8") && c.contains("not finite")),
+        "{:?}",
+        rep.coverage
+    );
+}

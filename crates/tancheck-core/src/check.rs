@@ -205,10 +205,18 @@ fn run_path(
     // A path that stopped at a fault says nothing about what the rest would have reached.
     let stopped = increments.stopped_at;
     if let Some(k) = stopped {
-        coverage.push(format!(
-            "the path stopped at a fault at increment {k} of {}: the increments after it were not checked",
-            path.increments.len()
-        ));
+        coverage.push(if increments.stopped_not_finite {
+            format!(
+                "the path stopped at increment {k} of {}, where the routine returned values that are not \
+                 finite numbers: the increments after it would start from them, and were not checked",
+                path.increments.len()
+            )
+        } else {
+            format!(
+                "the path stopped at a fault at increment {k} of {}: the increments after it were not checked",
+                path.increments.len()
+            )
+        });
     }
     let stopped = stopped.is_some();
     // A routine without state variables has no inelastic branch to reach.

@@ -231,10 +231,16 @@ impl<'s> Walk<'s> {
                         None => format!("increment {}: {said}", k + 1),
                     });
                 }
-                // Non-finite outputs carry the inputs of the call, as a crash does.
+                // Non-finite outputs carry the inputs of the call, as a crash does, and the
+                // path stops there: the next increments would start from them (it went on,
+                // checking increments whose start stress was NaN; user-style sweeps).
                 let non_finite_call = (!cc.non_finite.is_empty()).then(|| judge::call_record(driver, None));
+                let stops = non_finite_call.is_some();
                 driver.advance();
                 collected.push(record(k, driver, solve_log, Some(cc), non_finite_call, None));
+                if stops {
+                    return Step { checked: true, state_changed, stops: true, unloaded, note };
+                }
             }
             (None, Some(schemes)) => {
                 driver.advance();

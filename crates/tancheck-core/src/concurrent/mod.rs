@@ -60,10 +60,12 @@ pub fn redo_on_one_thread(report: &crate::report::Report, guard_findings: bool, 
 /// A call of the check faulted.
 fn faulted(report: &crate::report::Report) -> bool {
     use crate::report::CheckOutcome;
-    report
-        .increments
-        .iter()
-        .any(|i| i.fault.is_some() || i.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_))))
+    report.increments.iter().any(|i| {
+        // Outputs that are not finite numbers stop the path as a fault does.
+        i.fault.is_some()
+            || !i.non_finite.is_empty()
+            || i.checks.iter().any(|c| matches!(c.tangent, CheckOutcome::Fault(_)))
+    })
 }
 
 /// The note for the `serial` report of a check made again on one thread after `threaded`

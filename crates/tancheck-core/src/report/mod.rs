@@ -204,6 +204,8 @@ impl IncrementResult {
         match &self.diagnosis {
             Some(d) => &d.finding,
             None if self.passed() => "none",
+            // No diagnosis is made of outputs that are not finite numbers: that is the finding.
+            None if !self.non_finite.is_empty() => "non-finite-output",
             None => "undiagnosed",
         }
     }

@@ -225,6 +225,8 @@ pub struct Collector {
     pub(crate) branches: Vec<BranchSummary>,
     /// The index of the increment whose base call faulted (the path stops there).
     pub(crate) stopped_at: Option<usize>,
+    /// The path stopped at outputs that are not finite numbers, not at a fault.
+    pub(crate) stopped_not_finite: bool,
     pub(crate) any_fault: bool,
     pub(crate) all_passed: bool,
     pub(crate) twin_unsafe: bool,
@@ -260,6 +262,7 @@ impl Collector {
                 .collect(),
             branches: Vec::new(),
             stopped_at: None,
+            stopped_not_finite: false,
             any_fault: false,
             all_passed: true,
             twin_unsafe: false,
@@ -318,8 +321,9 @@ impl Collector {
                 && !inc.checks.iter().all(SchemeCheck::passed)) as usize;
             b.worst_error = b.worst_error.max(worst);
         }
-        if inc.fault.is_some() && self.stopped_at.is_none() {
+        if (inc.fault.is_some() || !inc.non_finite.is_empty()) && self.stopped_at.is_none() {
             self.stopped_at = Some(inc.index);
+            self.stopped_not_finite = inc.fault.is_none();
         }
         self.any_fault |= inc.fault.is_some()
             || inc.checks.iter().any(|c| {
@@ -451,6 +455,7 @@ impl Collector {
         }
         if self.stopped_at.is_none() {
             self.stopped_at = other.stopped_at;
+            self.stopped_not_finite = other.stopped_not_finite;
         }
         self.any_fault |= other.any_fault;
         self.all_passed &= other.all_passed;

@@ -177,6 +177,10 @@ fn increment(
             }
         })
         .collect();
+    if inc.diagnosis.is_none() && inc.fault.is_none() && !inc.non_finite.is_empty() {
+        // The finding the report names (no diagnosis is made of outputs that are not finite).
+        cells.push(p.fail("-> non-finite-output"));
+    }
     if let Some(d) = &inc.diagnosis {
         cells.push(if d.twin_unsafe && d.pass {
             p.warn(&format!("-> tangent ok; {}", d.finding))
@@ -317,12 +321,9 @@ fn verdict(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         Verdict::Pass => {
             "the returned tangent is the derivative of the stress update at every increment checked"
         }
-        // Only outputs that are not finite numbers, no tangent mismatch.
-        Verdict::TangentFailure
-            if r.failing().all(|i| {
-                !i.non_finite.is_empty() && i.checks.iter().all(tancheck_core::report::SchemeCheck::passed)
-            }) =>
-        {
+        // Only outputs that are not finite numbers (the comparisons of such an increment fail
+        // on them, and the path stops there), no tangent mismatch before.
+        Verdict::TangentFailure if r.failing().all(|i| !i.non_finite.is_empty()) => {
             "the routine returned values that are not finite numbers"
         }
         // Only ∂σ/∂T failed: every failing increment's tangent agreed.
