@@ -45,7 +45,16 @@ pub struct MergeInfo {
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize)]
 pub struct SchemeWorst {
     pub scheme: String,
+    /// NaN or infinite for a routine that returned values that are not finite numbers: written
+    /// as null (JSON has no NaN), read back as NaN (an `--isolate` worker's report and the
+    /// shards `merge` reads could not be read; a user-style sweep).
+    #[serde(deserialize_with = "nan_from_null")]
     pub worst: f64,
+}
+
+/// A number, or null for one that was not finite.
+fn nan_from_null<'de, D: serde::Deserializer<'de>>(d: D) -> Result<f64, D::Error> {
+    Ok(Option::<f64>::deserialize(d)?.unwrap_or(f64::NAN))
 }
 
 /// The result of one item.
@@ -284,4 +293,22 @@ pub fn verdict_line(r: &CampaignReport) -> String {
         if skipped > 0 { format!(", {skipped} skipped") } else { String::new() },
         r.exit_code
     )
+}
+
+#[cfg(test)]
+mod tests {
+    use super::SchemeWorst;
+
+    // A worst error that is not finite goes out as null and comes back as NaN (it could not be
+    // read back: a campaign item with a routine returning NaN broke `--isolate` and `merge`).
+    #[test]
+    fn a_worst_error_that_is_not_finite_reads_back() {
+        let w = SchemeWorst { scheme: "central".into(), worst: f64::NAN };
+        let text = serde_json::to_string(&w).unwrap();
+        assert!(text.contains("null"), "{text}");
+        let back: SchemeWorst = serde_json::from_str(&text).unwrap();
+        assert!(back.worst.is_nan());
+        let finite: SchemeWorst = serde_json::from_str(r#"{"scheme":"central","worst":1.5e-3}"#).unwrap();
+        assert_eq!(finite.worst, 1.5e-3);
+    }
 }
