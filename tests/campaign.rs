@@ -445,3 +445,41 @@ fn the_cases_of_a_routine_expected_to_fail_are_expected_to_fail() {
     assert_eq!(code, Some(1), "{v:#}");
     assert_eq!(items(&v)[0]["as_expected"], false, "{v:#}");
 }
+
+// A routine that never returns, checked in one process on two threads beside an item that
+// finishes: the watchdog ends the campaign at --call-timeout naming the call, whichever thread
+// it runs on (it never fired once the other thread's item finished: the summed call counts
+// moved, and that thread's end stopped the timing; a user-style sweep). The message says what
+// keeps the other items.
+#[test]
+fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
+    let d = scratch("campaign-hang");
+    let examples = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+    for (name, symbol) in [("sleeps.json", "bad_sleep"), ("elastic.json", "c_elastic")] {
+        std::fs::write(
+            d.join(name),
+            format!(
+                r#"{{ "routine": {{ "library": "build/libhang.so", "symbol": "{symbol}", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3] }} }}"#
+            ),
+        )
+        .unwrap();
+    }
+    let file = d.join("hang.json");
+    std::fs::write(
+        &file,
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "hang",
+  "libraries": [ {{ "output": "build/libhang.so", "sources": ["{}", "{}"] }} ],
+  "routines": [ {{ "manifest": "elastic.json" }}, {{ "manifest": "sleeps.json", "expect": "fault" }} ] }}"#,
+            examples.join("misbehave.c").display(),
+            examples.join("elastic.c").display()
+        ),
+    )
+    .unwrap();
+    let started = std::time::Instant::now();
+    let o = bin().arg("campaign").arg(&file).args(["-j", "2", "--call-timeout", "2"]).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(3), "{t}");
+    assert!(t.contains("did not return within 2 s") && t.contains("--isolate"), "{t}");
+    assert!(started.elapsed().as_secs_f64() < 60.0, "took {:?}", started.elapsed());
+}

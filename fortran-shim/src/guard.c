@@ -275,6 +275,8 @@ static inline void watch_leave(void) { __atomic_fetch_add(&own_slot()->ended, 1,
 /* The sums over the slots: calls ended (read first, so that it never exceeds calls begun),
  * calls begun, and a slot whose call runs (the calling thread's first), or NULL. `last` gets
  * the slot of the most calls begun, for the increment of the last call. */
+static int lw_hung_slot = -1; /* atomic: the slot whose call the watchdog found hung */
+
 static void watch_sums(uint64_t *begun, uint64_t *ended, watch_slot **running, watch_slot **last) {
     int used = __atomic_load_n(&watch_used, __ATOMIC_ACQUIRE);
     if (used > WATCH_SLOTS) used = WATCH_SLOTS;
@@ -519,8 +521,11 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     uint64_t begun, ended;
     watch_slot *run, *last;
     watch_sums(&begun, &ended, &run, &last);
-    /* A fault inside a call is that thread's call; otherwise a call running on any thread. */
+    /* A fault inside a call is that thread's call; a call the watchdog found hung is its slot's;
+     * otherwise a call running on any thread. */
     if (in_call == 1 && tc_thread.slot != NULL) run = tc_thread.slot;
+    const int hung = __atomic_load_n(&lw_hung_slot, __ATOMIC_ACQUIRE);
+    if (in_call != 1 && hung >= 0 && hung < WATCH_SLOTS) run = &watch_slots[hung];
     const int running = in_call == 1 || run != NULL;
     const int phase = __atomic_load_n(&watch_phase, __ATOMIC_RELAXED);
     const watch_slot *seen = run != NULL ? run : last;
@@ -1126,6 +1131,25 @@ void tc_guard_watch(uint64_t out[4]) {
 
 /* Last words for a fault the program found (a call that does not return), then exit. */
 void tc_guard_die(int32_t status, const char *what) { last_words(status, 0, -1, what); }
+
+/* The call counters of each thread's slot: begun[i], ended[i] for i below the returned count
+ * (at most max). A watchdog tells a call that does not return on one thread while others go on. */
+int32_t tc_guard_watch_slots(uint64_t *begun, uint64_t *ended, int32_t max) {
+    int used = __atomic_load_n(&watch_used, __ATOMIC_ACQUIRE);
+    if (used > WATCH_SLOTS) used = WATCH_SLOTS;
+    if (used > max) used = max;
+    for (int i = 0; i < used; i++) {
+        begun[i] = __atomic_load_n(&watch_slots[i].begun, __ATOMIC_ACQUIRE);
+        ended[i] = __atomic_load_n(&watch_slots[i].ended, __ATOMIC_ACQUIRE);
+    }
+    return used;
+}
+
+/* tc_guard_die naming the call running in slot `slot` (from tc_guard_watch_slots). */
+void tc_guard_die_slot(int32_t status, int32_t slot, const char *what) {
+    __atomic_store_n(&lw_hung_slot, slot, __ATOMIC_RELEASE);
+    last_words(status, 0, -1, what);
+}
 
 /* Nonzero when this thread has an alternate signal stack (after tc_guard_prepare). */
 int32_t tc_guard_has_altstack(void) {

@@ -33,6 +33,8 @@ extern "C" {
     fn tc_guard_follow_parent(parent: i32) -> i32;
     fn tc_guard_watch(out: *mut u64);
     fn tc_guard_die(status: i32, what: *const c_char) -> !;
+    fn tc_guard_watch_slots(begun: *mut u64, ended: *mut u64, max: i32) -> i32;
+    fn tc_guard_die_slot(status: i32, slot: i32, what: *const c_char) -> !;
     fn tc_guard_finish(status: i32) -> !;
     fn tc_guard_dying() -> i32;
 }
@@ -164,6 +166,23 @@ pub fn watch() -> Watch {
         increment: out[2] as i64,
         loading: out[3] == Phase::Loading as u64,
     }
+}
+
+/// The call counters of each thread that called a routine, (begun, ended) per thread: a call
+/// runs on a thread while they differ. Into `out` (cleared first), at most 64 threads.
+pub fn slots(out: &mut Vec<(u64, u64)>) {
+    let (mut b, mut e) = ([0u64; 64], [0u64; 64]);
+    // SAFETY: two valid out-arrays of 64.
+    let n = unsafe { tc_guard_watch_slots(b.as_mut_ptr(), e.as_mut_ptr(), 64) };
+    out.clear();
+    out.extend((0..n.max(0) as usize).map(|i| (b[i], e[i])));
+}
+
+/// [`die`] naming the call running on thread slot `slot` (an index of [`slots`]).
+pub fn die_slot(status: i32, slot: usize, what: &str) -> ! {
+    let w = c(what);
+    // SAFETY: a NUL-terminated string; the C side never returns.
+    unsafe { tc_guard_die_slot(status, slot as i32, w.as_ptr()) }
 }
 
 /// Last words for a fault the program found (`what`, e.g. a call that never returns), with

@@ -17,7 +17,7 @@ use std::io::{LineWriter, Write};
 use std::mem::ManuallyDrop;
 use std::os::fd::FromRawFd;
 use std::path::Path;
-use std::sync::atomic::{AtomicBool, Ordering};
+use std::sync::atomic::{AtomicBool, AtomicUsize, Ordering};
 use std::sync::OnceLock;
 use std::time::{Duration, Instant};
 
@@ -35,7 +35,9 @@ pub const DEFAULT_SUITE_TIMEOUT: f64 = 600.0;
 pub use crate::worker_env::HEARTBEAT_ENV;
 
 static TOOL_STDOUT: OnceLock<Option<i32>> = OnceLock::new();
-static CHECKING: AtomicBool = AtomicBool::new(false);
+/// How many checks are running (a campaign checks several items at once, on several threads):
+/// the watchdog times calls while any is.
+static CHECKING: AtomicUsize = AtomicUsize::new(0);
 static ARMED: AtomicBool = AtomicBool::new(false);
 static WATCHDOG: OnceLock<()> = OnceLock::new();
 /// Whether the watchdog prints its "still checking" lines (off under -q).
@@ -110,10 +112,15 @@ pub fn stdout_is_terminal() -> bool {
 
 /// The routine's calls begin (the watchdog times them) or are over (the report is written).
 pub fn checking(on: bool) {
-    CHECKING.store(on, Ordering::SeqCst);
+    let now = if on {
+        CHECKING.fetch_add(1, Ordering::SeqCst) + 1
+    } else {
+        let before = CHECKING.fetch_update(Ordering::SeqCst, Ordering::SeqCst, |n| Some(n.saturating_sub(1)));
+        before.unwrap_or(0).saturating_sub(1)
+    };
     // Only in the program (armed by `init`): a library using this crate keeps its exits.
     if ARMED.load(Ordering::SeqCst) {
-        watch::set_phase(if on { Phase::Checking } else { Phase::Reporting });
+        watch::set_phase(if now > 0 { Phase::Checking } else { Phase::Reporting });
     }
 }
 
@@ -280,6 +287,15 @@ pub fn parse_seconds(s: &str) -> std::result::Result<f64, String> {
     Ok(v)
 }
 
+/// What the message of a call that does not return says sets the limit, where it is not
+/// `--call-timeout` (a campaign's).
+static TIMEOUT_HINT: std::sync::OnceLock<&'static str> = std::sync::OnceLock::new();
+
+/// Say how the limit on a call is set, for the message of one that does not return.
+pub fn set_timeout_hint(hint: &'static str) {
+    let _ = TIMEOUT_HINT.set(hint);
+}
+
 /// How often a long check says it is still running: a third of the call time limit, between
 /// 1 and 10 seconds.
 fn progress_interval(call_timeout: f64) -> Duration {
@@ -319,8 +335,12 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
     let started = Instant::now();
     let every = progress_interval(call_timeout);
     let mut next_progress = started + every;
-    // The call seen running, and since when.
-    let mut seen: Option<(u64, Instant)> = None;
+    // The call seen running, and since when; per thread slot, the call seen running there (its
+    // count of calls begun) and since when: a call that does not return on one thread while
+    // others go on (a campaign's items on two threads) is found too (it was not: the summed
+    // counts kept moving, and one thread's end of its check stopped the timing of the other).
+    let mut per_slot: Vec<Option<(u64, Instant)>> = Vec::new();
+    let mut slots: Vec<(u64, u64)> = Vec::new();
     // Since when a library has been loading.
     let mut loading: Option<Instant> = None;
     loop {
@@ -341,27 +361,33 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
         } else {
             loading = None;
         }
-        if !CHECKING.load(Ordering::SeqCst) {
-            seen = None;
+        if CHECKING.load(Ordering::SeqCst) == 0 {
+            per_slot.clear();
             continue;
         }
-        if w.in_call() {
-            match seen {
-                Some((begun, since)) if begun == w.calls_begun => {
+        watch::slots(&mut slots);
+        per_slot.resize(slots.len(), None);
+        for (i, &(begun, ended)) in slots.iter().enumerate() {
+            if begun == ended {
+                per_slot[i] = None;
+                continue;
+            }
+            match per_slot[i] {
+                Some((b, since)) if b == begun => {
                     if now.duration_since(since).as_secs_f64() > call_timeout {
-                        watch::die(
+                        watch::die_slot(
                             crate::exit::ROUTINE_FAULT,
+                            i,
                             &format!(
                                 "the routine did not return within {call_timeout} s (an infinite loop, \
-                                 a deadlock or a long sleep?; --call-timeout sets the limit)"
+                                 a deadlock or a long sleep?; {})",
+                                TIMEOUT_HINT.get().copied().unwrap_or("--call-timeout sets the limit")
                             ),
                         );
                     }
                 }
-                _ => seen = Some((w.calls_begun, now)),
+                _ => per_slot[i] = Some((begun, now)),
             }
-        } else {
-            seen = None;
         }
         if let Some(limit) = suite_timeout {
             if now.duration_since(started).as_secs_f64() > limit {
@@ -373,7 +399,8 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
         }
         if now >= next_progress && PROGRESS_LINES.load(Ordering::SeqCst) {
             next_progress = now + every;
-            let running = match seen {
+            // The longest-running call.
+            let running = match per_slot.iter().flatten().min_by_key(|(_, since)| *since) {
                 Some((_, since)) => {
                     format!(", the current call running for {:.0} s", since.elapsed().as_secs_f64())
                 }

@@ -45,6 +45,12 @@ pub struct CampaignArgs {
     /// Time limit of one item in a worker (--isolate), in seconds.
     #[arg(long, value_name = "SECONDS", default_value_t = 600.0, value_parser = crate::survive::parse_seconds)]
     pub item_timeout: f64,
+    /// Time limit of one routine call in one process (without --isolate), in seconds, on
+    /// whichever thread it runs: a call that does not return ends the campaign there (a thread
+    /// cannot be stopped). With --isolate, --item-timeout limits each item's worker instead,
+    /// and the other items run.
+    #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_CALL_TIMEOUT, value_parser = crate::survive::parse_seconds)]
+    pub call_timeout: f64,
     /// Write the JSON report to FILE (`-` for standard output).
     #[arg(long, value_name = "FILE")]
     pub json: Option<PathBuf>,
@@ -141,7 +147,15 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
     }
     let mut notes = Vec::new();
     let libs = build::build_all(&c, a.build_dir.as_deref(), !a.output.quiet && a.item.is_none(), &mut notes)?;
-    crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
+    if !a.isolate {
+        // In one process a call that does not return ends the campaign (a thread cannot be
+        // stopped); the message says what keeps the other items.
+        crate::survive::set_timeout_hint(
+            "--call-timeout sets the limit; in one process it ends the campaign: `campaign --isolate` \
+             checks each item in a process of its own and goes on past it",
+        );
+    }
+    crate::survive::start_watchdog(a.call_timeout, None);
     let items: Vec<&file::Item> = c
         .items
         .iter()
