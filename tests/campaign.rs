@@ -483,3 +483,63 @@ fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
     assert!(t.contains("did not return within 2 s") && t.contains("--isolate"), "{t}");
     assert!(started.elapsed().as_secs_f64() < 60.0, "took {:?}", started.elapsed());
 }
+
+/// Processes whose environment says they are workers of `parent`.
+fn workers_of(parent: u32) -> Vec<u32> {
+    let want = format!("TANCHECK_WORKER_PARENT={parent}");
+    std::fs::read_dir("/proc")
+        .unwrap()
+        .filter_map(|e| e.ok()?.file_name().to_str()?.parse::<u32>().ok())
+        .filter(|pid| {
+            std::fs::read(format!("/proc/{pid}/environ"))
+                .map(|env| env.split(|&b| b == 0).any(|v| v == want.as_bytes()))
+                .unwrap_or(false)
+        })
+        .collect()
+}
+
+// A campaign's worker dies with its parent, as a check's does (a killed `campaign --isolate`
+// left its worker running a routine that sleeps; a user-style sweep).
+#[test]
+fn a_campaign_worker_dies_with_its_parent() {
+    let d = scratch("campaign-parent-death");
+    let examples = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+    std::fs::write(
+        d.join("sleeps.json"),
+        r#"{ "routine": { "library": "build/libhang.so", "symbol": "bad_sleep", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    let file = d.join("hang.json");
+    std::fs::write(
+        &file,
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "hang",
+  "libraries": [ {{ "output": "build/libhang.so", "sources": ["{}", "{}"] }} ],
+  "routines": [ {{ "manifest": "sleeps.json", "expect": "fault" }} ] }}"#,
+            examples.join("misbehave.c").display(),
+            examples.join("elastic.c").display()
+        ),
+    )
+    .unwrap();
+    let mut child = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--isolate", "-q"])
+        .stdout(std::process::Stdio::null())
+        .stderr(std::process::Stdio::null())
+        .spawn()
+        .unwrap();
+    let pid = child.id();
+    let t0 = std::time::Instant::now();
+    while workers_of(pid).is_empty() {
+        assert!(t0.elapsed().as_secs() < 60, "no worker started");
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+    child.kill().unwrap(); // SIGKILL: the parent has no last words
+    child.wait().unwrap();
+    let t0 = std::time::Instant::now();
+    while !workers_of(pid).is_empty() {
+        assert!(t0.elapsed().as_secs() < 20, "the worker outlived its parent");
+        std::thread::sleep(std::time::Duration::from_millis(50));
+    }
+}

@@ -123,6 +123,14 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         if pos >= c.items.len() {
             bail!("--item {pos}: the campaign has {} items", c.items.len());
         }
+        // A worker of --isolate dies with its parent (a killed campaign left its worker
+        // running a routine that hangs; a user-style sweep), as a check's worker does.
+        let parent = std::env::var(crate::isolate::PARENT_ENV).ok().and_then(|p| p.parse::<u32>().ok());
+        if let Some(parent) = parent {
+            if !tancheck_abi::watch::follow_parent(parent) {
+                bail!("the parent process {parent} of this worker is gone");
+            }
+        }
     }
     if let Some(p) = a.json.as_deref().filter(|p| p.as_os_str() != "-") {
         // A report of an earlier run is replaced at once: never yesterday's verdict.

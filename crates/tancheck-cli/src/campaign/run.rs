@@ -62,6 +62,7 @@ impl Runner<'_> {
     fn in_worker(&self, item: &Item, program: &FsPath, args: &[std::ffi::OsString]) -> ItemResult {
         let fault = |message: String| super::item::fault_result(self.campaign, item, message);
         let child = Command::new(program)
+            .env(crate::isolate::PARENT_ENV, std::process::id().to_string())
             .args(args)
             .arg("--item")
             .arg(item.position.to_string())
