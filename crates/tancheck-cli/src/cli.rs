@@ -217,7 +217,7 @@ pub fn main_with_args(args: impl IntoIterator<Item = std::ffi::OsString>) -> i32
     let code = match result {
         Ok(code) => code,
         Err(e) => {
-            eprintln!("tancheck: {e:#}");
+            crate::say!("tancheck: {e:#}");
             exit::BAD_INPUT
         }
     };
@@ -486,9 +486,11 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         None => (crate::suite::Suite::default_for(m.routine.kind, a.thermal), None),
     };
     if !suite.kinds.is_empty() && !suite.kinds.contains(&m.routine.kind) {
-        eprintln!(
+        crate::say!(
             "tancheck: warning: suite `{}` is meant for {:?}, the routine is {}",
-            suite.suite, suite.kinds, m.routine.kind
+            suite.suite,
+            suite.kinds,
+            m.routine.kind
         );
     }
     // The manifest's path, unless the user asks for another or for the suite's.

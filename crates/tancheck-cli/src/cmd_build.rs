@@ -77,9 +77,9 @@ pub fn run(a: BuildArgs) -> Result<i32> {
     for (stage, text) in &warnings {
         if shown.contains(&text.as_str()) {
             // The twin's compilation usually repeats the real one's warnings word for word.
-            eprintln!("tancheck: the compiler said the same, {stage}");
+            crate::say!("tancheck: the compiler said the same, {stage}");
         } else {
-            eprintln!("tancheck: the compiler said, {stage}:\n{}", text.trim_end());
+            crate::say!("tancheck: the compiler said, {stage}:\n{}", text.trim_end());
             shown.push(text);
         }
     }

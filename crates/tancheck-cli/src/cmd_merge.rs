@@ -125,12 +125,12 @@ pub fn run(a: &MergeArgs) -> Result<i32> {
         let text = std::fs::read_to_string(f).with_context(|| format!("{}: cannot read", f.display()))?;
         if is_incomplete(&text) {
             // The marker a shard leaves until it finishes: that shard is missing.
-            eprintln!("tancheck: merge: {}: incomplete (its shard did not finish): left out", f.display());
+            crate::say!("tancheck: merge: {}: incomplete (its shard did not finish): left out", f.display());
             continue;
         }
         if let Some(why) = last_words(&text) {
             // A shard whose process a routine ended: its last words replaced the marker.
-            eprintln!(
+            crate::say!(
                 "tancheck: merge: {}: its shard ended before it finished ({why}): left out",
                 f.display()
             );
@@ -144,7 +144,7 @@ pub fn run(a: &MergeArgs) -> Result<i32> {
     reporters.campaign(&r)?;
     reporters.finish()?;
     if let Some(m) = r.merged.as_ref().filter(|m| !m.missing.is_empty()) {
-        eprintln!(
+        crate::say!(
             "tancheck: merge: missing shards {} of {} (0-based): no finished partial report was given for them",
             list(&m.missing),
             m.shards

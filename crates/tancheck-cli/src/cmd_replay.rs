@@ -247,9 +247,9 @@ pub fn run(a: &ReplayArgs) -> Result<i32> {
             // Every error names the case file.
             let file = a.case.display().to_string();
             if m.contains(&file) {
-                eprintln!("tancheck: {m}");
+                crate::say!("tancheck: {m}");
             } else {
-                eprintln!("tancheck: {file}: {m}");
+                crate::say!("tancheck: {file}: {m}");
             }
             return Ok(exit::BAD_INPUT);
         }

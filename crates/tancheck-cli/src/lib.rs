@@ -1,6 +1,16 @@
 //! The `tancheck` command line: manifests, routines, reporters and the commands
 //! `check`, `build`, `demo` and `models`.
 
+/// A line on standard error that never panics: when its reader has gone (`2>&1 | head -1`),
+/// the line is dropped and the run keeps its exit code (`eprintln!` panicked, exit 101).
+#[macro_export]
+macro_rules! say {
+    ($($arg:tt)*) => {{
+        use std::io::Write as _;
+        let _ = writeln!(std::io::stderr(), $($arg)*);
+    }};
+}
+
 pub mod block_manifest;
 pub mod block_session;
 pub mod campaign;

@@ -72,12 +72,12 @@ fn load_with(m: &Manifest, dir: &FsPath, fresh: bool) -> Result<Loaded> {
         // Said once, on the first load.
         if !fresh {
             if traps {
-                eprintln!(
+                crate::say!(
                     "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
                     lib_path.display()
                 );
             } else {
-                eprintln!(
+                crate::say!(
                     "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
                     lib_path.display()
                 );

@@ -324,7 +324,7 @@ pub fn start_watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
             Ok(_) => {
                 let _ = started.recv_timeout(Duration::from_secs(10));
             }
-            Err(e) => eprintln!(
+            Err(e) => crate::say!(
                 "tancheck: warning: no watchdog thread ({e}): a routine that hangs will hang the check"
             ),
         }
@@ -406,7 +406,7 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
                 }
                 None => String::new(),
             };
-            eprintln!(
+            crate::say!(
                 "tancheck: still checking after {:.0} s: increment {}, {} routine calls so far{running}",
                 started.elapsed().as_secs_f64(),
                 w.increment,

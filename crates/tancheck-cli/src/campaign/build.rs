@@ -83,7 +83,7 @@ pub fn build_all(
         let fresh = actual.is_file() && std::fs::read_to_string(&stamp).is_ok_and(|s| s.trim() == hash);
         if fresh {
             if tell {
-                eprintln!("tancheck: campaign library {}: up to date", lib.output);
+                crate::say!("tancheck: campaign library {}: up to date", lib.output);
             }
         } else {
             if let Some(d) = actual.parent() {
@@ -116,7 +116,7 @@ pub fn build_all(
             crate::report::write_atomic(&stamp, hash.as_bytes())
                 .with_context(|| format!("writing {}", stamp.display()))?;
             if tell {
-                eprintln!("tancheck: campaign library {}: built", lib.output);
+                crate::say!("tancheck: campaign library {}: built", lib.output);
             }
         }
         out.push(Built { declared, actual, skipped: None });

@@ -118,7 +118,7 @@ pub fn run_isolated(
                     let _ = std::fs::remove_file(crate::report::temporary_name(&p));
                 }
             }
-            eprintln!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
+            crate::say!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
             return Ok(128 + stop);
         }
         let len = shared.calls();
@@ -221,7 +221,7 @@ pub fn run_isolated(
         let mut o = crate::survive::stdout();
         if !stdout_text.is_empty() {
             if json_to_stdout {
-                eprintln!("{stdout_text}");
+                crate::say!("{stdout_text}");
             } else {
                 writeln!(o, "{stdout_text}")?;
             }
