@@ -303,13 +303,16 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
     let d = scratch("bad");
     let json = d.join("r.json");
     std::fs::write(&json, "earlier report").unwrap();
-    let cases: [(&str, &str, &str); 8] = [
+    let cases: [(&str, &str, &str); 10] = [
         // Two items with one key (a property set named twice, a manifest listed twice) would
         // be taken for each other in reports, shards and merges.
         ("twice.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"property_sets\": [{\"name\": \"a\", \"values\": [200000, 0.3]}, {\"name\": \"a\", \"values\": [70000, 0.33]}]}]}", "routines[0]: two items would have the key"),
         ("listed-twice.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\"}, {\"manifest\": \"./m.json\"}]}", "routines[0] and routines[1]: two items"),
         // An expectation that can never be met.
         ("never.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"pass\", \"expect_finding\": \"term-scaled\"}]}", "routines[0]: `expect` is pass"),
+        // A finding misspelt (it ran the campaign and read "not as expected"; a user-style sweep).
+        ("underscore.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"continuum_tangent\"}]}", "did you mean `continuum-tangent`"),
+        ("typo.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"shear-facter\"}]}", "did you mean `shear-factor`"),
         ("unknown.json", "{\"format\": \"tancheck-campaign\", \"version\": 1,\n \"routines\": [{\"manifest\": \"m.json\", \"colour\": 1}]}", "unknown.json:2:"),
         ("format.json", "{\"format\": \"other\", \"version\": 1, \"routines\": []}", "`format` is `other`"),
         ("version.json", "{\"format\": \"tancheck-campaign\", \"version\": 9, \"routines\": []}", "version 9"),

@@ -267,6 +267,14 @@ impl Campaign {
             let at = format!("routines[{k}]");
             let manifest = normalize(&dir.join(&e.manifest));
             add_file(&format!("{at}.manifest"), &manifest, &mut digest)?;
+            if let Some(f) = &e.expect_finding {
+                if let Some(word) = misspelt_finding(f) {
+                    bail!(
+                        "{file}: {at}.expect_finding: `{f}` is no finding; did you mean `{word}`? (findings are \
+                         written with hyphens)"
+                    );
+                }
+            }
             if let Some(x) = &e.expect {
                 if !["pass", "fail", "fault", "twin"].contains(&x.as_str()) {
                     bail!("{file}: {at}.expect: `{x}`; one of pass, fail, fault, twin");
@@ -423,4 +431,47 @@ mod tests {
     fn normalize_folds_parent_folders() {
         assert_eq!(normalize(FsPath::new("/a/b/../c/./d")), PathBuf::from("/a/c/d"));
     }
+}
+
+/// The finding `f` nearly names, when `f` itself names none of the point check's: written with
+/// underscores, or one or two letters off (an expectation that can never hold ran the whole
+/// campaign and read "not as expected"; a user-style sweep). Findings of the block and
+/// finite-strain checks and of probes are not listed here: only near misses are refused.
+fn misspelt_finding(f: &str) -> Option<&'static str> {
+    const OTHERS: [&str; 10] = [
+        "none",
+        "routine-fault",
+        "non-finite-output",
+        "non-finite-derivative",
+        "twin-not-complex-step-safe",
+        "kink-neither-side",
+        "dtemp",
+        "dtemp-partial",
+        "unexplained",
+        "undiagnosed",
+    ];
+    let known = || {
+        tancheck_core::diagnose::Cause::BY_SPECIFICITY.iter().map(|c| c.name()).chain(OTHERS.iter().copied())
+    };
+    if known().any(|k| k == f) {
+        return None;
+    }
+    let hyphens = f.replace('_', "-").to_lowercase();
+    known().find(|&k| k == hyphens || distance(k, f) <= 2)
+}
+
+/// Levenshtein distance of two short words.
+fn distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut row: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut prev = row[0];
+        row[0] = i + 1;
+        for (j, &cb) in b.iter().enumerate() {
+            let here = row[j + 1];
+            row[j + 1] = (prev + usize::from(ca != cb)).min(row[j] + 1).min(row[j + 1] + 1);
+            prev = here;
+        }
+    }
+    row[b.len()]
 }
