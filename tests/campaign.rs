@@ -303,7 +303,14 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
     let d = scratch("bad");
     let json = d.join("r.json");
     std::fs::write(&json, "earlier report").unwrap();
-    let cases: [(&str, &str, &str); 10] = [
+    std::fs::write(
+        d.join("sized.json"),
+        r#"{ "routine": { "library": "lib.so", "symbol": "s", "kind": "solid-3d", "states": 7, "properties": [1] }, "start": { "state": [0, 0, 0] } }"#,
+    )
+    .unwrap();
+    let cases: [(&str, &str, &str); 11] = [
+        // A manifest whose start state does not fit its routine, said before anything runs.
+        ("start.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\"}, {\"manifest\": \"sized.json\"}]}", "start.state has 3 entries; routine.states is 7"),
         // Two items with one key (a property set named twice, a manifest listed twice) would
         // be taken for each other in reports, shards and merges.
         ("twice.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"property_sets\": [{\"name\": \"a\", \"values\": [200000, 0.3]}, {\"name\": \"a\", \"values\": [70000, 0.33]}]}]}", "routines[0]: two items would have the key"),

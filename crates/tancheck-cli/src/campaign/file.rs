@@ -356,6 +356,13 @@ fn read_manifest(path: &FsPath) -> Result<(Family, String, Option<PathBuf>)> {
         return Ok((Family::Finite, name, m.routine.library.as_ref().map(|l| normalize(&folder.join(l)))));
     }
     let (m, _) = crate::manifest::Manifest::load(path)?;
+    // What the manifest itself says of its sizes, before anything runs (a start state of
+    // another length was found only when its item ran, after the others; a user-style sweep).
+    if let (Some(n), Some(s)) = (m.routine.states, &m.start.state) {
+        if s.len() != n {
+            bail!("{}: start.state has {} entries; routine.states is {n}", path.display(), s.len());
+        }
+    }
     let family = if crate::block_session::is_block(&m) { Family::Block } else { Family::Point };
     let name = m.routine.symbol.clone().or(m.routine.model.clone()).unwrap_or_default();
     Ok((family, name, m.routine.library.as_ref().map(|l| normalize(&folder.join(l)))))
