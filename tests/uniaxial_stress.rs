@@ -110,3 +110,66 @@ fn a_held_stress_beyond_the_strength_is_not_reached_and_says_so() {
     let warned = r.coverage.iter().any(|c| c.contains("held stresses were not reached at 4 of 4 increments"));
     assert!(warned, "{:?}", r.coverage);
 }
+
+/// σ22 = S atan(ε22/ε0) (and σ = E ε in the other normal components, no shear), with its exact
+/// tangent: Newton's method on atan(x) = 0 with full steps diverges from |x| above about 1.39
+/// (the classic example; each step overshoots further), so a held σ22 = 0 from a first guess
+/// ε22 = 3 ε0 is reached only by a solve that shortens steps that do not lower the residual.
+struct Arctangent(tancheck::core::RoutineInfo);
+
+const S: f64 = 100.0;
+const E0: f64 = 1e-3;
+
+impl Routine for Arctangent {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.0
+    }
+    fn call(
+        &mut self,
+        i: &tancheck::core::CallInput<'_, f64>,
+        o: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let e: Vec<f64> = (0..6).map(|k| i.strain[k] + i.dstrain[k]).collect();
+        o.tangent.fill(0.0);
+        for k in 0..6 {
+            if k == 1 {
+                let x = e[1] / E0;
+                o.stress[1] = S * x.atan();
+                o.tangent[1 + 6] = S / (E0 * (1.0 + x * x));
+            } else {
+                o.stress[k] = 1000.0 * e[k];
+                o.tangent[k + 6 * k] = 1000.0;
+            }
+        }
+        o.outcome.provides = 0;
+        Ok(())
+    }
+}
+
+// A held stress the material carries is reached where full Newton steps jump ever further
+// from it (a plane-stress routine heated under a held stress never converged, and the report
+// blamed the material: "a held stress the material cannot carry"; a user-style sweep).
+#[test]
+fn a_held_stress_is_reached_where_full_newton_steps_overshoot() {
+    let conv = tancheck::core::Convention::new(PointKind::Solid3d, tancheck::core::ShearMeasure::Engineering);
+    let info =
+        tancheck::core::RoutineInfo { name: "arctangent".into(), convention: conv, nstate: 0, nprop: 0 };
+    let mut r = Arctangent(info.clone());
+    let mut caller = Caller::new(&mut r);
+    // First ε22 = 3 ε0 under strain control; then σ22 held at zero, the solve starting from
+    // there (x = 3).
+    let held = PathIncrement {
+        hold_stress: Some([None, Some(0.0), None, None, None, None]),
+        ..PathIncrement::strain([1e-3, 0.0, 0.0, 0.0, 0.0, 0.0])
+    };
+    let path = Path {
+        name: "held".into(),
+        increments: vec![PathIncrement::strain([0.0, 3.0 * E0, 0.0, 0.0, 0.0, 0.0]), held],
+    };
+    let rep =
+        check::run(&mut caller, &[], PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    let log = rep.increments[1].solve.as_ref().expect("a mixed-control increment");
+    assert!(log.converged, "{log:?}");
+    assert!(rep.increments[1].stress[1].abs() < 1e-6, "{:?}", rep.increments[1].stress);
+    assert!(rep.coverage.iter().all(|c| !c.contains("held stresses were not reached")), "{:?}", rep.coverage);
+}

@@ -126,12 +126,19 @@ fn a_failed_status_in_the_middle_of_the_columns_ends_as_one_by_one() {
         same_either_way(faults_library(), "sweep_status", info("sweep_status", 2, 2), &[2e5, 0.3], &ramp());
     let f = faults(&r);
     // The real calls refused on one side (dstrain[3] < 0) are gone around: column 23 is made
-    // on the side the routine takes (the report's notes say so); the twin's refusal has no
-    // side to change to and stays a fault.
+    // on the side the routine takes (the report's notes say so); the twin's refusal of a call
+    // whose real inputs the routine computes sets the twin aside (not complex-step safe), the
+    // diagnosis naming the call.
     let notes = r.notes.join("\n");
     assert!(notes.contains("23 (forward) taken one-sided") && notes.contains("a planted failure"), "{notes}");
     assert!(!f.contains("dstrain[3] ±"), "{f}");
-    assert!(f.contains("dstrain[4] + i") && f.contains("a planted failure"), "{f}");
+    assert!(f.contains(tancheck_core::call_check::TWIN_REFUSED), "{f}");
+    let reasons: Vec<&str> =
+        r.increments.iter().filter_map(|i| i.diagnosis.as_ref()).map(|d| d.reason.as_str()).collect();
+    assert!(
+        reasons.iter().any(|d| d.contains("dstrain[4] + i") && d.contains("a planted failure")),
+        "{reasons:?}"
+    );
 }
 
 #[test]
@@ -193,13 +200,20 @@ fn a_failure_in_the_last_call_of_a_sweep_ends_as_one_by_one() {
     let r = same_either_way(faults_library(), "sweep_last", info("sweep_last", 2, 2), &[2e5, 0.3], &ramp());
     let f = faults(&r);
     // The real refusal (dstrain[5] < 0, the sweep's last call) is seen and gone around on the
-    // other side (a status dropped there would leave no note); the twin's stays a fault.
+    // other side (a status dropped there would leave no note); the twin's refusal sets the twin
+    // aside, the diagnosis naming its call.
     let notes = r.notes.join("\n");
     assert!(
         notes.contains("12 (forward) taken one-sided") && notes.contains("the last call fails"),
         "{notes}"
     );
-    assert!(f.contains("dstrain[5] + i") && f.contains("the last call fails"), "{f}");
+    assert!(f.contains(tancheck_core::call_check::TWIN_REFUSED), "{f}");
+    let reasons: Vec<&str> =
+        r.increments.iter().filter_map(|i| i.diagnosis.as_ref()).map(|d| d.reason.as_str()).collect();
+    assert!(
+        reasons.iter().any(|d| d.contains("dstrain[5] + i") && d.contains("the last call fails")),
+        "{reasons:?}"
+    );
 }
 
 #[test]

@@ -57,6 +57,12 @@ impl SolveLog {
 /// converge (a held stress the material cannot carry, a tangent too wrong for Newton), the
 /// iterate closest to the targets, not the last one: a diverging solve's last iterate can lie
 /// at strains of 1e12.
+///
+/// A Newton step that does not lower the residual is halved, up to [`HALVINGS`] times (a line
+/// search): with full steps alone the solve jumped between the two sides of a plastic plateau
+/// and never reached a held stress the material carries (a plane-stress routine heated while
+/// held; a user-style sweep). An iterate whose stresses are not finite numbers ends the
+/// attempt: the routine is never called with a strain worked out from them (it was, with NaN).
 pub fn solve(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
@@ -64,6 +70,23 @@ pub fn solve(
     targets: &[f64],
     settings: &MixedSettings,
     use_routine_tangent: bool,
+) -> Result<SolveLog, Fault> {
+    solve_with(driver, caller, controlled, targets, settings, use_routine_tangent, true)
+}
+
+/// How many times a step that does not lower the residual is halved.
+pub const HALVINGS: usize = 8;
+
+/// [`solve`], with the line search or with full Newton steps only (`line_search` false: the
+/// Newton probe measures the rate of the routine's own tangent, step by full step).
+pub fn solve_with(
+    driver: &mut Driver,
+    caller: &mut Caller<'_>,
+    controlled: &[usize],
+    targets: &[f64],
+    settings: &MixedSettings,
+    use_routine_tangent: bool,
+    line_search: bool,
 ) -> Result<SolveLog, Fault> {
     let m = controlled.len();
     let n = driver.ncomp();
@@ -81,12 +104,46 @@ pub fn solve(
             numerical_fallback = true;
             residuals.clear();
         }
-        for _ in 0..settings.max_iterations {
+        // The last accepted iterate (its residual, strain and the step taken from it) and how
+        // often that step was halved.
+        let mut last: Option<(f64, Vec<f64>, Vec<f64>)> = None;
+        let mut halved = 0;
+        let mut calls = 0;
+        while calls < settings.max_iterations * (1 + usize::from(line_search) * HALVINGS) {
+            calls += 1;
             driver.set_dstrain(&dstrain);
             driver.base_call(caller)?;
             let scale = driver.base.stress.iter().fold(1.0f64, |a, s| a.max(s.abs()));
             let r: Vec<f64> = (0..m).map(|k| driver.base.stress[controlled[k]] - targets[k]).collect();
             let norm = r.iter().map(|x| x * x).sum::<f64>().sqrt();
+            if !norm.is_finite() && last.is_none() {
+                residuals.push(norm);
+                break;
+            }
+            if line_search {
+                if let Some((before, from, step)) = &mut last {
+                    let lower = norm.partial_cmp(before) == Some(std::cmp::Ordering::Less);
+                    if !lower && halved < HALVINGS {
+                        // Back along the step, half as far.
+                        halved += 1;
+                        for (q, &j) in controlled.iter().enumerate() {
+                            step[q] *= 0.5;
+                            dstrain[j] = from[j] + step[q];
+                        }
+                        continue;
+                    }
+                }
+            } else if !norm.is_finite() {
+                residuals.push(norm);
+                break;
+            }
+            if !norm.is_finite() {
+                break;
+            }
+            halved = 0;
+            if residuals.len() >= settings.max_iterations {
+                break;
+            }
             residuals.push(norm);
             if norm < closest.0 && within_limits(&dstrain) {
                 closest = (norm, dstrain.clone());
@@ -129,8 +186,13 @@ pub fn solve(
                         shorten.min(((MAX_STRAIN * next.signum() - dstrain[j]) / delta[q]).clamp(0.0, 1.0));
                 }
             }
+            let step: Vec<f64> = delta.iter().map(|d| shorten * d).collect();
+            if step.iter().any(|d| !d.is_finite()) {
+                break;
+            }
+            last = Some((norm, dstrain.clone(), step.clone()));
             for (q, &j) in controlled.iter().enumerate() {
-                dstrain[j] += shorten * delta[q];
+                dstrain[j] += step[q];
             }
         }
         // Restart from the prescribed increment with the numerical tangent.

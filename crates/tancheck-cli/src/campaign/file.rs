@@ -422,24 +422,6 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
     items
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn fnv1a64_matches_the_published_test_vectors() {
-        // Test vectors of the FNV reference (Fowler, Noll, Vo): "" and "a", "foobar".
-        assert_eq!(fnv1a64(b""), 0xcbf2_9ce4_8422_2325);
-        assert_eq!(fnv1a64(b"a"), 0xaf63_dc4c_8601_ec8c);
-        assert_eq!(fnv1a64(b"foobar"), 0x8594_4171_f739_67e8);
-    }
-
-    #[test]
-    fn normalize_folds_parent_folders() {
-        assert_eq!(normalize(FsPath::new("/a/b/../c/./d")), PathBuf::from("/a/c/d"));
-    }
-}
-
 /// The finding `f` nearly names, when `f` itself names none of the point check's: written with
 /// underscores, or one or two letters off (an expectation that can never hold ran the whole
 /// campaign and read "not as expected"; a user-style sweep). Findings of the block and
@@ -481,4 +463,22 @@ fn distance(a: &str, b: &str) -> usize {
         }
     }
     row[b.len()]
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn fnv1a64_matches_the_published_test_vectors() {
+        // Test vectors of the FNV reference (Fowler, Noll, Vo): "" and "a", "foobar".
+        assert_eq!(fnv1a64(b""), 0xcbf2_9ce4_8422_2325);
+        assert_eq!(fnv1a64(b"a"), 0xaf63_dc4c_8601_ec8c);
+        assert_eq!(fnv1a64(b"foobar"), 0x8594_4171_f739_67e8);
+    }
+
+    #[test]
+    fn normalize_folds_parent_folders() {
+        assert_eq!(normalize(FsPath::new("/a/b/../c/./d")), PathBuf::from("/a/c/d"));
+    }
 }

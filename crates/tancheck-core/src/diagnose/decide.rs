@@ -322,7 +322,7 @@ pub fn decide(o: &Observed) -> Decision {
         return Decision {
             pass: false,
             reason: if everywhere {
-                NOT_FINITE_EVERYWHERE.into()
+                format!("{NOT_FINITE_EVERYWHERE}; first: {w}")
             } else {
                 format!(
                     "{w}: the routine returns values that are not finite numbers next to an input it \

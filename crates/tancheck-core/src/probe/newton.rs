@@ -140,7 +140,7 @@ pub fn study(
         let fresh = t.clone();
         t.set_dstrain(&de);
         let (mut log, mut failure, refused) =
-            match mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+            match mixed::solve_with(&mut t, c, &controlled, &targets, &settings, true, false) {
                 Ok(log) => (log, None, false),
                 Err(f) => (
                     SolveLog { residuals: Vec::new(), converged: false, numerical_fallback: false },
@@ -157,7 +157,7 @@ pub fn study(
                 near[i] = NEAR * d.dstrain()[i] + (1.0 - NEAR) * start;
             }
             t.set_dstrain(&near);
-            if let Ok(l) = mixed::solve(&mut t, c, &controlled, &targets, &settings, true) {
+            if let Ok(l) = mixed::solve_with(&mut t, c, &controlled, &targets, &settings, true, false) {
                 diverged_from_start = Some(std::mem::take(&mut log.residuals));
                 (log, failure) = (l, None);
             }
