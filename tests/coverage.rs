@@ -66,6 +66,13 @@ fn a_temperature_path_without_a_returned_dtemp_is_flagged() {
     // Without a temperature change, no warning either.
     let r = run("elastic", &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
     assert!(!r.coverage.iter().any(|c| c.contains("∂σ/∂T")), "{:?}", r.coverage);
+    // A routine that returns ∂σ/∂T on a path that never changes the temperature: a tangent at
+    // the start temperature cannot show there (it passed unwarned; a user-style sweep).
+    let flat = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    let mut caller = Caller::new(&mut m);
+    let r =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &flat, &Settings::default()).unwrap();
+    assert!(r.coverage.iter().any(|c| c.contains("temperature never changes")), "{:?}", r.coverage);
 }
 
 /// Strain increments in slots the routine's kind does not have are left out: a note says so

@@ -244,6 +244,21 @@ fn run_path(
                 .to_string(),
         );
     }
+    // The routine returns ∂σ/∂T, so its stress depends on the temperature, but the path never
+    // changes it: a tangent whose moduli are taken at the start temperature (not the end one)
+    // agrees at every increment of such a path (it passed unwarned; a user-style sweep).
+    if increments.dtemp_checked
+        && !stopped
+        && !path.increments.is_empty()
+        && path.increments.iter().all(|i| i.dtemp == 0.0)
+    {
+        coverage.push(
+            "the routine returns ∂σ/∂T, but the temperature never changes along the path: a tangent taken \
+             at the start temperature of each increment agrees at every increment of such a path; give \
+             the path a `dtemp`"
+                .to_string(),
+        );
+    }
     // Held stresses the solve did not reach: those increments are off the path asked for.
     let off_path: Vec<&String> = notes.iter().filter(|n| n.contains(increment::HELD_NOT_REACHED)).collect();
     if let Some(first) = off_path.first() {

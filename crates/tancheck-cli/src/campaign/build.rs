@@ -7,9 +7,8 @@
 use std::path::{Path as FsPath, PathBuf};
 
 use anyhow::{Context, Result};
-use sha2::{Digest, Sha256};
 
-use super::file::{normalize, Campaign};
+use super::file::{normalize, sources_hash, Campaign};
 
 /// A library of the campaign, where it is, and whether it could be built.
 #[derive(Clone, Debug)]
@@ -26,29 +25,6 @@ fn is_fortran(p: &FsPath) -> bool {
     p.extension().and_then(|x| x.to_str()).is_some_and(|x| {
         matches!(x, "f" | "F" | "f90" | "F90" | "f95" | "F95" | "f03" | "F03" | "f08" | "F08" | "for")
     })
-}
-
-/// SHA-256 over the sources and the headers and include files beside them.
-fn sources_hash(sources: &[PathBuf]) -> Result<String> {
-    let mut h = Sha256::new();
-    let mut extra: Vec<PathBuf> = Vec::new();
-    for s in sources {
-        h.update(s.display().to_string().as_bytes());
-        h.update(std::fs::read(s).with_context(|| format!("reading {}", s.display()))?);
-        if let Some(folder) = s.parent() {
-            for e in std::fs::read_dir(folder).into_iter().flatten().flatten() {
-                let p = e.path();
-                if p.extension().is_some_and(|x| x == "h" || x == "inc") && !extra.contains(&p) {
-                    extra.push(p);
-                }
-            }
-        }
-    }
-    extra.sort();
-    for p in &extra {
-        h.update(std::fs::read(p).unwrap_or_default());
-    }
-    Ok(h.finalize().iter().map(|b| format!("{b:02x}")).collect())
 }
 
 /// Build (or find up to date) every library of `c`; `build_dir` replaces the folder of each

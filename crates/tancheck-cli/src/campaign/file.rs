@@ -261,6 +261,11 @@ impl Campaign {
             for (j, s) in lib.sources.iter().enumerate() {
                 add_file(&format!("libraries[{k}].sources[{j}]"), &dir.join(s), &mut digest)?;
             }
+            // The headers and include files beside them, as the build's stamp takes them: shards
+            // built from other code must not merge (editing an included file left the digest
+            // as it was; a user-style sweep).
+            let sources: Vec<PathBuf> = lib.sources.iter().map(|s| normalize(&dir.join(s))).collect();
+            digest.update(sources_hash(&sources)?.as_bytes());
         }
         let mut routines = Vec::new();
         for (k, e) in entries.into_iter().enumerate() {
@@ -422,6 +427,29 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
     items
 }
 
+/// SHA-256 over the sources and the headers and include files beside them.
+pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
+    let mut h = Sha256::new();
+    let mut extra: Vec<PathBuf> = Vec::new();
+    for s in sources {
+        h.update(s.display().to_string().as_bytes());
+        h.update(std::fs::read(s).with_context(|| format!("reading {}", s.display()))?);
+        if let Some(folder) = s.parent() {
+            for e in std::fs::read_dir(folder).into_iter().flatten().flatten() {
+                let p = e.path();
+                if p.extension().is_some_and(|x| x == "h" || x == "inc") && !extra.contains(&p) {
+                    extra.push(p);
+                }
+            }
+        }
+    }
+    extra.sort();
+    for p in &extra {
+        h.update(std::fs::read(p).unwrap_or_default());
+    }
+    Ok(h.finalize().iter().map(|b| format!("{b:02x}")).collect())
+}
+
 /// The finding `f` nearly names, when `f` itself names none of the point check's: written with
 /// underscores, or one or two letters off (an expectation that can never hold ran the whole
 /// campaign and read "not as expected"; a user-style sweep). Findings of the block and
@@ -480,5 +508,32 @@ mod tests {
     #[test]
     fn normalize_folds_parent_folders() {
         assert_eq!(normalize(FsPath::new("/a/b/../c/./d")), PathBuf::from("/a/c/d"));
+    }
+
+    // The digest covers the headers beside a library's sources, as the build's stamp does
+    // (editing an included file left it as it was; a user-style sweep).
+    #[test]
+    fn the_digest_follows_a_header_beside_the_sources() {
+        let d = std::env::temp_dir().join(format!("tancheck-digest-{}", std::process::id()));
+        std::fs::create_dir_all(&d).unwrap();
+        std::fs::write(d.join("r.c"), "#include \"core.h\"\n").unwrap();
+        std::fs::write(d.join("core.h"), "static const double k = 1.0;\n").unwrap();
+        std::fs::write(
+            d.join("m.json"),
+            r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+        )
+        .unwrap();
+        let file = d.join("c.json");
+        std::fs::write(
+            &file,
+            r#"{ "format": "tancheck-campaign", "version": 1, "name": "d",
+  "libraries": [ { "output": "libr.so", "sources": ["r.c"] } ], "routines": [ { "manifest": "m.json" } ] }"#,
+        )
+        .unwrap();
+        let before = Campaign::load(&file).unwrap().digest;
+        std::fs::write(d.join("core.h"), "static const double k = 2.0;\n").unwrap();
+        let after = Campaign::load(&file).unwrap().digest;
+        let _ = std::fs::remove_dir_all(&d);
+        assert_ne!(before, after);
     }
 }

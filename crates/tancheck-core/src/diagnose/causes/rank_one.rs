@@ -180,7 +180,9 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 )
             };
             found.push(cause, detail, rest);
-            if s.len() > 2 {
+            // Rank two only where the second term is more than rounding beside the first (it
+            // was offered as "two terms of sizes 2.8e-1 and 0": the rank-one causes above say it).
+            if s.len() > 2 && s[1] > RANK_TWO_LEVEL * s[0] {
                 let rest2 = s.iter().skip(2).map(|x| x * x).sum::<f64>().sqrt() / norm;
                 found.push(
                     Cause::RankTwo,
@@ -195,6 +197,10 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
         }
     }
 }
+
+/// The second singular value of a discrepancy, relative to the first, below which it has
+/// rank one (a thousandth: far above rounding, far below any second term worth naming).
+const RANK_TWO_LEVEL: f64 = 1e-3;
 
 /// A factor to two decimals, or as 1 ± its distance from 1 when that would read 1.00 (a
 /// factor that reads 1.00 beside a failure says nothing).

@@ -57,3 +57,30 @@ fn a_tangent_that_differs_from_the_derivative_in_symmetry_is_said_so() {
     both[1] *= 1.05;
     assert_eq!(symmetry_note(&conv, &both, &good), None, "a symmetric error of a symmetric tangent");
 }
+
+/// A discrepancy of rank one (a term a⊗b added to a J2-like tangent) is not offered as rank
+/// two with a second term of size 0 (it was: "two terms of sizes 2.82e-1 and 0.00e0"; found
+/// by user-style sweeps); one of rank two still is.
+#[test]
+fn rank_two_needs_a_second_term() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let good = j2_like();
+    let a = [0.0, 0.0, 0.0, 1.0, 0.0, 0.0];
+    let b = [1.0, 1.0, 1.0, 0.0, 0.0, 0.0];
+    let with = |sym: bool| {
+        let mut t = good.clone();
+        for j in 0..6 {
+            for i in 0..6 {
+                t[i + 6 * j] += 3000.0 * (a[i] * b[j] + if sym { b[i] * a[j] } else { 0.0 });
+            }
+        }
+        t
+    };
+    let one = with(false);
+    let h = rank(&ev(&conv, &one, &good, &z));
+    assert!(h.iter().all(|x| x.cause != Cause::RankTwo), "{h:?}");
+    let two = with(true);
+    let h = rank(&ev(&conv, &two, &good, &z));
+    assert!(h.iter().any(|x| x.cause == Cause::RankTwo), "{h:?}");
+}
