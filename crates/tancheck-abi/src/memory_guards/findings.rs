@@ -87,7 +87,9 @@ impl GuardFinding {
                 let parts = if self.complex { " (both its real and imaginary parts)" } else { "" };
                 format!(
                     "left {a}[{}] unwritten{at}: {} of {} never written in a successful call; \
-                     outputs arrive filled with NaN and the routine must write every entry{parts}",
+                     outputs arrive filled with NaN and the routine must write every entry{parts} (an \
+                     entry it did write may hold that NaN too: written from an output read before \
+                     it was set, such as the state array read in place of the start state)",
                     self.first,
                     self.entries,
                     self.array.counted(self.len)
