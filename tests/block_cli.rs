@@ -168,6 +168,18 @@ fn a_block_section_that_does_not_fit_is_refused_naming_the_file() {
     let (code, _, err) = tancheck(&["check".as_ref(), p.as_os_str()]);
     assert_eq!(code, 2, "{err}");
     assert!(err.contains("block-no-density.json") && err.contains("block.density"), "{err}");
+    // A counterpart of other sizes is bad input, said before any check runs (it was a finding,
+    // exit 1, after them; a user-style sweep).
+    let p = d.join("block-other-counterpart.json");
+    std::fs::write(
+        &p,
+        r#"{ "routine": { "model": "j2-block", "interface": "block", "kind": "solid-3d", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+             "block": { "density": 7.85e-9, "characteristic_length": 2.0, "counterpart": { "model": "johnson-cook" } } }"#,
+    )
+    .unwrap();
+    let (code, _, err) = tancheck(&["check".as_ref(), p.as_os_str()]);
+    assert_eq!(code, 2, "{err}");
+    assert!(err.contains("block-other-counterpart.json") && err.contains("block.counterpart"), "{err}");
 }
 
 // Options and commands made for point routines are refused on a block routine's manifest,

@@ -101,6 +101,28 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
     }
     let spec = m.block.as_ref().expect("validated: block section with interface block");
     let s = settings(spec, m.start.temperature, state0);
+    // The counterpart is loaded, and its sizes compared, before any check runs: sizes that do
+    // not fit are bad input (they were a finding, exit 1, after the whole check; a user-style
+    // sweep).
+    let counterpart = load_counterpart(m, dir, nstate)?;
+    if let Some((point, _)) = &counterpart {
+        let (pi, bi) = (point.info(), routine.info());
+        if pi.convention.ncomp() != bi.ncomp || pi.nstate != nstate || pi.nprop != m.routine.properties.len()
+        {
+            bail!(
+                "block.counterpart: {} has {} components, {} state variables and {} properties; the block \
+                 routine {}, {} and {}: a counterpart takes the block routine's state variables and \
+                 properties, in the same order",
+                pi.name,
+                pi.convention.ncomp(),
+                pi.nstate,
+                pi.nprop,
+                bi.ncomp,
+                nstate,
+                m.routine.properties.len()
+            );
+        }
+    }
     crate::survive::checking(true);
     let report = block::run(routine.as_mut(), &m.routine.properties, path, &s).map_err(anyhow::Error::msg);
     let mut report = match report {
@@ -110,7 +132,7 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
             return Err(e);
         }
     };
-    if let Some((mut point, tol)) = load_counterpart(m, dir, nstate)? {
+    if let Some((mut point, tol)) = counterpart {
         let incs = block::block_increments(path, routine.info().ncomp).map_err(anyhow::Error::msg)?;
         block::counterpart::check(
             routine.as_mut(),
