@@ -178,3 +178,73 @@ fn an_iterate_the_routine_refuses_is_not_judged() {
         "{result:#?}"
     );
 }
+
+/// A softening law in the 22 component (from memory, a textbook damage form): κ the largest
+/// |ε22| reached (the state), d = 1 − (ε0/κ)² beyond ε0, σ22 = (1 − d) E ε22, with its
+/// consistent tangent; the other components E ε. Past the peak the same σ22 is reached on the
+/// elastic unloading branch at a smaller strain, without damage growth.
+struct Softening(tancheck::core::RoutineInfo);
+
+const E: f64 = 1000.0;
+const EPS0: f64 = 1e-3;
+
+impl Routine for Softening {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.0
+    }
+    fn call(
+        &mut self,
+        i: &tancheck::core::CallInput<'_, f64>,
+        o: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        o.tangent.fill(0.0);
+        for k in 0..6 {
+            let e = i.strain[k] + i.dstrain[k];
+            if k == 1 {
+                let kappa0 = i.state0[0].max(EPS0);
+                let loading = e.abs() > kappa0;
+                let kappa = if loading { e.abs() } else { kappa0 };
+                let f = (EPS0 / kappa).powi(2);
+                o.stress[1] = f * E * e;
+                // d/dε [E ε0² ε/κ²] with κ = |ε| on loading: −E ε0²/ε².
+                o.tangent[1 + 6] = if loading { -E * EPS0 * EPS0 / (e * e) } else { f * E };
+                o.state[0] = kappa;
+            } else {
+                o.stress[k] = E * e;
+                o.tangent[k + 6 * k] = E;
+            }
+        }
+        o.outcome.provides = 0;
+        Ok(())
+    }
+}
+
+// Past the peak of a softening law the probe's solve, from zero, reaches the path's stresses
+// on the unloading branch: another solution, left unjudged and said (a secant tangent passed
+// as "converged in 1 iteration", its increments labelled inelastic; a user-style sweep).
+#[test]
+fn a_solve_that_ends_on_another_branch_is_not_judged() {
+    let conv = tancheck::core::Convention::new(PointKind::Solid3d, tancheck::core::ShearMeasure::Engineering);
+    let info =
+        tancheck::core::RoutineInfo { name: "softening".into(), convention: conv, nstate: 1, nprop: 0 };
+    let mut r = Softening(info.clone());
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let path = Path {
+        name: "past the peak".into(),
+        increments: (0..6).map(|_| PathIncrement::strain([1e-4, 5e-4, 0.0, 0.0, 0.0, 0.0])).collect(),
+    };
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("newton");
+    let env = ProbeEnv { props: &[], start: &start, path: &path, settings: &settings, spec: &spec };
+    let solves = newton::study(&mut caller, &env).unwrap();
+    let past: Vec<&IncrementSolve> = solves.iter().filter(|s| s.increment >= 4).collect();
+    assert!(!past.is_empty());
+    for s in past {
+        let w = s.elsewhere.as_deref().unwrap_or_else(|| panic!("increment {}: {s:?}", s.increment));
+        assert!(w.contains("another solution") && w.contains("state[0]"), "{w}");
+        assert!(s.unjudged());
+    }
+    let result = NewtonRate.run(&mut caller, &env).unwrap();
+    assert!(result.summary.contains("not judged"), "{}", result.summary);
+}

@@ -36,6 +36,7 @@
 
 use super::Needs;
 use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use crate::driver::Driver;
 use crate::error::CoreError;
 use crate::mixed::{self, MixedSettings, SolveLog};
 use crate::routine::{Caller, Fault};
@@ -80,6 +81,11 @@ pub struct IncrementSolve {
     /// (these are the residuals of that solve, its numerical fallback's when it fell back),
     /// and the solve above started near the solution instead (see [`NEAR`]).
     pub diverged_from_start: Option<Vec<f64>>,
+    /// The solve converged to the path's stresses at another solution than the path's (other
+    /// state variables or strains, in words): a softening law reaches the same stresses on its
+    /// unloading branch. The increment is not judged (a secant tangent passed so, the solve
+    /// ending elastic at the path's damaging increment; a user-style sweep).
+    pub elsewhere: Option<String>,
 }
 
 /// Where a second solve starts when the first diverged: this fraction of the way from the
@@ -103,6 +109,11 @@ impl IncrementSolve {
     /// Converged with the routine's own tangent.
     pub fn converged(&self) -> bool {
         self.failure.is_none() && self.log.converged && !self.log.numerical_fallback
+    }
+    /// Left out of the judgement: the routine refused an iterate, its tangent is singular where
+    /// the solve did not converge, or the solve reached another solution than the path's.
+    pub fn unjudged(&self) -> bool {
+        self.refused || (self.singular && !self.converged()) || self.elsewhere.is_some()
     }
 }
 
@@ -148,6 +159,11 @@ pub fn study(
                     matches!(f, Fault::Status { .. }),
                 ),
             };
+        // Where the solve converged with the routine's tangent: the same solution as the
+        // path's, or another one (found with the driver of the solve that gave the log).
+        let done = |log: &SolveLog| log.converged && !log.numerical_fallback;
+        let mut elsewhere =
+            if failure.is_none() && done(&log) { another_solution(d, &t, &controlled) } else { None };
         let mut diverged_from_start = None;
         if failure.is_none() && log.numerical_fallback {
             // Again from near the solution (the path's own increment).
@@ -158,6 +174,7 @@ pub fn study(
             }
             t.set_dstrain(&near);
             if let Ok(l) = mixed::solve_with(&mut t, c, &controlled, &targets, &settings, true, false) {
+                elsewhere = if done(&l) { another_solution(d, &t, &controlled) } else { None };
                 diverged_from_start = Some(std::mem::take(&mut log.residuals));
                 (log, failure) = (l, None);
             }
@@ -187,10 +204,43 @@ pub fn study(
             orders,
             tail_order,
             diverged_from_start,
+            elsewhere,
         });
         Ok(())
     })?;
     Ok(out)
+}
+
+/// How far the solve's end may lie from the path's, relative to the larger state variable (or
+/// strain) of the two, and still be the same solution: far above the solve's own tolerance
+/// (1e-12 of the stress), far below any other branch's.
+const SAME_SOLUTION: f64 = 1e-6;
+
+/// Whether the solve `t` ended at another solution than the path's call `d`: state variables
+/// or solved strains apart by more than [`SAME_SOLUTION`] of their size, in words.
+fn another_solution(d: &Driver, t: &Driver, controlled: &[usize]) -> Option<String> {
+    let apart = |a: &[f64], b: &[f64]| {
+        let size = a.iter().chain(b).fold(0.0f64, |m, x| m.max(x.abs()));
+        a.iter().zip(b).position(|(x, y)| (x - y).abs() > SAME_SOLUTION * size.max(f64::MIN_POSITIVE))
+    };
+    if let Some(i) = apart(&t.base.state, &d.base.state) {
+        return Some(format!(
+            "the solve reached the path's stresses at another solution (state[{i}] {:.4e} against the path's \
+             {:.4e}: another branch, such as the unloading one of a softening law): not judged",
+            t.base.state[i], d.base.state[i]
+        ));
+    }
+    let ours: Vec<f64> = controlled.iter().map(|&i| t.dstrain()[i]).collect();
+    let path: Vec<f64> = controlled.iter().map(|&i| d.dstrain()[i]).collect();
+    let scale = d.strain_scale(1e-12);
+    let j = ours.iter().zip(&path).position(|(x, y)| (x - y).abs() > SAME_SOLUTION * scale)?;
+    Some(format!(
+        "the solve reached the path's stresses at another strain (component {} increment {:.4e} against the \
+         path's {:.4e}): not judged",
+        controlled[j] + 1,
+        ours[j],
+        path[j]
+    ))
 }
 
 /// Whether the block of the column-major n × n `tangent` on the rows and columns `idx` is
@@ -303,6 +353,9 @@ impl Probe for NewtonRate {
                          judged",
                     );
                 }
+                if let Some(w) = &s.elsewhere {
+                    line.push_str(&format!("; {w}"));
+                }
                 if let Some(f) = &s.failure {
                     line.push_str(&format!(", {f}"));
                     if s.refused {
@@ -315,8 +368,11 @@ impl Probe for NewtonRate {
                 line
             })
             .collect();
-        let measured: Vec<(usize, f64)> =
-            solves.iter().filter_map(|s| s.order().map(|p| (s.increment, p))).collect();
+        let measured: Vec<(usize, f64)> = solves
+            .iter()
+            .filter(|s| s.elsewhere.is_none())
+            .filter_map(|s| s.order().map(|p| (s.increment, p)))
+            .collect();
         let worst = measured.iter().cloned().min_by(|a, b| a.1.total_cmp(&b.1));
         let iters = solves.iter().map(IncrementSolve::iterations);
         let (lo, hi) = (iters.clone().min().unwrap_or(0), iters.max().unwrap_or(0));
@@ -325,19 +381,19 @@ impl Probe for NewtonRate {
         } else {
             format!("{lo}–{hi} iterations")
         };
-        let unjudged = |s: &IncrementSolve| s.refused || (s.singular && !s.converged());
+        let unjudged = IncrementSolve::unjudged;
         if solves.iter().all(unjudged) {
             let mut r = ProbeResult::skipped(
                 "newton",
                 "at every probed increment the routine refused an iterate of the solve (a status it returned, \
-                 as to a solver that would cut back) or its tangent is singular in the components solved \
-                 for: no rate to measure",
+                 as to a solver that would cut back), its tangent is singular in the components solved \
+                 for, or the solve reached another solution than the path's: no rate to measure",
             );
             r.details = details;
             return Ok(r);
         }
         let unconverged = solves.iter().find(|s| !unjudged(s) && !s.converged());
-        let slow = solves.iter().find(|s| s.order().is_some_and(|p| p < min_order));
+        let slow = solves.iter().find(|s| s.elsewhere.is_none() && s.order().is_some_and(|p| p < min_order));
         let mut r = if let Some(s) = unconverged {
             let why = match &s.failure {
                 Some(f) => format!("the routine failed during the solve: {f}"),
@@ -429,6 +485,7 @@ mod tests {
             orders,
             tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
             diverged_from_start: None,
+            elsewhere: None,
         }
     }
 
