@@ -498,7 +498,7 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
     assert!(t.contains("verdict: FAIL") && t.contains("regression cases still fail"), "{t}");
     assert!(t.contains("the path's increments passed"), "{t}");
     assert_eq!(o.status.code(), Some(1), "{t}");
-    let (json, xml) = (d.join("cases.json"), d.join("cases.xml"));
+    let (json, xml, html) = (d.join("cases.json"), d.join("cases.xml"), d.join("cases.html"));
     let o = bin()
         .arg("check")
         .arg(&ok)
@@ -509,9 +509,13 @@ fn bisect_writes_cases_that_check_replays_first_as_a_regression_suite() {
         .arg(&json)
         .arg("--junit")
         .arg(&xml)
+        .arg("--html")
+        .arg(&html)
         .output()
         .unwrap();
     assert_eq!(o.status.code(), Some(1), "{}", text(&o));
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("regression cases") && page.contains("still fail"), "{page}");
     let v: serde_json::Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
     assert_eq!(v["verdict"], "tangent-failure", "{v}");
     assert_ne!(v["finding"], "none", "{v}");

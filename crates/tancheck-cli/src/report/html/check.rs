@@ -29,6 +29,17 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
         format!("increment {} of {path} (branch {})", i.index, i.branch_label())
     });
     let _ = writeln!(o, "<dt>first failing increment</dt><dd>{}</dd>", esc(&first));
+    // The regression cases replayed with the check (`check --cases`), which join its verdict.
+    if let Some(t) = &report.cases {
+        let failed: Vec<String> = t.failed.iter().map(|c| format!("{} ({})", c.file, c.finding)).collect();
+        let _ = writeln!(
+            o,
+            "<dt>regression cases</dt><dd>{} of {} still fail{}</dd>",
+            t.failed.len(),
+            t.failed.len() + t.passed.len(),
+            if failed.is_empty() { String::new() } else { format!(": {}", esc(&failed.join(", "))) }
+        );
+    }
     let _ = writeln!(
         o,
         "<dt>routine</dt><dd>{} — {}, order {}, {} shear, {} state variables, {} properties{}</dd>",
