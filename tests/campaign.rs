@@ -553,3 +553,24 @@ fn a_campaign_worker_dies_with_its_parent() {
         std::thread::sleep(std::time::Duration::from_millis(50));
     }
 }
+
+// Bad input whose message on standard error has no reader left (`2>&1 | head -0`)
+// keeps its exit code 2 (it panicked, exit 101; found with `merge` by a user-style sweep).
+#[test]
+fn a_closed_error_pipe_keeps_the_exit_code() {
+    let d = scratch("pipe-err");
+    for args in
+        [vec!["check", "no-such-manifest.json"], vec!["merge", "no-such-shard.json", "also-none.json"]]
+    {
+        let mut child = bin()
+            .args(&args)
+            .current_dir(&d)
+            .stdout(std::process::Stdio::null())
+            .stderr(std::process::Stdio::piped())
+            .spawn()
+            .unwrap();
+        drop(child.stderr.take());
+        let status = child.wait().unwrap();
+        assert_eq!(status.code(), Some(2), "{args:?}");
+    }
+}
