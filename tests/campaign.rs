@@ -12,7 +12,7 @@ use std::path::{Path, PathBuf};
 use std::process::{Command, Output};
 
 use serde_json::Value;
-use tancheck_testkit::libs::scratch;
+use tancheck_testkit::libs::{scratch, workers_of};
 
 fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_tancheck"))
@@ -492,20 +492,6 @@ fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
     assert_eq!(o.status.code(), Some(3), "{t}");
     assert!(t.contains("did not return within 2 s") && t.contains("--isolate"), "{t}");
     assert!(started.elapsed().as_secs_f64() < 60.0, "took {:?}", started.elapsed());
-}
-
-/// Processes whose environment says they are workers of `parent`.
-fn workers_of(parent: u32) -> Vec<u32> {
-    let want = format!("TANCHECK_WORKER_PARENT={parent}");
-    std::fs::read_dir("/proc")
-        .unwrap()
-        .filter_map(|e| e.ok()?.file_name().to_str()?.parse::<u32>().ok())
-        .filter(|pid| {
-            std::fs::read(format!("/proc/{pid}/environ"))
-                .map(|env| env.split(|&b| b == 0).any(|v| v == want.as_bytes()))
-                .unwrap_or(false)
-        })
-        .collect()
 }
 
 // A campaign's worker dies with its parent, as a check's does (a killed `campaign --isolate`

@@ -10,7 +10,7 @@ use std::sync::OnceLock;
 use std::time::{Duration, Instant};
 
 use serde_json::Value;
-use tancheck_testkit::libs::solid_manifest;
+use tancheck_testkit::libs::{solid_manifest, workers_of};
 
 fn bin() -> Command {
     Command::new(env!("CARGO_BIN_EXE_tancheck"))
@@ -359,20 +359,6 @@ fn non_finite_outputs_carry_the_inputs_of_the_call() {
     assert_eq!(inc["non_finite_call"]["increment"], 2, "{inc}");
     assert_eq!(inc["non_finite_call"]["props"][0], 210000.0, "{inc}");
     assert!(r.text.contains("inputs of that call (increment 2)"), "{}", r.text);
-}
-
-/// Processes whose environment says they are workers of `parent`.
-fn workers_of(parent: u32) -> Vec<u32> {
-    let want = format!("TANCHECK_WORKER_PARENT={parent}");
-    std::fs::read_dir("/proc")
-        .unwrap()
-        .filter_map(|e| e.ok()?.file_name().to_str()?.parse::<u32>().ok())
-        .filter(|pid| {
-            std::fs::read(format!("/proc/{pid}/environ"))
-                .map(|env| env.split(|&b| b == 0).any(|v| v == want.as_bytes()))
-                .unwrap_or(false)
-        })
-        .collect()
 }
 
 fn wait_until(what: &str, mut done: impl FnMut() -> bool) {

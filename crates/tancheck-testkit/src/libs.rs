@@ -122,3 +122,18 @@ pub fn solid_manifest(
     std::fs::write(&m, text).unwrap_or_else(|e| panic!("writing {}: {e}", m.display()));
     m
 }
+
+/// Processes whose environment says they are `--isolate` workers of `parent`
+/// (`TANCHECK_WORKER_PARENT`), read from /proc.
+pub fn workers_of(parent: u32) -> Vec<u32> {
+    let want = format!("TANCHECK_WORKER_PARENT={parent}");
+    std::fs::read_dir("/proc")
+        .unwrap()
+        .filter_map(|e| e.ok()?.file_name().to_str()?.parse::<u32>().ok())
+        .filter(|pid| {
+            std::fs::read(format!("/proc/{pid}/environ"))
+                .map(|env| env.split(|&b| b == 0).any(|v| v == want.as_bytes()))
+                .unwrap_or(false)
+        })
+        .collect()
+}

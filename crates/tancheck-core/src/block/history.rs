@@ -159,7 +159,7 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
         );
         return true;
     }
-    let fresh = match w.routine.new_instance() {
+    let mut fresh = match w.routine.new_instance() {
         None => {
             report.notes.push(format!(
                 "history: the point alone ({said}), walked twice in a row, gave the same outputs; {} \
@@ -178,7 +178,6 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
         }
         Some(Ok(r)) => r,
     };
-    let mut fresh = fresh;
     let mut wf =
         BlockWalk { routine: fresh.as_mut(), properties: w.properties, incs: w.incs, settings: w.settings };
     let on_fresh = match walk(&mut wf, c, report) {
