@@ -15,11 +15,16 @@ use crate::ModelError;
 #[derive(Clone, Debug)]
 pub struct Elastic {
     info: RoutineInfo,
+    /// `elastic-uncondensed`: a plane-stress tangent left uncondensed (the stress is right).
+    uncondensed: bool,
 }
 
 impl Elastic {
     /// The model's name in reports and on the command line.
     pub const NAME: &'static str = "elastic";
+    /// The zoo's flawed plane-stress variant: the stress of plane stress, the tangent the
+    /// in-plane block of the 3D stiffness (λ + 2μ, λ, μ), not condensed for σ33 = 0.
+    pub const UNCONDENSED_NAME: &'static str = "elastic-uncondensed";
     /// Meaning of each property, in order.
     pub const PROP_NAMES: [&'static str; 2] = ["E", "nu"];
     /// Kinds of point the model supports.
@@ -47,7 +52,23 @@ impl Elastic {
                 nstate: 0,
                 nprop: 2,
             },
+            uncondensed: false,
         })
+    }
+
+    /// [`Elastic::UNCONDENSED_NAME`]: plane stress only.
+    pub fn uncondensed(kind: PointKind) -> Result<Elastic, ModelError> {
+        if kind != PointKind::PlaneStress {
+            return Err(ModelError::UnsupportedKind {
+                model: Self::UNCONDENSED_NAME,
+                kind,
+                supported: "plane-stress",
+            });
+        }
+        let mut m = Elastic::new(kind)?;
+        m.info.name = Self::UNCONDENSED_NAME.to_string();
+        m.uncondensed = true;
+        Ok(m)
     }
 
     /// The elastic matrix in the routine's order (the leading n×n block of the result).
@@ -98,6 +119,19 @@ impl Elastic {
         let m = self.matrix(e, nu);
         // The matrix is already in routine order: the identity slot map picks its n×n block.
         linear_elastic_end(&m, &SLOTS_6[..n], input, output);
+        if self.uncondensed {
+            // Rows and columns 11, 22, 12 of the 3D stiffness (engineering shear), as a
+            // plane-stress routine that forgets the condensation returns them.
+            let (lambda, mu) = lame(e, nu);
+            let t = &mut *output.tangent;
+            t.fill(S::zero());
+            for (i, j) in [(0, 0), (1, 1)] {
+                t[i + 3 * j] = lambda + mu * 2.0;
+            }
+            t[1] = lambda;
+            t[3] = lambda;
+            t[8] = mu;
+        }
     }
 }
 

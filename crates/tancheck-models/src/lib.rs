@@ -80,6 +80,7 @@ impl AnyModel {
     pub fn new(name: &str, kind: PointKind) -> Result<AnyModel, ModelError> {
         match name {
             Elastic::NAME => Ok(AnyModel::Elastic(Elastic::new(kind)?)),
+            Elastic::UNCONDENSED_NAME => Ok(AnyModel::Elastic(Elastic::uncondensed(kind)?)),
             J2::NAME => Ok(AnyModel::J2(J2::new(kind)?)),
             J2::CONTINUUM_NAME => Ok(AnyModel::J2(J2::continuum(kind)?)),
             Thermo::NAME => Ok(AnyModel::Thermo(Thermo::new(kind)?)),

@@ -19,7 +19,7 @@ use tancheck_core::{ModelRoutine, PointKind};
 use crate::{AnyModel, Bimodulus, Cohesive, Elastic, ModelError, Thermo, J2};
 
 /// Every finding an entry may expect. `none`: the routine is correct and must pass.
-pub const FINDINGS: [&str; 24] = [
+pub const FINDINGS: [&str; 25] = [
     "shear-factor",
     "shear-permutation",
     "transposed",
@@ -43,6 +43,7 @@ pub const FINDINGS: [&str; 24] = [
     "dtemp",
     "secant",
     "coupling-missing",
+    "plane-stress-uncondensed",
     "none",
 ];
 
@@ -85,7 +86,7 @@ pub struct ZooEntry {
 }
 
 /// Every entry of the zoo, family by family (the order of [`zoo`]).
-const ROWS: [ZooEntry; 29] = [
+const ROWS: [ZooEntry; 30] = [
     // The J2 family: the reference, its flawed tangents and its broken twins.
     ZooEntry {
         name: J2::NAME,
@@ -229,6 +230,15 @@ const ROWS: [ZooEntry; 29] = [
         kinds: &Elastic::KINDS,
         c_symbol: Some("c_elastic"),
         fortran_symbol: Some("f_elastic"),
+    },
+    ZooEntry {
+        name: Elastic::UNCONDENSED_NAME,
+        description: "plane-stress elasticity returning the in-plane block of the 3D stiffness as its \
+                      tangent (not condensed for σ33 = 0; the stress is right)",
+        expected: "plane-stress-uncondensed",
+        kinds: &[PointKind::PlaneStress],
+        c_symbol: Some("c_elastic_uncondensed"),
+        fortran_symbol: Some("f_elastic_uncondensed"),
     },
     ZooEntry {
         name: Bimodulus::NAME,

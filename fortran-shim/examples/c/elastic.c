@@ -42,3 +42,33 @@ TC_ROUTINE(c_elastic)
 
     ex_linear_response(call, strain, dstrain, stress0, state0, tangent, stress, state, energy, report);
 }
+
+/*
+ * c_elastic_uncondensed -- the zoo's flawed plane-stress variant: the plane-stress stress, but
+ * the tangent is rows and columns 11, 22, 12 of the 3D stiffness (lambda + 2 mu, lambda, mu),
+ * the condensation for sigma33 = 0 forgotten. Plane stress (ncomp 3) only; properties [E, nu].
+ */
+TC_ROUTINE(c_elastic_uncondensed)
+{
+    (void)temperature;
+    (void)dstress_dtemp;
+
+    if (call->ncomp != 3) {
+        ex_fail(report, "elastic_uncondensed", "ncomp must be 3 (plane stress)");
+        return;
+    }
+    if (call->nproperties < 2) {
+        ex_fail(report, "elastic_uncondensed", "needs 2 properties [E, nu]");
+        return;
+    }
+    ex_isotropic_stiffness(3, properties[0], properties[1], tangent);
+    ex_linear_response(call, strain, dstrain, stress0, state0, tangent, stress, state, energy, report);
+
+    tc_real mu = properties[0] / (2.0 * (1.0 + properties[1]));
+    tc_real lambda = properties[0] * properties[1] / ((1.0 + properties[1]) * (1.0 - 2.0 * properties[1]));
+    tangent[0 + 0 * 3] = lambda + 2.0 * mu;
+    tangent[1 + 1 * 3] = lambda + 2.0 * mu;
+    tangent[0 + 1 * 3] = lambda;
+    tangent[1 + 0 * 3] = lambda;
+    tangent[2 + 2 * 3] = mu;
+}

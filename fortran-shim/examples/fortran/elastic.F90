@@ -110,3 +110,81 @@ subroutine f_elastic(callinfo, properties, strain, dstrain, temperature, stress0
   report%branch = 0
   report%status = tc_status_ok
 end subroutine f_elastic
+
+! f_elastic_uncondensed -- the zoo's flawed plane-stress variant: the stress of f_elastic in
+! plane stress, but the tangent is rows and columns 11, 22, 12 of the 3D stiffness
+! (lambda + 2 mu, lambda, mu), the condensation for sigma33 = 0 forgotten. Plane stress
+! (ncomp 3) only; properties [E, nu].
+subroutine f_elastic_uncondensed(callinfo, properties, strain, dstrain, temperature, stress0, state0, &
+                                 stress, state, tangent, dstress_dtemp, energy, report) &
+    bind(C, name="f_elastic_uncondensed"//TC_SUFFIX)
+  use, intrinsic :: iso_c_binding, only: c_double, c_double_complex
+  use tancheck_routine, only: tc_call, tc_report, tc_temperature, tc_energy, &
+                              tc_set_message, tc_status_ok, &
+                              tc_status_failed, tc_provides_energy
+  implicit none
+  type(tc_call), intent(in) :: callinfo
+  TC_REAL, intent(in) :: properties(callinfo%nproperties)
+  TC_REAL, intent(in) :: strain(callinfo%ncomp), dstrain(callinfo%ncomp)
+  type(tc_temperature), intent(in) :: temperature
+  TC_REAL, intent(in) :: stress0(callinfo%ncomp), state0(callinfo%nstate)
+  TC_REAL, intent(out) :: stress(callinfo%ncomp), state(callinfo%nstate)
+  TC_REAL, intent(out) :: tangent(callinfo%ncomp, callinfo%ncomp)
+  TC_REAL, intent(inout) :: dstress_dtemp(callinfo%ncomp)
+  type(tc_energy), intent(inout) :: energy
+  type(tc_report), intent(inout) :: report
+
+  namelist /unused_arguments/ temperature, dstress_dtemp
+
+  TC_REAL :: e, nu, mu, lambda, f, s, stored, c(3, 3)
+  integer :: i, j
+
+  if (callinfo%ncomp /= 3) then
+    report%status = tc_status_failed
+    call tc_set_message(report, "elastic_uncondensed: ncomp must be 3 (plane stress)")
+    return
+  end if
+  if (callinfo%nproperties < 2) then
+    report%status = tc_status_failed
+    call tc_set_message(report, "elastic_uncondensed: needs 2 properties [E, nu]")
+    return
+  end if
+
+  e = properties(1)
+  nu = properties(2)
+  ! The plane-stress stiffness for the stress (as f_elastic)...
+  f = e / (1.0_c_double - nu * nu)
+  c = 0.0_c_double
+  c(1, 1) = f
+  c(2, 2) = f
+  c(1, 2) = f * nu
+  c(2, 1) = f * nu
+  c(3, 3) = f * (1.0_c_double - nu) / 2.0_c_double
+  stored = 0.0_c_double
+  do i = 1, 3
+    s = stress0(i)
+    do j = 1, 3
+      s = s + c(i, j) * dstrain(j)
+    end do
+    stress(i) = s
+    stored = stored + s * (strain(i) + dstrain(i))
+  end do
+  do i = 1, callinfo%nstate
+    state(i) = state0(i)
+  end do
+  ! ... and the in-plane block of the 3D stiffness for the tangent.
+  mu = e / (2.0_c_double * (1.0_c_double + nu))
+  lambda = e * nu / ((1.0_c_double + nu) * (1.0_c_double - 2.0_c_double * nu))
+  tangent = 0.0_c_double
+  tangent(1, 1) = lambda + 2.0_c_double * mu
+  tangent(2, 2) = lambda + 2.0_c_double * mu
+  tangent(1, 2) = lambda
+  tangent(2, 1) = lambda
+  tangent(3, 3) = mu
+
+  energy%stored = 0.5_c_double * stored
+  energy%dissipated = 0.0_c_double
+  report%provides = tc_provides_energy
+  report%branch = 0
+  report%status = tc_status_ok
+end subroutine f_elastic_uncondensed

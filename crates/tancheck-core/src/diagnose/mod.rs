@@ -448,7 +448,9 @@ fn cause_trials(
     let mut elastic = vec![0.0; n * n];
     driver.rescale(-0.5);
     driver.rescale_time(ELASTIC_TIME);
-    let elastic_ok = driver.base_call(caller).is_ok() && best(driver, caller, &mut elastic).is_ok();
+    let elastic_base = driver.base_call(caller).is_ok();
+    let elastic_returned = driver.base.tangent.clone();
+    let elastic_ok = elastic_base && best(driver, caller, &mut elastic).is_ok();
     // The discrepancy at smaller increments: fractions of the increment, or of its part past
     // the point where it enters its branch when it crosses into it.
     let in_branch = |driver: &mut Driver, caller: &mut Caller<'_>, f: f64| -> Result<bool, Fault> {
@@ -488,6 +490,7 @@ fn cause_trials(
         returned: ctx.returned,
         numerical: &num,
         elastic: elastic_ok.then_some(&elastic[..]),
+        elastic_returned: elastic_ok.then_some(&elastic_returned[..]),
         initial: initial.as_deref(),
         start_temperature: start_temperature.as_deref(),
         temp_refinement: temp_refinement.as_ref(),

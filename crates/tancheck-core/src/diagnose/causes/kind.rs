@@ -70,12 +70,16 @@ pub enum Cause {
     /// earlier name is still read (case files).
     #[serde(rename = "dtemp-partial", alias = "partial-dtemp")]
     PartialDtemp,
+    /// A plane-stress tangent left uncondensed: the in-plane block of the 3D tangent, without
+    /// the term C_a3 C_3b / C_33 that holding σ33 at zero takes off.
+    #[serde(rename = "plane-stress-uncondensed")]
+    Uncondensed,
 }
 
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 24] = [
+    pub const BY_SPECIFICITY: [Cause; 25] = [
         Cause::ShearFactor,
         Cause::ShearPermutation,
         Cause::Transposed,
@@ -88,6 +92,9 @@ impl Cause {
         Cause::ElasticTangent,
         Cause::StaleTangent,
         Cause::Secant,
+        // Before the moduli: an uncondensed isotropic stiffness is also its in-plane bulk
+        // part off; what the routine returned is the better name.
+        Cause::Uncondensed,
         Cause::ShearModulus,
         Cause::BulkModulus,
         Cause::IsotropicModuli,
@@ -130,6 +137,7 @@ impl Cause {
             Cause::TermScaled => "term-scaled",
             Cause::RankTwo => "rank-two",
             Cause::PartialDtemp => "dtemp-partial",
+            Cause::Uncondensed => "plane-stress-uncondensed",
         }
     }
 
@@ -174,6 +182,8 @@ pub struct Evidence<'a> {
     pub numerical: &'a [f64],
     /// The derivative along an elastic unloading step from the start state, if measured.
     pub elastic: Option<&'a [f64]>,
+    /// The tangent the routine returned at that step.
+    pub elastic_returned: Option<&'a [f64]>,
     /// The derivative at the start of the path (a small step from its start state along the
     /// increment's direction), if measured.
     pub initial: Option<&'a [f64]>,

@@ -4,7 +4,7 @@
 //! first, the more specific before the more general.
 //!
 //! Data flow: `kind` (causes, evidence) → the trials, in the order their results are listed
-//! (`layout`, `other_matrix`, `local`, `isotropic`, `rank_one`; `dtemp` for ∂σ/∂T) → [`rank`]
+//! (`layout`, `other_matrix`, `plane`, `local`, `isotropic`, `rank_one`; `dtemp` for ∂σ/∂T) → [`rank`]
 //! here.
 
 mod dtemp;
@@ -13,6 +13,7 @@ mod kind;
 mod layout;
 mod local;
 mod other_matrix;
+mod plane;
 mod rank_one;
 #[cfg(test)]
 mod tests;
@@ -82,10 +83,11 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
     let mut found = Found { hs: Vec::new(), explain_level };
     layout::try_layout(ev, &mut found);
     other_matrix::try_other_matrix(ev, &mut found);
+    plane::try_uncondensed(ev, &mut found);
     local::try_local(ev, &mut found);
     isotropic::try_isotropic(ev, &mut found);
     rank_one::try_rank_one(ev, &mut found);
-    finish(found.hs, 10.0 * ev.tol, ev.returned.len() == 1, explain_level)
+    finish(found.hs, 10.0 * ev.tol, ev.conv.ncomp(), explain_level)
 }
 
 /// Rank: explaining hypotheses first — those whose corrected tangent passes with the margin
@@ -95,9 +97,14 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
 /// one component (`scalar`) every wrong tangent is a single wrong entry, a missing or scaled
 /// rank-one term: those causes say nothing there and come after every other that explains;
 /// and a uniform scale, which still gives the factor, comes after the elastic, stale and
-/// secant tangents, which name what the routine returned. The isotropic parts (shear and bulk
-/// modulus) come after such a tangent wherever one explains.
-fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool, explain_level: f64) -> Vec<Hypothesis> {
+/// secant tangents, which name what the routine returned. On a point of three components (plane
+/// stress) a discrepancy of rank two only says that it has one null direction: `rank-two`
+/// comes after every other cause that explains (a plane-stress continuum tangent read
+/// `rank-two`, exactly, before the continuum tangent that explains it to 1e-5; a user-style
+/// sweep). The isotropic parts (shear and bulk modulus) come after such a tangent wherever one
+/// explains.
+fn finish(mut hs: Vec<Hypothesis>, exact: f64, ncomp: usize, explain_level: f64) -> Vec<Hypothesis> {
+    let scalar = ncomp == 1;
     let rank = |c: Cause| {
         if scalar && c == Cause::UniformScale {
             2 * Cause::Secant.rank() + 1
@@ -141,10 +148,12 @@ fn finish(mut hs: Vec<Hypothesis>, exact: f64, scalar: bool, explain_level: f64)
                     | Cause::Secant
                     | Cause::ContinuumTangent
                     | Cause::StartTemperature
+                    | Cause::Uncondensed
             )
     });
     let after = |c: Cause| {
         vacuous(c)
+            || (ncomp <= 3 && c == Cause::RankTwo)
             || (named && matches!(c, Cause::ShearModulus | Cause::BulkModulus | Cause::IsotropicModuli))
     };
     hs.sort_by(|a, b| {

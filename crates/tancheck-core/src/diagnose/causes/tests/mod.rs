@@ -3,13 +3,13 @@
 use super::*;
 use crate::convention::{Convention, PointKind, ShearMeasure};
 
-/// The consistent J2 tangent of the worked case in REFERENCES.md (Simo & Taylor 1985,
-/// derived).
+/// The consistent J2 tangent of the worked case in REFERENCES.md (Simo & Taylor 1985, derived).
 fn j2_like() -> Vec<f64> {
     crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
 
 mod cone;
+mod plane;
 mod ranking;
 
 fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evidence<'a> {
@@ -18,6 +18,7 @@ fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evi
         returned: r,
         numerical: n,
         elastic: None,
+        elastic_returned: None,
         initial: None,
         start_temperature: None,
         temp_refinement: None,
@@ -197,10 +198,10 @@ fn h(cause: Cause, error_left: f64) -> Hypothesis {
 // named first on a cohesive law returning (1 − d)K).
 #[test]
 fn an_exact_explanation_ranks_before_an_approximate_more_specific_one() {
-    let hs = finish(vec![h(Cause::ElasticTangent, 5e-2), h(Cause::Secant, 0.0)], 1e-9, false, f64::INFINITY);
+    let hs = finish(vec![h(Cause::ElasticTangent, 5e-2), h(Cause::Secant, 0.0)], 1e-9, 6, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::Secant);
     // Both exact: the more specific first, as before.
-    let hs = finish(vec![h(Cause::Secant, 0.0), h(Cause::ElasticTangent, 0.0)], 1e-9, false, f64::INFINITY);
+    let hs = finish(vec![h(Cause::Secant, 0.0), h(Cause::ElasticTangent, 0.0)], 1e-9, 6, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::ElasticTangent);
 }
 
@@ -215,11 +216,11 @@ fn on_one_component_the_tangents_that_name_what_was_returned_lead() {
         h(Cause::SingleEntry, 0.0),
         h(Cause::Secant, 0.0),
     ];
-    let hs = finish(all.clone(), 1e-9, true, f64::INFINITY);
+    let hs = finish(all.clone(), 1e-9, 1, f64::INFINITY);
     let order: Vec<Cause> = hs.iter().map(|x| x.cause).collect();
     assert_eq!(order[..2], [Cause::Secant, Cause::UniformScale], "{order:?}");
     // On a full tangent the uniform scale is the more specific, as before.
-    let hs = finish(all, 1e-9, false, f64::INFINITY);
+    let hs = finish(all, 1e-9, 6, f64::INFINITY);
     assert_eq!(hs[0].cause, Cause::UniformScale);
 }
 
