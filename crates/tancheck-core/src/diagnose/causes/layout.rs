@@ -1,5 +1,6 @@
-//! Trials of how the entries were written: shear entries scaled by 2 or ½ or in another
-//! order, rows and columns swapped, the whole matrix scaled.
+//! Trials of how the entries were written: shear entries scaled by 2 or ½ (of the whole
+//! tangent, or of the vector of one term a⊗a such as a flow direction's) or in another order,
+//! rows and columns swapped, the whole matrix scaled.
 
 use super::kind::{Cause, Evidence, Found};
 
@@ -40,6 +41,11 @@ pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
                         ),
                     );
                 }
+            }
+        }
+        if let Some((e, detail)) = term_shear_factor(ev, &shear) {
+            if e < best.0 {
+                best = (e, detail);
             }
         }
         found.push(Cause::ShearFactor, best.1, best.0);
@@ -97,4 +103,76 @@ pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
             );
         }
     }
+}
+
+/// The shear entries of the vector of one term c a⊗a written f times too large (f = 2 or ½;
+/// a flow direction n with engineering shear in n⊗n where the routine's form wants tensor
+/// shear, or the other way): the discrepancy c (Sa⊗Sa − a⊗a), S scaling the shear entries by
+/// f, has no normal–normal part, a shear–shear part c (f² − 1) q⊗q and a normal–shear part
+/// c (f − 1) p⊗q, where a = (p, q). The fit reads q from the shear–shear part's leading
+/// eigen-pair and p from the normal–shear part (c is ±1: its size goes into a); the error left
+/// by the corrected tangent and the words, or `None` when there is nothing to fit.
+fn term_shear_factor(ev: &Evidence<'_>, shear: &[usize]) -> Option<(f64, String)> {
+    let n = ev.conv.ncomp();
+    let normal: Vec<usize> = (0..n).filter(|i| !shear.contains(i)).collect();
+    if normal.is_empty() {
+        return None;
+    }
+    let d = |i: usize, j: usize| ev.returned[i + j * n] - ev.numerical[i + j * n];
+    let ns = shear.len();
+    let dss =
+        nalgebra::DMatrix::from_fn(ns, ns, |a, b| 0.5 * (d(shear[a], shear[b]) + d(shear[b], shear[a])));
+    if dss.iter().any(|x| !x.is_finite()) {
+        return None;
+    }
+    let eig = dss.symmetric_eigen();
+    let k = (0..ns).max_by(|&a, &b| eig.eigenvalues[a].abs().total_cmp(&eig.eigenvalues[b].abs()))?;
+    let (lambda, w) = (eig.eigenvalues[k], eig.eigenvectors.column(k).into_owned());
+    if lambda == 0.0 {
+        return None;
+    }
+    let mut best: Option<(f64, String)> = None;
+    for f in [2.0, 0.5] {
+        let g: f64 = f * f - 1.0;
+        let c = (lambda / g).signum();
+        let q: Vec<f64> = w.iter().map(|x| x * (lambda / g).abs().sqrt()).collect();
+        let qq: f64 = q.iter().map(|x| x * x).sum();
+        // p from both normal–shear blocks (the term is symmetric).
+        let p: Vec<f64> = normal
+            .iter()
+            .map(|&i| {
+                let s: f64 = shear.iter().zip(&q).map(|(&j, qj)| 0.5 * (d(i, j) + d(j, i)) * qj).sum();
+                s / (c * (f - 1.0) * qq)
+            })
+            .collect();
+        let mut a = vec![0.0; n];
+        let mut sa = vec![0.0; n];
+        for (&i, &x) in normal.iter().zip(&p) {
+            a[i] = x;
+            sa[i] = x;
+        }
+        for (&i, &x) in shear.iter().zip(&q) {
+            a[i] = x;
+            sa[i] = f * x;
+        }
+        let mut corrected = ev.returned.to_vec();
+        for j in 0..n {
+            for i in 0..n {
+                corrected[i + j * n] -= c * (sa[i] * sa[j] - a[i] * a[j]);
+            }
+        }
+        let e = ev.error(&corrected);
+        if best.as_ref().is_none_or(|b| e < b.0) {
+            best = Some((
+                e,
+                format!(
+                    "the shear entries of the vector a of one term a⊗a (a flow direction's n⊗n) off by {}: \
+                     multiply them by {}",
+                    if f == 2.0 { "2" } else { "½" },
+                    if f == 2.0 { "½" } else { "2" }
+                ),
+            ));
+        }
+    }
+    best
 }

@@ -97,11 +97,12 @@ pub fn rank(ev: &Evidence<'_>) -> Vec<Hypothesis> {
 /// one component (`scalar`) every wrong tangent is a single wrong entry, a missing or scaled
 /// rank-one term: those causes say nothing there and come after every other that explains;
 /// and a uniform scale, which still gives the factor, comes after the elastic, stale and
-/// secant tangents, which name what the routine returned. On a point of three components (plane
-/// stress) a discrepancy of rank two only says that it has one null direction: `rank-two`
-/// comes after every other cause that explains (a plane-stress continuum tangent read
-/// `rank-two`, exactly, before the continuum tangent that explains it to 1e-5; a user-style
-/// sweep). The isotropic parts (shear and bulk modulus) come after such a tangent wherever one
+/// secant tangents, which name what the routine returned. On a point of three or four
+/// components (plane stress, plane strain, axisymmetric) a discrepancy of rank two says little
+/// (on three, that it has one null direction; a J2 continuum tangent's discrepancy there is
+/// 2μ(1 − θ)(P_dev − n⊗n), of rank two on four): `rank-two` comes after every other cause that
+/// explains (plane-stress and plane-strain continuum tangents read `rank-two`, exactly, before
+/// the continuum tangent that explains them to 1e-5; a user-style sweep). The isotropic parts (shear and bulk modulus) come after such a tangent wherever one
 /// explains.
 fn finish(mut hs: Vec<Hypothesis>, exact: f64, ncomp: usize, explain_level: f64) -> Vec<Hypothesis> {
     let scalar = ncomp == 1;
@@ -153,7 +154,7 @@ fn finish(mut hs: Vec<Hypothesis>, exact: f64, ncomp: usize, explain_level: f64)
     });
     let after = |c: Cause| {
         vacuous(c)
-            || (ncomp <= 3 && c == Cause::RankTwo)
+            || (ncomp <= 4 && c == Cause::RankTwo)
             || (named && matches!(c, Cause::ShearModulus | Cause::BulkModulus | Cause::IsotropicModuli))
     };
     hs.sort_by(|a, b| {

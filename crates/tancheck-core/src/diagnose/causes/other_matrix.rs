@@ -105,6 +105,43 @@ pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
             }
         }
         found.push(Cause::CouplingMissing, "off-diagonal coupling terms are zero".into(), ev.error(&c));
+    } else if n > 2 {
+        // Some coupling terms missing: off-diagonal entries exactly zero where the derivative's
+        // are not (a plane-strain tangent without its 33–11 and 33–22 terms read `rank-two`; a
+        // user-style sweep). Exact zeros are what a term left out of the code leaves.
+        let norm = ev.numerical.iter().map(|x| x * x).sum::<f64>().sqrt();
+        let zeros: Vec<(usize, usize)> = (0..n)
+            .flat_map(|j| (0..n).map(move |i| (i, j)))
+            .filter(|&(i, j)| {
+                i != j && at(r, i, j) == 0.0 && at(ev.numerical, i, j).abs() > 10.0 * ev.tol * norm
+            })
+            .collect();
+        if !zeros.is_empty() {
+            let mut c = r.to_vec();
+            for &(i, j) in &zeros {
+                c[i + j * n] = at(ev.numerical, i, j);
+            }
+            let label = |k: usize| ev.conv.order()[k].label();
+            // One component shared by every entry, both ways round: said as its coupling.
+            let common = (0..n).find(|&k| {
+                zeros.iter().all(|&(i, j)| i == k || j == k)
+                    && zeros.iter().all(|&(i, j)| zeros.contains(&(j, i)))
+            });
+            let detail = match common {
+                Some(k) => {
+                    let mut with: Vec<&str> =
+                        zeros.iter().filter(|&&(i, _)| i == k).map(|&(_, j)| label(j)).collect();
+                    with.dedup();
+                    format!("the coupling terms of {} with {} are zero", label(k), with.join(", "))
+                }
+                None => {
+                    let list: Vec<String> =
+                        zeros.iter().map(|&(i, j)| format!("{}/{}", label(i), label(j))).collect();
+                    format!("coupling terms {} are zero where the derivative's are not", list.join(", "))
+                }
+            };
+            found.push(Cause::CouplingMissing, detail, ev.error(&c));
+        }
     }
 
     // Symmetrized: the returned matrix is the symmetric part of an unsymmetric derivative.

@@ -105,14 +105,41 @@ fn a_scaled_plastic_term_is_not_called_uncondensed() {
     assert!(rank(&e).iter().all(|x| x.cause != Cause::Uncondensed));
 }
 
-// On three components a discrepancy of rank two only says it has a null direction: a
-// plane-stress continuum tangent, which explains to 1e-5, is named before an exact `rank-two`
-// (the report's finding was `rank-two`; a user-style sweep). On six components the exact
+// On three or four components a discrepancy of rank two says little: a plane-stress or
+// plane-strain continuum tangent, which explains to 1e-5, is named before an exact `rank-two`
+// (the reports' finding was `rank-two`; a user-style sweep). On six components the exact
 // explanation still leads.
 #[test]
-fn on_three_components_rank_two_comes_after_the_other_explanations() {
+fn on_three_or_four_components_rank_two_comes_after_the_other_explanations() {
     let h = |cause, error_left| Hypothesis { cause, detail: String::new(), error_left, explains: true };
     let both = vec![h(Cause::RankTwo, 0.0), h(Cause::ContinuumTangent, 2.6e-5)];
     assert_eq!(super::super::finish(both.clone(), 1e-9, 3, 1e-3)[0].cause, Cause::ContinuumTangent);
+    assert_eq!(super::super::finish(both.clone(), 1e-9, 4, 1e-3)[0].cause, Cause::ContinuumTangent);
     assert_eq!(super::super::finish(both, 1e-9, 6, 1e-3)[0].cause, Cause::RankTwo);
+}
+
+// A plane-strain tangent whose 33 row and column lost their coupling with 11 and 22 (the
+// stress update keeps them: σ33 = λ(ε11 + ε22) + (λ + 2μ) ε33 from isotropic elasticity) is
+// `coupling-missing`, the component named; it read `rank-two` (a user-style sweep).
+#[test]
+fn one_components_missing_coupling_is_named() {
+    let conv = Convention::new(PointKind::PlaneStrain, ShearMeasure::Engineering);
+    let mut good = crate::worked::isotropic(&conv, 1.15e5, 7.7e4);
+    // A plastic part coupling 33 with the shear too (kept by the routine).
+    let nv = [0.6, -0.2, -0.4, 0.5];
+    for j in 0..4 {
+        for i in 0..4 {
+            good[i + 4 * j] -= 4.0e4 * nv[i] * nv[j];
+        }
+    }
+    let mut bad = good.clone();
+    for i in 0..2 {
+        bad[i + 2 * 4] = 0.0;
+        bad[2 + i * 4] = 0.0;
+    }
+    let mut e = ev(&conv, &bad, &good, &[0.0; 4]);
+    e.state_changed = false;
+    let h = rank(&e);
+    assert_eq!(h[0].cause, Cause::CouplingMissing, "{h:#?}");
+    assert!(h[0].detail.contains("of 33 with 11, 22"), "{}", h[0].detail);
 }

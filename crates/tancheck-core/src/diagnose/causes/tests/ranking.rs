@@ -84,3 +84,29 @@ fn rank_two_needs_a_second_term() {
     let h = rank(&ev(&conv, &two, &good, &z));
     assert!(h.iter().any(|x| x.cause == Cause::RankTwo), "{h:?}");
 }
+
+// A flow direction with engineering shear in the term n⊗n of a J2 tangent (the routine's form
+// wants the shear entries as they are; a user-style sweep's Johnson–Cook routine doubled
+// them): the discrepancy has rank two and read `rank-two`; it is `shear-factor`, the term's
+// vector named. Halved entries alike. The worked J2 tangent (REFERENCES.md) with a flow
+// direction that has shear parts.
+#[test]
+fn a_flow_direction_with_shear_entries_off_by_two_is_a_shear_factor() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let good = j2_like();
+    let nv = [0.5, -0.3, -0.2, 0.25, -0.15, 0.4];
+    let c = -1.0e5;
+    for f in [2.0, 0.5] {
+        let mut bad = good.clone();
+        let sn: Vec<f64> = nv.iter().enumerate().map(|(i, x)| if i >= 3 { f * x } else { *x }).collect();
+        for j in 0..6 {
+            for i in 0..6 {
+                bad[i + 6 * j] += c * (sn[i] * sn[j] - nv[i] * nv[j]);
+            }
+        }
+        let h = rank(&ev(&conv, &bad, &good, &z));
+        assert_eq!(h[0].cause, Cause::ShearFactor, "{h:#?}");
+        assert!(h[0].explains && h[0].detail.contains("a⊗a"), "{h:#?}");
+    }
+}
