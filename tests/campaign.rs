@@ -258,6 +258,11 @@ fn a_worker_that_dies_is_its_items_fault_and_the_others_run() {
     assert_eq!(xml.matches("<failure").count(), 1, "{xml}");
     let html = std::fs::read_to_string(d.join("r.html")).unwrap();
     assert!(html.contains("Campaign small") && html.contains("not as expected"), "{html}");
+    // The expected fault shows in a plain badge, not in the red (or orange) of a surprise; the
+    // item not as expected keeps its row marked.
+    assert!(html.contains("<span class=\"badge expected\">FAULT · expected</span>"), "{html}");
+    assert!(!html.contains("badge fault"), "{html}");
+    assert_eq!(html.matches("<tr class=\"bad\">").count(), 1, "{html}");
 }
 
 /// Without --isolate, a routine that ends the process ends the campaign: its JSON report is
@@ -492,6 +497,22 @@ fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
     assert_eq!(o.status.code(), Some(3), "{t}");
     assert!(t.contains("did not return within 2 s") && t.contains("--isolate"), "{t}");
     assert!(started.elapsed().as_secs_f64() < 60.0, "took {:?}", started.elapsed());
+    // Under --isolate the hanging item is a fault whose message is the worker's last words
+    // (it read "the worker ended with exit code 3 without a report"; a user-style sweep).
+    let json = d.join("isolated.json");
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--isolate", "--call-timeout", "2", "-q", "--json"])
+        .arg(&json)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let hung = &items(&v)[1];
+    assert_eq!(hung["outcome"], "fault", "{hung}");
+    let message = hung["message"].as_str().unwrap();
+    assert!(message.contains("worker ended") && message.contains("did not return within 2 s"), "{message}");
 }
 
 // A campaign's worker dies with its parent, as a check's does (a killed `campaign --isolate`

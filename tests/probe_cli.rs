@@ -54,6 +54,13 @@ fn the_manifest_path_is_walked_unless_the_suites_is_asked_for() {
     assert!(t.contains("path (the suite's): tension-shear"), "{t}");
     assert!(t.contains("consistent at 12 increments"), "{t}");
 
+    // --thermal with a manifest path that never heats: the thermal suite's path (it walked the
+    // manifest's isothermally, without a word; a user-style sweep).
+    let (c, t) = probe(&[m, "--thermal"], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(t.contains("path (the suite's): tension-shear"), "{t}");
+    assert!(t.contains("the manifest's path never heats or cools"), "{t}");
+
     // A path file.
     let p = write(
         &d,

@@ -494,16 +494,37 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         );
     }
     // The manifest's path, unless the user asks for another or for the suite's.
-    let path = match (&a.path, &m.path) {
+    let manifest_path = match (&a.path, &m.path) {
+        (None, Some(p)) if !a.suite_path => Some(
+            crate::manifest::path_from_spec(p)
+                .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
+        ),
+        _ => None,
+    };
+    let mut notes = Vec::new();
+    // `--thermal` asks for heating along the path: a manifest's path that never heats or cools
+    // would walk the thermal suite isothermally (it did, without a word; a user-style sweep),
+    // so the suite's own path runs, and the report says so.
+    let isothermal = |p: &tancheck_core::Path| p.increments.iter().all(|i| i.dtemp == 0.0);
+    let thermal_swap = a.thermal
+        && a.suite.is_none()
+        && !m.routine.kind.is_cohesive()
+        && manifest_path.as_ref().is_some_and(isothermal);
+    if thermal_swap {
+        notes.push(
+            "--thermal: the manifest's path never heats or cools, so the thermal suite's path runs \
+             (give --path for another)"
+                .to_string(),
+        );
+    }
+    let path = match (&a.path, manifest_path) {
         (Some(p), _) => path_arg(p)?,
-        (None, Some(p)) if !a.suite_path => crate::manifest::path_from_spec(p)
-            .map_err(|e| anyhow::anyhow!("{}: {e}", a.manifest.display()))?,
+        (None, Some(p)) if !thermal_swap => p,
         _ => suite.path().map_err(|e| match &suite_file {
             Some(f) => anyhow::anyhow!("{}: {e}", f.display()),
             None => anyhow::Error::msg(e),
         })?,
     };
-    let mut notes = Vec::new();
     if a.thermal && a.suite.is_none() && m.routine.kind.is_cohesive() {
         notes
             .push("--thermal: there is no thermal suite for cohesive points; the cohesive suite runs".into());
@@ -516,7 +537,7 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     let report = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, suite_file.as_deref())?;
     let source = if a.path.is_some() {
         "from --path"
-    } else if m.path.is_some() && !a.suite_path {
+    } else if m.path.is_some() && !a.suite_path && !thermal_swap {
         "the manifest's"
     } else {
         "the suite's"

@@ -45,10 +45,10 @@ pub struct CampaignArgs {
     /// Time limit of one item in a worker (--isolate), in seconds.
     #[arg(long, value_name = "SECONDS", default_value_t = 600.0, value_parser = crate::survive::parse_seconds)]
     pub item_timeout: f64,
-    /// Time limit of one routine call in one process (without --isolate), in seconds, on
-    /// whichever thread it runs: a call that does not return ends the campaign there (a thread
-    /// cannot be stopped). With --isolate, --item-timeout limits each item's worker instead,
-    /// and the other items run.
+    /// Time limit of one routine call, in seconds, on whichever thread it runs: in one process
+    /// a call that does not return ends the campaign (a thread cannot be stopped); with
+    /// --isolate it ends that item's worker, the item is a fault naming the call, and the
+    /// other items run (--item-timeout limits each worker's item as a whole).
     #[arg(long, value_name = "SECONDS", default_value_t = crate::survive::DEFAULT_CALL_TIMEOUT, value_parser = crate::survive::parse_seconds)]
     pub call_timeout: f64,
     /// Write the JSON report to FILE (`-` for standard output).
@@ -147,15 +147,17 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         crate::report::write_atomic(p, marker.as_bytes())
             .with_context(|| format!("writing the JSON report to {}", p.display()))?;
     }
-    if a.item.is_none() && !a.isolate {
+    if !a.isolate {
         // A routine that ends the process (or a crash beyond the guard) ends the campaign in
         // this process: its last words replace the marker with a report naming the fault, the
-        // routine and its call (the items before it are lost; --isolate keeps them).
+        // routine and its call (the items before it are lost; --isolate keeps them). In a
+        // worker of --isolate (`--item`, `--json -`) they go to its output, where the parent
+        // reads what stopped it.
         crate::survive::set_routine(a.json.as_deref(), &format!("campaign {}", c.name));
     }
     let mut notes = Vec::new();
     let libs = build::build_all(&c, a.build_dir.as_deref(), !a.output.quiet && a.item.is_none(), &mut notes)?;
-    if !a.isolate {
+    if !a.isolate && a.item.is_none() {
         // In one process a call that does not return ends the campaign (a thread cannot be
         // stopped); the message says what keeps the other items.
         crate::survive::set_timeout_hint(
@@ -176,7 +178,14 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         .unwrap_or_else(|| std::thread::available_parallelism().map_or(1, std::num::NonZeroUsize::get));
     let isolate = if a.isolate && a.item.is_none() {
         let program = std::env::current_exe().context("finding the tancheck program for the workers")?;
-        let mut args: Vec<std::ffi::OsString> = vec!["campaign".into(), a.campaign.clone().into()];
+        // The workers time each call as this process would (they had the default limit,
+        // whatever --call-timeout said, and the item limit stopped them without a word).
+        let mut args: Vec<std::ffi::OsString> = vec![
+            "campaign".into(),
+            a.campaign.clone().into(),
+            "--call-timeout".into(),
+            a.call_timeout.to_string().into(),
+        ];
         if let Some(d) = &a.build_dir {
             args.push("--build-dir".into());
             args.push(d.clone().into());

@@ -112,10 +112,23 @@ impl Runner<'_> {
                     (None, Some(s)) => format!("by signal {s}"),
                     _ => "without a status".into(),
                 };
-                fault(format!(
-                    "the worker ended {how} without a report (the routine ended or broke its process)"
-                ))
+                // A worker stopped by its watchdog, or whose routine ended the process, leaves
+                // its last words on its output: what stopped it (a hang read "without a
+                // report"; a user-style sweep).
+                match last_words(&text) {
+                    Some(words) => fault(format!("the worker ended {how}: {words}")),
+                    None => fault(format!(
+                        "the worker ended {how} without a report (the routine ended or broke its process)"
+                    )),
+                }
             }
         }
     }
+}
+
+/// The fault message of a worker's last words (a JSON report of kind `last-words`), if its
+/// output holds them.
+fn last_words(text: &str) -> Option<String> {
+    let v: serde_json::Value = serde_json::from_str(text.trim()).ok()?;
+    (v["kind"] == "last-words").then(|| v["fault"]["message"].as_str().map(str::to_string)).flatten()
 }

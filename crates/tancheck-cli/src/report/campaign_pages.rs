@@ -7,7 +7,7 @@ use std::io;
 use quick_junit::{NonSuccessKind, Property, Report as JReport, TestCase, TestCaseStatus, TestSuite};
 
 use super::campaign::{headline, item_line, list, verdict_line, CampaignReport, ItemResult};
-use super::html::{badge, cautions, esc, footer, page};
+use super::html::{badge, cautions, esc, expected_badge, footer, page};
 
 fn case_name(it: &ItemResult) -> String {
     let mut s = it.task.clone();
@@ -96,7 +96,7 @@ pub fn campaign_page(r: &CampaignReport) -> String {
                  <td>{}{}</td><td>{}</td></tr>",
                 if it.as_expected { "" } else { " class=\"bad\"" },
                 esc(&case_name(it)),
-                badge(word),
+                if it.as_expected && !matches!(word, "PASS" | "skipped") { expected_badge(word) } else { badge(word) },
                 esc(&it.finding),
                 it.first_failing_increment.map_or(String::from("–"), |k| k.to_string()),
                 it.failed,

@@ -80,6 +80,7 @@ h3 { font-size: 16px; margin: 22px 0 8px; }
          letter-spacing: .04em; margin-right: 8px; }
 .badge.pass { background: var(--pass); } .badge.fail { background: var(--fail); }
 .badge.fault, .badge.twin { background: var(--warn); } .badge.skipped { background: #7a8190; }
+.badge.expected { background: #fff; color: #4a5568; border: 1px solid #9aa3b2; font-weight: 600; white-space: nowrap; }
 .summary { display: grid; grid-template-columns: max-content 1fr; gap: 4px 18px; background: var(--card);
            border: 1px solid var(--line); border-radius: 6px; padding: 14px 18px; margin: 0; }
 .summary dt { color: var(--muted); } .summary dd { margin: 0; }
@@ -118,6 +119,13 @@ pub(crate) fn badge(word: &str) -> String {
         _ => "fault",
     };
     format!("<span class=\"badge {class}\">{}</span>", esc(word))
+}
+
+/// A badge for an outcome that was expected (a planted flaw caught): the word in a plain
+/// outlined badge, so that a page of campaign items shows red only where something is not as
+/// expected.
+pub(crate) fn expected_badge(word: &str) -> String {
+    format!("<span class=\"badge expected\">{} · expected</span>", esc(word))
 }
 
 pub(crate) fn cautions(list: &[String]) -> String {
