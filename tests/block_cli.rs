@@ -427,3 +427,49 @@ fn results_that_depend_on_the_calls_before_are_history_dependence() {
     let what = v["findings"][0]["what"].as_str().unwrap();
     assert!(what.contains("walked twice in a row") && what.contains("energy.dissipated"), "{what}");
 }
+
+// State variables declared as damage (`block.damage`) must never decrease: a Johnson–Cook
+// block routine whose damage falls by a tenth in an increment without plastic flow is
+// `damage-decreases` at the first unloading increment, before the energy findings the fall
+// also gives (a user-style sweep's routine with damage in total form went unnoticed); the
+// correct routine passes with the check said; an index past the routine's states is bad input
+// naming the manifest (exit 2).
+#[test]
+fn a_declared_damage_that_falls_is_damage_decreases() {
+    let lib = build_once("jc_block_cli", &["fortran-shim/examples/c/jc_block.c"]);
+    let d = scratch("block-cli-damage");
+    let run = |symbol: &str, peak: f64, steps: usize, damage: &str| -> (i32, String) {
+        let p = d.join(format!("{symbol}-{steps}-{}.json", damage.len()));
+        std::fs::write(
+            &p,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "interface": "block", "kind": "solid-3d", "states": 13,
+    "properties": [200000.0, 0.29, 792.0, 510.0, 0.26, 0.014, 1.03, 293.0, 1793.0, 1.0, 7.83e-9, 4.77e8, 0.9, 0.05, 3.44, -2.12, 0.002, 0.61, 0.3, 20.0, 0.99] }},
+  "start": {{ "temperature": 293 }},
+  "path": {{ "shape": "uniaxial-strain", "peak": {peak}, "steps": {steps}, "back": 10, "dtime": 5e-5 }},
+  "block": {{ "density": 7.83e-9, "characteristic_length": 2.0, "softening": true{damage} }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        let (code, out, err) = tancheck(&["check".as_ref(), p.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+        (code, format!("{out}{err}"))
+    };
+    let (code, out) = run("c_jc_block_healing", 0.1, 20, r#", "damage": [9]"#);
+    assert_eq!(code, 1, "{out}");
+    let v: Value = serde_json::from_str(&out).unwrap_or_else(|e| panic!("{e}: {out}"));
+    schema_valid(&v);
+    assert_eq!(v["finding"], "damage-decreases", "{v}");
+    assert_eq!(v["findings"][0]["increment"], 21, "{v}");
+    assert!(v["findings"][0]["what"].as_str().unwrap().contains("state[9]"), "{v}");
+    let (code, out) = run("c_jc_block", 0.3, 30, r#", "damage": [9]"#);
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("state[9] checked never to decrease"), "{out}");
+    // Not declared: not checked, and said so.
+    let (code, out) = run("c_jc_block_healing", 0.1, 20, "");
+    assert!(out.contains("no state variable declared as damage"), "{out}");
+    assert_ne!(code, 2, "{out}");
+    let (code, out) = run("c_jc_block", 0.3, 30, r#", "damage": [13]"#);
+    assert_eq!(code, 2, "{out}");
+    assert!(out.contains("block.damage names state[13]") && out.contains(".json"), "{out}");
+}

@@ -71,6 +71,9 @@ pub struct BlockSpec {
     #[serde(default = "yes")]
     pub refinement: bool,
     pub counterpart: Option<CounterpartSpec>,
+    /// State variables (0-based indices) that are damage: they must never decrease.
+    #[serde(default)]
+    pub damage: Vec<usize>,
 }
 
 fn yes() -> bool {
@@ -154,5 +157,6 @@ pub fn settings(b: &BlockSpec, temperature: f64, state0: Vec<f64>) -> BlockSetti
         rate_law: b.rate_law,
         independence: b.independence,
         refinement: b.refinement,
+        damage: b.damage.clone(),
     }
 }

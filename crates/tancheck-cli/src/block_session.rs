@@ -100,6 +100,12 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
         bail!("a block routine starts from zero strain and stress: leave start.strain and start.stress out");
     }
     let spec = m.block.as_ref().expect("validated: block section with interface block");
+    if let Some(&i) = spec.damage.iter().find(|&&i| i >= nstate) {
+        bail!(
+            "block.damage names state[{i}]; the routine has {nstate} state variables (indices from 0 to {})",
+            nstate.saturating_sub(1)
+        );
+    }
     let s = settings(spec, m.start.temperature, state0);
     // The counterpart is loaded, and its sizes compared, before any check runs: sizes that do
     // not fit are bad input (they were a finding, exit 1, after the whole check; a user-style

@@ -12,6 +12,8 @@
  *   c_jc_block_deleted_stress      a deleted point freezes its last stress instead of zero
  *   c_jc_block_unclipped_temperature  the thermal factor 1 - T*^m on a yielding point's stress
  *                                  without the clip at T* = 0: NaN below the room temperature
+ *   c_jc_block_healing             an increment without plastic flow "closes the crack": the
+ *                                  damage d falls by a tenth (C only; for the damage check)
  *
  * Every point is updated by the point routine's jc_update (jc.c, which this file includes, so
  * the library also exports c_jc and c_jc_no_rate_term: do not link it together with jc.c).
@@ -37,7 +39,8 @@ typedef enum {
     JCB_UNGUARDED_RATE,
     JCB_WRONG_TEMPERATURE,
     JCB_DELETED_STRESS,
-    JCB_UNCLIPPED_TEMPERATURE
+    JCB_UNCLIPPED_TEMPERATURE,
+    JCB_HEALING
 } jcb_flaw;
 
 /* E(T) = E (1 - k_E T*), T* clipped to [0, 1). */
@@ -157,6 +160,9 @@ static void jc_block(const tc_block *block, const tc_real *properties, const tc_
                 now_deleted = 1;
             }
         }
+        if (flaw == JCB_HEALING && !now_deleted && tc_re(st[i_ebar]) == tc_re(old[i_ebar])) {
+            d = 0.9 * d; /* the flaw: damage that heals in unloading */
+        }
         for (int i = 0; i < n; ++i) s[i] *= 1.0 - d;
         if (flaw == JCB_UNCLIPPED_TEMPERATURE && tc_re(st[i_ebar]) > tc_re(old[i_ebar])) {
             const double ts = (c.temperature - tc_re(properties[7])) / (tc_re(properties[8]) - tc_re(properties[7]));
@@ -197,3 +203,4 @@ JC_BLOCK_VARIANT(c_jc_block_unguarded_rate, JCB_UNGUARDED_RATE)
 JC_BLOCK_VARIANT(c_jc_block_wrong_temperature, JCB_WRONG_TEMPERATURE)
 JC_BLOCK_VARIANT(c_jc_block_deleted_stress, JCB_DELETED_STRESS)
 JC_BLOCK_VARIANT(c_jc_block_unclipped_temperature, JCB_UNCLIPPED_TEMPERATURE)
+JC_BLOCK_VARIANT(c_jc_block_healing, JCB_HEALING)

@@ -301,6 +301,7 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
         BlockCheck::Tangent,
         BlockCheck::Energy,
         BlockCheck::Deletion,
+        BlockCheck::Damage,
         BlockCheck::Independence,
         BlockCheck::Rate,
         BlockCheck::Refinement,
@@ -317,6 +318,7 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
         let optional = matches!(
             check,
             BlockCheck::Deletion
+                | BlockCheck::Damage
                 | BlockCheck::Independence
                 | BlockCheck::Rate
                 | BlockCheck::Refinement
@@ -328,6 +330,9 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
                 BlockCheck::Rate => "rate: no rate law declared (block.rate_law); not checked".to_string(),
                 BlockCheck::Counterpart => {
                     "counterpart: none named (block.counterpart); not checked".to_string()
+                }
+                BlockCheck::Damage => {
+                    "damage: no state variable declared as damage (block.damage); not checked".to_string()
                 }
                 _ => format!("{}: turned off in the manifest's block section; not checked", check.name()),
             }),

@@ -246,6 +246,7 @@ pub fn walk_one_point(
     let mut peak_stress = 0.0f64;
     let mut half = vec![0.0; n];
     let mut total_work = 0.0;
+    let mut damage = super::damage::DamageWatch::new(&s.damage);
     for (k, step) in incs.iter().enumerate() {
         let (de, dt, dtemp) = (&step.strain_increment, &step.time_increment, step.temperature_increment);
         let index = k + 1;
@@ -366,6 +367,9 @@ pub fn walk_one_point(
         row.dissipated_increment = b.energy[0].dissipated - b.energy_start[0].dissipated;
         row.deleted = b.deleted[0] != 0;
         let scale = (frobenius(&b.stress_start) + frobenius(&b.stress)) * frobenius(de) / rho;
+        // Before the energy: a damage that falls also gives back dissipated energy, and the
+        // fall is the cause to read first.
+        damage.after(&b.state_start, &b.state, index, report);
         if deleted_at.is_none() {
             total_work += row.work.abs();
             energy_findings(&b, &row, scale, total_work, s, report);
@@ -376,6 +380,7 @@ pub fn walk_one_point(
         report.increments.push(row);
         b.advance(*dt);
     }
+    damage.finish(report);
     match deleted_at {
         None => report
             .notes

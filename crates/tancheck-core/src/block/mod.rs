@@ -5,12 +5,14 @@
 //! (the path's increments as block routines see them) → [`walk`]
 //! (buffers of a block walked along increments) → [`settings`], [`report`] → the checks:
 //! [`along`] (elastic response; along the path of one point: numerical tangent, effective
-//! moduli, wave speed and stable time increment, energy bookkeeping, deletion),
+//! moduli, wave speed and stable time increment, energy bookkeeping, deletion, declared
+//! damage that must not fall: [`damage`]),
 //! [`history`] (results that depend on the calls before), [`independence`] (blocks of 1, 7
 //! and 128), [`refine`] (increment halving) → [`run`].
 
 pub mod along;
 pub mod counterpart;
+mod damage;
 pub mod history;
 pub mod independence;
 mod numeric;

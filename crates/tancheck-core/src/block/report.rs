@@ -29,6 +29,8 @@ pub enum BlockCheck {
     Energy,
     /// A deleted point stays deleted, carries no stress and stays finite.
     Deletion,
+    /// The state variables declared as damage never decrease.
+    Damage,
     /// Halving the increments converges with the update's order.
     Refinement,
     /// Two rates change the stress by the declared law.
@@ -47,6 +49,7 @@ impl BlockCheck {
             BlockCheck::Tangent => "tangent",
             BlockCheck::Energy => "energy",
             BlockCheck::Deletion => "deletion",
+            BlockCheck::Damage => "damage",
             BlockCheck::Refinement => "refinement",
             BlockCheck::Rate => "rate",
             BlockCheck::Counterpart => "counterpart",

@@ -64,6 +64,8 @@ pub struct BlockSettings {
     pub independence: bool,
     /// Run the refinement check.
     pub refinement: bool,
+    /// State variables (0-based indices) declared as damage: they must never decrease.
+    pub damage: Vec<usize>,
 }
 
 impl Default for BlockSettings {
@@ -86,6 +88,7 @@ impl Default for BlockSettings {
             rate_law: None,
             independence: true,
             refinement: true,
+            damage: Vec::new(),
         }
     }
 }
