@@ -183,6 +183,20 @@ fn one_time_increment_is_flagged_where_the_rate_first_enters() {
     assert!(said[0].contains("stress of increment 3"), "{}", said[0]);
     let r = jc([1e-6, 2e-6, 5e-7, 1e-6]);
     assert!(!r.coverage.iter().any(|c| c.contains("same time")), "{:?}", r.coverage);
+    // The same under uniaxial stress (every increment holds σ22 … σ12 at zero, the strains
+    // solved for): the warning was skipped whenever the first increment held stresses (a creep
+    // routine under a held load passed unwarned; a user-style sweep).
+    let mut path = Path::uniaxial_stress(8e-3, 4, 0);
+    for inc in &mut path.increments {
+        inc.dtime = 1e-6;
+    }
+    assert!(path.increments[0].hold_stress.is_some());
+    let mut r = reference("johnson-cook", PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let r =
+        check::run(&mut caller, &JC, PointState::zero(&info, 400.0), &path, &Settings::default()).unwrap();
+    assert!(r.coverage.iter().any(|c| c.contains("every increment takes the same time")), "{:?}", r.coverage);
 }
 
 /// The reference Johnson–Cook routine with one more state variable, a flag it sets on its first

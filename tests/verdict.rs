@@ -412,3 +412,62 @@ fn a_twin_refusing_calls_the_real_routine_computes_is_twin_not_safe() {
     let d = r.increments[0].diagnosis.as_ref().expect("the increment is judged in full");
     assert!(d.pass && d.twin_unsafe && d.reason.contains("refused a call"), "{}", d.reason);
 }
+
+/// Linear elasticity whose σ11 jumps by `self.1` where the strain at the end of the call has
+/// ε11 ≥ 0 (a criterion that switches a term on at a sign change), in the real routine and
+/// its twin alike (the twin on the real part): the tangent it returns is the derivative on
+/// either side.
+struct Jumping(ModelRoutine<tancheck::models::AnyModel>, f64);
+
+impl tancheck::core::Routine for Jumping {
+    fn info(&self) -> &RoutineInfo {
+        self.0.info()
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        self.0.call(input, output)?;
+        if input.strain[0] + input.dstrain[0] >= 0.0 {
+            output.stress[0] += self.1;
+        }
+        Ok(())
+    }
+    fn complex(&mut self) -> Option<&mut dyn tancheck::core::ComplexRoutine> {
+        Some(self)
+    }
+}
+
+impl tancheck::core::ComplexRoutine for Jumping {
+    fn call_complex(
+        &mut self,
+        input: &CallInput<'_, num_complex::Complex64>,
+        output: &mut CallOutput<'_, num_complex::Complex64>,
+    ) -> Result<(), Fault> {
+        use tancheck::core::Routine;
+        self.0.complex().expect("elasticity has a twin").call_complex(input, output)?;
+        if (input.strain[0] + input.dstrain[0]).re >= 0.0 {
+            output.stress[0] += self.1;
+        }
+        Ok(())
+    }
+}
+
+// A stress that jumps across the point (a shear path sitting on ε11 = 0 where the law
+// switches a term on) has a tangent the complex step confirms, and the check passes; but the
+// diagnosis and a coverage warning say that the response is discontinuous there, naming the
+// strain direction (it was "cleared on a closer look" without a word; a user-style sweep of a
+// ply damage law). A smooth routine on the same path has no such word.
+#[test]
+fn a_stress_jump_at_the_point_is_said() {
+    use tancheck::core::path::Shape;
+    let path = Path::ramp(Shape::Shear12, 2e-3, 3, 0);
+    let mut m = Jumping(reference("elastic", PointKind::Solid3d).unwrap(), 1.0);
+    let r = run_from_zero(&mut m, &[200000.0, 0.3], 20.0, &path, &Settings::default());
+    assert_eq!(r.verdict, Verdict::Pass, "{}", summary(&r));
+    let d =
+        r.increments.iter().find_map(|i| i.diagnosis.as_ref()).expect("the central check straddled the jump");
+    assert!(d.reason.contains("jumps across this point in strain direction 11"), "{}", d.reason);
+    assert!(r.coverage.iter().any(|c| c.contains("the stress jumps across the point")), "{:?}", r.coverage);
+    let mut m = Jumping(reference("elastic", PointKind::Solid3d).unwrap(), 0.0);
+    let r = run_from_zero(&mut m, &[200000.0, 0.3], 20.0, &path, &Settings::default());
+    assert_eq!(r.verdict, Verdict::Pass, "{}", summary(&r));
+    assert!(r.coverage.iter().all(|c| !c.contains("jumps")), "{:?}", r.coverage);
+}

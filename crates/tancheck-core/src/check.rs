@@ -280,6 +280,15 @@ fn run_path(
             path.increments[0].dtime
         ));
     }
+    if let Some(&first) = increments.jumps.first() {
+        let n = increments.jumps.len();
+        coverage.push(format!(
+            "the stress jumps across the point at {n} increment{} (first {first}; see their diagnosis): \
+             a discontinuous response, which no tangent describes and across which a solver's Newton \
+             iteration cannot converge, whatever the check says of the tangent",
+            if n == 1 { "" } else { "s" }
+        ));
+    }
     if !unloaded && !stopped && increments.len() > 1 {
         coverage.push(
             "the path never unloaded (the strain increment never opposed the stress): tangents after a load \

@@ -77,14 +77,11 @@ pub fn depends_on_time(
     start: &PointState,
     inc: &crate::path::PathIncrement,
 ) -> Option<bool> {
-    // (An increment under held stresses has its strain solved for: not this one.)
-    if inc.dtime == 0.0 || inc.hold_stress.is_some() {
+    if inc.dtime == 0.0 {
         return None;
     }
     let mut d = Driver::new(info, props, start.clone()).ok()?;
-    let mut dstrain = vec![0.0; info.convention.ncomp()];
-    info.convention.strain_from_canonical(&inc.dstrain, &mut dstrain);
-    d.set_increment(&dstrain, inc.dtemp, inc.dtime);
+    set_solved(&mut d, caller, info, inc)?;
     d.base_call(caller).ok()?;
     let stress = d.base.stress.clone();
     d.set_dtime_keep_count(2.0 * inc.dtime);
@@ -93,8 +90,8 @@ pub fn depends_on_time(
 }
 
 /// [`depends_on_time`] at increment `k` (1-based) of `path`: the increments before it walked
-/// from `start` with base calls first. `None` as there, or when an increment before it holds
-/// stresses or its call fails. k − 1 + 2 calls.
+/// from `start` with base calls first (their strains solved for where they hold stresses).
+/// `None` as there, or when a call or solve before it fails. k − 1 + 2 calls, and the solves'.
 pub fn depends_on_time_at(
     caller: &mut Caller<'_>,
     info: &RoutineInfo,
@@ -105,17 +102,35 @@ pub fn depends_on_time_at(
 ) -> Option<bool> {
     let inc = path.increments.get(k.checked_sub(1)?)?;
     let mut d = Driver::new(info, props, start.clone()).ok()?;
-    let mut dstrain = vec![0.0; info.convention.ncomp()];
     for before in &path.increments[..k - 1] {
-        if before.hold_stress.is_some() {
-            return None;
-        }
-        info.convention.strain_from_canonical(&before.dstrain, &mut dstrain);
-        d.set_increment(&dstrain, before.dtemp, before.dtime);
+        set_solved(&mut d, caller, info, before)?;
         d.base_call(caller).ok()?;
         d.advance();
     }
     depends_on_time(caller, info, props, d.start(), inc)
+}
+
+/// Set `inc` on the driver, its strain increment solved for where it holds stresses (as the
+/// check's walk does: a creep routine under a held load, the strains all solved for, passed
+/// unwarned when held increments were left out; a user-style sweep). `None` when the solve
+/// fails or does not converge.
+fn set_solved(
+    d: &mut Driver,
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    inc: &crate::path::PathIncrement,
+) -> Option<()> {
+    let mut dstrain = vec![0.0; info.convention.ncomp()];
+    info.convention.strain_from_canonical(&inc.dstrain, &mut dstrain);
+    d.set_increment(&dstrain, inc.dtemp, inc.dtime);
+    if let Some(hold) = &inc.hold_stress {
+        let (controlled, targets) = crate::increment::held_components(&info.convention, hold);
+        let settings = crate::mixed::MixedSettings::default();
+        let log = crate::mixed::solve(d, caller, &controlled, &targets, &settings, true).ok()?;
+        log.converged.then_some(())
+    } else {
+        Some(())
+    }
 }
 
 /// Branches reached so far, as (reported id, state changed).

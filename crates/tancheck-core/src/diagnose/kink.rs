@@ -84,6 +84,15 @@ pub(super) fn rounding(abs_gaps: &[f64]) -> bool {
     }
 }
 
+/// A jump in the stress, not rounding: the absolute gap between the one-sided quotients grows
+/// as the step shrinks (see [`rounding`]) and, at the smallest step, exceeds `scale`, the size
+/// of the column (the larger of the returned column and the smaller one-sided one, and the
+/// entry floor). A quotient across a jump J is J/h; rounding's ε|σ|/h stays many decades below
+/// the tangent at these steps (2e-16 × a stress over a strain of 1e-10).
+pub(super) fn jump(abs_gaps: &[f64], scale: f64) -> bool {
+    rounding(abs_gaps) && abs_gaps.last().is_some_and(|&g| g > scale)
+}
+
 /// No kink at the point, but one within the largest step: the gap is above [`GAP_LEVEL`] at
 /// the largest step and below it at the smallest. Shared by both kink probes.
 pub(super) fn nearby(gaps: &[f64], detected: bool) -> bool {
@@ -106,6 +115,11 @@ pub struct KinkColumn {
     /// all three, so a side that is zero does not skew it). The mean of the sides is not.
     #[serde(default)]
     pub on_a_side: bool,
+    /// The stress jumps across the point in this strain direction: the gap between the
+    /// one-sided quotients grows as 1/h (as rounding's does) and is larger than the column
+    /// itself (rounding's is far below it); see [`jump`].
+    #[serde(default)]
+    pub jump: bool,
 }
 
 /// At a kink, a column on one side of it is at most this share of the gap between the sides
@@ -155,6 +169,16 @@ pub struct Kink {
 }
 
 impl Kink {
+    /// The strain directions (labels) across which the stress jumps.
+    pub fn jumps(&self, conv: &Convention) -> Vec<&'static str> {
+        self.columns
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| c.jump)
+            .map(|(j, _)| conv.order()[j].label())
+            .collect()
+    }
+
     /// Every column equals one of its own one-sided derivatives.
     pub fn every_column_matches(&self) -> bool {
         !self.columns.is_empty() && self.columns.iter().all(|c| c.matches != Side::Neither)
@@ -216,8 +240,13 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
             let detected = kinked(&col_gaps[j]) && !rounding(&col_abs[j]);
             let matches = Side::matched(fe, be, tol, detected);
             let cols = j * n..(j + 1) * n;
-            let on_a_side = on_a_side(&returned[cols.clone()], &f[cols.clone()], &b[cols]);
+            let on_a_side = on_a_side(&returned[cols.clone()], &f[cols.clone()], &b[cols.clone()]);
+            let norm = |m: &[f64]| m.iter().map(|x| x * x).sum::<f64>().sqrt();
+            let scale = norm(&returned[cols.clone()])
+                .max(norm(&f[cols.clone()]).min(norm(&b[cols])))
+                .max(entry_floor * norm(returned));
             KinkColumn {
+                jump: jump(&col_abs[j], scale),
                 gaps: col_gaps[j].clone(),
                 detected,
                 forward_error: fe,
@@ -308,5 +337,15 @@ mod tests {
         assert!(!rounding(&[0.0, 0.0, 0.0]));
         // A kink with rounding on top that has not yet overtaken it.
         assert!(!rounding(&[0.26, 0.26, 0.26 + 2.2e-7]));
+    }
+
+    /// A stress jump J seen by a one-sided quotient is J/h: it grows as rounding does, but
+    /// stands far above the column (a 1 MPa jump at steps 1e-8 to 1e-10 against a column of
+    /// 1e5 MPa); rounding stays far below it.
+    #[test]
+    fn a_gap_that_grows_and_exceeds_the_column_is_a_jump() {
+        assert!(super::jump(&[1e8, 1e9, 1e10], 1e5));
+        assert!(!super::jump(&[2.2e-9, 2.2e-8, 2.2e-7], 1e5));
+        assert!(!super::jump(&[0.26e5, 0.26e5, 0.26e5], 1e5));
     }
 }

@@ -31,6 +31,10 @@ pub use kink::{Kink, KinkColumn, Side};
 pub use study::{Behaviour, StepStudy};
 pub use temp_kink::TempKink;
 
+/// The words a diagnosis's reason gives a stress jump (before the strain directions); the
+/// check's coverage warning looks for them.
+pub const JUMP_WORDS: &str = "the stress jumps across this point in strain direction";
+
 /// Fractions of the increment used to show a continuum tangent.
 const REFINE: [f64; 3] = [0.125, 0.0625, 0.03125];
 
@@ -246,6 +250,21 @@ pub fn run(
         decision = decide::decide(&observed);
         if let (Some(note), false) = (symmetry, decision.pass) {
             decision.reason = format!("{}; {note}", decision.reason);
+        }
+    }
+    // A stress that jumps across the point: no tangent describes it, whatever the verdict on
+    // the tangent (a discontinuous law cleared "on a closer look" with no word of it; a
+    // user-style sweep).
+    if let Some(k) = observed.kink.as_ref() {
+        let jumps = k.jumps(conv);
+        if !jumps.is_empty() {
+            decision.reason = format!(
+                "{}; {JUMP_WORDS} {} (its one-sided difference quotients grow as 1/h and exceed the tangent): a \
+                 discontinuous response, which no tangent describes and across which a Newton iteration \
+                 cannot converge",
+                decision.reason,
+                jumps.join(", ")
+            );
         }
     }
     // A ∂σ/∂T failure not held against the routine (a kink in the temperature) has no causes.

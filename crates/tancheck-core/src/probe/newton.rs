@@ -29,7 +29,9 @@
 //!
 //! Verdict: FAIL when Newton with the routine's tangent does not converge at some probed
 //! increment (or the routine fails during it), or when an increment with at least three
-//! usable residuals has an order below `tol` (default 1.5). An increment that converges in
+//! usable residuals has an order below `tol` (default 1.5); a single order (three usable
+//! residuals, the first the start's) between 1.2 and 1.5 is pre-asymptotic and not judged
+//! ([`IncrementSolve::judged_order`]). An increment that converges in
 //! one iteration has a linear response and no order to measure. Value: the lowest order over
 //! the measured increments. A point with a single component has nothing to solve for and is
 //! skipped.
@@ -45,6 +47,12 @@ pub struct NewtonRate;
 
 /// Default lowest acceptable order.
 pub const DEFAULT_MIN_ORDER: f64 = 1.5;
+/// A single order from the start residual below this reads as linear convergence and is
+/// judged; above it (and below the lowest acceptable order) it is left unjudged: see
+/// [`IncrementSolve::judged_order`]. Why 1.2: a constant contraction gives 1.0 from any three
+/// residuals, and a contraction that shrinks tenfold after a first step by 1e-4 already reads
+/// 1.25.
+pub const FROM_START_LINEAR: f64 = 1.2;
 /// Residuals at most this times the scale of the stress are at the rounding floor.
 pub const FLOOR: f64 = 1e-13;
 /// The probe's solves stop at this residual relative to max(1, ‖σ‖∞).
@@ -105,6 +113,16 @@ impl IncrementSolve {
     pub fn order(&self) -> Option<f64> {
         let last = self.orders.last().copied()?;
         Some(self.tail_order.map_or(last, |t| last.max(t)))
+    }
+    /// The order the verdict judges: [`IncrementSolve::order`], except a single order made
+    /// with the start residual that does not read as linear (at least [`FROM_START_LINEAR`]):
+    /// the first step from the far start is pre-asymptotic and lowers it (a creep routine's
+    /// exact tangent gave [2.4e1, 1.8e-3, 3.2e-9, 6.4e-14], order 1.39 from those three, and
+    /// failed; a user-style sweep). A wrong tangent's contraction stays about the same from step
+    /// to step, which reads as order 1 from any three residuals.
+    pub fn judged_order(&self) -> Option<f64> {
+        let p = self.order()?;
+        (self.orders.len() > 1 || !(FROM_START_LINEAR..DEFAULT_MIN_ORDER).contains(&p)).then_some(p)
     }
     /// Converged with the routine's own tangent.
     pub fn converged(&self) -> bool {
@@ -337,6 +355,11 @@ impl Probe for NewtonRate {
                 if s.log.numerical_fallback {
                     line.push_str(", the routine's tangent did not converge (numerical fallback)");
                 }
+                if s.order().is_some() && s.judged_order().is_none() {
+                    line.push_str(
+                        "; one order only, made with the start residual (a first step far from the solution,                          pre-asymptotic), and above the linear rate: not judged",
+                    );
+                }
                 if s.diverged_from_start.is_some() {
                     line.push_str(&format!(
                         "; started at {:.0} % of the increment: from its start Newton with the routine's \
@@ -371,7 +394,7 @@ impl Probe for NewtonRate {
         let measured: Vec<(usize, f64)> = solves
             .iter()
             .filter(|s| s.elsewhere.is_none())
-            .filter_map(|s| s.order().map(|p| (s.increment, p)))
+            .filter_map(|s| s.judged_order().map(|p| (s.increment, p)))
             .collect();
         let worst = measured.iter().cloned().min_by(|a, b| a.1.total_cmp(&b.1));
         let iters = solves.iter().map(IncrementSolve::iterations);
@@ -393,7 +416,8 @@ impl Probe for NewtonRate {
             return Ok(r);
         }
         let unconverged = solves.iter().find(|s| !unjudged(s) && !s.converged());
-        let slow = solves.iter().find(|s| s.elsewhere.is_none() && s.order().is_some_and(|p| p < min_order));
+        let slow =
+            solves.iter().find(|s| s.elsewhere.is_none() && s.judged_order().is_some_and(|p| p < min_order));
         let mut r = if let Some(s) = unconverged {
             let why = match &s.failure {
                 Some(f) => format!("the routine failed during the solve: {f}"),
@@ -414,7 +438,7 @@ impl Probe for NewtonRate {
             r.increment = Some(s.increment);
             r
         } else if let Some(s) = slow {
-            let p = s.order().unwrap_or(f64::NAN);
+            let p = s.judged_order().unwrap_or(f64::NAN);
             let mut r = ProbeResult::new(
                 "newton",
                 ProbeStatus::Fail,
@@ -535,5 +559,20 @@ mod tests {
         let s = solve(&[1e-9, 1e-10, 1e-11, 1e-16], 1e-12);
         assert_eq!(s.orders.len(), 1);
         assert_eq!(s.tail_order, None);
+    }
+
+    // A single order made with the start residual: a creep routine's exact tangent
+    // (residuals of a user-style sweep) reads 1.39, pre-asymptotic, and is not judged; a
+    // constant contraction reads 1.0 from the same three and is; a second order is judged.
+    #[test]
+    fn a_single_order_from_the_start_is_judged_only_when_linear() {
+        let s = solve(&[2.37e1, 1.78e-3, 3.22e-9, 6.37e-14], 1e-10);
+        assert!((s.order().unwrap() - 1.39).abs() < 0.01, "{:?}", s.order());
+        assert_eq!(s.judged_order(), None);
+        let s = solve(&[2.37e1, 1.78e-3, 1.34e-7, 1.0e-11], 1e-10);
+        assert!(s.judged_order().is_some_and(|p| p < FROM_START_LINEAR), "{:?}", s.judged_order());
+        let s = solve(&[2.37e1, 1.78e-3, 3.22e-9, 1.0e-11, 1e-16], 1e-13);
+        assert_eq!(s.orders.len(), 2);
+        assert!(s.judged_order().is_some());
     }
 }

@@ -233,6 +233,8 @@ pub struct Collector {
     pub(crate) state_ever_changed: bool,
     /// Some increment's routine returned ∂σ/∂T (and it was checked).
     pub(crate) dtemp_checked: bool,
+    /// Increments whose diagnosis found the stress jumping across the point.
+    pub(crate) jumps: Vec<usize>,
 }
 
 impl Collector {
@@ -268,12 +270,16 @@ impl Collector {
             twin_unsafe: false,
             state_ever_changed: false,
             dtemp_checked: false,
+            jumps: Vec::new(),
         }
     }
 
     /// Add the next increment.
     pub fn push(&mut self, inc: IncrementResult) {
         let record = IncrementRecord::of(&inc, &self.schemes);
+        if inc.diagnosis.as_ref().is_some_and(|d| d.reason.contains(crate::diagnose::JUMP_WORDS)) {
+            self.jumps.push(inc.index);
+        }
         for c in &inc.checks {
             let Some(s) = self.summary.iter_mut().find(|s| s.scheme == c.scheme) else { continue };
             match &c.tangent {

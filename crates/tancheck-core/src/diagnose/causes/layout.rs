@@ -145,6 +145,15 @@ fn term_shear_factor(ev: &Evidence<'_>, shear: &[usize]) -> Option<(f64, String)
                 s / (c * (f - 1.0) * qq)
             })
             .collect();
+        // A term without a normal part (a flow direction under pure shear) has its shear
+        // entries scaled by f exactly as the whole term is scaled by f²: nothing tells the two
+        // apart, and the fit would explain any scaled shear term ("off by 2" for factors of
+        // 1.16 to 1.9 on a user-style sweep's creep routine under shear). Only a term whose
+        // normal part is a fifth of its shear part or more is read.
+        let pp: f64 = p.iter().map(|x| x * x).sum();
+        if pp < 0.04 * qq {
+            continue;
+        }
         let mut a = vec![0.0; n];
         let mut sa = vec![0.0; n];
         for (&i, &x) in normal.iter().zip(&p) {

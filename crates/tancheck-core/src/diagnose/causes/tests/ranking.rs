@@ -110,3 +110,22 @@ fn a_flow_direction_with_shear_entries_off_by_two_is_a_shear_factor() {
         assert!(h[0].explains && h[0].detail.contains("a⊗a"), "{h:#?}");
     }
 }
+
+// Under pure shear the flow direction has no normal part: a term scaled by any factor then
+// fits "shear entries off by 2" exactly, and is not read so (a creep routine's term missing
+// its time increment read shear-factor at factors 1.16 to 1.9; a user-style sweep).
+#[test]
+fn a_scaled_pure_shear_term_is_no_shear_factor() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let z = vec![0.0; 6];
+    let good = j2_like();
+    let nv = [0.0, 0.0, 0.0, 0.0, 0.0, 0.7];
+    let mut bad = good.clone();
+    for j in 0..6 {
+        for i in 0..6 {
+            bad[i + 6 * j] += -0.9e5 * nv[i] * nv[j];
+        }
+    }
+    let h = rank(&ev(&conv, &bad, &good, &z));
+    assert_ne!(h[0].cause, Cause::ShearFactor, "{h:#?}");
+}

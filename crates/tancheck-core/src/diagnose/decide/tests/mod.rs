@@ -44,6 +44,7 @@ fn column(matches: Side, detected: bool, fe: f64, be: f64) -> KinkColumn {
         backward_error: be,
         matches,
         on_a_side: matches != Side::Neither,
+        jump: false,
     }
 }
 
