@@ -130,3 +130,20 @@ fn an_isochoric_path_says_it_cannot_show_a_factor_of_j() {
     assert_eq!(rep.verdict, Verdict::Pass, "{rep:#?}");
     assert!(!rep.notes.iter().any(|n| n.contains("J = det F")), "{:?}", rep.notes);
 }
+
+// A central step far from the default (1e-3) gives central differences off by their own
+// truncation: a correct routine with an exact twin passes, the twin judging, with a note (it
+// failed with its twin called not complex-step safe; a user-style sweep). A twin whose
+// derivative is wrong still is set aside: see tests/finite.rs.
+#[test]
+fn a_coarse_central_step_does_not_set_an_exact_twin_aside() {
+    let mut r = FiniteModelRoutine(NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::DsDe));
+    let path =
+        FinitePathSpec::UniaxialStretch { stretch: 1.3, increments: 3, rotation: None }.build().unwrap();
+    let settings = FiniteSettings { central_step: 1e-3, ..FiniteSettings::default() };
+    let rep = run(&mut r, &PROPS, &[], &path, settings);
+    assert!(rep.increments.iter().any(|i| i.error_central > settings.tolerance), "{rep:#?}");
+    assert_eq!(rep.verdict, Verdict::Pass, "{rep:#?}");
+    assert_eq!(rep.twin_not_safe, None, "{rep:#?}");
+    assert!(rep.notes.iter().any(|n| n.contains("the central differences' own error")), "{:?}", rep.notes);
+}
