@@ -87,6 +87,20 @@ fn every_measure(lib: &Path, prefix: &str, dir: &Path) {
         let (code, out) = tancheck(&["probe", &file]);
         assert_eq!(code, 0, "{symbol} {tangent} probes: {out}");
     }
+    // Its elastic log strain, a spatial tensor, declared a scalar: the rotation probes fail,
+    // and say that the stress rotates where the state does not (a correct routine keeping a
+    // tensor of the reference configuration read "NOT objective" with no word; a user-style
+    // sweep).
+    let symbol = format!("{prefix}_j2log");
+    let undeclared = Manifest {
+        symbol: &symbol,
+        extra: r#", "probes": { "tensor_state": [] }"#,
+        ..j2("tau-jaumann", "kirchhoff")
+    };
+    let file = write(dir, "j2-undeclared.json", &undeclared);
+    let (code, out) = tancheck(&["probe", &file]);
+    assert_eq!(code, 1, "{out}");
+    assert!(out.contains("the stress rotates where the state does not"), "{out}");
     for tangent in ["tau-jaumann", "sigma-jaumann", "tau-truesdell", "sigma-truesdell"] {
         let symbol = format!("{prefix}_nh");
         let m =

@@ -124,7 +124,7 @@ fn set_solved(
     info.convention.strain_from_canonical(&inc.dstrain, &mut dstrain);
     d.set_increment(&dstrain, inc.dtemp, inc.dtime);
     if let Some(hold) = &inc.hold_stress {
-        let (controlled, targets) = crate::increment::held_components(&info.convention, hold);
+        let (controlled, targets) = crate::mixed::held_components(&info.convention, hold);
         let settings = crate::mixed::MixedSettings::default();
         let log = crate::mixed::solve(d, caller, &controlled, &targets, &settings, true).ok()?;
         log.converged.then_some(())

@@ -29,22 +29,11 @@ pub struct Step {
     pub note: Option<String>,
 }
 
-/// Routine positions and targets of the stress components a mixed-control increment holds.
 /// Words of an increment's note when its mixed-control solve did not converge (the check's
 /// coverage warning counts these notes).
 pub(crate) const HELD_NOT_REACHED: &str = "the held stresses were not reached";
 
-pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
-    let mut controlled = Vec::new();
-    let mut targets = Vec::new();
-    for (i, c) in conv.order().iter().enumerate() {
-        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
-            controlled.push(i);
-            targets.push(t);
-        }
-    }
-    (controlled, targets)
-}
+pub use crate::mixed::held_components;
 
 /// An increment set on the driver: the solve's fault if any, its log and a note for the report.
 pub type Settled = (Result<(), Fault>, Option<mixed::SolveLog>, Option<String>);

@@ -74,6 +74,19 @@ pub fn solve(
     solve_with(driver, caller, controlled, targets, settings, use_routine_tangent, true)
 }
 
+/// Routine positions and targets of the stress components a mixed-control increment holds.
+pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
+    let mut controlled = Vec::new();
+    let mut targets = Vec::new();
+    for (i, c) in conv.order().iter().enumerate() {
+        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
+            controlled.push(i);
+            targets.push(t);
+        }
+    }
+    (controlled, targets)
+}
+
 /// How many times a step that does not lower the residual is halved.
 pub const HALVINGS: usize = 8;
 

@@ -134,12 +134,32 @@ impl Shape {
 impl Path {
     /// Load along `shape` to `peak` (the size of the direction's leading component) in
     /// `steps_out` equal increments, then back to zero in `steps_back` increments.
+    ///
+    /// Each increment is the difference between its target point and the strain the increments
+    /// before it add up to in floating point (as a solver, and the check's walk, add them), so
+    /// the path reaches its peak and comes back to exactly zero: equal increments summed left
+    /// 1e-19 to 1e-21 of strain at the end, a point 1e-19 from a switch at zero strain, where a
+    /// correct damage law with a tension–compression split failed (a user-style sweep). The
+    /// differences are exact (Sterbenz: consecutive points within a factor 2 of each other, or
+    /// from or to zero), so every point of the path is its target, bit for bit.
     pub fn ramp(shape: Shape, peak: f64, steps_out: usize, steps_back: usize) -> Path {
         let d = shape.direction();
         let mut increments = Vec::with_capacity(steps_out + steps_back);
+        let mut reached = [0.0f64; 6];
         for k in 0..steps_out + steps_back {
-            let s = if k < steps_out { peak / steps_out as f64 } else { -peak / steps_back as f64 };
-            increments.push(PathIncrement::strain(d.map(|x| x * s)));
+            // The fraction of the peak at the end of increment k.
+            let at = if k < steps_out {
+                (k + 1) as f64 / steps_out as f64
+            } else {
+                (steps_out + steps_back - k - 1) as f64 / steps_back as f64
+            };
+            let mut de = [0.0; 6];
+            for i in 0..6 {
+                let target = d[i] * peak * at;
+                de[i] = target - reached[i];
+                reached[i] += de[i];
+            }
+            increments.push(PathIncrement::strain(de));
         }
         let name = if steps_back > 0 {
             format!("{} to {peak:e} and back ({steps_out}+{steps_back} increments)", shape.name())
@@ -218,5 +238,28 @@ mod tests {
         }
         assert!(sum.iter().all(|s| s.abs() < 1e-18), "{sum:?}");
         assert!(Shape::from_name("nope").unwrap_err().to_string().contains("uniaxial-strain"));
+    }
+
+    // Summed in floating point as the walk sums them, the increments of every built-in shape
+    // reach the peak and come back to zero bit for bit (equal increments left 2.7e-19 of
+    // ε11 after 20 out and 10 back: a point off a switch at zero strain; a user-style sweep).
+    #[test]
+    fn a_ramp_ends_at_exactly_zero_and_passes_its_peak() {
+        for shape in Shape::ALL {
+            for (peak, out, back) in [(4e-3, 8, 4), (0.1, 20, 10), (1e-3, 7, 3), (3.7e-3, 11, 13)] {
+                let p = Path::ramp(shape, peak, out, back);
+                let mut sum = [0.0f64; 6];
+                for (k, inc) in p.increments.iter().enumerate() {
+                    for (s, d) in sum.iter_mut().zip(inc.dstrain) {
+                        *s += d;
+                    }
+                    if k + 1 == out {
+                        let want = shape.direction().map(|x| x * peak);
+                        assert_eq!(sum, want, "{shape:?} {peak} {out} {back}: the peak");
+                    }
+                }
+                assert_eq!(sum, [0.0; 6], "{shape:?} {peak} {out} {back}");
+            }
+        }
     }
 }

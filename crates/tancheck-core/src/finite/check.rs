@@ -129,13 +129,14 @@ pub fn run(
         }
     };
     // A path on which the volume never changes (J = 1: simple shear, the default) cannot show a
-    // confusion of J: a missing or extra 1/J, Cauchy stress for Kirchhoff (such a tangent passed
-    // on the default path, found by a user-style sweep).
+    // tangent off by a factor of J (such a tangent passed on the default path, found by a
+    // user-style sweep). A stress measure swapped it does show (d(τ/J) = dτ − τ tr d even at
+    // J = 1): the note does not claim that (it contradicted the verdict above it).
     if path.gradients.len() > 1 && path.gradients.iter().all(|f| (mat3::det(f) - 1.0).abs() <= 1e-12) {
         report.notes.push(
             "J = det F = 1 at every increment of the path (an isochoric path such as simple shear): a tangent \
-             or stress off by a factor of J (a missing or extra 1/J, Cauchy stress for Kirchhoff) agrees here; \
-             check a path that changes the volume too (uniaxial-stretch, biaxial)"
+             off by a factor of J (a missing or extra 1/J) agrees here; check a path that changes the volume \
+             too (uniaxial-stretch, biaxial)"
                 .into(),
         );
     }

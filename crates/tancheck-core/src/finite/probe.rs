@@ -198,6 +198,8 @@ struct Findings {
     worst: f64,
     details: Vec<String>,
     faulted: bool,
+    /// Some case had the stress rotate (within the tolerance) and the state not.
+    state_alone: bool,
 }
 
 impl Findings {
@@ -216,8 +218,26 @@ impl Findings {
         self.worst = self.worst.max(m);
     }
 
+    /// The stress difference `stress` and the state's `state` of one case: whether the state
+    /// alone is off.
+    fn note_state(&mut self, stress: f64, state: f64) {
+        self.state_alone |= stress <= ROTATION_TOLERANCE && state > ROTATION_TOLERANCE;
+    }
+
     fn verdict(self, name: &str, what: &str) -> FiniteProbeResult {
-        let Findings { worst, details, faulted } = self;
+        let Findings { worst, details, faulted, state_alone } = self;
+        // Where the stress rotates and the state does not, the declaration is the likelier
+        // culprit (a correct routine keeping a reference-configuration tensor, declared in
+        // tensor_state as the README then asked, read "NOT objective" with no word; a
+        // user-style sweep).
+        let hint = if state_alone {
+            "; the stress rotates where the state does not: `tensor_state` must list exactly the state's \
+             spatial symmetric tensors (a tensor of the reference configuration, such as an inverse plastic \
+             right Cauchy–Green tensor, does not rotate and is left out; a spatial one left out is rotated \
+             by nobody)"
+        } else {
+            ""
+        };
         let passed = worst <= ROTATION_TOLERANCE;
         FiniteProbeResult {
             name: name.into(),
@@ -229,7 +249,7 @@ impl Findings {
                     // The largest of the stress, state and energy differences, each relative
                     // to its own size: the details say which.
                     format!(
-                        "NOT objective: it should hold that {what}; largest relative difference {worst:.2e}"
+                        "NOT objective: it should hold that {what}; largest relative difference {worst:.2e}{hint}"
                     )
                 } else {
                     format!("NOT objective: it should hold that {what}; a call failed")
@@ -277,6 +297,7 @@ impl Rotation<'_> {
                 } else {
                     0.0
                 };
+                found.note_state(e, es);
                 found.difference(e.max(es).max(ee), || {
                     let state = state_part(&s.state0, es);
                     format!(
@@ -302,6 +323,7 @@ impl Rotation<'_> {
                     diff(&b.state, &rotate_state(&q, &s.state0, &self.options.tensor_state)),
                     &s.state0,
                 );
+                found.note_state(e, es);
                 found.difference(e.max(es), || {
                     let state = state_part(&s.state0, es);
                     format!(
