@@ -71,7 +71,7 @@ impl Runner<'_> {
             .arg("--quiet")
             .stdin(Stdio::null())
             .stdout(Stdio::piped())
-            .stderr(Stdio::inherit())
+            .stderr(Stdio::piped())
             .spawn();
         let mut child = match child {
             Ok(c) => c,
@@ -81,6 +81,15 @@ impl Runner<'_> {
         let reader = std::thread::spawn(move || {
             let mut s = String::new();
             let _ = stdout.read_to_string(&mut s);
+            s
+        });
+        // The worker's standard error is passed on when it ends, without its account of its
+        // last words: the item's message holds them (a block saying "exit 70" stood above a
+        // campaign that exited 3; a user-style sweep).
+        let mut stderr = child.stderr.take().expect("piped");
+        let err_reader = std::thread::spawn(move || {
+            let mut s = String::new();
+            let _ = stderr.read_to_string(&mut s);
             s
         });
         let started = Instant::now();
@@ -97,6 +106,11 @@ impl Runner<'_> {
             }
         };
         let text = reader.join().unwrap_or_default();
+        let said = crate::isolate::without_last_words(&err_reader.join().unwrap_or_default());
+        if !said.is_empty() {
+            use std::io::Write as _;
+            let _ = std::io::stderr().write_all(said.as_bytes());
+        }
         let Some(status) = status else {
             return fault(format!(
                 "the worker was stopped after the item time limit of {} s",

@@ -216,7 +216,11 @@ pub fn run_isolated(
             },
         };
         let routine = shared.routine();
-        let stdout_text = String::from_utf8_lossy(&stdout);
+        // The worker's own account of its last words (ending "verdict: FAULT (exit 70)") is left
+        // out: the account below is the one that holds, with the exit code of this process
+        // (two verdicts with two exit codes were printed; a user-style sweep). What the routine
+        // printed stays.
+        let stdout_text = without_last_words(&String::from_utf8_lossy(&stdout));
         let stderr_text = String::from_utf8_lossy(&stderr);
         let mut o = crate::survive::stdout();
         if !stdout_text.is_empty() {
@@ -341,4 +345,37 @@ fn fault_json(what: &str, routine: Option<&str>, call: Option<&RunningCall>) -> 
         "fault": { "message": what, "increment": call.map(RunningCall::increment), "call": call },
         "cautions": tancheck_core::report::CAUTIONS,
     })
+}
+
+/// `text` without the blocks of a process's last words as the guarded shim writes them to the
+/// terminal: from a line starting "tancheck: FAULT: " to the next line starting
+/// "   verdict: FAULT (exit", both included. The parent of a worker gives its own account.
+pub fn without_last_words(text: &str) -> String {
+    let mut out = String::with_capacity(text.len());
+    let mut inside = false;
+    for line in text.split_inclusive('\n') {
+        if !inside && line.starts_with("tancheck: FAULT: ") {
+            inside = true;
+        }
+        if !inside {
+            out.push_str(line);
+        }
+        if inside && line.starts_with("   verdict: FAULT (exit") {
+            inside = false;
+        }
+    }
+    out
+}
+
+#[cfg(test)]
+mod last_words_tests {
+    // The shim's terminal account of last words is cut out whole; the routine's own lines
+    // before and after it stay.
+    #[test]
+    fn the_workers_account_of_its_last_words_is_left_out() {
+        let text = "routine says hi\ntancheck: FAULT: the routine ended the process by calling exit(), during a call.\n   \
+                    routine: lib.so:f\n   verdict: FAULT (exit 70); the JSON report names the fault\nafter\n";
+        assert_eq!(super::without_last_words(text), "routine says hi\nafter\n");
+        assert_eq!(super::without_last_words("plain\n"), "plain\n");
+    }
 }
