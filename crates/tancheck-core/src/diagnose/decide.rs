@@ -433,7 +433,9 @@ fn decide_tangent(o: &Observed) -> Decision {
                 "the point sits on a kink; every column of the returned tangent equals one of its one-sided derivatives: {}",
                 k.sides
             );
-        } else if k.columns.iter().any(|c| c.matches == Side::Neither && c.detected) {
+        } else if k.columns.iter().any(|c| c.matches == Side::Neither && c.detected)
+            && !k.columns.iter().any(|c| c.matches == Side::Neither && !c.detected)
+        {
             let bad: Vec<&str> = k
                 .columns
                 .iter()
@@ -460,6 +462,10 @@ fn decide_tangent(o: &Observed) -> Decision {
             // columns, and the causes are tried against the one-sided derivatives column by
             // column. A secant cohesive tangent at zero opening read `kink-neither-side` with
             // no cause, where the kink was in the normal column only (a user-style sweep).
+            // So too where kinked columns match neither side as well: a column without a kink
+            // that differs says the tangent is wrong, and the causes name how (a secant damage
+            // tangent under shear, a principal strain at zero, read `kink-neither-side` with no
+            // cause; a user-style sweep).
             let (kinked, bad): (Vec<_>, Vec<_>) = k
                 .columns
                 .iter()
@@ -469,11 +475,18 @@ fn decide_tangent(o: &Observed) -> Decision {
             let names = |v: &[(&KinkColumn, &str)]| {
                 v.iter().map(|(_, s)| s.split(' ').next().unwrap_or("")).collect::<Vec<_>>().join(", ")
             };
+            let kinked_bad: Vec<_> =
+                kinked.iter().copied().filter(|(c, _)| c.matches == Side::Neither).collect();
             d.reason = format!(
-                "the point sits on a kink in column{} {} (each matching a side), but column{} {} differ{} from \
-                 the derivative, which has no kink there",
+                "the point sits on a kink in column{} {} ({}), but column{} {} differ{} from the derivative, which \
+                 has no kink there",
                 if kinked.len() == 1 { "" } else { "s" },
                 names(&kinked),
+                if kinked_bad.is_empty() {
+                    "each matching a side".to_string()
+                } else {
+                    format!("of which {} match{} neither side", names(&kinked_bad), if kinked_bad.len() == 1 { "es" } else { "" })
+                },
                 if bad.len() == 1 { "" } else { "s" },
                 names(&bad),
                 if bad.len() == 1 { "s" } else { "" }

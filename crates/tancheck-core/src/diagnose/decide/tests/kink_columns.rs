@@ -11,18 +11,43 @@ pub(super) fn rows() -> Vec<Row> {
     let mut wrong_elsewhere = vec![column(Side::Both, false, 1e-9, 1e-9); 6];
     wrong_elsewhere[0] = column(Side::Forward, true, 1e-9, 0.5);
     wrong_elsewhere[5] = column(Side::Neither, false, 7.25, 7.25);
-    vec![Row {
-        what: "a kink in one column, the tangent wrong in another without a kink",
-        observed: Observed {
-            kink: Some(kink(wrong_elsewhere, Side::Neither)),
-            studies: plateau(7.25),
-            complex: Some((7.25, 1e-10)),
-            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
-            ..base()
+    // The same with kinked columns that match neither side too (a secant damage tangent
+    // under pure shear: a principal strain at zero kinks columns 11, 22, 33; the secant is
+    // wrong in 11 and 22 as in 12): the column without a kink still says the tangent is wrong,
+    // and the causes are tried. It read `kink-neither-side` with no cause (a user-style sweep).
+    let mut wrong_beside = vec![column(Side::Both, false, 1e-9, 1e-9); 6];
+    wrong_beside[0] = column(Side::Neither, true, 0.4, 0.6);
+    wrong_beside[1] = column(Side::Neither, true, 0.4, 0.6);
+    wrong_beside[2] = column(Side::Forward, true, 1e-9, 0.5);
+    wrong_beside[5] = column(Side::Neither, false, 0.8, 0.8);
+    vec![
+        Row {
+            what: "kinked columns matching neither side beside a wrong column without a kink",
+            observed: Observed {
+                kink: Some(kink(wrong_beside, Side::Neither)),
+                studies: plateau(0.8),
+                complex: Some((0.8, 1e-10)),
+                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+                ..base()
+            },
+            pass: false,
+            finding: "unexplained",
+            twin_unsafe: false,
+            needs_causes: true,
         },
-        pass: false,
-        finding: "unexplained",
-        twin_unsafe: false,
-        needs_causes: true,
-    }]
+        Row {
+            what: "a kink in one column, the tangent wrong in another without a kink",
+            observed: Observed {
+                kink: Some(kink(wrong_elsewhere, Side::Neither)),
+                studies: plateau(7.25),
+                complex: Some((7.25, 1e-10)),
+                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+                ..base()
+            },
+            pass: false,
+            finding: "unexplained",
+            twin_unsafe: false,
+            needs_causes: true,
+        },
+    ]
 }
