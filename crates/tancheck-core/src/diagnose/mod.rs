@@ -14,7 +14,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::compare::{compare, compare_along, compare_dtemp_floor};
 use crate::convention::Convention;
-use crate::driver::{Direction, Driver};
+use crate::driver::{Direction, Driver, PointState};
 use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -374,6 +374,33 @@ fn initial_stiffness(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangen
     out.iter().all(|x| x.is_finite()).then_some(out)
 }
 
+/// The unloading stiffness at the end of the increment: the derivative along a small step
+/// back (a thousandth of the increment, in a millionth of its time) from the end state. The
+/// background a term of the inelastic part is measured against: for a damage law the
+/// stiffness of the damage reached, not of the damage at the start (a flipped damage term
+/// read factors −0.68 to −0.87 against the start's; a user-style sweep). `None` when a call
+/// fails or the increment is zero.
+fn elastic_at_end(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangent<'_>) -> Option<Vec<f64>> {
+    if driver.dstrain().iter().all(|x| *x == 0.0) {
+        return None;
+    }
+    let s = driver.start();
+    let end = PointState {
+        strain: s.strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect(),
+        stress: driver.base.stress.clone(),
+        state: driver.base.state.clone(),
+        temp: s.temp + driver.dtemp(),
+        time: s.time + driver.dtime(),
+    };
+    let mut d = Driver::new(caller.info(), driver.props(), end).ok()?;
+    let step: Vec<f64> = driver.dstrain().iter().map(|x| -1e-3 * x).collect();
+    d.set_increment(&step, 0.0, driver.dtime() * ELASTIC_TIME);
+    d.base_call(caller).ok()?;
+    let mut out = vec![0.0; driver.ncomp() * driver.ncomp()];
+    best(&mut d, caller, &mut out).ok()?;
+    out.iter().all(|x| x.is_finite()).then_some(out)
+}
+
 /// What the cause trials give: the ranked causes, the refined increments, and a word on
 /// symmetry (see [`causes::symmetry_note`]).
 type Trials = (Vec<Hypothesis>, Option<Refinement>, Option<String>);
@@ -416,6 +443,7 @@ fn cause_trials(
         }
     };
     let initial = initial_stiffness(driver, caller, &best);
+    let elastic_end = if ctx.state_changed { elastic_at_end(driver, caller, &best) } else { None };
     let strain_end: Vec<f64> =
         driver.start().strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect();
     let stress_end = driver.base.stress.clone();
@@ -524,6 +552,7 @@ fn cause_trials(
         numerical: &num,
         elastic: elastic_ok.then_some(&elastic[..]),
         elastic_returned: elastic_ok.then_some(&elastic_returned[..]),
+        elastic_end: elastic_end.as_deref(),
         initial: initial.as_deref(),
         start_temperature: start_temperature.as_deref(),
         temp_refinement: temp_refinement.as_ref(),

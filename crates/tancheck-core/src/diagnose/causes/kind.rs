@@ -184,6 +184,9 @@ pub struct Evidence<'a> {
     pub elastic: Option<&'a [f64]>,
     /// The tangent the routine returned at that step.
     pub elastic_returned: Option<&'a [f64]>,
+    /// The derivative along a small unloading step from the end of the increment, if
+    /// measured (state changed): the stiffness of the state reached.
+    pub elastic_end: Option<&'a [f64]>,
     /// The derivative at the start of the path (a small step from its start state along the
     /// increment's direction), if measured.
     pub initial: Option<&'a [f64]>,

@@ -43,7 +43,9 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             } else {
                 "the derivative"
             };
-            if let (Some(e), true) = (ev.elastic, ev.state_changed) {
+            // Measured from the stiffness of the state reached where it was measured (a damage
+            // law's damaged stiffness at the end), else from the elastic tangent of the start.
+            if let (Some(e), true) = (ev.elastic_end.or(ev.elastic), ev.state_changed) {
                 let mut em = e.to_vec();
                 ev.conv.tangent_to_mandel(&mut em);
                 for (b, x) in base.iter_mut().zip(&em) {

@@ -78,6 +78,15 @@ fn a_flipped_damage_term_is_a_sign_error_beside_a_start_damage_reference() {
     let t = hs.iter().find(|h| h.cause == Cause::TermSign).unwrap_or_else(|| panic!("{hs:#?}"));
     assert!(t.explains, "{t:?}");
     assert!(!hs.iter().any(|h| h.cause == Cause::TermScaled), "{hs:#?}");
+    // With the stiffness of the damage reached (the unloading step from the end of the
+    // increment) the factor is −1 exactly, whatever the damage grew by (at the start's
+    // reference it drifted from −0.68 to −0.87 with the growth, and read term-scaled and
+    // term-missing on a user-style sweep's routine).
+    let end: Vec<f64> = c.iter().map(|x| (1.0 - d) * x).collect();
+    e.elastic_end = Some(&end);
+    let hs = rank(&e);
+    let t = hs.iter().find(|h| h.cause == Cause::TermSign).unwrap_or_else(|| panic!("{hs:#?}"));
+    assert!(t.detail.contains("factor -1.000"), "{t:?}");
 }
 
 /// A porous plasticity return at a hydrostatic state: the consistent tangent

@@ -2,12 +2,10 @@
 
 use super::*;
 use crate::convention::{Convention, PointKind, ShearMeasure};
-
 /// The consistent J2 tangent of the worked case in REFERENCES.md (Simo & Taylor 1985, derived).
 fn j2_like() -> Vec<f64> {
     crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
-
 mod cone;
 mod plane;
 mod ranking;
@@ -19,6 +17,7 @@ fn ev<'a>(conv: &'a Convention, r: &'a [f64], n: &'a [f64], z: &'a [f64]) -> Evi
         numerical: n,
         elastic: None,
         elastic_returned: None,
+        elastic_end: None,
         initial: None,
         start_temperature: None,
         temp_refinement: None,
