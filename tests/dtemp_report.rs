@@ -84,6 +84,17 @@ fn a_wrong_dtemp_alone_is_said_in_every_summary() {
     let page = std::fs::read_to_string(&html).unwrap();
     assert!(page.contains("∂σ/∂T against") && page.contains("<th>entry (row/T)</th>"), "no ∂σ/∂T entries");
     assert!(page.contains("cause <code>dtemp-partial</code>"), "no ∂σ/∂T cause");
+
+    // The probe's tangent line says it as the check does (it read "wrong at 4 of 4 increments").
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("probe")
+        .arg(&m)
+        .args(["--color", "never"])
+        .output()
+        .unwrap();
+    let t = String::from_utf8_lossy(&o.stdout);
+    let line = t.lines().find(|l| l.trim_start().starts_with("tangent ")).unwrap_or_else(|| panic!("{t}"));
+    assert!(line.contains("∂σ/∂T wrong at") && line.contains("(the tangent agrees)"), "{line}");
 }
 
 // The ∂σ/∂T column of a central check faults where the tangent agrees: ν(T) = 0.3 + ν₁ (T − 20)

@@ -47,6 +47,22 @@ impl Probe for Tangent {
                 String::new()
             };
             format!("consistent at {} increments (worst error {worst:.2e}{aside})", checked.len())
+        } else if failed.iter().all(|i| {
+            i.non_finite.is_empty()
+                && i.fault.is_none()
+                && i.checks
+                    .iter()
+                    .all(|c| !matches!(&c.tangent, crate::report::CheckOutcome::Compared(x) if !x.pass))
+        }) {
+            // Only ∂σ/∂T failed: said as the check says it (the probe line read "wrong at 12 of
+            // 12 increments" beside a check whose verdict said the tangent agrees; a user-style
+            // sweep).
+            format!(
+                "∂σ/∂T wrong at {} of {} increments (the tangent agrees); finding: {}",
+                failed.len(),
+                checked.len(),
+                report.finding()
+            )
         } else {
             format!(
                 "wrong at {} of {} increments; finding: {}",
