@@ -345,3 +345,54 @@ fn bad_explore_sections_are_exit_2_naming_the_file() {
         assert!(err.contains("bad.json") && err.contains(says), "{section}: {err}");
     }
 }
+
+/// Linear elasticity whose one state variable grows with any strain increment past 1.5e-7:
+/// its state changes at almost any strain, as a creep law's flows at any stress.
+struct FlowsAtOnce(tancheck::core::ModelRoutine<tancheck::models::AnyModel>, tancheck::core::RoutineInfo);
+
+impl tancheck::core::Routine for FlowsAtOnce {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.1
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let inner = tancheck::core::CallInput { state0: &[], ..*input };
+        let (state, rest) = output.state.split_at_mut(1);
+        let mut out = tancheck::core::CallOutput {
+            stress: &mut *output.stress,
+            state: &mut rest[..0],
+            tangent: &mut *output.tangent,
+            dstress_dtemp: &mut *output.dstress_dtemp,
+            energy: &mut *output.energy,
+            outcome: &mut *output.outcome,
+        };
+        tancheck::core::Routine::call(&mut self.0, &inner, &mut out)?;
+        // A creep-like flow past a tiny threshold (1.5e-7 of strain): the state changes a
+        // little past the smallest probe increment, along every direction.
+        let size = input.dstrain.iter().map(|x| x * x).sum::<f64>().sqrt();
+        state[0] = input.state0[0] + (size - 1.5e-7).max(0.0);
+        Ok(())
+    }
+}
+
+// A routine whose state changes at almost any strain has no elastic range: its limit (about
+// 1.5e-7) is not taken as the scale of the random paths, the fallback 1e-3 is
+// (a creep law's paths were scaled to 1.3e-7 of strain, where it barely creeps; a user-style
+// sweep). The J2 test above measures a true elastic range.
+#[test]
+fn a_routine_without_an_elastic_range_gets_the_fallback_scale() {
+    use tancheck::core::{PointKind, PointState};
+    let m = tancheck::models::reference("elastic", PointKind::Solid3d).unwrap();
+    let info = tancheck::core::RoutineInfo { nstate: 1, ..tancheck::core::Routine::info(&m).clone() };
+    let mut r = FlowsAtOnce(m, info.clone());
+    let mut caller = tancheck::core::Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let s =
+        tancheck::core::explore::scale::measure(&mut caller, &[200000.0, 0.3], &start, &[0, 1, 2, 3, 4, 5])
+            .unwrap();
+    assert!(!s.measured, "{s:?}");
+    assert_eq!(s.strain, tancheck::core::explore::scale::FALLBACK_STRAIN, "{s:?}");
+}

@@ -7,7 +7,8 @@
 //! for a routine that reports no branch or never another, changes the state variables; or
 //! fails); bisection narrows it to 1 %. The smallest of these
 //! limits is the strain scale of the paths, and the stress of that call their stress scale
-//! (for held stresses). No yield stress or modulus is read from the properties: a routine of
+//! (for held stresses). A limit below 1e-6 (a law that flows at any stress, as creep does) is
+//! no elastic range, and the fallback scale is used. No yield stress or modulus is read from the properties: a routine of
 //! any law with any property layout is measured the same way.
 
 use serde::{Deserialize, Serialize};
@@ -20,6 +21,10 @@ use crate::routine::Caller;
 /// (an elastic or stateless routine): 1e-3, the order of the elastic range of metals (common
 /// practice).
 pub const FALLBACK_STRAIN: f64 = 1e-3;
+
+/// A measured limit below this is no elastic range (ten times the smallest probe increment,
+/// 1e-7): see [`measure`].
+const NO_RANGE: f64 = 1e-6;
 
 /// What the probe calls found.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
@@ -157,6 +162,12 @@ pub fn measure(
             }
         }
     }
+    // A limit within ten times the smallest probe increment is no elastic range: the routine
+    // leaves its first branch (or changes its state) at almost any strain, as a creep law that
+    // flows at any stress does. Its random paths were scaled to 1.3e-7 of strain, where the
+    // law barely creeps, and the stress scale of their held stresses to 0.02 MPa (a user-style
+    // sweep); the fallback is used instead, as for a law that never leaves it.
+    let best = best.filter(|&(s, _)| s >= NO_RANGE);
     let (strain, stress, measured) = match best {
         Some((s, st)) => (s, st, true),
         None => {
