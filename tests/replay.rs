@@ -457,4 +457,16 @@ fn another_file_given_for_a_case_is_named_for_what_it_is() {
         assert_eq!(o.status.code(), Some(2), "{t}");
         assert!(t.contains(&format!("{what}, not a case")) && t.contains("tancheck-cases/"), "{t}");
     }
+    // A finite-strain manifest is not sent to `bisect`, which refuses it (a user-style sweep).
+    let f = d.join("f.json");
+    std::fs::write(
+        &f,
+        r#"{ "finite": { "stress": "kirchhoff", "tangent": "tau-jaumann", "frame": "none" },
+             "routine": { "model": "neo-hookean", "properties": [1.0, 4.0] } }"#,
+    )
+    .unwrap();
+    let o = bin().arg("replay").arg(&f).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("a finite-strain manifest") && !t.contains("bisect"), "{t}");
 }

@@ -175,19 +175,24 @@ impl Case {
         // Another file given for a case (a report, a manifest) is said so, not by the first
         // field it lacks.
         if let Ok(v) = serde_json::from_str::<serde_json::Value>(text) {
-            let what =
-                match (v.get("format").and_then(|f| f.as_str()), v.get("kind").and_then(|k| k.as_str())) {
-                    (Some("tancheck-report"), Some(kind)) => {
-                        Some(format!("a tancheck report of kind `{kind}`"))
-                    }
-                    (Some(f), _) => Some(format!("a file of format `{f}`")),
-                    _ if v.get("routine").is_some() && v.get("call").is_none() => {
-                        Some("a manifest".to_string())
-                    }
-                    _ if v.is_array() => Some("a JSON array".to_string()),
-                    _ if !v.is_object() => Some("a single JSON value".to_string()),
-                    _ => None,
-                };
+            let what = match (
+                v.get("format").and_then(|f| f.as_str()),
+                v.get("kind").and_then(|k| k.as_str()),
+            ) {
+                (Some("tancheck-report"), Some(kind)) => Some(format!("a tancheck report of kind `{kind}`")),
+                (Some(f), _) => Some(format!("a file of format `{f}`")),
+                // A finite-strain manifest has no case files (bisect refuses it): the
+                // advice would send the user to a command that says no (a user-style sweep).
+                _ if v.get("finite").is_some() && v.get("call").is_none() => Some(
+                    "a finite-strain manifest (its checks write no case files: rerun `tancheck check` on \
+                         it)"
+                    .to_string(),
+                ),
+                _ if v.get("routine").is_some() && v.get("call").is_none() => Some("a manifest".to_string()),
+                _ if v.is_array() => Some("a JSON array".to_string()),
+                _ if !v.is_object() => Some("a single JSON value".to_string()),
+                _ => None,
+            };
             if let Some(what) = what {
                 return Err(CaseError { line: 1, column: 1, problem: CaseProblem::NotACase(what) });
             }

@@ -380,6 +380,17 @@ pub struct Case {
     pub path: Option<CasePath>,
 }
 
+/// Where case files come from, after "not a case": `bisect` writes them, except for a
+/// finite-strain manifest, which `bisect` refuses (the words of [`CaseProblem::NotACase`]
+/// say so themselves).
+fn case_advice(what: &str) -> &'static str {
+    if what.starts_with("a finite-strain") {
+        ""
+    } else {
+        "; `tancheck bisect MANIFEST` writes case files (in `tancheck-cases/<manifest name>/` next to the manifest)"
+    }
+}
+
 /// What is wrong with a case file; each message says what to change.
 #[derive(Clone, Debug, PartialEq, thiserror::Error)]
 #[non_exhaustive]
@@ -388,7 +399,7 @@ pub enum CaseProblem {
     #[error("{0}")]
     Syntax(String),
     /// Valid JSON that is no case (a report, a manifest, …): what it is and where cases are.
-    #[error("{0}, not a case; `tancheck bisect MANIFEST` writes case files (in `tancheck-cases/<manifest name>/` next to the manifest)")]
+    #[error("{what}, not a case{advice}", what = .0, advice = case_advice(.0))]
     NotACase(String),
     #[error("case format {found} is not the format {FORMAT} this tancheck reads")]
     Format { found: u32 },
