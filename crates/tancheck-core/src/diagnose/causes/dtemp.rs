@@ -116,7 +116,7 @@ pub fn rank_dtemp(
         if dd > 0.0 && ss > 0.0 && 1.0 - dot(&dev, stress).powi(2) / (dd * ss) > 1e-6 {
             along(
                 &dev,
-                "along the deviatoric stress (the temperature dependence of the inelastic flow along its direction: a yield stress or hardening, ∂σ_y/∂T, or a creep or rate law's temperature factor)",
+                "along the deviatoric stress (the temperature dependence of the inelastic flow along its direction: a yield stress or hardening, ∂σ_y/∂T, or a creep or rate law's dependence on the temperature)",
                 None,
             );
         }
