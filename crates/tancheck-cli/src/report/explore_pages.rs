@@ -20,11 +20,7 @@ fn path_table(o: &mut String, p: &Path) {
     let _ = writeln!(o, "<table>\n<tr><th>#</th><th>Δε (11 22 33 23 13 12)</th><th>ΔT</th><th>Δt</th><th>held stresses</th></tr>");
     for (k, i) in p.increments.iter().enumerate() {
         let d: Vec<String> = i.dstrain.iter().map(|x| format!("{x:.3e}")).collect();
-        let held = i.hold_stress.map_or(String::new(), |h| {
-            let v: Vec<String> =
-                h.iter().enumerate().filter_map(|(k, v)| v.map(|v| format!("σ[{k}] = {v:.3e}"))).collect();
-            v.join(", ")
-        });
+        let held = i.hold_stress.map_or(String::new(), |h| super::terminal::held_text(&h));
         let _ = writeln!(
             o,
             "<tr><td class=\"num\">{}</td><td><code>{}</code></td><td class=\"num\">{:.3e}</td><td class=\"num\">{:.3e}</td><td>{}</td></tr>",

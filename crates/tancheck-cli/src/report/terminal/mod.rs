@@ -104,9 +104,27 @@ pub(crate) fn increment_text(i: &tancheck_core::path::PathIncrement) -> String {
         s.push_str(&format!(", Δt {:e}", i.dtime));
     }
     if let Some(h) = &i.hold_stress {
-        let held: Vec<String> =
-            h.iter().enumerate().filter_map(|(k, v)| v.map(|v| format!("σ[{k}] = {v:.3e}"))).collect();
-        s.push_str(&format!(", held {}", held.join(", ")));
+        s.push_str(&format!(", held {}", held_text(h)));
     }
     s
+}
+
+/// The held stresses of a path increment, by the path's component names (its six slots are
+/// 11 22 33 23 13 12, as the strain's): "σ22 = 0.000e0, …". They read σ[1] (0-based) where
+/// every other message says 22 (a user-style sweep).
+pub(crate) fn held_text(h: &[Option<f64>; 6]) -> String {
+    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+    let held: Vec<String> =
+        h.iter().zip(SLOTS).filter_map(|(v, l)| v.map(|v| format!("σ{l} = {v:.3e}"))).collect();
+    held.join(", ")
+}
+
+#[cfg(test)]
+mod tests {
+    // Held stresses read by the names every other message uses (they read σ[1], 0-based).
+    #[test]
+    fn held_stresses_are_named_by_component() {
+        let h = [None, Some(0.0), Some(0.0), None, None, Some(-2.5)];
+        assert_eq!(super::held_text(&h), "σ22 = 0.000e0, σ33 = 0.000e0, σ12 = -2.500e0");
+    }
 }
