@@ -213,18 +213,8 @@ impl Routine for FlagsFirstCall {
         input: &tancheck::core::CallInput<'_, f64>,
         output: &mut tancheck::core::CallOutput<'_, f64>,
     ) -> Result<(), tancheck::core::Fault> {
-        let m = self.1.nstate - 1;
-        let inner = tancheck::core::CallInput { state0: &input.state0[..m], ..*input };
-        let (state, flag) = output.state.split_at_mut(m);
-        let mut out = tancheck::core::CallOutput {
-            stress: &mut *output.stress,
-            state,
-            tangent: &mut *output.tangent,
-            dstress_dtemp: &mut *output.dstress_dtemp,
-            energy: &mut *output.energy,
-            outcome: &mut *output.outcome,
-        };
-        self.0.call(&inner, &mut out)?;
+        let flag =
+            tancheck_testkit::call::call_with_leading_states(&mut self.0, self.1.nstate - 1, input, output)?;
         flag[0] = 1.0;
         Ok(())
     }

@@ -359,17 +359,7 @@ impl tancheck::core::Routine for FlowsAtOnce {
         input: &tancheck::core::CallInput<'_, f64>,
         output: &mut tancheck::core::CallOutput<'_, f64>,
     ) -> Result<(), tancheck::core::Fault> {
-        let inner = tancheck::core::CallInput { state0: &[], ..*input };
-        let (state, rest) = output.state.split_at_mut(1);
-        let mut out = tancheck::core::CallOutput {
-            stress: &mut *output.stress,
-            state: &mut rest[..0],
-            tangent: &mut *output.tangent,
-            dstress_dtemp: &mut *output.dstress_dtemp,
-            energy: &mut *output.energy,
-            outcome: &mut *output.outcome,
-        };
-        tancheck::core::Routine::call(&mut self.0, &inner, &mut out)?;
+        let state = tancheck_testkit::call::call_with_leading_states(&mut self.0, 0, input, output)?;
         // A creep-like flow past a tiny threshold (1.5e-7 of strain): the state changes a
         // little past the smallest probe increment, along every direction.
         let size = input.dstrain.iter().map(|x| x * x).sum::<f64>().sqrt();

@@ -327,3 +327,26 @@ mod tests {
         assert_eq!(c.input(true).time, [0.0, 0.5]);
     }
 }
+
+/// Call `inner` with the leading `m` state variables of `input` and `output` (a test routine
+/// that wraps a model and keeps state variables of its own after the model's); the output's
+/// state variables past `m` are returned for the wrapper to write.
+pub fn call_with_leading_states<'o>(
+    inner: &mut dyn Routine,
+    m: usize,
+    input: &CallInput<'_, f64>,
+    output: &'o mut tancheck_core::CallOutput<'_, f64>,
+) -> Result<&'o mut [f64], Fault> {
+    let inner_input = CallInput { state0: &input.state0[..m], ..*input };
+    let (state, rest) = output.state.split_at_mut(m);
+    let mut out = tancheck_core::CallOutput {
+        stress: &mut *output.stress,
+        state,
+        tangent: &mut *output.tangent,
+        dstress_dtemp: &mut *output.dstress_dtemp,
+        energy: &mut *output.energy,
+        outcome: &mut *output.outcome,
+    };
+    inner.call(&inner_input, &mut out)?;
+    Ok(rest)
+}

@@ -31,10 +31,6 @@ pub use kink::{Kink, KinkColumn, Side};
 pub use study::{Behaviour, StepStudy};
 pub use temp_kink::TempKink;
 
-/// The words a diagnosis's reason gives a stress jump (before the strain directions); the
-/// check's coverage warning looks for them.
-pub const JUMP_WORDS: &str = "the stress jumps across this point in strain direction";
-
 /// Fractions of the increment used to show a continuum tangent.
 const REFINE: [f64; 3] = [0.125, 0.0625, 0.03125];
 
@@ -259,7 +255,7 @@ pub fn run(
         let jumps = k.jumps(conv);
         if !jumps.is_empty() {
             decision.reason = format!(
-                "{}; {JUMP_WORDS} {} (its one-sided difference quotients grow as 1/h and exceed the tangent): a \
+                "{}; the stress jumps across this point in strain direction {} (its one-sided difference quotients grow as 1/h and exceed the tangent): a \
                  discontinuous response, which no tangent describes and across which a Newton iteration \
                  cannot converge",
                 decision.reason,

@@ -277,7 +277,12 @@ impl Collector {
     /// Add the next increment.
     pub fn push(&mut self, inc: IncrementResult) {
         let record = IncrementRecord::of(&inc, &self.schemes);
-        if inc.diagnosis.as_ref().is_some_and(|d| d.reason.contains(crate::diagnose::JUMP_WORDS)) {
+        if inc
+            .diagnosis
+            .as_ref()
+            .and_then(|d| d.kink.as_ref())
+            .is_some_and(|k| k.columns.iter().any(|c| c.jump))
+        {
             self.jumps.push(inc.index);
         }
         for c in &inc.checks {

@@ -15,6 +15,7 @@ use crate::convention::PointKind;
 
 /// A discrepancy that is one positive term: its size relative to the derivative's norm and
 /// the error left without it (relative), or `None` when it is not one such term.
+#[derive(Clone, Copy)]
 struct PositiveTerm {
     size: f64,
     rest: f64,
@@ -61,7 +62,7 @@ pub(super) fn try_uncondensed(ev: &Evidence<'_>, found: &mut Found) {
             _ => None,
         }
     } else {
-        positive_term(ev, ev.returned, ev.numerical)
+        Some(here)
     };
     let Some(el) = elastic else { return };
     if el.size <= 10.0 * ev.tol || el.rest > found.explain_level.max(1e-3 * el.size) {

@@ -20,34 +20,23 @@ pub(super) fn rows() -> Vec<Row> {
     wrong_beside[1] = column(Side::Neither, true, 0.4, 0.6);
     wrong_beside[2] = column(Side::Forward, true, 1e-9, 0.5);
     wrong_beside[5] = column(Side::Neither, false, 0.8, 0.8);
+    // Both: the tangent off by the column's error everywhere the studies look, the causes tried.
+    let row = |what, cols, error| Row {
+        what,
+        observed: Observed {
+            kink: Some(kink(cols, Side::Neither)),
+            studies: plateau(error),
+            complex: Some((error, 1e-10)),
+            twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+            ..base()
+        },
+        pass: false,
+        finding: "unexplained",
+        twin_unsafe: false,
+        needs_causes: true,
+    };
     vec![
-        Row {
-            what: "kinked columns matching neither side beside a wrong column without a kink",
-            observed: Observed {
-                kink: Some(kink(wrong_beside, Side::Neither)),
-                studies: plateau(0.8),
-                complex: Some((0.8, 1e-10)),
-                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
-                ..base()
-            },
-            pass: false,
-            finding: "unexplained",
-            twin_unsafe: false,
-            needs_causes: true,
-        },
-        Row {
-            what: "a kink in one column, the tangent wrong in another without a kink",
-            observed: Observed {
-                kink: Some(kink(wrong_elsewhere, Side::Neither)),
-                studies: plateau(7.25),
-                complex: Some((7.25, 1e-10)),
-                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
-                ..base()
-            },
-            pass: false,
-            finding: "unexplained",
-            twin_unsafe: false,
-            needs_causes: true,
-        },
+        row("kinked columns matching neither side beside a wrong column without a kink", wrong_beside, 0.8),
+        row("a kink in one column, the tangent wrong in another without a kink", wrong_elsewhere, 7.25),
     ]
 }
