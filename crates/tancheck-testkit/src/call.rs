@@ -313,21 +313,6 @@ pub fn model_allocations<S: Scalar, M: Model>(m: &M, c: &Call, calls: usize) -> 
     (crate::alloc::allocations() - before, o.outcome)
 }
 
-#[cfg(test)]
-mod tests {
-    use super::*;
-
-    #[test]
-    fn rel_is_relative_to_the_second() {
-        assert_eq!(rel(&[1.0, 1.0], &[1.0, 1.0]), 0.0);
-        assert!((rel(&[2.0, 0.0], &[1.0, 0.0]) - 1.0).abs() < 1e-15);
-        let c = Call::new(&[1.0], 2, 1).dstrain(&[1e-3, 0.0]).temp(300.0, 5.0).dtime(0.5);
-        let z = c.complex();
-        assert_eq!(z.temp[1], Complex64::new(5.0, 0.0));
-        assert_eq!(c.input(true).time, [0.0, 0.5]);
-    }
-}
-
 /// Call `inner` with the leading `m` state variables of `input` and `output` (a test routine
 /// that wraps a model and keeps state variables of its own after the model's); the output's
 /// state variables past `m` are returned for the wrapper to write.
@@ -349,4 +334,19 @@ pub fn call_with_leading_states<'o>(
     };
     inner.call(&inner_input, &mut out)?;
     Ok(rest)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn rel_is_relative_to_the_second() {
+        assert_eq!(rel(&[1.0, 1.0], &[1.0, 1.0]), 0.0);
+        assert!((rel(&[2.0, 0.0], &[1.0, 0.0]) - 1.0).abs() < 1e-15);
+        let c = Call::new(&[1.0], 2, 1).dstrain(&[1e-3, 0.0]).temp(300.0, 5.0).dtime(0.5);
+        let z = c.complex();
+        assert_eq!(z.temp[1], Complex64::new(5.0, 0.0));
+        assert_eq!(c.input(true).time, [0.0, 0.5]);
+    }
 }
