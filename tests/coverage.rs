@@ -314,3 +314,33 @@ fn the_path_stops_where_the_outputs_are_not_finite() {
         rep.coverage
     );
 }
+
+// The look at the time increment starts from the start states the check's walk kept: it makes
+// its two calls per increment looked at, and no second walk along the path to them (it made a
+// second base call of every increment up to the last that changed the state: a twentieth more
+// calls on a long path; the count below would grow with the path).
+#[test]
+fn the_look_at_the_time_increment_does_not_walk_the_path_again() {
+    let inc = |e: f64| tancheck::core::PathIncrement {
+        dtime: 0.5,
+        ..tancheck::core::PathIncrement::strain([e, -0.5 * e, -0.5 * e, 0.0, 0.0, e])
+    };
+    let mut increments = vec![inc(5e-4)];
+    increments.extend((0..60).map(|_| inc(1e-3)));
+    let path = Path { name: "elastic, then plastic".into(), increments };
+    let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+    let calls = |first_calls: bool| {
+        let mut r = reference("j2", PointKind::Solid3d).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let settings = Settings { first_calls, ..Settings::default() };
+        let rep = check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &settings).unwrap();
+        assert_eq!(rep.verdict, tancheck::core::Verdict::Pass, "{:?}", rep.coverage);
+        assert!(rep.records.iter().filter(|r| r.state_changed).count() > 50);
+        assert!(!rep.coverage.iter().any(|c| c.contains("same time")), "{:?}", rep.coverage);
+        caller.real_calls
+    };
+    let (with, without) = (calls(true), calls(false));
+    // The zero increment (one call) and three looks at the time (two calls each).
+    assert!(with - without <= 8, "{with} calls with the first-call looks, {without} without");
+}

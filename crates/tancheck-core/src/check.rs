@@ -108,6 +108,8 @@ fn run_path(
     let mut threads_used = 1;
     // How a check on several threads gave way to one, when it did (its note is added below).
     let mut gave_way = None;
+    // The start states the walk kept for the look at the time increment.
+    let mut changed = increment::ChangedStarts::default();
     let chunks = match plan {
         Some(plan) => {
             let threads = plan.threads();
@@ -137,6 +139,7 @@ fn run_path(
                 );
                 caller.real_calls += chunk.real_calls;
                 caller.complex_calls += chunk.complex_calls;
+                changed = changed.then(chunk.changed);
                 if stop || !chunk.complete {
                     break;
                 }
@@ -156,6 +159,7 @@ fn run_path(
                     break;
                 }
             }
+            changed = walk.changed;
         }
     }
     if let Some(g) = &gave_way {
@@ -177,15 +181,19 @@ fn run_path(
                     // one that did: a routine that sets its state on the first call (thresholds,
                     // a flag) changes it there without any rate (a ply routine with viscous
                     // damage passed unwarned; a user-style sweep).
-                    let changed =
-                        || increments.records.iter().filter(|r| r.state_changed).map(|r| r.index as usize);
-                    let mut at: Vec<usize> = changed().filter(|&k| k > 1).take(1).collect();
-                    at.extend(changed().rfind(|&k| k > 1).filter(|k| !at.contains(k)));
+                    // Their start states the walk kept (walking the path again to them made
+                    // a second base call of every increment up to the last).
                     let mut found = Some(None);
-                    for k in at {
-                        match first_calls::depends_on_time_at(caller, &info, props, start, path, k) {
+                    for (k, from) in [changed.first.as_ref(), changed.last.as_ref()].into_iter().flatten() {
+                        match first_calls::depends_on_time(
+                            caller,
+                            &info,
+                            props,
+                            from,
+                            &path.increments[k - 1],
+                        ) {
                             Some(true) => {
-                                found = Some(Some(k));
+                                found = Some(Some(*k));
                                 break;
                             }
                             Some(false) => {}

@@ -89,27 +89,6 @@ pub fn depends_on_time(
     Some(stress.iter().zip(&d.base.stress).any(|(a, b)| a.to_bits() != b.to_bits()))
 }
 
-/// [`depends_on_time`] at increment `k` (1-based) of `path`: the increments before it walked
-/// from `start` with base calls first (their strains solved for where they hold stresses).
-/// `None` as there, or when a call or solve before it fails. k − 1 + 2 calls, and the solves'.
-pub fn depends_on_time_at(
-    caller: &mut Caller<'_>,
-    info: &RoutineInfo,
-    props: &[f64],
-    start: &PointState,
-    path: &crate::path::Path,
-    k: usize,
-) -> Option<bool> {
-    let inc = path.increments.get(k.checked_sub(1)?)?;
-    let mut d = Driver::new(info, props, start.clone()).ok()?;
-    for before in &path.increments[..k - 1] {
-        set_solved(&mut d, caller, info, before)?;
-        d.base_call(caller).ok()?;
-        d.advance();
-    }
-    depends_on_time(caller, info, props, d.start(), inc)
-}
-
 /// Set `inc` on the driver, its strain increment solved for where it holds stresses (as the
 /// check's walk does: a creep routine under a held load, the strains all solved for, passed
 /// unwarned when held increments were left out; a user-style sweep). `None` when the solve

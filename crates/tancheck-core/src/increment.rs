@@ -5,7 +5,7 @@
 //! with [`Walk::step`], so that their results are the same.
 
 use crate::call_check as judge;
-use crate::driver::Driver;
+use crate::driver::{Driver, PointState};
 use crate::first_calls;
 use crate::mixed;
 use crate::path::PathIncrement;
@@ -35,6 +35,28 @@ pub(crate) const HELD_NOT_REACHED: &str = "the held stresses were not reached";
 
 pub use crate::mixed::held_components;
 
+/// The start states of the first increment after the first that changed the state variables
+/// and of the last one, with their 1-based numbers, kept by a walk whose settings make the
+/// first-call looks: the look at the time increment after the check starts there instead of
+/// walking the path again from its start (it made a second base call of every increment up
+/// to the last that changed the state).
+#[derive(Clone, Debug, Default)]
+pub struct ChangedStarts {
+    pub first: Option<(usize, PointState)>,
+    pub last: Option<(usize, PointState)>,
+}
+
+impl ChangedStarts {
+    /// The first of `self`'s and the last of `later`'s (a later share of the same path).
+    pub fn then(self, later: ChangedStarts) -> ChangedStarts {
+        match (self.first.is_some(), later.first.is_some()) {
+            (_, false) => self,
+            (false, true) => later,
+            (true, true) => ChangedStarts { first: self.first, last: later.last.or(later.first) },
+        }
+    }
+}
+
 /// An increment set on the driver: the solve's fault if any, its log and a note for the report.
 pub type Settled = (Result<(), Fault>, Option<mixed::SolveLog>, Option<String>);
 
@@ -55,6 +77,10 @@ pub struct Walk<'s> {
     /// `best` is the tangent at the start of the next increment, for its stale-tangent
     /// hypothesis (not after a fault).
     best_is_previous: bool,
+    /// The start states kept for the look at the time increment (with first-call looks only).
+    pub changed: ChangedStarts,
+    /// The start state of the increment being stepped (scratch, reused).
+    step_start: Option<PointState>,
 }
 
 impl<'s> Walk<'s> {
@@ -69,6 +95,8 @@ impl<'s> Walk<'s> {
             best: vec![0.0; n * n],
             has_best: false,
             best_is_previous: false,
+            changed: ChangedStarts::default(),
+            step_start: None,
         }
     }
 
@@ -125,6 +153,41 @@ impl<'s> Walk<'s> {
     /// [`Collector::push_passed`]): the same record and summaries, without the report
     /// structures of the full judgement.
     pub fn step(
+        &mut self,
+        k: usize,
+        inc: &PathIncrement,
+        caller: &mut Caller<'_>,
+        collected: &mut Collector,
+    ) -> Step {
+        if self.settings.first_calls && k > 0 {
+            // The increment's start, kept in place (no allocation after the first).
+            match &mut self.step_start {
+                Some(s) => s.clone_from(self.driver.start()),
+                None => self.step_start = Some(self.driver.start().clone()),
+            }
+        }
+        let step = self.step_judged(k, inc, caller, collected);
+        if step.state_changed && !step.stops && k > 0 {
+            if let Some(s) = &self.step_start {
+                let c = &mut self.changed;
+                if c.first.is_none() {
+                    c.first = Some((k + 1, s.clone()));
+                } else {
+                    match &mut c.last {
+                        Some((at, kept)) => {
+                            *at = k + 1;
+                            kept.clone_from(s);
+                        }
+                        None => c.last = Some((k + 1, s.clone())),
+                    }
+                }
+            }
+        }
+        step
+    }
+
+    /// [`Walk::step`] without keeping its start state.
+    fn step_judged(
         &mut self,
         k: usize,
         inc: &PathIncrement,
@@ -314,5 +377,39 @@ fn record(
         solve,
         diagnosis,
         fault,
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::ChangedStarts;
+    use crate::driver::PointState;
+
+    fn at(k: usize) -> Option<(usize, PointState)> {
+        let s = PointState { strain: vec![k as f64], stress: vec![0.0], state: vec![], temp: 0.0, time: 0.0 };
+        Some((k, s))
+    }
+
+    fn numbers(c: &ChangedStarts) -> (Option<usize>, Option<usize>) {
+        (c.first.as_ref().map(|f| f.0), c.last.as_ref().map(|l| l.0))
+    }
+
+    // Shares of a path walked on several threads keep what one walk along the whole path
+    // keeps: the first increment (after the first) that changed the state, and the last other
+    // one, whichever shares they fall in.
+    #[test]
+    fn shares_keep_the_first_and_the_last_change_of_the_whole_path() {
+        let none = ChangedStarts::default;
+        let both = |a, b| ChangedStarts { first: at(a), last: at(b) };
+        let one = |a| ChangedStarts { first: at(a), last: None };
+        assert_eq!(numbers(&none().then(both(5, 9))), (Some(5), Some(9)));
+        assert_eq!(numbers(&both(2, 4).then(none())), (Some(2), Some(4)));
+        assert_eq!(numbers(&both(2, 4).then(both(5, 9))), (Some(2), Some(9)));
+        // A later share with a single change: that change is the last.
+        assert_eq!(numbers(&both(2, 4).then(one(7))), (Some(2), Some(7)));
+        assert_eq!(numbers(&one(2).then(one(7))), (Some(2), Some(7)));
+        assert_eq!(numbers(&one(2).then(none()).then(none())), (Some(2), None));
+        // The state kept is the one of that increment.
+        assert_eq!(both(2, 4).then(one(7)).last.unwrap().1.strain, vec![7.0]);
     }
 }

@@ -111,6 +111,8 @@ pub struct Chunk {
     /// Extra calls of the guards the increment before the share made (one thread makes them
     /// once, in the share before).
     before_extra_calls: u64,
+    /// The start states the share's walk kept for the look at the time increment.
+    pub changed: increment::ChangedStarts,
 }
 
 /// What a check on several threads starts from: a handle for each thread beyond the
@@ -428,6 +430,7 @@ fn share(
         complete: false,
         checked: Vec::new(),
         before_extra_calls: 0,
+        changed: increment::ChangedStarts::default(),
     };
     let extra0 = caller.guard_extra_calls();
     let mut walk = match from {
@@ -492,6 +495,7 @@ fn share(
         complete,
         checked,
         before_extra_calls,
+        changed: std::mem::take(&mut walk.changed),
     }
 }
 
