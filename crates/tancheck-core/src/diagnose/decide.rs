@@ -226,6 +226,31 @@ fn twin_unsafe(o: &Observed) -> bool {
 /// ([`KinkColumn::on_a_side`](super::kink::KinkColumn::on_a_side)). Only a steady gap is
 /// held to it: a gap that grows as the step shrinks is noise (an inner solve's tolerance),
 /// between whose sides any column lies, and there the complex step's agreement stands.
+/// At a kink whose probe found a column on neither side: a one-sided difference (forward or
+/// backward, every column the same way) that converges with its order to the returned tangent
+/// within the failed tolerance (at most [`ONE_SIDED_LEVEL`]), with the complex step agreeing. Then the returned tangent is that
+/// one-sided derivative, and a second branch boundary lies closer to the point than the probe's
+/// smallest step, whose one-sided differences cross it (a damage law with a tension split, at a
+/// principal strain of zero with the trace 4e-11 from zero, failed `kink-neither-side`; a
+/// user-style sweep). The mean of two sides, which a twin on a sign function's branch at the
+/// point agrees with, is no one-sided difference's limit: those level off at half the gap.
+fn one_sided_clears(o: &Observed, complex_pass: Option<bool>) -> Option<&StepStudy> {
+    if complex_pass != Some(true) {
+        return None;
+    }
+    o.studies.iter().find(|s| {
+        s.scheme.order() == 1.0
+            && s.behaviour == Behaviour::Converges
+            && s.best_error <= o.failed_tol.min(ONE_SIDED_LEVEL)
+    })
+}
+
+/// The most a one-sided difference may leave at its best step to be taken for the returned
+/// tangent's limit at a double kink: the default central tolerance (a forward difference's best
+/// error on a smooth law is about the square root of the rounding, 1e-8 × its curvature;
+/// Nocedal & Wright 2006, §8.1).
+const ONE_SIDED_LEVEL: f64 = 1e-6;
+
 fn columns_on_a_side(k: &Kink) -> bool {
     k.columns.iter().filter(|c| c.detected && steady(&c.gaps)).all(|c| c.on_a_side)
 }
@@ -432,6 +457,18 @@ fn decide_tangent(o: &Observed) -> Decision {
             d.reason = format!(
                 "the point sits on a kink; every column of the returned tangent equals one of its one-sided derivatives: {}",
                 k.sides
+            );
+        } else if let Some(s) = one_sided_clears(o, complex_pass) {
+            d.pass = true;
+            d.reason = format!(
+                "the point sits on a kink, and another branch boundary lies closer than the kink probe's smallest \
+                 step (its one-sided differences cross it: sides per column there {}); the {} difference converges \
+                 with its order to the returned tangent (error {:.2e} at relative step {:.0e}), and the complex \
+                 step (which does not cross either) equals it",
+                k.sides,
+                s.scheme.name(),
+                s.best_error,
+                s.best_rel_step
             );
         } else if k.columns.iter().any(|c| c.matches == Side::Neither && c.detected)
             && !k.columns.iter().any(|c| c.matches == Side::Neither && !c.detected)

@@ -35,8 +35,61 @@ pub(super) fn rows() -> Vec<Row> {
         twin_unsafe: false,
         needs_causes: true,
     };
-    vec![
+    let mut rows = vec![
         row("kinked columns matching neither side beside a wrong column without a kink", wrong_beside, 0.8),
         row("a kink in one column, the tangent wrong in another without a kink", wrong_elsewhere, 7.25),
+    ];
+    rows.extend(double_kink_rows());
+    rows
+}
+
+/// Two branch boundaries closer together than the kink probe's smallest step (6e-11 of strain
+/// at a scale of 6e-4): a damage law with a tension split in plane strain, ε33 = 0 a principal
+/// strain (the returned 33 column its forward side) and the trace 4e-11 below zero. The probe's
+/// forward steps in 11, 22 and 33 cross the trace's boundary too: 11 and 22 read backward, 33
+/// neither. The numbers are those the sweep measured: central plateau 0.77, forward converging
+/// to 6.1e-8 at a relative step 1e-8 (below the second boundary), complex step 1.6e-15.
+fn double_kink_rows() -> Vec<Row> {
+    let mut cols = vec![column(Side::Backward, true, 0.66, 1e-9); 4];
+    cols[2] = column(Side::Neither, true, 0.66, 0.94);
+    cols[3] = column(Side::Both, false, 1e-9, 1e-9);
+    let forward_converges = || study(Scheme::Forward, 1e-4, |h| (6.1e-8 * h / 1e-8).max(6.1e-8 * 1e-8 / h));
+    let observed = |forward: StepStudy, complex: f64| Observed {
+        kink: Some(kink(cols.clone(), Side::Neither)),
+        studies: vec![study(Scheme::Central, 1e-6, |_| 0.77), forward],
+        complex: Some((complex, 1e-10)),
+        twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+        ..base()
+    };
+    let row = |what, observed, pass, finding| Row {
+        what,
+        observed,
+        pass,
+        finding,
+        twin_unsafe: false,
+        needs_causes: false,
+    };
+    vec![
+        row(
+            "a second boundary within the probe's step, forward converging, complex step exact",
+            observed(forward_converges(), 1.6e-15),
+            true,
+            "none",
+        ),
+        // The same columns, but no one-sided difference converges to the returned tangent
+        // (it levels off at half the gap, as the mean of two sides does): it stands.
+        row(
+            "a column on neither side, every difference levelling off, complex step exact",
+            observed(study(Scheme::Forward, 1e-4, |h| 0.4 + 1e-16 / h), 1.6e-15),
+            false,
+            "kink-neither-side",
+        ),
+        // A forward difference converging is not enough where the complex step disagrees.
+        row(
+            "a second boundary within the probe's step, forward converging, complex step off",
+            observed(forward_converges(), 0.3),
+            false,
+            "kink-neither-side",
+        ),
     ]
 }
