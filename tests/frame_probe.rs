@@ -328,3 +328,90 @@ fn a_tie_at_a_branch_boundary_is_not_held_against_the_routine() {
     assert_eq!(res.status, ProbeStatus::Fail, "{res:?}");
     let _ = std::fs::remove_dir_all(&dir);
 }
+
+/// An isotropic law with a kink: σ = E ε + k ⟨|ε| − κ₀⟩ n, n = ε/|ε| (Mandel form; an isotropic
+/// tensor function of ε, so it rotates with the frame). Invented numbers; the derivative is
+/// elementary: beyond κ₀, E I + k (I − (κ₀/|ε|)(I − n⊗n)). At |ε| = κ₀ (within 1e-10 of it) the
+/// routine returns the forward one-sided derivative column by column, E I + k n ⊗ n⁺ with
+/// n⁺ⱼ = max(nⱼ, 0), as the check accepts at a kink; along rotated axes those columns are not
+/// the rotated ones (a directional derivative at a kink is not linear in the direction).
+struct CornerSpring(RoutineInfo);
+
+impl Routine for CornerSpring {
+    fn info(&self) -> &RoutineInfo {
+        &self.0
+    }
+    fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
+        let (e, k, k0) = (input.props[0], input.props[1], input.props[2]);
+        // Engineering shear to Mandel: D = diag(1, 1, 1, 1/√2, 1/√2, 1/√2).
+        let dm = |i: usize| if i < 3 { 1.0 } else { std::f64::consts::FRAC_1_SQRT_2 };
+        let m: [f64; 6] = std::array::from_fn(|i| (input.strain[i] + input.dstrain[i]) * dm(i));
+        let r = m.iter().map(|x| x * x).sum::<f64>().sqrt();
+        let n: [f64; 6] = std::array::from_fn(|i| if r > 0.0 { m[i] / r } else { 0.0 });
+        let over = r - k0;
+        let mut c = [[0.0; 6]; 6];
+        for (i, row) in c.iter_mut().enumerate() {
+            row[i] = e;
+        }
+        if over.abs() <= 1e-10 * k0 {
+            for i in 0..6 {
+                for j in 0..6 {
+                    c[i][j] += k * n[i] * n[j].max(0.0);
+                }
+            }
+        } else if over > 0.0 {
+            for i in 0..6 {
+                for j in 0..6 {
+                    let id = if i == j { 1.0 } else { 0.0 };
+                    c[i][j] += k * (id - k0 / r * (id - n[i] * n[j]));
+                }
+            }
+        }
+        for i in 0..6 {
+            // σ = D σ_M; the tangent in the routine's form D C_M D, column-major.
+            output.stress[i] = dm(i) * (e * m[i] + k * over.max(0.0) * n[i]);
+            for j in 0..6 {
+                output.tangent[i + 6 * j] = dm(i) * c[i][j] * dm(j);
+            }
+            output.dstress_dtemp[i] = 0.0;
+        }
+        output.energy[0] = 0.0;
+        output.energy[1] = 0.0;
+        output.outcome.branch = i32::from(over > 0.0);
+        Ok(())
+    }
+}
+
+// A point that ends exactly on a kink of an isotropic law (|ε| = κ₀ after the first
+// increment, n = (e₁ − e₂)/√2: the forward 11 column loads and the 22 column unloads, and along
+// the rotated axes others do):
+// the stress rotates, the tangent there is one-sided column by column and need not
+// rotate, so the probe does not compare it and says so. Away from the kink (the second
+// increment, beyond κ₀) the tangent is compared as before. A correct damage law with a tension
+// split failed here at principal strains of exactly zero (a user-style sweep).
+#[test]
+fn a_tangent_on_a_kink_is_not_held_to_rotate() {
+    let info = RoutineInfo {
+        name: "corner-spring".into(),
+        convention: tancheck::core::Convention::new(
+            PointKind::Solid3d,
+            tancheck::core::ShearMeasure::Engineering,
+        ),
+        nstate: 0,
+        nprop: 3,
+    };
+    let path = Path {
+        name: "onto the kink, then beyond".into(),
+        increments: vec![
+            PathIncrement::strain([1e-3, -1e-3, 0.0, 0.0, 0.0, 0.0]),
+            PathIncrement::strain([5e-4, -2e-4, 0.0, 0.0, 0.0, 4e-4]),
+        ],
+    };
+    let props = [1000.0, 400.0, 1e-3 * std::f64::consts::SQRT_2];
+    let res = run(&mut CornerSpring(info), &props, &path, &ProbeSpec::named("frame"));
+    assert_eq!(res.status, ProbeStatus::Pass, "{res:?}");
+    assert!(res.summary.contains("increment 1 ends on a kink"), "{}", res.summary);
+    assert!(res.details.iter().any(|d| d.starts_with("increment 1 ends on a kink")), "{:?}", res.details);
+    // Increment 2, off the kink, was compared: its tangent rotates to rounding.
+    assert!(res.value.unwrap() <= 1e-12, "{res:?}");
+}

@@ -237,6 +237,9 @@ impl Probe for Frame {
         // far, where damage or hardening starts again): rounding in the rotated frame may take
         // the other branch, with the same stress and the other side's tangent.
         let mut ties: Vec<(usize, f64)> = Vec::new();
+        // Increments whose point sits on a kink (see `on_a_kink`): (increment, tangent
+        // mismatch, the gap between the one-sided derivatives).
+        let mut kinks: Vec<(usize, f64, f64)> = Vec::new();
         for o in &original {
             conv.strain_to_canonical(&o.dstrain, &mut canon);
             conv.strain_from_canonical(&rotate_sym(&r, &canon), &mut de);
@@ -274,6 +277,21 @@ impl Probe for Frame {
                     ties.push((o.increment, et));
                     d.advance();
                     continue;
+                }
+                if es <= tol && et > tol {
+                    match on_a_kink(&mut d, caller, &conv, env.settings) {
+                        Ok(Some(gap)) => {
+                            kinks.push((o.increment, et, gap));
+                            d.advance();
+                            continue;
+                        }
+                        Ok(None) => {}
+                        Err(f) => {
+                            let mut res = faulted("frame", o.increment, &f);
+                            res.summary = format!("in the rotated run's look for a kink, {}", res.summary);
+                            return Ok(res);
+                        }
+                    }
                 }
                 if es > worst_s.0 {
                     worst_s = (es, o.increment);
@@ -324,8 +342,14 @@ impl Probe for Frame {
                 "frame",
                 ProbeStatus::Pass,
                 format!(
-                    "frame indifferent {what}: rotated by {angle} rad, stresses rotate to {:.1e}, tangents to {:.1e}",
-                    worst_s.0, worst_t.0
+                    "frame indifferent {what}: rotated by {angle} rad, stresses rotate to {:.1e}, tangents to {:.1e}{}",
+                    worst_s.0,
+                    worst_t.0,
+                    match kinks.len() {
+                        0 => String::new(),
+                        1 => format!(" (increment {} ends on a kink, where its tangent is one-sided and not compared)", kinks[0].0),
+                        n => format!(" ({n} increments end on a kink, where their tangents are one-sided and not compared)"),
+                    }
                 ),
             ),
             Some(k) => {
@@ -353,6 +377,11 @@ impl Probe for Frame {
             "worst stress mismatch {:.3e} (increment {}), worst tangent mismatch {:.3e} (increment {})",
             worst_s.0, worst_s.1, worst_t.0, worst_t.1
         ));
+        for (k, et, gap) in &kinks {
+            res.details.push(format!(
+                "increment {k} ends on a kink (in the rotated run its forward and backward derivatives differ by {gap:.2e}, and keep differing as the step shrinks): a tangent there is a one-sided derivative column by column, which a rotation mixes, so it need not rotate; the stress rotates, and its tangents (mismatch {et:.2e}) are not compared there"
+            ));
+        }
         for (k, et) in &ties {
             res.details.push(format!(
                 "increment {k} ends on a branch boundary: the rotated run took the other branch (another branch number, or the state changed on one side only) with the stress rotated to the tolerance; its tangents differ by {et:.2e}, the two sides' tangents, and are not compared there"
@@ -360,6 +389,37 @@ impl Probe for Frame {
         }
         Ok(res)
     }
+}
+
+/// Whether the rotated run's point (the driver's current increment) sits on a kink: the
+/// forward and backward derivatives of some strain column keep differing as the step shrinks
+/// (the check's kink probe, [`crate::diagnose::kink`]). There a returned tangent is one-sided
+/// column by column, and the one-sided derivatives along the rotated axes are not the rotated
+/// one-sided derivatives (a directional derivative at a kink is not linear in the direction):
+/// a correct damage law with a tension split, at principal strains of exactly zero, failed
+/// here (a user-style sweep). Returns the largest gap at the smallest step, when a kink.
+fn on_a_kink(
+    d: &mut Driver,
+    caller: &mut Caller<'_>,
+    conv: &crate::convention::Convention,
+    settings: &crate::settings::Settings,
+) -> Result<Option<f64>, crate::routine::Fault> {
+    let returned = d.base.tangent.clone();
+    let q = crate::diagnose::kink::KinkQuery {
+        conv,
+        returned: &returned,
+        scale: d.strain_scale(settings.step_floor),
+        tol: settings.central.tol,
+        entry_floor: settings.entry_floor,
+    };
+    let k = crate::diagnose::kink::probe(d, caller, &q)?;
+    let gap = k
+        .columns
+        .iter()
+        .filter(|c| c.detected)
+        .filter_map(|c| c.gaps.last())
+        .fold(0.0, |a: f64, &b| a.max(b));
+    Ok(k.detected.then_some(gap))
 }
 
 #[cfg(test)]
