@@ -6,7 +6,9 @@
 //! - regularisation: along a path to full failure the dissipated energy per unit volume × L
 //!   is the fracture energy and does not change with L (Bažant & Oh 1983) — `ply-length-dropped`
 //!   fails; for the cohesive law (no length) the area under the traction–separation curve is
-//!   G_Ic (Camanho & Dávila 2002: G_c = ½ t₀ δ_f) — a law with its tractions scaled fails.
+//!   G_Ic (Camanho & Dávila 2002: G_c = ½ t₀ δ_f) — a law with its tractions scaled fails;
+//! - softening at an increment that ends exactly where damage starts to grow (the onset, a
+//!   reload to the largest strain so far): a bar with linear softening written here.
 
 use tancheck::core::probe::{run_suite, ProbeSpec, ProbeStatus};
 use tancheck::core::{
@@ -143,4 +145,95 @@ fn regularisation_of_a_cohesive_law_speaks_of_energy_per_unit_area() {
     let r = probe(&mut good, regularisation(None, Some(COHESIVE[3])), &COHESIVE, &p);
     assert!(r.summary.contains("per unit area") && !r.summary.contains("× L"), "{}", r.summary);
     assert!(r.details.iter().all(|d| !d.contains("L =")), "{:?}", r.details);
+}
+
+/// A bar with scalar damage and linear softening (invented numbers): κ the largest strain so
+/// far (at least κ₀), σ = (1 − d) E ε with (1 − d) κ = κ₀ (κ_f − κ)/(κ_f − κ₀), so that along
+/// loading σ = E κ₀ (κ_f − ε)/(κ_f − κ₀) (slope −E κ₀/(κ_f − κ₀)). Loading is ε ≥ κ (the
+/// loading side's tangent where ε equals κ exactly: the onset, a reload to the largest strain);
+/// unloading is secant, (1 − d) E. Properties [E, κ₀, κ_f]; state [κ, d]. With `always_soft`
+/// (a flaw) the loading tangent is returned on unloading too, once damaged.
+#[derive(Clone, Debug)]
+struct SofteningBar {
+    info: RoutineInfo,
+    always_soft: bool,
+}
+
+impl Model for SofteningBar {
+    fn info(&self) -> &RoutineInfo {
+        &self.info
+    }
+    fn evaluate<S: Scalar>(
+        &self,
+        input: &CallInput<'_, S>,
+        out: &mut CallOutput<'_, S>,
+    ) -> Result<(), Fault> {
+        let (e, k0, kf) = (input.props[0], input.props[1], input.props[2]);
+        let eps = input.strain[0] + input.dstrain[0];
+        let kappa = input.state0[0].max(k0);
+        let loading = eps.re() >= kappa.re() && eps.re() >= k0.re();
+        let k = if loading { eps } else { kappa };
+        let intact = k0 * (kf - k) / ((kf - k0) * k);
+        out.stress[0] = intact * e * eps;
+        let soft = -(e * k0) / (kf - k0);
+        out.tangent[0] =
+            if loading || self.always_soft && input.state0[1].re() > 0.0 { soft } else { intact * e };
+        out.state[0] = k;
+        out.state[1] = S::one() - intact;
+        out.dstress_dtemp[0] = S::zero();
+        out.energy[0] = S::zero();
+        out.energy[1] = S::zero();
+        out.outcome.branch = i32::from(loading);
+        Ok(())
+    }
+}
+
+// An increment that ends exactly where damage starts to grow (the onset, then a reload exactly
+// to the largest strain so far) returns the loading side's tangent, which softens though no
+// damage grows in it: the check accepts either side's tangent at such a kink, and the probe,
+// which looks a step further along the increment and sees the damage grow, says so without
+// failing (a correct damage law failed here; a user-style sweep). A law that returns the
+// softening tangent while it unloads still fails, at its first unloading increment.
+#[test]
+fn softening_at_the_onset_of_damage_growth_is_not_held_against_the_routine() {
+    let info = RoutineInfo {
+        name: "softening-bar".into(),
+        convention: tancheck::core::Convention::new(
+            PointKind::Uniaxial,
+            tancheck::core::ShearMeasure::Engineering,
+        ),
+        nstate: 2,
+        nprop: 3,
+    };
+    // Dyadic numbers, so that the sums land exactly on κ₀ = 2⁻¹³ and on the largest strain.
+    let (k0, h) = (2f64.powi(-13), 2f64.powi(-14));
+    let props = [1000.0, k0, 8.0 * k0];
+    let bar = |always_soft| ModelRoutine(SofteningBar { info: info.clone(), always_soft });
+    let p = path(
+        "to the onset, into growth, back, reload to the largest strain, beyond",
+        1.0,
+        &[
+            ([h, 0.0, 0.0, 0.0, 0.0, 0.0], 4),
+            ([-h, 0.0, 0.0, 0.0, 0.0, 0.0], 2),
+            ([h, 0.0, 0.0, 0.0, 0.0, 0.0], 3),
+        ],
+    );
+    let spec = || ProbeSpec { damage: Some(vec![1]), ..ProbeSpec::named("softening") };
+    let r = probe(&mut bar(false), spec(), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Pass, "{} {:#?}", r.summary, r.details);
+    // Increment 2 ends at κ₀, increment 8 at the largest strain (of increment 4).
+    assert!(
+        r.summary.contains(
+            "softening at 2 increment(s) that end exactly where damage starts to grow, from increment 2"
+        ),
+        "{}",
+        r.summary
+    );
+    for k in [2, 8] {
+        let line = format!("increment {k} (branch 1, ends where damage starts to grow)");
+        assert!(r.details.iter().any(|d| d.starts_with(&line)), "{line}: {:#?}", r.details);
+    }
+    let r = probe(&mut bar(true), spec(), &props, &p);
+    assert_eq!(r.status, ProbeStatus::Fail, "{}", r.summary);
+    assert_eq!(r.increment, Some(5), "{}", r.summary);
 }
