@@ -273,6 +273,16 @@ fn a_changed_library_is_a_warning_and_the_readable_replay_has_the_numbers() {
     // The stress as printed is the case's, to every digit.
     let stress = bits(&c["outputs"]["stress"]);
     assert!(t.contains(&format!("{:e}", stress[0])), "{t}");
+    // So are the call's inputs, each on its line (they were not printed: what the call was
+    // given had to be read from the case file; a user-style sweep).
+    for what in ["strain", "dstrain", "stress0", "state0", "props"] {
+        let want = bits(&c["call"][what]);
+        let line = t.lines().find(|l| l.trim_start().starts_with(&format!("{what} "))).unwrap_or("");
+        for x in &want {
+            assert!(line.contains(&format!("{x:e}")), "{what}: {line}\n{t}");
+        }
+    }
+    assert!(t.contains(&format!("inputs (increment {})", c["call"]["increment"])), "{t}");
     assert!(
         t.contains("gdb") && t.contains("--args") && t.contains("break c_j2_elastic_first_plastic"),
         "{t}"

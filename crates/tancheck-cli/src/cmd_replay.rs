@@ -186,6 +186,7 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
         o.shrunk_from.map_or(String::new(), |n| format!(" (shrunk from {n} increments)"))
     );
     let recorded_finding = case.probe.finding.clone();
+    let inputs = case.call.clone();
     let routine = p.routine.routine();
     let mut caller = Caller::new(routine);
     let r = case::replay(&mut caller, &p.parsed, walk).map_err(|m| format!("{}: {m}", file.display()))?;
@@ -205,6 +206,7 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
         routine: routine_name,
         origin,
         warnings: p.warnings,
+        inputs,
         identical: r.identical(),
         differences: r.differences.clone(),
         fault: r.fault.clone(),

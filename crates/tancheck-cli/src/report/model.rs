@@ -10,7 +10,7 @@ use schemars::JsonSchema;
 use serde::Serialize;
 
 use tancheck_core::bisect::{Located, ShrinkStop};
-use tancheck_core::case::{Numbers, ProbeCheck};
+use tancheck_core::case::{CaseCall, Numbers, ProbeCheck};
 use tancheck_core::path::Path;
 use tancheck_core::{Report, Verdict};
 
@@ -61,6 +61,8 @@ pub struct ReplayReport {
     /// Where the call was met: the path, the increment, its branch.
     pub origin: String,
     pub warnings: Vec<String>,
+    /// The call's inputs, as the case holds them.
+    pub inputs: CaseCall,
     /// Stress, state, tangent, status and branch are those of the case, bit for bit.
     pub identical: bool,
     pub differences: Vec<String>,

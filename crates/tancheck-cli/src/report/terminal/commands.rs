@@ -280,6 +280,28 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
     for w in &r.warnings {
         writeln!(out, "   warning: {w}")?;
     }
+    // The call's inputs (the case's decimals; its bits are what the call was given).
+    let c = &r.inputs;
+    writeln!(out, "   inputs (increment {}):", c.increment)?;
+    for (what, v) in [
+        ("strain", &c.strain),
+        ("dstrain", &c.dstrain),
+        ("stress0", &c.stress0),
+        ("state0", &c.state0),
+        ("props", &c.props),
+    ] {
+        if !v.bits.is_empty() {
+            writeln!(out, "     {what:<8}{}", numbers_line(v))?;
+        }
+    }
+    let pair = |v: &Numbers| {
+        let x = |k: usize| {
+            v.bits.get(k).map_or(f64::NAN, |b| f64::from_bits(u64::from_str_radix(b, 16).unwrap_or(0)))
+        };
+        (x(0), x(1))
+    };
+    let ((t, dt), (time, dtime)) = (pair(&c.temp), pair(&c.time));
+    writeln!(out, "     temperature {t:e} + {dt:e}, time {time:e} + {dtime:e}")?;
     if let Some(f) = &r.fault {
         writeln!(out, "   the call faulted: {f}")?;
     }
