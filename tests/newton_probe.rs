@@ -94,6 +94,16 @@ fn the_continuum_tangent_converges_linearly_and_fails() {
     }
     assert_eq!(result.increment, Some(5));
     assert!(result.summary.contains("below 1.5"), "{}", result.summary);
+    // A linear solve's long residual list reads as its first and last four with the count
+    // between (45 residuals filled a line; a user-style sweep); a short one in full.
+    assert!(solves.iter().any(|s| s.log.residuals.len() > 10), "a long solve: {solves:?}");
+    for (s, d) in solves.iter().zip(&result.details) {
+        let n = s.log.residuals.len();
+        let elided = format!("… {} more …", n.saturating_sub(8));
+        assert_eq!(d.contains(&elided), n > 10, "{n} residuals: {d}");
+        let last = format!("{:.2e}]", s.log.residuals[n - 1]);
+        assert!(d.contains(&last), "{d}");
+    }
 }
 
 // No false alarm on the strain-controlled tension-with-shear ramp of the default suite, in

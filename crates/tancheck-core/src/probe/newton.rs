@@ -311,8 +311,25 @@ fn tail_order(r: &[f64], floor: f64, lowest: f64) -> Option<f64> {
 }
 
 fn list(v: &[f64], prec: usize) -> String {
-    let items: Vec<String> = v.iter().map(|x| format!("{x:.prec$e}")).collect();
-    format!("[{}]", items.join(", "))
+    elided(v.iter().map(|x| format!("{x:.prec$e}")).collect())
+}
+
+/// Entries a residual or order list shows in full; a longer one shows its first and last
+/// [`LIST_ENDS`] with the count of those between (a slow solve's 45 residuals filled a line).
+const LIST_FULL: usize = 10;
+const LIST_ENDS: usize = 4;
+
+fn elided(items: Vec<String>) -> String {
+    if items.len() <= LIST_FULL {
+        return format!("[{}]", items.join(", "));
+    }
+    let n = items.len();
+    format!(
+        "[{}, … {} more …, {}]",
+        items[..LIST_ENDS].join(", "),
+        n - 2 * LIST_ENDS,
+        items[n - LIST_ENDS..].join(", ")
+    )
 }
 
 impl Probe for NewtonRate {
@@ -347,7 +364,7 @@ impl Probe for NewtonRate {
                 );
                 if !s.orders.is_empty() {
                     let o: Vec<String> = s.orders.iter().map(|p| format!("{p:.2}")).collect();
-                    line.push_str(&format!(", orders [{}]", o.join(", ")));
+                    line.push_str(&format!(", orders {}", elided(o)));
                     if let Some(t) = s.tail_order {
                         line.push_str(&format!(", {t:.2} to the residual below the rounding floor"));
                     }
@@ -357,7 +374,8 @@ impl Probe for NewtonRate {
                 }
                 if s.order().is_some() && s.judged_order().is_none() {
                     line.push_str(
-                        "; one order only, made with the start residual (a first step far from the solution,                          pre-asymptotic), and above the linear rate: not judged",
+                        "; one order only, made with the start residual (a first step far from the solution, \
+                         pre-asymptotic), and above the linear rate: not judged",
                     );
                 }
                 if s.diverged_from_start.is_some() {

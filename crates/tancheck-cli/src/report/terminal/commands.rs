@@ -29,6 +29,10 @@ fn fault_text(r: &tancheck_core::probe::ProbeResult) -> Option<(&str, &str)> {
     r.summary.split_once(": ")
 }
 
+/// Detail lines of a failed probe shown without `-v` (besides those of the increment it
+/// failed at and coverage warnings).
+const FAILED_DETAILS: usize = 6;
+
 /// A probe suite: a line per probe (only the failed ones with `-q`), details of failures.
 pub fn suite(
     out: &mut dyn Write,
@@ -80,13 +84,35 @@ pub fn suite(
         }
         writeln!(out, "   {:<15} {word} {}", r.probe, summary)?;
         // A coverage warning is shown as a check shows it: always (a passing probe that did
-        // not look at something says so).
-        for d in r
+        // not look at something says so). A failed probe's details are shown, up to
+        // FAILED_DETAILS lines and those of the increment it failed at without `-v` (a newton
+        // probe printed every increment's residuals, dozens of lines; a user-style sweep).
+        let shown: Vec<&String> = r
             .details
             .iter()
             .filter(|d| detail == Detail::Verbose || failed || d.starts_with("coverage warning"))
-        {
-            writeln!(out, "                            {d}")?;
+            .collect();
+        let at = r.increment.map(|k| format!("increment {k}"));
+        // "increment 9 (…", "increment 9:", not "increment 90".
+        let of_at = |d: &str| {
+            at.as_ref().is_some_and(|a| {
+                d.strip_prefix(a.as_str()).is_some_and(|rest| !rest.starts_with(|c: char| c.is_ascii_digit()))
+            })
+        };
+        let mut left = 0;
+        for (i, d) in shown.iter().enumerate() {
+            let keep = detail == Detail::Verbose
+                || i < FAILED_DETAILS
+                || d.starts_with("coverage warning")
+                || of_at(d);
+            if keep {
+                writeln!(out, "                            {d}")?;
+            } else {
+                left += 1;
+            }
+        }
+        if left > 0 {
+            writeln!(out, "                            … {left} more detail line(s): -v shows them, and the JSON report has them all")?;
         }
     }
     let failed = report.results.iter().filter(|r| r.status == ProbeStatus::Fail).count();
@@ -497,6 +523,48 @@ fn worst_two(worst: &[tancheck_core::case::ProbeEntry], pass: bool, tol: Option<
 
 #[cfg(test)]
 mod tests {
+    use tancheck_core::probe::{ProbeResult, ProbeStatus, SuiteReport};
+
+    use super::{Detail, Palette, SuiteContext};
+
+    // A failed probe shows its first details and those of the increment it failed at, and
+    // says how many it left out, without `-v`; with `-v` every line (a newton probe printed
+    // every increment's residuals, dozens of lines; a user-style sweep).
+    #[test]
+    fn a_failed_probe_shows_its_first_details_and_its_increment() {
+        let mut r = ProbeResult::new("newton", ProbeStatus::Fail, "order 1.00 at increment 9");
+        r.increment = Some(9);
+        r.details = (1..=12).map(|k| format!("increment {k}: residuals of {k}")).collect();
+        let report = SuiteReport {
+            tool: "t".into(),
+            suite: "s".into(),
+            routine: "r".into(),
+            path: "p".into(),
+            results: vec![r],
+            pass: false,
+            exit_code: 1,
+            notes: vec![],
+            cautions: vec![],
+        };
+        let ctx = SuiteContext { path_source: "the suite's".into(), notes: vec![] };
+        let text = |detail| {
+            let mut out = Vec::new();
+            super::suite(&mut out, &report, &ctx, detail, Palette { on: false }).unwrap();
+            String::from_utf8(out).unwrap()
+        };
+        let t = text(Detail::Normal);
+        for k in [1, 6, 9] {
+            assert!(t.contains(&format!("increment {k}: residuals of {k}\n")), "{k}: {t}");
+        }
+        for k in [7, 8, 10, 12] {
+            assert!(!t.contains(&format!("increment {k}: residuals")), "{k}: {t}");
+        }
+        assert!(t.contains("… 5 more detail line(s): -v shows them"), "{t}");
+        let t = text(Detail::Verbose);
+        assert!((1..=12).all(|k| t.contains(&format!("increment {k}: residuals of {k}\n"))), "{t}");
+        assert!(!t.contains("more detail line"), "{t}");
+    }
+
     #[test]
     fn errors_that_read_the_same_get_more_digits() {
         assert_eq!(
