@@ -289,8 +289,13 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
                     dtemp: p.dtemp.unwrap_or(0.0),
                 })?;
                 if let Some(dt) = p.dtime {
-                    if !(dt > 0.0 && dt.is_finite()) {
-                        return Err(format!("path.dtime must be a positive number, not {dt}"));
+                    // As an increment of a path file may: 0 included (a routine is given a
+                    // zero time increment where a solver makes a step without time).
+                    if !(dt >= 0.0 && dt <= tancheck_core::path::MAX_DTIME) {
+                        return Err(format!(
+                            "path.dtime must be a number from 0 to {:e}, not {dt}",
+                            tancheck_core::path::MAX_DTIME
+                        ));
                     }
                     for inc in &mut path.increments {
                         inc.dtime = dt;
@@ -447,6 +452,21 @@ mod tests {
         let e = Manifest::parse(&bad, FsPath::new("m.json")).unwrap_err().to_string();
         assert!(e.starts_with("m.json:3:"), "{e}");
         assert!(e.contains("expected a whole number, 0 or more") && !e.contains("usize"), "{e}");
+    }
+
+    // A shape's time increment may be 0, as a path file's increments may (it was refused for
+    // shapes alone; a user-style sweep); a negative one, or one beyond the paths' bound, is
+    // named.
+    #[test]
+    fn a_shape_takes_a_time_increment_of_zero() {
+        let with = |dt: &str| GOOD.replace("\"back\": 4", &format!("\"back\": 4, \"dtime\": {dt}"));
+        let m = Manifest::parse(&with("0"), FsPath::new("m.json")).unwrap();
+        let p = m.path_or(Path::ramp(Shape::Shear12, 1.0, 1, 0)).unwrap();
+        assert!(p.increments.iter().all(|i| i.dtime == 0.0));
+        for bad in ["-1", "1e300"] {
+            let e = Manifest::parse(&with(bad), FsPath::new("m.json")).unwrap_err().to_string();
+            assert!(e.starts_with("m.json") && e.contains("path.dtime must be a number from 0"), "{e}");
+        }
     }
 
     #[test]
