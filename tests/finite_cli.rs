@@ -460,3 +460,22 @@ fn a_syntax_error_in_a_finite_manifest_is_named_where_it_is() {
     assert!(out.contains("comma.json:2:") && out.contains("trailing comma"), "{out}");
     assert!(!out.contains("unknown field"), "{out}");
 }
+
+// A library built with `tancheck build --debug` gets floating-point traps in a finite-strain
+// check as in a point check, without being asked, and the note says so: the NaN the routine
+// computes at increment 2 is a trapped signal, a fault placed at its line (a debug build ran
+// without traps here and passed the NaN on; a user-style sweep).
+#[test]
+#[cfg_attr(tancheck_no_fp_traps, ignore = "needs floating-point traps (this machine has none)")]
+fn a_debug_build_gets_floating_point_traps_in_a_finite_check() {
+    let dir = scratch("debug-traps");
+    let lib = dir.join("libdebug.so");
+    let src = tancheck_testkit::libs::repo_root().join("fortran-shim/examples/c/finite_nh.c");
+    let (code, out) = tancheck(&["build", "--debug", src.to_str().unwrap(), "-o", lib.to_str().unwrap()]);
+    assert_eq!(code, 0, "{out}");
+    let nan = write(&dir, "nan.json", &Manifest { lib: &lib, ..elastic_nh("c_nh_nan_at_2") });
+    let (code, out) = tancheck(&["check", &nan, "-q"]);
+    assert_eq!(code, 3, "{out}");
+    assert!(out.contains("floating-point traps on") && out.contains("was built with --debug"), "{out}");
+    assert!(out.contains("SIGFPE") && out.contains("finite_nh.c:"), "{out}");
+}

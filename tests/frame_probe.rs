@@ -341,6 +341,7 @@ impl Routine for CornerSpring {
     fn info(&self) -> &RoutineInfo {
         &self.0
     }
+    #[allow(clippy::needless_range_loop)]
     fn call(&mut self, input: &CallInput<'_, f64>, output: &mut CallOutput<'_, f64>) -> Result<(), Fault> {
         let (e, k, k0) = (input.props[0], input.props[1], input.props[2]);
         // Engineering shear to Mandel: D = diag(1, 1, 1, 1/√2, 1/√2, 1/√2).

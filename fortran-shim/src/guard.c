@@ -170,6 +170,7 @@ typedef struct guard_thread {
     int prepared;                   /* alternate stack and stack bounds are set up */
     struct watch_slot *slot;        /* this thread's calls (see watch_slot) */
     uintptr_t stack_lo;             /* lowest usable address of this thread's stack, or 0 */
+    uintptr_t stack_hi;             /* the address just past its highest, or 0 */
     sigjmp_buf *volatile probe;     /* a read of the last words that may fault lands here */
 } guard_thread;
 
@@ -822,6 +823,61 @@ static int detail_of(int sig, int code, uintptr_t addr, uintptr_t stack_lo) {
     }
 }
 
+/* The interrupted stack pointer, read from the signal context, or 0. */
+static uintptr_t context_sp(void *context) {
+    (void)context;
+#if defined(__linux__)
+    if (context == NULL) return 0;
+#endif
+#if defined(__linux__) && defined(__x86_64__)
+    return (uintptr_t)((ucontext_t *)context)->uc_mcontext.gregs[REG_RSP];
+#elif defined(__linux__) && defined(__aarch64__)
+    return (uintptr_t)((ucontext_t *)context)->uc_mcontext.sp;
+#elif defined(__linux__) && defined(__i386__)
+    return (uintptr_t)((ucontext_t *)context)->uc_mcontext.gregs[REG_ESP];
+#else
+    return 0;
+#endif
+}
+
+/* The words at the top of the interrupted stack, per watch slot (not thread-local: the
+ * initial-exec thread storage of a library loaded at run time is small). A fault inside a
+ * system library (a trap in libm's log or sqrt of a negative number) names the routine's own
+ * frame by the first return address into other code among them, found after the call
+ * (tc_guard_fault_stack). */
+#define GUARD_STACK_WORDS 64
+static uint64_t slot_stack[WATCH_SLOTS][GUARD_STACK_WORDS];
+static int32_t slot_nstack[WATCH_SLOTS];
+
+/* In the handler: copy the words from the interrupted stack pointer up, within the thread's
+ * stack (plain loads of mapped memory: async-signal-safe). */
+static void record_stack(const guard_thread *t, void *context) {
+    if (t->slot == NULL) return;
+    const long k = t->slot - watch_slots;
+    if (k < 0 || k >= WATCH_SLOTS) return;
+    slot_nstack[k] = 0;
+    const uintptr_t sp = context_sp(context);
+    if (sp == 0 || t->stack_hi == 0 || sp < t->stack_lo || sp >= t->stack_hi) return;
+    uintptr_t n = (t->stack_hi - sp) / sizeof(uint64_t);
+    if (n > GUARD_STACK_WORDS) n = GUARD_STACK_WORDS;
+    const volatile uint64_t *w = (const volatile uint64_t *)sp;
+    for (uintptr_t i = 0; i < n; i++) slot_stack[k][i] = w[i];
+    slot_nstack[k] = (int32_t)n;
+}
+
+/* The stack words the calling thread's last caught signal left (see record_stack): copies up
+ * to `max` into `out` and returns how many. */
+int32_t tc_guard_fault_stack(uint64_t *out, int32_t max) {
+    const guard_thread *t = &tc_thread;
+    if (t->slot == NULL) return 0;
+    const long k = t->slot - watch_slots;
+    if (k < 0 || k >= WATCH_SLOTS) return 0;
+    int32_t n = slot_nstack[k];
+    if (n > max) n = max;
+    for (int32_t i = 0; i < n; i++) out[i] = slot_stack[k][i];
+    return n;
+}
+
 /* The interrupted instruction, read from the signal context; only stored here (it is
  * turned into a function, file and line after the call, outside the handler). */
 static void *context_pc(void *context) {
@@ -867,6 +923,7 @@ static void guard_handler(int sig, siginfo_t *info, void *context) {
             t->code = info != NULL ? info->si_code : 0;
             t->addr = (info != NULL && info->si_code > 0) ? info->si_addr : NULL;
             t->pc = context_pc(context);
+            record_stack(t, context);
             GUARD_FENCE();
             siglongjmp(*t->jump, 1);
         }
@@ -1004,7 +1061,10 @@ static void prepare_thread(guard_thread *t) {
     if (pthread_getattr_np(pthread_self(), &attr) == 0) {
         void *lo;
         size_t size;
-        if (pthread_attr_getstack(&attr, &lo, &size) == 0) t->stack_lo = (uintptr_t)lo;
+        if (pthread_attr_getstack(&attr, &lo, &size) == 0) {
+            t->stack_lo = (uintptr_t)lo;
+            t->stack_hi = (uintptr_t)lo + size;
+        }
         pthread_attr_destroy(&attr);
     }
 #endif

@@ -54,6 +54,8 @@ impl fmt::Display for CodeLocation {
         };
         if self.has_line() || self.object.is_none() {
             write!(f, " ({place})")
+        } else if self.object.as_deref().is_some_and(is_system_library) {
+            write!(f, " ({place}, a system library)")
         } else {
             write!(
                 f,
@@ -77,6 +79,41 @@ fn copied_from(loaded: &std::path::Path) -> Option<PathBuf> {
 /// Remember that the loader knows the library copied from `original` as `loaded`.
 pub(crate) fn note_copy(loaded: PathBuf, original: PathBuf) {
     COPIES.lock().unwrap_or_else(std::sync::PoisonError::into_inner).push((loaded, original));
+}
+
+/// The shared object (or program) holding `address`, as the dynamic loader names it.
+pub fn object_of(address: u64) -> Option<PathBuf> {
+    if address == 0 {
+        return None;
+    }
+    // SAFETY: as in `locate`.
+    let mut info: libc::Dl_info = unsafe { std::mem::zeroed() };
+    if unsafe { libc::dladdr(address as usize as *const libc::c_void, &mut info) } == 0
+        || info.dli_fname.is_null()
+    {
+        return None;
+    }
+    // SAFETY: a NUL-terminated string owned by the loader.
+    let name = unsafe { CStr::from_ptr(info.dli_fname) }.to_string_lossy().into_owned();
+    (!name.is_empty()).then(|| PathBuf::from(name))
+}
+
+/// A library of the system or of a compiler's run time, not the routine's: the C and math
+/// libraries, the loader, the Fortran, quad-precision, GCC and C++ run times, by file name.
+pub fn is_system_library(object: &std::path::Path) -> bool {
+    const NAMES: [&str; 9] = [
+        "libm.so",
+        "libc.so",
+        "libmvec.so",
+        "ld-linux",
+        "libgfortran.so",
+        "libquadmath.so",
+        "libgcc_s.so",
+        "libstdc++.so",
+        "libpthread.so",
+    ];
+    let name = object.file_name().map(|n| n.to_string_lossy().into_owned()).unwrap_or_default();
+    NAMES.iter().any(|n| name.starts_with(n))
 }
 
 /// Resolve a code address of this process. `None` for address 0.

@@ -125,6 +125,7 @@ pub(crate) struct GuardResult {
 
 extern "C" {
     fn tc_guard_prepare() -> i32;
+    fn tc_guard_fault_stack(out: *mut u64, max: i32) -> i32;
     fn tc_guard_has_altstack() -> i32;
     fn tc_guard_fp_traps_available() -> i32;
     fn tc_guard_call_real(f: RealFn, args: *const GuardArgs, result: *mut GuardResult) -> i32;
@@ -234,6 +235,45 @@ pub struct Crash {
     /// The interrupted instruction, from the signal context (where the routine was), when the
     /// platform gives it. Resolved to a function, file and line by [`Crash::into_fault`].
     pub pc: Option<u64>,
+    /// When `pc` lies in a system library (libm, libc, a compiler's run-time library): the
+    /// first return address on the interrupted stack into other code, the routine's own frame
+    /// that called it (see [`caller_of`]).
+    pub caller: Option<u64>,
+}
+
+/// Words of the interrupted stack the guard keeps (`GUARD_STACK_WORDS` of guard.c).
+const STACK_WORDS: usize = 64;
+
+/// The routine's frame that called the system library holding `pc`: the first word, from the
+/// top of the interrupted stack the guard kept, that is an address in a loaded object that is
+/// neither a system library nor this program (the routine's library, as a debugger's stack
+/// scan finds a return address). `None` when `pc` is not in a system library, or no word
+/// points into other code. A trap in libm's log or sqrt of a negative number was placed in
+/// libm, its nearest export named, with advice to rebuild with debug information that the
+/// routine's library already had (a user-style sweep). Reads the calling thread's words: call
+/// it on the thread whose call was caught, before its next guarded call.
+fn caller_of(pc: u64) -> Option<u64> {
+    let object = crate::locate::object_of(pc)?;
+    if !crate::locate::is_system_library(&object) {
+        return None;
+    }
+    let mut words = [0u64; STACK_WORDS];
+    // SAFETY: `words` holds STACK_WORDS entries, the most the guard writes.
+    let n =
+        unsafe { tc_guard_fault_stack(words.as_mut_ptr(), STACK_WORDS as i32) }.clamp(0, STACK_WORDS as i32);
+    let exe = std::env::current_exe().ok().and_then(|e| e.canonicalize().ok());
+    words[..n as usize].iter().copied().find(|&w| {
+        w > 4096
+            && crate::locate::object_of(w).is_some_and(|o| {
+                !crate::locate::is_system_library(&o)
+                    && o.canonicalize().ok().zip(exe.as_ref()).is_none_or(|(o, e)| &o != e)
+            })
+            // The project's Fortran module of complex-step functions (compiled into the
+            // routine's library) passes the call on: its caller is the routine's line.
+            && !crate::locate::locate(w).is_some_and(|l| {
+                l.function.as_deref().or(l.symbol.as_deref()).is_some_and(|f| f.contains("tancheck_cstep"))
+            })
+    })
 }
 
 impl Crash {
@@ -271,7 +311,8 @@ impl Crash {
             _ => None,
         };
         let pc = (r.pc != 0).then_some(r.pc);
-        Crash { signal: r.signal, kind, detail, code: r.code, address, pc }
+        let caller = pc.and_then(caller_of);
+        Crash { signal: r.signal, kind, detail, code: r.code, address, pc, caller }
     }
 
     /// A plain description of what happened and what usually causes it.
@@ -393,6 +434,13 @@ impl Crash {
         let mut what = self.describe();
         if let Some(loc) = self.location() {
             what = format!("{what}; the routine was {loc}");
+            if let Some(c) = self.caller.and_then(crate::locate::locate) {
+                let c = c.to_string();
+                let c = c.strip_prefix("in ").unwrap_or(&c);
+                what = format!(
+                    "{what}, called from {c} (the first return address into other code on the stack)"
+                );
+            }
         }
         Fault::Crashed { signal: self.signal, what }
     }
@@ -562,6 +610,7 @@ mod tests {
             code: 1,
             address: Some(0),
             pc: None,
+            caller: None,
         };
         let d = segv.describe();
         assert!(d.starts_with("segmentation fault (SIGSEGV) at address 0x0: the routine read or wrote memory it does not own"), "{d}");
@@ -573,6 +622,7 @@ mod tests {
             code: 7,
             address: Some(0x1234),
             pc: None,
+            caller: None,
         };
         assert!(fpe.describe().starts_with("floating-point exception (SIGFPE): invalid operation"));
         match fpe.into_fault() {

@@ -91,6 +91,27 @@ fn division_by_zero_traps_when_asked() {
     assert!(b.stress[0].is_infinite());
 }
 
+// A trap inside the math library (the logarithm of a negative number, taken by libm's log):
+// the fault is placed in the system library and, from the words at the top of the
+// interrupted stack, in the routine's frame that called it (it named libm's nearest export
+// alone, with advice to rebuild with debug information; a user-style sweep).
+#[test]
+#[cfg_attr(tancheck_no_fp_traps, ignore = "needs floating-point traps (this machine has none)")]
+fn a_trap_in_the_math_library_names_the_routine_that_called_it() {
+    let mut r = load("bad_log_of_negative");
+    let mut b = Real::new();
+    r.set_fp_traps(true).unwrap();
+    let (signal, what) = crashed(b.call(&mut r, 2));
+    assert_eq!(signal, SIGFPE);
+    assert!(what.starts_with("floating-point exception (SIGFPE): invalid operation"), "{what}");
+    // No advice about the system library's debug information (the routine's own may lack it).
+    assert!(what.contains("libm.so") && what.contains("a system library), called from"), "{what}");
+    assert!(what.contains("called from `bad_log_of_negative`"), "{what}");
+    // The call after it is unaffected.
+    b.call(&mut r, 1).unwrap();
+    b.assert_elastic();
+}
+
 #[test]
 fn abort_is_caught_and_the_process_can_still_spawn() {
     let mut r = load("bad_abort");

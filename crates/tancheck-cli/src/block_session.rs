@@ -55,7 +55,7 @@ pub fn load_block(m: &Manifest, dir: &FsPath) -> Result<Box<dyn BlockRoutine>> {
         nproperties: r.properties.len(),
     };
     let mut routine = lib.block_routine(symbol, info)?;
-    if m.fp_traps {
+    if crate::load::traps_wanted(&lib, m.fp_traps, &lib_path, true) {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
     }
     routine.set_guard_level(match m.guards {

@@ -273,7 +273,7 @@ pub fn open_library(
     };
     let mut r = lib.finite_routine(symbol, info).map_err(|e| anyhow!("{file}: {e}"))?;
     r.set_checks(m.guards != Guards::Off);
-    r.set_fp_traps(m.fp_traps);
+    r.set_fp_traps(crate::load::traps_wanted(&lib, m.fp_traps, library, true));
     Ok(Box::new(r))
 }
 

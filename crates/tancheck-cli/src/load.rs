@@ -61,28 +61,8 @@ fn load_with(m: &Manifest, dir: &FsPath, fresh: bool) -> Result<Loaded> {
         nprop: r.properties.len(),
     };
     let mut routine = lib.routine(symbol, info)?;
-    if m.fp_traps {
+    if traps_wanted(&lib, m.fp_traps, &lib_path, !fresh) {
         routine.set_fp_traps(true).context("switching floating-point traps on")?;
-    } else if lib.has_symbol(tancheck_abi::DEBUG_MARKER) {
-        // `tancheck build --debug` asked for traps; in a library only the caller can set them.
-        let traps = tancheck_abi::signal_guard::fp_traps_available();
-        if traps {
-            routine.set_fp_traps(true).context("switching floating-point traps on")?;
-        }
-        // Said once, on the first load.
-        if !fresh {
-            if traps {
-                crate::say!(
-                    "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
-                    lib_path.display()
-                );
-            } else {
-                crate::say!(
-                    "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
-                    lib_path.display()
-                );
-            }
-        }
     }
     routine.set_guard_level(match m.guards {
         crate::manifest::Guards::Off => tancheck_abi::GuardLevel::Off,
@@ -127,4 +107,33 @@ pub fn check_model_sizes(name: &str, r: &RoutineSpec, info: &RoutineInfo) -> Res
         }
     }
     Ok(())
+}
+
+/// Whether a library routine gets floating-point traps: asked for (`fp_traps`, `--fp-traps`),
+/// or built with `tancheck build --debug` (which asks for them; in a library only the caller
+/// can set them) on a machine that can trap. `say` tells the note of a debug build (once, on
+/// the first load). The point, block and finite-strain loads share it (a `--debug` library got
+/// no traps in a finite-strain check; a user-style sweep).
+pub fn traps_wanted(lib: &Library, asked: bool, lib_path: &std::path::Path, say: bool) -> bool {
+    if asked {
+        return true;
+    }
+    if !lib.has_symbol(tancheck_abi::DEBUG_MARKER) {
+        return false;
+    }
+    let traps = tancheck_abi::signal_guard::fp_traps_available();
+    if say {
+        if traps {
+            crate::say!(
+                "tancheck: note: floating-point traps on (invalid, division by zero, overflow): {} was built with --debug",
+                lib_path.display()
+            );
+        } else {
+            crate::say!(
+                "tancheck: note: {} was built with --debug, but this machine cannot trap floating-point exceptions",
+                lib_path.display()
+            );
+        }
+    }
+    traps
 }

@@ -291,7 +291,7 @@ pub fn path_from_spec(p: &PathSpec) -> Result<Path, String> {
                 if let Some(dt) = p.dtime {
                     // As an increment of a path file may: 0 included (a routine is given a
                     // zero time increment where a solver makes a step without time).
-                    if !(dt >= 0.0 && dt <= tancheck_core::path::MAX_DTIME) {
+                    if !(0.0..=tancheck_core::path::MAX_DTIME).contains(&dt) {
                         return Err(format!(
                             "path.dtime must be a number from 0 to {:e}, not {dt}",
                             tancheck_core::path::MAX_DTIME

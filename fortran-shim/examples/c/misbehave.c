@@ -9,6 +9,9 @@
  *   bad_divide_by_zero  stress[0] = (a computed value) / (a computed zero):
  *                       with floating-point traps on -> SIGFPE (division by zero);
  *                       without traps -> stress[0] is infinite and the call returns normally
+ *   bad_log_of_negative stress[0] += log(-E) through tc_log, the logarithm of a negative
+ *                       number inside the math library: with floating-point traps on
+ *                       -> SIGFPE (invalid) in libm, called from this routine
  *   bad_abort           calls abort()                              -> SIGABRT
  *   bad_exit            calls exit(0), as a Fortran STOP does      -> the process ends
  *   bad_deep_recursion  recurses without end, 4 KiB a frame        -> SIGSEGV, stack overflow
@@ -168,6 +171,20 @@ TC_ROUTINE(bad_divide_by_zero)
         volatile double e = properties[0];
         double zero = e - e;
         stress[0] = stress[0] + e / zero;
+    }
+}
+
+TC_ROUTINE(bad_log_of_negative)
+{
+    MISBEHAVE_UNUSED;
+    if (!misbehave_elastic(call, properties, dstrain, stress0, state0, stress, state, tangent,
+                           report)) {
+        return;
+    }
+    if (call->increment >= 2) {
+        /* -E is negative at run time; volatile keeps the compiler from folding the call. */
+        volatile double e = -properties[0];
+        stress[0] = stress[0] + tc_log(e);
     }
 }
 

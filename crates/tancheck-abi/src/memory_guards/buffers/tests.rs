@@ -201,6 +201,7 @@ fn a_crash_after_a_clean_call_is_not_blamed_on_the_next_call() {
                         code: 1,
                         address: None,
                         pc: None,
+                        caller: None,
                     });
                 }
             }
