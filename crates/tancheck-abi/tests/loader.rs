@@ -165,6 +165,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_hidden_state",
             "bad_infinite_loop",
             "bad_late_exit",
+            "bad_log_of_negative",
             "bad_null_deref",
             "bad_perturbed_overrun",
             "bad_printf",
