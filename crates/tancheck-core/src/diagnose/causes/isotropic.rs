@@ -49,6 +49,15 @@ pub(super) fn try_isotropic(ev: &Evidence<'_>, found: &mut Found) {
     if !(g.abs() > 0.0 && k.abs() > 0.0) {
         return;
     }
+    // A derivative with no deviatoric (or no volumetric) part to speak of has no modulus of
+    // that part whose factor could be read: its factor is rounding over rounding (a
+    // Drucker–Prager apex, whose derivative is a multiple of 1⊗1, read "the deviatoric part
+    // is 0.5000×" and sent the user to the elastic moduli for a wrong apex term; a
+    // user-style sweep). Where the state changed the rank-one trials name such a term.
+    let (gm, km) = (g.abs(), k.abs());
+    if gm <= ABSENT * km || km <= ABSENT * gm {
+        return;
+    }
     // The returned tangent less the fitted parts, back in the routine's form.
     let corrected = |fa: f64, fb: f64| {
         let mut c = ev.returned.to_vec();

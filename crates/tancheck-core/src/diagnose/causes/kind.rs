@@ -74,12 +74,15 @@ pub enum Cause {
     /// the term C_a3 C_3b / C_33 that holding σ33 at zero takes off.
     #[serde(rename = "plane-stress-uncondensed")]
     Uncondensed,
+    /// Every entry of the returned tangent zero where the derivative's are not.
+    ZeroTangent,
 }
 
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 25] = [
+    pub const BY_SPECIFICITY: [Cause; 26] = [
+        Cause::ZeroTangent,
         Cause::ShearFactor,
         Cause::ShearPermutation,
         Cause::Transposed,
@@ -138,6 +141,7 @@ impl Cause {
             Cause::RankTwo => "rank-two",
             Cause::PartialDtemp => "dtemp-partial",
             Cause::Uncondensed => "plane-stress-uncondensed",
+            Cause::ZeroTangent => "zero-tangent",
         }
     }
 

@@ -12,6 +12,20 @@ pub(super) fn try_other_matrix(ev: &Evidence<'_>, found: &mut Found) {
     let r = ev.returned;
     let at = |m: &[f64], i: usize, j: usize| m[i + j * n];
 
+    // Every entry zero where the derivative is not: what the routine wrote says more than any
+    // factor of a term (a Drucker–Prager apex with hardening returning the zero tangent of a
+    // perfectly plastic one read `term-scaled 1.37`; a user-style sweep).
+    if r.iter().all(|&x| x == 0.0) && ev.numerical.iter().any(|&x| x != 0.0) {
+        found.push(
+            Cause::ZeroTangent,
+            "every entry of the returned tangent is 0, where the derivative's are not: the routine wrote a zero \
+             matrix (the tangent of a branch without stiffness, as a perfectly plastic apex, where this one has \
+             some)"
+                .into(),
+            0.0,
+        );
+    }
+
     // Elastic tangent in an inelastic branch.
     if let (Some(e), true) = (ev.elastic, ev.state_changed) {
         found.push(

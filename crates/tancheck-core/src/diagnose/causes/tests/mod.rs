@@ -6,6 +6,7 @@ use crate::convention::{Convention, PointKind, ShearMeasure};
 fn j2_like() -> Vec<f64> {
     crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
+mod apex;
 mod cone;
 mod plane;
 mod ranking;
