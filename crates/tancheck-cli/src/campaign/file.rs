@@ -455,11 +455,12 @@ pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
 /// campaign and read "not as expected"; a user-style sweep). Findings of the block and
 /// finite-strain checks and of probes are not listed here: only near misses are refused.
 fn misspelt_finding(f: &str) -> Option<&'static str> {
-    const OTHERS: [&str; 10] = [
+    const OTHERS: [&str; 11] = [
         "none",
         "routine-fault",
         "non-finite-output",
         "non-finite-derivative",
+        "unsettled-update",
         "twin-not-complex-step-safe",
         "kink-neither-side",
         "dtemp",

@@ -22,6 +22,7 @@ use crate::settings::Settings;
 pub mod causes;
 pub mod decide;
 pub mod kink;
+pub mod settle;
 pub mod study;
 pub mod temp_kink;
 
@@ -246,6 +247,16 @@ pub fn run(
         decision = decide::decide(&observed);
         if let (Some(note), false) = (symmetry, decision.pass) {
             decision.reason = format!("{}; {note}", decision.reason);
+        }
+    }
+    // A failed tangent whose update did not settle: that, not a term of the tangent, is what
+    // to fix first (see `settle`).
+    let tangent_finding = decision.finding == "unexplained"
+        || causes::Cause::BY_SPECIFICITY.iter().any(|c| c.name() == decision.finding);
+    if !decision.pass && tangent_finding {
+        if let Some((moved, state_moved)) = settle::unsettled(driver, caller) {
+            decision.reason = format!("{}; {}", settle::words(moved, state_moved), decision.reason);
+            decision.finding = settle::UNSETTLED_FINDING.into();
         }
     }
     // A stress that jumps across the point: no tangent describes it, whatever the verdict on

@@ -412,7 +412,8 @@ impl Report {
     /// What the report found, in one word: `none` when it passed, `routine-fault` when the
     /// routine crashed or failed, else the finding named at the most failing increments (each
     /// increment's own: its first-ranked cause, or `kink-neither-side`,
-    /// `non-finite-derivative`, `dtemp`; ties go to the more specific cause), or
+    /// `non-finite-derivative`, `unsettled-update`, `dtemp`; ties go to the more specific
+    /// cause), or
     /// `unexplained` when no increment names one or more increments are unexplained than name
     /// any one finding. Only the first-ranked cause counts: the
     /// general ones (`rank-two`, a rank-one term) also explain most discrepancies a specific
@@ -437,6 +438,7 @@ impl Report {
             let Some(d) = &inc.diagnosis else { continue };
             if d.finding == "kink-neither-side"
                 || d.finding == crate::diagnose::NON_FINITE_FINDING
+                || d.finding == crate::diagnose::settle::UNSETTLED_FINDING
                 || d.finding.starts_with("dtemp")
             {
                 add(&d.finding, 0);
