@@ -12,12 +12,16 @@ use tancheck::core::{
     RoutineInfo, Scalar, Settings, ShearMeasure,
 };
 
-/// Properties [E, σy0, Q, b]; state [plastic strain, accumulated plastic strain].
+/// Properties [E, σy0, Q, b, η]; state [plastic strain, accumulated plastic strain]. With
+/// η > 0 an overstress viscosity η/Δt joins the hardening slope (none when Δt = 0: the
+/// rate-independent update, as some routines guard the division).
 #[derive(Clone, Debug)]
 struct VoceBar {
     info: RoutineInfo,
     /// Newton iterations for the plastic multiplier (one: the flaw; many: converged).
     iterations: usize,
+    /// The tangent leaves the viscous term out (a flaw of the tangent alone).
+    no_viscous_term: bool,
 }
 
 impl Model for VoceBar {
@@ -30,6 +34,8 @@ impl Model for VoceBar {
         out: &mut CallOutput<'_, S>,
     ) -> Result<(), Fault> {
         let (e, sy0, q, b) = (input.props[0], input.props[1], input.props[2], input.props[3]);
+        let dt = input.time[1];
+        let visc = if dt.re() > 0.0 { input.props[4] / dt } else { S::zero() };
         let (ep0, a0) = (input.state0[0], input.state0[1]);
         let yield_at = |a: S| sy0 + q * (S::one() - (-(b * a)).exp());
         let slope_at = |a: S| q * b * (-(b * a)).exp();
@@ -49,13 +55,13 @@ impl Model for VoceBar {
         }
         let mut dg = S::zero();
         for _ in 0..self.iterations {
-            let g = trial * sign - e * dg - yield_at(a0 + dg);
-            dg = dg + g / (e + slope_at(a0 + dg));
+            let g = trial * sign - e * dg - yield_at(a0 + dg) - visc * dg;
+            dg = dg + g / (e + slope_at(a0 + dg) + visc);
             if g.re().abs() <= 1e-12 * sy0.re() {
                 break;
             }
         }
-        let h = slope_at(a0 + dg);
+        let h = slope_at(a0 + dg) + if self.no_viscous_term { S::zero() } else { visc };
         out.stress[0] = trial - e * dg * sign;
         out.state[0] = ep0 + dg * sign;
         out.state[1] = a0 + dg;
@@ -66,14 +72,18 @@ impl Model for VoceBar {
 }
 
 fn check(iterations: usize) -> tancheck::core::Report {
+    check_with(iterations, 0.0, false)
+}
+
+fn check_with(iterations: usize, eta: f64, no_viscous_term: bool) -> tancheck::core::Report {
     let info = RoutineInfo {
         name: format!("voce-bar-{iterations}"),
         convention: Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering),
         nstate: 2,
-        nprop: 4,
+        nprop: 5,
     };
-    let mut r = ModelRoutine(VoceBar { info: info.clone(), iterations });
-    let props = [200000.0, 250.0, 150.0, 80.0];
+    let mut r = ModelRoutine(VoceBar { info: info.clone(), iterations, no_viscous_term });
+    let props = [200000.0, 250.0, 150.0, 80.0, eta];
     let path = Path {
         name: "tension into hardening".into(),
         increments: vec![PathIncrement::strain([1e-3, 0.0, 0.0, 0.0, 0.0, 0.0]); 6],
@@ -101,8 +111,24 @@ fn an_update_stopped_after_one_newton_step_is_named_unsettled() {
     let inc = bad.increments.iter().find(|i| !i.passed()).unwrap();
     let d = inc.diagnosis.as_ref().unwrap();
     assert_eq!(d.finding, "unsettled-update", "{}", d.reason);
-    assert!(d.reason.starts_with("a zero increment (Δε = 0, ΔT = 0, Δt = 0) from the end"), "{}", d.reason);
+    assert!(d.reason.starts_with("a zero increment (Δε = 0, ΔT = 0, Δt → 0) from the end"), "{}", d.reason);
     assert!(d.reason.contains("changes the state variables"), "{}", d.reason);
     // The causes are still there, for what they say of the tangent against that map.
     assert!(!d.causes.is_empty());
+}
+
+// A settled viscous update whose tangent leaves the viscous term out is a wrong tangent, not an
+// unsettled update: a zero increment of exactly no time would make it rate-independent and
+// return its overstress to the static yield surface (it read `unsettled-update`; a user-style
+// sweep's viscoplastic routine), so the look gives the zero increment a vanishing time.
+#[test]
+fn a_viscous_update_with_a_wrong_tangent_is_not_called_unsettled() {
+    assert_eq!(check_with(50, 2000.0, false).verdict, tancheck::core::Verdict::Pass);
+    let bad = check_with(50, 2000.0, true);
+    assert_eq!(bad.verdict, tancheck::core::Verdict::TangentFailure);
+    assert_ne!(bad.finding(), "unsettled-update");
+    // The look cannot tell a viscous update that stops after one step either (a vanishing time
+    // gives an infinite viscosity, which holds any stress): it says nothing rather than
+    // something false.
+    assert_ne!(check_with(1, 2000.0, false).finding(), "unsettled-update");
 }

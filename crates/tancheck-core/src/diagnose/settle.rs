@@ -1,4 +1,4 @@
-//! Whether the stress update settled: a zero increment (Δε = 0, ΔT = 0, Δt = 0) from the end
+//! Whether the stress update settled: a zero increment (Δε = 0, ΔT = 0, Δt → 0) from the end
 //! of a failed increment must give back its end stress. An update that does not end at a state
 //! it keeps (a local Newton iteration stopped before it converged, a return that falls short of
 //! the yield surface, a state variable not stored) moves it, and its numerical derivative is
@@ -24,28 +24,41 @@ pub const SETTLE_LEVEL: f64 = 1e-5;
 /// How far a zero increment from the end of the driver's increment moves the stress, relative
 /// to its size, and whether it changes the state, when the stress moves by more than
 /// [`SETTLE_LEVEL`]. `None` when it does not, or when the look says nothing (the call fails
-/// or refuses, gives values that are not finite numbers, or the end stress is zero). One call.
+/// or refuses, gives values that are not finite numbers, or the end stress is zero).
+///
+/// The zero increment takes a hundred-millionth of the increment's time and then a
+/// billionth (none where the increment takes none): a time increment of exactly 0 turns some
+/// viscous updates rate-independent (a viscosity η/Δt set to 0 when Δt is), which returns an
+/// overstress to the static yield surface (a correct Perzyna-type update read unsettled), and
+/// a rate law moves the stress in proportion to the time it is given; an unsettled update
+/// moves it as much in the shorter time. Two calls.
 pub fn unsettled(driver: &Driver, caller: &mut Caller<'_>) -> Option<(f64, bool)> {
-    let mut d = driver.clone();
-    d.advance();
-    let zeros = vec![0.0; d.ncomp()];
-    d.set_increment(&zeros, 0.0, 0.0);
-    let called: Result<(), Fault> = d.base_call(caller);
-    called.ok()?;
-    let (end, again) = (&d.start().stress, &d.base.stress);
-    let size = end.iter().map(|x| x * x).sum::<f64>().sqrt();
-    let moved = end.iter().zip(again).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt() / size;
-    if !(moved.is_finite() && size > 0.0 && moved > SETTLE_LEVEL) {
-        return None;
+    let dtime = driver.dtime();
+    let look = |caller: &mut Caller<'_>, dt: f64| -> Option<(f64, bool)> {
+        let mut d = driver.clone();
+        d.advance();
+        let zeros = vec![0.0; d.ncomp()];
+        d.set_increment(&zeros, 0.0, dt);
+        let called: Result<(), Fault> = d.base_call(caller);
+        called.ok()?;
+        let (end, again) = (&d.start().stress, &d.base.stress);
+        let size = end.iter().map(|x| x * x).sum::<f64>().sqrt();
+        let moved = end.iter().zip(again).map(|(a, b)| (a - b) * (a - b)).sum::<f64>().sqrt() / size;
+        let state_moved = d.base.state.iter().zip(&d.start().state).any(|(a, b)| a != b);
+        (moved.is_finite() && size > 0.0).then_some((moved, state_moved))
+    };
+    if dtime == 0.0 {
+        return look(caller, 0.0).filter(|(m, _)| *m > SETTLE_LEVEL);
     }
-    let state_moved = d.base.state.iter().zip(&d.start().state).any(|(a, b)| a != b);
-    Some((moved, state_moved))
+    let (longer, _) = look(caller, 1e-8 * dtime).filter(|(m, _)| *m > SETTLE_LEVEL)?;
+    let (shorter, state_moved) = look(caller, 1e-9 * dtime)?;
+    (shorter > SETTLE_LEVEL && shorter > 0.5 * longer).then_some((shorter, state_moved))
 }
 
 /// The words of the finding, for the increment's reason.
 pub fn words(moved: f64, state_moved: bool) -> String {
     format!(
-        "a zero increment (Δε = 0, ΔT = 0, Δt = 0) from the end of this increment moves the stress by {moved:.2e} of \
+        "a zero increment (Δε = 0, ΔT = 0, Δt → 0) from the end of this increment moves the stress by {moved:.2e} of \
          its size{}: the update does not end at a state it keeps (a local iteration stopped before it converged, a \
          return short of the yield surface, or a state variable not stored), so the derivative measured is that of \
          an unsettled map and no tangent of the settled one matches it; settle the update first",
