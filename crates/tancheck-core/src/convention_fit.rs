@@ -235,8 +235,12 @@ pub fn analyse(conv: &Convention, tangent: &[f64], tol: f64) -> Finding {
             };
         }
         let behaves = closest(|h| h.isotropy).expect("one reading fits");
+        // The order named is the declared one where that fits: an isotropic response cannot
+        // tell the order among the normal or among the shear components (a user fixing the
+        // order the warning named kept a wrong one; a user-style sweep).
         let evidence = format!(
-            "isotropic in that reading, residual {:.1e}; as declared {:.1e}",
+            "isotropic in that reading, residual {:.1e}; as declared {:.1e}; an isotropic response tells the \
+             shear measure and which components are normal and which shear, not the order among them",
             behaves.isotropy, declared.isotropy
         );
         return Finding::Other { behaves, declared, evidence };

@@ -241,7 +241,14 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
                         worst: s.worst_norm_error.max(s.worst_entry_error),
                     })
                     .collect(),
-                message: rep.first_fault().map(|f| f.message.clone()),
+                // A fault's message, else a conventions warning: a declared order or shear
+                // measure the elastic response contradicts reached no campaign report (a
+                // user-style sweep's library checked with its shear declared wrongly passed
+                // every item without a word).
+                message: rep
+                    .first_fault()
+                    .map(|f| f.message.clone())
+                    .or_else(|| rep.notes.iter().find(|n| n.starts_with("conventions warning")).cloned()),
             })
         }
         Task::Probe(suite_file, _) => {

@@ -50,6 +50,10 @@ pub fn campaign_junit(r: &CampaignReport) -> io::Result<String> {
         for it in items {
             let mut case = TestCase::new(case_name(it), status(it));
             case.set_classname(format!("campaign.{}", routine.replace(['/', '.'], "_")));
+            // An item as expected keeps its message (a conventions warning) as its output.
+            if let (true, Some(m)) = (it.as_expected && it.outcome != "skipped", &it.message) {
+                case.set_system_out(m.as_str());
+            }
             suite.add_test_case(case);
         }
         j.add_test_suite(suite);

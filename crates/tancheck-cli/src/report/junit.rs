@@ -171,6 +171,11 @@ fn check_suite(report: &Report) -> TestSuite {
     };
     let mut case = TestCase::new("verdict", status);
     case.set_classname(routine.as_str());
+    // The coverage and conventions warnings, which the test cases' statuses do not carry.
+    let warnings = report.warnings();
+    if !warnings.is_empty() {
+        case.set_system_out(warnings.iter().map(|w| format!("warning: {w}")).collect::<Vec<_>>().join("\n"));
+    }
     suite.add_test_case(case);
     // The regression cases replayed with the check, a test case each.
     if let Some(t) = &report.cases {

@@ -460,6 +460,15 @@ impl Report {
         counts.first().map_or_else(|| "unexplained".to_string(), |c| c.0.clone())
     }
 
+    /// The warnings of the report a reader must not miss, whatever the verdict: the coverage
+    /// warnings and a conventions warning among the notes (a declared order or shear measure
+    /// the elastic response contradicts). Reports that carry one line per run (a campaign's
+    /// item, a JUnit test case) give these.
+    pub fn warnings(&self) -> Vec<&str> {
+        let conventions = self.notes.iter().filter(|n| n.starts_with("conventions warning"));
+        conventions.chain(&self.coverage).map(String::as_str).collect()
+    }
+
     /// The first fault anywhere in the report.
     pub fn first_fault(&self) -> Option<&FaultRecord> {
         self.first_fault_at().map(|(_, f)| f)
