@@ -466,8 +466,28 @@ fn a_stress_jump_at_the_point_is_said() {
         r.increments.iter().find_map(|i| i.diagnosis.as_ref()).expect("the central check straddled the jump");
     assert!(d.reason.contains("jumps across this point in strain direction 11"), "{}", d.reason);
     assert!(r.coverage.iter().any(|c| c.contains("the stress jumps across the point")), "{:?}", r.coverage);
+    // The verdict line does not call the tangent the derivative of a stress that jumps (a
+    // Mohr-Coulomb update that jumped near its apex read so beside the warning; a user-style
+    // sweep).
+    let verdict = |r: &tancheck::core::Report| {
+        use tancheck::cli::report::Reporter;
+        let mut text = Vec::new();
+        tancheck::cli::report::terminal::Terminal::new(
+            tancheck::cli::report::terminal::Detail::Normal,
+            &mut text,
+        )
+        .check(r)
+        .unwrap();
+        String::from_utf8(text).unwrap().lines().find(|l| l.contains("verdict:")).unwrap_or("").to_string()
+    };
+    let v = verdict(&r);
+    assert!(
+        v.contains("PASS") && v.contains("the stress itself jumps") && !v.contains("is the derivative"),
+        "{v}"
+    );
     let mut m = Jumping(reference("elastic", PointKind::Solid3d).unwrap(), 0.0);
     let r = run_from_zero(&mut m, &[200000.0, 0.3], 20.0, &path, &Settings::default());
     assert_eq!(r.verdict, Verdict::Pass, "{}", summary(&r));
     assert!(r.coverage.iter().all(|c| !c.contains("jumps")), "{:?}", r.coverage);
+    assert!(verdict(&r).contains("is the derivative of the stress update at every increment"));
 }
