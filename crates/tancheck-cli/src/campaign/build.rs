@@ -8,7 +8,8 @@ use std::path::{Path as FsPath, PathBuf};
 
 use anyhow::{Context, Result};
 
-use super::file::{normalize, sources_hash, Campaign};
+use super::file::{normalize, Campaign};
+use super::stamp::sources_hash;
 
 /// A library of the campaign, where it is, and whether it could be built.
 #[derive(Clone, Debug)]

@@ -265,7 +265,7 @@ impl Campaign {
             // built from other code must not merge (editing an included file left the digest
             // as it was; a user-style sweep).
             let sources: Vec<PathBuf> = lib.sources.iter().map(|s| normalize(&dir.join(s))).collect();
-            digest.update(sources_hash(&sources)?.as_bytes());
+            digest.update(super::stamp::sources_hash(&sources)?.as_bytes());
         }
         let mut routines = Vec::new();
         for (k, e) in entries.into_iter().enumerate() {
@@ -425,29 +425,6 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
         }
     }
     items
-}
-
-/// SHA-256 over the sources and the headers and include files beside them.
-pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
-    let mut h = Sha256::new();
-    let mut extra: Vec<PathBuf> = Vec::new();
-    for s in sources {
-        h.update(s.display().to_string().as_bytes());
-        h.update(std::fs::read(s).with_context(|| format!("reading {}", s.display()))?);
-        if let Some(folder) = s.parent() {
-            for e in std::fs::read_dir(folder).into_iter().flatten().flatten() {
-                let p = e.path();
-                if p.extension().is_some_and(|x| x == "h" || x == "inc") && !extra.contains(&p) {
-                    extra.push(p);
-                }
-            }
-        }
-    }
-    extra.sort();
-    for p in &extra {
-        h.update(std::fs::read(p).unwrap_or_default());
-    }
-    Ok(h.finalize().iter().map(|b| format!("{b:02x}")).collect())
 }
 
 /// The finding `f` nearly names, when `f` itself names none of the point check's: written with

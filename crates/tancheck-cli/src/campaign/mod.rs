@@ -9,6 +9,7 @@ pub mod build;
 pub mod file;
 pub mod item;
 pub mod run;
+mod stamp;
 
 use std::path::PathBuf;
 
