@@ -344,3 +344,49 @@ fn the_look_at_the_time_increment_does_not_walk_the_path_again() {
     // The zero increment (one call) and three looks at the time (two calls each).
     assert!(with - without <= 8, "{with} calls with the first-call looks, {without} without");
 }
+
+/// The J2 reference model (engineering shear) declared with tensor shear: a wrong declaration.
+struct DeclaredTensor(tancheck::core::ModelRoutine<tancheck::models::AnyModel>, tancheck::core::RoutineInfo);
+
+impl Routine for DeclaredTensor {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.1
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)
+    }
+    fn complex(&mut self) -> Option<&mut dyn tancheck::core::ComplexRoutine> {
+        self.0.complex()
+    }
+}
+
+// A wrong shear declaration on a path without an elastic increment (the first increment goes
+// plastic, the doubled shear strain the sooner): the conventions warning is read from a zero
+// increment at the start (it came only from a path's first elastic increment, and never on
+// such a path; a user-style sweep). A path with an elastic increment warns as before, once.
+#[test]
+fn a_wrong_shear_declaration_is_warned_of_without_an_elastic_increment() {
+    let warned = |path: &Path| {
+        let model = reference("j2", PointKind::Solid3d).unwrap();
+        let mut info = model.info().clone();
+        info.convention =
+            tancheck::core::Convention::new(PointKind::Solid3d, tancheck::core::ShearMeasure::Tensor);
+        let mut r = DeclaredTensor(model, info.clone());
+        let mut caller = Caller::new(&mut r);
+        let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+        let rep = check::run(&mut caller, &props, PointState::zero(&info, 20.0), path, &Settings::default())
+            .unwrap();
+        (
+            rep.records[0].state_changed,
+            rep.notes.iter().filter(|n| n.starts_with("conventions warning")).count(),
+        )
+    };
+    let plastic_at_once = Path::ramp(Shape::TensionShear, 8e-3, 2, 0);
+    assert_eq!(warned(&plastic_at_once), (true, 1));
+    let with_elastic = Path::ramp(Shape::TensionShear, 8e-3, 40, 0);
+    assert_eq!(warned(&with_elastic), (false, 1));
+}

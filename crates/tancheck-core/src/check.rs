@@ -162,6 +162,14 @@ fn run_path(
             changed = walk.changed;
         }
     }
+    // No elastic increment on the path: the conventions are read from a zero increment at its
+    // start (see `first_calls::start_tangent`).
+    if let (false, Some(start), false) = (merged.conventions_seen, &origin, merged.increments.any_fault) {
+        let dtime = path.increments.first().map_or(1.0, |i| i.dtime);
+        if let Some(t) = first_calls::start_tangent(caller, &info, props, start, dtime, settings) {
+            merged.first_elastic(Some(&t), &conv);
+        }
+    }
     if let Some(g) = &gave_way {
         g.add_note(&mut merged.notes, merged.increments.any_fault);
     }

@@ -89,6 +89,40 @@ pub fn depends_on_time(
     Some(stress.iter().zip(&d.base.stress).any(|(a, b)| a.to_bits() != b.to_bits()))
 }
 
+/// The numerical tangent of a zero increment from `start` (the complex step where the routine
+/// has its twin, else central differences, at the settings' steps), when the call leaves the
+/// state variables as they are: the elastic response at the start, for the conventions
+/// warning of a path that has no elastic increment (a shear measure declared wrongly doubles
+/// the shear strain, so the first increment of such a path was already inelastic and the
+/// warning never came; a user-style sweep). `None` when a call fails or the state changes.
+/// n calls with the twin, 2n without.
+pub fn start_tangent(
+    caller: &mut Caller<'_>,
+    info: &RoutineInfo,
+    props: &[f64],
+    start: &PointState,
+    dtime: f64,
+    settings: &crate::settings::Settings,
+) -> Option<Vec<f64>> {
+    use crate::schemes::Scheme;
+    let n = info.convention.ncomp();
+    let mut d = Driver::new(info, props, start.clone()).ok()?;
+    d.set_increment(&vec![0.0; n], 0.0, dtime);
+    d.base_call(caller).ok()?;
+    if d.base.state.iter().zip(&start.state).any(|(a, b)| a != b) {
+        return None;
+    }
+    let scheme = if caller.has_complex() { Scheme::ComplexStep } else { Scheme::Central };
+    let h = settings.scheme(scheme).rel_step * d.strain_scale(settings.step_floor);
+    let mut t = vec![0.0; n * n];
+    for j in 0..n {
+        scheme
+            .column(&mut d, caller, crate::driver::Direction::Strain(j), h, &mut t[j * n..(j + 1) * n])
+            .ok()?;
+    }
+    t.iter().all(|x| x.is_finite()).then_some(t)
+}
+
 /// Set `inc` on the driver, its strain increment solved for where it holds stresses (as the
 /// check's walk does: a creep routine under a held load, the strains all solved for, passed
 /// unwarned when held increments were left out; a user-style sweep). `None` when the solve
