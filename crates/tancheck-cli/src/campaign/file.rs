@@ -394,10 +394,15 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
             let hash = fnv1a64(key.as_bytes());
             items.push(Item { position: items.len(), routine, key, hash, properties, path, task });
         };
+    // A manifest's cases replay once, however often it is listed (listed twice, with its
+    // property sets expected to pass and to fail, a campaign was refused once `bisect` had
+    // written its cases: two `cases` items had one key; a user-style sweep).
+    let mut seen: Vec<PathBuf> = Vec::new();
     for (k, r) in routines.iter().enumerate() {
         let folder = r.manifest.parent().unwrap_or(dir);
         let cases = crate::case_store::default_case_dir(&r.manifest, folder);
-        if cases.is_dir() {
+        if cases.is_dir() && !seen.contains(&cases) {
+            seen.push(cases.clone());
             push(k, None, None, Task::Cases(cases));
         }
     }

@@ -7,8 +7,6 @@ use std::path::PathBuf;
 use anyhow::{Context, Result};
 use sha2::{Digest, Sha256};
 
-use super::file::normalize;
-
 /// SHA-256 over the sources and the headers and include files beside them.
 pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
     let mut h = Sha256::new();
@@ -65,9 +63,11 @@ fn included(file: &std::path::Path) -> Vec<PathBuf> {
         let Some(rest) = rest.map(str::trim_start) else { continue };
         let Some(q) = rest.chars().next().filter(|c| *c == '"' || *c == '\'') else { continue };
         let Some(name) = rest[1..].split(q).next().filter(|n| !n.is_empty()) else { continue };
-        let p = normalize(&dir.join(name));
-        if p.is_file() {
-            out.push(p);
+        // Canonical, so that one file reached by two relative names is hashed once.
+        if let Ok(p) = std::fs::canonicalize(dir.join(name)) {
+            if p.is_file() {
+                out.push(p);
+            }
         }
     }
     out

@@ -1,0 +1,109 @@
+//! Campaign reports, continued (tests/campaign.rs holds the rest): a check's conventions
+//! warning in every report of a campaign, and a manifest listed twice.
+
+use std::path::Path;
+use std::process::{Command, Output};
+
+use serde_json::Value;
+use tancheck_testkit::libs::scratch;
+
+fn bin() -> Command {
+    Command::new(env!("CARGO_BIN_EXE_tancheck"))
+}
+
+fn text(o: &Output) -> String {
+    tancheck_testkit::libs::output_text(o)
+}
+
+fn items(v: &Value) -> &Vec<Value> {
+    v["items"].as_array().expect("items")
+}
+
+// A routine whose elastic response contradicts its declared shear measure (engineering shear
+// declared tensor): the check's conventions warning reaches the campaign's item, in the
+// terminal, the JSON, the HTML and the JUnit output of a passing item (a user-style sweep's
+// library, declared wrongly, passed every item without a word of it).
+#[test]
+fn a_conventions_warning_reaches_the_campaign_reports() {
+    let d = scratch("conventions");
+    let examples = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
+    std::fs::write(
+        d.join("declared.json"),
+        r#"{ "routine": { "library": "build/libconv.so", "symbol": "c_elastic", "kind": "solid-3d", "shear": "tensor", "states": 0, "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    let file = d.join("conv.json");
+    std::fs::write(
+        &file,
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "conv",
+  "libraries": [ {{ "output": "build/libconv.so", "sources": ["{}"] }} ],
+  "routines": [ {{ "manifest": "declared.json" }} ] }}
+"#,
+            examples.join("elastic.c").display()
+        ),
+    )
+    .unwrap();
+    let (json, xml, html) = (d.join("r.json"), d.join("r.xml"), d.join("r.html"));
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .arg("--json")
+        .arg(&json)
+        .arg("--junit")
+        .arg(&xml)
+        .arg("--html")
+        .arg(&html)
+        .output()
+        .unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(0), "{t}");
+    assert!(t.contains("conventions warning: the elastic response behaves as"), "{t}");
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let item = &items(&v)[0];
+    assert_eq!(item["outcome"], "pass", "{item}");
+    assert!(item["message"].as_str().unwrap().starts_with("conventions warning"), "{item}");
+    let xml = std::fs::read_to_string(&xml).unwrap();
+    assert!(xml.contains("<system-out>conventions warning"), "{xml}");
+    assert!(std::fs::read_to_string(&html).unwrap().contains("conventions warning"));
+    // The check's own JUnit output carries its warnings too (it had none of them).
+    let one = d.join("one.xml");
+    let o = bin().arg("check").arg(d.join("declared.json")).arg("--junit").arg(&one).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let xml = std::fs::read_to_string(&one).unwrap();
+    assert!(xml.contains("<system-out>warning: conventions warning"), "{xml}");
+}
+
+// A manifest listed twice (its property sets expected to pass and to fail) replays its
+// regression cases once: the campaign was refused once `bisect` had written them, two `cases`
+// items having one key (a user-style sweep).
+#[test]
+fn a_manifest_listed_twice_replays_its_cases_once() {
+    let d = scratch("twice");
+    std::fs::write(
+        d.join("b.json"),
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] } }"#,
+    )
+    .unwrap();
+    let o = bin().arg("bisect").arg(d.join("b.json")).arg("-q").output().unwrap();
+    assert!(d.join("tancheck-cases/b").is_dir(), "{}", text(&o));
+    let file = d.join("twice.json");
+    std::fs::write(
+        &file,
+        r#"{ "format": "tancheck-campaign", "version": 1, "name": "twice",
+  "routines": [
+    { "manifest": "b.json", "expect": "fail",
+      "property_sets": [ { "name": "hardening", "values": [210000, 0.3, 355, 1200, 150, 12, 2500] } ] },
+    { "manifest": "b.json",
+      "property_sets": [ { "name": "elastic", "values": [210000, 0.3, 1e9, 1200, 150, 12, 2500] } ] }
+  ] }
+"#,
+    )
+    .unwrap();
+    let o = bin().arg("campaign").arg(&file).args(["--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(0), "{}", text(&o));
+    let v: Value = serde_json::from_str(&String::from_utf8_lossy(&o.stdout)).unwrap();
+    let list = items(&v);
+    assert_eq!(list.iter().filter(|i| i["task"] == "cases").count(), 1, "{v}");
+    assert_eq!(list.len(), 3, "{v}");
+}
