@@ -165,7 +165,7 @@ fn a_write_past_the_end_of_the_state_is_named_with_its_index() {
     let text = f.to_string();
     assert!(
         text.starts_with(
-            "the routine wrote past the end of state: state[2], but state has 2 state variables"
+            "the routine wrote past the end of state: state[2] (state(3) counted from 1), but state has 2 state variables"
         ),
         "{text}"
     );
@@ -223,7 +223,7 @@ fn a_write_to_the_strain_is_reported_and_the_callers_strain_is_untouched() {
     let text = f.to_string();
     assert!(
         text.starts_with(
-            "the routine wrote to its read-only input strain: strain[0] changed (1 of 6 strain components)"
+            "the routine wrote to its read-only input strain: strain[0] (strain(1) counted from 1) changed (1 of 6 strain components)"
         ),
         "{text}"
     );

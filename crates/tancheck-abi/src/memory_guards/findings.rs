@@ -46,6 +46,10 @@ impl GuardFinding {
     /// What happened, without where it was first seen: "wrote past the end of state: ...".
     pub fn what(&self) -> String {
         let a = self.array.name();
+        // The entry as a Fortran author counts it too (C's state[19] is Fortran's state(20):
+        // "state[19], but state has 19 state variables" read as a contradiction; a user-style
+        // sweep of a Fortran library).
+        let from_one = |k: usize| format!(" ({a}({}) counted from 1)", k + 1);
         match self.kind {
             FindingKind::Overrun if self.array == GuardedArray::Report => format!(
                 "wrote past the end of report->message: byte {} of a {}-byte buffer (message \
@@ -53,9 +57,10 @@ impl GuardFinding {
                 self.first, self.len
             ),
             FindingKind::Overrun => format!(
-                "wrote past the end of {a}: {a}[{}], but {a} has {}{}; check the loop bounds and \
+                "wrote past the end of {a}: {a}[{}]{}, but {a} has {}{}; check the loop bounds and \
                  the sizes ncomp, nstate and nproperties of tc_call",
                 self.first,
+                from_one(self.first),
                 self.array.counted(self.len),
                 if self.entries > 1 {
                     format!(" ({} entries past the end changed)", self.entries)
@@ -67,9 +72,10 @@ impl GuardFinding {
                 "wrote to its read-only call description (tc_call); it must only read it".into()
             }
             FindingKind::InputWritten => format!(
-                "wrote to its read-only input {a}: {a}[{}] changed ({} of {}); inputs are const, \
+                "wrote to its read-only input {a}: {a}[{}]{} changed ({} of {}); inputs are const, \
                  copy them before changing them",
                 self.first,
+                from_one(self.first),
                 self.entries,
                 self.array.counted(self.len)
             ),
@@ -81,7 +87,7 @@ impl GuardFinding {
                         self.first / self.ncomp + 1
                     )
                 } else {
-                    String::new()
+                    from_one(self.first)
                 };
                 // A twin's entry counts as unwritten when either part is.
                 let parts = if self.complex { " (both its real and imaginary parts)" } else { "" };
