@@ -172,6 +172,66 @@ fn the_zero_increment_probe_names_the_first_increment_with_the_fault() {
     assert!(p.summary.contains("first at increment 2"), "{}", p.summary);
 }
 
+/// Elasticity with a constant stress added (as a total-form thermal law holds at a start
+/// temperature away from its reference): its stress at zero strain is not zero.
+struct Offset(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl Routine for Offset {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        // Total form: the stress of the strain reached, whatever the start stress given.
+        let total: Vec<f64> = input.strain.iter().zip(input.dstrain).map(|(a, b)| a + b).collect();
+        let zero = vec![0.0; total.len()];
+        let from_zero =
+            tancheck::core::CallInput { strain: &zero, dstrain: &total, stress0: &zero, ..*input };
+        self.0.call(&from_zero, output)?;
+        for s in output.stress.iter_mut().take(3) {
+            *s -= 250.0;
+        }
+        Ok(())
+    }
+}
+
+// Such a law started from a zero start stress fails the zero-increment probe at the first
+// increment, and the probe says that the start, not the law, may be what is wrong (a thermal
+// routine started at 100 °C with the default zero stress read as a defect; a user-style sweep).
+// Started from its own stress there, it passes.
+#[test]
+fn a_start_stress_the_routine_does_not_give_is_named_as_such() {
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::{Path, Shape};
+    let probe = |start_stress: f64| {
+        let mut r = Offset(reference("elastic", PointKind::Solid3d).unwrap());
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let mut start = PointState::zero(&info, 20.0);
+        for s in start.stress.iter_mut().take(3) {
+            *s = start_stress;
+        }
+        let rep = run_suite(
+            &mut caller,
+            "zero",
+            &[ProbeSpec::named("zero-increment")],
+            &[200000.0, 0.3],
+            &start,
+            &Path::ramp(Shape::UniaxialStrain, 1e-3, 3, 0),
+            &Settings::default(),
+        )
+        .unwrap();
+        rep.results[0].clone()
+    };
+    let p = probe(0.0);
+    assert_eq!((p.status, p.increment), (ProbeStatus::Fail, Some(1)), "{p:#?}");
+    assert!(p.details.iter().any(|d| d.starts_with("the start stress is zero")), "{p:#?}");
+    assert_eq!(probe(-250.0).status, ProbeStatus::Pass);
+}
+
 /// A correct but stiff cohesive law (penalty 1e8 N/mm³: onset separations below 1e-6 mm) with
 /// separations of order 1e-7 mm: the energy probe's closed elastic cycle stays elastic and
 /// the probe passes.

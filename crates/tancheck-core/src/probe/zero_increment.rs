@@ -79,6 +79,22 @@ impl Probe for ZeroIncrement {
                 ),
             },
         );
+        // At the path's first increment from a start stress of zero: the routine's own stress
+        // at the start is not the one given (a total-form law at a start temperature away from
+        // its reference holds a thermal stress there), and every probe that starts there sees
+        // the mismatch (the energy probe's closed cycle too); the start, not the law, may be
+        // what is wrong (a user-style sweep read it as a defect of the law).
+        if let Some((1, true, ..)) = first {
+            if env.start.stress.iter().all(|&x| x == 0.0) {
+                r.details.push(
+                    "the start stress is zero, and a zero increment from the start gives another stress: a \
+                     total-form law gives the stress of its state there (a thermal stress at a start \
+                     temperature other than its reference); give the start stress it gives (`start.stress`), \
+                     or start where it is zero"
+                        .into(),
+                );
+            }
+        }
         r.value = Some(worst.0);
         r.tol = Some(tol);
         r.increment = first.map(|f| f.0);
