@@ -107,3 +107,41 @@ fn a_manifest_listed_twice_replays_its_cases_once() {
     assert_eq!(list.iter().filter(|i| i["task"] == "cases").count(), 1, "{v}");
     assert_eq!(list.len(), 3, "{v}");
 }
+
+// An item without an expectation that fails says in the terminal that a pass was expected (the
+// page said so, the terminal did not); an expected failure keeps its finding in its JUnit
+// output; a probe item's page row counts probes, not increments (user-style sweep).
+#[test]
+fn the_reports_say_what_was_expected_and_what_a_probe_item_counts() {
+    let d = scratch("expected");
+    std::fs::write(
+        d.join("c.json"),
+        r#"{ "routine": { "model": "j2-continuum", "kind": "solid-3d", "properties": [210000, 0.3, 355, 1200, 150, 12, 2500] },
+  "path": { "shape": "tension-shear", "peak": 0.004, "steps": 8, "back": 4 } }"#,
+    )
+    .unwrap();
+    std::fs::write(d.join("suite.json"), r#"{ "suite": "one", "probes": [ { "probe": "symmetry" } ] }"#)
+        .unwrap();
+    let file = d.join("e.json");
+    let campaign = |expect: &str| {
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "e",
+  "routines": [ {{ "manifest": "c.json"{expect}, "probes": ["suite.json"] }} ] }}
+"#
+        )
+    };
+    std::fs::write(&file, campaign("")).unwrap();
+    let o = bin().arg("campaign").arg(&file).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(1), "{t}");
+    let line = t.lines().find(|l| l.contains("continuum-tangent")).unwrap_or("");
+    assert!(line.contains("expected pass: NOT AS EXPECTED"), "{t}");
+    std::fs::write(&file, campaign(r#", "expect": "fail", "expect_finding": "continuum-tangent""#)).unwrap();
+    let (xml, html) = (d.join("e.xml"), d.join("e.html"));
+    let o =
+        bin().arg("campaign").arg(&file).arg("--junit").arg(&xml).arg("--html").arg(&html).output().unwrap();
+    let xml = std::fs::read_to_string(&xml).unwrap();
+    assert!(xml.contains("<system-out>finding continuum-tangent: fail as expected"), "{}\n{xml}", text(&o));
+    let html = std::fs::read_to_string(&html).unwrap();
+    assert!(html.contains(" probes</td>"), "{html}");
+}

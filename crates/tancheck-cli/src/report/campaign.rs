@@ -249,6 +249,9 @@ pub fn item_line(it: &ItemResult) -> String {
             "; expected {exp}: {}",
             if it.as_expected { "as expected" } else { "NOT AS EXPECTED" }
         ));
+    } else if !it.as_expected {
+        // Nothing said is a pass expected (the page said so; the terminal did not).
+        s.push_str("; expected pass: NOT AS EXPECTED");
     }
     if let Some(m) = &it.message {
         s.push_str(&format!("\n          {m}"));

@@ -50,9 +50,17 @@ pub fn campaign_junit(r: &CampaignReport) -> io::Result<String> {
         for it in items {
             let mut case = TestCase::new(case_name(it), status(it));
             case.set_classname(format!("campaign.{}", routine.replace(['/', '.'], "_")));
-            // An item as expected keeps its message (a conventions warning) as its output.
-            if let (true, Some(m)) = (it.as_expected && it.outcome != "skipped", &it.message) {
-                case.set_system_out(m.as_str());
+            // An item as expected keeps its finding when it failed (an expected failure said
+            // nothing of what it found) and its message (a conventions warning) as its output.
+            if it.as_expected && it.outcome != "skipped" {
+                let mut out = Vec::new();
+                if it.outcome != "pass" {
+                    out.push(format!("finding {}: {} as expected", it.finding, it.outcome));
+                }
+                out.extend(it.message.clone());
+                if !out.is_empty() {
+                    case.set_system_out(out.join("\n"));
+                }
             }
             suite.add_test_case(case);
         }
@@ -104,7 +112,8 @@ pub fn campaign_page(r: &CampaignReport) -> String {
                 esc(&it.finding),
                 it.first_failing_increment.map_or(String::from("–"), |k| k.to_string()),
                 it.failed,
-                it.increments,
+                // A probe item counts probes, not increments.
+                if it.task.starts_with("probe") { format!("{} probes", it.increments) } else { it.increments.to_string() },
                 esc(&expected),
                 if it.as_expected { "" } else { " (not as expected)" },
                 esc(it.message.as_deref().unwrap_or("")),
