@@ -258,3 +258,49 @@ fn a_solve_that_ends_on_another_branch_is_not_judged() {
     let result = NewtonRate.run(&mut caller, &env).unwrap();
     assert!(result.summary.contains("not judged"), "{}", result.summary);
 }
+
+/// Elasticity returning a tangent with its 11 entry alone: singular in the components the
+/// probe solves for, only because it is wrong (the derivative, the elastic stiffness, is not).
+struct OnlyEleven(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl tancheck::core::Routine for OnlyEleven {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        for t in output.tangent.iter_mut().skip(1) {
+            *t = 0.0;
+        }
+        Ok(())
+    }
+    fn complex(&mut self) -> Option<&mut dyn tancheck::core::ComplexRoutine> {
+        self.0.complex()
+    }
+}
+
+// A solve that does not converge where the routine's tangent is singular is excused as a
+// corner's only where the derivative (the complex step's) is singular there too: a tangent
+// singular because it is wrong is judged, and fails (a Mohr-Coulomb tangent without its
+// rotation term passed so; a user-style sweep).
+#[test]
+fn a_tangent_singular_only_because_it_is_wrong_is_not_excused() {
+    use tancheck::core::Routine;
+    let mut r = OnlyEleven(reference("elastic", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("newton");
+    let path = tancheck::core::path::Path::ramp(tancheck::core::path::Shape::TensionShear, 2e-3, 4, 0);
+    let env =
+        ProbeEnv { props: &[200000.0, 0.3], start: &start, path: &path, settings: &settings, spec: &spec };
+    let solves = newton::study(&mut caller, &env).unwrap();
+    assert!(solves.iter().all(|s| !s.singular), "{solves:?}");
+    let result = NewtonRate.run(&mut caller, &env).unwrap();
+    assert_eq!(result.status, ProbeStatus::Fail, "{}", result.summary);
+}

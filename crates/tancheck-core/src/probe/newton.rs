@@ -157,7 +157,8 @@ pub fn study(
         let cmax = d.base.tangent.iter().fold(0.0f64, |a, x| a.max(x.abs()));
         let emax = (0..n).fold(0.0f64, |a, i| a.max((d.start().strain[i] + d.dstrain()[i]).abs()));
         let scale = sig.max(cmax * emax);
-        let singular = singular_block(&d.base.tangent, n, &controlled);
+        let singular =
+            singular_block(&d.base.tangent, n, &controlled) && derivative_singular(d, c, &controlled, env);
         let mut t = d.clone();
         let mut de = d.dstrain().to_vec();
         // From zero, unless zero is the reference increment itself (a path that moves only
@@ -293,6 +294,36 @@ fn singular_block(tangent: &[f64], n: usize, idx: &[usize]) -> bool {
         }
     }
     false
+}
+
+/// Whether the derivative is singular in the components solved for too, where the routine's
+/// tangent is: the complex step's columns (exact, and on the branch the routine takes at the
+/// point, as its tangent should be). A routine whose tangent is singular only because it is
+/// wrong (a Mohr-Coulomb tangent without the rotation of the principal directions, on its
+/// main plane) had its unconverged solve excused as a corner's (a user-style sweep). Without
+/// the twin, or where a call fails, the routine's word stands. n − 1 complex calls, only where
+/// the routine's block is singular.
+fn derivative_singular(
+    d: &Driver,
+    caller: &mut Caller<'_>,
+    controlled: &[usize],
+    env: &ProbeEnv<'_>,
+) -> bool {
+    use crate::schemes::Scheme;
+    if !caller.has_complex() {
+        return true;
+    }
+    let n = d.ncomp();
+    let mut dd = d.clone();
+    let h = env.settings.complex_step.rel_step * dd.strain_scale(env.settings.step_floor);
+    let mut t = vec![0.0; n * n];
+    for &j in controlled {
+        let col = &mut t[j * n..(j + 1) * n];
+        if Scheme::ComplexStep.column(&mut dd, caller, crate::driver::Direction::Strain(j), h, col).is_err() {
+            return true;
+        }
+    }
+    singular_block(&t, n, controlled)
 }
 
 /// A residual below this times the scale is rounding itself: it can come out smaller than the
@@ -509,88 +540,4 @@ impl Probe for NewtonRate {
 }
 
 #[cfg(test)]
-mod tests {
-    use super::*;
-
-    fn solve(residuals: &[f64], floor: f64) -> IncrementSolve {
-        let usable: Vec<f64> = residuals.iter().cloned().filter(|&r| r > floor).collect();
-        let orders =
-            SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
-        IncrementSolve {
-            increment: 1,
-            state_changed: true,
-            log: SolveLog { residuals: residuals.to_vec(), converged: true, numerical_fallback: false },
-            failure: None,
-            refused: false,
-            singular: false,
-            usable,
-            orders,
-            tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
-            diverged_from_start: None,
-            elsewhere: None,
-        }
-    }
-
-    // An exact tangent settling late (a softening damage law, measured by a user-style
-    // sweep): the last usable order is 1.33, the step below the floor shows 2.39; the
-    // increment's order is the higher (orders by the formula of the module documentation).
-    // A rank-one block (the tangent at the apex of a pressure-dependent surface, K 1⊗1) is
-    // singular, the isotropic stiffness's is not.
-    #[test]
-    fn a_rank_one_block_is_singular() {
-        let n = 6;
-        let mut t = vec![0.0; 36];
-        for j in 0..3 {
-            for i in 0..3 {
-                t[i + j * n] = 1.5e5;
-            }
-        }
-        let idx: Vec<usize> = (1..6).collect();
-        assert!(singular_block(&t, n, &idx));
-        let (l, m) = (1.15e5, 7.7e4);
-        let mut c = vec![0.0; 36];
-        for j in 0..3 {
-            for i in 0..3 {
-                c[i + j * n] = l + if i == j { 2.0 * m } else { 0.0 };
-            }
-        }
-        for i in 3..6 {
-            c[i + i * n] = m;
-        }
-        assert!(!singular_block(&c, n, &idx));
-    }
-
-    #[test]
-    fn a_late_quadratic_step_below_the_floor_counts() {
-        let s = solve(&[9.73e-1, 9.68e-2, 4.18e-2, 2.61e-4, 3.05e-7, 2.99e-14], 1e-10);
-        assert!((s.orders.last().unwrap() - 1.33).abs() < 0.01, "{:?}", s.orders);
-        assert!((s.order().unwrap() - 2.39).abs() < 0.01, "{:?}", s.order());
-        // Linear convergence (rate 0.1, a continuum tangent) stays at order 1 below the floor.
-        let lin: Vec<f64> = (0..14).map(|k| 10f64.powi(-k)).collect();
-        let s = solve(&lin, 1e-10);
-        assert!((s.order().unwrap() - 1.0).abs() < 1e-6, "{:?}", s.order());
-        // Two usable residuals give no order, whatever the step below the floor shows.
-        let s = solve(&[1.0, 1e-3, 1e-15], 1e-10);
-        assert_eq!(s.order(), None);
-        // A linear solve whose residual below the floor came out at rounding by luck: no
-        // tail order from it (it would read 3).
-        let s = solve(&[1e-9, 1e-10, 1e-11, 1e-16], 1e-12);
-        assert_eq!(s.orders.len(), 1);
-        assert_eq!(s.tail_order, None);
-    }
-
-    // A single order made with the start residual: a creep routine's exact tangent
-    // (residuals of a user-style sweep) reads 1.39, pre-asymptotic, and is not judged; a
-    // constant contraction reads 1.0 from the same three and is; a second order is judged.
-    #[test]
-    fn a_single_order_from_the_start_is_judged_only_when_linear() {
-        let s = solve(&[2.37e1, 1.78e-3, 3.22e-9, 6.37e-14], 1e-10);
-        assert!((s.order().unwrap() - 1.39).abs() < 0.01, "{:?}", s.order());
-        assert_eq!(s.judged_order(), None);
-        let s = solve(&[2.37e1, 1.78e-3, 1.34e-7, 1.0e-11], 1e-10);
-        assert!(s.judged_order().is_some_and(|p| p < FROM_START_LINEAR), "{:?}", s.judged_order());
-        let s = solve(&[2.37e1, 1.78e-3, 3.22e-9, 1.0e-11, 1e-16], 1e-13);
-        assert_eq!(s.orders.len(), 2);
-        assert!(s.judged_order().is_some());
-    }
-}
+mod tests;
