@@ -115,11 +115,7 @@ pub fn start_tangent(
     let scheme = if caller.has_complex() { Scheme::ComplexStep } else { Scheme::Central };
     let h = settings.scheme(scheme).rel_step * d.strain_scale(settings.step_floor);
     let mut t = vec![0.0; n * n];
-    for j in 0..n {
-        scheme
-            .column(&mut d, caller, crate::driver::Direction::Strain(j), h, &mut t[j * n..(j + 1) * n])
-            .ok()?;
-    }
+    crate::diagnose::tangent(&mut d, caller, scheme, h, &mut t).ok()?;
     t.iter().all(|x| x.is_finite()).then_some(t)
 }
 

@@ -111,7 +111,8 @@ pub struct Context<'a> {
     pub non_finite_quotient: Option<String>,
 }
 
-fn tangent(
+/// Every strain column of `scheme` at step `h` into `out` (column-major, n × n).
+pub(crate) fn tangent(
     driver: &mut Driver,
     caller: &mut Caller<'_>,
     scheme: Scheme,
