@@ -354,6 +354,21 @@ fn decide_tangent(o: &Observed) -> Decision {
                 "the point sits on a kink; every column of the returned tangent equals one of its one-sided derivatives: {}",
                 k.sides
             );
+        } else if let Some(c) = k.corner.as_ref().filter(|_| complex_pass != Some(false)) {
+            // A corner's branch found along another direction (see `corner`); the twin, which
+            // follows the routine's own branch at the point, must not disagree: a plastic
+            // tangent returned a hair inside the elastic range is the derivative of the branch
+            // that starts a hair away, not at the point.
+            d.pass = true;
+            d.reason = format!(
+                "the point sits on a corner where branches of the update meet; the one-sided derivatives along single \
+                 strain components show other branches (sides per column: {}), and the returned tangent is the \
+                 derivative of the branch entered along {} (a central difference a short way into it agrees \
+                 within {:.2e}), which serves Newton's method as well as any other branch's there",
+                k.sides,
+                c.along,
+                c.error
+            );
         } else if let Some(s) = one_sided_clears(o, complex_pass) {
             d.pass = true;
             d.reason = format!(

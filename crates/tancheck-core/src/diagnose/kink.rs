@@ -166,6 +166,10 @@ pub struct Kink {
     /// The one-sided derivatives at the smallest step (routine form, column-major).
     pub forward: Vec<f64>,
     pub backward: Vec<f64>,
+    /// Where a column matched neither side: the branch at the point whose derivative the
+    /// returned tangent was found to be, along another direction (the corner search's finding).
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub corner: Option<Corner>,
 }
 
 impl Kink {
@@ -195,6 +199,20 @@ impl Kink {
         }
         out
     }
+}
+
+/// The branch the search found the returned tangent to be the derivative of.
+#[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
+pub struct Corner {
+    /// The strain direction the branch was entered along (routine order, unit length).
+    pub direction: Vec<f64>,
+    /// The same in words, e.g. "0.71·11 + 0.71·22".
+    pub along: String,
+    /// The returned tangent against the branch's derivative there (the check's error measure).
+    pub error: f64,
+    /// Directions tried, and how many of them got a whole tangent.
+    pub tried: usize,
+    pub confirmed: usize,
 }
 
 /// What both kink probes judge with: the convention, the returned tangent (or ∂σ/∂T), the
@@ -286,6 +304,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
         columns,
         forward: f.clone(),
         backward: b.clone(),
+        corner: None,
     }
 }
 

@@ -20,6 +20,7 @@ use crate::schemes::Scheme;
 use crate::settings::Settings;
 
 pub mod causes;
+pub mod corner;
 pub mod decide;
 pub mod kink;
 pub mod settle;
@@ -146,7 +147,12 @@ pub fn run(
         tol: settings.forward.tol,
         entry_floor: ef,
     };
-    let kink = kink::probe(driver, caller, &query(ctx.returned, scale))?;
+    let mut kink = kink::probe(driver, caller, &query(ctx.returned, scale))?;
+    // A column on neither side of its kink: the point may be a corner, whose branch the
+    // returned tangent belongs to lies along another direction.
+    if kink.detected && kink.columns.iter().any(|c| c.matches == Side::Neither) {
+        kink.corner = corner::search(driver, caller, &query(ctx.returned, scale));
+    }
     let mut studies = Vec::new();
     for scheme in [Scheme::Central, Scheme::Forward] {
         let tol = settings.scheme(scheme).tol;

@@ -40,7 +40,60 @@ pub(super) fn rows() -> Vec<Row> {
         row("a kink in one column, the tangent wrong in another without a kink", wrong_elsewhere, 7.25),
     ];
     rows.extend(double_kink_rows());
+    rows.extend(corner_rows());
     rows
+}
+
+/// The apex of an interface with two faces (tests/corner_region.rs, numbers measured there):
+/// the opening column loads forward at the apex, the slip column's sides leave it along one
+/// face or the other and match neither the apex's tangent (errors 0.45 and 0.45 against the
+/// sides). The corner search found the apex branch along 0.67·n − 0.74·s1, its central tangent
+/// within 2.1e-6. With it the increment passes; the same columns without it fail, and so do
+/// they where the twin, on the routine's own branch at the point, disagrees.
+fn corner_rows() -> Vec<Row> {
+    let cols = vec![column(Side::Forward, true, 1e-9, 0.9), column(Side::Neither, true, 0.45, 0.45)];
+    let observed = |corner: Option<crate::diagnose::kink::Corner>| {
+        let mut k = kink(cols.clone(), Side::Neither);
+        k.corner = corner;
+        Observed { kink: Some(k), studies: plateau(0.45), ..base() }
+    };
+    let found = crate::diagnose::kink::Corner {
+        direction: vec![0.67, -0.74],
+        along: "0.67·n − 0.74·s1".into(),
+        error: 2.1e-6,
+        tried: 41,
+        confirmed: 1,
+    };
+    vec![
+        Row {
+            what: "an apex: a column on neither side, the returned tangent a branch's found along another direction",
+            observed: observed(Some(found.clone())),
+            pass: true,
+            finding: "none",
+            twin_unsafe: false,
+            needs_causes: false,
+        },
+        Row {
+            what: "a branch's derivative found along another direction, but the complex step disagreeing",
+            observed: Observed {
+                complex: Some((0.3, 1e-10)),
+                twin: Some(TwinEvidence { real_part_gap: 0.0, derivative_gap: None }),
+                ..observed(Some(found.clone()))
+            },
+            pass: false,
+            finding: "kink-neither-side",
+            twin_unsafe: false,
+            needs_causes: false,
+        },
+        Row {
+            what: "the same columns where no branch's derivative was found",
+            observed: observed(None),
+            pass: false,
+            finding: "kink-neither-side",
+            twin_unsafe: false,
+            needs_causes: false,
+        },
+    ]
 }
 
 /// Two branch boundaries closer together than the kink probe's smallest step (6e-11 of strain

@@ -68,6 +68,7 @@ fn kink(cols: Vec<KinkColumn>, whole: Side) -> Kink {
         nearby: false,
         forward: vec![],
         backward: vec![],
+        corner: None,
     }
 }
 
