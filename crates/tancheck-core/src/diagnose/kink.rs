@@ -99,6 +99,14 @@ pub(super) fn nearby(gaps: &[f64], detected: bool) -> bool {
     !detected && gaps.len() >= 2 && gaps[0] > GAP_LEVEL && gaps[gaps.len() - 1] <= GAP_LEVEL
 }
 
+/// No kink at the point, but a boundary closer than the smallest step: the gap is above
+/// [`GAP_LEVEL`] at every step, which a kink's is too, but falls to less than 0.3 of the first
+/// (see [`kinked`]), as a quotient across a boundary at a distance δ below the steps does
+/// (its share of the other branch falls as δ/h).
+pub(super) fn close(gaps: &[f64], detected: bool) -> bool {
+    !detected && gaps.len() >= 2 && gaps.iter().all(|&g| g > GAP_LEVEL) && gaps[gaps.len() - 1] < gaps[0]
+}
+
 /// What the kink probe found in one column (strain direction).
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct KinkColumn {
@@ -120,6 +128,12 @@ pub struct KinkColumn {
     /// itself (rounding's is far below it); see [`jump`].
     #[serde(default)]
     pub jump: bool,
+    /// The side whose one-sided quotients are the same at every step of [`STEPS`] (within the
+    /// probe's tolerance) while the other side's are not: the point lies inside that side's
+    /// branch, and a boundary lies on the other side, closer than the steps reach. `None`
+    /// where both or neither are steady.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub steady: Option<Side>,
 }
 
 /// At a kink, a column on one side of it is at most this share of the gap between the sides
@@ -149,6 +163,10 @@ pub struct Kink {
     /// differ at that step and agree at the smallest (a branch boundary close to the point).
     #[serde(default)]
     pub nearby: bool,
+    /// No kink at the point, but a boundary closer to it than the smallest probe step: the gap
+    /// stays above [`GAP_LEVEL`] at every step yet falls as the step shrinks (see [`close`]).
+    #[serde(default)]
+    pub close: bool,
     /// Error of the returned tangent against the forward and the backward derivative at the
     /// smallest step (the whole matrix).
     pub forward_error: f64,
@@ -263,7 +281,21 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
             let scale = norm(&returned[cols.clone()])
                 .max(norm(&f[cols.clone()]).min(norm(&b[cols])))
                 .max(entry_floor * norm(returned));
+            let steady_on = |side: usize| {
+                let q = |k: usize| {
+                    let pair = &pairs[k];
+                    &(if side == 0 { &pair.0 } else { &pair.1 })[j * n..(j + 1) * n]
+                };
+                let last = q(pairs.len() - 1);
+                (0..pairs.len()).all(|k| dist(q(k), last) <= tol * scale)
+            };
+            let steady = match (steady_on(0), steady_on(1)) {
+                (true, false) => Some(Side::Forward),
+                (false, true) => Some(Side::Backward),
+                _ => None,
+            };
             KinkColumn {
+                steady,
                 jump: jump(&col_abs[j], scale),
                 gaps: col_gaps[j].clone(),
                 detected,
@@ -276,6 +308,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
         .collect();
     let detected = kinked(&gaps) && !rounding(&abs_gaps) || columns.iter().any(|c| c.detected);
     let nearby = nearby(&gaps, detected);
+    let close = close(&gaps, detected);
     let whole = |c: &crate::compare::Comparison| c.error();
     let (fe, be) = (whole(&cf), whole(&cb));
     let returned_matches = if fe <= tol && fe <= be {
@@ -298,6 +331,7 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
         sides,
         detected,
         nearby,
+        close,
         forward_error: fe,
         backward_error: be,
         returned_matches,

@@ -41,7 +41,47 @@ pub(super) fn rows() -> Vec<Row> {
     ];
     rows.extend(double_kink_rows());
     rows.extend(corner_rows());
+    rows.extend(close_rows());
     rows
+}
+
+/// A plastic bar (E = 1000, σy = 1, H = 50) unloaded by 1e-10 after a strain of 2.5e-3, without
+/// a twin (tests/kink_verdicts.rs; numbers measured there): the forward quotients cross the
+/// boundary 4e-8 of the scale away (gaps 18.4, 10.7, 1.33 at the probe's steps), the backward
+/// ones are 1000 at every step, the returned 1000 equals them. It passes; a returned plastic
+/// 47.6 (matching neither side) and a backward side that is not steady fail.
+fn close_rows() -> Vec<Row> {
+    let observed = |matches: Side, steady: Option<Side>| {
+        let mut c = column(matches, false, 1.33, 7e-10);
+        c.gaps = vec![18.4, 10.7, 1.33];
+        c.steady = steady;
+        let mut k = kink(vec![c], matches);
+        (k.detected, k.close, k.gaps) = (false, true, vec![18.4, 10.7, 1.33]);
+        Observed { kink: Some(k), studies: plateau(0.898), ..base() }
+    };
+    let row = |what, observed, pass, finding| Row {
+        what,
+        observed,
+        pass,
+        finding,
+        twin_unsafe: false,
+        needs_causes: !pass,
+    };
+    vec![
+        row(
+            "a boundary closer than the probe's steps, the returned column the steady side's",
+            observed(Side::Backward, Some(Side::Backward)),
+            true,
+            "none",
+        ),
+        row(
+            "the same, the returned column on neither side",
+            observed(Side::Neither, Some(Side::Backward)),
+            false,
+            "unexplained",
+        ),
+        row("the same, neither side steady", observed(Side::Backward, None), false, "unexplained"),
+    ]
 }
 
 /// The apex of an interface with two faces (tests/corner_region.rs, numbers measured there):

@@ -45,6 +45,7 @@ fn column(matches: Side, detected: bool, fe: f64, be: f64) -> KinkColumn {
         matches,
         on_a_side: matches != Side::Neither,
         jump: false,
+        steady: None,
     }
 }
 
@@ -66,6 +67,7 @@ fn kink(cols: Vec<KinkColumn>, whole: Side) -> Kink {
         columns: cols,
         sides,
         nearby: false,
+        close: false,
         forward: vec![],
         backward: vec![],
         corner: None,
