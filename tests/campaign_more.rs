@@ -1,5 +1,5 @@
 //! Campaign reports, continued (tests/campaign.rs holds the rest): a check's conventions
-//! warning in every report of a campaign, and a manifest listed twice.
+//! warning in every report of a campaign, a manifest listed twice, and a stopped campaign.
 
 use std::path::Path;
 use std::process::{Command, Output};
@@ -144,4 +144,116 @@ fn the_reports_say_what_was_expected_and_what_a_probe_item_counts() {
     assert!(xml.contains("<system-out>finding continuum-tangent: fail as expected"), "{}\n{xml}", text(&o));
     let html = std::fs::read_to_string(&html).unwrap();
     assert!(html.contains(" probes</td>"), "{html}");
+}
+
+// A stop signal (Ctrl-C's SIGINT, or SIGTERM) in a campaign: the item in progress finishes, no
+// new one starts, and every report holds the items checked so far, the rest listed as not run
+// (exit 128 + the signal). A
+// stopped campaign kept nothing of what it had checked (a user-style sweep). The routine is a
+// bar that sleeps 2 ms a call and touches a file at its first call, so the signal comes while
+// the first item runs.
+#[test]
+fn a_stopped_campaign_keeps_the_items_it_checked() {
+    let d = scratch("stopped");
+    std::fs::write(
+        d.join("slow.c"),
+        r#"#define _POSIX_C_SOURCE 199309L
+#include <stdio.h>
+#include <stdlib.h>
+#include <time.h>
+#include "tancheck_cstep.h"
+#include "tancheck_routine.h"
+
+TC_ROUTINE(c_slow_bar)
+{
+    (void)temperature;
+    (void)stress0;
+    (void)state0;
+    (void)state;
+    (void)energy;
+    const char *mark = getenv("TANCHECK_TEST_MARK");
+    if (mark != NULL) {
+        FILE *f = fopen(mark, "a");
+        if (f != NULL) fclose(f);
+    }
+    struct timespec pause = {0, 2000000};
+    nanosleep(&pause, NULL);
+    stress[0] = properties[0] * (strain[0] + dstrain[0]);
+    tangent[0] = properties[0];
+    dstress_dtemp[0] = 0.0;
+    report->status = TC_STATUS_OK;
+    report->branch = 0;
+    (void)call;
+}
+"#,
+    )
+    .unwrap();
+    let mut routines = Vec::new();
+    for (k, e) in [1000, 2000, 3000, 4000].iter().enumerate() {
+        std::fs::write(
+            d.join(format!("slow{k}.json")),
+            format!(
+                r#"{{ "routine": {{ "library": "build/libslow.so", "symbol": "c_slow_bar", "kind": "uniaxial", "states": 0, "properties": [{e}] }},
+  "path": {{ "increments": [ {} ] }} }}"#,
+                vec![r#"{"dstrain": [1e-4, 0, 0, 0, 0, 0]}"#; 40].join(", ")
+            ),
+        )
+        .unwrap();
+        routines.push(format!(r#"{{ "manifest": "slow{k}.json" }}"#));
+    }
+    let file = d.join("slow_campaign.json");
+    std::fs::write(
+        &file,
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "slow",
+  "libraries": [ {{ "output": "build/libslow.so", "sources": ["slow.c"] }} ],
+  "routines": [ {} ] }}
+"#,
+            routines.join(", ")
+        ),
+    )
+    .unwrap();
+    // The library is built before any item runs; the file marks the first call.
+    let (mark, json, xml) = (d.join("mark"), d.join("r.json"), d.join("r.xml"));
+    let child = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--jobs", "1"])
+        .arg("--json")
+        .arg(&json)
+        .arg("--junit")
+        .arg(&xml)
+        .env("TANCHECK_TEST_MARK", &mark)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    let start = std::time::Instant::now();
+    while !mark.exists() {
+        assert!(start.elapsed().as_secs() < 120, "the routine was never called");
+        std::thread::sleep(std::time::Duration::from_millis(5));
+    }
+    // SIGTERM, handled as Ctrl-C's SIGINT is: a test run in the background of a shell has
+    // SIGINT ignored, and its children with it. SAFETY: a signal to the child this test started.
+    assert_eq!(unsafe { libc::kill(child.id() as i32, libc::SIGTERM) }, 0);
+    let o = child.wait_with_output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(143), "{t}");
+    assert!(t.contains("SIGTERM: the items in progress finish"), "{t}");
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let its = items(&v);
+    assert_eq!(its.len(), 4, "{v}");
+    assert_eq!(its[0]["outcome"], "pass", "{v}");
+    let not_run: Vec<&Value> = its.iter().filter(|i| i["outcome"] == "not-run").collect();
+    assert!(!not_run.is_empty() && its[3]["outcome"] == "not-run", "{v}");
+    for i in &not_run {
+        assert!(i["message"].as_str().unwrap().contains("stopped by SIGTERM"), "{i}");
+    }
+    assert!(
+        v["notes"].as_array().unwrap().iter().any(|n| n.as_str().unwrap().starts_with("stopped by SIGTERM")),
+        "{v}"
+    );
+    assert_eq!(v["exit_code"], 143, "{v}");
+    let x = std::fs::read_to_string(&xml).unwrap();
+    assert!(x.contains("<skipped") && x.contains("not run"), "{x}");
 }

@@ -748,9 +748,10 @@ static void last_words_signal(int sig, int in_call) {
 }
 
 /* SIGINT, SIGTERM, SIGHUP while armed: remove the temporary files, then die of the signal
- * as usual; or, deferred, only record it for the program's own loop (the --isolate parent). */
+ * as usual; or, deferred, only record the first for the program's own loop (the --isolate
+ * parent, a campaign): a second one acts at once. */
 static void stop_handler(int sig) {
-    if (defer_stop) {
+    if (defer_stop && stop_signal == 0) {
         stop_signal = sig;
         return;
     }

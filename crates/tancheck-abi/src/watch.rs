@@ -108,7 +108,8 @@ pub fn remove_on_stop(path: &std::path::Path) -> bool {
     unsafe { tc_guard_remove_on_stop(p.as_ptr()) == 0 }
 }
 
-/// Record stop signals instead of dying of them; [`stop_signal`] says which arrived.
+/// Record the first stop signal instead of dying of it; [`stop_signal`] says which arrived. A
+/// second one ends the process as usual.
 pub fn defer_stop(on: bool) {
     // SAFETY: a plain store on the C side.
     unsafe { tc_guard_defer_stop(i32::from(on)) }

@@ -71,6 +71,41 @@ pub fn run(c: &Campaign, item: &Item, libs: &[Built]) -> ItemResult {
     finish(c, item, found)
 }
 
+/// The outcome of an item a stop signal kept from running.
+pub const NOT_RUN: &str = "not-run";
+
+/// The name of a stop signal.
+pub fn signal_name(sig: i32) -> String {
+    match sig {
+        1 => "SIGHUP".into(),
+        2 => "SIGINT".into(),
+        15 => "SIGTERM".into(),
+        _ => format!("signal {sig}"),
+    }
+}
+
+/// The result of an item not run: the campaign was stopped by `signal` before it began (or,
+/// under --isolate, while its worker ran). Not as expected, its code the signal's (128 + it).
+pub fn not_run_result(c: &Campaign, item: &Item, signal: i32) -> ItemResult {
+    finish(
+        c,
+        item,
+        Found {
+            outcome: NOT_RUN,
+            finding: "none".into(),
+            exit_code: 128 + signal,
+            first: None,
+            increments: 0,
+            failed: 0,
+            worst: Vec::new(),
+            message: Some(format!(
+                "not run: the campaign was stopped by {} before this item finished",
+                signal_name(signal)
+            )),
+        },
+    )
+}
+
 /// The result of an item whose worker died or hung.
 pub fn fault_result(c: &Campaign, item: &Item, message: String) -> ItemResult {
     finish(

@@ -196,7 +196,24 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         None
     };
     let runner = run::Runner { campaign: &c, libs: &libs, jobs, isolate, item_timeout: a.item_timeout };
+    // A stop signal (Ctrl-C, SIGTERM, SIGHUP) lets the items in progress finish and starts no
+    // new one; the reports then hold the items checked so far (a stopped campaign kept nothing
+    // of them). A second signal ends the process at once. A worker of --isolate dies of it.
+    let top = a.item.is_none();
+    if top {
+        tancheck_abi::watch::defer_stop(true);
+    }
     let results = runner.run(&items);
+    let stop = if top { tancheck_abi::watch::stop_signal() } else { 0 };
+    if stop != 0 {
+        let not_run = results.iter().filter(|r| r.outcome == item::NOT_RUN).count();
+        notes.push(format!(
+            "stopped by {}: {} of {} items checked, {not_run} not run (run the campaign again to check them)",
+            item::signal_name(stop),
+            results.len() - not_run,
+            results.len()
+        ));
+    }
     if let Some(s) = shard {
         notes.push(format!(
             "shard {} of {} (0-based): {} of {} items",
@@ -217,7 +234,7 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         exit_code: 0,
         cautions: tancheck_core::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
     };
-    report.summarize(None);
+    report.summarize((stop != 0).then_some(128 + stop));
     let mut reporters = crate::session::reporters(&a.output, a.json.as_deref());
     reporters.campaign(&report)?;
     reporters.finish()?;

@@ -31,22 +31,44 @@ impl Runner<'_> {
         let slots: Vec<Mutex<Option<ItemResult>>> = items.iter().map(|_| Mutex::new(None)).collect();
         let next = AtomicUsize::new(0);
         let threads = self.jobs.clamp(1, items.len().max(1));
+        let told = std::sync::atomic::AtomicBool::new(false);
         std::thread::scope(|s| {
             for _ in 0..threads {
                 s.spawn(|| loop {
+                    let stop = tancheck_abi::watch::stop_signal();
+                    if stop != 0 {
+                        if !told.swap(true, Ordering::SeqCst) {
+                            eprintln!(
+                                "tancheck: {}: the items in progress finish and no new one starts; the reports \
+                                 then hold the items checked so far (send it again to end at once)",
+                                super::item::signal_name(stop)
+                            );
+                        }
+                        break;
+                    }
                     let k = next.fetch_add(1, Ordering::SeqCst);
                     if k >= items.len() {
                         break;
                     }
-                    let r = self.one(items[k]);
+                    let mut r = self.one(items[k]);
+                    // A worker of --isolate dies of the stop signal too (Ctrl-C reaches the
+                    // whole process group): its item was not run, not faulty.
+                    let stop = tancheck_abi::watch::stop_signal();
+                    if stop != 0 && r.outcome == "fault" && self.isolate.is_some() {
+                        r = super::item::not_run_result(self.campaign, items[k], stop);
+                    }
                     *slots[k].lock().unwrap_or_else(std::sync::PoisonError::into_inner) = Some(r);
                 });
             }
         });
+        let stop = tancheck_abi::watch::stop_signal();
         slots
             .into_iter()
-            .map(|s| {
-                s.into_inner().unwrap_or_else(std::sync::PoisonError::into_inner).expect("every item ran")
+            .zip(items)
+            .map(|(s, item)| {
+                s.into_inner()
+                    .unwrap_or_else(std::sync::PoisonError::into_inner)
+                    .unwrap_or_else(|| super::item::not_run_result(self.campaign, item, stop))
             })
             .collect()
     }

@@ -249,7 +249,7 @@ pub fn item_line(it: &ItemResult) -> String {
             "; expected {exp}: {}",
             if it.as_expected { "as expected" } else { "NOT AS EXPECTED" }
         ));
-    } else if !it.as_expected {
+    } else if !it.as_expected && it.outcome != "not-run" {
         // Nothing said is a pass expected (the page said so; the terminal did not).
         s.push_str("; expected pass: NOT AS EXPECTED");
     }
@@ -290,10 +290,12 @@ pub fn list(v: &[usize]) -> String {
 pub fn verdict_line(r: &CampaignReport) -> String {
     let bad = r.items.iter().filter(|i| !i.as_expected).count();
     let skipped = r.items.iter().filter(|i| i.outcome == "skipped").count();
+    let not_run = r.items.iter().filter(|i| i.outcome == "not-run").count();
     format!(
-        "overall: {} as expected, {bad} not{}: exit {}",
+        "overall: {} as expected, {bad} not{}{}: exit {}",
         r.items.len() - bad,
         if skipped > 0 { format!(", {skipped} skipped") } else { String::new() },
+        if not_run > 0 { format!(" ({not_run} of them not run: stopped)") } else { String::new() },
         r.exit_code
     )
 }

@@ -21,7 +21,7 @@ fn case_name(it: &ItemResult) -> String {
 }
 
 fn status(it: &ItemResult) -> TestCaseStatus {
-    if it.outcome == "skipped" && it.as_expected {
+    if it.outcome == "skipped" && it.as_expected || it.outcome == "not-run" {
         let mut s = TestCaseStatus::skipped();
         if let Some(m) = &it.message {
             s.set_message(m.clone());
@@ -100,6 +100,7 @@ pub fn campaign_page(r: &CampaignReport) -> String {
                 "fail" => "FAIL",
                 "twin" => "TWIN",
                 "skipped" => "skipped",
+                "not-run" => "NOT RUN",
                 _ => "FAULT",
             };
             let _ = writeln!(

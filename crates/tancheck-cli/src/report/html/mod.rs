@@ -76,7 +76,7 @@ h1 { font-size: 24px; margin: 0 0 4px; }
 h2 { font-size: 19px; margin: 30px 0 10px; border-bottom: 1px solid var(--line); padding-bottom: 4px; }
 h3 { font-size: 16px; margin: 22px 0 8px; }
 .sub { color: var(--muted); margin: 0; }
-.badge { display: inline-block; padding: 2px 12px; border-radius: 4px; color: #fff; font-weight: 700;
+.badge { display: inline-block; white-space: nowrap; padding: 2px 12px; border-radius: 4px; color: #fff; font-weight: 700;
          letter-spacing: .04em; margin-right: 8px; }
 .badge.pass { background: var(--pass); } .badge.fail { background: var(--fail); }
 .badge.fault, .badge.twin { background: var(--warn); } .badge.skipped { background: #7a8190; }
@@ -115,7 +115,7 @@ pub(crate) fn badge(word: &str) -> String {
         "PASS" | "pass" => "pass",
         "FAIL" => "fail",
         "TWIN" => "twin",
-        "skipped" => "skipped",
+        "skipped" | "NOT RUN" => "skipped",
         _ => "fault",
     };
     format!("<span class=\"badge {class}\">{}</span>", esc(word))
