@@ -49,20 +49,47 @@ fn work_along(d: &mut Driver, c: &mut Caller<'_>, w: &[f64], n: usize) -> Result
     Ok(sum / (3.0 * n as f64))
 }
 
-/// A closed cycle of amplitude `a` in the first two components from the start: the net work
-/// relative to the work done on the way (trapezoid rule), and whether the state variables
-/// stayed as they started at every step (an elastic cycle).
+/// What a closed cycle found: the net work relative to the work done on the way (trapezoid
+/// rule), whether the state variables stayed as they started at every step (an elastic
+/// cycle), and, where the cycle started from the routine's own stress instead of the start
+/// stress given, the largest entry of that stress.
+struct Cycle {
+    net: f64,
+    elastic: bool,
+    own_start: Option<f64>,
+}
+
+/// A closed cycle of amplitude `a` in the first two components from the start.
+///
+/// A start stress of zero that the routine does not return for a zero increment from the start
+/// (a total-form thermal law at a start temperature away from its reference holds a thermal
+/// stress there) is replaced by the routine's own, when the zero increment leaves the state
+/// variables as they were: else the first step's work counts the mismatch (a correct law failed
+/// so; a user-style sweep). The zero-increment probe says what to give as the start.
 fn closed_cycle(
     caller: &mut Caller<'_>,
     info: &crate::routine::RoutineInfo,
     env: &ProbeEnv<'_>,
     w: &[f64],
     a: f64,
-) -> Result<(f64, bool), Fault> {
+) -> Result<Cycle, Fault> {
     let conv = &info.convention;
     let n = conv.ncomp();
-    let mut d =
-        Driver::new(info, env.props, env.start.clone()).map_err(|e| Fault::Unsupported(e.to_string()))?;
+    let fresh =
+        || Driver::new(info, env.props, env.start.clone()).map_err(|e| Fault::Unsupported(e.to_string()));
+    let mut d = fresh()?;
+    let mut own_start = None;
+    if env.start.stress.iter().all(|&x| x == 0.0) {
+        d.set_increment(&vec![0.0; n], 0.0, 1.0);
+        d.base_call(caller)?;
+        let largest = d.base.stress.iter().fold(0.0f64, |m, x| m.max(x.abs()));
+        if largest > 0.0 && largest.is_finite() && d.base.state == env.start.state {
+            own_start = Some(largest);
+            d.advance();
+        } else {
+            d = fresh()?;
+        }
+    }
     let (mut net, mut gross) = (0.0, 0.0);
     let mut elastic = true;
     let legs = [(0usize, 1.0), (1, 1.0), (0, -1.0), (1, -1.0)];
@@ -83,7 +110,7 @@ fn closed_cycle(
             d.advance();
         }
     }
-    Ok((if gross > 0.0 { net.abs() / gross } else { 0.0 }, elastic))
+    Ok(Cycle { net: if gross > 0.0 { net.abs() / gross } else { 0.0 }, elastic, own_start })
 }
 
 impl Probe for Energy {
@@ -114,6 +141,7 @@ impl Probe for Energy {
         let mut a = asked;
         let mut cycle = 0.0;
         let mut elastic = false;
+        let mut own_start = None;
         for _ in 0..=8 {
             match closed_cycle(caller, &info, env, &w, a) {
                 Err(f) => {
@@ -123,9 +151,10 @@ impl Probe for Energy {
                         &f,
                     ))
                 }
-                Ok((c, stayed)) => {
-                    cycle = c;
-                    elastic = stayed;
+                Ok(c) => {
+                    cycle = c.net;
+                    elastic = c.elastic;
+                    own_start = c.own_start;
                 }
             }
             if elastic {
@@ -135,6 +164,14 @@ impl Probe for Energy {
         }
         if !elastic {
             a *= 10.0;
+        }
+        if let Some(largest) = own_start {
+            details.push(format!(
+                "the start stress given is zero, and a zero increment from the start gives another (largest \
+                 entry {largest:.3e}): the cycle starts from the routine's own stress at the start (a total-form \
+                 law away from its reference temperature holds a thermal stress there; see the zero-increment \
+                 probe)"
+            ));
         }
         if elastic {
             details.push(format!(
