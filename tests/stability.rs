@@ -76,7 +76,7 @@ fn critical_modulus(
         let (conv, t) = tangent(h);
         let (d, n) = min_det_acoustic(&conv, &t);
         let dim = if conv.kind() == PointKind::Solid3d { 3 } else { 2 };
-        (d <= 0.0, Acoustic { min_det: d, normal: n, dim })
+        (d <= 0.0, Acoustic { min_det: d, normal: n, dim, max_abs_det: f64::NAN })
     };
     assert!(lost(lo).0, "ellipticity must be lost at h = {lo}");
     assert!(!lost(hi).0, "ellipticity must hold at h = {hi}");
@@ -271,4 +271,70 @@ fn cohesive_props(nprop: usize) -> Vec<f64> {
             other => panic!("unexpected cohesive property {other}"),
         })
         .collect()
+}
+
+/// σ = K tr(ε) 1: a tangent K 1⊗1 of rank one (what a return that holds the deviatoric stress
+/// leaves, as at the apex of a pressure-dependent surface without hardening). Its acoustic
+/// tensor Q(n) = K n⊗n is singular for every normal, so the loss of ellipticity names no band
+/// normal (a user-style sweep's apex read as a band at a normal picked by rounding).
+#[derive(Clone, Debug)]
+struct BulkOnly(tancheck::core::RoutineInfo);
+
+impl tancheck::core::Model for BulkOnly {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.0
+    }
+
+    fn evaluate<S: tancheck::core::Scalar>(
+        &self,
+        input: &tancheck::core::CallInput<'_, S>,
+        out: &mut tancheck::core::CallOutput<'_, S>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let k = input.props[0];
+        let tr = (0..3).fold(S::zero(), |a, i| a + input.strain[i] + input.dstrain[i]);
+        for i in 0..6 {
+            out.stress[i] = if i < 3 { k * tr } else { S::zero() };
+            out.dstress_dtemp[i] = S::zero();
+            for j in 0..6 {
+                out.tangent[j * 6 + i] = if i < 3 && j < 3 { k } else { S::zero() };
+            }
+        }
+        out.energy[0] = S::zero();
+        out.energy[1] = S::zero();
+        Ok(())
+    }
+}
+
+#[test]
+fn a_tangent_singular_for_every_normal_names_no_band() {
+    let info = tancheck::core::RoutineInfo {
+        name: "bulk-only".into(),
+        convention: Convention::new(PointKind::Solid3d, tancheck::core::ShearMeasure::Engineering),
+        nstate: 0,
+        nprop: 1,
+    };
+    let mut m = tancheck::core::ModelRoutine(BulkOnly(info.clone()));
+    let mut caller = Caller::new(&mut m);
+    let start = PointState::zero(&info, 20.0);
+    let path = Path {
+        name: "stretch".into(),
+        increments: vec![PathIncrement::strain([1e-3, 0.0, 0.0, 0.0, 0.0, 0.0])],
+    };
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("stability");
+    let env = ProbeEnv { props: &[1e5], start: &start, path: &path, settings: &settings, spec: &spec };
+    let res = Stability.run(&mut caller, &env).unwrap();
+    assert!(
+        res.summary.contains("for every normal") && res.summary.contains("no band normal"),
+        "{}",
+        res.summary
+    );
+    // Isotropic elasticity keeps its positive determinant everywhere: nothing of the kind.
+    let mut r = reference("elastic", PointKind::Solid3d).unwrap();
+    let einfo = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&einfo, 20.0);
+    let env = ProbeEnv { props: &[E, 0.3], start: &start, path: &path, settings: &settings, spec: &spec };
+    let res = Stability.run(&mut caller, &env).unwrap();
+    assert!(res.summary.starts_with("elliptic along the path"), "{}", res.summary);
 }

@@ -63,6 +63,9 @@ pub struct Acoustic {
     pub normal: [f64; 3],
     /// Size of Q: 3 for solid-3d, 2 for the in-plane kinds, 1 for uniaxial.
     pub dim: usize,
+    /// The largest |det Q(n)| over the grid of normals (NaN where not searched): where it is
+    /// as small as the minimum, no normal is singled out.
+    pub max_abs_det: f64,
 }
 
 impl Acoustic {
@@ -134,8 +137,8 @@ fn dim_of(kind: PointKind) -> Option<usize> {
 fn acoustic(conv: &Convention, tangent: &[f64]) -> Option<Acoustic> {
     let dim = dim_of(conv.kind())?;
     let c = fourth_order(conv, tangent);
-    let (normal, min_det) = acoustic_min(&c, dim);
-    Some(Acoustic { min_det, normal: signed(normal), dim })
+    let (normal, min_det, max_abs_det) = acoustic_min(&c, dim);
+    Some(Acoustic { min_det, normal: signed(normal), dim, max_abs_det })
 }
 
 /// The smallest eigenvalue and the largest |eigenvalue| of the symmetric part of a routine
@@ -179,6 +182,7 @@ pub fn assess_unless_definite(conv: &Convention, tangent: &[f64], tol: f64) -> A
                 min_det: (0.5 * min_eigenvalue).powi(dim as i32),
                 normal: [f64::NAN; 3],
                 dim,
+                max_abs_det: f64::NAN,
             }),
             bound_only: true,
         },
@@ -255,11 +259,25 @@ impl Probe for Stability {
         match &s.first_loss {
             Some((k, a)) => {
                 let ac = a.acoustic.expect("a loss has an acoustic tensor");
-                parts.push(format!(
-                    "ellipticity lost at increment {k}, band normal {} at {:.1}° from axis 1",
-                    vector(&ac.normal),
-                    ac.angle_from_axis1()
-                ));
+                let largest = ac.max_abs_det / a.scale.max(f64::MIN_POSITIVE).powi(ac.dim as i32);
+                if largest <= tol {
+                    // Singular for every normal: a tangent that holds the stress in the
+                    // directions of any band (a return to the apex of a pressure-dependent
+                    // surface without hardening gives a tangent of rank one or zero), where a
+                    // minimising normal is an accident of rounding (a user-style sweep named one).
+                    parts.push(format!(
+                        "ellipticity lost at increment {k} for every normal: det Q(n)/s^{} is at most \
+                         {largest:.3e} over all of them (the tangent is singular in every band's directions, as \
+                         a return that holds the stress gives), so no band normal is singled out",
+                        ac.dim
+                    ));
+                } else {
+                    parts.push(format!(
+                        "ellipticity lost at increment {k}, band normal {} at {:.1}° from axis 1",
+                        vector(&ac.normal),
+                        ac.angle_from_axis1()
+                    ));
+                }
             }
             None if has_acoustic && s.increments.iter().all(|(_, a)| a.bound_only) => parts.push(format!(
                 "elliptic along the path: the symmetric part is positive definite at every increment \

@@ -190,9 +190,15 @@ fn smallest_first(v: &[f64], m: usize) -> Vec<usize> {
     idx
 }
 
-pub(super) fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64) {
+/// The minimising normal, min det Q(n), and the largest |det Q(n)| over the grid (equal to
+/// the minimum's size for one dimension).
+pub(super) fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64, f64) {
+    let largest = |v: &[f64]| v.iter().fold(0.0f64, |m, x| m.max(x.abs()));
     match dim {
-        1 => ([1.0, 0.0, 0.0], det_q(c, &[1.0, 0.0, 0.0], 1)),
+        1 => {
+            let d = det_q(c, &[1.0, 0.0, 0.0], 1);
+            ([1.0, 0.0, 0.0], d, d.abs())
+        }
         2 => {
             let f = |t: f64| det_q(c, &[t.cos(), t.sin(), 0.0], 2);
             let step = 1f64.to_radians();
@@ -208,7 +214,7 @@ pub(super) fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64) {
                     }
                 }
             }
-            ([best.0.cos(), best.0.sin(), 0.0], best.1)
+            ([best.0.cos(), best.0.sin(), 0.0], best.1, largest(&grid))
         }
         _ => {
             let f = |t: f64, p: f64| det_q(c, &sphere(t, p), 3);
@@ -247,7 +253,7 @@ pub(super) fn acoustic_min(c: &[f64; 81], dim: usize) -> ([f64; 3], f64) {
                     best = r;
                 }
             }
-            (sphere(best.0[0], best.0[1]), best.1)
+            (sphere(best.0[0], best.0[1]), best.1, largest(&values))
         }
     }
 }
