@@ -98,6 +98,34 @@ pub fn rank_dtemp(
         hs.push(Hypothesis { cause: Cause::PartialDtemp, detail, error_left: e, explains: e <= level });
     };
     let flat = terms.flatten();
+    // A hydrostatic stress (a thermal stress of a constrained point, say) is one direction with
+    // C:1: the two terms cannot be told apart there, and one trial says so (both explained
+    // the error, each as if it were the one, beside a factor on the whole ∂σ/∂T; a user-style
+    // sweep).
+    let dot = |x: &[f64], y: &[f64]| x.iter().zip(y).map(|(a, b)| a * b).sum::<f64>();
+    let parallel = |v: &[f64]| {
+        let (vv, hh) = (dot(v, v), dot(&hydro, &hydro));
+        // Why 1e-6: as for the deviatoric direction below, the precision of the fits.
+        vv > 0.0 && hh > 0.0 && 1.0 - dot(v, &hydro).powi(2) / (vv * hh) <= 1e-6
+    };
+    let hydrostatic = !cohesive && !one && parallel(stress);
+    if hydrostatic {
+        along(
+            &hydro,
+            "along the stress, which is hydrostatic here: the temperature dependence of the stiffness \
+             (C′(T):(ε − ε_th), along the stress) and the thermal expansion (−C:1 ε_th′, along C:1) are one \
+             direction at this point and cannot be told apart; a path with a deviatoric stress tells them apart",
+            None,
+        );
+        if parallel(returned) {
+            for h in hs.iter_mut().filter(|h| h.cause == Cause::UniformScale) {
+                h.detail.push_str(
+                    " (∂σ/∂T is hydrostatic too, so this factor and a term along the stress cannot be told apart here)",
+                );
+            }
+        }
+        return sorted(hs);
+    }
     along(
         stress,
         "along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th))",
@@ -110,7 +138,6 @@ pub fn rank_dtemp(
         // Offered where it is another direction than the stress (a stress with a mean part).
         let mean = stress.iter().zip(&hydro).map(|(x, h)| x * h).sum::<f64>() / 3.0;
         let dev: Vec<f64> = stress.iter().zip(&hydro).map(|(x, h)| x - mean * h).collect();
-        let dot = |x: &[f64], y: &[f64]| x.iter().zip(y).map(|(a, b)| a * b).sum::<f64>();
         let (dd, ss) = (dot(&dev, &dev), dot(stress, stress));
         // Why 1e-6: below it the deviatoric stress is the stress to the precision of the fits.
         if dd > 0.0 && ss > 0.0 && 1.0 - dot(&dev, stress).powi(2) / (dd * ss) > 1e-6 {
@@ -121,6 +148,12 @@ pub fn rank_dtemp(
             );
         }
     }
+    sorted(hs)
+}
+
+/// Explaining trials first, a partial term after a whole scale among them, then by the error
+/// left.
+fn sorted(mut hs: Vec<Hypothesis>) -> Vec<Hypothesis> {
     let spec = |c: Cause| if c == Cause::PartialDtemp { 1 } else { 0 };
     hs.sort_by(|a, b| {
         b.explains
