@@ -70,9 +70,9 @@ pub fn write_check(
             writeln!(out, "      {}", p.dim(&format!("F (column-major) = [{}]", g.join(", "))))?;
         }
         if !inc.passed {
+            let size =
+                tancheck_core::finite::TangentMeasure::parse(&report.tangent_measure).map_or(6, |m| m.size());
             if let Some(w) = &inc.worst {
-                let size = tancheck_core::finite::TangentMeasure::parse(&report.tangent_measure)
-                    .map_or(6, |m| m.size());
                 writeln!(
                     out,
                     "      largest difference at entry {}: returned {:.6e}, numerical {:.6e}",
@@ -80,6 +80,18 @@ pub fn write_check(
                     w.returned,
                     w.numerical
                 )?;
+            }
+            // The next largest: a flaw in one term shows in several entries.
+            let next: Vec<String> = inc
+                .worst_entries
+                .iter()
+                .skip(1)
+                .map(|w| {
+                    format!("{} ({:.4e} returned, {:.4e} numerical)", w.label(size), w.returned, w.numerical)
+                })
+                .collect();
+            if !next.is_empty() {
+                writeln!(out, "      next: {}", next.join(", "))?;
             }
             match &inc.cause {
                 Some(c) => {

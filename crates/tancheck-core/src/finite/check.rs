@@ -32,6 +32,9 @@ impl Default for FiniteSettings {
     }
 }
 
+/// How many of the largest entry differences a failing increment keeps.
+pub const WORST_ENTRIES: usize = 5;
+
 /// The largest difference of one entry.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 pub struct WorstEntry {
@@ -71,6 +74,11 @@ pub struct FiniteIncrement {
     pub error_complex: Option<f64>,
     pub passed: bool,
     pub worst: Option<WorstEntry>,
+    /// The entries with the largest differences, largest first (up to [`WORST_ENTRIES`], the
+    /// first of them `worst`), where the increment failed: a flaw in one term shows in several
+    /// entries, and which ones tells the term.
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub worst_entries: Vec<WorstEntry>,
     pub cause: Option<FiniteCause>,
 }
 
@@ -271,18 +279,23 @@ fn run_path(
                 report.twin_not_safe = None;
             }
         }
-        let worst = (0..n * n)
-            .max_by(|&a, &b| {
-                let da = (base.tangent[a] - reference[a]).abs();
-                let db = (base.tangent[b] - reference[b]).abs();
-                da.total_cmp(&db)
-            })
-            .map(|e| WorstEntry {
-                row: e % n,
-                column: e / n,
-                returned: base.tangent[e],
-                numerical: reference[e],
-            });
+        let entry = |e: usize| WorstEntry {
+            row: e % n,
+            column: e / n,
+            returned: base.tangent[e],
+            numerical: reference[e],
+        };
+        let gap = |e: usize| (base.tangent[e] - reference[e]).abs();
+        let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b))).map(entry);
+        // Largest first, ties in entry order; only for a failure (a passing increment's
+        // differences are rounding), and only entries that differ.
+        let worst_entries = if passed {
+            Vec::new()
+        } else {
+            let mut order: Vec<usize> = (0..n * n).filter(|&e| gap(e) > 0.0 || gap(e).is_nan()).collect();
+            order.sort_by(|&a, &b| gap(b).total_cmp(&gap(a)).then(a.cmp(&b)));
+            order.into_iter().take(WORST_ENTRIES).map(entry).collect()
+        };
         let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
         let non_finite =
             [("stress", &base.stress[..]), ("state", &base.state[..]), ("tangent", &base.tangent[..])]
@@ -315,6 +328,7 @@ fn run_path(
             error_complex,
             passed,
             worst,
+            worst_entries,
             cause,
         });
         start.f0 = *f1;
