@@ -9,11 +9,13 @@
 //! branches than the routine's: at an apex an opening stays at the apex while a slip either way
 //! leaves it along one face or the other, so the apex's tangent matches neither side of the slip
 //! column. The search here looks for the routine's branch in other directions: for each
-//! candidate direction d it makes one call a short way along d and compares the difference
-//! quotient with the returned tangent times d (a sieve); the best candidates get a whole
-//! central-difference tangent there, a short way into the branch, which must equal the
-//! returned tangent within the kink probe's tolerance. A tangent that is no branch's derivative
-//! (the mean of two sides, a branch's derivative with a term wrong) matches none of them.
+//! candidate direction d it makes a call a short way along d (and a second, shorter, where the
+//! first agrees) and compares the difference quotient with the returned tangent times d (a
+//! sieve); the best candidates get a whole central-difference tangent at two depths into the
+//! branch, forward and backward differences agreeing there (inside the branch, not on its
+//! boundary), extrapolated to the point, which must equal the returned tangent within the kink
+//! probe's tolerance. A tangent that is no branch's derivative (the mean of two sides, a
+//! branch's derivative with a term wrong) matches none of them.
 
 use super::kink::{Corner, KinkQuery, GAP_LEVEL};
 use crate::compare::compare;
@@ -21,9 +23,10 @@ use crate::convention::Component;
 use crate::driver::{Direction, Driver};
 use crate::routine::Caller;
 
-/// How far into a branch the search looks, relative to the strain scale. Why 1e-5: the kink
-/// probe's largest step, far above rounding, while a branch's derivative changes by about
-/// this share of its curvature over it, a tenth of the probe's tolerance (1e-4).
+/// How far into a branch the search looks, relative to the strain scale (and a tenth of it
+/// for the second tangent). Why 1e-5: the kink probe's largest step, far above rounding,
+/// while a branch's derivative changes over it by about this share of its curvature, which
+/// the extrapolation from the two depths removes to first order.
 pub const DEPTH: f64 = 1e-5;
 
 /// The central-difference step of the tangent a short way into a branch, relative to the
