@@ -127,3 +127,75 @@ impl ExploreReport {
         self.verdict.exit_code()
     }
 }
+
+/// Notes on failures that may be one flaw: tangent failures on the same branch under different
+/// cause names. The key of a failure is its verdict, finding and branch, and a wrong term of a
+/// tangent reads under different names on different paths (the cause trials measure it against
+/// each path's stress and strain: a scaled term on one, a single entry on another), so such
+/// failures are listed apart but may be one (a user-style sweep counted one flaw three times).
+pub fn one_flaw_notes(findings: &[Finding]) -> Vec<String> {
+    let mut branches: Vec<&str> = Vec::new();
+    for f in findings.iter().filter(|f| f.verdict == Verdict::TangentFailure) {
+        if !branches.contains(&f.branch.as_str()) {
+            branches.push(&f.branch);
+        }
+    }
+    let mut notes = Vec::new();
+    for b in branches {
+        let same: Vec<&Finding> =
+            findings.iter().filter(|f| f.verdict == Verdict::TangentFailure && f.branch == b).collect();
+        if same.len() < 2 {
+            continue;
+        }
+        let names: Vec<String> =
+            same.iter().map(|f| format!("{} ({} path(s))", f.finding, f.paths)).collect();
+        notes.push(format!(
+            "{b}: the tangent failures named {} may be one flaw seen from different paths (a wrong term \
+             reads under different cause names as the stress and strain differ); their shrunk cases tell \
+             whether they are one",
+            names.join(", ")
+        ));
+    }
+    notes
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    fn finding(verdict: Verdict, finding: &str, branch: &str, paths: usize) -> Finding {
+        Finding {
+            verdict,
+            finding: finding.into(),
+            branch: branch.into(),
+            first_path: 1,
+            first_increment: 1,
+            path: Path { name: "p".into(), increments: Vec::new() },
+            properties: Vec::new(),
+            paths,
+            shrunk: None,
+            case: None,
+        }
+    }
+
+    // Two names on one branch are noted together; one name alone, another branch, a fault or a
+    // broken twin are not.
+    #[test]
+    fn tangent_failures_on_one_branch_under_two_names_are_noted() {
+        let t = Verdict::TangentFailure;
+        let fs = [
+            finding(t, "term-scaled", "branch #1", 5),
+            finding(t, "single-entry", "branch #1", 2),
+            finding(t, "term-sign", "branch #2", 1),
+            finding(Verdict::RoutineFault, "routine-fault", "branch #1", 1),
+            finding(Verdict::TwinNotSafe, "twin-not-complex-step-safe", "branch #2", 1),
+        ];
+        let notes = one_flaw_notes(&fs);
+        assert_eq!(notes.len(), 1, "{notes:?}");
+        assert!(
+            notes[0].starts_with("branch #1: the tangent failures named term-scaled (5 path(s)), single-entry (2 path(s)) may be one flaw"),
+            "{notes:?}"
+        );
+        assert!(one_flaw_notes(&fs[2..]).is_empty());
+    }
+}

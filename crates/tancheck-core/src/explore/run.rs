@@ -273,6 +273,7 @@ pub fn run(
              (a request, not a finding)"
         ));
     }
+    notes.extend(super::report::one_flaw_notes(&findings));
     let mut never = NeverReached::default();
     for b in &ex.branches {
         if !tally.reached.keys().any(|s| s.branch == Some(b.branch)) {
