@@ -31,19 +31,31 @@ impl Runner<'_> {
         let slots: Vec<Mutex<Option<ItemResult>>> = items.iter().map(|_| Mutex::new(None)).collect();
         let next = AtomicUsize::new(0);
         let threads = self.jobs.clamp(1, items.len().max(1));
-        let told = std::sync::atomic::AtomicBool::new(false);
+        let (told, done) =
+            (std::sync::atomic::AtomicBool::new(false), std::sync::atomic::AtomicBool::new(false));
+        // Said once, when the stop signal arrives (not when an item in progress ends).
+        let announce = || {
+            let stop = tancheck_abi::watch::stop_signal();
+            if stop != 0 && !told.swap(true, Ordering::SeqCst) {
+                eprintln!(
+                    "tancheck: {}: the items in progress finish and no new one starts; the reports then hold \
+                     the items checked so far (send it again to end at once)",
+                    super::item::signal_name(stop)
+                );
+            }
+            stop
+        };
         std::thread::scope(|s| {
+            s.spawn(|| {
+                while !done.load(Ordering::SeqCst) {
+                    announce();
+                    std::thread::sleep(Duration::from_millis(50));
+                }
+            });
+            let mut workers = Vec::new();
             for _ in 0..threads {
-                s.spawn(|| loop {
-                    let stop = tancheck_abi::watch::stop_signal();
-                    if stop != 0 {
-                        if !told.swap(true, Ordering::SeqCst) {
-                            eprintln!(
-                                "tancheck: {}: the items in progress finish and no new one starts; the reports \
-                                 then hold the items checked so far (send it again to end at once)",
-                                super::item::signal_name(stop)
-                            );
-                        }
+                workers.push(s.spawn(|| loop {
+                    if announce() != 0 {
                         break;
                     }
                     let k = next.fetch_add(1, Ordering::SeqCst);
@@ -58,7 +70,15 @@ impl Runner<'_> {
                         r = super::item::not_run_result(self.campaign, items[k], stop);
                     }
                     *slots[k].lock().unwrap_or_else(std::sync::PoisonError::into_inner) = Some(r);
-                });
+                }));
+            }
+            let joined: Vec<_> = workers.into_iter().map(|w| w.join()).collect();
+            done.store(true, Ordering::SeqCst);
+            // A worker's panic goes on as it did before the announcer thread.
+            for j in joined {
+                if let Err(e) = j {
+                    std::panic::resume_unwind(e);
+                }
             }
         });
         let stop = tancheck_abi::watch::stop_signal();
