@@ -22,6 +22,7 @@ use crate::compare::compare;
 use crate::convention::Component;
 use crate::driver::{Direction, Driver};
 use crate::routine::Caller;
+use crate::schemes::Scheme;
 
 /// How far into a branch the search looks, relative to the strain scale (and a tenth of it
 /// for the second tangent). Why 1e-5: the kink probe's largest step, far above rounding,
@@ -162,9 +163,10 @@ fn principal(q: &KinkQuery<'_>, stress: &[f64]) -> Vec<Vec<f64>> {
     out
 }
 
-/// The central tangent at the driver's increment into `out`, and whether the point lies inside
-/// a branch there: its forward and backward differences agree in every column within the
-/// kink probe's gap level. `None` when a call faults.
+/// The central tangent at the driver's increment into `out` (the mean of the forward and the
+/// backward columns, the same two calls a central column makes), and whether the point lies
+/// inside a branch there: its forward and backward differences agree in every column within
+/// the kink probe's gap level. `None` when a call faults.
 fn branch_tangent(
     d: &mut Driver,
     caller: &mut Caller<'_>,
@@ -176,14 +178,12 @@ fn branch_tangent(
     d.base_call(caller).ok()?;
     let (mut fwd, mut bwd) = (vec![0.0; n * n], vec![0.0; n * n]);
     for j in 0..n {
-        d.perturbed_call(caller, Direction::Strain(j), h).ok()?;
-        d.perturbed_call(caller, Direction::Strain(j), -h).ok()?;
-        for r in 0..n {
-            let (p, m, b) = (d.plus.stress[r], d.minus.stress[r], d.base.stress[r]);
-            fwd[j * n + r] = (p - b) / h;
-            bwd[j * n + r] = (b - m) / h;
-            out[j * n + r] = (p - m) / (2.0 * h);
-        }
+        let col = j * n..(j + 1) * n;
+        Scheme::Forward.column(d, caller, Direction::Strain(j), h, &mut fwd[col.clone()]).ok()?;
+        Scheme::Backward.column(d, caller, Direction::Strain(j), h, &mut bwd[col]).ok()?;
+    }
+    for ((o, f), b) in out.iter_mut().zip(&fwd).zip(&bwd) {
+        *o = 0.5 * (f + b);
     }
     let gaps = compare(q.conv, &bwd, &fwd, f64::INFINITY, q.entry_floor, 0).column_errors;
     Some(gaps.iter().all(|g| *g <= GAP_LEVEL))
