@@ -184,8 +184,8 @@ fn a_block_section_that_does_not_fit_is_refused_naming_the_file() {
 
 // Options and commands made for point routines are refused on a block routine's manifest,
 // naming the option (they were ignored, or bisect called the block routine through the point
-// interface and reported a correct routine as a fault); a finite-strain manifest is refused
-// by bisect likewise (it said "unknown field `finite`").
+// interface and reported a correct routine as a fault); a strain path given to bisect with a
+// finite-strain manifest is refused likewise.
 #[test]
 fn point_options_and_bisect_are_refused_for_block_and_finite_manifests() {
     let d = scratch("block-cli-point-options");
@@ -227,9 +227,11 @@ fn point_options_and_bisect_are_refused_for_block_and_finite_manifests() {
              "path": { "shape": "simple-shear", "amount": 0.3, "increments": 3 } }"#,
     )
     .unwrap();
-    let (code, out, err) = tancheck(&["bisect".as_ref(), f.as_os_str()]);
+    // bisect takes a finite-strain manifest (tests/finite_bisect.rs), but not a strain path.
+    let (code, out, err) =
+        tancheck(&["bisect".as_ref(), f.as_os_str(), "--path".as_ref(), "uniaxial-strain:0.01:5".as_ref()]);
     assert_eq!(code, 2, "{out}{err}");
-    assert!(err.contains("fin.json") && err.contains("this manifest is a finite-strain one"), "{err}");
+    assert!(err.contains("fin.json") && err.contains("--path takes a strain path"), "{err}");
 }
 
 /// A manifest of one of the misbehaving block routines (`misbehave_block.c`).

@@ -40,7 +40,7 @@ pub fn sha256_file(path: &FsPath) -> std::io::Result<String> {
     Ok(Sha256::digest(&bytes).iter().map(|b| format!("{b:02x}")).collect())
 }
 
-fn sha256_text(text: &str) -> String {
+pub fn sha256_text(text: &str) -> String {
     Sha256::digest(text.as_bytes()).iter().map(|b| format!("{b:02x}")).collect()
 }
 
@@ -85,7 +85,7 @@ pub fn open_for_manifest(m: &Manifest, dir: &FsPath) -> Result<(Opened, CaseRout
 }
 
 /// `target` relative to the folder `base` when they share more than the root, else `target`.
-fn relative_to(target: &FsPath, base: &FsPath) -> PathBuf {
+pub fn relative_to(target: &FsPath, base: &FsPath) -> PathBuf {
     let (Ok(t), Ok(b)) = (target.canonicalize(), base.canonicalize()) else { return target.to_path_buf() };
     let tc: Vec<PathPart> = t.components().collect();
     let bc: Vec<PathPart> = b.components().collect();

@@ -62,11 +62,7 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path].into_iter().flatten().collect();
     a.run.output.guard(a.run.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
-        anyhow::bail!(
-            "{}: bisect takes point routines; this manifest is a finite-strain one (`tancheck check` \
-             and `tancheck probe` check it)",
-            a.manifest.display()
-        );
+        return crate::finite_case::bisect(&a.manifest, a.path.is_some(), a.fraction_tol, &a.run);
     }
     crate::survive::begin_report(a.run.json.as_deref(), &a.manifest.display().to_string())?;
     let (mut m, dir) = Manifest::load(&a.manifest)?;

@@ -240,6 +240,11 @@ pub fn run(a: &ReplayArgs) -> Result<i32> {
     crate::report::files::distinct(&[("--json", a.json.as_deref())], &[a.case.as_path()])?;
     crate::survive::begin_report(a.json.as_deref(), &a.case.display().to_string())?;
     crate::survive::start_watchdog(crate::survive::DEFAULT_CALL_TIMEOUT, None);
+    if let Some(text) =
+        std::fs::read_to_string(&a.case).ok().filter(|t| crate::finite_case::is_finite_case(t))
+    {
+        return crate::finite_case::replay(&a.case, a.json.as_deref(), &a.output, &text);
+    }
     crate::survive::checking(true);
     let replayed = replay_file(&a.case, !a.no_walk);
     crate::survive::checking(false);

@@ -156,6 +156,11 @@ impl FiniteManifest {
         Ok((m, d, dir))
     }
 
+    /// The declared measures and frame, parsed (as [`FiniteManifest::load`] checks them).
+    pub fn declared_measures(&self) -> Result<Declared, String> {
+        self.declared()
+    }
+
     fn declared(&self) -> Result<Declared, String> {
         let f = &self.finite;
         let stress = StressMeasure::parse(&f.stress)

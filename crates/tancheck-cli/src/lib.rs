@@ -27,6 +27,7 @@ pub mod demo;
 pub mod demo_block;
 pub mod demo_finite;
 pub mod explore_manifest;
+pub mod finite_case;
 pub mod finite_load;
 pub mod isolate;
 pub mod load;

@@ -7,7 +7,7 @@ use std::fmt::Write as _;
 use std::io::{self, Write};
 
 use quick_junit::{NonSuccessKind, Property, Report as JReport, TestCase, TestCaseStatus, TestSuite};
-use tancheck_core::finite::check::FiniteReport;
+use tancheck_core::finite::check::{FiniteIncrement, FiniteReport};
 use tancheck_core::finite::probe::FiniteProbeReport;
 use tancheck_core::finite::TangentMeasure;
 use tancheck_core::Verdict;
@@ -334,4 +334,141 @@ pub fn probes_junit(report: &FiniteProbeReport) -> io::Result<String> {
     let mut r = JReport::new("tancheck");
     r.add_test_suite(suite);
     xml(&r)
+}
+
+/// The lines of one judged increment: errors, the largest entries, the cause.
+fn judged_lines(out: &mut dyn Write, inc: &FiniteIncrement, size: usize, p: Palette) -> io::Result<()> {
+    let cx = inc.error_complex.map_or(String::new(), |e| format!("complex {}, ", sci(e)));
+    let word = if inc.passed { p.pass("passes") } else { p.fail("FAILS") };
+    writeln!(out, "   judged again on its own: error {cx}central {}  {word}", sci(inc.error_central))?;
+    for w in inc.worst_entries.iter().take(3) {
+        writeln!(
+            out,
+            "      entry {}: returned {:.6e}, numerical {:.6e}",
+            w.label(size),
+            w.returned,
+            w.numerical
+        )?;
+    }
+    if let Some(c) = &inc.cause {
+        writeln!(out, "      cause {}: {}", c.name, c.explanation)?;
+    }
+    Ok(())
+}
+
+/// `tancheck bisect` on a finite-strain manifest.
+pub fn write_bisect(
+    out: &mut dyn Write,
+    o: &crate::report::model::FiniteBisectOutcome,
+    quiet: bool,
+    p: Palette,
+) -> io::Result<()> {
+    let size = TangentMeasure::parse(&o.check.tangent_measure).map_or(6, |m| m.size());
+    if !quiet {
+        writeln!(out, "{} {}", p.head("finite-strain bisect of"), o.routine)?;
+    }
+    match (o.increment, &o.judged) {
+        (Some(k), Some(j)) => {
+            let n = o.check.increments.len();
+            writeln!(out, "   first failing increment: {k} of {n}")?;
+            if !quiet {
+                judged_lines(out, j, size, p)?;
+            }
+            if let Some(f) = &o.fraction {
+                writeln!(out, "   inside it: {}", f.words())?;
+            }
+        }
+        _ if o.verdict == Verdict::Pass => writeln!(out, "   every increment passes: nothing to bisect")?,
+        _ => {
+            if let Some(f) = &o.check.fault {
+                writeln!(out, "   fault: {f}")?;
+            }
+        }
+    }
+    if let Some(c) = &o.case {
+        writeln!(out, "   case written: {c}")?;
+        writeln!(out, "   rerun it with: tancheck replay {c}")?;
+    }
+    for w in &o.warnings {
+        writeln!(out, "   {}", p.warn(&format!("warning: {w}")))?;
+    }
+    let finding = o.finding.as_ref().map_or(String::new(), |f| format!(" ({f})"));
+    let word = if o.verdict == Verdict::Pass { "PASS" } else { o.verdict.word() };
+    writeln!(out, "verdict: {}{finding} (exit {})", p.verdict(word), o.exit_code)?;
+    if !quiet {
+        for c in &o.cautions {
+            writeln!(out, "   caution: {c}")?;
+        }
+    }
+    Ok(())
+}
+
+/// `tancheck replay` of a finite-strain case.
+pub fn write_replay(
+    out: &mut dyn Write,
+    r: &crate::report::model::FiniteReplayReport,
+    quiet: bool,
+    p: Palette,
+) -> io::Result<()> {
+    let word = match r.exit_code {
+        0 => "PASS",
+        3 => "FAULT",
+        _ => "FAIL",
+    };
+    if quiet {
+        if !r.pass {
+            let cause =
+                r.judged.as_ref().and_then(|j| j.cause.as_ref()).map_or("unexplained", |c| c.name.as_str());
+            writeln!(out, "{} {}: {cause} ({})", p.fail(word), r.case, r.origin)?;
+        }
+        return writeln!(out, "   verdict: {} (exit {})", p.verdict(word), r.exit_code);
+    }
+    writeln!(out, "{}", p.head(&format!("== replay of the finite-strain case {} ==", r.case)))?;
+    writeln!(out, "   routine: {}", r.routine)?;
+    writeln!(out, "   call: {}", r.origin)?;
+    for w in &r.warnings {
+        writeln!(out, "   warning: {w}")?;
+    }
+    let c = &r.call;
+    let line = |n: &tancheck_core::case::Numbers| {
+        n.values
+            .iter()
+            .map(|v| v.map_or("nan".to_string(), |x| format!("{x:e}")))
+            .collect::<Vec<_>>()
+            .join(", ")
+    };
+    writeln!(out, "   inputs (increment {}):", c.increment)?;
+    for (what, v) in [
+        ("F0", &c.f0),
+        ("F1", &c.f1),
+        ("stress0", &c.stress0),
+        ("state0", &c.state0),
+        ("props", &c.properties),
+        ("temp", &c.temperature),
+        ("time", &c.time),
+    ] {
+        if !v.values.is_empty() {
+            writeln!(out, "     {what:<8}[{}]", line(v))?;
+        }
+    }
+    if let Some(f) = &r.fault {
+        writeln!(out, "   the call faulted: {f}")?;
+    } else if r.identical {
+        writeln!(out, "   outputs: the same as in the case, bit for bit (status, stress, state, tangent)")?;
+    } else {
+        writeln!(out, "   outputs DIFFER from the case: {}", r.differences.join(", "))?;
+    }
+    if !r.stress.is_empty() {
+        let s: Vec<String> = r.stress.iter().map(|x| format!("{x:e}")).collect();
+        writeln!(out, "   stress  [{}]", s.join(", "))?;
+    }
+    if let Some(j) = &r.judged {
+        let size = if j.worst.as_ref().is_some_and(|w| w.row > 5 || w.column > 5) { 9 } else { 6 };
+        judged_lines(out, j, size, p)?;
+    }
+    if let Some(f) = &r.recorded_finding {
+        writeln!(out, "   the case recorded: {f}")?;
+    }
+    writeln!(out, "   debug it with: {}", r.debugger)?;
+    writeln!(out, "verdict: {} (exit {})", p.verdict(word), r.exit_code)
 }

@@ -89,6 +89,12 @@ impl Reporter for Json<'_> {
     fn finite_check(&mut self, report: &tancheck_core::finite::check::FiniteReport) -> io::Result<()> {
         self.put(Kind::FiniteCheck, report)
     }
+    fn finite_bisect(&mut self, outcome: &crate::report::model::FiniteBisectOutcome) -> io::Result<()> {
+        self.put(Kind::FiniteBisect, outcome)
+    }
+    fn finite_replay(&mut self, report: &crate::report::model::FiniteReplayReport) -> io::Result<()> {
+        self.put(Kind::FiniteReplay, report)
+    }
     fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
         self.put(Kind::FiniteProbes, report)
     }

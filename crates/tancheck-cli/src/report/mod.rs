@@ -65,6 +65,12 @@ pub trait Reporter {
         Ok(())
     }
     /// The finite-strain probes (`tancheck probe` on a finite manifest).
+    fn finite_bisect(&mut self, _outcome: &crate::report::model::FiniteBisectOutcome) -> io::Result<()> {
+        Ok(())
+    }
+    fn finite_replay(&mut self, _report: &crate::report::model::FiniteReplayReport) -> io::Result<()> {
+        Ok(())
+    }
     fn finite_probes(&mut self, _report: &FiniteProbeReport) -> io::Result<()> {
         Ok(())
     }
@@ -146,6 +152,12 @@ impl Reporter for Fanout<'_> {
     }
     fn finite_check(&mut self, report: &FiniteReport) -> io::Result<()> {
         self.each(|r| r.finite_check(report))
+    }
+    fn finite_bisect(&mut self, outcome: &crate::report::model::FiniteBisectOutcome) -> io::Result<()> {
+        self.each(|r| r.finite_bisect(outcome))
+    }
+    fn finite_replay(&mut self, report: &crate::report::model::FiniteReplayReport) -> io::Result<()> {
+        self.each(|r| r.finite_replay(report))
     }
     fn finite_probes(&mut self, report: &FiniteProbeReport) -> io::Result<()> {
         self.each(|r| r.finite_probes(report))

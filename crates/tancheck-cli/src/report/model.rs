@@ -205,3 +205,48 @@ pub struct SuiteContext {
     pub path_source: String,
     pub notes: Vec<String>,
 }
+
+/// What `tancheck bisect` found on a finite-strain manifest.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct FiniteBisectOutcome {
+    pub routine: String,
+    pub verdict: Verdict,
+    pub finding: Option<String>,
+    /// The first failing increment (1-based, in the path checked), when one failed.
+    pub increment: Option<usize>,
+    /// That increment judged again on its own.
+    pub judged: Option<tancheck_core::finite::check::FiniteIncrement>,
+    /// Where inside it the verdict changes.
+    pub fraction: Option<tancheck_core::finite::locate::FractionFound>,
+    /// The case file written.
+    pub case: Option<String>,
+    pub warnings: Vec<String>,
+    pub exit_code: i32,
+    pub cautions: Vec<String>,
+    pub check: tancheck_core::finite::check::FiniteReport,
+}
+
+/// What `tancheck replay` found on a finite-strain case.
+#[derive(Clone, Debug, Serialize, JsonSchema)]
+pub struct FiniteReplayReport {
+    pub case: String,
+    pub routine: String,
+    /// Where the case came from, in words.
+    pub origin: String,
+    pub warnings: Vec<String>,
+    /// The call's inputs as the case holds them.
+    pub call: tancheck_core::finite::case::FiniteCaseCall,
+    /// Whether status, stress, state and tangent came back the same bit for bit.
+    pub identical: bool,
+    /// The outputs that differ from the saved ones.
+    pub differences: Vec<String>,
+    pub fault: Option<String>,
+    /// The call judged again (errors, worst entries, cause).
+    pub judged: Option<tancheck_core::finite::check::FiniteIncrement>,
+    pub stress: Vec<f64>,
+    pub pass: bool,
+    pub recorded_finding: Option<String>,
+    /// The command that reruns the replay under a debugger.
+    pub debugger: String,
+    pub exit_code: i32,
+}

@@ -33,6 +33,8 @@ enum Body {
     Selftest(SelftestReport),
     FiniteCheck(tancheck_core::finite::check::FiniteReport),
     FiniteProbes(tancheck_core::finite::probe::FiniteProbeReport),
+    FiniteBisect(crate::report::model::FiniteBisectOutcome),
+    FiniteReplay(crate::report::model::FiniteReplayReport),
     Explore(tancheck_core::explore::ExploreReport),
     Block(super::block::BlockDocument),
     Demo(DemoReport),
@@ -132,7 +134,7 @@ struct Incomplete {
 #[derive(JsonSchema)]
 #[schemars(
     title = "tancheck report",
-    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes, demo; last-words, isolated-fault and incomplete for a run that did not finish) or by its C API."
+    description = "A JSON report written by tancheck (check, probe, bisect, replay, cases, selftest, explore, block, finite-check, finite-probes, finite-bisect, finite-replay, demo; last-words, isolated-fault and incomplete for a run that did not finish) or by its C API."
 )]
 #[allow(dead_code)] // only its schema is used
 struct ReportFile {

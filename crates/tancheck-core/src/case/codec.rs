@@ -181,12 +181,11 @@ impl Case {
             ) {
                 (Some("tancheck-report"), Some(kind)) => Some(format!("a tancheck report of kind `{kind}`")),
                 (Some(f), _) => Some(format!("a file of format `{f}`")),
-                // A finite-strain manifest has no case files (bisect refuses it): the
-                // advice would send the user to a command that says no (a user-style sweep).
+                // A finite-strain manifest: its cases are written by bisect on it, in their
+                // own format (a `finite` section and a `call`; `tancheck replay` reads them).
                 _ if v.get("finite").is_some() && v.get("call").is_none() => Some(
-                    "a finite-strain manifest (its checks write no case files: rerun `tancheck check` on \
-                         it)"
-                    .to_string(),
+                    "a finite-strain manifest (`tancheck bisect` on it writes its finite-strain case files)"
+                        .to_string(),
                 ),
                 _ if v.get("routine").is_some() && v.get("call").is_none() => Some("a manifest".to_string()),
                 _ if v.is_array() => Some("a JSON array".to_string()),

@@ -380,9 +380,8 @@ pub struct Case {
     pub path: Option<CasePath>,
 }
 
-/// Where case files come from, after "not a case": `bisect` writes them, except for a
-/// finite-strain manifest, which `bisect` refuses (the words of [`CaseProblem::NotACase`]
-/// say so themselves).
+/// Where case files come from, after "not a case": `bisect` writes them (for a
+/// finite-strain manifest the words of [`CaseProblem::NotACase`] say so themselves).
 fn case_advice(what: &str) -> &'static str {
     if what.starts_with("a finite-strain") {
         ""

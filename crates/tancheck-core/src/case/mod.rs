@@ -29,6 +29,11 @@ pub use crate::call_check::FAULT_FINDING;
 pub use format::*;
 pub use replay::{driver_for, replay, Replay};
 
+/// Pretty JSON with every array of plain values on one line (how case files are written).
+pub fn compact_json(pretty: &str) -> String {
+    codec::compact_arrays(pretty)
+}
+
 #[cfg(test)]
 mod tests {
     use super::codec::compact_arrays;

@@ -5,8 +5,8 @@
 use serde::{Deserialize, Serialize};
 
 use super::causes::{diagnose, rel_error, FiniteCause};
-use super::mat3;
-use super::numeric::{self, Ask, Difference, Workspace};
+use super::mat3::{self, Mat3};
+use super::numeric::{self, Ask, Difference, Result1, Start, Workspace};
 use super::path::{path_start, FinitePath};
 use super::routine::FiniteRoutine;
 use crate::report::{Verdict, CAUTIONS};
@@ -123,17 +123,29 @@ pub fn run(
     path: &FinitePath,
     settings: FiniteSettings,
 ) -> FiniteReport {
+    run_checked(r, properties, state0, path, settings).0
+}
+
+/// [`run`], with the path the report is of: `path` itself, or the path cut where the routine
+/// asked for smaller increments (what bisect walks to a failing increment).
+pub fn run_checked(
+    r: &mut dyn FiniteRoutine,
+    properties: &[f64],
+    state0: &[f64],
+    path: &FinitePath,
+    settings: FiniteSettings,
+) -> (FiniteReport, FinitePath) {
     let (report, asked_smaller) = run_path(r, properties, state0, path, settings);
-    let mut report = if !asked_smaller {
-        report
+    let (mut report, checked) = if !asked_smaller {
+        (report, path.clone())
     } else {
         match super::cutback::cut(r, properties, state0, path) {
             Some(cut) => {
                 let (mut again, _) = run_path(r, properties, state0, &cut.path, settings);
                 again.notes.push(cut.note(path.gradients.len() - 1));
-                again
+                (again, cut.path)
             }
-            None => report,
+            None => (report, path.clone()),
         }
     };
     // A path on which the volume never changes (J = 1: simple shear, the default) cannot show a
@@ -148,7 +160,7 @@ pub fn run(
                 .into(),
         );
     }
-    report
+    (report, checked)
 }
 
 /// [`run`] on `path` as given, and whether it stopped at a base call that asked for a smaller
@@ -162,7 +174,6 @@ fn run_path(
 ) -> (FiniteReport, bool) {
     let info = r.info().clone();
     let twin = r.has_complex();
-    let n = info.tangent.size();
     let mut ws = Workspace::new(info.nstate, info.nproperties);
     let mut report = FiniteReport {
         routine: info.name.clone(),
@@ -184,153 +195,30 @@ fn run_path(
     };
     let mut start = path_start(properties, state0, path);
     let mut asked_smaller = false;
-    let mut central = vec![0.0; n * n];
-    let mut complex = vec![0.0; n * n];
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
         start.increment = k as i32;
         start.time[1] = path.dtime.get(k - 1).copied().unwrap_or(1.0);
-        let base = match ws.call_full(r, &start, f1) {
-            Ok(b) => b,
-            Err(e) => {
+        let judged = match judge(r, &mut ws, &start, f1, settings) {
+            Ok(j) => j,
+            Err(JudgeFault { base: true, fault }) => {
                 asked_smaller =
-                    matches!(e, Fault::Status { status: s, .. } if s == status::SMALLER_INCREMENT);
-                report.fault = Some(format!("increment {k}: {e}"));
+                    matches!(fault, Fault::Status { status: s, .. } if s == status::SMALLER_INCREMENT);
+                report.fault = Some(format!("increment {k}: {fault}"));
+                break;
+            }
+            Err(JudgeFault { fault, .. }) => {
+                report.fault = Some(format!("increment {k}, a perturbed call: {fault}"));
                 break;
             }
         };
-        let ask = |how| Ask { measure: info.tangent, stress: info.stress, how };
-        let central_ask = ask(Difference::Central(settings.central_step));
-        if let Err(e) = numeric::tangent(r, &mut ws, &start, f1, central_ask, &mut central) {
-            report.fault = Some(format!("increment {k}, a perturbed call: {e}"));
-            break;
+        report.notes.extend(judged.notes.iter().map(|n| format!("increment {k}: {n}")));
+        if judged.twin_not_safe {
+            report.twin_not_safe.get_or_insert(k);
         }
-        let complex_ask = ask(Difference::ComplexStep(settings.complex_step));
-        let mut with_twin =
-            twin && numeric::tangent(r, &mut ws, &start, f1, complex_ask, &mut complex).is_ok();
-        // A twin whose complex-step tangent disagrees with the central differences is not
-        // complex-step safe: set it aside and judge with the central differences.
-        let twin_gap = with_twin.then(|| rel_error(&complex, &central));
-        if let Some(gap) = twin_gap.filter(|&g| g > settings.tolerance) {
-            // The central differences' own error (truncation at a large step, rounding at a
-            // tight tolerance) is no fault of the twin: at a tenth of the step a wrong twin's
-            // gap stays (a plateau), the central differences' shrinks (truncation) or grows
-            // (rounding). A correct routine failed with its exact twin blamed at a central step
-            // of 1e-4 (a user-style sweep).
-            let small_ask = ask(Difference::Central(0.1 * settings.central_step));
-            let mut small = vec![0.0; n * n];
-            let gap_small = numeric::tangent(r, &mut ws, &start, f1, small_ask, &mut small)
-                .ok()
-                .map(|()| rel_error(&complex, &small));
-            match gap_small {
-                Some(g2) if !(0.5 * gap..=2.0 * gap).contains(&g2) => report.notes.push(format!(
-                    "increment {k}: the complex step and the central differences differ by {gap:.2e} at the \
-                     central step {:.1e} and by {g2:.2e} at a tenth of it: the central differences' own \
-                     error (truncation or rounding), not the twin's; the complex step judges",
-                    settings.central_step
-                )),
-                _ => {
-                    with_twin = false;
-                    report.twin_not_safe.get_or_insert(k);
-                }
-            }
-        }
-        let (reference, reference_ask) =
-            if with_twin { (&complex, complex_ask) } else { (&central, central_ask) };
-        let error_central = rel_error(&base.tangent, &central);
-        let error_complex = twin_gap.map(|_| rel_error(&base.tangent, &complex));
-        let error_judged = if with_twin { error_complex } else { None };
-        let error = error_judged.unwrap_or(error_central);
-        // Every output a finite number (a NaN state passes on to the next increment unseen
-        // by the tangent's error).
-        let finite = base.tangent.iter().chain(&base.stress).chain(&base.state).all(|x| x.is_finite());
-        let mut passed = error <= settings.tolerance && finite;
-        // A failed increment on a kink whose every column is one of its own sides passes (the
-        // central difference straddles the switch), and the twin is not blamed there (a fibre
-        // at a stretch of exactly 1 under simple shear failed, its twin blamed, found by a
-        // user-style sweep).
-        let mut neither_side = None;
-        if (!passed || twin_gap.is_some_and(|g| g > settings.tolerance)) && finite {
-            let kink = super::kink::on_a_kink(
-                r,
-                &mut ws,
-                &start,
-                f1,
-                central_ask,
-                base.stress,
-                &base.tangent,
-                settings.central_step,
-                settings.tolerance,
-            );
-            let on_kink = matches!(
-                kink,
-                Ok(super::kink::KinkVerdict::Neither(_) | super::kink::KinkVerdict::OnSides(_))
-            );
-            if let Ok(super::kink::KinkVerdict::Neither(words)) = kink {
-                passed = false;
-                neither_side = Some(words);
-            } else if let Ok(super::kink::KinkVerdict::OnSides(words)) = kink {
-                passed = true;
-                // The complex step does not cross the switch: at the point it takes one side or
-                // the other (by the sign of a real part that is zero there), whichever side the
-                // routine's own tangent takes; it is not held against the twin here.
-                report.notes.push(format!("increment {k}: {words}"));
-            }
-            if on_kink && report.twin_not_safe == Some(k) {
-                report.twin_not_safe = None;
-            }
-        }
-        let entry = |e: usize| WorstEntry {
-            row: e % n,
-            column: e / n,
-            returned: base.tangent[e],
-            numerical: reference[e],
-        };
-        let gap = |e: usize| (base.tangent[e] - reference[e]).abs();
-        let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b))).map(entry);
-        // Largest first, ties in entry order; only for a failure (a passing increment's
-        // differences are rounding), and only entries that differ.
-        let worst_entries = if passed {
-            Vec::new()
-        } else {
-            let mut order: Vec<usize> = (0..n * n).filter(|&e| gap(e) > 0.0 || gap(e).is_nan()).collect();
-            order.sort_by(|&a, &b| gap(b).total_cmp(&gap(a)).then(a.cmp(&b)));
-            order.into_iter().take(WORST_ENTRIES).map(entry).collect()
-        };
-        let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
-        let non_finite =
-            [("stress", &base.stress[..]), ("state", &base.state[..]), ("tangent", &base.tangent[..])]
-                .into_iter()
-                .find_map(|(name, a)| a.iter().position(|x| !x.is_finite()).map(|i| (name, i, a[i])));
-        let cause = if passed {
-            None
-        } else if let Some(words) = neither_side {
-            Some(FiniteCause { name: "kink-neither-side".into(), explanation: words, error: error_central })
-        } else if let Some((name, i, v)) = non_finite {
-            // A value the routine computed (an unwritten one is the guards' fault): no
-            // measure or factor explains it.
-            Some(FiniteCause {
-                name: "non-finite-output".into(),
-                explanation: format!(
-                    "the routine returned {name}[{i}] = {v}: a division by zero, a logarithm or root of a \
-                     negative number, or an overflow in the update (or, with the guards off, an entry it \
-                     never wrote)"
-                ),
-                error: f64::INFINITY,
-            })
-        } else {
-            let reference = reference.clone();
-            diagnose(r, &mut ws, &start, f1, &tau, &base.tangent, &reference, reference_ask)
-        };
-        report.increments.push(FiniteIncrement {
-            increment: k,
-            gradient: mat3::to_flat(f1),
-            error_central,
-            error_complex,
-            passed,
-            worst,
-            worst_entries,
-            cause,
-        });
+        let mut inc = judged.increment;
+        inc.increment = k;
+        report.increments.push(inc);
+        let base = judged.base;
         start.f0 = *f1;
         start.time[0] += start.time[1];
         start.stress0 = base.stress;
@@ -359,4 +247,171 @@ fn run_path(
     }
     report.exit_code = report.verdict.exit_code();
     (report, asked_smaller)
+}
+
+/// One increment judged: its verdict and numbers (`increment` left 0 for the caller to set),
+/// the base call's outputs, notes for the report (without the increment's number), and
+/// whether the twin was found not complex-step safe here.
+#[derive(Clone, Debug)]
+pub struct Judged {
+    pub increment: FiniteIncrement,
+    pub base: Result1,
+    pub notes: Vec<String>,
+    pub twin_not_safe: bool,
+}
+
+/// A call of [`judge`] that faulted: the base call (`base`) or a perturbed one.
+#[derive(Clone, Debug)]
+pub struct JudgeFault {
+    pub base: bool,
+    pub fault: Fault,
+}
+
+/// Judge the increment from `start` to `f1`: the base call, the numerical tangents, the kink
+/// look and, where it fails, the cause. The check makes this for every increment of its path;
+/// bisect for fractions of a failing one, replay for a case's call.
+pub fn judge(
+    r: &mut dyn FiniteRoutine,
+    ws: &mut Workspace,
+    start: &Start,
+    f1: &Mat3<f64>,
+    settings: FiniteSettings,
+) -> Result<Judged, JudgeFault> {
+    let info = r.info().clone();
+    let twin = r.has_complex();
+    let n = info.tangent.size();
+    let mut notes = Vec::new();
+    let mut twin_not_safe = false;
+    let base = ws.call_full(r, start, f1).map_err(|fault| JudgeFault { base: true, fault })?;
+    let perturbed = |fault| JudgeFault { base: false, fault };
+    let mut central = vec![0.0; n * n];
+    let mut complex = vec![0.0; n * n];
+    let ask = |how| Ask { measure: info.tangent, stress: info.stress, how };
+    let central_ask = ask(Difference::Central(settings.central_step));
+    numeric::tangent(r, ws, start, f1, central_ask, &mut central).map_err(perturbed)?;
+    let complex_ask = ask(Difference::ComplexStep(settings.complex_step));
+    let mut with_twin = twin && numeric::tangent(r, ws, start, f1, complex_ask, &mut complex).is_ok();
+    // A twin whose complex-step tangent disagrees with the central differences is not
+    // complex-step safe: set it aside and judge with the central differences.
+    let twin_gap = with_twin.then(|| rel_error(&complex, &central));
+    if let Some(gap) = twin_gap.filter(|&g| g > settings.tolerance) {
+        // The central differences' own error (truncation at a large step, rounding at a
+        // tight tolerance) is no fault of the twin: at a tenth of the step a wrong twin's
+        // gap stays (a plateau), the central differences' shrinks (truncation) or grows
+        // (rounding). A correct routine failed with its exact twin blamed at a central step
+        // of 1e-4 (a user-style sweep).
+        let small_ask = ask(Difference::Central(0.1 * settings.central_step));
+        let mut small = vec![0.0; n * n];
+        let gap_small = numeric::tangent(r, ws, start, f1, small_ask, &mut small)
+            .ok()
+            .map(|()| rel_error(&complex, &small));
+        match gap_small {
+            Some(g2) if !(0.5 * gap..=2.0 * gap).contains(&g2) => notes.push(format!(
+                "the complex step and the central differences differ by {gap:.2e} at the central step {:.1e} \
+                 and by {g2:.2e} at a tenth of it: the central differences' own error (truncation or \
+                 rounding), not the twin's; the complex step judges",
+                settings.central_step
+            )),
+            _ => {
+                with_twin = false;
+                twin_not_safe = true;
+            }
+        }
+    }
+    let (reference, reference_ask) =
+        if with_twin { (&complex, complex_ask) } else { (&central, central_ask) };
+    let error_central = rel_error(&base.tangent, &central);
+    let error_complex = twin_gap.map(|_| rel_error(&base.tangent, &complex));
+    let error_judged = if with_twin { error_complex } else { None };
+    let error = error_judged.unwrap_or(error_central);
+    // Every output a finite number (a NaN state passes on to the next increment unseen
+    // by the tangent's error).
+    let finite = base.tangent.iter().chain(&base.stress).chain(&base.state).all(|x| x.is_finite());
+    let mut passed = error <= settings.tolerance && finite;
+    // A failed increment on a kink whose every column is one of its own sides passes (the
+    // central difference straddles the switch), and the twin is not blamed there (a fibre
+    // at a stretch of exactly 1 under simple shear failed, its twin blamed, found by a
+    // user-style sweep).
+    let mut neither_side = None;
+    if (!passed || twin_gap.is_some_and(|g| g > settings.tolerance)) && finite {
+        let kink = super::kink::on_a_kink(
+            r,
+            ws,
+            start,
+            f1,
+            central_ask,
+            base.stress,
+            &base.tangent,
+            settings.central_step,
+            settings.tolerance,
+        );
+        let on_kink =
+            matches!(kink, Ok(super::kink::KinkVerdict::Neither(_) | super::kink::KinkVerdict::OnSides(_)));
+        if let Ok(super::kink::KinkVerdict::Neither(words)) = kink {
+            passed = false;
+            neither_side = Some(words);
+        } else if let Ok(super::kink::KinkVerdict::OnSides(words)) = kink {
+            passed = true;
+            // The complex step does not cross the switch: at the point it takes one side or
+            // the other (by the sign of a real part that is zero there), whichever side the
+            // routine's own tangent takes; it is not held against the twin here.
+            notes.push(words);
+        }
+        if on_kink {
+            twin_not_safe = false;
+        }
+    }
+    let entry = |e: usize| WorstEntry {
+        row: e % n,
+        column: e / n,
+        returned: base.tangent[e],
+        numerical: reference[e],
+    };
+    let gap = |e: usize| (base.tangent[e] - reference[e]).abs();
+    let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b))).map(entry);
+    // Largest first, ties in entry order; only for a failure (a passing increment's
+    // differences are rounding), and only entries that differ.
+    let worst_entries = if passed {
+        Vec::new()
+    } else {
+        let mut order: Vec<usize> = (0..n * n).filter(|&e| gap(e) > 0.0 || gap(e).is_nan()).collect();
+        order.sort_by(|&a, &b| gap(b).total_cmp(&gap(a)).then(a.cmp(&b)));
+        order.into_iter().take(WORST_ENTRIES).map(entry).collect()
+    };
+    let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
+    let non_finite =
+        [("stress", &base.stress[..]), ("state", &base.state[..]), ("tangent", &base.tangent[..])]
+            .into_iter()
+            .find_map(|(name, a)| a.iter().position(|x| !x.is_finite()).map(|i| (name, i, a[i])));
+    let cause = if passed {
+        None
+    } else if let Some(words) = neither_side {
+        Some(FiniteCause { name: "kink-neither-side".into(), explanation: words, error: error_central })
+    } else if let Some((name, i, v)) = non_finite {
+        // A value the routine computed (an unwritten one is the guards' fault): no
+        // measure or factor explains it.
+        Some(FiniteCause {
+            name: "non-finite-output".into(),
+            explanation: format!(
+                "the routine returned {name}[{i}] = {v}: a division by zero, a logarithm or root of a \
+                 negative number, or an overflow in the update (or, with the guards off, an entry it \
+                 never wrote)"
+            ),
+            error: f64::INFINITY,
+        })
+    } else {
+        let reference = reference.clone();
+        diagnose(r, ws, start, f1, &tau, &base.tangent, &reference, reference_ask)
+    };
+    let increment = FiniteIncrement {
+        increment: 0,
+        gradient: mat3::to_flat(f1),
+        error_central,
+        error_complex,
+        passed,
+        worst,
+        worst_entries,
+        cause,
+    };
+    Ok(Judged { increment, base, notes, twin_not_safe })
 }

@@ -3,12 +3,15 @@
 //! causes, and the objectivity probes.
 //!
 //! Data flow: [`mat3`] → [`measure`] → [`routine`] → [`numeric`] → [`path`] → [`causes`] →
-//! [`check`] (with `cutback` and `kink`) → [`probe`].
+//! [`check`] (with `cutback` and `kink`) → [`probe`]; [`locate`] and [`case`] bisect a
+//! failing check and write and replay its case.
 
+pub mod case;
 pub mod causes;
 pub mod check;
 mod cutback;
 mod kink;
+pub mod locate;
 pub mod mat3;
 pub mod measure;
 pub mod numeric;

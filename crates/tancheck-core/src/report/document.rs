@@ -26,6 +26,10 @@ pub enum Kind {
     FiniteCheck,
     /// The finite-strain probes.
     FiniteProbes,
+    /// Bisect of a finite-strain check.
+    FiniteBisect,
+    /// The replay of a finite-strain case.
+    FiniteReplay,
     Explore,
     /// The checks of a block routine (explicit dynamics).
     Block,
@@ -43,6 +47,8 @@ impl Kind {
             Kind::Selftest => "selftest",
             Kind::FiniteCheck => "finite-check",
             Kind::FiniteProbes => "finite-probes",
+            Kind::FiniteBisect => "finite-bisect",
+            Kind::FiniteReplay => "finite-replay",
             Kind::Explore => "explore",
             Kind::Block => "block",
             Kind::Demo => "demo",

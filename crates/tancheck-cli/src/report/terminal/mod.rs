@@ -75,6 +75,12 @@ impl Reporter for Terminal<'_> {
         let (quiet, verbose) = (self.detail == Detail::Quiet, self.detail == Detail::Verbose);
         super::finite::write_check(&mut self.out, report, quiet, verbose, self.palette)
     }
+    fn finite_bisect(&mut self, outcome: &crate::report::model::FiniteBisectOutcome) -> io::Result<()> {
+        super::finite::write_bisect(&mut self.out, outcome, self.detail == Detail::Quiet, self.palette)
+    }
+    fn finite_replay(&mut self, report: &crate::report::model::FiniteReplayReport) -> io::Result<()> {
+        super::finite::write_replay(&mut self.out, report, self.detail == Detail::Quiet, self.palette)
+    }
     fn finite_probes(&mut self, report: &tancheck_core::finite::probe::FiniteProbeReport) -> io::Result<()> {
         super::finite::write_probes(&mut self.out, report, self.detail == Detail::Quiet, self.palette)
     }
