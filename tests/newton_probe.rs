@@ -304,3 +304,45 @@ fn a_tangent_singular_only_because_it_is_wrong_is_not_excused() {
     let result = NewtonRate.run(&mut caller, &env).unwrap();
     assert_eq!(result.status, ProbeStatus::Fail, "{}", result.summary);
 }
+
+// A correct tangent whose Newton solve from the increment's start is pre-asymptotic: a ply
+// with damage and viscous lag (tests/routines/ply_lag.c, made-up numbers), whose second
+// increment's solve crosses the damage onset and read order 1.43 from [9.65, 3.88, 1.24e-2,
+// 3.42e-6, 8.32e-14] (its last residual too near rounding to give an order) and failed; the
+// tangent is the derivative (the check passes, complex step and central differences). Started
+// near the solution, it shows its order; the variant without the viscous factor in its
+// tangent still fails.
+#[test]
+fn a_pre_asymptotic_start_is_solved_again_from_near_the_solution() {
+    use std::process::Command;
+    let lib = tancheck_testkit::libs::build_once("ply_lag", &["tests/routines/ply_lag.c"]);
+    let dir = tancheck_testkit::libs::scratch("newton-ply-lag");
+    let suite = dir.join("suite.json");
+    std::fs::write(&suite, r#"{ "suite": "rate", "probes": [{ "probe": "newton" }] }"#).unwrap();
+    let run = |args: &[&str]| {
+        let o = Command::new(env!("CARGO_BIN_EXE_tancheck")).args(args).output().unwrap();
+        (o.status.code().unwrap_or(-1), tancheck_testkit::libs::output_text(&o))
+    };
+    for (symbol, want) in [("lag_ply", 0), ("lag_ply_no_viscous_factor", 1)] {
+        let m = dir.join(format!("{symbol}.json"));
+        let inc = r#"{ "dstrain": [0, 0.002, 0, 0, 0, 0.004], "dtime": 1.0 }"#;
+        std::fs::write(
+            &m,
+            format!(
+                r#"{{ "routine": {{ "library": "{}", "symbol": "{symbol}", "kind": "plane-stress", "states": 6,
+                     "properties": [140000, 10000, 0.3, 5000, 0.015, 0.03, 0.01, 0.025, 0.005, 0.02, 0.5, 0.5] }},
+                   "path": {{ "increments": [{inc}, {inc}, {inc}] }} }}"#,
+                lib.display()
+            ),
+        )
+        .unwrap();
+        let m = m.display().to_string();
+        let (code, out) = run(&["check", &m]);
+        assert_eq!(code, want, "{symbol} check: {out}");
+        let (code, out) = run(&["probe", &m, "--suite", suite.to_str().unwrap(), "-v"]);
+        assert_eq!(code, want, "{symbol} newton: {out}");
+        if want == 0 {
+            assert!(out.contains("started at 90 % of the increment: from its start the residuals"), "{out}");
+        }
+    }
+}

@@ -89,6 +89,12 @@ pub struct IncrementSolve {
     /// (these are the residuals of that solve, its numerical fallback's when it fell back),
     /// and the solve above started near the solution instead (see [`NEAR`]).
     pub diverged_from_start: Option<Vec<f64>>,
+    /// From the start of the increment Newton with the routine's tangent converged faster than
+    /// linearly but below the lowest acceptable order (these are its residuals), and the solve
+    /// above, started near the solution instead (see [`NEAR`]), shows that order: the first
+    /// steps were pre-asymptotic (a correct ply tangent read 1.43 from [9.65, 3.88, 1.24e-2,
+    /// 3.42e-6, 8.32e-14], its first step across the damage onset; a user-style sweep).
+    pub slow_from_start: Option<Vec<f64>>,
     /// The solve converged to the path's stresses at another solution than the path's (other
     /// state variables or strains, in words): a softening law reaches the same stresses on its
     /// unloading branch. The increment is not judged (a secant tangent passed so, the solve
@@ -123,6 +129,24 @@ impl IncrementSolve {
     pub fn judged_order(&self) -> Option<f64> {
         let p = self.order()?;
         (self.orders.len() > 1 || !(FROM_START_LINEAR..DEFAULT_MIN_ORDER).contains(&p)).then_some(p)
+    }
+    /// Fill `usable`, `orders` and `tail_order` from the log (`scale`: the stress scale of
+    /// the rounding floor). After a numerical fallback the residuals are not the routine
+    /// tangent's, and none is used.
+    fn read_orders(&mut self, scale: f64) {
+        let log = &self.log;
+        self.usable = if log.numerical_fallback {
+            Vec::new()
+        } else {
+            log.residuals.iter().cloned().filter(|&r| r > FLOOR * scale).collect()
+        };
+        self.orders =
+            SolveLog { residuals: self.usable.clone(), converged: true, numerical_fallback: false }.orders();
+        self.tail_order = if log.numerical_fallback {
+            None
+        } else {
+            tail_order(&log.residuals, FLOOR * scale, TAIL_LOWEST * scale)
+        };
     }
     /// Converged with the routine's own tangent.
     pub fn converged(&self) -> bool {
@@ -186,7 +210,7 @@ pub fn study(
         let mut diverged_from_start = None;
         if failure.is_none() && log.numerical_fallback {
             // Again from near the solution (the path's own increment).
-            let mut t = fresh;
+            let mut t = fresh.clone();
             let mut near = de.clone();
             for &i in &controlled {
                 near[i] = NEAR * d.dstrain()[i] + (1.0 - NEAR) * start;
@@ -198,33 +222,49 @@ pub fn study(
                 (log, failure) = (l, None);
             }
         }
-        // The residuals of the routine's tangent only: after a fallback they are the
-        // numerical tangent's, and they are not used.
-        let usable: Vec<f64> = if log.numerical_fallback {
-            Vec::new()
-        } else {
-            log.residuals.iter().cloned().filter(|&r| r > FLOOR * scale).collect()
-        };
-        let orders =
-            SolveLog { residuals: usable.clone(), converged: true, numerical_fallback: false }.orders();
-        let tail_order = if log.numerical_fallback {
-            None
-        } else {
-            tail_order(&log.residuals, FLOOR * scale, TAIL_LOWEST * scale)
-        };
-        out.push(IncrementSolve {
+        let mut solve = IncrementSolve {
             increment: k,
             state_changed,
             log,
             failure,
             refused,
             singular,
-            usable,
-            orders,
-            tail_order,
+            usable: Vec::new(),
+            orders: Vec::new(),
+            tail_order: None,
             diverged_from_start,
+            slow_from_start: None,
             elsewhere,
-        });
+        };
+        solve.read_orders(scale);
+        // Faster than linear but slower than the lowest acceptable order, from the start: the
+        // first steps may cross a kink (a damage onset) or start far away, so that the orders
+        // read are pre-asymptotic. Again from near the solution; a correct tangent shows its
+        // order there, a wrong one converges linearly there too and the first solve stands.
+        let min_order = env.spec.tol.unwrap_or(DEFAULT_MIN_ORDER);
+        let slow = solve.converged()
+            && solve.elsewhere.is_none()
+            && solve.judged_order().is_some_and(|p| (FROM_START_LINEAR..min_order).contains(&p));
+        if slow {
+            let mut t = fresh;
+            let mut near = de.clone();
+            for &i in &controlled {
+                near[i] = NEAR * d.dstrain()[i] + (1.0 - NEAR) * start;
+            }
+            t.set_dstrain(&near);
+            if let Ok(l) = mixed::solve_with(&mut t, c, &controlled, &targets, &settings, true, false) {
+                if done(&l) && another_solution(d, &t, &controlled).is_none() {
+                    let mut again = solve.clone();
+                    again.log = l;
+                    again.read_orders(scale);
+                    if again.judged_order().is_some_and(|p| p >= min_order) {
+                        again.slow_from_start = Some(solve.log.residuals.clone());
+                        solve = again;
+                    }
+                }
+            }
+        }
+        out.push(solve);
         Ok(())
     })?;
     Ok(out)
@@ -416,6 +456,15 @@ impl Probe for NewtonRate {
                          can overshoot)",
                         NEAR * 100.0,
                         env.settings.mixed.max_iterations.max(100)
+                    ));
+                }
+                if let Some(r) = &s.slow_from_start {
+                    line.push_str(&format!(
+                        "; started at {:.0} % of the increment: from its start the residuals {} fell faster \
+                         than linearly but below order {min_order} (first steps far from the solution or \
+                         across a kink, pre-asymptotic)",
+                        NEAR * 100.0,
+                        list(r, 2)
                     ));
                 }
                 if s.singular && !s.converged() {

@@ -17,6 +17,7 @@ fn solve(residuals: &[f64], floor: f64) -> IncrementSolve {
         orders,
         tail_order: tail_order(residuals, floor, 10.0 * f64::EPSILON),
         diverged_from_start: None,
+        slow_from_start: None,
         elsewhere: None,
     }
 }
