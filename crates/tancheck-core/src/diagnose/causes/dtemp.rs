@@ -128,7 +128,7 @@ pub fn rank_dtemp(
     }
     along(
         stress,
-        "along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th))",
+        "along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th), or of a strength such as the yield stress)",
         flat.map(|(r, t)| (r.0, t.0)),
     );
     if !cohesive {

@@ -152,10 +152,22 @@ fn finish(mut hs: Vec<Hypothesis>, exact: f64, ncomp: usize, explain_level: f64)
                     | Cause::Uncondensed
             )
     });
+    // The rank-one terms that only describe a shape (a scaled term, one of another direction)
+    // come after such a named tangent too: a Johnson–Cook tangent whose thermal factor was taken at
+    // the start temperature is a hardening term scaled by 1 − 3.9e-4, exactly, and read
+    // `term-scaled` before the `start-temperature` that says why (a user-style sweep).
     let after = |c: Cause| {
         vacuous(c)
             || (ncomp <= 4 && c == Cause::RankTwo)
-            || (named && matches!(c, Cause::ShearModulus | Cause::BulkModulus | Cause::IsotropicModuli))
+            || (named
+                && matches!(
+                    c,
+                    Cause::ShearModulus
+                        | Cause::BulkModulus
+                        | Cause::IsotropicModuli
+                        | Cause::TermScaled
+                        | Cause::RankOneTerm
+                ))
     };
     hs.sort_by(|a, b| {
         b.explains

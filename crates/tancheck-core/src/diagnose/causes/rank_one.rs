@@ -151,6 +151,12 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             // scalar damage routine read −0.76 to −0.87 where the damage grew most in the
             // increment, its elastic reference taken at the start damage), far from any plain
             // scaling: a term scaled by a negative factor is a sign error first.
+            // A factor within 1e-6 of 1 describes no flaw: the term it scales would be a
+            // million times the discrepancy, far larger than any term of a tangent whose error
+            // passed a tolerance of that order; such a discrepancy is the update's own noise (a
+            // local solve stopped at another iterate: a user's Johnson–Cook routine read
+            // "scaled by about 1 − 1.7e-11"). No reading is offered from it.
+            let no_reading = (factor - 1.0).abs() < 1e-6;
             let (cause, detail) = if (factor).abs() < 0.05 {
                 (Cause::TermMissing, format!("one term a⊗b of {of} is missing (factor {factor:.3}{reading}; size {size:.2e} of the norm)"))
             } else if (factor + 1.0).abs() < 0.25 {
@@ -181,7 +187,9 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                     ),
                 )
             };
-            found.push(cause, detail, rest);
+            if !no_reading {
+                found.push(cause, detail, rest);
+            }
             // Rank two only where the second term is more than rounding beside the first (it
             // was offered as "two terms of sizes 2.8e-1 and 0": the rank-one causes above say it).
             if s.len() > 2 && s[1] > RANK_TWO_LEVEL * s[0] {

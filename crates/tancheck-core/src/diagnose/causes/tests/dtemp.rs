@@ -51,8 +51,8 @@ fn a_dtemp_term_of_the_wrong_sign_is_told_from_a_missing_one() {
     for (returned, words) in [
         (dt(a, 0.0), "misses its term along C:1"),
         (dt(a, -b), "has its term along C:1 (the thermal expansion, −C:1 ε_th′) with the wrong sign"),
-        (dt(-a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th)) with the wrong sign"),
-        (dt(0.5 * a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th)) off by a factor 0.5000"),
+        (dt(-a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th), or of a strength such as the yield stress) with the wrong sign"),
+        (dt(0.5 * a, b), "has its term along the stress (the temperature dependence of the stiffness, C′(T):(ε − ε_th), or of a strength such as the yield stress) off by a factor 0.5000"),
     ] {
         let hs = rank_dtemp(&conv, &returned, &truth, &stress, 1e-6, 1e-2);
         assert!(hs[0].explains && hs[0].detail.contains(words), "{words}: {hs:?}");

@@ -129,3 +129,48 @@ fn a_scaled_pure_shear_term_is_no_shear_factor() {
     let h = rank(&ev(&conv, &bad, &good, &z));
     assert_ne!(h[0].cause, Cause::ShearFactor, "{h:#?}");
 }
+
+/// A tangent taken at the start temperature, named by `start-temperature` (its discrepancy
+/// shrinks with the temperature increment alone), is also exactly a hardening term scaled by
+/// a factor near 1: the named tangent leads the shape-only `term-scaled` (a user's
+/// Johnson–Cook routine read `term-scaled`, factor 1 − 3.9e-4, first). On three or six
+/// components alike; an exact `rank-two` keeps its place on six (the test in plane.rs).
+#[test]
+fn a_named_tangent_leads_the_shape_only_rank_one_terms() {
+    let h = |cause, error_left| Hypothesis { cause, detail: String::new(), error_left, explains: true };
+    for ncomp in [3, 6] {
+        for shape in [Cause::TermScaled, Cause::RankOneTerm] {
+            let hs = vec![h(shape, 6.5e-17), h(Cause::StartTemperature, 1.08e-6)];
+            assert_eq!(super::super::finish(hs, 1e-9, ncomp, 1e-3)[0].cause, Cause::StartTemperature);
+        }
+    }
+    // One that explains only loosely (not a decade inside the band) does not.
+    let hs = vec![h(Cause::TermScaled, 6.5e-17), h(Cause::StartTemperature, 5e-4)];
+    assert_eq!(super::super::finish(hs, 1e-9, 6, 1e-3)[0].cause, Cause::TermScaled);
+}
+
+/// The J2 plastic correction −2μθ̄ n⊗n (θ̄ of the worked case, REFERENCES.md) returned with a
+/// factor within 1e-6 of 1 gives no `term-scaled` reading (a factor that close to 1 describes
+/// no flaw: a user's routine whose local solve stopped at another iterate read "scaled by
+/// about 1 − 1.7e-11"); 1 + 1e-3 still reads as scaled.
+#[test]
+fn a_factor_indistinguishable_from_one_is_no_reading() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good = j2_like();
+    let z = vec![0.0; 6];
+    let nv = [2.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), 0.0, 0.0, 0.0];
+    let mu = 200000.0 / 2.6;
+    let e = elastic_like();
+    for (factor, reads) in [(1.0 + 2e-9, false), (1.0 - 3e-7, false), (1.0 + 1e-3, true)] {
+        let mut bad = good.clone();
+        for j in 0..6 {
+            for i in 0..6 {
+                bad[i + 6 * j] += (1.0 - factor) * 2.0 * mu * crate::worked::J2_THETA_BAR * nv[i] * nv[j];
+            }
+        }
+        let mut evd = ev(&conv, &bad, &good, &z);
+        evd.elastic = Some(&e);
+        let hs = rank(&evd);
+        assert_eq!(hs.iter().any(|h| h.cause == Cause::TermScaled), reads, "factor {factor}: {hs:#?}");
+    }
+}
