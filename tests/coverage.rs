@@ -94,8 +94,11 @@ fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
     let plane =
         note(PointKind::PlaneStrain, "elastic", &elastic, &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
     assert!(plane.is_empty(), "{plane:?}");
-    let shear_on_a_bar =
-        note(PointKind::Uniaxial, "elastic", &elastic, &Path::ramp(Shape::Shear12, 1e-3, 2, 0));
+    let mostly_shear = Path {
+        name: "stretch and much shear".into(),
+        increments: vec![PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 1e-3]); 2],
+    };
+    let shear_on_a_bar = note(PointKind::Uniaxial, "elastic", &elastic, &mostly_shear);
     assert!(shear_on_a_bar.iter().any(|n| n.contains("slot 12")), "{shear_on_a_bar:?}");
     let cohesive = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
     let written = Path {
@@ -110,6 +113,28 @@ fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
     };
     let c = note(PointKind::Cohesive3d, "cohesive", &cohesive, &written);
     assert!(c.iter().any(|n| n.contains("slots 23, 13, 12 (first at increment 4)")), "{c:?}");
+    // A path that lies wholly in slots the kind does not have loads nothing once they are left
+    // out: it is refused, naming them, where every increment passed (a cohesive routine on
+    // shear-12; a user-style sweep). With a temperature change it loads the point, and runs.
+    for (kind, model, props) in
+        [(PointKind::Uniaxial, "elastic", &elastic[..]), (PointKind::Cohesive3d, "cohesive", &cohesive[..])]
+    {
+        let mut r = reference(model, kind).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let shear = Path::ramp(Shape::Shear12, 1e-3, 2, 1);
+        let e = check::run(&mut caller, props, PointState::zero(&info, 20.0), &shear, &Settings::default())
+            .unwrap_err()
+            .to_string();
+        assert!(
+            e.contains("lies in slot 12, which the routine's kind") && e.contains("nothing would be checked"),
+            "{e}"
+        );
+        let mut heated = shear.clone();
+        heated.increments[0].dtemp = 5.0;
+        assert!(check::run(&mut caller, props, PointState::zero(&info, 20.0), &heated, &Settings::default())
+            .is_ok());
+    }
 }
 
 /// The reference J2 whose stress is NaN from increment 3 on.

@@ -75,6 +75,7 @@ fn run_path(
     if !has_twin && settings.schemes.iter().all(|&s| s == Scheme::ComplexStep) {
         return Err(CoreError::ComplexStepWithoutTwin(info.name.clone()));
     }
+    outside_kind(&conv, path)?;
     let mut notes = Vec::new();
     notes.extend(dropped_entries(&conv, path));
     if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
@@ -456,6 +457,39 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
         conv.kind().name(),
         takes.join(", ")
     ))
+}
+
+/// A path whose every strain increment lies in slots the routine's kind does not have, with
+/// no temperature change and no stress target, loads nothing once they are left out: every
+/// increment would pass (a cohesive routine on `shear-12` passed so; a user-style sweep).
+fn outside_kind(conv: &crate::Convention, path: &Path) -> Result<(), CoreError> {
+    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+    let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
+    let moves = path.increments.iter().any(|inc| {
+        used.iter().any(|&s| inc.dstrain[s] != 0.0)
+            || inc.dtemp != 0.0
+            || inc.hold_stress.is_some_and(|h| h.iter().flatten().any(|&t| t != 0.0))
+    });
+    let mut dropped = [false; 6];
+    for inc in &path.increments {
+        for (slot, &d) in inc.dstrain.iter().enumerate() {
+            dropped[slot] |= d != 0.0 && !used.contains(&slot);
+        }
+    }
+    if moves || !dropped.iter().any(|&d| d) {
+        return Ok(());
+    }
+    let slots: Vec<&str> = (0..6).filter(|&i| dropped[i]).map(|i| SLOTS[i]).collect();
+    let takes: Vec<String> = conv
+        .order()
+        .iter()
+        .map(|&c| format!("{} from slot {}", c.label(), SLOTS[crate::convention::canonical_slot(c)]))
+        .collect();
+    Err(CoreError::PathOutsideKind {
+        slots: slots.join(", "),
+        kind: conv.kind().name().to_string(),
+        takes: takes.join(", "),
+    })
 }
 
 /// Notes of one-sided columns (`call_check::ONE_SIDED`) kept for the first

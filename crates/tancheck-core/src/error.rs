@@ -30,6 +30,16 @@ pub enum CoreError {
     #[error("the path has no increments")]
     EmptyPath,
 
+    /// Every increment moves only slots the routine's kind does not have (they are left out):
+    /// nothing would be loaded, and every increment would pass.
+    #[error(
+        "every strain increment of the path lies in slot{} {slots}, which the routine's kind ({kind}) does not \
+         have ({takes}): with them left out nothing is loaded and nothing would be checked; give the path in \
+         the routine's own components",
+        if slots.contains(',') { "s" } else { "" }
+    )]
+    PathOutsideKind { slots: String, kind: String, takes: String },
+
     #[error("the path has {count} increments; at most {max}")]
     TooManyIncrements { count: usize, max: usize },
 
