@@ -113,6 +113,49 @@ pub fn diagnose(
                 ),
                 &x[..36],
             );
+            // The stress terms between the two rates with a wrong factor α (half of them, or
+            // their sign flipped): got = reference + α (other − reference), α by least squares.
+            let (mut num, mut den) = (0.0, 0.0);
+            for k in 0..36 {
+                let d = x[k] - reference[k];
+                num += (got[k] - reference[k]) * d;
+                den += d * d;
+            }
+            let alpha = num / den;
+            if den > 0.0 && alpha.is_finite() && (alpha - 1.0).abs() > 0.05 && alpha.abs() > 0.05 {
+                for k in 0..36 {
+                    x[k] = reference[k] + alpha * (x[k] - reference[k]);
+                }
+                consider(
+                    "rate-terms-scaled",
+                    format!(
+                        "the tangent differs from the {} by {alpha:.3} times its difference from the tangent of \
+                         another rate ({other}), {}: a stress term of the rate with a wrong factor",
+                        m.describe(),
+                        difference_terms(m, o)
+                    ),
+                    &x[..36],
+                );
+            }
+        }
+    }
+    // The shear columns off by 2 (engineering shear where the column of a shear direction
+    // holds tensor components: the derivative along ½(e_i⊗e_j + e_j⊗e_i)), or by ½.
+    if n == 6 {
+        for (factor, words) in [
+            (2.0, "doubled (a derivative along e_i⊗e_j + e_j⊗e_i, twice the tensor shear direction)"),
+            (0.5, "halved (a derivative with respect to the engineering shear γ = 2ε_ij)"),
+        ] {
+            x[..36].copy_from_slice(reference);
+            x[18..36].iter_mut().for_each(|v| *v *= factor);
+            consider(
+                "shear-factor",
+                format!(
+                    "the shear columns (23, 13, 12) are {words}: the column of a shear direction holds the \
+                     derivative along ½(e_i⊗e_j + e_j⊗e_i)"
+                ),
+                &x[..36],
+            );
         }
     }
     // dP/dF without the initial-stress term

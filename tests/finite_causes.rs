@@ -1,0 +1,100 @@
+//! Causes of the finite-strain check for flaws a user-style sweep met unexplained: the shear
+//! columns of a 6 × 6 spatial tangent doubled or halved (the column of a shear direction holds
+//! the derivative along ½(e_i⊗e_j + e_j⊗e_i); an engineering-shear habit doubles it), and the
+//! stress terms of the rate with a wrong factor (half the Jaumann terms d·τ + τ·d, the
+//! difference between the Jaumann and Truesdell tangents of τ; Simo & Hughes 1998 §7, from
+//! memory). The flawed tangents are made from the neo-Hookean model's exact ones (tested
+//! against num-dual in the models crate), so each flaw is exactly the one named.
+
+use tancheck::core::finite::check::{run, FiniteSettings};
+use tancheck::core::finite::path::Superposed;
+use tancheck::core::finite::{
+    FiniteInfo, FiniteInput, FiniteModelRoutine, FiniteOutput, FinitePathSpec, FiniteRoutine,
+};
+use tancheck::core::finite::{StressMeasure, TangentMeasure};
+use tancheck::core::routine::Fault;
+use tancheck::models::finite::NeoHookean;
+
+enum Flaw {
+    None,
+    ShearColumns(f64),
+    /// The Jaumann tangent plus this factor times (Truesdell − Jaumann).
+    RateTerms(f64),
+}
+
+struct Flawed {
+    jaumann: FiniteModelRoutine<NeoHookean>,
+    truesdell: FiniteModelRoutine<NeoHookean>,
+    flaw: Flaw,
+}
+
+impl FiniteRoutine for Flawed {
+    fn info(&self) -> &FiniteInfo {
+        self.jaumann.info()
+    }
+    fn call(
+        &mut self,
+        input: &FiniteInput<'_, f64>,
+        output: &mut FiniteOutput<'_, f64>,
+    ) -> Result<(), Fault> {
+        self.jaumann.call(input, output)?;
+        match self.flaw {
+            Flaw::None => {}
+            Flaw::ShearColumns(f) => output.tangent[18..36].iter_mut().for_each(|x| *x *= f),
+            Flaw::RateTerms(a) => {
+                let j = output.tangent.to_vec();
+                let (mut s, mut st, mut e) = ([0.0; 6], vec![0.0; output.state.len()], [0.0; 2]);
+                let mut t = vec![0.0; 36];
+                let mut o = tancheck::core::routine::Outcome::default();
+                let mut other = FiniteOutput {
+                    stress: &mut s,
+                    state: &mut st,
+                    tangent: &mut t,
+                    energy: &mut e,
+                    outcome: &mut o,
+                };
+                self.truesdell.call(input, &mut other)?;
+                for k in 0..36 {
+                    output.tangent[k] = j[k] + a * (t[k] - j[k]);
+                }
+            }
+        }
+        Ok(())
+    }
+}
+
+fn check(flaw: Flaw) -> tancheck::core::finite::FiniteReport {
+    let k = StressMeasure::Kirchhoff;
+    let mut r = Flawed {
+        jaumann: FiniteModelRoutine(NeoHookean::new(k, TangentMeasure::TauJaumann)),
+        truesdell: FiniteModelRoutine(NeoHookean::new(k, TangentMeasure::TauTruesdell)),
+        flaw,
+    };
+    let path = FinitePathSpec::Biaxial {
+        stretch: [1.3, 0.85],
+        increments: 3,
+        rotation: Some(Superposed { axis: [1.0, -0.5, 0.3], angle: 0.7 }),
+    }
+    .build()
+    .unwrap();
+    run(&mut r, &[1000.0, 0.3], &[], &path, FiniteSettings::default())
+}
+
+#[test]
+fn shear_columns_off_by_two_and_scaled_rate_terms_are_named() {
+    assert_eq!(check(Flaw::None).exit_code, 0);
+    for (f, word) in [(2.0, "doubled"), (0.5, "halved")] {
+        let r = check(Flaw::ShearColumns(f));
+        assert_eq!(r.finding.as_deref(), Some("shear-factor"), "{r:#?}");
+        let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
+        assert!(c.explanation.contains(word), "{}", c.explanation);
+    }
+    for (a, told) in [(0.5, "0.500"), (-1.0, "-1.000")] {
+        let r = check(Flaw::RateTerms(a));
+        assert_eq!(r.finding.as_deref(), Some("rate-terms-scaled"), "{r:#?}");
+        let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
+        assert!(c.explanation.contains(told) && c.explanation.contains("tau-truesdell"), "{}", c.explanation);
+    }
+    // The whole difference is the other rate, as before.
+    assert_eq!(check(Flaw::RateTerms(1.0)).finding.as_deref(), Some("other-rate"));
+}
