@@ -415,3 +415,27 @@ fn a_wrong_shear_declaration_is_warned_of_without_an_elastic_increment() {
     let with_elastic = Path::ramp(Shape::TensionShear, 8e-3, 40, 0);
     assert_eq!(warned(&with_elastic), (false, 1));
 }
+
+/// A path that turns back only where the stress is zero (a cohesive interface opened past its
+/// final separation, 2 G_Ic / N = 0.01 for the bilinear law with N = 60, G_Ic = 0.3 — the
+/// triangle's area — then closed a little while still open) did reverse: the coverage line says
+/// it turned back against no stress, not that it never unloaded (a user-style sweep).
+#[test]
+fn a_reversal_at_zero_stress_is_not_called_no_reversal() {
+    use tancheck::core::path::PathIncrement;
+    let mut r = reference("cohesive", PointKind::Cohesive3d).unwrap();
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let mut increments = vec![PathIncrement::strain([5e-3, 0.0, 0.0, 0.0, 0.0, 0.0]); 4];
+    increments.extend(vec![PathIncrement::strain([-5e-3, 0.0, 0.0, 0.0, 0.0, 0.0]); 2]);
+    let path = Path { name: "open past failure, close a little".into(), increments };
+    let props = [1e5, 60.0, 90.0, 0.3, 0.9, 2.0];
+    let rep =
+        check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default()).unwrap();
+    assert!(
+        rep.coverage.iter().any(|c| c.contains("the path turns back, but never against a stress")),
+        "{:?}",
+        rep.coverage
+    );
+    assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
+}

@@ -274,3 +274,34 @@ fn a_suite_without_a_path_walks_the_manifests() {
     assert_eq!(code, Some(2), "{out}");
     assert!(out.contains("has no `path`"), "{out}");
 }
+
+// A passing tangent probe whose path has an increment cleared on a closer look (the cohesive
+// interface turning back at full failure: its central difference straddles the switch) quotes
+// the worst error of the increments that passed as they were, and the cleared one's apart
+// (it read "consistent at 6 increments (worst error 1.00e0; …)"; a user-style sweep).
+#[test]
+fn a_passing_tangent_probe_quotes_the_cleared_increments_apart() {
+    let d = scratch("cleared");
+    let step = |s: f64| format!(r#"{{"dstrain": [{s}, 0, 0, 0, 0, 0]}}"#);
+    let mut incs = vec![step(5e-3); 4];
+    incs.extend(vec![step(-5e-3); 2]);
+    let m = write(
+        &d,
+        "coh.json",
+        &format!(
+            r#"{{ "routine": {{ "model": "cohesive", "kind": "cohesive-3d", "properties": [1e5, 60, 90, 0.3, 0.9, 2.0] }},
+                 "path": {{ "increments": [{}] }} }}"#,
+            incs.join(", ")
+        ),
+    );
+    let s = write(&d, "s.json", r#"{"suite": "t", "probes": [{"probe": "tangent"}]}"#);
+    let (code, t) = probe(&[m.to_str().unwrap(), "--suite", s.to_str().unwrap()], &d);
+    assert_eq!(code, Some(0), "{t}");
+    let line = t.lines().find(|l| l.contains("tangent ")).unwrap_or_default();
+    assert!(
+        line.contains("consistent at 5 increments (worst error ") && line.contains("1 more cleared"),
+        "{t}"
+    );
+    let worst: f64 = line.split("worst error ").nth(1).unwrap().split(';').next().unwrap().parse().unwrap();
+    assert!(worst < 1e-6, "{line}");
+}

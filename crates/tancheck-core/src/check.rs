@@ -307,11 +307,22 @@ fn run_path(
         ));
     }
     if !unloaded && !stopped && increments.len() > 1 {
-        coverage.push(
+        // A path that turns back where the stress is zero (a fully failed interface, a point
+        // unloaded to zero) did reverse; the words said it never did (a user-style sweep).
+        let reverses = path
+            .increments
+            .windows(2)
+            .any(|w| w[0].dstrain.iter().zip(&w[1].dstrain).map(|(a, b)| a * b).sum::<f64>() < 0.0);
+        coverage.push(if reverses {
+            "the path turns back, but never against a stress (the strain increment never opposed the stress: \
+             where it turned, the stress was zero, as at a fully failed or unloaded point): tangents of \
+             unloading under stress were not checked"
+                .to_string()
+        } else {
             "the path never unloaded (the strain increment never opposed the stress): tangents after a load \
              reversal were not checked"
-                .to_string(),
-        );
+                .to_string()
+        });
     }
     let verdict = if increments.any_fault {
         Verdict::RoutineFault

@@ -40,13 +40,37 @@ impl Probe for Tangent {
         } else if failed.is_empty() {
             // The worst error counts increments whose failed check the closer look cleared (a
             // kink, a poor default step): say so, or a pass would quote a large error bare.
-            let cleared = checked.iter().filter(|i| i.diagnosis.as_ref().is_some_and(|d| d.pass)).count();
-            let aside = if cleared > 0 {
-                format!("; {cleared} of them cleared on a closer look (a kink or a poor default step), which the worst error counts")
-            } else {
-                String::new()
+            // The worst error of the increments that passed as they were, and the cleared
+            // ones' apart (a pass quoting "worst error 1.00e0" read as a contradiction; a
+            // user-style sweep).
+            let is_cleared =
+                |i: &&&crate::report::IncrementResult| i.diagnosis.as_ref().is_some_and(|d| d.pass);
+            let error_of = |i: &&&crate::report::IncrementResult| {
+                i.checks
+                    .iter()
+                    .filter_map(|c| match &c.tangent {
+                        crate::report::CheckOutcome::Compared(x) => {
+                            Some(x.norm_error.max(x.worst_entry_error).max(x.soft_error))
+                        }
+                        _ => None,
+                    })
+                    .fold(0.0, f64::max)
             };
-            format!("consistent at {} increments (worst error {worst:.2e}{aside})", checked.len())
+            let cleared: Vec<f64> = checked.iter().filter(is_cleared).map(|i| error_of(&i)).collect();
+            let plain = checked.iter().filter(|i| !is_cleared(i)).map(|i| error_of(&i)).fold(0.0, f64::max);
+            let aside = if cleared.is_empty() {
+                String::new()
+            } else {
+                format!(
+                    "; {} more cleared on a closer look (a kink or a poor default step), their default checks' worst error {:.2e}",
+                    cleared.len(),
+                    cleared.iter().cloned().fold(0.0, f64::max)
+                )
+            };
+            format!(
+                "consistent at {} increments (worst error {plain:.2e}{aside})",
+                checked.len() - cleared.len()
+            )
         } else if failed.iter().all(|i| {
             i.non_finite.is_empty()
                 && i.fault.is_none()
