@@ -496,6 +496,9 @@ fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
     let t = text(&o);
     assert_eq!(o.status.code(), Some(3), "{t}");
     assert!(t.contains("did not return within 2 s") && t.contains("--isolate"), "{t}");
+    // The last words name the routine of the hung call, not only the campaign (several
+    // routines of one library read alike; a user-style sweep).
+    assert!(t.contains("routine: ") && t.contains("libhang.so:bad_sleep"), "{t}");
     assert!(started.elapsed().as_secs_f64() < 60.0, "took {:?}", started.elapsed());
     // Under --isolate the hanging item is a fault whose message is the worker's last words
     // (it read "the worker ended with exit code 3 without a report"; a user-style sweep).
@@ -513,6 +516,12 @@ fn a_call_that_never_returns_on_one_of_two_threads_is_stopped() {
     assert_eq!(hung["outcome"], "fault", "{hung}");
     let message = hung["message"].as_str().unwrap();
     assert!(message.contains("worker ended") && message.contains("did not return within 2 s"), "{message}");
+    // with the increment of the hung call and its inputs (it read "0 of 0 increments", no call)
+    assert!(
+        message.contains("during a call of increment") && message.contains("the call's inputs: strain"),
+        "{message}"
+    );
+    assert!(hung["first_failing_increment"].as_u64().is_some(), "{hung}");
 }
 
 // A campaign's worker dies with its parent, as a check's does (a killed `campaign --isolate`

@@ -60,6 +60,12 @@ fn a_saved_variable_is_caught_by_the_hidden_state_probe() {
     let r = run("pz_saved_state", 0, GuardLevel::Light, &[]);
     assert_eq!(status(&r, "hidden-state"), ProbeStatus::Fail, "{r:#?}");
     assert_eq!(status(&r, "symmetry"), ProbeStatus::Pass);
+    // The summary gives the size of the difference and where: a kept result changes the value,
+    // not only its last bits (a warm start read the same as a saved result; a user-style sweep).
+    let p = r.results.iter().rev().find(|p| p.probe == "hidden-state").unwrap();
+    assert!(p.summary.contains("stress[") && p.summary.contains("relative"), "{}", p.summary);
+    assert!(!p.summary.contains("only in the last bits"), "{}", p.summary);
+    assert!(p.value.is_some_and(|v| v > 1e-12), "{p:#?}");
 }
 
 #[test]

@@ -454,6 +454,21 @@ static int lw_safe_read(void *dst, const void *src, size_t n) {
     return lw_probed_copy(dst, src, n);
 }
 
+/* The routine name of a call running on another thread (its argument block's label), read a
+ * byte at a time with the caught reads into static storage; NULL when it cannot be read. A
+ * hung call in a campaign named only the campaign, where several routines share a library. */
+static char lw_running_label[512];
+static const char *lw_label_of(const char *p) {
+    if (p == NULL) return NULL;
+    size_t i = 0;
+    for (; i + 1 < sizeof lw_running_label; ++i) {
+        if (lw_safe_read(&lw_running_label[i], p + i, 1) != 0) return NULL;
+        if (lw_running_label[i] == '\0') return i > 0 ? lw_running_label : NULL;
+    }
+    lw_running_label[i] = '\0';
+    return lw_running_label;
+}
+
 /* The copy: the argument block, its call description and arrays, in static storage (the last
  * words allocate nothing). */
 static tc_guard_args lw_args;
@@ -550,7 +565,10 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     if (a != NULL && run != tc_thread.slot) a = lw_copy_running(run, a, cx);
     const guard_finite_call *fc = finite_call_of(a);
     const tc_call *c = (a != NULL && fc == NULL) ? a->call : NULL;
-    const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label : lw_label;
+    const char *running_label = (in_call != 1 && a != NULL) ? lw_label_of(a->label) : NULL;
+    const char *label = (in_call == 1 && tc_thread.label != NULL) ? tc_thread.label
+                        : running_label != NULL                   ? running_label
+                                                                  : lw_label;
 
     /* When, in words (kept in its own buffer: it goes into the text and the JSON). */
     char when[256];
@@ -662,6 +680,14 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         if (c != NULL) put_int(c->increment); else if (fc != NULL) put_int(fc->increment); else if (increment >= 0) put_int(increment); else put("null");
         put(", \"calls\": ");
         put_int((long long)begun);
+        put(", \"routine\": ");
+        if (label[0] != '\0') {
+            put("\"");
+            put_escaped(label);
+            put("\"");
+        } else {
+            put("null");
+        }
         put(", \"call\": ");
         if (c != NULL) {
             put("{\"increment\": ");

@@ -108,6 +108,12 @@ pub fn not_run_result(c: &Campaign, item: &Item, signal: i32) -> ItemResult {
 
 /// The result of an item whose worker died or hung.
 pub fn fault_result(c: &Campaign, item: &Item, message: String) -> ItemResult {
+    fault_at(c, item, message, None)
+}
+
+/// [`fault_result`] at the increment of the call that was running, when known (a worker's
+/// last words name it).
+pub fn fault_at(c: &Campaign, item: &Item, message: String, increment: Option<usize>) -> ItemResult {
     finish(
         c,
         item,
@@ -115,7 +121,7 @@ pub fn fault_result(c: &Campaign, item: &Item, message: String) -> ItemResult {
             outcome: "fault",
             finding: "routine-fault".into(),
             exit_code: crate::exit::ROUTINE_FAULT,
-            first: None,
+            first: increment,
             increments: 0,
             failed: 0,
             worst: Vec::new(),

@@ -172,7 +172,12 @@ impl Runner<'_> {
                 // its last words on its output: what stopped it (a hang read "without a
                 // report"; a user-style sweep).
                 match last_words(&text) {
-                    Some(words) => fault(format!("the worker ended {how}: {words}")),
+                    Some((words, increment)) => super::item::fault_at(
+                        self.campaign,
+                        item,
+                        format!("the worker ended {how}: {words}"),
+                        increment,
+                    ),
                     None => fault(format!(
                         "the worker ended {how} without a report (the routine ended or broke its process)"
                     )),
@@ -182,9 +187,28 @@ impl Runner<'_> {
     }
 }
 
-/// The fault message of a worker's last words (a JSON report of kind `last-words`), if its
-/// output holds them.
-fn last_words(text: &str) -> Option<String> {
+/// The fault of a worker's last words (a JSON report of kind `last-words`), if its output holds
+/// them: the message, when it happened and the running call's inputs in words, and the
+/// increment (a hung item read "0 of 0 increments" with no call; a user-style sweep).
+fn last_words(text: &str) -> Option<(String, Option<usize>)> {
     let v: serde_json::Value = serde_json::from_str(text.trim()).ok()?;
-    (v["kind"] == "last-words").then(|| v["fault"]["message"].as_str().map(str::to_string)).flatten()
+    if v["kind"] != "last-words" {
+        return None;
+    }
+    let f = &v["fault"];
+    let mut words = f["message"].as_str()?.to_string();
+    if let Some(when) = f["when"].as_str().filter(|w| !w.is_empty()) {
+        words.push_str(&format!(", {when}"));
+    }
+    if let Some(call) = f["call"].as_object() {
+        let inputs: Vec<String> = ["strain", "dstrain", "stress0", "state0"]
+            .iter()
+            .filter_map(|k| call.get(*k).map(|x| format!("{k} {x}")))
+            .collect();
+        if !inputs.is_empty() {
+            words.push_str(&format!("; the call's inputs: {}", inputs.join(", ")));
+        }
+    }
+    let increment = f["increment"].as_u64().and_then(|k| usize::try_from(k).ok());
+    Some((words, increment))
 }

@@ -88,6 +88,10 @@ struct LastWordsFault {
     increment: Option<i64>,
     /// Routine calls begun so far.
     calls: u64,
+    /// The routine of the running call (`library:symbol`; in a campaign, the item's routine),
+    /// or the command's routine when no call was running.
+    #[serde(default)]
+    routine: Option<String>,
     /// The inputs of the running call (point or finite-strain arguments), when there was one.
     call: Option<serde_json::Map<String, serde_json::Value>>,
 }

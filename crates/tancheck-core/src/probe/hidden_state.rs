@@ -58,7 +58,12 @@ impl Probe for HiddenState {
             probed += 1;
             let same = |x: &[f64], y: &[f64]| x.iter().zip(y).all(|(p, q)| p.to_bits() == q.to_bits());
             if !(same(&a.0, &d.base.stress) && same(&a.1, &d.base.state) && same(&a.2, &d.base.tangent)) {
-                first = Some(k);
+                let outputs = [
+                    ("stress", &a.0, &d.base.stress),
+                    ("state", &a.1, &d.base.state),
+                    ("tangent", &a.2, &d.base.tangent),
+                ];
+                first = Some((k, largest_difference(&outputs)));
             }
             Ok(())
         });
@@ -91,15 +96,73 @@ impl Probe for HiddenState {
                 r.details.extend(refused_note);
                 r
             }
-            Some(k) => {
+            Some((k, (what, i, x, y, rel))) => {
+                // The size says which kind of keeping it is: a warm start or a cache changes only
+                // the last bits, a kept result the value (a user's warm-started local solve
+                // read like a saved plastic strain; a user-style sweep).
+                let size = if rel <= ROUNDING {
+                    format!(
+                        "only in the last bits ({what}[{i}]: {x:e} then {y:e}, relative {rel:.1e}): a warm start or a \
+                         cache kept between calls, harmless to the values but not repeatable bit for bit"
+                    )
+                } else {
+                    format!("{what}[{i}]: {x:e} then {y:e}, relative {rel:.1e}")
+                };
                 let mut r = ProbeResult::new(
                     "hidden-state",
                     ProbeStatus::Fail,
-                    format!("A, B, A gave a different second A at increment {k}: the routine keeps state between calls (a saved or static variable?)"),
+                    format!("A, B, A gave a different second A at increment {k}, {size}: the routine keeps state between calls (a saved or static variable?)"),
                 );
                 r.increment = Some(k);
+                r.value = Some(rel);
                 r
             }
         })
+    }
+}
+
+/// A relative difference at most this is in the last bits of a value.
+const ROUNDING: f64 = 1e-12;
+
+/// The entry whose two values differ most, relative to the larger of them: (output, index,
+/// first value, second value, relative difference; 1 where one is not a number).
+fn largest_difference(
+    outputs: &[(&'static str, &Vec<f64>, &Vec<f64>)],
+) -> (&'static str, usize, f64, f64, f64) {
+    let mut worst = ("stress", 0, 0.0, 0.0, 0.0);
+    for (what, a, b) in outputs {
+        for (i, (x, y)) in a.iter().zip(b.iter()).enumerate() {
+            if x.to_bits() == y.to_bits() {
+                continue;
+            }
+            let scale = x.abs().max(y.abs());
+            let rel = if !(x.is_finite() && y.is_finite()) {
+                1.0
+            } else if scale > 0.0 {
+                (x - y).abs() / scale
+            } else {
+                0.0
+            };
+            if rel > worst.4 || worst.4 == 0.0 && worst.2 == worst.3 {
+                worst = (what, i, *x, *y, rel);
+            }
+        }
+    }
+    worst
+}
+
+#[cfg(test)]
+mod tests {
+    // The largest relative difference is named, with its output and entry.
+    #[test]
+    fn the_largest_difference_is_named() {
+        let (a, b) = (vec![1.0, 2.0], vec![1.0, 2.0 * (1.0 + 4e-16)]);
+        let (c, e) = (vec![5.0], vec![5.5]);
+        let w = super::largest_difference(&[("stress", &a, &b), ("state", &c, &e)]);
+        assert_eq!((w.0, w.1), ("state", 0));
+        assert!((w.4 - 0.5 / 5.5).abs() < 1e-15);
+        let w = super::largest_difference(&[("stress", &a, &b)]);
+        assert_eq!((w.0, w.1), ("stress", 1));
+        assert!(w.4 > 0.0 && w.4 <= super::ROUNDING);
     }
 }
