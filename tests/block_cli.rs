@@ -475,3 +475,51 @@ fn a_declared_damage_that_falls_is_damage_decreases() {
     assert_eq!(code, 2, "{out}");
     assert!(out.contains("block.damage names state[13]") && out.contains(".json"), "{out}");
 }
+
+// A plane-strain block routine with no path gets the default path without its small 23 and 13
+// shear, as a plane point does (it was refused: "increment 1 has 23 or 13 shear", increments
+// its manifest never gave; a user-style sweep). A path given with them is refused naming the
+// shapes that have them.
+#[test]
+fn a_plane_block_routine_takes_the_default_path() {
+    let d = scratch("block-plane-default");
+    let p = d.join("ps.json");
+    std::fs::write(
+        &p,
+        r#"{ "routine": { "model": "j2-block", "interface": "block", "kind": "plane-strain", "properties": [200000, 0.3, 250, 1000, 0, 0, 500] },
+             "block": { "density": 7.85e-9, "characteristic_length": 2.0 } }"#,
+    )
+    .unwrap();
+    let (code, out, err) = tancheck(&["check".as_ref(), p.as_os_str()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let (code, out, err) =
+        tancheck(&["check".as_ref(), p.as_os_str(), "--path".as_ref(), "tension-shear:0.004:8:4".as_ref()]);
+    assert_eq!(code, 2, "{out}{err}");
+    assert!(err.contains("the built-in shapes tension-shear and mixed-mode have them"), "{err}");
+}
+
+// A deleted point has no modulus, wave speed or L/c: the page shows a dash there (the JSON has
+// null), not "NaN", which read as a failed computation (a user-style sweep). The demo alloy
+// plate of `tancheck demo` (invented numbers), with the built-in model.
+#[test]
+fn a_deleted_point_reads_as_a_dash_on_the_page() {
+    let d = scratch("block-deleted-page");
+    let p = d.join("plate.json");
+    std::fs::write(
+        &p,
+        r#"{ "routine": { "model": "johnson-cook-block", "interface": "block", "kind": "solid-3d",
+               "properties": [110000, 0.31, 900, 600, 0.3, 0.02, 1.0, 293, 1900, 1.0, 4.4e-9, 5.3e8, 0.9,
+                              0.1, 0.9, -2.0, 0.01, 0.5, 0.4, 15.0, 0.99] },
+             "start": { "temperature": 350 },
+             "path": { "shape": "uniaxial-strain", "peak": 0.25, "steps": 25, "back": 10, "dtime": 4e-6 },
+             "block": { "density": 4.4e-9, "characteristic_length": 1.5, "softening": true,
+                        "rate_law": { "reference_rate": 1.0, "coefficient": 0.02 } } }"#,
+    )
+    .unwrap();
+    let html = d.join("plate.html");
+    let (code, out, err) = tancheck(&["check".as_ref(), p.as_os_str(), "--html".as_ref(), html.as_os_str()]);
+    assert_eq!(code, 0, "{out}{err}");
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains(">deleted<") && page.contains(">—<"), "{page}");
+    assert!(!page.contains("NaN"), "{page}");
+}

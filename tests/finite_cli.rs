@@ -239,6 +239,10 @@ fn finite_reports_through_the_reporters() {
     assert!(validator.is_valid(&v), "{v}");
     let html = std::fs::read_to_string(path("c.html")).unwrap();
     assert!(html.contains("f_nh_missing_over_j") && html.contains("missing-over-j"), "{html}");
+    // The page gives the exit code and the largest differences, and a cause's words once (the
+    // page had neither, and repeated the cause on every row; a user-style sweep).
+    assert!(html.contains("(exit 1)") && html.contains("largest differences"), "{html}");
+    assert!(html.contains("(as at increment "), "{html}");
     let xml = std::fs::read_to_string(path("c.xml")).unwrap();
     assert!(xml.contains("<testcase name=\"increment 1\"") && xml.contains("missing-over-j"), "{xml}");
     let (code, _) = tancheck(&["probe", &good, "--json", &path("p.json"), "--junit", &path("p.xml")]);

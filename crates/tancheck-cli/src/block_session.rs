@@ -157,6 +157,22 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
 
 /// `check` and `probe` of a block manifest: the block checks, through the command's reporters
 /// (terminal, `--json`, `--html`, `--junit`, `-q`, `--color`); the exit code.
+/// The default path of a block routine: the point check's, with its small 23 and 13 shear
+/// left out for a routine of four components, as the point check leaves them out of a plane
+/// point's increments (a plane-strain block routine was refused its default path, naming
+/// increments its manifest never gave; a user-style sweep).
+pub fn default_block_path(kind: tancheck_core::PointKind) -> Path {
+    let mut p = crate::session::default_path(kind);
+    if kind.ncomp() == 4 {
+        for inc in &mut p.increments {
+            inc.dstrain[3] = 0.0;
+            inc.dstrain[4] = 0.0;
+        }
+        p.name.push_str(" (its 23 and 13 shear left out for a routine of four components)");
+    }
+    p
+}
+
 pub fn check_block_command(
     m: &Manifest,
     dir: &FsPath,
@@ -167,9 +183,7 @@ pub fn check_block_command(
 ) -> Result<i32> {
     let path = match path {
         Some(p) => p,
-        None => m
-            .path_or(crate::session::default_path(m.routine.kind))
-            .map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
+        None => m.path_or(default_block_path(m.routine.kind)).map_err(|e| anyhow::anyhow!("{file}: {e}"))?,
     };
     let report =
         run_block_manifest(m, dir, &path).with_context(|| format!("checking the block routine of {file}"))?;

@@ -212,7 +212,14 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
     m.check.jobs = 1;
     let path = match &item.path {
         Some((_, spec)) => crate::manifest::path_arg(spec)?,
-        None => m.path_or(default_path(m.routine.kind)).map_err(|e| anyhow!("{file}: {e}"))?,
+        None => {
+            let default = if crate::block_session::is_block(&m) {
+                crate::block_session::default_block_path(m.routine.kind)
+            } else {
+                default_path(m.routine.kind)
+            };
+            m.path_or(default).map_err(|e| anyhow!("{file}: {e}"))?
+        }
     };
     match &item.task {
         Task::Cases(folder) => {

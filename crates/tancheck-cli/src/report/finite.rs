@@ -225,9 +225,11 @@ pub fn check_page(report: &FiniteReport) -> String {
     let measure = TangentMeasure::parse(&report.tangent_measure).map_or("", |m| m.describe());
     let _ = writeln!(
         b,
-        "<dl class=\"summary\"><dt>measure</dt><dd>{}</dd><dt>finding</dt><dd>{}</dd><dt>numerical \
+        "<dl class=\"summary\"><dt>measure</dt><dd>{}</dd><dt>verdict</dt><dd>{} (exit {})</dd><dt>finding</dt><dd>{}</dd><dt>numerical \
          tangent</dt><dd>{}central differences on F, step {}</dd><dt>calls</dt><dd>{} real, {} complex</dd></dl>",
         esc(measure),
+        esc(&word),
+        report.exit_code,
         esc(if finding.is_empty() { "none" } else { &finding }),
         if report.complex_twin { "complex step with the twin (the reference), and " } else { "" },
         report.settings.central_step,
@@ -237,20 +239,48 @@ pub fn check_page(report: &FiniteReport) -> String {
     if let Some(f) = &report.fault {
         let _ = writeln!(b, "<p><strong>Fault.</strong> {}</p>", esc(f));
     }
-    b.push_str("<h2>Increments</h2>\n<table>\n<tr><th>increment</th><th>error (complex)</th><th>error (central)</th><th>result</th><th>cause</th></tr>\n");
+    b.push_str(
+        "<h2>Increments</h2>\n<table>\n<tr><th>increment</th><th>error (complex)</th><th>error (central)</th>\
+         <th>result</th><th>largest differences (returned / numerical)</th><th>cause</th></tr>\n",
+    );
+    let size = TangentMeasure::parse(&report.tangent_measure).map_or(6, |m| m.size());
+    // A cause's explanation in full at its first increment, its name after (the same words
+    // filled every row of a long path).
+    let mut told: Vec<(&str, usize)> = Vec::new();
     for inc in &report.increments {
-        let cause = inc
-            .cause
-            .as_ref()
-            .map_or(String::new(), |c| format!("<code>{}</code>: {}", esc(&c.name), esc(&c.explanation)));
+        let cause =
+            inc.cause.as_ref().map_or(String::new(), |c| match told.iter().find(|(n, _)| *n == c.name) {
+                Some((_, k)) => format!("<code>{}</code> (as at increment {k})", esc(&c.name)),
+                None => {
+                    told.push((&c.name, inc.increment));
+                    format!("<code>{}</code>: {}", esc(&c.name), esc(&c.explanation))
+                }
+            });
+        let entries: Vec<String> = inc
+            .worst_entries
+            .iter()
+            .take(3)
+            .map(|w| {
+                format!(
+                    "<span class=\"nowrap\">{} {:.4e} / {:.4e}</span>",
+                    esc(&w.label(size)),
+                    w.returned,
+                    w.numerical
+                )
+            })
+            .collect();
         let _ = writeln!(
             b,
-            "<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td><td>{cause}</td></tr>",
+            "<tr><td class=\"num\">{}</td><td class=\"num\">{}</td><td class=\"num\">{}</td><td>{}</td><td>{}</td><td>{cause}</td></tr>",
             inc.increment,
             inc.error_complex.map_or("-".into(), sci),
             sci(inc.error_central),
-            badge(if inc.passed { "PASS" } else { "FAIL" })
+            badge(if inc.passed { "PASS" } else { "FAIL" }),
+            entries.join("<br>")
         );
+    }
+    for n in &report.notes {
+        let _ = writeln!(b, "<p class=\"note\">{}</p>", esc(n));
     }
     b.push_str("</table>\n");
     b.push_str(&cautions(&report.cautions));

@@ -34,7 +34,9 @@ pub fn block_increments(path: &Path, ncomp: usize) -> Result<Vec<BlockStep>, Str
             4 if d[3] == 0.0 && d[4] == 0.0 => vec![d[0], d[1], d[2], 2.0 * d[5]],
             4 => {
                 return Err(format!(
-                    "increment {} has 23 or 13 shear, which a 4-component block routine does not have",
+                    "increment {} has 23 or 13 shear, which a 4-component block routine does not have \
+                     (the built-in shapes tension-shear and mixed-mode have them): give a path without them, \
+                     such as the shapes uniaxial-strain, biaxial or shear-12, or increments of your own",
                     k + 1
                 ))
             }

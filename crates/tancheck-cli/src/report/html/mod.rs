@@ -88,6 +88,7 @@ table { border-collapse: collapse; width: 100%; margin: 8px 0 4px; font-size: 14
 th, td { text-align: left; padding: 5px 8px; border-bottom: 1px solid var(--line); vertical-align: top; }
 th { background: var(--card); font-weight: 600; }
 td.num { font-variant-numeric: tabular-nums; text-align: right; white-space: nowrap; }
+.nowrap { white-space: nowrap; }
 tr.bad td { color: var(--fail); }
 figure { margin: 14px 0 18px; }
 figure svg { width: 100%; height: auto; border: 1px solid var(--line); border-radius: 6px; }
