@@ -11,8 +11,17 @@ pub(super) fn compile_hint(output: &str, lang: Language, complex: bool) -> Strin
              tancheck_routine and tancheck_cstep are provided.",
         );
     }
+    if complex && lang == Language::C {
+        if let Some(word) = complex_macro_used(output) {
+            h.push_str(&format!(
+                "<complex.h>, included in the twin, defines `I` (the imaginary unit) and `complex` as \
+                 macros: the source uses `{word}` as a name (in a line the compiler shows above), which \
+                 the twin reads as the macro; rename it. "
+            ));
+        }
+    }
     if complex {
-        if !h.is_empty() {
+        if !h.is_empty() && !h.ends_with(' ') {
             h.push(' ');
         }
         h.push_str(match lang {
@@ -36,6 +45,28 @@ pub(super) fn compile_hint(output: &str, lang: Language, complex: bool) -> Strin
     } else {
         format!("\n{h}")
     }
+}
+
+/// `I` or `complex` used as a name in a source line the compiler echoes (gcc and clang show
+/// the line after `NN |`): <complex.h> makes them macros in the twin (a user's loop index `I`
+/// failed the twin with "array subscript is not an integer" and a generic hint).
+fn complex_macro_used(output: &str) -> Option<&'static str> {
+    let code = output.lines().filter_map(|l| {
+        let (num, rest) = l.split_once('|')?;
+        num.trim().parse::<u32>().ok().map(|_| rest)
+    });
+    for line in code {
+        let words = line.split(|c: char| !(c.is_ascii_alphanumeric() || c == '_'));
+        for w in words {
+            if w == "I" {
+                return Some("I");
+            }
+            if w == "complex" && !line.contains("<complex.h>") {
+                return Some("complex");
+            }
+        }
+    }
+    None
 }
 
 pub(super) fn link_hint(output: &str, twin: bool, defines_modules: bool) -> String {
@@ -70,5 +101,25 @@ pub(super) fn link_hint(output: &str, twin: bool, defines_modules: bool) -> Stri
         String::new()
     } else {
         format!("\n{}", h.join(" "))
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    // gcc's words for a loop index `I` in the twin (measured with gcc 12): the hint names the
+    // macro; a twin failure without it keeps the general hint alone.
+    #[test]
+    fn a_name_the_complex_header_makes_a_macro_is_named() {
+        let gcc = "/tmp/ii.c:6:39: error: array subscript is not an integer\n    6 |     for (int I = 0; I < 6; ++I) stress[I] = dstrain[I];\n      |                                       ^\n";
+        let h = compile_hint(gcc, Language::C, true);
+        assert!(h.contains("uses `I` as a name") && h.contains("complex-step twin"), "{h}");
+        let other = "/tmp/a.c:3:5: error: conflicting types\n    3 |     double x = fabs(y);\n";
+        let h = compile_hint(other, Language::C, true);
+        assert!(!h.contains("as a name") && h.contains("complex-step twin"), "{h}");
+        let complex = "    9 |     double complex z;\n";
+        assert!(compile_hint(complex, Language::C, true).contains("uses `complex` as a name"));
+        assert!(!compile_hint("    1 | #include <complex.h>\n", Language::C, true).contains("as a name"));
     }
 }
