@@ -258,6 +258,10 @@ fn a_worker_that_dies_is_its_items_fault_and_the_others_run() {
     assert_eq!(xml.matches("<failure").count(), 1, "{xml}");
     let html = std::fs::read_to_string(d.join("r.html")).unwrap();
     assert!(html.contains("Campaign small") && html.contains("not as expected"), "{html}");
+    // Every routine's table has the same column widths, so the columns line up down the page
+    // (each table sized its own; a user-style sweep).
+    let tables = html.matches("<table").count();
+    assert!(tables > 1 && html.matches("<table class=\"items\">\n<colgroup>").count() == tables, "{html}");
     // The expected fault shows in a plain badge, not in the red (or orange) of a surprise; the
     // item not as expected keeps its row marked.
     assert!(html.contains("<span class=\"badge expected\">FAULT · expected</span>"), "{html}");

@@ -86,7 +86,11 @@ pub fn campaign_page(r: &CampaignReport) -> String {
     for (routine, items) in r.routines() {
         let _ = writeln!(b, "<h2>{} <span class=\"note\">{}</span></h2>", esc(routine), esc(&items[0].name));
         b.push_str(
-            "<table>\n<tr><th>item</th><th>outcome</th><th>finding</th><th>first failing increment</th>\
+            // One set of column widths for every routine's table, so that the columns line up
+            // down the page (each table sized its own; a user-style sweep).
+            "<table class=\"items\">\n<colgroup><col style=\"width:17%\"><col style=\"width:18%\">\
+             <col style=\"width:13%\"><col style=\"width:9%\"><col style=\"width:10%\"><col style=\"width:12%\">\
+             <col style=\"width:21%\"></colgroup>\n<tr><th>item</th><th>outcome</th><th>finding</th><th>first failing increment</th>\
              <th>increments failed</th><th>expected</th><th>message</th></tr>\n",
         );
         for it in items {

@@ -89,6 +89,8 @@ th, td { text-align: left; padding: 5px 8px; border-bottom: 1px solid var(--line
 th { background: var(--card); font-weight: 600; }
 td.num { font-variant-numeric: tabular-nums; text-align: right; white-space: nowrap; }
 .nowrap { white-space: nowrap; }
+table.items { table-layout: fixed; width: 100%; }
+table.items td { overflow-wrap: anywhere; }
 tr.bad td { color: var(--fail); }
 figure { margin: 14px 0 18px; }
 figure svg { width: 100%; height: auto; border: 1px solid var(--line); border-radius: 6px; }
