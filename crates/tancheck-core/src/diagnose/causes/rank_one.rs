@@ -157,12 +157,25 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
             // local solve stopped at another iterate: a user's Johnson–Cook routine read
             // "scaled by about 1 − 1.7e-11"). No reading is offered from it.
             let no_reading = (factor - 1.0).abs() < 1e-6;
+            // In an increment that left the state unchanged (unloading, elastic) of a routine
+            // whose state changed on the path, a scaled or sign-flipped term is as likely a term
+            // of another branch's tangent returned here: a cohesive law's softening term kept on
+            // unloading read only "scaled by about −2.21" (a user-style sweep).
+            let other_branch = if !ev.state_changed && ev.initial.is_some() {
+                "; the increment left the state variables unchanged (an unloading or elastic step): a term of \
+                 another branch's tangent returned here, such as the loading branch's softening or hardening \
+                 term, reads so too"
+            } else {
+                ""
+            };
             let (cause, detail) = if (factor).abs() < 0.05 {
                 (Cause::TermMissing, format!("one term a⊗b of {of} is missing (factor {factor:.3}{reading}; size {size:.2e} of the norm)"))
             } else if (factor + 1.0).abs() < 0.25 {
                 (
                     Cause::TermSign,
-                    format!("one term a⊗b of {of} has the wrong sign (factor {factor:.3}{reading}; size {size:.2e})"),
+                    format!(
+                        "one term a⊗b of {of} has the wrong sign (factor {factor:.3}{reading}; size {size:.2e}){other_branch}"
+                    ),
                 )
             } else if factor.is_finite() {
                 (
@@ -174,7 +187,7 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                             "; by {} if the term is the whole part along a⊗b (a tangent written with no background along a and b, as a pressure-dependent cone's)",
                             factor_text(w)
                         ))
-                    ),
+                    ) + other_branch,
                 )
             } else if copy {
                 (Cause::RankOneTerm, format!("the discrepancy is one term a⊗b of size {size:.2e}"))

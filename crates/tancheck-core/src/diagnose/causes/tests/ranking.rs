@@ -174,3 +174,32 @@ fn a_factor_indistinguishable_from_one_is_no_reading() {
         assert_eq!(hs.iter().any(|h| h.cause == Cause::TermScaled), reads, "factor {factor}: {hs:#?}");
     }
 }
+
+/// A scaled term in an increment that left the state unchanged, of a routine whose state
+/// changed on the path (its initial stiffness is known), says that a term of another branch's
+/// tangent returned there reads so too (a cohesive law's softening term kept on unloading read
+/// only "scaled by about −2.21"; a user-style sweep); where the state changed it does not.
+#[test]
+fn a_scaled_term_where_the_state_did_not_change_names_another_branch() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good = j2_like();
+    let z = vec![0.0; 6];
+    let nv = [2.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), -1.0 / 6f64.sqrt(), 0.0, 0.0, 0.0];
+    let mu = 200000.0 / 2.6;
+    let e = elastic_like();
+    let mut bad = good.clone();
+    for j in 0..6 {
+        for i in 0..6 {
+            bad[i + 6 * j] += 0.2 * 2.0 * mu * crate::worked::J2_THETA_BAR * nv[i] * nv[j];
+        }
+    }
+    for changed in [false, true] {
+        let mut evd = ev(&conv, &bad, &good, &z);
+        evd.elastic = Some(&e);
+        evd.initial = Some(&e);
+        evd.state_changed = changed;
+        let hs = rank(&evd);
+        let t = hs.iter().find(|h| h.cause == Cause::TermScaled).unwrap_or_else(|| panic!("{hs:#?}"));
+        assert_eq!(t.detail.contains("a term of another branch's tangent"), !changed, "{}", t.detail);
+    }
+}
