@@ -48,6 +48,13 @@ pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
                 best = (e, detail);
             }
         }
+        for columns in [true, false] {
+            if let Some((e, detail)) = one_side_shear_factor(ev, &shear, columns) {
+                if e < best.0 {
+                    best = (e, detail);
+                }
+            }
+        }
         found.push(Cause::ShearFactor, best.1, best.0);
     }
 
@@ -184,4 +191,83 @@ fn term_shear_factor(ev: &Evidence<'_>, shear: &[usize]) -> Option<(f64, String)
         }
     }
     best
+}
+
+/// The shear entries of the vector of one term c a⊗a written f times too large on one side
+/// only (f = 2 or ½, which the discrepancy cannot tell apart): c a⊗(Sa) with the column side's shear doubled (n : dε taken with the
+/// engineering shear of dε while n⊗n is built in tensor form), or c (Sa)⊗a. The discrepancy
+/// c (f − 1) a⊗(0, q) lives in the shear columns (or rows) alone and has rank one: its leading
+/// singular pair gives a (from the side that keeps all entries) and q (from the shear side),
+/// which must agree in the shear entries of a. The error left by the corrected tangent and the
+/// words, or `None` when the discrepancy has no such form (a one-sided shear slip read
+/// `rank-one-term`; a user-style sweep).
+fn one_side_shear_factor(ev: &Evidence<'_>, shear: &[usize], columns: bool) -> Option<(f64, String)> {
+    let n = ev.conv.ncomp();
+    let ns = shear.len();
+    if ns == 0 || ns == n {
+        return None;
+    }
+    // d(i, j) with the shear side as columns.
+    let d = |i: usize, j: usize| {
+        let (r, c) = if columns { (i, j) } else { (j, i) };
+        ev.returned[r + c * n] - ev.numerical[r + c * n]
+    };
+    let ds = nalgebra::DMatrix::from_fn(n, ns, |i, b| d(i, shear[b]));
+    if ds.iter().any(|x| !x.is_finite()) {
+        return None;
+    }
+    let svd = ds.svd(true, true);
+    let k = (0..svd.singular_values.len())
+        .max_by(|&a, &b| svd.singular_values[a].total_cmp(&svd.singular_values[b]))?;
+    let sigma = svd.singular_values[k];
+    if sigma == 0.0 {
+        return None;
+    }
+    let u = svd.u.as_ref()?.column(k).into_owned();
+    let w = svd.v_t.as_ref()?.row(k).transpose();
+    // The shear entries of a (∝ u) along q (∝ w): r = u_shear · w, with u_shear ∥ w.
+    let us = nalgebra::DVector::from_iterator(ns, shear.iter().map(|&i| u[i]));
+    let r = us.dot(&w);
+    if r.abs() < 1e-6 || (us.norm() - r.abs()).abs() > 0.05 * us.norm().max(1e-300) {
+        return None;
+    }
+    // A discrepancy in one shear column (or row) alone is `one-column` (`one-row`), more
+    // plainly: the fit would explain it too (a ply tangent missing one coupling read
+    // `shear-factor`). And a term without a normal part is a scaled shear term as much as a
+    // one-sided factor (as in `term_shear_factor`): a normal part of a fifth of the shear
+    // part or more is needed.
+    if w.iter().any(|x| x.abs() > 0.999) {
+        return None;
+    }
+    let un: f64 = (0..n).filter(|i| !shear.contains(i)).map(|i| u[i] * u[i]).sum();
+    if un < 0.04 * us.norm_squared() {
+        return None;
+    }
+    // f = 2 and f = ½ give the same correction (c (f − 1) α² r = σ fixes it whichever f):
+    // the discrepancy tells that one side's shear entries are twice or half the other's, not
+    // which side is the derivative's; the words say so.
+    let f = 2.0f64;
+    let g = (f - 1.0) * r;
+    let c = (sigma / g).signum();
+    let alpha = (sigma / g).abs().sqrt();
+    let a: Vec<f64> = u.iter().map(|x| alpha * x).collect();
+    let mut sa = a.clone();
+    for &i in shear {
+        sa[i] *= f;
+    }
+    let mut corrected = ev.returned.to_vec();
+    for j in 0..n {
+        for i in 0..n {
+            let (left, right) = if columns { (a[i], sa[j]) } else { (sa[i], a[j]) };
+            corrected[i + j * n] -= c * (left * right - a[i] * a[j]);
+        }
+    }
+    Some((
+        ev.error(&corrected),
+        format!(
+            "the shear entries of one term a⊗a (a flow direction's n⊗n) differ by a factor 2 between its two \
+             sides, in its {}: n : dε taken with another shear measure than the one n⊗n is built in",
+            if columns { "columns (the strain side)" } else { "rows (the stress side)" }
+        ),
+    ))
 }

@@ -203,3 +203,37 @@ fn a_scaled_term_where_the_state_did_not_change_names_another_branch() {
         assert_eq!(t.detail.contains("a term of another branch's tangent"), !changed, "{}", t.detail);
     }
 }
+
+/// One term a⊗a with the shear entries of one side only doubled (n : dε taken with engineering
+/// shear while n⊗n is built in tensor form): the discrepancy c a⊗(0, q) lives in the shear
+/// columns alone and is named `shear-factor`, the side said (it read `rank-one-term`, "another
+/// flow direction"; a user-style sweep). The same on the rows.
+#[test]
+fn a_shear_factor_on_one_side_of_a_term_is_named() {
+    let conv = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good = j2_like();
+    let z = vec![0.0; 6];
+    let a = [1.0, -0.5, -0.5, 0.2, 0.0, 0.8];
+    let c = -2.0 * 200000.0 / 2.6 * crate::worked::J2_THETA_BAR / 2.1;
+    for (columns, side) in [(true, "in its columns"), (false, "in its rows")] {
+        let mut bad = good.clone();
+        for j in 0..6 {
+            for i in 0..6 {
+                let (l, r) = if columns {
+                    (a[i], if j >= 3 { 2.0 * a[j] } else { a[j] })
+                } else {
+                    (if i >= 3 { 2.0 * a[i] } else { a[i] }, a[j])
+                };
+                bad[i + 6 * j] += c * (l * r - a[i] * a[j]);
+            }
+        }
+        let hs = rank(&ev(&conv, &bad, &good, &z));
+        assert_eq!(hs[0].cause, Cause::ShearFactor, "{hs:#?}");
+        assert!(
+            hs[0].detail.contains("differ by a factor 2 between its two sides")
+                && hs[0].detail.contains(side),
+            "{}",
+            hs[0].detail
+        );
+    }
+}
