@@ -398,7 +398,8 @@ pub fn judge(
     for m in measured {
         let ss = settings.scheme(m.scheme);
         let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries);
-        let tangent_limits = limits.with_abs_floor(rounding_floor(m.scheme, me.stress_size, m.h, ss.tol));
+        let tangent_limits =
+            limits.with_abs_floor(rounding_floor(m.scheme, me.stress_size, m.h, ss.rel_step, ss.tol));
         let numerical = &m.tangent[..n * n];
         let conv = &caller.info().convention;
         let tangent = match (&m.outcome, soft) {

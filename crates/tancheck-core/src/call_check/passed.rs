@@ -46,7 +46,7 @@ impl Measurement {
                 None => {
                     let ss = settings.scheme(m.scheme);
                     let limits = Limits::new(ss.tol, settings.entry_floor, settings.worst_entries)
-                        .with_abs_floor(rounding_floor(m.scheme, self.stress_size, m.h, ss.tol));
+                        .with_abs_floor(rounding_floor(m.scheme, self.stress_size, m.h, ss.rel_step, ss.tol));
                     let p = passing(conv, &r[..n * n], &m.tangent[..n * n], limits, soft)?;
                     if k < RECORD_SCHEMES {
                         out[k] = Some(p);

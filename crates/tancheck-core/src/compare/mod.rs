@@ -84,17 +84,34 @@ impl Limits {
     }
 }
 
-/// The rounding floor of a difference tangent at absolute step `h` and tolerance `tol`: a
-/// difference quotient carries rounding of about ε·S/h, where S is the size of the stresses it
-/// subtracts (`stress_size`: ‖σ‖ + ‖C‖·strain scale, the trial stress a return starts from),
-/// and an entry that small is measured within `tol` only against S·ε/(h·tol). Why 16 ε: the two
-/// to four stresses of a stencil, each a few roundings off, with room for the cancellation of
-/// a return mapping (common practice). 0 for the complex step, which subtracts nothing.
-pub fn rounding_floor(scheme: crate::schemes::Scheme, stress_size: f64, h: f64, tol: f64) -> f64 {
-    if scheme == crate::schemes::Scheme::ComplexStep || !(h > 0.0 && tol > 0.0) {
+/// The rounding floor of a difference tangent at absolute step `h` (`rel_step` of the strain
+/// scale) and tolerance `tol`: a difference quotient carries rounding of about ε·S/h, where S is
+/// the size of the stresses it subtracts (`stress_size`: ‖σ‖ + ‖C‖·strain scale, the trial
+/// stress a return starts from), and an entry that small is measured within `tol` only against
+/// S·ε/(h·tol). Why 16 ε: the two to four stresses of a stencil, each a few roundings off, with
+/// room for the cancellation of a return mapping (common practice).
+///
+/// The complex step subtracts no stresses, but the routine's own arithmetic cancels in the
+/// derivative part where the stress does not move (a perfectly plastic return to a cone's apex
+/// computes k/A as p − K B (A p − k)/(A K B): the derivative parts of sizes ‖C‖ cancel to a few
+/// ε·‖C‖): its floor is ε·S/(strain scale) in the same form, S/(strain scale) standing for
+/// ‖C‖ (a correct apex return failed `zero-tangent` against a complex-step derivative of
+/// −2.4e-12 beside a stiffness of 2.4e4; a user-style sweep).
+pub fn rounding_floor(
+    scheme: crate::schemes::Scheme,
+    stress_size: f64,
+    h: f64,
+    rel_step: f64,
+    tol: f64,
+) -> f64 {
+    if !(h > 0.0 && tol > 0.0) {
         return 0.0;
     }
-    let f = 16.0 * f64::EPSILON * stress_size / (h * tol);
+    let f = if scheme == crate::schemes::Scheme::ComplexStep {
+        16.0 * f64::EPSILON * stress_size * rel_step / (h * tol)
+    } else {
+        16.0 * f64::EPSILON * stress_size / (h * tol)
+    };
     if f.is_finite() {
         f
     } else {

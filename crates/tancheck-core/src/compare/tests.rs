@@ -163,7 +163,7 @@ fn a_tangent_zero_to_rounding_is_measured_against_its_floor() {
         })
         .collect();
     let zero = vec![0.0; 36];
-    let floor = rounding_floor(crate::schemes::Scheme::Central, 10.0, 1e-8, 1e-6);
+    let floor = rounding_floor(crate::schemes::Scheme::Central, 10.0, 1e-8, 6e-6, 1e-6);
     assert!((floor - 16.0 * f64::EPSILON * 10.0 / 1e-14).abs() < 1e-12 * floor);
     let limits = Limits::new(1e-6, 1e-2, 3);
     let soft = SoftDirections::of(&conv, &noise, None);
@@ -190,6 +190,19 @@ fn a_tangent_zero_to_rounding_is_measured_against_its_floor() {
         &SoftDirections::of(&conv, &elastic, None),
     );
     assert_eq!(same, compare_with(&conv, &e2, &elastic, limits, &SoftDirections::of(&conv, &elastic, None)));
-    // The complex step subtracts nothing: no floor.
-    assert_eq!(rounding_floor(crate::schemes::Scheme::ComplexStep, 10.0, 1e-20, 1e-10), 0.0);
+    // The complex step subtracts no stresses, but the routine's arithmetic cancels in the
+    // derivative part where the stress does not move: its floor is 16 ε S/(strain scale) over
+    // tol, S/(strain scale) standing for ‖C‖ (here S = 10 at a strain scale of 1e-2, the step
+    // 1e-20 of it: ‖C‖ ≈ 1000).
+    let cs = rounding_floor(crate::schemes::Scheme::ComplexStep, 10.0, 1e-22, 1e-20, 1e-10);
+    assert!((cs * 1e-10 - 16.0 * f64::EPSILON * 1000.0).abs() < 1e-9 * cs * 1e-10, "{cs}");
+    let cs_limits = Limits::new(1e-10, 1e-2, 3);
+    // A zero returned where the complex-step derivative is rounding (1e-16 of ‖C‖, the apex of
+    // a perfectly plastic cone) passes; where it is 1e-6 of ‖C‖ (a small true derivative) fails.
+    for (size, pass) in [(1e-13, true), (1e-3, false)] {
+        let small: Vec<f64> = noise.iter().map(|x| x.signum() * size).collect();
+        let soft = SoftDirections::of(&conv, &small, None);
+        let c = compare_with(&conv, &zero, &small, cs_limits.with_abs_floor(cs), &soft);
+        assert_eq!(c.pass, pass, "{size}: {c:?}");
+    }
 }

@@ -243,6 +243,9 @@ pub struct KinkQuery<'a> {
     pub scale: f64,
     pub tol: f64,
     pub entry_floor: f64,
+    /// The size of the stresses the one-sided quotients subtract (‖σ‖ + ‖C‖ times the scale):
+    /// their rounding, ε times it over the step, is no jump.
+    pub stress_size: f64,
 }
 
 /// Judge the kink from the one-sided derivatives at each step of [`STEPS`] (`pairs[k]` =
@@ -250,6 +253,9 @@ pub struct KinkQuery<'a> {
 pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
     let KinkQuery { conv, returned, tol, entry_floor, .. } = *q;
     let n = conv.ncomp();
+    // The rounding of a one-sided quotient at the smallest step: 64 ε S/h (the two stresses
+    // of a quotient, each a few roundings off, with room for a return's cancellation).
+    let rounding_level = 64.0 * f64::EPSILON * q.stress_size / (STEPS[STEPS.len() - 1] * q.scale);
     let mut gaps = Vec::with_capacity(pairs.len());
     let mut col_gaps: Vec<Vec<f64>> = vec![Vec::with_capacity(pairs.len()); n];
     // The absolute gaps ‖F − B‖, whole and per column, to tell rounding from a kink.
@@ -294,9 +300,21 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
                 (false, true) => Some(Side::Backward),
                 _ => None,
             };
+            // A jump J at the point is seen by one side only (J/h), the other keeping the
+            // branch's derivative; and it stands above the quotients' rounding, which also grows
+            // as 1/h and exceeds a zero column where the stress does not move (a perfectly plastic
+            // apex read "the stress jumps" on a one-ulp backward quotient; a user-style sweep).
+            let one_side = {
+                let c = j * n..(j + 1) * n;
+                let smaller = norm(&f[c.clone()]).min(norm(&b[c]));
+                col_abs[j].last().is_some_and(|&g| smaller <= 0.1 * g)
+            };
             KinkColumn {
                 steady,
-                jump: jump(&col_abs[j], scale),
+                jump: jump(
+                    &col_abs[j],
+                    scale.max(if rounding_level.is_finite() { rounding_level } else { 0.0 }),
+                ) && one_side,
                 gaps: col_gaps[j].clone(),
                 detected,
                 forward_error: fe,

@@ -140,12 +140,15 @@ pub fn run(
     let ef = settings.entry_floor;
     repeats(driver, caller)?;
     let scale = driver.strain_scale(settings.step_floor);
+    let norm = |v: &[f64]| v.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let stress_size = norm(&driver.base.stress) + norm(ctx.returned) * scale;
     let query = |returned, scale| kink::KinkQuery {
         conv,
         returned,
         scale,
         tol: settings.forward.tol,
         entry_floor: ef,
+        stress_size,
     };
     let mut kink = kink::probe(driver, caller, &query(ctx.returned, scale))?;
     // A column on neither side of its kink: the point may be a corner, whose branch the

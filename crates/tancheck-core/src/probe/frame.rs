@@ -411,6 +411,8 @@ fn on_a_kink(
         scale: d.strain_scale(settings.step_floor),
         tol: settings.central.tol,
         entry_floor: settings.entry_floor,
+        stress_size: d.base.stress.iter().map(|x| x * x).sum::<f64>().sqrt()
+            + returned.iter().map(|x| x * x).sum::<f64>().sqrt() * d.strain_scale(settings.step_floor),
     };
     let k = crate::diagnose::kink::probe(d, caller, &q)?;
     let gap = k
