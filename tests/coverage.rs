@@ -439,3 +439,21 @@ fn a_reversal_at_zero_stress_is_not_called_no_reversal() {
     );
     assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
 }
+
+/// A temperature ramp at held strain has nothing to unload: no "never unloaded" warning (it
+/// read so on a pure heating path; a user-style sweep). Thermo-elasticity, made-up numbers
+/// (the properties of tests/domain_edge.rs).
+#[test]
+fn a_temperature_ramp_without_strain_is_not_said_to_never_unload() {
+    use tancheck::core::path::PathIncrement;
+    let mut r = reference("thermo", PointKind::Solid3d).unwrap();
+    let info = r.info().clone();
+    let props = [210000.0, 0.3, 0.0, 1.0, 0.0, 1.2e-5];
+    let mut caller = Caller::new(&mut r);
+    let increments =
+        (0..4).map(|_| PathIncrement { dtemp: 20.0, ..PathIncrement::strain([0.0; 6]) }).collect();
+    let path = Path { name: "heating at held strain".into(), increments };
+    let rep = check::run(&mut caller, &props, PointState::zero(&info, 20.0), &path, &Settings::default());
+    let rep = rep.unwrap_or_else(|e| panic!("{e}"));
+    assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
+}

@@ -141,6 +141,13 @@ fn bisect_writes_a_case_that_replays_bit_for_bit() {
     let (code, out) = tancheck(&["replay", broken.to_str().unwrap()]);
     assert_eq!(code, 2, "{out}");
     assert!(out.contains("broken-case.json") && out.contains("det F"), "{out}");
+    // A case cut short is told where its JSON ends, not "unknown field `finite`" from the point
+    // case's reader (a user-style sweep).
+    let cut = dir.join("cut-case.json");
+    std::fs::write(&cut, &text[..text.len() / 2]).unwrap();
+    let (code, out) = tancheck(&["replay", cut.to_str().unwrap()]);
+    assert_eq!(code, 2, "{out}");
+    assert!(out.contains("cut-case.json") && out.contains("EOF") && !out.contains("unknown field"), "{out}");
     // A correct routine: nothing to bisect, no case.
     let file = manifest(&dir, "correct.json", "nh-sigma-jaumann");
     let (code, out) = tancheck(&["bisect", &file]);

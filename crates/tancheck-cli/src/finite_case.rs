@@ -158,8 +158,13 @@ fn write(dir: &FsPath, case: &FiniteCase) -> Result<PathBuf> {
 
 /// Whether `text` is a finite-strain case (a `finite` section and a `call`).
 pub fn is_finite_case(text: &str) -> bool {
-    serde_json::from_str::<serde_json::Value>(text)
-        .is_ok_and(|v| v.get("finite").is_some() && v.get("call").is_some())
+    match serde_json::from_str::<serde_json::Value>(text) {
+        Ok(v) => v.get("finite").is_some() && v.get("call").is_some(),
+        // Not valid JSON (a case cut short): a point case has no `finite` key, so a file with
+        // one is read as a finite-strain case, whose parser names where the JSON breaks (it
+        // read "unknown field `finite`" from the point case's parser; a user-style sweep).
+        Err(_) => crate::finite_load::has_key(text, "finite"),
+    }
 }
 
 /// The routine a case names, opened as its manifest would open it.

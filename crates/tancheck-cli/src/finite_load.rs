@@ -283,7 +283,7 @@ pub fn open_library(
 }
 
 /// Whether `text` holds `"key"` followed (after white space) by a colon: a JSON object key.
-fn has_key(text: &str, key: &str) -> bool {
+pub(crate) fn has_key(text: &str, key: &str) -> bool {
     let quoted = format!("\"{key}\"");
     text.match_indices(&quoted).any(|(at, q)| text[at + q.len()..].trim_start().starts_with(':'))
 }

@@ -306,7 +306,11 @@ fn run_path(
             if n == 1 { "" } else { "s" }
         ));
     }
-    if !unloaded && !stopped && increments.len() > 1 {
+    // A path without strain increments (a temperature ramp at held strain) has nothing to
+    // unload (it read "the path never unloaded"; a user-style sweep).
+    let strained =
+        path.increments.iter().any(|i| i.dstrain.iter().any(|&d| d != 0.0) || i.hold_stress.is_some());
+    if !unloaded && !stopped && increments.len() > 1 && strained {
         // A path that turns back where the stress is zero (a fully failed interface, a point
         // unloaded to zero) did reverse; the words said it never did (a user-style sweep).
         let reverses = path

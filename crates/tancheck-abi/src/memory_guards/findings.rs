@@ -62,7 +62,10 @@ impl GuardFinding {
                 self.first,
                 from_one(self.first),
                 self.array.counted(self.len),
-                if self.entries > 1 {
+                if self.entries >= super::ZONE {
+                    // The guard zone is this wide: a write that filled it may go further.
+                    format!(" (at least {} entries past the end changed: the whole guard zone)", self.entries)
+                } else if self.entries > 1 {
                     format!(" ({} entries past the end changed)", self.entries)
                 } else {
                     String::new()
@@ -152,5 +155,34 @@ impl Findings {
             Some(g) => g.calls += 1,
             None => self.list.push(f),
         }
+    }
+}
+
+#[cfg(test)]
+mod overrun_words {
+    use super::*;
+    use crate::memory_guards::{GuardedArray, ZONE};
+
+    // A write that filled the whole guard zone may go further: "at least" (a write of 13 past
+    // a zero-length state read "8 entries past the end"; a user-style sweep).
+    #[test]
+    fn a_full_guard_zone_reads_at_least() {
+        let f = |entries| GuardFinding {
+            kind: FindingKind::Overrun,
+            array: GuardedArray::State,
+            len: 0,
+            first: 0,
+            entries,
+            ncomp: 6,
+            increment: 1,
+            complex: false,
+            calls: 1,
+        };
+        assert!(
+            f(ZONE).what().contains(&format!("at least {ZONE} entries past the end")),
+            "{}",
+            f(ZONE).what()
+        );
+        assert!(f(3).what().contains("(3 entries past the end changed)"), "{}", f(3).what());
     }
 }

@@ -380,8 +380,11 @@ fn judged_lines(out: &mut dyn Write, inc: &FiniteIncrement, size: usize, p: Pale
             w.numerical
         )?;
     }
-    if let Some(c) = &inc.cause {
-        writeln!(out, "      cause {}: {}", c.name, c.explanation)?;
+    match &inc.cause {
+        Some(c) => writeln!(out, "      cause {}: {}", c.name, c.explanation)?,
+        // As the check says it (replay said nothing where no cause fits; a user-style sweep).
+        None if !inc.passed => writeln!(out, "      cause: none of the measure confusions explains it")?,
+        None => {}
     }
     Ok(())
 }
@@ -501,4 +504,29 @@ pub fn write_replay(
     }
     writeln!(out, "   debug it with: {}", r.debugger)?;
     writeln!(out, "verdict: {} (exit {})", p.verdict(word), r.exit_code)
+}
+
+#[cfg(test)]
+mod replay_words {
+    use tancheck_core::finite::check::FiniteIncrement;
+
+    // A failing call no cause explains says so, as the check does (replay said nothing; a
+    // user-style sweep).
+    #[test]
+    fn a_failure_without_a_cause_says_none_explains_it() {
+        let inc = FiniteIncrement {
+            increment: 1,
+            gradient: [1.0, 0.0, 0.0, 0.0, 1.0, 0.0, 0.0, 0.0, 1.0],
+            error_central: 0.1,
+            error_complex: None,
+            passed: false,
+            worst: None,
+            worst_entries: Vec::new(),
+            cause: None,
+        };
+        let mut out = Vec::new();
+        super::judged_lines(&mut out, &inc, 6, super::Palette { on: false }).unwrap();
+        let t = String::from_utf8(out).unwrap();
+        assert!(t.contains("cause: none of the measure confusions explains it"), "{t}");
+    }
 }
