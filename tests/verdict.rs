@@ -596,3 +596,28 @@ fn a_zero_tangent_at_an_apex_passes_with_the_twin() {
     let r = run_from_zero(&mut flawed, &[200000.0, 0.3], 20.0, &path, &Settings::default());
     assert_eq!(r.verdict, Verdict::TangentFailure, "{}", summary(&r));
 }
+
+// A continuum tangent on an increment that enters plasticity near its end (at 0.998 of it) is
+// named `continuum-tangent` from fractions of its part past the crossing (with a bound of 0.99
+// on the crossing the refined increments were all elastic and it read `unexplained`; a
+// user-style sweep). J2 with linear hardening (E 200000, ν 0.3, σy 250, H 1000; made-up): under
+// uniaxial strain the von Mises stress is 2μ ε11 = E ε11/(1 + ν) (derived), so yield at
+// ε11 = 250 · 1.3 / 200000 = 1.625e-3, reached at 0.998 of an increment of 1.625e-3 / 0.998.
+#[test]
+fn a_continuum_tangent_entering_plasticity_near_the_end_is_named() {
+    let d = 1.625e-3 / 0.998;
+    let path = Path {
+        name: "uniaxial strain just past yield".into(),
+        increments: vec![PathIncrement::strain([d, 0.0, 0.0, 0.0, 0.0, 0.0])],
+    };
+    let mut m = zoo_model("j2-continuum", PointKind::Solid3d).unwrap();
+    let r = run_from_zero(
+        &mut m,
+        &[200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 0.0],
+        20.0,
+        &path,
+        &Settings::default(),
+    );
+    assert_eq!(r.verdict, Verdict::TangentFailure, "{}", summary(&r));
+    assert_eq!(r.finding(), "continuum-tangent", "{}", summary(&r));
+}
