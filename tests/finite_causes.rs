@@ -98,3 +98,57 @@ fn shear_columns_off_by_two_and_scaled_rate_terms_are_named() {
     // The whole difference is the other rate, as before.
     assert_eq!(check(Flaw::RateTerms(1.0)).finding.as_deref(), Some("other-rate"));
 }
+
+/// The neo-Hookean model keeping the polar rotation R of F (F = R U) in 9 state variables,
+/// column-major: correct, its stress objective; a superposed rigid rotation Q turns R into Q R.
+struct KeepsRotation(FiniteModelRoutine<NeoHookean>, FiniteInfo);
+
+impl FiniteRoutine for KeepsRotation {
+    fn info(&self) -> &FiniteInfo {
+        &self.1
+    }
+    fn call(
+        &mut self,
+        input: &FiniteInput<'_, f64>,
+        output: &mut FiniteOutput<'_, f64>,
+    ) -> Result<(), Fault> {
+        let mut none: [f64; 0] = [];
+        let mut inner = FiniteOutput {
+            stress: &mut *output.stress,
+            state: &mut none,
+            tangent: &mut *output.tangent,
+            energy: &mut *output.energy,
+            outcome: &mut *output.outcome,
+        };
+        let inner_input = FiniteInput { state0: &[], ..*input };
+        self.0.call(&inner_input, &mut inner)?;
+        use tancheck::core::finite::mat3;
+        let r = mat3::to_flat(&mat3::rotation(&mat3::from_flat(input.f1)));
+        output.state.copy_from_slice(&r);
+        Ok(())
+    }
+}
+
+// A routine that keeps a rotation in its state (a corotational one keeps R) passes the
+// rotation probes when `rotation_state` declares it, and fails them without (a correct
+// Green–Naghdi routine could not pass; a user-style sweep).
+#[test]
+fn a_rotation_kept_in_the_state_is_declared() {
+    use tancheck::core::finite::probe::{run_all, ProbeOptions};
+    let model = NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann);
+    let mut info = tancheck::core::finite::FiniteModel::info(&model).clone();
+    info.nstate = 9;
+    let mut r = KeepsRotation(FiniteModelRoutine(model), info);
+    let path = FinitePathSpec::SimpleShear { amount: 0.6, increments: 3, rotation: None }.build().unwrap();
+    let state0 = [1.0, 0.0, 0.0, 0.0, 1.0, 0.0, 0.0, 0.0, 1.0];
+    let failed = |opts: &ProbeOptions, r: &mut KeepsRotation| -> Vec<String> {
+        run_all(r, &[1000.0, 0.3], &state0, &path, opts)
+            .into_iter()
+            .filter(|p| !p.passed)
+            .map(|p| p.name)
+            .collect()
+    };
+    let declared = ProbeOptions { rotation_state: vec![0], ..ProbeOptions::default() };
+    assert!(failed(&declared, &mut r).is_empty(), "{:?}", failed(&declared, &mut r));
+    assert!(!failed(&ProbeOptions::default(), &mut r).is_empty());
+}

@@ -128,24 +128,29 @@ impl FiniteManifest {
         if !m.start.state.is_empty() && m.start.state.len() != r.states {
             bail!("{file}: start.state has {} entries, routine.states is {}", m.start.state.len(), r.states);
         }
-        // A symmetric tensor in the state takes 6 entries from its first slot: inside the
-        // state, and no two of them sharing an entry (the probes rotate each one).
-        let mut slots: Vec<usize> = m.probes.tensor_state.clone();
+        // A symmetric tensor in the state takes 6 entries from its first slot, a rotation 9:
+        // inside the state, and no two of them sharing an entry (the probes rotate each one).
+        let mut slots: Vec<(usize, usize, &str)> =
+            m.probes.tensor_state.iter().map(|&t| (t, 6, "tensor_state")).collect();
+        slots.extend(m.probes.rotation_state.iter().map(|&t| (t, 9, "rotation_state")));
         slots.sort_unstable();
-        if let Some(&t) = slots.iter().find(|&&t| t + 6 > r.states) {
+        if let Some(&(t, w, key)) = slots.iter().find(|&&(t, w, _)| t + w > r.states) {
             bail!(
-                "{file}: probes.tensor_state: a tensor at slot {t} takes state entries {t} to {}, and \
-                 routine.states is {} (slots count from 0)",
-                t + 5,
+                "{file}: probes.{key}: the {} at slot {t} takes state entries {t} to {}, and routine.states is {} \
+                 (slots count from 0)",
+                if w == 6 { "tensor" } else { "rotation" },
+                t + w - 1,
                 r.states
             );
         }
-        if let Some(w) = slots.windows(2).find(|w| w[1] < w[0] + 6) {
+        if let Some(p) = slots.windows(2).find(|p| p[1].0 < p[0].0 + p[0].1) {
             bail!(
-                "{file}: probes.tensor_state: the tensors at slots {} and {} share state entries (each \
-                 takes 6)",
-                w[0],
-                w[1]
+                "{file}: probes.{} and probes.{}: the entries at slots {} and {} share state entries (a tensor \
+                 takes 6, a rotation 9)",
+                p[0].2,
+                p[1].2,
+                p[0].0,
+                p[1].0
             );
         }
         let s = m.check;

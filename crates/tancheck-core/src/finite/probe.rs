@@ -39,6 +39,10 @@ pub struct ProbeOptions {
     /// First slots of the symmetric tensors (6 entries each, order 11, 22, 33, 23, 13, 12)
     /// in the state; every other state entry is a scalar.
     pub tensor_state: Vec<usize>,
+    /// First slots of rotations (9 entries each, column-major R) in the state, which a rigid
+    /// rotation Q turns into Q R: the rotation a corotational routine keeps (a Green–Naghdi
+    /// routine keeping R failed the rotation probes with its stress right; a user-style sweep).
+    pub rotation_state: Vec<usize>,
     pub shear_response: ShearResponse,
 }
 
@@ -100,11 +104,17 @@ fn rotate6(q: &Mat3<f64>, v: &[f64]) -> [f64; 6] {
     mat3::to_sym6(&t)
 }
 
-fn rotate_state(q: &Mat3<f64>, state: &[f64], tensors: &[usize]) -> Vec<f64> {
+fn rotate_state(q: &Mat3<f64>, state: &[f64], options: &ProbeOptions) -> Vec<f64> {
     let mut out = state.to_vec();
-    for &s in tensors {
+    for &s in &options.tensor_state {
         if s + 6 <= state.len() {
             out[s..s + 6].copy_from_slice(&rotate6(q, &state[s..s + 6]));
+        }
+    }
+    for &s in &options.rotation_state {
+        if s + 9 <= state.len() {
+            let r: [f64; 9] = std::array::from_fn(|k| state[s + k]);
+            out[s..s + 9].copy_from_slice(&mat3::to_flat(&mat3::mul(q, &mat3::from_flat(&r))));
         }
     }
     out
@@ -231,10 +241,10 @@ impl Findings {
         // tensor_state as the README then asked, read "NOT objective" with no word; a
         // user-style sweep).
         let hint = if state_alone {
-            "; the stress rotates where the state does not: `tensor_state` must list exactly the state's \
-             spatial symmetric tensors (a tensor of the reference configuration, such as an inverse plastic \
-             right Cauchy–Green tensor, does not rotate and is left out; a spatial one left out is rotated \
-             by nobody)"
+            "; the stress rotates as it should and the state does not follow: `tensor_state` must list \
+             exactly the state's spatial symmetric tensors and `rotation_state` the rotations it keeps (a \
+             tensor of the reference configuration, such as an inverse plastic right Cauchy–Green tensor, \
+             does not rotate and is left out; a spatial one or a rotation left out is rotated by nobody)"
         } else {
             ""
         };
@@ -281,17 +291,14 @@ impl Rotation<'_> {
                     let mut t = s.clone();
                     t.f0 = mat3::mul(&q, &s.f0);
                     t.stress0 = rotate6(&q, &s.stress0);
-                    t.state0 = rotate_state(&q, &s.state0, &self.options.tensor_state);
+                    t.state0 = rotate_state(&q, &s.state0, self.options);
                     self.ws.call_full(self.r, &t, &mat3::mul(&q, &f1))
                 }) else {
                     found.failed(format!("increment {}: a call failed", k + 1));
                     continue;
                 };
                 let e = diff(&b.stress, &rotate6(&q, &a.stress)) / self.scale;
-                let es = relative(
-                    diff(&b.state, &rotate_state(&q, &a.state, &self.options.tensor_state)),
-                    &a.state,
-                );
+                let es = relative(diff(&b.state, &rotate_state(&q, &a.state, self.options)), &a.state);
                 let ee = if a.outcome.provides(crate::routine::provides::ENERGY) {
                     relative(diff(&b.energy, &a.energy), &a.energy)
                 } else {
@@ -319,10 +326,7 @@ impl Rotation<'_> {
                     continue;
                 };
                 let e = diff(&b.stress, &rotate6(&q, &s.stress0)) / self.scale;
-                let es = relative(
-                    diff(&b.state, &rotate_state(&q, &s.state0, &self.options.tensor_state)),
-                    &s.state0,
-                );
+                let es = relative(diff(&b.state, &rotate_state(&q, &s.state0, self.options)), &s.state0);
                 found.note_state(e, es);
                 found.difference(e.max(es), || {
                     let state = state_part(&s.state0, es);
@@ -353,10 +357,7 @@ impl Rotation<'_> {
             };
             let qt = mat3::transpose(&q);
             let e = diff(&rotate6(&qt, &res.stress), &end.stress0) / self.scale;
-            let es = relative(
-                diff(&rotate_state(&qt, &res.state, &self.options.tensor_state), &end.state0),
-                &end.state0,
-            );
+            let es = relative(diff(&rotate_state(&qt, &res.state, self.options), &end.state0), &end.state0);
             let e = e.max(es);
             found.difference(e, || {
                 format!(
