@@ -138,7 +138,9 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
             let _ = write!(
                 p,
                 ", worst error {:.2e} (tol {:.0e})",
-                sc.worst_norm_error.max(sc.worst_entry_error),
+                // With the soft-direction error, which can fail a check alone (the line quoted
+                // 4.67e-2 beside a check that failed at 1.08; a user-style sweep).
+                sc.worst_error.max(sc.worst_norm_error).max(sc.worst_entry_error),
                 sc.tol
             );
         }

@@ -103,15 +103,20 @@ pub fn relative_to(target: &FsPath, base: &FsPath) -> PathBuf {
     out
 }
 
-/// A file name for a case: the routine's name, the increment, and 12 hex digits of a hash of
-/// the call's bits (the same call gives the same name, so writing it again replaces it).
-pub fn case_file_name(case: &Case) -> String {
-    let name: String = case
-        .routine
-        .name
+/// A routine's name as the start of a file name: letters, digits, `-` and `_` kept, every
+/// other character a `-`, none at either end.
+pub fn file_stem_of(name: &str) -> String {
+    let s: String = name
         .chars()
         .map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '-' })
         .collect();
+    s.trim_matches('-').to_string()
+}
+
+/// A file name for a case: the routine's name, the increment, and 12 hex digits of a hash of
+/// the call's bits (the same call gives the same name, so writing it again replaces it).
+pub fn case_file_name(case: &Case) -> String {
+    let name = file_stem_of(&case.routine.name);
     let c = &case.call;
     let key = format!(
         "{:?}{:?}{:?}{:?}{:?}{:?}{:?}{:?}{}",
@@ -125,7 +130,7 @@ pub fn case_file_name(case: &Case) -> String {
         case.routine.symbol,
         c.increment
     );
-    format!("{}-inc{}-{}.json", name.trim_matches('-'), c.increment, &sha256_text(&key)[..12])
+    format!("{}-inc{}-{}.json", name, c.increment, &sha256_text(&key)[..12])
 }
 
 /// Write `case` into `dir` (created when missing), the library path made relative to `dir`.

@@ -137,20 +137,10 @@ pub fn bisect(manifest: &FsPath, strain_path: bool, fraction_tol: f64, run: &Cas
 /// inputs (the same call gives the same file).
 fn write(dir: &FsPath, case: &FiniteCase) -> Result<PathBuf> {
     std::fs::create_dir_all(dir).with_context(|| format!("creating the case folder {}", dir.display()))?;
-    let name: String = case
-        .routine
-        .name
-        .chars()
-        .map(|c| if c.is_ascii_alphanumeric() || c == '-' || c == '_' { c } else { '-' })
-        .collect();
+    let name = crate::case_store::file_stem_of(&case.routine.name);
     let key = serde_json::to_string(&case.call).expect("a call serialises");
     let hash = crate::case_store::sha256_text(&key);
-    let file = dir.join(format!(
-        "{}-finite-inc{}-{}.json",
-        name.trim_matches('-'),
-        case.call.increment,
-        &hash[..12]
-    ));
+    let file = dir.join(format!("{}-finite-inc{}-{}.json", name, case.call.increment, &hash[..12]));
     crate::report::write_atomic(&file, case.to_json().as_bytes())
         .with_context(|| format!("writing the case {}", file.display()))?;
     Ok(file)
