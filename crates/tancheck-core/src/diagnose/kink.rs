@@ -300,21 +300,15 @@ pub fn judge(q: &KinkQuery<'_>, pairs: &[OneSided]) -> Kink {
                 (false, true) => Some(Side::Backward),
                 _ => None,
             };
-            // A jump J at the point is seen by one side only (J/h), the other keeping the
-            // branch's derivative; and it stands above the quotients' rounding, which also grows
-            // as 1/h and exceeds a zero column where the stress does not move (a perfectly plastic
-            // apex read "the stress jumps" on a one-ulp backward quotient; a user-style sweep).
-            let one_side = {
-                let c = j * n..(j + 1) * n;
-                let smaller = norm(&f[c.clone()]).min(norm(&b[c]));
-                col_abs[j].last().is_some_and(|&g| smaller <= 0.1 * g)
-            };
+            // A jump stands above the quotients' rounding, which also grows as 1/h and exceeds a
+            // zero column where the stress does not move (a perfectly plastic apex read "the
+            // stress jumps" on a one-ulp backward quotient; a user-style sweep).
             KinkColumn {
                 steady,
                 jump: jump(
                     &col_abs[j],
                     scale.max(if rounding_level.is_finite() { rounding_level } else { 0.0 }),
-                ) && one_side,
+                ),
                 gaps: col_gaps[j].clone(),
                 detected,
                 forward_error: fe,

@@ -277,16 +277,17 @@ pub fn judge(
     f1: &Mat3<f64>,
     settings: FiniteSettings,
 ) -> Result<Judged, JudgeFault> {
-    let info = r.info().clone();
+    // The declared measures only (Copy): judged once per increment, no clone of the info.
+    let (measure, stress) = (r.info().tangent, r.info().stress);
     let twin = r.has_complex();
-    let n = info.tangent.size();
+    let n = measure.size();
     let mut notes = Vec::new();
     let mut twin_not_safe = false;
     let base = ws.call_full(r, start, f1).map_err(|fault| JudgeFault { base: true, fault })?;
     let perturbed = |fault| JudgeFault { base: false, fault };
     let mut central = vec![0.0; n * n];
     let mut complex = vec![0.0; n * n];
-    let ask = |how| Ask { measure: info.tangent, stress: info.stress, how };
+    let ask = |how| Ask { measure, stress, how };
     let central_ask = ask(Difference::Central(settings.central_step));
     numeric::tangent(r, ws, start, f1, central_ask, &mut central).map_err(perturbed)?;
     let complex_ask = ask(Difference::ComplexStep(settings.complex_step));
@@ -378,7 +379,7 @@ pub fn judge(
         order.sort_by(|&a, &b| gap(b).total_cmp(&gap(a)).then(a.cmp(&b)));
         order.into_iter().take(WORST_ENTRIES).map(entry).collect()
     };
-    let tau = info.stress.to_kirchhoff(&base.stress, mat3::det(f1));
+    let tau = stress.to_kirchhoff(&base.stress, mat3::det(f1));
     let non_finite =
         [("stress", &base.stress[..]), ("state", &base.state[..]), ("tangent", &base.tangent[..])]
             .into_iter()

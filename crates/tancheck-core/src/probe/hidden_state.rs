@@ -129,7 +129,7 @@ const ROUNDING: f64 = 1e-12;
 fn largest_difference(
     outputs: &[(&'static str, &Vec<f64>, &Vec<f64>)],
 ) -> (&'static str, usize, f64, f64, f64) {
-    let mut worst = ("stress", 0, 0.0, 0.0, 0.0);
+    let mut worst: Option<(&'static str, usize, f64, f64, f64)> = None;
     for (what, a, b) in outputs {
         for (i, (x, y)) in a.iter().zip(b.iter()).enumerate() {
             if x.to_bits() == y.to_bits() {
@@ -143,12 +143,13 @@ fn largest_difference(
             } else {
                 0.0
             };
-            if rel > worst.4 || worst.4 == 0.0 && worst.2 == worst.3 {
-                worst = (what, i, *x, *y, rel);
+            // The first entry that differs, then any that differs more.
+            if worst.is_none_or(|w| rel > w.4) {
+                worst = Some((what, i, *x, *y, rel));
             }
         }
     }
-    worst
+    worst.unwrap_or(("stress", 0, 0.0, 0.0, 0.0))
 }
 
 #[cfg(test)]
