@@ -154,6 +154,20 @@ fn bisect_writes_a_case_that_replays_bit_for_bit() {
     assert_eq!(code, 0, "{out}");
     assert!(out.contains("nothing to bisect"), "{out}");
     assert!(!dir.join("tancheck-cases/correct").exists());
+    // A built-in model given a property short is bad input naming the manifest, for check and
+    // bisect alike (it ended in a panic; found trying the commands as a user).
+    let short = dir.join("short.json");
+    std::fs::write(
+        &short,
+        r#"{ "finite": { "stress": "cauchy", "tangent": "sigma-jaumann" },
+             "routine": { "model": "nh-sigma-jaumann", "properties": [1000] } }"#,
+    )
+    .unwrap();
+    for cmd in ["check", "bisect"] {
+        let (code, out) = tancheck(&[cmd, short.to_str().unwrap()]);
+        assert_eq!(code, 2, "{cmd}: {out}");
+        assert!(out.contains("short.json") && out.contains("takes 2 properties"), "{cmd}: {out}");
+    }
     // HTML and JUnit are not written for it: said before any call.
     let (code, out) = tancheck(&["bisect", &file, "--html", dir.join("x.html").to_str().unwrap()]);
     assert_eq!(code, 2, "{out}");

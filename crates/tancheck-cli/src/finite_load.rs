@@ -206,7 +206,12 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
     };
     if name == NeoHookean::NAME {
         check(d.stress, d.tangent, Frame::None)?;
-        return Ok(Box::new(FiniteModelRoutine(NeoHookean::new(d.stress, d.tangent))));
+        let nh = NeoHookean::new(d.stress, d.tangent);
+        // Its sizes as the other models' (a property short ended in a panic; found trying the
+        // commands as a user).
+        let i = tancheck_core::finite::FiniteModel::info(&nh);
+        model_sizes(m, i.nproperties, i.nstate, file)?;
+        return Ok(Box::new(FiniteModelRoutine(nh)));
     }
     if name == J2Log::NAME {
         check(d.stress, d.tangent, Frame::None)?;
@@ -225,6 +230,7 @@ pub fn open(m: &FiniteManifest, d: &Declared, dir: &FsPath, file: &str) -> Resul
                 FiniteZooModel::NeoHookean(nh) => {
                     let i = tancheck_core::finite::FiniteModel::info(&nh);
                     check(i.stress, i.tangent, i.frame)?;
+                    model_sizes(m, i.nproperties, i.nstate, file)?;
                     Box::new(FiniteModelRoutine(nh))
                 }
                 FiniteZooModel::Hypo(h) => {
