@@ -31,16 +31,20 @@ pub(super) fn one_sided_distance(
     h: f64,
     floor: f64,
 ) -> f64 {
+    // The quotients' 1/h is taken out of both sums (it cancels in the ratio): one division
+    // per column instead of two per entry (this runs on every column of every increment).
     let (mut df, mut db, mut nf, mut nb) = (0.0, 0.0, 0.0, 0.0);
     for i in 0..r.len() {
-        let f = (plus[i] - base[i]) / h;
-        let b = (base[i] - minus[i]) / h;
-        df += (r[i] - f) * (r[i] - f);
-        db += (r[i] - b) * (r[i] - b);
+        let f = plus[i] - base[i];
+        let b = base[i] - minus[i];
+        let rh = r[i] * h;
+        df += (rh - f) * (rh - f);
+        db += (rh - b) * (rh - b);
         nf += f * f;
         nb += b * b;
     }
-    let d = df.min(db).sqrt() / nf.max(nb).sqrt().max(floor).max(f64::MIN_POSITIVE);
+    let ah = h.abs();
+    let d = df.min(db).sqrt() / nf.max(nb).sqrt().max(floor * ah).max(f64::MIN_POSITIVE);
     if d.is_nan() {
         0.0
     } else {
