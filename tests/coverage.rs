@@ -76,11 +76,12 @@ fn a_temperature_path_without_a_returned_dtemp_is_flagged() {
 }
 
 /// Strain increments in slots the routine's kind does not have are left out: a note says so
-/// where an increment loses a third or more of itself (increments written for a 3D point given
-/// to a cohesive one), not for a built-in shape's small out-of-plane parts on a plane point
-/// (the default path on plane strain; a review found that note on every plane check).
+/// for any such entry, however small (a rule that noted only increments losing a third of
+/// their size let a plane-stress path's ε33 of 0.7 ε11 go unsaid; a user-style sweep). The
+/// command line's default path leaves them out itself and says so in its name, so a default
+/// check of a plane point has no such note (a review found it on every plane check).
 #[test]
-fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
+fn strain_increments_left_out_by_the_kind_are_noted() {
     use tancheck::core::path::PathIncrement;
     let note = |kind: PointKind, model: &str, props: &[f64], path: &Path| -> Vec<String> {
         let mut r = reference(model, kind).unwrap();
@@ -93,7 +94,18 @@ fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
     let elastic = [200000.0, 0.3];
     let plane =
         note(PointKind::PlaneStrain, "elastic", &elastic, &Path::ramp(Shape::TensionShear, 4e-3, 8, 4));
+    assert!(plane.iter().any(|n| n.contains("slots 23, 13 (first at increment 1)")), "{plane:?}");
+    let default = tancheck::cli::session::default_path(PointKind::PlaneStrain);
+    assert!(default.name.contains("(its 23 and 13 left out for a plane-strain point)"), "{}", default.name);
+    let plane = note(PointKind::PlaneStrain, "elastic", &elastic, &default);
     assert!(plane.is_empty(), "{plane:?}");
+    // A small entry is noted too: ε33 a tenth of ε11 on a plane-stress point.
+    let small = Path {
+        name: "stretch with a little ε33".into(),
+        increments: vec![PathIncrement::strain([1e-4, 0.0, 1e-5, 0.0, 0.0, 0.0]); 2],
+    };
+    let ps = note(PointKind::PlaneStress, "elastic", &elastic, &small);
+    assert!(ps.iter().any(|n| n.contains("slot 33 (first at increment 1)")), "{ps:?}");
     let mostly_shear = Path {
         name: "stretch and much shear".into(),
         increments: vec![PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 1e-3]); 2],
@@ -134,6 +146,55 @@ fn strain_increments_left_out_by_the_kind_are_noted_where_they_matter() {
         heated.increments[0].dtemp = 5.0;
         assert!(check::run(&mut caller, props, PointState::zero(&info, 20.0), &heated, &Settings::default())
             .is_ok());
+    }
+}
+
+/// A stress held at a value other than zero in a slot the routine's kind does not have cannot
+/// be reached: bad input naming the increment and the slot (a plane-strain point asked to hold
+/// σ23 at 50, and a plane-stress one σ33 at 100, passed with every stress zero and no word; a
+/// user-style sweep). Held at zero it is what the kind gives, and the path runs.
+#[test]
+fn a_stress_held_in_a_slot_the_kind_lacks_is_bad_input() {
+    use tancheck::core::path::PathIncrement;
+    let elastic = [200000.0, 0.3];
+    for (kind, slot, at) in [(PointKind::PlaneStrain, 3, "23"), (PointKind::PlaneStress, 2, "33")] {
+        let mut r = reference("elastic", kind).unwrap();
+        let info = r.info().clone();
+        let mut caller = Caller::new(&mut r);
+        let held = |value: f64| {
+            let mut inc = PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 0.0]);
+            let mut hold = [None; 6];
+            hold[slot] = Some(value);
+            inc.hold_stress = Some(hold);
+            Path {
+                name: "held".into(),
+                increments: vec![PathIncrement::strain([1e-4, 0.0, 0.0, 0.0, 0.0, 0.0]), inc],
+            }
+        };
+        let e = check::run(
+            &mut caller,
+            &elastic,
+            PointState::zero(&info, 20.0),
+            &held(50.0),
+            &Settings::default(),
+        )
+        .unwrap_err()
+        .to_string();
+        assert!(
+            e.contains(&format!("increment 2 of the path holds the stress in slot {at} at 50")),
+            "{kind:?}: {e}"
+        );
+        assert!(
+            check::run(
+                &mut caller,
+                &elastic,
+                PointState::zero(&info, 20.0),
+                &held(0.0),
+                &Settings::default()
+            )
+            .is_ok(),
+            "{kind:?}: a hold at zero runs"
+        );
     }
 }
 

@@ -157,20 +157,11 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
 
 /// `check` and `probe` of a block manifest: the block checks, through the command's reporters
 /// (terminal, `--json`, `--html`, `--junit`, `-q`, `--color`); the exit code.
-/// The default path of a block routine: the point check's, with its small 23 and 13 shear
-/// left out for a routine of four components, as the point check leaves them out of a plane
-/// point's increments (a plane-strain block routine was refused its default path, naming
-/// increments its manifest never gave; a user-style sweep).
+/// The default path of a block routine: the point check's (its entries in slots the kind
+/// does not have left out, as for a point routine; a plane-strain block routine was refused
+/// its default path, naming increments its manifest never gave; a user-style sweep).
 pub fn default_block_path(kind: tancheck_core::PointKind) -> Path {
-    let mut p = crate::session::default_path(kind);
-    if kind.ncomp() == 4 {
-        for inc in &mut p.increments {
-            inc.dstrain[3] = 0.0;
-            inc.dstrain[4] = 0.0;
-        }
-        p.name.push_str(" (its 23 and 13 shear left out for a routine of four components)");
-    }
-    p
+    crate::session::default_path(kind)
 }
 
 pub fn check_block_command(

@@ -425,7 +425,11 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
     // The compact report (full detail of failures only) unless every check's details are asked for.
     let keep = if a.output.verbose { Keep::All } else { Keep::Failures };
     let mut report = crate::session::run_manifest_with(&m, &dir, &path, keep, a.output.shows_progress())
-        .with_context(|| format!("checking the routine of {file}"))?;
+        .with_context(|| match &a.path {
+            // A path error names the path given (it named the manifest only; a user-style sweep).
+            Some(p) => format!("checking the routine of {file} on the path {p}"),
+            None => format!("checking the routine of {file}"),
+        })?;
     // The cases join the verdict, so that every report says what the exit code says (the
     // verdict line, the JSON and the JUnit said PASS while a case failed and the exit was 1).
     if let Some(t) = tally {

@@ -40,6 +40,15 @@ pub enum CoreError {
     )]
     PathOutsideKind { slots: String, kind: String, takes: String },
 
+    /// A stress held at a value other than zero in a slot the routine's kind does not have:
+    /// the point's stress there is zero by its kind (plane stress) or not its own to hold.
+    #[error(
+        "increment {increment} of the path holds the stress in slot {slot} at {value}, which the routine's kind \
+         ({kind}) does not have ({takes}): it cannot be reached there; hold only the routine's own components \
+         (or hold it at 0)"
+    )]
+    HoldOutsideKind { increment: usize, slot: String, value: f64, kind: String, takes: String },
+
     #[error("the path has {count} increments; at most {max}")]
     TooManyIncrements { count: usize, max: usize },
 
