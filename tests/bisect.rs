@@ -165,6 +165,33 @@ fn elastic_tangent_on_the_first_plastic_increment_rust() {
     assert!((found - s_star).abs() <= 1e-8, "{found} against {s_star}: a tighter tolerance is met too");
 }
 
+/// An increment that holds stresses is bisected under its held stresses: the fraction s of it
+/// is its prescribed strain scaled and the held stresses' strains solved for again. Under
+/// uniaxial stress J2 yields where σ11 = E ε11 = σy0 (Hooke's law; the lateral stresses are
+/// held at zero). Scaling the full increment's solved strains instead (its lateral strains
+/// include the plastic flow past yield) put the crossing elsewhere (a user-style sweep: 0.516
+/// against 0.527 on a plane-stress routine).
+#[test]
+fn a_held_stress_increment_is_bisected_under_its_held_stresses() {
+    let d = scratch("efp-held");
+    let eps_y = J2_PROPS[2] / J2_PROPS[0];
+    let step = 4e-3 / 8.0;
+    let k = (eps_y / step).ceil();
+    let s_star = eps_y / step - (k - 1.0);
+    let (code, v) = bisect(
+        &d,
+        &routine_json(Source::Model("j2-elastic-first-plastic"), "solid-3d", &J2_PROPS),
+        r#"{ "shape": "uniaxial-stress", "peak": 0.004, "steps": 8 }"#,
+        &["--max-shrink-iterations", "0", "--fraction-tol", "1e-9"],
+    );
+    assert_eq!(code, 1, "{v:#}");
+    assert_eq!(v["located"]["increment"], k as usize, "{v:#}");
+    let inside = &v["located"]["inside"];
+    let found = 0.5 * (inside["below"].as_f64().unwrap() + inside["above"].as_f64().unwrap());
+    // The held stresses are met to the mixed solve's tolerance, not to the bit.
+    assert!((found - s_star).abs() <= 1e-6, "{found} against {s_star} in closed form");
+}
+
 #[test]
 fn elastic_tangent_on_the_first_plastic_increment_c() {
     j2_elastic_first_plastic(
