@@ -520,3 +520,29 @@ fn a_path_file_is_taken_by_path() {
     let (k, _) = j2_first_yield(&[5e-4, 0.0, 0.0, 0.0, 0.0, 0.0], &J2_PROPS);
     assert_eq!(v["located"]["increment"].as_u64(), Some(k as u64), "{v:#}");
 }
+
+/// The shrunk path keeps the failure's branch as well as its finding: a flaw that fails in
+/// every branch (the shear columns halved) found in a first increment that yields is shrunk
+/// to a path that still yields, not to a zero increment of the elastic branch (explore named
+/// one zero-increment case for failures of two branches; a user-style sweep).
+#[test]
+fn the_shrunk_path_keeps_the_failure_in_its_branch() {
+    let d = scratch("shrink-branch");
+    let (code, v) = bisect(
+        &d,
+        &routine_json(Source::Model("j2-shear-factor"), "solid-3d", &J2_PROPS),
+        r#"{ "increments": [ { "dstrain": [0.004, 0, 0, 0, 0, 0.001] } ] }"#,
+        &[],
+    );
+    assert_eq!(code, 1, "{v:#}");
+    assert_eq!(v["located"]["branch"], "#1 (state changed)", "{v:#}");
+    let s = &v["shrunk"];
+    assert_eq!(s["located"]["branch"], "#1 (state changed)", "{s:#}");
+    assert_eq!(s["located"]["finding"], v["located"]["finding"], "{s:#}");
+    // Still a yielding increment: its deviatoric strain beyond the elastic range.
+    let inc = &s["path"]["increments"][0]["dstrain"];
+    let e: Vec<f64> = (0..6).map(|k| inc[k].as_f64().unwrap()).collect();
+    let e6: [f64; 6] = e.try_into().unwrap();
+    let (k, _) = j2_first_yield(&e6, &J2_PROPS);
+    assert_eq!(k, 1, "the shrunk increment {e6:?} yields within itself");
+}

@@ -1,7 +1,7 @@
 //! Shrinking a failing path: the shortest, plainest path found that still fails the same way.
 //!
 //! The invariant of the loop: the current path fails, with the verdict and the first
-//! increment's finding of the original, and by a margin in every comparison (scheme, tangent
+//! increment's finding and branch of the original, and by a margin in every comparison (scheme, tangent
 //! or ∂σ/∂T) that failed in the original: its error at least [`MARGIN`] times the tolerance,
 //! or as many times as the original's when that was fewer (a case that fails
 //! at twice the tolerance may pass under another machine's rounding). Every candidate is checked with [`crate::check::run`]
@@ -84,6 +84,7 @@ struct Shrinker<'a, 'r> {
     name: &'a str,
     verdict: Verdict,
     finding: String,
+    branch: String,
     /// The margin every kept path fails by, per comparison that failed in the original (see
     /// [`MARGIN`] and [`margins`]).
     min_margins: Vec<(Scheme, bool, f64)>,
@@ -106,10 +107,15 @@ struct Shrinker<'a, 'r> {
 /// at 1e-83 (a user-style sweep's shrunk case).
 const FLOOR: f64 = 1e-3;
 
-/// The verdict and the first failing increment's finding, and its index; `None` for a pass.
-fn signature(r: &Report) -> Option<(Verdict, String, usize)> {
+/// The verdict, the first failing increment's finding and branch (the branch it reported and
+/// whether its state changed), and its index; `None` for a pass. The branch is part of the
+/// failure kept: a failure in a plastic branch shrunk to a zero increment of the elastic one
+/// was another failure (explore listed three distinct failures, of two branches, each with
+/// the same zero-increment case; a user-style sweep).
+fn signature(r: &Report) -> Option<(Verdict, String, String, usize)> {
     let f = super::first_failure(r)?;
-    Some((r.verdict, f.finding().to_string(), f.index))
+    let branch = if f.fault.is_some() { String::new() } else { f.branch_label() };
+    Some((r.verdict, f.finding().to_string(), branch, f.index))
 }
 
 /// A shrunk path fails by at least this many tolerances, or by as many as the original did
@@ -178,8 +184,11 @@ impl Shrinker<'_, '_> {
             return false;
         }
         match signature(&r) {
-            Some((v, f, index))
-                if v == self.verdict && f == self.finding && keeps_margins(&r, &self.min_margins) =>
+            Some((v, f, b, index))
+                if v == self.verdict
+                    && f == self.finding
+                    && b == self.branch
+                    && keeps_margins(&r, &self.min_margins) =>
             {
                 let mut incs = path.increments;
                 incs.truncate(index);
@@ -343,7 +352,7 @@ pub fn shrink(
     if limits.max_seconds.is_nan() || limits.max_seconds <= 0.0 {
         return Err(CoreError::ShrinkTime(limits.max_seconds));
     }
-    let Some((verdict, finding, index)) = signature(report) else { return Ok(None) };
+    let Some((verdict, finding, branch, index)) = signature(report) else { return Ok(None) };
     // The increments of a report checked on a cut path are that path's.
     let path = report.checked_path.as_ref().unwrap_or(path);
     let t0 = Instant::now();
@@ -365,6 +374,7 @@ pub fn shrink(
         name: &path.name,
         verdict,
         finding: finding.clone(),
+        branch,
         min_margins: margins(&report).into_iter().map(|(s, dt, m)| (s, dt, m.min(MARGIN))).collect(),
         limits,
         t0,
