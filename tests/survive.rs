@@ -430,6 +430,28 @@ fn stopping_the_parent_ends_the_worker_and_removes_its_folder() {
     }
 }
 
+/// Ctrl-C and a CI runner's cancel signal the whole process group: the worker may end of the
+/// signal before the parent has seen its own. A worker ended by SIGINT or SIGTERM is a stop
+/// from outside (exit 130 or 143, the report incomplete), not a fault of the routine (it was
+/// "killed by signal 2", exit 3, in two of four tries; a user-style sweep). Here the signal
+/// goes to the worker alone, the parent never seeing one: the case the race leaves.
+#[test]
+fn a_worker_stopped_by_a_signal_is_a_stop_not_a_fault() {
+    for (sig, code) in [("-INT", 130), ("-TERM", 143)] {
+        let (mut child, folder, json) = start_hanging_isolated(&format!("worker-stop{sig}"));
+        let pid = child.id();
+        let workers = workers_of(pid);
+        assert_eq!(workers.len(), 1, "{workers:?}");
+        let s = Command::new("kill").arg(sig).arg(workers[0].to_string()).status().unwrap();
+        assert!(s.success());
+        let status = child.wait().unwrap();
+        assert_eq!(status.code(), Some(code), "{sig}");
+        wait_until("the folder goes", || !folder.exists());
+        let v: Value = serde_json::from_slice(&std::fs::read(&json).unwrap()).unwrap();
+        assert_eq!(v["verdict"], "incomplete", "{sig}: {v}");
+    }
+}
+
 #[test]
 fn the_worker_dies_with_its_parent() {
     let (mut child, folder, _) = start_hanging_isolated("parent-death");

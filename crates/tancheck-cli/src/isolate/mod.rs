@@ -103,23 +103,26 @@ pub fn run_isolated(
     let mut last_len = 0u64;
     let mut last_beat = Instant::now();
     let mut killed: Option<String> = None;
+    // Stopped from outside: the worker goes with us, and so does its folder.
+    let stopped = |stop: i32| {
+        let _ = std::fs::remove_dir_all(&dir);
+        if let Some(j) = json.filter(|j| j.as_os_str() != "-") {
+            if let crate::report::Destination::Replace(p) = crate::report::destination(j) {
+                let _ = std::fs::remove_file(crate::report::temporary_name(&p));
+            }
+        }
+        crate::say!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
+        Ok(128 + stop)
+    };
     let status = loop {
         if let Some(st) = child.try_wait()? {
             break st;
         }
         let stop = tancheck_abi::watch::stop_signal();
         if stop != 0 {
-            // Stopped from outside: the worker goes with us, and so does its folder.
             let _ = child.kill();
             let _ = child.wait();
-            let _ = std::fs::remove_dir_all(&dir);
-            if let Some(j) = json.filter(|j| j.as_os_str() != "-") {
-                if let crate::report::Destination::Replace(p) = crate::report::destination(j) {
-                    let _ = std::fs::remove_file(crate::report::temporary_name(&p));
-                }
-            }
-            crate::say!("tancheck: stopped by signal {stop}; the worker was ended and its folder removed");
-            return Ok(128 + stop);
+            return stopped(stop);
         }
         let len = shared.calls();
         if len != last_len {
@@ -152,6 +155,17 @@ pub fn run_isolated(
             Ok(()) | Err(std::sync::mpsc::RecvTimeoutError::Timeout) => {}
         }
     };
+    // A worker ended by SIGINT or SIGTERM was stopped from outside, as this process was or is
+    // about to be: Ctrl-C and a CI runner's cancel signal the whole process group, and the
+    // worker may end before this process has seen its own signal (the check was then said to
+    // have faulted, exit 3; a user-style sweep). No routine raises those two itself.
+    {
+        use std::os::unix::process::ExitStatusExt;
+        // SIGINT and SIGTERM (2 and 15 on every POSIX system).
+        if let (None, Some(sig @ (2 | 15))) = (&killed, status.signal()) {
+            return stopped(sig);
+        }
+    }
     let stdout = reader.join().unwrap_or_default();
     let stderr = err_reader.join().unwrap_or_default();
     let code = status.code();
