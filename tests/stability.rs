@@ -338,3 +338,43 @@ fn a_tangent_singular_for_every_normal_names_no_band() {
     let res = Stability.run(&mut caller, &env).unwrap();
     assert!(res.summary.starts_with("elliptic along the path"), "{}", res.summary);
 }
+
+/// Elasticity whose tangent is infinite from increment 2 on (its stress stays finite).
+struct InfiniteTangent(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl tancheck::core::Routine for InfiniteTangent {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        if input.increment >= 2 {
+            output.tangent[0] = f64::INFINITY;
+        }
+        Ok(())
+    }
+}
+
+/// A tangent entry that is not a finite number fails the probe, as it fails the tangent check
+/// (exit 1, finding `non-finite-output`): it is no fault of the routine (a crash, a failure
+/// status), which would make the suite's verdict FAULT, exit 3 (it did; a user-style sweep).
+#[test]
+fn a_non_finite_tangent_fails_the_probe_and_is_no_fault() {
+    let mut r = InfiniteTangent(reference("elastic", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let path = Path::ramp(tancheck::core::Shape::UniaxialStrain, 1e-3, 3, 0);
+    let settings = Settings::default();
+    let spec = ProbeSpec::named("stability");
+    let env = ProbeEnv { props: &[E, 0.3], start: &start, path: &path, settings: &settings, spec: &spec };
+    let res = Stability.run(&mut caller, &env).unwrap();
+    assert_eq!(res.status, ProbeStatus::Fail, "{}", res.summary);
+    assert!(!res.fault, "{}", res.summary);
+    assert_eq!(res.increment, Some(2), "{}", res.summary);
+    assert!(res.summary.contains("non-finite entry (inf at position 0) at increment 2"), "{}", res.summary);
+}

@@ -13,8 +13,8 @@
 //! part): a zero eigenvalue, as in a fully failed mode whose stiffness is gone, is not
 //! softening. Without `damage`: skipped with that reason.
 
-use super::stability::{assess, probed_tangent, Assessment};
-use super::{faulted, walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
+use super::stability::{assess, probed_tangent, walk_ended, Assessment};
+use super::{walk, Probe, ProbeEnv, ProbeResult, ProbeStatus};
 use crate::error::CoreError;
 use crate::probe::Needs;
 use crate::routine::Caller;
@@ -110,7 +110,7 @@ impl Softening {
             Ok(())
         });
         if let Err((k, f)) = walked {
-            return Ok(faulted(name, k, &f));
+            return Ok(walk_ended(name, k, &f));
         }
         if seen.is_empty() {
             return Ok(ProbeResult::skipped(name, "no increment of the path is probed (see `at`)"));

@@ -202,11 +202,33 @@ pub(super) fn probed_tangent<'d>(
     }
     if let Some(i) = d.base.tangent.iter().position(|x| !x.is_finite()) {
         return Err(Fault::Unsupported(format!(
-            "the returned tangent has a non-finite entry ({} at position {i})",
+            "{NON_FINITE_TANGENT} ({} at position {i})",
             d.base.tangent[i]
         )));
     }
     Ok(Some(&d.base.tangent))
+}
+
+/// The words of [`probed_tangent`]'s error for a tangent entry that is not a finite number.
+const NON_FINITE_TANGENT: &str = "the returned tangent has a non-finite entry";
+
+/// The result of a probe whose walk ended at increment `k` with `f`: a tangent entry that is
+/// not a finite number fails the probe, as it fails the tangent check (exit 1, finding
+/// `non-finite-output`), and is no fault of the routine's (a crash, a failure status, a guard
+/// finding); the probe suite said FAULT, exit 3, where `check` said FAIL (a user-style sweep).
+pub(super) fn walk_ended(name: &str, k: usize, f: &Fault) -> ProbeResult {
+    match f {
+        Fault::Unsupported(m) if m.starts_with(NON_FINITE_TANGENT) => {
+            let mut r = ProbeResult::new(
+                name,
+                ProbeStatus::Fail,
+                format!("{m} at increment {k}: no number to assess there (the path stops)"),
+            );
+            r.increment = Some(k);
+            r
+        }
+        _ => faulted(name, k, f),
+    }
 }
 
 /// Walk the path and assess the tangent at each probed increment. A non-finite tangent
@@ -247,7 +269,7 @@ impl Probe for Stability {
         let tol = env.spec.tol.unwrap_or(DEFAULT_TOL);
         let s = match survey(caller, env) {
             Ok(s) => s,
-            Err((k, f)) => return Ok(faulted("stability", k, &f)),
+            Err((k, f)) => return Ok(walk_ended("stability", k, &f)),
         };
         if s.increments.is_empty() {
             return Ok(ProbeResult::skipped("stability", "no increment of the path is probed (see `at`)"));
