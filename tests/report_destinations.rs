@@ -158,3 +158,74 @@ fn a_report_may_not_overwrite_an_input_or_another_report() {
 
 /// O_NONBLOCK on Linux (asm-generic/fcntl.h): open a pipe's reading end without waiting.
 const O_NONBLOCK: i32 = 0o4000;
+
+/// The routine's library, the case files a `--cases` check replays and everything a campaign
+/// reads or builds are inputs too: a report named after one of them is refused before anything
+/// is written (a check's `--json` replaced the manifest's library with its marker, a `--cases`
+/// check's `--html` replaced a case before it was read, a campaign's `--json` replaced the
+/// library it builds and whose stamp then said up to date; a user-style sweep). A folder
+/// campaign reads its manifests, not a report an earlier run left in the folder.
+#[test]
+fn libraries_cases_and_campaign_files_are_inputs_too() {
+    let d = scratch("inputs-more");
+    let run = |args: &[&str]| Command::new(env!("CARGO_BIN_EXE_tancheck")).args(args).output().unwrap();
+    const KEEP: &str = "not to be overwritten";
+    // A manifest naming a library (refused before the library is loaded: it need not be one).
+    let lib = d.join("libroutine.so");
+    std::fs::write(&lib, KEEP).unwrap();
+    let m = d.join("lib.json");
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "library": "libroutine.so", "symbol": "r", "kind": "solid-3d", "states": 0, "properties": [1] } }"#,
+    )
+    .unwrap();
+    for cmd in ["check", "probe", "bisect", "explore"] {
+        let o = run(&[cmd, m.to_str().unwrap(), "--json", lib.to_str().unwrap()]);
+        assert_eq!(o.status.code(), Some(2), "{cmd}: {}", String::from_utf8_lossy(&o.stderr));
+        assert!(String::from_utf8_lossy(&o.stderr).contains("an input of this run"), "{cmd}");
+        assert_eq!(std::fs::read_to_string(&lib).unwrap(), KEEP, "{cmd}");
+    }
+    // A case file of the folder `--cases` replays.
+    let mj = d.join("m.json");
+    std::fs::write(&mj, MANIFEST).unwrap();
+    let cases = d.join("tancheck-cases").join("m");
+    std::fs::create_dir_all(&cases).unwrap();
+    let case = cases.join("a-case.json");
+    std::fs::write(&case, KEEP).unwrap();
+    let o = run(&["check", mj.to_str().unwrap(), "--cases", "--html", case.to_str().unwrap()]);
+    assert_eq!(o.status.code(), Some(2), "{}", String::from_utf8_lossy(&o.stderr));
+    assert_eq!(std::fs::read_to_string(&case).unwrap(), KEEP);
+    // A campaign's manifests, sources and the library it is to build (not built yet).
+    std::fs::create_dir_all(d.join("build")).unwrap();
+    std::fs::write(d.join("q.c"), "/* a source */\n").unwrap();
+    let c = d.join("c.json");
+    std::fs::write(
+        &c,
+        r#"{ "format": "tancheck-campaign", "version": 1, "name": "c",
+  "libraries": [ { "output": "build/libq.so", "sources": ["q.c"] } ],
+  "routines": [ { "manifest": "m.json" } ] }"#,
+    )
+    .unwrap();
+    for (opt, target) in [("--json", "build/libq.so"), ("--html", "q.c"), ("--junit", "m.json")] {
+        let t = d.join(target);
+        let before = std::fs::read(&t).ok();
+        let o = run(&["campaign", c.to_str().unwrap(), opt, t.to_str().unwrap(), "-q"]);
+        assert_eq!(o.status.code(), Some(2), "{opt} {target}: {}", String::from_utf8_lossy(&o.stderr));
+        assert!(String::from_utf8_lossy(&o.stderr).contains("an input of this run"), "{opt} {target}");
+        assert_eq!(std::fs::read(&t).ok(), before, "{opt} {target}");
+    }
+    // A folder campaign twice, its report in the folder: the second run reads manifests only.
+    let f = d.join("folder");
+    std::fs::create_dir_all(&f).unwrap();
+    std::fs::write(f.join("m.json"), MANIFEST).unwrap();
+    for k in 0..2 {
+        let o = run(&[
+            "campaign",
+            f.to_str().unwrap(),
+            "--json",
+            f.join("zz-report.json").to_str().unwrap(),
+            "-q",
+        ]);
+        assert_eq!(o.status.code(), Some(0), "run {k}: {}", String::from_utf8_lossy(&o.stderr));
+    }
+}

@@ -300,8 +300,26 @@ fn finite_check_options(a: &CheckArgs) -> Result<crate::cmd_finite::FiniteOption
 
 fn cmd_check(a: CheckArgs) -> Result<i32> {
     a.output.prepare()?;
-    let inputs: Vec<&std::path::Path> =
-        [Some(a.manifest.as_path()), path_file(&a.path)].into_iter().flatten().collect();
+    let library = crate::manifest::library_of(&a.manifest);
+    // With --cases, the case files it replays (a report named one replaced it before it was
+    // read; a user-style sweep).
+    let case_files: Vec<std::path::PathBuf> = match &a.cases {
+        Some(c) => {
+            let folder = c.clone().unwrap_or_else(|| {
+                let dir = a.manifest.parent().unwrap_or(std::path::Path::new(""));
+                crate::case_store::default_case_dir(&a.manifest, dir)
+            });
+            std::fs::read_dir(folder)
+                .map(|d| d.filter_map(|e| e.ok().map(|e| e.path())).collect())
+                .unwrap_or_default()
+        }
+        None => Vec::new(),
+    };
+    let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path_file(&a.path), library.as_deref()]
+        .into_iter()
+        .flatten()
+        .chain(case_files.iter().map(|p| p.as_path()))
+        .collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     let finite = crate::finite_load::FiniteManifest::detect(&a.manifest);
     let finite_options = if finite { Some(finite_check_options(&a)?) } else { None };
@@ -444,8 +462,12 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     a.output.prepare()?;
+    let library = crate::manifest::library_of(&a.manifest);
     let inputs: Vec<&std::path::Path> =
-        [Some(a.manifest.as_path()), a.suite.as_deref(), path_file(&a.path)].into_iter().flatten().collect();
+        [Some(a.manifest.as_path()), a.suite.as_deref(), path_file(&a.path), library.as_deref()]
+            .into_iter()
+            .flatten()
+            .collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         let given = [

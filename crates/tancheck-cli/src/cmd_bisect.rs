@@ -59,7 +59,9 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
 pub fn run(a: &BisectArgs) -> Result<i32> {
     a.run.output.prepare()?;
     let path = a.path.as_deref().map(std::path::Path::new).filter(|p| p.is_file());
-    let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path].into_iter().flatten().collect();
+    let library = crate::manifest::library_of(&a.manifest);
+    let inputs: Vec<&std::path::Path> =
+        [Some(a.manifest.as_path()), path, library.as_deref()].into_iter().flatten().collect();
     a.run.output.guard(a.run.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         return crate::finite_case::bisect(&a.manifest, a.path.is_some(), a.fraction_tol, &a.run);

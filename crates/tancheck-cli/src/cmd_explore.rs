@@ -56,7 +56,10 @@ pub fn budget_of(a: &ExploreArgs) -> Budget {
 /// `tancheck explore`.
 pub fn run(a: &ExploreArgs) -> Result<i32> {
     a.run.output.prepare()?;
-    a.run.output.guard(a.run.json.as_deref(), &[a.manifest.as_path()])?;
+    let library = crate::manifest::library_of(&a.manifest);
+    let inputs: Vec<&std::path::Path> =
+        [Some(a.manifest.as_path()), library.as_deref()].into_iter().flatten().collect();
+    a.run.output.guard(a.run.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         bail!("{}: explore takes point routines; this manifest is a finite-strain one", a.manifest.display());
     }

@@ -359,6 +359,18 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
     Ok(p)
 }
 
+/// The library a manifest of any kind (point, block, finite strain) names, beside the
+/// manifest as it resolves it; `None` when it names none or cannot be read. A report written
+/// over it would replace the routine (`check --json` named the manifest's library: the
+/// library became a report; a user-style sweep): the commands refuse that before writing.
+pub fn library_of(manifest: &FsPath) -> Option<PathBuf> {
+    let text = std::fs::read_to_string(manifest).ok()?;
+    let v: serde_json::Value = serde_json::from_str(&text).ok()?;
+    let lib = FsPath::new(v.get("routine")?.get("library")?.as_str()?);
+    let dir = manifest.parent().unwrap_or(FsPath::new(""));
+    Some(if lib.is_absolute() { lib.to_path_buf() } else { dir.join(lib) })
+}
+
 /// Parse a path given on the command line: `SHAPE:PEAK:STEPS[:BACK]`.
 /// A path file: a JSON object like a manifest's `path` (a shape with `peak` and `steps`, or
 /// `increments` one by one). Unknown fields are errors with file, line and column.

@@ -207,12 +207,53 @@ impl Campaign {
         Campaign::build(name, source, dir, spec.libraries, spec.routines, text.as_bytes())
     }
 
+    /// Every file the campaign reads or builds: the campaign file, the manifests, their
+    /// libraries, the libraries it builds (as declared and under `build_dir`) and their
+    /// sources, path files, probe suites and the case files of its cases items. A report
+    /// written over one of them would replace it (a campaign's `--json` named its own library:
+    /// the library became a report, and its stamp still said up to date; a user-style sweep).
+    pub fn inputs(&self, build_dir: Option<&FsPath>) -> Vec<PathBuf> {
+        let mut out = vec![self.source.clone()];
+        for lib in &self.libraries {
+            let declared = normalize(&self.dir.join(&lib.output));
+            if let Some(d) = build_dir {
+                out.push(normalize(&d.join(declared.file_name().unwrap_or_default())));
+            }
+            out.push(declared);
+            out.extend(lib.sources.iter().map(|s| normalize(&self.dir.join(s))));
+        }
+        for r in &self.routines {
+            out.push(r.manifest.clone());
+            out.extend(r.library.clone());
+        }
+        for item in &self.items {
+            if let Some((_, spec)) = &item.path {
+                let p = PathBuf::from(spec);
+                if p.is_file() {
+                    out.push(p);
+                }
+            }
+            match &item.task {
+                Task::Probe(suite, _) => out.push(suite.clone()),
+                Task::Cases(dir) => {
+                    if let Ok(entries) = std::fs::read_dir(dir) {
+                        out.extend(entries.filter_map(|e| e.ok().map(|e| e.path())));
+                    }
+                }
+                Task::Check => {}
+            }
+        }
+        out.sort();
+        out.dedup();
+        out
+    }
+
     fn from_folder(folder: &FsPath) -> Result<Campaign> {
         let dir = normalize(folder);
         let mut files: Vec<PathBuf> = std::fs::read_dir(folder)
             .with_context(|| format!("{}: cannot list the folder", folder.display()))?
             .filter_map(|e| e.ok().map(|e| e.path()))
-            .filter(|p| p.extension().is_some_and(|x| x == "json") && p.is_file())
+            .filter(|p| p.extension().is_some_and(|x| x == "json") && p.is_file() && !is_report(p))
             .collect();
         files.sort();
         if files.is_empty() {
@@ -519,4 +560,16 @@ mod tests {
         let _ = std::fs::remove_dir_all(&d);
         assert_ne!(before, after);
     }
+}
+
+/// Whether the JSON file at `p` is a tancheck report (its `format`, the document's first
+/// field): a folder campaign reads its manifests, not the reports a run left beside them (its
+/// second run read its own earlier report as a manifest; a user-style sweep).
+fn is_report(p: &FsPath) -> bool {
+    use std::io::Read;
+    let mut head = [0u8; 256];
+    let n = std::fs::File::open(p).and_then(|mut f| f.read(&mut head)).unwrap_or(0);
+    let text = String::from_utf8_lossy(&head[..n]);
+    let compact: String = text.chars().filter(|c| !c.is_whitespace()).collect();
+    compact.starts_with(&format!("{{\"format\":\"{}\"", crate::report::campaign::FORMAT))
 }

@@ -109,12 +109,15 @@ pub fn slurm_shard() -> Result<Option<ShardInfo>> {
 /// Run the command; returns the exit code.
 pub fn run(a: &CampaignArgs) -> Result<i32> {
     a.output.prepare()?;
-    a.output.guard(a.json.as_deref(), &[a.campaign.as_path()])?;
     if let Some(p) = a.json.as_deref().filter(|p| p.as_os_str() != "-") {
         crate::report::files::check_output(Some(p), "--json")?;
     }
-    // Everything the campaign names is read and checked before anything is written.
+    // Everything the campaign names is read and checked before anything is written; no report
+    // may be written over any of it.
     let c = Campaign::load(&a.campaign)?;
+    let inputs = c.inputs(a.build_dir.as_deref());
+    let inputs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
+    a.output.guard(a.json.as_deref(), &inputs)?;
     let shard = match &a.shard {
         Some(s) => Some(parse_shard(s)?),
         None if a.item.is_none() => slurm_shard()?,

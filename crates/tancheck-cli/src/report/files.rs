@@ -82,7 +82,9 @@ pub fn distinct(outputs: &[(&str, Option<&Path>)], inputs: &[&Path]) -> Result<(
         if let Some((o2, _, _)) = named[..k].iter().find(|(_, _, other)| other == id) {
             bail!("{o2} and {o} name the same file {}: each report needs a file of its own", p.display());
         }
-        if let Some(input) = inputs.iter().find(|i| std::fs::canonicalize(i).is_ok_and(|c| &c == id)) {
+        // An input that does not exist yet (a library a campaign is to build) is named as a
+        // report's file is: its folder's canonical path joined with its name.
+        if let Some(input) = inputs.iter().find(|i| identity(i).is_some_and(|c| &c == id)) {
             bail!(
                 "{o} {}: is {}, an input of this run; the report would overwrite it",
                 p.display(),
