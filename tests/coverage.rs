@@ -399,6 +399,11 @@ fn the_path_stops_where_the_outputs_are_not_finite() {
         "{:?}",
         rep.coverage
     );
+    // The report keeps the path's length, and the HTML page counts the first failure of it
+    // as the terminal does (it said "3 of 3", the increments checked; a user-style sweep).
+    assert_eq!(rep.path_increments, 8);
+    let page = tancheck::cli::report::html::check_page(&rep);
+    assert!(page.contains("increment 3 of 8 (branch"), "the page's first failing increment");
 }
 
 // The look at the time increment starts from the start states the check's walk kept: it makes

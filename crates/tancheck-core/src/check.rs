@@ -353,6 +353,7 @@ fn run_path(
             complex_twin: has_twin,
         },
         path: path.name.clone(),
+        path_increments: path.increments.len(),
         settings: Settings { jobs: threads_used, ..settings.clone() },
         kept: keep,
         records,

@@ -280,6 +280,10 @@ pub struct Report {
     pub tool: String,
     pub routine: RoutineSummary,
     pub path: String,
+    /// The increments of the path (of the cut path when `checked_path` is set): a path that
+    /// stopped at a fault or at outputs that are not finite has records of fewer.
+    #[serde(default)]
+    pub path_increments: usize,
     pub settings: Settings,
     /// Which increments `increments` holds in full: all, or only those that failed, faulted
     /// or were looked at more closely (`records` has every one).

@@ -24,8 +24,13 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     );
     let _ = writeln!(o, "<dt>finding</dt><dd><code>{}</code></dd>", esc(&finding));
     let first = failing.first().map_or("none".to_string(), |i| {
-        // Of the path: the records count every increment (the zero increment too, as 0).
-        let path = report.records.iter().filter(|r| r.index > 0).count().max(report.increments.len());
+        // Of the path, as the terminal says it: a path that stopped at a fault has records of
+        // the increments checked only (the page said "6 of 6" where the terminal said "6 of
+        // 12"; a user-style sweep).
+        let path = report
+            .path_increments
+            .max(report.records.iter().filter(|r| r.index > 0).count())
+            .max(report.increments.len());
         format!("increment {} of {path} (branch {})", i.index, i.branch_label())
     });
     let _ = writeln!(o, "<dt>first failing increment</dt><dd>{}</dd>", esc(&first));
