@@ -523,3 +523,32 @@ fn a_temperature_ramp_without_strain_is_not_said_to_never_unload() {
     let rep = rep.unwrap_or_else(|e| panic!("{e}"));
     assert!(!rep.coverage.iter().any(|c| c.contains("never unloaded")), "{:?}", rep.coverage);
 }
+
+/// A failure of outputs that are not finite numbers gets no step study from bisect: the study
+/// of an inf read as noise ("neither converges nor levels off", best error inf; a user-style
+/// sweep). The crossing inside the increment is still found.
+#[test]
+fn bisect_makes_no_step_study_of_outputs_that_are_not_finite() {
+    let mut r = NanFromThird(reference("j2", PointKind::Solid3d).unwrap());
+    let info = r.info().clone();
+    let mut caller = Caller::new(&mut r);
+    let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 6, 2);
+    let start = PointState::zero(&info, 20.0);
+    let settings = Settings::default();
+    let rep = check::run(&mut caller, &props, start.clone(), &path, &settings).unwrap();
+    let located = tancheck::core::bisect::locate(
+        &mut caller,
+        &props,
+        start,
+        &path,
+        &rep,
+        &settings,
+        &tancheck::core::bisect::BisectSettings::default(),
+    )
+    .unwrap()
+    .expect("a failure to locate");
+    assert_eq!(located.increment, 3);
+    assert_eq!(located.finding, "non-finite-output");
+    assert!(located.step.is_none(), "{:?}", located.step);
+}

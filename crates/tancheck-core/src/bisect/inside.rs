@@ -190,7 +190,10 @@ pub fn locate(
     // The studies measure the strain columns: they speak to a failed tangent only, not to a
     // fault (a guard finding, a crash) or a failure of ∂σ/∂T alone, where their "converges"
     // read as "truncation of the default step, not a mismatch".
+    // Nor to outputs that are not finite numbers: a study of them read as noise ("neither
+    // converges nor levels off", best error inf; a user-style sweep).
     let tangent_failed = failed.fault.is_none()
+        && failed.non_finite.is_empty()
         && failed.checks.iter().any(|c| matches!(&c.tangent, CheckOutcome::Compared(x) if !x.pass));
     let step = match driver.base_call(caller) {
         _ if !tangent_failed => None,

@@ -356,7 +356,10 @@ pub fn error_along_path(report: &Report) -> Option<String> {
 /// and each scheme at shrinking relative steps (log–log), with the slope each scheme's order
 /// gives drawn dashed from its largest step, and the tolerance.
 pub fn step_studies(studies: &[StepStudy], tol: Option<f64>, increment: usize) -> Option<String> {
-    let pts = || studies.iter().flat_map(|s| s.points.iter());
+    // Points that are not finite (a study of outputs that are not numbers) are not drawn.
+    let pts = || {
+        studies.iter().flat_map(|s| s.points.iter()).filter(|p| p.error.is_finite() && p.rel_step.is_finite())
+    };
     pts().next()?;
     let xr = log_range(pts().map(|p| p.rel_step));
     let yr = log_range(pts().map(|p| p.error).chain(tol));
@@ -385,8 +388,12 @@ pub fn step_studies(studies: &[StepStudy], tol: Option<f64>, increment: usize) -
         }
         for st in studies {
             let colour = scheme_colour(st.scheme);
-            let line: Vec<(f64, f64)> =
-                st.points.iter().map(|p| (p.rel_step, p.error.max(LOG_FLOOR))).collect();
+            let line: Vec<(f64, f64)> = st
+                .points
+                .iter()
+                .filter(|p| p.error.is_finite() && p.rel_step.is_finite())
+                .map(|p| (p.rel_step, p.error.max(LOG_FLOOR)))
+                .collect();
             chart.draw_series(LineSeries::new(line.clone(), colour.stroke_width(2)))?;
             chart.draw_series(line.iter().map(|&p| Circle::new(p, 3, colour.filled())))?;
             legend.add(Mark::Line(colour), format!("{} (observed)", st.scheme.name()));
@@ -428,8 +435,12 @@ pub fn response_curves(report: &Report) -> Option<String> {
     if incs.len() < 2 || n == 0 {
         return None;
     }
+    // Values that are not finite (a routine's inf or NaN output, where the path stopped) are
+    // left out of the spans and the curves: they were drawn as points at the top of the axis
+    // (a user-style sweep).
     let span = |v: &[f64]| {
-        v.iter().cloned().fold(f64::NEG_INFINITY, f64::max) - v.iter().cloned().fold(f64::INFINITY, f64::min)
+        let f = || v.iter().cloned().filter(|x| x.is_finite());
+        f().fold(f64::NEG_INFINITY, f64::max) - f().fold(f64::INFINITY, f64::min)
     };
     let strain =
         |i: usize| incs.iter().map(|r| r.strain().get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
@@ -465,7 +476,11 @@ pub fn response_curves(report: &Report) -> Option<String> {
             .draw()?;
         for (k, &i) in moving.iter().enumerate() {
             let colour = CURVES[k % CURVES.len()];
-            let pts: Vec<(f64, f64)> = strain(i).into_iter().zip(stress(i)).collect();
+            let pts: Vec<(f64, f64)> = strain(i)
+                .into_iter()
+                .zip(stress(i))
+                .filter(|(x, y)| x.is_finite() && y.is_finite())
+                .collect();
             let label = &report.routine.order[i];
             chart.draw_series(LineSeries::new(pts.clone(), colour.stroke_width(2)))?;
             if pts.len() <= MARKERS_UP_TO {
