@@ -311,7 +311,7 @@ fn an_increment_names_first_the_cause_the_path_agrees_on_where_it_explains_too()
         d.causes.insert(0, bulk.clone());
         d.finding = "bulk-modulus".into();
     }
-    tancheck::core::report::agree::agree_on_causes(&mut inc);
+    tancheck::core::report::agree::agree_on_causes(&mut inc, r.routine.order.len());
     let d = inc[failing[1]].diagnosis.as_ref().unwrap();
     assert_eq!(d.finding, "continuum-tangent", "{}", d.reason);
     assert_eq!(d.causes[0].cause, Cause::ContinuumTangent);
@@ -328,6 +328,36 @@ fn an_increment_names_first_the_cause_the_path_agrees_on_where_it_explains_too()
     for &k in &failing[4..] {
         assert_eq!(inc[k], r.increments[k]);
     }
+}
+
+// On a point of one component every wrong tangent is a uniform scale and a scaled term: the
+// increment's own ranking names the uniform scale (the factor), and the path does not put a
+// shape cause (`term-scaled`) before it, or check would name another cause than bisect and
+// replay of the same increment (a user-style sweep of a uniaxial routine). With more
+// components the shape cause may lead the path, as before.
+#[test]
+fn on_a_one_component_point_the_path_names_no_shape_cause_first() {
+    use tancheck::core::diagnose::{Cause, Hypothesis};
+    use tancheck::core::path::Shape;
+    let mut m = reference("j2-continuum", PointKind::Solid3d).unwrap();
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    let r = run(&mut m, &WORKED, &path, &Settings::default());
+    let failing: Vec<usize> = (0..r.increments.len()).filter(|&k| !r.increments[k].passed()).collect();
+    assert!(failing.len() >= 2);
+    let exact = |cause| Hypothesis { cause, detail: String::new(), error_left: 0.0, explains: true };
+    let mut inc = r.increments.clone();
+    for &k in &failing {
+        let d = inc[k].diagnosis.as_mut().unwrap();
+        d.causes = vec![exact(Cause::UniformScale), exact(Cause::TermScaled)];
+        d.finding = "uniform-scale".into();
+    }
+    let mut scalar = inc.clone();
+    tancheck::core::report::agree::agree_on_causes(&mut scalar, 1);
+    for &k in &failing {
+        assert_eq!(scalar[k].diagnosis.as_ref().unwrap().finding, "uniform-scale");
+    }
+    tancheck::core::report::agree::agree_on_causes(&mut inc, 6);
+    assert_eq!(inc[failing[0]].diagnosis.as_ref().unwrap().finding, "term-scaled");
 }
 
 /// The reference J2 whose stress is NaN wherever the strain at the end of the call is past

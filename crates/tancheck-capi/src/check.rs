@@ -75,7 +75,8 @@ pub unsafe fn check(real: RealFn, twin: Option<TwinFn>, plan: Plan) -> Result<Ch
         )
         .map(|mut r| {
             // As the command line: the cause the path agrees on named first where it explains.
-            tancheck_core::report::agree::agree_on_causes(&mut r.increments);
+            let n = r.routine.order.len();
+            tancheck_core::report::agree::agree_on_causes(&mut r.increments, n);
             r
         })
         .map_err(|e| Failure::invalid(e.to_string()))

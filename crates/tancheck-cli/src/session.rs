@@ -275,7 +275,8 @@ fn check_loaded(
     crate::survive::checking(false);
     // Where several causes explain an increment, the one the path agrees on is named first.
     report.map(|mut r| {
-        tancheck_core::report::agree::agree_on_causes(&mut r.increments);
+        let n = r.routine.order.len();
+        tancheck_core::report::agree::agree_on_causes(&mut r.increments, n);
         r
     })
 }

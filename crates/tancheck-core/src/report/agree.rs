@@ -32,8 +32,12 @@ fn as_well(h: &Hypothesis, all: &[Hypothesis]) -> bool {
 /// modulus is off before one that only describes the discrepancy's shape (a single entry, a
 /// row, a column, a term of the derivative). Those that fit nearly any discrepancy never lead
 /// (`rank-one-term`, `rank-two`, and `uniform-scale`, which is every wrong tangent of a
-/// one-component point): counted, they would outnumber every specific cause.
-pub fn agree_on_causes(increments: &mut [IncrementResult]) {
+/// one-component point): counted, they would outnumber every specific cause. On a point of one
+/// component (`ncomp` 1) the shape causes say nothing either (every wrong tangent is a single
+/// entry, a scaled term), as the increment's own ranking has it: they do not lead there (the
+/// path named `term-scaled` where each increment, and bisect and replay of it, named
+/// `uniform-scale`; a user-style sweep).
+pub fn agree_on_causes(increments: &mut [IncrementResult], ncomp: usize) {
     let cause_of = |finding: &str| Cause::BY_SPECIFICITY.iter().copied().find(|c| c.name() == finding);
     let rank = |c: Cause| Cause::BY_SPECIFICITY.iter().position(|&x| x == c).unwrap_or(usize::MAX);
     // Per cause: the failing increments it explains, and those that name it first.
@@ -70,7 +74,9 @@ pub fn agree_on_causes(increments: &mut [IncrementResult]) {
         )
     };
     counts.retain(|(c, e, _)| {
-        *e >= 2 && !matches!(c, Cause::RankOneTerm | Cause::RankTwo | Cause::UniformScale)
+        *e >= 2
+            && !matches!(c, Cause::RankOneTerm | Cause::RankTwo | Cause::UniformScale)
+            && !(ncomp == 1 && shape(*c))
     });
     counts.sort_by(|a, b| {
         shape(a.0).cmp(&shape(b.0)).then(b.1.cmp(&a.1)).then(b.2.cmp(&a.2)).then(rank(a.0).cmp(&rank(b.0)))
