@@ -175,6 +175,18 @@ impl CaseRunArgs {
 /// The default case folder of a manifest: `tancheck-cases/<manifest file name without
 /// extension>/` in the manifest's folder `dir`, so the cases of manifests side by side (one
 /// routine each) never mix.
+/// The files of the case folder `check --cases [DIR]` replays (`cases`: the option as given;
+/// without DIR the manifest's own folder), for the check that no report is written over one
+/// (a report named one replaced it before it was read; a user-style sweep).
+pub fn case_files_of(manifest: &FsPath, cases: Option<&Option<PathBuf>>) -> Vec<PathBuf> {
+    let Some(c) = cases else { return Vec::new() };
+    let folder =
+        c.clone().unwrap_or_else(|| default_case_dir(manifest, manifest.parent().unwrap_or(FsPath::new(""))));
+    std::fs::read_dir(folder)
+        .map(|d| d.filter_map(|e| e.ok().map(|e| e.path())).collect())
+        .unwrap_or_default()
+}
+
 pub fn default_case_dir(manifest: &FsPath, dir: &FsPath) -> PathBuf {
     let stem =
         manifest.file_stem().map(|s| s.to_string_lossy().into_owned()).unwrap_or_else(|| "manifest".into());

@@ -11,6 +11,9 @@ use tancheck_core::{PointKind, Scheme};
 use crate::demo::DemoArgs;
 use crate::exit;
 use crate::manifest::{path_arg, Manifest};
+use crate::refuse::{
+    refuse_for_finite, refuse_options, BLOCK_CHECKS_INSTEAD, FINITE_CHECK_INSTEAD, FINITE_PROBES_INSTEAD,
+};
 use crate::report::model::SuiteContext;
 use crate::report::Reporter;
 use crate::session::{default_path, routine_name};
@@ -237,49 +240,6 @@ fn scheme_value(s: &str, what: &str) -> Result<(Scheme, f64)> {
     Ok((scheme, value))
 }
 
-/// A `--path` argument that names a file: an input of the run.
-fn path_file(path: &Option<String>) -> Option<&std::path::Path> {
-    path.as_deref().map(std::path::Path::new).filter(|p| p.is_file())
-}
-
-/// Where a finite-strain manifest sets what these options set for a point routine.
-/// What a block routine's check and probe do instead of the point options they refuse.
-const BLOCK_CHECKS_INSTEAD: &str = "a block routine gets the block checks (elastic response, point \
-independence, tangent and wave speed, energy, deletion, rate, refinement, counterpart) with the \
-settings of the manifest's `block`";
-
-const FINITE_CHECK_INSTEAD: &str = "a finite-strain check walks the manifest's `path` of deformation \
-     gradients with central differences and the complex step, at the steps and the one tolerance of its \
-     `check` section (central_step, complex_step, tolerance); set them there";
-const FINITE_PROBES_INSTEAD: &str = "the finite-strain probes run along the manifest's `path` of \
-     deformation gradients, with the options of its `probes` section; set them there";
-
-/// Refuse the options `given` (set, name) that a finite-strain run does not honour, naming
-/// the manifest and where its own settings are (`instead`): exit 2 before any work.
-fn refuse_for_finite(manifest: &std::path::Path, given: &[(bool, &str)], instead: &str) -> Result<()> {
-    refuse_options(manifest, "a finite-strain manifest", given, instead)
-}
-
-/// Options given (`given`: set, name) that do not apply to a kind of manifest (`what`): an
-/// error naming them, with what the manifest does `instead`.
-pub(crate) fn refuse_options(
-    manifest: &std::path::Path,
-    what: &str,
-    given: &[(bool, &str)],
-    instead: &str,
-) -> Result<()> {
-    let names: Vec<&str> = given.iter().filter(|(set, _)| *set).map(|(_, n)| *n).collect();
-    if !names.is_empty() {
-        bail!(
-            "{}: {what}; {} {} not apply to it: {instead}",
-            manifest.display(),
-            names.join(", "),
-            if names.len() == 1 { "does" } else { "do" }
-        );
-    }
-    Ok(())
-}
-
 /// The options of `tancheck check` a finite-strain check honours; the others refused.
 fn finite_check_options(a: &CheckArgs) -> Result<crate::cmd_finite::FiniteOptions> {
     let given = [
@@ -301,25 +261,13 @@ fn finite_check_options(a: &CheckArgs) -> Result<crate::cmd_finite::FiniteOption
 fn cmd_check(a: CheckArgs) -> Result<i32> {
     a.output.prepare()?;
     let library = crate::manifest::library_of(&a.manifest);
-    // With --cases, the case files it replays (a report named one replaced it before it was
-    // read; a user-style sweep).
-    let case_files: Vec<std::path::PathBuf> = match &a.cases {
-        Some(c) => {
-            let folder = c.clone().unwrap_or_else(|| {
-                let dir = a.manifest.parent().unwrap_or(std::path::Path::new(""));
-                crate::case_store::default_case_dir(&a.manifest, dir)
-            });
-            std::fs::read_dir(folder)
-                .map(|d| d.filter_map(|e| e.ok().map(|e| e.path())).collect())
-                .unwrap_or_default()
-        }
-        None => Vec::new(),
-    };
-    let inputs: Vec<&std::path::Path> = [Some(a.manifest.as_path()), path_file(&a.path), library.as_deref()]
-        .into_iter()
-        .flatten()
-        .chain(case_files.iter().map(|p| p.as_path()))
-        .collect();
+    let case_files = crate::case_store::case_files_of(&a.manifest, a.cases.as_ref());
+    let inputs: Vec<&std::path::Path> =
+        [Some(a.manifest.as_path()), crate::manifest::path_file(&a.path), library.as_deref()]
+            .into_iter()
+            .flatten()
+            .chain(case_files.iter().map(|p| p.as_path()))
+            .collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     let finite = crate::finite_load::FiniteManifest::detect(&a.manifest);
     let finite_options = if finite { Some(finite_check_options(&a)?) } else { None };
@@ -463,11 +411,15 @@ fn cmd_check(a: CheckArgs) -> Result<i32> {
 fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     a.output.prepare()?;
     let library = crate::manifest::library_of(&a.manifest);
-    let inputs: Vec<&std::path::Path> =
-        [Some(a.manifest.as_path()), a.suite.as_deref(), path_file(&a.path), library.as_deref()]
-            .into_iter()
-            .flatten()
-            .collect();
+    let inputs: Vec<&std::path::Path> = [
+        Some(a.manifest.as_path()),
+        a.suite.as_deref(),
+        crate::manifest::path_file(&a.path),
+        library.as_deref(),
+    ]
+    .into_iter()
+    .flatten()
+    .collect();
     a.output.guard(a.json.as_deref(), &inputs)?;
     if crate::finite_load::FiniteManifest::detect(&a.manifest) {
         let given = [

@@ -32,6 +32,7 @@ pub mod finite_load;
 pub mod isolate;
 pub mod load;
 pub mod manifest;
+mod refuse;
 pub mod report;
 pub mod selftest;
 pub mod session;

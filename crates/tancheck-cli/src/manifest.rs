@@ -359,6 +359,11 @@ pub fn ramp(r: &RampSpec) -> Result<Path, String> {
     Ok(p)
 }
 
+/// The `--path` given when it names a file (not SHAPE:PEAK:STEPS): an input of the run.
+pub fn path_file(path: &Option<String>) -> Option<&FsPath> {
+    path.as_deref().map(FsPath::new).filter(|p| p.is_file())
+}
+
 /// The library a manifest of any kind (point, block, finite strain) names, beside the
 /// manifest as it resolves it; `None` when it names none or cannot be read. A report written
 /// over it would replace the routine (`check --json` named the manifest's library: the
