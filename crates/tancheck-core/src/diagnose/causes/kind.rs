@@ -14,6 +14,10 @@ pub enum Cause {
     ShearFactor,
     /// Shear components in another order (12/13/23 against 23/13/12 ...).
     ShearPermutation,
+    /// Rows and columns in another component order than the stress and strain (a tangent
+    /// written for the order 11 22 12 33 of a routine that declares 11 22 33 12): any
+    /// reordering but one of the shear components among themselves (`shear-permutation`).
+    ComponentOrder,
     /// Rows and columns swapped.
     Transposed,
     /// The whole tangent scaled, e.g. by a unit factor 1e3 or a sign.
@@ -81,10 +85,11 @@ pub enum Cause {
 impl Cause {
     /// Specific explanations first: when several explain the discrepancy, the first listed
     /// here is ranked first.
-    pub const BY_SPECIFICITY: [Cause; 26] = [
+    pub const BY_SPECIFICITY: [Cause; 27] = [
         Cause::ZeroTangent,
         Cause::ShearFactor,
         Cause::ShearPermutation,
+        Cause::ComponentOrder,
         Cause::Transposed,
         Cause::Symmetrized,
         Cause::StartTemperature,
@@ -118,6 +123,7 @@ impl Cause {
         match self {
             Cause::ShearFactor => "shear-factor",
             Cause::ShearPermutation => "shear-permutation",
+            Cause::ComponentOrder => "component-order",
             Cause::Transposed => "transposed",
             Cause::UniformScale => "uniform-scale",
             Cause::ElasticTangent => "elastic-tangent",

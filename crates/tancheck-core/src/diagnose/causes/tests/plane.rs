@@ -143,3 +143,40 @@ fn one_components_missing_coupling_is_named() {
     assert_eq!(h[0].cause, Cause::CouplingMissing, "{h:#?}");
     assert!(h[0].detail.contains("of 33 with 11, 22"), "{}", h[0].detail);
 }
+
+// A plane-strain tangent written for the component order 11 22 12 33 where the routine
+// declares 11 22 33 12 (rows and columns of 33 and 12 swapped together) is `component-order`,
+// with the order it was written in; it read `rank-two` (a user-style sweep). A 3D tangent
+// whose shear entries alone are reordered stays `shear-permutation`.
+#[test]
+fn a_tangent_in_another_component_order_is_named() {
+    let conv = Convention::new(PointKind::PlaneStrain, ShearMeasure::Engineering);
+    let mut good = crate::worked::isotropic(&conv, 1.15e5, 7.7e4);
+    let nv = [0.6, -0.2, -0.4, 0.5];
+    for j in 0..4 {
+        for i in 0..4 {
+            good[i + 4 * j] -= 4.0e4 * nv[i] * nv[j];
+        }
+    }
+    let swap = [0, 1, 3, 2];
+    let mut bad = vec![0.0; 16];
+    for j in 0..4 {
+        for i in 0..4 {
+            bad[i + 4 * j] = good[swap[i] + 4 * swap[j]];
+        }
+    }
+    let h = rank(&ev(&conv, &bad, &good, &[0.0; 4]));
+    assert_eq!(h[0].cause, Cause::ComponentOrder, "{h:?}");
+    assert!(h[0].detail.contains("component order 11 22 12 33"), "{}", h[0].detail);
+    let conv3 = Convention::new(PointKind::Solid3d, ShearMeasure::Engineering);
+    let good3 = j2_like();
+    let perm = [0, 1, 2, 5, 4, 3];
+    let mut bad3 = vec![0.0; 36];
+    for j in 0..6 {
+        for i in 0..6 {
+            bad3[i + 6 * j] = good3[perm[i] + 6 * perm[j]];
+        }
+    }
+    let h = rank(&ev(&conv3, &bad3, &good3, &[0.0; 6]));
+    assert_eq!(h[0].cause, Cause::ShearPermutation, "{h:?}");
+}
