@@ -506,3 +506,23 @@ fn an_isolated_check_that_finishes_reports_what_the_plain_check_reports() {
         assert!(ja["records"].as_array().is_some_and(|r| r.len() == 8), "{symbol}: {}", ja["records"]);
     }
 }
+
+/// A check past `--suite-timeout` between two calls is a slow check, not a thread the routine
+/// left running: the words say to raise the limit and guess no stray thread (they did; a
+/// user-style sweep of a slow correct routine).
+#[test]
+fn a_check_past_the_suite_timeout_says_to_raise_it() {
+    let d = scratch("suite-timeout");
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] },
+  "path": { "shape": "uniaxial-strain", "peak": 0.001, "steps": 400000 } }"#,
+    )
+    .unwrap();
+    let o = output(bin().arg("check").arg(&m).args(["--suite-timeout", "0.2", "-q"]));
+    let all = format!("{}{}", String::from_utf8_lossy(&o.stdout), String::from_utf8_lossy(&o.stderr));
+    assert_eq!(o.status.code(), Some(3), "{all}");
+    assert!(all.contains("needs a larger --suite-timeout"), "{all}");
+    assert!(!all.contains("left running"), "{all}");
+}

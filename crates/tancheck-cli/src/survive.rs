@@ -393,7 +393,10 @@ fn watchdog(call_timeout: f64, suite_timeout: Option<f64>) {
             if now.duration_since(started).as_secs_f64() > limit {
                 watch::die(
                     crate::exit::ROUTINE_FAULT,
-                    &format!("the check did not finish within {limit} s (--suite-timeout sets the limit)"),
+                    &format!(
+                        "the check did not finish within {limit} s (a routine this slow, or a path this \
+                         long, needs a larger --suite-timeout)"
+                    ),
                 );
             }
         }
