@@ -220,6 +220,18 @@ fn check_junit_is_valid_and_names_the_finding() {
         // A case per scheme (the defaults: central and complex-step) and the verdict.
         let names: Vec<&str> = cs.iter().map(|c| c.attrs["name"].as_str()).collect();
         assert_eq!(names, ["tangent against central", "tangent against complex-step", "verdict"], "{xml}");
+        // The suite carries the cautions every report carries (JUnit had none; a user-style
+        // sweep), as properties.
+        let suite = &root.children[0];
+        let cautions: Vec<&str> = suite
+            .children
+            .iter()
+            .filter(|c| c.name == "properties")
+            .flat_map(|p| p.children.iter())
+            .filter(|p| p.attrs.get("name").is_some_and(|n| n == "caution"))
+            .map(|p| p.attrs["value"].as_str())
+            .collect();
+        assert_eq!(cautions, tancheck::core::report::CAUTIONS, "{xml}");
         for c in &cs {
             assert_eq!(c.attrs["classname"], model);
             match finding {

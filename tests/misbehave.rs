@@ -174,6 +174,14 @@ fn a_guard_finding_in_a_schemes_call_reads_as_a_fault_not_a_crash() {
     let (_, q) = check(c_lib(), "bad_perturbed_overrun", &["-q"]);
     let line = q.lines().find(|l| l.contains("increment 2")).expect("the increment's line");
     assert!(line.starts_with("FAULT ") && !line.contains("undiagnosed"), "{q}");
+    // The HTML page names the faulted increment's finding as the terminal does (it said
+    // "undiagnosed"; a user-style sweep).
+    let page = scratch("overrun-page").join("r.html");
+    let (c, t) = check(c_lib(), "bad_perturbed_overrun", &["-q", "--html", page.to_str().unwrap()]);
+    assert_eq!(c, Some(3), "{t}");
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains("finding <code>routine-fault</code>"), "{t}");
+    assert!(!html.contains("undiagnosed"), "{t}");
 }
 
 /// A twin that is not complex-step safe in many increments: each increment says why, and the

@@ -176,8 +176,16 @@ pub fn explore_junit(r: &ExploreReport) -> io::Result<String> {
     let mut case = TestCase::new("branches reached", coverage);
     case.set_classname("explore.coverage");
     suite.add_test_case(case);
+    // A fault is an error, as in a check's JUnit (it was filed as a tangent failure; a
+    // user-style sweep).
     let verdict = if r.findings.is_empty() {
         TestCaseStatus::success()
+    } else if r.verdict == Verdict::RoutineFault {
+        failure(
+            format!("{} distinct failure(s), a routine fault among them", r.findings.len()),
+            NonSuccessKind::Error,
+            None,
+        )
     } else {
         failure(format!("{} distinct failure(s)", r.findings.len()), NonSuccessKind::Failure, None)
     };

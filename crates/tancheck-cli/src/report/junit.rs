@@ -17,6 +17,19 @@ use tancheck_core::{Report, Scheme, Verdict};
 /// element, which the JUnit schema CI dashboards read (see tests/junit_report.rs) does not
 /// declare there (it is declared on each `testsuite`, where it stays): it is left out.
 pub(crate) fn to_string(r: &JReport) -> io::Result<String> {
+    // Every suite carries the cautions every other report carries, as properties (JUnit had
+    // none; a user-style sweep): a block routine's suite its own.
+    let mut r = r.clone();
+    for suite in &mut r.test_suites {
+        let cautions = if suite.name.starts_with("tancheck block ") {
+            tancheck_core::block::BLOCK_CAUTIONS
+        } else {
+            tancheck_core::report::CAUTIONS
+        };
+        for c in cautions {
+            suite.add_property(Property::new("caution", c));
+        }
+    }
     let xml = r.to_string().map_err(io::Error::other)?;
     Ok(drop_root_skipped(&xml))
 }

@@ -88,6 +88,10 @@ impl CallCheck {
         match &self.diagnosis {
             Some(d) => &d.finding,
             None if self.passed() => "none",
+            // As an increment of a check names it (a case of such a call recorded
+            // "undiagnosed" where explore named non-finite-output; a user-style sweep).
+            None if !self.non_finite.is_empty() => "non-finite-output",
+            None if self.faulted() => FAULT_FINDING,
             None => "undiagnosed",
         }
     }

@@ -206,6 +206,16 @@ impl IncrementResult {
             None if self.passed() => "none",
             // No diagnosis is made of outputs that are not finite numbers: that is the finding.
             None if !self.non_finite.is_empty() => "non-finite-output",
+            // Nor of a call that faulted: the fault is (the HTML page said "undiagnosed" where
+            // the terminal said routine-fault; a user-style sweep).
+            None if self.fault.is_some()
+                || self.checks.iter().any(|c| {
+                    matches!(c.tangent, CheckOutcome::Fault(_))
+                        || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+                }) =>
+            {
+                crate::call_check::FAULT_FINDING
+            }
             None => "undiagnosed",
         }
     }
