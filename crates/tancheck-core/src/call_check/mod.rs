@@ -34,8 +34,7 @@ pub(crate) use one_sided::ONE_SIDED;
 pub use records::{call_record, fault_record, fault_record_of_call};
 use straddle::{kink_straddled, one_sided_distance, straddle_level, TEMPERATURE_BIT};
 
-/// The finding of a case whose call crashed or returned a failed status.
-pub const FAULT_FINDING: &str = "routine-fault";
+pub use crate::report::FAULT_FINDING;
 
 /// The judgement of one call.
 #[derive(Clone, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]

@@ -14,6 +14,9 @@ pub mod record;
 
 pub use record::{Collector, IncrementRecord, Keep, PassedIncrement, RECORD_SCHEMES};
 
+/// The finding of an increment or a case whose call crashed or returned a failed status.
+pub const FAULT_FINDING: &str = "routine-fault";
+
 /// The cautions every report carries.
 pub const CAUTIONS: [&str; 2] = [
     "A consistent tangent shows that the routine differentiates its own stress update; it does \
@@ -214,7 +217,7 @@ impl IncrementResult {
                         || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
                 }) =>
             {
-                crate::call_check::FAULT_FINDING
+                FAULT_FINDING
             }
             None => "undiagnosed",
         }
