@@ -272,7 +272,7 @@ fn crashes_are_faults_with_the_inputs_of_the_call() {
     let row = t.lines().find(|l| l.trim_start().starts_with("2 ")).expect("increment 2's row");
     assert!(row.contains("none (call faulted)"), "{t}");
     let branches: Vec<&str> = t.lines().filter(|l| l.trim_start().starts_with("branch ")).collect();
-    assert!(!branches.is_empty() && branches.iter().all(|l| l.contains("passed at 1 increments")), "{t}");
+    assert!(!branches.is_empty() && branches.iter().all(|l| l.contains("passed at 1 increment (")), "{t}");
 }
 
 #[test]

@@ -183,7 +183,9 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
         o.of,
         o.path,
         o.branch,
-        o.shrunk_from.map_or(String::new(), |n| format!(" (shrunk from {n} increments)"))
+        o.shrunk_from.map_or(String::new(), |n| {
+            format!(" (shrunk from {n} increment{})", if n == 1 { "" } else { "s" })
+        })
     );
     let recorded_finding = case.probe.finding.clone();
     let inputs = case.call.clone();

@@ -64,12 +64,18 @@ pub fn write(out: &mut dyn Write, r: &Report, detail: Detail, p: Palette) -> io:
         return quiet(out, r, p);
     }
     writeln!(out, "{}", p.head(&format!("== {} ==", rt.name)))?;
+    // The shear measure only where the point has shear components (a uniaxial point read
+    // "components 11 (engineering shear)"; a user-style sweep).
+    let shear = if rt.order.iter().any(|l| ["23", "13", "12"].contains(&l.as_str())) {
+        format!(" ({} shear)", rt.shear)
+    } else {
+        String::new()
+    };
     writeln!(
         out,
-        "   {} point, components {} ({} shear), {} properties, {} state variables, complex twin: {}",
+        "   {} point, components {}{shear}, {} properties, {} state variables, complex twin: {}",
         rt.kind,
         rt.order.join(" "),
-        rt.shear,
         rt.nprop,
         rt.nstate,
         if rt.complex_twin { "yes" } else { "no" }
@@ -279,9 +285,10 @@ fn summary(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         } else {
             writeln!(
                 out,
-                "   branch {}: passed at {} increments (worst {}{})",
+                "   branch {}: passed at {} increment{} (worst {}{})",
                 b.branch,
                 b.increments,
+                if b.increments == 1 { "" } else { "s" },
                 sci(b.worst_error),
                 match b.cleared {
                     0 => String::new(),
