@@ -48,10 +48,25 @@ pub fn table(o: &mut String, head: &[&str], rows: impl IntoIterator<Item = Vec<C
     o.push_str("</table>\n");
 }
 
-/// Escape text for HTML (element content and attribute values).
+/// Escape text for HTML (element content and attribute values). Control characters but new
+/// lines and tabs are left out, a terminal colour sequence (ESC [ … letter) whole: a routine's
+/// message with them showed boxes and "[31m" on the page (a user-style sweep).
 pub fn esc(s: &str) -> String {
     let mut o = String::with_capacity(s.len());
-    for c in s.chars() {
+    let mut chars = s.chars().peekable();
+    while let Some(c) = chars.next() {
+        if c == '\u{1b}' && chars.peek() == Some(&'[') {
+            chars.next();
+            while let Some(x) = chars.next() {
+                if ('\u{40}'..='\u{7e}').contains(&x) {
+                    break;
+                }
+            }
+            continue;
+        }
+        if c.is_control() && c != '\n' && c != '\t' {
+            continue;
+        }
         match c {
             '&' => o.push_str("&amp;"),
             '<' => o.push_str("&lt;"),
@@ -169,5 +184,7 @@ mod tests {
     #[test]
     fn text_is_escaped() {
         assert_eq!(esc("a<b & \"c\""), "a&lt;b &amp; &quot;c&quot;");
+        // Control characters and a terminal colour sequence are left out; lines stay.
+        assert_eq!(esc("\u{1b}[31mred\u{1b}[0m\u{1}\u{2} ok\nnext\tcol"), "red ok\nnext\tcol");
     }
 }
