@@ -382,6 +382,20 @@ pub fn library_of(manifest: &FsPath) -> Option<PathBuf> {
 pub fn load_path_file(file: &FsPath) -> Result<Path, ManifestError> {
     let text =
         std::fs::read_to_string(file).map_err(|reason| ManifestError::Read { path: file.into(), reason })?;
+    // A list of increments alone is read by serde as the fields of a path in order, and its
+    // error named a string where an object was found (a user-style sweep): say what to write.
+    if text.trim().is_empty() {
+        return Err(ManifestError::Invalid { path: file.into(), message: "the file is empty".into() });
+    }
+    if text.trim_start().starts_with('[') {
+        return Err(ManifestError::Invalid {
+            path: file.into(),
+            message: "a path file is a JSON object, not a list: write the increments as \
+                      { \"increments\": [ { \"dstrain\": [...] }, ... ] }, or a shape as \
+                      { \"shape\": \"tension-shear\", \"peak\": 0.004, \"steps\": 8 }"
+                .into(),
+        });
+    }
     let mut spec: PathSpec = serde_json::from_str(&text).map_err(|e| ManifestError::json(file, &text, &e))?;
     drop(text);
     let given = spec.increments.is_some();
