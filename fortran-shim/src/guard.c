@@ -778,10 +778,24 @@ static void last_words_signal(int sig, int in_call) {
 /* SIGINT, SIGTERM, SIGHUP while armed: remove the temporary files, then die of the signal
  * as usual; or, deferred, only record the first for the program's own loop (the --isolate
  * parent, a campaign): a second one acts at once. */
+static int stop_stderr_tty; /* standard error is a terminal (set when armed) */
+
 static void stop_handler(int sig) {
     if (defer_stop && stop_signal == 0) {
         stop_signal = sig;
         return;
+    }
+    if (stop_stderr_tty) {
+        /* A progress line is cleared and the stop said, so the shell's next line starts on a
+         * line of its own (it landed after the bar; a user-style sweep). */
+        char m[96] = "\r\033[Ktancheck: stopped by signal ";
+        size_t k = strlen(m);
+        if (sig >= 10) m[k++] = (char)('0' + sig / 10);
+        m[k++] = (char)('0' + sig % 10);
+        const char *tail = " before the check finished\n";
+        for (const char *q = tail; *q != '\0' && k + 1 < sizeof m; q++) m[k++] = *q;
+        ssize_t w = write(2, m, k);
+        (void)w;
     }
     if (lw_tmp[0] != '\0') unlink(lw_tmp);
     if (lw_own_tmp[0] != '\0') unlink(lw_own_tmp);
@@ -1116,6 +1130,7 @@ int32_t tc_guard_prepare(void) {
  * From now on any exit() before tc_guard_set_phase(0) is a fault. */
 int32_t tc_guard_arm(void) {
     tc_guard_prepare();
+    stop_stderr_tty = isatty(2);
     static const int stops[] = {SIGINT, SIGTERM, SIGHUP};
     for (int i = 0; i < 3; i++) {
         struct sigaction old;
