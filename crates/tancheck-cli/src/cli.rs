@@ -512,7 +512,15 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         Some(f) => suite.check_at(&path).map_err(|e| anyhow::anyhow!("{}: {e}", f.display()))?,
         None => notes.extend(suite.fit_at(&path)),
     }
-    let report = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, suite_file.as_deref())?;
+    let report = crate::session::run_probe_suite(
+        &m,
+        &dir,
+        &file,
+        &suite,
+        &path,
+        suite_file.as_deref(),
+        a.output.shows_progress(),
+    )?;
     let source = if a.path.is_some() {
         "from --path"
     } else if m.path.is_some() && !a.suite_path && !thermal_swap {

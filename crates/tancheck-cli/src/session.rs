@@ -305,6 +305,7 @@ pub fn run_probe_suite(
     suite: &crate::suite::Suite,
     path: &Path,
     suite_file: Option<&std::path::Path>,
+    progress: bool,
 ) -> Result<tancheck_core::probe::SuiteReport> {
     use anyhow::Context;
     let mut loaded = load(m, dir).with_context(|| format!("loading the routine of {file}"))?;
@@ -319,7 +320,11 @@ pub fn run_probe_suite(
     let start = start_state(m, routine.info()).with_context(|| file.to_string())?;
     let mut caller = Caller::new(routine);
     crate::survive::checking(true);
-    let report = tancheck_core::probe::run_suite(
+    // A bar of the probes done, for paths long enough to wait for (a long probe run showed
+    // nothing on a terminal; a user-style sweep).
+    let total = suite.probes.len();
+    let bar = Progress::new(total as u64, "probing", progress && path.increments.len() >= 200);
+    let report = tancheck_core::probe::run_suite_with(
         &mut caller,
         &suite.suite,
         &suite.probes,
@@ -327,6 +332,7 @@ pub fn run_probe_suite(
         &start,
         path,
         &m.check,
+        &mut |k| bar.set(k.min(total) as u64),
     )
     .map_err(anyhow::Error::msg);
     crate::survive::checking(false);

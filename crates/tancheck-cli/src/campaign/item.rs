@@ -307,7 +307,8 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
                 (None, None) => suite.path().map_err(anyhow::Error::msg)?,
             };
             let _ = suite.fit_at(&path);
-            let rep = crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, Some(suite_file))?;
+            let rep =
+                crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, Some(suite_file), false)?;
             let failed: Vec<_> =
                 rep.results.iter().filter(|p| p.status == tancheck_core::probe::ProbeStatus::Fail).collect();
             Ok(Found {

@@ -411,7 +411,32 @@ pub fn run_suite(
         probes.push((probe, spec));
     }
     let probes: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().map(|(p, s)| (p.as_ref(), *s)).collect();
-    run_probes(caller, suite, &probes, props, start, path, settings)
+    run_probes_with(caller, suite, &probes, props, start, path, settings, &mut |_| {})
+}
+
+/// [`run_suite`] calling `progress` with the number of probes done after each probe (the
+/// count starts again when the suite runs again on a cut path).
+#[allow(clippy::too_many_arguments)]
+pub fn run_suite_with(
+    caller: &mut Caller<'_>,
+    suite: &str,
+    specs: &[ProbeSpec],
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    settings: &Settings,
+    progress: &mut dyn FnMut(usize),
+) -> Result<SuiteReport, CoreError> {
+    let mut probes = Vec::with_capacity(specs.len());
+    for spec in specs {
+        let probe = by_name(&spec.probe).ok_or_else(|| {
+            let names: Vec<_> = registry().iter().map(|p| p.name()).collect();
+            CoreError::UnknownProbe { given: spec.probe.clone(), known: names.join(", ") }
+        })?;
+        probes.push((probe, spec));
+    }
+    let probes: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().map(|(p, s)| (p.as_ref(), *s)).collect();
+    run_probes_with(caller, suite, &probes, props, start, path, settings, progress)
 }
 
 /// Run `probes`, each with its suite entry, on a routine: a probe whose [`Needs`] are not met
@@ -429,7 +454,22 @@ pub fn run_probes(
     path: &Path,
     settings: &Settings,
 ) -> Result<SuiteReport, CoreError> {
-    let report = run_probes_on(caller, suite, probes, props, start, path, settings)?;
+    run_probes_with(caller, suite, probes, props, start, path, settings, &mut |_| {})
+}
+
+/// [`run_probes`] with the progress of [`run_suite_with`].
+#[allow(clippy::too_many_arguments)]
+fn run_probes_with(
+    caller: &mut Caller<'_>,
+    suite: &str,
+    probes: &[(&dyn Probe, &ProbeSpec)],
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    settings: &Settings,
+    progress: &mut dyn FnMut(usize),
+) -> Result<SuiteReport, CoreError> {
+    let report = run_probes_on(caller, suite, probes, props, start, path, settings, progress)?;
     if !report.results.iter().any(|r| r.fault) {
         return Ok(report);
     }
@@ -456,12 +496,13 @@ pub fn run_probes(
         })
         .collect();
     let moved: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().zip(&specs).map(|((p, _), s)| (*p, s)).collect();
-    let mut again = run_probes_on(caller, suite, &moved, props, start, &cut.path, settings)?;
+    let mut again = run_probes_on(caller, suite, &moved, props, start, &cut.path, settings, progress)?;
     again.notes.push(cut.note(path.increments.len()));
     Ok(again)
 }
 
 /// [`run_probes`] on `path` as given.
+#[allow(clippy::too_many_arguments)]
 fn run_probes_on(
     caller: &mut Caller<'_>,
     suite: &str,
@@ -470,6 +511,7 @@ fn run_probes_on(
     start: &PointState,
     path: &Path,
     settings: &Settings,
+    progress: &mut dyn FnMut(usize),
 ) -> Result<SuiteReport, CoreError> {
     let mut results = Vec::new();
     let info = caller.info().clone();
@@ -480,6 +522,7 @@ fn run_probes_on(
             Some(why) => results.push(ProbeResult::skipped(probe.name(), why)),
             None => results.push(probe.run(caller, &env)?),
         }
+        progress(results.len());
     }
     let pass = results.iter().all(|r| r.status != ProbeStatus::Fail);
     let exit_code = SuiteReport::exit_code_of(&results);
