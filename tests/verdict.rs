@@ -527,3 +527,22 @@ fn a_stress_jump_at_the_point_is_said() {
     assert!(r.coverage.iter().all(|c| !c.contains("jumps")), "{:?}", r.coverage);
     assert!(verdict(&r).contains("is the derivative of the stress update at every increment"));
 }
+
+// A first plastic increment twice the elastic range or more, from a virgin state, returning
+// the elastic tangent is `elastic-tangent`: the elastic trial's step back from the start (half
+// the increment) yielded the other way, so its "elastic" tangent was a plastic one and the
+// increment read `initial-stiffness` (a user-style sweep). Tensor shear γ12/2 = 3e-3 against a
+// shear yield strain of σy0/(√3 · 2μ) = 9.4e-4 for the worked properties (von Mises).
+#[test]
+fn a_large_first_plastic_increment_returning_the_elastic_tangent_is_named_so() {
+    use tancheck::core::path::PathIncrement;
+    let mut m = tancheck::models::zoo::zoo_model("j2-elastic-first-plastic", PointKind::Solid3d).unwrap();
+    let path = Path {
+        name: "one large shear increment".into(),
+        increments: vec![PathIncrement::strain([0.0, 0.0, 0.0, 0.0, 0.0, 3e-3])],
+    };
+    let r = run(&mut m, &WORKED, &path, &Settings::default());
+    let inc = r.increments.iter().find(|i| i.index == 1).expect("increment 1");
+    assert!(!inc.passed());
+    assert_eq!(inc.finding(), "elastic-tangent", "{:?}", inc.diagnosis.as_ref().map(|d| &d.causes));
+}

@@ -513,8 +513,22 @@ fn cause_trials(
     // viscoelastic relaxation) relaxes as little as the routine allows during it, and one that
     // does not depend on time gives the same (its step over the increment's time crept:
     // a creep routine returning its elastic stiffness was named after another stiffness).
+    // The step is half the increment back, or a tenth or a hundredth of that where half of it
+    // changes the state variables: from a virgin state, half an increment twice the elastic
+    // range yields the other way, and its "elastic" tangent was a plastic one (a first plastic
+    // increment returning the elastic tangent read `initial-stiffness`, not `elastic-tangent`;
+    // a user-style sweep). A routine whose state changes at every step keeps the half.
     let mut elastic = vec![0.0; n * n];
-    driver.rescale(-0.5);
+    let mut back = -0.5;
+    for f in [-0.5, -0.05, -0.005] {
+        driver.rescale(f);
+        driver.rescale_time(ELASTIC_TIME);
+        if driver.base_call(caller).is_ok() && driver.base.state == driver.start().state {
+            back = f;
+            break;
+        }
+    }
+    driver.rescale(back);
     driver.rescale_time(ELASTIC_TIME);
     let elastic_base = driver.base_call(caller).is_ok();
     let elastic_returned = driver.base.tangent.clone();
