@@ -219,6 +219,12 @@ impl Driver {
         }
     }
 
+    /// Give the increment set the number `k` (the calls' `increment`), for a probe that calls
+    /// the same inputs under another number.
+    pub(crate) fn set_count(&mut self, k: i32) {
+        self.increment = k;
+    }
+
     /// Replace the strain and temperature increments without counting a new increment (for
     /// probes that call around the current one; the base call must be made again).
     pub fn set_increment_keep_count(&mut self, dstrain: &[f64], dtemp: f64) {

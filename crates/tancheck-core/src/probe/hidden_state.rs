@@ -2,6 +2,15 @@
 //! increment, doubled) from the same start — must give the same answers for A. A routine that
 //! keeps saved (static) variables between calls fails.
 //!
+//! Then, from the second increment on, a call C — the increment from the start of the one
+//! before (another point's start state, as the points of an element give) — is made twice:
+//! once under the increment's own number, after A, and once under a number the path never
+//! reaches, first there. The two must agree bit for bit: a routine that keeps results per
+//! increment number (a tangent computed at the first call of an increment and returned to the
+//! later ones; a start state read at the first call and used for every point of the increment,
+//! the one static all points share) gives C the first call's (both passed every probe; a
+//! user-style sweep).
+//!
 //! B is the probe's own call, off the path: a routine may refuse it with a status (a return
 //! past a cone's apex, a strain its law does not take). That is no fault of the routine; B is
 //! then tried smaller (the reversed increment, then half the increment), and an increment none
@@ -27,10 +36,23 @@ impl Probe for HiddenState {
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first = None;
+        let mut keyed: Option<(usize, (&'static str, usize, f64, f64, f64))> = None;
         let (mut probed, mut refused) = (0usize, Vec::new());
+        // The start state of the increment before (C's start).
+        let mut before: Option<crate::driver::PointState> = None;
+        let far_from = env.path.increments.len() + 1;
         let walked = walk(caller, env, |k, d, c| {
-            if !env.spec.runs_at(k) || first.is_some() {
+            let previous = before.replace(d.start().clone());
+            if !env.spec.runs_at(k) || first.is_some() || keyed.is_some() {
                 return Ok(());
+            }
+            if let (Some(prev), true) = (previous, k >= 2) {
+                keyed = per_increment_number(c, env, d, prev, k, far_from + k)?;
+                // The walk's own call of the increment again, for B below.
+                d.base_call(c)?;
+                if keyed.is_some() {
+                    return Ok(());
+                }
             }
             let a = (d.base.stress.clone(), d.base.state.clone(), d.base.tangent.clone());
             let full = d.dstrain().to_vec();
@@ -77,6 +99,23 @@ impl Probe for HiddenState {
                 refused
             )
         });
+        if let (None, Some((k, (what, i, x, y, rel)))) = (&first, keyed) {
+            let mut r = ProbeResult::new(
+                "hidden-state",
+                ProbeStatus::Fail,
+                format!(
+                    "at increment {k}, a call from another start state (the start of the increment before, as \
+                     another point of the element has) gave other results under the increment's own number, \
+                     after the increment's call, than under a number no other call had ({what}[{i}]: {x:e} \
+                     against {y:e}, relative {rel:.1e}): the routine keeps results per increment number (a \
+                     tangent or start state saved at the first call of an increment and used for the later \
+                     ones, a static variable every point shares?)"
+                ),
+            );
+            r.increment = Some(k);
+            r.value = Some(rel);
+            return Ok(r);
+        }
         Ok(match first {
             None if probed == 0 && refused_note.is_some() => {
                 let mut r = ProbeResult::new(
@@ -119,6 +158,45 @@ impl Probe for HiddenState {
             }
         })
     }
+}
+
+/// Call C (increment `k`'s strain and temperature increments from `prev`, the start of the
+/// increment before) under the number `k`, after the increment's own calls, and under `far`,
+/// a number no call had: the outputs' largest difference when they differ. A call C the
+/// routine refuses with a status is no finding (another start may not take this increment).
+fn per_increment_number(
+    c: &mut Caller<'_>,
+    env: &ProbeEnv<'_>,
+    d: &crate::driver::Driver,
+    prev: crate::driver::PointState,
+    k: usize,
+    far: usize,
+) -> Result<Option<(usize, (&'static str, usize, f64, f64, f64))>, crate::routine::Fault> {
+    let info = c.info().clone();
+    let Ok(mut other) = crate::driver::Driver::new(&info, env.props, prev) else { return Ok(None) };
+    other.set_increment(d.dstrain(), d.dtemp(), d.dtime());
+    let mut outputs = Vec::with_capacity(2);
+    for number in [k, far] {
+        other.set_count(i32::try_from(number).unwrap_or(i32::MAX));
+        match other.base_call(c) {
+            Ok(()) => outputs.push((
+                other.base.stress.clone(),
+                other.base.state.clone(),
+                other.base.tangent.clone(),
+            )),
+            Err(crate::routine::Fault::Status { .. }) => return Ok(None),
+            Err(f) => return Err(f),
+        }
+    }
+    let (a, b) = (&outputs[0], &outputs[1]);
+    let same = |x: &[f64], y: &[f64]| x.iter().zip(y).all(|(p, q)| p.to_bits() == q.to_bits());
+    if same(&a.0, &b.0) && same(&a.1, &b.1) && same(&a.2, &b.2) {
+        return Ok(None);
+    }
+    Ok(Some((
+        k,
+        largest_difference(&[("stress", &a.0, &b.0), ("state", &a.1, &b.1), ("tangent", &a.2, &b.2)]),
+    )))
 }
 
 /// A relative difference at most this is in the last bits of a value.
