@@ -511,3 +511,85 @@ fn results_kept_per_increment_number_fail_the_hidden_state_probe() {
     let mut j2 = reference("j2", PointKind::Solid3d).unwrap();
     assert_eq!(probe(&mut j2).status, ProbeStatus::Pass);
 }
+
+/// A standard linear solid on a uniaxial point (a spring E∞ beside a Maxwell arm E₁ with time
+/// constant τ), updated exactly for a constant strain rate over the increment: the arm's
+/// stress h(t) = b + (h₀ − b) e^{−t/τ} with b = E₁τ Δε/Δt. Stored energy ½E∞ε² + ½h²/E₁,
+/// dissipated energy the dashpot's ∫h²/(E₁τ) dt in closed form (standard linear viscoelasticity,
+/// derived here). State: h, the dissipated energy.
+struct Zener(tancheck::core::RoutineInfo);
+
+const ZENER: [f64; 3] = [1000.0, 4000.0, 0.5]; // E∞, E₁, τ
+
+impl Routine for Zener {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        &self.0
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let (e_inf, e1, tau) = (input.props[0], input.props[1], input.props[2]);
+        let (de, dt) = (input.dstrain[0], input.time[1]);
+        let (h0, d0) = (input.state0[0], input.state0[1]);
+        let eps = input.strain[0] + de;
+        let x = (-dt / tau).exp();
+        // dt = 0: the arm jumps elastically (b(1 − x) → E₁ Δε).
+        let (h, k, dissipated) = if dt > 0.0 {
+            let b = e1 * tau * de / dt;
+            let a = h0 - b;
+            let integral = b * b * dt
+                + 2.0 * b * a * tau * (1.0 - x)
+                + a * a * 0.5 * tau * (1.0 - (-2.0 * dt / tau).exp());
+            (b + a * x, e1 * tau * (1.0 - x) / dt, integral / (e1 * tau))
+        } else {
+            (h0 + e1 * de, e1, 0.0)
+        };
+        output.stress[0] = e_inf * eps + h;
+        output.tangent[0] = e_inf + k;
+        output.state[0] = h;
+        output.state[1] = d0 + dissipated;
+        output.dstress_dtemp[0] = 0.0;
+        output.energy[0] = 0.5 * e_inf * eps * eps + 0.5 * h * h / e1;
+        output.energy[1] = d0 + dissipated;
+        output.outcome.provides = tancheck::core::routine::provides::ENERGY;
+        Ok(())
+    }
+}
+
+// The energy probe's work over an increment is taken along the increment at its rates: the
+// call at the fraction s of it is s·Δε in s·Δt. With the whole Δt for s·Δε a rate-dependent
+// routine's stress along the way was that of slower loading, and this correct viscoelastic
+// routine's exact energies disagreed with the work by 3e-2 (a user-style sweep).
+#[test]
+fn a_viscoelastic_routine_with_exact_energies_passes_the_energy_probe() {
+    use tancheck::core::probe::ProbeSpec;
+    use tancheck::core::{Convention, Path, Shape, ShearMeasure};
+    let info = tancheck::core::RoutineInfo {
+        name: "zener".into(),
+        convention: Convention::new(PointKind::Uniaxial, ShearMeasure::Engineering),
+        nstate: 2,
+        nprop: 3,
+    };
+    let mut r = Zener(info.clone());
+    let mut caller = Caller::new(&mut r);
+    let start = PointState::zero(&info, 20.0);
+    let mut path = Path::ramp(Shape::UniaxialStrain, 4e-3, 8, 4);
+    for inc in &mut path.increments {
+        inc.dtime = 0.2;
+    }
+    let rep = run_suite(
+        &mut caller,
+        "e",
+        &[ProbeSpec::named("energy"), ProbeSpec::named("tangent")],
+        &ZENER,
+        &start,
+        &path,
+        &Settings::default(),
+    )
+    .unwrap();
+    for p in &rep.results {
+        assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
+    }
+}
