@@ -294,8 +294,26 @@ contains
       end if
       o%state0 = address(state0)
     end if
-    if (present(strain0)) o%strain0 = address(strain0)
-    if (present(stress0)) o%stress0 = address(stress0)
+    ! The start strain and stress have the point kind's components: a shorter array was
+    ! read past its end (a user-style sweep), a longer one is a mistake too.
+    if (present(strain0)) then
+      if (kind_components(opts%kind) > 0 .and. size(strain0) /= kind_components(opts%kind)) then
+        call fail(tck_error_invalid, "tck_run_check", &
+                  "strain0 must have as many entries as the point kind has components", err)
+        result = c_null_ptr
+        return
+      end if
+      o%strain0 = address(strain0)
+    end if
+    if (present(stress0)) then
+      if (kind_components(opts%kind) > 0 .and. size(stress0) /= kind_components(opts%kind)) then
+        call fail(tck_error_invalid, "tck_run_check", &
+                  "stress0 must have as many entries as the point kind has components", err)
+        result = c_null_ptr
+        return
+      end if
+      o%stress0 = address(stress0)
+    end if
     if (present(order)) then
       o%norder = int(size(order), c_int32_t)
       if (size(order) > 0) o%order = c_loc(order)
@@ -323,6 +341,28 @@ contains
 
     call handle(int(c_check(result, routine, twin_ptr, o)), "tck_run_check", err)
   end subroutine tck_run_check
+
+  !> The components of a point of kind `kind` (tck_kind_*); -1 for an unknown kind (no size is
+  !> checked then: the C side names the kind as unknown).
+  pure function kind_components(kind) result(n)
+    integer(c_int32_t), intent(in) :: kind
+    integer :: n
+
+    select case (kind)
+    case (tck_kind_solid_3d)
+      n = 6
+    case (tck_kind_plane_strain, tck_kind_axisymmetric)
+      n = 4
+    case (tck_kind_plane_stress, tck_kind_cohesive_3d)
+      n = 3
+    case (tck_kind_cohesive_2d)
+      n = 2
+    case (tck_kind_uniaxial)
+      n = 1
+    case default
+      n = -1
+    end select
+  end function kind_components
 
   !> Free a result (tck_result_free) and set the handle to null; a null handle is allowed.
   subroutine tck_free_result(result)

@@ -60,6 +60,17 @@ program check_from_fortran
     good = .false.
   end if
 
+  ! A start strain of the wrong length is refused: the library would read past it.
+  call tck_init_options(opts)
+  opts%kind = tck_kind_solid_3d
+  call tck_run_check(result, c_funloc(f_j2), opts, properties, nstate, &
+                     strain0=[1.0e-3_c_double, 0.0_c_double], err=err)
+  if (err%status /= tck_error_invalid .or. index(err%message, "strain0 must have") == 0) then
+    print '(a, i0, a, a)', "a short strain0 was not refused as expected: status ", err%status, &
+      ", ", err%message
+    good = .false.
+  end if
+
   call tck_init_options(opts)
   opts%kind = tck_kind_solid_3d
   opts%guard_level = tck_guard_full
