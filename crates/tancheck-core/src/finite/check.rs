@@ -369,7 +369,10 @@ pub fn judge(
         numerical: reference[e],
     };
     let gap = |e: usize| (base.tangent[e] - reference[e]).abs();
-    let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b))).map(entry);
+    // Ties to the first entry, as `worst_entries` orders them: the report prints this one and
+    // then the list past its first (with the last of two tied entries here it printed one
+    // entry twice and left out the other; a user-style sweep).
+    let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b)).then(b.cmp(&a))).map(entry);
     // Largest first, ties in entry order; only for a failure (a passing increment's
     // differences are rounding), and only entries that differ.
     let worst_entries = if passed {
