@@ -267,6 +267,20 @@ pub struct JudgeFault {
     pub fault: Fault,
 }
 
+/// The index of the largest of `gaps`, the first of equal ones (the order of the list of
+/// next largest entries).
+fn first_largest(gaps: impl Iterator<Item = f64>) -> Option<usize> {
+    gaps.enumerate().max_by(|(a, x), (b, y)| x.total_cmp(y).then(b.cmp(a))).map(|(i, _)| i)
+}
+
+#[cfg(test)]
+#[test]
+fn ties_go_to_the_first_entry() {
+    assert_eq!(first_largest([1.0, 3.0, 2.0, 3.0].into_iter()), Some(1));
+    assert_eq!(first_largest([0.5].into_iter()), Some(0));
+    assert_eq!(first_largest(std::iter::empty()), None);
+}
+
 /// Judge the increment from `start` to `f1`: the base call, the numerical tangents, the kink
 /// look and, where it fails, the cause. The check makes this for every increment of its path;
 /// bisect for fractions of a failing one, replay for a case's call.
@@ -372,7 +386,7 @@ pub fn judge(
     // Ties to the first entry, as `worst_entries` orders them: the report prints this one and
     // then the list past its first (with the last of two tied entries here it printed one
     // entry twice and left out the other; a user-style sweep).
-    let worst = (0..n * n).max_by(|&a, &b| gap(a).total_cmp(&gap(b)).then(b.cmp(&a))).map(entry);
+    let worst = first_largest((0..n * n).map(gap)).map(entry);
     // Largest first, ties in entry order; only for a failure (a passing increment's
     // differences are rounding), and only entries that differ.
     let worst_entries = if passed {
