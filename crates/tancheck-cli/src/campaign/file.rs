@@ -517,6 +517,18 @@ fn distance(a: &str, b: &str) -> usize {
     row[b.len()]
 }
 
+/// Whether the JSON file at `p` is a tancheck report (its `format`, the document's first
+/// field): a folder campaign reads its manifests, not the reports a run left beside them (its
+/// second run read its own earlier report as a manifest; a user-style sweep).
+fn is_report(p: &FsPath) -> bool {
+    use std::io::Read;
+    let mut head = [0u8; 256];
+    let n = std::fs::File::open(p).and_then(|mut f| f.read(&mut head)).unwrap_or(0);
+    let text = String::from_utf8_lossy(&head[..n]);
+    let compact: String = text.chars().filter(|c| !c.is_whitespace()).collect();
+    compact.starts_with(&format!("{{\"format\":\"{}\"", crate::report::campaign::FORMAT))
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -560,16 +572,4 @@ mod tests {
         let _ = std::fs::remove_dir_all(&d);
         assert_ne!(before, after);
     }
-}
-
-/// Whether the JSON file at `p` is a tancheck report (its `format`, the document's first
-/// field): a folder campaign reads its manifests, not the reports a run left beside them (its
-/// second run read its own earlier report as a manifest; a user-style sweep).
-fn is_report(p: &FsPath) -> bool {
-    use std::io::Read;
-    let mut head = [0u8; 256];
-    let n = std::fs::File::open(p).and_then(|mut f| f.read(&mut head)).unwrap_or(0);
-    let text = String::from_utf8_lossy(&head[..n]);
-    let compact: String = text.chars().filter(|c| !c.is_whitespace()).collect();
-    compact.starts_with(&format!("{{\"format\":\"{}\"", crate::report::campaign::FORMAT))
 }

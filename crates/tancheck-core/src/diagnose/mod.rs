@@ -14,7 +14,7 @@ use serde::{Deserialize, Serialize};
 
 use crate::compare::{compare, compare_along, compare_dtemp_floor};
 use crate::convention::Convention;
-use crate::driver::{Direction, Driver, PointState};
+use crate::driver::{Direction, Driver};
 use crate::routine::{Caller, Fault};
 use crate::schemes::Scheme;
 use crate::settings::Settings;
@@ -24,6 +24,8 @@ pub mod corner;
 pub mod decide;
 pub mod kink;
 pub mod settle;
+mod stiffness;
+use stiffness::{elastic_at_end, initial_stiffness};
 pub mod study;
 pub mod temp_kink;
 
@@ -364,64 +366,6 @@ const ELASTIC_TIME: f64 = 1e-6;
 /// The scheme the cause trials measure a tangent with, at a driver's current increment.
 type BestTangent<'b> = dyn Fn(&mut Driver, &mut Caller<'_>, &mut [f64]) -> Result<(), Fault> + 'b;
 
-/// Fraction of the increment the initial-stiffness step takes from the path's start.
-/// Why 1e-3: small enough to stay in the elastic range of a material whose increment reached
-/// its inelastic range (yield and damage onset take strains well above a thousandth of an
-/// increment on any path this tool drives), large enough for the difference schemes' steps.
-const INITIAL_STEP: f64 = 1e-3;
-
-/// The stiffness at the start of the path: the best numerical tangent (`best`, the scheme the
-/// other trials use) at the end of a small step from the path's start state along the
-/// increment's own direction, on a driver of its own (the increment's is left as it was). None
-/// when the driver does not know where its path starts, the state at the increment's end is
-/// the path's start state, the increment has no strain, or a call of the step fails (the trial
-/// is then left out).
-fn initial_stiffness(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangent<'_>) -> Option<Vec<f64>> {
-    let origin = driver.origin()?;
-    // Only for a state that has changed since the path's start (the increment's end state,
-    // bit for bit): a point whose state variables are those it started with has no other
-    // stiffness to be given (a tangent at the start temperature is another cause).
-    let same_state = driver.base.state.iter().zip(&origin.state).all(|(a, b)| a.to_bits() == b.to_bits());
-    if same_state || driver.dstrain().iter().all(|x| *x == 0.0) {
-        return None;
-    }
-    let mut d = Driver::new(caller.info(), driver.props(), origin.clone()).ok()?;
-    let step: Vec<f64> = driver.dstrain().iter().map(|x| x * INITIAL_STEP).collect();
-    d.set_increment(&step, 0.0, driver.dtime() * INITIAL_STEP);
-    d.base_call(caller).ok()?;
-    let n = driver.ncomp();
-    let mut out = vec![0.0; n * n];
-    best(&mut d, caller, &mut out).ok()?;
-    out.iter().all(|x| x.is_finite()).then_some(out)
-}
-
-/// The unloading stiffness at the end of the increment: the derivative along a small step
-/// back (a thousandth of the increment, in a millionth of its time) from the end state. The
-/// background a term of the inelastic part is measured against: for a damage law the
-/// stiffness of the damage reached, not of the damage at the start (a flipped damage term
-/// read factors −0.68 to −0.87 against the start's; a user-style sweep). `None` when a call
-/// fails or the increment is zero.
-fn elastic_at_end(driver: &Driver, caller: &mut Caller<'_>, best: &BestTangent<'_>) -> Option<Vec<f64>> {
-    if driver.dstrain().iter().all(|x| *x == 0.0) {
-        return None;
-    }
-    let s = driver.start();
-    let end = PointState {
-        strain: s.strain.iter().zip(driver.dstrain()).map(|(a, b)| a + b).collect(),
-        stress: driver.base.stress.clone(),
-        state: driver.base.state.clone(),
-        temp: s.temp + driver.dtemp(),
-        time: s.time + driver.dtime(),
-    };
-    let mut d = Driver::new(caller.info(), driver.props(), end).ok()?;
-    let step: Vec<f64> = driver.dstrain().iter().map(|x| -1e-3 * x).collect();
-    d.set_increment(&step, 0.0, driver.dtime() * ELASTIC_TIME);
-    d.base_call(caller).ok()?;
-    let mut out = vec![0.0; driver.ncomp() * driver.ncomp()];
-    best(&mut d, caller, &mut out).ok()?;
-    out.iter().all(|x| x.is_finite()).then_some(out)
-}
-
 /// What the cause trials give: the ranked causes, the refined increments, and a word on
 /// symmetry (see [`causes::symmetry_note`]).
 type Trials = (Vec<Hypothesis>, Option<Refinement>, Option<String>);
@@ -513,11 +457,9 @@ fn cause_trials(
     // viscoelastic relaxation) relaxes as little as the routine allows during it, and one that
     // does not depend on time gives the same (its step over the increment's time crept:
     // a creep routine returning its elastic stiffness was named after another stiffness).
-    // The step is half the increment back, or a tenth or a hundredth of that where half of it
-    // changes the state variables: from a virgin state, half an increment twice the elastic
-    // range yields the other way, and its "elastic" tangent was a plastic one (a first plastic
-    // increment returning the elastic tangent read `initial-stiffness`, not `elastic-tangent`;
-    // a user-style sweep). A routine whose state changes at every step keeps the half.
+    // Half the increment back, or a tenth or a hundredth of it where half changes the state (from
+    // a virgin state it yielded the other way, and a first plastic increment returning the
+    // elastic tangent read `initial-stiffness`; a user-style sweep).
     let mut elastic = vec![0.0; n * n];
     let mut back = -0.5;
     for f in [-0.5, -0.05, -0.005] {

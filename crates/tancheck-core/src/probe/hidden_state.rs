@@ -36,7 +36,7 @@ impl Probe for HiddenState {
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first = None;
-        let mut keyed: Option<(usize, (&'static str, usize, f64, f64, f64))> = None;
+        let mut keyed: Option<(usize, Difference)> = None;
         let (mut probed, mut refused) = (0usize, Vec::new());
         // The start state of the increment before (C's start).
         let mut before: Option<crate::driver::PointState> = None;
@@ -171,7 +171,7 @@ fn per_increment_number(
     prev: crate::driver::PointState,
     k: usize,
     far: usize,
-) -> Result<Option<(usize, (&'static str, usize, f64, f64, f64))>, crate::routine::Fault> {
+) -> Result<Option<(usize, Difference)>, crate::routine::Fault> {
     let info = c.info().clone();
     let Ok(mut other) = crate::driver::Driver::new(&info, env.props, prev) else { return Ok(None) };
     other.set_increment(d.dstrain(), d.dtemp(), d.dtime());
@@ -198,6 +198,10 @@ fn per_increment_number(
         largest_difference(&[("stress", &a.0, &b.0), ("state", &a.1, &b.1), ("tangent", &a.2, &b.2)]),
     )))
 }
+
+/// The entry of the outputs that differs most: output, index, the two values, relative
+/// difference (see [`largest_difference`]).
+type Difference = (&'static str, usize, f64, f64, f64);
 
 /// A relative difference at most this is in the last bits of a value.
 const ROUNDING: f64 = 1e-12;

@@ -57,7 +57,7 @@ pub fn esc(s: &str) -> String {
     while let Some(c) = chars.next() {
         if c == '\u{1b}' && chars.peek() == Some(&'[') {
             chars.next();
-            while let Some(x) = chars.next() {
+            for x in chars.by_ref() {
                 if ('\u{40}'..='\u{7e}').contains(&x) {
                     break;
                 }
