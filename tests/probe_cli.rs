@@ -53,6 +53,12 @@ fn the_manifest_path_is_walked_unless_the_suites_is_asked_for() {
     assert_eq!(c, Some(0), "{t}");
     assert!(t.contains("path (the suite's): tension-shear"), "{t}");
     assert!(t.contains("consistent at 12 increments"), "{t}");
+    // A suite file without a path under --suite-path: the message says --suite-path asked for
+    // it (it told to give the manifest a path, which it had; a user-style sweep).
+    let s = write(&d, "nopath.json", r#"{ "suite": "no-path", "probes": [ { "probe": "symmetry" } ] }"#);
+    let (c, t) = probe(&[m, "--suite", s.to_str().unwrap(), "--suite-path"], &d);
+    assert_eq!(c, Some(2), "{t}");
+    assert!(t.contains("nopath.json") && t.contains("--suite-path asks for the suite's own"), "{t}");
 
     // --thermal with a manifest path that never heats: the thermal suite's path (it walked the
     // manifest's isothermally, without a word; a user-style sweep).

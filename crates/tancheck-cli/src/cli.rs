@@ -498,9 +498,18 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
     let path = match (&a.path, manifest_path) {
         (Some(p), _) => path_arg(p)?,
         (None, Some(p)) if !thermal_swap => p,
-        _ => suite.path().map_err(|e| match &suite_file {
-            Some(f) => anyhow::anyhow!("{}: {e}", f.display()),
-            None => anyhow::Error::msg(e),
+        // With --suite-path the suite's own path is what was asked for: say so where it has
+        // none (the message told to give the manifest a path, which it had; a user-style sweep).
+        _ => suite.path().map_err(|e| {
+            let e = if a.suite_path {
+                format!("suite `{}` has no `path`, and --suite-path asks for the suite's own", suite.suite)
+            } else {
+                e
+            };
+            match &suite_file {
+                Some(f) => anyhow::anyhow!("{}: {e}", f.display()),
+                None => anyhow::Error::msg(e),
+            }
         })?,
     };
     if a.thermal && a.suite.is_none() && m.routine.kind.is_cohesive() {
