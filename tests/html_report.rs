@@ -160,6 +160,8 @@ fn the_probe_page_plots_newton_stability_and_energy() {
     );
     // The Newton legend carries each increment's observed order (about 1 for this tangent).
     assert!(html.contains("(order 1.0"), "observed orders in the Newton plot");
+    // The verdict says the exit code, as the check page does (it did not; a user-style sweep).
+    assert!(html.contains("probes failed, exit code 1"), "the probe page's exit code");
 }
 
 #[test]

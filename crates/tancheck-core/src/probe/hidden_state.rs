@@ -130,7 +130,8 @@ impl Probe for HiddenState {
                 let mut r = ProbeResult::new(
                     "hidden-state",
                     ProbeStatus::Pass,
-                    "calls A, B, A give the same answers for A",
+                    "calls A, B, A give the same answers for A, and a call from another start the same under \
+                     any increment number",
                 );
                 r.details.extend(refused_note);
                 r

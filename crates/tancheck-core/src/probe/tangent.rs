@@ -67,9 +67,10 @@ impl Probe for Tangent {
                     cleared.iter().cloned().fold(0.0, f64::max)
                 )
             };
+            let k = checked.len() - cleared.len();
             format!(
-                "consistent at {} increments (worst error {plain:.2e}{aside})",
-                checked.len() - cleared.len()
+                "consistent at {k} increment{} (worst error {plain:.2e}{aside})",
+                if k == 1 { "" } else { "s" }
             )
         } else if failed.iter().all(|i| {
             i.non_finite.is_empty()

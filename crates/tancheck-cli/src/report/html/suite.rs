@@ -31,9 +31,10 @@ pub fn probe_page(report: &SuiteReport) -> String {
     let _ = writeln!(o, "<dl class=\"summary\">");
     let _ = writeln!(
         o,
-        "<dt>verdict</dt><dd>{}{failed} of {} probes failed</dd>",
+        "<dt>verdict</dt><dd>{}{failed} of {} probes failed, exit code {}</dd>",
         badge(verdict),
-        report.results.len()
+        report.results.len(),
+        report.exit_code
     );
     let _ = writeln!(o, "<dt>routine</dt><dd>{}</dd>", esc(&report.routine));
     let _ = writeln!(o, "<dt>path</dt><dd>{}</dd>", esc(&report.path));
