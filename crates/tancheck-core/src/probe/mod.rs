@@ -402,16 +402,7 @@ pub fn run_suite(
     path: &Path,
     settings: &Settings,
 ) -> Result<SuiteReport, CoreError> {
-    let mut probes = Vec::with_capacity(specs.len());
-    for spec in specs {
-        let probe = by_name(&spec.probe).ok_or_else(|| {
-            let names: Vec<_> = registry().iter().map(|p| p.name()).collect();
-            CoreError::UnknownProbe { given: spec.probe.clone(), known: names.join(", ") }
-        })?;
-        probes.push((probe, spec));
-    }
-    let probes: Vec<(&dyn Probe, &ProbeSpec)> = probes.iter().map(|(p, s)| (p.as_ref(), *s)).collect();
-    run_probes_with(caller, suite, &probes, props, start, path, settings, &mut |_| {})
+    run_suite_with(caller, suite, specs, props, start, path, settings, &mut |_| {})
 }
 
 /// [`run_suite`] calling `progress` with the number of probes done after each probe (the
