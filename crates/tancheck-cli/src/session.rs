@@ -105,18 +105,7 @@ pub fn reporters(output: &OutputArgs, json: Option<&std::path::Path>) -> Fanout<
 pub fn default_path(kind: PointKind) -> Path {
     let shape = if kind == PointKind::Uniaxial { Shape::UniaxialStrain } else { Shape::TensionShear };
     let mut p = Path::ramp(shape, 4e-3, 8, 4);
-    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
-    let kept: Vec<usize> =
-        kind.default_components().iter().map(|&c| tancheck_core::convention::canonical_slot(c)).collect();
-    let mut left: Vec<&str> = Vec::new();
-    for slot in (0..6).filter(|s| !kept.contains(s)) {
-        if p.increments.iter().any(|inc| inc.dstrain[slot] != 0.0) {
-            left.push(SLOTS[slot]);
-        }
-        for inc in &mut p.increments {
-            inc.dstrain[slot] = 0.0;
-        }
-    }
+    let left = p.leave_out_slots(kind);
     if !left.is_empty() {
         p.name.push_str(&format!(" (its {} left out for a {} point)", left.join(" and "), kind.name()));
     }

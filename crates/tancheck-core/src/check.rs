@@ -443,7 +443,7 @@ impl Merged {
 /// ε33 of 0.7 ε11 go unsaid; a user-style sweep). The command line's default path leaves them
 /// out itself, and says so in its name.
 fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
-    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+    use crate::path::SLOT_NAMES as SLOTS;
     let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
     let mut dropped = [false; 6];
     let mut first = None;
@@ -479,7 +479,7 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
 /// point asked to hold σ23 at 50 passed with every stress zero; a user-style sweep): bad input
 /// too. Held at zero it is what the kind gives (a plane-stress point's σ33).
 fn outside_kind(conv: &crate::Convention, path: &Path) -> Result<(), CoreError> {
-    const SLOTS: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+    use crate::path::SLOT_NAMES as SLOTS;
     let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
     let takes = || -> String {
         conv.order()

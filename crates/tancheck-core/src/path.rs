@@ -131,7 +131,27 @@ impl Shape {
     }
 }
 
+/// The canonical slots' names, in order (tensor components 11 22 33 23 13 12).
+pub const SLOT_NAMES: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
+
 impl Path {
+    /// Zero the strain entries in the slots `kind` does not have (its default components'
+    /// slots are kept); the names of the slots that held a nonzero entry.
+    pub fn leave_out_slots(&mut self, kind: crate::PointKind) -> Vec<&'static str> {
+        let kept: Vec<usize> =
+            kind.default_components().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
+        let mut left = Vec::new();
+        for slot in (0..6).filter(|s| !kept.contains(s)) {
+            if self.increments.iter().any(|inc| inc.dstrain[slot] != 0.0) {
+                left.push(SLOT_NAMES[slot]);
+            }
+            for inc in &mut self.increments {
+                inc.dstrain[slot] = 0.0;
+            }
+        }
+        left
+    }
+
     /// Load along `shape` to `peak` (the size of the direction's leading component) in
     /// `steps_out` equal increments, then back to zero in `steps_back` increments.
     ///

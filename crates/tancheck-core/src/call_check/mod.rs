@@ -75,10 +75,7 @@ impl CallCheck {
 
     /// Whether a perturbed call faulted.
     pub fn faulted(&self) -> bool {
-        self.checks.iter().any(|c| {
-            matches!(c.tangent, CheckOutcome::Fault(_))
-                || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
-        })
+        self.checks.iter().any(SchemeCheck::faulted)
     }
 
     /// What the diagnosis found: `none` when the call passed, `undiagnosed` when it failed

@@ -461,18 +461,22 @@ fn cause_trials(
     // a virgin state it yielded the other way, and a first plastic increment returning the
     // elastic tangent read `initial-stiffness`; a user-style sweep).
     let mut elastic = vec![0.0; n * n];
-    let mut back = -0.5;
-    for f in [-0.5, -0.05, -0.005] {
+    let back = |driver: &mut Driver, caller: &mut Caller<'_>, f: f64| {
         driver.rescale(f);
         driver.rescale_time(ELASTIC_TIME);
-        if driver.base_call(caller).is_ok() && driver.base.state == driver.start().state {
-            back = f;
+        driver.base_call(caller).is_ok()
+    };
+    let mut elastic_base = false;
+    for f in [-0.5, -0.05, -0.005] {
+        elastic_base = back(driver, caller, f);
+        if elastic_base && driver.base.state == driver.start().state {
             break;
         }
+        if f == -0.005 {
+            // None kept the state: the half, as for a routine whose state moves at every step.
+            elastic_base = back(driver, caller, -0.5);
+        }
     }
-    driver.rescale(back);
-    driver.rescale_time(ELASTIC_TIME);
-    let elastic_base = driver.base_call(caller).is_ok();
     let elastic_returned = driver.base.tangent.clone();
     let mut elastic_ok = elastic_base && best(driver, caller, &mut elastic).is_ok();
     // Where it differs at a tenth of that time (a relaxation over the step), the tangent of

@@ -136,6 +136,12 @@ impl SchemeCheck {
         };
         ok(&self.tangent) && self.dstress_dtemp.as_ref().is_none_or(ok)
     }
+
+    /// Whether a call of this scheme (tangent or ∂σ/∂T) faulted.
+    pub fn faulted(&self) -> bool {
+        matches!(self.tangent, CheckOutcome::Fault(_))
+            || matches!(self.dstress_dtemp, Some(CheckOutcome::Fault(_)))
+    }
 }
 
 /// A branch as every report names it: the routine's own number (when it reports one) and
@@ -211,14 +217,7 @@ impl IncrementResult {
             None if !self.non_finite.is_empty() => "non-finite-output",
             // Nor of a call that faulted: the fault is (the HTML page said "undiagnosed" where
             // the terminal said routine-fault; a user-style sweep).
-            None if self.fault.is_some()
-                || self.checks.iter().any(|c| {
-                    matches!(c.tangent, CheckOutcome::Fault(_))
-                        || matches!(c.dstress_dtemp, Some(CheckOutcome::Fault(_)))
-                }) =>
-            {
-                FAULT_FINDING
-            }
+            None if self.fault.is_some() || self.checks.iter().any(SchemeCheck::faulted) => FAULT_FINDING,
             None => "undiagnosed",
         }
     }
