@@ -49,7 +49,10 @@ fn library(symbol: &str, states: usize) -> String {
 fn explore(m: &Path, args: &[&str]) -> (i32, Value) {
     let o = bin().arg("explore").arg(m).args(["--json", "-"]).args(args).output().unwrap();
     let v: Value = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", text(&o)));
-    (o.status.code().unwrap(), v)
+    let code = o.status.code().unwrap();
+    // The report says the exit code the run ended with.
+    assert_eq!(v["exit_code"].as_i64(), Some(code as i64), "{}", text(&o));
+    (code, v)
 }
 
 /// The branches reached by any signature.

@@ -78,7 +78,12 @@ fn json_of(args: &[&str], out: &Path) -> Value {
         String::from_utf8_lossy(&o.stdout),
         String::from_utf8_lossy(&o.stderr)
     );
-    serde_json::from_str(&std::fs::read_to_string(out).unwrap()).unwrap()
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(out).unwrap()).unwrap();
+    // Every report that gives an exit code gives the one the run ended with.
+    if let Some(code) = v.get("exit_code") {
+        assert_eq!(code.as_i64(), o.status.code().map(i64::from), "{args:?}");
+    }
+    v
 }
 
 #[test]
@@ -91,6 +96,7 @@ fn real_reports_of_every_kind_validate() {
     let pass = json_of(&["check", &s(&ok)], &d.join("pass.json"));
     valid("check (pass)", &pass);
     assert_eq!((pass["kind"].as_str(), pass["verdict"].as_str()), (Some("check"), Some("pass")));
+    assert_eq!(pass["exit_code"], 0);
     // The compact form: a record per increment, no passing increment in full.
     assert_eq!(pass["records"].as_array().unwrap().len(), 12);
     assert!(pass["increments"].as_array().unwrap().is_empty());
@@ -98,7 +104,7 @@ fn real_reports_of_every_kind_validate() {
 
     let fail = json_of(&["check", &s(&bad)], &d.join("fail.json"));
     valid("check (fail)", &fail);
-    assert_eq!(fail["verdict"], "tangent-failure");
+    assert_eq!((fail["verdict"].as_str(), fail["exit_code"].as_i64()), (Some("tangent-failure"), Some(1)));
     let full = fail["increments"].as_array().unwrap();
     assert!(!full.is_empty() && full.iter().all(|i| i["diagnosis"].is_object()), "{full:?}");
 

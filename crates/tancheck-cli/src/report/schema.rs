@@ -35,7 +35,7 @@ enum Body {
     FiniteProbes(tancheck_core::finite::probe::FiniteProbeReport),
     FiniteBisect(crate::report::model::FiniteBisectOutcome),
     FiniteReplay(crate::report::model::FiniteReplayReport),
-    Explore(tancheck_core::explore::ExploreReport),
+    Explore(ExploreFile),
     Block(super::block::BlockDocument),
     Demo(DemoReport),
     LastWords(LastWords),
@@ -72,6 +72,20 @@ struct CheckFile {
     /// cause such as `elastic-tangent`, or `dtemp`, `dtemp-partial` for ∂σ/∂T alone), or
     /// `unexplained`. Absent from reports written before it was added.
     finding: Option<String>,
+    /// The exit code `tancheck check` ended with (the verdict's: 0, 1, 3 or 4). Absent from
+    /// reports written before it was added.
+    exit_code: Option<i32>,
+}
+
+/// An explore report: the report and the exit code.
+#[derive(JsonSchema)]
+#[allow(dead_code)] // only its schema is used
+struct ExploreFile {
+    #[serde(flatten)]
+    report: tancheck_core::explore::ExploreReport,
+    /// The exit code `tancheck explore` ended with (the verdict's). Absent from reports
+    /// written before it was added.
+    exit_code: Option<i32>,
 }
 
 /// What ended the process, and the call that was running.

@@ -89,10 +89,26 @@ pub struct CheckDocument<'r> {
     #[serde(flatten)]
     report: &'r super::Report,
     finding: String,
+    /// The exit code `tancheck check` ends with for this report (its verdict's).
+    exit_code: i32,
 }
 
 impl<'r> CheckDocument<'r> {
     pub fn of(report: &'r super::Report) -> CheckDocument<'r> {
-        CheckDocument { report, finding: report.finding() }
+        CheckDocument { report, finding: report.finding(), exit_code: report.exit_code() }
+    }
+}
+
+/// An explore report as written: the report and the exit code `tancheck explore` ends with.
+#[derive(Serialize)]
+pub struct ExploreDocument<'r> {
+    #[serde(flatten)]
+    report: &'r crate::explore::ExploreReport,
+    exit_code: i32,
+}
+
+impl<'r> ExploreDocument<'r> {
+    pub fn of(report: &'r crate::explore::ExploreReport) -> ExploreDocument<'r> {
+        ExploreDocument { report, exit_code: report.exit_code() }
     }
 }
