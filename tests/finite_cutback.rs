@@ -6,6 +6,7 @@
 
 use num_complex::Complex64;
 use tancheck::core::finite::check::run;
+use tancheck::core::finite::probe::{run_all_noted, ProbeOptions};
 use tancheck::core::finite::routine::{FiniteInput, FiniteOutput};
 use tancheck::core::finite::{
     FiniteInfo, FiniteModelRoutine, FinitePathSpec, FiniteRoutine, FiniteSettings, StressMeasure,
@@ -26,10 +27,19 @@ struct Limited {
     factor: f64,
     /// The time increments of the base calls it took.
     dtimes: Vec<f64>,
+    /// A call with this increment number fails (a failure status, not a request).
+    fail_at: Option<i32>,
 }
 
 impl Limited {
     fn refuse<S: Copy + Into<Complex64>>(&self, input: &FiniteInput<'_, S>) -> Result<(), Fault> {
+        if self.fail_at == Some(input.increment) {
+            return Err(Fault::Status {
+                status: status::FAILED,
+                message: "cannot compute this one".into(),
+                largest_fraction: 0.0,
+            });
+        }
         let step = (0..9).map(|k| (input.f1[k].into().re - input.f0[k].into().re).abs()).fold(0.0, f64::max);
         if step > self.limit {
             return Err(Fault::Status {
@@ -76,6 +86,7 @@ fn limited(limit: f64, factor: f64) -> Limited {
         limit,
         factor,
         dtimes: Vec::new(),
+        fail_at: None,
     }
 }
 
@@ -130,4 +141,45 @@ fn a_routine_that_refuses_every_part_stays_a_fault() {
     assert_eq!(rep.verdict, Verdict::RoutineFault);
     assert!(cut_notes(&rep).is_empty(), "{:?}", rep.notes);
     assert!(rep.fault.as_deref().is_some_and(|f| f.contains("status 1")), "{:?}", rep.fault);
+}
+
+/// The probes cut too: the path where the routine refuses an increment (as the check does), and
+/// the rigid rotations of `rotation-increment` (1.2 rad at once) and `stretch-rotate` (15° steps)
+/// in equal parts of the angle, each part a rigid rotation. They stopped with a FAULT and "NOT
+/// objective" on an objective routine (a user-style sweep).
+#[test]
+fn the_probes_cut_what_the_routine_refuses() {
+    let mut r = limited(0.1, 1.0);
+    let (results, notes) = run_all_noted(&mut r, &PROPS, &[], &path(), &ProbeOptions::default());
+    for p in &results {
+        assert!(p.passed && !p.faulted, "{p:?} {notes:?}");
+    }
+    assert_eq!(results.len(), 4, "{results:?}");
+    assert!(notes.iter().any(|n| n.contains("1 into 3, 2 into 3")), "{notes:?}");
+    for probe in ["rotation-increment", "stretch-rotate"] {
+        assert!(
+            notes.iter().any(|n| n.starts_with(probe) && n.contains("equal parts of the angle")),
+            "{notes:?}"
+        );
+    }
+    // A routine that never refuses gets no note.
+    let mut free = limited(10.0, 1.0);
+    let (results, notes) = run_all_noted(&mut free, &PROPS, &[], &path(), &ProbeOptions::default());
+    assert!(results.iter().all(|p| p.passed), "{results:?}");
+    assert!(notes.is_empty(), "{notes:?}");
+}
+
+/// A call that fails in `rotation-increment` is named by the increment it follows (the last
+/// increment of a two-increment path is 2; the line said 3).
+#[test]
+fn a_failed_rigid_increment_names_the_increment_it_follows() {
+    let mut r = Limited { fail_at: Some(3), ..limited(10.0, 1.0) };
+    let (results, _) = run_all_noted(&mut r, &PROPS, &[], &path(), &ProbeOptions::default());
+    let p = results.iter().find(|p| p.name == "rotation-increment").unwrap();
+    assert!(!p.passed && p.faulted, "{p:?}");
+    assert!(p.details.iter().all(|d| d.contains("after increment 2") && !d.contains("increment 3")), "{p:?}");
+    assert!(
+        p.details.iter().any(|d| d.contains("1.2 rad") && d.contains("cannot compute this one")),
+        "{p:?}"
+    );
 }

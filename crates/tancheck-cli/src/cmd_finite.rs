@@ -7,7 +7,7 @@ use std::path::Path as FsPath;
 use anyhow::Result;
 use tancheck_core::finite::check::run;
 use tancheck_core::finite::path::FinitePath;
-use tancheck_core::finite::probe::{run_all, FiniteProbeReport};
+use tancheck_core::finite::probe::{run_all_noted, FiniteProbeReport};
 use tancheck_core::finite::routine::FiniteRoutine;
 
 use crate::finite_load::{open, FiniteManifest};
@@ -106,8 +106,8 @@ pub fn probe(
     options: FiniteOptions,
 ) -> Result<i32> {
     let report = with_routine(manifest, json, options, |r, m, state0, path| {
-        let results = run_all(r, &m.routine.properties, state0, path, &m.probes);
-        FiniteProbeReport::new(&r.info().name, results)
+        let (results, notes) = run_all_noted(r, &m.routine.properties, state0, path, &m.probes);
+        FiniteProbeReport::with_notes(&r.info().name, results, notes)
     })?;
     let mut out = reporters(output, json);
     out.finite_probes(&report)?;

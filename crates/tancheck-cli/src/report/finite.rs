@@ -191,13 +191,19 @@ pub fn write_probes(
             writeln!(out, "      {d}")?;
         }
     }
+    if !quiet {
+        for n in &report.notes {
+            writeln!(out, "   note: {n}")?;
+        }
+    }
     let failed = report.probes.iter().filter(|r| !r.passed).count();
+    let probes = if failed == 1 { "1 probe".to_string() } else { format!("{failed} probes") };
     let word = if failed == 0 {
         format!("{} (exit 0)", p.pass("PASS"))
     } else if report.exit_code == 3 {
-        format!("{} — a routine call failed ({failed} probes; exit 3)", p.fail("FAULT"))
+        format!("{} — a routine call failed ({probes}; exit 3)", p.fail("FAULT"))
     } else {
-        format!("{} ({failed} probes; exit 1)", p.fail("FAIL"))
+        format!("{} ({probes}; exit 1)", p.fail("FAIL"))
     };
     writeln!(out, "verdict: {word}")?;
     if !quiet {
@@ -309,6 +315,9 @@ pub fn probes_page(report: &FiniteProbeReport) -> String {
         );
     }
     b.push_str("</table>\n");
+    for n in &report.notes {
+        let _ = writeln!(b, "<p class=\"note\">{}</p>", esc(n));
+    }
     b.push_str(&cautions(&report.cautions));
     b.push_str(&footer(&format!("tancheck {}", env!("CARGO_PKG_VERSION"))));
     page(&format!("tancheck finite-strain probes: {}", report.routine), &b)

@@ -99,7 +99,7 @@ impl Reporter for Json<'_> {
         self.put(Kind::FiniteProbes, report)
     }
     fn explore(&mut self, report: &tancheck_core::explore::ExploreReport) -> io::Result<()> {
-        self.put(Kind::Explore, &document::ExploreDocument::of(report))
+        self.put(Kind::Explore, &tancheck_core::explore::report::ExploreDocument::of(report))
     }
     fn block(&mut self, report: &tancheck_core::block::BlockReport) -> io::Result<()> {
         self.put(Kind::Block, &super::block::BlockDocument::of(report))

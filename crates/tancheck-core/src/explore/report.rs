@@ -120,6 +120,20 @@ pub struct ExploreReport {
     pub cautions: Vec<String>,
 }
 
+/// An explore report as written: the report and the exit code `tancheck explore` ends with.
+#[derive(Serialize)]
+pub struct ExploreDocument<'r> {
+    #[serde(flatten)]
+    report: &'r ExploreReport,
+    exit_code: i32,
+}
+
+impl<'r> ExploreDocument<'r> {
+    pub fn of(report: &'r ExploreReport) -> ExploreDocument<'r> {
+        ExploreDocument { report, exit_code: report.exit_code() }
+    }
+}
+
 impl ExploreReport {
     /// As for `check`: 3 for a routine fault, 1 for a tangent failure, 4 for a twin that is not
     /// complex-step safe (and nothing worse), 0 when nothing was found.

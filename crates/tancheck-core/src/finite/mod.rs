@@ -17,6 +17,7 @@ pub mod measure;
 pub mod numeric;
 pub mod path;
 pub mod probe;
+mod rigid;
 pub mod routine;
 
 pub use check::{FiniteReport, FiniteSettings};

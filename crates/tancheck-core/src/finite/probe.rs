@@ -21,7 +21,9 @@ use serde::{Deserialize, Serialize};
 use super::mat3::{self, Mat3};
 use super::numeric::{Start, Workspace};
 use super::path::{path_start, shear, FinitePath};
+use super::rigid::{asks_smaller, rotate_rigidly, rotation_note, RotationCuts, AXIS};
 use super::routine::FiniteRoutine;
+use crate::routine::Fault;
 
 /// What the simple-shear probe expects.
 #[derive(Clone, Copy, Debug, Default, PartialEq, Eq, Serialize, Deserialize)]
@@ -70,10 +72,23 @@ pub struct FiniteProbeReport {
     #[serde(default)]
     pub exit_code: i32,
     pub probes: Vec<FiniteProbeResult>,
+    /// What the probes did beyond the calls they describe (increments or rigid rotations cut
+    /// where the routine asked for smaller ones).
+    #[serde(default, skip_serializing_if = "Vec::is_empty")]
+    pub notes: Vec<String>,
     pub cautions: Vec<String>,
 }
 
 impl FiniteProbeReport {
+    /// [`FiniteProbeReport::new`] with the notes of [`run_all_noted`].
+    pub fn with_notes(
+        routine: &str,
+        probes: Vec<FiniteProbeResult>,
+        notes: Vec<String>,
+    ) -> FiniteProbeReport {
+        FiniteProbeReport { notes, ..FiniteProbeReport::new(routine, probes) }
+    }
+
     pub fn new(routine: &str, probes: Vec<FiniteProbeResult>) -> FiniteProbeReport {
         let passed = probes.iter().all(|p| p.passed);
         let faulted = probes.iter().any(|p| p.faulted);
@@ -88,6 +103,7 @@ impl FiniteProbeReport {
                 1
             },
             probes,
+            notes: Vec::new(),
             cautions: crate::report::CAUTIONS.iter().map(|s| s.to_string()).collect(),
         }
     }
@@ -128,20 +144,21 @@ fn diff(a: &[f64], b: &[f64]) -> f64 {
     a.iter().zip(b).map(|(x, y)| (x - y) * (x - y)).sum::<f64>().sqrt()
 }
 
-/// The start of every increment of `path` (calling the routine along it).
+/// The start of every increment of `path` (calling the routine along it); a failed call as
+/// its increment (1-based) and fault.
 fn walk(
     r: &mut dyn FiniteRoutine,
     ws: &mut Workspace,
     properties: &[f64],
     state0: &[f64],
     path: &FinitePath,
-) -> Result<Vec<Start>, String> {
+) -> Result<Vec<Start>, (usize, Fault)> {
     let mut starts = Vec::new();
     let mut s = path_start(properties, state0, path);
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
         s.increment = k as i32;
         starts.push(s.clone());
-        let res = ws.call_full(r, &s, f1).map_err(|e| format!("increment {k}: {e}"))?;
+        let res = ws.call_full(r, &s, f1).map_err(|e| (k, e))?;
         s.f0 = *f1;
         s.stress0 = res.stress;
         s.state0 = res.state;
@@ -149,6 +166,29 @@ fn walk(
     s.increment += 1;
     starts.push(s);
     Ok(starts)
+}
+
+/// [`walk`], cutting the increments the routine refuses as too large as the check does
+/// (`super::cutback`): the starts, the path walked (`path`, or the path cut) and the note
+/// saying what was cut; a failed call as its increment of the path walked and its words.
+fn walk_cutting(
+    r: &mut dyn FiniteRoutine,
+    ws: &mut Workspace,
+    properties: &[f64],
+    state0: &[f64],
+    path: &FinitePath,
+) -> Result<(Vec<Start>, FinitePath, Option<String>), String> {
+    match walk(r, ws, properties, state0, path) {
+        Ok(starts) => Ok((starts, path.clone(), None)),
+        Err((k, e)) => {
+            let cut = if asks_smaller(&e) { super::cutback::cut(r, properties, state0, path) } else { None };
+            let Some(cut) = cut else { return Err(format!("increment {k}: {e}")) };
+            let note = cut.note(path.gradients.len() - 1);
+            let starts = walk(r, ws, properties, state0, &cut.path)
+                .map_err(|(k, e)| format!("increment {k} of the path cut where the routine asked: {e}"))?;
+            Ok((starts, cut.path, Some(note)))
+        }
+    }
 }
 
 /// All probes.
@@ -159,28 +199,56 @@ pub fn run_all(
     path: &FinitePath,
     options: &ProbeOptions,
 ) -> Vec<FiniteProbeResult> {
+    run_all_noted(r, properties, state0, path, options).0
+}
+
+/// [`run_all`], with notes on what the probes did beyond the calls they describe (the path or
+/// a rigid rotation cut where the routine asked for smaller increments).
+pub fn run_all_noted(
+    r: &mut dyn FiniteRoutine,
+    properties: &[f64],
+    state0: &[f64],
+    path: &FinitePath,
+    options: &ProbeOptions,
+) -> (Vec<FiniteProbeResult>, Vec<String>) {
     let mut ws = Workspace::new(r.info().nstate, r.info().nproperties);
-    let starts = match walk(r, &mut ws, properties, state0, path) {
-        Ok(s) => s,
+    let mut notes = Vec::new();
+    let (starts, path) = match walk_cutting(r, &mut ws, properties, state0, path) {
+        Ok((s, p, note)) => {
+            notes.extend(note);
+            (s, p)
+        }
         Err(e) => {
-            return vec![FiniteProbeResult {
+            let failed = FiniteProbeResult {
                 name: "path".into(),
                 passed: false,
                 summary: format!("the routine failed along the path: {e}"),
                 details: vec![],
                 faulted: true,
-            }]
+            };
+            return (vec![failed], notes);
         }
     };
     let scale = starts.iter().map(|s| norm(&s.stress0)).fold(0.0, f64::max).max(1e-300);
-    let mut rotation = Rotation { r, ws: &mut ws, starts: &starts, options, scale };
-    let mut results = vec![rotation.superposed(path), rotation.increment(), rotation.stretch_rotate()];
-    results.push(simple_shear(r, &mut ws, properties, state0, options));
-    results
+    let mut rotation = Rotation {
+        r,
+        ws: &mut ws,
+        starts: &starts,
+        options,
+        scale,
+        cuts: [RotationCuts(1), RotationCuts(1)],
+    };
+    let mut results = vec![rotation.superposed(&path), rotation.increment(), rotation.stretch_rotate()];
+    let [c1, c2] = rotation.cuts;
+    notes.extend(rotation_note("rotation-increment", &c1));
+    notes.extend(rotation_note("stretch-rotate", &c2));
+    let (shear, note) = simple_shear(r, &mut ws, properties, state0, options);
+    results.push(shear);
+    notes.extend(note.map(|n| format!("simple-shear: {n}")));
+    (results, notes)
 }
 
 const ANGLES: [f64; 2] = [0.01, 1.2];
-const AXIS: [f64; 3] = [0.2, -0.5, 1.0];
 
 /// The small and the large rotation about [`AXIS`]: (angle, Q).
 fn rotations() -> impl Iterator<Item = (f64, Mat3<f64>)> {
@@ -279,6 +347,8 @@ struct Rotation<'a> {
     starts: &'a [Start],
     options: &'a ProbeOptions,
     scale: f64,
+    /// The rigid rotations cut in `rotation-increment` and `stretch-rotate`.
+    cuts: [RotationCuts; 2],
 }
 
 impl Rotation<'_> {
@@ -321,9 +391,15 @@ impl Rotation<'_> {
         let mut found = Findings::default();
         for (angle, q) in rotations() {
             for s in &self.starts[1..] {
-                let Ok(b) = self.ws.call_full(self.r, s, &mat3::mul(&q, &s.f0)) else {
-                    found.failed(format!("after increment {}: the call failed", s.increment));
-                    continue;
+                let b = match rotate_rigidly(self.r, self.ws, s, &s.f0, (0.0, angle), &mut self.cuts[0]) {
+                    Ok(b) => b,
+                    Err(e) => {
+                        found.failed(format!(
+                            "rigid increment of {angle} rad after increment {}: {e}",
+                            s.increment - 1
+                        ));
+                        continue;
+                    }
                 };
                 let e = diff(&b.stress, &rotate6(&q, &s.stress0)) / self.scale;
                 let es = relative(diff(&b.state, &rotate_state(&q, &s.state0, self.options)), &s.state0);
@@ -345,10 +421,12 @@ impl Rotation<'_> {
         let mut s = end.clone();
         let mut found = Findings::default();
         let steps = 6;
+        let step = std::f64::consts::FRAC_PI_2 / steps as f64;
         for k in 1..=steps {
-            let q = mat3::axis_rotation(AXIS, std::f64::consts::FRAC_PI_2 * k as f64 / steps as f64);
+            let q = mat3::axis_rotation(AXIS, step * k as f64);
             let f1 = mat3::mul(&q, &end.f0);
-            let res = match self.ws.call_full(self.r, &s, &f1) {
+            let angles = (step * (k - 1) as f64, step * k as f64);
+            let res = match rotate_rigidly(self.r, self.ws, &s, &end.f0, angles, &mut self.cuts[1]) {
                 Ok(x) => x,
                 Err(e) => {
                     found.failed(format!("rotation step {k}: {e}"));
@@ -383,35 +461,40 @@ fn simple_shear(
     properties: &[f64],
     state0: &[f64],
     options: &ProbeOptions,
-) -> FiniteProbeResult {
+) -> (FiniteProbeResult, Option<String>) {
     let n = 400;
     let amount = 2.0 * std::f64::consts::PI;
     let mut gradients = vec![mat3::identity()];
     gradients.extend((1..=n).map(|k| shear(amount * k as f64 / n as f64)));
     let path = FinitePath { gradients, dtime: Vec::new() };
-    let starts = match walk(r, ws, properties, state0, &path) {
-        Ok(s) => s,
+    let (starts, note) = match walk_cutting(r, ws, properties, state0, &path) {
+        Ok((s, _, note)) => (s, note),
         Err(e) => {
-            return FiniteProbeResult {
+            let failed = FiniteProbeResult {
                 name: "simple-shear".into(),
                 passed: false,
                 summary: format!("the routine failed in simple shear: {e}"),
                 details: vec![],
                 faulted: true,
-            }
+            };
+            return (failed, None);
         }
     };
-    let g1 = amount / n as f64;
-    let modulus = starts[1].stress0[5] / g1;
+    // The amount of shear of each start is read from its F (the path may have been cut).
+    let gamma = |s: &Start| s.f0[0][1];
+    let modulus = starts[1].stress0[5] / gamma(&starts[1]);
     let mut peak = f64::NEG_INFINITY;
     let mut drop = 0.0_f64;
     let mut dienes = 0.0_f64;
-    for (k, s) in starts.iter().enumerate().skip(1) {
+    for s in starts.iter().skip(1) {
         let t12 = s.stress0[5];
         peak = peak.max(t12);
         drop = drop.max(peak - t12);
-        let gam = g1 * k as f64;
-        dienes = dienes.max((t12 - modulus * gam.sin()).abs());
+        // Both the shear and the normal stress: an update that turns the stress the wrong way
+        // round has the shear right and σ₁₁ of the wrong sign (a user-style sweep).
+        let g = gamma(s);
+        dienes =
+            dienes.max((t12 - modulus * g.sin()).abs()).max((s.stress0[0] - modulus * (1.0 - g.cos())).abs());
     }
     let oscillates = drop > 0.01 * peak.abs();
     let expected = options.shear_response == ShearResponse::Oscillating;
@@ -429,19 +512,30 @@ fn simple_shear(
     let mut details = vec![format!("shear modulus from the first increment G = {modulus:.6e}")];
     if oscillates {
         details.push(format!(
-            "largest distance from G sin(gamma) (Dienes 1979): {:.2e} G",
+            "largest distance from sigma12 = G sin(gamma), sigma11 = G (1 - cos(gamma)) (Dienes 1979): {:.2e} G",
             dienes / modulus.abs()
         ));
     }
-    FiniteProbeResult {
+    let expected_word = match options.shear_response {
+        ShearResponse::Monotonic => "monotonic",
+        ShearResponse::Oscillating => "oscillating",
+    };
+    let result = FiniteProbeResult {
         name: "simple-shear".into(),
         passed,
         summary: if passed {
             what
+        } else if oscillates == expected {
+            format!(
+                "the shear stress oscillates, but not as a hypoelastic Jaumann update does: {:.2e} G from \
+                 sigma12 = G sin(gamma), sigma11 = G (1 - cos(gamma)) (more than 0.05 G)",
+                dienes / modulus.abs()
+            )
         } else {
-            format!("unexpected: {what} (expected {:?})", options.shear_response)
+            format!("unexpected: {what} (expected {expected_word})")
         },
         details,
         faulted: false,
-    }
+    };
+    (result, note)
 }

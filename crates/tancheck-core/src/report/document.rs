@@ -98,17 +98,3 @@ impl<'r> CheckDocument<'r> {
         CheckDocument { report, finding: report.finding(), exit_code: report.exit_code() }
     }
 }
-
-/// An explore report as written: the report and the exit code `tancheck explore` ends with.
-#[derive(Serialize)]
-pub struct ExploreDocument<'r> {
-    #[serde(flatten)]
-    report: &'r crate::explore::ExploreReport,
-    exit_code: i32,
-}
-
-impl<'r> ExploreDocument<'r> {
-    pub fn of(report: &'r crate::explore::ExploreReport) -> ExploreDocument<'r> {
-        ExploreDocument { report, exit_code: report.exit_code() }
-    }
-}

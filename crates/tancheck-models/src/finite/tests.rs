@@ -342,6 +342,54 @@ fn probes_tell_objective_from_not() {
     assert!(!by("rotation-increment") && !by("stretch-rotate"), "{bad:?}");
 }
 
+// An update that turns the start stress the wrong way round (the transposed rotation increment,
+// ΔRᵀ τ ΔR) has the shear stress of simple shear right, σ₁₂ = G sin γ, and σ₁₁ of the wrong
+// sign: the simple-shear probe compares both with Dienes (1979), σ₁₁ = G(1 − cos γ) (it passed
+// such a routine on σ₁₂ alone; a user-style sweep).
+#[test]
+fn simple_shear_catches_a_stress_turned_the_wrong_way() {
+    use num_complex::Complex64;
+    use tancheck_core::finite::probe::{run_all, ProbeOptions, ShearResponse};
+    use tancheck_core::finite::{FiniteInfo, FiniteModelRoutine, FiniteRoutine};
+    use tancheck_core::Fault;
+    struct Backwards(FiniteModelRoutine<HypoJaumann>);
+    fn transposed<S: Copy>(r: &[S; 9]) -> [S; 9] {
+        std::array::from_fn(|k| r[3 * (k % 3) + k / 3])
+    }
+    impl FiniteRoutine for Backwards {
+        fn info(&self) -> &FiniteInfo {
+            self.0.info()
+        }
+        fn call(&mut self, i: &FiniteInput<'_, f64>, o: &mut FiniteOutput<'_, f64>) -> Result<(), Fault> {
+            let q = transposed(i.rotation);
+            self.0.call(&FiniteInput { rotation: &q, ..*i }, o)
+        }
+        fn has_complex(&self) -> bool {
+            true
+        }
+        fn call_complex(
+            &mut self,
+            i: &FiniteInput<'_, Complex64>,
+            o: &mut FiniteOutput<'_, Complex64>,
+        ) -> Result<(), Fault> {
+            let q = transposed(i.rotation);
+            self.0.call_complex(&FiniteInput { rotation: &q, ..*i }, o)
+        }
+    }
+    let path = super::zoo_path().build().unwrap();
+    let osc = ProbeOptions { shear_response: ShearResponse::Oscillating, ..Default::default() };
+    let shear = |r: &mut dyn FiniteRoutine| {
+        run_all(r, &super::ZOO_PROPERTIES, &[], &path, &osc)
+            .into_iter()
+            .find(|p| p.name == "simple-shear")
+            .unwrap()
+    };
+    let right = shear(&mut FiniteModelRoutine(HypoJaumann::new()));
+    assert!(right.passed, "{right:?}");
+    let wrong = shear(&mut Backwards(FiniteModelRoutine(HypoJaumann::new())));
+    assert!(!wrong.passed && wrong.summary.contains("not as a hypoelastic Jaumann update"), "{wrong:?}");
+}
+
 // A twin that is not complex-step safe (here it halves the derivative part of its stress,
 // as a twin that drops an imaginary part in one term would) is set aside: the check judges
 // with central differences, passes the tangent, and says the twin is not safe (exit 4).
