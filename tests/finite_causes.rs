@@ -54,8 +54,9 @@ impl FiniteRoutine for Flawed {
                     outcome: &mut o,
                 };
                 self.truesdell.call(input, &mut other)?;
+                // The terms that turn the Truesdell tangent into the Jaumann one, `a` times.
                 for k in 0..36 {
-                    output.tangent[k] = j[k] + a * (t[k] - j[k]);
+                    output.tangent[k] = t[k] + a * (j[k] - t[k]);
                 }
             }
         }
@@ -89,14 +90,17 @@ fn shear_columns_off_by_two_and_scaled_rate_terms_are_named() {
         let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
         assert!(c.explanation.contains(word), "{}", c.explanation);
     }
-    for (a, told) in [(0.5, "0.500"), (-1.0, "-1.000")] {
+    // The factor read is the one the terms carry: half of them 0.500, their sign flipped
+    // −1.000, doubled 2.000 (the factor read was 1 minus it, so a flipped sign read 2.000; a
+    // user-style sweep).
+    for (a, told) in [(0.5, "0.500"), (-1.0, "-1.000"), (2.0, "2.000"), (0.25, "0.250")] {
         let r = check(Flaw::RateTerms(a));
         assert_eq!(r.finding.as_deref(), Some("rate-terms-scaled"), "{r:#?}");
         let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
         assert!(c.explanation.contains(told) && c.explanation.contains("tau-truesdell"), "{}", c.explanation);
     }
     // The whole difference is the other rate, as before.
-    assert_eq!(check(Flaw::RateTerms(1.0)).finding.as_deref(), Some("other-rate"));
+    assert_eq!(check(Flaw::RateTerms(0.0)).finding.as_deref(), Some("other-rate"));
 }
 
 /// The neo-Hookean model keeping the polar rotation R of F (F = R U) in 9 state variables,

@@ -126,11 +126,14 @@ pub fn diagnose(
                 for k in 0..36 {
                     x[k] = reference[k] + alpha * (x[k] - reference[k]);
                 }
+                // The factor the terms carry: got = other + (1 − α)(reference − other).
+                let carried = 1.0 - alpha;
                 consider(
                     "rate-terms-scaled",
                     format!(
-                        "the tangent differs from the {} by {alpha:.3} times its difference from the tangent of \
-                         another rate ({other}), {}: a stress term of the rate with a wrong factor",
+                        "the terms that turn the tangent of another rate ({other}) into the {} ({}) are in the \
+                         returned tangent {carried:.3} times instead of once: a stress term of the rate with a \
+                         wrong factor",
                         m.describe(),
                         difference_terms(m, o)
                     ),
