@@ -18,8 +18,10 @@ use tancheck::models::finite::NeoHookean;
 enum Flaw {
     None,
     ShearColumns(f64),
-    /// The Jaumann tangent plus this factor times (Truesdell − Jaumann).
+    /// The Truesdell tangent plus this factor times (Jaumann − Truesdell).
     RateTerms(f64),
+    /// The shear rows times this factor.
+    ShearRows(f64),
 }
 
 struct Flawed {
@@ -41,6 +43,9 @@ impl FiniteRoutine for Flawed {
         match self.flaw {
             Flaw::None => {}
             Flaw::ShearColumns(f) => output.tangent[18..36].iter_mut().for_each(|x| *x *= f),
+            Flaw::ShearRows(f) => {
+                (0..6).for_each(|c| output.tangent[6 * c + 3..6 * c + 6].iter_mut().for_each(|x| *x *= f))
+            }
             Flaw::RateTerms(a) => {
                 let j = output.tangent.to_vec();
                 let (mut s, mut st, mut e) = ([0.0; 6], vec![0.0; output.state.len()], [0.0; 2]);
@@ -85,10 +90,12 @@ fn check(flaw: Flaw) -> tancheck::core::finite::FiniteReport {
 fn shear_columns_off_by_two_and_scaled_rate_terms_are_named() {
     assert_eq!(check(Flaw::None).exit_code, 0);
     for (f, word) in [(2.0, "doubled"), (0.5, "halved")] {
-        let r = check(Flaw::ShearColumns(f));
-        assert_eq!(r.finding.as_deref(), Some("shear-factor"), "{r:#?}");
-        let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
-        assert!(c.explanation.contains(word), "{}", c.explanation);
+        for (flaw, which) in [(Flaw::ShearColumns(f), "columns"), (Flaw::ShearRows(f), "rows")] {
+            let r = check(flaw);
+            assert_eq!(r.finding.as_deref(), Some("shear-factor"), "{which}: {r:#?}");
+            let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
+            assert!(c.explanation.contains(word) && c.explanation.contains(which), "{}", c.explanation);
+        }
     }
     // The factor read is the one the terms carry: half of them 0.500, their sign flipped
     // −1.000, doubled 2.000 (the factor read was 1 minus it, so a flipped sign read 2.000; a
@@ -155,4 +162,70 @@ fn a_rotation_kept_in_the_state_is_declared() {
     let declared = ProbeOptions { rotation_state: vec![0], ..ProbeOptions::default() };
     assert!(failed(&declared, &mut r).is_empty(), "{:?}", failed(&declared, &mut r));
     assert!(!failed(&ProbeOptions::default(), &mut r).is_empty());
+}
+
+/// dP/dF stored with P and F flattened row by row (P_iJ at 3i + J) where the interface takes
+/// them column by column: named `row-major` (it read `unexplained`; a user-style sweep).
+#[test]
+fn dp_df_flattened_row_by_row_is_named() {
+    struct RowMajor(FiniteModelRoutine<NeoHookean>);
+    impl FiniteRoutine for RowMajor {
+        fn info(&self) -> &FiniteInfo {
+            self.0.info()
+        }
+        fn call(
+            &mut self,
+            input: &FiniteInput<'_, f64>,
+            output: &mut FiniteOutput<'_, f64>,
+        ) -> Result<(), Fault> {
+            self.0.call(input, output)?;
+            let t = output.tangent.to_vec();
+            let row = |a: usize| 3 * (a % 3) + a / 3;
+            for a in 0..9 {
+                for b in 0..9 {
+                    output.tangent[row(a) + 9 * row(b)] = t[a + 9 * b];
+                }
+            }
+            Ok(())
+        }
+    }
+    let path = FinitePathSpec::Biaxial {
+        stretch: [1.3, 0.85],
+        increments: 3,
+        rotation: Some(Superposed { axis: [1.0, -0.5, 0.3], angle: 0.7 }),
+    }
+    .build()
+    .unwrap();
+    let mut ok = FiniteModelRoutine(NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::DpDf));
+    assert_eq!(run(&mut ok, &[1000.0, 0.3], &[], &path, FiniteSettings::default()).exit_code, 0);
+    let mut r = RowMajor(FiniteModelRoutine(NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::DpDf)));
+    let rep = run(&mut r, &[1000.0, 0.3], &[], &path, FiniteSettings::default());
+    assert_eq!(rep.finding.as_deref(), Some("row-major"), "{rep:#?}");
+}
+
+/// A tangent returned transposed (stored row by row) where it is not symmetric (the hypoelastic
+/// Jaumann update's, whose rotation terms make it unsymmetric under a prestress): `transposed`.
+#[test]
+fn a_transposed_unsymmetric_tangent_is_named() {
+    use tancheck::models::finite::HypoJaumann;
+    struct Transposed(FiniteModelRoutine<HypoJaumann>);
+    impl FiniteRoutine for Transposed {
+        fn info(&self) -> &FiniteInfo {
+            self.0.info()
+        }
+        fn call(&mut self, input: &FiniteInput<'_, f64>, output: &mut FiniteOutput<'_, f64>) -> Result<(), Fault> {
+            self.0.call(input, output)?;
+            let t = output.tangent.to_vec();
+            for a in 0..6 {
+                for b in 0..6 {
+                    output.tangent[a + 6 * b] = t[b + 6 * a];
+                }
+            }
+            Ok(())
+        }
+    }
+    let path = FinitePathSpec::SimpleShear { amount: 0.6, increments: 4, rotation: None }.build().unwrap();
+    let mut r = Transposed(FiniteModelRoutine(HypoJaumann::new()));
+    let rep = run(&mut r, &[1000.0, 0.3], &[], &path, FiniteSettings::default());
+    assert_eq!(rep.finding.as_deref(), Some("transposed"), "{rep:#?}");
 }

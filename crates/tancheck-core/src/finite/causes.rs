@@ -11,6 +11,9 @@
 //!   which the rates differ (`measure::difference_terms`);
 //! - `geometric-terms-missing`: dP/dF without the initial-stress term δ_ik S_JL;
 //! - `missing-over-j` / `extra-over-j`: the tangent off by a factor J;
+//! - `shear-factor`: the shear columns or rows off by 2 or ½;
+//! - `transposed`: the tangent stored row by row (its transpose returned); `row-major`: dP/dF
+//!   with P and F flattened row by row;
 //! - `stress-measure`: the routine returns Cauchy stress where Kirchhoff is declared, or the
 //!   other way round (its tangent fits the other stress: the numerical tangent made by
 //!   reading its stress as the other measure matches).
@@ -160,6 +163,58 @@ pub fn diagnose(
                 &x[..36],
             );
         }
+    }
+    // The shear rows off by 2 or by ½ (a shear stress stored as twice its tensor component, or
+    // as half of it: a user-style sweep left this one unexplained).
+    if n == 6 {
+        for (factor, words) in [(2.0, "doubled"), (0.5, "halved")] {
+            x[..36].copy_from_slice(reference);
+            for c in 0..6 {
+                x[6 * c + 3..6 * c + 6].iter_mut().for_each(|v| *v *= factor);
+            }
+            consider(
+                "shear-factor",
+                format!(
+                    "the shear rows (23, 13, 12) are {words}: a row of a shear holds the derivative of the tensor \
+                     component of the stress (τ_ij), not of twice or half of it"
+                ),
+                &x[..36],
+            );
+        }
+    }
+    // The tangent transposed: stored row by row where the interface reads it column by column
+    // (a common slip in C; the tangent of a finite-strain measure is not symmetric in general).
+    for a in 0..n {
+        for b in 0..n {
+            x[a + n * b] = reference[b + n * a];
+        }
+    }
+    consider(
+        "transposed",
+        format!(
+            "the returned tangent is the transpose of the {}: stored row by row where the interface reads \
+             it column by column (entry (i, j) at i + n·j)",
+            m.describe()
+        ),
+        &x[..n * n],
+    );
+    // dP/dF with P and F flattened row by row (P_iJ at 3i + J) where the interface flattens
+    // them column by column (i + 3J): a common slip in C, unexplained before (a user-style
+    // sweep); the matrix transpose does not show it (a hyperelastic dP/dF is symmetric).
+    if m == TangentMeasure::DpDf {
+        let row = |a: usize| 3 * (a % 3) + a / 3;
+        for a in 0..9 {
+            for b in 0..9 {
+                x[row(a) + 9 * row(b)] = reference[a + 9 * b];
+            }
+        }
+        consider(
+            "row-major",
+            "dP/dF is stored with P and F flattened row by row (P_iJ at 3i + J, F_kL at 3k + L) where the \
+             interface flattens them column by column (i + 3J)"
+                .into(),
+            &x[..81],
+        );
     }
     // dP/dF without the initial-stress term
     if m == TangentMeasure::DpDf {
