@@ -213,7 +213,11 @@ fn a_transposed_unsymmetric_tangent_is_named() {
         fn info(&self) -> &FiniteInfo {
             self.0.info()
         }
-        fn call(&mut self, input: &FiniteInput<'_, f64>, output: &mut FiniteOutput<'_, f64>) -> Result<(), Fault> {
+        fn call(
+            &mut self,
+            input: &FiniteInput<'_, f64>,
+            output: &mut FiniteOutput<'_, f64>,
+        ) -> Result<(), Fault> {
             self.0.call(input, output)?;
             let t = output.tangent.to_vec();
             for a in 0..6 {

@@ -23,6 +23,14 @@ enum Tamper {
     /// The elastic response (first call) doubles the shear stress of component 3 (twice the
     /// shear modulus), the dilatational modulus right.
     ElasticResponseShear,
+    /// Crashes in the history check's repeated walk of the point alone (the second walk under
+    /// its warmer conditions), and nowhere else.
+    CrashesInTheRepeatedWalk,
+}
+
+thread_local! {
+    /// Elastic responses seen under the history check's warmer conditions (per test thread).
+    static WARM_OPENINGS: std::cell::Cell<usize> = const { std::cell::Cell::new(0) };
 }
 
 /// A reference block model with one thing changed.
@@ -41,6 +49,14 @@ impl<M: BlockModel> BlockModel for Tampered<M> {
         input: &BlockInput<'_, S>,
         output: &mut BlockOutput<'_, S>,
     ) -> Result<(), Fault> {
+        if self.tamper == Tamper::CrashesInTheRepeatedWalk && input.conditions[0].temperature > 293.0 + 5.0 {
+            if input.elastic_response {
+                WARM_OPENINGS.with(|c| c.set(c.get() + 1));
+            }
+            if WARM_OPENINGS.with(|c| c.get()) >= 2 {
+                return Err(Fault::Crashed { signal: 11, what: "segmentation fault".into() });
+            }
+        }
         self.inner.evaluate(input, output)?;
         let ns = self.inner.info().nstate;
         for p in 0..input.npoints() {
@@ -212,4 +228,55 @@ fn a_deleted_point_that_turns_non_finite_is_named() {
     assert!(r.increments.iter().any(|i| i.deleted), "the path deletes the point");
     let r = jc_check(Tampered { inner: jc(), tamper: Tamper::NanAfterDeletion }, &jc_steel(0.014));
     assert_eq!(r.finding(), "deleted-point-not-finite", "{:#?}", r.findings);
+}
+
+// The elastic response is the first call's, at the point's start temperature; the routine's
+// own stiffness it is compared with is taken from the start without a temperature change (a
+// correct block whose modulus falls with temperature failed elastic-response-mismatch by
+// E(T − ΔT/1000)/E(T) − 1 when the path heated 40 K per increment: the small increment kept a
+// thousandth of the temperature increment; a user-style sweep). The Johnson–Cook block takes
+// E at the end temperature of each increment.
+#[test]
+fn a_temperature_increment_does_not_shift_the_elastic_reference() {
+    // Heated by 100 K in the first increment (the one the reference is taken from).
+    let mut path = jc_path();
+    path.increments[0].dtemp = 100.0;
+    let r = block::run(&mut BlockModelRoutine(jc()), &jc_steel(0.014), &path, &jc_settings(500.0)).unwrap();
+    assert!(r.findings.iter().all(|f| f.finding != "elastic-response-mismatch"), "{:#?}", r.findings);
+}
+
+// A walk that stops (here at the first non-finite output after deletion) says how far the
+// damage and deletion checks got, and no other reason (the JUnit report skipped the damage
+// check as "no state variable declared as damage" with one declared; a user-style sweep).
+#[test]
+fn a_walk_that_stops_says_how_far_damage_and_deletion_were_checked() {
+    let settings = tancheck_core::block::BlockSettings { damage: vec![9], ..jc_settings(500.0) };
+    let mut r = BlockModelRoutine(Tampered { inner: jc(), tamper: Tamper::NanAfterDeletion });
+    let rep = block::run(&mut r, &jc_steel(0.014), &jc_path(), &settings).unwrap();
+    assert_eq!(rep.finding(), "deleted-point-not-finite", "{:#?}", rep.findings);
+    let stop = rep.findings[0].increment.unwrap();
+    let note = |prefix: &str| rep.notes.iter().find(|n| n.starts_with(prefix)).cloned().unwrap_or_default();
+    let damage = note("damage:");
+    assert!(
+        damage.contains(&format!("up to increment {} (the walk stopped at increment {stop})", stop - 1)),
+        "{damage}"
+    );
+    assert!(!damage.contains("no state variable declared"), "{damage}");
+    let deletion = note("deletion:");
+    assert!(
+        deletion.contains(&format!("checked up to increment {stop}, where the walk stopped")),
+        "{deletion}"
+    );
+}
+
+// A call that fails in the history check's repeated walk leaves the blocks uncompared, and the
+// note says that, not that the results depend on the calls before (it did; a user-style sweep).
+#[test]
+fn a_failed_repeated_walk_is_not_called_history_dependence() {
+    WARM_OPENINGS.with(|c| c.set(0));
+    let r = j2_check(Tampered { inner: j2(), tamper: Tamper::CrashesInTheRepeatedWalk });
+    assert_eq!(r.finding(), "routine-fault", "{:#?}", r.findings);
+    assert!(r.findings.iter().all(|f| f.finding != "history-dependence"), "{:#?}", r.findings);
+    let note = r.notes.iter().find(|n| n.starts_with("independence:")).expect("an independence note");
+    assert!(note.contains("failed") && !note.contains("depending on the calls made before"), "{note}");
 }

@@ -101,9 +101,9 @@ const ELASTIC_TOLERANCE: f64 = 1e-5;
 const TIME_SHRINK: f64 = 1e-3;
 
 /// The elastic response must be the routine's own elastic stiffness at the point's
-/// conditions: the numerical tangent of a small increment (the first increment of the path
-/// scaled by [`SMALL`], elastic for any model with a yield or damage threshold) from the start
-/// state equals it. A solver sizes its time increment from the first call's moduli.
+/// conditions: the numerical tangent of a small increment (the first increment's strain
+/// scaled by [`SMALL`], elastic for any model with a yield or damage threshold, at the start
+/// temperature) from the start state equals it. A solver sizes its time increment from the first call's moduli.
 pub fn elastic_consistency(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
@@ -117,7 +117,11 @@ pub fn elastic_consistency(
     for (x, d) in b.strain_increment.iter_mut().zip(&first.strain_increment) {
         *x = SMALL * d;
     }
-    b.set_temperature_increment(SMALL * first.temperature_increment);
+    // At the start temperature, as the first call is (its conditions, no temperature change):
+    // a thousandth of the first increment's temperature change moved a temperature-dependent
+    // modulus by more than the tolerance (40 K per increment, E falling 5e-4 per K: 2.4e-5; a
+    // user-style sweep).
+    b.set_temperature_increment(0.0);
     let mut cx = ComplexPoint::new(properties.len(), n, s.state0.len());
     let mut tangent_at = |dt: f64, report: &mut BlockReport| {
         if routine.has_twin() {
@@ -247,6 +251,10 @@ pub fn walk_one_point(
     let mut half = vec![0.0; n];
     let mut total_work = 0.0;
     let mut damage = super::damage::DamageWatch::new(&s.damage);
+    // The increment the walk stopped at (a fault, a non-finite output): the checks made along
+    // the walk say how far they got (the JUnit report skipped the damage check "no damage
+    // declared" after such a stop; a user-style sweep).
+    let mut stopped = None;
     for (k, step) in incs.iter().enumerate() {
         let (de, dt, dtemp) = (&step.strain_increment, &step.time_increment, step.temperature_increment);
         let index = k + 1;
@@ -270,7 +278,8 @@ pub fn walk_one_point(
             Ok(d) => d,
             Err(e) => {
                 report.add(BlockCheck::Call, "routine-fault", Some(index), format!("a perturbed call: {e}"));
-                return;
+                stopped = Some(index);
+                break;
             }
         };
         // A non-finite difference quotient is what a solver without the twin sees: reported
@@ -330,7 +339,8 @@ pub fn walk_one_point(
                     Some(index),
                     format!("the half increment: {e}"),
                 );
-                return;
+                stopped = Some(index);
+                break;
             }
             half.copy_from_slice(&b.stress);
             b.strain_increment.copy_from_slice(de);
@@ -341,7 +351,8 @@ pub fn walk_one_point(
         report.real_calls += 1;
         if let Err(e) = b.call(routine, properties, *dt, inc) {
             report.add(BlockCheck::Call, "routine-fault", Some(index), e.to_string());
-            return;
+            stopped = Some(index);
+            break;
         }
         let finite = b.stress.iter().chain(&b.state).all(|x| x.is_finite())
             && b.energy[0].internal.is_finite()
@@ -357,7 +368,8 @@ pub fn walk_one_point(
                 ),
                 None => report.add(BlockCheck::Call, "non-finite-output", Some(index), what),
             }
-            return;
+            stopped = Some(index);
+            break;
         }
         row.work = match s.energy_rule {
             EnergyRule::Trapezoid => 0.5 * (work(&b.stress_start, de, rho) + work(&b.stress, de, rho)),
@@ -380,14 +392,20 @@ pub fn walk_one_point(
         report.increments.push(row);
         b.advance(*dt);
     }
-    damage.finish(report);
-    match deleted_at {
-        None => report
+    damage.finish(stopped, report);
+    match (deleted_at, stopped) {
+        (None, Some(at)) => report.notes.push(format!(
+            "deletion: no point was deleted before the walk stopped at increment {at}; the deletion check did not run"
+        )),
+        (Some(d), Some(at)) => report.notes.push(format!(
+            "deletion: the point was deleted at increment {d}; checked up to increment {at}, where the walk stopped"
+        )),
+        (None, None) => report
             .notes
             .push("deletion: no point was deleted along this path; the deletion check did not run".into()),
         // Said when it ran too, so that no report reads a check that ran as one turned off
         // (the JUnit report skipped it "turned off in the manifest"; a user-style sweep).
-        Some(at) => report.notes.push(format!(
+        (Some(at), None) => report.notes.push(format!(
             "deletion: the point was deleted at increment {at}; checked to the end of the path ({} increments)",
             report.increments.len()
         )),

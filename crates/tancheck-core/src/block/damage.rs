@@ -44,20 +44,30 @@ impl<'a> DamageWatch<'a> {
         }
     }
 
-    /// The check's note: what was watched, and whether the damage grew at all (a damage that
-    /// never grew makes a weak test).
-    pub(crate) fn finish(self, report: &mut BlockReport) {
+    /// The check's note: what was watched, how far (to the end of the path, or to the
+    /// increment the walk `stopped` at, which did not end), and whether the damage grew at all
+    /// (a damage that never grew makes a weak test).
+    pub(crate) fn finish(self, stopped: Option<usize>, report: &mut BlockReport) {
         if self.indices.is_empty() {
             report
                 .notes
                 .push("damage: no state variable declared as damage (block.damage); not checked".into());
             return;
         }
-        let list: Vec<String> = self.indices.iter().map(|i| format!("state[{i}]")).collect();
-        report.notes.push(format!(
-            "damage: {} checked never to decrease along the path{}",
-            list.join(", "),
-            if self.grew { "" } else { "; the damage did not grow on this path (a weak test)" }
-        ));
+        let list = self.indices.iter().map(|i| format!("state[{i}]")).collect::<Vec<_>>().join(", ");
+        let note = match stopped {
+            Some(1) => format!("damage: {list} not checked: the walk stopped at the first increment"),
+            Some(at) => format!(
+                "damage: {list} checked never to decrease up to increment {} (the walk stopped at increment \
+                 {at}){}",
+                at - 1,
+                if self.grew { "" } else { "; the damage did not grow there (a weak test)" }
+            ),
+            None => format!(
+                "damage: {list} checked never to decrease along the path{}",
+                if self.grew { "" } else { "; the damage did not grow on this path (a weak test)" }
+            ),
+        };
+        report.notes.push(note);
     }
 }

@@ -109,9 +109,20 @@ fn first_difference(
     None
 }
 
-/// Run the check; findings go into `report`. Returns whether the results were found to depend
-/// on the calls before (the blocks of the independence check are not comparable then).
-pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
+/// What the history check leaves for the comparison of blocks.
+#[derive(Clone, Copy, Debug, PartialEq, Eq)]
+pub enum History {
+    /// No dependence on the calls before was found (or none could be looked for).
+    Comparable,
+    /// The results depend on the calls before: blocks are not comparable.
+    Dependent,
+    /// A call of a repeated walk failed (its finding or note says which): not compared either.
+    Failed,
+}
+
+/// Run the check; findings go into `report`. Returns whether the blocks of the independence
+/// check are comparable, and why not.
+pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> History {
     let (n, ns) = (w.routine.info().ncomp, w.settings.state0.len());
     let tol = w.settings.independence_tolerance;
     let c = other_conditions(w.settings.conditions);
@@ -134,14 +145,14 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
         Ok(t) => t,
         Err((k, e)) => {
             fault(report, k, &e, &format!("the point alone ({said})"));
-            return false;
+            return History::Comparable;
         }
     };
     let second = match walk(&mut w, c, report) {
         Ok(t) => t,
         Err((k, e)) => {
             fault(report, k, &e, "the point alone, walked a second time under the same conditions");
-            return true;
+            return History::Failed;
         }
     };
     if let Some((k, what, now, before)) = first_difference(&first, &second, tol, n, ns) {
@@ -157,7 +168,7 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
                  explicit solver calls it for many blocks in turn"
             ),
         );
-        return true;
+        return History::Dependent;
     }
     let mut fresh = match w.routine.new_instance() {
         None => {
@@ -166,7 +177,7 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
                  offers no new instance, so a value kept from the first call was not looked for",
                 w.routine.info().name
             ));
-            return false;
+            return History::Comparable;
         }
         Some(Err(why)) => {
             report.notes.push(format!(
@@ -174,7 +185,7 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
                  instance of the library could be loaded ({why}), so a value kept from the first call was \
                  not looked for"
             ));
-            return false;
+            return History::Comparable;
         }
         Some(Ok(r)) => r,
     };
@@ -184,7 +195,7 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
         Ok(t) => t,
         Err((k, e)) => {
             fault(report, k, &e, &format!("the point alone on a new instance of the library ({said})"));
-            return true;
+            return History::Failed;
         }
     };
     if let Some((k, what, now, before)) = first_difference(&second, &on_fresh, tol, n, ns) {
@@ -202,11 +213,11 @@ pub fn check(mut w: BlockWalk<'_>, report: &mut BlockReport) -> bool {
                  conditions than the ones that follow"
             ),
         );
-        return true;
+        return History::Dependent;
     }
     report.notes.push(format!(
         "history: the point alone ({said}) gave the same outputs walked twice in a row and as the first calls \
          of a new instance of the library"
     ));
-    false
+    History::Comparable
 }

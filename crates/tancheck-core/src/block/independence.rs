@@ -118,7 +118,9 @@ fn failed_call(report: &mut BlockReport, k: usize, e: &Fault, place: &str, then:
 }
 
 fn differs(a: f64, b: f64, scale: f64, tol: f64) -> bool {
-    if a.is_nan() && b.is_nan() {
+    // The same value (the same infinity too: inf − inf is NaN, and a deleted point's inf in
+    // the block and alone read as point-dependence; a user-style sweep), or NaN on both sides.
+    if a == b || a.is_nan() && b.is_nan() {
         return false;
     }
     (a - b).abs() > tol * scale.max(f64::MIN_POSITIVE) || (a - b).is_nan()
@@ -237,4 +239,20 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
          (warmer, denser, a shorter characteristic length), gave the same outputs"
             .into(),
     );
+}
+
+#[cfg(test)]
+mod tests {
+    use super::differs;
+
+    #[test]
+    fn equal_values_never_differ_and_different_ones_do() {
+        for v in [f64::INFINITY, f64::NEG_INFINITY, f64::NAN, 0.0, 1.5] {
+            assert!(!differs(v, v, 1.0, 1e-12), "{v}");
+        }
+        assert!(differs(f64::INFINITY, f64::NEG_INFINITY, 1.0, 1e-12));
+        assert!(differs(f64::INFINITY, 1.0, 1.0, 1e-12));
+        assert!(differs(f64::NAN, 1.0, 1.0, 1e-12));
+        assert!(differs(1.0, 1.1, 1.0, 1e-3) && !differs(1.0, 1.0 + 1e-15, 1.0, 1e-12));
+    }
 }
