@@ -214,8 +214,11 @@ contains
     real(c_double) :: a
     a = real(x, c_double)
     ! For p = 0 the derivative is 0, also at a = 0 (where p a**(p-1) is 0 times infinity).
+    ! With no derivative part (b = 0, a start state) it is 0 too, also at a = 0 for p < 1.
     if (abs(p) <= 0.0_c_double) then
       y = cmplx(1.0_c_double, 0.0_c_double, kind=c_double_complex)
+    else if (abs(aimag(x)) <= 0.0_c_double) then
+      y = cmplx(a**p, 0.0_c_double, kind=c_double_complex)
     else
       y = cmplx(a**p, p * a**(p - 1.0_c_double) * aimag(x), kind=c_double_complex)
     end if

@@ -142,12 +142,16 @@ static inline tc_real tc_log(tc_real x)
 
 /* x raised to the real power p. Twin: (a + ib)^p = a^p + i p a^(p-1) b
  * (Martins, Sturdza & Alonso 2003). For p = 0 the derivative is 0, also at a = 0 (where
- * p a^(p-1) would be 0 times infinity); the real build's pow(0, 0) is 1. */
+ * p a^(p-1) would be 0 times infinity); the real build's pow(0, 0) is 1. With b = 0 (a value
+ * with no derivative part, such as a start state) the derivative part is 0, also at a = 0 for
+ * p < 1 (0^n at zero plastic strain in a hardening law: 0 times infinity gave NaN, and a
+ * complex factor times it a NaN real part). */
 static inline tc_real tc_pow(tc_real x, double p)
 {
     double a = tc_re(x);
 #ifdef TC_COMPLEX
-    return tc_cx_make(pow(a, p), p == 0.0 ? 0.0 : p * pow(a, p - 1.0) * tc_im(x));
+    const double b = tc_im(x);
+    return tc_cx_make(pow(a, p), p == 0.0 || b == 0.0 ? 0.0 : p * pow(a, p - 1.0) * b);
 #else
     return pow(a, p);
 #endif

@@ -54,8 +54,9 @@ did not write, such as a tangent it was not asked for, or from memory it never s
 /// The usual reasons a twin is not complex-step safe, for messages.
 pub const TWIN_CULPRITS: &str = "conjugating intrinsics (Fortran dot_product, conjg, C conj; a \
 norm as sqrt(sum |z|^2)), complex abs (cabs, Fortran abs of a complex), a real-only sqrt or \
-abs (the imaginary part dropped, e.g. sqrt(real(x))), or comparisons of complex values \
-instead of their real parts";
+abs (the imaginary part dropped, e.g. sqrt(real(x))), comparisons of complex values \
+instead of their real parts, or a complex pow or ** of a zero base to a power below 1 (its \
+derivative part 0 times infinity: NaN; tc_pow and cs_pow give 0 there)";
 
 /// A twin's real part this far (relative to the stress scale) from the real routine's
 /// outputs computes another stress: rounding stays near 1e-15, so 1e-9 leaves six digits of
