@@ -26,6 +26,9 @@ enum Tamper {
     /// Crashes in the history check's repeated walk of the point alone (the second walk under
     /// its warmer conditions), and nowhere else.
     CrashesInTheRepeatedWalk,
+    /// Asks for a smaller increment (`TC_BLOCK_STATUS_SMALLER_INCREMENT`) when a point's
+    /// strain increment has an entry above 6e-4, with the fraction it could manage.
+    AsksSmaller,
 }
 
 thread_local! {
@@ -55,6 +58,20 @@ impl<M: BlockModel> BlockModel for Tampered<M> {
             }
             if WARM_OPENINGS.with(|c| c.get()) >= 2 {
                 return Err(Fault::Crashed { signal: 11, what: "segmentation fault".into() });
+            }
+        }
+        if self.tamper == Tamper::AsksSmaller && !input.elastic_response {
+            let n = self.inner.info().ncomp;
+            for p in 0..input.npoints() {
+                let big = input.strain_increment[p * n..(p + 1) * n]
+                    .iter()
+                    .fold(0.0f64, |a, x| a.max(x.re().abs()));
+                if big > 6e-4 {
+                    output.outcome.status = tancheck_core::block::routine::block_status::SMALLER_INCREMENT;
+                    output.outcome.point = p as i32;
+                    output.outcome.largest_fraction = 6e-4 / big;
+                    return Ok(());
+                }
             }
         }
         self.inner.evaluate(input, output)?;
@@ -279,4 +296,22 @@ fn a_failed_repeated_walk_is_not_called_history_dependence() {
     assert!(r.findings.iter().all(|f| f.finding != "history-dependence"), "{:#?}", r.findings);
     let note = r.notes.iter().find(|n| n.starts_with("independence:")).expect("an independence note");
     assert!(note.contains("failed") && !note.contains("depending on the calls made before"), "{note}");
+}
+
+// A block routine that asks for a smaller increment gets it, as an explicit solver would cut
+// its time increment: the path's refused increments are cut into equal parts (here 1e-3 per
+// increment out against a limit of 6e-4: a fraction of 0.6, two parts each; four for the
+// larger ones back) and checked, with a note (it was a routine fault, exit 3; a user-style
+// sweep).
+#[test]
+fn increments_a_block_routine_refuses_are_cut() {
+    let r = j2_check(Tampered { inner: j2(), tamper: Tamper::AsksSmaller });
+    assert!(r.findings.iter().all(|f| f.finding != "routine-fault"), "{:#?}", r.findings);
+    assert_eq!(r.increments.len(), 24, "{:#?}", r.notes);
+    let note = r.notes.iter().find(|n| n.contains("asked for a smaller increment")).expect("a note");
+    assert!(note.contains("largest fraction 0.600") && note.contains("1 into 2"), "{note}");
+    // And the same routine with increments it takes is checked on the path as given.
+    let plain = j2_check(j2());
+    assert_eq!(plain.increments.len(), 9);
+    assert!(plain.notes.iter().all(|n| !n.contains("smaller increment")), "{:#?}", plain.notes);
 }

@@ -12,6 +12,7 @@
 
 pub mod along;
 pub mod counterpart;
+mod cutback;
 mod damage;
 pub mod history;
 pub mod independence;

@@ -41,7 +41,7 @@ pub fn run(
     if !(c.density > 0.0 && c.characteristic_length > 0.0 && c.temperature.is_finite()) {
         return Err("the point's density and characteristic length must be positive".into());
     }
-    let incs = block_increments(path, info.ncomp)?;
+    let mut incs = block_increments(path, info.ncomp)?;
     let mut report = BlockReport {
         routine: info.name.clone(),
         path: path.name.clone(),
@@ -51,6 +51,15 @@ pub fn run(
     let Some(moduli) = along::elastic_response(routine, properties, settings, &mut report) else {
         return Ok(report);
     };
+    // Increments the routine refuses as too large are cut, as a solver cuts its time
+    // increment (a request read as a routine fault; a user-style sweep). After the first call,
+    // so that the elastic response stays the routine's first call.
+    if let Some((cut, note)) =
+        super::cutback::cut(routine, properties, &incs, settings, &mut report.real_calls)
+    {
+        incs = cut;
+        report.notes.push(note);
+    }
     along::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
     let mut w = BlockWalk { routine, properties, incs: &incs, settings };
