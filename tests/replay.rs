@@ -443,6 +443,41 @@ fn a_crashing_call_is_saved_and_replayed_with_its_increment_number() {
     assert_eq!(code, 0, "{r:#}");
 }
 
+// A crash in a perturbed call only (a difference scheme's call, the base call clean): the case
+// bisect writes replays as a fault, exit 3, as the check that found it said, and a folder of
+// such cases makes `check --cases` a fault too (it read FAIL, exit 1, "the returned tangent
+// still differs", with the complex step agreeing exactly; a user-style sweep).
+#[test]
+fn a_crash_in_a_perturbed_call_replays_as_a_fault() {
+    let d = scratch("perturbed-crash");
+    let lib = d.join("libmisbehave.so");
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+    build_library(&BuildOptions::new([src], &lib)).unwrap();
+    let m = manifest(
+        &d,
+        Source::Library(&lib, "bad_perturbed_crash", 0),
+        "solid-3d",
+        "[210000, 0.3]",
+        r#"{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 4 }"#,
+    );
+    let o = bin().arg("bisect").arg(&m).args(["--json", "-"]).output().unwrap();
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let case = PathBuf::from(v["cases"][0].as_str().unwrap());
+    let (code, r) = replay(&case);
+    assert_eq!(code, 3, "{r:#}");
+    assert_eq!((r["finding"].as_str(), r["pass"].as_bool()), (Some("routine-fault"), Some(false)), "{r:#}");
+    assert!(r["fault"].is_null(), "the base call is clean: {r:#}");
+    let o = bin()
+        .arg("check")
+        .arg(&m)
+        .args(["--cases", "-q", "--path", "uniaxial-strain:0.001:1"])
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
+    assert!(text(&o).contains("FAULT"), "{}", text(&o));
+}
+
 // A report, a manifest or a list given to `replay` for a case is said to be that, with where
 // the case files are (it said "missing field `about`", the first field a case has).
 #[test]

@@ -167,6 +167,7 @@ fn without_the_twin_there_is_no_complex_capability() {
             "bad_late_exit",
             "bad_log_of_negative",
             "bad_null_deref",
+            "bad_perturbed_crash",
             "bad_perturbed_overrun",
             "bad_printf",
             "bad_props_overread",

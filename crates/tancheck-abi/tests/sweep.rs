@@ -277,6 +277,7 @@ fn misbehaving_routines_are_found_the_same_with_and_without_sweeps() {
         "bad_divide_by_zero",
         "bad_state_overrun",
         "bad_perturbed_overrun",
+        "bad_perturbed_crash",
         "bad_tangent_hole",
         "bad_writes_strain",
         "bad_scratch_increment",

@@ -193,10 +193,16 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
     let mut caller = Caller::new(routine);
     let r = case::replay(&mut caller, &p.parsed, walk).map_err(|m| format!("{}: {m}", file.display()))?;
     let (pass, finding, checks) = match &r.check {
-        Some(c) => (c.passed() && r.fault.is_none(), c.finding().to_string(), ProbeCheck::list(c)),
+        Some(c) => {
+            (c.passed() && r.fault.is_none() && !c.faulted(), c.finding().to_string(), ProbeCheck::list(c))
+        }
         None => (false, "routine-fault".to_string(), Vec::new()),
     };
-    let exit_code = if r.fault.is_some() {
+    // A fault of a perturbed call (a difference scheme's) is the routine's fault as the base
+    // call's is: the check that wrote the case said so (it read FAIL, exit 1, with the fault
+    // printed and the complex step agreeing; a user-style sweep).
+    let faulted = r.fault.is_some() || r.check.as_ref().is_some_and(|c| c.faulted());
+    let exit_code = if faulted {
         exit::ROUTINE_FAULT
     } else if pass {
         exit::PASS

@@ -47,6 +47,9 @@
  *   bad_perturbed_overrun writes state[nstate] only in calls that do not ask for the tangent
  *                       (the perturbed ones)                         -> "wrote past the end of
  *                       state" on the schemes' calls, the base calls clean
+ *   bad_perturbed_crash dereferences NULL only in calls that do not ask for the tangent
+ *                       (the perturbed ones)                         -> a crash in the schemes'
+ *                       calls, the base calls clean
  *
  * and these misbehave in every call of one branch, or of a zero increment, so that a default
  * check (full guards on the first call of each new branch, one zero increment) finds them:
@@ -271,6 +274,17 @@ TC_ROUTINE(bad_perturbed_overrun)
     /* A scratch entry one past the state, written only where no tangent is formed. */
     if (!(call->flags & TC_WANT_TANGENT)) {
         state[call->nstate] = 0.0;
+    }
+}
+
+TC_ROUTINE(bad_perturbed_crash)
+{
+    MISBEHAVE_UNUSED;
+    MISBEHAVE_FROM_INCREMENT_2;
+    /* A pointer set only where the tangent is formed, used in every call. */
+    if (!(call->flags & TC_WANT_TANGENT)) {
+        volatile double *p = NULL;
+        *p = 1.0;
     }
 }
 

@@ -296,7 +296,8 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
     let n = r.stress.bits.len();
     if detail == Detail::Quiet {
         if !r.pass {
-            writeln!(out, "{} {}: {} ({})", p.fail("FAIL"), r.case, r.finding, r.origin)?;
+            let word = if r.exit_code == crate::exit::ROUTINE_FAULT { "FAULT" } else { "FAIL" };
+            writeln!(out, "{} {}: {} ({})", p.fail(word), r.case, r.finding, r.origin)?;
         }
         return writeln!(out, "   verdict: {} (exit {})", p.verdict(verdict_word(r.exit_code)), r.exit_code);
     }
