@@ -257,3 +257,49 @@ TC_ROUTINE(c_slow_bar)
     let x = std::fs::read_to_string(&xml).unwrap();
     assert!(x.contains("<skipped") && x.contains("not run"), "{x}");
 }
+
+// A library that does not compile is bad input (exit 2), found after the reports were replaced
+// by "incomplete" markers: every report file gets back what it held (the JSON report was left
+// as the marker while the JUnit and HTML reports were put back; a user-style sweep).
+#[test]
+fn a_library_that_does_not_compile_puts_back_every_earlier_report() {
+    let d = scratch("broken-library");
+    std::fs::write(d.join("broken.c"), "int broken( { return 0; }\n").unwrap();
+    std::fs::write(
+        d.join("m.json"),
+        r#"{ "routine": { "library": "build/libbroken.so", "symbol": "broken", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    let file = d.join("c.json");
+    std::fs::write(
+        &file,
+        r#"{ "format": "tancheck-campaign", "version": 1, "name": "broken",
+  "libraries": [ { "output": "build/libbroken.so", "sources": ["broken.c"] } ],
+  "routines": [ { "manifest": "m.json" } ] }
+"#,
+    )
+    .unwrap();
+    let (json, xml, html) = (d.join("r.json"), d.join("r.xml"), d.join("r.html"));
+    for (p, earlier) in
+        [(&json, "{\"earlier\": true}\n"), (&xml, "<earlier/>\n"), (&html, "<p>earlier</p>\n")]
+    {
+        std::fs::write(p, earlier).unwrap();
+    }
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["--jobs", "1", "-q"])
+        .arg("--json")
+        .arg(&json)
+        .arg("--junit")
+        .arg(&xml)
+        .arg("--html")
+        .arg(&html)
+        .output()
+        .unwrap();
+    assert_eq!(o.status.code(), Some(2), "{}", text(&o));
+    assert!(text(&o).contains("broken.c"), "{}", text(&o));
+    assert_eq!(std::fs::read_to_string(&json).unwrap(), "{\"earlier\": true}\n");
+    assert_eq!(std::fs::read_to_string(&xml).unwrap(), "<earlier/>\n");
+    assert_eq!(std::fs::read_to_string(&html).unwrap(), "<p>earlier</p>\n");
+}

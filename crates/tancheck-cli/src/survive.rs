@@ -192,7 +192,7 @@ struct Earlier {
 static EARLIER: std::sync::Mutex<Vec<Earlier>> = std::sync::Mutex::new(Vec::new());
 
 /// Replace `p` at once by `marker`, keeping what it held for [`restore_earlier_report`].
-fn replace_with_marker(p: &Path, marker: Vec<u8>) -> Result<()> {
+pub(crate) fn replace_with_marker(p: &Path, marker: Vec<u8>) -> Result<()> {
     let previous = std::fs::metadata(p).ok().filter(|m| m.is_file()).and_then(|_| std::fs::read(p).ok());
     crate::report::write_atomic(p, &marker)
         .with_context(|| format!("replacing the report {} at the start of the run", p.display()))?;

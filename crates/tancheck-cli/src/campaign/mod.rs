@@ -147,8 +147,10 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         if let Some(s) = shard {
             marker["shard"] = serde_json::json!({"index": s.index, "count": s.count});
         }
+        // Kept for a run that ends on bad input (a library that does not compile): the earlier
+        // report is put back (it was left as this marker; a user-style sweep).
         let marker = format!("{marker}\n");
-        crate::report::write_atomic(p, marker.as_bytes())
+        crate::survive::replace_with_marker(p, marker.into_bytes())
             .with_context(|| format!("writing the JSON report to {}", p.display()))?;
     }
     if !a.isolate {
