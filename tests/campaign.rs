@@ -317,7 +317,7 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
         r#"{ "routine": { "library": "lib.so", "symbol": "s", "kind": "solid-3d", "states": 7, "properties": [1] }, "start": { "state": [0, 0, 0] } }"#,
     )
     .unwrap();
-    let cases: [(&str, &str, &str); 11] = [
+    let cases: [(&str, &str, &str); 13] = [
         // A manifest whose start state does not fit its routine, said before anything runs.
         ("start.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\"}, {\"manifest\": \"sized.json\"}]}", "start.state has 3 entries; routine.states is 7"),
         // Two items with one key (a property set named twice, a manifest listed twice) would
@@ -329,6 +329,10 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
         // A finding misspelt (it ran the campaign and read "not as expected"; a user-style sweep).
         ("underscore.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"continuum_tangent\"}]}", "did you mean `continuum-tangent`"),
         ("typo.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"shear-facter\"}]}", "did you mean `shear-factor`"),
+        // A word no check or probe gives, and a finding without a failure expected (both ran
+        // and read "not as expected", exit 1, as if the routine had changed; a user-style sweep).
+        ("no-finding.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"continuum\"}]}", "`continuum` is no finding a check or probe gives"),
+        ("no-expect.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect_finding\": \"secant\"}]}", "without `expect`"),
         ("unknown.json", "{\"format\": \"tancheck-campaign\", \"version\": 1,\n \"routines\": [{\"manifest\": \"m.json\", \"colour\": 1}]}", "unknown.json:2:"),
         ("format.json", "{\"format\": \"other\", \"version\": 1, \"routines\": []}", "`format` is `other`"),
         ("version.json", "{\"format\": \"tancheck-campaign\", \"version\": 9, \"routines\": []}", "version 9"),

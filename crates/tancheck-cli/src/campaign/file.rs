@@ -314,10 +314,24 @@ impl Campaign {
             let manifest = normalize(&dir.join(&e.manifest));
             add_file(&format!("{at}.manifest"), &manifest, &mut digest)?;
             if let Some(f) = &e.expect_finding {
-                if let Some(word) = misspelt_finding(f) {
-                    bail!(
+                match finding_check(f) {
+                    Ok(()) => {}
+                    Err(Some(word)) => bail!(
                         "{file}: {at}.expect_finding: `{f}` is no finding; did you mean `{word}`? (findings are \
                          written with hyphens)"
+                    ),
+                    // Not close to any (it was accepted, and every item of the routine read NOT AS
+                    // EXPECTED, exit 1, as if the routine had changed; a user-style sweep).
+                    Err(None) => bail!(
+                        "{file}: {at}.expect_finding: `{f}` is no finding a check or probe gives (the \
+                         README's \"Why a tangent fails\" lists a point check's causes; a probe item's \
+                         finding is a probe's name)"
+                    ),
+                }
+                if e.expect.is_none() {
+                    bail!(
+                        "{file}: {at}: `expect_finding` is `{f}` without `expect`, which is pass by default: a \
+                         passing check has no finding; add \"expect\": \"fail\" (or fault, twin)"
                     );
                 }
             }
@@ -477,7 +491,10 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
 /// underscores, or one or two letters off (an expectation that can never hold ran the whole
 /// campaign and read "not as expected"; a user-style sweep). Findings of the block and
 /// finite-strain checks and of probes are not listed here: only near misses are refused.
-fn misspelt_finding(f: &str) -> Option<&'static str> {
+/// `Ok` for a finding some check or probe can give; else the nearest known finding, if any.
+fn finding_check(f: &str) -> Result<(), Option<&'static str>> {
+    // Findings of every family: a point check's (its causes and these), a block check's, a
+    // finite-strain check's, and a probe item's (a probe's name).
     const OTHERS: [&str; 11] = [
         "none",
         "routine-fault",
@@ -491,14 +508,57 @@ fn misspelt_finding(f: &str) -> Option<&'static str> {
         "unexplained",
         "undiagnosed",
     ];
+    const BLOCK: [&str; 21] = [
+        "counterpart-mismatch",
+        "counterpart-sizes",
+        "counterpart-tangent",
+        "damage-decreases",
+        "deleted-point-not-finite",
+        "deleted-point-revived",
+        "deleted-point-stress",
+        "dissipation-decreases",
+        "elastic-response-mismatch",
+        "elastic-response-updates",
+        "energy-work-mismatch",
+        "history-dependence",
+        "negative-stiffness",
+        "non-finite-stiffness",
+        "point-dependence",
+        "rate-law",
+        "refinement-order",
+        "stiffer-than-elastic",
+        "stored-energy-negative",
+        "zero-rate-not-finite",
+        "twin-not-complex-step-safe",
+    ];
+    const FINITE: [&str; 11] = [
+        "material-as-spatial",
+        "spatial-as-material",
+        "other-rate",
+        "rate-terms-scaled",
+        "shear-factor",
+        "transposed",
+        "row-major",
+        "geometric-terms-missing",
+        "missing-over-j",
+        "extra-over-j",
+        "stress-measure",
+    ];
+    let probes: Vec<&'static str> = tancheck_core::probe::registry().iter().map(|p| p.name()).collect();
     let known = || {
-        tancheck_core::diagnose::Cause::BY_SPECIFICITY.iter().map(|c| c.name()).chain(OTHERS.iter().copied())
+        tancheck_core::diagnose::Cause::BY_SPECIFICITY
+            .iter()
+            .map(|c| c.name())
+            .chain(OTHERS.iter().copied())
+            .chain(BLOCK.iter().copied())
+            .chain(FINITE.iter().copied())
+            .chain(probes.iter().copied())
     };
     if known().any(|k| k == f) {
-        return None;
+        return Ok(());
     }
     let hyphens = f.replace('_', "-").to_lowercase();
-    known().find(|&k| k == hyphens || distance(k, f) <= 2)
+    Err(known().find(|&k| k == hyphens || distance(k, f) <= 2))
 }
 
 /// Levenshtein distance of two short words.
