@@ -317,7 +317,7 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
         r#"{ "routine": { "library": "lib.so", "symbol": "s", "kind": "solid-3d", "states": 7, "properties": [1] }, "start": { "state": [0, 0, 0] } }"#,
     )
     .unwrap();
-    let cases: [(&str, &str, &str); 13] = [
+    let cases: [(&str, &str, &str); 14] = [
         // A manifest whose start state does not fit its routine, said before anything runs.
         ("start.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\"}, {\"manifest\": \"sized.json\"}]}", "start.state has 3 entries; routine.states is 7"),
         // Two items with one key (a property set named twice, a manifest listed twice) would
@@ -332,6 +332,9 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
         // A word no check or probe gives, and a finding without a failure expected (both ran
         // and read "not as expected", exit 1, as if the routine had changed; a user-style sweep).
         ("no-finding.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect\": \"fail\", \"expect_finding\": \"continuum\"}]}", "`continuum` is no finding a check or probe gives"),
+        // A suite whose `at` is past the end of a path an item walks (the probe was judged at
+        // every increment, without a word; a user-style sweep).
+        ("at-past.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"paths\": [\"uniaxial-strain:0.001:3\"], \"probes\": [\"far-suite.json\"]}]}", "probe `tangent` runs at increment 9, but the path"),
         ("no-expect.json", "{\"format\": \"tancheck-campaign\", \"version\": 1, \"routines\": [{\"manifest\": \"m.json\", \"expect_finding\": \"secant\"}]}", "without `expect`"),
         ("unknown.json", "{\"format\": \"tancheck-campaign\", \"version\": 1,\n \"routines\": [{\"manifest\": \"m.json\", \"colour\": 1}]}", "unknown.json:2:"),
         ("format.json", "{\"format\": \"other\", \"version\": 1, \"routines\": []}", "`format` is `other`"),
@@ -342,6 +345,11 @@ fn a_bad_campaign_file_is_exit_2_naming_the_place_and_keeps_the_earlier_report()
     std::fs::write(
         d.join("m.json"),
         r#"{ "routine": { "model": "elastic", "kind": "solid-3d", "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
+    std::fs::write(
+        d.join("far-suite.json"),
+        r#"{ "suite": "far", "probes": [ {"probe": "tangent", "at": [9]} ] }"#,
     )
     .unwrap();
     for (name, body, want) in cases {

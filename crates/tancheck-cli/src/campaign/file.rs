@@ -364,8 +364,15 @@ impl Campaign {
             }
             for (j, s) in e.probes.iter().enumerate() {
                 let f = normalize(&dir.join(s));
-                crate::suite::Suite::load(&f).map_err(|err| anyhow!("{file}: {at}.probes[{j}]: {err}"))?;
+                let suite = crate::suite::Suite::load(&f)
+                    .map_err(|err| anyhow!("{file}: {at}.probes[{j}]: {err}"))?;
                 add_file(&format!("{at}.probes[{j}]"), &f, &mut digest)?;
+                // Every `at` of the suite on every path its items walk, as `probe --suite` asks
+                // (past the end, it was dropped without a word and the probe judged at every
+                // increment; a user-style sweep).
+                for p in suite_paths(&e.paths, &dir, &manifest, &suite)? {
+                    suite.check_at(&p).map_err(|err| anyhow!("{file}: {at}.probes[{j}] ({s}): {err}"))?;
+                }
             }
             let label = relative_label(&manifest, &dir);
             routines.push(Routine { entry: e, manifest, label, family, name, library });
@@ -487,11 +494,29 @@ fn expand(routines: &[Routine], dir: &FsPath) -> Vec<Item> {
     items
 }
 
-/// The finding `f` nearly names, when `f` itself names none of the point check's: written with
-/// underscores, or one or two letters off (an expectation that can never hold ran the whole
-/// campaign and read "not as expected"; a user-style sweep). Findings of the block and
-/// finite-strain checks and of probes are not listed here: only near misses are refused.
-/// `Ok` for a finding some check or probe can give; else the nearest known finding, if any.
+/// The paths a probe item of `suite` walks: the entry's `paths`, else the manifest's path, else
+/// the suite's own (as the item chooses them).
+fn suite_paths(
+    paths: &[String],
+    dir: &FsPath,
+    manifest: &FsPath,
+    suite: &crate::suite::Suite,
+) -> Result<Vec<tancheck_core::path::Path>> {
+    if !paths.is_empty() {
+        return paths.iter().map(|p| crate::manifest::path_arg(&resolve_path_spec(p, dir))).collect();
+    }
+    let (m, _) = crate::manifest::Manifest::load(manifest)?;
+    match &m.path {
+        Some(p) => {
+            Ok(vec![crate::manifest::path_from_spec(p).map_err(|e| anyhow!("{}: {e}", manifest.display()))?])
+        }
+        None => Ok(suite.path().ok().into_iter().collect()),
+    }
+}
+
+/// `Ok` for a finding some check or probe can give; else the nearest known finding, if any:
+/// written with underscores, or one or two letters off (an expectation that can never hold
+/// ran the whole campaign and read "not as expected"; a user-style sweep).
 fn finding_check(f: &str) -> Result<(), Option<&'static str>> {
     // Findings of every family: a point check's (its causes and these), a block check's, a
     // finite-strain check's, and a probe item's (a probe's name).

@@ -300,13 +300,14 @@ fn run_found(c: &Campaign, item: &Item, library: Option<&FsPath>) -> Result<Foun
             })
         }
         Task::Probe(suite_file, _) => {
-            let mut suite = crate::suite::Suite::load(suite_file).map_err(|e| anyhow!("{e}"))?;
+            let suite = crate::suite::Suite::load(suite_file).map_err(|e| anyhow!("{e}"))?;
             // The item's path when it has one, else the manifest's, else the suite's.
             let path = match (&item.path, &m.path) {
                 (Some(_), _) | (None, Some(_)) => path,
                 (None, None) => suite.path().map_err(anyhow::Error::msg)?,
             };
-            let _ = suite.fit_at(&path);
+            // Checked when the campaign was read; a path that changed since is bad input.
+            suite.check_at(&path).map_err(|e| anyhow!("{}: {e}", suite_file.display()))?;
             let rep =
                 crate::session::run_probe_suite(&m, &dir, &file, &suite, &path, Some(suite_file), false)?;
             let failed: Vec<_> =
