@@ -29,6 +29,8 @@ enum Tamper {
     /// Asks for a smaller increment (`TC_BLOCK_STATUS_SMALLER_INCREMENT`) when a point's
     /// strain increment has an entry above 6e-4, with the fraction it could manage.
     AsksSmaller,
+    /// Stress falling along every increment from the first (a negative stiffness of 1000).
+    SoftensAtOnce,
 }
 
 thread_local! {
@@ -84,6 +86,12 @@ impl<M: BlockModel> BlockModel for Tampered<M> {
                 }
                 Tamper::ElasticResponseWrites if input.elastic_response => {
                     output.state[p * ns] = input.state_start[p * ns] + 1e-3;
+                }
+                Tamper::SoftensAtOnce if !input.elastic_response => {
+                    let n = self.inner.info().ncomp;
+                    for i in p * n..(p + 1) * n {
+                        output.stress[i] = input.stress_start[i] - input.strain_increment[i] * S::cst(1000.0);
+                    }
                 }
                 Tamper::ElasticResponseShear if input.elastic_response => {
                     let n = self.inner.info().ncomp;
@@ -314,4 +322,17 @@ fn increments_a_block_routine_refuses_are_cut() {
     let plain = j2_check(j2());
     assert_eq!(plain.increments.len(), 9);
     assert!(plain.notes.iter().all(|n| !n.contains("smaller increment")), "{:#?}", plain.notes);
+}
+
+// Where the declared softening starts in the first increment, the refinement note says so (it
+// said the point was deleted in the first increment, with no point deleted; a user-style
+// sweep).
+#[test]
+fn refinement_names_softening_from_the_first_increment() {
+    let settings =
+        tancheck_core::block::BlockSettings { softening: true, ..j2_settings(EnergyRule::Trapezoid) };
+    let mut r = BlockModelRoutine(Tampered { inner: j2(), tamper: Tamper::SoftensAtOnce });
+    let rep = block::run(&mut r, &J2_PROPS, &j2_path(), &settings).unwrap();
+    let note = rep.notes.iter().find(|n| n.starts_with("refinement:")).expect("a refinement note");
+    assert!(note.contains("softens") && !note.contains("deleted"), "{note}");
 }

@@ -466,15 +466,30 @@ fn tangent_findings(
         along > 1.0 + s.stiffness_tolerance || (!s.softening && m > m_el * (1.0 + s.stiffness_tolerance));
     if stiffer {
         let (_, dt_el) = wave(m_el, s);
-        report.add(
-            BlockCheck::Tangent,
-            "stiffer-than-elastic",
-            Some(index),
+        let what = if m > m_el * (1.0 + s.stiffness_tolerance) {
             format!(
                 "effective dilatational modulus {m:.6e} (along the increment {along:.4} of the elastic \
                  stiffness) exceeds the elastic one {m_el:.6e} of the first call by {:.3} %: the stable \
                  time increment L/c falls to {dt:.4e} from {dt_el:.4e}",
                 100.0 * (m / m_el - 1.0)
+            )
+        } else {
+            // The stiffness along the increment alone (the message gave the dilatational modulus
+            // "exceeding" by -0.000 %; a user-style sweep).
+            format!(
+                "along the increment's direction the effective stiffness is {along:.4} times the elastic \
+                 stiffness of the first call ({:.3} % more; the dilatational modulus {m:.6e} against {m_el:.6e})",
+                100.0 * (along - 1.0)
+            )
+        };
+        report.add(
+            BlockCheck::Tangent,
+            "stiffer-than-elastic",
+            Some(index),
+            format!(
+                "{what}; a routine that really stiffens (cooling with a temperature-dependent modulus, \
+                 compaction) needs a solver that takes its wave speed from each increment, not from the \
+                 first call"
             ),
         );
     }

@@ -64,9 +64,11 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
     // Declared softening: only the increments before the first one that softens along its own
     // direction (the walk of one point measured it); where softening starts depends on the
     // increment size much as deletion does.
+    let mut softening_from = None;
     if s.softening {
         if let Some(k) = report.increments.iter().position(|i| i.along_ratio < 0.0) {
             alive = alive.min(k);
+            softening_from = Some(k + 1);
         }
     }
     let dist = |a: &[f64], b: &[f64], alive: usize| {
@@ -101,7 +103,16 @@ pub fn check(w: BlockWalk<'_>, report: &mut BlockReport) {
         // depends on the increment size, and a deleted point's zero stress is no limit to
         // converge to.
         if alive == 0 {
-            report.notes.push("refinement: the point is deleted in the first increment; not checked".into());
+            // Said for what stopped it (it blamed deletion where the declared softening began
+            // in the first increment; a user-style sweep).
+            report.notes.push(match softening_from {
+                Some(1) => {
+                    "refinement: the point softens (declared softening) from the first increment, where \
+                            the response depends on the increment size; not checked"
+                        .into()
+                }
+                _ => "refinement: the point is deleted in the first increment; not checked".into(),
+            });
             return;
         }
         let k = runs.len();
