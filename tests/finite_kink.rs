@@ -114,6 +114,12 @@ fn a_tangent_on_one_side_of_a_kink_passes_and_the_mean_of_the_sides_fails() {
     assert_eq!(rep.verdict, Verdict::TangentFailure, "{rep:#?}");
     assert_eq!(rep.finding.as_deref(), Some("kink-neither-side"), "{rep:#?}");
     assert_eq!(rep.twin_not_safe, None, "{rep:#?}");
+    // The largest difference is shown against a side (the complex step's), not against the
+    // central difference, which gives the mean too and showed no difference (a user-style sweep).
+    for i in rep.increments.iter().filter(|i| !i.passed) {
+        let w = i.worst_entries.first().expect("the entries of a failure");
+        assert!((w.returned - w.numerical).abs() > 1e-3 * w.numerical.abs(), "{i:#?}");
+    }
 }
 
 // A path on which J = det F stays 1 (simple shear, the default path) cannot show a tangent
