@@ -313,3 +313,30 @@ fn an_output_folder_that_does_not_exist_is_bad_input_before_the_run() {
         assert!(!t.contains("verdict"), "the routine did not run: {t}");
     }
 }
+
+// A probe in which the routine faulted reads FAULT on the page, as the verdict and the JUnit
+// report say (its row and heading showed a red FAIL beside a verdict of FAULT; a user-style
+// sweep).
+#[test]
+fn a_probe_that_met_a_fault_reads_fault_on_the_page() {
+    let d = out_dir().join("probe-fault");
+    std::fs::create_dir_all(&d).unwrap();
+    let lib = d.join("libmisbehave.so");
+    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
+    tancheck::abi::build_library(&tancheck::abi::BuildOptions::new([src], &lib)).unwrap();
+    let m = d.join("m.json");
+    std::fs::write(
+        &m,
+        format!(
+            r#"{{ "routine": {{ "library": "{}", "symbol": "bad_null_deref", "kind": "solid-3d", "states": 0, "properties": [210000, 0.3] }},
+  "path": {{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 4 }} }}"#,
+            lib.display()
+        ),
+    )
+    .unwrap();
+    let page = d.join("probe.html");
+    tancheck(&["probe".as_ref(), m.as_os_str(), "--html".as_ref(), page.as_os_str(), "-q".as_ref()], 3);
+    let html = std::fs::read_to_string(&page).unwrap();
+    assert!(html.contains(r#"<span class="badge fault">FAULT</span>"#), "{html}");
+    assert!(!html.contains(r#"<span class="badge fail">FAIL</span>"#), "{html}");
+}

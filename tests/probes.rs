@@ -433,85 +433,6 @@ fn the_default_suites_do_not_assume_a_symmetric_tangent() {
     }
 }
 
-/// J2 whose tangent is computed at the first call of each increment number and returned to
-/// every later call with that number (a cache keyed on the increment, as a routine that
-/// computes its tangent "once per increment" has), or whose start state is read at that first
-/// call and used for the later ones (the one static every point of an element shares).
-struct PerIncrement {
-    inner: tancheck::core::ModelRoutine<tancheck::models::AnyModel>,
-    state_too: bool,
-    kept: Option<(i32, Vec<f64>, Vec<f64>)>,
-}
-
-impl Routine for PerIncrement {
-    fn info(&self) -> &tancheck::core::RoutineInfo {
-        self.inner.info()
-    }
-    fn call(
-        &mut self,
-        input: &tancheck::core::CallInput<'_, f64>,
-        output: &mut tancheck::core::CallOutput<'_, f64>,
-    ) -> Result<(), tancheck::core::Fault> {
-        match &self.kept {
-            Some((k, state0, tangent)) if *k == input.increment => {
-                if self.state_too {
-                    let state0 = state0.clone();
-                    let shared = tancheck::core::CallInput { state0: &state0, ..*input };
-                    self.inner.call(&shared, output)?;
-                } else {
-                    self.inner.call(input, output)?;
-                    if input.want_tangent {
-                        output.tangent.copy_from_slice(tangent);
-                    }
-                }
-            }
-            _ => {
-                self.inner.call(input, output)?;
-                self.kept = Some((input.increment, input.state0.to_vec(), output.tangent.to_vec()));
-            }
-        }
-        Ok(())
-    }
-}
-
-// The hidden-state probe calls the increment from another start state (the increment
-// before's) under the increment's own number, after its own call, and under a number no call
-// had: a routine keeping its tangent or its start state per increment number gives the two
-// other results (both passed every probe and the check; a user-style sweep). The reference
-// J2 passes.
-#[test]
-fn results_kept_per_increment_number_fail_the_hidden_state_probe() {
-    use tancheck::core::probe::ProbeSpec;
-    use tancheck::core::{Path, Shape};
-    let props = [200000.0, 0.3, 250.0, 1000.0, 0.0, 0.0, 500.0];
-    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
-    let probe = |r: &mut dyn Routine| {
-        let info = r.info().clone();
-        let mut caller = Caller::new(r);
-        let start = PointState::zero(&info, 20.0);
-        let rep = run_suite(
-            &mut caller,
-            "h",
-            &[ProbeSpec::named("hidden-state")],
-            &props,
-            &start,
-            &path,
-            &Settings::default(),
-        )
-        .unwrap();
-        rep.results[0].clone()
-    };
-    for state_too in [false, true] {
-        let mut r =
-            PerIncrement { inner: reference("j2", PointKind::Solid3d).unwrap(), state_too, kept: None };
-        let p = probe(&mut r);
-        assert_eq!(p.status, ProbeStatus::Fail, "state too: {state_too}: {p:#?}");
-        assert!(p.summary.contains("keeps results per increment number"), "{}", p.summary);
-    }
-    let mut j2 = reference("j2", PointKind::Solid3d).unwrap();
-    assert_eq!(probe(&mut j2).status, ProbeStatus::Pass);
-}
-
 /// A standard linear solid on a uniaxial point (a spring E∞ beside a Maxwell arm E₁ with time
 /// constant τ), updated exactly for a constant strain rate over the increment: the arm's
 /// stress h(t) = b + (h₀ − b) e^{−t/τ} with b = E₁τ Δε/Δt. Stored energy ½E∞ε² + ½h²/E₁,
@@ -592,4 +513,12 @@ fn a_viscoelastic_routine_with_exact_energies_passes_the_energy_probe() {
     for p in &rep.results {
         assert_eq!(p.status, ProbeStatus::Pass, "{p:#?}");
     }
+    // The plot's work is the work the balance was judged with: it ends where the reported
+    // Ψ + D ends (the trapezoid rule drew a gap of 1.5 % on a passing page; a user-style sweep).
+    let energy = &rep.results[0];
+    let end = |name: &str| {
+        energy.series.iter().find(|s| s.name.starts_with(name)).unwrap().points.last().unwrap()[1]
+    };
+    let (work, total) = (end("work"), end("Ψ + D"));
+    assert!((work - total).abs() <= 1e-6 * total.abs(), "work {work:e}, Ψ + D {total:e}");
 }

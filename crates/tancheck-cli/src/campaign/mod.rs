@@ -7,6 +7,7 @@
 
 pub mod build;
 pub mod file;
+mod findings;
 pub mod item;
 pub mod run;
 mod stamp;

@@ -14,6 +14,7 @@ pub mod along;
 pub mod counterpart;
 mod cutback;
 mod damage;
+pub mod elastic;
 pub mod history;
 pub mod independence;
 mod numeric;

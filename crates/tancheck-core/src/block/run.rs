@@ -2,6 +2,7 @@
 //! point independence and increment refinement, gathered in a [`BlockReport`].
 
 use super::along;
+use super::elastic;
 use super::history;
 use super::independence;
 use super::rate;
@@ -48,7 +49,7 @@ pub fn run(
         energy_rule: settings.energy_rule.name(),
         ..BlockReport::default()
     };
-    let Some(moduli) = along::elastic_response(routine, properties, settings, &mut report) else {
+    let Some(moduli) = elastic::elastic_response(routine, properties, settings, &mut report) else {
         return Ok(report);
     };
     // Increments the routine refuses as too large are cut, as a solver cuts its time
@@ -60,7 +61,7 @@ pub fn run(
         incs = cut;
         report.notes.push(note);
     }
-    along::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
+    elastic::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
     let mut w = BlockWalk { routine, properties, incs: &incs, settings };
     if settings.independence {

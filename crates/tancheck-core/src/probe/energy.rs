@@ -207,14 +207,19 @@ impl Probe for Energy {
         let mut prev_stored: Option<f64> = None;
         let mut worst_balance = 0.0f64;
         let mut scale = 0.0f64;
-        // For the plot: the work done along the path (trapezoid rule over each increment, no
-        // extra calls) beside the reported stored and dissipated energies.
+        // For the plot: the work done along the path beside the reported stored and dissipated
+        // energies: in each increment whose balance is judged the work the balance used
+        // (Simpson's rule within the increment), elsewhere the trapezoid rule (no extra calls).
+        // The trapezoid rule alone drew a gap of 1.5 % on a routine whose balance held to
+        // 1e-10 (a user-style sweep).
         let (mut work, mut work_curve, mut stored_curve, mut diss_curve) =
             (0.0, Vec::new(), Vec::new(), Vec::new());
         let walked = walk(caller, env, |k, d, c| {
-            work += 0.5 * (dot(&w, &d.start().stress, d.dstrain()) + dot(&w, &d.base.stress, d.dstrain()));
-            work_curve.push([k as f64, work]);
+            let trapezoid =
+                0.5 * (dot(&w, &d.start().stress, d.dstrain()) + dot(&w, &d.base.stress, d.dstrain()));
             if !d.base.outcome.provides(provides::ENERGY) {
+                work += trapezoid;
+                work_curve.push([k as f64, work]);
                 reports = false;
                 return Ok(());
             }
@@ -234,19 +239,24 @@ impl Probe for Energy {
             }
             // The balance holds for isothermal increments; heating changes the stored energy
             // without mechanical work.
+            let mut increment_work = trapezoid;
             if env.spec.runs_at(k) && d.dtemp() == 0.0 {
                 if let (Some(s0), Some(d0)) = (prev_stored, prev_diss) {
                     let change = stored - s0 + diss - d0;
-                    let mut bal = (change - work_along(d, c, &w, 16)?).abs();
+                    increment_work = work_along(d, c, &w, 16)?;
+                    let mut bal = (change - increment_work).abs();
                     // Simpson's rule over a kink inside the increment (yield, damage onset)
                     // converges only as the square of the interval: look again with finer ones
                     // before calling a mismatch.
                     if bal > 0.1 * tol * scale {
-                        bal = (change - work_along(d, c, &w, 256)?).abs();
+                        increment_work = work_along(d, c, &w, 256)?;
+                        bal = (change - increment_work).abs();
                     }
                     worst_balance = worst_balance.max(bal);
                 }
             }
+            work += increment_work;
+            work_curve.push([k as f64, work]);
             prev_diss = Some(diss);
             prev_stored = Some(stored);
             Ok(())
@@ -307,7 +317,10 @@ impl Probe for Energy {
             r.series.push(curve("Ψ + D reported (matched to the work at increment 1)", total));
             r.series.push(curve("dissipated D reported", diss_curve));
         }
-        r.series.push(curve("work ∫σ·dε (trapezoid rule along the path)", work_curve));
+        r.series.push(curve(
+            "work ∫σ·dε (as the balance is judged: Simpson's rule within each increment)",
+            work_curve,
+        ));
         Ok(r)
     }
 }

@@ -36,7 +36,7 @@ impl Probe for HiddenState {
     }
     fn run(&self, caller: &mut Caller<'_>, env: &ProbeEnv<'_>) -> Result<ProbeResult, CoreError> {
         let mut first = None;
-        let mut keyed: Option<(usize, Difference)> = None;
+        let mut keyed: Option<(usize, (Kept, Difference))> = None;
         let (mut probed, mut refused) = (0usize, Vec::new());
         // The start state of the increment before (C's start).
         let mut before: Option<crate::driver::PointState> = None;
@@ -100,11 +100,9 @@ impl Probe for HiddenState {
                 refused
             )
         });
-        if let (None, Some((k, (what, i, x, y, rel)))) = (&first, keyed) {
-            let mut r = ProbeResult::new(
-                "hidden-state",
-                ProbeStatus::Fail,
-                format!(
+        if let (None, Some((k, (kept, (what, i, x, y, rel))))) = (&first, keyed) {
+            let why = match kept {
+                Kept::PerNumber => format!(
                     "at increment {k}, a call from another start state (the start of the increment before, as \
                      another point of the element has) gave other results under the increment's own number, \
                      after the increment's call, than under a number no other call had ({what}[{i}]: {x:e} \
@@ -112,7 +110,15 @@ impl Probe for HiddenState {
                      tangent or start state saved at the first call of an increment and used for the later \
                      ones, a static variable every point shares?)"
                 ),
-            );
+                Kept::FromTheCallBefore => format!(
+                    "at increment {k}, a call from another start state (the start of the increment before, as \
+                     another point of the element has), made twice in a row under one increment number no \
+                     other call had, gave other results the second time ({what}[{i}]: {x:e} then {y:e}, \
+                     relative {rel:.1e}): the routine's results depend on the call made before (a saved or \
+                     static variable read in place of the start state it is given?)"
+                ),
+            };
+            let mut r = ProbeResult::new("hidden-state", ProbeStatus::Fail, why);
             r.increment = Some(k);
             r.value = Some(rel);
             return Ok(r);
@@ -162,10 +168,21 @@ impl Probe for HiddenState {
     }
 }
 
+/// What call C found: results kept per increment number, or results that depend on the
+/// call made before (C made twice in a row under one new number gave two answers).
+#[derive(Clone, Copy, Debug, PartialEq)]
+enum Kept {
+    PerNumber,
+    FromTheCallBefore,
+}
+
 /// Call C (increment `k`'s strain and temperature increments from `prev`, the start of the
-/// increment before) under the number `k`, after the increment's own calls, and under `far`,
-/// a number no call had: the outputs' largest difference when they differ. A call C the
-/// routine refuses with a status is no finding (another start may not take this increment).
+/// increment before) under the number `k`, after the increment's own calls, then twice under
+/// `far`, a number no call had: the outputs' largest difference when they differ, and which
+/// kind of keeping it shows (the two calls under `far` differing: the call before, not the
+/// number, made the difference; a routine reading its previous call's result was said to keep
+/// results per increment number; a user-style sweep). A call C the routine refuses with a
+/// status is no finding (another start may not take this increment).
 fn per_increment_number(
     c: &mut Caller<'_>,
     env: &ProbeEnv<'_>,
@@ -173,12 +190,12 @@ fn per_increment_number(
     prev: crate::driver::PointState,
     k: usize,
     far: usize,
-) -> Result<Option<Difference>, crate::routine::Fault> {
+) -> Result<Option<(Kept, Difference)>, crate::routine::Fault> {
     let info = c.info().clone();
     let Ok(mut other) = crate::driver::Driver::new(&info, env.props, prev) else { return Ok(None) };
     other.set_increment(d.dstrain(), d.dtemp(), d.dtime());
-    let mut outputs = Vec::with_capacity(2);
-    for number in [k, far] {
+    let mut outputs = Vec::with_capacity(3);
+    for number in [k, far, far] {
         other.set_count(i32::try_from(number).unwrap_or(i32::MAX));
         match other.base_call(c) {
             Ok(()) => outputs.push((
@@ -190,11 +207,15 @@ fn per_increment_number(
             Err(f) => return Err(f),
         }
     }
-    let (a, b) = (&outputs[0], &outputs[1]);
-    if same_bits(&a.0, &b.0) && same_bits(&a.1, &b.1) && same_bits(&a.2, &b.2) {
-        return Ok(None);
+    let differ = |a: &(Vec<f64>, Vec<f64>, Vec<f64>), b: &(Vec<f64>, Vec<f64>, Vec<f64>)| {
+        (!(same_bits(&a.0, &b.0) && same_bits(&a.1, &b.1) && same_bits(&a.2, &b.2))).then(|| {
+            largest_difference(&[("stress", &a.0, &b.0), ("state", &a.1, &b.1), ("tangent", &a.2, &b.2)])
+        })
+    };
+    if let Some(diff) = differ(&outputs[1], &outputs[2]) {
+        return Ok(Some((Kept::FromTheCallBefore, diff)));
     }
-    Ok(Some(largest_difference(&[("stress", &a.0, &b.0), ("state", &a.1, &b.1), ("tangent", &a.2, &b.2)])))
+    Ok(differ(&outputs[0], &outputs[1]).map(|diff| (Kept::PerNumber, diff)))
 }
 
 /// Whether two outputs hold the same values bit for bit.

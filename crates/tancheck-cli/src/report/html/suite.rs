@@ -56,19 +56,13 @@ pub fn probe_page(report: &SuiteReport) -> String {
             if r.status == ProbeStatus::Fail { " class=\"bad\"" } else { "" },
             esc(&r.probe),
             esc(&r.probe),
-            badge(r.status.word()),
+            badge(word(r)),
             esc(&r.summary)
         );
     }
     let _ = writeln!(o, "</table>");
     for r in &report.results {
-        let _ = writeln!(
-            o,
-            "<h2 id=\"probe-{}\">{} {}</h2>",
-            esc(&r.probe),
-            esc(&r.probe),
-            badge(r.status.word())
-        );
+        let _ = writeln!(o, "<h2 id=\"probe-{}\">{} {}</h2>", esc(&r.probe), esc(&r.probe), badge(word(r)));
         let _ = writeln!(o, "<p>{}</p>", esc(&r.summary));
         // One plot per quantity (series that share their y axis).
         let mut axes: Vec<&str> = Vec::new();
@@ -272,6 +266,16 @@ pub fn selftest_page(rows: &[SelftestRow], tool: &str) -> String {
     let _ = writeln!(o, "</table>");
     o.push_str(&footer(tool));
     page(&format!("tancheck selftest — {}", if wrong == 0 { "PASS" } else { "FAIL" }), &o)
+}
+
+/// A probe's badge: FAULT where the routine faulted in it (the page showed FAIL beside a
+/// verdict of FAULT; a user-style sweep), else its status.
+fn word(r: &tancheck_core::probe::ProbeResult) -> &'static str {
+    if r.fault {
+        "FAULT"
+    } else {
+        r.status.word()
+    }
 }
 
 #[cfg(test)]

@@ -527,9 +527,16 @@ pub fn probe_series(title: &str, series: &[ProbeSeries]) -> Option<String> {
                         .filter(|p| p[0].is_finite() && p[1].is_finite() && (!log || p[1] > 0.0))
                         .map(|p| (p[0], p[1]))
                         .collect();
-                    $chart.draw_series(LineSeries::new(p.clone(), colour.stroke_width(2)))?;
+                    // Past the colours, the same colours dashed: a legend of twelve Newton
+                    // runs showed two of each colour drawn alike (a user-style sweep).
+                    if k < CURVES.len() {
+                        $chart.draw_series(LineSeries::new(p.clone(), colour.stroke_width(2)))?;
+                        legend.add(Mark::Line(colour), s.name.clone());
+                    } else {
+                        $chart.draw_series(DashedLineSeries::new(p.clone(), 7, 5, colour.stroke_width(2)))?;
+                        legend.add(Mark::Dashed(colour), s.name.clone());
+                    }
                     $chart.draw_series(p.iter().map(|&q| Circle::new(q, 3, colour.filled())))?;
-                    legend.add(Mark::Line(colour), s.name.clone());
                 }
             }};
         }
