@@ -101,7 +101,8 @@ impl Reporter for Terminal<'_> {
 /// One increment, short: its strain increment and what else it carries (the time increment
 /// when it is not 1), each number in full (a shrunk value such as 9.9999976e-1 must not read 1).
 pub(crate) fn increment_text(i: &tancheck_core::path::PathIncrement) -> String {
-    let d: Vec<String> = i.dstrain.iter().map(|x| format!("{x:e}")).collect();
+    // A zero that shrinking left negative reads 0e0, not -0e0.
+    let d: Vec<String> = i.dstrain.iter().map(|&x| format!("{:e}", if x == 0.0 { 0.0 } else { x })).collect();
     let mut s = format!("Δε [{}]", d.join(", "));
     if i.dtemp != 0.0 {
         s.push_str(&format!(", ΔT {:e}", i.dtemp));
