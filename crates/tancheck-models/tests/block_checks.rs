@@ -233,6 +233,8 @@ fn an_elastic_response_that_updates_the_state_is_named() {
     let r = j2_check(Tampered { inner: j2(), tamper: Tamper::ElasticResponseWrites });
     assert_eq!(r.finding(), "elastic-response-updates", "{:#?}", r.findings);
     assert_eq!(r.findings[0].increment, Some(0));
+    // The output it changed is named.
+    assert!(r.findings[0].what.contains("changed state[0] of point 0"), "{}", r.findings[0].what);
 }
 
 // A first call whose shear modulus alone is wrong: the message names the entry and says the

@@ -50,17 +50,37 @@ pub fn elastic_response(
         );
         return None;
     }
-    let kept = b.state.iter().zip(&b.state_start).all(|(a, o)| a == o)
-        && b.energy.iter().all(|e| e.internal == 0.0 && e.dissipated == 0.0)
-        && b.deleted.iter().all(|&d| d == 0);
-    if !kept {
+    // The first output it changed, named (the finding said only "the state, the energies or
+    // the deleted flags"; a user-style sweep).
+    let ns = b.nstate.max(1);
+    let changed = b
+        .state
+        .iter()
+        .zip(&b.state_start)
+        .position(|(a, o)| a.to_bits() != o.to_bits())
+        .map(|i| {
+            format!("state[{}] of point {} from {:e} to {:e}", i % ns, i / ns, b.state_start[i], b.state[i])
+        })
+        .or_else(|| {
+            b.energy.iter().enumerate().find(|(_, e)| e.internal != 0.0 || e.dissipated != 0.0).map(
+                |(p, e)| {
+                    format!(
+                        "the energies of point {p} to internal {:e}, dissipated {:e}",
+                        e.internal, e.dissipated
+                    )
+                },
+            )
+        })
+        .or_else(|| b.deleted.iter().position(|&d| d != 0).map(|p| format!("the deleted flag of point {p}")));
+    if let Some(what) = changed {
         report.add(
             BlockCheck::ElasticResponse,
             "elastic-response-updates",
             Some(0),
-            "the elastic response (zero time, zero increment) changed the state, the energies or \
-             the deleted flags; it must update nothing"
-                .into(),
+            format!(
+                "the elastic response (zero time, zero increment) changed {what}; it must update nothing (the \
+                 state, the energies and the deleted flags stay as they were)"
+            ),
         );
     }
     let m = dilatational(&moduli, n);
