@@ -112,8 +112,10 @@ fn probe_plot_words(probe: &str, y: &str) -> (String, String) {
         ),
         "energy" => (
             "energy balance along the path".into(),
-            "The work done along the path (trapezoid rule over each increment) beside the stored and \
-             dissipated energies the routine reports."
+            "The work done along the path, as the balance is judged (Simpson's rule within each increment \
+             whose balance is checked, the trapezoid rule elsewhere), beside the stored and dissipated \
+             energies the routine reports; Ψ + D is matched to the work at increment 1, whose start \
+             energies are not reported, so a mismatch in increment 1 alone does not show here."
                 .into(),
         ),
         other => (format!("{other} probe: {y}"), format!("Curves measured by the {other} probe.")),
