@@ -160,3 +160,66 @@ fn a_comparison_set_aside_at_the_limit_is_said_in_the_notes() {
     let note = t.lines().find(|l| l.contains("note: increment 2:")).unwrap_or_else(|| panic!("{t}"));
     assert!(note.contains("its central ∂σ/∂T comparison is set aside"), "{note}");
 }
+
+/// The thermo model whose ∂σ/∂T is taken at the start temperature: the same call made again
+/// with the temperature increment left out gives the ∂σ/∂T it returns (moduli and expansion
+/// at T₀ where the update uses T₀ + ΔT), all else as the model returns it.
+struct StartTemperatureDtemp(tancheck::core::ModelRoutine<tancheck::models::AnyModel>);
+
+impl tancheck::core::Routine for StartTemperatureDtemp {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        let n = output.stress.len();
+        let (mut s, mut st, mut t, mut dt, mut e) =
+            (vec![0.0; n], vec![0.0; output.state.len()], vec![0.0; n * n], vec![0.0; n], [0.0; 2]);
+        let mut o = tancheck::core::routine::Outcome::default();
+        let mut at_start = tancheck::core::CallOutput {
+            stress: &mut s,
+            state: &mut st,
+            tangent: &mut t,
+            dstress_dtemp: &mut dt,
+            energy: &mut e,
+            outcome: &mut o,
+        };
+        let start = tancheck::core::CallInput { temp: [input.temp[0], 0.0], ..*input };
+        self.0.call(&start, &mut at_start)?;
+        self.0.call(input, output)?;
+        output.dstress_dtemp.copy_from_slice(&dt);
+        Ok(())
+    }
+}
+
+// A ∂σ/∂T taken at the start temperature is named `start-temperature` (its discrepancy falls
+// in proportion to the temperature increment): it was named by shape, "the thermal expansion
+// term off by a factor" near 1, also with a constant expansion coefficient (a user-style
+// sweep). The model with a term of ∂σ/∂T left out is still `dtemp-partial` (above).
+#[test]
+fn a_dtemp_taken_at_the_start_temperature_is_named_so() {
+    use tancheck::core::report::Keep;
+    use tancheck::core::{check, Caller, Path, PointKind, PointState, Settings, Shape};
+    let mut r = StartTemperatureDtemp(tancheck::models::reference("thermo", PointKind::Solid3d).unwrap());
+    let info = tancheck::core::Routine::info(&r).clone();
+    let mut path = Path::ramp(Shape::TensionShear, 2e-3, 4, 0);
+    for inc in &mut path.increments {
+        inc.dtemp = 15.0;
+    }
+    let props = [210000.0, 0.3, 1e-5, 1.0, 1.0, 0.0];
+    let mut caller = Caller::new(&mut r);
+    let rep = check::run_with(
+        &mut caller,
+        &props,
+        PointState::zero(&info, 300.0),
+        &path,
+        &Settings::default(),
+        Keep::Failures,
+        &mut |_| {},
+    )
+    .unwrap();
+    assert_eq!(rep.finding(), "start-temperature", "{:#?}", rep.increments.first().map(|i| &i.diagnosis));
+}

@@ -549,6 +549,7 @@ fn decide_tangent(o: &Observed) -> Decision {
 fn dtemp_finding(o: &Observed) -> String {
     match o.dtemp_causes.iter().find(|h| h.explains) {
         Some(h) if h.cause == Cause::PartialDtemp => "dtemp-partial".into(),
+        Some(h) if h.cause == Cause::StartTemperature => Cause::StartTemperature.name().into(),
         _ => "dtemp".into(),
     }
 }

@@ -22,6 +22,7 @@ use crate::settings::Settings;
 pub mod causes;
 pub mod corner;
 pub mod decide;
+mod dtemp_start;
 pub mod kink;
 pub mod settle;
 mod stiffness;
@@ -230,7 +231,27 @@ pub fn run(
     let dtemp_causes = match ctx.dtemp {
         Some((ret, num)) => {
             let reference = dtemp_kink.as_ref().filter(|k| k.detected).map_or(num, |k| k.closest_side());
-            causes::rank_dtemp(conv, ret, reference, &driver.base.stress, settings.central.tol, ef)
+            let mut hs =
+                causes::rank_dtemp(conv, ret, reference, &driver.base.stress, settings.central.tol, ef);
+            // Taken at the start temperature (see `dtemp_start`), away from a kink in the
+            // temperature: named first, the shapes it leaves behind no longer explaining.
+            if !dtemp_kink.as_ref().is_some_and(|k| k.detected) {
+                let full = compare_dtemp_floor(
+                    conv,
+                    ret,
+                    num,
+                    crate::compare::Limits::new(1.0, ef, 0),
+                    ctx.dtemp_floor,
+                )
+                .error();
+                let branch = driver.base.outcome.branch;
+                if let Some(h) = dtemp_start::trial(driver, caller, settings, full, branch, ctx.dtemp_floor)?
+                {
+                    hs.iter_mut().for_each(|x| x.explains = false);
+                    hs.insert(0, h);
+                }
+            }
+            hs
         }
         None => Vec::new(),
     };

@@ -134,7 +134,7 @@ pub(super) fn try_local(ev: &Evidence<'_>, found: &mut Found) {
 /// Whether the errors of a refinement fall in proportion to the fraction (each ratio of
 /// successive errors over the ratio of fractions within 25 % of 1), and what is left of the
 /// error extrapolated linearly to a vanishing fraction. None for fewer than three fractions.
-fn proportional(rf: &Refinement) -> Option<(bool, f64)> {
+pub(crate) fn proportional(rf: &Refinement) -> Option<(bool, f64)> {
     let e = &rf.errors;
     // Why 3: two ratios of successive errors are the fewest that show a trend, not a point.
     if e.len() < 3 {

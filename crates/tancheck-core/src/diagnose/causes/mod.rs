@@ -21,6 +21,7 @@ mod tests;
 pub use dtemp::rank_dtemp;
 use kind::Found;
 pub use kind::{Cause, Evidence, Hypothesis, Refinement};
+pub(crate) use local::proportional;
 
 /// The error a correction may leave and still explain a failure of error `original` against
 /// `tol`. Why: a hypothesis explains the failure when its corrected tangent passes with a
