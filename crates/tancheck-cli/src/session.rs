@@ -107,7 +107,7 @@ pub fn default_path(kind: PointKind) -> Path {
     let mut p = Path::ramp(shape, 4e-3, 8, 4);
     let left = p.leave_out_slots(kind);
     if !left.is_empty() {
-        p.name.push_str(&format!(" (its {} left out for a {} point)", left.join(" and "), kind.name()));
+        p.name.push_str(&format!(" (its {} left out for {} point)", left.join(" and "), kind.with_article()));
     }
     p
 }

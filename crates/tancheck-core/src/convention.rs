@@ -64,6 +64,13 @@ impl PointKind {
         matches!(self, PointKind::Cohesive3d | PointKind::Cohesive2d)
     }
 
+    /// The name with its article: "a plane-strain", "an axisymmetric" (messages read "a
+    /// axisymmetric point"; a user-style sweep).
+    pub fn with_article(self) -> String {
+        let name = self.name();
+        format!("{} {name}", if name.starts_with(['a', 'e', 'i', 'o']) { "an" } else { "a" })
+    }
+
     pub fn name(self) -> &'static str {
         match self {
             PointKind::Solid3d => "solid-3d",
@@ -203,9 +210,9 @@ pub struct Convention {
 #[derive(Debug, Clone, PartialEq, Eq, thiserror::Error)]
 #[non_exhaustive]
 pub enum ConventionError {
-    #[error("component order for {kind} has {got} entries; a {kind} point has {want}: {expected}")]
+    #[error("component order for {kind} has {got} entries; {} point has {want}: {expected}", .kind.with_article())]
     WrongCount { kind: PointKind, got: usize, want: usize, expected: String },
-    #[error("component `{label}` is not part of a {kind} point (its components are {expected})")]
+    #[error("component `{label}` is not part of {} point (its components are {expected})", .kind.with_article())]
     Foreign { kind: PointKind, label: String, expected: String },
     #[error("component `{label}` appears twice in the order")]
     Repeated { label: String },
@@ -427,6 +434,19 @@ pub fn canonical_slot(c: Component) -> usize {
 mod tests {
     use super::*;
     use proptest::prelude::*;
+
+    // "an axisymmetric point", "a plane-strain point" (a message read "a axisymmetric point").
+    #[test]
+    fn kinds_take_their_article() {
+        let e = ConventionError::Foreign {
+            kind: PointKind::Axisymmetric,
+            label: "23".into(),
+            expected: "11, 22, 33, 12".into(),
+        };
+        assert!(e.to_string().contains("not part of an axisymmetric point"), "{e}");
+        assert_eq!(PointKind::PlaneStrain.with_article(), "a plane-strain");
+        assert_eq!(PointKind::Uniaxial.with_article(), "a uniaxial");
+    }
 
     fn arb_solid_convention() -> impl Strategy<Value = Convention> {
         (

@@ -29,9 +29,9 @@ pub(crate) fn check_sizes<S>(
     for (what, got, want) in checks {
         if got != want {
             return Err(Fault::Unsupported(format!(
-                "{}: `{what}` has {got} entries; a {} point of this model takes {want}",
+                "{}: `{what}` has {got} entries; {} point of this model takes {want}",
                 info.name,
-                info.convention.kind()
+                info.convention.kind().with_article()
             )));
         }
     }
