@@ -400,25 +400,31 @@ fn the_debugger_command_stops_in_the_routine() {
     assert!(t.contains("Breakpoint 1, ") && t.contains("c_j2_elastic_first_plastic"), "{t}");
 }
 
-// A routine that crashes from increment 2 on (it reads the increment number): bisect writes
-// the crashing call, and the replay makes exactly that call again, increment number included,
-// and faults the same way; the debugger command breaks in the routine.
-#[test]
-fn a_crashing_call_is_saved_and_replayed_with_its_increment_number() {
-    let d = scratch("crash");
+/// `symbol` of the misbehaving example routines on a uniaxial-strain path of 4 increments,
+/// bisected (it faults: exit 3): the scratch folder, the manifest and bisect's JSON report.
+fn bisect_misbehaving(name: &str, symbol: &str) -> (PathBuf, PathBuf, Value) {
+    let d = scratch(name);
     let lib = d.join("libmisbehave.so");
     let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
     build_library(&BuildOptions::new([src], &lib)).unwrap();
     let m = manifest(
         &d,
-        Source::Library(&lib, "bad_null_deref", 0),
+        Source::Library(&lib, symbol, 0),
         "solid-3d",
         "[210000, 0.3]",
         r#"{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 4 }"#,
     );
     let o = bin().arg("bisect").arg(&m).args(["--json", "-"]).output().unwrap();
-    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
-    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    assert_eq!(o.status.code(), Some(3), "{symbol}: {}", text(&o));
+    (d, m, serde_json::from_slice(&o.stdout).unwrap())
+}
+
+// A routine that crashes from increment 2 on (it reads the increment number): bisect writes
+// the crashing call, and the replay makes exactly that call again, increment number included,
+// and faults the same way; the debugger command breaks in the routine.
+#[test]
+fn a_crashing_call_is_saved_and_replayed_with_its_increment_number() {
+    let (d, _, v) = bisect_misbehaving("crash", "bad_null_deref");
     assert_eq!(v["located"]["increment"], 2, "{v:#}");
     assert_eq!(v["located"]["finding"], "routine-fault");
     // Every fraction of increment 2 crashes: the crash does not start inside it.
@@ -449,20 +455,7 @@ fn a_crashing_call_is_saved_and_replayed_with_its_increment_number() {
 // still differs", with the complex step agreeing exactly; a user-style sweep).
 #[test]
 fn a_crash_in_a_perturbed_call_replays_as_a_fault() {
-    let d = scratch("perturbed-crash");
-    let lib = d.join("libmisbehave.so");
-    let src = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c/misbehave.c");
-    build_library(&BuildOptions::new([src], &lib)).unwrap();
-    let m = manifest(
-        &d,
-        Source::Library(&lib, "bad_perturbed_crash", 0),
-        "solid-3d",
-        "[210000, 0.3]",
-        r#"{ "shape": "uniaxial-strain", "peak": 0.001, "steps": 4 }"#,
-    );
-    let o = bin().arg("bisect").arg(&m).args(["--json", "-"]).output().unwrap();
-    assert_eq!(o.status.code(), Some(3), "{}", text(&o));
-    let v: Value = serde_json::from_slice(&o.stdout).unwrap();
+    let (_, m, v) = bisect_misbehaving("perturbed-crash", "bad_perturbed_crash");
     let case = PathBuf::from(v["cases"][0].as_str().unwrap());
     let (code, r) = replay(&case);
     assert_eq!(code, 3, "{r:#}");
