@@ -496,6 +496,23 @@ fn a_plane_block_routine_takes_the_default_path() {
         tancheck(&["check".as_ref(), p.as_os_str(), "--path".as_ref(), "tension-shear:0.004:8:4".as_ref()]);
     assert_eq!(code, 2, "{out}{err}");
     assert!(err.contains("the built-in shapes tension-shear and mixed-mode have them"), "{err}");
+    // A plane-strain point's ε33 stays 0: a hydrostatic path's ε33 is left out, with a note (it
+    // was driven, as no plane-strain solver does; a user-style sweep).
+    let json = d.join("hydro.json");
+    let (code, out, err) = tancheck(&[
+        "check".as_ref(),
+        p.as_os_str(),
+        "--path".as_ref(),
+        "hydrostatic:0.002:4:2".as_ref(),
+        "--json".as_ref(),
+        json.as_os_str(),
+    ]);
+    assert_eq!(code, 0, "{out}{err}");
+    let report = std::fs::read_to_string(&json).unwrap();
+    assert!(
+        report.contains("slot 33 (first at increment 1); a plane-strain point's ε33 stays 0"),
+        "{out}{report}"
+    );
 }
 
 // A deleted point has no modulus, wave speed or L/c: the page shows a dash there (the JSON has

@@ -85,6 +85,27 @@ fn load_counterpart(m: &Manifest, dir: &FsPath, nstate: usize) -> Result<Option<
     Ok(Some((Box::new(point), c.tolerance)))
 }
 
+/// `path` with a plane-strain point's ε33 left out, and the note saying so; `(None, None)`
+/// when nothing is left out.
+fn plane_strain_path(kind: tancheck_core::PointKind, path: &Path) -> (Option<Path>, Option<String>) {
+    let first = path.increments.iter().position(|inc| inc.dstrain[2] != 0.0);
+    match first {
+        Some(at) if kind == tancheck_core::PointKind::PlaneStrain => {
+            let mut p = path.clone();
+            for inc in &mut p.increments {
+                inc.dstrain[2] = 0.0;
+            }
+            let note = format!(
+                "the path's strain increments have entries in slot 33 (first at increment {}); a plane-strain \
+                 point's ε33 stays 0 and σ33 is the reaction to it: they were left out",
+                at + 1
+            );
+            (Some(p), Some(note))
+        }
+        _ => (None, None),
+    }
+}
+
 /// Load and check the block routine a manifest names.
 pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<BlockReport> {
     let mut routine = load_block(m, dir)?;
@@ -107,6 +128,10 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
         );
     }
     let s = settings(spec, m.start.temperature, state0);
+    // A plane-strain point's ε33 stays 0, as at a point routine (`PointKind::path_slots`): a
+    // path's ε33 is left out, with a note.
+    let (kept, left_out) = plane_strain_path(m.routine.kind, path);
+    let path = kept.as_ref().unwrap_or(path);
     // The counterpart is loaded, and its sizes compared, before any check runs: sizes that do
     // not fit are bad input (they were a finding, exit 1, after the whole check; a user-style
     // sweep).
@@ -138,6 +163,7 @@ pub fn run_block_manifest(m: &Manifest, dir: &FsPath, path: &Path) -> Result<Blo
             return Err(e);
         }
     };
+    report.notes.splice(0..0, left_out);
     if let Some((mut point, tol)) = counterpart {
         let incs = block::block_increments(path, routine.info().ncomp).map_err(anyhow::Error::msg)?;
         block::counterpart::check(

@@ -90,7 +90,8 @@ struct CheckArgs {
     manifest: PathBuf,
     /// Path to walk instead of the manifest's: a path file (JSON, like a manifest's "path"), or
     /// SHAPE:PEAK:STEPS[:BACK] (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic,
-    /// tension-shear, mixed-mode, and uniaxial-stress, which holds every stress but 11 at zero).
+    /// tension-shear, mixed-mode, and uniaxial-stress, which holds every stress but 11 at zero; a
+    /// plane-strain point keeps ε33 at zero and σ33 free).
     #[arg(long, value_name = "FILE|SPEC")]
     path: Option<String>,
     /// Scheme to run (repeat for several): forward, backward, central, central4, richardson,

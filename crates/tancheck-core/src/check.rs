@@ -78,6 +78,7 @@ fn run_path(
     outside_kind(&conv, path)?;
     let mut notes = Vec::new();
     notes.extend(dropped_entries(&conv, path));
+    notes.extend(released_holds(&conv, path));
     if settings.schemes.contains(&Scheme::ComplexStep) && !has_twin {
         notes.push(format!(
             "complex-step checks skipped: {} has no complex twin (build it with `tancheck build`, \
@@ -444,7 +445,7 @@ impl Merged {
 /// out itself, and says so in its name.
 fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
     use crate::path::SLOT_NAMES as SLOTS;
-    let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
+    let used = conv.kind().path_slots();
     let mut dropped = [false; 6];
     let mut first = None;
     for (k, inc) in path.increments.iter().enumerate() {
@@ -457,17 +458,46 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
     }
     let first = first?;
     let names: Vec<&str> = (0..6).filter(|&i| dropped[i]).map(|i| SLOTS[i]).collect();
-    let takes: Vec<String> = conv
-        .order()
-        .iter()
-        .map(|&c| format!("{} from slot {}", c.label(), SLOTS[crate::convention::canonical_slot(c)]))
-        .collect();
     Some(format!(
         "the path's strain increments have entries in slot{} {} (first at increment {first}), which the routine's kind ({}) does not have ({}): they were left out",
         if names.len() == 1 { "" } else { "s" },
         names.join(", "),
         conv.kind().name(),
-        takes.join(", ")
+        takes(conv)
+    ))
+}
+
+/// What a point of `conv`'s kind takes from a path's slots, for messages: "11 from slot 11,
+/// …", and for a plane-strain point that its ε33 stays 0.
+fn takes(conv: &crate::Convention) -> String {
+    use crate::path::SLOT_NAMES as SLOTS;
+    let used = conv.kind().path_slots();
+    let mut t = conv
+        .order()
+        .iter()
+        .map(|&c| (c, crate::convention::canonical_slot(c)))
+        .filter(|(_, s)| used.contains(s))
+        .map(|(c, s)| format!("{} from slot {}", c.label(), SLOTS[s]))
+        .collect::<Vec<_>>()
+        .join(", ");
+    if conv.kind() == crate::PointKind::PlaneStrain {
+        t.push_str("; its ε33 stays 0 and σ33 is the reaction to it");
+    }
+    t
+}
+
+/// A note when a plane-strain point's increments hold σ33 (at zero: a value other than zero is
+/// refused by [`outside_kind`]): σ33 is the reaction to ε33 = 0 and is not held (the built-in
+/// uniaxial-stress path holds every stress but σ11).
+fn released_holds(conv: &crate::Convention, path: &Path) -> Option<String> {
+    if conv.kind() != crate::PointKind::PlaneStrain {
+        return None;
+    }
+    let first = path.increments.iter().position(|inc| inc.hold_stress.is_some_and(|h| h[2].is_some()))?;
+    Some(format!(
+        "the path holds σ33 at 0 (first at increment {}); a plane-strain point's ε33 stays 0 and its σ33 is \
+         the reaction to it, so σ33 was not held",
+        first + 1
     ))
 }
 
@@ -480,14 +510,7 @@ fn dropped_entries(conv: &crate::Convention, path: &Path) -> Option<String> {
 /// too. Held at zero it is what the kind gives (a plane-stress point's σ33).
 fn outside_kind(conv: &crate::Convention, path: &Path) -> Result<(), CoreError> {
     use crate::path::SLOT_NAMES as SLOTS;
-    let used: Vec<usize> = conv.order().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
-    let takes = || -> String {
-        conv.order()
-            .iter()
-            .map(|&c| format!("{} from slot {}", c.label(), SLOTS[crate::convention::canonical_slot(c)]))
-            .collect::<Vec<_>>()
-            .join(", ")
-    };
+    let used = conv.kind().path_slots();
     for (k, inc) in path.increments.iter().enumerate() {
         let Some(hold) = &inc.hold_stress else { continue };
         if let Some((slot, value)) =
@@ -498,7 +521,7 @@ fn outside_kind(conv: &crate::Convention, path: &Path) -> Result<(), CoreError> 
                 slot: SLOTS[slot].into(),
                 value,
                 kind: conv.kind().name().to_string(),
-                takes: takes(),
+                takes: takes(conv),
             });
         }
     }
@@ -520,7 +543,7 @@ fn outside_kind(conv: &crate::Convention, path: &Path) -> Result<(), CoreError> 
     Err(CoreError::PathOutsideKind {
         slots: slots.join(", "),
         kind: conv.kind().name().to_string(),
-        takes: takes(),
+        takes: takes(conv),
     })
 }
 

@@ -60,6 +60,23 @@ impl PointKind {
         self.default_components().len()
     }
 
+    /// The canonical slots (11 22 33 23 13 12 as 0..6) a path drives at a point of this
+    /// kind: its components' slots, but for a plane-strain point not 33, whose strain stays 0
+    /// by its kind (σ33 is the reaction to it; a plane-strain point on a hydrostatic path was
+    /// driven in ε33, which no plane-strain solver does; a user-style sweep). The check still
+    /// perturbs ε33 for the tangent's column 33.
+    pub fn path_slots(self) -> &'static [usize] {
+        match self {
+            PointKind::Solid3d => &[0, 1, 2, 3, 4, 5],
+            PointKind::PlaneStrain => &[0, 1, 5],
+            PointKind::Axisymmetric => &[0, 1, 2, 5],
+            PointKind::PlaneStress => &[0, 1, 5],
+            PointKind::Uniaxial => &[0],
+            PointKind::Cohesive3d => &[0, 1, 2],
+            PointKind::Cohesive2d => &[0, 1],
+        }
+    }
+
     pub fn is_cohesive(self) -> bool {
         matches!(self, PointKind::Cohesive3d | PointKind::Cohesive2d)
     }
@@ -374,10 +391,12 @@ impl Convention {
 
     /// A tensor strain given by its canonical components (11, 22, 33, 23, 13, 12 tensor
     /// values; or n, s1, s2 for cohesive points) → the routine's vector. Components the
-    /// kind lacks are dropped.
+    /// kind lacks are dropped, and a plane-strain point's ε33 is 0 whatever the slot holds
+    /// (its kind holds it there: [`PointKind::path_slots`]).
     pub fn strain_from_canonical(&self, canon: &[f64; 6], out: &mut [f64]) {
+        let fixed33 = self.kind == PointKind::PlaneStrain;
         for (i, c) in self.order.iter().enumerate() {
-            let v = canon[canonical_slot(*c)];
+            let v = if fixed33 && *c == Component::C33 { 0.0 } else { canon[canonical_slot(*c)] };
             out[i] = match (c.is_shear(), self.shear) {
                 (true, ShearMeasure::Engineering) => 2.0 * v,
                 _ => v,

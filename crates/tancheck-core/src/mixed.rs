@@ -74,12 +74,19 @@ pub fn solve(
     solve_with(driver, caller, controlled, targets, settings, use_routine_tangent, true)
 }
 
-/// Routine positions and targets of the stress components a mixed-control increment holds.
+/// Routine positions and targets of the stress components a mixed-control increment holds:
+/// those in the slots a path drives ([`crate::PointKind::path_slots`]; a plane-strain point's
+/// σ33 is the reaction to its ε33 = 0, not held).
 pub fn held_components(conv: &crate::Convention, hold: &[Option<f64>; 6]) -> (Vec<usize>, Vec<f64>) {
     let mut controlled = Vec::new();
     let mut targets = Vec::new();
+    let driven = conv.kind().path_slots();
     for (i, c) in conv.order().iter().enumerate() {
-        if let Some(t) = hold[crate::convention::canonical_slot(*c)] {
+        let slot = crate::convention::canonical_slot(*c);
+        if !driven.contains(&slot) {
+            continue;
+        }
+        if let Some(t) = hold[slot] {
             controlled.push(i);
             targets.push(t);
         }

@@ -135,11 +135,11 @@ impl Shape {
 pub const SLOT_NAMES: [&str; 6] = ["11", "22", "33", "23", "13", "12"];
 
 impl Path {
-    /// Zero the strain entries in the slots `kind` does not have (its default components'
-    /// slots are kept); the names of the slots that held a nonzero entry.
+    /// Zero the strain entries in the slots `kind` does not drive (`PointKind::path_slots`:
+    /// its components' slots but a plane-strain point's 33); the names of the slots that held
+    /// a nonzero entry.
     pub fn leave_out_slots(&mut self, kind: crate::PointKind) -> Vec<&'static str> {
-        let kept: Vec<usize> =
-            kind.default_components().iter().map(|&c| crate::convention::canonical_slot(c)).collect();
+        let kept = kind.path_slots();
         let mut left = Vec::new();
         for slot in (0..6).filter(|s| !kept.contains(s)) {
             if self.increments.iter().any(|inc| inc.dstrain[slot] != 0.0) {

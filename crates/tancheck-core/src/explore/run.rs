@@ -147,9 +147,8 @@ pub fn run(
     settings.jobs = 1;
     let mut quick = settings.clone();
     quick.diagnose = false;
-    let mut slots: Vec<usize> =
-        info.convention.order().iter().map(|c| crate::convention::canonical_slot(*c)).collect();
-    slots.sort_unstable();
+    // The slots a path drives (a plane-strain point's ε33 stays 0).
+    let slots: Vec<usize> = info.convention.kind().path_slots().to_vec();
     let mut notes = Vec::new();
     let mut scales: BTreeMap<Vec<u64>, Scale> = BTreeMap::new();
     let bits = |p: &[f64]| p.iter().map(|x| x.to_bits()).collect::<Vec<u64>>();
