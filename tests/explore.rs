@@ -389,3 +389,40 @@ fn a_routine_without_an_elastic_range_gets_the_fallback_scale() {
     assert!(!s.measured, "{s:?}");
     assert_eq!(s.strain, tancheck::core::explore::scale::FALLBACK_STRAIN, "{s:?}");
 }
+
+/// A stop signal ends the exploration after the path being checked, and the report holds the
+/// paths checked and the failures found so far, with the signal's exit code (it died of the
+/// signal and kept nothing; a user-style sweep). The signal is sent after a wait: the report
+/// is checked whatever was reached by then, and the failure the same seed finds within 40
+/// paths (`finds_the_reversal`) is asked for only when that many paths were checked.
+#[test]
+fn a_stop_signal_keeps_what_was_found() {
+    let d = scratch("explore-stopped");
+    let m = manifest(&d, "rev", &model("j2-reversal"), None);
+    let json = d.join("stopped.json");
+    let child = bin()
+        .arg("explore")
+        .arg(&m)
+        .args(["--seed", "7", "--paths", "1000000", "-q", "--json"])
+        .arg(&json)
+        .stdout(std::process::Stdio::piped())
+        .stderr(std::process::Stdio::piped())
+        .spawn()
+        .unwrap();
+    std::thread::sleep(std::time::Duration::from_secs(3));
+    let sent = Command::new("kill").args(["-INT", &child.id().to_string()]).status().unwrap();
+    assert!(sent.success());
+    let o = child.wait_with_output().unwrap();
+    assert_eq!(o.status.code(), Some(130), "{}", text(&o));
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    assert_eq!(v["kind"], "explore", "{v:#}");
+    assert_eq!(v["stopped_by"], serde_json::json!({ "signal": 2 }), "{v:#}");
+    assert_eq!(v["exit_code"], 130);
+    let paths = v["paths"].as_u64().unwrap();
+    let findings = v["findings"].as_array().unwrap();
+    assert!(findings.iter().all(|f| f["first_path"].as_u64().unwrap() <= paths), "{v:#}");
+    if paths >= 40 {
+        assert!(findings.iter().any(|f| f["finding"] == "term-sign"), "{paths} paths: {v:#}");
+    }
+    eprintln!("stopped after {paths} paths with {} findings", findings.len());
+}

@@ -7,7 +7,7 @@ use std::path::PathBuf;
 use anyhow::{bail, Context, Result};
 use clap::Args;
 
-use tancheck_core::explore::{self, Budget, ExploreSettings, NamedBranch, DEFAULT_PATHS};
+use tancheck_core::explore::{self, Budget, ExploreSettings, NamedBranch, Stop, DEFAULT_PATHS};
 use tancheck_core::Caller;
 
 use crate::case_store::{open_for_manifest, write_case};
@@ -103,9 +103,15 @@ pub fn run(a: &ExploreArgs) -> Result<i32> {
         a.run.output.shows_progress(),
     );
     crate::survive::checking(true);
+    // A stop signal (Ctrl-C, SIGTERM, SIGHUP) ends the exploration after the path being
+    // checked, and the reports hold what it found so far (it died of the signal and kept
+    // nothing; a user-style sweep). A second signal ends the process at once.
+    tancheck_abi::watch::defer_stop(true);
     let result = explore::run(&mut caller, &m.routine.properties, &start, &settings, &ex, &mut |p| {
         bar.set(p.paths as u64);
         bar.message(&format!("exploring: {} signatures, {} findings", p.signatures, p.findings));
+        let stop = tancheck_abi::watch::stop_signal();
+        (stop != 0).then_some(Stop::Signal(stop))
     });
     drop(bar);
     let mut report = result.map_err(|e| anyhow::anyhow!("{file}: {e}"))?;

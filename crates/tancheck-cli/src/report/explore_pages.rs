@@ -58,7 +58,7 @@ pub fn explore_page(r: &ExploreReport) -> String {
         r.mutated,
         r.corpus,
         r.increments,
-        esc(r.stopped_by.words())
+        esc(&r.stopped_by.words())
     );
     let _ = writeln!(
         o,

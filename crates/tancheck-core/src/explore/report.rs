@@ -22,21 +22,34 @@ pub struct Budget {
     pub seconds: Option<f64>,
 }
 
-/// Which limit stopped the exploration.
+/// Which limit stopped the exploration, or the stop signal that did.
 #[derive(Clone, Copy, Debug, PartialEq, Serialize, Deserialize, schemars::JsonSchema)]
 #[serde(rename_all = "kebab-case")]
 pub enum Stop {
     Paths,
     Calls,
     Time,
+    /// A stop signal (its number: 2 SIGINT, 15 SIGTERM, 1 SIGHUP) after the path being
+    /// checked: the report holds the paths checked and the failures found before it.
+    Signal(i32),
 }
 
 impl Stop {
-    pub fn words(self) -> &'static str {
+    pub fn words(self) -> String {
         match self {
-            Stop::Paths => "the path budget (--paths)",
-            Stop::Calls => "the call budget (--calls)",
-            Stop::Time => "the time budget (--time; not reproducible from the seed)",
+            Stop::Paths => "the path budget (--paths)".into(),
+            Stop::Calls => "the call budget (--calls)".into(),
+            Stop::Time => "the time budget (--time; not reproducible from the seed)".into(),
+            Stop::Signal(n) => format!(
+                "{} before the budget was spent (the failures found so far are kept; the seed and a path \
+                 budget of the paths checked give them again)",
+                match n {
+                    1 => "SIGHUP".to_string(),
+                    2 => "SIGINT (Ctrl-C)".to_string(),
+                    15 => "SIGTERM".to_string(),
+                    _ => format!("signal {n}"),
+                }
+            ),
         }
     }
 }
@@ -136,9 +149,14 @@ impl<'r> ExploreDocument<'r> {
 
 impl ExploreReport {
     /// As for `check`: 3 for a routine fault, 1 for a tangent failure, 4 for a twin that is not
-    /// complex-step safe (and nothing worse), 0 when nothing was found.
+    /// complex-step safe (and nothing worse), 0 when nothing was found; 128 + the signal's
+    /// number for an exploration a stop signal ended.
     pub fn exit_code(&self) -> i32 {
-        self.verdict.exit_code()
+        match self.stopped_by {
+            // As every command stopped by a signal: 128 + its number.
+            Stop::Signal(n) => 128 + n,
+            _ => self.verdict.exit_code(),
+        }
     }
 }
 

@@ -129,14 +129,16 @@ fn key_of(r: &Report) -> Key {
     }
 }
 
-/// Explore the routine behind `caller` from `start` with properties `props`.
+/// Explore the routine behind `caller` from `start` with properties `props`. `progress` is
+/// told after each path checked; a stop it returns ends the exploration there (the command
+/// line's on a stop signal), with everything found so far.
 pub fn run(
     caller: &mut Caller<'_>,
     props: &[f64],
     start: &PointState,
     settings: &Settings,
     ex: &ExploreSettings,
-    progress: &mut dyn FnMut(&Progress),
+    progress: &mut dyn FnMut(&Progress) -> Option<Stop>,
 ) -> Result<ExploreReport, CoreError> {
     let info = caller.info().clone();
     ex.validate(info.nprop)?;
@@ -259,12 +261,14 @@ pub fn run(
                 &mut findings,
             )?;
         }
-        progress(&Progress {
+        if let Some(stop) = progress(&Progress {
             paths,
             calls: calls(caller),
             signatures: tally.reached.len(),
             findings: findings.len(),
-        });
+        }) {
+            break stop;
+        }
     };
     if cut > 0 {
         notes.push(format!(
