@@ -59,6 +59,9 @@ pub struct BlockSpec {
     /// The routine softens on purpose (a negative effective stiffness is expected).
     #[serde(default)]
     pub softening: bool,
+    /// The routine stiffens on purpose (an effective stiffness above the elastic one is expected).
+    #[serde(default)]
+    pub stiffening: bool,
     /// Largest stress a deleted point may keep.
     #[serde(default)]
     pub deleted_stress: f64,
@@ -152,6 +155,7 @@ pub fn settings(b: &BlockSpec, temperature: f64, state0: Vec<f64>) -> BlockSetti
         independence_tolerance: b.independence_tolerance.unwrap_or(d.independence_tolerance),
         stiffness_tolerance: b.stiffness_tolerance.unwrap_or(d.stiffness_tolerance),
         softening: b.softening,
+        stiffening: b.stiffening,
         deleted_stress: b.deleted_stress,
         update_order: b.update_order.unwrap_or(d.update_order),
         rate_law: b.rate_law,

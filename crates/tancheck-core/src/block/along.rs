@@ -206,6 +206,7 @@ pub fn walk_one_point(
         b.advance(*dt);
     }
     damage.finish(stopped, report);
+    report.notes.extend(stiffening_note(&report.increments, m_el, s));
     match (deleted_at, stopped) {
         (None, Some(at)) => report.notes.push(format!(
             "deletion: no point was deleted before the walk stopped at increment {at}; the deletion check did not run"
@@ -233,6 +234,39 @@ fn first_non_finite(b: &BlockBuffers) -> String {
         return format!("state[{i}] is {}", b.state[i]);
     }
     format!("the energies are {} (internal), {} (dissipated)", b.energy[0].internal, b.energy[0].dissipated)
+}
+
+/// Whether an increment's effective stiffness (its row's measures) exceeds the elastic one of
+/// the first call: along the increment's own direction, or (without declared softening) its
+/// dilatational modulus.
+fn stiffer_than_elastic(row: &BlockIncrement, m_el: f64, s: &BlockSettings) -> bool {
+    row.along_ratio > 1.0 + s.stiffness_tolerance
+        || (!s.softening && row.effective_modulus > m_el * (1.0 + s.stiffness_tolerance))
+}
+
+/// The note of a routine that declares stiffening and stiffened: from which increment, by how
+/// much at most, and the stable time increment L/c it fell to (a solver must take it from each
+/// increment). A routine that stiffens on purpose, cooling with a temperature-dependent
+/// modulus, failed `stiffer-than-elastic` with nothing to declare (a user-style sweep).
+fn stiffening_note(rows: &[BlockIncrement], m_el: f64, s: &BlockSettings) -> Option<String> {
+    if !s.stiffening {
+        return None;
+    }
+    let stiffer: Vec<&BlockIncrement> = rows.iter().filter(|r| stiffer_than_elastic(r, m_el, s)).collect();
+    let first = stiffer.first()?;
+    let most = stiffer.iter().copied().max_by(|a, b| a.effective_modulus.total_cmp(&b.effective_modulus))?;
+    let (_, dt_el) = wave(m_el, s);
+    let shortest = stiffer.iter().map(|r| r.stable_time_increment).fold(f64::INFINITY, f64::min);
+    Some(format!(
+        "stiffening (declared): the effective stiffness exceeds the elastic one of the first call in {} \
+         increment(s) from increment {}, the dilatational modulus by {:.3} % at most (increment {}); the \
+         stable time increment L/c falls to {shortest:.4e} from {dt_el:.4e}: a solver must take it from each \
+         increment, not from the first call",
+        stiffer.len(),
+        first.index,
+        100.0 * (most.effective_modulus / m_el - 1.0),
+        most.index
+    ))
 }
 
 /// x·A·x for an n × n column-major A.
@@ -275,9 +309,8 @@ fn tangent_findings(
     // counts.
     let along = quadratic(d, de, n) / quadratic(moduli, de, n);
     row.along_ratio = along;
-    let stiffer =
-        along > 1.0 + s.stiffness_tolerance || (!s.softening && m > m_el * (1.0 + s.stiffness_tolerance));
-    if stiffer {
+    // Declared stiffening is said in one note after the walk (`stiffening_note`).
+    if stiffer_than_elastic(row, m_el, s) && !s.stiffening {
         let (_, dt_el) = wave(m_el, s);
         let what = if m > m_el * (1.0 + s.stiffness_tolerance) {
             format!(

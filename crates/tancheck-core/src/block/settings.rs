@@ -54,6 +54,10 @@ pub struct BlockSettings {
     pub stiffness_tolerance: f64,
     /// The routine declares softening: a negative effective stiffness is expected.
     pub softening: bool,
+    /// The routine declares stiffening (a modulus that rises as it cools, compaction): an
+    /// effective stiffness above the first call's elastic one is expected and reported in a
+    /// note with the stable time increment it gives, not as `stiffer-than-elastic`.
+    pub stiffening: bool,
     /// Largest stress magnitude a deleted point may keep (0: none).
     pub deleted_stress: f64,
     /// Order of the update in the increment size (1 for backward Euler), for refinement.
@@ -83,6 +87,7 @@ impl Default for BlockSettings {
             independence_tolerance: 1e-12,
             stiffness_tolerance: 1e-4,
             softening: false,
+            stiffening: false,
             deleted_stress: 0.0,
             update_order: 1.0,
             rate_law: None,
