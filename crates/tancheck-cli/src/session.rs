@@ -101,10 +101,23 @@ pub fn reporters(output: &OutputArgs, json: Option<&std::path::Path>) -> Fanout<
 
 /// The default path: into the inelastic range of typical metals and back, with the entries in
 /// slots the kind does not have left out (and said in its name): the check leaves them out
-/// anyway, and says so in a note for a path that asks for them.
+/// anyway, and says so in a note for a path that asks for them. A cohesive point opens with
+/// its slips (`mixed-mode`; the second slip left out for a 2D one, unsaid: it has none):
+/// tension-shear left it pure opening, and a wrong mixed-mode coupling passed the default
+/// check (a user-style sweep).
 pub fn default_path(kind: PointKind) -> Path {
-    let shape = if kind == PointKind::Uniaxial { Shape::UniaxialStrain } else { Shape::TensionShear };
+    let shape = match kind {
+        PointKind::Uniaxial => Shape::UniaxialStrain,
+        PointKind::Cohesive3d | PointKind::Cohesive2d => Shape::MixedMode,
+        _ => Shape::TensionShear,
+    };
     let mut p = Path::ramp(shape, 4e-3, 8, 4);
+    if kind == PointKind::Cohesive2d {
+        for inc in &mut p.increments {
+            inc.dstrain[2] = 0.0;
+        }
+        p.name = p.name.replace("mixed-mode", "mixed-mode (opening and slip)");
+    }
     let left = p.leave_out_slots(kind);
     if !left.is_empty() {
         p.name.push_str(&format!(" (its {} left out for {} point)", left.join(" and "), kind.with_article()));
