@@ -223,3 +223,83 @@ fn a_dtemp_taken_at_the_start_temperature_is_named_so() {
     .unwrap();
     assert_eq!(rep.finding(), "start-temperature", "{:#?}", rep.increments.first().map(|i| &i.diagnosis));
 }
+
+/// The thermo model (modulus law 2: k falling linearly from 1 at 20 °C to 0.5 at 1020 °C, ν
+/// and α constant) whose ∂σ/∂T leaves out the stiffness term C′(T):(ε − ε_th): for an
+/// isotropic law whose E alone depends on T that term is (E′/E) σ, taken off the model's
+/// own ∂σ/∂T here.
+struct WithoutStiffnessTerm(tancheck::core::ModelRoutine<tancheck::models::Thermo>);
+
+/// E20, ν0, ν1, modulus law 2, expansion law 0, α, then the table (20, 1.0), (1020, 0.5).
+const THERMO_TABLE: [f64; 10] = [210000.0, 0.3, 0.0, 2.0, 0.0, 1.2e-5, 20.0, 1.0, 1020.0, 0.5];
+
+impl tancheck::core::Routine for WithoutStiffnessTerm {
+    fn info(&self) -> &tancheck::core::RoutineInfo {
+        self.0.info()
+    }
+    fn call(
+        &mut self,
+        input: &tancheck::core::CallInput<'_, f64>,
+        output: &mut tancheck::core::CallOutput<'_, f64>,
+    ) -> Result<(), tancheck::core::Fault> {
+        self.0.call(input, output)?;
+        let t = input.temp[0] + input.temp[1];
+        let k = 1.0 - 5e-4 * (t - 20.0);
+        let e_ratio = -5e-4 / k;
+        for (d, s) in output.dstress_dtemp.iter_mut().zip(output.stress.iter()) {
+            *d -= e_ratio * s;
+        }
+        Ok(())
+    }
+}
+
+fn without_stiffness_term(path: &tancheck::core::Path) -> tancheck::core::Report {
+    use tancheck::core::{check, Caller, PointKind, PointState, Settings};
+    let m = tancheck::models::Thermo::new(PointKind::Solid3d).unwrap().with_table_points(2);
+    let mut r = WithoutStiffnessTerm(tancheck::core::ModelRoutine(m));
+    let info = tancheck::core::Routine::info(&r).clone();
+    let mut caller = Caller::new(&mut r);
+    let mut rep =
+        check::run(&mut caller, &THERMO_TABLE, PointState::zero(&info, 20.0), path, &Settings::default())
+            .unwrap();
+    tancheck::core::report::agree::agree_on_causes(&mut rep.increments, 6);
+    rep
+}
+
+// Heated a little at zero strain from the reference temperature, the missing term,
+// proportional to the thermal strain, shrinks with the temperature increment as a ∂σ/∂T taken
+// at the start temperature does: the two cannot be told apart there. The causes that explain
+// as exactly as `start-temperature` are not marked as not explaining (they read "error left 0
+// (does not explain it)"; a user-style sweep).
+#[test]
+fn causes_as_exact_as_the_start_temperature_still_explain() {
+    use tancheck::core::{Path, PathIncrement};
+    let mut inc = PathIncrement::strain([0.0; 6]);
+    inc.dtemp = 0.1;
+    let rep = without_stiffness_term(&Path { name: "heated at zero strain".into(), increments: vec![inc] });
+    let d = rep.increments[0].diagnosis.as_ref().expect("a diagnosis");
+    let first = &d.dtemp_causes[0];
+    assert_eq!(first.cause.name(), "start-temperature", "{:#?}", d.dtemp_causes);
+    for h in &d.dtemp_causes[1..] {
+        assert!(h.explains || h.error_left > first.error_left, "{h:?} reads as not explaining");
+    }
+    assert!(d.dtemp_causes[1..].iter().any(|h| h.explains && h.cause.name() == "dtemp-partial"));
+}
+
+// Along a heated tension–shear path out and back to zero strain every increment misses the
+// term; back at zero strain the stress is hydrostatic and a factor on the whole ∂σ/∂T explains
+// as well, and that increment read `dtemp` beside eight `dtemp-partial`: the cause the path
+// agrees on is named there too (a user-style sweep).
+#[test]
+fn a_wrong_dtemp_is_named_as_the_path_agrees() {
+    use tancheck::core::{Path, Shape};
+    let mut path = Path::ramp(Shape::TensionShear, 2e-3, 6, 3);
+    for inc in &mut path.increments {
+        inc.dtemp = 25.0;
+    }
+    let rep = without_stiffness_term(&path);
+    let findings: Vec<&str> =
+        rep.increments.iter().filter_map(|i| i.diagnosis.as_ref()).map(|d| d.finding.as_str()).collect();
+    assert_eq!(findings.len(), 9, "{findings:?}");
+    assert!(findings.iter().all(|f| *f == "dtemp-partial"), "{findings:?}");
+}

@@ -24,6 +24,7 @@ pub mod corner;
 pub mod decide;
 mod dtemp_start;
 pub mod kink;
+mod refine;
 pub mod settle;
 mod stiffness;
 use stiffness::{elastic_at_end, initial_stiffness};
@@ -245,9 +246,26 @@ pub fn run(
                 )
                 .error();
                 let branch = driver.base.outcome.branch;
-                if let Some(h) = dtemp_start::trial(driver, caller, settings, full, branch, ctx.dtemp_floor)?
+                if let Some(mut h) =
+                    dtemp_start::trial(driver, caller, settings, full, branch, ctx.dtemp_floor)?
                 {
-                    hs.iter_mut().for_each(|x| x.explains = false);
+                    // The shapes it leaves behind no longer explain, but for those that explain
+                    // at least as exactly: at zero strain from the reference temperature a term
+                    // missing from ∂σ/∂T shrinks with the temperature increment too, and the two
+                    // cannot be told apart there (they read "error left 0 (does not explain
+                    // it)"; a user-style sweep).
+                    let mut also = false;
+                    for x in hs.iter_mut() {
+                        x.explains &= x.error_left <= h.error_left;
+                        also |= x.explains;
+                    }
+                    if also {
+                        h.detail.push_str(
+                            "; here a term of ∂σ/∂T proportional to the thermal strain (as C′(T):(ε − ε_th) at zero \
+                             strain from the reference temperature) shrinks so too, and the causes after it explain the \
+                             increment as exactly: a path with strain, or from another temperature, tells them apart",
+                        );
+                    }
                     hs.insert(0, h);
                 }
             }
@@ -347,35 +365,6 @@ fn repeats(driver: &mut Driver, caller: &mut Caller<'_>) -> Result<(), Fault> {
         });
     }
     Ok(())
-}
-
-/// Where an increment that crosses into its branch enters it: the smallest fraction of it
-/// found in the branch (bisection to 1e-9 of the increment, 30 base calls), when its start
-/// is outside and the whole increment inside. `None` when the fractions do not show one
-/// crossing (or a call faulted).
-fn branch_entry(
-    driver: &mut Driver,
-    caller: &mut Caller<'_>,
-    in_branch: &dyn Fn(&mut Driver, &mut Caller<'_>, f64) -> Result<bool, Fault>,
-) -> Option<f64> {
-    let (mut lo, mut hi) = (0.0, 1.0);
-    if !in_branch(driver, caller, hi).ok()? {
-        return None;
-    }
-    for _ in 0..30 {
-        let mid = 0.5 * (lo + hi);
-        if in_branch(driver, caller, mid).ok()? {
-            hi = mid;
-        } else {
-            lo = mid;
-        }
-    }
-    // Why 0.9999: past that the part left is too small for three fractions of it to measure
-    // (a continuum tangent's error falls with the plastic part: at 1e-4 of the increment and
-    // its fractions it is still far above the difference schemes' noise; an increment entering
-    // plasticity at 0.9987 of its length read `unexplained` with a bound of 0.99, its refined
-    // increments all elastic; a user-style sweep).
-    (hi < 0.9999).then_some(hi)
 }
 
 /// Fraction of the increment's time the elastic tangent's unloading step takes. Why 1e-6:
@@ -514,39 +503,8 @@ fn cause_trials(
             }
         }
     }
-    // The discrepancy at smaller increments: fractions of the increment, or of its part past
-    // the point where it enters its branch when it crosses into it.
-    let in_branch = |driver: &mut Driver, caller: &mut Caller<'_>, f: f64| -> Result<bool, Fault> {
-        driver.rescale(f);
-        driver.base_call(caller)?;
-        let changed = driver.base.state.iter().zip(&driver.start().state).any(|(a, b)| a != b);
-        Ok(driver.base.outcome.branch == ctx.reported_branch && changed == ctx.state_changed)
-    };
-    let past = match in_branch(driver, caller, REFINE[REFINE.len() - 1]) {
-        Ok(false) => branch_entry(driver, caller, &in_branch).unwrap_or(0.0),
-        _ => 0.0,
-    };
-    let mut errors = Vec::new();
-    let mut same_branch = true;
-    let mut num_s = vec![0.0; n * n];
-    for s in REFINE {
-        match in_branch(driver, caller, past + (1.0 - past) * s) {
-            Ok(b) => same_branch &= b,
-            Err(_) => {
-                same_branch = false;
-                break;
-            }
-        }
-        let ret = driver.base.tangent.clone();
-        if best(driver, caller, &mut num_s).is_err() {
-            same_branch = false;
-            break;
-        }
-        errors.push(compare(conv, &ret, &num_s, 1.0, ef, 0).error());
-    }
-    driver.rescale(1.0);
-    driver.base_call(caller)?;
-    let rf = Refinement { fractions: REFINE[..errors.len()].to_vec(), errors, same_branch, past };
+    // The discrepancy at smaller increments (see `refine`).
+    let rf = refine::strain_refinement(driver, caller, conv, ctx, ef, &best)?;
     let tol = if use_twin { settings.complex_step.tol } else { settings.central.tol };
     let ev = causes::Evidence {
         conv,

@@ -38,6 +38,75 @@ fn as_well(h: &Hypothesis, all: &[Hypothesis]) -> bool {
 /// path named `term-scaled` where each increment, and bisect and replay of it, named
 /// `uniform-scale`; a user-style sweep).
 pub fn agree_on_causes(increments: &mut [IncrementResult], ncomp: usize) {
+    agree_on_tangent_causes(increments, ncomp);
+    agree_on_dtemp_causes(increments);
+}
+
+/// The finding of an increment whose ∂σ/∂T failed with its tangent right, by its first cause
+/// (as `decide` names it).
+fn dtemp_finding(c: Cause) -> &'static str {
+    match c {
+        Cause::PartialDtemp => "dtemp-partial",
+        Cause::StartTemperature => "start-temperature",
+        _ => "dtemp",
+    }
+}
+
+/// [`agree_on_causes`] for the causes of a wrong ∂σ/∂T (the tangent right): a missing term of
+/// ∂σ/∂T named at every increment but one back at zero strain, whose hydrostatic stress lets a
+/// factor on the whole ∂σ/∂T explain it as well and named it `dtemp` (a user-style sweep). A
+/// factor on the whole (`uniform-scale`) fits any ∂σ/∂T at such a point: it does not lead.
+fn agree_on_dtemp_causes(increments: &mut [IncrementResult]) {
+    let is_dtemp = |d: &crate::diagnose::Diagnosis| {
+        d.causes.is_empty()
+            && !d.dtemp_causes.is_empty()
+            && matches!(d.finding.as_str(), "dtemp-partial" | "start-temperature" | "dtemp")
+    };
+    let mut counts: Vec<(Cause, usize)> = Vec::new();
+    for inc in increments.iter().filter(|i| !i.passed()) {
+        let Some(d) = inc.diagnosis.as_ref().filter(|d| is_dtemp(d)) else { continue };
+        let mut seen: Vec<Cause> = Vec::new();
+        for h in d.dtemp_causes.iter().filter(|h| as_well(h, &d.dtemp_causes)) {
+            if h.cause == Cause::UniformScale || seen.contains(&h.cause) {
+                continue;
+            }
+            seen.push(h.cause);
+            match counts.iter_mut().find(|(c, _)| *c == h.cause) {
+                Some((_, e)) => *e += 1,
+                None => counts.push((h.cause, 1)),
+            }
+        }
+    }
+    counts.retain(|&(_, e)| e >= 2);
+    counts.sort_by_key(|c| std::cmp::Reverse(c.1));
+    let Some(&(lead, explained)) = counts.first() else { return };
+    for inc in increments.iter_mut() {
+        if inc.passed() {
+            continue;
+        }
+        let Some(d) = inc.diagnosis.as_mut().filter(|d| is_dtemp(d)) else { continue };
+        if d.finding == dtemp_finding(lead) {
+            continue;
+        }
+        let Some(at) = d.dtemp_causes.iter().position(|h| h.cause == lead && as_well(h, &d.dtemp_causes))
+        else {
+            continue;
+        };
+        let own = d.finding.clone();
+        let h = d.dtemp_causes.remove(at);
+        d.dtemp_causes.insert(0, h);
+        d.finding = dtemp_finding(lead).into();
+        d.reason = format!(
+            "{}; {} is named first as the cause the path agrees on (it explains {explained} failing increments): it \
+             explains this one too, where {own} was ranked first on this increment alone",
+            d.reason,
+            dtemp_finding(lead),
+        );
+    }
+}
+
+/// [`agree_on_causes`] for the causes of a wrong tangent.
+fn agree_on_tangent_causes(increments: &mut [IncrementResult], ncomp: usize) {
     let cause_of = |finding: &str| Cause::BY_SPECIFICITY.iter().copied().find(|c| c.name() == finding);
     let rank = |c: Cause| Cause::BY_SPECIFICITY.iter().position(|&x| x == c).unwrap_or(usize::MAX);
     // Per cause: the failing increments it explains, and those that name it first.

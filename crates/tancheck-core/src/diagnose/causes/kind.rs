@@ -99,6 +99,11 @@ impl Cause {
         Cause::UniformScale,
         Cause::ElasticTangent,
         Cause::StaleTangent,
+        // Before the secant: where both explain (a large first plastic increment from a virgin
+        // state, whose continuum tangent nearly maps the total strain to the stress), the
+        // discrepancy falling with the increment down to nothing is the stronger evidence (a
+        // continuum tangent read `secant`; a user-style sweep). A secant's does not fall so.
+        Cause::ContinuumTangent,
         Cause::Secant,
         // Before the moduli: an uncondensed isotropic stiffness is also its in-plane bulk
         // part off; what the routine returned is the better name.
@@ -110,7 +115,6 @@ impl Cause {
         Cause::SingleEntry,
         Cause::OneColumn,
         Cause::OneRow,
-        Cause::ContinuumTangent,
         Cause::TermMissing,
         Cause::TermSign,
         Cause::TermScaled,
