@@ -13,8 +13,8 @@ use crate::routine::Caller;
 const INITIAL_STEP: f64 = 1e-3;
 
 /// The stiffness at the start of the path: the best numerical tangent (`best`, the scheme the
-/// other trials use) at the end of a small step from the path's start state along the
-/// increment's own direction, on a driver of its own (the increment's is left as it was). None
+/// other trials use) at the end of a small step from the path's start state toward the strain
+/// the increment ends at (the increment's own direction when that is the start's), on a driver of its own (the increment's is left as it was). None
 /// when the driver does not know where its path starts, the state at the increment's end is
 /// the path's start state, the increment has no strain, or a call of the step fails (the trial
 /// is then left out).
@@ -32,7 +32,21 @@ pub(super) fn initial_stiffness(
         return None;
     }
     let mut d = Driver::new(caller.info(), driver.props(), origin.clone()).ok()?;
-    let step: Vec<f64> = driver.dstrain().iter().map(|x| x * INITIAL_STEP).collect();
+    // Toward the strain the increment ends at, as long as the increment's step: the stiffness
+    // on that side of the start (an unloading increment of a cohesive law stepped from the
+    // start into compression and met the contact penalty, and a routine returning its
+    // undamaged opening stiffness read `uniform-scale`; a user-style sweep). Along the
+    // increment itself when it ends where the path started.
+    let dstrain = driver.dstrain();
+    let toward: Vec<f64> =
+        driver.start().strain.iter().zip(dstrain).zip(&origin.strain).map(|((s, e), o)| s + e - o).collect();
+    let norm = |v: &[f64]| v.iter().map(|x| x * x).sum::<f64>().sqrt();
+    let (lt, ld) = (norm(&toward), norm(dstrain));
+    let step: Vec<f64> = if lt > 0.0 && lt.is_finite() {
+        toward.iter().map(|x| x / lt * ld * INITIAL_STEP).collect()
+    } else {
+        dstrain.iter().map(|x| x * INITIAL_STEP).collect()
+    };
     d.set_increment(&step, 0.0, driver.dtime() * INITIAL_STEP);
     d.base_call(caller).ok()?;
     let n = driver.ncomp();
