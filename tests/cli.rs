@@ -178,6 +178,17 @@ fn a_short_dstrain_says_the_path_takes_six_components() {
         t.contains("dstrain has 3 entries") && t.contains("6 tensor components 11 22 33 23 13 12"),
         "{t}"
     );
+    // So does a hold_stress of another length: seven read "trailing characters" (a user-style
+    // sweep).
+    let m = manifest(
+        &d,
+        "h.json",
+        "{ \"routine\": { \"model\": \"elastic\", \"kind\": \"solid-3d\", \"properties\": [200000, 0.3] },\n  \"path\": { \"increments\": [ {\"dstrain\": [1e-3, 0, 0, 0, 0, 0], \"hold_stress\": [null, 0, 0, 0, 0, 0, 0]} ] } }\n",
+    );
+    let o = bin().arg("check").arg(&m).output().unwrap();
+    let t = text(&o);
+    assert_eq!(o.status.code(), Some(2), "{t}");
+    assert!(t.contains("h.json:2:") && t.contains("hold_stress has 7 entries"), "{t}");
 }
 
 #[test]

@@ -35,7 +35,7 @@ pub struct PathIncrement {
     /// Mixed control: canonical stress components held at these values at the end of the
     /// increment (`null` for a strain-controlled component, whose `dstrain` applies); the
     /// strain increments of held components are solved for.
-    #[serde(default, skip_serializing_if = "Option::is_none")]
+    #[serde(default, skip_serializing_if = "Option::is_none", deserialize_with = "six_held")]
     pub hold_stress: Option<[Option<f64>; 6]>,
 }
 
@@ -44,6 +44,20 @@ impl PathIncrement {
     pub fn strain(dstrain: [f64; 6]) -> PathIncrement {
         PathIncrement { dstrain, dtemp: 0.0, dtime: 1.0, hold_stress: None }
     }
+}
+
+/// The six held stress components (null where not held), with an error that says so for
+/// another count: seven read "trailing characters" (a user-style sweep).
+fn six_held<'de, D: serde::Deserializer<'de>>(d: D) -> Result<Option<[Option<f64>; 6]>, D::Error> {
+    let Some(v) = Option::<Vec<Option<f64>>>::deserialize(d)? else { return Ok(None) };
+    v.as_slice().try_into().map(Some).map_err(|_| {
+        serde::de::Error::custom(format!(
+            "hold_stress has {} entr{}: it has the 6 tensor components 11 22 33 23 13 12 for every kind of \
+             point, each a held stress or null",
+            v.len(),
+            if v.len() == 1 { "y" } else { "ies" }
+        ))
+    })
 }
 
 /// The six tensor components of a path's strain increment, with an error that says so for
