@@ -169,7 +169,7 @@ fn a_write_past_the_end_of_the_state_is_named_with_its_index() {
         ),
         "{text}"
     );
-    assert!(text.contains("(first in increment 2; 1 call)"), "{text}");
+    assert!(text.contains("(first in a call told increment 2 in tc_call; 1 call)"), "{text}");
 
     // The same again is counted, not repeated; take_findings empties the list.
     p.call(&mut r, 3).unwrap();

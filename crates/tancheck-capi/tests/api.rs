@@ -149,7 +149,7 @@ fn a_tangent_hole_is_a_routine_fault_with_a_finding() {
         let f = text(tck_result_finding(r, 0));
         assert!(f.starts_with("the routine left tangent[1] unwritten (row 2, column 1"), "{f}");
         // The first finding ends the call that showed it, and the path stops there.
-        assert!(f.ends_with("(first in increment 1; 1 call)"), "{f}");
+        assert!(f.ends_with("(first in a call told increment 1 in tc_call; 1 call)"), "{f}");
         let s = text(tck_result_summary(r));
         assert!(s.starts_with("FAULT routine: "), "{s}");
         assert!(s.contains("; memory guard: the routine left tangent[1] unwritten"), "{s}");

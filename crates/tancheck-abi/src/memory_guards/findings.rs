@@ -118,11 +118,14 @@ impl GuardFinding {
     }
 }
 
+/// The increment is the one the routine was told in `tc_call` (a check's increment 0, the
+/// zero-increment look, tells it 1: "fault in increment 0 … (first in increment 1)" read as
+/// two answers; a user-style sweep).
 impl fmt::Display for GuardFinding {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
         write!(
             f,
-            "the routine {} (first in increment {}{}; {} call{})",
+            "the routine {} (first in a call told increment {} in tc_call{}; {} call{})",
             self.what(),
             self.increment,
             if self.complex { ", complex-step twin" } else { "" },

@@ -238,7 +238,7 @@ mod tests {
         assert_eq!(all.list()[0].increment, 2, "the first occurrence is kept");
         let text = all.list()[0].to_string();
         assert!(text.starts_with("the routine left tangent[1] unwritten (row 2, column 1"), "{text}");
-        assert!(text.ends_with("(first in increment 2; 2 calls)"), "{text}");
+        assert!(text.ends_with("(first in a call told increment 2 in tc_call; 2 calls)"), "{text}");
         assert_eq!(all.take().len(), 2);
         assert!(all.list().is_empty());
     }
