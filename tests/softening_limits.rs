@@ -459,6 +459,13 @@ fn snap_back_of_the_cohesive_law_gives_the_smallest_admissible_fracture_energy()
     let r = probe(&mut bad, snap_back(&[0], None, 0.01), &small, &p);
     assert_eq!(r.status, ProbeStatus::Fail, "{}", r.summary);
     assert!(r.summary.contains("below the energy to the onset of softening 1.800000e-2"), "{}", r.summary);
+    // The toughness judged is the declared one, the suite's word: the summary says so, not that
+    // the routine took a value it was never given (a user-style sweep).
+    assert!(
+        r.summary.starts_with("the declared fracture energy 1.000000e-2 (the suite's fracture_energy)"),
+        "{}",
+        r.summary
+    );
     let r = probe(&mut bad, snap_back(&[0], None, COHESIVE[3]), &COHESIVE, &p);
     assert_eq!(r.status, ProbeStatus::Pass, "{}", r.summary);
 }

@@ -193,6 +193,20 @@ impl SnapBack {
                          {w0:.6e} (smallest admissible fracture energy)"
                     ),
                 )
+            } else if declared.is_some() {
+                // The declared value is the suite's word, not a property the routine was given:
+                // the failure says so (it read "the routine accepts it without a word" about a
+                // value only the suite held; a user-style sweep).
+                ProbeResult::new(
+                    name,
+                    ProbeStatus::Fail,
+                    format!(
+                        "the declared fracture energy {g:.6e} (the suite's fracture_energy) is below the energy \
+                         to the onset of softening {w0:.6e}, the smallest admissible fracture energy: with that \
+                         toughness the softening branch snaps back; if the routine's own toughness is another, \
+                         declare it (or leave fracture_energy out to measure it along a path to full failure)"
+                    ),
+                )
             } else {
                 ProbeResult::new(
                     name,
