@@ -394,21 +394,33 @@ fn a_routine_without_an_elastic_range_gets_the_fallback_scale() {
 /// paths checked and the failures found so far, with the signal's exit code (it died of the
 /// signal and kept nothing; a user-style sweep). The signal is sent after a wait: the report
 /// is checked whatever was reached by then, and the failure the same seed finds within 40
-/// paths (`finds_the_reversal`) is asked for only when that many paths were checked.
+/// paths (`finds_the_reversal`) is asked for only when that many paths were checked (the paths
+/// of a time budget are those of the seed until it ends).
 #[test]
 fn a_stop_signal_keeps_what_was_found() {
     let d = scratch("explore-stopped");
     let m = manifest(&d, "rev", &model("j2-reversal"), None);
     let json = d.join("stopped.json");
-    let child = bin()
-        .arg("explore")
+    let mut cmd = bin();
+    // A time budget far beyond the wait: were the signal lost, the run would end by it.
+    cmd.arg("explore")
         .arg(&m)
-        .args(["--seed", "7", "--paths", "1000000", "-q", "--json"])
+        .args(["--seed", "7", "--time", "120", "-q", "--json"])
         .arg(&json)
         .stdout(std::process::Stdio::piped())
-        .stderr(std::process::Stdio::piped())
-        .spawn()
-        .unwrap();
+        .stderr(std::process::Stdio::piped());
+    // The child gets SIGINT's default disposition: a test run started in the background of a
+    // shell without job control inherits it ignored (POSIX), and tancheck keeps an ignored
+    // SIGINT ignored (as in tests/survive.rs).
+    // SAFETY: between fork and exec only async-signal-safe calls (signal) are made.
+    unsafe {
+        use std::os::unix::process::CommandExt;
+        cmd.pre_exec(|| {
+            libc::signal(libc::SIGINT, libc::SIG_DFL);
+            Ok(())
+        });
+    }
+    let child = cmd.spawn().unwrap();
     std::thread::sleep(std::time::Duration::from_secs(3));
     let sent = Command::new("kill").args(["-INT", &child.id().to_string()]).status().unwrap();
     assert!(sent.success());

@@ -229,3 +229,18 @@ fn libraries_cases_and_campaign_files_are_inputs_too() {
         assert_eq!(o.status.code(), Some(0), "run {k}: {}", String::from_utf8_lossy(&o.stderr));
     }
 }
+
+/// A report into a folder that does not exist is bad input that says so, for `--json` as for
+/// `--html` and `--junit` (it read "replacing the report … at the start of the run: No such
+/// file or directory"; a user-style sweep).
+#[test]
+fn a_report_into_a_missing_folder_names_the_folder() {
+    let d = scratch("missing-folder");
+    for opt in ["--json", "--html", "--junit"] {
+        let target = d.join("nowhere").join("r.out");
+        let o = check(&d, &[opt, target.to_str().unwrap()]);
+        let err = String::from_utf8_lossy(&o.stderr);
+        assert_eq!(o.status.code(), Some(2), "{opt}: {err}");
+        assert!(err.contains(&format!("{opt} ")) && err.contains("nowhere does not exist"), "{opt}: {err}");
+    }
+}

@@ -124,7 +124,7 @@ typedef enum tck_shape {
     TCK_SHAPE_SHEAR_12 = 2,        /* eps12 */
     TCK_SHAPE_BIAXIAL = 3,         /* eps11 = eps22 */
     TCK_SHAPE_HYDROSTATIC = 4,     /* eps11 = eps22 = eps33 */
-    TCK_SHAPE_TENSION_SHEAR = 5    /* eps11, eps12 = eps11/2, eps23 = -eps11/4 */
+    TCK_SHAPE_TENSION_SHEAR = 5    /* eps11, eps12 = eps11/2, eps13 = 0.15 eps11, eps23 = -eps11/4 */
 } tck_shape;
 
 /* Derivative schemes: an index into tck_options.rel_step and .tol, and (as 1 << index) a bit

@@ -785,22 +785,25 @@ static void stop_handler(int sig) {
         stop_signal = sig;
         return;
     }
-    if (stop_stderr_tty) {
-        /* A progress line is cleared and the stop said, so the shell's next line starts on a
-         * line of its own (it landed after the bar; a user-style sweep). */
-        char m[96] = "\r\033[Ktancheck: stopped by signal ";
-        size_t k = strlen(m);
-        if (sig >= 10) m[k++] = (char)('0' + sig / 10);
-        m[k++] = (char)('0' + sig % 10);
-        const char *tail = " before the check finished\n";
-        for (const char *q = tail; *q != '\0' && k + 1 < sizeof m; q++) m[k++] = *q;
-        ssize_t w = write(2, m, k);
-        (void)w;
-    }
     if (lw_tmp[0] != '\0') unlink(lw_tmp);
     if (lw_own_tmp[0] != '\0') unlink(lw_own_tmp);
     for (int i = 0; i < lw_nremove; i++) unlink(lw_remove[i]);
     for (int i = lw_nremove - 1; i >= 0; i--) rmdir(lw_remove[i]);
+    {
+        /* After the files are removed (the sooner the better), the stop is said: on a terminal
+         * after clearing a progress line, so that the shell's next line starts on a line of its
+         * own (it landed after the bar; a user-style sweep), and in a log too (a run stopped so
+         * said nothing there; a user-style sweep). */
+        char m[96] = "\r\033[Ktancheck: stopped by signal ";
+        size_t k = strlen(m);
+        size_t from = stop_stderr_tty ? 0 : 4;
+        if (sig >= 10) m[k++] = (char)('0' + sig / 10);
+        m[k++] = (char)('0' + sig % 10);
+        const char *tail = " before the check finished\n";
+        for (const char *q = tail; *q != '\0' && k + 1 < sizeof m; q++) m[k++] = *q;
+        ssize_t w = write(2, m + from, k - from);
+        (void)w;
+    }
     signal(sig, SIG_DFL);
     raise(sig);
 }

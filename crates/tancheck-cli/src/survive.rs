@@ -167,6 +167,12 @@ fn name_routine(json: Option<&Path>, routine: &str, marker: bool) -> Result<()> 
                 watch::set_report(&head(routine), "", "", false);
             }
             crate::report::Destination::Replace(p) => {
+                // A missing folder is said as for --html and --junit (it read "replacing the
+                // report … at the start of the run: No such file or directory"; a user-style
+                // sweep).
+                if marker {
+                    crate::report::files::check_output(Some(&p), "--json")?;
+                }
                 // The temporary name is registered first, so a SIGINT or SIGTERM while the
                 // marker itself is written removes it too.
                 let tmp = crate::report::temporary_name(&p);
