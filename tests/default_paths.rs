@@ -29,6 +29,8 @@ fn a_cohesive_default_path_loads_the_slips() {
         assert!(!p.name.contains("left out"), "{}", p.name);
         let good = run("cohesive", kind);
         assert_eq!(good.verdict, Verdict::Pass, "{kind:?}: {:?}", good.notes);
+        // Its shear components are slips: no shear measure is reported (it said "engineering").
+        assert_eq!(good.routine.shear, "none (slips)");
         assert!(!good.notes.iter().any(|n| n.contains("left out")), "{:?}", good.notes);
         let bad = run("cohesive-no-coupling", kind);
         assert_eq!(bad.verdict, Verdict::TangentFailure, "{kind:?}: the default path misses the coupling");

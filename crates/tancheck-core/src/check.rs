@@ -345,7 +345,10 @@ fn run_path(
             name: info.name.clone(),
             kind: conv.kind().name().into(),
             order: conv.order().iter().map(|c| c.label().to_string()).collect(),
+            // A cohesive point's shear components are slips, with no shear measure (its
+            // reports said "engineering shear"; a user-style sweep).
             shear: match conv.shear() {
+                _ if conv.kind().is_cohesive() => "none (slips)".into(),
                 crate::ShearMeasure::Engineering => "engineering".into(),
                 crate::ShearMeasure::Tensor => "tensor".into(),
             },

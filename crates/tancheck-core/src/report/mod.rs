@@ -70,6 +70,7 @@ pub struct RoutineSummary {
     pub name: String,
     pub kind: String,
     pub order: Vec<String>,
+    /// `engineering` or `tensor`; `none (slips)` for a cohesive point.
     pub shear: String,
     pub nstate: usize,
     pub nprop: usize,

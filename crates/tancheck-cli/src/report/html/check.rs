@@ -47,11 +47,15 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     }
     let _ = writeln!(
         o,
-        "<dt>routine</dt><dd>{} — {}, order {}, {} shear, {} state variables, {} properties{}</dd>",
+        "<dt>routine</dt><dd>{} — {}, order {}, {}, {} state variables, {} properties{}</dd>",
         esc(&r.name),
         esc(&r.kind),
         esc(&r.order.join(" ")),
-        esc(&r.shear),
+        esc(&if r.shear.starts_with("none") {
+            "slips, no shear measure".to_string()
+        } else {
+            format!("{} shear", r.shear)
+        }),
         r.nstate,
         r.nprop,
         if r.complex_twin { ", complex-step twin" } else { ", no complex-step twin" }
