@@ -233,6 +233,19 @@ fn a_tangent_wrong_beside_a_kink_in_another_column_gets_its_cause() {
         assert_eq!(inc["diagnosis"]["finding"], "secant", "{t}");
     }
     assert_eq!(v["finding"], "secant", "{t}");
-    let (code, _, t) = check(&manifest("c_cohesive"), &[]);
+    let (code, v, t) = check(&manifest("c_cohesive"), &[]);
     assert_eq!(code, Some(0), "{t}");
+    // The correct law's central checks straddle the kink and are cleared: with no failure
+    // left, the summary says the worst errors it gives are theirs, before the closer look (it
+    // read "0 of 4 checks failed …; worst norm error 1.00e0" as a failure; a user-style sweep).
+    let central = v["summary"].as_array().unwrap().iter().find(|s| s["scheme"] == "central").unwrap();
+    assert!(central["cleared"].as_u64().unwrap() > 0, "{t}");
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("check")
+        .arg(manifest("c_cohesive"))
+        .output()
+        .unwrap();
+    let t = output_text(&o);
+    let line = t.lines().find(|l| l.trim_start().starts_with("central ")).unwrap_or_else(|| panic!("{t}"));
+    assert!(line.contains("cleared on a closer look, whose errors before it are the worst here"), "{line}");
 }
