@@ -233,6 +233,26 @@ fn a_tangent_wrong_beside_a_kink_in_another_column_gets_its_cause() {
         assert_eq!(inc["diagnosis"]["finding"], "secant", "{t}");
     }
     assert_eq!(v["finding"], "secant", "{t}");
+    // Its case, replayed, says that the central difference straddles the kink in column n
+    // (its entry there, the mean of the two sides, was listed as a difference with no word;
+    // a user-style sweep).
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("bisect")
+        .arg(manifest("c_cohesive_secant"))
+        .args(["--json", "-"])
+        .output()
+        .unwrap();
+    let b: Value = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", output_text(&o)));
+    let case = b["cases"][0].as_str().unwrap_or_else(|| panic!("no case: {b:#}"));
+    let o = Command::new(env!("CARGO_BIN_EXE_tancheck"))
+        .arg("replay")
+        .arg(case)
+        .args(["--json", "-"])
+        .output()
+        .unwrap();
+    let r: Value = serde_json::from_slice(&o.stdout).unwrap_or_else(|e| panic!("{e}: {}", output_text(&o)));
+    let kink = r["kink"].as_str().unwrap_or_else(|| panic!("no kink said: {r:#}"));
+    assert!(kink.starts_with("a kink at this call in column n:") && kink.contains("their mean"), "{kink}");
     let (code, v, t) = check(&manifest("c_cohesive"), &[]);
     assert_eq!(code, Some(0), "{t}");
     // The correct law's central checks straddle the kink and are cleared: with no failure

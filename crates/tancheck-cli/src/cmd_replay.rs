@@ -192,6 +192,29 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
     let routine = p.routine.routine();
     let mut caller = Caller::new(routine);
     let r = case::replay(&mut caller, &p.parsed, walk).map_err(|m| format!("{}: {m}", file.display()))?;
+    // A kink at the call: said beside the central difference's entries there, which are the
+    // mean of the two sides (replay listed them as differences with no word of it, where the
+    // check had cleared that column; a user-style sweep).
+    let kink = r.check.as_ref().and_then(|c| c.diagnosis.as_ref()).and_then(|d| d.kink.as_ref()).and_then(|k| {
+        let conv = &p.routine.routine().info().convention;
+        let cols: Vec<&str> = k
+            .columns
+            .iter()
+            .enumerate()
+            .filter(|(_, c)| c.detected)
+            .map(|(j, _)| conv.order().get(j).map_or("?", |c| c.label()))
+            .collect();
+        (k.detected && !cols.is_empty()).then(|| {
+            format!(
+                "a kink at this call in column{} {}: the one-sided derivatives differ there, and the central \
+                 difference gives their mean, not a derivative; the closer look compares the returned columns with \
+                 each side ({})",
+                if cols.len() == 1 { "" } else { "s" },
+                cols.join(", "),
+                k.sides
+            )
+        })
+    });
     let (pass, finding, checks) = match &r.check {
         Some(c) => {
             (c.passed() && r.fault.is_none() && !c.faulted(), c.finding().to_string(), ProbeCheck::list(c))
@@ -231,6 +254,7 @@ fn replay_prepared(file: &FsPath, mut p: Prepared, walk: bool) -> Result<ReplayR
             Ok(()) => "yes".to_string(),
             Err(m) => m.to_string(),
         }),
+        kink,
         debugger: shell_line(&debugger_words(file, symbol.as_deref())),
         debugger_args: debugger_words(file, symbol.as_deref()),
         exit_code,

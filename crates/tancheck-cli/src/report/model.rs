@@ -79,6 +79,10 @@ pub struct ReplayReport {
     pub recorded_finding: String,
     /// "yes" when walking the case's path reaches the call bit for bit, else why not.
     pub path_leads_here: Option<String>,
+    /// The kink the closer look found at the call, in words: the columns across which the
+    /// one-sided derivatives differ, where the central difference gives their mean.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub kink: Option<String>,
     /// The command that reruns the case under a debugger, as a shell line and as words.
     pub debugger: String,
     pub debugger_args: Vec<String>,

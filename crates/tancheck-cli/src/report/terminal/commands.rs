@@ -385,6 +385,9 @@ pub fn replay(out: &mut dyn Write, r: &ReplayReport, detail: Detail, p: Palette)
             )?;
         }
     }
+    if let Some(k) = &r.kink {
+        writeln!(out, "   {k}")?;
+    }
     writeln!(out, "   finding: {} (the case recorded {})", r.finding, r.recorded_finding)?;
     if let Some(p) = &r.path_leads_here {
         if p == "yes" {
