@@ -198,6 +198,10 @@ fn libraries_cases_and_campaign_files_are_inputs_too() {
     // A campaign's manifests, sources and the library it is to build (not built yet).
     std::fs::create_dir_all(d.join("build")).unwrap();
     std::fs::write(d.join("q.c"), "/* a source */\n").unwrap();
+    // A header beside the source and the build's stamp are inputs too (a report over a header
+    // beside the sources replaced it; a user-style sweep).
+    std::fs::write(d.join("notes.h"), KEEP).unwrap();
+    std::fs::write(d.join("build").join("libq.so.sources-sha256"), KEEP).unwrap();
     let c = d.join("c.json");
     std::fs::write(
         &c,
@@ -206,7 +210,13 @@ fn libraries_cases_and_campaign_files_are_inputs_too() {
   "routines": [ { "manifest": "m.json" } ] }"#,
     )
     .unwrap();
-    for (opt, target) in [("--json", "build/libq.so"), ("--html", "q.c"), ("--junit", "m.json")] {
+    for (opt, target) in [
+        ("--json", "build/libq.so"),
+        ("--html", "q.c"),
+        ("--junit", "m.json"),
+        ("--json", "notes.h"),
+        ("--html", "build/libq.so.sources-sha256"),
+    ] {
         let t = d.join(target);
         let before = std::fs::read(&t).ok();
         let o = run(&["campaign", c.to_str().unwrap(), opt, t.to_str().unwrap(), "-q"]);

@@ -217,10 +217,16 @@ impl Campaign {
         for lib in &self.libraries {
             let declared = normalize(&self.dir.join(&lib.output));
             if let Some(d) = build_dir {
-                out.push(normalize(&d.join(declared.file_name().unwrap_or_default())));
+                let built = normalize(&d.join(declared.file_name().unwrap_or_default()));
+                out.push(built.with_extension("so.sources-sha256"));
+                out.push(built);
             }
+            // The build's stamp beside the library (build.rs) is the campaign's too.
+            out.push(declared.with_extension("so.sources-sha256"));
             out.push(declared);
-            out.extend(lib.sources.iter().map(|s| normalize(&self.dir.join(s))));
+            let sources: Vec<PathBuf> = lib.sources.iter().map(|s| normalize(&self.dir.join(s))).collect();
+            out.extend(super::stamp::companions(&sources));
+            out.extend(sources);
         }
         for r in &self.routines {
             out.push(r.manifest.clone());

@@ -10,10 +10,23 @@ use sha2::{Digest, Sha256};
 /// SHA-256 over the sources and the headers and include files beside them.
 pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
     let mut h = Sha256::new();
-    let mut extra: Vec<PathBuf> = Vec::new();
     for s in sources {
         h.update(s.display().to_string().as_bytes());
         h.update(std::fs::read(s).with_context(|| format!("reading {}", s.display()))?);
+    }
+    for p in &companions(sources) {
+        h.update(p.display().to_string().as_bytes());
+        h.update(std::fs::read(p).unwrap_or_default());
+    }
+    Ok(h.finalize().iter().map(|b| format!("{b:02x}")).collect())
+}
+
+/// The files a library is compiled from besides its sources: the headers and include files
+/// beside them and every file they include by name, sorted. Inputs of a campaign too: a
+/// report written over one was a lost header (a user-style sweep).
+pub(super) fn companions(sources: &[PathBuf]) -> Vec<PathBuf> {
+    let mut extra: Vec<PathBuf> = Vec::new();
+    for s in sources {
         if let Some(folder) = s.parent() {
             for e in std::fs::read_dir(folder).into_iter().flatten().flatten() {
                 let p = e.path();
@@ -38,11 +51,7 @@ pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
     }
     extra.sort();
     extra.dedup();
-    for p in &extra {
-        h.update(p.display().to_string().as_bytes());
-        h.update(std::fs::read(p).unwrap_or_default());
-    }
-    Ok(h.finalize().iter().map(|b| format!("{b:02x}")).collect())
+    extra
 }
 
 /// The files `file` includes by a quoted name (`#include "x"`, and Fortran's `include 'x'`),
