@@ -277,11 +277,24 @@ fn without_isolate_a_routine_that_ends_the_process_leaves_last_words() {
     let d = scratch("last-words");
     let file = small_campaign(&d);
     let json = d.join("r.json");
-    let o = bin().arg("campaign").arg(&file).args(["-j", "1", "--json"]).arg(&json).output().unwrap();
+    let junit = d.join("r.xml");
+    let o = bin()
+        .arg("campaign")
+        .arg(&file)
+        .args(["-j", "1", "--json"])
+        .arg(&json)
+        .arg("--junit")
+        .arg(&junit)
+        .output()
+        .unwrap();
     assert_eq!(o.status.code(), Some(70), "{}", text(&o));
     let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
     assert_eq!(v["kind"], "last-words", "{v}");
     assert_eq!(v["routine"], "campaign small", "{v}");
+    // The JUnit report stays the marker that the run did not finish, naming the campaign (it
+    // named whichever input sorted first, a library of it; a user-style sweep).
+    let x = std::fs::read_to_string(&junit).unwrap();
+    assert!(x.contains("campaign small") && !x.contains(".so"), "{x}");
     assert!(v["fault"]["message"].as_str().unwrap().contains("exit()"), "{v}");
     // Of two shards, the one holding that item ends so, and merge names it as a shard that
     // did not finish.

@@ -58,13 +58,24 @@ impl OutputArgs {
     /// its own, and none is one of the run's `inputs` (a manifest, suite, path file or case):
     /// a report written there would overwrite it (exit 2, naming both).
     pub fn guard(&self, json: Option<&std::path::Path>, inputs: &[&std::path::Path]) -> anyhow::Result<()> {
+        let what = inputs.first().map_or_else(String::new, |p| p.display().to_string());
+        self.guard_named(json, inputs, &what)
+    }
+
+    /// [`OutputArgs::guard`], the markers naming `what` (a campaign names itself: its markers
+    /// named whichever of its inputs sorted first, a library; a user-style sweep).
+    pub fn guard_named(
+        &self,
+        json: Option<&std::path::Path>,
+        inputs: &[&std::path::Path],
+        what: &str,
+    ) -> anyhow::Result<()> {
         let outputs =
             [("--json", json), ("--html", self.html.as_deref()), ("--junit", self.junit.as_deref())];
         crate::report::files::distinct(&outputs, inputs)?;
         // An earlier HTML or JUnit report is replaced by an "incomplete" marker at once: a run
         // that ends without writing them must not leave an earlier run's verdict.
-        let what = inputs.first().map_or_else(String::new, |p| p.display().to_string());
-        crate::survive::begin_side_reports(self.html.as_deref(), self.junit.as_deref(), &what)
+        crate::survive::begin_side_reports(self.html.as_deref(), self.junit.as_deref(), what)
     }
 
     /// Whether progress may be drawn (on standard error, and only when it is a terminal).

@@ -118,7 +118,7 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
     let c = Campaign::load(&a.campaign)?;
     let inputs = c.inputs(a.build_dir.as_deref());
     let inputs: Vec<&std::path::Path> = inputs.iter().map(|p| p.as_path()).collect();
-    a.output.guard(a.json.as_deref(), &inputs)?;
+    a.output.guard_named(a.json.as_deref(), &inputs, &format!("campaign {}", c.name))?;
     let shard = match &a.shard {
         Some(s) => Some(parse_shard(s)?),
         None if a.item.is_none() => slurm_shard()?,
