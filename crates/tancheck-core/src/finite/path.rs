@@ -120,6 +120,17 @@ impl FinitePathSpec {
                 return Err(format!("deformation gradient {k} has det F = {j}; it must be positive"));
             }
         }
+        // A path whose every gradient is its start's deforms nothing: at F = I and zero stress
+        // no confusion of measures shows, and wrong tangents passed (a stretch of 1; a
+        // user-style sweep). Bad input, as a point path that loads nothing is.
+        if gradients.iter().all(|f| f == &gradients[0]) {
+            return Err(format!(
+                "every deformation gradient of the path is its start's{}: no increment deforms the point, and \
+                 nothing would be checked; give a stretch other than 1, an amount of shear other than 0, or \
+                 gradients that change",
+                if gradients[0] == mat3::identity::<f64>() { " (F = I)" } else { "" }
+            ));
+        }
         Ok(FinitePath { gradients, dtime: Vec::new() })
     }
 }
@@ -181,5 +192,26 @@ mod tests {
         };
         let e = p.build().unwrap_err();
         assert!(e.contains("rotation: the axis") && !e.contains("det F"), "{e}");
+    }
+
+    // A path that deforms nothing is refused: at F = I wrong tangents passed (a stretch of 1;
+    // a user-style sweep). A superposed rotation deforms it (rigidly), and is taken.
+    #[test]
+    fn a_path_that_deforms_nothing_is_refused() {
+        let p = FinitePathSpec::UniaxialStretch { stretch: 1.0, increments: 3, rotation: None };
+        let e = p.build().unwrap_err();
+        assert!(e.contains("every deformation gradient of the path is its start's (F = I)"), "{e}");
+        let g: FinitePathSpec = serde_json::from_str(
+            r#"{"shape": "gradients", "start": [1.1,0,0, 0,1,0, 0,0,1], "gradients": [[1.1,0,0, 0,1,0, 0,0,1]]}"#,
+        )
+        .unwrap();
+        let e = g.build().unwrap_err();
+        assert!(e.contains("is its start's:"), "{e}");
+        let turned = FinitePathSpec::UniaxialStretch {
+            stretch: 1.0,
+            increments: 3,
+            rotation: Some(Superposed { axis: [0.0, 0.0, 1.0], angle: 0.5 }),
+        };
+        assert!(turned.build().is_ok());
     }
 }
