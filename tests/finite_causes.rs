@@ -22,6 +22,9 @@ enum Flaw {
     RateTerms(f64),
     /// The shear rows times this factor.
     ShearRows(f64),
+    /// The rate terms with a factor that changes from increment to increment (0.3 + 0.2 k):
+    /// no code carries such a factor, as a tangent of another measure fits one.
+    RateTermsChanging,
 }
 
 struct Flawed {
@@ -46,7 +49,11 @@ impl FiniteRoutine for Flawed {
             Flaw::ShearRows(f) => {
                 (0..6).for_each(|c| output.tangent[6 * c + 3..6 * c + 6].iter_mut().for_each(|x| *x *= f))
             }
-            Flaw::RateTerms(a) => {
+            Flaw::RateTerms(_) | Flaw::RateTermsChanging => {
+                let a = match self.flaw {
+                    Flaw::RateTerms(a) => a,
+                    _ => 0.3 + 0.2 * f64::from(input.increment),
+                };
                 let j = output.tangent.to_vec();
                 let (mut s, mut st, mut e) = ([0.0; 6], vec![0.0; output.state.len()], [0.0; 2]);
                 let mut t = vec![0.0; 36];
@@ -108,6 +115,17 @@ fn shear_columns_off_by_two_and_scaled_rate_terms_are_named() {
     }
     // The whole difference is the other rate, as before.
     assert_eq!(check(Flaw::RateTerms(0.0)).finding.as_deref(), Some("other-rate"));
+    // A factor that changes along the path is none written in code: unexplained, saying what
+    // was fitted (a small-strain tangent in a finite J2 routine read rate-terms-scaled with
+    // factors 0.333 to 0.763; a user-style sweep).
+    let r = check(Flaw::RateTermsChanging);
+    assert_eq!(r.finding.as_deref(), Some("unexplained"), "{r:#?}");
+    let c = r.increments.iter().find_map(|i| i.cause.as_ref()).unwrap();
+    assert!(
+        c.explanation.contains("a factor written in code is the same at every increment"),
+        "{}",
+        c.explanation
+    );
 }
 
 /// The neo-Hookean model keeping the polar rotation R of F (F = R U) in 9 state variables,

@@ -32,6 +32,10 @@ pub struct FiniteCause {
     pub explanation: String,
     /// Relative error of the returned tangent against the reference turned by the cause.
     pub error: f64,
+    /// The factor fitted, for a cause that has one (`rate-terms-scaled`: the factor the terms
+    /// carry), so that a path can see whether it is the same at every increment.
+    #[serde(default, skip_serializing_if = "Option::is_none")]
+    pub factor: Option<f64>,
 }
 
 /// Relative Frobenius distance ‖a − b‖ / ‖b‖.
@@ -68,10 +72,12 @@ pub fn diagnose(
     let j = mat3::det(f1);
     let base = rel_error(got, reference);
     let mut best: Option<FiniteCause> = None;
+    // The factor of the hypothesis being considered, when it has one.
+    let factor = std::cell::Cell::new(None);
     let mut consider = |name: &str, explanation: String, x: &[f64]| {
         let e = rel_error(got, x);
         if e < MATCH && e < GAIN * base && best.as_ref().is_none_or(|b| e < b.error) {
-            best = Some(FiniteCause { name: name.into(), explanation, error: e });
+            best = Some(FiniteCause { name: name.into(), explanation, error: e, factor: factor.get() });
         }
     };
     let mut x = vec![0.0; 81];
@@ -131,6 +137,7 @@ pub fn diagnose(
                 }
                 // The factor the terms carry: got = other + (1 − α)(reference − other).
                 let carried = 1.0 - alpha;
+                factor.set(Some(carried));
                 consider(
                     "rate-terms-scaled",
                     format!(
@@ -142,6 +149,7 @@ pub fn diagnose(
                     ),
                     &x[..36],
                 );
+                factor.set(None);
             }
         }
     }

@@ -226,6 +226,7 @@ fn run_path(
     }
     report.calls = ws.calls;
     report.complex_calls = ws.complex_calls;
+    not_one_factor(&mut report.increments);
     let failing: Vec<&FiniteIncrement> = report.increments.iter().filter(|i| !i.passed).collect();
     if report.fault.is_some() {
         report.verdict = Verdict::RoutineFault;
@@ -247,6 +248,42 @@ fn run_path(
     }
     report.exit_code = report.verdict.exit_code();
     (report, asked_smaller)
+}
+
+/// A factor written in code is the same at every increment: where `rate-terms-scaled` fits
+/// factors that change along the path (a small-strain tangent in a finite J2 routine read so,
+/// its factor going from 0.333 to 0.763; a user-style sweep), it is not the cause, and those
+/// increments read `unexplained`, saying what was fitted. Why 2 %: a term that is scaled fits
+/// its factor to the error the cause leaves (below 1e-4), far inside it.
+fn not_one_factor(increments: &mut [FiniteIncrement]) {
+    let scaled = |i: &FiniteIncrement| {
+        i.cause
+            .as_ref()
+            .filter(|c| c.name == "rate-terms-scaled")
+            .and_then(|c| c.factor)
+            .filter(|_| !i.passed)
+    };
+    let factors: Vec<f64> = increments.iter().filter_map(scaled).collect();
+    let (lo, hi) = factors.iter().fold((f64::INFINITY, f64::NEG_INFINITY), |(a, b), &f| (a.min(f), b.max(f)));
+    if factors.len() < 2 || hi - lo <= 0.02 * lo.abs().max(hi.abs()) {
+        return;
+    }
+    for inc in increments.iter_mut() {
+        if scaled(inc).is_none() {
+            continue;
+        }
+        if let Some(c) = inc.cause.as_mut() {
+            c.explanation = format!(
+                "the stress terms between two rates fit here with the factor {:.3}, but along the path with \
+                 factors from {lo:.3} to {hi:.3}: a factor written in code is the same at every increment, so \
+                 none of the measure confusions explains it (a tangent of another strain measure, such as a \
+                 small-strain one, fits a factor that changes)",
+                c.factor.unwrap_or(f64::NAN)
+            );
+            c.name = "unexplained".into();
+            c.factor = None;
+        }
+    }
 }
 
 /// One increment judged: its verdict and numbers (`increment` left 0 for the caller to set),
@@ -405,7 +442,12 @@ pub fn judge(
     let cause = if passed {
         None
     } else if let Some(words) = neither_side {
-        Some(FiniteCause { name: "kink-neither-side".into(), explanation: words, error: error_central })
+        Some(FiniteCause {
+            name: "kink-neither-side".into(),
+            explanation: words,
+            error: error_central,
+            factor: None,
+        })
     } else if let Some((name, i, v)) = non_finite {
         // A value the routine computed (an unwritten one is the guards' fault): no
         // measure or factor explains it.
@@ -417,6 +459,7 @@ pub fn judge(
                  never wrote)"
             ),
             error: f64::INFINITY,
+            factor: None,
         })
     } else {
         let reference = reference.clone();
