@@ -181,5 +181,15 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
             if findings.len() > 1 { format!(" (and {} more)", findings.len() - 1) } else { String::new() };
         let _ = write!(s, "; memory guard{more}: {f}");
     }
+    // What the path did not reach: a pass along a path that never left the elastic branch
+    // read as a plain pass (a continuum tangent passed so; a user-style sweep).
+    if let Some(c) = report.coverage.first() {
+        let more = if report.coverage.len() > 1 {
+            format!(" (and {} more)", report.coverage.len() - 1)
+        } else {
+            String::new()
+        };
+        let _ = write!(s, "; coverage warning{more}: {c}");
+    }
     s
 }

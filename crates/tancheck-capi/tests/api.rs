@@ -205,6 +205,22 @@ fn explicit_increments_a_name_and_the_full_level_are_used() {
         assert!(text(tck_result_summary(r)).starts_with("PASS my elastic: "));
         tck_result_free(r);
     }
+    // What the path did not reach is in the summary too, as in the JSON: a pass along a path
+    // that never unloads read as a plain pass (a user-style sweep).
+    let inc = [1e-3, 0.0, 0.0, 0.0, 0.0, 0.0, 1e-3, 0.0, 0.0, 0.0, 0.0, 0.0];
+    o.increments = inc.as_ptr();
+    let r = check(rust_elastic, &o);
+    // SAFETY: a live result, freed once at the end.
+    unsafe {
+        let j = json(r);
+        let s = text(tck_result_summary(r));
+        let first = j["coverage"][0].as_str().unwrap_or_else(|| panic!("no coverage warning: {j:#}"));
+        assert!(
+            s.starts_with("PASS my elastic: ") && s.contains("; coverage warning: ") && s.contains(first),
+            "{s}"
+        );
+        tck_result_free(r);
+    }
 }
 
 #[test]
