@@ -195,6 +195,8 @@ fn run_path(
     };
     let mut start = path_start(properties, state0, path);
     let mut asked_smaller = false;
+    // Whether any increment changed the state variables (bit for bit).
+    let mut state_changed = false;
     for (k, f1) in path.gradients.iter().enumerate().skip(1) {
         start.increment = k as i32;
         start.time[1] = path.dtime.get(k - 1).copied().unwrap_or(1.0);
@@ -222,7 +224,18 @@ fn run_path(
         start.f0 = *f1;
         start.time[0] += start.time[1];
         start.stress0 = base.stress;
+        state_changed |= base.state.iter().zip(&start.state0).any(|(a, b)| a.to_bits() != b.to_bits());
         start.state0.copy_from_slice(&base.state);
+    }
+    // A routine with state that never changed it along the path was checked on its elastic
+    // (or stateless) branch only: said, as the point check's coverage says it (a finite J2
+    // check that never yielded read as one plastic throughout; a user-style sweep).
+    if info.nstate > 0 && !state_changed && report.fault.is_none() && !report.increments.is_empty() {
+        report.notes.push(
+            "the path never changed the state variables: only the elastic (or stateless) branch was checked; \
+             load further (a larger stretch or shear), or start from an inelastic state"
+                .into(),
+        );
     }
     report.calls = ws.calls;
     report.complex_calls = ws.complex_calls;
