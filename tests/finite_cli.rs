@@ -310,6 +310,11 @@ fn finite_checks_honour_or_refuse_the_check_options() {
     assert_eq!(code, 2, "{out}");
     let (code, out) = tancheck(&["check", &good, "--guards", "full", "--fp-traps", "-q"]);
     assert_eq!(code, 0, "{out}");
+    // The full level says what it adds to a finite-strain call: nothing yet (a user-style
+    // sweep found it silent).
+    let (code, out) = tancheck(&["check", &good, "--guards", "full"]);
+    assert_eq!(code, 0, "{out}");
+    assert!(out.contains("note: guards full: finite-strain calls get the light level's checks"), "{out}");
 
     // --call-timeout: the routine that never returns from increment 2 is a fault after 2 s
     // (the default limit is 30 s), named with its routine and the call's inputs.
