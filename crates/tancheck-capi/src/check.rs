@@ -157,7 +157,16 @@ fn summary(report: &Report, findings: &[GuardFinding]) -> String {
         let _ = write!(s, ": {}", parts.join("; "));
     }
     if let Some((k, f)) = report.first_fault_at() {
-        let _ = write!(s, "; fault in increment {k}: {}", f.message);
+        // Increment 0 is the look at a zero increment from the start state, which the routine
+        // is told is increment 1 (beside a guard finding "told increment 1" it read as two
+        // answers; a user-style sweep).
+        let which = if k == 0 {
+            "increment 0 (the zero increment from the start state; the routine was told increment 1)"
+                .to_string()
+        } else {
+            format!("increment {k}")
+        };
+        let _ = write!(s, "; fault in {which}: {}", f.message);
     }
     // Why a failed check failed: outputs that are not finite numbers (the counts above may
     // then show no failed comparison), or the finding over the path.

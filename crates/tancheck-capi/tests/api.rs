@@ -152,6 +152,11 @@ fn a_tangent_hole_is_a_routine_fault_with_a_finding() {
         assert!(f.ends_with("(first in a call told increment 1 in tc_call; 1 call)"), "{f}");
         let s = text(tck_result_summary(r));
         assert!(s.starts_with("FAULT routine: "), "{s}");
+        // The fault of the zero-increment look says which call that is.
+        assert!(
+            s.contains("; fault in increment 0 (the zero increment from the start state; the routine was told increment 1)"),
+            "{s}"
+        );
         assert!(s.contains("; memory guard: the routine left tangent[1] unwritten"), "{s}");
         let j = json(r);
         assert_eq!(j["verdict"], "routine-fault");
