@@ -140,6 +140,10 @@ fn a_default_check_catches_misbehaviour_in_a_new_branch_and_on_a_zero_increment(
         1,
         "verdict: FAIL — the routine returned values that are not finite numbers",
     );
+    // The quiet line names increment 0 as the zero increment (beside "the routine was told
+    // increment 1" elsewhere it read as two answers; a user-style sweep).
+    let (_, q) = check(c_lib(), "bad_unguarded_norm", &["-q"]);
+    assert!(q.contains("increment 0 (the zero increment from the start state) ("), "{q}");
     // Bisect works on the path's increments and says why it has nothing to do.
     let d = scratch("bisect-zero");
     let m = d.join("m.json");

@@ -149,9 +149,13 @@ fn quiet(out: &mut dyn Write, r: &Report, p: Palette) -> io::Result<()> {
         let word = if faulted { "FAULT" } else { "FAIL" };
         let finding =
             if faulted && inc.diagnosis.is_none() { String::new() } else { format!(" -> {}", inc.finding()) };
+        // Increment 0 is the zero increment from the start state, which the routine is told
+        // is increment 1: said, so that the line does not read as two answers beside a guard
+        // finding naming increment 1 (a user-style sweep).
+        let zero = if inc.index == 0 { " (the zero increment from the start state)" } else { "" };
         writeln!(
             out,
-            "{} {} increment {} ({}): {what}{finding}",
+            "{} {} increment {}{zero} ({}): {what}{finding}",
             p.fail(word),
             r.routine.name,
             inc.index,
