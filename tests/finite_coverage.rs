@@ -3,6 +3,11 @@
 //! does (a finite J2 check that never yielded read as one plastic throughout; a user-style
 //! sweep). The routine: the neo-Hookean model with one state variable of its own, kept as it
 //! is or raised at every call.
+//!
+//! An update that does not settle (a call from its own end state moves it again: here an
+//! isotropic stress c·n·1 with n raised at every call) is objective: `rotation-increment`
+//! compares a rigid increment with the same start's zero increment and passes, saying the
+//! update does not settle (it read "NOT objective"; a user-style sweep).
 
 use tancheck::core::finite::check::run;
 use tancheck::core::finite::{
@@ -34,6 +39,12 @@ impl FiniteRoutine for OneState {
         };
         self.0.call(&FiniteInput { state0: &[], ..*input }, &mut inner)?;
         output.state[0] = input.state0[0] + if self.2 { 1.0 } else { 0.0 };
+        if self.2 {
+            // An isotropic stress growing with every call (objective: 1 rotates into itself).
+            for k in 0..3 {
+                output.stress[k] += output.state[0];
+            }
+        }
         Ok(())
     }
 }
@@ -53,4 +64,19 @@ fn a_state_that_never_changes_is_said() {
     };
     assert!(said(false));
     assert!(!said(true));
+}
+
+#[test]
+fn an_update_that_does_not_settle_is_not_called_unobjective() {
+    use tancheck::core::finite::probe::{run_all, ProbeOptions};
+    let model = NeoHookean::new(StressMeasure::Kirchhoff, TangentMeasure::TauJaumann);
+    let mut info = tancheck::core::finite::FiniteModel::info(&model).clone();
+    info.nstate = 1;
+    let mut r = OneState(FiniteModelRoutine(model), info, true);
+    let path =
+        FinitePathSpec::UniaxialStretch { stretch: 1.2, increments: 3, rotation: None }.build().unwrap();
+    let results = run_all(&mut r, &[1000.0, 0.3], &[0.0], &path, &ProbeOptions::default());
+    let inc = results.iter().find(|p| p.name == "rotation-increment").unwrap();
+    assert!(inc.passed, "{inc:#?}");
+    assert!(inc.summary.contains("the update does not settle"), "{}", inc.summary);
 }

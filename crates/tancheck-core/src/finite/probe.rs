@@ -278,6 +278,9 @@ struct Findings {
     faulted: bool,
     /// Some case had the stress rotate (within the tolerance) and the state not.
     state_alone: bool,
+    /// A zero increment from a start changed the stress or state (the update does not
+    /// settle): said, the rigid increments compared with that zero increment's result.
+    unsettled: Option<String>,
 }
 
 impl Findings {
@@ -303,7 +306,8 @@ impl Findings {
     }
 
     fn verdict(self, name: &str, what: &str) -> FiniteProbeResult {
-        let Findings { worst, details, faulted, state_alone } = self;
+        let Findings { worst, details, faulted, state_alone, unsettled } = self;
+        let unsettled = unsettled.map_or(String::new(), |u| format!("; {u}"));
         // Where the stress rotates and the state does not, the declaration is the likelier
         // culprit (a correct routine keeping a reference-configuration tensor, declared in
         // tensor_state as the README then asked, read "NOT objective" with no word; a
@@ -321,13 +325,13 @@ impl Findings {
             name: name.into(),
             passed,
             summary: if passed {
-                format!("{what} (largest relative difference {worst:.1e})")
+                format!("{what} (largest relative difference {worst:.1e}){unsettled}")
             } else {
                 if worst.is_finite() {
                     // The largest of the stress, state and energy differences, each relative
                     // to its own size: the details say which.
                     format!(
-                        "NOT objective: it should hold that {what}; largest relative difference {worst:.2e}{hint}"
+                        "NOT objective: it should hold that {what}; largest relative difference {worst:.2e}{hint}{unsettled}"
                     )
                 } else {
                     format!("NOT objective: it should hold that {what}; a call failed")
@@ -391,6 +395,26 @@ impl Rotation<'_> {
         let mut found = Findings::default();
         for (angle, q) in rotations() {
             for s in &self.starts[1..] {
+                // The same start's zero increment: a routine whose update does not settle (a
+                // hardening variable never stored) changes its stress there too, and the rigid
+                // increment is judged against that, not the start (such an objective routine
+                // read "NOT objective"; a user-style sweep).
+                // (A zero increment the routine refuses leaves the start as the reference: the
+                // rigid increment's own call says what it refuses.)
+                let (zero_stress, zero_state) = match self.ws.call_full(self.r, s, &s.f0) {
+                    Ok(z) => (z.stress, z.state.clone()),
+                    Err(_) => (s.stress0, s.state0.clone()),
+                };
+                let moved = diff(&zero_stress, &s.stress0) / self.scale;
+                let moved_state = relative(diff(&zero_state, &s.state0), &s.state0);
+                if moved.max(moved_state) > ROTATION_TOLERANCE && found.unsettled.is_none() {
+                    found.unsettled = Some(format!(
+                        "a zero increment after increment {} changes the stress by {moved:.2e} and the state by \
+                         {moved_state:.2e} (the update does not settle: a call from its own end state moves it \
+                         again); the rigid increments are compared with the zero increment's stress and state",
+                        s.increment - 1
+                    ));
+                }
                 let b = match rotate_rigidly(self.r, self.ws, s, &s.f0, (0.0, angle), &mut self.cuts[0]) {
                     Ok(b) => b,
                     Err(e) => {
@@ -401,8 +425,8 @@ impl Rotation<'_> {
                         continue;
                     }
                 };
-                let e = diff(&b.stress, &rotate6(&q, &s.stress0)) / self.scale;
-                let es = relative(diff(&b.state, &rotate_state(&q, &s.state0, self.options)), &s.state0);
+                let e = diff(&b.stress, &rotate6(&q, &zero_stress)) / self.scale;
+                let es = relative(diff(&b.state, &rotate_state(&q, &zero_state, self.options)), &zero_state);
                 found.note_state(e, es);
                 found.difference(e.max(es), || {
                     let state = state_part(&s.state0, es);
@@ -420,6 +444,20 @@ impl Rotation<'_> {
         let end = self.starts.last().expect("a path has increments").clone();
         let mut s = end.clone();
         let mut found = Findings::default();
+        // An update that does not settle moves the stress at every step, rotated or not: said,
+        // as the likelier reason of a difference (a routine that never stored its hardening
+        // variable read only "NOT objective"; a user-style sweep).
+        if let Ok(zero) = self.ws.call_full(self.r, &end, &end.f0) {
+            let moved = diff(&zero.stress, &end.stress0) / self.scale;
+            let moved_state = relative(diff(&zero.state, &end.state0), &end.state0);
+            if moved.max(moved_state) > ROTATION_TOLERANCE {
+                found.unsettled = Some(format!(
+                    "a zero increment from the end of the path changes the stress by {moved:.2e} and the state by \
+                     {moved_state:.2e}: the update does not settle (a call from its own end state moves it again), \
+                     which each rotation step repeats"
+                ));
+            }
+        }
         let steps = 6;
         let step = std::f64::consts::FRAC_PI_2 / steps as f64;
         for k in 1..=steps {
