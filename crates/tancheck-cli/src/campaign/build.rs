@@ -56,7 +56,7 @@ pub fn build_all(
         }
         let hash =
             sources_hash(&sources).with_context(|| format!("{}: libraries[{k}]", c.source.display()))?;
-        let stamp = actual.with_extension("so.sources-sha256");
+        let stamp = super::stamp::stamp_of(&actual);
         let fresh = actual.is_file() && std::fs::read_to_string(&stamp).is_ok_and(|s| s.trim() == hash);
         if fresh {
             if tell {

@@ -218,11 +218,11 @@ impl Campaign {
             let declared = normalize(&self.dir.join(&lib.output));
             if let Some(d) = build_dir {
                 let built = normalize(&d.join(declared.file_name().unwrap_or_default()));
-                out.push(built.with_extension("so.sources-sha256"));
+                out.push(super::stamp::stamp_of(&built));
                 out.push(built);
             }
             // The build's stamp beside the library (build.rs) is the campaign's too.
-            out.push(declared.with_extension("so.sources-sha256"));
+            out.push(super::stamp::stamp_of(&declared));
             out.push(declared);
             let sources: Vec<PathBuf> = lib.sources.iter().map(|s| normalize(&self.dir.join(s))).collect();
             out.extend(super::stamp::companions(&sources));

@@ -7,6 +7,11 @@ use std::path::PathBuf;
 use anyhow::{Context, Result};
 use sha2::{Digest, Sha256};
 
+/// The file beside a built library that holds the hash of what it was built from.
+pub(super) fn stamp_of(library: &std::path::Path) -> PathBuf {
+    library.with_extension("so.sources-sha256")
+}
+
 /// SHA-256 over the sources and the headers and include files beside them.
 pub(super) fn sources_hash(sources: &[PathBuf]) -> Result<String> {
     let mut h = Sha256::new();

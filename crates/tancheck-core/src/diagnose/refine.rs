@@ -32,14 +32,12 @@ pub(super) fn strain_refinement(
     // read `secant` or `unexplained` (a user-style sweep). Below ENTRY_SEEN of the smallest
     // fraction the entry changes the fractions' ratios by less than that share.
     let smallest = REFINE[REFINE.len() - 1];
-    let past = match in_branch(driver, caller, smallest) {
-        Ok(false) => branch_entry(driver, caller, &in_branch).unwrap_or(0.0),
-        Ok(true) => match in_branch(driver, caller, smallest * ENTRY_SEEN) {
-            Ok(false) => branch_entry(driver, caller, &in_branch).unwrap_or(0.0),
-            _ => 0.0,
-        },
-        Err(_) => 0.0,
+    let crosses = match in_branch(driver, caller, smallest) {
+        Ok(true) => matches!(in_branch(driver, caller, smallest * ENTRY_SEEN), Ok(false)),
+        Ok(false) => true,
+        Err(_) => false,
     };
+    let past = if crosses { branch_entry(driver, caller, &in_branch).unwrap_or(0.0) } else { 0.0 };
     let mut errors = Vec::new();
     let mut same_branch = true;
     let mut num_s = vec![0.0; n * n];

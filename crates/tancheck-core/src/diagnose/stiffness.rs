@@ -14,7 +14,8 @@ const INITIAL_STEP: f64 = 1e-3;
 
 /// The stiffness at the start of the path: the best numerical tangent (`best`, the scheme the
 /// other trials use) at the end of a small step from the path's start state toward the strain
-/// the increment ends at (the increment's own direction when that is the start's), on a driver of its own (the increment's is left as it was). None
+/// the increment ends at (the increment's own direction when that is the start's), on a
+/// driver of its own (the increment's is left as it was). None
 /// when the driver does not know where its path starts, the state at the increment's end is
 /// the path's start state, the increment has no strain, or a call of the step fails (the trial
 /// is then left out).

@@ -391,22 +391,31 @@ impl Rotation<'_> {
         found.verdict("rotation-superposed", "a rigid rotation of the whole motion rotates stress and state")
     }
 
+    /// The stress and state of a zero increment from `s`, and how far they moved from the
+    /// start (stress, relative to the scale; state, relative to its size). A routine whose
+    /// update does not settle (a hardening variable never stored) moves there too; a zero
+    /// increment the routine refuses leaves the start (a rigid increment's own call then says
+    /// what it refuses).
+    fn zero_increment(&mut self, s: &Start) -> ([f64; 6], Vec<f64>, f64, f64) {
+        let (stress, state) = match self.ws.call_full(self.r, s, &s.f0) {
+            Ok(z) => (z.stress, z.state.clone()),
+            Err(_) => (s.stress0, s.state0.clone()),
+        };
+        let moved = diff(&stress, &s.stress0) / self.scale;
+        let moved_state = relative(diff(&state, &s.state0), &s.state0);
+        (stress, state, moved, moved_state)
+    }
+
     fn increment(&mut self) -> FiniteProbeResult {
         let mut found = Findings::default();
-        for (angle, q) in rotations() {
-            for s in &self.starts[1..] {
-                // The same start's zero increment: a routine whose update does not settle (a
-                // hardening variable never stored) changes its stress there too, and the rigid
-                // increment is judged against that, not the start (such an objective routine
-                // read "NOT objective"; a user-style sweep).
-                // (A zero increment the routine refuses leaves the start as the reference: the
-                // rigid increment's own call says what it refuses.)
-                let (zero_stress, zero_state) = match self.ws.call_full(self.r, s, &s.f0) {
-                    Ok(z) => (z.stress, z.state.clone()),
-                    Err(_) => (s.stress0, s.state0.clone()),
-                };
-                let moved = diff(&zero_stress, &s.stress0) / self.scale;
-                let moved_state = relative(diff(&zero_state, &s.state0), &s.state0);
+        // Each start's zero increment, once: the rigid increment is judged against it, not
+        // against the start (an objective routine whose update does not settle read "NOT
+        // objective"; a user-style sweep).
+        let starts = self.starts[1..].to_vec();
+        let zeros: Vec<([f64; 6], Vec<f64>)> = starts
+            .iter()
+            .map(|s| {
+                let (stress, state, moved, moved_state) = self.zero_increment(s);
                 if moved.max(moved_state) > ROTATION_TOLERANCE && found.unsettled.is_none() {
                     found.unsettled = Some(format!(
                         "a zero increment after increment {} changes the stress by {moved:.2e} and the state by \
@@ -415,6 +424,11 @@ impl Rotation<'_> {
                         s.increment - 1
                     ));
                 }
+                (stress, state)
+            })
+            .collect();
+        for (angle, q) in rotations() {
+            for (s, (zero_stress, zero_state)) in starts.iter().zip(&zeros) {
                 let b = match rotate_rigidly(self.r, self.ws, s, &s.f0, (0.0, angle), &mut self.cuts[0]) {
                     Ok(b) => b,
                     Err(e) => {
@@ -425,8 +439,8 @@ impl Rotation<'_> {
                         continue;
                     }
                 };
-                let e = diff(&b.stress, &rotate6(&q, &zero_stress)) / self.scale;
-                let es = relative(diff(&b.state, &rotate_state(&q, &zero_state, self.options)), &zero_state);
+                let e = diff(&b.stress, &rotate6(&q, zero_stress)) / self.scale;
+                let es = relative(diff(&b.state, &rotate_state(&q, zero_state, self.options)), zero_state);
                 found.note_state(e, es);
                 found.difference(e.max(es), || {
                     let state = state_part(&s.state0, es);
@@ -447,16 +461,13 @@ impl Rotation<'_> {
         // An update that does not settle moves the stress at every step, rotated or not: said,
         // as the likelier reason of a difference (a routine that never stored its hardening
         // variable read only "NOT objective"; a user-style sweep).
-        if let Ok(zero) = self.ws.call_full(self.r, &end, &end.f0) {
-            let moved = diff(&zero.stress, &end.stress0) / self.scale;
-            let moved_state = relative(diff(&zero.state, &end.state0), &end.state0);
-            if moved.max(moved_state) > ROTATION_TOLERANCE {
-                found.unsettled = Some(format!(
-                    "a zero increment from the end of the path changes the stress by {moved:.2e} and the state by \
-                     {moved_state:.2e}: the update does not settle (a call from its own end state moves it again), \
-                     which each rotation step repeats"
-                ));
-            }
+        let (_, _, moved, moved_state) = self.zero_increment(&end);
+        if moved.max(moved_state) > ROTATION_TOLERANCE {
+            found.unsettled = Some(format!(
+                "a zero increment from the end of the path changes the stress by {moved:.2e} and the state by \
+                 {moved_state:.2e}: the update does not settle (a call from its own end state moves it again), \
+                 which each rotation step repeats"
+            ));
         }
         let steps = 6;
         let step = std::f64::consts::FRAC_PI_2 / steps as f64;
