@@ -145,11 +145,51 @@ pub(super) fn try_layout(ev: &Evidence<'_>, found: &mut Found) {
             let scaled: Vec<f64> = r.iter().map(|x| c * x).collect();
             found.push(
                 Cause::UniformScale,
-                format!("the whole tangent off by a factor {:.4e}", 1.0 / c),
+                format!("the whole tangent off by a factor {:.4e}{}", 1.0 / c, bar_reading(ev, 1.0 / c)),
                 ev.error(&scaled),
             );
         }
     }
+}
+
+/// What a factor `f` on a bar's tangent reads as, when it is its elastic stiffness's too (the
+/// increment left the state alone, or the elastic step from the start state carries the same
+/// factor): a modulus of a fuller stress state in place of E. For isotropic elasticity (any
+/// text on Hooke's law): the 3D entry C11 = λ + 2μ = E (1 − ν)/((1 + ν)(1 − 2ν)) (lateral
+/// strains held at zero, not condensed for σ22 = σ33 = 0), and the plane-stress entry
+/// E/(1 − ν²). Each is read back to the ν that gives `f`, and named when that ν lies in
+/// (0, ½); empty for any other kind, a factor below 1 or a plastic increment whose elastic
+/// stiffness is right.
+fn bar_reading(ev: &Evidence<'_>, f: f64) -> String {
+    if ev.conv.kind() != crate::convention::PointKind::Uniaxial || !(f > 1.0 && f.is_finite()) {
+        return String::new();
+    }
+    let elastic_too = !ev.state_changed
+        || match (ev.elastic_returned, ev.elastic) {
+            (Some(&[r]), Some(&[e])) => e != 0.0 && (r / e - f).abs() <= 1e-3 * f,
+            _ => false,
+        };
+    if !elastic_too {
+        return String::new();
+    }
+    // 2 f ν² + (f − 1) ν + (1 − f) = 0, its positive root; and 1 − ν² = 1/f.
+    let three_d = (-(f - 1.0) + ((f - 1.0).powi(2) + 8.0 * f * (f - 1.0)).sqrt()) / (4.0 * f);
+    let plane_stress = (1.0 - 1.0 / f).sqrt();
+    let plausible = |nu: f64| nu > 0.0 && nu < 0.5;
+    let mut readings = Vec::new();
+    if plausible(three_d) {
+        readings.push(format!(
+            "the 3D modulus λ + 2μ = E(1 − ν)/((1 + ν)(1 − 2ν)) in place of E gives it at ν = {three_d:.3} \
+             (a tangent not condensed for σ22 = σ33 = 0)"
+        ));
+    }
+    if plausible(plane_stress) {
+        readings.push(format!("the plane-stress modulus E/(1 − ν²) gives it at ν = {plane_stress:.3}"));
+    }
+    if readings.is_empty() {
+        return String::new();
+    }
+    format!("; for a bar, {}", readings.join("; "))
 }
 
 /// Call `each` with every ordering of `v[k..]` (v[..k] fixed), in a fixed order; `v` is left

@@ -7,6 +7,7 @@ fn j2_like() -> Vec<f64> {
     crate::worked::j2(crate::worked::J2_THETA_BAR)
 }
 mod apex;
+mod bar;
 mod cone;
 mod dtemp;
 mod plane;
