@@ -274,6 +274,24 @@ fn the_finding_is_unexplained_where_most_failing_increments_are() {
     assert_eq!(relabel(k).finding(), "continuum-tangent");
 }
 
+// A check told not to diagnose (the C API's `diagnose = 0`, `Settings::diagnose`) says so in
+// its one-word finding, as each of its failing increments does: it read `unexplained`, which
+// says the diagnosis ran and found nothing (a user-style sweep).
+#[test]
+fn a_check_told_not_to_diagnose_finds_undiagnosed() {
+    use tancheck::core::path::Shape;
+    let path = Path::ramp(Shape::TensionShear, 4e-3, 8, 4);
+    let mut m = reference("j2-continuum", PointKind::Solid3d).unwrap();
+    let quiet = Settings { diagnose: false, ..Settings::default() };
+    let r = run(&mut m, &WORKED, &path, &quiet);
+    assert_eq!(r.verdict, Verdict::TangentFailure, "{}", summary(&r));
+    assert!(r.increments.iter().filter(|i| !i.passed()).all(|i| i.finding() == "undiagnosed"));
+    assert_eq!(r.finding(), "undiagnosed", "{}", summary(&r));
+    // Diagnosed, the same routine's finding is its cause.
+    let mut m = reference("j2-continuum", PointKind::Solid3d).unwrap();
+    assert_eq!(run(&mut m, &WORKED, &path, &Settings::default()).finding(), "continuum-tangent");
+}
+
 // Where several causes explain an increment, it names first the one the most other failing
 // increments name first (a continuum tangent read `start-temperature` at the increments that
 // only heat, and `isotropic-moduli` at one hydrostatic increment of a porous plasticity

@@ -432,7 +432,8 @@ impl Report {
     /// `non-finite-derivative`, `unsettled-update`, `dtemp`; ties go to the more specific
     /// cause), or
     /// `unexplained` when no increment names one or more increments are unexplained than name
-    /// any one finding (but a finding named at two increments or more and at a third as many as
+    /// any one finding (`undiagnosed` likewise, for increments the check was told not to
+    /// diagnose) (but a finding named at two increments or more and at a third as many as
     /// are unexplained comes first). Only the first-ranked cause counts: the
     /// general ones (`rank-two`, a rank-one term) also explain most discrepancies a specific
     /// cause explains, and counted at every increment they would outnumber it.
@@ -453,7 +454,15 @@ impl Report {
             if !inc.non_finite.is_empty() {
                 add("non-finite-output", 0);
             }
-            let Some(d) = &inc.diagnosis else { continue };
+            let Some(d) = &inc.diagnosis else {
+                // A failing increment the check was told not to diagnose (the C API's
+                // `diagnose = 0`): counted as unexplained ones are, under its own word (the
+                // whole read `unexplained` beside increments saying `undiagnosed`).
+                if inc.finding() == "undiagnosed" {
+                    add("undiagnosed", usize::MAX);
+                }
+                continue;
+            };
             if d.finding == "kink-neither-side"
                 || d.finding == crate::diagnose::NON_FINITE_FINDING
                 || d.finding == crate::diagnose::settle::UNSETTLED_FINDING
