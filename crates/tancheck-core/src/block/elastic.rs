@@ -101,6 +101,47 @@ const ELASTIC_TOLERANCE: f64 = 1e-5;
 /// The factor the time increment of the small increment is shrunk by toward Δt → 0 when the
 /// tangent depends on it.
 const TIME_SHRINK: f64 = 1e-3;
+/// The factor the small increment is shrunk by toward a zero increment when the stiffness
+/// there differs from the first call's and changes with the increment's size.
+const SIZE_SHRINK: f64 = 1e-3;
+
+/// The routine's numerical stiffness for the first increment's strain and time increment
+/// scaled by `scale`, from the start state at the start temperature, and the time increment it
+/// was taken at when it depends on the time increment (toward Δt → 0).
+fn stiffness_at(
+    routine: &mut dyn BlockRoutine,
+    properties: &[f64],
+    b: &mut BlockBuffers,
+    cx: &mut ComplexPoint,
+    first: &BlockStep,
+    scale: f64,
+    report: &mut BlockReport,
+) -> Result<(Vec<f64>, Option<f64>), String> {
+    for (x, d) in b.strain_increment.iter_mut().zip(&first.strain_increment) {
+        *x = scale * d;
+    }
+    let mut tangent_at = |dt: f64, report: &mut BlockReport| {
+        if routine.has_twin() {
+            cs_tangent(routine, properties, b, cx, dt, 1, report)
+        } else {
+            fd_tangent(routine, properties, b, dt, 1, report)
+        }
+    };
+    // The elastic response is the instantaneous one (Δt → 0): a rate-dependent routine without
+    // a threshold (a Maxwell branch relaxing within the increment) is softer at a finite time
+    // increment. Where the tangent at a thousandth of the time increment differs from the one
+    // at it, the limit is taken a thousandth further on (a correct viscoelastic routine failed
+    // at 1.2e-5, found by a user-style sweep).
+    let dt = scale * first.time_increment;
+    let d = tangent_at(dt, report)?;
+    let d2 = tangent_at(dt * TIME_SHRINK, report)?;
+    let diff: Vec<f64> = d.iter().zip(&d2).map(|(a, b)| a - b).collect();
+    if frobenius(&diff) <= 0.1 * ELASTIC_TOLERANCE * frobenius(&d2) {
+        return Ok((d, None));
+    }
+    let limit = dt * TIME_SHRINK * TIME_SHRINK;
+    Ok((tangent_at(limit, report)?, Some(limit)))
+}
 
 /// The elastic response must be the routine's own elastic stiffness at the point's
 /// conditions: the numerical tangent of a small increment (the first increment's strain
@@ -116,39 +157,43 @@ pub fn elastic_consistency(
 ) {
     let n = routine.info().ncomp;
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
-    for (x, d) in b.strain_increment.iter_mut().zip(&first.strain_increment) {
-        *x = SMALL * d;
-    }
     // At the start temperature, as the first call is (its conditions, no temperature change):
     // a thousandth of the first increment's temperature change moved a temperature-dependent
     // modulus by more than the tolerance (40 K per increment, E falling 5e-4 per K: 2.4e-5; a
     // user-style sweep).
     b.set_temperature_increment(0.0);
     let mut cx = ComplexPoint::new(properties.len(), n, s.state0.len());
-    let mut tangent_at = |dt: f64, report: &mut BlockReport| {
-        if routine.has_twin() {
-            cs_tangent(routine, properties, &b, &mut cx, dt, 1, report)
-        } else {
-            fd_tangent(routine, properties, &mut b, dt, 1, report)
-        }
+    let relative = |d: &[f64]| {
+        let diff: Vec<f64> = d.iter().zip(moduli).map(|(a, b)| a - b).collect();
+        frobenius(&diff) / frobenius(moduli).max(f64::MIN_POSITIVE)
     };
-    // The elastic response is the instantaneous one (Δt → 0): a rate-dependent routine without
-    // a threshold (a Maxwell branch relaxing within the increment) is softer at a finite time
-    // increment. Where the tangent at a thousandth of the time increment differs from the one
-    // at it, the limit is taken a thousandth further on (a correct viscoelastic routine failed
-    // at 1.2e-5, found by a user-style sweep).
-    let dt = SMALL * first.time_increment;
-    let mut limit_dt = None;
-    let d = tangent_at(dt, report).and_then(|d| {
-        let d2 = tangent_at(dt * TIME_SHRINK, report)?;
-        let diff: Vec<f64> = d.iter().zip(&d2).map(|(a, b)| a - b).collect();
-        if frobenius(&diff) <= 0.1 * ELASTIC_TOLERANCE * frobenius(&d2) {
-            return Ok(d);
+    // The elastic response is the stiffness at a zero increment. A stiffness that changes with
+    // the strain (an equation of state, a nonlinear elastic law) has moved at a thousandth of a
+    // coarse first increment by more than the tolerance (a correct routine failed on a path of
+    // three or ten steps and passed on one of a hundred; a user-style sweep): where it differs
+    // from the first call's there, it is taken again a thousandth further toward zero, and that
+    // one is judged when the two differ.
+    let mut measured = stiffness_at(routine, properties, &mut b, &mut cx, first, SMALL, report);
+    let mut size_limit = None;
+    if let Ok((d, _)) = &measured {
+        if relative(d) > ELASTIC_TOLERANCE {
+            let smaller = SMALL * SIZE_SHRINK;
+            let nearer = stiffness_at(routine, properties, &mut b, &mut cx, first, smaller, report);
+            let moved = match &nearer {
+                Ok((d2, _)) => {
+                    let diff: Vec<f64> = d.iter().zip(d2).map(|(a, b)| a - b).collect();
+                    frobenius(&diff) > 0.1 * ELASTIC_TOLERANCE * frobenius(d2)
+                }
+                Err(_) => true,
+            };
+            if moved {
+                measured = nearer;
+                size_limit = Some(smaller);
+            }
         }
-        limit_dt = Some(dt * TIME_SHRINK * TIME_SHRINK);
-        tangent_at(dt * TIME_SHRINK * TIME_SHRINK, report)
-    });
-    let d = match d {
+    }
+    let dt = size_limit.unwrap_or(SMALL) * first.time_increment;
+    let (d, limit_dt) = match measured {
         Ok(d) => d,
         // A call of the small increment that crashed, returned a failure status or was flagged
         // by the memory guards is a fault like any other call's, not a check left out.
@@ -212,6 +257,9 @@ pub fn elastic_consistency(
                  increment from the start by {rel:.3e}{}: {what}",
                 limit_dt.map_or(String::new(), |t| format!(
                     " (its stiffness depends on the time increment: taken toward Δt → 0, at Δt = {t:.3e})"
+                )) + &size_limit.map_or(String::new(), |f| format!(
+                    " (its stiffness changes with the strain: taken toward a zero increment, at {f:.0e} of the \
+                     first increment)"
                 ))
             ),
         );
