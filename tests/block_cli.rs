@@ -307,6 +307,39 @@ fn a_crash_or_guard_finding_in_the_independence_blocks_is_a_fault() {
 }
 
 #[test]
+fn an_output_left_unwritten_after_the_first_call_is_a_fault_and_ends_the_check() {
+    // Correct in the first call; after it the deleted flags are left unwritten. The point's
+    // walk before the checks (the one that cuts increments a routine refuses) met it first and
+    // let it go, and the loaded routine says a guard finding once: the checks then read the
+    // pre-fill as "deleted" and reported a deletion that never happened, exit 1 (with
+    // `"independence": false`; with it, the fault of the fresh instance beside it; a user-style
+    // sweep). Now the fault is said there, exit 3, and nothing read from such calls follows.
+    let d = scratch("block-cli-deleted-unwritten");
+    let m = misbehaving(&d, "mb_block_deleted_unwritten", 0);
+    let text = std::fs::read_to_string(&m).unwrap();
+    let alone = d.join("alone.json");
+    std::fs::write(
+        &alone,
+        text.replace(
+            r#""characteristic_length": 2.0"#,
+            r#""characteristic_length": 2.0, "independence": false"#,
+        ),
+    )
+    .unwrap();
+    for m in [&m, &alone] {
+        let (code, out, err) = tancheck(&["check".as_ref(), m.as_os_str(), "--json".as_ref(), "-".as_ref()]);
+        assert_eq!(code, 3, "{}: {out}{err}", m.display());
+        let v: Value = serde_json::from_str(&out).unwrap();
+        schema_valid(&v);
+        let f = v["findings"].as_array().unwrap();
+        assert_eq!(f.len(), 1, "{v:#}");
+        assert_eq!(f[0]["finding"], "routine-fault", "{v:#}");
+        assert!(f[0]["what"].as_str().unwrap().contains("left deleted[0] unwritten"), "{v:#}");
+        assert!(v["notes"].to_string().contains("the other block checks were not made"), "{v:#}");
+    }
+}
+
+#[test]
 fn a_block_call_that_never_returns_is_named_with_its_block() {
     // Spins for ever in a block of 7 points: the watchdog's last words place the hang in that
     // block call (it said "between two calls ... from a thread the routine left running?").

@@ -18,6 +18,8 @@
  *   mb_block_large_unwritten leaves the last point's energy unwritten in blocks of 7 points
  *                           or more
  *   mb_block_spin7          never returns from a block of exactly 7 points
+ *   mb_block_deleted_unwritten  correct in the first call; after it leaves every point's
+ *                           deleted flag unwritten
  * The last three are correct in blocks of one point and in the first call, so only the
  * independence check's blocks of 7 and 128 meet their misbehaviour.
  */
@@ -193,4 +195,19 @@ TC_BLOCK_ROUTINE(mb_block_spin7)
     volatile int spin = block->npoints == 7;
     while (spin) {
     }
+}
+
+TC_BLOCK_ROUTINE(mb_block_deleted_unwritten)
+{
+    (void)strain;
+    (void)state_start;
+    (void)state;
+    (void)report;
+    const int first = (block->flags & TC_BLOCK_ELASTIC_RESPONSE) != 0;
+    int32_t kept[1024];
+    /* The flags written into a scratch array instead, after the first call (the checks' blocks
+     * are far smaller). */
+    if (block->npoints > 1024) return;
+    elastic_in_blocks(block, properties, strain_increment, stress_start, energy_start, conditions, stress,
+                      energy, first ? deleted : kept, 0);
 }

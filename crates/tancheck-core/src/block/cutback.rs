@@ -6,7 +6,8 @@
 //! time increments (as many as the fraction asks with a tenth to spare, at least twice as
 //! many as before) until it takes every part; the checks then run on that path, with a note.
 //! A request in a check's other calls (a perturbed call, a block of many points) stays a
-//! failed call of that check. Any other fault in this walk, or more than [`MAX_PARTS`] parts,
+//! failed call of that check. A call the memory guards flag is handed back (a loaded routine
+//! says a guard finding once); any other fault in this walk, or more than [`MAX_PARTS`] parts,
 //! leaves the path as given (the checks then meet the fault themselves).
 
 use super::routine::{block_status, BlockRoutine};
@@ -16,15 +17,16 @@ use super::walk::BlockBuffers;
 use crate::cutback::{more_parts, note, request_words, MAX_PARTS};
 use crate::routine::Fault;
 
-/// The path cut where the routine asked, and the note saying so; `None` when nothing was cut.
-/// `calls` counts the calls made.
+/// The path cut where the routine asked, and the note saying so; `None` when nothing was cut;
+/// the increment (from 1, of the path walked so far) and the fault when a call was flagged by
+/// the memory guards. `calls` counts the calls made.
 pub(super) fn cut(
     routine: &mut dyn BlockRoutine,
     properties: &[f64],
     incs: &[BlockStep],
     s: &BlockSettings,
     calls: &mut u64,
-) -> Option<(Vec<BlockStep>, String)> {
+) -> Result<Option<(Vec<BlockStep>, String)>, (usize, Fault)> {
     let n = routine.info().ncomp;
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
     let mut out: Vec<BlockStep> = Vec::with_capacity(incs.len());
@@ -51,7 +53,13 @@ pub(super) fn cut(
                         refused = Some((largest_fraction, message));
                         break;
                     }
-                    Err(_) => return None,
+                    // A guard finding is said once by a loaded routine (later calls that repeat
+                    // it pass with the outputs as the routine left them): the checks would not
+                    // meet it again, so it is handed back (an unwritten `deleted` flag was read
+                    // as a deletion and an unwritten energy as a non-finite one; a user-style
+                    // sweep). Any other fault the checks meet themselves.
+                    Err(f @ Fault::Misbehaved { .. }) => return Err((out.len() + i + 1, f)),
+                    Err(_) => return Ok(None),
                 }
             }
             let Some((fraction, message)) = refused else {
@@ -64,13 +72,13 @@ pub(super) fn cut(
             words.get_or_insert_with(|| request_words(fraction, &message));
             parts = more_parts(parts, fraction);
             if parts > MAX_PARTS {
-                return None;
+                return Ok(None);
             }
             b = at;
         }
     }
     if cuts.is_empty() {
-        return None;
+        return Ok(None);
     }
     let text = note(
         &words.unwrap_or_default(),
@@ -79,5 +87,5 @@ pub(super) fn cut(
         "equal parts of the strain, temperature and time increments",
         out.len(),
     );
-    Some((out, text))
+    Ok(Some((out, text)))
 }

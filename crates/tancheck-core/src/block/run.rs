@@ -7,7 +7,7 @@ use super::history;
 use super::independence;
 use super::rate;
 use super::refine;
-use super::report::BlockReport;
+use super::report::{BlockCheck, BlockReport};
 use super::routine::BlockRoutine;
 use super::settings::BlockSettings;
 use super::step::block_increments;
@@ -55,11 +55,30 @@ pub fn run(
     // Increments the routine refuses as too large are cut, as a solver cuts its time
     // increment (a request read as a routine fault; a user-style sweep). After the first call,
     // so that the elastic response stays the routine's first call.
-    if let Some((cut, note)) =
-        super::cutback::cut(routine, properties, &incs, settings, &mut report.real_calls)
-    {
-        incs = cut;
-        report.notes.push(note);
+    match super::cutback::cut(routine, properties, &incs, settings, &mut report.real_calls) {
+        Ok(Some((cut, note))) => {
+            incs = cut;
+            report.notes.push(note);
+        }
+        Ok(None) => {}
+        // The first call after the elastic response that the guards flag: a fault, said here
+        // (a loaded routine says it once, and the checks' calls would pass it by), and the
+        // end of the check: the outputs of such calls are not the routine's results (an
+        // unwritten `deleted` flag read as a deletion beside the fault).
+        Err((k, f)) => {
+            report.add(
+                BlockCheck::Call,
+                "routine-fault",
+                Some(k),
+                format!("the point alone along the path, increment {k}: {f}"),
+            );
+            report.notes.push(
+                "the other block checks were not made: the memory guards flagged a call of the point alone, whose \
+                 outputs are then not the routine's results; mend the fault first"
+                    .into(),
+            );
+            return Ok(report);
+        }
     }
     elastic::elastic_consistency(routine, properties, &incs[0], &moduli, settings, &mut report);
     along::walk_one_point(routine, properties, &incs, &moduli, settings, &mut report);
