@@ -340,6 +340,34 @@ fn an_output_left_unwritten_after_the_first_call_is_a_fault_and_ends_the_check()
 }
 
 #[test]
+fn a_first_call_that_fails_gives_no_moduli() {
+    // The elastic response left an energy unwritten: nothing was measured, and the reports
+    // say so (they gave a wave speed and L/c of 0 as if measured; a user-style sweep).
+    let d = scratch("block-cli-first-call-fails");
+    let m = misbehaving(&d, "mb_block_unwritten", 0);
+    let html = d.join("page.html");
+    let args = [
+        "check".as_ref(),
+        m.as_os_str(),
+        "--json".as_ref(),
+        "-".as_ref(),
+        "--html".as_ref(),
+        html.as_os_str(),
+    ];
+    let (code, out, err) = tancheck(&args);
+    assert_eq!(code, 3, "{out}{err}");
+    let v: Value = serde_json::from_str(&out).unwrap();
+    schema_valid(&v);
+    for k in ["dilatational_modulus", "wave_speed", "stable_time_increment"] {
+        assert!(v["elastic"][k].is_null(), "{k}: {v:#}");
+    }
+    let page = std::fs::read_to_string(&html).unwrap();
+    assert!(page.contains("not measured (the first call did not give it)"), "{page}");
+    let (_, out, _) = tancheck(&["check".as_ref(), m.as_os_str()]);
+    assert!(out.contains("elastic response (first call): not measured"), "{out}");
+}
+
+#[test]
 fn a_block_call_that_never_returns_is_named_with_its_block() {
     // Spins for ever in a block of 7 points: the watchdog's last words place the hang in that
     // block call (it said "between two calls ... from a thread the routine left running?").

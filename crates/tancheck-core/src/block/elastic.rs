@@ -21,6 +21,7 @@ pub fn elastic_response(
     report: &mut BlockReport,
 ) -> Option<Vec<f64>> {
     let n = routine.info().ncomp;
+    report.elastic = ElasticSummary::unmeasured();
     let mut b = BlockBuffers::new(n, n, &s.state0, s.conditions);
     for j in 0..n {
         b.increment_of(j)[j] = TEST_STRAIN;

@@ -106,12 +106,35 @@ pub struct BlockIncrement {
 /// The elastic response of the first call.
 #[derive(Clone, Debug, Default, PartialEq, Serialize, schemars::JsonSchema)]
 pub struct ElasticSummary {
-    /// Elastic moduli (ncomp × ncomp, column-major), from the first call.
+    /// Elastic moduli (ncomp × ncomp, column-major), from the first call; empty when it was
+    /// not measured.
     pub moduli: Vec<f64>,
-    /// Largest normal diagonal entry: the dilatational modulus λ + 2μ for isotropy.
+    /// Largest normal diagonal entry: the dilatational modulus λ + 2μ for isotropy. This and
+    /// the next two are null (NaN in Rust) when the first call failed: not measured.
+    #[schemars(with = "Option<f64>")]
     pub dilatational_modulus: f64,
+    #[schemars(with = "Option<f64>")]
     pub wave_speed: f64,
+    #[schemars(with = "Option<f64>")]
     pub stable_time_increment: f64,
+}
+
+impl ElasticSummary {
+    /// Nothing measured: the first call failed (its zeros read as measured moduli and a wave
+    /// speed of 0; a user-style sweep).
+    pub fn unmeasured() -> ElasticSummary {
+        ElasticSummary {
+            moduli: Vec::new(),
+            dilatational_modulus: f64::NAN,
+            wave_speed: f64::NAN,
+            stable_time_increment: f64::NAN,
+        }
+    }
+
+    /// Whether the first call's moduli were measured.
+    pub fn measured(&self) -> bool {
+        !self.wave_speed.is_nan()
+    }
 }
 
 /// The whole result.

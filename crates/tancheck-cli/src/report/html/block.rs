@@ -86,18 +86,30 @@ pub fn block_page(r: &BlockReport) -> String {
         o.push_str("</table>\n");
     }
     let e = &r.elastic;
-    let _ = writeln!(
-        o,
-        "<h2>Elastic response</h2>\n<p>First call (zero time, zero increment): dilatational modulus {}, \
-         wave speed {}, stable time increment L/c {}.</p>",
-        sci(e.dilatational_modulus),
-        sci(e.wave_speed),
-        sci(e.stable_time_increment)
-    );
+    if e.measured() {
+        let _ = writeln!(
+            o,
+            "<h2>Elastic response</h2>\n<p>First call (zero time, zero increment): dilatational modulus {}, \
+             wave speed {}, stable time increment L/c {}.</p>",
+            sci(e.dilatational_modulus),
+            sci(e.wave_speed),
+            sci(e.stable_time_increment)
+        );
+    } else {
+        o.push_str(
+            "<h2>Elastic response</h2>\n<p>First call (zero time, zero increment): not measured (the first call \
+             did not give it).</p>\n",
+        );
+    }
+    // L/c falls as the stiffness rises: below the first call's line the point is stiffer than
+    // its elastic response (the caption said softer; a user-style sweep).
+    o.push_str("<h2>Stable time increment along the path</h2>\n");
     o.push_str(&figure(
         time_increments(r),
-        "L/c = characteristic length / sqrt(effective dilatational modulus / density) per increment; \
-         below the elastic line the point is softer than elastic, above it the time increment collapses.",
+        "L/c = characteristic length / sqrt(effective dilatational modulus / density) per increment. \
+         Below the elastic line (the first call's L/c) the point is stiffer than its elastic response: \
+         a solver that sizes its time increment from the first call steps past the stable one. \
+         Above it the point is softer than elastic.",
         "",
     ));
     if !r.notes.is_empty() {
@@ -108,8 +120,12 @@ pub fn block_page(r: &BlockReport) -> String {
         o.push_str("</ul>\n");
     }
     o.push_str(
-        "<h2>Increments</h2>\n<table>\n<tr><th>inc</th><th>effective modulus</th><th>wave speed</th>\
-         <th>L/c</th><th>work / mass</th><th>Δ internal</th><th>Δ dissipated</th><th>twin Δ</th><th></th></tr>\n",
+        "<h2>Increments</h2>\n<p>The point alone along the path. Effective modulus: the largest normal \
+         diagonal entry of its numerical tangent; work / mass by the stated rule beside the routine's own \
+         internal and dissipated energy increments; twin Δ: the relative difference of the finite-difference \
+         and complex-step tangents (a dash without a twin); a dash where a deleted point has no value.</p>\n\
+         <table>\n<tr><th>inc</th><th>effective modulus</th><th>wave speed</th>\
+         <th>L/c</th><th>work / mass</th><th>Δ internal</th><th>Δ dissipated</th><th>twin Δ</th><th>deleted</th></tr>\n",
     );
     // A value that is not a number (a deleted point has no modulus or wave speed; the JSON
     // has null) shows as a dash, not as "NaN", which read as a failed computation.

@@ -26,12 +26,16 @@ impl BlockTerminal {
             writeln!(out, "   path: {} ({} increments)", r.path, r.increments.len())?;
         }
         let e = &r.elastic;
-        writeln!(
-            out,
-            "   elastic response (first call): dilatational modulus {:.6e}, wave speed {:.6e}, stable time \
-             increment L/c {:.6e}",
-            e.dilatational_modulus, e.wave_speed, e.stable_time_increment
-        )?;
+        if e.measured() {
+            writeln!(
+                out,
+                "   elastic response (first call): dilatational modulus {:.6e}, wave speed {:.6e}, stable time \
+                 increment L/c {:.6e}",
+                e.dilatational_modulus, e.wave_speed, e.stable_time_increment
+            )?;
+        } else {
+            writeln!(out, "   elastic response (first call): not measured (the first call did not give it)")?;
+        }
         if self.detail == Detail::Verbose {
             writeln!(
                 out,
