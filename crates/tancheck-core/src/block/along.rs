@@ -195,7 +195,12 @@ pub fn walk_one_point(
         // Before the energy: a damage that falls also gives back dissipated energy, and the
         // fall is the cause to read first.
         damage.after(&b.state_start, &b.state, index, report);
-        if deleted_at.is_none() {
+        // A deleted point too, while it stays deleted: its stress is the declared residual, and
+        // its internal energy follows that stress's work (none for a stress-free point; a
+        // deleted point that went on adding internal energy passed; a user-style sweep). A
+        // point active again after its deletion is `deleted-point-revived`, whose energies
+        // are not read further.
+        if deleted_at.is_none() || row.deleted {
             total_work += row.work.abs();
             energy_findings(&b, &row, scale, total_work, s, report);
         }
@@ -370,11 +375,16 @@ fn energy_findings(
             Some(index),
             format!(
                 "the internal energy grew by {:.9e} per unit mass, the work of the stress over the \
-                 increment ({} rule, divided by the density) is {:.9e}: off by {:.3e} of |σ||Δε|/ρ",
+                 increment ({} rule, divided by the density) is {:.9e}: {}",
                 row.internal_increment,
                 s.energy_rule.name(),
                 row.work,
-                (row.internal_increment - row.work).abs() / scale.max(f64::MIN_POSITIVE)
+                if scale > 0.0 {
+                    format!("off by {:.3e} of |σ||Δε|/ρ", (row.internal_increment - row.work).abs() / scale)
+                } else {
+                    // A stress-free point (deleted, or at rest): no work to measure it against.
+                    "the stress does no work here, so the internal energy must not change".into()
+                }
             ),
         );
     }
