@@ -40,8 +40,9 @@ module tancheck_api
             tck_component_11, tck_component_12, tck_component_13, tck_component_22, &
             tck_component_23, tck_component_33
   public :: tck_shear_engineering, tck_shear_tensor
-  public :: tck_shape_uniaxial_strain, tck_shape_shear_12, tck_shape_biaxial, &
-            tck_shape_hydrostatic, tck_shape_tension_shear
+  public :: tck_shape_default, tck_shape_uniaxial_strain, tck_shape_shear_12, tck_shape_biaxial, &
+            tck_shape_hydrostatic, tck_shape_tension_shear, tck_shape_mixed_mode, &
+            tck_shape_uniaxial_stress
   public :: tck_scheme_forward, tck_scheme_backward, tck_scheme_central, tck_scheme_central4, &
             tck_scheme_richardson, tck_scheme_complex_step, tck_scheme_slots
   public :: tck_guard_off, tck_guard_light, tck_guard_full
@@ -93,12 +94,15 @@ module tancheck_api
   integer(c_int32_t), parameter :: tck_shear_engineering = 0_c_int32_t
   integer(c_int32_t), parameter :: tck_shear_tensor = 1_c_int32_t
 
-  !> Built-in path shapes (tck_shape).
+  !> Built-in path shapes (tck_shape); default: the kind's own (tck_shape_default).
+  integer(c_int32_t), parameter :: tck_shape_default = 0_c_int32_t
   integer(c_int32_t), parameter :: tck_shape_uniaxial_strain = 1_c_int32_t
   integer(c_int32_t), parameter :: tck_shape_shear_12 = 2_c_int32_t
   integer(c_int32_t), parameter :: tck_shape_biaxial = 3_c_int32_t
   integer(c_int32_t), parameter :: tck_shape_hydrostatic = 4_c_int32_t
   integer(c_int32_t), parameter :: tck_shape_tension_shear = 5_c_int32_t
+  integer(c_int32_t), parameter :: tck_shape_mixed_mode = 6_c_int32_t
+  integer(c_int32_t), parameter :: tck_shape_uniaxial_stress = 7_c_int32_t
 
   !> Derivative schemes (tck_scheme): the index into rel_step(0:) and tol(0:), and
   !> ibset(0, index) is its bit in schemes.

@@ -120,11 +120,17 @@ typedef enum tck_shear {
 
 /* Built-in path shapes (directions in tensor components 11, 22, 33, 23, 13, 12). */
 typedef enum tck_shape {
+    TCK_SHAPE_DEFAULT = 0,         /* the kind's own, as the command line's: tension-shear; a bar
+                                      uniaxial-strain; a cohesive point mixed-mode (its one slip
+                                      for cohesive-2d); entries the kind lacks left out */
     TCK_SHAPE_UNIAXIAL_STRAIN = 1, /* eps11 */
     TCK_SHAPE_SHEAR_12 = 2,        /* eps12 */
     TCK_SHAPE_BIAXIAL = 3,         /* eps11 = eps22 */
     TCK_SHAPE_HYDROSTATIC = 4,     /* eps11 = eps22 = eps33 */
-    TCK_SHAPE_TENSION_SHEAR = 5    /* eps11, eps12 = eps11/2, eps13 = 0.15 eps11, eps23 = -eps11/4 */
+    TCK_SHAPE_TENSION_SHEAR = 5,   /* eps11, eps12 = eps11/2, eps13 = 0.15 eps11, eps23 = -eps11/4 */
+    TCK_SHAPE_MIXED_MODE = 6,      /* slots 11, 22, 33 as 1, 0.75, 0.375: a cohesive opening with
+                                      its slips; a solid's triaxial normal strain */
+    TCK_SHAPE_UNIAXIAL_STRESS = 7  /* eps11 prescribed, every other stress held at zero */
 } tck_shape;
 
 /* Derivative schemes: an index into tck_options.rel_step and .tol, and (as 1 << index) a bit
@@ -171,7 +177,7 @@ typedef struct tck_options {
     double temperature;         /* start temperature; default 0 */
 
     /* the path: the built-in shape, unless increments is given */
-    int32_t shape;              /* tck_shape; default TCK_SHAPE_TENSION_SHEAR */
+    int32_t shape;              /* tck_shape; default TCK_SHAPE_DEFAULT */
     int32_t steps;              /* increments out to peak; default 8 */
     int32_t back;               /* increments back to zero; default 4 */
     int32_t nincrements;        /* rows of increments */

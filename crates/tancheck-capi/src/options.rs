@@ -42,13 +42,37 @@ pub const COMPONENTS: [(i32, Component); 9] = [
 /// `tck_shear` values.
 pub const SHEARS: [(i32, ShearMeasure); 2] = [(0, ShearMeasure::Engineering), (1, ShearMeasure::Tensor)];
 
+/// A built-in path of the C API: the kind's default, a shape's ramp, or uniaxial stress.
+#[derive(Clone, Copy, Debug, PartialEq)]
+pub enum ShapeChoice {
+    /// The kind's default path (`Path::kind_default`), as the command line's.
+    KindDefault,
+    Ramp(Shape),
+    /// ε11 prescribed, every other stress held at zero.
+    UniaxialStress,
+}
+
+impl ShapeChoice {
+    /// The name in `TCK_SHAPE_<NAME>` (upper case, `-` as `_`).
+    pub fn name(self) -> &'static str {
+        match self {
+            ShapeChoice::KindDefault => "default",
+            ShapeChoice::Ramp(s) => s.name(),
+            ShapeChoice::UniaxialStress => "uniaxial-stress",
+        }
+    }
+}
+
 /// `tck_shape` values.
-pub const SHAPES: [(i32, Shape); 5] = [
-    (1, Shape::UniaxialStrain),
-    (2, Shape::Shear12),
-    (3, Shape::Biaxial),
-    (4, Shape::Hydrostatic),
-    (5, Shape::TensionShear),
+pub const SHAPES: [(i32, ShapeChoice); 8] = [
+    (0, ShapeChoice::KindDefault),
+    (1, ShapeChoice::Ramp(Shape::UniaxialStrain)),
+    (2, ShapeChoice::Ramp(Shape::Shear12)),
+    (3, ShapeChoice::Ramp(Shape::Biaxial)),
+    (4, ShapeChoice::Ramp(Shape::Hydrostatic)),
+    (5, ShapeChoice::Ramp(Shape::TensionShear)),
+    (6, ShapeChoice::Ramp(Shape::MixedMode)),
+    (7, ShapeChoice::UniaxialStress),
 ];
 
 /// `tck_scheme` values: index into `rel_step` and `tol`, bit `1 << index` of `schemes`.
@@ -131,7 +155,7 @@ impl Default for Options {
             strain0: std::ptr::null(),
             stress0: std::ptr::null(),
             temperature: 0.0,
-            shape: 5,
+            shape: 0,
             steps: 8,
             back: 4,
             nincrements: 0,
@@ -310,7 +334,7 @@ impl Options {
         }
 
         // SAFETY: the caller's contract on the increments.
-        let path = unsafe { self.path()? };
+        let path = unsafe { self.path(kind)? };
         let settings = self.settings()?;
         let guard_level = lookup(&GUARD_LEVELS, self.guard_level).ok_or_else(|| {
             Failure::invalid(format!(
@@ -325,7 +349,7 @@ impl Options {
     ///
     /// # Safety
     /// As [`Options::plan`].
-    unsafe fn path(&self) -> Result<Path, Failure> {
+    unsafe fn path(&self, kind: PointKind) -> Result<Path, Failure> {
         // Every count with its array: a count without one is an error, never the default.
         if self.increments.is_null() && self.nincrements != 0 {
             return Err(Failure::invalid(format!(
@@ -355,14 +379,25 @@ impl Options {
                 )));
             }
             let back = count("back", self.back, "increments back to zero")?;
-            if !(self.peak.is_finite() && self.peak != 0.0) {
+            // At most 10, as the command line's `path.peak` (the README says the C API checks
+            // the same; 12 and -11 were taken; a user-style sweep).
+            if !(self.peak.is_finite() && self.peak != 0.0 && self.peak.abs() <= 10.0) {
                 return Err(Failure::invalid(format!(
                     "tck_options.peak is {}; give the size of the leading strain component at the peak \
-                     (a nonzero finite number, e.g. 4e-3)",
+                     (a nonzero number at most 10 in magnitude, e.g. 4e-3)",
                     self.peak
                 )));
             }
-            let path = Path::ramp(shape, self.peak, self.steps as usize, back);
+            let steps = self.steps as usize;
+            let path = match shape {
+                // The kind's own, as the command line's: a cohesive point's mixed-mode (the C
+                // API's tension-shear left its slips unloaded, and a cohesive routine without
+                // its mixed-mode coupling passed here and failed on the command line; a
+                // user-style sweep).
+                ShapeChoice::KindDefault => Path::kind_default(kind, self.peak, steps, back),
+                ShapeChoice::Ramp(s) => Path::ramp(s, self.peak, steps, back),
+                ShapeChoice::UniaxialStress => Path::uniaxial_stress(self.peak, steps, back),
+            };
             path.validate().map_err(|e| Failure::invalid(format!("tck_options (steps, back, peak): {e}")))?;
             return Ok(path);
         }
@@ -455,9 +490,41 @@ mod tests {
     }
 
     #[test]
+    fn the_default_shape_is_the_kinds_own() {
+        // A cohesive point's default loads its slips with its opening (mixed-mode), as the
+        // command line's does: the C API's tension-shear left them unloaded, and a cohesive
+        // routine without its mixed-mode coupling passed here (a user-style sweep).
+        for (kind, value) in
+            [(PointKind::Cohesive2d, 7), (PointKind::Cohesive3d, 6), (PointKind::Uniaxial, 5)]
+        {
+            let o = Options { kind: value, ..Options::default() };
+            // SAFETY: all pointers NULL.
+            let p = unsafe { o.plan() }.unwrap();
+            assert_eq!(p.info.convention.kind(), kind);
+            assert_eq!(p.path, Path::kind_default(kind, 4e-3, 8, 4));
+        }
+        let o = Options { kind: 7, ..Options::default() };
+        // SAFETY: all pointers NULL.
+        let p = unsafe { o.plan() }.unwrap();
+        assert!(
+            p.path.increments[0].dstrain[1] > 0.0 && p.path.increments[0].dstrain[0] > 0.0,
+            "{:?}",
+            p.path
+        );
+        assert!(p.path.name.starts_with("mixed-mode"), "{}", p.path.name);
+        // The other shapes by value, uniaxial stress with its held stresses.
+        let o = Options { shape: 6, ..Options::default() };
+        // SAFETY: all pointers NULL.
+        assert_eq!(unsafe { o.plan() }.unwrap().path, Path::ramp(Shape::MixedMode, 4e-3, 8, 4));
+        let o = Options { shape: 7, ..Options::default() };
+        // SAFETY: all pointers NULL.
+        assert_eq!(unsafe { o.plan() }.unwrap().path, Path::uniaxial_stress(4e-3, 8, 4));
+    }
+
+    #[test]
     fn bad_values_name_the_field() {
         type Change = &'static dyn Fn(&mut Options);
-        let cases: [(Change, &str); 13] = [
+        let cases: [(Change, &str); 15] = [
             (&|o| o.kind = 9, "tck_options.kind is 9; use a tck_kind value (1, 2, 3, 4, 5, 6, 7)"),
             (&|o| o.version = 3, "tck_options.version is 3"),
             (&|o| o.nproperties = 3, "nproperties is 3 but properties is NULL"),
@@ -470,7 +537,10 @@ mod tests {
             (&|o| o.norder = 6, "norder is 6 but order is NULL"),
             (&|o| o.nincrements = -1, "nincrements is -1 but increments is NULL"),
             // Numbers out of range.
-            (&|o| o.peak = 1e308, "out of range"),
+            (&|o| o.peak = 1e308, "at most 10 in magnitude"),
+            // As the command line's path.peak (12 and -11 were taken; a user-style sweep).
+            (&|o| o.peak = 12.0, "tck_options.peak is 12; give"),
+            (&|o| o.peak = -11.0, "tck_options.peak is -11; give"),
             (&|o| o.nstate = 2_000_000_000, "nstate is 2000000000; at most"),
             (&|o| o.temperature = f64::INFINITY, "temperature must be a finite number"),
         ];

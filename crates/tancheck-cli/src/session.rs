@@ -2,7 +2,7 @@
 //! and print or write the report. Used by the check command, the demo and the selftest.
 
 use anyhow::Result;
-use tancheck_core::path::{Path, Shape};
+use tancheck_core::path::Path;
 use tancheck_core::report::Keep;
 use tancheck_core::{check, Caller, PointKind, Report};
 
@@ -110,30 +110,10 @@ pub fn reporters(output: &OutputArgs, json: Option<&std::path::Path>) -> Fanout<
     f
 }
 
-/// The default path: into the inelastic range of typical metals and back, with the entries in
-/// slots the kind does not have left out (and said in its name): the check leaves them out
-/// anyway, and says so in a note for a path that asks for them. A cohesive point opens with
-/// its slips (`mixed-mode`; the second slip left out for a 2D one, unsaid: it has none):
-/// tension-shear left it pure opening, and a wrong mixed-mode coupling passed the default
-/// check (a user-style sweep).
+/// The default path: into the inelastic range of typical metals and back (4e-3 in 8 increments
+/// and back in 4), the kind's own shape ([`Path::kind_default`]).
 pub fn default_path(kind: PointKind) -> Path {
-    let shape = match kind {
-        PointKind::Uniaxial => Shape::UniaxialStrain,
-        PointKind::Cohesive3d | PointKind::Cohesive2d => Shape::MixedMode,
-        _ => Shape::TensionShear,
-    };
-    let mut p = Path::ramp(shape, 4e-3, 8, 4);
-    if kind == PointKind::Cohesive2d {
-        for inc in &mut p.increments {
-            inc.dstrain[2] = 0.0;
-        }
-        p.name = p.name.replace("mixed-mode", "mixed-mode (opening and slip)");
-    }
-    let left = p.leave_out_slots(kind);
-    if !left.is_empty() {
-        p.name.push_str(&format!(" (its {} left out for {} point)", left.join(" and "), kind.with_article()));
-    }
-    p
+    Path::kind_default(kind, 4e-3, 8, 4)
 }
 
 /// The routine a manifest names, for messages: the symbol or the model.

@@ -203,6 +203,38 @@ impl Path {
         Path { name, increments }
     }
 
+    /// The default path of a point of `kind`, to `peak` in `steps_out` increments and back in
+    /// `steps_back`: tension-shear (every column of a 3D tangent exercised), a bar's
+    /// uniaxial-strain, and a cohesive point's mixed-mode, an opening with its slips, so that
+    /// the mixed-mode coupling is loaded (tension-shear left it pure opening, and a wrong
+    /// coupling passed; a user-style sweep); the second slip left out for a 2D one, unsaid (it
+    /// has none). Entries in slots the kind does not have are left out, and the name says so.
+    /// The command line's default path and the C API's `TCK_SHAPE_DEFAULT` are this one.
+    pub fn kind_default(kind: crate::PointKind, peak: f64, steps_out: usize, steps_back: usize) -> Path {
+        use crate::PointKind;
+        let shape = match kind {
+            PointKind::Uniaxial => Shape::UniaxialStrain,
+            PointKind::Cohesive3d | PointKind::Cohesive2d => Shape::MixedMode,
+            _ => Shape::TensionShear,
+        };
+        let mut p = Path::ramp(shape, peak, steps_out, steps_back);
+        if kind == PointKind::Cohesive2d {
+            for inc in &mut p.increments {
+                inc.dstrain[2] = 0.0;
+            }
+            p.name = p.name.replace("mixed-mode", "mixed-mode (opening and slip)");
+        }
+        let left = p.leave_out_slots(kind);
+        if !left.is_empty() {
+            p.name.push_str(&format!(
+                " (its {} left out for {} point)",
+                left.join(" and "),
+                kind.with_article()
+            ));
+        }
+        p
+    }
+
     /// Uniaxial stress: ε11 prescribed out to `peak` in `steps_out` increments and back in
     /// `steps_back`, every other stress component held at zero.
     pub fn uniaxial_stress(peak: f64, steps_out: usize, steps_back: usize) -> Path {
