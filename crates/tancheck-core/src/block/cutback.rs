@@ -17,6 +17,9 @@ use super::walk::BlockBuffers;
 use crate::cutback::{more_parts, note, request_words, MAX_PARTS};
 use crate::routine::Fault;
 
+/// The cut path and the note saying so.
+type CutPath = (Vec<BlockStep>, String);
+
 /// The path cut where the routine asked, and the note saying so; `None` when nothing was cut;
 /// the increment (from 1, of the path walked so far) and the fault when a call was flagged by
 /// the memory guards. `calls` counts the calls made.
@@ -26,7 +29,7 @@ pub(super) fn cut(
     incs: &[BlockStep],
     s: &BlockSettings,
     calls: &mut u64,
-) -> Result<Option<(Vec<BlockStep>, String)>, (usize, Fault)> {
+) -> Result<Option<CutPath>, (usize, Fault)> {
     let n = routine.info().ncomp;
     let mut b = BlockBuffers::new(1, n, &s.state0, s.conditions);
     let mut out: Vec<BlockStep> = Vec::with_capacity(incs.len());
