@@ -42,15 +42,15 @@ impl BlockModel for Brittle {
             out.state[p] = S::cst(if gone { 1.0 } else { 0.0 });
             let mut w = S::cst(0.0);
             let tr = de[0] + de[1] + de[2];
-            for i in 0..6 {
+            for (i, &d) in de.iter().enumerate() {
                 let s = if gone {
                     S::cst(0.0)
                 } else {
-                    let ds = if i < 3 { tr * lambda + de[i] * mu * 2.0 } else { de[i] * mu };
+                    let ds = if i < 3 { tr * lambda + d * mu * 2.0 } else { d * mu };
                     input.stress_start[c.start + i] + ds
                 };
                 out.stress[c.start + i] = s;
-                w += (input.stress_start[c.start + i] + s) * de[i] * 0.5;
+                w += (input.stress_start[c.start + i] + s) * d * 0.5;
             }
             if input.elastic_response {
                 out.energy[p] = input.energy_start[p];

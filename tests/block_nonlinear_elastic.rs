@@ -53,13 +53,13 @@ impl BlockModel for Polynomial {
             let de = &input.strain_increment[c.clone()];
             if input.elastic_response {
                 let tr = de[0] + de[1] + de[2];
-                for i in 0..6 {
+                for (i, &d) in de.iter().enumerate() {
                     let dev = if self.bulk_only {
                         S::cst(0.0)
                     } else if i < 3 {
-                        (de[i] - tr / 3.0) * g * 2.0
+                        (d - tr / 3.0) * g * 2.0
                     } else {
-                        de[i] * g
+                        d * g
                     };
                     let vol = if i < 3 { tr * k1 } else { S::cst(0.0) };
                     out.stress[c.start + i] = input.stress_start[c.start + i] + vol + dev;
