@@ -258,37 +258,43 @@ TC_ROUTINE(c_slow_bar)
     assert!(x.contains("<skipped") && x.contains("not run"), "{x}");
 }
 
-// A library that does not compile is bad input (exit 2), found after the reports were replaced
-// by "incomplete" markers: every report file gets back what it held (the JSON report was left
-// as the marker while the JUnit and HTML reports were put back; a user-style sweep).
+// A library that does not compile makes its routines' items bad input (exit 2), and the other
+// items run: one typo in one library stopped the whole campaign before any item ran, with no
+// report (a user-style sweep). Every report says so, the JUnit one as bad input (it read
+// routine-fault, the class of exit 3).
 #[test]
-fn a_library_that_does_not_compile_puts_back_every_earlier_report() {
+fn a_library_that_does_not_compile_is_bad_input_for_its_routines_only() {
     let d = scratch("broken-library");
+    let examples = Path::new(env!("CARGO_MANIFEST_DIR")).join("fortran-shim/examples/c");
     std::fs::write(d.join("broken.c"), "int broken( { return 0; }\n").unwrap();
     std::fs::write(
         d.join("m.json"),
         r#"{ "routine": { "library": "build/libbroken.so", "symbol": "broken", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3] } }"#,
     )
     .unwrap();
+    std::fs::write(
+        d.join("good.json"),
+        r#"{ "routine": { "library": "build/libgood.so", "symbol": "c_elastic", "kind": "solid-3d", "states": 0, "properties": [200000, 0.3] } }"#,
+    )
+    .unwrap();
     let file = d.join("c.json");
     std::fs::write(
         &file,
-        r#"{ "format": "tancheck-campaign", "version": 1, "name": "broken",
-  "libraries": [ { "output": "build/libbroken.so", "sources": ["broken.c"] } ],
-  "routines": [ { "manifest": "m.json" } ] }
+        format!(
+            r#"{{ "format": "tancheck-campaign", "version": 1, "name": "broken",
+  "libraries": [ {{ "output": "build/libbroken.so", "sources": ["broken.c"] }},
+                 {{ "output": "build/libgood.so", "sources": ["{}"] }} ],
+  "routines": [ {{ "manifest": "m.json" }}, {{ "manifest": "good.json" }} ] }}
 "#,
+            examples.join("elastic.c").display()
+        ),
     )
     .unwrap();
     let (json, xml, html) = (d.join("r.json"), d.join("r.xml"), d.join("r.html"));
-    for (p, earlier) in
-        [(&json, "{\"earlier\": true}\n"), (&xml, "<earlier/>\n"), (&html, "<p>earlier</p>\n")]
-    {
-        std::fs::write(p, earlier).unwrap();
-    }
     let o = bin()
         .arg("campaign")
         .arg(&file)
-        .args(["--jobs", "1", "-q"])
+        .args(["--jobs", "1"])
         .arg("--json")
         .arg(&json)
         .arg("--junit")
@@ -299,7 +305,16 @@ fn a_library_that_does_not_compile_puts_back_every_earlier_report() {
         .unwrap();
     assert_eq!(o.status.code(), Some(2), "{}", text(&o));
     assert!(text(&o).contains("broken.c"), "{}", text(&o));
-    assert_eq!(std::fs::read_to_string(&json).unwrap(), "{\"earlier\": true}\n");
-    assert_eq!(std::fs::read_to_string(&xml).unwrap(), "<earlier/>\n");
-    assert_eq!(std::fs::read_to_string(&html).unwrap(), "<p>earlier</p>\n");
+    let v: Value = serde_json::from_str(&std::fs::read_to_string(&json).unwrap()).unwrap();
+    let its = items(&v);
+    assert_eq!(its.len(), 2, "{v:#}");
+    let broken = its.iter().find(|i| i["routine"].as_str().unwrap().contains("m.json")).unwrap();
+    assert_eq!(broken["outcome"], "error", "{broken}");
+    assert_eq!(broken["finding"], "bad-input", "{broken}");
+    assert!(broken["message"].as_str().unwrap().contains("its library did not build"), "{broken}");
+    let good = its.iter().find(|i| i["routine"].as_str().unwrap().contains("good.json")).unwrap();
+    assert_eq!(good["outcome"], "pass", "{good}");
+    let x = std::fs::read_to_string(&xml).unwrap();
+    assert!(x.contains(r#"type="bad-input""#) && !x.contains("routine-fault"), "{x}");
+    assert!(std::fs::read_to_string(&html).unwrap().contains("its library did not build"));
 }

@@ -2,7 +2,8 @@
 //! sources changed (a stamp file beside it holds their SHA-256), written under a temporary
 //! name and renamed into place, so shards that start together on a shared folder never load
 //! half a library. A library with Fortran sources is skipped, and said so, when no Fortran
-//! compiler runs.
+//! compiler runs; one whose sources do not compile makes its routines' items bad input, and
+//! the others run.
 
 use std::path::{Path as FsPath, PathBuf};
 
@@ -20,6 +21,10 @@ pub struct Built {
     pub actual: PathBuf,
     /// Why it was not built (no Fortran compiler), when it was not.
     pub skipped: Option<String>,
+    /// The build's error when its sources did not compile: its routines' items are bad input
+    /// with these words, and the other items run (one typo stopped the whole campaign before
+    /// any item ran, with no report; a user-style sweep).
+    pub failed: Option<String>,
 }
 
 fn is_fortran(p: &FsPath) -> bool {
@@ -51,7 +56,7 @@ pub fn build_all(
                 lib.output
             );
             notes.push(why.clone());
-            out.push(Built { declared, actual, skipped: Some(why) });
+            out.push(Built { declared, actual, skipped: Some(why), failed: None });
             continue;
         }
         let hash =
@@ -86,7 +91,14 @@ pub fn build_all(
                 .with_context(|| format!("{}: libraries[{k}]: building {}", c.source.display(), lib.output));
             if let Err(e) = built {
                 let _ = std::fs::remove_file(&tmp);
-                return Err(e);
+                let words = format!("{e:#}");
+                crate::say!("tancheck: campaign library {}: build failed: {words}", lib.output);
+                notes.push(format!(
+                    "{} did not build (its routines' items are bad input, exit 2): {words}",
+                    lib.output
+                ));
+                out.push(Built { declared, actual, skipped: None, failed: Some(words) });
+                continue;
             }
             std::fs::rename(&tmp, &actual)
                 .with_context(|| format!("moving the build to {}", actual.display()))?;
@@ -96,7 +108,7 @@ pub fn build_all(
                 crate::say!("tancheck: campaign library {}: built", lib.output);
             }
         }
-        out.push(Built { declared, actual, skipped: None });
+        out.push(Built { declared, actual, skipped: None, failed: None });
     }
     Ok(out)
 }

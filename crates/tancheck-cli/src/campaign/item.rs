@@ -56,7 +56,10 @@ pub fn run(c: &Campaign, item: &Item, libs: &[Built]) -> ItemResult {
             worst: Vec::new(),
             message: Some(why),
         }),
-        None => run_found(c, item, built.as_ref().map(|b| b.actual.as_path())),
+        None => match built.as_ref().and_then(|b| b.failed.clone()) {
+            Some(words) => Err(anyhow!("its library did not build: {words}")),
+            None => run_found(c, item, built.as_ref().map(|b| b.actual.as_path())),
+        },
     };
     let found = found.unwrap_or_else(|e| Found {
         outcome: "error",

@@ -35,7 +35,14 @@ fn status(it: &ItemResult) -> TestCaseStatus {
     let mut s = TestCaseStatus::non_success(kind);
     let message = item_line(it).replace('\n', " ").split_whitespace().collect::<Vec<_>>().join(" ");
     s.set_message(format!("finding {}: {message}", it.finding));
-    s.set_type(if kind == NonSuccessKind::Failure { "tangent-finding" } else { "routine-fault" });
+    // The type names the class of the exit code, as the other reports do: bad input (a library
+    // that could not be built or loaded) is no routine fault (it read so; a user-style sweep).
+    s.set_type(match it.code {
+        1 | 4 => "tangent-finding",
+        c if c == crate::exit::BAD_INPUT => "bad-input",
+        c if c == crate::exit::ROUTINE_FAULT => "routine-fault",
+        _ => "stopped",
+    });
     s
 }
 
