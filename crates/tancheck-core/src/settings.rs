@@ -27,11 +27,20 @@ pub struct SchemeSettings {
 #[serde(deny_unknown_fields, default)]
 pub struct Settings {
     pub schemes: Vec<Scheme>,
+    // A scheme's section may give only one of its two numbers; the other keeps the scheme's
+    // default (`"central": {"tol": 1e-8}` was refused for its missing rel_step, where
+    // `--tol central=1e-8` ran; a user-style sweep).
+    #[serde(deserialize_with = "partial::forward")]
     pub forward: SchemeSettings,
+    #[serde(deserialize_with = "partial::backward")]
     pub backward: SchemeSettings,
+    #[serde(deserialize_with = "partial::central")]
     pub central: SchemeSettings,
+    #[serde(deserialize_with = "partial::central4")]
     pub central4: SchemeSettings,
+    #[serde(deserialize_with = "partial::richardson")]
     pub richardson: SchemeSettings,
+    #[serde(deserialize_with = "partial::complex_step")]
     pub complex_step: SchemeSettings,
     /// The strain scale of an increment is max(|ε + Δε|∞, |Δε|∞, step_floor); the step of a
     /// scheme is its `rel_step` times that scale. The floor keeps the step finite at zero strain.
@@ -124,5 +133,58 @@ impl Settings {
             return Err(CoreError::Floors);
         }
         Ok(())
+    }
+}
+
+/// A scheme's section read with either number left out: the scheme's default fills it.
+mod partial {
+    use serde::{Deserialize, Deserializer};
+
+    use super::{SchemeSettings, Settings};
+
+    #[derive(Deserialize)]
+    #[serde(deny_unknown_fields)]
+    struct Partial {
+        rel_step: Option<f64>,
+        tol: Option<f64>,
+    }
+
+    fn fill<'de, D: Deserializer<'de>>(d: D, default: SchemeSettings) -> Result<SchemeSettings, D::Error> {
+        let p = Partial::deserialize(d)?;
+        Ok(SchemeSettings {
+            rel_step: p.rel_step.unwrap_or(default.rel_step),
+            tol: p.tol.unwrap_or(default.tol),
+        })
+    }
+
+    macro_rules! schemes {
+        ($($name:ident),*) => {$(
+            pub(super) fn $name<'de, D: Deserializer<'de>>(d: D) -> Result<SchemeSettings, D::Error> {
+                fill(d, Settings::default().$name)
+            }
+        )*};
+    }
+    schemes!(forward, backward, central, central4, richardson, complex_step);
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn a_scheme_section_may_give_one_of_its_numbers() {
+        let s: Settings =
+            serde_json::from_str(r#"{ "central": { "tol": 1e-8 }, "forward": { "rel_step": 1e-7 } }"#)
+                .expect("either number alone");
+        let d = Settings::default();
+        assert_eq!(s.central, SchemeSettings { rel_step: d.central.rel_step, tol: 1e-8 });
+        assert_eq!(s.forward, SchemeSettings { rel_step: 1e-7, tol: d.forward.tol });
+        assert_eq!(s.complex_step, d.complex_step);
+        // Still no unknown field.
+        let e = serde_json::from_str::<Settings>(r#"{ "central": { "tolerance": 1e-8 } }"#).unwrap_err();
+        assert!(e.to_string().contains("unknown field `tolerance`"), "{e}");
+        // And a report's settings read back as written.
+        let back: Settings = serde_json::from_str(&serde_json::to_string(&d).unwrap()).unwrap();
+        assert_eq!(back, d);
     }
 }
