@@ -23,9 +23,11 @@ use crate::session::default_path;
 pub struct BisectArgs {
     /// The manifest (JSON) that names the routine, its properties and the path.
     pub manifest: PathBuf,
-    /// Path to walk instead of the manifest's: SHAPE:PEAK:STEPS[:BACK]
-    /// (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic, tension-shear, mixed-mode).
-    #[arg(long, value_name = "SPEC")]
+    /// Path to walk instead of the manifest's: a path file (JSON, like a manifest's "path"), or
+    /// SHAPE:PEAK:STEPS[:BACK] (shapes: uniaxial-strain, shear-12, biaxial, hydrostatic,
+    /// tension-shear, mixed-mode, and uniaxial-stress, which holds every stress but 11 at zero),
+    /// as for `check`.
+    #[arg(long, value_name = "FILE|SPEC")]
     pub path: Option<String>,
     /// Candidate paths the shrinker checks at most; 0 skips shrinking.
     #[arg(long, value_name = "N", default_value_t = ShrinkLimits::default().max_iterations)]
