@@ -54,6 +54,10 @@ pub fn stop_words(stop: &ShrinkStop) -> String {
         ShrinkStop::TimeLimit { seconds } => {
             format!("stopped at the limit of {seconds} s; raise it with --max-shrink-seconds to shrink further")
         }
+        ShrinkStop::Signal { signal } => format!(
+            "stopped by {}; the path shrunk so far is kept (run bisect again to shrink further)",
+            crate::campaign::item::signal_name(*signal)
+        ),
     }
 }
 
@@ -131,7 +135,12 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
             None,
             &mut warnings,
         )?;
-        to_write.push(c);
+        // Written before the shrink, which may run for minutes: whatever ends it, the located
+        // case is on disk.
+        match write_case(&case_dir, &c) {
+            Ok(f) => cases.push(f),
+            Err(e) => warnings.push(format!("{e:#}")),
+        }
         if a.max_shrink_iterations > 0 {
             let limits =
                 ShrinkLimits { max_iterations: a.max_shrink_iterations, max_seconds: a.max_shrink_seconds };
@@ -140,8 +149,22 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
                 "shrinking the failing path",
                 a.run.output.shows_progress(),
             );
-            let shrunk_path = bisect::shrink(&mut caller, &props, &start, &path, &report, &settings, limits)
-                .map_err(anyhow::Error::msg)?;
+            // A stop signal (Ctrl-C, SIGTERM, SIGHUP) ends the shrink before its next candidate:
+            // the located case and the path shrunk so far are written, and the exit code is
+            // 128 + the signal (it died of the signal and kept nothing; a user-style sweep). A
+            // second signal ends the process at once.
+            tancheck_abi::watch::defer_stop(true);
+            let shrunk_path = bisect::shrink_until(
+                &mut caller,
+                &props,
+                &start,
+                &path,
+                &report,
+                &settings,
+                limits,
+                &tancheck_abi::watch::stop_signal,
+            )
+            .map_err(anyhow::Error::msg)?;
             drop(progress);
             if let Some(s) = shrunk_path {
                 let l2 =
@@ -203,6 +226,13 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     let mut reporters = crate::session::reporters(&a.run.output, a.run.json.as_deref());
     reporters.bisect(&outcome)?;
     reporters.finish()?;
+    // A stop signal during the shrink or after it (while its case was captured): said, and the
+    // exit code is the signal's, with everything found written.
+    let signal = tancheck_abi::watch::stop_signal();
+    if signal != 0 {
+        crate::say!("tancheck: bisect {}", stop_words(&ShrinkStop::Signal { signal }));
+        return Ok(128 + signal);
+    }
     Ok(if outcome.located.is_none() && outcome.exit_code == exit::PASS {
         exit::PASS
     } else {

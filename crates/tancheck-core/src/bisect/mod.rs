@@ -29,7 +29,7 @@ pub use crate::diagnose::study::StepVerdict;
 pub use inside::locate;
 pub use outcome::{CallClass, Crossing, Inside, Judgement, Located, Sample, StepFinding};
 pub use settings::BisectSettings;
-pub use shrink::{shrink, ShrinkLimits, ShrinkStop, Shrunk};
+pub use shrink::{shrink, shrink_until, ShrinkLimits, ShrinkStop, Shrunk};
 pub use walk::{base_call_of, driver_at, first_failure};
 
 #[cfg(test)]

@@ -56,6 +56,8 @@ pub enum ShrinkStop {
     IterationLimit { limit: usize },
     /// The time limit was reached; a larger one may shrink further.
     TimeLimit { seconds: f64 },
+    /// A stop signal (Ctrl-C, SIGTERM, SIGHUP) arrived: the path shrunk so far is kept.
+    Signal { signal: i32 },
 }
 
 /// The result of a shrink.
@@ -89,6 +91,8 @@ struct Shrinker<'a, 'r> {
     /// [`MARGIN`] and [`margins`]).
     min_margins: Vec<(Scheme, bool, f64)>,
     limits: ShrinkLimits,
+    /// A stop signal that arrived (0: none), asked before each candidate.
+    stop_signal: &'a dyn Fn() -> i32,
     t0: Instant,
     iterations: usize,
     accepted: usize,
@@ -168,6 +172,11 @@ impl Shrinker<'_, '_> {
         }
         if self.t0.elapsed().as_secs_f64() >= self.limits.max_seconds {
             self.stop = Some(ShrinkStop::TimeLimit { seconds: self.limits.max_seconds });
+            return false;
+        }
+        let signal = (self.stop_signal)();
+        if signal != 0 {
+            self.stop = Some(ShrinkStop::Signal { signal });
             return false;
         }
         self.iterations += 1;
@@ -349,6 +358,23 @@ pub fn shrink(
     settings: &Settings,
     limits: ShrinkLimits,
 ) -> Result<Option<Shrunk>, CoreError> {
+    shrink_until(caller, props, start, path, report, settings, limits, &|| 0)
+}
+
+/// [`shrink`], stopping before its next candidate once `stop_signal` gives a signal's number
+/// (not 0): the path shrunk so far is the result, its stop [`ShrinkStop::Signal`] (a bisect
+/// stopped by Ctrl-C kept nothing; a user-style sweep).
+#[allow(clippy::too_many_arguments)]
+pub fn shrink_until(
+    caller: &mut Caller<'_>,
+    props: &[f64],
+    start: &PointState,
+    path: &Path,
+    report: &Report,
+    settings: &Settings,
+    limits: ShrinkLimits,
+    stop_signal: &dyn Fn() -> i32,
+) -> Result<Option<Shrunk>, CoreError> {
     if limits.max_seconds.is_nan() || limits.max_seconds <= 0.0 {
         return Err(CoreError::ShrinkTime(limits.max_seconds));
     }
@@ -377,6 +403,7 @@ pub fn shrink(
         branch,
         min_margins: margins(&report).into_iter().map(|(s, dt, m)| (s, dt, m.min(MARGIN))).collect(),
         limits,
+        stop_signal,
         t0,
         iterations: 0,
         accepted: 0,
