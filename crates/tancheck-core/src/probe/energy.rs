@@ -1,7 +1,7 @@
 //! The energy probe: elastic cycles do no net work, dissipation never decreases, and the
 //! reported energies agree with the work done.
-//! - A closed elastic cycle (a small loop in the first two components from the start state)
-//!   does no net work: |∮σ·dε| ≤ 1e-10 of the work done on the way (trapezoid rule, exact for a
+//! - Closed elastic cycles (a small square loop in every pair of components from the start
+//!   state) do no net work: |∮σ·dε| ≤ 1e-10 of the work done on the way (trapezoid rule, exact for a
 //!   linear response).
 //! - Dissipation is never negative (Clausius–Duhem): the dissipated energy a routine reports
 //!   never decreases along the path.
@@ -60,9 +60,52 @@ struct Cycle {
     net: f64,
     elastic: bool,
     own_start: Option<f64>,
+    /// The two components of the loop whose net work is the largest.
+    pair: (&'static str, &'static str),
 }
 
-/// A closed cycle of amplitude `a` in the first two components from the start.
+/// The name of a path slot for a point of `kind`.
+fn slot_label(kind: crate::PointKind, slot: usize) -> &'static str {
+    if kind.is_cohesive() {
+        ["n", "s1", "s2"].get(slot).copied().unwrap_or("?")
+    } else {
+        crate::path::SLOT_NAMES.get(slot).copied().unwrap_or("?")
+    }
+}
+
+/// Closed cycles of amplitude `a` from the start, one square loop in every pair of the
+/// kind's components: the worst loop's net work. A law with a stored-energy function does no
+/// net work around any of them; a stress that is no derivative of one (a coupling of two
+/// components that is not mutual) does around the loop in those two. A loop in the first two
+/// components alone missed a law whose σ12 depended on ε11 without σ11 depending on γ12 (a
+/// user-style sweep): it is the pair's own loop that encloses the work.
+fn closed_cycles(
+    caller: &mut Caller<'_>,
+    info: &crate::routine::RoutineInfo,
+    env: &ProbeEnv<'_>,
+    w: &[f64],
+    a: f64,
+) -> Result<Cycle, Fault> {
+    let kind = info.convention.kind();
+    let slots = kind.path_slots();
+    let mut worst: Option<Cycle> = None;
+    let mut elastic = true;
+    for (k, &p) in slots.iter().enumerate() {
+        for &q in &slots[k + 1..] {
+            let mut c = closed_cycle(caller, info, env, w, a, (p, q))?;
+            elastic &= c.elastic;
+            c.pair = (slot_label(kind, p), slot_label(kind, q));
+            if worst.as_ref().is_none_or(|x| c.net > x.net) {
+                worst = Some(c);
+            }
+        }
+    }
+    let mut c = worst.unwrap_or(Cycle { net: 0.0, elastic: true, own_start: None, pair: ("", "") });
+    c.elastic = elastic;
+    Ok(c)
+}
+
+/// A closed cycle of amplitude `a` in the components `pair` (path slots) from the start.
 ///
 /// A start stress of zero that the routine does not return for a zero increment from the start
 /// (a total-form thermal law at a start temperature away from its reference holds a thermal
@@ -75,6 +118,7 @@ fn closed_cycle(
     env: &ProbeEnv<'_>,
     w: &[f64],
     a: f64,
+    pair: (usize, usize),
 ) -> Result<Cycle, Fault> {
     let conv = &info.convention;
     let n = conv.ncomp();
@@ -95,7 +139,7 @@ fn closed_cycle(
     }
     let (mut net, mut gross) = (0.0, 0.0);
     let mut elastic = true;
-    let legs = [(0usize, 1.0), (1, 1.0), (0, -1.0), (1, -1.0)];
+    let legs = [(pair.0, 1.0), (pair.1, 1.0), (pair.0, -1.0), (pair.1, -1.0)];
     let steps = 8;
     for (comp, sign) in legs {
         let mut canon = [0.0; 6];
@@ -113,7 +157,7 @@ fn closed_cycle(
             d.advance();
         }
     }
-    Ok(Cycle { net: if gross > 0.0 { net.abs() / gross } else { 0.0 }, elastic, own_start })
+    Ok(Cycle { net: if gross > 0.0 { net.abs() / gross } else { 0.0 }, elastic, own_start, pair: ("", "") })
 }
 
 impl Probe for Energy {
@@ -145,8 +189,9 @@ impl Probe for Energy {
         let mut cycle = 0.0;
         let mut elastic = false;
         let mut own_start = None;
+        let mut pair = ("", "");
         for _ in 0..=8 {
-            match closed_cycle(caller, &info, env, &w, a) {
+            match closed_cycles(caller, &info, env, &w, a) {
                 Err(f) => {
                     return Ok(super::faulted_in(
                         "energy",
@@ -158,6 +203,7 @@ impl Probe for Energy {
                     cycle = c.net;
                     elastic = c.elastic;
                     own_start = c.own_start;
+                    pair = c.pair;
                 }
             }
             if elastic {
@@ -177,8 +223,13 @@ impl Probe for Energy {
             ));
         }
         if elastic {
+            let loops = if pair.0.is_empty() {
+                "one component: no loop to close".to_string()
+            } else {
+                format!("a loop in every pair of components, the most in {} and {}", pair.0, pair.1)
+            };
             details.push(format!(
-                "closed elastic cycle of amplitude {a:.3e}{}: net work {cycle:.2e} of the work done",
+                "closed elastic cycles of amplitude {a:.3e}{} ({loops}): net work {cycle:.2e} of the work done",
                 if a != asked {
                     format!(" (cut from {asked:.3e} so that the state variables stay put)")
                 } else {
@@ -190,7 +241,12 @@ impl Probe for Energy {
             if cycle > 1e-10 {
                 fail = Some((
                     0,
-                    format!("a closed elastic cycle does net work {cycle:.2e} of the work done on the way"),
+                    format!(
+                        "a closed elastic cycle in {} and {} does net work {cycle:.2e} of the work done on the way: \
+                         the stress is no derivative of a stored energy (a coupling of the two that is not \
+                         mutual; the symmetry probe shows the tangent's unsymmetric part)",
+                        pair.0, pair.1
+                    ),
                 ));
             }
         } else {
