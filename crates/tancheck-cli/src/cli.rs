@@ -465,10 +465,12 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         None => (crate::suite::Suite::default_for(m.routine.kind, a.thermal), None),
     };
     if !suite.kinds.is_empty() && !suite.kinds.contains(&m.routine.kind) {
+        // The kinds by the names a manifest uses (it printed `[PlaneStress]`; a user-style sweep).
+        let kinds: Vec<String> = suite.kinds.iter().map(|k| k.to_string()).collect();
         crate::say!(
-            "tancheck: warning: suite `{}` is meant for {:?}, the routine is {}",
+            "tancheck: warning: suite `{}` is meant for {}, the routine is {}",
             suite.suite,
-            suite.kinds,
+            kinds.join(", "),
             m.routine.kind
         );
     }

@@ -516,7 +516,12 @@ fn cause_trials(
         initial: initial.as_deref(),
         start_temperature: start_temperature.as_deref(),
         temp_refinement: temp_refinement.as_ref(),
-        previous: ctx.previous,
+        // A zero increment starts and ends at one point: "the tangent at its start" says
+        // nothing there (the tangent of the increment before, a loading branch's, read
+        // `stale-tangent` where a growth term was kept in unloading; a user-style sweep).
+        previous: ctx
+            .previous
+            .filter(|_| driver.dstrain().iter().any(|&x| x != 0.0) || driver.dtemp() != 0.0),
         refinement: Some(&rf),
         strain_end: &strain_end,
         stress_end: &stress_end,

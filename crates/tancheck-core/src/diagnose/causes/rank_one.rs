@@ -169,7 +169,15 @@ pub(super) fn try_rank_one(ev: &Evidence<'_>, found: &mut Found) {
                 ""
             };
             let (cause, detail) = if (factor).abs() < 0.05 {
-                (Cause::TermMissing, format!("one term a⊗b of {of} is missing (factor {factor:.3}{reading}; size {size:.2e} of the norm)"))
+                // In an unloading step a term of another branch that cancels one of the
+                // derivative's reads as missing too (a cohesive law's softening term kept on
+                // unloading, returned −1955 where the derivative is 59270; a user-style sweep).
+                (
+                    Cause::TermMissing,
+                    format!(
+                        "one term a⊗b of {of} is missing (factor {factor:.3}{reading}; size {size:.2e} of the norm){other_branch}"
+                    ),
+                )
             } else if (factor + 1.0).abs() < 0.25 {
                 (
                     Cause::TermSign,

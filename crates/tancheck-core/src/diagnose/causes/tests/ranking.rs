@@ -202,6 +202,24 @@ fn a_scaled_term_where_the_state_did_not_change_names_another_branch() {
         let t = hs.iter().find(|h| h.cause == Cause::TermScaled).unwrap_or_else(|| panic!("{hs:#?}"));
         assert_eq!(t.detail.contains("a term of another branch's tangent"), !changed, "{}", t.detail);
     }
+    // A term that cancels one of the derivative's (factor near 0) reads `term-missing`, and
+    // says the same where the state did not change (a cohesive law's softening term kept on
+    // unloading read only "missing (factor -0.033)"; a user-style sweep).
+    let mut cancelled = good.clone();
+    for j in 0..6 {
+        for i in 0..6 {
+            cancelled[i + 6 * j] += 2.0 * mu * crate::worked::J2_THETA_BAR * nv[i] * nv[j];
+        }
+    }
+    for changed in [false, true] {
+        let mut evd = ev(&conv, &cancelled, &good, &z);
+        evd.elastic = Some(&e);
+        evd.initial = Some(&e);
+        evd.state_changed = changed;
+        let hs = rank(&evd);
+        let t = hs.iter().find(|h| h.cause == Cause::TermMissing).unwrap_or_else(|| panic!("{hs:#?}"));
+        assert_eq!(t.detail.contains("a term of another branch's tangent"), !changed, "{}", t.detail);
+    }
 }
 
 /// One term a⊗a with the shear entries of one side only doubled (n : dε taken with engineering
