@@ -271,6 +271,14 @@ fn probe_junit_has_a_case_per_probe() {
     let cs = cases(&root);
     let newton = cs.iter().find(|c| c.attrs["name"] == "newton").expect("a newton case");
     assert!(failure_message(newton).is_some_and(|m| m.contains("order")), "{xml}");
+    // Every failure's message starts with its finding: the probe's name, or the tangent
+    // probe's own cause (it started "probe tangent: ..."; a user-style sweep).
+    assert!(failure_message(newton).is_some_and(|m| m.starts_with("finding newton: ")), "{xml}");
+    let tangent = cs.iter().find(|c| c.attrs["name"] == "tangent").expect("a tangent case");
+    assert!(
+        failure_message(tangent).is_some_and(|m| m.starts_with("finding continuum-tangent: probe tangent: ")),
+        "{xml}"
+    );
     // A probe's finding is a failure typed by its probe (a routine fault would be an error).
     let failure = newton.children.iter().find(|c| c.name == "failure").unwrap();
     assert_eq!(failure.attrs["type"], "newton-finding", "{xml}");

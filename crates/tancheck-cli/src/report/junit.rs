@@ -248,8 +248,17 @@ pub fn probe_junit<'a>(reports: impl IntoIterator<Item = &'a SuiteReport>) -> io
                     (!p.details.is_empty()).then(|| p.details.join("\n")),
                 ),
                 ProbeStatus::Fail => {
+                    // The message starts with the finding, as the README says of every failure
+                    // (it started "probe tangent: ..."; a user-style sweep): the tangent probe's
+                    // own finding where its summary names one, else the probe's name.
+                    let finding = p
+                        .summary
+                        .rsplit_once("finding: ")
+                        .map(|(_, f)| f.split([' ', ';', ',']).next().unwrap_or(f))
+                        .filter(|f| !f.is_empty())
+                        .unwrap_or(p.probe.as_str());
                     let mut s = failure(
-                        format!("probe {}: {}", p.probe, p.summary),
+                        format!("finding {finding}: probe {}: {}", p.probe, p.summary),
                         NonSuccessKind::Failure,
                         (!p.details.is_empty()).then(|| p.details.join("\n")),
                     );
