@@ -101,7 +101,10 @@ fn probe_plot_words(probe: &str, y: &str) -> (String, String) {
         "stability" if y.starts_with("min det") => (
             "minimum acoustic-tensor determinant along the path".into(),
             "The smallest determinant of the acoustic tensor Q(n) over directions n, relative to the \
-             stiffness scale s, per increment: ellipticity is lost where it reaches zero."
+             stiffness scale s, per increment: ellipticity is lost where it reaches zero. Where the \
+             tangent's symmetric part is positive definite the directions are not searched and the point \
+             is its lower bound (λmin/2s)^d, which no direction can go below (the probe's details say \
+             \"≥\" there)."
                 .into(),
         ),
         "stability" => (
