@@ -70,6 +70,7 @@ fn run_path(
     path.validate()?;
     let info = caller.info().clone();
     let conv = info.convention.clone();
+    let start_point = Some((start.strain.clone(), start.stress.clone()));
     let driver = Driver::new(&info, props, start)?;
     let has_twin = caller.has_complex();
     if !has_twin && settings.schemes.iter().all(|&s| s == Scheme::ComplexStep) {
@@ -373,6 +374,7 @@ fn run_path(
         cases: None,
         gave_way,
         checked_path: None,
+        start_point,
     })
 }
 

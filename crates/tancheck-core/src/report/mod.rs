@@ -333,6 +333,11 @@ pub struct Report {
     /// its. Not written (the notes and `path` say it).
     #[serde(skip)]
     pub checked_path: Option<crate::path::Path>,
+    /// Strain and stress at the start of the path (routine order): the first point of the
+    /// page's response curves (they began at the first increment's end; a user-style sweep).
+    /// Not written.
+    #[serde(skip)]
+    pub start_point: Option<(Vec<f64>, Vec<f64>)>,
 }
 
 /// The regression cases replayed with a check, by file.

@@ -132,7 +132,7 @@ pub(super) fn check_sections(report: &Report, o: &mut String) {
     ));
     o.push_str(&figure(
         plots::response_curves(report),
-        "The routine's response at the end of each increment, per component that moves.",
+        "The routine's response from the start of the path and at the end of each increment, per component that moves.",
         "wide",
     ));
 

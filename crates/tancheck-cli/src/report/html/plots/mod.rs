@@ -7,6 +7,7 @@ use plotters::prelude::*;
 
 use tancheck_core::diagnose::study::StepStudy;
 use tancheck_core::probe::ProbeSeries;
+use tancheck_core::report::IncrementRecord;
 use tancheck_core::{Report, Scheme};
 
 mod bisect;
@@ -425,6 +426,18 @@ pub(super) fn text_centre() -> plotters::style::text_anchor::Pos {
     Pos::new(HPos::Center, VPos::Center)
 }
 
+/// Component `i` of the strain (or the stress) along the path: from its start (the curves began
+/// at the first increment's end, a cohesive law's first loading line off the origin; a
+/// user-style sweep), then at the end of each increment of `incs`.
+fn response_values(report: &Report, incs: &[&IncrementRecord], i: usize, stress: bool) -> Vec<f64> {
+    let n = report.routine.order.len();
+    let start = report.start_point.as_ref().filter(|(e, s)| e.len() == n && s.len() == n);
+    let first = start.map(|(e, s)| if stress { s[i] } else { e[i] });
+    let each =
+        incs.iter().map(|r| if stress { r.stress() } else { r.strain() }.get(i).copied().unwrap_or(0.0));
+    first.into_iter().chain(each).collect()
+}
+
 /// Stress against strain per component along the path (traction against separation for a
 /// cohesive point), for the strain components that move.
 pub fn response_curves(report: &Report) -> Option<String> {
@@ -444,10 +457,8 @@ pub fn response_curves(report: &Report) -> Option<String> {
         let f = || v.iter().cloned().filter(|x| x.is_finite());
         f().fold(f64::NEG_INFINITY, f64::max) - f().fold(f64::INFINITY, f64::min)
     };
-    let strain =
-        |i: usize| incs.iter().map(|r| r.strain().get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
-    let stress =
-        |i: usize| incs.iter().map(|r| r.stress().get(i).copied().unwrap_or(0.0)).collect::<Vec<_>>();
+    let strain = |i: usize| response_values(report, &incs, i, false);
+    let stress = |i: usize| response_values(report, &incs, i, true);
     let emax = (0..n).map(|i| span(&strain(i))).fold(0.0, f64::max);
     let moving: Vec<usize> = (0..n).filter(|&i| span(&strain(i)) > 1e-3 * emax).collect();
     if moving.is_empty() || emax <= 0.0 || !emax.is_finite() {
