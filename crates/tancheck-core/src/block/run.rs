@@ -115,5 +115,21 @@ pub fn run(
         "point-dependence" | "history-dependence" => 1,
         _ => 2,
     });
+    // What follows such a dependence may all come from it: a SAVE variable carried from call
+    // to call also reads as a broken twin, a stiffness above the elastic one, a wrong rate law
+    // (four findings of one flaw read like four bugs; a user-style sweep).
+    let dependence =
+        report.findings.iter().find(|f| matches!(f.finding, "point-dependence" | "history-dependence"));
+    if let Some(first) = dependence.map(|f| f.finding) {
+        let after =
+            report.findings.iter().filter(|f| f.finding != first && f.finding != "routine-fault").count();
+        if after > 0 {
+            report.notes.push(format!(
+                "{first}: the routine's results depend on other calls, so every later check sees calls that differ \
+                 from the point's own; the {after} other finding{} may follow from it alone: mend it first",
+                if after == 1 { "" } else { "s" }
+            ));
+        }
+    }
     Ok(report)
 }
