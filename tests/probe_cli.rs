@@ -311,3 +311,35 @@ fn a_passing_tangent_probe_quotes_the_cleared_increments_apart() {
     let worst: f64 = line.split("worst error ").nth(1).unwrap().split(';').next().unwrap().parse().unwrap();
     assert!(worst < 1e-6, "{line}");
 }
+
+// A suite entry's fields that its probe does not read are said (they were taken and dropped
+// without a word, and a user believed `axes` set on `newton`; a user-style sweep); the suite
+// still runs as before. The built-in suites give none.
+#[test]
+fn fields_a_probe_does_not_read_are_warned_of() {
+    let d = scratch("unread");
+    let m = write(&d, "m.json", J2_MANIFEST);
+    let s = write(
+        &d,
+        "s.json",
+        r#"{ "suite": "unread", "probes": [ { "probe": "newton", "axes": [1, 2], "subdivisions": 4 },
+                                            { "probe": "conventions", "at": [2] },
+                                            { "probe": "symmetry", "symmetric": false, "at": [1] } ] }"#,
+    );
+    let (c, t) = probe(&[m.to_str().unwrap(), "--suite", s.to_str().unwrap(), "-q"], &d);
+    assert_eq!(c, Some(0), "{t}");
+    assert!(
+        t.contains("probes[0] (newton): `subdivisions`, `axes` are not read by this probe (ignored)"),
+        "{t}"
+    );
+    assert!(t.contains("probes[1] (conventions): `at` is not read by this probe (ignored)"), "{t}");
+    assert!(!t.contains("probes[2]"), "{t}");
+    for kind in [tancheck::core::PointKind::Solid3d, tancheck::core::PointKind::Cohesive3d] {
+        for thermal in [false, true] {
+            let suite = tancheck::cli::suite::Suite::default_for(kind, thermal);
+            for p in &suite.probes {
+                assert!(p.unread_fields().is_empty(), "{}: {} {:?}", suite.suite, p.probe, p.unread_fields());
+            }
+        }
+    }
+}

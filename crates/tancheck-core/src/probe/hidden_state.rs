@@ -108,7 +108,8 @@ impl Probe for HiddenState {
                      after the increment's call, than under a number no other call had ({what}[{i}]: {x:e} \
                      against {y:e}, relative {rel:.1e}): the routine keeps results per increment number (a \
                      tangent or start state saved at the first call of an increment and used for the later \
-                     ones, a static variable every point shares?)"
+                     ones, a static variable every point shares, or a result that reads the increment number \
+                     itself?)"
                 ),
                 Kept::FromTheCallBefore => format!(
                     "at increment {k}, a call from another start state (the start of the increment before, as \

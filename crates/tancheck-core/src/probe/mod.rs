@@ -92,6 +92,43 @@ impl ProbeSpec {
     pub fn runs_at(&self, k: usize) -> bool {
         self.at.as_ref().is_none_or(|a| a.contains(&k))
     }
+
+    /// The fields given that this entry's probe does not read (they are ignored): `axes` on
+    /// `newton`, `at` on `softening` (they were taken without a word, and a user believed them
+    /// set; a user-style sweep). From the probes' own reads of their spec; empty for a probe
+    /// not in the table.
+    pub fn unread_fields(&self) -> Vec<&'static str> {
+        let reads: &[&str] = match self.probe.as_str() {
+            "conventions" => &["tol"],
+            "determinism" | "hidden-state" | "immutability" => &["at"],
+            "energy" => &["tol", "at", "amplitude"],
+            "frame" => &["tol", "at", "amplitude", "anisotropic", "axes", "scalar_states"],
+            "irreversibility" => &["tol", "at", "damage"],
+            "newton" | "tangent" | "zero-increment" | "stability" => &["tol", "at"],
+            "refinement" => &["tol", "at", "subdivisions"],
+            "regularisation" => &["tol", "length", "fracture_energy"],
+            "snap-back" => &["tol", "damage", "length", "fracture_energy"],
+            "softening" => &["tol", "damage"],
+            "symmetry" => &["tol", "at", "symmetric"],
+            "viscous-limit" => &["tol", "at", "viscosity"],
+            _ => return Vec::new(),
+        };
+        let given = [
+            ("tol", self.tol.is_some()),
+            ("at", self.at.is_some()),
+            ("symmetric", self.symmetric.is_some()),
+            ("amplitude", self.amplitude.is_some()),
+            ("subdivisions", self.subdivisions.is_some()),
+            ("axes", self.axes.is_some()),
+            ("anisotropic", self.anisotropic.is_some()),
+            ("scalar_states", self.scalar_states.is_some()),
+            ("damage", self.damage.is_some()),
+            ("length", self.length.is_some()),
+            ("fracture_energy", self.fracture_energy.is_some()),
+            ("viscosity", self.viscosity.is_some()),
+        ];
+        given.into_iter().filter(|(f, g)| *g && !reads.contains(f)).map(|(f, _)| f).collect()
+    }
 }
 
 /// A probe's verdict.

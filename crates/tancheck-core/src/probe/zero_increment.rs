@@ -90,7 +90,8 @@ impl Probe for ZeroIncrement {
                     "the start stress is zero, and a zero increment from the start gives another stress: a \
                      total-form law gives the stress of its state there (a thermal stress at a start \
                      temperature other than its reference); give the start stress it gives (`start.stress`), \
-                     or start where it is zero"
+                     or start where it is zero. Or the routine carries a value from call to call (a SAVE or \
+                     static variable): the hidden-state and determinism probes say so"
                         .into(),
                 );
             }
