@@ -232,6 +232,8 @@ typedef struct watch_slot {
     int increment;              /* increment of the thread's last call begun */
     int npoints;                /* points of the running block call; 0 for a point call */
     int owned;                  /* atomic: a thread holds the slot */
+    int sweep_column;           /* atomic: the strain column a sweep's running call moves, or -1 */
+    double sweep_step;          /* atomic: and by how much (the imaginary part in the twin) */
 } __attribute__((aligned(64))) watch_slot;
 static watch_slot watch_slots[WATCH_SLOTS];
 static int watch_used;                         /* atomic: slots ever handed out */
@@ -274,7 +276,17 @@ static inline void watch_enter_slot(const tc_guard_args *a, int complex_call, in
     __atomic_store_n(&s->complex_call, complex_call, __ATOMIC_RELAXED);
     __atomic_store_n(&s->increment, increment, __ATOMIC_RELAXED);
     __atomic_store_n(&s->npoints, npoints, __ATOMIC_RELAXED);
+    __atomic_store_n(&s->sweep_column, -1, __ATOMIC_RELAXED);
     slot_count(&s->begun);
+}
+
+/* A sweep's call: the column it moves and the step, for the last words of a call that hangs
+ * or crashes there (they read "perturbation": null beside a moved dstrain; a user-style
+ * sweep). After watch_enter. */
+static inline void watch_sweep_call(int column, double step) {
+    watch_slot *s = own_slot();
+    __atomic_store(&s->sweep_step, &step, __ATOMIC_RELAXED);
+    __atomic_store_n(&s->sweep_column, column, __ATOMIC_RELAXED);
 }
 
 static inline void watch_enter(const tc_guard_args *a, int complex_call) {
@@ -561,6 +573,9 @@ static void last_words(int status, int sig, int in_call, const char *what) {
     const tc_guard_args *a = running && run != NULL ? __atomic_load_n(&run->args, __ATOMIC_RELAXED) : NULL;
     const int cx = run != NULL ? __atomic_load_n(&run->complex_call, __ATOMIC_RELAXED) : 0;
     const int npoints = running && run != NULL ? __atomic_load_n(&run->npoints, __ATOMIC_RELAXED) : 0;
+    const int sweep_column = running && run != NULL ? __atomic_load_n(&run->sweep_column, __ATOMIC_RELAXED) : -1;
+    double sweep_step = 0.0;
+    if (sweep_column >= 0) __atomic_load(&run->sweep_step, &sweep_step, __ATOMIC_RELAXED);
     /* Another thread's call (not this thread's own, which waits here): a checked copy. */
     if (a != NULL && run != tc_thread.slot) a = lw_copy_running(run, a, cx);
     const guard_finite_call *fc = finite_call_of(a);
@@ -624,6 +639,12 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         put("   the inputs of that call (increment ");
         put_int(c->increment);
         put(cx ? ", real parts" : "");
+        if (sweep_column >= 0) {
+            put(cx ? "; a complex-step call, dstrain[" : "; a perturbed call, dstrain[");
+            put_int(sweep_column);
+            put(cx ? "] given the imaginary part " : "] moved by ");
+            put_real(sweep_step);
+        }
         put("):\n     strain   ");
         put_array(a->strain, c->ncomp, cx);
         put("\n     dstrain  ");
@@ -694,7 +715,15 @@ static void last_words(int status, int sig, int in_call, const char *what) {
         if (c != NULL) {
             put("{\"increment\": ");
             put_int(c->increment);
-            put(cx ? ", \"perturbation\": \"complex-step twin (real parts)\"" : ", \"perturbation\": null");
+            if (sweep_column >= 0) {
+                put(cx ? ", \"perturbation\": \"complex-step twin (real parts), dstrain[" : ", \"perturbation\": \"dstrain[");
+                put_int(sweep_column);
+                put(cx ? "] given the imaginary part " : "] moved by ");
+                put_real(sweep_step);
+                put("\"");
+            } else {
+                put(cx ? ", \"perturbation\": \"complex-step twin (real parts)\"" : ", \"perturbation\": null");
+            }
             put(", \"props\": ");
             put_array(a->props, c->nproperties, cx);
             put(", \"strain\": ");
