@@ -230,7 +230,15 @@ pub fn run(a: &BisectArgs) -> Result<i32> {
     // exit code is the signal's, with everything found written.
     let signal = tancheck_abi::watch::stop_signal();
     if signal != 0 {
-        crate::say!("tancheck: bisect {}", stop_words(&ShrinkStop::Signal { signal }));
+        if matches!(outcome.shrunk.as_ref().map(|s| &s.stop), Some(ShrinkStop::Signal { .. })) {
+            crate::say!("tancheck: bisect {}", stop_words(&ShrinkStop::Signal { signal }));
+        } else {
+            // After the shrink had ended: nothing was cut short.
+            crate::say!(
+                "tancheck: bisect stopped by {} after the shrink; everything found is written",
+                crate::campaign::item::signal_name(signal)
+            );
+        }
         return Ok(128 + signal);
     }
     Ok(if outcome.located.is_none() && outcome.exit_code == exit::PASS {

@@ -92,7 +92,9 @@ pub fn build_all(
             if let Err(e) = built {
                 let _ = std::fs::remove_file(&tmp);
                 let words = format!("{e:#}");
-                crate::say!("tancheck: campaign library {}: build failed: {words}", lib.output);
+                if tell {
+                    crate::say!("tancheck: campaign library {}: build failed: {words}", lib.output);
+                }
                 notes.push(format!(
                     "{} did not build (its routines' items are bad input, exit 2): {words}",
                     lib.output

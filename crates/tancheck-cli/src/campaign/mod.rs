@@ -148,8 +148,10 @@ pub fn run(a: &CampaignArgs) -> Result<i32> {
         if let Some(s) = shard {
             marker["shard"] = serde_json::json!({"index": s.index, "count": s.count});
         }
-        // Kept for a run that ends on bad input (a library that does not compile): the earlier
-        // report is put back (it was left as this marker; a user-style sweep).
+        // Kept for a run that ends on bad input after this (a library's build folder that cannot
+        // be made, a stamp that cannot be written): the earlier report is put back (it was left
+        // as this marker; a user-style sweep). A library that does not compile no longer ends
+        // the run: its items are bad input.
         let marker = format!("{marker}\n");
         crate::survive::replace_with_marker(p, marker.into_bytes())
             .with_context(|| format!("writing the JSON report to {}", p.display()))?;

@@ -251,10 +251,12 @@ pub fn probe_junit<'a>(reports: impl IntoIterator<Item = &'a SuiteReport>) -> io
                     // The message starts with the finding, as the README says of every failure
                     // (it started "probe tangent: ..."; a user-style sweep): the tangent probe's
                     // own finding where its summary names one, else the probe's name.
-                    let finding = p
-                        .summary
-                        .rsplit_once("finding: ")
-                        .map(|(_, f)| f.split([' ', ';', ',']).next().unwrap_or(f))
+                    let finding = (p.probe == "tangent")
+                        .then(|| p.summary.rsplit_once("finding: "))
+                        .flatten()
+                        .map(|(_, f)| {
+                            f.split(|c: char| !(c.is_ascii_alphanumeric() || c == '-')).next().unwrap_or(f)
+                        })
                         .filter(|f| !f.is_empty())
                         .unwrap_or(p.probe.as_str());
                     let mut s = failure(

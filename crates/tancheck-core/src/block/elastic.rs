@@ -193,7 +193,13 @@ pub fn elastic_consistency(
             }
         }
     }
-    let dt = size_limit.unwrap_or(SMALL) * first.time_increment;
+    // The strain and time of the stiffness judged, for the twin's check below too (the
+    // smaller one was left in place where it was not taken; a review).
+    let scale = size_limit.unwrap_or(SMALL);
+    for (x, d) in b.strain_increment.iter_mut().zip(&first.strain_increment) {
+        *x = scale * d;
+    }
+    let dt = scale * first.time_increment;
     let (d, limit_dt) = match measured {
         Ok(d) => d,
         // A call of the small increment that crashed, returned a failure status or was flagged

@@ -133,7 +133,9 @@ impl ElasticSummary {
 
     /// Whether the first call's moduli were measured.
     pub fn measured(&self) -> bool {
-        !self.wave_speed.is_nan()
+        // The moduli, not the wave speed: a first call that returns no stiffness (a wave speed
+        // of NaN from a modulus of 0) was measured, and says so.
+        !self.moduli.is_empty()
     }
 }
 

@@ -519,9 +519,10 @@ fn cause_trials(
         // A zero increment starts and ends at one point: "the tangent at its start" says
         // nothing there (the tangent of the increment before, a loading branch's, read
         // `stale-tangent` where a growth term was kept in unloading; a user-style sweep).
-        previous: ctx
-            .previous
-            .filter(|_| driver.dstrain().iter().any(|&x| x != 0.0) || driver.dtemp() != 0.0),
+        // A hold step that changes the state (relaxation at Δε = 0) is no single point: kept.
+        previous: ctx.previous.filter(|_| {
+            driver.dstrain().iter().any(|&x| x != 0.0) || driver.dtemp() != 0.0 || ctx.state_changed
+        }),
         refinement: Some(&rf),
         strain_end: &strain_end,
         stress_end: &stress_end,

@@ -476,6 +476,8 @@ impl Report {
                 add(&d.finding, 0);
             } else if let Some(c) = Cause::BY_SPECIFICITY.iter().position(|c| c.name() == d.finding) {
                 add(&d.finding, 1 + c);
+            } else if d.finding == "undiagnosed" {
+                add("undiagnosed", usize::MAX);
             } else if d.finding == "unexplained" {
                 // Counted as the causes are, last in a tie: a cause named at one increment
                 // does not stand for eleven that nothing explains.

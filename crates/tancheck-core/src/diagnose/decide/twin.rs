@@ -85,7 +85,9 @@ pub(super) fn twin_unsafe(o: &Observed) -> bool {
         // twin's gap alone fell under half of it (a continuum tangent beside a twin taking a
         // real part: 5.05 against 11.1, with the real schemes at 1.2; a user-style sweep). A
         // correct twin is as close to the real reference as Richardson is accurate.
-        (Some(g), Some(_)) => settled.is_some_and(|d| g >= 0.5 * d),
+        // A quarter of the complex step's error at least: a correct twin beside a Richardson
+        // reference off by more than half the real level is not blamed (a review).
+        (Some(g), Some(e)) => g >= 0.25 * e && settled.is_some_and(|d| g >= 0.5 * d),
         _ => false,
     };
     // A real study that levels off above its tolerance says the tangent is wrong: no real

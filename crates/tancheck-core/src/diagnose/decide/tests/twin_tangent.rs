@@ -56,6 +56,22 @@ pub(super) fn rows() -> Vec<Row> {
             twin_unsafe: true,
             needs_causes: true,
         },
+        // The complex step 2.0 from the returned tangent, the real schemes together at 0.4, and
+        // Richardson 0.3 from the complex step: more than half the real level, but under a
+        // quarter of the complex step's error: a Richardson reference that is off, not the
+        // twin, may make that gap (a review).
+        Row {
+            what: "real plateau 0.4, complex step off by 2.0, gap 0.3: the twin not blamed",
+            observed: with_twin(
+                plateau(0.4),
+                2.0,
+                TwinEvidence { real_part_gap: 0.0, derivative_gap: Some(0.3) },
+            ),
+            pass: false,
+            finding: "unexplained",
+            twin_unsafe: false,
+            needs_causes: true,
+        },
         // The real schemes level off apart (central 0.3, forward 0.6): no derivative of their own
         // to hold against the twin.
         Row {
