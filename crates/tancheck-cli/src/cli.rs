@@ -464,22 +464,9 @@ fn cmd_probe(a: ProbeArgs) -> Result<i32> {
         Some(f) => (crate::suite::Suite::load(f)?, Some(f.clone())),
         None => (crate::suite::Suite::default_for(m.routine.kind, a.thermal), None),
     };
-    // Fields an entry gives that its probe does not read: said, not silently dropped (a
-    // user-style sweep believed `axes` set on `newton`). A warning, not an error: the suite
-    // still runs as it did.
-    if let Some(f) = &suite_file {
-        for (k, p) in suite.probes.iter().enumerate() {
-            let unread = p.unread_fields();
-            if !unread.is_empty() {
-                crate::say!(
-                    "tancheck: warning: {}: probes[{k}] ({}): {} {} not read by this probe (ignored)",
-                    f.display(),
-                    p.probe,
-                    unread.iter().map(|u| format!("`{u}`")).collect::<Vec<_>>().join(", "),
-                    if unread.len() == 1 { "is" } else { "are" }
-                );
-            }
-        }
+    // Fields an entry gives that its probe does not read: said, not silently dropped.
+    for w in suite_file.as_deref().map_or_else(Vec::new, |f| suite.unread_warnings(f)) {
+        crate::say!("tancheck: warning: {w}");
     }
     if !suite.kinds.is_empty() && !suite.kinds.contains(&m.routine.kind) {
         // The kinds by the names a manifest uses (it printed `[PlaneStress]`; a user-style sweep).

@@ -154,6 +154,26 @@ impl Suite {
         Suite::parse(&text, file)
     }
 
+    /// A warning per entry that gives fields its probe does not read (`file` names the suite):
+    /// they are ignored, and were dropped without a word, a user-style sweep believing `axes`
+    /// set on `newton`. A warning, not an error: the suite still runs as it did.
+    pub fn unread_warnings(&self, file: &FsPath) -> Vec<String> {
+        let mut out = Vec::new();
+        for (k, p) in self.probes.iter().enumerate() {
+            let unread = p.unread_fields();
+            if !unread.is_empty() {
+                out.push(format!(
+                    "{}: probes[{k}] ({}): {} {} not read by this probe (ignored)",
+                    file.display(),
+                    p.probe,
+                    unread.iter().map(|u| format!("`{u}`")).collect::<Vec<_>>().join(", "),
+                    if unread.len() == 1 { "is" } else { "are" }
+                ));
+            }
+        }
+        out
+    }
+
     /// The suite's own path; an error when it has none.
     pub fn path(&self) -> Result<Path, String> {
         match &self.path {
