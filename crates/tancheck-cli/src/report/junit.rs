@@ -325,19 +325,7 @@ pub fn block_junit(r: &tancheck_core::block::BlockReport) -> io::Result<String> 
     suite.add_property(Property::new("path", r.path.as_str()));
     suite.add_property(Property::new("finding", r.finding()));
     suite.add_property(Property::new("energy rule", r.energy_rule));
-    let checks = [
-        BlockCheck::ElasticResponse,
-        BlockCheck::Tangent,
-        BlockCheck::Energy,
-        BlockCheck::Deletion,
-        BlockCheck::Damage,
-        BlockCheck::Independence,
-        BlockCheck::Rate,
-        BlockCheck::Refinement,
-        BlockCheck::Counterpart,
-        BlockCheck::Call,
-    ];
-    for check in checks {
+    for check in BlockCheck::ALL {
         let found: Vec<_> = r.findings.iter().filter(|f| f.check == check).collect();
         // A check that did not run is skipped, with why: its note says so, or (for the checks
         // a declaration turns on: a rate law, a counterpart; or off) there is no note of it.

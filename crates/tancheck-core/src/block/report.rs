@@ -42,6 +42,21 @@ pub enum BlockCheck {
 }
 
 impl BlockCheck {
+    /// Every check, in the order the reports list them (the elastic response first, a failed
+    /// call last).
+    pub const ALL: [BlockCheck; 10] = [
+        BlockCheck::ElasticResponse,
+        BlockCheck::Tangent,
+        BlockCheck::Energy,
+        BlockCheck::Deletion,
+        BlockCheck::Damage,
+        BlockCheck::Independence,
+        BlockCheck::Rate,
+        BlockCheck::Refinement,
+        BlockCheck::Counterpart,
+        BlockCheck::Call,
+    ];
+
     pub fn name(self) -> &'static str {
         match self {
             BlockCheck::ElasticResponse => "elastic-response",

@@ -140,16 +140,10 @@ pub fn run(
 /// reports that read a check's note (JUnit: skipped, with why) do not take it as passed (they
 /// read success, or "turned off in the manifest"; a review).
 fn not_checked(report: &mut BlockReport, why: &str) {
-    for c in [
-        BlockCheck::Tangent,
-        BlockCheck::Energy,
-        BlockCheck::Deletion,
-        BlockCheck::Damage,
-        BlockCheck::Independence,
-        BlockCheck::Rate,
-        BlockCheck::Refinement,
-        BlockCheck::Counterpart,
-    ] {
+    // The checks after the elastic response (a failed call is no check of its own).
+    for c in
+        BlockCheck::ALL.into_iter().filter(|c| !matches!(c, BlockCheck::ElasticResponse | BlockCheck::Call))
+    {
         if !report.findings.iter().any(|f| f.check == c) {
             report.notes.push(format!("{}: not checked ({why})", c.name()));
         }
